@@ -1,0 +1,63 @@
+//! The whole front end for one file: decode, parse, resolve.
+
+use std::path::Path;
+use std::sync::Arc;
+
+use crate::diagnostics::{Code, Findings, SourceFile};
+use crate::model::{self, Chain, PartsCache};
+use crate::syntax;
+
+/// A checked spec: its chains (possibly partial when it has errors) and
+/// every finding, in report order.
+#[derive(Debug, Default)]
+pub struct CheckedFile {
+    pub file: Option<Arc<SourceFile>>,
+    pub chains: Vec<Chain>,
+    pub findings: Findings,
+}
+
+/// Checks a spec given as bytes. `name` is how findings show the file;
+/// `base` is the folder `use` paths resolve against.
+pub fn check_bytes(name: &str, bytes: &[u8], base: &Path, parts: &mut PartsCache) -> CheckedFile {
+    let file = match syntax::decode(name, bytes) {
+        Ok(f) => f,
+        Err(finding) => {
+            let mut findings = Findings::new();
+            findings.push(finding);
+            return CheckedFile {
+                file: None,
+                chains: Vec::new(),
+                findings,
+            };
+        }
+    };
+    let (ast, mut findings) = syntax::parse(&file);
+    let syntax_failed = findings.has_errors();
+    if syntax_failed && ast.chains.is_empty() {
+        return CheckedFile {
+            file: Some(file),
+            chains: Vec::new(),
+            findings,
+        };
+    }
+    let (chains, more) = model::resolve(&file, &ast, base, parts);
+    for f in more {
+        // A line the parser swallowed is missing from the graph, so graph
+        // findings would be echoes of the syntax error; the other checks
+        // are local to their line and still stand.
+        let echo = f.code.as_str().starts_with('M') || matches!(f.code, Code::P302 | Code::P307);
+        if !(syntax_failed && echo) {
+            findings.push(f);
+        }
+    }
+    CheckedFile {
+        file: Some(file),
+        chains,
+        findings,
+    }
+}
+
+/// Checks spec text (tests, stdin).
+pub fn check_str(name: &str, text: &str) -> CheckedFile {
+    check_bytes(name, text.as_bytes(), Path::new("."), &mut PartsCache::default())
+}

@@ -1,0 +1,38 @@
+use clap::Args;
+
+use super::{EXIT_OK, EXIT_USAGE};
+use crate::diagnostics::Code;
+use crate::model::did_you_mean;
+
+#[derive(Args, Debug)]
+pub struct ExplainArgs {
+    /// A code such as `U102`; without one, every code is listed.
+    code: Option<String>,
+}
+
+pub fn run(args: ExplainArgs) -> u8 {
+    let Some(text) = args.code else {
+        for code in Code::ALL {
+            let severity = match code.severity() {
+                crate::diagnostics::Severity::Error => "error",
+                crate::diagnostics::Severity::Warning => "warning",
+            };
+            println!("{}  {:<7}  {}", code.as_str(), severity, code.title());
+        }
+        return EXIT_OK;
+    };
+    match Code::parse(&text) {
+        Some(code) => {
+            print!("{}", code.explain());
+            EXIT_OK
+        }
+        None => {
+            let near = did_you_mean(&text, Code::ALL.iter().map(|c| c.as_str()));
+            match near {
+                Some(n) => eprintln!("catena: no diagnostic code `{text}`; did you mean `{n}`?"),
+                None => eprintln!("catena: no diagnostic code `{text}`; `catena explain` lists them"),
+            }
+            EXIT_USAGE
+        }
+    }
+}

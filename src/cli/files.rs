@@ -1,0 +1,45 @@
+use std::path::{Path, PathBuf};
+
+/// The spec files named on the command line: files as given, folders
+/// searched recursively for `*.catena`, in sorted order.
+pub fn collect(paths: &[PathBuf]) -> Result<Vec<PathBuf>, String> {
+    let mut out = Vec::new();
+    for path in paths {
+        let meta = std::fs::metadata(path).map_err(|e| format!("cannot read `{}`: {}", path.display(), plain_io(&e)))?;
+        if meta.is_dir() {
+            walk(path, &mut out).map_err(|e| format!("cannot read folder `{}`: {}", path.display(), plain_io(&e)))?;
+        } else {
+            out.push(path.clone());
+        }
+    }
+    Ok(out)
+}
+
+fn walk(dir: &Path, out: &mut Vec<PathBuf>) -> std::io::Result<()> {
+    let mut entries: Vec<_> = std::fs::read_dir(dir)?.collect::<Result<_, _>>()?;
+    entries.sort_by_key(|e| e.file_name());
+    for entry in entries {
+        let path = entry.path();
+        let kind = entry.file_type()?;
+        if kind.is_dir() {
+            // Hidden folders (`.git`) and build output are never specs.
+            let name = entry.file_name();
+            let name = name.to_string_lossy();
+            if !name.starts_with('.') && name != "target" {
+                walk(&path, out)?;
+            }
+        } else if path.extension().is_some_and(|e| e == "catena") {
+            out.push(path);
+        }
+    }
+    Ok(())
+}
+
+/// An I/O error without the `(os error 2)` tail.
+pub fn plain_io(e: &std::io::Error) -> String {
+    let text = e.to_string();
+    match text.find(" (os error") {
+        Some(i) => text[..i].to_lowercase(),
+        None => text.to_lowercase(),
+    }
+}

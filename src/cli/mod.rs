@@ -1,0 +1,56 @@
+//! The `catena` command line.
+
+mod check;
+mod explain;
+mod files;
+mod fmt;
+mod terminal;
+
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand, ValueEnum};
+
+/// Exit statuses: findings and usage problems are told apart so CI can
+/// tell a bad spec from a bad invocation.
+pub const EXIT_OK: u8 = 0;
+pub const EXIT_FINDINGS: u8 = 1;
+pub const EXIT_USAGE: u8 = 2;
+
+#[derive(Parser, Debug)]
+#[command(name = "catena", version, about = "Checks measurement-chain specifications", long_about = None)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Check specs: syntax, units, parameters, parts and the chain graph.
+    Check(check::CheckArgs),
+    /// Rewrite specs in the canonical layout.
+    Fmt(fmt::FmtArgs),
+    /// Explain a diagnostic code, or list them all.
+    Explain(explain::ExplainArgs),
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    Human,
+    Json,
+}
+
+pub fn run() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => {
+            let _ = e.print();
+            return ExitCode::from(if e.use_stderr() { EXIT_USAGE } else { EXIT_OK });
+        }
+    };
+    let status = match cli.command {
+        Command::Check(args) => check::run(args),
+        Command::Fmt(args) => fmt::run(args),
+        Command::Explain(args) => explain::run(args),
+    };
+    ExitCode::from(status)
+}

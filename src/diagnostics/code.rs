@@ -1,0 +1,102 @@
+//! The registry of finding codes. A code is stable once released: its
+//! meaning never changes and it is never reused. Each has an explain page in
+//! `explain/CODE.md` (a missing page fails the build) and at least one
+//! fixture under `tests/fixtures/invalid/` (a missing fixture fails a test).
+//!
+//! Letters by pipeline stage: S syntax, U units, P parameters and settings,
+//! M the chain graph (names, ports, cycles), L parts libraries.
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Severity {
+    Error,
+    Warning,
+}
+
+macro_rules! codes {
+    ($( $id:ident => $severity:ident, $title:literal; )*) => {
+        /// A stable diagnostic code.
+        #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+        pub enum Code { $( $id, )* }
+
+        impl Code {
+            pub const ALL: &'static [Code] = &[ $( Code::$id, )* ];
+
+            pub fn as_str(self) -> &'static str {
+                match self { $( Code::$id => stringify!($id), )* }
+            }
+
+            pub fn severity(self) -> Severity {
+                match self { $( Code::$id => Severity::$severity, )* }
+            }
+
+            /// A short title for listings.
+            pub fn title(self) -> &'static str {
+                match self { $( Code::$id => $title, )* }
+            }
+
+            /// The page `catena explain CODE` prints.
+            pub fn explain(self) -> &'static str {
+                match self { $( Code::$id => include_str!(concat!("explain/", stringify!($id), ".md")), )* }
+            }
+
+            /// Looks a code up by its text, case-insensitively.
+            pub fn parse(text: &str) -> Option<Code> {
+                let text = text.trim();
+                Code::ALL.iter().copied().find(|c| c.as_str().eq_ignore_ascii_case(text))
+            }
+        }
+    };
+}
+
+codes! {
+    S001 => Error, "syntax error";
+    S002 => Error, "unbalanced braces";
+    S003 => Error, "not a text file";
+    S004 => Error, "file too large";
+    S005 => Error, "wrong arrow";
+    S006 => Error, "misspelt plus-minus";
+    S007 => Error, "unterminated string";
+    S008 => Error, "blocks nested too deeply";
+    S009 => Error, "too many findings";
+    S010 => Error, "number out of range";
+    S011 => Error, "statement outside a chain";
+
+    U101 => Error, "unknown unit";
+    U102 => Error, "wrong dimension";
+    U103 => Error, "missing unit";
+    U104 => Error, "unit not allowed here";
+
+    P301 => Error, "unknown parameter";
+    P302 => Error, "missing parameter";
+    P303 => Error, "parameter given twice";
+    P304 => Error, "value not one of the allowed words";
+    P305 => Error, "implausible value";
+    P306 => Error, "malformed value";
+    P307 => Error, "missing sensor or stage model";
+    P308 => Error, "conflicting parameters";
+    P309 => Error, "unknown measurand quantity";
+    P310 => Error, "unknown requirement or alarm";
+    P311 => Error, "missing measurand";
+    P312 => Error, "setting given twice";
+
+    M201 => Error, "duplicate stage name";
+    M202 => Error, "unknown stage";
+    M203 => Error, "unknown port";
+    M204 => Error, "port type mismatch";
+    M205 => Error, "input driven twice";
+    M206 => Error, "required input not connected";
+    M207 => Error, "cycle";
+    M208 => Warning, "unused stage";
+    M209 => Error, "duplicate chain name";
+    M210 => Error, "no single reading";
+    M211 => Error, "edge into an output or out of an input";
+    M212 => Error, "wrong number of bridge arms";
+    M213 => Warning, "output not used";
+
+    L401 => Error, "parts file not readable";
+    L402 => Error, "malformed parts file";
+    L403 => Error, "unknown part";
+    L404 => Error, "part of another kind";
+    L405 => Error, "part value not a scalar";
+    L406 => Error, "part used without a parts file";
+}

@@ -1,0 +1,106 @@
+use std::sync::Arc;
+
+/// A byte range in one source file.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Default)]
+pub struct Span {
+    pub start: usize,
+    pub end: usize,
+}
+
+impl Span {
+    pub fn new(start: usize, end: usize) -> Self {
+        Self { start, end }
+    }
+
+    pub fn len(&self) -> usize {
+        self.end.saturating_sub(self.start)
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The smallest span covering both.
+    pub fn to(self, other: Span) -> Span {
+        Span::new(self.start.min(other.start), self.end.max(other.end))
+    }
+
+    pub fn shifted(self, by: usize) -> Span {
+        Span::new(self.start + by, self.end + by)
+    }
+}
+
+impl From<Span> for miette::SourceSpan {
+    fn from(span: Span) -> Self {
+        (span.start, span.len()).into()
+    }
+}
+
+/// A file as read: the name shown to the user and its text. Shared, because
+/// every finding keeps the file it points into.
+#[derive(Debug, PartialEq, Eq)]
+pub struct SourceFile {
+    name: String,
+    text: String,
+    line_starts: Vec<usize>,
+}
+
+impl SourceFile {
+    pub fn new(name: impl Into<String>, text: impl Into<String>) -> Arc<Self> {
+        let text = text.into();
+        let line_starts = std::iter::once(0)
+            .chain(text.match_indices('\n').map(|(i, _)| i + 1))
+            .collect();
+        Arc::new(Self {
+            name: name.into(),
+            text,
+            line_starts,
+        })
+    }
+
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+
+    pub fn text(&self) -> &str {
+        &self.text
+    }
+
+    /// One-based line and column (in characters) of a byte offset.
+    pub fn line_column(&self, offset: usize) -> (usize, usize) {
+        let offset = offset.min(self.text.len());
+        let line = self.line_starts.partition_point(|&s| s <= offset) - 1;
+        let start = self.line_starts[line];
+        let column = self
+            .text
+            .get(start..offset)
+            .map(|s| s.chars().count())
+            .unwrap_or(offset - start);
+        (line + 1, column + 1)
+    }
+
+    pub fn slice(&self, span: Span) -> &str {
+        self.text.get(span.start..span.end).unwrap_or("")
+    }
+}
+
+impl miette::SourceCode for SourceFile {
+    fn read_span<'a>(
+        &'a self,
+        span: &miette::SourceSpan,
+        context_lines_before: usize,
+        context_lines_after: usize,
+    ) -> Result<Box<dyn miette::SpanContents<'a> + 'a>, miette::MietteError> {
+        let inner = self
+            .text
+            .read_span(span, context_lines_before, context_lines_after)?;
+        Ok(Box::new(miette::MietteSpanContents::new_named(
+            self.name.clone(),
+            inner.data(),
+            *inner.span(),
+            inner.line(),
+            inner.column(),
+            inner.line_count(),
+        )))
+    }
+}

@@ -1,0 +1,5 @@
+//! Output files: written whole or not at all.
+
+mod atomic;
+
+pub use atomic::{write_atomic, WriteError};

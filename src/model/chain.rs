@@ -1,0 +1,87 @@
+//! The resolved chain: settings checked, stages with SI parameters, and
+//! connections between typed ports.
+
+use std::sync::Arc;
+
+use super::ports::Port;
+use super::value::{ParamValue, ResolvedParam};
+use crate::diagnostics::{SourceFile, Span};
+use crate::syntax::ast::StageKind;
+use crate::units::Dim;
+
+#[derive(Clone, Debug)]
+pub struct Chain {
+    pub name: String,
+    pub name_span: Span,
+    pub label: Option<String>,
+    pub title: Option<String>,
+    pub file: Arc<SourceFile>,
+    pub measurand: Option<Measurand>,
+    /// Kelvin; a single ambient is `(t, t)`.
+    pub ambient: (f64, f64),
+    /// Kelvin: the datasheet conditions drifts are relative to.
+    pub reference: f64,
+    pub requirements: Vec<Requirement>,
+    pub alarms: Vec<Alarm>,
+    pub stages: Vec<Stage>,
+    pub connections: Vec<Connection>,
+}
+
+#[derive(Clone, Debug)]
+pub struct Measurand {
+    /// `temperature`, `force`, ...
+    pub quantity: String,
+    /// The unit as written in the range, for reports (`degC`).
+    pub unit: String,
+    pub dim: Dim,
+    /// SI (kelvin for temperatures).
+    pub low: f64,
+    pub high: f64,
+    pub span: Span,
+}
+
+#[derive(Clone, Debug)]
+pub struct Requirement {
+    /// `accuracy`, `resolution`, `response` or `rejection`.
+    pub kind: &'static str,
+    pub value: ParamValue,
+    /// `worst_case`, `gum` or `monte_carlo` for accuracy.
+    pub method: Option<String>,
+    pub span: Span,
+}
+
+#[derive(Clone, Debug)]
+pub struct Alarm {
+    /// `high` or `low`.
+    pub side: String,
+    /// SI (kelvin for temperatures).
+    pub at: f64,
+    pub span: Span,
+}
+
+#[derive(Clone, Debug)]
+pub struct Stage {
+    pub name: String,
+    pub name_span: Span,
+    pub kind: StageKind,
+    /// The model line's word (`rtd`, `divider`); None for kinds with one model.
+    pub model: Option<&'static str>,
+    pub params: Vec<ResolvedParam>,
+    pub span: Span,
+}
+
+impl Stage {
+    pub fn param(&self, name: &str) -> Option<&ParamValue> {
+        self.params.iter().find(|p| p.name == name).map(|p| &p.value)
+    }
+}
+
+/// An edge between two ports, stages by index into `Chain::stages`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Connection {
+    pub from: usize,
+    pub from_port: Port,
+    pub to: usize,
+    pub to_port: Port,
+    pub span: Span,
+}

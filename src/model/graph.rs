@@ -1,0 +1,369 @@
+//! Edges to typed connections, then the graph checks: unknown stages and
+//! ports, type mismatches, inputs driven twice or not at all, cycles,
+//! unused stages and the chain's single reading.
+
+use std::sync::Arc;
+
+use petgraph::algo::tarjan_scc;
+use petgraph::graph::DiGraph;
+
+use super::chain::{Connection, Stage};
+use super::ports::{self, InputSpec, Port, Signal};
+use super::suggest::did_you_mean;
+use super::value::ParamValue;
+use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
+use crate::syntax::ast::{EdgeDecl, Endpoint, StageKind};
+
+fn stage_inputs(stage: &Stage) -> Vec<InputSpec> {
+    ports::inputs(stage.kind, stage.model, &|name| stage.param(name).cloned())
+}
+
+fn has_output(_stage: &Stage) -> bool {
+    true
+}
+
+pub fn connect(file: &Arc<SourceFile>, stages: &[Stage], edges: &[EdgeDecl], findings: &mut Findings) -> Vec<Connection> {
+    let index = |name: &str| stages.iter().position(|s| s.name == name);
+    let mut connections = Vec::new();
+    for edge in edges {
+        for (i, pair) in edge.endpoints.windows(2).enumerate() {
+            let (a, b) = (&pair[0], &pair[1]);
+            let (Some(from), Some(to)) = (
+                lookup(file, stages, a, &index, findings, i == 0),
+                lookup(file, stages, b, &index, findings, true),
+            ) else {
+                continue;
+            };
+            // The first endpoint's port names an output; a middle endpoint's
+            // port names the input it is entered by, and it leaves by `out`.
+            let from_port = match (&a.port, i) {
+                (Some(p), 0) => Port::from_name(&p.name),
+                _ => Some(Port::Out),
+            };
+            let to_port = match &b.port {
+                Some(p) => Port::from_name(&p.name),
+                None => stage_inputs(&stages[to]).first().map(|s| s.port),
+            };
+            let Some(from_port) = from_port else { continue };
+            if from_port != Port::Out {
+                let span = a.port.as_ref().map(|p| p.span).unwrap_or(a.span);
+                findings.push(
+                    Finding::new(Code::M211, file, format!("`{}.{}` is an input, not an output", a.stage.name, from_port.name()))
+                        .label(span, "edges leave a stage by `out`")
+                        .help(format!("write `{} -> ...`, or reverse the edge", a.stage.name)),
+                );
+                continue;
+            }
+            let Some(to_port) = to_port else {
+                findings.push(
+                    Finding::new(Code::M204, file, format!("`{}` takes no input", stages[to].name))
+                        .label(b.span, format!("a {} has no input port", describe(&stages[to])))
+                        .help(format!("`{}` is a source; edges can only start from it", stages[to].name)),
+                );
+                continue;
+            };
+            if to_port == Port::Out {
+                let span = b.port.as_ref().map(|p| p.span).unwrap_or(b.span);
+                findings.push(
+                    Finding::new(Code::M211, file, format!("`{}.out` is an output, not an input", b.stage.name))
+                        .label(span, "edges enter a stage by an input")
+                        .help(format!("write `... -> {}` for its default input", b.stage.name)),
+                );
+                continue;
+            }
+            connections.push(Connection {
+                from,
+                from_port,
+                to,
+                to_port,
+                span: a.span.to(b.span),
+            });
+        }
+    }
+    check_ports(file, stages, &connections, findings);
+    connections
+}
+
+/// A stage by name, and its port by name if one is given.
+fn lookup(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    end: &Endpoint,
+    index: &dyn Fn(&str) -> Option<usize>,
+    findings: &mut Findings,
+    report: bool,
+) -> Option<usize> {
+    let Some(i) = index(&end.stage.name) else {
+        if report || true {
+            let near = did_you_mean(&end.stage.name, stages.iter().map(|s| s.name.as_str()));
+            findings.push(
+                Finding::new(Code::M202, file, format!("no stage is named `{}`", end.stage.name))
+                    .label(end.stage.span, "unknown stage")
+                    .help(match near {
+                        Some(n) => format!("did you mean `{n}`?"),
+                        None => format!(
+                            "stages of this chain: {}",
+                            stages.iter().map(|s| format!("`{}`", s.name)).collect::<Vec<_>>().join(", ")
+                        ),
+                    }),
+            );
+        }
+        return None;
+    };
+    if let Some(port) = &end.port {
+        let stage = &stages[i];
+        let mut names: Vec<&str> = stage_inputs(stage).iter().map(|s| s.port.name()).collect();
+        if has_output(stage) {
+            names.push("out");
+        }
+        if !names.contains(&port.name.as_str()) {
+            let near = did_you_mean(&port.name, names.iter().copied());
+            findings.push(
+                Finding::new(Code::M203, file, format!("`{}` has no port `{}`", stage.name, port.name))
+                    .label(port.span, "unknown port")
+                    .help(match near {
+                        Some(n) => format!("did you mean `{n}`? ports of `{}`: {}", stage.name, quote(&names)),
+                        None => format!("ports of `{}`: {}", stage.name, quote(&names)),
+                    }),
+            );
+            return None;
+        }
+    }
+    Some(i)
+}
+
+fn quote(names: &[&str]) -> String {
+    names.iter().map(|n| format!("`{n}`")).collect::<Vec<_>>().join(", ")
+}
+
+fn describe(stage: &Stage) -> String {
+    match stage.model {
+        Some(m) => format!("{} `{m}`", stage.kind.keyword()),
+        None => stage.kind.keyword().to_string(),
+    }
+}
+
+/// What each stage outputs, given its connections.
+pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signal> {
+    let static_out = |s: &Stage| ports::output(s.kind, s.model, false);
+    stages
+        .iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let driven = connections
+                .iter()
+                .any(|c| c.to == i && c.to_port == Port::In && static_out(&stages[c.from]) == Signal::CurrentExcitation);
+            ports::output(s.kind, s.model, driven)
+        })
+        .collect()
+}
+
+fn check_ports(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connection], findings: &mut Findings) {
+    let outputs = output_signals(stages, connections);
+    for c in connections {
+        let target = &stages[c.to];
+        let Some(spec) = stage_inputs(target).into_iter().find(|s| s.port == c.to_port) else {
+            continue;
+        };
+        let signal = outputs[c.from];
+        if !spec.accepts.contains(&signal) {
+            let source = &stages[c.from];
+            let expects = spec.accepts.iter().map(|s| s.noun()).collect::<Vec<_>>().join(" or ");
+            let help = match (signal, target.kind) {
+                (Signal::VoltageExcitation, StageKind::Sensor) => format!(
+                    "a voltage across a resistive sensor gives nothing to measure; wire `{}` and `{}` into a `bridge` (a `divider` for one element), or use a current excitation",
+                    source.name, target.name
+                ),
+                (Signal::Element, _) => format!(
+                    "`{}` is a bare element here; drive it with a current excitation or wire it into a bridge arm: `{} -> bridge_name.arm`",
+                    source.name, source.name
+                ),
+                _ => format!("`{}.{}` takes {expects}", target.name, spec.port.name()),
+            };
+            findings.push(
+                Finding::new(
+                    Code::M204,
+                    file,
+                    format!(
+                        "`{}` gives {} but `{}.{}` expects {expects}",
+                        source.name,
+                        signal.noun(),
+                        target.name,
+                        spec.port.name()
+                    ),
+                )
+                .label(c.span, format!("{} into {expects}", signal.noun()))
+                .label(source.name_span, format!("gives {}", signal.noun()))
+                .help(help),
+            );
+        }
+    }
+    for (i, stage) in stages.iter().enumerate() {
+        for spec in stage_inputs(stage) {
+            let into: Vec<&Connection> = connections.iter().filter(|c| c.to == i && c.to_port == spec.port).collect();
+            if spec.multi {
+                let wanted = ports::arm_count(stage.model);
+                if into.len() != wanted {
+                    let mut f = Finding::new(
+                        Code::M212,
+                        file,
+                        format!(
+                            "bridge `{}` has {} arm element{}; a {} bridge takes {wanted}",
+                            stage.name,
+                            into.len(),
+                            if into.len() == 1 { "" } else { "s" },
+                            stage.model.unwrap_or("")
+                        ),
+                    )
+                    .label(stage.name_span, format!("takes {wanted}"));
+                    for c in &into {
+                        f = f.label(c.span, "arm");
+                    }
+                    findings.push(f.help(format!("wire {wanted} sensor element(s) with `sensor_name -> {}.arm`", stage.name)));
+                }
+                continue;
+            }
+            if into.len() > 1 {
+                findings.push(
+                    Finding::new(Code::M205, file, format!("`{}.{}` is driven twice", stage.name, spec.port.name()))
+                        .label(into[1].span, "second edge")
+                        .label(into[0].span, "first edge")
+                        .help("an input takes one edge; remove one, or add a stage that combines them"),
+                );
+            }
+            if into.is_empty() && spec.required {
+                let candidates: Vec<&str> = stages
+                    .iter()
+                    .enumerate()
+                    .filter(|(j, _)| *j != i && spec.accepts.contains(&outputs[*j]))
+                    .map(|(_, s)| s.name.as_str())
+                    .collect();
+                let port = if Some(spec.port) == stage_inputs(stage).first().map(|s| s.port) {
+                    stage.name.clone()
+                } else {
+                    format!("{}.{}", stage.name, spec.port.name())
+                };
+                let help = match (candidates.as_slice(), spec.port) {
+                    (_, Port::Ref) => format!("wire a reference with `source -> {port}`, or give the converter `vref`"),
+                    ([one], _) => format!("connect it: `{one} -> {port}`"),
+                    _ => format!("connect {} to it: `source -> {port}`", spec.accepts.iter().map(|s| s.noun()).collect::<Vec<_>>().join(" or ")),
+                };
+                findings.push(
+                    Finding::new(Code::M206, file, format!("`{}.{}` is not connected", stage.name, spec.port.name()))
+                        .label(stage.name_span, format!("needs {}", spec.accepts[0].noun()))
+                        .help(help),
+                );
+            }
+        }
+    }
+    check_cycles(file, stages, connections, findings);
+    check_use(file, stages, connections, &outputs, findings);
+}
+
+fn check_cycles(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connection], findings: &mut Findings) {
+    let mut graph = DiGraph::<usize, usize>::new();
+    let nodes: Vec<_> = (0..stages.len()).map(|i| graph.add_node(i)).collect();
+    for (k, c) in connections.iter().enumerate() {
+        graph.add_edge(nodes[c.from], nodes[c.to], k);
+    }
+    for scc in tarjan_scc(&graph) {
+        let members: Vec<usize> = scc.iter().map(|n| graph[*n]).collect();
+        let looped = members.len() > 1 || connections.iter().any(|c| c.from == members[0] && c.to == members[0]);
+        if !looped {
+            continue;
+        }
+        let mut members = members;
+        members.sort_unstable();
+        let names = members.iter().map(|&m| format!("`{}`", stages[m].name)).collect::<Vec<_>>().join(" -> ");
+        let mut f = Finding::new(Code::M207, file, format!("the chain loops through {names}"));
+        for c in connections.iter().filter(|c| members.contains(&c.from) && members.contains(&c.to)) {
+            f = f.label(c.span, "part of the loop");
+        }
+        findings.push(f.help("a measurement chain runs one way, from sensor to reading; remove the edge that feeds back"));
+    }
+}
+
+fn check_use(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connection], outputs: &[Signal], findings: &mut Findings) {
+    let mut finals = Vec::new();
+    for (i, stage) in stages.iter().enumerate() {
+        let touched = connections.iter().any(|c| c.from == i || c.to == i) || is_cold_junction_of_any(stages, i);
+        if !touched {
+            findings.push(
+                Finding::new(Code::M208, file, format!("stage `{}` is not connected to anything", stage.name))
+                    .label(stage.name_span, "unused")
+                    .help(format!("connect it with an edge such as `{} -> ...`, or remove it", stage.name)),
+            );
+            continue;
+        }
+        let feeds = connections.iter().any(|c| c.from == i);
+        if stage.kind == StageKind::Convert {
+            if !feeds {
+                finals.push(i);
+            }
+        } else if !feeds && outputs[i] != Signal::Reading {
+            findings.push(
+                Finding::new(Code::M213, file, format!("the output of `{}` goes nowhere", stage.name))
+                    .label(stage.name_span, "output not used")
+                    .help(format!("connect it with `{} -> ...`, or remove the stage", stage.name)),
+            );
+        }
+    }
+    if stages.is_empty() {
+        return;
+    }
+    if finals.len() != 1 {
+        let chain_span = stages.first().map(|s| s.span).unwrap_or_default();
+        let mut f = Finding::new(
+            Code::M210,
+            file,
+            match finals.len() {
+                0 => "no `convert` stage ends the chain, so nothing becomes a reading".to_string(),
+                n => format!("{n} `convert` stages end the chain; it must end in one reading"),
+            },
+        );
+        if finals.is_empty() {
+            f = f.label(Span::new(chain_span.start, chain_span.start), "the chain's first stage").help(
+                "add `convert reading { method exact }` and an edge from the converter: `conv -> reading`",
+            );
+        } else {
+            for &i in &finals {
+                f = f.label(stages[i].name_span, "ends the chain");
+            }
+            f = f.help("put each reading in its own chain, or feed a cold-junction reading into the main conversion with `cj_reading -> reading.cj`");
+        }
+        findings.push(f);
+    }
+}
+
+/// Stages named by a thermocouple's `cold_junction` count as used.
+fn is_cold_junction_of_any(stages: &[Stage], i: usize) -> bool {
+    stages.iter().any(|s| matches!(s.param("cold_junction"), Some(ParamValue::StageRef { name, .. }) if *name == stages[i].name))
+}
+
+/// A thermocouple's `cold_junction <stage>` must name a sensor.
+pub fn check_references(file: &Arc<SourceFile>, stages: &[Stage], findings: &mut Findings) {
+    for stage in stages {
+        let Some(p) = stage.params.iter().find(|p| p.name == "cold_junction") else { continue };
+        let ParamValue::StageRef { name, span } = &p.value else { continue };
+        match stages.iter().find(|s| &s.name == name) {
+            None => {
+                let near = did_you_mean(name, stages.iter().map(|s| s.name.as_str()));
+                findings.push(
+                    Finding::new(Code::M202, &p.file, format!("no stage is named `{name}`"))
+                        .label(*span, "unknown stage")
+                        .help(match near {
+                            Some(n) => format!("did you mean `{n}`?"),
+                            None => "name the sensor that measures the cold junction, or give its error: `cold_junction ± 0.5 K`".to_string(),
+                        }),
+                );
+            }
+            Some(s) if s.kind != StageKind::Sensor => findings.push(
+                Finding::new(Code::M204, &p.file, format!("`{name}` is {}, not a sensor", describe(s)))
+                    .label(*span, "expected a sensor stage")
+                    .help("`cold_junction` names the sensor that measures the cold junction"),
+            ),
+            Some(_) => {}
+        }
+        let _ = file;
+    }
+}

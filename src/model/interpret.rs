@@ -1,0 +1,683 @@
+//! Checks a parameter line's values against its shape and converts them to
+//! SI: units and dimensions here, plausibility after.
+
+use std::sync::Arc;
+
+use super::schema::{Expect, Plausible, Shape};
+use super::suggest::did_you_mean;
+use super::value::{Drift, Measure, ParamValue, Tolerance};
+use crate::diagnostics::{Code, Finding, SourceFile, Span};
+use crate::syntax::ast::{QuantityLit, ToleranceForm, ToleranceLit, Value};
+use crate::units::{parse_unit, Dim, Unit, UnitError, UnitKind, ZERO_CELSIUS_K};
+
+/// What the values are checked against besides the schema.
+#[derive(Clone, Copy, Debug)]
+pub struct Context<'a> {
+    pub file: &'a Arc<SourceFile>,
+    /// The chain's measurand dimension, once known.
+    pub measurand: Option<Dim>,
+}
+
+type Checked<T> = Result<T, Box<Finding>>;
+
+/// Interprets the values of one parameter line.
+pub fn interpret(
+    spec_name: &str,
+    shape: Shape,
+    plausible: Plausible,
+    values: &[Value],
+    line: Span,
+    cx: &Context<'_>,
+) -> Checked<ParamValue> {
+    let mut r = Reader {
+        name: spec_name,
+        values,
+        at: 0,
+        line,
+        cx,
+    };
+    let value = r.shape(shape)?;
+    r.finish(shape)?;
+    check_plausible(spec_name, &value, plausible, line, cx)?;
+    Ok(value)
+}
+
+struct Reader<'a> {
+    name: &'a str,
+    values: &'a [Value],
+    at: usize,
+    line: Span,
+    cx: &'a Context<'a>,
+}
+
+impl Reader<'_> {
+    fn peek(&self) -> Option<&Value> {
+        self.values.get(self.at)
+    }
+
+    fn next(&mut self) -> Option<&Value> {
+        let v = self.values.get(self.at);
+        self.at += usize::from(v.is_some());
+        v
+    }
+
+    fn peek_word(&self, word: &str) -> bool {
+        matches!(self.peek(), Some(Value::Word(w)) if w.name == word)
+    }
+
+    fn finish(&self, shape: Shape) -> Checked<()> {
+        match self.peek() {
+            None => Ok(()),
+            Some(v) => Err(self.malformed(
+                v.span(),
+                format!("unexpected {} after the value of `{}`", v.describe(), self.name),
+                shape,
+            )),
+        }
+    }
+
+    fn malformed(&self, span: Span, message: String, shape: Shape) -> Box<Finding> {
+        Box::new(
+            Finding::new(Code::P306, self.cx.file, message)
+                .label(span, "not expected here")
+                .help(format!("write it as `{}`", usage(self.name, shape))),
+        )
+    }
+
+    fn missing(&self, what: &str, shape: Shape) -> Box<Finding> {
+        let end = self.values.last().map(|v| v.span().end).unwrap_or(self.line.end);
+        Box::new(
+            Finding::new(
+                Code::P306,
+                self.cx.file,
+                format!("`{}` needs {what}", self.name),
+            )
+            .label(Span::new(self.line.start, end), format!("{what} is missing"))
+            .help(format!("write it as `{}`", usage(self.name, shape))),
+        )
+    }
+
+    fn shape(&mut self, shape: Shape) -> Checked<ParamValue> {
+        match shape {
+            Shape::Flag => Ok(ParamValue::Flag),
+            Shape::Measure { expect, tol, drift } => {
+                Ok(ParamValue::Measure(self.measure(expect, tol, drift, shape)?.0))
+            }
+            Shape::Limit(expect) => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
+            Shape::Range(expect) => match self.next().cloned() {
+                Some(Value::Range(r)) => {
+                    let low = to_si(&r.low, expect, true, self.cx)?;
+                    let high = to_si(&r.high, expect, true, self.cx)?;
+                    if low.0 >= high.0 {
+                        return Err(Box::new(
+                            Finding::new(
+                                Code::P305,
+                                self.cx.file,
+                                format!("range of `{}` is empty or reversed", self.name),
+                            )
+                            .label(r.span, "the low end must be below the high end")
+                            .help("write the range as `low .. high`"),
+                        ));
+                    }
+                    Ok(ParamValue::Range {
+                        low: low.0,
+                        high: high.0,
+                    })
+                }
+                Some(v) => Err(self.malformed(
+                    v.span(),
+                    format!("`{}` expects a range, found {}", self.name, v.describe()),
+                    shape,
+                )),
+                None => Err(self.missing("a range", shape)),
+            },
+            Shape::Words(words) => Ok(ParamValue::Word(self.word(words, shape)?)),
+            Shape::ThermocoupleType => {
+                if !self.peek_word("type") {
+                    return Err(self.missing("a type letter after `type`", shape));
+                }
+                self.next();
+                Ok(ParamValue::Word(
+                    self.word(super::schema::THERMOCOUPLE_TYPES, shape)?,
+                ))
+            }
+            Shape::Count { min, max } => Ok(ParamValue::Count(self.count(min, max, shape)?)),
+            Shape::Numbers(n) => {
+                let mut numbers = Vec::with_capacity(n);
+                while let Some(Value::Quantity(q)) = self.peek().cloned() {
+                    if q.unit.is_some() {
+                        break;
+                    }
+                    self.next();
+                    numbers.push(q.number);
+                }
+                if numbers.len() != n {
+                    return Err(self.missing(&format!("exactly {n} plain numbers"), shape));
+                }
+                Ok(ParamValue::Numbers(numbers))
+            }
+            Shape::At { value, at } => {
+                let (value, value_dim) = self.measure(value, true, false, shape)?;
+                if !self.peek_word("at") {
+                    return Err(self.missing("`at` and the point it is stated at", shape));
+                }
+                self.next();
+                let point = self.quantity(at, true, shape)?;
+                Ok(ParamValue::At {
+                    value,
+                    value_dim,
+                    at: point,
+                })
+            }
+            Shape::Method => {
+                let method = self.word(&["exact", "linear", "table", "poly"], shape)?;
+                let points = match method.as_str() {
+                    "table" => Some(self.count(2, 4096, shape)?),
+                    "poly" => Some(self.count(1, 9, shape)?),
+                    _ => None,
+                };
+                Ok(ParamValue::Method { method, points })
+            }
+            Shape::Calibrate => {
+                let method = self.word(&["offset", "two_point"], shape)?;
+                let wanted = if method == "offset" { 1 } else { 2 };
+                if !self.peek_word("at") {
+                    return Err(self.missing("`at` and the calibration points", shape));
+                }
+                self.next();
+                let mut points = Vec::new();
+                loop {
+                    points.push(self.quantity(Expect::Measurand, true, shape)?);
+                    if matches!(self.peek(), Some(Value::Comma(_))) {
+                        self.next();
+                    } else {
+                        break;
+                    }
+                }
+                if points.len() != wanted {
+                    return Err(self.missing(
+                        &format!("{wanted} calibration point{}", if wanted == 1 { "" } else { "s" }),
+                        shape,
+                    ));
+                }
+                let uncertainty = match self.peek().cloned() {
+                    Some(Value::Tolerance(t)) => {
+                        self.next();
+                        Some(tolerance(&t, Expect::Measurand, None, self.cx)?)
+                    }
+                    _ => None,
+                };
+                Ok(ParamValue::Calibrate {
+                    method,
+                    points,
+                    uncertainty,
+                })
+            }
+            Shape::LimitOrStage(expect) => match self.peek().cloned() {
+                Some(Value::Word(w)) => {
+                    self.next();
+                    Ok(ParamValue::StageRef {
+                        name: w.name,
+                        span: w.span,
+                    })
+                }
+                _ => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
+            },
+        }
+    }
+
+    fn quantity(&mut self, expect: Expect, point: bool, shape: Shape) -> Checked<f64> {
+        match self.next().cloned() {
+            Some(Value::Quantity(q)) => Ok(to_si(&q, expect, point, self.cx)?.0),
+            Some(v) => Err(self.malformed(
+                v.span(),
+                format!("`{}` expects {}, found {}", self.name, noun(expect, self.cx), v.describe()),
+                shape,
+            )),
+            None => Err(self.missing(noun(expect, self.cx), shape)),
+        }
+    }
+
+    fn measure(
+        &mut self,
+        expect: Expect,
+        tol: bool,
+        drift: bool,
+        shape: Shape,
+    ) -> Checked<(Measure, Dim)> {
+        let (q, nominal, dim) = match self.next().cloned() {
+            Some(Value::Quantity(q)) => {
+                let (v, d) = to_si(&q, expect, is_point(expect), self.cx)?;
+                (q, v, d)
+            }
+            Some(v) => {
+                return Err(self.malformed(
+                    v.span(),
+                    format!("`{}` expects {}, found {}", self.name, noun(expect, self.cx), v.describe()),
+                    shape,
+                ))
+            }
+            None => return Err(self.missing(noun(expect, self.cx), shape)),
+        };
+        let mut m = Measure {
+            nominal,
+            tolerance: None,
+            max: false,
+            drift: None,
+            span: q.span,
+        };
+        if let Some(Value::Tolerance(t)) = self.peek().cloned() {
+            if !tol {
+                return Err(self.malformed(
+                    t.span,
+                    format!("`{}` takes no tolerance", self.name),
+                    shape,
+                ));
+            }
+            self.next();
+            m.tolerance = Some(tolerance(&t, expect, Some(dim), self.cx)?);
+            m.span = m.span.to(t.span);
+        }
+        if self.peek_word("max") {
+            let span = self.next().map(Value::span).unwrap_or_default();
+            m.max = true;
+            m.span = m.span.to(span);
+        }
+        if self.peek_word("drift") {
+            let word = self.next().map(Value::span).unwrap_or_default();
+            if !drift {
+                return Err(self.malformed(word, format!("`{}` takes no `drift`", self.name), shape));
+            }
+            let Some(Value::Quantity(d)) = self.next().cloned() else {
+                return Err(self.missing("a coefficient after `drift`, such as `drift 25 ppm/K`", shape));
+            };
+            let (per_kelvin, relative) = per_kelvin(&d, dim, self.cx)?;
+            m.drift = Some(Drift {
+                per_kelvin,
+                relative,
+                span: word.to(d.span),
+            });
+            m.span = m.span.to(d.span);
+        }
+        Ok((m, dim))
+    }
+
+    fn limit(&mut self, expect: Expect, shape: Shape) -> Checked<Tolerance> {
+        match self.next().cloned() {
+            Some(Value::Tolerance(t)) => tolerance(&t, expect, None, self.cx),
+            Some(Value::Quantity(q)) => {
+                let (v, relative) = match expect {
+                    Expect::PerKelvin(d) => per_kelvin(&q, d, self.cx)?,
+                    _ => (to_si(&q, expect, false, self.cx)?.0, false),
+                };
+                let mut span = q.span;
+                if self.peek_word("max") {
+                    span = span.to(self.next().map(Value::span).unwrap_or_default());
+                }
+                Ok(Tolerance {
+                    plus: v.abs(),
+                    minus: v.abs(),
+                    relative,
+                    normal: false,
+                    span,
+                })
+            }
+            Some(v) => Err(self.malformed(
+                v.span(),
+                format!("`{}` expects a limit such as `± x` or `x max`, found {}", self.name, v.describe()),
+                shape,
+            )),
+            None => Err(self.missing("a limit", shape)),
+        }
+    }
+
+    fn word(&mut self, words: &[&str], shape: Shape) -> Checked<String> {
+        match self.next().cloned() {
+            Some(Value::Word(w)) if words.contains(&w.name.as_str()) => Ok(w.name),
+            Some(v) => {
+                let text = match &v {
+                    Value::Word(w) => w.name.clone(),
+                    Value::Quantity(q) => self.cx.file.slice(q.span).to_string(),
+                    other => other.describe().to_string(),
+                };
+                let near = did_you_mean(&text, words.iter().copied());
+                let list = words.iter().map(|w| format!("`{w}`")).collect::<Vec<_>>().join(", ");
+                Err(Box::new(
+                    Finding::new(
+                        Code::P304,
+                        self.cx.file,
+                        format!("`{text}` is not a value of `{}`", self.name),
+                    )
+                    .label(v.span(), "not one of the allowed words")
+                    .help(match near {
+                        Some(n) => format!("did you mean `{n}`? `{}` takes one of {list}", self.name),
+                        None => format!("`{}` takes one of {list}", self.name),
+                    }),
+                ))
+            }
+            None => Err(self.missing("a word", shape)),
+        }
+    }
+
+    fn count(&mut self, min: u32, max: u32, shape: Shape) -> Checked<u32> {
+        match self.next().cloned() {
+            Some(Value::Quantity(q)) => {
+                let unit_ok = q.unit.as_ref().is_none_or(|u| matches!(u.text.as_str(), "bit" | "bits"));
+                let n = q.number;
+                if !unit_ok || n.fract() != 0.0 {
+                    return Err(self.malformed(
+                        q.span,
+                        format!("`{}` expects a whole number", self.name),
+                        shape,
+                    ));
+                }
+                if n < f64::from(min) || n > f64::from(max) {
+                    return Err(Box::new(
+                        Finding::new(
+                            Code::P305,
+                            self.cx.file,
+                            format!("`{}` of {} is outside {min} to {max}", self.name, q.number),
+                        )
+                        .label(q.span, format!("must be {min} to {max}"))
+                        .help(format!("`{}` takes a whole number from {min} to {max}", self.name)),
+                    ));
+                }
+                Ok(n as u32)
+            }
+            Some(v) => Err(self.malformed(
+                v.span(),
+                format!("`{}` expects a whole number, found {}", self.name, v.describe()),
+                shape,
+            )),
+            None => Err(self.missing("a whole number", shape)),
+        }
+    }
+}
+
+fn is_point(expect: Expect) -> bool {
+    matches!(expect, Expect::Temperature | Expect::Measurand)
+}
+
+/// The dimensions an expectation accepts.
+fn accepted(expect: Expect, cx: &Context<'_>) -> Vec<Dim> {
+    match expect {
+        Expect::Dim(d) => vec![d],
+        Expect::Temperature | Expect::TempDiff => vec![Dim::TEMPERATURE],
+        Expect::Ratio | Expect::Decibel => vec![Dim::NONE],
+        Expect::Measurand => cx.measurand.into_iter().collect(),
+        Expect::PerKelvin(d) => vec![d / Dim::TEMPERATURE, Dim::NONE / Dim::TEMPERATURE],
+        Expect::OneOf(ds) => ds.to_vec(),
+    }
+}
+
+fn noun(expect: Expect, cx: &Context<'_>) -> &'static str {
+    match expect {
+        Expect::Temperature => "a temperature",
+        Expect::TempDiff => "a temperature difference",
+        Expect::Ratio => "a plain number or a ratio",
+        Expect::Decibel => "a ratio in `dB`",
+        _ => accepted(expect, cx).first().map(|d| d.name().noun).unwrap_or("a quantity"),
+    }
+}
+
+fn example(expect: Expect, cx: &Context<'_>) -> String {
+    match expect {
+        Expect::Temperature => "25 degC".into(),
+        Expect::TempDiff => "0.5 K".into(),
+        Expect::Ratio => "4".into(),
+        Expect::Decibel => "100 dB".into(),
+        Expect::PerKelvin(d) => {
+            let n = (d / Dim::TEMPERATURE).name();
+            if n.example.is_empty() { "25 ppm/K".into() } else { n.example.into() }
+        }
+        _ => accepted(expect, cx)
+            .first()
+            .map(|d| d.name().example.to_string())
+            .unwrap_or_default(),
+    }
+}
+
+/// How a parameter is written, for help lines.
+pub fn usage_of(name: &str, shape: Shape) -> String {
+    usage(name, shape)
+}
+
+fn usage(name: &str, shape: Shape) -> String {
+    let cx_free = |e: Expect| match e {
+        Expect::Dim(d) => d.name().example.to_string(),
+        Expect::Temperature => "25 degC".into(),
+        Expect::TempDiff => "0.5 K".into(),
+        Expect::Ratio => "4".into(),
+        Expect::Decibel => "100 dB".into(),
+        Expect::Measurand => "<value in the measurand's unit>".into(),
+        Expect::PerKelvin(d) => {
+            let n = (d / Dim::TEMPERATURE).name();
+            if n.example.is_empty() { "25 ppm/K".into() } else { n.example.into() }
+        }
+        Expect::OneOf(ds) => ds[0].name().example.to_string(),
+    };
+    match shape {
+        Shape::Flag => name.to_string(),
+        Shape::Measure { expect, tol, drift } => format!(
+            "{name} {}{}{}",
+            cx_free(expect),
+            if tol { " ± 1 %" } else { "" },
+            if drift { " drift 25 ppm/K" } else { "" }
+        ),
+        Shape::Limit(e) => format!("{name} ± {}` or `{name} {} max", cx_free(e), cx_free(e)),
+        Shape::Range(e) => {
+            let ex = cx_free(e);
+            format!("{name} {ex} .. {ex}")
+        }
+        Shape::Words(ws) => format!("{name} {}", ws.join(" | ")),
+        Shape::Count { min, max } => format!("{name} <whole number {min} to {max}>"),
+        Shape::Numbers(n) => format!("{name} {}", vec!["<number>"; n].join(" ")),
+        Shape::At { value, at } => format!("{name} {} at {}", cx_free(value), cx_free(at)),
+        Shape::Method => format!("{name} exact | linear | table 16 | poly 3"),
+        Shape::Calibrate => format!("{name} offset at <point> ± <uncertainty>` or `{name} two_point at <point>, <point> ± <uncertainty>"),
+        Shape::LimitOrStage(e) => format!("{name} ± {}` or `{name} <stage name>", cx_free(e)),
+        Shape::ThermocoupleType => format!("{name} type K"),
+    }
+}
+
+/// Converts a written quantity to SI, checking its dimension. `point`
+/// says an absolute temperature is meant, so `degC` is offset.
+fn to_si(q: &QuantityLit, expect: Expect, point: bool, cx: &Context<'_>) -> Checked<(f64, Dim)> {
+    let dims = accepted(expect, cx);
+    let unit = match &q.unit {
+        None => Unit::ONE,
+        Some(u) => parse_unit(&u.text).map_err(|e| unit_error(e, u.span, cx))?,
+    };
+    if unit.kind == UnitKind::Decibel {
+        if expect == Expect::Decibel {
+            return Ok((10f64.powf(q.number / 20.0), Dim::NONE));
+        }
+        let span = q.unit.as_ref().map(|u| u.span).unwrap_or(q.span);
+        return Err(Box::new(
+            Finding::new(Code::U104, cx.file, "`dB` is not allowed here")
+                .label(span, "a logarithmic ratio")
+                .help(format!("this value expects {}, such as `{}`", noun(expect, cx), example(expect, cx))),
+        ));
+    }
+    if dims.is_empty() {
+        // The measurand is not known (already reported): accept as written.
+        return Ok((si_value(q.number, unit, point), unit.dim));
+    }
+    if !dims.contains(&unit.dim) {
+        let ex = example(expect, cx);
+        let number = cx.file.slice(q.number_span).to_string();
+        let suggestion = match ex.split_once(' ') {
+            Some((_, u)) if !number.is_empty() => format!("{number} {u}"),
+            _ => ex.clone(),
+        };
+        return Err(Box::new(match &q.unit {
+            None => Finding::new(
+                Code::U103,
+                cx.file,
+                format!("expected a unit after `{number}`, such as `{suggestion}`"),
+            )
+            .label(q.span, format!("{} needs a unit", noun(expect, cx)))
+            .help(format!("write the unit after the number: `{suggestion}`")),
+            Some(u) => {
+                let got = unit.dim.name();
+                let got = if got.example.is_empty() {
+                    format!("has dimension {}", unit.dim)
+                } else {
+                    format!("is {}", got.noun)
+                };
+                Finding::new(
+                    Code::U102,
+                    cx.file,
+                    format!("`{}` {got}, but {} is expected", u.text, noun(expect, cx)),
+                )
+                .label(u.span, format!("expected {}", noun(expect, cx)))
+                .help(format!("write {}, such as `{ex}`", noun(expect, cx)))
+            }
+        }));
+    }
+    Ok((si_value(q.number, unit, point), unit.dim))
+}
+
+fn si_value(number: f64, unit: Unit, point: bool) -> f64 {
+    match unit.kind {
+        UnitKind::Celsius if point => number + ZERO_CELSIUS_K,
+        _ => number * unit.scale,
+    }
+}
+
+fn unit_error(e: UnitError, span: Span, cx: &Context<'_>) -> Box<Finding> {
+    let f = match &e {
+        UnitError::Unknown { suggestion, .. } => Finding::new(Code::U101, cx.file, e.to_string())
+            .label(span, "not a unit the language knows")
+            .help(match suggestion {
+                Some(s) => format!("did you mean `{s}`? units are case-sensitive"),
+                None => "units are SI symbols with SI prefixes, such as `mV`, `kohm`, `ppm/K`, `nV/rtHz`".to_string(),
+            }),
+        _ => Finding::new(Code::U104, cx.file, e.to_string())
+            .label(span, "not allowed here")
+            .help("`dB` and `degC` stand alone; write coefficients per kelvin, such as `uV/K`"),
+    };
+    Box::new(f)
+}
+
+/// A per-kelvin coefficient of a quantity of dimension `of`: relative
+/// (`ppm/K`) or absolute (`uV/K` for a voltage).
+fn per_kelvin(q: &QuantityLit, of: Dim, cx: &Context<'_>) -> Checked<(f64, bool)> {
+    let (v, dim) = to_si(q, Expect::PerKelvin(of), false, cx)?;
+    Ok((v, dim == Dim::NONE / Dim::TEMPERATURE && of != Dim::NONE))
+}
+
+fn is_relative_unit(q: &QuantityLit) -> bool {
+    q.unit
+        .as_ref()
+        .is_some_and(|u| matches!(u.text.as_str(), "%" | "ppm" | "ppb"))
+}
+
+/// A tolerance of a value of dimension `nominal_dim` (None for a bare
+/// limit): relative with `%`/`ppm`, else absolute in the value's dimension.
+fn tolerance(
+    t: &ToleranceLit,
+    expect: Expect,
+    nominal_dim: Option<Dim>,
+    cx: &Context<'_>,
+) -> Checked<Tolerance> {
+    let half = |q: &QuantityLit| -> Checked<(f64, bool)> {
+        if is_relative_unit(q) && nominal_dim.is_some_and(|d| d != Dim::NONE) {
+            let (v, _) = to_si(q, Expect::Ratio, false, cx)?;
+            return Ok((v, true));
+        }
+        let e = match (expect, nominal_dim) {
+            (Expect::Temperature, _) => Expect::TempDiff,
+            (Expect::Measurand, _) if cx.measurand == Some(Dim::TEMPERATURE) => Expect::TempDiff,
+            (Expect::Measurand, _) if is_relative_unit(q) => Expect::Ratio,
+            (Expect::OneOf(_), Some(d)) => Expect::Dim(d),
+            (e, _) => e,
+        };
+        match e {
+            Expect::PerKelvin(d) => per_kelvin(q, d, cx),
+            Expect::Decibel => Ok((to_si(q, Expect::Ratio, false, cx)?.0, false)),
+            e => Ok((to_si(q, e, false, cx)?.0, false)),
+        }
+    };
+    let (plus, minus, relative) = match &t.form {
+        ToleranceForm::Symmetric(q) => {
+            let (v, rel) = half(q)?;
+            (v.abs(), v.abs(), rel)
+        }
+        ToleranceForm::Asymmetric { plus, minus } => {
+            // `+0.1 -0.2 %`: a unit written once applies to both limits.
+            let mut plus = plus.clone();
+            if plus.unit.is_none() {
+                plus.unit = minus.unit.clone();
+            }
+            let (p, rel_p) = half(&plus)?;
+            let (m, rel_m) = half(minus)?;
+            if rel_p != rel_m {
+                return Err(Box::new(
+                    Finding::new(Code::U102, cx.file, "one limit is relative and the other absolute")
+                        .label(t.span, "mixed limits")
+                        .help("write both limits in the same unit, such as `+0.1 % -0.2 %`"),
+                ));
+            }
+            (p.abs(), m.abs(), rel_p)
+        }
+    };
+    Ok(Tolerance {
+        plus,
+        minus,
+        relative,
+        normal: t.normal,
+        span: t.span,
+    })
+}
+
+fn check_plausible(
+    name: &str,
+    value: &ParamValue,
+    plausible: Plausible,
+    line: Span,
+    cx: &Context<'_>,
+) -> Checked<()> {
+    let fail = |span: Span, message: String, help: String| {
+        Err(Box::new(
+            Finding::new(Code::P305, cx.file, message)
+                .label(span, "implausible")
+                .help(help),
+        ))
+    };
+    let (nominal, tol, span) = match value {
+        ParamValue::Measure(m) => (m.nominal, m.tolerance.as_ref(), m.span),
+        ParamValue::At { value, .. } => (value.nominal, value.tolerance.as_ref(), value.span),
+        ParamValue::Limit(t) | ParamValue::Calibrate { uncertainty: Some(t), .. } => {
+            if t.relative && t.plus.max(t.minus) >= 1.0 {
+                return fail(t.span, format!("tolerance of `{name}` is 100 % or more"), "a relative tolerance must stay below 100 %".into());
+            }
+            return Ok(());
+        }
+        _ => return Ok(()),
+    };
+    let _ = line;
+    let bad = match plausible {
+        Plausible::Any => None,
+        Plausible::Positive if nominal <= 0.0 => Some("must be greater than zero"),
+        Plausible::NonNegative if nominal < 0.0 => Some("must not be negative"),
+        Plausible::NonZero if nominal == 0.0 => Some("must not be zero"),
+        _ => None,
+    };
+    if let Some(why) = bad {
+        return fail(span, format!("`{name}` {why}"), format!("give `{name}` a value that {}", why.replace("must", "is").replace("is not be", "is not")));
+    }
+    if let Some(t) = tol {
+        if t.relative && t.plus.max(t.minus) >= 1.0 {
+            return fail(t.span, format!("tolerance of `{name}` is 100 % or more"), "a relative tolerance must stay below 100 %; check the unit".into());
+        }
+        if plausible == Plausible::Positive && !t.relative && nominal - t.minus <= 0.0 {
+            return fail(
+                t.span,
+                format!("tolerance of `{name}` reaches zero or below"),
+                "the lower limit must stay above zero; check the tolerance's unit".into(),
+            );
+        }
+    }
+    Ok(())
+}

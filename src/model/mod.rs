@@ -1,0 +1,147 @@
+//! Name resolution and checking: settings, stages against the schema,
+//! parts libraries, and the graph of typed ports.
+
+mod chain;
+mod graph;
+mod interpret;
+pub mod parts;
+pub mod ports;
+pub mod schema;
+mod settings;
+mod stage;
+mod suggest;
+pub mod value;
+
+use std::path::Path;
+use std::sync::Arc;
+
+pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage};
+pub use graph::output_signals;
+pub use parts::PartsCache;
+pub use settings::DEFAULT_REFERENCE_K;
+pub use suggest::did_you_mean;
+
+use crate::diagnostics::{Code, Finding, Findings, SourceFile};
+use crate::syntax::Ast;
+
+/// Resolves every chain of a parsed file. `base` is the spec's folder,
+/// against which `use` paths resolve.
+pub fn resolve(file: &Arc<SourceFile>, ast: &Ast, base: &Path, parts: &mut PartsCache) -> (Vec<Chain>, Findings) {
+    let mut findings = Findings::new();
+    let mut library: Vec<parts::Part> = Vec::new();
+    for u in &ast.uses {
+        let path = base.join(&u.path.value);
+        let shown = shown_path(file.name(), &u.path.value);
+        let loaded = parts.load(&path, &shown);
+        if !loaded.reported.swap(true, std::sync::atomic::Ordering::Relaxed) {
+            for f in loaded.findings.iter() {
+                let mut f = f.clone();
+                if f.labels.is_empty() {
+                    // A file that could not be read has nothing to point at:
+                    // point at the `use` line instead.
+                    f = Finding { file: Arc::clone(file), ..f }.label(u.path.span, "used here");
+                }
+                findings.push(f);
+            }
+        }
+        library.extend(loaded.parts.iter().cloned());
+    }
+
+    let mut chains: Vec<Chain> = Vec::new();
+    for decl in &ast.chains {
+        if let Some(first) = chains.iter().find(|c| c.name == decl.name.name) {
+            findings.push(
+                Finding::new(Code::M209, file, format!("two chains are named `{}`", decl.name.name))
+                    .label(decl.name.span, "second chain")
+                    .label(first.name_span, "first chain")
+                    .help("give each chain of a file its own name"),
+            );
+        }
+        let settings = settings::resolve(file, decl, &mut findings);
+        let measurand = settings.measurand.as_ref().map(|m| m.dim);
+        let mut stages: Vec<Stage> = Vec::new();
+        for s in &decl.stages {
+            if let Some(first) = stages.iter().find(|x| x.name == s.name.name) {
+                findings.push(
+                    Finding::new(Code::M201, file, format!("two stages are named `{}`", s.name.name))
+                        .label(s.name.span, "second stage")
+                        .label(first.name_span, "first stage")
+                        .help("stage names are unique within a chain; rename one"),
+                );
+                continue;
+            }
+            let part = s.part.as_ref().and_then(|p| {
+                let found = library.iter().find(|l| l.name == p.name);
+                if found.is_none() {
+                    findings.push(unknown_part(file, ast, &library, p));
+                } else if let Some(part) = found.filter(|l| l.kind != s.kind) {
+                    findings.push(
+                        Finding::new(
+                            Code::L404,
+                            file,
+                            format!("part `{}` is {} {}, not {} {}", p.name, article(part.kind.keyword()), part.kind.keyword(), article(s.kind.keyword()), s.kind.keyword()),
+                        )
+                        .label(p.span, format!("a {} part", part.kind.keyword()))
+                        .label(s.kind_span, format!("a {} stage", s.kind.keyword()))
+                        .help(format!("use a {} part here, or change the part's `kind`", s.kind.keyword())),
+                    );
+                    return None;
+                }
+                found
+            });
+            stages.push(stage::resolve(file, s, part, measurand, &mut findings));
+        }
+        graph::check_references(file, &stages, &mut findings);
+        let connections = graph::connect(file, &stages, &decl.edges, &mut findings);
+        let reference = settings.reference.unwrap_or(DEFAULT_REFERENCE_K);
+        chains.push(Chain {
+            name: decl.name.name.clone(),
+            name_span: decl.name.span,
+            label: decl.label.as_ref().map(|l| l.value.clone()),
+            title: settings.title,
+            file: Arc::clone(file),
+            measurand: settings.measurand,
+            ambient: settings.ambient.unwrap_or((reference, reference)),
+            reference,
+            requirements: settings.requirements,
+            alarms: settings.alarms,
+            stages,
+            connections,
+        });
+    }
+    (chains, findings)
+}
+
+fn article(word: &str) -> &'static str {
+    if word.starts_with(['a', 'e', 'i', 'o', 'u']) {
+        "an"
+    } else {
+        "a"
+    }
+}
+
+fn unknown_part(file: &Arc<SourceFile>, ast: &Ast, library: &[parts::Part], p: &crate::syntax::ast::Ident) -> Finding {
+    if ast.uses.is_empty() {
+        return Finding::new(Code::L406, file, format!("part `{}` is used but no parts file is loaded", p.name))
+            .label(p.span, "from which library?")
+            .help("add `use \"parts.yaml\"` at the top of the file");
+    }
+    let near = did_you_mean(&p.name, library.iter().map(|l| l.name.as_str()));
+    Finding::new(Code::L403, file, format!("no part is named `{}`", p.name))
+        .label(p.span, "unknown part")
+        .help(match near {
+            Some(n) => format!("did you mean `{n}`?"),
+            None => format!(
+                "the loaded parts are {}",
+                library.iter().map(|l| format!("`{}`", l.name)).collect::<Vec<_>>().join(", ")
+            ),
+        })
+}
+
+/// A parts file's name as shown in findings: beside the spec's own name.
+fn shown_path(spec: &str, used: &str) -> String {
+    match Path::new(spec).parent() {
+        Some(dir) if !dir.as_os_str().is_empty() => dir.join(used).to_string_lossy().into_owned(),
+        _ => used.to_string(),
+    }
+}

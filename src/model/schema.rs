@@ -1,0 +1,437 @@
+//! What each stage kind accepts: its models, their parameters, the shape
+//! and dimension of each value, what is required and what is plausible.
+//! Adding a parameter is one line here (and its use in `physics`).
+
+use crate::syntax::ast::StageKind;
+use crate::units::Dim;
+
+/// What a number must be.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Expect {
+    Dim(Dim),
+    /// An absolute temperature (`25 degC`, `298.15 K`).
+    Temperature,
+    /// A temperature difference (`0.5 K`, `± 0.5 degC`).
+    TempDiff,
+    /// A plain number, `%` or `ppm`.
+    Ratio,
+    /// `dB` (amplitude) or a plain ratio.
+    Decibel,
+    /// In the chain's measurand unit (`500 N`).
+    Measurand,
+    /// A quantity per kelvin: relative (`ppm/K`) or of the given dimension.
+    PerKelvin(Dim),
+    /// Any of these dimensions (noise as rms or as a density).
+    OneOf(&'static [Dim]),
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Shape {
+    /// `nominal [± tol] [normal] [max] [drift d]`; `tol`/`drift` say
+    /// whether a tolerance and a `drift` clause are accepted.
+    Measure { expect: Expect, tol: bool, drift: bool },
+    /// A bound with nominal zero: `± x`, `x max` or `x`.
+    Limit(Expect),
+    Range(Expect),
+    /// One word of the list.
+    Words(&'static [&'static str]),
+    /// An integer in `min..=max`.
+    Count { min: u32, max: u32 },
+    /// Exactly `n` plain numbers.
+    Numbers(usize),
+    /// `value at point`.
+    At { value: Expect, at: Expect },
+    /// `exact | linear | table n | poly n`
+    Method,
+    /// `offset at T ± u` or `two_point at T1, T2 ± u`
+    Calibrate,
+    /// `± x K` or the name of another stage.
+    LimitOrStage(Expect),
+    /// `type K`
+    ThermocoupleType,
+    /// A model line with no values.
+    Flag,
+}
+
+/// The smallest and largest plausible value (SI), checked after units.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Plausible {
+    Any,
+    Positive,
+    NonNegative,
+    NonZero,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ParamSpec {
+    pub name: &'static str,
+    pub shape: Shape,
+    pub required: bool,
+    pub plausible: Plausible,
+}
+
+/// One model of a stage kind: the word of its model line (None for kinds
+/// without one) and the parameters it takes besides the model line.
+#[derive(Debug)]
+pub struct ModelSpec {
+    pub kind: StageKind,
+    pub model: Option<&'static str>,
+    /// The model line itself (`rtd pt1000`, `current 250 uA ± 0.5 %`).
+    pub model_shape: Shape,
+    pub params: &'static [ParamSpec],
+    /// Pairs that cannot both be given.
+    pub exclusive: &'static [(&'static str, &'static str)],
+    /// Groups of which at least one must be given.
+    pub one_of: &'static [&'static [&'static str]],
+}
+
+const fn p(name: &'static str, shape: Shape) -> ParamSpec {
+    ParamSpec {
+        name,
+        shape,
+        required: false,
+        plausible: Plausible::Any,
+    }
+}
+
+impl ParamSpec {
+    const fn required(mut self) -> Self {
+        self.required = true;
+        self
+    }
+    const fn positive(mut self) -> Self {
+        self.plausible = Plausible::Positive;
+        self
+    }
+    const fn non_negative(mut self) -> Self {
+        self.plausible = Plausible::NonNegative;
+        self
+    }
+    const fn non_zero(mut self) -> Self {
+        self.plausible = Plausible::NonZero;
+        self
+    }
+}
+
+const fn measure(expect: Expect) -> Shape {
+    Shape::Measure {
+        expect,
+        tol: true,
+        drift: true,
+    }
+}
+
+const fn plain(expect: Expect) -> Shape {
+    Shape::Measure {
+        expect,
+        tol: false,
+        drift: false,
+    }
+}
+
+const fn toleranced(expect: Expect) -> Shape {
+    Shape::Measure {
+        expect,
+        tol: true,
+        drift: false,
+    }
+}
+
+const VOLT: Expect = Expect::Dim(Dim::VOLTAGE);
+const AMP: Expect = Expect::Dim(Dim::CURRENT);
+const OHM: Expect = Expect::Dim(Dim::RESISTANCE);
+const SECOND: Expect = Expect::Dim(Dim::TIME);
+const HERTZ: Expect = Expect::Dim(Dim::FREQUENCY);
+const FARAD: Expect = Expect::Dim(Dim::CAPACITANCE);
+
+
+const VOLTAGE_NOISE: Expect = Expect::OneOf(&[Dim::VOLTAGE, Dim::VOLTAGE_DENSITY]);
+const CURRENT_NOISE: Expect = Expect::OneOf(&[Dim::CURRENT, Dim::CURRENT_DENSITY]);
+
+const TIME_CONSTANT: ParamSpec = p("time_constant", plain(SECOND)).non_negative();
+const DISSIPATION: ParamSpec = p("dissipation", toleranced(Expect::Dim(Dim::DISSIPATION))).positive();
+const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
+
+pub const RTD_CURVES: &[&str] = &[
+    "pt100", "pt500", "pt1000", "ni100", "ni120", "ni1000", "cu10", "cu100", "custom",
+];
+pub const THERMOCOUPLE_TYPES: &[&str] = &["B", "E", "J", "K", "N", "R", "S", "T"];
+
+static MODELS: &[ModelSpec] = &[
+    ModelSpec {
+        kind: StageKind::Excitation,
+        model: Some("current"),
+        model_shape: measure(AMP),
+        params: &[
+            p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
+            p("noise", Shape::Limit(CURRENT_NOISE)),
+            p("compliance", plain(VOLT)).positive(),
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Excitation,
+        model: Some("voltage"),
+        model_shape: measure(VOLT),
+        params: &[
+            p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
+            p("noise", Shape::Limit(VOLTAGE_NOISE)),
+            p("limit", plain(AMP)).positive(),
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("rtd"),
+        model_shape: Shape::Words(RTD_CURVES),
+        params: &[
+            p("r0", toleranced(OHM)).positive(),
+            p("coefficients", Shape::Numbers(3)),
+            p("class", Shape::Words(&["AA", "A", "B", "C"])),
+            p("tolerance", Shape::Limit(Expect::TempDiff)),
+            p("wires", Shape::Count { min: 2, max: 4 }),
+            LEAD,
+            DISSIPATION,
+            TIME_CONSTANT,
+            p("max_current", plain(AMP)).positive(),
+        ],
+        exclusive: &[("class", "tolerance")],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("thermocouple"),
+        model_shape: Shape::ThermocoupleType,
+        params: &[
+            p("class", Shape::Count { min: 1, max: 3 }),
+            p("tolerance", Shape::Limit(Expect::TempDiff)),
+            p("cold_junction", Shape::LimitOrStage(Expect::TempDiff)),
+            LEAD,
+            TIME_CONSTANT,
+        ],
+        exclusive: &[("class", "tolerance")],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("thermistor"),
+        model_shape: Shape::Flag,
+        params: &[
+            p("r25", toleranced(OHM)).required().positive(),
+            p("beta", toleranced(Expect::TempDiff)).positive(),
+            p("steinhart", Shape::Numbers(3)),
+            DISSIPATION,
+            p("range", Shape::Range(Expect::Temperature)),
+            TIME_CONSTANT,
+            p("max_current", plain(AMP)).positive(),
+        ],
+        exclusive: &[("beta", "steinhart")],
+        one_of: &[&["beta", "steinhart"]],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("ic_voltage"),
+        model_shape: Shape::Flag,
+        params: &[
+            p("slope", toleranced(Expect::PerKelvin(Dim::VOLTAGE))).required().non_zero(),
+            p("output", Shape::At { value: VOLT, at: Expect::Temperature }).required(),
+            p("accuracy", Shape::Limit(Expect::TempDiff)),
+            p("noise", Shape::Limit(VOLTAGE_NOISE)),
+            p("output_resistance", plain(OHM)).non_negative(),
+            p("supply", Shape::Range(VOLT)),
+            TIME_CONSTANT,
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("ic_current"),
+        model_shape: Shape::Flag,
+        params: &[
+            p("slope", toleranced(Expect::PerKelvin(Dim::CURRENT))).required().positive(),
+            p("accuracy", Shape::Limit(Expect::TempDiff)),
+            p("supply", Shape::Range(VOLT)),
+            TIME_CONSTANT,
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("strain_gauge"),
+        model_shape: Shape::Flag,
+        params: &[
+            p("r", measure(OHM)).required().positive(),
+            p("gauge_factor", toleranced(Expect::Ratio)).required().positive(),
+            TIME_CONSTANT,
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("transducer"),
+        model_shape: Shape::Flag,
+        params: &[
+            p(
+                "sensitivity",
+                Shape::At {
+                    value: Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE]),
+                    at: Expect::Measurand,
+                },
+            )
+            .required(),
+            p("zero", Shape::Limit(Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE]))),
+            p("nonlinearity", Shape::Limit(Expect::Ratio)),
+            p("hysteresis", Shape::Limit(Expect::Ratio)),
+            p("zero_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
+            p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
+            p("r", toleranced(OHM)).positive(),
+            TIME_CONSTANT,
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Sensor,
+        model: Some("resistor"),
+        model_shape: measure(OHM),
+        params: &[],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Bridge,
+        model: Some("divider"),
+        model_shape: Shape::Flag,
+        params: &[
+            p("r", measure(OHM)).required().positive(),
+            p("sensor", Shape::Words(&["low", "high"])),
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Bridge,
+        model: Some("quarter"),
+        model_shape: Shape::Flag,
+        params: &[p("r", measure(OHM)).required().positive()],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Bridge,
+        model: Some("half"),
+        model_shape: Shape::Flag,
+        params: &[p("r", measure(OHM)).required().positive()],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Bridge,
+        model: Some("full"),
+        model_shape: Shape::Flag,
+        params: &[],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Amplifier,
+        model: None,
+        model_shape: Shape::Flag,
+        params: &[
+            p("gain", toleranced(Expect::Ratio)).required().positive(),
+            p("offset", Shape::Limit(VOLT)),
+            p("offset_drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
+            p("gain_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
+            p("noise", plain(Expect::Dim(Dim::VOLTAGE_DENSITY))).non_negative(),
+            p("noise_corner", plain(HERTZ)).non_negative(),
+            p("current_noise", plain(Expect::Dim(Dim::CURRENT_DENSITY))).non_negative(),
+            p("bias", Shape::Limit(AMP)),
+            p("cmrr", plain(Expect::Decibel)).positive(),
+            p("input", Shape::Range(VOLT)),
+            p("output", Shape::Range(VOLT)),
+            p("bandwidth", plain(HERTZ)).positive(),
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Filter,
+        model: Some("lowpass"),
+        model_shape: Shape::Words(&["rc", "butterworth", "bessel"]),
+        params: &[
+            p("order", Shape::Count { min: 1, max: 8 }),
+            p("cutoff", toleranced(HERTZ)).positive(),
+            p("r", toleranced(OHM)).positive(),
+            p("c", toleranced(FARAD)).positive(),
+        ],
+        exclusive: &[("cutoff", "r"), ("cutoff", "c")],
+        one_of: &[&["cutoff", "r"]],
+    },
+    ModelSpec {
+        kind: StageKind::Adc,
+        model: None,
+        model_shape: Shape::Flag,
+        params: &[
+            p("bits", Shape::Count { min: 1, max: 32 }).required(),
+            p("input", Shape::Words(&["single", "differential"])),
+            p("polarity", Shape::Words(&["unipolar", "bipolar"])),
+            p("vref", measure(VOLT)).positive(),
+            p("pga", toleranced(Expect::Ratio)).positive(),
+            p("offset", Shape::Limit(VOLT)),
+            p("gain_error", Shape::Limit(Expect::Ratio)),
+            p("inl", Shape::Limit(Expect::Ratio)),
+            p("noise", plain(VOLT)).non_negative(),
+            p("rate", plain(HERTZ)).positive(),
+            p("notch", plain(HERTZ)).positive(),
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+    ModelSpec {
+        kind: StageKind::Convert,
+        model: None,
+        model_shape: Shape::Flag,
+        params: &[
+            p("method", Shape::Method),
+            p("average", Shape::Count { min: 1, max: 1_000_000 }),
+            p("calibrate", Shape::Calibrate),
+        ],
+        exclusive: &[],
+        one_of: &[],
+    },
+];
+
+/// The models of a kind.
+pub fn models(kind: StageKind) -> impl Iterator<Item = &'static ModelSpec> {
+    MODELS.iter().filter(move |m| m.kind == kind)
+}
+
+/// The model without a model line, for kinds that have one model only.
+pub fn implicit_model(kind: StageKind) -> Option<&'static ModelSpec> {
+    models(kind).find(|m| m.model.is_none())
+}
+
+pub fn model(kind: StageKind, word: &str) -> Option<&'static ModelSpec> {
+    models(kind).find(|m| m.model == Some(word))
+}
+
+impl ModelSpec {
+    pub fn param(&self, name: &str) -> Option<&'static ParamSpec> {
+        self.params.iter().find(|p| p.name == name)
+    }
+
+    /// Every name a parameter line may start with in this model.
+    pub fn names(&self) -> impl Iterator<Item = &'static str> + '_ {
+        self.model.into_iter().chain(self.params.iter().map(|p| p.name))
+    }
+}
+
+/// Every parameter name of every model, for the language reference test.
+pub fn all_names() -> impl Iterator<Item = &'static str> {
+    MODELS.iter().flat_map(|m| m.names())
+}

@@ -1,0 +1,272 @@
+//! Chain-level settings: title, measurand, ambient, reference,
+//! requirements and alarms.
+
+use std::sync::Arc;
+
+use super::chain::{Alarm, Measurand, Requirement};
+use super::interpret::{interpret, Context};
+use super::schema::{Expect, Plausible, Shape};
+use super::suggest::did_you_mean;
+use super::value::ParamValue;
+use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
+use crate::syntax::ast::{ChainDecl, Setting, SettingKind, Value};
+use crate::units::{parse_unit, Dim, ZERO_CELSIUS_K};
+
+/// Measurand quantities and their dimension (None: taken from the unit).
+const QUANTITIES: &[(&str, Option<Dim>)] = &[
+    ("temperature", Some(Dim::TEMPERATURE)),
+    ("force", Some(Dim::FORCE)),
+    ("mass", Some(Dim::MASS)),
+    ("pressure", Some(Dim::PRESSURE)),
+    ("strain", Some(Dim::NONE)),
+    ("quantity", None),
+];
+
+const REQUIREMENTS: &[&str] = &["accuracy", "resolution", "response", "rejection"];
+const ACCURACY_METHODS: &[&str] = &["worst_case", "gum", "monte_carlo"];
+pub const DEFAULT_REFERENCE_K: f64 = 25.0 + ZERO_CELSIUS_K;
+
+#[derive(Debug, Default)]
+pub struct Settings {
+    pub title: Option<String>,
+    pub measurand: Option<Measurand>,
+    pub ambient: Option<(f64, f64)>,
+    pub reference: Option<f64>,
+    pub requirements: Vec<Requirement>,
+    pub alarms: Vec<Alarm>,
+}
+
+pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Findings) -> Settings {
+    let mut out = Settings::default();
+    let mut seen: Vec<(SettingKind, Option<&'static str>, Span)> = Vec::new();
+    // The measurand first: other settings are in its unit.
+    let mut ordered: Vec<&Setting> = chain.settings.iter().collect();
+    ordered.sort_by_key(|s| s.kind != SettingKind::Measurand);
+    for setting in ordered {
+        let sub = match setting.kind {
+            SettingKind::Require => first_word(&setting.values).and_then(|w| REQUIREMENTS.iter().copied().find(|r| *r == w)),
+            _ => None,
+        };
+        let repeatable = setting.kind == SettingKind::Alarm || (setting.kind == SettingKind::Require && sub.is_none());
+        if !repeatable {
+            if let Some((_, _, first)) = seen.iter().find(|(k, s, _)| *k == setting.kind && *s == sub) {
+                let what = match sub {
+                    Some(s) => format!("require {s}"),
+                    None => setting.kind.keyword().to_string(),
+                };
+                findings.push(
+                    Finding::new(Code::P312, file, format!("`{what}` is given twice"))
+                        .label(setting.span, "given again here")
+                        .label(*first, "first given here")
+                        .help("keep one line; a spec states each fact once"),
+                );
+                continue;
+            }
+            seen.push((setting.kind, sub, setting.span));
+        }
+        let measurand_dim = out.measurand.as_ref().map(|m| m.dim);
+        let cx = Context {
+            file,
+            measurand: measurand_dim,
+        };
+        let result = match setting.kind {
+            SettingKind::Title => match setting.values.as_slice() {
+                [Value::Text(t)] => {
+                    out.title = Some(t.value.clone());
+                    Ok(())
+                }
+                _ => Err(malformed(file, setting, "a string, such as `title \"Cold store return air\"`")),
+            },
+            SettingKind::Measurand => measurand(file, setting).map(|m| out.measurand = Some(m)),
+            SettingKind::Ambient => {
+                let shape = match setting.values.first() {
+                    Some(Value::Range(_)) => Shape::Range(Expect::Temperature),
+                    _ => Shape::Measure { expect: Expect::Temperature, tol: false, drift: false },
+                };
+                interpret("ambient", shape, Plausible::Positive, &setting.values, setting.span, &cx).map(|v| {
+                    out.ambient = Some(match v {
+                        ParamValue::Range { low, high } => (low, high),
+                        ParamValue::Measure(m) => (m.nominal, m.nominal),
+                        _ => unreachable!("ambient shapes give a range or a measure"),
+                    })
+                })
+            }
+            SettingKind::Reference => interpret(
+                "reference",
+                Shape::Measure { expect: Expect::Temperature, tol: false, drift: false },
+                Plausible::Positive,
+                &setting.values,
+                setting.span,
+                &cx,
+            )
+            .map(|v| {
+                if let ParamValue::Measure(m) = v {
+                    out.reference = Some(m.nominal);
+                }
+            }),
+            SettingKind::Require => requirement(setting, &cx).map(|r| out.requirements.push(r)),
+            SettingKind::Alarm => alarm(setting, &cx).map(|a| out.alarms.push(a)),
+        };
+        if let Err(f) = result {
+            findings.push(*f);
+        }
+    }
+    let written = chain.settings.iter().any(|s| s.kind == SettingKind::Measurand);
+    if out.measurand.is_none() && !written && !chain.stages.is_empty() {
+        findings.push(
+            Finding::new(Code::P311, file, format!("chain `{}` has no `measurand`", chain.name.name))
+                .label(chain.name.span, "what does this chain measure?")
+                .help("add a line such as `measurand temperature -30 degC .. 15 degC`"),
+        );
+    }
+    out
+}
+
+fn first_word(values: &[Value]) -> Option<&str> {
+    match values.first() {
+        Some(Value::Word(w)) => Some(w.name.as_str()),
+        _ => None,
+    }
+}
+
+fn malformed(file: &Arc<SourceFile>, setting: &Setting, expected: &str) -> Box<Finding> {
+    Box::new(
+        Finding::new(Code::P306, file, format!("`{}` expects {expected}", setting.kind.keyword()))
+            .label(setting.span, "malformed")
+            .help(format!("write it as {expected}")),
+    )
+}
+
+fn measurand(file: &Arc<SourceFile>, setting: &Setting) -> Result<Measurand, Box<Finding>> {
+    let example = "`measurand temperature -30 degC .. 15 degC`";
+    let (word, range) = match setting.values.as_slice() {
+        [Value::Word(w), Value::Range(r)] => (w, r),
+        _ => return Err(malformed(file, setting, &format!("a quantity and a range, such as {example}"))),
+    };
+    let Some(&(_, dim)) = QUANTITIES.iter().find(|(q, _)| *q == word.name) else {
+        let near = did_you_mean(&word.name, QUANTITIES.iter().map(|(q, _)| *q));
+        let list = QUANTITIES.iter().map(|(q, _)| format!("`{q}`")).collect::<Vec<_>>().join(", ");
+        return Err(Box::new(
+            Finding::new(Code::P309, file, format!("`{}` is not a measurand quantity", word.name))
+                .label(word.span, "unknown quantity")
+                .help(match near {
+                    Some(n) => format!("did you mean `{n}`? quantities: {list}"),
+                    None => format!("quantities: {list}"),
+                }),
+        ));
+    };
+    let unit_text = range
+        .high
+        .unit
+        .as_ref()
+        .or(range.low.unit.as_ref())
+        .map(|u| u.text.clone())
+        .unwrap_or_default();
+    let dim = match dim {
+        Some(d) => d,
+        None => parse_unit(&unit_text).map(|u| u.dim).unwrap_or(Dim::NONE),
+    };
+    let cx = Context { file, measurand: Some(dim) };
+    let value = interpret(
+        "measurand",
+        Shape::Range(Expect::Measurand),
+        Plausible::Any,
+        &setting.values[1..],
+        setting.span,
+        &cx,
+    )?;
+    let ParamValue::Range { low, high } = value else {
+        unreachable!("a range shape gives a range")
+    };
+    Ok(Measurand {
+        quantity: word.name.clone(),
+        unit: unit_text,
+        dim,
+        low,
+        high,
+        span: setting.span,
+    })
+}
+
+fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<Finding>> {
+    let file = cx.file;
+    let Some(Value::Word(kind)) = setting.values.first() else {
+        return Err(malformed(file, setting, "a requirement, such as `require accuracy ± 0.3 K`"));
+    };
+    let Some(&name) = REQUIREMENTS.iter().find(|r| **r == kind.name) else {
+        let near = did_you_mean(&kind.name, REQUIREMENTS.iter().copied());
+        return Err(Box::new(
+            Finding::new(Code::P310, file, format!("`{}` is not a requirement", kind.name))
+                .label(kind.span, "unknown requirement")
+                .help(match near {
+                    Some(n) => format!("did you mean `{n}`? requirements: `accuracy`, `resolution`, `response`, `rejection`"),
+                    None => "requirements: `accuracy`, `resolution`, `response`, `rejection`".to_string(),
+                }),
+        ));
+    };
+    let mut values = &setting.values[1..];
+    let mut method = None;
+    if name == "accuracy" {
+        if let Some(Value::Word(w)) = values.last() {
+            if !ACCURACY_METHODS.contains(&w.name.as_str()) {
+                let near = did_you_mean(&w.name, ACCURACY_METHODS.iter().copied());
+                return Err(Box::new(
+                    Finding::new(Code::P304, file, format!("`{}` is not an accuracy method", w.name))
+                        .label(w.span, "unknown method")
+                        .help(match near {
+                            Some(n) => format!("did you mean `{n}`? methods: `worst_case`, `gum` (default), `monte_carlo`"),
+                            None => "methods: `worst_case`, `gum` (default), `monte_carlo`".to_string(),
+                        }),
+                ));
+            }
+            method = Some(w.name.clone());
+            values = &values[..values.len() - 1];
+        }
+    }
+    let shape = match name {
+        "accuracy" | "resolution" => Shape::Limit(Expect::Measurand),
+        "response" => Shape::Measure { expect: Expect::Dim(Dim::TIME), tol: false, drift: false },
+        _ => Shape::At { value: Expect::Decibel, at: Expect::Dim(Dim::FREQUENCY) },
+    };
+    let value = interpret(&format!("require {name}"), shape, Plausible::Positive, values, setting.span, cx)?;
+    Ok(Requirement {
+        kind: name,
+        value,
+        method,
+        span: setting.span,
+    })
+}
+
+fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {
+    let file = cx.file;
+    let Some(Value::Word(side)) = setting.values.first() else {
+        return Err(malformed(file, setting, "a side and a limit, such as `alarm high 8 degC`"));
+    };
+    if side.name != "high" && side.name != "low" {
+        let near = did_you_mean(&side.name, ["high", "low"].into_iter());
+        return Err(Box::new(
+            Finding::new(Code::P310, file, format!("`{}` is not an alarm side", side.name))
+                .label(side.span, "expected `high` or `low`")
+                .help(match near {
+                    Some(n) => format!("did you mean `{n}`?"),
+                    None => "write `alarm high <limit>` or `alarm low <limit>`".to_string(),
+                }),
+        ));
+    }
+    let value = interpret(
+        "alarm",
+        Shape::Measure { expect: Expect::Measurand, tol: false, drift: false },
+        Plausible::Any,
+        &setting.values[1..],
+        setting.span,
+        cx,
+    )?;
+    let ParamValue::Measure(m) = value else {
+        unreachable!("a measure shape gives a measure")
+    };
+    Ok(Alarm {
+        side: side.name.clone(),
+        at: m.nominal,
+        span: setting.span,
+    })
+}

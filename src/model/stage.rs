@@ -1,0 +1,238 @@
+//! One stage: merge its part's parameters, find its model, check every
+//! parameter line against the schema.
+
+use std::sync::Arc;
+
+use super::chain::Stage;
+use super::interpret::{interpret, Context};
+use super::parts::Part;
+use super::schema::{self, ModelSpec, Shape};
+use super::suggest::did_you_mean;
+use super::value::ResolvedParam;
+use crate::diagnostics::{Code, Finding, Findings, SourceFile};
+use crate::syntax::ast::{Param, StageDecl};
+
+/// A parameter line and the file it was written in.
+struct Line<'a> {
+    param: &'a Param,
+    file: &'a Arc<SourceFile>,
+}
+
+pub fn resolve(
+    file: &Arc<SourceFile>,
+    decl: &StageDecl,
+    part: Option<&Part>,
+    measurand: Option<crate::units::Dim>,
+    findings: &mut Findings,
+) -> Stage {
+    let mut lines: Vec<Line<'_>> = Vec::new();
+    for param in &decl.params {
+        if let Some(first) = lines.iter().find(|l| l.param.name.name == param.name.name) {
+            findings.push(
+                Finding::new(Code::P303, file, format!("`{}` is given twice in `{}`", param.name.name, decl.name.name))
+                    .label(param.name.span, "given again here")
+                    .label(first.param.name.span, "first given here")
+                    .help("keep one line; a block overrides a part's value, not its own"),
+            );
+            continue;
+        }
+        lines.push(Line { param, file });
+    }
+    if let Some(part) = part {
+        // The block overrides the part: the part's line counts only when
+        // the block does not say the same thing.
+        let inherited = part
+            .params
+            .iter()
+            .filter(|p| !decl.params.iter().any(|d| d.name.name == p.name.name))
+            .map(|param| Line { param, file: &part.file });
+        lines.splice(0..0, inherited);
+    }
+
+    let mut stage = Stage {
+        name: decl.name.name.clone(),
+        name_span: decl.name.span,
+        kind: decl.kind,
+        model: None,
+        params: Vec::new(),
+        span: decl.span,
+    };
+    let Some(model) = find_model(file, decl, &lines, findings) else {
+        return stage;
+    };
+    stage.model = model.model;
+
+    for line in &lines {
+        let name = line.param.name.name.as_str();
+        let (shape, plausible, spec_name) = if model.model == Some(name) {
+            (model.model_shape, schema_plausible(model), model.model.unwrap_or(""))
+        } else if let Some(spec) = model.param(name) {
+            (spec.shape, spec.plausible, spec.name)
+        } else {
+            findings.push(unknown_param(line, decl, model));
+            continue;
+        };
+        let cx = Context { file: line.file, measurand };
+        match interpret(spec_name, shape, plausible, &line.param.values, line.param.span, &cx) {
+            Ok(value) => stage.params.push(ResolvedParam {
+                name: spec_name,
+                value,
+                span: line.param.span,
+                file: Arc::clone(line.file),
+            }),
+            Err(f) => findings.push(*f),
+        }
+    }
+    check_presence(file, decl, model, &lines, findings);
+    stage
+}
+
+fn schema_plausible(model: &ModelSpec) -> schema::Plausible {
+    match model.model_shape {
+        Shape::Measure { .. } => schema::Plausible::Positive,
+        _ => schema::Plausible::Any,
+    }
+}
+
+fn find_model(
+    file: &Arc<SourceFile>,
+    decl: &StageDecl,
+    lines: &[Line<'_>],
+    findings: &mut Findings,
+) -> Option<&'static ModelSpec> {
+    if let Some(m) = schema::implicit_model(decl.kind) {
+        return Some(m);
+    }
+    let named: Vec<(&Line<'_>, &'static ModelSpec)> = lines
+        .iter()
+        .filter_map(|l| schema::model(decl.kind, &l.param.name.name).map(|m| (l, m)))
+        .collect();
+    let words: Vec<&str> = schema::models(decl.kind).filter_map(|m| m.model).collect();
+    let list = words.iter().map(|w| format!("`{w}`")).collect::<Vec<_>>().join(", ");
+    match named.as_slice() {
+        [(_, m)] => Some(m),
+        [] => {
+            let near = lines
+                .iter()
+                .find_map(|l| did_you_mean(&l.param.name.name, words.iter().copied()).map(|n| (l, n)));
+            let mut f = Finding::new(
+                Code::P307,
+                file,
+                format!("{} `{}` does not say what it is", decl.kind.keyword(), decl.name.name),
+            )
+            .label(decl.name.span, "no model line");
+            f = match near {
+                Some((l, n)) if l.file == file => f
+                    .label(l.param.name.span, format!("did you mean `{n}`?"))
+                    .help(format!("a {} starts with one of {list}", decl.kind.keyword())),
+                _ => f.help(format!("add a model line: one of {list}")),
+            };
+            findings.push(f);
+            None
+        }
+        [(first, _), (second, _), ..] => {
+            let mut f = Finding::new(
+                Code::P308,
+                file,
+                format!("{} `{}` names two models", decl.kind.keyword(), decl.name.name),
+            )
+            .help("a stage is one model; split it into two stages");
+            if second.file == file {
+                f = f.label(second.param.name.span, "second model");
+            }
+            if first.file == file {
+                f = f.label(first.param.name.span, "first model");
+            }
+            if f.labels.is_empty() {
+                f = f.label(decl.name.span, "two models");
+            }
+            findings.push(f);
+            None
+        }
+    }
+}
+
+fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Finding {
+    let name = &line.param.name.name;
+    let what = match model.model {
+        Some(m) => format!("{} `{m}`", decl.kind.keyword()),
+        None => decl.kind.keyword().to_string(),
+    };
+    let elsewhere = schema::models(decl.kind)
+        .find(|m| m.model.is_some() && m.param(name).is_some())
+        .and_then(|m| m.model);
+    let help = match (did_you_mean(name, model.names()), elsewhere) {
+        (Some(n), _) => format!("did you mean `{n}`?"),
+        (None, Some(other)) => format!("`{name}` belongs to a {} `{other}`", decl.kind.keyword()),
+        (None, None) => format!(
+            "a {what} takes {}",
+            model.names().map(|n| format!("`{n}`")).collect::<Vec<_>>().join(", ")
+        ),
+    };
+    Finding::new(Code::P301, line.file, format!("{what} has no parameter `{name}`"))
+        .label(line.param.name.span, "unknown parameter")
+        .help(help)
+}
+
+fn check_presence(
+    file: &Arc<SourceFile>,
+    decl: &StageDecl,
+    model: &ModelSpec,
+    lines: &[Line<'_>],
+    findings: &mut Findings,
+) {
+    let has = |n: &str| lines.iter().any(|l| l.param.name.name == n);
+    let span_of = |n: &str| lines.iter().find(|l| l.param.name.name == n && l.file == file).map(|l| l.param.name.span);
+    let mut required: Vec<&str> = model.params.iter().filter(|p| p.required).map(|p| p.name).collect();
+    // A custom curve has no table values to fall back on.
+    if model.model == Some("rtd")
+        && lines.iter().any(|l| {
+            l.param.name.name == "rtd"
+                && matches!(l.param.values.first(), Some(crate::syntax::ast::Value::Word(w)) if w.name == "custom")
+        })
+    {
+        required.extend(["r0", "coefficients"]);
+    }
+    for name in required {
+        if !has(name) {
+            let example = model
+                .param(name)
+                .map(|p| super::interpret::usage_of(p.name, p.shape))
+                .unwrap_or_default();
+            findings.push(
+                Finding::new(Code::P302, file, format!("`{}` needs `{name}`", decl.name.name))
+                    .label(decl.name.span, format!("`{name}` is missing"))
+                    .help(format!("add a line such as `{example}`")),
+            );
+        }
+    }
+    for group in model.one_of {
+        if !group.iter().any(|n| has(n)) {
+            let list = group.iter().map(|n| format!("`{n}`")).collect::<Vec<_>>().join(" or ");
+            findings.push(
+                Finding::new(Code::P302, file, format!("`{}` needs {list}", decl.name.name))
+                    .label(decl.name.span, "missing")
+                    .help(format!("add {list}")),
+            );
+        }
+    }
+    for (a, b) in model.exclusive {
+        if has(a) && has(b) {
+            let mut f = Finding::new(
+                Code::P308,
+                file,
+                format!("`{a}` and `{b}` cannot both be given"),
+            )
+            .help(format!("keep `{a}` or `{b}`; they state the same thing two ways"));
+            for n in [b, a] {
+                if let Some(s) = span_of(n) {
+                    f = f.label(s, format!("`{n}`"));
+                }
+            }
+            if f.labels.is_empty() {
+                f = f.label(decl.name.span, "both given");
+            }
+            findings.push(f);
+        }
+    }
+}

@@ -1,0 +1,13 @@
+//! Physical models of the measurement chain: pure functions, one file per
+//! model, each citing its published source and tested against it.
+
+pub mod adc;
+pub mod constants;
+pub mod filter;
+pub mod noise;
+pub mod rtd;
+pub mod semiconductor;
+pub mod strain;
+pub mod thermistor;
+pub mod thermocouple;
+pub mod thermocouple_coefficients;

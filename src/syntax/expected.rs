@@ -1,0 +1,179 @@
+//! pest errors in the user's words. Every grammar rule has a readable
+//! description here (the match is exhaustive, so a new rule must get one);
+//! nobody reading a diagnostic ever sees a rule name.
+
+use std::sync::Arc;
+
+use pest::error::{Error, ErrorVariant, InputLocation};
+
+use super::ast::{SettingKind, StageKind};
+use super::parser::Rule;
+use crate::diagnostics::{Code, Finding, SourceFile, Span};
+
+fn describe(rule: Rule) -> Option<&'static str> {
+    Some(match rule {
+        Rule::EOI => "the end of the line",
+        Rule::file | Rule::top_line => "a `use` line or a `chain` block",
+        Rule::use_decl | Rule::kw_use => "`use \"parts.yaml\"`",
+        Rule::chain | Rule::kw_chain | Rule::chain_head => "a `chain` block",
+        Rule::setting | Rule::setting_kw => "a setting such as `measurand`",
+        Rule::stage | Rule::stage_kind | Rule::stage_head => "a stage such as `sensor probe {`",
+        Rule::part_ref => "`: part_name`",
+        Rule::param | Rule::param_line => "a parameter line",
+        Rule::chain_line => "a statement",
+        Rule::edge | Rule::endpoint => "an edge such as `a -> b`",
+        Rule::arrow | Rule::wrong_arrow => "`->`",
+        Rule::tolerance | Rule::sym_tol | Rule::asym_tol => "a tolerance such as `± 0.1 %`",
+        Rule::plus_minus | Rule::wrong_plus_minus => "`±`",
+        Rule::kw_normal => "`normal`",
+        Rule::range => "a range `lo .. hi`",
+        Rule::quantity | Rule::unsigned_quantity | Rule::number | Rule::unsigned_number => {
+            "a number"
+        }
+        Rule::unit | Rule::unit_factor | Rule::unit_symbol | Rule::unit_reserved => {
+            "a unit such as `mV`"
+        }
+        Rule::word | Rule::ident => "a name",
+        Rule::comma => "`,`",
+        Rule::string | Rule::string_inner => "a string in quotes",
+        // Never expected by name: layout, recovery and grouping rules.
+        Rule::WHITESPACE
+        | Rule::COMMENT
+        | Rule::line_end
+        | Rule::terminator
+        | Rule::top_item
+        | Rule::chain_item
+        | Rule::stage_item
+        | Rule::edge_arrow
+        | Rule::value
+        | Rule::ident_start
+        | Rule::ident_char
+        | Rule::bad_text
+        | Rule::bad_block
+        | Rule::bad_top_line
+        | Rule::bad_chain_line
+        | Rule::bad_param_line => return None,
+    })
+}
+
+const VALUE_RULES: &[Rule] = &[
+    Rule::tolerance,
+    Rule::range,
+    Rule::quantity,
+    Rule::word,
+    Rule::string,
+    Rule::comma,
+];
+
+/// Converts a pest error on `input` (which starts at `base` in `file`).
+pub fn explain_parse_error(
+    file: &Arc<SourceFile>,
+    base: usize,
+    input: &str,
+    error: &Error<Rule>,
+) -> Finding {
+    let pos = match error.location {
+        InputLocation::Pos(p) => p,
+        InputLocation::Span((s, _)) => s,
+    };
+    let pos = pos.min(input.len());
+    let rest = &input[pos..];
+    let found: String = rest
+        .chars()
+        .take_while(|c| !c.is_whitespace())
+        .take(20)
+        .collect();
+    let found_len = found.len().max(usize::from(!rest.is_empty()));
+    let what = if rest.trim().is_empty() {
+        "the line ends".to_string()
+    } else {
+        format!("unexpected `{found}`")
+    };
+    let expected = match &error.variant {
+        ErrorVariant::ParsingError { positives, .. } => expected_list(positives),
+        ErrorVariant::CustomError { message } => message.clone(),
+    };
+    let message = if expected.is_empty() {
+        what
+    } else {
+        format!("{what}; expected {expected}")
+    };
+    let after = input[..pos].split_whitespace().last().map(str::to_string);
+    let label = match &after {
+        Some(prev) if rest.trim().is_empty() => format!("something is missing after `{prev}`"),
+        _ => "not expected here".to_string(),
+    };
+    let at = base + pos;
+    Finding::new(Code::S001, file, message).label(Span::new(at, at + found_len), label)
+}
+
+fn expected_list(positives: &[Rule]) -> String {
+    let values = positives.iter().filter(|r| VALUE_RULES.contains(r)).count();
+    let mut items: Vec<&str> = Vec::new();
+    if values >= 3 {
+        items.push("a value (a number with its unit, a word, `± x` or `lo .. hi`)");
+    }
+    for rule in positives {
+        if values >= 3 && VALUE_RULES.contains(rule) {
+            continue;
+        }
+        if let Some(d) = describe(*rule) {
+            if !items.contains(&d) {
+                items.push(d);
+            }
+        }
+    }
+    match items.len() {
+        0 => String::new(),
+        1 => items[0].to_string(),
+        n => format!("{} or {}", items[..n - 1].join(", "), items[n - 1]),
+    }
+}
+
+/// Sharper messages for the mistakes people make most, judged from the
+/// swallowed line itself.
+pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Finding {
+    let first = head.split_whitespace().next().unwrap_or("");
+    let first_span = {
+        let start = base + (head.len() - head.trim_start().len());
+        Span::new(start, start + first.len())
+    };
+    let is_stage = StageKind::from_keyword(first).is_some();
+    let is_setting = SettingKind::from_keyword(first).is_some();
+    match anchored {
+        Rule::top_line if is_stage || is_setting || head.contains("->") => {
+            let mut f = Finding::new(
+                Code::S011,
+                &finding.file,
+                format!("`{first}` must be inside a `chain` block"),
+            )
+            .label(first_span, "outside any chain")
+            .help("wrap stages, settings and edges in `chain name { ... }`");
+            f.labels.truncate(1);
+            f
+        }
+        Rule::top_line | Rule::chain_line if !is_stage && !is_setting && !head.contains("->") => {
+            let mut candidates: Vec<&str> = StageKind::ALL.iter().map(|k| k.keyword()).collect();
+            candidates.extend(SettingKind::ALL.iter().map(|k| k.keyword()));
+            if anchored == Rule::top_line {
+                candidates = vec!["chain", "use"];
+            }
+            let near = crate::model::did_you_mean(first, candidates.iter().copied());
+            let help = match near {
+                Some(near) => format!("did you mean `{near}`?"),
+                None if anchored == Rule::chain_line => {
+                    "a chain holds settings (`measurand`, `require`, ...), stages (`sensor name { ... }`) and edges (`a -> b`); parameter lines go inside a stage".to_string()
+                }
+                None => "a file holds `use \"parts.yaml\"` lines and `chain name { ... }` blocks".to_string(),
+            };
+            Finding::new(
+                Code::S001,
+                &finding.file,
+                format!("`{first}` does not start a statement"),
+            )
+            .label(first_span, "not a statement keyword")
+            .help(help)
+        }
+        _ => finding,
+    }
+}

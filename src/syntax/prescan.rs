@@ -1,0 +1,158 @@
+//! Checks that run before the grammar: size, text encoding, braces and
+//! strings. They bound what pest is asked to do (no deep recursion, no
+//! exponential retries on junk) and give sharper messages than a parse
+//! error at the end of the file.
+
+use std::sync::Arc;
+
+use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
+
+/// Specs are hand-written; anything bigger is almost surely not a spec.
+pub const MAX_SOURCE_BYTES: usize = 4 * 1024 * 1024;
+/// `chain { stage { } }` is the deepest the language nests.
+pub const MAX_DEPTH: usize = 2;
+
+/// Turns raw bytes into a source file, or says why they are not one.
+pub fn decode(name: &str, bytes: &[u8]) -> Result<Arc<SourceFile>, Finding> {
+    let placeholder = |why: &str| SourceFile::new(name, why.to_string());
+    if bytes.len() > MAX_SOURCE_BYTES {
+        let file = placeholder("");
+        return Err(Finding::new(
+            Code::S004,
+            &file,
+            format!(
+                "file is {} bytes; specs are limited to {} bytes",
+                bytes.len(),
+                MAX_SOURCE_BYTES
+            ),
+        )
+        .help("split the file into several specs, or check that this is the file you meant"));
+    }
+    let (text, bad_at) = match std::str::from_utf8(bytes) {
+        Ok(t) => (t.to_string(), bytes.iter().position(|&b| b == 0)),
+        Err(e) => (
+            String::from_utf8_lossy(&bytes[..e.valid_up_to()]).into_owned(),
+            Some(e.valid_up_to()),
+        ),
+    };
+    match bad_at {
+        None => Ok(SourceFile::new(name, text)),
+        Some(offset) => {
+            let shown = text[..offset.min(text.len())].to_string();
+            let file = SourceFile::new(name, shown);
+            let end = file.text().len();
+            Err(Finding::new(
+                Code::S003,
+                &file,
+                format!("not a UTF-8 text file: byte {offset} is not text"),
+            )
+            .label(Span::new(end, end), "text ends here")
+            .help("specs are UTF-8 text; check that this is a `.catena` file and not a binary"))
+        }
+    }
+}
+
+/// Brace balance and string termination, skipping comments and strings.
+pub fn scan(file: &Arc<SourceFile>) -> Findings {
+    let mut findings = Findings::new();
+    let text = file.text();
+    let mut open: Vec<usize> = Vec::new();
+    let mut too_deep_reported = false;
+    let mut chars = text.char_indices().peekable();
+    while let Some((i, c)) = chars.next() {
+        match c {
+            '#' => {
+                while chars.next_if(|&(_, c)| c != '\n').is_some() {}
+            }
+            '"' => {
+                let mut closed = false;
+                while let Some((_, c)) = chars.next_if(|&(_, c)| c != '\n') {
+                    if c == '\\' {
+                        chars.next_if(|&(_, c)| c != '\n');
+                    } else if c == '"' {
+                        closed = true;
+                        break;
+                    }
+                }
+                if !closed {
+                    let end = chars.peek().map(|&(j, _)| j).unwrap_or(text.len());
+                    findings.push(
+                        Finding::new(Code::S007, file, "string is not closed on its line")
+                            .label(Span::new(i, end), "this string has no closing `\"`")
+                            .help("add a `\"` before the end of the line; strings cannot span lines"),
+                    );
+                }
+            }
+            '{' => {
+                open.push(i);
+                if open.len() > MAX_DEPTH && !too_deep_reported {
+                    too_deep_reported = true;
+                    findings.push(
+                        Finding::new(
+                            Code::S008,
+                            file,
+                            format!("blocks nest {} deep; the language nests at most {MAX_DEPTH}", open.len()),
+                        )
+                        .label(Span::new(i, i + 1), "this block is inside a stage")
+                        .help("a `chain` holds stages and a stage holds parameter lines; close the stage with `}` first"),
+                    );
+                }
+            }
+            '}' => {
+                if open.pop().is_none() {
+                    findings.push(
+                        Finding::new(Code::S002, file, "`}` closes nothing")
+                            .label(Span::new(i, i + 1), "no block is open here")
+                            .help("remove this `}` or add the `{` it was meant to close"),
+                    );
+                }
+            }
+            _ => {}
+        }
+    }
+    for &at in open.iter().rev() {
+        let line_end = text[at..].find('\n').map(|n| at + n).unwrap_or(text.len());
+        let head = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
+        findings.push(
+            Finding::new(Code::S002, file, "`{` is never closed")
+                .label(Span::new(at, at + 1), "this block has no closing `}`")
+                .help(format!(
+                    "add a `}}` after the last line of `{}`",
+                    text[head..line_end].trim().trim_end_matches('{').trim()
+                )),
+        );
+    }
+    findings
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{decode, scan};
+    use crate::diagnostics::Code;
+
+    fn codes(text: &str) -> Vec<Code> {
+        let file = decode("t.catena", text.as_bytes()).unwrap();
+        scan(&file).into_iter().map(|f| f.code).collect()
+    }
+
+    #[test]
+    fn braces_in_comments_and_strings_do_not_count() {
+        assert!(codes("chain a \"{\" { # }\n}\n").is_empty());
+    }
+
+    #[test]
+    fn unbalanced_and_deep() {
+        assert_eq!(codes("chain a {\n"), vec![Code::S002]);
+        assert_eq!(codes("}\n"), vec![Code::S002]);
+        assert_eq!(codes("a{b{c{}}}"), vec![Code::S008]);
+        assert_eq!(codes("title \"x\n"), vec![Code::S007]);
+    }
+
+    #[test]
+    fn binary_is_refused() {
+        let err = decode("t", &[b'a', 0, 1, 2]).unwrap_err();
+        assert_eq!(err.code, Code::S003);
+        let err = decode("t", &[b'a', 0xff, 0xfe]).unwrap_err();
+        assert_eq!(err.code, Code::S003);
+    }
+}

@@ -1,0 +1,330 @@
+use std::fmt;
+
+use super::dimension::Dim;
+
+/// How a unit maps a written number to SI.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum UnitKind {
+    /// value × scale, in the dimension's coherent SI unit.
+    Linear,
+    /// Degrees Celsius: a kelvin difference, or an absolute temperature
+    /// offset by 273.15 K when the value is a point or a range.
+    Celsius,
+    /// Decibels: logarithmic, never a multiplier; the parameter decides
+    /// whether it is an amplitude (20 log) or power (10 log) ratio.
+    Decibel,
+}
+
+/// A parsed unit: SI scale, dimension and kind.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Unit {
+    pub scale: f64,
+    pub dim: Dim,
+    pub kind: UnitKind,
+}
+
+impl Unit {
+    pub const ONE: Unit = Unit {
+        scale: 1.0,
+        dim: Dim::NONE,
+        kind: UnitKind::Linear,
+    };
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum UnitError {
+    /// A symbol no table knows; `suggestion` is the nearest known spelling.
+    Unknown {
+        symbol: String,
+        suggestion: Option<String>,
+    },
+    /// `dB` or `degC` inside a product, quotient or power (`dB/K`).
+    NotCombinable { symbol: String },
+    /// A prefix on a symbol that takes none (`kdegC`, `m%`).
+    NoPrefix { symbol: String },
+    /// An exponent beyond what any physical parameter needs.
+    Power { text: String },
+}
+
+impl fmt::Display for UnitError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            UnitError::Unknown { symbol, .. } => write!(f, "unknown unit `{symbol}`"),
+            UnitError::NotCombinable { symbol } => {
+                write!(f, "`{symbol}` cannot be combined with other units")
+            }
+            UnitError::NoPrefix { symbol } => write!(f, "`{symbol}` takes no SI prefix"),
+            UnitError::Power { text } => write!(f, "unit power in `{text}` is out of range"),
+        }
+    }
+}
+
+struct Symbol {
+    text: &'static str,
+    scale: f64,
+    dim: Dim,
+    prefixable: bool,
+}
+
+const fn sym(text: &'static str, scale: f64, dim: Dim, prefixable: bool) -> Symbol {
+    Symbol {
+        text,
+        scale,
+        dim,
+        prefixable,
+    }
+}
+
+/// Every symbol the language knows. Spellings are case-sensitive, as in SI
+/// (`mV` is millivolt, `MV` megavolt).
+static SYMBOLS: &[Symbol] = &[
+    sym("V", 1.0, Dim::VOLTAGE, true),
+    sym("A", 1.0, Dim::CURRENT, true),
+    sym("ohm", 1.0, Dim::RESISTANCE, true),
+    sym("Ohm", 1.0, Dim::RESISTANCE, true),
+    sym("Ω", 1.0, Dim::RESISTANCE, true),
+    sym("\u{2126}", 1.0, Dim::RESISTANCE, true), // OHM SIGN
+    sym("F", 1.0, Dim::CAPACITANCE, true),
+    sym("Hz", 1.0, Dim::FREQUENCY, true),
+    sym("rtHz", 1.0, Dim::ROOT_HERTZ, false),
+    sym("√Hz", 1.0, Dim::ROOT_HERTZ, false),
+    sym("s", 1.0, Dim::TIME, true),
+    sym("K", 1.0, Dim::TEMPERATURE, true),
+    sym("W", 1.0, Dim::POWER, true),
+    sym("N", 1.0, Dim::FORCE, true),
+    sym("g", 1e-3, Dim::MASS, true),
+    sym("t", 1e3, Dim::MASS, false),
+    sym("Pa", 1.0, Dim::PRESSURE, true),
+    sym("bar", 1e5, Dim::PRESSURE, true),
+    sym("m", 1.0, Dim::LENGTH, true),
+    sym("%", 1e-2, Dim::NONE, false),
+    sym("ppm", 1e-6, Dim::NONE, false),
+    sym("ppb", 1e-9, Dim::NONE, false),
+    sym("ue", 1e-6, Dim::NONE, false),
+    sym("µε", 1e-6, Dim::NONE, false),
+    sym("με", 1e-6, Dim::NONE, false),
+    sym("bit", 1.0, Dim::NONE, false),
+    sym("bits", 1.0, Dim::NONE, false),
+    sym("LSB", 1.0, Dim::NONE, false),
+];
+
+/// Spellings of degrees Celsius.
+const CELSIUS: &[&str] = &["degC", "°C", "℃"];
+const DECIBEL: &[&str] = &["dB"];
+
+/// SI prefixes; `u`, `µ` (U+00B5 MICRO SIGN) and `μ` (U+03BC GREEK MU) are
+/// all micro, since keyboards and datasheets use all three.
+const PREFIXES: &[(&str, f64)] = &[
+    ("p", 1e-12),
+    ("n", 1e-9),
+    ("u", 1e-6),
+    ("µ", 1e-6),
+    ("μ", 1e-6),
+    ("m", 1e-3),
+    ("k", 1e3),
+    ("M", 1e6),
+    ("G", 1e9),
+];
+
+/// Parses a unit as written after a number: symbols with optional SI
+/// prefixes, joined by `*` and `/` (left to right), each with an optional
+/// integer power (`Hz^-1`).
+pub fn parse_unit(text: &str) -> Result<Unit, UnitError> {
+    if CELSIUS.contains(&text) {
+        return Ok(Unit {
+            scale: 1.0,
+            dim: Dim::TEMPERATURE,
+            kind: UnitKind::Celsius,
+        });
+    }
+    if DECIBEL.contains(&text) {
+        return Ok(Unit {
+            scale: 1.0,
+            dim: Dim::NONE,
+            kind: UnitKind::Decibel,
+        });
+    }
+    let mut scale = 1.0;
+    let mut dim = Dim::NONE;
+    let mut divide = false;
+    let mut rest = text;
+    loop {
+        let end = rest.find(['*', '/']).unwrap_or(rest.len());
+        let (factor, power) = split_power(&rest[..end])?;
+        let (s, d) = parse_factor(factor)?;
+        let power = if divide { -power } else { power };
+        scale *= s.powi(i32::from(power));
+        dim = dim * d.powi(power);
+        if end == rest.len() {
+            break;
+        }
+        divide = rest[end..].starts_with('/');
+        rest = &rest[end + 1..];
+    }
+    Ok(Unit {
+        scale,
+        dim,
+        kind: UnitKind::Linear,
+    })
+}
+
+fn split_power(factor: &str) -> Result<(&str, i8), UnitError> {
+    match factor.split_once('^') {
+        None => Ok((factor, 1)),
+        Some((base, power)) => match power.parse::<i8>() {
+            Ok(p) if (-4..=4).contains(&p) && p != 0 => Ok((base, p)),
+            _ => Err(UnitError::Power {
+                text: factor.to_string(),
+            }),
+        },
+    }
+}
+
+fn parse_factor(factor: &str) -> Result<(f64, Dim), UnitError> {
+    if CELSIUS.contains(&factor) {
+        // Inside a compound (`uV/degC`) a degree is a kelvin difference.
+        return Ok((1.0, Dim::TEMPERATURE));
+    }
+    if DECIBEL.contains(&factor) {
+        return Err(UnitError::NotCombinable {
+            symbol: factor.to_string(),
+        });
+    }
+    if let Some(s) = SYMBOLS.iter().find(|s| s.text == factor) {
+        return Ok((s.scale, s.dim));
+    }
+    for (prefix, p) in PREFIXES {
+        let Some(rest) = factor.strip_prefix(prefix) else {
+            continue;
+        };
+        if let Some(s) = SYMBOLS.iter().find(|s| s.text == rest) {
+            if !s.prefixable {
+                return Err(UnitError::NoPrefix {
+                    symbol: factor.to_string(),
+                });
+            }
+            return Ok((p * s.scale, s.dim));
+        }
+        if CELSIUS.contains(&rest) || DECIBEL.contains(&rest) {
+            return Err(UnitError::NoPrefix {
+                symbol: factor.to_string(),
+            });
+        }
+    }
+    Err(UnitError::Unknown {
+        symbol: factor.to_string(),
+        suggestion: suggest(factor),
+    })
+}
+
+/// The nearest known spelling, for a did-you-mean. Case slips (`mv`, `KOHM`)
+/// are the common mistake, so a case-insensitive match wins outright.
+fn suggest(factor: &str) -> Option<String> {
+    let mut known: Vec<String> = Vec::new();
+    for s in SYMBOLS {
+        known.push(s.text.to_string());
+        if s.prefixable {
+            for (p, _) in PREFIXES.iter().filter(|(p, _)| p.is_ascii()) {
+                known.push(format!("{p}{}", s.text));
+            }
+        }
+    }
+    known.extend(CELSIUS.iter().chain(DECIBEL).map(|s| s.to_string()));
+    known.extend(["uV/K", "ppm/K", "nV/rtHz", "mV/V", "mW/K"].map(String::from));
+    let lower = factor.to_lowercase();
+    let aliases: &[(&str, &str)] = &[
+        ("ohms", "ohm"),
+        ("kohms", "kohm"),
+        ("c", "degC"),
+        ("°", "degC"),
+        ("deg", "degC"),
+        ("celsius", "degC"),
+        ("sec", "s"),
+        ("secs", "s"),
+        ("hz", "Hz"),
+        ("v", "V"),
+        ("mohm", "mohm` (milliohm) or `Mohm` (megaohm"),
+        ("microstrain", "ue"),
+    ];
+    if let Some((_, to)) = aliases.iter().find(|(from, _)| *from == lower) {
+        return Some((*to).to_string());
+    }
+    if let Some(k) = known.iter().find(|k| k.to_lowercase() == lower) {
+        return Some(k.clone());
+    }
+    known
+        .into_iter()
+        .map(|k| (strsim::levenshtein(&k, factor), k))
+        .filter(|(d, k)| *d <= 1.max(k.len() / 3))
+        .min()
+        .map(|(_, k)| k)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{parse_unit, Dim, UnitError, UnitKind};
+
+    fn si(text: &str) -> (f64, Dim) {
+        let u = parse_unit(text).unwrap_or_else(|e| panic!("{text}: {e}"));
+        (u.scale, u.dim)
+    }
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-12 * b.abs()
+    }
+
+    #[test]
+    fn prefixes_and_micro_spellings() {
+        for micro in ["uA", "µA", "μA"] {
+            let (s, d) = si(micro);
+            assert!(close(s, 1e-6) && d == Dim::CURRENT, "{micro}");
+        }
+        assert!(close(si("kohm").0, 1e3));
+        assert!(close(si("kΩ").0, 1e3));
+        assert!(close(si("mV").0, 1e-3));
+        assert!(close(si("MV").0, 1e6), "prefixes are case-sensitive");
+        assert!(close(si("kg").0, 1.0));
+        assert_eq!(si("m").1, Dim::LENGTH);
+        assert!(close(si("ms").0, 1e-3));
+    }
+
+    #[test]
+    fn compound_units() {
+        let (s, d) = si("ppm/K");
+        assert!(close(s, 1e-6) && d == Dim::NONE / Dim::TEMPERATURE);
+        let (s, d) = si("nV/rtHz");
+        assert!(close(s, 1e-9) && d == Dim::VOLTAGE / Dim::ROOT_HERTZ);
+        assert_eq!(si("nV/√Hz"), si("nV/rtHz"));
+        let (s, d) = si("mV/V");
+        assert!(close(s, 1e-3) && d == Dim::NONE);
+        let (s, d) = si("K/mW");
+        assert!(close(s, 1e3) && d == Dim::TEMPERATURE / Dim::POWER);
+        assert_eq!(si("uV/degC"), si("uV/K"));
+        assert_eq!(si("Hz^-1").1, Dim::TIME);
+        assert!(close(si("%").0, 0.01));
+    }
+
+    #[test]
+    fn celsius_and_decibel_are_not_multipliers() {
+        assert_eq!(parse_unit("degC").unwrap().kind, UnitKind::Celsius);
+        assert_eq!(parse_unit("dB").unwrap().kind, UnitKind::Decibel);
+        assert!(matches!(
+            parse_unit("dB/K"),
+            Err(UnitError::NotCombinable { .. })
+        ));
+        assert!(matches!(parse_unit("kdegC"), Err(UnitError::NoPrefix { .. })));
+        assert!(matches!(parse_unit("m%"), Err(UnitError::NoPrefix { .. })));
+    }
+
+    #[test]
+    fn unknown_units_suggest() {
+        let Err(UnitError::Unknown { suggestion, .. }) = parse_unit("mv") else {
+            panic!("mv must be unknown");
+        };
+        assert_eq!(suggestion.as_deref(), Some("mV"));
+        let Err(UnitError::Unknown { suggestion, .. }) = parse_unit("kohms") else {
+            panic!("kohms must be unknown");
+        };
+        assert_eq!(suggestion.as_deref(), Some("kohm"));
+    }
+}
