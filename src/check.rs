@@ -59,5 +59,10 @@ pub fn check_bytes(name: &str, bytes: &[u8], base: &Path, parts: &mut PartsCache
 
 /// Checks spec text (tests, stdin).
 pub fn check_str(name: &str, text: &str) -> CheckedFile {
-    check_bytes(name, text.as_bytes(), Path::new("."), &mut PartsCache::default())
+    check_bytes(
+        name,
+        text.as_bytes(),
+        Path::new("."),
+        &mut PartsCache::default(),
+    )
 }

@@ -44,16 +44,25 @@ pub fn run(args: CheckArgs) -> u8 {
                 return EXIT_USAGE;
             }
         };
-        let base = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
+        let base = path
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
         let checked = check_bytes(&path.to_string_lossy(), &bytes, base, &mut parts);
         all.extend(checked.findings.sorted());
     }
-    let errors = all.iter().filter(|f| f.severity() == Severity::Error).count();
+    let errors = all
+        .iter()
+        .filter(|f| f.severity() == Severity::Error)
+        .count();
     let warnings = all.len() - errors;
     match args.format {
         Format::Json => print!("{}", render_json(&all)),
         Format::Human => {
-            eprint!("{}", render_human(&all, terminal::stderr_color(), terminal::width()));
+            eprint!(
+                "{}",
+                render_human(&all, terminal::stderr_color(), terminal::width())
+            );
             eprintln!(
                 "checked {} file{}: {} error{}, {} warning{}",
                 files.len(),

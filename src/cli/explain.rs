@@ -30,7 +30,9 @@ pub fn run(args: ExplainArgs) -> u8 {
             let near = did_you_mean(&text, Code::ALL.iter().map(|c| c.as_str()));
             match near {
                 Some(n) => eprintln!("catena: no diagnostic code `{text}`; did you mean `{n}`?"),
-                None => eprintln!("catena: no diagnostic code `{text}`; `catena explain` lists them"),
+                None => {
+                    eprintln!("catena: no diagnostic code `{text}`; `catena explain` lists them")
+                }
             }
             EXIT_USAGE
         }

@@ -5,9 +5,12 @@ use std::path::{Path, PathBuf};
 pub fn collect(paths: &[PathBuf]) -> Result<Vec<PathBuf>, String> {
     let mut out = Vec::new();
     for path in paths {
-        let meta = std::fs::metadata(path).map_err(|e| format!("cannot read `{}`: {}", path.display(), plain_io(&e)))?;
+        let meta = std::fs::metadata(path)
+            .map_err(|e| format!("cannot read `{}`: {}", path.display(), plain_io(&e)))?;
         if meta.is_dir() {
-            walk(path, &mut out).map_err(|e| format!("cannot read folder `{}`: {}", path.display(), plain_io(&e)))?;
+            walk(path, &mut out).map_err(|e| {
+                format!("cannot read folder `{}`: {}", path.display(), plain_io(&e))
+            })?;
         } else {
             out.push(path.clone());
         }

@@ -92,7 +92,10 @@ pub fn run(args: FmtArgs) -> u8 {
 
 fn report(findings: Findings) -> u8 {
     let all = findings.sorted();
-    eprint!("{}", render_human(&all, terminal::stderr_color(), terminal::width()));
+    eprint!(
+        "{}",
+        render_human(&all, terminal::stderr_color(), terminal::width())
+    );
     eprintln!("catena: not formatted: the file has syntax errors");
     EXIT_FINDINGS
 }

@@ -16,11 +16,63 @@ pub fn render_human(findings: &[Finding], color: bool, width: usize) -> String {
         .with_links(false);
     let mut out = String::new();
     for finding in findings {
-        // Writing into a String cannot fail.
-        let _ = handler.render_report(&mut out, finding);
+        if has_long_lines(finding) {
+            out.push_str(&render_plain(finding));
+        } else {
+            // Writing into a String cannot fail; a renderer panic must not
+            // cost the user the finding, so it falls back to plain text.
+            let mut one = String::new();
+            let rendered = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                handler.render_report(&mut one, finding).is_ok()
+            }));
+            if rendered.unwrap_or(false) {
+                out.push_str(&one);
+            } else {
+                out.push_str(&render_plain(finding));
+            }
+        }
         out.push('\n');
     }
     out
+}
+
+/// Source lines this long are not worth drawing (and the graphical
+/// renderer's padding overflows on them).
+const MAX_DRAWN_LINE: usize = 400;
+
+fn has_long_lines(f: &Finding) -> bool {
+    let text = f.file.text();
+    f.labels.iter().any(|l| {
+        let start = text[..l.span.start.min(text.len())]
+            .rfind('\n')
+            .map(|n| n + 1)
+            .unwrap_or(0);
+        let end = text[l.span.start.min(text.len())..]
+            .find('\n')
+            .map(|n| n + l.span.start)
+            .unwrap_or(text.len());
+        end - start > MAX_DRAWN_LINE
+    })
+}
+
+/// A finding without the source excerpt: code, message, place, help.
+fn render_plain(f: &Finding) -> String {
+    let (line, column) = f.file.line_column(f.primary_offset());
+    let mut s = format!(
+        "{}\n\n  × {}\n  at {}:{line}:{column}\n",
+        f.code.as_str(),
+        f.message,
+        f.file.name()
+    );
+    for l in &f.labels {
+        if !l.text.is_empty() {
+            s.push_str(&format!("  - {}\n", l.text));
+        }
+    }
+    if let Some(h) = &f.help {
+        s.push_str(&format!("  help: {h}\n"));
+    }
+    s
 }
 
 /// The JSON shape of one finding: documented in `catena explain --json`

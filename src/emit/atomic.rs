@@ -25,11 +25,20 @@ pub fn write_atomic(path: &Path, contents: &[u8]) -> Result<(), WriteError> {
     if old.as_ref().is_some_and(|m| m.file_type().is_symlink()) {
         return Err(WriteError::Symlink(path.to_path_buf()));
     }
-    let dir = path.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
+    let dir = path
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
     let tmp = dir.join(format!(".{name}.catena-tmp-{}", std::process::id()));
     let result = (|| {
-        let mut f = fs::OpenOptions::new().write(true).create_new(true).open(&tmp)?;
+        let mut f = fs::OpenOptions::new()
+            .write(true)
+            .create_new(true)
+            .open(&tmp)?;
         f.write_all(contents)?;
         f.sync_all()?;
         if let Some(m) = &old {
@@ -60,7 +69,10 @@ mod tests {
             let link = dir.join("link.catena");
             let _ = std::fs::remove_file(&link);
             std::os::unix::fs::symlink(&target, &link).unwrap();
-            assert!(matches!(write_atomic(&link, b"x"), Err(WriteError::Symlink(_))));
+            assert!(matches!(
+                write_atomic(&link, b"x"),
+                Err(WriteError::Symlink(_))
+            ));
             assert_eq!(std::fs::read_to_string(&target).unwrap(), "new");
         }
         std::fs::remove_dir_all(&dir).unwrap();

@@ -68,11 +68,20 @@ pub struct Stage {
     pub model: Option<&'static str>,
     pub params: Vec<ResolvedParam>,
     pub span: Span,
+    /// Parameters written but rejected (already reported): present for
+    /// the checks that ask whether something was given.
+    pub invalid: Vec<String>,
+    /// Its model, part or an edge naming it was rejected, so what the
+    /// graph checks would say about it would only echo that finding.
+    pub incomplete: bool,
 }
 
 impl Stage {
     pub fn param(&self, name: &str) -> Option<&ParamValue> {
-        self.params.iter().find(|p| p.name == name).map(|p| &p.value)
+        self.params
+            .iter()
+            .find(|p| p.name == name)
+            .map(|p| &p.value)
     }
 }
 

@@ -15,22 +15,61 @@ use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{EdgeDecl, Endpoint, StageKind};
 
 fn stage_inputs(stage: &Stage) -> Vec<InputSpec> {
-    ports::inputs(stage.kind, stage.model, &|name| stage.param(name).cloned())
+    ports::inputs(stage.kind, stage.model, &|name| {
+        stage.param(name).cloned().or_else(|| {
+            stage
+                .invalid
+                .iter()
+                .any(|i| i == name)
+                .then_some(ParamValue::Flag)
+        })
+    })
 }
 
 fn has_output(_stage: &Stage) -> bool {
     true
 }
 
-pub fn connect(file: &Arc<SourceFile>, stages: &[Stage], edges: &[EdgeDecl], findings: &mut Findings) -> Vec<Connection> {
-    let index = |name: &str| stages.iter().position(|s| s.name == name);
+pub fn connect(
+    file: &Arc<SourceFile>,
+    stages: &mut [Stage],
+    edges: &[EdgeDecl],
+    findings: &mut Findings,
+) -> Vec<Connection> {
     let mut connections = Vec::new();
+    // Stages named in an edge statement that was rejected: what the graph
+    // checks would say about them only echoes that finding.
+    let mut broken: Vec<String> = Vec::new();
     for edge in edges {
+        let before = findings.len();
+        connect_edge(file, stages, edge, &mut connections, findings);
+        if findings.len() > before {
+            broken.extend(edge.endpoints.iter().map(|e| e.stage.name.clone()));
+        }
+    }
+    for s in stages.iter_mut() {
+        if broken.contains(&s.name) {
+            s.incomplete = true;
+        }
+    }
+    check_ports(file, stages, &connections, findings);
+    connections
+}
+
+fn connect_edge(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    edge: &EdgeDecl,
+    connections: &mut Vec<Connection>,
+    findings: &mut Findings,
+) {
+    let index = |name: &str| stages.iter().position(|s| s.name == name);
+    {
         for (i, pair) in edge.endpoints.windows(2).enumerate() {
             let (a, b) = (&pair[0], &pair[1]);
             let (Some(from), Some(to)) = (
                 lookup(file, stages, a, &index, findings, i == 0),
-                lookup(file, stages, b, &index, findings, true),
+                lookup(file, stages, b, &index, findings, false),
             ) else {
                 continue;
             };
@@ -48,26 +87,54 @@ pub fn connect(file: &Arc<SourceFile>, stages: &[Stage], edges: &[EdgeDecl], fin
             if from_port != Port::Out {
                 let span = a.port.as_ref().map(|p| p.span).unwrap_or(a.span);
                 findings.push(
-                    Finding::new(Code::M211, file, format!("`{}.{}` is an input, not an output", a.stage.name, from_port.name()))
-                        .label(span, "edges leave a stage by `out`")
-                        .help(format!("write `{} -> ...`, or reverse the edge", a.stage.name)),
+                    Finding::new(
+                        Code::M211,
+                        file,
+                        format!(
+                            "`{}.{}` is an input, not an output",
+                            a.stage.name,
+                            from_port.name()
+                        ),
+                    )
+                    .label(span, "edges leave a stage by `out`")
+                    .help(format!(
+                        "write `{} -> ...`, or reverse the edge",
+                        a.stage.name
+                    )),
                 );
                 continue;
             }
             let Some(to_port) = to_port else {
                 findings.push(
-                    Finding::new(Code::M204, file, format!("`{}` takes no input", stages[to].name))
-                        .label(b.span, format!("a {} has no input port", describe(&stages[to])))
-                        .help(format!("`{}` is a source; edges can only start from it", stages[to].name)),
+                    Finding::new(
+                        Code::M204,
+                        file,
+                        format!("`{}` takes no input", stages[to].name),
+                    )
+                    .label(
+                        b.span,
+                        format!("{} has no input port", with_article(&describe(&stages[to]))),
+                    )
+                    .help(format!(
+                        "`{}` is a source; edges can only start from it",
+                        stages[to].name
+                    )),
                 );
                 continue;
             };
             if to_port == Port::Out {
                 let span = b.port.as_ref().map(|p| p.span).unwrap_or(b.span);
                 findings.push(
-                    Finding::new(Code::M211, file, format!("`{}.out` is an output, not an input", b.stage.name))
-                        .label(span, "edges enter a stage by an input")
-                        .help(format!("write `... -> {}` for its default input", b.stage.name)),
+                    Finding::new(
+                        Code::M211,
+                        file,
+                        format!("`{}.out` is an output, not an input", b.stage.name),
+                    )
+                    .label(span, "edges enter a stage by an input")
+                    .help(format!(
+                        "write `... -> {}` for its default input",
+                        b.stage.name
+                    )),
                 );
                 continue;
             }
@@ -80,8 +147,10 @@ pub fn connect(file: &Arc<SourceFile>, stages: &[Stage], edges: &[EdgeDecl], fin
             });
         }
     }
-    check_ports(file, stages, &connections, findings);
-    connections
+}
+
+fn with_article(noun: &str) -> String {
+    format!("{} {noun}", super::article(noun))
 }
 
 /// A stage by name, and its port by name if one is given.
@@ -91,21 +160,34 @@ fn lookup(
     end: &Endpoint,
     index: &dyn Fn(&str) -> Option<usize>,
     findings: &mut Findings,
-    report: bool,
+    first: bool,
 ) -> Option<usize> {
     let Some(i) = index(&end.stage.name) else {
-        if report || true {
+        // A middle endpoint is looked up for two edges; report it once.
+        if first
+            || !findings
+                .iter()
+                .any(|f| f.code == Code::M202 && f.primary_span() == Some(end.stage.span))
+        {
             let near = did_you_mean(&end.stage.name, stages.iter().map(|s| s.name.as_str()));
             findings.push(
-                Finding::new(Code::M202, file, format!("no stage is named `{}`", end.stage.name))
-                    .label(end.stage.span, "unknown stage")
-                    .help(match near {
-                        Some(n) => format!("did you mean `{n}`?"),
-                        None => format!(
-                            "stages of this chain: {}",
-                            stages.iter().map(|s| format!("`{}`", s.name)).collect::<Vec<_>>().join(", ")
-                        ),
-                    }),
+                Finding::new(
+                    Code::M202,
+                    file,
+                    format!("no stage is named `{}`", end.stage.name),
+                )
+                .label(end.stage.span, "unknown stage")
+                .help(match near {
+                    Some(n) => format!("did you mean `{n}`?"),
+                    None => format!(
+                        "stages of this chain: {}",
+                        stages
+                            .iter()
+                            .map(|s| format!("`{}`", s.name))
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ),
+                }),
             );
         }
         return None;
@@ -119,12 +201,20 @@ fn lookup(
         if !names.contains(&port.name.as_str()) {
             let near = did_you_mean(&port.name, names.iter().copied());
             findings.push(
-                Finding::new(Code::M203, file, format!("`{}` has no port `{}`", stage.name, port.name))
-                    .label(port.span, "unknown port")
-                    .help(match near {
-                        Some(n) => format!("did you mean `{n}`? ports of `{}`: {}", stage.name, quote(&names)),
-                        None => format!("ports of `{}`: {}", stage.name, quote(&names)),
-                    }),
+                Finding::new(
+                    Code::M203,
+                    file,
+                    format!("`{}` has no port `{}`", stage.name, port.name),
+                )
+                .label(port.span, "unknown port")
+                .help(match near {
+                    Some(n) => format!(
+                        "did you mean `{n}`? ports of `{}`: {}",
+                        stage.name,
+                        quote(&names)
+                    ),
+                    None => format!("ports of `{}`: {}", stage.name, quote(&names)),
+                }),
             );
             return None;
         }
@@ -133,7 +223,11 @@ fn lookup(
 }
 
 fn quote(names: &[&str]) -> String {
-    names.iter().map(|n| format!("`{n}`")).collect::<Vec<_>>().join(", ")
+    names
+        .iter()
+        .map(|n| format!("`{n}`"))
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 fn describe(stage: &Stage) -> String {
@@ -150,25 +244,48 @@ pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signa
         .iter()
         .enumerate()
         .map(|(i, s)| {
-            let driven = connections
-                .iter()
-                .any(|c| c.to == i && c.to_port == Port::In && static_out(&stages[c.from]) == Signal::CurrentExcitation);
+            // A voltage excitation on a resistive sensor is itself an error
+            // (reported on that edge); its output is judged as if driven.
+            let driven = connections.iter().any(|c| {
+                c.to == i
+                    && c.to_port == Port::In
+                    && matches!(
+                        static_out(&stages[c.from]),
+                        Signal::CurrentExcitation | Signal::VoltageExcitation
+                    )
+            });
             ports::output(s.kind, s.model, driven)
         })
         .collect()
 }
 
-fn check_ports(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connection], findings: &mut Findings) {
+fn check_ports(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    findings: &mut Findings,
+) {
     let outputs = output_signals(stages, connections);
     for c in connections {
         let target = &stages[c.to];
-        let Some(spec) = stage_inputs(target).into_iter().find(|s| s.port == c.to_port) else {
+        if target.incomplete || stages[c.from].incomplete {
+            continue;
+        }
+        let Some(spec) = stage_inputs(target)
+            .into_iter()
+            .find(|s| s.port == c.to_port)
+        else {
             continue;
         };
         let signal = outputs[c.from];
         if !spec.accepts.contains(&signal) {
             let source = &stages[c.from];
-            let expects = spec.accepts.iter().map(|s| s.noun()).collect::<Vec<_>>().join(" or ");
+            let expects = spec
+                .accepts
+                .iter()
+                .map(|s| s.noun())
+                .collect::<Vec<_>>()
+                .join(" or ");
             let help = match (signal, target.kind) {
                 (Signal::VoltageExcitation, StageKind::Sensor) => format!(
                     "a voltage across a resistive sensor gives nothing to measure; wire `{}` and `{}` into a `bridge` (a `divider` for one element), or use a current excitation",
@@ -199,8 +316,14 @@ fn check_ports(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connecti
         }
     }
     for (i, stage) in stages.iter().enumerate() {
+        if stage.incomplete {
+            continue;
+        }
         for spec in stage_inputs(stage) {
-            let into: Vec<&Connection> = connections.iter().filter(|c| c.to == i && c.to_port == spec.port).collect();
+            let into: Vec<&Connection> = connections
+                .iter()
+                .filter(|c| c.to == i && c.to_port == spec.port)
+                .collect();
             if spec.multi {
                 let wanted = ports::arm_count(stage.model);
                 if into.len() != wanted {
@@ -219,16 +342,28 @@ fn check_ports(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connecti
                     for c in &into {
                         f = f.label(c.span, "arm");
                     }
-                    findings.push(f.help(format!("wire {wanted} sensor element(s) with `sensor_name -> {}.arm`", stage.name)));
+                    let elements = if wanted == 1 {
+                        "one sensor element"
+                    } else {
+                        "each sensor element"
+                    };
+                    findings.push(f.help(format!(
+                        "wire {elements} with `sensor_name -> {}.arm`",
+                        stage.name
+                    )));
                 }
                 continue;
             }
             if into.len() > 1 {
                 findings.push(
-                    Finding::new(Code::M205, file, format!("`{}.{}` is driven twice", stage.name, spec.port.name()))
-                        .label(into[1].span, "second edge")
-                        .label(into[0].span, "first edge")
-                        .help("an input takes one edge; remove one, or add a stage that combines them"),
+                    Finding::new(
+                        Code::M205,
+                        file,
+                        format!("`{}.{}` is driven twice", stage.name, spec.port.name()),
+                    )
+                    .label(into[1].span, "second edge")
+                    .label(into[0].span, "first edge")
+                    .help("an input takes one edge; remove one, or add a stage that combines them"),
                 );
             }
             if into.is_empty() && spec.required {
@@ -244,14 +379,27 @@ fn check_ports(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connecti
                     format!("{}.{}", stage.name, spec.port.name())
                 };
                 let help = match (candidates.as_slice(), spec.port) {
-                    (_, Port::Ref) => format!("wire a reference with `source -> {port}`, or give the converter `vref`"),
+                    (_, Port::Ref) => format!(
+                        "wire a reference with `source -> {port}`, or give the converter `vref`"
+                    ),
                     ([one], _) => format!("connect it: `{one} -> {port}`"),
-                    _ => format!("connect {} to it: `source -> {port}`", spec.accepts.iter().map(|s| s.noun()).collect::<Vec<_>>().join(" or ")),
+                    _ => format!(
+                        "connect {} to it: `source -> {port}`",
+                        spec.accepts
+                            .iter()
+                            .map(|s| s.noun())
+                            .collect::<Vec<_>>()
+                            .join(" or ")
+                    ),
                 };
                 findings.push(
-                    Finding::new(Code::M206, file, format!("`{}.{}` is not connected", stage.name, spec.port.name()))
-                        .label(stage.name_span, format!("needs {}", spec.accepts[0].noun()))
-                        .help(help),
+                    Finding::new(
+                        Code::M206,
+                        file,
+                        format!("`{}.{}` is not connected", stage.name, spec.port.name()),
+                    )
+                    .label(stage.name_span, format!("needs {}", spec.accepts[0].noun()))
+                    .help(help),
                 );
             }
         }
@@ -260,7 +408,12 @@ fn check_ports(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connecti
     check_use(file, stages, connections, &outputs, findings);
 }
 
-fn check_cycles(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connection], findings: &mut Findings) {
+fn check_cycles(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    findings: &mut Findings,
+) {
     let mut graph = DiGraph::<usize, usize>::new();
     let nodes: Vec<_> = (0..stages.len()).map(|i| graph.add_node(i)).collect();
     for (k, c) in connections.iter().enumerate() {
@@ -268,43 +421,93 @@ fn check_cycles(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connect
     }
     for scc in tarjan_scc(&graph) {
         let members: Vec<usize> = scc.iter().map(|n| graph[*n]).collect();
-        let looped = members.len() > 1 || connections.iter().any(|c| c.from == members[0] && c.to == members[0]);
+        let looped = members.len() > 1
+            || connections
+                .iter()
+                .any(|c| c.from == members[0] && c.to == members[0]);
         if !looped {
             continue;
         }
-        let mut members = members;
-        members.sort_unstable();
-        let names = members.iter().map(|&m| format!("`{}`", stages[m].name)).collect::<Vec<_>>().join(" -> ");
+        let order = loop_order(&members, connections);
+        let names = order
+            .iter()
+            .chain(order.first())
+            .map(|&m| format!("`{}`", stages[m].name))
+            .collect::<Vec<_>>()
+            .join(" -> ");
         let mut f = Finding::new(Code::M207, file, format!("the chain loops through {names}"));
-        for c in connections.iter().filter(|c| members.contains(&c.from) && members.contains(&c.to)) {
+        for c in connections
+            .iter()
+            .filter(|c| members.contains(&c.from) && members.contains(&c.to))
+        {
             f = f.label(c.span, "part of the loop");
         }
         findings.push(f.help("a measurement chain runs one way, from sensor to reading; remove the edge that feeds back"));
     }
 }
 
-fn check_use(file: &Arc<SourceFile>, stages: &[Stage], connections: &[Connection], outputs: &[Signal], findings: &mut Findings) {
+/// The members of a loop in edge order, from the first declared stage.
+fn loop_order(members: &[usize], connections: &[Connection]) -> Vec<usize> {
+    let start = members.iter().copied().min().unwrap_or(0);
+    let mut order = vec![start];
+    let mut at = start;
+    while let Some(next) = connections
+        .iter()
+        .filter(|c| c.from == at && members.contains(&c.to))
+        .map(|c| c.to)
+        .find(|n| !order.contains(n))
+    {
+        order.push(next);
+        at = next;
+    }
+    order
+}
+
+fn check_use(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    outputs: &[Signal],
+    findings: &mut Findings,
+) {
     let mut finals = Vec::new();
     for (i, stage) in stages.iter().enumerate() {
-        let touched = connections.iter().any(|c| c.from == i || c.to == i) || is_cold_junction_of_any(stages, i);
+        if stage.kind == StageKind::Convert && !connections.iter().any(|c| c.from == i) {
+            finals.push(i);
+        }
+        if stage.incomplete {
+            continue;
+        }
+        let touched = connections.iter().any(|c| c.from == i || c.to == i)
+            || is_cold_junction_of_any(stages, i);
         if !touched {
             findings.push(
-                Finding::new(Code::M208, file, format!("stage `{}` is not connected to anything", stage.name))
-                    .label(stage.name_span, "unused")
-                    .help(format!("connect it with an edge such as `{} -> ...`, or remove it", stage.name)),
+                Finding::new(
+                    Code::M208,
+                    file,
+                    format!("stage `{}` is not connected to anything", stage.name),
+                )
+                .label(stage.name_span, "unused")
+                .help(format!(
+                    "connect it with an edge such as `{} -> ...`, or remove it",
+                    stage.name
+                )),
             );
             continue;
         }
         let feeds = connections.iter().any(|c| c.from == i);
-        if stage.kind == StageKind::Convert {
-            if !feeds {
-                finals.push(i);
-            }
-        } else if !feeds && outputs[i] != Signal::Reading {
+        if stage.kind != StageKind::Convert && !feeds && outputs[i] != Signal::Reading {
             findings.push(
-                Finding::new(Code::M213, file, format!("the output of `{}` goes nowhere", stage.name))
-                    .label(stage.name_span, "output not used")
-                    .help(format!("connect it with `{} -> ...`, or remove the stage", stage.name)),
+                Finding::new(
+                    Code::M213,
+                    file,
+                    format!("the output of `{}` goes nowhere", stage.name),
+                )
+                .label(stage.name_span, "output not used")
+                .help(format!(
+                    "connect it with `{} -> ...`, or remove the stage",
+                    stage.name
+                )),
             );
         }
     }
@@ -343,8 +546,12 @@ fn is_cold_junction_of_any(stages: &[Stage], i: usize) -> bool {
 /// A thermocouple's `cold_junction <stage>` must name a sensor.
 pub fn check_references(file: &Arc<SourceFile>, stages: &[Stage], findings: &mut Findings) {
     for stage in stages {
-        let Some(p) = stage.params.iter().find(|p| p.name == "cold_junction") else { continue };
-        let ParamValue::StageRef { name, span } = &p.value else { continue };
+        let Some(p) = stage.params.iter().find(|p| p.name == "cold_junction") else {
+            continue;
+        };
+        let ParamValue::StageRef { name, span } = &p.value else {
+            continue;
+        };
         match stages.iter().find(|s| &s.name == name) {
             None => {
                 let near = did_you_mean(name, stages.iter().map(|s| s.name.as_str()));
@@ -358,9 +565,13 @@ pub fn check_references(file: &Arc<SourceFile>, stages: &[Stage], findings: &mut
                 );
             }
             Some(s) if s.kind != StageKind::Sensor => findings.push(
-                Finding::new(Code::M204, &p.file, format!("`{name}` is {}, not a sensor", describe(s)))
-                    .label(*span, "expected a sensor stage")
-                    .help("`cold_junction` names the sensor that measures the cold junction"),
+                Finding::new(
+                    Code::M204,
+                    &p.file,
+                    format!("`{name}` is {}, not a sensor", with_article(&describe(s))),
+                )
+                .label(*span, "expected a sensor stage")
+                .help("`cold_junction` names the sensor that measures the cold junction"),
             ),
             Some(_) => {}
         }

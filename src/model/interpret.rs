@@ -70,7 +70,7 @@ impl Reader<'_> {
             None => Ok(()),
             Some(v) => Err(self.malformed(
                 v.span(),
-                format!("unexpected {} after the value of `{}`", v.describe(), self.name),
+                format!("`{}` has more values than it takes", self.name),
                 shape,
             )),
         }
@@ -85,14 +85,21 @@ impl Reader<'_> {
     }
 
     fn missing(&self, what: &str, shape: Shape) -> Box<Finding> {
-        let end = self.values.last().map(|v| v.span().end).unwrap_or(self.line.end);
+        let end = self
+            .values
+            .last()
+            .map(|v| v.span().end)
+            .unwrap_or(self.line.end);
         Box::new(
             Finding::new(
                 Code::P306,
                 self.cx.file,
                 format!("`{}` needs {what}", self.name),
             )
-            .label(Span::new(self.line.start, end), format!("{what} is missing"))
+            .label(
+                Span::new(self.line.start, end),
+                format!("{what} is missing"),
+            )
             .help(format!("write it as `{}`", usage(self.name, shape))),
         )
     }
@@ -100,9 +107,9 @@ impl Reader<'_> {
     fn shape(&mut self, shape: Shape) -> Checked<ParamValue> {
         match shape {
             Shape::Flag => Ok(ParamValue::Flag),
-            Shape::Measure { expect, tol, drift } => {
-                Ok(ParamValue::Measure(self.measure(expect, tol, drift, shape)?.0))
-            }
+            Shape::Measure { expect, tol, drift } => Ok(ParamValue::Measure(
+                self.measure(expect, tol, drift, shape)?.0,
+            )),
             Shape::Limit(expect) => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
             Shape::Range(expect) => match self.next().cloned() {
                 Some(Value::Range(r)) => {
@@ -196,7 +203,10 @@ impl Reader<'_> {
                 }
                 if points.len() != wanted {
                     return Err(self.missing(
-                        &format!("{wanted} calibration point{}", if wanted == 1 { "" } else { "s" }),
+                        &format!(
+                            "{wanted} calibration point{}",
+                            if wanted == 1 { "" } else { "s" }
+                        ),
                         shape,
                     ));
                 }
@@ -231,7 +241,12 @@ impl Reader<'_> {
             Some(Value::Quantity(q)) => Ok(to_si(&q, expect, point, self.cx)?.0),
             Some(v) => Err(self.malformed(
                 v.span(),
-                format!("`{}` expects {}, found {}", self.name, noun(expect, self.cx), v.describe()),
+                format!(
+                    "`{}` expects {}, found {}",
+                    self.name,
+                    noun(expect, self.cx),
+                    v.describe()
+                ),
                 shape,
             )),
             None => Err(self.missing(noun(expect, self.cx), shape)),
@@ -253,7 +268,12 @@ impl Reader<'_> {
             Some(v) => {
                 return Err(self.malformed(
                     v.span(),
-                    format!("`{}` expects {}, found {}", self.name, noun(expect, self.cx), v.describe()),
+                    format!(
+                        "`{}` expects {}, found {}",
+                        self.name,
+                        noun(expect, self.cx),
+                        v.describe()
+                    ),
                     shape,
                 ))
             }
@@ -286,10 +306,17 @@ impl Reader<'_> {
         if self.peek_word("drift") {
             let word = self.next().map(Value::span).unwrap_or_default();
             if !drift {
-                return Err(self.malformed(word, format!("`{}` takes no `drift`", self.name), shape));
+                return Err(self.malformed(
+                    word,
+                    format!("`{}` takes no `drift`", self.name),
+                    shape,
+                ));
             }
             let Some(Value::Quantity(d)) = self.next().cloned() else {
-                return Err(self.missing("a coefficient after `drift`, such as `drift 25 ppm/K`", shape));
+                return Err(self.missing(
+                    "a coefficient after `drift`, such as `drift 25 ppm/K`",
+                    shape,
+                ));
             };
             let (per_kelvin, relative) = per_kelvin(&d, dim, self.cx)?;
             m.drift = Some(Drift {
@@ -324,7 +351,11 @@ impl Reader<'_> {
             }
             Some(v) => Err(self.malformed(
                 v.span(),
-                format!("`{}` expects a limit such as `± x` or `x max`, found {}", self.name, v.describe()),
+                format!(
+                    "`{}` expects a limit such as `± x` or `x max`, found {}",
+                    self.name,
+                    v.describe()
+                ),
                 shape,
             )),
             None => Err(self.missing("a limit", shape)),
@@ -341,7 +372,11 @@ impl Reader<'_> {
                     other => other.describe().to_string(),
                 };
                 let near = did_you_mean(&text, words.iter().copied());
-                let list = words.iter().map(|w| format!("`{w}`")).collect::<Vec<_>>().join(", ");
+                let list = words
+                    .iter()
+                    .map(|w| format!("`{w}`"))
+                    .collect::<Vec<_>>()
+                    .join(", ");
                 Err(Box::new(
                     Finding::new(
                         Code::P304,
@@ -350,7 +385,9 @@ impl Reader<'_> {
                     )
                     .label(v.span(), "not one of the allowed words")
                     .help(match near {
-                        Some(n) => format!("did you mean `{n}`? `{}` takes one of {list}", self.name),
+                        Some(n) => {
+                            format!("did you mean `{n}`? `{}` takes one of {list}", self.name)
+                        }
                         None => format!("`{}` takes one of {list}", self.name),
                     }),
                 ))
@@ -362,7 +399,10 @@ impl Reader<'_> {
     fn count(&mut self, min: u32, max: u32, shape: Shape) -> Checked<u32> {
         match self.next().cloned() {
             Some(Value::Quantity(q)) => {
-                let unit_ok = q.unit.as_ref().is_none_or(|u| matches!(u.text.as_str(), "bit" | "bits"));
+                let unit_ok = q
+                    .unit
+                    .as_ref()
+                    .is_none_or(|u| matches!(u.text.as_str(), "bit" | "bits"));
                 let n = q.number;
                 if !unit_ok || n.fract() != 0.0 {
                     return Err(self.malformed(
@@ -379,14 +419,21 @@ impl Reader<'_> {
                             format!("`{}` of {} is outside {min} to {max}", self.name, q.number),
                         )
                         .label(q.span, format!("must be {min} to {max}"))
-                        .help(format!("`{}` takes a whole number from {min} to {max}", self.name)),
+                        .help(format!(
+                            "`{}` takes a whole number from {min} to {max}",
+                            self.name
+                        )),
                     ));
                 }
                 Ok(n as u32)
             }
             Some(v) => Err(self.malformed(
                 v.span(),
-                format!("`{}` expects a whole number, found {}", self.name, v.describe()),
+                format!(
+                    "`{}` expects a whole number, found {}",
+                    self.name,
+                    v.describe()
+                ),
                 shape,
             )),
             None => Err(self.missing("a whole number", shape)),
@@ -416,7 +463,10 @@ fn noun(expect: Expect, cx: &Context<'_>) -> &'static str {
         Expect::TempDiff => "a temperature difference",
         Expect::Ratio => "a plain number or a ratio",
         Expect::Decibel => "a ratio in `dB`",
-        _ => accepted(expect, cx).first().map(|d| d.name().noun).unwrap_or("a quantity"),
+        _ => accepted(expect, cx)
+            .first()
+            .map(|d| d.name().noun)
+            .unwrap_or("a quantity"),
     }
 }
 
@@ -428,7 +478,11 @@ fn example(expect: Expect, cx: &Context<'_>) -> String {
         Expect::Decibel => "100 dB".into(),
         Expect::PerKelvin(d) => {
             let n = (d / Dim::TEMPERATURE).name();
-            if n.example.is_empty() { "25 ppm/K".into() } else { n.example.into() }
+            if n.example.is_empty() {
+                "25 ppm/K".into()
+            } else {
+                n.example.into()
+            }
         }
         _ => accepted(expect, cx)
             .first()
@@ -452,7 +506,11 @@ fn usage(name: &str, shape: Shape) -> String {
         Expect::Measurand => "<value in the measurand's unit>".into(),
         Expect::PerKelvin(d) => {
             let n = (d / Dim::TEMPERATURE).name();
-            if n.example.is_empty() { "25 ppm/K".into() } else { n.example.into() }
+            if n.example.is_empty() {
+                "25 ppm/K".into()
+            } else {
+                n.example.into()
+            }
         }
         Expect::OneOf(ds) => ds[0].name().example.to_string(),
     };
@@ -496,7 +554,11 @@ fn to_si(q: &QuantityLit, expect: Expect, point: bool, cx: &Context<'_>) -> Chec
         return Err(Box::new(
             Finding::new(Code::U104, cx.file, "`dB` is not allowed here")
                 .label(span, "a logarithmic ratio")
-                .help(format!("this value expects {}, such as `{}`", noun(expect, cx), example(expect, cx))),
+                .help(format!(
+                    "this value expects {}, such as `{}`",
+                    noun(expect, cx),
+                    example(expect, cx)
+                )),
         ));
     }
     if dims.is_empty() {
@@ -553,9 +615,15 @@ fn unit_error(e: UnitError, span: Span, cx: &Context<'_>) -> Box<Finding> {
                 Some(s) => format!("did you mean `{s}`? units are case-sensitive"),
                 None => "units are SI symbols with SI prefixes, such as `mV`, `kohm`, `ppm/K`, `nV/rtHz`".to_string(),
             }),
-        _ => Finding::new(Code::U104, cx.file, e.to_string())
+        UnitError::NotCombinable { .. } => Finding::new(Code::U104, cx.file, e.to_string())
             .label(span, "not allowed here")
-            .help("`dB` and `degC` stand alone; write coefficients per kelvin, such as `uV/K`"),
+            .help("`dB` stands alone after a number, such as `cmrr 110 dB`"),
+        UnitError::NoPrefix { .. } => Finding::new(Code::U104, cx.file, e.to_string())
+            .label(span, "no prefix allowed")
+            .help("write the unit without a prefix, such as `25 degC`, `0.1 %` or `15 ppm`"),
+        UnitError::Power { .. } => Finding::new(Code::U104, cx.file, e.to_string())
+            .label(span, "power out of range")
+            .help("unit powers run from -4 to 4, such as `Hz^-1`"),
     };
     Box::new(f)
 }
@@ -614,9 +682,13 @@ fn tolerance(
             let (m, rel_m) = half(minus)?;
             if rel_p != rel_m {
                 return Err(Box::new(
-                    Finding::new(Code::U102, cx.file, "one limit is relative and the other absolute")
-                        .label(t.span, "mixed limits")
-                        .help("write both limits in the same unit, such as `+0.1 % -0.2 %`"),
+                    Finding::new(
+                        Code::U102,
+                        cx.file,
+                        "one limit is relative and the other absolute",
+                    )
+                    .label(t.span, "mixed limits")
+                    .help("write both limits in the same unit, such as `+0.1 % -0.2 %`"),
                 ));
             }
             (p.abs(), m.abs(), rel_p)
@@ -648,9 +720,17 @@ fn check_plausible(
     let (nominal, tol, span) = match value {
         ParamValue::Measure(m) => (m.nominal, m.tolerance.as_ref(), m.span),
         ParamValue::At { value, .. } => (value.nominal, value.tolerance.as_ref(), value.span),
-        ParamValue::Limit(t) | ParamValue::Calibrate { uncertainty: Some(t), .. } => {
+        ParamValue::Limit(t)
+        | ParamValue::Calibrate {
+            uncertainty: Some(t),
+            ..
+        } => {
             if t.relative && t.plus.max(t.minus) >= 1.0 {
-                return fail(t.span, format!("tolerance of `{name}` is 100 % or more"), "a relative tolerance must stay below 100 %".into());
+                return fail(
+                    t.span,
+                    format!("tolerance of `{name}` is 100 % or more"),
+                    "a relative tolerance must stay below 100 %".into(),
+                );
             }
             return Ok(());
         }
@@ -665,11 +745,22 @@ fn check_plausible(
         _ => None,
     };
     if let Some(why) = bad {
-        return fail(span, format!("`{name}` {why}"), format!("give `{name}` a value that {}", why.replace("must", "is").replace("is not be", "is not")));
+        return fail(
+            span,
+            format!("`{name}` {why}"),
+            format!(
+                "give `{name}` a value that {}",
+                why.replace("must", "is").replace("is not be", "is not")
+            ),
+        );
     }
     if let Some(t) = tol {
         if t.relative && t.plus.max(t.minus) >= 1.0 {
-            return fail(t.span, format!("tolerance of `{name}` is 100 % or more"), "a relative tolerance must stay below 100 %; check the unit".into());
+            return fail(
+                t.span,
+                format!("tolerance of `{name}` is 100 % or more"),
+                "a relative tolerance must stay below 100 %; check the unit".into(),
+            );
         }
         if plausible == Plausible::Positive && !t.relative && nominal - t.minus <= 0.0 {
             return fail(

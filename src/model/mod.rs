@@ -26,24 +26,40 @@ use crate::syntax::Ast;
 
 /// Resolves every chain of a parsed file. `base` is the spec's folder,
 /// against which `use` paths resolve.
-pub fn resolve(file: &Arc<SourceFile>, ast: &Ast, base: &Path, parts: &mut PartsCache) -> (Vec<Chain>, Findings) {
+pub fn resolve(
+    file: &Arc<SourceFile>,
+    ast: &Ast,
+    base: &Path,
+    parts: &mut PartsCache,
+) -> (Vec<Chain>, Findings) {
     let mut findings = Findings::new();
     let mut library: Vec<parts::Part> = Vec::new();
+    // A part missing from a library that failed to load is not a finding
+    // of its own: the library's finding says why.
+    let mut library_broken = false;
     for u in &ast.uses {
         let path = base.join(&u.path.value);
         let shown = shown_path(file.name(), &u.path.value);
         let loaded = parts.load(&path, &shown);
-        if !loaded.reported.swap(true, std::sync::atomic::Ordering::Relaxed) {
+        if !loaded
+            .reported
+            .swap(true, std::sync::atomic::Ordering::Relaxed)
+        {
             for f in loaded.findings.iter() {
                 let mut f = f.clone();
                 if f.labels.is_empty() {
                     // A file that could not be read has nothing to point at:
                     // point at the `use` line instead.
-                    f = Finding { file: Arc::clone(file), ..f }.label(u.path.span, "used here");
+                    f = Finding {
+                        file: Arc::clone(file),
+                        ..f
+                    }
+                    .label(u.path.span, "used here");
                 }
                 findings.push(f);
             }
         }
+        library_broken |= loaded.findings.has_errors();
         library.extend(loaded.parts.iter().cloned());
     }
 
@@ -51,10 +67,14 @@ pub fn resolve(file: &Arc<SourceFile>, ast: &Ast, base: &Path, parts: &mut Parts
     for decl in &ast.chains {
         if let Some(first) = chains.iter().find(|c| c.name == decl.name.name) {
             findings.push(
-                Finding::new(Code::M209, file, format!("two chains are named `{}`", decl.name.name))
-                    .label(decl.name.span, "second chain")
-                    .label(first.name_span, "first chain")
-                    .help("give each chain of a file its own name"),
+                Finding::new(
+                    Code::M209,
+                    file,
+                    format!("two chains are named `{}`", decl.name.name),
+                )
+                .label(decl.name.span, "second chain")
+                .label(first.name_span, "first chain")
+                .help("give each chain of a file its own name"),
             );
         }
         let settings = settings::resolve(file, decl, &mut findings);
@@ -63,36 +83,74 @@ pub fn resolve(file: &Arc<SourceFile>, ast: &Ast, base: &Path, parts: &mut Parts
         for s in &decl.stages {
             if let Some(first) = stages.iter().find(|x| x.name == s.name.name) {
                 findings.push(
-                    Finding::new(Code::M201, file, format!("two stages are named `{}`", s.name.name))
-                        .label(s.name.span, "second stage")
-                        .label(first.name_span, "first stage")
-                        .help("stage names are unique within a chain; rename one"),
+                    Finding::new(
+                        Code::M201,
+                        file,
+                        format!("two stages are named `{}`", s.name.name),
+                    )
+                    .label(s.name.span, "second stage")
+                    .label(first.name_span, "first stage")
+                    .help("stage names are unique within a chain; rename one"),
                 );
                 continue;
             }
+            let mut part_failed = false;
             let part = s.part.as_ref().and_then(|p| {
                 let found = library.iter().find(|l| l.name == p.name);
                 if found.is_none() {
-                    findings.push(unknown_part(file, ast, &library, p));
+                    part_failed = true;
+                    if !library_broken {
+                        findings.push(unknown_part(file, ast, &library, p));
+                    }
                 } else if let Some(part) = found.filter(|l| l.kind != s.kind) {
                     findings.push(
                         Finding::new(
                             Code::L404,
                             file,
-                            format!("part `{}` is {} {}, not {} {}", p.name, article(part.kind.keyword()), part.kind.keyword(), article(s.kind.keyword()), s.kind.keyword()),
+                            format!(
+                                "part `{}` is {} {}, not {} {}",
+                                p.name,
+                                article(part.kind.keyword()),
+                                part.kind.keyword(),
+                                article(s.kind.keyword()),
+                                s.kind.keyword()
+                            ),
                         )
-                        .label(p.span, format!("a {} part", part.kind.keyword()))
-                        .label(s.kind_span, format!("a {} stage", s.kind.keyword()))
-                        .help(format!("use a {} part here, or change the part's `kind`", s.kind.keyword())),
+                        .label(
+                            p.span,
+                            format!(
+                                "{} {} part",
+                                article(part.kind.keyword()),
+                                part.kind.keyword()
+                            ),
+                        )
+                        .label(
+                            s.kind_span,
+                            format!("{} {} stage", article(s.kind.keyword()), s.kind.keyword()),
+                        )
+                        .help(format!(
+                            "use {} {} part here, or change the part's `kind`",
+                            article(s.kind.keyword()),
+                            s.kind.keyword()
+                        )),
                     );
+                    part_failed = true;
                     return None;
                 }
+                part_failed |= found.is_some_and(|p| p.rejected);
                 found
             });
-            stages.push(stage::resolve(file, s, part, measurand, &mut findings));
+            stages.push(stage::resolve(
+                file,
+                s,
+                part,
+                part_failed,
+                measurand,
+                &mut findings,
+            ));
         }
         graph::check_references(file, &stages, &mut findings);
-        let connections = graph::connect(file, &stages, &decl.edges, &mut findings);
+        let connections = graph::connect(file, &mut stages, &decl.edges, &mut findings);
         let reference = settings.reference.unwrap_or(DEFAULT_REFERENCE_K);
         chains.push(Chain {
             name: decl.name.name.clone(),
@@ -112,7 +170,7 @@ pub fn resolve(file: &Arc<SourceFile>, ast: &Ast, base: &Path, parts: &mut Parts
     (chains, findings)
 }
 
-fn article(word: &str) -> &'static str {
+pub(crate) fn article(word: &str) -> &'static str {
     if word.starts_with(['a', 'e', 'i', 'o', 'u']) {
         "an"
     } else {
@@ -120,11 +178,20 @@ fn article(word: &str) -> &'static str {
     }
 }
 
-fn unknown_part(file: &Arc<SourceFile>, ast: &Ast, library: &[parts::Part], p: &crate::syntax::ast::Ident) -> Finding {
+fn unknown_part(
+    file: &Arc<SourceFile>,
+    ast: &Ast,
+    library: &[parts::Part],
+    p: &crate::syntax::ast::Ident,
+) -> Finding {
     if ast.uses.is_empty() {
-        return Finding::new(Code::L406, file, format!("part `{}` is used but no parts file is loaded", p.name))
-            .label(p.span, "from which library?")
-            .help("add `use \"parts.yaml\"` at the top of the file");
+        return Finding::new(
+            Code::L406,
+            file,
+            format!("part `{}` is used but no parts file is loaded", p.name),
+        )
+        .label(p.span, "from which library?")
+        .help("add `use \"parts.yaml\"` at the top of the file");
     }
     let near = did_you_mean(&p.name, library.iter().map(|l| l.name.as_str()));
     Finding::new(Code::L403, file, format!("no part is named `{}`", p.name))
@@ -133,7 +200,11 @@ fn unknown_part(file: &Arc<SourceFile>, ast: &Ast, library: &[parts::Part], p: &
             Some(n) => format!("did you mean `{n}`?"),
             None => format!(
                 "the loaded parts are {}",
-                library.iter().map(|l| format!("`{}`", l.name)).collect::<Vec<_>>().join(", ")
+                library
+                    .iter()
+                    .map(|l| format!("`{}`", l.name))
+                    .collect::<Vec<_>>()
+                    .join(", ")
             ),
         })
 }

@@ -28,6 +28,8 @@ pub struct Part {
     pub params: Vec<Param>,
     pub file: Arc<SourceFile>,
     pub name_span: Span,
+    /// Some of its values were rejected (and reported).
+    pub rejected: bool,
 }
 
 /// Loaded parts files of one run, by path, so a library shared by many
@@ -64,8 +66,12 @@ fn load_file(path: &Path, shown: &str) -> Loaded {
         Err(e) => {
             let file = SourceFile::new(shown, "");
             loaded.findings.push(
-                Finding::new(Code::L401, &file, format!("cannot read parts file `{shown}`: {e}"))
-                    .help("check the path in the `use` line; it is relative to the spec's folder"),
+                Finding::new(
+                    Code::L401,
+                    &file,
+                    format!("cannot read parts file `{shown}`: {e}"),
+                )
+                .help("check the path in the `use` line; it is relative to the spec's folder"),
             );
             return loaded;
         }
@@ -76,7 +82,10 @@ fn load_file(path: &Path, shown: &str) -> Loaded {
             Finding::new(
                 Code::L402,
                 &file,
-                format!("parts file is {} bytes; the limit is {MAX_PARTS_BYTES}", bytes.len()),
+                format!(
+                    "parts file is {} bytes; the limit is {MAX_PARTS_BYTES}",
+                    bytes.len()
+                ),
             )
             .help("split the library into several files"),
         );
@@ -102,13 +111,25 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
     let doc: serde_yaml::Value = match serde_yaml::from_str(file.text()) {
         Ok(v) => v,
         Err(e) => {
-            let at = e.location().map(|l| l.index()).unwrap_or(0).min(file.text().len());
+            let at = e
+                .location()
+                .map(|l| l.index())
+                .unwrap_or(0)
+                .min(file.text().len());
             let message = e.to_string();
-            let message = message.split(" at line ").next().unwrap_or(&message).to_string();
+            let message = message
+                .split(" at line ")
+                .next()
+                .unwrap_or(&message)
+                .to_string();
             loaded.findings.push(
-                Finding::new(Code::L402, file, format!("parts file is not valid YAML: {}", message.to_lowercase()))
-                    .label(Span::new(at, at), "here")
-                    .help("a parts file is a YAML mapping `parts:` of part names to parameter maps"),
+                Finding::new(
+                    Code::L402,
+                    file,
+                    format!("parts file is not valid YAML: {}", message.to_lowercase()),
+                )
+                .label(Span::new(at, at), "here")
+                .help("a parts file is a YAML mapping `parts:` of part names to parameter maps"),
             );
             return;
         }
@@ -116,7 +137,10 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
     let Some(parts) = doc.get("parts").and_then(|p| p.as_mapping()) else {
         loaded.findings.push(
             Finding::new(Code::L402, file, "parts file has no `parts:` mapping")
-                .label(Span::new(0, first_line_len(file)), "expected `parts:` at the top")
+                .label(
+                    Span::new(0, first_line_len(file)),
+                    "expected `parts:` at the top",
+                )
                 .help("start the file with `parts:` and list parts under it"),
         );
         return;
@@ -126,24 +150,40 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
         let (name_span, body_start) = locate_key(file.text(), 0, name);
         let Some(body) = body.as_mapping() else {
             loaded.findings.push(
-                Finding::new(Code::L402, file, format!("part `{name}` is not a mapping of parameters"))
-                    .label(name_span, "expected parameter lines under this name")
-                    .help("indent `kind:` and the parameters under the part's name"),
+                Finding::new(
+                    Code::L402,
+                    file,
+                    format!("part `{name}` is not a mapping of parameters"),
+                )
+                .label(name_span, "expected parameter lines under this name")
+                .help("indent `kind:` and the parameters under the part's name"),
             );
             continue;
         };
         let kind = body.get("kind").and_then(|k| k.as_str());
         let Some(kind) = kind.and_then(StageKind::from_keyword) else {
             let (span, _) = locate_key(file.text(), body_start, "kind");
-            let kinds = StageKind::ALL.iter().map(|k| format!("`{}`", k.keyword())).collect::<Vec<_>>().join(", ");
+            let kinds = StageKind::ALL
+                .iter()
+                .map(|k| format!("`{}`", k.keyword()))
+                .collect::<Vec<_>>()
+                .join(", ");
             loaded.findings.push(
-                Finding::new(Code::L402, file, format!("part `{name}` has no valid `kind`"))
-                    .label(if kind.is_some() { span } else { name_span }, "`kind` missing or unknown")
-                    .help(format!("add `kind:` with one of {kinds}")),
+                Finding::new(
+                    Code::L402,
+                    file,
+                    format!("part `{name}` has no valid `kind`"),
+                )
+                .label(
+                    if kind.is_some() { span } else { name_span },
+                    "`kind` missing or unknown",
+                )
+                .help(format!("add `kind:` with one of {kinds}")),
             );
             continue;
         };
         let mut params = Vec::new();
+        let mut rejected = false;
         for (key, value) in body {
             let Some(key) = key.as_str() else { continue };
             if key == "kind" || key == "description" {
@@ -157,10 +197,17 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
                 serde_yaml::Value::Bool(b) => b.to_string(),
                 _ => {
                     loaded.findings.push(
-                        Finding::new(Code::L405, file, format!("`{key}` of part `{name}` is not a single value"))
-                            .label(key_span, "a list or mapping")
-                            .help(format!("write the value on one line, as in a spec: `{key}: 4 ± 1 %`")),
+                        Finding::new(
+                            Code::L405,
+                            file,
+                            format!("`{key}` of part `{name}` is not a single value"),
+                        )
+                        .label(key_span, "a list or mapping")
+                        .help(format!(
+                            "write the value on one line, as in a spec: `{key}: 4 ± 1 %`"
+                        )),
                     );
+                    rejected = true;
                     continue;
                 }
             };
@@ -169,6 +216,7 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
             let failed = found.has_errors();
             loaded.findings.extend(found);
             if failed {
+                rejected = true;
                 continue;
             }
             params.push(Param {
@@ -186,6 +234,7 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
             params,
             file: Arc::clone(file),
             name_span,
+            rejected,
         });
     }
 }
@@ -206,7 +255,9 @@ fn locate_key(text: &str, from: usize, key: &str) -> (Span, usize) {
         }
         let trimmed = line.trim_start();
         let indent = line.len() - trimmed.len();
-        let bare = trimmed.strip_prefix(key).filter(|r| r.trim_start().starts_with(':'));
+        let bare = trimmed
+            .strip_prefix(key)
+            .filter(|r| r.trim_start().starts_with(':'));
         let quoted = [("\"", "\""), ("'", "'")].iter().find_map(|(o, c)| {
             trimmed
                 .strip_prefix(o)
@@ -220,7 +271,10 @@ fn locate_key(text: &str, from: usize, key: &str) -> (Span, usize) {
             return (Span::new(key_start, colon), colon + 1);
         }
     }
-    (Span::new(from.min(text.len()), from.min(text.len())), from.min(text.len()))
+    (
+        Span::new(from.min(text.len()), from.min(text.len())),
+        from.min(text.len()),
+    )
 }
 
 /// Where a scalar value's text starts, when it is written plainly or

@@ -16,7 +16,14 @@ pub enum Port {
 }
 
 impl Port {
-    pub const ALL: [Port; 6] = [Port::In, Port::Exc, Port::Arm, Port::Ref, Port::Cj, Port::Out];
+    pub const ALL: [Port; 6] = [
+        Port::In,
+        Port::Exc,
+        Port::Arm,
+        Port::Ref,
+        Port::Cj,
+        Port::Out,
+    ];
 
     pub fn name(self) -> &'static str {
         match self {
@@ -80,19 +87,30 @@ const fn input(port: Port, accepts: &'static [Signal], required: bool) -> InputS
 const EXCITATIONS: &[Signal] = &[Signal::CurrentExcitation, Signal::VoltageExcitation];
 
 pub fn is_resistive(model: Option<&str>) -> bool {
-    matches!(model, Some("rtd" | "thermistor" | "strain_gauge" | "resistor"))
+    matches!(
+        model,
+        Some("rtd" | "thermistor" | "strain_gauge" | "resistor")
+    )
 }
 
 /// The inputs of a stage, default first. `params` decide the optional
 /// ones (an ADC needs `ref` only without `vref`).
-pub fn inputs(kind: StageKind, model: Option<&str>, param: &dyn Fn(&str) -> Option<ParamValue>) -> Vec<InputSpec> {
+pub fn inputs(
+    kind: StageKind,
+    model: Option<&str>,
+    param: &dyn Fn(&str) -> Option<ParamValue>,
+) -> Vec<InputSpec> {
     match kind {
         StageKind::Excitation => vec![],
         StageKind::Sensor => match model {
             m if is_resistive(m) => vec![input(Port::In, &[Signal::CurrentExcitation], false)],
             Some("thermocouple") => vec![],
             Some("transducer") => {
-                vec![input(Port::In, EXCITATIONS, transducer_is_ratiometric(param))]
+                vec![input(
+                    Port::In,
+                    EXCITATIONS,
+                    transducer_is_ratiometric(param),
+                )]
             }
             _ => vec![input(Port::In, &[Signal::VoltageExcitation], false)],
         },
@@ -134,7 +152,9 @@ pub fn output(kind: StageKind, model: Option<&str>, driven_by_current: bool) -> 
         StageKind::Excitation => Signal::CurrentExcitation,
         StageKind::Sensor if is_resistive(model) && !driven_by_current => Signal::Element,
         StageKind::Sensor if model == Some("ic_current") => Signal::CurrentExcitation,
-        StageKind::Sensor | StageKind::Bridge | StageKind::Amplifier | StageKind::Filter => Signal::Voltage,
+        StageKind::Sensor | StageKind::Bridge | StageKind::Amplifier | StageKind::Filter => {
+            Signal::Voltage
+        }
         StageKind::Adc => Signal::Code,
         StageKind::Convert => Signal::Reading,
     }

@@ -29,18 +29,28 @@ pub enum Expect {
 pub enum Shape {
     /// `nominal [± tol] [normal] [max] [drift d]`; `tol`/`drift` say
     /// whether a tolerance and a `drift` clause are accepted.
-    Measure { expect: Expect, tol: bool, drift: bool },
+    Measure {
+        expect: Expect,
+        tol: bool,
+        drift: bool,
+    },
     /// A bound with nominal zero: `± x`, `x max` or `x`.
     Limit(Expect),
     Range(Expect),
     /// One word of the list.
     Words(&'static [&'static str]),
     /// An integer in `min..=max`.
-    Count { min: u32, max: u32 },
+    Count {
+        min: u32,
+        max: u32,
+    },
     /// Exactly `n` plain numbers.
     Numbers(usize),
     /// `value at point`.
-    At { value: Expect, at: Expect },
+    At {
+        value: Expect,
+        at: Expect,
+    },
     /// `exact | linear | table n | poly n`
     Method,
     /// `offset at T ± u` or `two_point at T1, T2 ± u`
@@ -144,12 +154,12 @@ const SECOND: Expect = Expect::Dim(Dim::TIME);
 const HERTZ: Expect = Expect::Dim(Dim::FREQUENCY);
 const FARAD: Expect = Expect::Dim(Dim::CAPACITANCE);
 
-
 const VOLTAGE_NOISE: Expect = Expect::OneOf(&[Dim::VOLTAGE, Dim::VOLTAGE_DENSITY]);
 const CURRENT_NOISE: Expect = Expect::OneOf(&[Dim::CURRENT, Dim::CURRENT_DENSITY]);
 
 const TIME_CONSTANT: ParamSpec = p("time_constant", plain(SECOND)).non_negative();
-const DISSIPATION: ParamSpec = p("dissipation", toleranced(Expect::Dim(Dim::DISSIPATION))).positive();
+const DISSIPATION: ParamSpec =
+    p("dissipation", toleranced(Expect::Dim(Dim::DISSIPATION))).positive();
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
 
 pub const RTD_CURVES: &[&str] = &[
@@ -235,8 +245,17 @@ static MODELS: &[ModelSpec] = &[
         model: Some("ic_voltage"),
         model_shape: Shape::Flag,
         params: &[
-            p("slope", toleranced(Expect::PerKelvin(Dim::VOLTAGE))).required().non_zero(),
-            p("output", Shape::At { value: VOLT, at: Expect::Temperature }).required(),
+            p("slope", toleranced(Expect::PerKelvin(Dim::VOLTAGE)))
+                .required()
+                .non_zero(),
+            p(
+                "output",
+                Shape::At {
+                    value: VOLT,
+                    at: Expect::Temperature,
+                },
+            )
+            .required(),
             p("accuracy", Shape::Limit(Expect::TempDiff)),
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
             p("output_resistance", plain(OHM)).non_negative(),
@@ -251,7 +270,9 @@ static MODELS: &[ModelSpec] = &[
         model: Some("ic_current"),
         model_shape: Shape::Flag,
         params: &[
-            p("slope", toleranced(Expect::PerKelvin(Dim::CURRENT))).required().positive(),
+            p("slope", toleranced(Expect::PerKelvin(Dim::CURRENT)))
+                .required()
+                .positive(),
             p("accuracy", Shape::Limit(Expect::TempDiff)),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
@@ -265,7 +286,9 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p("r", measure(OHM)).required().positive(),
-            p("gauge_factor", toleranced(Expect::Ratio)).required().positive(),
+            p("gauge_factor", toleranced(Expect::Ratio))
+                .required()
+                .positive(),
             TIME_CONSTANT,
         ],
         exclusive: &[],
@@ -284,7 +307,10 @@ static MODELS: &[ModelSpec] = &[
                 },
             )
             .required(),
-            p("zero", Shape::Limit(Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE]))),
+            p(
+                "zero",
+                Shape::Limit(Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE])),
+            ),
             p("nonlinearity", Shape::Limit(Expect::Ratio)),
             p("hysteresis", Shape::Limit(Expect::Ratio)),
             p("zero_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
@@ -345,7 +371,10 @@ static MODELS: &[ModelSpec] = &[
         params: &[
             p("gain", toleranced(Expect::Ratio)).required().positive(),
             p("offset", Shape::Limit(VOLT)),
-            p("offset_drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
+            p(
+                "offset_drift",
+                Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE)),
+            ),
             p("gain_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("noise", plain(Expect::Dim(Dim::VOLTAGE_DENSITY))).non_negative(),
             p("noise_corner", plain(HERTZ)).non_negative(),
@@ -398,7 +427,13 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p("method", Shape::Method),
-            p("average", Shape::Count { min: 1, max: 1_000_000 }),
+            p(
+                "average",
+                Shape::Count {
+                    min: 1,
+                    max: 1_000_000,
+                },
+            ),
             p("calibrate", Shape::Calibrate),
         ],
         exclusive: &[],
@@ -427,7 +462,9 @@ impl ModelSpec {
 
     /// Every name a parameter line may start with in this model.
     pub fn names(&self) -> impl Iterator<Item = &'static str> + '_ {
-        self.model.into_iter().chain(self.params.iter().map(|p| p.name))
+        self.model
+            .into_iter()
+            .chain(self.params.iter().map(|p| p.name))
     }
 }
 

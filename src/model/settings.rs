@@ -44,12 +44,17 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
     ordered.sort_by_key(|s| s.kind != SettingKind::Measurand);
     for setting in ordered {
         let sub = match setting.kind {
-            SettingKind::Require => first_word(&setting.values).and_then(|w| REQUIREMENTS.iter().copied().find(|r| *r == w)),
+            SettingKind::Require => first_word(&setting.values)
+                .and_then(|w| REQUIREMENTS.iter().copied().find(|r| *r == w)),
             _ => None,
         };
-        let repeatable = setting.kind == SettingKind::Alarm || (setting.kind == SettingKind::Require && sub.is_none());
+        let repeatable = setting.kind == SettingKind::Alarm
+            || (setting.kind == SettingKind::Require && sub.is_none());
         if !repeatable {
-            if let Some((_, _, first)) = seen.iter().find(|(k, s, _)| *k == setting.kind && *s == sub) {
+            if let Some((_, _, first)) = seen
+                .iter()
+                .find(|(k, s, _)| *k == setting.kind && *s == sub)
+            {
                 let what = match sub {
                     Some(s) => format!("require {s}"),
                     None => setting.kind.keyword().to_string(),
@@ -75,15 +80,31 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
                     out.title = Some(t.value.clone());
                     Ok(())
                 }
-                _ => Err(malformed(file, setting, "a string, such as `title \"Cold store return air\"`")),
+                _ => Err(malformed(
+                    file,
+                    setting,
+                    "a string, such as `title \"Cold store return air\"`",
+                )),
             },
             SettingKind::Measurand => measurand(file, setting).map(|m| out.measurand = Some(m)),
             SettingKind::Ambient => {
                 let shape = match setting.values.first() {
                     Some(Value::Range(_)) => Shape::Range(Expect::Temperature),
-                    _ => Shape::Measure { expect: Expect::Temperature, tol: false, drift: false },
+                    _ => Shape::Measure {
+                        expect: Expect::Temperature,
+                        tol: false,
+                        drift: false,
+                    },
                 };
-                interpret("ambient", shape, Plausible::Positive, &setting.values, setting.span, &cx).map(|v| {
+                interpret(
+                    "ambient",
+                    shape,
+                    Plausible::Positive,
+                    &setting.values,
+                    setting.span,
+                    &cx,
+                )
+                .map(|v| {
                     out.ambient = Some(match v {
                         ParamValue::Range { low, high } => (low, high),
                         ParamValue::Measure(m) => (m.nominal, m.nominal),
@@ -93,7 +114,11 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
             }
             SettingKind::Reference => interpret(
                 "reference",
-                Shape::Measure { expect: Expect::Temperature, tol: false, drift: false },
+                Shape::Measure {
+                    expect: Expect::Temperature,
+                    tol: false,
+                    drift: false,
+                },
                 Plausible::Positive,
                 &setting.values,
                 setting.span,
@@ -111,12 +136,19 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
             findings.push(*f);
         }
     }
-    let written = chain.settings.iter().any(|s| s.kind == SettingKind::Measurand);
+    let written = chain
+        .settings
+        .iter()
+        .any(|s| s.kind == SettingKind::Measurand);
     if out.measurand.is_none() && !written && !chain.stages.is_empty() {
         findings.push(
-            Finding::new(Code::P311, file, format!("chain `{}` has no `measurand`", chain.name.name))
-                .label(chain.name.span, "what does this chain measure?")
-                .help("add a line such as `measurand temperature -30 degC .. 15 degC`"),
+            Finding::new(
+                Code::P311,
+                file,
+                format!("chain `{}` has no `measurand`", chain.name.name),
+            )
+            .label(chain.name.span, "what does this chain measure?")
+            .help("add a line such as `measurand temperature -30 degC .. 15 degC`"),
         );
     }
     out
@@ -131,9 +163,13 @@ fn first_word(values: &[Value]) -> Option<&str> {
 
 fn malformed(file: &Arc<SourceFile>, setting: &Setting, expected: &str) -> Box<Finding> {
     Box::new(
-        Finding::new(Code::P306, file, format!("`{}` expects {expected}", setting.kind.keyword()))
-            .label(setting.span, "malformed")
-            .help(format!("write it as {expected}")),
+        Finding::new(
+            Code::P306,
+            file,
+            format!("`{}` expects {expected}", setting.kind.keyword()),
+        )
+        .label(setting.span, "malformed")
+        .help(format!("write it as {expected}")),
     )
 }
 
@@ -141,18 +177,32 @@ fn measurand(file: &Arc<SourceFile>, setting: &Setting) -> Result<Measurand, Box
     let example = "`measurand temperature -30 degC .. 15 degC`";
     let (word, range) = match setting.values.as_slice() {
         [Value::Word(w), Value::Range(r)] => (w, r),
-        _ => return Err(malformed(file, setting, &format!("a quantity and a range, such as {example}"))),
+        _ => {
+            return Err(malformed(
+                file,
+                setting,
+                &format!("a quantity and a range, such as {example}"),
+            ))
+        }
     };
     let Some(&(_, dim)) = QUANTITIES.iter().find(|(q, _)| *q == word.name) else {
         let near = did_you_mean(&word.name, QUANTITIES.iter().map(|(q, _)| *q));
-        let list = QUANTITIES.iter().map(|(q, _)| format!("`{q}`")).collect::<Vec<_>>().join(", ");
+        let list = QUANTITIES
+            .iter()
+            .map(|(q, _)| format!("`{q}`"))
+            .collect::<Vec<_>>()
+            .join(", ");
         return Err(Box::new(
-            Finding::new(Code::P309, file, format!("`{}` is not a measurand quantity", word.name))
-                .label(word.span, "unknown quantity")
-                .help(match near {
-                    Some(n) => format!("did you mean `{n}`? quantities: {list}"),
-                    None => format!("quantities: {list}"),
-                }),
+            Finding::new(
+                Code::P309,
+                file,
+                format!("`{}` is not a measurand quantity", word.name),
+            )
+            .label(word.span, "unknown quantity")
+            .help(match near {
+                Some(n) => format!("did you mean `{n}`? quantities: {list}"),
+                None => format!("quantities: {list}"),
+            }),
         ));
     };
     let unit_text = range
@@ -166,7 +216,10 @@ fn measurand(file: &Arc<SourceFile>, setting: &Setting) -> Result<Measurand, Box
         Some(d) => d,
         None => parse_unit(&unit_text).map(|u| u.dim).unwrap_or(Dim::NONE),
     };
-    let cx = Context { file, measurand: Some(dim) };
+    let cx = Context {
+        file,
+        measurand: Some(dim),
+    };
     let value = interpret(
         "measurand",
         Shape::Range(Expect::Measurand),
@@ -191,7 +244,11 @@ fn measurand(file: &Arc<SourceFile>, setting: &Setting) -> Result<Measurand, Box
 fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<Finding>> {
     let file = cx.file;
     let Some(Value::Word(kind)) = setting.values.first() else {
-        return Err(malformed(file, setting, "a requirement, such as `require accuracy ± 0.3 K`"));
+        return Err(malformed(
+            file,
+            setting,
+            "a requirement, such as `require accuracy ± 0.3 K`",
+        ));
     };
     let Some(&name) = REQUIREMENTS.iter().find(|r| **r == kind.name) else {
         let near = did_you_mean(&kind.name, REQUIREMENTS.iter().copied());
@@ -225,10 +282,24 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
     }
     let shape = match name {
         "accuracy" | "resolution" => Shape::Limit(Expect::Measurand),
-        "response" => Shape::Measure { expect: Expect::Dim(Dim::TIME), tol: false, drift: false },
-        _ => Shape::At { value: Expect::Decibel, at: Expect::Dim(Dim::FREQUENCY) },
+        "response" => Shape::Measure {
+            expect: Expect::Dim(Dim::TIME),
+            tol: false,
+            drift: false,
+        },
+        _ => Shape::At {
+            value: Expect::Decibel,
+            at: Expect::Dim(Dim::FREQUENCY),
+        },
     };
-    let value = interpret(&format!("require {name}"), shape, Plausible::Positive, values, setting.span, cx)?;
+    let value = interpret(
+        &format!("require {name}"),
+        shape,
+        Plausible::Positive,
+        values,
+        setting.span,
+        cx,
+    )?;
     Ok(Requirement {
         kind: name,
         value,
@@ -240,22 +311,34 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
 fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {
     let file = cx.file;
     let Some(Value::Word(side)) = setting.values.first() else {
-        return Err(malformed(file, setting, "a side and a limit, such as `alarm high 8 degC`"));
+        return Err(malformed(
+            file,
+            setting,
+            "a side and a limit, such as `alarm high 8 degC`",
+        ));
     };
     if side.name != "high" && side.name != "low" {
         let near = did_you_mean(&side.name, ["high", "low"].into_iter());
         return Err(Box::new(
-            Finding::new(Code::P310, file, format!("`{}` is not an alarm side", side.name))
-                .label(side.span, "expected `high` or `low`")
-                .help(match near {
-                    Some(n) => format!("did you mean `{n}`?"),
-                    None => "write `alarm high <limit>` or `alarm low <limit>`".to_string(),
-                }),
+            Finding::new(
+                Code::P310,
+                file,
+                format!("`{}` is not an alarm side", side.name),
+            )
+            .label(side.span, "expected `high` or `low`")
+            .help(match near {
+                Some(n) => format!("did you mean `{n}`?"),
+                None => "write `alarm high <limit>` or `alarm low <limit>`".to_string(),
+            }),
         ));
     }
     let value = interpret(
         "alarm",
-        Shape::Measure { expect: Expect::Measurand, tol: false, drift: false },
+        Shape::Measure {
+            expect: Expect::Measurand,
+            tol: false,
+            drift: false,
+        },
         Plausible::Any,
         &setting.values[1..],
         setting.span,

@@ -22,6 +22,7 @@ pub fn resolve(
     file: &Arc<SourceFile>,
     decl: &StageDecl,
     part: Option<&Part>,
+    part_failed: bool,
     measurand: Option<crate::units::Dim>,
     findings: &mut Findings,
 ) -> Stage {
@@ -29,10 +30,17 @@ pub fn resolve(
     for param in &decl.params {
         if let Some(first) = lines.iter().find(|l| l.param.name.name == param.name.name) {
             findings.push(
-                Finding::new(Code::P303, file, format!("`{}` is given twice in `{}`", param.name.name, decl.name.name))
-                    .label(param.name.span, "given again here")
-                    .label(first.param.name.span, "first given here")
-                    .help("keep one line; a block overrides a part's value, not its own"),
+                Finding::new(
+                    Code::P303,
+                    file,
+                    format!(
+                        "`{}` is given twice in `{}`",
+                        param.name.name, decl.name.name
+                    ),
+                )
+                .label(param.name.span, "given again here")
+                .label(first.param.name.span, "first given here")
+                .help("keep one line; a block overrides a part's value, not its own"),
             );
             continue;
         }
@@ -45,7 +53,10 @@ pub fn resolve(
             .params
             .iter()
             .filter(|p| !decl.params.iter().any(|d| d.name.name == p.name.name))
-            .map(|param| Line { param, file: &part.file });
+            .map(|param| Line {
+                param,
+                file: &part.file,
+            });
         lines.splice(0..0, inherited);
     }
 
@@ -56,8 +67,11 @@ pub fn resolve(
         model: None,
         params: Vec::new(),
         span: decl.span,
+        invalid: Vec::new(),
+        incomplete: part_failed,
     };
     let Some(model) = find_model(file, decl, &lines, findings) else {
+        stage.incomplete = true;
         return stage;
     };
     stage.model = model.model;
@@ -65,25 +79,44 @@ pub fn resolve(
     for line in &lines {
         let name = line.param.name.name.as_str();
         let (shape, plausible, spec_name) = if model.model == Some(name) {
-            (model.model_shape, schema_plausible(model), model.model.unwrap_or(""))
+            (
+                model.model_shape,
+                schema_plausible(model),
+                model.model.unwrap_or(""),
+            )
         } else if let Some(spec) = model.param(name) {
             (spec.shape, spec.plausible, spec.name)
         } else {
             findings.push(unknown_param(line, decl, model));
             continue;
         };
-        let cx = Context { file: line.file, measurand };
-        match interpret(spec_name, shape, plausible, &line.param.values, line.param.span, &cx) {
+        let cx = Context {
+            file: line.file,
+            measurand,
+        };
+        match interpret(
+            spec_name,
+            shape,
+            plausible,
+            &line.param.values,
+            line.param.span,
+            &cx,
+        ) {
             Ok(value) => stage.params.push(ResolvedParam {
                 name: spec_name,
                 value,
                 span: line.param.span,
                 file: Arc::clone(line.file),
             }),
-            Err(f) => findings.push(*f),
+            Err(f) => {
+                stage.invalid.push(spec_name.to_string());
+                findings.push(*f)
+            }
         }
     }
-    check_presence(file, decl, model, &lines, findings);
+    if !part_failed {
+        check_presence(file, decl, model, &lines, findings);
+    }
     stage
 }
 
@@ -108,23 +141,35 @@ fn find_model(
         .filter_map(|l| schema::model(decl.kind, &l.param.name.name).map(|m| (l, m)))
         .collect();
     let words: Vec<&str> = schema::models(decl.kind).filter_map(|m| m.model).collect();
-    let list = words.iter().map(|w| format!("`{w}`")).collect::<Vec<_>>().join(", ");
+    let list = words
+        .iter()
+        .map(|w| format!("`{w}`"))
+        .collect::<Vec<_>>()
+        .join(", ");
     match named.as_slice() {
         [(_, m)] => Some(m),
         [] => {
-            let near = lines
-                .iter()
-                .find_map(|l| did_you_mean(&l.param.name.name, words.iter().copied()).map(|n| (l, n)));
+            let near = lines.iter().find_map(|l| {
+                did_you_mean(&l.param.name.name, words.iter().copied()).map(|n| (l, n))
+            });
             let mut f = Finding::new(
                 Code::P307,
                 file,
-                format!("{} `{}` does not say what it is", decl.kind.keyword(), decl.name.name),
+                format!(
+                    "{} `{}` does not say what it is",
+                    decl.kind.keyword(),
+                    decl.name.name
+                ),
             )
             .label(decl.name.span, "no model line");
             f = match near {
                 Some((l, n)) if l.file == file => f
                     .label(l.param.name.span, format!("did you mean `{n}`?"))
-                    .help(format!("a {} starts with one of {list}", decl.kind.keyword())),
+                    .help(format!(
+                        "{} {} starts with one of {list}",
+                        super::article(decl.kind.keyword()),
+                        decl.kind.keyword()
+                    )),
                 _ => f.help(format!("add a model line: one of {list}")),
             };
             findings.push(f);
@@ -134,7 +179,11 @@ fn find_model(
             let mut f = Finding::new(
                 Code::P308,
                 file,
-                format!("{} `{}` names two models", decl.kind.keyword(), decl.name.name),
+                format!(
+                    "{} `{}` names two models",
+                    decl.kind.keyword(),
+                    decl.name.name
+                ),
             )
             .help("a stage is one model; split it into two stages");
             if second.file == file {
@@ -166,12 +215,20 @@ fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Findin
         (None, Some(other)) => format!("`{name}` belongs to a {} `{other}`", decl.kind.keyword()),
         (None, None) => format!(
             "a {what} takes {}",
-            model.names().map(|n| format!("`{n}`")).collect::<Vec<_>>().join(", ")
+            model
+                .names()
+                .map(|n| format!("`{n}`"))
+                .collect::<Vec<_>>()
+                .join(", ")
         ),
     };
-    Finding::new(Code::P301, line.file, format!("{what} has no parameter `{name}`"))
-        .label(line.param.name.span, "unknown parameter")
-        .help(help)
+    Finding::new(
+        Code::P301,
+        line.file,
+        format!("{what} has no parameter `{name}`"),
+    )
+    .label(line.param.name.span, "unknown parameter")
+    .help(help)
 }
 
 fn check_presence(
@@ -182,8 +239,18 @@ fn check_presence(
     findings: &mut Findings,
 ) {
     let has = |n: &str| lines.iter().any(|l| l.param.name.name == n);
-    let span_of = |n: &str| lines.iter().find(|l| l.param.name.name == n && l.file == file).map(|l| l.param.name.span);
-    let mut required: Vec<&str> = model.params.iter().filter(|p| p.required).map(|p| p.name).collect();
+    let span_of = |n: &str| {
+        lines
+            .iter()
+            .find(|l| l.param.name.name == n && l.file == file)
+            .map(|l| l.param.name.span)
+    };
+    let mut required: Vec<&str> = model
+        .params
+        .iter()
+        .filter(|p| p.required)
+        .map(|p| p.name)
+        .collect();
     // A custom curve has no table values to fall back on.
     if model.model == Some("rtd")
         && lines.iter().any(|l| {
@@ -200,19 +267,31 @@ fn check_presence(
                 .map(|p| super::interpret::usage_of(p.name, p.shape))
                 .unwrap_or_default();
             findings.push(
-                Finding::new(Code::P302, file, format!("`{}` needs `{name}`", decl.name.name))
-                    .label(decl.name.span, format!("`{name}` is missing"))
-                    .help(format!("add a line such as `{example}`")),
+                Finding::new(
+                    Code::P302,
+                    file,
+                    format!("`{}` needs `{name}`", decl.name.name),
+                )
+                .label(decl.name.span, format!("`{name}` is missing"))
+                .help(format!("add a line such as `{example}`")),
             );
         }
     }
     for group in model.one_of {
         if !group.iter().any(|n| has(n)) {
-            let list = group.iter().map(|n| format!("`{n}`")).collect::<Vec<_>>().join(" or ");
+            let list = group
+                .iter()
+                .map(|n| format!("`{n}`"))
+                .collect::<Vec<_>>()
+                .join(" or ");
             findings.push(
-                Finding::new(Code::P302, file, format!("`{}` needs {list}", decl.name.name))
-                    .label(decl.name.span, "missing")
-                    .help(format!("add {list}")),
+                Finding::new(
+                    Code::P302,
+                    file,
+                    format!("`{}` needs {list}", decl.name.name),
+                )
+                .label(decl.name.span, "missing")
+                .help(format!("add {list}")),
             );
         }
     }
@@ -223,7 +302,9 @@ fn check_presence(
                 file,
                 format!("`{a}` and `{b}` cannot both be given"),
             )
-            .help(format!("keep `{a}` or `{b}`; they state the same thing two ways"));
+            .help(format!(
+                "keep `{a}` or `{b}`; they state the same thing two ways"
+            ));
             for n in [b, a] {
                 if let Some(s) = span_of(n) {
                     f = f.label(s, format!("`{n}`"));

@@ -8,7 +8,12 @@ pub fn did_you_mean<'a>(word: &str, candidates: impl Iterator<Item = &'a str>) -
     }
     candidates
         .into_iter()
-        .map(|c| (strsim::damerau_levenshtein(&word.to_lowercase(), &c.to_lowercase()), c))
+        .map(|c| {
+            (
+                strsim::damerau_levenshtein(&word.to_lowercase(), &c.to_lowercase()),
+                c,
+            )
+        })
         .filter(|(d, c)| *d <= 1.max(c.chars().count().max(word.chars().count()) / 3))
         .min()
         .map(|(_, c)| c)

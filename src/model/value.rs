@@ -43,7 +43,10 @@ pub enum ParamValue {
     Flag,
     Measure(Measure),
     /// `lo .. hi`, SI (kelvin for temperatures).
-    Range { low: f64, high: f64 },
+    Range {
+        low: f64,
+        high: f64,
+    },
     Word(String),
     Count(u32),
     Numbers(Vec<f64>),
@@ -54,7 +57,10 @@ pub enum ParamValue {
         at: f64,
     },
     /// `table 16`, `exact`.
-    Method { method: String, points: Option<u32> },
+    Method {
+        method: String,
+        points: Option<u32>,
+    },
     /// `offset at 0 degC ± 0.05 K`, `two_point at 0 degC, 100 degC ± 0.1 K`.
     Calibrate {
         method: String,
@@ -64,7 +70,10 @@ pub enum ParamValue {
     /// A stated error (`cold_junction ± 0.5 K`).
     Limit(Tolerance),
     /// Another stage of the chain, by name (`cold_junction cj_sensor`).
-    StageRef { name: String, span: Span },
+    StageRef {
+        name: String,
+        span: Span,
+    },
 }
 
 /// A checked parameter and where it was written (a spec or a parts file).

@@ -214,7 +214,10 @@ pub enum ToleranceForm {
     /// `± x` or `+- x`
     Symmetric(QuantityLit),
     /// `+x -y`: the limits above and below the nominal.
-    Asymmetric { plus: QuantityLit, minus: QuantityLit },
+    Asymmetric {
+        plus: QuantityLit,
+        minus: QuantityLit,
+    },
 }
 
 #[derive(Clone, Debug, PartialEq)]

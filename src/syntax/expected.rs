@@ -114,7 +114,15 @@ fn expected_list(positives: &[Rule]) -> String {
         items.push("a value (a number with its unit, a word, `± x` or `lo .. hi`)");
     }
     for rule in positives {
-        if values >= 3 && VALUE_RULES.contains(rule) {
+        let part_of_value = matches!(
+            rule,
+            Rule::number
+                | Rule::unsigned_number
+                | Rule::unit
+                | Rule::unit_factor
+                | Rule::unit_symbol
+        );
+        if values >= 3 && (VALUE_RULES.contains(rule) || part_of_value) {
             continue;
         }
         if let Some(d) = describe(*rule) {

@@ -110,12 +110,16 @@ fn tokenize(code: &str) -> Vec<Token<'_>> {
             i = end;
             continue;
         }
-        if let Some(p) = ["->", "..", "+-", "±", "=>", "+/-"].iter().find(|p| rest.starts_with(**p)) {
+        if let Some(p) = ["->", "..", "+-", "±", "=>", "+/-"]
+            .iter()
+            .find(|p| rest.starts_with(**p))
+        {
             tokens.push(Token::Punct(p));
             i += p.len();
             continue;
         }
-        let starts_number = c.is_ascii_digit() || (c == '.' && bytes.get(i + 1).is_some_and(u8::is_ascii_digit));
+        let starts_number =
+            c.is_ascii_digit() || (c == '.' && bytes.get(i + 1).is_some_and(u8::is_ascii_digit));
         let signed = (c == '+' || c == '-') && {
             let after = rest[1..].trim_start();
             after.starts_with(|d: char| d.is_ascii_digit() || d == '.')
@@ -230,7 +234,10 @@ mod tests {
     fn idempotent_and_keeps_strings() {
         let src = "chain a \"a # not a comment\" {\n# lead\n  title \"x  y\"\n}\n";
         let once = format_source(src);
-        assert_eq!(once, "chain a \"a # not a comment\" {\n    # lead\n    title \"x  y\"\n}\n");
+        assert_eq!(
+            once,
+            "chain a \"a # not a comment\" {\n    # lead\n    title \"x  y\"\n}\n"
+        );
         assert_eq!(format_source(&once), once);
     }
 }

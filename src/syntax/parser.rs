@@ -35,7 +35,9 @@ pub(super) fn parse_file(file: &Arc<SourceFile>) -> (Ast, Findings) {
         Err(error) => {
             // Recovery rules make the whole-file parse total; reaching here
             // means the call limit or a grammar gap, still reported cleanly.
-            lower.findings.push(explain_parse_error(file, 0, file.text(), &error));
+            lower
+                .findings
+                .push(explain_parse_error(file, 0, file.text(), &error));
             Ast::default()
         }
     };
@@ -128,7 +130,11 @@ impl Lower<'_> {
         let kind_pair = inner.next().expect("grammar: stage starts with its kind");
         let kind = StageKind::from_keyword(kind_pair.as_str())
             .expect("grammar: stage_kind lists exactly the stage kinds");
-        let name = ident(&inner.next().expect("grammar: stage kind is followed by a name"));
+        let name = ident(
+            &inner
+                .next()
+                .expect("grammar: stage kind is followed by a name"),
+        );
         let mut stage = StageDecl {
             kind,
             kind_span: span_of(&kind_pair),
@@ -153,7 +159,11 @@ impl Lower<'_> {
     pub(super) fn param(&mut self, pair: Pair<'_, Rule>) -> Param {
         let span = span_of(&pair);
         let mut inner = pair.into_inner();
-        let name = ident(&inner.next().expect("grammar: a parameter starts with its name"));
+        let name = ident(
+            &inner
+                .next()
+                .expect("grammar: a parameter starts with its name"),
+        );
         Param {
             name,
             values: inner.filter_map(|v| self.value(v)).collect(),
@@ -335,8 +345,10 @@ impl Lower<'_> {
         let head = head.trim_end();
         let finding = match CatenaParser::parse(anchored, head) {
             Err(error) => explain_parse_error(self.file, span.start, head, &error),
-            Ok(_) => Finding::new(Code::S001, self.file, "this line cannot stand here")
-                .label(Span::new(span.start, span.start + head.len()), "not expected here"),
+            Ok(_) => Finding::new(Code::S001, self.file, "this line cannot stand here").label(
+                Span::new(span.start, span.start + head.len()),
+                "not expected here",
+            ),
         };
         let finding = super::expected::refine(finding, anchored, head, span.start);
         self.findings.push(finding);

@@ -11,6 +11,8 @@ use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 pub const MAX_SOURCE_BYTES: usize = 4 * 1024 * 1024;
 /// `chain { stage { } }` is the deepest the language nests.
 pub const MAX_DEPTH: usize = 2;
+/// Unclosed blocks reported per file, innermost first.
+const MAX_UNCLOSED_REPORTED: usize = 8;
 
 /// Turns raw bytes into a source file, or says why they are not one.
 pub fn decode(name: &str, bytes: &[u8]) -> Result<Arc<SourceFile>, Finding> {
@@ -57,13 +59,18 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
     let mut findings = Findings::new();
     let text = file.text();
     let mut open: Vec<usize> = Vec::new();
+    // A `}` less indented than its `{` line most likely closes an outer
+    // block, leaving the inner one open: the better place to point at.
+    let mut suspect: Option<usize> = None;
+    let indent_of = |at: usize| {
+        let start = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
+        text[start..at].len() - text[start..at].trim_start().len()
+    };
     let mut too_deep_reported = false;
     let mut chars = text.char_indices().peekable();
     while let Some((i, c)) = chars.next() {
         match c {
-            '#' => {
-                while chars.next_if(|&(_, c)| c != '\n').is_some() {}
-            }
+            '#' => while chars.next_if(|&(_, c)| c != '\n').is_some() {},
             '"' => {
                 let mut closed = false;
                 while let Some((_, c)) = chars.next_if(|&(_, c)| c != '\n') {
@@ -79,7 +86,9 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
                     findings.push(
                         Finding::new(Code::S007, file, "string is not closed on its line")
                             .label(Span::new(i, end), "this string has no closing `\"`")
-                            .help("add a `\"` before the end of the line; strings cannot span lines"),
+                            .help(
+                                "add a `\"` before the end of the line; strings cannot span lines",
+                            ),
                     );
                 }
             }
@@ -99,7 +108,13 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
                 }
             }
             '}' => {
-                if open.pop().is_none() {
+                let popped = open.pop();
+                if let Some(o) = popped {
+                    if indent_of(i) < indent_of(o) && suspect.is_none() {
+                        suspect = Some(o);
+                    }
+                }
+                if popped.is_none() {
                     findings.push(
                         Finding::new(Code::S002, file, "`}` closes nothing")
                             .label(Span::new(i, i + 1), "no block is open here")
@@ -110,16 +125,22 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
             _ => {}
         }
     }
-    for &at in open.iter().rev() {
-        let line_end = text[at..].find('\n').map(|n| at + n).unwrap_or(text.len());
-        let head = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
+    // Innermost first; a file of thousands of open braces needs only a few.
+    if let (Some(s), false) = (suspect, open.is_empty()) {
+        open = vec![s];
+    }
+    for &at in open.iter().rev().take(MAX_UNCLOSED_REPORTED) {
+        let line_start = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
+        let head = text[line_start..at].trim();
+        let help = if head.is_empty() {
+            "add the `}` that closes this block".to_string()
+        } else {
+            format!("add a `}}` after the last line of `{head}`")
+        };
         findings.push(
             Finding::new(Code::S002, file, "`{` is never closed")
                 .label(Span::new(at, at + 1), "this block has no closing `}`")
-                .help(format!(
-                    "add a `}}` after the last line of `{}`",
-                    text[head..line_end].trim().trim_end_matches('{').trim()
-                )),
+                .help(help),
         );
     }
     findings

@@ -133,8 +133,12 @@ impl DimName {
             d if d == per_kelvin(Dim::CURRENT) => n("a current per kelvin", "A/K", "1 uA/K"),
             d if d == per_kelvin(Dim::POWER) => n("a dissipation constant", "W/K", "2 mW/K"),
             d if d == Dim::TEMPERATURE / Dim::POWER => n("a thermal resistance", "K/W", "0.5 K/mW"),
-            d if d == per_root_hz(Dim::VOLTAGE) => n("a voltage noise density", "V/√Hz", "12 nV/rtHz"),
-            d if d == per_root_hz(Dim::CURRENT) => n("a current noise density", "A/√Hz", "0.1 pA/rtHz"),
+            d if d == per_root_hz(Dim::VOLTAGE) => {
+                n("a voltage noise density", "V/√Hz", "12 nV/rtHz")
+            }
+            d if d == per_root_hz(Dim::CURRENT) => {
+                n("a current noise density", "A/√Hz", "0.1 pA/rtHz")
+            }
             _ => n("a quantity", "", ""),
         }
     }
@@ -155,6 +159,9 @@ mod tests {
 
     #[test]
     fn half_powers_display() {
-        assert_eq!((Dim::VOLTAGE / Dim::ROOT_HERTZ).to_string(), "m^2·kg·s^(-5/2)·A^-1");
+        assert_eq!(
+            (Dim::VOLTAGE / Dim::ROOT_HERTZ).to_string(),
+            "m^2·kg·s^(-5/2)·A^-1"
+        );
     }
 }

@@ -312,7 +312,10 @@ mod tests {
             parse_unit("dB/K"),
             Err(UnitError::NotCombinable { .. })
         ));
-        assert!(matches!(parse_unit("kdegC"), Err(UnitError::NoPrefix { .. })));
+        assert!(matches!(
+            parse_unit("kdegC"),
+            Err(UnitError::NoPrefix { .. })
+        ));
         assert!(matches!(parse_unit("m%"), Err(UnitError::NoPrefix { .. })));
     }
 

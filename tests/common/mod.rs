@@ -1,0 +1,56 @@
+//! Helpers shared by the integration tests: run the built binary.
+
+#![allow(dead_code)]
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+
+pub struct Run {
+    pub status: i32,
+    pub stdout: String,
+    pub stderr: String,
+}
+
+pub fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// Runs `catena` in `dir` with colour off and a fixed width.
+pub fn catena(dir: &Path, args: &[&str], stdin: Option<&[u8]>) -> Run {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(args)
+        .current_dir(dir)
+        .env("NO_COLOR", "1")
+        .env("COLUMNS", "80")
+        .stdin(if stdin.is_some() {
+            Stdio::piped()
+        } else {
+            Stdio::null()
+        })
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("the catena binary runs");
+    if let Some(input) = stdin {
+        let mut pipe = child.stdin.take().expect("stdin is piped");
+        pipe.write_all(input).expect("stdin accepts the input");
+    }
+    let out = child.wait_with_output().expect("catena finishes");
+    Run {
+        status: out.status.code().unwrap_or(-1),
+        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
+        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
+    }
+}
+
+/// Every demo spec, sorted.
+pub fn demo_specs() -> Vec<PathBuf> {
+    let mut specs: Vec<PathBuf> = std::fs::read_dir(root().join("specs"))
+        .expect("specs/ exists")
+        .map(|e| e.expect("readable entry").path())
+        .filter(|p| p.extension().is_some_and(|e| e == "catena"))
+        .collect();
+    specs.sort();
+    specs
+}
