@@ -471,39 +471,22 @@ fn noun(expect: Expect, cx: &Context<'_>) -> &'static str {
 }
 
 fn example(expect: Expect, cx: &Context<'_>) -> String {
+    example_text(expect, cx.measurand)
+}
+
+/// An example value for help lines; without a known measurand, a
+/// placeholder stands for measurand values.
+fn example_text(expect: Expect, measurand: Option<Dim>) -> String {
     match expect {
-        Expect::Temperature => "25 degC".into(),
-        Expect::TempDiff => "0.5 K".into(),
-        Expect::Ratio => "4".into(),
-        Expect::Decibel => "100 dB".into(),
-        Expect::PerKelvin(d) => {
-            let n = (d / Dim::TEMPERATURE).name();
-            if n.example.is_empty() {
-                "25 ppm/K".into()
-            } else {
-                n.example.into()
-            }
-        }
-        _ => accepted(expect, cx)
-            .first()
-            .map(|d| d.name().example.to_string())
-            .unwrap_or_default(),
-    }
-}
-
-/// How a parameter is written, for help lines.
-pub fn usage_of(name: &str, shape: Shape) -> String {
-    usage(name, shape)
-}
-
-fn usage(name: &str, shape: Shape) -> String {
-    let cx_free = |e: Expect| match e {
         Expect::Dim(d) => d.name().example.to_string(),
         Expect::Temperature => "25 degC".into(),
         Expect::TempDiff => "0.5 K".into(),
         Expect::Ratio => "4".into(),
         Expect::Decibel => "100 dB".into(),
-        Expect::Measurand => "<value in the measurand's unit>".into(),
+        Expect::Measurand => match measurand {
+            Some(d) if !d.name().example.is_empty() => d.name().example.to_string(),
+            _ => "<value in the measurand's unit>".into(),
+        },
         Expect::PerKelvin(d) => {
             let n = (d / Dim::TEMPERATURE).name();
             if n.example.is_empty() {
@@ -513,7 +496,16 @@ fn usage(name: &str, shape: Shape) -> String {
             }
         }
         Expect::OneOf(ds) => ds[0].name().example.to_string(),
-    };
+    }
+}
+
+/// How a parameter is written, for help lines.
+pub fn usage_of(name: &str, shape: Shape) -> String {
+    usage(name, shape)
+}
+
+fn usage(name: &str, shape: Shape) -> String {
+    let cx_free = |e: Expect| example_text(e, None);
     match shape {
         Shape::Flag => name.to_string(),
         Shape::Measure { expect, tol, drift } => format!(
