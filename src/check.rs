@@ -3,7 +3,7 @@
 use std::path::Path;
 use std::sync::Arc;
 
-use crate::diagnostics::{Code, Findings, SourceFile};
+use crate::diagnostics::{Code, Findings, Severity, SourceFile};
 use crate::model::{self, Chain, PartsCache};
 use crate::syntax;
 
@@ -40,13 +40,24 @@ pub fn check_bytes(name: &str, bytes: &[u8], base: &Path, parts: &mut PartsCache
             findings,
         };
     }
+    // A line with a syntax finding gets only that finding: what the later
+    // stages say about the same line (a number read as 0, a value missing)
+    // would echo it.
+    let syntax_lines: Vec<usize> = findings
+        .iter()
+        .filter(|f| f.severity() == Severity::Error)
+        .map(|f| file.line_column(f.primary_offset()).0)
+        .collect();
     let (chains, more) = model::resolve(&file, &ast, base, parts);
     for f in more {
         // A line the parser swallowed is missing from the graph, so graph
         // findings would be echoes of the syntax error; the other checks
         // are local to their line and still stand.
         let echo = f.code.as_str().starts_with('M') || matches!(f.code, Code::P302 | Code::P307);
-        if !(syntax_failed && echo) {
+        let same_line = Arc::ptr_eq(&f.file, &file)
+            && syntax_lines.contains(&file.line_column(f.primary_offset()).0);
+        let suppressed = same_line || (syntax_failed && echo);
+        if !suppressed {
             findings.push(f);
         }
     }
