@@ -291,6 +291,10 @@ fn check_ports(
                     "a voltage across a resistive sensor gives nothing to measure; wire `{}` and `{}` into a `bridge` (a `divider` for one element), or use a current excitation",
                     source.name, target.name
                 ),
+                (Signal::Code | Signal::Reading, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
+                    "`{}` works on voltages, so it belongs before the converter: wire the signal into it first and its output into the `adc`",
+                    target.name
+                ),
                 (Signal::Element, _) => format!(
                     "`{}` is a bare element here; drive it with a current excitation or wire it into a bridge arm: `{} -> bridge_name.arm`",
                     source.name, source.name
