@@ -3,6 +3,7 @@
 use std::path::Path;
 use std::sync::Arc;
 
+use crate::analysis;
 use crate::diagnostics::{Code, Findings, Severity, SourceFile};
 use crate::model::{self, Chain, PartsCache};
 use crate::syntax;
@@ -59,6 +60,12 @@ pub fn check_bytes(name: &str, bytes: &[u8], base: &Path, parts: &mut PartsCache
         let suppressed = same_line || (syntax_failed && echo);
         if !suppressed {
             findings.push(f);
+        }
+    }
+    if !findings.has_errors() {
+        for chain in &chains {
+            let (_, more) = analysis::check_chain(chain);
+            findings.extend(more);
         }
     }
     CheckedFile {

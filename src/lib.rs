@@ -6,10 +6,12 @@
 //! signal models, and [`cli`] drives them. Every stage reports through
 //! [`diagnostics`].
 
+pub mod analysis;
 pub mod check;
 pub mod cli;
 pub mod diagnostics;
 pub mod emit;
+pub mod eval;
 pub mod model;
 pub mod physics;
 pub mod syntax;

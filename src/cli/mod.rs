@@ -1,6 +1,7 @@
 //! The `catena` command line.
 
 mod check;
+mod eval;
 mod explain;
 mod files;
 mod fmt;
@@ -29,6 +30,8 @@ enum Command {
     Check(check::CheckArgs),
     /// Rewrite specs in the canonical layout.
     Fmt(fmt::FmtArgs),
+    /// Evaluate a chain at one measurand value: every stage's output.
+    Eval(eval::EvalArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
 }
@@ -50,6 +53,7 @@ pub fn run() -> ExitCode {
     let status = match cli.command {
         Command::Check(args) => check::run(args),
         Command::Fmt(args) => fmt::run(args),
+        Command::Eval(args) => eval::run(args),
         Command::Explain(args) => explain::run(args),
     };
     ExitCode::from(status)

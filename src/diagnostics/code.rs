@@ -4,7 +4,8 @@
 //! fixture under `tests/fixtures/invalid/` (a missing fixture fails a test).
 //!
 //! Letters by pipeline stage: S syntax, U units, P parameters and settings,
-//! M the chain graph (names, ports, cycles), L parts libraries.
+//! M the chain graph (names, ports, cycles), L parts libraries, E evaluation
+//! of the chain (sensor validity, conversion, numerics).
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Severity {
@@ -99,4 +100,8 @@ codes! {
     L404 => Error, "part of another kind";
     L405 => Error, "part value not a scalar";
     L406 => Error, "part used without a parts file";
+
+    E501 => Error, "sensor outside its valid range";
+    E502 => Error, "no firmware conversion";
+    E503 => Error, "no finite value";
 }

@@ -5,6 +5,7 @@
 //! kept in halves because noise densities are per root hertz.
 
 mod dimension;
+pub mod format;
 mod table;
 
 pub use dimension::{Dim, DimName};

@@ -1,0 +1,76 @@
+//! What the checked chain does over its ranges, through the evaluator.
+//! This first analysis checks that every sensor model is valid over the
+//! measurand and ambient ranges and that the firmware conversion exists.
+
+use crate::diagnostics::{Code, Finding, Findings, Span};
+use crate::eval::{lower, Env, EvalError, Plan};
+use crate::model::Chain;
+use crate::units::format::from_si;
+
+/// The finding for an evaluation error, labelled on the stage involved
+/// and, when given, on the line that sets the condition.
+pub fn eval_finding(
+    chain: &Chain,
+    error: &EvalError,
+    condition: Option<(Span, String)>,
+) -> Finding {
+    let (code, stage, help) = match error {
+        EvalError::OutOfRange { stage, low, high, celsius, .. } => {
+            let show = |x: f64| if *celsius { format!("{} degC", crate::units::format::trimmed(x - crate::units::ZERO_CELSIUS_K, 6)) } else { crate::units::format::trimmed(x, 6) };
+            (
+                Code::E501,
+                stage,
+                format!("keep the range within {} .. {}, or choose a sensor or class that covers it", show(*low), show(*high)),
+            )
+        }
+        EvalError::NotInvertible { stage, .. } => (Code::E502, stage, "the reading must change with the measurand over its whole range; check the chain's wiring and limits".to_string()),
+        EvalError::Numeric { stage, .. } => (Code::E503, stage, "check the stage's parameters: a zero, a negative or an extreme value leaves it without a finite output".to_string()),
+    };
+    let mut f = Finding::new(code, &chain.file, error.to_string());
+    if let Some(s) = chain.stages.iter().find(|s| &s.name == stage) {
+        f = f.label(s.name_span, "this stage");
+    } else {
+        f = f.label(chain.name_span, "in this chain");
+    }
+    if let Some((span, text)) = condition {
+        f = f.label(span, text);
+    }
+    f.help(help)
+}
+
+/// Lowers a chain and evaluates its nominal corners: measurand ends at
+/// the ambient ends and the reference.
+pub fn check_chain(chain: &Chain) -> (Option<Plan>, Findings) {
+    let mut findings = Findings::new();
+    let Some(measurand) = &chain.measurand else {
+        return (None, findings);
+    };
+    let at_measurand = Some((measurand.span, "over this range".to_string()));
+    let plan = match lower(chain) {
+        Ok(p) => p,
+        Err(e) => {
+            findings.push(eval_finding(chain, &e, at_measurand));
+            return (None, findings);
+        }
+    };
+    let ambients = [chain.ambient.0, chain.reference, chain.ambient.1];
+    'corners: for m in [measurand.low, measurand.high] {
+        for t in ambients {
+            let env = Env {
+                measurand: m,
+                ambient: t,
+                cold_junction: t,
+            };
+            if let Err(e) = plan.reading(&plan.nominal, &env) {
+                let at = format!(
+                    "at {} {}",
+                    crate::units::format::trimmed(from_si(m, &measurand.unit), 6),
+                    measurand.unit
+                );
+                findings.push(eval_finding(chain, &e, Some((measurand.span, at))));
+                break 'corners;
+            }
+        }
+    }
+    (Some(plan), findings)
+}

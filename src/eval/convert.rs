@@ -1,0 +1,369 @@
+//! The firmware's conversion from code to reading: the ideal inverse of
+//! the nominal chain, or a linear, table or polynomial approximation of it
+//! (whose own error the budget counts), then the declared calibration.
+
+use super::plan::{Env, EvalError, NodeId, Plan, Senses};
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum Method {
+    /// Solves the nominal chain for the code, each time.
+    Exact,
+    /// The line through the nominal chain's codes at the range ends.
+    Linear { code_low: f64, code_high: f64 },
+    /// Linear interpolation between `n` points of the nominal chain.
+    Table { codes: Vec<f64>, xs: Vec<f64> },
+    /// A least-squares polynomial in the normalised code.
+    Poly {
+        coefficients: Vec<f64>,
+        mid: f64,
+        half: f64,
+    },
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Calibration {
+    None,
+    /// The reading is corrected by what it showed at this point.
+    Offset {
+        at: f64,
+    },
+    /// Offset and gain corrected from two points.
+    TwoPoint {
+        at: (f64, f64),
+    },
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Conversion {
+    pub method: Method,
+    /// What the conversion recovers: the measurand, or the cold-junction
+    /// temperature for a conversion that feeds another's `cj`.
+    pub variable: Senses,
+    /// The ADC whose code it converts.
+    pub adc: NodeId,
+    /// Where the inverse may look, SI; readings saturate at its ends.
+    pub domain: (f64, f64),
+    /// The range the approximations are fitted over, SI.
+    pub range: (f64, f64),
+    pub calibration: Calibration,
+}
+
+/// Points a polynomial is fitted through, per coefficient.
+const POLY_POINTS_PER_TERM: usize = 8;
+
+impl Conversion {
+    /// The firmware's view of the chain: nominal values, drifting parts at
+    /// the reference temperature, and the cold junction where its own
+    /// reading (or, without one, the actual junction) says.
+    fn firmware_env(&self, plan: &Plan, env: &Env, x: f64, cj: Option<f64>) -> Env {
+        match self.variable {
+            Senses::Measurand => Env {
+                measurand: x,
+                ambient: plan.reference,
+                cold_junction: cj.unwrap_or(env.cold_junction),
+            },
+            Senses::ColdJunction => Env {
+                measurand: env.measurand,
+                ambient: plan.reference,
+                cold_junction: x,
+            },
+        }
+    }
+
+    fn nominal_code(
+        &self,
+        plan: &Plan,
+        env: &Env,
+        x: f64,
+        cj: Option<f64>,
+    ) -> Result<f64, EvalError> {
+        plan.exact_code(
+            &plan.nominal,
+            &self.firmware_env(plan, env, x, cj),
+            self.adc,
+        )
+    }
+
+    /// Reading for `code`, before calibration.
+    pub fn invert(
+        &self,
+        plan: &Plan,
+        env: &Env,
+        code: f64,
+        cj: Option<f64>,
+    ) -> Result<f64, EvalError> {
+        match &self.method {
+            Method::Exact => {
+                let f = |x: f64| self.nominal_code(plan, env, x, cj).map(|c| c - code);
+                solve(f, self.domain)
+            }
+            Method::Linear {
+                code_low,
+                code_high,
+            } => Ok(self.range.0
+                + (code - code_low) * (self.range.1 - self.range.0) / (code_high - code_low)),
+            Method::Table { codes, xs } => Ok(interpolate(codes, xs, code)),
+            Method::Poly {
+                coefficients,
+                mid,
+                half,
+            } => {
+                let u = (code - mid) / half;
+                Ok(coefficients.iter().rev().fold(0.0, |acc, c| acc * u + c))
+            }
+        }
+    }
+
+    /// The reading the firmware computes from `code`.
+    pub fn apply(
+        &self,
+        plan: &Plan,
+        values: &[f64],
+        env: &Env,
+        code: f64,
+        cj: Option<f64>,
+    ) -> Result<f64, EvalError> {
+        let x = self.invert(plan, env, code, cj)?;
+        // Calibration points are taken at the reference temperature with
+        // the chain as built (its actual values), averaged to its exact code.
+        let at = |p: f64| -> Result<f64, EvalError> {
+            let cal = Env {
+                measurand: p,
+                ambient: plan.reference,
+                cold_junction: plan.reference,
+            };
+            let c = plan.exact_code(values, &cal, self.adc)?;
+            self.invert(plan, &cal, c, None)
+        };
+        Ok(match self.calibration {
+            Calibration::None => x,
+            Calibration::Offset { at: p } => x + (p - at(p)?),
+            Calibration::TwoPoint { at: (p1, p2) } => {
+                let (r1, r2) = (at(p1)?, at(p2)?);
+                if r2 == r1 {
+                    return Err(
+                        plan.numeric(self.adc, "the calibration points give the same reading")
+                    );
+                }
+                p1 + (x - r1) * (p2 - p1) / (r2 - r1)
+            }
+        })
+    }
+
+    /// Fits the approximations once the plan exists.
+    pub fn fit(&mut self, plan: &Plan, env: &Env, method: &str, points: u32) -> Result<(), String> {
+        let (lo, hi) = self.range;
+        let code = |x: f64| {
+            self.nominal_code(plan, env, x, None)
+                .map_err(|e| e.to_string())
+        };
+        self.method = match method {
+            "exact" => Method::Exact,
+            "linear" => {
+                let (a, b) = (code(lo)?, code(hi)?);
+                if a == b {
+                    return Err("the code does not change over the measurand range".into());
+                }
+                Method::Linear {
+                    code_low: a,
+                    code_high: b,
+                }
+            }
+            "table" => {
+                let n = points.max(2) as usize;
+                let xs: Vec<f64> = (0..n)
+                    .map(|k| lo + (hi - lo) * k as f64 / (n - 1) as f64)
+                    .collect();
+                let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
+                if !strictly_monotonic(&codes) {
+                    return Err("the code is not monotonic over the measurand range".into());
+                }
+                Method::Table { codes, xs }
+            }
+            _ => {
+                let terms = points as usize + 1;
+                let m = POLY_POINTS_PER_TERM * terms;
+                let xs: Vec<f64> = (0..m)
+                    .map(|k| lo + (hi - lo) * k as f64 / (m - 1) as f64)
+                    .collect();
+                let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
+                let (cmin, cmax) = codes
+                    .iter()
+                    .fold((f64::MAX, f64::MIN), |(a, b), &c| (a.min(c), b.max(c)));
+                if cmax <= cmin {
+                    return Err("the code does not change over the measurand range".into());
+                }
+                let mid = (cmax + cmin) / 2.0;
+                let half = (cmax - cmin) / 2.0;
+                let us: Vec<f64> = codes.iter().map(|c| (c - mid) / half).collect();
+                let coefficients =
+                    least_squares(&us, &xs, terms).ok_or("the polynomial fit is singular")?;
+                Method::Poly {
+                    coefficients,
+                    mid,
+                    half,
+                }
+            }
+        };
+        Ok(())
+    }
+}
+
+fn strictly_monotonic(v: &[f64]) -> bool {
+    v.windows(2).all(|w| w[1] > w[0]) || v.windows(2).all(|w| w[1] < w[0])
+}
+
+/// Piecewise-linear through (codes, xs), extrapolating the end segments.
+fn interpolate(codes: &[f64], xs: &[f64], code: f64) -> f64 {
+    let n = codes.len();
+    let increasing = codes[n - 1] > codes[0];
+    let k = if increasing {
+        codes.partition_point(|&c| c < code)
+    } else {
+        codes.partition_point(|&c| c > code)
+    };
+    let k = k.clamp(1, n - 1);
+    let (c0, c1, x0, x1) = (codes[k - 1], codes[k], xs[k - 1], xs[k]);
+    x0 + (code - c0) * (x1 - x0) / (c1 - c0)
+}
+
+/// Least squares for x ≈ Σ a_k u^k by the normal equations (u in [−1, 1]
+/// and at most ten terms keep them well conditioned), solved by Gaussian
+/// elimination with partial pivoting.
+fn least_squares(us: &[f64], xs: &[f64], terms: usize) -> Option<Vec<f64>> {
+    let mut a = vec![vec![0.0; terms + 1]; terms];
+    for (&u, &x) in us.iter().zip(xs) {
+        let powers: Vec<f64> = (0..terms).map(|k| u.powi(k as i32)).collect();
+        for r in 0..terms {
+            for c in 0..terms {
+                a[r][c] += powers[r] * powers[c];
+            }
+            a[r][terms] += powers[r] * x;
+        }
+    }
+    for col in 0..terms {
+        let pivot = (col..terms).max_by(|&i, &j| a[i][col].abs().total_cmp(&a[j][col].abs()))?;
+        if a[pivot][col].abs() < 1e-300 {
+            return None;
+        }
+        a.swap(col, pivot);
+        let pivot_row = a[col].clone();
+        for (r, row) in a.iter_mut().enumerate() {
+            if r != col {
+                let f = row[col] / pivot_row[col];
+                for (x, p) in row.iter_mut().zip(&pivot_row).skip(col) {
+                    *x -= f * p;
+                }
+            }
+        }
+    }
+    Some((0..terms).map(|k| a[k][terms] / a[k][k]).collect())
+}
+
+/// Brent's method (Brent, "Algorithms for Minimization without
+/// Derivatives", 1973, ch. 4) for a monotonic `f` on `domain`; a target
+/// beyond either end saturates there, as a clamped reading would.
+pub fn solve(
+    f: impl Fn(f64) -> Result<f64, EvalError>,
+    domain: (f64, f64),
+) -> Result<f64, EvalError> {
+    let (mut a, mut b) = domain;
+    let (mut fa, mut fb) = (f(a)?, f(b)?);
+    if fa == 0.0 {
+        return Ok(a);
+    }
+    if fb == 0.0 {
+        return Ok(b);
+    }
+    if fa.signum() == fb.signum() {
+        return Ok(if fa.abs() < fb.abs() { a } else { b });
+    }
+    let tolerance = 1e-13 * (domain.1 - domain.0).abs().max(1e-300);
+    let (mut c, mut fc) = (a, fa);
+    let mut d = b - a;
+    let mut e = d;
+    for _ in 0..200 {
+        if fb.signum() == fc.signum() {
+            c = a;
+            fc = fa;
+            d = b - a;
+            e = d;
+        }
+        if fc.abs() < fb.abs() {
+            a = b;
+            b = c;
+            c = a;
+            fa = fb;
+            fb = fc;
+            fc = fa;
+        }
+        let tol = 2.0 * f64::EPSILON * b.abs() + 0.5 * tolerance;
+        let m = 0.5 * (c - b);
+        if m.abs() <= tol || fb == 0.0 {
+            return Ok(b);
+        }
+        if e.abs() >= tol && fa.abs() > fb.abs() {
+            let s = fb / fa;
+            let (mut p, mut q);
+            if a == c {
+                p = 2.0 * m * s;
+                q = 1.0 - s;
+            } else {
+                let qa = fa / fc;
+                let r = fb / fc;
+                p = s * (2.0 * m * qa * (qa - r) - (b - a) * (r - 1.0));
+                q = (qa - 1.0) * (r - 1.0) * (s - 1.0);
+            }
+            if p > 0.0 {
+                q = -q;
+            } else {
+                p = -p;
+            }
+            if 2.0 * p < (3.0 * m * q - (tol * q).abs()).min((e * q).abs()) {
+                e = d;
+                d = p / q;
+            } else {
+                d = m;
+                e = m;
+            }
+        } else {
+            d = m;
+            e = m;
+        }
+        a = b;
+        fa = fb;
+        b += if d.abs() > tol { d } else { tol.copysign(m) };
+        fb = f(b)?;
+    }
+    Ok(b)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{interpolate, least_squares, solve};
+
+    #[test]
+    fn brent_finds_a_cubic_root() {
+        let x = solve(|x| Ok(x * x * x - 2.0), (0.0, 3.0)).unwrap();
+        assert!((x - 2f64.cbrt()).abs() < 1e-12);
+        // Beyond the domain the answer saturates at the nearer end.
+        assert_eq!(solve(|x| Ok(x - 10.0), (0.0, 3.0)).unwrap(), 3.0);
+    }
+
+    #[test]
+    fn table_interpolates_both_directions() {
+        assert_eq!(interpolate(&[0.0, 10.0, 20.0], &[0.0, 1.0, 2.0], 15.0), 1.5);
+        assert_eq!(interpolate(&[20.0, 10.0, 0.0], &[0.0, 1.0, 2.0], 15.0), 0.5);
+        assert_eq!(interpolate(&[0.0, 10.0], &[0.0, 1.0], 20.0), 2.0);
+    }
+
+    #[test]
+    fn least_squares_recovers_a_polynomial() {
+        let us: Vec<f64> = (0..20).map(|k| -1.0 + k as f64 / 9.5).collect();
+        let xs: Vec<f64> = us.iter().map(|u| 1.0 - 2.0 * u + 0.5 * u * u * u).collect();
+        let a = least_squares(&us, &xs, 4).unwrap();
+        for (got, want) in a.iter().zip([1.0, -2.0, 0.0, 0.5]) {
+            assert!((got - want).abs() < 1e-10, "{a:?}");
+        }
+    }
+}

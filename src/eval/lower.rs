@@ -1,0 +1,657 @@
+//! A checked chain to an evaluation plan: stages in topological order,
+//! every numeric parameter in a slot, each conversion fitted.
+
+use petgraph::algo::toposort;
+use petgraph::graph::DiGraph;
+
+use super::convert::{Calibration, Conversion, Method};
+use super::plan::{
+    BridgeKind, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses, Slot, SlotId,
+    ThermistorCurve,
+};
+use super::run::MAX_NODES;
+use crate::model::ports::Port;
+use crate::model::value::{Measure, ParamValue, Tolerance};
+use crate::model::{Chain, Stage};
+use crate::physics::adc::Polarity;
+use crate::physics::rtd::{self, ToleranceClass};
+use crate::physics::thermocouple::ThermocoupleType;
+use crate::syntax::ast::StageKind;
+use crate::units::{Dim, ZERO_CELSIUS_K};
+
+/// How far beyond the measurand range the exact inverse looks, as a
+/// fraction of the span, so that over-range readings are still found.
+const DOMAIN_MARGIN: f64 = 0.25;
+/// The cold-junction conversion looks this far beyond the ambient range, K.
+const CJ_MARGIN_K: f64 = 30.0;
+
+struct Slots {
+    slots: Vec<Slot>,
+}
+
+impl Slots {
+    fn add(&mut self, id: String, nominal: f64, minus: f64, plus: f64, normal: bool) -> SlotId {
+        self.slots.push(Slot {
+            id,
+            nominal,
+            minus,
+            plus,
+            normal,
+        });
+        self.slots.len() - 1
+    }
+
+    fn exact(&mut self, id: String, nominal: f64) -> SlotId {
+        self.add(id, nominal, 0.0, 0.0, false)
+    }
+
+    /// A measure: its nominal and its tolerance as absolute limits. A
+    /// bound (`20 uV max`) has nominal zero.
+    fn measure(&mut self, id: String, m: &Measure) -> SlotId {
+        let nominal = if m.max { 0.0 } else { m.nominal };
+        let (minus, plus, normal) = match &m.tolerance {
+            Some(t) => limits(t, m.nominal),
+            None if m.max => (m.nominal.abs(), m.nominal.abs(), false),
+            None => (0.0, 0.0, false),
+        };
+        self.add(id, nominal, minus, plus, normal)
+    }
+
+    /// A limit around a nominal of zero.
+    fn limit(&mut self, id: String, t: &Tolerance) -> SlotId {
+        self.add(id, 0.0, t.minus, t.plus, t.normal)
+    }
+
+    /// A drift: the coefficient's sign is unknown, so nominal zero and the
+    /// stated value as a limit either way.
+    fn drift(&mut self, id: String, per_kelvin: f64, relative: bool) -> DriftSlot {
+        let slot = self.add(id, 0.0, per_kelvin.abs(), per_kelvin.abs(), false);
+        DriftSlot { slot, relative }
+    }
+}
+
+fn limits(t: &Tolerance, nominal: f64) -> (f64, f64, bool) {
+    if t.relative {
+        (t.minus * nominal.abs(), t.plus * nominal.abs(), t.normal)
+    } else {
+        (t.minus, t.plus, t.normal)
+    }
+}
+
+fn measure<'a>(stage: &'a Stage, name: &str) -> Option<&'a Measure> {
+    match stage.param(name) {
+        Some(ParamValue::Measure(m)) => Some(m),
+        _ => None,
+    }
+}
+
+fn word<'a>(stage: &'a Stage, name: &str) -> Option<&'a str> {
+    match stage.param(name) {
+        Some(ParamValue::Word(w)) => Some(w.as_str()),
+        _ => None,
+    }
+}
+
+fn count(stage: &Stage, name: &str) -> Option<u32> {
+    match stage.param(name) {
+        Some(ParamValue::Count(n)) => Some(*n),
+        _ => None,
+    }
+}
+
+fn not_invertible(stage: &str, what: impl Into<String>) -> EvalError {
+    EvalError::NotInvertible {
+        stage: stage.to_string(),
+        what: what.into(),
+    }
+}
+
+/// Lowers a chain that checked without errors.
+pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
+    let chain_name = chain.name.clone();
+    let Some(measurand) = &chain.measurand else {
+        return Err(not_invertible(&chain_name, "the chain has no measurand"));
+    };
+    if chain.stages.len() > MAX_NODES {
+        return Err(not_invertible(
+            &chain_name,
+            format!("a chain has at most {MAX_NODES} stages"),
+        ));
+    }
+    let mut graph = DiGraph::<usize, ()>::new();
+    let ids: Vec<_> = (0..chain.stages.len()).map(|i| graph.add_node(i)).collect();
+    for c in &chain.connections {
+        graph.add_edge(ids[c.from], ids[c.to], ());
+    }
+    let order: Vec<usize> = toposort(&graph, None)
+        .map_err(|_| not_invertible(&chain_name, "the chain has a loop"))?
+        .into_iter()
+        .map(|n| graph[n])
+        .collect();
+    let node_of = |stage: usize| order.iter().position(|&s| s == stage).unwrap_or(0);
+    let input = |stage: usize, port: Port| {
+        chain
+            .connections
+            .iter()
+            .find(|c| c.to == stage && c.to_port == port)
+            .map(|c| node_of(c.from))
+    };
+    let cold_junction_sensors: Vec<&str> = chain
+        .stages
+        .iter()
+        .filter_map(|s| match s.param("cold_junction") {
+            Some(ParamValue::StageRef { name, .. }) => Some(name.as_str()),
+            _ => None,
+        })
+        .collect();
+    let feeds_cj = |stage: usize| {
+        chain
+            .connections
+            .iter()
+            .any(|c| c.from == stage && c.to_port == Port::Cj)
+    };
+
+    let mut slots = Slots { slots: Vec::new() };
+    let mut nodes = Vec::with_capacity(order.len());
+    let mut names = Vec::with_capacity(order.len());
+    for &si in &order {
+        let stage = &chain.stages[si];
+        let id = |p: &str| format!("{}.{p}", stage.name);
+        let senses = if cold_junction_sensors.contains(&stage.name.as_str()) {
+            Senses::ColdJunction
+        } else {
+            Senses::Measurand
+        };
+        let drift_of = |slots: &mut Slots, name: &str, m: &Measure| {
+            m.drift.as_ref().map(|d| {
+                slots.drift(
+                    format!("{}.{name}_drift", stage.name),
+                    d.per_kelvin,
+                    d.relative,
+                )
+            })
+        };
+        let node = match (stage.kind, stage.model) {
+            (StageKind::Excitation, model) => {
+                let current = model == Some("current");
+                let name = if current { "current" } else { "voltage" };
+                let m =
+                    measure(stage, name).ok_or_else(|| not_invertible(&stage.name, "no value"))?;
+                let value = slots.measure(id(name), m);
+                let drift = match stage.param("drift") {
+                    Some(ParamValue::Limit(t)) => {
+                        Some(slots.drift(id("drift"), t.plus, t.relative))
+                    }
+                    _ => drift_of(&mut slots, name, m),
+                };
+                Node::Excitation {
+                    current,
+                    value,
+                    drift,
+                }
+            }
+            (StageKind::Sensor, Some("rtd")) => {
+                rtd_node(stage, &mut slots, input(si, Port::In), senses)?
+            }
+            (StageKind::Sensor, Some("thermocouple")) => {
+                let ty = word(stage, "thermocouple")
+                    .and_then(ThermocoupleType::from_letter)
+                    .ok_or_else(|| not_invertible(&stage.name, "no type"))?;
+                Node::Thermocouple { ty, senses }
+            }
+            (StageKind::Sensor, Some("thermistor")) => {
+                let r25 = slots.measure(
+                    id("r25"),
+                    measure(stage, "r25").ok_or_else(|| not_invertible(&stage.name, "no r25"))?,
+                );
+                let curve = match (measure(stage, "beta"), stage.param("steinhart")) {
+                    (Some(b), _) => ThermistorCurve::Beta {
+                        beta: slots.measure(id("beta"), b),
+                    },
+                    (None, Some(ParamValue::Numbers(n))) if n.len() == 3 => {
+                        ThermistorCurve::SteinhartHart {
+                            a: n[0],
+                            b: n[1],
+                            c: n[2],
+                        }
+                    }
+                    _ => return Err(not_invertible(&stage.name, "no beta or steinhart")),
+                };
+                let dissipation =
+                    measure(stage, "dissipation").map(|m| slots.measure(id("dissipation"), m));
+                let valid = match stage.param("range") {
+                    Some(ParamValue::Range { low, high }) => Some((*low, *high)),
+                    _ => None,
+                };
+                Node::Thermistor {
+                    r25,
+                    curve,
+                    dissipation,
+                    input: input(si, Port::In),
+                    senses,
+                    valid,
+                }
+            }
+            (StageKind::Sensor, Some("ic_voltage")) => {
+                let slope = slots.measure(
+                    id("slope"),
+                    measure(stage, "slope")
+                        .ok_or_else(|| not_invertible(&stage.name, "no slope"))?,
+                );
+                let Some(ParamValue::At { value, at, .. }) = stage.param("output") else {
+                    return Err(not_invertible(&stage.name, "no output"));
+                };
+                let v0 = slots.measure(id("output"), value);
+                Node::IcVoltage {
+                    slope,
+                    v0,
+                    t0: *at,
+                    senses,
+                }
+            }
+            (StageKind::Sensor, Some("ic_current")) => {
+                let slope = slots.measure(
+                    id("slope"),
+                    measure(stage, "slope")
+                        .ok_or_else(|| not_invertible(&stage.name, "no slope"))?,
+                );
+                Node::IcCurrent { slope, senses }
+            }
+            (StageKind::Sensor, Some("strain_gauge")) => {
+                if measurand.dim != Dim::NONE {
+                    return Err(not_invertible(
+                        &stage.name,
+                        "a strain gauge needs a `strain` measurand",
+                    ));
+                }
+                let r = slots.measure(
+                    id("r"),
+                    measure(stage, "r").ok_or_else(|| not_invertible(&stage.name, "no r"))?,
+                );
+                let gauge_factor = slots.measure(
+                    id("gauge_factor"),
+                    measure(stage, "gauge_factor")
+                        .ok_or_else(|| not_invertible(&stage.name, "no gauge factor"))?,
+                );
+                Node::StrainGauge {
+                    r,
+                    gauge_factor,
+                    input: input(si, Port::In),
+                }
+            }
+            (StageKind::Sensor, Some("transducer")) => {
+                let Some(ParamValue::At {
+                    value,
+                    value_dim,
+                    at,
+                }) = stage.param("sensitivity")
+                else {
+                    return Err(not_invertible(&stage.name, "no sensitivity"));
+                };
+                if *at == 0.0 {
+                    return Err(not_invertible(
+                        &stage.name,
+                        "the sensitivity is stated at zero load",
+                    ));
+                }
+                let sensitivity = slots.measure(id("sensitivity"), value);
+                let zero = match stage.param("zero") {
+                    Some(ParamValue::Limit(t)) => Some(slots.limit(id("zero"), t)),
+                    _ => None,
+                };
+                Node::Transducer {
+                    sensitivity,
+                    ratiometric: *value_dim == Dim::NONE,
+                    full_scale: *at,
+                    zero,
+                    input: input(si, Port::In),
+                }
+            }
+            (StageKind::Sensor, _) => {
+                let m = measure(stage, "resistor")
+                    .ok_or_else(|| not_invertible(&stage.name, "no resistance"))?;
+                let r = slots.measure(id("r"), m);
+                let drift = drift_of(&mut slots, "r", m);
+                Node::Resistor {
+                    r,
+                    drift,
+                    input: input(si, Port::In),
+                }
+            }
+            (StageKind::Bridge, model) => {
+                let kind = match model {
+                    Some("divider") => BridgeKind::Divider {
+                        sensor_high: word(stage, "sensor") == Some("high"),
+                    },
+                    Some("quarter") => BridgeKind::Quarter,
+                    Some("half") => BridgeKind::Half,
+                    _ => BridgeKind::Full,
+                };
+                let (r, drift) = match measure(stage, "r") {
+                    Some(m) => (
+                        Some(slots.measure(id("r"), m)),
+                        drift_of(&mut slots, "r", m),
+                    ),
+                    None => (None, None),
+                };
+                let exc = input(si, Port::Exc)
+                    .ok_or_else(|| not_invertible(&stage.name, "no excitation"))?;
+                let arms = chain
+                    .connections
+                    .iter()
+                    .filter(|c| c.to == si && c.to_port == Port::Arm)
+                    .map(|c| node_of(c.from))
+                    .collect();
+                Node::Bridge {
+                    kind,
+                    r,
+                    drift,
+                    exc,
+                    arms,
+                }
+            }
+            (StageKind::Amplifier, _) => {
+                let gain = slots.measure(
+                    id("gain"),
+                    measure(stage, "gain").ok_or_else(|| not_invertible(&stage.name, "no gain"))?,
+                );
+                let offset = match stage.param("offset") {
+                    Some(ParamValue::Limit(t)) => Some(slots.limit(id("offset"), t)),
+                    _ => None,
+                };
+                let output = match stage.param("output") {
+                    Some(ParamValue::Range { low, high }) => Some((*low, *high)),
+                    _ => None,
+                };
+                Node::Amplifier {
+                    gain,
+                    offset,
+                    input: input(si, Port::In)
+                        .ok_or_else(|| not_invertible(&stage.name, "no input"))?,
+                    output,
+                }
+            }
+            (StageKind::Filter, _) => Node::Filter {
+                input: input(si, Port::In)
+                    .ok_or_else(|| not_invertible(&stage.name, "no input"))?,
+            },
+            (StageKind::Adc, _) => {
+                adc_node(stage, &mut slots, input(si, Port::In), input(si, Port::Ref))?
+            }
+            (StageKind::Convert, _) => {
+                let adc =
+                    input(si, Port::In).ok_or_else(|| not_invertible(&stage.name, "no input"))?;
+                let variable = if feeds_cj(si) {
+                    Senses::ColdJunction
+                } else {
+                    Senses::Measurand
+                };
+                let range = match variable {
+                    Senses::Measurand => (measurand.low, measurand.high),
+                    Senses::ColdJunction => chain.ambient,
+                };
+                let margin = match variable {
+                    Senses::Measurand => DOMAIN_MARGIN * (range.1 - range.0),
+                    Senses::ColdJunction => CJ_MARGIN_K,
+                };
+                let calibration = match stage.param("calibrate") {
+                    Some(ParamValue::Calibrate { method, points, .. })
+                        if method == "offset" && points.len() == 1 =>
+                    {
+                        Calibration::Offset { at: points[0] }
+                    }
+                    Some(ParamValue::Calibrate { points, .. }) if points.len() == 2 => {
+                        Calibration::TwoPoint {
+                            at: (points[0], points[1]),
+                        }
+                    }
+                    _ => Calibration::None,
+                };
+                let conversion = Conversion {
+                    method: Method::Exact,
+                    variable,
+                    adc,
+                    domain: (range.0 - margin, range.1 + margin),
+                    range,
+                    calibration,
+                };
+                Node::Convert {
+                    input: adc,
+                    cj: input(si, Port::Cj),
+                    conversion: Box::new(conversion),
+                }
+            }
+        };
+        nodes.push(node);
+        names.push(stage.name.clone());
+    }
+
+    let reading_stage = chain
+        .stages
+        .iter()
+        .enumerate()
+        .find(|(i, s)| {
+            s.kind == StageKind::Convert && !chain.connections.iter().any(|c| c.from == *i)
+        })
+        .map(|(i, _)| i)
+        .ok_or_else(|| not_invertible(&chain_name, "no conversion ends the chain"))?;
+    let reading = node_of(reading_stage);
+    let Node::Convert { input: adc, .. } = &nodes[reading] else {
+        return Err(not_invertible(
+            &chain_name,
+            "the reading is not a conversion",
+        ));
+    };
+    let adc = *adc;
+    let nominal = slots.slots.iter().map(|s| s.nominal).collect();
+    let mut plan = Plan {
+        chain: chain_name,
+        names,
+        nodes,
+        slots: slots.slots,
+        nominal,
+        reference: chain.reference,
+        range: (measurand.low, measurand.high),
+        reading,
+        adc,
+    };
+    fit_conversions(&mut plan, chain, &order)?;
+    Ok(plan)
+}
+
+fn rtd_node(
+    stage: &Stage,
+    slots: &mut Slots,
+    input: Option<NodeId>,
+    senses: Senses,
+) -> Result<Node, EvalError> {
+    let id = |p: &str| format!("{}.{p}", stage.name);
+    let curve_word = word(stage, "rtd").unwrap_or("pt100");
+    let (default_r0, curve) = match curve_word {
+        "pt100" => (100.0, iec()),
+        "pt500" => (500.0, iec()),
+        "pt1000" => (1000.0, iec()),
+        "ni100" => (100.0, RtdCurve::Nickel),
+        "ni120" => (120.0, RtdCurve::Nickel),
+        "ni1000" => (1000.0, RtdCurve::Nickel),
+        "cu10" => (10.0, RtdCurve::Copper),
+        "cu100" => (100.0, RtdCurve::Copper),
+        _ => match stage.param("coefficients") {
+            Some(ParamValue::Numbers(n)) if n.len() == 3 => (
+                0.0,
+                RtdCurve::Cvd {
+                    a: n[0],
+                    b: n[1],
+                    c: n[2],
+                },
+            ),
+            _ => {
+                return Err(not_invertible(
+                    &stage.name,
+                    "a custom curve needs `coefficients`",
+                ))
+            }
+        },
+    };
+    let r0 = match measure(stage, "r0") {
+        Some(m) => slots.measure(id("r0"), m),
+        None => slots.exact(id("r0"), default_r0),
+    };
+    let wires = count(stage, "wires").unwrap_or(4);
+    let lead = measure(stage, "lead").map(|m| slots.measure(id("lead"), m));
+    let dissipation = measure(stage, "dissipation").map(|m| slots.measure(id("dissipation"), m));
+    let valid = word(stage, "class").map(|c| {
+        let class = match c {
+            "AA" => ToleranceClass::AA,
+            "A" => ToleranceClass::A,
+            "B" => ToleranceClass::B,
+            _ => ToleranceClass::C,
+        };
+        let (lo, hi) = class.wire_wound_range_c();
+        (lo + ZERO_CELSIUS_K, hi + ZERO_CELSIUS_K)
+    });
+    Ok(Node::Rtd {
+        curve,
+        r0,
+        lead_factor: if wires == 2 { 2.0 } else { 0.0 },
+        lead,
+        dissipation,
+        input,
+        senses,
+        valid,
+    })
+}
+
+fn iec() -> RtdCurve {
+    let k = rtd::CvdCoefficients::IEC_60751;
+    RtdCurve::Cvd {
+        a: k.a,
+        b: k.b,
+        c: k.c,
+    }
+}
+
+fn adc_node(
+    stage: &Stage,
+    slots: &mut Slots,
+    input: Option<NodeId>,
+    reference: Option<NodeId>,
+) -> Result<Node, EvalError> {
+    let id = |p: &str| format!("{}.{p}", stage.name);
+    let differential = word(stage, "input") == Some("differential");
+    // Differential converters are bipolar unless told otherwise.
+    let polarity = match word(stage, "polarity") {
+        Some("bipolar") => Polarity::Bipolar,
+        Some("unipolar") => Polarity::Unipolar,
+        _ if differential => Polarity::Bipolar,
+        _ => Polarity::Unipolar,
+    };
+    let limit = |slots: &mut Slots, name: &str| match stage.param(name) {
+        Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), t)),
+        _ => None,
+    };
+    let (vref, vref_drift) = match measure(stage, "vref") {
+        Some(m) => (
+            Some(slots.measure(id("vref"), m)),
+            m.drift
+                .as_ref()
+                .map(|d| slots.drift(id("vref_drift"), d.per_kelvin, d.relative)),
+        ),
+        None => (None, None),
+    };
+    Ok(Node::Adc {
+        bits: count(stage, "bits").unwrap_or(12),
+        polarity,
+        differential,
+        pga: measure(stage, "pga").map(|m| slots.measure(id("pga"), m)),
+        vref,
+        vref_drift,
+        reference,
+        offset: limit(slots, "offset"),
+        gain_error: limit(slots, "gain_error"),
+        input: input.ok_or_else(|| not_invertible(&stage.name, "no input"))?,
+    })
+}
+
+/// Narrows each conversion's domain to where the nominal chain evaluates,
+/// then fits its method there.
+fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<(), EvalError> {
+    let env = Env {
+        measurand: (plan.range.0 + plan.range.1) / 2.0,
+        ambient: plan.reference,
+        cold_junction: plan.reference,
+    };
+    for (node, &stage_index) in order.iter().enumerate() {
+        let Node::Convert { conversion, .. } = &plan.nodes[node] else {
+            continue;
+        };
+        let mut conversion = (**conversion).clone();
+        let stage = &chain.stages[stage_index];
+        let probe = |plan: &Plan, x: f64| {
+            let e = match conversion.variable {
+                Senses::Measurand => Env {
+                    measurand: x,
+                    ..env
+                },
+                Senses::ColdJunction => Env {
+                    cold_junction: x,
+                    ..env
+                },
+            };
+            plan.exact_code(&plan.nominal, &e, conversion.adc)
+        };
+        // The range itself must evaluate: that is a finding of its own.
+        probe(plan, conversion.range.0)?;
+        probe(plan, conversion.range.1)?;
+        for end in [0, 1] {
+            let inside = if end == 0 {
+                conversion.range.0
+            } else {
+                conversion.range.1
+            };
+            let mut outside = if end == 0 {
+                conversion.domain.0
+            } else {
+                conversion.domain.1
+            };
+            if probe(plan, outside).is_err() {
+                let mut good = inside;
+                for _ in 0..60 {
+                    let mid = (good + outside) / 2.0;
+                    if probe(plan, mid).is_ok() {
+                        good = mid;
+                    } else {
+                        outside = mid;
+                    }
+                }
+                outside = good;
+            }
+            if end == 0 {
+                conversion.domain.0 = outside;
+            } else {
+                conversion.domain.1 = outside;
+            }
+        }
+        let (a, b) = (
+            probe(plan, conversion.range.0)?,
+            probe(plan, conversion.range.1)?,
+        );
+        if a == b {
+            return Err(not_invertible(
+                &stage.name,
+                "the code does not change over the measurand range",
+            ));
+        }
+        let (method, points) = match stage.param("method") {
+            Some(ParamValue::Method { method, points }) => (method.clone(), points.unwrap_or(0)),
+            _ => ("exact".to_string(), 0),
+        };
+        conversion
+            .fit(plan, &env, &method, points)
+            .map_err(|what| not_invertible(&stage.name, what))?;
+        if let Node::Convert { conversion: c, .. } = &mut plan.nodes[node] {
+            **c = conversion;
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,18 @@
+//! The checked chain lowered to a flat evaluation plan that every analysis
+//! drives: stages in evaluation order, each a pure function of its input
+//! signals, the parameter values and the environment.
+//!
+//! Parameter values live in one slice indexed by [`SlotId`], separate from
+//! the plan: a range sweep, an error budget or a Monte Carlo run perturbs a
+//! copy of [`Plan::nominal`] and evaluates the same plan with it. Evaluation
+//! allocates nothing and looks nothing up by name.
+
+mod convert;
+mod lower;
+mod plan;
+mod run;
+
+pub use convert::Conversion;
+pub use lower::lower;
+pub use plan::{Env, EvalError, Node, NodeId, Plan, Senses, Signal, Slot, SlotId};
+pub use run::Outcome;

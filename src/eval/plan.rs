@@ -1,0 +1,275 @@
+use std::fmt;
+
+use super::convert::Conversion;
+use crate::physics::adc::Polarity;
+use crate::physics::thermocouple::ThermocoupleType;
+
+/// Index into the parameter values.
+pub type SlotId = usize;
+/// Index into the plan's nodes (and the signals of one evaluation).
+pub type NodeId = usize;
+
+/// One numeric parameter: its id (`stage.parameter`), nominal value (SI)
+/// and what the datasheet allows around it, for the analyses.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Slot {
+    pub id: String,
+    pub nominal: f64,
+    /// Limits below and above the nominal, absolute SI (relative
+    /// tolerances are already multiplied out).
+    pub minus: f64,
+    pub plus: f64,
+    /// The limit is a 3σ normal bound; otherwise rectangular.
+    pub normal: bool,
+}
+
+/// Where a sensor is: at the measured point, or at the cold junction
+/// (the electronics' ambient).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Senses {
+    Measurand,
+    ColdJunction,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum RtdCurve {
+    /// Callendar–Van Dusen with A, B, C.
+    Cvd { a: f64, b: f64, c: f64 },
+    /// DIN 43760 nickel polynomial.
+    Nickel,
+    /// Linear copper element.
+    Copper,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum ThermistorCurve {
+    Beta { beta: SlotId },
+    SteinhartHart { a: f64, b: f64, c: f64 },
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum BridgeKind {
+    Divider { sensor_high: bool },
+    Quarter,
+    Half,
+    Full,
+}
+
+/// A drift coefficient applied over (ambient − reference).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct DriftSlot {
+    pub slot: SlotId,
+    pub relative: bool,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum Node {
+    Excitation {
+        current: bool,
+        value: SlotId,
+        drift: Option<DriftSlot>,
+    },
+    Rtd {
+        curve: RtdCurve,
+        r0: SlotId,
+        /// Series lead resistance the measurement sees (2-wire: both leads).
+        lead_factor: f64,
+        lead: Option<SlotId>,
+        dissipation: Option<SlotId>,
+        input: Option<NodeId>,
+        senses: Senses,
+        /// Class validity range, kelvin, when a class is given.
+        valid: Option<(f64, f64)>,
+    },
+    Thermocouple {
+        ty: ThermocoupleType,
+        senses: Senses,
+    },
+    Thermistor {
+        r25: SlotId,
+        curve: ThermistorCurve,
+        dissipation: Option<SlotId>,
+        input: Option<NodeId>,
+        senses: Senses,
+        valid: Option<(f64, f64)>,
+    },
+    IcVoltage {
+        slope: SlotId,
+        v0: SlotId,
+        t0: f64,
+        senses: Senses,
+    },
+    IcCurrent {
+        slope: SlotId,
+        senses: Senses,
+    },
+    StrainGauge {
+        r: SlotId,
+        gauge_factor: SlotId,
+        input: Option<NodeId>,
+    },
+    Transducer {
+        sensitivity: SlotId,
+        ratiometric: bool,
+        full_scale: f64,
+        zero: Option<SlotId>,
+        input: Option<NodeId>,
+    },
+    Resistor {
+        r: SlotId,
+        drift: Option<DriftSlot>,
+        input: Option<NodeId>,
+    },
+    Bridge {
+        kind: BridgeKind,
+        r: Option<SlotId>,
+        drift: Option<DriftSlot>,
+        exc: NodeId,
+        arms: Vec<NodeId>,
+    },
+    Amplifier {
+        gain: SlotId,
+        offset: Option<SlotId>,
+        input: NodeId,
+        output: Option<(f64, f64)>,
+    },
+    Filter {
+        input: NodeId,
+    },
+    Adc {
+        bits: u32,
+        polarity: Polarity,
+        differential: bool,
+        pga: Option<SlotId>,
+        vref: Option<SlotId>,
+        vref_drift: Option<DriftSlot>,
+        reference: Option<NodeId>,
+        offset: Option<SlotId>,
+        gain_error: Option<SlotId>,
+        input: NodeId,
+    },
+    Convert {
+        input: NodeId,
+        cj: Option<NodeId>,
+        conversion: Box<Conversion>,
+    },
+}
+
+/// What a node outputs in one evaluation, in SI.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub enum Signal {
+    #[default]
+    None,
+    /// A current (excitation or a PTAT sensor's output), A.
+    Current(f64),
+    /// A voltage source, V.
+    Source(f64),
+    /// A resistance for a bridge arm, Ω.
+    Element(f64),
+    /// A voltage: differential value and common mode, V.
+    Voltage { v: f64, cm: f64 },
+    /// A converter code: the exact (unrounded) value and the output code.
+    Code { exact: f64, code: i64 },
+    /// A reading, SI (kelvin for temperatures).
+    Reading(f64),
+}
+
+impl Signal {
+    /// The main value and its coherent SI unit, for reports.
+    pub fn value_unit(self) -> (f64, &'static str) {
+        match self {
+            Signal::None => (0.0, ""),
+            Signal::Current(a) => (a, "A"),
+            Signal::Source(v) | Signal::Voltage { v, .. } => (v, "V"),
+            Signal::Element(r) => (r, "ohm"),
+            Signal::Code { code, .. } => (code as f64, "code"),
+            Signal::Reading(x) => (x, "SI"),
+        }
+    }
+}
+
+/// The conditions of one evaluation, SI.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Env {
+    pub measurand: f64,
+    /// The electronics' temperature, K; drifts act over ambient − reference.
+    pub ambient: f64,
+    /// The thermocouple cold junction's temperature, K.
+    pub cold_junction: f64,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum EvalError {
+    /// A sensor model driven outside the range it is defined over.
+    OutOfRange {
+        stage: String,
+        what: String,
+        low: f64,
+        high: f64,
+        value: f64,
+        celsius: bool,
+    },
+    /// A value that is not a finite number, or a division by zero.
+    Numeric { stage: String, what: String },
+    /// The firmware conversion cannot be built (a flat or folded chain).
+    NotInvertible { stage: String, what: String },
+}
+
+impl fmt::Display for EvalError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let show = |x: f64, celsius: bool| {
+            if celsius {
+                format!("{} degC", trim(x - crate::units::ZERO_CELSIUS_K))
+            } else {
+                trim(x)
+            }
+        };
+        match self {
+            EvalError::OutOfRange {
+                stage,
+                what,
+                low,
+                high,
+                value,
+                celsius,
+            } => write!(
+                f,
+                "`{stage}` is driven outside its valid range: {what} {} is outside {} .. {}",
+                show(*value, *celsius),
+                show(*low, *celsius),
+                show(*high, *celsius)
+            ),
+            EvalError::Numeric { stage, what } => {
+                write!(f, "`{stage}` evaluates to no finite value: {what}")
+            }
+            EvalError::NotInvertible { stage, what } => {
+                write!(f, "`{stage}` cannot convert: {what}")
+            }
+        }
+    }
+}
+
+fn trim(x: f64) -> String {
+    let s = format!("{x:.6}");
+    s.trim_end_matches('0').trim_end_matches('.').to_string()
+}
+
+/// A chain ready to evaluate.
+#[derive(Clone, Debug)]
+pub struct Plan {
+    pub chain: String,
+    /// Stage names, by node.
+    pub names: Vec<String>,
+    /// Nodes in evaluation order (every input before its user).
+    pub nodes: Vec<Node>,
+    pub slots: Vec<Slot>,
+    /// The nominal value of every slot.
+    pub nominal: Vec<f64>,
+    pub reference: f64,
+    /// Measurand range, SI.
+    pub range: (f64, f64),
+    /// The convert that gives the chain's reading.
+    pub reading: NodeId,
+    /// The ADC that feeds it.
+    pub adc: NodeId,
+}

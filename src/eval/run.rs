@@ -1,0 +1,516 @@
+//! One evaluation: every node in order, each a pure function of its
+//! inputs' signals, the parameter values and the environment.
+
+use super::plan::{
+    BridgeKind, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses, Signal,
+    ThermistorCurve,
+};
+use crate::physics::adc::Polarity;
+use crate::physics::{rtd, semiconductor, strain, thermistor, thermocouple};
+use crate::units::ZERO_CELSIUS_K;
+
+/// What a run computes: conversions (the firmware model inside a
+/// conversion runs without them, so it does not recurse) and whether
+/// conversions see the rounded code or the exact one.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) struct Mode {
+    convert: bool,
+    quantized: bool,
+}
+
+impl Mode {
+    const FULL: Mode = Mode {
+        convert: true,
+        quantized: true,
+    };
+    const CODES: Mode = Mode {
+        convert: false,
+        quantized: true,
+    };
+    const UNQUANTIZED: Mode = Mode {
+        convert: true,
+        quantized: false,
+    };
+}
+
+/// Plans are small; a fixed bound keeps every evaluation on the stack.
+pub const MAX_NODES: usize = 64;
+
+/// The signals of one evaluation, by node.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Outcome {
+    pub signals: Vec<Signal>,
+}
+
+/// Callendar–Van Dusen is defined over −200 … 850 °C (IEC 60751).
+const CVD_RANGE_C: (f64, f64) = (-200.0, 850.0);
+/// DIN 43760 nickel curve range (recalled from memory of the standard).
+const NICKEL_RANGE_C: (f64, f64) = (-60.0, 180.0);
+/// Copper elements: common practice limits the linear model to −50 … 150 °C.
+const COPPER_RANGE_C: (f64, f64) = (-50.0, 150.0);
+
+impl Plan {
+    /// Evaluates every node, conversions included.
+    pub fn evaluate(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, self.nodes.len(), Mode::FULL)?;
+        Ok(Outcome {
+            signals: signals[..self.nodes.len()].to_vec(),
+        })
+    }
+
+    /// The chain's reading at `env`, SI.
+    pub fn reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, self.reading + 1, Mode::FULL)?;
+        match signals[self.reading] {
+            Signal::Reading(x) => Ok(x),
+            _ => Err(self.numeric(self.reading, "no reading")),
+        }
+    }
+
+    /// The unrounded code of `adc` with the given values: what the
+    /// firmware's model of the chain predicts.
+    pub fn exact_code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, adc + 1, Mode::CODES)?;
+        match signals[adc] {
+            Signal::Code { exact, .. } => Ok(exact),
+            _ => Err(self.numeric(adc, "no code")),
+        }
+    }
+
+    /// Runs nodes `0..until`.
+    pub(super) fn run(
+        &self,
+        values: &[f64],
+        env: &Env,
+        signals: &mut [Signal; MAX_NODES],
+        until: usize,
+        mode: Mode,
+    ) -> Result<(), EvalError> {
+        for i in 0..until.min(self.nodes.len()) {
+            if !mode.convert && matches!(self.nodes[i], Node::Convert { .. }) {
+                continue;
+            }
+            let s = self.node(i, values, env, signals, mode)?;
+            if !finite(s) {
+                return Err(self.numeric(i, "a signal is not a finite number"));
+            }
+            signals[i] = s;
+        }
+        Ok(())
+    }
+
+    pub(super) fn numeric(&self, node: NodeId, what: &str) -> EvalError {
+        EvalError::Numeric {
+            stage: self.names[node].clone(),
+            what: what.to_string(),
+        }
+    }
+
+    fn sensed(&self, senses: Senses, env: &Env) -> f64 {
+        match senses {
+            Senses::Measurand => env.measurand,
+            Senses::ColdJunction => env.cold_junction,
+        }
+    }
+
+    fn drifted(&self, value: f64, drift: Option<DriftSlot>, values: &[f64], env: &Env) -> f64 {
+        match drift {
+            None => value,
+            Some(d) if d.relative => {
+                value * (1.0 + values[d.slot] * (env.ambient - self.reference))
+            }
+            Some(d) => value + values[d.slot] * (env.ambient - self.reference),
+        }
+    }
+
+    fn out_of_range(&self, node: NodeId, what: &str, t_k: f64, range_c: (f64, f64)) -> EvalError {
+        EvalError::OutOfRange {
+            stage: self.names[node].clone(),
+            what: what.to_string(),
+            low: range_c.0 + ZERO_CELSIUS_K,
+            high: range_c.1 + ZERO_CELSIUS_K,
+            value: t_k,
+            celsius: true,
+        }
+    }
+
+    fn node(
+        &self,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+        mode: Mode,
+    ) -> Result<Signal, EvalError> {
+        let current_into = |input: Option<NodeId>| match input.map(|n| s[n]) {
+            Some(Signal::Current(a)) => Some(a),
+            _ => None,
+        };
+        let element = |r: f64, input: Option<NodeId>| match current_into(input) {
+            Some(a) => Signal::Voltage {
+                v: a * r,
+                cm: a * r / 2.0,
+            },
+            None => Signal::Element(r),
+        };
+        Ok(match &self.nodes[i] {
+            Node::Excitation {
+                current,
+                value,
+                drift,
+            } => {
+                let v = self.drifted(values[*value], *drift, values, env);
+                if *current {
+                    Signal::Current(v)
+                } else {
+                    Signal::Source(v)
+                }
+            }
+            Node::Rtd {
+                curve,
+                r0,
+                lead_factor,
+                lead,
+                dissipation,
+                input,
+                senses,
+                valid,
+            } => {
+                let t = self.sensed(*senses, env);
+                let range = match curve {
+                    RtdCurve::Cvd { .. } => CVD_RANGE_C,
+                    RtdCurve::Nickel => NICKEL_RANGE_C,
+                    RtdCurve::Copper => COPPER_RANGE_C,
+                };
+                let t_c = within(t - ZERO_CELSIUS_K, range)
+                    .ok_or_else(|| self.out_of_range(i, "the element's curve", t, range))?;
+                if let Some((lo, hi)) = valid {
+                    let range = (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
+                    within(t_c, range)
+                        .ok_or_else(|| self.out_of_range(i, "its tolerance class", t, range))?;
+                }
+                let r_at = |t_c: f64| match curve {
+                    RtdCurve::Cvd { a, b, c } => rtd::resistance(
+                        values[*r0],
+                        rtd::CvdCoefficients {
+                            a: *a,
+                            b: *b,
+                            c: *c,
+                        },
+                        t_c,
+                    ),
+                    RtdCurve::Nickel => {
+                        rtd::nickel_resistance(values[*r0], rtd::NickelCoefficients::DIN_43760, t_c)
+                    }
+                    RtdCurve::Copper => rtd::linear_resistance(values[*r0], rtd::COPPER_ALPHA, t_c),
+                };
+                let mut r = r_at(t_c);
+                // Self-heating raises the element above the measurand by
+                // I²R/δ; a few fixed-point steps converge (ΔT ≪ 1 K).
+                if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
+                    for _ in 0..4 {
+                        r = r_at(t_c + a * a * r / values[*d]);
+                    }
+                }
+                let lead = lead.map(|l| values[l]).unwrap_or(0.0);
+                element(r + lead_factor * lead, *input)
+            }
+            Node::Thermocouple { ty, senses } => {
+                let range = ty.range_c();
+                let t = self.sensed(*senses, env) - ZERO_CELSIUS_K;
+                let t = within(t, range).unwrap_or(t);
+                let tj = env.cold_junction - ZERO_CELSIUS_K;
+                let tj = within(tj, range).unwrap_or(tj);
+                let e = |t_c: f64| {
+                    thermocouple::emf_mv(*ty, t_c).map_err(|e| {
+                        self.out_of_range(
+                            i,
+                            &format!("type {} thermocouple", ty.letter()),
+                            t_c + ZERO_CELSIUS_K,
+                            (e.low, e.high),
+                        )
+                    })
+                };
+                let v = (e(t)? - e(tj)?) * 1e-3;
+                Signal::Voltage { v, cm: 0.0 }
+            }
+            Node::Thermistor {
+                r25,
+                curve,
+                dissipation,
+                input,
+                senses,
+                valid,
+            } => {
+                let t = self.sensed(*senses, env);
+                if let Some((lo, hi)) = valid {
+                    let range = (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
+                    within(t - ZERO_CELSIUS_K, range)
+                        .ok_or_else(|| self.out_of_range(i, "its stated range", t, range))?;
+                }
+                let r_at = |t: f64| match curve {
+                    ThermistorCurve::Beta { beta } => thermistor::beta_resistance(
+                        values[*r25],
+                        25.0 + ZERO_CELSIUS_K,
+                        values[*beta],
+                        t,
+                    ),
+                    ThermistorCurve::SteinhartHart { a, b, c } => thermistor::sh_resistance(
+                        thermistor::SteinhartHart {
+                            a: *a,
+                            b: *b,
+                            c: *c,
+                        },
+                        t,
+                    ),
+                };
+                let bad = |_| {
+                    self.numeric(
+                        i,
+                        "the thermistor curve has no resistance at this temperature",
+                    )
+                };
+                let mut r = r_at(t).map_err(bad)?;
+                if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
+                    for _ in 0..4 {
+                        r = r_at(t + a * a * r / values[*d]).map_err(bad)?;
+                    }
+                }
+                element(r, *input)
+            }
+            Node::IcVoltage {
+                slope,
+                v0,
+                t0,
+                senses,
+            } => {
+                let t = self.sensed(*senses, env);
+                let v = semiconductor::linear_voltage_v(
+                    values[*v0],
+                    values[*slope],
+                    t0 - ZERO_CELSIUS_K,
+                    t - ZERO_CELSIUS_K,
+                );
+                Signal::Voltage { v, cm: v / 2.0 }
+            }
+            Node::IcCurrent { slope, senses } => {
+                let t = self.sensed(*senses, env);
+                let a = semiconductor::ptat_current_a(values[*slope], t)
+                    .map_err(|_| self.numeric(i, "no PTAT current at this temperature"))?;
+                Signal::Current(a)
+            }
+            Node::StrainGauge {
+                r,
+                gauge_factor,
+                input,
+            } => element(
+                strain::gauge_resistance(values[*r], values[*gauge_factor], env.measurand),
+                *input,
+            ),
+            Node::Transducer {
+                sensitivity,
+                ratiometric,
+                full_scale,
+                zero,
+                input,
+            } => {
+                let z = zero.map(|z| values[z]).unwrap_or(0.0);
+                let fraction = values[*sensitivity] * env.measurand / full_scale + z;
+                let (v, cm) = match (ratiometric, input.map(|n| s[n])) {
+                    (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
+                    (true, _) => {
+                        return Err(self
+                            .numeric(i, "a transducer rated in mV/V needs a voltage excitation"))
+                    }
+                    (false, _) => (fraction, fraction / 2.0),
+                };
+                Signal::Voltage { v, cm }
+            }
+            Node::Resistor { r, drift, input } => {
+                element(self.drifted(values[*r], *drift, values, env), *input)
+            }
+            Node::Bridge {
+                kind,
+                r,
+                drift,
+                exc,
+                arms,
+            } => self.bridge(i, *kind, *r, *drift, *exc, arms, values, env, s)?,
+            Node::Amplifier {
+                gain,
+                offset,
+                input,
+                output,
+            } => {
+                let Signal::Voltage { v, .. } = s[*input] else {
+                    return Err(self.numeric(i, "no input voltage"));
+                };
+                let off = offset.map(|o| values[o]).unwrap_or(0.0);
+                let mut out = values[*gain] * (v + off);
+                if let Some((lo, hi)) = output {
+                    out = out.clamp(*lo, *hi);
+                }
+                Signal::Voltage {
+                    v: out,
+                    cm: out / 2.0,
+                }
+            }
+            Node::Filter { input } => s[*input],
+            Node::Adc {
+                bits,
+                polarity,
+                pga,
+                vref,
+                vref_drift,
+                reference,
+                offset,
+                gain_error,
+                input,
+                ..
+            } => {
+                let Signal::Voltage { v, .. } = s[*input] else {
+                    return Err(self.numeric(i, "no input voltage"));
+                };
+                let vr = match reference.map(|n| s[n]) {
+                    Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
+                    _ => self.drifted(
+                        vref.map(|r| values[r]).unwrap_or(0.0),
+                        *vref_drift,
+                        values,
+                        env,
+                    ),
+                };
+                if vr <= 0.0 || !vr.is_finite() {
+                    return Err(self.numeric(i, "the reference voltage is zero or negative"));
+                }
+                let gain = pga.map(|g| values[g]).unwrap_or(1.0)
+                    * (1.0 + gain_error.map(|g| values[g]).unwrap_or(0.0));
+                let off = offset.map(|o| values[o]).unwrap_or(0.0);
+                let per_ref = match polarity {
+                    Polarity::Unipolar => 2f64.powi(*bits as i32),
+                    Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
+                };
+                let exact = (v + off) * gain / vr * per_ref;
+                let (lo, hi) = match polarity {
+                    Polarity::Unipolar => (0.0, per_ref - 1.0),
+                    Polarity::Bipolar => (-per_ref, per_ref - 1.0),
+                };
+                Signal::Code {
+                    exact,
+                    code: exact.round().clamp(lo, hi) as i64,
+                }
+            }
+            Node::Convert {
+                input,
+                cj,
+                conversion,
+            } => {
+                let Signal::Code { code, exact } = s[*input] else {
+                    return Err(self.numeric(i, "no code"));
+                };
+                let code = if mode.quantized { code as f64 } else { exact };
+                let cj_reading = cj.and_then(|n| match s[n] {
+                    Signal::Reading(t) => Some(t),
+                    _ => None,
+                });
+                Signal::Reading(conversion.apply(self, values, env, code, cj_reading)?)
+            }
+        })
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn bridge(
+        &self,
+        i: NodeId,
+        kind: BridgeKind,
+        r: Option<usize>,
+        drift: Option<DriftSlot>,
+        exc: NodeId,
+        arms: &[NodeId],
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+    ) -> Result<Signal, EvalError> {
+        let fixed = r
+            .map(|r| self.drifted(values[r], drift, values, env))
+            .unwrap_or(0.0);
+        let arm = |k: usize| match arms.get(k).map(|&n| s[n]) {
+            Some(Signal::Element(r)) => Ok(r),
+            _ => Err(self.numeric(i, "a bridge arm has no element")),
+        };
+        let bad = |_| self.numeric(i, "the bridge has no output (an arm of zero resistance)");
+        // Arms by position, as drawn in `physics::strain`: r1 r2 on the
+        // positive side, r3 r4 on the negative; active elements in edge
+        // order go to r2, r3, r1, r4.
+        let (r1, r2, r3, r4) = match kind {
+            BridgeKind::Divider { sensor_high } => {
+                let element = arm(0)?;
+                let (low, high) = if sensor_high {
+                    (fixed, element)
+                } else {
+                    (element, fixed)
+                };
+                let v = match s[exc] {
+                    Signal::Source(v) => strain::divider_output(v, low, high).map_err(bad)?,
+                    Signal::Current(a) => a * low,
+                    _ => return Err(self.numeric(i, "no excitation")),
+                };
+                return Ok(Signal::Voltage { v, cm: v / 2.0 });
+            }
+            BridgeKind::Quarter => (fixed, arm(0)?, fixed, fixed),
+            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, fixed),
+            BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
+        };
+        let v_exc = match s[exc] {
+            Signal::Source(v) => v,
+            Signal::Current(a) => a * ((r1 + r2) * (r3 + r4) / (r1 + r2 + r3 + r4)),
+            _ => return Err(self.numeric(i, "no excitation")),
+        };
+        let v = strain::bridge_output(v_exc, r1, r2, r3, r4).map_err(bad)?;
+        let cm = strain::bridge_common_mode(v_exc, r1, r2, r3, r4).map_err(bad)?;
+        Ok(Signal::Voltage { v, cm })
+    }
+}
+
+/// Range ends written in °C come back through kelvin a few ulps off;
+/// within a nanokelvin of an end counts as the end.
+fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
+    const SLACK: f64 = 1e-9;
+    (lo - SLACK..=hi + SLACK)
+        .contains(&t_c)
+        .then(|| t_c.clamp(lo, hi))
+}
+
+fn finite(s: Signal) -> bool {
+    match s {
+        Signal::None => true,
+        Signal::Current(x) | Signal::Source(x) | Signal::Element(x) | Signal::Reading(x) => {
+            x.is_finite()
+        }
+        Signal::Voltage { v, cm } => v.is_finite() && cm.is_finite(),
+        Signal::Code { exact, .. } => exact.is_finite(),
+    }
+}
+
+impl Plan {
+    /// The reading the firmware would compute from the converter's exact
+    /// (unrounded) code: the chain without quantization.
+    pub fn unquantized_reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, self.reading, Mode::UNQUANTIZED)?;
+        let Signal::Code { exact, .. } = signals[self.adc] else {
+            return Err(self.numeric(self.adc, "no code"));
+        };
+        let Node::Convert { cj, conversion, .. } = &self.nodes[self.reading] else {
+            return Err(self.numeric(self.reading, "no conversion"));
+        };
+        let cj = cj.and_then(|n| match signals[n] {
+            Signal::Reading(t) => Some(t),
+            _ => None,
+        });
+        conversion.apply(self, values, env, exact, cj)
+    }
+}

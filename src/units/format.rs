@@ -1,0 +1,85 @@
+//! Numbers for people: SI prefixes and a fixed number of significant
+//! digits, so reports are short and diff cleanly.
+
+use super::{parse_unit, UnitKind, ZERO_CELSIUS_K};
+
+const PREFIXES: &[(f64, &str)] = &[
+    (1e9, "G"),
+    (1e6, "M"),
+    (1e3, "k"),
+    (1.0, ""),
+    (1e-3, "m"),
+    (1e-6, "u"),
+    (1e-9, "n"),
+    (1e-12, "p"),
+];
+
+/// `value` (in the coherent unit `unit`) with an SI prefix and `digits`
+/// significant digits: `0.00025, "A"` → `250.000 uA` for 6 digits.
+pub fn with_prefix(value: f64, unit: &str, digits: usize) -> String {
+    if value == 0.0 || !value.is_finite() {
+        return format!("{} {unit}", significant(value, digits))
+            .trim_end()
+            .to_string();
+    }
+    let (scale, prefix) = PREFIXES
+        .iter()
+        .copied()
+        .find(|(s, _)| value.abs() >= *s * 0.999_999_5)
+        .unwrap_or((1e-12, "p"));
+    format!("{} {prefix}{unit}", significant(value / scale, digits))
+}
+
+/// A number with `digits` significant digits, in fixed notation.
+pub fn significant(value: f64, digits: usize) -> String {
+    if value == 0.0 || !value.is_finite() {
+        return format!("{value}");
+    }
+    let magnitude = value.abs().log10().floor() as i32;
+    let decimals = (digits as i32 - 1 - magnitude).max(0) as usize;
+    format!("{value:.decimals$}")
+}
+
+/// Like [`significant`], without trailing zeros: `850`, `-0.5`.
+pub fn trimmed(value: f64, digits: usize) -> String {
+    let s = significant(value, digits);
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
+/// Converts an SI value to the unit written in the spec (`degC`, `kg`).
+pub fn from_si(value: f64, unit: &str) -> f64 {
+    match parse_unit(unit) {
+        Ok(u) if u.kind == UnitKind::Celsius => value - ZERO_CELSIUS_K,
+        Ok(u) if u.kind == UnitKind::Linear && u.scale != 0.0 => value / u.scale,
+        _ => value,
+    }
+}
+
+/// Converts a value written in `unit` to SI (an absolute point).
+pub fn to_si(value: f64, unit: &str) -> f64 {
+    match parse_unit(unit) {
+        Ok(u) if u.kind == UnitKind::Celsius => value + ZERO_CELSIUS_K,
+        Ok(u) if u.kind == UnitKind::Linear => value * u.scale,
+        _ => value,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{from_si, significant, with_prefix};
+
+    #[test]
+    fn prefixes_and_digits() {
+        assert_eq!(with_prefix(0.00025, "A", 6), "250.000 uA");
+        assert_eq!(with_prefix(1.2345678, "V", 4), "1.235 V");
+        assert_eq!(with_prefix(-0.0123, "V", 3), "-12.3 mV");
+        assert_eq!(with_prefix(4990.0, "ohm", 4), "4.990 kohm");
+        assert_eq!(significant(0.0, 4), "0");
+        assert!((from_si(298.15, "degC") - 25.0).abs() < 1e-12);
+        assert!((from_si(0.5, "kg") - 0.5).abs() < 1e-12);
+    }
+}

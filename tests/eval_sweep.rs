@@ -1,0 +1,125 @@
+//! With every tolerance at its nominal value and the electronics at the
+//! reference temperature, each demo chain's reading equals the measurand:
+//! the evaluator and the firmware's exact inverse agree to 1e-6 of the
+//! span at every point of a fine sweep. Approximate conversions (linear,
+//! table, poly) are swept with `method exact` substituted, since their own
+//! error is a budget source, not an evaluator error.
+
+mod common;
+
+use catena::check::check_bytes;
+use catena::eval::{lower, Env};
+use catena::model::PartsCache;
+
+const POINTS: usize = 1001;
+
+fn with_exact_conversion(text: &str) -> String {
+    text.lines()
+        .map(|l| match l.find("method ") {
+            Some(at) => {
+                let end = l[at..].find(" }").map(|e| at + e).unwrap_or(l.len());
+                format!("{}method exact{}", &l[..at], &l[end..])
+            }
+            None => l.to_string(),
+        })
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+#[test]
+fn every_demo_chain_reads_its_measurand() {
+    let base = common::root().join("specs");
+    let mut chains = 0;
+    for path in common::demo_specs() {
+        let text = with_exact_conversion(&std::fs::read_to_string(&path).unwrap());
+        let checked = check_bytes(
+            &path.to_string_lossy(),
+            text.as_bytes(),
+            &base,
+            &mut PartsCache::default(),
+        );
+        assert!(
+            !checked.findings.has_errors(),
+            "{}: {:?}",
+            path.display(),
+            checked.findings
+        );
+        for chain in &checked.chains {
+            let plan = lower(chain).unwrap_or_else(|e| panic!("{}: {e}", chain.name));
+            let (lo, hi) = plan.range;
+            let span = hi - lo;
+            let mut worst: f64 = 0.0;
+            for k in 0..POINTS {
+                let m = lo + span * k as f64 / (POINTS - 1) as f64;
+                let env = Env {
+                    measurand: m,
+                    ambient: plan.reference,
+                    cold_junction: plan.reference,
+                };
+                let r = plan
+                    .unquantized_reading(&plan.nominal, &env)
+                    .unwrap_or_else(|e| panic!("{} at {m}: {e}", chain.name));
+                worst = worst.max((r - m).abs() / span);
+            }
+            assert!(
+                worst <= 1e-6,
+                "{}: worst error {worst:e} of span",
+                chain.name
+            );
+            chains += 1;
+        }
+    }
+    assert!(chains >= 9, "every demo chain is swept ({chains})");
+}
+
+/// The quantized reading stays within the converter's resolution: one
+/// code either side, referred to the measurand by the chain's slope.
+/// (Chains with a cold-junction conversion also carry that converter's
+/// quantization, so they are left to the budget.)
+#[test]
+fn quantized_readings_stay_within_a_code() {
+    let base = common::root().join("specs");
+    for path in common::demo_specs() {
+        let text = with_exact_conversion(&std::fs::read_to_string(&path).unwrap());
+        let checked = check_bytes(
+            &path.to_string_lossy(),
+            text.as_bytes(),
+            &base,
+            &mut PartsCache::default(),
+        );
+        for chain in &checked.chains {
+            let plan = lower(chain).unwrap();
+            let conversions = plan
+                .nodes
+                .iter()
+                .filter(|n| matches!(n, catena::eval::Node::Convert { .. }))
+                .count();
+            if conversions > 1 {
+                continue;
+            }
+            let (lo, hi) = plan.range;
+            let env = |m| Env {
+                measurand: m,
+                ambient: plan.reference,
+                cold_junction: plan.reference,
+            };
+            for k in 1..100 {
+                let m = lo + (hi - lo) * k as f64 / 100.0;
+                let h = (hi - lo) * 1e-4;
+                let slope = (plan
+                    .exact_code(&plan.nominal, &env(m + h), plan.adc)
+                    .unwrap()
+                    - plan
+                        .exact_code(&plan.nominal, &env(m - h), plan.adc)
+                        .unwrap())
+                    / (2.0 * h);
+                let r = plan.reading(&plan.nominal, &env(m)).unwrap();
+                assert!(
+                    (r - m).abs() <= 1.0 / slope.abs(),
+                    "{} at {m}: {r}",
+                    chain.name
+                );
+            }
+        }
+    }
+}
