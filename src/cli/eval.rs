@@ -338,7 +338,7 @@ impl View<'_> {
                 .map(|s| s.model.unwrap_or(s.kind.keyword()))
                 .unwrap_or("");
             let (output, cm) = match self.signals[i] {
-                Signal::Voltage { v, cm } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
+                Signal::Voltage { v, cm, .. } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
                 Signal::Code { code, .. } => (format!("{code} (code)"), String::new()),
                 Signal::Reading(x) => {
                     let is_cj = matches!(&self.plan.nodes[i], Node::Convert { conversion, .. } if conversion.variable == crate::eval::Senses::ColdJunction);

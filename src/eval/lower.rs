@@ -123,6 +123,15 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
     for c in &chain.connections {
         graph.add_edge(ids[c.from], ids[c.to], ());
     }
+    // Elements on one current source are in series, in edge order from the
+    // source down to ground. Each one's common mode needs the voltages
+    // below it, so those are evaluated first.
+    let strings = series_strings(chain);
+    for string in &strings {
+        for pair in string.windows(2) {
+            graph.add_edge(ids[pair[1]], ids[pair[0]], ());
+        }
+    }
     let order: Vec<usize> = toposort(&graph, None)
         .map_err(|_| not_invertible(&chain_name, "the chain has a loop"))?
         .into_iter()
@@ -242,11 +251,14 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     return Err(not_invertible(&stage.name, "no output"));
                 };
                 let v0 = slots.measure(id("output"), value);
+                let rout = measure(stage, "output_resistance")
+                    .map(|m| slots.measure(id("output_resistance"), m));
                 Node::IcVoltage {
                     slope,
                     v0,
                     t0: *at,
                     senses,
+                    rout,
                 }
             }
             (StageKind::Sensor, Some("ic_current")) => {
@@ -299,12 +311,14 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     Some(ParamValue::Limit(t)) => Some(slots.limit(id("zero"), t)),
                     _ => None,
                 };
+                let r = measure(stage, "r").map(|m| slots.measure(id("r"), m));
                 Node::Transducer {
                     sensitivity,
                     ratiometric: *value_dim == Dim::NONE,
                     full_scale: *at,
                     zero,
                     input: input(si, Port::In),
+                    r,
                 }
             }
             (StageKind::Sensor, _) => {
@@ -355,26 +369,45 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     id("gain"),
                     measure(stage, "gain").ok_or_else(|| not_invertible(&stage.name, "no gain"))?,
                 );
-                let offset = match stage.param("offset") {
-                    Some(ParamValue::Limit(t)) => Some(slots.limit(id("offset"), t)),
+                let limit = |slots: &mut Slots, name: &str| match stage.param(name) {
+                    Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), t)),
                     _ => None,
                 };
-                let output = match stage.param("output") {
+                let offset = limit(&mut slots, "offset");
+                let bias = limit(&mut slots, "bias");
+                // CMRR is a ratio whose sign is unknown: nominal zero error,
+                // ±1/CMRR per volt of common mode.
+                let cmrr = measure(stage, "cmrr").map(|m| {
+                    let e = 1.0 / m.nominal;
+                    slots.add(id("cmrr"), 0.0, e, e, false)
+                });
+                let range = |name: &str| match stage.param(name) {
                     Some(ParamValue::Range { low, high }) => Some((*low, *high)),
                     _ => None,
                 };
+                let input_node =
+                    input(si, Port::In).ok_or_else(|| not_invertible(&stage.name, "no input"))?;
                 Node::Amplifier {
                     gain,
                     offset,
-                    input: input(si, Port::In)
-                        .ok_or_else(|| not_invertible(&stage.name, "no input"))?,
-                    output,
+                    cmrr,
+                    bias,
+                    input: input_node,
+                    input_range: range("input"),
+                    output: range("output"),
                 }
             }
-            (StageKind::Filter, _) => Node::Filter {
-                input: input(si, Port::In)
-                    .ok_or_else(|| not_invertible(&stage.name, "no input"))?,
-            },
+            (StageKind::Filter, _) => {
+                let passive = word(stage, "lowpass") == Some("rc");
+                let series = measure(stage, "r")
+                    .filter(|_| passive)
+                    .map(|m| slots.measure(id("r"), m));
+                Node::Filter {
+                    input: input(si, Port::In)
+                        .ok_or_else(|| not_invertible(&stage.name, "no input"))?,
+                    series,
+                }
+            }
             (StageKind::Adc, _) => {
                 adc_node(stage, &mut slots, input(si, Port::In), input(si, Port::Ref))?
             }
@@ -444,6 +477,12 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
     };
     let adc = *adc;
     let nominal = slots.slots.iter().map(|s| s.nominal).collect();
+    let mut series_below = vec![Vec::new(); order.len()];
+    for string in &strings {
+        for (k, &stage) in string.iter().enumerate() {
+            series_below[node_of(stage)] = string[k + 1..].iter().map(|&s| node_of(s)).collect();
+        }
+    }
     let mut plan = Plan {
         chain: chain_name,
         names,
@@ -454,9 +493,34 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
         range: (measurand.low, measurand.high),
         reading,
         adc,
+        series_below,
     };
     fit_conversions(&mut plan, chain, &order)?;
     Ok(plan)
+}
+
+/// For each current source driving two or more elements, those elements
+/// (stage indices) in edge order.
+fn series_strings(chain: &Chain) -> Vec<Vec<usize>> {
+    let mut strings = Vec::new();
+    for (i, s) in chain.stages.iter().enumerate() {
+        if s.kind != StageKind::Excitation && s.model != Some("ic_current") {
+            continue;
+        }
+        if s.kind == StageKind::Excitation && s.model != Some("current") {
+            continue;
+        }
+        let driven: Vec<usize> = chain
+            .connections
+            .iter()
+            .filter(|c| c.from == i && c.to_port == Port::In)
+            .map(|c| c.to)
+            .collect();
+        if driven.len() > 1 {
+            strings.push(driven);
+        }
+    }
+    strings
 }
 
 fn rtd_node(

@@ -98,6 +98,7 @@ pub enum Node {
         v0: SlotId,
         t0: f64,
         senses: Senses,
+        rout: Option<SlotId>,
     },
     IcCurrent {
         slope: SlotId,
@@ -114,6 +115,8 @@ pub enum Node {
         full_scale: f64,
         zero: Option<SlotId>,
         input: Option<NodeId>,
+        /// Bridge resistance of the transducer, Ω.
+        r: Option<SlotId>,
     },
     Resistor {
         r: SlotId,
@@ -130,11 +133,20 @@ pub enum Node {
     Amplifier {
         gain: SlotId,
         offset: Option<SlotId>,
+        /// Common-mode error per volt of common mode (1/CMRR), nominal 0.
+        cmrr: Option<SlotId>,
+        /// Input bias current, nominal 0: times the source resistance.
+        bias: Option<SlotId>,
         input: NodeId,
+        /// Common-mode input range and output swing, V.
+        input_range: Option<(f64, f64)>,
         output: Option<(f64, f64)>,
     },
+    /// A low-pass filter passes DC; a passive RC adds its series
+    /// resistance to the source resistance.
     Filter {
         input: NodeId,
+        series: Option<SlotId>,
     },
     Adc {
         bits: u32,
@@ -166,8 +178,9 @@ pub enum Signal {
     Source(f64),
     /// A resistance for a bridge arm, Ω.
     Element(f64),
-    /// A voltage: differential value and common mode, V.
-    Voltage { v: f64, cm: f64 },
+    /// A voltage: differential value and common mode, V, and the source
+    /// resistance behind it, Ω (for bias currents and loading).
+    Voltage { v: f64, cm: f64, rs: f64 },
     /// A converter code: the exact (unrounded) value and the output code.
     Code { exact: f64, code: i64 },
     /// A reading, SI (kelvin for temperatures).
@@ -272,4 +285,8 @@ pub struct Plan {
     pub reading: NodeId,
     /// The ADC that feeds it.
     pub adc: NodeId,
+    /// For an element in a series string on one current source, the
+    /// elements below it (towards ground), whose voltages lift its common
+    /// mode.
+    pub series_below: Vec<Vec<NodeId>>,
 }

@@ -149,10 +149,18 @@ impl Plan {
             Some(Signal::Current(a)) => Some(a),
             _ => None,
         };
+        let lift: f64 = self.series_below[i]
+            .iter()
+            .map(|&n| match s[n] {
+                Signal::Voltage { v, .. } => v,
+                _ => 0.0,
+            })
+            .sum();
         let element = |r: f64, input: Option<NodeId>| match current_into(input) {
             Some(a) => Signal::Voltage {
                 v: a * r,
-                cm: a * r / 2.0,
+                cm: lift + a * r / 2.0,
+                rs: r,
             },
             None => Signal::Element(r),
         };
@@ -235,7 +243,11 @@ impl Plan {
                     })
                 };
                 let v = (e(t)? - e(tj)?) * 1e-3;
-                Signal::Voltage { v, cm: 0.0 }
+                Signal::Voltage {
+                    v,
+                    cm: 0.0,
+                    rs: 0.0,
+                }
             }
             Node::Thermistor {
                 r25,
@@ -286,6 +298,7 @@ impl Plan {
                 v0,
                 t0,
                 senses,
+                rout,
             } => {
                 let t = self.sensed(*senses, env);
                 let v = semiconductor::linear_voltage_v(
@@ -294,7 +307,11 @@ impl Plan {
                     t0 - ZERO_CELSIUS_K,
                     t - ZERO_CELSIUS_K,
                 );
-                Signal::Voltage { v, cm: v / 2.0 }
+                Signal::Voltage {
+                    v,
+                    cm: v / 2.0,
+                    rs: rout.map(|r| values[r]).unwrap_or(0.0),
+                }
             }
             Node::IcCurrent { slope, senses } => {
                 let t = self.sensed(*senses, env);
@@ -316,6 +333,7 @@ impl Plan {
                 full_scale,
                 zero,
                 input,
+                r,
             } => {
                 let z = zero.map(|z| values[z]).unwrap_or(0.0);
                 let fraction = values[*sensitivity] * env.measurand / full_scale + z;
@@ -327,7 +345,11 @@ impl Plan {
                     }
                     (false, _) => (fraction, fraction / 2.0),
                 };
-                Signal::Voltage { v, cm }
+                Signal::Voltage {
+                    v,
+                    cm,
+                    rs: r.map(|r| values[r] / 2.0).unwrap_or(0.0),
+                }
             }
             Node::Resistor { r, drift, input } => {
                 element(self.drifted(values[*r], *drift, values, env), *input)
@@ -342,23 +364,44 @@ impl Plan {
             Node::Amplifier {
                 gain,
                 offset,
+                cmrr,
+                bias,
                 input,
+                input_range,
                 output,
             } => {
-                let Signal::Voltage { v, .. } = s[*input] else {
+                let Signal::Voltage { v, cm, rs } = s[*input] else {
                     return Err(self.numeric(i, "no input voltage"));
                 };
-                let off = offset.map(|o| values[o]).unwrap_or(0.0);
-                let mut out = values[*gain] * (v + off);
-                if let Some((lo, hi)) = output {
-                    out = out.clamp(*lo, *hi);
+                let slot = |o: &Option<usize>| o.map(|o| values[o]).unwrap_or(0.0);
+                // Vout = G (Vdiff + Vos + Ib·Rs + Vcm/CMRR), then the swing.
+                let error = slot(offset) + slot(bias) * rs + slot(cmrr) * cm;
+                let mut out = values[*gain] * (v + error);
+                let (lo, hi) = output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
+                // Outside its common-mode range an amplifier no longer
+                // amplifies: its output goes to a rail.
+                if let Some((cm_lo, cm_hi)) = input_range {
+                    if cm < *cm_lo {
+                        out = if lo.is_finite() { lo } else { 0.0 };
+                    } else if cm > *cm_hi {
+                        out = if hi.is_finite() { hi } else { 0.0 };
+                    }
                 }
+                let out = out.clamp(lo, hi);
                 Signal::Voltage {
                     v: out,
                     cm: out / 2.0,
+                    rs: 0.0,
                 }
             }
-            Node::Filter { input } => s[*input],
+            Node::Filter { input, series } => match s[*input] {
+                Signal::Voltage { v, cm, rs } => Signal::Voltage {
+                    v,
+                    cm,
+                    rs: rs + series.map(|r| values[r]).unwrap_or(0.0),
+                },
+                other => other,
+            },
             Node::Adc {
                 bits,
                 polarity,
@@ -458,7 +501,12 @@ impl Plan {
                     Signal::Current(a) => a * low,
                     _ => return Err(self.numeric(i, "no excitation")),
                 };
-                return Ok(Signal::Voltage { v, cm: v / 2.0 });
+                let rs = if low + high > 0.0 {
+                    low * high / (low + high)
+                } else {
+                    0.0
+                };
+                return Ok(Signal::Voltage { v, cm: v / 2.0, rs });
             }
             BridgeKind::Quarter => (fixed, arm(0)?, fixed, fixed),
             BridgeKind::Half => (fixed, arm(0)?, arm(1)?, fixed),
@@ -471,7 +519,8 @@ impl Plan {
         };
         let v = strain::bridge_output(v_exc, r1, r2, r3, r4).map_err(bad)?;
         let cm = strain::bridge_common_mode(v_exc, r1, r2, r3, r4).map_err(bad)?;
-        Ok(Signal::Voltage { v, cm })
+        let rs = strain::bridge_output_resistance(r1, r2, r3, r4).map_err(bad)?;
+        Ok(Signal::Voltage { v, cm, rs })
     }
 }
 
@@ -490,7 +539,7 @@ fn finite(s: Signal) -> bool {
         Signal::Current(x) | Signal::Source(x) | Signal::Element(x) | Signal::Reading(x) => {
             x.is_finite()
         }
-        Signal::Voltage { v, cm } => v.is_finite() && cm.is_finite(),
+        Signal::Voltage { v, cm, rs } => v.is_finite() && cm.is_finite() && rs.is_finite(),
         Signal::Code { exact, .. } => exact.is_finite(),
     }
 }
