@@ -221,3 +221,18 @@ fn human_table() {
     assert_eq!(run.status, 0, "{}", run.stderr);
     insta::assert_snapshot!("eval-cold-store", run.stdout);
 }
+
+/// A full bridge of four active gauges, worked by hand: tension arms
+/// R(1 + GF ε), compression arms R(1 − GF ε), so
+/// V = V_exc (R+ /(R− + R+) − R− /(R+ + R−)) = V_exc · GF · ε exactly:
+/// 10 V × 2.0 × 500e-6 = 10 mV.
+#[test]
+fn full_bridge_is_exact() {
+    let v = eval("full_bridge.catena", &["--at", "500 ue"]);
+    assert!(
+        (node(&v, "beam") - 10e-3).abs() < 1e-12,
+        "{}",
+        node(&v, "beam")
+    );
+    assert!((v["reading"]["value"].as_f64().unwrap() - 500.0).abs() < 1e-3);
+}

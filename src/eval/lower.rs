@@ -206,7 +206,11 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                 let ty = word(stage, "thermocouple")
                     .and_then(ThermocoupleType::from_letter)
                     .ok_or_else(|| not_invertible(&stage.name, "no type"))?;
-                Node::Thermocouple { ty, senses }
+                Node::Thermocouple {
+                    ty,
+                    senses,
+                    class: count(stage, "class").map(|c| c as u8),
+                }
             }
             (StageKind::Sensor, Some("thermistor")) => {
                 let r25 = slots.measure(
@@ -285,9 +289,16 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     measure(stage, "gauge_factor")
                         .ok_or_else(|| not_invertible(&stage.name, "no gauge factor"))?,
                 );
+                // A gauge on the compression side sees the strain reversed.
+                let sign = if word(stage, "side") == Some("compression") {
+                    -1.0
+                } else {
+                    1.0
+                };
                 Node::StrainGauge {
                     r,
                     gauge_factor,
+                    sign,
                     input: input(si, Port::In),
                 }
             }

@@ -84,6 +84,9 @@ pub enum Node {
     Thermocouple {
         ty: ThermocoupleType,
         senses: Senses,
+        /// IEC 60584-1 tolerance class, when given: it also bounds the
+        /// range the thermocouple may be used over.
+        class: Option<u8>,
     },
     Thermistor {
         r25: SlotId,
@@ -107,6 +110,8 @@ pub enum Node {
     StrainGauge {
         r: SlotId,
         gauge_factor: SlotId,
+        /// +1 in tension, −1 on the compression side.
+        sign: f64,
         input: Option<NodeId>,
     },
     Transducer {

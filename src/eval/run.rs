@@ -226,10 +226,20 @@ impl Plan {
                 let lead = lead.map(|l| values[l]).unwrap_or(0.0);
                 element(r + lead_factor * lead, *input)
             }
-            Node::Thermocouple { ty, senses } => {
+            Node::Thermocouple { ty, senses, class } => {
                 let range = ty.range_c();
                 let t = self.sensed(*senses, env) - ZERO_CELSIUS_K;
-                let t = within(t, range).unwrap_or(t);
+                let kind = format!("type {} thermocouple", ty.letter());
+                let t = within(t, range)
+                    .ok_or_else(|| self.out_of_range(i, &kind, t + ZERO_CELSIUS_K, range))?;
+                if let Some(class) = class {
+                    let what = format!("class {class} of a type {} thermocouple", ty.letter());
+                    let class_range =
+                        thermocouple::class_range_c(*ty, *class).unwrap_or((f64::NAN, f64::NAN));
+                    within(t, class_range).ok_or_else(|| {
+                        self.out_of_range(i, &what, t + ZERO_CELSIUS_K, class_range)
+                    })?;
+                }
                 let tj = env.cold_junction - ZERO_CELSIUS_K;
                 let tj = within(tj, range).unwrap_or(tj);
                 let e = |t_c: f64| {
@@ -322,9 +332,10 @@ impl Plan {
             Node::StrainGauge {
                 r,
                 gauge_factor,
+                sign,
                 input,
             } => element(
-                strain::gauge_resistance(values[*r], values[*gauge_factor], env.measurand),
+                strain::gauge_resistance(values[*r], values[*gauge_factor], sign * env.measurand),
                 *input,
             ),
             Node::Transducer {

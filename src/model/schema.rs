@@ -289,6 +289,7 @@ static MODELS: &[ModelSpec] = &[
             p("gauge_factor", toleranced(Expect::Ratio))
                 .required()
                 .positive(),
+            p("side", Shape::Words(&["tension", "compression"])),
             TIME_CONSTANT,
         ],
         exclusive: &[],

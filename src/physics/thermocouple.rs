@@ -475,3 +475,26 @@ pub fn class_tolerance_k(ty: ThermocoupleType, class: u8, t_c: f64) -> Option<f6
             Tol::NobleClass1High => 1.0 + 0.003 * (t_c - 1100.0),
         })
 }
+
+/// The temperatures over which IEC 60584-1 defines tolerance class `class`
+/// for `ty`, degC, or None where the class does not exist for the type.
+pub fn class_range_c(ty: ThermocoupleType, class: u8) -> Option<(f64, f64)> {
+    let segments = tolerance_segments(ty, class);
+    let lo = segments.iter().map(|s| s.0).reduce(f64::min)?;
+    let hi = segments.iter().map(|s| s.1).reduce(f64::max)?;
+    Some((lo, hi))
+}
+
+#[cfg(test)]
+mod class_range_tests {
+    use super::{class_range_c, ThermocoupleType};
+
+    /// IEC 60584-1:2013 ranges (recalled from memory, as the tolerance
+    /// table itself): type K class 1 covers −40 … 1000 °C, type B has no
+    /// class 1.
+    #[test]
+    fn class_ranges() {
+        assert_eq!(class_range_c(ThermocoupleType::K, 1), Some((-40.0, 1000.0)));
+        assert_eq!(class_range_c(ThermocoupleType::B, 1), None);
+    }
+}
