@@ -2,7 +2,7 @@
 //! the nominal chain, or a linear, table or polynomial approximation of it
 //! (whose own error the budget counts), then the declared calibration.
 
-use super::plan::{Env, EvalError, NodeId, Plan, Senses};
+use super::plan::{Env, EvalError, NodeId, Plan, Senses, SlotId};
 
 #[derive(Clone, Debug, PartialEq)]
 pub enum Method {
@@ -23,14 +23,25 @@ pub enum Method {
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Calibration {
     None,
-    /// The reading is corrected by what it showed at this point.
+    /// The reading is corrected by what it showed at this point; `error`
+    /// is the calibration reference's own error.
     Offset {
         at: f64,
+        error: Option<SlotId>,
     },
     /// Offset and gain corrected from two points.
     TwoPoint {
         at: (f64, f64),
+        errors: (Option<SlotId>, Option<SlotId>),
     },
+}
+
+/// The nominal code at evenly spaced points of the domain: where Newton's
+/// method starts, so an exact inverse costs a few evaluations, not forty.
+#[derive(Clone, Debug, PartialEq)]
+pub struct InverseTable {
+    pub xs: Vec<f64>,
+    pub codes: Vec<f64>,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -46,21 +57,29 @@ pub struct Conversion {
     /// The range the approximations are fitted over, SI.
     pub range: (f64, f64),
     pub calibration: Calibration,
+    /// A stated cold-junction error: what the firmware believes the
+    /// junction's temperature to be, less the truth.
+    pub cj_error: Option<SlotId>,
+    pub inverse: Option<InverseTable>,
 }
 
 /// Points a polynomial is fitted through, per coefficient.
 const POLY_POINTS_PER_TERM: usize = 8;
+/// Points the exact inverse tabulates the nominal chain at.
+const INVERSE_POINTS: usize = 513;
 
 impl Conversion {
     /// The firmware's view of the chain: nominal values, drifting parts at
     /// the reference temperature, and the cold junction where its own
-    /// reading (or, without one, the actual junction) says.
-    fn firmware_env(&self, plan: &Plan, env: &Env, x: f64, cj: Option<f64>) -> Env {
+    /// reading (or, without one, the actual junction, off by any stated
+    /// cold-junction error) says.
+    fn firmware_env(&self, plan: &Plan, values: &[f64], env: &Env, x: f64, cj: Option<f64>) -> Env {
+        let cj_error = self.cj_error.map(|s| values[s]).unwrap_or(0.0);
         match self.variable {
             Senses::Measurand => Env {
                 measurand: x,
                 ambient: plan.reference,
-                cold_junction: cj.unwrap_or(env.cold_junction),
+                cold_junction: cj.unwrap_or(env.cold_junction + cj_error),
             },
             Senses::ColdJunction => Env {
                 measurand: env.measurand,
@@ -70,16 +89,18 @@ impl Conversion {
         }
     }
 
+    /// The firmware model's code for `x`.
     fn nominal_code(
         &self,
         plan: &Plan,
+        values: &[f64],
         env: &Env,
         x: f64,
         cj: Option<f64>,
     ) -> Result<f64, EvalError> {
         plan.exact_code(
             &plan.nominal,
-            &self.firmware_env(plan, env, x, cj),
+            &self.firmware_env(plan, values, env, x, cj),
             self.adc,
         )
     }
@@ -88,14 +109,24 @@ impl Conversion {
     pub fn invert(
         &self,
         plan: &Plan,
+        values: &[f64],
         env: &Env,
         code: f64,
         cj: Option<f64>,
     ) -> Result<f64, EvalError> {
         match &self.method {
             Method::Exact => {
-                let f = |x: f64| self.nominal_code(plan, env, x, cj).map(|c| c - code);
-                solve(f, self.domain)
+                let f = |x: f64| {
+                    self.nominal_code(plan, values, env, x, cj)
+                        .map(|c| c - code)
+                };
+                match &self.inverse {
+                    Some(table) => match newton_from_table(&f, table, code, self.domain)? {
+                        Some(x) => Ok(x),
+                        None => solve(f, self.domain),
+                    },
+                    None => solve(f, self.domain),
+                }
             }
             Method::Linear {
                 code_low,
@@ -123,7 +154,7 @@ impl Conversion {
         code: f64,
         cj: Option<f64>,
     ) -> Result<f64, EvalError> {
-        let x = self.invert(plan, env, code, cj)?;
+        let x = self.invert(plan, values, env, code, cj)?;
         // Calibration points are taken at the reference temperature with
         // the chain as built (its actual values), averaged to its exact code.
         let at = |p: f64| -> Result<f64, EvalError> {
@@ -133,13 +164,18 @@ impl Conversion {
                 cold_junction: plan.reference,
             };
             let c = plan.exact_code(values, &cal, self.adc)?;
-            self.invert(plan, &cal, c, None)
+            self.invert(plan, values, &cal, c, None)
         };
+        let err = |s: Option<SlotId>| s.map(|s| values[s]).unwrap_or(0.0);
         Ok(match self.calibration {
             Calibration::None => x,
-            Calibration::Offset { at: p } => x + (p - at(p)?),
-            Calibration::TwoPoint { at: (p1, p2) } => {
-                let (r1, r2) = (at(p1)?, at(p2)?);
+            // A reference that reads δ high makes the chain read δ high.
+            Calibration::Offset { at: p, error } => x + (p - at(p)?) + err(error),
+            Calibration::TwoPoint {
+                at: (p1, p2),
+                errors: (e1, e2),
+            } => {
+                let (r1, r2) = (at(p1)? - err(e1), at(p2)? - err(e2));
                 if r2 == r1 {
                     return Err(
                         plan.numeric(self.adc, "the calibration points give the same reading")
@@ -150,15 +186,25 @@ impl Conversion {
         })
     }
 
-    /// Fits the approximations once the plan exists.
+    /// Fits the method once the plan exists.
     pub fn fit(&mut self, plan: &Plan, env: &Env, method: &str, points: u32) -> Result<(), String> {
         let (lo, hi) = self.range;
         let code = |x: f64| {
-            self.nominal_code(plan, env, x, None)
+            self.nominal_code(plan, &plan.nominal, env, x, None)
                 .map_err(|e| e.to_string())
         };
         self.method = match method {
-            "exact" => Method::Exact,
+            "exact" => {
+                let (a, b) = self.domain;
+                let xs: Vec<f64> = (0..INVERSE_POINTS)
+                    .map(|k| a + (b - a) * k as f64 / (INVERSE_POINTS - 1) as f64)
+                    .collect();
+                let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
+                if strictly_monotonic(&codes) {
+                    self.inverse = Some(InverseTable { xs, codes });
+                }
+                Method::Exact
+            }
             "linear" => {
                 let (a, b) = (code(lo)?, code(hi)?);
                 if a == b {
@@ -207,6 +253,41 @@ impl Conversion {
         };
         Ok(())
     }
+}
+
+/// Newton's method for f(x) = 0 (f = model code − `code`), started from the
+/// tabulated inverse and stepping with the table's local slope: the nominal
+/// chain is smooth, so a few steps reach the tolerance. `None` asks the
+/// caller for the bracketing solver (a saturated or odd case).
+fn newton_from_table(
+    f: &impl Fn(f64) -> Result<f64, EvalError>,
+    table: &InverseTable,
+    code: f64,
+    domain: (f64, f64),
+) -> Result<Option<f64>, EvalError> {
+    let n = table.codes.len();
+    let (first, last) = (table.codes[0], table.codes[n - 1]);
+    if code < first.min(last) || code > first.max(last) {
+        return Ok(None);
+    }
+    let mut x = interpolate(&table.codes, &table.xs, code).clamp(domain.0, domain.1);
+    let tolerance = 1e-13 * (domain.1 - domain.0).abs();
+    for _ in 0..8 {
+        let k = table.xs.partition_point(|&t| t < x).clamp(1, n - 1);
+        let slope = (table.codes[k] - table.codes[k - 1]) / (table.xs[k] - table.xs[k - 1]);
+        let step = f(x)? / slope;
+        if !step.is_finite() {
+            return Ok(None);
+        }
+        x -= step;
+        if x < domain.0 || x > domain.1 {
+            return Ok(None);
+        }
+        if step.abs() <= tolerance {
+            return Ok(Some(x));
+        }
+    }
+    Ok(None)
 }
 
 fn strictly_monotonic(v: &[f64]) -> bool {

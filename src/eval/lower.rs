@@ -6,8 +6,8 @@ use petgraph::graph::DiGraph;
 
 use super::convert::{Calibration, Conversion, Method};
 use super::plan::{
-    BridgeKind, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses, Slot, SlotId,
-    ThermistorCurve,
+    BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
+    SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
 };
 use super::run::MAX_NODES;
 use crate::model::ports::Port;
@@ -31,8 +31,14 @@ struct Slots {
 
 impl Slots {
     fn add(&mut self, id: String, nominal: f64, minus: f64, plus: f64, normal: bool) -> SlotId {
+        let kind = if minus == 0.0 && plus == 0.0 {
+            SourceKind::Exact
+        } else {
+            SourceKind::of(&id)
+        };
         self.slots.push(Slot {
             id,
+            kind,
             nominal,
             minus,
             plus,
@@ -161,6 +167,8 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
     };
 
     let mut slots = Slots { slots: Vec::new() };
+    let mut sense_error = vec![SenseError::default(); order.len()];
+    let mut cj_error = None;
     let mut nodes = Vec::with_capacity(order.len());
     let mut names = Vec::with_capacity(order.len());
     for &si in &order {
@@ -200,17 +208,28 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                 }
             }
             (StageKind::Sensor, Some("rtd")) => {
-                rtd_node(stage, &mut slots, input(si, Port::In), senses)?
+                let (node, error) = rtd_node(stage, &mut slots, input(si, Port::In), senses)?;
+                sense_error[nodes.len()] = error;
+                node
             }
             (StageKind::Sensor, Some("thermocouple")) => {
                 let ty = word(stage, "thermocouple")
                     .and_then(ThermocoupleType::from_letter)
                     .ok_or_else(|| not_invertible(&stage.name, "no type"))?;
-                Node::Thermocouple {
-                    ty,
-                    senses,
-                    class: count(stage, "class").map(|c| c as u8),
+                let class = count(stage, "class").map(|c| c as u8);
+                let node_index = nodes.len();
+                if let Some(c) = class {
+                    let slot = slots.add(id("class"), 0.0, 1.0, 1.0, false);
+                    sense_error[node_index].class =
+                        Some((ClassTolerance::Thermocouple(ty, c), slot));
                 }
+                if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
+                    sense_error[node_index].absolute = Some(slots.limit(id("tolerance"), t));
+                }
+                if let Some(ParamValue::Limit(t)) = stage.param("cold_junction") {
+                    cj_error = Some(slots.limit(id("cold_junction"), t));
+                }
+                Node::Thermocouple { ty, senses, class }
             }
             (StageKind::Sensor, Some("thermistor")) => {
                 let r25 = slots.measure(
@@ -257,6 +276,9 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                 let v0 = slots.measure(id("output"), value);
                 let rout = measure(stage, "output_resistance")
                     .map(|m| slots.measure(id("output_resistance"), m));
+                if let Some(ParamValue::Limit(t)) = stage.param("accuracy") {
+                    sense_error[nodes.len()].absolute = Some(slots.limit(id("accuracy"), t));
+                }
                 Node::IcVoltage {
                     slope,
                     v0,
@@ -271,6 +293,9 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     measure(stage, "slope")
                         .ok_or_else(|| not_invertible(&stage.name, "no slope"))?,
                 );
+                if let Some(ParamValue::Limit(t)) = stage.param("accuracy") {
+                    sense_error[nodes.len()].absolute = Some(slots.limit(id("accuracy"), t));
+                }
                 Node::IcCurrent { slope, senses }
             }
             (StageKind::Sensor, Some("strain_gauge")) => {
@@ -323,11 +348,19 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     _ => None,
                 };
                 let r = measure(stage, "r").map(|m| slots.measure(id("r"), m));
+                let limit = |slots: &mut Slots, name: &str| match stage.param(name) {
+                    Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), t)),
+                    _ => None,
+                };
                 Node::Transducer {
                     sensitivity,
                     ratiometric: *value_dim == Dim::NONE,
                     full_scale: *at,
                     zero,
+                    nonlinearity: limit(&mut slots, "nonlinearity"),
+                    hysteresis: limit(&mut slots, "hysteresis"),
+                    zero_drift: limit(&mut slots, "zero_drift"),
+                    span_drift: limit(&mut slots, "span_drift"),
                     input: input(si, Port::In),
                     r,
                 }
@@ -403,6 +436,8 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     offset,
                     cmrr,
                     bias,
+                    offset_drift: limit(&mut slots, "offset_drift"),
+                    gain_drift: limit(&mut slots, "gain_drift"),
                     input: input_node,
                     input_range: range("input"),
                     output: range("output"),
@@ -439,14 +474,33 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     Senses::ColdJunction => CJ_MARGIN_K,
                 };
                 let calibration = match stage.param("calibrate") {
-                    Some(ParamValue::Calibrate { method, points, .. })
-                        if method == "offset" && points.len() == 1 =>
-                    {
-                        Calibration::Offset { at: points[0] }
-                    }
-                    Some(ParamValue::Calibrate { points, .. }) if points.len() == 2 => {
-                        Calibration::TwoPoint {
-                            at: (points[0], points[1]),
+                    Some(ParamValue::Calibrate {
+                        method,
+                        points,
+                        uncertainty,
+                    }) => {
+                        let mut error = |k: usize| {
+                            uncertainty.as_ref().map(|t| {
+                                let (minus, plus, normal) = limits(t, 0.0);
+                                slots.add(
+                                    format!("{}.calibration_{k}", stage.name),
+                                    0.0,
+                                    minus,
+                                    plus,
+                                    normal,
+                                )
+                            })
+                        };
+                        match (method.as_str(), points.as_slice()) {
+                            ("offset", [p]) => Calibration::Offset {
+                                at: *p,
+                                error: error(1),
+                            },
+                            (_, [p1, p2]) => Calibration::TwoPoint {
+                                at: (*p1, *p2),
+                                errors: (error(1), error(2)),
+                            },
+                            _ => Calibration::None,
                         }
                     }
                     _ => Calibration::None,
@@ -458,6 +512,12 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     domain: (range.0 - margin, range.1 + margin),
                     range,
                     calibration,
+                    cj_error: if variable == Senses::Measurand {
+                        cj_error
+                    } else {
+                        None
+                    },
+                    inverse: None,
                 };
                 Node::Convert {
                     input: adc,
@@ -505,6 +565,7 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
         reading,
         adc,
         series_below,
+        sense_error,
     };
     fit_conversions(&mut plan, chain, &order)?;
     Ok(plan)
@@ -539,7 +600,7 @@ fn rtd_node(
     slots: &mut Slots,
     input: Option<NodeId>,
     senses: Senses,
-) -> Result<Node, EvalError> {
+) -> Result<(Node, SenseError), EvalError> {
     let id = |p: &str| format!("{}.{p}", stage.name);
     let curve_word = word(stage, "rtd").unwrap_or("pt100");
     let (default_r0, curve) = match curve_word {
@@ -573,28 +634,50 @@ fn rtd_node(
         None => slots.exact(id("r0"), default_r0),
     };
     let wires = count(stage, "wires").unwrap_or(4);
-    let lead = measure(stage, "lead").map(|m| slots.measure(id("lead"), m));
+    let lead_measure = measure(stage, "lead");
+    let lead = lead_measure.map(|m| slots.measure(id("lead"), m));
+    // Three wires cancel the leads only as far as two of them match: the
+    // difference of two independent leads within ±t lies within ±2t.
+    let mismatch = match (wires, lead_measure.and_then(|m| m.tolerance.as_ref())) {
+        (3, Some(t)) => {
+            let (minus, plus, normal) = limits(t, lead_measure.map(|m| m.nominal).unwrap_or(0.0));
+            Some(slots.add(id("lead_mismatch"), 0.0, 2.0 * minus, 2.0 * plus, normal))
+        }
+        _ => None,
+    };
     let dissipation = measure(stage, "dissipation").map(|m| slots.measure(id("dissipation"), m));
-    let valid = word(stage, "class").map(|c| {
-        let class = match c {
-            "AA" => ToleranceClass::AA,
-            "A" => ToleranceClass::A,
-            "B" => ToleranceClass::B,
-            _ => ToleranceClass::C,
-        };
+    let class = word(stage, "class").map(|c| match c {
+        "AA" => ToleranceClass::AA,
+        "A" => ToleranceClass::A,
+        "B" => ToleranceClass::B,
+        _ => ToleranceClass::C,
+    });
+    let valid = class.map(|class| {
         let (lo, hi) = class.wire_wound_range_c();
         (lo + ZERO_CELSIUS_K, hi + ZERO_CELSIUS_K)
     });
-    Ok(Node::Rtd {
+    let mut error = SenseError::default();
+    if let Some(class) = class {
+        error.class = Some((
+            ClassTolerance::Rtd(class),
+            slots.add(id("class"), 0.0, 1.0, 1.0, false),
+        ));
+    }
+    if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
+        error.absolute = Some(slots.limit(id("tolerance"), t));
+    }
+    let node = Node::Rtd {
         curve,
         r0,
         lead_factor: if wires == 2 { 2.0 } else { 0.0 },
         lead,
+        mismatch,
         dissipation,
         input,
         senses,
         valid,
-    })
+    };
+    Ok((node, error))
 }
 
 fn iec() -> RtdCurve {
@@ -644,6 +727,7 @@ fn adc_node(
         reference,
         offset: limit(slots, "offset"),
         gain_error: limit(slots, "gain_error"),
+        inl: limit(slots, "inl"),
         input: input.ok_or_else(|| not_invertible(&stage.name, "no input"))?,
     })
 }

@@ -14,5 +14,8 @@ mod run;
 
 pub use convert::Conversion;
 pub use lower::lower;
-pub use plan::{Env, EvalError, Node, NodeId, Plan, Senses, Signal, Slot, SlotId};
+pub use plan::{
+    ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId,
+    SourceKind,
+};
 pub use run::Outcome;

@@ -14,6 +14,7 @@ pub type NodeId = usize;
 #[derive(Clone, Debug, PartialEq)]
 pub struct Slot {
     pub id: String,
+    pub kind: SourceKind,
     pub nominal: f64,
     /// Limits below and above the nominal, absolute SI (relative
     /// tolerances are already multiplied out).
@@ -21,6 +22,56 @@ pub struct Slot {
     pub plus: f64,
     /// The limit is a 3σ normal bound; otherwise rectangular.
     pub normal: bool,
+}
+
+/// What kind of error source a slot is, for reports.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum SourceKind {
+    Tolerance,
+    Drift,
+    /// A bound with nominal zero: offsets, bias, CMRR, gain error.
+    Bound,
+    Sensor,
+    Lead,
+    ColdJunction,
+    Nonlinearity,
+    Inl,
+    Calibration,
+    /// Not an error source: an exact value.
+    Exact,
+}
+
+impl SourceKind {
+    pub fn name(self) -> &'static str {
+        match self {
+            SourceKind::Tolerance => "tolerance",
+            SourceKind::Drift => "drift",
+            SourceKind::Bound => "offset",
+            SourceKind::Sensor => "sensor",
+            SourceKind::Lead => "lead",
+            SourceKind::ColdJunction => "cold_junction",
+            SourceKind::Nonlinearity => "nonlinearity",
+            SourceKind::Inl => "inl",
+            SourceKind::Calibration => "calibration",
+            SourceKind::Exact => "exact",
+        }
+    }
+
+    /// From a slot's id (`stage.parameter`): the parameter names it.
+    pub fn of(id: &str) -> SourceKind {
+        let param = id.rsplit('.').next().unwrap_or(id);
+        match param {
+            p if p.ends_with("drift") => SourceKind::Drift,
+            "offset" | "bias" | "cmrr" | "zero" | "gain_error" => SourceKind::Bound,
+            "class" | "tolerance" | "accuracy" => SourceKind::Sensor,
+            "lead" | "lead_mismatch" => SourceKind::Lead,
+            "cold_junction" => SourceKind::ColdJunction,
+            "nonlinearity" | "hysteresis" => SourceKind::Nonlinearity,
+            "inl" => SourceKind::Inl,
+            p if p.starts_with("calibration") => SourceKind::Calibration,
+            _ => SourceKind::Tolerance,
+        }
+    }
 }
 
 /// Where a sensor is: at the measured point, or at the cold junction
@@ -75,6 +126,8 @@ pub enum Node {
         /// Series lead resistance the measurement sees (2-wire: both leads).
         lead_factor: f64,
         lead: Option<SlotId>,
+        /// 3-wire: the difference between the two compensated leads.
+        mismatch: Option<SlotId>,
         dissipation: Option<SlotId>,
         input: Option<NodeId>,
         senses: Senses,
@@ -119,6 +172,13 @@ pub enum Node {
         ratiometric: bool,
         full_scale: f64,
         zero: Option<SlotId>,
+        /// Nonlinearity and hysteresis, each a fraction of full-scale
+        /// output, nominal 0.
+        nonlinearity: Option<SlotId>,
+        hysteresis: Option<SlotId>,
+        /// Zero and span coefficients per kelvin (of full scale).
+        zero_drift: Option<SlotId>,
+        span_drift: Option<SlotId>,
         input: Option<NodeId>,
         /// Bridge resistance of the transducer, Ω.
         r: Option<SlotId>,
@@ -142,6 +202,9 @@ pub enum Node {
         cmrr: Option<SlotId>,
         /// Input bias current, nominal 0: times the source resistance.
         bias: Option<SlotId>,
+        /// Per kelvin: offset in volts, gain relative.
+        offset_drift: Option<SlotId>,
+        gain_drift: Option<SlotId>,
         input: NodeId,
         /// Common-mode input range and output swing, V.
         input_range: Option<(f64, f64)>,
@@ -163,6 +226,8 @@ pub enum Node {
         reference: Option<NodeId>,
         offset: Option<SlotId>,
         gain_error: Option<SlotId>,
+        /// Integral nonlinearity, a fraction of full scale, nominal 0.
+        inl: Option<SlotId>,
         input: NodeId,
     },
     Convert {
@@ -170,6 +235,21 @@ pub enum Node {
         cj: Option<NodeId>,
         conversion: Box<Conversion>,
     },
+}
+
+/// A tolerance class whose half-width depends on the temperature.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum ClassTolerance {
+    Rtd(crate::physics::rtd::ToleranceClass),
+    Thermocouple(ThermocoupleType, u8),
+}
+
+/// How far a sensor's reading of its temperature may be off: a fraction of
+/// its class's half-width (slot value in −1 … 1) and an absolute error, K.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct SenseError {
+    pub class: Option<(ClassTolerance, SlotId)>,
+    pub absolute: Option<SlotId>,
 }
 
 /// What a node outputs in one evaluation, in SI.
@@ -294,4 +374,6 @@ pub struct Plan {
     /// elements below it (towards ground), whose voltages lift its common
     /// mode.
     pub series_below: Vec<Vec<NodeId>>,
+    /// For each sensor node, the error of the temperature it senses.
+    pub sense_error: Vec<SenseError>,
 }

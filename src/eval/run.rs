@@ -2,8 +2,8 @@
 //! inputs' signals, the parameter values and the environment.
 
 use super::plan::{
-    BridgeKind, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses, Signal,
-    ThermistorCurve,
+    BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses,
+    Signal, ThermistorCurve,
 };
 use crate::physics::adc::Polarity;
 use crate::physics::{rtd, semiconductor, strain, thermistor, thermocouple};
@@ -109,11 +109,24 @@ impl Plan {
         }
     }
 
-    fn sensed(&self, senses: Senses, env: &Env) -> f64 {
-        match senses {
+    /// The temperature node `i` senses, as its own tolerance makes it
+    /// read: the true one plus its class's (temperature-dependent) error
+    /// and any stated absolute error.
+    fn sensed(&self, i: NodeId, senses: Senses, env: &Env, values: &[f64]) -> f64 {
+        let t = match senses {
             Senses::Measurand => env.measurand,
             Senses::ColdJunction => env.cold_junction,
-        }
+        };
+        let error = &self.sense_error[i];
+        let class = error.class.map(|(class, slot)| {
+            let t_c = t - ZERO_CELSIUS_K;
+            let half_width = match class {
+                ClassTolerance::Rtd(c) => rtd::tolerance_k(c, t_c),
+                ClassTolerance::Thermocouple(ty, c) => thermocouple::class_tolerance_k(ty, c, t_c),
+            };
+            values[slot] * half_width.unwrap_or(0.0)
+        });
+        t + class.unwrap_or(0.0) + error.absolute.map(|s| values[s]).unwrap_or(0.0)
     }
 
     fn drifted(&self, value: f64, drift: Option<DriftSlot>, values: &[f64], env: &Env) -> f64 {
@@ -182,12 +195,13 @@ impl Plan {
                 r0,
                 lead_factor,
                 lead,
+                mismatch,
                 dissipation,
                 input,
                 senses,
                 valid,
             } => {
-                let t = self.sensed(*senses, env);
+                let t = self.sensed(i, *senses, env, values);
                 let range = match curve {
                     RtdCurve::Cvd { .. } => CVD_RANGE_C,
                     RtdCurve::Nickel => NICKEL_RANGE_C,
@@ -224,11 +238,12 @@ impl Plan {
                     }
                 }
                 let lead = lead.map(|l| values[l]).unwrap_or(0.0);
-                element(r + lead_factor * lead, *input)
+                let mismatch = mismatch.map(|m| values[m]).unwrap_or(0.0);
+                element(r + lead_factor * lead + mismatch, *input)
             }
             Node::Thermocouple { ty, senses, class } => {
                 let range = ty.range_c();
-                let t = self.sensed(*senses, env) - ZERO_CELSIUS_K;
+                let t = self.sensed(i, *senses, env, values) - ZERO_CELSIUS_K;
                 let kind = format!("type {} thermocouple", ty.letter());
                 let t = within(t, range)
                     .ok_or_else(|| self.out_of_range(i, &kind, t + ZERO_CELSIUS_K, range))?;
@@ -267,7 +282,7 @@ impl Plan {
                 senses,
                 valid,
             } => {
-                let t = self.sensed(*senses, env);
+                let t = self.sensed(i, *senses, env, values);
                 if let Some((lo, hi)) = valid {
                     let range = (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
                     within(t - ZERO_CELSIUS_K, range)
@@ -310,7 +325,7 @@ impl Plan {
                 senses,
                 rout,
             } => {
-                let t = self.sensed(*senses, env);
+                let t = self.sensed(i, *senses, env, values);
                 let v = semiconductor::linear_voltage_v(
                     values[*v0],
                     values[*slope],
@@ -324,7 +339,7 @@ impl Plan {
                 }
             }
             Node::IcCurrent { slope, senses } => {
-                let t = self.sensed(*senses, env);
+                let t = self.sensed(i, *senses, env, values);
                 let a = semiconductor::ptat_current_a(values[*slope], t)
                     .map_err(|_| self.numeric(i, "no PTAT current at this temperature"))?;
                 Signal::Current(a)
@@ -343,11 +358,21 @@ impl Plan {
                 ratiometric,
                 full_scale,
                 zero,
+                nonlinearity,
+                hysteresis,
+                zero_drift,
+                span_drift,
                 input,
                 r,
             } => {
-                let z = zero.map(|z| values[z]).unwrap_or(0.0);
-                let fraction = values[*sensitivity] * env.measurand / full_scale + z;
+                let slot = |o: &Option<usize>| o.map(|o| values[o]).unwrap_or(0.0);
+                let dt = env.ambient - self.reference;
+                let s_fs = values[*sensitivity];
+                // Output as a ratio of excitation (or volts): span with its
+                // drift, then the errors stated as fractions of full scale.
+                let fraction = s_fs * (1.0 + slot(span_drift) * dt) * env.measurand / full_scale
+                    + s_fs * (slot(nonlinearity) + slot(hysteresis) + slot(zero_drift) * dt)
+                    + slot(zero);
                 let (v, cm) = match (ratiometric, input.map(|n| s[n])) {
                     (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
                     (true, _) => {
@@ -377,6 +402,8 @@ impl Plan {
                 offset,
                 cmrr,
                 bias,
+                offset_drift,
+                gain_drift,
                 input,
                 input_range,
                 output,
@@ -386,8 +413,10 @@ impl Plan {
                 };
                 let slot = |o: &Option<usize>| o.map(|o| values[o]).unwrap_or(0.0);
                 // Vout = G (Vdiff + Vos + Ib·Rs + Vcm/CMRR), then the swing.
-                let error = slot(offset) + slot(bias) * rs + slot(cmrr) * cm;
-                let mut out = values[*gain] * (v + error);
+                let dt = env.ambient - self.reference;
+                let error =
+                    slot(offset) + slot(offset_drift) * dt + slot(bias) * rs + slot(cmrr) * cm;
+                let mut out = values[*gain] * (1.0 + slot(gain_drift) * dt) * (v + error);
                 let (lo, hi) = output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
                 // Outside its common-mode range an amplifier no longer
                 // amplifies: its output goes to a rail.
@@ -422,6 +451,7 @@ impl Plan {
                 reference,
                 offset,
                 gain_error,
+                inl,
                 input,
                 ..
             } => {
@@ -447,7 +477,13 @@ impl Plan {
                     Polarity::Unipolar => 2f64.powi(*bits as i32),
                     Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
                 };
-                let exact = (v + off) * gain / vr * per_ref;
+                // INL is a fraction of the full-scale code span.
+                let full_scale = match polarity {
+                    Polarity::Unipolar => per_ref,
+                    Polarity::Bipolar => 2.0 * per_ref,
+                };
+                let exact = (v + off) * gain / vr * per_ref
+                    + inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
                 let (lo, hi) = match polarity {
                     Polarity::Unipolar => (0.0, per_ref - 1.0),
                     Polarity::Bipolar => (-per_ref, per_ref - 1.0),
