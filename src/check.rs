@@ -20,6 +20,17 @@ pub struct CheckedFile {
 /// Checks a spec given as bytes. `name` is how findings show the file;
 /// `base` is the folder `use` paths resolve against.
 pub fn check_bytes(name: &str, bytes: &[u8], base: &Path, parts: &mut PartsCache) -> CheckedFile {
+    check_bytes_with(name, bytes, base, parts, &analysis::CheckOptions::default())
+}
+
+/// [`check_bytes`] with the analyses' options.
+pub fn check_bytes_with(
+    name: &str,
+    bytes: &[u8],
+    base: &Path,
+    parts: &mut PartsCache,
+    options: &analysis::CheckOptions,
+) -> CheckedFile {
     let file = match syntax::decode(name, bytes) {
         Ok(f) => f,
         Err(finding) => {
@@ -64,7 +75,7 @@ pub fn check_bytes(name: &str, bytes: &[u8], base: &Path, parts: &mut PartsCache
     }
     if !findings.has_errors() {
         for chain in &chains {
-            let (_, more) = analysis::check_chain(chain);
+            let (_, more) = analysis::check_chain(chain, options);
             findings.extend(more);
         }
     }

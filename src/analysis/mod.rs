@@ -1,6 +1,13 @@
-//! What the checked chain does over its ranges, through the evaluator.
-//! This first analysis checks that every sensor model is valid over the
-//! measurand and ambient ranges and that the firmware conversion exists.
+//! What the checked chain does over its ranges, through the evaluator:
+//! sensor validity, the error budget, noise and requirement verdicts.
+
+pub mod budget;
+pub mod dynamics;
+pub mod monte_carlo;
+pub mod noise;
+pub mod report;
+pub mod requirements;
+mod stages;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower, Env, EvalError, Plan};
@@ -38,9 +45,16 @@ pub fn eval_finding(
     f.help(help)
 }
 
-/// Lowers a chain and evaluates its nominal corners: measurand ends at
-/// the ambient ends and the reference.
-pub fn check_chain(chain: &Chain) -> (Option<Plan>, Findings) {
+/// What `catena check` asks of the analyses.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct CheckOptions {
+    /// Run Monte Carlo even when no requirement asks for it.
+    pub monte_carlo: bool,
+}
+
+/// Lowers a chain, evaluates its nominal corners (measurand ends at the
+/// ambient ends and the reference), then judges its requirements.
+pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Findings) {
     let mut findings = Findings::new();
     let Some(measurand) = &chain.measurand else {
         return (None, findings);
@@ -70,6 +84,17 @@ pub fn check_chain(chain: &Chain) -> (Option<Plan>, Findings) {
                 findings.push(eval_finding(chain, &e, Some((measurand.span, at))));
                 break 'corners;
             }
+        }
+    }
+    if findings.is_empty() && !chain.requirements.is_empty() {
+        let wants_mc = options.monte_carlo || requirements::accuracy_method(chain) == "monte_carlo";
+        let options = report::Options {
+            trials: wants_mc.then_some(report::DEFAULT_TRIALS),
+            ..report::Options::default()
+        };
+        match report::analyse(chain, &plan, &options) {
+            Ok(analysis) => findings.extend(report::verdict_findings(chain, &analysis)),
+            Err(e) => findings.push(eval_finding(chain, &e, at_measurand)),
         }
     }
     (Some(plan), findings)

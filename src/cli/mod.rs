@@ -1,5 +1,7 @@
 //! The `catena` command line.
 
+mod budget;
+mod budget_table;
 mod check;
 mod eval;
 mod explain;
@@ -30,6 +32,8 @@ enum Command {
     Check(check::CheckArgs),
     /// Rewrite specs in the canonical layout.
     Fmt(fmt::FmtArgs),
+    /// The error budget: every source, the totals by method, per point.
+    Budget(budget::BudgetArgs),
     /// Evaluate a chain at one measurand value: every stage's output.
     Eval(eval::EvalArgs),
     /// Explain a diagnostic code, or list them all.
@@ -53,6 +57,7 @@ pub fn run() -> ExitCode {
     let status = match cli.command {
         Command::Check(args) => check::run(args),
         Command::Fmt(args) => fmt::run(args),
+        Command::Budget(args) => budget::run(args),
         Command::Eval(args) => eval::run(args),
         Command::Explain(args) => explain::run(args),
     };

@@ -5,7 +5,8 @@
 //!
 //! Letters by pipeline stage: S syntax, U units, P parameters and settings,
 //! M the chain graph (names, ports, cycles), L parts libraries, E evaluation
-//! of the chain (sensor validity, conversion, numerics).
+//! of the chain (sensor validity, conversion, numerics), R requirements and
+//! limits.
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Severity {
@@ -104,4 +105,9 @@ codes! {
     E501 => Error, "sensor outside its valid range";
     E502 => Error, "no firmware conversion";
     E503 => Error, "no finite value";
+
+    R611 => Error, "accuracy requirement not met";
+    R612 => Error, "resolution requirement not met";
+    R613 => Error, "response requirement not met";
+    R614 => Error, "rejection requirement not met";
 }

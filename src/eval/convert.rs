@@ -42,6 +42,67 @@ pub enum Calibration {
 pub struct InverseTable {
     pub xs: Vec<f64>,
     pub codes: Vec<f64>,
+    /// dx/dcode at each point (Fritsch–Carlson monotone slopes).
+    pub slopes: Vec<f64>,
+    /// The firmware model depends on nothing but the code (no thermocouple
+    /// cold junction), so the table is the inverse itself.
+    pub complete: bool,
+}
+
+impl InverseTable {
+    fn new(xs: Vec<f64>, codes: Vec<f64>, complete: bool) -> InverseTable {
+        let slopes = monotone_slopes(&codes, &xs);
+        InverseTable {
+            xs,
+            codes,
+            slopes,
+            complete,
+        }
+    }
+
+    /// Monotone cubic Hermite interpolation of x at `code` (None outside).
+    fn x_at(&self, code: f64) -> Option<f64> {
+        let n = self.codes.len();
+        let increasing = self.codes[n - 1] > self.codes[0];
+        let k = if increasing {
+            self.codes.partition_point(|&c| c < code)
+        } else {
+            self.codes.partition_point(|&c| c > code)
+        };
+        if k == 0 || k >= n {
+            return (code == self.codes[0]).then_some(self.xs[0]);
+        }
+        let (c0, c1) = (self.codes[k - 1], self.codes[k]);
+        let h = c1 - c0;
+        let t = (code - c0) / h;
+        let (t2, t3) = (t * t, t * t * t);
+        Some(
+            (2.0 * t3 - 3.0 * t2 + 1.0) * self.xs[k - 1]
+                + (t3 - 2.0 * t2 + t) * h * self.slopes[k - 1]
+                + (-2.0 * t3 + 3.0 * t2) * self.xs[k]
+                + (t3 - t2) * h * self.slopes[k],
+        )
+    }
+}
+
+/// Slopes that keep a cubic Hermite interpolant monotone (Fritsch and
+/// Carlson, SIAM J. Numer. Anal. 17, 1980), here of x against code.
+fn monotone_slopes(codes: &[f64], xs: &[f64]) -> Vec<f64> {
+    let n = codes.len();
+    let secant: Vec<f64> = (0..n - 1)
+        .map(|k| (xs[k + 1] - xs[k]) / (codes[k + 1] - codes[k]))
+        .collect();
+    let mut m = vec![0.0; n];
+    m[0] = secant[0];
+    m[n - 1] = secant[n - 2];
+    for k in 1..n - 1 {
+        m[k] = if secant[k - 1] * secant[k] <= 0.0 {
+            0.0
+        } else {
+            2.0 / (1.0 / secant[k - 1] + 1.0 / secant[k])
+        };
+    }
+    m
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -121,6 +182,10 @@ impl Conversion {
                         .map(|c| c - code)
                 };
                 match &self.inverse {
+                    Some(table) if table.complete => match table.x_at(code) {
+                        Some(x) => Ok(x),
+                        None => solve(f, self.domain),
+                    },
                     Some(table) => match newton_from_table(&f, table, code, self.domain)? {
                         Some(x) => Ok(x),
                         None => solve(f, self.domain),
@@ -187,7 +252,16 @@ impl Conversion {
     }
 
     /// Fits the method once the plan exists.
-    pub fn fit(&mut self, plan: &Plan, env: &Env, method: &str, points: u32) -> Result<(), String> {
+    /// `complete`: the firmware model depends on the code alone, so its
+    /// tabulated inverse can stand for it.
+    pub fn fit(
+        &mut self,
+        plan: &Plan,
+        env: &Env,
+        method: &str,
+        points: u32,
+        complete: bool,
+    ) -> Result<(), String> {
         let (lo, hi) = self.range;
         let code = |x: f64| {
             self.nominal_code(plan, &plan.nominal, env, x, None)
@@ -201,7 +275,7 @@ impl Conversion {
                     .collect();
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 if strictly_monotonic(&codes) {
-                    self.inverse = Some(InverseTable { xs, codes });
+                    self.inverse = Some(InverseTable::new(xs, codes, complete));
                 }
                 Method::Exact
             }

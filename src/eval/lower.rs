@@ -21,7 +21,7 @@ use crate::units::{Dim, ZERO_CELSIUS_K};
 
 /// How far beyond the measurand range the exact inverse looks, as a
 /// fraction of the span, so that over-range readings are still found.
-const DOMAIN_MARGIN: f64 = 0.25;
+const DOMAIN_MARGIN: f64 = 1.0;
 /// The cold-junction conversion looks this far beyond the ambient range, K.
 const CJ_MARGIN_K: f64 = 30.0;
 
@@ -740,6 +740,11 @@ fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<()
         ambient: plan.reference,
         cold_junction: plan.reference,
     };
+    // A thermocouple makes the firmware model depend on the cold junction.
+    let has_thermocouple = plan
+        .nodes
+        .iter()
+        .any(|n| matches!(n, Node::Thermocouple { .. }));
     for (node, &stage_index) in order.iter().enumerate() {
         let Node::Convert { conversion, .. } = &plan.nodes[node] else {
             continue;
@@ -806,7 +811,13 @@ fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<()
             _ => ("exact".to_string(), 0),
         };
         conversion
-            .fit(plan, &env, &method, points)
+            .fit(
+                plan,
+                &env,
+                &method,
+                points,
+                conversion.variable == Senses::ColdJunction || !has_thermocouple,
+            )
             .map_err(|what| not_invertible(&stage.name, what))?;
         if let Node::Convert { conversion: c, .. } = &mut plan.nodes[node] {
             **c = conversion;

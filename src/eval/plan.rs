@@ -29,8 +29,11 @@ pub struct Slot {
 pub enum SourceKind {
     Tolerance,
     Drift,
-    /// A bound with nominal zero: offsets, bias, CMRR, gain error.
+    /// An offset bound with nominal zero.
     Bound,
+    Gain,
+    Bias,
+    CommonMode,
     Sensor,
     Lead,
     ColdJunction,
@@ -47,6 +50,9 @@ impl SourceKind {
             SourceKind::Tolerance => "tolerance",
             SourceKind::Drift => "drift",
             SourceKind::Bound => "offset",
+            SourceKind::Gain => "gain",
+            SourceKind::Bias => "bias",
+            SourceKind::CommonMode => "common_mode",
             SourceKind::Sensor => "sensor",
             SourceKind::Lead => "lead",
             SourceKind::ColdJunction => "cold_junction",
@@ -62,7 +68,10 @@ impl SourceKind {
         let param = id.rsplit('.').next().unwrap_or(id);
         match param {
             p if p.ends_with("drift") => SourceKind::Drift,
-            "offset" | "bias" | "cmrr" | "zero" | "gain_error" => SourceKind::Bound,
+            "offset" | "zero" => SourceKind::Bound,
+            "gain_error" => SourceKind::Gain,
+            "bias" => SourceKind::Bias,
+            "cmrr" => SourceKind::CommonMode,
             "class" | "tolerance" | "accuracy" => SourceKind::Sensor,
             "lead" | "lead_mismatch" => SourceKind::Lead,
             "cold_junction" => SourceKind::ColdJunction,

@@ -642,7 +642,9 @@ fn tolerance(
     cx: &Context<'_>,
 ) -> Checked<Tolerance> {
     let half = |q: &QuantityLit| -> Checked<(f64, bool)> {
-        if is_relative_unit(q) && nominal_dim.is_some_and(|d| d != Dim::NONE) {
+        // `%` or `ppm` after a nominal value is relative to it (`gain 4 ±
+        // 0.05 %`); a bare limit in `%` is the ratio itself (`inl 15 ppm`).
+        if is_relative_unit(q) && nominal_dim.is_some() {
             let (v, _) = to_si(q, Expect::Ratio, false, cx)?;
             return Ok((v, true));
         }

@@ -35,7 +35,8 @@ pub fn significant(value: f64, digits: usize) -> String {
     if value == 0.0 || !value.is_finite() {
         return format!("{value}");
     }
-    let magnitude = value.abs().log10().floor() as i32;
+    // A hair above 1 keeps 0.09999… from being printed as 0.1000.
+    let magnitude = (value.abs() * (1.0 + 1e-9)).log10().floor() as i32;
     let decimals = (digits as i32 - 1 - magnitude).max(0) as usize;
     format!("{value:.decimals$}")
 }

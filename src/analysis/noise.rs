@@ -1,0 +1,168 @@
+//! Noise referred to the converter's input and to the measurand: voltage
+//! and current noise of each amplifier (white density and 1/f corner), the
+//! Johnson noise √(4kTR) of the resistance driving it, and the converter's
+//! own noise, over the chain's equivalent noise bandwidth.
+
+use super::stages::{low_pass, number, signal_path, stage};
+use crate::eval::{Env, Node, Plan, Signal};
+use crate::model::Chain;
+use crate::physics::noise::{johnson_voltage_density, rms_with_flicker};
+
+/// Lower band edge for 1/f noise in a DC measurement: the common practice
+/// of integrating from 0.1 Hz.
+pub const FLICKER_LOW_HZ: f64 = 0.1;
+/// Peak-to-peak span of Gaussian noise quoted as noise-free: 6.6 σ
+/// (common practice; about 99.9 % of samples).
+pub const NOISE_FREE_SIGMAS: f64 = 6.6;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct NoiseTerm {
+    /// `stage.what`, e.g. `front.voltage_noise`.
+    pub id: String,
+    /// rms at the converter's input, V.
+    pub rms_v: f64,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Noise {
+    pub terms: Vec<NoiseTerm>,
+    /// Equivalent noise bandwidth, Hz (None: nothing bounds it, so density
+    /// terms could not be integrated).
+    pub enbw_hz: Option<f64>,
+    /// Total rms at the converter's input, V.
+    pub total_v: f64,
+    /// Total rms in measurand units (SI), one sample and after averaging.
+    pub sigma: f64,
+    pub sigma_averaged: f64,
+    pub average: u32,
+    /// Noise-free resolution (6.6 σ) in measurand units, one sample and
+    /// after averaging.
+    pub noise_free: f64,
+    pub noise_free_averaged: f64,
+    /// One code step in measurand units.
+    pub lsb: f64,
+}
+
+/// The equivalent noise bandwidth of the signal path: the narrower of the
+/// analog filter's and the converter's (a sinc¹ over one conversion period
+/// has ENBW = rate/2); without either, a single-pole amplifier bandwidth.
+pub fn enbw(chain: &Chain, plan: &Plan) -> Option<f64> {
+    let path = signal_path(plan, plan.adc);
+    let mut bw: Option<f64> = None;
+    let narrow = |bw: &mut Option<f64>, b: f64| *bw = Some(bw.map_or(b, |x: f64| x.min(b)));
+    for &n in &path {
+        let Some(s) = stage(chain, plan, n) else {
+            continue;
+        };
+        match &plan.nodes[n] {
+            Node::Filter { .. } => {
+                if let Some(lp) = low_pass(s) {
+                    narrow(&mut bw, lp.enbw_hz());
+                }
+            }
+            Node::Adc { .. } => {
+                if let Some(rate) = number(s, "rate") {
+                    narrow(&mut bw, rate / 2.0);
+                }
+            }
+            _ => {}
+        }
+    }
+    if bw.is_none() {
+        for &n in &path {
+            if let (Node::Amplifier { .. }, Some(s)) = (&plan.nodes[n], stage(chain, plan, n)) {
+                if let Some(b) = number(s, "bandwidth") {
+                    narrow(&mut bw, std::f64::consts::FRAC_PI_2 * b);
+                }
+            }
+        }
+    }
+    bw
+}
+
+/// Noise at `env`, from the nominal chain. `slope` is the converter-input
+/// voltage per measurand unit there (V per SI unit), `lsb` one code in
+/// measurand units.
+pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
+    let enbw_hz = enbw(chain, plan);
+    let signals = plan
+        .evaluate(&plan.nominal, env)
+        .map(|o| o.signals)
+        .unwrap_or_default();
+    let path = signal_path(plan, plan.adc);
+    let mut terms = Vec::new();
+    // Gain from each amplifier's input to the converter's input.
+    let mut gain_after = 1.0;
+    for &n in &path {
+        let Some(s) = stage(chain, plan, n) else {
+            continue;
+        };
+        match &plan.nodes[n] {
+            Node::Adc { .. } => {
+                if let Some(v) = number(s, "noise") {
+                    terms.push(NoiseTerm {
+                        id: format!("{}.noise", s.name),
+                        rms_v: v,
+                    });
+                }
+            }
+            Node::Amplifier { gain, input, .. } => {
+                gain_after *= plan.nominal[*gain];
+                let rs = match signals.get(*input) {
+                    Some(Signal::Voltage { rs, .. }) => *rs,
+                    _ => 0.0,
+                };
+                if let Some(bw) = enbw_hz {
+                    let e_n = number(s, "noise").unwrap_or(0.0);
+                    let corner = number(s, "noise_corner").unwrap_or(0.0);
+                    if e_n > 0.0 {
+                        let rms =
+                            rms_with_flicker(e_n, corner, FLICKER_LOW_HZ, FLICKER_LOW_HZ + bw)
+                                .unwrap_or(e_n * bw.sqrt());
+                        terms.push(NoiseTerm {
+                            id: format!("{}.noise", s.name),
+                            rms_v: gain_after * rms,
+                        });
+                    }
+                    if let Some(i_n) = number(s, "current_noise") {
+                        terms.push(NoiseTerm {
+                            id: format!("{}.current_noise", s.name),
+                            rms_v: gain_after * i_n * rs * bw.sqrt(),
+                        });
+                    }
+                    if rs > 0.0 {
+                        if let Ok(density) = johnson_voltage_density(rs, env.ambient) {
+                            terms.push(NoiseTerm {
+                                id: format!("{}.source_resistance", s.name),
+                                rms_v: gain_after * density * bw.sqrt(),
+                            });
+                        }
+                    }
+                }
+            }
+            _ => {}
+        }
+    }
+    let total_v = terms.iter().map(|t| t.rms_v * t.rms_v).sum::<f64>().sqrt();
+    let average = stage(chain, plan, plan.reading)
+        .and_then(|s| number(s, "average"))
+        .unwrap_or(1.0)
+        .max(1.0) as u32;
+    let sigma = if slope != 0.0 {
+        total_v / slope.abs()
+    } else {
+        0.0
+    };
+    let sigma_averaged = sigma / f64::from(average).sqrt();
+    Noise {
+        terms,
+        enbw_hz,
+        total_v,
+        sigma,
+        sigma_averaged,
+        average,
+        noise_free: NOISE_FREE_SIGMAS * sigma,
+        noise_free_averaged: NOISE_FREE_SIGMAS * sigma_averaged,
+        lsb,
+    }
+}

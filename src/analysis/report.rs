@@ -1,0 +1,154 @@
+//! All analyses of one chain together, and the findings their verdicts
+//! give `catena check`.
+
+use super::budget::{self, Budget};
+use super::dynamics::{dynamics, Dynamics};
+use super::monte_carlo::{interval, Interval};
+use super::requirements::{verdicts, Achieved, Verdict};
+use crate::diagnostics::{Code, Finding, Findings};
+use crate::eval::{Env, EvalError, Plan};
+use crate::model::Chain;
+use crate::units::format::{from_si, trimmed};
+
+pub const DEFAULT_TRIALS: usize = 100_000;
+pub const MAX_TRIALS: usize = 10_000_000;
+pub const DEFAULT_SEED: u64 = 1;
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Options {
+    pub budget: budget::Options,
+    /// Monte Carlo trials per point; None runs no Monte Carlo.
+    pub trials: Option<usize>,
+    pub seed: u64,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options {
+            budget: budget::Options::default(),
+            trials: None,
+            seed: DEFAULT_SEED,
+        }
+    }
+}
+
+#[derive(Clone, Debug)]
+pub struct Analysis {
+    pub budget: Budget,
+    /// Per budget point, when Monte Carlo ran.
+    pub monte_carlo: Option<Vec<Interval>>,
+    pub trials: usize,
+    pub seed: u64,
+    pub dynamics: Dynamics,
+    pub verdicts: Vec<Verdict>,
+}
+
+pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis, EvalError> {
+    let budget = budget::budget(chain, plan, &options.budget)?;
+    let monte_carlo = match options.trials {
+        Some(trials) if trials > 0 => {
+            let mut out = Vec::with_capacity(budget.points.len());
+            for (i, p) in budget.points.iter().enumerate() {
+                let env = Env {
+                    measurand: p.measurand,
+                    ambient: p.ambient,
+                    cold_junction: p.ambient,
+                };
+                let lsb = 1.0 / p.codes_per_unit.abs();
+                out.push(interval(
+                    plan,
+                    &env,
+                    &budget.noise,
+                    lsb,
+                    trials.min(MAX_TRIALS),
+                    options.seed,
+                    i as u64,
+                )?);
+            }
+            Some(out)
+        }
+        _ => None,
+    };
+    let dynamics = dynamics(chain, plan);
+    let achieved = Achieved {
+        response_s: dynamics.response_90,
+    };
+    let verdicts = verdicts(chain, &budget, monte_carlo.as_deref(), &achieved, &|f| {
+        Some(dynamics.attenuation(f))
+    });
+    Ok(Analysis {
+        budget,
+        monte_carlo,
+        trials: options.trials.unwrap_or(0).min(MAX_TRIALS),
+        seed: options.seed,
+        dynamics,
+        verdicts,
+    })
+}
+
+/// A failed requirement is an error on its `require` line, naming the
+/// largest contributors with their shares.
+pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
+    let mut findings = Findings::new();
+    let unit = chain
+        .measurand
+        .as_ref()
+        .map(|m| m.unit.clone())
+        .unwrap_or_default();
+    let diff_unit = if unit == "degC" {
+        "K".to_string()
+    } else {
+        unit.clone()
+    };
+    let diff = |x: f64| match crate::units::parse_unit(&diff_unit) {
+        Ok(u) if u.scale != 0.0 => x / u.scale,
+        _ => x,
+    };
+    for v in analysis.verdicts.iter().filter(|v| !v.pass) {
+        let (code, message, help) = match v.name {
+            "accuracy" => {
+                let at = v.at.map(|(m, a)| format!(" at {} {unit}, ambient {} degC", trimmed(from_si(m, &unit), 6), trimmed(from_si(a, "degC"), 4))).unwrap_or_default();
+                let top = v.top.iter().map(|(id, share)| format!("`{id}` {:.0} %", share * 100.0)).collect::<Vec<_>>().join(", ");
+                (
+                    Code::R611,
+                    format!(
+                        "accuracy ± {} {diff_unit} ({}) misses the required ± {} {diff_unit}{at}",
+                        trimmed(diff(v.achieved), 3),
+                        method_name(&v.method),
+                        trimmed(diff(v.limit), 6)
+                    ),
+                    format!("the largest contributors there: {top}; tighten them or relax the requirement"),
+                )
+            }
+            "resolution" => (
+                Code::R612,
+                format!("resolution {} {diff_unit} ({}) misses the required {} {diff_unit}", trimmed(diff(v.achieved), 3), v.method.replace('_', "-"), trimmed(diff(v.limit), 6)),
+                "average more conversions, narrow the noise bandwidth or lower the noise; a finer converter helps only when one code is the limit".to_string(),
+            ),
+            "response" => (
+                Code::R613,
+                format!("a step takes {} s to reach 90 % of the reading; the requirement is {} s", trimmed(v.achieved, 3), trimmed(v.limit, 6)),
+                "a faster sensor, a wider filter, a higher rate or less averaging shortens the response".to_string(),
+            ),
+            _ => (
+                Code::R614,
+                format!("the chain attenuates {} dB where {} dB is required", trimmed(20.0 * v.achieved.log10(), 3), trimmed(20.0 * v.limit.log10(), 3)),
+                "lower the filter's cutoff, raise its order, or set the converter's digital notch at the mains frequency".to_string(),
+            ),
+        };
+        findings.push(
+            Finding::new(code, &chain.file, message)
+                .label(v.span, "this requirement")
+                .help(help),
+        );
+    }
+    findings
+}
+
+fn method_name(method: &str) -> &str {
+    match method {
+        "worst_case" => "worst case",
+        "monte_carlo" => "Monte Carlo 95 %",
+        _ => "GUM, k = 2",
+    }
+}

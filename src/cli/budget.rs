@@ -1,0 +1,343 @@
+//! `catena budget SPEC`: the error budget by source and by method, per
+//! point, with the noise, the dynamics and the requirement verdicts.
+
+use std::collections::BTreeMap;
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+
+use clap::Args;
+use serde::Serialize;
+
+use super::files::plain_io;
+use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::budget::Options as BudgetOptions;
+use crate::analysis::eval_finding;
+use crate::analysis::report::{
+    analyse, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
+};
+use crate::check::check_bytes;
+use crate::diagnostics::{render_human, Findings};
+use crate::eval::lower;
+use crate::model::{did_you_mean, Chain, PartsCache};
+use crate::units::format::{from_si, trimmed};
+
+#[derive(Args, Debug)]
+pub struct BudgetArgs {
+    /// The spec file.
+    spec: PathBuf,
+    /// The chain, when the file has several (default: all).
+    #[arg(long)]
+    chain: Option<String>,
+    #[arg(long, value_enum, default_value_t = Format::Human)]
+    format: Format,
+    /// Monte Carlo trials per point (0: none).
+    #[arg(long, default_value_t = DEFAULT_TRIALS)]
+    trials: usize,
+    /// The Monte Carlo seed: the same seed gives the same result.
+    #[arg(long, default_value_t = DEFAULT_SEED)]
+    seed: u64,
+    /// Points across the measurand range.
+    #[arg(long, default_value_t = 21)]
+    points: usize,
+}
+
+pub fn run(args: BudgetArgs) -> u8 {
+    if args.trials > MAX_TRIALS {
+        eprintln!("catena: --trials is at most {MAX_TRIALS}");
+        return EXIT_USAGE;
+    }
+    if !(2..=1001).contains(&args.points) {
+        eprintln!("catena: --points takes 2 to 1001");
+        return EXIT_USAGE;
+    }
+    let bytes = match std::fs::read(&args.spec) {
+        Ok(b) => b,
+        Err(e) => {
+            eprintln!(
+                "catena: cannot read `{}`: {}",
+                args.spec.display(),
+                plain_io(&e)
+            );
+            return EXIT_USAGE;
+        }
+    };
+    let base = args
+        .spec
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let checked = check_bytes(
+        &args.spec.to_string_lossy(),
+        &bytes,
+        base,
+        &mut PartsCache::default(),
+    );
+    // Requirement findings are what the budget explains, not a reason to
+    // withhold it.
+    let blocking: Findings = {
+        let mut f = Findings::new();
+        for x in checked.findings.iter().filter(|f| {
+            f.severity() == crate::diagnostics::Severity::Error && !f.code.as_str().starts_with('R')
+        }) {
+            f.push(x.clone());
+        }
+        f
+    };
+    if !blocking.is_empty() {
+        eprint!(
+            "{}",
+            render_human(
+                &blocking.sorted(),
+                terminal::stderr_color(),
+                terminal::width()
+            )
+        );
+        return EXIT_FINDINGS;
+    }
+    let chains: Vec<&Chain> = match &args.chain {
+        None => checked.chains.iter().collect(),
+        Some(name) => match checked.chains.iter().find(|c| &c.name == name) {
+            Some(c) => vec![c],
+            None => {
+                let near = did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str()));
+                match near {
+                    Some(n) => eprintln!("catena: no chain `{name}`; did you mean `{n}`?"),
+                    None => eprintln!("catena: no chain `{name}`"),
+                }
+                return EXIT_USAGE;
+            }
+        },
+    };
+    let options = Options {
+        budget: BudgetOptions {
+            points: args.points,
+            ..BudgetOptions::default()
+        },
+        trials: (args.trials > 0).then_some(args.trials),
+        seed: args.seed,
+    };
+    let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
+    let mut outputs = Vec::new();
+    for chain in chains {
+        if progress {
+            eprintln!(
+                "catena: {} Monte Carlo trials at {} points of `{}`…",
+                args.trials, args.points, chain.name
+            );
+        }
+        let plan = match lower(chain) {
+            Ok(p) => p,
+            Err(e) => return report_error(chain, &e),
+        };
+        match analyse(chain, &plan, &options) {
+            Ok(a) => outputs.push((chain, a)),
+            Err(e) => return report_error(chain, &e),
+        }
+    }
+    match args.format {
+        Format::Json => {
+            let docs: Vec<BudgetJson> = outputs.iter().map(|(c, a)| json(c, a)).collect();
+            let text = if docs.len() == 1 {
+                serde_json::to_string_pretty(&docs[0])
+            } else {
+                serde_json::to_string_pretty(&docs)
+            };
+            println!("{}", text.unwrap_or_default());
+        }
+        Format::Human => {
+            for (c, a) in &outputs {
+                print!("{}", super::budget_table::human(c, a));
+            }
+        }
+    }
+    let failed = outputs
+        .iter()
+        .any(|(_, a)| a.verdicts.iter().any(|v| !v.pass));
+    if failed {
+        EXIT_FINDINGS
+    } else {
+        EXIT_OK
+    }
+}
+
+fn report_error(chain: &Chain, e: &crate::eval::EvalError) -> u8 {
+    let mut f = Findings::new();
+    f.push(eval_finding(chain, e, None));
+    eprint!(
+        "{}",
+        render_human(&f.sorted(), terminal::stderr_color(), terminal::width())
+    );
+    EXIT_FINDINGS
+}
+
+/// The measurand's difference unit (`K` for temperatures) and the factor
+/// from SI to it.
+pub fn difference_unit(chain: &Chain) -> (String, f64) {
+    let unit = chain
+        .measurand
+        .as_ref()
+        .map(|m| m.unit.clone())
+        .unwrap_or_default();
+    if unit == "degC" || unit == "K" {
+        return ("K".into(), 1.0);
+    }
+    match crate::units::parse_unit(&unit) {
+        Ok(u) if u.scale != 0.0 => (unit, 1.0 / u.scale),
+        _ => (unit, 1.0),
+    }
+}
+
+#[derive(Serialize)]
+struct SourceJson {
+    id: String,
+    kind: &'static str,
+    contribution: f64,
+    standard_uncertainty: f64,
+}
+
+#[derive(Serialize)]
+struct PointJson {
+    measurand: f64,
+    ambient: f64,
+    worst_case: f64,
+    gum_standard: f64,
+    gum_expanded: f64,
+    k: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    monte_carlo_95: Option<[f64; 2]>,
+    linearisation: f64,
+    sources: Vec<SourceJson>,
+}
+
+#[derive(Serialize)]
+struct NoiseJson {
+    enbw_hz: Option<f64>,
+    total_v_rms: f64,
+    sigma: f64,
+    sigma_averaged: f64,
+    average: u32,
+    noise_free: f64,
+    noise_free_averaged: f64,
+    lsb: f64,
+    terms: BTreeMap<String, f64>,
+}
+
+#[derive(Serialize)]
+struct DynamicsJson {
+    response_90_s: Option<f64>,
+    attenuation_db: BTreeMap<String, f64>,
+}
+
+#[derive(Serialize)]
+struct RequirementJson {
+    name: &'static str,
+    limit: f64,
+    achieved: f64,
+    method: String,
+    pass: bool,
+}
+
+#[derive(Serialize)]
+struct BudgetJson {
+    schema_version: u32,
+    chain: String,
+    unit: String,
+    measurand_unit: String,
+    trials: usize,
+    seed: u64,
+    points: Vec<PointJson>,
+    noise: NoiseJson,
+    dynamics: DynamicsJson,
+    requirements: Vec<RequirementJson>,
+}
+
+fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
+    let (unit, f) = difference_unit(chain);
+    let m_unit = chain
+        .measurand
+        .as_ref()
+        .map(|m| m.unit.clone())
+        .unwrap_or_default();
+    let points = a
+        .budget
+        .points
+        .iter()
+        .enumerate()
+        .map(|(i, p)| PointJson {
+            measurand: from_si(p.measurand, &m_unit),
+            ambient: from_si(p.ambient, "degC"),
+            worst_case: p.worst_case * f,
+            gum_standard: p.gum_standard * f,
+            gum_expanded: p.gum_expanded * f,
+            k: a.budget.k,
+            monte_carlo_95: a
+                .monte_carlo
+                .as_ref()
+                .map(|m| [m[i].low * f, m[i].high * f]),
+            linearisation: p.linearisation * f,
+            sources: p
+                .contributions
+                .iter()
+                .map(|c| SourceJson {
+                    id: c.id.clone(),
+                    kind: c.kind,
+                    contribution: c.worst * f,
+                    standard_uncertainty: c.standard * f,
+                })
+                .collect(),
+        })
+        .collect();
+    let n = &a.budget.noise;
+    let requirement_scale = |name: &str| {
+        if name == "accuracy" || name == "resolution" {
+            f
+        } else {
+            1.0
+        }
+    };
+    BudgetJson {
+        schema_version: 1,
+        chain: chain.name.clone(),
+        unit,
+        measurand_unit: m_unit,
+        trials: a.trials,
+        seed: a.seed,
+        points,
+        noise: NoiseJson {
+            enbw_hz: n.enbw_hz,
+            total_v_rms: n.total_v,
+            sigma: n.sigma * f,
+            sigma_averaged: n.sigma_averaged * f,
+            average: n.average,
+            noise_free: n.noise_free * f,
+            noise_free_averaged: n.noise_free_averaged * f,
+            lsb: n.lsb * f,
+            terms: n.terms.iter().map(|t| (t.id.clone(), t.rms_v)).collect(),
+        },
+        dynamics: DynamicsJson {
+            response_90_s: a.dynamics.response_90,
+            attenuation_db: a
+                .dynamics
+                .mains
+                .iter()
+                .map(|(hz, x)| (format!("{} Hz", trimmed(*hz, 6)), 20.0 * x.log10()))
+                .chain(
+                    a.dynamics
+                        .at_rate
+                        .map(|x| ("rate".to_string(), 20.0 * x.log10())),
+                )
+                .collect(),
+        },
+        requirements: a
+            .verdicts
+            .iter()
+            .map(|v| RequirementJson {
+                name: v.name,
+                limit: v.limit * requirement_scale(v.name),
+                achieved: v.achieved * requirement_scale(v.name),
+                method: v.method.clone(),
+                pass: v.pass,
+            })
+            .collect(),
+    }
+}

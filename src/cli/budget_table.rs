@@ -1,0 +1,171 @@
+//! The budget for people: totals per point, the largest sources at the
+//! worst point, noise, dynamics and verdicts.
+
+use comfy_table::{presets::NOTHING, Table};
+
+use super::budget::difference_unit;
+use crate::analysis::report::Analysis;
+use crate::model::Chain;
+use crate::units::format::{from_si, significant, trimmed};
+
+/// Rows of the source table shown; the JSON has them all.
+const TOP_SOURCES: usize = 12;
+
+fn table() -> Table {
+    let mut t = Table::new();
+    t.load_style(NOTHING);
+    t
+}
+
+fn lines(t: &Table) -> String {
+    t.to_string()
+        .lines()
+        .map(str::trim_end)
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+pub fn human(chain: &Chain, a: &Analysis) -> String {
+    let (unit, f) = difference_unit(chain);
+    let m_unit = chain
+        .measurand
+        .as_ref()
+        .map(|m| m.unit.clone())
+        .unwrap_or_default();
+    let v = |x: f64| significant(x * f, 3);
+    let mut out = match &chain.label {
+        Some(l) => format!("chain {} \"{l}\": error budget in {unit}\n\n", chain.name),
+        None => format!("chain {}: error budget in {unit}\n\n", chain.name),
+    };
+    let mut totals = table();
+    let mc = a.monte_carlo.is_some();
+    let mut header = vec![
+        "measurand".to_string(),
+        "ambient".into(),
+        "worst case".into(),
+        format!("GUM (k = {})", trimmed(a.budget.k, 3)),
+    ];
+    if mc {
+        header.push("Monte Carlo 95 %".into());
+    }
+    totals.set_header(header);
+    for (i, p) in a.budget.points.iter().enumerate() {
+        let mut row = vec![
+            format!("{} {m_unit}", trimmed(from_si(p.measurand, &m_unit), 6)),
+            format!("{} degC", trimmed(from_si(p.ambient, "degC"), 4)),
+            format!("± {}", v(p.worst_case)),
+            format!("± {}", v(p.gum_expanded)),
+        ];
+        if let Some(m) = &a.monte_carlo {
+            row.push(format!("{} .. {}", v(m[i].low), v(m[i].high)));
+        }
+        totals.add_row(row);
+    }
+    out.push_str(&lines(&totals));
+    out.push_str("\n\n");
+    if let Some(worst) = a
+        .budget
+        .points
+        .iter()
+        .max_by(|x, y| x.gum_expanded.total_cmp(&y.gum_expanded))
+    {
+        out.push_str(&format!(
+            "largest sources at {} {m_unit}, ambient {} degC\n\n",
+            trimmed(from_si(worst.measurand, &m_unit), 6),
+            trimmed(from_si(worst.ambient, "degC"), 4)
+        ));
+        let total = worst.gum_standard * worst.gum_standard;
+        let mut sources = table();
+        sources.set_header(["source", "kind", "limit effect", "standard", "share"]);
+        for c in worst.contributions.iter().take(TOP_SOURCES) {
+            let share = if total > 0.0 {
+                c.standard * c.standard / total * 100.0
+            } else {
+                0.0
+            };
+            sources.add_row([
+                c.id.clone(),
+                c.kind.to_string(),
+                format!("± {}", v(c.worst)),
+                v(c.standard),
+                format!("{share:.1} %"),
+            ]);
+        }
+        out.push_str(&lines(&sources));
+        out.push_str("\n\n");
+    }
+    let n = &a.budget.noise;
+    out.push_str(&format!(
+        "noise: {} rms at the converter over {}; {} {unit} rms, {} {unit} noise-free (6.6 σ){}\n",
+        crate::units::format::with_prefix(n.total_v, "V", 3),
+        n.enbw_hz
+            .map(|b| format!("{} Hz", significant(b, 3)))
+            .unwrap_or_else(|| "an unbounded bandwidth".into()),
+        v(n.sigma),
+        v(n.noise_free),
+        if n.average > 1 {
+            format!(
+                "; averaged over {}: {} {unit} noise-free",
+                n.average,
+                v(n.noise_free_averaged)
+            )
+        } else {
+            String::new()
+        }
+    ));
+    let d = &a.dynamics;
+    let mains = d
+        .mains
+        .iter()
+        .map(|(hz, x)| {
+            format!(
+                "{} dB at {} Hz",
+                significant(20.0 * x.log10(), 3),
+                trimmed(*hz, 4)
+            )
+        })
+        .collect::<Vec<_>>()
+        .join(", ");
+    out.push_str(&format!(
+        "dynamics: 90 % of a step in {}; {mains}\n",
+        d.response_90
+            .map(|t| format!("{} s", significant(t, 3)))
+            .unwrap_or_else(|| "an unknown time".into())
+    ));
+    if !a.verdicts.is_empty() {
+        out.push('\n');
+        let mut verdicts = table();
+        verdicts.set_header(["requirement", "required", "achieved", "method", "verdict"]);
+        for r in &a.verdicts {
+            let (req, got) = match r.name {
+                "accuracy" => (
+                    format!("± {} {unit}", v(r.limit)),
+                    format!("± {} {unit}", v(r.achieved)),
+                ),
+                "resolution" => (
+                    format!("{} {unit}", v(r.limit)),
+                    format!("{} {unit}", v(r.achieved)),
+                ),
+                "response" => (
+                    format!("{} s", significant(r.limit, 3)),
+                    format!("{} s", significant(r.achieved, 3)),
+                ),
+                _ => (
+                    format!("{} dB", significant(20.0 * r.limit.log10(), 3)),
+                    format!("{} dB", significant(20.0 * r.achieved.log10(), 3)),
+                ),
+            };
+            verdicts.add_row([
+                r.name.to_string(),
+                req,
+                got,
+                r.method.replace('_', " "),
+                if r.pass { "pass".into() } else { "FAIL".into() },
+            ]);
+        }
+        out.push_str(&lines(&verdicts));
+        out.push('\n');
+    }
+    out.push('\n');
+    out
+}
