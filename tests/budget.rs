@@ -281,3 +281,29 @@ fn first_order_response() {
     let tau_ln10 = 20.0 * 10f64.ln();
     assert!(t > tau_ln10 && t < tau_ln10 + 0.1, "{t}");
 }
+
+/// The over-gained amplifier's suggested gain, by hand: the sensor gives
+/// 0.5 V + 10 mV/K × 100 K = 1.5 V at the top of the range; with gain 3 the
+/// output would reach 4.5 V. A 5 % margin on the 0 … 3.3 V swing leaves
+/// 3.3 − 0.05 × 3.3 = 3.135 V, so the largest gain is 3 × 3.135 / 4.5 = 2.09.
+#[test]
+fn over_gained_amplifier_gets_the_largest_gain() {
+    let dir = root().join("tests/fixtures/invalid");
+    let run = catena(
+        &dir,
+        &[
+            "check",
+            "--format",
+            "json",
+            "R601-over-gained-amplifier.catena",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 1);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let largest: f64 = 3.0 * (3.3 - 0.05 * 3.3) / 4.5;
+    assert!((largest - 2.09).abs() < 1e-12);
+    let help = v[0]["help"].as_str().unwrap();
+    assert!(help.contains("a gain of at most 2.09 "), "{help}");
+    assert_eq!(v[0]["code"], "R601");
+}

@@ -1,10 +1,12 @@
 //! What the checked chain does over its ranges, through the evaluator:
 //! sensor validity, the error budget, noise and requirement verdicts.
 
+pub mod accumulation;
 pub mod budget;
 pub mod dynamics;
 pub mod monte_carlo;
 pub mod noise;
+pub mod ranges;
 pub mod report;
 pub mod requirements;
 mod stages;
@@ -50,6 +52,9 @@ pub fn eval_finding(
 pub struct CheckOptions {
     /// Run Monte Carlo even when no requirement asks for it.
     pub monte_carlo: bool,
+    /// Headroom warnings below this fraction of a limit's span (default
+    /// [`ranges::DEFAULT_MARGIN`] when zero).
+    pub margin: f64,
 }
 
 /// Lowers a chain, evaluates its nominal corners (measurand ends at the
@@ -84,6 +89,17 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
                 findings.push(eval_finding(chain, &e, Some((measurand.span, at))));
                 break 'corners;
             }
+        }
+    }
+    if findings.is_empty() {
+        let margin = if options.margin > 0.0 {
+            options.margin
+        } else {
+            ranges::DEFAULT_MARGIN
+        };
+        match ranges::envelopes(chain, &plan, 21) {
+            Ok(envelopes) => findings.extend(ranges::findings(chain, &plan, &envelopes, margin)),
+            Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),
         }
     }
     if findings.is_empty() && !chain.requirements.is_empty() {

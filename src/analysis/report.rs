@@ -1,11 +1,14 @@
 //! All analyses of one chain together, and the findings their verdicts
 //! give `catena check`.
 
+use super::accumulation::{accumulation, NodeError};
 use super::budget::{self, Budget};
 use super::dynamics::{dynamics, Dynamics};
 use super::monte_carlo::{interval, Interval};
+use super::ranges::{envelopes, Envelope};
 use super::requirements::{verdicts, Achieved, Verdict};
 use crate::diagnostics::{Code, Finding, Findings};
+use crate::eval::{Calibration, Node};
 use crate::eval::{Env, EvalError, Plan};
 use crate::model::Chain;
 use crate::units::format::{from_si, trimmed};
@@ -41,6 +44,15 @@ pub struct Analysis {
     pub seed: u64,
     pub dynamics: Dynamics,
     pub verdicts: Vec<Verdict>,
+    /// Every limited signal's reach.
+    pub envelopes: Vec<Envelope>,
+    /// Along the signal path at the worst budget point.
+    pub accumulation: Vec<NodeError>,
+    /// The GUM expanded uncertainty per point without the declared
+    /// calibration: what calibration buys.
+    pub uncalibrated: Option<Vec<f64>>,
+    /// Stage names by plan node.
+    pub names: Vec<String>,
 }
 
 pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis, EvalError> {
@@ -70,6 +82,33 @@ pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis
         _ => None,
     };
     let dynamics = dynamics(chain, plan);
+    let envelopes = envelopes(chain, plan, options.budget.points)?;
+    let worst = budget
+        .points
+        .iter()
+        .max_by(|a, b| a.gum_expanded.total_cmp(&b.gum_expanded))
+        .map(|p| Env {
+            measurand: p.measurand,
+            ambient: p.ambient,
+            cold_junction: p.ambient,
+        })
+        .unwrap_or(Env {
+            measurand: plan.range.0,
+            ambient: plan.reference,
+            cold_junction: plan.reference,
+        });
+    let accumulation = accumulation(plan, &worst)?;
+    let uncalibrated = match &plan.nodes[plan.reading] {
+        Node::Convert { conversion, .. } if conversion.calibration != Calibration::None => {
+            let mut bare = plan.clone();
+            if let Node::Convert { conversion, .. } = &mut bare.nodes[bare.reading] {
+                conversion.calibration = Calibration::None;
+            }
+            let b = budget::budget(chain, &bare, &options.budget)?;
+            Some(b.points.iter().map(|p| p.gum_expanded).collect())
+        }
+        _ => None,
+    };
     let achieved = Achieved {
         response_s: dynamics.response_90,
     };
@@ -83,6 +122,10 @@ pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis
         seed: options.seed,
         dynamics,
         verdicts,
+        envelopes,
+        accumulation,
+        uncalibrated,
+        names: plan.names.clone(),
     })
 }
 

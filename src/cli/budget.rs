@@ -206,7 +206,28 @@ struct PointJson {
     #[serde(skip_serializing_if = "Option::is_none")]
     monte_carlo_95: Option<[f64; 2]>,
     linearisation: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    gum_expanded_uncalibrated: Option<f64>,
     sources: Vec<SourceJson>,
+}
+
+#[derive(Serialize)]
+struct LimitJson {
+    stage: String,
+    limit: &'static str,
+    unit: &'static str,
+    allowed: [Option<f64>; 2],
+    reach: [f64; 2],
+    headroom: f64,
+}
+
+#[derive(Serialize)]
+struct StageJson {
+    stage: String,
+    value: f64,
+    unit: &'static str,
+    gain: f64,
+    error: f64,
 }
 
 #[derive(Serialize)]
@@ -248,7 +269,13 @@ struct BudgetJson {
     points: Vec<PointJson>,
     noise: NoiseJson,
     dynamics: DynamicsJson,
+    limits: Vec<LimitJson>,
+    stages: Vec<StageJson>,
     requirements: Vec<RequirementJson>,
+}
+
+fn plan_name(_chain: &Chain, a: &Analysis, node: usize) -> String {
+    a.names.get(node).cloned().unwrap_or_default()
 }
 
 fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
@@ -275,6 +302,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
                 .as_ref()
                 .map(|m| [m[i].low * f, m[i].high * f]),
             linearisation: p.linearisation * f,
+            gum_expanded_uncalibrated: a.uncalibrated.as_ref().map(|u| u[i] * f),
             sources: p
                 .contributions
                 .iter()
@@ -328,6 +356,33 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
                 )
                 .collect(),
         },
+        limits: a
+            .envelopes
+            .iter()
+            .map(|e| LimitJson {
+                stage: plan_name(chain, a, e.node),
+                limit: e.limit.describe(),
+                unit: if e.unit == "of full scale" {
+                    "1"
+                } else {
+                    e.unit
+                },
+                allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
+                reach: [e.reach.0, e.reach.1],
+                headroom: e.headroom(),
+            })
+            .collect(),
+        stages: a
+            .accumulation
+            .iter()
+            .map(|n| StageJson {
+                stage: plan_name(chain, a, n.node),
+                value: n.value,
+                unit: n.unit,
+                gain: n.gain,
+                error: n.error * f,
+            })
+            .collect(),
         requirements: a
             .verdicts
             .iter()

@@ -94,6 +94,66 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
         out.push_str(&lines(&sources));
         out.push_str("\n\n");
     }
+    if let Some(u) = &a.uncalibrated {
+        let worst = |v: &mut dyn Iterator<Item = f64>| v.fold(0.0, f64::max);
+        out.push_str(&format!(
+            "calibration: ± {} {unit} (GUM) before it, ± {} {unit} after, at the worst point\n\n",
+            v(worst(&mut u.iter().copied())),
+            v(worst(&mut a.budget.points.iter().map(|p| p.gum_expanded)))
+        ));
+    }
+    if !a.accumulation.is_empty() {
+        out.push_str("along the signal path, at the worst point\n\n");
+        let mut t = table();
+        t.set_header([
+            "stage".to_string(),
+            "value".into(),
+            format!("gain per {unit}"),
+            format!("error ({unit}, 1 σ)"),
+        ]);
+        for n in &a.accumulation {
+            let name = a.names.get(n.node).cloned().unwrap_or_default();
+            let value = if n.unit == "code" {
+                format!("{} (code)", significant(n.value, 7))
+            } else {
+                crate::units::format::with_prefix(n.value, n.unit, 5)
+            };
+            let gain = if n.unit == "code" {
+                format!("{} codes", significant(n.gain / f, 4))
+            } else {
+                crate::units::format::with_prefix(n.gain / f, n.unit, 4)
+            };
+            t.add_row([name, value, gain, v(n.error)]);
+        }
+        out.push_str(&lines(&t));
+        out.push_str("\n\n");
+    }
+    if !a.envelopes.is_empty() {
+        out.push_str("limits over the ranges and tolerances\n\n");
+        let mut t = table();
+        t.set_header(["stage", "signal", "reaches", "allowed", "headroom"]);
+        for e in &a.envelopes {
+            let name = a.names.get(e.node).cloned().unwrap_or_default();
+            let show = |x: f64| {
+                if !x.is_finite() {
+                    "—".to_string()
+                } else if e.unit == "of full scale" {
+                    format!("{} %", trimmed(x * 100.0, 4))
+                } else {
+                    crate::units::format::with_prefix(x, e.unit, 4)
+                }
+            };
+            t.add_row([
+                name,
+                e.limit.describe().to_string(),
+                format!("{} .. {}", show(e.reach.0), show(e.reach.1)),
+                format!("{} .. {}", show(e.allowed.0), show(e.allowed.1)),
+                format!("{} %", trimmed(e.headroom() * 100.0, 3)),
+            ]);
+        }
+        out.push_str(&lines(&t));
+        out.push_str("\n\n");
+    }
     let n = &a.budget.noise;
     out.push_str(&format!(
         "noise: {} rms at the converter over {}; {} {unit} rms, {} {unit} noise-free (6.6 σ){}\n",
@@ -118,11 +178,15 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
         .mains
         .iter()
         .map(|(hz, x)| {
-            format!(
-                "{} dB at {} Hz",
-                significant(20.0 * x.log10(), 3),
-                trimmed(*hz, 4)
-            )
+            // An ideal notch attenuates without bound; past 200 dB the
+            // number means nothing to a reader.
+            let db = 20.0 * x.log10();
+            let db = if db > 200.0 {
+                "> 200".to_string()
+            } else {
+                significant(db, 3)
+            };
+            format!("{db} dB at {} Hz", trimmed(*hz, 4))
         })
         .collect::<Vec<_>>()
         .join(", ");

@@ -4,7 +4,8 @@ use clap::{Args, ValueEnum};
 
 use super::files::{collect, plain_io};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::check::check_bytes;
+use crate::analysis::CheckOptions;
+use crate::check::check_bytes_with;
 use crate::diagnostics::{render_human, render_json, Finding, Severity};
 use crate::model::PartsCache;
 
@@ -19,6 +20,27 @@ pub struct CheckArgs {
     /// Treat warnings as errors for the exit status.
     #[arg(long, value_enum)]
     deny: Vec<Deny>,
+    /// Warn when a signal keeps less headroom than this, in % of the
+    /// limit's span.
+    #[arg(long, default_value_t = 5.0, value_parser = parse_margin)]
+    margin: f64,
+    /// Run Monte Carlo for every chain, not only where a requirement asks.
+    #[arg(long)]
+    monte_carlo: bool,
+}
+
+fn parse_margin(text: &str) -> Result<f64, String> {
+    let value: f64 = text
+        .trim()
+        .trim_end_matches('%')
+        .trim()
+        .parse()
+        .map_err(|_| format!("`{text}` is not a percentage"))?;
+    if (0.0..50.0).contains(&value) {
+        Ok(value)
+    } else {
+        Err("the margin is a percentage from 0 to 50".into())
+    }
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -48,7 +70,12 @@ pub fn run(args: CheckArgs) -> u8 {
             .parent()
             .filter(|p| !p.as_os_str().is_empty())
             .unwrap_or(Path::new("."));
-        let checked = check_bytes(&path.to_string_lossy(), &bytes, base, &mut parts);
+        let options = CheckOptions {
+            monte_carlo: args.monte_carlo,
+            // Zero would mean the default; a tiny positive value means none.
+            margin: (args.margin / 100.0).max(1e-12),
+        };
+        let checked = check_bytes_with(&path.to_string_lossy(), &bytes, base, &mut parts, &options);
         all.extend(checked.findings.sorted());
     }
     let errors = all

@@ -106,6 +106,8 @@ codes! {
     E502 => Error, "no firmware conversion";
     E503 => Error, "no finite value";
 
+    R601 => Error, "signal beyond a limit";
+    R602 => Warning, "little headroom to a limit";
     R611 => Error, "accuracy requirement not met";
     R612 => Error, "resolution requirement not met";
     R613 => Error, "response requirement not met";

@@ -12,10 +12,10 @@ mod lower;
 mod plan;
 mod run;
 
-pub use convert::Conversion;
+pub use convert::{Calibration, Conversion};
 pub use lower::lower;
 pub use plan::{
-    ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId,
-    SourceKind,
+    BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal,
+    Slot, SlotId, SourceKind,
 };
 pub use run::Outcome;

@@ -16,20 +16,31 @@ use crate::units::ZERO_CELSIUS_K;
 pub(super) struct Mode {
     convert: bool,
     quantized: bool,
+    /// Amplifiers clip at their swing and rail outside their common-mode
+    /// range; off, they amplify linearly, to see how far a signal would go.
+    clip: bool,
 }
 
 impl Mode {
     const FULL: Mode = Mode {
         convert: true,
         quantized: true,
+        clip: true,
     };
     const CODES: Mode = Mode {
         convert: false,
         quantized: true,
+        clip: true,
+    };
+    const RAW: Mode = Mode {
+        convert: false,
+        quantized: true,
+        clip: false,
     };
     const UNQUANTIZED: Mode = Mode {
         convert: true,
         quantized: false,
+        clip: true,
     };
 }
 
@@ -420,14 +431,14 @@ impl Plan {
                 let (lo, hi) = output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
                 // Outside its common-mode range an amplifier no longer
                 // amplifies: its output goes to a rail.
-                if let Some((cm_lo, cm_hi)) = input_range {
+                if let (true, Some((cm_lo, cm_hi))) = (mode.clip, input_range) {
                     if cm < *cm_lo {
                         out = if lo.is_finite() { lo } else { 0.0 };
                     } else if cm > *cm_hi {
                         out = if hi.is_finite() { hi } else { 0.0 };
                     }
                 }
-                let out = out.clamp(lo, hi);
+                let out = if mode.clip { out.clamp(lo, hi) } else { out };
                 Signal::Voltage {
                     v: out,
                     cm: out / 2.0,
@@ -592,6 +603,16 @@ fn finite(s: Signal) -> bool {
 }
 
 impl Plan {
+    /// Every node but the conversions, with amplifiers unclipped: how far
+    /// each signal would go, for the range checks.
+    pub fn evaluate_raw(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, self.nodes.len(), Mode::RAW)?;
+        Ok(Outcome {
+            signals: signals[..self.nodes.len()].to_vec(),
+        })
+    }
+
     /// The reading the firmware would compute from the converter's exact
     /// (unrounded) code: the chain without quantization.
     pub fn unquantized_reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {

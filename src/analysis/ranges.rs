@@ -1,0 +1,491 @@
+//! Range envelopes: how far every limited signal goes over the measurand
+//! range × the ambient range × every tolerance at its limits (one at a
+//! time, summed as a worst case), against the limit it must stay inside:
+//! amplifier common-mode input range and output swing, the converter's
+//! input range, a current source's compliance, a voltage source's current
+//! limit and a sensor's maximum current. Each check says what would fix it,
+//! computed: the largest gain, the smallest reference, the largest
+//! excitation that fits with the margin.
+
+use super::budget::{ambients, measurand_points};
+use crate::eval::{BridgeKind, Env, EvalError, Node, NodeId, Plan, Signal, SourceKind};
+use crate::model::Chain;
+use crate::physics::adc::Polarity;
+
+/// Headroom below this fraction of a limit's span is a warning.
+pub const DEFAULT_MARGIN: f64 = 0.05;
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Limit {
+    AmplifierInput,
+    AmplifierOutput,
+    ConverterInput,
+    Compliance,
+    CurrentLimit,
+    MaxCurrent,
+}
+
+impl Limit {
+    pub fn describe(self) -> &'static str {
+        match self {
+            Limit::AmplifierInput => "input common mode",
+            Limit::AmplifierOutput => "output",
+            Limit::ConverterInput => "input",
+            Limit::Compliance => "voltage across its load",
+            Limit::CurrentLimit => "load current",
+            Limit::MaxCurrent => "current",
+        }
+    }
+
+    /// The parameter that states the limit, and the one that drives it.
+    pub fn params(self) -> (&'static str, &'static str) {
+        match self {
+            Limit::AmplifierInput => ("input", "gain"),
+            Limit::AmplifierOutput => ("output", "gain"),
+            Limit::ConverterInput => ("vref", "vref"),
+            Limit::Compliance => ("compliance", "current"),
+            Limit::CurrentLimit => ("limit", "voltage"),
+            Limit::MaxCurrent => ("max_current", "max_current"),
+        }
+    }
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Envelope {
+    pub node: NodeId,
+    pub limit: Limit,
+    /// The allowed interval (SI; a fraction of full scale for a converter).
+    pub allowed: (f64, f64),
+    /// The signal's reach over ranges and tolerances.
+    pub reach: (f64, f64),
+    /// Measurand and ambient where it reaches furthest out.
+    pub worst_at: (f64, f64),
+    pub unit: &'static str,
+}
+
+impl Envelope {
+    /// How far inside the limit the signal stays, as a fraction of the
+    /// limit's span (negative: outside).
+    pub fn headroom(&self) -> f64 {
+        let (lo, hi) = self.allowed;
+        let span = if lo.is_finite() && hi.is_finite() {
+            hi - lo
+        } else if hi.is_finite() {
+            hi.abs()
+        } else {
+            lo.abs()
+        };
+        let below = if lo.is_finite() {
+            self.reach.0 - lo
+        } else {
+            f64::INFINITY
+        };
+        let above = if hi.is_finite() {
+            hi - self.reach.1
+        } else {
+            f64::INFINITY
+        };
+        below.min(above) / span.max(f64::MIN_POSITIVE)
+    }
+
+    /// Whether the upper end is the one at risk.
+    pub fn high_side(&self) -> bool {
+        let (lo, hi) = self.allowed;
+        let below = if lo.is_finite() {
+            self.reach.0 - lo
+        } else {
+            f64::INFINITY
+        };
+        let above = if hi.is_finite() {
+            hi - self.reach.1
+        } else {
+            f64::INFINITY
+        };
+        above <= below
+    }
+}
+
+/// One limited quantity of a plan.
+#[derive(Clone, Copy, Debug)]
+struct Check {
+    node: NodeId,
+    limit: Limit,
+    allowed: (f64, f64),
+    unit: &'static str,
+}
+
+fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
+    let mut out = Vec::new();
+    let range = |node: NodeId, name: &str| {
+        let stage = chain.stages.iter().find(|s| s.name == plan.names[node])?;
+        match stage.param(name) {
+            Some(crate::model::value::ParamValue::Range { low, high }) => Some((*low, *high)),
+            Some(crate::model::value::ParamValue::Measure(m)) => {
+                Some((f64::NEG_INFINITY, m.nominal))
+            }
+            _ => None,
+        }
+    };
+    for (i, node) in plan.nodes.iter().enumerate() {
+        match node {
+            Node::Amplifier { .. } => {
+                if let Some(r) = range(i, "input") {
+                    out.push(Check {
+                        node: i,
+                        limit: Limit::AmplifierInput,
+                        allowed: r,
+                        unit: "V",
+                    });
+                }
+                if let Some(r) = range(i, "output") {
+                    out.push(Check {
+                        node: i,
+                        limit: Limit::AmplifierOutput,
+                        allowed: r,
+                        unit: "V",
+                    });
+                }
+            }
+            Node::Adc { polarity, .. } => {
+                let allowed = match polarity {
+                    Polarity::Unipolar => (0.0, 1.0),
+                    Polarity::Bipolar => (-1.0, 1.0),
+                };
+                out.push(Check {
+                    node: i,
+                    limit: Limit::ConverterInput,
+                    allowed,
+                    unit: "of full scale",
+                });
+            }
+            Node::Excitation { current: true, .. } => {
+                if let Some(r) = range(i, "compliance") {
+                    out.push(Check {
+                        node: i,
+                        limit: Limit::Compliance,
+                        allowed: r,
+                        unit: "V",
+                    });
+                }
+            }
+            Node::Excitation { current: false, .. } => {
+                if let Some(r) = range(i, "limit") {
+                    out.push(Check {
+                        node: i,
+                        limit: Limit::CurrentLimit,
+                        allowed: r,
+                        unit: "A",
+                    });
+                }
+            }
+            Node::Rtd { input: Some(_), .. } | Node::Thermistor { input: Some(_), .. } => {
+                if let Some(r) = range(i, "max_current") {
+                    out.push(Check {
+                        node: i,
+                        limit: Limit::MaxCurrent,
+                        allowed: (f64::NEG_INFINITY, r.1),
+                        unit: "A",
+                    });
+                }
+            }
+            _ => {}
+        }
+    }
+    out
+}
+
+/// The value a check watches, in one raw evaluation.
+fn value(plan: &Plan, values: &[f64], s: &[Signal], check: &Check) -> f64 {
+    let voltage = |n: NodeId| match s[n] {
+        Signal::Voltage { v, .. } => v,
+        Signal::Source(v) => v,
+        _ => 0.0,
+    };
+    match (&plan.nodes[check.node], check.limit) {
+        (Node::Amplifier { input, .. }, Limit::AmplifierInput) => match s[*input] {
+            Signal::Voltage { cm, .. } => cm,
+            _ => 0.0,
+        },
+        (Node::Amplifier { .. }, _) => voltage(check.node),
+        (Node::Adc { bits, polarity, .. }, _) => {
+            let per_ref = match polarity {
+                Polarity::Unipolar => 2f64.powi(*bits as i32),
+                Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
+            };
+            match s[check.node] {
+                Signal::Code { exact, .. } => exact / per_ref,
+                _ => 0.0,
+            }
+        }
+        (Node::Excitation { .. }, Limit::Compliance) => {
+            // The string's voltage, plus the current-carrying leads of
+            // 3- and 4-wire elements, which the measurement does not see.
+            let current = match s[check.node] {
+                Signal::Current(a) => a,
+                _ => 0.0,
+            };
+            plan.nodes
+                .iter()
+                .enumerate()
+                .filter_map(|(n, node)| {
+                    let driven = match node {
+                        Node::Rtd { input, .. }
+                        | Node::Thermistor { input, .. }
+                        | Node::StrainGauge { input, .. }
+                        | Node::Resistor { input, .. } => *input == Some(check.node),
+                        _ => false,
+                    };
+                    driven.then(|| {
+                        let leads = match node {
+                            Node::Rtd {
+                                lead: Some(l),
+                                lead_factor,
+                                ..
+                            } if *lead_factor == 0.0 => 2.0 * values[*l] * current,
+                            _ => 0.0,
+                        };
+                        voltage(n) + leads
+                    })
+                })
+                .sum()
+        }
+        (Node::Excitation { .. }, _) => {
+            let v = voltage(check.node);
+            plan.nodes
+                .iter()
+                .map(|node| match node {
+                    Node::Bridge {
+                        exc, kind, r, arms, ..
+                    } if *exc == check.node => {
+                        let fixed = r.map(|r| values[r]).unwrap_or(0.0);
+                        let arm = |k: usize| match arms.get(k).map(|&a| s[a]) {
+                            Some(Signal::Element(r)) => r,
+                            _ => fixed,
+                        };
+                        let parallel =
+                            |a: f64, b: f64| if a + b > 0.0 { a * b / (a + b) } else { 0.0 };
+                        // Arm positions as in the evaluator: r1 r2 | r3 r4.
+                        let load = match kind {
+                            BridgeKind::Divider { .. } => arm(0) + fixed,
+                            BridgeKind::Quarter => parallel(fixed + arm(0), 2.0 * fixed),
+                            BridgeKind::Half => parallel(fixed + arm(0), arm(1) + fixed),
+                            BridgeKind::Full => parallel(arm(2) + arm(0), arm(1) + arm(3)),
+                        };
+                        if load > 0.0 {
+                            v / load
+                        } else {
+                            0.0
+                        }
+                    }
+                    Node::Transducer {
+                        input: Some(i),
+                        r: Some(r),
+                        ..
+                    } if *i == check.node => v / values[*r],
+                    _ => 0.0,
+                })
+                .sum()
+        }
+        (Node::Rtd { input: Some(i), .. } | Node::Thermistor { input: Some(i), .. }, _) => {
+            match s[*i] {
+                Signal::Current(a) => a,
+                _ => 0.0,
+            }
+        }
+        _ => 0.0,
+    }
+}
+
+/// The reach of every limited signal.
+pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelope>, EvalError> {
+    let checks = checks(chain, plan);
+    if checks.is_empty() {
+        return Ok(Vec::new());
+    }
+    let mut reach: Vec<(f64, f64, (f64, f64), f64)> =
+        vec![(f64::INFINITY, f64::NEG_INFINITY, (0.0, 0.0), f64::INFINITY); checks.len()];
+    let mut values = plan.nominal.clone();
+    let sources: Vec<usize> = (0..plan.slots.len())
+        .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
+        .collect();
+    for &ambient in &ambients(chain) {
+        for m in measurand_points(plan, points) {
+            let env = Env {
+                measurand: m,
+                ambient,
+                cold_junction: ambient,
+            };
+            let nominal = plan.evaluate_raw(&plan.nominal, &env)?.signals;
+            let q0: Vec<f64> = checks
+                .iter()
+                .map(|c| value(plan, &plan.nominal, &nominal, c))
+                .collect();
+            let mut up = vec![0.0; checks.len()];
+            let mut down = vec![0.0; checks.len()];
+            for &s in &sources {
+                let slot = &plan.slots[s];
+                let mut per_check = vec![(0.0f64, 0.0f64); checks.len()];
+                for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
+                    values[s] = x;
+                    let signals = plan.evaluate_raw(&values, &env)?.signals;
+                    for (k, c) in checks.iter().enumerate() {
+                        let d = value(plan, &values, &signals, c) - q0[k];
+                        per_check[k].0 = per_check[k].0.min(d);
+                        per_check[k].1 = per_check[k].1.max(d);
+                    }
+                }
+                values[s] = plan.nominal[s];
+                for k in 0..checks.len() {
+                    down[k] += per_check[k].0;
+                    up[k] += per_check[k].1;
+                }
+            }
+            for (k, c) in checks.iter().enumerate() {
+                let (lo, hi) = (q0[k] + down[k], q0[k] + up[k]);
+                let r = &mut reach[k];
+                let outside = (c.allowed.0 - lo).max(hi - c.allowed.1);
+                let margin = -outside;
+                if margin < r.3 {
+                    r.2 = (m, ambient);
+                    r.3 = margin;
+                }
+                r.0 = r.0.min(lo);
+                r.1 = r.1.max(hi);
+            }
+        }
+    }
+    Ok(checks
+        .iter()
+        .zip(reach)
+        .map(|(c, (lo, hi, at, _))| Envelope {
+            node: c.node,
+            limit: c.limit,
+            allowed: c.allowed,
+            reach: (lo, hi),
+            worst_at: at,
+            unit: c.unit,
+        })
+        .collect())
+}
+
+/// The findings of the envelopes: an error where a signal leaves its limit,
+/// a warning where it keeps less than `margin` of the limit's span, each
+/// with the number that fixes it.
+pub fn findings(
+    chain: &Chain,
+    plan: &Plan,
+    envelopes: &[Envelope],
+    margin: f64,
+) -> crate::diagnostics::Findings {
+    use crate::diagnostics::{Code, Finding};
+    use crate::units::format::{from_si, trimmed, with_prefix};
+    let mut out = crate::diagnostics::Findings::new();
+    let unit = chain
+        .measurand
+        .as_ref()
+        .map(|m| m.unit.clone())
+        .unwrap_or_default();
+    for e in envelopes {
+        let headroom = e.headroom();
+        if headroom >= margin {
+            continue;
+        }
+        let Some(stage) = chain.stages.iter().find(|s| s.name == plan.names[e.node]) else {
+            continue;
+        };
+        let show = |x: f64| {
+            if e.unit == "of full scale" {
+                format!("{} % of full scale", trimmed(x * 100.0, 4))
+            } else {
+                with_prefix(x, e.unit, 4)
+            }
+        };
+        let high = e.high_side();
+        let (value, bound) = if high {
+            (e.reach.1, e.allowed.1)
+        } else {
+            (e.reach.0, e.allowed.0)
+        };
+        let slot = |name: &str| {
+            plan.slots
+                .iter()
+                .position(|s| s.id == format!("{}.{name}", stage.name))
+                .map(|i| plan.nominal[i])
+        };
+        let span = if e.allowed.0.is_finite() && e.allowed.1.is_finite() {
+            e.allowed.1 - e.allowed.0
+        } else {
+            bound.abs()
+        };
+        let target = if high {
+            bound - margin * span
+        } else {
+            bound + margin * span
+        };
+        let fix = match e.limit {
+            Limit::AmplifierOutput if value != 0.0 && target / value > 0.0 => slot("gain").map(|g| {
+                let fits = g * target / value;
+                let word = if fits < g { "at most" } else { "at least" };
+                format!("a gain of {word} {} keeps {} % headroom", trimmed(fits, 4), trimmed(margin * 100.0, 3))
+            }),
+            Limit::AmplifierOutput => Some(format!("the output must reach {}: shift the signal into the swing (a reference or bias) or choose an amplifier that swings there", show(value))),
+            Limit::AmplifierInput => Some(format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show(value))),
+            Limit::ConverterInput if high => match slot("vref") {
+                Some(vref) => Some(format!("a reference of at least {} keeps {} % headroom", with_prefix(vref * value / target, "V", 4), trimmed(margin * 100.0, 3))),
+                None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
+            },
+            Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or offset the signal".to_string()),
+            Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {} % headroom is {}", trimmed(margin * 100.0, 3), with_prefix(i * target / value, "A", 4))),
+            Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {} % headroom", with_prefix(value / (1.0 - margin), "A", 4), trimmed(margin * 100.0, 3))),
+            Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
+        };
+        let at = format!(
+            "at {} {unit}, ambient {} degC",
+            trimmed(from_si(e.worst_at.0, &unit), 6),
+            trimmed(from_si(e.worst_at.1, "degC"), 4)
+        );
+        let (limit_param, drive_param) = e.limit.params();
+        let limit_text = if e.unit == "of full scale" {
+            "the end of its range".to_string()
+        } else {
+            format!("its limit of {}", show(bound))
+        };
+        let (code, message) = if headroom < 0.0 {
+            (
+                Code::R601,
+                format!(
+                    "the {} of `{}` reaches {} {at}, beyond {limit_text}",
+                    e.limit.describe(),
+                    stage.name,
+                    show(value)
+                ),
+            )
+        } else {
+            (
+                Code::R602,
+                format!(
+                    "the {} of `{}` reaches {} {at}, within {} % of {limit_text}",
+                    e.limit.describe(),
+                    stage.name,
+                    show(value),
+                    trimmed(headroom * 100.0, 3)
+                ),
+            )
+        };
+        let mut f = Finding::new(code, &chain.file, message).label(stage.name_span, "this stage");
+        for (name, text) in [(limit_param, "the limit"), (drive_param, "drives it")] {
+            if let Some(p) = stage.params.iter().find(|p| p.name == name) {
+                if std::sync::Arc::ptr_eq(&p.file, &chain.file)
+                    && !f.labels.iter().any(|l| l.span == p.span)
+                {
+                    f = f.label(p.span, text);
+                }
+            }
+        }
+        if let Some(fix) = fix {
+            f = f.help(fix);
+        }
+        out.push(f);
+    }
+    out
+}
