@@ -102,7 +102,7 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
             Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),
         }
     }
-    if findings.is_empty() && !chain.requirements.is_empty() {
+    if !findings.has_errors() && !chain.requirements.is_empty() {
         let wants_mc = options.monte_carlo || requirements::accuracy_method(chain) == "monte_carlo";
         let options = report::Options {
             trials: wants_mc.then_some(report::DEFAULT_TRIALS),
