@@ -23,6 +23,9 @@ pub struct Options {
     /// Monte Carlo trials per point; None runs no Monte Carlo.
     pub trials: Option<usize>,
     pub seed: u64,
+    /// The parts only a report shows: limits, the error along the signal
+    /// path, the budget without calibration. `check` needs none of them.
+    pub detail: bool,
 }
 
 impl Default for Options {
@@ -31,6 +34,7 @@ impl Default for Options {
             budget: budget::Options::default(),
             trials: None,
             seed: DEFAULT_SEED,
+            detail: true,
         }
     }
 }
@@ -82,6 +86,26 @@ pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis
         _ => None,
     };
     let dynamics = dynamics(chain, plan);
+    if !options.detail {
+        let achieved = Achieved {
+            response_s: dynamics.response_90,
+        };
+        let verdicts = verdicts(chain, &budget, monte_carlo.as_deref(), &achieved, &|f| {
+            Some(dynamics.attenuation(f))
+        });
+        return Ok(Analysis {
+            budget,
+            monte_carlo,
+            trials: options.trials.unwrap_or(0).min(MAX_TRIALS),
+            seed: options.seed,
+            dynamics,
+            verdicts,
+            envelopes: Vec::new(),
+            accumulation: Vec::new(),
+            uncalibrated: None,
+            names: plan.names.clone(),
+        });
+    }
     let envelopes = envelopes(chain, plan, options.budget.points)?;
     let worst = budget
         .points

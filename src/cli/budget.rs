@@ -115,6 +115,7 @@ pub fn run(args: BudgetArgs) -> u8 {
         },
         trials: (args.trials > 0).then_some(args.trials),
         seed: args.seed,
+        detail: true,
     };
     let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
     let mut outputs = Vec::new();

@@ -1,0 +1,170 @@
+//! Speed of the main paths, on the demo specs. Run with `cargo bench`; the
+//! figures and the machine they were taken on are in the README.
+
+use std::path::Path;
+
+use catena::analysis::budget::{self, Options as BudgetOptions};
+use catena::analysis::monte_carlo::interval;
+use catena::analysis::report::{analyse, Options};
+use catena::check::check_bytes;
+use catena::eval::{lower, Env};
+use catena::model::PartsCache;
+
+fn main() {
+    divan::main();
+}
+
+fn spec(name: &str) -> Vec<u8> {
+    std::fs::read(
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("specs")
+            .join(name),
+    )
+    .expect("demo spec")
+}
+
+fn specs_dir() -> std::path::PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("specs")
+}
+
+/// `check` of one demo spec, in process: parse, resolve, evaluate the
+/// corners, range envelopes, GUM budget and verdicts.
+#[divan::bench(args = ["cold_store.catena", "bakery_oven.catena", "weighing_hopper.catena"])]
+fn check_one_spec(bencher: divan::Bencher, name: &str) {
+    let bytes = spec(name);
+    bencher.bench(|| {
+        check_bytes(name, &bytes, &specs_dir(), &mut PartsCache::default())
+            .findings
+            .len()
+    });
+}
+
+/// `check` of a tree of 1,000 specs: the five demos, each 200 times.
+#[divan::bench(sample_count = 5)]
+fn check_thousand_specs(bencher: divan::Bencher) {
+    let names = [
+        "cold_store.catena",
+        "bakery_oven.catena",
+        "battery_pack.catena",
+        "greenhouse_soil.catena",
+        "weighing_hopper.catena",
+    ];
+    let texts: Vec<(String, Vec<u8>)> = names.iter().map(|n| (n.to_string(), spec(n))).collect();
+    bencher.bench(|| {
+        let mut parts = PartsCache::default();
+        let mut findings = 0;
+        for k in 0..1000 {
+            let (name, bytes) = &texts[k % texts.len()];
+            findings += check_bytes(name, bytes, &specs_dir(), &mut parts)
+                .findings
+                .len();
+        }
+        findings
+    });
+}
+
+/// 10^5 Monte Carlo trials at one point of the largest demo chain (the
+/// oven zone: a thermocouple, its cold-junction channel and two converters).
+#[divan::bench(sample_count = 5)]
+fn monte_carlo_1e5_largest_chain(bencher: divan::Bencher) {
+    let checked = check_bytes(
+        "bakery_oven.catena",
+        &spec("bakery_oven.catena"),
+        &specs_dir(),
+        &mut PartsCache::default(),
+    );
+    let chain = checked
+        .chains
+        .iter()
+        .find(|c| c.name == "oven_zone")
+        .expect("the oven zone");
+    let plan = lower(chain).expect("lowers");
+    let b = budget::budget(
+        chain,
+        &plan,
+        &BudgetOptions {
+            points: 3,
+            ..BudgetOptions::default()
+        },
+    )
+    .expect("budget");
+    let p = &b.points[1];
+    let env = Env {
+        measurand: p.measurand,
+        ambient: p.ambient,
+        cold_junction: p.ambient,
+    };
+    bencher.bench(|| {
+        interval(
+            &plan,
+            &env,
+            &b.noise,
+            1.0 / p.codes_per_unit.abs(),
+            100_000,
+            1,
+            0,
+        )
+        .expect("runs")
+    });
+}
+
+/// 10^6 trials at each of 21 points of the cold store.
+#[divan::bench(sample_count = 1, sample_size = 1)]
+fn monte_carlo_1e6_x_21(bencher: divan::Bencher) {
+    let checked = check_bytes(
+        "cold_store.catena",
+        &spec("cold_store.catena"),
+        &specs_dir(),
+        &mut PartsCache::default(),
+    );
+    let chain = &checked.chains[0];
+    let plan = lower(chain).expect("lowers");
+    let b = budget::budget(chain, &plan, &BudgetOptions::default()).expect("budget");
+    bencher.bench(|| {
+        b.points
+            .iter()
+            .take(21)
+            .enumerate()
+            .map(|(i, p)| {
+                let env = Env {
+                    measurand: p.measurand,
+                    ambient: p.ambient,
+                    cold_junction: p.ambient,
+                };
+                interval(
+                    &plan,
+                    &env,
+                    &b.noise,
+                    1.0 / p.codes_per_unit.abs(),
+                    1_000_000,
+                    1,
+                    i as u64,
+                )
+                .expect("runs")
+                .high
+            })
+            .sum::<f64>()
+    });
+}
+
+/// `budget` of every demo spec at the default settings (21 points at each
+/// ambient, 10^5 trials per point).
+#[divan::bench(sample_count = 1, sample_size = 1, args = ["cold_store.catena", "bakery_oven.catena", "battery_pack.catena", "greenhouse_soil.catena", "weighing_hopper.catena"])]
+fn budget_default(bencher: divan::Bencher, name: &str) {
+    let checked = check_bytes(name, &spec(name), &specs_dir(), &mut PartsCache::default());
+    let plans: Vec<_> = checked
+        .chains
+        .iter()
+        .map(|c| (c, lower(c).expect("lowers")))
+        .collect();
+    let options = Options {
+        trials: Some(100_000),
+        ..Options::default()
+    };
+    bencher.bench(|| {
+        plans
+            .iter()
+            .map(|(c, p)| analyse(c, p, &options).expect("analyses").verdicts.len())
+            .sum::<usize>()
+    });
+}
