@@ -60,7 +60,8 @@ pub fn check_bytes_with(
         .filter(|f| f.severity() == Severity::Error)
         .map(|f| file.line_column(f.primary_offset()).0)
         .collect();
-    let (chains, more) = model::resolve(&file, &ast, base, parts);
+    let root = (!options.allow_outside_paths).then(|| model::confinement_root(base));
+    let (chains, more) = model::resolve(&file, &ast, base, root.as_deref(), parts);
     for f in more {
         // A line the parser swallowed is missing from the graph, so graph
         // findings would be echoes of the syntax error; the other checks

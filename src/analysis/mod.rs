@@ -55,6 +55,8 @@ pub struct CheckOptions {
     /// Headroom warnings below this fraction of a limit's span (default
     /// [`ranges::DEFAULT_MARGIN`] when zero).
     pub margin: f64,
+    /// Let `use` reach parts files outside the spec's repository.
+    pub allow_outside_paths: bool,
 }
 
 /// Lowers a chain, evaluates its nominal corners (measurand ends at the

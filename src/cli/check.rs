@@ -27,6 +27,9 @@ pub struct CheckArgs {
     /// Run Monte Carlo for every chain, not only where a requirement asks.
     #[arg(long)]
     monte_carlo: bool,
+    /// Let `use` read parts files outside the spec's repository.
+    #[arg(long)]
+    allow_outside_paths: bool,
 }
 
 fn parse_margin(text: &str) -> Result<f64, String> {
@@ -74,6 +77,7 @@ pub fn run(args: CheckArgs) -> u8 {
             monte_carlo: args.monte_carlo,
             // Zero would mean the default; a tiny positive value means none.
             margin: (args.margin / 100.0).max(1e-12),
+            allow_outside_paths: args.allow_outside_paths,
         };
         let checked = check_bytes_with(&path.to_string_lossy(), &bytes, base, &mut parts, &options);
         all.extend(checked.findings.sorted());

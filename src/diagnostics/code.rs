@@ -101,6 +101,7 @@ codes! {
     L404 => Error, "part of another kind";
     L405 => Error, "part value not a scalar";
     L406 => Error, "part used without a parts file";
+    L407 => Error, "parts file outside the repository";
 
     E501 => Error, "sensor outside its valid range";
     E502 => Error, "no firmware conversion";

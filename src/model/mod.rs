@@ -26,10 +26,14 @@ use crate::syntax::Ast;
 
 /// Resolves every chain of a parsed file. `base` is the spec's folder,
 /// against which `use` paths resolve.
+///
+/// `root`, when given, confines `use` paths: a parts file must lie inside
+/// it (the spec's repository, or its folder outside one).
 pub fn resolve(
     file: &Arc<SourceFile>,
     ast: &Ast,
     base: &Path,
+    root: Option<&Path>,
     parts: &mut PartsCache,
 ) -> (Vec<Chain>, Findings) {
     let mut findings = Findings::new();
@@ -39,6 +43,20 @@ pub fn resolve(
     let mut library_broken = false;
     for u in &ast.uses {
         let path = base.join(&u.path.value);
+        if let Some(root) = root {
+            if !confined(&path, root) {
+                findings.push(
+                    Finding::new(Code::L407, file, format!("`{}` is outside the spec's repository", u.path.value))
+                        .label(u.path.span, "outside")
+                        .help(format!(
+                            "keep parts files inside `{}`, or run with `--allow-outside-paths` if this file is meant",
+                            root.display()
+                        )),
+                );
+                library_broken = true;
+                continue;
+            }
+        }
         let shown = shown_path(file.name(), &u.path.value);
         let loaded = parts.load(&path, &shown);
         if !loaded
@@ -168,6 +186,48 @@ pub fn resolve(
         });
     }
     (chains, findings)
+}
+
+/// Whether `path` (resolved through symbolic links where it exists) lies
+/// inside `root`.
+fn confined(path: &Path, root: &Path) -> bool {
+    let root = std::fs::canonicalize(root).unwrap_or_else(|_| root.to_path_buf());
+    let resolved = match std::fs::canonicalize(path) {
+        Ok(p) => p,
+        // A missing file is reported as unreadable; judge its lexical path.
+        Err(_) => lexical(path),
+    };
+    resolved.starts_with(&root)
+}
+
+fn lexical(path: &Path) -> std::path::PathBuf {
+    let absolute = if path.is_absolute() {
+        path.to_path_buf()
+    } else {
+        std::env::current_dir().unwrap_or_default().join(path)
+    };
+    let mut out = std::path::PathBuf::new();
+    for part in absolute.components() {
+        match part {
+            std::path::Component::ParentDir => {
+                out.pop();
+            }
+            std::path::Component::CurDir => {}
+            other => out.push(other),
+        }
+    }
+    out
+}
+
+/// The folder `use` paths are confined to: the nearest enclosing git
+/// repository of the spec's folder, or that folder outside one.
+pub fn confinement_root(base: &Path) -> std::path::PathBuf {
+    let start = std::fs::canonicalize(base).unwrap_or_else(|_| lexical(base));
+    start
+        .ancestors()
+        .find(|a| a.join(".git").exists())
+        .map(Path::to_path_buf)
+        .unwrap_or(start)
 }
 
 pub(crate) fn article(word: &str) -> &'static str {

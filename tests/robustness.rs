@@ -1,0 +1,95 @@
+//! Hostile inputs and outputs: parts files that expand without bound,
+//! paths that leave the repository, writes through symbolic links.
+
+mod common;
+
+use std::path::PathBuf;
+
+use common::catena;
+
+fn temp_dir(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("catena-robust-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+const SPEC_USING_PARTS: &str = "use \"parts.yaml\"\nchain a {\n    measurand temperature 0 degC .. 50 degC\n    sensor ic : probe { }\n    adc conv {\n        bits 12\n        input single\n        vref 2.5 V\n    }\n    convert reading { method exact }\n    ic -> conv -> reading\n}\n";
+
+/// A YAML "billion laughs": nine levels of aliases, each nine times the
+/// last. The parser's alias-expansion limit refuses it as a malformed
+/// parts file, quickly and in bounded memory.
+#[test]
+fn alias_bombs_are_refused() {
+    let dir = temp_dir("bomb");
+    let mut yaml = String::from(
+        "a: &a [\"lol\",\"lol\",\"lol\",\"lol\",\"lol\",\"lol\",\"lol\",\"lol\",\"lol\"]\n",
+    );
+    for (prev, next) in ["a", "b", "c", "d", "e", "f", "g", "h"]
+        .iter()
+        .zip(["b", "c", "d", "e", "f", "g", "h", "i"])
+    {
+        yaml.push_str(&format!("{next}: &{next} [*{prev},*{prev},*{prev},*{prev},*{prev},*{prev},*{prev},*{prev},*{prev}]\n"));
+    }
+    yaml.push_str("parts:\n  probe:\n    kind: sensor\n    ic_voltage:\n    slope: 10 mV/K\n    output: 0 V at 0 degC\n    bomb: *i\n");
+    std::fs::write(dir.join("parts.yaml"), yaml).unwrap();
+    std::fs::write(dir.join("a.catena"), SPEC_USING_PARTS).unwrap();
+    std::fs::create_dir_all(dir.join(".git")).unwrap();
+    let start = std::time::Instant::now();
+    let run = catena(&dir, &["check", "--format", "json", "a.catena"], None);
+    assert_eq!(run.status, 1, "{}{}", run.stdout, run.stderr);
+    assert!(run.stdout.contains("\"L402\""), "{}", run.stdout);
+    // Not a timed test: a bound far above any normal run, to catch a hang.
+    assert!(start.elapsed().as_secs() < 30);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// Deeply nested YAML is refused by the parser's recursion limit.
+#[test]
+fn deep_yaml_is_refused() {
+    let dir = temp_dir("deep");
+    let yaml = format!("parts: {}1{}\n", "[".repeat(10_000), "]".repeat(10_000));
+    std::fs::write(dir.join("parts.yaml"), yaml).unwrap();
+    std::fs::write(dir.join("a.catena"), SPEC_USING_PARTS).unwrap();
+    std::fs::create_dir_all(dir.join(".git")).unwrap();
+    let run = catena(&dir, &["check", "--format", "json", "a.catena"], None);
+    assert_eq!(run.status, 1);
+    assert!(run.stdout.contains("\"L402\""), "{}", run.stdout);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// `use` stays inside the spec's repository unless told otherwise.
+#[test]
+fn use_paths_are_confined() {
+    let dir = temp_dir("confined");
+    let repo = dir.join("repo");
+    std::fs::create_dir_all(repo.join(".git")).unwrap();
+    std::fs::write(dir.join("parts.yaml"), "parts:\n  probe:\n    kind: sensor\n    ic_voltage:\n    slope: 10 mV/K\n    output: 0.5 V at 0 degC\n").unwrap();
+    std::fs::write(
+        repo.join("a.catena"),
+        SPEC_USING_PARTS.replace("\"parts.yaml\"", "\"../parts.yaml\""),
+    )
+    .unwrap();
+    let run = catena(&repo, &["check", "--format", "json", "a.catena"], None);
+    assert_eq!(run.status, 1);
+    assert!(run.stdout.contains("\"L407\""), "{}", run.stdout);
+    let run = catena(&repo, &["check", "--allow-outside-paths", "a.catena"], None);
+    assert!(!run.stderr.contains("L407"), "{}", run.stderr);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// `fmt` never writes through a symbolic link, and leaves its target alone.
+#[cfg(unix)]
+#[test]
+fn fmt_refuses_symbolic_links() {
+    let dir = temp_dir("link");
+    let target = dir.join("real.catena");
+    let messy = "chain a {\nmeasurand temperature 0 degC .. 10 degC\n}\n";
+    std::fs::write(&target, messy).unwrap();
+    std::os::unix::fs::symlink(&target, dir.join("link.catena")).unwrap();
+    let run = catena(&dir, &["fmt", "link.catena"], None);
+    assert_eq!(run.status, 2, "{}", run.stderr);
+    assert!(run.stderr.contains("symbolic link"), "{}", run.stderr);
+    assert_eq!(std::fs::read_to_string(&target).unwrap(), messy);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
