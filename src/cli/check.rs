@@ -8,6 +8,7 @@ use crate::analysis::CheckOptions;
 use crate::check::check_bytes_with;
 use crate::diagnostics::{render_human, render_json, Finding, Severity};
 use crate::model::PartsCache;
+use rayon::prelude::*;
 
 #[derive(Args, Debug)]
 pub struct CheckArgs {
@@ -59,29 +60,36 @@ pub fn run(args: CheckArgs) -> u8 {
             return EXIT_USAGE;
         }
     };
-    let mut parts = PartsCache::default();
-    let mut all: Vec<Finding> = Vec::new();
+    let mut inputs = Vec::with_capacity(files.len());
     for path in &files {
-        let bytes = match std::fs::read(path) {
-            Ok(b) => b,
+        match std::fs::read(path) {
+            Ok(b) => inputs.push((path, b)),
             Err(e) => {
                 eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
                 return EXIT_USAGE;
             }
-        };
-        let base = path
-            .parent()
-            .filter(|p| !p.as_os_str().is_empty())
-            .unwrap_or(Path::new("."));
-        let options = CheckOptions {
-            monte_carlo: args.monte_carlo,
-            // Zero would mean the default; a tiny positive value means none.
-            margin: (args.margin / 100.0).max(1e-12),
-            allow_outside_paths: args.allow_outside_paths,
-        };
-        let checked = check_bytes_with(&path.to_string_lossy(), &bytes, base, &mut parts, &options);
-        all.extend(checked.findings.sorted());
+        }
     }
+    let options = CheckOptions {
+        monte_carlo: args.monte_carlo,
+        // Zero would mean the default; a tiny positive value means none.
+        margin: (args.margin / 100.0).max(1e-12),
+        allow_outside_paths: args.allow_outside_paths,
+    };
+    // Files are independent: check them on every core, gather in order.
+    let per_file: Vec<Vec<Finding>> = inputs
+        .par_iter()
+        .map_init(PartsCache::default, |parts, (path, bytes)| {
+            let base = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
+            check_bytes_with(&path.to_string_lossy(), bytes, base, parts, &options).findings.sorted()
+        })
+        .collect();
+    let mut seen = std::collections::HashSet::new();
+    let all: Vec<Finding> = per_file
+        .into_iter()
+        .flatten()
+        .filter(|f| seen.insert((f.file.name().to_string(), f.primary_offset(), f.code, f.message.clone())))
+        .collect();
     let errors = all
         .iter()
         .filter(|f| f.severity() == Severity::Error)

@@ -59,10 +59,9 @@ pub fn resolve(
         }
         let shown = shown_path(file.name(), &u.path.value);
         let loaded = parts.load(&path, &shown);
-        if !loaded
-            .reported
-            .swap(true, std::sync::atomic::Ordering::Relaxed)
         {
+            // Every spec that uses a broken library reports it; the run
+            // keeps one copy of each finding in a parts file.
             for f in loaded.findings.iter() {
                 let mut f = f.clone();
                 if f.labels.is_empty() {

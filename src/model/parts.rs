@@ -43,8 +43,6 @@ pub struct PartsCache {
 pub struct Loaded {
     pub parts: Vec<Part>,
     pub findings: Findings,
-    /// Whether its findings were already reported in this run.
-    pub reported: std::sync::atomic::AtomicBool,
 }
 
 impl PartsCache {
