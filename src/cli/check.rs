@@ -80,15 +80,27 @@ pub fn run(args: CheckArgs) -> u8 {
     let per_file: Vec<Vec<Finding>> = inputs
         .par_iter()
         .map_init(PartsCache::default, |parts, (path, bytes)| {
-            let base = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-            check_bytes_with(&path.to_string_lossy(), bytes, base, parts, &options).findings.sorted()
+            let base = path
+                .parent()
+                .filter(|p| !p.as_os_str().is_empty())
+                .unwrap_or(Path::new("."));
+            check_bytes_with(&path.to_string_lossy(), bytes, base, parts, &options)
+                .findings
+                .sorted()
         })
         .collect();
     let mut seen = std::collections::HashSet::new();
     let all: Vec<Finding> = per_file
         .into_iter()
         .flatten()
-        .filter(|f| seen.insert((f.file.name().to_string(), f.primary_offset(), f.code, f.message.clone())))
+        .filter(|f| {
+            seen.insert((
+                f.file.name().to_string(),
+                f.primary_offset(),
+                f.code,
+                f.message.clone(),
+            ))
+        })
         .collect();
     let errors = all
         .iter()
