@@ -76,7 +76,13 @@ fn monte_carlo_is_reproducible() {
         "--seed",
         "7",
     ];
-    let a = catena(&dir, &args, None).stdout;
+    let first = catena(&dir, &args, None);
+    assert!(
+        first.stderr.is_empty(),
+        "no progress on a pipe: {}",
+        first.stderr
+    );
+    let a = first.stdout;
     let b = catena(&dir, &args, None).stdout;
     assert_eq!(a, b, "same seed, same output");
     let one_thread = std::process::Command::new(env!("CARGO_BIN_EXE_catena"))

@@ -60,6 +60,16 @@ pub struct Analysis {
 }
 
 pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis, EvalError> {
+    analyse_with_progress(chain, plan, options, &|_, _| {})
+}
+
+/// [`analyse`], calling `progress(done, total)` after each Monte Carlo point.
+pub fn analyse_with_progress(
+    chain: &Chain,
+    plan: &Plan,
+    options: &Options,
+    progress: &dyn Fn(usize, usize),
+) -> Result<Analysis, EvalError> {
     let budget = budget::budget(chain, plan, &options.budget)?;
     let monte_carlo = match options.trials {
         Some(trials) if trials > 0 => {
@@ -71,6 +81,7 @@ pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis
                     cold_junction: p.ambient,
                 };
                 let lsb = 1.0 / p.codes_per_unit.abs();
+                progress(i, budget.points.len());
                 out.push(interval(
                     plan,
                     &env,

@@ -13,7 +13,7 @@ use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::eval_finding;
 use crate::analysis::report::{
-    analyse, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
+    analyse_with_progress, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
 use crate::check::check_bytes;
 use crate::diagnostics::{render_human, Findings};
@@ -120,17 +120,26 @@ pub fn run(args: BudgetArgs) -> u8 {
     let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
     let mut outputs = Vec::new();
     for chain in chains {
-        if progress {
-            eprintln!(
-                "catena: {} Monte Carlo trials at {} points of `{}`…",
-                args.trials, args.points, chain.name
-            );
-        }
         let plan = match lower(chain) {
             Ok(p) => p,
             Err(e) => return report_error(chain, &e),
         };
-        match analyse(chain, &plan, &options) {
+        // On a terminal, a line that counts the Monte Carlo points; never
+        // on a pipe, where it would land in someone's log.
+        let show = |done: usize, total: usize| {
+            if progress {
+                eprint!(
+                    "\rcatena: Monte Carlo for `{}`: point {}/{total}",
+                    chain.name,
+                    done + 1
+                );
+            }
+        };
+        let result = analyse_with_progress(chain, &plan, &options, &show);
+        if progress {
+            eprint!("\r\x1b[2K");
+        }
+        match result {
             Ok(a) => outputs.push((chain, a)),
             Err(e) => return report_error(chain, &e),
         }
