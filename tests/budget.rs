@@ -313,3 +313,27 @@ fn over_gained_amplifier_gets_the_largest_gain() {
     assert!(help.contains("a gain of at most 2.09 "), "{help}");
     assert_eq!(v[0]["code"], "R601");
 }
+
+/// A first-order RC settles to half a code of an N-bit converter after a
+/// full-scale step in τ ln 2^(N+1) (closed form): the cold store's 1 kΩ,
+/// 1 µF filter and 24-bit converter give 1 ms × 25 ln 2 = 17.33 ms.
+#[test]
+fn rc_settles_to_half_a_code() {
+    let run = catena(
+        &root(),
+        &[
+            "budget",
+            "specs/cold_store.catena",
+            "--format",
+            "json",
+            "--trials",
+            "0",
+            "--points",
+            "2",
+        ],
+        None,
+    );
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let t = f(&v["dynamics"]["filter_settling_half_lsb_s"]);
+    assert!((t - 1e-3 * 25.0 * 2f64.ln()).abs() < 1e-9, "{t}");
+}

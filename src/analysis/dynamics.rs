@@ -29,6 +29,9 @@ pub struct Dynamics {
     /// filter at the conversion rate (the first band that aliases to DC).
     pub mains: Vec<(f64, f64)>,
     pub at_rate: Option<f64>,
+    /// The filter's settling to half a converter code after a full-scale
+    /// step, s.
+    pub filter_settling_half_lsb: Option<f64>,
 }
 
 impl Dynamics {
@@ -119,9 +122,18 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
         response_90: None,
         mains: Vec::new(),
         at_rate: None,
+        filter_settling_half_lsb: None,
     };
     d.response_90 = step_90(&d);
     d.mains = MAINS_HZ.iter().map(|&f| (f, d.attenuation(f))).collect();
+    let bits = match &plan.nodes[plan.adc] {
+        Node::Adc { bits, .. } => *bits,
+        _ => 16,
+    };
+    d.filter_settling_half_lsb = d
+        .filter
+        .as_ref()
+        .and_then(|lp| lp.settling_time_s(0.5 / 2f64.powi(bits as i32)).ok());
     d.at_rate = rate_hz.map(|r| {
         1.0 / d
             .filter

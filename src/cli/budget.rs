@@ -256,6 +256,7 @@ struct NoiseJson {
 #[derive(Serialize)]
 struct DynamicsJson {
     response_90_s: Option<f64>,
+    filter_settling_half_lsb_s: Option<f64>,
     attenuation_db: BTreeMap<String, f64>,
 }
 
@@ -354,6 +355,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
         },
         dynamics: DynamicsJson {
             response_90_s: a.dynamics.response_90,
+            filter_settling_half_lsb_s: a.dynamics.filter_settling_half_lsb,
             attenuation_db: a
                 .dynamics
                 .mains

@@ -190,11 +190,16 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
         })
         .collect::<Vec<_>>()
         .join(", ");
+    let response = d
+        .response_90
+        .map(|t| format!("{} s", significant(t, 3)))
+        .unwrap_or_else(|| "an unknown time".into());
+    let settle = d
+        .filter_settling_half_lsb
+        .map(|t| format!(" (the filter settles to ½ LSB in {} s)", significant(t, 3)))
+        .unwrap_or_default();
     out.push_str(&format!(
-        "dynamics: 90 % of a step in {}; {mains}\n",
-        d.response_90
-            .map(|t| format!("{} s", significant(t, 3)))
-            .unwrap_or_else(|| "an unknown time".into())
+        "dynamics: 90 % of a step in {response}{settle}; {mains}\n"
     ));
     if !a.verdicts.is_empty() {
         out.push('\n');
