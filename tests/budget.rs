@@ -337,3 +337,22 @@ fn rc_settles_to_half_a_code() {
     let t = f(&v["dynamics"]["filter_settling_half_lsb_s"]);
     assert!((t - 1e-3 * 25.0 * 2f64.ln()).abs() < 1e-9, "{t}");
 }
+
+/// Excitation noise referred through the chain, by hand: σ_I / I = 1e-5 of
+/// a Pt100 at 50 °C, R = 100 (1 + A 50 + B 50²) = 119.397 Ω and
+/// dR/dT = 100 (A + 2 B 50) = 0.385055 Ω/K (IEC 60751 A, B), gives
+/// 1e-5 × 119.397 / 0.385055 = 3.1008 mK. In the ratiometric cold store it
+/// cancels.
+#[test]
+fn excitation_noise_is_referred_through_the_chain() {
+    let v = budget(
+        "excitation_noise.catena",
+        &["--points", "3", "--trials", "0"],
+    );
+    let (a, b) = (3.9083e-3, -5.775e-7);
+    let r = 100.0 * (1.0 + a * 50.0 + b * 2500.0);
+    let slope = 100.0 * (a + 2.0 * b * 50.0);
+    let expect = 1e-5 * r / slope;
+    let got = f(&v["noise"]["referred"]["drive.noise"]);
+    assert!((got - expect).abs() < 1e-3 * expect, "{got} vs {expect}");
+}

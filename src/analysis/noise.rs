@@ -26,6 +26,10 @@ pub struct NoiseTerm {
 #[derive(Clone, Debug, PartialEq)]
 pub struct Noise {
     pub terms: Vec<NoiseTerm>,
+    /// Noise referred to the measurand directly, in its SI units: each
+    /// excitation's, through the whole chain (so a ratiometric reference
+    /// cancels it as it cancels the excitation's tolerance).
+    pub referred: Vec<NoiseTerm>,
     /// Equivalent noise bandwidth, Hz (None: nothing bounds it, so density
     /// terms could not be integrated).
     pub enbw_hz: Option<f64>,
@@ -78,6 +82,53 @@ pub fn enbw(chain: &Chain, plan: &Plan) -> Option<f64> {
         }
     }
     bw
+}
+
+/// The noise of each excitation (its `noise`, an rms value or a density
+/// over the noise bandwidth), referred to the measurand through the whole
+/// chain: the reading's change with the excitation's value, so a
+/// ratiometric reference cancels it as it cancels the excitation's
+/// tolerance. `rms_v` here holds measurand units.
+fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTerm> {
+    let mut out = Vec::new();
+    for (i, node) in plan.nodes.iter().enumerate() {
+        let Node::Excitation { value, .. } = node else {
+            continue;
+        };
+        let Some(s) = stage(chain, plan, i) else {
+            continue;
+        };
+        let Some(crate::model::value::ParamValue::Limit(t)) = s.param("noise") else {
+            continue;
+        };
+        let stated = t.plus.max(t.minus);
+        // A density (per root hertz) integrates over the bandwidth.
+        let is_density = s.params.iter().any(|p| {
+            p.name == "noise" && p.file.slice(p.span).contains("rtHz")
+                || p.name == "noise" && p.file.slice(p.span).contains("√Hz")
+        });
+        let rms = match (is_density, enbw_hz) {
+            (true, Some(bw)) => stated * bw.sqrt(),
+            (true, None) => continue,
+            (false, _) => stated,
+        };
+        let mut values = plan.nominal.clone();
+        let mut at = |x: f64| {
+            values[*value] = x;
+            plan.unquantized_reading(&values, env)
+        };
+        let (Ok(up), Ok(down)) = (
+            at(plan.nominal[*value] + rms),
+            at(plan.nominal[*value] - rms),
+        ) else {
+            continue;
+        };
+        out.push(NoiseTerm {
+            id: format!("{}.noise", s.name),
+            rms_v: (up - down).abs() / 2.0,
+        });
+    }
+    out
 }
 
 /// Noise at `env`, from the nominal chain. `slope` is the converter-input
@@ -148,14 +199,20 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
         .and_then(|s| number(s, "average"))
         .unwrap_or(1.0)
         .max(1.0) as u32;
-    let sigma = if slope != 0.0 {
+    let at_converter = if slope != 0.0 {
         total_v / slope.abs()
     } else {
         0.0
     };
+    let excitation = excitation_noise(chain, plan, env, enbw_hz);
+    let sigma = (at_converter * at_converter
+        + excitation.iter().map(|t| t.rms_v * t.rms_v).sum::<f64>())
+    .sqrt();
+
     let sigma_averaged = sigma / f64::from(average).sqrt();
     Noise {
         terms,
+        referred: excitation,
         enbw_hz,
         total_v,
         sigma,

@@ -251,6 +251,7 @@ struct NoiseJson {
     noise_free_averaged: f64,
     lsb: f64,
     terms: BTreeMap<String, f64>,
+    referred: BTreeMap<String, f64>,
 }
 
 #[derive(Serialize)]
@@ -352,6 +353,11 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
             noise_free_averaged: n.noise_free_averaged * f,
             lsb: n.lsb * f,
             terms: n.terms.iter().map(|t| (t.id.clone(), t.rms_v)).collect(),
+            referred: n
+                .referred
+                .iter()
+                .map(|t| (t.id.clone(), t.rms_v * f))
+                .collect(),
         },
         dynamics: DynamicsJson {
             response_90_s: a.dynamics.response_90,
