@@ -102,10 +102,11 @@ fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>)
             continue;
         };
         let stated = t.plus.max(t.minus);
-        // A density (per root hertz) integrates over the bandwidth.
+        // A density (per root hertz, as written) integrates over the
+        // bandwidth; the value alone cannot tell, since the limit is SI.
         let is_density = s.params.iter().any(|p| {
-            p.name == "noise" && p.file.slice(p.span).contains("rtHz")
-                || p.name == "noise" && p.file.slice(p.span).contains("√Hz")
+            let text = p.file.slice(p.span);
+            p.name == "noise" && (text.contains("rtHz") || text.contains("√Hz"))
         });
         let rms = match (is_density, enbw_hz) {
             (true, Some(bw)) => stated * bw.sqrt(),
