@@ -46,6 +46,9 @@ pub fn interval(
     seed: u64,
     point: u64,
 ) -> Result<Interval, EvalError> {
+    if trials == 0 {
+        return Ok(Interval { low: 0.0, high: 0.0 });
+    }
     let chunks = trials.div_ceil(CHUNK);
     let sources: Vec<usize> = (0..plan.slots.len())
         .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
