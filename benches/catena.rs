@@ -170,3 +170,39 @@ fn budget_default(bencher: divan::Bencher, name: &str) {
             .sum::<usize>()
     });
 }
+
+/// The chain `benches/numpy_mc.py` implements in vectorised NumPy, for the
+/// ratio in the README: 10^6 trials at each of 21 points.
+#[divan::bench(sample_count = 3, sample_size = 1)]
+fn monte_carlo_gum_rtd_1e6_x_21(bencher: divan::Bencher) {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/budget");
+    let bytes = std::fs::read(dir.join("gum_rtd.catena")).expect("fixture");
+    let checked = check_bytes("gum_rtd.catena", &bytes, &dir, &mut PartsCache::default());
+    let chain = &checked.chains[0];
+    let plan = lower(chain).expect("lowers");
+    let b = budget::budget(chain, &plan, &BudgetOptions::default()).expect("budget");
+    bencher.bench(|| {
+        b.points
+            .iter()
+            .enumerate()
+            .map(|(i, p)| {
+                let env = Env {
+                    measurand: p.measurand,
+                    ambient: p.ambient,
+                    cold_junction: p.ambient,
+                };
+                interval(
+                    &plan,
+                    &env,
+                    &b.noise,
+                    1.0 / p.codes_per_unit.abs(),
+                    1_000_000,
+                    1,
+                    i as u64,
+                )
+                .expect("runs")
+                .high
+            })
+            .sum::<f64>()
+    });
+}

@@ -47,7 +47,10 @@ pub fn interval(
     point: u64,
 ) -> Result<Interval, EvalError> {
     if trials == 0 {
-        return Ok(Interval { low: 0.0, high: 0.0 });
+        return Ok(Interval {
+            low: 0.0,
+            high: 0.0,
+        });
     }
     let chunks = trials.div_ceil(CHUNK);
     let sources: Vec<usize> = (0..plan.slots.len())
