@@ -356,3 +356,11 @@ fn excitation_noise_is_referred_through_the_chain() {
     let got = f(&v["noise"]["referred"]["drive.noise"]);
     assert!((got - expect).abs() < 1e-3 * expect, "{got} vs {expect}");
 }
+
+/// The human budget, for the look of it.
+#[test]
+fn human_budget() {
+    let run = catena(&root(), &["budget", "specs/cold_store.catena", "--trials", "2000", "--points", "3"], None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    insta::assert_snapshot!("budget-cold-store", run.stdout);
+}

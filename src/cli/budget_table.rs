@@ -155,7 +155,10 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
         out.push_str("\n\n");
     }
     let n = &a.budget.noise;
-    out.push_str(&format!(
+    if n.terms.is_empty() && n.referred.is_empty() {
+        out.push_str("noise: no noise stated\n");
+    } else {
+        out.push_str(&format!(
         "noise: {} rms at the converter over {}; {} {unit} rms, {} {unit} noise-free (6.6 σ){}\n",
         crate::units::format::with_prefix(n.total_v, "V", 3),
         n.enbw_hz
@@ -173,6 +176,7 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
             String::new()
         }
     ));
+    }
     let d = &a.dynamics;
     let mains = d
         .mains
@@ -198,9 +202,14 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
         .filter_settling_half_lsb
         .map(|t| format!(" (the filter settles to ½ LSB in {} s)", significant(t, 3)))
         .unwrap_or_default();
-    out.push_str(&format!(
-        "dynamics: 90 % of a step in {response}{settle}; {mains}\n"
-    ));
+    let stated = d.sensor_time_constant > 0.0 || d.filter.is_some() || d.rate_hz.is_some();
+    if stated {
+        out.push_str(&format!(
+            "dynamics: 90 % of a step in {response}{settle}; {mains}\n"
+        ));
+    } else {
+        out.push_str("dynamics: no time constant, filter or rate stated\n");
+    }
     if !a.verdicts.is_empty() {
         out.push('\n');
         let mut verdicts = table();

@@ -17,6 +17,8 @@ const PREFIXES: &[(f64, &str)] = &[
 /// `value` (in the coherent unit `unit`) with an SI prefix and `digits`
 /// significant digits: `0.00025, "A"` → `250.000 uA` for 6 digits.
 pub fn with_prefix(value: f64, unit: &str, digits: usize) -> String {
+    // −0 prints as 0.
+    let value = value + 0.0;
     if value == 0.0 || !value.is_finite() {
         return format!("{} {unit}", significant(value, digits))
             .trim_end()
@@ -32,6 +34,7 @@ pub fn with_prefix(value: f64, unit: &str, digits: usize) -> String {
 
 /// A number with `digits` significant digits, in fixed notation.
 pub fn significant(value: f64, digits: usize) -> String {
+    let value = value + 0.0;
     if value == 0.0 || !value.is_finite() {
         return format!("{value}");
     }
