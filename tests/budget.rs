@@ -360,7 +360,63 @@ fn excitation_noise_is_referred_through_the_chain() {
 /// The human budget, for the look of it.
 #[test]
 fn human_budget() {
-    let run = catena(&root(), &["budget", "specs/cold_store.catena", "--trials", "2000", "--points", "3"], None);
+    let run = catena(
+        &root(),
+        &[
+            "budget",
+            "specs/cold_store.catena",
+            "--trials",
+            "2000",
+            "--points",
+            "3",
+        ],
+        None,
+    );
     assert_eq!(run.status, 0, "{}", run.stderr);
     insta::assert_snapshot!("budget-cold-store", run.stdout);
+}
+
+/// A high alarm trips a guard band early: the GUM expanded uncertainty at
+/// its limit, so the true value cannot pass the limit unseen; the trip code
+/// is the nominal chain's code there.
+#[test]
+fn alarms_get_a_guard_band_and_codes() {
+    let run = catena(
+        &root(),
+        &[
+            "budget",
+            "specs/cold_store.catena",
+            "--format",
+            "json",
+            "--trials",
+            "0",
+            "--points",
+            "3",
+        ],
+        None,
+    );
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let alarm = &v["alarms"][0];
+    assert_eq!(alarm["side"], "high");
+    assert!((f(&alarm["at"]) - 8.0).abs() < 1e-9);
+    let guard = f(&alarm["guard_band"]);
+    assert!(guard > 0.0 && guard < 0.3, "{alarm}");
+    assert!((f(&alarm["trip_at"]) - (8.0 - guard)).abs() < 1e-9);
+    let eval = catena(
+        &root(),
+        &[
+            "eval",
+            "specs/cold_store.catena",
+            "--format",
+            "json",
+            "--at",
+            &format!("{} degC", f(&alarm["trip_at"])),
+        ],
+        None,
+    );
+    let e: serde_json::Value = serde_json::from_str(&eval.stdout).unwrap();
+    assert!(
+        (e["code"].as_i64().unwrap() - alarm["trip_code"].as_i64().unwrap()).abs() <= 1,
+        "{e} {alarm}"
+    );
 }

@@ -150,6 +150,29 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
     })
 }
 
+/// The GUM expanded uncertainty at one condition, without noise (which
+/// averages out of a slow alarm).
+pub fn gum_expanded_at(
+    plan: &Plan,
+    env: &Env,
+    values: &mut [f64],
+    k: f64,
+) -> Result<f64, EvalError> {
+    let quiet = Noise {
+        terms: Vec::new(),
+        referred: Vec::new(),
+        enbw_hz: None,
+        total_v: 0.0,
+        sigma: 0.0,
+        sigma_averaged: 0.0,
+        average: 1,
+        noise_free: 0.0,
+        noise_free_averaged: 0.0,
+        lsb: 0.0,
+    };
+    Ok(point(plan, env, values, &quiet, k)?.gum_expanded)
+}
+
 fn point(
     plan: &Plan,
     env: &Env,

@@ -2,6 +2,7 @@
 //! sensor validity, the error budget, noise and requirement verdicts.
 
 pub mod accumulation;
+pub mod alarms;
 pub mod budget;
 pub mod dynamics;
 pub mod monte_carlo;

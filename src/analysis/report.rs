@@ -2,6 +2,7 @@
 //! give `catena check`.
 
 use super::accumulation::{accumulation, NodeError};
+use super::alarms::{alarm_limits, AlarmLimit};
 use super::budget::{self, Budget};
 use super::dynamics::{dynamics, Dynamics};
 use super::monte_carlo::{interval, Interval};
@@ -57,6 +58,8 @@ pub struct Analysis {
     pub uncalibrated: Option<Vec<f64>>,
     /// Stage names by plan node.
     pub names: Vec<String>,
+    /// Alarm and trip limits with their guard bands.
+    pub alarms: Vec<AlarmLimit>,
 }
 
 pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis, EvalError> {
@@ -115,6 +118,7 @@ pub fn analyse_with_progress(
             accumulation: Vec::new(),
             uncalibrated: None,
             names: plan.names.clone(),
+            alarms: Vec::new(),
         });
     }
     let envelopes = envelopes(chain, plan, options.budget.points)?;
@@ -161,6 +165,7 @@ pub fn analyse_with_progress(
         accumulation,
         uncalibrated,
         names: plan.names.clone(),
+        alarms: alarm_limits(chain, plan, options.budget.k)?,
     })
 }
 

@@ -232,6 +232,16 @@ struct LimitJson {
 }
 
 #[derive(Serialize)]
+struct AlarmJson {
+    side: String,
+    at: f64,
+    code: i64,
+    guard_band: f64,
+    trip_at: f64,
+    trip_code: i64,
+}
+
+#[derive(Serialize)]
 struct StageJson {
     stage: String,
     value: f64,
@@ -283,6 +293,7 @@ struct BudgetJson {
     dynamics: DynamicsJson,
     limits: Vec<LimitJson>,
     stages: Vec<StageJson>,
+    alarms: Vec<AlarmJson>,
     requirements: Vec<RequirementJson>,
 }
 
@@ -339,7 +350,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
         schema_version: 1,
         chain: chain.name.clone(),
         unit,
-        measurand_unit: m_unit,
+        measurand_unit: m_unit.clone(),
         trials: a.trials,
         seed: a.seed,
         points,
@@ -388,6 +399,18 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
                 allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
                 reach: [e.reach.0, e.reach.1],
                 headroom: e.headroom(),
+            })
+            .collect(),
+        alarms: a
+            .alarms
+            .iter()
+            .map(|x| AlarmJson {
+                side: x.side.clone(),
+                at: from_si(x.at, &m_unit),
+                code: x.code,
+                guard_band: x.guard_band * f,
+                trip_at: from_si(x.trip_at, &m_unit),
+                trip_code: x.trip_code,
             })
             .collect(),
         stages: a

@@ -210,6 +210,34 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
     } else {
         out.push_str("dynamics: no time constant, filter or rate stated\n");
     }
+    if !a.alarms.is_empty() {
+        out.push_str("\nalarms: where to trip so the true value cannot pass the limit unseen\n\n");
+        let mut t = table();
+        t.set_header([
+            "alarm",
+            "limit",
+            "code",
+            "guard band",
+            "trip at",
+            "trip code",
+        ]);
+        for x in &a.alarms {
+            t.add_row([
+                x.side.clone(),
+                format!("{} {m_unit}", trimmed(from_si(x.at, &m_unit), 6)),
+                x.code.to_string(),
+                format!("± {} {unit}", v(x.guard_band)),
+                format!("{} {m_unit}", trimmed(from_si(x.trip_at, &m_unit), 6)),
+                x.trip_code.to_string(),
+            ]);
+        }
+        out.push_str(&lines(&t));
+        out.push_str(
+            "\n\ncaution: Catena is a design aid, not a safety assessment. Where an alarm or trip protects people\n\
+             or property, its design and verification follow the applicable functional-safety standard, local\n\
+             codes and licensed practice.\n",
+        );
+    }
     if !a.verdicts.is_empty() {
         out.push('\n');
         let mut verdicts = table();
