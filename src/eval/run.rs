@@ -45,7 +45,7 @@ impl Mode {
 }
 
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
-pub const MAX_NODES: usize = 64;
+pub const MAX_NODES: usize = 32;
 
 /// The signals of one evaluation, by node.
 #[derive(Clone, Debug, PartialEq)]
