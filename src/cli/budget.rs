@@ -3,22 +3,21 @@
 
 use std::collections::BTreeMap;
 use std::io::IsTerminal;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use clap::Args;
 use serde::Serialize;
 
-use super::files::plain_io;
+use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::eval_finding;
 use crate::analysis::report::{
     analyse_with_progress, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
-use crate::check::check_bytes;
 use crate::diagnostics::{render_human, Findings};
 use crate::eval::lower;
-use crate::model::{did_you_mean, Chain, PartsCache};
+use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, trimmed};
 
 #[derive(Args, Debug)]
@@ -50,28 +49,10 @@ pub fn run(args: BudgetArgs) -> u8 {
         eprintln!("catena: --points takes 2 to 1001");
         return EXIT_USAGE;
     }
-    let bytes = match std::fs::read(&args.spec) {
-        Ok(b) => b,
-        Err(e) => {
-            eprintln!(
-                "catena: cannot read `{}`: {}",
-                args.spec.display(),
-                plain_io(&e)
-            );
-            return EXIT_USAGE;
-        }
+    let checked = match check_one(&args.spec) {
+        Ok(c) => c,
+        Err(status) => return status,
     };
-    let base = args
-        .spec
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let checked = check_bytes(
-        &args.spec.to_string_lossy(),
-        &bytes,
-        base,
-        &mut PartsCache::default(),
-    );
     // Requirement findings are what the budget explains, not a reason to
     // withhold it.
     let blocking: Findings = {

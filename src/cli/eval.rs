@@ -1,17 +1,16 @@
 //! `catena eval SPEC --at VALUE`: every stage's output at one point.
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use clap::Args;
 use serde::Serialize;
 
-use super::files::plain_io;
+use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::eval_finding;
-use crate::check::check_bytes;
 use crate::diagnostics::{render_human, Findings};
 use crate::eval::{lower, Env, Node, Plan, Signal};
-use crate::model::{did_you_mean, Chain, PartsCache};
+use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
 
@@ -34,28 +33,10 @@ pub struct EvalArgs {
 }
 
 pub fn run(args: EvalArgs) -> u8 {
-    let bytes = match std::fs::read(&args.spec) {
-        Ok(b) => b,
-        Err(e) => {
-            eprintln!(
-                "catena: cannot read `{}`: {}",
-                args.spec.display(),
-                plain_io(&e)
-            );
-            return EXIT_USAGE;
-        }
+    let checked = match check_one(&args.spec) {
+        Ok(c) => c,
+        Err(status) => return status,
     };
-    let base = args
-        .spec
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let checked = check_bytes(
-        &args.spec.to_string_lossy(),
-        &bytes,
-        base,
-        &mut PartsCache::default(),
-    );
     if checked.findings.has_errors() {
         return report(checked.findings);
     }

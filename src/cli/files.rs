@@ -46,3 +46,22 @@ pub fn plain_io(e: &std::io::Error) -> String {
         None => text.to_lowercase(),
     }
 }
+
+/// Reads and checks one spec for a command that then works on it; an
+/// unreadable file is a usage error, already reported.
+pub fn check_one(path: &Path) -> Result<crate::check::CheckedFile, u8> {
+    let bytes = std::fs::read(path).map_err(|e| {
+        eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
+        super::EXIT_USAGE
+    })?;
+    let base = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    Ok(crate::check::check_bytes(
+        &path.to_string_lossy(),
+        &bytes,
+        base,
+        &mut crate::model::PartsCache::default(),
+    ))
+}
