@@ -4,6 +4,8 @@
 //! propagation (JCGM 100:2008: rectangular limits a/√3, normal limits a/3,
 //! expanded with k), at points across the measurand and ambient ranges.
 
+use rayon::prelude::*;
+
 use super::noise::{noise, Noise};
 use crate::eval::{Env, EvalError, Plan, Signal, SourceKind};
 use crate::model::Chain;
@@ -131,18 +133,26 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
     };
     let (v_slope, c_slope) = slopes(plan, &mid)?;
     let noise = noise(chain, plan, &mid, v_slope, 1.0 / c_slope.abs());
-    let mut points = Vec::new();
-    let mut values = plan.nominal.clone();
-    for &ambient in &ambients(chain) {
-        for m in measurand_points(plan, options.points) {
-            let env = Env {
-                measurand: m,
-                ambient,
-                cold_junction: ambient,
-            };
-            points.push(point(plan, &env, &mut values, &noise, options.k)?);
-        }
-    }
+    let conditions: Vec<Env> = ambients(chain)
+        .into_iter()
+        .flat_map(|ambient| {
+            measurand_points(plan, options.points)
+                .into_iter()
+                .map(move |m| Env {
+                    measurand: m,
+                    ambient,
+                    cold_junction: ambient,
+                })
+        })
+        .collect();
+    // Points are independent: on every core, gathered in order.
+    let points = conditions
+        .par_iter()
+        .map_init(
+            || plan.nominal.clone(),
+            |values, env| point(plan, env, values, &noise, options.k),
+        )
+        .collect::<Result<Vec<_>, _>>()?;
     Ok(Budget {
         points,
         k: options.k,

@@ -7,6 +7,8 @@
 //! computed: the largest gain, the smallest reference, the largest
 //! excitation that fits with the margin.
 
+use rayon::prelude::*;
+
 use super::budget::{ambients, measurand_points};
 use crate::eval::{BridgeKind, Env, EvalError, Node, NodeId, Plan, Signal, SourceKind};
 use crate::model::Chain;
@@ -302,56 +304,73 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
     if checks.is_empty() {
         return Ok(Vec::new());
     }
-    let mut reach: Vec<(f64, f64, (f64, f64), f64)> =
-        vec![(f64::INFINITY, f64::NEG_INFINITY, (0.0, 0.0), f64::INFINITY); checks.len()];
-    let mut values = plan.nominal.clone();
     let sources: Vec<usize> = (0..plan.slots.len())
         .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
         .collect();
-    for &ambient in &ambients(chain) {
-        for m in measurand_points(plan, points) {
-            let env = Env {
-                measurand: m,
-                ambient,
-                cold_junction: ambient,
-            };
-            let nominal = plan.evaluate_raw(&plan.nominal, &env)?.signals;
-            let q0: Vec<f64> = checks
-                .iter()
-                .map(|c| value(plan, &plan.nominal, &nominal, c))
-                .collect();
-            let mut up = vec![0.0; checks.len()];
-            let mut down = vec![0.0; checks.len()];
-            for &s in &sources {
-                let slot = &plan.slots[s];
-                let mut per_check = vec![(0.0f64, 0.0f64); checks.len()];
-                for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
-                    values[s] = x;
-                    let signals = plan.evaluate_raw(&values, &env)?.signals;
-                    for (k, c) in checks.iter().enumerate() {
-                        let d = value(plan, &values, &signals, c) - q0[k];
-                        per_check[k].0 = per_check[k].0.min(d);
-                        per_check[k].1 = per_check[k].1.max(d);
+    let conditions: Vec<Env> = ambients(chain)
+        .into_iter()
+        .flat_map(|ambient| {
+            measurand_points(plan, points)
+                .into_iter()
+                .map(move |m| Env {
+                    measurand: m,
+                    ambient,
+                    cold_junction: ambient,
+                })
+        })
+        .collect();
+    // Each condition's reach (low, high) per check, on every core.
+    let per_condition = conditions
+        .par_iter()
+        .map_init(
+            || plan.nominal.clone(),
+            |values, env| -> Result<Vec<(f64, f64)>, EvalError> {
+                let nominal = plan.evaluate_raw(&plan.nominal, env)?.signals;
+                let q0: Vec<f64> = checks
+                    .iter()
+                    .map(|c| value(plan, &plan.nominal, &nominal, c))
+                    .collect();
+                let mut up = vec![0.0; checks.len()];
+                let mut down = vec![0.0; checks.len()];
+                for &s in &sources {
+                    let slot = &plan.slots[s];
+                    let mut per_check = vec![(0.0f64, 0.0f64); checks.len()];
+                    for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
+                        values[s] = x;
+                        let signals = plan.evaluate_raw(values, env);
+                        values[s] = plan.nominal[s];
+                        let signals = signals?.signals;
+                        for (k, c) in checks.iter().enumerate() {
+                            let d = value(plan, values, &signals, c) - q0[k];
+                            per_check[k].0 = per_check[k].0.min(d);
+                            per_check[k].1 = per_check[k].1.max(d);
+                        }
+                    }
+                    for k in 0..checks.len() {
+                        down[k] += per_check[k].0;
+                        up[k] += per_check[k].1;
                     }
                 }
-                values[s] = plan.nominal[s];
-                for k in 0..checks.len() {
-                    down[k] += per_check[k].0;
-                    up[k] += per_check[k].1;
-                }
+                Ok((0..checks.len())
+                    .map(|k| (q0[k] + down[k], q0[k] + up[k]))
+                    .collect())
+            },
+        )
+        .collect::<Result<Vec<_>, _>>()?;
+    // Gathered in order, so the worst point is the first of equals.
+    let mut reach: Vec<(f64, f64, (f64, f64), f64)> =
+        vec![(f64::INFINITY, f64::NEG_INFINITY, (0.0, 0.0), f64::INFINITY); checks.len()];
+    for (env, reaches) in conditions.iter().zip(per_condition) {
+        for (k, c) in checks.iter().enumerate() {
+            let (lo, hi) = reaches[k];
+            let r = &mut reach[k];
+            let margin = -(c.allowed.0 - lo).max(hi - c.allowed.1);
+            if margin < r.3 {
+                r.2 = (env.measurand, env.ambient);
+                r.3 = margin;
             }
-            for (k, c) in checks.iter().enumerate() {
-                let (lo, hi) = (q0[k] + down[k], q0[k] + up[k]);
-                let r = &mut reach[k];
-                let outside = (c.allowed.0 - lo).max(hi - c.allowed.1);
-                let margin = -outside;
-                if margin < r.3 {
-                    r.2 = (m, ambient);
-                    r.3 = margin;
-                }
-                r.0 = r.0.min(lo);
-                r.1 = r.1.max(hi);
-            }
+            r.0 = r.0.min(lo);
+            r.1 = r.1.max(hi);
         }
     }
     Ok(checks
