@@ -48,10 +48,9 @@ pub fn resolve(
                 findings.push(
                     Finding::new(Code::L407, file, format!("`{}` is outside the spec's repository", u.path.value))
                         .label(u.path.span, "outside")
-                        .help(format!(
-                            "keep parts files inside `{}`, or run with `--allow-outside-paths` if this file is meant",
-                            root.display()
-                        )),
+                        // No absolute path in the message: findings must read
+                        // the same in every checkout.
+                        .help("keep parts files inside the spec's repository (the folder that holds `.git`, or the spec's own folder outside one), or run with `--allow-outside-paths` if this file is meant"),
                 );
                 library_broken = true;
                 continue;
