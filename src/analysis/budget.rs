@@ -81,6 +81,23 @@ pub fn measurand_points(plan: &Plan, n: usize) -> Vec<f64> {
         .collect()
 }
 
+/// Every (measurand, ambient) condition the analyses visit: `points`
+/// across the measurand range at each ambient, ambient by ambient.
+pub fn conditions(chain: &Chain, plan: &Plan, points: usize) -> Vec<Env> {
+    ambients(chain)
+        .into_iter()
+        .flat_map(|ambient| {
+            measurand_points(plan, points)
+                .into_iter()
+                .map(move |m| Env {
+                    measurand: m,
+                    ambient,
+                    cold_junction: ambient,
+                })
+        })
+        .collect()
+}
+
 /// The slopes of the converter's input voltage and code with the
 /// measurand at `env`, by central difference.
 pub fn slopes(plan: &Plan, env: &Env) -> Result<(f64, f64), EvalError> {
@@ -133,18 +150,7 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
     };
     let (v_slope, c_slope) = slopes(plan, &mid)?;
     let noise = noise(chain, plan, &mid, v_slope, 1.0 / c_slope.abs());
-    let conditions: Vec<Env> = ambients(chain)
-        .into_iter()
-        .flat_map(|ambient| {
-            measurand_points(plan, options.points)
-                .into_iter()
-                .map(move |m| Env {
-                    measurand: m,
-                    ambient,
-                    cold_junction: ambient,
-                })
-        })
-        .collect();
+    let conditions = conditions(chain, plan, options.points);
     // Points are independent: on every core, gathered in order.
     let points = conditions
         .par_iter()

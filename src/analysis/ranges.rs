@@ -9,7 +9,7 @@
 
 use rayon::prelude::*;
 
-use super::budget::{ambients, measurand_points};
+use super::budget::conditions;
 use crate::eval::{BridgeKind, Env, EvalError, Node, NodeId, Plan, Signal, SourceKind};
 use crate::model::Chain;
 use crate::physics::adc::Polarity;
@@ -307,18 +307,7 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
     let sources: Vec<usize> = (0..plan.slots.len())
         .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
         .collect();
-    let conditions: Vec<Env> = ambients(chain)
-        .into_iter()
-        .flat_map(|ambient| {
-            measurand_points(plan, points)
-                .into_iter()
-                .map(move |m| Env {
-                    measurand: m,
-                    ambient,
-                    cold_junction: ambient,
-                })
-        })
-        .collect();
+    let conditions = conditions(chain, plan, points);
     // Each condition's reach (low, high) per check, on every core.
     let per_condition = conditions
         .par_iter()
