@@ -10,7 +10,7 @@
 use rayon::prelude::*;
 
 use super::budget::conditions;
-use crate::eval::{BridgeKind, Env, EvalError, Node, NodeId, Plan, Signal, SourceKind};
+use crate::eval::{BridgeKind, EvalError, Node, NodeId, Plan, Signal, SourceKind};
 use crate::model::Chain;
 use crate::physics::adc::Polarity;
 
