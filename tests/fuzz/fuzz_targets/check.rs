@@ -11,7 +11,12 @@ use catena::model::PartsCache;
 use libfuzzer_sys::fuzz_target;
 
 fuzz_target!(|data: &[u8]| {
-    let checked = check_bytes("fuzz.catena", data, std::path::Path::new("specs"), &mut PartsCache::default());
+    let checked = check_bytes(
+        "fuzz.catena",
+        data,
+        std::path::Path::new("specs"),
+        &mut PartsCache::default(),
+    );
     if checked.findings.has_errors() {
         return;
     }
@@ -20,7 +25,11 @@ fuzz_target!(|data: &[u8]| {
         // A point chosen by the input itself, inside the measurand range.
         let fraction = f64::from(data.iter().fold(0u8, |a, b| a.wrapping_add(*b))) / 255.0;
         let m = plan.range.0 + fraction * (plan.range.1 - plan.range.0);
-        let env = Env { measurand: m, ambient: chain.reference, cold_junction: chain.reference };
+        let env = Env {
+            measurand: m,
+            ambient: chain.reference,
+            cold_junction: chain.reference,
+        };
         if let Ok(r) = plan.reading(&plan.nominal, &env) {
             assert!(r.is_finite(), "a reading is never NaN or infinite");
         }
