@@ -274,8 +274,16 @@ impl Conversion {
                     .map(|k| a + (b - a) * k as f64 / (INVERSE_POINTS - 1) as f64)
                     .collect();
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
-                if strictly_monotonic(&codes) {
-                    self.inverse = Some(InverseTable::new(xs, codes, complete));
+                // Beyond the range a stage may clip and the code go flat:
+                // keep the stretch around the range where the code still
+                // moves one way, and let readings saturate at its ends.
+                if let Some((i0, i1)) = monotonic_around(&xs, &codes, self.range) {
+                    self.domain = (xs[i0], xs[i1]);
+                    self.inverse = Some(InverseTable::new(
+                        xs[i0..=i1].to_vec(),
+                        codes[i0..=i1].to_vec(),
+                        complete,
+                    ));
                 }
                 Method::Exact
             }
@@ -344,15 +352,28 @@ fn newton_from_table(
     if code < first.min(last) || code > first.max(last) {
         return Ok(None);
     }
-    let mut x = interpolate(&table.codes, &table.xs, code).clamp(domain.0, domain.1);
+    let mut x = table
+        .x_at(code)
+        .unwrap_or_else(|| interpolate(&table.codes, &table.xs, code))
+        .clamp(domain.0, domain.1);
     let tolerance = 1e-13 * (domain.1 - domain.0).abs();
-    for _ in 0..8 {
-        let k = table.xs.partition_point(|&t| t < x).clamp(1, n - 1);
-        let slope = (table.codes[k] - table.codes[k - 1]) / (table.xs[k] - table.xs[k - 1]);
-        let step = f(x)? / slope;
+    let k = table.xs.partition_point(|&t| t < x).clamp(1, n - 1);
+    // The table's local slope to start, then the secant through the last
+    // two steps: superlinear, and each step costs one evaluation.
+    let mut slope = (table.codes[k] - table.codes[k - 1]) / (table.xs[k] - table.xs[k - 1]);
+    let mut previous: Option<(f64, f64)> = None;
+    for _ in 0..12 {
+        let fx = f(x)?;
+        if let Some((px, pf)) = previous {
+            if x != px && fx != pf {
+                slope = (fx - pf) / (x - px);
+            }
+        }
+        let step = fx / slope;
         if !step.is_finite() {
             return Ok(None);
         }
+        previous = Some((x, fx));
         x -= step;
         if x < domain.0 || x > domain.1 {
             return Ok(None);
@@ -362,6 +383,38 @@ fn newton_from_table(
         }
     }
     Ok(None)
+}
+
+/// The widest run of grid points around `range` over which `codes` is
+/// strictly monotonic, as first and last index (None when the range itself
+/// is not).
+fn monotonic_around(xs: &[f64], codes: &[f64], range: (f64, f64)) -> Option<(usize, usize)> {
+    let n = xs.len();
+    let first = xs.partition_point(|&x| x <= range.0).saturating_sub(1);
+    let last = xs.partition_point(|&x| x < range.1).min(n - 1);
+    if last <= first {
+        return None;
+    }
+    let up = codes[last] > codes[first];
+    let moves = |a: usize, b: usize| {
+        if up {
+            codes[b] > codes[a]
+        } else {
+            codes[b] < codes[a]
+        }
+    };
+    if !(first..last).all(|k| moves(k, k + 1)) {
+        return None;
+    }
+    let mut i0 = first;
+    while i0 > 0 && moves(i0 - 1, i0) {
+        i0 -= 1;
+    }
+    let mut i1 = last;
+    while i1 + 1 < n && moves(i1, i1 + 1) {
+        i1 += 1;
+    }
+    Some((i0, i1))
 }
 
 fn strictly_monotonic(v: &[f64]) -> bool {
