@@ -7,7 +7,7 @@
 use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
-use crate::eval::{Env, EvalError, Plan, Signal, SourceKind};
+use crate::eval::{Env, EvalError, Plan, SourceKind};
 use crate::model::Chain;
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -103,24 +103,14 @@ pub fn conditions(chain: &Chain, plan: &Plan, points: usize) -> Vec<Env> {
 pub fn slopes(plan: &Plan, env: &Env) -> Result<(f64, f64), EvalError> {
     let (lo, hi) = plan.range;
     let h = (hi - lo) * 1e-4;
-    let at = |m: f64| -> Result<(f64, f64), EvalError> {
-        let o = plan.evaluate(
+    let at = |m: f64| {
+        plan.converter_input_and_code(
             &plan.nominal,
             &Env {
                 measurand: m,
                 ..*env
             },
-        )?;
-        let v = input_voltage(plan, &o.signals);
-        let c = plan.exact_code(
-            &plan.nominal,
-            &Env {
-                measurand: m,
-                ..*env
-            },
-            plan.adc,
-        )?;
-        Ok((v, c))
+        )
     };
     let (m0, m1) = (
         (env.measurand - h).max(lo - h),
@@ -128,17 +118,6 @@ pub fn slopes(plan: &Plan, env: &Env) -> Result<(f64, f64), EvalError> {
     );
     let (a, b) = (at(m0)?, at(m1)?);
     Ok(((b.0 - a.0) / (m1 - m0), (b.1 - a.1) / (m1 - m0)))
-}
-
-/// The voltage at the converter's input.
-fn input_voltage(plan: &Plan, signals: &[Signal]) -> f64 {
-    match &plan.nodes[plan.adc] {
-        crate::eval::Node::Adc { input, .. } => match signals.get(*input) {
-            Some(Signal::Voltage { v, .. }) => *v,
-            _ => 0.0,
-        },
-        _ => 0.0,
-    }
 }
 
 /// The whole budget.

@@ -603,6 +603,28 @@ fn finite(s: Signal) -> bool {
 }
 
 impl Plan {
+    /// The main converter's input voltage and exact code: the chain's
+    /// transfer at one point, for slopes.
+    pub fn converter_input_and_code(
+        &self,
+        values: &[f64],
+        env: &Env,
+    ) -> Result<(f64, f64), EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, self.adc + 1, Mode::CODES)?;
+        let v = match &self.nodes[self.adc] {
+            Node::Adc { input, .. } => match signals[*input] {
+                Signal::Voltage { v, .. } => v,
+                _ => 0.0,
+            },
+            _ => 0.0,
+        };
+        match signals[self.adc] {
+            Signal::Code { exact, .. } => Ok((v, exact)),
+            _ => Err(self.numeric(self.adc, "no code")),
+        }
+    }
+
     /// Every node but the conversions, with amplifiers unclipped: how far
     /// each signal would go, for the range checks.
     pub fn evaluate_raw(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
