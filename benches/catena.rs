@@ -14,6 +14,38 @@ fn main() {
     divan::main();
 }
 
+/// Monte Carlo with `trials` at each of the first `points` budget points.
+fn monte_carlo_over_points(
+    plan: &catena::eval::Plan,
+    b: &budget::Budget,
+    points: usize,
+    trials: usize,
+) -> f64 {
+    b.points
+        .iter()
+        .take(points)
+        .enumerate()
+        .map(|(i, p)| {
+            let env = Env {
+                measurand: p.measurand,
+                ambient: p.ambient,
+                cold_junction: p.ambient,
+            };
+            interval(
+                plan,
+                &env,
+                &b.noise,
+                1.0 / p.codes_per_unit.abs(),
+                trials,
+                1,
+                i as u64,
+            )
+            .expect("runs")
+            .high
+        })
+        .sum()
+}
+
 fn spec(name: &str) -> Vec<u8> {
     std::fs::read(
         Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -122,31 +154,7 @@ fn monte_carlo_1e6_x_21(bencher: divan::Bencher) {
     let chain = &checked.chains[0];
     let plan = lower(chain).expect("lowers");
     let b = budget::budget(chain, &plan, &BudgetOptions::default()).expect("budget");
-    bencher.bench(|| {
-        b.points
-            .iter()
-            .take(21)
-            .enumerate()
-            .map(|(i, p)| {
-                let env = Env {
-                    measurand: p.measurand,
-                    ambient: p.ambient,
-                    cold_junction: p.ambient,
-                };
-                interval(
-                    &plan,
-                    &env,
-                    &b.noise,
-                    1.0 / p.codes_per_unit.abs(),
-                    1_000_000,
-                    1,
-                    i as u64,
-                )
-                .expect("runs")
-                .high
-            })
-            .sum::<f64>()
-    });
+    bencher.bench(|| monte_carlo_over_points(&plan, &b, 21, 1_000_000));
 }
 
 /// `budget` of every demo spec at the default settings (21 points at each
@@ -181,28 +189,5 @@ fn monte_carlo_gum_rtd_1e6_x_21(bencher: divan::Bencher) {
     let chain = &checked.chains[0];
     let plan = lower(chain).expect("lowers");
     let b = budget::budget(chain, &plan, &BudgetOptions::default()).expect("budget");
-    bencher.bench(|| {
-        b.points
-            .iter()
-            .enumerate()
-            .map(|(i, p)| {
-                let env = Env {
-                    measurand: p.measurand,
-                    ambient: p.ambient,
-                    cold_junction: p.ambient,
-                };
-                interval(
-                    &plan,
-                    &env,
-                    &b.noise,
-                    1.0 / p.codes_per_unit.abs(),
-                    1_000_000,
-                    1,
-                    i as u64,
-                )
-                .expect("runs")
-                .high
-            })
-            .sum::<f64>()
-    });
+    bencher.bench(|| monte_carlo_over_points(&plan, &b, 21, 1_000_000));
 }

@@ -5,8 +5,9 @@ mod common;
 
 use common::{catena, root};
 
-fn budget(spec: &str, args: &[&str]) -> serde_json::Value {
-    let dir = root().join("tests/fixtures/budget");
+/// `catena budget --format json` of a spec in `dir` (relative to the root).
+fn budget_in(dir: &str, spec: &str, args: &[&str]) -> serde_json::Value {
+    let dir = root().join(dir);
     let mut all = vec!["budget", spec, "--format", "json"];
     all.extend_from_slice(args);
     let run = catena(&dir, &all, None);
@@ -17,6 +18,20 @@ fn budget(spec: &str, args: &[&str]) -> serde_json::Value {
         run.stderr
     );
     serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("{e}: {}", run.stdout))
+}
+
+fn budget(spec: &str, args: &[&str]) -> serde_json::Value {
+    budget_in("tests/fixtures/budget", spec, args)
+}
+
+/// One source of a budget point, by id.
+fn source<'a>(point: &'a serde_json::Value, id: &str) -> &'a serde_json::Value {
+    point["sources"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|s| s["id"] == id)
+        .unwrap_or_else(|| panic!("no source {id} in {point}"))
 }
 
 fn f(v: &serde_json::Value) -> f64 {
@@ -130,9 +145,9 @@ fn gum_matches_the_uncertainties_library() {
         .filter(|l| !l.starts_with('#') && !l.starts_with("t_c"))
     {
         let cols: Vec<&str> = line.split(',').collect();
-        let (t, source, u): (f64, &str, f64) =
+        let (t, id, u): (f64, &str, f64) =
             (cols[0].parse().unwrap(), cols[1], cols[2].parse().unwrap());
-        if source == "combined" {
+        if id == "combined" {
             continue;
         }
         // Points at 0, 100 and 200 degC, at the reference ambient (the
@@ -141,16 +156,10 @@ fn gum_matches_the_uncertainties_library() {
             .iter()
             .find(|p| (f(&p["measurand"]) - t).abs() < 1e-9)
             .expect("a point at the fixture's temperature");
-        let s = p["sources"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .find(|s| s["id"] == source)
-            .unwrap_or_else(|| panic!("no source {source}"));
-        let ours = f(&s["standard_uncertainty"]);
+        let ours = f(&source(p, id)["standard_uncertainty"]);
         assert!(
             (ours - u).abs() <= 1e-4 * u,
-            "{source} at {t} degC: {ours} vs {u}"
+            "{id} at {t} degC: {ours} vs {u}"
         );
         checked += 1;
     }
@@ -178,12 +187,7 @@ fn offset_calibration_removes_the_offset() {
         &["--points", "3", "--trials", "0"],
     );
     for p in v["points"].as_array().unwrap() {
-        let offset = p["sources"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .find(|s| s["id"] == "conv.offset")
-            .unwrap();
+        let offset = source(p, "conv.offset");
         assert!(f(&offset["contribution"]) < 1e-9, "{p}");
     }
 }
@@ -192,31 +196,16 @@ fn offset_calibration_removes_the_offset() {
 /// whose reference resistor shares the probe's current source.
 #[test]
 fn ratiometric_excitation_cancels() {
-    let run = catena(
-        &root(),
-        &[
-            "budget",
-            "specs/cold_store.catena",
-            "--format",
-            "json",
-            "--trials",
-            "0",
-            "--points",
-            "5",
-        ],
-        None,
+    let v = budget_in(
+        ".",
+        "specs/cold_store.catena",
+        &["--trials", "0", "--points", "5"],
     );
-    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
     for p in v["points"].as_array().unwrap() {
-        let drive = p["sources"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .find(|s| s["id"] == "drive.current")
-            .unwrap();
-        // What remains is self-heating, which moves with I²R/δ (0.5 % of
-        // the current alone would be about 1.3 K without the ratio).
-        assert!(f(&drive["contribution"]) < 1e-4, "{p}");
+        // What remains is self-heating, which moves with I²R/δ. Without the
+        // ratio, 0.5 % of the current would be 0.5 % of a Pt1000's
+        // 880 … 1060 Ω over this range at about 3.9 Ω/K (IEC 60751): 1.1 … 1.4 K.
+        assert!(f(&source(p, "drive.current")["contribution"]) < 1e-4, "{p}");
     }
 }
 
@@ -319,21 +308,11 @@ fn over_gained_amplifier_gets_the_largest_gain() {
 /// 1 µF filter and 24-bit converter give 1 ms × 25 ln 2 = 17.33 ms.
 #[test]
 fn rc_settles_to_half_a_code() {
-    let run = catena(
-        &root(),
-        &[
-            "budget",
-            "specs/cold_store.catena",
-            "--format",
-            "json",
-            "--trials",
-            "0",
-            "--points",
-            "2",
-        ],
-        None,
+    let v = budget_in(
+        ".",
+        "specs/cold_store.catena",
+        &["--trials", "0", "--points", "2"],
     );
-    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
     let t = f(&v["dynamics"]["filter_settling_half_lsb_s"]);
     assert!((t - 1e-3 * 25.0 * 2f64.ln()).abs() < 1e-9, "{t}");
 }
@@ -381,25 +360,16 @@ fn human_budget() {
 /// is the nominal chain's code there.
 #[test]
 fn alarms_get_a_guard_band_and_codes() {
-    let run = catena(
-        &root(),
-        &[
-            "budget",
-            "specs/cold_store.catena",
-            "--format",
-            "json",
-            "--trials",
-            "0",
-            "--points",
-            "3",
-        ],
-        None,
+    let v = budget_in(
+        ".",
+        "specs/cold_store.catena",
+        &["--trials", "0", "--points", "3"],
     );
-    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
     let alarm = &v["alarms"][0];
     assert_eq!(alarm["side"], "high");
     assert!((f(&alarm["at"]) - 8.0).abs() < 1e-9);
     let guard = f(&alarm["guard_band"]);
+    // Inside the chain's own `require accuracy ± 0.3 K`, which it meets.
     assert!(guard > 0.0 && guard < 0.3, "{alarm}");
     assert!((f(&alarm["trip_at"]) - (8.0 - guard)).abs() < 1e-9);
     let eval = catena(

@@ -28,7 +28,7 @@ fn primary(s: Signal) -> f64 {
 pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError> {
     let mut path = signal_path(plan, plan.adc);
     path.reverse();
-    let nominal = plan.evaluate_raw(&plan.nominal, env)?.signals;
+    let nominal = plan.raw_signals(&plan.nominal, env)?;
     let (lo, hi) = plan.range;
     let h = (hi - lo) * 1e-4;
     let up = plan
@@ -56,9 +56,9 @@ pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError>
             continue;
         }
         values[s] = slot.nominal + slot.plus;
-        let high = plan.evaluate_raw(&values, env)?.signals;
+        let high = plan.raw_signals(&values, env)?;
         values[s] = slot.nominal - slot.minus;
-        let low = plan.evaluate_raw(&values, env)?.signals;
+        let low = plan.raw_signals(&values, env)?;
         values[s] = slot.nominal;
         let divisor = if slot.normal { 3.0 } else { 3f64.sqrt() };
         for (k, &n) in path.iter().enumerate() {

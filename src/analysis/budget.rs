@@ -74,11 +74,7 @@ pub fn ambients(chain: &Chain) -> Vec<f64> {
 }
 
 pub fn measurand_points(plan: &Plan, n: usize) -> Vec<f64> {
-    let (lo, hi) = plan.range;
-    let n = n.max(2);
-    (0..n)
-        .map(|k| lo + (hi - lo) * k as f64 / (n - 1) as f64)
-        .collect()
+    crate::eval::grid(plan.range, n)
 }
 
 /// Every (measurand, ambient) condition the analyses visit: `points`

@@ -7,6 +7,7 @@ use super::stages::{low_pass, number, signal_path, stage};
 use crate::eval::{Env, Node, Plan, Signal};
 use crate::model::Chain;
 use crate::physics::noise::{johnson_voltage_density, rms_with_flicker};
+use crate::units::Dim;
 
 /// Lower band edge for 1/f noise in a DC measurement: the common practice
 /// of integrating from 0.1 Hz.
@@ -102,12 +103,8 @@ fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>)
             continue;
         };
         let stated = t.plus.max(t.minus);
-        // A density (per root hertz, as written) integrates over the
-        // bandwidth; the value alone cannot tell, since the limit is SI.
-        let is_density = s.params.iter().any(|p| {
-            let text = p.file.slice(p.span);
-            p.name == "noise" && (text.contains("rtHz") || text.contains("√Hz"))
-        });
+        // A density (per root hertz) integrates over the bandwidth.
+        let is_density = t.dim == Dim::CURRENT_DENSITY || t.dim == Dim::VOLTAGE_DENSITY;
         let rms = match (is_density, enbw_hz) {
             (true, Some(bw)) => stated * bw.sqrt(),
             (true, None) => continue,

@@ -66,32 +66,22 @@ pub struct Envelope {
 }
 
 impl Envelope {
-    /// How far inside the limit the signal stays, as a fraction of the
-    /// limit's span (negative: outside).
-    pub fn headroom(&self) -> f64 {
+    /// The limit's span: the interval's width, or the one finite end's
+    /// magnitude for a one-sided limit.
+    pub fn span(&self) -> f64 {
         let (lo, hi) = self.allowed;
-        let span = if lo.is_finite() && hi.is_finite() {
+        if lo.is_finite() && hi.is_finite() {
             hi - lo
         } else if hi.is_finite() {
             hi.abs()
         } else {
             lo.abs()
-        };
-        let below = if lo.is_finite() {
-            self.reach.0 - lo
-        } else {
-            f64::INFINITY
-        };
-        let above = if hi.is_finite() {
-            hi - self.reach.1
-        } else {
-            f64::INFINITY
-        };
-        below.min(above) / span.max(f64::MIN_POSITIVE)
+        }
     }
 
-    /// Whether the upper end is the one at risk.
-    pub fn high_side(&self) -> bool {
+    /// How far the reach stays above the lower end and below the upper
+    /// (infinite for an end not stated; negative: beyond it).
+    fn distances(&self) -> (f64, f64) {
         let (lo, hi) = self.allowed;
         let below = if lo.is_finite() {
             self.reach.0 - lo
@@ -103,6 +93,19 @@ impl Envelope {
         } else {
             f64::INFINITY
         };
+        (below, above)
+    }
+
+    /// How far inside the limit the signal stays, as a fraction of the
+    /// limit's span (negative: outside).
+    pub fn headroom(&self) -> f64 {
+        let (below, above) = self.distances();
+        below.min(above) / self.span().max(f64::MIN_POSITIVE)
+    }
+
+    /// Whether the upper end is the one at risk.
+    pub fn high_side(&self) -> bool {
+        let (below, above) = self.distances();
         above <= below
     }
 }
@@ -314,7 +317,7 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
         .map_init(
             || plan.nominal.clone(),
             |values, env| -> Result<Vec<(f64, f64)>, EvalError> {
-                let nominal = plan.evaluate_raw(&plan.nominal, env)?.signals;
+                let nominal = plan.raw_signals(&plan.nominal, env)?;
                 let q0: Vec<f64> = checks
                     .iter()
                     .map(|c| value(plan, &plan.nominal, &nominal, c))
@@ -326,9 +329,9 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
                     let mut per_check = vec![(0.0f64, 0.0f64); checks.len()];
                     for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
                         values[s] = x;
-                        let signals = plan.evaluate_raw(values, env);
+                        let signals = plan.raw_signals(values, env);
                         values[s] = plan.nominal[s];
-                        let signals = signals?.signals;
+                        let signals = signals?;
                         for (k, c) in checks.iter().enumerate() {
                             let d = value(plan, values, &signals, c) - q0[k];
                             per_check[k].0 = per_check[k].0.min(d);
@@ -420,11 +423,7 @@ pub fn findings(
                 .position(|s| s.id == format!("{}.{name}", stage.name))
                 .map(|i| plan.nominal[i])
         };
-        let span = if e.allowed.0.is_finite() && e.allowed.1.is_finite() {
-            e.allowed.1 - e.allowed.0
-        } else {
-            bound.abs()
-        };
+        let span = e.span();
         let target = if high {
             bound - margin * span
         } else {

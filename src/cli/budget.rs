@@ -278,7 +278,7 @@ struct BudgetJson {
     requirements: Vec<RequirementJson>,
 }
 
-fn plan_name(_chain: &Chain, a: &Analysis, node: usize) -> String {
+fn plan_name(a: &Analysis, node: usize) -> String {
     a.names.get(node).cloned().unwrap_or_default()
 }
 
@@ -370,7 +370,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
             .envelopes
             .iter()
             .map(|e| LimitJson {
-                stage: plan_name(chain, a, e.node),
+                stage: plan_name(a, e.node),
                 limit: e.limit.describe(),
                 unit: if e.unit == "of full scale" {
                     "1"
@@ -398,7 +398,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
             .accumulation
             .iter()
             .map(|n| StageJson {
-                stage: plan_name(chain, a, n.node),
+                stage: plan_name(a, n.node),
                 value: n.value,
                 unit: n.unit,
                 gain: n.gain,

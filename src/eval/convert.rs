@@ -269,10 +269,7 @@ impl Conversion {
         };
         self.method = match method {
             "exact" => {
-                let (a, b) = self.domain;
-                let xs: Vec<f64> = (0..INVERSE_POINTS)
-                    .map(|k| a + (b - a) * k as f64 / (INVERSE_POINTS - 1) as f64)
-                    .collect();
+                let xs = grid(self.domain, INVERSE_POINTS);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 // Beyond the range a stage may clip and the code go flat:
                 // keep the stretch around the range where the code still
@@ -298,10 +295,7 @@ impl Conversion {
                 }
             }
             "table" => {
-                let n = points.max(2) as usize;
-                let xs: Vec<f64> = (0..n)
-                    .map(|k| lo + (hi - lo) * k as f64 / (n - 1) as f64)
-                    .collect();
+                let xs = grid(self.range, points.max(2) as usize);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 if !strictly_monotonic(&codes) {
                     return Err("the code is not monotonic over the measurand range".into());
@@ -310,10 +304,7 @@ impl Conversion {
             }
             _ => {
                 let terms = points as usize + 1;
-                let m = POLY_POINTS_PER_TERM * terms;
-                let xs: Vec<f64> = (0..m)
-                    .map(|k| lo + (hi - lo) * k as f64 / (m - 1) as f64)
-                    .collect();
+                let xs = grid(self.range, POLY_POINTS_PER_TERM * terms);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 let (cmin, cmax) = codes
                     .iter()
@@ -415,6 +406,14 @@ fn monotonic_around(xs: &[f64], codes: &[f64], range: (f64, f64)) -> Option<(usi
         i1 += 1;
     }
     Some((i0, i1))
+}
+
+/// `n` evenly spaced points from one end of `range` to the other (n ≥ 2).
+pub fn grid((lo, hi): (f64, f64), n: usize) -> Vec<f64> {
+    let n = n.max(2);
+    (0..n)
+        .map(|k| lo + (hi - lo) * k as f64 / (n - 1) as f64)
+        .collect()
 }
 
 fn strictly_monotonic(v: &[f64]) -> bool {

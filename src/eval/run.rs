@@ -61,10 +61,22 @@ const NICKEL_RANGE_C: (f64, f64) = (-60.0, 180.0);
 const COPPER_RANGE_C: (f64, f64) = (-50.0, 150.0);
 
 impl Plan {
+    /// Every node's signal in one run, on the stack.
+    fn signals(
+        &self,
+        values: &[f64],
+        env: &Env,
+        until: usize,
+        mode: Mode,
+    ) -> Result<[Signal; MAX_NODES], EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, until, mode)?;
+        Ok(signals)
+    }
+
     /// Evaluates every node, conversions included.
     pub fn evaluate(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
-        let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.nodes.len(), Mode::FULL)?;
+        let signals = self.signals(values, env, self.nodes.len(), Mode::FULL)?;
         Ok(Outcome {
             signals: signals[..self.nodes.len()].to_vec(),
         })
@@ -628,11 +640,15 @@ impl Plan {
     /// Every node but the conversions, with amplifiers unclipped: how far
     /// each signal would go, for the range checks.
     pub fn evaluate_raw(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
-        let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.nodes.len(), Mode::RAW)?;
+        let signals = self.raw_signals(values, env)?;
         Ok(Outcome {
             signals: signals[..self.nodes.len()].to_vec(),
         })
+    }
+
+    /// [`Plan::evaluate_raw`] without allocating, for the analyses' loops.
+    pub fn raw_signals(&self, values: &[f64], env: &Env) -> Result<[Signal; MAX_NODES], EvalError> {
+        self.signals(values, env, self.nodes.len(), Mode::RAW)
     }
 
     /// The reading the firmware would compute from the converter's exact

@@ -26,10 +26,6 @@ fn stage_inputs(stage: &Stage) -> Vec<InputSpec> {
     })
 }
 
-fn has_output(_stage: &Stage) -> bool {
-    true
-}
-
 pub fn connect(
     file: &Arc<SourceFile>,
     stages: &mut [Stage],
@@ -195,9 +191,8 @@ fn lookup(
     if let Some(port) = &end.port {
         let stage = &stages[i];
         let mut names: Vec<&str> = stage_inputs(stage).iter().map(|s| s.port.name()).collect();
-        if has_output(stage) {
-            names.push("out");
-        }
+        // Every stage has an output.
+        names.push("out");
         if !names.contains(&port.name.as_str()) {
             let near = did_you_mean(&port.name, names.iter().copied());
             findings.push(
@@ -548,7 +543,7 @@ fn is_cold_junction_of_any(stages: &[Stage], i: usize) -> bool {
 }
 
 /// A thermocouple's `cold_junction <stage>` must name a sensor.
-pub fn check_references(file: &Arc<SourceFile>, stages: &[Stage], findings: &mut Findings) {
+pub fn check_references(stages: &[Stage], findings: &mut Findings) {
     for stage in stages {
         let Some(p) = stage.params.iter().find(|p| p.name == "cold_junction") else {
             continue;
@@ -579,6 +574,5 @@ pub fn check_references(file: &Arc<SourceFile>, stages: &[Stage], findings: &mut
             ),
             Some(_) => {}
         }
-        let _ = file;
     }
 }

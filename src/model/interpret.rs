@@ -38,7 +38,7 @@ pub fn interpret(
     };
     let value = r.shape(shape)?;
     r.finish(shape)?;
-    check_plausible(spec_name, &value, plausible, line, cx)?;
+    check_plausible(spec_name, &value, plausible, cx)?;
     Ok(value)
 }
 
@@ -346,6 +346,7 @@ impl Reader<'_> {
                     minus: v.abs(),
                     relative,
                     normal: false,
+                    dim: unit_dim(&q),
                     span,
                 })
             }
@@ -688,20 +689,33 @@ fn tolerance(
             (p.abs(), m.abs(), rel_p)
         }
     };
+    let written = match &t.form {
+        ToleranceForm::Symmetric(q) => q,
+        ToleranceForm::Asymmetric { minus, .. } => minus,
+    };
     Ok(Tolerance {
         plus,
         minus,
         relative,
         normal: t.normal,
+        dim: unit_dim(written),
         span: t.span,
     })
+}
+
+/// The dimension of a quantity's unit as written (plain for none).
+fn unit_dim(q: &QuantityLit) -> Dim {
+    q.unit
+        .as_ref()
+        .and_then(|u| parse_unit(&u.text).ok())
+        .map(|u| u.dim)
+        .unwrap_or(Dim::NONE)
 }
 
 fn check_plausible(
     name: &str,
     value: &ParamValue,
     plausible: Plausible,
-    line: Span,
     cx: &Context<'_>,
 ) -> Checked<()> {
     let fail = |span: Span, message: String, help: String| {
@@ -730,7 +744,6 @@ fn check_plausible(
         }
         _ => return Ok(()),
     };
-    let _ = line;
     let bad = match plausible {
         Plausible::Any => None,
         Plausible::Positive if nominal <= 0.0 => Some("must be greater than zero"),

@@ -165,7 +165,7 @@ pub fn resolve(
                 &mut findings,
             ));
         }
-        graph::check_references(file, &stages, &mut findings);
+        graph::check_references(&stages, &mut findings);
         let connections = graph::connect(file, &mut stages, &decl.edges, &mut findings);
         let reference = settings.reference.unwrap_or(DEFAULT_REFERENCE_K);
         chains.push(Chain {

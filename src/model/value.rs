@@ -14,6 +14,9 @@ pub struct Tolerance {
     pub relative: bool,
     /// A 3-sigma normal bound; otherwise a rectangular limit.
     pub normal: bool,
+    /// The dimension of the limits as written (where a parameter accepts
+    /// several, such as noise as an rms value or as a density).
+    pub dim: Dim,
     pub span: Span,
 }
 
