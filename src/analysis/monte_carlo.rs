@@ -12,7 +12,7 @@ use rand_pcg::Pcg64Mcg;
 use rayon::prelude::*;
 
 use super::noise::Noise;
-use crate::eval::{Env, EvalError, Plan, SourceKind};
+use crate::eval::{Env, EvalError, Plan, Slot, SourceKind};
 
 /// Trials per chunk: large enough to amortise the split, small enough to
 /// balance two to many cores.
@@ -24,6 +24,35 @@ pub const COVERAGE: f64 = 0.95;
 pub struct Interval {
     pub low: f64,
     pub high: f64,
+}
+
+/// One source's value as `origin + scale · x`, x standard normal or
+/// uniform on [0, 1), worked out once rather than per trial.
+struct Draw {
+    slot: usize,
+    normal: bool,
+    origin: f64,
+    scale: f64,
+}
+
+impl Draw {
+    fn of(slot: usize, s: &Slot) -> Draw {
+        let (origin, scale) = if s.normal {
+            // A normal limit is a 3σ bound about the interval's middle.
+            (
+                s.nominal + (s.plus - s.minus) / 2.0,
+                (s.plus + s.minus) / 6.0,
+            )
+        } else {
+            (s.nominal - s.minus, s.plus + s.minus)
+        };
+        Draw {
+            slot,
+            normal: s.normal,
+            origin,
+            scale,
+        }
+    }
 }
 
 /// splitmix64 (Steele, Lea and Flood, OOPSLA 2014): decorrelates the
@@ -53,8 +82,12 @@ pub fn interval(
         });
     }
     let chunks = trials.div_ceil(CHUNK);
-    let sources: Vec<usize> = (0..plan.slots.len())
-        .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
+    let sources: Vec<Draw> = plan
+        .slots
+        .iter()
+        .enumerate()
+        .filter(|(_, slot)| slot.kind != SourceKind::Exact)
+        .map(|(s, slot)| Draw::of(s, slot))
         .collect();
     let errors: Vec<Result<Vec<f64>, EvalError>> = (0..chunks)
         .into_par_iter()
@@ -66,17 +99,13 @@ pub fn interval(
             let mut values = plan.nominal.clone();
             let mut out = Vec::with_capacity(n);
             for _ in 0..n {
-                for &s in &sources {
-                    let slot = &plan.slots[s];
-                    values[s] = if slot.normal {
-                        // A normal limit is a 3σ bound about the interval's middle.
-                        let mid = slot.nominal + (slot.plus - slot.minus) / 2.0;
-                        let z: f64 = rng.sample(StandardNormal);
-                        mid + z * (slot.plus + slot.minus) / 6.0
+                for draw in &sources {
+                    let x: f64 = if draw.normal {
+                        rng.sample(StandardNormal)
                     } else {
-                        let u: f64 = rng.random();
-                        slot.nominal - slot.minus + u * (slot.plus + slot.minus)
+                        rng.random()
                     };
+                    values[draw.slot] = draw.origin + draw.scale * x;
                 }
                 let z: f64 = rng.sample(StandardNormal);
                 let q: f64 = rng.random::<f64>() - 0.5;

@@ -3,6 +3,8 @@
 //! (whose own error the budget counts), then the declared calibration.
 
 use super::plan::{Env, EvalError, NodeId, Plan, Senses, SlotId};
+use crate::physics::thermocouple::{self, ThermocoupleType};
+use crate::units::ZERO_CELSIUS_K;
 
 #[derive(Clone, Debug, PartialEq)]
 pub enum Method {
@@ -44,31 +46,65 @@ pub struct InverseTable {
     pub codes: Vec<f64>,
     /// dx/dcode at each point (Fritsch–Carlson monotone slopes).
     pub slopes: Vec<f64>,
-    /// The firmware model depends on nothing but the code (no thermocouple
-    /// cold junction), so the table is the inverse itself.
-    pub complete: bool,
+    pub stands_for: TableUse,
+    buckets: Buckets,
+}
+
+/// How far the tabulated inverse stands for the firmware model.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum TableUse {
+    /// The model depends on nothing but the code (no thermocouple cold
+    /// junction): the table is the inverse itself.
+    Complete,
+    /// A thermocouple's cold junction is the model's only other input, and
+    /// enters only through the couple's EMF: by the law of intermediate
+    /// temperatures, E(t, tj) = E(t) − E(tj), a code at junction tj is the
+    /// table's code (at the junction `reference_c`) for the temperature
+    /// whose EMF is E(t) − E(tj) + E(reference), `reference_mv` the
+    /// couple's EMF at the table's junction.
+    Junction {
+        ty: ThermocoupleType,
+        reference_mv: f64,
+    },
+    /// Only where Newton's method starts.
+    Start,
 }
 
 impl InverseTable {
-    fn new(xs: Vec<f64>, codes: Vec<f64>, complete: bool) -> InverseTable {
+    fn new(xs: Vec<f64>, codes: Vec<f64>, stands_for: TableUse) -> InverseTable {
         let slopes = monotone_slopes(&codes, &xs);
+        let buckets = Buckets::new(&codes);
         InverseTable {
             xs,
             codes,
             slopes,
-            complete,
+            stands_for,
+            buckets,
         }
+    }
+
+    /// The temperature (K) the junction-shifted table gives for `code`
+    /// with the junction at `cj` (K); None where it does not reach.
+    fn x_at_junction(
+        &self,
+        code: f64,
+        cj: f64,
+        ty: ThermocoupleType,
+        reference_mv: f64,
+    ) -> Option<f64> {
+        let at_reference = self.x_at(code)? - ZERO_CELSIUS_K;
+        let (e, seebeck) = thermocouple::emf_and_seebeck_mv(ty, at_reference).ok()?;
+        let shift = thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok()? - reference_mv;
+        // First order from the table's temperature, then Newton.
+        let t = thermocouple::temperature_near_c(ty, e + shift, at_reference + shift / seebeck)
+            .or_else(|| thermocouple::temperature_c(ty, e + shift).ok())?;
+        Some(t + ZERO_CELSIUS_K)
     }
 
     /// Monotone cubic Hermite interpolation of x at `code` (None outside).
     fn x_at(&self, code: f64) -> Option<f64> {
         let n = self.codes.len();
-        let increasing = self.codes[n - 1] > self.codes[0];
-        let k = if increasing {
-            self.codes.partition_point(|&c| c < code)
-        } else {
-            self.codes.partition_point(|&c| c > code)
-        };
+        let k = self.buckets.segment(&self.codes, code);
         if k == 0 || k >= n {
             return (code == self.codes[0]).then_some(self.xs[0]);
         }
@@ -82,6 +118,72 @@ impl InverseTable {
                 + (-2.0 * t3 + 3.0 * t2) * self.xs[k]
                 + (t3 - t2) * h * self.slopes[k],
         )
+    }
+}
+
+/// How many of the strictly monotonic `codes` lie before `code`.
+fn segment(codes: &[f64], code: f64) -> usize {
+    let n = codes.len();
+    if codes[n - 1] > codes[0] {
+        codes.partition_point(|&c| c < code)
+    } else {
+        codes.partition_point(|&c| c > code)
+    }
+}
+
+/// Buckets per table point in [`Buckets`]: enough that a bucket rarely
+/// spans more than one table step where the code is densest.
+const BUCKETS_PER_POINT: usize = 4;
+
+/// [`segment`] in constant time for one table: the code span cut into
+/// equal buckets, each knowing the first table point it may start at.
+/// Every reading of every Monte Carlo trial looks up its code here, and a
+/// binary search over hundreds of points costs more than the arithmetic
+/// around it.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Buckets {
+    first: f64,
+    per_code: f64,
+    start: Vec<u32>,
+}
+
+impl Buckets {
+    fn new(codes: &[f64]) -> Buckets {
+        let n = codes.len();
+        let count = BUCKETS_PER_POINT * n;
+        let (first, last) = (codes[0], codes[n - 1]);
+        let per_code = count as f64 / (last - first);
+        let start = (0..count)
+            .map(|j| segment(codes, first + j as f64 / per_code) as u32)
+            .collect();
+        Buckets {
+            first,
+            per_code,
+            start,
+        }
+    }
+
+    /// [`segment`]`(codes, code)` for the `codes` these buckets were made of.
+    fn segment(&self, codes: &[f64], code: f64) -> usize {
+        let n = codes.len();
+        let up = codes[n - 1] > codes[0];
+        let before = |c: f64| if up { c < code } else { c > code };
+        let position = (code - self.first) * self.per_code;
+        if !(position >= 0.0 && position < self.start.len() as f64) {
+            return segment(codes, code);
+        }
+        // Rounding may put a code a bucket off: step back, then forward.
+        let mut k = self.start[position as usize] as usize;
+        for _ in 0..8 {
+            if k > 0 && !before(codes[k - 1]) {
+                k -= 1;
+            } else if k < n && before(codes[k]) {
+                k += 1;
+            } else {
+                return k;
+            }
+        }
+        segment(codes, code)
     }
 }
 
@@ -181,17 +283,30 @@ impl Conversion {
                     self.nominal_code(plan, values, env, x, cj)
                         .map(|c| c - code)
                 };
-                match &self.inverse {
-                    Some(table) if table.complete => match table.x_at(code) {
-                        Some(x) => Ok(x),
-                        None => solve(f, self.domain),
-                    },
-                    Some(table) => match newton_from_table(&f, table, code, self.domain)? {
-                        Some(x) => Ok(x),
-                        None => solve(f, self.domain),
-                    },
-                    None => solve(f, self.domain),
+                let Some(table) = &self.inverse else {
+                    return solve(f, self.domain);
+                };
+                let direct = match table.stands_for {
+                    TableUse::Complete => table.x_at(code),
+                    TableUse::Junction {
+                        ty, reference_mv, ..
+                    } => {
+                        let junction = self.firmware_env(plan, values, env, 0.0, cj).cold_junction;
+                        table
+                            .x_at_junction(code, junction, ty, reference_mv)
+                            .filter(|x| (self.domain.0..=self.domain.1).contains(x))
+                    }
+                    TableUse::Start => None,
+                };
+                if let Some(x) = direct {
+                    return Ok(x);
                 }
+                if table.stands_for != TableUse::Complete {
+                    if let Some(x) = newton_from_table(&f, table, code, self.domain)? {
+                        return Ok(x);
+                    }
+                }
+                solve(f, self.domain)
             }
             Method::Linear {
                 code_low,
@@ -253,7 +368,8 @@ impl Conversion {
 
     /// Fits the method once the plan exists.
     /// `complete`: the firmware model depends on the code alone, so its
-    /// tabulated inverse can stand for it.
+    /// tabulated inverse can stand for it. `thermocouple`: the chain's one
+    /// measuring couple, whose junction the table may be shifted for.
     pub fn fit(
         &mut self,
         plan: &Plan,
@@ -261,6 +377,7 @@ impl Conversion {
         method: &str,
         points: u32,
         complete: bool,
+        thermocouple: Option<ThermocoupleType>,
     ) -> Result<(), String> {
         let (lo, hi) = self.range;
         let code = |x: f64| {
@@ -276,10 +393,17 @@ impl Conversion {
                 // moves one way, and let readings saturate at its ends.
                 if let Some((i0, i1)) = monotonic_around(&xs, &codes, self.range) {
                     self.domain = (xs[i0], xs[i1]);
+                    let stands_for = match thermocouple {
+                        _ if complete => TableUse::Complete,
+                        Some(ty) if self.variable == Senses::Measurand => {
+                            self.junction_law(plan, env, ty).unwrap_or(TableUse::Start)
+                        }
+                        _ => TableUse::Start,
+                    };
                     self.inverse = Some(InverseTable::new(
                         xs[i0..=i1].to_vec(),
                         codes[i0..=i1].to_vec(),
-                        complete,
+                        stands_for,
                     ));
                 }
                 Method::Exact
@@ -325,6 +449,34 @@ impl Conversion {
             }
         };
         Ok(())
+    }
+}
+
+impl Conversion {
+    /// [`TableUse::Junction`] when the firmware model obeys the law of
+    /// intermediate temperatures through `ty` alone: checked on the nominal
+    /// chain across the range with the junction 15 K either side of the
+    /// table's, so a second junction-sensing stage upstream (or any other
+    /// way the junction enters) keeps the general solver.
+    fn junction_law(&self, plan: &Plan, env: &Env, ty: ThermocoupleType) -> Option<TableUse> {
+        let reference_mv = thermocouple::emf_mv(ty, env.cold_junction - ZERO_CELSIUS_K).ok()?;
+        let code =
+            |x: f64, cj: Option<f64>| self.nominal_code(plan, &plan.nominal, env, x, cj).ok();
+        let span = (code(self.range.1, None)? - code(self.range.0, None)?).abs();
+        for x in grid(self.range, 5) {
+            for cj in [env.cold_junction - 15.0, env.cold_junction + 15.0] {
+                let emf = thermocouple::emf_mv(ty, x - ZERO_CELSIUS_K).ok()?
+                    - thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok()?
+                    + reference_mv;
+                let shifted = thermocouple::temperature_c(ty, emf).ok()? + ZERO_CELSIUS_K;
+                let (direct, predicted) = (code(x, Some(cj))?, code(shifted, None)?);
+                let close = (direct - predicted).abs() <= 1e-9 * span;
+                if !close {
+                    return None;
+                }
+            }
+        }
+        Some(TableUse::Junction { ty, reference_mv })
     }
 }
 
@@ -423,13 +575,7 @@ fn strictly_monotonic(v: &[f64]) -> bool {
 /// Piecewise-linear through (codes, xs), extrapolating the end segments.
 fn interpolate(codes: &[f64], xs: &[f64], code: f64) -> f64 {
     let n = codes.len();
-    let increasing = codes[n - 1] > codes[0];
-    let k = if increasing {
-        codes.partition_point(|&c| c < code)
-    } else {
-        codes.partition_point(|&c| c > code)
-    };
-    let k = k.clamp(1, n - 1);
+    let k = segment(codes, code).clamp(1, n - 1);
     let (c0, c1, x0, x1) = (codes[k - 1], codes[k], xs[k - 1], xs[k]);
     x0 + (code - c0) * (x1 - x0) / (c1 - c0)
 }
@@ -547,7 +693,24 @@ pub fn solve(
 
 #[cfg(test)]
 mod tests {
-    use super::{interpolate, least_squares, solve};
+    use super::{interpolate, least_squares, segment, solve, Buckets};
+
+    #[test]
+    fn buckets_agree_with_binary_search() {
+        // Uneven spacing (a cube, as dense as 0 and as sparse as 1200 codes
+        // a step) in both directions; probes inside, on the points and
+        // beyond both ends.
+        let up: Vec<f64> = (0..50).map(|k| (k as f64 - 20.0).powi(3)).collect();
+        let down: Vec<f64> = up.iter().rev().map(|c| -c).collect();
+        for codes in [&up, &down] {
+            let buckets = Buckets::new(codes);
+            for probe in (-12_000..=30_000).step_by(37).map(|p| p as f64) {
+                for code in [probe, codes[(probe.abs() as usize) % 50]] {
+                    assert_eq!(buckets.segment(codes, code), segment(codes, code), "{code}");
+                }
+            }
+        }
+    }
 
     #[test]
     fn brent_finds_a_cubic_root() {

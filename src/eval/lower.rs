@@ -741,10 +741,19 @@ fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<()
         cold_junction: plan.reference,
     };
     // A thermocouple makes the firmware model depend on the cold junction.
-    let has_thermocouple = plan
+    let couples: Vec<_> = plan
         .nodes
         .iter()
-        .any(|n| matches!(n, Node::Thermocouple { .. }));
+        .filter_map(|n| match n {
+            Node::Thermocouple { ty, senses, .. } => Some((*ty, *senses)),
+            _ => None,
+        })
+        .collect();
+    let has_thermocouple = !couples.is_empty();
+    let measuring_couple = match couples[..] {
+        [(ty, Senses::Measurand)] => Some(ty),
+        _ => None,
+    };
     for (node, &stage_index) in order.iter().enumerate() {
         let Node::Convert { conversion, .. } = &plan.nodes[node] else {
             continue;
@@ -817,6 +826,7 @@ fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<()
                 &method,
                 points,
                 conversion.variable == Senses::ColdJunction || !has_thermocouple,
+                measuring_couple,
             )
             .map_err(|what| not_invertible(&stage.name, what))?;
         if let Node::Convert { conversion: c, .. } = &mut plan.nodes[node] {

@@ -253,12 +253,9 @@ impl Plan {
                     RtdCurve::Copper => rtd::linear_resistance(values[*r0], rtd::COPPER_ALPHA, t_c),
                 };
                 let mut r = r_at(t_c);
-                // Self-heating raises the element above the measurand by
-                // I²R/δ; a few fixed-point steps converge (ΔT ≪ 1 K).
                 if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
-                    for _ in 0..4 {
-                        r = r_at(t_c + a * a * r / values[*d]);
-                    }
+                    let rise_per_ohm = a * a / values[*d];
+                    r = self_heated(r, |r| Ok::<_, ()>(r_at(t_c + rise_per_ohm * r))).unwrap_or(r);
                 }
                 let lead = lead.map(|l| values[l]).unwrap_or(0.0);
                 let mismatch = mismatch.map(|m| values[m]).unwrap_or(0.0);
@@ -267,14 +264,16 @@ impl Plan {
             Node::Thermocouple { ty, senses, class } => {
                 let range = ty.range_c();
                 let t = self.sensed(i, *senses, env, values) - ZERO_CELSIUS_K;
-                let kind = format!("type {} thermocouple", ty.letter());
+                // Messages are built only on the way out: this runs in
+                // every Monte Carlo trial.
+                let kind = || format!("type {} thermocouple", ty.letter());
                 let t = within(t, range)
-                    .ok_or_else(|| self.out_of_range(i, &kind, t + ZERO_CELSIUS_K, range))?;
+                    .ok_or_else(|| self.out_of_range(i, &kind(), t + ZERO_CELSIUS_K, range))?;
                 if let Some(class) = class {
-                    let what = format!("class {class} of a type {} thermocouple", ty.letter());
                     let class_range =
                         thermocouple::class_range_c(*ty, *class).unwrap_or((f64::NAN, f64::NAN));
                     within(t, class_range).ok_or_else(|| {
+                        let what = format!("class {class} of a type {} thermocouple", ty.letter());
                         self.out_of_range(i, &what, t + ZERO_CELSIUS_K, class_range)
                     })?;
                 }
@@ -282,12 +281,7 @@ impl Plan {
                 let tj = within(tj, range).unwrap_or(tj);
                 let e = |t_c: f64| {
                     thermocouple::emf_mv(*ty, t_c).map_err(|e| {
-                        self.out_of_range(
-                            i,
-                            &format!("type {} thermocouple", ty.letter()),
-                            t_c + ZERO_CELSIUS_K,
-                            (e.low, e.high),
-                        )
+                        self.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high))
                     })
                 };
                 let v = (e(t)? - e(tj)?) * 1e-3;
@@ -335,9 +329,8 @@ impl Plan {
                 };
                 let mut r = r_at(t).map_err(bad)?;
                 if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
-                    for _ in 0..4 {
-                        r = r_at(t + a * a * r / values[*d]).map_err(bad)?;
-                    }
+                    let rise_per_ohm = a * a / values[*d];
+                    r = self_heated(r, |r| r_at(t + rise_per_ohm * r)).map_err(bad)?;
                 }
                 element(r, *input)
             }
@@ -513,7 +506,7 @@ impl Plan {
                 };
                 Signal::Code {
                     exact,
-                    code: exact.round().clamp(lo, hi) as i64,
+                    code: round_code(exact, lo, hi),
                 }
             }
             Node::Convert {
@@ -603,6 +596,34 @@ fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
         .then(|| t_c.clamp(lo, hi))
 }
 
+/// The resistance of an element that self-heats by I²R/δ: the fixed point
+/// of `r = at(r)` (`at` the resistance at the temperature the element
+/// reaches dissipating in `r`), from `cold`, its resistance unheated. The
+/// map contracts strongly (|dr'/dr| = I²/δ · |dR/dT| ≪ 1), so two steps,
+/// Aitken's Δ² extrapolation and one more step land where many plain steps
+/// would.
+fn self_heated<E>(cold: f64, at: impl Fn(f64) -> Result<f64, E>) -> Result<f64, E> {
+    let r1 = at(cold)?;
+    let r2 = at(r1)?;
+    let curvature = (r2 - r1) - (r1 - cold);
+    let extrapolated = r2 - (r2 - r1) * (r2 - r1) / curvature;
+    at(if extrapolated.is_finite() {
+        extrapolated
+    } else {
+        r2
+    })
+}
+
+/// The nearest code (halves away from zero) within `lo ..= hi`, both
+/// whole: `f64::round` is a library call on baseline x86-64, and every
+/// evaluation rounds.
+fn round_code(exact: f64, lo: f64, hi: f64) -> i64 {
+    let x = exact.clamp(lo, hi);
+    let whole = x as i64;
+    let fraction = x - whole as f64;
+    whole + i64::from(fraction >= 0.5) - i64::from(fraction <= -0.5)
+}
+
 fn finite(s: Signal) -> bool {
     match s {
         Signal::None => true,
@@ -667,5 +688,58 @@ impl Plan {
             _ => None,
         });
         conversion.apply(self, values, env, exact, cj)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{round_code, self_heated};
+    use crate::physics::{rtd, thermistor};
+
+    /// The fixed point by plain iteration, far past convergence.
+    fn settled(at: impl Fn(f64) -> f64, cold: f64) -> f64 {
+        (0..200).fold(cold, |r, _| at(r))
+    }
+
+    #[test]
+    fn self_heating_matches_the_settled_fixed_point() {
+        // A Pt100 at 1 mA and 0.5 mW/K heats by 0.2 K; a 10 kΩ thermistor
+        // (β 3950) at 100 µA and 1 mW/K by 0.1 K; the same at 10 µA/mW/K
+        // scales show the extrapolation does no harm when nothing heats.
+        let cvd = rtd::CvdCoefficients::IEC_60751;
+        for (amps, delta) in [(1e-3, 5e-4), (3e-3, 5e-4), (1e-6, 5e-4)] {
+            let at = |r: f64| rtd::resistance(100.0, cvd, 20.0 + amps * amps / delta * r);
+            let want = settled(at, at(0.0));
+            let got = self_heated(rtd::resistance(100.0, cvd, 20.0), |r| Ok::<_, ()>(at(r)));
+            let got = got.unwrap();
+            assert!((got - want).abs() < 1e-11, "{amps} A: {got} vs {want}");
+        }
+        let t = 298.15;
+        for (amps, delta) in [(1e-4, 1e-3), (3e-4, 1e-3)] {
+            let at = |r: f64| {
+                thermistor::beta_resistance(1e4, 298.15, 3950.0, t + amps * amps / delta * r)
+                    .unwrap()
+            };
+            let want = settled(at, at(0.0));
+            let got = self_heated(at(0.0), |r| Ok::<_, ()>(at(r))).unwrap();
+            assert!(
+                (got - want).abs() < 1e-8 * want,
+                "{amps} A: {got} vs {want}"
+            );
+        }
+    }
+
+    #[test]
+    fn codes_round_as_f64_round_then_clamp() {
+        let halves = (-40..=40).map(|k| k as f64 * 0.5);
+        let near = [
+            0.49999999999999994,
+            -0.49999999999999994,
+            2.5000000000000004,
+        ];
+        for x in halves.chain(near).chain([f64::MAX, f64::MIN, 1e300]) {
+            let want = x.round().clamp(-8.0, 7.0) as i64;
+            assert_eq!(round_code(x, -8.0, 7.0), want, "{x}");
+        }
     }
 }
