@@ -24,6 +24,10 @@ pub struct AlarmLimit {
 
 pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit>, EvalError> {
     let mut out = Vec::new();
+    if chain.alarms.is_empty() {
+        return Ok(out);
+    }
+    let sources = budget::Perturbations::of(plan)?;
     for alarm in &chain.alarms {
         let mut guard: f64 = 0.0;
         let mut values = plan.nominal.clone();
@@ -33,7 +37,13 @@ pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit
                 ambient,
                 cold_junction: ambient,
             };
-            guard = guard.max(budget::gum_expanded_at(plan, &env, &mut values, k)?);
+            guard = guard.max(budget::gum_expanded_at(
+                plan,
+                &env,
+                &mut values,
+                &sources,
+                k,
+            )?);
         }
         let trip_at = if alarm.side == "high" {
             alarm.at - guard

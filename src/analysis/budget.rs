@@ -7,7 +7,7 @@
 use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
-use crate::eval::{Env, EvalError, Plan, SourceKind};
+use crate::eval::{Calibrated, Env, EvalError, Plan, SourceKind};
 use crate::model::Chain;
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -126,12 +126,13 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
     let (v_slope, c_slope) = slopes(plan, &mid)?;
     let noise = noise(chain, plan, &mid, v_slope, 1.0 / c_slope.abs());
     let conditions = conditions(chain, plan, options.points);
+    let sources = Perturbations::of(plan)?;
     // Points are independent: on every core, gathered in order.
     let points = conditions
         .par_iter()
         .map_init(
             || plan.nominal.clone(),
-            |values, env| point(plan, env, values, &noise, options.k),
+            |values, env| point(plan, env, values, &sources, &noise, options.k),
         )
         .collect::<Result<Vec<_>, _>>()?;
     Ok(Budget {
@@ -141,12 +142,55 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
     })
 }
 
+/// Every error source at its two limits, with what the calibration saw
+/// there: the calibration points sit at the reference, so they do not
+/// change from one condition to the next and are worked out once.
+pub struct Perturbations {
+    nominal: Calibrated,
+    sources: Vec<Perturbation>,
+}
+
+struct Perturbation {
+    slot: usize,
+    limits: [(f64, Calibrated); 2],
+}
+
+impl Perturbations {
+    pub fn of(plan: &Plan) -> Result<Perturbations, EvalError> {
+        let mut values = plan.nominal.clone();
+        let mut sources = Vec::new();
+        for (s, slot) in plan.slots.iter().enumerate() {
+            if slot.kind == SourceKind::Exact {
+                continue;
+            }
+            let mut at = |x: f64| -> Result<(f64, Calibrated), EvalError> {
+                values[s] = x;
+                let calibrated = plan.calibration(&values);
+                values[s] = plan.nominal[s];
+                Ok((x, calibrated?))
+            };
+            sources.push(Perturbation {
+                slot: s,
+                limits: [
+                    at(slot.nominal - slot.minus)?,
+                    at(slot.nominal + slot.plus)?,
+                ],
+            });
+        }
+        Ok(Perturbations {
+            nominal: plan.calibration(&plan.nominal)?,
+            sources,
+        })
+    }
+}
+
 /// The GUM expanded uncertainty at one condition, without noise (which
 /// averages out of a slow alarm).
 pub fn gum_expanded_at(
     plan: &Plan,
     env: &Env,
     values: &mut [f64],
+    sources: &Perturbations,
     k: f64,
 ) -> Result<f64, EvalError> {
     let quiet = Noise {
@@ -161,31 +205,31 @@ pub fn gum_expanded_at(
         noise_free_averaged: 0.0,
         lsb: 0.0,
     };
-    Ok(point(plan, env, values, &quiet, k)?.gum_expanded)
+    Ok(point(plan, env, values, sources, &quiet, k)?.gum_expanded)
 }
 
 fn point(
     plan: &Plan,
     env: &Env,
     values: &mut [f64],
+    sources: &Perturbations,
     noise: &Noise,
     k: f64,
 ) -> Result<Point, EvalError> {
-    let r0 = plan.unquantized_reading(&plan.nominal, env)?;
+    let r0 = plan.unquantized_reading_calibrated(&plan.nominal, env, &sources.nominal)?;
     let (volts_per_unit, codes_per_unit) = slopes(plan, env)?;
-    let mut contributions = Vec::new();
-    for (s, slot) in plan.slots.iter().enumerate() {
-        if slot.kind == SourceKind::Exact {
-            continue;
-        }
-        let mut at = |x: f64| -> Result<f64, EvalError> {
+    let mut contributions = Vec::with_capacity(sources.sources.len() + 3);
+    for source in &sources.sources {
+        let s = source.slot;
+        let slot = &plan.slots[s];
+        let mut at = |(x, calibrated): (f64, Calibrated)| -> Result<f64, EvalError> {
             values[s] = x;
-            let r = plan.unquantized_reading(values, env);
+            let r = plan.unquantized_reading_calibrated(values, env, &calibrated);
             values[s] = plan.nominal[s];
             Ok(r? - r0)
         };
-        let low = at(slot.nominal - slot.minus)?;
-        let high = at(slot.nominal + slot.plus)?;
+        let low = at(source.limits[0])?;
+        let high = at(source.limits[1])?;
         let divisor = if slot.normal { 3.0 } else { SQRT3 };
         contributions.push(Contribution {
             id: slot.id.clone(),

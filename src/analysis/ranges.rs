@@ -324,9 +324,10 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
                     .collect();
                 let mut up = vec![0.0; checks.len()];
                 let mut down = vec![0.0; checks.len()];
+                let mut per_check = vec![(0.0f64, 0.0f64); checks.len()];
                 for &s in &sources {
                     let slot = &plan.slots[s];
-                    let mut per_check = vec![(0.0f64, 0.0f64); checks.len()];
+                    per_check.fill((0.0, 0.0));
                     for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
                         values[s] = x;
                         let signals = plan.raw_signals(values, env);

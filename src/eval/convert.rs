@@ -38,6 +38,15 @@ pub enum Calibration {
     },
 }
 
+/// What a calibration found: the offset it corrects by, or the readings
+/// (less their references' errors) at its two points.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Calibrated {
+    None,
+    Offset(f64),
+    TwoPoint { read: (f64, f64) },
+}
+
 /// The nominal code at evenly spaced points of the domain: where Newton's
 /// method starts, so an exact inverse costs a few evaluations, not forty.
 #[derive(Clone, Debug, PartialEq)]
@@ -335,8 +344,14 @@ impl Conversion {
         cj: Option<f64>,
     ) -> Result<f64, EvalError> {
         let x = self.invert(plan, values, env, code, cj)?;
-        // Calibration points are taken at the reference temperature with
-        // the chain as built (its actual values), averaged to its exact code.
+        self.correct(plan, x, &self.calibrate(plan, values)?)
+    }
+
+    /// What the calibration saw with these values. Its points are taken at
+    /// the reference temperature, so it depends on the values alone: an
+    /// analysis that varies only the condition works it out once.
+    pub fn calibrate(&self, plan: &Plan, values: &[f64]) -> Result<Calibrated, EvalError> {
+        // The chain as built (its actual values), averaged to its exact code.
         let at = |p: f64| -> Result<f64, EvalError> {
             let cal = Env {
                 measurand: p,
@@ -348,14 +363,26 @@ impl Conversion {
         };
         let err = |s: Option<SlotId>| s.map(|s| values[s]).unwrap_or(0.0);
         Ok(match self.calibration {
-            Calibration::None => x,
+            Calibration::None => Calibrated::None,
             // A reference that reads δ high makes the chain read δ high.
-            Calibration::Offset { at: p, error } => x + (p - at(p)?) + err(error),
+            Calibration::Offset { at: p, error } => Calibrated::Offset(p - at(p)? + err(error)),
             Calibration::TwoPoint {
                 at: (p1, p2),
                 errors: (e1, e2),
-            } => {
-                let (r1, r2) = (at(p1)? - err(e1), at(p2)? - err(e2));
+            } => Calibrated::TwoPoint {
+                read: (at(p1)? - err(e1), at(p2)? - err(e2)),
+            },
+        })
+    }
+
+    /// The firmware's correction of reading `x` by what it calibrated.
+    pub fn correct(&self, plan: &Plan, x: f64, calibrated: &Calibrated) -> Result<f64, EvalError> {
+        Ok(match (*calibrated, self.calibration) {
+            (Calibrated::Offset(shift), _) => x + shift,
+            (
+                Calibrated::TwoPoint { read: (r1, r2) },
+                Calibration::TwoPoint { at: (p1, p2), .. },
+            ) => {
                 if r2 == r1 {
                     return Err(
                         plan.numeric(self.adc, "the calibration points give the same reading")
@@ -363,6 +390,7 @@ impl Conversion {
                 }
                 p1 + (x - r1) * (p2 - p1) / (r2 - r1)
             }
+            _ => x,
         })
     }
 

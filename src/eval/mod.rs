@@ -12,7 +12,7 @@ mod lower;
 mod plan;
 mod run;
 
-pub use convert::{grid, Calibration, Conversion, TableUse};
+pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
 pub use lower::lower;
 pub use plan::{
     BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal,

@@ -1,6 +1,7 @@
 //! One evaluation: every node in order, each a pure function of its
 //! inputs' signals, the parameter values and the environment.
 
+use super::convert::{Calibrated, Conversion};
 use super::plan::{
     BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses,
     Signal, ThermistorCurve,
@@ -675,6 +676,23 @@ impl Plan {
     /// The reading the firmware would compute from the converter's exact
     /// (unrounded) code: the chain without quantization.
     pub fn unquantized_reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {
+        let calibrated = self.calibration(values)?;
+        self.unquantized_reading_calibrated(values, env, &calibrated)
+    }
+
+    /// What the main conversion's calibration saw with these values.
+    pub fn calibration(&self, values: &[f64]) -> Result<Calibrated, EvalError> {
+        self.main_conversion()?.calibrate(self, values)
+    }
+
+    /// [`Plan::unquantized_reading`] with the calibration already known
+    /// (from [`Plan::calibration`] with the same values).
+    pub fn unquantized_reading_calibrated(
+        &self,
+        values: &[f64],
+        env: &Env,
+        calibrated: &Calibrated,
+    ) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         self.run(values, env, &mut signals, self.reading, Mode::UNQUANTIZED)?;
         let Signal::Code { exact, .. } = signals[self.adc] else {
@@ -687,7 +705,15 @@ impl Plan {
             Signal::Reading(t) => Some(t),
             _ => None,
         });
-        conversion.apply(self, values, env, exact, cj)
+        let x = conversion.invert(self, values, env, exact, cj)?;
+        conversion.correct(self, x, calibrated)
+    }
+
+    fn main_conversion(&self) -> Result<&Conversion, EvalError> {
+        match &self.nodes[self.reading] {
+            Node::Convert { conversion, .. } => Ok(conversion),
+            _ => Err(self.numeric(self.reading, "no conversion")),
+        }
     }
 }
 
