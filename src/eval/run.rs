@@ -491,8 +491,9 @@ impl Plan {
                     * (1.0 + gain_error.map(|g| values[g]).unwrap_or(0.0));
                 let off = offset.map(|o| values[o]).unwrap_or(0.0);
                 let per_ref = match polarity {
-                    Polarity::Unipolar => 2f64.powi(*bits as i32),
-                    Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
+                    // A shift, not `powi`: that is a library call per run.
+                    Polarity::Unipolar => (1u64 << *bits) as f64,
+                    Polarity::Bipolar => (1u64 << (*bits - 1)) as f64,
                 };
                 // INL is a fraction of the full-scale code span.
                 let full_scale = match polarity {
