@@ -12,7 +12,7 @@ use rand_pcg::Pcg64Mcg;
 use rayon::prelude::*;
 
 use super::noise::Noise;
-use crate::eval::{Env, EvalError, Plan, Slot, SourceKind};
+use crate::eval::{Env, EvalError, Plan, Slot, SourceKind, LANES};
 
 /// Trials per chunk: large enough to amortise the split, small enough to
 /// balance two to many cores.
@@ -96,21 +96,43 @@ pub fn interval(
             let mut rng = Pcg64Mcg::seed_from_u64(mix(
                 seed ^ mix(point.wrapping_mul(0x1_0000_0001) ^ chunk as u64)
             ));
-            let mut values = plan.nominal.clone();
+            let slots = plan.nominal.len();
+            // Trials go through the evaluator LANES at a time; the draws
+            // keep their order, trial by trial, so the lane count changes
+            // no result.
+            let mut values = plan.nominal.repeat(LANES);
+            let mut extra = [(0.0, 0.0); LANES];
+            let mut readings = [0.0; LANES];
             let mut out = Vec::with_capacity(n);
-            for _ in 0..n {
-                for draw in &sources {
-                    let x: f64 = if draw.normal {
-                        rng.sample(StandardNormal)
-                    } else {
-                        rng.random()
-                    };
-                    values[draw.slot] = draw.origin + draw.scale * x;
+            let mut left = n;
+            while left > 0 {
+                let lanes = left.min(LANES);
+                for (lane, extra) in extra.iter_mut().enumerate().take(lanes) {
+                    let values = &mut values[lane * slots..(lane + 1) * slots];
+                    for draw in &sources {
+                        let x: f64 = if draw.normal {
+                            rng.sample(StandardNormal)
+                        } else {
+                            rng.random()
+                        };
+                        values[draw.slot] = draw.origin + draw.scale * x;
+                    }
+                    let z: f64 = rng.sample(StandardNormal);
+                    let q: f64 = rng.random::<f64>() - 0.5;
+                    *extra = (z, q);
                 }
-                let z: f64 = rng.sample(StandardNormal);
-                let q: f64 = rng.random::<f64>() - 0.5;
-                let r = plan.unquantized_reading(&values, env)?;
-                out.push(r - env.measurand + z * noise.sigma_averaged + q * lsb);
+                if lanes == LANES {
+                    plan.unquantized_readings(&values, env, &mut readings)?;
+                } else {
+                    for (lane, reading) in readings.iter_mut().enumerate().take(lanes) {
+                        *reading = plan
+                            .unquantized_reading(&values[lane * slots..(lane + 1) * slots], env)?;
+                    }
+                }
+                for (&r, &(z, q)) in readings.iter().zip(&extra).take(lanes) {
+                    out.push(r - env.measurand + z * noise.sigma_averaged + q * lsb);
+                }
+                left -= lanes;
             }
             Ok(out)
         })

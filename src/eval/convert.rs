@@ -38,6 +38,15 @@ pub enum Calibration {
     },
 }
 
+/// Where calibration points are taken: at the reference temperature.
+pub fn calibration_env(plan: &Plan, measurand: f64) -> Env {
+    Env {
+        measurand,
+        ambient: plan.reference,
+        cold_junction: plan.reference,
+    }
+}
+
 /// What a calibration found: the offset it corrects by, or the readings
 /// (less their references' errors) at its two points.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -57,6 +66,9 @@ pub struct InverseTable {
     pub slopes: Vec<f64>,
     pub stands_for: TableUse,
     buckets: Buckets,
+    /// Each segment's Hermite cubic as a polynomial in (code − its first
+    /// code), so a lookup costs three multiply-adds and no division.
+    cubics: Vec<[f64; 4]>,
 }
 
 /// How far the tabulated inverse stands for the firmware model.
@@ -83,12 +95,26 @@ impl InverseTable {
     fn new(xs: Vec<f64>, codes: Vec<f64>, stands_for: TableUse) -> InverseTable {
         let slopes = monotone_slopes(&codes, &xs);
         let buckets = Buckets::new(&codes);
+        let cubics = (1..codes.len())
+            .map(|k| {
+                let h = codes[k] - codes[k - 1];
+                let (x0, x1, m0, m1) = (xs[k - 1], xs[k], slopes[k - 1], slopes[k]);
+                let secant = (x1 - x0) / h;
+                [
+                    x0,
+                    m0,
+                    (3.0 * secant - 2.0 * m0 - m1) / h,
+                    (m0 + m1 - 2.0 * secant) / (h * h),
+                ]
+            })
+            .collect();
         InverseTable {
             xs,
             codes,
             slopes,
             stands_for,
             buckets,
+            cubics,
         }
     }
 
@@ -117,16 +143,9 @@ impl InverseTable {
         if k == 0 || k >= n {
             return (code == self.codes[0]).then_some(self.xs[0]);
         }
-        let (c0, c1) = (self.codes[k - 1], self.codes[k]);
-        let h = c1 - c0;
-        let t = (code - c0) / h;
-        let (t2, t3) = (t * t, t * t * t);
-        Some(
-            (2.0 * t3 - 3.0 * t2 + 1.0) * self.xs[k - 1]
-                + (t3 - 2.0 * t2 + t) * h * self.slopes[k - 1]
-                + (-2.0 * t3 + 3.0 * t2) * self.xs[k]
-                + (t3 - t2) * h * self.slopes[k],
-        )
+        let u = code - self.codes[k - 1];
+        let [a0, a1, a2, a3] = self.cubics[k - 1];
+        Some(a0 + u * (a1 + u * (a2 + u * a3)))
     }
 }
 
@@ -352,25 +371,44 @@ impl Conversion {
     /// analysis that varies only the condition works it out once.
     pub fn calibrate(&self, plan: &Plan, values: &[f64]) -> Result<Calibrated, EvalError> {
         // The chain as built (its actual values), averaged to its exact code.
-        let at = |p: f64| -> Result<f64, EvalError> {
-            let cal = Env {
-                measurand: p,
-                ambient: plan.reference,
-                cold_junction: plan.reference,
-            };
-            let c = plan.exact_code(values, &cal, self.adc)?;
-            self.invert(plan, values, &cal, c, None)
+        let mut codes = [0.0; 2];
+        for (code, p) in codes.iter_mut().zip(self.calibration_points()) {
+            *code = plan.exact_code(values, &calibration_env(plan, p), self.adc)?;
+        }
+        self.calibrated_from(plan, values, &codes)
+    }
+
+    /// The measurand values the calibration is taken at (none, one or two).
+    pub fn calibration_points(&self) -> impl Iterator<Item = f64> {
+        let points = match self.calibration {
+            Calibration::None => [None, None],
+            Calibration::Offset { at, .. } => [Some(at), None],
+            Calibration::TwoPoint { at: (a, b), .. } => [Some(a), Some(b)],
         };
+        points.into_iter().flatten()
+    }
+
+    /// What the calibration saw, from the chain's exact codes at its points
+    /// (in the order of [`Conversion::calibration_points`]).
+    pub fn calibrated_from(
+        &self,
+        plan: &Plan,
+        values: &[f64],
+        codes: &[f64; 2],
+    ) -> Result<Calibrated, EvalError> {
+        let at = |p: f64, code: f64| self.invert(plan, values, &calibration_env(plan, p), code, None);
         let err = |s: Option<SlotId>| s.map(|s| values[s]).unwrap_or(0.0);
         Ok(match self.calibration {
             Calibration::None => Calibrated::None,
             // A reference that reads δ high makes the chain read δ high.
-            Calibration::Offset { at: p, error } => Calibrated::Offset(p - at(p)? + err(error)),
+            Calibration::Offset { at: p, error } => {
+                Calibrated::Offset(p - at(p, codes[0])? + err(error))
+            }
             Calibration::TwoPoint {
                 at: (p1, p2),
                 errors: (e1, e2),
             } => Calibrated::TwoPoint {
-                read: (at(p1)? - err(e1), at(p2)? - err(e2)),
+                read: (at(p1, codes[0])? - err(e1), at(p2, codes[1])? - err(e2)),
             },
         })
     }

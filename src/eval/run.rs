@@ -1,7 +1,7 @@
 //! One evaluation: every node in order, each a pure function of its
 //! inputs' signals, the parameter values and the environment.
 
-use super::convert::{Calibrated, Conversion};
+use super::convert::{calibration_env, Calibrated, Conversion};
 use super::plan::{
     BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses,
     Signal, ThermistorCurve,
@@ -47,6 +47,8 @@ impl Mode {
 
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
 pub const MAX_NODES: usize = 32;
+/// Evaluations [`Plan::unquantized_readings`] runs side by side.
+pub const LANES: usize = 8;
 
 /// The signals of one evaluation, by node.
 #[derive(Clone, Debug, PartialEq)]
@@ -117,7 +119,7 @@ impl Plan {
             if !mode.convert && matches!(self.nodes[i], Node::Convert { .. }) {
                 continue;
             }
-            let s = self.node(i, values, env, signals, mode)?;
+            let s = self.node(i, values, env, signals, mode, None)?;
             if !finite(s) {
                 return Err(self.numeric(i, "a signal is not a finite number"));
             }
@@ -174,6 +176,7 @@ impl Plan {
         }
     }
 
+    #[inline(always)]
     fn node(
         &self,
         i: NodeId,
@@ -181,6 +184,7 @@ impl Plan {
         env: &Env,
         s: &[Signal; MAX_NODES],
         mode: Mode,
+        junction_mv: Option<f64>,
     ) -> Result<Signal, EvalError> {
         let current_into = |input: Option<NodeId>| match input.map(|n| s[n]) {
             Some(Signal::Current(a)) => Some(a),
@@ -278,14 +282,16 @@ impl Plan {
                         self.out_of_range(i, &what, t + ZERO_CELSIUS_K, class_range)
                     })?;
                 }
-                let tj = env.cold_junction - ZERO_CELSIUS_K;
-                let tj = within(tj, range).unwrap_or(tj);
                 let e = |t_c: f64| {
                     thermocouple::emf_mv(*ty, t_c).map_err(|e| {
                         self.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high))
                     })
                 };
-                let v = (e(t)? - e(tj)?) * 1e-3;
+                let at_junction = match junction_mv {
+                    Some(e) => e,
+                    None => e(junction_c(*ty, env))?,
+                };
+                let v = (e(t)? - at_junction) * 1e-3;
                 Signal::Voltage {
                     v,
                     cm: 0.0,
@@ -589,6 +595,14 @@ impl Plan {
     }
 }
 
+/// The cold junction's temperature for a couple of type `ty`, °C, held to
+/// the type's range (a junction beyond it is the sensor's finding, not the
+/// couple's).
+fn junction_c(ty: thermocouple::ThermocoupleType, env: &Env) -> f64 {
+    let tj = env.cold_junction - ZERO_CELSIUS_K;
+    within(tj, ty.range_c()).unwrap_or(tj)
+}
+
 /// Range ends written in °C come back through kelvin a few ulps off;
 /// within a nanokelvin of an end counts as the end.
 fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
@@ -708,6 +722,107 @@ impl Plan {
         });
         let x = conversion.invert(self, values, env, exact, cj)?;
         conversion.correct(self, x, calibrated)
+    }
+
+    /// [`Plan::unquantized_reading`] for [`LANES`] sets of values at once
+    /// (`values` holds them one after another), into `readings`.
+    ///
+    /// The nodes run one at a time across every lane rather than one lane
+    /// through every node: each run is a long chain of dependent arithmetic
+    /// that would keep the processor waiting, and independent lanes fill
+    /// the wait. The arithmetic is the single-run code, lane by lane, so the
+    /// readings are the same to the bit; on any error the lanes are redone
+    /// one by one, so the error is the one a single run meets first.
+    pub fn unquantized_readings(
+        &self,
+        values: &[f64],
+        env: &Env,
+        readings: &mut [f64; LANES],
+    ) -> Result<(), EvalError> {
+        let n = self.slots.len();
+        if self.lane_readings(values, env, readings).is_err() {
+            for (lane, reading) in readings.iter_mut().enumerate() {
+                *reading = self.unquantized_reading(&values[lane * n..(lane + 1) * n], env)?;
+            }
+        }
+        Ok(())
+    }
+
+    fn lane_readings(
+        &self,
+        values: &[f64],
+        env: &Env,
+        readings: &mut [f64; LANES],
+    ) -> Result<(), EvalError> {
+        let n = self.slots.len();
+        let lane = |k: usize| &values[k * n..(k + 1) * n];
+        let conversion = self.main_conversion()?;
+        let mut signals = [[Signal::None; MAX_NODES]; LANES];
+        // The calibration's exact codes, lane by lane, point by point.
+        let mut codes = [[0.0; 2]; LANES];
+        for (j, p) in conversion.calibration_points().enumerate() {
+            self.run_lanes(
+                values,
+                &calibration_env(self, p),
+                &mut signals,
+                self.adc + 1,
+                Mode::CODES,
+            )?;
+            for (k, lane_codes) in codes.iter_mut().enumerate() {
+                let Signal::Code { exact, .. } = signals[k][self.adc] else {
+                    return Err(self.numeric(self.adc, "no code"));
+                };
+                lane_codes[j] = exact;
+            }
+        }
+        self.run_lanes(values, env, &mut signals, self.reading, Mode::UNQUANTIZED)?;
+        let Node::Convert { cj, .. } = &self.nodes[self.reading] else {
+            return Err(self.numeric(self.reading, "no conversion"));
+        };
+        for (k, reading) in readings.iter_mut().enumerate() {
+            let Signal::Code { exact, .. } = signals[k][self.adc] else {
+                return Err(self.numeric(self.adc, "no code"));
+            };
+            let cj = cj.and_then(|c| match signals[k][c] {
+                Signal::Reading(t) => Some(t),
+                _ => None,
+            });
+            let x = conversion.invert(self, lane(k), env, exact, cj)?;
+            let calibrated = conversion.calibrated_from(self, lane(k), &codes[k])?;
+            *reading = conversion.correct(self, x, &calibrated)?;
+        }
+        Ok(())
+    }
+
+    /// [`Plan::run`] for every lane, node by node.
+    fn run_lanes(
+        &self,
+        values: &[f64],
+        env: &Env,
+        signals: &mut [[Signal; MAX_NODES]; LANES],
+        until: usize,
+        mode: Mode,
+    ) -> Result<(), EvalError> {
+        let n = self.slots.len();
+        for i in 0..until.min(self.nodes.len()) {
+            if !mode.convert && matches!(self.nodes[i], Node::Convert { .. }) {
+                continue;
+            }
+            // What depends on the condition alone is worked out once for
+            // all lanes: the couple's EMF at the (actual) cold junction.
+            let junction_mv = match self.nodes[i] {
+                Node::Thermocouple { ty, .. } => thermocouple::emf_mv(ty, junction_c(ty, env)).ok(),
+                _ => None,
+            };
+            for (k, lane) in signals.iter_mut().enumerate() {
+                let s = self.node(i, &values[k * n..(k + 1) * n], env, lane, mode, junction_mv)?;
+                if !finite(s) {
+                    return Err(self.numeric(i, "a signal is not a finite number"));
+                }
+                lane[i] = s;
+            }
+        }
+        Ok(())
     }
 
     fn main_conversion(&self) -> Result<&Conversion, EvalError> {
