@@ -66,9 +66,61 @@ pub struct InverseTable {
     pub slopes: Vec<f64>,
     pub stands_for: TableUse,
     buckets: Buckets,
+    /// With [`TableUse::Junction`]: the tables that make the shift two
+    /// lookups and one EMF.
+    junction: Option<Box<JunctionTables>>,
     /// Each segment's Hermite cubic as a polynomial in (code − its first
     /// code), so a lookup costs three multiply-adds and no division.
     cubics: Vec<[f64; 4]>,
+}
+
+/// A thermocouple chain's inverse as tables: the couple's EMF (at the
+/// table's junction) the firmware infers from a code, and the temperature
+/// of an EMF.
+#[derive(Clone, Debug, PartialEq)]
+pub struct JunctionTables {
+    emf: InverseTable,
+    temperature: InverseTable,
+}
+
+/// Points of the EMF-to-temperature table.
+const TEMPERATURE_POINTS: usize = 1025;
+/// How far beyond the domain it reaches, K: the shift a cold junction
+/// away from the reference makes.
+const JUNCTION_REACH_K: f64 = 150.0;
+
+impl JunctionTables {
+    fn new(table: &InverseTable, ty: ThermocoupleType, domain: (f64, f64)) -> Option<Self> {
+        let emf_c = |t_k: f64| thermocouple::emf_mv(ty, t_k - ZERO_CELSIUS_K).ok();
+        let emfs = table
+            .xs
+            .iter()
+            .map(|&x| emf_c(x))
+            .collect::<Option<Vec<_>>>()?;
+        let (lo, hi) = thermocouple::invertible_range_c(ty);
+        let span = (
+            (domain.0 - JUNCTION_REACH_K).max(lo + ZERO_CELSIUS_K),
+            (domain.1 + JUNCTION_REACH_K).min(hi + ZERO_CELSIUS_K),
+        );
+        let ts = grid(span, TEMPERATURE_POINTS);
+        let (es, per_mv): (Vec<f64>, Vec<f64>) = ts
+            .iter()
+            .map(|&t| {
+                let (e, seebeck) = thermocouple::emf_and_seebeck_mv(ty, t - ZERO_CELSIUS_K).ok()?;
+                Some((e, 1.0 / seebeck))
+            })
+            .collect::<Option<Vec<_>>>()?
+            .into_iter()
+            .unzip();
+        let finite_slopes = per_mv.iter().all(|m| m.is_finite() && *m > 0.0);
+        if !finite_slopes || !strictly_monotonic(&emfs) || !strictly_monotonic(&es) {
+            return None;
+        }
+        Some(JunctionTables {
+            emf: InverseTable::new(emfs, table.codes.clone(), TableUse::Complete),
+            temperature: InverseTable::with_slopes(ts, es, per_mv, TableUse::Complete),
+        })
+    }
 }
 
 /// How far the tabulated inverse stands for the firmware model.
@@ -94,6 +146,17 @@ pub enum TableUse {
 impl InverseTable {
     fn new(xs: Vec<f64>, codes: Vec<f64>, stands_for: TableUse) -> InverseTable {
         let slopes = monotone_slopes(&codes, &xs);
+        InverseTable::with_slopes(xs, codes, slopes, stands_for)
+    }
+
+    /// A table whose dx/dcode is known exactly at every point: the cubic
+    /// is then accurate to the fourth power of the spacing, not the third.
+    fn with_slopes(
+        xs: Vec<f64>,
+        codes: Vec<f64>,
+        slopes: Vec<f64>,
+        stands_for: TableUse,
+    ) -> InverseTable {
         let buckets = Buckets::new(&codes);
         let cubics = (1..codes.len())
             .map(|k| {
@@ -114,6 +177,7 @@ impl InverseTable {
             slopes,
             stands_for,
             buckets,
+            junction: None,
             cubics,
         }
     }
@@ -127,6 +191,11 @@ impl InverseTable {
         ty: ThermocoupleType,
         reference_mv: f64,
     ) -> Option<f64> {
+        let shift = |cj: f64| thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok();
+        if let Some(tables) = &self.junction {
+            let emf = tables.emf.x_at(code)? - reference_mv + shift(cj)?;
+            return tables.temperature.x_at(emf);
+        }
         let at_reference = self.x_at(code)? - ZERO_CELSIUS_K;
         let (e, seebeck) = thermocouple::emf_and_seebeck_mv(ty, at_reference).ok()?;
         let shift = thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok()? - reference_mv;
@@ -396,7 +465,8 @@ impl Conversion {
         values: &[f64],
         codes: &[f64; 2],
     ) -> Result<Calibrated, EvalError> {
-        let at = |p: f64, code: f64| self.invert(plan, values, &calibration_env(plan, p), code, None);
+        let at =
+            |p: f64, code: f64| self.invert(plan, values, &calibration_env(plan, p), code, None);
         let err = |s: Option<SlotId>| s.map(|s| values[s]).unwrap_or(0.0);
         Ok(match self.calibration {
             Calibration::None => Calibrated::None,
@@ -466,11 +536,15 @@ impl Conversion {
                         }
                         _ => TableUse::Start,
                     };
-                    self.inverse = Some(InverseTable::new(
+                    let mut table = InverseTable::new(
                         xs[i0..=i1].to_vec(),
                         codes[i0..=i1].to_vec(),
                         stands_for,
-                    ));
+                    );
+                    if let (TableUse::Junction { ty, .. }, Some(_)) = (stands_for, thermocouple) {
+                        table.junction = JunctionTables::new(&table, ty, self.domain).map(Box::new);
+                    }
+                    self.inverse = Some(table);
                 }
                 Method::Exact
             }
