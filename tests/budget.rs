@@ -390,3 +390,33 @@ fn alarms_get_a_guard_band_and_codes() {
         "{e} {alarm}"
     );
 }
+
+/// Each Monte Carlo interval says what its ends are good to, and that
+/// shrinks as 1/√M: ten times the trials, about a third of the width. The
+/// longer run's ends fall within the shorter run's stated reach.
+#[test]
+fn monte_carlo_states_its_numerical_width() {
+    let run = |trials: &str| {
+        budget_in(
+            ".",
+            "specs/cold_store.catena",
+            &["--trials", trials, "--points", "2"],
+        )
+    };
+    let (short, long) = (run("4000"), run("40000"));
+    let points = |v: &serde_json::Value| v["points"].as_array().unwrap().clone();
+    for (a, b) in points(&short).iter().zip(points(&long)) {
+        let (wa, wb) = (
+            a["monte_carlo_numerical"].as_f64().unwrap(),
+            b["monte_carlo_numerical"].as_f64().unwrap(),
+        );
+        assert!(wa > 0.0 && (2.2..4.5).contains(&(wa / wb)), "{wa} vs {wb}");
+        for end in [0, 1] {
+            let (ea, eb) = (
+                a["monte_carlo_95"][end].as_f64().unwrap(),
+                b["monte_carlo_95"][end].as_f64().unwrap(),
+            );
+            assert!((ea - eb).abs() <= wa + wb, "{ea} vs {eb} (± {wa})");
+        }
+    }
+}

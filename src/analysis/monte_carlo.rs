@@ -24,6 +24,13 @@ pub const COVERAGE: f64 = 0.95;
 pub struct Interval {
     pub low: f64,
     pub high: f64,
+    /// How far either end may lie from where unlimited trials would put
+    /// it: the half-width of a distribution-free 95 % bracket on the end's
+    /// rank (the binomial count of trials below a quantile), read from the
+    /// order statistics on its outer side, where trials are sparser, so
+    /// it errs wide (by a fifth for a normal output); the larger of the
+    /// two ends.
+    pub numerical: f64,
 }
 
 /// One source's value as `origin + scale · x`, x standard normal or
@@ -79,6 +86,7 @@ pub fn interval(
         return Ok(Interval {
             low: 0.0,
             high: 0.0,
+            numerical: 0.0,
         });
     }
     let chunks = trials.div_ceil(CHUNK);
@@ -141,19 +149,95 @@ pub fn interval(
     for chunk in errors {
         all.extend(chunk?);
     }
+    Ok(coverage(&mut all))
+}
+
+/// The probabilistically symmetric 95 % interval of `all` (not empty),
+/// which it reorders.
+fn coverage(all: &mut [f64]) -> Interval {
     // Two order statistics, found by selection in linear time rather than
     // by sorting a million errors.
     let tail = (1.0 - COVERAGE) / 2.0;
     let rank = |p: f64| ((p * all.len() as f64).floor() as usize).min(all.len() - 1);
     let (low_rank, high_rank) = (rank(tail), rank(1.0 - tail));
-    let (_, high, _) = all.select_nth_unstable_by(high_rank, f64::total_cmp);
+    // The count of trials below a p-quantile is binomial: ±1.96 of its
+    // standard deviation in rank brackets the end at 95 %.
+    let m = all.len() as f64;
+    let reach = (1.96 * (m * tail * (1.0 - tail)).sqrt()).ceil() as usize;
+    let (_, high, above) = all.select_nth_unstable_by(high_rank, f64::total_cmp);
     let high = *high;
-    let low = if low_rank < high_rank {
-        *all[..high_rank]
-            .select_nth_unstable_by(low_rank, f64::total_cmp)
-            .1
-    } else {
-        high
+    let high_spread = match above.len() {
+        0 => 0.0,
+        n => {
+            *above
+                .select_nth_unstable_by(reach.clamp(1, n) - 1, f64::total_cmp)
+                .1
+                - high
+        }
     };
-    Ok(Interval { low, high })
+    let (low, low_spread) = if low_rank < high_rank {
+        let (below, low, _) = all[..high_rank].select_nth_unstable_by(low_rank, f64::total_cmp);
+        let low = *low;
+        let spread = match below.len() {
+            0 => 0.0,
+            n => {
+                low - *below
+                    .select_nth_unstable_by(n - reach.clamp(1, n), f64::total_cmp)
+                    .1
+            }
+        };
+        (low, spread)
+    } else {
+        (high, 0.0)
+    };
+    Interval {
+        low,
+        high,
+        numerical: high_spread.max(low_spread),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{coverage, mix};
+    use rand::{RngExt, SeedableRng};
+    use rand_distr::StandardNormal;
+    use rand_pcg::Pcg64Mcg;
+
+    fn normal_sample(seed: u64, n: usize) -> Vec<f64> {
+        let mut rng = Pcg64Mcg::seed_from_u64(mix(seed));
+        (0..n).map(|_| rng.sample(StandardNormal)).collect()
+    }
+
+    /// For a normal output the interval is ±1.959964 σ, and an end's
+    /// numerical half-width is 1.96 · √(p(1 − p)/M) / φ(1.96) (the
+    /// asymptotic standard error of a sample quantile): at M = 10⁴,
+    /// 0.0524 σ. Read from the outer side it comes out up to a fifth wider,
+    /// never narrower; over 300 repeats the ends scatter by the true value
+    /// over 1.96.
+    #[test]
+    fn interval_and_its_numerical_width_match_the_normal_case() {
+        const M: usize = 10_000;
+        let phi = (-1.959964f64 * 1.959964 / 2.0).exp() / (2.0 * std::f64::consts::PI).sqrt();
+        let expected = 1.96 * (0.025f64 * 0.975 / M as f64).sqrt() / phi;
+        let (mut highs, mut widths) = (Vec::new(), Vec::new());
+        for seed in 0..300 {
+            let i = coverage(&mut normal_sample(seed, M));
+            highs.push(i.high);
+            widths.push(i.numerical);
+            assert!(i.low < 0.0 && i.high > 0.0);
+        }
+        let mean = |v: &[f64]| v.iter().sum::<f64>() / v.len() as f64;
+        let (high, width) = (mean(&highs), mean(&widths));
+        let spread = (highs.iter().map(|h| (h - high).powi(2)).sum::<f64>() / 299.0).sqrt();
+        assert!((high - 1.959964).abs() < 0.01, "mean high end {high}");
+        assert!(
+            (1.0..1.3).contains(&(width / expected)),
+            "{width} vs {expected}"
+        );
+        assert!(
+            (1.96 * spread / expected - 1.0).abs() < 0.2,
+            "{spread} vs {expected}"
+        );
+    }
 }

@@ -196,6 +196,8 @@ struct PointJson {
     k: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     monte_carlo_95: Option<[f64; 2]>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    monte_carlo_numerical: Option<f64>,
     linearisation: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     gum_expanded_uncalibrated: Option<f64>,
@@ -305,6 +307,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
                 .monte_carlo
                 .as_ref()
                 .map(|m| [m[i].low * f, m[i].high * f]),
+            monte_carlo_numerical: a.monte_carlo.as_ref().map(|m| m[i].numerical * f),
             linearisation: p.linearisation * f,
             gum_expanded_uncalibrated: a.uncalibrated.as_ref().map(|u| u[i] * f),
             sources: p
