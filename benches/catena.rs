@@ -4,8 +4,8 @@
 use std::path::Path;
 
 use catena::analysis::budget::{self, Options as BudgetOptions};
-use catena::analysis::monte_carlo::interval;
-use catena::analysis::report::{analyse, Options};
+use catena::analysis::monte_carlo::{interval, intervals, Condition};
+use catena::analysis::report::{analyse, Options, DEFAULT_TRIALS};
 use catena::check::check_bytes;
 use catena::eval::{lower, Env};
 use catena::model::PartsCache;
@@ -14,35 +14,31 @@ fn main() {
     divan::main();
 }
 
-/// Monte Carlo with `trials` at each of the first `points` budget points.
+/// Monte Carlo with `trials` at each of the first `points` budget points,
+/// as `analyse` runs it.
 fn monte_carlo_over_points(
     plan: &catena::eval::Plan,
     b: &budget::Budget,
     points: usize,
     trials: usize,
 ) -> f64 {
-    b.points
+    let conditions: Vec<Condition> = b
+        .points
         .iter()
         .take(points)
-        .enumerate()
-        .map(|(i, p)| {
-            let env = Env {
+        .map(|p| Condition {
+            env: Env {
                 measurand: p.measurand,
                 ambient: p.ambient,
                 cold_junction: p.ambient,
-            };
-            interval(
-                plan,
-                &env,
-                &b.noise,
-                1.0 / p.codes_per_unit.abs(),
-                trials,
-                1,
-                i as u64,
-            )
-            .expect("runs")
-            .high
+            },
+            lsb: 1.0 / p.codes_per_unit.abs(),
         })
+        .collect();
+    intervals(plan, &conditions, &b.noise, trials, 1, &|_, _| {})
+        .expect("runs")
+        .iter()
+        .map(|i| i.high)
         .sum()
 }
 
@@ -142,24 +138,27 @@ fn monte_carlo_1e5_largest_chain(bencher: divan::Bencher) {
     });
 }
 
-/// 10^6 trials at each of 21 points of the cold store.
-#[divan::bench(sample_count = 1, sample_size = 1)]
-fn monte_carlo_1e6_x_21(bencher: divan::Bencher) {
-    let checked = check_bytes(
-        "cold_store.catena",
-        &spec("cold_store.catena"),
-        &specs_dir(),
-        &mut PartsCache::default(),
-    );
-    let chain = &checked.chains[0];
+/// 10^6 trials at each of 21 points (the first ambient's) of a demo chain:
+/// the cold store (a calibrated RTD: two runs a trial) and the oven zone
+/// (the largest chain: eight stages, two converters, a thermocouple).
+#[divan::bench(sample_count = 3, sample_size = 1, args = ["cold_store.catena:cold_store", "bakery_oven.catena:oven_zone"])]
+fn monte_carlo_1e6_x_21(bencher: divan::Bencher, which: &str) {
+    let (file, name) = which.split_once(':').expect("file:chain");
+    let checked = check_bytes(file, &spec(file), &specs_dir(), &mut PartsCache::default());
+    let chain = checked
+        .chains
+        .iter()
+        .find(|c| c.name == name)
+        .expect("the chain");
     let plan = lower(chain).expect("lowers");
     let b = budget::budget(chain, &plan, &BudgetOptions::default()).expect("budget");
     bencher.bench(|| monte_carlo_over_points(&plan, &b, 21, 1_000_000));
 }
 
-/// `budget` of every demo spec at the default settings (21 points at each
-/// ambient, 10^5 trials per point).
-#[divan::bench(sample_count = 1, sample_size = 1, args = ["cold_store.catena", "bakery_oven.catena", "battery_pack.catena", "greenhouse_soil.catena", "weighing_hopper.catena"])]
+/// `budget` of every demo spec as the command runs it by default: 21
+/// points at each ambient, the default trials per point, and the detail
+/// (range envelopes, signal path, calibration, alarms) it prints.
+#[divan::bench(sample_count = 5, sample_size = 1, args = ["cold_store.catena", "bakery_oven.catena", "battery_pack.catena", "greenhouse_soil.catena", "weighing_hopper.catena"])]
 fn budget_default(bencher: divan::Bencher, name: &str) {
     let checked = check_bytes(name, &spec(name), &specs_dir(), &mut PartsCache::default());
     let plans: Vec<_> = checked
@@ -168,7 +167,8 @@ fn budget_default(bencher: divan::Bencher, name: &str) {
         .map(|c| (c, lower(c).expect("lowers")))
         .collect();
     let options = Options {
-        trials: Some(100_000),
+        trials: Some(DEFAULT_TRIALS),
+        detail: true,
         ..Options::default()
     };
     bencher.bench(|| {

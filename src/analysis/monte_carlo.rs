@@ -71,8 +71,20 @@ fn mix(mut z: u64) -> u64 {
     z ^ (z >> 31)
 }
 
+/// One condition a Monte Carlo runs at: the environment and one code in
+/// measurand units (the quantization step added to each trial).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Condition {
+    pub env: Env,
+    pub lsb: f64,
+}
+
+/// Trials held in memory at once, across the conditions run together.
+const TRIALS_IN_FLIGHT: usize = 1 << 22;
+
 /// The error (reading − measurand) of `trials` draws at `env`, and its
-/// 95 % interval. `lsb` is one code in measurand units.
+/// 95 % interval. `lsb` is one code in measurand units; `point` numbers
+/// the condition for its generators' seeds.
 pub fn interval(
     plan: &Plan,
     env: &Env,
@@ -82,12 +94,52 @@ pub fn interval(
     seed: u64,
     point: u64,
 ) -> Result<Interval, EvalError> {
+    let condition = Condition { env: *env, lsb };
+    Ok(run(plan, &[(point, condition)], noise, trials, seed)?[0])
+}
+
+/// [`interval`] at every condition (the k-th seeded as point k), calling
+/// `progress(done, total)` as groups of them start. Conditions run
+/// together, as many as keep [`TRIALS_IN_FLIGHT`] trials in memory, so
+/// the cores stay busy with few trials a point and the order statistics
+/// of one condition overlap the trials of the next.
+pub fn intervals(
+    plan: &Plan,
+    conditions: &[Condition],
+    noise: &Noise,
+    trials: usize,
+    seed: u64,
+    progress: &dyn Fn(usize, usize),
+) -> Result<Vec<Interval>, EvalError> {
+    let numbered: Vec<(u64, Condition)> = conditions
+        .iter()
+        .enumerate()
+        .map(|(k, c)| (k as u64, *c))
+        .collect();
+    let group = (TRIALS_IN_FLIGHT / trials.max(1)).max(1);
+    let mut out = Vec::with_capacity(conditions.len());
+    for batch in numbered.chunks(group) {
+        progress(out.len(), conditions.len());
+        out.extend(run(plan, batch, noise, trials, seed)?);
+    }
+    Ok(out)
+}
+
+/// The intervals of `conditions`, their trials on every core together.
+fn run(
+    plan: &Plan,
+    conditions: &[(u64, Condition)],
+    noise: &Noise,
+    trials: usize,
+    seed: u64,
+) -> Result<Vec<Interval>, EvalError> {
     if trials == 0 {
-        return Ok(Interval {
+        let none = Interval {
             low: 0.0,
             high: 0.0,
             numerical: 0.0,
-        });
+        };
+        return Ok(vec![none; conditions.len()]);
     }
     let chunks = trials.div_ceil(CHUNK);
     let sources: Vec<Draw> = plan
@@ -97,59 +149,82 @@ pub fn interval(
         .filter(|(_, slot)| slot.kind != SourceKind::Exact)
         .map(|(s, slot)| Draw::of(s, slot))
         .collect();
-    let errors: Vec<Result<Vec<f64>, EvalError>> = (0..chunks)
+    let tasks: Vec<(usize, usize)> = (0..conditions.len())
+        .flat_map(|c| (0..chunks).map(move |chunk| (c, chunk)))
+        .collect();
+    let errors: Vec<Result<Vec<f64>, EvalError>> = tasks
         .into_par_iter()
-        .map(|chunk| {
+        .map(|(c, chunk)| {
+            let (point, condition) = conditions[c];
             let n = CHUNK.min(trials - chunk * CHUNK);
-            let mut rng = Pcg64Mcg::seed_from_u64(mix(
+            let rng = Pcg64Mcg::seed_from_u64(mix(
                 seed ^ mix(point.wrapping_mul(0x1_0000_0001) ^ chunk as u64)
             ));
-            let slots = plan.nominal.len();
-            // Trials go through the evaluator LANES at a time; the draws
-            // keep their order, trial by trial, so the lane count changes
-            // no result.
-            let mut values = plan.nominal.repeat(LANES);
-            let mut extra = [(0.0, 0.0); LANES];
-            let mut readings = [0.0; LANES];
-            let mut out = Vec::with_capacity(n);
-            let mut left = n;
-            while left > 0 {
-                let lanes = left.min(LANES);
-                for (lane, extra) in extra.iter_mut().enumerate().take(lanes) {
-                    let values = &mut values[lane * slots..(lane + 1) * slots];
-                    for draw in &sources {
-                        let x: f64 = if draw.normal {
-                            rng.sample(StandardNormal)
-                        } else {
-                            rng.random()
-                        };
-                        values[draw.slot] = draw.origin + draw.scale * x;
-                    }
-                    let z: f64 = rng.sample(StandardNormal);
-                    let q: f64 = rng.random::<f64>() - 0.5;
-                    *extra = (z, q);
-                }
-                if lanes == LANES {
-                    plan.unquantized_readings(&values, env, &mut readings)?;
-                } else {
-                    for (lane, reading) in readings.iter_mut().enumerate().take(lanes) {
-                        *reading = plan
-                            .unquantized_reading(&values[lane * slots..(lane + 1) * slots], env)?;
-                    }
-                }
-                for (&r, &(z, q)) in readings.iter().zip(&extra).take(lanes) {
-                    out.push(r - env.measurand + z * noise.sigma_averaged + q * lsb);
-                }
-                left -= lanes;
-            }
-            Ok(out)
+            chunk_errors(plan, &sources, &condition, noise, n, rng)
         })
         .collect();
-    let mut all = Vec::with_capacity(trials);
-    for chunk in errors {
-        all.extend(chunk?);
+    let mut errors = errors.into_iter();
+    let mut gathered = Vec::with_capacity(conditions.len());
+    for _ in conditions {
+        let mut all = Vec::with_capacity(trials);
+        for chunk in errors.by_ref().take(chunks) {
+            all.extend(chunk?);
+        }
+        gathered.push(all);
     }
-    Ok(coverage(&mut all))
+    Ok(gathered.par_iter_mut().map(|all| coverage(all)).collect())
+}
+
+/// The errors of `n` trials drawn from `rng`.
+fn chunk_errors(
+    plan: &Plan,
+    sources: &[Draw],
+    condition: &Condition,
+    noise: &Noise,
+    n: usize,
+    mut rng: Pcg64Mcg,
+) -> Result<Vec<f64>, EvalError> {
+    let Condition { env, lsb } = condition;
+    let lsb = *lsb;
+    let slots = plan.nominal.len();
+    // Trials go through the evaluator LANES at a time; the draws
+    // keep their order, trial by trial, so the lane count changes
+    // no result.
+    let mut values = plan.nominal.repeat(LANES);
+    let mut extra = [(0.0, 0.0); LANES];
+    let mut readings = [0.0; LANES];
+    let mut out = Vec::with_capacity(n);
+    let mut left = n;
+    while left > 0 {
+        let lanes = left.min(LANES);
+        for (lane, extra) in extra.iter_mut().enumerate().take(lanes) {
+            let values = &mut values[lane * slots..(lane + 1) * slots];
+            for draw in sources {
+                let x: f64 = if draw.normal {
+                    rng.sample(StandardNormal)
+                } else {
+                    rng.random()
+                };
+                values[draw.slot] = draw.origin + draw.scale * x;
+            }
+            let z: f64 = rng.sample(StandardNormal);
+            let q: f64 = rng.random::<f64>() - 0.5;
+            *extra = (z, q);
+        }
+        if lanes == LANES {
+            plan.unquantized_readings(&values, env, &mut readings)?;
+        } else {
+            for (lane, reading) in readings.iter_mut().enumerate().take(lanes) {
+                *reading =
+                    plan.unquantized_reading(&values[lane * slots..(lane + 1) * slots], env)?;
+            }
+        }
+        for (&r, &(z, q)) in readings.iter().zip(&extra).take(lanes) {
+            out.push(r - env.measurand + z * noise.sigma_averaged + q * lsb);
+        }
+        left -= lanes;
+    }
+    Ok(out)
 }
 
 /// The probabilistically symmetric 95 % interval of `all` (not empty),

@@ -5,7 +5,7 @@ use super::accumulation::{accumulation, NodeError};
 use super::alarms::{alarm_limits, AlarmLimit};
 use super::budget::{self, Budget};
 use super::dynamics::{dynamics, Dynamics};
-use super::monte_carlo::{interval, Interval};
+use super::monte_carlo::{intervals, Condition, Interval};
 use super::ranges::{envelopes, Envelope};
 use super::requirements::{verdicts, Achieved, Verdict};
 use crate::diagnostics::{Code, Finding, Findings};
@@ -79,26 +79,26 @@ pub fn analyse_with_progress(
     let budget = budget::budget(chain, plan, &options.budget)?;
     let monte_carlo = match options.trials {
         Some(trials) if trials > 0 => {
-            let mut out = Vec::with_capacity(budget.points.len());
-            for (i, p) in budget.points.iter().enumerate() {
-                let env = Env {
-                    measurand: p.measurand,
-                    ambient: p.ambient,
-                    cold_junction: p.ambient,
-                };
-                let lsb = 1.0 / p.codes_per_unit.abs();
-                progress(i, budget.points.len());
-                out.push(interval(
-                    plan,
-                    &env,
-                    &budget.noise,
-                    lsb,
-                    trials.min(MAX_TRIALS),
-                    options.seed,
-                    i as u64,
-                )?);
-            }
-            Some(out)
+            let conditions: Vec<Condition> = budget
+                .points
+                .iter()
+                .map(|p| Condition {
+                    env: Env {
+                        measurand: p.measurand,
+                        ambient: p.ambient,
+                        cold_junction: p.ambient,
+                    },
+                    lsb: 1.0 / p.codes_per_unit.abs(),
+                })
+                .collect();
+            Some(intervals(
+                plan,
+                &conditions,
+                &budget.noise,
+                trials.min(MAX_TRIALS),
+                options.seed,
+                progress,
+            )?)
         }
         _ => None,
     };
