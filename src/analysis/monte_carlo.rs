@@ -12,7 +12,7 @@ use rand_pcg::Pcg64Mcg;
 use rayon::prelude::*;
 
 use super::noise::Noise;
-use crate::eval::{Env, EvalError, Plan, Slot, SourceKind, LANES};
+use crate::eval::{Env, EvalError, LaneSignals, Plan, Signal, Slot, SourceKind, LANES, MAX_NODES};
 
 /// Trials per chunk: large enough to amortise the split, small enough to
 /// balance two to many cores.
@@ -193,6 +193,7 @@ fn chunk_errors(
     let mut values = plan.nominal.repeat(LANES);
     let mut extra = [(0.0, 0.0); LANES];
     let mut readings = [0.0; LANES];
+    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
     let mut out = Vec::with_capacity(n);
     let mut left = n;
     while left > 0 {
@@ -212,7 +213,7 @@ fn chunk_errors(
             *extra = (z, q);
         }
         if lanes == LANES {
-            plan.unquantized_readings(&values, env, &mut readings)?;
+            plan.unquantized_readings(&values, env, &mut readings, &mut scratch)?;
         } else {
             for (lane, reading) in readings.iter_mut().enumerate().take(lanes) {
                 *reading =

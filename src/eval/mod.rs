@@ -18,4 +18,4 @@ pub use plan::{
     BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal,
     Slot, SlotId, SourceKind,
 };
-pub use run::{Outcome, LANES, MAX_NODES};
+pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};
