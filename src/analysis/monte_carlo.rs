@@ -141,7 +141,6 @@ fn run(
         };
         return Ok(vec![none; conditions.len()]);
     }
-    let chunks = trials.div_ceil(CHUNK);
     let sources: Vec<Draw> = plan
         .slots
         .iter()
@@ -149,41 +148,41 @@ fn run(
         .filter(|(_, slot)| slot.kind != SourceKind::Exact)
         .map(|(s, slot)| Draw::of(s, slot))
         .collect();
-    let tasks: Vec<(usize, usize)> = (0..conditions.len())
-        .flat_map(|c| (0..chunks).map(move |chunk| (c, chunk)))
+    // Each chunk writes its errors straight into its condition's buffer.
+    let mut errors: Vec<Vec<f64>> = conditions.iter().map(|_| vec![0.0; trials]).collect();
+    let tasks: Vec<(usize, usize, &mut [f64])> = errors
+        .iter_mut()
+        .enumerate()
+        .flat_map(|(c, all)| {
+            all.chunks_mut(CHUNK)
+                .enumerate()
+                .map(move |(chunk, out)| (c, chunk, out))
+        })
         .collect();
-    let errors: Vec<Result<Vec<f64>, EvalError>> = tasks
+    let outcomes: Vec<Result<(), EvalError>> = tasks
         .into_par_iter()
-        .map(|(c, chunk)| {
+        .map(|(c, chunk, out)| {
             let (point, condition) = conditions[c];
-            let n = CHUNK.min(trials - chunk * CHUNK);
             let rng = Pcg64Mcg::seed_from_u64(mix(
                 seed ^ mix(point.wrapping_mul(0x1_0000_0001) ^ chunk as u64)
             ));
-            chunk_errors(plan, &sources, &condition, noise, n, rng)
+            chunk_errors(plan, &sources, &condition, noise, out, rng)
         })
         .collect();
-    let mut errors = errors.into_iter();
-    let mut gathered = Vec::with_capacity(conditions.len());
-    for _ in conditions {
-        let mut all = Vec::with_capacity(trials);
-        for chunk in errors.by_ref().take(chunks) {
-            all.extend(chunk?);
-        }
-        gathered.push(all);
-    }
-    Ok(gathered.par_iter_mut().map(|all| coverage(all)).collect())
+    // The first failure in order, whatever the thread count.
+    outcomes.into_iter().collect::<Result<(), _>>()?;
+    Ok(errors.par_iter_mut().map(|all| coverage(all)).collect())
 }
 
-/// The errors of `n` trials drawn from `rng`.
+/// The errors of `out.len()` trials drawn from `rng`, into `out`.
 fn chunk_errors(
     plan: &Plan,
     sources: &[Draw],
     condition: &Condition,
     noise: &Noise,
-    n: usize,
+    out: &mut [f64],
     mut rng: Pcg64Mcg,
-) -> Result<Vec<f64>, EvalError> {
+) -> Result<(), EvalError> {
     let Condition { env, lsb } = condition;
     let lsb = *lsb;
     let slots = plan.nominal.len();
@@ -194,7 +193,7 @@ fn chunk_errors(
     let mut extra = [(0.0, 0.0); LANES];
     let mut readings = [0.0; LANES];
     let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
-    let mut out = Vec::with_capacity(n);
+    let n = out.len();
     let mut left = n;
     while left > 0 {
         let lanes = left.min(LANES);
@@ -220,12 +219,17 @@ fn chunk_errors(
                     plan.unquantized_reading(&values[lane * slots..(lane + 1) * slots], env)?;
             }
         }
-        for (&r, &(z, q)) in readings.iter().zip(&extra).take(lanes) {
-            out.push(r - env.measurand + z * noise.sigma_averaged + q * lsb);
+        let done = n - left;
+        for ((slot, &r), &(z, q)) in out[done..done + lanes]
+            .iter_mut()
+            .zip(&readings)
+            .zip(&extra)
+        {
+            *slot = r - env.measurand + z * noise.sigma_averaged + q * lsb;
         }
         left -= lanes;
     }
-    Ok(out)
+    Ok(())
 }
 
 /// The probabilistically symmetric 95 % interval of `all` (not empty),
