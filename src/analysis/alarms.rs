@@ -30,20 +30,13 @@ pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit
     let sources = budget::Perturbations::of(plan)?;
     for alarm in &chain.alarms {
         let mut guard: f64 = 0.0;
-        let mut values = plan.nominal.clone();
         for &ambient in &budget::ambients(chain) {
             let env = Env {
                 measurand: alarm.at,
                 ambient,
                 cold_junction: ambient,
             };
-            guard = guard.max(budget::gum_expanded_at(
-                plan,
-                &env,
-                &mut values,
-                &sources,
-                k,
-            )?);
+            guard = guard.max(budget::gum_expanded_at(plan, &env, &sources, k)?);
         }
         let trip_at = if alarm.side == "high" {
             alarm.at - guard

@@ -7,7 +7,9 @@
 use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
-use crate::eval::{Calibrated, Env, EvalError, Plan, SourceKind};
+use crate::eval::{
+    Calibrated, Env, EvalError, LaneSignals, Plan, Signal, SourceKind, LANES, MAX_NODES,
+};
 use crate::model::Chain;
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -130,10 +132,7 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
     // Points are independent: on every core, gathered in order.
     let points = conditions
         .par_iter()
-        .map_init(
-            || plan.nominal.clone(),
-            |values, env| point(plan, env, values, &sources, &noise, options.k),
-        )
+        .map(|env| point(plan, env, &sources, &noise, options.k))
         .collect::<Result<Vec<_>, _>>()?;
     Ok(Budget {
         points,
@@ -189,7 +188,6 @@ impl Perturbations {
 pub fn gum_expanded_at(
     plan: &Plan,
     env: &Env,
-    values: &mut [f64],
     sources: &Perturbations,
     k: f64,
 ) -> Result<f64, EvalError> {
@@ -205,31 +203,62 @@ pub fn gum_expanded_at(
         noise_free_averaged: 0.0,
         lsb: 0.0,
     };
-    Ok(point(plan, env, values, sources, &quiet, k)?.gum_expanded)
+    Ok(point(plan, env, sources, &quiet, k)?.gum_expanded)
+}
+
+/// Each source's reading change at its lower and upper limit, the
+/// perturbed chains evaluated [`LANES`] at a time (the last batch padded
+/// with the nominal chain).
+fn source_effects(
+    plan: &Plan,
+    env: &Env,
+    sources: &Perturbations,
+    r0: f64,
+) -> Result<Vec<(f64, f64)>, EvalError> {
+    let n = plan.nominal.len();
+    let limits: Vec<(usize, f64, Calibrated)> = sources
+        .sources
+        .iter()
+        .flat_map(|p| p.limits.iter().map(move |&(x, c)| (p.slot, x, c)))
+        .collect();
+    let mut values = plan.nominal.repeat(LANES);
+    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
+    let mut readings = [0.0; LANES];
+    let mut changes = Vec::with_capacity(limits.len());
+    for batch in limits.chunks(LANES) {
+        let mut calibrated = [sources.nominal; LANES];
+        for (lane, &(slot, x, c)) in batch.iter().enumerate() {
+            values[lane * n + slot] = x;
+            calibrated[lane] = c;
+        }
+        plan.unquantized_readings_calibrated(
+            &values,
+            env,
+            &calibrated,
+            &mut readings,
+            &mut scratch,
+        )?;
+        for (lane, &(slot, ..)) in batch.iter().enumerate() {
+            values[lane * n + slot] = plan.nominal[slot];
+            changes.push(readings[lane] - r0);
+        }
+    }
+    Ok(changes.chunks(2).map(|c| (c[0], c[1])).collect())
 }
 
 fn point(
     plan: &Plan,
     env: &Env,
-    values: &mut [f64],
     sources: &Perturbations,
     noise: &Noise,
     k: f64,
 ) -> Result<Point, EvalError> {
     let r0 = plan.unquantized_reading_calibrated(&plan.nominal, env, &sources.nominal)?;
     let (volts_per_unit, codes_per_unit) = slopes(plan, env)?;
+    let effects = source_effects(plan, env, sources, r0)?;
     let mut contributions = Vec::with_capacity(sources.sources.len() + 3);
-    for source in &sources.sources {
-        let s = source.slot;
-        let slot = &plan.slots[s];
-        let mut at = |(x, calibrated): (f64, Calibrated)| -> Result<f64, EvalError> {
-            values[s] = x;
-            let r = plan.unquantized_reading_calibrated(values, env, &calibrated);
-            values[s] = plan.nominal[s];
-            Ok(r? - r0)
-        };
-        let low = at(source.limits[0])?;
-        let high = at(source.limits[1])?;
+    for (source, &(low, high)) in sources.sources.iter().zip(&effects) {
+        let slot = &plan.slots[source.slot];
         let divisor = if slot.normal { 3.0 } else { SQRT3 };
         contributions.push(Contribution {
             id: slot.id.clone(),

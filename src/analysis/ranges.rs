@@ -10,7 +10,9 @@
 use rayon::prelude::*;
 
 use super::budget::conditions;
-use crate::eval::{BridgeKind, EvalError, Node, NodeId, Plan, Signal, SourceKind};
+use crate::eval::{
+    BridgeKind, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES, MAX_NODES,
+};
 use crate::model::Chain;
 use crate::physics::adc::Polarity;
 
@@ -311,44 +313,57 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
         .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
         .collect();
     let conditions = conditions(chain, plan, points);
-    // Each condition's reach (low, high) per check, on every core.
+    // Every source at both limits, in order: low, high, low, high, ...
+    let limits: Vec<(usize, f64)> = sources
+        .iter()
+        .flat_map(|&s| {
+            let slot = &plan.slots[s];
+            [
+                (s, slot.nominal - slot.minus),
+                (s, slot.nominal + slot.plus),
+            ]
+        })
+        .collect();
+    let n = plan.nominal.len();
+    // Each condition's reach (low, high) per check, on every core; the
+    // perturbed chains LANES at a time.
     let per_condition = conditions
         .par_iter()
-        .map_init(
-            || plan.nominal.clone(),
-            |values, env| -> Result<Vec<(f64, f64)>, EvalError> {
-                let nominal = plan.raw_signals(&plan.nominal, env)?;
-                let q0: Vec<f64> = checks
-                    .iter()
-                    .map(|c| value(plan, &plan.nominal, &nominal, c))
-                    .collect();
-                let mut up = vec![0.0; checks.len()];
-                let mut down = vec![0.0; checks.len()];
-                let mut per_check = vec![(0.0f64, 0.0f64); checks.len()];
-                for &s in &sources {
-                    let slot = &plan.slots[s];
-                    per_check.fill((0.0, 0.0));
-                    for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
-                        values[s] = x;
-                        let signals = plan.raw_signals(values, env);
-                        values[s] = plan.nominal[s];
-                        let signals = signals?;
-                        for (k, c) in checks.iter().enumerate() {
-                            let d = value(plan, values, &signals, c) - q0[k];
-                            per_check[k].0 = per_check[k].0.min(d);
-                            per_check[k].1 = per_check[k].1.max(d);
-                        }
-                    }
-                    for k in 0..checks.len() {
-                        down[k] += per_check[k].0;
-                        up[k] += per_check[k].1;
+        .map(|env| -> Result<Vec<(f64, f64)>, EvalError> {
+            let nominal = plan.raw_signals(&plan.nominal, env)?;
+            let q0: Vec<f64> = checks
+                .iter()
+                .map(|c| value(plan, &plan.nominal, &nominal, c))
+                .collect();
+            let mut values = plan.nominal.repeat(LANES);
+            let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
+            // Each limit's change of each check, limit by limit.
+            let mut changes = Vec::with_capacity(limits.len() * checks.len());
+            for batch in limits.chunks(LANES) {
+                for (lane, &(s, x)) in batch.iter().enumerate() {
+                    values[lane * n + s] = x;
+                }
+                plan.raw_signals_lanes(&values, env, &mut scratch)?;
+                for (lane, &(s, _)) in batch.iter().enumerate() {
+                    values[lane * n + s] = plan.nominal[s];
+                    for (k, c) in checks.iter().enumerate() {
+                        changes.push(value(plan, &plan.nominal, &scratch[lane], c) - q0[k]);
                     }
                 }
-                Ok((0..checks.len())
-                    .map(|k| (q0[k] + down[k], q0[k] + up[k]))
-                    .collect())
-            },
-        )
+            }
+            // Summed apart, then added to the nominal.
+            let (mut down, mut up) = (vec![0.0; checks.len()], vec![0.0; checks.len()]);
+            for source in changes.chunks(2 * checks.len()) {
+                let (low, high) = source.split_at(checks.len());
+                for k in 0..checks.len() {
+                    down[k] += low[k].min(high[k]).min(0.0);
+                    up[k] += low[k].max(high[k]).max(0.0);
+                }
+            }
+            Ok((0..checks.len())
+                .map(|k| (q0[k] + down[k], q0[k] + up[k]))
+                .collect())
+        })
         .collect::<Result<Vec<_>, _>>()?;
     // Gathered in order, so the worst point is the first of equals.
     let mut reach: Vec<(f64, f64, (f64, f64), f64)> =
