@@ -1,10 +1,12 @@
-//! Parse + check (+ eval at a sampled point) of arbitrary bytes: nothing
-//! may panic, hang or produce a non-finite reading.
+//! Parse + check (+ eval at a sampled point, + a short Monte Carlo through
+//! the lane evaluator) of arbitrary bytes: nothing may panic, hang or
+//! produce a non-finite reading.
 //!
 //! cargo fuzz run --fuzz-dir tests/fuzz check tests/fuzz/corpus/check
 
 #![no_main]
 
+use catena::analysis::{budget, report};
 use catena::check::check_bytes;
 use catena::eval::{lower, Env};
 use catena::model::PartsCache;
@@ -32,6 +34,20 @@ fuzz_target!(|data: &[u8]| {
         };
         if let Ok(r) = plan.reading(&plan.nominal, &env) {
             assert!(r.is_finite(), "a reading is never NaN or infinite");
+        }
+        // Two full lanes and a remainder at each of a few points.
+        let options = report::Options {
+            budget: budget::Options {
+                points: 2,
+                ..budget::Options::default()
+            },
+            trials: Some(19),
+            ..report::Options::default()
+        };
+        if let Ok(analysis) = report::analyse(chain, &plan, &options) {
+            for i in analysis.monte_carlo.iter().flatten() {
+                assert!(i.low.is_finite() && i.high.is_finite() && i.numerical.is_finite());
+            }
         }
     }
 });
