@@ -95,3 +95,22 @@ fn fmt_refuses_files_with_syntax_errors() {
         "nothing is written for a broken file"
     );
 }
+
+/// R615's help names the trials that settle a Monte Carlo verdict: run
+/// with them, the warning is gone.
+#[test]
+fn the_trials_r615_asks_for_settle_the_verdict() {
+    let fixture = "tests/fixtures/invalid/R615-monte-carlo-too-close.catena";
+    let first = catena(&root(), &["check", "--format", "json", fixture], None);
+    let findings: serde_json::Value = serde_json::from_str(&first.stdout).unwrap();
+    let help = findings[0]["help"].as_str().unwrap();
+    assert_eq!(findings[0]["code"], "R615", "{}", first.stdout);
+    let trials = help
+        .split("--trials ")
+        .nth(1)
+        .and_then(|rest| rest.split('`').next())
+        .unwrap_or_else(|| panic!("no trial count in {help:?}"));
+    let second = catena(&root(), &["check", "--trials", trials, fixture], None);
+    assert_eq!(second.status, 0, "{}", second.stdout);
+    assert!(!second.stdout.contains("R615"), "{}", second.stdout);
+}

@@ -53,6 +53,8 @@ pub fn eval_finding(
 pub struct CheckOptions {
     /// Run Monte Carlo even when no requirement asks for it.
     pub monte_carlo: bool,
+    /// Its trials per point ([`report::DEFAULT_TRIALS`] when zero).
+    pub trials: usize,
     /// Headroom warnings below this fraction of a limit's span (default
     /// [`ranges::DEFAULT_MARGIN`] when zero).
     pub margin: f64,
@@ -108,7 +110,11 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
     if !findings.has_errors() && !chain.requirements.is_empty() {
         let wants_mc = options.monte_carlo || requirements::accuracy_method(chain) == "monte_carlo";
         let options = report::Options {
-            trials: wants_mc.then_some(report::DEFAULT_TRIALS),
+            trials: wants_mc.then_some(if options.trials > 0 {
+                options.trials.min(report::MAX_TRIALS)
+            } else {
+                report::DEFAULT_TRIALS
+            }),
             ..report::Options::default()
         };
         match report::analyse(chain, &plan, &options) {

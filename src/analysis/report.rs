@@ -228,7 +228,62 @@ pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
                 .help(help),
         );
     }
+    for v in &analysis.verdicts {
+        if let Some(finding) = within_numerical_width(chain, v, analysis.trials, &diff_unit, &diff)
+        {
+            findings.push(finding);
+        }
+    }
     findings
+}
+
+/// R615 when a Monte Carlo verdict's margin is inside the interval's
+/// numerical width, with the trials that would bring the width inside it
+/// (the width goes as 1/√N).
+fn within_numerical_width(
+    chain: &Chain,
+    v: &Verdict,
+    trials: usize,
+    unit: &str,
+    diff: &dyn Fn(f64) -> f64,
+) -> Option<Finding> {
+    let width = v.numerical.filter(|w| *w > 0.0)?;
+    let margin = (v.limit - v.achieved).abs();
+    if margin > width {
+        return None;
+    }
+    let needed = (trials as f64 * (width / margin.max(width * 1e-3)).powi(2)).ceil();
+    let verdict = if v.pass { "passes" } else { "misses" };
+    let help = if needed <= MAX_TRIALS as f64 {
+        format!(
+            "run about {} trials a point or more (`catena check --trials {}`) for the width to fit inside the margin",
+            trimmed(significant_up(needed), 6),
+            trimmed(significant_up(needed), 6)
+        )
+    } else {
+        "the margin is too thin for any affordable number of trials: improve the largest contributor or agree a wider requirement".to_string()
+    };
+    Some(
+        Finding::new(
+            Code::R615,
+            &chain.file,
+            format!(
+                "the Monte Carlo accuracy {} ± {} {unit} by {} {unit}, less than its ends' numerical width ± {} {unit} at {trials} trials",
+                verdict,
+                trimmed(diff(v.limit), 6),
+                trimmed(diff(margin), 2),
+                trimmed(diff(width), 2),
+            ),
+        )
+        .label(v.span, "this requirement")
+        .help(help),
+    )
+}
+
+/// `x` rounded up to two significant digits.
+fn significant_up(x: f64) -> f64 {
+    let scale = 10f64.powi(x.log10().floor() as i32 - 1);
+    (x / scale).ceil() * scale
 }
 
 fn method_name(method: &str) -> &str {

@@ -22,6 +22,9 @@ pub struct Verdict {
     pub at: Option<(f64, f64)>,
     /// Largest contributors there with their shares (0…1).
     pub top: Vec<(String, f64)>,
+    /// For a Monte Carlo verdict: how far the interval's ends may be off
+    /// at the worst point (see [`Interval::numerical`]).
+    pub numerical: Option<f64>,
     pub span: Span,
 }
 
@@ -94,6 +97,10 @@ pub fn verdicts(
                     v.sort_by(|a, b| b.1.total_cmp(&a.1));
                     v
                 };
+                let numerical = match method.as_str() {
+                    "monte_carlo" => mc.map(|m| m[worst].numerical),
+                    _ => None,
+                };
                 Verdict {
                     name: "accuracy",
                     limit,
@@ -102,6 +109,7 @@ pub fn verdicts(
                     method,
                     at: Some((p.measurand, p.ambient)),
                     top: top.into_iter().take(3).collect(),
+                    numerical,
                     span: r.span,
                 }
             }
@@ -125,6 +133,7 @@ pub fn verdicts(
                     method: method.into(),
                     at: None,
                     top: Vec::new(),
+                    numerical: None,
                     span: r.span,
                 }
             }
@@ -140,6 +149,7 @@ pub fn verdicts(
                     method: "step_90".into(),
                     at: None,
                     top: Vec::new(),
+                    numerical: None,
                     span: r.span,
                 }
             }
@@ -160,6 +170,7 @@ pub fn verdicts(
                     ),
                     at: None,
                     top: Vec::new(),
+                    numerical: None,
                     span: r.span,
                 }
             }

@@ -4,6 +4,7 @@ use clap::{Args, ValueEnum};
 
 use super::files::{collect, plain_io};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::report::{DEFAULT_TRIALS, MAX_TRIALS};
 use crate::analysis::CheckOptions;
 use crate::check::check_bytes_with;
 use crate::diagnostics::{render_human, render_json, Finding, Severity};
@@ -28,6 +29,9 @@ pub struct CheckArgs {
     /// Run Monte Carlo for every chain, not only where a requirement asks.
     #[arg(long)]
     monte_carlo: bool,
+    /// Monte Carlo trials per point, where it runs.
+    #[arg(long, default_value_t = DEFAULT_TRIALS as u64, value_parser = clap::value_parser!(u64).range(1..=MAX_TRIALS as u64))]
+    trials: u64,
     /// Let `use` read parts files outside the spec's repository.
     #[arg(long)]
     allow_outside_paths: bool,
@@ -72,6 +76,7 @@ pub fn run(args: CheckArgs) -> u8 {
     }
     let options = CheckOptions {
         monte_carlo: args.monte_carlo,
+        trials: args.trials as usize,
         // Zero would mean the default; a tiny positive value means none.
         margin: (args.margin / 100.0).max(1e-12),
         allow_outside_paths: args.allow_outside_paths,

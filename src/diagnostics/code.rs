@@ -113,4 +113,5 @@ codes! {
     R612 => Error, "resolution requirement not met";
     R613 => Error, "response requirement not met";
     R614 => Error, "rejection requirement not met";
+    R615 => Warning, "Monte Carlo verdict inside its numerical width";
 }
