@@ -22,19 +22,8 @@ fn monte_carlo_over_points(
     points: usize,
     trials: usize,
 ) -> f64 {
-    let conditions: Vec<Condition> = b
-        .points
-        .iter()
-        .take(points)
-        .map(|p| Condition {
-            env: Env {
-                measurand: p.measurand,
-                ambient: p.ambient,
-                cold_junction: p.ambient,
-            },
-            lsb: 1.0 / p.codes_per_unit.abs(),
-        })
-        .collect();
+    let points = &b.points[..points.min(b.points.len())];
+    let conditions = Condition::of_points(points);
     intervals(plan, &conditions, &b.noise, trials, 1, &|_, _| {})
         .expect("runs")
         .iter()

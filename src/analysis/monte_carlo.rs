@@ -11,6 +11,7 @@ use rand_distr::StandardNormal;
 use rand_pcg::Pcg64Mcg;
 use rayon::prelude::*;
 
+use super::budget::Point;
 use super::noise::Noise;
 use crate::eval::{Env, EvalError, LaneSignals, Plan, Signal, Slot, SourceKind, LANES, MAX_NODES};
 
@@ -77,6 +78,24 @@ fn mix(mut z: u64) -> u64 {
 pub struct Condition {
     pub env: Env,
     pub lsb: f64,
+}
+
+impl Condition {
+    /// The conditions of budget points: each point's environment (the
+    /// junction at the ambient) and its code step.
+    pub fn of_points(points: &[Point]) -> Vec<Condition> {
+        points
+            .iter()
+            .map(|p| Condition {
+                env: Env {
+                    measurand: p.measurand,
+                    ambient: p.ambient,
+                    cold_junction: p.ambient,
+                },
+                lsb: 1.0 / p.codes_per_unit.abs(),
+            })
+            .collect()
+    }
 }
 
 /// Trials held in memory at once, across the conditions run together.

@@ -78,28 +78,14 @@ pub fn analyse_with_progress(
 ) -> Result<Analysis, EvalError> {
     let budget = budget::budget(chain, plan, &options.budget)?;
     let monte_carlo = match options.trials {
-        Some(trials) if trials > 0 => {
-            let conditions: Vec<Condition> = budget
-                .points
-                .iter()
-                .map(|p| Condition {
-                    env: Env {
-                        measurand: p.measurand,
-                        ambient: p.ambient,
-                        cold_junction: p.ambient,
-                    },
-                    lsb: 1.0 / p.codes_per_unit.abs(),
-                })
-                .collect();
-            Some(intervals(
-                plan,
-                &conditions,
-                &budget.noise,
-                trials.min(MAX_TRIALS),
-                options.seed,
-                progress,
-            )?)
-        }
+        Some(trials) if trials > 0 => Some(intervals(
+            plan,
+            &Condition::of_points(&budget.points),
+            &budget.noise,
+            trials.min(MAX_TRIALS),
+            options.seed,
+            progress,
+        )?),
         _ => None,
     };
     let dynamics = dynamics(chain, plan);
