@@ -114,3 +114,25 @@ fn the_trials_r615_asks_for_settle_the_verdict() {
     assert_eq!(second.status, 0, "{}", second.stdout);
     assert!(!second.stdout.contains("R615"), "{}", second.stdout);
 }
+
+/// Monte Carlo long enough for a progress line shows none on a pipe: the
+/// line is for a terminal, never for someone's log.
+#[test]
+fn no_progress_line_on_a_pipe() {
+    let run = catena(
+        &root(),
+        &[
+            "budget",
+            "specs/battery_pack.catena",
+            "--chain",
+            "busbar",
+            "--trials",
+            "500000",
+            "--points",
+            "2",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    assert_eq!(run.stderr, "", "nothing on stderr");
+}

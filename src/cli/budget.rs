@@ -110,9 +110,8 @@ pub fn run(args: BudgetArgs) -> u8 {
         let show = |done: usize, total: usize| {
             if progress {
                 eprint!(
-                    "\rcatena: Monte Carlo for `{}`: point {}/{total}",
-                    chain.name,
-                    done + 1
+                    "\rcatena: Monte Carlo for `{}`: {done} of {total} points done",
+                    chain.name
                 );
             }
         };
