@@ -34,11 +34,14 @@ pub fn write_atomic(path: &Path, contents: &[u8]) -> Result<(), WriteError> {
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
     let tmp = dir.join(format!(".{name}.catena-tmp-{}", std::process::id()));
+    // Only a temporary this call made is ever removed: whatever already
+    // sits at its name is someone's, and is left alone.
+    let mut f = fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(&tmp)
+        .map_err(io)?;
     let result = (|| {
-        let mut f = fs::OpenOptions::new()
-            .write(true)
-            .create_new(true)
-            .open(&tmp)?;
         f.write_all(contents)?;
         f.sync_all()?;
         if let Some(m) = &old {
@@ -75,6 +78,27 @@ mod tests {
             ));
             assert_eq!(std::fs::read_to_string(&target).unwrap(), "new");
         }
+        std::fs::remove_dir_all(&dir).unwrap();
+    }
+
+    /// A write that fails (here the temporary file cannot be made: a file
+    /// already sits at its name) leaves the old output whole, as an
+    /// interrupted run would, and the file in the way untouched.
+    #[test]
+    fn a_failed_write_leaves_the_old_file() {
+        let dir = std::env::temp_dir().join(format!("catena-atomic-fail-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let target = dir.join("b.catena");
+        std::fs::write(&target, "old").unwrap();
+        let blocker = dir.join(format!(".b.catena.catena-tmp-{}", std::process::id()));
+        std::fs::write(&blocker, "someone's").unwrap();
+        assert!(matches!(
+            write_atomic(&target, b"new"),
+            Err(WriteError::Io { .. })
+        ));
+        assert_eq!(std::fs::read_to_string(&target).unwrap(), "old");
+        let left = std::fs::read_to_string(&blocker).unwrap();
+        assert_eq!(left, "someone's", "what was there is left alone");
         std::fs::remove_dir_all(&dir).unwrap();
     }
 }
