@@ -56,6 +56,23 @@ pub struct Point {
     pub codes_per_unit: f64,
 }
 
+impl Point {
+    /// One code in measurand units; zero where the code does not move with
+    /// the measurand (a flat chain, which `check` reports as E504).
+    pub fn code_step(&self) -> f64 {
+        code_step(self.codes_per_unit)
+    }
+}
+
+/// One code in measurand units from codes per unit (zero when flat).
+pub fn code_step(codes_per_unit: f64) -> f64 {
+    if codes_per_unit != 0.0 && codes_per_unit.is_finite() {
+        1.0 / codes_per_unit.abs()
+    } else {
+        0.0
+    }
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub struct Budget {
     pub points: Vec<Point>,
@@ -126,7 +143,7 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
         cold_junction: plan.reference,
     };
     let (v_slope, c_slope) = slopes(plan, &mid)?;
-    let noise = noise(chain, plan, &mid, v_slope, 1.0 / c_slope.abs());
+    let noise = noise(chain, plan, &mid, v_slope, code_step(c_slope));
     let conditions = conditions(chain, plan, options.points);
     let sources = Perturbations::of(plan)?;
     // Points are independent: on every core, gathered in order.
@@ -270,11 +287,7 @@ fn point(
         });
     }
     // Sources computed from the chain rather than a slot.
-    let lsb = if codes_per_unit != 0.0 {
-        1.0 / codes_per_unit.abs()
-    } else {
-        0.0
-    };
+    let lsb = code_step(codes_per_unit);
     let half_lsb = lsb / 2.0;
     contributions.push(Contribution {
         id: "quantization".into(),

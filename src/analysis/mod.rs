@@ -48,6 +48,49 @@ pub fn eval_finding(
     f.help(help)
 }
 
+/// E504 where the converter's code does not move with the measurand at a
+/// budget condition: the chain saturates there (in a stage or in the
+/// arithmetic itself), so no reading, resolution or budget exists.
+fn flat_code(chain: &Chain, plan: &Plan, measurand: &crate::model::Measurand) -> Option<Finding> {
+    let moves = |env: &Env| match budget::slopes(plan, env) {
+        Ok((_, codes_per_unit)) => codes_per_unit != 0.0 && codes_per_unit.is_finite(),
+        Err(_) => true,
+    };
+    let conditions = budget::conditions(chain, plan, budget::Options::default().points);
+    let flat = conditions.iter().find(|env| !moves(env))?;
+    let show = |x: f64| crate::units::format::trimmed(from_si(x, &measurand.unit), 6);
+    let at = format!(
+        "at {} {}, ambient {} degC",
+        show(flat.measurand),
+        measurand.unit,
+        crate::units::format::trimmed(from_si(flat.ambient, "degC"), 4)
+    );
+    // Where it still moves at that ambient, for the help.
+    let moving: Vec<f64> = conditions
+        .iter()
+        .filter(|e| e.ambient == flat.ambient && moves(e))
+        .map(|e| e.measurand)
+        .collect();
+    let span = match (moving.first(), moving.last()) {
+        (Some(lo), Some(hi)) => format!(
+            "; at this ambient it moves over {} .. {} {} only",
+            show(*lo),
+            show(*hi),
+            measurand.unit
+        ),
+        _ => String::new(),
+    };
+    Some(
+        Finding::new(
+            Code::E504,
+            &chain.file,
+            format!("the converter's code does not change with the measurand {at}"),
+        )
+        .label(measurand.span, format!("flat {at}"))
+        .help(format!("a stage saturates there: follow the signal with `catena eval --at` and bring it back inside its stages' ranges (a divider or bridge resistor nearer the sensor's, less gain, or a narrower measurand range){span}")),
+    )
+}
+
 /// What `catena check` asks of the analyses.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct CheckOptions {
@@ -105,6 +148,13 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
         match ranges::envelopes(chain, &plan, 21) {
             Ok(envelopes) => findings.extend(ranges::findings(chain, &plan, &envelopes, margin)),
             Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),
+        }
+    }
+    // A stage beyond its limit (R601) already says why the code stops;
+    // a chain flat without one (the arithmetic saturating) gets E504.
+    if !findings.has_errors() {
+        if let Some(f) = flat_code(chain, &plan, measurand) {
+            findings.push(f);
         }
     }
     if !findings.has_errors() && !chain.requirements.is_empty() {

@@ -92,7 +92,7 @@ impl Condition {
                     ambient: p.ambient,
                     cold_junction: p.ambient,
                 },
-                lsb: 1.0 / p.codes_per_unit.abs(),
+                lsb: p.code_step(),
             })
             .collect()
     }

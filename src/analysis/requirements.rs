@@ -117,7 +117,7 @@ pub fn verdicts(
                 let lsb = budget
                     .points
                     .iter()
-                    .map(|p| 1.0 / p.codes_per_unit.abs())
+                    .map(|p| p.code_step())
                     .fold(0.0, f64::max);
                 let achieved = budget.noise.noise_free_averaged.max(lsb);
                 let method = if budget.noise.noise_free_averaged >= lsb {

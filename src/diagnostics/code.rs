@@ -106,6 +106,7 @@ codes! {
     E501 => Error, "sensor outside its valid range";
     E502 => Error, "no firmware conversion";
     E503 => Error, "no finite value";
+    E504 => Error, "code does not follow the measurand";
 
     R601 => Error, "signal beyond a limit";
     R602 => Warning, "little headroom to a limit";
