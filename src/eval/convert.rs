@@ -56,14 +56,14 @@ pub enum Calibrated {
     TwoPoint { read: (f64, f64) },
 }
 
-/// The nominal code at evenly spaced points of the domain: where Newton's
-/// method starts, so an exact inverse costs a few evaluations, not forty.
+/// The nominal code at evenly spaced points of the domain, interpolated by
+/// monotone cubics: the exact inverse itself where [`TableUse`] allows,
+/// otherwise where Newton's method starts, so an exact inverse costs a few
+/// evaluations, not forty.
 #[derive(Clone, Debug, PartialEq)]
 pub struct InverseTable {
     pub xs: Vec<f64>,
     pub codes: Vec<f64>,
-    /// dx/dcode at each point (Fritsch–Carlson monotone slopes).
-    pub slopes: Vec<f64>,
     pub stands_for: TableUse,
     buckets: Buckets,
     /// With [`TableUse::Junction`]: the tables that make the shift two
@@ -174,7 +174,6 @@ impl InverseTable {
         InverseTable {
             xs,
             codes,
-            slopes,
             stands_for,
             buckets,
             junction: None,
