@@ -7,7 +7,7 @@
 
 mod common;
 
-use catena::check::check_bytes;
+use catena::check::{check_bytes, CheckedFile};
 use catena::eval::{lower, Env, TableUse};
 use catena::model::PartsCache;
 
@@ -26,18 +26,23 @@ fn with_exact_conversion(text: &str) -> String {
         .join("\n")
 }
 
+/// A demo spec's text (possibly edited), checked from the demo folder.
+fn check_demo(path: &std::path::Path, text: &[u8]) -> CheckedFile {
+    let base = common::root().join("specs");
+    check_bytes(
+        &path.to_string_lossy(),
+        text,
+        &base,
+        &mut PartsCache::default(),
+    )
+}
+
 #[test]
 fn every_demo_chain_reads_its_measurand() {
-    let base = common::root().join("specs");
     let mut chains = 0;
     for path in common::demo_specs() {
         let text = with_exact_conversion(&std::fs::read_to_string(&path).unwrap());
-        let checked = check_bytes(
-            &path.to_string_lossy(),
-            text.as_bytes(),
-            &base,
-            &mut PartsCache::default(),
-        );
+        let checked = check_demo(&path, text.as_bytes());
         assert!(
             !checked.findings.has_errors(),
             "{}: {:?}",
@@ -78,15 +83,9 @@ fn every_demo_chain_reads_its_measurand() {
 /// quantization, so they are left to the budget.)
 #[test]
 fn quantized_readings_stay_within_a_code() {
-    let base = common::root().join("specs");
     for path in common::demo_specs() {
         let text = with_exact_conversion(&std::fs::read_to_string(&path).unwrap());
-        let checked = check_bytes(
-            &path.to_string_lossy(),
-            text.as_bytes(),
-            &base,
-            &mut PartsCache::default(),
-        );
+        let checked = check_demo(&path, text.as_bytes());
         for chain in &checked.chains {
             let plan = lower(chain).unwrap();
             let conversions = plan
@@ -132,12 +131,7 @@ fn quantized_readings_stay_within_a_code() {
 fn the_junction_shifted_inverse_matches_the_general_solver() {
     let base = common::root().join("specs");
     let path = base.join("bakery_oven.catena");
-    let checked = check_bytes(
-        &path.to_string_lossy(),
-        &std::fs::read(&path).unwrap(),
-        &base,
-        &mut PartsCache::default(),
-    );
+    let checked = check_demo(&path, &std::fs::read(&path).unwrap());
     let chain = checked
         .chains
         .iter()

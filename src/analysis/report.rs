@@ -89,29 +89,42 @@ pub fn analyse_with_progress(
         _ => None,
     };
     let dynamics = dynamics(chain, plan);
-    if !options.detail {
-        let achieved = Achieved {
-            response_s: dynamics.response_90,
-        };
-        let verdicts = verdicts(chain, &budget, monte_carlo.as_deref(), &achieved, &|f| {
-            Some(dynamics.attenuation(f))
-        });
-        return Ok(Analysis {
-            budget,
-            monte_carlo,
-            trials: options.trials.unwrap_or(0).min(MAX_TRIALS),
-            seed: options.seed,
-            dynamics,
-            verdicts,
-            envelopes: Vec::new(),
-            accumulation: Vec::new(),
-            uncalibrated: None,
-            names: plan.names.clone(),
-            alarms: Vec::new(),
-        });
+    let achieved = Achieved {
+        response_s: dynamics.response_90,
+    };
+    let verdicts = verdicts(chain, &budget, monte_carlo.as_deref(), &achieved, &|f| {
+        Some(dynamics.attenuation(f))
+    });
+    let mut analysis = Analysis {
+        budget,
+        monte_carlo,
+        trials: options.trials.unwrap_or(0).min(MAX_TRIALS),
+        seed: options.seed,
+        dynamics,
+        verdicts,
+        envelopes: Vec::new(),
+        accumulation: Vec::new(),
+        uncalibrated: None,
+        names: plan.names.clone(),
+        alarms: Vec::new(),
+    };
+    if options.detail {
+        add_detail(chain, plan, options, &mut analysis)?;
     }
-    let envelopes = envelopes(chain, plan, options.budget.points)?;
-    let worst = budget
+    Ok(analysis)
+}
+
+/// What only a report shows: the limits, the error along the signal path
+/// at the worst point, the budget without calibration, the alarms.
+fn add_detail(
+    chain: &Chain,
+    plan: &Plan,
+    options: &Options,
+    analysis: &mut Analysis,
+) -> Result<(), EvalError> {
+    analysis.envelopes = envelopes(chain, plan, options.budget.points)?;
+    let worst = analysis
+        .budget
         .points
         .iter()
         .max_by(|a, b| a.gum_expanded.total_cmp(&b.gum_expanded))
@@ -125,8 +138,8 @@ pub fn analyse_with_progress(
             ambient: plan.reference,
             cold_junction: plan.reference,
         });
-    let accumulation = accumulation(plan, &worst)?;
-    let uncalibrated = match &plan.nodes[plan.reading] {
+    analysis.accumulation = accumulation(plan, &worst)?;
+    analysis.uncalibrated = match &plan.nodes[plan.reading] {
         Node::Convert { conversion, .. } if conversion.calibration != Calibration::None => {
             let mut bare = plan.clone();
             if let Node::Convert { conversion, .. } = &mut bare.nodes[bare.reading] {
@@ -137,25 +150,8 @@ pub fn analyse_with_progress(
         }
         _ => None,
     };
-    let achieved = Achieved {
-        response_s: dynamics.response_90,
-    };
-    let verdicts = verdicts(chain, &budget, monte_carlo.as_deref(), &achieved, &|f| {
-        Some(dynamics.attenuation(f))
-    });
-    Ok(Analysis {
-        budget,
-        monte_carlo,
-        trials: options.trials.unwrap_or(0).min(MAX_TRIALS),
-        seed: options.seed,
-        dynamics,
-        verdicts,
-        envelopes,
-        accumulation,
-        uncalibrated,
-        names: plan.names.clone(),
-        alarms: alarm_limits(chain, plan, options.budget.k)?,
-    })
+    analysis.alarms = alarm_limits(chain, plan, options.budget.k)?;
+    Ok(())
 }
 
 /// A failed requirement is an error on its `require` line, naming the
@@ -167,15 +163,8 @@ pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
         .as_ref()
         .map(|m| m.unit.clone())
         .unwrap_or_default();
-    let diff_unit = if unit == "degC" {
-        "K".to_string()
-    } else {
-        unit.clone()
-    };
-    let diff = |x: f64| match crate::units::parse_unit(&diff_unit) {
-        Ok(u) if u.scale != 0.0 => x / u.scale,
-        _ => x,
-    };
+    let (diff_unit, factor) = chain.difference_unit();
+    let diff = |x: f64| x * factor;
     for v in analysis.verdicts.iter().filter(|v| !v.pass) {
         let (code, message, help) = match v.name {
             "accuracy" => {

@@ -160,23 +160,6 @@ fn report_error(chain: &Chain, e: &crate::eval::EvalError) -> u8 {
     EXIT_FINDINGS
 }
 
-/// The measurand's difference unit (`K` for temperatures) and the factor
-/// from SI to it.
-pub fn difference_unit(chain: &Chain) -> (String, f64) {
-    let unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
-    if unit == "degC" || unit == "K" {
-        return ("K".into(), 1.0);
-    }
-    match crate::units::parse_unit(&unit) {
-        Ok(u) if u.scale != 0.0 => (unit, 1.0 / u.scale),
-        _ => (unit, 1.0),
-    }
-}
-
 #[derive(Serialize)]
 struct SourceJson {
     id: String,
@@ -284,7 +267,7 @@ fn plan_name(a: &Analysis, node: usize) -> String {
 }
 
 fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
-    let (unit, f) = difference_unit(chain);
+    let (unit, f) = chain.difference_unit();
     let m_unit = chain
         .measurand
         .as_ref()

@@ -3,7 +3,6 @@
 
 use comfy_table::{presets::NOTHING, Table};
 
-use super::budget::difference_unit;
 use crate::analysis::report::Analysis;
 use crate::model::Chain;
 use crate::units::format::{from_si, significant, trimmed};
@@ -30,7 +29,7 @@ fn lines(t: &Table) -> String {
 }
 
 pub fn human(chain: &Chain, a: &Analysis) -> String {
-    let (unit, f) = difference_unit(chain);
+    let (unit, f) = chain.difference_unit();
     let m_unit = chain
         .measurand
         .as_ref()

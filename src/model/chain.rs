@@ -27,6 +27,25 @@ pub struct Chain {
     pub connections: Vec<Connection>,
 }
 
+impl Chain {
+    /// The unit errors are shown in (the measurand's difference unit: K
+    /// for temperatures) and the factor from SI to it.
+    pub fn difference_unit(&self) -> (String, f64) {
+        let unit = self
+            .measurand
+            .as_ref()
+            .map(|m| m.unit.clone())
+            .unwrap_or_default();
+        if unit == "degC" || unit == "K" {
+            return ("K".into(), 1.0);
+        }
+        match crate::units::parse_unit(&unit) {
+            Ok(u) if u.scale != 0.0 => (unit, 1.0 / u.scale),
+            _ => (unit, 1.0),
+        }
+    }
+}
+
 #[derive(Clone, Debug)]
 pub struct Measurand {
     /// `temperature`, `force`, ...
