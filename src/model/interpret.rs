@@ -38,7 +38,7 @@ pub fn interpret(
     };
     let value = r.shape(shape)?;
     r.finish(shape)?;
-    check_plausible(spec_name, &value, plausible, cx)?;
+    check_plausible(spec_name, &value, plausible, line, cx)?;
     Ok(value)
 }
 
@@ -111,32 +111,16 @@ impl Reader<'_> {
                 self.measure(expect, tol, drift, shape)?.0,
             )),
             Shape::Limit(expect) => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
-            Shape::Range(expect) => match self.next().cloned() {
-                Some(Value::Range(r)) => {
-                    let low = to_si(&r.low, expect, true, self.cx)?;
-                    let high = to_si(&r.high, expect, true, self.cx)?;
-                    if low.0 >= high.0 {
-                        return Err(Box::new(
-                            Finding::new(
-                                Code::P305,
-                                self.cx.file,
-                                format!("range of `{}` is empty or reversed", self.name),
-                            )
-                            .label(r.span, "the low end must be below the high end")
-                            .help("write the range as `low .. high`"),
-                        ));
-                    }
+            Shape::Range(expect) => self.range(expect, false, shape),
+            Shape::RangeOrPoint(expect) => match self.peek() {
+                Some(Value::Range(_)) => self.range(expect, true, shape),
+                _ => {
+                    let (m, _) = self.measure(expect, false, false, shape)?;
                     Ok(ParamValue::Range {
-                        low: low.0,
-                        high: high.0,
+                        low: m.nominal,
+                        high: m.nominal,
                     })
                 }
-                Some(v) => Err(self.malformed(
-                    v.span(),
-                    format!("`{}` expects a range, found {}", self.name, v.describe()),
-                    shape,
-                )),
-                None => Err(self.missing("a range", shape)),
             },
             Shape::Words(words) => Ok(ParamValue::Word(self.word(words, shape)?)),
             Shape::ThermocoupleType => {
@@ -233,6 +217,44 @@ impl Reader<'_> {
                 }
                 _ => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
             },
+        }
+    }
+
+    /// `lo .. hi`; with `point_ok` equal ends are a point, otherwise the
+    /// range must not be empty.
+    fn range(&mut self, expect: Expect, point_ok: bool, shape: Shape) -> Checked<ParamValue> {
+        match self.next().cloned() {
+            Some(Value::Range(r)) => {
+                let low = to_si(&r.low, expect, true, self.cx)?.0;
+                let high = to_si(&r.high, expect, true, self.cx)?.0;
+                let empty = if point_ok { low > high } else { low >= high };
+                if empty {
+                    let (what, label) = if point_ok {
+                        ("reversed", "the low end must not be above the high end")
+                    } else {
+                        (
+                            "empty or reversed",
+                            "the low end must be below the high end",
+                        )
+                    };
+                    return Err(Box::new(
+                        Finding::new(
+                            Code::P305,
+                            self.cx.file,
+                            format!("range of `{}` is {what}", self.name),
+                        )
+                        .label(r.span, label)
+                        .help("write the range as `low .. high`"),
+                    ));
+                }
+                Ok(ParamValue::Range { low, high })
+            }
+            Some(v) => Err(self.malformed(
+                v.span(),
+                format!("`{}` expects a range, found {}", self.name, v.describe()),
+                shape,
+            )),
+            None => Err(self.missing("a range", shape)),
         }
     }
 
@@ -520,6 +542,10 @@ fn usage(name: &str, shape: Shape) -> String {
             let ex = cx_free(e);
             format!("{name} {ex} .. {ex}")
         }
+        Shape::RangeOrPoint(e) => {
+            let ex = cx_free(e);
+            format!("{name} {ex} .. {ex}` or `{name} {ex}")
+        }
         Shape::Words(ws) => format!("{name} {}", ws.join(" | ")),
         Shape::Count { min, max } => format!("{name} <whole number {min} to {max}>"),
         Shape::Numbers(n) => format!("{name} {}", vec!["<number>"; n].join(" ")),
@@ -716,6 +742,7 @@ fn check_plausible(
     name: &str,
     value: &ParamValue,
     plausible: Plausible,
+    line: Span,
     cx: &Context<'_>,
 ) -> Checked<()> {
     let fail = |span: Span, message: String, help: String| {
@@ -728,6 +755,8 @@ fn check_plausible(
     let (nominal, tol, span) = match value {
         ParamValue::Measure(m) => (m.nominal, m.tolerance.as_ref(), m.span),
         ParamValue::At { value, .. } => (value.nominal, value.tolerance.as_ref(), value.span),
+        // Only the low end can fall below a positive bound.
+        ParamValue::Range { low, .. } => (*low, None, line),
         ParamValue::Limit(t)
         | ParamValue::Calibrate {
             uncertainty: Some(t),

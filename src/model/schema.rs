@@ -36,21 +36,19 @@ pub enum Shape {
     },
     /// A bound with nominal zero: `± x`, `x max` or `x`.
     Limit(Expect),
+    /// `lo .. hi` with `lo` below `hi`.
     Range(Expect),
+    /// `lo .. hi` or a single value, where a range may be a point: a
+    /// range whose ends are equal is that point, as the single value is.
+    RangeOrPoint(Expect),
     /// One word of the list.
     Words(&'static [&'static str]),
     /// An integer in `min..=max`.
-    Count {
-        min: u32,
-        max: u32,
-    },
+    Count { min: u32, max: u32 },
     /// Exactly `n` plain numbers.
     Numbers(usize),
     /// `value at point`.
-    At {
-        value: Expect,
-        at: Expect,
-    },
+    At { value: Expect, at: Expect },
     /// `exact | linear | table n | poly n`
     Method,
     /// `offset at T ± u` or `two_point at T1, T2 ± u`

@@ -87,31 +87,19 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
                 )),
             },
             SettingKind::Measurand => measurand(file, setting).map(|m| out.measurand = Some(m)),
-            SettingKind::Ambient => {
-                let shape = match setting.values.first() {
-                    Some(Value::Range(_)) => Shape::Range(Expect::Temperature),
-                    _ => Shape::Measure {
-                        expect: Expect::Temperature,
-                        tol: false,
-                        drift: false,
-                    },
-                };
-                interpret(
-                    "ambient",
-                    shape,
-                    Plausible::Positive,
-                    &setting.values,
-                    setting.span,
-                    &cx,
-                )
-                .map(|v| {
-                    out.ambient = Some(match v {
-                        ParamValue::Range { low, high } => (low, high),
-                        ParamValue::Measure(m) => (m.nominal, m.nominal),
-                        _ => unreachable!("ambient shapes give a range or a measure"),
-                    })
-                })
-            }
+            SettingKind::Ambient => interpret(
+                "ambient",
+                Shape::RangeOrPoint(Expect::Temperature),
+                Plausible::Positive,
+                &setting.values,
+                setting.span,
+                &cx,
+            )
+            .map(|v| {
+                if let ParamValue::Range { low, high } = v {
+                    out.ambient = Some((low, high));
+                }
+            }),
             SettingKind::Reference => interpret(
                 "reference",
                 Shape::Measure {
