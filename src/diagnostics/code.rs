@@ -67,6 +67,7 @@ codes! {
     U102 => Error, "wrong dimension";
     U103 => Error, "missing unit";
     U104 => Error, "unit not allowed here";
+    U105 => Error, "unit powers out of range";
 
     P301 => Error, "unknown parameter";
     P302 => Error, "missing parameter";

@@ -643,6 +643,12 @@ fn unit_error(e: UnitError, span: Span, cx: &Context<'_>) -> Box<Finding> {
         UnitError::Power { .. } => Finding::new(Code::U104, cx.file, e.to_string())
             .label(span, "power out of range")
             .help("unit powers run from -4 to 4, such as `Hz^-1`"),
+        UnitError::Overflow { .. } => Finding::new(Code::U105, cx.file, e.to_string())
+            .label(span, "powers out of range")
+            .help(format!(
+                "no parameter needs a base unit beyond the power {}; write the unit of the quantity, such as `V`, `Hz` or `nV/rtHz`",
+                Dim::MAX_POWER
+            )),
     };
     Box::new(f)
 }

@@ -2,36 +2,67 @@ use std::fmt;
 use std::ops::{Div, Mul};
 
 /// Exponents of the SI base units metre, kilogram, second, ampere, kelvin,
-/// stored doubled so that `Hz^(1/2)` is representable.
+/// and of a converter code (`LSB`, which only a converter can turn into
+/// volts or a fraction of its span), stored doubled so that `Hz^(1/2)` is
+/// representable.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
-pub struct Dim([i8; 5]);
+pub struct Dim([i8; 6]);
 
-const BASE: [&str; 5] = ["m", "kg", "s", "A", "K"];
+const BASE: [&str; 6] = ["m", "kg", "s", "A", "K", "LSB"];
 
 impl Dim {
-    pub const NONE: Dim = Dim([0; 5]);
-    pub const LENGTH: Dim = Dim([2, 0, 0, 0, 0]);
-    pub const MASS: Dim = Dim([0, 2, 0, 0, 0]);
-    pub const TIME: Dim = Dim([0, 0, 2, 0, 0]);
-    pub const CURRENT: Dim = Dim([0, 0, 0, 2, 0]);
-    pub const TEMPERATURE: Dim = Dim([0, 0, 0, 0, 2]);
-    pub const FREQUENCY: Dim = Dim([0, 0, -2, 0, 0]);
-    pub const ROOT_HERTZ: Dim = Dim([0, 0, -1, 0, 0]);
-    pub const POWER: Dim = Dim([4, 2, -6, 0, 0]);
-    pub const VOLTAGE: Dim = Dim([4, 2, -6, -2, 0]);
-    pub const RESISTANCE: Dim = Dim([4, 2, -6, -4, 0]);
-    pub const CAPACITANCE: Dim = Dim([-4, -2, 8, 4, 0]);
-    pub const FORCE: Dim = Dim([2, 2, -4, 0, 0]);
-    pub const PRESSURE: Dim = Dim([-2, 2, -4, 0, 0]);
+    pub const NONE: Dim = Dim([0; 6]);
+    pub const LENGTH: Dim = Dim([2, 0, 0, 0, 0, 0]);
+    pub const MASS: Dim = Dim([0, 2, 0, 0, 0, 0]);
+    pub const TIME: Dim = Dim([0, 0, 2, 0, 0, 0]);
+    pub const CURRENT: Dim = Dim([0, 0, 0, 2, 0, 0]);
+    pub const TEMPERATURE: Dim = Dim([0, 0, 0, 0, 2, 0]);
+    pub const FREQUENCY: Dim = Dim([0, 0, -2, 0, 0, 0]);
+    pub const ROOT_HERTZ: Dim = Dim([0, 0, -1, 0, 0, 0]);
+    pub const POWER: Dim = Dim([4, 2, -6, 0, 0, 0]);
+    pub const VOLTAGE: Dim = Dim([4, 2, -6, -2, 0, 0]);
+    pub const RESISTANCE: Dim = Dim([4, 2, -6, -4, 0, 0]);
+    pub const CAPACITANCE: Dim = Dim([-4, -2, 8, 4, 0, 0]);
+    pub const FORCE: Dim = Dim([2, 2, -4, 0, 0, 0]);
+    pub const PRESSURE: Dim = Dim([-2, 2, -4, 0, 0, 0]);
     /// V/√Hz
-    pub const VOLTAGE_DENSITY: Dim = Dim([4, 2, -5, -2, 0]);
+    pub const VOLTAGE_DENSITY: Dim = Dim([4, 2, -5, -2, 0, 0]);
     /// A/√Hz
-    pub const CURRENT_DENSITY: Dim = Dim([0, 0, 1, 2, 0]);
+    pub const CURRENT_DENSITY: Dim = Dim([0, 0, 1, 2, 0, 0]);
     /// W/K
-    pub const DISSIPATION: Dim = Dim([4, 2, -6, 0, -2]);
+    pub const DISSIPATION: Dim = Dim([4, 2, -6, 0, -2, 0]);
+    /// A number of converter codes (`LSB`).
+    pub const CODE: Dim = Dim([0, 0, 0, 0, 0, 2]);
 
+    /// `self^n`, or None when a power leaves ±[`Dim::MAX_POWER`].
+    pub fn checked_powi(self, n: i8) -> Option<Dim> {
+        let mut out = [0i8; 6];
+        for (o, e) in out.iter_mut().zip(self.0) {
+            *o = bounded(e.checked_mul(n)?)?;
+        }
+        Some(Dim(out))
+    }
+
+    /// `self · rhs`, or None when a power leaves ±[`Dim::MAX_POWER`].
+    pub fn checked_mul(self, rhs: Dim) -> Option<Dim> {
+        let mut out = [0i8; 6];
+        for (i, o) in out.iter_mut().enumerate() {
+            *o = bounded(self.0[i].checked_add(rhs.0[i])?)?;
+        }
+        Some(Dim(out))
+    }
+
+    /// The largest power of a base unit a written unit may reach. No
+    /// physical parameter needs more than a few; the bound leaves room for
+    /// the named dimensions to be combined with any written one without
+    /// leaving `i8`.
+    pub const MAX_POWER: i8 = 16;
+
+    /// For the named dimensions of the language, whose exponents are
+    /// small; a written unit goes through [`Dim::checked_powi`].
     pub fn powi(self, n: i8) -> Dim {
-        Dim(self.0.map(|e| e.saturating_mul(n)))
+        self.checked_powi(n)
+            .unwrap_or_else(|| unreachable!("the named dimensions have small exponents"))
     }
 
     pub fn sqrt(self) -> Option<Dim> {
@@ -53,12 +84,11 @@ impl Dim {
 
 impl Mul for Dim {
     type Output = Dim;
+    /// For the named dimensions of the language; a written unit goes
+    /// through [`Dim::checked_mul`].
     fn mul(self, rhs: Dim) -> Dim {
-        let mut out = [0i8; 5];
-        for (i, o) in out.iter_mut().enumerate() {
-            *o = self.0[i].saturating_add(rhs.0[i]);
-        }
-        Dim(out)
+        self.checked_mul(rhs)
+            .unwrap_or_else(|| unreachable!("the named dimensions have small exponents"))
     }
 }
 
@@ -67,6 +97,11 @@ impl Div for Dim {
     fn div(self, rhs: Dim) -> Dim {
         self * rhs.powi(-1)
     }
+}
+
+/// A doubled exponent within ±[`Dim::MAX_POWER`].
+fn bounded(doubled: i8) -> Option<i8> {
+    (doubled.unsigned_abs() <= 2 * Dim::MAX_POWER.unsigned_abs()).then_some(doubled)
 }
 
 /// Base-unit spelling, e.g. `kg·m^2·s^-3·A^-1`, for dimensions without a name.
@@ -128,6 +163,7 @@ impl DimName {
             d if d == Dim::MASS => n("a mass", "kg", "25 kg"),
             d if d == Dim::PRESSURE => n("a pressure", "Pa", "10 bar"),
             d if d == Dim::LENGTH => n("a length", "m", "2 m"),
+            d if d == Dim::CODE => n("a number of converter codes", "LSB", "2 LSB"),
             d if d == per_kelvin(Dim::NONE) => n("a temperature coefficient", "1/K", "15 ppm/K"),
             d if d == per_kelvin(Dim::VOLTAGE) => n("a voltage per kelvin", "V/K", "10 mV/K"),
             d if d == per_kelvin(Dim::CURRENT) => n("a current per kelvin", "A/K", "1 uA/K"),
@@ -155,6 +191,21 @@ mod tests {
         assert_eq!(Dim::ROOT_HERTZ.powi(2), Dim::FREQUENCY);
         assert_eq!(Dim::FREQUENCY.sqrt(), Some(Dim::ROOT_HERTZ));
         assert_eq!(Dim::RESISTANCE * Dim::CAPACITANCE, Dim::TIME);
+    }
+
+    #[test]
+    fn powers_beyond_the_bound_are_refused() {
+        let hz4 = Dim::FREQUENCY.powi(4);
+        let mut d = Dim::NONE;
+        for _ in 0..4 {
+            d = d.checked_mul(hz4).expect("Hz^16 is within the bound");
+        }
+        assert_eq!(d.checked_mul(hz4), None, "Hz^20 is beyond it");
+        assert_eq!(Dim::FREQUENCY.checked_powi(17), None);
+        assert_eq!(
+            Dim::CODE.checked_powi(-2),
+            Some(Dim::NONE / Dim::CODE / Dim::CODE)
+        );
     }
 
     #[test]

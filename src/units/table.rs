@@ -44,6 +44,9 @@ pub enum UnitError {
     NoPrefix { symbol: String },
     /// An exponent beyond what any physical parameter needs.
     Power { text: String },
+    /// The powers of a compound unit add up beyond
+    /// [`Dim::MAX_POWER`] (`Hz^4*Hz^4*Hz^4*Hz^4*Hz^4`).
+    Overflow { text: String },
 }
 
 impl fmt::Display for UnitError {
@@ -55,6 +58,9 @@ impl fmt::Display for UnitError {
             }
             UnitError::NoPrefix { symbol } => write!(f, "`{symbol}` takes no SI prefix"),
             UnitError::Power { text } => write!(f, "unit power in `{text}` is out of range"),
+            UnitError::Overflow { text } => {
+                write!(f, "the powers in `{text}` add up beyond {}", Dim::MAX_POWER)
+            }
         }
     }
 }
@@ -154,7 +160,12 @@ pub fn parse_unit(text: &str) -> Result<Unit, UnitError> {
         let (s, d) = parse_factor(factor)?;
         let power = if divide { -power } else { power };
         scale *= s.powi(i32::from(power));
-        dim = dim * d.powi(power);
+        dim = d
+            .checked_powi(power)
+            .and_then(|d| dim.checked_mul(d))
+            .ok_or_else(|| UnitError::Overflow {
+                text: text.to_string(),
+            })?;
         if end == rest.len() {
             break;
         }
@@ -317,6 +328,15 @@ mod tests {
             Err(UnitError::NoPrefix { .. })
         ));
         assert!(matches!(parse_unit("m%"), Err(UnitError::NoPrefix { .. })));
+    }
+
+    /// Exponent arithmetic is checked: seventeen `Hz^4` factors are s^-68,
+    /// not a power that wrapped or saturated into something else.
+    #[test]
+    fn overflowing_powers_are_an_error() {
+        let text = vec!["Hz^4"; 17].join("*");
+        assert!(matches!(parse_unit(&text), Err(UnitError::Overflow { .. })));
+        assert_eq!(parse_unit("Hz^4*Hz^4").unwrap().dim, Dim::FREQUENCY.powi(8));
     }
 
     #[test]
