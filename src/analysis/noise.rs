@@ -5,6 +5,7 @@
 
 use super::stages::{low_pass, number, signal_path, stage};
 use crate::eval::{Env, Node, Plan, Signal};
+use crate::model::value::ParamValue;
 use crate::model::Chain;
 use crate::physics::noise::{johnson_voltage_density, rms_with_flicker};
 use crate::units::Dim;
@@ -99,7 +100,7 @@ fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>)
         let Some(s) = stage(chain, plan, i) else {
             continue;
         };
-        let Some(crate::model::value::ParamValue::Limit(t)) = s.param("noise") else {
+        let Some(ParamValue::Limit(t)) = s.param("noise") else {
             continue;
         };
         let stated = t.plus.max(t.minus);
@@ -148,10 +149,17 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
         };
         match &plan.nodes[n] {
             Node::Adc { .. } => {
-                if let Some(v) = number(s, "noise") {
+                if let Some(ParamValue::Limit(t)) = s.param("noise") {
+                    // In `LSB`: one code at the input is `lsb` (measurand
+                    // per code) times `slope` (volts per measurand).
+                    let per_unit = if t.dim == Dim::CODE {
+                        lsb * slope.abs()
+                    } else {
+                        1.0
+                    };
                     terms.push(NoiseTerm {
                         id: format!("{}.noise", s.name),
-                        rms_v: v,
+                        rms_v: t.plus.max(t.minus) * per_unit,
                     });
                 }
             }

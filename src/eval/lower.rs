@@ -6,7 +6,7 @@ use petgraph::graph::DiGraph;
 
 use super::convert::{Calibration, Conversion, Method};
 use super::plan::{
-    BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
+    AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
     SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
 };
 use super::run::MAX_NODES;
@@ -704,8 +704,10 @@ fn adc_node(
         _ if differential => Polarity::Bipolar,
         _ => Polarity::Unipolar,
     };
-    let limit = |slots: &mut Slots, name: &str| match stage.param(name) {
-        Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), t)),
+    let bits = count(stage, "bits").unwrap_or(12);
+    // Gain error and INL as fractions of the full-scale span.
+    let fraction = |slots: &mut Slots, name: &str| match stage.param(name) {
+        Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), &fraction_of_span(t, bits))),
         _ => None,
     };
     let (vref, vref_drift) = match measure(stage, "vref") {
@@ -717,19 +719,44 @@ fn adc_node(
         ),
         None => (None, None),
     };
+    // Slots in the order the parameters are listed (it seeds Monte Carlo).
+    let pga = measure(stage, "pga").map(|m| slots.measure(id("pga"), m));
+    let offset = match stage.param("offset") {
+        Some(ParamValue::Limit(t)) if t.dim == Dim::CODE => {
+            Some(AdcOffset::Codes(slots.limit(id("offset"), t)))
+        }
+        Some(ParamValue::Limit(t)) => Some(AdcOffset::Input(slots.limit(id("offset"), t))),
+        _ => None,
+    };
     Ok(Node::Adc {
-        bits: count(stage, "bits").unwrap_or(12),
+        bits,
         polarity,
         differential,
-        pga: measure(stage, "pga").map(|m| slots.measure(id("pga"), m)),
+        pga,
         vref,
         vref_drift,
         reference,
-        offset: limit(slots, "offset"),
-        gain_error: limit(slots, "gain_error"),
-        inl: limit(slots, "inl"),
+        offset,
+        gain_error: fraction(slots, "gain_error"),
+        inl: fraction(slots, "inl"),
         input: input.ok_or_else(|| not_invertible(&stage.name, "no input"))?,
     })
+}
+
+/// A converter's gain error or INL as a fraction of its full-scale span.
+/// Written in `LSB`, one code is 1/2^bits of the whole span (of both
+/// halves for a bipolar input): the converter's own definition of an LSB.
+fn fraction_of_span(t: &Tolerance, bits: u32) -> Tolerance {
+    if t.dim != Dim::CODE {
+        return t.clone();
+    }
+    let codes = 2f64.powi(bits as i32);
+    Tolerance {
+        plus: t.plus / codes,
+        minus: t.minus / codes,
+        dim: Dim::NONE,
+        ..t.clone()
+    }
 }
 
 /// Narrows each conversion's domain to where the nominal chain evaluates,

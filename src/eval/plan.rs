@@ -233,7 +233,8 @@ pub enum Node {
         vref: Option<SlotId>,
         vref_drift: Option<DriftSlot>,
         reference: Option<NodeId>,
-        offset: Option<SlotId>,
+        offset: Option<AdcOffset>,
+        /// A fraction of the gain, nominal 0.
         gain_error: Option<SlotId>,
         /// Integral nonlinearity, a fraction of full scale, nominal 0.
         inl: Option<SlotId>,
@@ -244,6 +245,17 @@ pub enum Node {
         cj: Option<NodeId>,
         conversion: Box<Conversion>,
     },
+}
+
+/// A converter's offset as it was stated: a voltage at its input, or a
+/// number of codes (`± 2 LSB`), which stays a number of codes whatever the
+/// reference does.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum AdcOffset {
+    /// Volts, added to the input.
+    Input(SlotId),
+    /// Codes, added to the conversion result.
+    Codes(SlotId),
 }
 
 /// A tolerance class whose half-width depends on the temperature.

@@ -3,8 +3,8 @@
 
 use super::convert::{calibration_env, Calibrated, Conversion};
 use super::plan::{
-    BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses,
-    Signal, ThermistorCurve,
+    AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
+    Senses, Signal, ThermistorCurve,
 };
 use crate::physics::adc::Polarity;
 use crate::physics::{rtd, semiconductor, strain, thermistor, thermocouple};
@@ -498,7 +498,11 @@ impl Plan {
                 }
                 let gain = pga.map(|g| values[g]).unwrap_or(1.0)
                     * (1.0 + gain_error.map(|g| values[g]).unwrap_or(0.0));
-                let off = offset.map(|o| values[o]).unwrap_or(0.0);
+                let (off, off_codes) = match offset {
+                    Some(AdcOffset::Input(o)) => (values[*o], 0.0),
+                    Some(AdcOffset::Codes(o)) => (0.0, values[*o]),
+                    None => (0.0, 0.0),
+                };
                 let per_ref = match polarity {
                     // A shift, not `powi`: that is a library call per run.
                     Polarity::Unipolar => (1u64 << *bits) as f64,
@@ -510,6 +514,7 @@ impl Plan {
                     Polarity::Bipolar => 2.0 * per_ref,
                 };
                 let exact = (v + off) * gain / vr * per_ref
+                    + off_codes
                     + inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
                 let (lo, hi) = match polarity {
                     Polarity::Unipolar => (0.0, per_ref - 1.0),

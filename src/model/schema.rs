@@ -153,6 +153,10 @@ const HERTZ: Expect = Expect::Dim(Dim::FREQUENCY);
 const FARAD: Expect = Expect::Dim(Dim::CAPACITANCE);
 
 const VOLTAGE_NOISE: Expect = Expect::OneOf(&[Dim::VOLTAGE, Dim::VOLTAGE_DENSITY]);
+/// A converter quantity in volts or in codes (`LSB`).
+const VOLTAGE_OR_CODES: Expect = Expect::OneOf(&[Dim::VOLTAGE, Dim::CODE]);
+/// A converter quantity as a ratio or in codes (`LSB` of full scale).
+const RATIO_OR_CODES: Expect = Expect::OneOf(&[Dim::NONE, Dim::CODE]);
 const CURRENT_NOISE: Expect = Expect::OneOf(&[Dim::CURRENT, Dim::CURRENT_DENSITY]);
 
 const TIME_CONSTANT: ParamSpec = p("time_constant", plain(SECOND)).non_negative();
@@ -410,10 +414,10 @@ static MODELS: &[ModelSpec] = &[
             p("polarity", Shape::Words(&["unipolar", "bipolar"])),
             p("vref", measure(VOLT)).positive(),
             p("pga", toleranced(Expect::Ratio)).positive(),
-            p("offset", Shape::Limit(VOLT)),
-            p("gain_error", Shape::Limit(Expect::Ratio)),
-            p("inl", Shape::Limit(Expect::Ratio)),
-            p("noise", plain(VOLT)).non_negative(),
+            p("offset", Shape::Limit(VOLTAGE_OR_CODES)),
+            p("gain_error", Shape::Limit(RATIO_OR_CODES)),
+            p("inl", Shape::Limit(RATIO_OR_CODES)),
+            p("noise", Shape::Limit(VOLTAGE_OR_CODES)),
             p("rate", plain(HERTZ)).positive(),
             p("notch", plain(HERTZ)).positive(),
         ],

@@ -111,7 +111,7 @@ static SYMBOLS: &[Symbol] = &[
     sym("με", 1e-6, Dim::NONE, false),
     sym("bit", 1.0, Dim::NONE, false),
     sym("bits", 1.0, Dim::NONE, false),
-    sym("LSB", 1.0, Dim::NONE, false),
+    sym("LSB", 1.0, Dim::CODE, false),
 ];
 
 /// Spellings of degrees Celsius.
@@ -337,6 +337,7 @@ mod tests {
         let text = vec!["Hz^4"; 17].join("*");
         assert!(matches!(parse_unit(&text), Err(UnitError::Overflow { .. })));
         assert_eq!(parse_unit("Hz^4*Hz^4").unwrap().dim, Dim::FREQUENCY.powi(8));
+        assert_eq!(parse_unit("LSB").unwrap().dim, Dim::CODE);
     }
 
     #[test]
