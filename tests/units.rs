@@ -130,3 +130,107 @@ fn lsb_outside_a_converter_is_refused() {
         run.stderr
     );
 }
+
+fn requirement(budget: &serde_json::Value) -> (f64, f64, bool) {
+    let r = &budget["requirements"][0];
+    (
+        r["limit"].as_f64().expect("limit"),
+        r["achieved"].as_f64().expect("achieved"),
+        r["pass"].as_bool().expect("pass"),
+    )
+}
+
+fn budget_of(text: &str, name: &str) -> serde_json::Value {
+    let run = run_on(text, name, &["budget", "--format", "json", "--trials", "0"]);
+    assert!(run.status == 0 || run.status == 1, "{}", run.stderr);
+    serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("{e}: {}", run.stderr))
+}
+
+/// `% of span` is a share of the measurand range (IEC 60770-1's span,
+/// recalled from memory; the usual transmitter convention): 0.1 % of
+/// 0 kg .. 5000 kg is ± 5 kg at every load, which a ± 2 kg chain meets.
+#[test]
+fn accuracy_in_percent_of_span() {
+    let text = fixture("silo_percent.catena")
+        .replace("500 kg .. 5000 kg", "0 kg .. 5000 kg")
+        .replace("% of reading", "% of span");
+    let (limit, achieved, pass) = requirement(&budget_of(&text, "span.catena"));
+    assert!((limit - 5.0).abs() < 1e-12, "{limit}");
+    assert!((achieved - 2.0).abs() < 0.01 && pass, "{achieved}");
+}
+
+/// `% of reading` is a share of the value read, so the verdict compares
+/// each point with its own limit (a hand calculation): a fixed ± 2 kg
+/// meets 0.1 % of reading (± 5 kg) at 5000 kg but not at 500 kg
+/// (± 0.5 kg), where the verdict is judged; ± 0.25 kg meets it everywhere.
+#[test]
+fn accuracy_in_percent_of_reading_is_judged_per_point() {
+    let text = fixture("silo_percent.catena");
+    let (limit, achieved, pass) = requirement(&budget_of(&text, "reading.catena"));
+    assert!((limit - 0.5).abs() < 1e-12, "the limit at 500 kg: {limit}");
+    assert!((achieved - 2.0).abs() < 0.01 && !pass, "{achieved}");
+    let tight = text.replace("zero ± 0.0008 mV/V", "zero ± 0.0001 mV/V");
+    let (limit, achieved, pass) = requirement(&budget_of(&tight, "tight.catena"));
+    assert!((limit - 0.5).abs() < 1e-12, "{limit}");
+    assert!((achieved - 0.25).abs() < 0.01 && pass, "{achieved}");
+}
+
+/// A bare `%` on a quantity with a unit is refused, and the help gives
+/// both readings with their values: 0.1 % of 5000 kg is 5 kg either way
+/// at the top of the range.
+#[test]
+fn bare_percent_offers_both_spellings() {
+    let text = fixture("silo_percent.catena")
+        .replace("500 kg .. 5000 kg", "0 kg .. 5000 kg")
+        .replace("± 0.1 % of reading", "± 0.2 %");
+    let run = run_on(&text, "bare.catena", &["check"]);
+    assert_eq!(run.status, 1);
+    let flat = run.stderr.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(flat.contains("P313"), "{flat}");
+    assert!(
+        flat.contains("`± 0.2 % of span` (± 10 kg over the whole range)"),
+        "{flat}"
+    );
+    assert!(
+        flat.contains("`± 0.2 % of reading` (± 10 kg at 5000 kg)"),
+        "{flat}"
+    );
+}
+
+/// Temperatures: a requirement of 0.5 % of span over 0 .. 100 degC is
+/// ± 0.5 K, and a sensor stated to ± 1 % of reading errs by 1 K at
+/// 100 degC and 0.5 K at 50 degC (the reading in degC, as IEC 60584 states
+/// thermocouple tolerances as a share of |t|; recalled from memory).
+#[test]
+fn temperature_shares_of_span_and_reading() {
+    let text = fixture("adc_lsb.catena");
+    let chain = &text[..text.find("# The same converter").expect("two chains")];
+    let text = chain
+        .replace(
+            "5 degC .. 100 degC",
+            "0 degC .. 100 degC\n    require accuracy ± 0.5 % of span worst_case",
+        )
+        .replace(
+            "output 0 V at 0 degC",
+            "output 0 V at 0 degC\n        accuracy ± 1 % of reading",
+        );
+    let b = budget_of(&text, "temperature.catena");
+    assert!(
+        (requirement(&b).0 - 0.5).abs() < 1e-12,
+        "{}",
+        b["requirements"]
+    );
+    let at = |m: f64| {
+        b["points"]
+            .as_array()
+            .expect("points")
+            .iter()
+            .find(|p| p["measurand"] == m)
+            .and_then(|p| p["sources"].as_array())
+            .and_then(|s| s.iter().find(|s| s["id"] == "ic.accuracy"))
+            .and_then(|s| s["contribution"].as_f64())
+            .expect("the sensor's accuracy")
+    };
+    assert!((at(100.0) - 1.0).abs() < 1e-9, "{}", at(100.0));
+    assert!((at(50.0) - 0.5).abs() < 1e-9, "{}", at(50.0));
+}

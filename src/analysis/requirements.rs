@@ -5,7 +5,7 @@
 use super::budget::Budget;
 use super::monte_carlo::Interval;
 use crate::diagnostics::Span;
-use crate::model::value::ParamValue;
+use crate::model::value::{Basis, ParamValue};
 use crate::model::Chain;
 
 #[derive(Clone, Debug, PartialEq)]
@@ -71,11 +71,25 @@ pub fn verdicts(
                         .unwrap_or(budget.points[i].gum_expanded),
                     _ => budget.points[i].gum_expanded,
                 };
+                // The limit at each point: fixed, or a share of the reading.
+                let limit_at = |i: usize| match &r.value {
+                    ParamValue::Limit(t) if t.basis == Basis::Reading => {
+                        let zero = chain.measurand.as_ref().map_or(0.0, |m| m.zero());
+                        limit * (budget.points[i].measurand - zero).abs()
+                    }
+                    _ => limit,
+                };
+                // Worst where the error takes the largest share of its limit.
+                let share = |i: usize| match error_at(i) / limit_at(i) {
+                    s if s.is_nan() => 0.0,
+                    s => s,
+                };
                 let Some(worst) =
-                    (0..budget.points.len()).max_by(|&a, &b| error_at(a).total_cmp(&error_at(b)))
+                    (0..budget.points.len()).max_by(|&a, &b| share(a).total_cmp(&share(b)))
                 else {
                     continue;
                 };
+                let limit = limit_at(worst);
                 let p = &budget.points[worst];
                 let top = if method == "worst_case" {
                     p.contributions

@@ -81,6 +81,7 @@ codes! {
     P310 => Error, "unknown requirement or alarm";
     P311 => Error, "missing measurand";
     P312 => Error, "setting given twice";
+    P313 => Error, "percentage without a basis";
 
     M201 => Error, "duplicate stage name";
     M202 => Error, "unknown stage";

@@ -11,7 +11,7 @@ use super::plan::{
 };
 use super::run::MAX_NODES;
 use crate::model::ports::Port;
-use crate::model::value::{Measure, ParamValue, Tolerance};
+use crate::model::value::{Basis, Measure, ParamValue, Tolerance};
 use crate::model::{Chain, Stage};
 use crate::physics::adc::Polarity;
 use crate::physics::rtd::{self, ToleranceClass};
@@ -167,6 +167,11 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
     };
 
     let mut slots = Slots { slots: Vec::new() };
+    // A sensor's `% of reading` is of its temperature in the chain's unit.
+    let zero = chain
+        .measurand
+        .as_ref()
+        .map_or(ZERO_CELSIUS_K, |m| m.zero());
     let mut sense_error = vec![SenseError::default(); order.len()];
     let mut cj_error = None;
     let mut nodes = Vec::with_capacity(order.len());
@@ -208,7 +213,7 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                 }
             }
             (StageKind::Sensor, Some("rtd")) => {
-                let (node, error) = rtd_node(stage, &mut slots, input(si, Port::In), senses)?;
+                let (node, error) = rtd_node(stage, &mut slots, input(si, Port::In), senses, zero)?;
                 sense_error[nodes.len()] = error;
                 node
             }
@@ -224,7 +229,13 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                         Some((ClassTolerance::Thermocouple(ty, c), slot));
                 }
                 if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
-                    sense_error[node_index].absolute = Some(slots.limit(id("tolerance"), t));
+                    stated_error(
+                        &mut sense_error[node_index],
+                        &mut slots,
+                        id("tolerance"),
+                        t,
+                        zero,
+                    );
                 }
                 if let Some(ParamValue::Limit(t)) = stage.param("cold_junction") {
                     cj_error = Some(slots.limit(id("cold_junction"), t));
@@ -277,7 +288,8 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                 let rout = measure(stage, "output_resistance")
                     .map(|m| slots.measure(id("output_resistance"), m));
                 if let Some(ParamValue::Limit(t)) = stage.param("accuracy") {
-                    sense_error[nodes.len()].absolute = Some(slots.limit(id("accuracy"), t));
+                    let error = &mut sense_error[nodes.len()];
+                    stated_error(error, &mut slots, id("accuracy"), t, zero);
                 }
                 Node::IcVoltage {
                     slope,
@@ -294,7 +306,8 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                         .ok_or_else(|| not_invertible(&stage.name, "no slope"))?,
                 );
                 if let Some(ParamValue::Limit(t)) = stage.param("accuracy") {
-                    sense_error[nodes.len()].absolute = Some(slots.limit(id("accuracy"), t));
+                    let error = &mut sense_error[nodes.len()];
+                    stated_error(error, &mut slots, id("accuracy"), t, zero);
                 }
                 Node::IcCurrent { slope, senses }
             }
@@ -600,6 +613,7 @@ fn rtd_node(
     slots: &mut Slots,
     input: Option<NodeId>,
     senses: Senses,
+    zero: f64,
 ) -> Result<(Node, SenseError), EvalError> {
     let id = |p: &str| format!("{}.{p}", stage.name);
     let curve_word = word(stage, "rtd").unwrap_or("pt100");
@@ -664,7 +678,7 @@ fn rtd_node(
         ));
     }
     if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
-        error.absolute = Some(slots.limit(id("tolerance"), t));
+        stated_error(&mut error, slots, id("tolerance"), t, zero);
     }
     let node = Node::Rtd {
         curve,
@@ -678,6 +692,15 @@ fn rtd_node(
         valid,
     };
     Ok((node, error))
+}
+
+/// A sensor's stated error: absolute (also `% of span`, converted when it
+/// was read) or a share of its reading.
+fn stated_error(error: &mut SenseError, slots: &mut Slots, id: String, t: &Tolerance, zero: f64) {
+    match t.basis {
+        Basis::Reading => error.of_reading = Some((slots.limit(id, t), zero)),
+        Basis::Written | Basis::Span => error.absolute = Some(slots.limit(id, t)),
+    }
 }
 
 fn iec() -> RtdCurve {

@@ -266,11 +266,15 @@ pub enum ClassTolerance {
 }
 
 /// How far a sensor's reading of its temperature may be off: a fraction of
-/// its class's half-width (slot value in −1 … 1) and an absolute error, K.
+/// its class's half-width (slot value in −1 … 1), an absolute error, K, and
+/// a share of its reading (`% of reading`: the slot is the fraction, of the
+/// temperature's magnitude measured from the second value, the SI zero of
+/// the measurand's unit as written).
 #[derive(Clone, Copy, Debug, PartialEq, Default)]
 pub struct SenseError {
     pub class: Option<(ClassTolerance, SlotId)>,
     pub absolute: Option<SlotId>,
+    pub of_reading: Option<(SlotId, f64)>,
 }
 
 /// What a node outputs in one evaluation, in SI.

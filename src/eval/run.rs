@@ -154,7 +154,12 @@ impl Plan {
             };
             values[slot] * half_width.unwrap_or(0.0)
         });
-        t + class.unwrap_or(0.0) + error.absolute.map(|s| values[s]).unwrap_or(0.0)
+        let of_reading = error
+            .of_reading
+            .map(|(s, zero)| values[s] * (t - zero).abs());
+        t + class.unwrap_or(0.0)
+            + error.absolute.map(|s| values[s]).unwrap_or(0.0)
+            + of_reading.unwrap_or(0.0)
     }
 
     fn drifted(&self, value: f64, drift: Option<DriftSlot>, values: &[f64], env: &Env) -> f64 {

@@ -31,17 +31,9 @@ impl Chain {
     /// The unit errors are shown in (the measurand's difference unit: K
     /// for temperatures) and the factor from SI to it.
     pub fn difference_unit(&self) -> (String, f64) {
-        let unit = self
-            .measurand
-            .as_ref()
-            .map(|m| m.unit.clone())
-            .unwrap_or_default();
-        if unit == "degC" || unit == "K" {
-            return ("K".into(), 1.0);
-        }
-        match crate::units::parse_unit(&unit) {
-            Ok(u) if u.scale != 0.0 => (unit, 1.0 / u.scale),
-            _ => (unit, 1.0),
+        match &self.measurand {
+            Some(m) => m.difference_unit(),
+            None => (String::new(), 1.0),
         }
     }
 }
@@ -57,6 +49,27 @@ pub struct Measurand {
     pub low: f64,
     pub high: f64,
     pub span: Span,
+}
+
+impl Measurand {
+    /// The SI value of the written unit's zero (273.15 K for `degC`), which
+    /// a reading's magnitude is measured from.
+    pub fn zero(&self) -> f64 {
+        crate::units::format::to_si(0.0, &self.unit)
+    }
+
+    /// How a difference of the measurand is written (`K` for `degC`) and
+    /// the factor from SI to it.
+    pub fn difference_unit(&self) -> (String, f64) {
+        let unit = self.unit.clone();
+        if unit == "degC" || unit == "K" {
+            return ("K".into(), 1.0);
+        }
+        match crate::units::parse_unit(&unit) {
+            Ok(u) if u.scale != 0.0 => (unit, 1.0 / u.scale),
+            _ => (unit, 1.0),
+        }
+    }
 }
 
 #[derive(Clone, Debug)]

@@ -3,9 +3,10 @@
 
 use std::sync::Arc;
 
+use super::chain::Measurand;
 use super::schema::{Expect, Plausible, Shape};
 use super::suggest::did_you_mean;
-use super::value::{Drift, Measure, ParamValue, Tolerance};
+use super::value::{Basis, Drift, Measure, ParamValue, Tolerance};
 use crate::diagnostics::{Code, Finding, SourceFile, Span};
 use crate::syntax::ast::{QuantityLit, ToleranceForm, ToleranceLit, Value};
 use crate::units::{parse_unit, Dim, Unit, UnitError, UnitKind, ZERO_CELSIUS_K};
@@ -16,6 +17,9 @@ pub struct Context<'a> {
     pub file: &'a Arc<SourceFile>,
     /// The chain's measurand dimension, once known.
     pub measurand: Option<Dim>,
+    /// The chain's measurand, once known: its span and unit, for limits
+    /// written as a share of the span or of the reading.
+    pub range: Option<&'a Measurand>,
 }
 
 type Checked<T> = Result<T, Box<Finding>>;
@@ -110,6 +114,9 @@ impl Reader<'_> {
             Shape::Measure { expect, tol, drift } => Ok(ParamValue::Measure(
                 self.measure(expect, tol, drift, shape)?.0,
             )),
+            Shape::Limit(expect) if takes_share(expect) => {
+                Ok(ParamValue::Limit(self.share_or_limit(expect, shape)?))
+            }
             Shape::Limit(expect) => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
             Shape::Range(expect) => self.range(expect, false, shape),
             Shape::RangeOrPoint(expect) => match self.peek() {
@@ -351,6 +358,103 @@ impl Reader<'_> {
         Ok((m, dim))
     }
 
+    /// A limit on a measurand quantity: as written, or a percentage
+    /// followed by `of span` or `of reading`. A bare percentage of a
+    /// quantity with a unit could mean either, so it is refused (P313).
+    fn share_or_limit(&mut self, expect: Expect, shape: Shape) -> Checked<Tolerance> {
+        let Some(written) = self.peek().and_then(written_quantity) else {
+            return self.limit(expect, shape);
+        };
+        let percent = is_relative_unit(&written);
+        let of_at = self.at
+            + 1
+            + usize::from(matches!(
+                self.values.get(self.at + 1),
+                Some(Value::Word(w)) if w.name == "max"
+            ));
+        let has_of = matches!(self.values.get(of_at), Some(Value::Word(w)) if w.name == "of");
+        let dimensionless = self.cx.measurand == Some(Dim::NONE) && expect == Expect::Measurand;
+        match (percent, has_of) {
+            (true, true) => self.share(shape),
+            (true, false) if !dimensionless => Err(self.bare_percent(&written)),
+            (false, true) => Err(self.malformed(
+                self.values[of_at].span(),
+                format!(
+                    "`of` follows a percentage in `{}`, such as `± 0.1 % of span`",
+                    self.name
+                ),
+                shape,
+            )),
+            _ => self.limit(expect, shape),
+        }
+    }
+
+    /// `± x % [max] of span|reading`: a share of the measurand's span
+    /// (converted here to an absolute limit) or of the reading.
+    fn share(&mut self, shape: Shape) -> Checked<Tolerance> {
+        let mut t = self.limit(Expect::Ratio, shape)?;
+        let of = self.next().map(Value::span).unwrap_or_default();
+        let basis = match self.word(&["span", "reading"], shape)?.as_str() {
+            "span" => Basis::Span,
+            _ => Basis::Reading,
+        };
+        let Some(m) = self.cx.range else {
+            // No measurand (already reported): nothing to be a share of.
+            return Ok(t);
+        };
+        if basis == Basis::Span {
+            let span = m.high - m.low;
+            t.plus *= span;
+            t.minus *= span;
+        }
+        t.basis = basis;
+        t.dim = m.dim;
+        t.span = t.span.to(of);
+        Ok(t)
+    }
+
+    /// P313: a bare percentage of a measurand quantity, with both
+    /// spellings and what each would be.
+    fn bare_percent(&self, q: &QuantityLit) -> Box<Finding> {
+        let span = self.peek().map(Value::span).unwrap_or(q.span);
+        let text = self.cx.file.slice(span).to_string();
+        let unit = q.unit.as_ref().map(|u| u.text.as_str()).unwrap_or("%");
+        let fraction = parse_unit(unit).map(|u| u.scale).unwrap_or(0.01) * q.number.abs();
+        let help = match self.cx.range {
+            Some(m) => {
+                let (diff, factor) = m.difference_unit();
+                let zero = m.zero();
+                let far = (m.low - zero).abs().max((m.high - zero).abs());
+                let at = crate::units::format::from_si(
+                    if (m.high - zero).abs() >= (m.low - zero).abs() {
+                        m.high
+                    } else {
+                        m.low
+                    },
+                    &m.unit,
+                );
+                let n = |v: f64| crate::units::format::trimmed(v * factor, 4);
+                format!(
+                    "write `{text} of span` (± {} {diff} over the whole range) or `{text} of reading` (± {} {diff} at {} {})",
+                    n(fraction * (m.high - m.low)),
+                    n(fraction * far),
+                    crate::units::format::trimmed(at, 6),
+                    m.unit,
+                )
+            }
+            None => format!("write `{text} of span` or `{text} of reading`"),
+        };
+        Box::new(
+            Finding::new(
+                Code::P313,
+                self.cx.file,
+                format!("`{}` in `{text}` is a share, but of what?", unit),
+            )
+            .label(span, "a percentage of the span or of the reading?")
+            .help(help),
+        )
+    }
+
     fn limit(&mut self, expect: Expect, shape: Shape) -> Checked<Tolerance> {
         match self.next().cloned() {
             Some(Value::Tolerance(t)) => tolerance(&t, expect, None, self.cx),
@@ -369,6 +473,7 @@ impl Reader<'_> {
                     relative,
                     normal: false,
                     dim: unit_dim(&q),
+                    basis: Basis::Written,
                     span,
                 })
             }
@@ -461,6 +566,26 @@ impl Reader<'_> {
             )),
             None => Err(self.missing("a whole number", shape)),
         }
+    }
+}
+
+/// Limits in the measurand's quantity, which a percentage may state as a
+/// share of the span or of the reading: requirements in the measurand's
+/// unit and sensor accuracies in kelvin.
+fn takes_share(expect: Expect) -> bool {
+    matches!(expect, Expect::Measurand | Expect::TempDiff)
+}
+
+/// The quantity a limit value is written with (the lower limit's, for an
+/// asymmetric tolerance, whose unit applies to both).
+fn written_quantity(v: &Value) -> Option<QuantityLit> {
+    match v {
+        Value::Quantity(q) => Some(q.clone()),
+        Value::Tolerance(t) => Some(match &t.form {
+            ToleranceForm::Symmetric(q) => q.clone(),
+            ToleranceForm::Asymmetric { minus, .. } => minus.clone(),
+        }),
+        _ => None,
     }
 }
 
@@ -731,6 +856,7 @@ fn tolerance(
         relative,
         normal: t.normal,
         dim: unit_dim(written),
+        basis: Basis::Written,
         span: t.span,
     })
 }

@@ -94,7 +94,6 @@ pub fn resolve(
             );
         }
         let settings = settings::resolve(file, decl, &mut findings);
-        let measurand = settings.measurand.as_ref().map(|m| m.dim);
         let mut stages: Vec<Stage> = Vec::new();
         for s in &decl.stages {
             if let Some(first) = stages.iter().find(|x| x.name == s.name.name) {
@@ -161,7 +160,7 @@ pub fn resolve(
                 s,
                 part,
                 part_failed,
-                measurand,
+                settings.measurand.as_ref(),
                 &mut findings,
             ));
         }

@@ -69,10 +69,11 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
             }
             seen.push((setting.kind, sub, setting.span));
         }
-        let measurand_dim = out.measurand.as_ref().map(|m| m.dim);
+        let known = out.measurand.clone();
         let cx = Context {
             file,
-            measurand: measurand_dim,
+            measurand: known.as_ref().map(|m| m.dim),
+            range: known.as_ref(),
         };
         let result = match setting.kind {
             SettingKind::Title => match setting.values.as_slice() {
@@ -207,6 +208,7 @@ fn measurand(file: &Arc<SourceFile>, setting: &Setting) -> Result<Measurand, Box
     let cx = Context {
         file,
         measurand: Some(dim),
+        range: None,
     };
     let value = interpret(
         "measurand",

@@ -23,7 +23,7 @@ pub fn resolve(
     decl: &StageDecl,
     part: Option<&Part>,
     part_failed: bool,
-    measurand: Option<crate::units::Dim>,
+    measurand: Option<&super::chain::Measurand>,
     findings: &mut Findings,
 ) -> Stage {
     let mut lines: Vec<Line<'_>> = Vec::new();
@@ -92,7 +92,8 @@ pub fn resolve(
         };
         let cx = Context {
             file: line.file,
-            measurand,
+            measurand: measurand.map(|m| m.dim),
+            range: measurand,
         };
         match interpret(
             spec_name,

@@ -17,7 +17,23 @@ pub struct Tolerance {
     /// The dimension of the limits as written (where a parameter accepts
     /// several, such as noise as an rms value or as a density).
     pub dim: Dim,
+    /// What the limits are a share of, for a limit in the measurand's
+    /// quantity written as a percentage.
+    pub basis: Basis,
     pub span: Span,
+}
+
+/// What a limit on a measurand quantity is a share of.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Basis {
+    /// As written: absolute, or relative to the nominal with `relative`.
+    Written,
+    /// `% of span`: a share of the measurand range (high − low). The
+    /// limits are already absolute, converted where they were read.
+    Span,
+    /// `% of reading`: the limits are fractions of the reading's
+    /// magnitude in the measurand's unit as written (°C for `degC`).
+    Reading,
 }
 
 /// A temperature coefficient: per kelvin, relative (`ppm/K`) or absolute
