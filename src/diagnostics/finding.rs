@@ -21,6 +21,37 @@ pub struct Finding {
     /// The first label is the primary place.
     pub labels: Vec<Label>,
     pub help: Option<String>,
+    /// The finding this one follows from, if it is a consequence: it is
+    /// reported right after its cause, and says so.
+    /// Boxed: most findings have none, and a `Finding` travels in `Err`.
+    pub cause: Option<Box<Cause>>,
+}
+
+/// Which finding caused another: its code and primary place.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct Cause {
+    pub code: Code,
+    pub file: String,
+    pub offset: usize,
+    /// 1-based, for messages.
+    pub line: usize,
+}
+
+impl Cause {
+    pub fn of(f: &Finding) -> Cause {
+        let offset = f.primary_offset();
+        Cause {
+            code: f.code,
+            file: f.file.name().to_string(),
+            offset,
+            line: f.file.line_column(offset).0,
+        }
+    }
+
+    /// Whether `f` is the finding this cause names.
+    pub fn is(&self, f: &Finding) -> bool {
+        f.code == self.code && f.primary_offset() == self.offset && f.file.name() == self.file
+    }
 }
 
 impl Finding {
@@ -31,7 +62,14 @@ impl Finding {
             file: Arc::clone(file),
             labels: Vec::new(),
             help: None,
+            cause: None,
         }
+    }
+
+    /// Marks this finding as a consequence of `cause`, when there is one.
+    pub fn caused_by(mut self, cause: Option<Cause>) -> Self {
+        self.cause = cause.map(Box::new);
+        self
     }
 
     pub fn label(mut self, span: Span, text: impl Into<String>) -> Self {
@@ -82,7 +120,14 @@ impl miette::Diagnostic for Finding {
 
     fn help<'a>(&'a self) -> Option<Box<dyn fmt::Display + 'a>> {
         let help = self.help.as_deref();
-        let explain = format!("run `catena explain {}` for more", self.code.as_str());
+        let mut explain = format!("run `catena explain {}` for more", self.code.as_str());
+        if let Some(c) = &self.cause {
+            explain = format!(
+                "this follows from {} on line {}: fix that first\n{explain}",
+                c.code.as_str(),
+                c.line
+            );
+        }
         Some(Box::new(match help {
             Some(h) => format!("{h}\n{explain}"),
             None => explain,

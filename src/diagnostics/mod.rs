@@ -8,7 +8,7 @@ mod render;
 mod source;
 
 pub use code::{Code, Severity};
-pub use finding::{Finding, Label};
+pub use finding::{Cause, Finding, Label};
 pub use render::{render_human, render_json, JsonFinding};
 pub use source::{SourceFile, Span};
 
@@ -49,7 +49,9 @@ impl Findings {
     }
 
     /// Stable report order: by file, then position, then code, so output
-    /// diffs cleanly whatever order the passes ran in.
+    /// diffs cleanly whatever order the passes ran in; a finding that
+    /// follows from another comes right after its cause (root cause
+    /// first), in that same order among the cause's other consequences.
     pub fn sorted(mut self) -> Vec<Finding> {
         self.items.sort_by(|a, b| {
             (a.file.name(), a.primary_offset(), a.code, &a.message).cmp(&(
@@ -62,11 +64,46 @@ impl Findings {
         self.items.dedup_by(|a, b| {
             a.code == b.code && a.message == b.message && a.primary_offset() == b.primary_offset()
         });
-        self.items
+        causes_first(self.items)
     }
 
     pub fn into_vec(self) -> Vec<Finding> {
         self.items
+    }
+}
+
+/// Reorders sorted findings so each consequence follows its cause. A cause
+/// that is not among them leaves the finding where it sorted; so does a
+/// loop of causes, which has no root to start from.
+fn causes_first(items: Vec<Finding>) -> Vec<Finding> {
+    let parent: Vec<Option<usize>> = items
+        .iter()
+        .enumerate()
+        .map(|(i, f)| {
+            let cause = f.cause.as_ref()?;
+            items.iter().position(|g| cause.is(g)).filter(|&p| p != i)
+        })
+        .collect();
+    let mut order = Vec::with_capacity(items.len());
+    let mut placed = vec![false; items.len()];
+    let roots = (0..items.len()).filter(|&i| parent[i].is_none());
+    // Then whatever a loop of causes left unplaced, in sorted order.
+    for i in roots.chain(0..items.len()) {
+        place(i, &parent, &mut placed, &mut order);
+    }
+    let mut slots: Vec<Option<Finding>> = items.into_iter().map(Some).collect();
+    order.into_iter().filter_map(|i| slots[i].take()).collect()
+}
+
+/// `i`, then its consequences in sorted order, depth first.
+fn place(i: usize, parent: &[Option<usize>], placed: &mut [bool], order: &mut Vec<usize>) {
+    if placed[i] {
+        return;
+    }
+    placed[i] = true;
+    order.push(i);
+    for child in (0..parent.len()).filter(|&c| parent[c] == Some(i)) {
+        place(child, parent, placed, order);
     }
 }
 
@@ -75,5 +112,31 @@ impl IntoIterator for Findings {
     type IntoIter = std::vec::IntoIter<Finding>;
     fn into_iter(self) -> Self::IntoIter {
         self.items.into_iter()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{Cause, Code, Finding, Findings, SourceFile, Span};
+
+    #[test]
+    fn consequences_follow_their_cause() {
+        let file = SourceFile::new("a.catena", "0123456789\n0123456789\n");
+        let root = Finding::new(Code::P301, &file, "root").label(Span::new(15, 16), "");
+        let early = Finding::new(Code::P302, &file, "follows")
+            .label(Span::new(2, 3), "")
+            .caused_by(Some(Cause::of(&root)));
+        let other = Finding::new(Code::M208, &file, "other").label(Span::new(5, 6), "");
+        let orphan = Finding::new(Code::M206, &file, "orphan")
+            .label(Span::new(1, 2), "")
+            .caused_by(Some(Cause::of(
+                &Finding::new(Code::M202, &file, "absent").label(Span::new(9, 9), ""),
+            )));
+        let mut all = Findings::new();
+        for f in [early, other, root, orphan] {
+            all.push(f);
+        }
+        let codes: Vec<Code> = all.sorted().iter().map(|f| f.code).collect();
+        assert_eq!(codes, [Code::M206, Code::M208, Code::P301, Code::P302]);
     }
 }

@@ -72,6 +72,13 @@ fn render_plain(f: &Finding) -> String {
     if let Some(h) = &f.help {
         s.push_str(&format!("  help: {h}\n"));
     }
+    if let Some(c) = &f.cause {
+        s.push_str(&format!(
+            "  this follows from {} on line {}: fix that first\n",
+            c.code.as_str(),
+            c.line
+        ));
+    }
     s
 }
 
@@ -88,6 +95,15 @@ pub struct JsonFinding {
     pub span: JsonSpan,
     pub labels: Vec<JsonLabel>,
     pub help: Option<String>,
+    /// The finding this one follows from (reported just before it).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub caused_by: Option<JsonCause>,
+}
+
+#[derive(Serialize, Debug, PartialEq)]
+pub struct JsonCause {
+    pub code: &'static str,
+    pub line: usize,
 }
 
 #[derive(Serialize, Debug, PartialEq)]
@@ -139,6 +155,10 @@ impl From<&Finding> for JsonFinding {
                 })
                 .collect(),
             help: f.help.clone(),
+            caused_by: f.cause.as_ref().map(|c| JsonCause {
+                code: c.code.as_str(),
+                line: c.line,
+            }),
         }
     }
 }

@@ -5,7 +5,7 @@ use std::sync::Arc;
 
 use super::ports::Port;
 use super::value::{ParamValue, ResolvedParam};
-use crate::diagnostics::{SourceFile, Span};
+use crate::diagnostics::{Cause, SourceFile, Span};
 use crate::syntax::ast::StageKind;
 use crate::units::Dim;
 
@@ -106,6 +106,10 @@ pub struct Stage {
     /// Its model, part or an edge naming it was rejected, so what the
     /// graph checks would say about it would only echo that finding.
     pub incomplete: bool,
+    /// A finding that probably meant this stage (an edge naming an unknown
+    /// stage one typo away from it): what the graph checks say about this
+    /// stage follows from it.
+    pub misnamed: Option<Cause>,
 }
 
 impl Stage {

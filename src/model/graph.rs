@@ -11,7 +11,7 @@ use super::chain::{Connection, Stage};
 use super::ports::{self, InputSpec, Port, Signal};
 use super::suggest::did_you_mean;
 use super::value::ParamValue;
-use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
+use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{EdgeDecl, Endpoint, StageKind};
 
 fn stage_inputs(stage: &Stage) -> Vec<InputSpec> {
@@ -48,8 +48,31 @@ pub fn connect(
             s.incomplete = true;
         }
     }
+    mark_misnamed(stages, edges, findings);
     check_ports(file, stages, &connections, findings);
     connections
+}
+
+/// An unknown stage in an edge (M202) one typo away from a stage leaves
+/// that stage unconnected: what the graph checks say about it follows from
+/// the M202.
+fn mark_misnamed(stages: &mut [Stage], edges: &[EdgeDecl], findings: &Findings) {
+    for end in edges.iter().flat_map(|e| e.endpoints.iter()) {
+        if stages.iter().any(|s| s.name == end.stage.name) {
+            continue;
+        }
+        let Some(near) = did_you_mean(&end.stage.name, stages.iter().map(|s| s.name.as_str()))
+            .map(str::to_string)
+        else {
+            continue;
+        };
+        let cause = findings
+            .iter()
+            .find(|f| f.code == Code::M202 && f.primary_span() == Some(end.stage.span));
+        if let (Some(cause), Some(stage)) = (cause, stages.iter_mut().find(|s| s.name == near)) {
+            stage.misnamed.get_or_insert_with(|| Cause::of(cause));
+        }
+    }
 }
 
 fn connect_edge(
@@ -398,21 +421,24 @@ fn check_ports(
                         format!("`{}.{}` is not connected", stage.name, spec.port.name()),
                     )
                     .label(stage.name_span, format!("needs {}", spec.accepts[0].noun()))
-                    .help(help),
+                    .help(help)
+                    .caused_by(stage.misnamed.clone()),
                 );
             }
         }
     }
-    check_cycles(file, stages, connections, findings);
-    check_use(file, stages, connections, &outputs, findings);
+    let loops = check_cycles(file, stages, connections, findings);
+    check_use(file, stages, connections, &outputs, &loops, findings);
 }
 
+/// Reports each loop (M207); returns its members with the finding.
 fn check_cycles(
     file: &Arc<SourceFile>,
     stages: &[Stage],
     connections: &[Connection],
     findings: &mut Findings,
-) {
+) -> Vec<(Vec<usize>, Cause)> {
+    let mut loops = Vec::new();
     let mut graph = DiGraph::<usize, usize>::new();
     let nodes: Vec<_> = (0..stages.len()).map(|i| graph.add_node(i)).collect();
     for (k, c) in connections.iter().enumerate() {
@@ -441,8 +467,11 @@ fn check_cycles(
         {
             f = f.label(c.span, "part of the loop");
         }
-        findings.push(f.help("a measurement chain runs one way, from sensor to reading; remove the edge that feeds back"));
+        let f = f.help("a measurement chain runs one way, from sensor to reading; remove the edge that feeds back");
+        loops.push((members, Cause::of(&f)));
+        findings.push(f);
     }
+    loops
 }
 
 /// The members of a loop in edge order, from the first declared stage.
@@ -467,6 +496,7 @@ fn check_use(
     stages: &[Stage],
     connections: &[Connection],
     outputs: &[Signal],
+    loops: &[(Vec<usize>, Cause)],
     findings: &mut Findings,
 ) {
     let mut finals = Vec::new();
@@ -490,7 +520,8 @@ fn check_use(
                 .help(format!(
                     "connect it with an edge such as `{} -> ...`, or remove it",
                     stage.name
-                )),
+                ))
+                .caused_by(stage.misnamed.clone()),
             );
             continue;
         }
@@ -506,7 +537,8 @@ fn check_use(
                 .help(format!(
                     "connect it with `{} -> ...`, or remove the stage",
                     stage.name
-                )),
+                ))
+                .caused_by(stage.misnamed.clone()),
             );
         }
     }
@@ -523,6 +555,14 @@ fn check_use(
                 n => format!("{n} `convert` stages end the chain; it must end in one reading"),
             },
         );
+        // A conversion that feeds a loop does not end the chain because
+        // of the loop.
+        let looped = loops.iter().find(|(members, _)| {
+            members
+                .iter()
+                .any(|&m| stages[m].kind == StageKind::Convert)
+        });
+        f = f.caused_by(looped.map(|(_, cause)| cause.clone()));
         if finals.is_empty() {
             f = f.label(Span::new(chain_span.start, chain_span.start), "the chain's first stage").help(
                 "add `convert reading { method exact }` and an edge from the converter: `conv -> reading`",

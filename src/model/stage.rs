@@ -9,7 +9,7 @@ use super::parts::Part;
 use super::schema::{self, ModelSpec, Shape};
 use super::suggest::did_you_mean;
 use super::value::ResolvedParam;
-use crate::diagnostics::{Code, Finding, Findings, SourceFile};
+use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile};
 use crate::syntax::ast::{Param, StageDecl};
 
 /// A parameter line and the file it was written in.
@@ -69,6 +69,7 @@ pub fn resolve(
         span: decl.span,
         invalid: Vec::new(),
         incomplete: part_failed,
+        misnamed: None,
     };
     let Some(model) = find_model(file, decl, &lines, findings) else {
         stage.incomplete = true;
@@ -261,8 +262,24 @@ fn check_presence(
     {
         required.extend(["r0", "coefficients"]);
     }
+    // A missing parameter is often one written with a typo (P301).
+    let misspelt = |wanted: &[&str], findings: &Findings| {
+        lines
+            .iter()
+            .filter(|l| !model.names().any(|n| n == l.param.name.name))
+            .find(|l| did_you_mean(&l.param.name.name, wanted.iter().copied()).is_some())
+            .and_then(|l| {
+                findings.iter().find(|f| {
+                    f.code == Code::P301
+                        && f.file == *l.file
+                        && f.primary_span() == Some(l.param.name.span)
+                })
+            })
+            .map(Cause::of)
+    };
     for name in required {
         if !has(name) {
+            let cause = misspelt(&[name], findings);
             let example = model
                 .param(name)
                 .map(|p| super::interpret::usage_of(p.name, p.shape))
@@ -274,12 +291,14 @@ fn check_presence(
                     format!("`{}` needs `{name}`", decl.name.name),
                 )
                 .label(decl.name.span, format!("`{name}` is missing"))
-                .help(format!("add a line such as `{example}`")),
+                .help(format!("add a line such as `{example}`"))
+                .caused_by(cause),
             );
         }
     }
     for group in model.one_of {
         if !group.iter().any(|n| has(n)) {
+            let cause = misspelt(group, findings);
             let list = group
                 .iter()
                 .map(|n| format!("`{n}`"))
@@ -292,7 +311,8 @@ fn check_presence(
                     format!("`{}` needs {list}", decl.name.name),
                 )
                 .label(decl.name.span, "missing")
-                .help(format!("add {list}")),
+                .help(format!("add {list}"))
+                .caused_by(cause),
             );
         }
     }
