@@ -688,7 +688,7 @@ fn to_si(q: &QuantityLit, expect: Expect, point: bool, cx: &Context<'_>) -> Chec
     let dims = accepted(expect, cx);
     let unit = match &q.unit {
         None => Unit::ONE,
-        Some(u) => parse_unit(&u.text).map_err(|e| unit_error(e, u.span, cx))?,
+        Some(u) => parse_unit(&u.text).map_err(|e| unit_error(for_dims(e, &dims), u.span, cx))?,
     };
     if unit.kind == UnitKind::Decibel {
         if expect == Expect::Decibel {
@@ -751,12 +751,32 @@ fn si_value(number: f64, unit: Unit, point: bool) -> f64 {
     }
 }
 
+/// An unknown unit's suggestion, made for the dimensions expected when
+/// they are known (a bare `k` for a resistance is `kohm`, not `K`).
+fn for_dims(e: UnitError, dims: &[Dim]) -> UnitError {
+    match e {
+        UnitError::Unknown { symbol, suggestion } if !dims.is_empty() => UnitError::Unknown {
+            suggestion: crate::units::suggest_for(&symbol, dims).or(suggestion),
+            symbol,
+        },
+        other => other,
+    }
+}
+
 fn unit_error(e: UnitError, span: Span, cx: &Context<'_>) -> Box<Finding> {
     let f = match &e {
-        UnitError::Unknown { suggestion, .. } => Finding::new(Code::U101, cx.file, e.to_string())
+        UnitError::Unknown { suggestion, symbol } => Finding::new(Code::U101, cx.file, e.to_string())
             .label(span, "not a unit the language knows")
             .help(match suggestion {
-                Some(s) => format!("did you mean `{s}`? units are case-sensitive"),
+                Some(s) if s.eq_ignore_ascii_case(symbol) => {
+                    format!("did you mean `{s}`? units are case-sensitive")
+                }
+                Some(s) => match parse_unit(s) {
+                    Ok(u) if !u.dim.name().example.is_empty() => {
+                        format!("did you mean `{s}`? {} is expected here", u.dim.name().noun)
+                    }
+                    _ => format!("did you mean `{s}`?"),
+                },
                 None => "units are SI symbols with SI prefixes, such as `mV`, `kohm`, `ppm/K`, `nV/rtHz`".to_string(),
             }),
         UnitError::NotCombinable { .. } => Finding::new(Code::U104, cx.file, e.to_string())

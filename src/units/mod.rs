@@ -9,7 +9,7 @@ pub mod format;
 mod table;
 
 pub use dimension::{Dim, DimName};
-pub use table::{parse_unit, Unit, UnitError, UnitKind};
+pub use table::{parse_unit, suggest_for, Unit, UnitError, UnitKind};
 
 /// Kelvin at 0 °C, exact by the definition of the Celsius scale.
 pub const ZERO_CELSIUS_K: f64 = 273.15;

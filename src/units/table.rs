@@ -228,6 +228,45 @@ fn parse_factor(factor: &str) -> Result<(f64, Dim), UnitError> {
     })
 }
 
+/// The nearest spelling of a unit of one of `dims`, for a did-you-mean
+/// where the expected quantity is known. A prefix followed by a slip keeps
+/// the prefix and takes the quantity's own symbol: `10k` for a resistance
+/// is `kohm`, not `K`; `1 mv` for a current is `mA`, not `mV`.
+pub fn suggest_for(factor: &str, dims: &[Dim]) -> Option<String> {
+    let fits = |text: &str| parse_unit(text).is_ok_and(|u| dims.contains(&u.dim));
+    let general = suggest(factor);
+    if general.as_deref().is_some_and(fits) {
+        return general;
+    }
+    let slip = |rest: &str| {
+        rest.is_empty()
+            || SYMBOLS
+                .iter()
+                .any(|s| s.text.eq_ignore_ascii_case(rest) || rest.eq_ignore_ascii_case("ohms"))
+    };
+    for (prefix, _) in PREFIXES.iter().filter(|(p, _)| p.is_ascii()) {
+        let Some(rest) = factor.strip_prefix(prefix) else {
+            continue;
+        };
+        if !slip(rest) {
+            continue;
+        }
+        if let Some(symbol) = dims.iter().find_map(|&d| own_symbol(d)) {
+            return Some(format!("{prefix}{}", symbol.text));
+        }
+    }
+    general
+}
+
+/// The symbol a prefix goes on for a quantity: its coherent unit, or the
+/// prefixable one (`g` for a mass).
+fn own_symbol(dim: Dim) -> Option<&'static Symbol> {
+    let of_dim = || SYMBOLS.iter().filter(move |s| s.dim == dim && s.prefixable);
+    of_dim()
+        .find(|s| s.scale == 1.0)
+        .or_else(|| of_dim().next())
+}
+
 /// The nearest known spelling, for a did-you-mean. Case slips (`mv`, `KOHM`)
 /// are the common mistake, so a case-insensitive match wins outright.
 fn suggest(factor: &str) -> Option<String> {
@@ -338,6 +377,24 @@ mod tests {
         assert!(matches!(parse_unit(&text), Err(UnitError::Overflow { .. })));
         assert_eq!(parse_unit("Hz^4*Hz^4").unwrap().dim, Dim::FREQUENCY.powi(8));
         assert_eq!(parse_unit("LSB").unwrap().dim, Dim::CODE);
+    }
+
+    /// The suggestion honours the quantity expected: a bare prefix or a
+    /// case slip on another quantity's symbol keeps the prefix.
+    #[test]
+    fn suggestions_know_the_expected_quantity() {
+        use super::suggest_for;
+        assert_eq!(
+            suggest_for("k", &[Dim::RESISTANCE]).as_deref(),
+            Some("kohm")
+        );
+        assert_eq!(suggest_for("mv", &[Dim::CURRENT]).as_deref(), Some("mA"));
+        assert_eq!(suggest_for("mv", &[Dim::VOLTAGE]).as_deref(), Some("mV"));
+        assert_eq!(suggest_for("k", &[Dim::MASS]).as_deref(), Some("kg"));
+        assert_eq!(
+            suggest_for("kohms", &[Dim::RESISTANCE]).as_deref(),
+            Some("kohm")
+        );
     }
 
     #[test]
