@@ -234,3 +234,63 @@ fn temperature_shares_of_span_and_reading() {
     assert!((at(100.0) - 1.0).abs() < 1e-9, "{}", at(100.0));
     assert!((at(50.0) - 0.5).abs() < 1e-9, "{}", at(50.0));
 }
+
+/// A point given in the measurand's unit is reported as written: 1000 ue
+/// is 0.001 in SI, and the round trip back gave 1000.0000000000001; 0.3
+/// degC went through 273.45 K and came back as 0.30000000000001137.
+#[test]
+fn eval_reports_the_point_as_written() {
+    let eval = |file: &str, at: &str| {
+        let run = catena(
+            &root(),
+            &["eval", "--format", "json", "--at", at, file],
+            None,
+        );
+        assert_eq!(run.status, 0, "{}", run.stderr);
+        let v: serde_json::Value = serde_json::from_str(&run.stdout).expect("JSON");
+        v["measurand"]["value"].to_string()
+    };
+    assert_eq!(
+        eval("tests/fixtures/eval/full_bridge.catena", "1000"),
+        "1000.0"
+    );
+    assert_eq!(
+        eval("tests/fixtures/eval/full_bridge.catena", "1000 ue"),
+        "1000.0"
+    );
+    assert_eq!(eval("specs/cold_store.catena", "0.3"), "0.3");
+    assert_eq!(eval("specs/cold_store.catena", "-0"), "0.0");
+    // Another unit is converted: 273.45 K is 0.3 degC, to rounding.
+    let k: f64 = eval("specs/cold_store.catena", "273.45 K")
+        .parse()
+        .expect("a number");
+    assert!((k - 0.3).abs() < 1e-9, "{k}");
+}
+
+/// No JSON output holds a negative zero: the noise total of a chain with
+/// no noise was the root of an empty float sum, which is −0.
+#[test]
+fn no_negative_zero_in_json() {
+    let mut specs = common::demo_specs();
+    for dir in ["budget", "eval", "units"] {
+        let mut more: Vec<_> = std::fs::read_dir(root().join("tests/fixtures").join(dir))
+            .expect("a fixture folder")
+            .map(|e| e.expect("an entry").path())
+            .collect();
+        more.sort();
+        specs.extend(more);
+    }
+    for spec in specs {
+        let path = spec.to_string_lossy().into_owned();
+        let run = catena(
+            &root(),
+            &["budget", "--format", "json", "--trials", "0", &path],
+            None,
+        );
+        let negative_zero = run
+            .stdout
+            .lines()
+            .any(|l| l.trim_end_matches(',').trim_end().ends_with("-0.0") || l.contains("-0.0]"));
+        assert!(!negative_zero, "{path}: {}", run.stdout);
+    }
+}

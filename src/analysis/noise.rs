@@ -200,7 +200,11 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
             _ => {}
         }
     }
-    let total_v = terms.iter().map(|t| t.rms_v * t.rms_v).sum::<f64>().sqrt();
+    // A fold from +0: an empty float `sum` is −0, whose root is −0.
+    let total_v = terms
+        .iter()
+        .fold(0.0, |acc, t| acc + t.rms_v * t.rms_v)
+        .sqrt();
     let average = stage(chain, plan, plan.reading)
         .and_then(|s| number(s, "average"))
         .unwrap_or(1.0)

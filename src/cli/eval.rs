@@ -51,15 +51,15 @@ pub fn run(args: EvalArgs) -> u8 {
         eprintln!("catena: chain `{}` has no measurand", chain.name);
         return EXIT_USAGE;
     };
-    let at = match point(&args.at, measurand.dim, &measurand.unit) {
+    let (at, at_shown) = match point(&args.at, measurand.dim, &measurand.unit) {
         Ok(v) => v,
         Err(e) => {
             eprintln!("catena: --at {}: {e}", args.at);
             return EXIT_USAGE;
         }
     };
-    let ambient = match &args.ambient {
-        None => chain.reference,
+    let (ambient, ambient_shown) = match &args.ambient {
+        None => (chain.reference, from_si(chain.reference, "degC")),
         Some(text) => match point(text, Dim::TEMPERATURE, "degC") {
             Ok(v) => v,
             Err(e) => {
@@ -80,11 +80,7 @@ pub fn run(args: EvalArgs) -> u8 {
     let outcome = match plan.evaluate(&plan.nominal, &env) {
         Ok(o) => o,
         Err(e) => {
-            let shown = format!(
-                "at {} {}",
-                trimmed(from_si(at, &measurand.unit), 9),
-                measurand.unit
-            );
+            let shown = format!("at {} {}", trimmed(at_shown, 9), measurand.unit);
             return report_one(chain, &e, Some((measurand.span, shown)));
         }
     };
@@ -92,8 +88,7 @@ pub fn run(args: EvalArgs) -> u8 {
         chain,
         plan: &plan,
         signals: &outcome.signals,
-        at,
-        ambient,
+        shown: (at_shown, ambient_shown),
     };
     match args.format {
         Format::Json => println!(
@@ -151,9 +146,12 @@ fn pick_chain<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<&'a Chain, 
     }
 }
 
-/// A point given on the command line, to SI: `25 degC`, `120kg`, or a
-/// bare number in `default_unit`.
-fn point(text: &str, dim: Dim, default_unit: &str) -> Result<f64, String> {
+/// A point given on the command line: `25 degC`, `120kg`, or a bare number
+/// in `default_unit`. Gives its SI value and its value in `default_unit`:
+/// the number as written when it is in that unit, so a report shows
+/// `1000`, not the round trip through SI (`1000 ue` is 0.001 in SI, which
+/// comes back as 1000.0000000000001).
+fn point(text: &str, dim: Dim, default_unit: &str) -> Result<(f64, f64), String> {
     let text = text.trim();
     let split = text
         .char_indices()
@@ -168,6 +166,8 @@ fn point(text: &str, dim: Dim, default_unit: &str) -> Result<f64, String> {
     let number: f64 = text[..split]
         .parse()
         .map_err(|_| "expected a number and a unit, such as `25 degC`".to_string())?;
+    // `-0` is zero; a signed zero would print as `-0.0`.
+    let number = number + 0.0;
     let unit_text = text[split..].trim();
     let unit_text = if unit_text.is_empty() {
         default_unit
@@ -179,18 +179,28 @@ fn point(text: &str, dim: Dim, default_unit: &str) -> Result<f64, String> {
         let n = dim.name();
         return Err(format!("expected {}, such as `{}`", n.noun, n.example));
     }
-    Ok(match unit.kind {
+    let si = match unit.kind {
         UnitKind::Celsius => number + ZERO_CELSIUS_K,
         _ => number * unit.scale,
-    })
+    };
+    let same_unit = parse_unit(default_unit).is_ok_and(|d| d == unit);
+    Ok((
+        si,
+        if same_unit {
+            number
+        } else {
+            from_si(si, default_unit)
+        },
+    ))
 }
 
 struct View<'a> {
     chain: &'a Chain,
     plan: &'a Plan,
     signals: &'a [Signal],
-    at: f64,
-    ambient: f64,
+    /// The measurand and the ambient as given, in the measurand's unit and
+    /// degC.
+    shown: (f64, f64),
 }
 
 #[derive(Serialize)]
@@ -292,11 +302,11 @@ impl View<'_> {
             schema_version: 1,
             chain: self.chain.name.clone(),
             measurand: Quantity {
-                value: from_si(self.at, &unit),
+                value: self.shown.0,
                 unit: unit.clone(),
             },
             ambient: Quantity {
-                value: from_si(self.ambient, "degC"),
+                value: self.shown.1,
                 unit: "degC".into(),
             },
             nodes,
@@ -348,8 +358,8 @@ impl View<'_> {
         };
         format!(
             "{title}\nat {} {unit}, ambient {} degC\n\n{}\n\ncode     {}\nreading  {} {unit}\n",
-            trimmed(from_si(self.at, &unit), 9),
-            trimmed(from_si(self.ambient, "degC"), 9),
+            trimmed(self.shown.0, 9),
+            trimmed(self.shown.1, 9),
             table
                 .to_string()
                 .lines()
