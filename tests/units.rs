@@ -148,7 +148,10 @@ fn budget_of(text: &str, name: &str) -> serde_json::Value {
 
 /// `% of span` is a share of the measurand range (IEC 60770-1's span,
 /// recalled from memory; the usual transmitter convention): 0.1 % of
-/// 0 kg .. 5000 kg is ± 5 kg at every load, which a ± 2 kg chain meets.
+/// 0 kg .. 5000 kg is ± 5 kg at every load, which a ± 2 kg chain meets,
+/// worst case and by GUM (a rectangular ± 2 kg: 2 × 2/√3 = 2.309 kg at
+/// k = 2, JCGM 100:2008 §4.3.7). Without a method the line still ends in
+/// `of span`, which is not taken for one.
 #[test]
 fn accuracy_in_percent_of_span() {
     let text = fixture("silo_percent.catena")
@@ -157,6 +160,43 @@ fn accuracy_in_percent_of_span() {
     let (limit, achieved, pass) = requirement(&budget_of(&text, "span.catena"));
     assert!((limit - 5.0).abs() < 1e-12, "{limit}");
     assert!((achieved - 2.0).abs() < 0.01 && pass, "{achieved}");
+    let gum = text.replace("% of span worst_case", "% of span");
+    let (limit, achieved, pass) = requirement(&budget_of(&gum, "span_gum.catena"));
+    assert!((limit - 5.0).abs() < 1e-12, "{limit}");
+    let want = 4.0 / 3f64.sqrt();
+    assert!((achieved - want).abs() < 0.01 && pass, "{achieved}");
+}
+
+/// A resolution and a calibration's uncertainty are one number for the
+/// whole range: `of span` is converted, `of reading` is refused.
+#[test]
+fn fixed_limits_refuse_a_share_of_the_reading() {
+    let base = fixture("silo_percent.catena");
+    let resolution = base.replace(
+        "worst_case\n",
+        "worst_case\n    require resolution 0.01 % of reading\n",
+    );
+    let run = run_on(&resolution, "resolution.catena", &["check"]);
+    assert!(
+        run.stderr
+            .contains("a resolution cannot be a share of the reading"),
+        "{}",
+        run.stderr
+    );
+    let calibrated = base.replace(
+        "convert reading { method exact }",
+        "convert reading {\n        method exact\n        calibrate offset at 500 kg ± 0.01 % of span\n    }",
+    );
+    let run = run_on(&calibrated, "calibrated.catena", &["check"]);
+    assert!(!run.stderr.contains("P3"), "{}", run.stderr);
+    let by_reading = calibrated.replace("± 0.01 % of span", "± 0.01 % of reading");
+    let run = run_on(&by_reading, "calibrated.catena", &["check"]);
+    assert!(
+        run.stderr
+            .contains("a calibration's uncertainty cannot be a share of the reading"),
+        "{}",
+        run.stderr
+    );
 }
 
 /// `% of reading` is a share of the value read, so the verdict compares

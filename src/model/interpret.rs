@@ -201,10 +201,10 @@ impl Reader<'_> {
                         shape,
                     ));
                 }
-                let uncertainty = match self.peek().cloned() {
-                    Some(Value::Tolerance(t)) => {
-                        self.next();
-                        Some(tolerance(&t, Expect::Measurand, None, self.cx)?)
+                let uncertainty = match self.peek() {
+                    Some(Value::Tolerance(_)) => {
+                        let t = self.share_or_limit(Expect::Measurand, shape)?;
+                        Some(self.fixed_share(t, "a calibration's uncertainty")?)
                     }
                     _ => None,
                 };
@@ -411,6 +411,24 @@ impl Reader<'_> {
         t.dim = m.dim;
         t.span = t.span.to(of);
         Ok(t)
+    }
+
+    /// A limit that cannot follow the reading: `% of reading` is refused.
+    fn fixed_share(&self, t: Tolerance, what: &str) -> Checked<Tolerance> {
+        if t.basis != Basis::Reading {
+            return Ok(t);
+        }
+        Err(Box::new(
+            Finding::new(
+                Code::P306,
+                self.cx.file,
+                format!("{what} cannot be a share of the reading"),
+            )
+            .label(t.span, "`of reading`")
+            .help(format!(
+                "state {what} in the measurand's unit, or as `% of span`"
+            )),
+        ))
     }
 
     /// P313: a bare percentage of a measurand quantity, with both

@@ -7,7 +7,7 @@ use super::chain::{Alarm, Measurand, Requirement};
 use super::interpret::{interpret, Context};
 use super::schema::{Expect, Plausible, Shape};
 use super::suggest::did_you_mean;
-use super::value::ParamValue;
+use super::value::{Basis, ParamValue};
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{ChainDecl, Setting, SettingKind, Value};
 use crate::units::{parse_unit, Dim, ZERO_CELSIUS_K};
@@ -253,7 +253,12 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
     };
     let mut values = &setting.values[1..];
     let mut method = None;
-    if name == "accuracy" {
+    // The last word is the method, unless it ends `of span` or `of reading`.
+    let ends_share = matches!(
+        values,
+        [.., Value::Word(of), Value::Word(_)] if of.name == "of"
+    );
+    if name == "accuracy" && !ends_share {
         if let Some(Value::Word(w)) = values.last() {
             if !ACCURACY_METHODS.contains(&w.name.as_str()) {
                 let near = did_you_mean(&w.name, ACCURACY_METHODS.iter().copied());
@@ -290,6 +295,20 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
         setting.span,
         cx,
     )?;
+    // One resolution for the whole range: it cannot follow the reading.
+    if let (ParamValue::Limit(t), "resolution") = (&value, name) {
+        if t.basis == Basis::Reading {
+            return Err(Box::new(
+                Finding::new(
+                    Code::P306,
+                    file,
+                    "a resolution cannot be a share of the reading",
+                )
+                .label(t.span, "`of reading`")
+                .help("state the resolution in the measurand's unit, or as `% of span`"),
+            ));
+        }
+    }
     Ok(Requirement {
         kind: name,
         value,
