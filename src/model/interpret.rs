@@ -375,7 +375,7 @@ impl Reader<'_> {
         let has_of = matches!(self.values.get(of_at), Some(Value::Word(w)) if w.name == "of");
         let dimensionless = self.cx.measurand == Some(Dim::NONE) && expect == Expect::Measurand;
         match (percent, has_of) {
-            (true, true) => self.share(shape),
+            (true, true) => self.share(expect, shape),
             (true, false) if !dimensionless => Err(self.bare_percent(&written)),
             (false, true) => Err(self.malformed(
                 self.values[of_at].span(),
@@ -391,7 +391,7 @@ impl Reader<'_> {
 
     /// `± x % [max] of span|reading`: a share of the measurand's span
     /// (converted here to an absolute limit) or of the reading.
-    fn share(&mut self, shape: Shape) -> Checked<Tolerance> {
+    fn share(&mut self, expect: Expect, shape: Shape) -> Checked<Tolerance> {
         let mut t = self.limit(Expect::Ratio, shape)?;
         let of = self.next().map(Value::span).unwrap_or_default();
         let basis = match self.word(&["span", "reading"], shape)?.as_str() {
@@ -402,6 +402,21 @@ impl Reader<'_> {
             // No measurand (already reported): nothing to be a share of.
             return Ok(t);
         };
+        // A sensor's accuracy in kelvin is a share of a temperature.
+        if expect == Expect::TempDiff && m.dim != Dim::TEMPERATURE {
+            return Err(Box::new(
+                Finding::new(
+                    Code::P306,
+                    self.cx.file,
+                    format!("`{}` is a temperature, but the measurand is not", self.name),
+                )
+                .label(t.span.to(of), "a share of a non-temperature range")
+                .help(format!(
+                    "state `{}` in kelvin, such as `± 0.5 K`",
+                    self.name
+                )),
+            ));
+        }
         if basis == Basis::Span {
             let span = m.high - m.low;
             t.plus *= span;
