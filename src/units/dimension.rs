@@ -58,11 +58,18 @@ impl Dim {
     /// leaving `i8`.
     pub const MAX_POWER: i8 = 16;
 
-    /// For the named dimensions of the language, whose exponents are
-    /// small; a written unit goes through [`Dim::checked_powi`].
+    /// For the named dimensions and small powers of bounded ones; a written
+    /// unit goes through [`Dim::checked_powi`].
     pub fn powi(self, n: i8) -> Dim {
-        self.checked_powi(n)
-            .unwrap_or_else(|| unreachable!("the named dimensions have small exponents"))
+        let mut out = [0i8; 6];
+        for (o, e) in out.iter_mut().zip(self.0) {
+            // Written units stay within ±MAX_POWER, so a small power of one
+            // cannot leave `i8`.
+            *o = e
+                .checked_mul(n)
+                .unwrap_or_else(|| unreachable!("a bounded dimension's small power fits i8"));
+        }
+        Dim(out)
     }
 
     pub fn sqrt(self) -> Option<Dim> {
@@ -84,11 +91,19 @@ impl Dim {
 
 impl Mul for Dim {
     type Output = Dim;
-    /// For the named dimensions of the language; a written unit goes
-    /// through [`Dim::checked_mul`].
+    /// For the named dimensions and bounded ones, never beyond `i8`; a
+    /// written unit goes through [`Dim::checked_mul`], which keeps the
+    /// bound.
     fn mul(self, rhs: Dim) -> Dim {
-        self.checked_mul(rhs)
-            .unwrap_or_else(|| unreachable!("the named dimensions have small exponents"))
+        let mut out = [0i8; 6];
+        for (i, o) in out.iter_mut().enumerate() {
+            // Written units stay within ±MAX_POWER and the named ones are
+            // smaller, so a product of two cannot leave `i8`.
+            *o = self.0[i]
+                .checked_add(rhs.0[i])
+                .unwrap_or_else(|| unreachable!("two bounded dimensions' product fits i8"));
+        }
+        Dim(out)
     }
 }
 
