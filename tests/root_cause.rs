@@ -66,3 +66,12 @@ fn human_report_names_the_cause() {
         "{flat}"
     );
 }
+
+/// A `cold_junction` naming `cj_snsor` (M202) leaves the sensor
+/// `cj_sensor` unused: its M208 follows the M202.
+#[test]
+fn unused_sensor_follows_the_misnamed_cold_junction() {
+    let found = findings("M208-after-misnamed-cold-junction.catena");
+    assert_eq!(codes(&found), ["M202", "M208"], "{found:?}");
+    assert_eq!(found[1].2.as_deref(), Some("M202"));
+}

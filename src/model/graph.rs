@@ -53,24 +53,42 @@ pub fn connect(
     connections
 }
 
-/// An unknown stage in an edge (M202) one typo away from a stage leaves
-/// that stage unconnected: what the graph checks say about it follows from
-/// the M202.
+/// An unknown stage in an edge or a `cold_junction` (M202) one typo away
+/// from a stage leaves that stage unconnected: what the graph checks say
+/// about it follows from the M202.
 fn mark_misnamed(stages: &mut [Stage], edges: &[EdgeDecl], findings: &Findings) {
-    for end in edges.iter().flat_map(|e| e.endpoints.iter()) {
-        if stages.iter().any(|s| s.name == end.stage.name) {
+    let mut names: Vec<(String, Span, Arc<SourceFile>)> = Vec::new();
+    for stage in stages.iter() {
+        for p in &stage.params {
+            if let ParamValue::StageRef { name, span } = &p.value {
+                names.push((name.clone(), *span, Arc::clone(&p.file)));
+            }
+        }
+    }
+    let edge_names = edges.iter().flat_map(|e| e.endpoints.iter());
+    let mut misnamed = Vec::new();
+    for (name, span, file) in edge_names
+        .map(|end| (end.stage.name.as_str(), end.stage.span, None))
+        .chain(names.iter().map(|(n, s, f)| (n.as_str(), *s, Some(f))))
+    {
+        if stages.iter().any(|s| s.name == name) {
             continue;
         }
-        let Some(near) = did_you_mean(&end.stage.name, stages.iter().map(|s| s.name.as_str()))
-            .map(str::to_string)
-        else {
+        let Some(near) = did_you_mean(name, stages.iter().map(|s| s.name.as_str())) else {
             continue;
         };
-        let cause = findings
-            .iter()
-            .find(|f| f.code == Code::M202 && f.primary_span() == Some(end.stage.span));
-        if let (Some(cause), Some(stage)) = (cause, stages.iter_mut().find(|s| s.name == near)) {
-            stage.misnamed.get_or_insert_with(|| Cause::of(cause));
+        let cause = findings.iter().find(|f| {
+            f.code == Code::M202
+                && f.primary_span() == Some(span)
+                && file.is_none_or(|file| f.file == *file)
+        });
+        if let Some(cause) = cause {
+            misnamed.push((near.to_string(), Cause::of(cause)));
+        }
+    }
+    for (near, cause) in misnamed {
+        if let Some(stage) = stages.iter_mut().find(|s| s.name == near) {
+            stage.misnamed.get_or_insert(cause);
         }
     }
 }
