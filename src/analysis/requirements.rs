@@ -6,7 +6,7 @@ use super::budget::Budget;
 use super::monte_carlo::Interval;
 use crate::diagnostics::Span;
 use crate::model::value::{Basis, ParamValue};
-use crate::model::Chain;
+use crate::model::{Chain, Requirement};
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Verdict {
@@ -44,6 +44,77 @@ pub fn accuracy_method(chain: &Chain) -> &str {
         .unwrap_or("gum")
 }
 
+/// The accuracy verdict: judged at the point where the error takes the
+/// largest share of its limit (the same point as the largest error when
+/// the limit is fixed).
+fn accuracy_verdict(
+    chain: &Chain,
+    r: &Requirement,
+    limit: f64,
+    budget: &Budget,
+    mc: Option<&[Interval]>,
+) -> Option<Verdict> {
+    let method = r.method.clone().unwrap_or_else(|| "gum".into());
+    let error_at = |i: usize| match method.as_str() {
+        "worst_case" => budget.points[i].worst_case,
+        "monte_carlo" => mc
+            .map(|m| m[i].low.abs().max(m[i].high.abs()))
+            .unwrap_or(budget.points[i].gum_expanded),
+        _ => budget.points[i].gum_expanded,
+    };
+    // The limit at each point: fixed, or a share of the reading.
+    let limit_at = |i: usize| match &r.value {
+        ParamValue::Limit(t) if t.basis == Basis::Reading => {
+            let zero = chain.measurand.as_ref().map_or(0.0, |m| m.zero());
+            limit * (budget.points[i].measurand - zero).abs()
+        }
+        _ => limit,
+    };
+    // Worst where the error takes the largest share of its limit.
+    let share = |i: usize| match error_at(i) / limit_at(i) {
+        s if s.is_nan() => 0.0,
+        s => s,
+    };
+    let worst = (0..budget.points.len()).max_by(|&a, &b| share(a).total_cmp(&share(b)))?;
+    let limit = limit_at(worst);
+    let p = &budget.points[worst];
+    let top = if method == "worst_case" {
+        p.contributions
+            .iter()
+            .map(|c| (c.id.clone(), c.worst / p.worst_case.max(f64::MIN_POSITIVE)))
+            .collect::<Vec<_>>()
+    } else {
+        let total = p.gum_standard * p.gum_standard;
+        let mut v: Vec<_> = p
+            .contributions
+            .iter()
+            .map(|c| {
+                (
+                    c.id.clone(),
+                    c.standard * c.standard / total.max(f64::MIN_POSITIVE),
+                )
+            })
+            .collect();
+        v.sort_by(|a, b| b.1.total_cmp(&a.1));
+        v
+    };
+    let numerical = match method.as_str() {
+        "monte_carlo" => mc.map(|m| m[worst].numerical),
+        _ => None,
+    };
+    Some(Verdict {
+        name: "accuracy",
+        limit,
+        achieved: error_at(worst),
+        pass: error_at(worst) <= limit,
+        method,
+        at: Some((p.measurand, p.ambient)),
+        top: top.into_iter().take(3).collect(),
+        numerical,
+        span: r.span,
+    })
+}
+
 /// Verdicts for every requirement the analyses can judge. `mc` holds the
 /// Monte Carlo interval per budget point when it was run.
 pub fn verdicts(
@@ -62,71 +133,10 @@ pub fn verdicts(
             _ => continue,
         };
         let verdict = match r.kind {
-            "accuracy" => {
-                let method = r.method.clone().unwrap_or_else(|| "gum".into());
-                let error_at = |i: usize| match method.as_str() {
-                    "worst_case" => budget.points[i].worst_case,
-                    "monte_carlo" => mc
-                        .map(|m| m[i].low.abs().max(m[i].high.abs()))
-                        .unwrap_or(budget.points[i].gum_expanded),
-                    _ => budget.points[i].gum_expanded,
-                };
-                // The limit at each point: fixed, or a share of the reading.
-                let limit_at = |i: usize| match &r.value {
-                    ParamValue::Limit(t) if t.basis == Basis::Reading => {
-                        let zero = chain.measurand.as_ref().map_or(0.0, |m| m.zero());
-                        limit * (budget.points[i].measurand - zero).abs()
-                    }
-                    _ => limit,
-                };
-                // Worst where the error takes the largest share of its limit.
-                let share = |i: usize| match error_at(i) / limit_at(i) {
-                    s if s.is_nan() => 0.0,
-                    s => s,
-                };
-                let Some(worst) =
-                    (0..budget.points.len()).max_by(|&a, &b| share(a).total_cmp(&share(b)))
-                else {
-                    continue;
-                };
-                let limit = limit_at(worst);
-                let p = &budget.points[worst];
-                let top = if method == "worst_case" {
-                    p.contributions
-                        .iter()
-                        .map(|c| (c.id.clone(), c.worst / p.worst_case.max(f64::MIN_POSITIVE)))
-                        .collect::<Vec<_>>()
-                } else {
-                    let total = p.gum_standard * p.gum_standard;
-                    let mut v: Vec<_> = p
-                        .contributions
-                        .iter()
-                        .map(|c| {
-                            (
-                                c.id.clone(),
-                                c.standard * c.standard / total.max(f64::MIN_POSITIVE),
-                            )
-                        })
-                        .collect();
-                    v.sort_by(|a, b| b.1.total_cmp(&a.1));
-                    v
-                };
-                let numerical = match method.as_str() {
-                    "monte_carlo" => mc.map(|m| m[worst].numerical),
-                    _ => None,
-                };
-                Verdict {
-                    name: "accuracy",
-                    limit,
-                    achieved: error_at(worst),
-                    pass: error_at(worst) <= limit,
-                    method,
-                    at: Some((p.measurand, p.ambient)),
-                    top: top.into_iter().take(3).collect(),
-                    numerical,
-                    span: r.span,
-                }
-            }
+            "accuracy" => match accuracy_verdict(chain, r, limit, budget, mc) {
+                Some(v) => v,
+                None => continue,
+            },
             "resolution" => {
                 let lsb = budget
                     .points
