@@ -11,6 +11,7 @@ pub mod ranges;
 pub mod report;
 pub mod requirements;
 mod stages;
+pub mod step;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower, Env, EvalError, Plan};
