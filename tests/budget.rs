@@ -420,3 +420,36 @@ fn monte_carlo_states_its_numerical_width() {
         }
     }
 }
+
+/// By default the human budget leads with one row per ambient (each
+/// method's largest value over the measurand range, and where), then the
+/// verdicts; `--per-point` lists every point instead. The summary's
+/// numbers are the per-point table's largest, read back from the JSON.
+#[test]
+fn human_budget_leads_with_a_summary_per_ambient() {
+    let args = ["budget", "specs/cold_store.catena", "--trials", "0"];
+    let run = catena(&root(), &args, None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let text = &run.stdout;
+    let summary = text.split("\n\n").nth(1).unwrap();
+    // A header and the three ambients (0, 25 and 45 degC), not 63 rows.
+    assert_eq!(summary.lines().count(), 4, "{summary}");
+    assert!(text.find("requirement").unwrap() < text.find("largest sources").unwrap());
+    let v = budget_in(".", "specs/cold_store.catena", &["--trials", "0"]);
+    let points = v["points"].as_array().unwrap();
+    let at_zero = points
+        .iter()
+        .filter(|p| f(&p["ambient"]) == 0.0)
+        .map(|p| f(&p["worst_case"]))
+        .fold(0.0, f64::max);
+    let zero_row = summary.lines().nth(1).unwrap();
+    assert!(
+        zero_row.contains(&format!("± {:.3} at", at_zero)),
+        "{zero_row} vs {at_zero}"
+    );
+    let mut all = args.to_vec();
+    all.push("--per-point");
+    let run = catena(&root(), &all, None);
+    let table = run.stdout.split("\n\n").nth(1).unwrap();
+    assert_eq!(table.lines().count(), 1 + 63, "{table}");
+}

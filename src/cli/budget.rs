@@ -38,6 +38,9 @@ pub struct BudgetArgs {
     /// Points across the measurand range.
     #[arg(long, default_value_t = 21)]
     points: usize,
+    /// List the totals at every point, not only each ambient's worst.
+    #[arg(long)]
+    per_point: bool,
 }
 
 pub fn run(args: BudgetArgs) -> u8 {
@@ -136,7 +139,7 @@ pub fn run(args: BudgetArgs) -> u8 {
         }
         Format::Human => {
             for (c, a) in &outputs {
-                print!("{}", super::budget_table::human(c, a));
+                print!("{}", super::budget_table::human(c, a, args.per_point));
             }
         }
     }
