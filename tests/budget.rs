@@ -453,3 +453,30 @@ fn human_budget_leads_with_a_summary_per_ambient() {
     let table = run.stdout.split("\n\n").nth(1).unwrap();
     assert_eq!(table.lines().count(), 1 + 63, "{table}");
 }
+
+/// Boltzmann's constant, exact in the SI since 2019 (BIPM SI brochure,
+/// 9th ed.).
+const BOLTZMANN: f64 = 1.380_649e-23;
+
+/// kT/C: the thermal noise of an RC filter's resistor at its capacitor is
+/// √(kT/C) whatever R is (Nyquist 1928 integrated over the RC's noise
+/// bandwidth 1/(4RC); textbook closed form): 0.509 µV at 15.9 nF, 25 degC.
+#[test]
+fn rc_filter_resistor_gives_kt_over_c() {
+    let v = budget("rc_kt_c.catena", &["--points", "3", "--trials", "0"]);
+    let expect = (BOLTZMANN * 298.15 / 15.9e-9).sqrt();
+    let got = f(&v["noise"]["terms"]["conv.source_resistance"]);
+    assert!((got - expect).abs() < 1e-9 * expect, "{got} vs {expect}");
+    assert!((f(&v["noise"]["total_v_rms"]) - expect).abs() < 1e-9 * expect);
+}
+
+/// A divider's Thévenin resistance (two 10 kΩ arms at 25 degC: 5 kΩ)
+/// adds √(4kTR·B) at the converter over B = rate/2 (Johnson–Nyquist,
+/// closed form): 0.203 µV at 1 kHz.
+#[test]
+fn divider_thevenin_resistance_noise() {
+    let v = budget("divider_noise.catena", &["--points", "3", "--trials", "0"]);
+    let expect = (4.0 * BOLTZMANN * 298.15 * 5e3 * 500.0).sqrt();
+    let got = f(&v["noise"]["terms"]["conv.source_resistance"]);
+    assert!((got - expect).abs() < 1e-9 * expect, "{got} vs {expect}");
+}
