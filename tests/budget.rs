@@ -480,3 +480,51 @@ fn divider_thevenin_resistance_noise() {
     let got = f(&v["noise"]["terms"]["conv.source_resistance"]);
     assert!((got - expect).abs() < 1e-9 * expect, "{got} vs {expect}");
 }
+
+/// Quantization at its limits on a nonlinear chain, against a hand
+/// calculation: the beta law R = R25·e^{β(1/T − 1/T25)} (the thermistor
+/// datasheet form), the ratiometric code c = 2¹²·R/(R + R_fix), and back
+/// from c ± ½ by R = R_fix·c/(2¹² − c) and 1/T = 1/T25 + ln(R/R25)/β. The
+/// budget's quantization is the larger side; its standard uncertainty
+/// half the spread over √3 (JCGM 100:2008 §4.3.7). The tolerance, 2e-4
+/// relative, covers the exact conversion's tabulated inverse (about 2 µK
+/// on a 50 mK step at −40 degC); the linear referral is 1.2e-3 off there.
+#[test]
+fn quantization_goes_through_the_inverse_at_each_point() {
+    let v = budget(
+        "ntc_quantization.catena",
+        &["--points", "3", "--trials", "0"],
+    );
+    let (r25, beta, t25, fixed, full) = (10e3, 3380.0, 298.15, 10e3, 4096.0);
+    let resistance = |t: f64| r25 * (beta * (1.0 / t - 1.0 / t25)).exp();
+    let temperature = |r: f64| 1.0 / (1.0 / t25 + (r / r25).ln() / beta);
+    for p in v["points"].as_array().unwrap() {
+        let t = f(&p["measurand"]) + 273.15;
+        let r = resistance(t);
+        let code = full * r / (r + fixed);
+        let at = |c: f64| temperature(fixed * c / (full - c)) - t;
+        let (low, high) = (at(code - 0.5), at(code + 0.5));
+        let q = source(p, "quantization");
+        let worst = low.abs().max(high.abs());
+        let standard = (high - low).abs() / 2.0 / 3f64.sqrt();
+        assert!(
+            (f(&q["contribution"]) - worst).abs() < 2e-4 * worst,
+            "{} at {t}: {worst}",
+            q["contribution"]
+        );
+        assert!((f(&q["standard_uncertainty"]) - standard).abs() < 2e-4 * standard);
+        // The linear referral would be ½ code over the slope dc/dT.
+        let slope = (full * resistance(t + 1e-4) / (resistance(t + 1e-4) + fixed) - code) / 1e-4;
+        let linear = 0.5 / slope.abs();
+        if f(&p["measurand"]) == -40.0 {
+            assert!(
+                (worst - linear).abs() > 1e-3 * linear,
+                "{worst} vs {linear}"
+            );
+            assert!(
+                (low.abs() - high.abs()).abs() > 2e-3 * worst,
+                "{low} {high}"
+            );
+        }
+    }
+}

@@ -214,7 +214,9 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
                             rms_v: gain_after * i_n * rs * bw.sqrt(),
                         });
                     }
-                    terms.extend(thermal_term(&s.name, &signals, *input, env, enbw_hz, gain_after));
+                    terms.extend(thermal_term(
+                        &s.name, &signals, *input, env, enbw_hz, gain_after,
+                    ));
                 }
             }
             _ => {}

@@ -718,6 +718,20 @@ impl Plan {
         env: &Env,
         calibrated: &Calibrated,
     ) -> Result<f64, EvalError> {
+        self.reading_codes_away(values, env, calibrated, 0.0)
+    }
+
+    /// The reading the firmware computes from the converter's exact code
+    /// moved by `codes`: the chain's own inverse at the point, so a step of
+    /// half a code either side is quantization's effect there, however
+    /// nonlinear the chain.
+    pub fn reading_codes_away(
+        &self,
+        values: &[f64],
+        env: &Env,
+        calibrated: &Calibrated,
+        codes: f64,
+    ) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         self.run(values, env, &mut signals, self.reading, Mode::UNQUANTIZED)?;
         let Signal::Code { exact, .. } = signals[self.adc] else {
@@ -730,7 +744,7 @@ impl Plan {
             Signal::Reading(t) => Some(t),
             _ => None,
         });
-        let x = conversion.invert(self, values, env, exact, cj)?;
+        let x = conversion.invert(self, values, env, exact + codes, cj)?;
         conversion.correct(self, x, calibrated)
     }
 
