@@ -528,3 +528,35 @@ fn quantization_goes_through_the_inverse_at_each_point() {
         }
     }
 }
+
+/// The Monte Carlo draws quantization the same way: a uniform code offset
+/// through each side of the inverse, so with no other source the 95 %
+/// interval of the NTC chain at −40 degC is 0.95 of each side of the hand
+/// calculation above (the uniform's 2.5 % and 97.5 % points, JCGM
+/// 101:2008 §6.4.2), good to its own numerical half-width.
+#[test]
+fn monte_carlo_draws_quantization_through_the_inverse() {
+    let v = budget(
+        "ntc_quantization.catena",
+        &["--points", "3", "--trials", "20000"],
+    );
+    let (r25, beta, t25, fixed, full): (f64, f64, f64, f64, f64) =
+        (10e3, 3380.0, 298.15, 10e3, 4096.0);
+    let t = 233.15;
+    let r = r25 * (beta * (1.0 / t - 1.0 / t25)).exp();
+    let code = full * r / (r + fixed);
+    let at = |c: f64| 1.0 / (1.0 / t25 + (fixed * c / (full - c) / r25).ln() / beta) - t;
+    let (a, b) = (at(code - 0.5), at(code + 0.5));
+    let p = &v["points"][0];
+    let numerical = f(&p["monte_carlo_numerical"]);
+    let got = [f(&p["monte_carlo_95"][0]), f(&p["monte_carlo_95"][1])];
+    let want = [0.95 * a.min(b), 0.95 * a.max(b)];
+    for (g, w) in got.iter().zip(want) {
+        assert!(
+            (g - w).abs() < numerical + 1e-6,
+            "{got:?} vs {want:?} ± {numerical}"
+        );
+    }
+    // The two ends differ as the sides do (0.24 %), more than the noise.
+    assert!((got[0].abs() - got[1].abs()).abs() > 1e-4, "{got:?}");
+}

@@ -62,6 +62,15 @@ impl Point {
     pub fn code_step(&self) -> f64 {
         code_step(self.codes_per_unit)
     }
+
+    /// Quantization's effect half a code below and above the point.
+    pub fn quantization(&self) -> (f64, f64) {
+        self.contributions
+            .iter()
+            .find(|c| c.kind == "quantization")
+            .map(|c| (c.low, c.high))
+            .unwrap_or((0.0, 0.0))
+    }
 }
 
 /// One code in measurand units from codes per unit (zero when flat).
