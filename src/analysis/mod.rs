@@ -14,7 +14,7 @@ mod stages;
 pub mod step;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
-use crate::eval::{lower, Env, EvalError, Plan};
+use crate::eval::{lower_stages, Env, EvalError, Plan};
 use crate::model::Chain;
 use crate::units::format::from_si;
 
@@ -47,6 +47,27 @@ pub fn eval_finding(
         f = f.label(span, text);
     }
     f.help(help)
+}
+
+/// Why no conversion could be built: the range envelope runs on the
+/// stages (they evaluate up to the converter), and a stage beyond its
+/// limit (R601, with the value that fixes it) explains a flat or folded
+/// code; E502 is reported only where nothing does.
+fn unconvertible(
+    chain: &Chain,
+    plan: &Plan,
+    error: &EvalError,
+    margin: f64,
+    at_measurand: Option<(crate::diagnostics::Span, String)>,
+) -> Findings {
+    let mut findings = Findings::new();
+    if let Ok(envelopes) = ranges::envelopes(chain, plan, 21) {
+        findings.extend(ranges::findings(chain, plan, &envelopes, margin));
+    }
+    if !findings.has_errors() {
+        findings.push(eval_finding(chain, error, at_measurand));
+    }
+    findings
 }
 
 /// E504 where the converter's code does not move with the measurand at a
@@ -114,8 +135,17 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
         return (None, findings);
     };
     let at_measurand = Some((measurand.span, "over this range".to_string()));
-    let plan = match lower(chain) {
-        Ok(p) => p,
+    let margin = if options.margin > 0.0 {
+        options.margin
+    } else {
+        ranges::DEFAULT_MARGIN
+    };
+    let plan = match lower_stages(chain) {
+        Ok((plan, Ok(()))) => plan,
+        Ok((plan, Err(e))) => {
+            findings.extend(unconvertible(chain, &plan, &e, margin, at_measurand));
+            return (None, findings);
+        }
         Err(e) => {
             findings.push(eval_finding(chain, &e, at_measurand));
             return (None, findings);
@@ -141,11 +171,6 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
         }
     }
     if findings.is_empty() {
-        let margin = if options.margin > 0.0 {
-            options.margin
-        } else {
-            ranges::DEFAULT_MARGIN
-        };
         match ranges::envelopes(chain, &plan, 21) {
             Ok(envelopes) => findings.extend(ranges::findings(chain, &plan, &envelopes, margin)),
             Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),
