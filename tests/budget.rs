@@ -92,8 +92,10 @@ fn monte_carlo_is_reproducible() {
         "7",
     ];
     let first = catena(&dir, &args, None);
+    // The fixture's converter input dips below zero at 0 degC (R601 on
+    // stderr); what must not be there is a progress line.
     assert!(
-        first.stderr.is_empty(),
+        !first.stderr.contains("points done"),
         "no progress on a pipe: {}",
         first.stderr
     );

@@ -236,3 +236,71 @@ fn full_bridge_is_exact() {
     );
     assert!((v["reading"]["value"].as_f64().unwrap() - 500.0).abs() < 1e-3);
 }
+
+/// A spec with an error the analyses found still evaluates: the stage
+/// values are what the engineer needs to fix it. A gain of 3 on 1.5 V
+/// against a 3.3 V swing (R601): at 100 degC the amplifier sits at its
+/// rail, 3.3 V, and the 16-bit code on a 5 V reference is
+/// 3.3 / 5 · 2¹⁶ = 43253.76, rounded to 43254 (by hand). The row is
+/// marked, the finding follows on stderr, exit 1.
+#[test]
+fn eval_shows_the_stages_despite_an_error() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "R601-over-gained-amplifier.catena";
+    let run = catena(&dir, &["eval", spec, "--at", "100 degC"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    let front = run.stdout.lines().find(|l| l.contains("front")).unwrap();
+    assert!(
+        front.contains("3.30000 V") && front.ends_with("R601"),
+        "{front}"
+    );
+    assert!(run.stdout.contains("43254 (code)"), "{}", run.stdout);
+    assert!(run.stderr.contains("R601"), "{}", run.stderr);
+    let run = catena(
+        &dir,
+        &["eval", spec, "--at", "100", "--format", "json"],
+        None,
+    );
+    assert_eq!(run.status, 1);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    assert_eq!(v["findings"][0]["code"], "R601");
+    assert_eq!(v["findings"][0]["stage"], "front");
+    assert!((node(&v, "front") - 3.3).abs() < 1e-12);
+}
+
+/// An amplifier clipped over the whole range has no conversion, but its
+/// stages still evaluate up to the code (1 V in, 10 V asked, the 3.3 V
+/// rail given); the reading is absent rather than invented.
+#[test]
+fn eval_without_a_conversion_shows_the_code() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "R601-amplifier-clips-whole-range.catena";
+    let run = catena(
+        &dir,
+        &["eval", spec, "--at", "50", "--format", "json"],
+        None,
+    );
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    assert!((node(&v, "ic") - 1.0).abs() < 1e-12);
+    assert!((node(&v, "front") - 3.3).abs() < 1e-12);
+    assert!(v["reading"].is_null(), "{v}");
+    assert!(v["nodes"].get("reading").is_none(), "{v}");
+    assert!(!run.stderr.contains("E502"), "{}", run.stderr);
+}
+
+/// The budget too: with R601 it still prints, says so, and exits 1.
+#[test]
+fn budget_prints_despite_an_error() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "R601-over-gained-amplifier.catena";
+    let run = catena(&dir, &["budget", spec, "--trials", "0"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stdout.contains("error budget"), "{}", run.stdout);
+    assert!(
+        run.stdout.contains("1 error found by check"),
+        "{}",
+        run.stdout
+    );
+    assert!(run.stderr.contains("R601"), "{}", run.stderr);
+}

@@ -56,27 +56,22 @@ pub fn run(args: BudgetArgs) -> u8 {
         Ok(c) => c,
         Err(status) => return status,
     };
-    // Requirement findings are what the budget explains, not a reason to
-    // withhold it.
-    let blocking: Findings = {
+    // What the analyses found (a requirement missed, a stage beyond its
+    // limit) is what the budget explains, not a reason to withhold it;
+    // errors before them leave no complete chain.
+    let errors: Findings = {
         let mut f = Findings::new();
-        for x in checked.findings.iter().filter(|f| {
-            f.severity() == crate::diagnostics::Severity::Error && !f.code.as_str().starts_with('R')
-        }) {
+        for x in checked
+            .findings
+            .iter()
+            .filter(|f| f.severity() == crate::diagnostics::Severity::Error)
+        {
             f.push(x.clone());
         }
         f
     };
-    if !blocking.is_empty() {
-        eprint!(
-            "{}",
-            render_human(
-                &blocking.sorted(),
-                terminal::stderr_color(),
-                terminal::width()
-            )
-        );
-        return EXIT_FINDINGS;
+    if !errors.is_empty() && !checked.resolved {
+        return show(&errors);
     }
     let chains: Vec<&Chain> = match &args.chain {
         None => checked.chains.iter().collect(),
@@ -106,7 +101,7 @@ pub fn run(args: BudgetArgs) -> u8 {
     for chain in chains {
         let plan = match lower(chain) {
             Ok(p) => p,
-            Err(e) => return report_error(chain, &e),
+            Err(e) => return report_error(chain, &e, &errors),
         };
         // On a terminal, a line that counts the Monte Carlo points; never
         // on a pipe, where it would land in someone's log.
@@ -124,7 +119,7 @@ pub fn run(args: BudgetArgs) -> u8 {
         }
         match result {
             Ok(a) => outputs.push((chain, a)),
-            Err(e) => return report_error(chain, &e),
+            Err(e) => return report_error(chain, &e, &errors),
         }
     }
     match args.format {
@@ -143,6 +138,18 @@ pub fn run(args: BudgetArgs) -> u8 {
             }
         }
     }
+    if !errors.is_empty() {
+        if args.format == Format::Human {
+            println!(
+                "{} found by check (below): the budget above is what the chain does as written",
+                match errors.len() {
+                    1 => "1 error".to_string(),
+                    n => format!("{n} errors"),
+                }
+            );
+        }
+        return show(&errors);
+    }
     let failed = outputs
         .iter()
         .any(|(_, a)| a.verdicts.iter().any(|v| !v.pass));
@@ -153,12 +160,30 @@ pub fn run(args: BudgetArgs) -> u8 {
     }
 }
 
-fn report_error(chain: &Chain, e: &crate::eval::EvalError) -> u8 {
-    let mut f = Findings::new();
-    f.push(eval_finding(chain, e, None));
+/// Why the budget could not be made: what the check found, which
+/// explains it, or else the evaluation's own error.
+fn report_error(chain: &Chain, e: &crate::eval::EvalError, found: &Findings) -> u8 {
+    if found.is_empty() {
+        let mut f = Findings::new();
+        f.push(eval_finding(chain, e, None));
+        return show(&f);
+    }
+    let status = show(found);
+    eprintln!(
+        "catena: no budget for `{}` until these are fixed; `catena eval --at` shows its stage values",
+        chain.name
+    );
+    status
+}
+
+fn show(findings: &Findings) -> u8 {
     eprint!(
         "{}",
-        render_human(&f.sorted(), terminal::stderr_color(), terminal::width())
+        render_human(
+            &findings.clone().sorted(),
+            terminal::stderr_color(),
+            terminal::width()
+        )
     );
     EXIT_FINDINGS
 }

@@ -8,8 +8,8 @@ use serde::Serialize;
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::eval_finding;
-use crate::diagnostics::{render_human, Findings};
-use crate::eval::{lower, Env, Node, Plan, Signal};
+use crate::diagnostics::{render_human, Finding, Findings, Severity};
+use crate::eval::{lower_stages, Env, Node, Plan, Signal};
 use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
@@ -37,9 +37,14 @@ pub fn run(args: EvalArgs) -> u8 {
         Ok(c) => c,
         Err(status) => return status,
     };
-    if checked.findings.has_errors() {
+    // Errors the analyses found (a stage beyond its limit, a sensor out of
+    // its range) are when the stage values matter most: evaluate anyway,
+    // mark them and keep the exit status. Errors before them leave no
+    // complete chain to evaluate.
+    if checked.findings.has_errors() && !checked.resolved {
         return report(checked.findings);
     }
+    let errors = errors_of(&checked.findings);
     let chain = match pick_chain(&checked.chains, args.chain.as_deref()) {
         Ok(c) => c,
         Err(e) => {
@@ -68,16 +73,21 @@ pub fn run(args: EvalArgs) -> u8 {
             }
         },
     };
-    let plan = match lower(chain) {
+    let (plan, fitted) = match lower_stages(chain) {
         Ok(p) => p,
-        Err(e) => return report_one(chain, &e, None),
+        Err(e) => return report_one(chain, &e, None, errors),
     };
     let env = Env {
         measurand: at,
         ambient,
         cold_junction: ambient,
     };
-    let outcome = match plan.evaluate(&plan.nominal, &env) {
+    // Without a conversion the stages still evaluate up to the code.
+    let outcome = match fitted {
+        Ok(()) => plan.evaluate(&plan.nominal, &env),
+        Err(_) => plan.evaluate_codes(&plan.nominal, &env),
+    };
+    let outcome = match outcome {
         Ok(o) => o,
         Err(e) => {
             let shown = format!(
@@ -85,7 +95,7 @@ pub fn run(args: EvalArgs) -> u8 {
                 trimmed(from_si(at, &measurand.unit), 9),
                 measurand.unit
             );
-            return report_one(chain, &e, Some((measurand.span, shown)));
+            return report_one(chain, &e, Some((measurand.span, shown)), errors);
         }
     };
     let view = View {
@@ -94,6 +104,7 @@ pub fn run(args: EvalArgs) -> u8 {
         signals: &outcome.signals,
         at,
         ambient,
+        findings: &errors,
     };
     match args.format {
         Format::Json => println!(
@@ -102,7 +113,20 @@ pub fn run(args: EvalArgs) -> u8 {
         ),
         Format::Human => print!("{}", view.table()),
     }
-    EXIT_OK
+    if errors.is_empty() {
+        EXIT_OK
+    } else {
+        report(errors)
+    }
+}
+
+/// The error findings of a check, to show beside the values.
+fn errors_of(findings: &Findings) -> Findings {
+    let mut errors = Findings::new();
+    for f in findings.iter().filter(|f| f.severity() == Severity::Error) {
+        errors.push(f.clone());
+    }
+    errors
 }
 
 fn report(findings: Findings) -> u8 {
@@ -117,14 +141,15 @@ fn report(findings: Findings) -> u8 {
     EXIT_FINDINGS
 }
 
+/// The evaluation's own error, after what the check found.
 fn report_one(
     chain: &Chain,
     e: &crate::eval::EvalError,
     at: Option<(crate::diagnostics::Span, String)>,
+    mut found: Findings,
 ) -> u8 {
-    let mut f = Findings::new();
-    f.push(eval_finding(chain, e, at));
-    report(f)
+    found.push(eval_finding(chain, e, at));
+    report(found)
 }
 
 fn pick_chain<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<&'a Chain, String> {
@@ -191,6 +216,8 @@ struct View<'a> {
     signals: &'a [Signal],
     at: f64,
     ambient: f64,
+    /// Errors the check found, shown beside the values.
+    findings: &'a Findings,
 }
 
 #[derive(Serialize)]
@@ -215,7 +242,20 @@ struct EvalJson {
     ambient: Quantity,
     nodes: std::collections::BTreeMap<String, NodeJson>,
     code: i64,
-    reading: Quantity,
+    /// None where no conversion could be built.
+    reading: Option<Quantity>,
+    /// Errors the check found (the values are what the chain does anyway).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    findings: Vec<FindingJson>,
+}
+
+#[derive(Serialize)]
+struct FindingJson {
+    code: String,
+    message: String,
+    /// The stage it points at, if any.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    stage: Option<String>,
 }
 
 impl View<'_> {
@@ -241,11 +281,34 @@ impl View<'_> {
         }
     }
 
-    fn reading_si(&self) -> f64 {
+    fn reading(&self) -> Option<f64> {
         match self.signals[self.plan.reading] {
-            Signal::Reading(x) => x,
-            _ => f64::NAN,
+            Signal::Reading(x) => Some(x),
+            _ => None,
         }
+    }
+
+    /// The stage a finding points at: the one whose text holds its
+    /// primary label.
+    fn stage_of(&self, finding: &Finding) -> Option<&str> {
+        let at = finding.primary_span()?;
+        let same_file = std::sync::Arc::ptr_eq(&finding.file, &self.chain.file);
+        self.chain
+            .stages
+            .iter()
+            .find(|s| same_file && s.span.start <= at.start && at.end <= s.span.end)
+            .map(|s| s.name.as_str())
+    }
+
+    /// The codes of the findings that point at `stage`.
+    fn marks(&self, stage: &str) -> String {
+        let codes: Vec<&str> = self
+            .findings
+            .iter()
+            .filter(|f| self.stage_of(f) == Some(stage))
+            .map(|f| f.code.as_str())
+            .collect();
+        codes.join(", ")
     }
 
     fn code(&self) -> i64 {
@@ -263,6 +326,8 @@ impl View<'_> {
             .iter()
             .zip(self.signals)
             .zip(&self.plan.nodes)
+            // A conversion that could not be built has no value.
+            .filter(|((_, s), _)| !matches!(s, Signal::None))
             .map(|((name, s), node)| {
                 let (value, unit) = s.value_unit();
                 let unit = match (s, node) {
@@ -301,53 +366,65 @@ impl View<'_> {
             },
             nodes,
             code: self.code(),
-            reading: Quantity {
-                value: from_si(self.reading_si(), &unit),
+            reading: self.reading().map(|x| Quantity {
+                value: from_si(x, &unit),
                 unit,
-            },
+            }),
+            findings: self
+                .findings
+                .iter()
+                .map(|f| FindingJson {
+                    code: f.code.as_str().to_string(),
+                    message: f.message.clone(),
+                    stage: self.stage_of(f).map(str::to_string),
+                })
+                .collect(),
         }
     }
 
     fn table(&self) -> String {
         let unit = self.measurand_unit();
+        let marked = !self.findings.is_empty();
         let mut table = comfy_table::Table::new();
         table.load_style(comfy_table::presets::NOTHING);
-        table.set_header(["stage", "kind", "output", "common mode"]);
+        let mut header = vec!["stage", "kind", "output", "common mode"];
+        if marked {
+            header.push("finding");
+        }
+        table.set_header(header);
         for (i, name) in self.plan.names.iter().enumerate() {
             let stage = self.chain.stages.iter().find(|s| &s.name == name);
             let kind = stage
                 .map(|s| s.model.unwrap_or(s.kind.keyword()))
                 .unwrap_or("");
-            let (output, cm) = match self.signals[i] {
-                Signal::Voltage { v, cm, .. } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
-                Signal::Code { code, .. } => (format!("{code} (code)"), String::new()),
-                Signal::Reading(x) => {
-                    let is_cj = matches!(&self.plan.nodes[i], Node::Convert { conversion, .. } if conversion.variable == crate::eval::Senses::ColdJunction);
-                    if is_cj {
-                        (
-                            format!("{} degC", significant(from_si(x, "degC"), 6)),
-                            String::new(),
-                        )
-                    } else {
-                        (
-                            format!("{} {unit}", significant(from_si(x, &unit), 7)),
-                            String::new(),
-                        )
-                    }
-                }
-                s => {
-                    let (v, u) = s.value_unit();
-                    (with_prefix(v, u, 6), String::new())
-                }
-            };
-            table.add_row([name.as_str(), kind, &output, &cm]);
+            let (output, cm) = self.output(i, &unit);
+            let mut row = vec![name.clone(), kind.to_string(), output, cm];
+            if marked {
+                row.push(self.marks(name));
+            }
+            table.add_row(row);
         }
         let title = match &self.chain.label {
             Some(l) => format!("chain {} \"{l}\"", self.chain.name),
             None => format!("chain {}", self.chain.name),
         };
+        let reading = match self.reading() {
+            Some(x) => format!("{} {unit}", significant(from_si(x, &unit), 7)),
+            None => "none: no conversion could be built".to_string(),
+        };
+        let note = if marked {
+            format!(
+                "\n{} (below): the values above are what the chain does as written\n",
+                match self.findings.len() {
+                    1 => "1 error".to_string(),
+                    n => format!("{n} errors"),
+                }
+            )
+        } else {
+            String::new()
+        };
         format!(
-            "{title}\nat {} {unit}, ambient {} degC\n\n{}\n\ncode     {}\nreading  {} {unit}\n",
+            "{title}\nat {} {unit}, ambient {} degC\n\n{}\n\ncode     {}\nreading  {reading}\n{note}",
             trimmed(from_si(self.at, &unit), 9),
             trimmed(from_si(self.ambient, "degC"), 9),
             table
@@ -357,7 +434,33 @@ impl View<'_> {
                 .collect::<Vec<_>>()
                 .join("\n"),
             self.code(),
-            significant(from_si(self.reading_si(), &unit), 7)
         )
+    }
+
+    /// Node `i`'s output and common mode, as text.
+    fn output(&self, i: usize, unit: &str) -> (String, String) {
+        match self.signals[i] {
+            Signal::Voltage { v, cm, .. } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
+            Signal::Code { code, .. } => (format!("{code} (code)"), String::new()),
+            Signal::Reading(x) => {
+                let is_cj = matches!(&self.plan.nodes[i], Node::Convert { conversion, .. } if conversion.variable == crate::eval::Senses::ColdJunction);
+                if is_cj {
+                    (
+                        format!("{} degC", significant(from_si(x, "degC"), 6)),
+                        String::new(),
+                    )
+                } else {
+                    (
+                        format!("{} {unit}", significant(from_si(x, unit), 7)),
+                        String::new(),
+                    )
+                }
+            }
+            Signal::None => ("—".to_string(), String::new()),
+            s => {
+                let (v, u) = s.value_unit();
+                (with_prefix(v, u, 6), String::new())
+            }
+        }
     }
 }

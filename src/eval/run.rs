@@ -87,6 +87,15 @@ impl Plan {
         })
     }
 
+    /// Every node up to the converters' codes, conversions left out: what
+    /// a plan whose conversion could not be fitted still shows.
+    pub fn evaluate_codes(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
+        let signals = self.signals(values, env, self.nodes.len(), Mode::CODES)?;
+        Ok(Outcome {
+            signals: signals[..self.nodes.len()].to_vec(),
+        })
+    }
+
     /// The chain's reading at `env`, SI.
     pub fn reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
