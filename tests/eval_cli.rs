@@ -304,3 +304,33 @@ fn budget_prints_despite_an_error() {
     );
     assert!(run.stderr.contains("R601"), "{}", run.stderr);
 }
+
+/// Outside the measurand range the exact conversion keeps inverting the
+/// chain where it still moves: a 2 .. 8 degC fridge read at 20 and 40 degC
+/// (it used to read 14.0 degC, the end of its search, at both). The
+/// reading is the hand inverse of the code it shows: the ratiometric
+/// divider R = R_fix·c/(2¹² − c) and the beta law 1/T = 1/T25 +
+/// ln(R/R25)/β (thermistor datasheet form), with R625 saying the point is
+/// outside the range; exit 0, as for any warning.
+#[test]
+fn eval_outside_the_range_inverts_the_chain() {
+    let dir = root().join("tests/fixtures/eval");
+    for t in [20.0, 40.0, -30.0] {
+        let at = format!("{t} degC");
+        let run = catena(
+            &dir,
+            &["eval", "fridge_ntc.catena", "--at", &at, "--format", "json"],
+            None,
+        );
+        assert_eq!(run.status, 0, "{}", run.stderr);
+        let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+        let code = v["code"].as_f64().unwrap();
+        let r = 10e3 * code / (4096.0 - code);
+        let want = 1.0 / (1.0 / 298.15 + (r / 10e3).ln() / 3380.0) - 273.15;
+        let got = v["reading"]["value"].as_f64().unwrap();
+        assert!((got - want).abs() < 1e-4, "{t}: {got} vs {want}");
+        assert!((got - t).abs() < 0.05, "{t}: {got}");
+        assert_eq!(v["findings"][0]["code"], "R625", "{v}");
+        assert!(run.stderr.contains("R625"), "{}", run.stderr);
+    }
+}

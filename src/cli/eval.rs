@@ -8,7 +8,7 @@ use serde::Serialize;
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::eval_finding;
-use crate::diagnostics::{render_human, Finding, Findings, Severity};
+use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
 use crate::eval::{lower_stages, Env, Node, Plan, Signal};
 use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
@@ -98,13 +98,15 @@ pub fn run(args: EvalArgs) -> u8 {
             return report_one(chain, &e, Some((measurand.span, shown)), errors);
         }
     };
+    let mut findings = errors;
+    findings.extend(outside_range(chain, &plan, &outcome.signals, &env));
     let view = View {
         chain,
         plan: &plan,
         signals: &outcome.signals,
         at,
         ambient,
-        findings: &errors,
+        findings: &findings,
     };
     match args.format {
         Format::Json => println!(
@@ -113,10 +115,95 @@ pub fn run(args: EvalArgs) -> u8 {
         ),
         Format::Human => print!("{}", view.table()),
     }
-    if errors.is_empty() {
+    if findings.is_empty() {
         EXIT_OK
+    } else if findings.has_errors() {
+        report(findings)
     } else {
-        report(errors)
+        report(findings);
+        EXIT_OK
+    }
+}
+
+/// A point outside the measurand range: R625 where the firmware still
+/// reads it (the chain keeps moving there), R626 where the code has
+/// stopped moving or sits at the converter's rail, so the reading is
+/// clamped and not the measurand.
+fn outside_range(chain: &Chain, plan: &Plan, signals: &[Signal], env: &Env) -> Findings {
+    let mut out = Findings::new();
+    let (Some(m), Signal::Reading(reading)) = (&chain.measurand, signals[plan.reading]) else {
+        return out;
+    };
+    let (lo, hi) = plan.range;
+    if (lo..=hi).contains(&env.measurand) {
+        return out;
+    }
+    let show = |x: f64| format!("{} {}", trimmed(from_si(x, &m.unit), 6), m.unit);
+    let range = format!("{} .. {}", trimmed(from_si(lo, &m.unit), 6), show(hi));
+    let code = match signals[plan.adc] {
+        Signal::Code { code, .. } => code,
+        _ => return out,
+    };
+    let finding = match stopped(plan, env, code) {
+        Some(why) => Finding::new(
+            Code::R626,
+            &chain.file,
+            format!(
+                "at {} the firmware reads {}: {why}",
+                show(env.measurand),
+                show(reading)
+            ),
+        )
+        .label(m.span, format!("the range, {range}"))
+        .help(format!(
+            "every value beyond reads {} too: treat code {code} as out of range in the firmware, or widen the range and rescale the chain so the code still moves there",
+            show(reading)
+        )),
+        None => Finding::new(
+            Code::R625,
+            &chain.file,
+            format!(
+                "{} is outside the measurand range {range}",
+                show(env.measurand)
+            ),
+        )
+        .label(m.span, "the range".to_string())
+        .help(format!(
+            "the firmware still reads it ({}), but the checks and the budget cover {range} only; widen the range to have them cover it",
+            show(reading)
+        )),
+    };
+    out.push(finding);
+    out
+}
+
+/// Why the firmware can no longer tell values apart at `env`: the code at
+/// the converter's rail, or the exact code standing still (a stage
+/// saturated before the converter). None where it still moves.
+fn stopped(plan: &Plan, env: &Env, code: i64) -> Option<String> {
+    if let Node::Adc { bits, polarity, .. } = &plan.nodes[plan.adc] {
+        if let Ok((low, high)) = crate::physics::adc::code_range(*bits, *polarity) {
+            if code <= low || code >= high {
+                return Some(format!("the code is at the converter's rail ({code})"));
+            }
+        }
+    }
+    let h = 1e-4 * (plan.range.1 - plan.range.0);
+    let exact = |m: f64| {
+        plan.exact_code(
+            &plan.nominal,
+            &Env {
+                measurand: m,
+                ..*env
+            },
+            plan.adc,
+        )
+    };
+    match (exact(env.measurand - h), exact(env.measurand + h)) {
+        (Ok(a), Ok(b)) if a != b => None,
+        _ => Some(format!(
+            "the code ({code}) no longer changes with the measurand (a stage before the converter has saturated)"
+        )),
     }
 }
 
@@ -216,7 +303,8 @@ struct View<'a> {
     signals: &'a [Signal],
     at: f64,
     ambient: f64,
-    /// Errors the check found, shown beside the values.
+    /// Errors the check found and the point's own findings, shown beside
+    /// the values.
     findings: &'a Findings,
 }
 
@@ -244,16 +332,17 @@ struct EvalJson {
     code: i64,
     /// None where no conversion could be built.
     reading: Option<Quantity>,
-    /// Errors the check found (the values are what the chain does anyway).
+    /// Errors the check found (the values are what the chain does anyway)
+    /// and what the point itself raises (outside the range).
     #[serde(skip_serializing_if = "Vec::is_empty")]
     findings: Vec<FindingJson>,
 }
 
+/// A finding in the check's JSON shape, with the stage it points at.
 #[derive(Serialize)]
 struct FindingJson {
-    code: String,
-    message: String,
-    /// The stage it points at, if any.
+    #[serde(flatten)]
+    finding: JsonFinding,
     #[serde(skip_serializing_if = "Option::is_none")]
     stage: Option<String>,
 }
@@ -374,8 +463,7 @@ impl View<'_> {
                 .findings
                 .iter()
                 .map(|f| FindingJson {
-                    code: f.code.as_str().to_string(),
-                    message: f.message.clone(),
+                    finding: JsonFinding::from(f),
                     stage: self.stage_of(f).map(str::to_string),
                 })
                 .collect(),
@@ -385,10 +473,11 @@ impl View<'_> {
     fn table(&self) -> String {
         let unit = self.measurand_unit();
         let marked = !self.findings.is_empty();
+        let column = self.plan.names.iter().any(|n| !self.marks(n).is_empty());
         let mut table = comfy_table::Table::new();
         table.load_style(comfy_table::presets::NOTHING);
         let mut header = vec!["stage", "kind", "output", "common mode"];
-        if marked {
+        if column {
             header.push("finding");
         }
         table.set_header(header);
@@ -399,7 +488,7 @@ impl View<'_> {
                 .unwrap_or("");
             let (output, cm) = self.output(i, &unit);
             let mut row = vec![name.clone(), kind.to_string(), output, cm];
-            if marked {
+            if column {
                 row.push(self.marks(name));
             }
             table.add_row(row);
@@ -415,10 +504,7 @@ impl View<'_> {
         let note = if marked {
             format!(
                 "\n{} (below): the values above are what the chain does as written\n",
-                match self.findings.len() {
-                    1 => "1 error".to_string(),
-                    n => format!("{n} errors"),
-                }
+                count(self.findings)
             )
         } else {
             String::new()
@@ -462,5 +548,23 @@ impl View<'_> {
                 (with_prefix(v, u, 6), String::new())
             }
         }
+    }
+}
+
+/// "1 error", "2 errors, 1 warning".
+fn count(findings: &Findings) -> String {
+    let errors = findings
+        .iter()
+        .filter(|f| f.severity() == Severity::Error)
+        .count();
+    let warnings = findings.len() - errors;
+    let plural = |n: usize, what: &str| match n {
+        1 => format!("1 {what}"),
+        n => format!("{n} {what}s"),
+    };
+    match (errors, warnings) {
+        (e, 0) => plural(e, "error"),
+        (0, w) => plural(w, "warning"),
+        (e, w) => format!("{}, {}", plural(e, "error"), plural(w, "warning")),
     }
 }
