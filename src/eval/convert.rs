@@ -764,7 +764,15 @@ pub fn solve_beyond(
 ) -> Result<f64, EvalError> {
     let (lo, hi) = domain;
     let (f_lo, f_hi) = (f(lo)?, f(hi)?);
-    if f_lo == 0.0 || f_hi == 0.0 || f_lo.signum() != f_hi.signum() {
+    // The code at an end may be a plateau (a stage at its rail): the
+    // reading is where it begins, not the far end of the search.
+    if f_hi == 0.0 && f_lo != 0.0 {
+        return Ok(flat_from(&f, lo, hi, 0.0));
+    }
+    if f_lo == 0.0 && f_hi != 0.0 {
+        return Ok(flat_from(&f, hi, lo, 0.0));
+    }
+    if f_lo == 0.0 || f_lo.signum() != f_hi.signum() {
         return solve(f, domain);
     }
     // f = code(x) − target has one sign over the domain: the target lies
@@ -775,7 +783,9 @@ pub fn solve_beyond(
         (hi, f_hi, 1.0)
     };
     let mut step = (hi - lo).abs().max(1e-9);
-    let mut before = end;
+    // The last point known to move: the domain's other end to start with,
+    // as a plateau may begin inside the domain.
+    let mut before = if direction > 0.0 { lo } else { hi };
     for _ in 0..64 {
         let next = end + direction * step;
         match f(next) {
@@ -796,7 +806,8 @@ pub fn solve_beyond(
 }
 
 /// Where `f` turned flat at `f_end` between `before` and `end` (bisected):
-/// the first point with the value it keeps.
+/// the first point from `before` with the value it keeps (`end` itself
+/// when `f` is strictly monotone).
 fn flat_from(f: &impl Fn(f64) -> Result<f64, EvalError>, before: f64, end: f64, f_end: f64) -> f64 {
     let (mut moving, mut flat) = (before, end);
     for _ in 0..60 {
@@ -943,6 +954,11 @@ mod tests {
         assert!((x - 7.0).abs() < 1e-9, "{x}");
         let x = solve_beyond(|x: f64| Ok(x - 1.0), (0.0, 2.0)).unwrap();
         assert!((x - 1.0).abs() < 1e-12);
+        // A plateau at the target reaching the domain's end: its start.
+        let x = solve_beyond(|x: f64| Ok(x.min(1.5) - 1.5), (0.0, 2.0)).unwrap();
+        assert!((x - 1.5).abs() < 1e-9, "{x}");
+        let x = solve_beyond(|x: f64| Ok(x - 2.0), (0.0, 2.0)).unwrap();
+        assert_eq!(x, 2.0);
         let x = solve_beyond(|x: f64| Ok(2.0 * x + 30.0), (0.0, 2.0)).unwrap();
         assert!((x + 15.0).abs() < 1e-9, "{x}");
     }
