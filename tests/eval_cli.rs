@@ -334,3 +334,43 @@ fn eval_outside_the_range_inverts_the_chain() {
         assert!(run.stderr.contains("R625"), "{}", run.stderr);
     }
 }
+
+/// A sensor driven outside its valid range over part of the measurand
+/// range (E501): eval and budget still show the part that evaluates. The
+/// type T fixture's class 2 tolerance, ±0.0075·|t| above 133 degC (IEC
+/// 60584-1 class 2, recalled from memory), is defined to 350 degC: the
+/// budget covers up to 350 degC at most, and at least to where the
+/// tolerance's upper limit reaches it, t·1.0075 = 350 degC, t = 347.3945
+/// degC (hand calculation). The exit status stays 1.
+#[test]
+fn budget_and_eval_show_the_part_that_evaluates() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "E501-type-t-to-500.catena";
+    let run = catena(&dir, &["budget", spec, "--trials", "0"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stdout.contains("budget over 20 .. 3"), "{}", run.stdout);
+    assert!(run.stderr.contains("E501"), "{}", run.stderr);
+    let run = catena(
+        &dir,
+        &["budget", spec, "--trials", "0", "--format", "json"],
+        None,
+    );
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let top = v["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["measurand"].as_f64().unwrap())
+        .fold(f64::MIN, f64::max);
+    assert!((350.0 / 1.0075 - 1e-3..=350.0 + 1e-6).contains(&top), "{top}");
+    let run = catena(
+        &dir,
+        &["eval", spec, "--at", "100", "--format", "json"],
+        None,
+    );
+    assert_eq!(run.status, 1);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let reading = v["reading"]["value"].as_f64().unwrap();
+    assert!((reading - 100.0).abs() < 0.01, "{reading}");
+    assert_eq!(v["findings"][0]["code"], "E501");
+}

@@ -49,6 +49,88 @@ pub fn eval_finding(
     f.help(help)
 }
 
+/// Points the measurand range is scanned at for [`evaluable_part`].
+const SCAN_POINTS: usize = 201;
+
+/// The chain narrowed to the widest stretch of its measurand range where
+/// every stage evaluates at every budget ambient, when the whole range
+/// does not (a sensor driven outside its valid range, E501): what can be
+/// evaluated, for `eval` and `budget` to show beside the finding. None
+/// when the whole range evaluates or no stretch does.
+pub fn evaluable_part(chain: &Chain) -> Option<Chain> {
+    let (plan, fitted) = lower_stages(chain).ok()?;
+    if fitted.is_ok() {
+        return None;
+    }
+    let ambients = budget::ambients(chain);
+    // Every source at each of its limits, as the budget will put it.
+    let mut cases = vec![plan.nominal.clone()];
+    for (i, slot) in plan.slots.iter().enumerate() {
+        if slot.kind != crate::eval::SourceKind::Exact {
+            for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
+                let mut values = plan.nominal.clone();
+                values[i] = x;
+                cases.push(values);
+            }
+        }
+    }
+    let evaluates = |m: f64| {
+        ambients.iter().all(|&t| {
+            let env = Env {
+                measurand: m,
+                ambient: t,
+                cold_junction: t,
+            };
+            cases
+                .iter()
+                .all(|values| plan.exact_code(values, &env, plan.adc).is_ok())
+        })
+    };
+    let grid = crate::eval::grid(plan.range, SCAN_POINTS);
+    let ok: Vec<bool> = grid.iter().map(|&m| evaluates(m)).collect();
+    // The longest run of points that evaluate.
+    let (mut best, mut start) = (None::<(usize, usize)>, None);
+    for i in 0..=ok.len() {
+        match (ok.get(i).copied().unwrap_or(false), start) {
+            (true, None) => start = Some(i),
+            (false, Some(s)) => {
+                if best.is_none_or(|(a, b)| i - 1 - s > b - a) {
+                    best = Some((s, i - 1));
+                }
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    let (first, last) = best?;
+    if first == 0 && last == grid.len() - 1 || first == last {
+        return None;
+    }
+    // Each end bisected to where evaluation stops.
+    let edge = |good: f64, bad: Option<f64>| match bad {
+        None => good,
+        Some(mut bad) => {
+            let mut good = good;
+            for _ in 0..50 {
+                let mid = 0.5 * (good + bad);
+                if evaluates(mid) {
+                    good = mid;
+                } else {
+                    bad = mid;
+                }
+            }
+            good
+        }
+    };
+    let low = edge(grid[first], first.checked_sub(1).map(|i| grid[i]));
+    let high = edge(grid[last], grid.get(last + 1).copied());
+    let mut narrowed = chain.clone();
+    let measurand = narrowed.measurand.as_mut()?;
+    (measurand.low, measurand.high) = (low, high);
+    lower_stages(&narrowed).ok()?.1.ok()?;
+    Some(narrowed)
+}
+
 /// Why no conversion could be built: the range envelope runs on the
 /// stages (they evaluate up to the converter), and a stage beyond its
 /// limit (R601, with the value that fixes it) explains a flat or folded

@@ -11,10 +11,10 @@ use serde::Serialize;
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
-use crate::analysis::eval_finding;
 use crate::analysis::report::{
     analyse_with_progress, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
+use crate::analysis::{eval_finding, evaluable_part};
 use crate::diagnostics::{render_human, Findings};
 use crate::eval::lower;
 use crate::model::{did_you_mean, Chain};
@@ -97,29 +97,25 @@ pub fn run(args: BudgetArgs) -> u8 {
         detail: true,
     };
     let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
-    let mut outputs = Vec::new();
+    let mut outputs: Vec<(Chain, Analysis)> = Vec::new();
     for chain in chains {
-        let plan = match lower(chain) {
-            Ok(p) => p,
-            Err(e) => return report_error(chain, &e, &errors),
-        };
-        // On a terminal, a line that counts the Monte Carlo points; never
-        // on a pipe, where it would land in someone's log.
-        let show = |done: usize, total: usize| {
-            if progress {
-                eprint!(
-                    "\rcatena: Monte Carlo for `{}`: {done} of {total} points done",
-                    chain.name
-                );
-            }
-        };
-        let result = analyse_with_progress(chain, &plan, &options, &show);
-        if progress {
-            eprint!("\r\x1b[2K");
-        }
-        match result {
-            Ok(a) => outputs.push((chain, a)),
-            Err(e) => return report_error(chain, &e, &errors),
+        let analysed = analyse_chain(chain, &options, progress);
+        match analysed {
+            Ok(a) => outputs.push((chain.clone(), a)),
+            // With the check's errors beside it, what can be evaluated is
+            // still worth showing: the part of the range that evaluates.
+            Err(e) => match evaluable_part(chain).filter(|_| !errors.is_empty()) {
+                Some(part) => match analyse_chain(&part, &options, progress) {
+                    Ok(a) => {
+                        if args.format == Format::Human {
+                            println!("{}", part_note(&part));
+                        }
+                        outputs.push((part, a));
+                    }
+                    Err(_) => return report_error(chain, &e, &errors),
+                },
+                None => return report_error(chain, &e, &errors),
+            },
         }
     }
     match args.format {
@@ -158,6 +154,45 @@ pub fn run(args: BudgetArgs) -> u8 {
     } else {
         EXIT_OK
     }
+}
+
+/// Lowers and analyses one chain, with a progress line on a terminal.
+fn analyse_chain(
+    chain: &Chain,
+    options: &Options,
+    progress: bool,
+) -> Result<Analysis, crate::eval::EvalError> {
+    let plan = lower(chain)?;
+    // On a terminal, a line that counts the Monte Carlo points; never on a
+    // pipe, where it would land in someone's log.
+    let show = |done: usize, total: usize| {
+        if progress {
+            eprint!(
+                "\rcatena: Monte Carlo for `{}`: {done} of {total} points done",
+                chain.name
+            );
+        }
+    };
+    let result = analyse_with_progress(chain, &plan, options, &show);
+    if progress {
+        eprint!("\r\x1b[2K");
+    }
+    result
+}
+
+/// The line that says a budget covers only part of the range.
+fn part_note(part: &Chain) -> String {
+    let Some(m) = &part.measurand else {
+        return String::new();
+    };
+    let show = |x: f64| trimmed(from_si(x, &m.unit), 6);
+    format!(
+        "chain {}: budget over {} .. {} {} only, where every stage evaluates (the findings below say why not beyond)\n",
+        part.name,
+        show(m.low),
+        show(m.high),
+        m.unit
+    )
 }
 
 /// Why the budget could not be made: what the check found, which

@@ -46,9 +46,16 @@ pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
         out.push_str(&lines(&per_point_table(a, &m_unit, &v)));
     } else {
         out.push_str(&lines(&summary_table(a, &m_unit, &v)));
+        let ambients = a
+            .budget
+            .points
+            .windows(2)
+            .filter(|w| w[0].ambient != w[1].ambient)
+            .count()
+            + 1;
         out.push_str(&format!(
             "\n\nthe largest of {} points across the measurand at each ambient; --per-point lists them all",
-            a.budget.points.len()
+            a.budget.points.len() / ambients
         ));
     }
     out.push_str("\n\n");

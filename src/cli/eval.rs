@@ -7,9 +7,9 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::eval_finding;
+use crate::analysis::{eval_finding, evaluable_part};
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
-use crate::eval::{lower_stages, Env, Node, Plan, Signal};
+use crate::eval::{lower, lower_stages, Env, Node, Plan, Signal};
 use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
@@ -76,6 +76,15 @@ pub fn run(args: EvalArgs) -> u8 {
     let (plan, fitted) = match lower_stages(chain) {
         Ok(p) => p,
         Err(e) => return report_one(chain, &e, None, errors),
+    };
+    // No conversion over the whole range (a sensor outside its valid
+    // range): the part of the range that evaluates still has one.
+    let (plan, fitted) = match (&fitted, evaluable_part(chain)) {
+        (Err(_), Some(part)) if part_covers(&part, at) => match lower(&part) {
+            Ok(p) => (p, Ok(())),
+            Err(_) => (plan, fitted),
+        },
+        _ => (plan, fitted),
     };
     let env = Env {
         measurand: at,
@@ -205,6 +214,12 @@ fn stopped(plan: &Plan, env: &Env, code: i64) -> Option<String> {
             "the code ({code}) no longer changes with the measurand (a stage before the converter has saturated)"
         )),
     }
+}
+
+fn part_covers(part: &Chain, at: f64) -> bool {
+    part.measurand
+        .as_ref()
+        .is_some_and(|m| (m.low..=m.high).contains(&at))
 }
 
 /// The error findings of a check, to show beside the values.
