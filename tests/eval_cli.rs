@@ -362,7 +362,10 @@ fn budget_and_eval_show_the_part_that_evaluates() {
         .iter()
         .map(|p| p["measurand"].as_f64().unwrap())
         .fold(f64::MIN, f64::max);
-    assert!((350.0 / 1.0075 - 1e-3..=350.0 + 1e-6).contains(&top), "{top}");
+    assert!(
+        (350.0 / 1.0075 - 1e-3..=350.0 + 1e-6).contains(&top),
+        "{top}"
+    );
     let run = catena(
         &dir,
         &["eval", spec, "--at", "100", "--format", "json"],
