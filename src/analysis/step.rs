@@ -403,6 +403,21 @@ mod tests {
         }
     }
 
+    /// A notch shorter than the conversion period: each conversion is a
+    /// 20 ms boxcar, four of them 100 ms apart are averaged, so the mean
+    /// reaches 0.9 when three are complete and the fourth is 60 % in:
+    /// t = 0.3 + 0.6 · 0.02 = 0.312 s (by hand).
+    #[test]
+    fn averaged_short_conversions_step_by_sample() {
+        let a = Averaging {
+            conversion_s: 0.02,
+            spacing_s: 0.1,
+            count: 4,
+        };
+        let t = StepModel::new(0.0, None, Some(a)).time_to(0.9).unwrap();
+        assert!(rel(t, 0.312) < 1e-9, "{t}");
+    }
+
     /// A first-order lag through one conversion's boxcar T:
     /// z(t) = 1 − τ/T·e^{−t/τ}(e^{T/τ} − 1) for t ≥ T (the boxcar mean of
     /// 1 − e^{−t/τ}, integrated by hand).
