@@ -562,3 +562,14 @@ fn monte_carlo_draws_quantization_through_the_inverse() {
     // The two ends differ as the sides do (0.24 %), more than the noise.
     assert!((got[0].abs() - got[1].abs()).abs() > 1e-4, "{got:?}");
 }
+
+/// The budget's step response of a chain whose only dynamics is one RC
+/// section: t90 = RC·ln 10 (closed form of 1 − e^{−t/RC} = 0.9), 0.366 ms
+/// for 10 kΩ and 15.9 nF. A time-stepped simulation gave 2.2934·RC.
+#[test]
+fn rc_chain_reaches_ninety_percent_at_rc_ln_10() {
+    let v = budget("rc_step.catena", &["--points", "3", "--trials", "0"]);
+    let expect = 10e3 * 15.9e-9 * std::f64::consts::LN_10;
+    let got = f(&v["dynamics"]["response_90_s"]);
+    assert!((got - expect).abs() < 1e-6 * expect, "{got} vs {expect}");
+}
