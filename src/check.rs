@@ -15,6 +15,10 @@ pub struct CheckedFile {
     pub file: Option<Arc<SourceFile>>,
     pub chains: Vec<Chain>,
     pub findings: Findings,
+    /// The chains resolved without errors, so the analyses ran on them:
+    /// any error is theirs (a stage beyond a limit, a sensor outside its
+    /// range, a requirement missed) and the chains still evaluate.
+    pub resolved: bool,
 }
 
 /// Checks a spec given as bytes. `name` is how findings show the file;
@@ -40,6 +44,7 @@ pub fn check_bytes_with(
                 file: None,
                 chains: Vec::new(),
                 findings,
+                resolved: false,
             };
         }
     };
@@ -50,6 +55,7 @@ pub fn check_bytes_with(
             file: Some(file),
             chains: Vec::new(),
             findings,
+            resolved: false,
         };
     }
     // A line with a syntax finding gets only that finding: what the later
@@ -74,7 +80,8 @@ pub fn check_bytes_with(
             findings.push(f);
         }
     }
-    if !findings.has_errors() {
+    let resolved = !findings.has_errors();
+    if resolved {
         for chain in &chains {
             let (_, more) = analysis::check_chain(chain, options);
             findings.extend(more);
@@ -84,6 +91,7 @@ pub fn check_bytes_with(
         file: Some(file),
         chains,
         findings,
+        resolved,
     }
 }
 

@@ -236,3 +236,144 @@ fn full_bridge_is_exact() {
     );
     assert!((v["reading"]["value"].as_f64().unwrap() - 500.0).abs() < 1e-3);
 }
+
+/// A spec with an error the analyses found still evaluates: the stage
+/// values are what the engineer needs to fix it. A gain of 3 on 1.5 V
+/// against a 3.3 V swing (R601): at 100 degC the amplifier sits at its
+/// rail, 3.3 V, and the 16-bit code on a 5 V reference is
+/// 3.3 / 5 · 2¹⁶ = 43253.76, rounded to 43254 (by hand). The row is
+/// marked, the finding follows on stderr, exit 1.
+#[test]
+fn eval_shows_the_stages_despite_an_error() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "R601-over-gained-amplifier.catena";
+    let run = catena(&dir, &["eval", spec, "--at", "100 degC"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    let front = run.stdout.lines().find(|l| l.contains("front")).unwrap();
+    assert!(
+        front.contains("3.30000 V") && front.ends_with("R601"),
+        "{front}"
+    );
+    assert!(run.stdout.contains("43254 (code)"), "{}", run.stdout);
+    assert!(run.stderr.contains("R601"), "{}", run.stderr);
+    let run = catena(
+        &dir,
+        &["eval", spec, "--at", "100", "--format", "json"],
+        None,
+    );
+    assert_eq!(run.status, 1);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    assert_eq!(v["findings"][0]["code"], "R601");
+    assert_eq!(v["findings"][0]["stage"], "front");
+    assert!((node(&v, "front") - 3.3).abs() < 1e-12);
+}
+
+/// An amplifier clipped over the whole range has no conversion, but its
+/// stages still evaluate up to the code (1 V in, 10 V asked, the 3.3 V
+/// rail given); the reading is absent rather than invented.
+#[test]
+fn eval_without_a_conversion_shows_the_code() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "R601-amplifier-clips-whole-range.catena";
+    let run = catena(
+        &dir,
+        &["eval", spec, "--at", "50", "--format", "json"],
+        None,
+    );
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    assert!((node(&v, "ic") - 1.0).abs() < 1e-12);
+    assert!((node(&v, "front") - 3.3).abs() < 1e-12);
+    assert!(v["reading"].is_null(), "{v}");
+    assert!(v["nodes"].get("reading").is_none(), "{v}");
+    assert!(!run.stderr.contains("E502"), "{}", run.stderr);
+}
+
+/// The budget too: with R601 it still prints, says so, and exits 1.
+#[test]
+fn budget_prints_despite_an_error() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "R601-over-gained-amplifier.catena";
+    let run = catena(&dir, &["budget", spec, "--trials", "0"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stdout.contains("error budget"), "{}", run.stdout);
+    assert!(
+        run.stdout.contains("1 error found by check"),
+        "{}",
+        run.stdout
+    );
+    assert!(run.stderr.contains("R601"), "{}", run.stderr);
+}
+
+/// Outside the measurand range the exact conversion keeps inverting the
+/// chain where it still moves: a 2 .. 8 degC fridge read at 20 and 40 degC
+/// (it used to read 14.0 degC, the end of its search, at both). The
+/// reading is the hand inverse of the code it shows: the ratiometric
+/// divider R = R_fix·c/(2¹² − c) and the beta law 1/T = 1/T25 +
+/// ln(R/R25)/β (thermistor datasheet form), with R625 saying the point is
+/// outside the range; exit 0, as for any warning.
+#[test]
+fn eval_outside_the_range_inverts_the_chain() {
+    let dir = root().join("tests/fixtures/eval");
+    for t in [20.0, 40.0, -30.0] {
+        let at = format!("{t} degC");
+        let run = catena(
+            &dir,
+            &["eval", "fridge_ntc.catena", "--at", &at, "--format", "json"],
+            None,
+        );
+        assert_eq!(run.status, 0, "{}", run.stderr);
+        let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+        let code = v["code"].as_f64().unwrap();
+        let r = 10e3 * code / (4096.0 - code);
+        let want = 1.0 / (1.0 / 298.15 + (r / 10e3).ln() / 3380.0) - 273.15;
+        let got = v["reading"]["value"].as_f64().unwrap();
+        assert!((got - want).abs() < 1e-4, "{t}: {got} vs {want}");
+        assert!((got - t).abs() < 0.05, "{t}: {got}");
+        assert_eq!(v["findings"][0]["code"], "R625", "{v}");
+        assert!(run.stderr.contains("R625"), "{}", run.stderr);
+    }
+}
+
+/// A sensor driven outside its valid range over part of the measurand
+/// range (E501): eval and budget still show the part that evaluates. The
+/// type T fixture's class 2 tolerance, ±0.0075·|t| above 133 degC (IEC
+/// 60584-1 class 2, recalled from memory), is defined to 350 degC: the
+/// budget covers up to 350 degC at most, and at least to where the
+/// tolerance's upper limit reaches it, t·1.0075 = 350 degC, t = 347.3945
+/// degC (hand calculation). The exit status stays 1.
+#[test]
+fn budget_and_eval_show_the_part_that_evaluates() {
+    let dir = root().join("tests/fixtures/invalid");
+    let spec = "E501-type-t-to-500.catena";
+    let run = catena(&dir, &["budget", spec, "--trials", "0"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stdout.contains("budget over 20 .. 3"), "{}", run.stdout);
+    assert!(run.stderr.contains("E501"), "{}", run.stderr);
+    let run = catena(
+        &dir,
+        &["budget", spec, "--trials", "0", "--format", "json"],
+        None,
+    );
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let top = v["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["measurand"].as_f64().unwrap())
+        .fold(f64::MIN, f64::max);
+    assert!(
+        (350.0 / 1.0075 - 1e-3..=350.0 + 1e-6).contains(&top),
+        "{top}"
+    );
+    let run = catena(
+        &dir,
+        &["eval", spec, "--at", "100", "--format", "json"],
+        None,
+    );
+    assert_eq!(run.status, 1);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let reading = v["reading"]["value"].as_f64().unwrap();
+    assert!((reading - 100.0).abs() < 0.01, "{reading}");
+    assert_eq!(v["findings"][0]["code"], "E501");
+}

@@ -2,6 +2,9 @@
 //! in its first line (`# expect: error U103 line 7, warning M208 line 12`).
 //! Each must exit 1 (warnings are run with `--deny warnings`) and report
 //! every expected code at its line; the findings are snapshotted as JSON.
+//! A finding only `catena eval` raises names the evaluation in brackets
+//! (`# expect (eval --at 20 degC): warning R625 line 4`): the fixture is
+//! then evaluated there, and exits 1 only if an error is expected.
 
 mod common;
 
@@ -16,14 +19,30 @@ struct Expected {
     line: usize,
 }
 
-fn expectations(path: &Path) -> Vec<Expected> {
+/// The expectations, and the `eval` arguments when the fixture names them.
+fn expectations(path: &Path) -> (Vec<Expected>, Option<Vec<String>>) {
     let bytes = std::fs::read(path).expect("fixture is readable");
     let first = String::from_utf8_lossy(&bytes);
     let first = first.lines().next().unwrap_or("");
-    let spec = first
-        .strip_prefix("# expect:")
+    let rest = first
+        .strip_prefix("# expect")
         .unwrap_or_else(|| panic!("{}: first line must be `# expect: ...`", path.display()));
-    spec.split(',')
+    let (eval, spec) = match rest.strip_prefix(" (eval ") {
+        Some(r) => {
+            let (args, spec) = r
+                .split_once("):")
+                .unwrap_or_else(|| panic!("{}: malformed `(eval ...)`", path.display()));
+            (Some(split_args(args)), spec)
+        }
+        None => (
+            None,
+            rest.strip_prefix(':').unwrap_or_else(|| {
+                panic!("{}: first line must be `# expect: ...`", path.display())
+            }),
+        ),
+    };
+    let expected = spec
+        .split(',')
         .map(|item| {
             let words: Vec<&str> = item.split_whitespace().collect();
             match words.as_slice() {
@@ -40,7 +59,24 @@ fn expectations(path: &Path) -> Vec<Expected> {
                 _ => panic!("{}: malformed expectation `{item}`", path.display()),
             }
         })
-        .collect()
+        .collect();
+    (expected, eval)
+}
+
+/// `--at 20 degC` as `["--at", "20 degC"]`: an option's words up to the
+/// next option are its one value.
+fn split_args(text: &str) -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for word in text.split_whitespace() {
+        match out.last_mut() {
+            Some(last) if !word.starts_with("--") && !last.starts_with("--") => {
+                last.push(' ');
+                last.push_str(word);
+            }
+            _ => out.push(word.to_string()),
+        }
+    }
+    out
 }
 
 #[test]
@@ -52,19 +88,36 @@ fn every_invalid_fixture_reports_its_expectation() {
             .expect("fixture has a name")
             .to_string_lossy()
             .into_owned();
-        let expected = expectations(path);
-        let run = catena(
-            dir,
-            &["check", "--format", "json", "--deny", "warnings", &name],
-            None,
-        );
+        let (expected, eval) = expectations(path);
+        let args: Vec<String> = match &eval {
+            Some(at) => ["eval", &name, "--format", "json"]
+                .iter()
+                .map(|s| s.to_string())
+                .chain(at.iter().cloned())
+                .collect(),
+            None => ["check", "--format", "json", "--deny", "warnings", &name]
+                .iter()
+                .map(|s| s.to_string())
+                .collect(),
+        };
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let run = catena(dir, &args, None);
+        let status = if eval.is_none() || expected.iter().any(|e| e.severity == "error") {
+            1
+        } else {
+            0
+        };
         assert_eq!(
-            run.status, 1,
-            "{name} must exit 1\n{}{}",
+            run.status, status,
+            "{name} must exit {status}\n{}{}",
             run.stdout, run.stderr
         );
-        let found: serde_json::Value = serde_json::from_str(&run.stdout)
+        let output: serde_json::Value = serde_json::from_str(&run.stdout)
             .unwrap_or_else(|e| panic!("{name}: output is not JSON ({e}): {}", run.stdout));
+        let found = match eval {
+            Some(_) => &output["findings"],
+            None => &output,
+        };
         let found = found.as_array().expect("a JSON array of findings");
         for e in &expected {
             let hit = found.iter().any(|f| {

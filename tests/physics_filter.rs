@@ -462,3 +462,26 @@ fn poles_are_stable_and_conjugate() {
         }
     }
 }
+
+/// Rise times (first reach of 50 %, 90 %, 99 % of a step) of each filter
+/// alone, through the chain's exact step response
+/// (`analysis::step::StepModel`), against a dense scan of
+/// scipy.signal.step and brentq on the exact state-space response
+/// (tests/reference/filter.py, fixture filter_rise.csv). Covers the
+/// Butterworth second order's t90 = 0.42231·/fc and the RC cascade's
+/// repeated poles.
+#[test]
+fn rise_times_match_scipy_step() {
+    use catena::analysis::step::StepModel;
+    let rows = fixture("filter_rise.csv");
+    let mut worst = 0.0_f64;
+    for r in &rows {
+        let lp = filter_of(&r[0], &r[1]);
+        let t = StepModel::new(0.0, Some(&lp), None)
+            .time_to(num(&r[2]))
+            .unwrap();
+        worst = worst.max(rel(t, num(&r[3])));
+    }
+    println!("rise: {} rows, worst rel {worst:.1e}", rows.len());
+    assert!(worst < 1e-9, "rise {worst:e}");
+}

@@ -62,6 +62,15 @@ impl Point {
     pub fn code_step(&self) -> f64 {
         code_step(self.codes_per_unit)
     }
+
+    /// Quantization's effect half a code below and above the point.
+    pub fn quantization(&self) -> (f64, f64) {
+        self.contributions
+            .iter()
+            .find(|c| c.kind == "quantization")
+            .map(|c| (c.low, c.high))
+            .unwrap_or((0.0, 0.0))
+    }
 }
 
 /// One code in measurand units from codes per unit (zero when flat).
@@ -263,6 +272,29 @@ fn source_effects(
     Ok(changes.chunks(2).map(|c| (c[0], c[1])).collect())
 }
 
+/// Quantization at its limits, as every other source: the reading with the
+/// converter's exact code half a code below and above, through the chain's
+/// inverse at the point, less the nominal reading. On a nonlinear chain
+/// the two sides differ. Where the inverse has no answer there (a flat
+/// chain, E504) the step is the linear one, zero when flat.
+fn quantization(
+    plan: &Plan,
+    env: &Env,
+    calibrated: &Calibrated,
+    r0: f64,
+    codes_per_unit: f64,
+) -> (f64, f64) {
+    let half_lsb = code_step(codes_per_unit) / 2.0;
+    if half_lsb == 0.0 {
+        return (0.0, 0.0);
+    }
+    let at = |codes: f64| plan.reading_codes_away(&plan.nominal, env, calibrated, codes);
+    match (at(-0.5), at(0.5)) {
+        (Ok(low), Ok(high)) => (low - r0, high - r0),
+        _ => (-half_lsb, half_lsb),
+    }
+}
+
 fn point(
     plan: &Plan,
     env: &Env,
@@ -287,15 +319,14 @@ fn point(
         });
     }
     // Sources computed from the chain rather than a slot.
-    let lsb = code_step(codes_per_unit);
-    let half_lsb = lsb / 2.0;
+    let (low, high) = quantization(plan, env, &sources.nominal, r0, codes_per_unit);
     contributions.push(Contribution {
         id: "quantization".into(),
         kind: "quantization",
-        low: -half_lsb,
-        high: half_lsb,
-        worst: half_lsb,
-        standard: half_lsb / SQRT3,
+        low,
+        high,
+        worst: low.abs().max(high.abs()),
+        standard: (high - low).abs() / 2.0 / SQRT3,
     });
     if noise.sigma_averaged > 0.0 {
         // Noise as a 3σ bound in the worst case (common practice).

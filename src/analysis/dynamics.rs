@@ -5,12 +5,11 @@
 //! at the converter's rate.
 
 use super::stages::{low_pass, number, signal_path, stage};
+use super::step::{Averaging, StepModel};
 use crate::eval::{Node, Plan, Senses};
 use crate::model::Chain;
 use crate::physics::filter::LowPass;
 
-/// Steps the simulated step response is sampled at.
-const STEPS: usize = 4000;
 /// Mains frequencies every report states attenuation at, Hz.
 pub const MAINS_HZ: [f64; 2] = [50.0, 60.0];
 
@@ -70,6 +69,19 @@ impl Dynamics {
         h
     }
 
+    /// The first time the reading reaches `fraction` of a measurand step,
+    /// s, from the exact step response ([`StepModel`]). The converter
+    /// averages over one conversion (1/notch, or 1/rate) and the firmware
+    /// over `average` conversions 1/rate apart, as in [`Dynamics::magnitude`].
+    pub fn time_to_fraction(&self, fraction: f64) -> Option<f64> {
+        let averaging = self.rate_hz.map(|rate| Averaging {
+            conversion_s: 1.0 / self.notch_hz.unwrap_or(rate),
+            spacing_s: 1.0 / rate,
+            count: self.average,
+        });
+        StepModel::new(self.sensor_time_constant, self.filter.as_ref(), averaging).time_to(fraction)
+    }
+
     /// Attenuation at `f` as an amplitude ratio (1/|H|).
     pub fn attenuation(&self, f: f64) -> f64 {
         1.0 / self.magnitude(f).max(1e-300)
@@ -124,7 +136,7 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
         at_rate: None,
         filter_settling_half_lsb: None,
     };
-    d.response_90 = step_90(&d);
+    d.response_90 = d.time_to_fraction(0.9);
     d.mains = MAINS_HZ.iter().map(|&f| (f, d.attenuation(f))).collect();
     let bits = match &plan.nodes[plan.adc] {
         Node::Adc { bits, .. } => *bits,
@@ -154,164 +166,5 @@ fn sensor_senses_measurand(plan: &Plan, node: usize) -> bool {
         | Node::IcCurrent { senses, .. } => *senses == Senses::Measurand,
         Node::StrainGauge { .. } | Node::Transducer { .. } => true,
         _ => false,
-    }
-}
-
-/// Simulates a unit step through the chain on a uniform grid and returns
-/// when it first reaches 90 %.
-fn step_90(d: &Dynamics) -> Option<f64> {
-    let window = d.rate_hz.map(|r| 1.0 / r).unwrap_or(0.0);
-    let average_window = window * f64::from(d.average);
-    let filter_scale = d
-        .filter
-        .as_ref()
-        .map(|lp| 5.0 / lp.cutoff_hz)
-        .unwrap_or(0.0);
-    let horizon =
-        6.0 * d.sensor_time_constant + 4.0 * filter_scale + 2.0 * (window + average_window);
-    if horizon <= 0.0 {
-        return Some(0.0);
-    }
-    let dt = horizon / STEPS as f64;
-    // Sensor: exact first-order discretisation of the step.
-    let mut y: Vec<f64> = (0..=STEPS)
-        .map(|k| {
-            let t = k as f64 * dt;
-            if d.sensor_time_constant > 0.0 {
-                1.0 - (-t / d.sensor_time_constant).exp()
-            } else {
-                1.0
-            }
-        })
-        .collect();
-    if let Some(lp) = &d.filter {
-        y = filter_signal(lp, &y, dt);
-    }
-    for w in [window, average_window] {
-        let n = (w / dt).round() as usize;
-        if n > 1 {
-            let x = y.clone();
-            let mut sum = 0.0;
-            for k in 0..=STEPS {
-                sum += x[k];
-                if k >= n {
-                    sum -= x[k - n];
-                }
-                y[k] = sum / n as f64;
-            }
-        }
-    }
-    y.iter().position(|&v| v >= 0.9).map(|k| k as f64 * dt)
-}
-
-#[derive(Clone, Copy)]
-struct C(f64, f64);
-
-impl C {
-    fn mul(self, o: C) -> C {
-        C(self.0 * o.0 - self.1 * o.1, self.0 * o.1 + self.1 * o.0)
-    }
-    fn div(self, o: C) -> C {
-        let d = o.0 * o.0 + o.1 * o.1;
-        C(
-            (self.0 * o.0 + self.1 * o.1) / d,
-            (self.1 * o.0 - self.0 * o.1) / d,
-        )
-    }
-    fn exp(self) -> C {
-        let m = self.0.exp();
-        C(m * self.1.cos(), m * self.1.sin())
-    }
-    fn sub(self, o: C) -> C {
-        C(self.0 - o.0, self.1 - o.1)
-    }
-}
-
-/// Runs a sampled signal through the filter, pole by pole, each section
-/// discretised exactly for a held input: O(n · order), where a
-/// convolution would be O(n²). Identical poles (an RC cascade) run as
-/// sections in series; distinct ones in parallel by partial fractions.
-fn filter_signal(lp: &LowPass, x: &[f64], dt: f64) -> Vec<f64> {
-    let poles: Vec<C> = lp.poles().into_iter().map(|(re, im)| C(re, im)).collect();
-    if matches!(lp.response, crate::physics::filter::Response::Rc) {
-        let mut y = x.to_vec();
-        for p in &poles {
-            let a = (p.0 * dt).exp();
-            let (mut state, mut previous) = (0.0, 0.0);
-            for v in y.iter_mut() {
-                // The input over the step taken as the mean of its ends.
-                state = a * state + (1.0 - a) * (previous + *v) / 2.0;
-                previous = *v;
-                *v = state;
-            }
-        }
-        return y;
-    }
-    // H(s) = K / Π(s − p_j) with K = Π(−p_j) for unit DC gain; residue
-    // r_k = K / Π_{j≠k}(p_k − p_j).
-    let k = poles
-        .iter()
-        .fold(C(1.0, 0.0), |acc, p| acc.mul(C(-p.0, -p.1)));
-    let sections: Vec<(C, C)> = poles
-        .iter()
-        .enumerate()
-        .map(|(i, &p)| {
-            let denominator = poles
-                .iter()
-                .enumerate()
-                .filter(|(j, _)| *j != i)
-                .fold(C(1.0, 0.0), |acc, (_, &q)| acc.mul(p.sub(q)));
-            let r = k.div(denominator);
-            let a = C(p.0 * dt, p.1 * dt).exp();
-            // Exact response of ds/dt = p s + r x to x held over one step.
-            let gain = r.mul(a.sub(C(1.0, 0.0))).div(p);
-            (a, gain)
-        })
-        .collect();
-    let mut states = vec![C(0.0, 0.0); sections.len()];
-    let mut previous = 0.0;
-    x.iter()
-        .map(|&now| {
-            let input = (previous + now) / 2.0;
-            previous = now;
-            let mut sum = 0.0;
-            for ((a, gain), state) in sections.iter().zip(states.iter_mut()) {
-                let next = a.mul(*state);
-                *state = C(next.0 + gain.0 * input, next.1 + gain.1 * input);
-                sum += state.0;
-            }
-            sum
-        })
-        .collect()
-}
-
-#[cfg(test)]
-mod tests {
-    use super::filter_signal;
-    use crate::physics::filter::{LowPass, Response};
-
-    /// The pole-by-pole simulation of a step reproduces the filter's exact
-    /// step response (from its poles, `physics::filter`); the sampled step
-    /// itself rises over the first interval, half a sample late.
-    #[test]
-    fn simulated_steps_match_the_exact_response() {
-        for (response, order) in [
-            (Response::Rc, 1),
-            (Response::Rc, 3),
-            (Response::Butterworth, 4),
-            (Response::Bessel, 3),
-        ] {
-            let lp = LowPass::new(response, order, 10.0).unwrap();
-            let dt = 1e-4;
-            let y = filter_signal(&lp, &vec![1.0; 5000], dt);
-            for k in [100, 500, 1000, 4999] {
-                let exact = lp.step_response((k as f64 + 0.5) * dt);
-                assert!(
-                    (y[k] - exact).abs() < 1e-4,
-                    "{response:?} {order} at {k}: {} vs {exact}",
-                    y[k]
-                );
-            }
-        }
     }
 }

@@ -11,9 +11,10 @@ pub mod ranges;
 pub mod report;
 pub mod requirements;
 mod stages;
+pub mod step;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
-use crate::eval::{lower, Env, EvalError, Plan};
+use crate::eval::{lower_stages, Env, EvalError, Plan};
 use crate::model::Chain;
 use crate::units::format::from_si;
 
@@ -46,6 +47,109 @@ pub fn eval_finding(
         f = f.label(span, text);
     }
     f.help(help)
+}
+
+/// Points the measurand range is scanned at for [`evaluable_part`].
+const SCAN_POINTS: usize = 201;
+
+/// The chain narrowed to the widest stretch of its measurand range where
+/// every stage evaluates at every budget ambient, when the whole range
+/// does not (a sensor driven outside its valid range, E501): what can be
+/// evaluated, for `eval` and `budget` to show beside the finding. None
+/// when the whole range evaluates or no stretch does.
+pub fn evaluable_part(chain: &Chain) -> Option<Chain> {
+    let (plan, fitted) = lower_stages(chain).ok()?;
+    if fitted.is_ok() {
+        return None;
+    }
+    let ambients = budget::ambients(chain);
+    // Every source at each of its limits, as the budget will put it.
+    let mut cases = vec![plan.nominal.clone()];
+    for (i, slot) in plan.slots.iter().enumerate() {
+        if slot.kind != crate::eval::SourceKind::Exact {
+            for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
+                let mut values = plan.nominal.clone();
+                values[i] = x;
+                cases.push(values);
+            }
+        }
+    }
+    let evaluates = |m: f64| {
+        ambients.iter().all(|&t| {
+            let env = Env {
+                measurand: m,
+                ambient: t,
+                cold_junction: t,
+            };
+            cases
+                .iter()
+                .all(|values| plan.exact_code(values, &env, plan.adc).is_ok())
+        })
+    };
+    let grid = crate::eval::grid(plan.range, SCAN_POINTS);
+    let ok: Vec<bool> = grid.iter().map(|&m| evaluates(m)).collect();
+    // The longest run of points that evaluate.
+    let (mut best, mut start) = (None::<(usize, usize)>, None);
+    for i in 0..=ok.len() {
+        match (ok.get(i).copied().unwrap_or(false), start) {
+            (true, None) => start = Some(i),
+            (false, Some(s)) => {
+                if best.is_none_or(|(a, b)| i - 1 - s > b - a) {
+                    best = Some((s, i - 1));
+                }
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    let (first, last) = best?;
+    if first == 0 && last == grid.len() - 1 || first == last {
+        return None;
+    }
+    // Each end bisected to where evaluation stops.
+    let edge = |good: f64, bad: Option<f64>| match bad {
+        None => good,
+        Some(mut bad) => {
+            let mut good = good;
+            for _ in 0..50 {
+                let mid = 0.5 * (good + bad);
+                if evaluates(mid) {
+                    good = mid;
+                } else {
+                    bad = mid;
+                }
+            }
+            good
+        }
+    };
+    let low = edge(grid[first], first.checked_sub(1).map(|i| grid[i]));
+    let high = edge(grid[last], grid.get(last + 1).copied());
+    let mut narrowed = chain.clone();
+    let measurand = narrowed.measurand.as_mut()?;
+    (measurand.low, measurand.high) = (low, high);
+    lower_stages(&narrowed).ok()?.1.ok()?;
+    Some(narrowed)
+}
+
+/// Why no conversion could be built: the range envelope runs on the
+/// stages (they evaluate up to the converter), and a stage beyond its
+/// limit (R601, with the value that fixes it) explains a flat or folded
+/// code; E502 is reported only where nothing does.
+fn unconvertible(
+    chain: &Chain,
+    plan: &Plan,
+    error: &EvalError,
+    margin: f64,
+    at_measurand: Option<(crate::diagnostics::Span, String)>,
+) -> Findings {
+    let mut findings = Findings::new();
+    if let Ok(envelopes) = ranges::envelopes(chain, plan, 21) {
+        findings.extend(ranges::findings(chain, plan, &envelopes, margin));
+    }
+    if !findings.has_errors() {
+        findings.push(eval_finding(chain, error, at_measurand));
+    }
+    findings
 }
 
 /// E504 where the converter's code does not move with the measurand at a
@@ -113,8 +217,17 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
         return (None, findings);
     };
     let at_measurand = Some((measurand.span, "over this range".to_string()));
-    let plan = match lower(chain) {
-        Ok(p) => p,
+    let margin = if options.margin > 0.0 {
+        options.margin
+    } else {
+        ranges::DEFAULT_MARGIN
+    };
+    let plan = match lower_stages(chain) {
+        Ok((plan, Ok(()))) => plan,
+        Ok((plan, Err(e))) => {
+            findings.extend(unconvertible(chain, &plan, &e, margin, at_measurand));
+            return (None, findings);
+        }
         Err(e) => {
             findings.push(eval_finding(chain, &e, at_measurand));
             return (None, findings);
@@ -140,11 +253,6 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
         }
     }
     if findings.is_empty() {
-        let margin = if options.margin > 0.0 {
-            options.margin
-        } else {
-            ranges::DEFAULT_MARGIN
-        };
         match ranges::envelopes(chain, &plan, 21) {
             Ok(envelopes) => findings.extend(ranges::findings(chain, &plan, &envelopes, margin)),
             Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),

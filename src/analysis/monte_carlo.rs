@@ -72,12 +72,26 @@ fn mix(mut z: u64) -> u64 {
     z ^ (z >> 31)
 }
 
-/// One condition a Monte Carlo runs at: the environment and one code in
-/// measurand units (the quantization step added to each trial).
+/// One condition a Monte Carlo runs at: the environment and quantization's
+/// effect half a code below and above there, in measurand units (each
+/// trial adds a uniform code offset, side by side through them).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Condition {
     pub env: Env,
-    pub lsb: f64,
+    pub quantization: (f64, f64),
+}
+
+impl Condition {
+    /// The reading's change with the code moved by `q` (−½ … ½): each
+    /// side of the budget's quantization scaled to it.
+    fn quantization_at(&self, q: f64) -> f64 {
+        let (low, high) = self.quantization;
+        if q < 0.0 {
+            -2.0 * q * low
+        } else {
+            2.0 * q * high
+        }
+    }
 }
 
 impl Condition {
@@ -92,7 +106,7 @@ impl Condition {
                     ambient: p.ambient,
                     cold_junction: p.ambient,
                 },
-                lsb: p.code_step(),
+                quantization: p.quantization(),
             })
             .collect()
     }
@@ -113,7 +127,10 @@ pub fn interval(
     seed: u64,
     point: u64,
 ) -> Result<Interval, EvalError> {
-    let condition = Condition { env: *env, lsb };
+    let condition = Condition {
+        env: *env,
+        quantization: (-lsb / 2.0, lsb / 2.0),
+    };
     Ok(run(plan, &[(point, condition)], noise, trials, seed)?[0])
 }
 
@@ -202,8 +219,7 @@ fn chunk_errors(
     out: &mut [f64],
     mut rng: Pcg64Mcg,
 ) -> Result<(), EvalError> {
-    let Condition { env, lsb } = condition;
-    let lsb = *lsb;
+    let env = &condition.env;
     let slots = plan.nominal.len();
     // Trials go through the evaluator LANES at a time; the draws
     // keep their order, trial by trial, so the lane count changes
@@ -244,7 +260,7 @@ fn chunk_errors(
             .zip(&readings)
             .zip(&extra)
         {
-            *slot = r - env.measurand + z * noise.sigma_averaged + q * lsb;
+            *slot = r - env.measurand + z * noise.sigma_averaged + condition.quantization_at(q);
         }
         left -= lanes;
     }

@@ -1,7 +1,8 @@
 //! Noise referred to the converter's input and to the measurand: voltage
 //! and current noise of each amplifier (white density and 1/f corner), the
-//! Johnson noise √(4kTR) of the resistance driving it, and the converter's
-//! own noise, over the chain's equivalent noise bandwidth.
+//! Johnson noise √(4kTR) of the resistances driving each amplifier and the
+//! converter (sources, dividers, bridges, filter resistors), and the
+//! converter's own noise, over the chain's equivalent noise bandwidth.
 
 use super::stages::{low_pass, number, signal_path, stage};
 use crate::eval::{Env, Node, Plan, Signal};
@@ -86,6 +87,42 @@ pub fn enbw(chain: &Chain, plan: &Plan) -> Option<f64> {
     bw
 }
 
+/// The resistance behind a node's voltage, Ω (zero for other signals).
+fn source_resistance(signals: &[Signal], node: usize) -> f64 {
+    match signals.get(node) {
+        Some(Signal::Voltage { rs, .. }) => *rs,
+        _ => 0.0,
+    }
+}
+
+/// The thermal noise of every resistance behind the voltage a stage takes
+/// in (`input`), at the ambient: by Thévenin's theorem the resistive network
+/// seen from that node (a divider's or bridge's arms in parallel, a
+/// filter's series resistor added) has the noise density √(4kT·Rₜₕ) of its
+/// equivalent resistance (Nyquist 1928), and that resistance shapes it
+/// as it shapes the signal, so it is integrated over the chain's noise
+/// bandwidth. An RC filter's own resistor thus gives √(kT/C). Stated at
+/// the converter's input through `gain` (the gain after the node).
+fn thermal_term(
+    stage: &str,
+    signals: &[Signal],
+    input: usize,
+    env: &Env,
+    enbw_hz: Option<f64>,
+    gain: f64,
+) -> Option<NoiseTerm> {
+    let rs = source_resistance(signals, input);
+    let bw = enbw_hz?;
+    if rs <= 0.0 {
+        return None;
+    }
+    let density = johnson_voltage_density(rs, env.ambient).ok()?;
+    Some(NoiseTerm {
+        id: format!("{stage}.source_resistance"),
+        rms_v: gain * density * bw.sqrt(),
+    })
+}
+
 /// The noise of each excitation (its `noise`, an rms value or a density
 /// over the noise bandwidth), referred to the measurand through the whole
 /// chain: the reading's change with the excitation's value, so a
@@ -148,7 +185,7 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
             continue;
         };
         match &plan.nodes[n] {
-            Node::Adc { .. } => {
+            Node::Adc { input, .. } => {
                 if let Some(ParamValue::Limit(t)) = s.param("noise") {
                     // In `LSB`: one code at the input is `lsb` (measurand
                     // per code) times `slope` (volts per measurand).
@@ -162,13 +199,11 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
                         rms_v: t.plus.max(t.minus) * per_unit,
                     });
                 }
+                terms.extend(thermal_term(&s.name, &signals, *input, env, enbw_hz, 1.0));
             }
             Node::Amplifier { gain, input, .. } => {
                 gain_after *= plan.nominal[*gain];
-                let rs = match signals.get(*input) {
-                    Some(Signal::Voltage { rs, .. }) => *rs,
-                    _ => 0.0,
-                };
+                let rs = source_resistance(&signals, *input);
                 if let Some(bw) = enbw_hz {
                     let e_n = number(s, "noise").unwrap_or(0.0);
                     let corner = number(s, "noise_corner").unwrap_or(0.0);
@@ -187,14 +222,9 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
                             rms_v: gain_after * i_n * rs * bw.sqrt(),
                         });
                     }
-                    if rs > 0.0 {
-                        if let Ok(density) = johnson_voltage_density(rs, env.ambient) {
-                            terms.push(NoiseTerm {
-                                id: format!("{}.source_resistance", s.name),
-                                rms_v: gain_after * density * bw.sqrt(),
-                            });
-                        }
-                    }
+                    terms.extend(thermal_term(
+                        &s.name, &signals, *input, env, enbw_hz, gain_after,
+                    ));
                 }
             }
             _ => {}

@@ -11,10 +11,10 @@ use serde::Serialize;
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
-use crate::analysis::eval_finding;
 use crate::analysis::report::{
     analyse_with_progress, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
+use crate::analysis::{eval_finding, evaluable_part};
 use crate::diagnostics::{render_human, Findings};
 use crate::eval::lower;
 use crate::model::{did_you_mean, Chain};
@@ -38,6 +38,9 @@ pub struct BudgetArgs {
     /// Points across the measurand range.
     #[arg(long, default_value_t = 21)]
     points: usize,
+    /// List the totals at every point, not only each ambient's worst.
+    #[arg(long)]
+    per_point: bool,
 }
 
 pub fn run(args: BudgetArgs) -> u8 {
@@ -53,27 +56,22 @@ pub fn run(args: BudgetArgs) -> u8 {
         Ok(c) => c,
         Err(status) => return status,
     };
-    // Requirement findings are what the budget explains, not a reason to
-    // withhold it.
-    let blocking: Findings = {
+    // What the analyses found (a requirement missed, a stage beyond its
+    // limit) is what the budget explains, not a reason to withhold it;
+    // errors before them leave no complete chain.
+    let errors: Findings = {
         let mut f = Findings::new();
-        for x in checked.findings.iter().filter(|f| {
-            f.severity() == crate::diagnostics::Severity::Error && !f.code.as_str().starts_with('R')
-        }) {
+        for x in checked
+            .findings
+            .iter()
+            .filter(|f| f.severity() == crate::diagnostics::Severity::Error)
+        {
             f.push(x.clone());
         }
         f
     };
-    if !blocking.is_empty() {
-        eprint!(
-            "{}",
-            render_human(
-                &blocking.sorted(),
-                terminal::stderr_color(),
-                terminal::width()
-            )
-        );
-        return EXIT_FINDINGS;
+    if !errors.is_empty() && !checked.resolved {
+        return show(&errors);
     }
     let chains: Vec<&Chain> = match &args.chain {
         None => checked.chains.iter().collect(),
@@ -99,29 +97,25 @@ pub fn run(args: BudgetArgs) -> u8 {
         detail: true,
     };
     let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
-    let mut outputs = Vec::new();
+    let mut outputs: Vec<(Chain, Analysis)> = Vec::new();
     for chain in chains {
-        let plan = match lower(chain) {
-            Ok(p) => p,
-            Err(e) => return report_error(chain, &e),
-        };
-        // On a terminal, a line that counts the Monte Carlo points; never
-        // on a pipe, where it would land in someone's log.
-        let show = |done: usize, total: usize| {
-            if progress {
-                eprint!(
-                    "\rcatena: Monte Carlo for `{}`: {done} of {total} points done",
-                    chain.name
-                );
-            }
-        };
-        let result = analyse_with_progress(chain, &plan, &options, &show);
-        if progress {
-            eprint!("\r\x1b[2K");
-        }
-        match result {
-            Ok(a) => outputs.push((chain, a)),
-            Err(e) => return report_error(chain, &e),
+        let analysed = analyse_chain(chain, &options, progress);
+        match analysed {
+            Ok(a) => outputs.push((chain.clone(), a)),
+            // With the check's errors beside it, what can be evaluated is
+            // still worth showing: the part of the range that evaluates.
+            Err(e) => match evaluable_part(chain).filter(|_| !errors.is_empty()) {
+                Some(part) => match analyse_chain(&part, &options, progress) {
+                    Ok(a) => {
+                        if args.format == Format::Human {
+                            println!("{}", part_note(&part));
+                        }
+                        outputs.push((part, a));
+                    }
+                    Err(_) => return report_error(chain, &e, &errors),
+                },
+                None => return report_error(chain, &e, &errors),
+            },
         }
     }
     match args.format {
@@ -136,9 +130,21 @@ pub fn run(args: BudgetArgs) -> u8 {
         }
         Format::Human => {
             for (c, a) in &outputs {
-                print!("{}", super::budget_table::human(c, a));
+                print!("{}", super::budget_table::human(c, a, args.per_point));
             }
         }
+    }
+    if !errors.is_empty() {
+        if args.format == Format::Human {
+            println!(
+                "{} found by check (below): the budget above is what the chain does as written",
+                match errors.len() {
+                    1 => "1 error".to_string(),
+                    n => format!("{n} errors"),
+                }
+            );
+        }
+        return show(&errors);
     }
     let failed = outputs
         .iter()
@@ -150,12 +156,69 @@ pub fn run(args: BudgetArgs) -> u8 {
     }
 }
 
-fn report_error(chain: &Chain, e: &crate::eval::EvalError) -> u8 {
-    let mut f = Findings::new();
-    f.push(eval_finding(chain, e, None));
+/// Lowers and analyses one chain, with a progress line on a terminal.
+fn analyse_chain(
+    chain: &Chain,
+    options: &Options,
+    progress: bool,
+) -> Result<Analysis, crate::eval::EvalError> {
+    let plan = lower(chain)?;
+    // On a terminal, a line that counts the Monte Carlo points; never on a
+    // pipe, where it would land in someone's log.
+    let show = |done: usize, total: usize| {
+        if progress {
+            eprint!(
+                "\rcatena: Monte Carlo for `{}`: {done} of {total} points done",
+                chain.name
+            );
+        }
+    };
+    let result = analyse_with_progress(chain, &plan, options, &show);
+    if progress {
+        eprint!("\r\x1b[2K");
+    }
+    result
+}
+
+/// The line that says a budget covers only part of the range.
+fn part_note(part: &Chain) -> String {
+    let Some(m) = &part.measurand else {
+        return String::new();
+    };
+    let show = |x: f64| trimmed(from_si(x, &m.unit), 6);
+    format!(
+        "chain {}: budget over {} .. {} {} only, where every stage evaluates (the findings below say why not beyond)\n",
+        part.name,
+        show(m.low),
+        show(m.high),
+        m.unit
+    )
+}
+
+/// Why the budget could not be made: what the check found, which
+/// explains it, or else the evaluation's own error.
+fn report_error(chain: &Chain, e: &crate::eval::EvalError, found: &Findings) -> u8 {
+    if found.is_empty() {
+        let mut f = Findings::new();
+        f.push(eval_finding(chain, e, None));
+        return show(&f);
+    }
+    let status = show(found);
+    eprintln!(
+        "catena: no budget for `{}` until these are fixed; `catena eval --at` shows its stage values",
+        chain.name
+    );
+    status
+}
+
+fn show(findings: &Findings) -> u8 {
     eprint!(
         "{}",
-        render_human(&f.sorted(), terminal::stderr_color(), terminal::width())
+        render_human(
+            &findings.clone().sorted(),
+            terminal::stderr_color(),
+            terminal::width()
+        )
     );
     EXIT_FINDINGS
 }

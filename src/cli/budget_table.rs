@@ -28,7 +28,9 @@ fn lines(t: &Table) -> String {
         .join("\n")
 }
 
-pub fn human(chain: &Chain, a: &Analysis) -> String {
+/// The report for people; `per_point` lists the totals at every point
+/// instead of the worst point at each ambient.
+pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
     let (unit, f) = chain.difference_unit();
     let m_unit = chain
         .measurand
@@ -40,32 +42,27 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
         Some(l) => format!("chain {} \"{l}\": error budget in {unit}\n\n", chain.name),
         None => format!("chain {}: error budget in {unit}\n\n", chain.name),
     };
-    let mut totals = table();
-    let mc = a.monte_carlo.is_some();
-    let mut header = vec![
-        "measurand".to_string(),
-        "ambient".into(),
-        "worst case".into(),
-        format!("GUM (k = {})", trimmed(a.budget.k, 3)),
-    ];
-    if mc {
-        header.push("Monte Carlo 95 %".into());
+    if per_point {
+        out.push_str(&lines(&per_point_table(a, &m_unit, &v)));
+    } else {
+        out.push_str(&lines(&summary_table(a, &m_unit, &v)));
+        let ambients = a
+            .budget
+            .points
+            .windows(2)
+            .filter(|w| w[0].ambient != w[1].ambient)
+            .count()
+            + 1;
+        out.push_str(&format!(
+            "\n\nthe largest of {} points across the measurand at each ambient; --per-point lists them all",
+            a.budget.points.len() / ambients
+        ));
     }
-    totals.set_header(header);
-    for (i, p) in a.budget.points.iter().enumerate() {
-        let mut row = vec![
-            format!("{} {m_unit}", trimmed(from_si(p.measurand, &m_unit), 6)),
-            format!("{} degC", trimmed(from_si(p.ambient, "degC"), 4)),
-            format!("± {}", v(p.worst_case)),
-            format!("± {}", v(p.gum_expanded)),
-        ];
-        if let Some(m) = &a.monte_carlo {
-            row.push(format!("{} .. {}", v(m[i].low), v(m[i].high)));
-        }
-        totals.add_row(row);
-    }
-    out.push_str(&lines(&totals));
     out.push_str("\n\n");
+    if !a.verdicts.is_empty() {
+        out.push_str(&lines(&verdict_table(a, &unit, &v)));
+        out.push_str("\n\n");
+    }
     if let Some(m) = &a.monte_carlo {
         let numerical = m.iter().map(|i| i.numerical).fold(0.0, f64::max);
         out.push_str(&format!(
@@ -256,40 +253,118 @@ pub fn human(chain: &Chain, a: &Analysis) -> String {
              codes and licensed practice.\n",
         );
     }
-    if !a.verdicts.is_empty() {
-        out.push('\n');
-        let mut verdicts = table();
-        verdicts.set_header(["requirement", "required", "achieved", "method", "verdict"]);
-        for r in &a.verdicts {
-            let (req, got) = match r.name {
-                "accuracy" => (
-                    format!("± {} {unit}", v(r.limit)),
-                    format!("± {} {unit}", v(r.achieved)),
-                ),
-                "resolution" => (
-                    format!("{} {unit}", v(r.limit)),
-                    format!("{} {unit}", v(r.achieved)),
-                ),
-                "response" => (
-                    format!("{} s", significant(r.limit, 3)),
-                    format!("{} s", significant(r.achieved, 3)),
-                ),
-                _ => (
-                    format!("{} dB", significant(20.0 * r.limit.log10(), 3)),
-                    format!("{} dB", significant(20.0 * r.achieved.log10(), 3)),
-                ),
-            };
-            verdicts.add_row([
-                r.name.to_string(),
-                req,
-                got,
-                r.method.replace('_', " "),
-                if r.pass { "pass".into() } else { "FAIL".into() },
-            ]);
-        }
-        out.push_str(&lines(&verdicts));
-        out.push('\n');
-    }
     out.push('\n');
     out
+}
+
+/// The totals at every point of the budget.
+fn per_point_table(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> Table {
+    let mut totals = table();
+    let mut header = vec![
+        "measurand".to_string(),
+        "ambient".into(),
+        "worst case".into(),
+        format!("GUM (k = {})", trimmed(a.budget.k, 3)),
+    ];
+    if a.monte_carlo.is_some() {
+        header.push("Monte Carlo 95 %".into());
+    }
+    totals.set_header(header);
+    for (i, p) in a.budget.points.iter().enumerate() {
+        let mut row = vec![
+            format!("{} {m_unit}", trimmed(from_si(p.measurand, m_unit), 6)),
+            format!("{} degC", trimmed(from_si(p.ambient, "degC"), 4)),
+            format!("± {}", v(p.worst_case)),
+            format!("± {}", v(p.gum_expanded)),
+        ];
+        if let Some(m) = &a.monte_carlo {
+            row.push(format!("{} .. {}", v(m[i].low), v(m[i].high)));
+        }
+        totals.add_row(row);
+    }
+    totals
+}
+
+/// Per ambient, each method's worst point over the measurand range and
+/// where it lies.
+fn summary_table(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> Table {
+    let mut t = table();
+    let mut header = vec![
+        "ambient".to_string(),
+        "worst case, largest".into(),
+        format!("GUM (k = {}), largest", trimmed(a.budget.k, 3)),
+    ];
+    if a.monte_carlo.is_some() {
+        header.push("Monte Carlo 95 %, widest".into());
+    }
+    t.set_header(header);
+    let at = |i: usize| {
+        let m = a.budget.points[i].measurand;
+        format!("at {} {m_unit}", trimmed(from_si(m, m_unit), 6))
+    };
+    let mut ambients: Vec<f64> = a.budget.points.iter().map(|p| p.ambient).collect();
+    ambients.dedup();
+    for ambient in ambients {
+        let here: Vec<usize> = (0..a.budget.points.len())
+            .filter(|&i| a.budget.points[i].ambient == ambient)
+            .collect();
+        let largest = |key: &dyn Fn(usize) -> f64| {
+            here.iter()
+                .copied()
+                .max_by(|&x, &y| key(x).total_cmp(&key(y)).then(y.cmp(&x)))
+                .unwrap_or(0)
+        };
+        let worst = largest(&|i| a.budget.points[i].worst_case);
+        let gum = largest(&|i| a.budget.points[i].gum_expanded);
+        let mut row = vec![
+            format!("{} degC", trimmed(from_si(ambient, "degC"), 4)),
+            format!("± {} {}", v(a.budget.points[worst].worst_case), at(worst)),
+            format!("± {} {}", v(a.budget.points[gum].gum_expanded), at(gum)),
+        ];
+        if let Some(m) = &a.monte_carlo {
+            let widest = largest(&|i| m[i].low.abs().max(m[i].high.abs()));
+            row.push(format!(
+                "{} .. {} {}",
+                v(m[widest].low),
+                v(m[widest].high),
+                at(widest)
+            ));
+        }
+        t.add_row(row);
+    }
+    t
+}
+
+/// Each requirement against what the chain achieves.
+fn verdict_table(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> Table {
+    let mut verdicts = table();
+    verdicts.set_header(["requirement", "required", "achieved", "method", "verdict"]);
+    for r in &a.verdicts {
+        let (req, got) = match r.name {
+            "accuracy" => (
+                format!("± {} {unit}", v(r.limit)),
+                format!("± {} {unit}", v(r.achieved)),
+            ),
+            "resolution" => (
+                format!("{} {unit}", v(r.limit)),
+                format!("{} {unit}", v(r.achieved)),
+            ),
+            "response" => (
+                format!("{} s", significant(r.limit, 3)),
+                format!("{} s", significant(r.achieved, 3)),
+            ),
+            _ => (
+                format!("{} dB", significant(20.0 * r.limit.log10(), 3)),
+                format!("{} dB", significant(20.0 * r.achieved.log10(), 3)),
+            ),
+        };
+        verdicts.add_row([
+            r.name.to_string(),
+            req,
+            got,
+            r.method.replace('_', " "),
+            if r.pass { "pass".into() } else { "FAIL".into() },
+        ]);
+    }
+    verdicts
 }

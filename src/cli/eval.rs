@@ -7,9 +7,9 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::eval_finding;
-use crate::diagnostics::{render_human, Findings};
-use crate::eval::{lower, Env, Node, Plan, Signal};
+use crate::analysis::{eval_finding, evaluable_part};
+use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
+use crate::eval::{lower, lower_stages, Env, Node, Plan, Signal};
 use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
@@ -37,9 +37,14 @@ pub fn run(args: EvalArgs) -> u8 {
         Ok(c) => c,
         Err(status) => return status,
     };
-    if checked.findings.has_errors() {
+    // Errors the analyses found (a stage beyond its limit, a sensor out of
+    // its range) are when the stage values matter most: evaluate anyway,
+    // mark them and keep the exit status. Errors before them leave no
+    // complete chain to evaluate.
+    if checked.findings.has_errors() && !checked.resolved {
         return report(checked.findings);
     }
+    let errors = errors_of(&checked.findings);
     let chain = match pick_chain(&checked.chains, args.chain.as_deref()) {
         Ok(c) => c,
         Err(e) => {
@@ -68,27 +73,44 @@ pub fn run(args: EvalArgs) -> u8 {
             }
         },
     };
-    let plan = match lower(chain) {
+    let (plan, fitted) = match lower_stages(chain) {
         Ok(p) => p,
-        Err(e) => return report_one(chain, &e, None),
+        Err(e) => return report_one(chain, &e, None, errors),
+    };
+    // No conversion over the whole range (a sensor outside its valid
+    // range): the part of the range that evaluates still has one.
+    let (plan, fitted) = match (&fitted, evaluable_part(chain)) {
+        (Err(_), Some(part)) if part_covers(&part, at) => match lower(&part) {
+            Ok(p) => (p, Ok(())),
+            Err(_) => (plan, fitted),
+        },
+        _ => (plan, fitted),
     };
     let env = Env {
         measurand: at,
         ambient,
         cold_junction: ambient,
     };
-    let outcome = match plan.evaluate(&plan.nominal, &env) {
+    // Without a conversion the stages still evaluate up to the code.
+    let outcome = match fitted {
+        Ok(()) => plan.evaluate(&plan.nominal, &env),
+        Err(_) => plan.evaluate_codes(&plan.nominal, &env),
+    };
+    let outcome = match outcome {
         Ok(o) => o,
         Err(e) => {
             let shown = format!("at {} {}", trimmed(at_shown, 9), measurand.unit);
-            return report_one(chain, &e, Some((measurand.span, shown)));
+            return report_one(chain, &e, Some((measurand.span, shown)), errors);
         }
     };
+    let mut findings = errors;
+    findings.extend(outside_range(chain, &plan, &outcome.signals, &env));
     let view = View {
         chain,
         plan: &plan,
         signals: &outcome.signals,
         shown: (at_shown, ambient_shown),
+        findings: &findings,
     };
     match args.format {
         Format::Json => println!(
@@ -97,7 +119,111 @@ pub fn run(args: EvalArgs) -> u8 {
         ),
         Format::Human => print!("{}", view.table()),
     }
-    EXIT_OK
+    if findings.is_empty() {
+        EXIT_OK
+    } else if findings.has_errors() {
+        report(findings)
+    } else {
+        report(findings);
+        EXIT_OK
+    }
+}
+
+/// A point outside the measurand range: R625 where the firmware still
+/// reads it (the chain keeps moving there), R626 where the code has
+/// stopped moving or sits at the converter's rail, so the reading is
+/// clamped and not the measurand.
+fn outside_range(chain: &Chain, plan: &Plan, signals: &[Signal], env: &Env) -> Findings {
+    let mut out = Findings::new();
+    let (Some(m), Signal::Reading(reading)) = (&chain.measurand, signals[plan.reading]) else {
+        return out;
+    };
+    let (lo, hi) = plan.range;
+    if (lo..=hi).contains(&env.measurand) {
+        return out;
+    }
+    let show = |x: f64| format!("{} {}", trimmed(from_si(x, &m.unit), 6), m.unit);
+    let range = format!("{} .. {}", trimmed(from_si(lo, &m.unit), 6), show(hi));
+    let code = match signals[plan.adc] {
+        Signal::Code { code, .. } => code,
+        _ => return out,
+    };
+    let finding = match stopped(plan, env, code) {
+        Some(why) => Finding::new(
+            Code::R626,
+            &chain.file,
+            format!(
+                "at {} the firmware reads {}: {why}",
+                show(env.measurand),
+                show(reading)
+            ),
+        )
+        .label(m.span, format!("the range, {range}"))
+        .help(format!(
+            "every value beyond reads {} too: treat code {code} as out of range in the firmware, or widen the range and rescale the chain so the code still moves there",
+            show(reading)
+        )),
+        None => Finding::new(
+            Code::R625,
+            &chain.file,
+            format!(
+                "{} is outside the measurand range {range}",
+                show(env.measurand)
+            ),
+        )
+        .label(m.span, "the range".to_string())
+        .help(format!(
+            "the firmware still reads it ({}), but the checks and the budget cover {range} only; widen the range to have them cover it",
+            show(reading)
+        )),
+    };
+    out.push(finding);
+    out
+}
+
+/// Why the firmware can no longer tell values apart at `env`: the code at
+/// the converter's rail, or the exact code standing still (a stage
+/// saturated before the converter). None where it still moves.
+fn stopped(plan: &Plan, env: &Env, code: i64) -> Option<String> {
+    if let Node::Adc { bits, polarity, .. } = &plan.nodes[plan.adc] {
+        if let Ok((low, high)) = crate::physics::adc::code_range(*bits, *polarity) {
+            if code <= low || code >= high {
+                return Some(format!("the code is at the converter's rail ({code})"));
+            }
+        }
+    }
+    let h = 1e-4 * (plan.range.1 - plan.range.0);
+    let exact = |m: f64| {
+        plan.exact_code(
+            &plan.nominal,
+            &Env {
+                measurand: m,
+                ..*env
+            },
+            plan.adc,
+        )
+    };
+    match (exact(env.measurand - h), exact(env.measurand + h)) {
+        (Ok(a), Ok(b)) if a != b => None,
+        _ => Some(format!(
+            "the code ({code}) no longer changes with the measurand (a stage before the converter has saturated)"
+        )),
+    }
+}
+
+fn part_covers(part: &Chain, at: f64) -> bool {
+    part.measurand
+        .as_ref()
+        .is_some_and(|m| (m.low..=m.high).contains(&at))
+}
+
+/// The error findings of a check, to show beside the values.
+fn errors_of(findings: &Findings) -> Findings {
+    let mut errors = Findings::new();
+    for f in findings.iter().filter(|f| f.severity() == Severity::Error) {
+        errors.push(f.clone());
+    }
+    errors
 }
 
 fn report(findings: Findings) -> u8 {
@@ -112,14 +238,15 @@ fn report(findings: Findings) -> u8 {
     EXIT_FINDINGS
 }
 
+/// The evaluation's own error, after what the check found.
 fn report_one(
     chain: &Chain,
     e: &crate::eval::EvalError,
     at: Option<(crate::diagnostics::Span, String)>,
+    mut found: Findings,
 ) -> u8 {
-    let mut f = Findings::new();
-    f.push(eval_finding(chain, e, at));
-    report(f)
+    found.push(eval_finding(chain, e, at));
+    report(found)
 }
 
 fn pick_chain<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<&'a Chain, String> {
@@ -201,6 +328,9 @@ struct View<'a> {
     /// The measurand and the ambient as given, in the measurand's unit and
     /// degC.
     shown: (f64, f64),
+    /// Errors the check found and the point's own findings, shown beside
+    /// the values.
+    findings: &'a Findings,
 }
 
 #[derive(Serialize)]
@@ -225,7 +355,21 @@ struct EvalJson {
     ambient: Quantity,
     nodes: std::collections::BTreeMap<String, NodeJson>,
     code: i64,
-    reading: Quantity,
+    /// None where no conversion could be built.
+    reading: Option<Quantity>,
+    /// Errors the check found (the values are what the chain does anyway)
+    /// and what the point itself raises (outside the range).
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    findings: Vec<FindingJson>,
+}
+
+/// A finding in the check's JSON shape, with the stage it points at.
+#[derive(Serialize)]
+struct FindingJson {
+    #[serde(flatten)]
+    finding: JsonFinding,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    stage: Option<String>,
 }
 
 impl View<'_> {
@@ -251,11 +395,34 @@ impl View<'_> {
         }
     }
 
-    fn reading_si(&self) -> f64 {
+    fn reading(&self) -> Option<f64> {
         match self.signals[self.plan.reading] {
-            Signal::Reading(x) => x,
-            _ => f64::NAN,
+            Signal::Reading(x) => Some(x),
+            _ => None,
         }
+    }
+
+    /// The stage a finding points at: the one whose text holds its
+    /// primary label.
+    fn stage_of(&self, finding: &Finding) -> Option<&str> {
+        let at = finding.primary_span()?;
+        let same_file = std::sync::Arc::ptr_eq(&finding.file, &self.chain.file);
+        self.chain
+            .stages
+            .iter()
+            .find(|s| same_file && s.span.start <= at.start && at.end <= s.span.end)
+            .map(|s| s.name.as_str())
+    }
+
+    /// The codes of the findings that point at `stage`.
+    fn marks(&self, stage: &str) -> String {
+        let codes: Vec<&str> = self
+            .findings
+            .iter()
+            .filter(|f| self.stage_of(f) == Some(stage))
+            .map(|f| f.code.as_str())
+            .collect();
+        codes.join(", ")
     }
 
     fn code(&self) -> i64 {
@@ -273,6 +440,8 @@ impl View<'_> {
             .iter()
             .zip(self.signals)
             .zip(&self.plan.nodes)
+            // A conversion that could not be built has no value.
+            .filter(|((_, s), _)| !matches!(s, Signal::None))
             .map(|((name, s), node)| {
                 let (value, unit) = s.value_unit();
                 let unit = match (s, node) {
@@ -311,53 +480,62 @@ impl View<'_> {
             },
             nodes,
             code: self.code(),
-            reading: Quantity {
-                value: from_si(self.reading_si(), &unit),
+            reading: self.reading().map(|x| Quantity {
+                value: from_si(x, &unit),
                 unit,
-            },
+            }),
+            findings: self
+                .findings
+                .iter()
+                .map(|f| FindingJson {
+                    finding: JsonFinding::from(f),
+                    stage: self.stage_of(f).map(str::to_string),
+                })
+                .collect(),
         }
     }
 
     fn table(&self) -> String {
         let unit = self.measurand_unit();
+        let marked = !self.findings.is_empty();
+        let column = self.plan.names.iter().any(|n| !self.marks(n).is_empty());
         let mut table = comfy_table::Table::new();
         table.load_style(comfy_table::presets::NOTHING);
-        table.set_header(["stage", "kind", "output", "common mode"]);
+        let mut header = vec!["stage", "kind", "output", "common mode"];
+        if column {
+            header.push("finding");
+        }
+        table.set_header(header);
         for (i, name) in self.plan.names.iter().enumerate() {
             let stage = self.chain.stages.iter().find(|s| &s.name == name);
             let kind = stage
                 .map(|s| s.model.unwrap_or(s.kind.keyword()))
                 .unwrap_or("");
-            let (output, cm) = match self.signals[i] {
-                Signal::Voltage { v, cm, .. } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
-                Signal::Code { code, .. } => (format!("{code} (code)"), String::new()),
-                Signal::Reading(x) => {
-                    let is_cj = matches!(&self.plan.nodes[i], Node::Convert { conversion, .. } if conversion.variable == crate::eval::Senses::ColdJunction);
-                    if is_cj {
-                        (
-                            format!("{} degC", significant(from_si(x, "degC"), 6)),
-                            String::new(),
-                        )
-                    } else {
-                        (
-                            format!("{} {unit}", significant(from_si(x, &unit), 7)),
-                            String::new(),
-                        )
-                    }
-                }
-                s => {
-                    let (v, u) = s.value_unit();
-                    (with_prefix(v, u, 6), String::new())
-                }
-            };
-            table.add_row([name.as_str(), kind, &output, &cm]);
+            let (output, cm) = self.output(i, &unit);
+            let mut row = vec![name.clone(), kind.to_string(), output, cm];
+            if column {
+                row.push(self.marks(name));
+            }
+            table.add_row(row);
         }
         let title = match &self.chain.label {
             Some(l) => format!("chain {} \"{l}\"", self.chain.name),
             None => format!("chain {}", self.chain.name),
         };
+        let reading = match self.reading() {
+            Some(x) => format!("{} {unit}", significant(from_si(x, &unit), 7)),
+            None => "none: no conversion could be built".to_string(),
+        };
+        let note = if marked {
+            format!(
+                "\n{} (below): the values above are what the chain does as written\n",
+                count(self.findings)
+            )
+        } else {
+            String::new()
+        };
         format!(
-            "{title}\nat {} {unit}, ambient {} degC\n\n{}\n\ncode     {}\nreading  {} {unit}\n",
+            "{title}\nat {} {unit}, ambient {} degC\n\n{}\n\ncode     {}\nreading  {reading}\n{note}",
             trimmed(self.shown.0, 9),
             trimmed(self.shown.1, 9),
             table
@@ -367,7 +545,51 @@ impl View<'_> {
                 .collect::<Vec<_>>()
                 .join("\n"),
             self.code(),
-            significant(from_si(self.reading_si(), &unit), 7)
         )
+    }
+
+    /// Node `i`'s output and common mode, as text.
+    fn output(&self, i: usize, unit: &str) -> (String, String) {
+        match self.signals[i] {
+            Signal::Voltage { v, cm, .. } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
+            Signal::Code { code, .. } => (format!("{code} (code)"), String::new()),
+            Signal::Reading(x) => {
+                let is_cj = matches!(&self.plan.nodes[i], Node::Convert { conversion, .. } if conversion.variable == crate::eval::Senses::ColdJunction);
+                if is_cj {
+                    (
+                        format!("{} degC", significant(from_si(x, "degC"), 6)),
+                        String::new(),
+                    )
+                } else {
+                    (
+                        format!("{} {unit}", significant(from_si(x, unit), 7)),
+                        String::new(),
+                    )
+                }
+            }
+            Signal::None => ("—".to_string(), String::new()),
+            s => {
+                let (v, u) = s.value_unit();
+                (with_prefix(v, u, 6), String::new())
+            }
+        }
+    }
+}
+
+/// "1 error", "2 errors, 1 warning".
+fn count(findings: &Findings) -> String {
+    let errors = findings
+        .iter()
+        .filter(|f| f.severity() == Severity::Error)
+        .count();
+    let warnings = findings.len() - errors;
+    let plural = |n: usize, what: &str| match n {
+        1 => format!("1 {what}"),
+        n => format!("{n} {what}s"),
+    };
+    match (errors, warnings) {
+        (e, 0) => plural(e, "error"),
+        (0, w) => plural(w, "warning"),
+        (e, w) => format!("{}, {}", plural(e, "error"), plural(w, "warning")),
     }
 }

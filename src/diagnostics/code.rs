@@ -117,4 +117,6 @@ codes! {
     R613 => Error, "response requirement not met";
     R614 => Error, "rejection requirement not met";
     R615 => Warning, "Monte Carlo verdict inside its numerical width";
+    R625 => Warning, "point outside the measurand range";
+    R626 => Error, "reading clamped outside the range";
 }

@@ -380,7 +380,7 @@ impl Conversion {
                         .map(|c| c - code)
                 };
                 let Some(table) = &self.inverse else {
-                    return solve(f, self.domain);
+                    return solve_beyond(f, self.domain);
                 };
                 let direct = match table.stands_for {
                     TableUse::Complete => table.x_at(code),
@@ -402,7 +402,7 @@ impl Conversion {
                         return Ok(x);
                     }
                 }
-                solve(f, self.domain)
+                solve_beyond(f, self.domain)
             }
             Method::Linear {
                 code_low,
@@ -752,6 +752,101 @@ fn least_squares(us: &[f64], xs: &[f64], terms: usize) -> Option<Vec<f64>> {
     Some((0..terms).map(|k| a[k][terms] / a[k][k]).collect())
 }
 
+/// [`solve`], and where the target lies beyond the domain, the chain
+/// followed outward from the nearer end for as long as it evaluates and
+/// keeps moving towards the target: an exact inverse finds an over-range
+/// reading wherever the chain still tells values apart, and saturates only
+/// where it no longer does (a stage at its rail, a sensor past its
+/// validity), at the edge of that region.
+pub fn solve_beyond(
+    f: impl Fn(f64) -> Result<f64, EvalError>,
+    domain: (f64, f64),
+) -> Result<f64, EvalError> {
+    let (lo, hi) = domain;
+    let (f_lo, f_hi) = (f(lo)?, f(hi)?);
+    // The code at an end may be a plateau (a stage at its rail): the
+    // reading is where it begins, not the far end of the search.
+    if f_hi == 0.0 && f_lo != 0.0 {
+        return Ok(flat_from(&f, lo, hi, 0.0));
+    }
+    if f_lo == 0.0 && f_hi != 0.0 {
+        return Ok(flat_from(&f, hi, lo, 0.0));
+    }
+    if f_lo == 0.0 || f_lo.signum() != f_hi.signum() {
+        return solve(f, domain);
+    }
+    // f = code(x) − target has one sign over the domain: the target lies
+    // beyond the end where |f| is smaller.
+    let (mut end, mut f_end, direction) = if f_lo.abs() < f_hi.abs() {
+        (lo, f_lo, -1.0)
+    } else {
+        (hi, f_hi, 1.0)
+    };
+    let mut step = (hi - lo).abs().max(1e-9);
+    // The last point known to move: the domain's other end to start with,
+    // as a plateau may begin inside the domain.
+    let mut before = if direction > 0.0 { lo } else { hi };
+    for _ in 0..64 {
+        let next = end + direction * step;
+        match f(next) {
+            Ok(v) if v == 0.0 || (v.is_finite() && v.signum() != f_end.signum()) => {
+                return solve(&f, (end.min(next), end.max(next)));
+            }
+            Ok(v) if v.is_finite() && v.abs() < f_end.abs() => {
+                (before, end, f_end) = (end, next, v);
+                step *= 2.0;
+            }
+            // Flat, turning back or not evaluating: the reading saturates
+            // where the chain stops moving towards the target.
+            Ok(v) if v == f_end => return Ok(flat_from(&f, before, end, f_end)),
+            _ => return Ok(last_onward(&f, end, f_end, next)),
+        }
+    }
+    Ok(end)
+}
+
+/// Where `f` turned flat at `f_end` between `before` and `end` (bisected):
+/// the first point from `before` with the value it keeps (`end` itself
+/// when `f` is strictly monotone).
+fn flat_from(f: &impl Fn(f64) -> Result<f64, EvalError>, before: f64, end: f64, f_end: f64) -> f64 {
+    let (mut moving, mut flat) = (before, end);
+    for _ in 0..60 {
+        let mid = 0.5 * (moving + flat);
+        if mid == moving || mid == flat {
+            break;
+        }
+        match f(mid) {
+            Ok(v) if v == f_end => flat = mid,
+            _ => moving = mid,
+        }
+    }
+    flat
+}
+
+/// The furthest point from `end` towards `beyond` (bisected) at which `f`
+/// still evaluates and has come closer to zero than `f_end`; `end` if none.
+fn last_onward(
+    f: &impl Fn(f64) -> Result<f64, EvalError>,
+    end: f64,
+    f_end: f64,
+    beyond: f64,
+) -> f64 {
+    let (mut good, mut bad) = (end, beyond);
+    for _ in 0..60 {
+        let mid = 0.5 * (good + bad);
+        if mid == good || mid == bad {
+            break;
+        }
+        match f(mid) {
+            Ok(v) if v.is_finite() && v.abs() < f_end.abs() && v.signum() == f_end.signum() => {
+                good = mid
+            }
+            _ => bad = mid,
+        }
+    }
+    good
+}
+
 /// Brent's method (Brent, "Algorithms for Minimization without
 /// Derivatives", 1973, ch. 4) for a monotonic `f` on `domain`; a target
 /// beyond either end saturates there, as a clamped reading would.
@@ -832,7 +927,41 @@ pub fn solve(
 
 #[cfg(test)]
 mod tests {
-    use super::{interpolate, least_squares, segment, solve, Buckets};
+    use super::{interpolate, least_squares, segment, solve, solve_beyond, Buckets};
+    use crate::eval::EvalError;
+
+    /// Beyond the domain the search follows a monotone function outward
+    /// (x³ = 1000 from a domain of 0 .. 2: x = 10), saturates where it
+    /// turns flat (min(x, 5): 5 for any target above) and stops short of
+    /// where it no longer evaluates (x < 7).
+    #[test]
+    fn solve_beyond_follows_the_chain_past_the_domain() {
+        let x = solve_beyond(|x: f64| Ok(x * x * x - 1000.0), (0.0, 2.0)).unwrap();
+        assert!((x - 10.0).abs() < 1e-9, "{x}");
+        let x = solve_beyond(|x: f64| Ok(x.min(5.0) - 8.0), (0.0, 2.0)).unwrap();
+        assert!((x - 5.0).abs() < 1e-9, "{x}");
+        let fails = |x: f64| {
+            if x < 7.0 {
+                Ok(x - 20.0)
+            } else {
+                Err(EvalError::NotInvertible {
+                    stage: "s".into(),
+                    what: "beyond".into(),
+                })
+            }
+        };
+        let x = solve_beyond(fails, (0.0, 2.0)).unwrap();
+        assert!((x - 7.0).abs() < 1e-9, "{x}");
+        let x = solve_beyond(|x: f64| Ok(x - 1.0), (0.0, 2.0)).unwrap();
+        assert!((x - 1.0).abs() < 1e-12);
+        // A plateau at the target reaching the domain's end: its start.
+        let x = solve_beyond(|x: f64| Ok(x.min(1.5) - 1.5), (0.0, 2.0)).unwrap();
+        assert!((x - 1.5).abs() < 1e-9, "{x}");
+        let x = solve_beyond(|x: f64| Ok(x - 2.0), (0.0, 2.0)).unwrap();
+        assert_eq!(x, 2.0);
+        let x = solve_beyond(|x: f64| Ok(2.0 * x + 30.0), (0.0, 2.0)).unwrap();
+        assert!((x + 15.0).abs() < 1e-9, "{x}");
+    }
 
     #[test]
     fn buckets_agree_with_binary_search() {

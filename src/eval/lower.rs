@@ -114,6 +114,15 @@ fn not_invertible(stage: &str, what: impl Into<String>) -> EvalError {
 
 /// Lowers a chain that checked without errors.
 pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
+    let (plan, fitted) = lower_stages(chain)?;
+    fitted.map(|()| plan)
+}
+
+/// [`lower`], keeping the plan when a conversion cannot be fitted (a code
+/// flat or folded over the range), with the reason beside it: the stages
+/// still evaluate up to the converter, which is where the cause shows (a
+/// stage beyond its limit). Its conversions are not to be used then.
+pub fn lower_stages(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), EvalError> {
     let chain_name = chain.name.clone();
     let Some(measurand) = &chain.measurand else {
         return Err(not_invertible(&chain_name, "the chain has no measurand"));
@@ -580,8 +589,8 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
         series_below,
         sense_error,
     };
-    fit_conversions(&mut plan, chain, &order)?;
-    Ok(plan)
+    let fitted = fit_conversions(&mut plan, chain, &order);
+    Ok((plan, fitted))
 }
 
 /// For each current source driving two or more elements, those elements

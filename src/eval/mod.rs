@@ -13,7 +13,7 @@ mod plan;
 mod run;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
-pub use lower::lower;
+pub use lower::{lower, lower_stages};
 pub use plan::{
     BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal,
     Slot, SlotId, SourceKind,

@@ -87,6 +87,15 @@ impl Plan {
         })
     }
 
+    /// Every node up to the converters' codes, conversions left out: what
+    /// a plan whose conversion could not be fitted still shows.
+    pub fn evaluate_codes(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
+        let signals = self.signals(values, env, self.nodes.len(), Mode::CODES)?;
+        Ok(Outcome {
+            signals: signals[..self.nodes.len()].to_vec(),
+        })
+    }
+
     /// The chain's reading at `env`, SI.
     pub fn reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
@@ -728,6 +737,20 @@ impl Plan {
         env: &Env,
         calibrated: &Calibrated,
     ) -> Result<f64, EvalError> {
+        self.reading_codes_away(values, env, calibrated, 0.0)
+    }
+
+    /// The reading the firmware computes from the converter's exact code
+    /// moved by `codes`: the chain's own inverse at the point, so a step of
+    /// half a code either side is quantization's effect there, however
+    /// nonlinear the chain.
+    pub fn reading_codes_away(
+        &self,
+        values: &[f64],
+        env: &Env,
+        calibrated: &Calibrated,
+        codes: f64,
+    ) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         self.run(values, env, &mut signals, self.reading, Mode::UNQUANTIZED)?;
         let Signal::Code { exact, .. } = signals[self.adc] else {
@@ -740,7 +763,7 @@ impl Plan {
             Signal::Reading(t) => Some(t),
             _ => None,
         });
-        let x = conversion.invert(self, values, env, exact, cj)?;
+        let x = conversion.invert(self, values, env, exact + codes, cj)?;
         conversion.correct(self, x, calibrated)
     }
 

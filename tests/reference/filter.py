@@ -4,7 +4,7 @@ Independent implementation built on scipy.signal: Butterworth and Bessel
 prototypes from butter()/bessel() (analog=True, Bessel with norm='mag'),
 frequency response from freqs_zpk() (cross-checked against freqs() on the
 polynomial form), step response from step() (state-space, matrix
-exponential), noise bandwidth by scipy.integrate.quad of |H|^2, settling
+exponential), noise bandwidth by scipy.integrate.quad of |H|^2, settling and rise
 times by brentq on the exact state-space step response. The RC response is
 n identical first-order sections, built as a numpy product; its cutoff is
 the -3 dB frequency of the whole cascade, as in the Rust model.
@@ -155,6 +155,24 @@ def main():
                 ts = optimize.brentq(g, lo, hi, xtol=1e-15, rtol=4 * np.finfo(float).eps)
                 rows.append((resp, "%d" % n, frac, ts))
     write("filter_settling.csv", "response,order,fraction,t_times_fc", rows)
+
+    # Rise: first time y reaches a fraction of the step (t90 and others).
+    # Dense scan of step() on a 1e-3/fc grid, then brentq on the exact
+    # response inside the first interval that reaches the fraction.
+    rows = []
+    for resp in RESPONSES:
+        for n in ORDERS:
+            _, y = signal.step(zpk(resp, n), T=tt)
+            ye = exact_step(resp, n)
+            for frac in (0.5, 0.9, 0.99):
+                idx = np.nonzero(y >= frac)[0][0]
+                assert idx > 0
+                lo, hi = tt[idx - 1], tt[idx]
+                tr = optimize.brentq(
+                    lambda s: ye(s) - frac, lo, hi, xtol=1e-15, rtol=4 * np.finfo(float).eps
+                )
+                rows.append((resp, "%d" % n, frac, tr))
+    write("filter_rise.csv", "response,order,fraction,t_times_fc", rows)
 
 
 if __name__ == "__main__":
