@@ -9,7 +9,7 @@ use super::plan::{
     BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
     SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
 };
-use super::run::MAX_NODES;
+use super::run::{within, MAX_NODES};
 use crate::model::ports::Port;
 use crate::model::value::{Measure, ParamValue, Tolerance};
 use crate::model::{Chain, Stage};
@@ -567,8 +567,88 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
         series_below,
         sense_error,
     };
+    check_validity(&plan, chain.ambient)?;
     fit_conversions(&mut plan, chain, &order)?;
     Ok(plan)
+}
+
+/// Every sensor with a range of validity (a tolerance class's, or a
+/// stated one) against the true temperatures it will see: the measurand
+/// range, or the ambient range at a cold junction. A tolerance moves the
+/// reading, not the sensor, so this is asked of the true range once, not
+/// of each reading a tolerance shifts.
+fn check_validity(plan: &Plan, ambient: (f64, f64)) -> Result<(), EvalError> {
+    for (i, node) in plan.nodes.iter().enumerate() {
+        let Some((senses, ranges)) = validity(node) else {
+            continue;
+        };
+        let (low, high) = match senses {
+            Senses::Measurand => plan.range,
+            Senses::ColdJunction => ambient,
+        };
+        // The model's own range first: it is the root cause when both fail.
+        for (what, range_c) in ranges.into_iter().flatten() {
+            for t in [low, high] {
+                if within(t - ZERO_CELSIUS_K, range_c).is_none() {
+                    return Err(plan.out_of_range(i, &what, t, range_c));
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+/// What a sensor node senses and where it is valid, °C: its model's range,
+/// then its class's or stated range.
+type Validity = (Senses, [Option<(String, (f64, f64))>; 2]);
+
+fn validity(node: &Node) -> Option<Validity> {
+    let kelvin = |(lo, hi): (f64, f64)| (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
+    match node {
+        Node::Rtd {
+            curve,
+            senses,
+            valid,
+            ..
+        } => Some((
+            *senses,
+            [
+                Some(("the element's curve".to_string(), curve.range_c())),
+                valid.map(|v| ("its tolerance class".to_string(), kelvin(v))),
+            ],
+        )),
+        Node::Thermistor { senses, valid, .. } => Some((
+            *senses,
+            [
+                None,
+                valid.map(|v| ("its stated range".to_string(), kelvin(v))),
+            ],
+        )),
+        Node::Thermocouple { ty, senses, class } => Some((
+            *senses,
+            [
+                Some((format!("type {} thermocouple", ty.letter()), ty.range_c())),
+                class.map(|class| {
+                    (
+                        format!("class {class} of a type {} thermocouple", ty.letter()),
+                        crate::physics::thermocouple::class_range_c(*ty, class)
+                            .unwrap_or((f64::NAN, f64::NAN)),
+                    )
+                }),
+            ],
+        )),
+        Node::Excitation { .. }
+        | Node::IcVoltage { .. }
+        | Node::IcCurrent { .. }
+        | Node::StrainGauge { .. }
+        | Node::Transducer { .. }
+        | Node::Resistor { .. }
+        | Node::Bridge { .. }
+        | Node::Amplifier { .. }
+        | Node::Filter { .. }
+        | Node::Adc { .. }
+        | Node::Convert { .. } => None,
+    }
 }
 
 /// For each current source driving two or more elements, those elements

@@ -45,6 +45,17 @@ impl Mode {
     };
 }
 
+impl RtdCurve {
+    /// Where the curve is defined, °C.
+    pub fn range_c(self) -> (f64, f64) {
+        match self {
+            RtdCurve::Cvd { .. } => CVD_RANGE_C,
+            RtdCurve::Nickel => NICKEL_RANGE_C,
+            RtdCurve::Copper => COPPER_RANGE_C,
+        }
+    }
+}
+
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
 pub const MAX_NODES: usize = 32;
 /// Evaluations [`Plan::unquantized_readings`] runs side by side.
@@ -139,7 +150,10 @@ impl Plan {
 
     /// The temperature node `i` senses, as its own tolerance makes it
     /// read: the true one plus its class's (temperature-dependent) error
-    /// and any stated absolute error.
+    /// and any stated absolute error. Whether the true temperature is
+    /// inside the sensor's range of validity is the plan's question, asked
+    /// once of the whole range (`lower::check_validity`), not of each
+    /// shifted reading.
     fn sensed(&self, i: NodeId, senses: Senses, env: &Env, values: &[f64]) -> f64 {
         let t = match senses {
             Senses::Measurand => env.measurand,
@@ -167,7 +181,13 @@ impl Plan {
         }
     }
 
-    fn out_of_range(&self, node: NodeId, what: &str, t_k: f64, range_c: (f64, f64)) -> EvalError {
+    pub(super) fn out_of_range(
+        &self,
+        node: NodeId,
+        what: &str,
+        t_k: f64,
+        range_c: (f64, f64),
+    ) -> EvalError {
         EvalError::OutOfRange {
             stage: self.names[node].clone(),
             what: what.to_string(),
@@ -229,21 +249,12 @@ impl Plan {
                 dissipation,
                 input,
                 senses,
-                valid,
+                valid: _,
             } => {
                 let t = self.sensed(i, *senses, env, values);
-                let range = match curve {
-                    RtdCurve::Cvd { .. } => CVD_RANGE_C,
-                    RtdCurve::Nickel => NICKEL_RANGE_C,
-                    RtdCurve::Copper => COPPER_RANGE_C,
-                };
+                let range = curve.range_c();
                 let t_c = within(t - ZERO_CELSIUS_K, range)
                     .ok_or_else(|| self.out_of_range(i, "the element's curve", t, range))?;
-                if let Some((lo, hi)) = valid {
-                    let range = (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
-                    within(t_c, range)
-                        .ok_or_else(|| self.out_of_range(i, "its tolerance class", t, range))?;
-                }
                 let r_at = |t_c: f64| match curve {
                     RtdCurve::Cvd { a, b, c } => rtd::resistance(
                         values[*r0],
@@ -269,7 +280,11 @@ impl Plan {
                 let mismatch = mismatch.map(|m| values[m]).unwrap_or(0.0);
                 element(r + lead_factor * lead + mismatch, *input)
             }
-            Node::Thermocouple { ty, senses, class } => {
+            Node::Thermocouple {
+                ty,
+                senses,
+                class: _,
+            } => {
                 let range = ty.range_c();
                 let t = self.sensed(i, *senses, env, values) - ZERO_CELSIUS_K;
                 // Messages are built only on the way out: this runs in
@@ -277,14 +292,6 @@ impl Plan {
                 let kind = || format!("type {} thermocouple", ty.letter());
                 let t = within(t, range)
                     .ok_or_else(|| self.out_of_range(i, &kind(), t + ZERO_CELSIUS_K, range))?;
-                if let Some(class) = class {
-                    let class_range =
-                        thermocouple::class_range_c(*ty, *class).unwrap_or((f64::NAN, f64::NAN));
-                    within(t, class_range).ok_or_else(|| {
-                        let what = format!("class {class} of a type {} thermocouple", ty.letter());
-                        self.out_of_range(i, &what, t + ZERO_CELSIUS_K, class_range)
-                    })?;
-                }
                 let e = |t_c: f64| {
                     thermocouple::emf_mv(*ty, t_c).map_err(|e| {
                         self.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high))
@@ -307,14 +314,9 @@ impl Plan {
                 dissipation,
                 input,
                 senses,
-                valid,
+                valid: _,
             } => {
                 let t = self.sensed(i, *senses, env, values);
-                if let Some((lo, hi)) = valid {
-                    let range = (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
-                    within(t - ZERO_CELSIUS_K, range)
-                        .ok_or_else(|| self.out_of_range(i, "its stated range", t, range))?;
-                }
                 let r_at = |t: f64| match curve {
                     ThermistorCurve::Beta { beta } => thermistor::beta_resistance(
                         values[*r25],
@@ -608,7 +610,7 @@ fn junction_c(ty: thermocouple::ThermocoupleType, env: &Env) -> f64 {
 
 /// Range ends written in °C come back through kelvin a few ulps off;
 /// within a nanokelvin of an end counts as the end.
-fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
+pub(super) fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
     const SLACK: f64 = 1e-9;
     (lo - SLACK..=hi + SLACK)
         .contains(&t_c)
