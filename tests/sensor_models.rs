@@ -20,6 +20,67 @@ fn budget(spec: &str, args: &[&str]) -> serde_json::Value {
     serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("{e}: {}", run.stdout))
 }
 
+/// One source of a budget point, by id.
+fn source<'a>(point: &'a serde_json::Value, id: &str) -> &'a serde_json::Value {
+    point["sources"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|s| s["id"] == id)
+        .unwrap_or_else(|| panic!("no source {id} in {point}"))
+}
+
+fn f(v: &serde_json::Value) -> f64 {
+    v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
+}
+
+/// Slope of a Pt100 at `t` °C, Ω/K: 100 (A + 2 B t), IEC 60751 A and B.
+fn pt100_slope(t: f64) -> f64 {
+    100.0 * (3.9083e-3 + 2.0 * -5.775e-7 * t)
+}
+
+/// A 3-wire RTD sees the difference of two independent leads, each within
+/// ±a: a triangular distribution over ±2a (JCGM 100:2008 §4.3.9), standard
+/// uncertainty 2a/√6 = √2 · a/√3 (the root sum of squares of the two
+/// rectangular leads), not the 2a/√3 of one rectangular source of twice
+/// the tolerance.
+///
+/// Its 95 % coverage interval (JCGM 101:2008, propagation of
+/// distributions): for a symmetric triangle of half-width w,
+/// P(|X| > x) = (1 − x/w)², so the 95 % half-width is w (1 − √0.05)
+/// = 0.7764 w (derived here); one rectangle of half-width w gives 0.95 w,
+/// 22 % more. The lead error in kelvin is a / (dR/dT) with the IEC 60751
+/// slope at the point.
+#[test]
+fn three_wire_leads_are_two_independent_sources() {
+    let v = budget(
+        "three_wire_leads.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    let t = f(&p["measurand"]);
+    let a_k = 0.1 / pt100_slope(t);
+    let lead_u = |id: &str| f(&source(p, id)["standard_uncertainty"]);
+    let leads = lead_u("probe.lead_1").hypot(lead_u("probe.lead_2"));
+    let closed = 2.0 * a_k / 6f64.sqrt();
+    assert!(
+        (leads - closed).abs() < 1e-3 * closed,
+        "{leads} vs {closed}"
+    );
+    // Quantization of a 24-bit converter is the only other source.
+    assert!(
+        (f(&p["gum_standard"]) - closed).abs() < 1e-3 * closed,
+        "{p}"
+    );
+    let half = (f(&p["monte_carlo_95"][1]) - f(&p["monte_carlo_95"][0])) / 2.0;
+    let triangular = 2.0 * a_k * (1.0 - 0.05f64.sqrt());
+    assert!(
+        (half - triangular).abs() < 0.01 * triangular,
+        "{half} vs {triangular}"
+    );
+    assert!((f(&p["worst_case"]) - 2.0 * a_k).abs() < 1e-3 * a_k, "{p}");
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

@@ -713,18 +713,19 @@ fn rtd_node(
         Some(m) => slots.measure(id("r0"), m),
         None => slots.exact(id("r0"), default_r0),
     };
-    let wires = count(stage, "wires").unwrap_or(4);
-    let lead_measure = measure(stage, "lead");
-    let lead = lead_measure.map(|m| slots.measure(id("lead"), m));
-    // Three wires cancel the leads only as far as two of them match: the
-    // difference of two independent leads within ±t lies within ±2t.
-    let mismatch = match (wires, lead_measure.and_then(|m| m.tolerance.as_ref())) {
-        (3, Some(t)) => {
-            let (minus, plus, normal) = limits(t, lead_measure.map(|m| m.nominal).unwrap_or(0.0));
-            Some(slots.add(id("lead_mismatch"), 0.0, 2.0 * minus, 2.0 * plus, normal))
-        }
-        _ => None,
+    let wiring = match count(stage, "wires") {
+        Some(2) => rtd::Wiring::TwoWire,
+        Some(3) => rtd::Wiring::ThreeWire,
+        _ => rtd::Wiring::FourWire,
     };
+    // Each wire has its own resistance within the stated tolerance: two
+    // independent sources, which the wiring combines.
+    let leads = measure(stage, "lead").map(|m| {
+        (
+            slots.measure(id("lead_1"), m),
+            slots.measure(id("lead_2"), m),
+        )
+    });
     let dissipation = measure(stage, "dissipation").map(|m| slots.measure(id("dissipation"), m));
     let class = word(stage, "class").map(|c| match c {
         "AA" => ToleranceClass::AA,
@@ -749,9 +750,8 @@ fn rtd_node(
     let node = Node::Rtd {
         curve,
         r0,
-        lead_factor: if wires == 2 { 2.0 } else { 0.0 },
-        lead,
-        mismatch,
+        wiring,
+        leads,
         dissipation,
         input,
         senses,

@@ -73,7 +73,7 @@ impl SourceKind {
             "bias" => SourceKind::Bias,
             "cmrr" => SourceKind::CommonMode,
             "class" | "tolerance" | "accuracy" => SourceKind::Sensor,
-            "lead" | "lead_mismatch" => SourceKind::Lead,
+            p if p.starts_with("lead") => SourceKind::Lead,
             "cold_junction" => SourceKind::ColdJunction,
             "nonlinearity" | "hysteresis" => SourceKind::Nonlinearity,
             "inl" => SourceKind::Inl,
@@ -132,11 +132,10 @@ pub enum Node {
     Rtd {
         curve: RtdCurve,
         r0: SlotId,
-        /// Series lead resistance the measurement sees (2-wire: both leads).
-        lead_factor: f64,
-        lead: Option<SlotId>,
-        /// 3-wire: the difference between the two compensated leads.
-        mismatch: Option<SlotId>,
+        /// How the leads enter the measurement.
+        wiring: crate::physics::rtd::Wiring,
+        /// The two leads to the element's ends, each its own source.
+        leads: Option<(SlotId, SlotId)>,
         dissipation: Option<SlotId>,
         input: Option<NodeId>,
         senses: Senses,

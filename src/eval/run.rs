@@ -243,9 +243,8 @@ impl Plan {
             Node::Rtd {
                 curve,
                 r0,
-                lead_factor,
-                lead,
-                mismatch,
+                wiring,
+                leads,
                 dissipation,
                 input,
                 senses,
@@ -276,9 +275,10 @@ impl Plan {
                     r = self_heated(r, false, |r| Ok::<_, ()>(r_at(t_c + rise_per_ohm * r)))
                         .unwrap_or(r);
                 }
-                let lead = lead.map(|l| values[l]).unwrap_or(0.0);
-                let mismatch = mismatch.map(|m| values[m]).unwrap_or(0.0);
-                element(r + lead_factor * lead + mismatch, *input)
+                let lead = leads
+                    .map(|(a, b)| rtd::lead_series_resistance(*wiring, values[a], values[b]))
+                    .unwrap_or(0.0);
+                element(r + lead, *input)
             }
             Node::Thermocouple {
                 ty,

@@ -334,24 +334,27 @@ pub enum Wiring {
 
 /// Lead resistance in Ω that the measurement adds in series with the element.
 ///
-/// Convention: wire 1 goes to one end of the element, wires 2 (and 3, 4) to
-/// the other; every wire has `r_lead_per_wire` Ω except wire 1, which has
-/// `r_lead_per_wire + r_lead_mismatch`. Two-wire sees wires 1 + 2; a
-/// three-wire circuit subtracts wire 2 from wire 1 and keeps the mismatch;
-/// four-wire senses at the element and sees no lead. The leads still carry
-/// the excitation: see [`lead_loop_resistance`] for compliance.
-pub fn lead_series_resistance(wiring: Wiring, r_lead_per_wire: f64, r_lead_mismatch: f64) -> f64 {
+/// Wire 1 goes to one end of the element, wire 2 to the other, each with
+/// its own resistance: two leads are two independent tolerances, so each
+/// is its own variable and the wiring says how they combine. Two-wire sees
+/// wires 1 + 2; three-wire subtracts wire 2 (sensed in the compensating
+/// path) from wire 1 and keeps their difference, which for two independent
+/// leads within ±t is triangular over ±2t (JCGM 100:2008 §4.3.9), not
+/// rectangular; four-wire senses at the element and sees no lead. The
+/// leads still carry the excitation: see [`lead_loop_resistance`] for
+/// compliance.
+pub fn lead_series_resistance(wiring: Wiring, lead_1: f64, lead_2: f64) -> f64 {
     match wiring {
-        Wiring::TwoWire => 2.0 * r_lead_per_wire + r_lead_mismatch,
-        Wiring::ThreeWire => r_lead_mismatch,
+        Wiring::TwoWire => lead_1 + lead_2,
+        Wiring::ThreeWire => lead_1 - lead_2,
         Wiring::FourWire => 0.0,
     }
 }
 
 /// Lead resistance in Ω in the excitation current's path (wires 1 and 2),
 /// whatever the wiring: what a current source's compliance must cover.
-pub fn lead_loop_resistance(r_lead_per_wire: f64, r_lead_mismatch: f64) -> f64 {
-    2.0 * r_lead_per_wire + r_lead_mismatch
+pub fn lead_loop_resistance(lead_1: f64, lead_2: f64) -> f64 {
+    lead_1 + lead_2
 }
 
 /// Power in W dissipated by `current_a` A through `resistance_ohm` Ω (I²R).
@@ -530,11 +533,11 @@ mod tests {
 
     #[test]
     fn lead_wiring() {
-        let (r, dr) = (0.5, 0.02);
-        assert!((lead_series_resistance(Wiring::TwoWire, r, dr) - 1.02).abs() < 1e-15);
-        assert!((lead_series_resistance(Wiring::ThreeWire, r, dr) - 0.02).abs() < 1e-15);
-        assert_eq!(lead_series_resistance(Wiring::FourWire, r, dr), 0.0);
-        assert!((lead_loop_resistance(r, dr) - 1.02).abs() < 1e-15);
+        let (r1, r2) = (0.52, 0.5);
+        assert!((lead_series_resistance(Wiring::TwoWire, r1, r2) - 1.02).abs() < 1e-15);
+        assert!((lead_series_resistance(Wiring::ThreeWire, r1, r2) - 0.02).abs() < 1e-15);
+        assert_eq!(lead_series_resistance(Wiring::FourWire, r1, r2), 0.0);
+        assert!((lead_loop_resistance(r1, r2) - 1.02).abs() < 1e-15);
     }
 
     /// Worked by hand: 1 mA in 100 Ω dissipates (1e-3 A)² × 100 Ω = 100 µW;
