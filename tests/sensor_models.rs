@@ -81,6 +81,62 @@ fn three_wire_leads_are_two_independent_sources() {
     assert!((f(&p["worst_case"]) - 2.0 * a_k).abs() < 1e-3 * a_k, "{p}");
 }
 
+/// `catena eval --format json` of a spec in `tests/fixtures/sensors`.
+fn eval(spec: &str, at: &str) -> serde_json::Value {
+    let run = catena(
+        &dir(),
+        &["eval", spec, "--format", "json", "--at", at],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
+    serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("{e}: {}", run.stdout))
+}
+
+/// A thermistor's self-heating in a divider, by hand: a 10 kΩ NTC
+/// (β 3380 K) under 10 kΩ from 3.3 V sits at the divider's balance point at
+/// 25 °C, where it dissipates P = V² R / (R + Rs)² = 3.3² / (4 × 10 kΩ)
+/// = 272.25 µW (Ohm's and Joule's laws; dP/dR = 0 there, so the few ohms
+/// the heating moves R change P by about 1e-5 of itself). With
+/// δ = 1.5 mW/K it runs ΔT = P/δ = 0.1815 K warm, so R = R(25.1815 °C)
+/// by the β equation and the divider gives 3.3 R / (R + 10 kΩ).
+#[test]
+fn a_divider_heats_its_thermistor() {
+    let v = eval("ntc_divider_heating.catena", "25 degC");
+    let (volts, rs, delta) = (3.3, 10e3, 1.5e-3);
+    let power: f64 = volts * volts / (4.0 * rs);
+    let rise = power / delta;
+    assert!((rise - 0.1815).abs() < 1e-12);
+    let (t25, beta) = (298.15, 3380.0);
+    let r = 10e3 * (beta * (1.0 / (t25 + rise) - 1.0 / t25)).exp();
+    let want = volts * r / (r + rs);
+    let got = f(&v["nodes"]["div"]["value"]);
+    assert!((got - want).abs() < 1e-6 * want, "{got} vs {want}");
+    // Unheated it would sit at half the rail, 3.5 mV higher.
+    assert!((got - volts / 2.0).abs() > 5e-3, "{got}");
+    // The tolerance of the dissipation constant is now an error source: at
+    // 20 °C, R = 12.5 kΩ by the β equation, P = V² R / (R + Rs)² and
+    // δ (1 − 20 %) heats by ΔT / 0.8, a quarter of ΔT more (to about 1 %:
+    // the heated R moves P a little).
+    let r20 = 10e3 * (beta * (1.0 / 293.15 - 1.0 / t25)).exp();
+    let rise20 = volts * volts * r20 / ((r20 + rs) * (r20 + rs)) / delta;
+    let b = budget(
+        "ntc_divider_heating.catena",
+        &["--points", "3", "--trials", "0"],
+    );
+    let p = b["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| (f(&p["measurand"]) - 20.0).abs() < 1e-9)
+        .expect("a point at 20 degC");
+    let dissipation = f(&source(p, "ntc.dissipation")["contribution"]);
+    let want = rise20 * 0.25;
+    assert!(
+        (dissipation - want).abs() < 0.01 * want,
+        "{dissipation} vs {want}"
+    );
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

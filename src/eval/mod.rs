@@ -8,6 +8,7 @@
 //! allocates nothing and looks nothing up by name.
 
 mod convert;
+mod element;
 mod lower;
 mod plan;
 mod run;

@@ -2,12 +2,13 @@
 //! inputs' signals, the parameter values and the environment.
 
 use super::convert::{calibration_env, Calibrated, Conversion};
+use super::element::Supply;
 use super::plan::{
     BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve, Senses,
-    Signal, ThermistorCurve,
+    Signal,
 };
 use crate::physics::adc::Polarity;
-use crate::physics::{rtd, semiconductor, strain, thermistor, thermocouple};
+use crate::physics::{rtd, semiconductor, strain, thermocouple};
 use crate::units::ZERO_CELSIUS_K;
 
 /// What a run computes: conversions (the firmware model inside a
@@ -154,7 +155,7 @@ impl Plan {
     /// inside the sensor's range of validity is the plan's question, asked
     /// once of the whole range (`lower::check_validity`), not of each
     /// shifted reading.
-    fn sensed(&self, i: NodeId, senses: Senses, env: &Env, values: &[f64]) -> f64 {
+    pub(super) fn sensed(&self, i: NodeId, senses: Senses, env: &Env, values: &[f64]) -> f64 {
         let t = match senses {
             Senses::Measurand => env.measurand,
             Senses::ColdJunction => env.cold_junction,
@@ -241,40 +242,18 @@ impl Plan {
                 }
             }
             Node::Rtd {
-                curve,
-                r0,
                 wiring,
                 leads,
-                dissipation,
                 input,
-                senses,
-                valid: _,
+                ..
             } => {
-                let t = self.sensed(i, *senses, env, values);
-                let range = curve.range_c();
-                let t_c = within(t - ZERO_CELSIUS_K, range)
-                    .ok_or_else(|| self.out_of_range(i, "the element's curve", t, range))?;
-                let r_at = |t_c: f64| match curve {
-                    RtdCurve::Cvd { a, b, c } => rtd::resistance(
-                        values[*r0],
-                        rtd::CvdCoefficients {
-                            a: *a,
-                            b: *b,
-                            c: *c,
-                        },
-                        t_c,
-                    ),
-                    RtdCurve::Nickel => {
-                        rtd::nickel_resistance(values[*r0], rtd::NickelCoefficients::DIN_43760, t_c)
+                let r = self.element_at(i, values, env, 0.0)?;
+                let r = match (current_into(*input), self.heating(i)) {
+                    (Some(a), Some(heating)) => {
+                        self.heated(i, heating, r, values, env, |r| a * a * r)?
                     }
-                    RtdCurve::Copper => rtd::linear_resistance(values[*r0], rtd::COPPER_ALPHA, t_c),
+                    _ => r,
                 };
-                let mut r = r_at(t_c);
-                if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
-                    let rise_per_ohm = a * a / values[*d];
-                    r = self_heated(r, false, |r| Ok::<_, ()>(r_at(t_c + rise_per_ohm * r)))
-                        .unwrap_or(r);
-                }
                 let lead = leads
                     .map(|(a, b)| rtd::lead_series_resistance(*wiring, values[a], values[b]))
                     .unwrap_or(0.0);
@@ -308,42 +287,14 @@ impl Plan {
                     rs: 0.0,
                 }
             }
-            Node::Thermistor {
-                r25,
-                curve,
-                dissipation,
-                input,
-                senses,
-                valid: _,
-            } => {
-                let t = self.sensed(i, *senses, env, values);
-                let r_at = |t: f64| match curve {
-                    ThermistorCurve::Beta { beta } => thermistor::beta_resistance(
-                        values[*r25],
-                        25.0 + ZERO_CELSIUS_K,
-                        values[*beta],
-                        t,
-                    ),
-                    ThermistorCurve::SteinhartHart { a, b, c } => thermistor::sh_resistance(
-                        thermistor::SteinhartHart {
-                            a: *a,
-                            b: *b,
-                            c: *c,
-                        },
-                        t,
-                    ),
+            Node::Thermistor { input, .. } => {
+                let r = self.element_at(i, values, env, 0.0)?;
+                let r = match (current_into(*input), self.heating(i)) {
+                    (Some(a), Some(heating)) => {
+                        self.heated(i, heating, r, values, env, |r| a * a * r)?
+                    }
+                    _ => r,
                 };
-                let bad = |_| {
-                    self.numeric(
-                        i,
-                        "the thermistor curve has no resistance at this temperature",
-                    )
-                };
-                let mut r = r_at(t).map_err(bad)?;
-                if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
-                    let rise_per_ohm = a * a / values[*d];
-                    r = self_heated(r, true, |r| r_at(t + rise_per_ohm * r)).map_err(bad)?;
-                }
                 element(r, *input)
             }
             Node::IcVoltage {
@@ -566,7 +517,16 @@ impl Plan {
         // order go to r2, r3, r1, r4.
         let (r1, r2, r3, r4) = match kind {
             BridgeKind::Divider { sensor_high } => {
-                let element = arm(0)?;
+                // A current source's current flows through the lower resistor.
+                let supply = match s[exc] {
+                    Signal::Source(v) => Supply::Voltage { v, other: fixed },
+                    Signal::Current(a) if !sensor_high => Supply::Current(a),
+                    _ => Supply::None,
+                };
+                let element = match arms.first() {
+                    Some(&n) => self.heated_divider_element(n, arm(0)?, supply, values, env)?,
+                    None => arm(0)?,
+                };
                 let (low, high) = if sensor_high {
                     (fixed, element)
                 } else {
@@ -588,6 +548,14 @@ impl Plan {
             BridgeKind::Half => (fixed, arm(0)?, arm(1)?, fixed),
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
+        let at = |k: usize| arms.get(k).copied();
+        let placed = match kind {
+            BridgeKind::Quarter => [None, at(0), None, None],
+            BridgeKind::Half => [None, at(0), at(1), None],
+            BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
+        };
+        let [r1, r2, r3, r4] =
+            self.heated_bridge_arms([r1, r2, r3, r4], placed, s[exc], values, env)?;
         let v_exc = match s[exc] {
             Signal::Source(v) => v,
             Signal::Current(a) => a * ((r1 + r2) * (r3 + r4) / (r1 + r2 + r3 + r4)),
@@ -615,31 +583,6 @@ pub(super) fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
     (lo - SLACK..=hi + SLACK)
         .contains(&t_c)
         .then(|| t_c.clamp(lo, hi))
-}
-
-/// The resistance of an element that self-heats by I²R/δ: the fixed point
-/// of `r = at(r)` (`at` the resistance at the temperature the element
-/// reaches dissipating in `r`), from `cold`, its resistance unheated. The
-/// map contracts strongly (|dr'/dr| = I²/δ · |dR/dT| ≪ 1), so two steps
-/// and Aitken's Δ² extrapolation land where many plain steps would. What
-/// Aitken leaves grows with the curve's curvature: for an RTD (nearly
-/// straight) it is within 1e-10 Ω of the settled value at 2 K of heating;
-/// a thermistor's `curved` response takes one more step.
-fn self_heated<E>(cold: f64, curved: bool, at: impl Fn(f64) -> Result<f64, E>) -> Result<f64, E> {
-    let r1 = at(cold)?;
-    let r2 = at(r1)?;
-    let curvature = (r2 - r1) - (r1 - cold);
-    let extrapolated = r2 - (r2 - r1) * (r2 - r1) / curvature;
-    let r = if extrapolated.is_finite() {
-        extrapolated
-    } else {
-        r2
-    };
-    if curved {
-        at(r)
-    } else {
-        Ok(r)
-    }
 }
 
 /// The nearest code (halves away from zero) within `lo ..= hi`, both
@@ -904,7 +847,8 @@ impl Plan {
 
 #[cfg(test)]
 mod tests {
-    use super::{round_code, self_heated};
+    use super::super::element::self_heated;
+    use super::round_code;
     use crate::physics::{rtd, thermistor};
 
     /// The fixed point by plain iteration, far past convergence.
