@@ -137,6 +137,53 @@ fn a_divider_heats_its_thermistor() {
     );
 }
 
+/// The class sources of an RTD stage at one budget point: their worst-case
+/// contributions summed, K.
+fn class_contribution(point: &serde_json::Value, stage: &str) -> f64 {
+    point["sources"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|s| {
+            s["id"]
+                .as_str()
+                .is_some_and(|id| id.starts_with(&format!("{stage}.class")))
+        })
+        .map(|s| f(&s["contribution"]))
+        .sum()
+}
+
+/// IEC 60751:2008 Table 1, class A: ±(0.15 + 0.002 |t|) K. The class is a
+/// bound on the deviation an element's R0 and temperature coefficient give,
+/// so a two-point calibration at −50 and 100 °C removes nearly all of it
+/// (what stays is the curvature of W(t) against the line the calibration
+/// draws: about a millikelvin); modelled as the ±(a + b|t|) curve itself,
+/// its kink at 0 °C left 0.13 K there. Uncalibrated, the worst case stays
+/// within the class limit at every point, equals it at 0 °C and comes
+/// within 4 % of it at 100 °C.
+#[test]
+fn rtd_class_is_r0_and_coefficient_tolerances() {
+    let args = ["--points", "7", "--trials", "0"];
+    let calibrated = budget("pt100_class_a_calibrated.catena", &args);
+    for p in calibrated["points"].as_array().unwrap() {
+        let class = class_contribution(p, "probe");
+        assert!(class < 2e-3, "{}: {class}", p["measurand"]);
+    }
+    let raw = budget("pt100_class_a_uncalibrated.catena", &args);
+    for p in raw["points"].as_array().unwrap() {
+        let t = f(&p["measurand"]);
+        let limit = 0.15 + 0.002 * t.abs();
+        let class = class_contribution(p, "probe");
+        assert!(class <= limit * (1.0 + 1e-6), "{t}: {class} vs {limit}");
+        if t == 0.0 {
+            assert!((class - limit).abs() < 1e-6 * limit, "{class}");
+        }
+        if t == 100.0 {
+            assert!(class > 0.96 * limit, "{class} vs {limit}");
+        }
+    }
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

@@ -77,13 +77,22 @@ impl Plan {
     ) -> Result<f64, EvalError> {
         match &self.nodes[n] {
             Node::Rtd {
-                curve, r0, senses, ..
+                curve,
+                r0,
+                senses,
+                deviation,
+                ..
             } => {
                 let t = self.sensed(n, *senses, env, values);
                 let range = curve.range_c();
                 let t_c = within(t - ZERO_CELSIUS_K, range)
                     .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))?;
-                Ok(rtd_resistance(*curve, values[*r0], t_c + rise_k))
+                let r0 = values[*r0];
+                let r = rtd_resistance(*curve, r0, t_c + rise_k);
+                Ok(match deviation {
+                    Some((d0, da)) => rtd::deviated_resistance(r, r0, values[*d0], values[*da]),
+                    None => r,
+                })
             }
             Node::Thermistor {
                 r25, curve, senses, ..

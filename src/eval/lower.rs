@@ -737,13 +737,16 @@ fn rtd_node(
         let (lo, hi) = class.wire_wound_range_c();
         (lo + ZERO_CELSIUS_K, hi + ZERO_CELSIUS_K)
     });
+    // The class as the R0 and coefficient tolerances it comes from, so a
+    // calibration removes what it really removes.
+    let deviation = class.map(|class| {
+        let d = rtd::class_deviation(class);
+        (
+            slots.add(id("class_r0"), 0.0, d.r0, d.r0, false),
+            slots.add(id("class_alpha"), 0.0, d.alpha, d.alpha, false),
+        )
+    });
     let mut error = SenseError::default();
-    if let Some(class) = class {
-        error.class = Some((
-            ClassTolerance::Rtd(class),
-            slots.add(id("class"), 0.0, 1.0, 1.0, false),
-        ));
-    }
     if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
         error.absolute = Some(slots.limit(id("tolerance"), t));
     }
@@ -756,6 +759,7 @@ fn rtd_node(
         input,
         senses,
         valid,
+        deviation,
     };
     Ok((node, error))
 }

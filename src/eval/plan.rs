@@ -72,7 +72,8 @@ impl SourceKind {
             "gain_error" => SourceKind::Gain,
             "bias" => SourceKind::Bias,
             "cmrr" => SourceKind::CommonMode,
-            "class" | "tolerance" | "accuracy" => SourceKind::Sensor,
+            "tolerance" | "accuracy" => SourceKind::Sensor,
+            p if p.starts_with("class") => SourceKind::Sensor,
             p if p.starts_with("lead") => SourceKind::Lead,
             "cold_junction" => SourceKind::ColdJunction,
             "nonlinearity" | "hysteresis" => SourceKind::Nonlinearity,
@@ -141,6 +142,9 @@ pub enum Node {
         senses: Senses,
         /// Class validity range, kelvin, when a class is given.
         valid: Option<(f64, f64)>,
+        /// The class's R0 and coefficient deviations (relative, nominal
+        /// 0), when a class is given.
+        deviation: Option<(SlotId, SlotId)>,
     },
     Thermocouple {
         ty: ThermocoupleType,
@@ -245,10 +249,10 @@ pub enum Node {
     },
 }
 
-/// A tolerance class whose half-width depends on the temperature.
+/// A tolerance class whose half-width depends on the temperature. (An
+/// RTD's class is its R0 and coefficient tolerances, on the element.)
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum ClassTolerance {
-    Rtd(crate::physics::rtd::ToleranceClass),
     Thermocouple(ThermocoupleType, u8),
 }
 

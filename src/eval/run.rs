@@ -164,7 +164,6 @@ impl Plan {
         let class = error.class.map(|(class, slot)| {
             let t_c = t - ZERO_CELSIUS_K;
             let half_width = match class {
-                ClassTolerance::Rtd(c) => rtd::tolerance_k(c, t_c),
                 ClassTolerance::Thermocouple(ty, c) => thermocouple::class_tolerance_k(ty, c, t_c),
             };
             values[slot] * half_width.unwrap_or(0.0)
