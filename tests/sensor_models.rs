@@ -184,6 +184,46 @@ fn rtd_class_is_r0_and_coefficient_tolerances() {
     }
 }
 
+/// A transducer's nonlinearity and hysteresis, worked by hand for a
+/// 5000 kg cell stating each as 0.02 % of rated output (1 kg).
+/// Nonlinearity is the curve's deviation from a straight line: against the
+/// terminal line it is zero at no load and at rated load; against the
+/// best-fit (minimax) line it equioscillates, −n at the ends and +n at mid
+/// range. The curve is taken as a parabola (our modelling assumption,
+/// `physics::transducer`): terminal deviation 4u(1 − u) n, so 0.75 kg at a
+/// quarter load; best-fit n (8u(1 − u) − 1), so 0.5 kg there. A two-point
+/// calibration at 1000 and 4000 kg (u = 0.2, 0.8, where the bow is 0.64 n)
+/// takes out the line through them and leaves 4u(1 − u) − 0.64 of n:
+/// −0.64 kg at the ends, 0.11 kg at a quarter, 0.36 kg at mid range.
+/// Hysteresis depends on the direction of approach, so no calibration
+/// removes it: 1 kg at every load, calibrated or not.
+#[test]
+fn transducer_nonlinearity_has_a_shape_and_hysteresis_stays() {
+    let cases = [
+        ("load_cell_terminal.catena", [0.0, 0.75, 1.0, 0.75, 0.0]),
+        ("load_cell_best_fit.catena", [1.0, 0.5, 1.0, 0.5, 1.0]),
+        (
+            "load_cell_calibrated.catena",
+            [0.64, 0.11, 0.36, 0.11, 0.64],
+        ),
+    ];
+    for (spec, nonlinearity) in cases {
+        let v = budget(spec, &["--points", "5", "--trials", "0"]);
+        let points = v["points"].as_array().unwrap();
+        assert_eq!(points.len(), 5, "{spec}");
+        for (p, want) in points.iter().zip(nonlinearity) {
+            let got = f(&source(p, "cell.nonlinearity")["contribution"]);
+            assert!(
+                (got - want).abs() < 1e-6,
+                "{spec} {}: {got}",
+                p["measurand"]
+            );
+            let hysteresis = f(&source(p, "cell.hysteresis")["contribution"]);
+            assert!((hysteresis - 1.0).abs() < 1e-6, "{spec}: {hysteresis}");
+        }
+    }
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

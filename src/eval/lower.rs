@@ -16,6 +16,7 @@ use crate::model::{Chain, Stage};
 use crate::physics::adc::Polarity;
 use crate::physics::rtd::{self, ToleranceClass};
 use crate::physics::thermocouple::ThermocoupleType;
+use crate::physics::transducer::LinearityLine;
 use crate::syntax::ast::StageKind;
 use crate::units::{Dim, ZERO_CELSIUS_K};
 
@@ -358,6 +359,12 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     full_scale: *at,
                     zero,
                     nonlinearity: limit(&mut slots, "nonlinearity"),
+                    // Terminal-based unless the datasheet says otherwise:
+                    // common practice for load cells.
+                    linearity: match word(stage, "linearity") {
+                        Some("best_fit") => LinearityLine::BestFit,
+                        _ => LinearityLine::Terminal,
+                    },
                     hysteresis: limit(&mut slots, "hysteresis"),
                     zero_drift: limit(&mut slots, "zero_drift"),
                     span_drift: limit(&mut slots, "span_drift"),

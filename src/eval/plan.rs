@@ -185,8 +185,11 @@ pub enum Node {
         full_scale: f64,
         zero: Option<SlotId>,
         /// Nonlinearity and hysteresis, each a fraction of full-scale
-        /// output, nominal 0.
+        /// output, nominal 0: the nonlinearity along its shape against
+        /// `linearity`'s line, the hysteresis as a bound no calibration
+        /// sees.
         nonlinearity: Option<SlotId>,
+        linearity: crate::physics::transducer::LinearityLine,
         hysteresis: Option<SlotId>,
         /// Zero and span coefficients per kelvin (of full scale).
         zero_drift: Option<SlotId>,

@@ -8,7 +8,7 @@ use super::plan::{
     Signal,
 };
 use crate::physics::adc::Polarity;
-use crate::physics::{rtd, semiconductor, strain, thermocouple};
+use crate::physics::{rtd, semiconductor, strain, thermocouple, transducer};
 use crate::units::ZERO_CELSIUS_K;
 
 /// What a run computes: conversions (the firmware model inside a
@@ -21,6 +21,9 @@ pub(super) struct Mode {
     /// Amplifiers clip at their swing and rail outside their common-mode
     /// range; off, they amplify linearly, to see how far a signal would go.
     clip: bool,
+    /// A calibration's reading of the chain: what depends on the direction
+    /// of approach (hysteresis) is not the reading's.
+    calibrating: bool,
 }
 
 impl Mode {
@@ -28,21 +31,31 @@ impl Mode {
         convert: true,
         quantized: true,
         clip: true,
+        calibrating: false,
     };
     const CODES: Mode = Mode {
         convert: false,
         quantized: true,
         clip: true,
+        calibrating: false,
     };
     const RAW: Mode = Mode {
         convert: false,
         quantized: true,
         clip: false,
+        calibrating: false,
+    };
+    const CALIBRATION: Mode = Mode {
+        convert: false,
+        quantized: true,
+        clip: true,
+        calibrating: true,
     };
     const UNQUANTIZED: Mode = Mode {
         convert: true,
         quantized: false,
         clip: true,
+        calibrating: false,
     };
 }
 
@@ -114,6 +127,21 @@ impl Plan {
     pub fn exact_code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         self.run(values, env, &mut signals, adc + 1, Mode::CODES)?;
+        match signals[adc] {
+            Signal::Code { exact, .. } => Ok(exact),
+            _ => Err(self.numeric(adc, "no code")),
+        }
+    }
+
+    /// [`Plan::exact_code`] as a calibration reads it.
+    pub(super) fn calibration_code(
+        &self,
+        values: &[f64],
+        env: &Env,
+        adc: NodeId,
+    ) -> Result<f64, EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, adc + 1, Mode::CALIBRATION)?;
         match signals[adc] {
             Signal::Code { exact, .. } => Ok(exact),
             _ => Err(self.numeric(adc, "no code")),
@@ -337,6 +365,7 @@ impl Plan {
                 full_scale,
                 zero,
                 nonlinearity,
+                linearity,
                 hysteresis,
                 zero_drift,
                 span_drift,
@@ -348,8 +377,17 @@ impl Plan {
                 let s_fs = values[*sensitivity];
                 // Output as a ratio of excitation (or volts): span with its
                 // drift, then the errors stated as fractions of full scale.
-                let fraction = s_fs * (1.0 + slot(span_drift) * dt) * env.measurand / full_scale
-                    + s_fs * (slot(nonlinearity) + slot(hysteresis) + slot(zero_drift) * dt)
+                let u = env.measurand / full_scale;
+                let bow = transducer::nonlinearity_shape(*linearity, u);
+                // Hysteresis depends on the direction of approach: the
+                // calibration's is not the reading's, so it sees none.
+                let hysteresis = if mode.calibrating {
+                    0.0
+                } else {
+                    slot(hysteresis)
+                };
+                let fraction = s_fs * (1.0 + slot(span_drift) * dt) * u
+                    + s_fs * (slot(nonlinearity) * bow + hysteresis + slot(zero_drift) * dt)
                     + slot(zero);
                 let (v, cm) = match (ratiometric, input.map(|n| s[n])) {
                     (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
@@ -774,7 +812,7 @@ impl Plan {
                 &calibration_env(self, p),
                 signals,
                 self.adc + 1,
-                Mode::CODES,
+                Mode::CALIBRATION,
             )?;
             for (k, lane_codes) in codes.iter_mut().enumerate() {
                 let Signal::Code { exact, .. } = signals[k][self.adc] else {
