@@ -224,6 +224,24 @@ fn transducer_nonlinearity_has_a_shape_and_hysteresis_stays() {
     }
 }
 
+/// An RTD's self-heating in a quarter bridge, by hand: a Pt100 among three
+/// 100 Ω resistors from 1 V is balanced at 0 °C, where its side of the
+/// bridge passes 1 V / 200 Ω and it dissipates V² / (4 R) = 2.5 mW; at
+/// 5 mW/K it runs ΔT = P/δ = 0.5 K warm, R = 100 (1 + A ΔT + B ΔT²)
+/// (IEC 60751 A, B), and the bridge gives V (R / (R + 100 Ω) − 1/2),
+/// 0.488 mV where an unheated element gives 0. (The heated R moves P by
+/// about 1e-6 of itself: dP/dR = 0 at balance.)
+#[test]
+fn a_bridge_heats_its_rtd() {
+    let v = eval("rtd_quarter_bridge_heating.catena", "0 degC");
+    let rise: f64 = 1.0 / (4.0 * 100.0) / 5e-3;
+    assert!((rise - 0.5).abs() < 1e-12);
+    let r = 100.0 * (1.0 + 3.9083e-3 * rise - 5.775e-7 * rise * rise);
+    let want = r / (r + 100.0) - 0.5;
+    let got = f(&v["nodes"]["b"]["value"]);
+    assert!((got - want).abs() < 1e-5 * want, "{got} vs {want}");
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln
