@@ -242,6 +242,38 @@ fn a_bridge_heats_its_rtd() {
     assert!((got - want).abs() < 1e-5 * want, "{got} vs {want}");
 }
 
+/// A quarter bridge's three completion resistors are three parts, each
+/// within its own tolerance, not one value shared by all three (which
+/// would match the reference half perfectly). Each one's effect, by hand:
+/// a relative change δ of any arm moves the output by V δ / 4 at balance,
+/// the gauge's strain reads V GF ε / 4, so δ / GF = 1e-4 / 2 = 50 µε each.
+/// Three independent rectangles of half-width a = 50 µε: worst case 3a,
+/// GUM standard √3 · a/√3 = a (JCGM 100:2008 §4.3.7), and a 95 %
+/// half-width of a (3 − 2 ∛0.15) = 1.9373 a from the Irwin–Hall
+/// distribution of their sum (CDF 1 − (3 − x)³/6 near its top, for the
+/// sum of three U(0, 1); derived here).
+#[test]
+fn completion_resistors_are_independent_parts() {
+    let v = budget(
+        "quarter_bridge_completion.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    let a = 50.0;
+    for id in ["completion.r_1", "completion.r_2", "completion.r_3"] {
+        let c = f(&source(p, id)["contribution"]);
+        assert!((c - a).abs() < 1e-3 * a, "{id}: {c}");
+    }
+    assert!((f(&p["gum_standard"]) - a).abs() < 1e-3 * a, "{p}");
+    assert!((f(&p["worst_case"]) - 3.0 * a).abs() < 1e-3 * a, "{p}");
+    let half = (f(&p["monte_carlo_95"][1]) - f(&p["monte_carlo_95"][0])) / 2.0;
+    let irwin_hall = a * (3.0 - 2.0 * 0.15f64.cbrt());
+    assert!(
+        (half - irwin_hall).abs() < 0.01 * irwin_hall,
+        "{half} vs {irwin_hall}"
+    );
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

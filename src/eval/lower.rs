@@ -392,13 +392,30 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     Some("half") => BridgeKind::Half,
                     _ => BridgeKind::Full,
                 };
-                let (r, drift) = match measure(stage, "r") {
-                    Some(m) => (
-                        Some(slots.measure(id("r"), m)),
-                        drift_of(&mut slots, "r", m),
-                    ),
+                // Each completion resistor is its own part, with its own
+                // tolerance and drift.
+                let parts = match kind {
+                    BridgeKind::Quarter => 3,
+                    BridgeKind::Half => 2,
+                    BridgeKind::Divider { .. } | BridgeKind::Full => 1,
+                };
+                let mut completion = Vec::new();
+                if let Some(m) = measure(stage, "r") {
+                    for k in 1..=parts {
+                        let name = if parts == 1 {
+                            "r".to_string()
+                        } else {
+                            format!("r_{k}")
+                        };
+                        completion
+                            .push((slots.measure(id(&name), m), drift_of(&mut slots, &name, m)));
+                    }
+                }
+                let (r, drift) = match completion.first() {
+                    Some(&(r, drift)) => (Some(r), drift),
                     None => (None, None),
                 };
+                let others = completion.get(1..).unwrap_or_default().to_vec();
                 let exc = input(si, Port::Exc)
                     .ok_or_else(|| not_invertible(&stage.name, "no excitation"))?;
                 let arms = chain
@@ -411,6 +428,7 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
                     kind,
                     r,
                     drift,
+                    others,
                     exc,
                     arms,
                 }

@@ -205,8 +205,12 @@ pub enum Node {
     },
     Bridge {
         kind: BridgeKind,
+        /// The completion resistor (the first, where there are several).
         r: Option<SlotId>,
         drift: Option<DriftSlot>,
+        /// The other completion resistors, each its own tolerance and
+        /// drift: a quarter bridge's r3 and r4, a half bridge's r4.
+        others: Vec<(SlotId, Option<DriftSlot>)>,
         exc: NodeId,
         arms: Vec<NodeId>,
     },

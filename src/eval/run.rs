@@ -70,6 +70,14 @@ impl RtdCurve {
     }
 }
 
+/// A bridge's completion resistors: the first (value, drift) and the
+/// others, each its own part.
+type Completion<'a> = (
+    Option<usize>,
+    Option<DriftSlot>,
+    &'a [(usize, Option<DriftSlot>)],
+);
+
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
 pub const MAX_NODES: usize = 32;
 /// Evaluations [`Plan::unquantized_readings`] runs side by side.
@@ -410,9 +418,10 @@ impl Plan {
                 kind,
                 r,
                 drift,
+                others,
                 exc,
                 arms,
-            } => self.bridge(i, *kind, *r, *drift, *exc, arms, values, env, s)?,
+            } => self.bridge(i, *kind, (*r, *drift, others), *exc, arms, values, env, s)?,
             Node::Amplifier {
                 gain,
                 offset,
@@ -533,8 +542,7 @@ impl Plan {
         &self,
         i: NodeId,
         kind: BridgeKind,
-        r: Option<usize>,
-        drift: Option<DriftSlot>,
+        (r, drift, others): Completion,
         exc: NodeId,
         arms: &[NodeId],
         values: &[f64],
@@ -544,6 +552,13 @@ impl Plan {
         let fixed = r
             .map(|r| self.drifted(values[r], drift, values, env))
             .unwrap_or(0.0);
+        // Each further completion resistor is its own part.
+        let other = |k: usize| {
+            others
+                .get(k)
+                .map(|&(r, drift)| self.drifted(values[r], drift, values, env))
+                .unwrap_or(fixed)
+        };
         let arm = |k: usize| match arms.get(k).map(|&n| s[n]) {
             Some(Signal::Element(r)) => Ok(r),
             _ => Err(self.numeric(i, "a bridge arm has no element")),
@@ -581,8 +596,8 @@ impl Plan {
                 };
                 return Ok(Signal::Voltage { v, cm: v / 2.0, rs });
             }
-            BridgeKind::Quarter => (fixed, arm(0)?, fixed, fixed),
-            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, fixed),
+            BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
+            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
         let at = |k: usize| arms.get(k).copied();
