@@ -65,9 +65,7 @@ impl Plan {
     }
 
     /// The resistance of element node `n` (without its leads) at `rise_k`
-    /// above the temperature it senses. The curve's range is checked at
-    /// the sensed temperature; the few millikelvin of self-heating are
-    /// the element's own doing, not a reading.
+    /// above the temperature it senses.
     pub(super) fn element_at(
         &self,
         n: NodeId,
@@ -75,29 +73,63 @@ impl Plan {
         env: &Env,
         rise_k: f64,
     ) -> Result<f64, EvalError> {
+        let t = self.element_temperature(n, values, env)?;
+        self.element_resistance(n, values, t, rise_k)
+    }
+
+    /// The temperature element `n` senses, in its curve's unit (°C for an
+    /// RTD, K for a thermistor). The curve's range is checked here, at the
+    /// sensed temperature; the few millikelvin of self-heating are the
+    /// element's own doing, not a reading.
+    fn element_temperature(&self, n: NodeId, values: &[f64], env: &Env) -> Result<f64, EvalError> {
+        match &self.nodes[n] {
+            Node::Rtd { curve, senses, .. } => {
+                let t = self.sensed(n, *senses, env, values);
+                let range = curve.range_c();
+                within(t - ZERO_CELSIUS_K, range)
+                    .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))
+            }
+            Node::Thermistor { senses, .. } => Ok(self.sensed(n, *senses, env, values)),
+            Node::Excitation { .. }
+            | Node::Thermocouple { .. }
+            | Node::IcVoltage { .. }
+            | Node::IcCurrent { .. }
+            | Node::StrainGauge { .. }
+            | Node::Transducer { .. }
+            | Node::Resistor { .. }
+            | Node::Bridge { .. }
+            | Node::Amplifier { .. }
+            | Node::Filter { .. }
+            | Node::Adc { .. }
+            | Node::Convert { .. } => Err(self.numeric(n, "not a temperature element")),
+        }
+    }
+
+    /// Element `n`'s resistance at `t` (from [`Plan::element_temperature`])
+    /// plus `rise_k`.
+    fn element_resistance(
+        &self,
+        n: NodeId,
+        values: &[f64],
+        t: f64,
+        rise_k: f64,
+    ) -> Result<f64, EvalError> {
         match &self.nodes[n] {
             Node::Rtd {
                 curve,
                 r0,
-                senses,
                 deviation,
                 ..
             } => {
-                let t = self.sensed(n, *senses, env, values);
-                let range = curve.range_c();
-                let t_c = within(t - ZERO_CELSIUS_K, range)
-                    .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))?;
                 let r0 = values[*r0];
-                let r = rtd_resistance(*curve, r0, t_c + rise_k);
+                let r = rtd_resistance(*curve, r0, t + rise_k);
                 Ok(match deviation {
                     Some((d0, da)) => rtd::deviated_resistance(r, r0, values[*d0], values[*da]),
                     None => r,
                 })
             }
-            Node::Thermistor {
-                r25, curve, senses, ..
-            } => {
-                let t = self.sensed(n, *senses, env, values) + rise_k;
+            Node::Thermistor { r25, curve, .. } => {
+                let t = t + rise_k;
                 let r = match curve {
                     ThermistorCurve::Beta { beta } => thermistor::beta_resistance(
                         values[*r25],
@@ -149,8 +181,9 @@ impl Plan {
         power: impl Fn(f64) -> f64,
     ) -> Result<f64, EvalError> {
         let delta = values[heating.dissipation];
+        let t = self.element_temperature(n, values, env)?;
         self_heated(cold, heating.curved, |r| {
-            self.element_at(n, values, env, power(r) / delta)
+            self.element_resistance(n, values, t, power(r) / delta)
         })
     }
 }
