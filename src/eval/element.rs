@@ -27,6 +27,7 @@ pub(super) struct Heating {
 
 impl Plan {
     /// The element's self-heating, if it states a dissipation constant.
+    #[inline]
     pub(super) fn heating(&self, n: NodeId) -> Option<Heating> {
         match &self.nodes[n] {
             Node::Rtd {
@@ -64,33 +65,19 @@ impl Plan {
         }
     }
 
-    /// The resistance of element node `n` (without its leads) at `rise_k`
-    /// above the temperature it senses.
-    pub(super) fn element_at(
-        &self,
-        n: NodeId,
-        values: &[f64],
-        env: &Env,
-        rise_k: f64,
-    ) -> Result<f64, EvalError> {
-        let t = self.element_temperature(n, values, env)?;
-        self.element_resistance(n, values, t, rise_k)
-    }
-
-    /// The temperature element `n` senses, in its curve's unit (°C for an
-    /// RTD, K for a thermistor). The curve's range is checked here, at the
-    /// sensed temperature; the few millikelvin of self-heating are the
-    /// element's own doing, not a reading.
-    fn element_temperature(&self, n: NodeId, values: &[f64], env: &Env) -> Result<f64, EvalError> {
+    /// The lead resistance element node `n` adds to its arm value: the
+    /// arm less this is the element itself, without evaluating its curve
+    /// again.
+    fn element_leads(&self, n: NodeId, values: &[f64]) -> f64 {
         match &self.nodes[n] {
-            Node::Rtd { curve, senses, .. } => {
-                let t = self.sensed(n, *senses, env, values);
-                let range = curve.range_c();
-                within(t - ZERO_CELSIUS_K, range)
-                    .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))
-            }
-            Node::Thermistor { senses, .. } => Ok(self.sensed(n, *senses, env, values)),
-            Node::Excitation { .. }
+            Node::Rtd {
+                wiring,
+                leads: Some((a, b)),
+                ..
+            } => rtd::lead_series_resistance(*wiring, values[*a], values[*b]),
+            Node::Rtd { leads: None, .. }
+            | Node::Thermistor { .. }
+            | Node::Excitation { .. }
             | Node::Thermocouple { .. }
             | Node::IcVoltage { .. }
             | Node::IcCurrent { .. }
@@ -101,57 +88,92 @@ impl Plan {
             | Node::Amplifier { .. }
             | Node::Filter { .. }
             | Node::Adc { .. }
-            | Node::Convert { .. } => Err(self.numeric(n, "not a temperature element")),
+            | Node::Convert { .. } => 0.0,
         }
     }
 
-    /// Element `n`'s resistance at `t` (from [`Plan::element_temperature`])
-    /// plus `rise_k`.
-    fn element_resistance(
+    /// Element `n`'s resistance where it sits on a current source of
+    /// `current` A (or in a bridge arm: `None`), self-heated by I²R when it
+    /// states a dissipation constant.
+    #[inline(always)]
+    pub(super) fn driven_element(
         &self,
         n: NodeId,
         values: &[f64],
-        t: f64,
-        rise_k: f64,
+        env: &Env,
+        current: Option<f64>,
     ) -> Result<f64, EvalError> {
+        let (curve, t) = self.element_curve(n, values, env)?;
+        let cold = curve.resistance(t).map_err(|_| self.no_resistance(n))?;
+        match (current, self.heating(n)) {
+            (Some(a), Some(heating)) => {
+                let delta = values[heating.dissipation];
+                self_heated(cold, heating.curved, |r| {
+                    curve.resistance(t + a * a * r / delta)
+                })
+                .map_err(|_| self.no_resistance(n))
+            }
+            _ => Ok(cold),
+        }
+    }
+
+    /// Only a thermistor's curve can have no resistance (an RTD's always
+    /// has one).
+    fn no_resistance(&self, n: NodeId) -> EvalError {
+        self.numeric(
+            n,
+            "the thermistor curve has no resistance at this temperature",
+        )
+    }
+
+    /// Element `n`'s curve with this run's values, and the temperature it
+    /// senses in the curve's unit (°C for an RTD, K for a thermistor). The
+    /// curve's range is checked here, at the sensed temperature; the few
+    /// millikelvin of self-heating are the element's own doing, not a
+    /// reading.
+    #[inline(always)]
+    fn element_curve(
+        &self,
+        n: NodeId,
+        values: &[f64],
+        env: &Env,
+    ) -> Result<(ElementCurve, f64), EvalError> {
         match &self.nodes[n] {
             Node::Rtd {
                 curve,
                 r0,
                 deviation,
+                senses,
                 ..
             } => {
-                let r0 = values[*r0];
-                let r = rtd_resistance(*curve, r0, t + rise_k);
-                Ok(match deviation {
-                    Some((d0, da)) => rtd::deviated_resistance(r, r0, values[*d0], values[*da]),
-                    None => r,
-                })
+                let t = self.sensed(n, *senses, env, values);
+                let range = curve.range_c();
+                let t_c = within(t - ZERO_CELSIUS_K, range)
+                    .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))?;
+                let element = ElementCurve::Rtd {
+                    curve: *curve,
+                    r0: values[*r0],
+                    deviation: deviation.map(|(d0, da)| (values[d0], values[da])),
+                };
+                Ok((element, t_c))
             }
-            Node::Thermistor { r25, curve, .. } => {
-                let t = t + rise_k;
-                let r = match curve {
-                    ThermistorCurve::Beta { beta } => thermistor::beta_resistance(
-                        values[*r25],
-                        25.0 + ZERO_CELSIUS_K,
-                        values[*beta],
-                        t,
-                    ),
-                    ThermistorCurve::SteinhartHart { a, b, c } => thermistor::sh_resistance(
-                        thermistor::SteinhartHart {
+            Node::Thermistor {
+                r25, curve, senses, ..
+            } => {
+                let element = match curve {
+                    ThermistorCurve::Beta { beta } => ElementCurve::Beta {
+                        r25: values[*r25],
+                        beta: values[*beta],
+                    },
+                    ThermistorCurve::SteinhartHart { a, b, c } => {
+                        ElementCurve::SteinhartHart(thermistor::SteinhartHart {
                             a: *a,
                             b: *b,
                             c: *c,
-                        },
-                        t,
-                    ),
+                        })
+                    }
                 };
-                r.map_err(|_| {
-                    self.numeric(
-                        n,
-                        "the thermistor curve has no resistance at this temperature",
-                    )
-                })
+                Ok((element, self.sensed(n, *senses, env, values)))
             }
             Node::Excitation { .. }
             | Node::Thermocouple { .. }
@@ -181,10 +203,11 @@ impl Plan {
         power: impl Fn(f64) -> f64,
     ) -> Result<f64, EvalError> {
         let delta = values[heating.dissipation];
-        let t = self.element_temperature(n, values, env)?;
+        let (curve, t) = self.element_curve(n, values, env)?;
         self_heated(cold, heating.curved, |r| {
-            self.element_resistance(n, values, t, power(r) / delta)
+            curve.resistance(t + power(r) / delta)
         })
+        .map_err(|_| self.no_resistance(n))
     }
 }
 
@@ -203,8 +226,8 @@ impl Plan {
         let Some(heating) = self.heating(node) else {
             return Ok(element);
         };
-        let cold = self.element_at(node, values, env, 0.0)?;
-        let leads = element - cold;
+        let leads = self.element_leads(node, values);
+        let cold = element - leads;
         let power = |r: f64| match supply {
             Supply::Voltage { v, other } => strain::series_element_power_w(v, r, leads + other),
             Supply::Current(a) => a * a * r,
@@ -237,7 +260,7 @@ impl Plan {
         let mut leads = [0.0; 4];
         for (k, heated) in heating.iter().enumerate() {
             if let Some((n, _)) = heated {
-                leads[k] = arms[k] - self.element_at(*n, values, env, 0.0)?;
+                leads[k] = self.element_leads(*n, values);
             }
         }
         for _ in 0..passes {
@@ -267,7 +290,49 @@ impl Plan {
     }
 }
 
+/// A temperature element's curve with one run's values.
+#[derive(Clone, Copy, Debug)]
+enum ElementCurve {
+    Rtd {
+        curve: RtdCurve,
+        r0: f64,
+        /// The class's R0 and coefficient deviations, relative.
+        deviation: Option<(f64, f64)>,
+    },
+    Beta {
+        r25: f64,
+        beta: f64,
+    },
+    SteinhartHart(thermistor::SteinhartHart),
+}
+
+impl ElementCurve {
+    /// The resistance at `t` (°C for an RTD, K for a thermistor), or none
+    /// where the curve has none.
+    #[inline(always)]
+    fn resistance(self, t: f64) -> Result<f64, ()> {
+        match self {
+            ElementCurve::Rtd {
+                curve,
+                r0,
+                deviation,
+            } => {
+                let r = rtd_resistance(curve, r0, t);
+                Ok(match deviation {
+                    Some((d0, da)) => rtd::deviated_resistance(r, r0, d0, da),
+                    None => r,
+                })
+            }
+            ElementCurve::Beta { r25, beta } => {
+                thermistor::beta_resistance(r25, 25.0 + ZERO_CELSIUS_K, beta, t).map_err(|_| ())
+            }
+            ElementCurve::SteinhartHart(k) => thermistor::sh_resistance(k, t).map_err(|_| ()),
+        }
+    }
+}
+
 /// Resistance of an RTD curve at `t_c` °C.
+#[inline]
 fn rtd_resistance(curve: RtdCurve, r0: f64, t_c: f64) -> f64 {
     match curve {
         RtdCurve::Cvd { a, b, c } => rtd::resistance(r0, rtd::CvdCoefficients { a, b, c }, t_c),
@@ -284,6 +349,7 @@ fn rtd_resistance(curve: RtdCurve, r0: f64, t_c: f64) -> f64 {
 /// What Aitken leaves grows with the curve's curvature: for an RTD (nearly
 /// straight) it is within 1e-10 Ω of the settled value at 2 K of heating;
 /// a thermistor's `curved` response takes one more step.
+#[inline]
 pub(super) fn self_heated<E>(
     cold: f64,
     curved: bool,

@@ -282,13 +282,7 @@ impl Plan {
                 input,
                 ..
             } => {
-                let r = self.element_at(i, values, env, 0.0)?;
-                let r = match (current_into(*input), self.heating(i)) {
-                    (Some(a), Some(heating)) => {
-                        self.heated(i, heating, r, values, env, |r| a * a * r)?
-                    }
-                    _ => r,
-                };
+                let r = self.driven_element(i, values, env, current_into(*input))?;
                 let lead = leads
                     .map(|(a, b)| rtd::lead_series_resistance(*wiring, values[a], values[b]))
                     .unwrap_or(0.0);
@@ -323,13 +317,7 @@ impl Plan {
                 }
             }
             Node::Thermistor { input, .. } => {
-                let r = self.element_at(i, values, env, 0.0)?;
-                let r = match (current_into(*input), self.heating(i)) {
-                    (Some(a), Some(heating)) => {
-                        self.heated(i, heating, r, values, env, |r| a * a * r)?
-                    }
-                    _ => r,
-                };
+                let r = self.driven_element(i, values, env, current_into(*input))?;
                 element(r, *input)
             }
             Node::IcVoltage {

@@ -274,6 +274,7 @@ pub fn class_deviation(class: ToleranceClass) -> ClassDeviation {
 /// The resistance of an element that deviates from its curve by `r0_dev`
 /// in R0 and `alpha_dev` in its coefficient (both relative), given the
 /// curve's resistance `r_curve` at the temperature and its nominal `r0`.
+#[inline]
 pub fn deviated_resistance(r_curve: f64, r0: f64, r0_dev: f64, alpha_dev: f64) -> f64 {
     (1.0 + r0_dev) * (r0 + (1.0 + alpha_dev) * (r_curve - r0))
 }
