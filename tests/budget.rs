@@ -395,7 +395,10 @@ fn alarms_get_a_guard_band_and_codes() {
 
 /// Each Monte Carlo interval says what its ends are good to, and that
 /// shrinks as 1/√M: ten times the trials, about a third of the width. The
-/// longer run's ends fall within the shorter run's stated reach.
+/// width is itself an estimate (a spacing of about 20 order statistics at
+/// 4000 trials, so some 20 % uncertain), so the ratio is judged over the
+/// points together. The longer run's ends fall within the shorter run's
+/// stated reach.
 #[test]
 fn monte_carlo_states_its_numerical_width() {
     let run = |trials: &str| {
@@ -407,12 +410,14 @@ fn monte_carlo_states_its_numerical_width() {
     };
     let (short, long) = (run("4000"), run("40000"));
     let points = |v: &serde_json::Value| v["points"].as_array().unwrap().clone();
+    let mut log_ratios = Vec::new();
     for (a, b) in points(&short).iter().zip(points(&long)) {
         let (wa, wb) = (
             a["monte_carlo_numerical"].as_f64().unwrap(),
             b["monte_carlo_numerical"].as_f64().unwrap(),
         );
-        assert!(wa > 0.0 && (2.2..4.5).contains(&(wa / wb)), "{wa} vs {wb}");
+        assert!(wa > 0.0 && (1.5..7.0).contains(&(wa / wb)), "{wa} vs {wb}");
+        log_ratios.push((wa / wb).ln());
         for end in [0, 1] {
             let (ea, eb) = (
                 a["monte_carlo_95"][end].as_f64().unwrap(),
@@ -421,6 +426,8 @@ fn monte_carlo_states_its_numerical_width() {
             assert!((ea - eb).abs() <= wa + wb, "{ea} vs {eb} (± {wa})");
         }
     }
+    let mean = (log_ratios.iter().sum::<f64>() / log_ratios.len() as f64).exp();
+    assert!((2.5..4.0).contains(&mean), "{mean}");
 }
 
 /// By default the human budget leads with one row per ambient (each

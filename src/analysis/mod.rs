@@ -14,7 +14,7 @@ mod stages;
 pub mod step;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
-use crate::eval::{lower_stages, Env, EvalError, Plan};
+use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};
 use crate::model::Chain;
 use crate::units::format::from_si;
 
@@ -58,8 +58,10 @@ const SCAN_POINTS: usize = 201;
 /// evaluated, for `eval` and `budget` to show beside the finding. None
 /// when the whole range evaluates or no stretch does.
 pub fn evaluable_part(chain: &Chain) -> Option<Chain> {
-    let (plan, fitted) = lower_stages(chain).ok()?;
-    if fitted.is_ok() {
+    let (plan, fitted) = lower_unvalidated(chain).ok()?;
+    let valid = valid_measurand_range(&plan);
+    let narrowed = valid != plan.range;
+    if valid.0 >= valid.1 || fitted.is_ok() && !narrowed {
         return None;
     }
     let ambients = budget::ambients(chain);
@@ -86,7 +88,7 @@ pub fn evaluable_part(chain: &Chain) -> Option<Chain> {
                 .all(|values| plan.exact_code(values, &env, plan.adc).is_ok())
         })
     };
-    let grid = crate::eval::grid(plan.range, SCAN_POINTS);
+    let grid = crate::eval::grid(valid, SCAN_POINTS);
     let ok: Vec<bool> = grid.iter().map(|&m| evaluates(m)).collect();
     // The longest run of points that evaluate.
     let (mut best, mut start) = (None::<(usize, usize)>, None);
@@ -103,7 +105,7 @@ pub fn evaluable_part(chain: &Chain) -> Option<Chain> {
         }
     }
     let (first, last) = best?;
-    if first == 0 && last == grid.len() - 1 || first == last {
+    if first == 0 && last == grid.len() - 1 && !narrowed || first == last {
         return None;
     }
     // Each end bisected to where evaluation stops.

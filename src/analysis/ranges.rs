@@ -245,10 +245,15 @@ fn value(plan: &Plan, values: &[f64], s: &[Signal], check: &Check) -> f64 {
                     driven.then(|| {
                         let leads = match node {
                             Node::Rtd {
-                                lead: Some(l),
-                                lead_factor,
+                                leads: Some((a, b)),
+                                wiring,
                                 ..
-                            } if *lead_factor == 0.0 => 2.0 * values[*l] * current,
+                            } => {
+                                let (a, b) = (values[*a], values[*b]);
+                                let unseen = crate::physics::rtd::lead_loop_resistance(a, b)
+                                    - crate::physics::rtd::lead_series_resistance(*wiring, a, b);
+                                unseen * current
+                            }
                             _ => 0.0,
                         };
                         voltage(n) + leads

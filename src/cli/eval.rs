@@ -9,7 +9,7 @@ use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::{eval_finding, evaluable_part};
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
-use crate::eval::{lower, lower_stages, Env, Node, Plan, Signal};
+use crate::eval::{lower, lower_unvalidated, Env, Node, Plan, Signal};
 use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
@@ -73,14 +73,16 @@ pub fn run(args: EvalArgs) -> u8 {
             }
         },
     };
-    let (plan, fitted) = match lower_stages(chain) {
+    // A sensor outside its range of validity is already among the errors:
+    // the stages still show what they do as written.
+    let (plan, fitted) = match lower_unvalidated(chain) {
         Ok(p) => p,
         Err(e) => return report_one(chain, &e, None, errors),
     };
-    // No conversion over the whole range (a sensor outside its valid
-    // range): the part of the range that evaluates still has one.
-    let (plan, fitted) = match (&fitted, evaluable_part(chain)) {
-        (Err(_), Some(part)) if part_covers(&part, at) => match lower(&part) {
+    // No conversion over the whole range, or a sensor valid over part of
+    // it: the part of the range that evaluates still has one.
+    let (plan, fitted) = match evaluable_part(chain) {
+        Some(part) if part_covers(&part, at) => match lower(&part) {
             Ok(p) => (p, Ok(())),
             Err(_) => (plan, fitted),
         },

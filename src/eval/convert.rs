@@ -441,7 +441,7 @@ impl Conversion {
         // The chain as built (its actual values), averaged to its exact code.
         let mut codes = [0.0; 2];
         for (code, p) in codes.iter_mut().zip(self.calibration_points()) {
-            *code = plan.exact_code(values, &calibration_env(plan, p), self.adc)?;
+            *code = plan.calibration_code(values, &calibration_env(plan, p), self.adc)?;
         }
         self.calibrated_from(plan, values, &codes)
     }

@@ -9,13 +9,14 @@ use super::plan::{
     AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
     SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
 };
-use super::run::MAX_NODES;
+use super::run::{within, MAX_NODES};
 use crate::model::ports::Port;
 use crate::model::value::{Basis, Measure, ParamValue, Tolerance};
 use crate::model::{Chain, Stage};
 use crate::physics::adc::Polarity;
 use crate::physics::rtd::{self, ToleranceClass};
 use crate::physics::thermocouple::ThermocoupleType;
+use crate::physics::transducer::LinearityLine;
 use crate::syntax::ast::StageKind;
 use crate::units::{Dim, ZERO_CELSIUS_K};
 
@@ -123,6 +124,15 @@ pub fn lower(chain: &Chain) -> Result<Plan, EvalError> {
 /// still evaluate up to the converter, which is where the cause shows (a
 /// stage beyond its limit). Its conversions are not to be used then.
 pub fn lower_stages(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), EvalError> {
+    let (plan, fitted) = lower_unvalidated(chain)?;
+    check_validity(&plan, chain.ambient)?;
+    Ok((plan, fitted))
+}
+
+/// [`lower_stages`] without asking each sensor whether the true ranges lie
+/// inside its range of validity: for showing the part of a range that
+/// does ([`valid_measurand_range`]).
+pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), EvalError> {
     let chain_name = chain.name.clone();
     let Some(measurand) = &chain.measurand else {
         return Err(not_invertible(&chain_name, "the chain has no measurand"));
@@ -380,6 +390,12 @@ pub fn lower_stages(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), Eval
                     full_scale: *at,
                     zero,
                     nonlinearity: limit(&mut slots, "nonlinearity"),
+                    // Terminal-based unless the datasheet says otherwise:
+                    // common practice for load cells.
+                    linearity: match word(stage, "linearity") {
+                        Some("best_fit") => LinearityLine::BestFit,
+                        _ => LinearityLine::Terminal,
+                    },
                     hysteresis: limit(&mut slots, "hysteresis"),
                     zero_drift: limit(&mut slots, "zero_drift"),
                     span_drift: limit(&mut slots, "span_drift"),
@@ -407,13 +423,30 @@ pub fn lower_stages(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), Eval
                     Some("half") => BridgeKind::Half,
                     _ => BridgeKind::Full,
                 };
-                let (r, drift) = match measure(stage, "r") {
-                    Some(m) => (
-                        Some(slots.measure(id("r"), m)),
-                        drift_of(&mut slots, "r", m),
-                    ),
+                // Each completion resistor is its own part, with its own
+                // tolerance and drift.
+                let parts = match kind {
+                    BridgeKind::Quarter => 3,
+                    BridgeKind::Half => 2,
+                    BridgeKind::Divider { .. } | BridgeKind::Full => 1,
+                };
+                let mut completion = Vec::new();
+                if let Some(m) = measure(stage, "r") {
+                    for k in 1..=parts {
+                        let name = if parts == 1 {
+                            "r".to_string()
+                        } else {
+                            format!("r_{k}")
+                        };
+                        completion
+                            .push((slots.measure(id(&name), m), drift_of(&mut slots, &name, m)));
+                    }
+                }
+                let (r, drift) = match completion.first() {
+                    Some(&(r, drift)) => (Some(r), drift),
                     None => (None, None),
                 };
+                let others = completion.get(1..).unwrap_or_default().to_vec();
                 let exc = input(si, Port::Exc)
                     .ok_or_else(|| not_invertible(&stage.name, "no excitation"))?;
                 let arms = chain
@@ -426,6 +459,7 @@ pub fn lower_stages(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), Eval
                     kind,
                     r,
                     drift,
+                    others,
                     exc,
                     arms,
                 }
@@ -593,6 +627,102 @@ pub fn lower_stages(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), Eval
     Ok((plan, fitted))
 }
 
+/// The part of the measurand range where every sensor that senses the
+/// measurand is inside its model's and its class's range of validity; an
+/// empty range (low > high) when there is none.
+pub fn valid_measurand_range(plan: &Plan) -> (f64, f64) {
+    let mut range = plan.range;
+    for node in &plan.nodes {
+        let Some((Senses::Measurand, ranges)) = validity(node) else {
+            continue;
+        };
+        for (_, (low_c, high_c)) in ranges.into_iter().flatten() {
+            range.0 = range.0.max(low_c + ZERO_CELSIUS_K);
+            range.1 = range.1.min(high_c + ZERO_CELSIUS_K);
+        }
+    }
+    range
+}
+
+/// Every sensor with a range of validity (a tolerance class's, or a
+/// stated one) against the true temperatures it will see: the measurand
+/// range, or the ambient range at a cold junction. A tolerance moves the
+/// reading, not the sensor, so this is asked of the true range once, not
+/// of each reading a tolerance shifts.
+fn check_validity(plan: &Plan, ambient: (f64, f64)) -> Result<(), EvalError> {
+    for (i, node) in plan.nodes.iter().enumerate() {
+        let Some((senses, ranges)) = validity(node) else {
+            continue;
+        };
+        let (low, high) = match senses {
+            Senses::Measurand => plan.range,
+            Senses::ColdJunction => ambient,
+        };
+        // The model's own range first: it is the root cause when both fail.
+        for (what, range_c) in ranges.into_iter().flatten() {
+            for t in [low, high] {
+                if within(t - ZERO_CELSIUS_K, range_c).is_none() {
+                    return Err(plan.out_of_range(i, &what, t, range_c));
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+/// What a sensor node senses and where it is valid, °C: its model's range,
+/// then its class's or stated range.
+type Validity = (Senses, [Option<(String, (f64, f64))>; 2]);
+
+fn validity(node: &Node) -> Option<Validity> {
+    let kelvin = |(lo, hi): (f64, f64)| (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
+    match node {
+        Node::Rtd {
+            curve,
+            senses,
+            valid,
+            ..
+        } => Some((
+            *senses,
+            [
+                Some(("the element's curve".to_string(), curve.range_c())),
+                valid.map(|v| ("its tolerance class".to_string(), kelvin(v))),
+            ],
+        )),
+        Node::Thermistor { senses, valid, .. } => Some((
+            *senses,
+            [
+                None,
+                valid.map(|v| ("its stated range".to_string(), kelvin(v))),
+            ],
+        )),
+        Node::Thermocouple { ty, senses, class } => Some((
+            *senses,
+            [
+                Some((format!("type {} thermocouple", ty.letter()), ty.range_c())),
+                class.map(|class| {
+                    (
+                        format!("class {class} of a type {} thermocouple", ty.letter()),
+                        crate::physics::thermocouple::class_range_c(*ty, class)
+                            .unwrap_or((f64::NAN, f64::NAN)),
+                    )
+                }),
+            ],
+        )),
+        Node::Excitation { .. }
+        | Node::IcVoltage { .. }
+        | Node::IcCurrent { .. }
+        | Node::StrainGauge { .. }
+        | Node::Transducer { .. }
+        | Node::Resistor { .. }
+        | Node::Bridge { .. }
+        | Node::Amplifier { .. }
+        | Node::Filter { .. }
+        | Node::Adc { .. }
+        | Node::Convert { .. } => None,
+    }
+}
+
 /// For each current source driving two or more elements, those elements
 /// (stage indices) in edge order.
 fn series_strings(chain: &Chain) -> Vec<Vec<usize>> {
@@ -656,18 +786,19 @@ fn rtd_node(
         Some(m) => slots.measure(id("r0"), m),
         None => slots.exact(id("r0"), default_r0),
     };
-    let wires = count(stage, "wires").unwrap_or(4);
-    let lead_measure = measure(stage, "lead");
-    let lead = lead_measure.map(|m| slots.measure(id("lead"), m));
-    // Three wires cancel the leads only as far as two of them match: the
-    // difference of two independent leads within ±t lies within ±2t.
-    let mismatch = match (wires, lead_measure.and_then(|m| m.tolerance.as_ref())) {
-        (3, Some(t)) => {
-            let (minus, plus, normal) = limits(t, lead_measure.map(|m| m.nominal).unwrap_or(0.0));
-            Some(slots.add(id("lead_mismatch"), 0.0, 2.0 * minus, 2.0 * plus, normal))
-        }
-        _ => None,
+    let wiring = match count(stage, "wires") {
+        Some(2) => rtd::Wiring::TwoWire,
+        Some(3) => rtd::Wiring::ThreeWire,
+        _ => rtd::Wiring::FourWire,
     };
+    // Each wire has its own resistance within the stated tolerance: two
+    // independent sources, which the wiring combines.
+    let leads = measure(stage, "lead").map(|m| {
+        (
+            slots.measure(id("lead_1"), m),
+            slots.measure(id("lead_2"), m),
+        )
+    });
     let dissipation = measure(stage, "dissipation").map(|m| slots.measure(id("dissipation"), m));
     let class = word(stage, "class").map(|c| match c {
         "AA" => ToleranceClass::AA,
@@ -679,26 +810,29 @@ fn rtd_node(
         let (lo, hi) = class.wire_wound_range_c();
         (lo + ZERO_CELSIUS_K, hi + ZERO_CELSIUS_K)
     });
+    // The class as the R0 and coefficient tolerances it comes from, so a
+    // calibration removes what it really removes.
+    let deviation = class.map(|class| {
+        let d = rtd::class_deviation(class);
+        (
+            slots.add(id("class_r0"), 0.0, d.r0, d.r0, false),
+            slots.add(id("class_alpha"), 0.0, d.alpha, d.alpha, false),
+        )
+    });
     let mut error = SenseError::default();
-    if let Some(class) = class {
-        error.class = Some((
-            ClassTolerance::Rtd(class),
-            slots.add(id("class"), 0.0, 1.0, 1.0, false),
-        ));
-    }
     if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
         stated_error(&mut error, slots, id("tolerance"), t, zero);
     }
     let node = Node::Rtd {
         curve,
         r0,
-        lead_factor: if wires == 2 { 2.0 } else { 0.0 },
-        lead,
-        mismatch,
+        wiring,
+        leads,
         dissipation,
         input,
         senses,
         valid,
+        deviation,
     };
     Ok((node, error))
 }

@@ -8,12 +8,13 @@
 //! allocates nothing and looks nothing up by name.
 
 mod convert;
+mod element;
 mod lower;
 mod plan;
 mod run;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
-pub use lower::{lower, lower_stages};
+pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use plan::{
     BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal,
     Slot, SlotId, SourceKind,

@@ -72,8 +72,9 @@ impl SourceKind {
             "gain_error" => SourceKind::Gain,
             "bias" => SourceKind::Bias,
             "cmrr" => SourceKind::CommonMode,
-            "class" | "tolerance" | "accuracy" => SourceKind::Sensor,
-            "lead" | "lead_mismatch" => SourceKind::Lead,
+            "tolerance" | "accuracy" => SourceKind::Sensor,
+            p if p.starts_with("class") => SourceKind::Sensor,
+            p if p.starts_with("lead") => SourceKind::Lead,
             "cold_junction" => SourceKind::ColdJunction,
             "nonlinearity" | "hysteresis" => SourceKind::Nonlinearity,
             "inl" => SourceKind::Inl,
@@ -132,16 +133,18 @@ pub enum Node {
     Rtd {
         curve: RtdCurve,
         r0: SlotId,
-        /// Series lead resistance the measurement sees (2-wire: both leads).
-        lead_factor: f64,
-        lead: Option<SlotId>,
-        /// 3-wire: the difference between the two compensated leads.
-        mismatch: Option<SlotId>,
+        /// How the leads enter the measurement.
+        wiring: crate::physics::rtd::Wiring,
+        /// The two leads to the element's ends, each its own source.
+        leads: Option<(SlotId, SlotId)>,
         dissipation: Option<SlotId>,
         input: Option<NodeId>,
         senses: Senses,
         /// Class validity range, kelvin, when a class is given.
         valid: Option<(f64, f64)>,
+        /// The class's R0 and coefficient deviations (relative, nominal
+        /// 0), when a class is given.
+        deviation: Option<(SlotId, SlotId)>,
     },
     Thermocouple {
         ty: ThermocoupleType,
@@ -182,8 +185,11 @@ pub enum Node {
         full_scale: f64,
         zero: Option<SlotId>,
         /// Nonlinearity and hysteresis, each a fraction of full-scale
-        /// output, nominal 0.
+        /// output, nominal 0: the nonlinearity along its shape against
+        /// `linearity`'s line, the hysteresis as a bound no calibration
+        /// sees.
         nonlinearity: Option<SlotId>,
+        linearity: crate::physics::transducer::LinearityLine,
         hysteresis: Option<SlotId>,
         /// Zero and span coefficients per kelvin (of full scale).
         zero_drift: Option<SlotId>,
@@ -199,8 +205,12 @@ pub enum Node {
     },
     Bridge {
         kind: BridgeKind,
+        /// The completion resistor (the first, where there are several).
         r: Option<SlotId>,
         drift: Option<DriftSlot>,
+        /// The other completion resistors, each its own tolerance and
+        /// drift: a quarter bridge's r3 and r4, a half bridge's r4.
+        others: Vec<(SlotId, Option<DriftSlot>)>,
         exc: NodeId,
         arms: Vec<NodeId>,
     },
@@ -258,10 +268,10 @@ pub enum AdcOffset {
     Codes(SlotId),
 }
 
-/// A tolerance class whose half-width depends on the temperature.
+/// A tolerance class whose half-width depends on the temperature. (An
+/// RTD's class is its R0 and coefficient tolerances, on the element.)
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum ClassTolerance {
-    Rtd(crate::physics::rtd::ToleranceClass),
     Thermocouple(ThermocoupleType, u8),
 }
 

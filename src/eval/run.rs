@@ -2,12 +2,13 @@
 //! inputs' signals, the parameter values and the environment.
 
 use super::convert::{calibration_env, Calibrated, Conversion};
+use super::element::Supply;
 use super::plan::{
     AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
-    Senses, Signal, ThermistorCurve,
+    Senses, Signal,
 };
 use crate::physics::adc::Polarity;
-use crate::physics::{rtd, semiconductor, strain, thermistor, thermocouple};
+use crate::physics::{rtd, semiconductor, strain, thermocouple, transducer};
 use crate::units::ZERO_CELSIUS_K;
 
 /// What a run computes: conversions (the firmware model inside a
@@ -20,6 +21,9 @@ pub(super) struct Mode {
     /// Amplifiers clip at their swing and rail outside their common-mode
     /// range; off, they amplify linearly, to see how far a signal would go.
     clip: bool,
+    /// A calibration's reading of the chain: what depends on the direction
+    /// of approach (hysteresis) is not the reading's.
+    calibrating: bool,
 }
 
 impl Mode {
@@ -27,23 +31,52 @@ impl Mode {
         convert: true,
         quantized: true,
         clip: true,
+        calibrating: false,
     };
     const CODES: Mode = Mode {
         convert: false,
         quantized: true,
         clip: true,
+        calibrating: false,
     };
     const RAW: Mode = Mode {
         convert: false,
         quantized: true,
         clip: false,
+        calibrating: false,
+    };
+    const CALIBRATION: Mode = Mode {
+        convert: false,
+        quantized: true,
+        clip: true,
+        calibrating: true,
     };
     const UNQUANTIZED: Mode = Mode {
         convert: true,
         quantized: false,
         clip: true,
+        calibrating: false,
     };
 }
+
+impl RtdCurve {
+    /// Where the curve is defined, °C.
+    pub fn range_c(self) -> (f64, f64) {
+        match self {
+            RtdCurve::Cvd { .. } => CVD_RANGE_C,
+            RtdCurve::Nickel => NICKEL_RANGE_C,
+            RtdCurve::Copper => COPPER_RANGE_C,
+        }
+    }
+}
+
+/// A bridge's completion resistors: the first (value, drift) and the
+/// others, each its own part.
+type Completion<'a> = (
+    Option<usize>,
+    Option<DriftSlot>,
+    &'a [(usize, Option<DriftSlot>)],
+);
 
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
 pub const MAX_NODES: usize = 32;
@@ -117,6 +150,21 @@ impl Plan {
         }
     }
 
+    /// [`Plan::exact_code`] as a calibration reads it.
+    pub(super) fn calibration_code(
+        &self,
+        values: &[f64],
+        env: &Env,
+        adc: NodeId,
+    ) -> Result<f64, EvalError> {
+        let mut signals = [Signal::None; MAX_NODES];
+        self.run(values, env, &mut signals, adc + 1, Mode::CALIBRATION)?;
+        match signals[adc] {
+            Signal::Code { exact, .. } => Ok(exact),
+            _ => Err(self.numeric(adc, "no code")),
+        }
+    }
+
     /// Runs nodes `0..until`.
     pub(super) fn run(
         &self,
@@ -148,8 +196,11 @@ impl Plan {
 
     /// The temperature node `i` senses, as its own tolerance makes it
     /// read: the true one plus its class's (temperature-dependent) error
-    /// and any stated absolute error.
-    fn sensed(&self, i: NodeId, senses: Senses, env: &Env, values: &[f64]) -> f64 {
+    /// and any stated absolute error. Whether the true temperature is
+    /// inside the sensor's range of validity is the plan's question, asked
+    /// once of the whole range (`lower::check_validity`), not of each
+    /// shifted reading.
+    pub(super) fn sensed(&self, i: NodeId, senses: Senses, env: &Env, values: &[f64]) -> f64 {
         let t = match senses {
             Senses::Measurand => env.measurand,
             Senses::ColdJunction => env.cold_junction,
@@ -158,7 +209,6 @@ impl Plan {
         let class = error.class.map(|(class, slot)| {
             let t_c = t - ZERO_CELSIUS_K;
             let half_width = match class {
-                ClassTolerance::Rtd(c) => rtd::tolerance_k(c, t_c),
                 ClassTolerance::Thermocouple(ty, c) => thermocouple::class_tolerance_k(ty, c, t_c),
             };
             values[slot] * half_width.unwrap_or(0.0)
@@ -181,7 +231,13 @@ impl Plan {
         }
     }
 
-    fn out_of_range(&self, node: NodeId, what: &str, t_k: f64, range_c: (f64, f64)) -> EvalError {
+    pub(super) fn out_of_range(
+        &self,
+        node: NodeId,
+        what: &str,
+        t_k: f64,
+        range_c: (f64, f64),
+    ) -> EvalError {
         EvalError::OutOfRange {
             stage: self.names[node].clone(),
             what: what.to_string(),
@@ -235,55 +291,22 @@ impl Plan {
                 }
             }
             Node::Rtd {
-                curve,
-                r0,
-                lead_factor,
-                lead,
-                mismatch,
-                dissipation,
+                wiring,
+                leads,
                 input,
-                senses,
-                valid,
+                ..
             } => {
-                let t = self.sensed(i, *senses, env, values);
-                let range = match curve {
-                    RtdCurve::Cvd { .. } => CVD_RANGE_C,
-                    RtdCurve::Nickel => NICKEL_RANGE_C,
-                    RtdCurve::Copper => COPPER_RANGE_C,
-                };
-                let t_c = within(t - ZERO_CELSIUS_K, range)
-                    .ok_or_else(|| self.out_of_range(i, "the element's curve", t, range))?;
-                if let Some((lo, hi)) = valid {
-                    let range = (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
-                    within(t_c, range)
-                        .ok_or_else(|| self.out_of_range(i, "its tolerance class", t, range))?;
-                }
-                let r_at = |t_c: f64| match curve {
-                    RtdCurve::Cvd { a, b, c } => rtd::resistance(
-                        values[*r0],
-                        rtd::CvdCoefficients {
-                            a: *a,
-                            b: *b,
-                            c: *c,
-                        },
-                        t_c,
-                    ),
-                    RtdCurve::Nickel => {
-                        rtd::nickel_resistance(values[*r0], rtd::NickelCoefficients::DIN_43760, t_c)
-                    }
-                    RtdCurve::Copper => rtd::linear_resistance(values[*r0], rtd::COPPER_ALPHA, t_c),
-                };
-                let mut r = r_at(t_c);
-                if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
-                    let rise_per_ohm = a * a / values[*d];
-                    r = self_heated(r, false, |r| Ok::<_, ()>(r_at(t_c + rise_per_ohm * r)))
-                        .unwrap_or(r);
-                }
-                let lead = lead.map(|l| values[l]).unwrap_or(0.0);
-                let mismatch = mismatch.map(|m| values[m]).unwrap_or(0.0);
-                element(r + lead_factor * lead + mismatch, *input)
+                let r = self.driven_element(i, values, env, current_into(*input))?;
+                let lead = leads
+                    .map(|(a, b)| rtd::lead_series_resistance(*wiring, values[a], values[b]))
+                    .unwrap_or(0.0);
+                element(r + lead, *input)
             }
-            Node::Thermocouple { ty, senses, class } => {
+            Node::Thermocouple {
+                ty,
+                senses,
+                class: _,
+            } => {
                 let range = ty.range_c();
                 let t = self.sensed(i, *senses, env, values) - ZERO_CELSIUS_K;
                 // Messages are built only on the way out: this runs in
@@ -291,14 +314,6 @@ impl Plan {
                 let kind = || format!("type {} thermocouple", ty.letter());
                 let t = within(t, range)
                     .ok_or_else(|| self.out_of_range(i, &kind(), t + ZERO_CELSIUS_K, range))?;
-                if let Some(class) = class {
-                    let class_range =
-                        thermocouple::class_range_c(*ty, *class).unwrap_or((f64::NAN, f64::NAN));
-                    within(t, class_range).ok_or_else(|| {
-                        let what = format!("class {class} of a type {} thermocouple", ty.letter());
-                        self.out_of_range(i, &what, t + ZERO_CELSIUS_K, class_range)
-                    })?;
-                }
                 let e = |t_c: f64| {
                     thermocouple::emf_mv(*ty, t_c).map_err(|e| {
                         self.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high))
@@ -315,47 +330,8 @@ impl Plan {
                     rs: 0.0,
                 }
             }
-            Node::Thermistor {
-                r25,
-                curve,
-                dissipation,
-                input,
-                senses,
-                valid,
-            } => {
-                let t = self.sensed(i, *senses, env, values);
-                if let Some((lo, hi)) = valid {
-                    let range = (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
-                    within(t - ZERO_CELSIUS_K, range)
-                        .ok_or_else(|| self.out_of_range(i, "its stated range", t, range))?;
-                }
-                let r_at = |t: f64| match curve {
-                    ThermistorCurve::Beta { beta } => thermistor::beta_resistance(
-                        values[*r25],
-                        25.0 + ZERO_CELSIUS_K,
-                        values[*beta],
-                        t,
-                    ),
-                    ThermistorCurve::SteinhartHart { a, b, c } => thermistor::sh_resistance(
-                        thermistor::SteinhartHart {
-                            a: *a,
-                            b: *b,
-                            c: *c,
-                        },
-                        t,
-                    ),
-                };
-                let bad = |_| {
-                    self.numeric(
-                        i,
-                        "the thermistor curve has no resistance at this temperature",
-                    )
-                };
-                let mut r = r_at(t).map_err(bad)?;
-                if let (Some(a), Some(d)) = (current_into(*input), dissipation) {
-                    let rise_per_ohm = a * a / values[*d];
-                    r = self_heated(r, true, |r| r_at(t + rise_per_ohm * r)).map_err(bad)?;
-                }
+            Node::Thermistor { input, .. } => {
+                let r = self.driven_element(i, values, env, current_into(*input))?;
                 element(r, *input)
             }
             Node::IcVoltage {
@@ -399,6 +375,7 @@ impl Plan {
                 full_scale,
                 zero,
                 nonlinearity,
+                linearity,
                 hysteresis,
                 zero_drift,
                 span_drift,
@@ -410,8 +387,17 @@ impl Plan {
                 let s_fs = values[*sensitivity];
                 // Output as a ratio of excitation (or volts): span with its
                 // drift, then the errors stated as fractions of full scale.
-                let fraction = s_fs * (1.0 + slot(span_drift) * dt) * env.measurand / full_scale
-                    + s_fs * (slot(nonlinearity) + slot(hysteresis) + slot(zero_drift) * dt)
+                let u = env.measurand / full_scale;
+                let bow = transducer::nonlinearity_shape(*linearity, u);
+                // Hysteresis depends on the direction of approach: the
+                // calibration's is not the reading's, so it sees none.
+                let hysteresis = if mode.calibrating {
+                    0.0
+                } else {
+                    slot(hysteresis)
+                };
+                let fraction = s_fs * (1.0 + slot(span_drift) * dt) * u
+                    + s_fs * (slot(nonlinearity) * bow + hysteresis + slot(zero_drift) * dt)
                     + slot(zero);
                 let (v, cm) = match (ratiometric, input.map(|n| s[n])) {
                     (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
@@ -434,9 +420,10 @@ impl Plan {
                 kind,
                 r,
                 drift,
+                others,
                 exc,
                 arms,
-            } => self.bridge(i, *kind, *r, *drift, *exc, arms, values, env, s)?,
+            } => self.bridge(i, *kind, (*r, *drift, others), *exc, arms, values, env, s)?,
             Node::Amplifier {
                 gain,
                 offset,
@@ -562,8 +549,7 @@ impl Plan {
         &self,
         i: NodeId,
         kind: BridgeKind,
-        r: Option<usize>,
-        drift: Option<DriftSlot>,
+        (r, drift, others): Completion,
         exc: NodeId,
         arms: &[NodeId],
         values: &[f64],
@@ -573,6 +559,13 @@ impl Plan {
         let fixed = r
             .map(|r| self.drifted(values[r], drift, values, env))
             .unwrap_or(0.0);
+        // Each further completion resistor is its own part.
+        let other = |k: usize| {
+            others
+                .get(k)
+                .map(|&(r, drift)| self.drifted(values[r], drift, values, env))
+                .unwrap_or(fixed)
+        };
         let arm = |k: usize| match arms.get(k).map(|&n| s[n]) {
             Some(Signal::Element(r)) => Ok(r),
             _ => Err(self.numeric(i, "a bridge arm has no element")),
@@ -583,7 +576,16 @@ impl Plan {
         // order go to r2, r3, r1, r4.
         let (r1, r2, r3, r4) = match kind {
             BridgeKind::Divider { sensor_high } => {
-                let element = arm(0)?;
+                // A current source's current flows through the lower resistor.
+                let supply = match s[exc] {
+                    Signal::Source(v) => Supply::Voltage { v, other: fixed },
+                    Signal::Current(a) if !sensor_high => Supply::Current(a),
+                    _ => Supply::None,
+                };
+                let element = match arms.first() {
+                    Some(&n) => self.heated_divider_element(n, arm(0)?, supply, values, env)?,
+                    None => arm(0)?,
+                };
                 let (low, high) = if sensor_high {
                     (fixed, element)
                 } else {
@@ -601,10 +603,18 @@ impl Plan {
                 };
                 return Ok(Signal::Voltage { v, cm: v / 2.0, rs });
             }
-            BridgeKind::Quarter => (fixed, arm(0)?, fixed, fixed),
-            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, fixed),
+            BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
+            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
+        let at = |k: usize| arms.get(k).copied();
+        let placed = match kind {
+            BridgeKind::Quarter => [None, at(0), None, None],
+            BridgeKind::Half => [None, at(0), at(1), None],
+            BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
+        };
+        let [r1, r2, r3, r4] =
+            self.heated_bridge_arms([r1, r2, r3, r4], placed, s[exc], values, env)?;
         let v_exc = match s[exc] {
             Signal::Source(v) => v,
             Signal::Current(a) => a * ((r1 + r2) * (r3 + r4) / (r1 + r2 + r3 + r4)),
@@ -627,36 +637,11 @@ fn junction_c(ty: thermocouple::ThermocoupleType, env: &Env) -> f64 {
 
 /// Range ends written in °C come back through kelvin a few ulps off;
 /// within a nanokelvin of an end counts as the end.
-fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
+pub(super) fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
     const SLACK: f64 = 1e-9;
     (lo - SLACK..=hi + SLACK)
         .contains(&t_c)
         .then(|| t_c.clamp(lo, hi))
-}
-
-/// The resistance of an element that self-heats by I²R/δ: the fixed point
-/// of `r = at(r)` (`at` the resistance at the temperature the element
-/// reaches dissipating in `r`), from `cold`, its resistance unheated. The
-/// map contracts strongly (|dr'/dr| = I²/δ · |dR/dT| ≪ 1), so two steps
-/// and Aitken's Δ² extrapolation land where many plain steps would. What
-/// Aitken leaves grows with the curve's curvature: for an RTD (nearly
-/// straight) it is within 1e-10 Ω of the settled value at 2 K of heating;
-/// a thermistor's `curved` response takes one more step.
-fn self_heated<E>(cold: f64, curved: bool, at: impl Fn(f64) -> Result<f64, E>) -> Result<f64, E> {
-    let r1 = at(cold)?;
-    let r2 = at(r1)?;
-    let curvature = (r2 - r1) - (r1 - cold);
-    let extrapolated = r2 - (r2 - r1) * (r2 - r1) / curvature;
-    let r = if extrapolated.is_finite() {
-        extrapolated
-    } else {
-        r2
-    };
-    if curved {
-        at(r)
-    } else {
-        Ok(r)
-    }
 }
 
 /// The nearest code (halves away from zero) within `lo ..= hi`, both
@@ -863,7 +848,7 @@ impl Plan {
                 &calibration_env(self, p),
                 signals,
                 self.adc + 1,
-                Mode::CODES,
+                Mode::CALIBRATION,
             )?;
             for (k, lane_codes) in codes.iter_mut().enumerate() {
                 let Signal::Code { exact, .. } = signals[k][self.adc] else {
@@ -935,7 +920,8 @@ impl Plan {
 
 #[cfg(test)]
 mod tests {
-    use super::{round_code, self_heated};
+    use super::super::element::self_heated;
+    use super::round_code;
     use crate::physics::{rtd, thermistor};
 
     /// The fixed point by plain iteration, far past convergence.

@@ -315,6 +315,7 @@ static MODELS: &[ModelSpec] = &[
                 Shape::Limit(Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE])),
             ),
             p("nonlinearity", Shape::Limit(Expect::Ratio)),
+            p("linearity", Shape::Words(&["terminal", "best_fit"])),
             p("hysteresis", Shape::Limit(Expect::Ratio)),
             p("zero_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),

@@ -11,3 +11,4 @@ pub mod strain;
 pub mod thermistor;
 pub mod thermocouple;
 pub mod thermocouple_coefficients;
+pub mod transducer;

@@ -216,6 +216,69 @@ pub fn tolerance_k(class: ToleranceClass, t_c: f64) -> Option<f64> {
     Some(fixed + prop * t_c.abs())
 }
 
+/// A tolerance class as the deviations it comes from: the element's R0 and
+/// its temperature coefficient, each a relative tolerance (limits ±).
+///
+/// IEC 60751:2008 Table 1 states the class as a limit on the deviation,
+/// ±(a + b|t|); physically an element deviates by its R0 (a shift that is
+/// a at 0 °C) and by its slope (which grows with |t|). Modelled as
+/// R = R0 (1 + ε0) (1 + (1 + εα)(W(t) − 1)), with W the IEC 60751 ratio, a
+/// two-point calibration removes what it really removes (nearly all of
+/// both), and no kink at 0 °C is left to stay behind. The bounds are chosen
+/// so the worst case of both stays within the class limit over the class's
+/// range: ε0 gives exactly a at 0 °C, εα is the largest that keeps every
+/// combination of signs within ±(a + b|t|) across the range. This split is
+/// a modelling assumption of ours, not a clause of the standard.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ClassDeviation {
+    /// Relative tolerance of R0.
+    pub r0: f64,
+    /// Relative tolerance of the temperature coefficient (of W − 1).
+    pub alpha: f64,
+}
+
+/// Points across a class's range at which [`class_deviation`] bounds εα.
+const CLASS_GRID: usize = 2000;
+
+/// The R0 and coefficient tolerances of `class` (see [`ClassDeviation`]).
+pub fn class_deviation(class: ToleranceClass) -> ClassDeviation {
+    let k = CvdCoefficients::IEC_60751;
+    let (a_k, b_k) = class.terms();
+    let r0 = ratio(k, a_k) - 1.0;
+    let (lo, hi) = class.wire_wound_range_c();
+    // W is monotonic, so a deviation within ±L at t is a resistance within
+    // W(t − L) … W(t + L): for each sign of each tolerance that is a bound
+    // on εα, exact and without an inverse.
+    let alpha = (0..=CLASS_GRID)
+        .map(|i| lo + (hi - lo) * i as f64 / CLASS_GRID as f64)
+        .flat_map(|t| {
+            let w = ratio(k, t);
+            let limit = a_k + b_k * t.abs();
+            let (low, high) = (ratio(k, t - limit), ratio(k, t + limit));
+            [(1.0, 1.0), (1.0, -1.0), (-1.0, 1.0), (-1.0, -1.0)].map(|(s0, sa)| {
+                let shifted = (1.0 + s0 * r0) * w;
+                let per_alpha = sa * (1.0 + s0 * r0) * (w - 1.0);
+                if per_alpha > 1e-12 {
+                    (high - shifted) / per_alpha
+                } else if per_alpha < -1e-12 {
+                    (low - shifted) / per_alpha
+                } else {
+                    f64::INFINITY
+                }
+            })
+        })
+        .fold(f64::INFINITY, f64::min);
+    ClassDeviation { r0, alpha }
+}
+
+/// The resistance of an element that deviates from its curve by `r0_dev`
+/// in R0 and `alpha_dev` in its coefficient (both relative), given the
+/// curve's resistance `r_curve` at the temperature and its nominal `r0`.
+#[inline]
+pub fn deviated_resistance(r_curve: f64, r0: f64, r0_dev: f64, alpha_dev: f64) -> f64 {
+    (1.0 + r0_dev) * (r0 + (1.0 + alpha_dev) * (r_curve - r0))
+}
+
 /// Nickel polynomial R = R0 (1 + A t + B t² + D t⁴ + F t⁶).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct NickelCoefficients {
@@ -334,24 +397,27 @@ pub enum Wiring {
 
 /// Lead resistance in Ω that the measurement adds in series with the element.
 ///
-/// Convention: wire 1 goes to one end of the element, wires 2 (and 3, 4) to
-/// the other; every wire has `r_lead_per_wire` Ω except wire 1, which has
-/// `r_lead_per_wire + r_lead_mismatch`. Two-wire sees wires 1 + 2; a
-/// three-wire circuit subtracts wire 2 from wire 1 and keeps the mismatch;
-/// four-wire senses at the element and sees no lead. The leads still carry
-/// the excitation: see [`lead_loop_resistance`] for compliance.
-pub fn lead_series_resistance(wiring: Wiring, r_lead_per_wire: f64, r_lead_mismatch: f64) -> f64 {
+/// Wire 1 goes to one end of the element, wire 2 to the other, each with
+/// its own resistance: two leads are two independent tolerances, so each
+/// is its own variable and the wiring says how they combine. Two-wire sees
+/// wires 1 + 2; three-wire subtracts wire 2 (sensed in the compensating
+/// path) from wire 1 and keeps their difference, which for two independent
+/// leads within ±t is triangular over ±2t (JCGM 100:2008 §4.3.9), not
+/// rectangular; four-wire senses at the element and sees no lead. The
+/// leads still carry the excitation: see [`lead_loop_resistance`] for
+/// compliance.
+pub fn lead_series_resistance(wiring: Wiring, lead_1: f64, lead_2: f64) -> f64 {
     match wiring {
-        Wiring::TwoWire => 2.0 * r_lead_per_wire + r_lead_mismatch,
-        Wiring::ThreeWire => r_lead_mismatch,
+        Wiring::TwoWire => lead_1 + lead_2,
+        Wiring::ThreeWire => lead_1 - lead_2,
         Wiring::FourWire => 0.0,
     }
 }
 
 /// Lead resistance in Ω in the excitation current's path (wires 1 and 2),
 /// whatever the wiring: what a current source's compliance must cover.
-pub fn lead_loop_resistance(r_lead_per_wire: f64, r_lead_mismatch: f64) -> f64 {
-    2.0 * r_lead_per_wire + r_lead_mismatch
+pub fn lead_loop_resistance(lead_1: f64, lead_2: f64) -> f64 {
+    lead_1 + lead_2
 }
 
 /// Power in W dissipated by `current_a` A through `resistance_ohm` Ω (I²R).
@@ -528,13 +594,59 @@ mod tests {
         );
     }
 
+    /// IEC 60751:2008 Table 1: the class limit ±(a + b|t|) over each
+    /// class's range. The deviation R0 and coefficient tolerances allow,
+    /// worked exactly through the inverse, stays within it at every degree,
+    /// equals it at 0 °C and comes within 2 % of it at the range's top end,
+    /// where the coefficient bound is set (so the uncalibrated worst case is
+    /// the class's, not less).
+    #[test]
+    fn class_deviation_holds_the_class_limit() {
+        for class in [
+            ToleranceClass::AA,
+            ToleranceClass::A,
+            ToleranceClass::B,
+            ToleranceClass::C,
+        ] {
+            let d = class_deviation(class);
+            let (lo, hi) = class.wire_wound_range_c();
+            let worst = |t: f64| {
+                let mut worst: f64 = 0.0;
+                for (s0, sa) in [(1.0, 1.0), (1.0, -1.0), (-1.0, 1.0), (-1.0, -1.0)] {
+                    let r = deviated_resistance(
+                        resistance(100.0, IEC, t),
+                        100.0,
+                        s0 * d.r0,
+                        sa * d.alpha,
+                    );
+                    worst = worst.max((temperature(100.0, IEC, r).unwrap() - t).abs());
+                }
+                worst
+            };
+            let mut t = lo;
+            while t <= hi {
+                let limit = tolerance_k(class, t).unwrap();
+                assert!(
+                    worst(t) <= limit * (1.0 + 1e-9),
+                    "{class:?} {t}: {}",
+                    worst(t)
+                );
+                t += 1.0;
+            }
+            let at_zero = tolerance_k(class, 0.0).unwrap();
+            assert!((worst(0.0) - at_zero).abs() < 1e-9 * at_zero, "{class:?}");
+            let top = tolerance_k(class, hi).unwrap();
+            assert!(worst(hi) > 0.98 * top, "{class:?}: {} vs {top}", worst(hi));
+        }
+    }
+
     #[test]
     fn lead_wiring() {
-        let (r, dr) = (0.5, 0.02);
-        assert!((lead_series_resistance(Wiring::TwoWire, r, dr) - 1.02).abs() < 1e-15);
-        assert!((lead_series_resistance(Wiring::ThreeWire, r, dr) - 0.02).abs() < 1e-15);
-        assert_eq!(lead_series_resistance(Wiring::FourWire, r, dr), 0.0);
-        assert!((lead_loop_resistance(r, dr) - 1.02).abs() < 1e-15);
+        let (r1, r2) = (0.52, 0.5);
+        assert!((lead_series_resistance(Wiring::TwoWire, r1, r2) - 1.02).abs() < 1e-15);
+        assert!((lead_series_resistance(Wiring::ThreeWire, r1, r2) - 0.02).abs() < 1e-15);
+        assert_eq!(lead_series_resistance(Wiring::FourWire, r1, r2), 0.0);
+        assert!((lead_loop_resistance(r1, r2) - 1.02).abs() < 1e-15);
     }
 
     /// Worked by hand: 1 mA in 100 Ω dissipates (1e-3 A)² × 100 Ω = 100 µW;

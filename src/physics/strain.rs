@@ -87,6 +87,19 @@ pub fn divider_output(v: f64, r_low: f64, r_high: f64) -> Res<f64> {
     Ok(v * r_low / (r_low + r_high))
 }
 
+/// Power in W an element of `r` Ω dissipates in series with `r_series` Ω
+/// across `v` V (one side of a divider or of a bridge):
+/// P = I² r = v² r / (r + r_series)² (Ohm's and Joule's laws). Zero when
+/// both are zero (no current path).
+pub fn series_element_power_w(v: f64, r: f64, r_series: f64) -> f64 {
+    let total = r + r_series;
+    if total == 0.0 {
+        return 0.0;
+    }
+    let current = v / total;
+    current * current * r
+}
+
 /// The two output node voltages (V_P, V_N) of the bridge, in V above 0 V.
 fn nodes(v_exc: f64, r1: f64, r2: f64, r3: f64, r4: f64) -> Res<(f64, f64)> {
     Ok((

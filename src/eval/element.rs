@@ -1,0 +1,372 @@
+//! Resistive temperature elements: their resistance at the temperature
+//! they sense plus any self-heating, and the self-heating fixed point
+//! wherever they sit (on a current source, in a divider or a bridge).
+
+use super::plan::Signal;
+use super::plan::{Env, EvalError, Node, NodeId, Plan, RtdCurve, ThermistorCurve};
+use super::run::within;
+use crate::physics::{rtd, strain, thermistor};
+use crate::units::ZERO_CELSIUS_K;
+
+/// What drives a divider's element: a voltage across it in series with
+/// the divider's other resistor, a current through it, or nothing.
+#[derive(Clone, Copy, Debug)]
+pub(super) enum Supply {
+    Voltage { v: f64, other: f64 },
+    Current(f64),
+    None,
+}
+
+/// How an element heats: its dissipation constant's slot and whether its
+/// response is strongly curved (a thermistor), for [`self_heated`].
+#[derive(Clone, Copy, Debug)]
+pub(super) struct Heating {
+    pub dissipation: usize,
+    pub curved: bool,
+}
+
+impl Plan {
+    /// The element's self-heating, if it states a dissipation constant.
+    #[inline]
+    pub(super) fn heating(&self, n: NodeId) -> Option<Heating> {
+        match &self.nodes[n] {
+            Node::Rtd {
+                dissipation: Some(d),
+                ..
+            } => Some(Heating {
+                dissipation: *d,
+                curved: false,
+            }),
+            Node::Thermistor {
+                dissipation: Some(d),
+                ..
+            } => Some(Heating {
+                dissipation: *d,
+                curved: true,
+            }),
+            Node::Rtd {
+                dissipation: None, ..
+            }
+            | Node::Thermistor {
+                dissipation: None, ..
+            }
+            | Node::Excitation { .. }
+            | Node::Thermocouple { .. }
+            | Node::IcVoltage { .. }
+            | Node::IcCurrent { .. }
+            | Node::StrainGauge { .. }
+            | Node::Transducer { .. }
+            | Node::Resistor { .. }
+            | Node::Bridge { .. }
+            | Node::Amplifier { .. }
+            | Node::Filter { .. }
+            | Node::Adc { .. }
+            | Node::Convert { .. } => None,
+        }
+    }
+
+    /// The lead resistance element node `n` adds to its arm value: the
+    /// arm less this is the element itself, without evaluating its curve
+    /// again.
+    fn element_leads(&self, n: NodeId, values: &[f64]) -> f64 {
+        match &self.nodes[n] {
+            Node::Rtd {
+                wiring,
+                leads: Some((a, b)),
+                ..
+            } => rtd::lead_series_resistance(*wiring, values[*a], values[*b]),
+            Node::Rtd { leads: None, .. }
+            | Node::Thermistor { .. }
+            | Node::Excitation { .. }
+            | Node::Thermocouple { .. }
+            | Node::IcVoltage { .. }
+            | Node::IcCurrent { .. }
+            | Node::StrainGauge { .. }
+            | Node::Transducer { .. }
+            | Node::Resistor { .. }
+            | Node::Bridge { .. }
+            | Node::Amplifier { .. }
+            | Node::Filter { .. }
+            | Node::Adc { .. }
+            | Node::Convert { .. } => 0.0,
+        }
+    }
+
+    /// Element `n`'s resistance where it sits on a current source of
+    /// `current` A (or in a bridge arm: `None`), self-heated by I²R when it
+    /// states a dissipation constant.
+    #[inline(always)]
+    pub(super) fn driven_element(
+        &self,
+        n: NodeId,
+        values: &[f64],
+        env: &Env,
+        current: Option<f64>,
+    ) -> Result<f64, EvalError> {
+        let (curve, t) = self.element_curve(n, values, env)?;
+        let cold = curve.resistance(t).map_err(|_| self.no_resistance(n))?;
+        match (current, self.heating(n)) {
+            (Some(a), Some(heating)) => {
+                let delta = values[heating.dissipation];
+                self_heated(cold, heating.curved, |r| {
+                    curve.resistance(t + a * a * r / delta)
+                })
+                .map_err(|_| self.no_resistance(n))
+            }
+            _ => Ok(cold),
+        }
+    }
+
+    /// Only a thermistor's curve can have no resistance (an RTD's always
+    /// has one).
+    fn no_resistance(&self, n: NodeId) -> EvalError {
+        self.numeric(
+            n,
+            "the thermistor curve has no resistance at this temperature",
+        )
+    }
+
+    /// Element `n`'s curve with this run's values, and the temperature it
+    /// senses in the curve's unit (°C for an RTD, K for a thermistor). The
+    /// curve's range is checked here, at the sensed temperature; the few
+    /// millikelvin of self-heating are the element's own doing, not a
+    /// reading.
+    #[inline(always)]
+    fn element_curve(
+        &self,
+        n: NodeId,
+        values: &[f64],
+        env: &Env,
+    ) -> Result<(ElementCurve, f64), EvalError> {
+        match &self.nodes[n] {
+            Node::Rtd {
+                curve,
+                r0,
+                deviation,
+                senses,
+                ..
+            } => {
+                let t = self.sensed(n, *senses, env, values);
+                let range = curve.range_c();
+                let t_c = within(t - ZERO_CELSIUS_K, range)
+                    .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))?;
+                let element = ElementCurve::Rtd {
+                    curve: *curve,
+                    r0: values[*r0],
+                    deviation: deviation.map(|(d0, da)| (values[d0], values[da])),
+                };
+                Ok((element, t_c))
+            }
+            Node::Thermistor {
+                r25, curve, senses, ..
+            } => {
+                let element = match curve {
+                    ThermistorCurve::Beta { beta } => ElementCurve::Beta {
+                        r25: values[*r25],
+                        beta: values[*beta],
+                    },
+                    ThermistorCurve::SteinhartHart { a, b, c } => {
+                        ElementCurve::SteinhartHart(thermistor::SteinhartHart {
+                            a: *a,
+                            b: *b,
+                            c: *c,
+                        })
+                    }
+                };
+                Ok((element, self.sensed(n, *senses, env, values)))
+            }
+            Node::Excitation { .. }
+            | Node::Thermocouple { .. }
+            | Node::IcVoltage { .. }
+            | Node::IcCurrent { .. }
+            | Node::StrainGauge { .. }
+            | Node::Transducer { .. }
+            | Node::Resistor { .. }
+            | Node::Bridge { .. }
+            | Node::Amplifier { .. }
+            | Node::Filter { .. }
+            | Node::Adc { .. }
+            | Node::Convert { .. } => Err(self.numeric(n, "not a temperature element")),
+        }
+    }
+
+    /// Element `n`'s resistance heated by the power it dissipates where it
+    /// sits: `power(r)`, W, at its resistance `r`, and ΔT = P/δ. From
+    /// `cold`, its resistance unheated.
+    pub(super) fn heated(
+        &self,
+        n: NodeId,
+        heating: Heating,
+        cold: f64,
+        values: &[f64],
+        env: &Env,
+        power: impl Fn(f64) -> f64,
+    ) -> Result<f64, EvalError> {
+        let delta = values[heating.dissipation];
+        let (curve, t) = self.element_curve(n, values, env)?;
+        self_heated(cold, heating.curved, |r| {
+            curve.resistance(t + power(r) / delta)
+        })
+        .map_err(|_| self.no_resistance(n))
+    }
+}
+
+impl Plan {
+    /// A divider's element heated by what its supply puts through it:
+    /// `element` is its arm value (element and leads); only the element
+    /// itself dissipates into its sensing point.
+    pub(super) fn heated_divider_element(
+        &self,
+        node: NodeId,
+        element: f64,
+        supply: Supply,
+        values: &[f64],
+        env: &Env,
+    ) -> Result<f64, EvalError> {
+        let Some(heating) = self.heating(node) else {
+            return Ok(element);
+        };
+        let leads = self.element_leads(node, values);
+        let cold = element - leads;
+        let power = |r: f64| match supply {
+            Supply::Voltage { v, other } => strain::series_element_power_w(v, r, leads + other),
+            Supply::Current(a) => a * a * r,
+            Supply::None => 0.0,
+        };
+        Ok(self.heated(node, heating, cold, values, env, power)? + leads)
+    }
+
+    /// The arms of a Wheatstone bridge (r1 r2 | r3 r4, as in
+    /// `physics::strain`) with each heated element's self-heating, from
+    /// the power the solved bridge puts in it. `nodes` says which element
+    /// sits in each arm. Elements couple only weakly through the
+    /// excitation, so each is solved with the others held (one pass for a
+    /// single heated element, which is exact; two where several heat).
+    pub(super) fn heated_bridge_arms(
+        &self,
+        mut arms: [f64; 4],
+        nodes: [Option<NodeId>; 4],
+        exc: Signal,
+        values: &[f64],
+        env: &Env,
+    ) -> Result<[f64; 4], EvalError> {
+        let heating: [Option<(NodeId, Heating)>; 4] =
+            std::array::from_fn(|k| nodes[k].and_then(|n| self.heating(n).map(|h| (n, h))));
+        let count = heating.iter().flatten().count();
+        if count == 0 {
+            return Ok(arms);
+        }
+        let passes = if count > 1 { 2 } else { 1 };
+        let mut leads = [0.0; 4];
+        for (k, heated) in heating.iter().enumerate() {
+            if let Some((n, _)) = heated {
+                leads[k] = self.element_leads(*n, values);
+            }
+        }
+        for _ in 0..passes {
+            for (k, heated) in heating.iter().enumerate() {
+                let Some((n, h)) = *heated else {
+                    continue;
+                };
+                let partner = k ^ 1;
+                let power = |r: f64| {
+                    let mut with = arms;
+                    with[k] = r + leads[k];
+                    let v = match exc {
+                        Signal::Source(v) => v,
+                        Signal::Current(a) => {
+                            let (top, bottom) = (with[0] + with[1], with[2] + with[3]);
+                            a * top * bottom / (top + bottom)
+                        }
+                        _ => 0.0,
+                    };
+                    strain::series_element_power_w(v, r, leads[k] + with[partner])
+                };
+                let start = arms[k] - leads[k];
+                arms[k] = self.heated(n, h, start, values, env, power)? + leads[k];
+            }
+        }
+        Ok(arms)
+    }
+}
+
+/// A temperature element's curve with one run's values.
+#[derive(Clone, Copy, Debug)]
+enum ElementCurve {
+    Rtd {
+        curve: RtdCurve,
+        r0: f64,
+        /// The class's R0 and coefficient deviations, relative.
+        deviation: Option<(f64, f64)>,
+    },
+    Beta {
+        r25: f64,
+        beta: f64,
+    },
+    SteinhartHart(thermistor::SteinhartHart),
+}
+
+impl ElementCurve {
+    /// The resistance at `t` (°C for an RTD, K for a thermistor), or none
+    /// where the curve has none.
+    #[inline(always)]
+    fn resistance(self, t: f64) -> Result<f64, ()> {
+        match self {
+            ElementCurve::Rtd {
+                curve,
+                r0,
+                deviation,
+            } => {
+                let r = rtd_resistance(curve, r0, t);
+                Ok(match deviation {
+                    Some((d0, da)) => rtd::deviated_resistance(r, r0, d0, da),
+                    None => r,
+                })
+            }
+            ElementCurve::Beta { r25, beta } => {
+                thermistor::beta_resistance(r25, 25.0 + ZERO_CELSIUS_K, beta, t).map_err(|_| ())
+            }
+            ElementCurve::SteinhartHart(k) => thermistor::sh_resistance(k, t).map_err(|_| ()),
+        }
+    }
+}
+
+/// Resistance of an RTD curve at `t_c` °C.
+#[inline]
+fn rtd_resistance(curve: RtdCurve, r0: f64, t_c: f64) -> f64 {
+    match curve {
+        RtdCurve::Cvd { a, b, c } => rtd::resistance(r0, rtd::CvdCoefficients { a, b, c }, t_c),
+        RtdCurve::Nickel => rtd::nickel_resistance(r0, rtd::NickelCoefficients::DIN_43760, t_c),
+        RtdCurve::Copper => rtd::linear_resistance(r0, rtd::COPPER_ALPHA, t_c),
+    }
+}
+
+/// The resistance of an element that self-heats by P(r)/δ: the fixed point
+/// of `r = at(r)` (`at` the resistance at the temperature the element
+/// reaches dissipating at `r`), from `cold`, its resistance unheated. The
+/// map contracts strongly (|dr'/dr| = |dP/dr|/δ · |dR/dT| ≪ 1), so two
+/// steps and Aitken's Δ² extrapolation land where many plain steps would.
+/// What Aitken leaves grows with the curve's curvature: for an RTD (nearly
+/// straight) it is within 1e-10 Ω of the settled value at 2 K of heating;
+/// a thermistor's `curved` response takes one more step.
+#[inline]
+pub(super) fn self_heated<E>(
+    cold: f64,
+    curved: bool,
+    at: impl Fn(f64) -> Result<f64, E>,
+) -> Result<f64, E> {
+    let r1 = at(cold)?;
+    let r2 = at(r1)?;
+    let curvature = (r2 - r1) - (r1 - cold);
+    let extrapolated = r2 - (r2 - r1) * (r2 - r1) / curvature;
+    let r = if extrapolated.is_finite() {
+        extrapolated
+    } else {
+        r2
+    };
+    if curved {
+        at(r)
+    } else {
+        Ok(r)
+    }
+}

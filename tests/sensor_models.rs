@@ -1,0 +1,292 @@
+//! Sensor models as an engineer checks them by hand: independent leads,
+//! transducer curve shapes, RTD classes as R0 and coefficient tolerances,
+//! self-heating wherever the element sits, and validity at the true
+//! temperature. Specs in `tests/fixtures/sensors/`.
+
+mod common;
+
+use common::{catena, root};
+
+fn dir() -> std::path::PathBuf {
+    root().join("tests/fixtures/sensors")
+}
+
+/// `catena budget --format json` of a spec in `tests/fixtures/sensors`.
+fn budget(spec: &str, args: &[&str]) -> serde_json::Value {
+    let mut all = vec!["budget", spec, "--format", "json"];
+    all.extend_from_slice(args);
+    let run = catena(&dir(), &all, None);
+    assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
+    serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("{e}: {}", run.stdout))
+}
+
+/// One source of a budget point, by id.
+fn source<'a>(point: &'a serde_json::Value, id: &str) -> &'a serde_json::Value {
+    point["sources"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|s| s["id"] == id)
+        .unwrap_or_else(|| panic!("no source {id} in {point}"))
+}
+
+fn f(v: &serde_json::Value) -> f64 {
+    v.as_f64().unwrap_or_else(|| panic!("not a number: {v}"))
+}
+
+/// Slope of a Pt100 at `t` °C, Ω/K: 100 (A + 2 B t), IEC 60751 A and B.
+fn pt100_slope(t: f64) -> f64 {
+    100.0 * (3.9083e-3 + 2.0 * -5.775e-7 * t)
+}
+
+/// A 3-wire RTD sees the difference of two independent leads, each within
+/// ±a: a triangular distribution over ±2a (JCGM 100:2008 §4.3.9), standard
+/// uncertainty 2a/√6 = √2 · a/√3 (the root sum of squares of the two
+/// rectangular leads), not the 2a/√3 of one rectangular source of twice
+/// the tolerance.
+///
+/// Its 95 % coverage interval (JCGM 101:2008, propagation of
+/// distributions): for a symmetric triangle of half-width w,
+/// P(|X| > x) = (1 − x/w)², so the 95 % half-width is w (1 − √0.05)
+/// = 0.7764 w (derived here); one rectangle of half-width w gives 0.95 w,
+/// 22 % more. The lead error in kelvin is a / (dR/dT) with the IEC 60751
+/// slope at the point.
+#[test]
+fn three_wire_leads_are_two_independent_sources() {
+    let v = budget(
+        "three_wire_leads.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    let t = f(&p["measurand"]);
+    let a_k = 0.1 / pt100_slope(t);
+    let lead_u = |id: &str| f(&source(p, id)["standard_uncertainty"]);
+    let leads = lead_u("probe.lead_1").hypot(lead_u("probe.lead_2"));
+    let closed = 2.0 * a_k / 6f64.sqrt();
+    assert!(
+        (leads - closed).abs() < 1e-3 * closed,
+        "{leads} vs {closed}"
+    );
+    // Quantization of a 24-bit converter is the only other source.
+    assert!(
+        (f(&p["gum_standard"]) - closed).abs() < 1e-3 * closed,
+        "{p}"
+    );
+    let half = (f(&p["monte_carlo_95"][1]) - f(&p["monte_carlo_95"][0])) / 2.0;
+    let triangular = 2.0 * a_k * (1.0 - 0.05f64.sqrt());
+    assert!(
+        (half - triangular).abs() < 0.01 * triangular,
+        "{half} vs {triangular}"
+    );
+    assert!((f(&p["worst_case"]) - 2.0 * a_k).abs() < 1e-3 * a_k, "{p}");
+}
+
+/// `catena eval --format json` of a spec in `tests/fixtures/sensors`.
+fn eval(spec: &str, at: &str) -> serde_json::Value {
+    let run = catena(
+        &dir(),
+        &["eval", spec, "--format", "json", "--at", at],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
+    serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("{e}: {}", run.stdout))
+}
+
+/// A thermistor's self-heating in a divider, by hand: a 10 kΩ NTC
+/// (β 3380 K) under 10 kΩ from 3.3 V sits at the divider's balance point at
+/// 25 °C, where it dissipates P = V² R / (R + Rs)² = 3.3² / (4 × 10 kΩ)
+/// = 272.25 µW (Ohm's and Joule's laws; dP/dR = 0 there, so the few ohms
+/// the heating moves R change P by about 1e-5 of itself). With
+/// δ = 1.5 mW/K it runs ΔT = P/δ = 0.1815 K warm, so R = R(25.1815 °C)
+/// by the β equation and the divider gives 3.3 R / (R + 10 kΩ).
+#[test]
+fn a_divider_heats_its_thermistor() {
+    let v = eval("ntc_divider_heating.catena", "25 degC");
+    let (volts, rs, delta) = (3.3, 10e3, 1.5e-3);
+    let power: f64 = volts * volts / (4.0 * rs);
+    let rise = power / delta;
+    assert!((rise - 0.1815).abs() < 1e-12);
+    let (t25, beta) = (298.15, 3380.0);
+    let r = 10e3 * (beta * (1.0 / (t25 + rise) - 1.0 / t25)).exp();
+    let want = volts * r / (r + rs);
+    let got = f(&v["nodes"]["div"]["value"]);
+    assert!((got - want).abs() < 1e-6 * want, "{got} vs {want}");
+    // Unheated it would sit at half the rail, 3.5 mV higher.
+    assert!((got - volts / 2.0).abs() > 5e-3, "{got}");
+    // The tolerance of the dissipation constant is now an error source: at
+    // 20 °C, R = 12.5 kΩ by the β equation, P = V² R / (R + Rs)² and
+    // δ (1 − 20 %) heats by ΔT / 0.8, a quarter of ΔT more (to about 1 %:
+    // the heated R moves P a little).
+    let r20 = 10e3 * (beta * (1.0 / 293.15 - 1.0 / t25)).exp();
+    let rise20 = volts * volts * r20 / ((r20 + rs) * (r20 + rs)) / delta;
+    let b = budget(
+        "ntc_divider_heating.catena",
+        &["--points", "3", "--trials", "0"],
+    );
+    let p = b["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| (f(&p["measurand"]) - 20.0).abs() < 1e-9)
+        .expect("a point at 20 degC");
+    let dissipation = f(&source(p, "ntc.dissipation")["contribution"]);
+    let want = rise20 * 0.25;
+    assert!(
+        (dissipation - want).abs() < 0.01 * want,
+        "{dissipation} vs {want}"
+    );
+}
+
+/// The class sources of an RTD stage at one budget point: their worst-case
+/// contributions summed, K.
+fn class_contribution(point: &serde_json::Value, stage: &str) -> f64 {
+    point["sources"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|s| {
+            s["id"]
+                .as_str()
+                .is_some_and(|id| id.starts_with(&format!("{stage}.class")))
+        })
+        .map(|s| f(&s["contribution"]))
+        .sum()
+}
+
+/// IEC 60751:2008 Table 1, class A: ±(0.15 + 0.002 |t|) K. The class is a
+/// bound on the deviation an element's R0 and temperature coefficient give,
+/// so a two-point calibration at −50 and 100 °C removes nearly all of it
+/// (what stays is the curvature of W(t) against the line the calibration
+/// draws: about a millikelvin); modelled as the ±(a + b|t|) curve itself,
+/// its kink at 0 °C left 0.13 K there. Uncalibrated, the worst case stays
+/// within the class limit at every point, equals it at 0 °C and comes
+/// within 4 % of it at 100 °C.
+#[test]
+fn rtd_class_is_r0_and_coefficient_tolerances() {
+    let args = ["--points", "7", "--trials", "0"];
+    let calibrated = budget("pt100_class_a_calibrated.catena", &args);
+    for p in calibrated["points"].as_array().unwrap() {
+        let class = class_contribution(p, "probe");
+        assert!(class < 2e-3, "{}: {class}", p["measurand"]);
+    }
+    let raw = budget("pt100_class_a_uncalibrated.catena", &args);
+    for p in raw["points"].as_array().unwrap() {
+        let t = f(&p["measurand"]);
+        let limit = 0.15 + 0.002 * t.abs();
+        let class = class_contribution(p, "probe");
+        assert!(class <= limit * (1.0 + 1e-6), "{t}: {class} vs {limit}");
+        if t == 0.0 {
+            assert!((class - limit).abs() < 1e-6 * limit, "{class}");
+        }
+        if t == 100.0 {
+            assert!(class > 0.96 * limit, "{class} vs {limit}");
+        }
+    }
+}
+
+/// A transducer's nonlinearity and hysteresis, worked by hand for a
+/// 5000 kg cell stating each as 0.02 % of rated output (1 kg).
+/// Nonlinearity is the curve's deviation from a straight line: against the
+/// terminal line it is zero at no load and at rated load; against the
+/// best-fit (minimax) line it equioscillates, −n at the ends and +n at mid
+/// range. The curve is taken as a parabola (our modelling assumption,
+/// `physics::transducer`): terminal deviation 4u(1 − u) n, so 0.75 kg at a
+/// quarter load; best-fit n (8u(1 − u) − 1), so 0.5 kg there. A two-point
+/// calibration at 1000 and 4000 kg (u = 0.2, 0.8, where the bow is 0.64 n)
+/// takes out the line through them and leaves 4u(1 − u) − 0.64 of n:
+/// −0.64 kg at the ends, 0.11 kg at a quarter, 0.36 kg at mid range.
+/// Hysteresis depends on the direction of approach, so no calibration
+/// removes it: 1 kg at every load, calibrated or not.
+#[test]
+fn transducer_nonlinearity_has_a_shape_and_hysteresis_stays() {
+    let cases = [
+        ("load_cell_terminal.catena", [0.0, 0.75, 1.0, 0.75, 0.0]),
+        ("load_cell_best_fit.catena", [1.0, 0.5, 1.0, 0.5, 1.0]),
+        (
+            "load_cell_calibrated.catena",
+            [0.64, 0.11, 0.36, 0.11, 0.64],
+        ),
+    ];
+    for (spec, nonlinearity) in cases {
+        let v = budget(spec, &["--points", "5", "--trials", "0"]);
+        let points = v["points"].as_array().unwrap();
+        assert_eq!(points.len(), 5, "{spec}");
+        for (p, want) in points.iter().zip(nonlinearity) {
+            let got = f(&source(p, "cell.nonlinearity")["contribution"]);
+            assert!(
+                (got - want).abs() < 1e-6,
+                "{spec} {}: {got}",
+                p["measurand"]
+            );
+            let hysteresis = f(&source(p, "cell.hysteresis")["contribution"]);
+            assert!((hysteresis - 1.0).abs() < 1e-6, "{spec}: {hysteresis}");
+        }
+    }
+}
+
+/// An RTD's self-heating in a quarter bridge, by hand: a Pt100 among three
+/// 100 Ω resistors from 1 V is balanced at 0 °C, where its side of the
+/// bridge passes 1 V / 200 Ω and it dissipates V² / (4 R) = 2.5 mW; at
+/// 5 mW/K it runs ΔT = P/δ = 0.5 K warm, R = 100 (1 + A ΔT + B ΔT²)
+/// (IEC 60751 A, B), and the bridge gives V (R / (R + 100 Ω) − 1/2),
+/// 0.488 mV where an unheated element gives 0. (The heated R moves P by
+/// about 1e-6 of itself: dP/dR = 0 at balance.)
+#[test]
+fn a_bridge_heats_its_rtd() {
+    let v = eval("rtd_quarter_bridge_heating.catena", "0 degC");
+    let rise: f64 = 1.0 / (4.0 * 100.0) / 5e-3;
+    assert!((rise - 0.5).abs() < 1e-12);
+    let r = 100.0 * (1.0 + 3.9083e-3 * rise - 5.775e-7 * rise * rise);
+    let want = r / (r + 100.0) - 0.5;
+    let got = f(&v["nodes"]["b"]["value"]);
+    assert!((got - want).abs() < 1e-5 * want, "{got} vs {want}");
+}
+
+/// A quarter bridge's three completion resistors are three parts, each
+/// within its own tolerance, not one value shared by all three (which
+/// would match the reference half perfectly). Each one's effect, by hand:
+/// a relative change δ of any arm moves the output by V δ / 4 at balance,
+/// the gauge's strain reads V GF ε / 4, so δ / GF = 1e-4 / 2 = 50 µε each.
+/// Three independent rectangles of half-width a = 50 µε: worst case 3a,
+/// GUM standard √3 · a/√3 = a (JCGM 100:2008 §4.3.7), and a 95 %
+/// half-width of a (3 − 2 ∛0.15) = 1.9373 a from the Irwin–Hall
+/// distribution of their sum (CDF 1 − (3 − x)³/6 near its top, for the
+/// sum of three U(0, 1); derived here).
+#[test]
+fn completion_resistors_are_independent_parts() {
+    let v = budget(
+        "quarter_bridge_completion.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    let a = 50.0;
+    for id in ["completion.r_1", "completion.r_2", "completion.r_3"] {
+        let c = f(&source(p, id)["contribution"]);
+        assert!((c - a).abs() < 1e-3 * a, "{id}: {c}");
+    }
+    assert!((f(&p["gum_standard"]) - a).abs() < 1e-3 * a, "{p}");
+    assert!((f(&p["worst_case"]) - 3.0 * a).abs() < 1e-3 * a, "{p}");
+    let half = (f(&p["monte_carlo_95"][1]) - f(&p["monte_carlo_95"][0])) / 2.0;
+    let irwin_hall = a * (3.0 - 2.0 * 0.15f64.cbrt());
+    assert!(
+        (half - irwin_hall).abs() < 0.01 * irwin_hall,
+        "{half} vs {irwin_hall}"
+    );
+}
+
+/// A class's range of validity is judged at the true temperature, not at
+/// the one the class tolerance shifts the reading to. IEC 60584-1:2013
+/// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln
+/// over 0 … 1300 °C is inside it; IEC 60751:2008 Table 1 gives wire-wound
+/// class AA over −50 … 250 °C (±0.185 K at −50 °C), so a bath over
+/// −50 … 80 °C is inside it (both ranges recalled from memory of the
+/// standards, as in `physics`).
+#[test]
+fn validity_is_judged_at_the_true_temperature() {
+    for spec in ["type_s_class_1.catena", "pt100_class_aa.catena"] {
+        let run = catena(&dir(), &["check", "--deny", "warnings", spec], None);
+        assert_eq!(run.status, 0, "{spec}: {}{}", run.stdout, run.stderr);
+        let v = budget(spec, &["--points", "3", "--trials", "0"]);
+        assert!(v["points"].as_array().unwrap().len() >= 3, "{spec}");
+    }
+}
