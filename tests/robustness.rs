@@ -93,3 +93,67 @@ fn fmt_refuses_symbolic_links() {
     assert_eq!(std::fs::read_to_string(&target).unwrap(), messy);
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// A reader that goes away (`| head -c1`) ends the output quietly with
+/// the status already earned, as Unix tools do: no panic, no exit 101.
+/// The budget's JSON (about 270 KB) is far larger than a pipe's buffer,
+/// so the write meets the closed pipe.
+#[test]
+fn a_closed_pipe_ends_the_output_quietly() {
+    use std::io::Read;
+    use std::process::{Command, Stdio};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(["budget", "--format", "json", "--trials", "0"])
+        .arg(common::root().join("specs/cold_store.catena"))
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut first = [0u8; 1];
+    child.stdout.take().unwrap().read_exact(&mut first).unwrap();
+    let out = child.wait_with_output().unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "{stderr}");
+    assert!(stderr.is_empty(), "{stderr}");
+}
+
+/// Any other write failure (a full disk) is one clean error line and
+/// exit 2, never a panic and never exit 0 with the output lost.
+#[cfg(target_os = "linux")]
+#[test]
+fn a_full_disk_is_a_clean_error() {
+    use std::process::{Command, Stdio};
+    let spec = common::root().join("specs/cold_store.catena");
+    let text = std::fs::read(&spec).unwrap();
+    let runs: [(&[&str], Option<&[u8]>); 3] = [
+        (&["fmt", "-"], Some(&text)),
+        (&["check", "--format", "json", spec.to_str().unwrap()], None),
+        (&["budget", "--trials", "0", spec.to_str().unwrap()], None),
+    ];
+    for (args, stdin) in runs {
+        let full = std::fs::OpenOptions::new()
+            .write(true)
+            .open("/dev/full")
+            .unwrap();
+        let mut child = Command::new(env!("CARGO_BIN_EXE_catena"))
+            .args(args)
+            .stdin(Stdio::piped())
+            .stdout(full)
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap();
+        {
+            use std::io::Write;
+            let mut pipe = child.stdin.take().unwrap();
+            pipe.write_all(stdin.unwrap_or_default()).unwrap();
+        }
+        let out = child.wait_with_output().unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {stderr}");
+        assert!(
+            stderr.ends_with("catena: cannot write standard output: no space left on device\n"),
+            "{args:?}: {stderr}"
+        );
+        assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
+    }
+}

@@ -45,11 +45,11 @@ pub struct BudgetArgs {
 
 pub fn run(args: BudgetArgs) -> u8 {
     if args.trials > MAX_TRIALS {
-        eprintln!("catena: --trials is at most {MAX_TRIALS}");
+        errln!("catena: --trials is at most {MAX_TRIALS}");
         return EXIT_USAGE;
     }
     if !(2..=1001).contains(&args.points) {
-        eprintln!("catena: --points takes 2 to 1001");
+        errln!("catena: --points takes 2 to 1001");
         return EXIT_USAGE;
     }
     let checked = match check_one(&args.spec) {
@@ -80,8 +80,8 @@ pub fn run(args: BudgetArgs) -> u8 {
             None => {
                 let near = did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str()));
                 match near {
-                    Some(n) => eprintln!("catena: no chain `{name}`; did you mean `{n}`?"),
-                    None => eprintln!("catena: no chain `{name}`"),
+                    Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
+                    None => errln!("catena: no chain `{name}`"),
                 }
                 return EXIT_USAGE;
             }
@@ -108,7 +108,7 @@ pub fn run(args: BudgetArgs) -> u8 {
                 Some(part) => match analyse_chain(&part, &options, progress) {
                     Ok(a) => {
                         if args.format == Format::Human {
-                            println!("{}", part_note(&part));
+                            outln!("{}", part_note(&part));
                         }
                         outputs.push((part, a));
                     }
@@ -126,17 +126,17 @@ pub fn run(args: BudgetArgs) -> u8 {
             } else {
                 serde_json::to_string_pretty(&docs)
             };
-            println!("{}", text.unwrap_or_default());
+            outln!("{}", text.unwrap_or_default());
         }
         Format::Human => {
             for (c, a) in &outputs {
-                print!("{}", super::budget_table::human(c, a, args.per_point));
+                out!("{}", super::budget_table::human(c, a, args.per_point));
             }
         }
     }
     if !errors.is_empty() {
         if args.format == Format::Human {
-            println!(
+            outln!(
                 "{} found by check (below): the budget above is what the chain does as written",
                 match errors.len() {
                     1 => "1 error".to_string(),
@@ -167,7 +167,7 @@ fn analyse_chain(
     // pipe, where it would land in someone's log.
     let show = |done: usize, total: usize| {
         if progress {
-            eprint!(
+            err!(
                 "\rcatena: Monte Carlo for `{}`: {done} of {total} points done",
                 chain.name
             );
@@ -175,7 +175,7 @@ fn analyse_chain(
     };
     let result = analyse_with_progress(chain, &plan, options, &show);
     if progress {
-        eprint!("\r\x1b[2K");
+        err!("\r\x1b[2K");
     }
     result
 }
@@ -204,7 +204,7 @@ fn report_error(chain: &Chain, e: &crate::eval::EvalError, found: &Findings) -> 
         return show(&f);
     }
     let status = show(found);
-    eprintln!(
+    errln!(
         "catena: no budget for `{}` until these are fixed; `catena eval --at` shows its stage values",
         chain.name
     );
@@ -212,7 +212,7 @@ fn report_error(chain: &Chain, e: &crate::eval::EvalError, found: &Findings) -> 
 }
 
 fn show(findings: &Findings) -> u8 {
-    eprint!(
+    err!(
         "{}",
         render_human(
             &findings.clone().sorted(),

@@ -60,7 +60,7 @@ pub fn run(args: CheckArgs) -> u8 {
     let files = match collect(&args.paths) {
         Ok(f) => f,
         Err(e) => {
-            eprintln!("catena: {e}");
+            errln!("catena: {e}");
             return EXIT_USAGE;
         }
     };
@@ -69,7 +69,7 @@ pub fn run(args: CheckArgs) -> u8 {
         match std::fs::read(path) {
             Ok(b) => inputs.push((path, b)),
             Err(e) => {
-                eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
+                errln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
                 return EXIT_USAGE;
             }
         }
@@ -113,13 +113,13 @@ pub fn run(args: CheckArgs) -> u8 {
         .count();
     let warnings = all.len() - errors;
     match args.format {
-        Format::Json => print!("{}", render_json(&all)),
+        Format::Json => out!("{}", render_json(&all)),
         Format::Human => {
-            eprint!(
+            err!(
                 "{}",
                 render_human(&all, terminal::stderr_color(), terminal::width())
             );
-            eprintln!(
+            errln!(
                 "checked {} file{}: {} error{}, {} warning{}",
                 files.len(),
                 plural(files.len()),

@@ -48,18 +48,18 @@ pub fn run(args: EvalArgs) -> u8 {
     let chain = match pick_chain(&checked.chains, args.chain.as_deref()) {
         Ok(c) => c,
         Err(e) => {
-            eprintln!("catena: {e}");
+            errln!("catena: {e}");
             return EXIT_USAGE;
         }
     };
     let Some(measurand) = &chain.measurand else {
-        eprintln!("catena: chain `{}` has no measurand", chain.name);
+        errln!("catena: chain `{}` has no measurand", chain.name);
         return EXIT_USAGE;
     };
     let (at, at_shown) = match point(&args.at, measurand.dim, &measurand.unit) {
         Ok(v) => v,
         Err(e) => {
-            eprintln!("catena: --at {}: {e}", args.at);
+            errln!("catena: --at {}: {e}", args.at);
             return EXIT_USAGE;
         }
     };
@@ -68,7 +68,7 @@ pub fn run(args: EvalArgs) -> u8 {
         Some(text) => match point(text, Dim::TEMPERATURE, "degC") {
             Ok(v) => v,
             Err(e) => {
-                eprintln!("catena: --ambient {text}: {e}");
+                errln!("catena: --ambient {text}: {e}");
                 return EXIT_USAGE;
             }
         },
@@ -115,11 +115,11 @@ pub fn run(args: EvalArgs) -> u8 {
         findings: &findings,
     };
     match args.format {
-        Format::Json => println!(
+        Format::Json => outln!(
             "{}",
             serde_json::to_string_pretty(&view.json()).unwrap_or_default()
         ),
-        Format::Human => print!("{}", view.table()),
+        Format::Human => out!("{}", view.table()),
     }
     if findings.is_empty() {
         EXIT_OK
@@ -229,7 +229,7 @@ fn errors_of(findings: &Findings) -> Findings {
 }
 
 fn report(findings: Findings) -> u8 {
-    eprint!(
+    err!(
         "{}",
         render_human(
             &findings.sorted(),

@@ -17,21 +17,21 @@ pub fn run(args: ExplainArgs) -> u8 {
                 crate::diagnostics::Severity::Error => "error",
                 crate::diagnostics::Severity::Warning => "warning",
             };
-            println!("{}  {:<7}  {}", code.as_str(), severity, code.title());
+            outln!("{}  {:<7}  {}", code.as_str(), severity, code.title());
         }
         return EXIT_OK;
     };
     match Code::parse(&text) {
         Some(code) => {
-            print!("{}", code.explain());
+            out!("{}", code.explain());
             EXIT_OK
         }
         None => {
             let near = did_you_mean(&text, Code::ALL.iter().map(|c| c.as_str()));
             match near {
-                Some(n) => eprintln!("catena: no diagnostic code `{text}`; did you mean `{n}`?"),
+                Some(n) => errln!("catena: no diagnostic code `{text}`; did you mean `{n}`?"),
                 None => {
-                    eprintln!("catena: no diagnostic code `{text}`; `catena explain` lists them")
+                    errln!("catena: no diagnostic code `{text}`; `catena explain` lists them")
                 }
             }
             EXIT_USAGE

@@ -51,7 +51,7 @@ pub fn plain_io(e: &std::io::Error) -> String {
 /// unreadable file is a usage error, already reported.
 pub fn check_one(path: &Path) -> Result<crate::check::CheckedFile, u8> {
     let bytes = std::fs::read(path).map_err(|e| {
-        eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
+        errln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
         super::EXIT_USAGE
     })?;
     let base = path

@@ -1,4 +1,4 @@
-use std::io::{Read, Write};
+use std::io::Read;
 use std::path::PathBuf;
 
 use clap::Args;
@@ -36,18 +36,18 @@ fn format_checked(name: &str, bytes: &[u8]) -> Result<String, Findings> {
 pub fn run(args: FmtArgs) -> u8 {
     if args.paths.iter().any(|p| p.as_os_str() == "-") {
         if args.paths.len() > 1 {
-            eprintln!("catena: `-` (standard input) cannot be combined with other paths");
+            errln!("catena: `-` (standard input) cannot be combined with other paths");
             return EXIT_USAGE;
         }
         let mut input = Vec::new();
         if let Err(e) = std::io::stdin().read_to_end(&mut input) {
-            eprintln!("catena: cannot read standard input: {}", plain_io(&e));
+            errln!("catena: cannot read standard input: {}", plain_io(&e));
             return EXIT_USAGE;
         }
         return match format_checked("<stdin>", &input) {
             Ok(text) if args.check => u8::from(text.as_bytes() != input.as_slice()),
             Ok(text) => {
-                let _ = std::io::stdout().write_all(text.as_bytes());
+                out!("{text}");
                 EXIT_OK
             }
             Err(findings) => report(findings),
@@ -56,7 +56,7 @@ pub fn run(args: FmtArgs) -> u8 {
     let files = match collect(&args.paths) {
         Ok(f) => f,
         Err(e) => {
-            eprintln!("catena: {e}");
+            errln!("catena: {e}");
             return EXIT_USAGE;
         }
     };
@@ -65,7 +65,7 @@ pub fn run(args: FmtArgs) -> u8 {
         let bytes = match std::fs::read(&path) {
             Ok(b) => b,
             Err(e) => {
-                eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
+                errln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
                 return EXIT_USAGE;
             }
         };
@@ -80,10 +80,10 @@ pub fn run(args: FmtArgs) -> u8 {
             continue;
         }
         if args.check {
-            println!("{}", path.display());
+            outln!("{}", path.display());
             status = EXIT_FINDINGS;
         } else if let Err(e) = write_atomic(&path, text.as_bytes()) {
-            eprintln!("catena: {e}");
+            errln!("catena: {e}");
             return EXIT_USAGE;
         }
     }
@@ -92,10 +92,10 @@ pub fn run(args: FmtArgs) -> u8 {
 
 fn report(findings: Findings) -> u8 {
     let all = findings.sorted();
-    eprint!(
+    err!(
         "{}",
         render_human(&all, terminal::stderr_color(), terminal::width())
     );
-    eprintln!("catena: not formatted: the file has syntax errors");
+    errln!("catena: not formatted: the file has syntax errors");
     EXIT_FINDINGS
 }

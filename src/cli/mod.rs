@@ -1,5 +1,7 @@
 //! The `catena` command line.
 
+#[macro_use]
+mod output;
 mod budget;
 mod budget_table;
 mod check;
@@ -61,5 +63,5 @@ pub fn run() -> ExitCode {
         Command::Eval(args) => eval::run(args),
         Command::Explain(args) => explain::run(args),
     };
-    ExitCode::from(status)
+    ExitCode::from(output::finish(status))
 }
