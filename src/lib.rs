@@ -12,6 +12,7 @@ pub mod cli;
 pub mod diagnostics;
 pub mod emit;
 pub mod eval;
+pub mod input;
 pub mod model;
 pub mod physics;
 pub mod syntax;

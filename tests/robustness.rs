@@ -157,3 +157,75 @@ fn a_full_disk_is_a_clean_error() {
         assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
     }
 }
+
+/// Makes a named pipe (no writer ever opens it).
+#[cfg(unix)]
+fn mkfifo(path: &std::path::Path) {
+    let status = std::process::Command::new("mkfifo")
+        .arg(path)
+        .status()
+        .expect("mkfifo runs");
+    assert!(status.success());
+}
+
+/// A FIFO given directly, found in a checked folder or named by `use`
+/// used to block `check` forever; a device was read until memory ran out.
+/// Each is refused with a coded finding, the rest is still checked.
+#[cfg(target_os = "linux")]
+#[test]
+fn pipes_and_devices_are_refused() {
+    let dir = temp_dir("fifo");
+    std::fs::create_dir_all(dir.join(".git")).unwrap();
+    mkfifo(&dir.join("pipe.catena"));
+    mkfifo(&dir.join("parts.yaml"));
+    std::fs::write(dir.join("uses.catena"), SPEC_USING_PARTS).unwrap();
+    let run = catena(&dir, &["check", "--format", "json", "pipe.catena"], None);
+    assert_eq!(run.status, 1, "{}{}", run.stdout, run.stderr);
+    assert!(run.stdout.contains("\"S012\""), "{}", run.stdout);
+    let run = catena(&dir, &["check", "--format", "json", "."], None);
+    assert_eq!(run.status, 1, "{}{}", run.stdout, run.stderr);
+    assert!(run.stdout.contains("\"S012\""), "{}", run.stdout);
+    assert!(run.stdout.contains("\"L408\""), "{}", run.stdout);
+    let run = catena(&dir, &["check", "/dev/zero"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stderr.contains("S012"), "{}", run.stderr);
+    for args in [
+        &["budget", "pipe.catena"][..],
+        &["eval", "pipe.catena", "--at", "1"],
+    ] {
+        let command = args[0];
+        let run = catena(&dir, args, None);
+        assert_eq!(run.status, 1, "{command}: {}", run.stderr);
+        assert!(run.stderr.contains("S012"), "{command}: {}", run.stderr);
+    }
+    let run = catena(&dir, &["fmt", "pipe.catena"], None);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stderr.contains("S012"), "{}", run.stderr);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// Standard input is read up to the size limit plus one byte: an endless
+/// stream is refused as too large instead of filling memory.
+#[test]
+fn endless_standard_input_is_cut_at_the_limit() {
+    use std::io::Write;
+    use std::process::{Command, Stdio};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(["fmt", "-"])
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut stdin = child.stdin.take().unwrap();
+    let feeder = std::thread::spawn(move || {
+        let block = vec![b'#'; 65536];
+        // Ends when catena stops reading and closes its end.
+        while stdin.write_all(&block).is_ok() {}
+    });
+    let out = child.wait_with_output().unwrap();
+    feeder.join().unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{stderr}");
+    assert!(stderr.contains("S004"), "{stderr}");
+}

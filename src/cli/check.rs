@@ -2,7 +2,7 @@ use std::path::{Path, PathBuf};
 
 use clap::{Args, ValueEnum};
 
-use super::files::{collect, plain_io};
+use super::files::{collect, read_spec};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::{DEFAULT_TRIALS, MAX_TRIALS};
 use crate::analysis::CheckOptions;
@@ -66,12 +66,9 @@ pub fn run(args: CheckArgs) -> u8 {
     };
     let mut inputs = Vec::with_capacity(files.len());
     for path in &files {
-        match std::fs::read(path) {
-            Ok(b) => inputs.push((path, b)),
-            Err(e) => {
-                errln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
-                return EXIT_USAGE;
-            }
+        match read_spec(path) {
+            Ok(read) => inputs.push((path, read)),
+            Err(status) => return status,
         }
     }
     let options = CheckOptions {
@@ -84,7 +81,11 @@ pub fn run(args: CheckArgs) -> u8 {
     // Files are independent: check them on every core, gather in order.
     let per_file: Vec<Vec<Finding>> = inputs
         .par_iter()
-        .map_init(PartsCache::default, |parts, (path, bytes)| {
+        .map_init(PartsCache::default, |parts, (path, read)| {
+            let bytes = match read {
+                Ok(bytes) => bytes,
+                Err(refused) => return vec![refused.clone()],
+            };
             let base = path
                 .parent()
                 .filter(|p| !p.as_os_str().is_empty())

@@ -1,5 +1,9 @@
 use std::path::{Path, PathBuf};
 
+use crate::diagnostics::Finding;
+use crate::input::{not_a_regular_spec, read_limited, ReadError};
+use crate::syntax::MAX_SOURCE_BYTES;
+
 /// The spec files named on the command line: files as given, folders
 /// searched recursively for `*.catena`, in sorted order.
 pub fn collect(paths: &[PathBuf]) -> Result<Vec<PathBuf>, String> {
@@ -47,13 +51,36 @@ pub fn plain_io(e: &std::io::Error) -> String {
     }
 }
 
+/// Reads one spec: its bytes (at most the size limit plus one), or the
+/// finding that refuses it (not a regular file); an unreadable file is a
+/// usage error, already reported.
+pub fn read_spec(path: &Path) -> Result<Result<Vec<u8>, Finding>, u8> {
+    match read_limited(path, MAX_SOURCE_BYTES) {
+        Ok(bytes) => Ok(Ok(bytes)),
+        Err(ReadError::NotRegular(kind)) => {
+            Ok(Err(not_a_regular_spec(&path.to_string_lossy(), kind)))
+        }
+        Err(ReadError::Io(e)) => {
+            errln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
+            Err(super::EXIT_USAGE)
+        }
+    }
+}
+
 /// Reads and checks one spec for a command that then works on it; an
 /// unreadable file is a usage error, already reported.
 pub fn check_one(path: &Path) -> Result<crate::check::CheckedFile, u8> {
-    let bytes = std::fs::read(path).map_err(|e| {
-        errln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
-        super::EXIT_USAGE
-    })?;
+    let bytes = match read_spec(path)? {
+        Ok(bytes) => bytes,
+        Err(refused) => {
+            let mut findings = crate::diagnostics::Findings::new();
+            findings.push(refused);
+            return Ok(crate::check::CheckedFile {
+                findings,
+                ..Default::default()
+            });
+        }
+    };
     let base = path
         .parent()
         .filter(|p| !p.as_os_str().is_empty())

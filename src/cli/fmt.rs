@@ -1,12 +1,12 @@
-use std::io::Read;
 use std::path::PathBuf;
 
 use clap::Args;
 
-use super::files::{collect, plain_io};
+use super::files::{collect, plain_io, read_spec};
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::diagnostics::{render_human, Findings};
 use crate::emit::write_atomic;
+use crate::syntax::MAX_SOURCE_BYTES;
 use crate::syntax::{self, format::format_source};
 
 #[derive(Args, Debug)]
@@ -39,18 +39,20 @@ pub fn run(args: FmtArgs) -> u8 {
             errln!("catena: `-` (standard input) cannot be combined with other paths");
             return EXIT_USAGE;
         }
-        let mut input = Vec::new();
-        if let Err(e) = std::io::stdin().read_to_end(&mut input) {
-            errln!("catena: cannot read standard input: {}", plain_io(&e));
-            return EXIT_USAGE;
-        }
+        let input = match crate::input::read_stdin_limited(MAX_SOURCE_BYTES) {
+            Ok(input) => input,
+            Err(e) => {
+                errln!("catena: cannot read standard input: {}", plain_io(&e));
+                return EXIT_USAGE;
+            }
+        };
         return match format_checked("<stdin>", &input) {
             Ok(text) if args.check => u8::from(text.as_bytes() != input.as_slice()),
             Ok(text) => {
                 out!("{text}");
                 EXIT_OK
             }
-            Err(findings) => report(findings),
+            Err(findings) => report(findings, SYNTAX_ERRORS),
         };
     }
     let files = match collect(&args.paths) {
@@ -62,17 +64,20 @@ pub fn run(args: FmtArgs) -> u8 {
     };
     let mut status = EXIT_OK;
     for path in files {
-        let bytes = match std::fs::read(&path) {
-            Ok(b) => b,
-            Err(e) => {
-                errln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
-                return EXIT_USAGE;
+        let bytes = match read_spec(&path) {
+            Ok(Ok(bytes)) => bytes,
+            Ok(Err(refused)) => {
+                let mut findings = Findings::new();
+                findings.push(refused);
+                status = status.max(report(findings, "it is not a regular file"));
+                continue;
             }
+            Err(status) => return status,
         };
         let text = match format_checked(&path.to_string_lossy(), &bytes) {
             Ok(t) => t,
             Err(findings) => {
-                status = status.max(report(findings));
+                status = status.max(report(findings, SYNTAX_ERRORS));
                 continue;
             }
         };
@@ -90,12 +95,14 @@ pub fn run(args: FmtArgs) -> u8 {
     status
 }
 
-fn report(findings: Findings) -> u8 {
+const SYNTAX_ERRORS: &str = "the file has syntax errors";
+
+fn report(findings: Findings, why: &str) -> u8 {
     let all = findings.sorted();
     err!(
         "{}",
         render_human(&all, terminal::stderr_color(), terminal::width())
     );
-    errln!("catena: not formatted: the file has syntax errors");
+    errln!("catena: not formatted: {why}");
     EXIT_FINDINGS
 }

@@ -62,6 +62,7 @@ codes! {
     S009 => Error, "too many findings";
     S010 => Error, "number out of range";
     S011 => Error, "statement outside a chain";
+    S012 => Error, "not a regular file";
 
     U101 => Error, "unknown unit";
     U102 => Error, "wrong dimension";
@@ -104,6 +105,7 @@ codes! {
     L405 => Error, "part value not a scalar";
     L406 => Error, "part used without a parts file";
     L407 => Error, "parts file outside the repository";
+    L408 => Error, "parts file not a regular file";
 
     E501 => Error, "sensor outside its valid range";
     E502 => Error, "no firmware conversion";

@@ -59,9 +59,21 @@ impl PartsCache {
 
 fn load_file(path: &Path, shown: &str) -> Loaded {
     let mut loaded = Loaded::default();
-    let bytes = match std::fs::read(path) {
+    let bytes = match crate::input::read_limited(path, MAX_PARTS_BYTES) {
         Ok(b) => b,
-        Err(e) => {
+        Err(crate::input::ReadError::NotRegular(kind)) => {
+            let file = SourceFile::new(shown, "");
+            loaded.findings.push(
+                Finding::new(
+                    Code::L408,
+                    &file,
+                    format!("parts file `{shown}` is {kind}, not a regular file; it is not read"),
+                )
+                .help("name a YAML parts file in the `use` line"),
+            );
+            return loaded;
+        }
+        Err(crate::input::ReadError::Io(e)) => {
             let file = SourceFile::new(shown, "");
             loaded.findings.push(
                 Finding::new(
@@ -80,10 +92,7 @@ fn load_file(path: &Path, shown: &str) -> Loaded {
             Finding::new(
                 Code::L402,
                 &file,
-                format!(
-                    "parts file is {} bytes; the limit is {MAX_PARTS_BYTES}",
-                    bytes.len()
-                ),
+                format!("parts file is over {MAX_PARTS_BYTES} bytes, the limit"),
             )
             .help("split the library into several files"),
         );

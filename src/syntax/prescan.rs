@@ -22,11 +22,7 @@ pub fn decode(name: &str, bytes: &[u8]) -> Result<Arc<SourceFile>, Finding> {
         return Err(Finding::new(
             Code::S004,
             &file,
-            format!(
-                "file is {} bytes; specs are limited to {} bytes",
-                bytes.len(),
-                MAX_SOURCE_BYTES
-            ),
+            format!("file is over {MAX_SOURCE_BYTES} bytes, the limit for a spec"),
         )
         .help("split the file into several specs, or check that this is the file you meant"));
     }
