@@ -229,3 +229,50 @@ fn endless_standard_input_is_cut_at_the_limit() {
     assert_eq!(out.status.code(), Some(1), "{stderr}");
     assert!(stderr.contains("S004"), "{stderr}");
 }
+
+/// `fmt` replaces a file through a temporary and a rename, which used to
+/// bypass the file's own mode, split its hard links and revert what
+/// another program wrote meanwhile. Now it refuses a read-only file and a
+/// hard-linked one, keeps the mode of the file it replaces, and a leftover
+/// temporary from an earlier run (same process id, as in a container where
+/// Catena is always PID 1) blocks nothing.
+#[cfg(unix)]
+#[test]
+fn fmt_keeps_modes_links_and_leftovers() {
+    use std::os::unix::fs::PermissionsExt;
+    let dir = temp_dir("fmt-modes");
+    let messy = "chain a {\n  measurand temperature 0 degC .. 50 degC\n}\n";
+    let set_mode = |name: &str, mode: u32| {
+        std::fs::set_permissions(dir.join(name), std::fs::Permissions::from_mode(mode)).unwrap()
+    };
+    std::fs::write(dir.join("ro.catena"), messy).unwrap();
+    set_mode("ro.catena", 0o444);
+    let run = catena(&dir, &["fmt", "ro.catena"], None);
+    assert_eq!(run.status, 2, "{}", run.stderr);
+    assert!(run.stderr.contains("not writable"), "{}", run.stderr);
+    assert_eq!(
+        std::fs::read_to_string(dir.join("ro.catena")).unwrap(),
+        messy
+    );
+
+    std::fs::write(dir.join("linked.catena"), messy).unwrap();
+    std::fs::hard_link(dir.join("linked.catena"), dir.join("other.name")).unwrap();
+    let run = catena(&dir, &["fmt", "linked.catena"], None);
+    assert_eq!(run.status, 2, "{}", run.stderr);
+    assert!(run.stderr.contains("hard links"), "{}", run.stderr);
+
+    std::fs::write(dir.join("mode.catena"), messy).unwrap();
+    set_mode("mode.catena", 0o600);
+    for pid in [1, 2, 100] {
+        std::fs::write(dir.join(format!(".mode.catena.catena-tmp-{pid}")), "left").unwrap();
+    }
+    let run = catena(&dir, &["fmt", "mode.catena"], None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let meta = std::fs::metadata(dir.join("mode.catena")).unwrap();
+    assert_eq!(meta.permissions().mode() & 0o777, 0o600);
+    assert_ne!(
+        std::fs::read_to_string(dir.join("mode.catena")).unwrap(),
+        messy
+    );
+    std::fs::remove_dir_all(&dir).unwrap();
+}

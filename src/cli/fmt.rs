@@ -5,7 +5,7 @@ use clap::Args;
 use super::files::{collect, plain_io, read_spec};
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::diagnostics::{render_human, Findings};
-use crate::emit::write_atomic;
+use crate::emit::replace_atomic;
 use crate::syntax::MAX_SOURCE_BYTES;
 use crate::syntax::{self, format::format_source};
 
@@ -87,7 +87,7 @@ pub fn run(args: FmtArgs) -> u8 {
         if args.check {
             outln!("{}", path.display());
             status = EXIT_FINDINGS;
-        } else if let Err(e) = write_atomic(&path, text.as_bytes()) {
+        } else if let Err(e) = replace_atomic(&path, text.as_bytes(), &bytes) {
             errln!("catena: {e}");
             return EXIT_USAGE;
         }

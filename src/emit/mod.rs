@@ -2,4 +2,4 @@
 
 mod atomic;
 
-pub use atomic::{write_atomic, WriteError};
+pub use atomic::{replace_atomic, write_atomic, WriteError};
