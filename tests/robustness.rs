@@ -276,3 +276,142 @@ fn fmt_keeps_modes_links_and_leftovers() {
     );
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// The cold store with one line changed.
+fn cold_store_with(from: &str, to: &str) -> String {
+    let text = std::fs::read_to_string(common::root().join("specs/cold_store.catena")).unwrap();
+    assert!(text.contains(from), "{from}");
+    text.replace(from, to)
+}
+
+/// Every number an output carries is finite: no `inf`, `NaN` or a JSON
+/// `null` standing for one (the deliberate nulls — a limit without a
+/// lower end, a bandwidth nothing bounds — are no numbers gone wrong).
+fn assert_no_non_finite(text: &str) {
+    for word in ["inf", "NaN"] {
+        assert!(
+            !text
+                .split(|c: char| !c.is_alphanumeric())
+                .any(|w| w == word),
+            "`{word}` printed:\n{text}"
+        );
+    }
+    for field in ["error", "achieved", "gum_expanded", "contribution", "sigma"] {
+        assert!(
+            !text.contains(&format!("\"{field}\": null")),
+            "{field}: null in\n{text}"
+        );
+    }
+}
+
+/// An ADC noise of 1e160 uV used to print `accuracy ± inf K`, a gain error
+/// of ± 1e150 % `"error": null` with exit 0. Each is now E505 naming the
+/// parameter, and no budget is shown with a number that is not one.
+#[test]
+fn non_finite_numbers_are_findings_naming_the_parameter() {
+    let dir = temp_dir("non-finite");
+    let cases = [
+        (
+            "noise.catena",
+            "noise 0.4 uV",
+            "noise 1e160 uV",
+            "conv.noise",
+        ),
+        (
+            "gain.catena",
+            "gain_error ± 0.01 %",
+            "gain_error ± 1e150 %",
+            "conv.gain_error",
+        ),
+    ];
+    for (name, from, to, parameter) in cases {
+        std::fs::write(dir.join(name), cold_store_with(from, to)).unwrap();
+        for args in [
+            &["check", name][..],
+            &["check", "--format", "json", name],
+            &["budget", "--trials", "500", name],
+            &["budget", "--format", "json", "--trials", "500", name],
+        ] {
+            let run = catena(&dir, args, None);
+            assert_eq!(run.status, 1, "{args:?}: {}", run.stderr);
+            let all = format!("{}{}", run.stdout, run.stderr);
+            // `check` of the gain case stops at R601 (the converter's input
+            // leaves its range), before any budget is made.
+            if args[0] == "budget" || name == "noise.catena" {
+                assert!(all.contains("E505"), "{args:?}: {all}");
+                assert!(all.contains(&format!("`{parameter}`")), "{args:?}: {all}");
+            }
+            assert!(all.len() < 20_000, "{args:?}: {all}");
+            assert_no_non_finite(&all);
+        }
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// A point given on the command line is a number and a temperature above
+/// absolute zero: `--at 1e400` used to print `inf degC`.
+#[test]
+fn eval_points_are_validated() {
+    let spec = common::root().join("specs/cold_store.catena");
+    let spec = spec.to_str().unwrap();
+    for (args, says) in [
+        (
+            &["eval", spec, "--at", "1e400"][..],
+            "beyond any finite value",
+        ),
+        (
+            &["eval", spec, "--at", "0", "--ambient", "-300 degC"],
+            "below absolute zero",
+        ),
+        (&["eval", spec, "--at", "-300 degC"], "below absolute zero"),
+    ] {
+        let run = catena(&common::root(), args, None);
+        assert_eq!(run.status, 2, "{args:?}: {}", run.stderr);
+        assert!(run.stderr.contains(says), "{args:?}: {}", run.stderr);
+        assert_no_non_finite(&run.stderr);
+    }
+}
+
+/// A chain that really clips: the cold store's amplifier with a CMRR of
+/// 20 dB on its 1.4 V common mode and an output that swings only to
+/// 1.2 V, so the common-mode error drives it into its rail at one limit.
+/// The GUM sum used to see the clipped source's slope (zero) and pass at
+/// ± 0.1 K while Monte Carlo reached 30 K. Now the evaluated limits
+/// stand in, the points are flagged (`linear: false`, R616), the GUM
+/// interval covers what Monte Carlo finds, and the spec's errors (R601)
+/// make `budget` exit 1.
+#[test]
+fn gum_keeps_a_clipped_source() {
+    let dir = temp_dir("clip");
+    let spec = cold_store_with("cmrr 110 dB", "cmrr 20 dB")
+        .replace("output 0.05 V .. 3.25 V", "output 0.05 V .. 1.2 V");
+    std::fs::write(dir.join("clip.catena"), spec).unwrap();
+    let run = catena(
+        &dir,
+        &[
+            "budget",
+            "--format",
+            "json",
+            "--trials",
+            "4000",
+            "clip.catena",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stderr.contains("R601"), "{}", run.stderr);
+    assert!(run.stderr.contains("R616"), "{}", run.stderr);
+    let doc: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let points = doc["points"].as_array().unwrap();
+    assert!(points.iter().any(|p| p["linear"] == false));
+    for p in points {
+        let gum = p["gum_expanded"].as_f64().unwrap();
+        let mc = p["monte_carlo_95"].as_array().unwrap();
+        let reach = mc
+            .iter()
+            .map(|x| x.as_f64().unwrap().abs())
+            .fold(0.0, f64::max);
+        assert!(gum >= reach, "GUM ± {gum} inside Monte Carlo's {mc:?}");
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}

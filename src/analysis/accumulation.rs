@@ -16,6 +16,9 @@ pub struct NodeError {
     /// GUM standard uncertainty of the value, divided by the gain: in
     /// measurand units.
     pub error: f64,
+    /// The source that puts the most on it (the first without a finite
+    /// effect, if any): the parameter to name when `error` is not finite.
+    pub dominant: Option<String>,
 }
 
 fn primary(s: Signal) -> f64 {
@@ -50,6 +53,7 @@ pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError>
         )?
         .signals;
     let mut variance = vec![0.0; path.len()];
+    let mut dominant: Vec<Option<(usize, f64)>> = vec![None; path.len()];
     let mut values = plan.nominal.clone();
     for (s, slot) in plan.slots.iter().enumerate() {
         if slot.kind == SourceKind::Exact {
@@ -64,12 +68,21 @@ pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError>
         for (k, &n) in path.iter().enumerate() {
             let u = (primary(high[n]) - primary(low[n])) / 2.0 / divisor;
             variance[k] += u * u;
+            let weight = if u.is_finite() {
+                u.abs()
+            } else {
+                f64::INFINITY
+            };
+            if dominant[k].is_none_or(|(_, w)| weight > w) {
+                dominant[k] = Some((s, weight));
+            }
         }
     }
     Ok(path
         .iter()
         .zip(variance)
-        .map(|(&n, var)| {
+        .zip(dominant)
+        .map(|((&n, var), dominant)| {
             let gain = (primary(up[n]) - primary(down[n])) / (2.0 * h);
             let (value, unit) = nominal[n].value_unit();
             let value = match nominal[n] {
@@ -86,6 +99,7 @@ pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError>
                 } else {
                     0.0
                 },
+                dominant: dominant.map(|(s, _)| plan.slots[s].id.clone()),
             }
         })
         .collect())

@@ -36,8 +36,13 @@ pub struct Contribution {
     pub high: f64,
     /// max(|low|, |high|): its part of the worst case.
     pub worst: f64,
-    /// Its standard uncertainty: half the spread over its divisor.
+    /// Its standard uncertainty: half the spread over its divisor, or,
+    /// where the reading does not follow the source linearly (`linear`
+    /// false), the larger evaluated effect over its divisor.
     pub standard: f64,
+    /// Its evaluated limits agree with the straight line through them
+    /// (see [`standard_uncertainty`]).
+    pub linear: bool,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -51,6 +56,9 @@ pub struct Point {
     pub worst_case: f64,
     pub gum_standard: f64,
     pub gum_expanded: f64,
+    /// Every source's effect is linear enough for the GUM sum as
+    /// JCGM 100 writes it; where one is not, its evaluated limits stand in.
+    pub linear: bool,
     /// Converter-input volts and codes per measurand unit.
     pub volts_per_unit: f64,
     pub codes_per_unit: f64,
@@ -91,6 +99,45 @@ pub struct Budget {
 }
 
 const SQRT3: f64 = 1.732_050_807_568_877_2;
+
+/// How far (as a fraction of the larger effect) a source's evaluated
+/// limits may stray from the straight line through them before the GUM
+/// sum stops trusting its slope. A smooth chain's curvature over a
+/// tolerance stays orders of magnitude below this; a stage clipping at
+/// one limit, or both limits moving the reading the same way, does not.
+pub const NONLINEAR_TOLERANCE: f64 = 0.1;
+
+/// A source's standard uncertainty from its evaluated limits: the reading
+/// changes `low` and `high` with the source `minus` below and `plus` above
+/// nominal. GUM's linear propagation takes the slope (high − low)/(plus +
+/// minus), that is half the spread over the divisor. A linear chain then
+/// meets the line at both limits, both sides of it at the same distance
+/// |low·plus + high·minus|/(plus + minus); where that distance exceeds
+/// [`NONLINEAR_TOLERANCE`] of the larger effect the slope misrepresents
+/// the source (a clipped source shows a zero slope and a large effect),
+/// and the larger evaluated effect is taken as the half-width instead.
+/// Effects at or below `floor` (rounding in the chain's arithmetic, a
+/// source a calibration cancels) are taken as they come. Returns the
+/// standard uncertainty and whether the source is linear.
+pub fn standard_uncertainty(
+    (low, high): (f64, f64),
+    (minus, plus): (f64, f64),
+    divisor: f64,
+    floor: f64,
+) -> (f64, bool) {
+    let slope_based = (high - low).abs() / 2.0 / divisor;
+    let worst = low.abs().max(high.abs());
+    let width = minus + plus;
+    if width.is_nan() || width <= 0.0 || worst <= floor {
+        return (slope_based, true);
+    }
+    let off_line = (low * plus + high * minus).abs() / width;
+    if off_line > NONLINEAR_TOLERANCE * worst {
+        (worst / divisor, false)
+    } else {
+        (slope_based, true)
+    }
+}
 
 /// The ambients a budget is evaluated at: the range's ends and the
 /// reference, in that order, without repeats.
@@ -306,16 +353,21 @@ fn point(
     let (volts_per_unit, codes_per_unit) = slopes(plan, env)?;
     let effects = source_effects(plan, env, sources, r0)?;
     let mut contributions = Vec::with_capacity(sources.sources.len() + 3);
+    // Below this an effect is the arithmetic's rounding, not the source's.
+    let floor = 1e-9 * (plan.range.1 - plan.range.0);
     for (source, &(low, high)) in sources.sources.iter().zip(&effects) {
         let slot = &plan.slots[source.slot];
         let divisor = if slot.normal { 3.0 } else { SQRT3 };
+        let (standard, linear) =
+            standard_uncertainty((low, high), (slot.minus, slot.plus), divisor, floor);
         contributions.push(Contribution {
             id: slot.id.clone(),
             kind: slot.kind.name(),
             low,
             high,
             worst: low.abs().max(high.abs()),
-            standard: (high - low).abs() / 2.0 / divisor,
+            standard,
+            linear,
         });
     }
     // Sources computed from the chain rather than a slot.
@@ -327,6 +379,7 @@ fn point(
         high,
         worst: low.abs().max(high.abs()),
         standard: (high - low).abs() / 2.0 / SQRT3,
+        linear: true,
     });
     if noise.sigma_averaged > 0.0 {
         // Noise as a 3σ bound in the worst case (common practice).
@@ -338,6 +391,7 @@ fn point(
             high: three,
             worst: three,
             standard: noise.sigma_averaged,
+            linear: true,
         });
     }
     let linearisation = r0 - env.measurand;
@@ -351,10 +405,12 @@ fn point(
             high: linearisation,
             worst: linearisation.abs(),
             standard: linearisation.abs() / SQRT3,
+            linear: true,
         });
     }
     contributions.sort_by(|a, b| b.worst.total_cmp(&a.worst).then_with(|| a.id.cmp(&b.id)));
     let worst_case = contributions.iter().map(|c| c.worst).sum();
+    let linear = contributions.iter().all(|c| c.linear);
     let gum_standard = contributions
         .iter()
         .map(|c| c.standard * c.standard)
@@ -368,6 +424,7 @@ fn point(
         worst_case,
         gum_standard,
         gum_expanded: k * gum_standard,
+        linear,
         volts_per_unit,
         codes_per_unit,
     })

@@ -10,6 +10,7 @@ pub mod noise;
 pub mod ranges;
 pub mod report;
 pub mod requirements;
+pub mod soundness;
 mod stages;
 pub mod step;
 
@@ -278,7 +279,18 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
             ..report::Options::default()
         };
         match report::analyse(chain, &plan, &options) {
-            Ok(analysis) => findings.extend(report::verdict_findings(chain, &analysis)),
+            Ok(analysis) => {
+                // A verdict on a number that is not one would only echo E505.
+                let unsound = soundness::non_finite(chain, &analysis);
+                if unsound.is_empty() {
+                    findings.extend(report::verdict_findings(chain, &analysis));
+                    if let Some(f) = soundness::nonlinear(chain, &analysis) {
+                        findings.push(f);
+                    }
+                } else {
+                    findings.extend(unsound);
+                }
+            }
             Err(e) => findings.push(eval_finding(chain, &e, at_measurand)),
         }
     }

@@ -14,7 +14,7 @@ use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::report::{
     analyse_with_progress, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
-use crate::analysis::{eval_finding, evaluable_part};
+use crate::analysis::{eval_finding, evaluable_part, soundness};
 use crate::diagnostics::{render_human, Findings};
 use crate::eval::lower;
 use crate::model::{did_you_mean, Chain};
@@ -59,7 +59,7 @@ pub fn run(args: BudgetArgs) -> u8 {
     // What the analyses found (a requirement missed, a stage beyond its
     // limit) is what the budget explains, not a reason to withhold it;
     // errors before them leave no complete chain.
-    let errors: Findings = {
+    let mut errors: Findings = {
         let mut f = Findings::new();
         for x in checked
             .findings
@@ -98,20 +98,33 @@ pub fn run(args: BudgetArgs) -> u8 {
     };
     let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
     let mut outputs: Vec<(Chain, Analysis)> = Vec::new();
+    // Warnings about the budget itself (R616), shown after it.
+    let mut notes: Vec<crate::diagnostics::Finding> = Vec::new();
     for chain in chains {
         let analysed = analyse_chain(chain, &options, progress);
         match analysed {
-            Ok(a) => outputs.push((chain.clone(), a)),
+            Ok(a) => {
+                // A number that is not one is never shown (E505 says why).
+                let unsound = soundness::non_finite(chain, &a);
+                if unsound.is_empty() {
+                    notes.extend(soundness::nonlinear(chain, &a));
+                    outputs.push((chain.clone(), a));
+                } else {
+                    errors.extend(unsound);
+                }
+            }
             // With the check's errors beside it, what can be evaluated is
             // still worth showing: the part of the range that evaluates.
             Err(e) => match evaluable_part(chain).filter(|_| !errors.is_empty()) {
                 Some(part) => match analyse_chain(&part, &options, progress) {
-                    Ok(a) => {
+                    Ok(a) if soundness::non_finite(&part, &a).is_empty() => {
                         if args.format == Format::Human {
                             outln!("{}", part_note(&part));
                         }
+                        notes.extend(soundness::nonlinear(&part, &a));
                         outputs.push((part, a));
                     }
+                    Ok(a) => errors.extend(soundness::non_finite(&part, &a)),
                     Err(_) => return report_error(chain, &e, &errors),
                 },
                 None => return report_error(chain, &e, &errors),
@@ -134,7 +147,23 @@ pub fn run(args: BudgetArgs) -> u8 {
             }
         }
     }
+    let mut shown_notes = Findings::new();
+    for note in notes {
+        let known = errors
+            .iter()
+            .chain(checked.findings.iter())
+            .any(|f| f.code == note.code && f.message == note.message);
+        if !known {
+            shown_notes.push(note);
+        }
+    }
+    if outputs.is_empty() && !errors.is_empty() {
+        let status = show(&errors);
+        errln!("catena: no budget until these are fixed");
+        return status;
+    }
     if !errors.is_empty() {
+        errors.extend(shown_notes);
         if args.format == Format::Human {
             outln!(
                 "{} found by check (below): the budget above is what the chain does as written",
@@ -145,6 +174,9 @@ pub fn run(args: BudgetArgs) -> u8 {
             );
         }
         return show(&errors);
+    }
+    if !shown_notes.is_empty() {
+        show(&shown_notes);
     }
     let failed = outputs
         .iter()
@@ -229,6 +261,7 @@ struct SourceJson {
     kind: &'static str,
     contribution: f64,
     standard_uncertainty: f64,
+    linear: bool,
 }
 
 #[derive(Serialize)]
@@ -246,6 +279,7 @@ struct PointJson {
     linearisation: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     gum_expanded_uncalibrated: Option<f64>,
+    linear: bool,
     sources: Vec<SourceJson>,
 }
 
@@ -355,6 +389,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
             monte_carlo_numerical: a.monte_carlo.as_ref().map(|m| m[i].numerical * f),
             linearisation: p.linearisation * f,
             gum_expanded_uncalibrated: a.uncalibrated.as_ref().map(|u| u[i] * f),
+            linear: p.linear,
             sources: p
                 .contributions
                 .iter()
@@ -363,6 +398,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
                     kind: c.kind,
                     contribution: c.worst * f,
                     standard_uncertainty: c.standard * f,
+                    linear: c.linear,
                 })
                 .collect(),
         })

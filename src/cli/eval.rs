@@ -312,6 +312,12 @@ fn point(text: &str, dim: Dim, default_unit: &str) -> Result<(f64, f64), String>
         UnitKind::Celsius => number + ZERO_CELSIUS_K,
         _ => number * unit.scale,
     };
+    if !number.is_finite() || !si.is_finite() {
+        return Err("the number is beyond any finite value".to_string());
+    }
+    if dim == Dim::TEMPERATURE && si < 0.0 {
+        return Err("a temperature below absolute zero (-273.15 degC)".to_string());
+    }
     let same_unit = parse_unit(default_unit).is_ok_and(|d| d == unit);
     Ok((
         si,

@@ -111,6 +111,7 @@ codes! {
     E502 => Error, "no firmware conversion";
     E503 => Error, "no finite value";
     E504 => Error, "code does not follow the measurand";
+    E505 => Error, "number beyond any finite value";
 
     R601 => Error, "signal beyond a limit";
     R602 => Warning, "little headroom to a limit";
@@ -119,6 +120,7 @@ codes! {
     R613 => Error, "response requirement not met";
     R614 => Error, "rejection requirement not met";
     R615 => Warning, "Monte Carlo verdict inside its numerical width";
+    R616 => Warning, "source beyond the GUM linearisation";
     R625 => Warning, "point outside the measurand range";
     R626 => Error, "reading clamped outside the range";
 }

@@ -32,7 +32,11 @@ pub fn with_prefix(value: f64, unit: &str, digits: usize) -> String {
     format!("{} {prefix}{unit}", significant(value / scale, digits))
 }
 
-/// A number with `digits` significant digits, in fixed notation.
+/// From this power of ten on, numbers are written as `1.5e20`.
+const SCIENTIFIC_FROM: i32 = 15;
+
+/// A number with `digits` significant digits, in fixed notation (in
+/// scientific notation from 10^15 on).
 pub fn significant(value: f64, digits: usize) -> String {
     let value = value + 0.0;
     if value == 0.0 || !value.is_finite() {
@@ -40,6 +44,10 @@ pub fn significant(value: f64, digits: usize) -> String {
     }
     // A hair above 1 keeps 0.09999… from being printed as 0.1000.
     let magnitude = (value.abs() * (1.0 + 1e-9)).log10().floor() as i32;
+    if magnitude >= SCIENTIFIC_FROM {
+        // Fixed notation would print hundreds of digits nobody can read.
+        return format!("{value:.*e}", digits.saturating_sub(1));
+    }
     let decimals = (digits as i32 - 1 - magnitude).max(0) as usize;
     format!("{value:.decimals$}")
 }
@@ -47,6 +55,10 @@ pub fn significant(value: f64, digits: usize) -> String {
 /// Like [`significant`], without trailing zeros: `850`, `-0.5`.
 pub fn trimmed(value: f64, digits: usize) -> String {
     let s = significant(value, digits);
+    if let Some((mantissa, exponent)) = s.split_once('e') {
+        let mantissa = mantissa.trim_end_matches('0').trim_end_matches('.');
+        return format!("{mantissa}e{exponent}");
+    }
     if s.contains('.') {
         s.trim_end_matches('0').trim_end_matches('.').to_string()
     } else {
@@ -74,7 +86,17 @@ pub fn to_si(value: f64, unit: &str) -> f64 {
 
 #[cfg(test)]
 mod tests {
-    use super::{from_si, significant, with_prefix};
+    use super::{from_si, significant, trimmed, with_prefix};
+
+    /// A number beyond 10^15 is written in scientific notation, not as
+    /// hundreds of digits; trimming keeps the exponent whole.
+    #[test]
+    fn huge_numbers_are_scientific() {
+        assert_eq!(trimmed(8.485958e95, 4), "8.486e95");
+        assert_eq!(trimmed(1e20, 6), "1e20");
+        assert_eq!(significant(-2.5e30, 3), "-2.50e30");
+        assert_eq!(trimmed(123456.0, 6), "123456");
+    }
 
     #[test]
     fn prefixes_and_digits() {

@@ -1,0 +1,173 @@
+//! Whether an analysis's numbers can be shown: every one finite (E505
+//! names the parameter that drove one beyond what a double holds), and
+//! the GUM sum honest about sources its linearisation cannot represent
+//! (R616).
+
+use super::report::Analysis;
+use crate::diagnostics::{Code, Finding, Findings};
+use crate::model::Chain;
+use crate::units::format::{from_si, trimmed};
+
+/// E505 for each parameter behind a non-finite number anywhere in the
+/// analysis, first occurrence only, in order of discovery.
+pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
+    let mut culprits: Vec<(String, &'static str)> = Vec::new();
+    let mut blame = |id: &str, what: &'static str| {
+        if !culprits.iter().any(|(c, _)| c == id) {
+            culprits.push((id.to_string(), what));
+        }
+    };
+    let noise = &analysis.budget.noise;
+    let noise_culprit = || {
+        noise
+            .terms
+            .iter()
+            .chain(&noise.referred)
+            .max_by(|a, b| magnitude(a.rms_v).total_cmp(&magnitude(b.rms_v)))
+            .map(|t| t.id.clone())
+            .unwrap_or_else(|| "noise".into())
+    };
+    let noise_values = [
+        noise.total_v,
+        noise.sigma,
+        noise.sigma_averaged,
+        noise.noise_free,
+        noise.noise_free_averaged,
+        noise.lsb,
+    ];
+    if !all_finite(&noise_values) || noise.terms.iter().any(|t| !t.rms_v.is_finite()) {
+        blame(&noise_culprit(), "noise");
+    }
+    for (i, p) in analysis.budget.points.iter().enumerate() {
+        // Noise enters the budget as one source; its terms say whose it is.
+        let source = |c: &super::budget::Contribution| {
+            if c.kind == "noise" {
+                noise_culprit()
+            } else {
+                c.id.clone()
+            }
+        };
+        for c in &p.contributions {
+            if !all_finite(&[c.low, c.high, c.worst, c.standard]) {
+                blame(&source(c), "error budget");
+            }
+        }
+        let interval = analysis.monte_carlo.as_ref().and_then(|m| m.get(i));
+        let mc = interval.map_or(vec![], |m| vec![m.low, m.high, m.numerical]);
+        let totals = [
+            p.worst_case,
+            p.gum_standard,
+            p.gum_expanded,
+            p.linearisation,
+        ];
+        if !all_finite(&totals) || !all_finite(&mc) {
+            if let Some(c) = p.contributions.first() {
+                blame(&source(c), "error budget");
+            }
+        }
+    }
+    for n in &analysis.accumulation {
+        if !all_finite(&[n.value, n.gain, n.error]) {
+            let stage = analysis.names.get(n.node).cloned().unwrap_or_default();
+            blame(n.dominant.as_deref().unwrap_or(&stage), "signal path");
+        }
+    }
+    for e in &analysis.envelopes {
+        if !all_finite(&[e.reach.0, e.reach.1]) {
+            let stage = analysis.names.get(e.node).cloned().unwrap_or_default();
+            blame(&stage, "signal's reach");
+        }
+    }
+    let mut findings = Findings::new();
+    for (id, what) in culprits {
+        findings.push(non_finite_finding(chain, &id, what));
+    }
+    findings
+}
+
+fn magnitude(x: f64) -> f64 {
+    if x.is_finite() {
+        x.abs()
+    } else {
+        f64::INFINITY
+    }
+}
+
+fn all_finite(values: &[f64]) -> bool {
+    values.iter().all(|x| x.is_finite())
+}
+
+/// The stage a source or term id (`stage.parameter`) belongs to, labelled.
+fn label_source(chain: &Chain, finding: Finding, id: &str, text: &str) -> Finding {
+    let stage_name = id.split('.').next().unwrap_or(id);
+    match chain.stages.iter().find(|s| s.name == stage_name) {
+        Some(stage) => {
+            let param = id.split_once('.').map(|(_, p)| p).unwrap_or("");
+            // The parameter's own line when the spec writes it (not a part).
+            let written = |p: &&crate::model::value::ResolvedParam| {
+                std::sync::Arc::ptr_eq(&p.file, &chain.file) && !param.is_empty()
+            };
+            let at = stage
+                .params
+                .iter()
+                .filter(written)
+                .find(|p| p.name == param)
+                .or_else(|| {
+                    stage
+                        .params
+                        .iter()
+                        .filter(written)
+                        .find(|p| param.starts_with(p.name))
+                })
+                .map(|p| p.span)
+                .unwrap_or(stage.name_span);
+            finding.label(at, text)
+        }
+        None => finding.label(chain.name_span, text),
+    }
+}
+
+fn non_finite_finding(chain: &Chain, id: &str, what: &str) -> Finding {
+    let finding = Finding::new(
+        Code::E505,
+        &chain.file,
+        format!("`{id}` drives the {what} beyond any finite number, so no budget can be shown"),
+    )
+    .help(format!(
+        "check `{id}` for a misplaced exponent or unit: a value this extreme is not a part's"
+    ));
+    label_source(chain, finding, id, "this value")
+}
+
+/// R616 where the GUM sum had to leave its linearisation for some source:
+/// the chain does not follow the source in a straight line there (a stage
+/// clipping at one of its limits), so the evaluated limits stand in for
+/// the slope. One finding per chain, naming the source with the largest
+/// effect and where.
+pub fn nonlinear(chain: &Chain, analysis: &Analysis) -> Option<Finding> {
+    let points = &analysis.budget.points;
+    let flagged = points.iter().filter(|p| !p.linear).count();
+    let (point, source) = points
+        .iter()
+        .flat_map(|p| p.contributions.iter().map(move |c| (p, c)))
+        .filter(|(_, c)| !c.linear)
+        .max_by(|a, b| a.1.worst.total_cmp(&b.1.worst))?;
+    let (unit, factor) = chain.difference_unit();
+    let m_unit = chain.measurand.as_ref().map_or("", |m| m.unit.as_str());
+    let finding = Finding::new(
+        Code::R616,
+        &chain.file,
+        format!(
+            "the reading does not follow `{}` in a straight line at {flagged} of {} budget points (at {} {m_unit}, ambient {} degC it moves {} and {} {unit} at the source's limits); the GUM sum takes ± {} {unit} there instead of its slope",
+            source.id,
+            points.len(),
+            trimmed(from_si(point.measurand, m_unit), 6),
+            trimmed(from_si(point.ambient, "degC"), 4),
+            trimmed(source.low * factor, 3),
+            trimmed(source.high * factor, 3),
+            trimmed(source.worst * factor, 3),
+        ),
+    )
+    .help("a stage is clipping or folding at one of the source's limits: bring the signal back inside its range (see R601), or judge accuracy by `monte_carlo`, which follows the chain as it is");
+    Some(label_source(chain, finding, &source.id, "this source"))
+}
