@@ -415,3 +415,77 @@ fn gum_keeps_a_clipped_source() {
     }
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// A parts file whose value text differs from its value (a quoted value
+/// with an escape) next to non-ASCII text used to crash the renderer
+/// ("end byte index is not a char boundary"); a part named like a key
+/// elsewhere got its finding on the wrong line. Positions now come from
+/// the YAML parser and every span is snapped to character boundaries.
+#[test]
+fn parts_values_are_placed_by_position() {
+    let dir = temp_dir("yaml-positions");
+    std::fs::create_dir_all(dir.join(".git")).unwrap();
+    let yaml = "# gain ± 1 % µ\nparts:\n  gain:\n    kind: amplifier\n    gain: 4\n  probe:\n    kind: sensor\n    ic_voltage:\n    slope: \"±±1 %\\x21\"\n    output: 0 V at 0 degC\n";
+    std::fs::write(dir.join("parts.yaml"), yaml).unwrap();
+    std::fs::write(dir.join("a.catena"), SPEC_USING_PARTS).unwrap();
+    for format in ["human", "json"] {
+        let run = catena(&dir, &["check", "--format", format, "a.catena"], None);
+        assert_eq!(run.status, 1, "{}{}", run.stdout, run.stderr);
+        assert!(!run.stderr.contains("panicked"), "{}", run.stderr);
+    }
+    let run = catena(&dir, &["check", "--format", "json", "a.catena"], None);
+    let findings: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let slope = findings
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["file"] == "parts.yaml")
+        .expect("a finding in the parts file");
+    assert_eq!(slope["line"], 9, "{slope}");
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// YAML forms a spec would not accept are findings, not silently read:
+/// a tag, keys that are not words, a hex integer; and a tolerance of
+/// negative size.
+#[test]
+fn yaml_oddities_and_negative_tolerances_are_findings() {
+    let dir = temp_dir("yaml-odd");
+    std::fs::create_dir_all(dir.join(".git")).unwrap();
+    std::fs::write(dir.join("a.catena"), SPEC_USING_PARTS).unwrap();
+    let probe =
+        "    kind: sensor\n    ic_voltage:\n    slope: 10 mV/K\n    output: 0 V at 0 degC\n";
+    let cases = [
+        (format!("parts:\n  probe: !custom\n{probe}"), "L410"),
+        (format!("parts:\n  probe:\n{probe}    1: 4\n"), "L409"),
+        (format!("parts:\n  probe:\n{probe}    [a, b]: 4\n"), "L409"),
+        (format!("parts:\n  probe:\n{probe}    null: 4\n"), "L409"),
+        (
+            format!("parts:\n  probe:\n{probe}  7:\n    kind: sensor\n"),
+            "L409",
+        ),
+        (
+            format!("parts:\n  probe:\n{probe}    noise: 0x80\n"),
+            "L411",
+        ),
+        (
+            format!("parts:\n  probe:\n{probe}    noise: !!str 4\n"),
+            "L410",
+        ),
+    ];
+    for (yaml, code) in cases {
+        std::fs::write(dir.join("parts.yaml"), &yaml).unwrap();
+        let run = catena(&dir, &["check", "--format", "json", "a.catena"], None);
+        assert_eq!(run.status, 1, "{yaml}: {}{}", run.stdout, run.stderr);
+        assert!(
+            run.stdout.contains(&format!("\"{code}\"")),
+            "{yaml}: {}",
+            run.stdout
+        );
+    }
+    let spec = "chain a {\n    measurand temperature 0 degC .. 50 degC\n    amplifier front { gain 4 ± -0.05 % }\n}\n";
+    std::fs::write(dir.join("neg.catena"), spec).unwrap();
+    let run = catena(&dir, &["check", "--format", "json", "neg.catena"], None);
+    assert!(run.stdout.contains("\"S013\""), "{}", run.stdout);
+    std::fs::remove_dir_all(&dir).unwrap();
+}

@@ -63,6 +63,7 @@ codes! {
     S010 => Error, "number out of range";
     S011 => Error, "statement outside a chain";
     S012 => Error, "not a regular file";
+    S013 => Error, "negative tolerance";
 
     U101 => Error, "unknown unit";
     U102 => Error, "wrong dimension";
@@ -106,6 +107,9 @@ codes! {
     L406 => Error, "part used without a parts file";
     L407 => Error, "parts file outside the repository";
     L408 => Error, "parts file not a regular file";
+    L409 => Error, "part or parameter name not a word";
+    L410 => Error, "YAML tag in a parts file";
+    L411 => Error, "YAML-only number form";
 
     E501 => Error, "sensor outside its valid range";
     E502 => Error, "no firmware conversion";

@@ -73,6 +73,9 @@ impl Finding {
     }
 
     pub fn label(mut self, span: Span, text: impl Into<String>) -> Self {
+        // Every span slices its file on character boundaries, whatever
+        // arithmetic made it.
+        let span = self.file.snap(span);
         self.labels.push(Label {
             span,
             text: text.into(),

@@ -43,14 +43,9 @@ const MAX_DRAWN_LINE: usize = 400;
 fn has_long_lines(f: &Finding) -> bool {
     let text = f.file.text();
     f.labels.iter().any(|l| {
-        let start = text[..l.span.start.min(text.len())]
-            .rfind('\n')
-            .map(|n| n + 1)
-            .unwrap_or(0);
-        let end = text[l.span.start.min(text.len())..]
-            .find('\n')
-            .map(|n| n + l.span.start)
-            .unwrap_or(text.len());
+        let at = f.file.snap(l.span).start;
+        let start = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
+        let end = text[at..].find('\n').map(|n| n + at).unwrap_or(text.len());
         end - start > MAX_DRAWN_LINE
     })
 }

@@ -79,6 +79,21 @@ impl SourceFile {
         (line + 1, column + 1)
     }
 
+    /// `span` inside the text and on character boundaries: the start moved
+    /// back and the end forward to the nearest boundary.
+    pub fn snap(&self, span: Span) -> Span {
+        let text = &self.text;
+        let mut start = span.start.min(text.len());
+        while !text.is_char_boundary(start) {
+            start -= 1;
+        }
+        let mut end = span.end.clamp(start, text.len());
+        while !text.is_char_boundary(end) {
+            end += 1;
+        }
+        Span::new(start, end)
+    }
+
     pub fn slice(&self, span: Span) -> &str {
         self.text.get(span.start..span.end).unwrap_or("")
     }

@@ -5,6 +5,7 @@ mod chain;
 mod graph;
 mod interpret;
 pub mod parts;
+mod parts_positions;
 pub mod ports;
 pub mod schema;
 mod settings;

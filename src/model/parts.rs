@@ -18,6 +18,8 @@ use std::sync::Arc;
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{Ident, Param, StageKind};
 
+use super::parts_positions::positions;
+
 /// Parts files are small; this bounds a hostile one.
 pub const MAX_PARTS_BYTES: usize = 1024 * 1024;
 
@@ -152,9 +154,24 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
         );
         return;
     };
+    let positions = positions(file.text()).unwrap_or_default();
+    let mut odd_names = positions.odd_names.iter();
     for (name, body) in parts {
-        let Some(name) = name.as_str() else { continue };
-        let (name_span, body_start) = locate_key(file.text(), 0, name);
+        let Some(name) = name.as_str() else {
+            let at = odd_names.next().copied().unwrap_or_default();
+            loaded
+                .findings
+                .push(not_a_string_key(file, name, "part name").label(at, "not a word"));
+            continue;
+        };
+        let placed = positions.parts.get(name).cloned().unwrap_or_default();
+        let name_span = placed.name;
+        if let serde_yaml::Value::Tagged(t) = body {
+            loaded
+                .findings
+                .push(tagged(file, name_span, name, &t.tag.to_string()));
+            continue;
+        }
         let Some(body) = body.as_mapping() else {
             loaded.findings.push(
                 Finding::new(
@@ -169,7 +186,7 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
         };
         let kind = body.get("kind").and_then(|k| k.as_str());
         let Some(kind) = kind.and_then(StageKind::from_keyword) else {
-            let (span, _) = locate_key(file.text(), body_start, "kind");
+            let span = placed.keys.get("kind").map(|k| k.value);
             let kinds = StageKind::ALL
                 .iter()
                 .map(|k| format!("`{}`", k.keyword()))
@@ -182,7 +199,7 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
                     format!("part `{name}` has no valid `kind`"),
                 )
                 .label(
-                    if kind.is_some() { span } else { name_span },
+                    span.filter(|_| kind.is_some()).unwrap_or(name_span),
                     "`kind` missing or unknown",
                 )
                 .help(format!("add `kind:` with one of {kinds}")),
@@ -191,17 +208,52 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
         };
         let mut params = Vec::new();
         let mut rejected = false;
+        let mut odd_keys = placed.odd_keys.iter();
         for (key, value) in body {
-            let Some(key) = key.as_str() else { continue };
+            let Some(key) = key.as_str() else {
+                let at = odd_keys.next().copied().unwrap_or(name_span);
+                let finding = not_a_string_key(file, key, "parameter name");
+                loaded.findings.push(finding.label(at, "not a word"));
+                rejected = true;
+                continue;
+            };
             if key == "kind" || key == "description" {
                 continue;
             }
-            let (key_span, value_at) = locate_key(file.text(), body_start, key);
+            let at = placed.keys.get(key).copied().unwrap_or_default();
+            let key_span = at.key;
+            if let Some(tag_at) = at.tag {
+                let tag = file.text()[tag_at..]
+                    .split_whitespace()
+                    .next()
+                    .unwrap_or("!");
+                let tag_span = Span::new(tag_at, tag_at + tag.len());
+                loaded.findings.push(tagged(file, tag_span, key, tag));
+                rejected = true;
+                continue;
+            }
             let text = match value {
                 serde_yaml::Value::Null => String::new(),
                 serde_yaml::Value::String(s) => s.clone(),
-                serde_yaml::Value::Number(n) => n.to_string(),
+                serde_yaml::Value::Number(n) => {
+                    let written = file.text().get(at.value.start..at.value.end).unwrap_or("");
+                    if yaml_only_number(written) {
+                        loaded
+                            .findings
+                            .push(yaml_number(file, at.value, written, n));
+                        rejected = true;
+                        continue;
+                    }
+                    n.to_string()
+                }
                 serde_yaml::Value::Bool(b) => b.to_string(),
+                serde_yaml::Value::Tagged(t) => {
+                    loaded
+                        .findings
+                        .push(tagged(file, at.value, key, &t.tag.to_string()));
+                    rejected = true;
+                    continue;
+                }
                 _ => {
                     loaded.findings.push(
                         Finding::new(
@@ -218,7 +270,7 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
                     continue;
                 }
             };
-            let offset = value_offset(file.text(), value_at, &text);
+            let offset = at.text_at;
             let (values, found) = crate::syntax::parse_values(file, key, &text, offset);
             let failed = found.has_errors();
             loaded.findings.extend(found);
@@ -232,7 +284,7 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
                     span: key_span,
                 },
                 values,
-                span: key_span.to(Span::new(offset, offset + text.len())),
+                span: key_span.to(at.value),
             });
         }
         loaded.parts.push(Part {
@@ -246,65 +298,57 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
     }
 }
 
+/// Number forms YAML reads but a spec does not (`0x80`, `0o17`, `1_000`,
+/// `.inf`): taken silently they would give a value nobody wrote.
+fn yaml_only_number(written: &str) -> bool {
+    let w = written.trim_start_matches(['+', '-']).to_ascii_lowercase();
+    w.starts_with("0x")
+        || w.starts_with("0o")
+        || w.starts_with("0b")
+        || w.contains('_')
+        || w.starts_with('.') && w.len() > 1 && !w.as_bytes()[1].is_ascii_digit()
+}
+
+/// L411 for a number in a YAML-only form.
+fn yaml_number(file: &Arc<SourceFile>, at: Span, written: &str, n: &serde_yaml::Number) -> Finding {
+    Finding::new(
+        Code::L411,
+        file,
+        format!("`{written}` is a YAML number form the spec language does not have"),
+    )
+    .label(at, format!("YAML reads this as {n}"))
+    .help(format!(
+        "write the value as in a spec, with its unit: `{n}` and the unit it is in"
+    ))
+}
+
+/// L409: YAML allows any value as a key; a parts file names parts and
+/// parameters with words.
+fn not_a_string_key(file: &Arc<SourceFile>, key: &serde_yaml::Value, what: &str) -> Finding {
+    let shown = serde_yaml::to_string(key)
+        .map(|t| t.trim().to_string())
+        .unwrap_or_default();
+    let shown: String = shown.chars().take(40).collect();
+    Finding::new(
+        Code::L409,
+        file,
+        format!("a {what} must be a word; `{shown}` is not one"),
+    )
+    .help("name parts and parameters with words, as in a spec: `inamp_x4:`, `gain:`")
+}
+
+/// L410: a YAML tag would change how a value is read behind the reader's
+/// back; parts files have none.
+fn tagged(file: &Arc<SourceFile>, at: Span, name: &str, tag: &str) -> Finding {
+    Finding::new(
+        Code::L410,
+        file,
+        format!("`{name}` carries the YAML tag `{tag}`; parts files use no tags"),
+    )
+    .label(at, "tagged here")
+    .help(format!("remove `{tag}` and write the value as in a spec"))
+}
+
 fn first_line_len(file: &SourceFile) -> usize {
     file.text().find('\n').unwrap_or(file.text().len())
-}
-
-/// Finds `key:` at or after `from` (YAML gives no spans): the key's span
-/// and the offset just after its colon.
-fn locate_key(text: &str, from: usize, key: &str) -> (Span, usize) {
-    let mut offset = 0;
-    for line in text.split_inclusive('\n') {
-        let start = offset;
-        offset += line.len();
-        if start < from {
-            continue;
-        }
-        let trimmed = line.trim_start();
-        let indent = line.len() - trimmed.len();
-        let bare = trimmed
-            .strip_prefix(key)
-            .filter(|r| r.trim_start().starts_with(':'));
-        let quoted = [("\"", "\""), ("'", "'")].iter().find_map(|(o, c)| {
-            trimmed
-                .strip_prefix(o)
-                .and_then(|r| r.strip_prefix(key))
-                .and_then(|r| r.strip_prefix(c))
-                .filter(|r| r.trim_start().starts_with(':'))
-        });
-        if let Some(rest) = bare.or(quoted) {
-            let key_start = start + indent;
-            let colon = start + line.len() - rest.len() + rest.find(':').unwrap_or(0);
-            return (Span::new(key_start, colon), colon + 1);
-        }
-    }
-    (
-        Span::new(from.min(text.len()), from.min(text.len())),
-        from.min(text.len()),
-    )
-}
-
-/// Where a scalar value's text starts, when it is written plainly or
-/// quoted on the key's line; else just after the colon.
-fn value_offset(text: &str, after_colon: usize, value: &str) -> usize {
-    let rest = text.get(after_colon..).unwrap_or("");
-    let line = rest.split('\n').next().unwrap_or("");
-    match line.find(value) {
-        Some(i) if !value.is_empty() => after_colon + i,
-        _ => after_colon + (line.len() - line.trim_start().len()),
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::locate_key;
-
-    #[test]
-    fn keys_are_found_after_their_part() {
-        let text = "parts:\n  a:\n    gain: 4\n  b:\n    gain: 5\n";
-        let (_, b_at) = locate_key(text, 0, "b");
-        let (span, after) = locate_key(text, b_at, "gain");
-        assert_eq!(&text[span.start..span.end], "gain");
-        assert_eq!(text[after..].trim_start().lines().next(), Some("5"));
-    }
 }

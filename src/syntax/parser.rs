@@ -240,6 +240,24 @@ impl Lower<'_> {
                         );
                     }
                     let q = self.quantity(inner.next()?)?;
+                    if q.number.is_sign_negative() && q.number != 0.0 {
+                        let unit = q
+                            .unit
+                            .as_ref()
+                            .map_or(String::new(), |u| format!(" {}", u.text));
+                        let magnitude = format!("{}{unit}", -q.number);
+                        self.findings.push(
+                            Finding::new(
+                                Code::S013,
+                                self.file,
+                                "a tolerance after `±` is a size and cannot be negative",
+                            )
+                            .label(q.number_span, "negative")
+                            .help(format!(
+                                "write `± {magnitude}`; a one-sided limit is `+0 -{magnitude}` or `+{magnitude} -0`"
+                            )),
+                        );
+                    }
                     span = Span::new(span.start, q.span.end);
                     form = Some(ToleranceForm::Symmetric(q));
                 }
