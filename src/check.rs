@@ -49,6 +49,9 @@ pub fn check_bytes_with(
         }
     };
     let (ast, mut findings) = syntax::parse(&file);
+    if ast.chains.is_empty() && !findings.has_errors() {
+        findings.push(no_chain(&file));
+    }
     let syntax_failed = findings.has_errors();
     if syntax_failed && ast.chains.is_empty() {
         return CheckedFile {
@@ -103,4 +106,25 @@ pub fn check_str(name: &str, text: &str) -> CheckedFile {
         Path::new("."),
         &mut PartsCache::default(),
     )
+}
+
+/// S014: a spec without a chain checks nothing, so passing it would tell
+/// CI that something was verified when nothing was (an emptied file, a
+/// merge that kept only comments).
+fn no_chain(file: &Arc<SourceFile>) -> crate::diagnostics::Finding {
+    let text = file.text();
+    let message = if text.trim().is_empty() {
+        "the file is empty: it declares no chain"
+    } else {
+        "the file declares no chain: there is nothing to check"
+    };
+    let end = text.find('\n').unwrap_or(text.len());
+    crate::diagnostics::Finding::new(Code::S014, file, message)
+        .label(
+            crate::diagnostics::Span::new(0, end),
+            "no `chain` in this file",
+        )
+        .help(
+            "write the chain (`chain name { ... }`), or delete the file if it is no longer a spec",
+        )
 }

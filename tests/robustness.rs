@@ -489,3 +489,43 @@ fn yaml_oddities_and_negative_tolerances_are_findings() {
     assert!(run.stdout.contains("\"S013\""), "{}", run.stdout);
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// An empty file, or one with only comments, used to pass with no
+/// finding; it declares no chain and is now S014.
+#[test]
+fn a_spec_without_a_chain_is_a_finding() {
+    let dir = temp_dir("empty");
+    for (name, text) in [
+        ("empty.catena", ""),
+        ("comments.catena", "# to do\n\n# later\n"),
+    ] {
+        std::fs::write(dir.join(name), text).unwrap();
+        let run = catena(&dir, &["check", "--format", "json", name], None);
+        assert_eq!(run.status, 1, "{name}: {}", run.stdout);
+        assert!(run.stdout.contains("\"S014\""), "{name}: {}", run.stdout);
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// A folder link inside a checked folder used to be skipped ("checked 0
+/// files"), so a broken spec behind it passed; a link loop stopped the
+/// whole run. Links are now followed, and a loop is reported (S015) and
+/// skipped while the rest is checked.
+#[cfg(unix)]
+#[test]
+fn folder_links_are_followed_and_loops_skipped() {
+    let dir = temp_dir("links");
+    let real = dir.join("elsewhere");
+    std::fs::create_dir_all(&real).unwrap();
+    std::fs::write(real.join("broken.catena"), "chain a {\n    bogus line\n}\n").unwrap();
+    let tree = dir.join("tree");
+    std::fs::create_dir_all(&tree).unwrap();
+    std::os::unix::fs::symlink(&real, tree.join("linked")).unwrap();
+    std::os::unix::fs::symlink("..", tree.join("up")).unwrap();
+    std::os::unix::fs::symlink("self", tree.join("self")).unwrap();
+    let run = catena(&dir, &["check", "--format", "json", "tree"], None);
+    assert_eq!(run.status, 1, "{}{}", run.stdout, run.stderr);
+    assert!(run.stdout.contains("broken.catena"), "{}", run.stdout);
+    assert_eq!(run.stdout.matches("\"S015\"").count(), 2, "{}", run.stdout);
+    std::fs::remove_dir_all(&dir).unwrap();
+}

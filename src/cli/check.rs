@@ -2,7 +2,7 @@ use std::path::{Path, PathBuf};
 
 use clap::{Args, ValueEnum};
 
-use super::files::{collect, read_spec};
+use super::files::{collect_reporting, read_spec};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::{DEFAULT_TRIALS, MAX_TRIALS};
 use crate::analysis::CheckOptions;
@@ -57,7 +57,7 @@ enum Deny {
 }
 
 pub fn run(args: CheckArgs) -> u8 {
-    let files = match collect(&args.paths) {
+    let (files, loops) = match collect_reporting(&args.paths) {
         Ok(f) => f,
         Err(e) => {
             errln!("catena: {e}");
@@ -98,6 +98,7 @@ pub fn run(args: CheckArgs) -> u8 {
     let mut seen = std::collections::HashSet::new();
     let all: Vec<Finding> = per_file
         .into_iter()
+        .chain(std::iter::once(loops))
         .flatten()
         .filter(|f| {
             seen.insert((

@@ -7,39 +7,108 @@ use crate::syntax::MAX_SOURCE_BYTES;
 /// The spec files named on the command line: files as given, folders
 /// searched recursively for `*.catena`, in sorted order.
 pub fn collect(paths: &[PathBuf]) -> Result<Vec<PathBuf>, String> {
+    let (files, loops) = collect_reporting(paths)?;
+    for finding in loops {
+        errln!("catena: {}", finding.message);
+    }
+    Ok(files)
+}
+
+/// [`collect`], with a finding (S015) for each folder link that leads back
+/// into a folder being searched: it is skipped and the search goes on.
+pub fn collect_reporting(paths: &[PathBuf]) -> Result<(Vec<PathBuf>, Vec<Finding>), String> {
     let mut out = Vec::new();
+    let mut loops = Vec::new();
     for path in paths {
         let meta = std::fs::metadata(path)
             .map_err(|e| format!("cannot read `{}`: {}", path.display(), plain_io(&e)))?;
         if meta.is_dir() {
-            walk(path, &mut out).map_err(|e| {
+            let mut walk = Walk {
+                out: &mut out,
+                loops: &mut loops,
+                ancestors: Vec::new(),
+            };
+            walk.folder(path).map_err(|e| {
                 format!("cannot read folder `{}`: {}", path.display(), plain_io(&e))
             })?;
         } else {
             out.push(path.clone());
         }
     }
-    Ok(out)
+    Ok((out, loops))
 }
 
-fn walk(dir: &Path, out: &mut Vec<PathBuf>) -> std::io::Result<()> {
-    let mut entries: Vec<_> = std::fs::read_dir(dir)?.collect::<Result<_, _>>()?;
-    entries.sort_by_key(|e| e.file_name());
-    for entry in entries {
+struct Walk<'a> {
+    out: &'a mut Vec<PathBuf>,
+    loops: &'a mut Vec<Finding>,
+    /// The folders being searched, resolved: a link back to one is a loop.
+    ancestors: Vec<PathBuf>,
+}
+
+impl Walk<'_> {
+    fn folder(&mut self, dir: &Path) -> std::io::Result<()> {
+        let resolved = std::fs::canonicalize(dir)?;
+        if self.ancestors.contains(&resolved) {
+            self.loops.push(link_loop(dir, &resolved));
+            return Ok(());
+        }
+        self.ancestors.push(resolved);
+        let mut entries: Vec<_> = std::fs::read_dir(dir)?.collect::<Result<_, _>>()?;
+        entries.sort_by_key(|e| e.file_name());
+        for entry in entries {
+            self.entry(&entry)?;
+        }
+        self.ancestors.pop();
+        Ok(())
+    }
+
+    fn entry(&mut self, entry: &std::fs::DirEntry) -> std::io::Result<()> {
         let path = entry.path();
-        let kind = entry.file_type()?;
+        let mut kind = entry.file_type()?;
+        if kind.is_symlink() {
+            // A link is followed to what it names: a folder behind a link
+            // is searched like any other.
+            match std::fs::metadata(&path) {
+                Ok(meta) => kind = meta.file_type(),
+                Err(e) if e.raw_os_error() == Some(ELOOP) => {
+                    self.loops.push(link_loop(&path, &path));
+                    return Ok(());
+                }
+                Err(_) => {}
+            }
+        }
         if kind.is_dir() {
             // Hidden folders (`.git`) and build output are never specs.
             let name = entry.file_name();
             let name = name.to_string_lossy();
             if !name.starts_with('.') && name != "target" {
-                walk(&path, out)?;
+                self.folder(&path)?;
             }
         } else if path.extension().is_some_and(|e| e == "catena") {
-            out.push(path);
+            self.out.push(path);
         }
+        Ok(())
     }
-    Ok(())
+}
+
+/// The error number of a chain of symbolic links that never ends.
+#[cfg(unix)]
+const ELOOP: i32 = libc::ELOOP;
+#[cfg(not(unix))]
+const ELOOP: i32 = -1;
+
+fn link_loop(path: &Path, target: &Path) -> Finding {
+    let shown = path.display().to_string();
+    let file = crate::diagnostics::SourceFile::new(shown.clone(), "");
+    Finding::new(
+        crate::diagnostics::Code::S015,
+        &file,
+        format!(
+            "`{shown}` leads back to `{}`, a folder already being searched; it is skipped",
+            target.display()
+        ),
+    )
+    .help("remove the link or point it outside the folder it sits in")
 }
 
 /// An I/O error without the `(os error 2)` tail.

@@ -64,6 +64,8 @@ codes! {
     S011 => Error, "statement outside a chain";
     S012 => Error, "not a regular file";
     S013 => Error, "negative tolerance";
+    S014 => Error, "no chain in the file";
+    S015 => Error, "folder link loop";
 
     U101 => Error, "unknown unit";
     U102 => Error, "wrong dimension";
