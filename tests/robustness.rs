@@ -529,3 +529,32 @@ fn folder_links_are_followed_and_loops_skipped() {
     assert_eq!(run.stdout.matches("\"S015\"").count(), 2, "{}", run.stdout);
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// A bidirectional control in a comment or a string (the "trojan
+/// source" pattern) used to pass silently; each is S016 at its place.
+#[test]
+fn bidirectional_controls_are_findings() {
+    let dir = temp_dir("bidi");
+    for (i, c) in ['\u{202E}', '\u{2066}', '\u{200F}', '\u{061C}']
+        .iter()
+        .enumerate()
+    {
+        let name = format!("b{i}.catena");
+        let text = format!(
+            "chain a \"title {c}x\" {{\n    measurand temperature 0 degC .. 50 degC # {c}\n}}\n"
+        );
+        std::fs::write(dir.join(&name), &text).unwrap();
+        let run = catena(&dir, &["check", "--format", "json", &name], None);
+        assert_eq!(run.status, 1, "{}", run.stdout);
+        let doc: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+        let lines: Vec<i64> = doc
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|f| f["code"] == "S016")
+            .map(|f| f["line"].as_i64().unwrap())
+            .collect();
+        assert_eq!(lines, [1, 2], "{}", run.stdout);
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}

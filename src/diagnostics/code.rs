@@ -66,6 +66,7 @@ codes! {
     S013 => Error, "negative tolerance";
     S014 => Error, "no chain in the file";
     S015 => Error, "folder link loop";
+    S016 => Error, "bidirectional control character";
 
     U101 => Error, "unknown unit";
     U102 => Error, "wrong dimension";

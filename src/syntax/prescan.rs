@@ -52,7 +52,7 @@ pub fn decode(name: &str, bytes: &[u8]) -> Result<Arc<SourceFile>, Finding> {
 
 /// Brace balance and string termination, skipping comments and strings.
 pub fn scan(file: &Arc<SourceFile>) -> Findings {
-    let mut findings = Findings::new();
+    let mut findings = bidi_controls(file);
     let text = file.text();
     let mut open: Vec<usize> = Vec::new();
     // A `}` less indented than its `{` line most likely closes an outer
@@ -137,6 +137,42 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
             Finding::new(Code::S002, file, "`{` is never closed")
                 .label(Span::new(at, at + 1), "this block has no closing `}`")
                 .help(help),
+        );
+    }
+    findings
+}
+
+/// The Unicode bidirectional controls: embeddings and overrides
+/// (U+202A–U+202E), isolates (U+2066–U+2069), the marks U+200E, U+200F and
+/// U+061C. In a comment or a string they reorder what a reviewer sees
+/// without changing what is read ("trojan source", CVE-2021-42574).
+fn is_bidi_control(c: char) -> bool {
+    matches!(c, '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}' | '\u{200E}' | '\u{200F}' | '\u{061C}')
+}
+
+/// At most this many S016 findings a file: one already says what to do.
+const MAX_BIDI_REPORTED: usize = 8;
+
+/// S016 at every bidirectional control character (up to a few).
+fn bidi_controls(file: &Arc<SourceFile>) -> Findings {
+    let mut findings = Findings::new();
+    let found = file
+        .text()
+        .char_indices()
+        .filter(|&(_, c)| is_bidi_control(c))
+        .take(MAX_BIDI_REPORTED);
+    for (at, c) in found {
+        findings.push(
+            Finding::new(
+                Code::S016,
+                file,
+                format!(
+                    "the invisible bidirectional control U+{:04X} reorders how this line is displayed",
+                    u32::from(c)
+                ),
+            )
+            .label(Span::new(at, at + c.len_utf8()), "hidden character here")
+            .help("delete it: a spec reads left to right, and a reviewer cannot see this character in a diff"),
         );
     }
     findings
