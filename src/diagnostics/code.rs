@@ -67,6 +67,7 @@ codes! {
     S014 => Error, "no chain in the file";
     S015 => Error, "folder link loop";
     S016 => Error, "bidirectional control character";
+    S017 => Error, "name too long";
 
     U101 => Error, "unknown unit";
     U102 => Error, "wrong dimension";

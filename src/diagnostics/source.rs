@@ -43,6 +43,9 @@ pub struct SourceFile {
     name: String,
     text: String,
     line_starts: Vec<usize>,
+    /// A `\r` not followed by `\n` ends a line for the renderer but not in
+    /// `line_starts`, so excerpts of such a file are cut from the whole text.
+    lone_cr: bool,
 }
 
 impl SourceFile {
@@ -51,10 +54,16 @@ impl SourceFile {
         let line_starts = std::iter::once(0)
             .chain(text.match_indices('\n').map(|(i, _)| i + 1))
             .collect();
+        let lone_cr = text
+            .as_bytes()
+            .windows(2)
+            .any(|w| w[0] == b'\r' && w[1] != b'\n')
+            || text.ends_with('\r');
         Arc::new(Self {
             name: name.into(),
             text,
             line_starts,
+            lone_cr,
         })
     }
 
@@ -64,6 +73,12 @@ impl SourceFile {
 
     pub fn text(&self) -> &str {
         &self.text
+    }
+
+    /// The zero-based line a byte offset is on.
+    fn line_of(&self, offset: usize) -> usize {
+        let offset = offset.min(self.text.len());
+        self.line_starts.partition_point(|&s| s <= offset) - 1
     }
 
     /// One-based line and column (in characters) of a byte offset.
@@ -106,16 +121,40 @@ impl miette::SourceCode for SourceFile {
         context_lines_before: usize,
         context_lines_after: usize,
     ) -> Result<Box<dyn miette::SpanContents<'a> + 'a>, miette::MietteError> {
-        let inner = self
-            .text
-            .read_span(span, context_lines_before, context_lines_after)?;
+        // The excerpt is cut from a window of whole lines around the span,
+        // found through `line_starts`: the renderer's own search walks the
+        // text from its start, which made rendering every finding of a
+        // large file quadratic. Offsets and lines are shifted back.
+        let (window_start, first_line) = if self.lone_cr {
+            (0, 0)
+        } else {
+            let line = self.line_of(span.offset());
+            let first = line.saturating_sub(context_lines_before + 1);
+            (self.line_starts[first], first)
+        };
+        let window_end = if self.lone_cr {
+            self.text.len()
+        } else {
+            let end_line = self.line_of(span.offset() + span.len());
+            self.line_starts
+                .get(end_line + context_lines_after + 2)
+                .copied()
+                .unwrap_or(self.text.len())
+        };
+        let window = &self.text[window_start..window_end];
+        let local = miette::SourceSpan::new(
+            span.offset().saturating_sub(window_start).into(),
+            span.len(),
+        );
+        let inner = window.read_span(&local, context_lines_before, context_lines_after)?;
+        let at = *inner.span();
         Ok(Box::new(miette::MietteSpanContents::new_named(
             self.name.clone(),
             inner.data(),
-            *inner.span(),
-            inner.line(),
+            miette::SourceSpan::new((at.offset() + window_start).into(), at.len()),
+            inner.line() + first_line,
             inner.column(),
-            inner.line_count(),
+            inner.line_count() + first_line,
         )))
     }
 }

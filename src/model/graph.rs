@@ -2,6 +2,7 @@
 //! ports, type mismatches, inputs driven twice or not at all, cycles,
 //! unused stages and the chain's single reading.
 
+use std::collections::{HashMap, HashSet};
 use std::sync::Arc;
 
 use petgraph::algo::tarjan_scc;
@@ -35,10 +36,17 @@ pub fn connect(
     let mut connections = Vec::new();
     // Stages named in an edge statement that was rejected: what the graph
     // checks would say about them only echoes that finding.
-    let mut broken: Vec<String> = Vec::new();
+    let mut broken: HashSet<String> = HashSet::new();
+    // By name, once: a lookup per endpoint stays constant time however
+    // many stages a chain has. The first of a repeated name wins, as a
+    // scan would find it.
+    let mut by_name: HashMap<&str, usize> = HashMap::with_capacity(stages.len());
+    for (i, s) in stages.iter().enumerate() {
+        by_name.entry(s.name.as_str()).or_insert(i);
+    }
     for edge in edges {
         let before = findings.len();
-        connect_edge(file, stages, edge, &mut connections, findings);
+        connect_edge(file, stages, &by_name, edge, &mut connections, findings);
         if findings.len() > before {
             broken.extend(edge.endpoints.iter().map(|e| e.stage.name.clone()));
         }
@@ -66,12 +74,13 @@ fn mark_misnamed(stages: &mut [Stage], edges: &[EdgeDecl], findings: &Findings) 
         }
     }
     let edge_names = edges.iter().flat_map(|e| e.endpoints.iter());
+    let known: HashSet<&str> = stages.iter().map(|s| s.name.as_str()).collect();
     let mut misnamed = Vec::new();
     for (name, span, file) in edge_names
         .map(|end| (end.stage.name.as_str(), end.stage.span, None))
         .chain(names.iter().map(|(n, s, f)| (n.as_str(), *s, Some(f))))
     {
-        if stages.iter().any(|s| s.name == name) {
+        if known.contains(name) {
             continue;
         }
         let Some(near) = did_you_mean(name, stages.iter().map(|s| s.name.as_str())) else {
@@ -96,11 +105,12 @@ fn mark_misnamed(stages: &mut [Stage], edges: &[EdgeDecl], findings: &Findings) 
 fn connect_edge(
     file: &Arc<SourceFile>,
     stages: &[Stage],
+    by_name: &HashMap<&str, usize>,
     edge: &EdgeDecl,
     connections: &mut Vec<Connection>,
     findings: &mut Findings,
 ) {
-    let index = |name: &str| stages.iter().position(|s| s.name == name);
+    let index = |name: &str| by_name.get(name).copied();
     {
         for (i, pair) in edge.endpoints.windows(2).enumerate() {
             let (a, b) = (&pair[0], &pair[1]);

@@ -20,6 +20,41 @@ use crate::syntax::ast::{Ident, Param, StageKind};
 
 use super::parts_positions::positions;
 
+/// Flow nesting (`[[[...` or `{{{...`) deeper than this is refused before
+/// the YAML parser sees it: the parser's own recursion limit bites only
+/// after work that grows with the square of the depth. A parts file needs
+/// three levels.
+pub const MAX_YAML_DEPTH: usize = 64;
+
+/// The first place where flow brackets nest deeper than [`MAX_YAML_DEPTH`]
+/// (outside quotes and comments), in one linear pass: the depth there and
+/// its byte offset.
+fn too_deep(text: &str) -> Option<(usize, usize)> {
+    let (mut depth, mut quote, mut comment, mut prev) = (0usize, None::<u8>, false, b'\n');
+    for (i, &b) in text.as_bytes().iter().enumerate() {
+        match (quote, b) {
+            _ if comment => comment = b != b'\n',
+            (Some(q), _) if b == q && !(q == b'"' && prev == b'\\') => quote = None,
+            (Some(_), _) => {}
+            // A quote opens a scalar only where a token starts (`don't` has none).
+            (None, b'"' | b'\'') if prev.is_ascii_whitespace() || b"[{,:-".contains(&prev) => {
+                quote = Some(b)
+            }
+            (None, b'#') if prev.is_ascii_whitespace() => comment = true,
+            (None, b'[' | b'{') => {
+                depth += 1;
+                if depth > MAX_YAML_DEPTH {
+                    return Some((depth, i));
+                }
+            }
+            (None, b']' | b'}') => depth = depth.saturating_sub(1),
+            _ => {}
+        }
+        prev = if prev == b'\\' && b == b'\\' { 0 } else { b };
+    }
+    None
+}
+
 /// Parts files are small; this bounds a hostile one.
 pub const MAX_PARTS_BYTES: usize = 1024 * 1024;
 
@@ -112,6 +147,18 @@ fn load_file(path: &Path, shown: &str) -> Loaded {
         }
     };
     let file = SourceFile::new(shown, text);
+    if let Some((depth, at)) = too_deep(file.text()) {
+        loaded.findings.push(
+            Finding::new(
+                Code::L402,
+                &file,
+                format!("parts file nests {depth} levels deep; parts files nest at most {MAX_YAML_DEPTH}"),
+            )
+            .label(Span::new(at, at + 1), "too deep here")
+            .help("a part is a mapping of parameters to one-line values: flatten the nesting"),
+        );
+        return loaded;
+    }
     parse_library(&file, &mut loaded);
     loaded
 }

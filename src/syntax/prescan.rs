@@ -53,6 +53,9 @@ pub fn decode(name: &str, bytes: &[u8]) -> Result<Arc<SourceFile>, Finding> {
 /// Brace balance and string termination, skipping comments and strings.
 pub fn scan(file: &Arc<SourceFile>) -> Findings {
     let mut findings = bidi_controls(file);
+    if let Some(f) = long_word(file) {
+        findings.push(f);
+    }
     let text = file.text();
     let mut open: Vec<usize> = Vec::new();
     // A `}` less indented than its `{` line most likely closes an outer
@@ -140,6 +143,52 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
         );
     }
     findings
+}
+
+/// Names are at most this long. A name is repeated in every source id,
+/// finding and report line that mentions its stage, so one of megabytes
+/// would multiply into hundreds of megabytes of output.
+pub const MAX_NAME_CHARS: usize = 256;
+
+/// S017 at the first word (a name or a number) longer than
+/// [`MAX_NAME_CHARS`] outside comments and strings, in one linear pass.
+fn long_word(file: &Arc<SourceFile>) -> Option<Finding> {
+    let text = file.text().as_bytes();
+    let (mut in_string, mut in_comment, mut run_start) = (false, false, None::<usize>);
+    for (i, &b) in text.iter().enumerate() {
+        let word = b.is_ascii_alphanumeric() || b == b'_';
+        if in_comment {
+            in_comment = b != b'\n';
+        } else if in_string {
+            in_string = !(b == b'"' || b == b'\n') || (i > 0 && text[i - 1] == b'\\');
+        } else if word {
+            let start = *run_start.get_or_insert(i);
+            if i - start + 1 > MAX_NAME_CHARS {
+                let end = text[start..]
+                    .iter()
+                    .position(|c| !(c.is_ascii_alphanumeric() || *c == b'_'))
+                    .map_or(text.len(), |n| start + n);
+                return Some(
+                    Finding::new(
+                        Code::S017,
+                        file,
+                        format!(
+                            "a name of {} characters; names are at most {MAX_NAME_CHARS}",
+                            end - start
+                        ),
+                    )
+                    .label(Span::new(start, end), "this name")
+                    .help("shorten it: a stage or chain name is a word or two (`front_amp`)"),
+                );
+            }
+            continue;
+        } else {
+            in_string = b == b'"';
+            in_comment = b == b'#';
+        }
+        run_start = None;
+    }
+    None
 }
 
 /// The Unicode bidirectional controls: embeddings and overrides
