@@ -542,12 +542,13 @@ fn quantization_goes_through_the_inverse_at_each_point() {
 /// through each side of the inverse, so with no other source the 95 %
 /// interval of the NTC chain at −40 degC is 0.95 of each side of the hand
 /// calculation above (the uniform's 2.5 % and 97.5 % points, JCGM
-/// 101:2008 §6.4.2), good to its own numerical half-width.
+/// 101:2008 §6.4.2), good to its own numerical half-width; enough trials
+/// that the two sides' difference stands out of it.
 #[test]
 fn monte_carlo_draws_quantization_through_the_inverse() {
     let v = budget(
         "ntc_quantization.catena",
-        &["--points", "3", "--trials", "20000"],
+        &["--points", "3", "--trials", "1000000"],
     );
     let (r25, beta, t25, fixed, full): (f64, f64, f64, f64, f64) =
         (10e3, 3380.0, 298.15, 10e3, 4096.0);
@@ -566,8 +567,17 @@ fn monte_carlo_draws_quantization_through_the_inverse() {
             "{got:?} vs {want:?} ± {numerical}"
         );
     }
-    // The two ends differ as the sides do (0.24 %), more than the noise.
-    assert!((got[0].abs() - got[1].abs()).abs() > 1e-4, "{got:?}");
+    // The two ends differ as the sides do (0.24 %, 1.1e-4 K): at 10⁶
+    // trials that is over three times the ends' numerical width.
+    let spread = |e: [f64; 2]| e[1].abs() - e[0].abs();
+    assert!(
+        spread(want).abs() > 3.0 * numerical,
+        "{want:?} ± {numerical}"
+    );
+    assert!(
+        (spread(got) - spread(want)).abs() < 2.0 * numerical,
+        "{got:?} vs {want:?} ± {numerical}"
+    );
 }
 
 /// The budget's step response of a chain whose only dynamics is one RC
