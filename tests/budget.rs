@@ -590,3 +590,68 @@ fn rc_chain_reaches_ninety_percent_at_rc_ln_10() {
     let got = f(&v["dynamics"]["response_90_s"]);
     assert!((got - expect).abs() < 1e-6 * expect, "{got} vs {expect}");
 }
+
+/// Two equal rectangular sources of a linear chain: each holds half the
+/// variance by GUM (u_i² / u_c², exactly) and by the Monte Carlo
+/// first-order index (within its scatter). The sum is triangular, so
+/// GUM's 95 % interval ± 1.96 u = ± 1.600 a is 0.0475 a off the Monte
+/// Carlo's ± (2 − √0.2) a (closed forms): beyond the tolerance, so
+/// JCGM 101 §8 does not validate GUM there.
+#[test]
+fn two_rectangular_sources_share_evenly_and_fail_gum_validation() {
+    let v = budget(
+        "two_rectangular.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    for id in ["ic.accuracy", "conv.offset"] {
+        let s = source(p, id);
+        assert!((f(&s["gum_share"]) - 0.5).abs() < 1e-6, "{s}");
+        assert!((f(&s["monte_carlo_share"]) - 0.5).abs() < 0.01, "{s}");
+    }
+    let check = &p["gum_validation"];
+    let numerical = f(&p["monte_carlo_numerical"]);
+    let expected = 1.959964 * (2.0f64 / 3.0).sqrt() - (2.0 - 0.2f64.sqrt());
+    for end in ["d_low", "d_high"] {
+        assert!((f(&check[end]) - expected).abs() < numerical, "{check}");
+    }
+    assert!(f(&check["tolerance"]) < expected, "{check}");
+    assert_eq!(check["validated"], false, "{check}");
+}
+
+/// One normal source (a ± 1 K 3σ bound): the output is normal, so GUM's
+/// 95 % interval is the Monte Carlo's and §8 validates it; the source
+/// holds the whole variance by both methods (the Monte Carlo index loses
+/// under 0.1 % inside its cells).
+#[test]
+fn one_normal_source_validates_gum() {
+    let v = budget(
+        "one_normal.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    let check = &p["gum_validation"];
+    assert_eq!(check["validated"], true, "{check}");
+    let s = source(p, "ic.accuracy");
+    assert!((f(&s["monte_carlo_share"]) - 1.0).abs() < 0.003, "{s}");
+    let run = catena(
+        &root().join("tests/fixtures/budget"),
+        &["budget", "one_normal.catena", "--points", "3"],
+        None,
+    );
+    assert!(
+        run.stdout.contains("GUM validated at all 3 points"),
+        "{}",
+        run.stdout
+    );
+}
+
+/// Without Monte Carlo there is nothing to validate GUM against, and no
+/// Monte Carlo shares.
+#[test]
+fn no_trials_no_validation() {
+    let v = budget("one_normal.catena", &["--points", "3", "--trials", "0"]);
+    let p = &v["points"][1];
+    assert!(p.get("gum_validation").is_none(), "{p}");
+    assert!(source(p, "ic.accuracy").get("monte_carlo_share").is_none());
+}

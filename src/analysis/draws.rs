@@ -64,6 +64,14 @@ impl Stream {
         (self.bits(t) >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
     }
 
+    /// Which of `cells` equal-probability cells trial `t`'s draw falls
+    /// in: the same for its uniform and its normal, both monotone in the
+    /// same bits.
+    #[inline]
+    pub fn cell(self, t: u64, cells: usize) -> usize {
+        (((self.bits(t) >> 11) as u128 * cells as u128) >> 53) as usize
+    }
+
     /// Trial `t`'s standard normal: the inverse CDF of a uniform on the
     /// open interval (0, 1), midway in its 2⁻⁵³ step, so never infinite.
     #[inline]

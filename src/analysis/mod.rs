@@ -11,8 +11,10 @@ pub mod noise;
 pub mod ranges;
 pub mod report;
 pub mod requirements;
+pub mod shares;
 mod stages;
 pub mod step;
+pub mod validation;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};

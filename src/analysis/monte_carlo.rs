@@ -37,6 +37,24 @@ pub struct Interval {
     pub numerical: f64,
 }
 
+/// A source's share of the output variance at one condition, from the
+/// trials themselves (see [`super::shares`]).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Share {
+    /// The source's id, as the budget's contributions name it.
+    pub id: String,
+    /// The first-order index, 0 … 1.
+    pub share: f64,
+}
+
+/// What a Monte Carlo finds at one condition.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Sampled {
+    pub interval: Interval,
+    /// Every drawn source's variance share, when asked for.
+    pub shares: Vec<Share>,
+}
+
 /// One source's value as `origin + scale · x`, x standard normal or
 /// uniform on [0, 1), worked out once rather than per trial.
 #[derive(Clone, Copy, Debug)]
@@ -135,7 +153,8 @@ pub fn interval(
         env: *env,
         quantization: (-lsb / 2.0, lsb / 2.0),
     };
-    Ok(run(plan, &[condition], noise, trials, seed)?[0])
+    let mut sampled = run(plan, &[condition], noise, trials, seed, false)?;
+    Ok(sampled.remove(0).interval)
 }
 
 /// [`interval`] at every condition, calling `progress(done, total)` as
@@ -151,11 +170,26 @@ pub fn intervals(
     seed: u64,
     progress: &dyn Fn(usize, usize),
 ) -> Result<Vec<Interval>, EvalError> {
+    let sampled = sample(plan, conditions, noise, trials, seed, false, progress)?;
+    Ok(sampled.into_iter().map(|s| s.interval).collect())
+}
+
+/// [`intervals`], with each source's variance share at every condition
+/// when `shares` is set.
+pub fn sample(
+    plan: &Plan,
+    conditions: &[Condition],
+    noise: &Noise,
+    trials: usize,
+    seed: u64,
+    shares: bool,
+    progress: &dyn Fn(usize, usize),
+) -> Result<Vec<Sampled>, EvalError> {
     let group = (TRIALS_IN_FLIGHT / trials.max(1)).max(1);
     let mut out = Vec::with_capacity(conditions.len());
     for batch in conditions.chunks(group) {
         progress(out.len(), conditions.len());
-        out.extend(run(plan, batch, noise, trials, seed)?);
+        out.extend(run(plan, batch, noise, trials, seed, shares)?);
     }
     Ok(out)
 }
@@ -169,6 +203,17 @@ struct Streams {
 }
 
 impl Streams {
+    /// Every drawn source's id and stream, noise and quantization last.
+    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Stream)> + 'a {
+        let sources = self
+            .sources
+            .iter()
+            .map(|(d, s)| (plan.slots[d.slot].id.as_str(), *s));
+        let noise = self.noise.map(|s| (NOISE_ID, s));
+        let quantization = self.quantization.map(|s| (QUANTIZATION_ID, s));
+        sources.chain(noise).chain(quantization)
+    }
+
     fn new(plan: &Plan, condition: &Condition, noise: &Noise, seed: u64) -> Streams {
         let key = condition_key(&condition.env);
         let sources = plan
@@ -194,12 +239,16 @@ fn run(
     noise: &Noise,
     trials: usize,
     seed: u64,
-) -> Result<Vec<Interval>, EvalError> {
+    shares: bool,
+) -> Result<Vec<Sampled>, EvalError> {
     if trials == 0 {
-        let none = Interval {
-            low: 0.0,
-            high: 0.0,
-            numerical: 0.0,
+        let none = Sampled {
+            interval: Interval {
+                low: 0.0,
+                high: 0.0,
+                numerical: 0.0,
+            },
+            shares: Vec::new(),
         };
         return Ok(vec![none; conditions.len()]);
     }
@@ -224,7 +273,36 @@ fn run(
         .collect();
     // The first failure in order, whatever the thread count.
     outcomes.into_iter().collect::<Result<(), _>>()?;
-    Ok(errors.par_iter_mut().map(|all| coverage(all)).collect())
+    Ok(errors
+        .par_iter_mut()
+        .zip(&streams)
+        .map(|(all, streams)| {
+            // The shares read the trials in their order, before the
+            // interval's selection reorders them.
+            let shares = if shares {
+                variance_shares(plan, streams, all)
+            } else {
+                Vec::new()
+            };
+            Sampled {
+                interval: coverage(all),
+                shares,
+            }
+        })
+        .collect())
+}
+
+/// Each drawn source's share of the variance of `errors`.
+fn variance_shares(plan: &Plan, streams: &Streams, errors: &[f64]) -> Vec<Share> {
+    let cells = super::shares::cells(errors.len());
+    let centered = super::shares::Centered::new(errors);
+    streams
+        .named(plan)
+        .map(|(id, stream)| Share {
+            id: id.to_string(),
+            share: super::shares::first_order(&centered, stream, cells),
+        })
+        .collect()
 }
 
 /// The errors of trials `first ..` into `out`.
