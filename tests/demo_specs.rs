@@ -121,3 +121,70 @@ fn fmt_is_idempotent_and_changes_no_finding() {
         );
     }
 }
+
+/// The README's tour of the language is a spec that checks clean when it
+/// sits beside the shipped demos, with the part it names from the shipped
+/// library.
+#[test]
+fn readme_tour_checks_clean() {
+    let readme = std::fs::read_to_string(root().join("README.md")).expect("README.md");
+    let tour = readme
+        .split("## A tour of the language")
+        .nth(1)
+        .and_then(|rest| rest.split("```\n").nth(1))
+        .expect("the tour has a code block");
+    assert!(tour.contains("use \"parts/") && tour.contains(" : "), "{tour}");
+    let checked = catena::check::check_bytes(
+        "tour.catena",
+        tour.as_bytes(),
+        &root().join("specs"),
+        &mut catena::model::PartsCache::default(),
+    );
+    let findings: Vec<String> = checked
+        .findings
+        .iter()
+        .map(|f| format!("{} {}", f.code.as_str(), f.message))
+        .collect();
+    assert!(checked.resolved && findings.is_empty(), "{findings:?}");
+}
+
+/// Every part of the shipped library is used by a demo or a test spec, so
+/// none of them can stop checking unnoticed.
+#[test]
+fn every_shipped_part_is_used() {
+    let mut specs = String::new();
+    for dir in ["specs", "tests/fixtures"] {
+        collect_specs(&root().join(dir), &mut specs);
+    }
+    let mut parts = 0;
+    for entry in std::fs::read_dir(root().join("specs/parts")).expect("specs/parts/") {
+        let path = entry.expect("entry").path();
+        let text = std::fs::read_to_string(&path).expect("parts file");
+        let names = text.lines().filter_map(|l| {
+            let name = l.strip_prefix("  ")?.strip_suffix(':')?;
+            name.chars()
+                .all(|c| c.is_ascii_alphanumeric() || c == '_')
+                .then_some(name)
+        });
+        for name in names {
+            parts += 1;
+            assert!(
+                specs.contains(&format!(": {name} ")),
+                "part `{name}` of {} is used by no spec",
+                path.display()
+            );
+        }
+    }
+    assert!(parts >= 10, "found {parts} parts");
+}
+
+fn collect_specs(dir: &std::path::Path, out: &mut String) {
+    for entry in std::fs::read_dir(dir).expect("readable folder") {
+        let path = entry.expect("entry").path();
+        if path.is_dir() {
+            collect_specs(&path, out);
+        } else if path.extension().is_some_and(|e| e == "catena") {
+            out.push_str(&std::fs::read_to_string(&path).expect("spec"));
+        }
+    }
+}
