@@ -133,7 +133,10 @@ fn readme_tour_checks_clean() {
         .nth(1)
         .and_then(|rest| rest.split("```\n").nth(1))
         .expect("the tour has a code block");
-    assert!(tour.contains("use \"parts/") && tour.contains(" : "), "{tour}");
+    assert!(
+        tour.contains("use \"parts/") && tour.contains(" : "),
+        "{tour}"
+    );
     let checked = catena::check::check_bytes(
         "tour.catena",
         tour.as_bytes(),

@@ -119,4 +119,5 @@ codes! {
     R615 => Warning, "Monte Carlo verdict inside its numerical width";
     R625 => Warning, "point outside the measurand range";
     R626 => Error, "reading clamped outside the range";
+    R630 => Error, "converter input not settled";
 }

@@ -5,7 +5,7 @@ use super::convert::{calibration_env, Calibrated, Conversion};
 use super::element::Supply;
 use super::plan::{
     AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
-    Senses, Signal,
+    Senses, Signal, SlotId,
 };
 use crate::physics::adc::Polarity;
 use crate::physics::{rtd, semiconductor, strain, thermocouple, transducer};
@@ -228,6 +228,50 @@ impl Plan {
                 value * (1.0 + values[d.slot] * (env.ambient - self.reference))
             }
             Some(d) => value + values[d.slot] * (env.ambient - self.reference),
+        }
+    }
+
+    /// The reference a converter works against: its `ref` input, else its
+    /// `vref` with drift.
+    #[inline(always)]
+    fn reference_of(
+        &self,
+        reference: Option<NodeId>,
+        vref: Option<SlotId>,
+        vref_drift: Option<DriftSlot>,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal],
+    ) -> f64 {
+        match reference.map(|n| s[n]) {
+            Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
+            _ => self.drifted(
+                vref.map(|r| values[r]).unwrap_or(0.0),
+                vref_drift,
+                values,
+                env,
+            ),
+        }
+    }
+
+    /// The reference voltage converter `node` works against in one raw
+    /// evaluation (`signals` from [`Plan::raw_signals`]); None for another
+    /// kind of node.
+    pub fn converter_reference(
+        &self,
+        node: NodeId,
+        values: &[f64],
+        env: &Env,
+        signals: &[Signal],
+    ) -> Option<f64> {
+        match &self.nodes[node] {
+            Node::Adc {
+                reference,
+                vref,
+                vref_drift,
+                ..
+            } => Some(self.reference_of(*reference, *vref, *vref_drift, values, env, signals)),
+            _ => None,
         }
     }
 
@@ -485,15 +529,7 @@ impl Plan {
                 let Signal::Voltage { v, .. } = s[*input] else {
                     return Err(self.numeric(i, "no input voltage"));
                 };
-                let vr = match reference.map(|n| s[n]) {
-                    Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
-                    _ => self.drifted(
-                        vref.map(|r| values[r]).unwrap_or(0.0),
-                        *vref_drift,
-                        values,
-                        env,
-                    ),
-                };
+                let vr = self.reference_of(*reference, *vref, *vref_drift, values, env, s);
                 if vr <= 0.0 || !vr.is_finite() {
                     return Err(self.numeric(i, "the reference voltage is zero or negative"));
                 }

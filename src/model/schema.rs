@@ -91,6 +91,9 @@ pub struct ModelSpec {
     pub exclusive: &'static [(&'static str, &'static str)],
     /// Groups of which at least one must be given.
     pub one_of: &'static [&'static [&'static str]],
+    /// Groups given all together or not at all: what one of them states
+    /// means nothing without the others.
+    pub together: &'static [&'static [&'static str]],
 }
 
 const fn p(name: &'static str, shape: Shape) -> ParamSpec {
@@ -181,6 +184,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Excitation,
@@ -193,6 +197,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -211,6 +216,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -225,6 +231,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -241,6 +248,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[("beta", "steinhart")],
         one_of: &[&["beta", "steinhart"]],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -266,6 +274,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -281,6 +290,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -296,6 +306,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -324,6 +335,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -332,6 +344,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -343,6 +356,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -351,6 +365,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -359,6 +374,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -367,6 +383,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Amplifier,
@@ -391,6 +408,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Filter,
@@ -404,6 +422,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[("cutoff", "r"), ("cutoff", "c")],
         one_of: &[&["cutoff", "r"]],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Adc,
@@ -421,9 +440,15 @@ static MODELS: &[ModelSpec] = &[
             p("noise", Shape::Limit(VOLTAGE_OR_CODES)),
             p("rate", plain(HERTZ)).positive(),
             p("notch", plain(HERTZ)).positive(),
+            p("ref_range", Shape::Range(VOLT)),
+            p("rails", Shape::Range(VOLT)),
+            p("sampling_capacitance", plain(FARAD)).positive(),
+            p("sampling_resistance", plain(OHM)).non_negative(),
+            p("acquisition_time", plain(SECOND)).positive(),
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[&["sampling_capacitance", "acquisition_time"]],
     },
     ModelSpec {
         kind: StageKind::Convert,
@@ -442,6 +467,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
 ];
 

@@ -316,6 +316,34 @@ fn check_presence(
             );
         }
     }
+    for group in model.together {
+        let Some(given) = group.iter().find(|n| has(n)) else {
+            continue;
+        };
+        for name in group.iter().filter(|n| !has(n)) {
+            let example = model
+                .param(name)
+                .map(|p| super::interpret::usage_of(p.name, p.shape))
+                .unwrap_or_default();
+            let mut f = Finding::new(
+                Code::P302,
+                file,
+                format!("`{}` gives `{given}`, so it needs `{name}`", decl.name.name),
+            );
+            f = match span_of(given) {
+                Some(s) => f.label(s, format!("needs `{name}`")),
+                None => f.label(decl.name.span, format!("`{name}` is missing")),
+            };
+            findings.push(f.help(format!(
+                "add a line such as `{example}`: {} are used together",
+                group
+                    .iter()
+                    .map(|n| format!("`{n}`"))
+                    .collect::<Vec<_>>()
+                    .join(" and ")
+            )));
+        }
+    }
     for (a, b) in model.exclusive {
         if has(a) && has(b) {
             let mut f = Finding::new(
