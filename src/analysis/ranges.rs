@@ -478,6 +478,18 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
         .collect())
 }
 
+/// The thermocouple right at amplifier `node`'s input, by name, when it
+/// has no bias: the one floating source a `bias_voltage` moves.
+fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
+    let Node::Amplifier { input, .. } = plan.nodes[node] else {
+        return None;
+    };
+    match plan.nodes[input] {
+        Node::Thermocouple { bias: None, .. } => Some(plan.names[input].as_str()),
+        _ => None,
+    }
+}
+
 /// What brings a converter's reference back inside its allowed range.
 fn reference_fix(stated: bool, high: bool, value: f64, target: f64, margin: f64) -> String {
     use crate::units::format::{trimmed, with_prefix};
@@ -549,6 +561,16 @@ pub fn findings(
                 .position(|s| s.id == format!("{}.{name}", stage.name))
                 .map(|i| plan.nominal[i])
         };
+        let worst = Env {
+            measurand: e.worst_at.0,
+            ambient: e.worst_at.1,
+            cold_junction: e.worst_at.1,
+        };
+        let shift = plan
+            .raw_signals(&plan.nominal, &worst)
+            .ok()
+            .and_then(|s| plan.amplifier_reference(e.node, &plan.nominal, &worst, &s))
+            .unwrap_or(0.0);
         let span = e.span();
         let target = if high {
             bound - margin * span
@@ -556,13 +578,17 @@ pub fn findings(
             bound + margin * span
         };
         let fix = match e.limit {
-            Limit::AmplifierOutput if value != 0.0 && target / value > 0.0 => slot("gain").map(|g| {
-                let fits = g * target / value;
+            // The gain scales the output about its reference.
+            Limit::AmplifierOutput if value != shift && (target - shift) / (value - shift) > 0.0 => slot("gain").map(|g| {
+                let fits = g * (target - shift) / (value - shift);
                 let word = if fits < g { "at most" } else { "at least" };
                 format!("a gain of {word} {} keeps {} % headroom", trimmed(fits, 4), trimmed(margin * 100.0, 3))
             }),
-            Limit::AmplifierOutput => Some(format!("the output must reach {}: shift the signal into the swing (a reference or bias) or choose an amplifier that swings there", show(value))),
-            Limit::AmplifierInput => Some(format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show(value))),
+            Limit::AmplifierOutput => Some(format!("the output must reach {}: a `reference` of {} keeps {} % headroom (it shifts the output), or choose an amplifier that swings there", show(value), with_prefix(shift + target - value, "V", 4), trimmed(margin * 100.0, 3))),
+            Limit::AmplifierInput => Some(match floating_couple(plan, e.node) {
+                Some(tc) => format!("hold the couple's common mode inside {} .. {} with a `bias_voltage` on `{tc}` (mid-range: {}), or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show((e.allowed.0 + e.allowed.1) / 2.0), show(value)),
+                None => format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show(value)),
+            }),
             Limit::ConverterInput if high => match slot("vref") {
                 Some(vref) => Some(format!("a reference of at least {} keeps {} % headroom", with_prefix(vref * value / target, "V", 4), trimmed(margin * 100.0, 3))),
                 None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),

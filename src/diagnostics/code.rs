@@ -96,6 +96,9 @@ codes! {
     M211 => Error, "edge into an output or out of an input";
     M212 => Error, "wrong number of bridge arms";
     M213 => Warning, "output not used";
+    M227 => Error, "amplifier reference that is not a voltage";
+    M228 => Error, "amplifier reference given twice";
+    M229 => Error, "bias on a sensor that has no use for one";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";

@@ -6,8 +6,8 @@ use petgraph::graph::DiGraph;
 
 use super::convert::{Calibration, Conversion, Method};
 use super::plan::{
-    AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
-    SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
+    AdcOffset, AmpReference, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId,
+    Plan, RtdCurve, SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
 };
 use super::run::{within, MAX_NODES};
 use crate::model::ports::Port;
@@ -259,7 +259,21 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
                 if let Some(ParamValue::Limit(t)) = stage.param("cold_junction") {
                     cj_error = Some(slots.limit(id("cold_junction"), t));
                 }
-                Node::Thermocouple { ty, senses, class }
+                let bias = measure(stage, "bias_voltage").map(|m| {
+                    (
+                        slots.measure(id("bias_voltage"), m),
+                        drift_of(&mut slots, "bias_voltage", m),
+                    )
+                });
+                let bias_resistor =
+                    measure(stage, "bias_resistor").map(|m| slots.measure(id("bias_resistor"), m));
+                Node::Thermocouple {
+                    ty,
+                    senses,
+                    class,
+                    bias,
+                    bias_resistor,
+                }
             }
             (StageKind::Sensor, Some("thermistor")) => {
                 let r25 = slots.measure(
@@ -487,7 +501,16 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
                 };
                 let input_node =
                     input(si, Port::In).ok_or_else(|| not_invertible(&stage.name, "no input"))?;
+                let reference = match (input(si, Port::Ref), measure(stage, "reference")) {
+                    (Some(node), _) => Some(AmpReference::Stage(node)),
+                    (None, Some(m)) => Some(AmpReference::Stated {
+                        value: slots.measure(id("reference"), m),
+                        drift: drift_of(&mut slots, "reference", m),
+                    }),
+                    (None, None) => None,
+                };
                 Node::Amplifier {
+                    reference,
                     gain,
                     offset,
                     cmrr,
@@ -696,7 +719,9 @@ fn validity(node: &Node) -> Option<Validity> {
                 valid.map(|v| ("its stated range".to_string(), kelvin(v))),
             ],
         )),
-        Node::Thermocouple { ty, senses, class } => Some((
+        Node::Thermocouple {
+            ty, senses, class, ..
+        } => Some((
             *senses,
             [
                 Some((format!("type {} thermocouple", ty.letter()), ty.range_c())),

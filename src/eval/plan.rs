@@ -71,7 +71,7 @@ impl SourceKind {
             "offset" | "zero" => SourceKind::Bound,
             "gain_error" => SourceKind::Gain,
             "bias" => SourceKind::Bias,
-            "cmrr" => SourceKind::CommonMode,
+            "cmrr" | "bias_voltage" => SourceKind::CommonMode,
             "tolerance" | "accuracy" => SourceKind::Sensor,
             p if p.starts_with("class") => SourceKind::Sensor,
             p if p.starts_with("lead") => SourceKind::Lead,
@@ -152,6 +152,11 @@ pub enum Node {
         /// IEC 60584-1 tolerance class, when given: it also bounds the
         /// range the thermocouple may be used over.
         class: Option<u8>,
+        /// The voltage its common mode is biased to (0 V when not), with
+        /// its drift.
+        bias: Option<(SlotId, Option<DriftSlot>)>,
+        /// The resistor that biases it, in its source resistance, Ω.
+        bias_resistor: Option<SlotId>,
     },
     Thermistor {
         r25: SlotId,
@@ -225,6 +230,8 @@ pub enum Node {
         offset_drift: Option<SlotId>,
         gain_drift: Option<SlotId>,
         input: NodeId,
+        /// What the output is referred to: output = gain × input + reference.
+        reference: Option<AmpReference>,
         /// Common-mode input range and output swing, V.
         input_range: Option<(f64, f64)>,
         output: Option<(f64, f64)>,
@@ -255,6 +262,19 @@ pub enum Node {
         cj: Option<NodeId>,
         conversion: Box<Conversion>,
     },
+}
+
+/// An amplifier's reference (its REF pin, or an output level shift).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum AmpReference {
+    /// A stated voltage: its slot (nominal the value, with its tolerance)
+    /// and drift.
+    Stated {
+        value: SlotId,
+        drift: Option<DriftSlot>,
+    },
+    /// The voltage another stage gives its `ref` input.
+    Stage(NodeId),
 }
 
 /// A converter's offset as it was stated: a voltage at its input, or a

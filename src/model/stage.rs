@@ -205,6 +205,11 @@ fn find_model(
 
 fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Finding {
     let name = &line.param.name.name;
+    if decl.kind == crate::syntax::ast::StageKind::Sensor && name.starts_with("bias_") {
+        if let Some(m) = model.model.filter(|m| *m != "thermocouple") {
+            return needless_bias(line, decl, m);
+        }
+    }
     let what = match model.model {
         Some(m) => format!("{} `{m}`", decl.kind.keyword()),
         None => decl.kind.keyword().to_string(),
@@ -231,6 +236,23 @@ fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Findin
     )
     .label(line.param.name.span, "unknown parameter")
     .help(help)
+}
+
+/// M229: a bias on a sensor whose common mode its circuit already sets.
+fn needless_bias(line: &Line<'_>, decl: &StageDecl, model: &str) -> Finding {
+    let name = &line.param.name.name;
+    Finding::new(
+        Code::M229,
+        line.file,
+        format!(
+            "sensor `{}` ({model}) has no use for `{name}`",
+            decl.name.name
+        ),
+    )
+    .label(line.param.name.span, "a bias for a floating source")
+    .help(format!(
+        "remove `{name}`: what excites or powers this sensor sets its common mode; a bias holds a floating `thermocouple`, and an amplifier's `reference` shifts its output"
+    ))
 }
 
 fn check_presence(
