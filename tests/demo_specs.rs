@@ -26,12 +26,17 @@ fn demo_specs_are_in_canonical_layout() {
 }
 
 /// The demos together use every stage kind and every sensor model the
-/// front end knows.
+/// front end knows, an amplifier reference, a thermocouple bias and a
+/// converter's limits (directly or through a shipped part).
 #[test]
 fn demo_specs_cover_every_model() {
     let mut text = String::new();
     for spec in demo_specs() {
         text.push_str(&std::fs::read_to_string(spec).expect("readable"));
+    }
+    for entry in std::fs::read_dir(root().join("specs/parts")).expect("specs/parts/") {
+        let path = entry.expect("entry").path();
+        text.push_str(&std::fs::read_to_string(path).expect("parts file"));
     }
     for word in [
         "excitation",
@@ -58,6 +63,10 @@ fn demo_specs_cover_every_model() {
         "butterworth",
         "bessel",
         "lowpass rc",
+        "bias_voltage",
+        "front.ref",
+        "ref_range",
+        "sampling_capacitance",
     ] {
         assert!(text.contains(word), "no demo spec uses `{word}`");
     }
