@@ -82,6 +82,7 @@ codes! {
     P311 => Error, "missing measurand";
     P312 => Error, "setting given twice";
     P313 => Error, "percentage without a basis";
+    P335 => Error, "coefficients for a standard curve";
 
     M201 => Error, "duplicate stage name";
     M202 => Error, "unknown stage";

@@ -791,12 +791,12 @@ fn rtd_node(
         "cu10" => (10.0, RtdCurve::Copper),
         "cu100" => (100.0, RtdCurve::Copper),
         _ => match stage.param("coefficients") {
-            Some(ParamValue::Numbers(n)) if n.len() == 3 => (
+            Some(ParamValue::Measures(m)) if m.len() == 3 => (
                 0.0,
                 RtdCurve::Cvd {
-                    a: n[0],
-                    b: n[1],
-                    c: n[2],
+                    a: m[0].nominal,
+                    b: m[1].nominal,
+                    c: m[2].nominal,
                 },
             ),
             _ => {
@@ -811,6 +811,19 @@ fn rtd_node(
         Some(m) => slots.measure(id("r0"), m),
         None => slots.exact(id("r0"), default_r0),
     };
+    // A characterised probe's coefficients, each its own source: a
+    // deviation of nominal 0 within its tolerance.
+    let mut coefficient_errors = [None; 3];
+    if let (Some(ParamValue::Measures(m)), RtdCurve::Cvd { .. }) =
+        (stage.param("coefficients"), curve)
+    {
+        for (k, (m, name)) in m.iter().zip(["a", "b", "c"]).enumerate() {
+            coefficient_errors[k] = m.tolerance.as_ref().map(|t| {
+                let (minus, plus, normal) = limits(t, m.nominal);
+                slots.add(id(&format!("coefficient_{name}")), 0.0, minus, plus, normal)
+            });
+        }
+    }
     let wiring = match count(stage, "wires") {
         Some(2) => rtd::Wiring::TwoWire,
         Some(3) => rtd::Wiring::ThreeWire,
@@ -850,6 +863,7 @@ fn rtd_node(
     }
     let node = Node::Rtd {
         curve,
+        coefficient_errors,
         r0,
         wiring,
         leads,

@@ -132,6 +132,9 @@ pub enum Node {
     },
     Rtd {
         curve: RtdCurve,
+        /// Deviations of a custom curve's A, B and C (absolute, nominal
+        /// 0), where their tolerances are stated.
+        coefficient_errors: [Option<SlotId>; 3],
         r0: SlotId,
         /// How the leads enter the measurement.
         wiring: crate::physics::rtd::Wiring,

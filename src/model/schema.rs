@@ -47,6 +47,9 @@ pub enum Shape {
     Count { min: u32, max: u32 },
     /// Exactly `n` plain numbers.
     Numbers(usize),
+    /// Exactly `n` plain numbers, each with an optional tolerance
+    /// (relative, `± 0.1 %`, or absolute, `± 2e-6`).
+    TolerancedNumbers(usize),
     /// `value at point`.
     At { value: Expect, at: Expect },
     /// `exact | linear | table n | poly n`
@@ -205,7 +208,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Words(RTD_CURVES),
         params: &[
             p("r0", toleranced(OHM)).positive(),
-            p("coefficients", Shape::Numbers(3)),
+            p("coefficients", Shape::TolerancedNumbers(3)),
             p("class", Shape::Words(&["AA", "A", "B", "C"])),
             p("tolerance", Shape::Limit(Expect::TempDiff)),
             p("wires", Shape::Count { min: 2, max: 4 }),

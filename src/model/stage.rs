@@ -275,14 +275,34 @@ fn check_presence(
         .filter(|p| p.required)
         .map(|p| p.name)
         .collect();
-    // A custom curve has no table values to fall back on.
-    if model.model == Some("rtd")
-        && lines.iter().any(|l| {
-            l.param.name.name == "rtd"
-                && matches!(l.param.values.first(), Some(crate::syntax::ast::Value::Word(w)) if w.name == "custom")
-        })
-    {
+    // A custom curve has no table values to fall back on; a standard one
+    // has its own coefficients, so stated ones would go unused.
+    let curve = lines
+        .iter()
+        .find(|l| l.param.name.name == "rtd")
+        .and_then(|l| match l.param.values.first() {
+            Some(crate::syntax::ast::Value::Word(w)) => Some(w.name.as_str()),
+            _ => None,
+        });
+    if model.model == Some("rtd") && curve == Some("custom") {
         required.extend(["r0", "coefficients"]);
+    }
+    if let (Some(curve), Some(line)) = (
+        curve.filter(|c| *c != "custom" && model.model == Some("rtd")),
+        lines.iter().find(|l| l.param.name.name == "coefficients"),
+    ) {
+        findings.push(
+            Finding::new(
+                Code::P335,
+                line.file,
+                format!(
+                    "`{}` uses the standard `{curve}` curve, so its `coefficients` are not used",
+                    decl.name.name
+                ),
+            )
+            .label(line.param.name.span, "not used")
+            .help("write `rtd custom` with `r0` to use these coefficients (a characterised probe), or remove the line"),
+        );
     }
     // A missing parameter is often one written with a typo (P301).
     let misspelt = |wanted: &[&str], findings: &Findings| {
