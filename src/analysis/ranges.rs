@@ -593,7 +593,7 @@ pub fn findings(
                 Some(vref) => Some(format!("a reference of at least {} keeps {} % headroom", with_prefix(vref * value / target, "V", 4), trimmed(margin * 100.0, 3))),
                 None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
             },
-            Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or offset the signal".to_string()),
+            Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)".to_string()),
             Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {} % headroom is {}", trimmed(margin * 100.0, 3), with_prefix(i * target / value, "A", 4))),
             Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {} % headroom", with_prefix(value / (1.0 - margin), "A", 4), trimmed(margin * 100.0, 3))),
             Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
