@@ -655,3 +655,32 @@ fn no_trials_no_validation() {
     assert!(p.get("gum_validation").is_none(), "{p}");
     assert!(source(p, "ic.accuracy").get("monte_carlo_share").is_none());
 }
+
+/// A range envelope sees each source at its limit with that source's own
+/// value: the hopper's 5 V ± 0.1 % supply into its cells' 117 Ω ± 1 %
+/// input draws 5 V / 117 Ω, and each limit moves it on its own
+/// (one at a time, summed as a worst case): ± 5 mV / 117 Ω from the
+/// supply, 5 V / (117 Ω × 0.99) − 5 V / 117 Ω up and 5 V / 117 Ω −
+/// 5 V / (117 Ω × 1.01) down from the cells.
+#[test]
+fn envelopes_see_each_sources_own_value() {
+    let v = budget_in("specs", "weighing_hopper.catena", &["--trials", "0"]);
+    let hopper = v.as_array().map(|a| &a[0]).unwrap_or(&v);
+    let load = hopper["limits"]
+        .as_array()
+        .expect("limits")
+        .iter()
+        .find(|l| l["stage"] == "bridge_supply")
+        .expect("the supply's load current");
+    let nominal = 5.0 / 117.0;
+    let supply = 5e-3 / 117.0;
+    let high = nominal + supply + (5.0 / (117.0 * 0.99) - nominal);
+    let low = nominal - supply - (nominal - 5.0 / (117.0 * 1.01));
+    let reach = |k: usize| f(&load["reach"][k]);
+    assert!((reach(0) - low).abs() < 1e-12, "{} against {low}", reach(0));
+    assert!(
+        (reach(1) - high).abs() < 1e-12,
+        "{} against {high}",
+        reach(1)
+    );
+}

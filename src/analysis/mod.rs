@@ -11,6 +11,7 @@ pub mod noise;
 pub mod ranges;
 pub mod report;
 pub mod requirements;
+pub mod settling;
 pub mod shares;
 mod stages;
 pub mod step;
