@@ -88,6 +88,7 @@ codes! {
     P311 => Error, "missing measurand";
     P312 => Error, "setting given twice";
     P313 => Error, "percentage without a basis";
+    P335 => Error, "coefficients for a standard curve";
 
     M201 => Error, "duplicate stage name";
     M202 => Error, "unknown stage";
@@ -102,6 +103,9 @@ codes! {
     M211 => Error, "edge into an output or out of an input";
     M212 => Error, "wrong number of bridge arms";
     M213 => Warning, "output not used";
+    M227 => Error, "amplifier reference that is not a voltage";
+    M228 => Error, "amplifier reference given twice";
+    M229 => Error, "bias on a sensor that has no use for one";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";
@@ -131,4 +135,5 @@ codes! {
     R616 => Warning, "source beyond the GUM linearisation";
     R625 => Warning, "point outside the measurand range";
     R626 => Error, "reading clamped outside the range";
+    R630 => Error, "converter input not settled";
 }
