@@ -169,3 +169,41 @@ fn monte_carlo_gum_rtd_1e6_x_21(bencher: divan::Bencher) {
     let b = budget::budget(chain, &plan, &BudgetOptions::default()).expect("budget");
     bencher.bench(|| monte_carlo_over_points(&plan, &b, 21, 1_000_000));
 }
+
+#[path = "../tests/common/worst.rs"]
+mod worst;
+
+/// `check` of generated worst cases at two sizes each: the time per input
+/// byte stays flat when every phase is linear.
+#[divan::bench(sample_count = 3, sample_size = 1, args = [5_000, 20_000])]
+fn worst_case_stages(n: usize) -> usize {
+    check_text(&worst::many_stages(n))
+}
+
+#[divan::bench(sample_count = 3, sample_size = 1, args = [2_500, 10_000])]
+fn worst_case_chains_rendered(n: usize) -> usize {
+    let checked = check_bytes(
+        "w.catena",
+        worst::many_chains(n).as_bytes(),
+        Path::new("."),
+        &mut PartsCache::default(),
+    );
+    let all = checked.findings.sorted();
+    catena::diagnostics::render_human(&all, false, 100).len()
+}
+
+#[divan::bench(sample_count = 3, sample_size = 1, args = [50_000, 200_000])]
+fn worst_case_braces(n: usize) -> usize {
+    check_text(&worst::braces(n))
+}
+
+fn check_text(text: &str) -> usize {
+    check_bytes(
+        "w.catena",
+        text.as_bytes(),
+        Path::new("."),
+        &mut PartsCache::default(),
+    )
+    .findings
+    .len()
+}

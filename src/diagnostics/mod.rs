@@ -76,34 +76,53 @@ impl Findings {
 /// that is not among them leaves the finding where it sorted; so does a
 /// loop of causes, which has no root to start from.
 fn causes_first(items: Vec<Finding>) -> Vec<Finding> {
+    // Each finding by what a cause names (the first of equals, as a scan
+    // finds it), and each cause's consequences in order: built once, so
+    // ordering stays linear in the number of findings.
+    let mut by_place: std::collections::HashMap<(code::Code, usize, &str), usize> =
+        std::collections::HashMap::with_capacity(items.len());
+    for (i, g) in items.iter().enumerate() {
+        by_place
+            .entry((g.code, g.primary_offset(), g.file.name()))
+            .or_insert(i);
+    }
     let parent: Vec<Option<usize>> = items
         .iter()
         .enumerate()
         .map(|(i, f)| {
             let cause = f.cause.as_ref()?;
-            items.iter().position(|g| cause.is(g)).filter(|&p| p != i)
+            by_place
+                .get(&(cause.code, cause.offset, cause.file.as_str()))
+                .copied()
+                .filter(|&p| p != i)
         })
         .collect();
+    let mut children: Vec<Vec<usize>> = vec![Vec::new(); items.len()];
+    for (c, p) in parent.iter().enumerate() {
+        if let Some(p) = p {
+            children[*p].push(c);
+        }
+    }
     let mut order = Vec::with_capacity(items.len());
     let mut placed = vec![false; items.len()];
     let roots = (0..items.len()).filter(|&i| parent[i].is_none());
     // Then whatever a loop of causes left unplaced, in sorted order.
     for i in roots.chain(0..items.len()) {
-        place(i, &parent, &mut placed, &mut order);
+        place(i, &children, &mut placed, &mut order);
     }
     let mut slots: Vec<Option<Finding>> = items.into_iter().map(Some).collect();
     order.into_iter().filter_map(|i| slots[i].take()).collect()
 }
 
 /// `i`, then its consequences in sorted order, depth first.
-fn place(i: usize, parent: &[Option<usize>], placed: &mut [bool], order: &mut Vec<usize>) {
+fn place(i: usize, children: &[Vec<usize>], placed: &mut [bool], order: &mut Vec<usize>) {
     if placed[i] {
         return;
     }
     placed[i] = true;
     order.push(i);
-    for child in (0..parent.len()).filter(|&c| parent[c] == Some(i)) {
-        place(child, parent, placed, order);
+    for &child in &children[i] {
+        place(child, children, placed, order);
     }
 }
 

@@ -5,7 +5,7 @@
 use std::collections::{HashMap, HashSet};
 use std::sync::Arc;
 
-use petgraph::algo::tarjan_scc;
+use petgraph::algo::kosaraju_scc;
 use petgraph::graph::DiGraph;
 
 use super::chain::{Connection, Stage};
@@ -286,15 +286,15 @@ fn describe(stage: &Stage) -> String {
 /// What each stage outputs, given its connections.
 pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signal> {
     let static_out = |s: &Stage| ports::output(s.kind, s.model, false);
+    let incoming = incoming(stages.len(), connections);
     stages
         .iter()
         .enumerate()
         .map(|(i, s)| {
             // A voltage excitation on a resistive sensor is itself an error
             // (reported on that edge); its output is judged as if driven.
-            let driven = connections.iter().any(|c| {
-                c.to == i
-                    && c.to_port == Port::In
+            let driven = incoming[i].iter().map(|&k| &connections[k]).any(|c| {
+                c.to_port == Port::In
                     && matches!(
                         static_out(&stages[c.from]),
                         Signal::CurrentExcitation | Signal::VoltageExcitation
@@ -305,6 +305,18 @@ pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signa
         .collect()
 }
 
+/// The connections into each stage, by stage index, in edge order: one
+/// pass, so per-stage questions do not rescan every edge.
+fn incoming(stages: usize, connections: &[Connection]) -> Vec<Vec<usize>> {
+    let mut into = vec![Vec::new(); stages];
+    for (k, c) in connections.iter().enumerate() {
+        if let Some(list) = into.get_mut(c.to) {
+            list.push(k);
+        }
+    }
+    into
+}
+
 fn check_ports(
     file: &Arc<SourceFile>,
     stages: &[Stage],
@@ -312,6 +324,7 @@ fn check_ports(
     findings: &mut Findings,
 ) {
     let outputs = output_signals(stages, connections);
+    let incoming = incoming(stages.len(), connections);
     for c in connections {
         let target = &stages[c.to];
         if target.incomplete || stages[c.from].incomplete {
@@ -395,9 +408,10 @@ fn check_ports(
             continue;
         }
         if let (Some(wired), Some(stated)) = (
-            connections.iter().find(|c| {
-                c.to == i && c.to_port == Port::Ref && stage.kind == StageKind::Amplifier
-            }),
+            incoming[i]
+                .iter()
+                .map(|&k| &connections[k])
+                .find(|c| c.to_port == Port::Ref && stage.kind == StageKind::Amplifier),
             stage.params.iter().find(|p| p.name == "reference"),
         ) {
             let mut f = Finding::new(
@@ -418,9 +432,10 @@ fn check_ports(
             )));
         }
         for spec in stage_inputs(stage) {
-            let into: Vec<&Connection> = connections
+            let into: Vec<&Connection> = incoming[i]
                 .iter()
-                .filter(|c| c.to == i && c.to_port == spec.port)
+                .map(|&k| &connections[k])
+                .filter(|c| c.to_port == spec.port)
                 .collect();
             if spec.multi {
                 let wanted = ports::arm_count(stage.model);
@@ -520,12 +535,18 @@ fn check_cycles(
     for (k, c) in connections.iter().enumerate() {
         graph.add_edge(nodes[c.from], nodes[c.to], k);
     }
-    for scc in tarjan_scc(&graph) {
+    // Stages with an edge to themselves, once: a single-stage component is
+    // a loop only then, and asking per component rescanned every edge.
+    let self_loops: HashSet<usize> = connections
+        .iter()
+        .filter(|c| c.from == c.to)
+        .map(|c| c.from)
+        .collect();
+    // Kosaraju walks with explicit stacks: Tarjan's recursion overflowed the
+    // stack on a series of some 20,000 stages.
+    for scc in kosaraju_scc(&graph) {
         let members: Vec<usize> = scc.iter().map(|n| graph[*n]).collect();
-        let looped = members.len() > 1
-            || connections
-                .iter()
-                .any(|c| c.from == members[0] && c.to == members[0]);
+        let looped = members.len() > 1 || self_loops.contains(&members[0]);
         if !looped {
             continue;
         }
@@ -576,15 +597,22 @@ fn check_use(
     findings: &mut Findings,
 ) {
     let mut finals = Vec::new();
+    // Who feeds and who is fed, once: asking per stage rescanned every edge.
+    let mut feeds_any = vec![false; stages.len()];
+    let mut fed = vec![false; stages.len()];
+    for c in connections {
+        feeds_any[c.from] = true;
+        fed[c.to] = true;
+    }
+    let junctions = cold_junctions(stages);
     for (i, stage) in stages.iter().enumerate() {
-        if stage.kind == StageKind::Convert && !connections.iter().any(|c| c.from == i) {
+        if stage.kind == StageKind::Convert && !feeds_any[i] {
             finals.push(i);
         }
         if stage.incomplete {
             continue;
         }
-        let touched = connections.iter().any(|c| c.from == i || c.to == i)
-            || is_cold_junction_of_any(stages, i);
+        let touched = feeds_any[i] || fed[i] || junctions.contains(stage.name.as_str());
         if !touched {
             findings.push(
                 Finding::new(
@@ -601,7 +629,7 @@ fn check_use(
             );
             continue;
         }
-        let feeds = connections.iter().any(|c| c.from == i);
+        let feeds = feeds_any[i];
         if stage.kind != StageKind::Convert && !feeds && outputs[i] != Signal::Reading {
             findings.push(
                 Finding::new(
@@ -653,9 +681,16 @@ fn check_use(
     }
 }
 
-/// Stages named by a thermocouple's `cold_junction` count as used.
-fn is_cold_junction_of_any(stages: &[Stage], i: usize) -> bool {
-    stages.iter().any(|s| matches!(s.param("cold_junction"), Some(ParamValue::StageRef { name, .. }) if *name == stages[i].name))
+/// The names every `cold_junction` line refers to: those stages count as
+/// used.
+fn cold_junctions(stages: &[Stage]) -> HashSet<&str> {
+    stages
+        .iter()
+        .filter_map(|s| match s.param("cold_junction") {
+            Some(ParamValue::StageRef { name, .. }) => Some(name.as_str()),
+            _ => None,
+        })
+        .collect()
 }
 
 /// A thermocouple's `cold_junction <stage>` must name a sensor.

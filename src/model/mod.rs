@@ -79,10 +79,17 @@ pub fn resolve(
         library_broken |= loaded.findings.has_errors();
         library.extend(loaded.parts.iter().cloned());
     }
+    // Parts by name (the first of a repeated name, as a scan finds it).
+    let mut part_index: std::collections::HashMap<&str, usize> = Default::default();
+    for (k, part) in library.iter().enumerate() {
+        part_index.entry(part.name.as_str()).or_insert(k);
+    }
 
     let mut chains: Vec<Chain> = Vec::new();
+    // Names seen so far, to their index: one lookup each, not a rescan.
+    let mut chain_names: std::collections::HashMap<String, usize> = Default::default();
     for decl in &ast.chains {
-        if let Some(first) = chains.iter().find(|c| c.name == decl.name.name) {
+        if let Some(first) = chain_names.get(&decl.name.name).map(|&k| &chains[k]) {
             findings.push(
                 Finding::new(
                     Code::M209,
@@ -96,8 +103,9 @@ pub fn resolve(
         }
         let settings = settings::resolve(file, decl, &mut findings);
         let mut stages: Vec<Stage> = Vec::new();
+        let mut stage_names: std::collections::HashMap<String, usize> = Default::default();
         for s in &decl.stages {
-            if let Some(first) = stages.iter().find(|x| x.name == s.name.name) {
+            if let Some(first) = stage_names.get(&s.name.name).map(|&k| &stages[k]) {
                 findings.push(
                     Finding::new(
                         Code::M201,
@@ -112,7 +120,7 @@ pub fn resolve(
             }
             let mut part_failed = false;
             let part = s.part.as_ref().and_then(|p| {
-                let found = library.iter().find(|l| l.name == p.name);
+                let found = part_index.get(p.name.as_str()).map(|&k| &library[k]);
                 if found.is_none() {
                     part_failed = true;
                     if !library_broken {
@@ -156,6 +164,7 @@ pub fn resolve(
                 part_failed |= found.is_some_and(|p| p.rejected);
                 found
             });
+            stage_names.insert(s.name.name.clone(), stages.len());
             stages.push(stage::resolve(
                 file,
                 s,
@@ -168,6 +177,9 @@ pub fn resolve(
         graph::check_references(&stages, &mut findings);
         let connections = graph::connect(file, &mut stages, &decl.edges, &mut findings);
         let reference = settings.reference.unwrap_or(DEFAULT_REFERENCE_K);
+        chain_names
+            .entry(decl.name.name.clone())
+            .or_insert(chains.len());
         chains.push(Chain {
             name: decl.name.name.clone(),
             name_span: decl.name.span,

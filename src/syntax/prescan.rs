@@ -61,8 +61,14 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
     // A `}` less indented than its `{` line most likely closes an outer
     // block, leaving the inner one open: the better place to point at.
     let mut suspect: Option<usize> = None;
+    // Each line's indentation, found once: searching back from every brace
+    // made a long line of braces quadratic.
+    let line_starts: Vec<usize> = std::iter::once(0)
+        .chain(text.match_indices('\n').map(|(i, _)| i + 1))
+        .collect();
     let indent_of = |at: usize| {
-        let start = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
+        let line = line_starts.partition_point(|&s| s <= at) - 1;
+        let start = line_starts[line];
         text[start..at].len() - text[start..at].trim_start().len()
     };
     let mut too_deep_reported = false;

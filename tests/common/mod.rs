@@ -2,6 +2,8 @@
 
 #![allow(dead_code)]
 
+pub mod worst;
+
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
