@@ -3,11 +3,13 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 
 use super::files::{collect, plain_io};
-use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::{DEFAULT_TRIALS, MAX_TRIALS};
 use crate::analysis::CheckOptions;
 use crate::check::check_bytes_with;
-use crate::diagnostics::{render_human, render_json, Finding, Severity};
+use crate::diagnostics::{
+    render_github, render_human, render_json, render_sarif, render_short, Finding, Severity,
+};
 use crate::model::PartsCache;
 use rayon::prelude::*;
 
@@ -16,9 +18,10 @@ pub struct CheckArgs {
     /// Spec files, or folders to search for `*.catena`.
     #[arg(required = true)]
     paths: Vec<PathBuf>,
-    /// How findings are written: for people, or JSON for tools.
-    #[arg(long, value_enum, default_value_t = Format::Human)]
-    format: Format,
+    /// How findings are written: for people, or for tools (JSON, SARIF
+    /// 2.1.0, CI workflow commands, or one `file:line:col:` line each).
+    #[arg(long, value_enum, default_value_t = CheckFormat::Human)]
+    format: CheckFormat,
     /// Treat warnings as errors for the exit status.
     #[arg(long, value_enum)]
     deny: Vec<Deny>,
@@ -49,6 +52,15 @@ fn parse_margin(text: &str) -> Result<f64, String> {
     } else {
         Err("the margin is a percentage from 0 to 50".into())
     }
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+enum CheckFormat {
+    Human,
+    Json,
+    Sarif,
+    Github,
+    Short,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -113,8 +125,11 @@ pub fn run(args: CheckArgs) -> u8 {
         .count();
     let warnings = all.len() - errors;
     match args.format {
-        Format::Json => print!("{}", render_json(&all)),
-        Format::Human => {
+        CheckFormat::Json => print!("{}", render_json(&all)),
+        CheckFormat::Sarif => print!("{}", render_sarif(&all)),
+        CheckFormat::Github => print!("{}", render_github(&all)),
+        CheckFormat::Short => print!("{}", render_short(&all)),
+        CheckFormat::Human => {
             eprint!(
                 "{}",
                 render_human(&all, terminal::stderr_color(), terminal::width())
