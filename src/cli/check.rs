@@ -1,3 +1,4 @@
+use std::io::Read;
 use std::path::{Path, PathBuf};
 
 use clap::{Args, ValueEnum};
@@ -15,9 +16,17 @@ use rayon::prelude::*;
 
 #[derive(Args, Debug)]
 pub struct CheckArgs {
-    /// Spec files, or folders to search for `*.catena`.
+    /// Spec files, or folders to search for `*.catena`; `-` reads a spec
+    /// from standard input.
     #[arg(required = true)]
     paths: Vec<PathBuf>,
+    /// The name standard input's findings show; its folder is where `use`
+    /// paths start.
+    #[arg(long, value_name = "PATH")]
+    stdin_filename: Option<PathBuf>,
+    /// Only the findings: no summary line.
+    #[arg(short, long)]
+    quiet: bool,
     /// How findings are written: for people, or for tools (JSON, SARIF
     /// 2.1.0, CI workflow commands, or one `file:line:col:` line each).
     #[arg(long, value_enum, default_value_t = CheckFormat::Human)]
@@ -68,24 +77,86 @@ enum Deny {
     Warnings,
 }
 
-pub fn run(args: CheckArgs) -> u8 {
-    let files = match collect(&args.paths) {
-        Ok(f) => f,
-        Err(e) => {
-            eprintln!("catena: {e}");
-            return EXIT_USAGE;
+/// One spec to check: the name findings show, the folder its `use` paths
+/// start from, and its bytes.
+struct Input {
+    name: String,
+    base: PathBuf,
+    bytes: Vec<u8>,
+}
+
+/// The folder a spec's relative paths start from.
+fn folder_of(path: &Path) -> PathBuf {
+    path.parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."))
+        .to_path_buf()
+}
+
+/// Every spec named: `-` is standard input (named by `--stdin-filename`),
+/// folders are searched. A usage problem is reported and its status given.
+fn read_inputs(args: &CheckArgs) -> Result<Vec<Input>, u8> {
+    let stdin_count = args.paths.iter().filter(|p| p.as_os_str() == "-").count();
+    if stdin_count > 1 {
+        eprintln!("catena: `-` (standard input) can be named only once");
+        return Err(EXIT_USAGE);
+    }
+    if stdin_count == 0 && args.stdin_filename.is_some() {
+        eprintln!("catena: --stdin-filename names standard input, given as `-`");
+        return Err(EXIT_USAGE);
+    }
+    let mut inputs = Vec::new();
+    for path in &args.paths {
+        if path.as_os_str() == "-" {
+            inputs.push(read_stdin(args.stdin_filename.as_deref())?);
+            continue;
         }
-    };
-    let mut inputs = Vec::with_capacity(files.len());
-    for path in &files {
-        match std::fs::read(path) {
-            Ok(b) => inputs.push((path, b)),
-            Err(e) => {
-                eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
-                return EXIT_USAGE;
+        let files = collect(std::slice::from_ref(path)).map_err(|e| {
+            eprintln!("catena: {e}");
+            EXIT_USAGE
+        })?;
+        for file in files {
+            match std::fs::read(&file) {
+                Ok(bytes) => inputs.push(Input {
+                    name: file.to_string_lossy().into_owned(),
+                    base: folder_of(&file),
+                    bytes,
+                }),
+                Err(e) => {
+                    eprintln!("catena: cannot read `{}`: {}", file.display(), plain_io(&e));
+                    return Err(EXIT_USAGE);
+                }
             }
         }
     }
+    Ok(inputs)
+}
+
+fn read_stdin(name: Option<&Path>) -> Result<Input, u8> {
+    let mut bytes = Vec::new();
+    if let Err(e) = std::io::stdin().read_to_end(&mut bytes) {
+        eprintln!("catena: cannot read standard input: {}", plain_io(&e));
+        return Err(EXIT_USAGE);
+    }
+    Ok(match name {
+        Some(path) => Input {
+            name: path.to_string_lossy().into_owned(),
+            base: folder_of(path),
+            bytes,
+        },
+        None => Input {
+            name: "<stdin>".into(),
+            base: PathBuf::from("."),
+            bytes,
+        },
+    })
+}
+
+pub fn run(args: CheckArgs) -> u8 {
+    let inputs = match read_inputs(&args) {
+        Ok(i) => i,
+        Err(status) => return status,
+    };
     let options = CheckOptions {
         monte_carlo: args.monte_carlo,
         trials: args.trials as usize,
@@ -96,18 +167,42 @@ pub fn run(args: CheckArgs) -> u8 {
     // Files are independent: check them on every core, gather in order.
     let per_file: Vec<Vec<Finding>> = inputs
         .par_iter()
-        .map_init(PartsCache::default, |parts, (path, bytes)| {
-            let base = path
-                .parent()
-                .filter(|p| !p.as_os_str().is_empty())
-                .unwrap_or(Path::new("."));
-            check_bytes_with(&path.to_string_lossy(), bytes, base, parts, &options)
+        .map_init(PartsCache::default, |parts, input| {
+            check_bytes_with(&input.name, &input.bytes, &input.base, parts, &options)
                 .findings
                 .sorted()
         })
         .collect();
+    let all = dedup(per_file);
+    let errors = all
+        .iter()
+        .filter(|f| f.severity() == Severity::Error)
+        .count();
+    let warnings = all.len() - errors;
+    print_findings(&args, &all);
+    if args.format == CheckFormat::Human && !args.quiet {
+        eprintln!(
+            "checked {} file{}: {} error{}, {} warning{}",
+            inputs.len(),
+            plural(inputs.len()),
+            errors,
+            plural(errors),
+            warnings,
+            plural(warnings)
+        );
+    }
+    let deny_warnings = args.deny.contains(&Deny::Warnings);
+    if errors > 0 || (deny_warnings && warnings > 0) {
+        EXIT_FINDINGS
+    } else {
+        EXIT_OK
+    }
+}
+
+/// A parts file's findings come once, however many specs use it.
+fn dedup(per_file: Vec<Vec<Finding>>) -> Vec<Finding> {
     let mut seen = std::collections::HashSet::new();
-    let all: Vec<Finding> = per_file
+    per_file
         .into_iter()
         .flatten()
         .filter(|f| {
@@ -118,38 +213,19 @@ pub fn run(args: CheckArgs) -> u8 {
                 f.message.clone(),
             ))
         })
-        .collect();
-    let errors = all
-        .iter()
-        .filter(|f| f.severity() == Severity::Error)
-        .count();
-    let warnings = all.len() - errors;
+        .collect()
+}
+
+fn print_findings(args: &CheckArgs, all: &[Finding]) {
     match args.format {
-        CheckFormat::Json => print!("{}", render_json(&all)),
-        CheckFormat::Sarif => print!("{}", render_sarif(&all)),
-        CheckFormat::Github => print!("{}", render_github(&all)),
-        CheckFormat::Short => print!("{}", render_short(&all)),
-        CheckFormat::Human => {
-            eprint!(
-                "{}",
-                render_human(&all, terminal::stderr_color(), terminal::width())
-            );
-            eprintln!(
-                "checked {} file{}: {} error{}, {} warning{}",
-                files.len(),
-                plural(files.len()),
-                errors,
-                plural(errors),
-                warnings,
-                plural(warnings)
-            );
-        }
-    }
-    let deny_warnings = args.deny.contains(&Deny::Warnings);
-    if errors > 0 || (deny_warnings && warnings > 0) {
-        EXIT_FINDINGS
-    } else {
-        EXIT_OK
+        CheckFormat::Json => print!("{}", render_json(all)),
+        CheckFormat::Sarif => print!("{}", render_sarif(all)),
+        CheckFormat::Github => print!("{}", render_github(all)),
+        CheckFormat::Short => print!("{}", render_short(all)),
+        CheckFormat::Human => eprint!(
+            "{}",
+            render_human(all, terminal::stderr_color(), terminal::width())
+        ),
     }
 }
 

@@ -1,16 +1,21 @@
 use std::path::{Path, PathBuf};
 
 /// The spec files named on the command line: files as given, folders
-/// searched recursively for `*.catena`, in sorted order.
+/// searched recursively for `*.catena`, in sorted order. A folder with no
+/// spec in it is an error: a mistyped path must not pass as a clean check.
 pub fn collect(paths: &[PathBuf]) -> Result<Vec<PathBuf>, String> {
     let mut out = Vec::new();
     for path in paths {
         let meta = std::fs::metadata(path)
             .map_err(|e| format!("cannot read `{}`: {}", path.display(), plain_io(&e)))?;
         if meta.is_dir() {
+            let before = out.len();
             walk(path, &mut out).map_err(|e| {
                 format!("cannot read folder `{}`: {}", path.display(), plain_io(&e))
             })?;
+            if out.len() == before {
+                return Err(format!("no *.catena files under `{}`", path.display()));
+            }
         } else {
             out.push(path.clone());
         }
