@@ -27,7 +27,13 @@ fn walk(dir: &Path, out: &mut Vec<PathBuf>) -> std::io::Result<()> {
     let mut entries: Vec<_> = std::fs::read_dir(dir)?.collect::<Result<_, _>>()?;
     entries.sort_by_key(|e| e.file_name());
     for entry in entries {
+        // `check .` names `s/a.catena`, not `./s/a.catena`: the name is
+        // also a SARIF location's relative URI.
         let path = entry.path();
+        let path = match path.strip_prefix(".") {
+            Ok(inner) if dir == Path::new(".") => inner.to_path_buf(),
+            _ => path,
+        };
         let kind = entry.file_type()?;
         if kind.is_dir() {
             // Hidden folders (`.git`) and build output are never specs.
