@@ -30,12 +30,14 @@ pub struct BudgetArgs {
     chain: Option<String>,
     #[arg(long, value_enum, default_value_t = Format::Human)]
     format: Format,
-    /// Monte Carlo trials per point (0: none).
-    #[arg(long, default_value_t = DEFAULT_TRIALS)]
-    trials: usize,
-    /// The Monte Carlo seed: the same seed gives the same result.
-    #[arg(long, default_value_t = DEFAULT_SEED)]
-    seed: u64,
+    /// Monte Carlo trials per point (0: none) [default: catena.yaml's
+    /// `monte_carlo.trials`, else 10000].
+    #[arg(long)]
+    trials: Option<usize>,
+    /// The Monte Carlo seed: the same seed gives the same result
+    /// [default: catena.yaml's `monte_carlo.seed`, else 1].
+    #[arg(long)]
+    seed: Option<u64>,
     /// Points across the measurand range.
     #[arg(long, default_value_t = 21)]
     points: usize,
@@ -45,7 +47,7 @@ pub struct BudgetArgs {
 }
 
 pub fn run(args: BudgetArgs) -> u8 {
-    if args.trials > MAX_TRIALS {
+    if args.trials.is_some_and(|t| t > MAX_TRIALS) {
         eprintln!("catena: --trials is at most {MAX_TRIALS}");
         return EXIT_USAGE;
     }
@@ -127,10 +129,19 @@ fn budget_file(
     several: bool,
     docs: &mut Vec<BudgetJson>,
 ) -> Result<u8, ChainAbsent> {
-    let checked = match check_one(path) {
+    let (checked, config) = match check_one(path) {
         Ok(c) => c,
         Err(status) => return Ok(status),
     };
+    // Flags first, then the configuration, then the defaults.
+    let trials = args
+        .trials
+        .or(config.trials.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_TRIALS);
+    let seed = args
+        .seed
+        .or(config.seed.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_SEED);
     // What the analyses found (a requirement missed, a stage beyond its
     // limit) is what the budget explains, not a reason to withhold it;
     // errors before them leave no complete chain.
@@ -151,11 +162,11 @@ fn budget_file(
             points: args.points,
             ..BudgetOptions::default()
         },
-        trials: (args.trials > 0).then_some(args.trials),
-        seed: args.seed,
+        trials: (trials > 0).then_some(trials),
+        seed,
         detail: true,
     };
-    let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
+    let progress = std::io::stderr().is_terminal() && trials * args.points >= 1_000_000;
     let mut outputs: Vec<(Chain, Analysis)> = Vec::new();
     for chain in chains {
         let analysed = analyse_chain(chain, &options, progress);

@@ -4,10 +4,12 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 
 use super::files::{collect, plain_io};
+use super::settings::{describe, pick, Configs, DEFAULTS};
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::report::{DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::report::MAX_TRIALS;
 use crate::analysis::CheckOptions;
-use crate::check::check_bytes_with;
+use crate::check::check_bytes_configured;
+use crate::config::Config;
 use crate::diagnostics::{
     render_github, render_human, render_json, render_sarif, render_short, Finding, Severity,
 };
@@ -35,18 +37,23 @@ pub struct CheckArgs {
     #[arg(long, value_enum)]
     deny: Vec<Deny>,
     /// Warn when a signal keeps less headroom than this, in % of the
-    /// limit's span.
-    #[arg(long, default_value_t = 5.0, value_parser = parse_margin)]
-    margin: f64,
+    /// limit's span [default: catena.yaml's `margin`, else 5].
+    #[arg(long, value_parser = parse_margin)]
+    margin: Option<f64>,
     /// Run Monte Carlo for every chain, not only where a requirement asks.
     #[arg(long)]
     monte_carlo: bool,
-    /// Monte Carlo trials per point, where it runs.
-    #[arg(long, default_value_t = DEFAULT_TRIALS as u64, value_parser = clap::value_parser!(u64).range(1..=MAX_TRIALS as u64))]
-    trials: u64,
+    /// Monte Carlo trials per point, where it runs [default: catena.yaml's
+    /// `monte_carlo.trials`, else 10000].
+    #[arg(long, value_parser = clap::value_parser!(u64).range(1..=MAX_TRIALS as u64))]
+    trials: Option<u64>,
     /// Let `use` read parts files outside the spec's repository.
     #[arg(long)]
     allow_outside_paths: bool,
+    /// Show the settings that apply to the specs and where each comes
+    /// from (flag, catena.yaml, default), then stop.
+    #[arg(long)]
+    print_config: bool,
 }
 
 fn parse_margin(text: &str) -> Result<f64, String> {
@@ -152,28 +159,107 @@ fn read_stdin(name: Option<&Path>) -> Result<Input, u8> {
     })
 }
 
+/// The analyses' options for specs under `config`: flags first.
+fn options_for(args: &CheckArgs, config: &Config) -> CheckOptions {
+    let (margin, trials, _) = settings_for(args, config);
+    CheckOptions {
+        monte_carlo: args.monte_carlo,
+        trials: trials.value,
+        // Zero would mean the default; a tiny positive value means none.
+        margin: margin.value.max(1e-12),
+        allow_outside_paths: args.allow_outside_paths,
+        seed: config.seed.as_ref().map(|s| s.value),
+    }
+}
+
+type Settings = (
+    super::settings::Applied<f64>,
+    super::settings::Applied<usize>,
+    super::settings::Applied<u64>,
+);
+
+fn settings_for(args: &CheckArgs, config: &Config) -> Settings {
+    let (margin, trials, seed) = DEFAULTS;
+    (
+        pick(
+            args.margin.map(|m| m / 100.0),
+            "--margin",
+            config.margin.as_ref(),
+            config,
+            margin,
+        ),
+        pick(
+            args.trials.map(|t| t as usize),
+            "--trials",
+            config.trials.as_ref(),
+            config,
+            trials,
+        ),
+        pick(None, "", config.seed.as_ref(), config, seed),
+    )
+}
+
+/// `--print-config`: each configuration that applies to the inputs, once.
+fn print_config(args: &CheckArgs, inputs: &[Input], configs: &mut Configs) -> u8 {
+    let mut shown: Vec<Option<String>> = Vec::new();
+    for input in inputs {
+        let config = configs.for_folder(&input.base);
+        let name = config.file.as_ref().map(|f| f.name().to_string());
+        if shown.contains(&name) {
+            continue;
+        }
+        let (margin, trials, seed) = settings_for(args, &config);
+        print!("{}", describe(&config, &margin, &trials, &seed));
+        shown.push(name);
+    }
+    let found = configs.findings();
+    if found.is_empty() {
+        return EXIT_OK;
+    }
+    eprint!(
+        "{}",
+        render_human(&found, terminal::stderr_color(), terminal::width())
+    );
+    if found.iter().any(|f| f.severity() == Severity::Error) {
+        EXIT_FINDINGS
+    } else {
+        EXIT_OK
+    }
+}
+
 pub fn run(args: CheckArgs) -> u8 {
     let inputs = match read_inputs(&args) {
         Ok(i) => i,
         Err(status) => return status,
     };
-    let options = CheckOptions {
-        monte_carlo: args.monte_carlo,
-        trials: args.trials as usize,
-        // Zero would mean the default; a tiny positive value means none.
-        margin: (args.margin / 100.0).max(1e-12),
-        allow_outside_paths: args.allow_outside_paths,
-    };
+    let mut configs = Configs::default();
+    if args.print_config {
+        return print_config(&args, &inputs, &mut configs);
+    }
+    let configured: Vec<_> = inputs.iter().map(|i| configs.for_folder(&i.base)).collect();
     // Files are independent: check them on every core, gather in order.
     let per_file: Vec<Vec<Finding>> = inputs
         .par_iter()
-        .map_init(PartsCache::default, |parts, input| {
-            check_bytes_with(&input.name, &input.bytes, &input.base, parts, &options)
-                .findings
-                .sorted()
+        .zip(configured.par_iter())
+        .map_init(PartsCache::default, |parts, (input, config)| {
+            let options = options_for(&args, config);
+            let checked = check_bytes_configured(
+                &input.name,
+                &input.bytes,
+                &input.base,
+                parts,
+                &options,
+                &config.defaults(),
+            );
+            config.apply(checked.findings.sorted())
         })
         .collect();
-    let all = dedup(per_file);
+    // A mistake in a configuration comes first: it changes what follows.
+    let all = dedup(
+        std::iter::once(configs.findings())
+            .chain(per_file)
+            .collect(),
+    );
     let errors = all
         .iter()
         .filter(|f| f.severity() == Severity::Error)

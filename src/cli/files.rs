@@ -58,9 +58,19 @@ pub fn plain_io(e: &std::io::Error) -> String {
     }
 }
 
-/// Reads and checks one spec for a command that then works on it; an
-/// unreadable file is a usage error, already reported.
-pub fn check_one(path: &Path) -> Result<crate::check::CheckedFile, u8> {
+/// Reads and checks one spec for a command that then works on it, with
+/// the `catena.yaml` that applies to its folder (its rules applied, its
+/// own findings among the spec's); an unreadable file is a usage error,
+/// already reported.
+pub fn check_one(
+    path: &Path,
+) -> Result<
+    (
+        crate::check::CheckedFile,
+        std::sync::Arc<crate::config::Config>,
+    ),
+    u8,
+> {
     let bytes = std::fs::read(path).map_err(|e| {
         eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
         super::EXIT_USAGE
@@ -69,10 +79,28 @@ pub fn check_one(path: &Path) -> Result<crate::check::CheckedFile, u8> {
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
-    Ok(crate::check::check_bytes(
+    let mut configs = super::settings::Configs::default();
+    let config = configs.for_folder(base);
+    let options = crate::analysis::CheckOptions {
+        margin: config.margin.as_ref().map_or(0.0, |s| s.value.max(1e-12)),
+        seed: config.seed.as_ref().map(|s| s.value),
+        ..Default::default()
+    };
+    let mut checked = crate::check::check_bytes_configured(
         &path.to_string_lossy(),
         &bytes,
         base,
         &mut crate::model::PartsCache::default(),
-    ))
+        &options,
+        &config.defaults(),
+    );
+    let mut findings = crate::diagnostics::Findings::new();
+    for f in configs.findings() {
+        findings.push(f);
+    }
+    for f in config.apply(checked.findings.into_vec()) {
+        findings.push(f);
+    }
+    checked.findings = findings;
+    Ok((checked, config))
 }

@@ -8,6 +8,7 @@ mod explain;
 mod files;
 mod fmt;
 mod generate;
+mod settings;
 mod terminal;
 
 use std::process::ExitCode;

@@ -6,7 +6,7 @@
 //! Letters by pipeline stage: S syntax, U units, P parameters and settings,
 //! M the chain graph (names, ports, cycles), L parts libraries, E evaluation
 //! of the chain (sensor validity, conversion, numerics), R requirements and
-//! limits.
+//! limits, C the configuration file (`catena.yaml`).
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Severity {
@@ -119,4 +119,10 @@ codes! {
     R615 => Warning, "Monte Carlo verdict inside its numerical width";
     R625 => Warning, "point outside the measurand range";
     R626 => Error, "reading clamped outside the range";
+
+    C801 => Error, "malformed configuration file";
+    C802 => Error, "unknown configuration key";
+    C803 => Error, "bad configuration value";
+    C804 => Error, "unknown code in a rule";
+    C805 => Error, "rule relaxes an error that cannot be relaxed";
 }

@@ -3,8 +3,9 @@
 The schema is the OASIS one, committed in `schemas/sarif-2.1.0.json`
 (`schemas/SOURCE.md` says where it was copied from); the validator is the
 `jsonschema` package pinned in `requirements.txt`. The logs checked are those
-of every invalid fixture (every finding code, parts-file findings among
-them) and of the demo specs (no findings). Writes no fixture: it fails, with
+of every invalid fixture and configuration fixture (every finding code,
+parts-file and configuration findings among them) and of the demo specs
+(no findings). Writes no fixture: it fails, with
 the first schema violation, or prints how many logs it checked.
 """
 
@@ -47,6 +48,8 @@ def main():
     binary = catena_binary()
     invalid = ROOT / "tests/fixtures/invalid"
     logs = [sarif_of(binary, invalid, [p.name]) for p in sorted(invalid.glob("*.catena"))]
+    for folder in sorted((ROOT / "tests/fixtures/config").iterdir()):
+        logs.append(sarif_of(binary, folder, ["spec.catena"]))
     logs.append(sarif_of(binary, ROOT, ["specs"]))
     results = 0
     for log in logs:
