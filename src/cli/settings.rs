@@ -17,6 +17,8 @@ use crate::units::format::{from_si, trimmed};
 #[derive(Default)]
 pub struct Configs {
     by_path: HashMap<PathBuf, Arc<Config>>,
+    /// The file each folder found, so specs side by side search once.
+    by_folder: HashMap<PathBuf, Option<(PathBuf, String)>>,
     /// In the order first needed, for a stable report.
     order: Vec<PathBuf>,
     none: Arc<Config>,
@@ -26,7 +28,12 @@ impl Configs {
     /// The configuration for a spec in `folder` (an empty one if none
     /// applies).
     pub fn for_folder(&mut self, folder: &Path) -> Arc<Config> {
-        let Some((path, shown)) = config::find(folder) else {
+        let found = self
+            .by_folder
+            .entry(folder.to_path_buf())
+            .or_insert_with(|| config::find(folder))
+            .clone();
+        let Some((path, shown)) = found else {
             return Arc::clone(&self.none);
         };
         if let Some(c) = self.by_path.get(&path) {
