@@ -1,7 +1,8 @@
 //! The registry of finding codes. A code is stable once released: its
 //! meaning never changes and it is never reused. Each has an explain page in
 //! `explain/CODE.md` (a missing page fails the build) and at least one
-//! fixture under `tests/fixtures/invalid/` (a missing fixture fails a test).
+//! fixture under `tests/fixtures/invalid/`, or for a configuration code a
+//! folder under `tests/fixtures/config/` (a missing fixture fails a test).
 //!
 //! Letters by pipeline stage: S syntax, U units, P parameters and settings,
 //! M the chain graph (names, ports, cycles), L parts libraries, E evaluation
