@@ -26,12 +26,17 @@ fn demo_specs_are_in_canonical_layout() {
 }
 
 /// The demos together use every stage kind and every sensor model the
-/// front end knows.
+/// front end knows, an amplifier reference, a thermocouple bias and a
+/// converter's limits (directly or through a shipped part).
 #[test]
 fn demo_specs_cover_every_model() {
     let mut text = String::new();
     for spec in demo_specs() {
         text.push_str(&std::fs::read_to_string(spec).expect("readable"));
+    }
+    for entry in std::fs::read_dir(root().join("specs/parts")).expect("specs/parts/") {
+        let path = entry.expect("entry").path();
+        text.push_str(&std::fs::read_to_string(path).expect("parts file"));
     }
     for word in [
         "excitation",
@@ -58,6 +63,10 @@ fn demo_specs_cover_every_model() {
         "butterworth",
         "bessel",
         "lowpass rc",
+        "bias_voltage",
+        "front.ref",
+        "ref_range",
+        "sampling_capacitance",
     ] {
         assert!(text.contains(word), "no demo spec uses `{word}`");
     }
@@ -119,5 +128,75 @@ fn fmt_is_idempotent_and_changes_no_finding() {
             "formatting {} changed its findings",
             path.display()
         );
+    }
+}
+
+/// The README's tour of the language is a spec that checks clean when it
+/// sits beside the shipped demos, with the part it names from the shipped
+/// library.
+#[test]
+fn readme_tour_checks_clean() {
+    let readme = std::fs::read_to_string(root().join("README.md")).expect("README.md");
+    let tour = readme
+        .split("## A tour of the language")
+        .nth(1)
+        .and_then(|rest| rest.split("```\n").nth(1))
+        .expect("the tour has a code block");
+    assert!(
+        tour.contains("use \"parts/") && tour.contains(" : "),
+        "{tour}"
+    );
+    let checked = catena::check::check_bytes(
+        "tour.catena",
+        tour.as_bytes(),
+        &root().join("specs"),
+        &mut catena::model::PartsCache::default(),
+    );
+    let findings: Vec<String> = checked
+        .findings
+        .iter()
+        .map(|f| format!("{} {}", f.code.as_str(), f.message))
+        .collect();
+    assert!(checked.resolved && findings.is_empty(), "{findings:?}");
+}
+
+/// Every part of the shipped library is used by a demo or a test spec, so
+/// none of them can stop checking unnoticed.
+#[test]
+fn every_shipped_part_is_used() {
+    let mut specs = String::new();
+    for dir in ["specs", "tests/fixtures"] {
+        collect_specs(&root().join(dir), &mut specs);
+    }
+    let mut parts = 0;
+    for entry in std::fs::read_dir(root().join("specs/parts")).expect("specs/parts/") {
+        let path = entry.expect("entry").path();
+        let text = std::fs::read_to_string(&path).expect("parts file");
+        let names = text.lines().filter_map(|l| {
+            let name = l.strip_prefix("  ")?.strip_suffix(':')?;
+            name.chars()
+                .all(|c| c.is_ascii_alphanumeric() || c == '_')
+                .then_some(name)
+        });
+        for name in names {
+            parts += 1;
+            assert!(
+                specs.contains(&format!(": {name} ")),
+                "part `{name}` of {} is used by no spec",
+                path.display()
+            );
+        }
+    }
+    assert!(parts >= 10, "found {parts} parts");
+}
+
+fn collect_specs(dir: &std::path::Path, out: &mut String) {
+    for entry in std::fs::read_dir(dir).expect("readable folder") {
+        let path = entry.expect("entry").path();
+        if path.is_dir() {
+            collect_specs(&path, out);
+        } else if path.extension().is_some_and(|e| e == "catena") {
+            out.push_str(&std::fs::read_to_string(&path).expect("spec"));
+        }
     }
 }

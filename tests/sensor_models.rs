@@ -290,3 +290,57 @@ fn validity_is_judged_at_the_true_temperature() {
         assert!(v["points"].as_array().unwrap().len() >= 3, "{spec}");
     }
 }
+
+/// Tolerances on custom Callendar–Van Dusen coefficients (IEC 60751 form)
+/// are three sources. With A off by δ the element at t reads the t_r
+/// where the nominal curve A t_r + B t_r² + C (t_r − 100) t_r³ equals the
+/// deviated one, (A + δ) t + B t² + C (t − 100) t³ (the C terms below
+/// 0 °C only), solved here by bisection for each side; the budget's
+/// contribution is the larger of the two. The same for B (absolute
+/// ± 2e-8) and C (± 5 %, no effect above 0 °C).
+#[test]
+fn custom_rtd_coefficients_with_tolerances() {
+    let (a, b, c) = (3.9083e-3, -5.775e-7, -4.183e-12);
+    let ratio = |t: f64, a: f64, b: f64, c: f64| {
+        a * t
+            + b * t * t
+            + if t < 0.0 {
+                c * (t - 100.0) * t.powi(3)
+            } else {
+                0.0
+            }
+    };
+    let read = |target: f64| {
+        let (mut lo, mut hi) = (-250.0f64, 900.0f64);
+        for _ in 0..200 {
+            let mid = 0.5 * (lo + hi);
+            if ratio(mid, a, b, c) < target {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        0.5 * (lo + hi)
+    };
+    let v = budget("custom_rtd_coefficients.catena", &["--trials", "0"]);
+    let deviations = [
+        ("probe.coefficient_a", [a * 1e-3, 0.0, 0.0]),
+        ("probe.coefficient_b", [0.0, 2e-8, 0.0]),
+        ("probe.coefficient_c", [0.0, 0.0, c.abs() * 0.05]),
+    ];
+    for point in v["points"].as_array().expect("points") {
+        let t = f(&point["measurand"]);
+        for (id, d) in deviations {
+            let side = |s: f64| {
+                let actual = ratio(t, a + s * d[0], b + s * d[1], c + s * d[2]);
+                (read(actual) - t).abs()
+            };
+            let expected = side(1.0).max(side(-1.0));
+            let got = f(&source(point, id)["contribution"]);
+            assert!(
+                (got - expected).abs() < 2e-6,
+                "{id} at {t} degC: {got} K against {expected} K"
+            );
+        }
+    }
+}

@@ -4,14 +4,18 @@
 pub mod accumulation;
 pub mod alarms;
 pub mod budget;
+pub mod draws;
 pub mod dynamics;
 pub mod monte_carlo;
 pub mod noise;
 pub mod ranges;
 pub mod report;
 pub mod requirements;
+pub mod settling;
+pub mod shares;
 mod stages;
 pub mod step;
+pub mod validation;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};

@@ -3,15 +3,18 @@
 //! time, summed as a worst case), against the limit it must stay inside:
 //! amplifier common-mode input range and output swing, the converter's
 //! input range, a current source's compliance, a voltage source's current
-//! limit and a sensor's maximum current. Each check says what would fix it,
-//! computed: the largest gain, the smallest reference, the largest
-//! excitation that fits with the margin.
+//! limit and a sensor's maximum current; a converter's reference against
+//! its allowed range, its input pins against its rails, and the source
+//! resistance its sampling capacitor charges through. Each check says what
+//! would fix it, computed: the largest gain, the smallest reference, the
+//! largest excitation that fits with the margin.
 
 use rayon::prelude::*;
 
 use super::budget::conditions;
 use crate::eval::{
-    BridgeKind, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES, MAX_NODES,
+    BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
+    MAX_NODES,
 };
 use crate::model::Chain;
 use crate::physics::adc::Polarity;
@@ -27,6 +30,15 @@ pub enum Limit {
     Compliance,
     CurrentLimit,
     MaxCurrent,
+    /// The voltage a converter works against, against its `ref_range`.
+    ConverterReference,
+    /// The absolute voltage of a converter's input pins, against its
+    /// `rails` (for a single-ended input, the one pin above its ground).
+    ConverterPins,
+    /// The source resistance behind a sampling converter's input, against
+    /// the largest that settles within ½ LSB in its acquisition time
+    /// (reported as R630, not as a range).
+    ConverterSettling,
 }
 
 impl Limit {
@@ -38,6 +50,9 @@ impl Limit {
             Limit::Compliance => "voltage across its load",
             Limit::CurrentLimit => "load current",
             Limit::MaxCurrent => "current",
+            Limit::ConverterReference => "reference",
+            Limit::ConverterPins => "input pin voltage",
+            Limit::ConverterSettling => "source resistance for settling",
         }
     }
 
@@ -50,6 +65,9 @@ impl Limit {
             Limit::Compliance => ("compliance", "current"),
             Limit::CurrentLimit => ("limit", "voltage"),
             Limit::MaxCurrent => ("max_current", "max_current"),
+            Limit::ConverterReference => ("ref_range", "vref"),
+            Limit::ConverterPins => ("rails", "rails"),
+            Limit::ConverterSettling => ("acquisition_time", "sampling_capacitance"),
         }
     }
 }
@@ -153,7 +171,12 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     });
                 }
             }
-            Node::Adc { polarity, .. } => {
+            Node::Adc {
+                polarity,
+                bits,
+                input,
+                ..
+            } => {
                 let allowed = match polarity {
                     Polarity::Unipolar => (0.0, 1.0),
                     Polarity::Bipolar => (-1.0, 1.0),
@@ -164,6 +187,28 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     allowed,
                     unit: "of full scale",
                 });
+                for (name, limit) in [
+                    ("ref_range", Limit::ConverterReference),
+                    ("rails", Limit::ConverterPins),
+                ] {
+                    if let Some(r) = range(i, name) {
+                        out.push(Check {
+                            node: i,
+                            limit,
+                            allowed: r,
+                            unit: "V",
+                        });
+                    }
+                }
+                let sampling = super::settling::Sampling::of(chain, plan, i, *bits, *input);
+                if let Some(r_max) = sampling.map(|s| s.largest_source()) {
+                    out.push(Check {
+                        node: i,
+                        limit: Limit::ConverterSettling,
+                        allowed: (f64::NEG_INFINITY, r_max),
+                        unit: "ohm",
+                    });
+                }
             }
             Node::Excitation { current: true, .. } => {
                 if let Some(r) = range(i, "compliance") {
@@ -202,7 +247,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
 }
 
 /// The value a check watches, in one raw evaluation.
-fn value(plan: &Plan, values: &[f64], s: &[Signal], check: &Check) -> f64 {
+fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) -> f64 {
     let voltage = |n: NodeId| match s[n] {
         Signal::Voltage { v, .. } => v,
         Signal::Source(v) => v,
@@ -214,6 +259,36 @@ fn value(plan: &Plan, values: &[f64], s: &[Signal], check: &Check) -> f64 {
             _ => 0.0,
         },
         (Node::Amplifier { .. }, _) => voltage(check.node),
+        (Node::Adc { .. }, Limit::ConverterReference) => plan
+            .converter_reference(check.node, values, env, s)
+            .unwrap_or(0.0),
+        (
+            Node::Adc {
+                input,
+                differential,
+                ..
+            },
+            Limit::ConverterPins,
+        ) => match s[*input] {
+            // A single-ended input is the one pin above the converter's
+            // ground; a differential one is two pins about their common
+            // mode, of which the one farther from the rails' middle counts.
+            Signal::Voltage { v, .. } if !differential => v,
+            Signal::Voltage { v, cm, .. } => {
+                let middle = (check.allowed.0 + check.allowed.1) / 2.0;
+                let (p, n) = (cm + v / 2.0, cm - v / 2.0);
+                if (p - middle).abs() >= (n - middle).abs() {
+                    p
+                } else {
+                    n
+                }
+            }
+            _ => 0.0,
+        },
+        (Node::Adc { input, .. }, Limit::ConverterSettling) => match s[*input] {
+            Signal::Voltage { rs, .. } => rs,
+            _ => 0.0,
+        },
         (Node::Adc { bits, polarity, .. }, _) => {
             let per_ref = match polarity {
                 Polarity::Unipolar => 2f64.powi(*bits as i32),
@@ -338,7 +413,7 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
             let nominal = plan.raw_signals(&plan.nominal, env)?;
             let q0: Vec<f64> = checks
                 .iter()
-                .map(|c| value(plan, &plan.nominal, &nominal, c))
+                .map(|c| value(plan, &plan.nominal, env, &nominal, c))
                 .collect();
             let mut values = plan.nominal.repeat(LANES);
             let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
@@ -350,10 +425,13 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
                 }
                 plan.raw_signals_lanes(&values, env, &mut scratch)?;
                 for (lane, &(s, _)) in batch.iter().enumerate() {
-                    values[lane * n + s] = plan.nominal[s];
+                    // Seen with this lane's values (a lead's or a
+                    // reference's own tolerance), then put back.
+                    let lane_values = &values[lane * n..(lane + 1) * n];
                     for (k, c) in checks.iter().enumerate() {
-                        changes.push(value(plan, &plan.nominal, &scratch[lane], c) - q0[k]);
+                        changes.push(value(plan, lane_values, env, &scratch[lane], c) - q0[k]);
                     }
+                    values[lane * n + s] = plan.nominal[s];
                 }
             }
             // Summed apart, then added to the nominal.
@@ -400,6 +478,37 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
         .collect())
 }
 
+/// The thermocouple right at amplifier `node`'s input, by name, when it
+/// has no bias: the one floating source a `bias_voltage` moves.
+fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
+    let Node::Amplifier { input, .. } = plan.nodes[node] else {
+        return None;
+    };
+    match plan.nodes[input] {
+        Node::Thermocouple { bias: None, .. } => Some(plan.names[input].as_str()),
+        _ => None,
+    }
+}
+
+/// What brings a converter's reference back inside its allowed range.
+fn reference_fix(stated: bool, high: bool, value: f64, target: f64, margin: f64) -> String {
+    use crate::units::format::{trimmed, with_prefix};
+    let word = if high { "at most" } else { "at least" };
+    let fits = format!(
+        "of {word} {} keeps {} % headroom",
+        with_prefix(target, "V", 4),
+        trimmed(margin * 100.0, 3)
+    );
+    if stated {
+        format!("a `vref` {fits}")
+    } else {
+        format!(
+            "a reference {fits}: scale what drives `ref` by {}",
+            trimmed(target / value, 4)
+        )
+    }
+}
+
 /// The findings of the envelopes: an error where a signal leaves its limit,
 /// a warning where it keeps less than `margin` of the limit's span, each
 /// with the number that fixes it.
@@ -419,7 +528,15 @@ pub fn findings(
         .unwrap_or_default();
     for e in envelopes {
         let headroom = e.headroom();
-        if headroom >= margin {
+        // Settling is judged on its own terms (R630), not as a range; a
+        // pin may sit on a rail (a pseudo-differential input's low side
+        // on ground), so rails get no margin.
+        let needed = match e.limit {
+            Limit::ConverterSettling => continue,
+            Limit::ConverterPins => 0.0,
+            _ => margin,
+        };
+        if headroom >= needed {
             continue;
         }
         let Some(stage) = chain.stages.iter().find(|s| s.name == plan.names[e.node]) else {
@@ -444,6 +561,16 @@ pub fn findings(
                 .position(|s| s.id == format!("{}.{name}", stage.name))
                 .map(|i| plan.nominal[i])
         };
+        let worst = Env {
+            measurand: e.worst_at.0,
+            ambient: e.worst_at.1,
+            cold_junction: e.worst_at.1,
+        };
+        let shift = plan
+            .raw_signals(&plan.nominal, &worst)
+            .ok()
+            .and_then(|s| plan.amplifier_reference(e.node, &plan.nominal, &worst, &s))
+            .unwrap_or(0.0);
         let span = e.span();
         let target = if high {
             bound - margin * span
@@ -451,21 +578,28 @@ pub fn findings(
             bound + margin * span
         };
         let fix = match e.limit {
-            Limit::AmplifierOutput if value != 0.0 && target / value > 0.0 => slot("gain").map(|g| {
-                let fits = g * target / value;
+            // The gain scales the output about its reference.
+            Limit::AmplifierOutput if value != shift && (target - shift) / (value - shift) > 0.0 => slot("gain").map(|g| {
+                let fits = g * (target - shift) / (value - shift);
                 let word = if fits < g { "at most" } else { "at least" };
                 format!("a gain of {word} {} keeps {} % headroom", trimmed(fits, 4), trimmed(margin * 100.0, 3))
             }),
-            Limit::AmplifierOutput => Some(format!("the output must reach {}: shift the signal into the swing (a reference or bias) or choose an amplifier that swings there", show(value))),
-            Limit::AmplifierInput => Some(format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show(value))),
+            Limit::AmplifierOutput => Some(format!("the output must reach {}: a `reference` of {} keeps {} % headroom (it shifts the output), or choose an amplifier that swings there", show(value), with_prefix(shift + target - value, "V", 4), trimmed(margin * 100.0, 3))),
+            Limit::AmplifierInput => Some(match floating_couple(plan, e.node) {
+                Some(tc) => format!("hold the couple's common mode inside {} .. {} with a `bias_voltage` on `{tc}` (mid-range: {}), or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show((e.allowed.0 + e.allowed.1) / 2.0), show(value)),
+                None => format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show(value)),
+            }),
             Limit::ConverterInput if high => match slot("vref") {
                 Some(vref) => Some(format!("a reference of at least {} keeps {} % headroom", with_prefix(vref * value / target, "V", 4), trimmed(margin * 100.0, 3))),
                 None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
             },
-            Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or offset the signal".to_string()),
+            Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)".to_string()),
             Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {} % headroom is {}", trimmed(margin * 100.0, 3), with_prefix(i * target / value, "A", 4))),
             Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {} % headroom", with_prefix(value / (1.0 - margin), "A", 4), trimmed(margin * 100.0, 3))),
             Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
+            Limit::ConverterReference => Some(reference_fix(slot("vref").is_some(), high, value, target, margin)),
+            Limit::ConverterPins => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e.allowed.0), show(e.allowed.1), show(value))),
+            Limit::ConverterSettling => None,
         };
         let at = format!(
             "at {} {unit}, ambient {} degC",
@@ -510,10 +644,22 @@ pub fn findings(
                 }
             }
         }
+        if let Node::Adc {
+            reference: Some(r), ..
+        } = plan.nodes[e.node]
+        {
+            if let (Limit::ConverterReference, Some(driver)) = (
+                e.limit,
+                chain.stages.iter().find(|s| s.name == plan.names[r]),
+            ) {
+                f = f.label(driver.name_span, "drives its `ref`");
+            }
+        }
         if let Some(fix) = fix {
             f = f.help(fix);
         }
         out.push(f);
     }
+    out.extend(super::settling::findings(chain, plan, envelopes));
     out
 }

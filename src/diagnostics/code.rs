@@ -83,6 +83,7 @@ codes! {
     P311 => Error, "missing measurand";
     P312 => Error, "setting given twice";
     P313 => Error, "percentage without a basis";
+    P335 => Error, "coefficients for a standard curve";
 
     M201 => Error, "duplicate stage name";
     M202 => Error, "unknown stage";
@@ -97,6 +98,9 @@ codes! {
     M211 => Error, "edge into an output or out of an input";
     M212 => Error, "wrong number of bridge arms";
     M213 => Warning, "output not used";
+    M227 => Error, "amplifier reference that is not a voltage";
+    M228 => Error, "amplifier reference given twice";
+    M229 => Error, "bias on a sensor that has no use for one";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";
@@ -120,6 +124,7 @@ codes! {
     R615 => Warning, "Monte Carlo verdict inside its numerical width";
     R625 => Warning, "point outside the measurand range";
     R626 => Error, "reading clamped outside the range";
+    R630 => Error, "converter input not settled";
 
     C801 => Error, "malformed configuration file";
     C802 => Error, "unknown configuration key";

@@ -141,6 +141,7 @@ impl Plan {
         match &self.nodes[n] {
             Node::Rtd {
                 curve,
+                coefficient_errors,
                 r0,
                 deviation,
                 senses,
@@ -150,8 +151,17 @@ impl Plan {
                 let range = curve.range_c();
                 let t_c = within(t - ZERO_CELSIUS_K, range)
                     .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))?;
+                let error = |k: usize| coefficient_errors[k].map(|s| values[s]).unwrap_or(0.0);
+                let curve = match *curve {
+                    RtdCurve::Cvd { a, b, c } => RtdCurve::Cvd {
+                        a: a + error(0),
+                        b: b + error(1),
+                        c: c + error(2),
+                    },
+                    other => other,
+                };
                 let element = ElementCurve::Rtd {
-                    curve: *curve,
+                    curve,
                     r0: values[*r0],
                     deviation: deviation.map(|(d0, da)| (values[d0], values[da])),
                 };

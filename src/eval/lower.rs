@@ -6,8 +6,8 @@ use petgraph::graph::DiGraph;
 
 use super::convert::{Calibration, Conversion, Method};
 use super::plan::{
-    AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
-    SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
+    AdcOffset, AmpReference, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId,
+    Plan, RtdCurve, SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
 };
 use super::run::{within, MAX_NODES};
 use crate::model::ports::Port;
@@ -259,7 +259,21 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
                 if let Some(ParamValue::Limit(t)) = stage.param("cold_junction") {
                     cj_error = Some(slots.limit(id("cold_junction"), t));
                 }
-                Node::Thermocouple { ty, senses, class }
+                let bias = measure(stage, "bias_voltage").map(|m| {
+                    (
+                        slots.measure(id("bias_voltage"), m),
+                        drift_of(&mut slots, "bias_voltage", m),
+                    )
+                });
+                let bias_resistor =
+                    measure(stage, "bias_resistor").map(|m| slots.measure(id("bias_resistor"), m));
+                Node::Thermocouple {
+                    ty,
+                    senses,
+                    class,
+                    bias,
+                    bias_resistor,
+                }
             }
             (StageKind::Sensor, Some("thermistor")) => {
                 let r25 = slots.measure(
@@ -487,7 +501,16 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
                 };
                 let input_node =
                     input(si, Port::In).ok_or_else(|| not_invertible(&stage.name, "no input"))?;
+                let reference = match (input(si, Port::Ref), measure(stage, "reference")) {
+                    (Some(node), _) => Some(AmpReference::Stage(node)),
+                    (None, Some(m)) => Some(AmpReference::Stated {
+                        value: slots.measure(id("reference"), m),
+                        drift: drift_of(&mut slots, "reference", m),
+                    }),
+                    (None, None) => None,
+                };
                 Node::Amplifier {
+                    reference,
                     gain,
                     offset,
                     cmrr,
@@ -696,7 +719,9 @@ fn validity(node: &Node) -> Option<Validity> {
                 valid.map(|v| ("its stated range".to_string(), kelvin(v))),
             ],
         )),
-        Node::Thermocouple { ty, senses, class } => Some((
+        Node::Thermocouple {
+            ty, senses, class, ..
+        } => Some((
             *senses,
             [
                 Some((format!("type {} thermocouple", ty.letter()), ty.range_c())),
@@ -766,12 +791,12 @@ fn rtd_node(
         "cu10" => (10.0, RtdCurve::Copper),
         "cu100" => (100.0, RtdCurve::Copper),
         _ => match stage.param("coefficients") {
-            Some(ParamValue::Numbers(n)) if n.len() == 3 => (
+            Some(ParamValue::Measures(m)) if m.len() == 3 => (
                 0.0,
                 RtdCurve::Cvd {
-                    a: n[0],
-                    b: n[1],
-                    c: n[2],
+                    a: m[0].nominal,
+                    b: m[1].nominal,
+                    c: m[2].nominal,
                 },
             ),
             _ => {
@@ -786,6 +811,19 @@ fn rtd_node(
         Some(m) => slots.measure(id("r0"), m),
         None => slots.exact(id("r0"), default_r0),
     };
+    // A characterised probe's coefficients, each its own source: a
+    // deviation of nominal 0 within its tolerance.
+    let mut coefficient_errors = [None; 3];
+    if let (Some(ParamValue::Measures(m)), RtdCurve::Cvd { .. }) =
+        (stage.param("coefficients"), curve)
+    {
+        for (k, (m, name)) in m.iter().zip(["a", "b", "c"]).enumerate() {
+            coefficient_errors[k] = m.tolerance.as_ref().map(|t| {
+                let (minus, plus, normal) = limits(t, m.nominal);
+                slots.add(id(&format!("coefficient_{name}")), 0.0, minus, plus, normal)
+            });
+        }
+    }
     let wiring = match count(stage, "wires") {
         Some(2) => rtd::Wiring::TwoWire,
         Some(3) => rtd::Wiring::ThreeWire,
@@ -825,6 +863,7 @@ fn rtd_node(
     }
     let node = Node::Rtd {
         curve,
+        coefficient_errors,
         r0,
         wiring,
         leads,

@@ -16,7 +16,7 @@ mod run;
 pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use plan::{
-    BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError, Senses, Signal,
-    Slot, SlotId, SourceKind,
+    AmpReference, BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError,
+    Senses, Signal, Slot, SlotId, SourceKind,
 };
 pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};

@@ -71,7 +71,7 @@ impl SourceKind {
             "offset" | "zero" => SourceKind::Bound,
             "gain_error" => SourceKind::Gain,
             "bias" => SourceKind::Bias,
-            "cmrr" => SourceKind::CommonMode,
+            "cmrr" | "bias_voltage" => SourceKind::CommonMode,
             "tolerance" | "accuracy" => SourceKind::Sensor,
             p if p.starts_with("class") => SourceKind::Sensor,
             p if p.starts_with("lead") => SourceKind::Lead,
@@ -132,6 +132,9 @@ pub enum Node {
     },
     Rtd {
         curve: RtdCurve,
+        /// Deviations of a custom curve's A, B and C (absolute, nominal
+        /// 0), where their tolerances are stated.
+        coefficient_errors: [Option<SlotId>; 3],
         r0: SlotId,
         /// How the leads enter the measurement.
         wiring: crate::physics::rtd::Wiring,
@@ -152,6 +155,11 @@ pub enum Node {
         /// IEC 60584-1 tolerance class, when given: it also bounds the
         /// range the thermocouple may be used over.
         class: Option<u8>,
+        /// The voltage its common mode is biased to (0 V when not), with
+        /// its drift.
+        bias: Option<(SlotId, Option<DriftSlot>)>,
+        /// The resistor that biases it, in its source resistance, Ω.
+        bias_resistor: Option<SlotId>,
     },
     Thermistor {
         r25: SlotId,
@@ -225,6 +233,8 @@ pub enum Node {
         offset_drift: Option<SlotId>,
         gain_drift: Option<SlotId>,
         input: NodeId,
+        /// What the output is referred to: output = gain × input + reference.
+        reference: Option<AmpReference>,
         /// Common-mode input range and output swing, V.
         input_range: Option<(f64, f64)>,
         output: Option<(f64, f64)>,
@@ -255,6 +265,19 @@ pub enum Node {
         cj: Option<NodeId>,
         conversion: Box<Conversion>,
     },
+}
+
+/// An amplifier's reference (its REF pin, or an output level shift).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum AmpReference {
+    /// A stated voltage: its slot (nominal the value, with its tolerance)
+    /// and drift.
+    Stated {
+        value: SlotId,
+        drift: Option<DriftSlot>,
+    },
+    /// The voltage another stage gives its `ref` input.
+    Stage(NodeId),
 }
 
 /// A converter's offset as it was stated: a voltage at its input, or a

@@ -4,8 +4,8 @@
 use super::convert::{calibration_env, Calibrated, Conversion};
 use super::element::Supply;
 use super::plan::{
-    AdcOffset, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, RtdCurve,
-    Senses, Signal,
+    AdcOffset, AmpReference, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId,
+    Plan, RtdCurve, Senses, Signal, SlotId,
 };
 use crate::physics::adc::Polarity;
 use crate::physics::{rtd, semiconductor, strain, thermocouple, transducer};
@@ -231,6 +231,87 @@ impl Plan {
         }
     }
 
+    /// The reference a converter works against: its `ref` input, else its
+    /// `vref` with drift.
+    #[inline(always)]
+    fn reference_of(
+        &self,
+        reference: Option<NodeId>,
+        vref: Option<SlotId>,
+        vref_drift: Option<DriftSlot>,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal],
+    ) -> f64 {
+        match reference.map(|n| s[n]) {
+            Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
+            _ => self.drifted(
+                vref.map(|r| values[r]).unwrap_or(0.0),
+                vref_drift,
+                values,
+                env,
+            ),
+        }
+    }
+
+    /// The voltage an amplifier's output is referred to (0 V without a
+    /// reference); None where its reference stage gives no voltage.
+    #[inline(always)]
+    fn shift_of(
+        &self,
+        reference: Option<AmpReference>,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal],
+    ) -> Option<f64> {
+        match reference {
+            Some(AmpReference::Stated { value, drift }) => {
+                Some(self.drifted(values[value], drift, values, env))
+            }
+            Some(AmpReference::Stage(n)) => match s[n] {
+                Signal::Voltage { v, .. } | Signal::Source(v) => Some(v),
+                _ => None,
+            },
+            None => Some(0.0),
+        }
+    }
+
+    /// The reference amplifier `node` refers its output to in one raw
+    /// evaluation; None for another kind of node.
+    pub fn amplifier_reference(
+        &self,
+        node: NodeId,
+        values: &[f64],
+        env: &Env,
+        signals: &[Signal],
+    ) -> Option<f64> {
+        match &self.nodes[node] {
+            Node::Amplifier { reference, .. } => self.shift_of(*reference, values, env, signals),
+            _ => None,
+        }
+    }
+
+    /// The reference voltage converter `node` works against in one raw
+    /// evaluation (`signals` from [`Plan::raw_signals`]); None for another
+    /// kind of node.
+    pub fn converter_reference(
+        &self,
+        node: NodeId,
+        values: &[f64],
+        env: &Env,
+        signals: &[Signal],
+    ) -> Option<f64> {
+        match &self.nodes[node] {
+            Node::Adc {
+                reference,
+                vref,
+                vref_drift,
+                ..
+            } => Some(self.reference_of(*reference, *vref, *vref_drift, values, env, signals)),
+            _ => None,
+        }
+    }
+
     pub(super) fn out_of_range(
         &self,
         node: NodeId,
@@ -306,6 +387,8 @@ impl Plan {
                 ty,
                 senses,
                 class: _,
+                bias,
+                bias_resistor,
             } => {
                 let range = ty.range_c();
                 let t = self.sensed(i, *senses, env, values) - ZERO_CELSIUS_K;
@@ -324,10 +407,15 @@ impl Plan {
                     None => e(junction_c(*ty, env))?,
                 };
                 let v = (e(t)? - at_junction) * 1e-3;
+                // A couple floats: its common mode is where a bias holds
+                // it, else 0 V.
+                let cm = bias
+                    .map(|(b, drift)| self.drifted(values[b], drift, values, env))
+                    .unwrap_or(0.0);
                 Signal::Voltage {
                     v,
-                    cm: 0.0,
-                    rs: 0.0,
+                    cm,
+                    rs: bias_resistor.map(|r| values[r]).unwrap_or(0.0),
                 }
             }
             Node::Thermistor { input, .. } => {
@@ -432,18 +520,23 @@ impl Plan {
                 offset_drift,
                 gain_drift,
                 input,
+                reference,
                 input_range,
                 output,
             } => {
                 let Signal::Voltage { v, cm, rs } = s[*input] else {
                     return Err(self.numeric(i, "no input voltage"));
                 };
+                let shift = self
+                    .shift_of(*reference, values, env, s)
+                    .ok_or_else(|| self.numeric(i, "no reference voltage"))?;
                 let slot = |o: &Option<usize>| o.map(|o| values[o]).unwrap_or(0.0);
                 // Vout = G (Vdiff + Vos + Ib·Rs + Vcm/CMRR), then the swing.
                 let dt = env.ambient - self.reference;
                 let error =
                     slot(offset) + slot(offset_drift) * dt + slot(bias) * rs + slot(cmrr) * cm;
-                let mut out = values[*gain] * (1.0 + slot(gain_drift) * dt) * (v + error);
+                // Output = gain × input + reference.
+                let mut out = values[*gain] * (1.0 + slot(gain_drift) * dt) * (v + error) + shift;
                 let (lo, hi) = output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
                 // Outside its common-mode range an amplifier no longer
                 // amplifies: its output goes to a rail.
@@ -485,15 +578,7 @@ impl Plan {
                 let Signal::Voltage { v, .. } = s[*input] else {
                     return Err(self.numeric(i, "no input voltage"));
                 };
-                let vr = match reference.map(|n| s[n]) {
-                    Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
-                    _ => self.drifted(
-                        vref.map(|r| values[r]).unwrap_or(0.0),
-                        *vref_drift,
-                        values,
-                        env,
-                    ),
-                };
+                let vr = self.reference_of(*reference, *vref, *vref_drift, values, env, s);
                 if vr <= 0.0 || !vr.is_finite() {
                     return Err(self.numeric(i, "the reference voltage is zero or negative"));
                 }

@@ -314,6 +314,31 @@ fn check_ports(
             continue;
         };
         let signal = outputs[c.from];
+        if !spec.accepts.contains(&signal)
+            && target.kind == StageKind::Amplifier
+            && spec.port == Port::Ref
+        {
+            let source = &stages[c.from];
+            findings.push(
+                Finding::new(
+                    Code::M227,
+                    file,
+                    format!(
+                        "`{}` gives {} but the reference of amplifier `{}` must be a voltage",
+                        source.name,
+                        signal.noun(),
+                        target.name
+                    ),
+                )
+                .label(c.span, format!("{} into `{}.ref`", signal.noun(), target.name))
+                .label(source.name_span, format!("gives {}", signal.noun()))
+                .help(format!(
+                    "wire a voltage into `{}.ref` (a voltage excitation, a divider's output, a buffer amplifier), or state it in the block: `reference 2.5 V ± 0.1 %`",
+                    target.name
+                )),
+            );
+            continue;
+        }
         if !spec.accepts.contains(&signal) {
             let source = &stages[c.from];
             let expects = spec
@@ -358,6 +383,29 @@ fn check_ports(
     for (i, stage) in stages.iter().enumerate() {
         if stage.incomplete {
             continue;
+        }
+        if let (Some(wired), Some(stated)) = (
+            connections.iter().find(|c| {
+                c.to == i && c.to_port == Port::Ref && stage.kind == StageKind::Amplifier
+            }),
+            stage.params.iter().find(|p| p.name == "reference"),
+        ) {
+            let mut f = Finding::new(
+                Code::M228,
+                file,
+                format!(
+                    "amplifier `{}` has a `reference` line and a stage wired to its `ref`",
+                    stage.name
+                ),
+            )
+            .label(wired.span, "wired here");
+            if Arc::ptr_eq(&stated.file, file) {
+                f = f.label(stated.span, "stated here");
+            }
+            findings.push(f.help(format!(
+                "keep one: the edge into `{}.ref` when another stage sets the reference, the `reference` line when it is a stated voltage",
+                stage.name
+            )));
         }
         for spec in stage_inputs(stage) {
             let into: Vec<&Connection> = connections

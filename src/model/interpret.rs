@@ -154,6 +154,22 @@ impl Reader<'_> {
                 }
                 Ok(ParamValue::Numbers(numbers))
             }
+            Shape::TolerancedNumbers(n) => {
+                let mut measures = Vec::with_capacity(n);
+                while let Some(Value::Quantity(q)) = self.peek().cloned() {
+                    if q.unit.is_some() || measures.len() == n {
+                        break;
+                    }
+                    measures.push(self.measure(Expect::Ratio, true, false, shape)?.0);
+                }
+                if measures.len() != n || matches!(self.peek(), Some(Value::Quantity(_))) {
+                    return Err(self.missing(
+                        &format!("exactly {n} plain numbers, each with an optional tolerance"),
+                        shape,
+                    ));
+                }
+                Ok(ParamValue::Measures(measures))
+            }
             Shape::At { value, at } => {
                 let (value, value_dim) = self.measure(value, true, false, shape)?;
                 if !self.peek_word("at") {
@@ -707,6 +723,9 @@ fn usage(name: &str, shape: Shape) -> String {
         Shape::Words(ws) => format!("{name} {}", ws.join(" | ")),
         Shape::Count { min, max } => format!("{name} <whole number {min} to {max}>"),
         Shape::Numbers(n) => format!("{name} {}", vec!["<number>"; n].join(" ")),
+        Shape::TolerancedNumbers(n) => {
+            format!("{name} {}", vec!["<number> [± <tolerance>]"; n].join(" "))
+        }
         Shape::At { value, at } => format!("{name} {} at {}", cx_free(value), cx_free(at)),
         Shape::Method => format!("{name} exact | linear | table 16 | poly 3"),
         Shape::Calibrate => format!("{name} offset at <point> ± <uncertainty>` or `{name} two_point at <point>, <point> ± <uncertainty>"),

@@ -85,6 +85,8 @@ const fn input(port: Port, accepts: &'static [Signal], required: bool) -> InputS
 }
 
 const EXCITATIONS: &[Signal] = &[Signal::CurrentExcitation, Signal::VoltageExcitation];
+/// What a `ref` input takes: a voltage, from a source or another stage.
+const REFERENCES: &[Signal] = &[Signal::Voltage, Signal::VoltageExcitation];
 
 pub fn is_resistive(model: Option<&str>) -> bool {
     matches!(
@@ -123,14 +125,14 @@ pub fn inputs(
                 multi: true,
             },
         ],
-        StageKind::Amplifier | StageKind::Filter => vec![input(Port::In, &[Signal::Voltage], true)],
+        StageKind::Amplifier => vec![
+            input(Port::In, &[Signal::Voltage], true),
+            input(Port::Ref, REFERENCES, false),
+        ],
+        StageKind::Filter => vec![input(Port::In, &[Signal::Voltage], true)],
         StageKind::Adc => vec![
             input(Port::In, &[Signal::Voltage], true),
-            input(
-                Port::Ref,
-                &[Signal::Voltage, Signal::VoltageExcitation],
-                param("vref").is_none(),
-            ),
+            input(Port::Ref, REFERENCES, param("vref").is_none()),
         ],
         StageKind::Convert => vec![
             input(Port::In, &[Signal::Code], true),

@@ -47,6 +47,9 @@ pub enum Shape {
     Count { min: u32, max: u32 },
     /// Exactly `n` plain numbers.
     Numbers(usize),
+    /// Exactly `n` plain numbers, each with an optional tolerance
+    /// (relative, `± 0.1 %`, or absolute, `± 2e-6`).
+    TolerancedNumbers(usize),
     /// `value at point`.
     At { value: Expect, at: Expect },
     /// `exact | linear | table n | poly n`
@@ -91,6 +94,9 @@ pub struct ModelSpec {
     pub exclusive: &'static [(&'static str, &'static str)],
     /// Groups of which at least one must be given.
     pub one_of: &'static [&'static [&'static str]],
+    /// Groups given all together or not at all: what one of them states
+    /// means nothing without the others.
+    pub together: &'static [&'static [&'static str]],
 }
 
 const fn p(name: &'static str, shape: Shape) -> ParamSpec {
@@ -181,6 +187,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Excitation,
@@ -193,6 +200,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -200,7 +208,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Words(RTD_CURVES),
         params: &[
             p("r0", toleranced(OHM)).positive(),
-            p("coefficients", Shape::Numbers(3)),
+            p("coefficients", Shape::TolerancedNumbers(3)),
             p("class", Shape::Words(&["AA", "A", "B", "C"])),
             p("tolerance", Shape::Limit(Expect::TempDiff)),
             p("wires", Shape::Count { min: 2, max: 4 }),
@@ -211,6 +219,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -222,9 +231,12 @@ static MODELS: &[ModelSpec] = &[
             p("cold_junction", Shape::LimitOrStage(Expect::TempDiff)),
             LEAD,
             TIME_CONSTANT,
+            p("bias_voltage", measure(VOLT)),
+            p("bias_resistor", toleranced(OHM)).positive(),
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
+        together: &[&["bias_resistor", "bias_voltage"]],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -241,6 +253,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[("beta", "steinhart")],
         one_of: &[&["beta", "steinhart"]],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -266,6 +279,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -281,6 +295,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -296,6 +311,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -324,6 +340,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Sensor,
@@ -332,6 +349,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -343,6 +361,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -351,6 +370,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -359,6 +379,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Bridge,
@@ -367,6 +388,7 @@ static MODELS: &[ModelSpec] = &[
         params: &[],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Amplifier,
@@ -388,9 +410,11 @@ static MODELS: &[ModelSpec] = &[
             p("input", Shape::Range(VOLT)),
             p("output", Shape::Range(VOLT)),
             p("bandwidth", plain(HERTZ)).positive(),
+            p("reference", measure(VOLT)),
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Filter,
@@ -404,6 +428,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[("cutoff", "r"), ("cutoff", "c")],
         one_of: &[&["cutoff", "r"]],
+        together: &[],
     },
     ModelSpec {
         kind: StageKind::Adc,
@@ -421,9 +446,15 @@ static MODELS: &[ModelSpec] = &[
             p("noise", Shape::Limit(VOLTAGE_OR_CODES)),
             p("rate", plain(HERTZ)).positive(),
             p("notch", plain(HERTZ)).positive(),
+            p("ref_range", Shape::Range(VOLT)),
+            p("rails", Shape::Range(VOLT)),
+            p("sampling_capacitance", plain(FARAD)).positive(),
+            p("sampling_resistance", plain(OHM)).non_negative(),
+            p("acquisition_time", plain(SECOND)).positive(),
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[&["sampling_capacitance", "acquisition_time"]],
     },
     ModelSpec {
         kind: StageKind::Convert,
@@ -442,6 +473,7 @@ static MODELS: &[ModelSpec] = &[
         ],
         exclusive: &[],
         one_of: &[],
+        together: &[],
     },
 ];
 

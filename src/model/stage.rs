@@ -205,6 +205,11 @@ fn find_model(
 
 fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Finding {
     let name = &line.param.name.name;
+    if decl.kind == crate::syntax::ast::StageKind::Sensor && name.starts_with("bias_") {
+        if let Some(m) = model.model.filter(|m| *m != "thermocouple") {
+            return needless_bias(line, decl, m);
+        }
+    }
     let what = match model.model {
         Some(m) => format!("{} `{m}`", decl.kind.keyword()),
         None => decl.kind.keyword().to_string(),
@@ -233,6 +238,23 @@ fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Findin
     .help(help)
 }
 
+/// M229: a bias on a sensor whose common mode its circuit already sets.
+fn needless_bias(line: &Line<'_>, decl: &StageDecl, model: &str) -> Finding {
+    let name = &line.param.name.name;
+    Finding::new(
+        Code::M229,
+        line.file,
+        format!(
+            "sensor `{}` ({model}) has no use for `{name}`",
+            decl.name.name
+        ),
+    )
+    .label(line.param.name.span, "a bias for a floating source")
+    .help(format!(
+        "remove `{name}`: what excites or powers this sensor sets its common mode; a bias holds a floating `thermocouple`, and an amplifier's `reference` shifts its output"
+    ))
+}
+
 fn check_presence(
     file: &Arc<SourceFile>,
     decl: &StageDecl,
@@ -253,14 +275,34 @@ fn check_presence(
         .filter(|p| p.required)
         .map(|p| p.name)
         .collect();
-    // A custom curve has no table values to fall back on.
-    if model.model == Some("rtd")
-        && lines.iter().any(|l| {
-            l.param.name.name == "rtd"
-                && matches!(l.param.values.first(), Some(crate::syntax::ast::Value::Word(w)) if w.name == "custom")
-        })
-    {
+    // A custom curve has no table values to fall back on; a standard one
+    // has its own coefficients, so stated ones would go unused.
+    let curve = lines
+        .iter()
+        .find(|l| l.param.name.name == "rtd")
+        .and_then(|l| match l.param.values.first() {
+            Some(crate::syntax::ast::Value::Word(w)) => Some(w.name.as_str()),
+            _ => None,
+        });
+    if model.model == Some("rtd") && curve == Some("custom") {
         required.extend(["r0", "coefficients"]);
+    }
+    if let (Some(curve), Some(line)) = (
+        curve.filter(|c| *c != "custom" && model.model == Some("rtd")),
+        lines.iter().find(|l| l.param.name.name == "coefficients"),
+    ) {
+        findings.push(
+            Finding::new(
+                Code::P335,
+                line.file,
+                format!(
+                    "`{}` uses the standard `{curve}` curve, so its `coefficients` are not used",
+                    decl.name.name
+                ),
+            )
+            .label(line.param.name.span, "not used")
+            .help("write `rtd custom` with `r0` to use these coefficients (a characterised probe), or remove the line"),
+        );
     }
     // A missing parameter is often one written with a typo (P301).
     let misspelt = |wanted: &[&str], findings: &Findings| {
@@ -314,6 +356,34 @@ fn check_presence(
                 .help(format!("add {list}"))
                 .caused_by(cause),
             );
+        }
+    }
+    for group in model.together {
+        let Some(given) = group.iter().find(|n| has(n)) else {
+            continue;
+        };
+        for name in group.iter().filter(|n| !has(n)) {
+            let example = model
+                .param(name)
+                .map(|p| super::interpret::usage_of(p.name, p.shape))
+                .unwrap_or_default();
+            let mut f = Finding::new(
+                Code::P302,
+                file,
+                format!("`{}` gives `{given}`, so it needs `{name}`", decl.name.name),
+            );
+            f = match span_of(given) {
+                Some(s) => f.label(s, format!("needs `{name}`")),
+                None => f.label(decl.name.span, format!("`{name}` is missing")),
+            };
+            findings.push(f.help(format!(
+                "add a line such as `{example}`: {} are used together",
+                group
+                    .iter()
+                    .map(|n| format!("`{n}`"))
+                    .collect::<Vec<_>>()
+                    .join(" and ")
+            )));
         }
     }
     for (a, b) in model.exclusive {

@@ -69,6 +69,8 @@ pub enum ParamValue {
     Word(String),
     Count(u32),
     Numbers(Vec<f64>),
+    /// Plain numbers, each with its tolerance if it has one.
+    Measures(Vec<Measure>),
     /// `2 mV/V at 500 N`, `0.75 V at 25 degC`.
     At {
         value: Measure,

@@ -6,6 +6,7 @@ pub mod constants;
 pub mod filter;
 pub mod noise;
 pub mod rtd;
+pub mod sampling;
 pub mod semiconductor;
 pub mod strain;
 pub mod thermistor;
