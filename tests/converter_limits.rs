@@ -23,7 +23,11 @@ fn limit<'a>(budget: &'a serde_json::Value, name: &str) -> &'a serde_json::Value
 fn findings(spec: &str) -> Vec<serde_json::Value> {
     let (status, out) = run_json(&["check", "--format", "json", spec]);
     assert_eq!(status, 1, "{out}");
-    serde_json::from_str(&out).expect("JSON findings")
+    let doc: serde_json::Value = serde_json::from_str(&out).expect("JSON findings");
+    doc["findings"]
+        .as_array()
+        .expect("a findings array")
+        .clone()
 }
 
 /// The number right after `before` in `text`.
@@ -134,10 +138,14 @@ fn input_pins_against_the_rails() {
         "0",
     ]);
     let budget: serde_json::Value = serde_json::from_str(&out).expect("budget JSON");
-    let pins = limit(&budget, "input pin voltage");
-    let low = pins["reach"][0].as_f64().expect("a reach");
-    let expected = -(16.397e-3 - 1.000e-3) / 2.0;
-    assert!((low - expected).abs() < 2e-6, "{low} against {expected}");
+    let half = (16.397e-3 - 1.000e-3) / 2.0;
+    let negative = limit(&budget, "negative input pin voltage");
+    let low = negative["reach"][0].as_f64().expect("a reach");
+    assert!((low + half).abs() < 2e-6, "{low} against {}", -half);
+    // Each pin is its own row: the positive one mirrors the negative.
+    let positive = limit(&budget, "input pin voltage");
+    let high = positive["reach"][1].as_f64().expect("a reach");
+    assert!((high - half).abs() < 2e-6, "{high} against {half}");
     let found = findings("converters/floating_couple.catena");
     assert_eq!(found[0]["code"], "R601", "{found:?}");
     let help = found[0]["help"].as_str().expect("help");

@@ -17,6 +17,13 @@ fn every_code_has_a_fixture() {
             headers.push('\n');
         }
     }
+    // Configuration codes: each fixture is a folder with its `catena.yaml`.
+    for entry in std::fs::read_dir(root().join("tests/fixtures/config")).expect("config fixtures") {
+        let spec = entry.expect("entry").path().join("spec.catena");
+        let text = std::fs::read_to_string(&spec).expect("each folder has a spec.catena");
+        headers.push_str(text.lines().next().unwrap_or(""));
+        headers.push('\n');
+    }
     // A file too large to check cannot be a committed fixture, nor can a
     // named pipe or a folder link loop; they are made by
     // `bad_input::oversized_file_is_refused`,

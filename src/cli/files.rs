@@ -5,7 +5,8 @@ use crate::input::{not_a_regular_spec, read_limited, ReadError};
 use crate::syntax::MAX_SOURCE_BYTES;
 
 /// The spec files named on the command line: files as given, folders
-/// searched recursively for `*.catena`, in sorted order.
+/// searched recursively for `*.catena`, in sorted order. A folder with no
+/// spec in it is an error: a mistyped path must not pass as a clean check.
 pub fn collect(paths: &[PathBuf]) -> Result<Vec<PathBuf>, String> {
     let (files, loops) = collect_reporting(paths)?;
     for finding in loops {
@@ -23,6 +24,7 @@ pub fn collect_reporting(paths: &[PathBuf]) -> Result<(Vec<PathBuf>, Vec<Finding
         let meta = std::fs::metadata(path)
             .map_err(|e| format!("cannot read `{}`: {}", path.display(), plain_io(&e)))?;
         if meta.is_dir() {
+            let before = out.len();
             let mut walk = Walk {
                 out: &mut out,
                 loops: &mut loops,
@@ -31,6 +33,9 @@ pub fn collect_reporting(paths: &[PathBuf]) -> Result<(Vec<PathBuf>, Vec<Finding
             walk.folder(path).map_err(|e| {
                 format!("cannot read folder `{}`: {}", path.display(), plain_io(&e))
             })?;
+            if out.len() == before {
+                return Err(format!("no *.catena files under `{}`", path.display()));
+            }
         } else {
             out.push(path.clone());
         }
@@ -56,14 +61,20 @@ impl Walk<'_> {
         let mut entries: Vec<_> = std::fs::read_dir(dir)?.collect::<Result<_, _>>()?;
         entries.sort_by_key(|e| e.file_name());
         for entry in entries {
-            self.entry(&entry)?;
+            self.entry(dir, &entry)?;
         }
         self.ancestors.pop();
         Ok(())
     }
 
-    fn entry(&mut self, entry: &std::fs::DirEntry) -> std::io::Result<()> {
+    fn entry(&mut self, dir: &Path, entry: &std::fs::DirEntry) -> std::io::Result<()> {
+        // `check .` names `s/a.catena`, not `./s/a.catena`: the name is
+        // also a SARIF location's relative URI.
         let path = entry.path();
+        let path = match path.strip_prefix(".") {
+            Ok(inner) if dir == Path::new(".") => inner.to_path_buf(),
+            _ => path,
+        };
         let mut kind = entry.file_type()?;
         if kind.is_symlink() {
             // A link is followed to what it names: a folder behind a link
@@ -136,28 +147,58 @@ pub fn read_spec(path: &Path) -> Result<Result<Vec<u8>, Finding>, u8> {
     }
 }
 
-/// Reads and checks one spec for a command that then works on it; an
-/// unreadable file is a usage error, already reported.
-pub fn check_one(path: &Path) -> Result<crate::check::CheckedFile, u8> {
-    let bytes = match read_spec(path)? {
-        Ok(bytes) => bytes,
-        Err(refused) => {
-            let mut findings = crate::diagnostics::Findings::new();
-            findings.push(refused);
-            return Ok(crate::check::CheckedFile {
-                findings,
-                ..Default::default()
-            });
-        }
-    };
+/// Reads and checks one spec for a command that then works on it, with
+/// the `catena.yaml` that applies to its folder (its rules applied, its
+/// own findings among the spec's); an unreadable file is a usage error,
+/// already reported.
+pub fn check_one(
+    path: &Path,
+) -> Result<
+    (
+        crate::check::CheckedFile,
+        std::sync::Arc<crate::config::Config>,
+    ),
+    u8,
+> {
+    let read = read_spec(path)?;
     let base = path
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
-    Ok(crate::check::check_bytes(
+    let mut configs = super::settings::Configs::default();
+    let config = configs.for_folder(base);
+    let bytes = match read {
+        Ok(bytes) => bytes,
+        Err(refused) => {
+            let mut findings = crate::diagnostics::Findings::new();
+            findings.push(refused);
+            let checked = crate::check::CheckedFile {
+                findings,
+                ..Default::default()
+            };
+            return Ok((checked, config));
+        }
+    };
+    let options = crate::analysis::CheckOptions {
+        margin: config.margin.as_ref().map_or(0.0, |s| s.value.max(1e-12)),
+        seed: config.seed.as_ref().map(|s| s.value),
+        ..Default::default()
+    };
+    let mut checked = crate::check::check_bytes_configured(
         &path.to_string_lossy(),
         &bytes,
         base,
         &mut crate::model::PartsCache::default(),
-    ))
+        &options,
+        &config.defaults(),
+    );
+    let mut findings = crate::diagnostics::Findings::new();
+    for f in configs.findings() {
+        findings.push(f);
+    }
+    for f in config.apply(checked.findings.into_vec()) {
+        findings.push(f);
+    }
+    checked.findings = findings;
+    Ok((checked, config))
 }
