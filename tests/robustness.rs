@@ -435,7 +435,7 @@ fn parts_values_are_placed_by_position() {
     }
     let run = catena(&dir, &["check", "--format", "json", "a.catena"], None);
     let findings: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
-    let slope = findings
+    let slope = findings["findings"]
         .as_array()
         .unwrap()
         .iter()
@@ -547,7 +547,7 @@ fn bidirectional_controls_are_findings() {
         let run = catena(&dir, &["check", "--format", "json", &name], None);
         assert_eq!(run.status, 1, "{}", run.stdout);
         let doc: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
-        let lines: Vec<i64> = doc
+        let lines: Vec<i64> = doc["findings"]
             .as_array()
             .unwrap()
             .iter()
