@@ -10,12 +10,13 @@ pub mod schema;
 mod settings;
 mod stage;
 mod suggest;
+pub mod track;
 pub mod value;
 
 use std::path::Path;
 use std::sync::Arc;
 
-pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage};
+pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember};
 pub use graph::output_signals;
 pub use parts::PartsCache;
 pub use settings::DEFAULT_REFERENCE_K;
@@ -167,6 +168,7 @@ pub fn resolve(
         graph::check_references(&stages, &mut findings);
         let connections = graph::connect(file, &mut stages, &decl.edges, &mut findings);
         let reference = settings.reference.unwrap_or(DEFAULT_REFERENCE_K);
+        let groups = track::resolve(file, &decl.tracks, &stages, &mut findings);
         chains.push(Chain {
             name: decl.name.name.clone(),
             name_span: decl.name.span,
@@ -180,6 +182,7 @@ pub fn resolve(
             alarms: settings.alarms,
             stages,
             connections,
+            groups,
         });
     }
     (chains, findings)
