@@ -11,12 +11,13 @@ pub mod schema;
 mod settings;
 mod stage;
 mod suggest;
+pub mod track;
 pub mod value;
 
 use std::path::Path;
 use std::sync::Arc;
 
-pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage};
+pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember};
 pub use graph::output_signals;
 pub use parts::PartsCache;
 pub use settings::DEFAULT_REFERENCE_K;
@@ -215,6 +216,7 @@ pub fn resolve_with(
             .reference
             .or(defaults.reference)
             .unwrap_or(DEFAULT_REFERENCE_K);
+        let groups = track::resolve(file, &decl.tracks, &stages, &mut findings);
         chain_names
             .entry(decl.name.name.clone())
             .or_insert(chains.len());
@@ -234,6 +236,7 @@ pub fn resolve_with(
             alarms: settings.alarms,
             stages,
             connections,
+            groups,
         });
     }
     (chains, findings)
