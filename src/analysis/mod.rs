@@ -10,6 +10,7 @@ pub mod noise;
 pub mod ranges;
 pub mod report;
 pub mod requirements;
+pub mod review;
 pub mod settling;
 mod stages;
 pub mod step;

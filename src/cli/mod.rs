@@ -3,10 +3,13 @@
 mod budget;
 mod budget_table;
 mod check;
+mod compare;
+mod diff;
 mod eval;
 mod explain;
 mod files;
 mod fmt;
+mod revision;
 mod terminal;
 
 use std::process::ExitCode;
@@ -36,6 +39,10 @@ enum Command {
     Budget(budget::BudgetArgs),
     /// Evaluate a chain at one measurand value: every stage's output.
     Eval(eval::EvalArgs),
+    /// What a change did to a chain: spec, verdicts, margins, headroom.
+    Diff(diff::DiffArgs),
+    /// Candidate chains side by side: a trade table.
+    Compare(compare::CompareArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
 }
@@ -59,6 +66,8 @@ pub fn run() -> ExitCode {
         Command::Fmt(args) => fmt::run(args),
         Command::Budget(args) => budget::run(args),
         Command::Eval(args) => eval::run(args),
+        Command::Diff(args) => diff::run(args),
+        Command::Compare(args) => compare::run(args),
         Command::Explain(args) => explain::run(args),
     };
     ExitCode::from(status)

@@ -1,0 +1,738 @@
+//! `catena diff OLD NEW` and `catena diff --rev REV [PATH...]`: what a
+//! change did to a chain — its text as the model reads it, then its
+//! verdicts, margins, worst points, contributors, headroom, converter
+//! window and alarm trips — told apart from numerical noise.
+
+use std::path::{Path, PathBuf};
+
+use clap::{Args, ValueEnum};
+use serde::Serialize;
+
+use super::files::{check_one, collect, plain_io};
+use super::revision::{self, Snapshot};
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::review::{
+    diff_outcomes, outcome, spec_changes, ChangeKind, Direction, Moved, Outcome, OutcomeDiff,
+    SpecChange, DEFAULT_THRESHOLD,
+};
+use crate::check::CheckedFile;
+use crate::eval::lower;
+use crate::model::{Chain, PartsCache};
+use crate::units::format::significant;
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum ReviewFormat {
+    Human,
+    Markdown,
+    Json,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum FailOn {
+    /// A verdict flipped to fail or a margin shrank past `--threshold`.
+    Regression,
+}
+
+#[derive(Args, Debug)]
+pub struct DiffArgs {
+    /// OLD and NEW specs (`FILE` or `FILE#chain`); with `--rev`, the specs
+    /// to compare with their version at REV (default: every changed one).
+    paths: Vec<String>,
+    /// Compare the working tree's specs with their version at this git
+    /// revision (its parts files from the same revision).
+    #[arg(long)]
+    rev: Option<String>,
+    #[arg(long, value_enum, default_value_t = ReviewFormat::Human)]
+    format: ReviewFormat,
+    /// Exit 1 on a regression.
+    #[arg(long, value_enum)]
+    fail_on: Option<FailOn>,
+    /// The shrink of a requirement's margin, in % of its limit, that
+    /// counts as a regression.
+    #[arg(long, default_value_t = DEFAULT_THRESHOLD * 100.0)]
+    threshold: f64,
+    /// Monte Carlo trials per point on each side (0: none).
+    #[arg(long, default_value_t = DEFAULT_TRIALS)]
+    trials: usize,
+    /// The Monte Carlo seed, the same on both sides.
+    #[arg(long, default_value_t = DEFAULT_SEED)]
+    seed: u64,
+}
+
+/// One side of a comparison: a checked file and, when named, one chain.
+pub(super) struct Side {
+    pub label: String,
+    pub checked: CheckedFile,
+    pub chain: Option<String>,
+}
+
+/// `FILE` or `FILE#chain`, checked.
+pub(super) fn load(arg: &str) -> Result<Side, u8> {
+    let (path, chain) = match arg.rsplit_once('#') {
+        Some((p, c)) if !c.is_empty() => (p, Some(c.to_string())),
+        _ => (arg, None),
+    };
+    let checked = check_one(Path::new(path))?;
+    Ok(Side {
+        label: arg.to_string(),
+        checked,
+        chain,
+    })
+}
+
+/// The analysis options both sides share.
+pub(super) fn options(trials: usize, seed: u64) -> Options {
+    Options {
+        trials: (trials > 0).then_some(trials),
+        seed,
+        ..Options::default()
+    }
+}
+
+/// What a chain achieves, or why it cannot be said.
+pub(super) fn evaluate(
+    checked: &CheckedFile,
+    chain: &Chain,
+    options: &Options,
+) -> Result<Outcome, String> {
+    if !checked.resolved {
+        let n = checked
+            .findings
+            .iter()
+            .filter(|f| f.severity() == crate::diagnostics::Severity::Error)
+            .count();
+        return Err(format!("not evaluated: {n} error(s) found by check"));
+    }
+    let plan = lower(chain).map_err(|e| format!("not evaluated: {e}"))?;
+    let a = analyse(chain, &plan, options).map_err(|e| format!("not evaluated: {e}"))?;
+    Ok(outcome(chain, &plan, &a))
+}
+
+#[derive(Serialize)]
+struct ChainDiff {
+    chain: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    old_chain: Option<String>,
+    direction: Direction,
+    regression: bool,
+    spec: Vec<SpecChange>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    outcome: Option<OutcomeDiff>,
+    /// Why a side was not evaluated.
+    notes: Vec<String>,
+}
+
+#[derive(Serialize)]
+struct FileDiff {
+    old: Option<String>,
+    new: Option<String>,
+    chains: Vec<ChainDiff>,
+    added_chains: Vec<String>,
+    removed_chains: Vec<String>,
+    notes: Vec<String>,
+}
+
+#[derive(Serialize)]
+struct DiffReport {
+    schema_version: u32,
+    direction: Direction,
+    regression: bool,
+    threshold_percent: f64,
+    trials: usize,
+    seed: u64,
+    files: Vec<FileDiff>,
+}
+
+pub fn run(args: DiffArgs) -> u8 {
+    if args.trials > MAX_TRIALS {
+        eprintln!("catena: --trials is at most {MAX_TRIALS}");
+        return EXIT_USAGE;
+    }
+    if !(args.threshold.is_finite() && args.threshold >= 0.0) {
+        eprintln!("catena: --threshold takes a percentage of zero or more");
+        return EXIT_USAGE;
+    }
+    let options = options(args.trials, args.seed);
+    let threshold = args.threshold / 100.0;
+    let files = match &args.rev {
+        Some(rev) => match rev_pairs(rev, &args.paths) {
+            Ok(pairs) => pairs,
+            Err(message) => {
+                eprintln!("catena: {message}");
+                return EXIT_USAGE;
+            }
+        },
+        None => {
+            if args.paths.len() != 2 {
+                eprintln!("catena: diff takes OLD and NEW (or `--rev REV [PATH...]`)");
+                return EXIT_USAGE;
+            }
+            let old = match load(&args.paths[0]) {
+                Ok(s) => s,
+                Err(status) => return status,
+            };
+            let new = match load(&args.paths[1]) {
+                Ok(s) => s,
+                Err(status) => return status,
+            };
+            vec![(Some(old), Some(new))]
+        }
+    };
+    let files: Vec<FileDiff> = files
+        .iter()
+        .map(|(o, n)| file_diff(o.as_ref(), n.as_ref(), &options, threshold))
+        .collect();
+    let chains = || files.iter().flat_map(|f| f.chains.iter());
+    let report = DiffReport {
+        schema_version: 1,
+        direction: chains()
+            .map(|c| c.direction)
+            .fold(Direction::Neutral, headline),
+        regression: chains().any(|c| c.regression),
+        threshold_percent: args.threshold,
+        trials: args.trials,
+        seed: args.seed,
+        files,
+    };
+    match args.format {
+        ReviewFormat::Json => {
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&report).unwrap_or_default()
+            )
+        }
+        ReviewFormat::Markdown => print!("{}", markdown(&report)),
+        ReviewFormat::Human => print!("{}", human(&report)),
+    }
+    if args.fail_on == Some(FailOn::Regression) && report.regression {
+        EXIT_FINDINGS
+    } else {
+        EXIT_OK
+    }
+}
+
+/// Worse wins over better, better over neutral.
+fn headline(a: Direction, b: Direction) -> Direction {
+    match (a, b) {
+        (Direction::Worse, _) | (_, Direction::Worse) => Direction::Worse,
+        (Direction::Better, _) | (_, Direction::Better) => Direction::Better,
+        _ => Direction::Neutral,
+    }
+}
+
+type Pair = (Option<Side>, Option<Side>);
+
+/// The specs to compare with their version at `rev`: the ones named (or
+/// every changed `*.catena`), each with its old path after renames.
+fn rev_pairs(rev: &str, paths: &[String]) -> Result<Vec<Pair>, String> {
+    let cwd = std::env::current_dir().map_err(|e| plain_io(&e))?;
+    let root = revision::root(&cwd)?;
+    let changes = revision::changes(&root, rev)?;
+    let is_spec = |p: &Option<String>| p.as_deref().is_some_and(|p| p.ends_with(".catena"));
+    let mut wanted: Vec<revision::Changed> = Vec::new();
+    if paths.is_empty() {
+        wanted.extend(
+            changes
+                .into_iter()
+                .filter(|c| is_spec(&c.new) || is_spec(&c.old)),
+        );
+    } else {
+        let given: Vec<PathBuf> = paths.iter().map(PathBuf::from).collect();
+        for file in collect(&given)? {
+            let full = std::fs::canonicalize(&file)
+                .map_err(|e| format!("cannot read `{}`: {}", file.display(), plain_io(&e)))?;
+            let rel = full
+                .strip_prefix(&root)
+                .map_err(|_| {
+                    format!(
+                        "`{}` is not in the repository at `{}`",
+                        file.display(),
+                        root.display()
+                    )
+                })?
+                .to_string_lossy()
+                .replace('\\', "/");
+            let old = changes
+                .iter()
+                .find(|c| c.new.as_deref() == Some(rel.as_str()))
+                .map_or(Some(rel.clone()), |c| c.old.clone());
+            wanted.push(revision::Changed {
+                old,
+                new: Some(rel),
+            });
+        }
+    }
+    let mut pairs = Vec::new();
+    for c in wanted {
+        let old = match &c.old {
+            Some(p) => old_side(&root, rev, p)?,
+            None => None,
+        };
+        let new = match &c.new {
+            Some(p) => {
+                let mut side = load(&root.join(p).to_string_lossy())
+                    .map_err(|_| format!("cannot read `{p}`"))?;
+                side.label = p.clone();
+                Some(side)
+            }
+            None => None,
+        };
+        pairs.push((old, new));
+    }
+    Ok(pairs)
+}
+
+/// The spec at `rev`, checked with the parts files it uses from the same
+/// revision; None when it did not exist there.
+fn old_side(root: &Path, rev: &str, path: &str) -> Result<Option<Side>, String> {
+    let Ok(bytes) = revision::show(root, rev, path) else {
+        return Ok(None);
+    };
+    let snapshot = Snapshot::new()?;
+    let spec = snapshot.put(path, &bytes)?;
+    let dir = path.rsplit_once('/').map_or("", |(d, _)| d);
+    let text = String::from_utf8_lossy(&bytes);
+    let file = crate::diagnostics::SourceFile::new(path, text.as_ref());
+    let (ast, _) = crate::syntax::parse(&file);
+    for u in &ast.uses {
+        if let Some(part) = revision::join_inside(dir, &u.path.value) {
+            if let Ok(b) = revision::show(root, rev, &part) {
+                snapshot.put(&part, &b)?;
+            }
+        }
+    }
+    let base = spec.parent().map(Path::to_path_buf).unwrap_or_default();
+    let label = format!("{rev}:{path}");
+    let checked = crate::check::check_bytes(&label, &bytes, &base, &mut PartsCache::default());
+    Ok(Some(Side {
+        label,
+        checked,
+        chain: None,
+    }))
+}
+
+fn chosen(side: &Side) -> Vec<&Chain> {
+    side.checked
+        .chains
+        .iter()
+        .filter(|c| side.chain.as_ref().is_none_or(|n| &c.name == n))
+        .collect()
+}
+
+fn file_diff(
+    old: Option<&Side>,
+    new: Option<&Side>,
+    options: &Options,
+    threshold: f64,
+) -> FileDiff {
+    let mut out = FileDiff {
+        old: old.map(|s| s.label.clone()),
+        new: new.map(|s| s.label.clone()),
+        chains: Vec::new(),
+        added_chains: Vec::new(),
+        removed_chains: Vec::new(),
+        notes: Vec::new(),
+    };
+    let (Some(old), Some(new)) = (old, new) else {
+        out.notes.push(if new.is_some() {
+            "new since the revision".into()
+        } else {
+            "removed since the revision".into()
+        });
+        return out;
+    };
+    let (olds, news) = (chosen(old), chosen(new));
+    for side in [old, new] {
+        if let Some(name) = &side.chain {
+            if !side.checked.chains.iter().any(|c| &c.name == name) {
+                out.notes
+                    .push(format!("no chain `{name}` in `{}`", side.label));
+            }
+        }
+    }
+    // One chain a side is a pair whatever its name; otherwise by name.
+    let pairs: Vec<(&Chain, &Chain)> = if olds.len() == 1 && news.len() == 1 {
+        vec![(olds[0], news[0])]
+    } else {
+        news.iter()
+            .filter_map(|n| olds.iter().find(|o| o.name == n.name).map(|o| (*o, *n)))
+            .collect()
+    };
+    out.added_chains = news
+        .iter()
+        .filter(|n| !pairs.iter().any(|p| p.1.name == n.name))
+        .map(|c| c.name.clone())
+        .collect();
+    out.removed_chains = olds
+        .iter()
+        .filter(|o| !pairs.iter().any(|p| p.0.name == o.name))
+        .map(|c| c.name.clone())
+        .collect();
+    for (o, n) in pairs {
+        out.chains
+            .push(chain_diff(old, o, new, n, options, threshold));
+    }
+    out
+}
+
+fn chain_diff(
+    old: &Side,
+    o: &Chain,
+    new: &Side,
+    n: &Chain,
+    options: &Options,
+    threshold: f64,
+) -> ChainDiff {
+    let mut notes = Vec::new();
+    let before = evaluate(&old.checked, o, options).map_err(|e| notes.push(format!("before: {e}")));
+    let after = evaluate(&new.checked, n, options).map_err(|e| notes.push(format!("after: {e}")));
+    let outcome = match (&before, &after) {
+        (Ok(b), Ok(a)) => Some(diff_outcomes(b, a, threshold)),
+        _ => None,
+    };
+    // A chain that evaluated before and no longer does is a regression.
+    let broke = before.is_ok() && after.is_err();
+    ChainDiff {
+        chain: n.name.clone(),
+        old_chain: (o.name != n.name).then(|| o.name.clone()),
+        direction: if broke {
+            Direction::Worse
+        } else {
+            outcome.as_ref().map_or(Direction::Neutral, |d| d.direction)
+        },
+        regression: broke || outcome.as_ref().is_some_and(|d| d.regression),
+        spec: spec_changes(o, n),
+        outcome,
+        notes,
+    }
+}
+
+/// Four significant digits; an exponent below a thousandth.
+pub(super) fn num(x: f64) -> String {
+    if x != 0.0 && x.abs() < 1e-3 {
+        format!("{x:.3e}")
+    } else {
+        significant(x, 4)
+    }
+}
+
+fn signed(x: f64) -> String {
+    if x > 0.0 {
+        format!("+{}", num(x))
+    } else {
+        num(x)
+    }
+}
+
+/// A row for a moved figure: name, before, after, change, direction.
+fn moved_row(m: &Moved, percent: bool) -> Vec<String> {
+    let scale = if percent { 100.0 } else { 1.0 };
+    let unit = if percent {
+        " %".to_string()
+    } else if m.unit.is_empty() {
+        String::new()
+    } else {
+        format!(" {}", m.unit)
+    };
+    let show = |x: Option<f64>| x.map_or("—".into(), |v| format!("{}{unit}", num(v * scale)));
+    let crossed = percent && m.new.is_some_and(|h| h < 0.0) && m.old.is_none_or(|h| h >= 0.0);
+    let change = match (m.old, m.new) {
+        (Some(a), Some(b)) if crossed => {
+            format!("{}{unit}, beyond the limit", signed((b - a) * scale))
+        }
+        (Some(a), Some(b)) => format!("{}{unit}", signed((b - a) * scale)),
+        (None, Some(_)) => "new".into(),
+        _ => "gone".into(),
+    };
+    vec![
+        m.name.clone(),
+        show(m.old),
+        show(m.new),
+        change,
+        m.direction.word().into(),
+    ]
+}
+
+fn requirement_rows(d: &OutcomeDiff) -> Vec<Vec<String>> {
+    d.requirements
+        .iter()
+        .map(|r| {
+            let side = |x: &Option<crate::analysis::review::RequirementOutcome>| {
+                x.as_ref().map_or(("—".to_string(), "—".to_string()), |v| {
+                    (
+                        format!(
+                            "{} {} ({}, {})",
+                            num(v.achieved),
+                            v.unit,
+                            v.method.replace('_', " "),
+                            if v.pass { "pass" } else { "FAIL" }
+                        ),
+                        format!("{} {}", num(v.margin), v.unit),
+                    )
+                })
+            };
+            let (a, ma) = side(&r.old);
+            let (b, mb) = side(&r.new);
+            let flag = if r.regression { ", regression" } else { "" };
+            let unit = r.new.as_ref().map_or(String::new(), |v| v.unit.clone());
+            let change = r
+                .margin_change
+                .map_or(String::new(), |m| format!(" ({} {unit}{flag})", signed(m)));
+            vec![
+                r.name.to_string(),
+                a,
+                b,
+                ma,
+                mb,
+                format!("{}{change}", r.direction.word()),
+            ]
+        })
+        .collect()
+}
+
+fn spec_rows(changes: &[SpecChange]) -> Vec<Vec<String>> {
+    let at = |l: &Option<crate::analysis::review::spec::Located>| {
+        l.as_ref().map_or("—".into(), |l| match &l.file {
+            Some(f) => format!("{} ({f}:{})", l.text, l.line),
+            None => format!("{} (line {})", l.text, l.line),
+        })
+    };
+    changes
+        .iter()
+        .map(|c| {
+            let kind = match c.kind {
+                ChangeKind::Added => "added",
+                ChangeKind::Removed => "removed",
+                ChangeKind::Changed => "changed",
+            };
+            vec![
+                format!("{} `{}` {kind}", c.what, c.subject),
+                at(&c.old),
+                at(&c.new),
+            ]
+        })
+        .collect()
+}
+
+/// The sections of one chain's diff, each a title, a header and rows.
+/// A titled table: title, header, rows.
+type Section = (&'static str, Vec<&'static str>, Vec<Vec<String>>);
+
+fn sections(c: &ChainDiff) -> Vec<Section> {
+    let mut out = Vec::new();
+    if !c.spec.is_empty() {
+        out.push((
+            "What changed in the spec",
+            vec!["change", "before", "after"],
+            spec_rows(&c.spec),
+        ));
+    }
+    let Some(d) = &c.outcome else { return out };
+    let five = vec!["", "before", "after", "change", "for the design"];
+    if !d.requirements.is_empty() {
+        out.push((
+            "Requirements",
+            vec![
+                "requirement",
+                "before",
+                "after",
+                "margin before",
+                "margin after",
+                "for the design",
+            ],
+            requirement_rows(d),
+        ));
+    }
+    if !d.worst.is_empty() {
+        let mut h = five.clone();
+        h[0] = "worst error";
+        out.push((
+            "Worst point per method",
+            h,
+            d.worst.iter().map(|m| moved_row(m, false)).collect(),
+        ));
+    }
+    if !d.contributors.is_empty() {
+        let mut h = five.clone();
+        h[0] = "source (largest standard uncertainty)";
+        out.push((
+            "Contributors that moved most",
+            h,
+            d.contributors.iter().map(|m| moved_row(m, false)).collect(),
+        ));
+    }
+    if !d.headroom.is_empty() {
+        let mut h = five.clone();
+        h[0] = "limit (headroom, share of its span)";
+        out.push((
+            "Headroom",
+            h,
+            d.headroom.iter().map(|m| moved_row(m, true)).collect(),
+        ));
+    }
+    if !d.other.is_empty() {
+        let mut h = five.clone();
+        h[0] = "figure";
+        out.push((
+            "Resolution, response, converter window, alarms",
+            h,
+            d.other.iter().map(|m| moved_row(m, false)).collect(),
+        ));
+    }
+    out
+}
+
+fn chain_title(c: &ChainDiff) -> String {
+    match &c.old_chain {
+        Some(o) => format!("chain `{o}` → `{}`", c.chain),
+        None => format!("chain `{}`", c.chain),
+    }
+}
+
+fn file_title(f: &FileDiff) -> String {
+    match (&f.old, &f.new) {
+        (Some(o), Some(n)) => format!("`{o}` → `{n}`"),
+        (Some(o), None) => format!("`{o}`"),
+        (None, Some(n)) => format!("`{n}`"),
+        (None, None) => String::new(),
+    }
+}
+
+fn unchanged(c: &ChainDiff) -> bool {
+    c.spec.is_empty() && c.outcome.as_ref().is_some_and(OutcomeDiff::is_empty) && c.notes.is_empty()
+}
+
+fn markdown(r: &DiffReport) -> String {
+    let mut s = format!("## Catena diff: {}\n\n", r.direction.word());
+    if r.regression {
+        s.push_str(&format!(
+            "**Regression**: {}.\n\n",
+            regression_words(r.threshold_percent)
+        ));
+    }
+    if r.files.is_empty() {
+        s.push_str("No spec changed.\n");
+    }
+    for f in &r.files {
+        s.push_str(&format!("### {}\n\n", file_title(f)));
+        file_notes(f, &mut s);
+        for c in &f.chains {
+            s.push_str(&format!(
+                "#### {}: {}\n\n",
+                chain_title(c),
+                c.direction.word()
+            ));
+            for n in &c.notes {
+                s.push_str(&format!("- {n}\n"));
+            }
+            if unchanged(c) {
+                s.push_str("No change.\n\n");
+                continue;
+            }
+            for (title, header, rows) in sections(c) {
+                s.push_str(&format!("**{title}**\n\n"));
+                s.push_str(&markdown_table(&header, &rows));
+                s.push('\n');
+            }
+        }
+    }
+    s.push_str(&format!("<sub>Monte Carlo: {} trials a point, seed {}; a change inside the intervals' numerical widths is not reported.</sub>\n", r.trials, r.seed));
+    s
+}
+
+fn regression_words(threshold_percent: f64) -> String {
+    format!(
+        "a requirement fails that passed, a margin shrank by more than {} % of its limit, a signal went beyond a limit, or a chain no longer evaluates",
+        crate::units::format::trimmed(threshold_percent, 4)
+    )
+}
+
+fn file_notes(f: &FileDiff, s: &mut String) {
+    for n in &f.notes {
+        s.push_str(&format!("- {n}\n"));
+    }
+    for c in &f.added_chains {
+        s.push_str(&format!(
+            "- chain `{c}` added (compare it with `catena compare`)\n"
+        ));
+    }
+    for c in &f.removed_chains {
+        s.push_str(&format!("- chain `{c}` removed\n"));
+    }
+    if !(f.notes.is_empty() && f.added_chains.is_empty() && f.removed_chains.is_empty()) {
+        s.push('\n');
+    }
+}
+
+/// A Markdown table, `|` in cells escaped.
+pub(super) fn markdown_table(header: &[&str], rows: &[Vec<String>]) -> String {
+    let cell = |x: &str| x.replace('|', "\\|");
+    let mut s = format!(
+        "| {} |\n",
+        header
+            .iter()
+            .map(|h| cell(h))
+            .collect::<Vec<_>>()
+            .join(" | ")
+    );
+    s.push_str(&format!("|{}\n", " --- |".repeat(header.len())));
+    for row in rows {
+        s.push_str(&format!(
+            "| {} |\n",
+            row.iter().map(|x| cell(x)).collect::<Vec<_>>().join(" | ")
+        ));
+    }
+    s
+}
+
+/// A plain table for a terminal.
+pub(super) fn plain_table(header: &[&str], rows: &[Vec<String>]) -> String {
+    let mut t = comfy_table::Table::new();
+    t.load_style(comfy_table::presets::NOTHING);
+    t.set_header(header.to_vec());
+    for row in rows {
+        t.add_row(row.clone());
+    }
+    let mut s: String = t
+        .to_string()
+        .lines()
+        .map(|l| format!("{}\n", l.trim_end()))
+        .collect();
+    s.push('\n');
+    s
+}
+
+fn human(r: &DiffReport) -> String {
+    let mut s = format!("catena diff: {}\n", r.direction.word());
+    if r.regression {
+        s.push_str(&format!(
+            "regression: {}\n",
+            regression_words(r.threshold_percent)
+        ));
+    }
+    s.push('\n');
+    if r.files.is_empty() {
+        s.push_str("no spec changed\n");
+    }
+    for f in &r.files {
+        s.push_str(&format!("{}\n", file_title(f).replace('`', "")));
+        file_notes(f, &mut s);
+        for c in &f.chains {
+            s.push_str(&format!("  {}: {}\n", chain_title(c), c.direction.word()));
+            for n in &c.notes {
+                s.push_str(&format!("  {n}\n"));
+            }
+            if unchanged(c) {
+                s.push_str("  no change\n\n");
+                continue;
+            }
+            s.push('\n');
+            for (title, header, rows) in sections(c) {
+                s.push_str(&format!("{title}\n"));
+                s.push_str(&plain_table(&header, &rows));
+            }
+        }
+    }
+    s
+}
