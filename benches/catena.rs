@@ -113,7 +113,7 @@ fn monte_carlo_1e5_largest_chain(bencher: divan::Bencher) {
         ambient: p.ambient,
         cold_junction: p.ambient,
     };
-    bencher.bench(|| interval(&plan, &env, &b.noise, p.code_step(), 100_000, 1, 0).expect("runs"));
+    bencher.bench(|| interval(&plan, &env, &b.noise, p.code_step(), 100_000, 1).expect("runs"));
 }
 
 /// 10^6 trials at each of 21 points (the first ambient's) of a demo chain:

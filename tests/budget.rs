@@ -542,12 +542,13 @@ fn quantization_goes_through_the_inverse_at_each_point() {
 /// through each side of the inverse, so with no other source the 95 %
 /// interval of the NTC chain at −40 degC is 0.95 of each side of the hand
 /// calculation above (the uniform's 2.5 % and 97.5 % points, JCGM
-/// 101:2008 §6.4.2), good to its own numerical half-width.
+/// 101:2008 §6.4.2), good to its own numerical half-width; enough trials
+/// that the two sides' difference stands out of it.
 #[test]
 fn monte_carlo_draws_quantization_through_the_inverse() {
     let v = budget(
         "ntc_quantization.catena",
-        &["--points", "3", "--trials", "20000"],
+        &["--points", "3", "--trials", "1000000"],
     );
     let (r25, beta, t25, fixed, full): (f64, f64, f64, f64, f64) =
         (10e3, 3380.0, 298.15, 10e3, 4096.0);
@@ -566,8 +567,17 @@ fn monte_carlo_draws_quantization_through_the_inverse() {
             "{got:?} vs {want:?} ± {numerical}"
         );
     }
-    // The two ends differ as the sides do (0.24 %), more than the noise.
-    assert!((got[0].abs() - got[1].abs()).abs() > 1e-4, "{got:?}");
+    // The two ends differ as the sides do (0.24 %, 1.1e-4 K): at 10⁶
+    // trials that is over three times the ends' numerical width.
+    let spread = |e: [f64; 2]| e[1].abs() - e[0].abs();
+    assert!(
+        spread(want).abs() > 3.0 * numerical,
+        "{want:?} ± {numerical}"
+    );
+    assert!(
+        (spread(got) - spread(want)).abs() < 2.0 * numerical,
+        "{got:?} vs {want:?} ± {numerical}"
+    );
 }
 
 /// The budget's step response of a chain whose only dynamics is one RC
@@ -579,6 +589,71 @@ fn rc_chain_reaches_ninety_percent_at_rc_ln_10() {
     let expect = 10e3 * 15.9e-9 * std::f64::consts::LN_10;
     let got = f(&v["dynamics"]["response_90_s"]);
     assert!((got - expect).abs() < 1e-6 * expect, "{got} vs {expect}");
+}
+
+/// Two equal rectangular sources of a linear chain: each holds half the
+/// variance by GUM (u_i² / u_c², exactly) and by the Monte Carlo
+/// first-order index (within its scatter). The sum is triangular, so
+/// GUM's 95 % interval ± 1.96 u = ± 1.600 a is 0.0475 a off the Monte
+/// Carlo's ± (2 − √0.2) a (closed forms): beyond the tolerance, so
+/// JCGM 101 §8 does not validate GUM there.
+#[test]
+fn two_rectangular_sources_share_evenly_and_fail_gum_validation() {
+    let v = budget(
+        "two_rectangular.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    for id in ["ic.accuracy", "conv.offset"] {
+        let s = source(p, id);
+        assert!((f(&s["gum_share"]) - 0.5).abs() < 1e-6, "{s}");
+        assert!((f(&s["monte_carlo_share"]) - 0.5).abs() < 0.01, "{s}");
+    }
+    let check = &p["gum_validation"];
+    let numerical = f(&p["monte_carlo_numerical"]);
+    let expected = 1.959964 * (2.0f64 / 3.0).sqrt() - (2.0 - 0.2f64.sqrt());
+    for end in ["d_low", "d_high"] {
+        assert!((f(&check[end]) - expected).abs() < numerical, "{check}");
+    }
+    assert!(f(&check["tolerance"]) < expected, "{check}");
+    assert_eq!(check["validated"], false, "{check}");
+}
+
+/// One normal source (a ± 1 K 3σ bound): the output is normal, so GUM's
+/// 95 % interval is the Monte Carlo's and §8 validates it; the source
+/// holds the whole variance by both methods (the Monte Carlo index loses
+/// under 0.1 % inside its cells).
+#[test]
+fn one_normal_source_validates_gum() {
+    let v = budget(
+        "one_normal.catena",
+        &["--points", "3", "--trials", "100000"],
+    );
+    let p = &v["points"][1];
+    let check = &p["gum_validation"];
+    assert_eq!(check["validated"], true, "{check}");
+    let s = source(p, "ic.accuracy");
+    assert!((f(&s["monte_carlo_share"]) - 1.0).abs() < 0.003, "{s}");
+    let run = catena(
+        &root().join("tests/fixtures/budget"),
+        &["budget", "one_normal.catena", "--points", "3"],
+        None,
+    );
+    assert!(
+        run.stdout.contains("GUM validated at all 3 points"),
+        "{}",
+        run.stdout
+    );
+}
+
+/// Without Monte Carlo there is nothing to validate GUM against, and no
+/// Monte Carlo shares.
+#[test]
+fn no_trials_no_validation() {
+    let v = budget("one_normal.catena", &["--points", "3", "--trials", "0"]);
+    let p = &v["points"][1];
+    assert!(p.get("gum_validation").is_none(), "{p}");
+    assert!(source(p, "ic.accuracy").get("monte_carlo_share").is_none());
 }
 
 /// A range envelope sees each source at its limit with that source's own

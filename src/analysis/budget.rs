@@ -63,6 +63,17 @@ impl Point {
         code_step(self.codes_per_unit)
     }
 
+    /// A contribution's share of the GUM variance, u_i² / u_c² (zero when
+    /// the total is).
+    pub fn gum_share(&self, c: &Contribution) -> f64 {
+        let total = self.gum_standard * self.gum_standard;
+        if total > 0.0 {
+            c.standard * c.standard / total
+        } else {
+            0.0
+        }
+    }
+
     /// Quantization's effect half a code below and above the point.
     pub fn quantization(&self) -> (f64, f64) {
         self.contributions

@@ -4,6 +4,7 @@
 pub mod accumulation;
 pub mod alarms;
 pub mod budget;
+pub mod draws;
 pub mod dynamics;
 pub mod monte_carlo;
 pub mod noise;
@@ -12,8 +13,10 @@ pub mod report;
 pub mod requirements;
 pub mod review;
 pub mod settling;
+pub mod shares;
 mod stages;
 pub mod step;
+pub mod validation;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};

@@ -2,24 +2,27 @@
 //! the whole chain evaluated per trial, and the probabilistically
 //! symmetric 95 % coverage interval of the error.
 //!
-//! Trials are split into fixed chunks, each with its own generator seeded
-//! from (seed, point, chunk), and gathered in chunk order, so the result
-//! depends on the seed alone, never on the number of threads.
+//! Every source draws from its own stable stream (see [`super::draws`]):
+//! its value in trial t is a function of (seed, its id, the condition, t)
+//! alone, so the trials can be split among threads any way, and an edit
+//! to one source leaves every other source's draws bit-identical.
 
-use rand::{RngExt, SeedableRng};
-use rand_distr::StandardNormal;
-use rand_pcg::Pcg64Mcg;
 use rayon::prelude::*;
 
 use super::budget::Point;
+use super::draws::{condition_key, Stream};
 use super::noise::Noise;
 use crate::eval::{Env, EvalError, LaneSignals, Plan, Signal, Slot, SourceKind, LANES, MAX_NODES};
 
-/// Trials per chunk: large enough to amortise the split, small enough to
+/// Trials per task: large enough to amortise the split, small enough to
 /// balance two to many cores.
 const CHUNK: usize = 2048;
 /// The coverage probability of the interval.
 pub const COVERAGE: f64 = 0.95;
+/// The stream ids of the two sources that are not parameters. Parameter
+/// ids are `stage.parameter`, always with a dot, so these cannot clash.
+pub const NOISE_ID: &str = "noise";
+pub const QUANTIZATION_ID: &str = "quantization";
 
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Interval {
@@ -34,8 +37,27 @@ pub struct Interval {
     pub numerical: f64,
 }
 
+/// A source's share of the output variance at one condition, from the
+/// trials themselves (see [`super::shares`]).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Share {
+    /// The source's id, as the budget's contributions name it.
+    pub id: String,
+    /// The first-order index, 0 … 1.
+    pub share: f64,
+}
+
+/// What a Monte Carlo finds at one condition.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Sampled {
+    pub interval: Interval,
+    /// Every drawn source's variance share, when asked for.
+    pub shares: Vec<Share>,
+}
+
 /// One source's value as `origin + scale · x`, x standard normal or
 /// uniform on [0, 1), worked out once rather than per trial.
+#[derive(Clone, Copy, Debug)]
 struct Draw {
     slot: usize,
     normal: bool,
@@ -61,15 +83,17 @@ impl Draw {
             scale,
         }
     }
-}
 
-/// splitmix64 (Steele, Lea and Flood, OOPSLA 2014): decorrelates the
-/// chunk seeds derived from one user seed.
-fn mix(mut z: u64) -> u64 {
-    z = z.wrapping_add(0x9E37_79B9_7F4A_7C15);
-    z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-    z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-    z ^ (z >> 31)
+    /// The value of trial `t` from `stream`.
+    #[inline]
+    fn value(&self, stream: Stream, t: u64) -> f64 {
+        let x = if self.normal {
+            stream.normal(t)
+        } else {
+            stream.uniform(t)
+        };
+        self.origin + self.scale * x
+    }
 }
 
 /// One condition a Monte Carlo runs at: the environment and quantization's
@@ -116,8 +140,7 @@ impl Condition {
 const TRIALS_IN_FLIGHT: usize = 1 << 22;
 
 /// The error (reading − measurand) of `trials` draws at `env`, and its
-/// 95 % interval. `lsb` is one code in measurand units; `point` numbers
-/// the condition for its generators' seeds.
+/// 95 % interval. `lsb` is one code in measurand units.
 pub fn interval(
     plan: &Plan,
     env: &Env,
@@ -125,20 +148,20 @@ pub fn interval(
     lsb: f64,
     trials: usize,
     seed: u64,
-    point: u64,
 ) -> Result<Interval, EvalError> {
     let condition = Condition {
         env: *env,
         quantization: (-lsb / 2.0, lsb / 2.0),
     };
-    Ok(run(plan, &[(point, condition)], noise, trials, seed)?[0])
+    let mut sampled = run(plan, &[condition], noise, trials, seed, false)?;
+    Ok(sampled.remove(0).interval)
 }
 
-/// [`interval`] at every condition (the k-th seeded as point k), calling
-/// `progress(done, total)` as groups of them start. Conditions run
-/// together, as many as keep [`TRIALS_IN_FLIGHT`] trials in memory, so
-/// the cores stay busy with few trials a point and the order statistics
-/// of one condition overlap the trials of the next.
+/// [`interval`] at every condition, calling `progress(done, total)` as
+/// groups of them start. Conditions run together, as many as keep
+/// [`TRIALS_IN_FLIGHT`] trials in memory, so the cores stay busy with few
+/// trials a point and the order statistics of one condition overlap the
+/// trials of the next.
 pub fn intervals(
     plan: &Plan,
     conditions: &[Condition],
@@ -147,42 +170,91 @@ pub fn intervals(
     seed: u64,
     progress: &dyn Fn(usize, usize),
 ) -> Result<Vec<Interval>, EvalError> {
-    let numbered: Vec<(u64, Condition)> = conditions
-        .iter()
-        .enumerate()
-        .map(|(k, c)| (k as u64, *c))
-        .collect();
+    let sampled = sample(plan, conditions, noise, trials, seed, false, progress)?;
+    Ok(sampled.into_iter().map(|s| s.interval).collect())
+}
+
+/// [`intervals`], with each source's variance share at every condition
+/// when `shares` is set.
+pub fn sample(
+    plan: &Plan,
+    conditions: &[Condition],
+    noise: &Noise,
+    trials: usize,
+    seed: u64,
+    shares: bool,
+    progress: &dyn Fn(usize, usize),
+) -> Result<Vec<Sampled>, EvalError> {
     let group = (TRIALS_IN_FLIGHT / trials.max(1)).max(1);
     let mut out = Vec::with_capacity(conditions.len());
-    for batch in numbered.chunks(group) {
+    for batch in conditions.chunks(group) {
         progress(out.len(), conditions.len());
-        out.extend(run(plan, batch, noise, trials, seed)?);
+        out.extend(run(plan, batch, noise, trials, seed, shares)?);
     }
     Ok(out)
+}
+
+/// What a Monte Carlo draws at one condition: each source with its
+/// stream, and the streams of noise and quantization where they act.
+struct Streams {
+    sources: Vec<(Draw, Stream)>,
+    noise: Option<Stream>,
+    quantization: Option<Stream>,
+}
+
+impl Streams {
+    /// Every drawn source's id and stream, noise and quantization last.
+    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Stream)> + 'a {
+        let sources = self
+            .sources
+            .iter()
+            .map(|(d, s)| (plan.slots[d.slot].id.as_str(), *s));
+        let noise = self.noise.map(|s| (NOISE_ID, s));
+        let quantization = self.quantization.map(|s| (QUANTIZATION_ID, s));
+        sources.chain(noise).chain(quantization)
+    }
+
+    fn new(plan: &Plan, condition: &Condition, noise: &Noise, seed: u64) -> Streams {
+        let key = condition_key(&condition.env);
+        let sources = plan
+            .slots
+            .iter()
+            .enumerate()
+            .filter(|(_, slot)| slot.kind != SourceKind::Exact)
+            .map(|(s, slot)| (Draw::of(s, slot), Stream::new(seed, &slot.id, key)))
+            .collect();
+        let acts = |on: bool, id| on.then(|| Stream::new(seed, id, key));
+        Streams {
+            sources,
+            noise: acts(noise.sigma_averaged != 0.0, NOISE_ID),
+            quantization: acts(condition.quantization != (0.0, 0.0), QUANTIZATION_ID),
+        }
+    }
 }
 
 /// The intervals of `conditions`, their trials on every core together.
 fn run(
     plan: &Plan,
-    conditions: &[(u64, Condition)],
+    conditions: &[Condition],
     noise: &Noise,
     trials: usize,
     seed: u64,
-) -> Result<Vec<Interval>, EvalError> {
+    shares: bool,
+) -> Result<Vec<Sampled>, EvalError> {
     if trials == 0 {
-        let none = Interval {
-            low: 0.0,
-            high: 0.0,
-            numerical: 0.0,
+        let none = Sampled {
+            interval: Interval {
+                low: 0.0,
+                high: 0.0,
+                numerical: 0.0,
+            },
+            shares: Vec::new(),
         };
         return Ok(vec![none; conditions.len()]);
     }
-    let sources: Vec<Draw> = plan
-        .slots
+    let streams: Vec<Streams> = conditions
         .iter()
-        .enumerate()
-        .filter(|(_, slot)| slot.kind != SourceKind::Exact)
-        .map(|(s, slot)| Draw::of(s, slot))
+        .map(|c| Streams::new(plan, c, noise, seed))
         .collect();
     // Each chunk writes its errors straight into its condition's buffer.
     let mut errors: Vec<Vec<f64>> = conditions.iter().map(|_| vec![0.0; trials]).collect();
@@ -192,59 +264,70 @@ fn run(
         .flat_map(|(c, all)| {
             all.chunks_mut(CHUNK)
                 .enumerate()
-                .map(move |(chunk, out)| (c, chunk, out))
+                .map(move |(chunk, out)| (c, chunk * CHUNK, out))
         })
         .collect();
     let outcomes: Vec<Result<(), EvalError>> = tasks
         .into_par_iter()
-        .map(|(c, chunk, out)| {
-            let (point, condition) = conditions[c];
-            let rng = Pcg64Mcg::seed_from_u64(mix(
-                seed ^ mix(point.wrapping_mul(0x1_0000_0001) ^ chunk as u64)
-            ));
-            chunk_errors(plan, &sources, &condition, noise, out, rng)
-        })
+        .map(|(c, first, out)| chunk_errors(plan, &streams[c], &conditions[c], noise, first, out))
         .collect();
     // The first failure in order, whatever the thread count.
     outcomes.into_iter().collect::<Result<(), _>>()?;
-    Ok(errors.par_iter_mut().map(|all| coverage(all)).collect())
+    Ok(errors
+        .par_iter_mut()
+        .zip(&streams)
+        .map(|(all, streams)| {
+            // The shares read the trials in their order, before the
+            // interval's selection reorders them.
+            let shares = if shares {
+                variance_shares(plan, streams, all)
+            } else {
+                Vec::new()
+            };
+            Sampled {
+                interval: coverage(all),
+                shares,
+            }
+        })
+        .collect())
 }
 
-/// The errors of `out.len()` trials drawn from `rng`, into `out`.
+/// Each drawn source's share of the variance of `errors`.
+fn variance_shares(plan: &Plan, streams: &Streams, errors: &[f64]) -> Vec<Share> {
+    let cells = super::shares::cells(errors.len());
+    let centered = super::shares::Centered::new(errors);
+    streams
+        .named(plan)
+        .map(|(id, stream)| Share {
+            id: id.to_string(),
+            share: super::shares::first_order(&centered, stream, cells),
+        })
+        .collect()
+}
+
+/// The errors of trials `first ..` into `out`.
 fn chunk_errors(
     plan: &Plan,
-    sources: &[Draw],
+    streams: &Streams,
     condition: &Condition,
     noise: &Noise,
+    first: usize,
     out: &mut [f64],
-    mut rng: Pcg64Mcg,
 ) -> Result<(), EvalError> {
     let env = &condition.env;
     let slots = plan.nominal.len();
-    // Trials go through the evaluator LANES at a time; the draws
-    // keep their order, trial by trial, so the lane count changes
-    // no result.
+    // Trials go through the evaluator LANES at a time; each value is its
+    // trial's, so the lane count changes no result.
     let mut values = plan.nominal.repeat(LANES);
-    let mut extra = [(0.0, 0.0); LANES];
     let mut readings = [0.0; LANES];
     let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
-    let n = out.len();
-    let mut left = n;
-    while left > 0 {
-        let lanes = left.min(LANES);
-        for (lane, extra) in extra.iter_mut().enumerate().take(lanes) {
-            let values = &mut values[lane * slots..(lane + 1) * slots];
-            for draw in sources {
-                let x: f64 = if draw.normal {
-                    rng.sample(StandardNormal)
-                } else {
-                    rng.random()
-                };
-                values[draw.slot] = draw.origin + draw.scale * x;
+    for (k, out) in out.chunks_mut(LANES).enumerate() {
+        let t0 = (first + k * LANES) as u64;
+        let lanes = out.len();
+        for &(draw, stream) in &streams.sources {
+            for lane in 0..lanes {
+                values[lane * slots + draw.slot] = draw.value(stream, t0 + lane as u64);
             }
-            let z: f64 = rng.sample(StandardNormal);
-            let q: f64 = rng.random::<f64>() - 0.5;
-            *extra = (z, q);
         }
         if lanes == LANES {
             plan.unquantized_readings(&values, env, &mut readings, &mut scratch)?;
@@ -254,15 +337,12 @@ fn chunk_errors(
                     plan.unquantized_reading(&values[lane * slots..(lane + 1) * slots], env)?;
             }
         }
-        let done = n - left;
-        for ((slot, &r), &(z, q)) in out[done..done + lanes]
-            .iter_mut()
-            .zip(&readings)
-            .zip(&extra)
-        {
+        for (lane, (slot, &r)) in out.iter_mut().zip(&readings).enumerate() {
+            let t = t0 + lane as u64;
+            let z = streams.noise.map_or(0.0, |s| s.normal(t));
+            let q = streams.quantization.map_or(0.0, |s| s.uniform(t) - 0.5);
             *slot = r - env.measurand + z * noise.sigma_averaged + condition.quantization_at(q);
         }
-        left -= lanes;
     }
     Ok(())
 }
@@ -314,14 +394,12 @@ fn coverage(all: &mut [f64]) -> Interval {
 
 #[cfg(test)]
 mod tests {
-    use super::{coverage, mix};
-    use rand::{RngExt, SeedableRng};
-    use rand_distr::StandardNormal;
-    use rand_pcg::Pcg64Mcg;
+    use super::coverage;
+    use crate::analysis::draws::Stream;
 
     fn normal_sample(seed: u64, n: usize) -> Vec<f64> {
-        let mut rng = Pcg64Mcg::seed_from_u64(mix(seed));
-        (0..n).map(|_| rng.sample(StandardNormal)).collect()
+        let stream = Stream::new(seed, "sample", 0);
+        (0..n as u64).map(|t| stream.normal(t)).collect()
     }
 
     /// For a normal output the interval is ±1.959964 σ, and an end's

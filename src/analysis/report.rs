@@ -5,9 +5,10 @@ use super::accumulation::{accumulation, NodeError};
 use super::alarms::{alarm_limits, AlarmLimit};
 use super::budget::{self, Budget};
 use super::dynamics::{dynamics, Dynamics};
-use super::monte_carlo::{intervals, Condition, Interval};
+use super::monte_carlo::{sample, Condition, Interval, Share};
 use super::ranges::{envelopes, Envelope};
 use super::requirements::{verdicts, Achieved, Verdict};
+use super::validation::{check, GumCheck};
 use crate::diagnostics::{Code, Finding, Findings};
 use crate::eval::{Calibration, Node};
 use crate::eval::{Env, EvalError, Plan};
@@ -48,6 +49,11 @@ pub struct Analysis {
     pub budget: Budget,
     /// Per budget point, when Monte Carlo ran.
     pub monte_carlo: Option<Vec<Interval>>,
+    /// Per budget point, when Monte Carlo ran with the detail: each drawn
+    /// source's share of the variance.
+    pub shares: Option<Vec<Vec<Share>>>,
+    /// Per budget point, when Monte Carlo ran: GUM against it (JCGM 101 §8).
+    pub gum_checks: Option<Vec<GumCheck>>,
     pub trials: usize,
     pub seed: u64,
     pub dynamics: Dynamics,
@@ -65,6 +71,19 @@ pub struct Analysis {
     pub alarms: Vec<AlarmLimit>,
 }
 
+impl Analysis {
+    /// The Monte Carlo variance share of the source `id` at budget point
+    /// `point`, when shares were estimated and the source was drawn.
+    pub fn monte_carlo_share(&self, point: usize, id: &str) -> Option<f64> {
+        self.shares
+            .as_ref()?
+            .get(point)?
+            .iter()
+            .find(|s| s.id == id)
+            .map(|s| s.share)
+    }
+}
+
 pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis, EvalError> {
     analyse_with_progress(chain, plan, options, &|_, _| {})
 }
@@ -77,17 +96,32 @@ pub fn analyse_with_progress(
     progress: &dyn Fn(usize, usize),
 ) -> Result<Analysis, EvalError> {
     let budget = budget::budget(chain, plan, &options.budget)?;
-    let monte_carlo = match options.trials {
-        Some(trials) if trials > 0 => Some(intervals(
+    let sampled = match options.trials {
+        Some(trials) if trials > 0 => Some(sample(
             plan,
             &Condition::of_points(&budget.points),
             &budget.noise,
             trials.min(MAX_TRIALS),
             options.seed,
+            options.detail,
             progress,
         )?),
         _ => None,
     };
+    let monte_carlo: Option<Vec<Interval>> = sampled
+        .as_ref()
+        .map(|s| s.iter().map(|s| s.interval).collect());
+    let gum_checks = monte_carlo.as_ref().map(|m| {
+        budget
+            .points
+            .iter()
+            .zip(m)
+            .map(|(p, i)| check(p.gum_standard, i))
+            .collect()
+    });
+    let shares = sampled
+        .filter(|_| options.detail)
+        .map(|s| s.into_iter().map(|s| s.shares).collect());
     let dynamics = dynamics(chain, plan);
     let achieved = Achieved {
         response_s: dynamics.response_90,
@@ -98,6 +132,8 @@ pub fn analyse_with_progress(
     let mut analysis = Analysis {
         budget,
         monte_carlo,
+        shares,
+        gum_checks,
         trials: options.trials.unwrap_or(0).min(MAX_TRIALS),
         seed: options.seed,
         dynamics,

@@ -229,6 +229,20 @@ struct SourceJson {
     kind: &'static str,
     contribution: f64,
     standard_uncertainty: f64,
+    /// u_i² / u_c²: the source's share of the GUM variance.
+    gum_share: f64,
+    /// Its first-order share of the Monte Carlo variance; absent for a
+    /// source Monte Carlo does not draw (the conversion's fixed error).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    monte_carlo_share: Option<f64>,
+}
+
+#[derive(Serialize)]
+struct GumCheckJson {
+    validated: bool,
+    d_low: f64,
+    d_high: f64,
+    tolerance: f64,
 }
 
 #[derive(Serialize)]
@@ -246,6 +260,8 @@ struct PointJson {
     linearisation: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     gum_expanded_uncalibrated: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    gum_validation: Option<GumCheckJson>,
     sources: Vec<SourceJson>,
 }
 
@@ -355,6 +371,12 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
             monte_carlo_numerical: a.monte_carlo.as_ref().map(|m| m[i].numerical * f),
             linearisation: p.linearisation * f,
             gum_expanded_uncalibrated: a.uncalibrated.as_ref().map(|u| u[i] * f),
+            gum_validation: a.gum_checks.as_ref().map(|g| GumCheckJson {
+                validated: g[i].validated,
+                d_low: g[i].d_low * f,
+                d_high: g[i].d_high * f,
+                tolerance: g[i].tolerance * f,
+            }),
             sources: p
                 .contributions
                 .iter()
@@ -363,6 +385,8 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
                     kind: c.kind,
                     contribution: c.worst * f,
                     standard_uncertainty: c.standard * f,
+                    gum_share: p.gum_share(c),
+                    monte_carlo_share: a.monte_carlo_share(i, &c.id),
                 })
                 .collect(),
         })

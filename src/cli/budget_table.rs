@@ -3,7 +3,9 @@
 
 use comfy_table::{presets::NOTHING, Table};
 
+use crate::analysis::budget::Point;
 use crate::analysis::report::Analysis;
+use crate::analysis::validation::GumCheck;
 use crate::model::Chain;
 use crate::units::format::{from_si, significant, trimmed};
 
@@ -76,6 +78,9 @@ pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
                 "  for a budget you sign, run --trials {SIGN_OFF_TRIALS} or more (JCGM 101 §7.2.2: 10^4 / (1 - p))\n"
             ));
         }
+        if let Some(checks) = &a.gum_checks {
+            out.push_str(&gum_validation_line(checks, &unit, &v));
+        }
         out.push('\n');
     }
     if let Some(worst) = a
@@ -89,25 +94,7 @@ pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
             trimmed(from_si(worst.measurand, &m_unit), 6),
             trimmed(from_si(worst.ambient, "degC"), 4)
         ));
-        let total = worst.gum_standard * worst.gum_standard;
-        let mut sources = table();
-        sources.set_header(["source", "kind", "limit effect", "standard", "share"]);
-        for c in worst.contributions.iter().take(TOP_SOURCES) {
-            let share = if total > 0.0 {
-                c.standard * c.standard / total * 100.0
-            } else {
-                0.0
-            };
-            sources.add_row([
-                c.id.clone(),
-                c.kind.to_string(),
-                format!("± {}", v(c.worst)),
-                v(c.standard),
-                format!("{share:.1} %"),
-            ]);
-        }
-        out.push_str(&lines(&sources));
-        out.push_str("\n\n");
+        out.push_str(&sources_table(a, worst, &v));
     }
     if let Some(u) = &a.uncalibrated {
         let worst = |v: &mut dyn Iterator<Item = f64>| v.fold(0.0, f64::max);
@@ -257,6 +244,86 @@ pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
     out
 }
 
+/// The largest sources at the budget's worst point, each with its GUM
+/// share and, when Monte Carlo ran, its share of the Monte Carlo variance.
+fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> String {
+    let index = a
+        .budget
+        .points
+        .iter()
+        .position(|p| std::ptr::eq(p, worst))
+        .unwrap_or(0);
+    let with_mc = a.shares.is_some();
+    let mut sources = table();
+    let mut header = vec!["source", "kind", "limit effect", "standard", "GUM share"];
+    if with_mc {
+        header.push("Monte Carlo share");
+    }
+    sources.set_header(header);
+    let percent = |x: f64| format!("{:.1} %", x * 100.0);
+    for c in worst.contributions.iter().take(TOP_SOURCES) {
+        let mut row = vec![
+            c.id.clone(),
+            c.kind.to_string(),
+            format!("± {}", v(c.worst)),
+            v(c.standard),
+            percent(worst.gum_share(c)),
+        ];
+        if with_mc {
+            row.push(
+                a.monte_carlo_share(index, &c.id)
+                    .map_or("—".into(), percent),
+            );
+        }
+        sources.add_row(row);
+    }
+    let mut out = lines(&sources);
+    if let Some(shares) = a.shares.as_ref().and_then(|s| s.get(index)) {
+        let sum: f64 = shares.iter().map(|s| s.share).sum();
+        out.push_str(&format!(
+            "\n\nMonte Carlo shares: first-order indices from the same trials (correlation ratio),\n\
+             summing to {}: short of 100 % by the interaction between sources, off it either way\n\
+             by estimation scatter, which shrinks as 1/√N",
+            percent(sum)
+        ));
+    }
+    out.push_str("\n\n");
+    out
+}
+
+/// Whether Monte Carlo validates GUM's interval (JCGM 101 §8), over all
+/// points.
+fn gum_validation_line(checks: &[GumCheck], unit: &str, v: &dyn Fn(f64) -> String) -> String {
+    let failed: Vec<&GumCheck> = checks.iter().filter(|c| !c.validated).collect();
+    if failed.is_empty() {
+        return format!(
+            "  GUM validated at all {} points: its 95 % interval ± 1.96 u matches Monte Carlo's ends\n  \
+             within their numerical width (at 99.9 %) and δ of u (JCGM 101 §8)\n",
+            checks.len()
+        );
+    }
+    let off = failed
+        .iter()
+        .map(|c| c.d_low.max(c.d_high))
+        .fold(0.0, f64::max);
+    format!(
+        "  use Monte Carlo at {} of {} points: GUM's 95 % interval ± 1.96 u is off Monte Carlo's ends\n  \
+         by up to {} {unit}, beyond their numerical width (at 99.9 %) and δ of u (JCGM 101 §8)\n",
+        failed.len(),
+        checks.len(),
+        v(off)
+    )
+}
+
+/// The words for one point's, or one ambient's, GUM validation.
+fn gum_verdict(validated: bool) -> String {
+    if validated {
+        "GUM validated".into()
+    } else {
+        "use Monte Carlo".into()
+    }
+}
+
 /// The totals at every point of the budget.
 fn per_point_table(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> Table {
     let mut totals = table();
@@ -269,6 +336,9 @@ fn per_point_table(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> Tab
     if a.monte_carlo.is_some() {
         header.push("Monte Carlo 95 %".into());
     }
+    if a.gum_checks.is_some() {
+        header.push("GUM check".into());
+    }
     totals.set_header(header);
     for (i, p) in a.budget.points.iter().enumerate() {
         let mut row = vec![
@@ -279,6 +349,9 @@ fn per_point_table(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> Tab
         ];
         if let Some(m) = &a.monte_carlo {
             row.push(format!("{} .. {}", v(m[i].low), v(m[i].high)));
+        }
+        if let Some(g) = &a.gum_checks {
+            row.push(gum_verdict(g[i].validated));
         }
         totals.add_row(row);
     }
@@ -296,6 +369,9 @@ fn summary_table(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> Table
     ];
     if a.monte_carlo.is_some() {
         header.push("Monte Carlo 95 %, widest".into());
+    }
+    if a.gum_checks.is_some() {
+        header.push("GUM check".into());
     }
     t.set_header(header);
     let at = |i: usize| {
@@ -329,6 +405,9 @@ fn summary_table(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> Table
                 v(m[widest].high),
                 at(widest)
             ));
+        }
+        if let Some(g) = &a.gum_checks {
+            row.push(gum_verdict(here.iter().all(|&i| g[i].validated)));
         }
         t.add_row(row);
     }

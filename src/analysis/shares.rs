@@ -1,0 +1,119 @@
+//! Each source's share of the output variance from the Monte Carlo trials
+//! already run: the first-order sensitivity index S_i = Var(E[Y | X_i]) /
+//! Var(Y), estimated from given data by the correlation ratio over an
+//! equiprobable partition of the input (Plischke, Borgonovo and Smith,
+//! "Global sensitivity measures from given data", European Journal of
+//! Operational Research 226 (2013) 536–550). No second run is needed:
+//! a source's draw in trial t is a function of its stream and t, so its
+//! partition cell is recomputed rather than stored.
+//!
+//! Where the chain is linear in its sources, S_i is the GUM share
+//! u_i² / u_c²; where the two disagree, the linear model does not hold.
+
+use super::draws::Stream;
+
+/// Most cells a partition uses. A cell keeps the variance of E[Y | X_i]
+/// between cells and loses what lies inside one: for a linear effect of
+/// a uniform source 1/B² of it, of a normal one (wide tail cells) 0.23 %
+/// at B = 100 and 0.07 % at 256 (worked numerically from the normal's
+/// partial moments); the estimator's scatter grows as √(B)/N.
+const MAX_CELLS: usize = 256;
+
+/// Cells of the partition for `trials` trials: √N, so each cell holds
+/// as many trials as there are cells, 2 to 256.
+pub fn cells(trials: usize) -> usize {
+    ((trials as f64).sqrt().floor() as usize).clamp(2, MAX_CELLS)
+}
+
+/// The outputs of a run about their mean, and their sum of squares:
+/// worked out once for every source's index.
+pub struct Centered {
+    deviations: Vec<f64>,
+    total: f64,
+}
+
+impl Centered {
+    pub fn new(y: &[f64]) -> Centered {
+        let mean = y.iter().sum::<f64>() / y.len().max(1) as f64;
+        let deviations: Vec<f64> = y.iter().map(|v| v - mean).collect();
+        let total = deviations.iter().map(|d| d * d).sum();
+        Centered { deviations, total }
+    }
+}
+
+/// The first-order index of the source drawn from `stream` for the
+/// outputs `y` (trial t at index t), over `cells` equiprobable cells of
+/// its uniform. The between-cell sum of squares is corrected for the part
+/// that scatter alone gives it, (B − 1) times the within-cell mean square
+/// (the ANOVA estimate), so a source with no effect comes out near zero
+/// rather than near (B − 1)/N; the result is clamped to [0, 1].
+pub fn first_order(y: &Centered, stream: Stream, cells: usize) -> f64 {
+    let n = y.deviations.len();
+    let total = y.total;
+    if n <= cells || cells < 2 || total <= 0.0 || !total.is_finite() {
+        return 0.0;
+    }
+    let mut count = vec![0u32; cells];
+    let mut sum = vec![0.0; cells];
+    for (t, &d) in y.deviations.iter().enumerate() {
+        let cell = stream.cell(t as u64, cells);
+        count[cell] += 1;
+        sum[cell] += d;
+    }
+    let between: f64 = count
+        .iter()
+        .zip(&sum)
+        .filter(|(&c, _)| c > 0)
+        .map(|(&c, &s)| s * s / f64::from(c))
+        .sum();
+    let within = (total - between).max(0.0) / (n - cells) as f64;
+    ((between - (cells - 1) as f64 * within) / total).clamp(0.0, 1.0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::f64::consts::PI;
+
+    /// The Ishigami function, Y = sin X1 + 7 sin² X2 + 0.1 X3⁴ sin X1 with
+    /// X_i uniform on (−π, π), has first-order indices S1 = 0.3139,
+    /// S2 = 0.4424 and S3 = 0 (closed forms, Ishigami and Homma 1990;
+    /// values as tabulated in Saltelli et al., "Global Sensitivity
+    /// Analysis: The Primer", 2008, recalled from memory): X3 acts only
+    /// through its interaction with X1, which a first-order index must
+    /// not count.
+    #[test]
+    fn ishigami_indices() {
+        let n = 200_000;
+        let s: Vec<Stream> = ["x1", "x2", "x3"]
+            .iter()
+            .map(|id| Stream::new(3, id, 0))
+            .collect();
+        let x = |i: usize, t: u64| -PI + 2.0 * PI * s[i].uniform(t);
+        let y: Vec<f64> = (0..n as u64)
+            .map(|t| {
+                let (a, b, c) = (x(0, t), x(1, t), x(2, t));
+                a.sin() + 7.0 * b.sin().powi(2) + 0.1 * c.powi(4) * a.sin()
+            })
+            .collect();
+        let (b, y) = (cells(n), Centered::new(&y));
+        let got: Vec<f64> = s.iter().map(|&st| first_order(&y, st, b)).collect();
+        assert!((got[0] - 0.3139).abs() < 0.01, "{got:?}");
+        assert!((got[1] - 0.4424).abs() < 0.01, "{got:?}");
+        assert!(got[2] < 0.01, "{got:?}");
+    }
+
+    /// A linear sum of two equal uniforms: each holds half the variance.
+    #[test]
+    fn equal_linear_sources_share_evenly() {
+        let (a, b) = (Stream::new(1, "a", 0), Stream::new(1, "b", 0));
+        let y: Vec<f64> = (0..20_000).map(|t| a.uniform(t) + b.uniform(t)).collect();
+        let (n, y) = (cells(y.len()), Centered::new(&y));
+        for s in [a, b] {
+            let share = first_order(&y, s, n);
+            assert!((share - 0.5).abs() < 0.02, "{share}");
+        }
+        let unrelated = first_order(&y, Stream::new(1, "c", 0), n);
+        assert!(unrelated < 0.005, "{unrelated}");
+    }
+}
