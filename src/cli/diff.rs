@@ -226,7 +226,9 @@ type Pair = (Option<Side>, Option<Side>);
 /// The specs to compare with their version at `rev`: the ones named (or
 /// every changed `*.catena`), each with its old path after renames.
 fn rev_pairs(rev: &str, paths: &[String]) -> Result<Vec<Pair>, String> {
-    let cwd = std::env::current_dir().map_err(|e| plain_io(&e))?;
+    let cwd = std::env::current_dir()
+        .and_then(std::fs::canonicalize)
+        .map_err(|e| plain_io(&e))?;
     let root = revision::root(&cwd)?;
     let changes = revision::changes(&root, rev)?;
     let is_spec = |p: &Option<String>| p.as_deref().is_some_and(|p| p.ends_with(".catena"));
@@ -271,8 +273,9 @@ fn rev_pairs(rev: &str, paths: &[String]) -> Result<Vec<Pair>, String> {
         };
         let new = match &c.new {
             Some(p) => {
-                let mut side = load(&root.join(p).to_string_lossy())
-                    .map_err(|_| format!("cannot read `{p}`"))?;
+                let here = relative_to(&cwd, &root.join(p));
+                let mut side =
+                    load(&here.to_string_lossy()).map_err(|_| format!("cannot read `{p}`"))?;
                 side.label = p.clone();
                 Some(side)
             }
@@ -281,6 +284,19 @@ fn rev_pairs(rev: &str, paths: &[String]) -> Result<Vec<Pair>, String> {
         pairs.push((old, new));
     }
     Ok(pairs)
+}
+
+/// `path` as seen from `dir` (both canonical), so findings in the new
+/// side's parts files name them as the user would.
+fn relative_to(dir: &Path, path: &Path) -> PathBuf {
+    let common = dir
+        .components()
+        .zip(path.components())
+        .take_while(|(a, b)| a == b)
+        .count();
+    let mut out: PathBuf = dir.components().skip(common).map(|_| "..").collect();
+    out.extend(path.components().skip(common));
+    out
 }
 
 /// The spec at `rev`, checked with the parts files it uses from the same
