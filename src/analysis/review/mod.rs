@@ -366,3 +366,110 @@ fn other_changes(old: &Outcome, new: &Outcome) -> Vec<Moved> {
     }
     out
 }
+
+#[cfg(test)]
+mod tests {
+    use super::outcome::LimitOutcome;
+    use super::*;
+
+    fn accuracy(achieved: f64, numerical: Option<f64>) -> RequirementOutcome {
+        RequirementOutcome {
+            name: "accuracy",
+            method: if numerical.is_some() {
+                "monte_carlo"
+            } else {
+                "gum"
+            }
+            .into(),
+            limit: 0.3,
+            achieved,
+            margin: 0.3 - achieved,
+            unit: "K".into(),
+            pass: achieved <= 0.3,
+            numerical,
+        }
+    }
+
+    fn with(requirements: Vec<RequirementOutcome>, headroom: f64) -> Outcome {
+        Outcome {
+            chain: "c".into(),
+            unit: "K".into(),
+            measurand_unit: "degC".into(),
+            requirements,
+            worst: Vec::new(),
+            sources: Vec::new(),
+            limits: vec![LimitOutcome {
+                stage: "conv".into(),
+                limit: "input",
+                headroom,
+            }],
+            resolution: 0.01,
+            response_s: None,
+            window: None,
+            alarms: Vec::new(),
+            largest: None,
+            trials: 0,
+            floor: 3e-10,
+        }
+    }
+
+    #[test]
+    fn rounding_is_no_change() {
+        assert!(same(0.1, 0.1 * (1.0 + 1e-12)));
+        assert!(!same(0.1, 0.1 * (1.0 + 1e-6)));
+        assert!(same_above(1e-5, 1e-5 + 1e-14, 3e-10));
+    }
+
+    #[test]
+    fn monte_carlo_moves_only_beyond_both_widths() {
+        assert!(same_within(0.100, 0.103, 0.002, 0.002));
+        assert!(!same_within(0.100, 0.105, 0.002, 0.002));
+        let old = with(vec![accuracy(0.100, Some(0.002))], 0.2);
+        let new = with(vec![accuracy(0.103, Some(0.002))], 0.2);
+        let d = diff_outcomes(&old, &new, DEFAULT_THRESHOLD);
+        assert!(d.is_empty(), "{d:?}");
+        assert_eq!(d.direction, Direction::Neutral);
+    }
+
+    #[test]
+    fn a_margin_shrinking_past_the_threshold_is_a_regression() {
+        let old = with(vec![accuracy(0.10, None)], 0.2);
+        // 0.002 K of a 0.3 K limit: under 1 %, worse but no regression.
+        let small = diff_outcomes(
+            &old,
+            &with(vec![accuracy(0.102, None)], 0.2),
+            DEFAULT_THRESHOLD,
+        );
+        assert_eq!(small.direction, Direction::Worse);
+        assert!(!small.regression);
+        // 0.004 K: over 1 % of the limit.
+        let large = diff_outcomes(
+            &old,
+            &with(vec![accuracy(0.104, None)], 0.2),
+            DEFAULT_THRESHOLD,
+        );
+        assert!(large.regression);
+        let better = diff_outcomes(
+            &old,
+            &with(vec![accuracy(0.09, None)], 0.2),
+            DEFAULT_THRESHOLD,
+        );
+        assert_eq!(better.direction, Direction::Better);
+        assert!(!better.regression);
+    }
+
+    #[test]
+    fn a_verdict_flipped_or_a_limit_crossed_is_a_regression() {
+        let old = with(vec![accuracy(0.299, None)], 0.2);
+        let failed = diff_outcomes(&old, &with(vec![accuracy(0.301, None)], 0.2), 0.5);
+        assert!(failed.regression);
+        assert_eq!(failed.direction, Direction::Worse);
+        let crossed = diff_outcomes(
+            &old,
+            &with(vec![accuracy(0.2, None)], -0.01),
+            DEFAULT_THRESHOLD,
+        );
+        assert!(crossed.regression);
+        assert_eq!(crossed.direction, Direction::Worse);
+    }
+}
