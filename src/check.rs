@@ -35,6 +35,19 @@ pub fn check_bytes_with(
     parts: &mut PartsCache,
     options: &analysis::CheckOptions,
 ) -> CheckedFile {
+    let defaults = model::Defaults::default();
+    check_bytes_configured(name, bytes, base, parts, options, &defaults)
+}
+
+/// [`check_bytes_with`] with what a configuration file supplies.
+pub fn check_bytes_configured(
+    name: &str,
+    bytes: &[u8],
+    base: &Path,
+    parts: &mut PartsCache,
+    options: &analysis::CheckOptions,
+    defaults: &model::Defaults,
+) -> CheckedFile {
     let file = match syntax::decode(name, bytes) {
         Ok(f) => f,
         Err(finding) => {
@@ -67,7 +80,7 @@ pub fn check_bytes_with(
         .map(|f| file.line_column(f.primary_offset()).0)
         .collect();
     let root = (!options.allow_outside_paths).then(|| model::confinement_root(base));
-    let (chains, more) = model::resolve(&file, &ast, base, root.as_deref(), parts);
+    let (chains, more) = model::resolve_with(&file, &ast, base, root.as_deref(), parts, defaults);
     for f in more {
         // A line the parser swallowed is missing from the graph, so graph
         // findings would be echoes of the syntax error; the other checks

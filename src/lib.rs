@@ -9,6 +9,7 @@
 pub mod analysis;
 pub mod check;
 pub mod cli;
+pub mod config;
 pub mod diagnostics;
 pub mod emit;
 pub mod eval;

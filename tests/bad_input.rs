@@ -16,7 +16,8 @@ fn temp(name: &str, bytes: &[u8]) -> (PathBuf, String) {
 
 fn codes_of(stdout: &str) -> Vec<String> {
     let v: serde_json::Value = serde_json::from_str(stdout).expect("JSON");
-    v.as_array()
+    v["findings"]
+        .as_array()
         .unwrap()
         .iter()
         .map(|f| f["code"].as_str().unwrap().to_string())

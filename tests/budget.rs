@@ -298,6 +298,7 @@ fn over_gained_amplifier_gets_the_largest_gain() {
     );
     assert_eq!(run.status, 1);
     let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let v = &v["findings"];
     let largest: f64 = 3.0 * (3.3 - 0.05 * 3.3) / 4.5;
     assert!((largest - 2.09).abs() < 1e-12);
     let help = v[0]["help"].as_str().unwrap();

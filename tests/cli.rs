@@ -30,6 +30,8 @@ fn json_is_one_document_with_line_and_column() {
     );
     assert_eq!(run.status, 1);
     let v: serde_json::Value = serde_json::from_str(&run.stdout).expect("valid JSON");
+    assert_eq!(v["schema_version"], 1);
+    let v = &v["findings"];
     let first = &v[0];
     for key in [
         "code", "severity", "message", "file", "line", "column", "span", "help",
@@ -103,6 +105,7 @@ fn the_trials_r615_asks_for_settle_the_verdict() {
     let fixture = "tests/fixtures/invalid/R615-monte-carlo-too-close.catena";
     let first = catena(&root(), &["check", "--format", "json", fixture], None);
     let findings: serde_json::Value = serde_json::from_str(&first.stdout).unwrap();
+    let findings = &findings["findings"];
     let help = findings[0]["help"].as_str().unwrap();
     assert_eq!(findings[0]["code"], "R615", "{}", first.stdout);
     let trials = help

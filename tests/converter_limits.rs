@@ -23,7 +23,11 @@ fn limit<'a>(budget: &'a serde_json::Value, name: &str) -> &'a serde_json::Value
 fn findings(spec: &str) -> Vec<serde_json::Value> {
     let (status, out) = run_json(&["check", "--format", "json", spec]);
     assert_eq!(status, 1, "{out}");
-    serde_json::from_str(&out).expect("JSON findings")
+    let doc: serde_json::Value = serde_json::from_str(&out).expect("JSON findings");
+    doc["findings"]
+        .as_array()
+        .expect("a findings array")
+        .clone()
 }
 
 /// The number right after `before` in `text`.

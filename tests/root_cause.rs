@@ -10,7 +10,8 @@ fn findings(fixture: &str) -> Vec<(String, u64, Option<String>)> {
     let dir = root().join("tests/fixtures/invalid");
     let run = catena(&dir, &["check", "--format", "json", fixture], None);
     let v: serde_json::Value = serde_json::from_str(&run.stdout).expect("JSON findings");
-    v.as_array()
+    v["findings"]
+        .as_array()
         .expect("an array")
         .iter()
         .map(|f| {

@@ -214,6 +214,8 @@ pub struct CheckOptions {
     pub margin: f64,
     /// Let `use` reach parts files outside the spec's repository.
     pub allow_outside_paths: bool,
+    /// The Monte Carlo seed ([`report::DEFAULT_SEED`] when `None`).
+    pub seed: Option<u64>,
 }
 
 /// Lowers a chain, evaluates its nominal corners (measurand ends at the
@@ -280,6 +282,7 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
             } else {
                 report::DEFAULT_TRIALS
             }),
+            seed: options.seed.unwrap_or(report::DEFAULT_SEED),
             ..report::Options::default()
         };
         match report::analyse(chain, &plan, &options) {

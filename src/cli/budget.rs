@@ -3,12 +3,12 @@
 
 use std::collections::BTreeMap;
 use std::io::IsTerminal;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use clap::Args;
 use serde::Serialize;
 
-use super::files::check_one;
+use super::files::{check_one, collect};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::report::{
@@ -22,19 +22,22 @@ use crate::units::format::{from_si, trimmed};
 
 #[derive(Args, Debug)]
 pub struct BudgetArgs {
-    /// The spec file.
-    spec: PathBuf,
+    /// Spec files, or folders to search for `*.catena`.
+    #[arg(required = true)]
+    paths: Vec<PathBuf>,
     /// The chain, when the file has several (default: all).
     #[arg(long)]
     chain: Option<String>,
     #[arg(long, value_enum, default_value_t = Format::Human)]
     format: Format,
-    /// Monte Carlo trials per point (0: none).
-    #[arg(long, default_value_t = DEFAULT_TRIALS)]
-    trials: usize,
-    /// The Monte Carlo seed: the same seed gives the same result.
-    #[arg(long, default_value_t = DEFAULT_SEED)]
-    seed: u64,
+    /// Monte Carlo trials per point (0: none) [default: catena.yaml's
+    /// `monte_carlo.trials`, else 10000].
+    #[arg(long)]
+    trials: Option<usize>,
+    /// The Monte Carlo seed: the same seed gives the same result
+    /// [default: catena.yaml's `monte_carlo.seed`, else 1].
+    #[arg(long)]
+    seed: Option<u64>,
     /// Points across the measurand range.
     #[arg(long, default_value_t = 21)]
     points: usize,
@@ -44,7 +47,7 @@ pub struct BudgetArgs {
 }
 
 pub fn run(args: BudgetArgs) -> u8 {
-    if args.trials > MAX_TRIALS {
+    if args.trials.is_some_and(|t| t > MAX_TRIALS) {
         eprintln!("catena: --trials is at most {MAX_TRIALS}");
         return EXIT_USAGE;
     }
@@ -52,51 +55,118 @@ pub fn run(args: BudgetArgs) -> u8 {
         eprintln!("catena: --points takes 2 to 1001");
         return EXIT_USAGE;
     }
-    let checked = match check_one(&args.spec) {
-        Ok(c) => c,
-        Err(status) => return status,
+    let files = match collect(&args.paths) {
+        Ok(f) => f,
+        Err(e) => {
+            eprintln!("catena: {e}");
+            return EXIT_USAGE;
+        }
     };
+    let several = files.len() > 1;
+    let mut docs = Vec::new();
+    let mut status = EXIT_OK;
+    let mut chain_found = args.chain.is_none();
+    for path in &files {
+        if several && args.format == Format::Human {
+            println!("file {}\n", path.display());
+        }
+        let file_status = match budget_file(path, &args, several, &mut docs) {
+            Ok(s) => {
+                chain_found = true;
+                s
+            }
+            Err(ChainAbsent) if several => EXIT_OK,
+            Err(ChainAbsent) => return EXIT_USAGE,
+        };
+        status = status.max(file_status);
+    }
+    if !chain_found {
+        let name = args.chain.as_deref().unwrap_or_default();
+        eprintln!("catena: no chain `{name}` in any of the files");
+        return EXIT_USAGE;
+    }
+    if args.format == Format::Json && !docs.is_empty() {
+        let text = if docs.len() == 1 {
+            serde_json::to_string_pretty(&docs[0])
+        } else {
+            serde_json::to_string_pretty(&docs)
+        };
+        println!("{}", text.unwrap_or_default());
+    }
+    status
+}
+
+/// `--chain` names no chain of this file.
+struct ChainAbsent;
+
+/// The chains of one file that `--chain` selects; with one file, a name it
+/// lacks is reported here.
+fn select<'a>(
+    chains: &'a [Chain],
+    wanted: Option<&str>,
+    several: bool,
+) -> Result<Vec<&'a Chain>, ChainAbsent> {
+    let Some(name) = wanted else {
+        return Ok(chains.iter().collect());
+    };
+    if let Some(c) = chains.iter().find(|c| c.name == name) {
+        return Ok(vec![c]);
+    }
+    if !several {
+        match did_you_mean(name, chains.iter().map(|c| c.name.as_str())) {
+            Some(n) => eprintln!("catena: no chain `{name}`; did you mean `{n}`?"),
+            None => eprintln!("catena: no chain `{name}`"),
+        }
+    }
+    Err(ChainAbsent)
+}
+
+/// The budget of one file's chains: human output printed, JSON documents
+/// gathered into `docs`; the file's exit status.
+fn budget_file(
+    path: &Path,
+    args: &BudgetArgs,
+    several: bool,
+    docs: &mut Vec<BudgetJson>,
+) -> Result<u8, ChainAbsent> {
+    let (checked, config) = match check_one(path) {
+        Ok(c) => c,
+        Err(status) => return Ok(status),
+    };
+    // Flags first, then the configuration, then the defaults.
+    let trials = args
+        .trials
+        .or(config.trials.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_TRIALS);
+    let seed = args
+        .seed
+        .or(config.seed.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_SEED);
     // What the analyses found (a requirement missed, a stage beyond its
     // limit) is what the budget explains, not a reason to withhold it;
     // errors before them leave no complete chain.
-    let errors: Findings = {
-        let mut f = Findings::new();
-        for x in checked
-            .findings
-            .iter()
-            .filter(|f| f.severity() == crate::diagnostics::Severity::Error)
-        {
-            f.push(x.clone());
-        }
-        f
-    };
-    if !errors.is_empty() && !checked.resolved {
-        return show(&errors);
+    let mut errors = Findings::new();
+    for x in checked
+        .findings
+        .iter()
+        .filter(|f| f.severity() == crate::diagnostics::Severity::Error)
+    {
+        errors.push(x.clone());
     }
-    let chains: Vec<&Chain> = match &args.chain {
-        None => checked.chains.iter().collect(),
-        Some(name) => match checked.chains.iter().find(|c| &c.name == name) {
-            Some(c) => vec![c],
-            None => {
-                let near = did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str()));
-                match near {
-                    Some(n) => eprintln!("catena: no chain `{name}`; did you mean `{n}`?"),
-                    None => eprintln!("catena: no chain `{name}`"),
-                }
-                return EXIT_USAGE;
-            }
-        },
-    };
+    if !errors.is_empty() && !checked.resolved {
+        return Ok(show(&errors));
+    }
+    let chains = select(&checked.chains, args.chain.as_deref(), several)?;
     let options = Options {
         budget: BudgetOptions {
             points: args.points,
             ..BudgetOptions::default()
         },
-        trials: (args.trials > 0).then_some(args.trials),
-        seed: args.seed,
+        trials: (trials > 0).then_some(trials),
+        seed,
         detail: true,
     };
-    let progress = std::io::stderr().is_terminal() && args.trials * args.points >= 1_000_000;
+    let progress = std::io::stderr().is_terminal() && trials * args.points >= 1_000_000;
     let mut outputs: Vec<(Chain, Analysis)> = Vec::new();
     for chain in chains {
         let analysed = analyse_chain(chain, &options, progress);
@@ -112,22 +182,15 @@ pub fn run(args: BudgetArgs) -> u8 {
                         }
                         outputs.push((part, a));
                     }
-                    Err(_) => return report_error(chain, &e, &errors),
+                    Err(_) => return Ok(report_error(chain, &e, &errors)),
                 },
-                None => return report_error(chain, &e, &errors),
+                None => return Ok(report_error(chain, &e, &errors)),
             },
         }
     }
+    let shown = path.to_string_lossy();
     match args.format {
-        Format::Json => {
-            let docs: Vec<BudgetJson> = outputs.iter().map(|(c, a)| json(c, a)).collect();
-            let text = if docs.len() == 1 {
-                serde_json::to_string_pretty(&docs[0])
-            } else {
-                serde_json::to_string_pretty(&docs)
-            };
-            println!("{}", text.unwrap_or_default());
-        }
+        Format::Json => docs.extend(outputs.iter().map(|(c, a)| json(&shown, c, a))),
         Format::Human => {
             for (c, a) in &outputs {
                 print!("{}", super::budget_table::human(c, a, args.per_point));
@@ -144,16 +207,12 @@ pub fn run(args: BudgetArgs) -> u8 {
                 }
             );
         }
-        return show(&errors);
+        return Ok(show(&errors));
     }
     let failed = outputs
         .iter()
         .any(|(_, a)| a.verdicts.iter().any(|v| !v.pass));
-    if failed {
-        EXIT_FINDINGS
-    } else {
-        EXIT_OK
-    }
+    Ok(if failed { EXIT_FINDINGS } else { EXIT_OK })
 }
 
 /// Lowers and analyses one chain, with a progress line on a terminal.
@@ -327,6 +386,7 @@ struct RequirementJson {
 #[derive(Serialize)]
 struct BudgetJson {
     schema_version: u32,
+    file: String,
     chain: String,
     unit: String,
     measurand_unit: String,
@@ -345,7 +405,7 @@ fn plan_name(a: &Analysis, node: usize) -> String {
     a.names.get(node).cloned().unwrap_or_default()
 }
 
-fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
+fn json(file: &str, chain: &Chain, a: &Analysis) -> BudgetJson {
     let (unit, f) = chain.difference_unit();
     let m_unit = chain
         .measurand
@@ -401,6 +461,7 @@ fn json(chain: &Chain, a: &Analysis) -> BudgetJson {
     };
     BudgetJson {
         schema_version: 1,
+        file: file.to_string(),
         chain: chain.name.clone(),
         unit,
         measurand_unit: m_unit.clone(),

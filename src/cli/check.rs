@@ -1,40 +1,59 @@
+use std::io::Read;
 use std::path::{Path, PathBuf};
 
 use clap::{Args, ValueEnum};
 
 use super::files::{collect, plain_io};
-use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::report::{DEFAULT_TRIALS, MAX_TRIALS};
+use super::settings::{describe, pick, Configs, DEFAULTS};
+use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::report::MAX_TRIALS;
 use crate::analysis::CheckOptions;
-use crate::check::check_bytes_with;
-use crate::diagnostics::{render_human, render_json, Finding, Severity};
+use crate::check::check_bytes_configured;
+use crate::config::Config;
+use crate::diagnostics::{
+    render_github, render_human, render_json, render_sarif, render_short, Finding, Severity,
+};
 use crate::model::PartsCache;
 use rayon::prelude::*;
 
 #[derive(Args, Debug)]
 pub struct CheckArgs {
-    /// Spec files, or folders to search for `*.catena`.
+    /// Spec files, or folders to search for `*.catena`; `-` reads a spec
+    /// from standard input.
     #[arg(required = true)]
     paths: Vec<PathBuf>,
-    /// How findings are written: for people, or JSON for tools.
-    #[arg(long, value_enum, default_value_t = Format::Human)]
-    format: Format,
+    /// The name standard input's findings show; its folder is where `use`
+    /// paths start.
+    #[arg(long, value_name = "PATH")]
+    stdin_filename: Option<PathBuf>,
+    /// Only the findings: no summary line.
+    #[arg(short, long)]
+    quiet: bool,
+    /// How findings are written: for people, or for tools (JSON, SARIF
+    /// 2.1.0, CI workflow commands, or one `file:line:col:` line each).
+    #[arg(long, value_enum, default_value_t = CheckFormat::Human)]
+    format: CheckFormat,
     /// Treat warnings as errors for the exit status.
     #[arg(long, value_enum)]
     deny: Vec<Deny>,
     /// Warn when a signal keeps less headroom than this, in % of the
-    /// limit's span.
-    #[arg(long, default_value_t = 5.0, value_parser = parse_margin)]
-    margin: f64,
+    /// limit's span [default: catena.yaml's `margin`, else 5].
+    #[arg(long, value_parser = parse_margin)]
+    margin: Option<f64>,
     /// Run Monte Carlo for every chain, not only where a requirement asks.
     #[arg(long)]
     monte_carlo: bool,
-    /// Monte Carlo trials per point, where it runs.
-    #[arg(long, default_value_t = DEFAULT_TRIALS as u64, value_parser = clap::value_parser!(u64).range(1..=MAX_TRIALS as u64))]
-    trials: u64,
+    /// Monte Carlo trials per point, where it runs [default: catena.yaml's
+    /// `monte_carlo.trials`, else 10000].
+    #[arg(long, value_parser = clap::value_parser!(u64).range(1..=MAX_TRIALS as u64))]
+    trials: Option<u64>,
     /// Let `use` read parts files outside the spec's repository.
     #[arg(long)]
     allow_outside_paths: bool,
+    /// Show the settings that apply to the specs and where each comes
+    /// from (flag, catena.yaml, default), then stop.
+    #[arg(long)]
+    print_config: bool,
 }
 
 fn parse_margin(text: &str) -> Result<f64, String> {
@@ -52,50 +71,224 @@ fn parse_margin(text: &str) -> Result<f64, String> {
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+enum CheckFormat {
+    Human,
+    Json,
+    Sarif,
+    Github,
+    Short,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 enum Deny {
     Warnings,
 }
 
-pub fn run(args: CheckArgs) -> u8 {
-    let files = match collect(&args.paths) {
-        Ok(f) => f,
-        Err(e) => {
-            eprintln!("catena: {e}");
-            return EXIT_USAGE;
+/// One spec to check: the name findings show, the folder its `use` paths
+/// start from, and its bytes.
+struct Input {
+    name: String,
+    base: PathBuf,
+    bytes: Vec<u8>,
+}
+
+/// The folder a spec's relative paths start from.
+fn folder_of(path: &Path) -> PathBuf {
+    path.parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."))
+        .to_path_buf()
+}
+
+/// Every spec named: `-` is standard input (named by `--stdin-filename`),
+/// folders are searched. A usage problem is reported and its status given.
+fn read_inputs(args: &CheckArgs) -> Result<Vec<Input>, u8> {
+    let stdin_count = args.paths.iter().filter(|p| p.as_os_str() == "-").count();
+    if stdin_count > 1 {
+        eprintln!("catena: `-` (standard input) can be named only once");
+        return Err(EXIT_USAGE);
+    }
+    if stdin_count == 0 && args.stdin_filename.is_some() {
+        eprintln!("catena: --stdin-filename names standard input, given as `-`");
+        return Err(EXIT_USAGE);
+    }
+    let mut inputs = Vec::new();
+    for path in &args.paths {
+        if path.as_os_str() == "-" {
+            inputs.push(read_stdin(args.stdin_filename.as_deref())?);
+            continue;
         }
-    };
-    let mut inputs = Vec::with_capacity(files.len());
-    for path in &files {
-        match std::fs::read(path) {
-            Ok(b) => inputs.push((path, b)),
-            Err(e) => {
-                eprintln!("catena: cannot read `{}`: {}", path.display(), plain_io(&e));
-                return EXIT_USAGE;
+        let files = collect(std::slice::from_ref(path)).map_err(|e| {
+            eprintln!("catena: {e}");
+            EXIT_USAGE
+        })?;
+        for file in files {
+            match std::fs::read(&file) {
+                Ok(bytes) => inputs.push(Input {
+                    name: file.to_string_lossy().into_owned(),
+                    base: folder_of(&file),
+                    bytes,
+                }),
+                Err(e) => {
+                    eprintln!("catena: cannot read `{}`: {}", file.display(), plain_io(&e));
+                    return Err(EXIT_USAGE);
+                }
             }
         }
     }
-    let options = CheckOptions {
+    Ok(inputs)
+}
+
+fn read_stdin(name: Option<&Path>) -> Result<Input, u8> {
+    let mut bytes = Vec::new();
+    if let Err(e) = std::io::stdin().read_to_end(&mut bytes) {
+        eprintln!("catena: cannot read standard input: {}", plain_io(&e));
+        return Err(EXIT_USAGE);
+    }
+    Ok(match name {
+        Some(path) => Input {
+            name: path.to_string_lossy().into_owned(),
+            base: folder_of(path),
+            bytes,
+        },
+        None => Input {
+            name: "<stdin>".into(),
+            base: PathBuf::from("."),
+            bytes,
+        },
+    })
+}
+
+/// The analyses' options for specs under `config`: flags first.
+fn options_for(args: &CheckArgs, config: &Config) -> CheckOptions {
+    let (margin, trials, _) = settings_for(args, config);
+    CheckOptions {
         monte_carlo: args.monte_carlo,
-        trials: args.trials as usize,
+        trials: trials.value,
         // Zero would mean the default; a tiny positive value means none.
-        margin: (args.margin / 100.0).max(1e-12),
+        margin: margin.value.max(1e-12),
         allow_outside_paths: args.allow_outside_paths,
+        seed: config.seed.as_ref().map(|s| s.value),
+    }
+}
+
+type Settings = (
+    super::settings::Applied<f64>,
+    super::settings::Applied<usize>,
+    super::settings::Applied<u64>,
+);
+
+fn settings_for(args: &CheckArgs, config: &Config) -> Settings {
+    let (margin, trials, seed) = DEFAULTS;
+    (
+        pick(
+            args.margin.map(|m| m / 100.0),
+            "--margin",
+            config.margin.as_ref(),
+            config,
+            margin,
+        ),
+        pick(
+            args.trials.map(|t| t as usize),
+            "--trials",
+            config.trials.as_ref(),
+            config,
+            trials,
+        ),
+        pick(None, "", config.seed.as_ref(), config, seed),
+    )
+}
+
+/// `--print-config`: each configuration that applies to the inputs, once.
+fn print_config(args: &CheckArgs, inputs: &[Input], configs: &mut Configs) -> u8 {
+    let mut shown: Vec<Option<String>> = Vec::new();
+    for input in inputs {
+        let config = configs.for_folder(&input.base);
+        let name = config.file.as_ref().map(|f| f.name().to_string());
+        if shown.contains(&name) {
+            continue;
+        }
+        let (margin, trials, seed) = settings_for(args, &config);
+        print!("{}", describe(&config, &margin, &trials, &seed));
+        shown.push(name);
+    }
+    let found = configs.findings();
+    if found.is_empty() {
+        return EXIT_OK;
+    }
+    eprint!(
+        "{}",
+        render_human(&found, terminal::stderr_color(), terminal::width())
+    );
+    if found.iter().any(|f| f.severity() == Severity::Error) {
+        EXIT_FINDINGS
+    } else {
+        EXIT_OK
+    }
+}
+
+pub fn run(args: CheckArgs) -> u8 {
+    let inputs = match read_inputs(&args) {
+        Ok(i) => i,
+        Err(status) => return status,
     };
+    let mut configs = Configs::default();
+    if args.print_config {
+        return print_config(&args, &inputs, &mut configs);
+    }
+    let configured: Vec<_> = inputs.iter().map(|i| configs.for_folder(&i.base)).collect();
     // Files are independent: check them on every core, gather in order.
     let per_file: Vec<Vec<Finding>> = inputs
         .par_iter()
-        .map_init(PartsCache::default, |parts, (path, bytes)| {
-            let base = path
-                .parent()
-                .filter(|p| !p.as_os_str().is_empty())
-                .unwrap_or(Path::new("."));
-            check_bytes_with(&path.to_string_lossy(), bytes, base, parts, &options)
-                .findings
-                .sorted()
+        .zip(configured.par_iter())
+        .map_init(PartsCache::default, |parts, (input, config)| {
+            let options = options_for(&args, config);
+            let checked = check_bytes_configured(
+                &input.name,
+                &input.bytes,
+                &input.base,
+                parts,
+                &options,
+                &config.defaults(),
+            );
+            config.apply(checked.findings.sorted())
         })
         .collect();
+    // A mistake in a configuration comes first: it changes what follows.
+    let all = dedup(
+        std::iter::once(configs.findings())
+            .chain(per_file)
+            .collect(),
+    );
+    let errors = all
+        .iter()
+        .filter(|f| f.severity() == Severity::Error)
+        .count();
+    let warnings = all.len() - errors;
+    print_findings(&args, &all);
+    if args.format == CheckFormat::Human && !args.quiet {
+        eprintln!(
+            "checked {} file{}: {} error{}, {} warning{}",
+            inputs.len(),
+            plural(inputs.len()),
+            errors,
+            plural(errors),
+            warnings,
+            plural(warnings)
+        );
+    }
+    let deny_warnings = args.deny.contains(&Deny::Warnings);
+    if errors > 0 || (deny_warnings && warnings > 0) {
+        EXIT_FINDINGS
+    } else {
+        EXIT_OK
+    }
+}
+
+/// A parts file's findings come once, however many specs use it.
+fn dedup(per_file: Vec<Vec<Finding>>) -> Vec<Finding> {
     let mut seen = std::collections::HashSet::new();
-    let all: Vec<Finding> = per_file
+    per_file
         .into_iter()
         .flatten()
         .filter(|f| {
@@ -106,35 +299,19 @@ pub fn run(args: CheckArgs) -> u8 {
                 f.message.clone(),
             ))
         })
-        .collect();
-    let errors = all
-        .iter()
-        .filter(|f| f.severity() == Severity::Error)
-        .count();
-    let warnings = all.len() - errors;
+        .collect()
+}
+
+fn print_findings(args: &CheckArgs, all: &[Finding]) {
     match args.format {
-        Format::Json => print!("{}", render_json(&all)),
-        Format::Human => {
-            eprint!(
-                "{}",
-                render_human(&all, terminal::stderr_color(), terminal::width())
-            );
-            eprintln!(
-                "checked {} file{}: {} error{}, {} warning{}",
-                files.len(),
-                plural(files.len()),
-                errors,
-                plural(errors),
-                warnings,
-                plural(warnings)
-            );
-        }
-    }
-    let deny_warnings = args.deny.contains(&Deny::Warnings);
-    if errors > 0 || (deny_warnings && warnings > 0) {
-        EXIT_FINDINGS
-    } else {
-        EXIT_OK
+        CheckFormat::Json => print!("{}", render_json(all)),
+        CheckFormat::Sarif => print!("{}", render_sarif(all)),
+        CheckFormat::Github => print!("{}", render_github(all)),
+        CheckFormat::Short => print!("{}", render_short(all)),
+        CheckFormat::Human => eprint!(
+            "{}",
+            render_human(all, terminal::stderr_color(), terminal::width())
+        ),
     }
 }
 

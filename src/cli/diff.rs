@@ -8,7 +8,7 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 use serde::Serialize;
 
-use super::files::{check_one, collect, plain_io};
+use super::files::{check_configured, check_one, collect, plain_io};
 use super::revision::{self, Snapshot};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
@@ -18,7 +18,7 @@ use crate::analysis::review::{
 };
 use crate::check::CheckedFile;
 use crate::eval::lower;
-use crate::model::{Chain, PartsCache};
+use crate::model::Chain;
 use crate::units::format::significant;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -73,7 +73,7 @@ pub(super) fn load(arg: &str) -> Result<Side, u8> {
         Some((p, c)) if !c.is_empty() => (p, Some(c.to_string())),
         _ => (arg, None),
     };
-    let checked = check_one(Path::new(path))?;
+    let (checked, _) = check_one(Path::new(path))?;
     Ok(Side {
         label: arg.to_string(),
         checked,
@@ -318,9 +318,23 @@ fn old_side(root: &Path, rev: &str, path: &str) -> Result<Option<Side>, String> 
             }
         }
     }
+    // The configuration that applied at the revision: every
+    // `catena.yaml` from the spec's folder up to the root.
+    let mut folder = Some(dir);
+    while let Some(d) = folder {
+        let config = if d.is_empty() {
+            "catena.yaml".to_string()
+        } else {
+            format!("{d}/catena.yaml")
+        };
+        if let Ok(b) = revision::show(root, rev, &config) {
+            snapshot.put(&config, &b)?;
+        }
+        folder = (!d.is_empty()).then(|| d.rsplit_once('/').map_or("", |(up, _)| up));
+    }
     let base = spec.parent().map(Path::to_path_buf).unwrap_or_default();
     let label = format!("{rev}:{path}");
-    let checked = crate::check::check_bytes(&label, &bytes, &base, &mut PartsCache::default());
+    let (checked, _) = check_configured(&label, &bytes, &base);
     Ok(Some(Side {
         label,
         checked,

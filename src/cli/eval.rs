@@ -34,7 +34,7 @@ pub struct EvalArgs {
 
 pub fn run(args: EvalArgs) -> u8 {
     let checked = match check_one(&args.spec) {
-        Ok(c) => c,
+        Ok((c, _)) => c,
         Err(status) => return status,
     };
     // Errors the analyses found (a stage beyond its limit, a sensor out of

@@ -9,7 +9,9 @@ mod eval;
 mod explain;
 mod files;
 mod fmt;
+mod generate;
 mod revision;
+mod settings;
 mod terminal;
 
 use std::process::ExitCode;
@@ -27,6 +29,9 @@ pub const EXIT_USAGE: u8 = 2;
 struct Cli {
     #[command(subcommand)]
     command: Command,
+    /// When to colour human output.
+    #[arg(long, global = true, value_enum, default_value_t = terminal::ColorChoice::Auto)]
+    color: terminal::ColorChoice,
 }
 
 #[derive(Subcommand, Debug)]
@@ -45,6 +50,10 @@ enum Command {
     Compare(compare::CompareArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
+    /// Print a shell's completion script for catena.
+    Completions(generate::CompletionsArgs),
+    /// Print catena's man page (roff), or one command's.
+    Man(generate::ManArgs),
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -61,6 +70,7 @@ pub fn run() -> ExitCode {
             return ExitCode::from(if e.use_stderr() { EXIT_USAGE } else { EXIT_OK });
         }
     };
+    terminal::set_color_choice(cli.color);
     let status = match cli.command {
         Command::Check(args) => check::run(args),
         Command::Fmt(args) => fmt::run(args),
@@ -69,6 +79,8 @@ pub fn run() -> ExitCode {
         Command::Diff(args) => diff::run(args),
         Command::Compare(args) => compare::run(args),
         Command::Explain(args) => explain::run(args),
+        Command::Completions(args) => generate::completions(args),
+        Command::Man(args) => generate::man(args),
     };
     ExitCode::from(status)
 }

@@ -1,12 +1,13 @@
 //! The registry of finding codes. A code is stable once released: its
 //! meaning never changes and it is never reused. Each has an explain page in
 //! `explain/CODE.md` (a missing page fails the build) and at least one
-//! fixture under `tests/fixtures/invalid/` (a missing fixture fails a test).
+//! fixture under `tests/fixtures/invalid/`, or for a configuration code a
+//! folder under `tests/fixtures/config/` (a missing fixture fails a test).
 //!
 //! Letters by pipeline stage: S syntax, U units, P parameters and settings,
 //! M the chain graph (names, ports, cycles), L parts libraries, E evaluation
 //! of the chain (sensor validity, conversion, numerics), R requirements and
-//! limits.
+//! limits, C the configuration file (`catena.yaml`).
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Severity {
@@ -124,4 +125,10 @@ codes! {
     R625 => Warning, "point outside the measurand range";
     R626 => Error, "reading clamped outside the range";
     R630 => Error, "converter input not settled";
+
+    C801 => Error, "malformed configuration file";
+    C802 => Error, "unknown configuration key";
+    C803 => Error, "bad configuration value";
+    C804 => Error, "unknown code in a rule";
+    C805 => Error, "rule relaxes an error that cannot be relaxed";
 }

@@ -25,6 +25,8 @@ pub struct Finding {
     /// reported right after its cause, and says so.
     /// Boxed: most findings have none, and a `Finding` travels in `Err`.
     pub cause: Option<Box<Cause>>,
+    /// A configuration's severity for this code, when it sets one.
+    pub severity_override: Option<Severity>,
 }
 
 /// Which finding caused another: its code and primary place.
@@ -63,6 +65,7 @@ impl Finding {
             labels: Vec::new(),
             help: None,
             cause: None,
+            severity_override: None,
         }
     }
 
@@ -86,7 +89,7 @@ impl Finding {
     }
 
     pub fn severity(&self) -> Severity {
-        self.code.severity()
+        self.severity_override.unwrap_or(self.code.severity())
     }
 
     pub fn primary_span(&self) -> Option<Span> {
@@ -112,7 +115,7 @@ impl miette::Diagnostic for Finding {
     }
 
     fn severity(&self) -> Option<miette::Severity> {
-        Some(match self.code.severity() {
+        Some(match Finding::severity(self) {
             Severity::Error => miette::Severity::Error,
             Severity::Warning => miette::Severity::Warning,
         })

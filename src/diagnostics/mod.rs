@@ -1,15 +1,20 @@
 //! Findings: the one diagnostic type every stage of the pipeline reports
 //! through, the registry of stable codes with their `explain` pages, and the
-//! renderers (miette's graphical report for people, serde JSON for tools).
+//! renderers (miette's graphical report for people; JSON, SARIF, workflow
+//! commands and one-line `file:line:col:` for tools).
 
 mod code;
 mod finding;
+mod lines;
 mod render;
+mod sarif;
 mod source;
 
 pub use code::{Code, Severity};
 pub use finding::{Cause, Finding, Label};
-pub use render::{render_human, render_json, JsonFinding};
+pub use lines::{escape_data, escape_property, render_github, render_short};
+pub use render::{render_human, render_json, JsonFinding, FINDINGS_SCHEMA_VERSION};
+pub use sarif::render_sarif;
 pub use source::{SourceFile, Span};
 
 /// Findings of one run, kept in the order they were found; `sorted` gives

@@ -163,16 +163,24 @@ impl From<&Finding> for JsonFinding {
     }
 }
 
-/// A JSON array with one object per finding, each on its own line, so the
-/// output is one document for tools and still greps line by line.
+/// The version of the findings document's shape; raised when a field
+/// changes meaning or goes away, not when one is added.
+pub const FINDINGS_SCHEMA_VERSION: u32 = 1;
+
+/// `{"schema_version": 1, "findings": [...]}` with one finding per line,
+/// so the output is one document for tools and still greps line by line.
 pub fn render_json(findings: &[Finding]) -> String {
-    let mut out = String::from("[");
+    let mut out = format!("{{\"schema_version\":{FINDINGS_SCHEMA_VERSION},\"findings\":[");
     for (i, f) in findings.iter().enumerate() {
         let json = JsonFinding::from(f);
         out.push_str(if i == 0 { "\n" } else { ",\n" });
         // Serialising plain owned data cannot fail.
         out.push_str(&serde_json::to_string(&json).unwrap_or_default());
     }
-    out.push_str(if findings.is_empty() { "]\n" } else { "\n]\n" });
+    out.push_str(if findings.is_empty() {
+        "]}\n"
+    } else {
+        "\n]}\n"
+    });
     out
 }

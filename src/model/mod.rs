@@ -24,6 +24,19 @@ pub use suggest::did_you_mean;
 use crate::diagnostics::{Code, Finding, Findings, SourceFile};
 use crate::syntax::Ast;
 
+/// What a spec leaves unsaid and a configuration file supplies: the
+/// ambient and reference of a chain that states none, and parts files
+/// every spec uses besides its own `use` lines.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Defaults {
+    /// Kelvin.
+    pub ambient: Option<(f64, f64)>,
+    /// Kelvin.
+    pub reference: Option<f64>,
+    /// Each file's path and the name its findings show.
+    pub parts: Vec<(std::path::PathBuf, String)>,
+}
+
 /// Resolves every chain of a parsed file. `base` is the spec's folder,
 /// against which `use` paths resolve.
 ///
@@ -35,6 +48,18 @@ pub fn resolve(
     base: &Path,
     root: Option<&Path>,
     parts: &mut PartsCache,
+) -> (Vec<Chain>, Findings) {
+    resolve_with(file, ast, base, root, parts, &Defaults::default())
+}
+
+/// [`resolve`] with what a configuration supplies.
+pub fn resolve_with(
+    file: &Arc<SourceFile>,
+    ast: &Ast,
+    base: &Path,
+    root: Option<&Path>,
+    parts: &mut PartsCache,
+    defaults: &Defaults,
 ) -> (Vec<Chain>, Findings) {
     let mut findings = Findings::new();
     let mut library: Vec<parts::Part> = Vec::new();
@@ -74,6 +99,16 @@ pub fn resolve(
                 }
                 findings.push(f);
             }
+        }
+        library_broken |= loaded.findings.has_errors();
+        library.extend(loaded.parts.iter().cloned());
+    }
+    // The configured libraries come after the spec's own, so a part the
+    // spec's `use` names first wins.
+    for (path, shown) in &defaults.parts {
+        let loaded = parts.load(path, shown);
+        for f in loaded.findings.iter() {
+            findings.push(f.clone());
         }
         library_broken |= loaded.findings.has_errors();
         library.extend(loaded.parts.iter().cloned());
@@ -166,7 +201,10 @@ pub fn resolve(
         }
         graph::check_references(&stages, &mut findings);
         let connections = graph::connect(file, &mut stages, &decl.edges, &mut findings);
-        let reference = settings.reference.unwrap_or(DEFAULT_REFERENCE_K);
+        let reference = settings
+            .reference
+            .or(defaults.reference)
+            .unwrap_or(DEFAULT_REFERENCE_K);
         chains.push(Chain {
             name: decl.name.name.clone(),
             name_span: decl.name.span,
@@ -174,7 +212,10 @@ pub fn resolve(
             title: settings.title,
             file: Arc::clone(file),
             measurand: settings.measurand,
-            ambient: settings.ambient.unwrap_or((reference, reference)),
+            ambient: settings
+                .ambient
+                .or(defaults.ambient)
+                .unwrap_or((reference, reference)),
             reference,
             requirements: settings.requirements,
             alarms: settings.alarms,
@@ -187,7 +228,7 @@ pub fn resolve(
 
 /// Whether `path` (resolved through symbolic links where it exists) lies
 /// inside `root`.
-fn confined(path: &Path, root: &Path) -> bool {
+pub fn confined(path: &Path, root: &Path) -> bool {
     let root = std::fs::canonicalize(root).unwrap_or_else(|_| root.to_path_buf());
     let resolved = match std::fs::canonicalize(path) {
         Ok(p) => p,
@@ -241,7 +282,8 @@ fn unknown_part(
     library: &[parts::Part],
     p: &crate::syntax::ast::Ident,
 ) -> Finding {
-    if ast.uses.is_empty() {
+    // Configured libraries count as loaded parts files too.
+    if ast.uses.is_empty() && library.is_empty() {
         return Finding::new(
             Code::L406,
             file,
