@@ -175,8 +175,9 @@ fn throwaway_repository(name: &str) -> PathBuf {
 const AMPLIFIER_PART: &str = "parts:\n  front_amp:\n    kind: amplifier\n    gain: 4 ± 0.05 %\n    noise: NOISE nV/rtHz\n    input: 0.1 V .. 3.1 V\n    output: 0.05 V .. 3.25 V\n";
 
 /// The spec renamed and its part's noise changed since the commit: the
-/// old spec is found under its old name, and its parts file is read as it
-/// was at the revision.
+/// old spec is found under its old name, its parts file is read as it
+/// was at the revision, and a spec that only uses that part is compared
+/// too.
 #[test]
 fn a_rename_between_revisions_is_followed() {
     let dir = throwaway_repository("rename");
@@ -193,6 +194,8 @@ fn a_rename_between_revisions_is_followed() {
         // The part states the noise.
         .replace("        noise 12 nV/rtHz\n", "");
     std::fs::write(dir.join("specs/store.catena"), &spec).expect("write");
+    // Unchanged itself, but its part changes below.
+    std::fs::write(dir.join("specs/other.catena"), &spec).expect("write");
     std::fs::write(
         dir.join("specs/parts/amps.yaml"),
         AMPLIFIER_PART.replace("NOISE", "12"),
@@ -226,6 +229,10 @@ fn a_rename_between_revisions_is_followed() {
     assert_eq!(spec[0]["new"]["text"], "noise: 40 nV/rtHz");
     assert_eq!(spec[0]["new"]["file"], "specs/parts/amps.yaml");
     assert_eq!(spec.as_array().map(Vec::len), Some(1), "{spec}");
+    // The spec that only uses the changed part is compared too.
+    let other = &doc["files"][1];
+    assert_eq!(other["new"], "specs/other.catena");
+    assert_eq!(other["chains"][0]["spec"][0]["subject"], "front.noise");
 
     // Named, the spec is found under its old name just the same.
     let named = catena(

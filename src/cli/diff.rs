@@ -236,9 +236,12 @@ fn rev_pairs(rev: &str, paths: &[String]) -> Result<Vec<Pair>, String> {
     if paths.is_empty() {
         wanted.extend(
             changes
-                .into_iter()
-                .filter(|c| is_spec(&c.new) || is_spec(&c.old)),
+                .iter()
+                .filter(|c| is_spec(&c.new) || is_spec(&c.old))
+                .cloned(),
         );
+        let users = users_of_changed_parts(&root, &changes, &wanted)?;
+        wanted.extend(users);
     } else {
         let given: Vec<PathBuf> = paths.iter().map(PathBuf::from).collect();
         for file in collect(&given)? {
@@ -297,6 +300,50 @@ fn relative_to(dir: &Path, path: &Path) -> PathBuf {
     let mut out: PathBuf = dir.components().skip(common).map(|_| "..").collect();
     out.extend(path.components().skip(common));
     out
+}
+
+/// The specs of the working tree not changed themselves whose parts
+/// files changed since the revision: what they do may have moved.
+fn users_of_changed_parts(
+    root: &Path,
+    changes: &[revision::Changed],
+    specs_changed: &[revision::Changed],
+) -> Result<Vec<revision::Changed>, String> {
+    let touched = |p: &str| {
+        changes
+            .iter()
+            .any(|c| c.new.as_deref() == Some(p) || c.old.as_deref() == Some(p))
+    };
+    let mut out = Vec::new();
+    for file in collect(&[root.to_path_buf()])? {
+        let rel = relative_to(root, &file)
+            .to_string_lossy()
+            .replace('\\', "/");
+        if specs_changed
+            .iter()
+            .any(|c| c.new.as_deref() == Some(rel.as_str()))
+        {
+            continue;
+        }
+        let Ok(text) = std::fs::read_to_string(&file) else {
+            continue;
+        };
+        let dir = rel.rsplit_once('/').map_or("", |(d, _)| d);
+        let (ast, _) =
+            crate::syntax::parse(&crate::diagnostics::SourceFile::new(rel.as_str(), text));
+        let uses_changed = ast
+            .uses
+            .iter()
+            .filter_map(|u| revision::join_inside(dir, &u.path.value))
+            .any(|p| touched(&p));
+        if uses_changed {
+            out.push(revision::Changed {
+                old: Some(rel.clone()),
+                new: Some(rel),
+            });
+        }
+    }
+    Ok(out)
 }
 
 /// The spec at `rev`, checked with the parts files it uses from the same
