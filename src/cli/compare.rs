@@ -5,7 +5,8 @@
 use clap::Args;
 use serde::Serialize;
 
-use super::diff::{evaluate, load, markdown_table, num, options, plain_table, ReviewFormat};
+use super::diff::{evaluate, load, options, ReviewFormat};
+use super::diff_render::{markdown_table, num, plain_table};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
 use crate::analysis::review::Outcome;

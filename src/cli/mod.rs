@@ -5,6 +5,7 @@ mod budget_table;
 mod check;
 mod compare;
 mod diff;
+mod diff_render;
 mod eval;
 mod explain;
 mod files;
