@@ -69,12 +69,16 @@ fn moved_row(m: &Moved, percent: bool) -> Vec<String> {
     } else {
         format!(" {}", m.unit)
     };
-    let show = |x: Option<f64>| x.map_or("—".into(), |v| format!("{}{unit}", num(v * scale)));
+    // Codes are whole numbers, shown whole.
+    let codes = m.unit == "code";
+    let figure = |v: f64| if codes { format!("{v:.0}") } else { num(v) };
+    let show = |x: Option<f64>| x.map_or("—".into(), |v| format!("{}{unit}", figure(v * scale)));
     let crossed = percent && m.new.is_some_and(|h| h < 0.0) && m.old.is_none_or(|h| h >= 0.0);
     let change = match (m.old, m.new) {
         (Some(a), Some(b)) if crossed => {
             format!("{}{unit}, beyond the limit", signed((b - a) * scale))
         }
+        (Some(a), Some(b)) if codes => format!("{:+.0}{unit}", b - a),
         (Some(a), Some(b)) => format!("{}{unit}", signed((b - a) * scale)),
         (None, Some(_)) => "new".into(),
         _ => "gone".into(),
