@@ -264,6 +264,9 @@ pub(super) fn markdown(r: &DiffReport) -> String {
             for n in &c.notes {
                 s.push_str(&format!("- {n}\n"));
             }
+            for reason in c.outcome.iter().flat_map(|d| &d.reasons) {
+                s.push_str(&format!("- regression: {reason}\n"));
+            }
             if unchanged(c) {
                 s.push_str("No change.\n\n");
                 continue;
@@ -358,6 +361,9 @@ pub(super) fn human(r: &DiffReport) -> String {
         file_notes(f, &mut s);
         for c in &f.chains {
             s.push_str(&format!("  {}: {}\n", chain_title(c), c.direction.word()));
+            for reason in c.outcome.iter().flat_map(|d| &d.reasons) {
+                s.push_str(&format!("  regression: {reason}\n"));
+            }
             for n in &c.notes {
                 s.push_str(&format!("  {n}\n"));
             }

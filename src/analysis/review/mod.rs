@@ -81,6 +81,8 @@ pub struct RequirementChange {
 pub struct OutcomeDiff {
     pub direction: Direction,
     pub regression: bool,
+    /// What makes it a regression, in words.
+    pub reasons: Vec<String>,
     pub requirements: Vec<RequirementChange>,
     /// Each method's worst error.
     pub worst: Vec<Moved>,
@@ -115,9 +117,21 @@ pub fn diff_outcomes(old: &Outcome, new: &Outcome, threshold: f64) -> OutcomeDif
     let headroom = headroom_changes(old, new);
     // A signal pushed beyond a limit it kept is a regression whatever the
     // accuracy does.
-    let crossed = headroom
+    let crossed_limits: Vec<&Moved> = headroom
         .iter()
-        .any(|m| m.old.is_none_or(|h| h >= 0.0) && m.new.is_some_and(|h| h < 0.0));
+        .filter(|m| m.old.is_none_or(|h| h >= 0.0) && m.new.is_some_and(|h| h < 0.0))
+        .collect();
+    let crossed = !crossed_limits.is_empty();
+    let mut reasons: Vec<String> = requirements
+        .iter()
+        .filter(|r| r.regression)
+        .map(regression_reason)
+        .collect();
+    reasons.extend(
+        crossed_limits
+            .iter()
+            .map(|m| format!("`{}` goes beyond its limit", m.name)),
+    );
     // Worse wins over better: a reviewer must see any loss. Without
     // requirements, the GUM total speaks for accuracy.
     let direction = if judged(Direction::Worse) || crossed {
@@ -134,12 +148,25 @@ pub fn diff_outcomes(old: &Outcome, new: &Outcome, threshold: f64) -> OutcomeDif
     };
     OutcomeDiff {
         direction,
-        regression: crossed || requirements.iter().any(|r| r.regression),
+        regression: !reasons.is_empty(),
+        reasons,
         requirements,
         worst,
         contributors: contributor_changes(old, new),
         headroom,
         other: other_changes(old, new),
+    }
+}
+
+fn regression_reason(r: &RequirementChange) -> String {
+    match (&r.old, &r.new) {
+        (Some(o), Some(n)) if o.pass && !n.pass => format!("the {} requirement fails", r.name),
+        (Some(o), Some(n)) => format!(
+            "the {} margin shrank by {:.2} % of its limit",
+            r.name,
+            (o.margin - n.margin) / n.limit.abs().max(f64::MIN_POSITIVE) * 100.0
+        ),
+        _ => format!("the {} requirement fails", r.name),
     }
 }
 
