@@ -138,10 +138,14 @@ fn input_pins_against_the_rails() {
         "0",
     ]);
     let budget: serde_json::Value = serde_json::from_str(&out).expect("budget JSON");
-    let pins = limit(&budget, "input pin voltage");
-    let low = pins["reach"][0].as_f64().expect("a reach");
-    let expected = -(16.397e-3 - 1.000e-3) / 2.0;
-    assert!((low - expected).abs() < 2e-6, "{low} against {expected}");
+    let half = (16.397e-3 - 1.000e-3) / 2.0;
+    let negative = limit(&budget, "negative input pin voltage");
+    let low = negative["reach"][0].as_f64().expect("a reach");
+    assert!((low + half).abs() < 2e-6, "{low} against {}", -half);
+    // Each pin is its own row: the positive one mirrors the negative.
+    let positive = limit(&budget, "input pin voltage");
+    let high = positive["reach"][1].as_f64().expect("a reach");
+    assert!((high - half).abs() < 2e-6, "{high} against {half}");
     let found = findings("converters/floating_couple.catena");
     assert_eq!(found[0]["code"], "R601", "{found:?}");
     let help = found[0]["help"].as_str().expect("help");

@@ -32,13 +32,22 @@ pub enum Limit {
     MaxCurrent,
     /// The voltage a converter works against, against its `ref_range`.
     ConverterReference,
-    /// The absolute voltage of a converter's input pins, against its
-    /// `rails` (for a single-ended input, the one pin above its ground).
-    ConverterPins,
+    /// The absolute voltage of one of a converter's input pins, against
+    /// its `rails` (a single-ended input has only the positive pin).
+    ConverterPin(Pin),
     /// The source resistance behind a sampling converter's input, against
     /// the largest that settles within ½ LSB in its acquisition time
     /// (reported as R630, not as a range).
     ConverterSettling,
+}
+
+/// A converter input pin. Each pin is its own check: the envelope tracks
+/// one smooth quantity, and which pin is nearer a rail can change along
+/// the range.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Pin {
+    Positive,
+    Negative,
 }
 
 impl Limit {
@@ -51,7 +60,8 @@ impl Limit {
             Limit::CurrentLimit => "load current",
             Limit::MaxCurrent => "current",
             Limit::ConverterReference => "reference",
-            Limit::ConverterPins => "input pin voltage",
+            Limit::ConverterPin(Pin::Positive) => "input pin voltage",
+            Limit::ConverterPin(Pin::Negative) => "negative input pin voltage",
             Limit::ConverterSettling => "source resistance for settling",
         }
     }
@@ -66,7 +76,7 @@ impl Limit {
             Limit::CurrentLimit => ("limit", "voltage"),
             Limit::MaxCurrent => ("max_current", "max_current"),
             Limit::ConverterReference => ("ref_range", "vref"),
-            Limit::ConverterPins => ("rails", "rails"),
+            Limit::ConverterPin(_) => ("rails", "rails"),
             Limit::ConverterSettling => ("acquisition_time", "sampling_capacitance"),
         }
     }
@@ -175,6 +185,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                 polarity,
                 bits,
                 input,
+                differential,
                 ..
             } => {
                 let allowed = match polarity {
@@ -187,10 +198,14 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     allowed,
                     unit: "of full scale",
                 });
-                for (name, limit) in [
-                    ("ref_range", Limit::ConverterReference),
-                    ("rails", Limit::ConverterPins),
-                ] {
+                let pins: &[Pin] = if *differential {
+                    &[Pin::Positive, Pin::Negative]
+                } else {
+                    &[Pin::Positive]
+                };
+                let limits = std::iter::once(("ref_range", Limit::ConverterReference))
+                    .chain(pins.iter().map(|&p| ("rails", Limit::ConverterPin(p))));
+                for (name, limit) in limits {
                     if let Some(r) = range(i, name) {
                         out.push(Check {
                             node: i,
@@ -268,21 +283,15 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                 differential,
                 ..
             },
-            Limit::ConverterPins,
+            Limit::ConverterPin(pin),
         ) => match s[*input] {
             // A single-ended input is the one pin above the converter's
-            // ground; a differential one is two pins about their common
-            // mode, of which the one farther from the rails' middle counts.
+            // ground; a differential one is two pins about their common mode.
             Signal::Voltage { v, .. } if !differential => v,
-            Signal::Voltage { v, cm, .. } => {
-                let middle = (check.allowed.0 + check.allowed.1) / 2.0;
-                let (p, n) = (cm + v / 2.0, cm - v / 2.0);
-                if (p - middle).abs() >= (n - middle).abs() {
-                    p
-                } else {
-                    n
-                }
-            }
+            Signal::Voltage { v, cm, .. } => match pin {
+                Pin::Positive => cm + v / 2.0,
+                Pin::Negative => cm - v / 2.0,
+            },
             _ => 0.0,
         },
         (Node::Adc { input, .. }, Limit::ConverterSettling) => match s[*input] {
@@ -509,6 +518,18 @@ fn reference_fix(stated: bool, high: bool, value: f64, target: f64, margin: f64)
     }
 }
 
+/// Whether another pin of the same converter is further out: one shift of
+/// the common mode fixes both, so only the worse pin is reported.
+fn a_worse_pin(envelopes: &[Envelope], e: &Envelope) -> bool {
+    matches!(e.limit, Limit::ConverterPin(_))
+        && envelopes.iter().any(|other| {
+            other.node == e.node
+                && other.limit != e.limit
+                && matches!(other.limit, Limit::ConverterPin(_))
+                && other.headroom() < e.headroom()
+        })
+}
+
 /// The findings of the envelopes: an error where a signal leaves its limit,
 /// a warning where it keeps less than `margin` of the limit's span, each
 /// with the number that fixes it.
@@ -533,10 +554,10 @@ pub fn findings(
         // on ground), so rails get no margin.
         let needed = match e.limit {
             Limit::ConverterSettling => continue,
-            Limit::ConverterPins => 0.0,
+            Limit::ConverterPin(_) => 0.0,
             _ => margin,
         };
-        if headroom >= needed {
+        if headroom >= needed || a_worse_pin(envelopes, e) {
             continue;
         }
         let Some(stage) = chain.stages.iter().find(|s| s.name == plan.names[e.node]) else {
@@ -598,7 +619,7 @@ pub fn findings(
             Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {} % headroom", with_prefix(value / (1.0 - margin), "A", 4), trimmed(margin * 100.0, 3))),
             Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
             Limit::ConverterReference => Some(reference_fix(slot("vref").is_some(), high, value, target, margin)),
-            Limit::ConverterPins => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e.allowed.0), show(e.allowed.1), show(value))),
+            Limit::ConverterPin(_) => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e.allowed.0), show(e.allowed.1), show(value))),
             Limit::ConverterSettling => None,
         };
         let at = format!(
