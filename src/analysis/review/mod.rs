@@ -321,24 +321,37 @@ fn contributor_changes(old: &Outcome, new: &Outcome) -> Vec<Moved> {
     out
 }
 
+/// Each limit by stage and name, a repeated name numbered in order.
+fn limit_keys(o: &Outcome) -> Vec<(String, f64)> {
+    let mut out: Vec<(String, f64)> = Vec::new();
+    for l in &o.limits {
+        let base = format!("{} {}", l.stage, l.limit);
+        let seen = out
+            .iter()
+            .filter(|(k, _)| k == &base || k.starts_with(&format!("{base} #")))
+            .count();
+        let key = if seen == 0 {
+            base
+        } else {
+            format!("{base} #{}", seen + 1)
+        };
+        out.push((key, l.headroom));
+    }
+    out
+}
+
 fn headroom_changes(old: &Outcome, new: &Outcome) -> Vec<Moved> {
-    let key = |l: &outcome::LimitOutcome| format!("{} {}", l.stage, l.limit);
+    let (olds, news) = (limit_keys(old), limit_keys(new));
     let mut out = Vec::new();
-    for n in &new.limits {
-        let o = old.limits.iter().find(|o| key(o) == key(n));
-        if o.is_none_or(|o| !same(o.headroom, n.headroom)) {
-            out.push(moved(
-                key(n),
-                o.map(|o| o.headroom),
-                Some(n.headroom),
-                "",
-                false,
-            ));
+    for (key, h) in &news {
+        let o = olds.iter().find(|(k, _)| k == key).map(|(_, h)| *h);
+        if o.is_none_or(|o| !same(o, *h)) {
+            out.push(moved(key.clone(), o, Some(*h), "", false));
         }
     }
-    for o in &old.limits {
-        if !new.limits.iter().any(|n| key(n) == key(o)) {
-            out.push(moved(key(o), Some(o.headroom), None, "", false));
+    for (key, h) in &olds {
+        if !news.iter().any(|(k, _)| k == key) {
+            out.push(moved(key.clone(), Some(*h), None, "", false));
         }
     }
     out
