@@ -21,6 +21,7 @@ pub struct CompareArgs {
     /// Monte Carlo trials per point (0: none).
     #[arg(long, default_value_t = DEFAULT_TRIALS)]
     trials: usize,
+    /// The Monte Carlo seed, the same for every candidate.
     #[arg(long, default_value_t = DEFAULT_SEED)]
     seed: u64,
 }

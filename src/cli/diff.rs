@@ -28,7 +28,8 @@ pub enum ReviewFormat {
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum FailOn {
-    /// A verdict flipped to fail or a margin shrank past `--threshold`.
+    /// A verdict flipped to fail, a margin shrank past `--threshold`, a
+    /// signal passed a limit it kept, or a chain stopped evaluating.
     Regression,
 }
 
