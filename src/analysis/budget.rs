@@ -8,7 +8,8 @@ use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
 use crate::eval::{
-    Calibrated, Env, EvalError, LaneSignals, Plan, Signal, SourceKind, LANES, MAX_NODES,
+    half_width, own_fraction, Calibrated, Env, EvalError, LaneSignals, Plan, Signal, SourceKind,
+    LANES, MAX_NODES,
 };
 use crate::model::Chain;
 
@@ -181,36 +182,78 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
 /// Every error source at its two limits, with what the calibration saw
 /// there: the calibration points sit at the reference, so they do not
 /// change from one condition to the next and are worked out once.
+///
+/// A slot in a tracking group is two sources: its own part at its limits
+/// (the group's ratio tolerance), and the group's common part, which sets
+/// every member at the limits of its common share together. The two are
+/// independent, so the GUM sum over them is eq. 13 of JCGM 100:2008 with
+/// the members' covariances, and the worst case moves the common part as
+/// one source with each own part at its limits.
 pub struct Perturbations {
     nominal: Calibrated,
     sources: Vec<Perturbation>,
 }
 
 struct Perturbation {
-    slot: usize,
-    limits: [(f64, Calibrated); 2],
+    id: String,
+    kind: &'static str,
+    normal: bool,
+    /// The slots it moves and their values at its lower and upper limit.
+    slots: Vec<usize>,
+    limits: [(Vec<f64>, Calibrated); 2],
 }
 
 impl Perturbations {
     pub fn of(plan: &Plan) -> Result<Perturbations, EvalError> {
         let mut values = plan.nominal.clone();
+        let mut at = |slots: &[usize], xs: Vec<f64>| -> Result<(Vec<f64>, Calibrated), EvalError> {
+            for (&s, &x) in slots.iter().zip(&xs) {
+                values[s] = x;
+            }
+            let calibrated = plan.calibration(&values);
+            for &s in slots {
+                values[s] = plan.nominal[s];
+            }
+            Ok((xs, calibrated?))
+        };
         let mut sources = Vec::new();
         for (s, slot) in plan.slots.iter().enumerate() {
             if slot.kind == SourceKind::Exact {
                 continue;
             }
-            let mut at = |x: f64| -> Result<(f64, Calibrated), EvalError> {
-                values[s] = x;
-                let calibrated = plan.calibration(&values);
-                values[s] = plan.nominal[s];
-                Ok((x, calibrated?))
+            let own = own_fraction(&plan.groups, s);
+            let (low, high) = if own == 1.0 {
+                (slot.nominal - slot.minus, slot.nominal + slot.plus)
+            } else {
+                let (h, mid) = half_width(slot);
+                (mid - own * h, mid + own * h)
             };
             sources.push(Perturbation {
-                slot: s,
-                limits: [
-                    at(slot.nominal - slot.minus)?,
-                    at(slot.nominal + slot.plus)?,
-                ],
+                id: slot.id.clone(),
+                kind: slot.kind.name(),
+                normal: slot.normal,
+                slots: vec![s],
+                limits: [at(&[s], vec![low])?, at(&[s], vec![high])?],
+            });
+        }
+        for group in &plan.groups {
+            let slots: Vec<usize> = group.parts.iter().map(|p| p.slot).collect();
+            let side = |sign: f64| -> Vec<f64> {
+                group
+                    .parts
+                    .iter()
+                    .map(|p| {
+                        let (h, mid) = half_width(&plan.slots[p.slot]);
+                        mid + sign * p.common * h
+                    })
+                    .collect()
+            };
+            sources.push(Perturbation {
+                id: group.id.clone(),
+                kind: "tracking",
+                normal: group.normal,
+                limits: [at(&slots, side(-1.0))?, at(&slots, side(1.0))?],
+                slots,
             });
         }
         Ok(Perturbations {
@@ -253,10 +296,14 @@ fn source_effects(
     r0: f64,
 ) -> Result<Vec<(f64, f64)>, EvalError> {
     let n = plan.nominal.len();
-    let limits: Vec<(usize, f64, Calibrated)> = sources
+    let limits: Vec<(&[usize], &[f64], Calibrated)> = sources
         .sources
         .iter()
-        .flat_map(|p| p.limits.iter().map(move |&(x, c)| (p.slot, x, c)))
+        .flat_map(|p| {
+            p.limits
+                .iter()
+                .map(move |(xs, c)| (p.slots.as_slice(), xs.as_slice(), *c))
+        })
         .collect();
     let mut values = plan.nominal.repeat(LANES);
     let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
@@ -264,8 +311,10 @@ fn source_effects(
     let mut changes = Vec::with_capacity(limits.len());
     for batch in limits.chunks(LANES) {
         let mut calibrated = [sources.nominal; LANES];
-        for (lane, &(slot, x, c)) in batch.iter().enumerate() {
-            values[lane * n + slot] = x;
+        for (lane, &(slots, xs, c)) in batch.iter().enumerate() {
+            for (&slot, &x) in slots.iter().zip(xs) {
+                values[lane * n + slot] = x;
+            }
             calibrated[lane] = c;
         }
         plan.unquantized_readings_calibrated(
@@ -275,8 +324,10 @@ fn source_effects(
             &mut readings,
             &mut scratch,
         )?;
-        for (lane, &(slot, ..)) in batch.iter().enumerate() {
-            values[lane * n + slot] = plan.nominal[slot];
+        for (lane, &(slots, ..)) in batch.iter().enumerate() {
+            for &slot in slots {
+                values[lane * n + slot] = plan.nominal[slot];
+            }
             changes.push(readings[lane] - r0);
         }
     }
@@ -318,11 +369,10 @@ fn point(
     let effects = source_effects(plan, env, sources, r0)?;
     let mut contributions = Vec::with_capacity(sources.sources.len() + 3);
     for (source, &(low, high)) in sources.sources.iter().zip(&effects) {
-        let slot = &plan.slots[source.slot];
-        let divisor = if slot.normal { 3.0 } else { SQRT3 };
+        let divisor = if source.normal { 3.0 } else { SQRT3 };
         contributions.push(Contribution {
-            id: slot.id.clone(),
-            kind: slot.kind.name(),
+            id: source.id.clone(),
+            kind: source.kind,
             low,
             high,
             worst: low.abs().max(high.abs()),

@@ -12,7 +12,10 @@ use rayon::prelude::*;
 use super::budget::Point;
 use super::draws::{condition_key, Stream};
 use super::noise::Noise;
-use crate::eval::{Env, EvalError, LaneSignals, Plan, Signal, Slot, SourceKind, LANES, MAX_NODES};
+use crate::eval::{
+    half_width, own_fraction, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot, SourceKind,
+    LANES, MAX_NODES,
+};
 
 /// Trials per task: large enough to amortise the split, small enough to
 /// balance two to many cores.
@@ -66,8 +69,18 @@ struct Draw {
 }
 
 impl Draw {
-    fn of(slot: usize, s: &Slot) -> Draw {
-        let (origin, scale) = if s.normal {
+    /// A slot's draw; a member of a tracking group draws only its own
+    /// part, `own` of its half-width about its middle (the group's common
+    /// part is added by [`Common`]).
+    fn of(slot: usize, s: &Slot, own: f64) -> Draw {
+        let (origin, scale) = if own != 1.0 {
+            let (h, mid) = half_width(s);
+            if s.normal {
+                (mid, own * h / 3.0)
+            } else {
+                (mid - own * h, 2.0 * own * h)
+            }
+        } else if s.normal {
             // A normal limit is a 3σ bound about the interval's middle.
             (
                 s.nominal + (s.plus - s.minus) / 2.0,
@@ -93,6 +106,38 @@ impl Draw {
             stream.uniform(t)
         };
         self.origin + self.scale * x
+    }
+}
+
+/// A tracking group's common part: one draw x on [−1, 1] (or a 3σ
+/// normal) per trial, adding c_i h_i x to every member.
+#[derive(Clone, Debug)]
+struct Common {
+    normal: bool,
+    /// Each member's slot and c_i h_i.
+    parts: Vec<(usize, f64)>,
+}
+
+impl Common {
+    fn of(group: &Group, plan: &Plan) -> Common {
+        Common {
+            normal: group.normal,
+            parts: group
+                .parts
+                .iter()
+                .map(|p| (p.slot, p.common * half_width(&plan.slots[p.slot]).0))
+                .collect(),
+        }
+    }
+
+    /// Trial `t`'s draw on the unit half-width.
+    #[inline]
+    fn unit(&self, stream: Stream, t: u64) -> f64 {
+        if self.normal {
+            stream.normal(t) / 3.0
+        } else {
+            2.0 * stream.uniform(t) - 1.0
+        }
     }
 }
 
@@ -198,6 +243,8 @@ pub fn sample(
 /// stream, and the streams of noise and quantization where they act.
 struct Streams {
     sources: Vec<(Draw, Stream)>,
+    /// Tracking groups' common parts, each with its id's stream.
+    groups: Vec<(Common, Stream)>,
     noise: Option<Stream>,
     quantization: Option<Stream>,
 }
@@ -209,9 +256,14 @@ impl Streams {
             .sources
             .iter()
             .map(|(d, s)| (plan.slots[d.slot].id.as_str(), *s));
+        let groups = plan
+            .groups
+            .iter()
+            .zip(&self.groups)
+            .map(|(g, (_, s))| (g.id.as_str(), *s));
         let noise = self.noise.map(|s| (NOISE_ID, s));
         let quantization = self.quantization.map(|s| (QUANTIZATION_ID, s));
-        sources.chain(noise).chain(quantization)
+        sources.chain(groups).chain(noise).chain(quantization)
     }
 
     fn new(plan: &Plan, condition: &Condition, noise: &Noise, seed: u64) -> Streams {
@@ -221,11 +273,20 @@ impl Streams {
             .iter()
             .enumerate()
             .filter(|(_, slot)| slot.kind != SourceKind::Exact)
-            .map(|(s, slot)| (Draw::of(s, slot), Stream::new(seed, &slot.id, key)))
+            .map(|(s, slot)| {
+                let own = own_fraction(&plan.groups, s);
+                (Draw::of(s, slot, own), Stream::new(seed, &slot.id, key))
+            })
+            .collect();
+        let groups = plan
+            .groups
+            .iter()
+            .map(|g| (Common::of(g, plan), Stream::new(seed, &g.id, key)))
             .collect();
         let acts = |on: bool, id| on.then(|| Stream::new(seed, id, key));
         Streams {
             sources,
+            groups,
             noise: acts(noise.sigma_averaged != 0.0, NOISE_ID),
             quantization: acts(condition.quantization != (0.0, 0.0), QUANTIZATION_ID),
         }
@@ -327,6 +388,14 @@ fn chunk_errors(
         for &(draw, stream) in &streams.sources {
             for lane in 0..lanes {
                 values[lane * slots + draw.slot] = draw.value(stream, t0 + lane as u64);
+            }
+        }
+        for (common, stream) in &streams.groups {
+            for lane in 0..lanes {
+                let x = common.unit(*stream, t0 + lane as u64);
+                for &(slot, scale) in &common.parts {
+                    values[lane * slots + slot] += scale * x;
+                }
             }
         }
         if lanes == LANES {

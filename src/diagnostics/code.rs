@@ -101,6 +101,13 @@ codes! {
     M227 => Error, "amplifier reference that is not a voltage";
     M228 => Error, "amplifier reference given twice";
     M229 => Error, "bias on a sensor that has no use for one";
+    M240 => Error, "stage tracked twice";
+    M241 => Error, "tracking group of one";
+    M242 => Error, "tracking group of mixed quantities";
+    M243 => Error, "tracked stage without a tolerance";
+    M244 => Error, "ratio tolerance wider than the parts' own";
+    M245 => Error, "malformed tracking group";
+    M246 => Error, "duplicate tracking group name";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";

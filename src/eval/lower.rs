@@ -645,7 +645,9 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
         adc,
         series_below,
         sense_error,
+        groups: Vec::new(),
     };
+    plan.groups = super::track::lower_groups(chain, &plan.nodes, &plan.slots, node_of);
     let fitted = fit_conversions(&mut plan, chain, &order);
     Ok((plan, fitted))
 }

@@ -12,6 +12,7 @@ mod element;
 mod lower;
 mod plan;
 mod run;
+mod track;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
@@ -20,3 +21,4 @@ pub use plan::{
     Senses, Signal, Slot, SlotId, SourceKind,
 };
 pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};
+pub use track::{half_width, own_fraction, Group, GroupPart};

@@ -434,4 +434,7 @@ pub struct Plan {
     pub series_below: Vec<Vec<NodeId>>,
     /// For each sensor node, the error of the temperature it senses.
     pub sense_error: Vec<SenseError>,
+    /// The common components of tracking groups, each moving several
+    /// slots together.
+    pub groups: Vec<super::track::Group>,
 }

@@ -25,6 +25,8 @@ pub struct Chain {
     pub alarms: Vec<Alarm>,
     pub stages: Vec<Stage>,
     pub connections: Vec<Connection>,
+    /// Stages whose values track each other (`track` lines).
+    pub groups: Vec<TrackGroup>,
 }
 
 impl Chain {
@@ -128,5 +130,28 @@ pub struct Connection {
     pub from_port: Port,
     pub to: usize,
     pub to_port: Port,
+    pub span: Span,
+}
+
+/// A tracking group: stages from one network or lot. Each member's
+/// value keeps its own tolerance; the ratio of any two holds within
+/// ± `ratio`, and their drifts differ by at most `tracking` per kelvin.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TrackGroup {
+    pub name: String,
+    pub name_span: Span,
+    pub members: Vec<TrackMember>,
+    /// The ratio tolerance, a fraction.
+    pub ratio: f64,
+    /// The tracking drift, a fraction per kelvin; without it the members'
+    /// drifts stay independent.
+    pub tracking: Option<f64>,
+    pub span: Span,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct TrackMember {
+    /// Index into `Chain::stages`.
+    pub stage: usize,
     pub span: Span,
 }

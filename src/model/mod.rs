@@ -10,12 +10,13 @@ pub mod schema;
 mod settings;
 mod stage;
 mod suggest;
+pub mod track;
 pub mod value;
 
 use std::path::Path;
 use std::sync::Arc;
 
-pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage};
+pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember};
 pub use graph::output_signals;
 pub use parts::PartsCache;
 pub use settings::DEFAULT_REFERENCE_K;
@@ -205,6 +206,7 @@ pub fn resolve_with(
             .reference
             .or(defaults.reference)
             .unwrap_or(DEFAULT_REFERENCE_K);
+        let groups = track::resolve(file, &decl.tracks, &stages, &mut findings);
         chains.push(Chain {
             name: decl.name.name.clone(),
             name_span: decl.name.span,
@@ -221,6 +223,7 @@ pub fn resolve_with(
             alarms: settings.alarms,
             stages,
             connections,
+            groups,
         });
     }
     (chains, findings)

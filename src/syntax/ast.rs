@@ -37,6 +37,18 @@ pub struct ChainDecl {
     pub settings: Vec<Setting>,
     pub stages: Vec<StageDecl>,
     pub edges: Vec<EdgeDecl>,
+    pub tracks: Vec<TrackDecl>,
+    pub span: Span,
+}
+
+/// `track name: a, b ratio ± 0.02 % tracking 2 ppm/K`: stages whose
+/// values track each other, and the values that say how closely, as
+/// written.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TrackDecl {
+    pub name: Ident,
+    pub members: Vec<Ident>,
+    pub values: Vec<Value>,
     pub span: Span,
 }
 

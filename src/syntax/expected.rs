@@ -19,6 +19,10 @@ fn describe(rule: Rule) -> Option<&'static str> {
         Rule::setting | Rule::setting_kw => "a setting such as `measurand`",
         Rule::stage | Rule::stage_kind | Rule::stage_head => "a stage such as `sensor probe {`",
         Rule::part_ref => "`: part_name`",
+        Rule::track | Rule::kw_track => {
+            "a tracking group such as `track pair: r1, r2 ratio ± 0.01 %`"
+        }
+        Rule::track_members => "the stages of a tracking group, separated by `,`",
         Rule::param | Rule::param_line => "a parameter line",
         Rule::chain_line => "a statement",
         Rule::edge | Rule::endpoint => "an edge such as `a -> b`",
@@ -147,8 +151,15 @@ pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Find
         Span::new(start, start + first.len())
     };
     let is_stage = StageKind::from_keyword(first).is_some();
-    let is_setting = SettingKind::from_keyword(first).is_some();
+    let is_setting = SettingKind::from_keyword(first).is_some() || first == "track";
     match anchored {
+        // A malformed `track` line also fails as an edge from a stage
+        // called `track`; say what the line was meant to be.
+        Rule::chain_line if first == "track" && !head.contains("->") => Finding {
+            message: "a `track` line names its group, then its stages after a `:`".into(),
+            ..finding
+        }
+        .help("write `track name: a, b ratio ± 0.02 %`, optionally followed by `tracking 2 ppm/K`"),
         Rule::top_line if is_stage || is_setting || head.contains("->") => {
             let mut f = Finding::new(
                 Code::S011,
@@ -163,6 +174,7 @@ pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Find
         Rule::top_line | Rule::chain_line if !is_stage && !is_setting && !head.contains("->") => {
             let mut candidates: Vec<&str> = StageKind::ALL.iter().map(|k| k.keyword()).collect();
             candidates.extend(SettingKind::ALL.iter().map(|k| k.keyword()));
+            candidates.push("track");
             if anchored == Rule::top_line {
                 candidates = vec!["chain", "use"];
             }

@@ -193,12 +193,15 @@ fn scan_number(s: &str) -> (String, usize) {
 fn render(tokens: &[Token<'_>]) -> String {
     let mut out = String::new();
     let mut prev: Option<&Token<'_>> = None;
+    // A `track` line's colon closes its name, as in prose.
+    let tracking = matches!(tokens.first(), Some(Token::Word("track")));
     for t in tokens {
         let text = match t {
             Token::Number(n) => n.as_str(),
             Token::Word(w) | Token::Text(w) | Token::Punct(w) => w,
         };
         let glue = matches!(t, Token::Punct("." | "," | ";"))
+            || (tracking && matches!(t, Token::Punct(":")))
             || matches!(prev, Some(Token::Punct(".")))
             || prev.is_none();
         if !glue {
@@ -239,5 +242,13 @@ mod tests {
             "chain a \"a # not a comment\" {\n    # lead\n    title \"x  y\"\n}\n"
         );
         assert_eq!(format_source(&once), once);
+    }
+
+    #[test]
+    fn tracking_line() {
+        let src = "chain a {\n  track   pair :rlow,refdiv   ratio ±0.02%  tracking 2ppm/K\n}\n";
+        let want = "chain a {\n    track pair: rlow, refdiv ratio ± 0.02 % tracking 2 ppm/K\n}\n";
+        assert_eq!(format_source(src), want);
+        assert_eq!(format_source(want), want);
     }
 }

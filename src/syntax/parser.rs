@@ -8,7 +8,8 @@ use pest::Parser as _;
 
 use super::ast::{
     Ast, ChainDecl, EdgeDecl, Endpoint, Ident, Param, QuantityLit, RangeLit, Setting, SettingKind,
-    StageDecl, StageKind, StringLit, ToleranceForm, ToleranceLit, UnitLit, UseDecl, Value,
+    StageDecl, StageKind, StringLit, ToleranceForm, ToleranceLit, TrackDecl, UnitLit, UseDecl,
+    Value,
 };
 use super::expected::explain_parse_error;
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
@@ -88,6 +89,7 @@ impl Lower<'_> {
             settings: Vec::new(),
             stages: Vec::new(),
             edges: Vec::new(),
+            tracks: Vec::new(),
             span,
         };
         for item in pair.into_inner() {
@@ -101,6 +103,7 @@ impl Lower<'_> {
                 }
                 Rule::stage => chain.stages.push(self.stage(item)),
                 Rule::edge => chain.edges.push(self.edge(item)),
+                Rule::track => chain.tracks.push(self.track(item)),
                 Rule::bad_chain_line => self.bad_line(item, Rule::chain_line),
                 _ => {}
             }
@@ -166,6 +169,31 @@ impl Lower<'_> {
         );
         Param {
             name,
+            values: inner.filter_map(|v| self.value(v)).collect(),
+            span,
+        }
+    }
+
+    fn track(&mut self, pair: Pair<'_, Rule>) -> TrackDecl {
+        let span = span_of(&pair);
+        let mut inner = pair.into_inner();
+        inner
+            .next()
+            .expect("grammar: a track line starts with `track`");
+        let name = ident(
+            &inner
+                .next()
+                .expect("grammar: `track` is followed by a name"),
+        );
+        let members = inner
+            .next()
+            .expect("grammar: a track line lists its members")
+            .into_inner()
+            .map(|m| ident(&m))
+            .collect();
+        TrackDecl {
+            name,
+            members,
             values: inner.filter_map(|v| self.value(v)).collect(),
             span,
         }
