@@ -314,3 +314,31 @@ fn compare_lines_candidates_up() {
         ]
     );
 }
+
+/// A tracking group added between two dividers is a spec change of its own.
+#[test]
+fn a_tracking_group_is_a_spec_change() {
+    let run = catena(
+        &root(),
+        &[
+            "diff",
+            "tests/fixtures/budget/unmatched_divider.catena",
+            "tests/fixtures/budget/matched_divider.catena",
+            "--trials",
+            "0",
+            "--format",
+            "json",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let spec = &json(&run.stdout)["files"][0]["chains"][0]["spec"];
+    let group = spec
+        .as_array()
+        .expect("spec changes")
+        .iter()
+        .find(|c| c["what"] == "tracking group")
+        .unwrap_or_else(|| panic!("no tracking group change: {spec}"));
+    assert_eq!(group["kind"], "added");
+    assert_eq!(group["subject"], "pair");
+}

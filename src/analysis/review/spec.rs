@@ -20,7 +20,8 @@ pub enum ChangeKind {
 /// One change, with the text and line on each side that has it.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct SpecChange {
-    /// `setting`, `requirement`, `alarm`, `stage`, `parameter`, `edge`.
+    /// `setting`, `requirement`, `alarm`, `stage`, `parameter`, `edge`,
+    /// `tracking group`.
     pub what: &'static str,
     pub kind: ChangeKind,
     /// `front.gain`, `drive -> probe`, `measurand`.
@@ -59,7 +60,44 @@ pub fn spec_changes(old: &Chain, new: &Chain) -> Vec<SpecChange> {
     settings(old, new, &mut out);
     stages(old, new, &mut out);
     edges(old, new, &mut out);
+    groups(old, new, &mut out);
     out
+}
+
+/// Tracking groups by name: their members (by stage name), ratio and
+/// tracking drift.
+fn groups(old: &Chain, new: &Chain, out: &mut Vec<SpecChange>) {
+    let meaning = |c: &Chain, g: &crate::model::TrackGroup| {
+        let mut members: Vec<String> = g
+            .members
+            .iter()
+            .filter_map(|m| c.stages.get(m.stage).map(|s| s.name.clone()))
+            .collect();
+        members.sort();
+        (members, g.ratio, g.tracking)
+    };
+    let at = |c: &Chain, g: &crate::model::TrackGroup| locate(&c.file, &c.file, g.span);
+    for g in &new.groups {
+        let before = old.groups.iter().find(|o| o.name == g.name);
+        if before.is_none_or(|o| meaning(old, o) != meaning(new, g)) {
+            out.push(change(
+                "tracking group",
+                g.name.clone(),
+                before.map(|o| at(old, o)),
+                Some(at(new, g)),
+            ));
+        }
+    }
+    for o in &old.groups {
+        if !new.groups.iter().any(|g| g.name == o.name) {
+            out.push(change(
+                "tracking group",
+                o.name.clone(),
+                Some(at(old, o)),
+                None,
+            ));
+        }
+    }
 }
 
 fn change(
