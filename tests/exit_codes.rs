@@ -82,6 +82,51 @@ const CASES: &[(&str, i32, &[&str])] = &[
     ("catena completions", 2, &["completions", "teletype"]),
     ("catena man", 0, &["man", "check"]),
     ("catena man", 2, &["man", "frobnicate"]),
+    (
+        "catena diff",
+        0,
+        &[
+            "diff",
+            "--trials",
+            "0",
+            "tests/fixtures/diff/cold_store.catena",
+            "tests/fixtures/diff/cold_store_moved.catena",
+        ],
+    ),
+    (
+        "catena diff",
+        1,
+        &[
+            "diff",
+            "--trials",
+            "0",
+            "--fail-on",
+            "regression",
+            "tests/fixtures/diff/cold_store.catena",
+            "tests/fixtures/diff/cold_store_gain.catena",
+        ],
+    ),
+    ("catena diff", 2, &["diff", "specs/cold_store.catena"]),
+    (
+        "catena compare",
+        0,
+        &["compare", "--trials", "0", "specs/cold_store.catena"],
+    ),
+    (
+        "catena compare",
+        1,
+        &[
+            "compare",
+            "--trials",
+            "0",
+            "tests/fixtures/invalid/U103-missing-unit.catena",
+        ],
+    ),
+    (
+        "catena compare",
+        2,
+        &["compare", "specs/cold_store.catena#no_such_chain"],
+    ),
     ("catena", 0, &["--version"]),
     ("catena", 2, &["frobnicate"]),
 ];

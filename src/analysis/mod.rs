@@ -11,6 +11,7 @@ pub mod noise;
 pub mod ranges;
 pub mod report;
 pub mod requirements;
+pub mod review;
 pub mod settling;
 pub mod shares;
 pub mod soundness;

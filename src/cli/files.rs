@@ -165,6 +165,20 @@ pub fn check_one(
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
+    Ok(check_configured(&path.to_string_lossy(), &bytes, base))
+}
+
+/// Checks a spec's bytes as [`check_one`] does, `base` being its folder
+/// (for `use` paths and the `catena.yaml` lookup) and `name` how findings
+/// show it.
+pub fn check_configured(
+    name: &str,
+    bytes: &[u8],
+    base: &Path,
+) -> (
+    crate::check::CheckedFile,
+    std::sync::Arc<crate::config::Config>,
+) {
     let mut configs = super::settings::Configs::default();
     let config = configs.for_folder(base);
     let bytes = match read {
@@ -185,8 +199,8 @@ pub fn check_one(
         ..Default::default()
     };
     let mut checked = crate::check::check_bytes_configured(
-        &path.to_string_lossy(),
-        &bytes,
+        name,
+        bytes,
         base,
         &mut crate::model::PartsCache::default(),
         &options,
@@ -200,5 +214,5 @@ pub fn check_one(
         findings.push(f);
     }
     checked.findings = findings;
-    Ok((checked, config))
+    (checked, config)
 }

@@ -5,11 +5,15 @@ mod output;
 mod budget;
 mod budget_table;
 mod check;
+mod compare;
+mod diff;
+mod diff_render;
 mod eval;
 mod explain;
 mod files;
 mod fmt;
 mod generate;
+mod revision;
 mod settings;
 mod terminal;
 
@@ -43,6 +47,10 @@ enum Command {
     Budget(budget::BudgetArgs),
     /// Evaluate a chain at one measurand value: every stage's output.
     Eval(eval::EvalArgs),
+    /// What a change did to a chain: spec, verdicts, margins, headroom.
+    Diff(diff::DiffArgs),
+    /// Candidate chains side by side: a trade table.
+    Compare(compare::CompareArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
     /// Print a shell's completion script for catena.
@@ -71,6 +79,8 @@ pub fn run() -> ExitCode {
         Command::Fmt(args) => fmt::run(args),
         Command::Budget(args) => budget::run(args),
         Command::Eval(args) => eval::run(args),
+        Command::Diff(args) => diff::run(args),
+        Command::Compare(args) => compare::run(args),
         Command::Explain(args) => explain::run(args),
         Command::Completions(args) => generate::completions(args),
         Command::Man(args) => generate::man(args),

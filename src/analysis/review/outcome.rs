@@ -1,0 +1,277 @@
+//! What one chain achieves, in the figures a review compares: requirement
+//! verdicts with their margins, each method's worst point, every source's
+//! largest part, the headroom to every limit, resolution, response, the
+//! converter's code window and the alarm thresholds. Values are in the
+//! units a report shows (errors in the measurand's difference unit,
+//! positions in its unit as written, ambients in degC).
+
+use serde::Serialize;
+
+use super::super::report::Analysis;
+use crate::eval::{Env, Plan};
+use crate::model::Chain;
+use crate::units::format::from_si;
+
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct RequirementOutcome {
+    /// `accuracy`, `resolution`, `response`, `rejection`.
+    pub name: &'static str,
+    pub method: String,
+    /// In `unit`: the difference unit, `s`, or `dB` for a rejection.
+    pub limit: f64,
+    pub achieved: f64,
+    /// How far `achieved` stays inside `limit` (negative: beyond it).
+    pub margin: f64,
+    pub unit: String,
+    pub pass: bool,
+    /// A Monte Carlo verdict's numerical width, in `unit`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub numerical: Option<f64>,
+}
+
+impl RequirementOutcome {
+    /// The margin as a share of the limit's magnitude.
+    pub fn margin_share(&self) -> f64 {
+        self.margin / self.limit.abs().max(f64::MIN_POSITIVE)
+    }
+}
+
+/// A method's largest error over every budget point and where it lies.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct MethodWorst {
+    /// `worst_case`, `gum` (expanded) or `monte_carlo` (the larger end).
+    pub method: &'static str,
+    pub value: f64,
+    pub measurand: f64,
+    pub ambient: f64,
+    /// Monte Carlo only: how far the interval's ends may be off.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub numerical: Option<f64>,
+}
+
+/// One source's largest part over the budget points.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct SourceOutcome {
+    pub id: String,
+    pub kind: &'static str,
+    /// Its largest worst-case contribution.
+    pub contribution: f64,
+    /// Its largest standard uncertainty.
+    pub standard_uncertainty: f64,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct LimitOutcome {
+    pub stage: String,
+    pub limit: &'static str,
+    /// The share of the limit's span left (negative: beyond it).
+    pub headroom: f64,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct AlarmOutcome {
+    pub side: String,
+    pub at: f64,
+    pub trip_at: f64,
+    pub trip_code: i64,
+    pub guard_band: f64,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Outcome {
+    pub chain: String,
+    /// Errors' unit.
+    pub unit: String,
+    pub measurand_unit: String,
+    pub requirements: Vec<RequirementOutcome>,
+    pub worst: Vec<MethodWorst>,
+    pub sources: Vec<SourceOutcome>,
+    pub limits: Vec<LimitOutcome>,
+    /// Noise-free resolution after averaging, or one code where coarser.
+    pub resolution: f64,
+    /// 0 → 90 % step response, s.
+    pub response_s: Option<f64>,
+    /// The nominal chain's codes at the measurand range's ends, at the
+    /// reference temperature.
+    pub window: Option<[i64; 2]>,
+    pub alarms: Vec<AlarmOutcome>,
+    /// The largest contributor at the worst GUM point and its share of
+    /// the variance (0…1).
+    pub largest: Option<(String, f64)>,
+    pub trials: usize,
+    /// Below this, in `unit`, two errors are the same: a contribution is
+    /// the difference of two readings, so rounding leaves a few ulps of
+    /// the measurand's magnitude on it however small it is.
+    pub floor: f64,
+}
+
+/// The share of the measurand's magnitude below which an error change is
+/// rounding: about 5000 ulps, far below any physical effect.
+const FLOOR_SHARE: f64 = 1e-12;
+
+pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
+    let (unit, f) = chain.difference_unit();
+    let m_unit = chain
+        .measurand
+        .as_ref()
+        .map(|m| m.unit.clone())
+        .unwrap_or_default();
+    Outcome {
+        chain: chain.name.clone(),
+        requirements: a
+            .verdicts
+            .iter()
+            .map(|v| requirement(v, &unit, f))
+            .collect(),
+        worst: worst(a, &m_unit, f),
+        sources: sources(a, f),
+        limits: a
+            .envelopes
+            .iter()
+            .map(|e| LimitOutcome {
+                stage: a.names.get(e.node).cloned().unwrap_or_default(),
+                limit: e.limit.describe(),
+                headroom: e.headroom(),
+            })
+            .collect(),
+        resolution: resolution(a) * f,
+        response_s: a.dynamics.response_90,
+        window: window(plan),
+        alarms: a
+            .alarms
+            .iter()
+            .map(|x| AlarmOutcome {
+                side: x.side.clone(),
+                at: from_si(x.at, &m_unit),
+                trip_at: from_si(x.trip_at, &m_unit),
+                trip_code: x.trip_code,
+                guard_band: x.guard_band * f,
+            })
+            .collect(),
+        largest: largest(a),
+        trials: a.trials,
+        floor: chain
+            .measurand
+            .as_ref()
+            .map_or(0.0, |m| FLOOR_SHARE * m.low.abs().max(m.high.abs()) * f),
+        unit,
+        measurand_unit: m_unit,
+    }
+}
+
+fn requirement(v: &super::super::requirements::Verdict, unit: &str, f: f64) -> RequirementOutcome {
+    let db = |x: f64| 20.0 * x.log10();
+    let (limit, achieved, margin, unit) = match v.name {
+        "accuracy" | "resolution" => (
+            v.limit * f,
+            v.achieved * f,
+            (v.limit - v.achieved) * f,
+            unit.to_string(),
+        ),
+        "rejection" => (
+            db(v.limit),
+            db(v.achieved),
+            db(v.achieved) - db(v.limit),
+            "dB".to_string(),
+        ),
+        _ => (v.limit, v.achieved, v.limit - v.achieved, "s".to_string()),
+    };
+    RequirementOutcome {
+        name: v.name,
+        method: v.method.clone(),
+        limit,
+        achieved,
+        margin,
+        unit,
+        pass: v.pass,
+        numerical: v.numerical.map(|w| w * f),
+    }
+}
+
+fn worst(a: &Analysis, m_unit: &str, f: f64) -> Vec<MethodWorst> {
+    let points = &a.budget.points;
+    let at = |i: usize, method, value: f64, numerical| MethodWorst {
+        method,
+        value: value * f,
+        measurand: from_si(points[i].measurand, m_unit),
+        ambient: from_si(points[i].ambient, "degC"),
+        numerical,
+    };
+    let argmax = |value: &dyn Fn(usize) -> f64| {
+        (0..points.len()).max_by(|&x, &y| value(x).total_cmp(&value(y)))
+    };
+    let mut out = Vec::new();
+    if let Some(i) = argmax(&|i| points[i].worst_case) {
+        out.push(at(i, "worst_case", points[i].worst_case, None));
+    }
+    if let Some(i) = argmax(&|i| points[i].gum_expanded) {
+        out.push(at(i, "gum", points[i].gum_expanded, None));
+    }
+    if let Some(mc) = &a.monte_carlo {
+        let end = |i: usize| mc[i].low.abs().max(mc[i].high.abs());
+        if let Some(i) = argmax(&end) {
+            out.push(at(i, "monte_carlo", end(i), Some(mc[i].numerical * f)));
+        }
+    }
+    out
+}
+
+fn sources(a: &Analysis, f: f64) -> Vec<SourceOutcome> {
+    let mut out: Vec<SourceOutcome> = Vec::new();
+    for p in &a.budget.points {
+        for c in &p.contributions {
+            match out.iter_mut().find(|s| s.id == c.id) {
+                Some(s) => {
+                    s.contribution = s.contribution.max(c.worst * f);
+                    s.standard_uncertainty = s.standard_uncertainty.max(c.standard * f);
+                }
+                None => out.push(SourceOutcome {
+                    id: c.id.clone(),
+                    kind: c.kind,
+                    contribution: c.worst * f,
+                    standard_uncertainty: c.standard * f,
+                }),
+            }
+        }
+    }
+    out
+}
+
+/// As the resolution verdict finds it: the averaged noise-free
+/// resolution, or one code where that is coarser.
+fn resolution(a: &Analysis) -> f64 {
+    let lsb = a
+        .budget
+        .points
+        .iter()
+        .map(|p| p.code_step())
+        .fold(0.0, f64::max);
+    a.budget.noise.noise_free_averaged.max(lsb)
+}
+
+fn largest(a: &Analysis) -> Option<(String, f64)> {
+    let p = a
+        .budget
+        .points
+        .iter()
+        .max_by(|x, y| x.gum_expanded.total_cmp(&y.gum_expanded))?;
+    let total = (p.gum_standard * p.gum_standard).max(f64::MIN_POSITIVE);
+    p.contributions
+        .iter()
+        .max_by(|x, y| x.standard.total_cmp(&y.standard))
+        .map(|c| (c.id.clone(), c.standard * c.standard / total))
+}
+
+fn window(plan: &Plan) -> Option<[i64; 2]> {
+    let code = |m: f64| {
+        let env = Env {
+            measurand: m,
+            ambient: plan.reference,
+            cold_junction: plan.reference,
+        };
+        plan.exact_code(&plan.nominal, &env, plan.adc)
+            .ok()
+            .map(|c| c.round() as i64)
+    };
+    Some([code(plan.range.0)?, code(plan.range.1)?])
+}

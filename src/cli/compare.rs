@@ -1,0 +1,186 @@
+//! `catena compare SPEC...`: candidate chains side by side — every
+//! requirement's achieved value and margin, resolution, response, the
+//! largest contributor and the worst headroom — a trade table.
+
+use clap::Args;
+use serde::Serialize;
+
+use super::diff::{evaluate, load, options, ReviewFormat};
+use super::diff_render::{markdown_table, num, plain_table};
+use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::review::Outcome;
+
+#[derive(Args, Debug)]
+pub struct CompareArgs {
+    /// Specs (`FILE` for all its chains, or `FILE#chain`).
+    #[arg(required = true)]
+    specs: Vec<String>,
+    #[arg(long, value_enum, default_value_t = ReviewFormat::Human)]
+    format: ReviewFormat,
+    /// Monte Carlo trials per point (0: none).
+    #[arg(long, default_value_t = DEFAULT_TRIALS)]
+    trials: usize,
+    /// The Monte Carlo seed, the same for every candidate.
+    #[arg(long, default_value_t = DEFAULT_SEED)]
+    seed: u64,
+}
+
+#[derive(Serialize)]
+struct Candidate {
+    /// `FILE#chain`.
+    name: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    outcome: Option<Outcome>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    note: Option<String>,
+}
+
+#[derive(Serialize)]
+struct CompareReport {
+    schema_version: u32,
+    trials: usize,
+    seed: u64,
+    candidates: Vec<Candidate>,
+}
+
+pub fn run(args: CompareArgs) -> u8 {
+    if args.trials > MAX_TRIALS {
+        eprintln!("catena: --trials is at most {MAX_TRIALS}");
+        return EXIT_USAGE;
+    }
+    let options = options(args.trials, args.seed);
+    let mut candidates = Vec::new();
+    for spec in &args.specs {
+        let side = match load(spec) {
+            Ok(s) => s,
+            Err(status) => return status,
+        };
+        let file = spec.rsplit_once('#').map_or(spec.as_str(), |(f, _)| f);
+        let chains: Vec<_> = side
+            .checked
+            .chains
+            .iter()
+            .filter(|c| side.chain.as_ref().is_none_or(|n| &c.name == n))
+            .collect();
+        if chains.is_empty() {
+            eprintln!("catena: no chain to compare in `{spec}`");
+            return EXIT_USAGE;
+        }
+        for chain in chains {
+            let (outcome, note) = match evaluate(&side.checked, chain, &options) {
+                Ok(o) => (Some(o), None),
+                Err(e) => (None, Some(e)),
+            };
+            candidates.push(Candidate {
+                name: format!("{file}#{}", chain.name),
+                outcome,
+                note,
+            });
+        }
+    }
+    let report = CompareReport {
+        schema_version: 1,
+        trials: args.trials,
+        seed: args.seed,
+        candidates,
+    };
+    let (header, rows) = table(&report.candidates);
+    let header: Vec<&str> = header.iter().map(String::as_str).collect();
+    match args.format {
+        ReviewFormat::Json => {
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&report).unwrap_or_default()
+            )
+        }
+        ReviewFormat::Markdown => {
+            print!("## Catena compare\n\n{}", markdown_table(&header, &rows));
+        }
+        ReviewFormat::Human => print!("{}", plain_table(&header, &rows)),
+    }
+    if report.candidates.iter().any(|c| c.outcome.is_none()) {
+        EXIT_FINDINGS
+    } else {
+        EXIT_OK
+    }
+}
+
+/// One column per candidate, one row per figure.
+fn table(candidates: &[Candidate]) -> (Vec<String>, Vec<Vec<String>>) {
+    let mut header = vec![String::new()];
+    header.extend(candidates.iter().map(|c| c.name.clone()));
+    let mut names: Vec<&'static str> = Vec::new();
+    for o in candidates.iter().filter_map(|c| c.outcome.as_ref()) {
+        for r in &o.requirements {
+            if !names.contains(&r.name) {
+                names.push(r.name);
+            }
+        }
+    }
+    let mut rows: Vec<Vec<String>> = Vec::new();
+    let mut row = |label: String, cell: &dyn Fn(&Outcome) -> String| {
+        let mut r = vec![label];
+        r.extend(candidates.iter().map(|c| match &c.outcome {
+            Some(o) => cell(o),
+            None => c.note.clone().unwrap_or_default(),
+        }));
+        rows.push(r);
+    };
+    for name in names {
+        row(format!("{name} achieved (margin)"), &|o| {
+            o.requirements
+                .iter()
+                .find(|r| r.name == name)
+                .map_or("—".into(), |r| {
+                    format!(
+                        "{} {} ({} {}){}",
+                        num(r.achieved),
+                        r.unit,
+                        num(r.margin),
+                        r.unit,
+                        if r.pass { "" } else { " FAIL" }
+                    )
+                })
+        });
+    }
+    for method in ["worst_case", "gum", "monte_carlo"] {
+        row(format!("worst {}", method.replace('_', " ")), &|o| {
+            o.worst
+                .iter()
+                .find(|w| w.method == method)
+                .map_or("—".into(), |w| {
+                    format!(
+                        "{} {} at {} {}",
+                        num(w.value),
+                        o.unit,
+                        num(w.measurand),
+                        o.measurand_unit
+                    )
+                })
+        });
+    }
+    row("resolution".into(), &|o| {
+        format!("{} {}", num(o.resolution), o.unit)
+    });
+    row("response (90 %)".into(), &|o| {
+        o.response_s.map_or("—".into(), |t| format!("{} s", num(t)))
+    });
+    row("largest contributor".into(), &|o| {
+        o.largest.as_ref().map_or("—".into(), |(id, share)| {
+            format!("{id} ({:.0} %)", share * 100.0)
+        })
+    });
+    row("least headroom".into(), &|o| {
+        o.limits
+            .iter()
+            .min_by(|a, b| a.headroom.total_cmp(&b.headroom))
+            .map_or("—".into(), |l| {
+                format!("{} % ({} {})", num(l.headroom * 100.0), l.stage, l.limit)
+            })
+    });
+    row("code window".into(), &|o| {
+        o.window.map_or("—".into(), |[a, b]| format!("{a} .. {b}"))
+    });
+    (header, rows)
+}

@@ -1,0 +1,344 @@
+//! `catena diff` and `catena compare` through the binary: a gain change
+//! shows in the budget and the headroom, a change that moves nothing
+//! reports no change, `--rev` follows a rename and reads the parts file
+//! from the revision, and candidate chains line up side by side.
+
+mod common;
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use common::{catena, root};
+
+const FIXTURES: &str = "tests/fixtures/diff";
+/// Enough trials for Monte Carlo to run on both sides, few enough for a
+/// debug build.
+const TRIALS: &str = "2000";
+
+fn fixture(name: &str) -> String {
+    format!("{FIXTURES}/{name}")
+}
+
+fn json(text: &str) -> serde_json::Value {
+    serde_json::from_str(text).expect("diff writes JSON")
+}
+
+#[test]
+fn a_gain_change_moves_the_budget_and_the_headroom() {
+    let (old, new) = (
+        fixture("cold_store.catena"),
+        fixture("cold_store_gain.catena"),
+    );
+    let human = catena(&root(), &["diff", &old, &new, "--trials", TRIALS], None);
+    assert_eq!(human.status, 0, "{}", human.stderr);
+    insta::assert_snapshot!("diff-gain-human", human.stdout);
+    let md = catena(
+        &root(),
+        &[
+            "diff", &old, &new, "--trials", TRIALS, "--format", "markdown",
+        ],
+        None,
+    );
+    insta::assert_snapshot!("diff-gain-markdown", md.stdout);
+
+    let run = catena(
+        &root(),
+        &["diff", &old, &new, "--trials", TRIALS, "--format", "json"],
+        None,
+    );
+    let doc = json(&run.stdout);
+    assert_eq!(doc["schema_version"], 1);
+    assert_eq!(doc["direction"], "worse");
+    let chain = &doc["files"][0]["chains"][0];
+    let spec = chain["spec"].as_array().expect("spec changes");
+    assert_eq!(spec.len(), 1, "only the gain changed: {spec:?}");
+    assert_eq!(spec[0]["subject"], "front.gain");
+    assert_eq!(spec[0]["new"]["line"], 34);
+    // 5/4 the gain: the converter input passes its end (headroom < 0).
+    let headroom = chain["outcome"]["headroom"].as_array().expect("headroom");
+    let conv = headroom
+        .iter()
+        .find(|m| m["name"] == "conv input")
+        .expect("conv input moved");
+    assert!(conv["old"].as_f64().unwrap() > 0.0 && conv["new"].as_f64().unwrap() < 0.0);
+    assert_eq!(chain["regression"], true);
+
+    let gated = catena(
+        &root(),
+        &[
+            "diff",
+            &old,
+            &new,
+            "--trials",
+            TRIALS,
+            "--fail-on",
+            "regression",
+        ],
+        None,
+    );
+    assert_eq!(gated.status, 1);
+}
+
+/// Stages reordered, a comment and a second chain: the compared chain's
+/// spec and results are the same, so nothing is reported beyond the new
+/// chain's name.
+#[test]
+fn a_change_that_moves_nothing_reports_no_change() {
+    let (old, new) = (
+        fixture("cold_store.catena"),
+        fixture("cold_store_moved.catena"),
+    );
+    let human = catena(
+        &root(),
+        &[
+            "diff",
+            &old,
+            &new,
+            "--trials",
+            TRIALS,
+            "--fail-on",
+            "regression",
+        ],
+        None,
+    );
+    assert_eq!(human.status, 0, "{}", human.stderr);
+    insta::assert_snapshot!("diff-moved-human", human.stdout);
+    let run = catena(
+        &root(),
+        &["diff", &old, &new, "--trials", TRIALS, "--format", "json"],
+        None,
+    );
+    let doc = json(&run.stdout);
+    assert_eq!(doc["direction"], "neutral");
+    let file = &doc["files"][0];
+    assert_eq!(file["added_chains"], serde_json::json!(["spare_store"]));
+    let chain = &file["chains"][0];
+    assert_eq!(chain["spec"], serde_json::json!([]));
+    for part in ["requirements", "worst", "contributors", "headroom", "other"] {
+        assert_eq!(
+            chain["outcome"][part],
+            serde_json::json!([]),
+            "{part} moved"
+        );
+    }
+}
+
+/// Two chains of one file compare as `FILE#chain`.
+#[test]
+fn two_chains_of_one_file_compare() {
+    let moved = fixture("cold_store_moved.catena");
+    let run = catena(
+        &root(),
+        &[
+            "diff",
+            &format!("{moved}#cold_store"),
+            &format!("{moved}#spare_store"),
+            "--trials",
+            "0",
+            "--format",
+            "json",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let chain = &json(&run.stdout)["files"][0]["chains"][0];
+    assert_eq!(chain["chain"], "spare_store");
+    assert_eq!(chain["old_chain"], "cold_store");
+    assert_eq!(chain["direction"], "neutral");
+}
+
+#[test]
+fn diff_takes_two_specs_or_a_revision() {
+    let run = catena(&root(), &["diff", &fixture("cold_store.catena")], None);
+    assert_eq!(run.status, 2);
+    assert!(run.stderr.contains("OLD and NEW"), "{}", run.stderr);
+}
+
+fn git(dir: &Path, args: &[&str]) {
+    let status = Command::new("git")
+        .args(["-c", "user.name=t", "-c", "user.email=t@example.invalid"])
+        .args(args)
+        .current_dir(dir)
+        .status()
+        .expect("git runs");
+    assert!(status.success(), "git {args:?}");
+}
+
+fn throwaway_repository(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("catena-diff-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(dir.join("specs/parts")).expect("temp folder");
+    git(&dir, &["init", "-q"]);
+    dir
+}
+
+const AMPLIFIER_PART: &str = "parts:\n  front_amp:\n    kind: amplifier\n    gain: 4 ± 0.05 %\n    noise: NOISE nV/rtHz\n    input: 0.1 V .. 3.1 V\n    output: 0.05 V .. 3.25 V\n";
+
+/// The spec renamed and its part's noise changed since the commit: the
+/// old spec is found under its old name, its parts file is read as it
+/// was at the revision, and a spec that only uses that part is compared
+/// too.
+#[test]
+fn a_rename_between_revisions_is_followed() {
+    let dir = throwaway_repository("rename");
+    let spec = std::fs::read_to_string(root().join(fixture("cold_store.catena")))
+        .expect("fixture")
+        .replace(
+            "chain cold_store",
+            "use \"parts/amps.yaml\"\n\nchain cold_store",
+        )
+        .replace(
+            "amplifier front {\n        gain 4 ± 0.05 %",
+            "amplifier front : front_amp {\n        gain 4 ± 0.05 %",
+        )
+        // The part states the noise.
+        .replace("        noise 12 nV/rtHz\n", "");
+    std::fs::write(dir.join("specs/store.catena"), &spec).expect("write");
+    // Unchanged itself, but its part changes below.
+    std::fs::write(dir.join("specs/other.catena"), &spec).expect("write");
+    std::fs::write(
+        dir.join("specs/parts/amps.yaml"),
+        AMPLIFIER_PART.replace("NOISE", "12"),
+    )
+    .expect("write");
+    git(&dir, &["add", "."]);
+    git(&dir, &["commit", "-q", "-m", "first"]);
+    git(&dir, &["mv", "specs/store.catena", "specs/cold.catena"]);
+    std::fs::write(
+        dir.join("specs/parts/amps.yaml"),
+        AMPLIFIER_PART.replace("NOISE", "40"),
+    )
+    .expect("write");
+
+    let run = catena(
+        &dir,
+        &[
+            "diff", "--rev", "HEAD", "--trials", TRIALS, "--format", "json",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let doc = json(&run.stdout);
+    let file = &doc["files"][0];
+    assert_eq!(file["old"], "HEAD:specs/store.catena");
+    assert_eq!(file["new"], "specs/cold.catena");
+    let spec = &file["chains"][0]["spec"];
+    assert_eq!(spec[0]["subject"], "front.noise", "{spec}");
+    assert_eq!(spec[0]["old"]["text"], "noise: 12 nV/rtHz");
+    assert_eq!(spec[0]["old"]["file"], "HEAD:specs/parts/amps.yaml");
+    assert_eq!(spec[0]["new"]["text"], "noise: 40 nV/rtHz");
+    assert_eq!(spec[0]["new"]["file"], "specs/parts/amps.yaml");
+    assert_eq!(spec.as_array().map(Vec::len), Some(1), "{spec}");
+    // The spec that only uses the changed part is compared too.
+    let other = &doc["files"][1];
+    assert_eq!(other["new"], "specs/other.catena");
+    assert_eq!(other["chains"][0]["spec"][0]["subject"], "front.noise");
+
+    // Named, the spec is found under its old name just the same.
+    let named = catena(
+        &dir,
+        &[
+            "diff",
+            "--rev",
+            "HEAD",
+            "specs/cold.catena",
+            "--trials",
+            "0",
+            "--format",
+            "markdown",
+        ],
+        None,
+    );
+    assert_eq!(named.status, 0, "{}", named.stderr);
+    assert!(
+        named
+            .stdout
+            .contains("`HEAD:specs/store.catena` → `specs/cold.catena`"),
+        "{}",
+        named.stdout
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn an_unknown_revision_is_a_usage_error() {
+    let dir = throwaway_repository("unknown");
+    let run = catena(&dir, &["diff", "--rev", "no-such-rev"], None);
+    assert_eq!(run.status, 2);
+    assert!(run.stderr.contains("no-such-rev"), "{}", run.stderr);
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn compare_lines_candidates_up() {
+    let run = catena(
+        &root(),
+        &[
+            "compare",
+            &fixture("cold_store.catena"),
+            &fixture("cold_store_gain.catena"),
+            "--trials",
+            TRIALS,
+            "--format",
+            "markdown",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    insta::assert_snapshot!("compare-markdown", run.stdout);
+    let run = catena(
+        &root(),
+        &[
+            "compare",
+            &fixture("cold_store_moved.catena"),
+            "--trials",
+            "0",
+            "--format",
+            "json",
+        ],
+        None,
+    );
+    let doc = json(&run.stdout);
+    assert_eq!(doc["schema_version"], 1);
+    let names: Vec<&str> = doc["candidates"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|c| c["name"].as_str().unwrap())
+        .collect();
+    assert_eq!(
+        names,
+        [
+            format!("{FIXTURES}/cold_store_moved.catena#cold_store"),
+            format!("{FIXTURES}/cold_store_moved.catena#spare_store")
+        ]
+    );
+}
+
+/// A tracking group added between two dividers is a spec change of its own.
+#[test]
+fn a_tracking_group_is_a_spec_change() {
+    let run = catena(
+        &root(),
+        &[
+            "diff",
+            "tests/fixtures/budget/unmatched_divider.catena",
+            "tests/fixtures/budget/matched_divider.catena",
+            "--trials",
+            "0",
+            "--format",
+            "json",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let spec = &json(&run.stdout)["files"][0]["chains"][0]["spec"];
+    let group = spec
+        .as_array()
+        .expect("spec changes")
+        .iter()
+        .find(|c| c["what"] == "tracking group")
+        .unwrap_or_else(|| panic!("no tracking group change: {spec}"));
+    assert_eq!(group["kind"], "added");
+    assert_eq!(group["subject"], "pair");
+}
