@@ -46,7 +46,7 @@ struct CompareReport {
 
 pub fn run(args: CompareArgs) -> u8 {
     if args.trials > MAX_TRIALS {
-        eprintln!("catena: --trials is at most {MAX_TRIALS}");
+        errln!("catena: --trials is at most {MAX_TRIALS}");
         return EXIT_USAGE;
     }
     let options = options(args.trials, args.seed);
@@ -64,7 +64,7 @@ pub fn run(args: CompareArgs) -> u8 {
             .filter(|c| side.chain.as_ref().is_none_or(|n| &c.name == n))
             .collect();
         if chains.is_empty() {
-            eprintln!("catena: no chain to compare in `{spec}`");
+            errln!("catena: no chain to compare in `{spec}`");
             return EXIT_USAGE;
         }
         for chain in chains {
@@ -89,15 +89,15 @@ pub fn run(args: CompareArgs) -> u8 {
     let header: Vec<&str> = header.iter().map(String::as_str).collect();
     match args.format {
         ReviewFormat::Json => {
-            println!(
+            outln!(
                 "{}",
                 serde_json::to_string_pretty(&report).unwrap_or_default()
             )
         }
         ReviewFormat::Markdown => {
-            print!("## Catena compare\n\n{}", markdown_table(&header, &rows));
+            out!("## Catena compare\n\n{}", markdown_table(&header, &rows));
         }
-        ReviewFormat::Human => print!("{}", plain_table(&header, &rows)),
+        ReviewFormat::Human => out!("{}", plain_table(&header, &rows)),
     }
     if report.candidates.iter().any(|c| c.outcome.is_none()) {
         EXIT_FINDINGS

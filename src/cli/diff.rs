@@ -110,11 +110,11 @@ pub(super) fn evaluate(
 
 pub fn run(args: DiffArgs) -> u8 {
     if args.trials > MAX_TRIALS {
-        eprintln!("catena: --trials is at most {MAX_TRIALS}");
+        errln!("catena: --trials is at most {MAX_TRIALS}");
         return EXIT_USAGE;
     }
     if !(args.threshold.is_finite() && args.threshold >= 0.0) {
-        eprintln!("catena: --threshold takes a percentage of zero or more");
+        errln!("catena: --threshold takes a percentage of zero or more");
         return EXIT_USAGE;
     }
     let options = options(args.trials, args.seed);
@@ -123,13 +123,13 @@ pub fn run(args: DiffArgs) -> u8 {
         Some(rev) => match rev_pairs(rev, &args.paths) {
             Ok(pairs) => pairs,
             Err(message) => {
-                eprintln!("catena: {message}");
+                errln!("catena: {message}");
                 return EXIT_USAGE;
             }
         },
         None => {
             if args.paths.len() != 2 {
-                eprintln!("catena: diff takes OLD and NEW (or `--rev REV [PATH...]`)");
+                errln!("catena: diff takes OLD and NEW (or `--rev REV [PATH...]`)");
                 return EXIT_USAGE;
             }
             let old = match load(&args.paths[0]) {
@@ -161,13 +161,13 @@ pub fn run(args: DiffArgs) -> u8 {
     };
     match args.format {
         ReviewFormat::Json => {
-            println!(
+            outln!(
                 "{}",
                 serde_json::to_string_pretty(&report).unwrap_or_default()
             )
         }
-        ReviewFormat::Markdown => print!("{}", markdown(&report)),
-        ReviewFormat::Human => print!("{}", human(&report)),
+        ReviewFormat::Markdown => out!("{}", markdown(&report)),
+        ReviewFormat::Human => out!("{}", human(&report)),
     }
     if args.fail_on == Some(FailOn::Regression) && report.regression {
         EXIT_FINDINGS

@@ -165,6 +165,19 @@ pub fn check_one(
         .parent()
         .filter(|p| !p.as_os_str().is_empty())
         .unwrap_or(Path::new("."));
+    let bytes = match read {
+        Ok(bytes) => bytes,
+        Err(refused) => {
+            let mut findings = crate::diagnostics::Findings::new();
+            findings.push(refused);
+            let checked = crate::check::CheckedFile {
+                findings,
+                ..Default::default()
+            };
+            let config = super::settings::Configs::default().for_folder(base);
+            return Ok((checked, config));
+        }
+    };
     Ok(check_configured(&path.to_string_lossy(), &bytes, base))
 }
 
@@ -181,18 +194,6 @@ pub fn check_configured(
 ) {
     let mut configs = super::settings::Configs::default();
     let config = configs.for_folder(base);
-    let bytes = match read {
-        Ok(bytes) => bytes,
-        Err(refused) => {
-            let mut findings = crate::diagnostics::Findings::new();
-            findings.push(refused);
-            let checked = crate::check::CheckedFile {
-                findings,
-                ..Default::default()
-            };
-            return Ok((checked, config));
-        }
-    };
     let options = crate::analysis::CheckOptions {
         margin: config.margin.as_ref().map_or(0.0, |s| s.value.max(1e-12)),
         seed: config.seed.as_ref().map(|s| s.value),
