@@ -66,10 +66,12 @@ impl Limit {
         }
     }
 
-    /// The parameter that states the limit, and the one that drives it.
+    /// The parameter that states the limit, and the one that drives it
+    /// (an amplifier's input common mode is driven by the stage ahead of
+    /// it, which the finding labels instead of a parameter).
     pub fn params(self) -> (&'static str, &'static str) {
         match self {
-            Limit::AmplifierInput => ("input", "gain"),
+            Limit::AmplifierInput => ("input", "input"),
             Limit::AmplifierOutput => ("output", "gain"),
             Limit::ConverterInput => ("vref", "vref"),
             Limit::Compliance => ("compliance", "current"),
@@ -663,6 +665,13 @@ pub fn findings(
                 {
                     f = f.label(p.span, text);
                 }
+            }
+        }
+        if let (Node::Amplifier { input, .. }, Limit::AmplifierInput) =
+            (&plan.nodes[e.node], e.limit)
+        {
+            if let Some(driver) = chain.stages.iter().find(|s| s.name == plan.names[*input]) {
+                f = f.label(driver.name_span, "sets its input common mode");
             }
         }
         if let Node::Adc {
