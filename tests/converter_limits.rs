@@ -85,7 +85,7 @@ fn settling_error_is_the_closed_form() {
         .find(|f| f["code"] == "R630")
         .expect("an R630 finding");
     let message = r630["message"].as_str().expect("message");
-    let shown = number_after(message, "settles only to ");
+    let shown = number_after(message, "settles only to within ");
     assert!(
         (shown - error).abs() < 0.005 * error,
         "{shown} LSB against {error}"

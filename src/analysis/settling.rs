@@ -94,7 +94,7 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
             .map(|m| m.unit.clone())
             .unwrap_or_default();
         let message = format!(
-            "the input of `{}` settles only to {} LSB in its acquisition time, behind a source resistance of {} (at {} {unit}, ambient {} degC)",
+            "the input of `{}` settles only to within {} LSB of its final value in its acquisition time, behind a source resistance of {} (at {} {unit}, ambient {} degC)",
             stage.name,
             trimmed(error, 3),
             with_prefix(source, "ohm", 4),
