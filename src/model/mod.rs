@@ -12,6 +12,7 @@ mod settings;
 mod stage;
 mod suggest;
 pub mod track;
+pub mod typed;
 pub mod value;
 
 use std::path::Path;

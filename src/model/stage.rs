@@ -66,6 +66,7 @@ pub fn resolve(
         kind: decl.kind,
         model: None,
         params: Vec::new(),
+        typed: None,
         span: decl.span,
         invalid: Vec::new(),
         incomplete: part_failed,
@@ -118,6 +119,9 @@ pub fn resolve(
     }
     if !part_failed {
         check_presence(file, decl, model, &lines, findings);
+    }
+    if stage.invalid.is_empty() {
+        stage.typed = (model.read)(&schema::Reader::new(&stage.params));
     }
     stage
 }
