@@ -3,6 +3,7 @@
 //! (whose own error the budget counts), then the declared calibration.
 
 use super::plan::{Env, EvalError, NodeId, Plan, Senses, SlotId};
+use crate::model::typed::ConversionMethod;
 use crate::physics::thermocouple::{self, ThermocoupleType};
 use crate::units::ZERO_CELSIUS_K;
 
@@ -509,8 +510,7 @@ impl Conversion {
         &mut self,
         plan: &Plan,
         env: &Env,
-        method: &str,
-        points: u32,
+        method: ConversionMethod,
         complete: bool,
         thermocouple: Option<ThermocoupleType>,
     ) -> Result<(), String> {
@@ -520,34 +520,13 @@ impl Conversion {
                 .map_err(|e| e.to_string())
         };
         self.method = match method {
-            "exact" => {
+            ConversionMethod::Exact => {
                 let xs = grid(self.domain, INVERSE_POINTS);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
-                // Beyond the range a stage may clip and the code go flat:
-                // keep the stretch around the range where the code still
-                // moves one way, and let readings saturate at its ends.
-                if let Some((i0, i1)) = monotonic_around(&xs, &codes, self.range) {
-                    self.domain = (xs[i0], xs[i1]);
-                    let stands_for = match thermocouple {
-                        _ if complete => TableUse::Complete,
-                        Some(ty) if self.variable == Senses::Measurand => {
-                            self.junction_law(plan, env, ty).unwrap_or(TableUse::Start)
-                        }
-                        _ => TableUse::Start,
-                    };
-                    let mut table = InverseTable::new(
-                        xs[i0..=i1].to_vec(),
-                        codes[i0..=i1].to_vec(),
-                        stands_for,
-                    );
-                    if let (TableUse::Junction { ty, .. }, Some(_)) = (stands_for, thermocouple) {
-                        table.junction = JunctionTables::new(&table, ty, self.domain).map(Box::new);
-                    }
-                    self.inverse = Some(table);
-                }
+                self.tabulate(plan, env, &xs, &codes, complete, thermocouple);
                 Method::Exact
             }
-            "linear" => {
+            ConversionMethod::Linear => {
                 let (a, b) = (code(lo)?, code(hi)?);
                 if a == b {
                     return Err("the code does not change over the measurand range".into());
@@ -557,7 +536,7 @@ impl Conversion {
                     code_high: b,
                 }
             }
-            "table" => {
+            ConversionMethod::Table(points) => {
                 let xs = grid(self.range, points.max(2) as usize);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 if !strictly_monotonic(&codes) {
@@ -565,8 +544,8 @@ impl Conversion {
                 }
                 Method::Table { codes, xs }
             }
-            _ => {
-                let terms = points as usize + 1;
+            ConversionMethod::Poly(degree) => {
+                let terms = degree as usize + 1;
                 let xs = grid(self.range, POLY_POINTS_PER_TERM * terms);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 let (cmin, cmax) = codes
@@ -592,6 +571,38 @@ impl Conversion {
 }
 
 impl Conversion {
+    /// The exact inverse's table from the nominal chain's `codes` at `xs`.
+    /// Beyond the range a stage may clip and the code go flat: it keeps
+    /// the stretch around the range where the code still moves one way,
+    /// and readings saturate at its ends.
+    fn tabulate(
+        &mut self,
+        plan: &Plan,
+        env: &Env,
+        xs: &[f64],
+        codes: &[f64],
+        complete: bool,
+        thermocouple: Option<ThermocoupleType>,
+    ) {
+        let Some((i0, i1)) = monotonic_around(xs, codes, self.range) else {
+            return;
+        };
+        self.domain = (xs[i0], xs[i1]);
+        let stands_for = match thermocouple {
+            _ if complete => TableUse::Complete,
+            Some(ty) if self.variable == Senses::Measurand => {
+                self.junction_law(plan, env, ty).unwrap_or(TableUse::Start)
+            }
+            _ => TableUse::Start,
+        };
+        let mut table =
+            InverseTable::new(xs[i0..=i1].to_vec(), codes[i0..=i1].to_vec(), stands_for);
+        if let (TableUse::Junction { ty, .. }, Some(_)) = (stands_for, thermocouple) {
+            table.junction = JunctionTables::new(&table, ty, self.domain).map(Box::new);
+        }
+        self.inverse = Some(table);
+    }
+
     /// [`TableUse::Junction`] when the firmware model obeys the law of
     /// intermediate temperatures through `ty` alone: checked on the nominal
     /// chain across the range with the junction 15 K either side of the

@@ -653,7 +653,7 @@ fn read_voltage(r: &Reader<'_>) -> Option<StageModel> {
 fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
     let curve = r.choice("rtd", RtdCurveName::from_word).ok()??;
     let coefficients = match r.get("coefficients") {
-        Some(ParamValue::Measures(m)) => Some(<[Measure; 3]>::try_from(m.clone()).ok()?),
+        Some(ParamValue::Measures(m)) => Some(Box::new(<[Measure; 3]>::try_from(m.clone()).ok()?)),
         _ => None,
     };
     if curve == RtdCurveName::Custom && (coefficients.is_none() || r.get("r0").is_none()) {
@@ -738,7 +738,7 @@ fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
         output_at,
         accuracy: r.limit("accuracy"),
         noise: r.limit("noise"),
-        output_resistance: r.value("output_resistance"),
+        output_resistance: r.measure("output_resistance"),
         supply: r.range("supply"),
         time_constant: r.value("time_constant"),
     }))

@@ -87,7 +87,7 @@ pub struct Rtd {
     pub curve: RtdCurveName,
     pub r0: Option<Measure>,
     /// A, B and C of a custom curve, each with its tolerance.
-    pub coefficients: Option<[Measure; 3]>,
+    pub coefficients: Option<Box<[Measure; 3]>>,
     pub class: Option<ToleranceClass>,
     pub tolerance: Option<Tolerance>,
     /// Four wires when not stated.
@@ -149,7 +149,8 @@ pub struct IcVoltage {
     pub output_at: f64,
     pub accuracy: Option<Tolerance>,
     pub noise: Option<Tolerance>,
-    pub output_resistance: Option<f64>,
+    /// A measure: `max` makes it a bound of nominal zero.
+    pub output_resistance: Option<Measure>,
     pub supply: Option<(f64, f64)>,
     pub time_constant: Option<f64>,
 }
@@ -372,6 +373,27 @@ pub struct Convert {
 }
 
 impl StageModel {
+    /// Drives a current through what it feeds: the elements on it are in
+    /// series.
+    pub fn drives_current(&self) -> bool {
+        match self {
+            StageModel::Excitation(e) => matches!(e.source, Source::Current { .. }),
+            StageModel::IcCurrent(_) => true,
+            StageModel::Rtd(_)
+            | StageModel::Thermocouple(_)
+            | StageModel::Thermistor(_)
+            | StageModel::IcVoltage(_)
+            | StageModel::StrainGauge(_)
+            | StageModel::Transducer(_)
+            | StageModel::Resistor(_)
+            | StageModel::Bridge(_)
+            | StageModel::Amplifier(_)
+            | StageModel::Filter(_)
+            | StageModel::Adc(_)
+            | StageModel::Convert(_) => false,
+        }
+    }
+
     /// The time constant a sensor states, s.
     pub fn time_constant(&self) -> Option<f64> {
         match self {
