@@ -9,10 +9,11 @@ mod bridge;
 mod convert;
 mod excitation;
 mod filter;
-mod ic_sensor;
+mod ic_current;
+mod ic_voltage;
 mod resistor;
 mod rtd;
-mod strain;
+mod strain_gauge;
 mod thermistor;
 mod thermocouple;
 mod transducer;
@@ -23,10 +24,11 @@ pub use bridge::{Bridge, BridgeKind};
 pub use convert::Convert;
 pub use excitation::Excitation;
 pub use filter::Filter;
-pub use ic_sensor::{IcCurrent, IcVoltage};
+pub use ic_current::IcCurrent;
+pub use ic_voltage::IcVoltage;
 pub use resistor::Resistor;
 pub use rtd::{Rtd, RtdCurve};
-pub use strain::StrainGauge;
+pub use strain_gauge::StrainGauge;
 pub use thermistor::{Thermistor, ThermistorCurve};
 pub(super) use thermocouple::junction_c;
 pub use thermocouple::Thermocouple;
@@ -66,9 +68,9 @@ pub(super) fn lower(model: &StageModel, cx: &mut Cx<'_>) -> Result<Node, EvalErr
         StageModel::Rtd(m) => Node::Rtd(rtd::lower(m, cx)?),
         StageModel::Thermocouple(m) => Node::Thermocouple(thermocouple::lower(m, cx)?),
         StageModel::Thermistor(m) => Node::Thermistor(thermistor::lower(m, cx)?),
-        StageModel::IcVoltage(m) => Node::IcVoltage(ic_sensor::lower_voltage(m, cx)?),
-        StageModel::IcCurrent(m) => Node::IcCurrent(ic_sensor::lower_current(m, cx)?),
-        StageModel::StrainGauge(m) => Node::StrainGauge(strain::lower(m, cx)?),
+        StageModel::IcVoltage(m) => Node::IcVoltage(ic_voltage::lower(m, cx)?),
+        StageModel::IcCurrent(m) => Node::IcCurrent(ic_current::lower(m, cx)?),
+        StageModel::StrainGauge(m) => Node::StrainGauge(strain_gauge::lower(m, cx)?),
         StageModel::Transducer(m) => Node::Transducer(transducer::lower(m, cx)?),
         StageModel::Resistor(m) => Node::Resistor(resistor::lower(m, cx)?),
         StageModel::Bridge(m) => Node::Bridge(bridge::lower(m, cx)?),

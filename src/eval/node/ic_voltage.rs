@@ -1,5 +1,4 @@
-//! Semiconductor temperature sensors: a linear voltage output, and a
-//! PTAT current source.
+//! A semiconductor temperature sensor with a linear voltage output.
 
 use super::{Cx, Run};
 use crate::eval::plan::{EvalError, Senses, Signal, SlotId, SourceKind};
@@ -16,13 +15,7 @@ pub struct IcVoltage {
     pub rout: Option<SlotId>,
 }
 
-#[derive(Clone, Debug, PartialEq)]
-pub struct IcCurrent {
-    pub slope: SlotId,
-    pub senses: Senses,
-}
-
-pub(super) fn lower_voltage(m: &typed::IcVoltage, cx: &mut Cx<'_>) -> Result<IcVoltage, EvalError> {
+pub(super) fn lower(m: &typed::IcVoltage, cx: &mut Cx<'_>) -> Result<IcVoltage, EvalError> {
     let slope = cx.measure("slope", SourceKind::Tolerance, &m.slope);
     let v0 = cx.measure("output", SourceKind::Tolerance, &m.output);
     let rout = m
@@ -41,17 +34,6 @@ pub(super) fn lower_voltage(m: &typed::IcVoltage, cx: &mut Cx<'_>) -> Result<IcV
     })
 }
 
-pub(super) fn lower_current(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, EvalError> {
-    let slope = cx.measure("slope", SourceKind::Tolerance, &m.slope);
-    if let Some(t) = &m.accuracy {
-        cx.stated_error("accuracy", t);
-    }
-    Ok(IcCurrent {
-        slope,
-        senses: cx.senses,
-    })
-}
-
 impl IcVoltage {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
@@ -67,15 +49,5 @@ impl IcVoltage {
             cm: v / 2.0,
             rs: run.or_zero(self.rout),
         })
-    }
-}
-
-impl IcCurrent {
-    #[inline(always)]
-    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let t = run.sensed(self.senses);
-        let a = semiconductor::ptat_current_a(run.values[self.slope], t)
-            .map_err(|_| run.numeric("no PTAT current at this temperature"))?;
-        Ok(Signal::Current(a))
     }
 }
