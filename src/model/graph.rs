@@ -9,7 +9,7 @@ use petgraph::algo::kosaraju_scc;
 use petgraph::graph::DiGraph;
 
 use super::chain::{Connection, Stage};
-use super::ports::{self, InputSpec, Port, Signal};
+use super::ports::{self, InputSpec, Port, SignalKind};
 use super::suggest::did_you_mean;
 use super::value::ParamValue;
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
@@ -284,7 +284,7 @@ fn describe(stage: &Stage) -> String {
 }
 
 /// What each stage outputs, given its connections.
-pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signal> {
+pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<SignalKind> {
     let static_out = |s: &Stage| ports::output(s.kind, s.model, false);
     let incoming = incoming(stages.len(), connections);
     stages
@@ -297,7 +297,7 @@ pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signa
                 c.to_port == Port::In
                     && matches!(
                         static_out(&stages[c.from]),
-                        Signal::CurrentExcitation | Signal::VoltageExcitation
+                        SignalKind::CurrentExcitation | SignalKind::VoltageExcitation
                     )
             });
             ports::output(s.kind, s.model, driven)
@@ -371,15 +371,15 @@ fn check_ports(
                 .collect::<Vec<_>>()
                 .join(" or ");
             let help = match (signal, target.kind) {
-                (Signal::VoltageExcitation, StageKind::Sensor) => format!(
+                (SignalKind::VoltageExcitation, StageKind::Sensor) => format!(
                     "a voltage across a resistive sensor gives nothing to measure; wire `{}` and `{}` into a `bridge` (a `divider` for one element), or use a current excitation",
                     source.name, target.name
                 ),
-                (Signal::Code | Signal::Reading, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
+                (SignalKind::Code | SignalKind::Reading, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
                     "`{}` works on voltages, so it belongs before the converter: wire the signal into it first and its output into the `adc`",
                     target.name
                 ),
-                (Signal::Element, _) => format!(
+                (SignalKind::Element, _) => format!(
                     "`{}` is a bare element here; drive it with a current excitation or wire it into a bridge arm: `{} -> bridge_name.arm`",
                     source.name, source.name
                 ),
@@ -592,7 +592,7 @@ fn check_use(
     file: &Arc<SourceFile>,
     stages: &[Stage],
     connections: &[Connection],
-    outputs: &[Signal],
+    outputs: &[SignalKind],
     loops: &[(Vec<usize>, Cause)],
     findings: &mut Findings,
 ) {
@@ -630,7 +630,7 @@ fn check_use(
             continue;
         }
         let feeds = feeds_any[i];
-        if stage.kind != StageKind::Convert && !feeds && outputs[i] != Signal::Reading {
+        if stage.kind != StageKind::Convert && !feeds && outputs[i] != SignalKind::Reading {
             findings.push(
                 Finding::new(
                     Code::M213,

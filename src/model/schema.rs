@@ -76,6 +76,34 @@ pub enum Shape {
     Flag,
 }
 
+/// What a model takes and gives: the port rules (`ports.rs`) follow it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Role {
+    /// Drives a current into what it feeds.
+    CurrentSource,
+    /// A voltage across what it feeds.
+    VoltageSource,
+    /// A resistance: a voltage on a current source, else a bridge arm.
+    Resistive,
+    /// A voltage of its own with no input (a thermocouple).
+    Floating,
+    /// A bridge transducer: excited by a current or a voltage, which it
+    /// needs when rated in mV/V.
+    Transducer,
+    /// A voltage output from an optional supply.
+    Powered,
+    /// A current output (PTAT) from an optional supply.
+    PoweredCurrent,
+    /// A divider or bridge of so many active arms.
+    Bridge {
+        arms: usize,
+    },
+    Amplifier,
+    Filter,
+    Adc,
+    Convert,
+}
+
 /// The smallest and largest plausible value (SI), checked after units.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Plausible {
@@ -99,6 +127,8 @@ pub struct ParamSpec {
 pub struct ModelSpec {
     pub kind: StageKind,
     pub model: Option<&'static str>,
+    /// What it takes and gives, for the port rules (`ports.rs`).
+    pub role: Role,
     /// The model line itself (`rtd pt1000`, `current 250 uA ± 0.5 %`).
     pub model_shape: Shape,
     pub params: &'static [ParamSpec],
@@ -194,6 +224,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Excitation,
         model: Some("current"),
+        role: Role::CurrentSource,
         model_shape: measure(AMP),
         params: &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
@@ -208,6 +239,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Excitation,
         model: Some("voltage"),
+        role: Role::VoltageSource,
         model_shape: measure(VOLT),
         params: &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
@@ -222,6 +254,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("rtd"),
+        role: Role::Resistive,
         model_shape: Shape::Words(RTD_CURVES),
         params: &[
             p("r0", toleranced(OHM)).positive(),
@@ -242,6 +275,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("thermocouple"),
+        role: Role::Floating,
         model_shape: Shape::ThermocoupleType,
         params: &[
             p("class", Shape::Count { min: 1, max: 3 }),
@@ -260,6 +294,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("thermistor"),
+        role: Role::Resistive,
         model_shape: Shape::Flag,
         params: &[
             p("r25", toleranced(OHM)).required().positive(),
@@ -278,6 +313,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("ic_voltage"),
+        role: Role::Powered,
         model_shape: Shape::Flag,
         params: &[
             p("slope", toleranced(Expect::PerKelvin(Dim::VOLTAGE)))
@@ -305,6 +341,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("ic_current"),
+        role: Role::PoweredCurrent,
         model_shape: Shape::Flag,
         params: &[
             p("slope", toleranced(Expect::PerKelvin(Dim::CURRENT)))
@@ -322,6 +359,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("strain_gauge"),
+        role: Role::Resistive,
         model_shape: Shape::Flag,
         params: &[
             p("r", measure(OHM)).required().positive(),
@@ -339,6 +377,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("transducer"),
+        role: Role::Transducer,
         model_shape: Shape::Flag,
         params: &[
             p(
@@ -369,6 +408,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("resistor"),
+        role: Role::Resistive,
         model_shape: measure(OHM),
         params: &[],
         exclusive: &[],
@@ -379,6 +419,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("divider"),
+        role: Role::Bridge { arms: 1 },
         model_shape: Shape::Flag,
         params: &[
             p("r", measure(OHM)).required().positive(),
@@ -392,6 +433,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("quarter"),
+        role: Role::Bridge { arms: 1 },
         model_shape: Shape::Flag,
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
@@ -402,6 +444,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("half"),
+        role: Role::Bridge { arms: 2 },
         model_shape: Shape::Flag,
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
@@ -412,6 +455,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("full"),
+        role: Role::Bridge { arms: 4 },
         model_shape: Shape::Flag,
         params: &[],
         exclusive: &[],
@@ -422,6 +466,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Amplifier,
         model: None,
+        role: Role::Amplifier,
         model_shape: Shape::Flag,
         params: &[
             p("gain", toleranced(Expect::Ratio)).required().positive(),
@@ -449,6 +494,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Filter,
         model: Some("lowpass"),
+        role: Role::Filter,
         model_shape: Shape::Words(&["rc", "butterworth", "bessel"]),
         params: &[
             p("order", Shape::Count { min: 1, max: 8 }),
@@ -464,6 +510,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Adc,
         model: None,
+        role: Role::Adc,
         model_shape: Shape::Flag,
         params: &[
             p("bits", Shape::Count { min: 1, max: 32 }).required(),
@@ -491,6 +538,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Convert,
         model: None,
+        role: Role::Convert,
         model_shape: Shape::Flag,
         params: &[
             p("method", Shape::Method),
