@@ -413,3 +413,120 @@ fn narrow_domain(
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::lower;
+    use crate::eval::node::{BridgeKind, Node};
+    use crate::eval::{Plan, SourceKind};
+
+    fn plan(spec: &str) -> Plan {
+        let checked = crate::check::check_str("t.catena", spec);
+        assert!(!checked.findings.has_errors(), "{:?}", checked.findings);
+        lower(&checked.chains[0]).expect("lowers")
+    }
+
+    fn slot<'a>(plan: &'a Plan, id: &str) -> &'a crate::eval::Slot {
+        plan.slots
+            .iter()
+            .find(|s| s.id == id)
+            .unwrap_or_else(|| panic!("no slot `{id}` in {:?}", plan.slots))
+    }
+
+    const QUARTER: &str = r#"
+chain beam "q" {
+    measurand strain -1000 ue .. 1000 ue
+    excitation supply { voltage 5 V ± 0.1 % drift 10 ppm/K }
+    sensor gauge {
+        strain_gauge
+        r 350 ohm ± 0.3 %
+        gauge_factor 2.0 ± 1 %
+        side compression
+    }
+    bridge completion {
+        quarter
+        r 350 ohm ± 0.1 % drift 5 ppm/K
+    }
+    amplifier front {
+        gain 100 ± 0.1 %
+        offset 20 uV max
+        bias ± 1 nA
+        cmrr 100 dB
+        offset_drift 0.1 uV/K
+    }
+    adc conv {
+        bits 24
+        input differential
+        gain_error ± 2 LSB
+        offset ± 3 LSB
+    }
+    convert reading { calibrate two_point at -500 ue, 500 ue ± 1 ue }
+    supply -> completion -> front -> conv -> reading
+    gauge -> completion.arm
+    supply -> conv.ref
+}
+"#;
+
+    /// Each slot's kind is the one its lowering gives it, and a limit of
+    /// zero width is exact, not a source.
+    #[test]
+    fn slots_carry_the_kind_their_node_gives_them() {
+        let p = plan(QUARTER);
+        for (id, kind) in [
+            ("supply.voltage", SourceKind::Tolerance),
+            ("supply.voltage_drift", SourceKind::Drift),
+            ("completion.r_1", SourceKind::Tolerance),
+            ("completion.r_3_drift", SourceKind::Drift),
+            ("front.offset", SourceKind::Bound),
+            ("front.bias", SourceKind::Bias),
+            ("front.cmrr", SourceKind::CommonMode),
+            ("front.offset_drift", SourceKind::Drift),
+            ("conv.gain_error", SourceKind::Gain),
+            ("conv.offset", SourceKind::Bound),
+            ("reading.calibration_2", SourceKind::Calibration),
+        ] {
+            assert_eq!(slot(&p, id).kind, kind, "{id}");
+        }
+        // A gauge factor's tolerance is a source; a value without one is not.
+        assert_eq!(slot(&p, "gauge.gauge_factor").kind, SourceKind::Tolerance);
+        assert_eq!(slot(&p, "front.gain").kind, SourceKind::Tolerance);
+    }
+
+    /// A quarter bridge's three completion resistors are three parts, each
+    /// with its own drift; the gauge on the compression side sees −ε; the
+    /// converter's gain error in LSB is a fraction of its 2^24 codes; CMRR
+    /// 100 dB is ±1e-5 per volt.
+    #[test]
+    fn lowering_reads_the_typed_model() {
+        let p = plan(QUARTER);
+        let bridge = p.nodes.iter().find_map(|n| match n {
+            Node::Bridge(b) => Some(b),
+            _ => None,
+        });
+        let bridge = bridge.expect("a bridge node");
+        assert_eq!(bridge.kind, BridgeKind::Quarter);
+        assert_eq!(bridge.others.len(), 2);
+        assert!(bridge.others.iter().all(|(_, drift)| drift.is_some()));
+        let gauge = p.nodes.iter().find_map(|n| match n {
+            Node::StrainGauge(g) => Some(g),
+            _ => None,
+        });
+        assert_eq!(gauge.expect("a gauge").sign, -1.0);
+        let gain_error = slot(&p, "conv.gain_error");
+        assert_eq!(gain_error.plus, 2.0 / 2f64.powi(24));
+        let cmrr = slot(&p, "front.cmrr");
+        assert!((cmrr.plus - 1e-5).abs() < 1e-18, "{}", cmrr.plus);
+        assert_eq!(slot(&p, "conv.offset").nominal, 0.0);
+    }
+
+    /// A stage whose model was not accepted is not lowered on a guess.
+    #[test]
+    fn a_stage_without_its_typed_model_is_not_lowered() {
+        let checked = crate::check::check_str("t.catena", QUARTER);
+        let mut chain = checked.chains[0].clone();
+        let gauge = chain.stages.iter_mut().find(|s| s.name == "gauge");
+        gauge.expect("the gauge").typed = None;
+        let e = lower(&chain).expect_err("no plan");
+        assert!(e.to_string().contains("`gauge`"), "{e}");
+    }
+}
