@@ -1011,7 +1011,7 @@ mod tests {
     #[test]
     fn words_are_read_into_types_and_never_guessed() {
         let curve = line("rtd", ParamValue::Word("pt100".into()));
-        let Some(StageModel::Rtd(m)) = rtd(&[curve.clone()]) else {
+        let Some(StageModel::Rtd(m)) = rtd(std::slice::from_ref(&curve)) else {
             panic!("an rtd");
         };
         assert_eq!((m.class, m.wiring), (None, Wiring::FourWire));
