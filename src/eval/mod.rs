@@ -15,7 +15,7 @@ mod plan;
 mod run;
 mod track;
 
-pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
+pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, TableUse};
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use node::{AmpReference, BridgeKind, Node};
 pub use plan::{

@@ -1,18 +1,16 @@
 //! One evaluation: every node in order, each a pure function of its
 //! inputs' signals, the parameter values and the environment.
 
-use super::convert::{calibration_env, Calibrated, Conversion};
+use super::convert::{calibration_env, Calibrated, Conversion, Firmware};
 use super::node;
 use super::plan::{ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal};
 use crate::physics::thermocouple;
 use crate::units::ZERO_CELSIUS_K;
 
-/// What a run computes: conversions (the firmware model inside a
-/// conversion runs without them, so it does not recurse) and whether
-/// conversions see the rounded code or the exact one.
+/// How a run's nodes evaluate: whether conversions see the rounded code or
+/// the exact one, amplifiers clip, and a calibration reads the chain.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(super) struct Mode {
-    pub(super) convert: bool,
     pub(super) quantized: bool,
     /// Amplifiers clip at their swing and rail outside their common-mode
     /// range; off, they amplify linearly, to see how far a signal would go.
@@ -24,35 +22,77 @@ pub(super) struct Mode {
 
 impl Mode {
     const FULL: Mode = Mode {
-        convert: true,
         quantized: true,
         clip: true,
         calibrating: false,
     };
     const CODES: Mode = Mode {
-        convert: false,
         quantized: true,
         clip: true,
         calibrating: false,
     };
     const RAW: Mode = Mode {
-        convert: false,
         quantized: true,
         clip: false,
         calibrating: false,
     };
     const CALIBRATION: Mode = Mode {
-        convert: false,
         quantized: true,
         clip: true,
         calibrating: true,
     };
     const UNQUANTIZED: Mode = Mode {
-        convert: true,
         quantized: false,
         clip: true,
         calibrating: false,
     };
+}
+
+/// Which nodes a run evaluates, up to (not including) a node.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) enum Reach {
+    /// Every node, conversions included.
+    All(NodeId),
+    /// The chain's electronics, up to a converter's code: what the
+    /// firmware models, so conversions (which invert that model) are left
+    /// out.
+    Electronics(NodeId),
+}
+
+impl Plan {
+    /// The nodes of a run, in order.
+    #[inline(always)]
+    fn reach(&self, reach: Reach) -> impl Iterator<Item = NodeId> + '_ {
+        let (until, conversions) = match reach {
+            Reach::All(until) => (until, true),
+            Reach::Electronics(until) => (until, false),
+        };
+        (0..until.min(self.nodes.len()))
+            .filter(move |&i| conversions || !matches!(self.nodes[i], Node::Convert(_)))
+    }
+}
+
+/// The plan is the firmware model its conversions invert.
+impl Firmware for Plan {
+    fn reference(&self) -> f64 {
+        self.reference
+    }
+
+    fn nominal(&self) -> &[f64] {
+        &self.nominal
+    }
+
+    fn code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
+        self.exact_code(values, env, adc)
+    }
+
+    fn calibration_code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
+        Plan::calibration_code(self, values, env, adc)
+    }
+
+    fn numeric(&self, node: NodeId, what: &str) -> EvalError {
+        Plan::numeric(self, node, what)
+    }
 }
 
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
@@ -74,17 +114,17 @@ impl Plan {
         &self,
         values: &[f64],
         env: &Env,
-        until: usize,
+        reach: Reach,
         mode: Mode,
     ) -> Result<[Signal; MAX_NODES], EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, until, mode)?;
+        self.run(values, env, &mut signals, reach, mode)?;
         Ok(signals)
     }
 
     /// Evaluates every node, conversions included.
     pub fn evaluate(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
-        let signals = self.signals(values, env, self.nodes.len(), Mode::FULL)?;
+        let signals = self.signals(values, env, Reach::All(self.nodes.len()), Mode::FULL)?;
         Ok(Outcome {
             signals: signals[..self.nodes.len()].to_vec(),
         })
@@ -93,7 +133,12 @@ impl Plan {
     /// Every node up to the converters' codes, conversions left out: what
     /// a plan whose conversion could not be fitted still shows.
     pub fn evaluate_codes(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
-        let signals = self.signals(values, env, self.nodes.len(), Mode::CODES)?;
+        let signals = self.signals(
+            values,
+            env,
+            Reach::Electronics(self.nodes.len()),
+            Mode::CODES,
+        )?;
         Ok(Outcome {
             signals: signals[..self.nodes.len()].to_vec(),
         })
@@ -102,7 +147,13 @@ impl Plan {
     /// The chain's reading at `env`, SI.
     pub fn reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.reading + 1, Mode::FULL)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::All(self.reading + 1),
+            Mode::FULL,
+        )?;
         match signals[self.reading] {
             Signal::Reading(x) => Ok(x),
             _ => Err(self.numeric(self.reading, "no reading")),
@@ -113,7 +164,13 @@ impl Plan {
     /// firmware's model of the chain predicts.
     pub fn exact_code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, adc + 1, Mode::CODES)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::Electronics(adc + 1),
+            Mode::CODES,
+        )?;
         match signals[adc] {
             Signal::Code { exact, .. } => Ok(exact),
             _ => Err(self.numeric(adc, "no code")),
@@ -128,26 +185,29 @@ impl Plan {
         adc: NodeId,
     ) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, adc + 1, Mode::CALIBRATION)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::Electronics(adc + 1),
+            Mode::CALIBRATION,
+        )?;
         match signals[adc] {
             Signal::Code { exact, .. } => Ok(exact),
             _ => Err(self.numeric(adc, "no code")),
         }
     }
 
-    /// Runs nodes `0..until`.
+    /// Runs the nodes `reach` covers.
     pub(super) fn run(
         &self,
         values: &[f64],
         env: &Env,
         signals: &mut [Signal; MAX_NODES],
-        until: usize,
+        reach: Reach,
         mode: Mode,
     ) -> Result<(), EvalError> {
-        for i in 0..until.min(self.nodes.len()) {
-            if !mode.convert && matches!(self.nodes[i], Node::Convert(_)) {
-                continue;
-            }
+        for i in self.reach(reach) {
             let s = self.node(i, values, env, signals, mode, None)?;
             if !finite(s) {
                 return Err(self.numeric(i, "a signal is not a finite number"));
@@ -254,7 +314,13 @@ impl Plan {
         env: &Env,
     ) -> Result<(f64, f64), EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.adc + 1, Mode::CODES)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::Electronics(self.adc + 1),
+            Mode::CODES,
+        )?;
         let v = match &self.nodes[self.adc] {
             Node::Adc(node::Adc { input, .. }) => match signals[*input] {
                 Signal::Voltage { v, .. } => v,
@@ -279,7 +345,7 @@ impl Plan {
 
     /// [`Plan::evaluate_raw`] without allocating, for the analyses' loops.
     pub fn raw_signals(&self, values: &[f64], env: &Env) -> Result<[Signal; MAX_NODES], EvalError> {
-        self.signals(values, env, self.nodes.len(), Mode::RAW)
+        self.signals(values, env, Reach::Electronics(self.nodes.len()), Mode::RAW)
     }
 
     /// The reading the firmware would compute from the converter's exact
@@ -317,7 +383,13 @@ impl Plan {
         codes: f64,
     ) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.reading, Mode::UNQUANTIZED)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::All(self.reading),
+            Mode::UNQUANTIZED,
+        )?;
         let Signal::Code { exact, .. } = signals[self.adc] else {
             return Err(self.numeric(self.adc, "no code"));
         };
@@ -396,7 +468,13 @@ impl Plan {
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         if self
-            .run_lanes(values, env, scratch, self.nodes.len(), Mode::RAW)
+            .run_lanes(
+                values,
+                env,
+                scratch,
+                Reach::Electronics(self.nodes.len()),
+                Mode::RAW,
+            )
             .is_err()
         {
             for (lane, signals) in scratch.iter_mut().enumerate() {
@@ -427,7 +505,7 @@ impl Plan {
                 values,
                 &calibration_env(self, p),
                 signals,
-                self.adc + 1,
+                Reach::Electronics(self.adc + 1),
                 Mode::CALIBRATION,
             )?;
             for (k, lane_codes) in codes.iter_mut().enumerate() {
@@ -437,7 +515,13 @@ impl Plan {
                 lane_codes[j] = exact;
             }
         }
-        self.run_lanes(values, env, signals, self.reading, Mode::UNQUANTIZED)?;
+        self.run_lanes(
+            values,
+            env,
+            signals,
+            Reach::All(self.reading),
+            Mode::UNQUANTIZED,
+        )?;
         let Node::Convert(node::Convert { cj, .. }) = &self.nodes[self.reading] else {
             return Err(self.numeric(self.reading, "no conversion"));
         };
@@ -465,14 +549,11 @@ impl Plan {
         values: &[f64],
         env: &Env,
         signals: &mut [[Signal; MAX_NODES]; LANES],
-        until: usize,
+        reach: Reach,
         mode: Mode,
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
-        for i in 0..until.min(self.nodes.len()) {
-            if !mode.convert && matches!(self.nodes[i], Node::Convert(_)) {
-                continue;
-            }
+        for i in self.reach(reach) {
             // What depends on the condition alone is worked out once for
             // all lanes: the couple's EMF at the (actual) cold junction.
             let junction_mv = match self.nodes[i] {
