@@ -5,13 +5,17 @@ use super::{Cx, Run};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, AdcInput};
 use crate::model::value::Tolerance;
-use crate::physics::adc::Polarity;
+use crate::physics::adc::{self, Polarity};
 use crate::units::Dim;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Adc {
     pub bits: u32,
     pub polarity: Polarity,
+    /// Its lowest and highest code, and codes per volt of V_ref/G
+    /// (`physics::adc`), worked out once.
+    pub codes: (f64, f64),
+    pub per_ref: f64,
     pub differential: bool,
     pub pga: Option<SlotId>,
     pub vref: Option<SlotId>,
@@ -64,9 +68,14 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             AdcOffset::Input(slot)
         }
     });
+    let (lo, hi) =
+        adc::code_range(m.bits, m.polarity).map_err(|e| cx.not_invertible(&e.to_string()))?;
     Ok(Adc {
         bits: m.bits,
         polarity: m.polarity,
+        codes: (lo as f64, hi as f64),
+        // 2^N unipolar, 2^(N−1) bipolar: one past the highest code.
+        per_ref: (hi + 1) as f64,
         differential: m.input == AdcInput::Differential,
         pga,
         vref,
@@ -116,11 +125,7 @@ impl Adc {
             Some(AdcOffset::Codes(o)) => (0.0, values[o]),
             None => (0.0, 0.0),
         };
-        let per_ref = match self.polarity {
-            // A shift, not `powi`: that is a library call per run.
-            Polarity::Unipolar => (1u64 << self.bits) as f64,
-            Polarity::Bipolar => (1u64 << (self.bits - 1)) as f64,
-        };
+        let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
         // INL is a fraction of the full-scale code span.
         let full_scale = match self.polarity {
             Polarity::Unipolar => per_ref,
@@ -129,10 +134,6 @@ impl Adc {
         let exact = (v + off) * gain / vr * per_ref
             + off_codes
             + self.inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
-        let (lo, hi) = match self.polarity {
-            Polarity::Unipolar => (0.0, per_ref - 1.0),
-            Polarity::Bipolar => (-per_ref, per_ref - 1.0),
-        };
         Ok(Signal::Code {
             exact,
             code: round_code(exact, lo, hi),
