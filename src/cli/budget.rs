@@ -12,11 +12,11 @@ use super::files::{check_one, collect};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::report::{
-    analyse_with_progress, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
+    analyse_reusing, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
 use crate::analysis::{eval_finding, evaluable_part, soundness};
 use crate::diagnostics::{render_human, Findings};
-use crate::eval::lower;
+use crate::eval::{lower, Plan};
 use crate::model::{did_you_mean, Chain};
 use crate::units::format::{from_si, trimmed};
 
@@ -171,7 +171,10 @@ fn budget_file(
     // Warnings about the budget itself (R616), shown after it.
     let mut notes: Vec<crate::diagnostics::Finding> = Vec::new();
     for chain in chains {
-        let analysed = analyse_chain(chain, &options, progress);
+        let analysed = checked.plan(chain).and_then(|plan| {
+            let earlier = checked.analysis(chain);
+            analyse_chain(chain, &plan, earlier, &options, progress)
+        });
         match analysed {
             Ok(a) => {
                 // A number that is not one is never shown (E505 says why).
@@ -186,7 +189,9 @@ fn budget_file(
             // With the check's errors beside it, what can be evaluated is
             // still worth showing: the part of the range that evaluates.
             Err(e) => match evaluable_part(chain).filter(|_| !errors.is_empty()) {
-                Some(part) => match analyse_chain(&part, &options, progress) {
+                Some(part) => match lower(&part)
+                    .and_then(|plan| analyse_chain(&part, &plan, None, &options, progress))
+                {
                     Ok(a) if soundness::non_finite(&part, &a).is_empty() => {
                         if args.format == Format::Human {
                             outln!("{}", part_note(&part));
@@ -247,13 +252,15 @@ fn budget_file(
     Ok(if failed { EXIT_FINDINGS } else { EXIT_OK })
 }
 
-/// Lowers and analyses one chain, with a progress line on a terminal.
+/// Analyses one chain, with a progress line on a terminal, keeping what
+/// `earlier` (the analysis the check judged it on) already holds.
 fn analyse_chain(
     chain: &Chain,
+    plan: &Plan,
+    earlier: Option<Analysis>,
     options: &Options,
     progress: bool,
 ) -> Result<Analysis, crate::eval::EvalError> {
-    let plan = lower(chain)?;
     // On a terminal, a line that counts the Monte Carlo points; never on a
     // pipe, where it would land in someone's log.
     let show = |done: usize, total: usize| {
@@ -264,7 +271,7 @@ fn analyse_chain(
             );
         }
     };
-    let result = analyse_with_progress(chain, &plan, options, &show);
+    let result = analyse_reusing(chain, plan, options, earlier, &show);
     if progress {
         err!("\r\x1b[2K");
     }

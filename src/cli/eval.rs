@@ -1,5 +1,6 @@
 //! `catena eval SPEC --at VALUE`: every stage's output at one point.
 
+use std::borrow::Cow;
 use std::path::PathBuf;
 
 use clap::Args;
@@ -7,7 +8,7 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::{eval_finding, evaluable_part};
+use crate::analysis::{eval_finding, evaluable_part_of};
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
 use crate::eval::{lower, lower_unvalidated, Env, Node, Plan, Signal};
 use crate::model::{did_you_mean, Chain};
@@ -75,15 +76,19 @@ pub fn run(args: EvalArgs) -> u8 {
     };
     // A sensor outside its range of validity is already among the errors:
     // the stages still show what they do as written.
-    let (plan, fitted) = match lower_unvalidated(chain) {
-        Ok(p) => p,
-        Err(e) => return report_one(chain, &e, None, errors),
+    // The check's plan when it kept one (it lowered with a conversion).
+    let (plan, fitted) = match checked.analysed(chain).and_then(|a| a.plan.as_ref()) {
+        Some(plan) => (Cow::Borrowed(plan), Ok(())),
+        None => match lower_unvalidated(chain) {
+            Ok((plan, fitted)) => (Cow::Owned(plan), fitted),
+            Err(e) => return report_one(chain, &e, None, errors),
+        },
     };
     // No conversion over the whole range, or a sensor valid over part of
     // it: the part of the range that evaluates still has one.
-    let (plan, fitted) = match evaluable_part(chain) {
+    let (plan, fitted) = match evaluable_part_of(chain, &plan, fitted.is_ok()) {
         Some(part) if part_covers(&part, at) => match lower(&part) {
-            Ok(p) => (p, Ok(())),
+            Ok(p) => (Cow::Owned(p), Ok(())),
             Err(_) => (plan, fitted),
         },
         _ => (plan, fitted),

@@ -33,8 +33,8 @@ impl Findings {
         self.items.push(finding);
     }
 
-    pub fn extend(&mut self, other: Findings) {
-        self.items.extend(other.items);
+    pub fn extend(&mut self, other: impl IntoIterator<Item = Finding>) {
+        self.items.extend(other);
     }
 
     pub fn is_empty(&self) -> bool {
