@@ -46,6 +46,15 @@ pub fn catena(dir: &Path, args: &[&str], stdin: Option<&[u8]>) -> Run {
     }
 }
 
+/// A fresh, empty folder under the system's temporary folder, its name
+/// made of `prefix`, this test binary's process id and `name`.
+pub fn temp_dir(prefix: &str, name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("catena-{prefix}-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("a temporary folder can be made");
+    dir
+}
+
 /// Every demo spec, sorted.
 pub fn demo_specs() -> Vec<PathBuf> {
     let mut specs: Vec<PathBuf> = std::fs::read_dir(root().join("specs"))
