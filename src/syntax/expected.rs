@@ -171,6 +171,9 @@ pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Find
             f.labels.truncate(1);
             f
         }
+        // A line that starts with its right keyword (`chain a °{`) is
+        // wrong further on, where the parser's own finding points.
+        Rule::top_line if matches!(first, "chain" | "use") => finding,
         Rule::top_line | Rule::chain_line if !is_stage && !is_setting && !head.contains("->") => {
             let mut candidates: Vec<&str> = StageKind::ALL.iter().map(|k| k.keyword()).collect();
             candidates.extend(SettingKind::ALL.iter().map(|k| k.keyword()));

@@ -558,5 +558,8 @@ mod tests {
         setting_outside_a_chain: "«ambient» 10 degC .. 40 degC\nchain a {\n    measurand temperature 0 degC .. 50 degC\n}\n" => S011;
         negative_tolerance: "chain a {\n    measurand temperature 0 degC .. 50 degC\n    amplifier front { gain 4 ± «-0.05» % }\n}\n" => S013;
         bidirectional_control: "chain a {\n    # a comment «\u{202e}» here\n    measurand temperature 0 degC .. 50 degC\n}\n" => S016;
+        // Not `chain` said not to start a statement, with "did you mean
+        // `chain`?": the keyword is right, the rest of the line is wrong.
+        right_keyword_wrong_after: "chain a «°{»\n}\n" => S001;
     }
 }
