@@ -15,9 +15,10 @@ use crate::analysis::report::{
     analyse_reusing, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
 use crate::analysis::{eval_finding, evaluable_part, soundness};
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Findings};
 use crate::eval::{lower, Plan};
-use crate::model::{did_you_mean, Chain};
+use crate::model::Chain;
 use crate::units::format::{from_si, trimmed};
 
 #[derive(Args, Debug)]

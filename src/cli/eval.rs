@@ -9,9 +9,10 @@ use serde::Serialize;
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::{eval_finding, evaluable_part_of};
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
 use crate::eval::{lower, lower_unvalidated, Env, Node, Plan, Signal};
-use crate::model::{did_you_mean, Chain};
+use crate::model::Chain;
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
 

@@ -10,8 +10,8 @@ use petgraph::graph::DiGraph;
 
 use super::chain::{Connection, Stage};
 use super::ports::{self, InputSpec, Port, Signal};
-use super::suggest::did_you_mean;
 use super::value::ParamValue;
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{EdgeDecl, Endpoint, StageKind};
 

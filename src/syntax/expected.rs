@@ -7,7 +7,7 @@ use std::sync::Arc;
 use pest::error::{Error, ErrorVariant, InputLocation};
 
 use super::ast::{SettingKind, StageKind};
-use super::parser::Rule;
+use super::grammar::Rule;
 use crate::diagnostics::{Code, Finding, SourceFile, Span};
 
 fn describe(rule: Rule) -> Option<&'static str> {
@@ -181,7 +181,7 @@ pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Find
             if anchored == Rule::top_line {
                 candidates = vec!["chain", "use"];
             }
-            let near = crate::model::did_you_mean(first, candidates.iter().copied());
+            let near = crate::diagnostics::did_you_mean(first, candidates.iter().copied());
             let help = match near {
                 Some(near) => format!("did you mean `{near}`?"),
                 None if anchored == Rule::chain_line => {

@@ -12,11 +12,8 @@ use super::ast::{
     Value,
 };
 use super::expected::explain_parse_error;
+use super::grammar::{CatenaParser, Rule};
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
-
-#[derive(pest_derive::Parser)]
-#[grammar = "../grammar/catena.pest"]
-pub(super) struct CatenaParser;
 
 /// Bounds pest's own recursion on hostile input (the prescan already
 /// bounds brace depth; this bounds everything else).
