@@ -111,88 +111,90 @@ fn connect_edge(
     findings: &mut Findings,
 ) {
     let index = |name: &str| by_name.get(name).copied();
-    {
-        for (i, pair) in edge.endpoints.windows(2).enumerate() {
-            let (a, b) = (&pair[0], &pair[1]);
-            let (Some(from), Some(to)) = (
-                lookup(file, stages, a, &index, findings, i == 0),
-                lookup(file, stages, b, &index, findings, false),
-            ) else {
-                continue;
-            };
-            // The first endpoint's port names an output; a middle endpoint's
-            // port names the input it is entered by, and it leaves by `out`.
-            let from_port = match (&a.port, i) {
-                (Some(p), 0) => Port::from_name(&p.name),
-                _ => Some(Port::Out),
-            };
-            let to_port = match &b.port {
-                Some(p) => Port::from_name(&p.name),
-                None => stage_inputs(&stages[to]).first().map(|s| s.port),
-            };
-            let Some(from_port) = from_port else { continue };
-            if from_port != Port::Out {
-                let span = a.port.as_ref().map(|p| p.span).unwrap_or(a.span);
-                findings.push(
-                    Finding::new(
-                        Code::M211,
-                        file,
-                        format!(
-                            "`{}.{}` is an input, not an output",
-                            a.stage.name,
-                            from_port.name()
-                        ),
-                    )
-                    .label(span, "edges leave a stage by `out`")
-                    .help(format!(
-                        "write `{} -> ...`, or reverse the edge",
-                        a.stage.name
-                    )),
-                );
-                continue;
-            }
-            let Some(to_port) = to_port else {
-                findings.push(
-                    Finding::new(
-                        Code::M204,
-                        file,
-                        format!("`{}` takes no input", stages[to].name),
-                    )
-                    .label(
-                        b.span,
-                        format!("{} has no input port", with_article(&describe(&stages[to]))),
-                    )
-                    .help(format!(
-                        "`{}` is a source; edges can only start from it",
-                        stages[to].name
-                    )),
-                );
-                continue;
-            };
-            if to_port == Port::Out {
-                let span = b.port.as_ref().map(|p| p.span).unwrap_or(b.span);
-                findings.push(
-                    Finding::new(
-                        Code::M211,
-                        file,
-                        format!("`{}.out` is an output, not an input", b.stage.name),
-                    )
-                    .label(span, "edges enter a stage by an input")
-                    .help(format!(
-                        "write `... -> {}` for its default input",
-                        b.stage.name
-                    )),
-                );
-                continue;
-            }
-            connections.push(Connection {
+    for (i, pair) in edge.endpoints.windows(2).enumerate() {
+        let (a, b) = (&pair[0], &pair[1]);
+        let (Some(from), Some(to)) = (
+            lookup(file, stages, a, &index, findings, i == 0),
+            lookup(file, stages, b, &index, findings, false),
+        ) else {
+            continue;
+        };
+        // The first endpoint's port names an output; a middle endpoint's
+        // port names the input it is entered by, and it leaves by `out`.
+        let from_port = match (&a.port, i) {
+            (Some(p), 0) => Port::from_name(&p.name),
+            _ => Some(Port::Out),
+        };
+        let Some(from_port) = from_port else { continue };
+        if from_port != Port::Out {
+            findings.push(input_as_output(file, a, from_port));
+            continue;
+        }
+        match entry_port(file, &stages[to], b) {
+            Ok(to_port) => connections.push(Connection {
                 from,
                 from_port,
                 to,
                 to_port,
                 span: a.span.to(b.span),
-            });
+            }),
+            Err(finding) => findings.push(finding),
         }
+    }
+}
+
+/// M211: an edge that leaves a stage by one of its inputs.
+fn input_as_output(file: &Arc<SourceFile>, a: &Endpoint, port: Port) -> Finding {
+    let span = a.port.as_ref().map(|p| p.span).unwrap_or(a.span);
+    Finding::new(
+        Code::M211,
+        file,
+        format!(
+            "`{}.{}` is an input, not an output",
+            a.stage.name,
+            port.name()
+        ),
+    )
+    .label(span, "edges leave a stage by `out`")
+    .help(format!(
+        "write `{} -> ...`, or reverse the edge",
+        a.stage.name
+    ))
+}
+
+/// The port an edge enters `stage` by (`b` names it, or its first
+/// input); M204 when the stage takes no input, M211 for its output.
+fn entry_port(file: &Arc<SourceFile>, stage: &Stage, b: &Endpoint) -> Result<Port, Finding> {
+    let port = match &b.port {
+        Some(p) => Port::from_name(&p.name),
+        None => stage_inputs(stage).first().map(|s| s.port),
+    };
+    match port {
+        None => Err(
+            Finding::new(Code::M204, file, format!("`{}` takes no input", stage.name))
+                .label(
+                    b.span,
+                    format!("{} has no input port", with_article(&describe(stage))),
+                )
+                .help(format!(
+                    "`{}` is a source; edges can only start from it",
+                    stage.name
+                )),
+        ),
+        Some(Port::Out) => {
+            let span = b.port.as_ref().map(|p| p.span).unwrap_or(b.span);
+            Err(Finding::new(
+                Code::M211,
+                file,
+                format!("`{}.out` is an output, not an input", b.stage.name),
+            )
+            .label(span, "edges enter a stage by an input")
+            .help(format!(
+                "write `... -> {}` for its default input",
+                b.stage.name
+            )))
+        }
+        Some(port) => Ok(port),
     }
 }
 
@@ -675,71 +677,80 @@ fn check_use(
         }
         let touched = feeds_any[i] || fed[i] || junctions.contains(stage.name.as_str());
         if !touched {
-            findings.push(
-                Finding::new(
-                    Code::M208,
-                    file,
-                    format!("stage `{}` is not connected to anything", stage.name),
-                )
-                .label(stage.name_span, "unused")
-                .help(format!(
-                    "connect it with an edge such as `{} -> ...`, or remove it",
-                    stage.name
-                ))
-                .caused_by(stage.misnamed.clone()),
-            );
-            continue;
-        }
-        let feeds = feeds_any[i];
-        if stage.kind != StageKind::Convert && !feeds && outputs[i] != Signal::Reading {
-            findings.push(
-                Finding::new(
-                    Code::M213,
-                    file,
-                    format!("the output of `{}` goes nowhere", stage.name),
-                )
-                .label(stage.name_span, "output not used")
-                .help(format!(
-                    "connect it with `{} -> ...`, or remove the stage",
-                    stage.name
-                ))
-                .caused_by(stage.misnamed.clone()),
-            );
+            findings.push(unused(file, stage));
+        } else if stage.kind != StageKind::Convert && !feeds_any[i] && outputs[i] != Signal::Reading
+        {
+            findings.push(goes_nowhere(file, stage));
         }
     }
-    if stages.is_empty() {
-        return;
+    if !stages.is_empty() && finals.len() != 1 {
+        findings.push(not_one_ending(file, stages, &finals, loops));
     }
-    if finals.len() != 1 {
-        let chain_span = stages.first().map(|s| s.span).unwrap_or_default();
-        let mut f = Finding::new(
-            Code::M210,
-            file,
-            match finals.len() {
-                0 => "no `convert` stage ends the chain, so nothing becomes a reading".to_string(),
-                n => format!("{n} `convert` stages end the chain; it must end in one reading"),
-            },
+}
+
+/// M208: a stage no edge touches.
+fn unused(file: &Arc<SourceFile>, stage: &Stage) -> Finding {
+    Finding::new(
+        Code::M208,
+        file,
+        format!("stage `{}` is not connected to anything", stage.name),
+    )
+    .label(stage.name_span, "unused")
+    .help(format!(
+        "connect it with an edge such as `{} -> ...`, or remove it",
+        stage.name
+    ))
+    .caused_by(stage.misnamed.clone())
+}
+
+/// M213: a stage whose output feeds nothing.
+fn goes_nowhere(file: &Arc<SourceFile>, stage: &Stage) -> Finding {
+    Finding::new(
+        Code::M213,
+        file,
+        format!("the output of `{}` goes nowhere", stage.name),
+    )
+    .label(stage.name_span, "output not used")
+    .help(format!(
+        "connect it with `{} -> ...`, or remove the stage",
+        stage.name
+    ))
+    .caused_by(stage.misnamed.clone())
+}
+
+/// M210: no conversion, or several, ends the chain (`finals`).
+fn not_one_ending(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    finals: &[usize],
+    loops: &[(Vec<usize>, Cause)],
+) -> Finding {
+    let chain_span = stages.first().map(|s| s.span).unwrap_or_default();
+    let mut f = Finding::new(
+        Code::M210,
+        file,
+        match finals.len() {
+            0 => "no `convert` stage ends the chain, so nothing becomes a reading".to_string(),
+            n => format!("{n} `convert` stages end the chain; it must end in one reading"),
+        },
+    );
+    // A conversion that feeds a loop does not end the chain because
+    // of the loop.
+    let looped = loops.iter().find(|(members, _)| {
+        members
+            .iter()
+            .any(|&m| stages[m].kind == StageKind::Convert)
+    });
+    f = f.caused_by(looped.map(|(_, cause)| cause.clone()));
+    if finals.is_empty() {
+        return f.label(Span::new(chain_span.start, chain_span.start), "the chain's first stage").help(
+            "add `convert reading { method exact }` and an edge from the converter: `conv -> reading`",
         );
-        // A conversion that feeds a loop does not end the chain because
-        // of the loop.
-        let looped = loops.iter().find(|(members, _)| {
-            members
-                .iter()
-                .any(|&m| stages[m].kind == StageKind::Convert)
-        });
-        f = f.caused_by(looped.map(|(_, cause)| cause.clone()));
-        if finals.is_empty() {
-            f = f.label(Span::new(chain_span.start, chain_span.start), "the chain's first stage").help(
-                "add `convert reading { method exact }` and an edge from the converter: `conv -> reading`",
-            );
-        } else {
-            for &i in &finals {
-                f = f.label(stages[i].name_span, "ends the chain");
-            }
-            f = f.help("put each reading in its own chain, or feed a cold-junction reading into the main conversion with `cj_reading -> reading.cj`");
-        }
-        findings.push(f);
     }
+    for &i in finals {
+        f = f.label(stages[i].name_span, "ends the chain");
+    }
+    f.help("put each reading in its own chain, or feed a cold-junction reading into the main conversion with `cj_reading -> reading.cj`")
 }
 
 /// The names every `cold_junction` line refers to: those stages count as
