@@ -416,14 +416,27 @@ fn narrow_domain(
 
 #[cfg(test)]
 mod tests {
+    use std::path::Path;
+
     use super::lower;
+    use crate::diagnostics::SourceFile;
     use crate::eval::node::{BridgeKind, Node};
     use crate::eval::{Plan, SourceKind};
+    use crate::model::{Chain, PartsCache};
+
+    /// The first chain of `spec`, parsed and resolved without errors.
+    fn chain(spec: &str) -> Chain {
+        let file = SourceFile::new("t.catena", spec);
+        let (ast, mut findings) = crate::syntax::parse(&file);
+        let mut parts = PartsCache::default();
+        let (chains, more) = crate::model::resolve(&file, &ast, Path::new("."), None, &mut parts);
+        findings.extend(more);
+        assert!(!findings.has_errors(), "{findings:?}");
+        chains.into_iter().next().expect("a chain")
+    }
 
     fn plan(spec: &str) -> Plan {
-        let checked = crate::check::check_str("t.catena", spec);
-        assert!(!checked.findings.has_errors(), "{:?}", checked.findings);
-        lower(&checked.chains[0]).expect("lowers")
+        lower(&chain(spec)).expect("lowers")
     }
 
     fn slot<'a>(plan: &'a Plan, id: &str) -> &'a crate::eval::Slot {
@@ -522,8 +535,7 @@ chain beam "q" {
     /// A stage whose model was not accepted is not lowered on a guess.
     #[test]
     fn a_stage_without_its_typed_model_is_not_lowered() {
-        let checked = crate::check::check_str("t.catena", QUARTER);
-        let mut chain = checked.chains[0].clone();
+        let mut chain = chain(QUARTER);
         let gauge = chain.stages.iter_mut().find(|s| s.name == "gauge");
         gauge.expect("the gauge").typed = None;
         let e = lower(&chain).expect_err("no plan");
