@@ -6,6 +6,7 @@ pub mod alarms;
 pub mod budget;
 pub mod draws;
 pub mod dynamics;
+pub mod faults;
 pub mod monte_carlo;
 pub mod noise;
 pub mod ranges;
@@ -18,6 +19,7 @@ pub mod soundness;
 mod stages;
 pub mod step;
 pub mod validation;
+pub mod window;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};

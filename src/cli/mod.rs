@@ -6,6 +6,7 @@ mod budget;
 mod budget_json;
 mod budget_table;
 mod check;
+mod checklist;
 mod compare;
 mod diff;
 mod diff_render;
@@ -52,6 +53,8 @@ enum Command {
     Diff(diff::DiffArgs),
     /// Candidate chains side by side: a trade table.
     Compare(compare::CompareArgs),
+    /// The fault-and-alarm checklist: codes, verdicts, thresholds, trips.
+    Checklist(checklist::ChecklistArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
     /// Print a shell's completion script for catena.
@@ -82,6 +85,7 @@ pub fn run() -> ExitCode {
         Command::Eval(args) => eval::run(args),
         Command::Diff(args) => diff::run(args),
         Command::Compare(args) => compare::run(args),
+        Command::Checklist(args) => checklist::run(args),
         Command::Explain(args) => explain::run(args),
         Command::Completions(args) => generate::completions(args),
         Command::Man(args) => generate::man(args),

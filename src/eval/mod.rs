@@ -9,6 +9,7 @@
 
 mod convert;
 mod element;
+pub mod fault;
 mod lower;
 pub mod node;
 mod plan;

@@ -18,6 +18,9 @@ pub(super) struct Mode {
     /// A calibration's reading of the chain: what depends on the direction
     /// of approach (hysteresis) is not the reading's.
     pub(super) calibrating: bool,
+    /// A node under a fault: what it outputs is the fault's, so a bridge
+    /// does not work its arm's self-heating out again from the curve.
+    pub(super) faulted: Option<NodeId>,
 }
 
 impl Mode {
@@ -25,26 +28,37 @@ impl Mode {
         quantized: true,
         clip: true,
         calibrating: false,
+        faulted: None,
     };
     const CODES: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: false,
+        faulted: None,
     };
     const RAW: Mode = Mode {
         quantized: true,
         clip: false,
         calibrating: false,
+        faulted: None,
     };
     const CALIBRATION: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: true,
+        faulted: None,
+    };
+    pub(super) const FAULT: Mode = Mode {
+        quantized: true,
+        clip: true,
+        calibrating: false,
+        faulted: None,
     };
     const UNQUANTIZED: Mode = Mode {
         quantized: false,
         clip: true,
         calibrating: false,
+        faulted: None,
     };
 }
 

@@ -480,6 +480,7 @@ static MODELS: &[ModelSpec] = &[
             p("noise_corner", plain(HERTZ)).non_negative(),
             p("current_noise", plain(Expect::Dim(Dim::CURRENT_DENSITY))).non_negative(),
             p("bias", Shape::Limit(AMP)),
+            p("burnout", plain(AMP)).positive(),
             p("cmrr", plain(Expect::Decibel)).positive(),
             p("input", Shape::Range(VOLT)),
             p("output", Shape::Range(VOLT)),
@@ -526,6 +527,7 @@ static MODELS: &[ModelSpec] = &[
             p("notch", plain(HERTZ)).positive(),
             p("ref_range", Shape::Range(VOLT)),
             p("rails", Shape::Range(VOLT)),
+            p("burnout", plain(AMP)).positive(),
             p("sampling_capacitance", plain(FARAD)).positive(),
             p("sampling_resistance", plain(OHM)).non_negative(),
             p("acquisition_time", plain(SECOND)).positive(),
@@ -875,6 +877,7 @@ fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
         noise_corner: r.value("noise_corner"),
         current_noise: r.value("current_noise"),
         bias: r.limit("bias"),
+        burnout: r.value("burnout"),
         cmrr: r.value("cmrr"),
         input: r.range("input"),
         output: r.range("output"),
@@ -942,6 +945,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         notch: r.value("notch"),
         ref_range: r.range("ref_range"),
         rails: r.range("rails"),
+        burnout: r.value("burnout"),
         sampling,
     }))
 }

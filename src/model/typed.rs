@@ -286,6 +286,9 @@ pub struct Amplifier {
     /// A/√Hz.
     pub current_noise: Option<f64>,
     pub bias: Option<Tolerance>,
+    /// A current its input sources into an open sensor (burnout
+    /// detection), A.
+    pub burnout: Option<f64>,
     /// As a plain ratio (not dB).
     pub cmrr: Option<f64>,
     /// Common-mode input range and output swing, V.
@@ -330,6 +333,9 @@ pub struct Adc {
     pub notch: Option<f64>,
     pub ref_range: Option<(f64, f64)>,
     pub rails: Option<(f64, f64)>,
+    /// A current its input sources into an open sensor (burnout
+    /// detection), A.
+    pub burnout: Option<f64>,
     /// The sampling input's capacitor, F, and acquisition time, s, given
     /// together; its switch resistance, Ω.
     pub sampling: Option<Sampling>,

@@ -2,6 +2,7 @@
 //! gain error and INL, and the code it gives.
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, AdcInput};
 use crate::model::value::Tolerance;
@@ -27,6 +28,8 @@ pub struct Adc {
     /// Integral nonlinearity, a fraction of full scale, nominal 0.
     pub inl: Option<SlotId>,
     pub input: NodeId,
+    /// The current its input sources into an open sensor, A.
+    pub burnout: Option<f64>,
 }
 
 /// A converter's offset as it was stated: a voltage at its input, or a
@@ -88,8 +91,16 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             .inputs
             .input
             .ok_or_else(|| cx.not_invertible("no input"))?,
+        burnout: m.burnout,
     })
 }
+
+/// Its code stuck at either end, or its reference lost.
+pub(super) const FAULTS: &[FaultKind] = &[
+    FaultKind::OverRange,
+    FaultKind::UnderRange,
+    FaultKind::ReferenceLost,
+];
 
 /// A converter's gain error or INL as a fraction of its full-scale span.
 /// Written in `LSB`, one code is 1/2^bits of the whole span (of both
@@ -118,6 +129,49 @@ impl Adc {
         if vr <= 0.0 || !vr.is_finite() {
             return Err(run.numeric("the reference voltage is zero or negative"));
         }
+        Ok(self.code(run, v, vr))
+    }
+
+    /// Its code behind a fault upstream, or with one of its own. Without a
+    /// reference, an input above zero is beyond full scale and one below
+    /// beyond the bottom, as any converter clamps them.
+    pub(super) fn faulted(
+        &self,
+        run: &Run<'_>,
+        kind: Option<FaultKind>,
+    ) -> Result<Faulted, EvalError> {
+        let (lo, hi) = self.codes;
+        let rail = |x: f64| {
+            Faulted::Signal(Signal::Code {
+                exact: x,
+                code: x as i64,
+            })
+        };
+        let Signal::Voltage { v, .. } = run.s[self.input] else {
+            return Err(run.numeric("no input voltage"));
+        };
+        let vr = match kind {
+            Some(FaultKind::OverRange) => return Ok(rail(hi)),
+            Some(FaultKind::UnderRange) => return Ok(rail(lo)),
+            Some(FaultKind::ReferenceLost) => 0.0,
+            Some(other) => return Err(run.numeric(other.describe())),
+            None => self.reference_voltage(run.plan, run.values, run.env, run.s),
+        };
+        Ok(if vr > 0.0 && vr.is_finite() {
+            Faulted::Signal(self.code(run, v, vr))
+        } else if v > 0.0 {
+            rail(hi)
+        } else if v < 0.0 {
+            rail(lo)
+        } else {
+            Faulted::Undetermined("the converter's input and reference are both zero")
+        })
+    }
+
+    /// The code for input `v` against reference `vr`.
+    #[inline(always)]
+    fn code(&self, run: &Run<'_>, v: f64, vr: f64) -> Signal {
+        let values = run.values;
         let gain = self.pga.map(|g| values[g]).unwrap_or(1.0)
             * (1.0 + self.gain_error.map(|g| values[g]).unwrap_or(0.0));
         let (off, off_codes) = match self.offset {
@@ -134,10 +188,10 @@ impl Adc {
         let exact = (v + off) * gain / vr * per_ref
             + off_codes
             + self.inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
-        Ok(Signal::Code {
+        Signal::Code {
             exact,
             code: round_code(exact, lo, hi),
-        })
+        }
     }
 
     /// The reference it works against: its `ref` input, else its `vref`

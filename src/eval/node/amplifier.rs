@@ -2,6 +2,7 @@
 //! swing; outside its common-mode range it rails.
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed;
 
@@ -22,6 +23,8 @@ pub struct Amplifier {
     /// Common-mode input range and output swing, V.
     pub input_range: Option<(f64, f64)>,
     pub output: Option<(f64, f64)>,
+    /// The current its input sources into an open sensor, A.
+    pub burnout: Option<f64>,
 }
 
 /// An amplifier's reference (its REF pin, or an output level shift).
@@ -84,10 +87,34 @@ pub(super) fn lower(m: &typed::Amplifier, cx: &mut Cx<'_>) -> Result<Amplifier, 
         reference,
         input_range: m.input,
         output: m.output,
+        burnout: m.burnout,
     })
 }
 
+/// Its output stuck at either swing (a latched-up or damaged part).
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::SaturatedHigh, FaultKind::SaturatedLow];
+
 impl Amplifier {
+    /// The output at the stated swing's end; without a stated swing
+    /// nothing says where it saturates.
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        let Some((lo, hi)) = self.output else {
+            return Ok(Faulted::Undetermined(
+                "the amplifier's output swing is not stated",
+            ));
+        };
+        let v = match kind {
+            FaultKind::SaturatedHigh => hi,
+            FaultKind::SaturatedLow => lo,
+            _ => return Err(run.numeric(kind.describe())),
+        };
+        Ok(Faulted::Signal(Signal::Voltage {
+            v,
+            cm: v / 2.0,
+            rs: 0.0,
+        }))
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let Signal::Voltage { v, cm, rs } = run.s[self.input] else {

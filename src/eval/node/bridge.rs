@@ -5,6 +5,7 @@
 
 use super::{Cx, Run};
 use crate::eval::element::Supply;
+use crate::eval::fault::FaultKind;
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, BridgeForm, DividerSide};
 use crate::physics::strain;
@@ -73,6 +74,10 @@ pub(super) fn lower(m: &typed::Bridge, cx: &mut Cx<'_>) -> Result<Bridge, EvalEr
     })
 }
 
+/// None of its own: its arms are elements of their own, each with its own
+/// faults; its completion resistors' faults are not modelled yet.
+pub(super) const FAULTS: &[FaultKind] = &[];
+
 impl Bridge {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
@@ -103,7 +108,13 @@ impl Bridge {
             BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
-        let at = |k: usize| self.arms.get(k).copied();
+        // A faulted arm is what the fault made it, not heated again.
+        let at = |k: usize| {
+            self.arms
+                .get(k)
+                .copied()
+                .filter(|&n| run.mode.faulted != Some(n))
+        };
         let placed = match self.kind {
             BridgeKind::Quarter => [None, at(0), None, None],
             BridgeKind::Half => [None, at(0), at(1), None],
@@ -141,7 +152,7 @@ impl Bridge {
             Signal::Current(a) if !sensor_high => Supply::Current(a),
             _ => Supply::None,
         };
-        let element = match self.arms.first() {
+        let element = match self.arms.first().filter(|&&n| run.mode.faulted != Some(n)) {
             Some(&n) => run
                 .plan
                 .heated_divider_element(n, arm, supply, run.values, run.env)?,

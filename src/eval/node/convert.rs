@@ -4,6 +4,7 @@
 
 use super::{Cx, Run};
 use crate::eval::convert::{Calibration, Conversion, Method};
+use crate::eval::fault::FaultKind;
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, CalibrationMethod, ConversionMethod};
 use crate::model::value::Tolerance;
@@ -83,6 +84,9 @@ fn calibration_error(cx: &mut Cx<'_>, k: usize, uncertainty: &Option<Tolerance>)
         cx.add(&id, SourceKind::Calibration, 0.0, minus, plus, normal)
     })
 }
+
+/// None: a conversion is firmware, with no electrical fault.
+pub(super) const FAULTS: &[FaultKind] = &[];
 
 impl Convert {
     #[inline(always)]

@@ -1,6 +1,7 @@
 //! A current or voltage source: its value with tolerance and drift.
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, EvalError, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, Source};
 
@@ -9,12 +10,15 @@ pub struct Excitation {
     pub current: bool,
     pub value: SlotId,
     pub drift: Option<DriftSlot>,
+    /// A current source's compliance, V: where its output goes when its
+    /// load opens.
+    pub compliance: Option<f64>,
 }
 
 pub(super) fn lower(m: &typed::Excitation, cx: &mut Cx<'_>) -> Result<Excitation, EvalError> {
-    let (current, name) = match m.source {
-        Source::Current { .. } => (true, "current"),
-        Source::Voltage { .. } => (false, "voltage"),
+    let (current, name, compliance) = match m.source {
+        Source::Current { compliance } => (true, "current", compliance),
+        Source::Voltage { .. } => (false, "voltage", None),
     };
     let value = cx.measure(name, SourceKind::Tolerance, &m.value);
     // A drift on its own line takes the place of one on the value.
@@ -26,17 +30,33 @@ pub(super) fn lower(m: &typed::Excitation, cx: &mut Cx<'_>) -> Result<Excitation
         current,
         value,
         drift,
+        compliance,
     })
 }
+
+/// A source can be lost (a blown fuse, a dead regulator).
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
 
 impl Excitation {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let v = run.drifted(run.values[self.value], self.drift);
-        Ok(if self.current {
+        Ok(self.output(v))
+    }
+
+    fn output(&self, v: f64) -> Signal {
+        if self.current {
             Signal::Current(v)
         } else {
             Signal::Source(v)
+        }
+    }
+
+    /// A lost source gives nothing.
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        Ok(match kind {
+            FaultKind::Lost => Faulted::Signal(self.output(0.0)),
+            _ => return Err(run.numeric(kind.describe())),
         })
     }
 }

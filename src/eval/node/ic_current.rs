@@ -2,6 +2,7 @@
 //! proportional to absolute temperature (PTAT).
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::semiconductor;
@@ -23,7 +24,17 @@ pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, 
     })
 }
 
+/// Its supply lost: no current.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
+
 impl IcCurrent {
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        match kind {
+            FaultKind::Lost => Ok(Faulted::Signal(Signal::Current(0.0))),
+            _ => Err(run.numeric(kind.describe())),
+        }
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let t = run.sensed(self.senses);

@@ -1,6 +1,7 @@
 //! A semiconductor temperature sensor with a linear voltage output.
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::semiconductor;
@@ -34,7 +35,22 @@ pub(super) fn lower(m: &typed::IcVoltage, cx: &mut Cx<'_>) -> Result<IcVoltage, 
     })
 }
 
+/// Its supply lost: the output falls to 0 V behind its output
+/// resistance.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
+
 impl IcVoltage {
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        match kind {
+            FaultKind::Lost => Ok(Faulted::Signal(Signal::Voltage {
+                v: 0.0,
+                cm: 0.0,
+                rs: run.or_zero(self.rout),
+            })),
+            _ => Err(run.numeric(kind.describe())),
+        }
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let t = run.sensed(self.senses);

@@ -34,6 +34,7 @@ pub(super) use thermocouple::junction_c;
 pub use thermocouple::Thermocouple;
 pub use transducer::Transducer;
 
+use super::fault::{Fault, FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
 use super::plan::{
     DriftSlot, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId, SourceKind,
 };
@@ -81,7 +82,134 @@ pub(super) fn lower(model: &StageModel, cx: &mut Cx<'_>) -> Result<Node, EvalErr
     })
 }
 
+impl Node {
+    /// The faults this kind of node can have, as its own file declares.
+    pub fn faults(&self) -> &'static [FaultKind] {
+        match self {
+            Node::Excitation(_) => excitation::FAULTS,
+            Node::Rtd(_) => rtd::FAULTS,
+            Node::Thermocouple(_) => thermocouple::FAULTS,
+            Node::Thermistor(_) => thermistor::FAULTS,
+            Node::IcVoltage(_) => ic_voltage::FAULTS,
+            Node::IcCurrent(_) => ic_current::FAULTS,
+            Node::StrainGauge(_) => strain_gauge::FAULTS,
+            Node::Transducer(_) => transducer::FAULTS,
+            Node::Resistor(_) => resistor::FAULTS,
+            Node::Bridge(_) => bridge::FAULTS,
+            Node::Amplifier(_) => amplifier::FAULTS,
+            Node::Filter(_) => filter::FAULTS,
+            Node::Adc(_) => adc::FAULTS,
+            Node::Convert(_) => convert::FAULTS,
+        }
+    }
+
+    /// The nodes this one reads, every port.
+    pub fn inputs(&self) -> Vec<NodeId> {
+        let stage = |r: Option<AmpReference>| match r {
+            Some(AmpReference::Stage(n)) => Some(n),
+            Some(AmpReference::Stated { .. }) | None => None,
+        };
+        match self {
+            Node::Excitation(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_) => Vec::new(),
+            Node::Rtd(n) => n.input.into_iter().collect(),
+            Node::Thermistor(n) => n.input.into_iter().collect(),
+            Node::Resistor(n) => n.input.into_iter().collect(),
+            Node::StrainGauge(n) => n.input.into_iter().collect(),
+            Node::Transducer(n) => n.input.into_iter().collect(),
+            Node::Bridge(n) => std::iter::once(n.exc)
+                .chain(n.arms.iter().copied())
+                .collect(),
+            Node::Amplifier(n) => std::iter::once(n.input).chain(stage(n.reference)).collect(),
+            Node::Filter(n) => vec![n.input],
+            Node::Adc(n) => std::iter::once(n.input).chain(n.reference).collect(),
+            Node::Convert(n) => std::iter::once(n.input).chain(n.cj).collect(),
+        }
+    }
+
+    /// What drives a resistive element (a current source, or nothing for
+    /// an arm of a bridge or divider); None for another kind.
+    pub(super) fn element_input(&self) -> Option<NodeId> {
+        match self {
+            Node::Rtd(n) => n.input,
+            Node::Thermistor(n) => n.input,
+            Node::Resistor(n) => n.input,
+            Node::StrainGauge(n) => n.input,
+            Node::Excitation(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::Transducer(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
+        }
+    }
+}
+
 impl Plan {
+    /// Node `i`'s signal in a run with `fault` somewhere in the chain:
+    /// its own fault when `here` is it, else what it makes of its faulted
+    /// inputs (a converter then reads without a reference too).
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn faulted_node(
+        &self,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+        mode: Mode,
+        here: Option<&Fault>,
+    ) -> Result<Faulted, EvalError> {
+        let run = Run {
+            plan: self,
+            i,
+            values,
+            env,
+            s,
+            mode,
+            junction_mv: None,
+        };
+        let Some(fault) = here else {
+            return match &self.nodes[i] {
+                Node::Adc(n) => n.faulted(&run, None),
+                _ => self
+                    .node(i, values, env, s, mode, None)
+                    .map(Faulted::Signal),
+            };
+        };
+        let kind = fault.kind;
+        match &self.nodes[i] {
+            Node::Excitation(n) => n.faulted(&run, kind),
+            Node::Rtd(n) => n.faulted(&run, kind),
+            Node::Thermocouple(n) => n.faulted(&run, fault),
+            Node::Thermistor(n) => n.faulted(&run, kind),
+            Node::IcVoltage(n) => n.faulted(&run, kind),
+            Node::IcCurrent(n) => n.faulted(&run, kind),
+            Node::StrainGauge(n) => n.faulted(&run, kind),
+            Node::Resistor(n) => n.faulted(&run, kind),
+            Node::Amplifier(n) => n.faulted(&run, kind),
+            Node::Adc(n) => n.faulted(&run, Some(kind)),
+            // Kinds that declare no fault of their own.
+            Node::Transducer(_) | Node::Bridge(_) | Node::Filter(_) | Node::Convert(_) => {
+                Err(run.numeric(kind.describe()))
+            }
+        }
+    }
+
+    /// A current source's compliance, V; None for another node or one
+    /// that states none.
+    fn compliance(&self, i: NodeId) -> Option<f64> {
+        match &self.nodes[i] {
+            Node::Excitation(e) if e.current => e.compliance,
+            _ => None,
+        }
+    }
+
     /// Node `i`'s signal in one run.
     #[inline(always)]
     pub(super) fn node(
@@ -186,6 +314,34 @@ impl Run<'_> {
             }
             None => Signal::Element(r),
         }
+    }
+}
+
+impl Run<'_> {
+    /// A resistive element open or shorted, with `lead` Ω of wiring still
+    /// in the measurement. Open on a current source, the source runs to
+    /// its compliance (the rest of its string carries nothing); open in a
+    /// bridge or divider, the arm is an insulator.
+    fn element_fault(
+        &self,
+        kind: FaultKind,
+        input: Option<NodeId>,
+        lead: f64,
+    ) -> Result<Faulted, EvalError> {
+        Ok(match (kind, self.current_into(input)) {
+            (FaultKind::Short, _) => Faulted::Signal(self.element(SHORT_OHMS + lead, input)),
+            (FaultKind::Open, None) => Faulted::Signal(Signal::Element(OPEN_OHMS)),
+            (FaultKind::Open, Some(_)) => match input.and_then(|n| self.plan.compliance(n)) {
+                // The saturated source holds the node: no source resistance.
+                Some(v) => Faulted::Signal(Signal::Voltage {
+                    v,
+                    cm: v / 2.0,
+                    rs: 0.0,
+                }),
+                None => Faulted::Undetermined("the current source's compliance is not stated"),
+            },
+            _ => return Err(self.numeric(kind.describe())),
+        })
     }
 }
 

@@ -1,6 +1,7 @@
 //! A fixed resistor with its tolerance and drift.
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed;
 
@@ -21,7 +22,15 @@ pub(super) fn lower(m: &typed::Resistor, cx: &mut Cx<'_>) -> Result<Resistor, Ev
     })
 }
 
+/// An element opens (a cracked element, a broken wire) or shorts.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Short];
+
 impl Resistor {
+    /// The element open or shorted.
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        run.element_fault(kind, self.input, 0.0)
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let r = run.drifted(run.values[self.r], self.drift);

@@ -3,6 +3,7 @@
 //! deviations, its leads and its self-heating (`eval/element.rs`).
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, RtdCurveName};
 use crate::physics::rtd::{self, Wiring};
@@ -159,6 +160,10 @@ pub(super) fn lower(m: &typed::Rtd, cx: &mut Cx<'_>) -> Result<Rtd, EvalError> {
     })
 }
 
+/// An element opens (a broken wire or element) or shorts (a crushed
+/// cable).
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Short];
+
 impl Rtd {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
@@ -166,10 +171,18 @@ impl Rtd {
         let r = run
             .plan
             .driven_element(run.i, run.values, run.env, current)?;
-        let lead = self
-            .leads
+        Ok(run.element(r + self.lead(run), self.input))
+    }
+
+    /// The leads' resistance in the measurement, by the wiring.
+    fn lead(&self, run: &Run<'_>) -> f64 {
+        self.leads
             .map(|(a, b)| rtd::lead_series_resistance(self.wiring, run.values[a], run.values[b]))
-            .unwrap_or(0.0);
-        Ok(run.element(r + lead, self.input))
+            .unwrap_or(0.0)
+    }
+
+    /// The element open or shorted at the probe; the leads stay.
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        run.element_fault(kind, self.input, self.lead(run))
     }
 }

@@ -1,6 +1,7 @@
 //! A strain gauge: ΔR/R = GF · ε, on the tension or compression side.
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, GaugeSide};
 use crate::physics::strain;
@@ -34,7 +35,15 @@ pub(super) fn lower(m: &typed::StrainGauge, cx: &mut Cx<'_>) -> Result<StrainGau
     })
 }
 
+/// An element opens (a cracked element, a broken wire) or shorts.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Short];
+
 impl StrainGauge {
+    /// The element open or shorted.
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        run.element_fault(kind, self.input, 0.0)
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let r = strain::gauge_resistance(

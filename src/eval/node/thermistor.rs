@@ -2,6 +2,7 @@
 //! (`eval/element.rs`).
 
 use super::{Cx, Run};
+use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, ThermistorLaw};
 
@@ -47,7 +48,15 @@ pub(super) fn lower(m: &typed::Thermistor, cx: &mut Cx<'_>) -> Result<Thermistor
     })
 }
 
+/// An element opens (a cracked element, a broken wire) or shorts.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Short];
+
 impl Thermistor {
+    /// The element open or shorted.
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        run.element_fault(kind, self.input, 0.0)
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let current = run.current_into(self.input);

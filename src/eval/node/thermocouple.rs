@@ -3,6 +3,7 @@
 //! couple's common mode.
 
 use super::{Cx, Run};
+use crate::eval::fault::{Fault, FaultKind, Faulted, OPEN_OHMS};
 use crate::eval::plan::SourceKind;
 use crate::eval::plan::{ClassTolerance, DriftSlot, Env, EvalError, Senses, Signal, SlotId};
 use crate::eval::run::within;
@@ -58,7 +59,38 @@ pub(super) fn lower(m: &typed::Thermocouple, cx: &mut Cx<'_>) -> Result<Thermoco
     })
 }
 
+/// A couple burns out (opens) or is wired with its legs swapped.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Reversed];
+
 impl Thermocouple {
+    /// Open: the input's burnout current has only the bias resistor (else
+    /// the open input's insulation) to flow through, so the input reads
+    /// I × R; without a burnout current the open input floats and nothing
+    /// determines its code. Reversed: the EMF with its sign turned.
+    pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
+        let healthy = self.eval(run)?;
+        let Signal::Voltage { v, cm, rs } = healthy else {
+            return Err(run.numeric("no voltage"));
+        };
+        Ok(match fault.kind {
+            FaultKind::Reversed => Faulted::Signal(Signal::Voltage { v: -v, cm, rs }),
+            FaultKind::Open => match fault.burnout {
+                Some(current) => {
+                    let r = self.bias_resistor.map(|s| run.values[s]).unwrap_or(OPEN_OHMS);
+                    Faulted::Signal(Signal::Voltage {
+                        v: current * r,
+                        cm,
+                        rs: r,
+                    })
+                }
+                None => Faulted::Undetermined(
+                    "nothing gives the open input a path: its bias current charges it toward an unknown rail",
+                ),
+            },
+            _ => return Err(run.numeric(fault.kind.describe())),
+        })
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let (plan, i, ty) = (run.plan, run.i, self.ty);

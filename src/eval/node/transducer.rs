@@ -2,6 +2,7 @@
 //! nonlinearity and hysteresis stated as fractions of full-scale output.
 
 use super::{Cx, Run};
+use crate::eval::fault::FaultKind;
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::transducer::{self, LinearityLine};
@@ -55,6 +56,9 @@ pub(super) fn lower(m: &typed::Transducer, cx: &mut Cx<'_>) -> Result<Transducer
         r,
     })
 }
+
+/// None yet: an open output or a broken arm inside it is not modelled.
+pub(super) const FAULTS: &[FaultKind] = &[];
 
 impl Transducer {
     #[inline(always)]

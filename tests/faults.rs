@@ -1,0 +1,152 @@
+//! Faults through the evaluator, each against a code worked by hand, and
+//! the checklist of every demo spec (insta snapshots, Markdown and JSON).
+
+mod common;
+
+use common::{catena, demo_specs, json, root};
+use serde_json::Value;
+
+/// The checklist of a fixture in `tests/fixtures/faults/`, as JSON.
+fn checklist(name: &str) -> Value {
+    let spec = format!("tests/fixtures/faults/{name}");
+    let run = catena(&root(), &["checklist", &spec, "--format", "json"], None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    json(&run.stdout)
+}
+
+/// The row of `stage`'s `fault` in the first chain.
+fn row<'a>(list: &'a Value, stage: &str, fault: &str) -> &'a Value {
+    list["chains"][0]["faults"]
+        .as_array()
+        .expect("fault rows")
+        .iter()
+        .find(|r| r["stage"] == stage && r["fault"] == fault)
+        .unwrap_or_else(|| panic!("no row for {stage} {fault}: {list}"))
+}
+
+fn codes(row: &Value) -> (i64, i64) {
+    let c = &row["codes"];
+    (c[0].as_i64().expect("low"), c[1].as_i64().expect("high"))
+}
+
+/// An open RTD on a current source: the source runs to its 4 V
+/// compliance, above the 2.5 V reference, so a 16-bit converter reads its
+/// top code, 2^16 − 1 = 65535, clear of the healthy window (a Pt100 at
+/// 0 .. 100 °C on 1 mA is 0.100 .. 0.139 V, codes 2616 .. 3638).
+#[test]
+fn an_open_rtd_on_a_current_source_reads_full_scale() {
+    let list = checklist("open_rtd_current_source.catena");
+    let open = row(&list, "rtd", "open");
+    assert_eq!(codes(open), (65535, 65535));
+    assert_eq!(open["verdict"], "detectable");
+    // Shorted, 1 mΩ on 1 mA is 1 µV: code 1 µV / 2.5 V × 65536 = 0.03 → 0.
+    assert_eq!(codes(row(&list, "rtd", "short")), (0, 0));
+    let window = &list["chains"][0]["window"];
+    let code = |v: f64, vref: f64| (v / vref * 65536.0).round() as i64;
+    // The healthy ends with the current and the reference both at their
+    // limits (IEC 60751: R(100 °C) = 138.5055 Ω). The window adds the
+    // sources' deviations up, so 2616 (0.0999 V on 2.5025 V) rather than
+    // the exact corner, which rounds the same.
+    assert_eq!(window["low"], code(0.1 * 0.999, 2.5 * 1.001));
+    assert_eq!(window["high"], code(0.1385055 * 1.001, 2.5 * 0.999));
+}
+
+/// A shorted NTC at the bottom of a divider gives 3.3 V × 1 mΩ /
+/// (10 kΩ + 1 mΩ) = 0.33 µV: code 0 of 4096 on the same 3.3 V reference.
+/// Open, the divider's output is the rail: the top code.
+#[test]
+fn a_shorted_ntc_in_a_low_side_divider_reads_zero() {
+    let list = checklist("shorted_ntc_divider.catena");
+    let short = row(&list, "ntc", "short");
+    assert_eq!(codes(short), (0, 0));
+    assert_eq!(short["verdict"], "detectable");
+    assert_eq!(codes(row(&list, "ntc", "open")), (4095, 4095));
+    // The supply is also the reference: both at 0 V, nothing sets the code.
+    assert_eq!(row(&list, "rail", "lost")["verdict"], "undetermined");
+}
+
+/// An open thermocouple with a 50 nA burnout current into its 1 MΩ ± 1 %
+/// bias resistor reads 50 mV ± 1 %; a 24-bit bipolar converter on 2.5 V
+/// gives 2^23 × 0.05 / 2.5 = 167772 nominal, 166094 .. 169450 with the
+/// resistor at its limits (each source taken to its limits in turn).
+#[test]
+fn an_open_thermocouple_with_burnout_reads_the_derived_code() {
+    let list = checklist("open_thermocouple_burnout.catena");
+    let open = row(&list, "tc", "open");
+    // Each source's deviation from the nominal code, added up on each
+    // side: the resistor and the reference at their limits.
+    let exact = |r: f64, vref: f64| 50e-9 * r / vref * 2f64.powi(23);
+    let nominal = exact(1e6, 2.5);
+    let low = exact(0.99e6, 2.5) + exact(1e6, 2.5 * 1.0005) - nominal;
+    let high = exact(1.01e6, 2.5) + exact(1e6, 2.5 * 0.9995) - nominal;
+    assert_eq!(codes(open), (low.round() as i64, high.round() as i64));
+    assert_eq!(open["verdict"], "detectable");
+    // The threshold lies between the window and the fault's codes.
+    let high = list["chains"][0]["window"]["high"].as_i64().expect("high");
+    let t: i64 = open["threshold"]
+        .as_str()
+        .and_then(|t| t.strip_prefix("code > "))
+        .and_then(|t| t.parse().ok())
+        .expect("an upper threshold");
+    assert!(high < t && (t as f64) < low, "{high} {t}");
+}
+
+/// Without a burnout current, nothing gives an open couple's input a
+/// path: its code is undetermined, which is not detectable.
+#[test]
+fn an_open_thermocouple_without_burnout_is_undetermined() {
+    let list = checklist("open_thermocouple_floating.catena");
+    let open = row(&list, "tc", "open");
+    assert_eq!(open["verdict"], "undetermined");
+    assert!(open["codes"].is_null());
+}
+
+/// 50 nA through a 10 kΩ bias resistor is 0.5 mV, a code the healthy
+/// couple gives near 12 °C: silent. The fix is the least current that
+/// clears the window's top (52368) by two codes with the resistor at its
+/// low limit and the reference at its high one: 52370 / 2^23 / (9.9 kΩ /
+/// 2.5 V + 10 kΩ / 2.50125 V − 10 kΩ / 2.5 V) = 1.5773 µA, so 1.58 µA.
+#[test]
+fn an_open_thermocouple_reading_inside_the_window_is_silent() {
+    let list = checklist("open_thermocouple_silent.catena");
+    let open = row(&list, "tc", "open");
+    assert_eq!(open["verdict"], "silent");
+    assert_eq!(list["chains"][0]["window"]["high"], 52368);
+    let action = open["action"].as_str().expect("an action");
+    assert!(action.contains("at least 1.58 uA"), "{action}");
+}
+
+/// The checklist of every demo spec, Markdown and JSON.
+#[test]
+fn demo_checklists() {
+    for spec in demo_specs() {
+        let name = spec
+            .file_stem()
+            .expect("a name")
+            .to_string_lossy()
+            .to_string();
+        let path = spec.to_string_lossy().to_string();
+        for format in ["md", "json"] {
+            let run = catena(&root(), &["checklist", &path, "--format", format], None);
+            assert_eq!(run.status, 0, "{name}: {}", run.stderr);
+            insta::assert_snapshot!(format!("{name}_{format}"), run.stdout);
+        }
+    }
+}
+
+/// A checklist is never written over a spec.
+#[test]
+fn the_checklist_refuses_to_overwrite_a_spec() {
+    let run = catena(
+        &root(),
+        &[
+            "checklist",
+            "tests/fixtures/faults/shorted_ntc_divider.catena",
+            "-o",
+            "tests/fixtures/faults/shorted_ntc_divider.catena",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 2, "{}", run.stderr);
+    assert!(run.stderr.contains("refusing"), "{}", run.stderr);
+}
