@@ -15,8 +15,6 @@
 //! 6.02 N + 1.76 dB (IEEE Std 1241-2010; W. R. Bennett, "Spectra of
 //! quantized signals", 1948).
 
-use std::fmt;
-
 /// Peak-to-peak span of Gaussian noise, in σ, used to define noise-free
 /// resolution (common practice: ±3.3 σ covers about 99.9 % of samples).
 pub const PEAK_TO_PEAK_PER_SIGMA: f64 = 6.6;
@@ -25,31 +23,21 @@ pub const PEAK_TO_PEAK_PER_SIGMA: f64 = 6.6;
 pub const MAX_BITS: u32 = 52;
 
 /// Why an ADC computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum AdcError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// Resolution outside 1 … `MAX_BITS` bits.
+    #[error("resolution must be 1 to 52 bits")]
     InvalidBits,
     /// Reference, gain, span or noise is zero or negative.
+    #[error("reference, gain, span and noise must be positive")]
     NonPositive,
     /// The code is outside the converter's code range.
+    #[error("code outside the converter's range")]
     CodeOutOfRange,
 }
-
-impl fmt::Display for AdcError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            AdcError::NonFinite => "input is not a finite number",
-            AdcError::InvalidBits => "resolution must be 1 to 52 bits",
-            AdcError::NonPositive => "reference, gain, span and noise must be positive",
-            AdcError::CodeOutOfRange => "code outside the converter's range",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for AdcError {}
 
 type Res<T> = Result<T, AdcError>;
 

@@ -8,34 +8,22 @@
 //!   e_n² (1 + f_c/f); integrating from f1 to f2 gives
 //!   v_rms = e_n √(f_c ln(f2/f1) + (f2 − f1)).
 
-use std::fmt;
-
 use super::constants::BOLTZMANN;
 
 /// Why a noise computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum NoiseError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// A resistance, temperature, density or bandwidth was negative (or a
     /// resistance zero where it divides).
+    #[error("value must not be negative")]
     Negative,
     /// The band is empty or reversed, or starts at 0 Hz with a 1/f corner.
+    #[error("frequency band is invalid")]
     InvalidBand,
 }
-
-impl fmt::Display for NoiseError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            NoiseError::NonFinite => "input is not a finite number",
-            NoiseError::Negative => "value must not be negative",
-            NoiseError::InvalidBand => "frequency band is invalid",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for NoiseError {}
 
 type Res<T> = Result<T, NoiseError>;
 

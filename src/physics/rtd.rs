@@ -15,37 +15,27 @@
 //! annealed-copper coefficient 0.00393 /K at 20 °C of IEC 60028 (1925)
 //! re-referred to 0 °C.
 
-use std::fmt;
+use super::solve::{newton_bracketed, Root, Stop};
 
 /// Why an RTD computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum RtdError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// A resistance, R0 or dissipation constant was zero or negative.
+    #[error("resistance or constant must be positive")]
     NonPositive,
     /// The coefficients do not describe an increasing characteristic (A ≤ 0).
+    #[error("coefficient A must be positive")]
     InvalidCoefficients,
     /// The resistance lies outside the branch the model can invert.
+    #[error("resistance outside the invertible range")]
     OutOfRange,
     /// The root search did not converge.
+    #[error("root search did not converge")]
     NoConvergence,
 }
-
-impl fmt::Display for RtdError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            RtdError::NonFinite => "input is not a finite number",
-            RtdError::NonPositive => "resistance or constant must be positive",
-            RtdError::InvalidCoefficients => "coefficient A must be positive",
-            RtdError::OutOfRange => "resistance outside the invertible range",
-            RtdError::NoConvergence => "root search did not converge",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for RtdError {}
 
 /// Callendar–Van Dusen coefficients (A in °C⁻¹, B in °C⁻², C in °C⁻⁴).
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -132,39 +122,32 @@ fn quadratic_root(k: CvdCoefficients, d: f64) -> Option<f64> {
 
 fn below_zero(k: CvdCoefficients, w: f64) -> Result<f64, RtdError> {
     let g = |t: f64| ratio(k, t) - w;
-    let (mut lo, mut hi) = (-super::constants::ZERO_CELSIUS, 0.0_f64);
+    let (lo, hi) = (-super::constants::ZERO_CELSIUS, 0.0_f64);
     if g(lo) > 0.0 {
         return Err(RtdError::OutOfRange);
     }
     // The quadratic without C is a good first guess (within ~2.4 °C).
-    let mut t = match quadratic_root(k, w - 1.0) {
+    let t = match quadratic_root(k, w - 1.0) {
         Some(t0) if t0 > lo && t0 < hi => t0,
         _ => 0.5 * (lo + hi),
     };
-    for _ in 0..200 {
-        let gt = g(t);
-        if gt == 0.0 {
-            return Ok(t);
-        }
-        if gt < 0.0 {
-            lo = t;
-        } else {
-            hi = t;
-        }
-        let slope = d_resistance_dt(1.0, k, t);
-        let newton = t - gt / slope;
-        // Fall back to bisection if Newton leaves the bracket.
-        let next = if slope > 0.0 && newton > lo && newton < hi {
-            newton
-        } else {
-            0.5 * (lo + hi)
-        };
-        if (next - t).abs() <= 1e-12 {
-            return Ok(next);
-        }
-        t = next;
+    root(|t| (g(t), d_resistance_dt(1.0, k, t)), (lo, hi), t)
+}
+
+/// Steps below this end an inverse, °C.
+const STEP_TOL_C: f64 = 1e-12;
+
+/// The root of a rising `f` (value, slope) by bracketed Newton.
+fn root(f: impl Fn(f64) -> (f64, f64), bracket: (f64, f64), start: f64) -> Result<f64, RtdError> {
+    let stop = Stop {
+        step: STEP_TOL_C,
+        stalled_residual: 0.0,
+        max_iter: 200,
+    };
+    match newton_bracketed(|t| Ok::<_, RtdError>(f(t)), bracket, start, stop)? {
+        Root::Exact(t) | Root::Converged(t) => Ok(t),
+        Root::Exhausted(_) => Err(RtdError::NoConvergence),
     }
-    Err(RtdError::NoConvergence)
 }
 
 /// Tolerance classes of IEC 60751:2008, Table 1.
@@ -327,7 +310,7 @@ pub fn nickel_temperature(r0: f64, k: NickelCoefficients, r: f64) -> Result<f64,
         return Err(RtdError::NonPositive);
     }
     let g = |t: f64| nickel_resistance(r0, k, t) - r;
-    let (mut lo, mut hi) = NICKEL_BRACKET_C;
+    let (lo, hi) = NICKEL_BRACKET_C;
     if g(lo) > 0.0 || g(hi) < 0.0 {
         return Err(RtdError::OutOfRange);
     }
@@ -335,29 +318,7 @@ pub fn nickel_temperature(r0: f64, k: NickelCoefficients, r: f64) -> Result<f64,
     if !(t > lo && t < hi) {
         t = 0.5 * (lo + hi);
     }
-    for _ in 0..200 {
-        let gt = g(t);
-        if gt == 0.0 {
-            return Ok(t);
-        }
-        if gt < 0.0 {
-            lo = t;
-        } else {
-            hi = t;
-        }
-        let slope = nickel_d_resistance_dt(r0, k, t);
-        let newton = t - gt / slope;
-        let next = if slope > 0.0 && newton > lo && newton < hi {
-            newton
-        } else {
-            0.5 * (lo + hi)
-        };
-        if (next - t).abs() <= 1e-12 {
-            return Ok(next);
-        }
-        t = next;
-    }
-    Err(RtdError::NoConvergence)
+    root(|t| (g(t), nickel_d_resistance_dt(r0, k, t)), (lo, hi), t)
 }
 
 /// Copper temperature coefficient in /K referred to 0 °C: IEC 60028's

@@ -11,33 +11,21 @@
 //! Accuracy bands, output impedance and supply range are data of the
 //! particular sensor and are carried by the specification, not here.
 
-use std::fmt;
-
 use super::constants::ZERO_CELSIUS;
 
 /// Why a semiconductor-sensor computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum SemiconductorError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// The sensitivity (S or k) is zero, so the output does not move.
+    #[error("sensitivity is zero")]
     ZeroSensitivity,
     /// An absolute temperature at or below 0 K would result.
+    #[error("absolute temperature must be positive")]
     NonPositiveTemperature,
 }
-
-impl fmt::Display for SemiconductorError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            SemiconductorError::NonFinite => "input is not a finite number",
-            SemiconductorError::ZeroSensitivity => "sensitivity is zero",
-            SemiconductorError::NonPositiveTemperature => "absolute temperature must be positive",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for SemiconductorError {}
 
 fn finite(values: &[f64]) -> Result<(), SemiconductorError> {
     if values.iter().all(|v| v.is_finite()) {

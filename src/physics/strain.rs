@@ -22,31 +22,19 @@
 //! V_P = V r2/(r1 + r2), V_N = V r4/(r3 + r4), V_out = V_P − V_N. A gauge in
 //! r2 (or r3) raises the output when it stretches.
 
-use std::fmt;
-
 /// Why a strain or bridge computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum StrainError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// A resistance was negative, or both arms of a divider are zero.
+    #[error("resistance negative or divider open")]
     InvalidResistance,
     /// Gauge factor, sensitivity or full scale is zero.
+    #[error("gauge factor, sensitivity or full scale is zero")]
     ZeroScale,
 }
-
-impl fmt::Display for StrainError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            StrainError::NonFinite => "input is not a finite number",
-            StrainError::InvalidResistance => "resistance negative or divider open",
-            StrainError::ZeroScale => "gauge factor, sensitivity or full scale is zero",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for StrainError {}
 
 type Res<T> = Result<T, StrainError>;
 

@@ -10,43 +10,31 @@
 //! three-point fit of a single Beta curve returns C = 0 exactly; a real
 //! curve (e.g. one rated with different β(25/50) and β(25/85)) gives C > 0.
 
-use std::fmt;
-
 /// Why a thermistor computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum ThermistorError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// A resistance was zero or negative.
+    #[error("resistance must be positive")]
     NonPositiveResistance,
     /// An absolute temperature was zero or negative (or would result).
+    #[error("absolute temperature must be positive")]
     NonPositiveTemperature,
     /// β is zero, B ≤ 0, or a dissipation constant is not positive.
+    #[error("invalid model parameter")]
     InvalidParameter,
     /// The three fit points do not determine the coefficients.
+    #[error("fit points do not determine the coefficients")]
     Singular,
     /// The coefficients give no single resistance on the rising branch.
+    #[error("no unique resistance for this temperature")]
     NoUniqueSolution,
     /// The result overflows f64.
+    #[error("result overflows")]
     Overflow,
 }
-
-impl fmt::Display for ThermistorError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            ThermistorError::NonFinite => "input is not a finite number",
-            ThermistorError::NonPositiveResistance => "resistance must be positive",
-            ThermistorError::NonPositiveTemperature => "absolute temperature must be positive",
-            ThermistorError::InvalidParameter => "invalid model parameter",
-            ThermistorError::Singular => "fit points do not determine the coefficients",
-            ThermistorError::NoUniqueSolution => "no unique resistance for this temperature",
-            ThermistorError::Overflow => "result overflows",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for ThermistorError {}
 
 type Res<T> = Result<T, ThermistorError>;
 
