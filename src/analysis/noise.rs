@@ -8,15 +8,13 @@ use super::stages::{low_pass, number, signal_path, stage};
 use crate::eval::{Env, Node, Plan, Signal};
 use crate::model::value::ParamValue;
 use crate::model::Chain;
-use crate::physics::noise::{johnson_voltage_density, rms_with_flicker};
+use crate::physics::adc::peak_to_peak_noise;
+use crate::physics::noise::{johnson_voltage_density, rms_over_bandwidth, rms_with_flicker};
 use crate::units::Dim;
 
 /// Lower band edge for 1/f noise in a DC measurement: the common practice
 /// of integrating from 0.1 Hz.
 pub const FLICKER_LOW_HZ: f64 = 0.1;
-/// Peak-to-peak span of Gaussian noise quoted as noise-free: 6.6 σ
-/// (common practice; about 99.9 % of samples).
-pub const NOISE_FREE_SIGMAS: f64 = 6.6;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct NoiseTerm {
@@ -144,7 +142,10 @@ fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>)
         // A density (per root hertz) integrates over the bandwidth.
         let is_density = t.dim == Dim::CURRENT_DENSITY || t.dim == Dim::VOLTAGE_DENSITY;
         let rms = match (is_density, enbw_hz) {
-            (true, Some(bw)) => stated * bw.sqrt(),
+            (true, Some(bw)) => match rms_over_bandwidth(stated, bw) {
+                Ok(rms) => rms,
+                Err(_) => continue,
+            },
             (true, None) => continue,
             (false, _) => stated,
         };
@@ -258,8 +259,8 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
         sigma,
         sigma_averaged,
         average,
-        noise_free: NOISE_FREE_SIGMAS * sigma,
-        noise_free_averaged: NOISE_FREE_SIGMAS * sigma_averaged,
+        noise_free: peak_to_peak_noise(sigma),
+        noise_free_averaged: peak_to_peak_noise(sigma_averaged),
         lsb,
     }
 }

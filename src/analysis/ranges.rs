@@ -17,7 +17,9 @@ use crate::eval::{
     MAX_NODES,
 };
 use crate::model::Chain;
-use crate::physics::adc::Polarity;
+use crate::physics::adc;
+use crate::physics::rtd::{lead_loop_resistance, lead_series_resistance};
+use crate::physics::strain::bridge_input_resistance;
 
 /// Headroom below this fraction of a limit's span is a warning.
 pub const DEFAULT_MARGIN: f64 = 0.05;
@@ -190,14 +192,10 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                 differential,
                 ..
             } => {
-                let allowed = match polarity {
-                    Polarity::Unipolar => (0.0, 1.0),
-                    Polarity::Bipolar => (-1.0, 1.0),
-                };
                 out.push(Check {
                     node: i,
                     limit: Limit::ConverterInput,
-                    allowed,
+                    allowed: adc::input_range(*polarity),
                     unit: "of full scale",
                 });
                 let pins: &[Pin] = if *differential {
@@ -300,16 +298,12 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
             Signal::Voltage { rs, .. } => rs,
             _ => 0.0,
         },
-        (Node::Adc { bits, polarity, .. }, _) => {
-            let per_ref = match polarity {
-                Polarity::Unipolar => 2f64.powi(*bits as i32),
-                Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
-            };
-            match s[check.node] {
-                Signal::Code { exact, .. } => exact / per_ref,
-                _ => 0.0,
+        (Node::Adc { bits, polarity, .. }, _) => match s[check.node] {
+            Signal::Code { exact, .. } => {
+                adc::input_of_code(exact, *bits, *polarity).unwrap_or(0.0)
             }
-        }
+            _ => 0.0,
+        },
         (Node::Excitation { .. }, Limit::Compliance) => {
             // The string's voltage, plus the current-carrying leads of
             // 3- and 4-wire elements, which the measurement does not see.
@@ -336,8 +330,8 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                                 ..
                             } => {
                                 let (a, b) = (values[*a], values[*b]);
-                                let unseen = crate::physics::rtd::lead_loop_resistance(a, b)
-                                    - crate::physics::rtd::lead_series_resistance(*wiring, a, b);
+                                let unseen = lead_loop_resistance(a, b)
+                                    - lead_series_resistance(*wiring, a, b);
                                 unseen * current
                             }
                             _ => 0.0,
@@ -360,14 +354,18 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                             Some(Signal::Element(r)) => r,
                             _ => fixed,
                         };
-                        let parallel =
-                            |a: f64, b: f64| if a + b > 0.0 { a * b / (a + b) } else { 0.0 };
                         // Arm positions as in the evaluator: r1 r2 | r3 r4.
                         let load = match kind {
                             BridgeKind::Divider { .. } => arm(0) + fixed,
-                            BridgeKind::Quarter => parallel(fixed + arm(0), 2.0 * fixed),
-                            BridgeKind::Half => parallel(fixed + arm(0), arm(1) + fixed),
-                            BridgeKind::Full => parallel(arm(2) + arm(0), arm(1) + arm(3)),
+                            BridgeKind::Quarter => {
+                                bridge_input_resistance(fixed, arm(0), fixed, fixed)
+                            }
+                            BridgeKind::Half => {
+                                bridge_input_resistance(fixed, arm(0), arm(1), fixed)
+                            }
+                            BridgeKind::Full => {
+                                bridge_input_resistance(arm(2), arm(0), arm(1), arm(3))
+                            }
                         };
                         if load > 0.0 {
                             v / load

@@ -50,28 +50,11 @@ pub fn johnson_voltage_density(r_ohm: f64, t_k: f64) -> Res<f64> {
     Ok((4.0 * BOLTZMANN * t_k * r_ohm).sqrt())
 }
 
-/// Thermal noise current density √(4kT/R) in A/√Hz of `r_ohm` Ω at `t_k` K.
-pub fn johnson_current_density(r_ohm: f64, t_k: f64) -> Res<f64> {
-    finite(&[r_ohm, t_k])?;
-    non_negative(&[t_k])?;
-    if r_ohm <= 0.0 {
-        return Err(NoiseError::Negative);
-    }
-    Ok((4.0 * BOLTZMANN * t_k / r_ohm).sqrt())
-}
-
 /// RMS value (V or A) of a white density (per √Hz) over `bandwidth_hz` Hz.
 pub fn rms_over_bandwidth(density: f64, bandwidth_hz: f64) -> Res<f64> {
     finite(&[density, bandwidth_hz])?;
     non_negative(&[density, bandwidth_hz])?;
     Ok(density * bandwidth_hz.sqrt())
-}
-
-/// Quadrature sum √(Σ x²) of uncorrelated densities or rms values (same unit).
-pub fn combine_quadrature(values: &[f64]) -> Res<f64> {
-    finite(values)?;
-    // hypot keeps the sum from overflowing for very large terms.
-    Ok(values.iter().fold(0.0_f64, |acc, v| acc.hypot(*v)))
 }
 
 /// RMS (V) over `f_low_hz` … `f_high_hz` of a white density `e_white` V/√Hz
@@ -106,22 +89,9 @@ mod tests {
         let e = johnson_voltage_density(1000.0, 300.0).unwrap();
         assert!((e * e / 1.6567788e-17 - 1.0).abs() < 1e-12, "{e}");
         assert!((e - 4.07e-9).abs() < 0.005e-9);
-        let i = johnson_current_density(1000.0, 300.0).unwrap();
-        assert!((i * i / 1.6567788e-23 - 1.0).abs() < 1e-12, "{i}");
         // Over 10 kHz: × √10 000 = × 100.
         let v = rms_over_bandwidth(e, 10_000.0).unwrap();
         assert!((v - 100.0 * e).abs() < 1e-24);
-    }
-
-    #[test]
-    fn quadrature() {
-        assert_eq!(combine_quadrature(&[3.0, 4.0]).unwrap(), 5.0);
-        assert_eq!(combine_quadrature(&[]).unwrap(), 0.0);
-        assert!((combine_quadrature(&[1e200, 1e200]).unwrap() / 1e200 - 2f64.sqrt()).abs() < 1e-15);
-        assert_eq!(
-            combine_quadrature(&[1.0, f64::NAN]),
-            Err(NoiseError::NonFinite)
-        );
     }
 
     /// Worked by hand: 10 nV/√Hz, corner 100 Hz, 0.1 … 10 Hz:
@@ -154,10 +124,6 @@ mod tests {
         assert_eq!(
             johnson_voltage_density(1.0, f64::NAN),
             Err(NoiseError::NonFinite)
-        );
-        assert_eq!(
-            johnson_current_density(0.0, 300.0),
-            Err(NoiseError::Negative)
         );
         assert_eq!(rms_over_bandwidth(1e-9, -1.0), Err(NoiseError::Negative));
         assert_eq!(
