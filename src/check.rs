@@ -4,7 +4,7 @@ use std::path::Path;
 use std::sync::Arc;
 
 use crate::analysis;
-use crate::diagnostics::{Code, Findings, Severity, SourceFile};
+use crate::diagnostics::{Category, Code, Findings, Severity, SourceFile};
 use crate::model::{self, Chain, PartsCache};
 use crate::syntax;
 
@@ -88,7 +88,8 @@ pub fn check_bytes_configured(
         // A line the parser swallowed is missing from the graph, so graph
         // findings would be echoes of the syntax error; the other checks
         // are local to their line and still stand.
-        let echo = f.code.as_str().starts_with('M') || matches!(f.code, Code::P302 | Code::P307);
+        let echo =
+            f.code.category() == Category::Graph || matches!(f.code, Code::P302 | Code::P307);
         let same_line = Arc::ptr_eq(&f.file, &file)
             && syntax_lines.contains(&file.line_column(f.primary_offset()).0);
         let suppressed = same_line || (syntax_failed && echo);

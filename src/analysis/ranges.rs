@@ -96,7 +96,29 @@ pub struct Envelope {
     pub reach: (f64, f64),
     /// Measurand and ambient where it reaches furthest out.
     pub worst_at: (f64, f64),
-    pub unit: &'static str,
+    pub unit: LimitUnit,
+}
+
+/// The unit a limit and its signal are stated in.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum LimitUnit {
+    Volt,
+    Ampere,
+    Ohm,
+    /// A fraction of the converter's full scale, shown as a percentage.
+    FullScale,
+}
+
+impl LimitUnit {
+    /// The unit's symbol (`1` for a fraction).
+    pub fn symbol(self) -> &'static str {
+        match self {
+            LimitUnit::Volt => "V",
+            LimitUnit::Ampere => "A",
+            LimitUnit::Ohm => "ohm",
+            LimitUnit::FullScale => "1",
+        }
+    }
 }
 
 impl Envelope {
@@ -150,7 +172,7 @@ struct Check {
     node: NodeId,
     limit: Limit,
     allowed: (f64, f64),
-    unit: &'static str,
+    unit: LimitUnit,
 }
 
 fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
@@ -173,7 +195,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                         node: i,
                         limit: Limit::AmplifierInput,
                         allowed: r,
-                        unit: "V",
+                        unit: LimitUnit::Volt,
                     });
                 }
                 if let Some(r) = range(i, "output") {
@@ -181,7 +203,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                         node: i,
                         limit: Limit::AmplifierOutput,
                         allowed: r,
-                        unit: "V",
+                        unit: LimitUnit::Volt,
                     });
                 }
             }
@@ -196,7 +218,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     node: i,
                     limit: Limit::ConverterInput,
                     allowed: adc::input_range(*polarity),
-                    unit: "of full scale",
+                    unit: LimitUnit::FullScale,
                 });
                 let pins: &[Pin] = if *differential {
                     &[Pin::Positive, Pin::Negative]
@@ -211,7 +233,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                             node: i,
                             limit,
                             allowed: r,
-                            unit: "V",
+                            unit: LimitUnit::Volt,
                         });
                     }
                 }
@@ -221,7 +243,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                         node: i,
                         limit: Limit::ConverterSettling,
                         allowed: (f64::NEG_INFINITY, r_max),
-                        unit: "ohm",
+                        unit: LimitUnit::Ohm,
                     });
                 }
             }
@@ -231,7 +253,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                         node: i,
                         limit: Limit::Compliance,
                         allowed: r,
-                        unit: "V",
+                        unit: LimitUnit::Volt,
                     });
                 }
             }
@@ -241,7 +263,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                         node: i,
                         limit: Limit::CurrentLimit,
                         allowed: r,
-                        unit: "A",
+                        unit: LimitUnit::Ampere,
                     });
                 }
             }
@@ -251,7 +273,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                         node: i,
                         limit: Limit::MaxCurrent,
                         allowed: (f64::NEG_INFINITY, r.1),
-                        unit: "A",
+                        unit: LimitUnit::Ampere,
                     });
                 }
             }
@@ -564,10 +586,10 @@ pub fn findings(
             continue;
         };
         let show = |x: f64| {
-            if e.unit == "of full scale" {
+            if e.unit == LimitUnit::FullScale {
                 format!("{} % of full scale", trimmed(x * 100.0, 4))
             } else {
-                with_prefix(x, e.unit, 4)
+                with_prefix(x, e.unit.symbol(), 4)
             }
         };
         let high = e.high_side();
@@ -628,7 +650,7 @@ pub fn findings(
             trimmed(from_si(e.worst_at.1, "degC"), 4)
         );
         let (limit_param, drive_param) = e.limit.params();
-        let limit_text = if e.unit == "of full scale" {
+        let limit_text = if e.unit == LimitUnit::FullScale {
             "the end of its range".to_string()
         } else {
             format!("its limit of {}", show(bound))

@@ -541,11 +541,7 @@ fn json(file: &str, chain: &Chain, a: &Analysis) -> BudgetJson {
             .map(|e| LimitJson {
                 stage: plan_name(a, e.node),
                 limit: e.limit.describe(),
-                unit: if e.unit == "of full scale" {
-                    "1"
-                } else {
-                    e.unit
-                },
+                unit: e.unit.symbol(),
                 allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
                 reach: [e.reach.0, e.reach.1],
                 headroom: e.headroom(),

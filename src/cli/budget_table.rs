@@ -4,6 +4,7 @@
 use comfy_table::{presets::NOTHING, Table};
 
 use crate::analysis::budget::Point;
+use crate::analysis::ranges::LimitUnit;
 use crate::analysis::report::Analysis;
 use crate::analysis::validation::GumCheck;
 use crate::model::Chain;
@@ -139,10 +140,10 @@ pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
             let show = |x: f64| {
                 if !x.is_finite() {
                     "—".to_string()
-                } else if e.unit == "of full scale" {
+                } else if e.unit == LimitUnit::FullScale {
                     format!("{} %", trimmed(x * 100.0, 4))
                 } else {
-                    crate::units::format::with_prefix(x, e.unit, 4)
+                    crate::units::format::with_prefix(x, e.unit.symbol(), 4)
                 }
             };
             t.add_row([
