@@ -21,7 +21,7 @@ pub mod validation;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};
-use crate::model::Chain;
+use crate::model::{AccuracyMethod, Chain};
 use crate::units::format::from_si;
 
 /// The finding for an evaluation error, labelled on the stage involved
@@ -276,7 +276,8 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
         }
     }
     if !findings.has_errors() && !chain.requirements.is_empty() {
-        let wants_mc = options.monte_carlo || requirements::accuracy_method(chain) == "monte_carlo";
+        let wants_mc = options.monte_carlo
+            || requirements::accuracy_method(chain) == AccuracyMethod::MonteCarlo;
         let options = report::Options {
             trials: wants_mc.then_some(if options.trials > 0 {
                 options.trials.min(report::MAX_TRIALS)

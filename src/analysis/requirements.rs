@@ -6,12 +6,12 @@ use super::budget::Budget;
 use super::monte_carlo::Interval;
 use crate::diagnostics::Span;
 use crate::model::value::{Basis, ParamValue};
-use crate::model::{Chain, Requirement};
+use crate::model::{AccuracyMethod, Chain, Requirement, RequirementKind};
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Verdict {
-    /// `accuracy`, `resolution`, `response`, `rejection`.
-    pub name: &'static str,
+    /// The requirement judged, with the accuracy method that judged it.
+    pub kind: RequirementKind,
     pub limit: f64,
     pub achieved: f64,
     /// How `achieved` was found: `gum`, `worst_case`, `monte_carlo`,
@@ -35,13 +35,17 @@ pub struct Achieved {
     pub response_s: Option<f64>,
 }
 
-pub fn accuracy_method(chain: &Chain) -> &str {
+/// The method the chain's accuracy requirement asks for (GUM when it
+/// names none, or has no accuracy requirement).
+pub fn accuracy_method(chain: &Chain) -> AccuracyMethod {
     chain
         .requirements
         .iter()
-        .find(|r| r.kind == "accuracy")
-        .and_then(|r| r.method.as_deref())
-        .unwrap_or("gum")
+        .find_map(|r| match r.kind {
+            RequirementKind::Accuracy(method) => Some(method.unwrap_or_default()),
+            _ => None,
+        })
+        .unwrap_or_default()
 }
 
 /// The accuracy verdict: judged at the point where the error takes the
@@ -50,17 +54,17 @@ pub fn accuracy_method(chain: &Chain) -> &str {
 fn accuracy_verdict(
     chain: &Chain,
     r: &Requirement,
+    method: AccuracyMethod,
     limit: f64,
     budget: &Budget,
     mc: Option<&[Interval]>,
 ) -> Option<Verdict> {
-    let method = r.method.clone().unwrap_or_else(|| "gum".into());
-    let error_at = |i: usize| match method.as_str() {
-        "worst_case" => budget.points[i].worst_case,
-        "monte_carlo" => mc
+    let error_at = |i: usize| match method {
+        AccuracyMethod::WorstCase => budget.points[i].worst_case,
+        AccuracyMethod::MonteCarlo => mc
             .map(|m| m[i].low.abs().max(m[i].high.abs()))
             .unwrap_or(budget.points[i].gum_expanded),
-        _ => budget.points[i].gum_expanded,
+        AccuracyMethod::Gum => budget.points[i].gum_expanded,
     };
     // The limit at each point: fixed, or a share of the reading.
     let limit_at = |i: usize| match &r.value {
@@ -78,7 +82,7 @@ fn accuracy_verdict(
     let worst = (0..budget.points.len()).max_by(|&a, &b| share(a).total_cmp(&share(b)))?;
     let limit = limit_at(worst);
     let p = &budget.points[worst];
-    let top = if method == "worst_case" {
+    let top = if method == AccuracyMethod::WorstCase {
         p.contributions
             .iter()
             .map(|c| (c.id.clone(), c.worst / p.worst_case.max(f64::MIN_POSITIVE)))
@@ -98,16 +102,16 @@ fn accuracy_verdict(
         v.sort_by(|a, b| b.1.total_cmp(&a.1));
         v
     };
-    let numerical = match method.as_str() {
-        "monte_carlo" => mc.map(|m| m[worst].numerical),
-        _ => None,
+    let numerical = match method {
+        AccuracyMethod::MonteCarlo => mc.map(|m| m[worst].numerical),
+        AccuracyMethod::WorstCase | AccuracyMethod::Gum => None,
     };
     Some(Verdict {
-        name: "accuracy",
+        kind: r.kind,
         limit,
         achieved: error_at(worst),
         pass: error_at(worst) <= limit,
-        method,
+        method: method.word().to_string(),
         at: Some((p.measurand, p.ambient)),
         top: top.into_iter().take(3).collect(),
         numerical,
@@ -133,11 +137,14 @@ pub fn verdicts(
             _ => continue,
         };
         let verdict = match r.kind {
-            "accuracy" => match accuracy_verdict(chain, r, limit, budget, mc) {
-                Some(v) => v,
-                None => continue,
-            },
-            "resolution" => {
+            RequirementKind::Accuracy(method) => {
+                let method = method.unwrap_or_default();
+                match accuracy_verdict(chain, r, method, limit, budget, mc) {
+                    Some(v) => v,
+                    None => continue,
+                }
+            }
+            RequirementKind::Resolution => {
                 let lsb = budget
                     .points
                     .iter()
@@ -150,7 +157,7 @@ pub fn verdicts(
                     "lsb"
                 };
                 Verdict {
-                    name: "resolution",
+                    kind: r.kind,
                     limit,
                     achieved,
                     pass: achieved <= limit,
@@ -161,12 +168,12 @@ pub fn verdicts(
                     span: r.span,
                 }
             }
-            "response" => {
+            RequirementKind::Response => {
                 let Some(t) = achieved.response_s else {
                     continue;
                 };
                 Verdict {
-                    name: "response",
+                    kind: r.kind,
                     limit,
                     achieved: t,
                     pass: t <= limit,
@@ -177,14 +184,14 @@ pub fn verdicts(
                     span: r.span,
                 }
             }
-            "rejection" => {
+            RequirementKind::Rejection => {
                 let ParamValue::At { value, at, .. } = &r.value else {
                     continue;
                 };
                 // Required and achieved attenuation, as amplitude ratios.
                 let Some(a) = rejection(*at) else { continue };
                 Verdict {
-                    name: "rejection",
+                    kind: r.kind,
                     limit: value.nominal,
                     achieved: a,
                     pass: a >= value.nominal,
@@ -198,7 +205,6 @@ pub fn verdicts(
                     span: r.span,
                 }
             }
-            _ => continue,
         };
         out.push(verdict);
     }

@@ -574,9 +574,9 @@ fn json(file: &str, chain: &Chain, a: &Analysis) -> BudgetJson {
             .verdicts
             .iter()
             .map(|v| RequirementJson {
-                name: v.name,
-                limit: v.limit * requirement_scale(v.name),
-                achieved: v.achieved * requirement_scale(v.name),
+                name: v.kind.word(),
+                limit: v.limit * requirement_scale(v.kind.word()),
+                achieved: v.achieved * requirement_scale(v.kind.word()),
                 method: v.method.clone(),
                 pass: v.pass,
             })

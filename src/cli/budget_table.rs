@@ -7,7 +7,7 @@ use crate::analysis::budget::Point;
 use crate::analysis::ranges::LimitUnit;
 use crate::analysis::report::Analysis;
 use crate::analysis::validation::GumCheck;
-use crate::model::Chain;
+use crate::model::{Chain, RequirementKind};
 use crate::units::format::{from_si, significant, trimmed};
 
 /// JCGM 101:2008 §7.2.2 asks for M of at least 10⁴/(1 − p) trials for a
@@ -420,26 +420,26 @@ fn verdict_table(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> Table {
     let mut verdicts = table();
     verdicts.set_header(["requirement", "required", "achieved", "method", "verdict"]);
     for r in &a.verdicts {
-        let (req, got) = match r.name {
-            "accuracy" => (
+        let (req, got) = match r.kind {
+            RequirementKind::Accuracy(_) => (
                 format!("± {} {unit}", v(r.limit)),
                 format!("± {} {unit}", v(r.achieved)),
             ),
-            "resolution" => (
+            RequirementKind::Resolution => (
                 format!("{} {unit}", v(r.limit)),
                 format!("{} {unit}", v(r.achieved)),
             ),
-            "response" => (
+            RequirementKind::Response => (
                 format!("{} s", significant(r.limit, 3)),
                 format!("{} s", significant(r.achieved, 3)),
             ),
-            _ => (
+            RequirementKind::Rejection => (
                 format!("{} dB", significant(20.0 * r.limit.log10(), 3)),
                 format!("{} dB", significant(20.0 * r.achieved.log10(), 3)),
             ),
         };
         verdicts.add_row([
-            r.name.to_string(),
+            r.kind.word().to_string(),
             req,
             got,
             r.method.replace('_', " "),

@@ -76,11 +76,8 @@ impl Measurand {
 
 #[derive(Clone, Debug)]
 pub struct Requirement {
-    /// `accuracy`, `resolution`, `response` or `rejection`.
-    pub kind: &'static str,
+    pub kind: super::RequirementKind,
     pub value: ParamValue,
-    /// `worst_case`, `gum` or `monte_carlo` for accuracy.
-    pub method: Option<String>,
     pub span: Span,
 }
 

@@ -9,7 +9,7 @@ use serde::Serialize;
 
 use super::super::report::Analysis;
 use crate::eval::{Env, Plan};
-use crate::model::Chain;
+use crate::model::{Chain, RequirementKind};
 use crate::units::format::from_si;
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -161,23 +161,23 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
 
 fn requirement(v: &super::super::requirements::Verdict, unit: &str, f: f64) -> RequirementOutcome {
     let db = |x: f64| 20.0 * x.log10();
-    let (limit, achieved, margin, unit) = match v.name {
-        "accuracy" | "resolution" => (
+    let (limit, achieved, margin, unit) = match v.kind {
+        RequirementKind::Accuracy(_) | RequirementKind::Resolution => (
             v.limit * f,
             v.achieved * f,
             (v.limit - v.achieved) * f,
             unit.to_string(),
         ),
-        "rejection" => (
+        RequirementKind::Rejection => (
             db(v.limit),
             db(v.achieved),
             db(v.achieved) - db(v.limit),
             "dB".to_string(),
         ),
-        _ => (v.limit, v.achieved, v.limit - v.achieved, "s".to_string()),
+        RequirementKind::Response => (v.limit, v.achieved, v.limit - v.achieved, "s".to_string()),
     };
     RequirementOutcome {
-        name: v.name,
+        name: v.kind.word(),
         method: v.method.clone(),
         limit,
         achieved,
