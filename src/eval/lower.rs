@@ -10,6 +10,7 @@ use super::plan::{
     Plan, RtdCurve, SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
 };
 use super::run::{within, MAX_NODES};
+use super::stated::Stated;
 use crate::model::ports::Port;
 use crate::model::value::{Basis, Measure, ParamValue, Tolerance};
 use crate::model::{Chain, Stage};
@@ -646,6 +647,10 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
         series_below,
         sense_error,
         groups: Vec::new(),
+        stated: order
+            .iter()
+            .map(|&s| Stated::of(&chain.stages[s]))
+            .collect(),
     };
     plan.groups = super::track::lower_groups(chain, &plan.nodes, &plan.slots, node_of);
     let fitted = fit_conversions(&mut plan, chain, &order);

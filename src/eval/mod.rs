@@ -12,6 +12,7 @@ mod element;
 mod lower;
 mod plan;
 mod run;
+mod stated;
 mod track;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
@@ -21,4 +22,5 @@ pub use plan::{
     Senses, Signal, Slot, SlotId, SourceKind,
 };
 pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};
+pub use stated::{Noise, NoiseBasis, SamplingInput, Stated};
 pub use track::{half_width, own_fraction, Group, GroupPart};
