@@ -211,7 +211,7 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
         cold_junction: plan.reference,
     };
     let (v_slope, c_slope) = slopes(plan, &mid)?;
-    let noise = noise(chain, plan, &mid, v_slope, code_step(c_slope));
+    let noise = noise(plan, &mid, v_slope, code_step(c_slope));
     let conditions = conditions(chain, plan, options.points);
     let sources = Perturbations::of(plan)?;
     // Points are independent: on every core, gathered in order.

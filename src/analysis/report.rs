@@ -122,7 +122,7 @@ pub fn analyse_with_progress(
     let shares = sampled
         .filter(|_| options.detail)
         .map(|s| s.into_iter().map(|s| s.shares).collect());
-    let dynamics = dynamics(chain, plan);
+    let dynamics = dynamics(plan);
     let achieved = Achieved {
         response_s: dynamics.response_90,
     };
