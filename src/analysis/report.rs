@@ -194,11 +194,7 @@ fn add_detail(
 /// largest contributors with their shares.
 pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
     let mut findings = Findings::new();
-    let unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let unit = chain.measurand_unit();
     let (diff_unit, factor) = chain.difference_unit();
     let diff = |x: f64| x * factor;
     for v in analysis.verdicts.iter().filter(|v| !v.pass) {

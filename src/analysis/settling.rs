@@ -83,11 +83,7 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
         let Some(stage) = chain.stages.iter().find(|s| s.name == plan.names[e.node]) else {
             continue;
         };
-        let unit = chain
-            .measurand
-            .as_ref()
-            .map(|m| m.unit.clone())
-            .unwrap_or_default();
+        let unit = chain.measurand_unit();
         let message = format!(
             "the input of `{}` settles only to within {} LSB of its final value in its acquisition time, behind a source resistance of {} (at {} {unit}, ambient {} degC)",
             stage.name,

@@ -441,11 +441,7 @@ fn plan_name(a: &Analysis, node: usize) -> String {
 
 fn json(file: &str, chain: &Chain, a: &Analysis) -> BudgetJson {
     let (unit, f) = chain.difference_unit();
-    let m_unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let m_unit = chain.measurand_unit();
     let points = a
         .budget
         .points

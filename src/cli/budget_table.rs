@@ -35,11 +35,7 @@ fn lines(t: &Table) -> String {
 /// instead of the worst point at each ambient.
 pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
     let (unit, f) = chain.difference_unit();
-    let m_unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let m_unit = chain.measurand_unit();
     let v = |x: f64| significant(x * f, 3);
     let mut out = match &chain.label {
         Some(l) => format!("chain {} \"{l}\": error budget in {unit}\n\n", chain.name),

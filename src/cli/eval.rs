@@ -382,11 +382,7 @@ struct FindingJson {
 
 impl View<'_> {
     fn measurand_unit(&self) -> String {
-        self.chain
-            .measurand
-            .as_ref()
-            .map(|m| m.unit.clone())
-            .unwrap_or_default()
+        self.chain.measurand_unit()
     }
 
     /// The coherent SI unit of the measurand (`K`, `kg`, `1`).

@@ -111,11 +111,7 @@ const FLOOR_SHARE: f64 = 1e-12;
 
 pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
     let (unit, f) = chain.difference_unit();
-    let m_unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let m_unit = chain.measurand_unit();
     Outcome {
         chain: chain.name.clone(),
         requirements: a
