@@ -21,7 +21,7 @@ pub mod validation;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};
-use crate::model::{AccuracyMethod, Chain};
+use crate::model::{AccuracyMethod, Chain, Measurand};
 use crate::units::format::from_si;
 
 /// The finding for an evaluation error, labelled on the stage involved
@@ -243,24 +243,8 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
             return (None, findings);
         }
     };
-    let ambients = [chain.ambient.0, chain.reference, chain.ambient.1];
-    'corners: for m in [measurand.low, measurand.high] {
-        for t in ambients {
-            let env = Env {
-                measurand: m,
-                ambient: t,
-                cold_junction: t,
-            };
-            if let Err(e) = plan.reading(&plan.nominal, &env) {
-                let at = format!(
-                    "at {} {}",
-                    crate::units::format::trimmed(from_si(m, &measurand.unit), 6),
-                    measurand.unit
-                );
-                findings.push(eval_finding(chain, &e, Some((measurand.span, at))));
-                break 'corners;
-            }
-        }
+    if let Some(f) = corner_failure(chain, &plan, measurand) {
+        findings.push(f);
     }
     if findings.is_empty() {
         match ranges::envelopes(chain, &plan, 21) {
@@ -276,32 +260,69 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
         }
     }
     if !findings.has_errors() && !chain.requirements.is_empty() {
-        let wants_mc = options.monte_carlo
-            || requirements::accuracy_method(chain) == AccuracyMethod::MonteCarlo;
-        let options = report::Options {
-            trials: wants_mc.then_some(if options.trials > 0 {
-                options.trials.min(report::MAX_TRIALS)
-            } else {
-                report::DEFAULT_TRIALS
-            }),
-            seed: options.seed.unwrap_or(report::DEFAULT_SEED),
-            ..report::Options::default()
-        };
-        match report::analyse(chain, &plan, &options) {
-            Ok(analysis) => {
-                // A verdict on a number that is not one would only echo E505.
-                let unsound = soundness::non_finite(chain, &analysis);
-                if unsound.is_empty() {
-                    findings.extend(report::verdict_findings(chain, &analysis));
-                    if let Some(f) = soundness::nonlinear(chain, &analysis) {
-                        findings.push(f);
-                    }
-                } else {
-                    findings.extend(unsound);
-                }
-            }
-            Err(e) => findings.push(eval_finding(chain, &e, at_measurand)),
-        }
+        findings.extend(judge_requirements(chain, &plan, options, at_measurand));
     }
     (Some(plan), findings)
+}
+
+/// The first corner (a measurand end at an ambient end or the reference)
+/// where the nominal chain has no reading.
+fn corner_failure(chain: &Chain, plan: &Plan, measurand: &Measurand) -> Option<Finding> {
+    let ambients = [chain.ambient.0, chain.reference, chain.ambient.1];
+    for m in [measurand.low, measurand.high] {
+        for t in ambients {
+            let env = Env {
+                measurand: m,
+                ambient: t,
+                cold_junction: t,
+            };
+            if let Err(e) = plan.reading(&plan.nominal, &env) {
+                let at = format!(
+                    "at {} {}",
+                    crate::units::format::trimmed(from_si(m, &measurand.unit), 6),
+                    measurand.unit
+                );
+                return Some(eval_finding(chain, &e, Some((measurand.span, at))));
+            }
+        }
+    }
+    None
+}
+
+/// The requirements' verdicts, with Monte Carlo only where the accuracy
+/// line or the options ask for it; a verdict on a number that is not one
+/// would only echo E505, which is reported instead.
+fn judge_requirements(
+    chain: &Chain,
+    plan: &Plan,
+    options: &CheckOptions,
+    at_measurand: Option<(Span, String)>,
+) -> Findings {
+    let mut findings = Findings::new();
+    let wants_mc =
+        options.monte_carlo || requirements::accuracy_method(chain) == AccuracyMethod::MonteCarlo;
+    let options = report::Options {
+        trials: wants_mc.then_some(if options.trials > 0 {
+            options.trials.min(report::MAX_TRIALS)
+        } else {
+            report::DEFAULT_TRIALS
+        }),
+        seed: options.seed.unwrap_or(report::DEFAULT_SEED),
+        ..report::Options::default()
+    };
+    match report::analyse(chain, plan, &options) {
+        Ok(analysis) => {
+            let unsound = soundness::non_finite(chain, &analysis);
+            if unsound.is_empty() {
+                findings.extend(report::verdict_findings(chain, &analysis));
+                if let Some(f) = soundness::nonlinear(chain, &analysis) {
+                    findings.push(f);
+                }
+            } else {
+                findings.extend(unsound);
+            }
+        }
+        Err(e) => findings.push(eval_finding(chain, &e, at_measurand)),
+    }
+    findings
 }

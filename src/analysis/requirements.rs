@@ -139,74 +139,73 @@ pub fn verdicts(
         let verdict = match r.kind {
             RequirementKind::Accuracy(method) => {
                 let method = method.unwrap_or_default();
-                match accuracy_verdict(chain, r, method, limit, budget, mc) {
-                    Some(v) => v,
-                    None => continue,
-                }
+                accuracy_verdict(chain, r, method, limit, budget, mc)
             }
-            RequirementKind::Resolution => {
-                let lsb = budget
-                    .points
-                    .iter()
-                    .map(|p| p.code_step())
-                    .fold(0.0, f64::max);
-                let achieved = budget.noise.noise_free_averaged.max(lsb);
-                let method = if budget.noise.noise_free_averaged >= lsb {
-                    "noise_free"
-                } else {
-                    "lsb"
-                };
-                Verdict {
-                    kind: r.kind,
-                    limit,
-                    achieved,
-                    pass: achieved <= limit,
-                    method: method.into(),
-                    at: None,
-                    top: Vec::new(),
-                    numerical: None,
-                    span: r.span,
-                }
-            }
-            RequirementKind::Response => {
-                let Some(t) = achieved.response_s else {
-                    continue;
-                };
-                Verdict {
-                    kind: r.kind,
-                    limit,
-                    achieved: t,
-                    pass: t <= limit,
-                    method: "step_90".into(),
-                    at: None,
-                    top: Vec::new(),
-                    numerical: None,
-                    span: r.span,
-                }
-            }
-            RequirementKind::Rejection => {
-                let ParamValue::At { value, at, .. } = &r.value else {
-                    continue;
-                };
-                // Required and achieved attenuation, as amplitude ratios.
-                let Some(a) = rejection(*at) else { continue };
-                Verdict {
-                    kind: r.kind,
-                    limit: value.nominal,
-                    achieved: a,
-                    pass: a >= value.nominal,
-                    method: format!(
-                        "attenuation_at_{}_hz",
-                        crate::units::format::trimmed(*at, 6)
-                    ),
-                    at: None,
-                    top: Vec::new(),
-                    numerical: None,
-                    span: r.span,
-                }
-            }
+            RequirementKind::Resolution => Some(resolution_verdict(r, limit, budget)),
+            RequirementKind::Response => achieved
+                .response_s
+                .map(|t| plain_verdict(r, limit, t, t <= limit, "step_90".into())),
+            RequirementKind::Rejection => rejection_verdict(r, rejection),
         };
-        out.push(verdict);
+        out.extend(verdict);
     }
     out
+}
+
+/// A verdict without a worst point, contributors or numerical width.
+fn plain_verdict(
+    r: &Requirement,
+    limit: f64,
+    achieved: f64,
+    pass: bool,
+    method: String,
+) -> Verdict {
+    Verdict {
+        kind: r.kind,
+        limit,
+        achieved,
+        pass,
+        method,
+        at: None,
+        top: Vec::new(),
+        numerical: None,
+        span: r.span,
+    }
+}
+
+/// Resolution: the noise-free resolution after averaging, or one code
+/// where that is coarser.
+fn resolution_verdict(r: &Requirement, limit: f64, budget: &Budget) -> Verdict {
+    let lsb = budget
+        .points
+        .iter()
+        .map(|p| p.code_step())
+        .fold(0.0, f64::max);
+    let achieved = budget.noise.noise_free_averaged.max(lsb);
+    let method = if budget.noise.noise_free_averaged >= lsb {
+        "noise_free"
+    } else {
+        "lsb"
+    };
+    plain_verdict(r, limit, achieved, achieved <= limit, method.into())
+}
+
+/// Rejection: the chain's attenuation at the stated frequency, as
+/// amplitude ratios.
+fn rejection_verdict(r: &Requirement, rejection: &dyn Fn(f64) -> Option<f64>) -> Option<Verdict> {
+    let ParamValue::At { value, at, .. } = &r.value else {
+        return None;
+    };
+    let a = rejection(*at)?;
+    let method = format!(
+        "attenuation_at_{}_hz",
+        crate::units::format::trimmed(*at, 6)
+    );
+    Some(plain_verdict(
+        r,
+        value.nominal,
+        a,
+        a >= value.nominal,
+        method,
+    ))
 }
