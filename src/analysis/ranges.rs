@@ -834,3 +834,176 @@ fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> O
     }
     Some(format!("the output must reach {}: a `reference` of {} keeps {pct} % headroom (it shifts the output), or choose an amplifier that swings there", show(e, value), with_prefix(shift + target - value, "V", 4)))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::units::ZERO_CELSIUS_K;
+
+    fn chain(text: &str) -> Chain {
+        let checked = crate::check::check_str("test.catena", text);
+        assert!(checked.resolved, "{:?}", checked.findings);
+        checked.chains.into_iter().next().expect("one chain")
+    }
+
+    fn envelopes_of(text: &str) -> Vec<Envelope> {
+        let chain = chain(text);
+        let plan = crate::eval::lower(&chain).expect("lowers");
+        envelopes(&chain, &plan, 21).expect("evaluates")
+    }
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-12 * b.abs().max(1e-12)
+    }
+
+    /// Worked by hand: 10 mV/K from 500 mV at 0 degC gives 0.5 .. 1.0 V
+    /// over 0 .. 50 degC; a gain of 2 ± 1 % (the only source) takes the
+    /// output to 1.0 − 0.01 .. 2.0 + 0.02 V, worst at the top end, with
+    /// 0.48 V of the 2.5 V swing to spare (19.2 %); the converter sees the
+    /// same over its 2.5 V reference.
+    #[test]
+    fn a_gain_tolerance_widens_the_output_by_its_share() {
+        let e = envelopes_of(
+            "chain t \"T\" {
+                measurand temperature 0 degC .. 50 degC
+                sensor probe {
+                    ic_voltage
+                    slope 10 mV/K
+                    output 500 mV at 0 degC
+                }
+                amplifier front {
+                    gain 2 ± 1 %
+                    output 0 V .. 2.5 V
+                }
+                adc conv {
+                    bits 16
+                    input single
+                    vref 2.5 V
+                }
+                convert reading { method exact }
+                probe -> front -> conv -> reading
+            }",
+        );
+        let [out, conv] = &e[..] else { panic!("{e:?}") };
+        assert_eq!(
+            (out.limit, out.unit),
+            (Limit::AmplifierOutput, LimitUnit::Volt)
+        );
+        assert!(
+            close(out.reach.0, 0.99) && close(out.reach.1, 2.02),
+            "{out:?}"
+        );
+        assert!(close(out.headroom(), 0.48 / 2.5), "{}", out.headroom());
+        assert!(out.high_side());
+        assert!(close(out.worst_at.0, 50.0 + ZERO_CELSIUS_K));
+        assert_eq!(
+            (conv.limit, conv.unit),
+            (Limit::ConverterInput, LimitUnit::FullScale)
+        );
+        assert_eq!(conv.allowed, (0.0, 1.0));
+        assert!(close(conv.reach.0, 0.99 / 2.5) && close(conv.reach.1, 2.02 / 2.5));
+    }
+
+    /// A divider's load on its source: 3.3 V across the NTC (Beta 3435 K,
+    /// 10 kΩ at 25 degC) and 10 kΩ, largest at 60 degC where the NTC is
+    /// smallest: 3.3 / (R(333.15 K) + 10 kΩ), everything exact.
+    #[test]
+    fn a_divider_draws_its_source_current_through_both_parts() {
+        let e = envelopes_of(
+            "chain t \"T\" {
+                measurand temperature 30 degC .. 60 degC
+                excitation rail {
+                    voltage 3.3 V
+                    limit 1 mA
+                }
+                sensor ntc {
+                    thermistor
+                    r25 10 kohm
+                    beta 3435 K
+                }
+                bridge div {
+                    divider
+                    r 10 kohm
+                }
+                adc conv {
+                    bits 12
+                    input single
+                }
+                convert reading { method exact }
+                rail -> div -> conv -> reading
+                ntc -> div.arm
+                rail -> conv.ref
+            }",
+        );
+        let load = e
+            .iter()
+            .find(|e| e.limit == Limit::CurrentLimit)
+            .expect("the current limit is checked");
+        let t25 = 25.0 + ZERO_CELSIUS_K;
+        let r_at =
+            |t: f64| crate::physics::thermistor::beta_resistance(1e4, t25, 3435.0, t).unwrap();
+        let hot = 3.3 / (r_at(60.0 + ZERO_CELSIUS_K) + 1e4);
+        let cold = 3.3 / (r_at(30.0 + ZERO_CELSIUS_K) + 1e4);
+        assert!(
+            close(load.reach.1, hot) && close(load.reach.0, cold),
+            "{load:?}"
+        );
+        assert_eq!(load.allowed, (f64::NEG_INFINITY, 1e-3));
+        assert_eq!(load.unit, LimitUnit::Ampere);
+    }
+
+    fn envelope(allowed: (f64, f64), reach: (f64, f64)) -> Envelope {
+        Envelope {
+            node: 0,
+            limit: Limit::AmplifierOutput,
+            allowed,
+            reach,
+            worst_at: (0.0, 0.0),
+            unit: LimitUnit::Volt,
+        }
+    }
+
+    /// Headroom is the nearer end's distance over the span: a one-sided
+    /// limit's span is its one end's size, and a reach beyond is negative.
+    #[test]
+    fn headroom_against_one_and_two_sided_limits() {
+        let two = envelope((0.0, 4.0), (1.0, 3.5));
+        assert_eq!(two.span(), 4.0);
+        assert_eq!(two.headroom(), 0.125);
+        assert!(two.high_side());
+        let one = envelope((f64::NEG_INFINITY, 2.0), (-9.0, 2.5));
+        assert_eq!(one.span(), 2.0);
+        assert_eq!(one.headroom(), -0.25);
+        let low = envelope((-1.0, f64::INFINITY), (-0.5, 7.0));
+        assert_eq!(low.headroom(), 0.5);
+        assert!(!low.high_side());
+    }
+
+    /// A differential input's pins sit at the common mode ± half the
+    /// difference; a single-ended input is its one pin.
+    #[test]
+    fn pins_about_the_common_mode() {
+        let input = Signal::Voltage {
+            v: 0.2,
+            cm: 1.5,
+            rs: 0.0,
+        };
+        assert_eq!(pin_voltage(input, true, Pin::Positive), 1.6);
+        assert_eq!(pin_voltage(input, true, Pin::Negative), 1.4);
+        assert_eq!(pin_voltage(input, false, Pin::Positive), 0.2);
+        assert_eq!(pin_voltage(Signal::None, true, Pin::Positive), 0.0);
+    }
+
+    /// A bridge loads its source with its two sides in parallel: a
+    /// quarter bridge of 350 Ω parts with the gauge at 351 Ω gives
+    /// 701 ∥ 700 Ω; a divider its two parts in series.
+    #[test]
+    fn bridge_loads() {
+        let mut s = [Signal::None; MAX_NODES];
+        s[1] = Signal::Element(351.0);
+        let quarter = bridge_load(BridgeKind::Quarter, 350.0, &[1], &s);
+        assert!(close(quarter, 701.0 * 700.0 / 1401.0), "{quarter}");
+        let divider = bridge_load(BridgeKind::Divider { sensor_high: false }, 1e4, &[1], &s);
+        assert_eq!(divider, 10_351.0);
+    }
+}
