@@ -22,6 +22,7 @@ pub mod validation;
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};
 use crate::model::{AccuracyMethod, Chain, Measurand};
+use crate::physics::solve::bisect_at_most;
 use crate::units::format::from_si;
 
 /// The finding for an evaluation error, labelled on the stage involved
@@ -117,18 +118,7 @@ pub fn evaluable_part(chain: &Chain) -> Option<Chain> {
     // Each end bisected to where evaluation stops.
     let edge = |good: f64, bad: Option<f64>| match bad {
         None => good,
-        Some(mut bad) => {
-            let mut good = good;
-            for _ in 0..50 {
-                let mid = 0.5 * (good + bad);
-                if evaluates(mid) {
-                    good = mid;
-                } else {
-                    bad = mid;
-                }
-            }
-            good
-        }
+        Some(bad) => bisect_at_most(50, good, bad, &evaluates).0,
     };
     let low = edge(grid[first], first.checked_sub(1).map(|i| grid[i]));
     let high = edge(grid[last], grid.get(last + 1).copied());

@@ -2,8 +2,8 @@
 //! function, its bracket and its start.
 //!
 //! * Bisection of a predicate that turns once over an interval, halved
-//!   until the midpoint is no longer strictly inside (the interval cannot
-//!   shrink in f64) or 200 halvings, whichever comes first.
+//!   until the midpoint is one of the ends (the interval cannot shrink in
+//!   f64) or a number of halvings, whichever comes first.
 //! * Newton's method kept inside a bracket: each evaluation narrows the
 //!   bracket by the sign of f, and a Newton step that would leave the open
 //!   bracket (or a slope that is not positive) is replaced by a bisection
@@ -24,21 +24,43 @@ const MAX_HALVINGS: usize = 200;
 /// The final bracket `(lo, hi)` of `pred`, true at `lo` and false at
 /// `hi`: every midpoint where it holds becomes the new `lo`, every other
 /// the new `hi`.
-pub fn bisect(lo: f64, hi: f64, mut pred: impl FnMut(f64) -> bool) -> (f64, f64) {
-    let Ok(bracket) = try_bisect(lo, hi, |x| Ok::<_, Infallible>(pred(x)));
+pub fn bisect(lo: f64, hi: f64, pred: impl FnMut(f64) -> bool) -> (f64, f64) {
+    bisect_at_most(MAX_HALVINGS, lo, hi, pred)
+}
+
+/// [`bisect`] with at most `halvings` halvings. The ends may come in
+/// either order: `lo` is where `pred` holds, not the smaller.
+pub fn bisect_at_most(
+    halvings: usize,
+    lo: f64,
+    hi: f64,
+    mut pred: impl FnMut(f64) -> bool,
+) -> (f64, f64) {
+    let Ok(bracket) = halve(halvings, lo, hi, |x| Ok::<_, Infallible>(pred(x)));
     bracket
 }
 
 /// [`bisect`] with a predicate that can fail; its first error ends the
 /// search.
 pub fn try_bisect<E>(
+    lo: f64,
+    hi: f64,
+    pred: impl FnMut(f64) -> Result<bool, E>,
+) -> Result<(f64, f64), E> {
+    halve(MAX_HALVINGS, lo, hi, pred)
+}
+
+fn halve<E>(
+    halvings: usize,
     mut lo: f64,
     mut hi: f64,
     mut pred: impl FnMut(f64) -> Result<bool, E>,
 ) -> Result<(f64, f64), E> {
-    for _ in 0..MAX_HALVINGS {
+    for _ in 0..halvings {
         let mid = 0.5 * (lo + hi);
-        if mid <= lo || mid >= hi {
+        // The midpoint of two floats lies between them: it is an end only
+        // when they are adjacent (or equal).
+        if mid == lo || mid == hi {
             break;
         }
         if pred(mid)? {
@@ -192,6 +214,15 @@ mod tests {
         let (lo, hi) = bisect(0.0, 1.0, |x| x < 1.0 / 3.0);
         assert!(lo < 1.0 / 3.0 && hi >= 1.0 / 3.0);
         assert_eq!(hi, f64::from_bits(lo.to_bits() + 1));
+    }
+
+    /// The ends may come high first; a cap stops it early.
+    #[test]
+    fn bisection_either_way_round_and_capped() {
+        let (good, bad) = bisect(1.0, 0.0, |x| x > 0.25);
+        assert!(good > 0.25 && bad <= 0.25 && good - bad <= f64::EPSILON);
+        let (good, bad) = bisect_at_most(2, 1.0, 0.0, |x| x > 0.25);
+        assert_eq!((good, bad), (0.5, 0.25));
     }
 
     #[test]
