@@ -1,9 +1,9 @@
 //! Noise densities and their integration over a band.
 //!
 //! * Thermal (Johnson–Nyquist) noise of a resistance: e_n = √(4 k T R) in
-//!   V/√Hz, i_n = √(4 k T / R) in A/√Hz (J. B. Johnson, Phys. Rev. 32, 97,
-//!   1928; H. Nyquist, Phys. Rev. 32, 110, 1928), with k exact (SI 2019).
-//! * Uncorrelated sources add in power: √(Σ e_i²).
+//!   V/√Hz (J. B. Johnson, Phys. Rev. 32, 97, 1928; H. Nyquist, Phys.
+//!   Rev. 32, 110, 1928), with k exact (SI 2019).
+//! * A white density over a band B: e_n √B.
 //! * A white density e_n with a 1/f corner f_c has the power density
 //!   e_n² (1 + f_c/f); integrating from f1 to f2 gives
 //!   v_rms = e_n √(f_c ln(f2/f1) + (f2 − f1)).

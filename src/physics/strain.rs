@@ -1,13 +1,11 @@
-//! Strain gauges, Wheatstone bridges, dividers and bridge transducers.
+//! Strain gauges, Wheatstone bridges and dividers.
 //!
 //! * Gauge: ΔR/R = GF · ε, the definition of the gauge factor
 //!   (K. Hoffmann, "An Introduction to Measurements using Strain Gages",
 //!   1989; citation recalled from memory).
 //! * Wheatstone bridge: exact output from the two voltage dividers (Kirchhoff),
-//!   with no small-signal approximation.
-//! * Transducers rated in mV/V: output = V_exc (S · F/F_fs + Z), the trade's
-//!   ratiometric convention for rated output S and zero balance Z (as used
-//!   for load cells, OIML R 60).
+//!   with no small-signal approximation; its load on the excitation and its
+//!   output resistance from the same four arms.
 //!
 //! Bridge topology used throughout (excitation + at the top, − at 0 V):
 //!

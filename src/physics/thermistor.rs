@@ -1,7 +1,6 @@
 //! NTC thermistors: the Beta model and the Steinhart–Hart equation.
 //!
-//! * Beta model: R = R_ref exp(β (1/T − 1/T_ref)), T in K; β(T1/T2) is
-//!   defined by the resistances at two rating temperatures.
+//! * Beta model: R = R_ref exp(β (1/T − 1/T_ref)), T in K.
 //! * Steinhart–Hart: 1/T = A + B ln R + C (ln R)³, R in Ω, T in K
 //!   (J. S. Steinhart and S. R. Hart, "Calibration curves for thermistors",
 //!   Deep-Sea Research 15, 497–503, 1968).
