@@ -170,3 +170,80 @@ fn low_pass(stage: &Stage) -> Option<LowPass> {
     };
     LowPass::new(response, order, cutoff).ok()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn stated(text: &str) -> Vec<Stated> {
+        let checked = crate::check::check_str("test.catena", text);
+        assert!(checked.resolved, "{:?}", checked.findings);
+        let plan = crate::eval::lower(&checked.chains[0]).expect("lowers");
+        plan.stated
+    }
+
+    /// Each node carries its own stage's statements, in SI: a converter's
+    /// sampling input and noise in codes, a source's compliance as the
+    /// interval up to it and its noise density, a filter's response.
+    #[test]
+    fn statements_by_node_in_si() {
+        let s = stated(
+            "chain t \"T\" {
+                measurand temperature 0 degC .. 100 degC
+                excitation src {
+                    current 1 mA
+                    compliance 5 V
+                    noise ± 2 nA/rtHz
+                }
+                sensor probe {
+                    rtd pt100
+                    wires 4
+                    time_constant 3 s
+                }
+                amplifier front {
+                    gain 20
+                    bandwidth 10 kHz
+                }
+                filter aa {
+                    lowpass butterworth
+                    order 2
+                    cutoff 100 Hz
+                }
+                adc conv {
+                    bits 16
+                    input single
+                    vref 2.5 V
+                    rails 0 V .. 3.3 V
+                    noise ± 0.5 LSB
+                    sampling_capacitance 20 pF
+                    acquisition_time 1 us
+                    rate 50 Hz
+                }
+                convert reading {
+                    method exact
+                    average 4
+                }
+                src -> probe -> front -> aa -> conv -> reading
+            }",
+        );
+        let [src, probe, front, aa, conv, reading] = &s[..] else {
+            panic!("{s:?}")
+        };
+        assert_eq!(src.compliance, Some((f64::NEG_INFINITY, 5.0)));
+        let noise = src.noise.expect("stated");
+        assert_eq!(noise.basis, NoiseBasis::Density);
+        assert!((noise.amount - 2e-9).abs() < 1e-21);
+        assert_eq!(probe.time_constant_s, Some(3.0));
+        assert_eq!(front.bandwidth_hz, Some(1e4));
+        assert!(aa.low_pass.is_some());
+        assert_eq!(conv.rails, Some((0.0, 3.3)));
+        assert_eq!(conv.noise.map(|n| n.basis), Some(NoiseBasis::Codes));
+        let sampling = conv.sampling.expect("stated");
+        assert!((sampling.capacitance - 20e-12).abs() < 1e-24);
+        assert!((sampling.acquisition - 1e-6).abs() < 1e-18);
+        assert_eq!(sampling.switch, 0.0);
+        assert_eq!(conv.rate_hz, Some(50.0));
+        assert_eq!(reading.average, Some(4.0));
+        assert_eq!(conv.ref_range, None);
+    }
+}
