@@ -215,7 +215,7 @@ pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
             }
             RequirementKind::Resolution => (
                 Code::R612,
-                format!("resolution {} {diff_unit} ({}) misses the required {} {diff_unit}", trimmed(diff(v.achieved), 3), v.method.replace('_', "-"), trimmed(diff(v.limit), 6)),
+                format!("resolution {} {diff_unit} ({}) misses the required {} {diff_unit}", trimmed(diff(v.achieved), 3), v.method.word().replace('_', "-"), trimmed(diff(v.limit), 6)),
                 "average more conversions, narrow the noise bandwidth or lower the noise; a finer converter helps only when one code is the limit".to_string(),
             ),
             RequirementKind::Response => (

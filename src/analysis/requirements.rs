@@ -14,9 +14,8 @@ pub struct Verdict {
     pub kind: RequirementKind,
     pub limit: f64,
     pub achieved: f64,
-    /// How `achieved` was found: `gum`, `worst_case`, `monte_carlo`,
-    /// `noise_free`, `step_90`, `attenuation_at_<f>`.
-    pub method: String,
+    /// How `achieved` was found.
+    pub method: Judged,
     pub pass: bool,
     /// Where it was worst: measurand and ambient, SI.
     pub at: Option<(f64, f64)>,
@@ -26,6 +25,37 @@ pub struct Verdict {
     /// at the worst point (see [`Interval::numerical`]).
     pub numerical: Option<f64>,
     pub span: Span,
+}
+
+/// How a verdict's achieved value was found.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Judged {
+    /// An accuracy total by its method.
+    Accuracy(AccuracyMethod),
+    /// The noise-free resolution after averaging.
+    NoiseFree,
+    /// One code, where that is coarser than the noise.
+    Lsb,
+    /// The 0 → 90 % step response.
+    Step90,
+    /// The attenuation at a frequency, Hz.
+    AttenuationAt(f64),
+}
+
+impl Judged {
+    /// Its name in reports: `gum`, `worst_case`, `monte_carlo`,
+    /// `noise_free`, `lsb`, `step_90`, `attenuation_at_<f>_hz`.
+    pub fn word(self) -> String {
+        match self {
+            Judged::Accuracy(method) => method.word().to_string(),
+            Judged::NoiseFree => "noise_free".to_string(),
+            Judged::Lsb => "lsb".to_string(),
+            Judged::Step90 => "step_90".to_string(),
+            Judged::AttenuationAt(hz) => {
+                format!("attenuation_at_{}_hz", crate::units::format::trimmed(hz, 6))
+            }
+        }
+    }
 }
 
 /// What the dynamics analysis found, for the verdicts.
@@ -111,7 +141,7 @@ fn accuracy_verdict(
         limit,
         achieved: error_at(worst),
         pass: error_at(worst) <= limit,
-        method: method.word().to_string(),
+        method: Judged::Accuracy(method),
         at: Some((p.measurand, p.ambient)),
         top: top.into_iter().take(3).collect(),
         numerical,
@@ -144,7 +174,7 @@ pub fn verdicts(
             RequirementKind::Resolution => Some(resolution_verdict(r, limit, budget)),
             RequirementKind::Response => achieved
                 .response_s
-                .map(|t| plain_verdict(r, limit, t, t <= limit, "step_90".into())),
+                .map(|t| plain_verdict(r, limit, t, t <= limit, Judged::Step90)),
             RequirementKind::Rejection => rejection_verdict(r, rejection),
         };
         out.extend(verdict);
@@ -158,7 +188,7 @@ fn plain_verdict(
     limit: f64,
     achieved: f64,
     pass: bool,
-    method: String,
+    method: Judged,
 ) -> Verdict {
     Verdict {
         kind: r.kind,
@@ -183,11 +213,11 @@ fn resolution_verdict(r: &Requirement, limit: f64, budget: &Budget) -> Verdict {
         .fold(0.0, f64::max);
     let achieved = budget.noise.noise_free_averaged.max(lsb);
     let method = if budget.noise.noise_free_averaged >= lsb {
-        "noise_free"
+        Judged::NoiseFree
     } else {
-        "lsb"
+        Judged::Lsb
     };
-    plain_verdict(r, limit, achieved, achieved <= limit, method.into())
+    plain_verdict(r, limit, achieved, achieved <= limit, method)
 }
 
 /// Rejection: the chain's attenuation at the stated frequency, as
@@ -197,10 +227,7 @@ fn rejection_verdict(r: &Requirement, rejection: &dyn Fn(f64) -> Option<f64>) ->
         return None;
     };
     let a = rejection(*at)?;
-    let method = format!(
-        "attenuation_at_{}_hz",
-        crate::units::format::trimmed(*at, 6)
-    );
+    let method = Judged::AttenuationAt(*at);
     Some(plain_verdict(
         r,
         value.nominal,

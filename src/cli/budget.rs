@@ -573,7 +573,7 @@ fn json(file: &str, chain: &Chain, a: &Analysis) -> BudgetJson {
                 name: v.kind.word(),
                 limit: v.limit * requirement_scale(v.kind.word()),
                 achieved: v.achieved * requirement_scale(v.kind.word()),
-                method: v.method.clone(),
+                method: v.method.word(),
                 pass: v.pass,
             })
             .collect(),

@@ -438,7 +438,7 @@ fn verdict_table(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> Table {
             r.kind.word().to_string(),
             req,
             got,
-            r.method.replace('_', " "),
+            r.method.word().replace('_', " "),
             if r.pass { "pass".into() } else { "FAIL".into() },
         ]);
     }

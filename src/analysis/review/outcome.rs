@@ -174,7 +174,7 @@ fn requirement(v: &super::super::requirements::Verdict, unit: &str, f: f64) -> R
     };
     RequirementOutcome {
         name: v.kind.word(),
-        method: v.method.clone(),
+        method: v.method.word(),
         limit,
         achieved,
         margin,
