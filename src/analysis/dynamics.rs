@@ -6,7 +6,7 @@
 
 use super::stages::signal_path;
 use super::step::{Averaging, StepModel};
-use crate::eval::{Node, Plan, Senses};
+use crate::eval::{node, Node, Plan, Senses};
 use crate::physics::filter::LowPass;
 
 /// Mains frequencies every report states attenuation at, Hz.
@@ -95,8 +95,8 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
     for &n in &path {
         let stated = &plan.stated[n];
         match &plan.nodes[n] {
-            Node::Filter { .. } => filter = filter.or(stated.low_pass),
-            Node::Adc { .. } => {
+            Node::Filter(_) => filter = filter.or(stated.low_pass),
+            Node::Adc(_) => {
                 rate_hz = stated.rate_hz;
                 notch_hz = stated.notch_hz;
             }
@@ -125,7 +125,7 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
     d.response_90 = d.time_to_fraction(0.9);
     d.mains = MAINS_HZ.iter().map(|&f| (f, d.attenuation(f))).collect();
     let bits = match &plan.nodes[plan.adc] {
-        Node::Adc { bits, .. } => *bits,
+        Node::Adc(node::Adc { bits, .. }) => *bits,
         _ => 16,
     };
     d.filter_settling_half_lsb = d
@@ -145,12 +145,12 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
 
 fn sensor_senses_measurand(plan: &Plan, node: usize) -> bool {
     match &plan.nodes[node] {
-        Node::Rtd { senses, .. }
-        | Node::Thermocouple { senses, .. }
-        | Node::Thermistor { senses, .. }
-        | Node::IcVoltage { senses, .. }
-        | Node::IcCurrent { senses, .. } => *senses == Senses::Measurand,
-        Node::StrainGauge { .. } | Node::Transducer { .. } => true,
+        Node::Rtd(node::Rtd { senses, .. })
+        | Node::Thermocouple(node::Thermocouple { senses, .. })
+        | Node::Thermistor(node::Thermistor { senses, .. })
+        | Node::IcVoltage(node::IcVoltage { senses, .. })
+        | Node::IcCurrent(node::IcCurrent { senses, .. }) => *senses == Senses::Measurand,
+        Node::StrainGauge(_) | Node::Transducer(_) => true,
         _ => false,
     }
 }

@@ -5,7 +5,7 @@
 //! converter's own noise, over the chain's equivalent noise bandwidth.
 
 use super::stages::signal_path;
-use crate::eval::{Env, Node, NoiseBasis, Plan, Signal};
+use crate::eval::{node, Env, Node, NoiseBasis, Plan, Signal};
 use crate::physics::adc::peak_to_peak_noise;
 use crate::physics::noise::{johnson_voltage_density, rms_over_bandwidth, rms_with_flicker};
 
@@ -55,12 +55,12 @@ pub fn enbw(plan: &Plan) -> Option<f64> {
     for &n in &path {
         let stated = &plan.stated[n];
         match &plan.nodes[n] {
-            Node::Filter { .. } => {
+            Node::Filter(_) => {
                 if let Some(lp) = stated.low_pass {
                     narrow(&mut bw, lp.enbw_hz());
                 }
             }
-            Node::Adc { .. } => {
+            Node::Adc(_) => {
                 if let Some(rate) = stated.rate_hz {
                     narrow(&mut bw, rate / 2.0);
                 }
@@ -70,8 +70,7 @@ pub fn enbw(plan: &Plan) -> Option<f64> {
     }
     if bw.is_none() {
         for &n in &path {
-            if let (Node::Amplifier { .. }, Some(b)) = (&plan.nodes[n], plan.stated[n].bandwidth_hz)
-            {
+            if let (Node::Amplifier(_), Some(b)) = (&plan.nodes[n], plan.stated[n].bandwidth_hz) {
                 narrow(&mut bw, std::f64::consts::FRAC_PI_2 * b);
             }
         }
@@ -123,7 +122,7 @@ fn thermal_term(
 fn excitation_noise(plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTerm> {
     let mut out = Vec::new();
     for (i, node) in plan.nodes.iter().enumerate() {
-        let Node::Excitation { value, .. } = node else {
+        let Node::Excitation(node::Excitation { value, .. }) = node else {
             continue;
         };
         let Some(noise) = plan.stated[i].noise else {
@@ -241,7 +240,7 @@ pub fn noise(plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
     let mut gain_after = 1.0;
     for n in signal_path(plan, plan.adc) {
         match &plan.nodes[n] {
-            Node::Adc { input, .. } => {
+            Node::Adc(node::Adc { input, .. }) => {
                 // One code at the input is `lsb` (measurand per code)
                 // times `slope` (volts per measurand).
                 let per_code = lsb * slope.abs();
@@ -249,7 +248,7 @@ pub fn noise(plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
                     plan, n, *input, &signals, env, enbw_hz, per_code,
                 ));
             }
-            Node::Amplifier { gain, input, .. } => {
+            Node::Amplifier(node::Amplifier { gain, input, .. }) => {
                 gain_after *= plan.nominal[*gain];
                 if let Some(bw) = enbw_hz {
                     terms.extend(amplifier_terms(

@@ -14,7 +14,7 @@ use rayon::prelude::*;
 use super::budget::conditions;
 use crate::diagnostics::{Code, Finding, Findings};
 use crate::eval::{
-    BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
+    node, BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
     MAX_NODES,
 };
 use crate::model::{Chain, Stage};
@@ -196,36 +196,37 @@ fn node_checks(plan: &Plan, node: NodeId) -> Vec<Check> {
     };
     let stated = &plan.stated[node];
     match &plan.nodes[node] {
-        Node::Amplifier {
+        Node::Amplifier(node::Amplifier {
             input_range,
             output,
             ..
-        } => [
+        }) => [
             check(Limit::AmplifierInput, *input_range, LimitUnit::Volt),
             check(Limit::AmplifierOutput, *output, LimitUnit::Volt),
         ]
         .into_iter()
         .flatten()
         .collect(),
-        Node::Adc {
+        Node::Adc(node::Adc {
             polarity,
             bits,
             input,
             differential,
             ..
-        } => converter_checks(plan, node, *polarity, *bits, *input, *differential),
-        Node::Excitation { current: true, .. } => {
+        }) => converter_checks(plan, node, *polarity, *bits, *input, *differential),
+        Node::Excitation(node::Excitation { current: true, .. }) => {
             check(Limit::Compliance, stated.compliance, LimitUnit::Volt)
                 .into_iter()
                 .collect()
         }
-        Node::Excitation { current: false, .. } => {
+        Node::Excitation(node::Excitation { current: false, .. }) => {
             check(Limit::CurrentLimit, stated.current_limit, LimitUnit::Ampere)
                 .into_iter()
                 .collect()
         }
         // Only its upper end: a current either way heats an element alike.
-        Node::Rtd { input: Some(_), .. } | Node::Thermistor { input: Some(_), .. } => {
+        Node::Rtd(node::Rtd { input: Some(_), .. })
+        | Node::Thermistor(node::Thermistor { input: Some(_), .. }) => {
             let up_to = stated
                 .max_current
                 .map(|(_, high)| (f64::NEG_INFINITY, high));
@@ -233,17 +234,17 @@ fn node_checks(plan: &Plan, node: NodeId) -> Vec<Check> {
                 .into_iter()
                 .collect()
         }
-        Node::Rtd { input: None, .. }
-        | Node::Thermistor { input: None, .. }
-        | Node::Thermocouple { .. }
-        | Node::IcVoltage { .. }
-        | Node::IcCurrent { .. }
-        | Node::StrainGauge { .. }
-        | Node::Transducer { .. }
-        | Node::Resistor { .. }
-        | Node::Bridge { .. }
-        | Node::Filter { .. }
-        | Node::Convert { .. } => Vec::new(),
+        Node::Rtd(node::Rtd { input: None, .. })
+        | Node::Thermistor(node::Thermistor { input: None, .. })
+        | Node::Thermocouple(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Filter(_)
+        | Node::Convert(_) => Vec::new(),
     }
 }
 
@@ -309,40 +310,44 @@ fn voltage_of(s: &[Signal], n: NodeId) -> f64 {
 fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) -> f64 {
     let node = check.node;
     match (&plan.nodes[node], check.limit) {
-        (Node::Amplifier { input, .. }, Limit::AmplifierInput) => match s[*input] {
-            Signal::Voltage { cm, .. } => cm,
-            _ => 0.0,
-        },
-        (Node::Amplifier { .. }, _) => voltage_of(s, node),
-        (Node::Adc { .. }, Limit::ConverterReference) => plan
+        (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) => {
+            match s[*input] {
+                Signal::Voltage { cm, .. } => cm,
+                _ => 0.0,
+            }
+        }
+        (Node::Amplifier(_), _) => voltage_of(s, node),
+        (Node::Adc(_), Limit::ConverterReference) => plan
             .converter_reference(node, values, env, s)
             .unwrap_or(0.0),
         (
-            Node::Adc {
+            Node::Adc(node::Adc {
                 input,
                 differential,
                 ..
-            },
+            }),
             Limit::ConverterPin(pin),
         ) => pin_voltage(s[*input], *differential, pin),
-        (Node::Adc { input, .. }, Limit::ConverterSettling) => match s[*input] {
+        (Node::Adc(node::Adc { input, .. }), Limit::ConverterSettling) => match s[*input] {
             Signal::Voltage { rs, .. } => rs,
             _ => 0.0,
         },
-        (Node::Adc { bits, polarity, .. }, _) => match s[node] {
+        (Node::Adc(node::Adc { bits, polarity, .. }), _) => match s[node] {
             Signal::Code { exact, .. } => {
                 adc::input_of_code(exact, *bits, *polarity).unwrap_or(0.0)
             }
             _ => 0.0,
         },
-        (Node::Excitation { .. }, Limit::Compliance) => compliance_voltage(plan, values, s, node),
-        (Node::Excitation { .. }, _) => load_current(plan, values, s, node),
-        (Node::Rtd { input: Some(i), .. } | Node::Thermistor { input: Some(i), .. }, _) => {
-            match s[*i] {
-                Signal::Current(a) => a,
-                _ => 0.0,
-            }
-        }
+        (Node::Excitation(_), Limit::Compliance) => compliance_voltage(plan, values, s, node),
+        (Node::Excitation(_), _) => load_current(plan, values, s, node),
+        (
+            Node::Rtd(node::Rtd { input: Some(i), .. })
+            | Node::Thermistor(node::Thermistor { input: Some(i), .. }),
+            _,
+        ) => match s[*i] {
+            Signal::Current(a) => a,
+            _ => 0.0,
+        },
         _ => 0.0,
     }
 }
@@ -374,19 +379,19 @@ fn compliance_voltage(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) ->
         .enumerate()
         .filter_map(|(n, node)| {
             let driven = match node {
-                Node::Rtd { input, .. }
-                | Node::Thermistor { input, .. }
-                | Node::StrainGauge { input, .. }
-                | Node::Resistor { input, .. } => *input == Some(exc),
+                Node::Rtd(node::Rtd { input, .. })
+                | Node::Thermistor(node::Thermistor { input, .. })
+                | Node::StrainGauge(node::StrainGauge { input, .. })
+                | Node::Resistor(node::Resistor { input, .. }) => *input == Some(exc),
                 _ => false,
             };
             driven.then(|| {
                 let leads = match node {
-                    Node::Rtd {
+                    Node::Rtd(node::Rtd {
                         leads: Some((a, b)),
                         wiring,
                         ..
-                    } => {
+                    }) => {
                         let (a, b) = (values[*a], values[*b]);
                         let unseen =
                             lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
@@ -407,13 +412,13 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
     plan.nodes
         .iter()
         .map(|node| match node {
-            Node::Bridge {
+            Node::Bridge(node::Bridge {
                 exc: e,
                 kind,
                 r,
                 arms,
                 ..
-            } if *e == exc => {
+            }) if *e == exc => {
                 let fixed = r.map(|r| values[r]).unwrap_or(0.0);
                 let load = bridge_load(*kind, fixed, arms, s);
                 if load > 0.0 {
@@ -422,11 +427,11 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
                     0.0
                 }
             }
-            Node::Transducer {
+            Node::Transducer(node::Transducer {
                 input: Some(i),
                 r: Some(r),
                 ..
-            } if *i == exc => v / values[*r],
+            }) if *i == exc => v / values[*r],
             _ => 0.0,
         })
         .sum()
@@ -566,11 +571,13 @@ fn gather(
 /// The thermocouple right at amplifier `node`'s input, by name, when it
 /// has no bias: the one floating source a `bias_voltage` moves.
 fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
-    let Node::Amplifier { input, .. } = plan.nodes[node] else {
+    let Node::Amplifier(node::Amplifier { input, .. }) = plan.nodes[node] else {
         return None;
     };
     match plan.nodes[input] {
-        Node::Thermocouple { bias: None, .. } => Some(plan.names[input].as_str()),
+        Node::Thermocouple(node::Thermocouple { bias: None, .. }) => {
+            Some(plan.names[input].as_str())
+        }
         _ => None,
     }
 }
@@ -745,15 +752,15 @@ fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -
     }
     let stage_of = |node: NodeId| chain.stages.iter().find(|s| s.name == plan.names[node]);
     match (&plan.nodes[e.node], e.limit) {
-        (Node::Amplifier { input, .. }, Limit::AmplifierInput) => {
+        (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) => {
             if let Some(driver) = stage_of(*input) {
                 f = f.label(driver.name_span, "sets its input common mode");
             }
         }
         (
-            Node::Adc {
+            Node::Adc(node::Adc {
                 reference: Some(r), ..
-            },
+            }),
             Limit::ConverterReference,
         ) => {
             if let Some(driver) = stage_of(*r) {

@@ -1,7 +1,7 @@
 //! The signal path through the plan, which the noise, dynamics and
 //! accumulation analyses follow.
 
-use crate::eval::{Node, NodeId, Plan};
+use crate::eval::{node, Node, NodeId, Plan};
 
 /// The nodes from the converter back to the sensor along the signal path
 /// (each node's main input), converter first.
@@ -10,10 +10,10 @@ pub fn signal_path(plan: &Plan, adc: NodeId) -> Vec<NodeId> {
     let mut at = adc;
     loop {
         let next = match &plan.nodes[at] {
-            Node::Adc { input, .. }
-            | Node::Amplifier { input, .. }
-            | Node::Filter { input, .. } => Some(*input),
-            Node::Bridge { exc, .. } => Some(*exc),
+            Node::Adc(node::Adc { input, .. })
+            | Node::Amplifier(node::Amplifier { input, .. })
+            | Node::Filter(node::Filter { input, .. }) => Some(*input),
+            Node::Bridge(node::Bridge { exc, .. }) => Some(*exc),
             _ => None,
         };
         match next {
