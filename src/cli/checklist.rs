@@ -13,6 +13,7 @@ use serde::Serialize;
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::faults::{self, FaultReport, Masking, Threshold, Verdict, TRIP_K};
+use crate::analysis::Keep;
 use crate::diagnostics::{render_human, Severity};
 use crate::model::Chain;
 use crate::units::format::{from_si, trimmed};
@@ -97,7 +98,7 @@ pub fn run(args: ChecklistArgs) -> u8 {
             return EXIT_USAGE;
         }
     }
-    let checked = match check_one(&args.spec) {
+    let checked = match check_one(&args.spec, Keep::Plans) {
         Ok((c, _)) => c,
         Err(status) => return status,
     };
