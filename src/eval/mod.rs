@@ -14,7 +14,7 @@ mod plan;
 mod run;
 mod track;
 
-pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
+pub use convert::{grid, Calibrated, Calibration, Conversion, Method, TableUse};
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use plan::{
     AmpReference, BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError,

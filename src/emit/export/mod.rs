@@ -1,0 +1,227 @@
+//! `catena export`: the firmware's constants for a chain, as C (a header
+//! and a source), a Rust module or JSON. One model ([`ChainExport`],
+//! computed in `model`) and one list of named constants ([`constants`]),
+//! rendered by each language; the same input gives the same bytes (no
+//! timestamp, numbers written as the shortest text that reads back to
+//! the same double).
+
+mod c;
+mod json;
+mod model;
+mod rust;
+
+pub use c::render as render_c;
+pub use json::render as render_json;
+pub use model::{
+    affine_from, chain_export, Affine, AlarmExport, CalibrationExport, ChainExport, Curve,
+    ExportError, Origin, Provenance, MAX_BREAKPOINTS, TARGET_FRACTION,
+};
+pub use rust::render as render_rust;
+
+use crate::units::format::trimmed;
+
+/// Everything one run exports: the chains of one spec.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Export {
+    pub source: Provenance,
+    pub chains: Vec<ChainExport>,
+}
+
+/// The caution an export carries where a chain trips anything.
+pub const CAUTION: &str = "Caution: these constants are a design aid, not a safety assessment. Where an alarm or trip protects people or property, its design and verification follow the applicable functional-safety standard, local codes and licensed practice.";
+
+/// A number as the shortest text that reads back to the same double, in
+/// a form both C and Rust accept (`1.0`, `-3.5e-7`).
+pub fn number(x: f64) -> String {
+    let x = x + 0.0;
+    let text = format!("{x:?}");
+    if text.contains(['.', 'e', 'E']) {
+        text
+    } else {
+        format!("{text}.0")
+    }
+}
+
+/// `spec PATH, revision REV`: where every constant came from.
+pub fn source_tag(source: &Provenance) -> String {
+    match &source.revision {
+        Some(rev) => format!("spec {}, revision {rev}", source.path),
+        None => format!("spec {}", source.path),
+    }
+}
+
+/// A value of a constant.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Value {
+    Code(i64),
+    Count(i64),
+    Real(f64),
+    Reals(Vec<f64>),
+}
+
+/// One named constant of a chain, with what it is and its unit.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Constant {
+    /// Upper case, without the chain's prefix (`CODE_MIN`).
+    pub name: String,
+    pub what: String,
+    pub unit: String,
+    pub value: Value,
+}
+
+fn constant(name: &str, what: String, unit: &str, value: Value) -> Constant {
+    Constant {
+        name: name.to_string(),
+        what,
+        unit: unit.to_string(),
+        value,
+    }
+}
+
+/// The alarms' names: `ALARM_HIGH`, `ALARM_LOW`, and `ALARM_HIGH_2` for
+/// a second of one side.
+pub fn alarm_names(chain: &ChainExport) -> Vec<String> {
+    let mut seen: Vec<&str> = Vec::new();
+    chain
+        .alarms
+        .iter()
+        .map(|a| {
+            seen.push(&a.side);
+            let n = seen.iter().filter(|s| **s == a.side).count();
+            let side = a.side.to_uppercase();
+            if n == 1 {
+                format!("ALARM_{side}")
+            } else {
+                format!("ALARM_{side}_{n}")
+            }
+        })
+        .collect()
+}
+
+/// What the conversion is, in words, for the comments.
+pub fn conversion_words(chain: &ChainExport) -> String {
+    let how = match (&chain.curve, &chain.origin) {
+        (Curve::Table { codes, .. }, Origin::Chosen) => format!(
+            "a table of {} breakpoints evenly spaced over the valid code window, linear interpolation between them (the spec asks for the exact inverse; this many meet the target below)",
+            codes.len()
+        ),
+        (Curve::Table { codes, .. }, Origin::Spec(m)) => format!(
+            "the spec's `{m}`: {} breakpoints, linear interpolation between them and the end segments extended beyond",
+            codes.len()
+        ),
+        (Curve::Polynomial { coefficients, .. }, Origin::Spec(m)) => format!(
+            "the spec's `{m}`: a polynomial of degree {} in u = (code - mid) / half",
+            coefficients.len().saturating_sub(1)
+        ),
+        (Curve::Polynomial { coefficients, .. }, Origin::Chosen) => format!(
+            "a polynomial of degree {} in u = (code - mid) / half",
+            coefficients.len().saturating_sub(1)
+        ),
+    };
+    let verdict = if chain.max_error <= chain.target {
+        "within"
+    } else {
+        "above"
+    };
+    format!(
+        "{how}. Largest difference from the exact inverse of the nominal chain over the valid code window ({} codes evaluated): {} {} at code {}, {verdict} the target of {} {} ({}).",
+        chain.samples,
+        significant(chain.max_error),
+        chain.difference_unit,
+        trimmed(chain.max_error_at, 12),
+        significant(chain.target),
+        chain.difference_unit,
+        chain.target_basis
+    )
+}
+
+fn significant(x: f64) -> String {
+    trimmed(x, 3)
+}
+
+/// Every constant of a chain, in the order the files list them.
+pub fn constants(chain: &ChainExport) -> Vec<Constant> {
+    let unit = chain.unit.as_str();
+    let diff = chain.difference_unit.as_str();
+    let w = &chain.window;
+    let mut out = vec![
+        constant("CODE_MIN", format!("lowest code the healthy chain gives: over the measurand range, the ambient range and every tolerance at its limits, less {} sigma of one conversion's noise (sigma = {} codes); below it, the chain is faulty", trimmed(w.k, 3), significant(w.sigma_codes)), "code", Value::Code(w.low)),
+        constant("CODE_MAX", format!("highest code the healthy chain gives, as CODE_MIN with {} sigma added; above it, the chain is faulty", trimmed(w.k, 3)), "code", Value::Code(w.high)),
+        constant("RANGE_LOW", format!("low end of the measurand range ({})", chain.quantity), unit, Value::Real(chain.range.0)),
+        constant("RANGE_HIGH", format!("high end of the measurand range ({})", chain.quantity), unit, Value::Real(chain.range.1)),
+        constant("AVERAGE", "conversion results the firmware averages per reading (pass their mean as the code)".to_string(), "samples", Value::Count(i64::from(chain.average))),
+        constant("CONVERSION_MAX_ERROR", "largest difference between this conversion (with the nominal calibration) and the exact inverse of the nominal chain, over the valid code window".to_string(), diff, Value::Real(chain.max_error)),
+    ];
+    out.extend(curve_constants(chain));
+    out.extend(alarm_constants(chain));
+    out.extend(calibration_constants(chain));
+    out
+}
+
+fn curve_constants(chain: &ChainExport) -> Vec<Constant> {
+    let unit = chain.unit.as_str();
+    match &chain.curve {
+        Curve::Table { codes, values } => vec![
+            constant("TABLE_POINTS", "breakpoints of the conversion table".to_string(), "count", Value::Count(codes.len() as i64)),
+            constant("TABLE_CODE", "conversion table: breakpoint codes, rising".to_string(), "code", Value::Reals(codes.clone())),
+            constant("TABLE_VALUE", "conversion table: the uncalibrated reading at each breakpoint".to_string(), unit, Value::Reals(values.clone())),
+        ],
+        Curve::Polynomial { mid, half, coefficients } => vec![
+            constant("POLY_MID", "conversion polynomial: the code u = 0 stands for".to_string(), "code", Value::Real(*mid)),
+            constant("POLY_HALF", "conversion polynomial: codes per unit of u".to_string(), "code", Value::Real(*half)),
+            constant("POLY_TERMS", "conversion polynomial: number of coefficients".to_string(), "count", Value::Count(coefficients.len() as i64)),
+            constant("POLY_COEFFICIENTS", "conversion polynomial: the uncalibrated reading is the sum of c[k] u^k, c[0] first".to_string(), unit, Value::Reals(coefficients.clone())),
+        ],
+    }
+}
+
+fn alarm_constants(chain: &ChainExport) -> Vec<Constant> {
+    let (unit, diff) = (chain.unit.as_str(), chain.difference_unit.as_str());
+    let mut out = Vec::new();
+    for (a, name) in chain.alarms.iter().zip(alarm_names(chain)) {
+        let dir = if a.trips_upward {
+            "at or above"
+        } else {
+            "at or below"
+        };
+        out.push(constant(
+            &format!("{name}_LIMIT"),
+            format!("{} alarm limit as the spec states it", a.side),
+            unit,
+            Value::Real(a.at),
+        ));
+        out.push(constant(&format!("{name}_GUARD_BAND"), "guard band: the expanded uncertainty (k = 2) at the limit, worst over the ambient range".to_string(), diff, Value::Real(a.guard_band)));
+        out.push(constant(&format!("{name}_TRIP"), "reading at which to trip: the limit moved inside by the guard band, so the true value never passes the limit unseen".to_string(), unit, Value::Real(a.trip_at)));
+        out.push(constant(&format!("{name}_TRIP_CODE"), format!("code of the trip reading on the nominal chain at the reference ambient; the alarm trips at codes {dir} it"), "code", Value::Code(a.trip_code)));
+    }
+    out
+}
+
+fn calibration_constants(chain: &ChainExport) -> Vec<Constant> {
+    let Some(cal) = &chain.calibration else {
+        return Vec::new();
+    };
+    let (unit, diff) = (chain.unit.as_str(), chain.difference_unit.as_str());
+    let mut out = Vec::new();
+    for (i, p) in cal.points.iter().enumerate() {
+        let n = i + 1;
+        out.push(constant(&format!("CALIBRATION_POINT_{n}"), format!("{} calibration: the reference value of point {n}, applied with the electronics at the reference ambient", cal.kind.replace('_', "-")), unit, Value::Real(*p)));
+        if let Some(u) = cal.uncertainty.get(i).copied().flatten() {
+            out.push(constant(
+                &format!("CALIBRATION_UNCERTAINTY_{n}"),
+                format!("stated uncertainty of the calibration reference at point {n}"),
+                diff,
+                Value::Real(u),
+            ));
+        }
+        out.push(constant(&format!("CALIBRATION_NOMINAL_CODE_{n}"), format!("code the nominal chain gives at point {n} (what bring-up should see, within the tolerances)"), "code", Value::Real(cal.nominal_codes[i])));
+    }
+    out.push(constant("CALIBRATION_NOMINAL_GAIN", "correction gain of the nominal chain: reading = gain * uncalibrated + offset; replace with the values measured at calibration".to_string(), "1", Value::Real(cal.nominal.gain)));
+    out.push(constant(
+        "CALIBRATION_NOMINAL_OFFSET",
+        "correction offset of the nominal chain, as the gain".to_string(),
+        unit,
+        Value::Real(cal.nominal.offset),
+    ));
+    out
+}
