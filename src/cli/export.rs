@@ -107,6 +107,7 @@ fn outputs(args: &ExportArgs) -> Result<Outputs, String> {
         }
         return Ok(None);
     };
+    refuse_spec(path, &args.spec)?;
     let (first, second) = match args.lang {
         Lang::C => {
             let stem = match path.extension().and_then(|e| e.to_str()) {

@@ -13,8 +13,8 @@ mod rust;
 pub use c::render as render_c;
 pub use json::render as render_json;
 pub use model::{
-    affine_from, chain_export, Affine, AlarmExport, CalibrationExport, ChainExport, Curve,
-    ExportError, Origin, Provenance, MAX_BREAKPOINTS, TARGET_FRACTION,
+    affine_from, chain_export, exact_readings, Affine, AlarmExport, CalibrationExport, ChainExport,
+    Curve, ExportError, Origin, Provenance, MAX_BREAKPOINTS, TARGET_FRACTION,
 };
 pub use rust::render as render_rust;
 

@@ -276,6 +276,25 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
     Ok(export)
 }
 
+/// Catena's exact inverse of the nominal chain with the calibration it
+/// gives, in the reading's unit, at each code: what an export's error is
+/// measured against (and what tests hold an exported program to).
+pub fn exact_readings(chain: &Chain, plan: &Plan, codes: &[f64]) -> Result<Vec<f64>, ExportError> {
+    let Node::Convert { conversion, .. } = &plan.nodes[plan.reading] else {
+        return Err(numeric(plan, "no conversion").into());
+    };
+    let unit = chain
+        .measurand
+        .as_ref()
+        .map(|m| m.unit.clone())
+        .unwrap_or_default();
+    let exact = Exact::new(plan, conversion)?;
+    codes
+        .iter()
+        .map(|&c| Ok(from_si(exact.reading(c)?, &unit)))
+        .collect()
+}
+
 fn numeric(plan: &Plan, what: &str) -> EvalError {
     EvalError::Numeric {
         stage: plan.names[plan.reading].clone(),
