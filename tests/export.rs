@@ -59,27 +59,60 @@ fn relative(spec: &Path) -> String {
         .to_string()
 }
 
-/// Runs a program with codes on its standard input; its readings.
-fn run_program(program: &Path, codes: &[f64]) -> Vec<f64> {
+/// What a chain's test program computes.
+#[derive(Clone, Copy, PartialEq)]
+enum Kind {
+    /// reading(code).
+    CodeAlone,
+    /// reading(code, cold_junction), and cold_junction(code) when the
+    /// chain has its own junction conversion.
+    Junction { conversion: bool },
+}
+
+/// One line of input: a code, the cold junction (reading unit) and the
+/// junction converter's code (the last two unused by a code-alone chain).
+type Line = (f64, f64, f64);
+
+/// Runs a program on the lines; per line, the reading and the junction's
+/// reading (0 without one).
+fn run_program(program: &Path, lines: &[Line]) -> Vec<(f64, f64)> {
     let mut child = Command::new(program)
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
         .spawn()
         .expect("the program runs");
-    let input: String = codes.iter().map(|c| format!("{c:?}\n")).collect();
+    let input: String = lines
+        .iter()
+        .map(|(c, t, k)| format!("{c:?} {t:?} {k:?}\n"))
+        .collect();
     std::io::Write::write_all(&mut child.stdin.take().expect("stdin"), input.as_bytes())
         .expect("stdin takes the codes");
     let out = child.wait_with_output().expect("the program ends");
     assert!(out.status.success());
     String::from_utf8_lossy(&out.stdout)
         .lines()
-        .map(|l| l.trim().parse().expect("a number per line"))
+        .map(|l| {
+            let v: Vec<f64> = l
+                .split_whitespace()
+                .map(|x| x.parse().expect("a number"))
+                .collect();
+            (v[0], v[1])
+        })
         .collect()
 }
 
-fn compile_c(dir: &Path, chain: &str) -> PathBuf {
+fn compile_c(dir: &Path, chain: &str, kind: Kind) -> PathBuf {
+    let print = match kind {
+        Kind::CodeAlone => format!("printf(\"%.17g 0\\n\", {chain}_reading(code));"),
+        Kind::Junction { conversion: false } => {
+            format!("printf(\"%.17g 0\\n\", {chain}_reading(code, cj));")
+        }
+        Kind::Junction { conversion: true } => format!(
+            "printf(\"%.17g %.17g\\n\", {chain}_reading(code, cj), {chain}_cold_junction(cj_code));"
+        ),
+    };
     let main = format!(
-        "#include <stdio.h>\n#include \"{chain}.h\"\nint main(void)\n{{\n    double code;\n    while (scanf(\"%lf\", &code) == 1) {{\n        printf(\"%.17g\\n\", {chain}_reading(code));\n    }}\n    return 0;\n}}\n"
+        "#include <stdio.h>\n#include \"{chain}.h\"\nint main(void)\n{{\n    double code, cj, cj_code;\n    while (scanf(\"%lf %lf %lf\", &code, &cj, &cj_code) == 3) {{\n        (void)cj;\n        (void)cj_code;\n        {print}\n    }}\n    return 0;\n}}\n"
     );
     std::fs::write(dir.join("main.c"), main).expect("main.c");
     let program = dir.join("reading_c");
@@ -102,7 +135,7 @@ fn compile_c(dir: &Path, chain: &str) -> PathBuf {
     program
 }
 
-fn compile_rust(dir: &Path, chain: &str) -> PathBuf {
+fn compile_rust(dir: &Path, chain: &str, kind: Kind) -> PathBuf {
     // The module alone, as a library with warnings denied.
     let status = Command::new("rustc")
         .args(["--edition", "2021", "--crate-type", "lib", "-D", "warnings"])
@@ -112,8 +145,25 @@ fn compile_rust(dir: &Path, chain: &str) -> PathBuf {
         .status()
         .expect("rustc runs");
     assert!(status.success(), "the Rust export of `{chain}` compiles");
+    let m = format!("export::{chain}");
+    let (whole, mean, junction) = match kind {
+        Kind::CodeAlone => (
+            format!("{m}::reading(code as i64)"),
+            format!("{m}::reading_mean(code)"),
+            "0.0".to_string(),
+        ),
+        Kind::Junction { conversion } => (
+            format!("{m}::reading(code as i64, cj)"),
+            format!("{m}::reading_mean(code, cj)"),
+            if conversion {
+                format!("{m}::cold_junction(cj_code)")
+            } else {
+                "0.0".to_string()
+            },
+        ),
+    };
     let main = format!(
-        "#[path = \"export.rs\"]\nmod export;\nuse std::io::BufRead;\nfn main() {{\n    for line in std::io::stdin().lock().lines() {{\n        let code: f64 = line.unwrap().trim().parse().unwrap();\n        let reading = if code.fract() == 0.0 {{\n            export::{chain}::reading(code as i64)\n        }} else {{\n            export::{chain}::reading_mean(code)\n        }};\n        println!(\"{{reading:?}}\");\n    }}\n}}\n"
+        "#[path = \"export.rs\"]\nmod export;\nuse std::io::BufRead;\nfn main() {{\n    for line in std::io::stdin().lock().lines() {{\n        let line = line.unwrap();\n        let v: Vec<f64> = line.split_whitespace().map(|x| x.parse().unwrap()).collect();\n        let (code, cj, cj_code) = (v[0], v[1], v[2]);\n        let _ = (cj, cj_code);\n        let reading = if code.fract() == 0.0 {{ {whole} }} else {{ {mean} }};\n        println!(\"{{reading:?}} {{:?}}\", {junction});\n    }}\n}}\n"
     );
     std::fs::write(dir.join("main.rs"), main).expect("main.rs");
     let program = dir.join("reading_rust");
@@ -160,8 +210,9 @@ fn assert_within(what: &str, got: &[f64], want: &[f64], codes: &[f64], bound: f6
 }
 
 /// `catena eval` at points across the measurand range at the reference
-/// ambient: (code, reading).
-fn eval_points(spec: &str, chain: &Chain) -> Vec<(f64, f64)> {
+/// ambient: the program's input line (code, the junction's reading in the
+/// reading unit, the junction converter's code) and eval's reading.
+fn eval_points(spec: &str, chain: &Chain, junction: Option<(&str, &str)>) -> Vec<(Line, f64)> {
     let m = chain.measurand.as_ref().expect("a measurand");
     let show = |x: f64| catena::units::format::from_si(x, &m.unit);
     (0..=10)
@@ -183,18 +234,41 @@ fn eval_points(spec: &str, chain: &Chain) -> Vec<(f64, f64)> {
                 None,
             );
             let v: serde_json::Value = serde_json::from_str(&run.stdout).expect("eval JSON");
+            let (cj, cj_code) = match junction {
+                Some((stage, converter)) => (
+                    show(
+                        v["nodes"][stage]["value"]
+                            .as_f64()
+                            .expect("the junction's reading"),
+                    ),
+                    v["nodes"][converter]["value"].as_f64().unwrap_or(0.0),
+                ),
+                None => (0.0, 0.0),
+            };
             (
-                v["code"].as_f64().expect("a code"),
+                (v["code"].as_f64().expect("a code"), cj, cj_code),
                 v["reading"]["value"].as_f64().expect("a reading"),
             )
         })
         .collect()
 }
 
-/// Chains whose conversion needs a cold junction's reading as well as the
-/// code: not exported yet, refused with exit status 2.
-fn needs_cold_junction(run: &common::Run) -> bool {
-    run.status == 2 && run.stderr.contains("cold junction")
+/// A chain's (stage, converter) of its junction conversion, from the
+/// export's JSON.
+fn junction_stages(c: &serde_json::Value) -> Option<(String, String)> {
+    let cj = &c["junction"]["cold_junction"];
+    Some((
+        cj["stage"].as_str()?.to_string(),
+        cj["converter"].as_str()?.to_string(),
+    ))
+}
+
+/// The program's readings against the expected, within `bound`.
+fn check_lines(what: &str, program: &Path, lines: &[Line], want: &[f64], bound: f64) -> Vec<f64> {
+    let got: Vec<f64> = run_program(program, lines).iter().map(|r| r.0).collect();
+    let codes: Vec<f64> = lines.iter().map(|l| l.0).collect();
+    assert_within(what, &got, want, &codes, bound);
+    got
 }
 
 #[test]
@@ -205,9 +279,6 @@ fn exports_compile_and_reproduce_catena_readings() {
         for chain in chains(&spec) {
             let name = chain.name.clone();
             let json = export(&["export", &rel, "--chain", &name, "--lang", "json"]);
-            if needs_cold_junction(&json) {
-                continue;
-            }
             assert_eq!(json.status, 0, "{rel} {name}: {}", json.stderr);
             let doc: serde_json::Value = serde_json::from_str(&json.stdout).expect("JSON");
             let c = &doc["chains"][0];
@@ -216,9 +287,31 @@ fn exports_compile_and_reproduce_catena_readings() {
                 c["window"]["high"].as_i64().expect("high"),
             );
             let bound = c["conversion"]["max_error"].as_f64().expect("max_error");
-            let codes = window_codes(low, high);
+            let stages = junction_stages(c);
+            let kind = match c.get("junction") {
+                Some(_) => Kind::Junction {
+                    conversion: stages.is_some(),
+                },
+                None => Kind::CodeAlone,
+            };
+            // Codes across the window; with a junction, at its range's ends
+            // and middle.
+            let junctions: Vec<Option<f64>> = match kind {
+                Kind::CodeAlone => vec![None],
+                Kind::Junction { .. } => {
+                    let r = &c["junction"]["range"];
+                    let (a, b) = (r[0].as_f64().unwrap(), r[1].as_f64().unwrap());
+                    vec![Some(a), Some((a + b) / 2.0), Some(b)]
+                }
+            };
             let plan = lower(&chain).expect("the chain lowers");
-            let want = exact_readings(&chain, &plan, &codes).expect("exact readings");
+            let mut lines = Vec::new();
+            let mut want = Vec::new();
+            for cj in junctions {
+                let codes = window_codes(low, high);
+                want.extend(exact_readings(&chain, &plan, &codes, cj).expect("exact readings"));
+                lines.extend(codes.iter().map(|&code| (code, cj.unwrap_or(0.0), 0.0)));
+            }
 
             let dir = scratch(&format!(
                 "{}-{name}",
@@ -227,43 +320,59 @@ fn exports_compile_and_reproduce_catena_readings() {
             let out = dir.join(&name).to_string_lossy().to_string();
             let run = export(&["export", &rel, "--chain", &name, "--lang", "c", "-o", &out]);
             assert_eq!(run.status, 0, "{}", run.stderr);
-            let c_program = compile_c(&dir, &name);
-            let got = run_program(&c_program, &codes);
-            assert_within(&format!("C {rel} {name}"), &got, &want, &codes, bound);
+            let c_program = compile_c(&dir, &name, kind);
+            let got = check_lines(&format!("C {rel} {name}"), &c_program, &lines, &want, bound);
 
             let rs = dir.join("export.rs").to_string_lossy().to_string();
             let run = export(&[
                 "export", &rel, "--chain", &name, "--lang", "rust", "-o", &rs,
             ]);
             assert_eq!(run.status, 0, "{}", run.stderr);
-            let rust_program = compile_rust(&dir, &name);
-            let got_rust = run_program(&rust_program, &codes);
-            assert_within(
+            let rust_program = compile_rust(&dir, &name, kind);
+            let got_rust = check_lines(
                 &format!("Rust {rel} {name}"),
-                &got_rust,
+                &rust_program,
+                &lines,
                 &want,
-                &codes,
                 bound,
             );
             // One arithmetic, one result: the two languages agree to the bit.
             assert_eq!(got, got_rust, "{rel} {name}: C and Rust differ");
 
-            // `catena eval`'s own readings, at the codes it gives.
-            let points = eval_points(&rel, &chain);
-            let (eval_codes, eval_readings): (Vec<f64>, Vec<f64>) = points.into_iter().unzip();
-            let got = run_program(&c_program, &eval_codes);
-            assert_within(
+            // `catena eval`'s own readings, at the codes (and junction
+            // readings) it gives.
+            let stage_names = stages.as_ref().map(|(s, a)| (s.as_str(), a.as_str()));
+            let (eval_lines, eval_readings): (Vec<Line>, Vec<f64>) =
+                eval_points(&rel, &chain, stage_names).into_iter().unzip();
+            check_lines(
                 &format!("eval {rel} {name}"),
-                &got,
+                &c_program,
+                &eval_lines,
                 &eval_readings,
-                &eval_codes,
                 bound,
             );
+            // The junction's own conversion against eval's junction reading.
+            if let Some(cj) = c["junction"]["cold_junction"].as_object() {
+                let cj_bound = cj["max_error"].as_f64().expect("its max_error");
+                let got: Vec<f64> = run_program(&c_program, &eval_lines)
+                    .iter()
+                    .map(|r| r.1)
+                    .collect();
+                let want: Vec<f64> = eval_lines.iter().map(|l| l.1).collect();
+                let codes: Vec<f64> = eval_lines.iter().map(|l| l.2).collect();
+                assert_within(
+                    &format!("junction {rel} {name}"),
+                    &got,
+                    &want,
+                    &codes,
+                    cj_bound,
+                );
+            }
             let _ = std::fs::remove_dir_all(&dir);
             exported += 1;
         }
     }
-    assert!(exported >= 10, "only {exported} demo chains exported");
+    assert_eq!(exported, 13, "every demo chain exports");
 }
 
 #[test]

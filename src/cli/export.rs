@@ -87,9 +87,9 @@ fn export_chain(chain: &Chain) -> Result<crate::emit::export::ChainExport, u8> {
     let plan = lower(chain).map_err(|e| report_one(chain, &e))?;
     chain_export(chain, &plan).map_err(|e| match e {
         ExportError::Eval(e) => report_one(chain, &e),
-        ExportError::NotCodeAlone { stage, input } => {
+        ExportError::Unsupported { stage, input } => {
             errln!(
-                "catena: chain `{}`: `{stage}` converts with {input} as well as the code; `catena export` writes conversions of the code alone so far",
+                "catena: chain `{}`: `{stage}` converts with {input}, which `catena export` does not write yet",
                 chain.name
             );
             EXIT_USAGE

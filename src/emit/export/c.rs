@@ -3,8 +3,8 @@
 //! library beyond `<stdint.h>`, `<stdbool.h>` and `<stddef.h>`.
 
 use super::{
-    alarm_names, constants, conversion_words, number, source_tag, ChainExport, Constant, Curve,
-    Export, Value, CAUTION,
+    alarm_names, constants, conversion_words, named_curves, number, source_tag, ChainExport,
+    Constant, Curve, Export, Value, CAUTION,
 };
 
 /// The header and the source; `header_name` is how the source includes
@@ -124,8 +124,7 @@ fn header_part(chain: &ChainExport, tag: &str) -> String {
         wrap_comment(&conversion_words(chain), " * ")
     ));
     out.push_str(&format!("/* Whether a conversion result lies in the valid code window. */\nbool {l}_code_valid({ty} code);\n\n"));
-    out.push_str(&format!("/* The uncalibrated reading [{}] of a code, or of the mean of {p}_AVERAGE codes. */\ndouble {l}_reading_uncalibrated(double code);\n\n", chain.unit));
-    out.push_str(&format!("/* The reading [{}] with the nominal calibration. */\ndouble {l}_reading(double code);\n\n", chain.unit));
+    out.push_str(&curve_declarations(chain));
     if let Some(cal) = &chain.calibration {
         let args = (1..=cal.points.len())
             .map(|n| format!("double code_{n}"))
@@ -136,8 +135,9 @@ fn header_part(chain: &ChainExport, tag: &str) -> String {
         out.push_str(&format!("/* The calibration from the (averaged) codes read at the calibration points;\n * returns 0, or -1 when two points read alike (`out` is then left alone). */\nint {l}_calibrate({args}, {l}_calibration *out);\n\n"));
     }
     for (a, name) in chain.alarms.iter().zip(alarm_names(chain)) {
+        let args = alarm_args(chain);
         out.push_str(&format!(
-            "/* Whether the {} alarm trips at this code. */\nbool {l}_{}_tripped({ty} code);\n\n",
+            "/* Whether the {} alarm trips. */\nbool {l}_{}_tripped({args});\n\n",
             a.side,
             name.to_lowercase()
         ));
@@ -165,13 +165,73 @@ fn source_part(chain: &ChainExport, tag: &str) -> String {
     out.push_str(&curve_function(chain));
     out.push_str(&calibration_functions(chain));
     for (a, name) in chain.alarms.iter().zip(alarm_names(chain)) {
-        let op = if a.trips_upward { ">=" } else { "<=" };
+        let args = alarm_args(chain);
+        // With a cold junction the code alone does not say the temperature:
+        // compare the reading.
+        let test = match (chain.junction.is_some(), a.side == "high", a.trips_upward) {
+            (true, true, _) => format!("{l}_reading(code, cold_junction) >= {p}_{name}_TRIP"),
+            (true, false, _) => format!("{l}_reading(code, cold_junction) <= {p}_{name}_TRIP"),
+            (false, _, true) => format!("code >= {p}_{name}_TRIP_CODE"),
+            (false, _, false) => format!("code <= {p}_{name}_TRIP_CODE"),
+        };
         out.push_str(&format!(
-            "bool {l}_{}_tripped({ty} code)\n{{\n    return code {op} {p}_{name}_TRIP_CODE;\n}}\n\n",
+            "bool {l}_{}_tripped({args})\n{{\n    return {test};\n}}\n\n",
             name.to_lowercase()
         ));
     }
     out
+}
+
+fn alarm_args(chain: &ChainExport) -> String {
+    if chain.junction.is_some() {
+        "double code, double cold_junction".to_string()
+    } else {
+        format!("{} code", code_type(chain))
+    }
+}
+
+/// The name a curve's input goes by.
+fn argument(input: &str) -> &'static str {
+    match input {
+        "TEMPERATURE" => "t",
+        "EMF" => "emf",
+        _ => "code",
+    }
+}
+
+fn curve_declarations(chain: &ChainExport) -> String {
+    let p = chain.chain.to_uppercase();
+    let l = &chain.chain;
+    let mut out = String::new();
+    for n in named_curves(chain) {
+        let x = argument(n.input);
+        out.push_str(&format!(
+            "/* {} [{}] of `{x}` [{}]{}. */\ndouble {l}_{}(double {x});\n\n",
+            capitalised(&n.what),
+            n.out_unit,
+            n.in_unit,
+            if n.input == "CODE" && n.prefix != "CJ_" {
+                format!(", one code or the mean of {p}_AVERAGE")
+            } else {
+                String::new()
+            },
+            n.function
+        ));
+    }
+    if chain.junction.is_some() {
+        out.push_str(&format!("/* The reading [{u}] of a code (or the mean of {p}_AVERAGE) with the cold\n * junction at `cold_junction` [{u}]. */\ndouble {l}_reading(double code, double cold_junction);\n\n", u = chain.unit));
+    } else {
+        out.push_str(&format!("/* The reading [{}] with the nominal calibration. */\ndouble {l}_reading(double code);\n\n", chain.unit));
+    }
+    out
+}
+
+fn capitalised(text: &str) -> String {
+    let mut chars = text.chars();
+    match chars.next() {
+        Some(c) => c.to_uppercase().chain(chars).collect(),
+        None => String::new(),
+    }
 }
 
 fn array_body(v: &[f64]) -> String {
@@ -186,21 +246,38 @@ fn array_body(v: &[f64]) -> String {
 fn curve_function(chain: &ChainExport) -> String {
     let p = chain.chain.to_uppercase();
     let l = &chain.chain;
-    let body = match &chain.curve {
-        Curve::Table { .. } => format!(
-            "    /* The first breakpoint above the code, kept to 1 .. n - 1 so the end\n     * segments extend beyond the table. */\n    size_t lo = 0, hi = {p}_TABLE_POINTS;\n    while (lo < hi) {{\n        size_t mid = lo + (hi - lo) / 2;\n        if ({p}_TABLE_CODE[mid] <= code) {{\n            lo = mid + 1;\n        }} else {{\n            hi = mid;\n        }}\n    }}\n    if (lo < 1) {{\n        lo = 1;\n    }}\n    if (lo > {p}_TABLE_POINTS - 1) {{\n        lo = {p}_TABLE_POINTS - 1;\n    }}\n    {{\n        double c0 = {p}_TABLE_CODE[lo - 1], c1 = {p}_TABLE_CODE[lo];\n        double v0 = {p}_TABLE_VALUE[lo - 1], v1 = {p}_TABLE_VALUE[lo];\n        return v0 + (code - c0) * (v1 - v0) / (c1 - c0);\n    }}\n"
-        ),
-        Curve::Polynomial { .. } => format!(
-            "    double u = (code - {p}_POLY_MID) / {p}_POLY_HALF;\n    double acc = 0.0;\n    size_t k = {p}_POLY_TERMS;\n    while (k-- > 0) {{\n        acc = acc * u + {p}_POLY_COEFFICIENTS[k];\n    }}\n    return acc;\n"
-        ),
-    };
-    format!("double {l}_reading_uncalibrated(double code)\n{{\n{body}}}\n\n")
+    let mut out = String::new();
+    for n in named_curves(chain) {
+        let x = argument(n.input);
+        let t = format!("{p}_{}TABLE", n.prefix);
+        let q = format!("{p}_{}POLY", n.prefix);
+        let input = n.input;
+        let body = match n.curve {
+            Curve::Table { .. } => format!(
+                "    /* The first breakpoint above the input, kept to 1 .. n - 1 so the end\n     * segments extend beyond the table. */\n    size_t lo = 0, hi = {t}_POINTS;\n    while (lo < hi) {{\n        size_t mid = lo + (hi - lo) / 2;\n        if ({t}_{input}[mid] <= {x}) {{\n            lo = mid + 1;\n        }} else {{\n            hi = mid;\n        }}\n    }}\n    if (lo < 1) {{\n        lo = 1;\n    }}\n    if (lo > {t}_POINTS - 1) {{\n        lo = {t}_POINTS - 1;\n    }}\n    {{\n        double x0 = {t}_{input}[lo - 1], x1 = {t}_{input}[lo];\n        double v0 = {t}_VALUE[lo - 1], v1 = {t}_VALUE[lo];\n        return v0 + ({x} - x0) * (v1 - v0) / (x1 - x0);\n    }}\n"
+            ),
+            Curve::Polynomial { .. } => format!(
+                "    double u = ({x} - {q}_MID) / {q}_HALF;\n    double acc = 0.0;\n    size_t k = {q}_TERMS;\n    while (k-- > 0) {{\n        acc = acc * u + {q}_COEFFICIENTS[k];\n    }}\n    return acc;\n"
+            ),
+        };
+        out.push_str(&format!(
+            "double {l}_{}(double {x})\n{{\n{body}}}\n\n",
+            n.function
+        ));
+    }
+    if chain.junction.is_some() {
+        out.push_str(&format!("double {l}_reading(double code, double cold_junction)\n{{\n    return {l}_temperature_of_emf({l}_emf(code) + {l}_junction_emf(cold_junction));\n}}\n\n"));
+    }
+    out
 }
 
 fn calibration_functions(chain: &ChainExport) -> String {
     let p = chain.chain.to_uppercase();
     let l = &chain.chain;
     let Some(cal) = &chain.calibration else {
+        if chain.junction.is_some() {
+            return String::new();
+        }
         return format!("double {l}_reading(double code)\n{{\n    return {l}_reading_uncalibrated(code);\n}}\n\n");
     };
     let mut out = format!("double {l}_reading(double code)\n{{\n    return {p}_CALIBRATION_NOMINAL_GAIN * {l}_reading_uncalibrated(code) + {p}_CALIBRATION_NOMINAL_OFFSET;\n}}\n\n");

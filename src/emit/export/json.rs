@@ -34,6 +34,112 @@ struct ChainJson<'a> {
     conversion: ConversionJson<'a>,
     alarms: Vec<AlarmJson<'a>>,
     calibration: Option<CalibrationJson<'a>>,
+    /// A thermocouple chain's conversion with its cold junction (the
+    /// conversion above is then the code-to-EMF table).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    junction: Option<JunctionJson<'a>>,
+}
+
+#[derive(Serialize)]
+struct JunctionJson<'a> {
+    couple: String,
+    /// Junction temperature (reading unit) → EMF (mV).
+    junction_emf: TableJson<'a>,
+    /// EMF (mV) → temperature (reading unit).
+    temperature: TableJson<'a>,
+    range: [f64; 2],
+    max_error_junction: Option<f64>,
+    cold_junction: Option<ColdJunctionJson<'a>>,
+}
+
+#[derive(Serialize)]
+struct TableJson<'a> {
+    inputs: &'a [f64],
+    values: &'a [f64],
+}
+
+#[derive(Serialize)]
+struct ColdJunctionJson<'a> {
+    stage: &'a str,
+    converter: &'a str,
+    bits: u32,
+    signed: bool,
+    origin: String,
+    curve: CurveJson<'a>,
+    max_error: f64,
+    codes: [f64; 2],
+    samples: usize,
+}
+
+#[derive(Serialize)]
+#[serde(tag = "kind", rename_all = "lowercase")]
+enum CurveJson<'a> {
+    Table {
+        codes: &'a [f64],
+        values: &'a [f64],
+    },
+    Polynomial {
+        mid: f64,
+        half: f64,
+        coefficients: &'a [f64],
+    },
+}
+
+fn curve_json(c: &Curve) -> CurveJson<'_> {
+    match c {
+        Curve::Table { codes, values } => CurveJson::Table { codes, values },
+        Curve::Polynomial {
+            mid,
+            half,
+            coefficients,
+        } => CurveJson::Polynomial {
+            mid: *mid,
+            half: *half,
+            coefficients,
+        },
+    }
+}
+
+fn table_json(c: &Curve) -> TableJson<'_> {
+    match c {
+        Curve::Table { codes, values } => TableJson {
+            inputs: codes,
+            values,
+        },
+        Curve::Polynomial { coefficients, .. } => TableJson {
+            inputs: &[],
+            values: coefficients,
+        },
+    }
+}
+
+fn origin_text(o: &Origin) -> String {
+    match o {
+        Origin::Chosen => "chosen".to_string(),
+        Origin::Spec(m) => m.clone(),
+    }
+}
+
+fn junction(c: &ChainExport) -> Option<JunctionJson<'_>> {
+    let j = c.junction.as_ref()?;
+    Some(JunctionJson {
+        couple: j.couple.to_string(),
+        junction_emf: table_json(&j.junction_emf),
+        temperature: table_json(&j.temperature),
+        range: [j.junction_range.0, j.junction_range.1],
+        max_error_junction: c.max_error_junction,
+        cold_junction: j.cj.as_ref().map(|cj| ColdJunctionJson {
+            stage: &cj.stage,
+            converter: &cj.converter,
+            bits: cj.bits,
+            signed: cj.signed,
+            origin: origin_text(&cj.origin),
+            curve: curve_json(&cj.curve),
+            max_error: cj.max_error,
+            codes: [cj.codes.0, cj.codes.1],
+            samples: cj.samples,
+        }),
+    })
 }
 
 #[derive(Serialize)]
@@ -167,14 +273,12 @@ fn chain(c: &ChainExport) -> ChainJson<'_> {
             nominal_gain: cal.nominal.gain,
             nominal_offset: cal.nominal.offset,
         }),
+        junction: junction(c),
     }
 }
 
 fn conversion(c: &ChainExport) -> ConversionJson<'_> {
-    let origin = match &c.origin {
-        Origin::Chosen => "chosen".to_string(),
-        Origin::Spec(m) => m.clone(),
-    };
+    let origin = origin_text(&c.origin);
     let mut out = ConversionJson {
         kind: "table",
         origin,

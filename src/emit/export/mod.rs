@@ -7,11 +7,13 @@
 
 mod c;
 mod json;
+mod junction;
 mod model;
 mod rust;
 
 pub use c::render as render_c;
 pub use json::render as render_json;
+pub use junction::{ColdJunctionConversion, Junction};
 pub use model::{
     affine_from, chain_export, exact_readings, Affine, AlarmExport, CalibrationExport, ChainExport,
     Curve, ExportError, Origin, Provenance, MAX_BREAKPOINTS, TARGET_FRACTION,
@@ -101,6 +103,7 @@ pub fn alarm_names(chain: &ChainExport) -> Vec<String> {
 /// What the conversion is, in words, for the comments.
 pub fn conversion_words(chain: &ChainExport) -> String {
     let how = match (&chain.curve, &chain.origin) {
+        _ if chain.junction.is_some() => "three tables, sized together: code to the couple's voltage, the cold junction's temperature to its EMF, and their sum back to a temperature (law of intermediate temperatures); linear interpolation in each, evenly spaced breakpoints".to_string(),
         (Curve::Table { codes, .. }, Origin::Chosen) => format!(
             "a table of {} breakpoints evenly spaced over the valid code window, linear interpolation between them (the spec asks for the exact inverse; this many meet the target below)",
             codes.len()
@@ -123,8 +126,12 @@ pub fn conversion_words(chain: &ChainExport) -> String {
     } else {
         "above"
     };
+    let junction = chain
+        .max_error_junction
+        .map(|t| format!(" with the junction at {} {}", trimmed(t, 6), chain.unit))
+        .unwrap_or_default();
     format!(
-        "{how}. Largest difference from the exact inverse of the nominal chain over the valid code window ({} codes evaluated): {} {} at code {}, {verdict} the target of {} {} ({}).",
+        "{how}. Largest difference from the exact inverse of the nominal chain over the valid code window ({} points evaluated): {} {} at code {}{junction}, {verdict} the target of {} {} ({}).",
         chain.samples,
         significant(chain.max_error),
         chain.difference_unit,
@@ -158,21 +165,148 @@ pub fn constants(chain: &ChainExport) -> Vec<Constant> {
     out
 }
 
-fn curve_constants(chain: &ChainExport) -> Vec<Constant> {
-    let unit = chain.unit.as_str();
-    match &chain.curve {
-        Curve::Table { codes, values } => vec![
-            constant("TABLE_POINTS", "breakpoints of the conversion table".to_string(), "count", Value::Count(codes.len() as i64)),
-            constant("TABLE_CODE", "conversion table: breakpoint codes, rising".to_string(), "code", Value::Reals(codes.clone())),
-            constant("TABLE_VALUE", "conversion table: the uncalibrated reading at each breakpoint".to_string(), unit, Value::Reals(values.clone())),
-        ],
-        Curve::Polynomial { mid, half, coefficients } => vec![
-            constant("POLY_MID", "conversion polynomial: the code u = 0 stands for".to_string(), "code", Value::Real(*mid)),
-            constant("POLY_HALF", "conversion polynomial: codes per unit of u".to_string(), "code", Value::Real(*half)),
-            constant("POLY_TERMS", "conversion polynomial: number of coefficients".to_string(), "count", Value::Count(coefficients.len() as i64)),
-            constant("POLY_COEFFICIENTS", "conversion polynomial: the uncalibrated reading is the sum of c[k] u^k, c[0] first".to_string(), unit, Value::Reals(coefficients.clone())),
-        ],
+/// One function of the conversion, as the files name it.
+pub struct NamedCurve<'a> {
+    /// Its constants' prefix (`EMF_`), empty for a code-alone chain's.
+    pub prefix: &'static str,
+    /// What a table's breakpoints are (`CODE`, `TEMPERATURE`, `EMF`).
+    pub input: &'static str,
+    /// Its function's name (`reading_uncalibrated`, `emf`).
+    pub function: &'static str,
+    pub curve: &'a Curve,
+    pub in_unit: String,
+    pub out_unit: String,
+    /// What it gives, for the comments.
+    pub what: String,
+}
+
+/// The conversion's functions: one curve from code to reading, or for a
+/// thermocouple chain the code-to-EMF, junction-to-EMF and EMF-to-
+/// temperature tables and the junction's own conversion.
+pub fn named_curves(chain: &ChainExport) -> Vec<NamedCurve<'_>> {
+    let unit = chain.unit.clone();
+    let named =
+        |prefix, input, function, curve, in_unit: &str, out_unit: &str, what: &str| NamedCurve {
+            prefix,
+            input,
+            function,
+            curve,
+            in_unit: in_unit.to_string(),
+            out_unit: out_unit.to_string(),
+            what: what.to_string(),
+        };
+    let Some(j) = &chain.junction else {
+        return vec![named(
+            "",
+            "CODE",
+            "reading_uncalibrated",
+            &chain.curve,
+            "code",
+            &unit,
+            "the uncalibrated reading",
+        )];
+    };
+    let mut out = vec![
+        named("EMF_", "CODE", "emf", &j.emf, "code", "mV", "the couple's voltage the code stands for, with the cold junction at the reference ambient: E(t) - E(t_reference)"),
+        named("JUNCTION_", "TEMPERATURE", "junction_emf", &j.junction_emf, &unit, "mV", &format!("the EMF of the cold junction's temperature, E(t_junction), {} reference function", j.couple)),
+        named("TEMPERATURE_", "EMF", "temperature_of_emf", &j.temperature, "mV", &unit, &format!("the temperature of an EMF, {} inverse", j.couple)),
+    ];
+    if let Some(cj) = &j.cj {
+        out.push(named(
+            "CJ_",
+            "CODE",
+            "cold_junction",
+            &cj.curve,
+            "code",
+            &unit,
+            &format!(
+                "the cold junction's temperature from the code of `{}` (stage `{}`)",
+                cj.converter, cj.stage
+            ),
+        ));
     }
+    out
+}
+
+fn curve_constants(chain: &ChainExport) -> Vec<Constant> {
+    let mut out = Vec::new();
+    for n in named_curves(chain) {
+        let p = n.prefix;
+        match n.curve {
+            Curve::Table { codes, values } => out.extend([
+                constant(
+                    &format!("{p}TABLE_POINTS"),
+                    format!("breakpoints of the table of {}", n.what),
+                    "count",
+                    Value::Count(codes.len() as i64),
+                ),
+                constant(
+                    &format!("{p}TABLE_{}", n.input),
+                    format!("table of {}: breakpoints, rising", n.what),
+                    &n.in_unit,
+                    Value::Reals(codes.clone()),
+                ),
+                constant(
+                    &format!("{p}TABLE_VALUE"),
+                    format!(
+                        "table of {}: the value at each breakpoint, linear between them",
+                        n.what
+                    ),
+                    &n.out_unit,
+                    Value::Reals(values.clone()),
+                ),
+            ]),
+            Curve::Polynomial {
+                mid,
+                half,
+                coefficients,
+            } => out.extend([
+                constant(
+                    &format!("{p}POLY_MID"),
+                    format!("polynomial of {}: the input u = 0 stands for", n.what),
+                    &n.in_unit,
+                    Value::Real(*mid),
+                ),
+                constant(
+                    &format!("{p}POLY_HALF"),
+                    format!("polynomial of {}: input per unit of u", n.what),
+                    &n.in_unit,
+                    Value::Real(*half),
+                ),
+                constant(
+                    &format!("{p}POLY_TERMS"),
+                    format!("polynomial of {}: number of coefficients", n.what),
+                    "count",
+                    Value::Count(coefficients.len() as i64),
+                ),
+                constant(
+                    &format!("{p}POLY_COEFFICIENTS"),
+                    format!("polynomial of {}: the sum of c[k] u^k, c[0] first", n.what),
+                    &n.out_unit,
+                    Value::Reals(coefficients.clone()),
+                ),
+            ]),
+        }
+    }
+    if let Some(j) = &chain.junction {
+        out.push(constant(
+            "JUNCTION_LOW",
+            "lowest cold-junction temperature the tables cover (the ambient range widened by 10 K)"
+                .to_string(),
+            &chain.unit,
+            Value::Real(j.junction_range.0),
+        ));
+        out.push(constant(
+            "JUNCTION_HIGH",
+            "highest cold-junction temperature the tables cover".to_string(),
+            &chain.unit,
+            Value::Real(j.junction_range.1),
+        ));
+        if let Some(cj) = &j.cj {
+            out.push(constant("CJ_CONVERSION_MAX_ERROR", format!("largest difference between the cold junction's conversion and its exact inverse, over codes {} .. {} (the ambient range)", cj.codes.0, cj.codes.1), &chain.difference_unit, Value::Real(cj.max_error)));
+        }
+    }
+    out
 }
 
 fn alarm_constants(chain: &ChainExport) -> Vec<Constant> {
@@ -192,7 +326,17 @@ fn alarm_constants(chain: &ChainExport) -> Vec<Constant> {
         ));
         out.push(constant(&format!("{name}_GUARD_BAND"), "guard band: the expanded uncertainty (k = 2) at the limit, worst over the ambient range".to_string(), diff, Value::Real(a.guard_band)));
         out.push(constant(&format!("{name}_TRIP"), "reading at which to trip: the limit moved inside by the guard band, so the true value never passes the limit unseen".to_string(), unit, Value::Real(a.trip_at)));
-        out.push(constant(&format!("{name}_TRIP_CODE"), format!("code of the trip reading on the nominal chain at the reference ambient; the alarm trips at codes {dir} it"), "code", Value::Code(a.trip_code)));
+        let trip_code = if chain.junction.is_some() {
+            "code of the trip reading on the nominal chain with the cold junction at the reference ambient; another junction temperature moves it, so the alarm compares the reading with the trip instead".to_string()
+        } else {
+            format!("code of the trip reading on the nominal chain at the reference ambient; the alarm trips at codes {dir} it")
+        };
+        out.push(constant(
+            &format!("{name}_TRIP_CODE"),
+            trip_code,
+            "code",
+            Value::Code(a.trip_code),
+        ));
     }
     out
 }

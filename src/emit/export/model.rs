@@ -9,10 +9,13 @@
 //! `kg`); errors in its difference unit (`K`). Fault thresholds join the
 //! window here once the fault analysis places each fault's code.
 
+use super::junction::{
+    composite_error, junction, measuring_couple, Inputs, Junction, JUNCTION_SAMPLES,
+};
 use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
 use crate::analysis::window::{code_window, CodeWindow};
-use crate::eval::{Calibrated, Calibration, Conversion, Env, EvalError, Node, Plan, Senses};
+use crate::eval::{Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan};
 use crate::model::value::{Basis, ParamValue};
 use crate::model::Chain;
 use crate::physics::adc::Polarity;
@@ -163,6 +166,11 @@ pub struct ChainExport {
     pub window: CodeWindow,
     pub alarms: Vec<AlarmExport>,
     pub calibration: Option<CalibrationExport>,
+    /// For a thermocouple chain: the conversion with the cold junction
+    /// (`curve` is then its code-to-EMF table), and the junction
+    /// temperature (reading unit) where the error is largest.
+    pub junction: Option<Junction>,
+    pub max_error_junction: Option<f64>,
 }
 
 impl ChainExport {
@@ -185,9 +193,9 @@ impl ChainExport {
 #[derive(Clone, Debug, PartialEq)]
 pub enum ExportError {
     Eval(EvalError),
-    /// The reading depends on more than the code: `input` says on what
-    /// (a thermocouple's cold junction).
-    NotCodeAlone {
+    /// A conversion the export does not write yet: `input` says what it
+    /// converts with (a thermocouple's cold junction and a calibration).
+    Unsupported {
         stage: String,
         input: String,
     },
@@ -204,23 +212,19 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
     let Node::Convert { cj, conversion, .. } = &plan.nodes[plan.reading] else {
         return Err(numeric(plan, "no conversion").into());
     };
-    let couple = plan.nodes.iter().any(|n| {
-        matches!(
-            n,
-            Node::Thermocouple {
-                senses: Senses::Measurand,
-                ..
-            }
-        )
-    });
-    if let Some(input) = cj
-        .map(|n| format!("the cold junction's reading `{}`", plan.names[n]))
-        .or_else(|| couple.then(|| "the cold junction's temperature".to_string()))
-    {
-        return Err(ExportError::NotCodeAlone {
-            stage: plan.names[plan.reading].clone(),
-            input,
-        });
+    let couple = measuring_couple(plan);
+    // An approximation (`table`, `linear`, `poly`) reads the code alone.
+    let with_junction = conversion.method == Method::Exact && (cj.is_some() || couple.is_some());
+    let refused = |input: &str| ExportError::Unsupported {
+        stage: plan.names[plan.reading].clone(),
+        input: input.to_string(),
+    };
+    match (with_junction, couple) {
+        (true, None) => return Err(refused("a cold junction but no thermocouple")),
+        (true, Some(_)) if conversion.calibration != Calibration::None => {
+            return Err(refused("the cold junction's temperature and a calibration"))
+        }
+        _ => {}
     }
     let Node::Adc { bits, polarity, .. } = &plan.nodes[plan.adc] else {
         return Err(numeric(plan, "no converter").into());
@@ -239,9 +243,25 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         .map(|&c| exact.reading(c).map(to_unit))
         .collect::<Result<Vec<_>, _>>()?;
     let (target, target_basis) = target(chain, &samples, &truth);
-    let (curve, origin) = match spec_curve(conversion, &to_unit) {
-        Some((curve, method)) => (curve, Origin::Spec(method)),
-        None => (
+    let inputs = couple.map(|couple| Inputs {
+        plan,
+        conversion,
+        cj: *cj,
+        couple,
+        window: &window,
+        samples: &samples,
+        target,
+        to_unit: &to_unit,
+        ambient: chain.ambient,
+    });
+    let junction = match &inputs {
+        Some(i) if with_junction => Some(junction(i)?),
+        _ => None,
+    };
+    let (curve, origin) = match (&junction, spec_curve(conversion, &to_unit)) {
+        (Some(j), _) => (j.emf.clone(), Origin::Chosen),
+        (None, Some((curve, method))) => (curve, Origin::Spec(method)),
+        (None, None) => (
             chosen_table(&exact, &window, &samples, target, &to_unit)?,
             Origin::Chosen,
         ),
@@ -266,20 +286,41 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         target,
         target_basis,
         samples: samples.len(),
-        window,
-        alarms: Vec::new(),
+        window: window.clone(),
+        alarms: alarms(chain, plan, true, &to_unit)?,
         calibration,
+        junction,
+        max_error_junction: None,
     };
-    (export.max_error, export.max_error_at) =
-        largest_error(&samples, &truth, |c| export.reading(c));
-    export.alarms = alarms(chain, plan, export.rising, &to_unit)?;
+    for a in &mut export.alarms {
+        a.trips_upward = (a.side == "high") == export.rising;
+    }
+    match (&export.junction, &inputs) {
+        (Some(j), Some(i)) => {
+            let (error, code, cj) = composite_error(i, j)?;
+            (export.max_error, export.max_error_at) = (error, code);
+            export.max_error_junction = Some(cj);
+            export.samples *= JUNCTION_SAMPLES;
+        }
+        _ => {
+            (export.max_error, export.max_error_at) =
+                largest_error(&samples, &truth, |c| export.reading(c));
+        }
+    }
     Ok(export)
 }
 
 /// Catena's exact inverse of the nominal chain with the calibration it
 /// gives, in the reading's unit, at each code: what an export's error is
 /// measured against (and what tests hold an exported program to).
-pub fn exact_readings(chain: &Chain, plan: &Plan, codes: &[f64]) -> Result<Vec<f64>, ExportError> {
+/// `junction`: the cold junction's temperature (reading unit), for a
+/// thermocouple chain converting with it.
+pub fn exact_readings(
+    chain: &Chain,
+    plan: &Plan,
+    codes: &[f64],
+    junction: Option<f64>,
+) -> Result<Vec<f64>, ExportError> {
     let Node::Convert { conversion, .. } = &plan.nodes[plan.reading] else {
         return Err(numeric(plan, "no conversion").into());
     };
@@ -289,9 +330,16 @@ pub fn exact_readings(chain: &Chain, plan: &Plan, codes: &[f64]) -> Result<Vec<f
         .map(|m| m.unit.clone())
         .unwrap_or_default();
     let exact = Exact::new(plan, conversion)?;
+    let cj = junction.map(|t| crate::units::format::to_si(t, &unit));
     codes
         .iter()
-        .map(|&c| Ok(from_si(exact.reading(c)?, &unit)))
+        .map(|&c| {
+            let x = match cj {
+                Some(cj) => exact.reading_at_junction(c, cj)?,
+                None => exact.reading(c)?,
+            };
+            Ok(from_si(x, &unit))
+        })
         .collect()
 }
 
@@ -304,7 +352,7 @@ fn numeric(plan: &Plan, what: &str) -> EvalError {
 
 /// Catena's exact inverse of the nominal chain with the calibration it
 /// gives: the reference every exported reading is measured against.
-struct Exact<'a> {
+pub(super) struct Exact<'a> {
     plan: &'a Plan,
     conversion: Conversion,
     calibrated: Calibrated,
@@ -312,10 +360,10 @@ struct Exact<'a> {
 }
 
 impl<'a> Exact<'a> {
-    fn new(plan: &'a Plan, spec: &Conversion) -> Result<Self, EvalError> {
+    pub(super) fn new(plan: &'a Plan, spec: &Conversion) -> Result<Self, EvalError> {
         let env = reference_env(plan, 0.5 * (plan.range.0 + plan.range.1));
         let mut conversion = spec.clone();
-        if conversion.method != crate::eval::Method::Exact {
+        if conversion.method != Method::Exact {
             conversion
                 .fit(plan, &env, "exact", 0, true, None)
                 .map_err(|what| EvalError::NotInvertible {
@@ -339,9 +387,21 @@ impl<'a> Exact<'a> {
         self.conversion.correct(self.plan, x, &self.calibrated)
     }
 
-    fn uncalibrated(&self, code: f64) -> Result<f64, EvalError> {
+    pub(super) fn uncalibrated(&self, code: f64) -> Result<f64, EvalError> {
         self.conversion
             .invert(self.plan, &self.plan.nominal, &self.env, code, None)
+    }
+
+    /// The uncalibrated reading with the cold junction at `cj` (K), SI.
+    pub(super) fn at_junction(&self, code: f64, cj: f64) -> Result<f64, EvalError> {
+        self.conversion
+            .invert(self.plan, &self.plan.nominal, &self.env, code, Some(cj))
+    }
+
+    /// The calibrated reading with the cold junction at `cj` (K), SI.
+    pub(super) fn reading_at_junction(&self, code: f64, cj: f64) -> Result<f64, EvalError> {
+        let x = self.at_junction(code, cj)?;
+        self.conversion.correct(self.plan, x, &self.calibrated)
     }
 
     fn code_at(&self, measurand: f64) -> Result<f64, EvalError> {
@@ -425,8 +485,10 @@ fn target(chain: &Chain, samples: &[f64], truth: &[f64]) -> (f64, String) {
 
 /// The spec's own approximation as a curve in the reading's unit; None
 /// for `method exact`.
-fn spec_curve(conversion: &Conversion, to_unit: &dyn Fn(f64) -> f64) -> Option<(Curve, String)> {
-    use crate::eval::Method;
+pub(super) fn spec_curve(
+    conversion: &Conversion,
+    to_unit: &dyn Fn(f64) -> f64,
+) -> Option<(Curve, String)> {
     // The unit map is affine: a + b x.
     let a = to_unit(0.0);
     let b = to_unit(1.0) - a;
@@ -494,24 +556,41 @@ fn chosen_table(
         .iter()
         .map(|&c| exact.uncalibrated(c).map(to_unit))
         .collect::<Result<_, _>>()?;
-    let mut n = MIN_BREAKPOINTS;
-    loop {
+    let build = |n: usize| {
         let codes = crate::eval::grid((window.low as f64, window.high as f64), n);
         let values = codes
             .iter()
             .map(|&c| exact.uncalibrated(c).map(to_unit))
             .collect::<Result<Vec<_>, _>>()?;
-        let curve = Curve::Table { codes, values };
-        let (error, _) = largest_error(samples, &raw, |c| curve.at(c));
-        if error <= target || n >= MAX_BREAKPOINTS || window.high - window.low < n as i64 {
-            return Ok(curve);
+        Ok(Curve::Table { codes, values })
+    };
+    chosen_size(window, target, build, |curve: &Curve| {
+        largest_error(samples, &raw, |c| curve.at(c)).0
+    })
+}
+
+/// The first of `build(9)`, `build(17)`, `build(33)` … whose error meets
+/// `target`, or the largest tried ([`MAX_BREAKPOINTS`], or as many as the
+/// window has codes).
+pub(super) fn chosen_size<T>(
+    window: &CodeWindow,
+    target: f64,
+    build: impl Fn(usize) -> Result<T, EvalError>,
+    error_of: impl Fn(&T) -> f64,
+) -> Result<T, EvalError> {
+    let mut n = MIN_BREAKPOINTS;
+    loop {
+        let made = build(n)?;
+        let last = n >= MAX_BREAKPOINTS || window.high - window.low < n as i64;
+        if last || error_of(&made) <= target {
+            return Ok(made);
         }
         n = 2 * n - 1;
     }
 }
 
 /// The largest |f(c) − truth| over the samples, and the code where.
-fn largest_error(samples: &[f64], truth: &[f64], f: impl Fn(f64) -> f64) -> (f64, f64) {
+pub(super) fn largest_error(samples: &[f64], truth: &[f64], f: impl Fn(f64) -> f64) -> (f64, f64) {
     samples
         .iter()
         .zip(truth)

@@ -2,8 +2,8 @@
 //! that use them; no allocation and no dependency (`no_std` friendly).
 
 use super::{
-    alarm_names, constants, conversion_words, number, source_tag, ChainExport, Constant, Curve,
-    Export, Value, CAUTION,
+    alarm_names, constants, conversion_words, named_curves, number, source_tag, ChainExport,
+    Constant, Curve, Export, Value, CAUTION,
 };
 
 pub fn render(export: &Export) -> String {
@@ -87,16 +87,25 @@ fn module(chain: &ChainExport, tag: &str) -> String {
     }
     out.push_str("    /// Whether a conversion result lies in the valid code window.\n    pub fn code_valid(code: i64) -> bool {\n        (CODE_MIN..=CODE_MAX).contains(&code)\n    }\n\n");
     out.push_str(&wrap(&conversion_words(chain), "    /// "));
-    out.push_str(&format!(
-        "    /// The uncalibrated reading [{}] of a code, or of the mean of AVERAGE codes.\n",
-        chain.unit
-    ));
-    out.push_str(&curve_function(chain));
+    out.push_str(&curve_functions(chain));
     out.push_str(&calibration_functions(chain));
     for (a, name) in chain.alarms.iter().zip(alarm_names(chain)) {
-        let op = if a.trips_upward { ">=" } else { "<=" };
+        // With a cold junction the code alone does not say the temperature:
+        // compare the reading.
+        let (args, test) = match (chain.junction.is_some(), a.side == "high", a.trips_upward) {
+            (true, true, _) => (
+                "code: f64, cold_junction: f64",
+                format!("reading_mean(code, cold_junction) >= {name}_TRIP"),
+            ),
+            (true, false, _) => (
+                "code: f64, cold_junction: f64",
+                format!("reading_mean(code, cold_junction) <= {name}_TRIP"),
+            ),
+            (false, _, true) => ("code: i64", format!("code >= {name}_TRIP_CODE")),
+            (false, _, false) => ("code: i64", format!("code <= {name}_TRIP_CODE")),
+        };
         out.push_str(&format!(
-            "    /// Whether the {} alarm trips at this code.\n    pub fn {}_tripped(code: i64) -> bool {{\n        code {op} {name}_TRIP_CODE\n    }}\n\n",
+            "    /// Whether the {} alarm trips.\n    pub fn {}_tripped({args}) -> bool {{\n        {test}\n    }}\n\n",
             a.side,
             name.to_lowercase()
         ));
@@ -107,17 +116,57 @@ fn module(chain: &ChainExport, tag: &str) -> String {
     out
 }
 
-fn curve_function(chain: &ChainExport) -> String {
-    let body = match &chain.curve {
-        Curve::Table { .. } => "        // The first breakpoint above the code, kept to 1 .. n - 1 so the end\n        // segments extend beyond the table.\n        let k = TABLE_CODE\n            .partition_point(|&c| c <= code)\n            .clamp(1, TABLE_POINTS - 1);\n        let (c0, c1) = (TABLE_CODE[k - 1], TABLE_CODE[k]);\n        let (v0, v1) = (TABLE_VALUE[k - 1], TABLE_VALUE[k]);\n        v0 + (code - c0) * (v1 - v0) / (c1 - c0)\n",
-        Curve::Polynomial { .. } => "        let u = (code - POLY_MID) / POLY_HALF;\n        POLY_COEFFICIENTS\n            .iter()\n            .rev()\n            .fold(0.0, |acc, c| acc * u + c)\n",
-    };
-    format!("    pub fn reading_uncalibrated(code: f64) -> f64 {{\n{body}    }}\n\n")
+/// The name a curve's input goes by.
+fn argument(input: &str) -> &'static str {
+    match input {
+        "TEMPERATURE" => "t",
+        "EMF" => "emf",
+        _ => "code",
+    }
+}
+
+fn curve_functions(chain: &ChainExport) -> String {
+    let mut out = String::new();
+    for n in named_curves(chain) {
+        let x = argument(n.input);
+        let (t, q, input) = (
+            format!("{}TABLE", n.prefix),
+            format!("{}POLY", n.prefix),
+            n.input,
+        );
+        let body = match n.curve {
+            Curve::Table { .. } => format!("        // The first breakpoint above the input, kept to 1 .. n - 1 so the end\n        // segments extend beyond the table.\n        let k = {t}_{input}\n            .partition_point(|&c| c <= {x})\n            .clamp(1, {t}_POINTS - 1);\n        let (x0, x1) = ({t}_{input}[k - 1], {t}_{input}[k]);\n        let (v0, v1) = ({t}_VALUE[k - 1], {t}_VALUE[k]);\n        v0 + ({x} - x0) * (v1 - v0) / (x1 - x0)\n"),
+            Curve::Polynomial { .. } => format!("        let u = ({x} - {q}_MID) / {q}_HALF;\n        {q}_COEFFICIENTS\n            .iter()\n            .rev()\n            .fold(0.0, |acc, c| acc * u + c)\n"),
+        };
+        out.push_str(&format!(
+            "    /// {} [{}] of `{x}` [{}].\n    pub fn {}({x}: f64) -> f64 {{\n{body}    }}\n\n",
+            capitalised(&n.what),
+            n.out_unit,
+            n.in_unit,
+            n.function
+        ));
+    }
+    if chain.junction.is_some() {
+        let u = &chain.unit;
+        out.push_str(&format!("    /// The reading [{u}] of one conversion result with the cold junction at\n    /// `cold_junction` [{u}].\n    pub fn reading(code: i64, cold_junction: f64) -> f64 {{\n        reading_mean(code as f64, cold_junction)\n    }}\n\n    /// The reading [{u}] of a code or the mean of several, with the cold\n    /// junction at `cold_junction` [{u}].\n    pub fn reading_mean(code: f64, cold_junction: f64) -> f64 {{\n        temperature_of_emf(emf(code) + junction_emf(cold_junction))\n    }}\n\n"));
+    }
+    out
+}
+
+fn capitalised(text: &str) -> String {
+    let mut chars = text.chars();
+    match chars.next() {
+        Some(c) => c.to_uppercase().chain(chars).collect(),
+        None => String::new(),
+    }
 }
 
 fn calibration_functions(chain: &ChainExport) -> String {
     let unit = &chain.unit;
     let Some(cal) = &chain.calibration else {
+        if chain.junction.is_some() {
+            return String::new();
+        }
         return format!("    /// The reading [{unit}] of one conversion result.\n    pub fn reading(code: i64) -> f64 {{\n        reading_uncalibrated(code as f64)\n    }}\n\n    /// The reading [{unit}] of a code or the mean of several.\n    pub fn reading_mean(code: f64) -> f64 {{\n        reading_uncalibrated(code)\n    }}\n\n");
     };
     let mut out = String::from("    /// A calibration: reading = gain * uncalibrated + offset.\n    #[derive(Clone, Copy, Debug, PartialEq)]\n    pub struct Calibration {\n        pub gain: f64,\n        pub offset: f64,\n    }\n\n    /// The nominal chain's calibration; replace with the one measured.\n    pub const CALIBRATION_NOMINAL: Calibration = Calibration {\n        gain: CALIBRATION_NOMINAL_GAIN,\n        offset: CALIBRATION_NOMINAL_OFFSET,\n    };\n\n");
