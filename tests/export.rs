@@ -445,6 +445,20 @@ fn a_spec_is_never_overwritten() {
     }
     assert_eq!(std::fs::read(&spec).expect("spec"), before);
     assert!(!dir.join("b.catena").exists());
+    // A header and its source are written together or not at all.
+    std::fs::write(dir.join("fw.c"), "/* kept */\n").expect("source");
+    let mut mode = std::fs::metadata(dir.join("fw.c"))
+        .expect("meta")
+        .permissions();
+    mode.set_readonly(true);
+    std::fs::set_permissions(dir.join("fw.c"), mode).expect("read-only");
+    let run = catena(
+        &dir,
+        &["export", "a.catena", "--lang", "c", "-o", "fw"],
+        None,
+    );
+    assert_eq!(run.status, 2, "{}", run.stderr);
+    assert!(!dir.join("fw.h").exists(), "no header without its source");
     // C needs somewhere to put its two files.
     let run = catena(&dir, &["export", "a.catena", "--lang", "c"], None);
     assert_eq!(run.status, 2);

@@ -154,6 +154,14 @@ fn write(export: &Export, lang: Lang, outputs: &Outputs) -> u8 {
         (Lang::Rust, o) => vec![(o.as_ref().map(|o| &o.0), render_rust(export))],
         (_, o) => vec![(o.as_ref().map(|o| &o.0), render_json(export))],
     };
+    // A header and a source are replaced together or not at all: what
+    // would refuse one is found before either is written.
+    for path in files.iter().filter_map(|f| f.0) {
+        if let Err(e) = writable(path) {
+            errln!("catena: {e}");
+            return EXIT_USAGE;
+        }
+    }
     for (path, text) in files {
         match path {
             Some(p) => {
@@ -166,6 +174,29 @@ fn write(export: &Export, lang: Lang, outputs: &Outputs) -> u8 {
         }
     }
     EXIT_OK
+}
+
+/// Whether `path` can be written: its folder exists and, when it exists,
+/// it is writable (what `write_atomic` would refuse, checked early).
+fn writable(path: &Path) -> Result<(), String> {
+    let folder = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    if !folder.is_dir() {
+        return Err(format!(
+            "cannot write `{}`: the folder `{}` does not exist",
+            path.display(),
+            folder.display()
+        ));
+    }
+    match std::fs::metadata(path) {
+        Ok(m) if m.permissions().readonly() => Err(format!(
+            "refusing to replace `{}`: it is not writable by you",
+            path.display()
+        )),
+        _ => Ok(()),
+    }
 }
 
 /// Every chain, or the one named.

@@ -449,14 +449,12 @@ fn target(chain: &Chain, samples: &[f64], truth: &[f64]) -> (f64, String) {
         .find(|r| r.kind == "accuracy")
         .and_then(|r| match &r.value {
             ParamValue::Limit(t) if t.basis == Basis::Reading => {
-                // The tightest: at the range end nearest the unit's zero.
+                // The tightest: at the range end nearest the unit's zero;
+                // none where the range holds the zero (the half-LSB basis).
                 let m = chain.measurand.as_ref()?;
-                let (a, b) = (
-                    from_si(m.low, &m.unit).abs(),
-                    from_si(m.high, &m.unit).abs(),
-                );
-                let limit = t.plus.max(t.minus) * a.min(b);
-                (limit > 0.0).then_some(limit)
+                let (a, b) = (from_si(m.low, &m.unit), from_si(m.high, &m.unit));
+                let limit = t.plus.max(t.minus) * a.abs().min(b.abs());
+                (a * b > 0.0 && limit > 0.0).then_some(limit)
             }
             ParamValue::Limit(t) => Some(t.plus.max(t.minus) * factor),
             _ => None,
