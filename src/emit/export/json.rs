@@ -123,7 +123,7 @@ fn origin_text(o: &Origin) -> String {
 fn junction(c: &ChainExport) -> Option<JunctionJson<'_>> {
     let j = c.junction.as_ref()?;
     Some(JunctionJson {
-        couple: j.couple.to_string(),
+        couple: format!("type {}", j.couple),
         junction_emf: table_json(&j.junction_emf),
         temperature: table_json(&j.temperature),
         range: [j.junction_range.0, j.junction_range.1],

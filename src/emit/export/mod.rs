@@ -208,8 +208,8 @@ pub fn named_curves(chain: &ChainExport) -> Vec<NamedCurve<'_>> {
     };
     let mut out = vec![
         named("EMF_", "CODE", "emf", &j.emf, "code", "mV", "the couple's voltage the code stands for, with the cold junction at the reference ambient: E(t) - E(t_reference)"),
-        named("JUNCTION_", "TEMPERATURE", "junction_emf", &j.junction_emf, &unit, "mV", &format!("the EMF of the cold junction's temperature, E(t_junction), {} reference function", j.couple)),
-        named("TEMPERATURE_", "EMF", "temperature_of_emf", &j.temperature, "mV", &unit, &format!("the temperature of an EMF, {} inverse", j.couple)),
+        named("JUNCTION_", "TEMPERATURE", "junction_emf", &j.junction_emf, &unit, "mV", &format!("the EMF of the cold junction's temperature, E(t_junction), by the type {} reference function (ITS-90, NIST Monograph 175)", j.couple)),
+        named("TEMPERATURE_", "EMF", "temperature_of_emf", &j.temperature, "mV", &unit, &format!("the temperature of an EMF, by the type {} reference function inverted", j.couple)),
     ];
     if let Some(cj) = &j.cj {
         out.push(named(
