@@ -20,7 +20,9 @@ use crate::units::ZERO_CELSIUS_K;
 /// junction reading off by its tolerances still falls inside.
 const JUNCTION_MARGIN_K: f64 = 10.0;
 /// Junction temperatures the composite error is evaluated at.
-pub const JUNCTION_SAMPLES: usize = 5;
+const JUNCTION_SAMPLES: usize = 5;
+/// Codes it is evaluated at, at each (evenly spread over the window's).
+const JUNCTION_CODES: usize = 8193;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Junction {
@@ -92,27 +94,74 @@ fn out_of_range(plan: &Plan, what: &str) -> EvalError {
     }
 }
 
-/// The three tables, sized together, and the junction's own conversion.
-pub fn junction(i: &Inputs) -> Result<Junction, EvalError> {
+/// The composite's largest error against the exact inverse.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Worst {
+    pub error: f64,
+    /// Where: the code, and the junction (reading unit).
+    pub code: f64,
+    pub junction: f64,
+    /// Points it was evaluated at.
+    pub points: usize,
+}
+
+/// The exact readings the composite is held to: (code, junction K) and
+/// the reading there (reading unit).
+struct Truth {
+    points: Vec<(f64, f64)>,
+    values: Vec<f64>,
+}
+
+impl Truth {
+    fn new(i: &Inputs, exact: &Exact) -> Result<Truth, EvalError> {
+        // The composite is smooth in the code: a spread of codes will do.
+        let step = i.samples.len().div_ceil(JUNCTION_CODES).max(1);
+        let mut codes: Vec<f64> = i.samples.iter().step_by(step).copied().collect();
+        if codes.last() != i.samples.last() {
+            codes.extend(i.samples.last());
+        }
+        let points: Vec<(f64, f64)> = junction_grid(i.plan, i.ambient)
+            .into_iter()
+            .flat_map(|cj| codes.iter().map(move |&c| (c, cj)))
+            .collect();
+        let values = points
+            .iter()
+            .map(|&(c, cj)| exact.reading_at_junction(c, cj).map(i.to_unit))
+            .collect::<Result<_, _>>()?;
+        Ok(Truth { points, values })
+    }
+
+    /// The largest difference of `j` from the truth: (error, code,
+    /// junction in the reading unit).
+    fn worst(&self, j: &Junction, to_unit: &dyn Fn(f64) -> f64) -> (f64, f64, f64) {
+        let mut worst = (0.0, self.points[0].0, to_unit(self.points[0].1));
+        for (&(c, cj), &want) in self.points.iter().zip(&self.values) {
+            let d = (j.reading(c, to_unit(cj)) - want).abs();
+            if d > worst.0 {
+                worst = (d, c, to_unit(cj));
+            }
+        }
+        worst
+    }
+}
+
+/// The three tables, sized together, and the junction's own conversion;
+/// with the composite's largest error against the exact inverse, where it
+/// is (code, junction in the reading unit) and how many points it was
+/// evaluated at.
+pub fn junction(i: &Inputs) -> Result<(Junction, Worst), EvalError> {
     let plan = i.plan;
     let exact = Exact::new(plan, i.conversion)?;
-    let reference = plan.reference;
     let e = |t_k: f64| {
         thermocouple::emf_mv(i.couple, t_k - ZERO_CELSIUS_K)
             .map_err(|_| out_of_range(plan, "a temperature beyond the couple's EMF function"))
     };
-    let e_ref = e(reference)?;
+    let e_ref = e(plan.reference)?;
     let junction_k = junction_span(plan, i.ambient);
-    let junctions = junction_grid(plan, i.ambient);
-    // The truth at every sampled code and junction.
-    let mut truth = Vec::with_capacity(i.samples.len() * junctions.len());
-    for &cj in &junctions {
-        for &c in i.samples {
-            truth.push((i.to_unit)(exact.reading_at_junction(c, cj)?));
-        }
-    }
-    let volts =
-        |c: f64| -> Result<f64, EvalError> { Ok(e(exact.at_junction(c, reference)?)? - e_ref) };
+    let truth = Truth::new(i, &exact)?;
+    let volts = |c: f64| -> Result<f64, EvalError> {
+        Ok(e(exact.at_junction(c, plan.reference)?)? - e_ref)
+    };
     let (v_lo, v_hi) = (volts(i.window.low as f64)?, volts(i.window.high as f64)?);
     let (j_lo, j_hi) = (e(junction_k.0)?, e(junction_k.1)?);
     let emf_span = (
@@ -122,65 +171,40 @@ pub fn junction(i: &Inputs) -> Result<Junction, EvalError> {
     let to_unit = i.to_unit;
     let build = |n: usize| -> Result<Junction, EvalError> {
         let codes = crate::eval::grid((i.window.low as f64, i.window.high as f64), n);
-        let emf = table(codes, volts)?;
-        let temps = crate::eval::grid(junction_k, n);
-        let junction_emf = table_mapped(&temps, to_unit, e)?;
-        let emfs = crate::eval::grid(emf_span, n);
         let t_of = |mv: f64| {
             thermocouple::temperature_c(i.couple, mv)
                 .map(|t| to_unit(t + ZERO_CELSIUS_K))
                 .map_err(|_| out_of_range(plan, "an EMF beyond the couple's inverse function"))
         };
-        let temperature = table(emfs, t_of)?;
         Ok(Junction {
             couple: i.couple,
-            emf,
-            junction_emf,
-            temperature,
+            emf: table(codes, volts)?,
+            junction_emf: table_mapped(&crate::eval::grid(junction_k, n), to_unit, e)?,
+            temperature: table(crate::eval::grid(emf_span, n), t_of)?,
             junction_range: (to_unit(junction_k.0), to_unit(junction_k.1)),
             cj: None,
         })
     };
-    let error_of = |j: &Junction| {
-        let points: Vec<(f64, f64)> = junctions
-            .iter()
-            .flat_map(|&cj| i.samples.iter().map(move |&c| (c, cj)))
-            .collect();
-        let keys: Vec<f64> = (0..points.len()).map(|k| k as f64).collect();
-        largest_error(&keys, &truth, |k| {
-            let (c, cj) = points[k as usize];
-            j.reading(c, to_unit(cj))
-        })
-        .0
-    };
+    let error_of = |j: &Junction| truth.worst(j, to_unit).0;
     let mut junction = chosen_size(i.window, i.target, build, error_of)?;
     if let Some(node) = i.cj {
         // Judged over the ambient range, where the junction sits.
-        let ambient = (i.ambient.0.min(reference), i.ambient.1.max(reference));
+        let ambient = (
+            i.ambient.0.min(plan.reference),
+            i.ambient.1.max(plan.reference),
+        );
         junction.cj = Some(cold_junction_conversion(
             plan, node, ambient, i.target, to_unit,
         )?);
     }
-    Ok(junction)
-}
-
-/// The composite's largest error against the exact inverse over the
-/// samples and the junction range, and where: (error, code, junction in
-/// the reading unit).
-pub fn composite_error(i: &Inputs, junction: &Junction) -> Result<(f64, f64, f64), EvalError> {
-    let exact = Exact::new(i.plan, i.conversion)?;
-    let mut worst = (0.0, i.samples[0], junction.junction_range.0);
-    for cj in junction_grid(i.plan, i.ambient) {
-        let cj_unit = (i.to_unit)(cj);
-        for &c in i.samples {
-            let want = (i.to_unit)(exact.reading_at_junction(c, cj)?);
-            let d = (junction.reading(c, cj_unit) - want).abs();
-            if d > worst.0 {
-                worst = (d, c, cj_unit);
-            }
-        }
-    }
-    Ok(worst)
+    let (error, code, cj) = truth.worst(&junction, to_unit);
+    let worst = Worst {
+        error,
+        code,
+        junction: cj,
+        points: truth.points.len(),
+    };
+    Ok((junction, worst))
 }
 
 /// The junction temperatures the composite is judged at, K.

@@ -9,9 +9,7 @@
 //! `kg`); errors in its difference unit (`K`). Fault thresholds join the
 //! window here once the fault analysis places each fault's code.
 
-use super::junction::{
-    composite_error, junction, measuring_couple, Inputs, Junction, JUNCTION_SAMPLES,
-};
+use super::junction::{junction, measuring_couple, Inputs, Junction};
 use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
 use crate::analysis::window::{code_window, CodeWindow};
@@ -254,9 +252,12 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         to_unit: &to_unit,
         ambient: chain.ambient,
     });
-    let junction = match &inputs {
-        Some(i) if with_junction => Some(junction(i)?),
-        _ => None,
+    let (junction, worst) = match &inputs {
+        Some(i) if with_junction => {
+            let (j, worst) = junction(i)?;
+            (Some(j), Some(worst))
+        }
+        _ => (None, None),
     };
     let (curve, origin) = match (&junction, spec_curve(conversion, &to_unit)) {
         (Some(j), _) => (j.emf.clone(), Origin::Chosen),
@@ -295,14 +296,13 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
     for a in &mut export.alarms {
         a.trips_upward = (a.side == "high") == export.rising;
     }
-    match (&export.junction, &inputs) {
-        (Some(j), Some(i)) => {
-            let (error, code, cj) = composite_error(i, j)?;
-            (export.max_error, export.max_error_at) = (error, code);
-            export.max_error_junction = Some(cj);
-            export.samples *= JUNCTION_SAMPLES;
+    match worst {
+        Some(w) => {
+            (export.max_error, export.max_error_at) = (w.error, w.code);
+            export.max_error_junction = Some(w.junction);
+            export.samples = w.points;
         }
-        _ => {
+        None => {
             (export.max_error, export.max_error_at) =
                 largest_error(&samples, &truth, |c| export.reading(c));
         }
