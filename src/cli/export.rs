@@ -9,12 +9,11 @@ use clap::{Args, ValueEnum};
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::eval_finding;
-use crate::diagnostics::{render_human, Findings};
+use crate::diagnostics::{did_you_mean, render_human, Findings};
 use crate::emit::export::{
     chain_export, render_c, render_json, render_rust, Export, ExportError, Provenance,
 };
-use crate::eval::lower;
-use crate::model::{did_you_mean, Chain};
+use crate::model::Chain;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum Lang {
@@ -67,7 +66,7 @@ pub fn run(args: ExportArgs) -> u8 {
     };
     let mut exports = Vec::new();
     for chain in chains {
-        match export_chain(chain) {
+        match export_chain(&checked, chain) {
             Ok(e) => exports.push(e),
             Err(status) => return status,
         }
@@ -82,9 +81,13 @@ pub fn run(args: ExportArgs) -> u8 {
     write(&export, args.lang, &outputs)
 }
 
-/// One chain's export, or the status its failure earns (reported).
-fn export_chain(chain: &Chain) -> Result<crate::emit::export::ChainExport, u8> {
-    let plan = lower(chain).map_err(|e| report_one(chain, &e))?;
+/// One chain's export, or the status its failure earns (reported), from
+/// the plan the check built.
+fn export_chain(
+    checked: &crate::check::CheckedFile,
+    chain: &Chain,
+) -> Result<crate::emit::export::ChainExport, u8> {
+    let plan = checked.plan(chain).map_err(|e| report_one(chain, &e))?;
     chain_export(chain, &plan).map_err(|e| match e {
         ExportError::Eval(e) => report_one(chain, &e),
         ExportError::Unsupported { stage, input } => {
