@@ -107,9 +107,9 @@ fn noise_codes(chain: &Chain, plan: &Plan) -> Result<f64, EvalError> {
 #[cfg(test)]
 mod tests {
     use super::code_window;
-    use crate::check::check_bytes;
     use crate::eval::lower;
-    use crate::model::PartsCache;
+    use crate::model::{resolve, PartsCache};
+    use crate::syntax::{decode, parse};
 
     /// A linear sensor, 0.5 V + 10 mV/K from 0 to 100 degC, read by a
     /// 12-bit single-ended converter on a 2.5 V ± 0.1 % reference with
@@ -139,14 +139,15 @@ chain win "Window by hand" {
     s -> conv -> reading
 }
 "#;
-        let checked = check_bytes(
-            "win.catena",
-            spec.as_bytes(),
-            std::path::Path::new("."),
-            &mut PartsCache::default(),
-        );
-        assert!(!checked.findings.has_errors(), "{:?}", checked.findings);
-        let chain = &checked.chains[0];
+        // Resolved by the front end's stages (the checker itself sits above
+        // the analyses).
+        let file = decode("win.catena", spec.as_bytes()).expect("text");
+        let (ast, findings) = parse(&file);
+        assert!(!findings.has_errors(), "{findings:?}");
+        let base = std::path::Path::new(".");
+        let (chains, findings) = resolve(&file, &ast, base, None, &mut PartsCache::default());
+        assert!(!findings.has_errors(), "{findings:?}");
+        let chain = &chains[0];
         let plan = lower(chain).expect("the chain lowers");
         let w = code_window(chain, &plan).expect("a window");
         let low = 0.5 / (2.5 * 1.001) * 4096.0;
