@@ -265,10 +265,11 @@ fn check_lines(what: &str, program: &Path, lines: &[Line], want: &[f64], bound: 
 
 #[test]
 fn exports_compile_and_reproduce_catena_readings() {
-    let mut exported = 0;
+    let (mut exported, mut total) = (0, 0);
     for spec in demo_specs() {
         let rel = relative(&spec);
         for chain in chains(&spec) {
+            total += 1;
             let name = chain.name.clone();
             let json = export(&["export", &rel, "--chain", &name, "--lang", "json"]);
             assert_eq!(json.status, 0, "{rel} {name}: {}", json.stderr);
@@ -364,7 +365,8 @@ fn exports_compile_and_reproduce_catena_readings() {
             exported += 1;
         }
     }
-    assert_eq!(exported, 13, "every demo chain exports");
+    assert_eq!(exported, total, "every demo chain exports");
+    assert!(total >= 13, "only {total} demo chains");
 }
 
 #[test]

@@ -6,7 +6,7 @@
 
 use super::stages::{low_pass, number, signal_path, stage};
 use super::step::{Averaging, StepModel};
-use crate::eval::{Node, Plan, Senses};
+use crate::eval::{node, Node, Plan, Senses};
 use crate::model::Chain;
 use crate::physics::filter::LowPass;
 
@@ -98,8 +98,8 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
             continue;
         };
         match &plan.nodes[n] {
-            Node::Filter { .. } => filter = filter.or_else(|| low_pass(s)),
-            Node::Adc { .. } => {
+            Node::Filter(_) => filter = filter.or_else(|| low_pass(s)),
+            Node::Adc(_) => {
                 rate_hz = number(s, "rate");
                 notch_hz = number(s, "notch");
             }
@@ -139,7 +139,7 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
     d.response_90 = d.time_to_fraction(0.9);
     d.mains = MAINS_HZ.iter().map(|&f| (f, d.attenuation(f))).collect();
     let bits = match &plan.nodes[plan.adc] {
-        Node::Adc { bits, .. } => *bits,
+        Node::Adc(node::Adc { bits, .. }) => *bits,
         _ => 16,
     };
     d.filter_settling_half_lsb = d
@@ -159,12 +159,12 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
 
 fn sensor_senses_measurand(plan: &Plan, node: usize) -> bool {
     match &plan.nodes[node] {
-        Node::Rtd { senses, .. }
-        | Node::Thermocouple { senses, .. }
-        | Node::Thermistor { senses, .. }
-        | Node::IcVoltage { senses, .. }
-        | Node::IcCurrent { senses, .. } => *senses == Senses::Measurand,
-        Node::StrainGauge { .. } | Node::Transducer { .. } => true,
+        Node::Rtd(node::Rtd { senses, .. })
+        | Node::Thermocouple(node::Thermocouple { senses, .. })
+        | Node::Thermistor(node::Thermistor { senses, .. })
+        | Node::IcVoltage(node::IcVoltage { senses, .. })
+        | Node::IcCurrent(node::IcCurrent { senses, .. }) => *senses == Senses::Measurand,
+        Node::StrainGauge(_) | Node::Transducer(_) => true,
         _ => false,
     }
 }

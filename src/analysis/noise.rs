@@ -5,7 +5,7 @@
 //! converter's own noise, over the chain's equivalent noise bandwidth.
 
 use super::stages::{low_pass, number, signal_path, stage};
-use crate::eval::{Env, Node, Plan, Signal};
+use crate::eval::{node, Env, Node, Plan, Signal};
 use crate::model::value::ParamValue;
 use crate::model::Chain;
 use crate::physics::noise::{johnson_voltage_density, rms_with_flicker};
@@ -62,12 +62,12 @@ pub fn enbw(chain: &Chain, plan: &Plan) -> Option<f64> {
             continue;
         };
         match &plan.nodes[n] {
-            Node::Filter { .. } => {
+            Node::Filter(_) => {
                 if let Some(lp) = low_pass(s) {
                     narrow(&mut bw, lp.enbw_hz());
                 }
             }
-            Node::Adc { .. } => {
+            Node::Adc(_) => {
                 if let Some(rate) = number(s, "rate") {
                     narrow(&mut bw, rate / 2.0);
                 }
@@ -77,7 +77,7 @@ pub fn enbw(chain: &Chain, plan: &Plan) -> Option<f64> {
     }
     if bw.is_none() {
         for &n in &path {
-            if let (Node::Amplifier { .. }, Some(s)) = (&plan.nodes[n], stage(chain, plan, n)) {
+            if let (Node::Amplifier(_), Some(s)) = (&plan.nodes[n], stage(chain, plan, n)) {
                 if let Some(b) = number(s, "bandwidth") {
                     narrow(&mut bw, std::f64::consts::FRAC_PI_2 * b);
                 }
@@ -131,7 +131,7 @@ fn thermal_term(
 fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTerm> {
     let mut out = Vec::new();
     for (i, node) in plan.nodes.iter().enumerate() {
-        let Node::Excitation { value, .. } = node else {
+        let Node::Excitation(node::Excitation { value, .. }) = node else {
             continue;
         };
         let Some(s) = stage(chain, plan, i) else {
@@ -185,7 +185,7 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
             continue;
         };
         match &plan.nodes[n] {
-            Node::Adc { input, .. } => {
+            Node::Adc(node::Adc { input, .. }) => {
                 if let Some(ParamValue::Limit(t)) = s.param("noise") {
                     // In `LSB`: one code at the input is `lsb` (measurand
                     // per code) times `slope` (volts per measurand).
@@ -201,7 +201,7 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
                 }
                 terms.extend(thermal_term(&s.name, &signals, *input, env, enbw_hz, 1.0));
             }
-            Node::Amplifier { gain, input, .. } => {
+            Node::Amplifier(node::Amplifier { gain, input, .. }) => {
                 gain_after *= plan.nominal[*gain];
                 let rs = source_resistance(&signals, *input);
                 if let Some(bw) = enbw_hz {

@@ -13,7 +13,7 @@ use rayon::prelude::*;
 
 use super::budget::conditions;
 use crate::eval::{
-    BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
+    node, BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
     MAX_NODES,
 };
 use crate::model::Chain;
@@ -165,7 +165,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
     };
     for (i, node) in plan.nodes.iter().enumerate() {
         match node {
-            Node::Amplifier { .. } => {
+            Node::Amplifier(_) => {
                 if let Some(r) = range(i, "input") {
                     out.push(Check {
                         node: i,
@@ -183,13 +183,13 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     });
                 }
             }
-            Node::Adc {
+            Node::Adc(node::Adc {
                 polarity,
                 bits,
                 input,
                 differential,
                 ..
-            } => {
+            }) => {
                 let allowed = match polarity {
                     Polarity::Unipolar => (0.0, 1.0),
                     Polarity::Bipolar => (-1.0, 1.0),
@@ -227,7 +227,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     });
                 }
             }
-            Node::Excitation { current: true, .. } => {
+            Node::Excitation(node::Excitation { current: true, .. }) => {
                 if let Some(r) = range(i, "compliance") {
                     out.push(Check {
                         node: i,
@@ -237,7 +237,7 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     });
                 }
             }
-            Node::Excitation { current: false, .. } => {
+            Node::Excitation(node::Excitation { current: false, .. }) => {
                 if let Some(r) = range(i, "limit") {
                     out.push(Check {
                         node: i,
@@ -247,7 +247,8 @@ fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
                     });
                 }
             }
-            Node::Rtd { input: Some(_), .. } | Node::Thermistor { input: Some(_), .. } => {
+            Node::Rtd(node::Rtd { input: Some(_), .. })
+            | Node::Thermistor(node::Thermistor { input: Some(_), .. }) => {
                 if let Some(r) = range(i, "max_current") {
                     out.push(Check {
                         node: i,
@@ -271,20 +272,22 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
         _ => 0.0,
     };
     match (&plan.nodes[check.node], check.limit) {
-        (Node::Amplifier { input, .. }, Limit::AmplifierInput) => match s[*input] {
-            Signal::Voltage { cm, .. } => cm,
-            _ => 0.0,
-        },
-        (Node::Amplifier { .. }, _) => voltage(check.node),
-        (Node::Adc { .. }, Limit::ConverterReference) => plan
+        (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) => {
+            match s[*input] {
+                Signal::Voltage { cm, .. } => cm,
+                _ => 0.0,
+            }
+        }
+        (Node::Amplifier(_), _) => voltage(check.node),
+        (Node::Adc(_), Limit::ConverterReference) => plan
             .converter_reference(check.node, values, env, s)
             .unwrap_or(0.0),
         (
-            Node::Adc {
+            Node::Adc(node::Adc {
                 input,
                 differential,
                 ..
-            },
+            }),
             Limit::ConverterPin(pin),
         ) => match s[*input] {
             // A single-ended input is the one pin above the converter's
@@ -296,11 +299,11 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
             },
             _ => 0.0,
         },
-        (Node::Adc { input, .. }, Limit::ConverterSettling) => match s[*input] {
+        (Node::Adc(node::Adc { input, .. }), Limit::ConverterSettling) => match s[*input] {
             Signal::Voltage { rs, .. } => rs,
             _ => 0.0,
         },
-        (Node::Adc { bits, polarity, .. }, _) => {
+        (Node::Adc(node::Adc { bits, polarity, .. }), _) => {
             let per_ref = match polarity {
                 Polarity::Unipolar => 2f64.powi(*bits as i32),
                 Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
@@ -310,7 +313,7 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                 _ => 0.0,
             }
         }
-        (Node::Excitation { .. }, Limit::Compliance) => {
+        (Node::Excitation(_), Limit::Compliance) => {
             // The string's voltage, plus the current-carrying leads of
             // 3- and 4-wire elements, which the measurement does not see.
             let current = match s[check.node] {
@@ -322,19 +325,21 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                 .enumerate()
                 .filter_map(|(n, node)| {
                     let driven = match node {
-                        Node::Rtd { input, .. }
-                        | Node::Thermistor { input, .. }
-                        | Node::StrainGauge { input, .. }
-                        | Node::Resistor { input, .. } => *input == Some(check.node),
+                        Node::Rtd(node::Rtd { input, .. })
+                        | Node::Thermistor(node::Thermistor { input, .. })
+                        | Node::StrainGauge(node::StrainGauge { input, .. })
+                        | Node::Resistor(node::Resistor { input, .. }) => {
+                            *input == Some(check.node)
+                        }
                         _ => false,
                     };
                     driven.then(|| {
                         let leads = match node {
-                            Node::Rtd {
+                            Node::Rtd(node::Rtd {
                                 leads: Some((a, b)),
                                 wiring,
                                 ..
-                            } => {
+                            }) => {
                                 let (a, b) = (values[*a], values[*b]);
                                 let unseen = crate::physics::rtd::lead_loop_resistance(a, b)
                                     - crate::physics::rtd::lead_series_resistance(*wiring, a, b);
@@ -347,14 +352,14 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                 })
                 .sum()
         }
-        (Node::Excitation { .. }, _) => {
+        (Node::Excitation(_), _) => {
             let v = voltage(check.node);
             plan.nodes
                 .iter()
                 .map(|node| match node {
-                    Node::Bridge {
+                    Node::Bridge(node::Bridge {
                         exc, kind, r, arms, ..
-                    } if *exc == check.node => {
+                    }) if *exc == check.node => {
                         let fixed = r.map(|r| values[r]).unwrap_or(0.0);
                         let arm = |k: usize| match arms.get(k).map(|&a| s[a]) {
                             Some(Signal::Element(r)) => r,
@@ -375,21 +380,23 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                             0.0
                         }
                     }
-                    Node::Transducer {
+                    Node::Transducer(node::Transducer {
                         input: Some(i),
                         r: Some(r),
                         ..
-                    } if *i == check.node => v / values[*r],
+                    }) if *i == check.node => v / values[*r],
                     _ => 0.0,
                 })
                 .sum()
         }
-        (Node::Rtd { input: Some(i), .. } | Node::Thermistor { input: Some(i), .. }, _) => {
-            match s[*i] {
-                Signal::Current(a) => a,
-                _ => 0.0,
-            }
-        }
+        (
+            Node::Rtd(node::Rtd { input: Some(i), .. })
+            | Node::Thermistor(node::Thermistor { input: Some(i), .. }),
+            _,
+        ) => match s[*i] {
+            Signal::Current(a) => a,
+            _ => 0.0,
+        },
         _ => 0.0,
     }
 }
@@ -492,11 +499,13 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
 /// The thermocouple right at amplifier `node`'s input, by name, when it
 /// has no bias: the one floating source a `bias_voltage` moves.
 fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
-    let Node::Amplifier { input, .. } = plan.nodes[node] else {
+    let Node::Amplifier(node::Amplifier { input, .. }) = plan.nodes[node] else {
         return None;
     };
     match plan.nodes[input] {
-        Node::Thermocouple { bias: None, .. } => Some(plan.names[input].as_str()),
+        Node::Thermocouple(node::Thermocouple { bias: None, .. }) => {
+            Some(plan.names[input].as_str())
+        }
         _ => None,
     }
 }
@@ -667,16 +676,16 @@ pub fn findings(
                 }
             }
         }
-        if let (Node::Amplifier { input, .. }, Limit::AmplifierInput) =
+        if let (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) =
             (&plan.nodes[e.node], e.limit)
         {
             if let Some(driver) = chain.stages.iter().find(|s| s.name == plan.names[*input]) {
                 f = f.label(driver.name_span, "sets its input common mode");
             }
         }
-        if let Node::Adc {
+        if let Node::Adc(node::Adc {
             reference: Some(r), ..
-        } = plan.nodes[e.node]
+        }) = plan.nodes[e.node]
         {
             if let (Limit::ConverterReference, Some(driver)) = (
                 e.limit,

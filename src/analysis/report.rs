@@ -10,7 +10,7 @@ use super::ranges::{envelopes, Envelope};
 use super::requirements::{verdicts, Achieved, Verdict};
 use super::validation::{check, GumCheck};
 use crate::diagnostics::{Code, Finding, Findings};
-use crate::eval::{Calibration, Node};
+use crate::eval::{node, Calibration, Node};
 use crate::eval::{Env, EvalError, Plan};
 use crate::model::Chain;
 use crate::units::format::{from_si, trimmed};
@@ -241,9 +241,11 @@ fn add_detail(
         });
     analysis.accumulation = accumulation(plan, &worst)?;
     analysis.uncalibrated = match &plan.nodes[plan.reading] {
-        Node::Convert { conversion, .. } if conversion.calibration != Calibration::None => {
+        Node::Convert(node::Convert { conversion, .. })
+            if conversion.calibration != Calibration::None =>
+        {
             let mut bare = plan.clone();
-            if let Node::Convert { conversion, .. } = &mut bare.nodes[bare.reading] {
+            if let Node::Convert(node::Convert { conversion, .. }) = &mut bare.nodes[bare.reading] {
                 conversion.calibration = Calibration::None;
             }
             let b = budget::budget(chain, &bare, &options.budget)?;

@@ -6,7 +6,7 @@
 
 use super::ranges::{Envelope, Limit};
 use crate::diagnostics::{Code, Finding, Findings};
-use crate::eval::{Node, NodeId, Plan};
+use crate::eval::{node, Node, NodeId, Plan};
 use crate::model::value::ParamValue;
 use crate::model::Chain;
 use crate::physics::sampling::{
@@ -33,7 +33,7 @@ impl Sampling {
     /// its own (or drives it from an output this model does not know), so
     /// there the check does not apply.
     pub fn of(chain: &Chain, plan: &Plan, node: NodeId, bits: u32, input: NodeId) -> Option<Self> {
-        if matches!(plan.nodes[input], Node::Filter { .. }) {
+        if matches!(plan.nodes[input], Node::Filter(_)) {
             return None;
         }
         let stage = chain.stages.iter().find(|s| s.name == plan.names[node])?;
@@ -74,7 +74,7 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
         .iter()
         .filter(|e| e.limit == Limit::ConverterSettling)
     {
-        let Node::Adc { bits, input, .. } = plan.nodes[e.node] else {
+        let Node::Adc(node::Adc { bits, input, .. }) = plan.nodes[e.node] else {
             continue;
         };
         let Some(sampling) = Sampling::of(chain, plan, e.node, bits, input) else {

@@ -1,7 +1,7 @@
 //! Reading stage parameters that are not error sources (noise densities,
 //! bandwidths, time constants) from the checked chain, by plan node.
 
-use crate::eval::{Node, NodeId, Plan};
+use crate::eval::{node, Node, NodeId, Plan};
 use crate::model::value::{Measure, ParamValue};
 use crate::model::{Chain, Stage};
 use crate::physics::filter::{rc_cascade_cutoff_hz, LowPass, Response};
@@ -49,10 +49,10 @@ pub fn signal_path(plan: &Plan, adc: NodeId) -> Vec<NodeId> {
     let mut at = adc;
     loop {
         let next = match &plan.nodes[at] {
-            Node::Adc { input, .. }
-            | Node::Amplifier { input, .. }
-            | Node::Filter { input, .. } => Some(*input),
-            Node::Bridge { exc, .. } => Some(*exc),
+            Node::Adc(node::Adc { input, .. })
+            | Node::Amplifier(node::Amplifier { input, .. })
+            | Node::Filter(node::Filter { input, .. }) => Some(*input),
+            Node::Bridge(node::Bridge { exc, .. }) => Some(*exc),
             _ => None,
         };
         match next {

@@ -12,7 +12,7 @@ use crate::analysis::{eval_finding, evaluable_part_of};
 use crate::check::CheckedFile;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
-use crate::eval::{lower, lower_unvalidated, Env, EvalError, Node, Plan, Signal};
+use crate::eval::{lower, lower_unvalidated, node, Env, EvalError, Node, Plan, Signal};
 use crate::model::Chain;
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
@@ -222,7 +222,7 @@ fn outside_range(chain: &Chain, plan: &Plan, signals: &[Signal], env: &Env) -> F
 /// the converter's rail, or the exact code standing still (a stage
 /// saturated before the converter). None where it still moves.
 fn stopped(plan: &Plan, env: &Env, code: i64) -> Option<String> {
-    if let Node::Adc { bits, polarity, .. } = &plan.nodes[plan.adc] {
+    if let Node::Adc(node::Adc { bits, polarity, .. }) = &plan.nodes[plan.adc] {
         if let Ok((low, high)) = crate::physics::adc::code_range(*bits, *polarity) {
             if code <= low || code >= high {
                 return Some(format!("the code is at the converter's rail ({code})"));
@@ -488,7 +488,7 @@ impl View<'_> {
             .map(|((name, s), node)| {
                 let (value, unit) = s.value_unit();
                 let unit = match (s, node) {
-                    (Signal::Reading(_), Node::Convert { conversion, .. }) => {
+                    (Signal::Reading(_), Node::Convert(node::Convert { conversion, .. })) => {
                         match conversion.variable {
                             crate::eval::Senses::ColdJunction => "K",
                             crate::eval::Senses::Measurand => self.si_unit(),
@@ -597,7 +597,7 @@ impl View<'_> {
             Signal::Voltage { v, cm, .. } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
             Signal::Code { code, .. } => (format!("{code} (code)"), String::new()),
             Signal::Reading(x) => {
-                let is_cj = matches!(&self.plan.nodes[i], Node::Convert { conversion, .. } if conversion.variable == crate::eval::Senses::ColdJunction);
+                let is_cj = matches!(&self.plan.nodes[i], Node::Convert(node::Convert { conversion, .. }) if conversion.variable == crate::eval::Senses::ColdJunction);
                 if is_cj {
                     (
                         format!("{} degC", significant(from_si(x, "degC"), 6)),

@@ -4,6 +4,7 @@
 use std::sync::Arc;
 
 use super::ports::Port;
+use super::typed::StageModel;
 use super::value::{ParamValue, ResolvedParam};
 use crate::diagnostics::{Cause, SourceFile, Span};
 use crate::syntax::ast::StageKind;
@@ -101,6 +102,8 @@ pub struct Stage {
     /// The model line's word (`rtd`, `divider`); None for kinds with one model.
     pub model: Option<&'static str>,
     pub params: Vec<ResolvedParam>,
+    /// The model with its parameters typed, when every line was accepted.
+    pub typed: Option<StageModel>,
     pub span: Span,
     /// Parameters written but rejected (already reported): present for
     /// the checks that ask whether something was given.

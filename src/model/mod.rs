@@ -11,6 +11,7 @@ pub mod schema;
 mod settings;
 mod stage;
 pub mod track;
+pub mod typed;
 pub mod value;
 
 use std::path::Path;

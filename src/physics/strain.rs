@@ -100,6 +100,22 @@ pub fn series_element_power_w(v: f64, r: f64, r_series: f64) -> f64 {
     current * current * r
 }
 
+/// Output resistance in Ω of a divider, `r_low` ∥ `r_high`; zero when both
+/// are zero.
+pub fn divider_output_resistance(r_low: f64, r_high: f64) -> f64 {
+    if r_low + r_high > 0.0 {
+        r_low * r_high / (r_low + r_high)
+    } else {
+        0.0
+    }
+}
+
+/// The voltage in V across a bridge a current source of `a` A drives: the
+/// current through its two sides in parallel, (r1 + r2) ∥ (r3 + r4).
+pub fn bridge_excitation_v(a: f64, r1: f64, r2: f64, r3: f64, r4: f64) -> f64 {
+    a * ((r1 + r2) * (r3 + r4) / (r1 + r2 + r3 + r4))
+}
+
 /// The two output node voltages (V_P, V_N) of the bridge, in V above 0 V.
 fn nodes(v_exc: f64, r1: f64, r2: f64, r3: f64, r4: f64) -> Res<(f64, f64)> {
     Ok((

@@ -65,11 +65,7 @@ pub struct ColdJunctionConversion {
 /// The couple that senses the measurand, when the chain has one.
 pub fn measuring_couple(plan: &Plan) -> Option<ThermocoupleType> {
     plan.nodes.iter().find_map(|n| match n {
-        Node::Thermocouple {
-            ty,
-            senses: crate::eval::Senses::Measurand,
-            ..
-        } => Some(*ty),
+        Node::Thermocouple(t) if t.senses == crate::eval::Senses::Measurand => Some(t.ty),
         _ => None,
     })
 }
@@ -248,13 +244,13 @@ fn cold_junction_conversion(
     target: f64,
     to_unit: &dyn Fn(f64) -> f64,
 ) -> Result<ColdJunctionConversion, EvalError> {
-    let Node::Convert { conversion, .. } = &plan.nodes[node] else {
+    let Node::Convert(crate::eval::node::Convert { conversion, .. }) = &plan.nodes[node] else {
         return Err(out_of_range(
             plan,
             "the cold junction's reading is no conversion",
         ));
     };
-    let Node::Adc { bits, polarity, .. } = &plan.nodes[conversion.adc] else {
+    let Node::Adc(adc) = &plan.nodes[conversion.adc] else {
         return Err(out_of_range(
             plan,
             "the cold junction's conversion has no converter",
@@ -303,8 +299,8 @@ fn cold_junction_conversion(
     Ok(ColdJunctionConversion {
         stage: plan.names[node].clone(),
         converter: plan.names[conversion.adc].clone(),
-        bits: *bits,
-        signed: *polarity == Polarity::Bipolar,
+        bits: adc.bits,
+        signed: adc.polarity == Polarity::Bipolar,
         curve,
         origin,
         max_error,

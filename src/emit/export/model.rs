@@ -14,6 +14,7 @@ use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
 use crate::analysis::window::{code_window, CodeWindow};
 use crate::eval::{Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan};
+use crate::model::typed::ConversionMethod;
 use crate::model::value::{Basis, ParamValue};
 use crate::model::Chain;
 use crate::physics::adc::Polarity;
@@ -207,7 +208,9 @@ impl From<EvalError> for ExportError {
 
 /// The export of `chain`, whose plan has its conversion fitted.
 pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportError> {
-    let Node::Convert { cj, conversion, .. } = &plan.nodes[plan.reading] else {
+    let Node::Convert(crate::eval::node::Convert { cj, conversion, .. }) =
+        &plan.nodes[plan.reading]
+    else {
         return Err(numeric(plan, "no conversion").into());
     };
     let couple = measuring_couple(plan);
@@ -224,7 +227,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         }
         _ => {}
     }
-    let Node::Adc { bits, polarity, .. } = &plan.nodes[plan.adc] else {
+    let Node::Adc(adc) = &plan.nodes[plan.adc] else {
         return Err(numeric(plan, "no converter").into());
     };
     let measurand = chain
@@ -276,8 +279,8 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         range: (to_unit(measurand.low), to_unit(measurand.high)),
         unit: unit.clone(),
         converter: plan.names[plan.adc].clone(),
-        bits: *bits,
-        signed: *polarity == Polarity::Bipolar,
+        bits: adc.bits,
+        signed: adc.polarity == Polarity::Bipolar,
         rising: exact.code_at(plan.range.1)? > exact.code_at(plan.range.0)?,
         average: average(chain, plan),
         curve,
@@ -321,7 +324,8 @@ pub fn exact_readings(
     codes: &[f64],
     junction: Option<f64>,
 ) -> Result<Vec<f64>, ExportError> {
-    let Node::Convert { conversion, .. } = &plan.nodes[plan.reading] else {
+    let Node::Convert(crate::eval::node::Convert { conversion, .. }) = &plan.nodes[plan.reading]
+    else {
         return Err(numeric(plan, "no conversion").into());
     };
     let unit = chain
@@ -365,7 +369,7 @@ impl<'a> Exact<'a> {
         let mut conversion = spec.clone();
         if conversion.method != Method::Exact {
             conversion
-                .fit(plan, &env, "exact", 0, true, None)
+                .fit(plan, &env, ConversionMethod::Exact, true, None)
                 .map_err(|what| EvalError::NotInvertible {
                     stage: plan.names[plan.reading].clone(),
                     what,
