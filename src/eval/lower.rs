@@ -9,6 +9,7 @@ use super::convert::Conversion;
 use super::node::{self, Cx, Inputs, Node};
 use super::plan::{Env, EvalError, NodeId, Plan, SenseError, Senses};
 use super::run::{within, MAX_NODES};
+use super::stated::Stated;
 use crate::model::ports::Port;
 use crate::model::typed::{ColdJunction, StageModel};
 use crate::model::{Chain, Measurand};
@@ -84,6 +85,10 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
         series_below,
         sense_error,
         groups: Vec::new(),
+        stated: order
+            .iter()
+            .map(|&s| Stated::of(&chain.stages[s]))
+            .collect(),
     };
     plan.groups = super::track::lower_groups(chain, &plan.nodes, &plan.slots, node_of);
     let fitted = fit_conversions(&mut plan);

@@ -13,6 +13,7 @@ mod lower;
 pub mod node;
 mod plan;
 mod run;
+mod stated;
 mod track;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, Method, TableUse};
@@ -23,4 +24,5 @@ pub use plan::{
     SourceKind,
 };
 pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};
+pub use stated::{Noise, NoiseBasis, SamplingInput, Stated};
 pub use track::{half_width, own_fraction, Group, GroupPart};

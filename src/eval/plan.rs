@@ -224,4 +224,7 @@ pub struct Plan {
     /// The common components of tracking groups, each moving several
     /// slots together.
     pub groups: Vec<super::track::Group>,
+    /// What each node's stage states beyond its error sources (limits,
+    /// noise, timing), by node.
+    pub stated: Vec<super::stated::Stated>,
 }

@@ -31,6 +31,14 @@ pub struct Chain {
 }
 
 impl Chain {
+    /// The measurand's unit as written (empty without a measurand).
+    pub fn measurand_unit(&self) -> String {
+        self.measurand
+            .as_ref()
+            .map(|m| m.unit.clone())
+            .unwrap_or_default()
+    }
+
     /// The unit errors are shown in (the measurand's difference unit: K
     /// for temperatures) and the factor from SI to it.
     pub fn difference_unit(&self) -> (String, f64) {
@@ -77,11 +85,8 @@ impl Measurand {
 
 #[derive(Clone, Debug)]
 pub struct Requirement {
-    /// `accuracy`, `resolution`, `response` or `rejection`.
-    pub kind: &'static str,
+    pub kind: super::RequirementKind,
     pub value: ParamValue,
-    /// `worst_case`, `gum` or `monte_carlo` for accuracy.
-    pub method: Option<String>,
     pub span: Span,
 }
 

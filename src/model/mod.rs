@@ -7,6 +7,7 @@ mod interpret;
 pub mod parts;
 mod parts_positions;
 pub mod ports;
+pub mod requirement;
 pub mod schema;
 mod settings;
 mod stage;
@@ -20,6 +21,7 @@ use std::sync::Arc;
 pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember};
 pub use graph::output_signals;
 pub use parts::PartsCache;
+pub use requirement::{AccuracyMethod, RequirementKind};
 pub use settings::DEFAULT_REFERENCE_K;
 
 use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile};
