@@ -65,7 +65,7 @@ pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> 
         .ok_or_else(|| numeric(plan, "no converter input envelope"))?;
     // The envelope is in fractions of the reference: back to codes.
     let reach = (envelope.reach.0 * per_ref, envelope.reach.1 * per_ref);
-    let sigma_codes = noise_codes(chain, plan)?;
+    let sigma_codes = noise_codes(plan)?;
     let widen = NOISE_K * sigma_codes;
     let code = |x: f64| (x.round() as i64).clamp(rails.0, rails.1);
     Ok(CodeWindow {
@@ -88,7 +88,7 @@ fn numeric(plan: &Plan, what: &str) -> EvalError {
 /// One conversion's noise σ in codes, the largest at the measurand
 /// range's ends and middle (at the reference): the noise the budget
 /// states, times the code's slope there.
-fn noise_codes(chain: &Chain, plan: &Plan) -> Result<f64, EvalError> {
+fn noise_codes(plan: &Plan) -> Result<f64, EvalError> {
     let (lo, hi) = plan.range;
     let mut sigma: f64 = 0.0;
     for m in [lo, 0.5 * (lo + hi), hi] {
@@ -98,7 +98,7 @@ fn noise_codes(chain: &Chain, plan: &Plan) -> Result<f64, EvalError> {
             cold_junction: plan.reference,
         };
         let (v_slope, c_slope) = budget::slopes(plan, &env)?;
-        let n = noise(chain, plan, &env, v_slope, budget::code_step(c_slope));
+        let n = noise(plan, &env, v_slope, budget::code_step(c_slope));
         sigma = sigma.max(n.sigma * c_slope.abs());
     }
     Ok(sigma)

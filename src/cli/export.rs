@@ -50,7 +50,7 @@ pub fn run(args: ExportArgs) -> u8 {
             return EXIT_USAGE;
         }
     };
-    let checked = match check_one(&args.spec) {
+    let checked = match check_one(&args.spec, crate::analysis::Keep::Plans) {
         Ok((c, _)) => c,
         Err(status) => return status,
     };

@@ -14,6 +14,7 @@ use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
 use crate::analysis::window::{code_window, CodeWindow};
 use crate::eval::{Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan};
+use crate::model::requirement::RequirementKind;
 use crate::model::typed::ConversionMethod;
 use crate::model::value::{Basis, ParamValue};
 use crate::model::Chain;
@@ -450,7 +451,7 @@ fn target(chain: &Chain, samples: &[f64], truth: &[f64]) -> (f64, String) {
     let accuracy = chain
         .requirements
         .iter()
-        .find(|r| r.kind == "accuracy")
+        .find(|r| matches!(r.kind, RequirementKind::Accuracy(_)))
         .and_then(|r| match &r.value {
             ParamValue::Limit(t) if t.basis == Basis::Reading => {
                 // The tightest: at the range end nearest the unit's zero;
