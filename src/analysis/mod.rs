@@ -18,6 +18,7 @@ pub mod soundness;
 mod stages;
 pub mod step;
 pub mod validation;
+pub mod window;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};

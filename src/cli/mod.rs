@@ -11,6 +11,7 @@ mod diff;
 mod diff_render;
 mod eval;
 mod explain;
+mod export;
 mod files;
 mod fmt;
 mod generate;
@@ -52,6 +53,8 @@ enum Command {
     Diff(diff::DiffArgs),
     /// Candidate chains side by side: a trade table.
     Compare(compare::CompareArgs),
+    /// Firmware constants: the conversion, the valid code window, trips, calibration.
+    Export(export::ExportArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
     /// Print a shell's completion script for catena.
@@ -82,6 +85,7 @@ pub fn run() -> ExitCode {
         Command::Eval(args) => eval::run(args),
         Command::Diff(args) => diff::run(args),
         Command::Compare(args) => compare::run(args),
+        Command::Export(args) => export::run(args),
         Command::Explain(args) => explain::run(args),
         Command::Completions(args) => generate::completions(args),
         Command::Man(args) => generate::man(args),

@@ -1,0 +1,162 @@
+//! The valid code window: every code the healthy chain can give over the
+//! measurand range × the ambient range × every tolerance at its limits,
+//! widened by the converter's noise. Firmware treats a code outside it as
+//! a fault, and each fault's code (when the fault analysis places it) is
+//! judged against it.
+//!
+//! The reach is the range envelope the limit checks compute for the
+//! converter's input ([`ranges::envelopes`], `Limit::ConverterInput`):
+//! one machinery for both, so the window and the headroom findings never
+//! disagree about where the code goes.
+
+use super::budget;
+use super::noise::noise;
+use super::ranges::{self, Limit};
+use crate::eval::{Env, EvalError, Node, Plan};
+use crate::model::Chain;
+use crate::physics::adc::{code_range, Polarity};
+
+/// Noise coverage the window allows for: one conversion stays within
+/// k σ of its mean with probability 99.73 % (k = 3, common practice).
+pub const NOISE_K: f64 = 3.0;
+
+/// Budget points across the measurand range, as the limit checks use.
+const POINTS: usize = 21;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct CodeWindow {
+    /// The lowest and highest exact (unrounded) code over the ranges and
+    /// tolerances, before noise.
+    pub reach: (f64, f64),
+    /// One conversion's noise σ (not averaged), codes.
+    pub sigma_codes: f64,
+    /// The noise coverage factor applied.
+    pub k: f64,
+    /// The codes a healthy chain gives, inclusive: the reach widened by
+    /// k σ, rounded as the converter rounds, inside its code range.
+    pub low: i64,
+    pub high: i64,
+    /// The converter's code range, inclusive.
+    pub rails: (i64, i64),
+}
+
+impl CodeWindow {
+    /// Whether the window reaches a rail: a fault that drives the
+    /// converter there cannot be told from a healthy extreme.
+    pub fn touches_rail(&self) -> bool {
+        self.low <= self.rails.0 || self.high >= self.rails.1
+    }
+}
+
+/// The chain's valid code window at its main converter.
+pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> {
+    let Node::Adc(adc) = &plan.nodes[plan.adc] else {
+        return Err(numeric(plan, "no converter"));
+    };
+    let per_ref = match adc.polarity {
+        Polarity::Unipolar => 2f64.powi(adc.bits as i32),
+        Polarity::Bipolar => 2f64.powi(adc.bits as i32 - 1),
+    };
+    let rails = code_range(adc.bits, adc.polarity)
+        .map_err(|_| numeric(plan, "the converter has no code range"))?;
+    let envelope = ranges::envelopes(chain, plan, POINTS)?
+        .into_iter()
+        .find(|e| e.node == plan.adc && e.limit == Limit::ConverterInput)
+        .ok_or_else(|| numeric(plan, "no converter input envelope"))?;
+    // The envelope is in fractions of the reference: back to codes.
+    let reach = (envelope.reach.0 * per_ref, envelope.reach.1 * per_ref);
+    let sigma_codes = noise_codes(plan)?;
+    let widen = NOISE_K * sigma_codes;
+    let code = |x: f64| (x.round() as i64).clamp(rails.0, rails.1);
+    Ok(CodeWindow {
+        reach,
+        sigma_codes,
+        k: NOISE_K,
+        low: code(reach.0 - widen),
+        high: code(reach.1 + widen),
+        rails,
+    })
+}
+
+fn numeric(plan: &Plan, what: &str) -> EvalError {
+    EvalError::Numeric {
+        stage: plan.names[plan.adc].clone(),
+        what: what.to_string(),
+    }
+}
+
+/// One conversion's noise σ in codes, the largest at the measurand
+/// range's ends and middle (at the reference): the noise the budget
+/// states, times the code's slope there.
+fn noise_codes(plan: &Plan) -> Result<f64, EvalError> {
+    let (lo, hi) = plan.range;
+    let mut sigma: f64 = 0.0;
+    for m in [lo, 0.5 * (lo + hi), hi] {
+        let env = Env {
+            measurand: m,
+            ambient: plan.reference,
+            cold_junction: plan.reference,
+        };
+        let (v_slope, c_slope) = budget::slopes(plan, &env)?;
+        let n = noise(plan, &env, v_slope, budget::code_step(c_slope));
+        sigma = sigma.max(n.sigma * c_slope.abs());
+    }
+    Ok(sigma)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::code_window;
+    use crate::eval::lower;
+    use crate::model::{resolve, PartsCache};
+    use crate::syntax::{decode, parse};
+
+    /// A linear sensor, 0.5 V + 10 mV/K from 0 to 100 degC, read by a
+    /// 12-bit single-ended converter on a 2.5 V ± 0.1 % reference with
+    /// 1 LSB rms noise. By hand: the lowest code is 0.5 V / (2.5 V ×
+    /// 1.001) × 4096 = 818.382, with the reference at its high limit; the
+    /// highest 1.5 V / (2.5 V × 0.999) × 4096 = 2460.060, at its low
+    /// limit. Widened by 3 σ = 3 codes and rounded: 815.382 → 815 and
+    /// 2463.060 → 2463.
+    #[test]
+    fn window_matches_the_hand_calculation() {
+        let spec = r#"
+chain win "Window by hand" {
+    measurand temperature 0 degC .. 100 degC
+    ambient 25 degC
+    sensor s {
+        ic_voltage
+        slope 10 mV/K
+        output 0.5 V at 0 degC
+    }
+    adc conv {
+        bits 12
+        input single
+        vref 2.5 V ± 0.1 %
+        noise 1 LSB
+    }
+    convert reading { method exact }
+    s -> conv -> reading
+}
+"#;
+        // Resolved by the front end's stages (the checker itself sits above
+        // the analyses).
+        let file = decode("win.catena", spec.as_bytes()).expect("text");
+        let (ast, findings) = parse(&file);
+        assert!(!findings.has_errors(), "{findings:?}");
+        let base = std::path::Path::new(".");
+        let (chains, findings) = resolve(&file, &ast, base, None, &mut PartsCache::default());
+        assert!(!findings.has_errors(), "{findings:?}");
+        let chain = &chains[0];
+        let plan = lower(chain).expect("the chain lowers");
+        let w = code_window(chain, &plan).expect("a window");
+        let low = 0.5 / (2.5 * 1.001) * 4096.0;
+        let high = 1.5 / (2.5 * 0.999) * 4096.0;
+        assert!((w.reach.0 - low).abs() < 1e-9, "{:?}", w.reach);
+        assert!((w.reach.1 - high).abs() < 1e-9, "{:?}", w.reach);
+        assert!((w.sigma_codes - 1.0).abs() < 1e-9, "{}", w.sigma_codes);
+        assert_eq!((w.low, w.high), (815, 2463));
+        assert_eq!(w.rails, (0, 4095));
+        assert!(!w.touches_rail());
+    }
+}
