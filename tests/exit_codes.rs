@@ -127,6 +127,26 @@ const CASES: &[(&str, i32, &[&str])] = &[
         2,
         &["compare", "specs/cold_store.catena#no_such_chain"],
     ),
+    (
+        "catena export",
+        0,
+        &["export", "specs/cold_store.catena", "--lang", "json"],
+    ),
+    (
+        "catena export",
+        1,
+        &[
+            "export",
+            "tests/fixtures/invalid/U103-missing-unit.catena",
+            "--lang",
+            "json",
+        ],
+    ),
+    (
+        "catena export",
+        2,
+        &["export", "specs/cold_store.catena", "--lang", "c"],
+    ),
     ("catena", 0, &["--version"]),
     ("catena", 2, &["frobnicate"]),
 ];

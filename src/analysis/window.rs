@@ -53,12 +53,11 @@ pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> 
     let Node::Adc(adc) = &plan.nodes[plan.adc] else {
         return Err(numeric(plan, "no converter"));
     };
-    let (bits, polarity) = (&adc.bits, &adc.polarity);
-    let per_ref = match polarity {
-        Polarity::Unipolar => 2f64.powi(*bits as i32),
-        Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
+    let per_ref = match adc.polarity {
+        Polarity::Unipolar => 2f64.powi(adc.bits as i32),
+        Polarity::Bipolar => 2f64.powi(adc.bits as i32 - 1),
     };
-    let rails = code_range(*bits, *polarity)
+    let rails = code_range(adc.bits, adc.polarity)
         .map_err(|_| numeric(plan, "the converter has no code range"))?;
     let envelope = ranges::envelopes(chain, plan, POINTS)?
         .into_iter()

@@ -12,6 +12,7 @@ mod diff;
 mod diff_render;
 mod eval;
 mod explain;
+mod export;
 mod files;
 mod fmt;
 mod generate;
@@ -55,6 +56,8 @@ enum Command {
     Compare(compare::CompareArgs),
     /// The fault-and-alarm checklist: codes, verdicts, thresholds, trips.
     Checklist(checklist::ChecklistArgs),
+    /// Firmware constants: the conversion, the valid code window, trips, calibration.
+    Export(export::ExportArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
     /// Print a shell's completion script for catena.
@@ -86,6 +89,7 @@ pub fn run() -> ExitCode {
         Command::Diff(args) => diff::run(args),
         Command::Compare(args) => compare::run(args),
         Command::Checklist(args) => checklist::run(args),
+        Command::Export(args) => export::run(args),
         Command::Explain(args) => explain::run(args),
         Command::Completions(args) => generate::completions(args),
         Command::Man(args) => generate::man(args),

@@ -87,7 +87,11 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
         groups: Vec::new(),
         stated: order
             .iter()
-            .map(|&s| Stated::of(&chain.stages[s]))
+            .map(|&s| {
+                // Every stage has its typed model here: lowering needed it.
+                let model = chain.stages[s].typed.as_ref();
+                model.map(Stated::of).unwrap_or_default()
+            })
             .collect(),
     };
     plan.groups = super::track::lower_groups(chain, &plan.nodes, &plan.slots, node_of);

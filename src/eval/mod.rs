@@ -17,7 +17,7 @@ mod run;
 mod stated;
 mod track;
 
-pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, TableUse};
+pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, Method, TableUse};
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use node::{AmpReference, BridgeKind, Node};
 pub use plan::{
