@@ -848,9 +848,14 @@ mod tests {
     use crate::units::ZERO_CELSIUS_K;
 
     fn chain(text: &str) -> Chain {
-        let checked = crate::check::check_str("test.catena", text);
-        assert!(checked.resolved, "{:?}", checked.findings);
-        checked.chains.into_iter().next().expect("one chain")
+        let file = crate::diagnostics::SourceFile::new("t.catena", text);
+        let (ast, mut findings) = crate::syntax::parse(&file);
+        let mut parts = crate::model::PartsCache::default();
+        let base = std::path::Path::new(".");
+        let (chains, more) = crate::model::resolve(&file, &ast, base, None, &mut parts);
+        findings.extend(more);
+        assert!(!findings.has_errors(), "{findings:?}");
+        chains.into_iter().next().expect("one chain")
     }
 
     fn envelopes_of(text: &str) -> Vec<Envelope> {

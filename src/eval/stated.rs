@@ -1,12 +1,13 @@
 //! What each stage states about itself beyond its error sources: the
 //! limits its signals must stay inside, its noise, its bandwidths and
-//! timing, a converter's sampling input. Read once from the checked stage
-//! when the plan is lowered (SI, by node), so the analyses read the plan
-//! and never look a stage up by name.
+//! timing, a converter's sampling input. Taken once from the stage's
+//! typed model when the plan is lowered (SI, by node), so the analyses
+//! read the plan and never look a stage up by name.
 
-use crate::model::value::{Measure, ParamValue};
+use crate::model::typed::{Adc, Amplifier, Filter, Source, StageModel};
+use crate::model::value::Tolerance;
 use crate::model::Stage;
-use crate::physics::filter::{rc_cascade_cutoff_hz, LowPass, Response};
+use crate::physics::filter::{rc_cascade_cutoff_hz, LowPass};
 use crate::units::Dim;
 
 /// A stage's statements, by plan node (`Plan::stated`).
@@ -73,102 +74,89 @@ pub enum NoiseBasis {
 }
 
 impl Stated {
-    /// What `stage` states.
+    /// What `stage` states, from its typed model.
     pub fn of(stage: &Stage) -> Stated {
-        Stated {
-            ref_range: range(stage, "ref_range"),
-            rails: range(stage, "rails"),
-            compliance: range(stage, "compliance"),
-            current_limit: range(stage, "limit"),
-            max_current: range(stage, "max_current"),
-            sampling: sampling(stage),
-            low_pass: low_pass(stage),
-            rate_hz: number(stage, "rate"),
-            notch_hz: number(stage, "notch"),
-            bandwidth_hz: number(stage, "bandwidth"),
-            time_constant_s: number(stage, "time_constant"),
-            average: number(stage, "average"),
-            noise: noise(stage),
-            noise_corner_hz: number(stage, "noise_corner"),
-            current_noise: number(stage, "current_noise"),
+        let up_to = |x: Option<f64>| x.map(|x| (f64::NEG_INFINITY, x));
+        let Some(model) = &stage.typed else {
+            return Stated::default();
+        };
+        let mut stated = Stated {
+            time_constant_s: model.time_constant(),
+            ..Stated::default()
+        };
+        match model {
+            StageModel::Excitation(e) => {
+                match e.source {
+                    Source::Current { compliance } => stated.compliance = up_to(compliance),
+                    Source::Voltage { limit } => stated.current_limit = up_to(limit),
+                }
+                stated.noise = e.noise.as_ref().map(stated_noise);
+            }
+            StageModel::Rtd(m) => stated.max_current = up_to(m.max_current),
+            StageModel::Thermistor(m) => stated.max_current = up_to(m.max_current),
+            StageModel::Amplifier(m) => amplifier(m, &mut stated),
+            StageModel::Filter(m) => stated.low_pass = low_pass(m),
+            StageModel::Adc(m) => converter(m, &mut stated),
+            StageModel::Convert(m) => stated.average = m.average.map(f64::from),
+            StageModel::Thermocouple(_)
+            | StageModel::IcVoltage(_)
+            | StageModel::IcCurrent(_)
+            | StageModel::StrainGauge(_)
+            | StageModel::Transducer(_)
+            | StageModel::Resistor(_)
+            | StageModel::Bridge(_) => {}
         }
+        stated
     }
 }
 
-/// A stated interval, or a single value as the interval up to it.
-fn range(stage: &Stage, name: &str) -> Option<(f64, f64)> {
-    match stage.param(name) {
-        Some(ParamValue::Range { low, high }) => Some((*low, *high)),
-        Some(ParamValue::Measure(m)) => Some((f64::NEG_INFINITY, m.nominal)),
-        _ => None,
-    }
+fn amplifier(m: &Amplifier, stated: &mut Stated) {
+    stated.bandwidth_hz = m.bandwidth;
+    stated.noise = m.noise.map(|amount| Noise {
+        amount,
+        basis: NoiseBasis::Density,
+    });
+    stated.noise_corner_hz = m.noise_corner;
+    stated.current_noise = m.current_noise;
 }
 
-/// A stated number: a value's nominal, a count, a limit's larger side.
-fn number(stage: &Stage, name: &str) -> Option<f64> {
-    match stage.param(name) {
-        Some(ParamValue::Measure(Measure { nominal, .. })) => Some(*nominal),
-        Some(ParamValue::Count(n)) => Some(f64::from(*n)),
-        Some(ParamValue::Limit(t)) => Some(t.plus.max(t.minus)),
-        _ => None,
-    }
+fn converter(m: &Adc, stated: &mut Stated) {
+    stated.ref_range = m.ref_range;
+    stated.rails = m.rails;
+    stated.rate_hz = m.rate;
+    stated.notch_hz = m.notch;
+    stated.noise = m.noise.as_ref().map(stated_noise);
+    stated.sampling = m.sampling.map(|s| SamplingInput {
+        capacitance: s.capacitance,
+        acquisition: s.acquisition_time,
+        switch: s.resistance.unwrap_or(0.0),
+    });
 }
 
-/// A `noise` stated as a limit says by its unit what it is per; one stated
-/// as a value is an amplifier's density.
-fn noise(stage: &Stage) -> Option<Noise> {
-    match stage.param("noise")? {
-        ParamValue::Limit(t) => Some(Noise {
-            amount: t.plus.max(t.minus),
-            basis: if t.dim == Dim::CODE {
-                NoiseBasis::Codes
-            } else if t.dim == Dim::CURRENT_DENSITY || t.dim == Dim::VOLTAGE_DENSITY {
-                NoiseBasis::Density
-            } else {
-                NoiseBasis::Rms
-            },
-        }),
-        ParamValue::Measure(m) => Some(Noise {
-            amount: m.nominal,
-            basis: NoiseBasis::Density,
-        }),
-        _ => None,
-    }
-}
-
-fn sampling(stage: &Stage) -> Option<SamplingInput> {
-    let value = |name: &str| match stage.param(name) {
-        Some(ParamValue::Measure(m)) => Some(m.nominal),
-        _ => None,
-    };
-    Some(SamplingInput {
-        capacitance: value("sampling_capacitance")?,
-        acquisition: value("acquisition_time")?,
-        switch: value("sampling_resistance").unwrap_or(0.0),
-    })
-}
-
-/// The low-pass filter a `filter` stage describes.
-fn low_pass(stage: &Stage) -> Option<LowPass> {
-    let response = match stage.param("lowpass") {
-        Some(ParamValue::Word(w)) => match w.as_str() {
-            "butterworth" => Response::Butterworth,
-            "bessel" => Response::Bessel,
-            _ => Response::Rc,
+/// A noise stated as a limit says by its unit what it is per.
+fn stated_noise(t: &Tolerance) -> Noise {
+    Noise {
+        amount: t.plus.max(t.minus),
+        basis: if t.dim == Dim::CODE {
+            NoiseBasis::Codes
+        } else if t.dim == Dim::CURRENT_DENSITY || t.dim == Dim::VOLTAGE_DENSITY {
+            NoiseBasis::Density
+        } else {
+            NoiseBasis::Rms
         },
+    }
+}
+
+/// The low-pass response a filter stage describes: its cutoff, or the
+/// one its R and C give at its order.
+fn low_pass(m: &Filter) -> Option<LowPass> {
+    let order = m.order.unwrap_or(1);
+    let cutoff = match (&m.cutoff, &m.r, &m.c) {
+        (Some(f), _, _) => f.nominal,
+        (None, Some(r), Some(c)) => rc_cascade_cutoff_hz(r.nominal, c.nominal, order).ok()?,
         _ => return None,
     };
-    let order = number(stage, "order").unwrap_or(1.0) as u32;
-    let cutoff = match (
-        number(stage, "cutoff"),
-        number(stage, "r"),
-        number(stage, "c"),
-    ) {
-        (Some(f), _, _) => f,
-        (None, Some(r), Some(c)) => rc_cascade_cutoff_hz(r, c, order).ok()?,
-        _ => return None,
-    };
-    LowPass::new(response, order, cutoff).ok()
+    LowPass::new(m.response, order, cutoff).ok()
 }
 
 #[cfg(test)]
@@ -176,10 +164,14 @@ mod tests {
     use super::*;
 
     fn stated(text: &str) -> Vec<Stated> {
-        let checked = crate::check::check_str("test.catena", text);
-        assert!(checked.resolved, "{:?}", checked.findings);
-        let plan = crate::eval::lower(&checked.chains[0]).expect("lowers");
-        plan.stated
+        let file = crate::diagnostics::SourceFile::new("t.catena", text);
+        let (ast, mut findings) = crate::syntax::parse(&file);
+        let mut parts = crate::model::PartsCache::default();
+        let base = std::path::Path::new(".");
+        let (chains, more) = crate::model::resolve(&file, &ast, base, None, &mut parts);
+        findings.extend(more);
+        assert!(!findings.has_errors(), "{findings:?}");
+        crate::eval::lower(&chains[0]).expect("lowers").stated
     }
 
     /// Each node carries its own stage's statements, in SI: a converter's
