@@ -22,7 +22,7 @@ pub struct CheckedFile {
     /// range, a requirement missed) and the chains still evaluate.
     pub resolved: bool,
     /// Per chain, in order, when the check was made for a report
-    /// ([`analysis::CheckOptions::for_report`]): what it computed, for the
+    /// ([`analysis::CheckOptions::keep`]): what it computed, for the
     /// report to reuse instead of lowering and analysing again.
     pub analysed: Vec<Analysed>,
 }
@@ -142,7 +142,7 @@ pub fn check_bytes_configured(
         for chain in &chains {
             let checked = analysis::check_chain(chain, options);
             findings.extend(checked.findings);
-            if options.for_report {
+            if options.keep != analysis::Keep::Nothing {
                 analysed.push(Analysed {
                     plan: checked.plan,
                     analysis: checked.analysis,

@@ -8,6 +8,7 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part_of};
 use crate::check::CheckedFile;
 use crate::diagnostics::did_you_mean;
@@ -36,7 +37,7 @@ pub struct EvalArgs {
 }
 
 pub fn run(args: EvalArgs) -> u8 {
-    let checked = match check_one(&args.spec) {
+    let checked = match check_one(&args.spec, Keep::Plans) {
         Ok((c, _)) => c,
         Err(status) => return status,
     };
