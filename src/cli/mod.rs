@@ -13,6 +13,8 @@ mod explain;
 mod files;
 mod fmt;
 mod generate;
+mod report;
+mod report_index;
 mod revision;
 mod settings;
 mod terminal;
@@ -51,6 +53,8 @@ enum Command {
     Diff(diff::DiffArgs),
     /// Candidate chains side by side: a trade table.
     Compare(compare::CompareArgs),
+    /// The review report: verdict, stages, budget, plots (HTML, Markdown, JSON).
+    Report(report::ReportArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
     /// Print a shell's completion script for catena.
@@ -81,6 +85,7 @@ pub fn run() -> ExitCode {
         Command::Eval(args) => eval::run(args),
         Command::Diff(args) => diff::run(args),
         Command::Compare(args) => compare::run(args),
+        Command::Report(args) => report::run(args),
         Command::Explain(args) => explain::run(args),
         Command::Completions(args) => generate::completions(args),
         Command::Man(args) => generate::man(args),
