@@ -530,20 +530,34 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
 fn noise(a: &Analysis, units: &Units) -> NoiseSection {
     let n = &a.budget.noise;
     let f = units.f;
+    // The converter-input terms reach the measurand through one slope:
+    // their part of sigma over their total.
+    let direct: f64 = n.referred.iter().map(|t| t.rms_v * t.rms_v).sum();
+    let at_converter = (n.sigma * n.sigma - direct).max(0.0).sqrt();
+    let per_volt = if n.total_v > 0.0 {
+        at_converter / n.total_v
+    } else {
+        0.0
+    };
     let mut terms: Vec<NoiseTermRow> = n
         .terms
         .iter()
         .map(|t| NoiseTermRow {
             id: t.id.clone(),
-            v_rms: t.rms_v,
-            referred: n
-                .referred
-                .iter()
-                .find(|r| r.id == t.id)
-                .map_or(0.0, |r| r.rms_v * f),
+            v_rms: Some(t.rms_v),
+            referred: t.rms_v * per_volt * f,
         })
+        .chain(n.referred.iter().map(|t| NoiseTermRow {
+            id: t.id.clone(),
+            v_rms: None,
+            referred: t.rms_v * f,
+        }))
         .collect();
-    terms.sort_by(|x, y| y.v_rms.total_cmp(&x.v_rms).then_with(|| x.id.cmp(&y.id)));
+    terms.sort_by(|x, y| {
+        y.referred
+            .total_cmp(&x.referred)
+            .then_with(|| x.id.cmp(&y.id))
+    });
     NoiseSection {
         enbw_hz: n.enbw_hz,
         total_v_rms: n.total_v,

@@ -352,9 +352,13 @@ fn noise(out: &mut String, c: &ChainReport) {
     for t in &n.terms {
         let _ = writeln!(
             out,
-            "| `{}` | {} rms | {} |",
+            "| `{}` | {} | {} |",
             t.id,
-            si(t.v_rms, "V"),
+            t.v_rms
+                .map_or("acts on the measurand".to_string(), |v| format!(
+                    "{} rms",
+                    si(v, "V")
+                )),
             value(t.referred, u)
         );
     }

@@ -259,14 +259,17 @@ pub struct NoiseSection {
     pub noise_free: f64,
     pub noise_free_averaged: f64,
     pub lsb: f64,
-    /// Each term referred to the measurand, 1σ in `unit`, largest first.
+    /// Each term, 1σ referred to the measurand in `unit`, largest first.
     pub terms: Vec<NoiseTermRow>,
 }
 
 #[derive(Clone, Debug, Serialize)]
 pub struct NoiseTermRow {
     pub id: String,
-    pub v_rms: f64,
+    /// At the converter's input, V rms; absent for a term that acts on
+    /// the measurand directly (an excitation's noise).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub v_rms: Option<f64>,
     pub referred: f64,
 }
 

@@ -391,7 +391,7 @@ fn diagram(c: &ChainReport, key: &str) -> Plot {
             continue;
         };
         let (x1, y1) = (a.0 + box_w, a.1 + BOX_H / 2.0);
-        let (x2, y2) = if b.0 > a.0 {
+        let (x2, y2) = if b.0 > a.0 && e.port == "in" {
             (b.0, b.1 + BOX_H / 2.0)
         } else {
             (b.0 + box_w / 2.0, b.1 + BOX_H)

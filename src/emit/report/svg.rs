@@ -492,7 +492,7 @@ fn legend_label(item: &Item) -> Option<&str> {
         | Item::PlusMinus { label, .. }
         | Item::Band { label, .. }
         | Item::HLimit { label, .. }
-        | Item::HBand { label, .. } => Some(label),
+        | Item::HBand { label, .. } => Some(label.as_str()).filter(|l| !l.is_empty()),
         Item::VMark { .. } => None,
     }
 }
@@ -604,7 +604,8 @@ pub fn bars(
     let h = top + rows.len().max(1) as f64 * row_h + 50.0;
     let max = rows.iter().map(|r| r.1).fold(0.0, f64::max);
     let axis = Axis::nice(quantity, unit, 0.0, if max > 0.0 { max } else { 1.0 });
-    let plot_w = WIDTH - left - 70.0;
+    let note_w = rows.iter().map(|r| r.2.chars().count()).max().unwrap_or(0) as f64 * CHAR_W + 14.0;
+    let plot_w = WIDTH - left - note_w.max(40.0);
     let px = |v: f64| left + axis.t(v) * plot_w;
     let mut s = open(id, title, WIDTH, h);
     let _ = write!(
@@ -646,13 +647,12 @@ pub fn bars(
         let w = (px(*v) - left).max(0.5);
         let _ = write!(
             s,
-            r#"<rect class="data" x="{}" y="{}" width="{}" height="{}" fill="{}" stroke="{}"><title>{}</title></rect>"#,
+            r##"<rect class="data" x="{}" y="{}" width="{}" height="{}" fill="{}" stroke="#222222"><title>{}</title></rect>"##,
             n(left),
             n(y + 3.0),
             n(w),
             n(row_h - 6.0),
             if i == 0 { PALETTE[1] } else { PALETTE[0] },
-            "#222222",
             escape(&format!("{label}: {note}"))
         );
         let _ = write!(
