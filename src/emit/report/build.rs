@@ -19,7 +19,7 @@ use crate::units::format::{from_si, to_si};
 
 /// Samples of the step and frequency responses.
 const STEP_SAMPLES: usize = 161;
-const FREQUENCY_SAMPLES: usize = 161;
+const FREQUENCY_SAMPLES: usize = 321;
 /// Contributors listed at the worst point.
 const CONTRIBUTORS: usize = 12;
 
@@ -250,6 +250,8 @@ fn diagram(chain: &Chain, plan: &Plan) -> Diagram {
     diagram_of(chain, &|name| {
         let node = plan.names.iter().position(|n| n == name);
         match (node, &signals) {
+            // A conversion's output exists only once the plan reads it.
+            (Some(n), _) if matches!(plan.nodes[n], Node::Convert { .. }) => "reading".to_string(),
             (Some(n), Some(s)) => signal_noun(s[n]).to_string(),
             _ => "signal".to_string(),
         }

@@ -223,7 +223,7 @@ fn step(c: &ChainReport, key: &str) -> Option<Plot> {
         id: format!("{key}-step"),
         title: title.clone(),
         x: Axis::linear("time", "s", 0.0, last[0]),
-        y: Axis::nice("reading", "%", 0.0, 100.0),
+        y: Axis::nice("reading", "%", 0.0, 110.0),
         items,
     };
     Some(plot("step", 0, title, chart.render()))
@@ -343,7 +343,7 @@ fn headroom(c: &ChainReport, margin: f64, key: &str) -> Option<Plot> {
 const BOX_W: f64 = 128.0;
 const BOX_H: f64 = 46.0;
 const COL_GAP: f64 = 64.0;
-const ROW_GAP: f64 = 34.0;
+const ROW_GAP: f64 = 52.0;
 
 /// The chain as boxes in columns by their depth in the graph, edges
 /// with their signal type.
@@ -357,19 +357,21 @@ fn diagram(c: &ChainReport, key: &str) -> Plot {
         .unwrap_or(8);
     let box_w = BOX_W.max(longest as f64 * 7.4 + 18.0);
     let columns = d.nodes.iter().map(|n| n.layer + 1).max().unwrap_or(1);
-    let mut rows_in = vec![0usize; columns];
-    let mut place: Vec<(f64, f64)> = Vec::with_capacity(d.nodes.len());
-    for node in &d.nodes {
-        let row = rows_in[node.layer];
-        rows_in[node.layer] += 1;
-        place.push((
-            20.0 + node.layer as f64 * (box_w + COL_GAP),
-            40.0 + row as f64 * (BOX_H + ROW_GAP),
-        ));
-    }
-    let rows = rows_in.iter().copied().max().unwrap_or(1).max(1);
+    let rows_of = rows(d, columns);
+    let place: Vec<(f64, f64)> = d
+        .nodes
+        .iter()
+        .zip(&rows_of)
+        .map(|(node, &row)| {
+            (
+                20.0 + node.layer as f64 * (box_w + COL_GAP),
+                40.0 + row as f64 * (BOX_H + ROW_GAP),
+            )
+        })
+        .collect();
+    let rows = rows_of.iter().map(|r| r + 1).max().unwrap_or(1);
     let w = 40.0 + columns as f64 * (box_w + COL_GAP) - COL_GAP;
-    let h = 60.0 + rows as f64 * (BOX_H + ROW_GAP);
+    let h = 50.0 + rows as f64 * (BOX_H + ROW_GAP);
     let title = format!("Block diagram of {}", c.name);
     let id = format!("{key}-diagram");
     let mut s = open(&id, &title, w, h);
@@ -386,35 +388,57 @@ fn diagram(c: &ChainReport, key: &str) -> Plot {
             .position(|n| n.name == name)
             .map(|i| place[i])
     };
+    // Labels under a box, one line each, so two never overlap.
+    let mut below: Vec<usize> = vec![0; d.nodes.len()];
     for e in &d.edges {
         let (Some(a), Some(b)) = (at(&e.from), at(&e.to)) else {
             continue;
         };
+        let target = d.nodes.iter().position(|n| n.name == e.to).unwrap_or(0);
         let (x1, y1) = (a.0 + box_w, a.1 + BOX_H / 2.0);
-        let (x2, y2) = if b.0 > a.0 && e.port == "in" {
+        let side = e.port == "in" && b.0 > a.0;
+        let (x2, y2) = if side {
             (b.0, b.1 + BOX_H / 2.0)
         } else {
-            (b.0 + box_w / 2.0, b.1 + BOX_H)
+            (b.0 + box_w * port_share(&e.port), b.1 + BOX_H)
+        };
+        let (c1, c2) = if side {
+            (
+                format!("{} {}", r((x1 + x2) / 2.0), r(y1)),
+                format!("{} {}", r((x1 + x2) / 2.0), r(y2)),
+            )
+        } else {
+            (
+                format!("{} {}", r(x2), r(y1)),
+                format!("{} {}", r(x2), r(y2 + 30.0)),
+            )
+        };
+        let (tx, ty, anchor, text) = if side {
+            (x2 - 8.0, y2 - 6.0, "end", short(&e.signal).to_string())
+        } else {
+            let k = below[target];
+            below[target] += 1;
+            (
+                x2 + 6.0,
+                y2 + 14.0 + 13.0 * k as f64,
+                "start",
+                format!("{}: {}", e.port, short(&e.signal)),
+            )
         };
         let _ = write!(
             s,
-            r##"<path class="data" d="M{x1} {y1} C{mx} {y1} {mx} {y2} {x2} {y2}" fill="none" stroke="#333333" stroke-width="1.4" marker-end="url(#{id}-arrow)"><title>{} → {}.{}: {}</title></path><text x="{tx}" y="{ty}" text-anchor="middle" class="edge">{}</text>"##,
+            r##"<path class="data" d="M{x1} {y1} C{c1} {c2} {x2} {y2}" fill="none" stroke="#333333" stroke-width="1.4" marker-end="url(#{id}-arrow)"><title>{} → {}.{}: {}</title></path><text x="{tx}" y="{ty}" text-anchor="{anchor}" class="edge">{}</text>"##,
             escape(&e.from),
             escape(&e.to),
             escape(&e.port),
             escape(&e.signal),
-            escape(&if e.port == "in" {
-                e.signal.clone()
-            } else {
-                format!("{} → {}", e.signal, e.port)
-            }),
+            escape(&text),
             x1 = r(x1),
             y1 = r(y1),
             x2 = r(x2),
             y2 = r(y2),
-            mx = r((x1 + x2) / 2.0),
-            tx = r((x1 + x2) / 2.0),
-            ty = r((y1 + y2) / 2.0 - 5.0),
+            tx = r(tx),
+            ty = r(ty),
         );
     }
     for (node, &(x, y)) in d.nodes.iter().zip(&place) {
@@ -435,6 +459,62 @@ fn diagram(c: &ChainReport, key: &str) -> Plot {
     }
     s.push_str("</g></svg>");
     plot("diagram", 0, title, s)
+}
+
+/// Each node's row in its column: columns left to right, each node
+/// placed by the mean row of the stages feeding it (fewer crossings),
+/// ties in the spec's order.
+fn rows(d: &super::model::Diagram, columns: usize) -> Vec<usize> {
+    let mut row = vec![0usize; d.nodes.len()];
+    let index = |name: &str| d.nodes.iter().position(|n| n.name == name);
+    for layer in 0..columns {
+        let mut members: Vec<(f64, usize)> = d
+            .nodes
+            .iter()
+            .enumerate()
+            .filter(|(_, n)| n.layer == layer)
+            .map(|(i, n)| {
+                let feeders: Vec<f64> = d
+                    .edges
+                    .iter()
+                    .filter(|e| e.to == n.name)
+                    .filter_map(|e| index(&e.from))
+                    .filter(|&f| d.nodes[f].layer < layer)
+                    .map(|f| row[f] as f64)
+                    .collect();
+                let mean = if feeders.is_empty() {
+                    i as f64
+                } else {
+                    feeders.iter().sum::<f64>() / feeders.len() as f64
+                };
+                (mean, i)
+            })
+            .collect();
+        members.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        for (k, (_, i)) in members.into_iter().enumerate() {
+            row[i] = k;
+        }
+    }
+    row
+}
+
+/// Where an edge lands on the bottom of a box, by the input it feeds.
+fn port_share(port: &str) -> f64 {
+    match port {
+        "exc" => 0.2,
+        "arm" => 0.45,
+        "cj" => 0.6,
+        "ref" => 0.75,
+        _ => 0.5,
+    }
+}
+
+/// An edge's signal in a word.
+fn short(signal: &str) -> &str {
+    match signal {
+        "excitation voltage" => "excitation",
+        other => other,
+    }
 }
 
 fn r(x: f64) -> String {

@@ -75,8 +75,8 @@ impl Axis {
     pub fn nice(quantity: &str, unit: &str, lo: f64, hi: f64) -> Axis {
         let mut a = Axis::linear(quantity, unit, lo, hi);
         let step = tick_step(a.hi - a.lo);
-        a.lo = (a.lo / step - 1e-9).floor() * step;
-        a.hi = (a.hi / step + 1e-9).ceil() * step;
+        a.lo = (a.lo / step + 1e-9).floor() * step;
+        a.hi = (a.hi / step - 1e-9).ceil() * step;
         a
     }
 
@@ -269,7 +269,13 @@ impl Chart {
             w = n(WIDTH - LEFT - RIGHT),
             h = n(HEIGHT - TOP - BOTTOM)
         );
+        let mut marks = 0;
         for item in &self.items {
+            if let Item::VMark { label, x } = item {
+                self.mark(&mut s, label, *x, marks);
+                marks += 1;
+                continue;
+            }
             self.item(&mut s, item);
         }
         s.push_str("</g>");
@@ -428,19 +434,7 @@ impl Chart {
                     y = n(self.py(*y))
                 );
             }
-            Item::VMark { label, x } => {
-                let px = self.px(*x);
-                let _ = write!(
-                    s,
-                    r##"<line class="data mark" x1="{px}" y1="{}" x2="{px}" y2="{}" stroke="#555555" stroke-dasharray="3 3"/><text x="{}" y="{}" class="mark">{}</text>"##,
-                    n(TOP),
-                    n(HEIGHT - BOTTOM),
-                    n(px + 3.0),
-                    n(TOP + 12.0),
-                    escape(label),
-                    px = n(px)
-                );
-            }
+            Item::VMark { label, x } => self.mark(s, label, *x, 0),
             Item::HBand { label, y0, y1 } => {
                 let (a, b) = (self.py(*y0), self.py(*y1));
                 let _ = write!(
@@ -454,6 +448,28 @@ impl Chart {
                 );
             }
         }
+    }
+
+    /// A vertical marker; the `k`-th one's label sits a line lower, and
+    /// right of its line unless that would leave the plot.
+    fn mark(&self, s: &mut String, label: &str, x: f64, k: usize) {
+        let px = self.px(x);
+        let width = label.chars().count() as f64 * CHAR_W;
+        let (tx, anchor) = if px + 4.0 + width > WIDTH - RIGHT {
+            (px - 4.0, "end")
+        } else {
+            (px + 4.0, "start")
+        };
+        let _ = write!(
+            s,
+            r##"<line class="data mark" x1="{px}" y1="{}" x2="{px}" y2="{}" stroke="#555555" stroke-dasharray="3 3"/><text x="{}" y="{}" text-anchor="{anchor}" class="mark">{}</text>"##,
+            n(TOP),
+            n(HEIGHT - BOTTOM),
+            n(tx),
+            n(TOP + 14.0 + 14.0 * k as f64),
+            escape(label),
+            px = n(px)
+        );
     }
 
     fn legend(&self, s: &mut String) {
