@@ -1,10 +1,12 @@
 //! The whole front end for one file: decode, parse, resolve.
 
+use std::borrow::Cow;
 use std::path::Path;
 use std::sync::Arc;
 
-use crate::analysis;
+use crate::analysis::{self, report::Analysis};
 use crate::diagnostics::{Code, Findings, Severity, SourceFile};
+use crate::eval::{self, EvalError, Plan};
 use crate::model::{self, Chain, PartsCache};
 use crate::syntax;
 
@@ -19,6 +21,41 @@ pub struct CheckedFile {
     /// any error is theirs (a stage beyond a limit, a sensor outside its
     /// range, a requirement missed) and the chains still evaluate.
     pub resolved: bool,
+    /// Per chain, in order, when the check was made for a report
+    /// ([`analysis::CheckOptions::for_report`]): what it computed, for the
+    /// report to reuse instead of lowering and analysing again.
+    pub analysed: Vec<Analysed>,
+}
+
+/// What the check computed for one chain.
+#[derive(Debug, Default)]
+pub struct Analysed {
+    /// Its evaluation plan, when it lowered with a conversion.
+    pub plan: Option<Plan>,
+    /// The analysis its requirements were judged on.
+    pub analysis: Option<Analysis>,
+}
+
+impl CheckedFile {
+    /// What the check computed for `chain`, one of [`CheckedFile::chains`].
+    pub fn analysed(&self, chain: &Chain) -> Option<&Analysed> {
+        let index = self.chains.iter().position(|c| std::ptr::eq(c, chain))?;
+        self.analysed.get(index)
+    }
+
+    /// `chain`'s plan: the check's, or lowered now where it kept none.
+    pub fn plan(&self, chain: &Chain) -> Result<Cow<'_, Plan>, EvalError> {
+        match self.analysed(chain).and_then(|a| a.plan.as_ref()) {
+            Some(plan) => Ok(Cow::Borrowed(plan)),
+            None => eval::lower(chain).map(Cow::Owned),
+        }
+    }
+
+    /// The analysis `chain`'s requirements were judged on, for a report to
+    /// start from.
+    pub fn analysis(&self, chain: &Chain) -> Option<Analysis> {
+        self.analysed(chain)?.analysis.clone()
+    }
 }
 
 /// Checks a spec given as bytes. `name` is how findings show the file;
@@ -58,6 +95,7 @@ pub fn check_bytes_configured(
                 chains: Vec::new(),
                 findings,
                 resolved: false,
+                analysed: Vec::new(),
             };
         }
     };
@@ -72,6 +110,7 @@ pub fn check_bytes_configured(
             chains: Vec::new(),
             findings,
             resolved: false,
+            analysed: Vec::new(),
         };
     }
     // A line with a syntax finding gets only that finding: what the later
@@ -97,10 +136,17 @@ pub fn check_bytes_configured(
         }
     }
     let resolved = !findings.has_errors();
+    let mut analysed = Vec::new();
     if resolved {
         for chain in &chains {
-            let (_, more) = analysis::check_chain(chain, options);
-            findings.extend(more);
+            let checked = analysis::check_chain(chain, options);
+            findings.extend(checked.findings);
+            if options.for_report {
+                analysed.push(Analysed {
+                    plan: checked.plan,
+                    analysis: checked.analysis,
+                });
+            }
         }
     }
     CheckedFile {
@@ -108,6 +154,7 @@ pub fn check_bytes_configured(
         chains,
         findings,
         resolved,
+        analysed,
     }
 }
 

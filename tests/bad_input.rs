@@ -8,8 +8,7 @@ use std::path::PathBuf;
 use common::catena;
 
 fn temp(name: &str, bytes: &[u8]) -> (PathBuf, String) {
-    let dir = std::env::temp_dir().join(format!("catena-bad-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = common::temp_dir("bad", name);
     std::fs::write(dir.join(name), bytes).unwrap();
     (dir, name.to_string())
 }

@@ -57,8 +57,7 @@ fn every_configuration_fixture_reports_its_expectation() {
 /// A throwaway repository with a spec that misses its accuracy
 /// requirement (R611, an error).
 fn repo(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("catena-config-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
+    let dir = common::temp_dir("config", name);
     std::fs::create_dir_all(dir.join("repo/.git")).unwrap();
     std::fs::create_dir_all(dir.join("repo/specs")).unwrap();
     std::fs::copy(

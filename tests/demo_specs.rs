@@ -3,7 +3,12 @@
 
 mod common;
 
-use catena::check::check_str;
+use std::collections::BTreeSet;
+
+use catena::check::{check_bytes, check_str};
+use catena::model::value::ParamValue;
+use catena::model::PartsCache;
+use catena::syntax::ast::StageKind;
 use catena::syntax::format::format_source;
 use common::{catena, demo_specs, root};
 
@@ -27,49 +32,87 @@ fn demo_specs_are_in_canonical_layout() {
 
 /// The demos together use every stage kind and every sensor model the
 /// front end knows, an amplifier reference, a thermocouple bias and a
-/// converter's limits (directly or through a shipped part).
+/// converter's limits (directly or through a shipped part), read from
+/// their resolved chains: a comment or a stage name proves nothing.
 #[test]
 fn demo_specs_cover_every_model() {
-    let mut text = String::new();
-    for spec in demo_specs() {
-        text.push_str(&std::fs::read_to_string(spec).expect("readable"));
+    let used = uses(&demo_specs());
+    for kind in StageKind::ALL {
+        let word = kind.keyword();
+        assert!(used.contains(word), "no demo spec has a `{word}` stage");
     }
-    for entry in std::fs::read_dir(root().join("specs/parts")).expect("specs/parts/") {
-        let path = entry.expect("entry").path();
-        text.push_str(&std::fs::read_to_string(path).expect("parts file"));
-    }
-    for word in [
-        "excitation",
-        "sensor",
-        "bridge",
-        "amplifier",
-        "filter",
-        "adc",
-        "convert",
-        "rtd",
-        "thermocouple",
-        "thermistor",
-        "ic_voltage",
-        "ic_current",
-        "strain_gauge",
-        "transducer",
-        "resistor",
-        "divider",
-        "quarter",
+    for fact in [
+        "sensor rtd",
+        "sensor thermocouple",
+        "sensor thermistor",
+        "sensor ic_voltage",
+        "sensor ic_current",
+        "sensor strain_gauge",
+        "sensor transducer",
+        "sensor resistor",
+        "bridge divider",
+        "bridge quarter",
         "wires 2",
         "wires 3",
         "wires 4",
         "cold_junction",
-        "butterworth",
-        "bessel",
         "lowpass rc",
+        "lowpass butterworth",
+        "lowpass bessel",
         "bias_voltage",
-        "front.ref",
+        "amplifier.ref",
         "ref_range",
         "sampling_capacitance",
     ] {
-        assert!(text.contains(word), "no demo spec uses `{word}`");
+        assert!(used.contains(fact), "no demo spec uses `{fact}`");
     }
+}
+
+/// What resolved chains use, as words: each stage's kind, `kind model`,
+/// every parameter's name, `name word` or `name count` for a parameter
+/// given as one, and `kind.port` for every port an edge arrives at.
+fn uses(specs: &[std::path::PathBuf]) -> BTreeSet<String> {
+    let mut used = BTreeSet::new();
+    for spec in specs {
+        let bytes = std::fs::read(spec).expect("a demo spec reads");
+        let base = spec.parent().expect("a spec has a folder");
+        let name = spec.to_string_lossy();
+        let checked = check_bytes(&name, &bytes, base, &mut PartsCache::default());
+        for chain in &checked.chains {
+            for stage in &chain.stages {
+                let kind = stage.kind.keyword();
+                used.insert(kind.to_string());
+                used.extend(stage.model.map(|m| format!("{kind} {m}")));
+                for param in &stage.params {
+                    used.insert(param.name.to_string());
+                    match &param.value {
+                        ParamValue::Word(w) => used.insert(format!("{} {w}", param.name)),
+                        ParamValue::Count(n) => used.insert(format!("{} {n}", param.name)),
+                        _ => false,
+                    };
+                }
+            }
+            for edge in &chain.connections {
+                let kind = chain.stages[edge.to].kind.keyword();
+                used.insert(format!("{kind}.{}", edge.to_port.name()));
+            }
+        }
+    }
+    used
+}
+
+/// The finder reads what the chain does, not its comments or names.
+#[test]
+fn uses_are_read_from_the_chain_not_its_text() {
+    let dir = common::temp_dir("demo", "uses");
+    let spec = dir.join("t.catena");
+    let text = std::fs::read_to_string(root().join("specs/cold_store.catena"))
+        .expect("a demo reads")
+        .replace("wires 3", "wires 3 # wires 4, thermocouple");
+    std::fs::write(&spec, text).expect("the spec is written");
+    let used = uses(&[spec]);
+    assert!(used.contains("wires 3"));
+    assert!(!used.contains("wires 4") && !used.contains("sensor thermocouple"));
 }
 
 fn summary(name: &str, text: &str) -> Vec<(String, String, usize)> {

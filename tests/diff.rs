@@ -5,10 +5,9 @@
 
 mod common;
 
-use std::path::{Path, PathBuf};
-use std::process::Command;
+use std::path::PathBuf;
 
-use common::{catena, root};
+use common::{catena, git, json, root};
 
 const FIXTURES: &str = "tests/fixtures/diff";
 /// Enough trials for Monte Carlo to run on both sides, few enough for a
@@ -19,8 +18,11 @@ fn fixture(name: &str) -> String {
     format!("{FIXTURES}/{name}")
 }
 
-fn json(text: &str) -> serde_json::Value {
-    serde_json::from_str(text).expect("diff writes JSON")
+/// `catena diff OLD NEW --trials TRIALS ..more`, from the repository root.
+fn diff(old: &str, new: &str, trials: &str, more: &[&str]) -> common::Run {
+    let mut args = vec!["diff", old, new, "--trials", trials];
+    args.extend_from_slice(more);
+    catena(&root(), &args, None)
 }
 
 #[test]
@@ -29,23 +31,13 @@ fn a_gain_change_moves_the_budget_and_the_headroom() {
         fixture("cold_store.catena"),
         fixture("cold_store_gain.catena"),
     );
-    let human = catena(&root(), &["diff", &old, &new, "--trials", TRIALS], None);
+    let human = diff(&old, &new, TRIALS, &[]);
     assert_eq!(human.status, 0, "{}", human.stderr);
     insta::assert_snapshot!("diff-gain-human", human.stdout);
-    let md = catena(
-        &root(),
-        &[
-            "diff", &old, &new, "--trials", TRIALS, "--format", "markdown",
-        ],
-        None,
-    );
+    let md = diff(&old, &new, TRIALS, &["--format", "markdown"]);
     insta::assert_snapshot!("diff-gain-markdown", md.stdout);
 
-    let run = catena(
-        &root(),
-        &["diff", &old, &new, "--trials", TRIALS, "--format", "json"],
-        None,
-    );
+    let run = diff(&old, &new, TRIALS, &["--format", "json"]);
     let doc = json(&run.stdout);
     assert_eq!(doc["schema_version"], 1);
     assert_eq!(doc["direction"], "worse");
@@ -63,19 +55,7 @@ fn a_gain_change_moves_the_budget_and_the_headroom() {
     assert!(conv["old"].as_f64().unwrap() > 0.0 && conv["new"].as_f64().unwrap() < 0.0);
     assert_eq!(chain["regression"], true);
 
-    let gated = catena(
-        &root(),
-        &[
-            "diff",
-            &old,
-            &new,
-            "--trials",
-            TRIALS,
-            "--fail-on",
-            "regression",
-        ],
-        None,
-    );
+    let gated = diff(&old, &new, TRIALS, &["--fail-on", "regression"]);
     assert_eq!(gated.status, 1);
 }
 
@@ -88,26 +68,10 @@ fn a_change_that_moves_nothing_reports_no_change() {
         fixture("cold_store.catena"),
         fixture("cold_store_moved.catena"),
     );
-    let human = catena(
-        &root(),
-        &[
-            "diff",
-            &old,
-            &new,
-            "--trials",
-            TRIALS,
-            "--fail-on",
-            "regression",
-        ],
-        None,
-    );
+    let human = diff(&old, &new, TRIALS, &["--fail-on", "regression"]);
     assert_eq!(human.status, 0, "{}", human.stderr);
     insta::assert_snapshot!("diff-moved-human", human.stdout);
-    let run = catena(
-        &root(),
-        &["diff", &old, &new, "--trials", TRIALS, "--format", "json"],
-        None,
-    );
+    let run = diff(&old, &new, TRIALS, &["--format", "json"]);
     let doc = json(&run.stdout);
     assert_eq!(doc["direction"], "neutral");
     let file = &doc["files"][0];
@@ -127,19 +91,11 @@ fn a_change_that_moves_nothing_reports_no_change() {
 #[test]
 fn two_chains_of_one_file_compare() {
     let moved = fixture("cold_store_moved.catena");
-    let run = catena(
-        &root(),
-        &[
-            "diff",
-            &format!("{moved}#cold_store"),
-            &format!("{moved}#spare_store"),
-            "--trials",
-            "0",
-            "--format",
-            "json",
-        ],
-        None,
+    let (a, b) = (
+        format!("{moved}#cold_store"),
+        format!("{moved}#spare_store"),
     );
+    let run = diff(&a, &b, "0", &["--format", "json"]);
     assert_eq!(run.status, 0, "{}", run.stderr);
     let chain = &json(&run.stdout)["files"][0]["chains"][0];
     assert_eq!(chain["chain"], "spare_store");
@@ -154,19 +110,8 @@ fn diff_takes_two_specs_or_a_revision() {
     assert!(run.stderr.contains("OLD and NEW"), "{}", run.stderr);
 }
 
-fn git(dir: &Path, args: &[&str]) {
-    let status = Command::new("git")
-        .args(["-c", "user.name=t", "-c", "user.email=t@example.invalid"])
-        .args(args)
-        .current_dir(dir)
-        .status()
-        .expect("git runs");
-    assert!(status.success(), "git {args:?}");
-}
-
 fn throwaway_repository(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("catena-diff-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
+    let dir = common::temp_dir("diff", name);
     std::fs::create_dir_all(dir.join("specs/parts")).expect("temp folder");
     git(&dir, &["init", "-q"]);
     dir
@@ -318,18 +263,11 @@ fn compare_lines_candidates_up() {
 /// A tracking group added between two dividers is a spec change of its own.
 #[test]
 fn a_tracking_group_is_a_spec_change() {
-    let run = catena(
-        &root(),
-        &[
-            "diff",
-            "tests/fixtures/budget/unmatched_divider.catena",
-            "tests/fixtures/budget/matched_divider.catena",
-            "--trials",
-            "0",
-            "--format",
-            "json",
-        ],
-        None,
+    let run = diff(
+        "tests/fixtures/budget/unmatched_divider.catena",
+        "tests/fixtures/budget/matched_divider.catena",
+        "0",
+        &["--format", "json"],
     );
     assert_eq!(run.status, 0, "{}", run.stderr);
     let spec = &json(&run.stdout)["files"][0]["chains"][0]["spec"];

@@ -138,10 +138,40 @@ fn graphical_renders_keep_their_look() {
         "M204-code-into-amplifier.catena",
         "P301-unknown-parameter.catena",
     ] {
-        if !dir.join(name).exists() {
-            continue;
-        }
+        assert!(dir.join(name).is_file(), "fixture {name} is missing");
         let run = catena(&dir, &["check", name], None);
         insta::assert_snapshot!(format!("graphical-{name}"), run.stderr);
     }
+}
+
+/// Every snapshot of this file names a fixture that exists: a fixture
+/// deleted or renamed leaves no snapshot behind that nothing checks.
+#[test]
+fn every_snapshot_has_its_fixture() {
+    let fixtures = root().join("tests/fixtures/invalid");
+    let snapshots = std::fs::read_dir(root().join("tests/snapshots")).expect("tests/snapshots/");
+    let mut seen = 0;
+    for entry in snapshots {
+        let name = entry.expect("an entry").file_name();
+        let name = name.to_string_lossy();
+        let Some(rest) = name.strip_prefix("invalid_fixtures__") else {
+            continue;
+        };
+        let stem = rest
+            .strip_suffix(".snap")
+            .unwrap_or_else(|| panic!("{name}: not a snapshot"));
+        // `test@FIXTURE` from the glob, `graphical-FIXTURE` from the renders.
+        let fixture = match stem.split_once('@') {
+            Some((_, fixture)) => fixture,
+            None => stem
+                .strip_prefix("graphical-")
+                .unwrap_or_else(|| panic!("{name}: names no fixture")),
+        };
+        assert!(
+            fixtures.join(fixture).is_file(),
+            "{name} names tests/fixtures/invalid/{fixture}, which is missing"
+        );
+        seen += 1;
+    }
+    assert!(seen > 100, "found only {seen} snapshots");
 }

@@ -8,6 +8,24 @@ fn reference() -> String {
         .expect("reference exists")
 }
 
+/// The whole words of a text: runs of letters, digits and `_`, so that
+/// `in` is not found in `input` nor `ref` in `ref_range`.
+fn words(text: &str) -> BTreeSet<&str> {
+    text.split(|c: char| !(c.is_alphanumeric() || c == '_'))
+        .filter(|w| !w.is_empty())
+        .collect()
+}
+
+#[test]
+fn words_are_whole() {
+    let found = words("`ref_range` and input (in.ref)");
+    for word in ["ref_range", "and", "input", "in", "ref"] {
+        assert!(found.contains(word), "{word}");
+    }
+    assert!(!words("`ref_range` input").contains("ref"));
+    assert!(!words("input").contains("in"));
+}
+
 /// Every word-like string literal in the grammar, e.g. `"measurand"`.
 fn grammar_keywords() -> BTreeSet<String> {
     let grammar =
@@ -33,14 +51,15 @@ fn grammar_keywords() -> BTreeSet<String> {
 #[test]
 fn every_grammar_keyword_is_documented() {
     let text = reference();
-    let words = grammar_keywords();
+    let documented = words(&text);
+    let keywords = grammar_keywords();
     assert!(
-        words.contains("measurand") && words.contains("excitation"),
-        "keywords found: {words:?}"
+        keywords.contains("measurand") && keywords.contains("excitation"),
+        "keywords found: {keywords:?}"
     );
-    let missing: Vec<&String> = words
+    let missing: Vec<&String> = keywords
         .iter()
-        .filter(|w| !text.contains(&format!("`{w}")) && !text.contains(&format!(" {w} ")))
+        .filter(|w| !documented.contains(w.as_str()))
         .collect();
     assert!(
         missing.is_empty(),
@@ -51,20 +70,33 @@ fn every_grammar_keyword_is_documented() {
 #[test]
 fn every_parameter_is_documented() {
     let text = reference();
+    let documented = words(&text);
     let missing: Vec<&str> = catena::model::schema::all_names()
-        .filter(|n| !text.contains(&format!("`{n}")) && !text.contains(&format!(" {n} ")))
+        .filter(|n| !documented.contains(n))
         .collect();
     assert!(
         missing.is_empty(),
         "parameters missing from grammar/README.md: {missing:?}"
     );
-    for word in catena::model::schema::RTD_CURVES
-        .iter()
-        .chain(catena::model::schema::THERMOCOUPLE_TYPES)
-    {
-        assert!(
-            text.contains(word),
-            "`{word}` missing from grammar/README.md"
-        );
+    // A curve or type (some are one letter) counts only in its model line's
+    // code span, `thermocouple type B | E | ...`.
+    for (model, choices) in [
+        ("`rtd ", catena::model::schema::RTD_CURVES),
+        (
+            "`thermocouple type ",
+            catena::model::schema::THERMOCOUPLE_TYPES,
+        ),
+    ] {
+        let at = text
+            .find(model)
+            .unwrap_or_else(|| panic!("nothing documents {model}`"));
+        let span = text[at + 1..].split('`').next().unwrap_or("");
+        let listed = words(span);
+        for word in choices {
+            assert!(
+                listed.contains(word),
+                "`{word}` missing from {model}...` in grammar/README.md"
+            );
+        }
     }
 }

@@ -10,10 +10,7 @@ use std::process::{Command, Stdio};
 use common::{catena, root};
 
 fn temp_dir(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("catena-linter-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
+    common::temp_dir("linter", name)
 }
 
 /// Standard input is named by `--stdin-filename`, and its `use` paths
@@ -149,21 +146,14 @@ fn fmt_check_diff_shows_the_change_and_changes_nothing() {
 
 #[test]
 fn budget_takes_several_files_and_folders() {
-    let run = catena(
-        &root(),
-        &[
-            "budget",
-            "--trials",
-            "0",
-            "--format",
-            "json",
-            "tests/fixtures/budget/gum_rtd.catena",
-            "specs",
-        ],
-        None,
-    );
+    let budget = |more: &[&str]| {
+        let mut args = vec!["budget", "--trials", "0", "--format", "json"];
+        args.extend_from_slice(more);
+        catena(&root(), &args, None)
+    };
+    let run = budget(&["tests/fixtures/budget/gum_rtd.catena", "specs"]);
     assert_eq!(run.status, 0, "{}", run.stderr);
-    let docs: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let docs = common::json(&run.stdout);
     let docs = docs.as_array().expect("one document per chain");
     let demo_chains: usize = common::demo_specs()
         .iter()
@@ -176,22 +166,9 @@ fn budget_takes_several_files_and_folders() {
     assert_eq!(docs[0]["file"], "tests/fixtures/budget/gum_rtd.catena");
     assert!(docs[1]["file"].as_str().unwrap().starts_with("specs/"));
     // One chain picked out of several files.
-    let run = catena(
-        &root(),
-        &[
-            "budget",
-            "--trials",
-            "0",
-            "--format",
-            "json",
-            "--chain",
-            "cold_store",
-            "specs",
-        ],
-        None,
-    );
+    let run = budget(&["--chain", "cold_store", "specs"]);
     assert_eq!(run.status, 0, "{}", run.stderr);
-    let doc: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+    let doc = common::json(&run.stdout);
     assert_eq!(doc["chain"], "cold_store");
     let run = catena(&root(), &["budget", "--chain", "nowhere", "specs"], None);
     assert_eq!(run.status, 2);

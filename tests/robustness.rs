@@ -8,10 +8,7 @@ use std::path::PathBuf;
 use common::catena;
 
 fn temp_dir(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("catena-robust-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
+    common::temp_dir("robust", name)
 }
 
 const SPEC_USING_PARTS: &str = "use \"parts.yaml\"\nchain a {\n    measurand temperature 0 degC .. 50 degC\n    sensor ic : probe { }\n    adc conv {\n        bits 12\n        input single\n        vref 2.5 V\n    }\n    convert reading { method exact }\n    ic -> conv -> reading\n}\n";

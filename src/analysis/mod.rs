@@ -65,9 +65,16 @@ const SCAN_POINTS: usize = 201;
 /// when the whole range evaluates or no stretch does.
 pub fn evaluable_part(chain: &Chain) -> Option<Chain> {
     let (plan, fitted) = lower_unvalidated(chain).ok()?;
-    let valid = valid_measurand_range(&plan);
+    evaluable_part_of(chain, &plan, fitted.is_ok())
+}
+
+/// [`evaluable_part`] from the chain's plan as lowered without the
+/// validity check (or with it, when it passed), `fitted` when its
+/// conversion was built.
+pub fn evaluable_part_of(chain: &Chain, plan: &Plan, fitted: bool) -> Option<Chain> {
+    let valid = valid_measurand_range(plan);
     let narrowed = valid != plan.range;
-    if valid.0 >= valid.1 || fitted.is_ok() && !narrowed {
+    if valid.0 >= valid.1 || fitted && !narrowed {
         return None;
     }
     let ambients = budget::ambients(chain);
@@ -148,10 +155,11 @@ fn unconvertible(
     plan: &Plan,
     error: &EvalError,
     margin: f64,
+    points: usize,
     at_measurand: Option<(crate::diagnostics::Span, String)>,
 ) -> Findings {
     let mut findings = Findings::new();
-    if let Ok(envelopes) = ranges::envelopes(chain, plan, 21) {
+    if let Ok(envelopes) = ranges::envelopes(chain, plan, points) {
         findings.extend(ranges::findings(chain, plan, &envelopes, margin));
     }
     if !findings.has_errors() {
@@ -163,12 +171,17 @@ fn unconvertible(
 /// E504 where the converter's code does not move with the measurand at a
 /// budget condition: the chain saturates there (in a stage or in the
 /// arithmetic itself), so no reading, resolution or budget exists.
-fn flat_code(chain: &Chain, plan: &Plan, measurand: &crate::model::Measurand) -> Option<Finding> {
+fn flat_code(
+    chain: &Chain,
+    plan: &Plan,
+    measurand: &crate::model::Measurand,
+    points: usize,
+) -> Option<Finding> {
     let moves = |env: &Env| match budget::slopes(plan, env) {
         Ok((_, codes_per_unit)) => codes_per_unit != 0.0 && codes_per_unit.is_finite(),
         Err(_) => true,
     };
-    let conditions = budget::conditions(chain, plan, budget::Options::default().points);
+    let conditions = budget::conditions(chain, plan, points);
     let flat = conditions.iter().find(|env| !moves(env))?;
     let show = |x: f64| crate::units::format::trimmed(from_si(x, &measurand.unit), 6);
     let at = format!(
@@ -204,7 +217,7 @@ fn flat_code(chain: &Chain, plan: &Plan, measurand: &crate::model::Measurand) ->
 }
 
 /// What `catena check` asks of the analyses.
-#[derive(Clone, Copy, Debug, Default, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq)]
 pub struct CheckOptions {
     /// Run Monte Carlo even when no requirement asks for it.
     pub monte_carlo: bool,
@@ -217,14 +230,45 @@ pub struct CheckOptions {
     pub allow_outside_paths: bool,
     /// The Monte Carlo seed ([`report::DEFAULT_SEED`] when `None`).
     pub seed: Option<u64>,
+    /// Budget points across the measurand range, where the envelopes,
+    /// the flat-code scan and the verdicts look.
+    pub points: usize,
+    /// The caller goes on to report on the chains (`budget`, `eval`,
+    /// `diff`): compute the report's detail too, and keep each chain's
+    /// plan and analysis for it to reuse.
+    pub for_report: bool,
+}
+
+impl Default for CheckOptions {
+    fn default() -> Self {
+        CheckOptions {
+            monte_carlo: false,
+            trials: 0,
+            margin: 0.0,
+            allow_outside_paths: false,
+            seed: None,
+            points: budget::Options::default().points,
+            for_report: false,
+        }
+    }
+}
+
+/// What the check of one chain leaves: its findings and, when the caller
+/// reports on it ([`CheckOptions::for_report`]), its plan and the
+/// analysis the verdicts came from.
+#[derive(Debug, Default)]
+pub struct ChainCheck {
+    pub plan: Option<Plan>,
+    pub analysis: Option<report::Analysis>,
+    pub findings: Findings,
 }
 
 /// Lowers a chain, evaluates its nominal corners (measurand ends at the
 /// ambient ends and the reference), then judges its requirements.
-pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Findings) {
+pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
     let mut findings = Findings::new();
     let Some(measurand) = &chain.measurand else {
-        return (None, findings);
+        return ChainCheck::default();
     };
     let at_measurand = Some((measurand.span, "over this range".to_string()));
     let margin = if options.margin > 0.0 {
@@ -235,16 +279,53 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
     let plan = match lower_stages(chain) {
         Ok((plan, Ok(()))) => plan,
         Ok((plan, Err(e))) => {
-            findings.extend(unconvertible(chain, &plan, &e, margin, at_measurand));
-            return (None, findings);
+            let findings = unconvertible(chain, &plan, &e, margin, options.points, at_measurand);
+            return ChainCheck {
+                findings,
+                ..ChainCheck::default()
+            };
         }
         Err(e) => {
             findings.push(eval_finding(chain, &e, at_measurand));
-            return (None, findings);
+            return ChainCheck {
+                findings,
+                ..ChainCheck::default()
+            };
         }
     };
+    findings.extend(corner_error(chain, &plan, measurand));
+    if findings.is_empty() {
+        match ranges::envelopes(chain, &plan, options.points) {
+            Ok(envelopes) => findings.extend(ranges::findings(chain, &plan, &envelopes, margin)),
+            Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),
+        }
+    }
+    // A stage beyond its limit (R601) already says why the code stops;
+    // a chain flat without one (the arithmetic saturating) gets E504.
+    if !findings.has_errors() {
+        findings.extend(flat_code(chain, &plan, measurand, options.points));
+    }
+    let mut analysis = None;
+    if !findings.has_errors() && !chain.requirements.is_empty() {
+        analysis = judge(chain, &plan, options, &mut findings, at_measurand);
+    }
+    let keep = options.for_report;
+    ChainCheck {
+        plan: keep.then_some(plan),
+        analysis: analysis.filter(|_| keep),
+        findings,
+    }
+}
+
+/// E501..E503 at the first nominal corner (a measurand end at an ambient
+/// end or the reference) where the chain does not evaluate.
+fn corner_error(
+    chain: &Chain,
+    plan: &Plan,
+    measurand: &crate::model::Measurand,
+) -> Option<Finding> {
     let ambients = [chain.ambient.0, chain.reference, chain.ambient.1];
-    'corners: for m in [measurand.low, measurand.high] {
+    for m in [measurand.low, measurand.high] {
         for t in ambients {
             let env = Env {
                 measurand: m,
@@ -257,50 +338,52 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> (Option<Plan>, Find
                     crate::units::format::trimmed(from_si(m, &measurand.unit), 6),
                     measurand.unit
                 );
-                findings.push(eval_finding(chain, &e, Some((measurand.span, at))));
-                break 'corners;
+                return Some(eval_finding(chain, &e, Some((measurand.span, at))));
             }
         }
     }
-    if findings.is_empty() {
-        match ranges::envelopes(chain, &plan, 21) {
-            Ok(envelopes) => findings.extend(ranges::findings(chain, &plan, &envelopes, margin)),
-            Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),
-        }
-    }
-    // A stage beyond its limit (R601) already says why the code stops;
-    // a chain flat without one (the arithmetic saturating) gets E504.
-    if !findings.has_errors() {
-        if let Some(f) = flat_code(chain, &plan, measurand) {
-            findings.push(f);
-        }
-    }
-    if !findings.has_errors() && !chain.requirements.is_empty() {
-        let wants_mc = options.monte_carlo || requirements::accuracy_method(chain) == "monte_carlo";
-        let options = report::Options {
-            trials: wants_mc.then_some(if options.trials > 0 {
-                options.trials.min(report::MAX_TRIALS)
+    None
+}
+
+/// The requirements' verdicts as findings, from the analysis they were
+/// judged on (returned for a caller that reports on the chain).
+fn judge(
+    chain: &Chain,
+    plan: &Plan,
+    options: &CheckOptions,
+    findings: &mut Findings,
+    at_measurand: Option<(Span, String)>,
+) -> Option<report::Analysis> {
+    let wants_mc = options.monte_carlo || requirements::accuracy_method(chain) == "monte_carlo";
+    let report_options = report::Options {
+        budget: budget::Options {
+            points: options.points,
+            ..budget::Options::default()
+        },
+        trials: wants_mc.then_some(if options.trials > 0 {
+            options.trials.min(report::MAX_TRIALS)
+        } else {
+            report::DEFAULT_TRIALS
+        }),
+        seed: options.seed.unwrap_or(report::DEFAULT_SEED),
+        // Only a report shows the detail; `check` prints verdicts alone.
+        detail: options.for_report,
+    };
+    match report::analyse(chain, plan, &report_options) {
+        Ok(analysis) => {
+            // A verdict on a number that is not one would only echo E505.
+            let unsound = soundness::non_finite(chain, &analysis);
+            if unsound.is_empty() {
+                findings.extend(report::verdict_findings(chain, &analysis));
+                findings.extend(soundness::nonlinear(chain, &analysis));
             } else {
-                report::DEFAULT_TRIALS
-            }),
-            seed: options.seed.unwrap_or(report::DEFAULT_SEED),
-            ..report::Options::default()
-        };
-        match report::analyse(chain, &plan, &options) {
-            Ok(analysis) => {
-                // A verdict on a number that is not one would only echo E505.
-                let unsound = soundness::non_finite(chain, &analysis);
-                if unsound.is_empty() {
-                    findings.extend(report::verdict_findings(chain, &analysis));
-                    if let Some(f) = soundness::nonlinear(chain, &analysis) {
-                        findings.push(f);
-                    }
-                } else {
-                    findings.extend(unsound);
-                }
+                findings.extend(unsound);
             }
-            Err(e) => findings.push(eval_finding(chain, &e, at_measurand)),
+            Some(analysis)
+        }
+        Err(e) => {
+            findings.push(eval_finding(chain, &e, at_measurand));
+            None
         }
     }
-    (Some(plan), findings)
 }

@@ -69,6 +69,8 @@ pub struct Analysis {
     pub names: Vec<String>,
     /// Alarm and trip limits with their guard bands.
     pub alarms: Vec<AlarmLimit>,
+    /// What it was asked for.
+    pub options: Options,
 }
 
 impl Analysis {
@@ -95,7 +97,87 @@ pub fn analyse_with_progress(
     options: &Options,
     progress: &dyn Fn(usize, usize),
 ) -> Result<Analysis, EvalError> {
-    let budget = budget::budget(chain, plan, &options.budget)?;
+    analyse_reusing(chain, plan, options, None, progress)
+}
+
+/// [`analyse_with_progress`], keeping what `earlier` (an analysis of the
+/// same plan, such as the one `check` made) already holds under the
+/// options asked now: the budget and dynamics at the same points, the
+/// Monte Carlo at the same trials, seed and detail, and the detail. What
+/// it lacks is computed; the result is the fresh analysis's to the bit.
+pub fn analyse_reusing(
+    chain: &Chain,
+    plan: &Plan,
+    options: &Options,
+    earlier: Option<Analysis>,
+    progress: &dyn Fn(usize, usize),
+) -> Result<Analysis, EvalError> {
+    let mut analysis = match earlier {
+        Some(a) if a.options.budget == options.budget => a,
+        _ => deterministic(chain, plan, options)?,
+    };
+    let asked = analysis.options;
+    let same_draws = asked.trials == options.trials
+        && asked.seed == options.seed
+        && asked.detail == options.detail;
+    if !same_draws {
+        add_monte_carlo(plan, options, &mut analysis, progress)?;
+    }
+    let achieved = Achieved {
+        response_s: analysis.dynamics.response_90,
+    };
+    let dynamics = &analysis.dynamics;
+    analysis.verdicts = verdicts(
+        chain,
+        &analysis.budget,
+        analysis.monte_carlo.as_deref(),
+        &achieved,
+        &|f| Some(dynamics.attenuation(f)),
+    );
+    analysis.trials = options.trials.unwrap_or(0).min(MAX_TRIALS);
+    analysis.seed = options.seed;
+    if !options.detail {
+        clear_detail(&mut analysis);
+    } else if !asked.detail {
+        add_detail(chain, plan, options, &mut analysis)?;
+    }
+    analysis.options = *options;
+    Ok(analysis)
+}
+
+/// The budget and the dynamics, without Monte Carlo or detail.
+fn deterministic(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis, EvalError> {
+    Ok(Analysis {
+        budget: budget::budget(chain, plan, &options.budget)?,
+        monte_carlo: None,
+        shares: None,
+        gum_checks: None,
+        trials: 0,
+        seed: options.seed,
+        dynamics: dynamics(chain, plan),
+        verdicts: Vec::new(),
+        envelopes: Vec::new(),
+        accumulation: Vec::new(),
+        uncalibrated: None,
+        names: plan.names.clone(),
+        alarms: Vec::new(),
+        options: Options {
+            trials: None,
+            detail: false,
+            ..*options
+        },
+    })
+}
+
+/// The Monte Carlo intervals at the budget's points, GUM checked against
+/// them, and with the detail each drawn source's share.
+fn add_monte_carlo(
+    plan: &Plan,
+    options: &Options,
+    analysis: &mut Analysis,
+    progress: &dyn Fn(usize, usize),
+) -> Result<(), EvalError> {
+    let budget = &analysis.budget;
     let sampled = match options.trials {
         Some(trials) if trials > 0 => Some(sample(
             plan,
@@ -111,7 +193,7 @@ pub fn analyse_with_progress(
     let monte_carlo: Option<Vec<Interval>> = sampled
         .as_ref()
         .map(|s| s.iter().map(|s| s.interval).collect());
-    let gum_checks = monte_carlo.as_ref().map(|m| {
+    analysis.gum_checks = monte_carlo.as_ref().map(|m| {
         budget
             .points
             .iter()
@@ -119,35 +201,18 @@ pub fn analyse_with_progress(
             .map(|(p, i)| check(p.gum_standard, i))
             .collect()
     });
-    let shares = sampled
+    analysis.shares = sampled
         .filter(|_| options.detail)
         .map(|s| s.into_iter().map(|s| s.shares).collect());
-    let dynamics = dynamics(chain, plan);
-    let achieved = Achieved {
-        response_s: dynamics.response_90,
-    };
-    let verdicts = verdicts(chain, &budget, monte_carlo.as_deref(), &achieved, &|f| {
-        Some(dynamics.attenuation(f))
-    });
-    let mut analysis = Analysis {
-        budget,
-        monte_carlo,
-        shares,
-        gum_checks,
-        trials: options.trials.unwrap_or(0).min(MAX_TRIALS),
-        seed: options.seed,
-        dynamics,
-        verdicts,
-        envelopes: Vec::new(),
-        accumulation: Vec::new(),
-        uncalibrated: None,
-        names: plan.names.clone(),
-        alarms: Vec::new(),
-    };
-    if options.detail {
-        add_detail(chain, plan, options, &mut analysis)?;
-    }
-    Ok(analysis)
+    analysis.monte_carlo = monte_carlo;
+    Ok(())
+}
+
+fn clear_detail(analysis: &mut Analysis) {
+    analysis.envelopes = Vec::new();
+    analysis.accumulation = Vec::new();
+    analysis.uncalibrated = None;
+    analysis.alarms = Vec::new();
 }
 
 /// What only a report shows: the limits, the error along the signal path

@@ -44,142 +44,191 @@ pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
         Some(l) => format!("chain {} \"{l}\": error budget in {unit}\n\n", chain.name),
         None => format!("chain {}: error budget in {unit}\n\n", chain.name),
     };
-    if per_point {
-        out.push_str(&lines(&per_point_table(a, &m_unit, &v)));
-    } else {
-        out.push_str(&lines(&summary_table(a, &m_unit, &v)));
-        let ambients = a
-            .budget
-            .points
-            .windows(2)
-            .filter(|w| w[0].ambient != w[1].ambient)
-            .count()
-            + 1;
-        out.push_str(&format!(
-            "\n\nthe largest of {} points across the measurand at each ambient; --per-point lists them all",
-            a.budget.points.len() / ambients
-        ));
-    }
+    out.push_str(&totals(a, &m_unit, &v, per_point));
     out.push_str("\n\n");
     if !a.verdicts.is_empty() {
         out.push_str(&lines(&verdict_table(a, &unit, &v)));
         out.push_str("\n\n");
     }
-    if let Some(m) = &a.monte_carlo {
-        let numerical = m.iter().map(|i| i.numerical).fold(0.0, f64::max);
-        out.push_str(&format!(
-            "Monte Carlo: {} trials a point, seed {}; its interval ends are good to ± {} {unit} (95 %)\n",
-            a.trials,
-            a.seed,
-            v(numerical)
-        ));
-        if a.trials < SIGN_OFF_TRIALS {
-            out.push_str(&format!(
-                "  for a budget you sign, run --trials {SIGN_OFF_TRIALS} or more (JCGM 101 §7.2.2: 10^4 / (1 - p))\n"
-            ));
-        }
-        if let Some(checks) = &a.gum_checks {
-            out.push_str(&gum_validation_line(checks, &unit, &v));
-        }
-        out.push('\n');
+    out.push_str(&monte_carlo_lines(a, &unit, &v));
+    out.push_str(&largest_sources(a, &m_unit, &v));
+    out.push_str(&calibration_line(a, &unit, &v));
+    out.push_str(&signal_path(a, &unit, f, &v));
+    out.push_str(&limits(a));
+    out.push_str(&noise_line(a, &unit, &v));
+    out.push_str(&dynamics_line(a));
+    out.push_str(&alarms(a, &unit, &m_unit, &v));
+    out.push('\n');
+    out
+}
+
+/// The totals: every point, or the largest at each ambient.
+fn totals(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String, per_point: bool) -> String {
+    if per_point {
+        return lines(&per_point_table(a, m_unit, v));
     }
-    if let Some(worst) = a
+    let ambients = a
+        .budget
+        .points
+        .windows(2)
+        .filter(|w| w[0].ambient != w[1].ambient)
+        .count()
+        + 1;
+    format!(
+        "{}\n\nthe largest of {} points across the measurand at each ambient; --per-point lists them all",
+        lines(&summary_table(a, m_unit, v)),
+        a.budget.points.len() / ambients
+    )
+}
+
+/// How many trials, what the interval's ends are good to, and GUM
+/// against it; nothing when Monte Carlo did not run.
+fn monte_carlo_lines(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> String {
+    let Some(m) = &a.monte_carlo else {
+        return String::new();
+    };
+    let numerical = m.iter().map(|i| i.numerical).fold(0.0, f64::max);
+    let mut out = format!(
+        "Monte Carlo: {} trials a point, seed {}; its interval ends are good to ± {} {unit} (95 %)\n",
+        a.trials,
+        a.seed,
+        v(numerical)
+    );
+    if a.trials < SIGN_OFF_TRIALS {
+        out.push_str(&format!(
+            "  for a budget you sign, run --trials {SIGN_OFF_TRIALS} or more (JCGM 101 §7.2.2: 10^4 / (1 - p))\n"
+        ));
+    }
+    if let Some(checks) = &a.gum_checks {
+        out.push_str(&gum_validation_line(checks, unit, v));
+    }
+    out.push('\n');
+    out
+}
+
+/// The largest sources at the point with the largest GUM total.
+fn largest_sources(a: &Analysis, m_unit: &str, v: &dyn Fn(f64) -> String) -> String {
+    let Some(worst) = a
         .budget
         .points
         .iter()
         .max_by(|x, y| x.gum_expanded.total_cmp(&y.gum_expanded))
-    {
-        out.push_str(&format!(
-            "largest sources at {} {m_unit}, ambient {} degC\n\n",
-            trimmed(from_si(worst.measurand, &m_unit), 6),
-            trimmed(from_si(worst.ambient, "degC"), 4)
-        ));
-        out.push_str(&sources_table(a, worst, &v));
+    else {
+        return String::new();
+    };
+    format!(
+        "largest sources at {} {m_unit}, ambient {} degC\n\n{}",
+        trimmed(from_si(worst.measurand, m_unit), 6),
+        trimmed(from_si(worst.ambient, "degC"), 4),
+        sources_table(a, worst, v)
+    )
+}
+
+/// What the declared calibration buys at the worst point.
+fn calibration_line(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> String {
+    let Some(u) = &a.uncalibrated else {
+        return String::new();
+    };
+    let worst = |v: &mut dyn Iterator<Item = f64>| v.fold(0.0, f64::max);
+    format!(
+        "calibration: ± {} {unit} (GUM) before it, ± {} {unit} after, at the worst point\n\n",
+        v(worst(&mut u.iter().copied())),
+        v(worst(&mut a.budget.points.iter().map(|p| p.gum_expanded)))
+    )
+}
+
+/// Each stage's value, gain and error along the signal path.
+fn signal_path(a: &Analysis, unit: &str, f: f64, v: &dyn Fn(f64) -> String) -> String {
+    if a.accumulation.is_empty() {
+        return String::new();
     }
-    if let Some(u) = &a.uncalibrated {
-        let worst = |v: &mut dyn Iterator<Item = f64>| v.fold(0.0, f64::max);
-        out.push_str(&format!(
-            "calibration: ± {} {unit} (GUM) before it, ± {} {unit} after, at the worst point\n\n",
-            v(worst(&mut u.iter().copied())),
-            v(worst(&mut a.budget.points.iter().map(|p| p.gum_expanded)))
-        ));
+    let mut t = table();
+    t.set_header([
+        "stage".to_string(),
+        "value".into(),
+        format!("gain per {unit}"),
+        format!("error ({unit}, 1 σ)"),
+    ]);
+    for n in &a.accumulation {
+        let name = a.names.get(n.node).cloned().unwrap_or_default();
+        let value = if n.unit == "code" {
+            format!("{} (code)", significant(n.value, 7))
+        } else {
+            crate::units::format::with_prefix(n.value, n.unit, 5)
+        };
+        let gain = if n.unit == "code" {
+            format!("{} codes", significant(n.gain / f, 4))
+        } else {
+            crate::units::format::with_prefix(n.gain / f, n.unit, 4)
+        };
+        t.add_row([name, value, gain, v(n.error)]);
     }
-    if !a.accumulation.is_empty() {
-        out.push_str("along the signal path, at the worst point\n\n");
-        let mut t = table();
-        t.set_header([
-            "stage".to_string(),
-            "value".into(),
-            format!("gain per {unit}"),
-            format!("error ({unit}, 1 σ)"),
+    format!(
+        "along the signal path, at the worst point\n\n{}\n\n",
+        lines(&t)
+    )
+}
+
+/// Every limited signal's reach against what it is allowed.
+fn limits(a: &Analysis) -> String {
+    if a.envelopes.is_empty() {
+        return String::new();
+    }
+    let mut t = table();
+    t.set_header(["stage", "signal", "reaches", "allowed", "headroom"]);
+    for e in &a.envelopes {
+        let name = a.names.get(e.node).cloned().unwrap_or_default();
+        let show = |x: f64| {
+            if !x.is_finite() {
+                "—".to_string()
+            } else if e.unit == "of full scale" {
+                format!("{} %", trimmed(x * 100.0, 4))
+            } else {
+                crate::units::format::with_prefix(x, e.unit, 4)
+            }
+        };
+        t.add_row([
+            name,
+            e.limit.describe().to_string(),
+            format!("{} .. {}", show(e.reach.0), show(e.reach.1)),
+            format!("{} .. {}", show(e.allowed.0), show(e.allowed.1)),
+            format!("{} %", trimmed(e.headroom() * 100.0, 3)),
         ]);
-        for n in &a.accumulation {
-            let name = a.names.get(n.node).cloned().unwrap_or_default();
-            let value = if n.unit == "code" {
-                format!("{} (code)", significant(n.value, 7))
-            } else {
-                crate::units::format::with_prefix(n.value, n.unit, 5)
-            };
-            let gain = if n.unit == "code" {
-                format!("{} codes", significant(n.gain / f, 4))
-            } else {
-                crate::units::format::with_prefix(n.gain / f, n.unit, 4)
-            };
-            t.add_row([name, value, gain, v(n.error)]);
-        }
-        out.push_str(&lines(&t));
-        out.push_str("\n\n");
     }
-    if !a.envelopes.is_empty() {
-        out.push_str("limits over the ranges and tolerances\n\n");
-        let mut t = table();
-        t.set_header(["stage", "signal", "reaches", "allowed", "headroom"]);
-        for e in &a.envelopes {
-            let name = a.names.get(e.node).cloned().unwrap_or_default();
-            let show = |x: f64| {
-                if !x.is_finite() {
-                    "—".to_string()
-                } else if e.unit == "of full scale" {
-                    format!("{} %", trimmed(x * 100.0, 4))
-                } else {
-                    crate::units::format::with_prefix(x, e.unit, 4)
-                }
-            };
-            t.add_row([
-                name,
-                e.limit.describe().to_string(),
-                format!("{} .. {}", show(e.reach.0), show(e.reach.1)),
-                format!("{} .. {}", show(e.allowed.0), show(e.allowed.1)),
-                format!("{} %", trimmed(e.headroom() * 100.0, 3)),
-            ]);
-        }
-        out.push_str(&lines(&t));
-        out.push_str("\n\n");
-    }
+    format!("limits over the ranges and tolerances\n\n{}\n\n", lines(&t))
+}
+
+fn noise_line(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> String {
     let n = &a.budget.noise;
     if n.terms.is_empty() && n.referred.is_empty() {
-        out.push_str("noise: no noise stated\n");
+        return "noise: no noise stated\n".to_string();
+    }
+    let averaged = if n.average > 1 {
+        format!(
+            "; averaged over {}: {} {unit} noise-free",
+            n.average,
+            v(n.noise_free_averaged)
+        )
     } else {
-        out.push_str(&format!(
-        "noise: {} rms at the converter over {}; {} {unit} rms, {} {unit} noise-free (6.6 σ){}\n",
+        String::new()
+    };
+    format!(
+        "noise: {} rms at the converter over {}; {} {unit} rms, {} {unit} noise-free (6.6 σ){averaged}\n",
         crate::units::format::with_prefix(n.total_v, "V", 3),
         n.enbw_hz
             .map(|b| format!("{} Hz", significant(b, 3)))
             .unwrap_or_else(|| "an unbounded bandwidth".into()),
         v(n.sigma),
         v(n.noise_free),
-        if n.average > 1 {
-            format!(
-                "; averaged over {}: {} {unit} noise-free",
-                n.average,
-                v(n.noise_free_averaged)
-            )
-        } else {
-            String::new()
-        }
-    ));
-    }
+    )
+}
+
+fn dynamics_line(a: &Analysis) -> String {
     let d = &a.dynamics;
+    let stated = d.sensor_time_constant > 0.0 || d.filter.is_some() || d.rate_hz.is_some();
+    if !stated {
+        return "dynamics: no time constant, filter or rate stated\n".to_string();
+    }
     let mains = d
         .mains
         .iter()
@@ -204,44 +253,40 @@ pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
         .filter_settling_half_lsb
         .map(|t| format!(" (the filter settles to ½ LSB in {} s)", significant(t, 3)))
         .unwrap_or_default();
-    let stated = d.sensor_time_constant > 0.0 || d.filter.is_some() || d.rate_hz.is_some();
-    if stated {
-        out.push_str(&format!(
-            "dynamics: 90 % of a step in {response}{settle}; {mains}\n"
-        ));
-    } else {
-        out.push_str("dynamics: no time constant, filter or rate stated\n");
+    format!("dynamics: 90 % of a step in {response}{settle}; {mains}\n")
+}
+
+/// Where to trip each alarm, with the caution a protective function needs.
+fn alarms(a: &Analysis, unit: &str, m_unit: &str, v: &dyn Fn(f64) -> String) -> String {
+    if a.alarms.is_empty() {
+        return String::new();
     }
-    if !a.alarms.is_empty() {
-        out.push_str("\nalarms: where to trip so the true value cannot pass the limit unseen\n\n");
-        let mut t = table();
-        t.set_header([
-            "alarm",
-            "limit",
-            "code",
-            "guard band",
-            "trip at",
-            "trip code",
+    let mut t = table();
+    t.set_header([
+        "alarm",
+        "limit",
+        "code",
+        "guard band",
+        "trip at",
+        "trip code",
+    ]);
+    for x in &a.alarms {
+        t.add_row([
+            x.side.clone(),
+            format!("{} {m_unit}", trimmed(from_si(x.at, m_unit), 6)),
+            x.code.to_string(),
+            format!("± {} {unit}", v(x.guard_band)),
+            format!("{} {m_unit}", trimmed(from_si(x.trip_at, m_unit), 6)),
+            x.trip_code.to_string(),
         ]);
-        for x in &a.alarms {
-            t.add_row([
-                x.side.clone(),
-                format!("{} {m_unit}", trimmed(from_si(x.at, &m_unit), 6)),
-                x.code.to_string(),
-                format!("± {} {unit}", v(x.guard_band)),
-                format!("{} {m_unit}", trimmed(from_si(x.trip_at, &m_unit), 6)),
-                x.trip_code.to_string(),
-            ]);
-        }
-        out.push_str(&lines(&t));
-        out.push_str(
-            "\n\ncaution: Catena is a design aid, not a safety assessment. Where an alarm or trip protects people\n\
-             or property, its design and verification follow the applicable functional-safety standard, local\n\
-             codes and licensed practice.\n",
-        );
     }
-    out.push('\n');
-    out
+    format!(
+        "\nalarms: where to trip so the true value cannot pass the limit unseen\n\n{}{}",
+        lines(&t),
+        "\n\ncaution: Catena is a design aid, not a safety assessment. Where an alarm or trip protects people\n\
+         or property, its design and verification follow the applicable functional-safety standard, local\n\
+         codes and licensed practice.\n"
+    )
 }
 
 /// The largest sources at the budget's worst point, each with its GUM

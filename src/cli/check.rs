@@ -182,6 +182,7 @@ fn options_for(args: &CheckArgs, config: &Config) -> CheckOptions {
         margin: margin.value.max(1e-12),
         allow_outside_paths: args.allow_outside_paths,
         seed: config.seed.as_ref().map(|s| s.value),
+        ..CheckOptions::default()
     }
 }
 

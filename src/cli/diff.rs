@@ -11,12 +11,11 @@ use super::diff_render::{human, markdown, ChainDiff, DiffReport, FileDiff};
 use super::files::{check_configured, check_one, collect, plain_io};
 use super::revision::{self, Snapshot};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
 use crate::analysis::review::{
     diff_outcomes, outcome, spec_changes, Direction, Outcome, DEFAULT_THRESHOLD,
 };
 use crate::check::CheckedFile;
-use crate::eval::lower;
 use crate::model::Chain;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -103,8 +102,12 @@ pub(super) fn evaluate(
             .count();
         return Err(format!("not evaluated: {n} error(s) found by check"));
     }
-    let plan = lower(chain).map_err(|e| format!("not evaluated: {e}"))?;
-    let a = analyse(chain, &plan, options).map_err(|e| format!("not evaluated: {e}"))?;
+    let not_evaluated = |e: crate::eval::EvalError| format!("not evaluated: {e}");
+    // What the check computed is reused: the plan, and its analysis where
+    // the options agree.
+    let plan = checked.plan(chain).map_err(not_evaluated)?;
+    let earlier = checked.analysis(chain);
+    let a = analyse_reusing(chain, &plan, options, earlier, &|_, _| {}).map_err(not_evaluated)?;
     Ok(outcome(chain, &plan, &a))
 }
 

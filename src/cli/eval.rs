@@ -1,5 +1,6 @@
 //! `catena eval SPEC --at VALUE`: every stage's output at one point.
 
+use std::borrow::Cow;
 use std::path::PathBuf;
 
 use clap::Args;
@@ -7,10 +8,12 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::{eval_finding, evaluable_part};
+use crate::analysis::{eval_finding, evaluable_part_of};
+use crate::check::CheckedFile;
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
-use crate::eval::{lower, lower_unvalidated, Env, Node, Plan, Signal};
-use crate::model::{did_you_mean, Chain};
+use crate::eval::{lower, lower_unvalidated, Env, EvalError, Node, Plan, Signal};
+use crate::model::Chain;
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
 
@@ -56,37 +59,13 @@ pub fn run(args: EvalArgs) -> u8 {
         errln!("catena: chain `{}` has no measurand", chain.name);
         return EXIT_USAGE;
     };
-    let (at, at_shown) = match point(&args.at, measurand.dim, &measurand.unit) {
-        Ok(v) => v,
-        Err(e) => {
-            errln!("catena: --at {}: {e}", args.at);
-            return EXIT_USAGE;
-        }
+    let [(at, at_shown), (ambient, ambient_shown)] = match condition(&args, chain, measurand) {
+        Ok(c) => c,
+        Err(status) => return status,
     };
-    let (ambient, ambient_shown) = match &args.ambient {
-        None => (chain.reference, from_si(chain.reference, "degC")),
-        Some(text) => match point(text, Dim::TEMPERATURE, "degC") {
-            Ok(v) => v,
-            Err(e) => {
-                errln!("catena: --ambient {text}: {e}");
-                return EXIT_USAGE;
-            }
-        },
-    };
-    // A sensor outside its range of validity is already among the errors:
-    // the stages still show what they do as written.
-    let (plan, fitted) = match lower_unvalidated(chain) {
+    let (plan, fitted) = match plan_at(&checked, chain, at) {
         Ok(p) => p,
         Err(e) => return report_one(chain, &e, None, errors),
-    };
-    // No conversion over the whole range, or a sensor valid over part of
-    // it: the part of the range that evaluates still has one.
-    let (plan, fitted) = match evaluable_part(chain) {
-        Some(part) if part_covers(&part, at) => match lower(&part) {
-            Ok(p) => (p, Ok(())),
-            Err(_) => (plan, fitted),
-        },
-        _ => (plan, fitted),
     };
     let env = Env {
         measurand: at,
@@ -121,6 +100,11 @@ pub fn run(args: EvalArgs) -> u8 {
         ),
         Format::Human => out!("{}", view.table()),
     }
+    status(findings)
+}
+
+/// The exit status, with the findings shown: a warning alone leaves it 0.
+fn status(findings: Findings) -> u8 {
     if findings.is_empty() {
         EXIT_OK
     } else if findings.has_errors() {
@@ -129,6 +113,57 @@ pub fn run(args: EvalArgs) -> u8 {
         report(findings);
         EXIT_OK
     }
+}
+
+/// A value in SI and as shown (in the unit it was given in).
+type Shown = (f64, f64);
+
+/// `--at` and `--ambient` in SI, each with the value shown; a usage
+/// error is reported and its status given.
+fn condition(
+    args: &EvalArgs,
+    chain: &Chain,
+    measurand: &crate::model::Measurand,
+) -> Result<[Shown; 2], u8> {
+    let at = point(&args.at, measurand.dim, &measurand.unit).map_err(|e| {
+        errln!("catena: --at {}: {e}", args.at);
+        EXIT_USAGE
+    })?;
+    let ambient = match &args.ambient {
+        None => (chain.reference, from_si(chain.reference, "degC")),
+        Some(text) => point(text, Dim::TEMPERATURE, "degC").map_err(|e| {
+            errln!("catena: --ambient {text}: {e}");
+            EXIT_USAGE
+        })?,
+    };
+    Ok([at, ambient])
+}
+
+/// The plan to evaluate `chain` at `at` on, and whether its conversion
+/// was built: the check's when it kept one; else lowered without the
+/// validity check (a sensor outside its range is already among the
+/// errors, and the stages still show what they do as written); and where
+/// the whole range has no conversion, or a sensor is valid over part of
+/// it, the part of the range that evaluates, when it covers `at`.
+fn plan_at<'a>(
+    checked: &'a CheckedFile,
+    chain: &Chain,
+    at: f64,
+) -> Result<(Cow<'a, Plan>, Result<(), EvalError>), EvalError> {
+    let (plan, fitted) = match checked.analysed(chain).and_then(|a| a.plan.as_ref()) {
+        Some(plan) => (Cow::Borrowed(plan), Ok(())),
+        None => {
+            let (plan, fitted) = lower_unvalidated(chain)?;
+            (Cow::Owned(plan), fitted)
+        }
+    };
+    Ok(match evaluable_part_of(chain, &plan, fitted.is_ok()) {
+        Some(part) if part_covers(&part, at) => match lower(&part) {
+            Ok(p) => (Cow::Owned(p), Ok(())),
+            Err(_) => (plan, fitted),
+        },
+        _ => (plan, fitted),
+    })
 }
 
 /// A point outside the measurand range: R625 where the firmware still

@@ -1,8 +1,8 @@
 use clap::Args;
 
 use super::{EXIT_OK, EXIT_USAGE};
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::Code;
-use crate::model::did_you_mean;
 
 #[derive(Args, Debug)]
 pub struct ExplainArgs {

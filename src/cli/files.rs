@@ -197,6 +197,7 @@ pub fn check_configured(
     let options = crate::analysis::CheckOptions {
         margin: config.margin.as_ref().map_or(0.0, |s| s.value.max(1e-12)),
         seed: config.seed.as_ref().map(|s| s.value),
+        for_report: true,
         ..Default::default()
     };
     let mut checked = crate::check::check_bytes_configured(

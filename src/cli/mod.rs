@@ -3,6 +3,7 @@
 #[macro_use]
 mod output;
 mod budget;
+mod budget_json;
 mod budget_table;
 mod check;
 mod compare;

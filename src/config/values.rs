@@ -9,8 +9,8 @@ use serde_yaml::Value;
 use super::place::locate;
 use super::{relaxable, Config, Level, Set};
 use crate::analysis::report::MAX_TRIALS;
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Code, Finding, SourceFile, Span};
-use crate::model::did_you_mean;
 use crate::units::format::to_si;
 use crate::units::{parse_unit, Dim};
 

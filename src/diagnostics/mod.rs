@@ -9,6 +9,7 @@ mod lines;
 mod render;
 mod sarif;
 mod source;
+mod suggest;
 
 pub use code::{Code, Severity};
 pub use finding::{Cause, Finding, Label};
@@ -16,6 +17,7 @@ pub use lines::{escape_data, escape_property, render_github, render_short};
 pub use render::{render_human, render_json, JsonFinding, FINDINGS_SCHEMA_VERSION};
 pub use sarif::render_sarif;
 pub use source::{SourceFile, Span};
+pub use suggest::did_you_mean;
 
 /// Findings of one run, kept in the order they were found; `sorted` gives
 /// the stable report order (file, offset, code).
@@ -33,8 +35,8 @@ impl Findings {
         self.items.push(finding);
     }
 
-    pub fn extend(&mut self, other: Findings) {
-        self.items.extend(other.items);
+    pub fn extend(&mut self, other: impl IntoIterator<Item = Finding>) {
+        self.items.extend(other);
     }
 
     pub fn is_empty(&self) -> bool {

@@ -10,8 +10,8 @@ use petgraph::graph::DiGraph;
 
 use super::chain::{Connection, Stage};
 use super::ports::{self, InputSpec, Port, Signal};
-use super::suggest::did_you_mean;
 use super::value::ParamValue;
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{EdgeDecl, Endpoint, StageKind};
 
@@ -111,88 +111,90 @@ fn connect_edge(
     findings: &mut Findings,
 ) {
     let index = |name: &str| by_name.get(name).copied();
-    {
-        for (i, pair) in edge.endpoints.windows(2).enumerate() {
-            let (a, b) = (&pair[0], &pair[1]);
-            let (Some(from), Some(to)) = (
-                lookup(file, stages, a, &index, findings, i == 0),
-                lookup(file, stages, b, &index, findings, false),
-            ) else {
-                continue;
-            };
-            // The first endpoint's port names an output; a middle endpoint's
-            // port names the input it is entered by, and it leaves by `out`.
-            let from_port = match (&a.port, i) {
-                (Some(p), 0) => Port::from_name(&p.name),
-                _ => Some(Port::Out),
-            };
-            let to_port = match &b.port {
-                Some(p) => Port::from_name(&p.name),
-                None => stage_inputs(&stages[to]).first().map(|s| s.port),
-            };
-            let Some(from_port) = from_port else { continue };
-            if from_port != Port::Out {
-                let span = a.port.as_ref().map(|p| p.span).unwrap_or(a.span);
-                findings.push(
-                    Finding::new(
-                        Code::M211,
-                        file,
-                        format!(
-                            "`{}.{}` is an input, not an output",
-                            a.stage.name,
-                            from_port.name()
-                        ),
-                    )
-                    .label(span, "edges leave a stage by `out`")
-                    .help(format!(
-                        "write `{} -> ...`, or reverse the edge",
-                        a.stage.name
-                    )),
-                );
-                continue;
-            }
-            let Some(to_port) = to_port else {
-                findings.push(
-                    Finding::new(
-                        Code::M204,
-                        file,
-                        format!("`{}` takes no input", stages[to].name),
-                    )
-                    .label(
-                        b.span,
-                        format!("{} has no input port", with_article(&describe(&stages[to]))),
-                    )
-                    .help(format!(
-                        "`{}` is a source; edges can only start from it",
-                        stages[to].name
-                    )),
-                );
-                continue;
-            };
-            if to_port == Port::Out {
-                let span = b.port.as_ref().map(|p| p.span).unwrap_or(b.span);
-                findings.push(
-                    Finding::new(
-                        Code::M211,
-                        file,
-                        format!("`{}.out` is an output, not an input", b.stage.name),
-                    )
-                    .label(span, "edges enter a stage by an input")
-                    .help(format!(
-                        "write `... -> {}` for its default input",
-                        b.stage.name
-                    )),
-                );
-                continue;
-            }
-            connections.push(Connection {
+    for (i, pair) in edge.endpoints.windows(2).enumerate() {
+        let (a, b) = (&pair[0], &pair[1]);
+        let (Some(from), Some(to)) = (
+            lookup(file, stages, a, &index, findings, i == 0),
+            lookup(file, stages, b, &index, findings, false),
+        ) else {
+            continue;
+        };
+        // The first endpoint's port names an output; a middle endpoint's
+        // port names the input it is entered by, and it leaves by `out`.
+        let from_port = match (&a.port, i) {
+            (Some(p), 0) => Port::from_name(&p.name),
+            _ => Some(Port::Out),
+        };
+        let Some(from_port) = from_port else { continue };
+        if from_port != Port::Out {
+            findings.push(input_as_output(file, a, from_port));
+            continue;
+        }
+        match entry_port(file, &stages[to], b) {
+            Ok(to_port) => connections.push(Connection {
                 from,
                 from_port,
                 to,
                 to_port,
                 span: a.span.to(b.span),
-            });
+            }),
+            Err(finding) => findings.push(finding),
         }
+    }
+}
+
+/// M211: an edge that leaves a stage by one of its inputs.
+fn input_as_output(file: &Arc<SourceFile>, a: &Endpoint, port: Port) -> Finding {
+    let span = a.port.as_ref().map(|p| p.span).unwrap_or(a.span);
+    Finding::new(
+        Code::M211,
+        file,
+        format!(
+            "`{}.{}` is an input, not an output",
+            a.stage.name,
+            port.name()
+        ),
+    )
+    .label(span, "edges leave a stage by `out`")
+    .help(format!(
+        "write `{} -> ...`, or reverse the edge",
+        a.stage.name
+    ))
+}
+
+/// The port an edge enters `stage` by (`b` names it, or its first
+/// input); M204 when the stage takes no input, M211 for its output.
+fn entry_port(file: &Arc<SourceFile>, stage: &Stage, b: &Endpoint) -> Result<Port, Finding> {
+    let port = match &b.port {
+        Some(p) => Port::from_name(&p.name),
+        None => stage_inputs(stage).first().map(|s| s.port),
+    };
+    match port {
+        None => Err(
+            Finding::new(Code::M204, file, format!("`{}` takes no input", stage.name))
+                .label(
+                    b.span,
+                    format!("{} has no input port", with_article(&describe(stage))),
+                )
+                .help(format!(
+                    "`{}` is a source; edges can only start from it",
+                    stage.name
+                )),
+        ),
+        Some(Port::Out) => {
+            let span = b.port.as_ref().map(|p| p.span).unwrap_or(b.span);
+            Err(Finding::new(
+                Code::M211,
+                file,
+                format!("`{}.out` is an output, not an input", b.stage.name),
+            )
+            .label(span, "edges enter a stage by an input")
+            .help(format!(
+                "write `... -> {}` for its default input",
+                b.stage.name
+            )))
+        }
+        Some(port) => Ok(port),
     }
 }
 
@@ -317,209 +319,270 @@ fn incoming(stages: usize, connections: &[Connection]) -> Vec<Vec<usize>> {
     into
 }
 
+/// The wiring the port checks look at: each stage's output signal and
+/// the edges into each stage.
+struct Wiring<'a> {
+    file: &'a Arc<SourceFile>,
+    stages: &'a [Stage],
+    connections: &'a [Connection],
+    outputs: Vec<Signal>,
+    incoming: Vec<Vec<usize>>,
+}
+
+impl Wiring<'_> {
+    /// The edges into `stage`'s `port`, in edge order.
+    fn edges_into(&self, stage: usize, port: Port) -> Vec<&Connection> {
+        self.incoming[stage]
+            .iter()
+            .map(|&k| &self.connections[k])
+            .filter(|c| c.to_port == port)
+            .collect()
+    }
+}
+
 fn check_ports(
     file: &Arc<SourceFile>,
     stages: &[Stage],
     connections: &[Connection],
     findings: &mut Findings,
 ) {
-    let outputs = output_signals(stages, connections);
-    let incoming = incoming(stages.len(), connections);
+    let wiring = Wiring {
+        file,
+        stages,
+        connections,
+        outputs: output_signals(stages, connections),
+        incoming: incoming(stages.len(), connections),
+    };
     for c in connections {
-        let target = &stages[c.to];
-        if target.incomplete || stages[c.from].incomplete {
-            continue;
-        }
-        let Some(spec) = stage_inputs(target)
-            .into_iter()
-            .find(|s| s.port == c.to_port)
-        else {
-            continue;
-        };
-        let signal = outputs[c.from];
-        if !spec.accepts.contains(&signal)
-            && target.kind == StageKind::Amplifier
-            && spec.port == Port::Ref
-        {
-            let source = &stages[c.from];
-            findings.push(
-                Finding::new(
-                    Code::M227,
-                    file,
-                    format!(
-                        "`{}` gives {} but the reference of amplifier `{}` must be a voltage",
-                        source.name,
-                        signal.noun(),
-                        target.name
-                    ),
-                )
-                .label(c.span, format!("{} into `{}.ref`", signal.noun(), target.name))
-                .label(source.name_span, format!("gives {}", signal.noun()))
-                .help(format!(
-                    "wire a voltage into `{}.ref` (a voltage excitation, a divider's output, a buffer amplifier), or state it in the block: `reference 2.5 V ± 0.1 %`",
-                    target.name
-                )),
-            );
-            continue;
-        }
-        if !spec.accepts.contains(&signal) {
-            let source = &stages[c.from];
-            let expects = spec
-                .accepts
-                .iter()
-                .map(|s| s.noun())
-                .collect::<Vec<_>>()
-                .join(" or ");
-            let help = match (signal, target.kind) {
-                (Signal::VoltageExcitation, StageKind::Sensor) => format!(
-                    "a voltage across a resistive sensor gives nothing to measure; wire `{}` and `{}` into a `bridge` (a `divider` for one element), or use a current excitation",
-                    source.name, target.name
-                ),
-                (Signal::Code | Signal::Reading, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
-                    "`{}` works on voltages, so it belongs before the converter: wire the signal into it first and its output into the `adc`",
-                    target.name
-                ),
-                (Signal::Element, _) => format!(
-                    "`{}` is a bare element here; drive it with a current excitation or wire it into a bridge arm: `{} -> bridge_name.arm`",
-                    source.name, source.name
-                ),
-                _ => format!("`{}.{}` takes {expects}", target.name, spec.port.name()),
-            };
-            findings.push(
-                Finding::new(
-                    Code::M204,
-                    file,
-                    format!(
-                        "`{}` gives {} but `{}.{}` expects {expects}",
-                        source.name,
-                        signal.noun(),
-                        target.name,
-                        spec.port.name()
-                    ),
-                )
-                .label(c.span, format!("{} into {expects}", signal.noun()))
-                .label(source.name_span, format!("gives {}", signal.noun()))
-                .help(help),
-            );
-        }
+        check_signal(&wiring, c, findings);
     }
     for (i, stage) in stages.iter().enumerate() {
         if stage.incomplete {
             continue;
         }
-        if let (Some(wired), Some(stated)) = (
-            incoming[i]
-                .iter()
-                .map(|&k| &connections[k])
-                .find(|c| c.to_port == Port::Ref && stage.kind == StageKind::Amplifier),
-            stage.params.iter().find(|p| p.name == "reference"),
-        ) {
-            let mut f = Finding::new(
-                Code::M228,
-                file,
-                format!(
-                    "amplifier `{}` has a `reference` line and a stage wired to its `ref`",
-                    stage.name
-                ),
-            )
-            .label(wired.span, "wired here");
-            if Arc::ptr_eq(&stated.file, file) {
-                f = f.label(stated.span, "stated here");
-            }
-            findings.push(f.help(format!(
-                "keep one: the edge into `{}.ref` when another stage sets the reference, the `reference` line when it is a stated voltage",
-                stage.name
-            )));
-        }
+        check_reference_twice(&wiring, i, findings);
         for spec in stage_inputs(stage) {
-            let into: Vec<&Connection> = incoming[i]
-                .iter()
-                .map(|&k| &connections[k])
-                .filter(|c| c.to_port == spec.port)
-                .collect();
+            let into = wiring.edges_into(i, spec.port);
             if spec.multi {
-                let wanted = ports::arm_count(stage.model);
-                if into.len() != wanted {
-                    let mut f = Finding::new(
-                        Code::M212,
-                        file,
-                        format!(
-                            "bridge `{}` has {} arm element{}; a {} bridge takes {wanted}",
-                            stage.name,
-                            into.len(),
-                            if into.len() == 1 { "" } else { "s" },
-                            stage.model.unwrap_or("")
-                        ),
-                    )
-                    .label(stage.name_span, format!("takes {wanted}"));
-                    for c in &into {
-                        f = f.label(c.span, "arm");
-                    }
-                    let elements = if wanted == 1 {
-                        "one sensor element"
-                    } else {
-                        "each sensor element"
-                    };
-                    findings.push(f.help(format!(
-                        "wire {elements} with `sensor_name -> {}.arm`",
-                        stage.name
-                    )));
-                }
+                findings.extend(arm_count(&wiring, i, &into));
                 continue;
             }
             if into.len() > 1 {
-                findings.push(
-                    Finding::new(
-                        Code::M205,
-                        file,
-                        format!("`{}.{}` is driven twice", stage.name, spec.port.name()),
-                    )
-                    .label(into[1].span, "second edge")
-                    .label(into[0].span, "first edge")
-                    .help("an input takes one edge; remove one, or add a stage that combines them"),
-                );
+                findings.push(driven_twice(&wiring, i, &spec, &into));
             }
             if into.is_empty() && spec.required {
-                let candidates: Vec<&str> = stages
-                    .iter()
-                    .enumerate()
-                    .filter(|(j, _)| *j != i && spec.accepts.contains(&outputs[*j]))
-                    .map(|(_, s)| s.name.as_str())
-                    .collect();
-                let port = if Some(spec.port) == stage_inputs(stage).first().map(|s| s.port) {
-                    stage.name.clone()
-                } else {
-                    format!("{}.{}", stage.name, spec.port.name())
-                };
-                let help = match (candidates.as_slice(), spec.port) {
-                    (_, Port::Ref) => format!(
-                        "wire a reference with `source -> {port}`, or give the converter `vref`"
-                    ),
-                    ([one], _) => format!("connect it: `{one} -> {port}`"),
-                    _ => format!(
-                        "connect {} to it: `source -> {port}`",
-                        spec.accepts
-                            .iter()
-                            .map(|s| s.noun())
-                            .collect::<Vec<_>>()
-                            .join(" or ")
-                    ),
-                };
-                findings.push(
-                    Finding::new(
-                        Code::M206,
-                        file,
-                        format!("`{}.{}` is not connected", stage.name, spec.port.name()),
-                    )
-                    .label(stage.name_span, format!("needs {}", spec.accepts[0].noun()))
-                    .help(help)
-                    .caused_by(stage.misnamed.clone()),
-                );
+                findings.push(not_connected(&wiring, i, &spec));
             }
         }
     }
     let loops = check_cycles(file, stages, connections, findings);
-    check_use(file, stages, connections, &outputs, &loops, findings);
+    check_use(file, stages, connections, &wiring.outputs, &loops, findings);
+}
+
+/// M227 or M204 when an edge carries a signal its port does not take.
+fn check_signal(wiring: &Wiring, c: &Connection, findings: &mut Findings) {
+    let (source, target) = (&wiring.stages[c.from], &wiring.stages[c.to]);
+    if target.incomplete || source.incomplete {
+        return;
+    }
+    let Some(spec) = stage_inputs(target)
+        .into_iter()
+        .find(|s| s.port == c.to_port)
+    else {
+        return;
+    };
+    let signal = wiring.outputs[c.from];
+    if spec.accepts.contains(&signal) {
+        return;
+    }
+    if target.kind == StageKind::Amplifier && spec.port == Port::Ref {
+        findings.push(
+            Finding::new(
+                Code::M227,
+                wiring.file,
+                format!(
+                    "`{}` gives {} but the reference of amplifier `{}` must be a voltage",
+                    source.name,
+                    signal.noun(),
+                    target.name
+                ),
+            )
+            .label(c.span, format!("{} into `{}.ref`", signal.noun(), target.name))
+            .label(source.name_span, format!("gives {}", signal.noun()))
+            .help(format!(
+                "wire a voltage into `{}.ref` (a voltage excitation, a divider's output, a buffer amplifier), or state it in the block: `reference 2.5 V ± 0.1 %`",
+                target.name
+            )),
+        );
+        return;
+    }
+    findings.push(wrong_signal(
+        wiring.file,
+        source,
+        target,
+        &spec,
+        signal,
+        c.span,
+    ));
+}
+
+/// M204: a signal into a port that expects another kind.
+fn wrong_signal(
+    file: &Arc<SourceFile>,
+    source: &Stage,
+    target: &Stage,
+    spec: &InputSpec,
+    signal: Signal,
+    edge: Span,
+) -> Finding {
+    let expects = nouns(spec.accepts);
+    let help = match (signal, target.kind) {
+        (Signal::VoltageExcitation, StageKind::Sensor) => format!(
+            "a voltage across a resistive sensor gives nothing to measure; wire `{}` and `{}` into a `bridge` (a `divider` for one element), or use a current excitation",
+            source.name, target.name
+        ),
+        (Signal::Code | Signal::Reading, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
+            "`{}` works on voltages, so it belongs before the converter: wire the signal into it first and its output into the `adc`",
+            target.name
+        ),
+        (Signal::Element, _) => format!(
+            "`{}` is a bare element here; drive it with a current excitation or wire it into a bridge arm: `{} -> bridge_name.arm`",
+            source.name, source.name
+        ),
+        _ => format!("`{}.{}` takes {expects}", target.name, spec.port.name()),
+    };
+    Finding::new(
+        Code::M204,
+        file,
+        format!(
+            "`{}` gives {} but `{}.{}` expects {expects}",
+            source.name,
+            signal.noun(),
+            target.name,
+            spec.port.name()
+        ),
+    )
+    .label(edge, format!("{} into {expects}", signal.noun()))
+    .label(source.name_span, format!("gives {}", signal.noun()))
+    .help(help)
+}
+
+/// The signals a port takes, in words: `a voltage or a current`.
+fn nouns(signals: &[Signal]) -> String {
+    signals
+        .iter()
+        .map(|s| s.noun())
+        .collect::<Vec<_>>()
+        .join(" or ")
+}
+
+/// M228: an amplifier's reference both stated and wired.
+fn check_reference_twice(wiring: &Wiring, i: usize, findings: &mut Findings) {
+    let stage = &wiring.stages[i];
+    if stage.kind != StageKind::Amplifier {
+        return;
+    }
+    let (Some(wired), Some(stated)) = (
+        wiring.edges_into(i, Port::Ref).first().copied(),
+        stage.params.iter().find(|p| p.name == "reference"),
+    ) else {
+        return;
+    };
+    let mut f = Finding::new(
+        Code::M228,
+        wiring.file,
+        format!(
+            "amplifier `{}` has a `reference` line and a stage wired to its `ref`",
+            stage.name
+        ),
+    )
+    .label(wired.span, "wired here");
+    if Arc::ptr_eq(&stated.file, wiring.file) {
+        f = f.label(stated.span, "stated here");
+    }
+    findings.push(f.help(format!(
+        "keep one: the edge into `{}.ref` when another stage sets the reference, the `reference` line when it is a stated voltage",
+        stage.name
+    )));
+}
+
+/// M212: a bridge with other than its model's number of arm elements.
+fn arm_count(wiring: &Wiring, i: usize, into: &[&Connection]) -> Option<Finding> {
+    let stage = &wiring.stages[i];
+    let wanted = ports::arm_count(stage.model);
+    if into.len() == wanted {
+        return None;
+    }
+    let mut f = Finding::new(
+        Code::M212,
+        wiring.file,
+        format!(
+            "bridge `{}` has {} arm element{}; a {} bridge takes {wanted}",
+            stage.name,
+            into.len(),
+            if into.len() == 1 { "" } else { "s" },
+            stage.model.unwrap_or("")
+        ),
+    )
+    .label(stage.name_span, format!("takes {wanted}"));
+    for c in into {
+        f = f.label(c.span, "arm");
+    }
+    let elements = if wanted == 1 {
+        "one sensor element"
+    } else {
+        "each sensor element"
+    };
+    Some(f.help(format!(
+        "wire {elements} with `sensor_name -> {}.arm`",
+        stage.name
+    )))
+}
+
+/// M205: an input with more than one edge.
+fn driven_twice(wiring: &Wiring, i: usize, spec: &InputSpec, into: &[&Connection]) -> Finding {
+    let stage = &wiring.stages[i];
+    Finding::new(
+        Code::M205,
+        wiring.file,
+        format!("`{}.{}` is driven twice", stage.name, spec.port.name()),
+    )
+    .label(into[1].span, "second edge")
+    .label(into[0].span, "first edge")
+    .help("an input takes one edge; remove one, or add a stage that combines them")
+}
+
+/// M206: a required input with no edge, and the stage that could drive it
+/// when only one can.
+fn not_connected(wiring: &Wiring, i: usize, spec: &InputSpec) -> Finding {
+    let stage = &wiring.stages[i];
+    let candidates: Vec<&str> = wiring
+        .stages
+        .iter()
+        .enumerate()
+        .filter(|(j, _)| *j != i && spec.accepts.contains(&wiring.outputs[*j]))
+        .map(|(_, s)| s.name.as_str())
+        .collect();
+    let port = if Some(spec.port) == stage_inputs(stage).first().map(|s| s.port) {
+        stage.name.clone()
+    } else {
+        format!("{}.{}", stage.name, spec.port.name())
+    };
+    let help = match (candidates.as_slice(), spec.port) {
+        (_, Port::Ref) => {
+            format!("wire a reference with `source -> {port}`, or give the converter `vref`")
+        }
+        ([one], _) => format!("connect it: `{one} -> {port}`"),
+        _ => format!("connect {} to it: `source -> {port}`", nouns(spec.accepts)),
+    };
+    Finding::new(
+        Code::M206,
+        wiring.file,
+        format!("`{}.{}` is not connected", stage.name, spec.port.name()),
+    )
+    .label(stage.name_span, format!("needs {}", spec.accepts[0].noun()))
+    .help(help)
+    .caused_by(stage.misnamed.clone())
 }
 
 /// Reports each loop (M207); returns its members with the finding.
@@ -614,71 +677,80 @@ fn check_use(
         }
         let touched = feeds_any[i] || fed[i] || junctions.contains(stage.name.as_str());
         if !touched {
-            findings.push(
-                Finding::new(
-                    Code::M208,
-                    file,
-                    format!("stage `{}` is not connected to anything", stage.name),
-                )
-                .label(stage.name_span, "unused")
-                .help(format!(
-                    "connect it with an edge such as `{} -> ...`, or remove it",
-                    stage.name
-                ))
-                .caused_by(stage.misnamed.clone()),
-            );
-            continue;
-        }
-        let feeds = feeds_any[i];
-        if stage.kind != StageKind::Convert && !feeds && outputs[i] != Signal::Reading {
-            findings.push(
-                Finding::new(
-                    Code::M213,
-                    file,
-                    format!("the output of `{}` goes nowhere", stage.name),
-                )
-                .label(stage.name_span, "output not used")
-                .help(format!(
-                    "connect it with `{} -> ...`, or remove the stage",
-                    stage.name
-                ))
-                .caused_by(stage.misnamed.clone()),
-            );
+            findings.push(unused(file, stage));
+        } else if stage.kind != StageKind::Convert && !feeds_any[i] && outputs[i] != Signal::Reading
+        {
+            findings.push(goes_nowhere(file, stage));
         }
     }
-    if stages.is_empty() {
-        return;
+    if !stages.is_empty() && finals.len() != 1 {
+        findings.push(not_one_ending(file, stages, &finals, loops));
     }
-    if finals.len() != 1 {
-        let chain_span = stages.first().map(|s| s.span).unwrap_or_default();
-        let mut f = Finding::new(
-            Code::M210,
-            file,
-            match finals.len() {
-                0 => "no `convert` stage ends the chain, so nothing becomes a reading".to_string(),
-                n => format!("{n} `convert` stages end the chain; it must end in one reading"),
-            },
+}
+
+/// M208: a stage no edge touches.
+fn unused(file: &Arc<SourceFile>, stage: &Stage) -> Finding {
+    Finding::new(
+        Code::M208,
+        file,
+        format!("stage `{}` is not connected to anything", stage.name),
+    )
+    .label(stage.name_span, "unused")
+    .help(format!(
+        "connect it with an edge such as `{} -> ...`, or remove it",
+        stage.name
+    ))
+    .caused_by(stage.misnamed.clone())
+}
+
+/// M213: a stage whose output feeds nothing.
+fn goes_nowhere(file: &Arc<SourceFile>, stage: &Stage) -> Finding {
+    Finding::new(
+        Code::M213,
+        file,
+        format!("the output of `{}` goes nowhere", stage.name),
+    )
+    .label(stage.name_span, "output not used")
+    .help(format!(
+        "connect it with `{} -> ...`, or remove the stage",
+        stage.name
+    ))
+    .caused_by(stage.misnamed.clone())
+}
+
+/// M210: no conversion, or several, ends the chain (`finals`).
+fn not_one_ending(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    finals: &[usize],
+    loops: &[(Vec<usize>, Cause)],
+) -> Finding {
+    let chain_span = stages.first().map(|s| s.span).unwrap_or_default();
+    let mut f = Finding::new(
+        Code::M210,
+        file,
+        match finals.len() {
+            0 => "no `convert` stage ends the chain, so nothing becomes a reading".to_string(),
+            n => format!("{n} `convert` stages end the chain; it must end in one reading"),
+        },
+    );
+    // A conversion that feeds a loop does not end the chain because
+    // of the loop.
+    let looped = loops.iter().find(|(members, _)| {
+        members
+            .iter()
+            .any(|&m| stages[m].kind == StageKind::Convert)
+    });
+    f = f.caused_by(looped.map(|(_, cause)| cause.clone()));
+    if finals.is_empty() {
+        return f.label(Span::new(chain_span.start, chain_span.start), "the chain's first stage").help(
+            "add `convert reading { method exact }` and an edge from the converter: `conv -> reading`",
         );
-        // A conversion that feeds a loop does not end the chain because
-        // of the loop.
-        let looped = loops.iter().find(|(members, _)| {
-            members
-                .iter()
-                .any(|&m| stages[m].kind == StageKind::Convert)
-        });
-        f = f.caused_by(looped.map(|(_, cause)| cause.clone()));
-        if finals.is_empty() {
-            f = f.label(Span::new(chain_span.start, chain_span.start), "the chain's first stage").help(
-                "add `convert reading { method exact }` and an edge from the converter: `conv -> reading`",
-            );
-        } else {
-            for &i in &finals {
-                f = f.label(stages[i].name_span, "ends the chain");
-            }
-            f = f.help("put each reading in its own chain, or feed a cold-junction reading into the main conversion with `cj_reading -> reading.cj`");
-        }
-        findings.push(f);
     }
+    for &i in finals {
+        f = f.label(stages[i].name_span, "ends the chain");
+    }
+    f.help("put each reading in its own chain, or feed a cold-junction reading into the main conversion with `cj_reading -> reading.cj`")
 }
 
 /// The names every `cold_junction` line refers to: those stages count as

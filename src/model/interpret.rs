@@ -5,8 +5,8 @@ use std::sync::Arc;
 
 use super::chain::Measurand;
 use super::schema::{Expect, Plausible, Shape};
-use super::suggest::did_you_mean;
 use super::value::{Basis, Drift, Measure, ParamValue, Tolerance};
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Code, Finding, SourceFile, Span};
 use crate::syntax::ast::{QuantityLit, ToleranceForm, ToleranceLit, Value};
 use crate::units::{parse_unit, Dim, Unit, UnitError, UnitKind, ZERO_CELSIUS_K};

@@ -10,7 +10,6 @@ pub mod ports;
 pub mod schema;
 mod settings;
 mod stage;
-mod suggest;
 pub mod track;
 pub mod value;
 
@@ -21,9 +20,8 @@ pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGr
 pub use graph::output_signals;
 pub use parts::PartsCache;
 pub use settings::DEFAULT_REFERENCE_K;
-pub use suggest::did_you_mean;
 
-use crate::diagnostics::{Code, Finding, Findings, SourceFile};
+use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile};
 use crate::syntax::Ast;
 
 /// What a spec leaves unsaid and a configuration file supplies: the

@@ -7,8 +7,8 @@ use super::chain::Stage;
 use super::interpret::{interpret, Context};
 use super::parts::Part;
 use super::schema::{self, ModelSpec, Shape};
-use super::suggest::did_you_mean;
 use super::value::ResolvedParam;
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile};
 use crate::syntax::ast::{Param, StageDecl};
 

@@ -6,8 +6,8 @@
 use std::sync::Arc;
 
 use super::chain::{Stage, TrackGroup, TrackMember};
-use super::did_you_mean;
 use super::value::{Measure, ParamValue};
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{StageKind, ToleranceForm, TrackDecl, Value};
 use crate::units::{parse_unit, Dim};

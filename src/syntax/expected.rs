@@ -7,7 +7,7 @@ use std::sync::Arc;
 use pest::error::{Error, ErrorVariant, InputLocation};
 
 use super::ast::{SettingKind, StageKind};
-use super::parser::Rule;
+use super::grammar::Rule;
 use crate::diagnostics::{Code, Finding, SourceFile, Span};
 
 fn describe(rule: Rule) -> Option<&'static str> {
@@ -171,6 +171,9 @@ pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Find
             f.labels.truncate(1);
             f
         }
+        // A line that starts with its right keyword (`chain a °{`) is
+        // wrong further on, where the parser's own finding points.
+        Rule::top_line if matches!(first, "chain" | "use") => finding,
         Rule::top_line | Rule::chain_line if !is_stage && !is_setting && !head.contains("->") => {
             let mut candidates: Vec<&str> = StageKind::ALL.iter().map(|k| k.keyword()).collect();
             candidates.extend(SettingKind::ALL.iter().map(|k| k.keyword()));
@@ -178,7 +181,7 @@ pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Find
             if anchored == Rule::top_line {
                 candidates = vec!["chain", "use"];
             }
-            let near = crate::model::did_you_mean(first, candidates.iter().copied());
+            let near = crate::diagnostics::did_you_mean(first, candidates.iter().copied());
             let help = match near {
                 Some(near) => format!("did you mean `{near}`?"),
                 None if anchored == Rule::chain_line => {

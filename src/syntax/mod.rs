@@ -3,6 +3,7 @@
 pub mod ast;
 mod expected;
 pub mod format;
+mod grammar;
 mod parser;
 mod prescan;
 

@@ -12,11 +12,8 @@ use super::ast::{
     Value,
 };
 use super::expected::explain_parse_error;
+use super::grammar::{CatenaParser, Rule};
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
-
-#[derive(pest_derive::Parser)]
-#[grammar = "../grammar/catena.pest"]
-pub(super) struct CatenaParser;
 
 /// Bounds pest's own recursion on hostile input (the prescan already
 /// bounds brace depth; this bounds everything else).
@@ -496,5 +493,70 @@ fn shift_value(v: Value, by: isize) -> Value {
             Value::Text(s)
         }
         Value::Comma(s) => Value::Comma(shift_span(s, by)),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::diagnostics::{Code, SourceFile, Span};
+
+    /// `spans! { name: "text with «the marked bytes»" => CODE; }`: parsing
+    /// the text (markers taken out) reports CODE, and the first such
+    /// finding's primary label covers exactly the marked bytes.
+    macro_rules! spans {
+        ($($name:ident: $source:expr => $code:ident;)*) => {
+            $(
+                #[test]
+                fn $name() {
+                    assert_span($source, Code::$code);
+                }
+            )*
+        };
+    }
+
+    fn assert_span(marked: &str, code: Code) {
+        let start = marked.find('«').expect("« opens the span");
+        let end = marked.find('»').expect("» closes the span") - '«'.len_utf8();
+        let text = marked.replace(['«', '»'], "");
+        let file = SourceFile::new("t.catena", text.clone());
+        let (_, findings) = crate::syntax::parse(&file);
+        let found: Vec<(Code, Option<Span>)> = findings
+            .iter()
+            .map(|f| (f.code, f.primary_span()))
+            .collect();
+        let first = found.iter().find(|(c, _)| *c == code);
+        assert_eq!(
+            first,
+            Some(&(code, Some(Span::new(start, end)))),
+            "{code:?} expected on `{}` ({start}..{end}); found {found:?}",
+            &text[start..end]
+        );
+    }
+
+    const HEAD: &str = "chain a {\n    measurand temperature 0 degC .. 50 degC\n";
+
+    #[test]
+    fn the_markers_give_byte_offsets() {
+        let marked = format!("{HEAD}    «ambeint» 0 degC .. 45 degC\n}}\n");
+        assert_eq!(marked.find('«'), Some(HEAD.len() + 4));
+        assert_span(&marked, Code::S001);
+    }
+
+    spans! {
+        misspelt_setting: "chain a {\n    measurand temperature 0 degC .. 50 degC\n    «ambeint» 0 degC .. 45 degC\n}\n" => S001;
+        stray_character: "chain a {\n    measurand temperature 0 degC .. 50 degC «$»\n}\n" => S001;
+        unclosed_brace: "chain a «{»\n    measurand temperature 0 degC .. 50 degC\n" => S002;
+        stray_closing_brace: "chain a {\n    measurand temperature 0 degC .. 50 degC\n}\n«}»\n" => S002;
+        wrong_arrow: "chain a {\n    measurand temperature 0 degC .. 50 degC\n    drive «=>» probe\n}\n" => S005;
+        misspelt_plus_minus: "chain a {\n    measurand temperature 0 degC .. 50 degC\n    amplifier front { gain 4 «+/-» 0.05 % }\n}\n" => S006;
+        unterminated_string: "chain a {\n    title «\"Deck oven»\n}\n" => S007;
+        nested_stage: "chain a {\n    measurand temperature 0 degC .. 50 degC\n    amplifier front { gain 4 «{» }\n}\n" => S008;
+        number_out_of_range: "chain a {\n    measurand temperature 0 degC .. 50 degC\n    amplifier front { offset «20e400» uV max }\n}\n" => S010;
+        setting_outside_a_chain: "«ambient» 10 degC .. 40 degC\nchain a {\n    measurand temperature 0 degC .. 50 degC\n}\n" => S011;
+        negative_tolerance: "chain a {\n    measurand temperature 0 degC .. 50 degC\n    amplifier front { gain 4 ± «-0.05» % }\n}\n" => S013;
+        bidirectional_control: "chain a {\n    # a comment «\u{202e}» here\n    measurand temperature 0 degC .. 50 degC\n}\n" => S016;
+        // Not `chain` said not to start a statement, with "did you mean
+        // `chain`?": the keyword is right, the rest of the line is wrong.
+        right_keyword_wrong_after: "chain a «°{»\n}\n" => S001;
     }
 }

@@ -76,57 +76,26 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
     while let Some((i, c)) = chars.next() {
         match c {
             '#' => while chars.next_if(|&(_, c)| c != '\n').is_some() {},
-            '"' => {
-                let mut closed = false;
-                while let Some((_, c)) = chars.next_if(|&(_, c)| c != '\n') {
-                    if c == '\\' {
-                        chars.next_if(|&(_, c)| c != '\n');
-                    } else if c == '"' {
-                        closed = true;
-                        break;
-                    }
-                }
-                if !closed {
-                    let end = chars.peek().map(|&(j, _)| j).unwrap_or(text.len());
-                    findings.push(
-                        Finding::new(Code::S007, file, "string is not closed on its line")
-                            .label(Span::new(i, end), "this string has no closing `\"`")
-                            .help(
-                                "add a `\"` before the end of the line; strings cannot span lines",
-                            ),
-                    );
-                }
-            }
+            '"' => findings.extend(string_end(file, &mut chars, i)),
             '{' => {
                 open.push(i);
                 if open.len() > MAX_DEPTH && !too_deep_reported {
                     too_deep_reported = true;
-                    findings.push(
-                        Finding::new(
-                            Code::S008,
-                            file,
-                            format!("blocks nest {} deep; the language nests at most {MAX_DEPTH}", open.len()),
-                        )
-                        .label(Span::new(i, i + 1), "this block is inside a stage")
-                        .help("a `chain` holds stages and a stage holds parameter lines; close the stage with `}` first"),
-                    );
+                    findings.push(too_deep(file, i, open.len()));
                 }
             }
-            '}' => {
-                let popped = open.pop();
-                if let Some(o) = popped {
+            '}' => match open.pop() {
+                Some(o) => {
                     if indent_of(i) < indent_of(o) && suspect.is_none() {
                         suspect = Some(o);
                     }
                 }
-                if popped.is_none() {
-                    findings.push(
-                        Finding::new(Code::S002, file, "`}` closes nothing")
-                            .label(Span::new(i, i + 1), "no block is open here")
-                            .help("remove this `}` or add the `{` it was meant to close"),
-                    );
-                }
-            }
+                None => findings.push(
+                    Finding::new(Code::S002, file, "`}` closes nothing")
+                        .label(Span::new(i, i + 1), "no block is open here")
+                        .help("remove this `}` or add the `{` it was meant to close"),
+                ),
+            },
             _ => {}
         }
     }
@@ -135,20 +104,58 @@ pub fn scan(file: &Arc<SourceFile>) -> Findings {
         open = vec![s];
     }
     for &at in open.iter().rev().take(MAX_UNCLOSED_REPORTED) {
-        let line_start = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
-        let head = text[line_start..at].trim();
-        let help = if head.is_empty() {
-            "add the `}` that closes this block".to_string()
-        } else {
-            format!("add a `}}` after the last line of `{head}`")
-        };
-        findings.push(
-            Finding::new(Code::S002, file, "`{` is never closed")
-                .label(Span::new(at, at + 1), "this block has no closing `}`")
-                .help(help),
-        );
+        findings.push(never_closed(file, at));
     }
     findings
+}
+
+/// Skips a string opened at `start`; S007 when the line ends first.
+fn string_end(
+    file: &Arc<SourceFile>,
+    chars: &mut std::iter::Peekable<std::str::CharIndices>,
+    start: usize,
+) -> Option<Finding> {
+    while let Some((_, c)) = chars.next_if(|&(_, c)| c != '\n') {
+        if c == '\\' {
+            chars.next_if(|&(_, c)| c != '\n');
+        } else if c == '"' {
+            return None;
+        }
+    }
+    let end = chars.peek().map(|&(j, _)| j).unwrap_or(file.text().len());
+    Some(
+        Finding::new(Code::S007, file, "string is not closed on its line")
+            .label(Span::new(start, end), "this string has no closing `\"`")
+            .help("add a `\"` before the end of the line; strings cannot span lines"),
+    )
+}
+
+/// S008 at the first `{` deeper than the language nests.
+fn too_deep(file: &Arc<SourceFile>, at: usize, depth: usize) -> Finding {
+    Finding::new(
+        Code::S008,
+        file,
+        format!("blocks nest {depth} deep; the language nests at most {MAX_DEPTH}"),
+    )
+    .label(Span::new(at, at + 1), "this block is inside a stage")
+    .help(
+        "a `chain` holds stages and a stage holds parameter lines; close the stage with `}` first",
+    )
+}
+
+/// S002 at a `{` without its `}`, naming the line it opens.
+fn never_closed(file: &Arc<SourceFile>, at: usize) -> Finding {
+    let text = file.text();
+    let line_start = text[..at].rfind('\n').map(|n| n + 1).unwrap_or(0);
+    let head = text[line_start..at].trim();
+    let help = if head.is_empty() {
+        "add the `}` that closes this block".to_string()
+    } else {
+        format!("add a `}}` after the last line of `{head}`")
+    };
+    Finding::new(Code::S002, file, "`{` is never closed")
+        .label(Span::new(at, at + 1), "this block has no closing `}`")
+        .help(help)
 }
 
 /// Names are at most this long. A name is repeated in every source id,

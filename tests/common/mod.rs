@@ -46,6 +46,32 @@ pub fn catena(dir: &Path, args: &[&str], stdin: Option<&[u8]>) -> Run {
     }
 }
 
+/// A fresh, empty folder under the system's temporary folder, its name
+/// made of `prefix`, this test binary's process id and `name`.
+pub fn temp_dir(prefix: &str, name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("catena-{prefix}-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("a temporary folder can be made");
+    dir
+}
+
+/// Runs `git` in `dir` with a throwaway identity; fails the test if it
+/// fails.
+pub fn git(dir: &Path, args: &[&str]) {
+    let status = Command::new("git")
+        .args(["-c", "user.name=t", "-c", "user.email=t@example.invalid"])
+        .args(args)
+        .current_dir(dir)
+        .status()
+        .expect("git runs");
+    assert!(status.success(), "git {args:?}");
+}
+
+/// A command's standard output parsed as JSON.
+pub fn json(stdout: &str) -> serde_json::Value {
+    serde_json::from_str(stdout).unwrap_or_else(|e| panic!("not JSON ({e}): {stdout}"))
+}
+
 /// Every demo spec, sorted.
 pub fn demo_specs() -> Vec<PathBuf> {
     let mut specs: Vec<PathBuf> = std::fs::read_dir(root().join("specs"))
