@@ -12,6 +12,7 @@ use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::ranges::DEFAULT_MARGIN;
 use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
 use crate::analysis::soundness;
+use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Findings, Severity};
 use crate::emit::report::{
     chain_report, failed_report, render, summary_row, BuildOptions, Report, ReportFormat,
@@ -19,7 +20,6 @@ use crate::emit::report::{
 };
 use crate::emit::write_atomic;
 use crate::eval::lower;
-use crate::model::did_you_mean;
 
 #[derive(Args, Debug)]
 pub struct ReportArgs {
@@ -177,28 +177,7 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
             }
         },
     };
-    let trials = args
-        .trials
-        .or(config.trials.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_TRIALS);
-    let seed = args
-        .seed
-        .or(config.seed.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_SEED);
-    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
-    let options = Options {
-        budget: BudgetOptions {
-            points: args.points,
-            ..BudgetOptions::default()
-        },
-        trials: (trials > 0).then_some(trials),
-        seed,
-        detail: true,
-    };
-    let build = BuildOptions {
-        points: args.points,
-        margin,
-    };
+    let (options, build) = options(args, &config);
     let reports: Vec<_> = chains
         .into_iter()
         .map(|chain| {
@@ -229,13 +208,41 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
             tool_version: env!("CARGO_PKG_VERSION").to_string(),
             timestamp: args.timestamp.then(now_utc),
             trials: options.trials.unwrap_or(0),
-            seed,
+            seed: options.seed,
             points: args.points,
-            margin,
+            margin: build.margin,
         },
         summary: reports.iter().map(summary_row).collect(),
         chains: reports,
     })
+}
+
+/// The analyses' options and the builder's: flags first, then
+/// `catena.yaml`, then the defaults.
+fn options(args: &ReportArgs, config: &crate::config::Config) -> (Options, BuildOptions) {
+    let trials = args
+        .trials
+        .or(config.trials.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_TRIALS);
+    let seed = args
+        .seed
+        .or(config.seed.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_SEED);
+    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
+    let options = Options {
+        budget: BudgetOptions {
+            points: args.points,
+            ..BudgetOptions::default()
+        },
+        trials: (trials > 0).then_some(trials),
+        seed,
+        detail: true,
+    };
+    let build = BuildOptions {
+        points: args.points,
+        margin,
+    };
+    (options, build)
 }
 
 fn show(findings: &Findings) {

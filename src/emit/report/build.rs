@@ -451,29 +451,7 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
     let points = &a.budget.points;
     let worst = (0..points.len())
         .max_by(|&x, &y| points[x].gum_expanded.total_cmp(&points[y].gum_expanded));
-    let mut contributors: Vec<Contributor> = worst
-        .map(|i| {
-            points[i]
-                .contributions
-                .iter()
-                .map(|c| Contributor {
-                    id: c.id.clone(),
-                    kind: c.kind.to_string(),
-                    contribution: c.worst * f,
-                    standard_uncertainty: c.standard * f,
-                    gum_share: points[i].gum_share(c),
-                    monte_carlo_share: a.monte_carlo_share(i, &c.id),
-                })
-                .collect()
-        })
-        .unwrap_or_default();
-    // Largest first; the id breaks ties so the order is stable.
-    contributors.sort_by(|x, y| {
-        y.standard_uncertainty
-            .total_cmp(&x.standard_uncertainty)
-            .then_with(|| x.id.cmp(&y.id))
-    });
-    contributors.truncate(CONTRIBUTORS);
+    let contributors = worst.map(|i| contributors(a, i, f)).unwrap_or_default();
     BudgetSection {
         totals: o
             .worst
@@ -527,6 +505,31 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
             .map(|v| v.limit * f)
             .filter(|_| chain.requirements.iter().any(|r| r.kind == "accuracy")),
     }
+}
+
+/// The sources at budget point `i`, largest first (the id breaks ties so
+/// the order is stable), at most [`CONTRIBUTORS`].
+fn contributors(a: &Analysis, i: usize, f: f64) -> Vec<Contributor> {
+    let p = &a.budget.points[i];
+    let mut out: Vec<Contributor> = p
+        .contributions
+        .iter()
+        .map(|c| Contributor {
+            id: c.id.clone(),
+            kind: c.kind.to_string(),
+            contribution: c.worst * f,
+            standard_uncertainty: c.standard * f,
+            gum_share: p.gum_share(c),
+            monte_carlo_share: a.monte_carlo_share(i, &c.id),
+        })
+        .collect();
+    out.sort_by(|x, y| {
+        y.standard_uncertainty
+            .total_cmp(&x.standard_uncertainty)
+            .then_with(|| x.id.cmp(&y.id))
+    });
+    out.truncate(CONTRIBUTORS);
+    out
 }
 
 fn noise(a: &Analysis, units: &Units) -> NoiseSection {

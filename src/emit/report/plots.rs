@@ -395,51 +395,10 @@ fn diagram(c: &ChainReport, key: &str) -> Plot {
             continue;
         };
         let target = d.nodes.iter().position(|n| n.name == e.to).unwrap_or(0);
-        let (x1, y1) = (a.0 + box_w, a.1 + BOX_H / 2.0);
-        let side = e.port == "in" && b.0 > a.0;
-        let (x2, y2) = if side {
-            (b.0, b.1 + BOX_H / 2.0)
-        } else {
-            (b.0 + box_w * port_share(&e.port), b.1 + BOX_H)
-        };
-        let (c1, c2) = if side {
-            (
-                format!("{} {}", r((x1 + x2) / 2.0), r(y1)),
-                format!("{} {}", r((x1 + x2) / 2.0), r(y2)),
-            )
-        } else {
-            (
-                format!("{} {}", r(x2), r(y1)),
-                format!("{} {}", r(x2), r(y2 + 30.0)),
-            )
-        };
-        let (tx, ty, anchor, text) = if side {
-            (x2 - 8.0, y2 - 6.0, "end", short(&e.signal).to_string())
-        } else {
-            let k = below[target];
+        let k = below[target];
+        if edge(&mut s, e, (a, b), box_w, &id, k) {
             below[target] += 1;
-            (
-                x2 + 6.0,
-                y2 + 14.0 + 13.0 * k as f64,
-                "start",
-                format!("{}: {}", e.port, short(&e.signal)),
-            )
-        };
-        let _ = write!(
-            s,
-            r##"<path class="data" d="M{x1} {y1} C{c1} {c2} {x2} {y2}" fill="none" stroke="#333333" stroke-width="1.4" marker-end="url(#{id}-arrow)"><title>{} → {}.{}: {}</title></path><text x="{tx}" y="{ty}" text-anchor="{anchor}" class="edge">{}</text>"##,
-            escape(&e.from),
-            escape(&e.to),
-            escape(&e.port),
-            escape(&e.signal),
-            escape(&text),
-            x1 = r(x1),
-            y1 = r(y1),
-            x2 = r(x2),
-            y2 = r(y2),
-            tx = r(tx),
-            ty = r(ty),
-        );
+        }
     }
     for (node, &(x, y)) in d.nodes.iter().zip(&place) {
         let colour = PALETTE[kind_index(&node.kind)];
@@ -515,6 +474,61 @@ fn short(signal: &str) -> &str {
         "excitation voltage" => "excitation",
         other => other,
     }
+}
+
+/// Draws one edge from box `a` to box `b` with its label: beside the
+/// arrow on a box's left side, or under the box (line `k` there) for
+/// any other input. Returns whether it used a line under the box.
+fn edge(
+    s: &mut String,
+    e: &super::model::DiagramEdge,
+    (a, b): ((f64, f64), (f64, f64)),
+    box_w: f64,
+    id: &str,
+    k: usize,
+) -> bool {
+    let (x1, y1) = (a.0 + box_w, a.1 + BOX_H / 2.0);
+    let side = e.port == "in" && b.0 > a.0;
+    let (x2, y2) = if side {
+        (b.0, b.1 + BOX_H / 2.0)
+    } else {
+        (b.0 + box_w * port_share(&e.port), b.1 + BOX_H)
+    };
+    let (c1, c2) = if side {
+        let mx = r((x1 + x2) / 2.0);
+        (format!("{mx} {}", r(y1)), format!("{mx} {}", r(y2)))
+    } else {
+        (
+            format!("{} {}", r(x2), r(y1)),
+            format!("{} {}", r(x2), r(y2 + 30.0)),
+        )
+    };
+    let (tx, ty, anchor, text) = if side {
+        (x2 - 8.0, y2 - 6.0, "end", short(&e.signal).to_string())
+    } else {
+        (
+            x2 + 6.0,
+            y2 + 14.0 + 13.0 * k as f64,
+            "start",
+            format!("{}: {}", e.port, short(&e.signal)),
+        )
+    };
+    let _ = write!(
+        s,
+        r##"<path class="data" d="M{x1} {y1} C{c1} {c2} {x2} {y2}" fill="none" stroke="#333333" stroke-width="1.4" marker-end="url(#{id}-arrow)"><title>{} → {}.{}: {}</title></path><text x="{tx}" y="{ty}" text-anchor="{anchor}" class="edge">{}</text>"##,
+        escape(&e.from),
+        escape(&e.to),
+        escape(&e.port),
+        escape(&e.signal),
+        escape(&text),
+        x1 = r(x1),
+        y1 = r(y1),
+        x2 = r(x2),
+        y2 = r(y2),
+        tx = r(tx),
+        ty = r(ty),
+    );
+    !side
 }
 
 fn r(x: f64) -> String {

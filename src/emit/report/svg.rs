@@ -401,29 +401,7 @@ impl Chart {
                 style,
                 lower,
                 upper,
-            } => {
-                let mut pts: Vec<(f64, f64)> = upper.clone();
-                pts.extend(lower.iter().rev().copied());
-                let _ = write!(
-                    s,
-                    r#"<path class="data" d="{} Z" fill="{}" fill-opacity="0.22" stroke="none"><title>{}</title></path>"#,
-                    self.path(&pts),
-                    style.colour(),
-                    escape(label)
-                );
-                let dash = match style.dash() {
-                    "" => String::new(),
-                    d => format!(r#" stroke-dasharray="{d}""#),
-                };
-                for edge in [upper, lower] {
-                    let _ = write!(
-                        s,
-                        r#"<path class="data" d="{}" fill="none" stroke="{}" stroke-width="1.2"{dash}/>"#,
-                        self.path(edge),
-                        style.colour()
-                    );
-                }
-            }
+            } => self.band(s, label, *style, lower, upper),
             Item::HLimit { label, y } => {
                 let _ = write!(
                     s,
@@ -447,6 +425,38 @@ impl Chart {
                     escape(label)
                 );
             }
+        }
+    }
+
+    /// A filled band with its edges drawn in the series' dash.
+    fn band(
+        &self,
+        s: &mut String,
+        label: &str,
+        style: Style,
+        lower: &[(f64, f64)],
+        upper: &[(f64, f64)],
+    ) {
+        let mut pts: Vec<(f64, f64)> = upper.to_vec();
+        pts.extend(lower.iter().rev().copied());
+        let _ = write!(
+            s,
+            r#"<path class="data" d="{} Z" fill="{}" fill-opacity="0.22" stroke="none"><title>{}</title></path>"#,
+            self.path(&pts),
+            style.colour(),
+            escape(label)
+        );
+        let dash = match style.dash() {
+            "" => String::new(),
+            d => format!(r#" stroke-dasharray="{d}""#),
+        };
+        for edge in [upper, lower] {
+            let _ = write!(
+                s,
+                r#"<path class="data" d="{}" fill="none" stroke="{}" stroke-width="1.2"{dash}/>"#,
+                self.path(edge),
+                style.colour()
+            );
         }
     }
 
