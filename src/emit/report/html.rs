@@ -9,7 +9,7 @@ use std::fmt::Write;
 use super::svg::escape;
 
 /// Print and screen styles: A4 and Letter both fit the content width,
-/// each chain and each major section starts a page, a plot never splits.
+/// each chain and each long section starts a page, a plot never splits.
 const CSS: &str = "\
 :root{color-scheme:light}\
 body{font-family:system-ui,-apple-system,'Segoe UI',Roboto,sans-serif;color:#1d1d1d;background:#ffffff;margin:0;line-height:1.45}\
@@ -33,6 +33,7 @@ figcaption{font-size:0.85em;color:#555555}\
 main{max-width:none;padding:0}\
 body{font-size:10.5pt}\
 h2{break-before:page;page-break-before:always}\
+h1+h2{break-before:auto;page-break-before:auto}\
 h3.part{break-before:page;page-break-before:always}\
 h2,h3,h4{break-after:avoid;page-break-after:avoid}\
 tr,figure,svg{break-inside:avoid;page-break-inside:avoid}\
@@ -71,11 +72,12 @@ pub fn page(title: &str, body: &str) -> String {
 
 fn block(out: &mut String, line: &str, plots: &[(String, String)]) {
     if let Some(t) = line.strip_prefix("### ") {
-        let class = if t == "Verdict" {
-            ""
-        } else {
-            " class=\"part\""
-        };
+        // The long sections start a printed page; the short ones flow.
+        let long = matches!(
+            t,
+            "Stages" | "Error budget" | "Noise and resolution" | "Limits"
+        );
+        let class = if long { " class=\"part\"" } else { "" };
         let _ = writeln!(out, "<h3{class}>{}</h3>", inline(t));
     } else if let Some(t) = line.strip_prefix("## ") {
         let _ = writeln!(out, "<h2>{}</h2>", inline(t));
