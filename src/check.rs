@@ -5,7 +5,7 @@ use std::path::Path;
 use std::sync::Arc;
 
 use crate::analysis::{self, report::Analysis};
-use crate::diagnostics::{Code, Findings, Severity, SourceFile};
+use crate::diagnostics::{Category, Code, Findings, Severity, SourceFile};
 use crate::eval::{self, EvalError, Plan};
 use crate::model::{self, Chain, PartsCache};
 use crate::syntax;
@@ -22,7 +22,7 @@ pub struct CheckedFile {
     /// range, a requirement missed) and the chains still evaluate.
     pub resolved: bool,
     /// Per chain, in order, when the check was made for a report
-    /// ([`analysis::CheckOptions::for_report`]): what it computed, for the
+    /// ([`analysis::CheckOptions::keep`]): what it computed, for the
     /// report to reuse instead of lowering and analysing again.
     pub analysed: Vec<Analysed>,
 }
@@ -127,7 +127,8 @@ pub fn check_bytes_configured(
         // A line the parser swallowed is missing from the graph, so graph
         // findings would be echoes of the syntax error; the other checks
         // are local to their line and still stand.
-        let echo = f.code.as_str().starts_with('M') || matches!(f.code, Code::P302 | Code::P307);
+        let echo =
+            f.code.category() == Category::Graph || matches!(f.code, Code::P302 | Code::P307);
         let same_line = Arc::ptr_eq(&f.file, &file)
             && syntax_lines.contains(&file.line_column(f.primary_offset()).0);
         let suppressed = same_line || (syntax_failed && echo);
@@ -141,7 +142,7 @@ pub fn check_bytes_configured(
         for chain in &chains {
             let checked = analysis::check_chain(chain, options);
             findings.extend(checked.findings);
-            if options.for_report {
+            if options.keep != analysis::Keep::Nothing {
                 analysed.push(Analysed {
                     plan: checked.plan,
                     analysis: checked.analysis,

@@ -237,6 +237,32 @@ fn full_bridge_is_exact() {
     assert!((v["reading"]["value"].as_f64().unwrap() - 500.0).abs() < 1e-3);
 }
 
+/// A half bridge with its two gauges in opposite arms (r2 and r3, both in
+/// tension), worked by hand: V = V_exc (R+ /(R + R+) − R /(R+ + R)) with
+/// R+ = 350 (1 + 2.0 × 1000e-6) = 350.7 Ω, so 5 V × 0.7 / 700.7 =
+/// 4.99500 mV, slightly under the small-strain V GF ε / 2 = 5 mV.
+#[test]
+fn half_bridge_is_exact() {
+    let v = eval("half_bridge.catena", &["--at", "1000 ue"]);
+    let want = 5.0 * 0.7 / 700.7;
+    let got = node(&v, "completion");
+    assert!((got - want).abs() < 1e-12, "{got} vs {want}");
+    assert!((v["reading"]["value"].as_f64().unwrap() - 1000.0).abs() < 1e-3);
+}
+
+/// A PTAT current source of 1 µA/K into 10 kΩ, by hand: at 25 degC
+/// (298.15 K) 298.15 µA and 2.9815 V; the 16-bit code on 4.096 V is
+/// 2.9815 / 4.096 × 2¹⁶ = 47704.0, and the exact conversion reads 25 degC
+/// (the reading is in the measurand's unit as written).
+#[test]
+fn ptat_current_into_a_resistor() {
+    let v = eval("ptat_current.catena", &["--at", "25 degC"]);
+    assert!((node(&v, "ptat") - 298.15e-6).abs() < 1e-15);
+    assert!((node(&v, "load") - 2.9815).abs() < 1e-12);
+    assert_eq!(node(&v, "conv"), 47704.0);
+    assert!((v["reading"]["value"].as_f64().unwrap() - 25.0).abs() < 1e-6);
+}
+
 /// A spec with an error the analyses found still evaluates: the stage
 /// values are what the engineer needs to fix it. A gain of 3 on 1.5 V
 /// against a 3.3 V swing (R601): at 100 degC the amplifier sits at its

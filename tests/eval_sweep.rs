@@ -91,7 +91,7 @@ fn quantized_readings_stay_within_a_code() {
             let conversions = plan
                 .nodes
                 .iter()
-                .filter(|n| matches!(n, catena::eval::Node::Convert { .. }))
+                .filter(|n| matches!(n, catena::eval::Node::Convert(_)))
                 .count();
             if conversions > 1 {
                 continue;
@@ -141,7 +141,7 @@ fn the_junction_shifted_inverse_matches_the_general_solver() {
     let mut general = shifted.clone();
     let mut tables = 0;
     for node in &mut general.nodes {
-        if let catena::eval::Node::Convert { conversion, .. } = node {
+        if let catena::eval::Node::Convert(catena::eval::node::Convert { conversion, .. }) = node {
             if let Some(table) = &mut conversion.inverse {
                 if matches!(table.stands_for, TableUse::Junction { .. }) {
                     table.stands_for = TableUse::Start;

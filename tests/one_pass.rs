@@ -8,7 +8,7 @@ use std::path::Path;
 
 use catena::analysis::budget;
 use catena::analysis::report::{analyse, analyse_reusing, Options};
-use catena::analysis::CheckOptions;
+use catena::analysis::{CheckOptions, Keep};
 use catena::check::{check_bytes_with, CheckedFile};
 use catena::eval::lower;
 use catena::model::PartsCache;
@@ -61,7 +61,7 @@ fn a_report_from_the_checks_analysis_is_the_fresh_one() {
     let options = CheckOptions {
         monte_carlo: true,
         trials: TRIALS,
-        for_report: true,
+        keep: Keep::Reports,
         ..CheckOptions::default()
     };
     let mut reused = 0;
@@ -110,12 +110,17 @@ fn check_alone_keeps_no_plan() {
 fn findings_are_the_same_with_or_without_a_report() {
     for spec in specs() {
         let alone = checked(&spec, &CheckOptions::default());
-        let for_report = CheckOptions {
-            for_report: true,
-            ..CheckOptions::default()
-        };
-        let before_report = checked(&spec, &for_report);
         let show = |c: &CheckedFile| format!("{:?}", c.findings.clone().sorted());
-        assert_eq!(show(&alone), show(&before_report), "{}", spec.display());
+        for keep in [Keep::Plans, Keep::Reports] {
+            let kept = checked(
+                &spec,
+                &CheckOptions {
+                    keep,
+                    ..CheckOptions::default()
+                },
+            );
+            assert_eq!(show(&alone), show(&kept), "{} {keep:?}", spec.display());
+            assert_eq!(kept.analysed.len(), kept.chains.len());
+        }
     }
 }

@@ -211,7 +211,7 @@ pub fn budget(chain: &Chain, plan: &Plan, options: &Options) -> Result<Budget, E
         cold_junction: plan.reference,
     };
     let (v_slope, c_slope) = slopes(plan, &mid)?;
-    let noise = noise(chain, plan, &mid, v_slope, code_step(c_slope));
+    let noise = noise(plan, &mid, v_slope, code_step(c_slope));
     let conditions = conditions(chain, plan, options.points);
     let sources = Perturbations::of(plan)?;
     // Points are independent: on every core, gathered in order.
@@ -404,20 +404,17 @@ fn quantization(
     }
 }
 
-fn point(
+/// Each perturbed source's contribution from its effects on the reading
+/// at its two limits.
+fn source_contributions(
     plan: &Plan,
-    env: &Env,
     sources: &Perturbations,
-    noise: &Noise,
-    k: f64,
-) -> Result<Point, EvalError> {
-    let r0 = plan.unquantized_reading_calibrated(&plan.nominal, env, &sources.nominal)?;
-    let (volts_per_unit, codes_per_unit) = slopes(plan, env)?;
-    let effects = source_effects(plan, env, sources, r0)?;
-    let mut contributions = Vec::with_capacity(sources.sources.len() + 3);
+    effects: &[(f64, f64)],
+) -> Vec<Contribution> {
     // Below this an effect is the arithmetic's rounding, not the source's.
     let floor = 1e-9 * (plan.range.1 - plan.range.0);
-    for (source, &(low, high)) in sources.sources.iter().zip(&effects) {
+    let mut contributions = Vec::with_capacity(sources.sources.len() + 3);
+    for (source, &(low, high)) in sources.sources.iter().zip(effects) {
         let divisor = if source.normal { 3.0 } else { SQRT3 };
         // A tracking group moves its slots together, each to its limit: the
         // first slot's limits place the source's two ends.
@@ -436,6 +433,37 @@ fn point(
             linear,
         });
     }
+    contributions
+}
+
+/// Noise as a 3σ bound in the worst case (common practice), σ in the GUM
+/// sum; none where there is none.
+fn noise_contribution(noise: &Noise) -> Option<Contribution> {
+    (noise.sigma_averaged > 0.0).then(|| {
+        let three = 3.0 * noise.sigma_averaged;
+        Contribution {
+            id: "noise".into(),
+            kind: "noise",
+            low: -three,
+            high: three,
+            worst: three,
+            standard: noise.sigma_averaged,
+            linear: true,
+        }
+    })
+}
+
+fn point(
+    plan: &Plan,
+    env: &Env,
+    sources: &Perturbations,
+    noise: &Noise,
+    k: f64,
+) -> Result<Point, EvalError> {
+    let r0 = plan.unquantized_reading_calibrated(&plan.nominal, env, &sources.nominal)?;
+    let (volts_per_unit, codes_per_unit) = slopes(plan, env)?;
+    let effects = source_effects(plan, env, sources, r0)?;
+    let mut contributions = source_contributions(plan, sources, &effects);
     // Sources computed from the chain rather than a slot.
     let (low, high) = quantization(plan, env, &sources.nominal, r0, codes_per_unit);
     contributions.push(Contribution {
@@ -447,19 +475,7 @@ fn point(
         standard: (high - low).abs() / 2.0 / SQRT3,
         linear: true,
     });
-    if noise.sigma_averaged > 0.0 {
-        // Noise as a 3σ bound in the worst case (common practice).
-        let three = 3.0 * noise.sigma_averaged;
-        contributions.push(Contribution {
-            id: "noise".into(),
-            kind: "noise",
-            low: -three,
-            high: three,
-            worst: three,
-            standard: noise.sigma_averaged,
-            linear: true,
-        });
-    }
+    contributions.extend(noise_contribution(noise));
     let linearisation = r0 - env.measurand;
     if linearisation.abs() > 1e-9 * (plan.range.1 - plan.range.0) {
         // A known error the firmware leaves uncorrected: in the totals as a

@@ -4,10 +4,9 @@
 //! `n` conversions — and the chain's attenuation at mains frequencies and
 //! at the converter's rate.
 
-use super::stages::{low_pass, number, signal_path, stage};
+use super::stages::signal_path;
 use super::step::{Averaging, StepModel};
-use crate::eval::{Node, Plan, Senses};
-use crate::model::Chain;
+use crate::eval::{node, Node, Plan, Senses};
 use crate::physics::filter::LowPass;
 
 /// Mains frequencies every report states attenuation at, Hz.
@@ -88,20 +87,18 @@ impl Dynamics {
     }
 }
 
-pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
+pub fn dynamics(plan: &Plan) -> Dynamics {
     let path = signal_path(plan, plan.adc);
     let mut filter = None;
     let mut rate_hz = None;
     let mut notch_hz = None;
     for &n in &path {
-        let Some(s) = stage(chain, plan, n) else {
-            continue;
-        };
+        let stated = &plan.stated[n];
         match &plan.nodes[n] {
-            Node::Filter { .. } => filter = filter.or_else(|| low_pass(s)),
-            Node::Adc { .. } => {
-                rate_hz = number(s, "rate");
-                notch_hz = number(s, "notch");
+            Node::Filter(_) => filter = filter.or(stated.low_pass),
+            Node::Adc(_) => {
+                rate_hz = stated.rate_hz;
+                notch_hz = stated.notch_hz;
             }
             _ => {}
         }
@@ -109,22 +106,11 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
     // The sensing element: the measurand's sensor on the path (a series
     // string's element is driven by the excitation, so look at all
     // measurand sensors and take the slowest).
-    let sensor_time_constant = chain
-        .stages
-        .iter()
-        .filter(|s| s.kind == crate::syntax::ast::StageKind::Sensor)
-        .filter(|s| {
-            plan.names
-                .iter()
-                .position(|n| *n == s.name)
-                .is_some_and(|i| sensor_senses_measurand(plan, i))
-        })
-        .filter_map(|s| number(s, "time_constant"))
+    let sensor_time_constant = (0..plan.nodes.len())
+        .filter(|&i| sensor_senses_measurand(plan, i))
+        .filter_map(|i| plan.stated[i].time_constant_s)
         .fold(0.0, f64::max);
-    let average = stage(chain, plan, plan.reading)
-        .and_then(|s| number(s, "average"))
-        .unwrap_or(1.0)
-        .max(1.0) as u32;
+    let average = plan.stated[plan.reading].average.unwrap_or(1.0).max(1.0) as u32;
     let mut d = Dynamics {
         sensor_time_constant,
         filter,
@@ -139,7 +125,7 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
     d.response_90 = d.time_to_fraction(0.9);
     d.mains = MAINS_HZ.iter().map(|&f| (f, d.attenuation(f))).collect();
     let bits = match &plan.nodes[plan.adc] {
-        Node::Adc { bits, .. } => *bits,
+        Node::Adc(node::Adc { bits, .. }) => *bits,
         _ => 16,
     };
     d.filter_settling_half_lsb = d
@@ -159,12 +145,12 @@ pub fn dynamics(chain: &Chain, plan: &Plan) -> Dynamics {
 
 fn sensor_senses_measurand(plan: &Plan, node: usize) -> bool {
     match &plan.nodes[node] {
-        Node::Rtd { senses, .. }
-        | Node::Thermocouple { senses, .. }
-        | Node::Thermistor { senses, .. }
-        | Node::IcVoltage { senses, .. }
-        | Node::IcCurrent { senses, .. } => *senses == Senses::Measurand,
-        Node::StrainGauge { .. } | Node::Transducer { .. } => true,
+        Node::Rtd(node::Rtd { senses, .. })
+        | Node::Thermocouple(node::Thermocouple { senses, .. })
+        | Node::Thermistor(node::Thermistor { senses, .. })
+        | Node::IcVoltage(node::IcVoltage { senses, .. })
+        | Node::IcCurrent(node::IcCurrent { senses, .. }) => *senses == Senses::Measurand,
+        Node::StrainGauge(_) | Node::Transducer(_) => true,
         _ => false,
     }
 }

@@ -21,7 +21,8 @@ pub mod validation;
 
 use crate::diagnostics::{Code, Finding, Findings, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};
-use crate::model::Chain;
+use crate::model::{AccuracyMethod, Chain};
+use crate::physics::solve::bisect_at_most;
 use crate::units::format::from_si;
 
 /// The finding for an evaluation error, labelled on the stage involved
@@ -124,18 +125,7 @@ pub fn evaluable_part_of(chain: &Chain, plan: &Plan, fitted: bool) -> Option<Cha
     // Each end bisected to where evaluation stops.
     let edge = |good: f64, bad: Option<f64>| match bad {
         None => good,
-        Some(mut bad) => {
-            let mut good = good;
-            for _ in 0..50 {
-                let mid = 0.5 * (good + bad);
-                if evaluates(mid) {
-                    good = mid;
-                } else {
-                    bad = mid;
-                }
-            }
-            good
-        }
+        Some(bad) => bisect_at_most(50, good, bad, &evaluates).0,
     };
     let low = edge(grid[first], first.checked_sub(1).map(|i| grid[i]));
     let high = edge(grid[last], grid.get(last + 1).copied());
@@ -233,10 +223,22 @@ pub struct CheckOptions {
     /// Budget points across the measurand range, where the envelopes,
     /// the flat-code scan and the verdicts look.
     pub points: usize,
-    /// The caller goes on to report on the chains (`budget`, `eval`,
-    /// `diff`): compute the report's detail too, and keep each chain's
-    /// plan and analysis for it to reuse.
-    pub for_report: bool,
+    /// What the caller goes on to use of each chain, so the check keeps
+    /// it instead of the caller computing it again.
+    pub keep: Keep,
+}
+
+/// What the check keeps of each chain for the command that follows it.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum Keep {
+    /// Nothing: `check` alone prints findings only.
+    #[default]
+    Nothing,
+    /// The plan (`eval`), and the analysis the verdicts came from.
+    Plans,
+    /// The plan and the analysis with the report's detail (`budget`,
+    /// `diff`, `compare`).
+    Reports,
 }
 
 impl Default for CheckOptions {
@@ -248,13 +250,13 @@ impl Default for CheckOptions {
             allow_outside_paths: false,
             seed: None,
             points: budget::Options::default().points,
-            for_report: false,
+            keep: Keep::Nothing,
         }
     }
 }
 
 /// What the check of one chain leaves: its findings and, when the caller
-/// reports on it ([`CheckOptions::for_report`]), its plan and the
+/// uses it ([`CheckOptions::keep`]), its plan and the
 /// analysis the verdicts came from.
 #[derive(Debug, Default)]
 pub struct ChainCheck {
@@ -309,7 +311,7 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
     if !findings.has_errors() && !chain.requirements.is_empty() {
         analysis = judge(chain, &plan, options, &mut findings, at_measurand);
     }
-    let keep = options.for_report;
+    let keep = options.keep != Keep::Nothing;
     ChainCheck {
         plan: keep.then_some(plan),
         analysis: analysis.filter(|_| keep),
@@ -354,7 +356,8 @@ fn judge(
     findings: &mut Findings,
     at_measurand: Option<(Span, String)>,
 ) -> Option<report::Analysis> {
-    let wants_mc = options.monte_carlo || requirements::accuracy_method(chain) == "monte_carlo";
+    let wants_mc =
+        options.monte_carlo || requirements::accuracy_method(chain) == AccuracyMethod::MonteCarlo;
     let report_options = report::Options {
         budget: budget::Options {
             points: options.points,
@@ -367,7 +370,7 @@ fn judge(
         }),
         seed: options.seed.unwrap_or(report::DEFAULT_SEED),
         // Only a report shows the detail; `check` prints verdicts alone.
-        detail: options.for_report,
+        detail: options.keep == Keep::Reports,
     };
     match report::analyse(chain, plan, &report_options) {
         Ok(analysis) => {

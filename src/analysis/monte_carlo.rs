@@ -198,7 +198,14 @@ pub fn interval(
         env: *env,
         quantization: (-lsb / 2.0, lsb / 2.0),
     };
-    let mut sampled = run(plan, &[condition], noise, trials, seed, false)?;
+    let run = Run {
+        plan,
+        noise,
+        trials,
+        seed,
+        shares: false,
+    };
+    let mut sampled = run.at(&[condition])?;
     Ok(sampled.remove(0).interval)
 }
 
@@ -230,11 +237,18 @@ pub fn sample(
     shares: bool,
     progress: &dyn Fn(usize, usize),
 ) -> Result<Vec<Sampled>, EvalError> {
+    let run = Run {
+        plan,
+        noise,
+        trials,
+        seed,
+        shares,
+    };
     let group = (TRIALS_IN_FLIGHT / trials.max(1)).max(1);
     let mut out = Vec::with_capacity(conditions.len());
     for batch in conditions.chunks(group) {
         progress(out.len(), conditions.len());
-        out.extend(run(plan, batch, noise, trials, seed, shares)?);
+        out.extend(run.at(batch)?);
     }
     Ok(out)
 }
@@ -293,64 +307,80 @@ impl Streams {
     }
 }
 
-/// The intervals of `conditions`, their trials on every core together.
-fn run(
-    plan: &Plan,
-    conditions: &[Condition],
-    noise: &Noise,
+/// What one Monte Carlo run draws: the plan's sources and the chain's
+/// noise, `trials` trials from `seed`, and each source's variance share
+/// when `shares` is set.
+#[derive(Clone, Copy)]
+struct Run<'a> {
+    plan: &'a Plan,
+    noise: &'a Noise,
     trials: usize,
     seed: u64,
     shares: bool,
-) -> Result<Vec<Sampled>, EvalError> {
-    if trials == 0 {
-        let none = Sampled {
-            interval: Interval {
-                low: 0.0,
-                high: 0.0,
-                numerical: 0.0,
-            },
-            shares: Vec::new(),
-        };
-        return Ok(vec![none; conditions.len()]);
-    }
-    let streams: Vec<Streams> = conditions
-        .iter()
-        .map(|c| Streams::new(plan, c, noise, seed))
-        .collect();
-    // Each chunk writes its errors straight into its condition's buffer.
-    let mut errors: Vec<Vec<f64>> = conditions.iter().map(|_| vec![0.0; trials]).collect();
-    let tasks: Vec<(usize, usize, &mut [f64])> = errors
-        .iter_mut()
-        .enumerate()
-        .flat_map(|(c, all)| {
-            all.chunks_mut(CHUNK)
-                .enumerate()
-                .map(move |(chunk, out)| (c, chunk * CHUNK, out))
-        })
-        .collect();
-    let outcomes: Vec<Result<(), EvalError>> = tasks
-        .into_par_iter()
-        .map(|(c, first, out)| chunk_errors(plan, &streams[c], &conditions[c], noise, first, out))
-        .collect();
-    // The first failure in order, whatever the thread count.
-    outcomes.into_iter().collect::<Result<(), _>>()?;
-    Ok(errors
-        .par_iter_mut()
-        .zip(&streams)
-        .map(|(all, streams)| {
-            // The shares read the trials in their order, before the
-            // interval's selection reorders them.
-            let shares = if shares {
-                variance_shares(plan, streams, all)
-            } else {
-                Vec::new()
+}
+
+impl Run<'_> {
+    /// The intervals of `conditions`, their trials on every core together.
+    fn at(&self, conditions: &[Condition]) -> Result<Vec<Sampled>, EvalError> {
+        let Run {
+            plan,
+            noise,
+            trials,
+            seed,
+            shares,
+        } = *self;
+        if trials == 0 {
+            let none = Sampled {
+                interval: Interval {
+                    low: 0.0,
+                    high: 0.0,
+                    numerical: 0.0,
+                },
+                shares: Vec::new(),
             };
-            Sampled {
-                interval: coverage(all),
-                shares,
-            }
-        })
-        .collect())
+            return Ok(vec![none; conditions.len()]);
+        }
+        let streams: Vec<Streams> = conditions
+            .iter()
+            .map(|c| Streams::new(plan, c, noise, seed))
+            .collect();
+        // Each chunk writes its errors straight into its condition's buffer.
+        let mut errors: Vec<Vec<f64>> = conditions.iter().map(|_| vec![0.0; trials]).collect();
+        let tasks: Vec<(usize, usize, &mut [f64])> = errors
+            .iter_mut()
+            .enumerate()
+            .flat_map(|(c, all)| {
+                all.chunks_mut(CHUNK)
+                    .enumerate()
+                    .map(move |(chunk, out)| (c, chunk * CHUNK, out))
+            })
+            .collect();
+        let outcomes: Vec<Result<(), EvalError>> = tasks
+            .into_par_iter()
+            .map(|(c, first, out)| {
+                chunk_errors(plan, &streams[c], &conditions[c], noise, first, out)
+            })
+            .collect();
+        // The first failure in order, whatever the thread count.
+        outcomes.into_iter().collect::<Result<(), _>>()?;
+        Ok(errors
+            .par_iter_mut()
+            .zip(&streams)
+            .map(|(all, streams)| {
+                // The shares read the trials in their order, before the
+                // interval's selection reorders them.
+                let shares = if shares {
+                    variance_shares(plan, streams, all)
+                } else {
+                    Vec::new()
+                };
+                Sampled {
+                    interval: coverage(all),
+                    shares,
+                }
+            })
+            .collect())
+    }
 }
 
 /// Each drawn source's share of the variance of `errors`.

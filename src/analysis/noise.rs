@@ -4,19 +4,14 @@
 //! converter (sources, dividers, bridges, filter resistors), and the
 //! converter's own noise, over the chain's equivalent noise bandwidth.
 
-use super::stages::{low_pass, number, signal_path, stage};
-use crate::eval::{Env, Node, Plan, Signal};
-use crate::model::value::ParamValue;
-use crate::model::Chain;
-use crate::physics::noise::{johnson_voltage_density, rms_with_flicker};
-use crate::units::Dim;
+use super::stages::signal_path;
+use crate::eval::{node, Env, Node, NoiseBasis, Plan, Signal};
+use crate::physics::adc::peak_to_peak_noise;
+use crate::physics::noise::{johnson_voltage_density, rms_over_bandwidth, rms_with_flicker};
 
 /// Lower band edge for 1/f noise in a DC measurement: the common practice
 /// of integrating from 0.1 Hz.
 pub const FLICKER_LOW_HZ: f64 = 0.1;
-/// Peak-to-peak span of Gaussian noise quoted as noise-free: 6.6 σ
-/// (common practice; about 99.9 % of samples).
-pub const NOISE_FREE_SIGMAS: f64 = 6.6;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct NoiseTerm {
@@ -53,22 +48,20 @@ pub struct Noise {
 /// The equivalent noise bandwidth of the signal path: the narrower of the
 /// analog filter's and the converter's (a sinc¹ over one conversion period
 /// has ENBW = rate/2); without either, a single-pole amplifier bandwidth.
-pub fn enbw(chain: &Chain, plan: &Plan) -> Option<f64> {
+pub fn enbw(plan: &Plan) -> Option<f64> {
     let path = signal_path(plan, plan.adc);
     let mut bw: Option<f64> = None;
     let narrow = |bw: &mut Option<f64>, b: f64| *bw = Some(bw.map_or(b, |x: f64| x.min(b)));
     for &n in &path {
-        let Some(s) = stage(chain, plan, n) else {
-            continue;
-        };
+        let stated = &plan.stated[n];
         match &plan.nodes[n] {
-            Node::Filter { .. } => {
-                if let Some(lp) = low_pass(s) {
+            Node::Filter(_) => {
+                if let Some(lp) = stated.low_pass {
                     narrow(&mut bw, lp.enbw_hz());
                 }
             }
-            Node::Adc { .. } => {
-                if let Some(rate) = number(s, "rate") {
+            Node::Adc(_) => {
+                if let Some(rate) = stated.rate_hz {
                     narrow(&mut bw, rate / 2.0);
                 }
             }
@@ -77,10 +70,8 @@ pub fn enbw(chain: &Chain, plan: &Plan) -> Option<f64> {
     }
     if bw.is_none() {
         for &n in &path {
-            if let (Node::Amplifier { .. }, Some(s)) = (&plan.nodes[n], stage(chain, plan, n)) {
-                if let Some(b) = number(s, "bandwidth") {
-                    narrow(&mut bw, std::f64::consts::FRAC_PI_2 * b);
-                }
+            if let (Node::Amplifier(_), Some(b)) = (&plan.nodes[n], plan.stated[n].bandwidth_hz) {
+                narrow(&mut bw, std::f64::consts::FRAC_PI_2 * b);
             }
         }
     }
@@ -128,25 +119,23 @@ fn thermal_term(
 /// chain: the reading's change with the excitation's value, so a
 /// ratiometric reference cancels it as it cancels the excitation's
 /// tolerance. `rms_v` here holds measurand units.
-fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTerm> {
+fn excitation_noise(plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTerm> {
     let mut out = Vec::new();
     for (i, node) in plan.nodes.iter().enumerate() {
-        let Node::Excitation { value, .. } = node else {
+        let Node::Excitation(node::Excitation { value, .. }) = node else {
             continue;
         };
-        let Some(s) = stage(chain, plan, i) else {
+        let Some(noise) = plan.stated[i].noise else {
             continue;
         };
-        let Some(ParamValue::Limit(t)) = s.param("noise") else {
-            continue;
-        };
-        let stated = t.plus.max(t.minus);
         // A density (per root hertz) integrates over the bandwidth.
-        let is_density = t.dim == Dim::CURRENT_DENSITY || t.dim == Dim::VOLTAGE_DENSITY;
-        let rms = match (is_density, enbw_hz) {
-            (true, Some(bw)) => stated * bw.sqrt(),
-            (true, None) => continue,
-            (false, _) => stated,
+        let rms = match (noise.basis, enbw_hz) {
+            (NoiseBasis::Density, Some(bw)) => match rms_over_bandwidth(noise.amount, bw) {
+                Ok(rms) => rms,
+                Err(_) => continue,
+            },
+            (NoiseBasis::Density, None) => continue,
+            (NoiseBasis::Rms | NoiseBasis::Codes, _) => noise.amount,
         };
         let mut values = plan.nominal.clone();
         let mut at = |x: f64| {
@@ -160,70 +149,110 @@ fn excitation_noise(chain: &Chain, plan: &Plan, env: &Env, enbw_hz: Option<f64>)
             continue;
         };
         out.push(NoiseTerm {
-            id: format!("{}.noise", s.name),
+            id: format!("{}.noise", plan.names[i]),
             rms_v: (up - down).abs() / 2.0,
         });
     }
     out
 }
 
+/// A converter's own noise and the thermal noise of what drives it.
+fn converter_terms(
+    plan: &Plan,
+    n: usize,
+    input: usize,
+    signals: &[Signal],
+    env: &Env,
+    enbw_hz: Option<f64>,
+    volts_per_code: f64,
+) -> Vec<NoiseTerm> {
+    let name = &plan.names[n];
+    let mut terms = Vec::new();
+    if let Some(noise) = plan.stated[n].noise {
+        // In `LSB`: one code at the input is `volts_per_code`.
+        let per_unit = match noise.basis {
+            NoiseBasis::Codes => volts_per_code,
+            NoiseBasis::Rms | NoiseBasis::Density => 1.0,
+        };
+        terms.push(NoiseTerm {
+            id: format!("{name}.noise"),
+            rms_v: noise.amount * per_unit,
+        });
+    }
+    terms.extend(thermal_term(name, signals, input, env, enbw_hz, 1.0));
+    terms
+}
+
+/// An amplifier's voltage noise (with its 1/f corner), its current noise
+/// through the source resistance, and the thermal noise of that resistance,
+/// each `gain_after` to the converter's input, over `bw` Hz.
+fn amplifier_terms(
+    plan: &Plan,
+    n: usize,
+    input: usize,
+    signals: &[Signal],
+    env: &Env,
+    bw: f64,
+    gain_after: f64,
+) -> Vec<NoiseTerm> {
+    let name = &plan.names[n];
+    let stated = &plan.stated[n];
+    let mut terms = Vec::new();
+    let rs = source_resistance(signals, input);
+    let e_n = stated.noise.map_or(0.0, |noise| noise.amount);
+    let corner = stated.noise_corner_hz.unwrap_or(0.0);
+    if e_n > 0.0 {
+        let rms = rms_with_flicker(e_n, corner, FLICKER_LOW_HZ, FLICKER_LOW_HZ + bw)
+            .unwrap_or(e_n * bw.sqrt());
+        terms.push(NoiseTerm {
+            id: format!("{name}.noise"),
+            rms_v: gain_after * rms,
+        });
+    }
+    if let Some(i_n) = stated.current_noise {
+        terms.push(NoiseTerm {
+            id: format!("{name}.current_noise"),
+            rms_v: gain_after * i_n * rs * bw.sqrt(),
+        });
+    }
+    terms.extend(thermal_term(
+        name,
+        signals,
+        input,
+        env,
+        Some(bw),
+        gain_after,
+    ));
+    terms
+}
+
 /// Noise at `env`, from the nominal chain. `slope` is the converter-input
 /// voltage per measurand unit there (V per SI unit), `lsb` one code in
 /// measurand units.
-pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
-    let enbw_hz = enbw(chain, plan);
+pub fn noise(plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
+    let enbw_hz = enbw(plan);
     let signals = plan
         .evaluate(&plan.nominal, env)
         .map(|o| o.signals)
         .unwrap_or_default();
-    let path = signal_path(plan, plan.adc);
     let mut terms = Vec::new();
     // Gain from each amplifier's input to the converter's input.
     let mut gain_after = 1.0;
-    for &n in &path {
-        let Some(s) = stage(chain, plan, n) else {
-            continue;
-        };
+    for n in signal_path(plan, plan.adc) {
         match &plan.nodes[n] {
-            Node::Adc { input, .. } => {
-                if let Some(ParamValue::Limit(t)) = s.param("noise") {
-                    // In `LSB`: one code at the input is `lsb` (measurand
-                    // per code) times `slope` (volts per measurand).
-                    let per_unit = if t.dim == Dim::CODE {
-                        lsb * slope.abs()
-                    } else {
-                        1.0
-                    };
-                    terms.push(NoiseTerm {
-                        id: format!("{}.noise", s.name),
-                        rms_v: t.plus.max(t.minus) * per_unit,
-                    });
-                }
-                terms.extend(thermal_term(&s.name, &signals, *input, env, enbw_hz, 1.0));
+            Node::Adc(node::Adc { input, .. }) => {
+                // One code at the input is `lsb` (measurand per code)
+                // times `slope` (volts per measurand).
+                let per_code = lsb * slope.abs();
+                terms.extend(converter_terms(
+                    plan, n, *input, &signals, env, enbw_hz, per_code,
+                ));
             }
-            Node::Amplifier { gain, input, .. } => {
+            Node::Amplifier(node::Amplifier { gain, input, .. }) => {
                 gain_after *= plan.nominal[*gain];
-                let rs = source_resistance(&signals, *input);
                 if let Some(bw) = enbw_hz {
-                    let e_n = number(s, "noise").unwrap_or(0.0);
-                    let corner = number(s, "noise_corner").unwrap_or(0.0);
-                    if e_n > 0.0 {
-                        let rms =
-                            rms_with_flicker(e_n, corner, FLICKER_LOW_HZ, FLICKER_LOW_HZ + bw)
-                                .unwrap_or(e_n * bw.sqrt());
-                        terms.push(NoiseTerm {
-                            id: format!("{}.noise", s.name),
-                            rms_v: gain_after * rms,
-                        });
-                    }
-                    if let Some(i_n) = number(s, "current_noise") {
-                        terms.push(NoiseTerm {
-                            id: format!("{}.current_noise", s.name),
-                            rms_v: gain_after * i_n * rs * bw.sqrt(),
-                        });
-                    }
-                    terms.extend(thermal_term(
-                        &s.name, &signals, *input, env, enbw_hz, gain_after,
+                    terms.extend(amplifier_terms(
+                        plan, n, *input, &signals, env, bw, gain_after,
                     ));
                 }
             }
@@ -235,16 +264,13 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
         .iter()
         .fold(0.0, |acc, t| acc + t.rms_v * t.rms_v)
         .sqrt();
-    let average = stage(chain, plan, plan.reading)
-        .and_then(|s| number(s, "average"))
-        .unwrap_or(1.0)
-        .max(1.0) as u32;
+    let average = plan.stated[plan.reading].average.unwrap_or(1.0).max(1.0) as u32;
     let at_converter = if slope != 0.0 {
         total_v / slope.abs()
     } else {
         0.0
     };
-    let excitation = excitation_noise(chain, plan, env, enbw_hz);
+    let excitation = excitation_noise(plan, env, enbw_hz);
     let sigma = (at_converter * at_converter
         + excitation.iter().map(|t| t.rms_v * t.rms_v).sum::<f64>())
     .sqrt();
@@ -258,8 +284,8 @@ pub fn noise(chain: &Chain, plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noi
         sigma,
         sigma_averaged,
         average,
-        noise_free: NOISE_FREE_SIGMAS * sigma,
-        noise_free_averaged: NOISE_FREE_SIGMAS * sigma_averaged,
+        noise_free: peak_to_peak_noise(sigma),
+        noise_free_averaged: peak_to_peak_noise(sigma_averaged),
         lsb,
     }
 }

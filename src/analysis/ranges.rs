@@ -12,12 +12,16 @@
 use rayon::prelude::*;
 
 use super::budget::conditions;
+use crate::diagnostics::{Code, Finding, Findings};
 use crate::eval::{
-    BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
+    node, BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
     MAX_NODES,
 };
-use crate::model::Chain;
-use crate::physics::adc::Polarity;
+use crate::model::{Chain, Stage};
+use crate::physics::adc;
+use crate::physics::rtd::{lead_loop_resistance, lead_series_resistance};
+use crate::physics::strain::bridge_input_resistance;
+use crate::units::format::{from_si, trimmed, with_prefix};
 
 /// Headroom below this fraction of a limit's span is a warning.
 pub const DEFAULT_MARGIN: f64 = 0.05;
@@ -94,7 +98,29 @@ pub struct Envelope {
     pub reach: (f64, f64),
     /// Measurand and ambient where it reaches furthest out.
     pub worst_at: (f64, f64),
-    pub unit: &'static str,
+    pub unit: LimitUnit,
+}
+
+/// The unit a limit and its signal are stated in.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum LimitUnit {
+    Volt,
+    Ampere,
+    Ohm,
+    /// A fraction of the converter's full scale, shown as a percentage.
+    FullScale,
+}
+
+impl LimitUnit {
+    /// The unit's symbol (`1` for a fraction).
+    pub fn symbol(self) -> &'static str {
+        match self {
+            LimitUnit::Volt => "V",
+            LimitUnit::Ampere => "A",
+            LimitUnit::Ohm => "ohm",
+            LimitUnit::FullScale => "1",
+        }
+    }
 }
 
 impl Envelope {
@@ -148,318 +174,371 @@ struct Check {
     node: NodeId,
     limit: Limit,
     allowed: (f64, f64),
-    unit: &'static str,
+    unit: LimitUnit,
 }
 
-fn checks(chain: &Chain, plan: &Plan) -> Vec<Check> {
-    let mut out = Vec::new();
-    let range = |node: NodeId, name: &str| {
-        let stage = chain.stages.iter().find(|s| s.name == plan.names[node])?;
-        match stage.param(name) {
-            Some(crate::model::value::ParamValue::Range { low, high }) => Some((*low, *high)),
-            Some(crate::model::value::ParamValue::Measure(m)) => {
-                Some((f64::NEG_INFINITY, m.nominal))
-            }
-            _ => None,
-        }
+/// Every limited quantity of the plan, node by node.
+fn checks(plan: &Plan) -> Vec<Check> {
+    (0..plan.nodes.len())
+        .flat_map(|node| node_checks(plan, node))
+        .collect()
+}
+
+/// The limited quantities of one node, as its stage states them.
+fn node_checks(plan: &Plan, node: NodeId) -> Vec<Check> {
+    let check = |limit, allowed: Option<(f64, f64)>, unit| {
+        allowed.map(|allowed| Check {
+            node,
+            limit,
+            allowed,
+            unit,
+        })
     };
-    for (i, node) in plan.nodes.iter().enumerate() {
-        match node {
-            Node::Amplifier { .. } => {
-                if let Some(r) = range(i, "input") {
-                    out.push(Check {
-                        node: i,
-                        limit: Limit::AmplifierInput,
-                        allowed: r,
-                        unit: "V",
-                    });
-                }
-                if let Some(r) = range(i, "output") {
-                    out.push(Check {
-                        node: i,
-                        limit: Limit::AmplifierOutput,
-                        allowed: r,
-                        unit: "V",
-                    });
-                }
-            }
-            Node::Adc {
-                polarity,
-                bits,
-                input,
-                differential,
-                ..
-            } => {
-                let allowed = match polarity {
-                    Polarity::Unipolar => (0.0, 1.0),
-                    Polarity::Bipolar => (-1.0, 1.0),
-                };
-                out.push(Check {
-                    node: i,
-                    limit: Limit::ConverterInput,
-                    allowed,
-                    unit: "of full scale",
-                });
-                let pins: &[Pin] = if *differential {
-                    &[Pin::Positive, Pin::Negative]
-                } else {
-                    &[Pin::Positive]
-                };
-                let limits = std::iter::once(("ref_range", Limit::ConverterReference))
-                    .chain(pins.iter().map(|&p| ("rails", Limit::ConverterPin(p))));
-                for (name, limit) in limits {
-                    if let Some(r) = range(i, name) {
-                        out.push(Check {
-                            node: i,
-                            limit,
-                            allowed: r,
-                            unit: "V",
-                        });
-                    }
-                }
-                let sampling = super::settling::Sampling::of(chain, plan, i, *bits, *input);
-                if let Some(r_max) = sampling.map(|s| s.largest_source()) {
-                    out.push(Check {
-                        node: i,
-                        limit: Limit::ConverterSettling,
-                        allowed: (f64::NEG_INFINITY, r_max),
-                        unit: "ohm",
-                    });
-                }
-            }
-            Node::Excitation { current: true, .. } => {
-                if let Some(r) = range(i, "compliance") {
-                    out.push(Check {
-                        node: i,
-                        limit: Limit::Compliance,
-                        allowed: r,
-                        unit: "V",
-                    });
-                }
-            }
-            Node::Excitation { current: false, .. } => {
-                if let Some(r) = range(i, "limit") {
-                    out.push(Check {
-                        node: i,
-                        limit: Limit::CurrentLimit,
-                        allowed: r,
-                        unit: "A",
-                    });
-                }
-            }
-            Node::Rtd { input: Some(_), .. } | Node::Thermistor { input: Some(_), .. } => {
-                if let Some(r) = range(i, "max_current") {
-                    out.push(Check {
-                        node: i,
-                        limit: Limit::MaxCurrent,
-                        allowed: (f64::NEG_INFINITY, r.1),
-                        unit: "A",
-                    });
-                }
-            }
-            _ => {}
+    let stated = &plan.stated[node];
+    match &plan.nodes[node] {
+        Node::Amplifier(node::Amplifier {
+            input_range,
+            output,
+            ..
+        }) => [
+            check(Limit::AmplifierInput, *input_range, LimitUnit::Volt),
+            check(Limit::AmplifierOutput, *output, LimitUnit::Volt),
+        ]
+        .into_iter()
+        .flatten()
+        .collect(),
+        Node::Adc(node::Adc {
+            polarity,
+            bits,
+            input,
+            differential,
+            ..
+        }) => converter_checks(plan, node, *polarity, *bits, *input, *differential),
+        Node::Excitation(node::Excitation { current: true, .. }) => {
+            check(Limit::Compliance, stated.compliance, LimitUnit::Volt)
+                .into_iter()
+                .collect()
         }
+        Node::Excitation(node::Excitation { current: false, .. }) => {
+            check(Limit::CurrentLimit, stated.current_limit, LimitUnit::Ampere)
+                .into_iter()
+                .collect()
+        }
+        // Only its upper end: a current either way heats an element alike.
+        Node::Rtd(node::Rtd { input: Some(_), .. })
+        | Node::Thermistor(node::Thermistor { input: Some(_), .. }) => {
+            let up_to = stated
+                .max_current
+                .map(|(_, high)| (f64::NEG_INFINITY, high));
+            check(Limit::MaxCurrent, up_to, LimitUnit::Ampere)
+                .into_iter()
+                .collect()
+        }
+        Node::Rtd(node::Rtd { input: None, .. })
+        | Node::Thermistor(node::Thermistor { input: None, .. })
+        | Node::Thermocouple(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Filter(_)
+        | Node::Convert(_) => Vec::new(),
+    }
+}
+
+/// A converter's limits: its input range (always), its reference against
+/// `ref_range`, each input pin against `rails`, and the source resistance
+/// its sampling input settles behind.
+fn converter_checks(
+    plan: &Plan,
+    node: NodeId,
+    polarity: adc::Polarity,
+    bits: u32,
+    input: NodeId,
+    differential: bool,
+) -> Vec<Check> {
+    let stated = &plan.stated[node];
+    let volts = |limit, allowed: Option<(f64, f64)>| {
+        allowed.map(|allowed| Check {
+            node,
+            limit,
+            allowed,
+            unit: LimitUnit::Volt,
+        })
+    };
+    let mut out = vec![Check {
+        node,
+        limit: Limit::ConverterInput,
+        allowed: adc::input_range(polarity),
+        unit: LimitUnit::FullScale,
+    }];
+    let pins: &[Pin] = if differential {
+        &[Pin::Positive, Pin::Negative]
+    } else {
+        &[Pin::Positive]
+    };
+    out.extend(volts(Limit::ConverterReference, stated.ref_range));
+    out.extend(
+        pins.iter()
+            .filter_map(|&pin| volts(Limit::ConverterPin(pin), stated.rails)),
+    );
+    let sampling = super::settling::Sampling::of(plan, node, bits, input);
+    if let Some(r_max) = sampling.map(|s| s.largest_source()) {
+        out.push(Check {
+            node,
+            limit: Limit::ConverterSettling,
+            allowed: (f64::NEG_INFINITY, r_max),
+            unit: LimitUnit::Ohm,
+        });
     }
     out
 }
 
-/// The value a check watches, in one raw evaluation.
-fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) -> f64 {
-    let voltage = |n: NodeId| match s[n] {
+/// The voltage a node gives (a source's or a divider's), zero for other
+/// signals.
+fn voltage_of(s: &[Signal], n: NodeId) -> f64 {
+    match s[n] {
         Signal::Voltage { v, .. } => v,
         Signal::Source(v) => v,
         _ => 0.0,
-    };
-    match (&plan.nodes[check.node], check.limit) {
-        (Node::Amplifier { input, .. }, Limit::AmplifierInput) => match s[*input] {
-            Signal::Voltage { cm, .. } => cm,
-            _ => 0.0,
-        },
-        (Node::Amplifier { .. }, _) => voltage(check.node),
-        (Node::Adc { .. }, Limit::ConverterReference) => plan
-            .converter_reference(check.node, values, env, s)
+    }
+}
+
+/// The value a check watches, in one raw evaluation.
+fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) -> f64 {
+    let node = check.node;
+    match (&plan.nodes[node], check.limit) {
+        (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) => {
+            match s[*input] {
+                Signal::Voltage { cm, .. } => cm,
+                _ => 0.0,
+            }
+        }
+        (Node::Amplifier(_), _) => voltage_of(s, node),
+        (Node::Adc(_), Limit::ConverterReference) => plan
+            .converter_reference(node, values, env, s)
             .unwrap_or(0.0),
         (
-            Node::Adc {
+            Node::Adc(node::Adc {
                 input,
                 differential,
                 ..
-            },
+            }),
             Limit::ConverterPin(pin),
-        ) => match s[*input] {
-            // A single-ended input is the one pin above the converter's
-            // ground; a differential one is two pins about their common mode.
-            Signal::Voltage { v, .. } if !differential => v,
-            Signal::Voltage { v, cm, .. } => match pin {
-                Pin::Positive => cm + v / 2.0,
-                Pin::Negative => cm - v / 2.0,
-            },
-            _ => 0.0,
-        },
-        (Node::Adc { input, .. }, Limit::ConverterSettling) => match s[*input] {
+        ) => pin_voltage(s[*input], *differential, pin),
+        (Node::Adc(node::Adc { input, .. }), Limit::ConverterSettling) => match s[*input] {
             Signal::Voltage { rs, .. } => rs,
             _ => 0.0,
         },
-        (Node::Adc { bits, polarity, .. }, _) => {
-            let per_ref = match polarity {
-                Polarity::Unipolar => 2f64.powi(*bits as i32),
-                Polarity::Bipolar => 2f64.powi(*bits as i32 - 1),
-            };
-            match s[check.node] {
-                Signal::Code { exact, .. } => exact / per_ref,
-                _ => 0.0,
+        (Node::Adc(node::Adc { bits, polarity, .. }), _) => match s[node] {
+            Signal::Code { exact, .. } => {
+                adc::input_of_code(exact, *bits, *polarity).unwrap_or(0.0)
             }
-        }
-        (Node::Excitation { .. }, Limit::Compliance) => {
-            // The string's voltage, plus the current-carrying leads of
-            // 3- and 4-wire elements, which the measurement does not see.
-            let current = match s[check.node] {
-                Signal::Current(a) => a,
-                _ => 0.0,
-            };
-            plan.nodes
-                .iter()
-                .enumerate()
-                .filter_map(|(n, node)| {
-                    let driven = match node {
-                        Node::Rtd { input, .. }
-                        | Node::Thermistor { input, .. }
-                        | Node::StrainGauge { input, .. }
-                        | Node::Resistor { input, .. } => *input == Some(check.node),
-                        _ => false,
-                    };
-                    driven.then(|| {
-                        let leads = match node {
-                            Node::Rtd {
-                                leads: Some((a, b)),
-                                wiring,
-                                ..
-                            } => {
-                                let (a, b) = (values[*a], values[*b]);
-                                let unseen = crate::physics::rtd::lead_loop_resistance(a, b)
-                                    - crate::physics::rtd::lead_series_resistance(*wiring, a, b);
-                                unseen * current
-                            }
-                            _ => 0.0,
-                        };
-                        voltage(n) + leads
-                    })
-                })
-                .sum()
-        }
-        (Node::Excitation { .. }, _) => {
-            let v = voltage(check.node);
-            plan.nodes
-                .iter()
-                .map(|node| match node {
-                    Node::Bridge {
-                        exc, kind, r, arms, ..
-                    } if *exc == check.node => {
-                        let fixed = r.map(|r| values[r]).unwrap_or(0.0);
-                        let arm = |k: usize| match arms.get(k).map(|&a| s[a]) {
-                            Some(Signal::Element(r)) => r,
-                            _ => fixed,
-                        };
-                        let parallel =
-                            |a: f64, b: f64| if a + b > 0.0 { a * b / (a + b) } else { 0.0 };
-                        // Arm positions as in the evaluator: r1 r2 | r3 r4.
-                        let load = match kind {
-                            BridgeKind::Divider { .. } => arm(0) + fixed,
-                            BridgeKind::Quarter => parallel(fixed + arm(0), 2.0 * fixed),
-                            BridgeKind::Half => parallel(fixed + arm(0), arm(1) + fixed),
-                            BridgeKind::Full => parallel(arm(2) + arm(0), arm(1) + arm(3)),
-                        };
-                        if load > 0.0 {
-                            v / load
-                        } else {
-                            0.0
-                        }
-                    }
-                    Node::Transducer {
-                        input: Some(i),
-                        r: Some(r),
-                        ..
-                    } if *i == check.node => v / values[*r],
-                    _ => 0.0,
-                })
-                .sum()
-        }
-        (Node::Rtd { input: Some(i), .. } | Node::Thermistor { input: Some(i), .. }, _) => {
-            match s[*i] {
-                Signal::Current(a) => a,
-                _ => 0.0,
-            }
-        }
+            _ => 0.0,
+        },
+        (Node::Excitation(_), Limit::Compliance) => compliance_voltage(plan, values, s, node),
+        (Node::Excitation(_), _) => load_current(plan, values, s, node),
+        (
+            Node::Rtd(node::Rtd { input: Some(i), .. })
+            | Node::Thermistor(node::Thermistor { input: Some(i), .. }),
+            _,
+        ) => match s[*i] {
+            Signal::Current(a) => a,
+            _ => 0.0,
+        },
         _ => 0.0,
+    }
+}
+
+/// A converter input pin's voltage: a single-ended input is the one pin
+/// above the converter's ground; a differential one is two pins about
+/// their common mode.
+fn pin_voltage(input: Signal, differential: bool, pin: Pin) -> f64 {
+    match input {
+        Signal::Voltage { v, .. } if !differential => v,
+        Signal::Voltage { v, cm, .. } => match pin {
+            Pin::Positive => cm + v / 2.0,
+            Pin::Negative => cm - v / 2.0,
+        },
+        _ => 0.0,
+    }
+}
+
+/// The voltage across current source `exc`'s load: the string's voltage,
+/// plus the current-carrying leads of 3- and 4-wire elements, which the
+/// measurement does not see.
+fn compliance_voltage(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
+    let current = match s[exc] {
+        Signal::Current(a) => a,
+        _ => 0.0,
+    };
+    plan.nodes
+        .iter()
+        .enumerate()
+        .filter_map(|(n, node)| {
+            let driven = match node {
+                Node::Rtd(node::Rtd { input, .. })
+                | Node::Thermistor(node::Thermistor { input, .. })
+                | Node::StrainGauge(node::StrainGauge { input, .. })
+                | Node::Resistor(node::Resistor { input, .. }) => *input == Some(exc),
+                _ => false,
+            };
+            driven.then(|| {
+                let leads = match node {
+                    Node::Rtd(node::Rtd {
+                        leads: Some((a, b)),
+                        wiring,
+                        ..
+                    }) => {
+                        let (a, b) = (values[*a], values[*b]);
+                        let unseen =
+                            lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
+                        unseen * current
+                    }
+                    _ => 0.0,
+                };
+                voltage_of(s, n) + leads
+            })
+        })
+        .sum()
+}
+
+/// The current voltage source `exc` delivers: into every bridge or
+/// divider it excites and every transducer's bridge.
+fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
+    let v = voltage_of(s, exc);
+    plan.nodes
+        .iter()
+        .map(|node| match node {
+            Node::Bridge(node::Bridge {
+                exc: e,
+                kind,
+                r,
+                arms,
+                ..
+            }) if *e == exc => {
+                let fixed = r.map(|r| values[r]).unwrap_or(0.0);
+                let load = bridge_load(*kind, fixed, arms, s);
+                if load > 0.0 {
+                    v / load
+                } else {
+                    0.0
+                }
+            }
+            Node::Transducer(node::Transducer {
+                input: Some(i),
+                r: Some(r),
+                ..
+            }) if *i == exc => v / values[*r],
+            _ => 0.0,
+        })
+        .sum()
+}
+
+/// The resistance a bridge or divider puts across its excitation, its
+/// completion resistors all `fixed`. Arm positions as in the evaluator:
+/// r1 r2 | r3 r4.
+fn bridge_load(kind: BridgeKind, fixed: f64, arms: &[NodeId], s: &[Signal]) -> f64 {
+    let arm = |k: usize| match arms.get(k).map(|&a| s[a]) {
+        Some(Signal::Element(r)) => r,
+        _ => fixed,
+    };
+    match kind {
+        BridgeKind::Divider { .. } => arm(0) + fixed,
+        BridgeKind::Quarter => bridge_input_resistance(fixed, arm(0), fixed, fixed),
+        BridgeKind::Half => bridge_input_resistance(fixed, arm(0), arm(1), fixed),
+        BridgeKind::Full => bridge_input_resistance(arm(2), arm(0), arm(1), arm(3)),
     }
 }
 
 /// The reach of every limited signal.
 pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelope>, EvalError> {
-    let checks = checks(chain, plan);
+    let checks = checks(plan);
     if checks.is_empty() {
         return Ok(Vec::new());
     }
-    let sources: Vec<usize> = (0..plan.slots.len())
-        .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
-        .collect();
+    let limits = source_limits(plan);
     let conditions = conditions(chain, plan, points);
-    // Every source at both limits, in order: low, high, low, high, ...
-    let limits: Vec<(usize, f64)> = sources
-        .iter()
-        .flat_map(|&s| {
+    // Each condition's reach (low, high) per check, on every core.
+    let per_condition = conditions
+        .par_iter()
+        .map(|env| reach_at(plan, &checks, &limits, env))
+        .collect::<Result<Vec<_>, _>>()?;
+    Ok(gather(&checks, &conditions, per_condition))
+}
+
+/// Every source at both limits, in order: low, high, low, high, ...
+fn source_limits(plan: &Plan) -> Vec<(usize, f64)> {
+    (0..plan.slots.len())
+        .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
+        .flat_map(|s| {
             let slot = &plan.slots[s];
             [
                 (s, slot.nominal - slot.minus),
                 (s, slot.nominal + slot.plus),
             ]
         })
+        .collect()
+}
+
+/// How far each check reaches at one condition: its nominal value, plus
+/// the sum of every source's downward and upward changes apart (each
+/// source at its two limits, the rest nominal). The perturbed chains are
+/// evaluated LANES at a time.
+fn reach_at(
+    plan: &Plan,
+    checks: &[Check],
+    limits: &[(usize, f64)],
+    env: &Env,
+) -> Result<Vec<(f64, f64)>, EvalError> {
+    let nominal = plan.raw_signals(&plan.nominal, env)?;
+    let q0: Vec<f64> = checks
+        .iter()
+        .map(|c| value(plan, &plan.nominal, env, &nominal, c))
         .collect();
     let n = plan.nominal.len();
-    // Each condition's reach (low, high) per check, on every core; the
-    // perturbed chains LANES at a time.
-    let per_condition = conditions
-        .par_iter()
-        .map(|env| -> Result<Vec<(f64, f64)>, EvalError> {
-            let nominal = plan.raw_signals(&plan.nominal, env)?;
-            let q0: Vec<f64> = checks
-                .iter()
-                .map(|c| value(plan, &plan.nominal, env, &nominal, c))
-                .collect();
-            let mut values = plan.nominal.repeat(LANES);
-            let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
-            // Each limit's change of each check, limit by limit.
-            let mut changes = Vec::with_capacity(limits.len() * checks.len());
-            for batch in limits.chunks(LANES) {
-                for (lane, &(s, x)) in batch.iter().enumerate() {
-                    values[lane * n + s] = x;
-                }
-                plan.raw_signals_lanes(&values, env, &mut scratch)?;
-                for (lane, &(s, _)) in batch.iter().enumerate() {
-                    // Seen with this lane's values (a lead's or a
-                    // reference's own tolerance), then put back.
-                    let lane_values = &values[lane * n..(lane + 1) * n];
-                    for (k, c) in checks.iter().enumerate() {
-                        changes.push(value(plan, lane_values, env, &scratch[lane], c) - q0[k]);
-                    }
-                    values[lane * n + s] = plan.nominal[s];
-                }
+    let mut values = plan.nominal.repeat(LANES);
+    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
+    // Each limit's change of each check, limit by limit.
+    let mut changes = Vec::with_capacity(limits.len() * checks.len());
+    for batch in limits.chunks(LANES) {
+        for (lane, &(s, x)) in batch.iter().enumerate() {
+            values[lane * n + s] = x;
+        }
+        plan.raw_signals_lanes(&values, env, &mut scratch)?;
+        for (lane, &(s, _)) in batch.iter().enumerate() {
+            // Seen with this lane's values (a lead's or a reference's own
+            // tolerance), then put back.
+            let lane_values = &values[lane * n..(lane + 1) * n];
+            for (k, c) in checks.iter().enumerate() {
+                changes.push(value(plan, lane_values, env, &scratch[lane], c) - q0[k]);
             }
-            // Summed apart, then added to the nominal.
-            let (mut down, mut up) = (vec![0.0; checks.len()], vec![0.0; checks.len()]);
-            for source in changes.chunks(2 * checks.len()) {
-                let (low, high) = source.split_at(checks.len());
-                for k in 0..checks.len() {
-                    down[k] += low[k].min(high[k]).min(0.0);
-                    up[k] += low[k].max(high[k]).max(0.0);
-                }
-            }
-            Ok((0..checks.len())
-                .map(|k| (q0[k] + down[k], q0[k] + up[k]))
-                .collect())
-        })
-        .collect::<Result<Vec<_>, _>>()?;
-    // Gathered in order, so the worst point is the first of equals.
+            values[lane * n + s] = plan.nominal[s];
+        }
+    }
+    // Summed apart, then added to the nominal.
+    let (mut down, mut up) = (vec![0.0; checks.len()], vec![0.0; checks.len()]);
+    for source in changes.chunks(2 * checks.len()) {
+        let (low, high) = source.split_at(checks.len());
+        for k in 0..checks.len() {
+            down[k] += low[k].min(high[k]).min(0.0);
+            up[k] += low[k].max(high[k]).max(0.0);
+        }
+    }
+    Ok((0..checks.len())
+        .map(|k| (q0[k] + down[k], q0[k] + up[k]))
+        .collect())
+}
+
+/// Each check's envelope over all conditions, gathered in order, so the
+/// worst point is the first of equals.
+fn gather(
+    checks: &[Check],
+    conditions: &[Env],
+    per_condition: Vec<Vec<(f64, f64)>>,
+) -> Vec<Envelope> {
     let mut reach: Vec<(f64, f64, (f64, f64), f64)> =
         vec![(f64::INFINITY, f64::NEG_INFINITY, (0.0, 0.0), f64::INFINITY); checks.len()];
     for (env, reaches) in conditions.iter().zip(per_condition) {
@@ -475,7 +554,7 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
             r.1 = r.1.max(hi);
         }
     }
-    Ok(checks
+    checks
         .iter()
         .zip(reach)
         .map(|(c, (lo, hi, at, _))| Envelope {
@@ -486,24 +565,25 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
             worst_at: at,
             unit: c.unit,
         })
-        .collect())
+        .collect()
 }
 
 /// The thermocouple right at amplifier `node`'s input, by name, when it
 /// has no bias: the one floating source a `bias_voltage` moves.
 fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
-    let Node::Amplifier { input, .. } = plan.nodes[node] else {
+    let Node::Amplifier(node::Amplifier { input, .. }) = plan.nodes[node] else {
         return None;
     };
     match plan.nodes[input] {
-        Node::Thermocouple { bias: None, .. } => Some(plan.names[input].as_str()),
+        Node::Thermocouple(node::Thermocouple { bias: None, .. }) => {
+            Some(plan.names[input].as_str())
+        }
         _ => None,
     }
 }
 
 /// What brings a converter's reference back inside its allowed range.
 fn reference_fix(stated: bool, high: bool, value: f64, target: f64, margin: f64) -> String {
-    use crate::units::format::{trimmed, with_prefix};
     let word = if high { "at most" } else { "at least" };
     let fits = format!(
         "of {word} {} keeps {} % headroom",
@@ -535,161 +615,409 @@ fn a_worse_pin(envelopes: &[Envelope], e: &Envelope) -> bool {
 /// The findings of the envelopes: an error where a signal leaves its limit,
 /// a warning where it keeps less than `margin` of the limit's span, each
 /// with the number that fixes it.
-pub fn findings(
-    chain: &Chain,
-    plan: &Plan,
-    envelopes: &[Envelope],
-    margin: f64,
-) -> crate::diagnostics::Findings {
-    use crate::diagnostics::{Code, Finding};
-    use crate::units::format::{from_si, trimmed, with_prefix};
-    let mut out = crate::diagnostics::Findings::new();
-    let unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope], margin: f64) -> Findings {
+    let mut out = Findings::new();
+    let unit = chain.measurand_unit();
     for e in envelopes {
-        let headroom = e.headroom();
-        // Settling is judged on its own terms (R630), not as a range; a
-        // pin may sit on a rail (a pseudo-differential input's low side
-        // on ground), so rails get no margin.
-        let needed = match e.limit {
-            Limit::ConverterSettling => continue,
-            Limit::ConverterPin(_) => 0.0,
-            _ => margin,
-        };
-        if headroom >= needed || a_worse_pin(envelopes, e) {
-            continue;
+        if let Some(f) = finding(chain, plan, envelopes, e, margin, &unit) {
+            out.push(f);
         }
-        let Some(stage) = chain.stages.iter().find(|s| s.name == plan.names[e.node]) else {
-            continue;
-        };
-        let show = |x: f64| {
-            if e.unit == "of full scale" {
-                format!("{} % of full scale", trimmed(x * 100.0, 4))
-            } else {
-                with_prefix(x, e.unit, 4)
-            }
-        };
+    }
+    out.extend(super::settling::findings(chain, plan, envelopes));
+    out
+}
+
+/// The end of an envelope a finding speaks of.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct Side {
+    /// The upper end (else the lower).
+    high: bool,
+    /// How far the signal goes there.
+    value: f64,
+    /// The limit there.
+    bound: f64,
+    /// Where the signal would keep `margin` of the span to the limit.
+    target: f64,
+}
+
+impl Side {
+    fn of(e: &Envelope, margin: f64) -> Side {
         let high = e.high_side();
         let (value, bound) = if high {
             (e.reach.1, e.allowed.1)
         } else {
             (e.reach.0, e.allowed.0)
         };
-        let slot = |name: &str| {
-            plan.slots
-                .iter()
-                .position(|s| s.id == format!("{}.{name}", stage.name))
-                .map(|i| plan.nominal[i])
-        };
-        let worst = Env {
-            measurand: e.worst_at.0,
-            ambient: e.worst_at.1,
-            cold_junction: e.worst_at.1,
-        };
-        let shift = plan
-            .raw_signals(&plan.nominal, &worst)
-            .ok()
-            .and_then(|s| plan.amplifier_reference(e.node, &plan.nominal, &worst, &s))
-            .unwrap_or(0.0);
         let span = e.span();
         let target = if high {
             bound - margin * span
         } else {
             bound + margin * span
         };
-        let fix = match e.limit {
-            // The gain scales the output about its reference.
-            Limit::AmplifierOutput if value != shift && (target - shift) / (value - shift) > 0.0 => slot("gain").map(|g| {
-                let fits = g * (target - shift) / (value - shift);
-                let word = if fits < g { "at most" } else { "at least" };
-                format!("a gain of {word} {} keeps {} % headroom", trimmed(fits, 4), trimmed(margin * 100.0, 3))
-            }),
-            Limit::AmplifierOutput => Some(format!("the output must reach {}: a `reference` of {} keeps {} % headroom (it shifts the output), or choose an amplifier that swings there", show(value), with_prefix(shift + target - value, "V", 4), trimmed(margin * 100.0, 3))),
-            Limit::AmplifierInput => Some(match floating_couple(plan, e.node) {
-                Some(tc) => format!("hold the couple's common mode inside {} .. {} with a `bias_voltage` on `{tc}` (mid-range: {}), or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show((e.allowed.0 + e.allowed.1) / 2.0), show(value)),
-                None => format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e.allowed.0), show(e.allowed.1), show(value)),
-            }),
-            Limit::ConverterInput if high => match slot("vref") {
-                Some(vref) => Some(format!("a reference of at least {} keeps {} % headroom", with_prefix(vref * value / target, "V", 4), trimmed(margin * 100.0, 3))),
-                None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
-            },
-            Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)".to_string()),
-            Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {} % headroom is {}", trimmed(margin * 100.0, 3), with_prefix(i * target / value, "A", 4))),
-            Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {} % headroom", with_prefix(value / (1.0 - margin), "A", 4), trimmed(margin * 100.0, 3))),
-            Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
-            Limit::ConverterReference => Some(reference_fix(slot("vref").is_some(), high, value, target, margin)),
-            Limit::ConverterPin(_) => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e.allowed.0), show(e.allowed.1), show(value))),
-            Limit::ConverterSettling => None,
-        };
-        let at = format!(
-            "at {} {unit}, ambient {} degC",
-            trimmed(from_si(e.worst_at.0, &unit), 6),
-            trimmed(from_si(e.worst_at.1, "degC"), 4)
-        );
-        let (limit_param, drive_param) = e.limit.params();
-        let limit_text = if e.unit == "of full scale" {
-            "the end of its range".to_string()
+        Side {
+            high,
+            value,
+            bound,
+            target,
+        }
+    }
+}
+
+/// `x` in the envelope's unit, for people.
+fn show(e: &Envelope, x: f64) -> String {
+    match e.unit {
+        LimitUnit::FullScale => format!("{} % of full scale", trimmed(x * 100.0, 4)),
+        LimitUnit::Volt | LimitUnit::Ampere | LimitUnit::Ohm => with_prefix(x, e.unit.symbol(), 4),
+    }
+}
+
+/// The finding of one envelope, if it keeps too little headroom.
+fn finding(
+    chain: &Chain,
+    plan: &Plan,
+    envelopes: &[Envelope],
+    e: &Envelope,
+    margin: f64,
+    unit: &str,
+) -> Option<Finding> {
+    let headroom = e.headroom();
+    // Settling is judged on its own terms (R630), not as a range; a pin
+    // may sit on a rail (a pseudo-differential input's low side on
+    // ground), so rails get no margin.
+    let needed = match e.limit {
+        Limit::ConverterSettling => return None,
+        Limit::ConverterPin(_) => 0.0,
+        _ => margin,
+    };
+    if headroom >= needed || a_worse_pin(envelopes, e) {
+        return None;
+    }
+    let stage = chain.stages.iter().find(|s| s.name == plan.names[e.node])?;
+    let side = Side::of(e, margin);
+    let f = Finding::new(
+        if headroom < 0.0 {
+            Code::R601
         } else {
-            format!("its limit of {}", show(bound))
-        };
-        let (code, message) = if headroom < 0.0 {
-            (
-                Code::R601,
-                format!(
-                    "the {} of `{}` reaches {} {at}, beyond {limit_text}",
-                    e.limit.describe(),
-                    stage.name,
-                    show(value)
-                ),
-            )
-        } else {
-            (
-                Code::R602,
-                format!(
-                    "the {} of `{}` reaches {} {at}, within {} % of {limit_text}",
-                    e.limit.describe(),
-                    stage.name,
-                    show(value),
-                    trimmed(headroom * 100.0, 3)
-                ),
-            )
-        };
-        let mut f = Finding::new(code, &chain.file, message).label(stage.name_span, "this stage");
-        for (name, text) in [(limit_param, "the limit"), (drive_param, "drives it")] {
-            if let Some(p) = stage.params.iter().find(|p| p.name == name) {
-                if std::sync::Arc::ptr_eq(&p.file, &chain.file)
-                    && !f.labels.iter().any(|l| l.span == p.span)
-                {
-                    f = f.label(p.span, text);
-                }
+            Code::R602
+        },
+        &chain.file,
+        message(e, &stage.name, side, headroom, unit),
+    );
+    let f = labels(chain, plan, e, stage, f);
+    Some(match fix(plan, e, side, margin) {
+        Some(fix) => f.help(fix),
+        None => f,
+    })
+}
+
+/// What the finding says: where the signal goes, and how near or beyond
+/// its limit.
+fn message(e: &Envelope, stage: &str, side: Side, headroom: f64, unit: &str) -> String {
+    let at = format!(
+        "at {} {unit}, ambient {} degC",
+        trimmed(from_si(e.worst_at.0, unit), 6),
+        trimmed(from_si(e.worst_at.1, "degC"), 4)
+    );
+    let limit_text = match e.unit {
+        LimitUnit::FullScale => "the end of its range".to_string(),
+        LimitUnit::Volt | LimitUnit::Ampere | LimitUnit::Ohm => {
+            format!("its limit of {}", show(e, side.bound))
+        }
+    };
+    let what = e.limit.describe();
+    let value = show(e, side.value);
+    if headroom < 0.0 {
+        format!("the {what} of `{stage}` reaches {value} {at}, beyond {limit_text}")
+    } else {
+        format!(
+            "the {what} of `{stage}` reaches {value} {at}, within {} % of {limit_text}",
+            trimmed(headroom * 100.0, 3)
+        )
+    }
+}
+
+/// The stage, the parameters that state and drive the limit, and the
+/// stage that drives an amplifier's input or a converter's reference.
+fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -> Finding {
+    let mut f = f.label(stage.name_span, "this stage");
+    let (limit_param, drive_param) = e.limit.params();
+    for (name, text) in [(limit_param, "the limit"), (drive_param, "drives it")] {
+        if let Some(p) = stage.params.iter().find(|p| p.name == name) {
+            if std::sync::Arc::ptr_eq(&p.file, &chain.file)
+                && !f.labels.iter().any(|l| l.span == p.span)
+            {
+                f = f.label(p.span, text);
             }
         }
-        if let (Node::Amplifier { input, .. }, Limit::AmplifierInput) =
-            (&plan.nodes[e.node], e.limit)
-        {
-            if let Some(driver) = chain.stages.iter().find(|s| s.name == plan.names[*input]) {
+    }
+    let stage_of = |node: NodeId| chain.stages.iter().find(|s| s.name == plan.names[node]);
+    match (&plan.nodes[e.node], e.limit) {
+        (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) => {
+            if let Some(driver) = stage_of(*input) {
                 f = f.label(driver.name_span, "sets its input common mode");
             }
         }
-        if let Node::Adc {
-            reference: Some(r), ..
-        } = plan.nodes[e.node]
-        {
-            if let (Limit::ConverterReference, Some(driver)) = (
-                e.limit,
-                chain.stages.iter().find(|s| s.name == plan.names[r]),
-            ) {
+        (
+            Node::Adc(node::Adc {
+                reference: Some(r), ..
+            }),
+            Limit::ConverterReference,
+        ) => {
+            if let Some(driver) = stage_of(*r) {
                 f = f.label(driver.name_span, "drives its `ref`");
             }
         }
-        if let Some(fix) = fix {
-            f = f.help(fix);
-        }
-        out.push(f);
+        _ => {}
     }
-    out.extend(super::settling::findings(chain, plan, envelopes));
-    out
+    f
+}
+
+/// The nominal value of the envelope's stage's parameter `name`.
+fn nominal_of(plan: &Plan, node: NodeId, name: &str) -> Option<f64> {
+    let id = format!("{}.{name}", plan.names[node]);
+    plan.slots
+        .iter()
+        .position(|s| s.id == id)
+        .map(|i| plan.nominal[i])
+}
+
+/// The help line: what brings the signal back inside with `margin` to
+/// spare, computed.
+fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
+    let Side {
+        high,
+        value,
+        bound,
+        target,
+    } = side;
+    let slot = |name: &str| nominal_of(plan, e.node, name);
+    let pct = trimmed(margin * 100.0, 3);
+    match e.limit {
+        Limit::AmplifierOutput => amplifier_output_fix(plan, e, side, margin),
+        Limit::AmplifierInput => Some(match floating_couple(plan, e.node) {
+            Some(tc) => format!("hold the couple's common mode inside {} .. {} with a `bias_voltage` on `{tc}` (mid-range: {}), or choose an amplifier whose input range includes {}", show(e, e.allowed.0), show(e, e.allowed.1), show(e, (e.allowed.0 + e.allowed.1) / 2.0), show(e, value)),
+            None => format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e, e.allowed.0), show(e, e.allowed.1), show(e, value)),
+        }),
+        Limit::ConverterInput if high => match slot("vref") {
+            Some(vref) => Some(format!("a reference of at least {} keeps {pct} % headroom", with_prefix(vref * value / target, "V", 4))),
+            None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
+        },
+        Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)".to_string()),
+        Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {pct} % headroom is {}", with_prefix(i * target / value, "A", 4))),
+        Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {pct} % headroom", with_prefix(value / (1.0 - margin), "A", 4))),
+        Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
+        Limit::ConverterReference => Some(reference_fix(slot("vref").is_some(), high, value, target, margin)),
+        Limit::ConverterPin(_) => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e, e.allowed.0), show(e, e.allowed.1), show(e, value))),
+        Limit::ConverterSettling => None,
+    }
+}
+
+/// What brings an amplifier's output back inside its swing: the gain
+/// scales the output about its reference, so a smaller (or larger) gain
+/// where that helps (nothing to say if the gain is not a stated value),
+/// else a reference that shifts it.
+fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
+    let Side { value, target, .. } = side;
+    let worst = Env {
+        measurand: e.worst_at.0,
+        ambient: e.worst_at.1,
+        cold_junction: e.worst_at.1,
+    };
+    let shift = plan
+        .raw_signals(&plan.nominal, &worst)
+        .ok()
+        .and_then(|s| plan.amplifier_reference(e.node, &plan.nominal, &worst, &s))
+        .unwrap_or(0.0);
+    let pct = trimmed(margin * 100.0, 3);
+    if value != shift && (target - shift) / (value - shift) > 0.0 {
+        return nominal_of(plan, e.node, "gain").map(|g| {
+            let fits = g * (target - shift) / (value - shift);
+            let word = if fits < g { "at most" } else { "at least" };
+            format!(
+                "a gain of {word} {} keeps {pct} % headroom",
+                trimmed(fits, 4)
+            )
+        });
+    }
+    Some(format!("the output must reach {}: a `reference` of {} keeps {pct} % headroom (it shifts the output), or choose an amplifier that swings there", show(e, value), with_prefix(shift + target - value, "V", 4)))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// Resolved by the front end's stages: the checker sits above the
+    /// analyses, so a test here does not call it.
+    fn chain(text: &str) -> Chain {
+        let file = crate::syntax::decode("test.catena", text.as_bytes()).expect("text");
+        let (ast, findings) = crate::syntax::parse(&file);
+        assert!(!findings.has_errors(), "{findings:?}");
+        let mut parts = crate::model::PartsCache::default();
+        let base = std::path::Path::new(".");
+        let (chains, findings) = crate::model::resolve(&file, &ast, base, None, &mut parts);
+        assert!(!findings.has_errors(), "{findings:?}");
+        chains.into_iter().next().expect("one chain")
+    }
+
+    fn envelopes_of(text: &str) -> Vec<Envelope> {
+        let chain = chain(text);
+        let plan = crate::eval::lower(&chain).expect("lowers");
+        envelopes(&chain, &plan, 21).expect("evaluates")
+    }
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-12 * b.abs().max(1e-12)
+    }
+
+    /// Worked by hand: 10 mV/K from 500 mV at 0 degC gives 0.5 .. 1.0 V
+    /// over 0 .. 50 degC; a gain of 2 ± 1 % (the only source) takes the
+    /// output to 1.0 − 0.01 .. 2.0 + 0.02 V, worst at the top end, with
+    /// 0.48 V of the 2.5 V swing to spare (19.2 %); the converter sees the
+    /// same over its 2.5 V reference.
+    #[test]
+    fn a_gain_tolerance_widens_the_output_by_its_share() {
+        let e = envelopes_of(
+            "chain t \"T\" {
+                measurand temperature 0 degC .. 50 degC
+                sensor probe {
+                    ic_voltage
+                    slope 10 mV/K
+                    output 500 mV at 0 degC
+                }
+                amplifier front {
+                    gain 2 ± 1 %
+                    output 0 V .. 2.5 V
+                }
+                adc conv {
+                    bits 16
+                    input single
+                    vref 2.5 V
+                }
+                convert reading { method exact }
+                probe -> front -> conv -> reading
+            }",
+        );
+        let [out, conv] = &e[..] else { panic!("{e:?}") };
+        assert_eq!(
+            (out.limit, out.unit),
+            (Limit::AmplifierOutput, LimitUnit::Volt)
+        );
+        assert!(
+            close(out.reach.0, 0.99) && close(out.reach.1, 2.02),
+            "{out:?}"
+        );
+        assert!(close(out.headroom(), 0.48 / 2.5), "{}", out.headroom());
+        assert!(out.high_side());
+        assert!(close(out.worst_at.0, 50.0 + ZERO_CELSIUS_K));
+        assert_eq!(
+            (conv.limit, conv.unit),
+            (Limit::ConverterInput, LimitUnit::FullScale)
+        );
+        assert_eq!(conv.allowed, (0.0, 1.0));
+        assert!(close(conv.reach.0, 0.99 / 2.5) && close(conv.reach.1, 2.02 / 2.5));
+    }
+
+    /// A divider's load on its source: 3.3 V across the NTC (Beta 3435 K,
+    /// 10 kΩ at 25 degC) and 10 kΩ, largest at 60 degC where the NTC is
+    /// smallest: 3.3 / (R(333.15 K) + 10 kΩ), everything exact.
+    #[test]
+    fn a_divider_draws_its_source_current_through_both_parts() {
+        let e = envelopes_of(
+            "chain t \"T\" {
+                measurand temperature 30 degC .. 60 degC
+                excitation rail {
+                    voltage 3.3 V
+                    limit 1 mA
+                }
+                sensor ntc {
+                    thermistor
+                    r25 10 kohm
+                    beta 3435 K
+                }
+                bridge div {
+                    divider
+                    r 10 kohm
+                }
+                adc conv {
+                    bits 12
+                    input single
+                }
+                convert reading { method exact }
+                rail -> div -> conv -> reading
+                ntc -> div.arm
+                rail -> conv.ref
+            }",
+        );
+        let load = e
+            .iter()
+            .find(|e| e.limit == Limit::CurrentLimit)
+            .expect("the current limit is checked");
+        let t25 = 25.0 + ZERO_CELSIUS_K;
+        let r_at =
+            |t: f64| crate::physics::thermistor::beta_resistance(1e4, t25, 3435.0, t).unwrap();
+        let hot = 3.3 / (r_at(60.0 + ZERO_CELSIUS_K) + 1e4);
+        let cold = 3.3 / (r_at(30.0 + ZERO_CELSIUS_K) + 1e4);
+        assert!(
+            close(load.reach.1, hot) && close(load.reach.0, cold),
+            "{load:?}"
+        );
+        assert_eq!(load.allowed, (f64::NEG_INFINITY, 1e-3));
+        assert_eq!(load.unit, LimitUnit::Ampere);
+    }
+
+    fn envelope(allowed: (f64, f64), reach: (f64, f64)) -> Envelope {
+        Envelope {
+            node: 0,
+            limit: Limit::AmplifierOutput,
+            allowed,
+            reach,
+            worst_at: (0.0, 0.0),
+            unit: LimitUnit::Volt,
+        }
+    }
+
+    /// Headroom is the nearer end's distance over the span: a one-sided
+    /// limit's span is its one end's size, and a reach beyond is negative.
+    #[test]
+    fn headroom_against_one_and_two_sided_limits() {
+        let two = envelope((0.0, 4.0), (1.0, 3.5));
+        assert_eq!(two.span(), 4.0);
+        assert_eq!(two.headroom(), 0.125);
+        assert!(two.high_side());
+        let one = envelope((f64::NEG_INFINITY, 2.0), (-9.0, 2.5));
+        assert_eq!(one.span(), 2.0);
+        assert_eq!(one.headroom(), -0.25);
+        let low = envelope((-1.0, f64::INFINITY), (-0.5, 7.0));
+        assert_eq!(low.headroom(), 0.5);
+        assert!(!low.high_side());
+    }
+
+    /// A differential input's pins sit at the common mode ± half the
+    /// difference; a single-ended input is its one pin.
+    #[test]
+    fn pins_about_the_common_mode() {
+        let input = Signal::Voltage {
+            v: 0.2,
+            cm: 1.5,
+            rs: 0.0,
+        };
+        assert_eq!(pin_voltage(input, true, Pin::Positive), 1.6);
+        assert_eq!(pin_voltage(input, true, Pin::Negative), 1.4);
+        assert_eq!(pin_voltage(input, false, Pin::Positive), 0.2);
+        assert_eq!(pin_voltage(Signal::None, true, Pin::Positive), 0.0);
+    }
+
+    /// A bridge loads its source with its two sides in parallel: a
+    /// quarter bridge of 350 Ω parts with the gauge at 351 Ω gives
+    /// 701 ∥ 700 Ω; a divider its two parts in series.
+    #[test]
+    fn bridge_loads() {
+        let mut s = [Signal::None; MAX_NODES];
+        s[1] = Signal::Element(351.0);
+        let quarter = bridge_load(BridgeKind::Quarter, 350.0, &[1], &s);
+        assert!(close(quarter, 701.0 * 700.0 / 1401.0), "{quarter}");
+        let divider = bridge_load(BridgeKind::Divider { sensor_high: false }, 1e4, &[1], &s);
+        assert_eq!(divider, 10_351.0);
+    }
 }

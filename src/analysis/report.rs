@@ -10,9 +10,9 @@ use super::ranges::{envelopes, Envelope};
 use super::requirements::{verdicts, Achieved, Verdict};
 use super::validation::{check, GumCheck};
 use crate::diagnostics::{Code, Finding, Findings};
-use crate::eval::{Calibration, Node};
+use crate::eval::{node, Calibration, Node};
 use crate::eval::{Env, EvalError, Plan};
-use crate::model::Chain;
+use crate::model::{AccuracyMethod, Chain, RequirementKind};
 use crate::units::format::{from_si, trimmed};
 
 /// Monte Carlo trials per point unless told: enough for the interval's
@@ -154,7 +154,7 @@ fn deterministic(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analys
         gum_checks: None,
         trials: 0,
         seed: options.seed,
-        dynamics: dynamics(chain, plan),
+        dynamics: dynamics(plan),
         verdicts: Vec::new(),
         envelopes: Vec::new(),
         accumulation: Vec::new(),
@@ -241,9 +241,11 @@ fn add_detail(
         });
     analysis.accumulation = accumulation(plan, &worst)?;
     analysis.uncalibrated = match &plan.nodes[plan.reading] {
-        Node::Convert { conversion, .. } if conversion.calibration != Calibration::None => {
+        Node::Convert(node::Convert { conversion, .. })
+            if conversion.calibration != Calibration::None =>
+        {
             let mut bare = plan.clone();
-            if let Node::Convert { conversion, .. } = &mut bare.nodes[bare.reading] {
+            if let Node::Convert(node::Convert { conversion, .. }) = &mut bare.nodes[bare.reading] {
                 conversion.calibration = Calibration::None;
             }
             let b = budget::budget(chain, &bare, &options.budget)?;
@@ -259,16 +261,12 @@ fn add_detail(
 /// largest contributors with their shares.
 pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
     let mut findings = Findings::new();
-    let unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let unit = chain.measurand_unit();
     let (diff_unit, factor) = chain.difference_unit();
     let diff = |x: f64| x * factor;
     for v in analysis.verdicts.iter().filter(|v| !v.pass) {
-        let (code, message, help) = match v.name {
-            "accuracy" => {
+        let (code, message, help) = match v.kind {
+            RequirementKind::Accuracy(method) => {
                 let at = v.at.map(|(m, a)| format!(" at {} {unit}, ambient {} degC", trimmed(from_si(m, &unit), 6), trimmed(from_si(a, "degC"), 4))).unwrap_or_default();
                 let top = v.top.iter().map(|(id, share)| format!("`{id}` {:.0} %", share * 100.0)).collect::<Vec<_>>().join(", ");
                 (
@@ -276,23 +274,23 @@ pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
                     format!(
                         "accuracy ± {} {diff_unit} ({}) misses the required ± {} {diff_unit}{at}",
                         trimmed(diff(v.achieved), 3),
-                        method_name(&v.method),
+                        method_name(method.unwrap_or_default()),
                         trimmed(diff(v.limit), 6)
                     ),
                     format!("the largest contributors there: {top}; tighten them or relax the requirement"),
                 )
             }
-            "resolution" => (
+            RequirementKind::Resolution => (
                 Code::R612,
-                format!("resolution {} {diff_unit} ({}) misses the required {} {diff_unit}", trimmed(diff(v.achieved), 3), v.method.replace('_', "-"), trimmed(diff(v.limit), 6)),
+                format!("resolution {} {diff_unit} ({}) misses the required {} {diff_unit}", trimmed(diff(v.achieved), 3), v.method.word().replace('_', "-"), trimmed(diff(v.limit), 6)),
                 "average more conversions, narrow the noise bandwidth or lower the noise; a finer converter helps only when one code is the limit".to_string(),
             ),
-            "response" => (
+            RequirementKind::Response => (
                 Code::R613,
                 format!("a step takes {} s to reach 90 % of the reading; the requirement is {} s", trimmed(v.achieved, 3), trimmed(v.limit, 6)),
                 "a faster sensor, a wider filter, a higher rate or less averaging shortens the response".to_string(),
             ),
-            _ => (
+            RequirementKind::Rejection => (
                 Code::R614,
                 format!("the chain attenuates {} dB where {} dB is required", trimmed(20.0 * v.achieved.log10(), 3), trimmed(20.0 * v.limit.log10(), 3)),
                 "lower the filter's cutoff, raise its order, or set the converter's digital notch at the mains frequency".to_string(),
@@ -362,10 +360,10 @@ fn significant_up(x: f64) -> f64 {
     (x / scale).ceil() * scale
 }
 
-fn method_name(method: &str) -> &str {
+fn method_name(method: AccuracyMethod) -> &'static str {
     match method {
-        "worst_case" => "worst case",
-        "monte_carlo" => "Monte Carlo 95 %",
-        _ => "GUM, k = 2",
+        AccuracyMethod::WorstCase => "worst case",
+        AccuracyMethod::MonteCarlo => "Monte Carlo 95 %",
+        AccuracyMethod::Gum => "GUM, k = 2",
     }
 }

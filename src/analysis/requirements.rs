@@ -6,17 +6,16 @@ use super::budget::Budget;
 use super::monte_carlo::Interval;
 use crate::diagnostics::Span;
 use crate::model::value::{Basis, ParamValue};
-use crate::model::{Chain, Requirement};
+use crate::model::{AccuracyMethod, Chain, Requirement, RequirementKind};
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct Verdict {
-    /// `accuracy`, `resolution`, `response`, `rejection`.
-    pub name: &'static str,
+    /// The requirement judged, with the accuracy method that judged it.
+    pub kind: RequirementKind,
     pub limit: f64,
     pub achieved: f64,
-    /// How `achieved` was found: `gum`, `worst_case`, `monte_carlo`,
-    /// `noise_free`, `step_90`, `attenuation_at_<f>`.
-    pub method: String,
+    /// How `achieved` was found.
+    pub method: Judged,
     pub pass: bool,
     /// Where it was worst: measurand and ambient, SI.
     pub at: Option<(f64, f64)>,
@@ -28,6 +27,37 @@ pub struct Verdict {
     pub span: Span,
 }
 
+/// How a verdict's achieved value was found.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Judged {
+    /// An accuracy total by its method.
+    Accuracy(AccuracyMethod),
+    /// The noise-free resolution after averaging.
+    NoiseFree,
+    /// One code, where that is coarser than the noise.
+    Lsb,
+    /// The 0 → 90 % step response.
+    Step90,
+    /// The attenuation at a frequency, Hz.
+    AttenuationAt(f64),
+}
+
+impl Judged {
+    /// Its name in reports: `gum`, `worst_case`, `monte_carlo`,
+    /// `noise_free`, `lsb`, `step_90`, `attenuation_at_<f>_hz`.
+    pub fn word(self) -> String {
+        match self {
+            Judged::Accuracy(method) => method.word().to_string(),
+            Judged::NoiseFree => "noise_free".to_string(),
+            Judged::Lsb => "lsb".to_string(),
+            Judged::Step90 => "step_90".to_string(),
+            Judged::AttenuationAt(hz) => {
+                format!("attenuation_at_{}_hz", crate::units::format::trimmed(hz, 6))
+            }
+        }
+    }
+}
+
 /// What the dynamics analysis found, for the verdicts.
 #[derive(Clone, Copy, Debug, PartialEq, Default)]
 pub struct Achieved {
@@ -35,13 +65,17 @@ pub struct Achieved {
     pub response_s: Option<f64>,
 }
 
-pub fn accuracy_method(chain: &Chain) -> &str {
+/// The method the chain's accuracy requirement asks for (GUM when it
+/// names none, or has no accuracy requirement).
+pub fn accuracy_method(chain: &Chain) -> AccuracyMethod {
     chain
         .requirements
         .iter()
-        .find(|r| r.kind == "accuracy")
-        .and_then(|r| r.method.as_deref())
-        .unwrap_or("gum")
+        .find_map(|r| match r.kind {
+            RequirementKind::Accuracy(method) => Some(method.unwrap_or_default()),
+            _ => None,
+        })
+        .unwrap_or_default()
 }
 
 /// The accuracy verdict: judged at the point where the error takes the
@@ -50,17 +84,17 @@ pub fn accuracy_method(chain: &Chain) -> &str {
 fn accuracy_verdict(
     chain: &Chain,
     r: &Requirement,
+    method: AccuracyMethod,
     limit: f64,
     budget: &Budget,
     mc: Option<&[Interval]>,
 ) -> Option<Verdict> {
-    let method = r.method.clone().unwrap_or_else(|| "gum".into());
-    let error_at = |i: usize| match method.as_str() {
-        "worst_case" => budget.points[i].worst_case,
-        "monte_carlo" => mc
+    let error_at = |i: usize| match method {
+        AccuracyMethod::WorstCase => budget.points[i].worst_case,
+        AccuracyMethod::MonteCarlo => mc
             .map(|m| m[i].low.abs().max(m[i].high.abs()))
             .unwrap_or(budget.points[i].gum_expanded),
-        _ => budget.points[i].gum_expanded,
+        AccuracyMethod::Gum => budget.points[i].gum_expanded,
     };
     // The limit at each point: fixed, or a share of the reading.
     let limit_at = |i: usize| match &r.value {
@@ -78,7 +112,7 @@ fn accuracy_verdict(
     let worst = (0..budget.points.len()).max_by(|&a, &b| share(a).total_cmp(&share(b)))?;
     let limit = limit_at(worst);
     let p = &budget.points[worst];
-    let top = if method == "worst_case" {
+    let top = if method == AccuracyMethod::WorstCase {
         p.contributions
             .iter()
             .map(|c| (c.id.clone(), c.worst / p.worst_case.max(f64::MIN_POSITIVE)))
@@ -98,16 +132,16 @@ fn accuracy_verdict(
         v.sort_by(|a, b| b.1.total_cmp(&a.1));
         v
     };
-    let numerical = match method.as_str() {
-        "monte_carlo" => mc.map(|m| m[worst].numerical),
-        _ => None,
+    let numerical = match method {
+        AccuracyMethod::MonteCarlo => mc.map(|m| m[worst].numerical),
+        AccuracyMethod::WorstCase | AccuracyMethod::Gum => None,
     };
     Some(Verdict {
-        name: "accuracy",
+        kind: r.kind,
         limit,
         achieved: error_at(worst),
         pass: error_at(worst) <= limit,
-        method,
+        method: Judged::Accuracy(method),
         at: Some((p.measurand, p.ambient)),
         top: top.into_iter().take(3).collect(),
         numerical,
@@ -133,74 +167,72 @@ pub fn verdicts(
             _ => continue,
         };
         let verdict = match r.kind {
-            "accuracy" => match accuracy_verdict(chain, r, limit, budget, mc) {
-                Some(v) => v,
-                None => continue,
-            },
-            "resolution" => {
-                let lsb = budget
-                    .points
-                    .iter()
-                    .map(|p| p.code_step())
-                    .fold(0.0, f64::max);
-                let achieved = budget.noise.noise_free_averaged.max(lsb);
-                let method = if budget.noise.noise_free_averaged >= lsb {
-                    "noise_free"
-                } else {
-                    "lsb"
-                };
-                Verdict {
-                    name: "resolution",
-                    limit,
-                    achieved,
-                    pass: achieved <= limit,
-                    method: method.into(),
-                    at: None,
-                    top: Vec::new(),
-                    numerical: None,
-                    span: r.span,
-                }
+            RequirementKind::Accuracy(method) => {
+                let method = method.unwrap_or_default();
+                accuracy_verdict(chain, r, method, limit, budget, mc)
             }
-            "response" => {
-                let Some(t) = achieved.response_s else {
-                    continue;
-                };
-                Verdict {
-                    name: "response",
-                    limit,
-                    achieved: t,
-                    pass: t <= limit,
-                    method: "step_90".into(),
-                    at: None,
-                    top: Vec::new(),
-                    numerical: None,
-                    span: r.span,
-                }
-            }
-            "rejection" => {
-                let ParamValue::At { value, at, .. } = &r.value else {
-                    continue;
-                };
-                // Required and achieved attenuation, as amplitude ratios.
-                let Some(a) = rejection(*at) else { continue };
-                Verdict {
-                    name: "rejection",
-                    limit: value.nominal,
-                    achieved: a,
-                    pass: a >= value.nominal,
-                    method: format!(
-                        "attenuation_at_{}_hz",
-                        crate::units::format::trimmed(*at, 6)
-                    ),
-                    at: None,
-                    top: Vec::new(),
-                    numerical: None,
-                    span: r.span,
-                }
-            }
-            _ => continue,
+            RequirementKind::Resolution => Some(resolution_verdict(r, limit, budget)),
+            RequirementKind::Response => achieved
+                .response_s
+                .map(|t| plain_verdict(r, limit, t, t <= limit, Judged::Step90)),
+            RequirementKind::Rejection => rejection_verdict(r, rejection),
         };
-        out.push(verdict);
+        out.extend(verdict);
     }
     out
+}
+
+/// A verdict without a worst point, contributors or numerical width.
+fn plain_verdict(
+    r: &Requirement,
+    limit: f64,
+    achieved: f64,
+    pass: bool,
+    method: Judged,
+) -> Verdict {
+    Verdict {
+        kind: r.kind,
+        limit,
+        achieved,
+        pass,
+        method,
+        at: None,
+        top: Vec::new(),
+        numerical: None,
+        span: r.span,
+    }
+}
+
+/// Resolution: the noise-free resolution after averaging, or one code
+/// where that is coarser.
+fn resolution_verdict(r: &Requirement, limit: f64, budget: &Budget) -> Verdict {
+    let lsb = budget
+        .points
+        .iter()
+        .map(|p| p.code_step())
+        .fold(0.0, f64::max);
+    let achieved = budget.noise.noise_free_averaged.max(lsb);
+    let method = if budget.noise.noise_free_averaged >= lsb {
+        Judged::NoiseFree
+    } else {
+        Judged::Lsb
+    };
+    plain_verdict(r, limit, achieved, achieved <= limit, method)
+}
+
+/// Rejection: the chain's attenuation at the stated frequency, as
+/// amplitude ratios.
+fn rejection_verdict(r: &Requirement, rejection: &dyn Fn(f64) -> Option<f64>) -> Option<Verdict> {
+    let ParamValue::At { value, at, .. } = &r.value else {
+        return None;
+    };
+    let a = rejection(*at)?;
+    let method = Judged::AttenuationAt(*at);
+    Some(plain_verdict(
+        r,
+        value.nominal,
+        a,
+        a >= value.nominal,
+        method,
+    ))
 }

@@ -6,8 +6,7 @@
 
 use super::ranges::{Envelope, Limit};
 use crate::diagnostics::{Code, Finding, Findings};
-use crate::eval::{Node, NodeId, Plan};
-use crate::model::value::ParamValue;
+use crate::eval::{node, Node, NodeId, Plan};
 use crate::model::Chain;
 use crate::physics::sampling::{
     largest_resistance, settling_error_lsb, shortest_acquisition, SETTLED_LSB,
@@ -32,20 +31,16 @@ impl Sampling {
     /// resistance feeds it: a filter right at its input holds charge of
     /// its own (or drives it from an output this model does not know), so
     /// there the check does not apply.
-    pub fn of(chain: &Chain, plan: &Plan, node: NodeId, bits: u32, input: NodeId) -> Option<Self> {
-        if matches!(plan.nodes[input], Node::Filter { .. }) {
+    pub fn of(plan: &Plan, node: NodeId, bits: u32, input: NodeId) -> Option<Self> {
+        if matches!(plan.nodes[input], Node::Filter(_)) {
             return None;
         }
-        let stage = chain.stages.iter().find(|s| s.name == plan.names[node])?;
-        let number = |name: &str| match stage.param(name) {
-            Some(ParamValue::Measure(m)) => Some(m.nominal),
-            _ => None,
-        };
+        let stated = plan.stated[node].sampling?;
         Some(Sampling {
             bits,
-            capacitance: number("sampling_capacitance")?,
-            acquisition: number("acquisition_time")?,
-            switch: number("sampling_resistance").unwrap_or(0.0),
+            capacitance: stated.capacitance,
+            acquisition: stated.acquisition,
+            switch: stated.switch,
         })
     }
 
@@ -74,10 +69,10 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
         .iter()
         .filter(|e| e.limit == Limit::ConverterSettling)
     {
-        let Node::Adc { bits, input, .. } = plan.nodes[e.node] else {
+        let Node::Adc(node::Adc { bits, input, .. }) = plan.nodes[e.node] else {
             continue;
         };
-        let Some(sampling) = Sampling::of(chain, plan, e.node, bits, input) else {
+        let Some(sampling) = Sampling::of(plan, e.node, bits, input) else {
             continue;
         };
         let source = e.reach.1;
@@ -88,11 +83,7 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
         let Some(stage) = chain.stages.iter().find(|s| s.name == plan.names[e.node]) else {
             continue;
         };
-        let unit = chain
-            .measurand
-            .as_ref()
-            .map(|m| m.unit.clone())
-            .unwrap_or_default();
+        let unit = chain.measurand_unit();
         let message = format!(
             "the input of `{}` settles only to within {} LSB of its final value in its acquisition time, behind a source resistance of {} (at {} {unit}, ambient {} degC)",
             stage.name,

@@ -13,6 +13,7 @@ use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::report::{
     analyse_reusing, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
 };
+use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part, soundness};
 use crate::check::CheckedFile;
 use crate::diagnostics::did_you_mean;
@@ -130,7 +131,7 @@ fn budget_file(
     several: bool,
     docs: &mut Vec<BudgetJson>,
 ) -> Result<u8, ChainAbsent> {
-    let (checked, config) = match check_one(path) {
+    let (checked, config) = match check_one(path, Keep::Reports) {
         Ok(c) => c,
         Err(status) => return Ok(status),
     };

@@ -6,7 +6,7 @@ use std::collections::BTreeMap;
 use serde::Serialize;
 
 use crate::analysis::report::Analysis;
-use crate::model::Chain;
+use crate::model::{Chain, RequirementKind};
 use crate::units::format::{from_si, trimmed};
 
 #[derive(Serialize)]
@@ -137,11 +137,7 @@ fn plan_name(a: &Analysis, node: usize) -> String {
 /// One chain's budget as its JSON document, in the report's units.
 pub(super) fn json(file: &str, chain: &Chain, a: &Analysis) -> BudgetJson {
     let (unit, f) = chain.difference_unit();
-    let m_unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let m_unit = chain.measurand_unit();
     BudgetJson {
         schema_version: 1,
         file: file.to_string(),
@@ -246,11 +242,7 @@ fn limits(a: &Analysis) -> Vec<LimitJson> {
         .map(|e| LimitJson {
             stage: plan_name(a, e.node),
             limit: e.limit.describe(),
-            unit: if e.unit == "of full scale" {
-                "1"
-            } else {
-                e.unit
-            },
+            unit: e.unit.symbol(),
             allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
             reach: [e.reach.0, e.reach.1],
             headroom: e.headroom(),
@@ -287,20 +279,17 @@ fn stages(a: &Analysis, f: f64) -> Vec<StageJson> {
 
 fn requirements(a: &Analysis, f: f64) -> Vec<RequirementJson> {
     // Accuracy and resolution are differences in the measurand's unit.
-    let scale = |name: &str| {
-        if name == "accuracy" || name == "resolution" {
-            f
-        } else {
-            1.0
-        }
+    let scale = |kind: RequirementKind| match kind {
+        RequirementKind::Accuracy(_) | RequirementKind::Resolution => f,
+        RequirementKind::Response | RequirementKind::Rejection => 1.0,
     };
     a.verdicts
         .iter()
         .map(|v| RequirementJson {
-            name: v.name,
-            limit: v.limit * scale(v.name),
-            achieved: v.achieved * scale(v.name),
-            method: v.method.clone(),
+            name: v.kind.word(),
+            limit: v.limit * scale(v.kind),
+            achieved: v.achieved * scale(v.kind),
+            method: v.method.word(),
             pass: v.pass,
         })
         .collect()

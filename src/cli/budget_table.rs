@@ -4,9 +4,10 @@
 use comfy_table::{presets::NOTHING, Table};
 
 use crate::analysis::budget::Point;
+use crate::analysis::ranges::LimitUnit;
 use crate::analysis::report::Analysis;
 use crate::analysis::validation::GumCheck;
-use crate::model::Chain;
+use crate::model::{Chain, RequirementKind};
 use crate::units::format::{from_si, significant, trimmed};
 
 /// JCGM 101:2008 §7.2.2 asks for M of at least 10⁴/(1 − p) trials for a
@@ -34,11 +35,7 @@ fn lines(t: &Table) -> String {
 /// instead of the worst point at each ambient.
 pub fn human(chain: &Chain, a: &Analysis, per_point: bool) -> String {
     let (unit, f) = chain.difference_unit();
-    let m_unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let m_unit = chain.measurand_unit();
     let v = |x: f64| significant(x * f, 3);
     let mut out = match &chain.label {
         Some(l) => format!("chain {} \"{l}\": error budget in {unit}\n\n", chain.name),
@@ -181,10 +178,10 @@ fn limits(a: &Analysis) -> String {
         let show = |x: f64| {
             if !x.is_finite() {
                 "—".to_string()
-            } else if e.unit == "of full scale" {
+            } else if e.unit == LimitUnit::FullScale {
                 format!("{} %", trimmed(x * 100.0, 4))
             } else {
-                crate::units::format::with_prefix(x, e.unit, 4)
+                crate::units::format::with_prefix(x, e.unit.symbol(), 4)
             }
         };
         t.add_row([
@@ -464,29 +461,29 @@ fn verdict_table(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> Table {
     let mut verdicts = table();
     verdicts.set_header(["requirement", "required", "achieved", "method", "verdict"]);
     for r in &a.verdicts {
-        let (req, got) = match r.name {
-            "accuracy" => (
+        let (req, got) = match r.kind {
+            RequirementKind::Accuracy(_) => (
                 format!("± {} {unit}", v(r.limit)),
                 format!("± {} {unit}", v(r.achieved)),
             ),
-            "resolution" => (
+            RequirementKind::Resolution => (
                 format!("{} {unit}", v(r.limit)),
                 format!("{} {unit}", v(r.achieved)),
             ),
-            "response" => (
+            RequirementKind::Response => (
                 format!("{} s", significant(r.limit, 3)),
                 format!("{} s", significant(r.achieved, 3)),
             ),
-            _ => (
+            RequirementKind::Rejection => (
                 format!("{} dB", significant(20.0 * r.limit.log10(), 3)),
                 format!("{} dB", significant(20.0 * r.achieved.log10(), 3)),
             ),
         };
         verdicts.add_row([
-            r.name.to_string(),
+            r.kind.word().to_string(),
             req,
             got,
-            r.method.replace('_', " "),
+            r.method.word().replace('_', " "),
             if r.pass { "pass".into() } else { "FAIL".into() },
         ]);
     }

@@ -15,6 +15,7 @@ use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TR
 use crate::analysis::review::{
     diff_outcomes, outcome, spec_changes, Direction, Outcome, DEFAULT_THRESHOLD,
 };
+use crate::analysis::Keep;
 use crate::check::CheckedFile;
 use crate::model::Chain;
 
@@ -71,7 +72,7 @@ pub(super) fn load(arg: &str) -> Result<Side, u8> {
         Some((p, c)) if !c.is_empty() => (p, Some(c.to_string())),
         _ => (arg, None),
     };
-    let (checked, _) = check_one(Path::new(path))?;
+    let (checked, _) = check_one(Path::new(path), Keep::Reports)?;
     Ok(Side {
         label: arg.to_string(),
         checked,
@@ -348,7 +349,7 @@ fn old_side(root: &Path, rev: &str, path: &str) -> Result<Option<Side>, String> 
     }
     let base = spec.parent().map(Path::to_path_buf).unwrap_or_default();
     let label = format!("{rev}:{path}");
-    let (checked, _) = check_configured(&label, &bytes, &base);
+    let (checked, _) = check_configured(&label, &bytes, &base, Keep::Reports);
     Ok(Some(Side {
         label,
         checked,

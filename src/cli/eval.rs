@@ -8,11 +8,12 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part_of};
 use crate::check::CheckedFile;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
-use crate::eval::{lower, lower_unvalidated, Env, EvalError, Node, Plan, Signal};
+use crate::eval::{lower, lower_unvalidated, node, Env, EvalError, Node, Plan, Signal};
 use crate::model::Chain;
 use crate::units::format::{from_si, significant, trimmed, with_prefix};
 use crate::units::{parse_unit, Dim, UnitKind, ZERO_CELSIUS_K};
@@ -36,7 +37,7 @@ pub struct EvalArgs {
 }
 
 pub fn run(args: EvalArgs) -> u8 {
-    let checked = match check_one(&args.spec) {
+    let checked = match check_one(&args.spec, Keep::Plans) {
         Ok((c, _)) => c,
         Err(status) => return status,
     };
@@ -222,7 +223,7 @@ fn outside_range(chain: &Chain, plan: &Plan, signals: &[Signal], env: &Env) -> F
 /// the converter's rail, or the exact code standing still (a stage
 /// saturated before the converter). None where it still moves.
 fn stopped(plan: &Plan, env: &Env, code: i64) -> Option<String> {
-    if let Node::Adc { bits, polarity, .. } = &plan.nodes[plan.adc] {
+    if let Node::Adc(node::Adc { bits, polarity, .. }) = &plan.nodes[plan.adc] {
         if let Ok((low, high)) = crate::physics::adc::code_range(*bits, *polarity) {
             if code <= low || code >= high {
                 return Some(format!("the code is at the converter's rail ({code})"));
@@ -417,11 +418,7 @@ struct FindingJson {
 
 impl View<'_> {
     fn measurand_unit(&self) -> String {
-        self.chain
-            .measurand
-            .as_ref()
-            .map(|m| m.unit.clone())
-            .unwrap_or_default()
+        self.chain.measurand_unit()
     }
 
     /// The coherent SI unit of the measurand (`K`, `kg`, `1`).
@@ -488,7 +485,7 @@ impl View<'_> {
             .map(|((name, s), node)| {
                 let (value, unit) = s.value_unit();
                 let unit = match (s, node) {
-                    (Signal::Reading(_), Node::Convert { conversion, .. }) => {
+                    (Signal::Reading(_), Node::Convert(node::Convert { conversion, .. })) => {
                         match conversion.variable {
                             crate::eval::Senses::ColdJunction => "K",
                             crate::eval::Senses::Measurand => self.si_unit(),
@@ -597,7 +594,7 @@ impl View<'_> {
             Signal::Voltage { v, cm, .. } => (with_prefix(v, "V", 6), with_prefix(cm, "V", 4)),
             Signal::Code { code, .. } => (format!("{code} (code)"), String::new()),
             Signal::Reading(x) => {
-                let is_cj = matches!(&self.plan.nodes[i], Node::Convert { conversion, .. } if conversion.variable == crate::eval::Senses::ColdJunction);
+                let is_cj = matches!(&self.plan.nodes[i], Node::Convert(node::Convert { conversion, .. }) if conversion.variable == crate::eval::Senses::ColdJunction);
                 if is_cj {
                     (
                         format!("{} degC", significant(from_si(x, "degC"), 6)),

@@ -1,5 +1,6 @@
 use std::path::{Path, PathBuf};
 
+use crate::analysis::Keep;
 use crate::diagnostics::Finding;
 use crate::input::{not_a_regular_spec, read_limited, ReadError};
 use crate::syntax::MAX_SOURCE_BYTES;
@@ -149,10 +150,11 @@ pub fn read_spec(path: &Path) -> Result<Result<Vec<u8>, Finding>, u8> {
 
 /// Reads and checks one spec for a command that then works on it, with
 /// the `catena.yaml` that applies to its folder (its rules applied, its
-/// own findings among the spec's); an unreadable file is a usage error,
-/// already reported.
+/// own findings among the spec's), keeping what the command uses of each
+/// chain (`keep`); an unreadable file is a usage error, already reported.
 pub fn check_one(
     path: &Path,
+    keep: Keep,
 ) -> Result<
     (
         crate::check::CheckedFile,
@@ -178,7 +180,12 @@ pub fn check_one(
             return Ok((checked, config));
         }
     };
-    Ok(check_configured(&path.to_string_lossy(), &bytes, base))
+    Ok(check_configured(
+        &path.to_string_lossy(),
+        &bytes,
+        base,
+        keep,
+    ))
 }
 
 /// Checks a spec's bytes as [`check_one`] does, `base` being its folder
@@ -188,6 +195,7 @@ pub fn check_configured(
     name: &str,
     bytes: &[u8],
     base: &Path,
+    keep: Keep,
 ) -> (
     crate::check::CheckedFile,
     std::sync::Arc<crate::config::Config>,
@@ -197,7 +205,7 @@ pub fn check_configured(
     let options = crate::analysis::CheckOptions {
         margin: config.margin.as_ref().map_or(0.0, |s| s.value.max(1e-12)),
         seed: config.seed.as_ref().map(|s| s.value),
-        for_report: true,
+        keep,
         ..Default::default()
     };
     let mut checked = crate::check::check_bytes_configured(

@@ -12,7 +12,7 @@ mod values;
 use std::path::PathBuf;
 use std::sync::Arc;
 
-use crate::diagnostics::{Code, Finding, Findings, Severity, SourceFile, Span};
+use crate::diagnostics::{Category, Code, Finding, Findings, Severity, SourceFile, Span};
 use crate::model::Defaults;
 
 pub use lookup::find;
@@ -147,5 +147,5 @@ impl Config {
 /// accepts it; an error that means the spec is wrong or cannot be
 /// evaluated may not, since nothing after it would be right.
 pub fn relaxable(code: Code) -> bool {
-    code.severity() == Severity::Warning || code.as_str().starts_with('R')
+    code.severity() == Severity::Warning || code.category() == Category::Design
 }

@@ -15,6 +15,45 @@ pub enum Severity {
     Warning,
 }
 
+/// What a finding is about, by the pipeline stage that finds it: the
+/// code's letter.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Category {
+    /// S: the file's syntax.
+    Syntax,
+    /// U: units and dimensions.
+    Units,
+    /// P: parameters and settings.
+    Parameters,
+    /// M: the chain graph (names, ports, cycles).
+    Graph,
+    /// L: parts libraries.
+    Parts,
+    /// E: evaluation of the chain (validity, conversion, numerics).
+    Evaluation,
+    /// R: the design against its requirements and limits.
+    Design,
+    /// C: the configuration file.
+    Configuration,
+}
+
+impl Category {
+    /// The category a code's letter names.
+    const fn of_letter(letter: u8) -> Option<Category> {
+        Some(match letter {
+            b'S' => Category::Syntax,
+            b'U' => Category::Units,
+            b'P' => Category::Parameters,
+            b'M' => Category::Graph,
+            b'L' => Category::Parts,
+            b'E' => Category::Evaluation,
+            b'R' => Category::Design,
+            b'C' => Category::Configuration,
+            _ => return None,
+        })
+    }
+}
+
 macro_rules! codes {
     ($( $id:ident => $severity:ident, $title:literal; )*) => {
         /// A stable diagnostic code.
@@ -30,6 +69,18 @@ macro_rules! codes {
 
             pub fn severity(self) -> Severity {
                 match self { $( Code::$id => Severity::$severity, )* }
+            }
+
+            /// What the finding is about (its letter).
+            pub fn category(self) -> Category {
+                match self {
+                    $( Code::$id => const {
+                        match Category::of_letter(stringify!($id).as_bytes()[0]) {
+                            Some(c) => c,
+                            None => panic!("a code's first letter names its category"),
+                        }
+                    }, )*
+                }
             }
 
             /// A short title for listings.
@@ -150,4 +201,22 @@ codes! {
     C803 => Error, "bad configuration value";
     C804 => Error, "unknown code in a rule";
     C805 => Error, "rule relaxes an error that cannot be relaxed";
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{Category, Code};
+
+    /// The category is the letter the registry's header gives it.
+    #[test]
+    fn categories_follow_the_letters() {
+        assert_eq!(Code::S001.category(), Category::Syntax);
+        assert_eq!(Code::E501.category(), Category::Evaluation);
+        assert_eq!(Code::R601.category(), Category::Design);
+        assert_eq!(Code::C801.category(), Category::Configuration);
+        for code in Code::ALL {
+            let letter = code.as_str().as_bytes()[0];
+            assert_eq!(Category::of_letter(letter), Some(code.category()));
+        }
+    }
 }

@@ -11,7 +11,7 @@ mod sarif;
 mod source;
 mod suggest;
 
-pub use code::{Code, Severity};
+pub use code::{Category, Code, Severity};
 pub use finding::{Cause, Finding, Label};
 pub use lines::{escape_data, escape_property, render_github, render_short};
 pub use render::{render_human, render_json, JsonFinding, FINDINGS_SCHEMA_VERSION};

@@ -2,7 +2,8 @@
 //! the nominal chain, or a linear, table or polynomial approximation of it
 //! (whose own error the budget counts), then the declared calibration.
 
-use super::plan::{Env, EvalError, NodeId, Plan, Senses, SlotId};
+use super::plan::{Env, EvalError, NodeId, Senses, SlotId};
+use crate::model::typed::ConversionMethod;
 use crate::physics::thermocouple::{self, ThermocoupleType};
 use crate::units::ZERO_CELSIUS_K;
 
@@ -38,12 +39,30 @@ pub enum Calibration {
     },
 }
 
+/// What a conversion needs of the chain it converts, and nothing more:
+/// the firmware's model of it, the code a calibration reads, and the
+/// reference conditions. The plan provides it; the conversion holds none.
+pub trait Firmware {
+    /// The reference temperature, K: drifting parts sit there in the
+    /// firmware's model, and calibrations are taken there.
+    fn reference(&self) -> f64;
+    /// The nominal values of the chain's parameters.
+    fn nominal(&self) -> &[f64];
+    /// The unrounded code of converter `adc` with `values` at `env`: the
+    /// chain's electronics, without its conversions.
+    fn code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError>;
+    /// [`Firmware::code`] as a calibration reads it.
+    fn calibration_code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError>;
+    /// An evaluation error at node `node`.
+    fn numeric(&self, node: NodeId, what: &str) -> EvalError;
+}
+
 /// Where calibration points are taken: at the reference temperature.
-pub fn calibration_env(plan: &Plan, measurand: f64) -> Env {
+pub fn calibration_env(chain: &impl Firmware, measurand: f64) -> Env {
     Env {
         measurand,
-        ambient: plan.reference,
-        cold_junction: plan.reference,
+        ambient: chain.reference(),
+        cold_junction: chain.reference(),
     }
 }
 
@@ -332,17 +351,24 @@ impl Conversion {
     /// the reference temperature, and the cold junction where its own
     /// reading (or, without one, the actual junction, off by any stated
     /// cold-junction error) says.
-    fn firmware_env(&self, plan: &Plan, values: &[f64], env: &Env, x: f64, cj: Option<f64>) -> Env {
+    fn firmware_env(
+        &self,
+        chain: &impl Firmware,
+        values: &[f64],
+        env: &Env,
+        x: f64,
+        cj: Option<f64>,
+    ) -> Env {
         let cj_error = self.cj_error.map(|s| values[s]).unwrap_or(0.0);
         match self.variable {
             Senses::Measurand => Env {
                 measurand: x,
-                ambient: plan.reference,
+                ambient: chain.reference(),
                 cold_junction: cj.unwrap_or(env.cold_junction + cj_error),
             },
             Senses::ColdJunction => Env {
                 measurand: env.measurand,
-                ambient: plan.reference,
+                ambient: chain.reference(),
                 cold_junction: x,
             },
         }
@@ -351,23 +377,20 @@ impl Conversion {
     /// The firmware model's code for `x`.
     fn nominal_code(
         &self,
-        plan: &Plan,
+        chain: &impl Firmware,
         values: &[f64],
         env: &Env,
         x: f64,
         cj: Option<f64>,
     ) -> Result<f64, EvalError> {
-        plan.exact_code(
-            &plan.nominal,
-            &self.firmware_env(plan, values, env, x, cj),
-            self.adc,
-        )
+        let env = self.firmware_env(chain, values, env, x, cj);
+        chain.code(chain.nominal(), &env, self.adc)
     }
 
     /// Reading for `code`, before calibration.
     pub fn invert(
         &self,
-        plan: &Plan,
+        chain: &impl Firmware,
         values: &[f64],
         env: &Env,
         code: f64,
@@ -376,7 +399,7 @@ impl Conversion {
         match &self.method {
             Method::Exact => {
                 let f = |x: f64| {
-                    self.nominal_code(plan, values, env, x, cj)
+                    self.nominal_code(chain, values, env, x, cj)
                         .map(|c| c - code)
                 };
                 let Some(table) = &self.inverse else {
@@ -387,7 +410,7 @@ impl Conversion {
                     TableUse::Junction {
                         ty, reference_mv, ..
                     } => {
-                        let junction = self.firmware_env(plan, values, env, 0.0, cj).cold_junction;
+                        let junction = self.firmware_env(chain, values, env, 0.0, cj).cold_junction;
                         table
                             .x_at_junction(code, junction, ty, reference_mv)
                             .filter(|x| (self.domain.0..=self.domain.1).contains(x))
@@ -424,26 +447,30 @@ impl Conversion {
     /// The reading the firmware computes from `code`.
     pub fn apply(
         &self,
-        plan: &Plan,
+        chain: &impl Firmware,
         values: &[f64],
         env: &Env,
         code: f64,
         cj: Option<f64>,
     ) -> Result<f64, EvalError> {
-        let x = self.invert(plan, values, env, code, cj)?;
-        self.correct(plan, x, &self.calibrate(plan, values)?)
+        let x = self.invert(chain, values, env, code, cj)?;
+        self.correct(chain, x, &self.calibrate(chain, values)?)
     }
 
     /// What the calibration saw with these values. Its points are taken at
     /// the reference temperature, so it depends on the values alone: an
     /// analysis that varies only the condition works it out once.
-    pub fn calibrate(&self, plan: &Plan, values: &[f64]) -> Result<Calibrated, EvalError> {
+    pub fn calibrate(
+        &self,
+        chain: &impl Firmware,
+        values: &[f64],
+    ) -> Result<Calibrated, EvalError> {
         // The chain as built (its actual values), averaged to its exact code.
         let mut codes = [0.0; 2];
         for (code, p) in codes.iter_mut().zip(self.calibration_points()) {
-            *code = plan.calibration_code(values, &calibration_env(plan, p), self.adc)?;
+            *code = chain.calibration_code(values, &calibration_env(chain, p), self.adc)?;
         }
-        self.calibrated_from(plan, values, &codes)
+        self.calibrated_from(chain, values, &codes)
     }
 
     /// The measurand values the calibration is taken at (none, one or two).
@@ -460,12 +487,12 @@ impl Conversion {
     /// (in the order of [`Conversion::calibration_points`]).
     pub fn calibrated_from(
         &self,
-        plan: &Plan,
+        chain: &impl Firmware,
         values: &[f64],
         codes: &[f64; 2],
     ) -> Result<Calibrated, EvalError> {
         let at =
-            |p: f64, code: f64| self.invert(plan, values, &calibration_env(plan, p), code, None);
+            |p: f64, code: f64| self.invert(chain, values, &calibration_env(chain, p), code, None);
         let err = |s: Option<SlotId>| s.map(|s| values[s]).unwrap_or(0.0);
         Ok(match self.calibration {
             Calibration::None => Calibrated::None,
@@ -483,7 +510,12 @@ impl Conversion {
     }
 
     /// The firmware's correction of reading `x` by what it calibrated.
-    pub fn correct(&self, plan: &Plan, x: f64, calibrated: &Calibrated) -> Result<f64, EvalError> {
+    pub fn correct(
+        &self,
+        chain: &impl Firmware,
+        x: f64,
+        calibrated: &Calibrated,
+    ) -> Result<f64, EvalError> {
         Ok(match (*calibrated, self.calibration) {
             (Calibrated::Offset(shift), _) => x + shift,
             (
@@ -492,7 +524,7 @@ impl Conversion {
             ) => {
                 if r2 == r1 {
                     return Err(
-                        plan.numeric(self.adc, "the calibration points give the same reading")
+                        chain.numeric(self.adc, "the calibration points give the same reading")
                     );
                 }
                 p1 + (x - r1) * (p2 - p1) / (r2 - r1)
@@ -501,53 +533,31 @@ impl Conversion {
         })
     }
 
-    /// Fits the method once the plan exists.
+    /// Fits the method to the chain's firmware model.
     /// `complete`: the firmware model depends on the code alone, so its
     /// tabulated inverse can stand for it. `thermocouple`: the chain's one
     /// measuring couple, whose junction the table may be shifted for.
     pub fn fit(
         &mut self,
-        plan: &Plan,
+        chain: &impl Firmware,
         env: &Env,
-        method: &str,
-        points: u32,
+        method: ConversionMethod,
         complete: bool,
         thermocouple: Option<ThermocoupleType>,
     ) -> Result<(), String> {
         let (lo, hi) = self.range;
         let code = |x: f64| {
-            self.nominal_code(plan, &plan.nominal, env, x, None)
+            self.nominal_code(chain, chain.nominal(), env, x, None)
                 .map_err(|e| e.to_string())
         };
         self.method = match method {
-            "exact" => {
+            ConversionMethod::Exact => {
                 let xs = grid(self.domain, INVERSE_POINTS);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
-                // Beyond the range a stage may clip and the code go flat:
-                // keep the stretch around the range where the code still
-                // moves one way, and let readings saturate at its ends.
-                if let Some((i0, i1)) = monotonic_around(&xs, &codes, self.range) {
-                    self.domain = (xs[i0], xs[i1]);
-                    let stands_for = match thermocouple {
-                        _ if complete => TableUse::Complete,
-                        Some(ty) if self.variable == Senses::Measurand => {
-                            self.junction_law(plan, env, ty).unwrap_or(TableUse::Start)
-                        }
-                        _ => TableUse::Start,
-                    };
-                    let mut table = InverseTable::new(
-                        xs[i0..=i1].to_vec(),
-                        codes[i0..=i1].to_vec(),
-                        stands_for,
-                    );
-                    if let (TableUse::Junction { ty, .. }, Some(_)) = (stands_for, thermocouple) {
-                        table.junction = JunctionTables::new(&table, ty, self.domain).map(Box::new);
-                    }
-                    self.inverse = Some(table);
-                }
+                self.tabulate(chain, env, &xs, &codes, complete, thermocouple);
                 Method::Exact
             }
-            "linear" => {
+            ConversionMethod::Linear => {
                 let (a, b) = (code(lo)?, code(hi)?);
                 if a == b {
                     return Err("the code does not change over the measurand range".into());
@@ -557,7 +567,7 @@ impl Conversion {
                     code_high: b,
                 }
             }
-            "table" => {
+            ConversionMethod::Table(points) => {
                 let xs = grid(self.range, points.max(2) as usize);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 if !strictly_monotonic(&codes) {
@@ -565,8 +575,8 @@ impl Conversion {
                 }
                 Method::Table { codes, xs }
             }
-            _ => {
-                let terms = points as usize + 1;
+            ConversionMethod::Poly(degree) => {
+                let terms = degree as usize + 1;
                 let xs = grid(self.range, POLY_POINTS_PER_TERM * terms);
                 let codes = xs.iter().map(|&x| code(x)).collect::<Result<Vec<_>, _>>()?;
                 let (cmin, cmax) = codes
@@ -592,15 +602,52 @@ impl Conversion {
 }
 
 impl Conversion {
+    /// The exact inverse's table from the nominal chain's `codes` at `xs`.
+    /// Beyond the range a stage may clip and the code go flat: it keeps
+    /// the stretch around the range where the code still moves one way,
+    /// and readings saturate at its ends.
+    fn tabulate(
+        &mut self,
+        chain: &impl Firmware,
+        env: &Env,
+        xs: &[f64],
+        codes: &[f64],
+        complete: bool,
+        thermocouple: Option<ThermocoupleType>,
+    ) {
+        let Some((i0, i1)) = monotonic_around(xs, codes, self.range) else {
+            return;
+        };
+        self.domain = (xs[i0], xs[i1]);
+        let stands_for = match thermocouple {
+            _ if complete => TableUse::Complete,
+            Some(ty) if self.variable == Senses::Measurand => {
+                self.junction_law(chain, env, ty).unwrap_or(TableUse::Start)
+            }
+            _ => TableUse::Start,
+        };
+        let mut table =
+            InverseTable::new(xs[i0..=i1].to_vec(), codes[i0..=i1].to_vec(), stands_for);
+        if let (TableUse::Junction { ty, .. }, Some(_)) = (stands_for, thermocouple) {
+            table.junction = JunctionTables::new(&table, ty, self.domain).map(Box::new);
+        }
+        self.inverse = Some(table);
+    }
+
     /// [`TableUse::Junction`] when the firmware model obeys the law of
     /// intermediate temperatures through `ty` alone: checked on the nominal
     /// chain across the range with the junction 15 K either side of the
     /// table's, so a second junction-sensing stage upstream (or any other
     /// way the junction enters) keeps the general solver.
-    fn junction_law(&self, plan: &Plan, env: &Env, ty: ThermocoupleType) -> Option<TableUse> {
+    fn junction_law(
+        &self,
+        chain: &impl Firmware,
+        env: &Env,
+        ty: ThermocoupleType,
+    ) -> Option<TableUse> {
         let reference_mv = thermocouple::emf_mv(ty, env.cold_junction - ZERO_CELSIUS_K).ok()?;
         let code =
-            |x: f64, cj: Option<f64>| self.nominal_code(plan, &plan.nominal, env, x, cj).ok();
+            |x: f64, cj: Option<f64>| self.nominal_code(chain, chain.nominal(), env, x, cj).ok();
         let span = (code(self.range.1, None)? - code(self.range.0, None)?).abs();
         for x in grid(self.range, 5) {
             for cj in [env.cold_junction - 15.0, env.cold_junction + 15.0] {

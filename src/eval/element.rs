@@ -2,8 +2,8 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
-use super::plan::Signal;
-use super::plan::{Env, EvalError, Node, NodeId, Plan, RtdCurve, ThermistorCurve};
+use super::node::{self, Node, RtdCurve, ThermistorCurve};
+use super::plan::{Env, EvalError, NodeId, Plan, Signal};
 use super::run::within;
 use crate::physics::{rtd, strain, thermistor};
 use crate::units::ZERO_CELSIUS_K;
@@ -30,38 +30,38 @@ impl Plan {
     #[inline]
     pub(super) fn heating(&self, n: NodeId) -> Option<Heating> {
         match &self.nodes[n] {
-            Node::Rtd {
+            Node::Rtd(node::Rtd {
                 dissipation: Some(d),
                 ..
-            } => Some(Heating {
+            }) => Some(Heating {
                 dissipation: *d,
                 curved: false,
             }),
-            Node::Thermistor {
+            Node::Thermistor(node::Thermistor {
                 dissipation: Some(d),
                 ..
-            } => Some(Heating {
+            }) => Some(Heating {
                 dissipation: *d,
                 curved: true,
             }),
-            Node::Rtd {
+            Node::Rtd(node::Rtd {
                 dissipation: None, ..
-            }
-            | Node::Thermistor {
+            })
+            | Node::Thermistor(node::Thermistor {
                 dissipation: None, ..
-            }
-            | Node::Excitation { .. }
-            | Node::Thermocouple { .. }
-            | Node::IcVoltage { .. }
-            | Node::IcCurrent { .. }
-            | Node::StrainGauge { .. }
-            | Node::Transducer { .. }
-            | Node::Resistor { .. }
-            | Node::Bridge { .. }
-            | Node::Amplifier { .. }
-            | Node::Filter { .. }
-            | Node::Adc { .. }
-            | Node::Convert { .. } => None,
+            })
+            | Node::Excitation(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         }
     }
 
@@ -70,25 +70,25 @@ impl Plan {
     /// again.
     fn element_leads(&self, n: NodeId, values: &[f64]) -> f64 {
         match &self.nodes[n] {
-            Node::Rtd {
+            Node::Rtd(node::Rtd {
                 wiring,
                 leads: Some((a, b)),
                 ..
-            } => rtd::lead_series_resistance(*wiring, values[*a], values[*b]),
-            Node::Rtd { leads: None, .. }
-            | Node::Thermistor { .. }
-            | Node::Excitation { .. }
-            | Node::Thermocouple { .. }
-            | Node::IcVoltage { .. }
-            | Node::IcCurrent { .. }
-            | Node::StrainGauge { .. }
-            | Node::Transducer { .. }
-            | Node::Resistor { .. }
-            | Node::Bridge { .. }
-            | Node::Amplifier { .. }
-            | Node::Filter { .. }
-            | Node::Adc { .. }
-            | Node::Convert { .. } => 0.0,
+            }) => rtd::lead_series_resistance(*wiring, values[*a], values[*b]),
+            Node::Rtd(node::Rtd { leads: None, .. })
+            | Node::Thermistor(_)
+            | Node::Excitation(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => 0.0,
         }
     }
 
@@ -139,14 +139,14 @@ impl Plan {
         env: &Env,
     ) -> Result<(ElementCurve, f64), EvalError> {
         match &self.nodes[n] {
-            Node::Rtd {
+            Node::Rtd(node::Rtd {
                 curve,
                 coefficient_errors,
                 r0,
                 deviation,
                 senses,
                 ..
-            } => {
+            }) => {
                 let t = self.sensed(n, *senses, env, values);
                 let range = curve.range_c();
                 let t_c = within(t - ZERO_CELSIUS_K, range)
@@ -167,9 +167,9 @@ impl Plan {
                 };
                 Ok((element, t_c))
             }
-            Node::Thermistor {
+            Node::Thermistor(node::Thermistor {
                 r25, curve, senses, ..
-            } => {
+            }) => {
                 let element = match curve {
                     ThermistorCurve::Beta { beta } => ElementCurve::Beta {
                         r25: values[*r25],
@@ -185,18 +185,18 @@ impl Plan {
                 };
                 Ok((element, self.sensed(n, *senses, env, values)))
             }
-            Node::Excitation { .. }
-            | Node::Thermocouple { .. }
-            | Node::IcVoltage { .. }
-            | Node::IcCurrent { .. }
-            | Node::StrainGauge { .. }
-            | Node::Transducer { .. }
-            | Node::Resistor { .. }
-            | Node::Bridge { .. }
-            | Node::Amplifier { .. }
-            | Node::Filter { .. }
-            | Node::Adc { .. }
-            | Node::Convert { .. } => Err(self.numeric(n, "not a temperature element")),
+            Node::Excitation(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => Err(self.numeric(n, "not a temperature element")),
         }
     }
 

@@ -1,110 +1,19 @@
 //! A checked chain to an evaluation plan: stages in topological order,
-//! every numeric parameter in a slot, each conversion fitted.
+//! each stage's typed model lowered by its node file (`eval/node/`), every
+//! numeric parameter in a slot, each conversion fitted.
 
 use petgraph::algo::toposort;
 use petgraph::graph::DiGraph;
 
-use super::convert::{Calibration, Conversion, Method};
-use super::plan::{
-    AdcOffset, AmpReference, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId,
-    Plan, RtdCurve, SenseError, Senses, Slot, SlotId, SourceKind, ThermistorCurve,
-};
+use super::convert::Conversion;
+use super::node::{self, Cx, Inputs, Node};
+use super::plan::{Env, EvalError, NodeId, Plan, SenseError, Senses};
 use super::run::{within, MAX_NODES};
+use super::stated::Stated;
 use crate::model::ports::Port;
-use crate::model::value::{Basis, Measure, ParamValue, Tolerance};
-use crate::model::{Chain, Stage};
-use crate::physics::adc::Polarity;
-use crate::physics::rtd::{self, ToleranceClass};
-use crate::physics::thermocouple::ThermocoupleType;
-use crate::physics::transducer::LinearityLine;
-use crate::syntax::ast::StageKind;
-use crate::units::{Dim, ZERO_CELSIUS_K};
-
-/// How far beyond the measurand range the exact inverse looks, as a
-/// fraction of the span, so that over-range readings are still found.
-const DOMAIN_MARGIN: f64 = 1.0;
-/// The cold-junction conversion looks this far beyond the ambient range, K.
-const CJ_MARGIN_K: f64 = 30.0;
-
-struct Slots {
-    slots: Vec<Slot>,
-}
-
-impl Slots {
-    fn add(&mut self, id: String, nominal: f64, minus: f64, plus: f64, normal: bool) -> SlotId {
-        let kind = if minus == 0.0 && plus == 0.0 {
-            SourceKind::Exact
-        } else {
-            SourceKind::of(&id)
-        };
-        self.slots.push(Slot {
-            id,
-            kind,
-            nominal,
-            minus,
-            plus,
-            normal,
-        });
-        self.slots.len() - 1
-    }
-
-    fn exact(&mut self, id: String, nominal: f64) -> SlotId {
-        self.add(id, nominal, 0.0, 0.0, false)
-    }
-
-    /// A measure: its nominal and its tolerance as absolute limits. A
-    /// bound (`20 uV max`) has nominal zero.
-    fn measure(&mut self, id: String, m: &Measure) -> SlotId {
-        let nominal = if m.max { 0.0 } else { m.nominal };
-        let (minus, plus, normal) = match &m.tolerance {
-            Some(t) => limits(t, m.nominal),
-            None if m.max => (m.nominal.abs(), m.nominal.abs(), false),
-            None => (0.0, 0.0, false),
-        };
-        self.add(id, nominal, minus, plus, normal)
-    }
-
-    /// A limit around a nominal of zero.
-    fn limit(&mut self, id: String, t: &Tolerance) -> SlotId {
-        self.add(id, 0.0, t.minus, t.plus, t.normal)
-    }
-
-    /// A drift: the coefficient's sign is unknown, so nominal zero and the
-    /// stated value as a limit either way.
-    fn drift(&mut self, id: String, per_kelvin: f64, relative: bool) -> DriftSlot {
-        let slot = self.add(id, 0.0, per_kelvin.abs(), per_kelvin.abs(), false);
-        DriftSlot { slot, relative }
-    }
-}
-
-fn limits(t: &Tolerance, nominal: f64) -> (f64, f64, bool) {
-    if t.relative {
-        (t.minus * nominal.abs(), t.plus * nominal.abs(), t.normal)
-    } else {
-        (t.minus, t.plus, t.normal)
-    }
-}
-
-fn measure<'a>(stage: &'a Stage, name: &str) -> Option<&'a Measure> {
-    match stage.param(name) {
-        Some(ParamValue::Measure(m)) => Some(m),
-        _ => None,
-    }
-}
-
-fn word<'a>(stage: &'a Stage, name: &str) -> Option<&'a str> {
-    match stage.param(name) {
-        Some(ParamValue::Word(w)) => Some(w.as_str()),
-        _ => None,
-    }
-}
-
-fn count(stage: &Stage, name: &str) -> Option<u32> {
-    match stage.param(name) {
-        Some(ParamValue::Count(n)) => Some(*n),
-        _ => None,
-    }
-}
+use crate::model::typed::{ColdJunction, StageModel};
+use crate::model::{Chain, Measurand};
+use crate::units::ZERO_CELSIUS_K;
 
 fn not_invertible(stage: &str, what: impl Into<String>) -> EvalError {
     EvalError::NotInvertible {
@@ -133,500 +42,27 @@ pub fn lower_stages(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), Eval
 /// inside its range of validity: for showing the part of a range that
 /// does ([`valid_measurand_range`]).
 pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>), EvalError> {
-    let chain_name = chain.name.clone();
     let Some(measurand) = &chain.measurand else {
-        return Err(not_invertible(&chain_name, "the chain has no measurand"));
+        return Err(not_invertible(&chain.name, "the chain has no measurand"));
     };
     if chain.stages.len() > MAX_NODES {
         return Err(not_invertible(
-            &chain_name,
+            &chain.name,
             format!("a chain has at most {MAX_NODES} stages"),
         ));
     }
-    let mut graph = DiGraph::<usize, ()>::new();
-    let ids: Vec<_> = (0..chain.stages.len()).map(|i| graph.add_node(i)).collect();
-    for c in &chain.connections {
-        graph.add_edge(ids[c.from], ids[c.to], ());
-    }
-    // Elements on one current source are in series, in edge order from the
-    // source down to ground. Each one's common mode needs the voltages
-    // below it, so those are evaluated first.
     let strings = series_strings(chain);
-    for string in &strings {
-        for pair in string.windows(2) {
-            graph.add_edge(ids[pair[1]], ids[pair[0]], ());
-        }
-    }
-    let order: Vec<usize> = toposort(&graph, None)
-        .map_err(|_| not_invertible(&chain_name, "the chain has a loop"))?
-        .into_iter()
-        .map(|n| graph[n])
-        .collect();
+    let order = evaluation_order(chain, &strings)?;
     let node_of = |stage: usize| order.iter().position(|&s| s == stage).unwrap_or(0);
-    let input = |stage: usize, port: Port| {
-        chain
-            .connections
-            .iter()
-            .find(|c| c.to == stage && c.to_port == port)
-            .map(|c| node_of(c.from))
-    };
-    let cold_junction_sensors: Vec<&str> = chain
-        .stages
-        .iter()
-        .filter_map(|s| match s.param("cold_junction") {
-            Some(ParamValue::StageRef { name, .. }) => Some(name.as_str()),
-            _ => None,
-        })
-        .collect();
-    let feeds_cj = |stage: usize| {
-        chain
-            .connections
-            .iter()
-            .any(|c| c.from == stage && c.to_port == Port::Cj)
-    };
-
-    let mut slots = Slots { slots: Vec::new() };
-    // A sensor's `% of reading` is of its temperature in the chain's unit.
-    let zero = chain
-        .measurand
-        .as_ref()
-        .map_or(ZERO_CELSIUS_K, |m| m.zero());
-    let mut sense_error = vec![SenseError::default(); order.len()];
-    let mut cj_error = None;
-    let mut nodes = Vec::with_capacity(order.len());
-    let mut names = Vec::with_capacity(order.len());
-    for &si in &order {
-        let stage = &chain.stages[si];
-        let id = |p: &str| format!("{}.{p}", stage.name);
-        let senses = if cold_junction_sensors.contains(&stage.name.as_str()) {
-            Senses::ColdJunction
-        } else {
-            Senses::Measurand
-        };
-        let drift_of = |slots: &mut Slots, name: &str, m: &Measure| {
-            m.drift.as_ref().map(|d| {
-                slots.drift(
-                    format!("{}.{name}_drift", stage.name),
-                    d.per_kelvin,
-                    d.relative,
-                )
-            })
-        };
-        let node = match (stage.kind, stage.model) {
-            (StageKind::Excitation, model) => {
-                let current = model == Some("current");
-                let name = if current { "current" } else { "voltage" };
-                let m =
-                    measure(stage, name).ok_or_else(|| not_invertible(&stage.name, "no value"))?;
-                let value = slots.measure(id(name), m);
-                let drift = match stage.param("drift") {
-                    Some(ParamValue::Limit(t)) => {
-                        Some(slots.drift(id("drift"), t.plus, t.relative))
-                    }
-                    _ => drift_of(&mut slots, name, m),
-                };
-                Node::Excitation {
-                    current,
-                    value,
-                    drift,
-                }
-            }
-            (StageKind::Sensor, Some("rtd")) => {
-                let (node, error) = rtd_node(stage, &mut slots, input(si, Port::In), senses, zero)?;
-                sense_error[nodes.len()] = error;
-                node
-            }
-            (StageKind::Sensor, Some("thermocouple")) => {
-                let ty = word(stage, "thermocouple")
-                    .and_then(ThermocoupleType::from_letter)
-                    .ok_or_else(|| not_invertible(&stage.name, "no type"))?;
-                let class = count(stage, "class").map(|c| c as u8);
-                let node_index = nodes.len();
-                if let Some(c) = class {
-                    let slot = slots.add(id("class"), 0.0, 1.0, 1.0, false);
-                    sense_error[node_index].class =
-                        Some((ClassTolerance::Thermocouple(ty, c), slot));
-                }
-                if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
-                    stated_error(
-                        &mut sense_error[node_index],
-                        &mut slots,
-                        id("tolerance"),
-                        t,
-                        zero,
-                    );
-                }
-                if let Some(ParamValue::Limit(t)) = stage.param("cold_junction") {
-                    cj_error = Some(slots.limit(id("cold_junction"), t));
-                }
-                let bias = measure(stage, "bias_voltage").map(|m| {
-                    (
-                        slots.measure(id("bias_voltage"), m),
-                        drift_of(&mut slots, "bias_voltage", m),
-                    )
-                });
-                let bias_resistor =
-                    measure(stage, "bias_resistor").map(|m| slots.measure(id("bias_resistor"), m));
-                Node::Thermocouple {
-                    ty,
-                    senses,
-                    class,
-                    bias,
-                    bias_resistor,
-                }
-            }
-            (StageKind::Sensor, Some("thermistor")) => {
-                let r25 = slots.measure(
-                    id("r25"),
-                    measure(stage, "r25").ok_or_else(|| not_invertible(&stage.name, "no r25"))?,
-                );
-                let curve = match (measure(stage, "beta"), stage.param("steinhart")) {
-                    (Some(b), _) => ThermistorCurve::Beta {
-                        beta: slots.measure(id("beta"), b),
-                    },
-                    (None, Some(ParamValue::Numbers(n))) if n.len() == 3 => {
-                        ThermistorCurve::SteinhartHart {
-                            a: n[0],
-                            b: n[1],
-                            c: n[2],
-                        }
-                    }
-                    _ => return Err(not_invertible(&stage.name, "no beta or steinhart")),
-                };
-                let dissipation =
-                    measure(stage, "dissipation").map(|m| slots.measure(id("dissipation"), m));
-                let valid = match stage.param("range") {
-                    Some(ParamValue::Range { low, high }) => Some((*low, *high)),
-                    _ => None,
-                };
-                Node::Thermistor {
-                    r25,
-                    curve,
-                    dissipation,
-                    input: input(si, Port::In),
-                    senses,
-                    valid,
-                }
-            }
-            (StageKind::Sensor, Some("ic_voltage")) => {
-                let slope = slots.measure(
-                    id("slope"),
-                    measure(stage, "slope")
-                        .ok_or_else(|| not_invertible(&stage.name, "no slope"))?,
-                );
-                let Some(ParamValue::At { value, at, .. }) = stage.param("output") else {
-                    return Err(not_invertible(&stage.name, "no output"));
-                };
-                let v0 = slots.measure(id("output"), value);
-                let rout = measure(stage, "output_resistance")
-                    .map(|m| slots.measure(id("output_resistance"), m));
-                if let Some(ParamValue::Limit(t)) = stage.param("accuracy") {
-                    let error = &mut sense_error[nodes.len()];
-                    stated_error(error, &mut slots, id("accuracy"), t, zero);
-                }
-                Node::IcVoltage {
-                    slope,
-                    v0,
-                    t0: *at,
-                    senses,
-                    rout,
-                }
-            }
-            (StageKind::Sensor, Some("ic_current")) => {
-                let slope = slots.measure(
-                    id("slope"),
-                    measure(stage, "slope")
-                        .ok_or_else(|| not_invertible(&stage.name, "no slope"))?,
-                );
-                if let Some(ParamValue::Limit(t)) = stage.param("accuracy") {
-                    let error = &mut sense_error[nodes.len()];
-                    stated_error(error, &mut slots, id("accuracy"), t, zero);
-                }
-                Node::IcCurrent { slope, senses }
-            }
-            (StageKind::Sensor, Some("strain_gauge")) => {
-                if measurand.dim != Dim::NONE {
-                    return Err(not_invertible(
-                        &stage.name,
-                        "a strain gauge needs a `strain` measurand",
-                    ));
-                }
-                let r = slots.measure(
-                    id("r"),
-                    measure(stage, "r").ok_or_else(|| not_invertible(&stage.name, "no r"))?,
-                );
-                let gauge_factor = slots.measure(
-                    id("gauge_factor"),
-                    measure(stage, "gauge_factor")
-                        .ok_or_else(|| not_invertible(&stage.name, "no gauge factor"))?,
-                );
-                // A gauge on the compression side sees the strain reversed.
-                let sign = if word(stage, "side") == Some("compression") {
-                    -1.0
-                } else {
-                    1.0
-                };
-                Node::StrainGauge {
-                    r,
-                    gauge_factor,
-                    sign,
-                    input: input(si, Port::In),
-                }
-            }
-            (StageKind::Sensor, Some("transducer")) => {
-                let Some(ParamValue::At {
-                    value,
-                    value_dim,
-                    at,
-                }) = stage.param("sensitivity")
-                else {
-                    return Err(not_invertible(&stage.name, "no sensitivity"));
-                };
-                if *at == 0.0 {
-                    return Err(not_invertible(
-                        &stage.name,
-                        "the sensitivity is stated at zero load",
-                    ));
-                }
-                let sensitivity = slots.measure(id("sensitivity"), value);
-                let zero = match stage.param("zero") {
-                    Some(ParamValue::Limit(t)) => Some(slots.limit(id("zero"), t)),
-                    _ => None,
-                };
-                let r = measure(stage, "r").map(|m| slots.measure(id("r"), m));
-                let limit = |slots: &mut Slots, name: &str| match stage.param(name) {
-                    Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), t)),
-                    _ => None,
-                };
-                Node::Transducer {
-                    sensitivity,
-                    ratiometric: *value_dim == Dim::NONE,
-                    full_scale: *at,
-                    zero,
-                    nonlinearity: limit(&mut slots, "nonlinearity"),
-                    // Terminal-based unless the datasheet says otherwise:
-                    // common practice for load cells.
-                    linearity: match word(stage, "linearity") {
-                        Some("best_fit") => LinearityLine::BestFit,
-                        _ => LinearityLine::Terminal,
-                    },
-                    hysteresis: limit(&mut slots, "hysteresis"),
-                    zero_drift: limit(&mut slots, "zero_drift"),
-                    span_drift: limit(&mut slots, "span_drift"),
-                    input: input(si, Port::In),
-                    r,
-                }
-            }
-            (StageKind::Sensor, _) => {
-                let m = measure(stage, "resistor")
-                    .ok_or_else(|| not_invertible(&stage.name, "no resistance"))?;
-                let r = slots.measure(id("r"), m);
-                let drift = drift_of(&mut slots, "r", m);
-                Node::Resistor {
-                    r,
-                    drift,
-                    input: input(si, Port::In),
-                }
-            }
-            (StageKind::Bridge, model) => {
-                let kind = match model {
-                    Some("divider") => BridgeKind::Divider {
-                        sensor_high: word(stage, "sensor") == Some("high"),
-                    },
-                    Some("quarter") => BridgeKind::Quarter,
-                    Some("half") => BridgeKind::Half,
-                    _ => BridgeKind::Full,
-                };
-                // Each completion resistor is its own part, with its own
-                // tolerance and drift.
-                let parts = match kind {
-                    BridgeKind::Quarter => 3,
-                    BridgeKind::Half => 2,
-                    BridgeKind::Divider { .. } | BridgeKind::Full => 1,
-                };
-                let mut completion = Vec::new();
-                if let Some(m) = measure(stage, "r") {
-                    for k in 1..=parts {
-                        let name = if parts == 1 {
-                            "r".to_string()
-                        } else {
-                            format!("r_{k}")
-                        };
-                        completion
-                            .push((slots.measure(id(&name), m), drift_of(&mut slots, &name, m)));
-                    }
-                }
-                let (r, drift) = match completion.first() {
-                    Some(&(r, drift)) => (Some(r), drift),
-                    None => (None, None),
-                };
-                let others = completion.get(1..).unwrap_or_default().to_vec();
-                let exc = input(si, Port::Exc)
-                    .ok_or_else(|| not_invertible(&stage.name, "no excitation"))?;
-                let arms = chain
-                    .connections
-                    .iter()
-                    .filter(|c| c.to == si && c.to_port == Port::Arm)
-                    .map(|c| node_of(c.from))
-                    .collect();
-                Node::Bridge {
-                    kind,
-                    r,
-                    drift,
-                    others,
-                    exc,
-                    arms,
-                }
-            }
-            (StageKind::Amplifier, _) => {
-                let gain = slots.measure(
-                    id("gain"),
-                    measure(stage, "gain").ok_or_else(|| not_invertible(&stage.name, "no gain"))?,
-                );
-                let limit = |slots: &mut Slots, name: &str| match stage.param(name) {
-                    Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), t)),
-                    _ => None,
-                };
-                let offset = limit(&mut slots, "offset");
-                let bias = limit(&mut slots, "bias");
-                // CMRR is a ratio whose sign is unknown: nominal zero error,
-                // ±1/CMRR per volt of common mode.
-                let cmrr = measure(stage, "cmrr").map(|m| {
-                    let e = 1.0 / m.nominal;
-                    slots.add(id("cmrr"), 0.0, e, e, false)
-                });
-                let range = |name: &str| match stage.param(name) {
-                    Some(ParamValue::Range { low, high }) => Some((*low, *high)),
-                    _ => None,
-                };
-                let input_node =
-                    input(si, Port::In).ok_or_else(|| not_invertible(&stage.name, "no input"))?;
-                let reference = match (input(si, Port::Ref), measure(stage, "reference")) {
-                    (Some(node), _) => Some(AmpReference::Stage(node)),
-                    (None, Some(m)) => Some(AmpReference::Stated {
-                        value: slots.measure(id("reference"), m),
-                        drift: drift_of(&mut slots, "reference", m),
-                    }),
-                    (None, None) => None,
-                };
-                Node::Amplifier {
-                    reference,
-                    gain,
-                    offset,
-                    cmrr,
-                    bias,
-                    offset_drift: limit(&mut slots, "offset_drift"),
-                    gain_drift: limit(&mut slots, "gain_drift"),
-                    input: input_node,
-                    input_range: range("input"),
-                    output: range("output"),
-                }
-            }
-            (StageKind::Filter, _) => {
-                let passive = word(stage, "lowpass") == Some("rc");
-                let series = measure(stage, "r")
-                    .filter(|_| passive)
-                    .map(|m| slots.measure(id("r"), m));
-                Node::Filter {
-                    input: input(si, Port::In)
-                        .ok_or_else(|| not_invertible(&stage.name, "no input"))?,
-                    series,
-                }
-            }
-            (StageKind::Adc, _) => {
-                adc_node(stage, &mut slots, input(si, Port::In), input(si, Port::Ref))?
-            }
-            (StageKind::Convert, _) => {
-                let adc =
-                    input(si, Port::In).ok_or_else(|| not_invertible(&stage.name, "no input"))?;
-                let variable = if feeds_cj(si) {
-                    Senses::ColdJunction
-                } else {
-                    Senses::Measurand
-                };
-                let range = match variable {
-                    Senses::Measurand => (measurand.low, measurand.high),
-                    Senses::ColdJunction => chain.ambient,
-                };
-                let margin = match variable {
-                    Senses::Measurand => DOMAIN_MARGIN * (range.1 - range.0),
-                    Senses::ColdJunction => CJ_MARGIN_K,
-                };
-                let calibration = match stage.param("calibrate") {
-                    Some(ParamValue::Calibrate {
-                        method,
-                        points,
-                        uncertainty,
-                    }) => {
-                        let mut error = |k: usize| {
-                            uncertainty.as_ref().map(|t| {
-                                let (minus, plus, normal) = limits(t, 0.0);
-                                slots.add(
-                                    format!("{}.calibration_{k}", stage.name),
-                                    0.0,
-                                    minus,
-                                    plus,
-                                    normal,
-                                )
-                            })
-                        };
-                        match (method.as_str(), points.as_slice()) {
-                            ("offset", [p]) => Calibration::Offset {
-                                at: *p,
-                                error: error(1),
-                            },
-                            (_, [p1, p2]) => Calibration::TwoPoint {
-                                at: (*p1, *p2),
-                                errors: (error(1), error(2)),
-                            },
-                            _ => Calibration::None,
-                        }
-                    }
-                    _ => Calibration::None,
-                };
-                let conversion = Conversion {
-                    method: Method::Exact,
-                    variable,
-                    adc,
-                    domain: (range.0 - margin, range.1 + margin),
-                    range,
-                    calibration,
-                    cj_error: if variable == Senses::Measurand {
-                        cj_error
-                    } else {
-                        None
-                    },
-                    inverse: None,
-                };
-                Node::Convert {
-                    input: adc,
-                    cj: input(si, Port::Cj),
-                    conversion: Box::new(conversion),
-                }
-            }
-        };
-        nodes.push(node);
-        names.push(stage.name.clone());
-    }
-
-    let reading_stage = chain
-        .stages
-        .iter()
-        .enumerate()
-        .find(|(i, s)| {
-            s.kind == StageKind::Convert && !chain.connections.iter().any(|c| c.from == *i)
-        })
-        .map(|(i, _)| i)
-        .ok_or_else(|| not_invertible(&chain_name, "no conversion ends the chain"))?;
-    let reading = node_of(reading_stage);
-    let Node::Convert { input: adc, .. } = &nodes[reading] else {
+    let (nodes, cx, sense_error) = lower_nodes(chain, measurand, &order, &node_of)?;
+    let reading = node_of(reading_stage(chain)?);
+    let Node::Convert(node::Convert { input: adc, .. }) = &nodes[reading] else {
         return Err(not_invertible(
-            &chain_name,
+            &chain.name,
             "the reading is not a conversion",
         ));
     };
     let adc = *adc;
-    let nominal = slots.slots.iter().map(|s| s.nominal).collect();
     let mut series_below = vec![Vec::new(); order.len()];
     for string in &strings {
         for (k, &stage) in string.iter().enumerate() {
@@ -634,11 +70,14 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
         }
     }
     let mut plan = Plan {
-        chain: chain_name,
-        names,
+        chain: chain.name.clone(),
+        names: order
+            .iter()
+            .map(|&s| chain.stages[s].name.clone())
+            .collect(),
         nodes,
-        slots: slots.slots,
-        nominal,
+        nominal: cx.slots.iter().map(|s| s.nominal).collect(),
+        slots: cx.slots,
         reference: chain.reference,
         range: (measurand.low, measurand.high),
         reading,
@@ -646,10 +85,124 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
         series_below,
         sense_error,
         groups: Vec::new(),
+        stated: order
+            .iter()
+            .map(|&s| Stated::of(&chain.stages[s]))
+            .collect(),
     };
     plan.groups = super::track::lower_groups(chain, &plan.nodes, &plan.slots, node_of);
-    let fitted = fit_conversions(&mut plan, chain, &order);
+    let fitted = fit_conversions(&mut plan);
     Ok((plan, fitted))
+}
+
+/// Stages in evaluation order: every input before its user. Elements on
+/// one current source are in series, in edge order from the source down
+/// to ground; each one's common mode needs the voltages below it, so those
+/// are evaluated first.
+fn evaluation_order(chain: &Chain, strings: &[Vec<usize>]) -> Result<Vec<usize>, EvalError> {
+    let mut graph = DiGraph::<usize, ()>::new();
+    let ids: Vec<_> = (0..chain.stages.len()).map(|i| graph.add_node(i)).collect();
+    for c in &chain.connections {
+        graph.add_edge(ids[c.from], ids[c.to], ());
+    }
+    for string in strings {
+        for pair in string.windows(2) {
+            graph.add_edge(ids[pair[1]], ids[pair[0]], ());
+        }
+    }
+    Ok(toposort(&graph, None)
+        .map_err(|_| not_invertible(&chain.name, "the chain has a loop"))?
+        .into_iter()
+        .map(|n| graph[n])
+        .collect())
+}
+
+/// The conversion no other stage reads: the chain's reading.
+fn reading_stage(chain: &Chain) -> Result<usize, EvalError> {
+    chain
+        .stages
+        .iter()
+        .enumerate()
+        .find(|(i, s)| {
+            matches!(s.typed, Some(StageModel::Convert(_)))
+                && !chain.connections.iter().any(|c| c.from == *i)
+        })
+        .map(|(i, _)| i)
+        .ok_or_else(|| not_invertible(&chain.name, "no conversion ends the chain"))
+}
+
+/// Every stage's node, in `order`, with the slots they fill and the error
+/// of what each senses.
+fn lower_nodes<'a>(
+    chain: &'a Chain,
+    measurand: &'a Measurand,
+    order: &[usize],
+    node_of: &impl Fn(usize) -> NodeId,
+) -> Result<(Vec<Node>, Cx<'a>, Vec<SenseError>), EvalError> {
+    // The stages a thermocouple names as its cold junction's sensor.
+    let cold_junction_sensors: Vec<&str> = chain
+        .stages
+        .iter()
+        .filter_map(|s| match &s.typed {
+            Some(StageModel::Thermocouple(t)) => match &t.cold_junction {
+                Some(ColdJunction::Stage(name)) => Some(name.as_str()),
+                Some(ColdJunction::Error(_)) | None => None,
+            },
+            _ => None,
+        })
+        .collect();
+    let mut cx = Cx {
+        slots: Vec::new(),
+        measurand,
+        ambient: chain.ambient,
+        zero: measurand.zero(),
+        cj_error: None,
+        name: "",
+        inputs: Inputs::default(),
+        senses: Senses::Measurand,
+        feeds_cj: false,
+        sense_error: SenseError::default(),
+    };
+    let mut nodes = Vec::with_capacity(order.len());
+    let mut sense_error = Vec::with_capacity(order.len());
+    for &si in order {
+        let stage = &chain.stages[si];
+        let Some(model) = &stage.typed else {
+            return Err(not_invertible(&stage.name, "its model was not accepted"));
+        };
+        cx.name = &stage.name;
+        cx.inputs = inputs(chain, si, node_of);
+        cx.senses = if cold_junction_sensors.contains(&stage.name.as_str()) {
+            Senses::ColdJunction
+        } else {
+            Senses::Measurand
+        };
+        cx.feeds_cj = chain
+            .connections
+            .iter()
+            .any(|c| c.from == si && c.to_port == Port::Cj);
+        nodes.push(node::lower(model, &mut cx)?);
+        sense_error.push(std::mem::take(&mut cx.sense_error));
+    }
+    Ok((nodes, cx, sense_error))
+}
+
+/// The nodes wired to stage `si`'s inputs, by port.
+fn inputs(chain: &Chain, si: usize, node_of: &impl Fn(usize) -> NodeId) -> Inputs {
+    let into = |port: Port| {
+        chain
+            .connections
+            .iter()
+            .filter(move |c| c.to == si && c.to_port == port)
+            .map(|c| node_of(c.from))
+    };
+    Inputs {
+        input: into(Port::In).next(),
+        exc: into(Port::Exc).next(),
+        reference: into(Port::Ref).next(),
+        cj: into(Port::Cj).next(),
+        arms: into(Port::Arm).collect(),
+    }
 }
 
 /// The part of the measurand range where every sensor that senses the
@@ -702,28 +255,28 @@ type Validity = (Senses, [Option<(String, (f64, f64))>; 2]);
 fn validity(node: &Node) -> Option<Validity> {
     let kelvin = |(lo, hi): (f64, f64)| (lo - ZERO_CELSIUS_K, hi - ZERO_CELSIUS_K);
     match node {
-        Node::Rtd {
+        Node::Rtd(node::Rtd {
             curve,
             senses,
             valid,
             ..
-        } => Some((
+        }) => Some((
             *senses,
             [
                 Some(("the element's curve".to_string(), curve.range_c())),
                 valid.map(|v| ("its tolerance class".to_string(), kelvin(v))),
             ],
         )),
-        Node::Thermistor { senses, valid, .. } => Some((
+        Node::Thermistor(node::Thermistor { senses, valid, .. }) => Some((
             *senses,
             [
                 None,
                 valid.map(|v| ("its stated range".to_string(), kelvin(v))),
             ],
         )),
-        Node::Thermocouple {
+        Node::Thermocouple(node::Thermocouple {
             ty, senses, class, ..
-        } => Some((
+        }) => Some((
             *senses,
             [
                 Some((format!("type {} thermocouple", ty.letter()), ty.range_c())),
@@ -736,17 +289,17 @@ fn validity(node: &Node) -> Option<Validity> {
                 }),
             ],
         )),
-        Node::Excitation { .. }
-        | Node::IcVoltage { .. }
-        | Node::IcCurrent { .. }
-        | Node::StrainGauge { .. }
-        | Node::Transducer { .. }
-        | Node::Resistor { .. }
-        | Node::Bridge { .. }
-        | Node::Amplifier { .. }
-        | Node::Filter { .. }
-        | Node::Adc { .. }
-        | Node::Convert { .. } => None,
+        Node::Excitation(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
     }
 }
 
@@ -755,10 +308,7 @@ fn validity(node: &Node) -> Option<Validity> {
 fn series_strings(chain: &Chain) -> Vec<Vec<usize>> {
     let mut strings = Vec::new();
     for (i, s) in chain.stages.iter().enumerate() {
-        if s.kind != StageKind::Excitation && s.model != Some("ic_current") {
-            continue;
-        }
-        if s.kind == StageKind::Excitation && s.model != Some("current") {
+        if !s.typed.as_ref().is_some_and(StageModel::drives_current) {
             continue;
         }
         let driven: Vec<usize> = chain
@@ -774,201 +324,9 @@ fn series_strings(chain: &Chain) -> Vec<Vec<usize>> {
     strings
 }
 
-fn rtd_node(
-    stage: &Stage,
-    slots: &mut Slots,
-    input: Option<NodeId>,
-    senses: Senses,
-    zero: f64,
-) -> Result<(Node, SenseError), EvalError> {
-    let id = |p: &str| format!("{}.{p}", stage.name);
-    let curve_word = word(stage, "rtd").unwrap_or("pt100");
-    let (default_r0, curve) = match curve_word {
-        "pt100" => (100.0, iec()),
-        "pt500" => (500.0, iec()),
-        "pt1000" => (1000.0, iec()),
-        "ni100" => (100.0, RtdCurve::Nickel),
-        "ni120" => (120.0, RtdCurve::Nickel),
-        "ni1000" => (1000.0, RtdCurve::Nickel),
-        "cu10" => (10.0, RtdCurve::Copper),
-        "cu100" => (100.0, RtdCurve::Copper),
-        _ => match stage.param("coefficients") {
-            Some(ParamValue::Measures(m)) if m.len() == 3 => (
-                0.0,
-                RtdCurve::Cvd {
-                    a: m[0].nominal,
-                    b: m[1].nominal,
-                    c: m[2].nominal,
-                },
-            ),
-            _ => {
-                return Err(not_invertible(
-                    &stage.name,
-                    "a custom curve needs `coefficients`",
-                ))
-            }
-        },
-    };
-    let r0 = match measure(stage, "r0") {
-        Some(m) => slots.measure(id("r0"), m),
-        None => slots.exact(id("r0"), default_r0),
-    };
-    // A characterised probe's coefficients, each its own source: a
-    // deviation of nominal 0 within its tolerance.
-    let mut coefficient_errors = [None; 3];
-    if let (Some(ParamValue::Measures(m)), RtdCurve::Cvd { .. }) =
-        (stage.param("coefficients"), curve)
-    {
-        for (k, (m, name)) in m.iter().zip(["a", "b", "c"]).enumerate() {
-            coefficient_errors[k] = m.tolerance.as_ref().map(|t| {
-                let (minus, plus, normal) = limits(t, m.nominal);
-                slots.add(id(&format!("coefficient_{name}")), 0.0, minus, plus, normal)
-            });
-        }
-    }
-    let wiring = match count(stage, "wires") {
-        Some(2) => rtd::Wiring::TwoWire,
-        Some(3) => rtd::Wiring::ThreeWire,
-        _ => rtd::Wiring::FourWire,
-    };
-    // Each wire has its own resistance within the stated tolerance: two
-    // independent sources, which the wiring combines.
-    let leads = measure(stage, "lead").map(|m| {
-        (
-            slots.measure(id("lead_1"), m),
-            slots.measure(id("lead_2"), m),
-        )
-    });
-    let dissipation = measure(stage, "dissipation").map(|m| slots.measure(id("dissipation"), m));
-    let class = word(stage, "class").map(|c| match c {
-        "AA" => ToleranceClass::AA,
-        "A" => ToleranceClass::A,
-        "B" => ToleranceClass::B,
-        _ => ToleranceClass::C,
-    });
-    let valid = class.map(|class| {
-        let (lo, hi) = class.wire_wound_range_c();
-        (lo + ZERO_CELSIUS_K, hi + ZERO_CELSIUS_K)
-    });
-    // The class as the R0 and coefficient tolerances it comes from, so a
-    // calibration removes what it really removes.
-    let deviation = class.map(|class| {
-        let d = rtd::class_deviation(class);
-        (
-            slots.add(id("class_r0"), 0.0, d.r0, d.r0, false),
-            slots.add(id("class_alpha"), 0.0, d.alpha, d.alpha, false),
-        )
-    });
-    let mut error = SenseError::default();
-    if let Some(ParamValue::Limit(t)) = stage.param("tolerance") {
-        stated_error(&mut error, slots, id("tolerance"), t, zero);
-    }
-    let node = Node::Rtd {
-        curve,
-        coefficient_errors,
-        r0,
-        wiring,
-        leads,
-        dissipation,
-        input,
-        senses,
-        valid,
-        deviation,
-    };
-    Ok((node, error))
-}
-
-/// A sensor's stated error: absolute (also `% of span`, converted when it
-/// was read) or a share of its reading.
-fn stated_error(error: &mut SenseError, slots: &mut Slots, id: String, t: &Tolerance, zero: f64) {
-    match t.basis {
-        Basis::Reading => error.of_reading = Some((slots.limit(id, t), zero)),
-        Basis::Written | Basis::Span => error.absolute = Some(slots.limit(id, t)),
-    }
-}
-
-fn iec() -> RtdCurve {
-    let k = rtd::CvdCoefficients::IEC_60751;
-    RtdCurve::Cvd {
-        a: k.a,
-        b: k.b,
-        c: k.c,
-    }
-}
-
-fn adc_node(
-    stage: &Stage,
-    slots: &mut Slots,
-    input: Option<NodeId>,
-    reference: Option<NodeId>,
-) -> Result<Node, EvalError> {
-    let id = |p: &str| format!("{}.{p}", stage.name);
-    let differential = word(stage, "input") == Some("differential");
-    // Differential converters are bipolar unless told otherwise.
-    let polarity = match word(stage, "polarity") {
-        Some("bipolar") => Polarity::Bipolar,
-        Some("unipolar") => Polarity::Unipolar,
-        _ if differential => Polarity::Bipolar,
-        _ => Polarity::Unipolar,
-    };
-    let bits = count(stage, "bits").unwrap_or(12);
-    // Gain error and INL as fractions of the full-scale span.
-    let fraction = |slots: &mut Slots, name: &str| match stage.param(name) {
-        Some(ParamValue::Limit(t)) => Some(slots.limit(id(name), &fraction_of_span(t, bits))),
-        _ => None,
-    };
-    let (vref, vref_drift) = match measure(stage, "vref") {
-        Some(m) => (
-            Some(slots.measure(id("vref"), m)),
-            m.drift
-                .as_ref()
-                .map(|d| slots.drift(id("vref_drift"), d.per_kelvin, d.relative)),
-        ),
-        None => (None, None),
-    };
-    // Slots in the order the parameters are listed (it seeds Monte Carlo).
-    let pga = measure(stage, "pga").map(|m| slots.measure(id("pga"), m));
-    let offset = match stage.param("offset") {
-        Some(ParamValue::Limit(t)) if t.dim == Dim::CODE => {
-            Some(AdcOffset::Codes(slots.limit(id("offset"), t)))
-        }
-        Some(ParamValue::Limit(t)) => Some(AdcOffset::Input(slots.limit(id("offset"), t))),
-        _ => None,
-    };
-    Ok(Node::Adc {
-        bits,
-        polarity,
-        differential,
-        pga,
-        vref,
-        vref_drift,
-        reference,
-        offset,
-        gain_error: fraction(slots, "gain_error"),
-        inl: fraction(slots, "inl"),
-        input: input.ok_or_else(|| not_invertible(&stage.name, "no input"))?,
-    })
-}
-
-/// A converter's gain error or INL as a fraction of its full-scale span.
-/// Written in `LSB`, one code is 1/2^bits of the whole span (of both
-/// halves for a bipolar input): the converter's own definition of an LSB.
-fn fraction_of_span(t: &Tolerance, bits: u32) -> Tolerance {
-    if t.dim != Dim::CODE {
-        return t.clone();
-    }
-    let codes = 2f64.powi(bits as i32);
-    Tolerance {
-        plus: t.plus / codes,
-        minus: t.minus / codes,
-        dim: Dim::NONE,
-        ..t.clone()
-    }
-}
-
 /// Narrows each conversion's domain to where the nominal chain evaluates,
 /// then fits its method there.
-fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<(), EvalError> {
+fn fit_conversions(plan: &mut Plan) -> Result<(), EvalError> {
     let env = Env {
         measurand: (plan.range.0 + plan.range.1) / 2.0,
         ambient: plan.reference,
@@ -979,7 +337,7 @@ fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<()
         .nodes
         .iter()
         .filter_map(|n| match n {
-            Node::Thermocouple { ty, senses, .. } => Some((*ty, *senses)),
+            Node::Thermocouple(t) => Some((t.ty, t.senses)),
             _ => None,
         })
         .collect();
@@ -988,84 +346,204 @@ fn fit_conversions(plan: &mut Plan, chain: &Chain, order: &[usize]) -> Result<()
         [(ty, Senses::Measurand)] => Some(ty),
         _ => None,
     };
-    for (node, &stage_index) in order.iter().enumerate() {
-        let Node::Convert { conversion, .. } = &plan.nodes[node] else {
+    for node in 0..plan.nodes.len() {
+        let Node::Convert(convert) = &plan.nodes[node] else {
             continue;
         };
-        let mut conversion = (**conversion).clone();
-        let stage = &chain.stages[stage_index];
-        let probe = |plan: &Plan, x: f64| {
-            let e = match conversion.variable {
-                Senses::Measurand => Env {
-                    measurand: x,
-                    ..env
-                },
-                Senses::ColdJunction => Env {
-                    cold_junction: x,
-                    ..env
-                },
-            };
-            plan.exact_code(&plan.nominal, &e, conversion.adc)
-        };
-        // The range itself must evaluate: that is a finding of its own.
-        probe(plan, conversion.range.0)?;
-        probe(plan, conversion.range.1)?;
-        for end in [0, 1] {
-            let inside = if end == 0 {
-                conversion.range.0
-            } else {
-                conversion.range.1
-            };
-            let mut outside = if end == 0 {
-                conversion.domain.0
-            } else {
-                conversion.domain.1
-            };
-            if probe(plan, outside).is_err() {
-                let mut good = inside;
-                for _ in 0..60 {
-                    let mid = (good + outside) / 2.0;
-                    if probe(plan, mid).is_ok() {
-                        good = mid;
-                    } else {
-                        outside = mid;
-                    }
-                }
-                outside = good;
-            }
-            if end == 0 {
-                conversion.domain.0 = outside;
-            } else {
-                conversion.domain.1 = outside;
-            }
-        }
-        let (a, b) = (
-            probe(plan, conversion.range.0)?,
-            probe(plan, conversion.range.1)?,
-        );
-        if a == b {
-            return Err(not_invertible(
-                &stage.name,
-                "the code does not change over the measurand range",
-            ));
-        }
-        let (method, points) = match stage.param("method") {
-            Some(ParamValue::Method { method, points }) => (method.clone(), points.unwrap_or(0)),
-            _ => ("exact".to_string(), 0),
-        };
+        let method = convert.method;
+        let mut conversion = (*convert.conversion).clone();
+        let stage = plan.names[node].clone();
+        narrow_domain(plan, &env, &mut conversion, &stage)?;
+        let complete = conversion.variable == Senses::ColdJunction || !has_thermocouple;
         conversion
-            .fit(
-                plan,
-                &env,
-                &method,
-                points,
-                conversion.variable == Senses::ColdJunction || !has_thermocouple,
-                measuring_couple,
-            )
-            .map_err(|what| not_invertible(&stage.name, what))?;
-        if let Node::Convert { conversion: c, .. } = &mut plan.nodes[node] {
-            **c = conversion;
+            .fit(plan, &env, method, complete, measuring_couple)
+            .map_err(|what| not_invertible(&stage, what))?;
+        if let Node::Convert(c) = &mut plan.nodes[node] {
+            *c.conversion = conversion;
         }
     }
     Ok(())
+}
+
+/// Where the conversion's domain reaches beyond its range and the nominal
+/// chain no longer evaluates, the domain ends at the last point that does
+/// (bisected); a range that does not evaluate, or over which the code does
+/// not change, is an error.
+fn narrow_domain(
+    plan: &Plan,
+    env: &Env,
+    conversion: &mut Conversion,
+    stage: &str,
+) -> Result<(), EvalError> {
+    let (variable, adc) = (conversion.variable, conversion.adc);
+    let probe = |x: f64| {
+        let e = match variable {
+            Senses::Measurand => Env {
+                measurand: x,
+                ..*env
+            },
+            Senses::ColdJunction => Env {
+                cold_junction: x,
+                ..*env
+            },
+        };
+        plan.exact_code(&plan.nominal, &e, adc)
+    };
+    // The range itself must evaluate: that is a finding of its own.
+    probe(conversion.range.0)?;
+    probe(conversion.range.1)?;
+    let reach = |inside: f64, mut outside: f64| {
+        if probe(outside).is_err() {
+            let mut good = inside;
+            for _ in 0..60 {
+                let mid = (good + outside) / 2.0;
+                if probe(mid).is_ok() {
+                    good = mid;
+                } else {
+                    outside = mid;
+                }
+            }
+            outside = good;
+        }
+        outside
+    };
+    conversion.domain.0 = reach(conversion.range.0, conversion.domain.0);
+    conversion.domain.1 = reach(conversion.range.1, conversion.domain.1);
+    let (a, b) = (probe(conversion.range.0)?, probe(conversion.range.1)?);
+    if a == b {
+        return Err(not_invertible(
+            stage,
+            "the code does not change over the measurand range",
+        ));
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use std::path::Path;
+
+    use super::lower;
+    use crate::diagnostics::SourceFile;
+    use crate::eval::node::{BridgeKind, Node};
+    use crate::eval::{Plan, SourceKind};
+    use crate::model::{Chain, PartsCache};
+
+    /// The first chain of `spec`, parsed and resolved without errors.
+    fn chain(spec: &str) -> Chain {
+        let file = SourceFile::new("t.catena", spec);
+        let (ast, mut findings) = crate::syntax::parse(&file);
+        let mut parts = PartsCache::default();
+        let (chains, more) = crate::model::resolve(&file, &ast, Path::new("."), None, &mut parts);
+        findings.extend(more);
+        assert!(!findings.has_errors(), "{findings:?}");
+        chains.into_iter().next().expect("a chain")
+    }
+
+    fn plan(spec: &str) -> Plan {
+        lower(&chain(spec)).expect("lowers")
+    }
+
+    fn slot<'a>(plan: &'a Plan, id: &str) -> &'a crate::eval::Slot {
+        plan.slots
+            .iter()
+            .find(|s| s.id == id)
+            .unwrap_or_else(|| panic!("no slot `{id}` in {:?}", plan.slots))
+    }
+
+    const QUARTER: &str = r#"
+chain beam "q" {
+    measurand strain -1000 ue .. 1000 ue
+    excitation supply { voltage 5 V ± 0.1 % drift 10 ppm/K }
+    sensor gauge {
+        strain_gauge
+        r 350 ohm ± 0.3 %
+        gauge_factor 2.0 ± 1 %
+        side compression
+    }
+    bridge completion {
+        quarter
+        r 350 ohm ± 0.1 % drift 5 ppm/K
+    }
+    amplifier front {
+        gain 100 ± 0.1 %
+        offset 20 uV max
+        bias ± 1 nA
+        cmrr 100 dB
+        offset_drift 0.1 uV/K
+    }
+    adc conv {
+        bits 24
+        input differential
+        gain_error ± 2 LSB
+        offset ± 3 LSB
+    }
+    convert reading { calibrate two_point at -500 ue, 500 ue ± 1 ue }
+    supply -> completion -> front -> conv -> reading
+    gauge -> completion.arm
+    supply -> conv.ref
+}
+"#;
+
+    /// Each slot's kind is the one its lowering gives it, and a limit of
+    /// zero width is exact, not a source.
+    #[test]
+    fn slots_carry_the_kind_their_node_gives_them() {
+        let p = plan(QUARTER);
+        for (id, kind) in [
+            ("supply.voltage", SourceKind::Tolerance),
+            ("supply.voltage_drift", SourceKind::Drift),
+            ("completion.r_1", SourceKind::Tolerance),
+            ("completion.r_3_drift", SourceKind::Drift),
+            ("front.offset", SourceKind::Bound),
+            ("front.bias", SourceKind::Bias),
+            ("front.cmrr", SourceKind::CommonMode),
+            ("front.offset_drift", SourceKind::Drift),
+            ("conv.gain_error", SourceKind::Gain),
+            ("conv.offset", SourceKind::Bound),
+            ("reading.calibration_2", SourceKind::Calibration),
+        ] {
+            assert_eq!(slot(&p, id).kind, kind, "{id}");
+        }
+        // A gauge factor's tolerance is a source; a value without one is not.
+        assert_eq!(slot(&p, "gauge.gauge_factor").kind, SourceKind::Tolerance);
+        assert_eq!(slot(&p, "front.gain").kind, SourceKind::Tolerance);
+    }
+
+    /// A quarter bridge's three completion resistors are three parts, each
+    /// with its own drift; the gauge on the compression side sees −ε; the
+    /// converter's gain error in LSB is a fraction of its 2^24 codes; CMRR
+    /// 100 dB is ±1e-5 per volt.
+    #[test]
+    fn lowering_reads_the_typed_model() {
+        let p = plan(QUARTER);
+        let bridge = p.nodes.iter().find_map(|n| match n {
+            Node::Bridge(b) => Some(b),
+            _ => None,
+        });
+        let bridge = bridge.expect("a bridge node");
+        assert_eq!(bridge.kind, BridgeKind::Quarter);
+        assert_eq!(bridge.others.len(), 2);
+        assert!(bridge.others.iter().all(|(_, drift)| drift.is_some()));
+        let gauge = p.nodes.iter().find_map(|n| match n {
+            Node::StrainGauge(g) => Some(g),
+            _ => None,
+        });
+        assert_eq!(gauge.expect("a gauge").sign, -1.0);
+        let gain_error = slot(&p, "conv.gain_error");
+        assert_eq!(gain_error.plus, 2.0 / 2f64.powi(24));
+        let cmrr = slot(&p, "front.cmrr");
+        assert!((cmrr.plus - 1e-5).abs() < 1e-18, "{}", cmrr.plus);
+        assert_eq!(slot(&p, "conv.offset").nominal, 0.0);
+    }
+
+    /// A stage whose model was not accepted is not lowered on a guess.
+    #[test]
+    fn a_stage_without_its_typed_model_is_not_lowered() {
+        let mut chain = chain(QUARTER);
+        let gauge = chain.stages.iter_mut().find(|s| s.name == "gauge");
+        gauge.expect("the gauge").typed = None;
+        let e = lower(&chain).expect_err("no plan");
+        assert!(e.to_string().contains("`gauge`"), "{e}");
+    }
 }

@@ -10,15 +10,19 @@
 mod convert;
 mod element;
 mod lower;
+pub mod node;
 mod plan;
 mod run;
+mod stated;
 mod track;
 
-pub use convert::{grid, Calibrated, Calibration, Conversion, TableUse};
+pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, TableUse};
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
+pub use node::{AmpReference, BridgeKind, Node};
 pub use plan::{
-    AmpReference, BridgeKind, ClassTolerance, Env, EvalError, Node, NodeId, Plan, SenseError,
-    Senses, Signal, Slot, SlotId, SourceKind,
+    ClassTolerance, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId,
+    SourceKind,
 };
 pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};
+pub use stated::{Noise, NoiseBasis, SamplingInput, Stated};
 pub use track::{half_width, own_fraction, Group, GroupPart};

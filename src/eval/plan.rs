@@ -1,7 +1,6 @@
 use std::fmt;
 
-use super::convert::Conversion;
-use crate::physics::adc::Polarity;
+pub use super::node::Node;
 use crate::physics::thermocouple::ThermocoupleType;
 
 /// Index into the parameter values.
@@ -62,26 +61,6 @@ impl SourceKind {
             SourceKind::Exact => "exact",
         }
     }
-
-    /// From a slot's id (`stage.parameter`): the parameter names it.
-    pub fn of(id: &str) -> SourceKind {
-        let param = id.rsplit('.').next().unwrap_or(id);
-        match param {
-            p if p.ends_with("drift") => SourceKind::Drift,
-            "offset" | "zero" => SourceKind::Bound,
-            "gain_error" => SourceKind::Gain,
-            "bias" => SourceKind::Bias,
-            "cmrr" | "bias_voltage" => SourceKind::CommonMode,
-            "tolerance" | "accuracy" => SourceKind::Sensor,
-            p if p.starts_with("class") => SourceKind::Sensor,
-            p if p.starts_with("lead") => SourceKind::Lead,
-            "cold_junction" => SourceKind::ColdJunction,
-            "nonlinearity" | "hysteresis" => SourceKind::Nonlinearity,
-            "inl" => SourceKind::Inl,
-            p if p.starts_with("calibration") => SourceKind::Calibration,
-            _ => SourceKind::Tolerance,
-        }
-    }
 }
 
 /// Where a sensor is: at the measured point, or at the cold junction
@@ -92,203 +71,11 @@ pub enum Senses {
     ColdJunction,
 }
 
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum RtdCurve {
-    /// Callendar–Van Dusen with A, B, C.
-    Cvd { a: f64, b: f64, c: f64 },
-    /// DIN 43760 nickel polynomial.
-    Nickel,
-    /// Linear copper element.
-    Copper,
-}
-
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum ThermistorCurve {
-    Beta { beta: SlotId },
-    SteinhartHart { a: f64, b: f64, c: f64 },
-}
-
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum BridgeKind {
-    Divider { sensor_high: bool },
-    Quarter,
-    Half,
-    Full,
-}
-
 /// A drift coefficient applied over (ambient − reference).
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct DriftSlot {
     pub slot: SlotId,
     pub relative: bool,
-}
-
-#[derive(Clone, Debug, PartialEq)]
-pub enum Node {
-    Excitation {
-        current: bool,
-        value: SlotId,
-        drift: Option<DriftSlot>,
-    },
-    Rtd {
-        curve: RtdCurve,
-        /// Deviations of a custom curve's A, B and C (absolute, nominal
-        /// 0), where their tolerances are stated.
-        coefficient_errors: [Option<SlotId>; 3],
-        r0: SlotId,
-        /// How the leads enter the measurement.
-        wiring: crate::physics::rtd::Wiring,
-        /// The two leads to the element's ends, each its own source.
-        leads: Option<(SlotId, SlotId)>,
-        dissipation: Option<SlotId>,
-        input: Option<NodeId>,
-        senses: Senses,
-        /// Class validity range, kelvin, when a class is given.
-        valid: Option<(f64, f64)>,
-        /// The class's R0 and coefficient deviations (relative, nominal
-        /// 0), when a class is given.
-        deviation: Option<(SlotId, SlotId)>,
-    },
-    Thermocouple {
-        ty: ThermocoupleType,
-        senses: Senses,
-        /// IEC 60584-1 tolerance class, when given: it also bounds the
-        /// range the thermocouple may be used over.
-        class: Option<u8>,
-        /// The voltage its common mode is biased to (0 V when not), with
-        /// its drift.
-        bias: Option<(SlotId, Option<DriftSlot>)>,
-        /// The resistor that biases it, in its source resistance, Ω.
-        bias_resistor: Option<SlotId>,
-    },
-    Thermistor {
-        r25: SlotId,
-        curve: ThermistorCurve,
-        dissipation: Option<SlotId>,
-        input: Option<NodeId>,
-        senses: Senses,
-        valid: Option<(f64, f64)>,
-    },
-    IcVoltage {
-        slope: SlotId,
-        v0: SlotId,
-        t0: f64,
-        senses: Senses,
-        rout: Option<SlotId>,
-    },
-    IcCurrent {
-        slope: SlotId,
-        senses: Senses,
-    },
-    StrainGauge {
-        r: SlotId,
-        gauge_factor: SlotId,
-        /// +1 in tension, −1 on the compression side.
-        sign: f64,
-        input: Option<NodeId>,
-    },
-    Transducer {
-        sensitivity: SlotId,
-        ratiometric: bool,
-        full_scale: f64,
-        zero: Option<SlotId>,
-        /// Nonlinearity and hysteresis, each a fraction of full-scale
-        /// output, nominal 0: the nonlinearity along its shape against
-        /// `linearity`'s line, the hysteresis as a bound no calibration
-        /// sees.
-        nonlinearity: Option<SlotId>,
-        linearity: crate::physics::transducer::LinearityLine,
-        hysteresis: Option<SlotId>,
-        /// Zero and span coefficients per kelvin (of full scale).
-        zero_drift: Option<SlotId>,
-        span_drift: Option<SlotId>,
-        input: Option<NodeId>,
-        /// Bridge resistance of the transducer, Ω.
-        r: Option<SlotId>,
-    },
-    Resistor {
-        r: SlotId,
-        drift: Option<DriftSlot>,
-        input: Option<NodeId>,
-    },
-    Bridge {
-        kind: BridgeKind,
-        /// The completion resistor (the first, where there are several).
-        r: Option<SlotId>,
-        drift: Option<DriftSlot>,
-        /// The other completion resistors, each its own tolerance and
-        /// drift: a quarter bridge's r3 and r4, a half bridge's r4.
-        others: Vec<(SlotId, Option<DriftSlot>)>,
-        exc: NodeId,
-        arms: Vec<NodeId>,
-    },
-    Amplifier {
-        gain: SlotId,
-        offset: Option<SlotId>,
-        /// Common-mode error per volt of common mode (1/CMRR), nominal 0.
-        cmrr: Option<SlotId>,
-        /// Input bias current, nominal 0: times the source resistance.
-        bias: Option<SlotId>,
-        /// Per kelvin: offset in volts, gain relative.
-        offset_drift: Option<SlotId>,
-        gain_drift: Option<SlotId>,
-        input: NodeId,
-        /// What the output is referred to: output = gain × input + reference.
-        reference: Option<AmpReference>,
-        /// Common-mode input range and output swing, V.
-        input_range: Option<(f64, f64)>,
-        output: Option<(f64, f64)>,
-    },
-    /// A low-pass filter passes DC; a passive RC adds its series
-    /// resistance to the source resistance.
-    Filter {
-        input: NodeId,
-        series: Option<SlotId>,
-    },
-    Adc {
-        bits: u32,
-        polarity: Polarity,
-        differential: bool,
-        pga: Option<SlotId>,
-        vref: Option<SlotId>,
-        vref_drift: Option<DriftSlot>,
-        reference: Option<NodeId>,
-        offset: Option<AdcOffset>,
-        /// A fraction of the gain, nominal 0.
-        gain_error: Option<SlotId>,
-        /// Integral nonlinearity, a fraction of full scale, nominal 0.
-        inl: Option<SlotId>,
-        input: NodeId,
-    },
-    Convert {
-        input: NodeId,
-        cj: Option<NodeId>,
-        conversion: Box<Conversion>,
-    },
-}
-
-/// An amplifier's reference (its REF pin, or an output level shift).
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum AmpReference {
-    /// A stated voltage: its slot (nominal the value, with its tolerance)
-    /// and drift.
-    Stated {
-        value: SlotId,
-        drift: Option<DriftSlot>,
-    },
-    /// The voltage another stage gives its `ref` input.
-    Stage(NodeId),
-}
-
-/// A converter's offset as it was stated: a voltage at its input, or a
-/// number of codes (`± 2 LSB`), which stays a number of codes whatever the
-/// reference does.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub enum AdcOffset {
-    /// Volts, added to the input.
-    Input(SlotId),
-    /// Codes, added to the conversion result.
-    Codes(SlotId),
 }
 
 /// A tolerance class whose half-width depends on the temperature. (An
@@ -437,4 +224,7 @@ pub struct Plan {
     /// The common components of tracking groups, each moving several
     /// slots together.
     pub groups: Vec<super::track::Group>,
+    /// What each node's stage states beyond its error sources (limits,
+    /// noise, timing), by node.
+    pub stated: Vec<super::stated::Stated>,
 }

@@ -1,82 +1,99 @@
 //! One evaluation: every node in order, each a pure function of its
 //! inputs' signals, the parameter values and the environment.
 
-use super::convert::{calibration_env, Calibrated, Conversion};
-use super::element::Supply;
-use super::plan::{
-    AdcOffset, AmpReference, BridgeKind, ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId,
-    Plan, RtdCurve, Senses, Signal, SlotId,
-};
-use crate::physics::adc::Polarity;
-use crate::physics::{rtd, semiconductor, strain, thermocouple, transducer};
+use super::convert::{calibration_env, Calibrated, Conversion, Firmware};
+use super::node;
+use super::plan::{ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal};
+use crate::physics::thermocouple;
 use crate::units::ZERO_CELSIUS_K;
 
-/// What a run computes: conversions (the firmware model inside a
-/// conversion runs without them, so it does not recurse) and whether
-/// conversions see the rounded code or the exact one.
+/// How a run's nodes evaluate: whether conversions see the rounded code or
+/// the exact one, amplifiers clip, and a calibration reads the chain.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(super) struct Mode {
-    convert: bool,
-    quantized: bool,
+    pub(super) quantized: bool,
     /// Amplifiers clip at their swing and rail outside their common-mode
     /// range; off, they amplify linearly, to see how far a signal would go.
-    clip: bool,
+    pub(super) clip: bool,
     /// A calibration's reading of the chain: what depends on the direction
     /// of approach (hysteresis) is not the reading's.
-    calibrating: bool,
+    pub(super) calibrating: bool,
 }
 
 impl Mode {
     const FULL: Mode = Mode {
-        convert: true,
         quantized: true,
         clip: true,
         calibrating: false,
     };
     const CODES: Mode = Mode {
-        convert: false,
         quantized: true,
         clip: true,
         calibrating: false,
     };
     const RAW: Mode = Mode {
-        convert: false,
         quantized: true,
         clip: false,
         calibrating: false,
     };
     const CALIBRATION: Mode = Mode {
-        convert: false,
         quantized: true,
         clip: true,
         calibrating: true,
     };
     const UNQUANTIZED: Mode = Mode {
-        convert: true,
         quantized: false,
         clip: true,
         calibrating: false,
     };
 }
 
-impl RtdCurve {
-    /// Where the curve is defined, °C.
-    pub fn range_c(self) -> (f64, f64) {
-        match self {
-            RtdCurve::Cvd { .. } => CVD_RANGE_C,
-            RtdCurve::Nickel => NICKEL_RANGE_C,
-            RtdCurve::Copper => COPPER_RANGE_C,
-        }
+/// Which nodes a run evaluates, up to (not including) a node.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) enum Reach {
+    /// Every node, conversions included.
+    All(NodeId),
+    /// The chain's electronics, up to a converter's code: what the
+    /// firmware models, so conversions (which invert that model) are left
+    /// out.
+    Electronics(NodeId),
+}
+
+impl Plan {
+    /// The nodes of a run, in order.
+    #[inline(always)]
+    fn reach(&self, reach: Reach) -> impl Iterator<Item = NodeId> + '_ {
+        let (until, conversions) = match reach {
+            Reach::All(until) => (until, true),
+            Reach::Electronics(until) => (until, false),
+        };
+        (0..until.min(self.nodes.len()))
+            .filter(move |&i| conversions || !matches!(self.nodes[i], Node::Convert(_)))
     }
 }
 
-/// A bridge's completion resistors: the first (value, drift) and the
-/// others, each its own part.
-type Completion<'a> = (
-    Option<usize>,
-    Option<DriftSlot>,
-    &'a [(usize, Option<DriftSlot>)],
-);
+/// The plan is the firmware model its conversions invert.
+impl Firmware for Plan {
+    fn reference(&self) -> f64 {
+        self.reference
+    }
+
+    fn nominal(&self) -> &[f64] {
+        &self.nominal
+    }
+
+    fn code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
+        self.exact_code(values, env, adc)
+    }
+
+    fn calibration_code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
+        Plan::calibration_code(self, values, env, adc)
+    }
+
+    fn numeric(&self, node: NodeId, what: &str) -> EvalError {
+        Plan::numeric(self, node, what)
+    }
+}
 
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
 pub const MAX_NODES: usize = 32;
@@ -91,30 +108,23 @@ pub struct Outcome {
     pub signals: Vec<Signal>,
 }
 
-/// Callendar–Van Dusen is defined over −200 … 850 °C (IEC 60751).
-const CVD_RANGE_C: (f64, f64) = (-200.0, 850.0);
-/// DIN 43760 nickel curve range (recalled from memory of the standard).
-const NICKEL_RANGE_C: (f64, f64) = (-60.0, 180.0);
-/// Copper elements: common practice limits the linear model to −50 … 150 °C.
-const COPPER_RANGE_C: (f64, f64) = (-50.0, 150.0);
-
 impl Plan {
     /// Every node's signal in one run, on the stack.
     fn signals(
         &self,
         values: &[f64],
         env: &Env,
-        until: usize,
+        reach: Reach,
         mode: Mode,
     ) -> Result<[Signal; MAX_NODES], EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, until, mode)?;
+        self.run(values, env, &mut signals, reach, mode)?;
         Ok(signals)
     }
 
     /// Evaluates every node, conversions included.
     pub fn evaluate(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
-        let signals = self.signals(values, env, self.nodes.len(), Mode::FULL)?;
+        let signals = self.signals(values, env, Reach::All(self.nodes.len()), Mode::FULL)?;
         Ok(Outcome {
             signals: signals[..self.nodes.len()].to_vec(),
         })
@@ -123,7 +133,12 @@ impl Plan {
     /// Every node up to the converters' codes, conversions left out: what
     /// a plan whose conversion could not be fitted still shows.
     pub fn evaluate_codes(&self, values: &[f64], env: &Env) -> Result<Outcome, EvalError> {
-        let signals = self.signals(values, env, self.nodes.len(), Mode::CODES)?;
+        let signals = self.signals(
+            values,
+            env,
+            Reach::Electronics(self.nodes.len()),
+            Mode::CODES,
+        )?;
         Ok(Outcome {
             signals: signals[..self.nodes.len()].to_vec(),
         })
@@ -132,7 +147,13 @@ impl Plan {
     /// The chain's reading at `env`, SI.
     pub fn reading(&self, values: &[f64], env: &Env) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.reading + 1, Mode::FULL)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::All(self.reading + 1),
+            Mode::FULL,
+        )?;
         match signals[self.reading] {
             Signal::Reading(x) => Ok(x),
             _ => Err(self.numeric(self.reading, "no reading")),
@@ -143,7 +164,13 @@ impl Plan {
     /// firmware's model of the chain predicts.
     pub fn exact_code(&self, values: &[f64], env: &Env, adc: NodeId) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, adc + 1, Mode::CODES)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::Electronics(adc + 1),
+            Mode::CODES,
+        )?;
         match signals[adc] {
             Signal::Code { exact, .. } => Ok(exact),
             _ => Err(self.numeric(adc, "no code")),
@@ -158,26 +185,29 @@ impl Plan {
         adc: NodeId,
     ) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, adc + 1, Mode::CALIBRATION)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::Electronics(adc + 1),
+            Mode::CALIBRATION,
+        )?;
         match signals[adc] {
             Signal::Code { exact, .. } => Ok(exact),
             _ => Err(self.numeric(adc, "no code")),
         }
     }
 
-    /// Runs nodes `0..until`.
+    /// Runs the nodes `reach` covers.
     pub(super) fn run(
         &self,
         values: &[f64],
         env: &Env,
         signals: &mut [Signal; MAX_NODES],
-        until: usize,
+        reach: Reach,
         mode: Mode,
     ) -> Result<(), EvalError> {
-        for i in 0..until.min(self.nodes.len()) {
-            if !mode.convert && matches!(self.nodes[i], Node::Convert { .. }) {
-                continue;
-            }
+        for i in self.reach(reach) {
             let s = self.node(i, values, env, signals, mode, None)?;
             if !finite(s) {
                 return Err(self.numeric(i, "a signal is not a finite number"));
@@ -221,94 +251,19 @@ impl Plan {
             + of_reading.unwrap_or(0.0)
     }
 
-    fn drifted(&self, value: f64, drift: Option<DriftSlot>, values: &[f64], env: &Env) -> f64 {
+    pub(super) fn drifted(
+        &self,
+        value: f64,
+        drift: Option<DriftSlot>,
+        values: &[f64],
+        env: &Env,
+    ) -> f64 {
         match drift {
             None => value,
             Some(d) if d.relative => {
                 value * (1.0 + values[d.slot] * (env.ambient - self.reference))
             }
             Some(d) => value + values[d.slot] * (env.ambient - self.reference),
-        }
-    }
-
-    /// The reference a converter works against: its `ref` input, else its
-    /// `vref` with drift.
-    #[inline(always)]
-    fn reference_of(
-        &self,
-        reference: Option<NodeId>,
-        vref: Option<SlotId>,
-        vref_drift: Option<DriftSlot>,
-        values: &[f64],
-        env: &Env,
-        s: &[Signal],
-    ) -> f64 {
-        match reference.map(|n| s[n]) {
-            Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
-            _ => self.drifted(
-                vref.map(|r| values[r]).unwrap_or(0.0),
-                vref_drift,
-                values,
-                env,
-            ),
-        }
-    }
-
-    /// The voltage an amplifier's output is referred to (0 V without a
-    /// reference); None where its reference stage gives no voltage.
-    #[inline(always)]
-    fn shift_of(
-        &self,
-        reference: Option<AmpReference>,
-        values: &[f64],
-        env: &Env,
-        s: &[Signal],
-    ) -> Option<f64> {
-        match reference {
-            Some(AmpReference::Stated { value, drift }) => {
-                Some(self.drifted(values[value], drift, values, env))
-            }
-            Some(AmpReference::Stage(n)) => match s[n] {
-                Signal::Voltage { v, .. } | Signal::Source(v) => Some(v),
-                _ => None,
-            },
-            None => Some(0.0),
-        }
-    }
-
-    /// The reference amplifier `node` refers its output to in one raw
-    /// evaluation; None for another kind of node.
-    pub fn amplifier_reference(
-        &self,
-        node: NodeId,
-        values: &[f64],
-        env: &Env,
-        signals: &[Signal],
-    ) -> Option<f64> {
-        match &self.nodes[node] {
-            Node::Amplifier { reference, .. } => self.shift_of(*reference, values, env, signals),
-            _ => None,
-        }
-    }
-
-    /// The reference voltage converter `node` works against in one raw
-    /// evaluation (`signals` from [`Plan::raw_signals`]); None for another
-    /// kind of node.
-    pub fn converter_reference(
-        &self,
-        node: NodeId,
-        values: &[f64],
-        env: &Env,
-        signals: &[Signal],
-    ) -> Option<f64> {
-        match &self.nodes[node] {
-            Node::Adc {
-                reference,
-                vref,
-                vref_drift,
-                ..
-            } => Some(self.reference_of(*reference, *vref, *vref_drift, values, env, signals)),
-            _ => None,
         }
     }
 
@@ -328,396 +283,6 @@ impl Plan {
             celsius: true,
         }
     }
-
-    #[inline(always)]
-    fn node(
-        &self,
-        i: NodeId,
-        values: &[f64],
-        env: &Env,
-        s: &[Signal; MAX_NODES],
-        mode: Mode,
-        junction_mv: Option<f64>,
-    ) -> Result<Signal, EvalError> {
-        let current_into = |input: Option<NodeId>| match input.map(|n| s[n]) {
-            Some(Signal::Current(a)) => Some(a),
-            _ => None,
-        };
-        let lift: f64 = self.series_below[i]
-            .iter()
-            .map(|&n| match s[n] {
-                Signal::Voltage { v, .. } => v,
-                _ => 0.0,
-            })
-            .sum();
-        let element = |r: f64, input: Option<NodeId>| match current_into(input) {
-            Some(a) => Signal::Voltage {
-                v: a * r,
-                cm: lift + a * r / 2.0,
-                rs: r,
-            },
-            None => Signal::Element(r),
-        };
-        Ok(match &self.nodes[i] {
-            Node::Excitation {
-                current,
-                value,
-                drift,
-            } => {
-                let v = self.drifted(values[*value], *drift, values, env);
-                if *current {
-                    Signal::Current(v)
-                } else {
-                    Signal::Source(v)
-                }
-            }
-            Node::Rtd {
-                wiring,
-                leads,
-                input,
-                ..
-            } => {
-                let r = self.driven_element(i, values, env, current_into(*input))?;
-                let lead = leads
-                    .map(|(a, b)| rtd::lead_series_resistance(*wiring, values[a], values[b]))
-                    .unwrap_or(0.0);
-                element(r + lead, *input)
-            }
-            Node::Thermocouple {
-                ty,
-                senses,
-                class: _,
-                bias,
-                bias_resistor,
-            } => {
-                let range = ty.range_c();
-                let t = self.sensed(i, *senses, env, values) - ZERO_CELSIUS_K;
-                // Messages are built only on the way out: this runs in
-                // every Monte Carlo trial.
-                let kind = || format!("type {} thermocouple", ty.letter());
-                let t = within(t, range)
-                    .ok_or_else(|| self.out_of_range(i, &kind(), t + ZERO_CELSIUS_K, range))?;
-                let e = |t_c: f64| {
-                    thermocouple::emf_mv(*ty, t_c).map_err(|e| {
-                        self.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high))
-                    })
-                };
-                let at_junction = match junction_mv {
-                    Some(e) => e,
-                    None => e(junction_c(*ty, env))?,
-                };
-                let v = (e(t)? - at_junction) * 1e-3;
-                // A couple floats: its common mode is where a bias holds
-                // it, else 0 V.
-                let cm = bias
-                    .map(|(b, drift)| self.drifted(values[b], drift, values, env))
-                    .unwrap_or(0.0);
-                Signal::Voltage {
-                    v,
-                    cm,
-                    rs: bias_resistor.map(|r| values[r]).unwrap_or(0.0),
-                }
-            }
-            Node::Thermistor { input, .. } => {
-                let r = self.driven_element(i, values, env, current_into(*input))?;
-                element(r, *input)
-            }
-            Node::IcVoltage {
-                slope,
-                v0,
-                t0,
-                senses,
-                rout,
-            } => {
-                let t = self.sensed(i, *senses, env, values);
-                let v = semiconductor::linear_voltage_v(
-                    values[*v0],
-                    values[*slope],
-                    t0 - ZERO_CELSIUS_K,
-                    t - ZERO_CELSIUS_K,
-                );
-                Signal::Voltage {
-                    v,
-                    cm: v / 2.0,
-                    rs: rout.map(|r| values[r]).unwrap_or(0.0),
-                }
-            }
-            Node::IcCurrent { slope, senses } => {
-                let t = self.sensed(i, *senses, env, values);
-                let a = semiconductor::ptat_current_a(values[*slope], t)
-                    .map_err(|_| self.numeric(i, "no PTAT current at this temperature"))?;
-                Signal::Current(a)
-            }
-            Node::StrainGauge {
-                r,
-                gauge_factor,
-                sign,
-                input,
-            } => element(
-                strain::gauge_resistance(values[*r], values[*gauge_factor], sign * env.measurand),
-                *input,
-            ),
-            Node::Transducer {
-                sensitivity,
-                ratiometric,
-                full_scale,
-                zero,
-                nonlinearity,
-                linearity,
-                hysteresis,
-                zero_drift,
-                span_drift,
-                input,
-                r,
-            } => {
-                let slot = |o: &Option<usize>| o.map(|o| values[o]).unwrap_or(0.0);
-                let dt = env.ambient - self.reference;
-                let s_fs = values[*sensitivity];
-                // Output as a ratio of excitation (or volts): span with its
-                // drift, then the errors stated as fractions of full scale.
-                let u = env.measurand / full_scale;
-                let bow = transducer::nonlinearity_shape(*linearity, u);
-                // Hysteresis depends on the direction of approach: the
-                // calibration's is not the reading's, so it sees none.
-                let hysteresis = if mode.calibrating {
-                    0.0
-                } else {
-                    slot(hysteresis)
-                };
-                let fraction = s_fs * (1.0 + slot(span_drift) * dt) * u
-                    + s_fs * (slot(nonlinearity) * bow + hysteresis + slot(zero_drift) * dt)
-                    + slot(zero);
-                let (v, cm) = match (ratiometric, input.map(|n| s[n])) {
-                    (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
-                    (true, _) => {
-                        return Err(self
-                            .numeric(i, "a transducer rated in mV/V needs a voltage excitation"))
-                    }
-                    (false, _) => (fraction, fraction / 2.0),
-                };
-                Signal::Voltage {
-                    v,
-                    cm,
-                    rs: r.map(|r| values[r] / 2.0).unwrap_or(0.0),
-                }
-            }
-            Node::Resistor { r, drift, input } => {
-                element(self.drifted(values[*r], *drift, values, env), *input)
-            }
-            Node::Bridge {
-                kind,
-                r,
-                drift,
-                others,
-                exc,
-                arms,
-            } => self.bridge(i, *kind, (*r, *drift, others), *exc, arms, values, env, s)?,
-            Node::Amplifier {
-                gain,
-                offset,
-                cmrr,
-                bias,
-                offset_drift,
-                gain_drift,
-                input,
-                reference,
-                input_range,
-                output,
-            } => {
-                let Signal::Voltage { v, cm, rs } = s[*input] else {
-                    return Err(self.numeric(i, "no input voltage"));
-                };
-                let shift = self
-                    .shift_of(*reference, values, env, s)
-                    .ok_or_else(|| self.numeric(i, "no reference voltage"))?;
-                let slot = |o: &Option<usize>| o.map(|o| values[o]).unwrap_or(0.0);
-                // Vout = G (Vdiff + Vos + Ib·Rs + Vcm/CMRR), then the swing.
-                let dt = env.ambient - self.reference;
-                let error =
-                    slot(offset) + slot(offset_drift) * dt + slot(bias) * rs + slot(cmrr) * cm;
-                // Output = gain × input + reference.
-                let mut out = values[*gain] * (1.0 + slot(gain_drift) * dt) * (v + error) + shift;
-                let (lo, hi) = output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
-                // Outside its common-mode range an amplifier no longer
-                // amplifies: its output goes to a rail.
-                if let (true, Some((cm_lo, cm_hi))) = (mode.clip, input_range) {
-                    if cm < *cm_lo {
-                        out = if lo.is_finite() { lo } else { 0.0 };
-                    } else if cm > *cm_hi {
-                        out = if hi.is_finite() { hi } else { 0.0 };
-                    }
-                }
-                let out = if mode.clip { out.clamp(lo, hi) } else { out };
-                Signal::Voltage {
-                    v: out,
-                    cm: out / 2.0,
-                    rs: 0.0,
-                }
-            }
-            Node::Filter { input, series } => match s[*input] {
-                Signal::Voltage { v, cm, rs } => Signal::Voltage {
-                    v,
-                    cm,
-                    rs: rs + series.map(|r| values[r]).unwrap_or(0.0),
-                },
-                other => other,
-            },
-            Node::Adc {
-                bits,
-                polarity,
-                pga,
-                vref,
-                vref_drift,
-                reference,
-                offset,
-                gain_error,
-                inl,
-                input,
-                ..
-            } => {
-                let Signal::Voltage { v, .. } = s[*input] else {
-                    return Err(self.numeric(i, "no input voltage"));
-                };
-                let vr = self.reference_of(*reference, *vref, *vref_drift, values, env, s);
-                if vr <= 0.0 || !vr.is_finite() {
-                    return Err(self.numeric(i, "the reference voltage is zero or negative"));
-                }
-                let gain = pga.map(|g| values[g]).unwrap_or(1.0)
-                    * (1.0 + gain_error.map(|g| values[g]).unwrap_or(0.0));
-                let (off, off_codes) = match offset {
-                    Some(AdcOffset::Input(o)) => (values[*o], 0.0),
-                    Some(AdcOffset::Codes(o)) => (0.0, values[*o]),
-                    None => (0.0, 0.0),
-                };
-                let per_ref = match polarity {
-                    // A shift, not `powi`: that is a library call per run.
-                    Polarity::Unipolar => (1u64 << *bits) as f64,
-                    Polarity::Bipolar => (1u64 << (*bits - 1)) as f64,
-                };
-                // INL is a fraction of the full-scale code span.
-                let full_scale = match polarity {
-                    Polarity::Unipolar => per_ref,
-                    Polarity::Bipolar => 2.0 * per_ref,
-                };
-                let exact = (v + off) * gain / vr * per_ref
-                    + off_codes
-                    + inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
-                let (lo, hi) = match polarity {
-                    Polarity::Unipolar => (0.0, per_ref - 1.0),
-                    Polarity::Bipolar => (-per_ref, per_ref - 1.0),
-                };
-                Signal::Code {
-                    exact,
-                    code: round_code(exact, lo, hi),
-                }
-            }
-            Node::Convert {
-                input,
-                cj,
-                conversion,
-            } => {
-                let Signal::Code { code, exact } = s[*input] else {
-                    return Err(self.numeric(i, "no code"));
-                };
-                let code = if mode.quantized { code as f64 } else { exact };
-                let cj_reading = cj.and_then(|n| match s[n] {
-                    Signal::Reading(t) => Some(t),
-                    _ => None,
-                });
-                Signal::Reading(conversion.apply(self, values, env, code, cj_reading)?)
-            }
-        })
-    }
-
-    #[allow(clippy::too_many_arguments)]
-    fn bridge(
-        &self,
-        i: NodeId,
-        kind: BridgeKind,
-        (r, drift, others): Completion,
-        exc: NodeId,
-        arms: &[NodeId],
-        values: &[f64],
-        env: &Env,
-        s: &[Signal; MAX_NODES],
-    ) -> Result<Signal, EvalError> {
-        let fixed = r
-            .map(|r| self.drifted(values[r], drift, values, env))
-            .unwrap_or(0.0);
-        // Each further completion resistor is its own part.
-        let other = |k: usize| {
-            others
-                .get(k)
-                .map(|&(r, drift)| self.drifted(values[r], drift, values, env))
-                .unwrap_or(fixed)
-        };
-        let arm = |k: usize| match arms.get(k).map(|&n| s[n]) {
-            Some(Signal::Element(r)) => Ok(r),
-            _ => Err(self.numeric(i, "a bridge arm has no element")),
-        };
-        let bad = |_| self.numeric(i, "the bridge has no output (an arm of zero resistance)");
-        // Arms by position, as drawn in `physics::strain`: r1 r2 on the
-        // positive side, r3 r4 on the negative; active elements in edge
-        // order go to r2, r3, r1, r4.
-        let (r1, r2, r3, r4) = match kind {
-            BridgeKind::Divider { sensor_high } => {
-                // A current source's current flows through the lower resistor.
-                let supply = match s[exc] {
-                    Signal::Source(v) => Supply::Voltage { v, other: fixed },
-                    Signal::Current(a) if !sensor_high => Supply::Current(a),
-                    _ => Supply::None,
-                };
-                let element = match arms.first() {
-                    Some(&n) => self.heated_divider_element(n, arm(0)?, supply, values, env)?,
-                    None => arm(0)?,
-                };
-                let (low, high) = if sensor_high {
-                    (fixed, element)
-                } else {
-                    (element, fixed)
-                };
-                let v = match s[exc] {
-                    Signal::Source(v) => strain::divider_output(v, low, high).map_err(bad)?,
-                    Signal::Current(a) => a * low,
-                    _ => return Err(self.numeric(i, "no excitation")),
-                };
-                let rs = if low + high > 0.0 {
-                    low * high / (low + high)
-                } else {
-                    0.0
-                };
-                return Ok(Signal::Voltage { v, cm: v / 2.0, rs });
-            }
-            BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
-            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
-            BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
-        };
-        let at = |k: usize| arms.get(k).copied();
-        let placed = match kind {
-            BridgeKind::Quarter => [None, at(0), None, None],
-            BridgeKind::Half => [None, at(0), at(1), None],
-            BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
-        };
-        let [r1, r2, r3, r4] =
-            self.heated_bridge_arms([r1, r2, r3, r4], placed, s[exc], values, env)?;
-        let v_exc = match s[exc] {
-            Signal::Source(v) => v,
-            Signal::Current(a) => a * ((r1 + r2) * (r3 + r4) / (r1 + r2 + r3 + r4)),
-            _ => return Err(self.numeric(i, "no excitation")),
-        };
-        let v = strain::bridge_output(v_exc, r1, r2, r3, r4).map_err(bad)?;
-        let cm = strain::bridge_common_mode(v_exc, r1, r2, r3, r4).map_err(bad)?;
-        let rs = strain::bridge_output_resistance(r1, r2, r3, r4).map_err(bad)?;
-        Ok(Signal::Voltage { v, cm, rs })
-    }
-}
-
-/// The cold junction's temperature for a couple of type `ty`, °C, held to
-/// the type's range (a junction beyond it is the sensor's finding, not the
-/// couple's).
-fn junction_c(ty: thermocouple::ThermocoupleType, env: &Env) -> f64 {
-    let tj = env.cold_junction - ZERO_CELSIUS_K;
-    within(tj, ty.range_c()).unwrap_or(tj)
 }
 
 /// Range ends written in °C come back through kelvin a few ulps off;
@@ -727,16 +292,6 @@ pub(super) fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
     (lo - SLACK..=hi + SLACK)
         .contains(&t_c)
         .then(|| t_c.clamp(lo, hi))
-}
-
-/// The nearest code (halves away from zero) within `lo ..= hi`, both
-/// whole: `f64::round` is a library call on baseline x86-64, and every
-/// evaluation rounds.
-fn round_code(exact: f64, lo: f64, hi: f64) -> i64 {
-    let x = exact.clamp(lo, hi);
-    let whole = x as i64;
-    let fraction = x - whole as f64;
-    whole + i64::from(fraction >= 0.5) - i64::from(fraction <= -0.5)
 }
 
 fn finite(s: Signal) -> bool {
@@ -759,9 +314,15 @@ impl Plan {
         env: &Env,
     ) -> Result<(f64, f64), EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.adc + 1, Mode::CODES)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::Electronics(self.adc + 1),
+            Mode::CODES,
+        )?;
         let v = match &self.nodes[self.adc] {
-            Node::Adc { input, .. } => match signals[*input] {
+            Node::Adc(node::Adc { input, .. }) => match signals[*input] {
                 Signal::Voltage { v, .. } => v,
                 _ => 0.0,
             },
@@ -784,7 +345,7 @@ impl Plan {
 
     /// [`Plan::evaluate_raw`] without allocating, for the analyses' loops.
     pub fn raw_signals(&self, values: &[f64], env: &Env) -> Result<[Signal; MAX_NODES], EvalError> {
-        self.signals(values, env, self.nodes.len(), Mode::RAW)
+        self.signals(values, env, Reach::Electronics(self.nodes.len()), Mode::RAW)
     }
 
     /// The reading the firmware would compute from the converter's exact
@@ -822,11 +383,17 @@ impl Plan {
         codes: f64,
     ) -> Result<f64, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
-        self.run(values, env, &mut signals, self.reading, Mode::UNQUANTIZED)?;
+        self.run(
+            values,
+            env,
+            &mut signals,
+            Reach::All(self.reading),
+            Mode::UNQUANTIZED,
+        )?;
         let Signal::Code { exact, .. } = signals[self.adc] else {
             return Err(self.numeric(self.adc, "no code"));
         };
-        let Node::Convert { cj, conversion, .. } = &self.nodes[self.reading] else {
+        let Node::Convert(node::Convert { cj, conversion, .. }) = &self.nodes[self.reading] else {
             return Err(self.numeric(self.reading, "no conversion"));
         };
         let cj = cj.and_then(|n| match signals[n] {
@@ -901,7 +468,13 @@ impl Plan {
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         if self
-            .run_lanes(values, env, scratch, self.nodes.len(), Mode::RAW)
+            .run_lanes(
+                values,
+                env,
+                scratch,
+                Reach::Electronics(self.nodes.len()),
+                Mode::RAW,
+            )
             .is_err()
         {
             for (lane, signals) in scratch.iter_mut().enumerate() {
@@ -932,7 +505,7 @@ impl Plan {
                 values,
                 &calibration_env(self, p),
                 signals,
-                self.adc + 1,
+                Reach::Electronics(self.adc + 1),
                 Mode::CALIBRATION,
             )?;
             for (k, lane_codes) in codes.iter_mut().enumerate() {
@@ -942,8 +515,14 @@ impl Plan {
                 lane_codes[j] = exact;
             }
         }
-        self.run_lanes(values, env, signals, self.reading, Mode::UNQUANTIZED)?;
-        let Node::Convert { cj, .. } = &self.nodes[self.reading] else {
+        self.run_lanes(
+            values,
+            env,
+            signals,
+            Reach::All(self.reading),
+            Mode::UNQUANTIZED,
+        )?;
+        let Node::Convert(node::Convert { cj, .. }) = &self.nodes[self.reading] else {
             return Err(self.numeric(self.reading, "no conversion"));
         };
         for (k, reading) in readings.iter_mut().enumerate() {
@@ -970,18 +549,17 @@ impl Plan {
         values: &[f64],
         env: &Env,
         signals: &mut [[Signal; MAX_NODES]; LANES],
-        until: usize,
+        reach: Reach,
         mode: Mode,
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
-        for i in 0..until.min(self.nodes.len()) {
-            if !mode.convert && matches!(self.nodes[i], Node::Convert { .. }) {
-                continue;
-            }
+        for i in self.reach(reach) {
             // What depends on the condition alone is worked out once for
             // all lanes: the couple's EMF at the (actual) cold junction.
             let junction_mv = match self.nodes[i] {
-                Node::Thermocouple { ty, .. } => thermocouple::emf_mv(ty, junction_c(ty, env)).ok(),
+                Node::Thermocouple(node::Thermocouple { ty, .. }) => {
+                    thermocouple::emf_mv(ty, super::node::junction_c(ty, env)).ok()
+                }
                 _ => None,
             };
             for (k, lane) in signals.iter_mut().enumerate() {
@@ -997,7 +575,7 @@ impl Plan {
 
     fn main_conversion(&self) -> Result<&Conversion, EvalError> {
         match &self.nodes[self.reading] {
-            Node::Convert { conversion, .. } => Ok(conversion),
+            Node::Convert(node::Convert { conversion, .. }) => Ok(conversion),
             _ => Err(self.numeric(self.reading, "no conversion")),
         }
     }
@@ -1006,7 +584,6 @@ impl Plan {
 #[cfg(test)]
 mod tests {
     use super::super::element::self_heated;
-    use super::round_code;
     use crate::physics::{rtd, thermistor};
 
     /// The fixed point by plain iteration, far past convergence.
@@ -1041,20 +618,6 @@ mod tests {
                 (got - want).abs() < 1e-8 * want,
                 "{amps} A: {got} vs {want}"
             );
-        }
-    }
-
-    #[test]
-    fn codes_round_as_f64_round_then_clamp() {
-        let halves = (-40..=40).map(|k| k as f64 * 0.5);
-        let near = [
-            0.49999999999999994,
-            -0.49999999999999994,
-            2.5000000000000004,
-        ];
-        for x in halves.chain(near).chain([f64::MAX, f64::MIN, 1e300]) {
-            let want = x.round().clamp(-8.0, 7.0) as i64;
-            assert_eq!(round_code(x, -8.0, 7.0), want, "{x}");
         }
     }
 }

@@ -14,7 +14,8 @@
 //! its sum handles exactly. Drifts split the same way over the tracking
 //! drift.
 
-use super::plan::{DriftSlot, Node, Slot, SlotId};
+use super::node::{self, Node};
+use super::plan::{DriftSlot, Slot, SlotId};
 use crate::model::{Chain, TrackGroup};
 
 /// One group's common component: the slots it moves and how much of each
@@ -48,16 +49,26 @@ pub fn half_width(slot: &Slot) -> (f64, f64) {
 /// The value slots and drift slots a stage's tracking acts on.
 fn tracked_slots(node: &Node) -> Vec<(SlotId, Option<DriftSlot>)> {
     match node {
-        Node::Resistor { r, drift, .. } => vec![(*r, *drift)],
-        Node::Excitation { value, drift, .. } => vec![(*value, *drift)],
-        Node::Bridge {
+        Node::Resistor(node::Resistor { r, drift, .. }) => vec![(*r, *drift)],
+        Node::Excitation(node::Excitation { value, drift, .. }) => vec![(*value, *drift)],
+        Node::Bridge(node::Bridge {
             r, drift, others, ..
-        } => r
+        }) => r
             .map(|r| (r, *drift))
             .into_iter()
             .chain(others.iter().copied())
             .collect(),
-        _ => Vec::new(),
+        Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => Vec::new(),
     }
 }
 

@@ -4,6 +4,7 @@
 use std::sync::Arc;
 
 use super::ports::Port;
+use super::typed::StageModel;
 use super::value::{ParamValue, ResolvedParam};
 use crate::diagnostics::{Cause, SourceFile, Span};
 use crate::syntax::ast::StageKind;
@@ -30,6 +31,14 @@ pub struct Chain {
 }
 
 impl Chain {
+    /// The measurand's unit as written (empty without a measurand).
+    pub fn measurand_unit(&self) -> String {
+        self.measurand
+            .as_ref()
+            .map(|m| m.unit.clone())
+            .unwrap_or_default()
+    }
+
     /// The unit errors are shown in (the measurand's difference unit: K
     /// for temperatures) and the factor from SI to it.
     pub fn difference_unit(&self) -> (String, f64) {
@@ -76,11 +85,8 @@ impl Measurand {
 
 #[derive(Clone, Debug)]
 pub struct Requirement {
-    /// `accuracy`, `resolution`, `response` or `rejection`.
-    pub kind: &'static str,
+    pub kind: super::RequirementKind,
     pub value: ParamValue,
-    /// `worst_case`, `gum` or `monte_carlo` for accuracy.
-    pub method: Option<String>,
     pub span: Span,
 }
 
@@ -101,6 +107,8 @@ pub struct Stage {
     /// The model line's word (`rtd`, `divider`); None for kinds with one model.
     pub model: Option<&'static str>,
     pub params: Vec<ResolvedParam>,
+    /// The model with its parameters typed, when every line was accepted.
+    pub typed: Option<StageModel>,
     pub span: Span,
     /// Parameters written but rejected (already reported): present for
     /// the checks that ask whether something was given.

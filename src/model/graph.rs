@@ -9,7 +9,7 @@ use petgraph::algo::kosaraju_scc;
 use petgraph::graph::DiGraph;
 
 use super::chain::{Connection, Stage};
-use super::ports::{self, InputSpec, Port, Signal};
+use super::ports::{self, InputSpec, Port, SignalKind};
 use super::value::ParamValue;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
@@ -286,7 +286,7 @@ fn describe(stage: &Stage) -> String {
 }
 
 /// What each stage outputs, given its connections.
-pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signal> {
+pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<SignalKind> {
     let static_out = |s: &Stage| ports::output(s.kind, s.model, false);
     let incoming = incoming(stages.len(), connections);
     stages
@@ -299,7 +299,7 @@ pub fn output_signals(stages: &[Stage], connections: &[Connection]) -> Vec<Signa
                 c.to_port == Port::In
                     && matches!(
                         static_out(&stages[c.from]),
-                        Signal::CurrentExcitation | Signal::VoltageExcitation
+                        SignalKind::CurrentExcitation | SignalKind::VoltageExcitation
                     )
             });
             ports::output(s.kind, s.model, driven)
@@ -325,7 +325,7 @@ struct Wiring<'a> {
     file: &'a Arc<SourceFile>,
     stages: &'a [Stage],
     connections: &'a [Connection],
-    outputs: Vec<Signal>,
+    outputs: Vec<SignalKind>,
     incoming: Vec<Vec<usize>>,
 }
 
@@ -432,20 +432,20 @@ fn wrong_signal(
     source: &Stage,
     target: &Stage,
     spec: &InputSpec,
-    signal: Signal,
+    signal: SignalKind,
     edge: Span,
 ) -> Finding {
     let expects = nouns(spec.accepts);
     let help = match (signal, target.kind) {
-        (Signal::VoltageExcitation, StageKind::Sensor) => format!(
+        (SignalKind::VoltageExcitation, StageKind::Sensor) => format!(
             "a voltage across a resistive sensor gives nothing to measure; wire `{}` and `{}` into a `bridge` (a `divider` for one element), or use a current excitation",
             source.name, target.name
         ),
-        (Signal::Code | Signal::Reading, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
+        (SignalKind::Code | SignalKind::Reading, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
             "`{}` works on voltages, so it belongs before the converter: wire the signal into it first and its output into the `adc`",
             target.name
         ),
-        (Signal::Element, _) => format!(
+        (SignalKind::Element, _) => format!(
             "`{}` is a bare element here; drive it with a current excitation or wire it into a bridge arm: `{} -> bridge_name.arm`",
             source.name, source.name
         ),
@@ -468,7 +468,7 @@ fn wrong_signal(
 }
 
 /// The signals a port takes, in words: `a voltage or a current`.
-fn nouns(signals: &[Signal]) -> String {
+fn nouns(signals: &[SignalKind]) -> String {
     signals
         .iter()
         .map(|s| s.noun())
@@ -655,7 +655,7 @@ fn check_use(
     file: &Arc<SourceFile>,
     stages: &[Stage],
     connections: &[Connection],
-    outputs: &[Signal],
+    outputs: &[SignalKind],
     loops: &[(Vec<usize>, Cause)],
     findings: &mut Findings,
 ) {
@@ -678,7 +678,9 @@ fn check_use(
         let touched = feeds_any[i] || fed[i] || junctions.contains(stage.name.as_str());
         if !touched {
             findings.push(unused(file, stage));
-        } else if stage.kind != StageKind::Convert && !feeds_any[i] && outputs[i] != Signal::Reading
+        } else if stage.kind != StageKind::Convert
+            && !feeds_any[i]
+            && outputs[i] != SignalKind::Reading
         {
             findings.push(goes_nowhere(file, stage));
         }

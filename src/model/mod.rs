@@ -7,10 +7,12 @@ mod interpret;
 pub mod parts;
 mod parts_positions;
 pub mod ports;
+pub mod requirement;
 pub mod schema;
 mod settings;
 mod stage;
 pub mod track;
+pub mod typed;
 pub mod value;
 
 use std::path::Path;
@@ -19,6 +21,7 @@ use std::sync::Arc;
 pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember};
 pub use graph::output_signals;
 pub use parts::PartsCache;
+pub use requirement::{AccuracyMethod, RequirementKind};
 pub use settings::DEFAULT_REFERENCE_K;
 
 use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile};

@@ -1,6 +1,7 @@
 //! Typed ports: which signals each stage takes and gives. The port rules
 //! of the language live here and nowhere else.
 
+use super::schema::{self, Role};
 use super::value::ParamValue;
 use crate::syntax::ast::StageKind;
 use crate::units::Dim;
@@ -43,7 +44,7 @@ impl Port {
 
 /// What travels along an edge.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
-pub enum Signal {
+pub enum SignalKind {
     CurrentExcitation,
     VoltageExcitation,
     /// A resistance, to be wired into a bridge arm.
@@ -53,15 +54,15 @@ pub enum Signal {
     Reading,
 }
 
-impl Signal {
+impl SignalKind {
     pub fn noun(self) -> &'static str {
         match self {
-            Signal::CurrentExcitation => "a current excitation",
-            Signal::VoltageExcitation => "a voltage excitation",
-            Signal::Element => "a resistive element",
-            Signal::Voltage => "a voltage",
-            Signal::Code => "a converter code",
-            Signal::Reading => "a reading",
+            SignalKind::CurrentExcitation => "a current excitation",
+            SignalKind::VoltageExcitation => "a voltage excitation",
+            SignalKind::Element => "a resistive element",
+            SignalKind::Voltage => "a voltage",
+            SignalKind::Code => "a converter code",
+            SignalKind::Reading => "a reading",
         }
     }
 }
@@ -69,13 +70,13 @@ impl Signal {
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct InputSpec {
     pub port: Port,
-    pub accepts: &'static [Signal],
+    pub accepts: &'static [SignalKind],
     pub required: bool,
     /// Takes several edges (bridge arms).
     pub multi: bool,
 }
 
-const fn input(port: Port, accepts: &'static [Signal], required: bool) -> InputSpec {
+const fn input(port: Port, accepts: &'static [SignalKind], required: bool) -> InputSpec {
     InputSpec {
         port,
         accepts,
@@ -84,15 +85,28 @@ const fn input(port: Port, accepts: &'static [Signal], required: bool) -> InputS
     }
 }
 
-const EXCITATIONS: &[Signal] = &[Signal::CurrentExcitation, Signal::VoltageExcitation];
+const EXCITATIONS: &[SignalKind] = &[SignalKind::CurrentExcitation, SignalKind::VoltageExcitation];
 /// What a `ref` input takes: a voltage, from a source or another stage.
-const REFERENCES: &[Signal] = &[Signal::Voltage, Signal::VoltageExcitation];
+const REFERENCES: &[SignalKind] = &[SignalKind::Voltage, SignalKind::VoltageExcitation];
 
-pub fn is_resistive(model: Option<&str>) -> bool {
-    matches!(
-        model,
-        Some("rtd" | "thermistor" | "strain_gauge" | "resistor")
-    )
+/// What a stage's model takes and gives, from its schema row. A stage
+/// whose model line is missing or rejected (already reported) is checked
+/// as its kind's plainest model.
+fn role(kind: StageKind, model: Option<&str>) -> Role {
+    let spec = match model {
+        Some(word) => schema::model(kind, word),
+        None => schema::implicit_model(kind),
+    };
+    match (spec, kind) {
+        (Some(spec), _) => spec.role,
+        (None, StageKind::Excitation) => Role::CurrentSource,
+        (None, StageKind::Sensor) => Role::Powered,
+        (None, StageKind::Bridge) => Role::Bridge { arms: 1 },
+        (None, StageKind::Amplifier) => Role::Amplifier,
+        (None, StageKind::Filter) => Role::Filter,
+        (None, StageKind::Adc) => Role::Adc,
+        (None, StageKind::Convert) => Role::Convert,
+    }
 }
 
 /// The inputs of a stage, default first. `params` decide the optional
@@ -102,41 +116,38 @@ pub fn inputs(
     model: Option<&str>,
     param: &dyn Fn(&str) -> Option<ParamValue>,
 ) -> Vec<InputSpec> {
-    match kind {
-        StageKind::Excitation => vec![],
-        StageKind::Sensor => match model {
-            m if is_resistive(m) => vec![input(Port::In, &[Signal::CurrentExcitation], false)],
-            Some("thermocouple") => vec![],
-            Some("transducer") => {
-                vec![input(
-                    Port::In,
-                    EXCITATIONS,
-                    transducer_is_ratiometric(param),
-                )]
-            }
-            _ => vec![input(Port::In, &[Signal::VoltageExcitation], false)],
-        },
-        StageKind::Bridge => vec![
+    match role(kind, model) {
+        Role::CurrentSource | Role::VoltageSource | Role::Floating => vec![],
+        Role::Resistive => vec![input(Port::In, &[SignalKind::CurrentExcitation], false)],
+        Role::Transducer => vec![input(
+            Port::In,
+            EXCITATIONS,
+            transducer_is_ratiometric(param),
+        )],
+        Role::Powered | Role::PoweredCurrent => {
+            vec![input(Port::In, &[SignalKind::VoltageExcitation], false)]
+        }
+        Role::Bridge { .. } => vec![
             input(Port::Exc, EXCITATIONS, true),
             InputSpec {
                 port: Port::Arm,
-                accepts: &[Signal::Element],
+                accepts: &[SignalKind::Element],
                 required: true,
                 multi: true,
             },
         ],
-        StageKind::Amplifier => vec![
-            input(Port::In, &[Signal::Voltage], true),
+        Role::Amplifier => vec![
+            input(Port::In, &[SignalKind::Voltage], true),
             input(Port::Ref, REFERENCES, false),
         ],
-        StageKind::Filter => vec![input(Port::In, &[Signal::Voltage], true)],
-        StageKind::Adc => vec![
-            input(Port::In, &[Signal::Voltage], true),
+        Role::Filter => vec![input(Port::In, &[SignalKind::Voltage], true)],
+        Role::Adc => vec![
+            input(Port::In, &[SignalKind::Voltage], true),
             input(Port::Ref, REFERENCES, param("vref").is_none()),
         ],
-        StageKind::Convert => vec![
-            input(Port::In, &[Signal::Code], true),
-            input(Port::Cj, &[Signal::Reading], false),
+        Role::Convert => vec![
+            input(Port::In, &[SignalKind::Code], true),
+            input(Port::Cj, &[SignalKind::Reading], false),
         ],
     }
 }
@@ -148,25 +159,37 @@ fn transducer_is_ratiometric(param: &dyn Fn(&str) -> Option<ParamValue>) -> bool
 
 /// What a stage's output carries. A resistive sensor driven by a current
 /// gives the voltage across it; undriven it is an element for a bridge.
-pub fn output(kind: StageKind, model: Option<&str>, driven_by_current: bool) -> Signal {
-    match kind {
-        StageKind::Excitation if model == Some("voltage") => Signal::VoltageExcitation,
-        StageKind::Excitation => Signal::CurrentExcitation,
-        StageKind::Sensor if is_resistive(model) && !driven_by_current => Signal::Element,
-        StageKind::Sensor if model == Some("ic_current") => Signal::CurrentExcitation,
-        StageKind::Sensor | StageKind::Bridge | StageKind::Amplifier | StageKind::Filter => {
-            Signal::Voltage
-        }
-        StageKind::Adc => Signal::Code,
-        StageKind::Convert => Signal::Reading,
+pub fn output(kind: StageKind, model: Option<&str>, driven_by_current: bool) -> SignalKind {
+    match role(kind, model) {
+        Role::CurrentSource | Role::PoweredCurrent => SignalKind::CurrentExcitation,
+        Role::VoltageSource => SignalKind::VoltageExcitation,
+        Role::Resistive if !driven_by_current => SignalKind::Element,
+        Role::Resistive
+        | Role::Floating
+        | Role::Transducer
+        | Role::Powered
+        | Role::Bridge { .. }
+        | Role::Amplifier
+        | Role::Filter => SignalKind::Voltage,
+        Role::Adc => SignalKind::Code,
+        Role::Convert => SignalKind::Reading,
     }
 }
 
 /// Bridge arms by model.
 pub fn arm_count(model: Option<&str>) -> usize {
-    match model {
-        Some("half") => 2,
-        Some("full") => 4,
-        _ => 1,
+    match role(StageKind::Bridge, model) {
+        Role::Bridge { arms } => arms,
+        Role::CurrentSource
+        | Role::VoltageSource
+        | Role::Resistive
+        | Role::Floating
+        | Role::Transducer
+        | Role::Powered
+        | Role::PoweredCurrent
+        | Role::Amplifier
+        | Role::Filter
+        | Role::Adc
+        | Role::Convert => 1,
     }
 }

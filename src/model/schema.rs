@@ -2,6 +2,18 @@
 //! and dimension of each value, what is required and what is plausible.
 //! Adding a parameter is one line here (and its use in `physics`).
 
+use super::typed::{
+    Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction,
+    ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent, IcVoltage,
+    Resistor, Rtd, RtdCurveName, Sampling, Source, StageModel, StrainGauge, Thermistor,
+    ThermistorLaw, Thermocouple, Transducer,
+};
+use super::value::{Measure, ParamValue, ResolvedParam, Tolerance};
+use crate::physics::adc::Polarity;
+use crate::physics::filter::Response;
+use crate::physics::rtd::{ToleranceClass, Wiring};
+use crate::physics::thermocouple::ThermocoupleType;
+use crate::physics::transducer::LinearityLine;
 use crate::syntax::ast::StageKind;
 use crate::units::Dim;
 
@@ -64,6 +76,34 @@ pub enum Shape {
     Flag,
 }
 
+/// What a model takes and gives: the port rules (`ports.rs`) follow it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Role {
+    /// Drives a current into what it feeds.
+    CurrentSource,
+    /// A voltage across what it feeds.
+    VoltageSource,
+    /// A resistance: a voltage on a current source, else a bridge arm.
+    Resistive,
+    /// A voltage of its own with no input (a thermocouple).
+    Floating,
+    /// A bridge transducer: excited by a current or a voltage, which it
+    /// needs when rated in mV/V.
+    Transducer,
+    /// A voltage output from an optional supply.
+    Powered,
+    /// A current output (PTAT) from an optional supply.
+    PoweredCurrent,
+    /// A divider or bridge of so many active arms.
+    Bridge {
+        arms: usize,
+    },
+    Amplifier,
+    Filter,
+    Adc,
+    Convert,
+}
+
 /// The smallest and largest plausible value (SI), checked after units.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Plausible {
@@ -87,6 +127,8 @@ pub struct ParamSpec {
 pub struct ModelSpec {
     pub kind: StageKind,
     pub model: Option<&'static str>,
+    /// What it takes and gives, for the port rules (`ports.rs`).
+    pub role: Role,
     /// The model line itself (`rtd pt1000`, `current 250 uA ± 0.5 %`).
     pub model_shape: Shape,
     pub params: &'static [ParamSpec],
@@ -97,6 +139,9 @@ pub struct ModelSpec {
     /// Groups given all together or not at all: what one of them states
     /// means nothing without the others.
     pub together: &'static [&'static [&'static str]],
+    /// The typed model from the checked lines; None where a value it needs
+    /// is missing or was rejected (already reported).
+    pub read: fn(&Reader<'_>) -> Option<StageModel>,
 }
 
 const fn p(name: &'static str, shape: Shape) -> ParamSpec {
@@ -179,6 +224,7 @@ static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Excitation,
         model: Some("current"),
+        role: Role::CurrentSource,
         model_shape: measure(AMP),
         params: &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
@@ -188,10 +234,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_current,
     },
     ModelSpec {
         kind: StageKind::Excitation,
         model: Some("voltage"),
+        role: Role::VoltageSource,
         model_shape: measure(VOLT),
         params: &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
@@ -201,10 +249,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_voltage,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("rtd"),
+        role: Role::Resistive,
         model_shape: Shape::Words(RTD_CURVES),
         params: &[
             p("r0", toleranced(OHM)).positive(),
@@ -220,10 +270,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[("class", "tolerance")],
         one_of: &[],
         together: &[],
+        read: read_rtd,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("thermocouple"),
+        role: Role::Floating,
         model_shape: Shape::ThermocoupleType,
         params: &[
             p("class", Shape::Count { min: 1, max: 3 }),
@@ -237,10 +289,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[("class", "tolerance")],
         one_of: &[],
         together: &[&["bias_resistor", "bias_voltage"]],
+        read: read_thermocouple,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("thermistor"),
+        role: Role::Resistive,
         model_shape: Shape::Flag,
         params: &[
             p("r25", toleranced(OHM)).required().positive(),
@@ -254,10 +308,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[("beta", "steinhart")],
         one_of: &[&["beta", "steinhart"]],
         together: &[],
+        read: read_thermistor,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("ic_voltage"),
+        role: Role::Powered,
         model_shape: Shape::Flag,
         params: &[
             p("slope", toleranced(Expect::PerKelvin(Dim::VOLTAGE)))
@@ -280,10 +336,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_ic_voltage,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("ic_current"),
+        role: Role::PoweredCurrent,
         model_shape: Shape::Flag,
         params: &[
             p("slope", toleranced(Expect::PerKelvin(Dim::CURRENT)))
@@ -296,10 +354,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_ic_current,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("strain_gauge"),
+        role: Role::Resistive,
         model_shape: Shape::Flag,
         params: &[
             p("r", measure(OHM)).required().positive(),
@@ -312,10 +372,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_strain_gauge,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("transducer"),
+        role: Role::Transducer,
         model_shape: Shape::Flag,
         params: &[
             p(
@@ -341,19 +403,23 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_transducer,
     },
     ModelSpec {
         kind: StageKind::Sensor,
         model: Some("resistor"),
+        role: Role::Resistive,
         model_shape: measure(OHM),
         params: &[],
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_resistor,
     },
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("divider"),
+        role: Role::Bridge { arms: 1 },
         model_shape: Shape::Flag,
         params: &[
             p("r", measure(OHM)).required().positive(),
@@ -362,37 +428,45 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_divider,
     },
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("quarter"),
+        role: Role::Bridge { arms: 1 },
         model_shape: Shape::Flag,
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_quarter,
     },
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("half"),
+        role: Role::Bridge { arms: 2 },
         model_shape: Shape::Flag,
         params: &[p("r", measure(OHM)).required().positive()],
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_half,
     },
     ModelSpec {
         kind: StageKind::Bridge,
         model: Some("full"),
+        role: Role::Bridge { arms: 4 },
         model_shape: Shape::Flag,
         params: &[],
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_full,
     },
     ModelSpec {
         kind: StageKind::Amplifier,
         model: None,
+        role: Role::Amplifier,
         model_shape: Shape::Flag,
         params: &[
             p("gain", toleranced(Expect::Ratio)).required().positive(),
@@ -415,10 +489,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_amplifier,
     },
     ModelSpec {
         kind: StageKind::Filter,
         model: Some("lowpass"),
+        role: Role::Filter,
         model_shape: Shape::Words(&["rc", "butterworth", "bessel"]),
         params: &[
             p("order", Shape::Count { min: 1, max: 8 }),
@@ -429,10 +505,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[("cutoff", "r"), ("cutoff", "c")],
         one_of: &[&["cutoff", "r"]],
         together: &[],
+        read: read_filter,
     },
     ModelSpec {
         kind: StageKind::Adc,
         model: None,
+        role: Role::Adc,
         model_shape: Shape::Flag,
         params: &[
             p("bits", Shape::Count { min: 1, max: 32 }).required(),
@@ -455,10 +533,12 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
+        read: read_adc,
     },
     ModelSpec {
         kind: StageKind::Convert,
         model: None,
+        role: Role::Convert,
         model_shape: Shape::Flag,
         params: &[
             p("method", Shape::Method),
@@ -474,6 +554,7 @@ static MODELS: &[ModelSpec] = &[
         exclusive: &[],
         one_of: &[],
         together: &[],
+        read: read_convert,
     },
 ];
 
@@ -507,4 +588,457 @@ impl ModelSpec {
 /// Every parameter name of every model, for the language reference test.
 pub fn all_names() -> impl Iterator<Item = &'static str> {
     MODELS.iter().flat_map(|m| m.names())
+}
+
+/// The checked lines of one stage, read by name: only the readers below
+/// look a parameter up by its name.
+pub struct Reader<'a> {
+    params: &'a [ResolvedParam],
+}
+
+impl<'a> Reader<'a> {
+    pub fn new(params: &'a [ResolvedParam]) -> Self {
+        Reader { params }
+    }
+
+    fn get(&self, name: &str) -> Option<&'a ParamValue> {
+        self.params
+            .iter()
+            .find(|p| p.name == name)
+            .map(|p| &p.value)
+    }
+
+    fn measure(&self, name: &str) -> Option<Measure> {
+        match self.get(name) {
+            Some(ParamValue::Measure(m)) => Some(m.clone()),
+            _ => None,
+        }
+    }
+
+    /// A plain value (no tolerance, no drift), SI.
+    fn value(&self, name: &str) -> Option<f64> {
+        self.measure(name).map(|m| m.nominal)
+    }
+
+    fn limit(&self, name: &str) -> Option<Tolerance> {
+        match self.get(name) {
+            Some(ParamValue::Limit(t)) => Some(t.clone()),
+            _ => None,
+        }
+    }
+
+    fn range(&self, name: &str) -> Option<(f64, f64)> {
+        match self.get(name) {
+            Some(ParamValue::Range { low, high }) => Some((*low, *high)),
+            _ => None,
+        }
+    }
+
+    fn word(&self, name: &str) -> Option<&'a str> {
+        match self.get(name) {
+            Some(ParamValue::Word(w)) => Some(w.as_str()),
+            _ => None,
+        }
+    }
+
+    /// A word of a list, read into its type. Given but not one of the
+    /// words (already reported where it was read): `Err`, so the model is
+    /// not built on a guess.
+    fn choice<T>(
+        &self,
+        name: &str,
+        from_word: impl Fn(&str) -> Option<T>,
+    ) -> Result<Option<T>, ()> {
+        match self.word(name) {
+            Some(w) => from_word(w).map(Some).ok_or(()),
+            None => Ok(None),
+        }
+    }
+
+    fn count(&self, name: &str) -> Option<u32> {
+        match self.get(name) {
+            Some(ParamValue::Count(n)) => Some(*n),
+            _ => None,
+        }
+    }
+
+    /// `value at point`: the value, its dimension and the point.
+    fn at(&self, name: &str) -> Option<(Measure, Dim, f64)> {
+        match self.get(name) {
+            Some(ParamValue::At {
+                value,
+                value_dim,
+                at,
+            }) => Some((value.clone(), *value_dim, *at)),
+            _ => None,
+        }
+    }
+}
+
+fn read_excitation(r: &Reader<'_>, source: Source, name: &str) -> Option<StageModel> {
+    Some(StageModel::Excitation(Excitation {
+        source,
+        value: r.measure(name)?,
+        drift: r.limit("drift"),
+        noise: r.limit("noise"),
+    }))
+}
+
+fn read_current(r: &Reader<'_>) -> Option<StageModel> {
+    let source = Source::Current {
+        compliance: r.value("compliance"),
+    };
+    read_excitation(r, source, "current")
+}
+
+fn read_voltage(r: &Reader<'_>) -> Option<StageModel> {
+    let source = Source::Voltage {
+        limit: r.value("limit"),
+    };
+    read_excitation(r, source, "voltage")
+}
+
+fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
+    let curve = r.choice("rtd", RtdCurveName::from_word).ok()??;
+    let coefficients = match r.get("coefficients") {
+        Some(ParamValue::Measures(m)) => Some(Box::new(<[Measure; 3]>::try_from(m.clone()).ok()?)),
+        _ => None,
+    };
+    if curve == RtdCurveName::Custom && (coefficients.is_none() || r.get("r0").is_none()) {
+        return None;
+    }
+    let class = r
+        .choice("class", |w| match w {
+            "AA" => Some(ToleranceClass::AA),
+            "A" => Some(ToleranceClass::A),
+            "B" => Some(ToleranceClass::B),
+            "C" => Some(ToleranceClass::C),
+            _ => None,
+        })
+        .ok()?;
+    let wiring = match r.count("wires") {
+        Some(2) => Wiring::TwoWire,
+        Some(3) => Wiring::ThreeWire,
+        Some(4) | None => Wiring::FourWire,
+        Some(_) => return None,
+    };
+    Some(StageModel::Rtd(Rtd {
+        curve,
+        r0: r.measure("r0"),
+        coefficients,
+        class,
+        tolerance: r.limit("tolerance"),
+        wiring,
+        lead: r.measure("lead"),
+        dissipation: r.measure("dissipation"),
+        time_constant: r.value("time_constant"),
+        max_current: r.value("max_current"),
+    }))
+}
+
+fn read_thermocouple(r: &Reader<'_>) -> Option<StageModel> {
+    let ty = r
+        .choice("thermocouple", ThermocoupleType::from_letter)
+        .ok()??;
+    let cold_junction = match r.get("cold_junction") {
+        Some(ParamValue::Limit(t)) => Some(ColdJunction::Error(t.clone())),
+        Some(ParamValue::StageRef { name, .. }) => Some(ColdJunction::Stage(name.clone())),
+        _ => None,
+    };
+    Some(StageModel::Thermocouple(Thermocouple {
+        ty,
+        class: match r.count("class") {
+            Some(c) => Some(u8::try_from(c).ok()?),
+            None => None,
+        },
+        tolerance: r.limit("tolerance"),
+        cold_junction,
+        lead: r.measure("lead"),
+        time_constant: r.value("time_constant"),
+        bias_voltage: r.measure("bias_voltage"),
+        bias_resistor: r.measure("bias_resistor"),
+    }))
+}
+
+fn read_thermistor(r: &Reader<'_>) -> Option<StageModel> {
+    let law = match (r.measure("beta"), r.get("steinhart")) {
+        (Some(beta), _) => ThermistorLaw::Beta(beta),
+        (None, Some(ParamValue::Numbers(n))) => {
+            ThermistorLaw::SteinhartHart(<[f64; 3]>::try_from(n.as_slice()).ok()?)
+        }
+        _ => return None,
+    };
+    Some(StageModel::Thermistor(Thermistor {
+        r25: r.measure("r25")?,
+        law,
+        dissipation: r.measure("dissipation"),
+        range: r.range("range"),
+        time_constant: r.value("time_constant"),
+        max_current: r.value("max_current"),
+    }))
+}
+
+fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
+    let (output, _, output_at) = r.at("output")?;
+    Some(StageModel::IcVoltage(IcVoltage {
+        slope: r.measure("slope")?,
+        output,
+        output_at,
+        accuracy: r.limit("accuracy"),
+        noise: r.limit("noise"),
+        output_resistance: r.measure("output_resistance"),
+        supply: r.range("supply"),
+        time_constant: r.value("time_constant"),
+    }))
+}
+
+fn read_ic_current(r: &Reader<'_>) -> Option<StageModel> {
+    Some(StageModel::IcCurrent(IcCurrent {
+        slope: r.measure("slope")?,
+        accuracy: r.limit("accuracy"),
+        supply: r.range("supply"),
+        time_constant: r.value("time_constant"),
+    }))
+}
+
+fn read_strain_gauge(r: &Reader<'_>) -> Option<StageModel> {
+    let side = r.choice("side", GaugeSide::from_word).ok()?;
+    Some(StageModel::StrainGauge(StrainGauge {
+        r: r.measure("r")?,
+        gauge_factor: r.measure("gauge_factor")?,
+        side: side.unwrap_or(GaugeSide::Tension),
+        time_constant: r.value("time_constant"),
+    }))
+}
+
+fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
+    let (sensitivity, sensitivity_dim, full_scale) = r.at("sensitivity")?;
+    let linearity = r
+        .choice("linearity", |w| match w {
+            "terminal" => Some(LinearityLine::Terminal),
+            "best_fit" => Some(LinearityLine::BestFit),
+            _ => None,
+        })
+        .ok()?;
+    Some(StageModel::Transducer(Transducer {
+        sensitivity,
+        sensitivity_dim,
+        full_scale,
+        zero: r.limit("zero"),
+        nonlinearity: r.limit("nonlinearity"),
+        linearity: linearity.unwrap_or(LinearityLine::Terminal),
+        hysteresis: r.limit("hysteresis"),
+        zero_drift: r.limit("zero_drift"),
+        span_drift: r.limit("span_drift"),
+        r: r.measure("r"),
+        time_constant: r.value("time_constant"),
+    }))
+}
+
+fn read_resistor(r: &Reader<'_>) -> Option<StageModel> {
+    Some(StageModel::Resistor(Resistor {
+        r: r.measure("resistor")?,
+    }))
+}
+
+fn read_bridge(r: &Reader<'_>, form: BridgeForm) -> Option<StageModel> {
+    Some(StageModel::Bridge(Bridge {
+        form,
+        r: r.measure("r"),
+    }))
+}
+
+fn read_divider(r: &Reader<'_>) -> Option<StageModel> {
+    let side = r.choice("sensor", DividerSide::from_word).ok()?;
+    read_bridge(r, BridgeForm::Divider(side.unwrap_or(DividerSide::Low)))
+}
+
+fn read_quarter(r: &Reader<'_>) -> Option<StageModel> {
+    read_bridge(r, BridgeForm::Quarter)
+}
+
+fn read_half(r: &Reader<'_>) -> Option<StageModel> {
+    read_bridge(r, BridgeForm::Half)
+}
+
+fn read_full(r: &Reader<'_>) -> Option<StageModel> {
+    read_bridge(r, BridgeForm::Full)
+}
+
+fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
+    Some(StageModel::Amplifier(Amplifier {
+        gain: r.measure("gain")?,
+        offset: r.limit("offset"),
+        offset_drift: r.limit("offset_drift"),
+        gain_drift: r.limit("gain_drift"),
+        noise: r.value("noise"),
+        noise_corner: r.value("noise_corner"),
+        current_noise: r.value("current_noise"),
+        bias: r.limit("bias"),
+        cmrr: r.value("cmrr"),
+        input: r.range("input"),
+        output: r.range("output"),
+        bandwidth: r.value("bandwidth"),
+        reference: r.measure("reference"),
+    }))
+}
+
+fn read_filter(r: &Reader<'_>) -> Option<StageModel> {
+    let response = r
+        .choice("lowpass", |w| match w {
+            "rc" => Some(Response::Rc),
+            "butterworth" => Some(Response::Butterworth),
+            "bessel" => Some(Response::Bessel),
+            _ => None,
+        })
+        .ok()??;
+    Some(StageModel::Filter(Filter {
+        response,
+        order: r.count("order"),
+        cutoff: r.measure("cutoff"),
+        r: r.measure("r"),
+        c: r.measure("c"),
+    }))
+}
+
+fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
+    let input = r
+        .choice("input", |w| match w {
+            "single" => Some(AdcInput::Single),
+            "differential" => Some(AdcInput::Differential),
+            _ => None,
+        })
+        .ok()?
+        .unwrap_or(AdcInput::Single);
+    let polarity = r
+        .choice("polarity", |w| match w {
+            "unipolar" => Some(Polarity::Unipolar),
+            "bipolar" => Some(Polarity::Bipolar),
+            _ => None,
+        })
+        .ok()?;
+    let sampling = match (r.value("sampling_capacitance"), r.value("acquisition_time")) {
+        (Some(capacitance), Some(acquisition_time)) => Some(Sampling {
+            capacitance,
+            acquisition_time,
+            resistance: r.value("sampling_resistance"),
+        }),
+        _ => None,
+    };
+    Some(StageModel::Adc(Adc {
+        bits: r.count("bits")?,
+        input,
+        polarity: polarity.unwrap_or(match input {
+            AdcInput::Differential => Polarity::Bipolar,
+            AdcInput::Single => Polarity::Unipolar,
+        }),
+        vref: r.measure("vref"),
+        pga: r.measure("pga"),
+        offset: r.limit("offset"),
+        gain_error: r.limit("gain_error"),
+        inl: r.limit("inl"),
+        noise: r.limit("noise"),
+        rate: r.value("rate"),
+        notch: r.value("notch"),
+        ref_range: r.range("ref_range"),
+        rails: r.range("rails"),
+        sampling,
+    }))
+}
+
+fn read_convert(r: &Reader<'_>) -> Option<StageModel> {
+    let method = match r.get("method") {
+        Some(ParamValue::Method { method, points }) => match (method.as_str(), points) {
+            ("exact", None) => ConversionMethod::Exact,
+            ("linear", None) => ConversionMethod::Linear,
+            ("table", Some(n)) => ConversionMethod::Table(*n),
+            ("poly", Some(n)) => ConversionMethod::Poly(*n),
+            _ => return None,
+        },
+        Some(_) => return None,
+        None => ConversionMethod::Exact,
+    };
+    let calibrate = match r.get("calibrate") {
+        Some(ParamValue::Calibrate {
+            method,
+            points,
+            uncertainty,
+        }) => Some(match (method.as_str(), points.as_slice()) {
+            ("offset", [at]) => CalibrationMethod::Offset {
+                at: *at,
+                uncertainty: uncertainty.clone(),
+            },
+            ("two_point", [a, b]) => CalibrationMethod::TwoPoint {
+                at: (*a, *b),
+                uncertainty: uncertainty.clone(),
+            },
+            _ => return None,
+        }),
+        Some(_) => return None,
+        None => None,
+    };
+    Some(StageModel::Convert(Convert {
+        method,
+        average: r.count("average"),
+        calibrate,
+    }))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{model, ParamValue, Reader, ResolvedParam, StageModel};
+    use crate::diagnostics::{SourceFile, Span};
+    use crate::physics::rtd::{ToleranceClass, Wiring};
+    use crate::syntax::ast::StageKind;
+
+    fn line(name: &'static str, value: ParamValue) -> ResolvedParam {
+        ResolvedParam {
+            name,
+            value,
+            span: Span::new(0, 0),
+            file: SourceFile::new("t.catena", ""),
+        }
+    }
+
+    fn rtd(lines: &[ResolvedParam]) -> Option<StageModel> {
+        let spec = model(StageKind::Sensor, "rtd").expect("an rtd row");
+        (spec.read)(&Reader::new(lines))
+    }
+
+    /// Words become their enums; what is not stated takes the documented
+    /// default (four wires); a word outside its list builds no model rather
+    /// than a guessed one.
+    #[test]
+    fn words_are_read_into_types_and_never_guessed() {
+        let curve = line("rtd", ParamValue::Word("pt100".into()));
+        let Some(StageModel::Rtd(m)) = rtd(std::slice::from_ref(&curve)) else {
+            panic!("an rtd");
+        };
+        assert_eq!((m.class, m.wiring), (None, Wiring::FourWire));
+        let class = line("class", ParamValue::Word("B".into()));
+        let wires = line("wires", ParamValue::Count(3));
+        let Some(StageModel::Rtd(m)) = rtd(&[curve.clone(), class, wires]) else {
+            panic!("an rtd");
+        };
+        assert_eq!(
+            (m.class, m.wiring),
+            (Some(ToleranceClass::B), Wiring::ThreeWire)
+        );
+        let unknown = line("class", ParamValue::Word("D".into()));
+        assert_eq!(rtd(&[curve, unknown]), None);
+        let custom = line("rtd", ParamValue::Word("custom".into()));
+        assert_eq!(rtd(&[custom]), None, "a custom curve needs coefficients");
+    }
+
+    /// Every model's reader builds its model from nothing but its required
+    /// lines, or asks for them: none panics on a missing line.
+    #[test]
+    fn every_reader_handles_missing_lines() {
+        for spec in super::MODELS {
+            let built = (spec.read)(&Reader::new(&[]));
+            let needs =
+                spec.params.iter().any(|p| p.required) || spec.model_shape != super::Shape::Flag;
+            assert!(built.is_some() || needs, "{:?} {:?}", spec.kind, spec.model);
+        }
+    }
 }

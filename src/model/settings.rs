@@ -5,6 +5,7 @@ use std::sync::Arc;
 
 use super::chain::{Alarm, Measurand, Requirement};
 use super::interpret::{interpret, Context};
+use super::requirement::{AccuracyMethod, RequirementKind};
 use super::schema::{Expect, Plausible, Shape};
 use super::value::{Basis, ParamValue};
 use crate::diagnostics::did_you_mean;
@@ -22,8 +23,6 @@ const QUANTITIES: &[(&str, Option<Dim>)] = &[
     ("quantity", None),
 ];
 
-const REQUIREMENTS: &[&str] = &["accuracy", "resolution", "response", "rejection"];
-const ACCURACY_METHODS: &[&str] = &["worst_case", "gum", "monte_carlo"];
 pub const DEFAULT_REFERENCE_K: f64 = 25.0 + ZERO_CELSIUS_K;
 
 #[derive(Debug, Default)]
@@ -45,7 +44,8 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
     for setting in ordered {
         let sub = match setting.kind {
             SettingKind::Require => first_word(&setting.values)
-                .and_then(|w| REQUIREMENTS.iter().copied().find(|r| *r == w)),
+                .and_then(RequirementKind::parse)
+                .map(RequirementKind::word),
             _ => None,
         };
         let repeatable = setting.kind == SettingKind::Alarm
@@ -240,8 +240,11 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
             "a requirement, such as `require accuracy ± 0.3 K`",
         ));
     };
-    let Some(&name) = REQUIREMENTS.iter().find(|r| **r == kind.name) else {
-        let near = did_you_mean(&kind.name, REQUIREMENTS.iter().copied());
+    let Some(mut requirement) = RequirementKind::parse(&kind.name) else {
+        let near = did_you_mean(
+            &kind.name,
+            RequirementKind::ALL.map(|k| k.word()).into_iter(),
+        );
         return Err(Box::new(
             Finding::new(Code::P310, file, format!("`{}` is not a requirement", kind.name))
                 .label(kind.span, "unknown requirement")
@@ -251,17 +254,17 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
                 }),
         ));
     };
+    let name = requirement.word();
     let mut values = &setting.values[1..];
-    let mut method = None;
     // The last word is the method, unless it ends `of span` or `of reading`.
     let ends_share = matches!(
         values,
         [.., Value::Word(of), Value::Word(_)] if of.name == "of"
     );
-    if name == "accuracy" && !ends_share {
+    if let (RequirementKind::Accuracy(_), false) = (requirement, ends_share) {
         if let Some(Value::Word(w)) = values.last() {
-            if !ACCURACY_METHODS.contains(&w.name.as_str()) {
-                let near = did_you_mean(&w.name, ACCURACY_METHODS.iter().copied());
+            let Some(method) = AccuracyMethod::parse(&w.name) else {
+                let near = did_you_mean(&w.name, AccuracyMethod::ALL.map(|m| m.word()).into_iter());
                 return Err(Box::new(
                     Finding::new(Code::P304, file, format!("`{}` is not an accuracy method", w.name))
                         .label(w.span, "unknown method")
@@ -270,19 +273,21 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
                             None => "methods: `worst_case`, `gum` (default), `monte_carlo`".to_string(),
                         }),
                 ));
-            }
-            method = Some(w.name.clone());
+            };
+            requirement = RequirementKind::Accuracy(Some(method));
             values = &values[..values.len() - 1];
         }
     }
-    let shape = match name {
-        "accuracy" | "resolution" => Shape::Limit(Expect::Measurand),
-        "response" => Shape::Measure {
+    let shape = match requirement {
+        RequirementKind::Accuracy(_) | RequirementKind::Resolution => {
+            Shape::Limit(Expect::Measurand)
+        }
+        RequirementKind::Response => Shape::Measure {
             expect: Expect::Dim(Dim::TIME),
             tol: false,
             drift: false,
         },
-        _ => Shape::At {
+        RequirementKind::Rejection => Shape::At {
             value: Expect::Decibel,
             at: Expect::Dim(Dim::FREQUENCY),
         },
@@ -296,7 +301,7 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
         cx,
     )?;
     // One resolution for the whole range: it cannot follow the reading.
-    if let (ParamValue::Limit(t), "resolution") = (&value, name) {
+    if let (ParamValue::Limit(t), RequirementKind::Resolution) = (&value, requirement) {
         if t.basis == Basis::Reading {
             return Err(Box::new(
                 Finding::new(
@@ -310,9 +315,8 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
         }
     }
     Ok(Requirement {
-        kind: name,
+        kind: requirement,
         value,
-        method,
         span: setting.span,
     })
 }

@@ -26,6 +26,44 @@ pub fn resolve(
     measurand: Option<&super::chain::Measurand>,
     findings: &mut Findings,
 ) -> Stage {
+    let lines = merged_lines(file, decl, part, findings);
+    let mut stage = Stage {
+        name: decl.name.name.clone(),
+        name_span: decl.name.span,
+        kind: decl.kind,
+        model: None,
+        params: Vec::new(),
+        typed: None,
+        span: decl.span,
+        invalid: Vec::new(),
+        incomplete: part_failed,
+        misnamed: None,
+    };
+    let Some(model) = find_model(file, decl, &lines, findings) else {
+        stage.incomplete = true;
+        return stage;
+    };
+    stage.model = model.model;
+    for line in &lines {
+        read_line(&mut stage, line, decl, model, measurand, findings);
+    }
+    if !part_failed {
+        check_presence(file, decl, model, &lines, findings);
+    }
+    if stage.invalid.is_empty() {
+        stage.typed = (model.read)(&schema::Reader::new(&stage.params));
+    }
+    stage
+}
+
+/// The block's lines (a line given twice is P303) after the part's lines
+/// the block does not override.
+fn merged_lines<'a>(
+    file: &'a Arc<SourceFile>,
+    decl: &'a StageDecl,
+    part: Option<&'a Part>,
+    findings: &mut Findings,
+) -> Vec<Line<'a>> {
     let mut lines: Vec<Line<'_>> = Vec::new();
     for param in &decl.params {
         if let Some(first) = lines.iter().find(|l| l.param.name.name == param.name.name) {
@@ -59,67 +97,50 @@ pub fn resolve(
             });
         lines.splice(0..0, inherited);
     }
+    lines
+}
 
-    let mut stage = Stage {
-        name: decl.name.name.clone(),
-        name_span: decl.name.span,
-        kind: decl.kind,
-        model: None,
-        params: Vec::new(),
-        span: decl.span,
-        invalid: Vec::new(),
-        incomplete: part_failed,
-        misnamed: None,
+/// One line checked against its model's schema row: its value into the
+/// stage's parameters, or its finding.
+fn read_line(
+    stage: &mut Stage,
+    line: &Line<'_>,
+    decl: &StageDecl,
+    model: &ModelSpec,
+    measurand: Option<&super::chain::Measurand>,
+    findings: &mut Findings,
+) {
+    let name = line.param.name.name.as_str();
+    let (shape, plausible, spec_name) = if model.model == Some(name) {
+        (
+            model.model_shape,
+            schema_plausible(model),
+            model.model.unwrap_or(""),
+        )
+    } else if let Some(spec) = model.param(name) {
+        (spec.shape, spec.plausible, spec.name)
+    } else {
+        findings.push(unknown_param(line, decl, model));
+        return;
     };
-    let Some(model) = find_model(file, decl, &lines, findings) else {
-        stage.incomplete = true;
-        return stage;
+    let cx = Context {
+        file: line.file,
+        measurand: measurand.map(|m| m.dim),
+        range: measurand,
     };
-    stage.model = model.model;
-
-    for line in &lines {
-        let name = line.param.name.name.as_str();
-        let (shape, plausible, spec_name) = if model.model == Some(name) {
-            (
-                model.model_shape,
-                schema_plausible(model),
-                model.model.unwrap_or(""),
-            )
-        } else if let Some(spec) = model.param(name) {
-            (spec.shape, spec.plausible, spec.name)
-        } else {
-            findings.push(unknown_param(line, decl, model));
-            continue;
-        };
-        let cx = Context {
-            file: line.file,
-            measurand: measurand.map(|m| m.dim),
-            range: measurand,
-        };
-        match interpret(
-            spec_name,
-            shape,
-            plausible,
-            &line.param.values,
-            line.param.span,
-            &cx,
-        ) {
-            Ok(value) => stage.params.push(ResolvedParam {
-                name: spec_name,
-                value,
-                span: line.param.span,
-                file: Arc::clone(line.file),
-            }),
-            Err(f) => {
-                stage.invalid.push(spec_name.to_string());
-                findings.push(*f)
-            }
+    let values = &line.param.values;
+    match interpret(spec_name, shape, plausible, values, line.param.span, &cx) {
+        Ok(value) => stage.params.push(ResolvedParam {
+            name: spec_name,
+            value,
+            span: line.param.span,
+            file: Arc::clone(line.file),
+        }),
+        Err(f) => {
+            stage.invalid.push(spec_name.to_string());
+            findings.push(*f)
         }
     }
-    if !part_failed {
-        check_presence(file, decl, model, &lines, findings);
-    }
-    stage
 }
 
 fn schema_plausible(model: &ModelSpec) -> schema::Plausible {

@@ -47,7 +47,6 @@ mod prototype;
 
 use prototype::Cx;
 use std::f64::consts::PI;
-use std::fmt;
 
 /// Low-pass response family.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -61,39 +60,25 @@ pub enum Response {
 }
 
 /// Why a filter or a query on it was rejected.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, thiserror::Error)]
 pub enum FilterError {
     /// Order outside 1..=8.
+    #[error("filter order {0} is outside 1..=8")]
     Order(u32),
     /// Cutoff frequency not finite and positive (Hz).
+    #[error("cutoff {0} Hz is not finite and positive")]
     Cutoff(f64),
     /// Resistance (Ω) or capacitance (F) not finite and positive, or their
     /// cutoff not representable.
+    #[error("R = {r_ohm} Ω, C = {c_farad} F do not give a finite positive cutoff")]
     Component { r_ohm: f64, c_farad: f64 },
     /// Settling fraction not finite and positive.
+    #[error("settling fraction {0} is not finite and positive")]
     Fraction(f64),
     /// Pole computation did not converge (not expected for orders 1..=8).
+    #[error("filter poles could not be computed")]
     Poles,
 }
-
-impl fmt::Display for FilterError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            FilterError::Order(n) => write!(f, "filter order {n} is outside 1..=8"),
-            FilterError::Cutoff(fc) => write!(f, "cutoff {fc} Hz is not finite and positive"),
-            FilterError::Component { r_ohm, c_farad } => write!(
-                f,
-                "R = {r_ohm} Ω, C = {c_farad} F do not give a finite positive cutoff"
-            ),
-            FilterError::Fraction(x) => {
-                write!(f, "settling fraction {x} is not finite and positive")
-            }
-            FilterError::Poles => write!(f, "filter poles could not be computed"),
-        }
-    }
-}
-
-impl std::error::Error for FilterError {}
 
 /// Highest order accepted.
 pub const MAX_ORDER: u32 = 8;
@@ -383,17 +368,6 @@ fn residue(u: &[Cx], i: usize) -> Cx {
 
 /// Point where `pred` turns from true (at `lo`) to false (at `hi`),
 /// bisected until the interval cannot shrink in f64.
-fn bisect(mut lo: f64, mut hi: f64, pred: impl Fn(f64) -> bool) -> f64 {
-    for _ in 0..200 {
-        let mid = 0.5 * (lo + hi);
-        if mid <= lo || mid >= hi {
-            break;
-        }
-        if pred(mid) {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
-    hi
+fn bisect(lo: f64, hi: f64, pred: impl Fn(f64) -> bool) -> f64 {
+    super::solve::bisect(lo, hi, pred).1
 }

@@ -8,6 +8,7 @@ pub mod noise;
 pub mod rtd;
 pub mod sampling;
 pub mod semiconductor;
+pub mod solve;
 pub mod strain;
 pub mod thermistor;
 pub mod thermocouple;

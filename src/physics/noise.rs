@@ -1,41 +1,29 @@
 //! Noise densities and their integration over a band.
 //!
 //! * Thermal (Johnson–Nyquist) noise of a resistance: e_n = √(4 k T R) in
-//!   V/√Hz, i_n = √(4 k T / R) in A/√Hz (J. B. Johnson, Phys. Rev. 32, 97,
-//!   1928; H. Nyquist, Phys. Rev. 32, 110, 1928), with k exact (SI 2019).
-//! * Uncorrelated sources add in power: √(Σ e_i²).
+//!   V/√Hz (J. B. Johnson, Phys. Rev. 32, 97, 1928; H. Nyquist, Phys.
+//!   Rev. 32, 110, 1928), with k exact (SI 2019).
+//! * A white density over a band B: e_n √B.
 //! * A white density e_n with a 1/f corner f_c has the power density
 //!   e_n² (1 + f_c/f); integrating from f1 to f2 gives
 //!   v_rms = e_n √(f_c ln(f2/f1) + (f2 − f1)).
 
-use std::fmt;
-
 use super::constants::BOLTZMANN;
 
 /// Why a noise computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum NoiseError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// A resistance, temperature, density or bandwidth was negative (or a
     /// resistance zero where it divides).
+    #[error("value must not be negative")]
     Negative,
     /// The band is empty or reversed, or starts at 0 Hz with a 1/f corner.
+    #[error("frequency band is invalid")]
     InvalidBand,
 }
-
-impl fmt::Display for NoiseError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            NoiseError::NonFinite => "input is not a finite number",
-            NoiseError::Negative => "value must not be negative",
-            NoiseError::InvalidBand => "frequency band is invalid",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for NoiseError {}
 
 type Res<T> = Result<T, NoiseError>;
 
@@ -62,28 +50,11 @@ pub fn johnson_voltage_density(r_ohm: f64, t_k: f64) -> Res<f64> {
     Ok((4.0 * BOLTZMANN * t_k * r_ohm).sqrt())
 }
 
-/// Thermal noise current density √(4kT/R) in A/√Hz of `r_ohm` Ω at `t_k` K.
-pub fn johnson_current_density(r_ohm: f64, t_k: f64) -> Res<f64> {
-    finite(&[r_ohm, t_k])?;
-    non_negative(&[t_k])?;
-    if r_ohm <= 0.0 {
-        return Err(NoiseError::Negative);
-    }
-    Ok((4.0 * BOLTZMANN * t_k / r_ohm).sqrt())
-}
-
 /// RMS value (V or A) of a white density (per √Hz) over `bandwidth_hz` Hz.
 pub fn rms_over_bandwidth(density: f64, bandwidth_hz: f64) -> Res<f64> {
     finite(&[density, bandwidth_hz])?;
     non_negative(&[density, bandwidth_hz])?;
     Ok(density * bandwidth_hz.sqrt())
-}
-
-/// Quadrature sum √(Σ x²) of uncorrelated densities or rms values (same unit).
-pub fn combine_quadrature(values: &[f64]) -> Res<f64> {
-    finite(values)?;
-    // hypot keeps the sum from overflowing for very large terms.
-    Ok(values.iter().fold(0.0_f64, |acc, v| acc.hypot(*v)))
 }
 
 /// RMS (V) over `f_low_hz` … `f_high_hz` of a white density `e_white` V/√Hz
@@ -118,22 +89,9 @@ mod tests {
         let e = johnson_voltage_density(1000.0, 300.0).unwrap();
         assert!((e * e / 1.6567788e-17 - 1.0).abs() < 1e-12, "{e}");
         assert!((e - 4.07e-9).abs() < 0.005e-9);
-        let i = johnson_current_density(1000.0, 300.0).unwrap();
-        assert!((i * i / 1.6567788e-23 - 1.0).abs() < 1e-12, "{i}");
         // Over 10 kHz: × √10 000 = × 100.
         let v = rms_over_bandwidth(e, 10_000.0).unwrap();
         assert!((v - 100.0 * e).abs() < 1e-24);
-    }
-
-    #[test]
-    fn quadrature() {
-        assert_eq!(combine_quadrature(&[3.0, 4.0]).unwrap(), 5.0);
-        assert_eq!(combine_quadrature(&[]).unwrap(), 0.0);
-        assert!((combine_quadrature(&[1e200, 1e200]).unwrap() / 1e200 - 2f64.sqrt()).abs() < 1e-15);
-        assert_eq!(
-            combine_quadrature(&[1.0, f64::NAN]),
-            Err(NoiseError::NonFinite)
-        );
     }
 
     /// Worked by hand: 10 nV/√Hz, corner 100 Hz, 0.1 … 10 Hz:
@@ -166,10 +124,6 @@ mod tests {
         assert_eq!(
             johnson_voltage_density(1.0, f64::NAN),
             Err(NoiseError::NonFinite)
-        );
-        assert_eq!(
-            johnson_current_density(0.0, 300.0),
-            Err(NoiseError::Negative)
         );
         assert_eq!(rms_over_bandwidth(1e-9, -1.0), Err(NoiseError::Negative));
         assert_eq!(

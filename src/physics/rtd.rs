@@ -15,37 +15,27 @@
 //! annealed-copper coefficient 0.00393 /K at 20 °C of IEC 60028 (1925)
 //! re-referred to 0 °C.
 
-use std::fmt;
+use super::solve::{newton_bracketed, Root, Stop};
 
 /// Why an RTD computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum RtdError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// A resistance, R0 or dissipation constant was zero or negative.
+    #[error("resistance or constant must be positive")]
     NonPositive,
     /// The coefficients do not describe an increasing characteristic (A ≤ 0).
+    #[error("coefficient A must be positive")]
     InvalidCoefficients,
     /// The resistance lies outside the branch the model can invert.
+    #[error("resistance outside the invertible range")]
     OutOfRange,
     /// The root search did not converge.
+    #[error("root search did not converge")]
     NoConvergence,
 }
-
-impl fmt::Display for RtdError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            RtdError::NonFinite => "input is not a finite number",
-            RtdError::NonPositive => "resistance or constant must be positive",
-            RtdError::InvalidCoefficients => "coefficient A must be positive",
-            RtdError::OutOfRange => "resistance outside the invertible range",
-            RtdError::NoConvergence => "root search did not converge",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for RtdError {}
 
 /// Callendar–Van Dusen coefficients (A in °C⁻¹, B in °C⁻², C in °C⁻⁴).
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -132,39 +122,32 @@ fn quadratic_root(k: CvdCoefficients, d: f64) -> Option<f64> {
 
 fn below_zero(k: CvdCoefficients, w: f64) -> Result<f64, RtdError> {
     let g = |t: f64| ratio(k, t) - w;
-    let (mut lo, mut hi) = (-super::constants::ZERO_CELSIUS, 0.0_f64);
+    let (lo, hi) = (-super::constants::ZERO_CELSIUS, 0.0_f64);
     if g(lo) > 0.0 {
         return Err(RtdError::OutOfRange);
     }
     // The quadratic without C is a good first guess (within ~2.4 °C).
-    let mut t = match quadratic_root(k, w - 1.0) {
+    let t = match quadratic_root(k, w - 1.0) {
         Some(t0) if t0 > lo && t0 < hi => t0,
         _ => 0.5 * (lo + hi),
     };
-    for _ in 0..200 {
-        let gt = g(t);
-        if gt == 0.0 {
-            return Ok(t);
-        }
-        if gt < 0.0 {
-            lo = t;
-        } else {
-            hi = t;
-        }
-        let slope = d_resistance_dt(1.0, k, t);
-        let newton = t - gt / slope;
-        // Fall back to bisection if Newton leaves the bracket.
-        let next = if slope > 0.0 && newton > lo && newton < hi {
-            newton
-        } else {
-            0.5 * (lo + hi)
-        };
-        if (next - t).abs() <= 1e-12 {
-            return Ok(next);
-        }
-        t = next;
+    root(|t| (g(t), d_resistance_dt(1.0, k, t)), (lo, hi), t)
+}
+
+/// Steps below this end an inverse, °C.
+const STEP_TOL_C: f64 = 1e-12;
+
+/// The root of a rising `f` (value, slope) by bracketed Newton.
+fn root(f: impl Fn(f64) -> (f64, f64), bracket: (f64, f64), start: f64) -> Result<f64, RtdError> {
+    let stop = Stop {
+        step: STEP_TOL_C,
+        stalled_residual: 0.0,
+        max_iter: 200,
+    };
+    match newton_bracketed(|t| Ok::<_, RtdError>(f(t)), bracket, start, stop)? {
+        Root::Exact(t) | Root::Converged(t) => Ok(t),
+        Root::Exhausted(_) => Err(RtdError::NoConvergence),
     }
-    Err(RtdError::NoConvergence)
 }
 
 /// Tolerance classes of IEC 60751:2008, Table 1.
@@ -300,64 +283,10 @@ impl NickelCoefficients {
     };
 }
 
-/// Inversion bracket in °C for nickel: a little beyond −60 … 180 °C so that
-/// tolerance corners at the range ends still invert; the curve rises there.
-const NICKEL_BRACKET_C: (f64, f64) = (-100.0, 250.0);
-
 /// Nickel element resistance in Ω at `t_c` °C (`r0` Ω at 0 °C).
 pub fn nickel_resistance(r0: f64, k: NickelCoefficients, t_c: f64) -> f64 {
     let t2 = t_c * t_c;
     r0 * (1.0 + k.a * t_c + k.b * t2 + k.d * t2 * t2 + k.f * t2 * t2 * t2)
-}
-
-/// Slope dR/dt in Ω/°C of the nickel element at `t_c` °C.
-pub fn nickel_d_resistance_dt(r0: f64, k: NickelCoefficients, t_c: f64) -> f64 {
-    let t = t_c;
-    let t2 = t * t;
-    r0 * (k.a + 2.0 * k.b * t + 4.0 * k.d * t2 * t + 6.0 * k.f * t2 * t2 * t)
-}
-
-/// Temperature in °C of a nickel element reading `r` Ω (Newton, bracketed
-/// to −100 … 250 °C).
-pub fn nickel_temperature(r0: f64, k: NickelCoefficients, r: f64) -> Result<f64, RtdError> {
-    if ![r0, r, k.a, k.b, k.d, k.f].iter().all(|v| v.is_finite()) {
-        return Err(RtdError::NonFinite);
-    }
-    if r0 <= 0.0 || r <= 0.0 {
-        return Err(RtdError::NonPositive);
-    }
-    let g = |t: f64| nickel_resistance(r0, k, t) - r;
-    let (mut lo, mut hi) = NICKEL_BRACKET_C;
-    if g(lo) > 0.0 || g(hi) < 0.0 {
-        return Err(RtdError::OutOfRange);
-    }
-    let mut t = if k.a > 0.0 { (r / r0 - 1.0) / k.a } else { 0.0 };
-    if !(t > lo && t < hi) {
-        t = 0.5 * (lo + hi);
-    }
-    for _ in 0..200 {
-        let gt = g(t);
-        if gt == 0.0 {
-            return Ok(t);
-        }
-        if gt < 0.0 {
-            lo = t;
-        } else {
-            hi = t;
-        }
-        let slope = nickel_d_resistance_dt(r0, k, t);
-        let newton = t - gt / slope;
-        let next = if slope > 0.0 && newton > lo && newton < hi {
-            newton
-        } else {
-            0.5 * (lo + hi)
-        };
-        if (next - t).abs() <= 1e-12 {
-            return Ok(next);
-        }
-        t = next;
-    }
-    Err(RtdError::NoConvergence)
 }
 
 /// Copper temperature coefficient in /K referred to 0 °C: IEC 60028's
@@ -371,20 +300,6 @@ pub const COPPER_ALPHA: f64 = 0.00427;
 /// copper element of 10 Ω at 25 °C has R0 = 9.0355 Ω.
 pub fn linear_resistance(r0: f64, alpha: f64, t_c: f64) -> f64 {
     r0 * (1.0 + alpha * t_c)
-}
-
-/// Inverse of [`linear_resistance`]: temperature in °C for `r` Ω.
-pub fn linear_temperature(r0: f64, alpha: f64, r: f64) -> Result<f64, RtdError> {
-    if ![r0, alpha, r].iter().all(|v| v.is_finite()) {
-        return Err(RtdError::NonFinite);
-    }
-    if r0 <= 0.0 || r <= 0.0 {
-        return Err(RtdError::NonPositive);
-    }
-    if alpha <= 0.0 {
-        return Err(RtdError::InvalidCoefficients);
-    }
-    Ok((r / r0 - 1.0) / alpha)
 }
 
 /// How the element is connected to the measuring circuit.
@@ -418,11 +333,6 @@ pub fn lead_series_resistance(wiring: Wiring, lead_1: f64, lead_2: f64) -> f64 {
 /// whatever the wiring: what a current source's compliance must cover.
 pub fn lead_loop_resistance(lead_1: f64, lead_2: f64) -> f64 {
     lead_1 + lead_2
-}
-
-/// Power in W dissipated by `current_a` A through `resistance_ohm` Ω (I²R).
-pub fn excitation_power_w(current_a: f64, resistance_ohm: f64) -> f64 {
-    current_a * current_a * resistance_ohm
 }
 
 /// Self-heating ΔT = P/δ in K, with P in W and δ (dissipation constant) in W/K.
@@ -563,18 +473,6 @@ mod tests {
         let r100 = nickel_resistance(100.0, k, 100.0);
         assert!((r100 - 161.78).abs() <= 0.005, "{r100}");
         assert!(((r100 - 100.0) / 10_000.0 - 0.00618).abs() <= 5e-6);
-        for t in [-60.0, -10.0, 0.0, 55.5, 180.0] {
-            let back = nickel_temperature(100.0, k, nickel_resistance(100.0, k, t)).unwrap();
-            assert!((back - t).abs() < 1e-9, "{t}: {back}");
-        }
-        assert_eq!(
-            nickel_temperature(100.0, k, 10.0),
-            Err(RtdError::OutOfRange)
-        );
-        assert_eq!(
-            nickel_temperature(100.0, k, f64::NAN),
-            Err(RtdError::NonFinite)
-        );
     }
 
     /// IEC 60028: annealed copper 0.00393 /K at 20 °C (recalled from memory)
@@ -586,12 +484,6 @@ mod tests {
         assert!((alpha0 - COPPER_ALPHA).abs() < 5e-6, "{alpha0}");
         let r0 = 10.0 / (1.0 + 25.0 * COPPER_ALPHA);
         assert!((linear_resistance(r0, COPPER_ALPHA, 25.0) - 10.0).abs() < 1e-12);
-        let t = linear_temperature(r0, COPPER_ALPHA, 12.0).unwrap();
-        assert!((linear_resistance(r0, COPPER_ALPHA, t) - 12.0).abs() < 1e-12);
-        assert_eq!(
-            linear_temperature(r0, 0.0, 12.0),
-            Err(RtdError::InvalidCoefficients)
-        );
     }
 
     /// IEC 60751:2008 Table 1: the class limit ±(a + b|t|) over each
@@ -653,8 +545,7 @@ mod tests {
     /// with δ = 2 mW/K the element runs 100 µW / 2 mW/K = 0.05 K warm.
     #[test]
     fn self_heating() {
-        let p = excitation_power_w(1e-3, 100.0);
-        assert!((p - 1e-4).abs() < 1e-18);
+        let p = 1e-3 * 1e-3 * 100.0;
         assert!((self_heating_k(p, 2e-3).unwrap() - 0.05).abs() < 1e-15);
         assert_eq!(self_heating_k(p, 0.0), Err(RtdError::NonPositive));
         assert_eq!(self_heating_k(f64::NAN, 1.0), Err(RtdError::NonFinite));

@@ -11,33 +11,16 @@
 //! Accuracy bands, output impedance and supply range are data of the
 //! particular sensor and are carried by the specification, not here.
 
-use std::fmt;
-
-use super::constants::ZERO_CELSIUS;
-
 /// Why a semiconductor-sensor computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum SemiconductorError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
-    /// The sensitivity (S or k) is zero, so the output does not move.
-    ZeroSensitivity,
     /// An absolute temperature at or below 0 K would result.
+    #[error("absolute temperature must be positive")]
     NonPositiveTemperature,
 }
-
-impl fmt::Display for SemiconductorError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            SemiconductorError::NonFinite => "input is not a finite number",
-            SemiconductorError::ZeroSensitivity => "sensitivity is zero",
-            SemiconductorError::NonPositiveTemperature => "absolute temperature must be positive",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for SemiconductorError {}
 
 fn finite(values: &[f64]) -> Result<(), SemiconductorError> {
     if values.iter().all(|v| v.is_finite()) {
@@ -52,20 +35,6 @@ pub fn linear_voltage_v(v0: f64, s_v_per_k: f64, t0_c: f64, t_c: f64) -> f64 {
     v0 + s_v_per_k * (t_c - t0_c)
 }
 
-/// Inverse of [`linear_voltage_v`]: temperature in °C for `v` V.
-pub fn linear_voltage_temperature_c(
-    v0: f64,
-    s_v_per_k: f64,
-    t0_c: f64,
-    v: f64,
-) -> Result<f64, SemiconductorError> {
-    finite(&[v0, s_v_per_k, t0_c, v])?;
-    if s_v_per_k == 0.0 {
-        return Err(SemiconductorError::ZeroSensitivity);
-    }
-    Ok(t0_c + (v - v0) / s_v_per_k)
-}
-
 /// PTAT output current in A at `t_k` K for `k_a_per_k` A/K.
 pub fn ptat_current_a(k_a_per_k: f64, t_k: f64) -> Result<f64, SemiconductorError> {
     finite(&[k_a_per_k, t_k])?;
@@ -73,29 +42,6 @@ pub fn ptat_current_a(k_a_per_k: f64, t_k: f64) -> Result<f64, SemiconductorErro
         return Err(SemiconductorError::NonPositiveTemperature);
     }
     Ok(k_a_per_k * t_k)
-}
-
-/// Inverse of [`ptat_current_a`]: absolute temperature in K for `i_a` A.
-pub fn ptat_temperature_k(k_a_per_k: f64, i_a: f64) -> Result<f64, SemiconductorError> {
-    finite(&[k_a_per_k, i_a])?;
-    if k_a_per_k == 0.0 {
-        return Err(SemiconductorError::ZeroSensitivity);
-    }
-    let t = i_a / k_a_per_k;
-    if t <= 0.0 {
-        return Err(SemiconductorError::NonPositiveTemperature);
-    }
-    Ok(t)
-}
-
-/// PTAT current in A at `t_c` °C.
-pub fn ptat_current_at_celsius_a(k_a_per_k: f64, t_c: f64) -> Result<f64, SemiconductorError> {
-    ptat_current_a(k_a_per_k, t_c + ZERO_CELSIUS)
-}
-
-/// Inverse of [`ptat_current_at_celsius_a`]: temperature in °C for `i_a` A.
-pub fn ptat_temperature_c(k_a_per_k: f64, i_a: f64) -> Result<f64, SemiconductorError> {
-    Ok(ptat_temperature_k(k_a_per_k, i_a)? - ZERO_CELSIUS)
 }
 
 #[cfg(test)]
@@ -108,38 +54,23 @@ mod tests {
     fn linear_voltage_worked_example() {
         assert!((linear_voltage_v(0.75, 0.01, 25.0, 0.0) - 0.5).abs() < 1e-15);
         assert!((linear_voltage_v(0.75, 0.01, 25.0, 125.0) - 1.75).abs() < 1e-15);
-        let t = linear_voltage_temperature_c(0.75, 0.01, 25.0, 0.5).unwrap();
-        assert!(t.abs() < 1e-12);
-        assert_eq!(
-            linear_voltage_temperature_c(0.75, 0.0, 25.0, 0.5),
-            Err(SemiconductorError::ZeroSensitivity)
-        );
-        assert_eq!(
-            linear_voltage_temperature_c(0.75, 0.01, 25.0, f64::NAN),
-            Err(SemiconductorError::NonFinite)
-        );
     }
 
     /// Worked by hand: 1 µA/K at 25 °C = 298.15 K gives 298.15 µA; at
     /// −55 °C = 218.15 K, 218.15 µA.
     #[test]
     fn ptat_worked_example() {
-        let i = ptat_current_at_celsius_a(1e-6, 25.0).unwrap();
+        let i = ptat_current_a(1e-6, 298.15).unwrap();
         assert!((i - 298.15e-6).abs() < 1e-18);
-        let i = ptat_current_at_celsius_a(1e-6, -55.0).unwrap();
+        let i = ptat_current_a(1e-6, 218.15).unwrap();
         assert!((i - 218.15e-6).abs() < 1e-18);
-        assert!((ptat_temperature_c(1e-6, 298.15e-6).unwrap() - 25.0).abs() < 1e-9);
         assert_eq!(
             ptat_current_a(1e-6, 0.0),
             Err(SemiconductorError::NonPositiveTemperature)
         );
         assert_eq!(
-            ptat_temperature_k(1e-6, -1e-6),
-            Err(SemiconductorError::NonPositiveTemperature)
-        );
-        assert_eq!(
-            ptat_temperature_k(0.0, 1e-6),
-            Err(SemiconductorError::ZeroSensitivity)
+            ptat_current_a(f64::NAN, 300.0),
+            Err(SemiconductorError::NonFinite)
         );
     }
 }

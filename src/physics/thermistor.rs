@@ -1,7 +1,6 @@
 //! NTC thermistors: the Beta model and the Steinhart–Hart equation.
 //!
-//! * Beta model: R = R_ref exp(β (1/T − 1/T_ref)), T in K; β(T1/T2) is
-//!   defined by the resistances at two rating temperatures.
+//! * Beta model: R = R_ref exp(β (1/T − 1/T_ref)), T in K.
 //! * Steinhart–Hart: 1/T = A + B ln R + C (ln R)³, R in Ω, T in K
 //!   (J. S. Steinhart and S. R. Hart, "Calibration curves for thermistors",
 //!   Deep-Sea Research 15, 497–503, 1968).
@@ -10,43 +9,31 @@
 //! three-point fit of a single Beta curve returns C = 0 exactly; a real
 //! curve (e.g. one rated with different β(25/50) and β(25/85)) gives C > 0.
 
-use std::fmt;
-
 /// Why a thermistor computation has no answer.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum ThermistorError {
     /// An input was NaN or infinite.
+    #[error("input is not a finite number")]
     NonFinite,
     /// A resistance was zero or negative.
+    #[error("resistance must be positive")]
     NonPositiveResistance,
     /// An absolute temperature was zero or negative (or would result).
+    #[error("absolute temperature must be positive")]
     NonPositiveTemperature,
-    /// β is zero, B ≤ 0, or a dissipation constant is not positive.
+    /// β is zero or B ≤ 0.
+    #[error("invalid model parameter")]
     InvalidParameter,
     /// The three fit points do not determine the coefficients.
+    #[error("fit points do not determine the coefficients")]
     Singular,
     /// The coefficients give no single resistance on the rising branch.
+    #[error("no unique resistance for this temperature")]
     NoUniqueSolution,
     /// The result overflows f64.
+    #[error("result overflows")]
     Overflow,
 }
-
-impl fmt::Display for ThermistorError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let text = match self {
-            ThermistorError::NonFinite => "input is not a finite number",
-            ThermistorError::NonPositiveResistance => "resistance must be positive",
-            ThermistorError::NonPositiveTemperature => "absolute temperature must be positive",
-            ThermistorError::InvalidParameter => "invalid model parameter",
-            ThermistorError::Singular => "fit points do not determine the coefficients",
-            ThermistorError::NoUniqueSolution => "no unique resistance for this temperature",
-            ThermistorError::Overflow => "result overflows",
-        };
-        f.write_str(text)
-    }
-}
-
-impl std::error::Error for ThermistorError {}
 
 type Res<T> = Result<T, ThermistorError>;
 
@@ -105,27 +92,6 @@ pub fn beta_temperature_k(r_ref: f64, t_ref_k: f64, beta_k: f64, r: f64) -> Res<
         return Err(ThermistorError::NonPositiveTemperature);
     }
     finite_out(1.0 / inv_t)
-}
-
-/// β in K from resistances `r1`, `r2` Ω at `t1_k`, `t2_k` K (β(T1/T2) rating).
-pub fn beta_from_two_points(t1_k: f64, r1: f64, t2_k: f64, r2: f64) -> Res<f64> {
-    finite(&[t1_k, r1, t2_k, r2])?;
-    positive_r(r1)?;
-    positive_r(r2)?;
-    positive_t(t1_k)?;
-    positive_t(t2_k)?;
-    let d = 1.0 / t1_k - 1.0 / t2_k;
-    if d == 0.0 {
-        return Err(ThermistorError::Singular);
-    }
-    Ok((r1 / r2).ln() / d)
-}
-
-/// Temperature coefficient (1/R)(dR/dT) = −β/T² in 1/K of the Beta model.
-pub fn beta_alpha_per_k(beta_k: f64, t_k: f64) -> Res<f64> {
-    finite(&[beta_k, t_k])?;
-    positive_t(t_k)?;
-    Ok(-beta_k / (t_k * t_k))
 }
 
 /// Steinhart–Hart coefficients: A in 1/K, B in 1/K per ln Ω, C in 1/K per (ln Ω)³.
@@ -244,15 +210,6 @@ pub fn steinhart_hart_fit(points: [(f64, f64); 3]) -> Res<SteinhartHart> {
     })
 }
 
-/// Self-heating ΔT = P/δ in K, with P in W and δ (dissipation constant) in W/K.
-pub fn self_heating_k(power_w: f64, dissipation_w_per_k: f64) -> Res<f64> {
-    finite(&[power_w, dissipation_w_per_k])?;
-    if dissipation_w_per_k <= 0.0 || power_w < 0.0 {
-        return Err(ThermistorError::InvalidParameter);
-    }
-    Ok(power_w / dissipation_w_per_k)
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -272,19 +229,6 @@ mod tests {
         );
         let t = beta_temperature_k(10_000.0, T25, 3950.0, r).unwrap();
         assert!((t - 273.15).abs() < 1e-10);
-    }
-
-    #[test]
-    fn beta_rating_recovered() {
-        let r50 = beta_resistance(10_000.0, T25, 3380.0, 323.15).unwrap();
-        let beta = beta_from_two_points(T25, 10_000.0, 323.15, r50).unwrap();
-        assert!((beta - 3380.0).abs() < 1e-9);
-        let alpha = beta_alpha_per_k(3380.0, T25).unwrap();
-        assert!((alpha + 3380.0 / (T25 * T25)).abs() < 1e-18);
-        assert_eq!(
-            beta_from_two_points(T25, 1.0, T25, 2.0),
-            Err(ThermistorError::Singular)
-        );
     }
 
     /// Beta is S–H with C = 0: B = 1/β, A = 1/T25 − ln(R25)/β.
@@ -371,14 +315,5 @@ mod tests {
             steinhart_hart_fit([(0.0, 1e4), (1.0, 1.0), (2.0, 2.0)]),
             Err(NonPositiveTemperature)
         );
-        assert_eq!(self_heating_k(1e-3, 0.0), Err(InvalidParameter));
-    }
-
-    /// Worked by hand: 100 µA through 10 kΩ dissipates (1e-4)² × 1e4 = 100 µW;
-    /// δ = 1 mW/K gives 0.1 K.
-    #[test]
-    fn self_heating() {
-        let p = 1e-4 * 1e-4 * 1e4;
-        assert!((self_heating_k(p, 1e-3).unwrap() - 0.1).abs() < 1e-15);
     }
 }

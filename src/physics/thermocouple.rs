@@ -27,6 +27,8 @@
 
 use std::fmt;
 
+use super::solve::{newton_bracketed, try_bisect, Root, Stop};
+
 use super::thermocouple_coefficients::{
     ForwardRange, InverseRange, TypeCoefficients, TYPE_B, TYPE_E, TYPE_J, TYPE_K, TYPE_N, TYPE_R,
     TYPE_S, TYPE_T,
@@ -119,7 +121,8 @@ impl fmt::Display for ThermocoupleType {
 
 /// A temperature (degC) or EMF (mV) outside the interval where a function is
 /// defined, or a non-finite input.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, thiserror::Error)]
+#[error("value {value} is outside the valid range {low} .. {high}")]
 pub struct OutOfRange {
     /// The rejected input.
     pub value: f64,
@@ -128,18 +131,6 @@ pub struct OutOfRange {
     /// Upper end of the valid interval, same unit as `value`.
     pub high: f64,
 }
-
-impl fmt::Display for OutOfRange {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(
-            f,
-            "value {} is outside the valid range {} .. {}",
-            self.value, self.low, self.high
-        )
-    }
-}
-
-impl std::error::Error for OutOfRange {}
 
 /// Horner evaluation of `c[0] + c[1] x + ...`. (Splitting it into even
 /// and odd halves would run faster, but near −270 °C the long type E and T
@@ -247,19 +238,8 @@ fn rising_branch_start_c(ty: ThermocoupleType) -> Result<f64, OutOfRange> {
         return Ok(low);
     }
     let first_top = ty.coefficients().forward.first().map_or(low, |r| r.t_max_c);
-    let (mut a, mut b) = (low, first_top);
-    for _ in 0..200 {
-        let m = 0.5 * (a + b);
-        if m <= a || m >= b {
-            break;
-        }
-        if seebeck_mv_per_c(ty, m)? > 0.0 {
-            b = m;
-        } else {
-            a = m;
-        }
-    }
-    Ok(b)
+    let (_, rising) = try_bisect(low, first_top, |t| Ok(seebeck_mv_per_c(ty, t)? <= 0.0))?;
+    Ok(rising)
 }
 
 /// Temperatures (degC) over which `temperature_c(emf_mv(t)) == t`: the whole
@@ -347,8 +327,8 @@ pub fn temperature_c(ty: ThermocoupleType, emf_mv: f64) -> Result<f64, OutOfRang
         return Err(err);
     }
     let (_, high) = ty.range_c();
-    let mut a = rising_branch_start_c(ty)?;
-    let mut b = high;
+    let a = rising_branch_start_c(ty)?;
+    let b = high;
     let e_a = self::emf_mv(ty, a)?;
     if emf_mv == e_a {
         return Ok(a);
@@ -356,41 +336,24 @@ pub fn temperature_c(ty: ThermocoupleType, emf_mv: f64) -> Result<f64, OutOfRang
     if emf_mv == e_hi {
         return Ok(b);
     }
-    let mut t = match inverse_polynomial_c(ty, emf_mv) {
+    let t = match inverse_polynomial_c(ty, emf_mv) {
         Some(t) if t > a && t < b => t,
         _ => a + (emf_mv - e_a) * (b - a) / (e_hi - e_a),
     };
-    let mut prev_step = f64::INFINITY;
-    for _ in 0..MAX_ITER {
-        let (e, s) = eval(ty, t)?;
-        let f = e - emf_mv;
-        if f == 0.0 {
-            return Ok(t);
-        }
-        if f < 0.0 {
-            a = t;
-        } else {
-            b = t;
-        }
-        let newton = t - f / s;
-        let next = if s > 0.0 && newton >= a && newton <= b {
-            newton
-        } else {
-            0.5 * (a + b)
-        };
-        let step = (next - t).abs();
-        // Near -270 degC the long polynomials of types E and T lose digits
-        // to cancellation (terms up to 3e5 mV summing to -6 mV), so E(t) is
-        // noisy at ~1e-10 mV; once the residual is small and steps stop
-        // shrinking, further steps only chase that noise.
-        let stalled = f.abs() < RESID_TOL_MV && step >= 0.5 * prev_step;
-        if step <= STEP_TOL_C || stalled {
-            return snap_to_join(ty, next, emf_mv);
-        }
-        prev_step = step;
-        t = next;
+    // Near -270 degC the long polynomials of types E and T lose digits
+    // to cancellation (terms up to 3e5 mV summing to -6 mV), so E(t) is
+    // noisy at ~1e-10 mV; once the residual is small and steps stop
+    // shrinking, further steps only chase that noise.
+    let stop = Stop {
+        step: STEP_TOL_C,
+        stalled_residual: RESID_TOL_MV,
+        max_iter: MAX_ITER,
+    };
+    let residual = |t| eval(ty, t).map(|(e, s)| (e - emf_mv, s));
+    match newton_bracketed(residual, (a, b), t, stop)? {
+        Root::Exact(t) => Ok(t),
+        Root::Converged(t) | Root::Exhausted(t) => snap_to_join(ty, t, emf_mv),
     }
-    snap_to_join(ty, t, emf_mv)
 }
 
 /// A Newton step this small leaves an error of about |E''/2E'| times its

@@ -9,7 +9,7 @@ use serde::Serialize;
 
 use super::super::report::Analysis;
 use crate::eval::{Env, Plan};
-use crate::model::Chain;
+use crate::model::{Chain, RequirementKind};
 use crate::units::format::from_si;
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -111,11 +111,7 @@ const FLOOR_SHARE: f64 = 1e-12;
 
 pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
     let (unit, f) = chain.difference_unit();
-    let m_unit = chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.clone())
-        .unwrap_or_default();
+    let m_unit = chain.measurand_unit();
     Outcome {
         chain: chain.name.clone(),
         requirements: a
@@ -161,24 +157,24 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
 
 fn requirement(v: &super::super::requirements::Verdict, unit: &str, f: f64) -> RequirementOutcome {
     let db = |x: f64| 20.0 * x.log10();
-    let (limit, achieved, margin, unit) = match v.name {
-        "accuracy" | "resolution" => (
+    let (limit, achieved, margin, unit) = match v.kind {
+        RequirementKind::Accuracy(_) | RequirementKind::Resolution => (
             v.limit * f,
             v.achieved * f,
             (v.limit - v.achieved) * f,
             unit.to_string(),
         ),
-        "rejection" => (
+        RequirementKind::Rejection => (
             db(v.limit),
             db(v.achieved),
             db(v.achieved) - db(v.limit),
             "dB".to_string(),
         ),
-        _ => (v.limit, v.achieved, v.limit - v.achieved, "s".to_string()),
+        RequirementKind::Response => (v.limit, v.achieved, v.limit - v.achieved, "s".to_string()),
     };
     RequirementOutcome {
-        name: v.name,
-        method: v.method.clone(),
+        name: v.kind.word(),
+        method: v.method.word(),
         limit,
         achieved,
         margin,

@@ -7,7 +7,7 @@ use serde::Serialize;
 
 use crate::diagnostics::{SourceFile, Span};
 use crate::model::value::{Measure, ParamValue, Tolerance};
-use crate::model::{Chain, Connection, Stage};
+use crate::model::{Chain, Connection, RequirementKind, Stage};
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "snake_case")]
@@ -152,14 +152,14 @@ fn settings(old: &Chain, new: &Chain, out: &mut Vec<SpecChange>) {
             Some(text(new)),
         ));
     }
-    for kind in ["accuracy", "resolution", "response", "rejection"] {
-        fn find<'c>(c: &'c Chain, kind: &str) -> Option<&'c crate::model::Requirement> {
-            c.requirements.iter().find(|r| r.kind == kind)
+    for kind in RequirementKind::ALL {
+        fn find(c: &Chain, kind: RequirementKind) -> Option<&crate::model::Requirement> {
+            c.requirements.iter().find(|r| r.kind.same_kind(kind))
         }
-        let key = |c: &Chain| find(c, kind).map(|r| (bare(&r.value), r.method.clone()));
+        let key = |c: &Chain| find(c, kind).map(|r| (bare(&r.value), r.kind));
         if key(old) != key(new) {
             let at = |c: &Chain| find(c, kind).map(|r| locate(&c.file, &c.file, r.span));
-            out.push(change("requirement", kind.into(), at(old), at(new)));
+            out.push(change("requirement", kind.word().into(), at(old), at(new)));
         }
     }
     for side in ["high", "low"] {

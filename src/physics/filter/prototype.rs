@@ -255,17 +255,7 @@ pub(crate) fn bessel(n: u32) -> Option<Vec<Cx>> {
             return None;
         }
     }
-    for _ in 0..200 {
-        let mid = 0.5 * (lo + hi);
-        if mid <= lo || mid >= hi {
-            break;
-        }
-        if g(mid) > 0.0 {
-            lo = mid;
-        } else {
-            hi = mid;
-        }
-    }
+    let (lo, hi) = crate::physics::solve::bisect(lo, hi, |x| g(x) > 0.0);
     let w3 = 0.5 * (lo + hi);
     Some(delay_norm.into_iter().map(|p| p.scale(1.0 / w3)).collect())
 }

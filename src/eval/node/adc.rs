@@ -1,0 +1,204 @@
+//! A converter: its reference (stated or wired), front-end gain, offset,
+//! gain error and INL, and the code it gives.
+
+use super::{Cx, Run};
+use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
+use crate::model::typed::{self, AdcInput};
+use crate::model::value::Tolerance;
+use crate::physics::adc::{self, Polarity};
+use crate::units::Dim;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Adc {
+    pub bits: u32,
+    pub polarity: Polarity,
+    /// Its lowest and highest code, and codes per volt of V_ref/G
+    /// (`physics::adc`), worked out once.
+    pub codes: (f64, f64),
+    pub per_ref: f64,
+    pub differential: bool,
+    pub pga: Option<SlotId>,
+    pub vref: Option<SlotId>,
+    pub vref_drift: Option<DriftSlot>,
+    pub reference: Option<NodeId>,
+    pub offset: Option<AdcOffset>,
+    /// A fraction of the gain, nominal 0.
+    pub gain_error: Option<SlotId>,
+    /// Integral nonlinearity, a fraction of full scale, nominal 0.
+    pub inl: Option<SlotId>,
+    pub input: NodeId,
+}
+
+/// A converter's offset as it was stated: a voltage at its input, or a
+/// number of codes (`± 2 LSB`), which stays a number of codes whatever the
+/// reference does.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum AdcOffset {
+    /// Volts, added to the input.
+    Input(SlotId),
+    /// Codes, added to the conversion result.
+    Codes(SlotId),
+}
+
+pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
+    // Gain error and INL as fractions of the full-scale span.
+    let fraction = |cx: &mut Cx<'_>, name: &str, kind, t: &Option<Tolerance>| {
+        t.as_ref()
+            .map(|t| cx.limit(name, kind, &fraction_of_span(t, m.bits)))
+    };
+    let (vref, vref_drift) = match &m.vref {
+        Some(v) => (
+            Some(cx.measure("vref", SourceKind::Tolerance, v)),
+            v.drift
+                .as_ref()
+                .map(|d| cx.drift("vref_drift", d.per_kelvin, d.relative)),
+        ),
+        None => (None, None),
+    };
+    // Slots in the order the parameters are listed (it seeds Monte Carlo).
+    let pga = m
+        .pga
+        .as_ref()
+        .map(|g| cx.measure("pga", SourceKind::Tolerance, g));
+    let offset = m.offset.as_ref().map(|t| {
+        let slot = cx.limit("offset", SourceKind::Bound, t);
+        if t.dim == Dim::CODE {
+            AdcOffset::Codes(slot)
+        } else {
+            AdcOffset::Input(slot)
+        }
+    });
+    let (lo, hi) =
+        adc::code_range(m.bits, m.polarity).map_err(|e| cx.not_invertible(&e.to_string()))?;
+    Ok(Adc {
+        bits: m.bits,
+        polarity: m.polarity,
+        codes: (lo as f64, hi as f64),
+        // 2^N unipolar, 2^(N−1) bipolar: one past the highest code.
+        per_ref: (hi + 1) as f64,
+        differential: m.input == AdcInput::Differential,
+        pga,
+        vref,
+        vref_drift,
+        reference: cx.inputs.reference,
+        offset,
+        gain_error: fraction(cx, "gain_error", SourceKind::Gain, &m.gain_error),
+        inl: fraction(cx, "inl", SourceKind::Inl, &m.inl),
+        input: cx
+            .inputs
+            .input
+            .ok_or_else(|| cx.not_invertible("no input"))?,
+    })
+}
+
+/// A converter's gain error or INL as a fraction of its full-scale span.
+/// Written in `LSB`, one code is 1/2^bits of the whole span (of both
+/// halves for a bipolar input): the converter's own definition of an LSB.
+fn fraction_of_span(t: &Tolerance, bits: u32) -> Tolerance {
+    if t.dim != Dim::CODE {
+        return t.clone();
+    }
+    let codes = 2f64.powi(bits as i32);
+    Tolerance {
+        plus: t.plus / codes,
+        minus: t.minus / codes,
+        dim: Dim::NONE,
+        ..t.clone()
+    }
+}
+
+impl Adc {
+    #[inline(always)]
+    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        let values = run.values;
+        let Signal::Voltage { v, .. } = run.s[self.input] else {
+            return Err(run.numeric("no input voltage"));
+        };
+        let vr = self.reference_voltage(run.plan, values, run.env, run.s);
+        if vr <= 0.0 || !vr.is_finite() {
+            return Err(run.numeric("the reference voltage is zero or negative"));
+        }
+        let gain = self.pga.map(|g| values[g]).unwrap_or(1.0)
+            * (1.0 + self.gain_error.map(|g| values[g]).unwrap_or(0.0));
+        let (off, off_codes) = match self.offset {
+            Some(AdcOffset::Input(o)) => (values[o], 0.0),
+            Some(AdcOffset::Codes(o)) => (0.0, values[o]),
+            None => (0.0, 0.0),
+        };
+        let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
+        // INL is a fraction of the full-scale code span.
+        let full_scale = match self.polarity {
+            Polarity::Unipolar => per_ref,
+            Polarity::Bipolar => 2.0 * per_ref,
+        };
+        let exact = (v + off) * gain / vr * per_ref
+            + off_codes
+            + self.inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
+        Ok(Signal::Code {
+            exact,
+            code: round_code(exact, lo, hi),
+        })
+    }
+
+    /// The reference it works against: its `ref` input, else its `vref`
+    /// with drift.
+    #[inline(always)]
+    fn reference_voltage(&self, plan: &Plan, values: &[f64], env: &Env, s: &[Signal]) -> f64 {
+        match self.reference.map(|n| s[n]) {
+            Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
+            _ => plan.drifted(
+                self.vref.map(|r| values[r]).unwrap_or(0.0),
+                self.vref_drift,
+                values,
+                env,
+            ),
+        }
+    }
+}
+
+impl Plan {
+    /// The reference voltage converter `node` works against in one raw
+    /// evaluation (`signals` from [`Plan::raw_signals`]); None for another
+    /// kind of node.
+    pub fn converter_reference(
+        &self,
+        node: NodeId,
+        values: &[f64],
+        env: &Env,
+        signals: &[Signal],
+    ) -> Option<f64> {
+        let super::Node::Adc(adc) = &self.nodes[node] else {
+            return None;
+        };
+        Some(adc.reference_voltage(self, values, env, signals))
+    }
+}
+
+/// The nearest code (halves away from zero) within `lo ..= hi`, both
+/// whole: `f64::round` is a library call on baseline x86-64, and every
+/// evaluation rounds.
+fn round_code(exact: f64, lo: f64, hi: f64) -> i64 {
+    let x = exact.clamp(lo, hi);
+    let whole = x as i64;
+    let fraction = x - whole as f64;
+    whole + i64::from(fraction >= 0.5) - i64::from(fraction <= -0.5)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::round_code;
+
+    #[test]
+    fn codes_round_as_f64_round_then_clamp() {
+        let halves = (-40..=40).map(|k| k as f64 * 0.5);
+        let near = [
+            0.49999999999999994,
+            -0.49999999999999994,
+            2.5000000000000004,
+        ];
+        for x in halves.chain(near).chain([f64::MAX, f64::MIN, 1e300]) {
+            let want = x.round().clamp(-8.0, 7.0) as i64;
+            assert_eq!(round_code(x, -8.0, 7.0), want, "{x}");
+        }
+    }
+}

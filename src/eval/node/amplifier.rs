@@ -1,0 +1,168 @@
+//! An amplifier: output = gain × (input + its errors) + reference, then its
+//! swing; outside its common-mode range it rails.
+
+use super::{Cx, Run};
+use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
+use crate::model::typed;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Amplifier {
+    pub gain: SlotId,
+    pub offset: Option<SlotId>,
+    /// Common-mode error per volt of common mode (1/CMRR), nominal 0.
+    pub cmrr: Option<SlotId>,
+    /// Input bias current, nominal 0: times the source resistance.
+    pub bias: Option<SlotId>,
+    /// Per kelvin: offset in volts, gain relative.
+    pub offset_drift: Option<SlotId>,
+    pub gain_drift: Option<SlotId>,
+    pub input: NodeId,
+    /// What the output is referred to: output = gain × input + reference.
+    pub reference: Option<AmpReference>,
+    /// Common-mode input range and output swing, V.
+    pub input_range: Option<(f64, f64)>,
+    pub output: Option<(f64, f64)>,
+}
+
+/// An amplifier's reference (its REF pin, or an output level shift).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum AmpReference {
+    /// A stated voltage: its slot (nominal the value, with its tolerance)
+    /// and drift.
+    Stated {
+        value: SlotId,
+        drift: Option<DriftSlot>,
+    },
+    /// The voltage another stage gives its `ref` input.
+    Stage(NodeId),
+}
+
+pub(super) fn lower(m: &typed::Amplifier, cx: &mut Cx<'_>) -> Result<Amplifier, EvalError> {
+    let gain = cx.measure("gain", SourceKind::Tolerance, &m.gain);
+    let offset = m
+        .offset
+        .as_ref()
+        .map(|t| cx.limit("offset", SourceKind::Bound, t));
+    let bias = m
+        .bias
+        .as_ref()
+        .map(|t| cx.limit("bias", SourceKind::Bias, t));
+    // CMRR is a ratio whose sign is unknown: nominal zero error, ±1/CMRR
+    // per volt of common mode.
+    let cmrr = m.cmrr.map(|ratio| {
+        let e = 1.0 / ratio;
+        cx.add("cmrr", SourceKind::CommonMode, 0.0, e, e, false)
+    });
+    let input = cx
+        .inputs
+        .input
+        .ok_or_else(|| cx.not_invertible("no input"))?;
+    let reference = match (cx.inputs.reference, &m.reference) {
+        (Some(node), _) => Some(AmpReference::Stage(node)),
+        (None, Some(r)) => Some(AmpReference::Stated {
+            value: cx.measure("reference", SourceKind::Tolerance, r),
+            drift: cx.drift_of("reference", r),
+        }),
+        (None, None) => None,
+    };
+    let offset_drift = m
+        .offset_drift
+        .as_ref()
+        .map(|t| cx.limit("offset_drift", SourceKind::Drift, t));
+    let gain_drift = m
+        .gain_drift
+        .as_ref()
+        .map(|t| cx.limit("gain_drift", SourceKind::Drift, t));
+    Ok(Amplifier {
+        gain,
+        offset,
+        cmrr,
+        bias,
+        offset_drift,
+        gain_drift,
+        input,
+        reference,
+        input_range: m.input,
+        output: m.output,
+    })
+}
+
+impl Amplifier {
+    #[inline(always)]
+    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        let Signal::Voltage { v, cm, rs } = run.s[self.input] else {
+            return Err(run.numeric("no input voltage"));
+        };
+        let shift = shift_of(run.plan, self.reference, run.values, run.env, run.s)
+            .ok_or_else(|| run.numeric("no reference voltage"))?;
+        let slot = |o: Option<SlotId>| run.or_zero(o);
+        // Vout = G (Vdiff + Vos + Ib·Rs + Vcm/CMRR), then the swing.
+        let dt = run.env.ambient - run.plan.reference;
+        let error = slot(self.offset)
+            + slot(self.offset_drift) * dt
+            + slot(self.bias) * rs
+            + slot(self.cmrr) * cm;
+        // Output = gain × input + reference.
+        let gain = run.values[self.gain] * (1.0 + slot(self.gain_drift) * dt);
+        let mut out = gain * (v + error) + shift;
+        let (lo, hi) = self.output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
+        // Outside its common-mode range an amplifier no longer amplifies:
+        // its output goes to a rail.
+        if let (true, Some((cm_lo, cm_hi))) = (run.mode.clip, self.input_range) {
+            if cm < cm_lo {
+                out = if lo.is_finite() { lo } else { 0.0 };
+            } else if cm > cm_hi {
+                out = if hi.is_finite() { hi } else { 0.0 };
+            }
+        }
+        let out = if run.mode.clip {
+            out.clamp(lo, hi)
+        } else {
+            out
+        };
+        Ok(Signal::Voltage {
+            v: out,
+            cm: out / 2.0,
+            rs: 0.0,
+        })
+    }
+}
+
+/// The voltage an amplifier's output is referred to (0 V without a
+/// reference); None where its reference stage gives no voltage.
+#[inline(always)]
+fn shift_of(
+    plan: &Plan,
+    reference: Option<AmpReference>,
+    values: &[f64],
+    env: &Env,
+    s: &[Signal],
+) -> Option<f64> {
+    match reference {
+        Some(AmpReference::Stated { value, drift }) => {
+            Some(plan.drifted(values[value], drift, values, env))
+        }
+        Some(AmpReference::Stage(n)) => match s[n] {
+            Signal::Voltage { v, .. } | Signal::Source(v) => Some(v),
+            _ => None,
+        },
+        None => Some(0.0),
+    }
+}
+
+impl Plan {
+    /// The reference amplifier `node` refers its output to in one raw
+    /// evaluation; None for another kind of node.
+    pub fn amplifier_reference(
+        &self,
+        node: NodeId,
+        values: &[f64],
+        env: &Env,
+        signals: &[Signal],
+    ) -> Option<f64> {
+        let super::Node::Amplifier(a) = &self.nodes[node] else {
+            return None;
+        };
+        shift_of(self, a.reference, values, env, signals)
+    }
+}

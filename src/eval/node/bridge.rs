@@ -1,0 +1,167 @@
+//! A divider or a Wheatstone bridge (quarter, half, full): its completion
+//! resistors, each its own part, and the output, common mode and source
+//! resistance of the solved circuit (`physics::strain`), with the
+//! self-heating of the elements in its arms (`eval/element.rs`).
+
+use super::{Cx, Run};
+use crate::eval::element::Supply;
+use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::typed::{self, BridgeForm, DividerSide};
+use crate::physics::strain;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Bridge {
+    pub kind: BridgeKind,
+    /// The completion resistor (the first, where there are several).
+    pub r: Option<SlotId>,
+    pub drift: Option<DriftSlot>,
+    /// The other completion resistors, each its own tolerance and
+    /// drift: a quarter bridge's r3 and r4, a half bridge's r4.
+    pub others: Vec<(SlotId, Option<DriftSlot>)>,
+    pub exc: NodeId,
+    pub arms: Vec<NodeId>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum BridgeKind {
+    Divider { sensor_high: bool },
+    Quarter,
+    Half,
+    Full,
+}
+
+pub(super) fn lower(m: &typed::Bridge, cx: &mut Cx<'_>) -> Result<Bridge, EvalError> {
+    let kind = match m.form {
+        BridgeForm::Divider(side) => BridgeKind::Divider {
+            sensor_high: side == DividerSide::High,
+        },
+        BridgeForm::Quarter => BridgeKind::Quarter,
+        BridgeForm::Half => BridgeKind::Half,
+        BridgeForm::Full => BridgeKind::Full,
+    };
+    // Each completion resistor is its own part, with its own tolerance
+    // and drift.
+    let parts = m.form.completion_resistors();
+    let mut completion = Vec::new();
+    if let Some(r) = &m.r {
+        for k in 1..=parts {
+            let name = if parts == 1 {
+                "r".to_string()
+            } else {
+                format!("r_{k}")
+            };
+            let value = cx.measure(&name, SourceKind::Tolerance, r);
+            completion.push((value, cx.drift_of(&name, r)));
+        }
+    }
+    let (r, drift) = match completion.first() {
+        Some(&(r, drift)) => (Some(r), drift),
+        None => (None, None),
+    };
+    let others = completion.get(1..).unwrap_or_default().to_vec();
+    let exc = cx
+        .inputs
+        .exc
+        .ok_or_else(|| cx.not_invertible("no excitation"))?;
+    Ok(Bridge {
+        kind,
+        r,
+        drift,
+        others,
+        exc,
+        arms: cx.inputs.arms.clone(),
+    })
+}
+
+impl Bridge {
+    #[inline(always)]
+    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        let (values, s) = (run.values, run.s);
+        let fixed = self
+            .r
+            .map(|r| run.drifted(values[r], self.drift))
+            .unwrap_or(0.0);
+        // Each further completion resistor is its own part.
+        let other = |k: usize| {
+            self.others
+                .get(k)
+                .map(|&(r, drift)| run.drifted(values[r], drift))
+                .unwrap_or(fixed)
+        };
+        let arm = |k: usize| match self.arms.get(k).map(|&n| s[n]) {
+            Some(Signal::Element(r)) => Ok(r),
+            _ => Err(run.numeric("a bridge arm has no element")),
+        };
+        // Arms by position, as drawn in `physics::strain`: r1 r2 on the
+        // positive side, r3 r4 on the negative; active elements in edge
+        // order go to r2, r3, r1, r4.
+        let (r1, r2, r3, r4) = match self.kind {
+            BridgeKind::Divider { sensor_high } => {
+                return self.divider(run, sensor_high, fixed, arm(0)?)
+            }
+            BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
+            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
+            BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
+        };
+        let at = |k: usize| self.arms.get(k).copied();
+        let placed = match self.kind {
+            BridgeKind::Quarter => [None, at(0), None, None],
+            BridgeKind::Half => [None, at(0), at(1), None],
+            BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
+        };
+        let exc = s[self.exc];
+        let [r1, r2, r3, r4] =
+            run.plan
+                .heated_bridge_arms([r1, r2, r3, r4], placed, exc, values, run.env)?;
+        let v_exc = match exc {
+            Signal::Source(v) => v,
+            Signal::Current(a) => strain::bridge_excitation_v(a, r1, r2, r3, r4),
+            _ => return Err(run.numeric("no excitation")),
+        };
+        let bad = |_| run.numeric("the bridge has no output (an arm of zero resistance)");
+        let v = strain::bridge_output(v_exc, r1, r2, r3, r4).map_err(bad)?;
+        let cm = strain::bridge_common_mode(v_exc, r1, r2, r3, r4).map_err(bad)?;
+        let rs = strain::bridge_output_resistance(r1, r2, r3, r4).map_err(bad)?;
+        Ok(Signal::Voltage { v, cm, rs })
+    }
+
+    /// A divider: the element below or above the fixed resistor.
+    #[inline(always)]
+    fn divider(
+        &self,
+        run: &Run<'_>,
+        sensor_high: bool,
+        fixed: f64,
+        arm: f64,
+    ) -> Result<Signal, EvalError> {
+        let exc = run.s[self.exc];
+        // A current source's current flows through the lower resistor.
+        let supply = match exc {
+            Signal::Source(v) => Supply::Voltage { v, other: fixed },
+            Signal::Current(a) if !sensor_high => Supply::Current(a),
+            _ => Supply::None,
+        };
+        let element = match self.arms.first() {
+            Some(&n) => run
+                .plan
+                .heated_divider_element(n, arm, supply, run.values, run.env)?,
+            None => arm,
+        };
+        let (low, high) = if sensor_high {
+            (fixed, element)
+        } else {
+            (element, fixed)
+        };
+        let bad = |_| run.numeric("the bridge has no output (an arm of zero resistance)");
+        let v = match exc {
+            Signal::Source(v) => strain::divider_output(v, low, high).map_err(bad)?,
+            Signal::Current(a) => a * low,
+            _ => return Err(run.numeric("no excitation")),
+        };
+        Ok(Signal::Voltage {
+            v,
+            cm: v / 2.0,
+            rs: strain::divider_output_resistance(low, high),
+        })
+    }
+}

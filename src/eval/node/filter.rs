@@ -1,0 +1,45 @@
+//! A low-pass filter: it passes DC; a passive RC adds its series
+//! resistance to the source resistance. Its response is the dynamics'.
+
+use super::{Cx, Run};
+use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::typed;
+use crate::physics::filter::Response;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Filter {
+    pub input: NodeId,
+    pub series: Option<SlotId>,
+}
+
+pub(super) fn lower(m: &typed::Filter, cx: &mut Cx<'_>) -> Result<Filter, EvalError> {
+    let series = match m.response {
+        Response::Rc => {
+            m.r.as_ref()
+                .map(|r| cx.measure("r", SourceKind::Tolerance, r))
+        }
+        // An active filter's input is its buffer's.
+        Response::Butterworth | Response::Bessel => None,
+    };
+    Ok(Filter {
+        input: cx
+            .inputs
+            .input
+            .ok_or_else(|| cx.not_invertible("no input"))?,
+        series,
+    })
+}
+
+impl Filter {
+    #[inline(always)]
+    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        Ok(match run.s[self.input] {
+            Signal::Voltage { v, cm, rs } => Signal::Voltage {
+                v,
+                cm,
+                rs: rs + run.or_zero(self.series),
+            },
+            other => other,
+        })
+    }
+}

@@ -1,0 +1,317 @@
+//! One file per node kind: each holds the kind's node (what the plan keeps
+//! of it), its lowering from the typed model ([`Cx`] gives it slots and
+//! its wired inputs) and its evaluation in one run ([`Run`]). The plan
+//! calls them through [`lower`] and [`Plan::node`], two exhaustive matches.
+
+mod adc;
+mod amplifier;
+mod bridge;
+mod convert;
+mod excitation;
+mod filter;
+mod ic_current;
+mod ic_voltage;
+mod resistor;
+mod rtd;
+mod strain_gauge;
+mod thermistor;
+mod thermocouple;
+mod transducer;
+
+pub use adc::{Adc, AdcOffset};
+pub use amplifier::{AmpReference, Amplifier};
+pub use bridge::{Bridge, BridgeKind};
+pub use convert::Convert;
+pub use excitation::Excitation;
+pub use filter::Filter;
+pub use ic_current::IcCurrent;
+pub use ic_voltage::IcVoltage;
+pub use resistor::Resistor;
+pub use rtd::{Rtd, RtdCurve};
+pub use strain_gauge::StrainGauge;
+pub use thermistor::{Thermistor, ThermistorCurve};
+pub(super) use thermocouple::junction_c;
+pub use thermocouple::Thermocouple;
+pub use transducer::Transducer;
+
+use super::plan::{
+    DriftSlot, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId, SourceKind,
+};
+use super::run::{Mode, MAX_NODES};
+use crate::model::typed::StageModel;
+use crate::model::value::{Basis, Measure, Tolerance};
+use crate::model::Measurand;
+
+/// A stage in the plan.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Node {
+    Excitation(Excitation),
+    Rtd(Rtd),
+    Thermocouple(Thermocouple),
+    Thermistor(Thermistor),
+    IcVoltage(IcVoltage),
+    IcCurrent(IcCurrent),
+    StrainGauge(StrainGauge),
+    Transducer(Transducer),
+    Resistor(Resistor),
+    Bridge(Bridge),
+    Amplifier(Amplifier),
+    Filter(Filter),
+    Adc(Adc),
+    Convert(Convert),
+}
+
+/// The node of a stage's typed model.
+pub(super) fn lower(model: &StageModel, cx: &mut Cx<'_>) -> Result<Node, EvalError> {
+    Ok(match model {
+        StageModel::Excitation(m) => Node::Excitation(excitation::lower(m, cx)?),
+        StageModel::Rtd(m) => Node::Rtd(rtd::lower(m, cx)?),
+        StageModel::Thermocouple(m) => Node::Thermocouple(thermocouple::lower(m, cx)?),
+        StageModel::Thermistor(m) => Node::Thermistor(thermistor::lower(m, cx)?),
+        StageModel::IcVoltage(m) => Node::IcVoltage(ic_voltage::lower(m, cx)?),
+        StageModel::IcCurrent(m) => Node::IcCurrent(ic_current::lower(m, cx)?),
+        StageModel::StrainGauge(m) => Node::StrainGauge(strain_gauge::lower(m, cx)?),
+        StageModel::Transducer(m) => Node::Transducer(transducer::lower(m, cx)?),
+        StageModel::Resistor(m) => Node::Resistor(resistor::lower(m, cx)?),
+        StageModel::Bridge(m) => Node::Bridge(bridge::lower(m, cx)?),
+        StageModel::Amplifier(m) => Node::Amplifier(amplifier::lower(m, cx)?),
+        StageModel::Filter(m) => Node::Filter(filter::lower(m, cx)?),
+        StageModel::Adc(m) => Node::Adc(adc::lower(m, cx)?),
+        StageModel::Convert(m) => Node::Convert(convert::lower(m, cx)?),
+    })
+}
+
+impl Plan {
+    /// Node `i`'s signal in one run.
+    #[inline(always)]
+    pub(super) fn node(
+        &self,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+        mode: Mode,
+        junction_mv: Option<f64>,
+    ) -> Result<Signal, EvalError> {
+        let run = Run {
+            plan: self,
+            i,
+            values,
+            env,
+            s,
+            mode,
+            junction_mv,
+        };
+        match &self.nodes[i] {
+            Node::Excitation(n) => n.eval(&run),
+            Node::Rtd(n) => n.eval(&run),
+            Node::Thermocouple(n) => n.eval(&run),
+            Node::Thermistor(n) => n.eval(&run),
+            Node::IcVoltage(n) => n.eval(&run),
+            Node::IcCurrent(n) => n.eval(&run),
+            Node::StrainGauge(n) => n.eval(&run),
+            Node::Transducer(n) => n.eval(&run),
+            Node::Resistor(n) => n.eval(&run),
+            Node::Bridge(n) => n.eval(&run),
+            Node::Amplifier(n) => n.eval(&run),
+            Node::Filter(n) => n.eval(&run),
+            Node::Adc(n) => n.eval(&run),
+            Node::Convert(n) => n.eval(&run),
+        }
+    }
+}
+
+/// One node's view of a run: the plan, the values, the conditions and
+/// the signals of the nodes before it.
+pub(super) struct Run<'a> {
+    pub plan: &'a Plan,
+    pub i: NodeId,
+    pub values: &'a [f64],
+    pub env: &'a Env,
+    pub s: &'a [Signal; MAX_NODES],
+    pub mode: Mode,
+    /// A thermocouple's EMF at the cold junction, when the caller worked
+    /// it out once for many runs.
+    pub junction_mv: Option<f64>,
+}
+
+impl Run<'_> {
+    #[inline(always)]
+    fn or_zero(&self, slot: Option<SlotId>) -> f64 {
+        slot.map(|s| self.values[s]).unwrap_or(0.0)
+    }
+
+    #[inline(always)]
+    fn drifted(&self, value: f64, drift: Option<DriftSlot>) -> f64 {
+        self.plan.drifted(value, drift, self.values, self.env)
+    }
+
+    #[inline(always)]
+    fn sensed(&self, senses: Senses) -> f64 {
+        self.plan.sensed(self.i, senses, self.env, self.values)
+    }
+
+    fn numeric(&self, what: &str) -> EvalError {
+        self.plan.numeric(self.i, what)
+    }
+
+    /// The current a current source drives into `input`, if it is one.
+    #[inline(always)]
+    fn current_into(&self, input: Option<NodeId>) -> Option<f64> {
+        match input.map(|n| self.s[n]) {
+            Some(Signal::Current(a)) => Some(a),
+            _ => None,
+        }
+    }
+
+    /// A resistive element of `r` Ω: the voltage across it on a current
+    /// source (its common mode lifted by the elements below it in a
+    /// series string), else an element for a bridge arm.
+    #[inline(always)]
+    fn element(&self, r: f64, input: Option<NodeId>) -> Signal {
+        match self.current_into(input) {
+            Some(a) => {
+                let lift: f64 = self.plan.series_below[self.i]
+                    .iter()
+                    .map(|&n| match self.s[n] {
+                        Signal::Voltage { v, .. } => v,
+                        _ => 0.0,
+                    })
+                    .sum();
+                Signal::Voltage {
+                    v: a * r,
+                    cm: lift + a * r / 2.0,
+                    rs: r,
+                }
+            }
+            None => Signal::Element(r),
+        }
+    }
+}
+
+/// The nodes a stage's inputs come from, by port.
+#[derive(Clone, Debug, Default)]
+pub(super) struct Inputs {
+    pub input: Option<NodeId>,
+    pub exc: Option<NodeId>,
+    pub reference: Option<NodeId>,
+    pub cj: Option<NodeId>,
+    /// A bridge's arms, in edge order.
+    pub arms: Vec<NodeId>,
+}
+
+/// What lowering a stage needs: the slots so far, the chain's settings and
+/// the stage's name, wiring and role.
+pub(super) struct Cx<'a> {
+    pub slots: Vec<Slot>,
+    pub measurand: &'a Measurand,
+    /// The ambient range, K.
+    pub ambient: (f64, f64),
+    /// The SI zero of the measurand's unit as written, which a sensor's
+    /// `% of reading` is measured from.
+    pub zero: f64,
+    /// A stated cold-junction error, for the conversion that reads the
+    /// couple.
+    pub cj_error: Option<SlotId>,
+    pub name: &'a str,
+    pub inputs: Inputs,
+    pub senses: Senses,
+    /// A conversion that feeds another's `cj` input.
+    pub feeds_cj: bool,
+    /// The error of the temperature the stage senses.
+    pub sense_error: SenseError,
+}
+
+impl Cx<'_> {
+    fn id(&self, parameter: &str) -> String {
+        format!("{}.{parameter}", self.name)
+    }
+
+    pub(super) fn not_invertible(&self, what: &str) -> EvalError {
+        EvalError::NotInvertible {
+            stage: self.name.to_string(),
+            what: what.to_string(),
+        }
+    }
+
+    /// A slot of this stage; one with no limits is exact, not a source.
+    fn add(
+        &mut self,
+        parameter: &str,
+        kind: SourceKind,
+        nominal: f64,
+        minus: f64,
+        plus: f64,
+        normal: bool,
+    ) -> SlotId {
+        let kind = if minus == 0.0 && plus == 0.0 {
+            SourceKind::Exact
+        } else {
+            kind
+        };
+        self.slots.push(Slot {
+            id: self.id(parameter),
+            kind,
+            nominal,
+            minus,
+            plus,
+            normal,
+        });
+        self.slots.len() - 1
+    }
+
+    fn exact(&mut self, parameter: &str, nominal: f64) -> SlotId {
+        self.add(parameter, SourceKind::Exact, nominal, 0.0, 0.0, false)
+    }
+
+    /// A measure: its nominal and its tolerance as absolute limits. A
+    /// bound (`20 uV max`) has nominal zero.
+    fn measure(&mut self, parameter: &str, kind: SourceKind, m: &Measure) -> SlotId {
+        let nominal = if m.max { 0.0 } else { m.nominal };
+        let (minus, plus, normal) = match &m.tolerance {
+            Some(t) => limits(t, m.nominal),
+            None if m.max => (m.nominal.abs(), m.nominal.abs(), false),
+            None => (0.0, 0.0, false),
+        };
+        self.add(parameter, kind, nominal, minus, plus, normal)
+    }
+
+    /// A limit around a nominal of zero.
+    fn limit(&mut self, parameter: &str, kind: SourceKind, t: &Tolerance) -> SlotId {
+        self.add(parameter, kind, 0.0, t.minus, t.plus, t.normal)
+    }
+
+    /// A drift: the coefficient's sign is unknown, so nominal zero and the
+    /// stated value as a limit either way.
+    fn drift(&mut self, parameter: &str, per_kelvin: f64, relative: bool) -> DriftSlot {
+        let (minus, plus) = (per_kelvin.abs(), per_kelvin.abs());
+        let slot = self.add(parameter, SourceKind::Drift, 0.0, minus, plus, false);
+        DriftSlot { slot, relative }
+    }
+
+    /// The drift a measure states (`drift 50 ppm/K`), as `<parameter>_drift`.
+    fn drift_of(&mut self, parameter: &str, m: &Measure) -> Option<DriftSlot> {
+        let d = m.drift.as_ref()?;
+        Some(self.drift(&format!("{parameter}_drift"), d.per_kelvin, d.relative))
+    }
+
+    /// A sensor's stated error: absolute (also `% of span`, converted when
+    /// it was read) or a share of its reading.
+    fn stated_error(&mut self, parameter: &str, t: &Tolerance) {
+        let slot = self.limit(parameter, SourceKind::Sensor, t);
+        match t.basis {
+            Basis::Reading => self.sense_error.of_reading = Some((slot, self.zero)),
+            Basis::Written | Basis::Span => self.sense_error.absolute = Some(slot),
+        }
+    }
+}
+
+/// A tolerance's limits below and above `nominal`, absolute, and whether
+/// they are a 3σ normal bound.
+fn limits(t: &Tolerance, nominal: f64) -> (f64, f64, bool) {
+    if t.relative {
+        (t.minus * nominal.abs(), t.plus * nominal.abs(), t.normal)
+    } else {
+        (t.minus, t.plus, t.normal)
+    }
+}

@@ -1,0 +1,59 @@
+//! An NTC thermistor: β or Steinhart–Hart, with its self-heating
+//! (`eval/element.rs`).
+
+use super::{Cx, Run};
+use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::model::typed::{self, ThermistorLaw};
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Thermistor {
+    pub r25: SlotId,
+    pub curve: ThermistorCurve,
+    pub dissipation: Option<SlotId>,
+    pub input: Option<NodeId>,
+    pub senses: Senses,
+    pub valid: Option<(f64, f64)>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum ThermistorCurve {
+    Beta { beta: SlotId },
+    SteinhartHart { a: f64, b: f64, c: f64 },
+}
+
+pub(super) fn lower(m: &typed::Thermistor, cx: &mut Cx<'_>) -> Result<Thermistor, EvalError> {
+    let r25 = cx.measure("r25", SourceKind::Tolerance, &m.r25);
+    let curve = match &m.law {
+        ThermistorLaw::Beta(beta) => ThermistorCurve::Beta {
+            beta: cx.measure("beta", SourceKind::Tolerance, beta),
+        },
+        ThermistorLaw::SteinhartHart([a, b, c]) => ThermistorCurve::SteinhartHart {
+            a: *a,
+            b: *b,
+            c: *c,
+        },
+    };
+    let dissipation = m
+        .dissipation
+        .as_ref()
+        .map(|d| cx.measure("dissipation", SourceKind::Tolerance, d));
+    Ok(Thermistor {
+        r25,
+        curve,
+        dissipation,
+        input: cx.inputs.input,
+        senses: cx.senses,
+        valid: m.range,
+    })
+}
+
+impl Thermistor {
+    #[inline(always)]
+    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        let current = run.current_into(self.input);
+        let r = run
+            .plan
+            .driven_element(run.i, run.values, run.env, current)?;
+        Ok(run.element(r, self.input))
+    }
+}

@@ -1,0 +1,101 @@
+//! A thermocouple (NIST Monograph 175): its EMF against its cold
+//! junction, its IEC 60584-1 class, and the bias that holds a floating
+//! couple's common mode.
+
+use super::{Cx, Run};
+use crate::eval::plan::SourceKind;
+use crate::eval::plan::{ClassTolerance, DriftSlot, Env, EvalError, Senses, Signal, SlotId};
+use crate::eval::run::within;
+use crate::model::typed::{self, ColdJunction};
+use crate::physics::thermocouple::{self, ThermocoupleType};
+use crate::units::ZERO_CELSIUS_K;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Thermocouple {
+    pub ty: ThermocoupleType,
+    pub senses: Senses,
+    /// IEC 60584-1 tolerance class, when given: it also bounds the
+    /// range the thermocouple may be used over.
+    pub class: Option<u8>,
+    /// The voltage its common mode is biased to (0 V when not), with
+    /// its drift.
+    pub bias: Option<(SlotId, Option<DriftSlot>)>,
+    /// The resistor that biases it, in its source resistance, Ω.
+    pub bias_resistor: Option<SlotId>,
+}
+
+pub(super) fn lower(m: &typed::Thermocouple, cx: &mut Cx<'_>) -> Result<Thermocouple, EvalError> {
+    if let Some(c) = m.class {
+        let slot = cx.add("class", SourceKind::Sensor, 0.0, 1.0, 1.0, false);
+        cx.sense_error.class = Some((ClassTolerance::Thermocouple(m.ty, c), slot));
+    }
+    if let Some(t) = &m.tolerance {
+        cx.stated_error("tolerance", t);
+    }
+    match &m.cold_junction {
+        Some(ColdJunction::Error(t)) => {
+            cx.cj_error = Some(cx.limit("cold_junction", SourceKind::ColdJunction, t));
+        }
+        // The sensing stage is wired to the conversion's `cj` input.
+        Some(ColdJunction::Stage(_)) | None => {}
+    }
+    let bias = m.bias_voltage.as_ref().map(|b| {
+        (
+            cx.measure("bias_voltage", SourceKind::CommonMode, b),
+            cx.drift_of("bias_voltage", b),
+        )
+    });
+    let bias_resistor = m
+        .bias_resistor
+        .as_ref()
+        .map(|r| cx.measure("bias_resistor", SourceKind::Tolerance, r));
+    Ok(Thermocouple {
+        ty: m.ty,
+        senses: cx.senses,
+        class: m.class,
+        bias,
+        bias_resistor,
+    })
+}
+
+impl Thermocouple {
+    #[inline(always)]
+    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        let (plan, i, ty) = (run.plan, run.i, self.ty);
+        let range = ty.range_c();
+        let t = run.sensed(self.senses) - ZERO_CELSIUS_K;
+        // Messages are built only on the way out: this runs in every
+        // Monte Carlo trial.
+        let kind = || format!("type {} thermocouple", ty.letter());
+        let t = within(t, range)
+            .ok_or_else(|| plan.out_of_range(i, &kind(), t + ZERO_CELSIUS_K, range))?;
+        let e = |t_c: f64| {
+            thermocouple::emf_mv(ty, t_c)
+                .map_err(|e| plan.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high)))
+        };
+        let at_junction = match run.junction_mv {
+            Some(e) => e,
+            None => e(junction_c(ty, run.env))?,
+        };
+        let v = (e(t)? - at_junction) * 1e-3;
+        // A couple floats: its common mode is where a bias holds it, else
+        // 0 V.
+        let cm = self
+            .bias
+            .map(|(b, drift)| run.drifted(run.values[b], drift))
+            .unwrap_or(0.0);
+        Ok(Signal::Voltage {
+            v,
+            cm,
+            rs: run.or_zero(self.bias_resistor),
+        })
+    }
+}
+
+/// The cold junction's temperature for a couple of type `ty`, °C, held to
+/// the type's range (a junction beyond it is the sensor's finding, not the
+/// couple's).
+pub(in crate::eval) fn junction_c(ty: ThermocoupleType, env: &Env) -> f64 {
+    let tj = env.cold_junction - ZERO_CELSIUS_K;
+    within(tj, ty.range_c()).unwrap_or(tj)
+}

@@ -1,0 +1,92 @@
+//! A bridge transducer (a load cell): span with its drift, zero, and the
+//! nonlinearity and hysteresis stated as fractions of full-scale output.
+
+use super::{Cx, Run};
+use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::typed;
+use crate::physics::transducer::{self, LinearityLine};
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Transducer {
+    pub sensitivity: SlotId,
+    pub ratiometric: bool,
+    pub full_scale: f64,
+    pub zero: Option<SlotId>,
+    /// Nonlinearity and hysteresis, each a fraction of full-scale output,
+    /// nominal 0: the nonlinearity along its shape against `linearity`'s
+    /// line, the hysteresis as a bound no calibration sees.
+    pub nonlinearity: Option<SlotId>,
+    pub linearity: LinearityLine,
+    pub hysteresis: Option<SlotId>,
+    /// Zero and span coefficients per kelvin (of full scale).
+    pub zero_drift: Option<SlotId>,
+    pub span_drift: Option<SlotId>,
+    pub input: Option<NodeId>,
+    /// Bridge resistance of the transducer, Ω.
+    pub r: Option<SlotId>,
+}
+
+pub(super) fn lower(m: &typed::Transducer, cx: &mut Cx<'_>) -> Result<Transducer, EvalError> {
+    if m.full_scale == 0.0 {
+        return Err(cx.not_invertible("the sensitivity is stated at zero load"));
+    }
+    let sensitivity = cx.measure("sensitivity", SourceKind::Tolerance, &m.sensitivity);
+    let zero = m
+        .zero
+        .as_ref()
+        .map(|t| cx.limit("zero", SourceKind::Bound, t));
+    let r =
+        m.r.as_ref()
+            .map(|r| cx.measure("r", SourceKind::Tolerance, r));
+    let mut limit = |name: &str, kind: SourceKind, t: &Option<crate::model::value::Tolerance>| {
+        t.as_ref().map(|t| cx.limit(name, kind, t))
+    };
+    Ok(Transducer {
+        sensitivity,
+        ratiometric: m.ratiometric(),
+        full_scale: m.full_scale,
+        zero,
+        nonlinearity: limit("nonlinearity", SourceKind::Nonlinearity, &m.nonlinearity),
+        linearity: m.linearity,
+        hysteresis: limit("hysteresis", SourceKind::Nonlinearity, &m.hysteresis),
+        zero_drift: limit("zero_drift", SourceKind::Drift, &m.zero_drift),
+        span_drift: limit("span_drift", SourceKind::Drift, &m.span_drift),
+        input: cx.inputs.input,
+        r,
+    })
+}
+
+impl Transducer {
+    #[inline(always)]
+    pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        let slot = |o: Option<SlotId>| run.or_zero(o);
+        let dt = run.env.ambient - run.plan.reference;
+        let s_fs = run.values[self.sensitivity];
+        // Output as a ratio of excitation (or volts): span with its drift,
+        // then the errors stated as fractions of full scale.
+        let u = run.env.measurand / self.full_scale;
+        let bow = transducer::nonlinearity_shape(self.linearity, u);
+        // Hysteresis depends on the direction of approach: the
+        // calibration's is not the reading's, so it sees none.
+        let hysteresis = if run.mode.calibrating {
+            0.0
+        } else {
+            slot(self.hysteresis)
+        };
+        let fraction = s_fs * (1.0 + slot(self.span_drift) * dt) * u
+            + s_fs * (slot(self.nonlinearity) * bow + hysteresis + slot(self.zero_drift) * dt)
+            + slot(self.zero);
+        let (v, cm) = match (self.ratiometric, self.input.map(|n| run.s[n])) {
+            (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
+            (true, _) => {
+                return Err(run.numeric("a transducer rated in mV/V needs a voltage excitation"))
+            }
+            (false, _) => (fraction, fraction / 2.0),
+        };
+        Ok(Signal::Voltage {
+            v,
+            cm,
+            rs: self.r.map(|r| run.values[r] / 2.0).unwrap_or(0.0),
+        })
+    }
+}
