@@ -64,7 +64,7 @@ fn module_graph(src: &Path) -> Graph {
         let text = fs::read_to_string(&file).expect("a source file reads");
         let text = product_code(&text);
         let edges = graph.entry(module.clone()).or_default();
-        for (target, line) in references(&text) {
+        for (target, line) in references(text) {
             if target != module {
                 let place = format!("{}:{line}", relative.display());
                 edges.entry(target).or_insert(place);

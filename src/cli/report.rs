@@ -144,7 +144,8 @@ pub fn write_rendered(
 /// Checks and analyses one spec into its report; errors that leave no
 /// chain to analyse are shown and end it.
 pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
-    let (checked, config) = check_one(path)?;
+    // The report's own analysis runs with its trials and detail.
+    let (checked, config) = check_one(path, crate::analysis::Keep::Nothing)?;
     let errors: Findings = {
         let mut f = Findings::new();
         for x in checked

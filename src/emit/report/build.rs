@@ -13,7 +13,8 @@ use crate::analysis::report::Analysis;
 use crate::analysis::requirements::Verdict as RequirementVerdict;
 use crate::analysis::review::{outcome, Outcome};
 use crate::analysis::step::{Averaging, StepModel};
-use crate::eval::{Calibration, Env, Node, Plan, Signal};
+use crate::eval::{node, Calibration, Env, Node, Plan, Signal};
+use crate::model::requirement::RequirementKind;
 use crate::model::Chain;
 use crate::units::format::{from_si, to_si};
 
@@ -251,7 +252,7 @@ fn diagram(chain: &Chain, plan: &Plan) -> Diagram {
         let node = plan.names.iter().position(|n| n == name);
         match (node, &signals) {
             // A conversion's output exists only once the plan reads it.
-            (Some(n), _) if matches!(plan.nodes[n], Node::Convert { .. }) => "reading".to_string(),
+            (Some(n), _) if matches!(plan.nodes[n], Node::Convert(_)) => "reading".to_string(),
             (Some(n), Some(s)) => signal_noun(s[n]).to_string(),
             _ => "signal".to_string(),
         }
@@ -310,12 +311,7 @@ fn limit_rows(chain: &Chain, plan: &Plan, a: &Analysis, points: usize) -> Vec<Li
         .map(|(k, e)| LimitRow {
             stage: a.names.get(e.node).cloned().unwrap_or_default(),
             limit: e.limit.describe().to_string(),
-            unit: if e.unit == "of full scale" {
-                "1"
-            } else {
-                e.unit
-            }
-            .to_string(),
+            unit: e.unit.symbol().to_string(),
             allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
             reach: [e.reach.0, e.reach.1],
             headroom: e.headroom(),
@@ -501,9 +497,14 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
         requirement: a
             .verdicts
             .iter()
-            .find(|v| v.name == "accuracy")
+            .find(|v| matches!(v.kind, RequirementKind::Accuracy(_)))
             .map(|v| v.limit * f)
-            .filter(|_| chain.requirements.iter().any(|r| r.kind == "accuracy")),
+            .filter(|_| {
+                chain
+                    .requirements
+                    .iter()
+                    .any(|r| matches!(r.kind, RequirementKind::Accuracy(_)))
+            }),
     }
 }
 
@@ -579,7 +580,7 @@ fn noise(a: &Analysis, units: &Units) -> NoiseSection {
 fn dynamics(verdicts: &[RequirementVerdict], d: &Dynamics) -> DynamicsSection {
     let requirement_s = verdicts
         .iter()
-        .find(|v| v.name == "response")
+        .find(|v| v.kind == RequirementKind::Response)
         .map(|v| v.limit);
     let averaging = d.rate_hz.map(|rate| Averaging {
         conversion_s: 1.0 / d.notch_hz.unwrap_or(rate),
@@ -625,7 +626,7 @@ fn dynamics(verdicts: &[RequirementVerdict], d: &Dynamics) -> DynamicsSection {
 }
 
 fn calibration(plan: &Plan, a: &Analysis, units: &Units) -> Option<CalibrationSection> {
-    let Node::Convert { conversion, .. } = &plan.nodes[plan.reading] else {
+    let Node::Convert(node::Convert { conversion, .. }) = &plan.nodes[plan.reading] else {
         return None;
     };
     let (kind, at) = match conversion.calibration {
