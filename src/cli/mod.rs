@@ -15,6 +15,8 @@ mod export;
 mod files;
 mod fmt;
 mod generate;
+mod report;
+mod report_index;
 mod revision;
 mod settings;
 mod terminal;
@@ -55,6 +57,8 @@ enum Command {
     Compare(compare::CompareArgs),
     /// Firmware constants: the conversion, the valid code window, trips, calibration.
     Export(export::ExportArgs),
+    /// The review report: verdict, stages, budget, plots (HTML, Markdown, JSON).
+    Report(report::ReportArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
     /// Print a shell's completion script for catena.
@@ -86,6 +90,7 @@ pub fn run() -> ExitCode {
         Command::Diff(args) => diff::run(args),
         Command::Compare(args) => compare::run(args),
         Command::Export(args) => export::run(args),
+        Command::Report(args) => report::run(args),
         Command::Explain(args) => explain::run(args),
         Command::Completions(args) => generate::completions(args),
         Command::Man(args) => generate::man(args),
