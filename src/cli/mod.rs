@@ -16,6 +16,8 @@ mod export;
 mod files;
 mod fmt;
 mod generate;
+mod report;
+mod report_index;
 mod revision;
 mod settings;
 mod terminal;
@@ -58,6 +60,8 @@ enum Command {
     Checklist(checklist::ChecklistArgs),
     /// Firmware constants: the conversion, the valid code window, trips, calibration.
     Export(export::ExportArgs),
+    /// The review report: verdict, stages, budget, plots (HTML, Markdown, JSON).
+    Report(report::ReportArgs),
     /// Explain a diagnostic code, or list them all.
     Explain(explain::ExplainArgs),
     /// Print a shell's completion script for catena.
@@ -90,6 +94,7 @@ pub fn run() -> ExitCode {
         Command::Compare(args) => compare::run(args),
         Command::Checklist(args) => checklist::run(args),
         Command::Export(args) => export::run(args),
+        Command::Report(args) => report::run(args),
         Command::Explain(args) => explain::run(args),
         Command::Completions(args) => generate::completions(args),
         Command::Man(args) => generate::man(args),

@@ -2,5 +2,6 @@
 
 mod atomic;
 pub mod export;
+pub mod report;
 
 pub use atomic::{replace_atomic, write_atomic, WriteError};

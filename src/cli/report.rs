@@ -1,0 +1,327 @@
+//! `catena report SPEC`: the document a design review reads, as JSON,
+//! Markdown or self-contained HTML, one model rendered three ways.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use clap::Args;
+
+use super::files::check_one;
+use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
+use crate::analysis::budget::Options as BudgetOptions;
+use crate::analysis::ranges::DEFAULT_MARGIN;
+use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::soundness;
+use crate::diagnostics::did_you_mean;
+use crate::diagnostics::{render_human, Findings, Severity};
+use crate::emit::report::{
+    chain_report, failed_report, render, summary_row, BuildOptions, Report, ReportFormat,
+    SCHEMA_VERSION,
+};
+use crate::emit::write_atomic;
+use crate::eval::lower;
+
+#[derive(Args, Debug)]
+pub struct ReportArgs {
+    /// A spec file, or a folder: one report per spec and an index (needs `-o DIR`).
+    path: PathBuf,
+    /// Only this chain of the spec.
+    #[arg(long)]
+    chain: Option<String>,
+    /// The format [default: from `-o`'s extension, else html].
+    #[arg(long, value_enum)]
+    format: Option<ReportFormat>,
+    /// Where to write: a file, or a folder (created if missing) for the
+    /// report with its plots beside it [default: standard output].
+    #[arg(short = 'o', long = "output")]
+    output: Option<PathBuf>,
+    /// State the time the report was made (otherwise the same spec gives
+    /// the same bytes).
+    #[arg(long)]
+    timestamp: bool,
+    /// Monte Carlo trials per point (0: none) [default: catena.yaml's
+    /// `monte_carlo.trials`, else 10000].
+    #[arg(long)]
+    trials: Option<usize>,
+    /// The Monte Carlo seed [default: catena.yaml's `monte_carlo.seed`, else 1].
+    #[arg(long)]
+    seed: Option<u64>,
+    /// Points across the measurand range.
+    #[arg(long, default_value_t = 21)]
+    points: usize,
+}
+
+pub fn run(args: ReportArgs) -> u8 {
+    if args.trials.is_some_and(|t| t > MAX_TRIALS) {
+        errln!("catena: --trials is at most {MAX_TRIALS}");
+        return EXIT_USAGE;
+    }
+    if !(2..=1001).contains(&args.points) {
+        errln!("catena: --points takes 2 to 1001");
+        return EXIT_USAGE;
+    }
+    let format = args.format.unwrap_or_else(|| {
+        args.output
+            .as_deref()
+            .and_then(|o| o.extension())
+            .and_then(|e| ReportFormat::from_extension(&e.to_string_lossy()))
+            .unwrap_or(ReportFormat::Html)
+    });
+    if args.path.is_dir() {
+        return super::report_index::run_folder(&args.path, args.output.as_deref(), format, &|p| {
+            build(p, &args)
+        });
+    }
+    let report = match build(&args.path, &args) {
+        Ok(r) => r,
+        Err(status) => return status,
+    };
+    let status = report_status(&report);
+    match deliver(&report, format, args.output.as_deref()) {
+        Ok(()) => status,
+        Err(e) => {
+            errln!("catena: {e}");
+            EXIT_USAGE
+        }
+    }
+}
+
+/// 1 when a chain misses a requirement, leaves a limit or cannot be analysed.
+pub fn report_status(report: &Report) -> u8 {
+    if report.summary.iter().all(|r| r.pass) {
+        EXIT_OK
+    } else {
+        EXIT_FINDINGS
+    }
+}
+
+/// Writes the rendered report to standard output, a file, or a folder
+/// (with its plots as SVG files beside it).
+fn deliver(report: &Report, format: ReportFormat, output: Option<&Path>) -> Result<(), String> {
+    let stem = Path::new(&report.provenance.spec)
+        .file_stem()
+        .map_or("report".to_string(), |s| s.to_string_lossy().into_owned());
+    let Some(output) = output else {
+        let rendered = render(report, format, None);
+        out!("{}", rendered.text);
+        return Ok(());
+    };
+    let (file, folder) = if output.is_dir() || output.to_string_lossy().ends_with('/') {
+        std::fs::create_dir_all(output).map_err(|e| format!("{}: {e}", output.display()))?;
+        (
+            output.join(format!("{stem}.{}", format.extension())),
+            output.to_path_buf(),
+        )
+    } else {
+        let parent = output
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        (output.to_path_buf(), parent.to_path_buf())
+    };
+    let plot_stem = file
+        .file_stem()
+        .map_or(stem.clone(), |s| s.to_string_lossy().into_owned());
+    write_rendered(report, format, &file, &folder, &plot_stem)
+}
+
+/// Renders into `file`, and the plots a Markdown report links into `folder`.
+pub fn write_rendered(
+    report: &Report,
+    format: ReportFormat,
+    file: &Path,
+    folder: &Path,
+    plot_stem: &str,
+) -> Result<(), String> {
+    let rendered = render(report, format, Some(plot_stem));
+    for (name, svg) in &rendered.plots {
+        let path = folder.join(name);
+        write_atomic(&path, svg.as_bytes()).map_err(|e| format!("{}: {e}", path.display()))?;
+    }
+    write_atomic(file, rendered.text.as_bytes()).map_err(|e| format!("{}: {e}", file.display()))
+}
+
+/// Checks and analyses one spec into its report; errors that leave no
+/// chain to analyse are shown and end it.
+pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
+    // The report's own analysis runs with its trials and detail.
+    let (checked, config) = check_one(path, crate::analysis::Keep::Nothing)?;
+    let errors: Findings = {
+        let mut f = Findings::new();
+        for x in checked
+            .findings
+            .iter()
+            .filter(|f| f.severity() == Severity::Error)
+        {
+            f.push(x.clone());
+        }
+        f
+    };
+    if !errors.is_empty() && !checked.resolved || checked.chains.is_empty() {
+        show(&checked.findings);
+        errln!(
+            "catena: no report for {} until these are fixed",
+            path.display()
+        );
+        return Err(EXIT_FINDINGS);
+    }
+    let chains: Vec<_> = match &args.chain {
+        None => checked.chains.iter().collect(),
+        Some(name) => match checked.chains.iter().find(|c| &c.name == name) {
+            Some(c) => vec![c],
+            None => {
+                match did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str())) {
+                    Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
+                    None => errln!("catena: no chain `{name}`"),
+                }
+                return Err(EXIT_USAGE);
+            }
+        },
+    };
+    let (options, build) = options(args, &config);
+    let reports: Vec<_> = chains
+        .into_iter()
+        .map(|chain| {
+            let analysed = lower(chain).and_then(|plan| {
+                let a = analyse(chain, &plan, &options)?;
+                Ok((plan, a))
+            });
+            match analysed {
+                Ok((plan, a)) if soundness::non_finite(chain, &a).is_empty() => {
+                    chain_report(chain, &plan, &a, &build)
+                }
+                Ok(_) => failed_report(
+                    chain,
+                    "a parameter drives a number beyond what a double holds (E505)".to_string(),
+                ),
+                Err(e) => failed_report(chain, e.to_string()),
+            }
+        })
+        .collect();
+    let shown = path.to_string_lossy().into_owned();
+    Ok(Report {
+        schema_version: SCHEMA_VERSION,
+        provenance: crate::emit::report::model::Provenance {
+            revision: git_revision(path),
+            modified: git_modified(path),
+            spec: shown,
+            tool: "catena".to_string(),
+            tool_version: env!("CARGO_PKG_VERSION").to_string(),
+            timestamp: args.timestamp.then(now_utc),
+            trials: options.trials.unwrap_or(0),
+            seed: options.seed,
+            points: args.points,
+            margin: build.margin,
+        },
+        summary: reports.iter().map(summary_row).collect(),
+        chains: reports,
+    })
+}
+
+/// The analyses' options and the builder's: flags first, then
+/// `catena.yaml`, then the defaults.
+fn options(args: &ReportArgs, config: &crate::config::Config) -> (Options, BuildOptions) {
+    let trials = args
+        .trials
+        .or(config.trials.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_TRIALS);
+    let seed = args
+        .seed
+        .or(config.seed.as_ref().map(|s| s.value))
+        .unwrap_or(DEFAULT_SEED);
+    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
+    let options = Options {
+        budget: BudgetOptions {
+            points: args.points,
+            ..BudgetOptions::default()
+        },
+        trials: (trials > 0).then_some(trials),
+        seed,
+        detail: true,
+    };
+    let build = BuildOptions {
+        points: args.points,
+        margin,
+    };
+    (options, build)
+}
+
+fn show(findings: &Findings) {
+    err!(
+        "{}",
+        render_human(
+            &findings.clone().sorted(),
+            terminal::stderr_color(),
+            terminal::width()
+        )
+    );
+}
+
+/// `git` run in the spec's folder on the spec alone; None outside a
+/// repository or without git.
+fn git_on(path: &Path, args: &[&str]) -> Option<String> {
+    let folder = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path.file_name()?;
+    let out = Command::new("git")
+        .arg("-C")
+        .arg(folder)
+        .args(args)
+        .arg("--")
+        .arg(name)
+        .output()
+        .ok()?;
+    out.status
+        .success()
+        .then(|| String::from_utf8_lossy(&out.stdout).trim().to_string())
+}
+
+/// The last commit that touched the spec.
+fn git_revision(path: &Path) -> Option<String> {
+    git_on(path, &["log", "-1", "--format=%H"]).filter(|r| !r.is_empty())
+}
+
+/// Whether the working copy of the spec differs from the last commit (an
+/// untracked spec counts as differing).
+fn git_modified(path: &Path) -> Option<bool> {
+    git_revision(path)?;
+    git_on(path, &["status", "--porcelain"]).map(|s| !s.is_empty())
+}
+
+/// The current time, UTC, as `YYYY-MM-DDTHH:MM:SSZ`.
+fn now_utc() -> String {
+    let secs = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.as_secs());
+    let (days, rest) = ((secs / 86_400) as i64, secs % 86_400);
+    // Civil date from days since 1970-01-01 (proleptic Gregorian).
+    let z = days + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let day = doy - (153 * mp + 2) / 5 + 1;
+    let month = if mp < 10 { mp + 3 } else { mp - 9 };
+    let year = yoe + era * 400 + i64::from(month <= 2);
+    format!(
+        "{year:04}-{month:02}-{day:02}T{:02}:{:02}:{:02}Z",
+        rest / 3600,
+        rest % 3600 / 60,
+        rest % 60
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_timestamp_has_the_iso_shape() {
+        let t = now_utc();
+        assert_eq!(t.len(), 20, "{t}");
+        assert!(t.ends_with('Z') && t.as_bytes()[10] == b'T', "{t}");
+    }
+}

@@ -1,0 +1,72 @@
+//! Numbers for the report, formatted in one place for every renderer.
+
+use crate::units::format::{trimmed, with_prefix};
+
+/// Significant digits of an error or a margin.
+const DIGITS: usize = 3;
+
+/// A value in a unit a reader knows (K, degC, s): three significant
+/// digits, trailing zeros dropped.
+pub fn value(x: f64, unit: &str) -> String {
+    let v = trimmed(x, DIGITS);
+    if unit.is_empty() {
+        v
+    } else {
+        format!("{v} {unit}")
+    }
+}
+
+/// A value in a coherent SI unit (V, A, ohm), with its prefix.
+pub fn si(x: f64, unit: &str) -> String {
+    match unit {
+        "" | "1" => trimmed(x, 4),
+        "code" => format!("{} codes", trimmed(x.round(), 12)),
+        "ohm" => with_prefix(x, "Ω", 4),
+        _ => with_prefix(x, unit, 4),
+    }
+}
+
+/// A share (0…1) as a percentage.
+pub fn share(x: f64) -> String {
+    let p = x * 100.0;
+    if p.abs() >= 10.0 {
+        format!("{} %", trimmed(p.round(), 6))
+    } else {
+        format!("{} %", trimmed(p, 2))
+    }
+}
+
+/// A position in the measurand's range.
+pub fn position(x: f64, unit: &str) -> String {
+    format!("{} {unit}", trimmed(x, 6))
+}
+
+/// Any plain number.
+pub fn plain(x: f64) -> String {
+    trimmed(x, 4)
+}
+
+/// The name of an accuracy method as a reader says it.
+pub fn method(m: &str) -> &str {
+    match m {
+        "worst_case" => "worst case",
+        "monte_carlo" => "Monte Carlo 95 %",
+        "gum" => "GUM, k = 2",
+        "noise_free" => "noise-free",
+        other => other,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_read_well() {
+        assert_eq!(value(0.080_93, "K"), "0.0809 K");
+        assert_eq!(si(0.000_25, "A"), "250.0 uA");
+        assert_eq!(share(0.272), "27 %");
+        assert_eq!(share(0.0123), "1.2 %");
+        assert_eq!(si(6_250_772.4, "code"), "6250772 codes");
+    }
+}

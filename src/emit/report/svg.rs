@@ -1,0 +1,725 @@
+//! A small SVG plotting module of our own: axes with 1-2-5 ticks and SI
+//! prefixes, lines, bands, bars and limit lines, a legend, and text as
+//! real `<text>`. Coordinates are written with two decimals so the same
+//! data gives the same bytes. Colour is never the only channel: every
+//! series also has its own dash pattern and marker.
+
+use std::fmt::Write;
+
+/// A palette safe for the common colour-vision deficiencies
+/// (Okabe and Ito's), in an order whose neighbours also differ in
+/// lightness, so greyscale prints tell them apart.
+pub const PALETTE: [&str; 6] = [
+    "#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9",
+];
+const DASHES: [&str; 6] = ["", "7 3", "2 3", "9 3 2 3", "4 2", "1 2"];
+/// The requirement's limit lines.
+pub const LIMIT_COLOUR: &str = "#000000";
+
+pub const WIDTH: f64 = 720.0;
+pub const HEIGHT: f64 = 380.0;
+const LEFT: f64 = 78.0;
+const RIGHT: f64 = 24.0;
+const TOP: f64 = 58.0;
+const BOTTOM: f64 = 56.0;
+const CHAR_W: f64 = 6.6;
+
+/// Escapes text for XML.
+pub fn escape(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    for ch in s.chars() {
+        match ch {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            '\'' => out.push_str("&#39;"),
+            c => out.push(c),
+        }
+    }
+    out
+}
+
+fn n(x: f64) -> String {
+    let r = (x * 100.0).round() / 100.0 + 0.0;
+    crate::units::format::trimmed(r, 12)
+}
+
+/// An axis: the quantity, its unit, its range, and whether it is
+/// logarithmic. `prefixable` units (V, s, Hz) get an SI prefix chosen
+/// for the whole axis; others (K, degC, %) are written as they are.
+#[derive(Clone, Debug)]
+pub struct Axis {
+    pub quantity: String,
+    pub unit: String,
+    pub lo: f64,
+    pub hi: f64,
+    pub log: bool,
+    pub prefixable: bool,
+}
+
+impl Axis {
+    pub fn linear(quantity: &str, unit: &str, lo: f64, hi: f64) -> Axis {
+        let (lo, hi) = padded(lo, hi);
+        Axis {
+            quantity: quantity.to_string(),
+            unit: unit.to_string(),
+            lo,
+            hi,
+            log: false,
+            prefixable: matches!(unit, "V" | "A" | "s" | "Hz" | "Ω"),
+        }
+    }
+
+    /// A linear axis whose range is widened to whole ticks.
+    pub fn nice(quantity: &str, unit: &str, lo: f64, hi: f64) -> Axis {
+        let mut a = Axis::linear(quantity, unit, lo, hi);
+        let step = tick_step(a.hi - a.lo);
+        a.lo = (a.lo / step + 1e-9).floor() * step;
+        a.hi = (a.hi / step - 1e-9).ceil() * step;
+        a
+    }
+
+    pub fn logarithmic(quantity: &str, unit: &str, lo: f64, hi: f64) -> Axis {
+        Axis {
+            quantity: quantity.to_string(),
+            unit: unit.to_string(),
+            lo: lo.max(1e-30),
+            hi: hi.max(lo * 10.0),
+            log: true,
+            prefixable: true,
+        }
+    }
+
+    fn t(&self, x: f64) -> f64 {
+        if self.log {
+            (x.max(1e-300).log10() - self.lo.log10()) / (self.hi.log10() - self.lo.log10())
+        } else {
+            (x - self.lo) / (self.hi - self.lo)
+        }
+    }
+
+    /// The prefix and its scale for the whole axis.
+    fn prefix(&self) -> (f64, &'static str) {
+        if !self.prefixable || self.log {
+            return (1.0, "");
+        }
+        let m = self.lo.abs().max(self.hi.abs());
+        prefix_for(m)
+    }
+
+    fn title(&self) -> String {
+        let (_, p) = self.prefix();
+        if self.unit.is_empty() {
+            self.quantity.clone()
+        } else {
+            format!("{} ({p}{})", self.quantity, self.unit)
+        }
+    }
+
+    /// Tick values and their labels.
+    fn ticks(&self) -> Vec<(f64, String)> {
+        if self.log {
+            return log_ticks(self.lo, self.hi);
+        }
+        let (scale, _) = self.prefix();
+        let step = tick_step(self.hi - self.lo);
+        let first = (self.lo / step - 1e-9).ceil() as i64;
+        let last = (self.hi / step + 1e-9).floor() as i64;
+        (first..=last)
+            .map(|i| {
+                let v = i as f64 * step;
+                (v, crate::units::format::trimmed(v / scale + 0.0, 6))
+            })
+            .collect()
+    }
+}
+
+fn prefix_for(m: f64) -> (f64, &'static str) {
+    const P: [(f64, &str); 7] = [
+        (1e6, "M"),
+        (1e3, "k"),
+        (1.0, ""),
+        (1e-3, "m"),
+        (1e-6, "µ"),
+        (1e-9, "n"),
+        (1e-12, "p"),
+    ];
+    if m == 0.0 || !m.is_finite() {
+        return (1.0, "");
+    }
+    P.iter()
+        .copied()
+        .find(|(s, _)| m >= *s * 0.999)
+        .unwrap_or((1e-12, "p"))
+}
+
+/// A range with room around it; a flat range gets some width.
+fn padded(lo: f64, hi: f64) -> (f64, f64) {
+    let (lo, hi) = if lo.is_finite() && hi.is_finite() {
+        (lo.min(hi), lo.max(hi))
+    } else {
+        (0.0, 1.0)
+    };
+    if hi - lo <= f64::EPSILON * hi.abs().max(1.0) * 16.0 {
+        let w = if lo == 0.0 { 1.0 } else { lo.abs() * 0.1 };
+        return (lo - w, hi + w);
+    }
+    (lo, hi)
+}
+
+/// A 1-2-5 step giving four to ten ticks over `span`.
+pub fn tick_step(span: f64) -> f64 {
+    let raw = span / 6.0;
+    let decade = 10f64.powf(raw.log10().floor());
+    [1.0, 2.0, 5.0, 10.0]
+        .into_iter()
+        .map(|m| m * decade)
+        .find(|s| span / s <= 8.0)
+        .unwrap_or(10.0 * decade)
+}
+
+fn log_ticks(lo: f64, hi: f64) -> Vec<(f64, String)> {
+    let mut out = Vec::new();
+    let first = lo.log10().floor() as i32;
+    let last = hi.log10().ceil() as i32;
+    for e in first..=last {
+        let decade = 10f64.powi(e);
+        for m in [1.0, 2.0, 5.0] {
+            let v = m * decade;
+            if v >= lo * 0.999 && v <= hi * 1.001 {
+                let (s, p) = prefix_for(v);
+                out.push((v, format!("{}{p}", crate::units::format::trimmed(v / s, 3))));
+            }
+        }
+    }
+    out
+}
+
+/// How a series is drawn.
+#[derive(Clone, Copy, Debug)]
+pub struct Style {
+    pub index: usize,
+}
+
+impl Style {
+    fn colour(self) -> &'static str {
+        PALETTE[self.index % PALETTE.len()]
+    }
+    fn dash(self) -> &'static str {
+        DASHES[self.index % DASHES.len()]
+    }
+}
+
+pub enum Item {
+    Line {
+        label: String,
+        style: Style,
+        points: Vec<(f64, f64)>,
+        markers: bool,
+    },
+    /// A curve and its mirror image below zero (a ± interval).
+    PlusMinus {
+        label: String,
+        style: Style,
+        points: Vec<(f64, f64)>,
+    },
+    /// A filled band between two curves over the same x, its edges drawn
+    /// in the series' dash.
+    Band {
+        label: String,
+        style: Style,
+        lower: Vec<(f64, f64)>,
+        upper: Vec<(f64, f64)>,
+    },
+    /// A horizontal limit line across the plot.
+    HLimit { label: String, y: f64 },
+    /// A vertical marker line.
+    VMark { label: String, x: f64 },
+    /// A shaded horizontal stripe (a margin band).
+    HBand { label: String, y0: f64, y1: f64 },
+}
+
+pub struct Chart {
+    /// Unique within the document: prefixes ids (the clip path).
+    pub id: String,
+    pub title: String,
+    pub x: Axis,
+    pub y: Axis,
+    pub items: Vec<Item>,
+}
+
+impl Chart {
+    fn px(&self, x: f64) -> f64 {
+        LEFT + self.x.t(x) * (WIDTH - LEFT - RIGHT)
+    }
+    fn py(&self, y: f64) -> f64 {
+        HEIGHT - BOTTOM - self.y.t(y) * (HEIGHT - TOP - BOTTOM)
+    }
+
+    pub fn render(&self) -> String {
+        let mut s = open(&self.id, &self.title, WIDTH, HEIGHT);
+        self.axes(&mut s);
+        let _ = write!(
+            s,
+            r#"<clipPath id="{id}-clip"><rect x="{x}" y="{y}" width="{w}" height="{h}"/></clipPath><g class="plot-area" data-x="{x}" data-y="{y}" data-width="{w}" data-height="{h}" clip-path="url(#{id}-clip)">"#,
+            id = self.id,
+            x = n(LEFT),
+            y = n(TOP),
+            w = n(WIDTH - LEFT - RIGHT),
+            h = n(HEIGHT - TOP - BOTTOM)
+        );
+        let mut marks = 0;
+        for item in &self.items {
+            if let Item::VMark { label, x } = item {
+                self.mark(&mut s, label, *x, marks);
+                marks += 1;
+                continue;
+            }
+            self.item(&mut s, item);
+        }
+        s.push_str("</g>");
+        self.legend(&mut s);
+        s.push_str("</svg>");
+        s
+    }
+
+    fn axes(&self, s: &mut String) {
+        let (l, r, t, b) = (LEFT, WIDTH - RIGHT, TOP, HEIGHT - BOTTOM);
+        let _ = write!(
+            s,
+            r##"<rect x="{}" y="{}" width="{}" height="{}" fill="#ffffff" stroke="#444444"/>"##,
+            n(l),
+            n(t),
+            n(r - l),
+            n(b - t)
+        );
+        for (v, label) in self.x.ticks() {
+            let x = self.px(v);
+            let _ = write!(
+                s,
+                r##"<line x1="{x}" y1="{t}" x2="{x}" y2="{b}" stroke="#dddddd"/><text x="{x}" y="{ty}" text-anchor="middle" class="tick">{label}</text>"##,
+                x = n(x),
+                t = n(t),
+                b = n(b),
+                ty = n(b + 16.0),
+                label = escape(&label)
+            );
+        }
+        for (v, label) in self.y.ticks() {
+            let y = self.py(v);
+            let _ = write!(
+                s,
+                r##"<line x1="{l}" y1="{y}" x2="{r}" y2="{y}" stroke="#dddddd"/><text x="{tx}" y="{ty}" text-anchor="end" class="tick">{label}</text>"##,
+                l = n(l),
+                r = n(r),
+                y = n(y),
+                tx = n(l - 6.0),
+                ty = n(y + 4.0),
+                label = escape(&label)
+            );
+        }
+        let _ = write!(
+            s,
+            r#"<text x="{}" y="{}" text-anchor="middle" class="axis">{}</text>"#,
+            n((l + r) / 2.0),
+            n(HEIGHT - 14.0),
+            escape(&self.x.title())
+        );
+        let _ = write!(
+            s,
+            r#"<text transform="translate(16 {}) rotate(-90)" text-anchor="middle" class="axis">{}</text>"#,
+            n((t + b) / 2.0),
+            escape(&self.y.title())
+        );
+    }
+
+    fn path(&self, points: &[(f64, f64)]) -> String {
+        let mut d = String::new();
+        for (i, &(x, y)) in points.iter().enumerate() {
+            if !x.is_finite() || !y.is_finite() {
+                continue;
+            }
+            let _ = write!(
+                d,
+                "{}{} {}",
+                if i == 0 { "M" } else { " L" },
+                n(self.px(x)),
+                n(self.py(y))
+            );
+        }
+        d
+    }
+
+    fn item(&self, s: &mut String, item: &Item) {
+        match item {
+            Item::Line {
+                label,
+                style,
+                points,
+                markers,
+            } => {
+                let dash = style.dash();
+                let _ = write!(
+                    s,
+                    r#"<path class="data" d="{}" fill="none" stroke="{}" stroke-width="2"{}><title>{}</title></path>"#,
+                    self.path(points),
+                    style.colour(),
+                    if dash.is_empty() {
+                        String::new()
+                    } else {
+                        format!(r#" stroke-dasharray="{dash}""#)
+                    },
+                    escape(label)
+                );
+                if *markers {
+                    for &(x, y) in points {
+                        s.push_str(&marker(*style, self.px(x), self.py(y)));
+                    }
+                }
+            }
+            Item::PlusMinus {
+                label,
+                style,
+                points,
+            } => {
+                let below: Vec<(f64, f64)> = points.iter().map(|&(x, y)| (x, -y)).collect();
+                for side in [points, &below] {
+                    self.item(
+                        s,
+                        &Item::Line {
+                            label: label.clone(),
+                            style: *style,
+                            points: side.clone(),
+                            markers: false,
+                        },
+                    );
+                }
+            }
+            Item::Band {
+                label,
+                style,
+                lower,
+                upper,
+            } => self.band(s, label, *style, lower, upper),
+            Item::HLimit { label, y } => {
+                let _ = write!(
+                    s,
+                    r#"<line class="data limit" x1="{}" y1="{y}" x2="{}" y2="{y}" stroke="{LIMIT_COLOUR}" stroke-width="1.6" stroke-dasharray="10 4 2 4"><title>{}</title></line>"#,
+                    n(LEFT),
+                    n(WIDTH - RIGHT),
+                    escape(label),
+                    y = n(self.py(*y))
+                );
+            }
+            Item::VMark { label, x } => self.mark(s, label, *x, 0),
+            Item::HBand { label, y0, y1 } => {
+                let (a, b) = (self.py(*y0), self.py(*y1));
+                let _ = write!(
+                    s,
+                    r##"<rect class="band" x="{}" y="{}" width="{}" height="{}" fill="#999999" fill-opacity="0.25"><title>{}</title></rect>"##,
+                    n(LEFT),
+                    n(a.min(b)),
+                    n(WIDTH - LEFT - RIGHT),
+                    n((a - b).abs()),
+                    escape(label)
+                );
+            }
+        }
+    }
+
+    /// A filled band with its edges drawn in the series' dash.
+    fn band(
+        &self,
+        s: &mut String,
+        label: &str,
+        style: Style,
+        lower: &[(f64, f64)],
+        upper: &[(f64, f64)],
+    ) {
+        let mut pts: Vec<(f64, f64)> = upper.to_vec();
+        pts.extend(lower.iter().rev().copied());
+        let _ = write!(
+            s,
+            r#"<path class="data" d="{} Z" fill="{}" fill-opacity="0.22" stroke="none"><title>{}</title></path>"#,
+            self.path(&pts),
+            style.colour(),
+            escape(label)
+        );
+        let dash = match style.dash() {
+            "" => String::new(),
+            d => format!(r#" stroke-dasharray="{d}""#),
+        };
+        for edge in [upper, lower] {
+            let _ = write!(
+                s,
+                r#"<path class="data" d="{}" fill="none" stroke="{}" stroke-width="1.2"{dash}/>"#,
+                self.path(edge),
+                style.colour()
+            );
+        }
+    }
+
+    /// A vertical marker; the `k`-th one's label sits a line lower, and
+    /// right of its line unless that would leave the plot.
+    fn mark(&self, s: &mut String, label: &str, x: f64, k: usize) {
+        let px = self.px(x);
+        let width = label.chars().count() as f64 * CHAR_W;
+        let (tx, anchor) = if px + 4.0 + width > WIDTH - RIGHT {
+            (px - 4.0, "end")
+        } else {
+            (px + 4.0, "start")
+        };
+        let _ = write!(
+            s,
+            r##"<line class="data mark" x1="{px}" y1="{}" x2="{px}" y2="{}" stroke="#555555" stroke-dasharray="3 3"/><text x="{}" y="{}" text-anchor="{anchor}" class="mark">{}</text>"##,
+            n(TOP),
+            n(HEIGHT - BOTTOM),
+            n(tx),
+            n(TOP + 14.0 + 14.0 * k as f64),
+            escape(label),
+            px = n(px)
+        );
+    }
+
+    fn legend(&self, s: &mut String) {
+        let _ = write!(
+            s,
+            r#"<text x="{}" y="16" class="title">{}</text>"#,
+            n(LEFT),
+            escape(&self.title)
+        );
+        let (mut x, mut y) = (LEFT, 38.0);
+        for item in &self.items {
+            let Some(label) = legend_label(item) else {
+                continue;
+            };
+            let w = 30.0 + label.chars().count() as f64 * CHAR_W + 16.0;
+            if x + w > WIDTH - RIGHT && x > LEFT {
+                x = LEFT;
+                y += 16.0;
+            }
+            s.push_str(&swatch(item, x, y));
+            let _ = write!(
+                s,
+                r#"<text x="{}" y="{}" class="legend">{}</text>"#,
+                n(x + 30.0),
+                n(y),
+                escape(label)
+            );
+            x += w;
+        }
+    }
+}
+
+fn legend_label(item: &Item) -> Option<&str> {
+    match item {
+        Item::Line { label, .. }
+        | Item::PlusMinus { label, .. }
+        | Item::Band { label, .. }
+        | Item::HLimit { label, .. }
+        | Item::HBand { label, .. } => Some(label.as_str()).filter(|l| !l.is_empty()),
+        Item::VMark { .. } => None,
+    }
+}
+
+/// The legend's sample of an item, 24 px wide, left of its label.
+fn swatch(item: &Item, x: f64, y: f64) -> String {
+    let line = |colour: &str, width: &str, dash: &str| {
+        format!(
+            r#"<line x1="{}" y1="{}" x2="{}" y2="{}" stroke="{colour}" stroke-width="{width}"{}/>"#,
+            n(x),
+            n(y - 4.0),
+            n(x + 24.0),
+            n(y - 4.0),
+            if dash.is_empty() {
+                String::new()
+            } else {
+                format!(r#" stroke-dasharray="{dash}""#)
+            }
+        )
+    };
+    let rect = |colour: &str, opacity: &str| {
+        format!(
+            r#"<rect x="{}" y="{}" width="24" height="9" fill="{colour}" fill-opacity="{opacity}"/>"#,
+            n(x),
+            n(y - 9.0)
+        )
+    };
+    match item {
+        Item::Line { style, markers, .. } => {
+            let mut sw = line(style.colour(), "2", style.dash());
+            if *markers {
+                sw.push_str(&marker(*style, x + 12.0, y - 4.0));
+            }
+            sw
+        }
+        Item::PlusMinus { style, .. } => line(style.colour(), "2", style.dash()),
+        Item::Band { style, .. } => {
+            rect(style.colour(), "0.3") + &line(style.colour(), "1.2", style.dash())
+        }
+        Item::HLimit { .. } => line(LIMIT_COLOUR, "1.6", "10 4 2 4"),
+        Item::HBand { .. } => rect("#999999", "0.35"),
+        Item::VMark { .. } => String::new(),
+    }
+}
+
+/// A marker shape per series: circle, square, triangle, diamond, ...
+fn marker(style: Style, x: f64, y: f64) -> String {
+    let c = style.colour();
+    match style.index % 4 {
+        0 => format!(
+            r#"<circle class="data" cx="{}" cy="{}" r="3.2" fill="{c}"/>"#,
+            n(x),
+            n(y)
+        ),
+        1 => format!(
+            r#"<rect class="data" x="{}" y="{}" width="6" height="6" fill="{c}"/>"#,
+            n(x - 3.0),
+            n(y - 3.0)
+        ),
+        2 => format!(
+            r#"<path class="data" d="M{} {} L{} {} L{} {} Z" fill="{c}"/>"#,
+            n(x),
+            n(y - 4.0),
+            n(x + 4.0),
+            n(y + 3.0),
+            n(x - 4.0),
+            n(y + 3.0)
+        ),
+        _ => format!(
+            r#"<path class="data" d="M{} {} L{} {} L{} {} L{} {} Z" fill="none" stroke="{c}" stroke-width="1.5"/>"#,
+            n(x),
+            n(y - 4.0),
+            n(x + 4.0),
+            n(y),
+            n(x),
+            n(y + 4.0),
+            n(x - 4.0),
+            n(y)
+        ),
+    }
+}
+
+/// The opening tag of a plot: a titled, described, scalable SVG.
+pub fn open(id: &str, title: &str, w: f64, h: f64) -> String {
+    format!(
+        r#"<svg xmlns="http://www.w3.org/2000/svg" class="plot" id="{id}" viewBox="0 0 {} {}" width="{}" height="{}" role="img" aria-labelledby="{id}-title"><title id="{id}-title">{}</title><style>text{{font-family:sans-serif;font-size:12px;fill:#222222}} .title{{font-size:14px;font-weight:bold}} .tick{{font-size:11px}}</style>"#,
+        n(w),
+        n(h),
+        n(w),
+        n(h),
+        escape(title)
+    )
+}
+
+/// Horizontal bars (value, label) sorted by the caller, with a share
+/// written at each bar's end.
+pub fn bars(
+    id: &str,
+    title: &str,
+    quantity: &str,
+    unit: &str,
+    rows: &[(String, f64, String)],
+) -> String {
+    let label_w =
+        rows.iter().map(|r| r.0.chars().count()).max().unwrap_or(4) as f64 * CHAR_W + 16.0;
+    let left = label_w.max(90.0);
+    let row_h = 22.0;
+    let top = 40.0;
+    let h = top + rows.len().max(1) as f64 * row_h + 50.0;
+    let max = rows.iter().map(|r| r.1).fold(0.0, f64::max);
+    let axis = Axis::nice(quantity, unit, 0.0, if max > 0.0 { max } else { 1.0 });
+    let note_w = rows.iter().map(|r| r.2.chars().count()).max().unwrap_or(0) as f64 * CHAR_W + 14.0;
+    let plot_w = WIDTH - left - note_w.max(40.0);
+    let px = |v: f64| left + axis.t(v) * plot_w;
+    let mut s = open(id, title, WIDTH, h);
+    let _ = write!(
+        s,
+        r#"<text x="{}" y="20" class="title">{}</text>"#,
+        n(left),
+        escape(title)
+    );
+    let bottom = top + rows.len() as f64 * row_h;
+    for (v, label) in axis.ticks() {
+        let x = px(v);
+        let _ = write!(
+            s,
+            r##"<line x1="{x}" y1="{}" x2="{x}" y2="{}" stroke="#dddddd"/><text x="{x}" y="{}" text-anchor="middle" class="tick">{}</text>"##,
+            n(top),
+            n(bottom),
+            n(bottom + 16.0),
+            escape(&label),
+            x = n(x)
+        );
+    }
+    let _ = write!(
+        s,
+        r#"<text x="{}" y="{}" text-anchor="middle" class="axis">{}</text>"#,
+        n(left + plot_w / 2.0),
+        n(bottom + 38.0),
+        escape(&axis.title())
+    );
+    let _ = write!(
+        s,
+        r#"<g class="plot-area" data-x="{}" data-y="{}" data-width="{}" data-height="{}">"#,
+        n(left),
+        n(top),
+        n(plot_w),
+        n(bottom - top)
+    );
+    for (i, (label, v, note)) in rows.iter().enumerate() {
+        let y = top + i as f64 * row_h;
+        let w = (px(*v) - left).max(0.5);
+        let _ = write!(
+            s,
+            r##"<rect class="data" x="{}" y="{}" width="{}" height="{}" fill="{}" stroke="#222222"><title>{}</title></rect>"##,
+            n(left),
+            n(y + 3.0),
+            n(w),
+            n(row_h - 6.0),
+            if i == 0 { PALETTE[1] } else { PALETTE[0] },
+            escape(&format!("{label}: {note}"))
+        );
+        let _ = write!(
+            s,
+            r#"<text x="{}" y="{}" text-anchor="end">{}</text><text x="{}" y="{}">{}</text>"#,
+            n(left - 6.0),
+            n(y + row_h / 2.0 + 4.0),
+            escape(label),
+            n(left + w + 4.0),
+            n(y + row_h / 2.0 + 4.0),
+            escape(note)
+        );
+    }
+    s.push_str("</g></svg>");
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ticks_step_by_one_two_five() {
+        assert_eq!(tick_step(1.0), 0.2);
+        assert_eq!(tick_step(45.0), 10.0);
+        assert_eq!(tick_step(0.3), 0.05);
+        assert_eq!(tick_step(7.0), 1.0);
+    }
+
+    #[test]
+    fn an_axis_in_volts_takes_a_prefix() {
+        let a = Axis::nice("signal", "V", 0.0, 0.0042);
+        assert_eq!(a.title(), "signal (mV)");
+        let labels: Vec<String> = a.ticks().into_iter().map(|t| t.1).collect();
+        assert!(labels.contains(&"1".to_string()), "{labels:?}");
+    }
+
+    #[test]
+    fn log_ticks_carry_prefixes() {
+        let t: Vec<String> = log_ticks(0.01, 1000.0).into_iter().map(|t| t.1).collect();
+        assert_eq!(t.first().map(String::as_str), Some("10m"));
+        assert!(t.contains(&"1k".to_string()));
+    }
+}

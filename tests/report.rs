@@ -1,0 +1,185 @@
+//! `catena report`: the Markdown and JSON reports of every demo spec as
+//! snapshots, the HTML as a structural summary (tags and plot ids, no
+//! coordinates), byte-identical output across runs and thread counts,
+//! and a folder's reports with their index.
+
+use std::path::Path;
+use std::process::Command;
+
+fn report(spec: &str, format: &str, threads: &str) -> String {
+    let out = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(["report", spec, "--format", format, "--trials", "1000"])
+        .env("RAYON_NUM_THREADS", threads)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("catena runs");
+    assert!(
+        out.status.code().is_some_and(|c| c <= 1),
+        "{spec}: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    redact(&String::from_utf8_lossy(&out.stdout))
+}
+
+/// The spec's git revision moves with every commit, and whether the
+/// working copy differs depends on the checkout.
+fn redact(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    for line in text.lines() {
+        if line.contains("\"revision\"") {
+            out.push_str("    \"revision\": \"[revision]\",");
+        } else if line.contains("\"modified\"") {
+            out.push_str("    \"modified\": \"[state]\",");
+        } else if line.starts_with("| spec revision |") {
+            out.push_str("| spec revision | [revision] |");
+        } else {
+            out.push_str(line);
+        }
+        out.push('\n');
+    }
+    out
+}
+
+fn demo_specs() -> Vec<String> {
+    let mut specs: Vec<String> =
+        std::fs::read_dir(Path::new(env!("CARGO_MANIFEST_DIR")).join("specs"))
+            .expect("specs folder")
+            .filter_map(|e| e.ok())
+            .map(|e| e.path())
+            .filter(|p| p.extension().is_some_and(|x| x == "catena"))
+            .map(|p| format!("specs/{}", p.file_name().unwrap().to_string_lossy()))
+            .collect();
+    specs.sort();
+    specs
+}
+
+fn name(spec: &str) -> String {
+    Path::new(spec)
+        .file_stem()
+        .unwrap()
+        .to_string_lossy()
+        .into_owned()
+}
+
+#[test]
+fn markdown_reports_of_every_demo_spec() {
+    for spec in demo_specs() {
+        let md = report(&spec, "md", "1");
+        // A pull-request comment holds 65,536 characters.
+        assert!(
+            md.chars().count() < 65_000,
+            "{spec}: {} characters",
+            md.chars().count()
+        );
+        insta::assert_snapshot!(format!("report-md-{}", name(&spec)), md);
+    }
+}
+
+#[test]
+fn json_reports_of_every_demo_spec() {
+    for spec in demo_specs() {
+        let json = report(&spec, "json", "1");
+        let doc: serde_json::Value = serde_json::from_str(&json).expect("valid JSON");
+        assert_eq!(doc["schema_version"], 1);
+        insta::assert_snapshot!(format!("report-json-{}", name(&spec)), json);
+    }
+}
+
+/// Tags, classes, ids and text of the HTML with every number inside SVG
+/// attributes dropped: a plotting change shows, as structure.
+fn structure(html: &str) -> String {
+    let mut out = String::new();
+    let mut in_svg = false;
+    for piece in html.split('<').skip(1) {
+        let (tag, text) = piece.split_once('>').unwrap_or((piece, ""));
+        let tag_name = tag.split_whitespace().next().unwrap_or("");
+        if tag_name == "svg" {
+            in_svg = true;
+        }
+        if tag_name == "/svg" {
+            in_svg = false;
+        }
+        if in_svg {
+            let keep: Vec<&str> = tag
+                .split_whitespace()
+                .filter(|a| {
+                    !a.contains('=')
+                        || a.starts_with("class=")
+                        || a.starts_with("id=")
+                        || a.starts_with("text-anchor=")
+                })
+                .collect();
+            out.push_str(&format!("<{}>", keep.join(" ")));
+            if !text.trim().is_empty() {
+                out.push_str(text.trim());
+            }
+            out.push('\n');
+        } else if !tag_name.starts_with("td") && !tag_name.starts_with("/td") {
+            out.push_str(&format!("<{tag_name}>\n"));
+        }
+    }
+    out
+}
+
+#[test]
+fn html_report_structure_of_the_cold_store() {
+    let html = report("specs/cold_store.catena", "html", "1");
+    assert!(!html.contains("<script") && !html.contains(" src=") && !html.contains("<link"));
+    insta::assert_snapshot!("report-html-cold_store", structure(&html));
+}
+
+#[test]
+fn reports_are_byte_identical_across_runs_and_thread_counts() {
+    for format in ["json", "html"] {
+        let one = report("specs/creamery.catena", format, "1");
+        assert_eq!(
+            one,
+            report("specs/creamery.catena", format, "1"),
+            "{format}"
+        );
+        assert_eq!(
+            one,
+            report("specs/creamery.catena", format, "2"),
+            "{format}"
+        );
+    }
+}
+
+#[test]
+fn a_folder_gives_a_report_per_spec_and_an_index() {
+    let out = std::env::temp_dir().join(format!("catena-report-folder-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&out);
+    let status = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(["report", "specs", "--format", "md", "--trials", "200", "-o"])
+        .arg(&out)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .status()
+        .expect("catena runs");
+    assert!(status.code().is_some_and(|c| c <= 1));
+    let index = std::fs::read_to_string(out.join("index.md")).expect("an index");
+    for spec in demo_specs() {
+        let file = format!("{}.md", name(&spec));
+        assert!(out.join(&file).exists(), "{file}");
+        assert!(index.contains(&format!("]({file})")), "{index}");
+        // The plots a Markdown report links are written beside it.
+        let md = std::fs::read_to_string(out.join(&file)).unwrap();
+        for link in md.split("](").skip(1) {
+            let target = link.split(')').next().unwrap();
+            if target.ends_with(".svg") {
+                assert!(out.join(target).exists(), "{target}");
+            }
+        }
+    }
+    let _ = std::fs::remove_dir_all(&out);
+}
+
+#[test]
+fn a_missing_chain_is_a_usage_error() {
+    let out = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(["report", "specs/cold_store.catena", "--chain", "cold_stor"])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("did you mean `cold_store`"));
+}
