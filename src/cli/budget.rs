@@ -1,6 +1,7 @@
 //! `catena budget SPEC`: the error budget by source and by method, per
 //! point, with the noise, the dynamics and the requirement verdicts.
 
+use super::settings;
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
@@ -10,9 +11,7 @@ use super::budget_json::{json, BudgetJson};
 use super::files::{check_one, collect};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
-use crate::analysis::report::{
-    analyse_reusing, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS,
-};
+use crate::analysis::report::{analyse_reusing, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS};
 use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part, soundness};
 use crate::check::CheckedFile;
@@ -49,12 +48,7 @@ pub struct BudgetArgs {
 }
 
 pub fn run(args: BudgetArgs) -> u8 {
-    if args.trials.is_some_and(|t| t > MAX_TRIALS) {
-        errln!("catena: --trials is at most {MAX_TRIALS}");
-        return EXIT_USAGE;
-    }
-    if !(2..=1001).contains(&args.points) {
-        errln!("catena: --points takes 2 to 1001");
+    if !settings::sampling_flags_usable(args.trials, Some(args.points)) {
         return EXIT_USAGE;
     }
     let files = match collect(&args.paths) {

@@ -2,13 +2,14 @@
 //! requirement's achieved value and margin, resolution, response, the
 //! largest contributor and the worst headroom — a trade table.
 
+use super::settings;
 use clap::Args;
 use serde::Serialize;
 
 use super::diff::{evaluate, load, options, ReviewFormat};
 use super::diff_render::{markdown_table, num, plain_table};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS};
 use crate::analysis::review::Outcome;
 
 #[derive(Args, Debug)]
@@ -45,8 +46,7 @@ struct CompareReport {
 }
 
 pub fn run(args: CompareArgs) -> u8 {
-    if args.trials > MAX_TRIALS {
-        errln!("catena: --trials is at most {MAX_TRIALS}");
+    if !settings::sampling_flags_usable(Some(args.trials), None) {
         return EXIT_USAGE;
     }
     let options = options(args.trials, args.seed);

@@ -3,6 +3,7 @@
 //! verdicts, margins, worst points, contributors, headroom, converter
 //! window and alarm trips — told apart from numerical noise.
 
+use super::settings;
 use std::path::{Path, PathBuf};
 
 use clap::{Args, ValueEnum};
@@ -11,7 +12,7 @@ use super::diff_render::{human, markdown, ChainDiff, DiffReport, FileDiff};
 use super::files::{check_configured, check_one, collect, plain_io};
 use super::revision::{self, Snapshot};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS};
 use crate::analysis::review::{
     diff_outcomes, outcome, spec_changes, Direction, Outcome, DEFAULT_THRESHOLD,
 };
@@ -113,8 +114,7 @@ pub(super) fn evaluate(
 }
 
 pub fn run(args: DiffArgs) -> u8 {
-    if args.trials > MAX_TRIALS {
-        errln!("catena: --trials is at most {MAX_TRIALS}");
+    if !settings::sampling_flags_usable(Some(args.trials), None) {
         return EXIT_USAGE;
     }
     if !(args.threshold.is_finite() && args.threshold >= 0.0) {

@@ -1,6 +1,7 @@
 //! `catena report SPEC`: the document a design review reads, as JSON,
 //! Markdown or self-contained HTML, one model rendered three ways.
 
+use super::settings;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -10,7 +11,7 @@ use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::ranges::DEFAULT_MARGIN;
-use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
+use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS};
 use crate::analysis::soundness;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Findings, Severity};
@@ -52,12 +53,7 @@ pub struct ReportArgs {
 }
 
 pub fn run(args: ReportArgs) -> u8 {
-    if args.trials.is_some_and(|t| t > MAX_TRIALS) {
-        errln!("catena: --trials is at most {MAX_TRIALS}");
-        return EXIT_USAGE;
-    }
-    if !(2..=1001).contains(&args.points) {
-        errln!("catena: --points takes 2 to 1001");
+    if !settings::sampling_flags_usable(args.trials, Some(args.points)) {
         return EXIT_USAGE;
     }
     let format = args.format.unwrap_or_else(|| {

@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
 use crate::analysis::ranges::DEFAULT_MARGIN;
-use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS};
+use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS, MAX_TRIALS};
 use crate::config::{self, Config, Set};
 use crate::diagnostics::Finding;
 use crate::model::DEFAULT_REFERENCE_K;
@@ -143,3 +143,17 @@ pub fn describe(
 
 /// The built-in values, for flags and configurations that set none.
 pub const DEFAULTS: (f64, usize, u64) = (DEFAULT_MARGIN, DEFAULT_TRIALS, DEFAULT_SEED);
+
+/// Whether the sampling flags the analysing commands share are in range;
+/// the one that is not is reported on standard error.
+pub fn sampling_flags_usable(trials: Option<usize>, points: Option<usize>) -> bool {
+    if trials.is_some_and(|t| t > MAX_TRIALS) {
+        errln!("catena: --trials is at most {MAX_TRIALS}");
+        return false;
+    }
+    if points.is_some_and(|p| !(2..=1001).contains(&p)) {
+        errln!("catena: --points takes 2 to 1001");
+        return false;
+    }
+    true
+}
