@@ -145,3 +145,165 @@ fn each_channel_gets_its_share_of_the_rate() {
     assert_eq!(chain["dynamics"]["rate_hz"], 20.0);
     assert_eq!(chain["noise"]["enbw_hz"], 10.0);
 }
+
+/// The Pt100 of `ratio_rtd.catena` is read as the ratio of its channel's
+/// code to the reference resistor's, both on one converter: the code
+/// ratio is R_t / R_ref whatever the current, the converter's reference
+/// or its gain error, so those three sources move the reading by nothing
+/// (to rounding, 1e-9 K here). What remains is R_ref's ± 0.1 %: the
+/// firmware takes R_t = ratio × 100 Ω, so R_ref = 100 Ω (1 ± δ) reads
+/// R_t / (1 ± δ), and the error is T(R_t / (1 ± δ)) − T(R_t) through the
+/// IEC 60751 curve (t ≥ 0: R = R0 (1 + A t + B t²)). One rectangular
+/// source of half-width a gives GUM u = a / √3 (a to first order: R_t δ
+/// over the curve's slope R0 (A + 2 B t)) and a Monte Carlo 95 %
+/// interval from δ at ∓ 0.95 of its limit (closed forms). Read on one channel against the
+/// converter's ± 1 % reference instead (`one_channel_rtd.catena`), the
+/// reference and the current each move it by about 1 % of R_t: 3.7 K at
+/// 100 °C.
+#[test]
+fn a_ratio_of_two_channels_cancels_the_shared_reference() {
+    let (a, b) = (3.9083e-3, -5.775e-7);
+    let t_of = |r: f64| (-a + (a * a - 4.0 * b * (1.0 - r / 100.0)).sqrt()) / (2.0 * b);
+    let ratio = run(&[
+        "budget",
+        "ratio_rtd.catena",
+        "--format",
+        "json",
+        "--points",
+        "3",
+        "--trials",
+        "200000",
+    ]);
+    let one = budget("one_channel_rtd.catena");
+    for k in 0..3 {
+        let p = &ratio["points"][k];
+        let t = p["measurand"].as_f64().unwrap();
+        let r_t = 100.0 * (1.0 + a * t + b * t * t);
+        let delta = 1e-3;
+        let closed = (t_of(r_t / (1.0 - delta)) - t)
+            .abs()
+            .max((t_of(r_t / (1.0 + delta)) - t).abs());
+        let got = contribution(&ratio, k, "rref.r");
+        assert!(
+            (got - closed).abs() <= 1e-4 * closed,
+            "{t} degC: rref.r {got} against {closed}"
+        );
+        for cancelled in ["conv.vref", "drive.current", "conv.gain_error"] {
+            let c = contribution(&ratio, k, cancelled);
+            assert!(c < 1e-9, "{t} degC: {cancelled} moves the ratio by {c}");
+            let alone = contribution(&one, k, cancelled);
+            let floor = if cancelled == "conv.gain_error" {
+                0.1
+            } else {
+                2.5
+            };
+            assert!(alone > floor, "{t} degC: one channel, {cancelled} {alone}");
+        }
+        // GUM: the one rectangular source through the curve's slope
+        // (first order, JCGM 100:2008 §5.1.2), and quantization.
+        let q = p["sources"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|s| s["id"] == "quantization")
+            .map(|s| s["standard_uncertainty"].as_f64().unwrap())
+            .unwrap_or(0.0);
+        let slope = 100.0 * (a + 2.0 * b * t);
+        let linear = r_t * delta / slope;
+        let u = (linear * linear / 3.0 + q * q).sqrt();
+        let gum = p["gum_standard"].as_f64().unwrap();
+        assert!(
+            (gum - u).abs() <= 1e-3 * u,
+            "{t} degC: GUM {gum} against {u}"
+        );
+        // Monte Carlo: the ends of a rectangle's probabilistically
+        // symmetric 95 % interval, δ at ∓ 0.95 of its limit through the
+        // curve, within its numerical width and the quantization's share.
+        let mc = &p["monte_carlo_95"];
+        let width = p["monte_carlo_numerical"].as_f64().unwrap() + 3.0 * q;
+        let ends = [
+            t_of(r_t / (1.0 + 0.95 * delta)) - t,
+            t_of(r_t / (1.0 - 0.95 * delta)) - t,
+        ];
+        for (k, want) in ends.into_iter().enumerate() {
+            let end = mc[k].as_f64().unwrap();
+            assert!(
+                (end - want).abs() <= width,
+                "{t} degC: Monte Carlo end {end} against {want}"
+            );
+        }
+    }
+}
+
+/// Three cells summed (`sum_cells.catena`): each cell's ± 0.1 %
+/// sensitivity acts on its third of the load, m a / 3 = 0.4 kg at
+/// 1200 kg, independently; the converter's ± 0.01 % gain error acts on
+/// all three codes at once, m a = 0.12 kg as one source (three
+/// independent ones would be 0.04 kg each); the supply, which is the
+/// reference, cancels. Worst case 3 × 0.4 + 0.12 kg plus quantization;
+/// GUM u = √(3 (0.4/√3)² + (0.12/√3)²) = 0.40596 kg with quantization;
+/// Monte Carlo's 95 % interval of the sum of the four rectangles,
+/// from their convolution on a fine grid (closed forms, derived here).
+#[test]
+fn summed_cells_are_independent_and_their_converter_shared() {
+    let v = run(&[
+        "budget",
+        "sum_cells.catena",
+        "--format",
+        "json",
+        "--points",
+        "3",
+        "--trials",
+        "200000",
+    ]);
+    let p = &v["points"][2];
+    assert_eq!(p["measurand"], 1200.0);
+    for cell in ["cell_a", "cell_b", "cell_c"] {
+        let c = contribution(&v, 2, &format!("{cell}.sensitivity"));
+        assert!((c - 0.4).abs() < 1e-9, "{cell}: {c}");
+    }
+    let g = contribution(&v, 2, "conv.gain_error");
+    assert!((g - 0.12).abs() < 1e-9, "gain error {g}");
+    assert!(contribution(&v, 2, "supply.voltage") < 1e-9);
+    let q = contribution(&v, 2, "quantization");
+    let worst = p["worst_case"].as_f64().unwrap();
+    assert!((worst - (1.32 + q)).abs() < 1e-9, "worst case {worst}");
+    let u = (3.0 * 0.4f64.powi(2) / 3.0 + 0.12f64.powi(2) / 3.0 + q * q / 3.0).sqrt();
+    let gum = p["gum_standard"].as_f64().unwrap();
+    assert!((gum - u).abs() <= 1e-4 * u, "GUM {gum} against {u}");
+    let end = rectangles_95(&[0.4, 0.4, 0.4, 0.12]);
+    let width = p["monte_carlo_numerical"].as_f64().unwrap() + q;
+    let mc = &p["monte_carlo_95"];
+    for e in [mc[0].as_f64().unwrap(), mc[1].as_f64().unwrap()] {
+        assert!(
+            (e.abs() - end).abs() <= width,
+            "Monte Carlo end {e} against ± {end}"
+        );
+    }
+}
+
+/// The symmetric 95 % half-width of a sum of independent rectangles of
+/// these half-widths: their densities convolved on a grid.
+fn rectangles_95(halves: &[f64]) -> f64 {
+    let step = 1e-4;
+    let mut density = vec![1.0];
+    for &h in halves {
+        let n = (2.0 * h / step).round() as usize + 1;
+        let mut next = vec![0.0; density.len() + n - 1];
+        for (i, d) in density.iter().enumerate() {
+            for x in &mut next[i..i + n] {
+                *x += d / n as f64;
+            }
+        }
+        density = next;
+    }
+    let total: f64 = density.iter().sum();
+    let mid = (density.len() - 1) / 2;
+    let mut inside = density[mid];
+    let mut k = 0;
+    while inside < 0.95 * total {
+        k += 1;
+        inside += density[mid - k] + density[mid + k];
+    }
+    k as f64 * step
+}

@@ -6,6 +6,7 @@
 
 use super::stages::signal_path;
 use crate::eval::{node, Env, Node, NoiseBasis, Plan, Signal};
+use crate::model::typed::CombineOp;
 use crate::physics::adc::peak_to_peak_noise;
 use crate::physics::noise::{johnson_voltage_density, rms_over_bandwidth, rms_with_flicker};
 
@@ -226,6 +227,49 @@ fn amplifier_terms(
     terms
 }
 
+/// The noise terms of one converter's path, referred to its input and
+/// scaled by `scale` to the main converter's: its own noise and thermal
+/// noise, and each amplifier's, `gain_after` to the converter.
+#[allow(clippy::too_many_arguments)]
+fn branch_terms(
+    plan: &Plan,
+    adc: usize,
+    signals: &[Signal],
+    env: &Env,
+    enbw_hz: Option<f64>,
+    per_code: f64,
+    scale: f64,
+) -> Vec<NoiseTerm> {
+    let mut terms = Vec::new();
+    // Gain from each amplifier's input to the converter's input.
+    let mut gain_after = 1.0;
+    for n in signal_path(plan, adc) {
+        match &plan.nodes[n] {
+            Node::Adc(node::Adc { input, .. }) => {
+                // One code at the input is `per_code` volts.
+                terms.extend(converter_terms(
+                    plan, n, *input, signals, env, enbw_hz, per_code,
+                ));
+            }
+            Node::Amplifier(node::Amplifier { gain, input, .. }) => {
+                gain_after *= plan.nominal[*gain];
+                if let Some(bw) = enbw_hz {
+                    terms.extend(amplifier_terms(
+                        plan, n, *input, signals, env, bw, gain_after,
+                    ));
+                }
+            }
+            _ => {}
+        }
+    }
+    if scale != 1.0 {
+        for t in &mut terms {
+            t.rms_v *= scale;
+        }
+    }
+    terms
+}
+
 /// Noise at `env`, from the nominal chain. `slope` is the converter-input
 /// voltage per measurand unit there (V per SI unit), `lsb` one code in
 /// measurand units.
@@ -235,28 +279,33 @@ pub fn noise(plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
         .evaluate(&plan.nominal, env)
         .map(|o| o.signals)
         .unwrap_or_default();
-    let mut terms = Vec::new();
-    // Gain from each amplifier's input to the converter's input.
-    let mut gain_after = 1.0;
-    for n in signal_path(plan, plan.adc) {
-        match &plan.nodes[n] {
-            Node::Adc(node::Adc { input, .. }) => {
-                // One code at the input is `lsb` (measurand per code)
-                // times `slope` (volts per measurand).
-                let per_code = lsb * slope.abs();
-                terms.extend(converter_terms(
-                    plan, n, *input, &signals, env, enbw_hz, per_code,
-                ));
-            }
-            Node::Amplifier(node::Amplifier { gain, input, .. }) => {
-                gain_after *= plan.nominal[*gain];
-                if let Some(bw) = enbw_hz {
-                    terms.extend(amplifier_terms(
-                        plan, n, *input, &signals, env, bw, gain_after,
-                    ));
+    let per_code = lsb * slope.abs();
+    let mut terms = branch_terms(plan, plan.adc, &signals, env, enbw_hz, per_code, 1.0);
+    // The channels a conversion combines with the main one: their own
+    // paths, referred to the main converter's input (as added volts in a
+    // sum; in a ratio, the denominator's relative noise is the same
+    // relative noise of the numerator).
+    if let Some(Node::Adc(node::Adc {
+        combine: Some((op, others)),
+        input,
+        ..
+    })) = plan.nodes.get(plan.adc)
+    {
+        let volts = |n: usize| match signals.get(n) {
+            Some(Signal::Voltage { v, .. }) => *v,
+            _ => 0.0,
+        };
+        for &other in others {
+            let scale = match (op, &plan.nodes[other]) {
+                (CombineOp::Sum, _) => 1.0,
+                (CombineOp::Ratio, Node::Adc(o)) if volts(o.input) != 0.0 => {
+                    (volts(*input) / volts(o.input)).abs()
                 }
-            }
-            _ => {}
+                (CombineOp::Ratio, _) => 0.0,
+            };
+            terms.extend(branch_terms(
+                plan, other, &signals, env, enbw_hz, per_code, scale,
+            ));
         }
     }
     // A fold from +0: an empty float `sum` is −0, whose root is −0.

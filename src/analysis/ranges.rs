@@ -332,6 +332,20 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
             Signal::Voltage { rs, .. } => rs,
             _ => 0.0,
         },
+        // A code a conversion combines with other channels' is judged
+        // before it is combined: the input range is the channel's own.
+        (
+            Node::Adc(node::Adc {
+                bits,
+                polarity,
+                combine: Some(_),
+                ..
+            }),
+            _,
+        ) => plan
+            .converter_own_code(node, values, env, s)
+            .and_then(|exact| adc::input_of_code(exact, *bits, *polarity).ok())
+            .unwrap_or(0.0),
         (Node::Adc(node::Adc { bits, polarity, .. }), _) => match s[node] {
             Signal::Code { exact, .. } => {
                 adc::input_of_code(exact, *bits, *polarity).unwrap_or(0.0)

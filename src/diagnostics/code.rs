@@ -169,6 +169,9 @@ codes! {
     M261 => Error, "reference wired to a channel";
     M262 => Warning, "one signal read by two channels";
     M263 => Error, "converter reference that is not a voltage";
+    M264 => Error, "sum of channels of different quantities";
+    M265 => Error, "channel used twice";
+    M266 => Error, "combination of a stage that is not a channel";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";

@@ -11,7 +11,7 @@ use super::plan::{Env, EvalError, NodeId, Plan, SenseError, Senses};
 use super::run::{within, MAX_NODES};
 use super::stated::Stated;
 use crate::model::ports::Port;
-use crate::model::typed::{ColdJunction, StageModel};
+use crate::model::typed::{ColdJunction, CombineOp, StageModel};
 use crate::model::{Chain, Measurand};
 use crate::units::ZERO_CELSIUS_K;
 
@@ -114,6 +114,12 @@ fn evaluation_order(chain: &Chain, strings: &[Vec<usize>]) -> Result<Vec<usize>,
             graph.add_edge(ids[pair[1]], ids[pair[0]], ());
         }
     }
+    // A combined code needs the other channels' codes first.
+    for si in 0..chain.stages.len() {
+        for other in combination(chain, si).map(|(_, o)| o).unwrap_or_default() {
+            graph.add_edge(ids[other], ids[si], ());
+        }
+    }
     // A channel reads its converter's reference.
     for si in 0..chain.stages.len() {
         let Some(conv) = converter_of(chain, si) else {
@@ -175,6 +181,7 @@ fn lower_nodes<'a>(
         name: "",
         owner: "",
         shared: false,
+        combine: None,
         inputs: Inputs::default(),
         senses: Senses::Measurand,
         feeds_cj: false,
@@ -196,6 +203,8 @@ fn lower_nodes<'a>(
             _ => (stage.name.as_str(), false),
         };
         cx.inputs = inputs(chain, si, node_of);
+        cx.combine = combination(chain, si)
+            .map(|(op, others)| (op, others.into_iter().map(node_of).collect()));
         cx.senses = if cold_junction_sensors.contains(&stage.name.as_str()) {
             Senses::ColdJunction
         } else {
@@ -229,6 +238,26 @@ fn inputs(chain: &Chain, si: usize, node_of: &impl Fn(usize) -> NodeId) -> Input
         cj: into(Port::Cj).next(),
         arms: into(Port::Arm).collect(),
     }
+}
+
+/// The channels a conversion combines with converter stage `si`'s code
+/// (`sum`, `ratio`), by stage index.
+fn combination(chain: &Chain, si: usize) -> Option<(CombineOp, Vec<usize>)> {
+    chain.connections.iter().find_map(|c| {
+        if c.from != si || c.to_port != Port::In {
+            return None;
+        }
+        let Some(StageModel::Convert(convert)) = &chain.stages[c.to].typed else {
+            return None;
+        };
+        let combine = convert.combine.as_ref()?;
+        let others = combine
+            .channels
+            .iter()
+            .filter_map(|name| chain.stages.iter().position(|s| &s.name == name))
+            .collect();
+        Some((combine.op, others))
+    })
 }
 
 /// A channel's converter, by stage index.

@@ -4,6 +4,7 @@
 use super::convert::{calibration_env, Calibrated, Conversion, Firmware};
 use super::node;
 use super::plan::{ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal};
+use crate::model::typed::CombineOp;
 use crate::physics::thermocouple;
 use crate::units::ZERO_CELSIUS_K;
 
@@ -335,11 +336,23 @@ impl Plan {
             Reach::Electronics(self.adc + 1),
             Mode::CODES,
         )?;
+        let volts = |n: NodeId| match signals[n] {
+            Signal::Voltage { v, .. } => v,
+            _ => 0.0,
+        };
         let v = match &self.nodes[self.adc] {
-            Node::Adc(node::Adc { input, .. }) => match signals[*input] {
-                Signal::Voltage { v, .. } => v,
-                _ => 0.0,
-            },
+            // Channels added in the conversion: their inputs add as well.
+            Node::Adc(node::Adc {
+                input,
+                combine: Some((CombineOp::Sum, others)),
+                ..
+            }) => others
+                .iter()
+                .fold(volts(*input), |acc, &o| match &self.nodes[o] {
+                    Node::Adc(node::Adc { input, .. }) => acc + volts(*input),
+                    _ => acc,
+                }),
+            Node::Adc(node::Adc { input, .. }) => volts(*input),
             _ => 0.0,
         };
         match signals[self.adc] {

@@ -260,3 +260,198 @@ pub fn reference_not_voltage(
         target.name
     ))
 }
+
+/// Each conversion that combines channels (`sum`, `ratio`): every named
+/// stage is another channel of the converter its input comes from (M266),
+/// used once and converted nowhere else (M265), and a sum adds channels
+/// that read the measurand with sensors of one quantity (M264).
+pub fn check_combinations(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    findings: &mut Findings,
+) {
+    for (ci, stage) in stages.iter().enumerate() {
+        let Some(StageModel::Convert(convert)) = &stage.typed else {
+            continue;
+        };
+        if convert.combine.is_none() {
+            continue;
+        }
+        let Some(input) = connections
+            .iter()
+            .find(|c| c.to == ci && c.to_port == Port::In)
+            .map(|c| c.from)
+        else {
+            continue;
+        };
+        let named = combined_names(stage);
+        let mut members = vec![input];
+        for (name, span) in &named {
+            match member(stages, connections, input, &members, ci, name) {
+                Ok(m) => members.push(m),
+                Err(finding) => findings.push(finding(file, stage, name, *span)),
+            }
+        }
+        if stage.param("sum").is_some() && members.len() == named.len() + 1 {
+            if let Some(f) = mixed_quantities(file, stages, connections, stage, &members) {
+                findings.push(f);
+            }
+        }
+    }
+}
+
+/// The stages a `sum` or `ratio` line names, with where.
+pub fn combined_names(stage: &Stage) -> Vec<(String, Span)> {
+    match (stage.param("sum"), stage.param("ratio")) {
+        (Some(ParamValue::StageRefs(names)), _) => names.clone(),
+        (_, Some(ParamValue::StageRef { name, span })) => vec![(name.clone(), *span)],
+        _ => Vec::new(),
+    }
+}
+
+type Reject = fn(&Arc<SourceFile>, &Stage, &str, Span) -> Finding;
+
+/// The stage a combination names, when it is another channel of the
+/// input's converter that nothing else reads.
+fn member(
+    stages: &[Stage],
+    connections: &[Connection],
+    input: usize,
+    so_far: &[usize],
+    convert: usize,
+    name: &str,
+) -> Result<usize, Reject> {
+    let scan = |i: usize| match channel_of(&stages[i]) {
+        Some((conv, _)) => stages.iter().position(|s| s.name == conv),
+        None => (stages[i].kind == StageKind::Adc).then_some(i),
+    };
+    let m = stages
+        .iter()
+        .position(|s| s.name == name)
+        .ok_or(not_a_channel as Reject)?;
+    if scan(m).is_none() || scan(m) != scan(input) {
+        return Err(not_a_channel);
+    }
+    if so_far.contains(&m) || connections.iter().any(|c| c.from == m && c.to != convert) {
+        return Err(used_twice);
+    }
+    Ok(m)
+}
+
+/// M266: a combination names a stage that is not another channel of the
+/// converter the conversion reads.
+fn not_a_channel(file: &Arc<SourceFile>, convert: &Stage, name: &str, span: Span) -> Finding {
+    Finding::new(
+        Code::M266,
+        file,
+        format!(
+            "`{}` combines `{name}`, which is not a channel of the converter it reads",
+            convert.name
+        ),
+    )
+    .label(span, "not a channel of that converter")
+    .help("name channels of the converter wired into this conversion: `adc` stages with `channel_of` it (or the converter itself), whose inputs carry the other signals")
+}
+
+/// M265: a channel combined twice, or combined and converted elsewhere.
+fn used_twice(file: &Arc<SourceFile>, convert: &Stage, name: &str, span: Span) -> Finding {
+    Finding::new(
+        Code::M265,
+        file,
+        format!(
+            "channel `{name}` is used twice: `{}` combines it, and it is already read",
+            convert.name
+        ),
+    )
+    .label(span, "used again here")
+    .help(format!(
+        "name each channel once, and neither the conversion's own input nor a channel wired to another stage; give `{name}` a channel of its own if both are meant"
+    ))
+}
+
+/// What a sensor measures, as far as adding its channel to another's goes.
+fn quantity(stage: &Stage) -> Option<&'static str> {
+    match stage.model? {
+        "rtd" | "thermocouple" | "thermistor" | "ic_voltage" | "ic_current" => Some("temperature"),
+        "strain_gauge" | "transducer" => Some("a load or strain"),
+        _ => None,
+    }
+}
+
+/// The sensors of the measurand upstream of `start` (a cold junction's
+/// sensor, a fixed resistor and an excitation sense nothing).
+fn sensors_upstream(stages: &[Stage], connections: &[Connection], start: usize) -> Vec<usize> {
+    let junctions: Vec<&str> = stages
+        .iter()
+        .filter_map(|s| match s.param("cold_junction") {
+            Some(ParamValue::StageRef { name, .. }) => Some(name.as_str()),
+            _ => None,
+        })
+        .collect();
+    let mut seen = vec![false; stages.len()];
+    let mut todo = vec![start];
+    let mut found = Vec::new();
+    while let Some(i) = todo.pop() {
+        if std::mem::replace(&mut seen[i], true) {
+            continue;
+        }
+        if stages[i].kind == StageKind::Sensor
+            && quantity(&stages[i]).is_some()
+            && !junctions.contains(&stages[i].name.as_str())
+        {
+            found.push(i);
+        }
+        todo.extend(
+            connections
+                .iter()
+                .filter(|c| c.to == i && c.to_port != Port::Ref)
+                .map(|c| c.from),
+        );
+    }
+    found.sort();
+    found
+}
+
+/// M264: a sum whose channels do not all read the measurand with sensors
+/// of one quantity.
+fn mixed_quantities(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    convert: &Stage,
+    members: &[usize],
+) -> Option<Finding> {
+    let read: Vec<(usize, Option<&'static str>)> = members
+        .iter()
+        .map(|&m| {
+            let sensors = sensors_upstream(stages, connections, m);
+            let q = sensors.first().and_then(|&s| quantity(&stages[s]));
+            let one = sensors.iter().all(|&s| quantity(&stages[s]) == q);
+            (m, if one { q } else { None })
+        })
+        .collect();
+    let first = read[0].1;
+    let odd = read
+        .iter()
+        .find(|(_, q)| q.is_none() || *q != first)
+        .copied()?;
+    let what = |q: Option<&'static str>| q.unwrap_or("no sensor of the measurand");
+    Some(
+        Finding::new(
+            Code::M264,
+            file,
+            format!(
+                "`{}` sums channels of different quantities: `{}` reads {}, `{}` reads {}",
+                convert.name,
+                stages[read[0].0].name,
+                what(first),
+                stages[odd.0].name,
+                what(odd.1)
+            ),
+        )
+        .label(convert.name_span, "the sum")
+        .label(stages[odd.0].name_span, what(odd.1).to_string())
+        .help("a sum adds channels that each carry part of the measurand (load cells under one hopper); convert another quantity in a chain of its own, or feed a cold junction's reading into `reading.cj`"),
+    )
+}

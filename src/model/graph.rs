@@ -685,11 +685,13 @@ fn check_use(
         if stage.incomplete {
             continue;
         }
-        let touched = feeds_any[i] || fed[i] || junctions.contains(stage.name.as_str());
+        let named = junctions.contains(stage.name.as_str());
+        let touched = feeds_any[i] || fed[i] || named;
         if !touched {
             findings.push(unused(file, stage));
         } else if stage.kind != StageKind::Convert
             && !feeds_any[i]
+            && !(named && stage.kind == StageKind::Adc)
             && outputs[i] != SignalKind::Reading
         {
             findings.push(goes_nowhere(file, stage));
@@ -767,14 +769,23 @@ fn not_one_ending(
 
 /// The names every `cold_junction` line refers to: those stages count as
 /// used.
-fn cold_junctions(stages: &[Stage]) -> HashSet<&str> {
-    stages
+fn cold_junctions(stages: &[Stage]) -> HashSet<String> {
+    let mut named: HashSet<String> = stages
         .iter()
         .filter_map(|s| match s.param("cold_junction") {
-            Some(ParamValue::StageRef { name, .. }) => Some(name.as_str()),
+            Some(ParamValue::StageRef { name, .. }) => Some(name.clone()),
             _ => None,
         })
-        .collect()
+        .collect();
+    // The channels a conversion combines are read by it.
+    for s in stages {
+        named.extend(
+            super::channels::combined_names(s)
+                .into_iter()
+                .map(|(n, _)| n),
+        );
+    }
+    named
 }
 
 /// A thermocouple's `cold_junction <stage>` must name a sensor.

@@ -240,6 +240,7 @@ impl Reader<'_> {
                 }
                 _ => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
             },
+            Shape::StageNames => self.stage_names(shape),
             Shape::StageName => match self.next().cloned() {
                 Some(Value::Word(w)) => Ok(ParamValue::StageRef {
                     name: w.name,
@@ -247,6 +248,30 @@ impl Reader<'_> {
                 }),
                 _ => Err(self.missing("the name of a converter stage", shape)),
             },
+        }
+    }
+
+    /// `a, b, c`: one or more stage names, separated by commas.
+    fn stage_names(&mut self, shape: Shape) -> Checked<ParamValue> {
+        let mut names = Vec::new();
+        loop {
+            match self.next().cloned() {
+                Some(Value::Word(w)) => names.push((w.name, w.span)),
+                Some(v) => {
+                    return Err(self.malformed(
+                        v.span(),
+                        format!("`{}` takes stage names separated by commas", self.name),
+                        shape,
+                    ))
+                }
+                None => return Err(self.missing("the name of a channel", shape)),
+            }
+            match self.peek() {
+                Some(Value::Comma(_)) => {
+                    self.next();
+                }
+                _ => return Ok(ParamValue::StageRefs(names)),
+            }
         }
     }
 
@@ -738,6 +763,7 @@ fn usage(name: &str, shape: Shape) -> String {
         Shape::Calibrate => format!("{name} offset at <point> ± <uncertainty>` or `{name} two_point at <point>, <point> ± <uncertainty>"),
         Shape::LimitOrStage(e) => format!("{name} ± {}` or `{name} <stage name>", cx_free(e)),
         Shape::StageName => format!("{name} <stage name>"),
+        Shape::StageNames => format!("{name} <stage name>, <stage name>"),
         Shape::ThermocoupleType => format!("{name} type K"),
     }
 }

@@ -3,9 +3,9 @@
 //! Adding a parameter is one line here (and its use in `physics`).
 
 use super::typed::{
-    Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction,
-    ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent, IcVoltage,
-    Resistor, Rtd, RtdCurveName, Sampling, Source, StageModel, StrainGauge, Thermistor,
+    Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction, Combine,
+    CombineOp, ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent,
+    IcVoltage, Resistor, Rtd, RtdCurveName, Sampling, Source, StageModel, StrainGauge, Thermistor,
     ThermistorLaw, Thermocouple, Transducer,
 };
 use super::value::{Measure, ParamValue, ResolvedParam, Tolerance};
@@ -72,6 +72,8 @@ pub enum Shape {
     LimitOrStage(Expect),
     /// The name of another stage.
     StageName,
+    /// Names of other stages, separated by commas.
+    StageNames,
     /// `type K`
     ThermocoupleType,
     /// A model line with no values.
@@ -400,6 +402,7 @@ static MODELS: &[ModelSpec] = &[
             p("zero_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("r", toleranced(OHM)).positive(),
+            p("share", plain(Expect::Ratio)).positive(),
             TIME_CONSTANT,
         ],
         exclusive: &[],
@@ -573,8 +576,10 @@ static MODELS: &[ModelSpec] = &[
                 },
             ),
             p("calibrate", Shape::Calibrate),
+            p("sum", Shape::StageNames),
+            p("ratio", Shape::StageName),
         ],
-        exclusive: &[],
+        exclusive: &[("sum", "ratio")],
         one_of: &[],
         together: &[],
         read: read_convert,
@@ -835,7 +840,10 @@ fn read_strain_gauge(r: &Reader<'_>) -> Option<StageModel> {
 }
 
 fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
-    let (sensitivity, sensitivity_dim, full_scale) = r.at("sensitivity")?;
+    let (sensitivity, sensitivity_dim, rated) = r.at("sensitivity")?;
+    // A cell carrying a share of the measurand reaches its rated load at
+    // the measurand's rated / share.
+    let full_scale = rated / r.value("share").unwrap_or(1.0);
     let linearity = r
         .choice("linearity", |w| match w {
             "terminal" => Some(LinearityLine::Terminal),
@@ -1015,10 +1023,22 @@ fn read_convert(r: &Reader<'_>) -> Option<StageModel> {
         Some(_) => return None,
         None => None,
     };
+    let combine = match (r.get("sum"), r.get("ratio")) {
+        (Some(ParamValue::StageRefs(names)), _) => Some(Combine {
+            op: CombineOp::Sum,
+            channels: names.iter().map(|(n, _)| n.clone()).collect(),
+        }),
+        (_, Some(ParamValue::StageRef { name, .. })) => Some(Combine {
+            op: CombineOp::Ratio,
+            channels: vec![name.clone()],
+        }),
+        _ => None,
+    };
     Some(StageModel::Convert(Convert {
         method,
         average: r.count("average"),
         calibrate,
+        combine,
     }))
 }
 

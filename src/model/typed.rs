@@ -382,6 +382,25 @@ pub struct Convert {
     pub method: ConversionMethod,
     pub average: Option<u32>,
     pub calibrate: Option<CalibrationMethod>,
+    /// The code it converts is its input's combined with other channels'
+    /// of the same converter (`sum`, `ratio`).
+    pub combine: Option<Combine>,
+}
+
+/// Codes of several channels combined into the one a conversion reads.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Combine {
+    pub op: CombineOp,
+    /// The channels combined with the conversion's input, by stage name.
+    pub channels: Vec<String>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CombineOp {
+    /// The codes added: cells sharing a load.
+    Sum,
+    /// The input's code over the named channel's, in codes of full scale.
+    Ratio,
 }
 
 impl StageModel {

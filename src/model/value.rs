@@ -95,6 +95,8 @@ pub enum ParamValue {
         name: String,
         span: Span,
     },
+    /// Other stages of the chain, by name (`sum cell_b, cell_c`).
+    StageRefs(Vec<(String, Span)>),
 }
 
 /// A checked parameter and where it was written (a spec or a parts file).

@@ -286,6 +286,12 @@ fn bare(value: &ParamValue) -> ParamValue {
             name: name.clone(),
             span: Span::default(),
         },
+        ParamValue::StageRefs(names) => ParamValue::StageRefs(
+            names
+                .iter()
+                .map(|(n, _)| (n.clone(), Span::default()))
+                .collect(),
+        ),
         ParamValue::Flag
         | ParamValue::Range { .. }
         | ParamValue::Word(_)

@@ -4,7 +4,7 @@
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
-use crate::model::typed::{self, AdcInput};
+use crate::model::typed::{self, AdcInput, CombineOp};
 use crate::model::value::Tolerance;
 use crate::physics::adc::{self, Polarity};
 use crate::units::Dim;
@@ -30,6 +30,8 @@ pub struct Adc {
     pub input: NodeId,
     /// The current its input sources into an open sensor, A.
     pub burnout: Option<f64>,
+    /// The other channels' codes a conversion combines with this one's.
+    pub combine: Option<(CombineOp, Vec<NodeId>)>,
 }
 
 /// A converter's offset as it was stated: a voltage at its input, or a
@@ -95,6 +97,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             .input
             .ok_or_else(|| cx.not_invertible("no input"))?,
         burnout: m.burnout,
+        combine: cx.combine.take(),
     })
 }
 
@@ -132,7 +135,47 @@ impl Adc {
         if vr <= 0.0 || !vr.is_finite() {
             return Err(run.numeric("the reference voltage is zero or negative"));
         }
-        Ok(self.code(run, v, vr))
+        Ok(self.combined(run, self.code(run, v, vr)))
+    }
+
+    /// Its code combined with the other channels' a conversion reads
+    /// with it: added (`sum`), or as a ratio scaled to its own codes of
+    /// full scale (`ratio`), rounded as a code.
+    #[inline(always)]
+    fn combined(&self, run: &Run<'_>, own: Signal) -> Signal {
+        let Some((op, others)) = &self.combine else {
+            return own;
+        };
+        let Signal::Code { exact, code } = own else {
+            return own;
+        };
+        let (mut exact, mut code_f) = (exact, code as f64);
+        for &n in others {
+            let Signal::Code { exact: e, code: c } = run.s[n] else {
+                return Signal::None;
+            };
+            match op {
+                CombineOp::Sum => {
+                    exact += e;
+                    code_f += c as f64;
+                }
+                CombineOp::Ratio => {
+                    exact = exact / e * self.per_ref;
+                    code_f = code_f / c as f64 * self.per_ref;
+                }
+            }
+        }
+        if !exact.is_finite() {
+            return Signal::None;
+        }
+        Signal::Code {
+            exact,
+            code: if code_f.is_finite() {
+                code_f.round() as i64
+            } else {
+                0
+            },
+        }
     }
 
     /// Its code behind a fault upstream, or with one of its own. Without a
@@ -161,7 +204,7 @@ impl Adc {
             None => self.reference_voltage(run.plan, run.values, run.env, run.s),
         };
         Ok(if vr > 0.0 && vr.is_finite() {
-            Faulted::Signal(self.code(run, v, vr))
+            Faulted::Signal(self.combined(run, self.code(run, v, vr)))
         } else if v > 0.0 {
             rail(hi)
         } else if v < 0.0 {
@@ -174,7 +217,11 @@ impl Adc {
     /// The code for input `v` against reference `vr`.
     #[inline(always)]
     fn code(&self, run: &Run<'_>, v: f64, vr: f64) -> Signal {
-        let values = run.values;
+        self.code_of(run.values, v, vr)
+    }
+
+    #[inline(always)]
+    fn code_of(&self, values: &[f64], v: f64, vr: f64) -> Signal {
         let gain = self.pga.map(|g| values[g]).unwrap_or(1.0)
             * (1.0 + self.gain_error.map(|g| values[g]).unwrap_or(0.0));
         let (off, off_codes) = match self.offset {
@@ -228,6 +275,29 @@ impl Plan {
             return None;
         };
         Some(adc.reference_voltage(self, values, env, signals))
+    }
+
+    /// The unrounded code converter `node` gives its own input in one raw
+    /// evaluation, before a conversion combines it with other channels'
+    /// (what its input range is judged by); None for another kind of node.
+    pub fn converter_own_code(
+        &self,
+        node: NodeId,
+        values: &[f64],
+        env: &Env,
+        signals: &[Signal],
+    ) -> Option<f64> {
+        let super::Node::Adc(adc) = &self.nodes[node] else {
+            return None;
+        };
+        let Signal::Voltage { v, .. } = signals[adc.input] else {
+            return None;
+        };
+        let vr = adc.reference_voltage(self, values, env, signals);
+        match adc.code_of(values, v, vr) {
+            Signal::Code { exact, .. } => Some(exact),
+            _ => None,
+        }
     }
 }
 

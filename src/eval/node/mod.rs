@@ -39,7 +39,7 @@ use super::plan::{
     DriftSlot, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId, SourceKind,
 };
 use super::run::{Mode, MAX_NODES};
-use crate::model::typed::StageModel;
+use crate::model::typed::{CombineOp, StageModel};
 use crate::model::value::{Basis, Measure, Tolerance};
 use crate::model::Measurand;
 
@@ -124,7 +124,14 @@ impl Node {
                 .collect(),
             Node::Amplifier(n) => std::iter::once(n.input).chain(stage(n.reference)).collect(),
             Node::Filter(n) => vec![n.input],
-            Node::Adc(n) => std::iter::once(n.input).chain(n.reference).collect(),
+            Node::Adc(n) => std::iter::once(n.input)
+                .chain(n.reference)
+                .chain(
+                    n.combine
+                        .iter()
+                        .flat_map(|(_, others)| others.iter().copied()),
+                )
+                .collect(),
             Node::Convert(n) => std::iter::once(n.input).chain(n.cj).collect(),
         }
     }
@@ -377,6 +384,9 @@ pub(super) struct Cx<'a> {
     /// Lowering one member of a converter's scan: a slot whose id exists
     /// already is the same source, not a second one.
     pub shared: bool,
+    /// On a converter's code that a conversion combines with other
+    /// channels' (`sum`, `ratio`): how, and those channels' nodes.
+    pub combine: Option<(CombineOp, Vec<NodeId>)>,
     pub inputs: Inputs,
     pub senses: Senses,
     /// A conversion that feeds another's `cj` input.
