@@ -3,7 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
-use crate::eval::plan::{EvalError, Senses, Signal, SlotId, SourceKind};
+use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::semiconductor;
 
@@ -11,6 +11,8 @@ use crate::physics::semiconductor;
 pub struct IcCurrent {
     pub slope: SlotId,
     pub senses: Senses,
+    /// The excitation wired to it as its supply.
+    pub input: Option<NodeId>,
 }
 
 pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, EvalError> {
@@ -21,6 +23,7 @@ pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, 
     Ok(IcCurrent {
         slope,
         senses: cx.senses,
+        input: cx.inputs.input,
     })
 }
 
@@ -32,6 +35,14 @@ impl IcCurrent {
         match kind {
             FaultKind::Lost => Ok(Faulted::Signal(Signal::Current(0.0))),
             _ => Err(run.numeric(kind.describe())),
+        }
+    }
+
+    /// Its output behind a fault upstream: a lost supply is its own loss.
+    pub(super) fn behind(&self, run: &Run<'_>) -> Result<Faulted, EvalError> {
+        match self.input.map(|n| run.s[n]) {
+            Some(Signal::Source(v)) if v <= 0.0 => self.faulted(run, FaultKind::Lost),
+            _ => self.eval(run).map(Faulted::Signal),
         }
     }
 

@@ -87,15 +87,15 @@ impl Node {
     pub fn faults(&self) -> &'static [FaultKind] {
         match self {
             Node::Excitation(_) => excitation::FAULTS,
-            Node::Rtd(_) => rtd::FAULTS,
+            Node::Rtd(n) => n.faults(),
             Node::Thermocouple(_) => thermocouple::FAULTS,
             Node::Thermistor(_) => thermistor::FAULTS,
             Node::IcVoltage(_) => ic_voltage::FAULTS,
             Node::IcCurrent(_) => ic_current::FAULTS,
             Node::StrainGauge(_) => strain_gauge::FAULTS,
-            Node::Transducer(_) => transducer::FAULTS,
+            Node::Transducer(n) => n.faults(),
             Node::Resistor(_) => resistor::FAULTS,
-            Node::Bridge(_) => bridge::FAULTS,
+            Node::Bridge(n) => n.faults(),
             Node::Amplifier(_) => amplifier::FAULTS,
             Node::Filter(_) => filter::FAULTS,
             Node::Adc(_) => adc::FAULTS,
@@ -110,10 +110,9 @@ impl Node {
             Some(AmpReference::Stated { .. }) | None => None,
         };
         match self {
-            Node::Excitation(_)
-            | Node::Thermocouple(_)
-            | Node::IcVoltage(_)
-            | Node::IcCurrent(_) => Vec::new(),
+            Node::Excitation(_) | Node::Thermocouple(_) => Vec::new(),
+            Node::IcVoltage(n) => n.input.into_iter().collect(),
+            Node::IcCurrent(n) => n.input.into_iter().collect(),
             Node::Rtd(n) => n.input.into_iter().collect(),
             Node::Thermistor(n) => n.input.into_iter().collect(),
             Node::Resistor(n) => n.input.into_iter().collect(),
@@ -177,6 +176,8 @@ impl Plan {
         let Some(fault) = here else {
             return match &self.nodes[i] {
                 Node::Adc(n) => n.faulted(&run, None),
+                Node::IcVoltage(n) => n.behind(&run),
+                Node::IcCurrent(n) => n.behind(&run),
                 _ => self
                     .node(i, values, env, s, mode, None)
                     .map(Faulted::Signal),
@@ -185,19 +186,19 @@ impl Plan {
         let kind = fault.kind;
         match &self.nodes[i] {
             Node::Excitation(n) => n.faulted(&run, kind),
-            Node::Rtd(n) => n.faulted(&run, kind),
+            Node::Rtd(n) => n.faulted(&run, fault),
             Node::Thermocouple(n) => n.faulted(&run, fault),
             Node::Thermistor(n) => n.faulted(&run, kind),
             Node::IcVoltage(n) => n.faulted(&run, kind),
             Node::IcCurrent(n) => n.faulted(&run, kind),
             Node::StrainGauge(n) => n.faulted(&run, kind),
             Node::Resistor(n) => n.faulted(&run, kind),
+            Node::Transducer(n) => n.faulted(&run, fault),
+            Node::Bridge(n) => n.faulted(&run, kind),
             Node::Amplifier(n) => n.faulted(&run, kind),
             Node::Adc(n) => n.faulted(&run, Some(kind)),
             // Kinds that declare no fault of their own.
-            Node::Transducer(_) | Node::Bridge(_) | Node::Filter(_) | Node::Convert(_) => {
-                Err(run.numeric(kind.describe()))
-            }
+            Node::Filter(_) | Node::Convert(_) => Err(run.numeric(kind.describe())),
         }
     }
 
