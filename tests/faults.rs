@@ -185,7 +185,10 @@ fn a_4_wire_rtd_with_a_sense_lead_open_is_undetermined_without_burnout() {
 /// An IC sensor's output stuck high sits at its supply: 3.3 V ± 1 % wired
 /// gives 3.267 .. 3.333 V, codes 3267 .. 3333 of a 12-bit converter on
 /// 4.096 V (1 mV a code); a stated 2.7 V .. 5.5 V range, its low end,
-/// 2.7 V, code 2700. The wired supply lost takes the output to 0 V.
+/// 2.7 V, code 2700. The wired supply lost takes the output to 0 V. A
+/// PTAT current sensor shorted leaves only its 4.7 kΩ load to limit the
+/// current, so the load carries the whole 3.3 V ± 1 %: codes 3267 .. 3333
+/// again (healthy, 273 .. 373 µA × 4.7 kΩ, codes 1284 .. 1754).
 #[test]
 fn an_ic_sensor_stuck_high_reads_its_supply() {
     let list = checklist("kind_ic_stuck_high.catena");

@@ -27,13 +27,25 @@ pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, 
     })
 }
 
-/// Its supply lost: no current.
-pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
+/// Its supply lost: no current. Stuck high: the two-terminal sensor fails
+/// short, and only its load limits the current its supply drives.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost, FaultKind::StuckHigh];
 
 impl IcCurrent {
     pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
         match kind {
             FaultKind::Lost => Ok(Faulted::Signal(Signal::Current(0.0))),
+            FaultKind::StuckHigh => {
+                let Some(Signal::Source(v)) = self.input.map(|n| run.s[n]) else {
+                    return Ok(Faulted::Undetermined(
+                        "the sensor's supply is not wired: nothing says what limits its current once it shorts",
+                    ));
+                };
+                let load = run
+                    .plan
+                    .load_resistance(run.i, run.values, run.env, run.s)?;
+                Ok(Faulted::Signal(Signal::Current(v / load)))
+            }
             _ => Err(run.numeric(kind.describe())),
         }
     }

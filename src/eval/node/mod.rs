@@ -202,6 +202,34 @@ impl Plan {
         }
     }
 
+    /// The resistance, Ω, of the elements current source `i` drives, as
+    /// their own nodes give it at a test current small enough to heat
+    /// nothing (1 nA: picowatts in any element).
+    fn load_resistance(
+        &self,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+    ) -> Result<f64, EvalError> {
+        const TEST_AMPS: f64 = 1e-9;
+        let mut test = *s;
+        test[i] = Signal::Current(TEST_AMPS);
+        let mut volts = 0.0;
+        for j in (0..self.nodes.len()).filter(|&j| self.nodes[j].element_input() == Some(i)) {
+            if let Signal::Voltage { v, .. } =
+                self.node(j, values, env, &test, Mode::FAULT, None)?
+            {
+                volts += v;
+            }
+        }
+        if volts > 0.0 {
+            Ok(volts / TEST_AMPS)
+        } else {
+            Err(self.numeric(i, "no load on the current source"))
+        }
+    }
+
     /// A current source's compliance, V; None for another node or one
     /// that states none.
     fn compliance(&self, i: NodeId) -> Option<f64> {
