@@ -71,6 +71,8 @@ pub enum Shape {
     Calibrate,
     /// `± x K` or the name of another stage.
     LimitOrStage(Expect),
+    /// The name of another stage.
+    StageName,
     /// `type K`
     ThermocoupleType,
     /// A model line with no values.
@@ -563,8 +565,27 @@ static MODELS: &[ModelSpec] = &[
             p("acquisition_time", plain(SECOND)).positive(),
             COST,
             POWER,
+            p("channel_of", Shape::StageName),
         ],
-        exclusive: &[],
+        // A channel shares its converter's part: only its gain is its own.
+        exclusive: &[
+            ("channel_of", "bits"),
+            ("channel_of", "input"),
+            ("channel_of", "polarity"),
+            ("channel_of", "vref"),
+            ("channel_of", "offset"),
+            ("channel_of", "gain_error"),
+            ("channel_of", "inl"),
+            ("channel_of", "noise"),
+            ("channel_of", "rate"),
+            ("channel_of", "notch"),
+            ("channel_of", "ref_range"),
+            ("channel_of", "rails"),
+            ("channel_of", "burnout"),
+            ("channel_of", "sampling_capacitance"),
+            ("channel_of", "sampling_resistance"),
+            ("channel_of", "acquisition_time"),
+        ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
         read: read_adc,
@@ -971,8 +992,19 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         }),
         _ => None,
     };
+    let channel_of = match r.get("channel_of") {
+        Some(ParamValue::StageRef { name, .. }) => Some(name.clone()),
+        _ => None,
+    };
+    // A channel's bits are its converter's, filled in with the rest of
+    // its part once the converter is known (`model::channels`).
+    let bits = match (r.count("bits"), &channel_of) {
+        (Some(bits), _) => bits,
+        (None, Some(_)) => 0,
+        (None, None) => return None,
+    };
     Some(StageModel::Adc(Adc {
-        bits: r.count("bits")?,
+        bits,
         input,
         polarity: polarity.unwrap_or(match input {
             AdcInput::Differential => Polarity::Bipolar,
@@ -990,6 +1022,8 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         rails: r.range("rails"),
         burnout: r.value("burnout"),
         sampling,
+        channel_of,
+        channels: 1,
     }))
 }
 

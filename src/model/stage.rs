@@ -311,6 +311,10 @@ fn check_presence(
     if model.model == Some("rtd") && curve == Some("custom") {
         required.extend(["r0", "coefficients"]);
     }
+    // A converter's channel states no part of its own.
+    if has("channel_of") {
+        required.retain(|n| *n != "bits");
+    }
     if let (Some(curve), Some(line)) = (
         curve.filter(|c| *c != "custom" && model.model == Some("rtd")),
         lines.iter().find(|l| l.param.name.name == "coefficients"),

@@ -59,10 +59,13 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
         None => (None, None),
     };
     // Slots in the order the parameters are listed (it seeds Monte Carlo).
+    // A channel's gain is its own, whatever its converter shares.
+    let owner = std::mem::replace(&mut cx.owner, cx.name);
     let pga = m
         .pga
         .as_ref()
         .map(|g| cx.measure("pga", SourceKind::Tolerance, g));
+    cx.owner = owner;
     let offset = m.offset.as_ref().map(|t| {
         let slot = cx.limit("offset", SourceKind::Bound, t);
         if t.dim == Dim::CODE {
