@@ -13,6 +13,7 @@ use super::stated::Stated;
 use crate::model::ports::Port;
 use crate::model::typed::{ColdJunction, CombineOp, StageModel};
 use crate::model::{Chain, Measurand};
+use crate::physics::solve::bisect_at_most;
 use crate::units::ZERO_CELSIUS_K;
 
 fn not_invertible(stage: &str, what: impl Into<String>) -> EvalError {
@@ -444,6 +445,9 @@ fn fit_conversions(plan: &mut Plan) -> Result<(), EvalError> {
     Ok(())
 }
 
+/// Halvings of the search for the end of a conversion's domain.
+const DOMAIN_HALVINGS: usize = 60;
+
 /// Where the conversion's domain reaches beyond its range and the nominal
 /// chain no longer evaluates, the domain ends at the last point that does
 /// (bisected); a range that does not evaluate, or over which the code does
@@ -471,20 +475,11 @@ fn narrow_domain(
     // The range itself must evaluate: that is a finding of its own.
     probe(conversion.range.0)?;
     probe(conversion.range.1)?;
-    let reach = |inside: f64, mut outside: f64| {
-        if probe(outside).is_err() {
-            let mut good = inside;
-            for _ in 0..60 {
-                let mid = (good + outside) / 2.0;
-                if probe(mid).is_ok() {
-                    good = mid;
-                } else {
-                    outside = mid;
-                }
-            }
-            outside = good;
+    let reach = |inside: f64, outside: f64| {
+        if probe(outside).is_ok() {
+            return outside;
         }
-        outside
+        bisect_at_most(DOMAIN_HALVINGS, inside, outside, |x| probe(x).is_ok()).0
     };
     conversion.domain.0 = reach(conversion.range.0, conversion.domain.0);
     conversion.domain.1 = reach(conversion.range.1, conversion.domain.1);

@@ -19,7 +19,9 @@ pub mod value;
 use std::path::Path;
 use std::sync::Arc;
 
-pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember};
+pub use chain::{
+    Alarm, Bill, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember,
+};
 pub use graph::output_signals;
 pub use parts::PartsCache;
 pub use requirement::{AccuracyMethod, RequirementKind};

@@ -2,6 +2,7 @@
 //! and dimension of each value, what is required and what is plausible.
 //! Adding a parameter is one line here (and its use in `physics`).
 
+use super::chain::Bill;
 use super::typed::{
     Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction, Combine,
     CombineOp, ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent,
@@ -218,6 +219,11 @@ const TIME_CONSTANT: ParamSpec = p("time_constant", plain(SECOND)).non_negative(
 const DISSIPATION: ParamSpec =
     p("dissipation", toleranced(Expect::Dim(Dim::DISSIPATION))).positive();
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
+/// One unit's price, in whatever currency the team prices parts in (a
+/// plain number), for the trade table of `catena compare`.
+const COST: ParamSpec = p("cost", plain(Expect::Dim(Dim::NONE))).non_negative();
+/// What the stage draws from its supplies, W.
+const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
 
 pub const RTD_CURVES: &[&str] = &[
     "pt100", "pt500", "pt1000", "ni100", "ni120", "ni1000", "cu10", "cu100", "custom",
@@ -234,6 +240,8 @@ static MODELS: &[ModelSpec] = &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
             p("noise", Shape::Limit(CURRENT_NOISE)),
             p("compliance", plain(VOLT)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -249,6 +257,8 @@ static MODELS: &[ModelSpec] = &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
             p("limit", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -270,6 +280,8 @@ static MODELS: &[ModelSpec] = &[
             DISSIPATION,
             TIME_CONSTANT,
             p("max_current", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
@@ -289,6 +301,8 @@ static MODELS: &[ModelSpec] = &[
             TIME_CONSTANT,
             p("bias_voltage", measure(VOLT)),
             p("bias_resistor", toleranced(OHM)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
@@ -308,6 +322,8 @@ static MODELS: &[ModelSpec] = &[
             p("range", Shape::Range(Expect::Temperature)),
             TIME_CONSTANT,
             p("max_current", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("beta", "steinhart")],
         one_of: &[&["beta", "steinhart"]],
@@ -336,6 +352,8 @@ static MODELS: &[ModelSpec] = &[
             p("output_resistance", plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -354,6 +372,8 @@ static MODELS: &[ModelSpec] = &[
             p("accuracy", Shape::Limit(Expect::TempDiff)),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -372,6 +392,8 @@ static MODELS: &[ModelSpec] = &[
                 .positive(),
             p("side", Shape::Words(&["tension", "compression"])),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -404,6 +426,8 @@ static MODELS: &[ModelSpec] = &[
             p("r", toleranced(OHM)).positive(),
             p("share", plain(Expect::Ratio)).positive(),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -415,7 +439,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("resistor"),
         role: Role::Resistive,
         model_shape: measure(OHM),
-        params: &[],
+        params: &[COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -429,6 +453,8 @@ static MODELS: &[ModelSpec] = &[
         params: &[
             p("r", measure(OHM)).required().positive(),
             p("sensor", Shape::Words(&["low", "high"])),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -440,7 +466,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("quarter"),
         role: Role::Bridge { arms: 1 },
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive()],
+        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -451,7 +477,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("half"),
         role: Role::Bridge { arms: 2 },
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive()],
+        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -462,7 +488,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("full"),
         role: Role::Bridge { arms: 4 },
         model_shape: Shape::Flag,
-        params: &[],
+        params: &[COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -491,6 +517,8 @@ static MODELS: &[ModelSpec] = &[
             p("output", Shape::Range(VOLT)),
             p("bandwidth", plain(HERTZ)).positive(),
             p("reference", measure(VOLT)),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -507,6 +535,8 @@ static MODELS: &[ModelSpec] = &[
             p("cutoff", toleranced(HERTZ)).positive(),
             p("r", toleranced(OHM)).positive(),
             p("c", toleranced(FARAD)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("cutoff", "r"), ("cutoff", "c")],
         one_of: &[&["cutoff", "r"]],
@@ -536,6 +566,8 @@ static MODELS: &[ModelSpec] = &[
             p("sampling_capacitance", plain(FARAD)).positive(),
             p("sampling_resistance", plain(OHM)).non_negative(),
             p("acquisition_time", plain(SECOND)).positive(),
+            COST,
+            POWER,
             p("channel_of", Shape::StageName),
         ],
         // A channel shares its converter's part: only its gain is its own.
@@ -578,6 +610,8 @@ static MODELS: &[ModelSpec] = &[
             p("calibrate", Shape::Calibrate),
             p("sum", Shape::StageNames),
             p("ratio", Shape::StageName),
+            COST,
+            POWER,
         ],
         exclusive: &[("sum", "ratio")],
         one_of: &[],
@@ -700,6 +734,15 @@ impl<'a> Reader<'a> {
             }) => Some((value.clone(), *value_dim, *at)),
             _ => None,
         }
+    }
+}
+
+/// What a stage of any kind states for the bill of materials and the
+/// power budget.
+pub fn read_bill(r: &Reader<'_>) -> Bill {
+    Bill {
+        cost: r.value("cost"),
+        power: r.value("power"),
     }
 }
 
