@@ -466,13 +466,17 @@ fn point(
     let mut contributions = source_contributions(plan, sources, &effects);
     // Sources computed from the chain rather than a slot.
     let (low, high) = quantization(plan, env, &sources.nominal, r0, codes_per_unit);
+    // Summed channels round each code: n half-codes at worst, √n of one
+    // code's standard uncertainty (Monte Carlo draws the worst-case span,
+    // on the safe side).
+    let n = plan.summed_codes() as f64;
     contributions.push(Contribution {
         id: "quantization".into(),
         kind: "quantization",
-        low,
-        high,
-        worst: low.abs().max(high.abs()),
-        standard: (high - low).abs() / 2.0 / SQRT3,
+        low: low * n,
+        high: high * n,
+        worst: n * low.abs().max(high.abs()),
+        standard: (high - low).abs() / 2.0 / SQRT3 * n.sqrt(),
         linear: true,
     });
     contributions.extend(noise_contribution(noise));

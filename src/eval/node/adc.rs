@@ -192,11 +192,15 @@ impl Adc {
         kind: Option<FaultKind>,
     ) -> Result<Faulted, EvalError> {
         let (lo, hi) = self.codes;
+        // A code stuck at a rail still enters a conversion's combination.
         let rail = |x: f64| {
-            Faulted::Signal(Signal::Code {
-                exact: x,
-                code: x as i64,
-            })
+            Faulted::Signal(self.combined(
+                run,
+                Signal::Code {
+                    exact: x,
+                    code: x as i64,
+                },
+            ))
         };
         let Signal::Voltage { v, cm, .. } = run.s[self.input] else {
             return Err(run.numeric("no input voltage"));
@@ -284,6 +288,19 @@ impl Plan {
             return None;
         };
         Some(adc.reference_voltage(self, values, env, signals))
+    }
+
+    /// How many rounded codes the chain's code adds: the channels a `sum`
+    /// combines, else 1. Each rounds on its own, so the sum's
+    /// quantization is that many independent half-codes.
+    pub fn summed_codes(&self) -> usize {
+        match &self.nodes[self.adc] {
+            super::Node::Adc(Adc {
+                combine: Some((CombineOp::Sum, others)),
+                ..
+            }) => 1 + others.len(),
+            _ => 1,
+        }
     }
 
     /// The unrounded code converter `node` gives its own input in one raw
