@@ -594,6 +594,51 @@ static MODELS: &[ModelSpec] = &[
     },
 ];
 
+/// The value a tracking group acts on in a typed model, with the name of
+/// the line that states it: a fixed resistor's value, a bridge's
+/// completion resistors, an excitation's output.
+pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
+    match model {
+        StageModel::Resistor(r) => Some(("resistor", &r.r)),
+        StageModel::Bridge(b) => Some(("r", b.r.as_ref()?)),
+        StageModel::Excitation(e) => Some((
+            match e.source {
+                Source::Current { .. } => "current",
+                Source::Voltage { .. } => "voltage",
+            },
+            &e.value,
+        )),
+        _ => None,
+    }
+}
+
+/// Lines a model needs beyond its table's, by the word of its model
+/// line: a custom RTD curve has no table values to fall back on.
+pub fn required_for_word(model: &ModelSpec, word: &str) -> &'static [&'static str] {
+    match (model.model, word) {
+        (Some("rtd"), "custom") => &["r0", "coefficients"],
+        _ => &[],
+    }
+}
+
+/// A line the model line's word leaves unused, and how to use it.
+pub struct Unused {
+    pub line: &'static str,
+    pub help: &'static str,
+}
+
+/// A standard RTD curve has its own coefficients, so stated ones would
+/// go unused.
+pub fn unused_for_word(model: &ModelSpec, word: &str) -> Option<Unused> {
+    match (model.model, word) {
+        (Some("rtd"), w) if w != "custom" => Some(Unused {
+            line: "coefficients",
+            help: "write `rtd custom` with `r0` to use these coefficients (a characterised probe), or remove the line",
+        }),
+        _ => None,
+    }
+}
+
 /// The models of a kind.
 pub fn models(kind: StageKind) -> impl Iterator<Item = &'static ModelSpec> {
     MODELS.iter().filter(move |m| m.kind == kind)
