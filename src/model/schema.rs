@@ -221,6 +221,19 @@ const COST: ParamSpec = p("cost", plain(Expect::Dim(Dim::NONE))).non_negative();
 /// What the stage draws from its supplies, W.
 const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
 
+/// Lines the port rules and graph checks look up before a typed model
+/// exists (a stage with a rejected line has none), for the line's
+/// position: each name is written here once, for its row and its reader.
+pub const COLD_JUNCTION: &str = "cold_junction";
+/// An amplifier's stated reference voltage.
+pub const REFERENCE: &str = "reference";
+/// A converter's stated reference voltage.
+pub const VREF: &str = "vref";
+/// A transducer's rated output.
+pub const SENSITIVITY: &str = "sensitivity";
+/// The thermocouple model's word.
+pub const THERMOCOUPLE: &str = "thermocouple";
+
 pub const RTD_CURVES: &[&str] = &[
     "pt100", "pt500", "pt1000", "ni100", "ni120", "ni1000", "cu10", "cu100", "custom",
 ];
@@ -286,13 +299,13 @@ static MODELS: &[ModelSpec] = &[
     },
     ModelSpec {
         kind: StageKind::Sensor,
-        model: Some("thermocouple"),
+        model: Some(THERMOCOUPLE),
         role: Role::Floating,
         model_shape: Shape::ThermocoupleType,
         params: &[
             p("class", Shape::Count { min: 1, max: 3 }),
             p("tolerance", Shape::Limit(Expect::TempDiff)),
-            p("cold_junction", Shape::LimitOrStage(Expect::TempDiff)),
+            p(COLD_JUNCTION, Shape::LimitOrStage(Expect::TempDiff)),
             LEAD,
             TIME_CONSTANT,
             p("bias_voltage", measure(VOLT)),
@@ -403,7 +416,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p(
-                "sensitivity",
+                SENSITIVITY,
                 Shape::At {
                     value: Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE]),
                     at: Expect::Measurand,
@@ -511,7 +524,7 @@ static MODELS: &[ModelSpec] = &[
             p("input", Shape::Range(VOLT)),
             p("output", Shape::Range(VOLT)),
             p("bandwidth", plain(HERTZ)).positive(),
-            p("reference", measure(VOLT)),
+            p(REFERENCE, measure(VOLT)),
             COST,
             POWER,
         ],
@@ -547,7 +560,7 @@ static MODELS: &[ModelSpec] = &[
             p("bits", Shape::Count { min: 1, max: 32 }).required(),
             p("input", Shape::Words(&["single", "differential"])),
             p("polarity", Shape::Words(&["unipolar", "bipolar"])),
-            p("vref", measure(VOLT)).positive(),
+            p(VREF, measure(VOLT)).positive(),
             p("pga", toleranced(Expect::Ratio)).positive(),
             p("offset", Shape::Limit(VOLTAGE_OR_CODES)),
             p("gain_error", Shape::Limit(RATIO_OR_CODES)),
@@ -828,9 +841,9 @@ fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
 
 fn read_thermocouple(r: &Reader<'_>) -> Option<StageModel> {
     let ty = r
-        .choice("thermocouple", ThermocoupleType::from_letter)
+        .choice(THERMOCOUPLE, ThermocoupleType::from_letter)
         .ok()??;
-    let cold_junction = match r.get("cold_junction") {
+    let cold_junction = match r.get(COLD_JUNCTION) {
         Some(ParamValue::Limit(t)) => Some(ColdJunction::Error(t.clone())),
         Some(ParamValue::StageRef { name, .. }) => Some(ColdJunction::Stage(name.clone())),
         _ => None,
@@ -902,7 +915,7 @@ fn read_strain_gauge(r: &Reader<'_>) -> Option<StageModel> {
 }
 
 fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
-    let (sensitivity, sensitivity_dim, full_scale) = r.at("sensitivity")?;
+    let (sensitivity, sensitivity_dim, full_scale) = r.at(SENSITIVITY)?;
     let linearity = r
         .choice("linearity", |w| match w {
             "terminal" => Some(LinearityLine::Terminal),
@@ -970,7 +983,7 @@ fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
         input: r.range("input"),
         output: r.range("output"),
         bandwidth: r.value("bandwidth"),
-        reference: r.measure("reference"),
+        reference: r.measure(REFERENCE),
     }))
 }
 
@@ -1023,7 +1036,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
             AdcInput::Differential => Polarity::Bipolar,
             AdcInput::Single => Polarity::Unipolar,
         }),
-        vref: r.measure("vref"),
+        vref: r.measure(VREF),
         pga: r.measure("pga"),
         offset: r.limit("offset"),
         gain_error: r.limit("gain_error"),

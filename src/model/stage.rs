@@ -230,7 +230,7 @@ fn find_model(
 fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Finding {
     let name = &line.param.name.name;
     if decl.kind == crate::syntax::ast::StageKind::Sensor && name.starts_with("bias_") {
-        if let Some(m) = model.model.filter(|m| *m != "thermocouple") {
+        if let Some(m) = model.model.filter(|m| *m != schema::THERMOCOUPLE) {
             return needless_bias(line, decl, m);
         }
     }
