@@ -2,6 +2,7 @@
 //! parts libraries, and the graph of typed ports.
 
 mod chain;
+mod channels;
 mod graph;
 mod interpret;
 pub mod parts;
@@ -210,6 +211,7 @@ fn resolve_chain(
     );
     graph::check_references(&stages, findings);
     let connections = graph::connect(file, &mut stages, &decl.edges, findings);
+    channels::resolve(file, &mut stages, &connections, findings);
     let reference = settings
         .reference
         .or(defaults.reference)

@@ -71,6 +71,8 @@ pub enum Shape {
     Calibrate,
     /// `± x K` or the name of another stage.
     LimitOrStage(Expect),
+    /// The name of another stage.
+    StageName,
     /// `type K`
     ThermocoupleType,
     /// A model line with no values.
@@ -231,6 +233,13 @@ pub const REFERENCE: &str = "reference";
 pub const VREF: &str = "vref";
 /// A transducer's rated output.
 pub const SENSITIVITY: &str = "sensitivity";
+/// A converter's channel: it names the converter whose part it shares.
+pub const CHANNEL_OF: &str = "channel_of";
+
+/// Required lines another line makes unnecessary, as (given, waived): a
+/// converter's channel states no part of its own.
+pub const WAIVED: &[(&str, &str)] = &[(CHANNEL_OF, "bits")];
+
 /// The thermocouple model's word.
 pub const THERMOCOUPLE: &str = "thermocouple";
 
@@ -576,8 +585,27 @@ static MODELS: &[ModelSpec] = &[
             p("acquisition_time", plain(SECOND)).positive(),
             COST,
             POWER,
+            p(CHANNEL_OF, Shape::StageName),
         ],
-        exclusive: &[],
+        // A channel shares its converter's part: only its gain is its own.
+        exclusive: &[
+            (CHANNEL_OF, "bits"),
+            (CHANNEL_OF, "input"),
+            (CHANNEL_OF, "polarity"),
+            (CHANNEL_OF, "vref"),
+            (CHANNEL_OF, "offset"),
+            (CHANNEL_OF, "gain_error"),
+            (CHANNEL_OF, "inl"),
+            (CHANNEL_OF, "noise"),
+            (CHANNEL_OF, "rate"),
+            (CHANNEL_OF, "notch"),
+            (CHANNEL_OF, "ref_range"),
+            (CHANNEL_OF, "rails"),
+            (CHANNEL_OF, "burnout"),
+            (CHANNEL_OF, "sampling_capacitance"),
+            (CHANNEL_OF, "sampling_resistance"),
+            (CHANNEL_OF, "acquisition_time"),
+        ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
         read: read_adc,
@@ -1029,8 +1057,19 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         }),
         _ => None,
     };
+    let channel_of = match r.get(CHANNEL_OF) {
+        Some(ParamValue::StageRef { name, .. }) => Some(name.clone()),
+        _ => None,
+    };
+    // A channel's bits are its converter's, filled in with the rest of
+    // its part once the converter is known (`model::channels`).
+    let bits = match (r.count("bits"), &channel_of) {
+        (Some(bits), _) => bits,
+        (None, Some(_)) => 0,
+        (None, None) => return None,
+    };
     Some(StageModel::Adc(Adc {
-        bits: r.count("bits")?,
+        bits,
         input,
         polarity: polarity.unwrap_or(match input {
             AdcInput::Differential => Polarity::Bipolar,
@@ -1048,6 +1087,8 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         rails: r.range("rails"),
         burnout: r.value("burnout"),
         sampling,
+        channel_of,
+        channels: 1,
     }))
 }
 

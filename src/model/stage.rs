@@ -302,6 +302,11 @@ fn check_presence(
         required.extend(schema::required_for_word(model, word));
         presence.unused_for_word(word, findings);
     }
+    required.retain(|n| {
+        !schema::WAIVED
+            .iter()
+            .any(|(given, waived)| waived == n && presence.has(given))
+    });
     presence.required(&required, findings);
     presence.one_of(findings);
     presence.together(findings);
