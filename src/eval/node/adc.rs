@@ -59,10 +59,13 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
         None => (None, None),
     };
     // Slots in the order the parameters are listed (it seeds Monte Carlo).
+    // A channel's gain is its own, whatever its converter shares.
+    let owner = std::mem::replace(&mut cx.owner, cx.name);
     let pga = m
         .pga
         .as_ref()
         .map(|g| cx.measure("pga", SourceKind::Tolerance, g));
+    cx.owner = owner;
     let offset = m.offset.as_ref().map(|t| {
         let slot = cx.limit("offset", SourceKind::Bound, t);
         if t.dim == Dim::CODE {
@@ -196,13 +199,9 @@ impl Adc {
         };
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
         // INL is a fraction of the full-scale code span.
-        let full_scale = match self.polarity {
-            Polarity::Unipolar => per_ref,
-            Polarity::Bipolar => 2.0 * per_ref,
-        };
-        let exact = (v + off) * gain / vr * per_ref
-            + off_codes
-            + self.inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
+        let inl = self.inl.map(|s| values[s]).unwrap_or(0.0)
+            * adc::full_scale_codes(per_ref, self.polarity);
+        let exact = adc::exact_code(v + off, gain, vr, per_ref, off_codes, inl);
         Signal::Code {
             exact,
             code: round_code(exact, lo, hi),

@@ -399,6 +399,13 @@ pub(super) struct Cx<'a> {
     /// couple.
     pub cj_error: Option<SlotId>,
     pub name: &'a str,
+    /// The stage whose name the slots' ids carry: the stage's own, or on
+    /// a channel its converter's, whose error sources every channel
+    /// shares.
+    pub owner: &'a str,
+    /// Lowering one member of a converter's scan: a slot whose id exists
+    /// already is the same source, not a second one.
+    pub shared: bool,
     pub inputs: Inputs,
     pub senses: Senses,
     /// A conversion that feeds another's `cj` input.
@@ -409,7 +416,7 @@ pub(super) struct Cx<'a> {
 
 impl Cx<'_> {
     fn id(&self, parameter: &str) -> String {
-        format!("{}.{parameter}", self.name)
+        format!("{}.{parameter}", self.owner)
     }
 
     pub(super) fn not_invertible(&self, what: &str) -> EvalError {
@@ -434,8 +441,14 @@ impl Cx<'_> {
         } else {
             kind
         };
+        let id = self.id(parameter);
+        if self.shared {
+            if let Some(existing) = self.slots.iter().position(|s| s.id == id) {
+                return existing;
+            }
+        }
         self.slots.push(Slot {
-            id: self.id(parameter),
+            id,
             kind,
             nominal,
             minus,

@@ -107,17 +107,20 @@ impl Transducer {
         // Output as a ratio of excitation (or volts): span with its drift,
         // then the errors stated as fractions of full scale.
         let u = run.env.measurand / self.full_scale;
-        let bow = transducer::nonlinearity_shape(self.linearity, u);
-        // Hysteresis depends on the direction of approach: the
-        // calibration's is not the reading's, so it sees none.
-        let hysteresis = if run.mode.calibrating {
-            0.0
-        } else {
-            slot(self.hysteresis)
+        let errors = transducer::Errors {
+            zero: slot(self.zero),
+            nonlinearity: slot(self.nonlinearity),
+            // Hysteresis depends on the direction of approach: the
+            // calibration's is not the reading's, so it sees none.
+            hysteresis: if run.mode.calibrating {
+                0.0
+            } else {
+                slot(self.hysteresis)
+            },
+            zero_drift: slot(self.zero_drift),
+            span_drift: slot(self.span_drift),
         };
-        let fraction = s_fs * (1.0 + slot(self.span_drift) * dt) * u
-            + s_fs * (slot(self.nonlinearity) * bow + hysteresis + slot(self.zero_drift) * dt)
-            + slot(self.zero);
+        let fraction = transducer::output(s_fs, u, self.linearity, errors, dt);
         let (v, cm) = match (self.ratiometric, self.input.map(|n| run.s[n])) {
             (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
             (true, _) => {
