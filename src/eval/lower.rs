@@ -115,6 +115,17 @@ fn evaluation_order(chain: &Chain, strings: &[Vec<usize>]) -> Result<Vec<usize>,
             graph.add_edge(ids[pair[1]], ids[pair[0]], ());
         }
     }
+    // A channel reads its converter's reference.
+    for si in 0..chain.stages.len() {
+        let Some(conv) = converter_of(chain, si) else {
+            continue;
+        };
+        for c in &chain.connections {
+            if c.to == conv && c.to_port == Port::Ref {
+                graph.add_edge(ids[c.from], ids[si], ());
+            }
+        }
+    }
     Ok(toposort(&graph, None)
         .map_err(|_| not_invertible(&chain.name, "the chain has a loop"))?
         .into_iter()
@@ -163,6 +174,8 @@ fn lower_nodes<'a>(
         zero: measurand.zero(),
         cj_error: None,
         name: "",
+        owner: "",
+        shared: false,
         inputs: Inputs::default(),
         senses: Senses::Measurand,
         feeds_cj: false,
@@ -176,6 +189,13 @@ fn lower_nodes<'a>(
             return Err(not_invertible(&stage.name, "its model was not accepted"));
         };
         cx.name = &stage.name;
+        (cx.owner, cx.shared) = match model {
+            StageModel::Adc(adc) if adc.channels > 1 => (
+                adc.channel_of.as_deref().unwrap_or(stage.name.as_str()),
+                true,
+            ),
+            _ => (stage.name.as_str(), false),
+        };
         cx.inputs = inputs(chain, si, node_of);
         cx.senses = if cold_junction_sensors.contains(&stage.name.as_str()) {
             Senses::ColdJunction
@@ -204,10 +224,36 @@ fn inputs(chain: &Chain, si: usize, node_of: &impl Fn(usize) -> NodeId) -> Input
     Inputs {
         input: into(Port::In).next(),
         exc: into(Port::Exc).next(),
-        reference: into(Port::Ref).next(),
+        reference: into(Port::Ref)
+            .next()
+            .or_else(|| converter_reference(chain, si, node_of)),
         cj: into(Port::Cj).next(),
         arms: into(Port::Arm).collect(),
     }
+}
+
+/// A channel's converter, by stage index.
+fn converter_of(chain: &Chain, si: usize) -> Option<usize> {
+    let Some(StageModel::Adc(adc)) = &chain.stages[si].typed else {
+        return None;
+    };
+    let name = adc.channel_of.as_deref()?;
+    chain.stages.iter().position(|s| s.name == name)
+}
+
+/// A channel works against its converter's reference: the node wired to
+/// the converter's `ref`.
+fn converter_reference(
+    chain: &Chain,
+    si: usize,
+    node_of: &impl Fn(usize) -> NodeId,
+) -> Option<NodeId> {
+    let conv = converter_of(chain, si)?;
+    chain
+        .connections
+        .iter()
+        .find(|c| c.to == conv && c.to_port == Port::Ref)
+        .map(|c| node_of(c.from))
 }
 
 /// The part of the measurand range where every sensor that senses the
