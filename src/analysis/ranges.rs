@@ -99,6 +99,16 @@ pub struct Envelope {
     /// Measurand and ambient where it reaches furthest out.
     pub worst_at: (f64, f64),
     pub unit: LimitUnit,
+    /// Per measurand point, in order: the reach there over the ambients
+    /// (what a plot of headroom along the range draws).
+    pub by_measurand: Vec<PointReach>,
+}
+
+/// A signal's reach at one measurand point, over ambients and tolerances.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct PointReach {
+    pub measurand: f64,
+    pub reach: (f64, f64),
 }
 
 /// The unit a limit and its signal are stated in.
@@ -533,7 +543,7 @@ fn reach_at(
 }
 
 /// Each check's envelope over all conditions, gathered in order, so the
-/// worst point is the first of equals.
+/// worst point is the first of equals, and its reach per measurand point.
 fn gather(
     checks: &[Check],
     conditions: &[Env],
@@ -541,6 +551,7 @@ fn gather(
 ) -> Vec<Envelope> {
     let mut reach: Vec<(f64, f64, (f64, f64), f64)> =
         vec![(f64::INFINITY, f64::NEG_INFINITY, (0.0, 0.0), f64::INFINITY); checks.len()];
+    let mut by_measurand: Vec<Vec<PointReach>> = vec![Vec::new(); checks.len()];
     for (env, reaches) in conditions.iter().zip(per_condition) {
         for (k, c) in checks.iter().enumerate() {
             let (lo, hi) = reaches[k];
@@ -552,18 +563,28 @@ fn gather(
             }
             r.0 = r.0.min(lo);
             r.1 = r.1.max(hi);
+            let points = &mut by_measurand[k];
+            match points.iter_mut().find(|p| p.measurand == env.measurand) {
+                Some(p) => p.reach = (p.reach.0.min(lo), p.reach.1.max(hi)),
+                None => points.push(PointReach {
+                    measurand: env.measurand,
+                    reach: (lo, hi),
+                }),
+            }
         }
     }
     checks
         .iter()
         .zip(reach)
-        .map(|(c, (lo, hi, at, _))| Envelope {
+        .zip(by_measurand)
+        .map(|((c, (lo, hi, at, _)), by_measurand)| Envelope {
             node: c.node,
             limit: c.limit,
             allowed: c.allowed,
             reach: (lo, hi),
             worst_at: at,
             unit: c.unit,
+            by_measurand,
         })
         .collect()
 }
@@ -974,6 +995,7 @@ mod tests {
             reach,
             worst_at: (0.0, 0.0),
             unit: LimitUnit::Volt,
+            by_measurand: Vec::new(),
         }
     }
 
