@@ -174,7 +174,7 @@ fn markdown(list: &Checklist) -> String {
             .unwrap_or_default();
         let _ = writeln!(
             s,
-            "- [ ] `{}` {}: {codes}, **{}**{threshold}. {}",
+            "- [ ] `{}` {}: {codes}, **{}**{threshold}; action: {}.",
             f.stage, f.condition, f.verdict, f.action
         );
     }

@@ -228,7 +228,7 @@ pub fn warnings(findings: &Findings) -> Vec<String> {
     findings
         .iter()
         .filter(|f| f.severity() == Severity::Warning)
-        .map(|f| format!("{} {}", f.code.as_str(), f.message))
+        .map(|f| format!("warning {}: {}", f.code.as_str(), f.message))
         .collect()
 }
 

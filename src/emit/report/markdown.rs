@@ -386,18 +386,30 @@ fn dynamics(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
     plot_links(out, links, "step");
     plot_links(out, links, "frequency");
     out.push_str("| | |\n| --- | --- |\n");
+    // Nothing that takes time is stated: the model answers at once,
+    // which says nothing of the real chain.
+    let timeless = d.sensor_time_constant_s <= 0.0 && d.rate_hz.is_none();
     let _ = writeln!(
         out,
         "| step response to 90 % | {}{} |",
-        d.response_90_s
-            .map_or("unbounded".to_string(), |t| value(t, "s")),
+        match d.response_90_s {
+            None => "unbounded".to_string(),
+            Some(t) if t <= 0.0 && timeless => {
+                "not modelled: no stage states a time constant or a conversion rate".to_string()
+            }
+            Some(t) => value(t, "s"),
+        },
         d.requirement_s
             .map_or(String::new(), |r| format!(" (required {})", value(r, "s")))
     );
     let _ = writeln!(
         out,
         "| sensor time constant | {} |",
-        value(d.sensor_time_constant_s, "s")
+        if d.sensor_time_constant_s > 0.0 {
+            value(d.sensor_time_constant_s, "s")
+        } else {
+            "not stated".to_string()
+        }
     );
     if let Some(r) = d.rate_hz {
         let _ = writeln!(out, "| conversion rate | {} |", si(r, "Hz"));
