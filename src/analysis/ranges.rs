@@ -987,6 +987,70 @@ mod tests {
         assert_eq!(load.unit, LimitUnit::Ampere);
     }
 
+    /// The reach at each measurand point is the envelope of the range
+    /// shrunk to that point, to the bit (what the report's headroom plot
+    /// drew by running the envelopes once per point), and its bounds
+    /// hold the whole range's reach. By hand at the top point, 50 degC:
+    /// 1.0 V × 2 ± 1 % is 1.98 .. 2.02 V, widened by the gain's drift
+    /// at the ambient furthest from the 25 degC reference, 0 degC:
+    /// 2 V × 50 ppm/K × 25 K = 2.5 mV, so 1.9775 .. 2.0225 V.
+    #[test]
+    fn the_reach_per_point_is_the_envelope_at_that_point() {
+        let chain = chain(
+            "chain t \"T\" {
+                measurand temperature 0 degC .. 50 degC
+                ambient 0 degC .. 40 degC
+                sensor probe {
+                    ic_voltage
+                    slope 10 mV/K
+                    output 500 mV at 0 degC
+                }
+                amplifier front {
+                    gain 2 ± 1 %
+                    gain_drift 50 ppm/K
+                    output 0 V .. 2.5 V
+                }
+                adc conv {
+                    bits 16
+                    input single
+                    vref 2.5 V
+                }
+                convert reading { method exact }
+                probe -> front -> conv -> reading
+            }",
+        );
+        let plan = crate::eval::lower(&chain).expect("lowers");
+        let whole = envelopes(&chain, &plan, 5).expect("evaluates");
+        for e in &whole {
+            assert_eq!(e.by_measurand.len(), 5, "{e:?}");
+            let lo = e
+                .by_measurand
+                .iter()
+                .map(|p| p.reach.0)
+                .fold(f64::INFINITY, f64::min);
+            let hi = e
+                .by_measurand
+                .iter()
+                .map(|p| p.reach.1)
+                .fold(f64::NEG_INFINITY, f64::max);
+            assert_eq!((lo, hi), e.reach, "{e:?}");
+        }
+        for (k, point) in whole[0].by_measurand.iter().enumerate() {
+            let mut at = plan.clone();
+            at.range = (point.measurand, point.measurand);
+            let alone = envelopes(&chain, &at, 2).expect("evaluates");
+            for (e, a) in whole.iter().zip(&alone) {
+                assert_eq!(e.by_measurand[k].reach, a.reach, "{e:?}");
+            }
+        }
+        let top = whole[0].by_measurand.last().expect("points");
+        let near = |a: f64, b: f64| (a - b).abs() < 1e-9;
+        assert!(
+            near(top.reach.0, 1.9775) && near(top.reach.1, 2.0225),
+            "{top:?}"
+        );
+    }
+
     fn envelope(allowed: (f64, f64), reach: (f64, f64)) -> Envelope {
         Envelope {
             node: 0,
