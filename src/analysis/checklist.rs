@@ -246,55 +246,86 @@ fn alarm_rows(chain: &Chain, from: &Sources<'_>) -> Vec<AlarmRow> {
 /// Each wired element's leads to measure as installed: the budget holds
 /// the resistance the spec states, the installation decides the real one.
 fn leads(plan: &Plan) -> Vec<ReviewItem> {
-    let ohms = |x: f64| with_prefix(x, "Ω", 3);
-    plan.nodes
-        .iter()
-        .enumerate()
-        .filter_map(|(n, node)| {
-            let text = match node {
-                Node::Rtd(node::Rtd {
-                    wiring,
-                    leads: Some((a, b)),
-                    ..
-                }) => {
-                    let (a, b) = (&plan.slots[*a], &plan.slots[*b]);
-                    let seen = match wiring {
-                        Wiring::TwoWire => "2-wire: the reading sees both leads in series",
-                        Wiring::ThreeWire => {
-                            "3-wire: the reading sees the two leads' difference, so they must match"
-                        }
-                        Wiring::FourWire => {
-                            "4-wire: the reading sees no lead, but the excitation's compliance must cover their loop"
-                        }
-                    };
-                    format!(
-                        "measure the installed lead resistance of `{}`: the spec assumes {} (−{} +{}) and {} (−{} +{}), a loop of {}; {seen}",
-                        plan.names[n],
-                        ohms(a.nominal),
-                        ohms(a.minus),
-                        ohms(a.plus),
-                        ohms(b.nominal),
-                        ohms(b.minus),
-                        ohms(b.plus),
-                        ohms(rtd::lead_loop_resistance(a.nominal, b.nominal))
-                    )
-                }
-                Node::Rtd(node::Rtd { leads: None, .. }) => format!(
-                    "measure the installed lead resistance of `{}`: the spec states none, so the budget holds no lead error",
-                    plan.names[n]
-                ),
-                Node::Thermocouple(_) => format!(
-                    "measure the installed loop resistance of `{}`: the spec states none, so any bias or burnout current's drop across it is not in the budget",
-                    plan.names[n]
-                ),
-                _ => return None,
-            };
-            Some(ReviewItem {
-                kind: ReviewKind::Leads,
-                text,
-            })
+    (0..plan.nodes.len())
+        .filter_map(|n| lead_item(plan, n))
+        .map(|text| ReviewItem {
+            kind: ReviewKind::Leads,
+            text,
         })
         .collect()
+}
+
+/// What to measure of node `n`'s wiring, for the kinds wired to the
+/// field.
+fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
+    let ohms = |x: f64| with_prefix(x, "Ω", 3);
+    let name = &plan.names[n];
+    match &plan.nodes[n] {
+        Node::Rtd(node::Rtd {
+            wiring,
+            leads: Some((a, b)),
+            ..
+        }) => {
+            let (a, b) = (&plan.slots[*a], &plan.slots[*b]);
+            let seen = match wiring {
+                Wiring::TwoWire => "2-wire: the reading sees both leads in series",
+                Wiring::ThreeWire => {
+                    "3-wire: the reading sees the two leads' difference, so they must match"
+                }
+                Wiring::FourWire => {
+                    "4-wire: the reading sees no lead, but the excitation's compliance must cover their loop"
+                }
+            };
+            Some(format!(
+                "measure the installed lead resistance of `{name}`: the spec assumes {} (−{} +{}) and {} (−{} +{}), a loop of {}; {seen}",
+                ohms(a.nominal),
+                ohms(a.minus),
+                ohms(a.plus),
+                ohms(b.nominal),
+                ohms(b.minus),
+                ohms(b.plus),
+                ohms(rtd::lead_loop_resistance(a.nominal, b.nominal))
+            ))
+        }
+        Node::Rtd(node::Rtd { leads: None, .. }) => Some(format!(
+            "measure the installed lead resistance of `{name}`: the spec states none, so the budget holds no lead error"
+        )),
+        Node::Thermocouple(_) => Some(format!(
+            "measure the installed loop resistance of `{name}`: the spec states none, so any bias or burnout current's drop across it is not in the budget"
+        )),
+        Node::Thermistor(_)
+        | Node::Excitation(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
+    }
+}
+
+/// The slot of an element's dissipation constant, where it states one.
+fn dissipation(node: &Node) -> Option<usize> {
+    match node {
+        Node::Rtd(node::Rtd { dissipation, .. })
+        | Node::Thermistor(node::Thermistor { dissipation, .. }) => *dissipation,
+        Node::Excitation(_)
+        | Node::Thermocouple(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
+    }
 }
 
 /// The self-heating of each element that states a dissipation constant,
@@ -307,17 +338,7 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
         .iter()
         .enumerate()
         .filter_map(|(n, node)| {
-            let slot = match node {
-                Node::Rtd(node::Rtd {
-                    dissipation: Some(d),
-                    ..
-                })
-                | Node::Thermistor(node::Thermistor {
-                    dissipation: Some(d),
-                    ..
-                }) => *d,
-                _ => return None,
-            };
+            let slot = dissipation(node)?;
             let delta = plan.nominal[slot];
             let (at, kelvin) = [plan.range.0, plan.range.1]
                 .into_iter()

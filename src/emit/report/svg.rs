@@ -768,15 +768,42 @@ pub fn strips(id: &str, title: &str, axis: &Axis, window: (f64, f64), rows: &[St
         n((px(window.1) - px(window.0)).max(1.0)),
         n(bottom - top)
     );
+    let frame = StripFrame {
+        left,
+        plot_w,
+        top,
+        row_h,
+        hatch: &hatch,
+    };
     for (i, row) in rows.iter().enumerate() {
-        let y = top + i as f64 * row_h;
+        frame.row(&mut s, i, row, &px);
+    }
+    s.push_str("</g></svg>");
+    s
+}
+
+/// Where a strip chart's rows go.
+struct StripFrame<'a> {
+    left: f64,
+    plot_w: f64,
+    top: f64,
+    row_h: f64,
+    hatch: &'a str,
+}
+
+impl StripFrame<'_> {
+    /// Row `i`: its span (hatched and outlined when hidden), its label
+    /// left of the plot and its note right of it.
+    fn row(&self, s: &mut String, i: usize, row: &Strip, px: &dyn Fn(f64) -> f64) {
+        let (left, row_h) = (self.left, self.row_h);
+        let y = self.top + i as f64 * row_h;
         if let Some((a, b)) = row.span {
             // A single code still shows: at least 3 px, kept inside.
             let w = (px(b) - px(a)).max(3.0);
-            let x = px(a).min(left + plot_w - w);
+            let x = px(a).min(left + self.plot_w - w);
             let (fill, stroke) = if row.hidden {
                 (
-                    format!("url(#{hatch})"),
+                    format!("url(#{})", self.hatch),
                     r##" stroke="#222222" stroke-dasharray="3 2""##,
                 )
             } else {
@@ -798,13 +825,11 @@ pub fn strips(id: &str, title: &str, axis: &Axis, window: (f64, f64), rows: &[St
             n(left - 6.0),
             n(y + row_h / 2.0 + 4.0),
             escape(&row.label),
-            n(left + plot_w + 6.0),
+            n(left + self.plot_w + 6.0),
             n(y + row_h / 2.0 + 4.0),
             escape(&row.note)
         );
     }
-    s.push_str("</g></svg>");
-    s
 }
 
 /// The strip chart's legend: the window, a detectable and a hidden span.
