@@ -340,10 +340,22 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
         .filter_map(|(n, node)| {
             let slot = dissipation(node)?;
             let delta = plan.nominal[slot];
-            let (at, kelvin) = [plan.range.0, plan.range.1]
-                .into_iter()
-                .filter_map(|m| heating_at(plan, n, slot, m).ok().map(|k| (m, k)))
-                .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()))?;
+            let ends = [plan.range.0, plan.range.1].map(|m| heating_at(plan, n, slot, m).map(|k| (m, k)));
+            let worst = ends
+                .iter()
+                .filter_map(|e| e.as_ref().ok())
+                .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()));
+            let Some(&(at, kelvin)) = worst else {
+                // Said, not dropped: the item still asks for the check.
+                let why = ends.iter().find_map(|e| e.as_ref().err()).map_or(String::new(), |e| format!(" ({e})"));
+                return Some(ReviewItem {
+                    kind: ReviewKind::SelfHeating,
+                    text: format!(
+                        "self-heating of `{}` could not be evaluated{why}; measure it at the chosen excitation in the installed mounting",
+                        plan.names[n]
+                    ),
+                });
+            };
             let power = kelvin.abs() * delta;
             let m_unit = chain.measurand_unit();
             Some(ReviewItem {
@@ -362,8 +374,9 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
 }
 
 /// Element `n`'s self-heating in K at measurand `m`: its resistance as
-/// evaluated, less its resistance with no heating (an infinite
-/// dissipation constant), over the slope of its unheated resistance.
+/// evaluated, less its resistance with no heating (a dissipation
+/// constant so large the rise underflows; the physics refuses an
+/// infinite one), over the slope of its unheated resistance.
 fn heating_at(plan: &Plan, n: NodeId, slot: usize, m: f64) -> Result<f64, EvalError> {
     let resistance = |values: &[f64], m: f64| -> Result<f64, EvalError> {
         let env = Env {
@@ -378,7 +391,7 @@ fn heating_at(plan: &Plan, n: NodeId, slot: usize, m: f64) -> Result<f64, EvalEr
         })
     };
     let mut cold = plan.nominal.clone();
-    cold[slot] = f64::INFINITY;
+    cold[slot] = f64::MAX;
     let h = ((plan.range.1 - plan.range.0) * 1e-4).max(1e-6);
     let slope = (resistance(&cold, m + h)? - resistance(&cold, m - h)?) / (2.0 * h);
     let excess = resistance(&plan.nominal, m)? - resistance(&cold, m)?;

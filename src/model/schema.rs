@@ -2,6 +2,7 @@
 //! and dimension of each value, what is required and what is plausible.
 //! Adding a parameter is one line here (and its use in `physics`).
 
+use super::chain::Bill;
 use super::typed::{
     Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction,
     ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent, IcVoltage,
@@ -70,6 +71,8 @@ pub enum Shape {
     Calibrate,
     /// `± x K` or the name of another stage.
     LimitOrStage(Expect),
+    /// The name of another stage.
+    StageName,
     /// `type K`
     ThermocoupleType,
     /// A model line with no values.
@@ -214,6 +217,31 @@ const TIME_CONSTANT: ParamSpec = p("time_constant", plain(SECOND)).non_negative(
 const DISSIPATION: ParamSpec =
     p("dissipation", toleranced(Expect::Dim(Dim::DISSIPATION))).positive();
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
+/// One unit's price, in whatever currency the team prices parts in (a
+/// plain number), for the trade table of `catena compare`.
+const COST: ParamSpec = p("cost", plain(Expect::Dim(Dim::NONE))).non_negative();
+/// What the stage draws from its supplies, W.
+const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
+
+/// Lines the port rules and graph checks look up before a typed model
+/// exists (a stage with a rejected line has none), for the line's
+/// position: each name is written here once, for its row and its reader.
+pub const COLD_JUNCTION: &str = "cold_junction";
+/// An amplifier's stated reference voltage.
+pub const REFERENCE: &str = "reference";
+/// A converter's stated reference voltage.
+pub const VREF: &str = "vref";
+/// A transducer's rated output.
+pub const SENSITIVITY: &str = "sensitivity";
+/// A converter's channel: it names the converter whose part it shares.
+pub const CHANNEL_OF: &str = "channel_of";
+
+/// Required lines another line makes unnecessary, as (given, waived): a
+/// converter's channel states no part of its own.
+pub const WAIVED: &[(&str, &str)] = &[(CHANNEL_OF, "bits")];
+
+/// The thermocouple model's word.
+pub const THERMOCOUPLE: &str = "thermocouple";
 
 pub const RTD_CURVES: &[&str] = &[
     "pt100", "pt500", "pt1000", "ni100", "ni120", "ni1000", "cu10", "cu100", "custom",
@@ -230,6 +258,8 @@ static MODELS: &[ModelSpec] = &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
             p("noise", Shape::Limit(CURRENT_NOISE)),
             p("compliance", plain(VOLT)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -245,6 +275,8 @@ static MODELS: &[ModelSpec] = &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
             p("limit", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -266,6 +298,8 @@ static MODELS: &[ModelSpec] = &[
             DISSIPATION,
             TIME_CONSTANT,
             p("max_current", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
@@ -274,17 +308,19 @@ static MODELS: &[ModelSpec] = &[
     },
     ModelSpec {
         kind: StageKind::Sensor,
-        model: Some("thermocouple"),
+        model: Some(THERMOCOUPLE),
         role: Role::Floating,
         model_shape: Shape::ThermocoupleType,
         params: &[
             p("class", Shape::Count { min: 1, max: 3 }),
             p("tolerance", Shape::Limit(Expect::TempDiff)),
-            p("cold_junction", Shape::LimitOrStage(Expect::TempDiff)),
+            p(COLD_JUNCTION, Shape::LimitOrStage(Expect::TempDiff)),
             LEAD,
             TIME_CONSTANT,
             p("bias_voltage", measure(VOLT)),
             p("bias_resistor", toleranced(OHM)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
@@ -304,6 +340,8 @@ static MODELS: &[ModelSpec] = &[
             p("range", Shape::Range(Expect::Temperature)),
             TIME_CONSTANT,
             p("max_current", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("beta", "steinhart")],
         one_of: &[&["beta", "steinhart"]],
@@ -332,6 +370,8 @@ static MODELS: &[ModelSpec] = &[
             p("output_resistance", plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -350,6 +390,8 @@ static MODELS: &[ModelSpec] = &[
             p("accuracy", Shape::Limit(Expect::TempDiff)),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -368,6 +410,8 @@ static MODELS: &[ModelSpec] = &[
                 .positive(),
             p("side", Shape::Words(&["tension", "compression"])),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -381,7 +425,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p(
-                "sensitivity",
+                SENSITIVITY,
                 Shape::At {
                     value: Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE]),
                     at: Expect::Measurand,
@@ -399,6 +443,8 @@ static MODELS: &[ModelSpec] = &[
             p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("r", toleranced(OHM)).positive(),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -410,7 +456,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("resistor"),
         role: Role::Resistive,
         model_shape: measure(OHM),
-        params: &[],
+        params: &[COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -424,6 +470,8 @@ static MODELS: &[ModelSpec] = &[
         params: &[
             p("r", measure(OHM)).required().positive(),
             p("sensor", Shape::Words(&["low", "high"])),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -435,7 +483,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("quarter"),
         role: Role::Bridge { arms: 1 },
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive()],
+        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -446,7 +494,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("half"),
         role: Role::Bridge { arms: 2 },
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive()],
+        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -457,7 +505,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("full"),
         role: Role::Bridge { arms: 4 },
         model_shape: Shape::Flag,
-        params: &[],
+        params: &[COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -485,7 +533,9 @@ static MODELS: &[ModelSpec] = &[
             p("input", Shape::Range(VOLT)),
             p("output", Shape::Range(VOLT)),
             p("bandwidth", plain(HERTZ)).positive(),
-            p("reference", measure(VOLT)),
+            p(REFERENCE, measure(VOLT)),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -502,6 +552,8 @@ static MODELS: &[ModelSpec] = &[
             p("cutoff", toleranced(HERTZ)).positive(),
             p("r", toleranced(OHM)).positive(),
             p("c", toleranced(FARAD)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("cutoff", "r"), ("cutoff", "c")],
         one_of: &[&["cutoff", "r"]],
@@ -517,7 +569,7 @@ static MODELS: &[ModelSpec] = &[
             p("bits", Shape::Count { min: 1, max: 32 }).required(),
             p("input", Shape::Words(&["single", "differential"])),
             p("polarity", Shape::Words(&["unipolar", "bipolar"])),
-            p("vref", measure(VOLT)).positive(),
+            p(VREF, measure(VOLT)).positive(),
             p("pga", toleranced(Expect::Ratio)).positive(),
             p("offset", Shape::Limit(VOLTAGE_OR_CODES)),
             p("gain_error", Shape::Limit(RATIO_OR_CODES)),
@@ -531,8 +583,29 @@ static MODELS: &[ModelSpec] = &[
             p("sampling_capacitance", plain(FARAD)).positive(),
             p("sampling_resistance", plain(OHM)).non_negative(),
             p("acquisition_time", plain(SECOND)).positive(),
+            COST,
+            POWER,
+            p(CHANNEL_OF, Shape::StageName),
         ],
-        exclusive: &[],
+        // A channel shares its converter's part: only its gain is its own.
+        exclusive: &[
+            (CHANNEL_OF, "bits"),
+            (CHANNEL_OF, "input"),
+            (CHANNEL_OF, "polarity"),
+            (CHANNEL_OF, "vref"),
+            (CHANNEL_OF, "offset"),
+            (CHANNEL_OF, "gain_error"),
+            (CHANNEL_OF, "inl"),
+            (CHANNEL_OF, "noise"),
+            (CHANNEL_OF, "rate"),
+            (CHANNEL_OF, "notch"),
+            (CHANNEL_OF, "ref_range"),
+            (CHANNEL_OF, "rails"),
+            (CHANNEL_OF, "burnout"),
+            (CHANNEL_OF, "sampling_capacitance"),
+            (CHANNEL_OF, "sampling_resistance"),
+            (CHANNEL_OF, "acquisition_time"),
+        ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
         read: read_adc,
@@ -552,6 +625,8 @@ static MODELS: &[ModelSpec] = &[
                 },
             ),
             p("calibrate", Shape::Calibrate),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -559,6 +634,51 @@ static MODELS: &[ModelSpec] = &[
         read: read_convert,
     },
 ];
+
+/// The value a tracking group acts on in a typed model, with the name of
+/// the line that states it: a fixed resistor's value, a bridge's
+/// completion resistors, an excitation's output.
+pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
+    match model {
+        StageModel::Resistor(r) => Some(("resistor", &r.r)),
+        StageModel::Bridge(b) => Some(("r", b.r.as_ref()?)),
+        StageModel::Excitation(e) => Some((
+            match e.source {
+                Source::Current { .. } => "current",
+                Source::Voltage { .. } => "voltage",
+            },
+            &e.value,
+        )),
+        _ => None,
+    }
+}
+
+/// Lines a model needs beyond its table's, by the word of its model
+/// line: a custom RTD curve has no table values to fall back on.
+pub fn required_for_word(model: &ModelSpec, word: &str) -> &'static [&'static str] {
+    match (model.model, word) {
+        (Some("rtd"), "custom") => &["r0", "coefficients"],
+        _ => &[],
+    }
+}
+
+/// A line the model line's word leaves unused, and how to use it.
+pub struct Unused {
+    pub line: &'static str,
+    pub help: &'static str,
+}
+
+/// A standard RTD curve has its own coefficients, so stated ones would
+/// go unused.
+pub fn unused_for_word(model: &ModelSpec, word: &str) -> Option<Unused> {
+    match (model.model, word) {
+        (Some("rtd"), w) if w != "custom" => Some(Unused {
+            line: "coefficients",
+            help: "write `rtd custom` with `r0` to use these coefficients (a characterised probe), or remove the line",
+        }),
+        _ => None,
+    }
+}
 
 /// The models of a kind.
 pub fn models(kind: StageKind) -> impl Iterator<Item = &'static ModelSpec> {
@@ -677,6 +797,15 @@ impl<'a> Reader<'a> {
     }
 }
 
+/// What a stage of any kind states for the bill of materials and the
+/// power budget.
+pub fn read_bill(r: &Reader<'_>) -> Bill {
+    Bill {
+        cost: r.value("cost"),
+        power: r.value("power"),
+    }
+}
+
 fn read_excitation(r: &Reader<'_>, source: Source, name: &str) -> Option<StageModel> {
     Some(StageModel::Excitation(Excitation {
         source,
@@ -740,9 +869,9 @@ fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
 
 fn read_thermocouple(r: &Reader<'_>) -> Option<StageModel> {
     let ty = r
-        .choice("thermocouple", ThermocoupleType::from_letter)
+        .choice(THERMOCOUPLE, ThermocoupleType::from_letter)
         .ok()??;
-    let cold_junction = match r.get("cold_junction") {
+    let cold_junction = match r.get(COLD_JUNCTION) {
         Some(ParamValue::Limit(t)) => Some(ColdJunction::Error(t.clone())),
         Some(ParamValue::StageRef { name, .. }) => Some(ColdJunction::Stage(name.clone())),
         _ => None,
@@ -814,7 +943,7 @@ fn read_strain_gauge(r: &Reader<'_>) -> Option<StageModel> {
 }
 
 fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
-    let (sensitivity, sensitivity_dim, full_scale) = r.at("sensitivity")?;
+    let (sensitivity, sensitivity_dim, full_scale) = r.at(SENSITIVITY)?;
     let linearity = r
         .choice("linearity", |w| match w {
             "terminal" => Some(LinearityLine::Terminal),
@@ -882,7 +1011,7 @@ fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
         input: r.range("input"),
         output: r.range("output"),
         bandwidth: r.value("bandwidth"),
-        reference: r.measure("reference"),
+        reference: r.measure(REFERENCE),
     }))
 }
 
@@ -928,14 +1057,25 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         }),
         _ => None,
     };
+    let channel_of = match r.get(CHANNEL_OF) {
+        Some(ParamValue::StageRef { name, .. }) => Some(name.clone()),
+        _ => None,
+    };
+    // A channel's bits are its converter's, filled in with the rest of
+    // its part once the converter is known (`model::channels`).
+    let bits = match (r.count("bits"), &channel_of) {
+        (Some(bits), _) => bits,
+        (None, Some(_)) => 0,
+        (None, None) => return None,
+    };
     Some(StageModel::Adc(Adc {
-        bits: r.count("bits")?,
+        bits,
         input,
         polarity: polarity.unwrap_or(match input {
             AdcInput::Differential => Polarity::Bipolar,
             AdcInput::Single => Polarity::Unipolar,
         }),
-        vref: r.measure("vref"),
+        vref: r.measure(VREF),
         pga: r.measure("pga"),
         offset: r.limit("offset"),
         gain_error: r.limit("gain_error"),
@@ -947,6 +1087,8 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         rails: r.range("rails"),
         burnout: r.value("burnout"),
         sampling,
+        channel_of,
+        channels: 1,
     }))
 }
 
