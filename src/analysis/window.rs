@@ -21,7 +21,7 @@ use crate::physics::adc::{code_range, Polarity};
 pub const NOISE_K: f64 = 3.0;
 
 /// Budget points across the measurand range, as the limit checks use.
-const POINTS: usize = 21;
+pub const POINTS: usize = 21;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct CodeWindow {
@@ -50,6 +50,15 @@ impl CodeWindow {
 
 /// The chain's valid code window at its main converter.
 pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> {
+    code_window_from(plan, &ranges::envelopes(chain, plan, POINTS)?)
+}
+
+/// [`code_window`] from the range envelopes the limit checks already
+/// computed (at the budget points), so `check` follows the signals once.
+pub fn code_window_from(
+    plan: &Plan,
+    envelopes: &[ranges::Envelope],
+) -> Result<CodeWindow, EvalError> {
     let Node::Adc(adc) = &plan.nodes[plan.adc] else {
         return Err(numeric(plan, "no converter"));
     };
@@ -59,8 +68,8 @@ pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> 
     };
     let rails = code_range(adc.bits, adc.polarity)
         .map_err(|_| numeric(plan, "the converter has no code range"))?;
-    let envelope = ranges::envelopes(chain, plan, POINTS)?
-        .into_iter()
+    let envelope = envelopes
+        .iter()
         .find(|e| e.node == plan.adc && e.limit == Limit::ConverterInput)
         .ok_or_else(|| numeric(plan, "no converter input envelope"))?;
     // The envelope is in fractions of the reference: back to codes.

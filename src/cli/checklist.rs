@@ -12,9 +12,9 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::faults::{self, FaultReport, Masking, Threshold, Verdict, TRIP_K};
+use crate::analysis::faults::{self, FaultReport, Masking, Threshold, Verdict};
 use crate::analysis::Keep;
-use crate::diagnostics::{render_human, Severity};
+use crate::diagnostics::{render_human, Code, Severity};
 use crate::model::Chain;
 use crate::units::format::{from_si, trimmed};
 
@@ -102,7 +102,15 @@ pub fn run(args: ChecklistArgs) -> u8 {
         Ok((c, _)) => c,
         Err(status) => return status,
     };
-    if checked.findings.has_errors() {
+    // The fault and trip findings are what the checklist is about: they
+    // are listed, not a reason to refuse it.
+    let about_faults =
+        |code: Code| matches!(code, Code::R670 | Code::R671 | Code::R672 | Code::R673);
+    let blocking = checked
+        .findings
+        .iter()
+        .any(|f| f.severity() == Severity::Error && !about_faults(f.code));
+    if blocking {
         err!(
             "{}",
             render_human(
@@ -129,7 +137,7 @@ pub fn run(args: ChecklistArgs) -> u8 {
     let warnings: Vec<String> = checked
         .findings
         .iter()
-        .filter(|f| f.severity() == Severity::Warning)
+        .filter(|f| f.severity() == Severity::Warning || about_faults(f.code))
         .map(|f| format!("{} {}", f.code.as_str(), f.message))
         .collect();
     let mut lists = Vec::new();
@@ -141,10 +149,14 @@ pub fn run(args: ChecklistArgs) -> u8 {
                 return EXIT_FINDINGS;
             }
         };
-        let listed = faults::analyse(chain, &plan)
-            .and_then(|r| faults::maskings(chain, &plan, &r, TRIP_K).map(|m| (r, m)));
+        // The check judged the faults already; a chain it did not judge
+        // (none so far) is judged here.
+        let listed = match checked.faults(chain) {
+            Some(kept) => Ok(kept.clone()),
+            None => faults::check(chain, &plan, None),
+        };
         match listed {
-            Ok((report, maskings)) => lists.push(chain_list(chain, &report, &maskings, &warnings)),
+            Ok(c) => lists.push(chain_list(chain, &c.report, &c.maskings, &warnings)),
             Err(e) => {
                 errln!("catena: chain `{}`: {e}", chain.name);
                 return EXIT_FINDINGS;
@@ -192,6 +204,7 @@ fn chain_list(
             threshold: f.threshold.map(|t| match t {
                 Threshold::Below(n) => format!("code < {n}"),
                 Threshold::Above(n) => format!("code > {n}"),
+                Threshold::Outside(a, b) => format!("code < {a} or code > {b}"),
             }),
             reason: f.reason.clone(),
             action: match f.verdict {
@@ -241,10 +254,10 @@ fn chain_list(
         faults,
         alarms,
         review: warnings.to_vec(),
-        cautions: if chain.alarms.is_empty() {
-            Vec::new()
-        } else {
+        cautions: if chain.is_protective() {
             vec![CAUTION]
+        } else {
+            Vec::new()
         },
     }
 }

@@ -18,7 +18,9 @@ pub mod value;
 use std::path::Path;
 use std::sync::Arc;
 
-pub use chain::{Alarm, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember};
+pub use chain::{
+    Alarm, Chain, Connection, Measurand, Protects, Requirement, Stage, TrackGroup, TrackMember,
+};
 pub use graph::output_signals;
 pub use parts::PartsCache;
 pub use requirement::{AccuracyMethod, RequirementKind};
@@ -235,6 +237,7 @@ pub fn resolve_with(
             reference,
             requirements: settings.requirements,
             alarms: settings.alarms,
+            protects: settings.protects,
             stages,
             connections,
             groups,

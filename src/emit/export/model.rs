@@ -137,6 +137,8 @@ pub struct AlarmExport {
 #[derive(Clone, Debug, PartialEq)]
 pub struct ChainExport {
     pub chain: String,
+    /// It trips or alarms, or says it protects people or property.
+    pub protective: bool,
     pub title: Option<String>,
     pub quantity: String,
     /// The reading's unit (`degC`) and its difference unit (`K`).
@@ -183,9 +185,10 @@ impl ChainExport {
         }
     }
 
-    /// Whether the chain trips anything: its export carries the caution.
+    /// Whether the chain trips anything or protects people or property:
+    /// its export carries the caution.
     pub fn needs_caution(&self) -> bool {
-        !self.alarms.is_empty()
+        self.protective
     }
 }
 
@@ -293,6 +296,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         samples: samples.len(),
         window: window.clone(),
         alarms: alarms(chain, plan, true, &to_unit)?,
+        protective: chain.is_protective(),
         calibration,
         junction,
         max_error_junction: None,

@@ -668,10 +668,15 @@ fn cautions(chain: &Chain, verdict: &Verdict) -> Vec<String> {
     let mut out = vec![
         "This report is a design aid computed from the values the spec states; it is not a safety assessment, and the installed chain must be verified by measurement.".to_string(),
     ];
-    if !chain.alarms.is_empty() {
-        out.push(
-            "This chain raises alarms or trips. Where they protect people, property or a process, the applicable functional-safety standard, local codes and licensed practice govern its design, wiring and proof testing; set and verify trip points on the installed system.".to_string(),
-        );
+    if chain.is_protective() {
+        let what = if chain.alarms.is_empty() {
+            "This chain protects people or property: the applicable"
+        } else {
+            "This chain raises alarms or trips. Where they protect people, property or a process, the applicable"
+        };
+        out.push(format!(
+            "{what} functional-safety standard, local codes and licensed practice govern its design, wiring and proof testing; set and verify trip points on the installed system."
+        ));
     }
     if verdict.limits.iter().any(|l| l.beyond) {
         out.push(

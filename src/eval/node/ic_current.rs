@@ -3,7 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
-use crate::eval::plan::{EvalError, Senses, Signal, SlotId, SourceKind};
+use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::semiconductor;
 
@@ -11,6 +11,10 @@ use crate::physics::semiconductor;
 pub struct IcCurrent {
     pub slope: SlotId,
     pub senses: Senses,
+    /// The voltage excitation that powers it, when wired: where its
+    /// output rises to when its load opens (a current regulator with
+    /// nowhere to send its current saturates toward its supply).
+    pub supply: Option<NodeId>,
 }
 
 pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, EvalError> {
@@ -21,6 +25,7 @@ pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, 
     Ok(IcCurrent {
         slope,
         senses: cx.senses,
+        supply: cx.inputs.input,
     })
 }
 
