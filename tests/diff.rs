@@ -280,3 +280,112 @@ fn a_tracking_group_is_a_spec_change() {
     assert_eq!(group["kind"], "added");
     assert_eq!(group["subject"], "pair");
 }
+
+/// The kiln's front end with a 10 uA burnout current, then with 1 uA: an
+/// open couple no longer leaves the valid window, so the fault became
+/// silent, which `--fail-on regression` fails on; the way back makes it
+/// detectable again.
+#[test]
+fn a_fault_made_silent_is_a_regression() {
+    let (old, new) = (
+        fixture("kiln_burnout.catena"),
+        fixture("kiln_weak_burnout.catena"),
+    );
+    let md = diff(&old, &new, "0", &["--format", "markdown"]);
+    assert_eq!(md.status, 0, "{}", md.stderr);
+    insta::assert_snapshot!("diff-silent-fault-markdown", md.stdout);
+
+    let run = diff(&old, &new, "0", &["--format", "json"]);
+    let doc = json(&run.stdout);
+    assert_eq!(doc["regression"], true);
+    let faults = &doc["files"][0]["chains"][0]["outcome"]["faults"];
+    let open = faults
+        .as_array()
+        .expect("fault changes")
+        .iter()
+        .find(|f| f["stage"] == "tc" && f["fault"] == "open")
+        .unwrap_or_else(|| panic!("no open couple in {faults}"));
+    assert_eq!(open["old"]["verdict"], "detectable");
+    assert!(open["old"]["threshold"]
+        .as_str()
+        .is_some_and(|t| t.starts_with("code > ")));
+    assert_eq!(open["new"]["verdict"], "silent");
+    // By hand: 1 uA through the 10 kΩ bias resistor is 10 mV across the
+    // open input; × 36 plus the reference divider's 2.5 V × 10/71.9 gives
+    // 0.7077 V, code 0.7077 / 2.5 × 2^23 = 2 374 680, inside the window.
+    let hand = (0.010 * 36.0 + 2.5 * 10.0 / 71.9) / 2.5 * 8_388_608.0;
+    let codes = &open["new"]["codes"];
+    let (lo, hi) = (codes[0].as_f64().unwrap(), codes[1].as_f64().unwrap());
+    assert!(lo <= hand && hand <= hi, "{hand} outside {codes}");
+    assert_eq!(open["regression"], true);
+
+    let gated = diff(&old, &new, "0", &["--fail-on", "regression"]);
+    assert_eq!(gated.status, 1, "{}", gated.stdout);
+    let back = diff(
+        &new,
+        &old,
+        "0",
+        &["--fail-on", "regression", "--format", "json"],
+    );
+    assert_eq!(back.status, 0, "{}", back.stdout);
+    assert_eq!(json(&back.stdout)["direction"], "better");
+}
+
+/// Two candidates priced from a parts file: each chain's unit cost is the
+/// sum of what its stages and parts state, its power the converters'
+/// stated draw plus what the excitation delivers into its load, and a
+/// powered stage that states nothing is named.
+#[test]
+fn compare_sums_cost_and_power() {
+    let spec = fixture("candidates.catena");
+    let md = catena(
+        &root(),
+        &["compare", &spec, "--trials", "0", "--format", "markdown"],
+        None,
+    );
+    // The NTC candidate misses its accuracy: a verdict, not a failure to
+    // evaluate.
+    assert_eq!(md.status, 0, "{}", md.stderr);
+    insta::assert_snapshot!("compare-cost-power-markdown", md.stdout);
+
+    let run = catena(
+        &root(),
+        &["compare", &spec, "--trials", "0", "--format", "json"],
+        None,
+    );
+    let doc = json(&run.stdout);
+    let bill = |i: usize| doc["candidates"][i]["outcome"]["bill"].clone();
+    let rtd = bill(0);
+    // 14.50 (probe part) + 0.80 (drive) + 0.35 (rref) + 6.20 (converter part).
+    assert!(
+        (rtd["cost"].as_f64().unwrap() - 21.85).abs() < 1e-9,
+        "{rtd}"
+    );
+    assert_eq!(rtd["unpriced"], serde_json::json!([]));
+    // By hand: the load is the Pt1000 at 15 degC (1058.5 Ω, + 0.7 Ω of
+    // class A) and the 4.99 kΩ reference in series, carrying 250 uA
+    // + 0.5 %: at most 1.520 V, so 250 uA × 1.520 V = 0.380 mW delivered,
+    // plus the converter's stated 1.5 mW.
+    let drive = rtd["power"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["stage"] == "drive")
+        .expect("the excitation's power")
+        .clone();
+    assert_eq!(drive["basis"], "delivered");
+    let volts = (1058.49 + 0.70 + 4990.0 * 1.0001) * 250e-6 * 1.005;
+    let delivered = 250e-6 * volts;
+    let watts = drive["watts"].as_f64().unwrap();
+    assert!(
+        (watts / delivered - 1.0).abs() < 1e-3,
+        "{watts} against {delivered}"
+    );
+    let total = rtd["power_w"].as_f64().unwrap();
+    assert!((total - (watts + 1.5e-3)).abs() < 1e-12, "{rtd}");
+    let ntc = bill(1);
+    assert_eq!(ntc["unpriced"], serde_json::json!(["supply"]));
+    // Passive stages (the bead, the divider) are in the excitation's
+    // delivered power, not missing.
+    assert_eq!(ntc["unpowered"], serde_json::json!([]));
+}

@@ -369,6 +369,130 @@ fn exports_compile_and_reproduce_catena_readings() {
     assert!(total >= 13, "only {total} demo chains");
 }
 
+/// The exported fault thresholds and alarm trip codes are the fault
+/// analysis's own: the same as `catena checklist` lists, each detectable
+/// fault's threshold strictly between the valid window and the fault's
+/// codes, and a constant for each in the C and Rust exports.
+#[test]
+fn fault_thresholds_and_trip_codes_are_the_checklists() {
+    for spec in demo_specs() {
+        let rel = relative(&spec);
+        let json = export(&["export", &rel, "--lang", "json"]);
+        assert_eq!(json.status, 0, "{rel}: {}", json.stderr);
+        let doc: serde_json::Value = serde_json::from_str(&json.stdout).expect("JSON");
+        let list = export(&["checklist", &rel, "--format", "json"]);
+        assert_eq!(list.status, 0, "{rel}: {}", list.stderr);
+        let list: serde_json::Value = serde_json::from_str(&list.stdout).expect("JSON");
+        let rust = export(&["export", &rel, "--lang", "rust"]).stdout;
+        for (c, l) in doc["chains"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .zip(list["chains"].as_array().unwrap())
+        {
+            let (low, high) = (
+                c["window"]["low"].as_i64().unwrap(),
+                c["window"]["high"].as_i64().unwrap(),
+            );
+            let exported = c["faults"].as_array().unwrap();
+            let listed = l["faults"].as_array().unwrap();
+            assert_eq!(exported.len(), listed.len(), "{rel}");
+            for (f, r) in exported.iter().zip(listed) {
+                let what = format!("{rel} {} {}", f["stage"], f["fault"]);
+                assert_eq!(
+                    (&f["stage"], &f["fault"]),
+                    (&r["stage"], &r["fault"]),
+                    "{what}"
+                );
+                assert_eq!(f["verdict"], r["verdict"], "{what}");
+                assert_eq!(f["codes"], r["codes"], "{what}");
+                let threshold = match (f["below"].as_i64(), f["above"].as_i64()) {
+                    (Some(n), None) => {
+                        assert!(f["codes"][1].as_i64().unwrap() < n && n < low, "{what}");
+                        Some(format!("code < {n}"))
+                    }
+                    (None, Some(n)) => {
+                        assert!(high < n && n < f["codes"][0].as_i64().unwrap(), "{what}");
+                        Some(format!("code > {n}"))
+                    }
+                    // A fault that leaves the code at either end.
+                    (Some(a), Some(b)) => {
+                        assert!(a < low && high < b, "{what}");
+                        Some(format!("code < {a} or code > {b}"))
+                    }
+                    _ => None,
+                };
+                assert_eq!(threshold.as_deref(), r["threshold"].as_str(), "{what}");
+                if let Some(names) = f["constant"].as_str() {
+                    for name in names.split(", ") {
+                        let n = if name.ends_with("_BELOW") {
+                            f["below"].as_i64()
+                        } else {
+                            f["above"].as_i64()
+                        }
+                        .unwrap();
+                        assert!(
+                            rust.contains(&format!("pub const {name}: i64 = {n};")),
+                            "{what}"
+                        );
+                    }
+                }
+            }
+            let alarms = c["alarms"].as_array().unwrap();
+            let listed = l["alarms"].as_array().unwrap();
+            assert_eq!(alarms.len(), listed.len(), "{rel}");
+            for (a, r) in alarms.iter().zip(listed) {
+                assert_eq!(a["trip_code"], r["trip_code"], "{rel}");
+                assert_eq!(a["masked_by"], r["masked_by"], "{rel}");
+            }
+        }
+    }
+}
+
+/// The C export's fault thresholds compile, and a program linked with it
+/// finds each outside the valid window (`code_valid` false).
+#[test]
+fn the_c_fault_thresholds_lie_outside_the_window() {
+    let dir = scratch("faults-cold-store");
+    let out = dir.join("cold_store").to_string_lossy().to_string();
+    let run = export(&[
+        "export",
+        "specs/cold_store.catena",
+        "--lang",
+        "c",
+        "-o",
+        &out,
+    ]);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let header = std::fs::read_to_string(dir.join("cold_store.h")).expect("header");
+    let names: Vec<&str> = header
+        .lines()
+        .filter_map(|l| l.strip_prefix("#define COLD_STORE_FAULT_"))
+        .filter_map(|l| l.split_whitespace().next())
+        .collect();
+    assert!(names.len() >= 5, "{header}");
+    let checks: String = names
+        .iter()
+        .map(|n| format!("    if (cold_store_code_valid(COLD_STORE_FAULT_{n})) {{\n        return 1;\n    }}\n"))
+        .collect();
+    let main =
+        format!("#include \"cold_store.h\"\nint main(void)\n{{\n{checks}    return 0;\n}}\n");
+    std::fs::write(dir.join("main.c"), main).expect("main.c");
+    let program = dir.join("faults_c");
+    let status = Command::new("cc")
+        .args(["-std=c99", "-Wall", "-Wextra", "-Werror", "-pedantic"])
+        .arg(dir.join("main.c"))
+        .arg(dir.join("cold_store.c"))
+        .arg("-o")
+        .arg(&program)
+        .status()
+        .expect("a C compiler (cc) runs");
+    assert!(status.success(), "the C export's thresholds compile");
+    let status = Command::new(&program).status().expect("the program runs");
+    assert!(status.success(), "a threshold lies inside the valid window");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
 #[test]
 fn every_export_of_every_demo_spec() {
     for spec in demo_specs() {

@@ -260,6 +260,158 @@ fn a_trip_pushed_past_the_range_is_an_error_with_the_number() {
     assert!(help.contains(&limit), "{help} lacks {limit}");
 }
 
+/// The row of `stage`'s `fault` in chain `chain` (by position).
+fn row_of<'a>(list: &'a Value, chain: usize, stage: &str, fault: &str) -> &'a Value {
+    list["chains"][chain]["faults"]
+        .as_array()
+        .expect("fault rows")
+        .iter()
+        .find(|r| r["stage"] == stage && r["fault"] == fault)
+        .unwrap_or_else(|| panic!("no row for {stage} {fault} in chain {chain}: {list}"))
+}
+
+/// IEC 60751 Pt100 resistance, Ω, at 0 and 100 °C (the standard's table).
+const PT100_0: f64 = 100.0;
+const PT100_100: f64 = 138.5055;
+
+/// A 24-bit bipolar converter's exact code, rounded.
+fn code24(v: f64, vref: f64) -> i64 {
+    (v / vref * 2f64.powi(23)).round() as i64
+}
+
+/// A 3-wire Pt100 whose compensation lead opens: the compensating
+/// current has no path, so that converter input sits at the source's
+/// 1.5 V compliance, while wire 1 reads the element with both 5 Ω leads
+/// above the 2 kΩ reference resistor (0.5 mA × 2 kΩ = 1 V, also the
+/// converter's reference): v = 1 V + 0.5 mA × (R + 10 Ω) − 1.5 V.
+#[test]
+fn a_3_wire_rtd_with_its_compensation_lead_open_reads_below_the_window() {
+    let list = checklist("kind_rtd_3wire_compensation_open.catena");
+    let open = row(&list, "rtd", "compensation_lead_open");
+    let v = |r: f64| 1.0 + 0.5e-3 * (r + 5.0 + 5.0) - 1.5;
+    assert_eq!(
+        codes(open),
+        (code24(v(PT100_0), 1.0), code24(v(PT100_100), 1.0))
+    );
+    assert_eq!(open["verdict"], "detectable");
+    // Healthy, the leads cancel: 0.5 mA × R over 1 V.
+    let window = &list["chains"][0]["window"];
+    assert_eq!(window["low"], code24(0.5e-3 * PT100_0, 1.0));
+    assert!(open["threshold"]
+        .as_str()
+        .is_some_and(|t| t.starts_with("code < ")));
+}
+
+/// A 4-wire Pt100's sense lead open cuts the converter's input off the
+/// element: with no bias path nothing sets its code; a 100 nA burnout
+/// current into the open input (1e12 Ω of insulation) drives it to the
+/// top code, 2^23 − 1. A force lead open starves the element (0 V across
+/// it) and so does the sense leads' short: code 0.
+#[test]
+fn a_4_wire_rtd_with_a_sense_lead_open_is_undetermined_without_burnout() {
+    let list = checklist("kind_rtd_4wire_sense_open.catena");
+    for fault in ["sense_lead_open", "return_sense_lead_open"] {
+        let floating = row_of(&list, 0, "rtd", fault);
+        assert_eq!(floating["verdict"], "undetermined");
+        assert!(floating["codes"].is_null());
+        let driven = row_of(&list, 1, "rtd", fault);
+        assert_eq!(codes(driven), (8388607, 8388607));
+        assert_eq!(driven["verdict"], "detectable");
+    }
+    for fault in ["force_lead_open", "return_lead_open", "sense_leads_shorted"] {
+        assert_eq!(codes(row_of(&list, 0, "rtd", fault)), (0, 0), "{fault}");
+    }
+    // The element open: the source's 4 V compliance across the sense
+    // leads, above the 2.5 V reference: the top code.
+    assert_eq!(codes(row_of(&list, 0, "rtd", "open")), (8388607, 8388607));
+}
+
+/// An IC sensor's output stuck high sits at its supply: 3.3 V ± 1 % wired
+/// gives 3.267 .. 3.333 V, codes 3267 .. 3333 of a 12-bit converter on
+/// 4.096 V (1 mV a code); a stated 2.7 V .. 5.5 V range, its low end,
+/// 2.7 V, code 2700. The wired supply lost takes the output to 0 V. A
+/// PTAT current sensor shorted leaves only its 4.7 kΩ load to limit the
+/// current, so the load carries the whole 3.3 V ± 1 %: codes 3267 .. 3333
+/// again (healthy, 273 .. 373 µA × 4.7 kΩ, codes 1284 .. 1754).
+#[test]
+fn an_ic_sensor_stuck_high_reads_its_supply() {
+    let list = checklist("kind_ic_stuck_high.catena");
+    let code = |v: f64| (v / 4.096 * 4096.0).round() as i64;
+    let wired = row_of(&list, 0, "ic", "stuck_high");
+    assert_eq!(codes(wired), (code(3.3 * 0.99), code(3.3 * 1.01)));
+    assert_eq!(wired["verdict"], "detectable");
+    assert_eq!(codes(row_of(&list, 0, "supply", "lost")), (0, 0));
+    assert_eq!(
+        codes(row_of(&list, 1, "ic", "stuck_high")),
+        (code(2.7), code(2.7))
+    );
+}
+
+/// An amplifier's open input with a 10 nA burnout current: 10 nA into
+/// 1e12 Ω is 10 kV, times a gain of 2, clipped at the 5 V swing: code
+/// 5 / 5 × 65536, held at the top code 65535. The converter's own input
+/// open, without a burnout current, floats.
+#[test]
+fn an_open_input_is_driven_to_a_rail_by_its_burnout_current() {
+    let list = checklist("kind_input_open.catena");
+    let front = row(&list, "front", "input_open");
+    assert_eq!(codes(front), (65535, 65535));
+    assert_eq!(front["verdict"], "detectable");
+    let conv = row(&list, "conv", "input_open");
+    assert_eq!(conv["verdict"], "undetermined");
+}
+
+/// A Pt100 quarter bridge of 100 Ω on 2.5 V, read against the same 2.5 V
+/// (`physics::strain`: V_P = V r2/(r1 + r2), V_N = V r4/(r3 + r4), the
+/// element r2). Each completion resistor open (1e12 Ω) or shorted
+/// (1 mΩ), worked through those two dividers at 0 and 100 °C.
+#[test]
+fn each_completion_resistor_of_a_bridge_open_and_shorted() {
+    let list = checklist("kind_bridge_completion.catena");
+    let (open, short) = (1e12, 1e-3);
+    let out = |r1: f64, r2: f64, r3: f64, r4: f64| {
+        let v = 2.5 * r2 / (r1 + r2) - 2.5 * r4 / (r3 + r4);
+        code24(v, 2.5)
+    };
+    let span = |f: &dyn Fn(f64) -> i64| {
+        let (a, b) = (f(PT100_0), f(PT100_100));
+        (a.min(b), a.max(b))
+    };
+    let cases: [(&str, &dyn Fn(f64) -> i64); 6] = [
+        ("completion_1_open", &|r| out(open, r, 100.0, 100.0)),
+        ("completion_1_short", &|r| out(short, r, 100.0, 100.0)),
+        ("completion_2_open", &|r| out(100.0, r, open, 100.0)),
+        ("completion_2_short", &|r| out(100.0, r, short, 100.0)),
+        ("completion_3_open", &|r| out(100.0, r, 100.0, open)),
+        ("completion_3_short", &|r| out(100.0, r, 100.0, short)),
+    ];
+    for (fault, f) in cases {
+        let got = row(&list, "arms", fault);
+        assert_eq!(codes(got), span(f), "{fault}");
+        assert_eq!(got["verdict"], "detectable", "{fault}");
+    }
+}
+
+/// A load cell's excitation lead open: no current in its bridge, both
+/// signal leads at the other excitation lead, 0 V between them, the
+/// zero-load code 0, inside the window: silent. The return lead open
+/// lifts both to 5 V, beyond the amplifier's 3.5 V input range: its
+/// output rails at 4.8 V, code 4.8 / 5 × 2^23 = 8053064.
+#[test]
+fn a_load_cell_with_its_excitation_lead_open_reads_zero_load() {
+    let list = checklist("kind_transducer_leads.catena");
+    let open = row(&list, "cell", "excitation_lead_open");
+    assert_eq!(codes(open), (0, 0));
+    assert_eq!(open["verdict"], "silent");
+    let ret = row(&list, "cell", "excitation_return_open");
+    assert_eq!(codes(ret), (code24(4.8, 5.0), code24(4.8, 5.0)));
+    assert_eq!(ret["verdict"], "detectable");
+    assert_eq!(
+        row(&list, "cell", "signal_lead_open")["verdict"],
+        "undetermined"
+    );
+}
+
 /// The checklist of every demo spec, Markdown and JSON.
 #[test]
 fn demo_checklists() {

@@ -60,7 +60,20 @@ pub fn found_at_bring_up(kind: FaultKind) -> bool {
         | FaultKind::SaturatedLow
         | FaultKind::OverRange
         | FaultKind::UnderRange
-        | FaultKind::ReferenceLost => false,
+        | FaultKind::ReferenceLost
+        | FaultKind::CompensationLeadOpen
+        | FaultKind::ForceLeadOpen
+        | FaultKind::ReturnLeadOpen
+        | FaultKind::SenseLeadOpen
+        | FaultKind::ReturnSenseLeadOpen
+        | FaultKind::SenseLeadsShorted
+        | FaultKind::StuckHigh
+        | FaultKind::InputOpen
+        | FaultKind::CompletionOpen(_)
+        | FaultKind::CompletionShort(_)
+        | FaultKind::ExcitationLeadOpen
+        | FaultKind::ExcitationReturnOpen
+        | FaultKind::SignalLeadOpen => false,
     }
 }
 
@@ -305,6 +318,28 @@ fn fix(
             let reader = reader_of(plan, fault.node);
             (burnout_fix(plan, cases, window, fault), reader)
         }
+        // The pin cut off from its source: only a current of the stage's
+        // own gives it a path, and any that outweighs the input's bias
+        // current takes it to a rail.
+        (FaultKind::InputOpen, _) if codes.is_none() => (
+            Some(format!(
+                "a burnout current on `{}` (`burnout`, larger than its input bias current) drives the open pin to a rail, outside the valid window {} .. {}",
+                plan.names[fault.node], window.low, window.high
+            )),
+            here,
+        ),
+        (_, _)
+            if codes.is_none()
+                && fault.burnout.is_none()
+                && !unstated_limit(plan, fault)
+                && reader_of(plan, fault.node).is_some() =>
+        (
+            Some(format!(
+                "a burnout current on `{}` (`burnout`, larger than its input bias current) drives the open input to a rail, outside the valid window {} .. {}",
+                plan.names[reader_of(plan, fault.node).unwrap_or(fault.node)], window.low, window.high
+            )),
+            reader_of(plan, fault.node),
+        ),
         (FaultKind::Reversed, _) => (
             Some("a wiring mistake the code cannot show near the cold junction's temperature: at bring-up, warm the junction and check that the reading rises".to_string()),
             here,
@@ -347,6 +382,9 @@ fn fix(
 /// spec may leave out.
 fn unstated_limit(plan: &Plan, fault: &Fault) -> bool {
     match (fault.kind, &plan.nodes[fault.node]) {
+        // A pin's own open-input current (`burnout`) and an IC's supply
+        // are optional: without them the fault is unchecked.
+        (FaultKind::InputOpen | FaultKind::StuckHigh, _) => true,
         (FaultKind::Open, _) => unstated_compliance(plan, fault.node).is_some(),
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) => {
             a.output.is_none()

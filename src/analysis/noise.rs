@@ -61,7 +61,7 @@ pub fn enbw(plan: &Plan) -> Option<f64> {
                 }
             }
             Node::Adc(_) => {
-                if let Some(rate) = stated.rate_hz {
+                if let Some(rate) = stated.conversion_hz {
                     narrow(&mut bw, rate / 2.0);
                 }
             }

@@ -12,7 +12,8 @@ use serde::Serialize;
 
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::faults::{self, FaultReport, Masking, Threshold, Verdict};
+use crate::analysis::faults::{self, FaultReport, Masking, Verdict};
+use crate::analysis::review::outcome::threshold_text;
 use crate::analysis::Keep;
 use crate::diagnostics::{render_human, Code, Severity};
 use crate::model::Chain;
@@ -201,11 +202,7 @@ fn chain_list(
             condition: f.fault.kind.describe(),
             codes: f.codes,
             verdict: f.verdict.name(),
-            threshold: f.threshold.map(|t| match t {
-                Threshold::Below(n) => format!("code < {n}"),
-                Threshold::Above(n) => format!("code > {n}"),
-                Threshold::Outside(a, b) => format!("code < {a} or code > {b}"),
-            }),
+            threshold: f.threshold.map(threshold_text),
             reason: f.reason.clone(),
             action: match f.verdict {
                 Verdict::Detectable => {

@@ -1,6 +1,7 @@
 //! `catena compare SPEC...`: candidate chains side by side — every
 //! requirement's achieved value and margin, resolution, response, the
-//! largest contributor and the worst headroom — a trade table.
+//! largest contributor, the worst headroom and the faults firmware cannot
+//! detect — a trade table.
 
 use super::settings;
 use clap::Args;
@@ -10,7 +11,8 @@ use super::diff::{evaluate, load, options, ReviewFormat};
 use super::diff_render::{markdown_table, num, plain_table};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS};
-use crate::analysis::review::Outcome;
+use crate::analysis::review::{Outcome, PowerBasis};
+use crate::units::format::with_prefix;
 
 #[derive(Args, Debug)]
 pub struct CompareArgs {
@@ -182,5 +184,63 @@ fn table(candidates: &[Candidate]) -> (Vec<String>, Vec<Vec<String>>) {
     row("code window".into(), &|o| {
         o.window.map_or("—".into(), |[a, b]| format!("{a} .. {b}"))
     });
+    row("undetected faults".into(), &undetected_faults);
+    row("unit cost".into(), &unit_cost);
+    row("power".into(), &power);
     (header, rows)
+}
+
+/// The faults firmware cannot tell from a reading: how many, and which.
+fn undetected_faults(o: &Outcome) -> String {
+    let Some(faults) = &o.faults else {
+        return "—".into();
+    };
+    let names: Vec<String> = faults
+        .undetected()
+        .map(|f| format!("{} {} ({})", f.stage, f.fault, f.verdict.name()))
+        .collect();
+    if names.is_empty() {
+        "none".into()
+    } else {
+        format!("{}: {}", names.len(), names.join(", "))
+    }
+}
+
+/// The stated costs' sum, and the stages it leaves out.
+fn unit_cost(o: &Outcome) -> String {
+    let Some(cost) = o.bill.cost else {
+        return "—".into();
+    };
+    with_missing(num(cost), &o.bill.unpriced)
+}
+
+/// The stages' powers summed, saying which were computed and which are
+/// missing.
+fn power(o: &Outcome) -> String {
+    let Some(total) = o.bill.power_w else {
+        return "—".into();
+    };
+    let delivered: Vec<&str> = o
+        .bill
+        .power
+        .iter()
+        .filter(|p| p.basis == PowerBasis::Delivered)
+        .map(|p| p.stage.as_str())
+        .collect();
+    let mut s = with_prefix(total, "W", 4);
+    if !delivered.is_empty() {
+        s.push_str(&format!(
+            " ({} as delivered into the load)",
+            delivered.join(", ")
+        ));
+    }
+    with_missing(s, &o.bill.unpowered)
+}
+
+fn with_missing(total: String, missing: &[String]) -> String {
+    if missing.is_empty() {
+        total
+    } else {
+        format!("{total} + not stated: {}", missing.join(", "))
+    }
 }

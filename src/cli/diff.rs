@@ -1,7 +1,8 @@
 //! `catena diff OLD NEW` and `catena diff --rev REV [PATH...]`: what a
 //! change did to a chain — its text as the model reads it, then its
 //! verdicts, margins, worst points, contributors, headroom, converter
-//! window and alarm trips — told apart from numerical noise.
+//! window, alarm trips and fault detection — told apart from numerical
+//! noise.
 
 use super::settings;
 use std::path::{Path, PathBuf};
@@ -30,7 +31,8 @@ pub enum ReviewFormat {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum FailOn {
     /// A verdict flipped to fail, a margin shrank past `--threshold`, a
-    /// signal passed a limit it kept, or a chain stopped evaluating.
+    /// signal passed a limit it kept, a fault became silent or
+    /// undetermined, or a chain stopped evaluating.
     Regression,
 }
 

@@ -4,7 +4,11 @@
 
 use serde::Serialize;
 
-use crate::analysis::review::{ChangeKind, Direction, Moved, OutcomeDiff, SpecChange};
+use crate::analysis::faults::Verdict;
+use crate::analysis::review::outcome::threshold_text;
+use crate::analysis::review::{
+    ChangeKind, Direction, FaultChange, FaultOutcome, Moved, OutcomeDiff, SpecChange,
+};
 use crate::units::format::significant;
 
 #[derive(Serialize)]
@@ -129,6 +133,49 @@ fn requirement_rows(d: &OutcomeDiff) -> Vec<Vec<String>> {
         .collect()
 }
 
+/// A fault's state on one side: its verdict with the firmware threshold
+/// or the codes that overlap the window.
+fn fault_state(f: &Option<FaultOutcome>) -> String {
+    let Some(f) = f else { return "—".into() };
+    match (f.verdict, f.threshold, f.codes) {
+        (Verdict::Detectable, Some(t), _) => format!("detectable, {}", threshold_text(t)),
+        (Verdict::Silent, _, Some([lo, hi])) => format!("silent, codes {lo} .. {hi}"),
+        (v, _, _) => v.name().to_string(),
+    }
+}
+
+fn fault_rows(faults: &[FaultChange]) -> Vec<Vec<String>> {
+    faults
+        .iter()
+        .map(|f| {
+            let change = match (&f.old, &f.new) {
+                (None, Some(_)) => "new".to_string(),
+                (Some(_), None) => "gone".to_string(),
+                (Some(o), Some(n)) if o.detectable() && !n.detectable() => {
+                    "no longer detectable, regression".to_string()
+                }
+                (Some(o), Some(n)) if !o.detectable() && n.detectable() => {
+                    "now detectable".to_string()
+                }
+                (Some(o), Some(n)) if o.verdict != n.verdict => "still undetected".to_string(),
+                _ => "threshold moved".to_string(),
+            };
+            let change = if f.regression && f.old.is_none() {
+                "new, not detectable, regression".to_string()
+            } else {
+                change
+            };
+            vec![
+                format!("`{}` {}", f.stage, f.condition),
+                fault_state(&f.old),
+                fault_state(&f.new),
+                change,
+                f.direction.word().into(),
+            ]
+        })
+        .collect()
+}
+
 fn spec_rows(changes: &[SpecChange]) -> Vec<Vec<String>> {
     let at = |l: &Option<crate::analysis::review::spec::Located>| {
         l.as_ref().map_or("—".into(), |l| match &l.file {
@@ -218,6 +265,11 @@ fn sections(c: &ChainDiff) -> Vec<Section> {
             d.other.iter().map(|m| moved_row(m, false)).collect(),
         ));
     }
+    if !d.faults.is_empty() {
+        let mut h = five.clone();
+        h[0] = "fault";
+        out.push(("Fault detection", h, fault_rows(&d.faults)));
+    }
     out
 }
 
@@ -261,11 +313,19 @@ pub(super) fn markdown(r: &DiffReport) -> String {
                 chain_title(c),
                 c.direction.word()
             ));
+            let mut listed = false;
             for n in &c.notes {
                 s.push_str(&format!("- {n}\n"));
+                listed = true;
             }
             for reason in c.outcome.iter().flat_map(|d| &d.reasons) {
                 s.push_str(&format!("- regression: {reason}\n"));
+                listed = true;
+            }
+            // A list ends at a blank line; without one, what follows
+            // would continue its last item.
+            if listed {
+                s.push('\n');
             }
             if unchanged(c) {
                 s.push_str("No change.\n\n");
@@ -284,7 +344,7 @@ pub(super) fn markdown(r: &DiffReport) -> String {
 
 fn regression_words(threshold_percent: f64) -> String {
     format!(
-        "a requirement fails that passed, a margin shrank by more than {} % of its limit, a signal went beyond a limit, or a chain no longer evaluates",
+        "a requirement fails that passed, a margin shrank by more than {} % of its limit, a signal went beyond a limit, a fault became silent or undetermined, or a chain no longer evaluates",
         crate::units::format::trimmed(threshold_percent, 4)
     )
 }

@@ -166,6 +166,10 @@ codes! {
     M244 => Error, "ratio tolerance wider than the parts' own";
     M245 => Error, "malformed tracking group";
     M246 => Error, "duplicate tracking group name";
+    M260 => Error, "channel of something that is not a converter";
+    M261 => Error, "reference wired to a channel";
+    M262 => Warning, "one signal read by two channels";
+    M263 => Error, "converter reference that is not a voltage";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";

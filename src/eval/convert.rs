@@ -4,6 +4,7 @@
 
 use super::plan::{Env, EvalError, NodeId, Senses, SlotId};
 use crate::model::typed::ConversionMethod;
+use crate::physics::solve::{bisect_at_most, brent};
 use crate::physics::thermocouple::{self, ThermocoupleType};
 use crate::units::ZERO_CELSIUS_K;
 
@@ -852,22 +853,15 @@ pub fn solve_beyond(
     Ok(end)
 }
 
+/// Halvings of the searches for where the chain stops moving.
+const SEARCH_HALVINGS: usize = 60;
+
 /// Where `f` turned flat at `f_end` between `before` and `end` (bisected):
 /// the first point from `before` with the value it keeps (`end` itself
 /// when `f` is strictly monotone).
 fn flat_from(f: &impl Fn(f64) -> Result<f64, EvalError>, before: f64, end: f64, f_end: f64) -> f64 {
-    let (mut moving, mut flat) = (before, end);
-    for _ in 0..60 {
-        let mid = 0.5 * (moving + flat);
-        if mid == moving || mid == flat {
-            break;
-        }
-        match f(mid) {
-            Ok(v) if v == f_end => flat = mid,
-            _ => moving = mid,
-        }
-    }
-    flat
+    let moving = |x: f64| !matches!(f(x), Ok(v) if v == f_end);
+    bisect_at_most(SEARCH_HALVINGS, before, end, moving).1
 }
 
 /// The furthest point from `end` towards `beyond` (bisected) at which `f`
@@ -878,31 +872,18 @@ fn last_onward(
     f_end: f64,
     beyond: f64,
 ) -> f64 {
-    let (mut good, mut bad) = (end, beyond);
-    for _ in 0..60 {
-        let mid = 0.5 * (good + bad);
-        if mid == good || mid == bad {
-            break;
-        }
-        match f(mid) {
-            Ok(v) if v.is_finite() && v.abs() < f_end.abs() && v.signum() == f_end.signum() => {
-                good = mid
-            }
-            _ => bad = mid,
-        }
-    }
-    good
+    let onward = |x: f64| matches!(f(x), Ok(v) if v.is_finite() && v.abs() < f_end.abs() && v.signum() == f_end.signum());
+    bisect_at_most(SEARCH_HALVINGS, end, beyond, onward).0
 }
 
-/// Brent's method (Brent, "Algorithms for Minimization without
-/// Derivatives", 1973, ch. 4) for a monotonic `f` on `domain`; a target
-/// beyond either end saturates there, as a clamped reading would.
+/// Brent's method ([`brent`]) for a monotonic `f` on `domain`; a
+/// target beyond either end saturates there, as a clamped reading would.
 pub fn solve(
     f: impl Fn(f64) -> Result<f64, EvalError>,
     domain: (f64, f64),
 ) -> Result<f64, EvalError> {
-    let (mut a, mut b) = domain;
-    let (mut fa, mut fb) = (f(a)?, f(b)?);
+    let (a, b) = domain;
+    let (fa, fb) = (f(a)?, f(b)?);
     if fa == 0.0 {
         return Ok(a);
     }
@@ -913,63 +894,7 @@ pub fn solve(
         return Ok(if fa.abs() < fb.abs() { a } else { b });
     }
     let tolerance = 1e-13 * (domain.1 - domain.0).abs().max(1e-300);
-    let (mut c, mut fc) = (a, fa);
-    let mut d = b - a;
-    let mut e = d;
-    for _ in 0..200 {
-        if fb.signum() == fc.signum() {
-            c = a;
-            fc = fa;
-            d = b - a;
-            e = d;
-        }
-        if fc.abs() < fb.abs() {
-            a = b;
-            b = c;
-            c = a;
-            fa = fb;
-            fb = fc;
-            fc = fa;
-        }
-        let tol = 2.0 * f64::EPSILON * b.abs() + 0.5 * tolerance;
-        let m = 0.5 * (c - b);
-        if m.abs() <= tol || fb == 0.0 {
-            return Ok(b);
-        }
-        if e.abs() >= tol && fa.abs() > fb.abs() {
-            let s = fb / fa;
-            let (mut p, mut q);
-            if a == c {
-                p = 2.0 * m * s;
-                q = 1.0 - s;
-            } else {
-                let qa = fa / fc;
-                let r = fb / fc;
-                p = s * (2.0 * m * qa * (qa - r) - (b - a) * (r - 1.0));
-                q = (qa - 1.0) * (r - 1.0) * (s - 1.0);
-            }
-            if p > 0.0 {
-                q = -q;
-            } else {
-                p = -p;
-            }
-            if 2.0 * p < (3.0 * m * q - (tol * q).abs()).min((e * q).abs()) {
-                e = d;
-                d = p / q;
-            } else {
-                d = m;
-                e = m;
-            }
-        } else {
-            d = m;
-            e = m;
-        }
-        a = b;
-        fa = fb;
-        b += if d.abs() > tol { d } else { tol.copysign(m) };
-        fb = f(b)?;
-    }
-    Ok(b)
+    brent(f, (a, b), (fa, fb), tolerance)
 }
 
 #[cfg(test)]

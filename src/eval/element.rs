@@ -109,9 +109,9 @@ impl Plan {
             (Some(a), Some(heating)) => {
                 let delta = values[heating.dissipation];
                 self_heated(cold, heating.curved, |r| {
-                    curve.resistance(t + a * a * r / delta)
+                    curve.heated_resistance(t, a * a * r, delta)
                 })
-                .map_err(|_| self.no_resistance(n))
+                .map_err(|e| self.unheated(n, e))
             }
             _ => Ok(cold),
         }
@@ -215,9 +215,20 @@ impl Plan {
         let delta = values[heating.dissipation];
         let (curve, t) = self.element_curve(n, values, env)?;
         self_heated(cold, heating.curved, |r| {
-            curve.resistance(t + power(r) / delta)
+            curve.heated_resistance(t, power(r), delta)
         })
-        .map_err(|_| self.no_resistance(n))
+        .map_err(|e| self.unheated(n, e))
+    }
+
+    /// Why a self-heated element has no resistance.
+    fn unheated(&self, n: NodeId, why: Unheated) -> EvalError {
+        match why {
+            Unheated::Curve => self.no_resistance(n),
+            Unheated::Heating => self.numeric(
+                n,
+                "the self-heating has no value (a dissipation constant at or below zero)",
+            ),
+        }
     }
 }
 
@@ -316,7 +327,24 @@ enum ElementCurve {
     SteinhartHart(thermistor::SteinhartHart),
 }
 
+/// Why [`ElementCurve::heated_resistance`] has no value.
+#[derive(Clone, Copy, Debug)]
+enum Unheated {
+    /// The curve has no resistance at the heated temperature.
+    Curve,
+    /// The power or the dissipation constant allows no self-heating.
+    Heating,
+}
+
 impl ElementCurve {
+    /// The resistance at `t` raised by the self-heating of `power_w` W
+    /// into a dissipation constant of `dissipation` W/K.
+    #[inline(always)]
+    fn heated_resistance(self, t: f64, power_w: f64, dissipation: f64) -> Result<f64, Unheated> {
+        let rise = rtd::self_heating_k(power_w, dissipation).map_err(|_| Unheated::Heating)?;
+        self.resistance(t + rise).map_err(|()| Unheated::Curve)
+    }
+
     /// The resistance at `t` (°C for an RTD, K for a thermistor), or none
     /// where the curve has none.
     #[inline(always)]

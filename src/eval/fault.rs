@@ -34,6 +34,59 @@ pub enum FaultKind {
     UnderRange,
     /// A converter's reference lost.
     ReferenceLost,
+    /// A 3-wire RTD's compensation lead open.
+    CompensationLeadOpen,
+    /// A 4-wire RTD's force lead open: the one carrying the excitation
+    /// current in, or the one returning it.
+    ForceLeadOpen,
+    ReturnLeadOpen,
+    /// A 4-wire RTD's sense lead open, at the end the current enters or
+    /// at the end it leaves.
+    SenseLeadOpen,
+    ReturnSenseLeadOpen,
+    /// A 4-wire RTD's two sense leads shorted together.
+    SenseLeadsShorted,
+    /// An IC sensor's output stuck at its supply.
+    StuckHigh,
+    /// An amplifier's or converter's input pin open.
+    InputOpen,
+    /// A bridge's or divider's completion resistor `n` (1, 2, 3: `r` or
+    /// `r_1`, `r_2`, `r_3`) open or shorted.
+    CompletionOpen(u8),
+    CompletionShort(u8),
+    /// A bridge transducer's excitation lead open: the positive one, or
+    /// the return.
+    ExcitationLeadOpen,
+    ExcitationReturnOpen,
+    /// A bridge transducer's signal lead open.
+    SignalLeadOpen,
+}
+
+/// A completion resistor's faults by its number, 1 to 3.
+const COMPLETION_OPEN: [&str; 3] = [
+    "completion_1_open",
+    "completion_2_open",
+    "completion_3_open",
+];
+const COMPLETION_SHORT: [&str; 3] = [
+    "completion_1_short",
+    "completion_2_short",
+    "completion_3_short",
+];
+const COMPLETION_OPEN_WORDS: [&str; 3] = [
+    "completion resistor 1 open",
+    "completion resistor 2 open",
+    "completion resistor 3 open",
+];
+const COMPLETION_SHORT_WORDS: [&str; 3] = [
+    "completion resistor 1 shorted",
+    "completion resistor 2 shorted",
+    "completion resistor 3 shorted",
+];
+
+/// Resistor `n` (1-based) of a table of three.
+fn nth(table: &[&'static str; 3], n: u8) -> &'static str {
+    table[usize::from(n.clamp(1, 3)) - 1]
 }
 
 impl FaultKind {
@@ -49,6 +102,19 @@ impl FaultKind {
             FaultKind::OverRange => "over_range",
             FaultKind::UnderRange => "under_range",
             FaultKind::ReferenceLost => "reference_lost",
+            FaultKind::CompensationLeadOpen => "compensation_lead_open",
+            FaultKind::ForceLeadOpen => "force_lead_open",
+            FaultKind::ReturnLeadOpen => "return_lead_open",
+            FaultKind::SenseLeadOpen => "sense_lead_open",
+            FaultKind::ReturnSenseLeadOpen => "return_sense_lead_open",
+            FaultKind::SenseLeadsShorted => "sense_leads_shorted",
+            FaultKind::StuckHigh => "stuck_high",
+            FaultKind::InputOpen => "input_open",
+            FaultKind::CompletionOpen(n) => nth(&COMPLETION_OPEN, n),
+            FaultKind::CompletionShort(n) => nth(&COMPLETION_SHORT, n),
+            FaultKind::ExcitationLeadOpen => "excitation_lead_open",
+            FaultKind::ExcitationReturnOpen => "excitation_return_open",
+            FaultKind::SignalLeadOpen => "signal_lead_open",
         }
     }
 
@@ -64,7 +130,47 @@ impl FaultKind {
             FaultKind::OverRange => "converter over-range (top code)",
             FaultKind::UnderRange => "converter under-range (bottom code)",
             FaultKind::ReferenceLost => "reference lost",
+            FaultKind::CompensationLeadOpen => "compensation lead open",
+            FaultKind::ForceLeadOpen => "force lead open (current in)",
+            FaultKind::ReturnLeadOpen => "force lead open (current return)",
+            FaultKind::SenseLeadOpen => "sense lead open (current-in end)",
+            FaultKind::ReturnSenseLeadOpen => "sense lead open (return end)",
+            FaultKind::SenseLeadsShorted => "sense leads shorted together",
+            FaultKind::StuckHigh => "output stuck at its supply",
+            FaultKind::InputOpen => "input pin open",
+            FaultKind::CompletionOpen(n) => nth(&COMPLETION_OPEN_WORDS, n),
+            FaultKind::CompletionShort(n) => nth(&COMPLETION_SHORT_WORDS, n),
+            FaultKind::ExcitationLeadOpen => "excitation lead open",
+            FaultKind::ExcitationReturnOpen => "excitation return lead open",
+            FaultKind::SignalLeadOpen => "signal lead open",
         }
+    }
+
+    /// Whether the fault breaks the loop a current source drives, so the
+    /// source (and every element in its string) carries nothing.
+    pub fn breaks_loop(self) -> bool {
+        matches!(
+            self,
+            FaultKind::Open | FaultKind::ForceLeadOpen | FaultKind::ReturnLeadOpen
+        )
+    }
+}
+
+/// Why an open input's code is undetermined without a burnout current.
+pub const FLOATING: &str =
+    "nothing gives the open input a path: its bias current charges it toward an unknown rail";
+
+/// An input pin cut off from its source: a burnout current (`burnout`
+/// on the stage that reads it) has only the open circuit to flow into,
+/// so it drives the pin to a rail; without one the pin floats.
+pub fn open_input(burnout: Option<f64>, cm: f64) -> Faulted {
+    match burnout {
+        Some(current) => Faulted::Signal(Signal::Voltage {
+            v: current * OPEN_OHMS,
+            cm,
+            rs: OPEN_OHMS,
+        }),
+        None => Faulted::Undetermined(FLOATING),
     }
 }
 
@@ -142,7 +248,7 @@ impl Plan {
     /// The current source an open element would starve: a series string
     /// on one current source carries nothing once one element opens.
     fn starved_source(&self, fault: &Fault) -> Option<NodeId> {
-        if fault.kind != FaultKind::Open {
+        if !fault.kind.breaks_loop() {
             return None;
         }
         let input = self.nodes[fault.node].element_input()?;

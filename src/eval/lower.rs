@@ -13,6 +13,7 @@ use super::stated::Stated;
 use crate::model::ports::Port;
 use crate::model::typed::{ColdJunction, StageModel};
 use crate::model::{Chain, Measurand};
+use crate::physics::solve::bisect_at_most;
 use crate::units::ZERO_CELSIUS_K;
 
 fn not_invertible(stage: &str, what: impl Into<String>) -> EvalError {
@@ -114,6 +115,17 @@ fn evaluation_order(chain: &Chain, strings: &[Vec<usize>]) -> Result<Vec<usize>,
             graph.add_edge(ids[pair[1]], ids[pair[0]], ());
         }
     }
+    // A channel reads its converter's reference.
+    for si in 0..chain.stages.len() {
+        let Some(conv) = converter_of(chain, si) else {
+            continue;
+        };
+        for c in &chain.connections {
+            if c.to == conv && c.to_port == Port::Ref {
+                graph.add_edge(ids[c.from], ids[si], ());
+            }
+        }
+    }
     Ok(toposort(&graph, None)
         .map_err(|_| not_invertible(&chain.name, "the chain has a loop"))?
         .into_iter()
@@ -162,6 +174,8 @@ fn lower_nodes<'a>(
         zero: measurand.zero(),
         cj_error: None,
         name: "",
+        owner: "",
+        shared: false,
         inputs: Inputs::default(),
         senses: Senses::Measurand,
         feeds_cj: false,
@@ -175,6 +189,13 @@ fn lower_nodes<'a>(
             return Err(not_invertible(&stage.name, "its model was not accepted"));
         };
         cx.name = &stage.name;
+        (cx.owner, cx.shared) = match model {
+            StageModel::Adc(adc) if adc.channels > 1 => (
+                adc.channel_of.as_deref().unwrap_or(stage.name.as_str()),
+                true,
+            ),
+            _ => (stage.name.as_str(), false),
+        };
         cx.inputs = inputs(chain, si, node_of);
         cx.senses = if cold_junction_sensors.contains(&stage.name.as_str()) {
             Senses::ColdJunction
@@ -203,10 +224,36 @@ fn inputs(chain: &Chain, si: usize, node_of: &impl Fn(usize) -> NodeId) -> Input
     Inputs {
         input: into(Port::In).next(),
         exc: into(Port::Exc).next(),
-        reference: into(Port::Ref).next(),
+        reference: into(Port::Ref)
+            .next()
+            .or_else(|| converter_reference(chain, si, node_of)),
         cj: into(Port::Cj).next(),
         arms: into(Port::Arm).collect(),
     }
+}
+
+/// A channel's converter, by stage index.
+fn converter_of(chain: &Chain, si: usize) -> Option<usize> {
+    let Some(StageModel::Adc(adc)) = &chain.stages[si].typed else {
+        return None;
+    };
+    let name = adc.channel_of.as_deref()?;
+    chain.stages.iter().position(|s| s.name == name)
+}
+
+/// A channel works against its converter's reference: the node wired to
+/// the converter's `ref`.
+fn converter_reference(
+    chain: &Chain,
+    si: usize,
+    node_of: &impl Fn(usize) -> NodeId,
+) -> Option<NodeId> {
+    let conv = converter_of(chain, si)?;
+    chain
+        .connections
+        .iter()
+        .find(|c| c.to == conv && c.to_port == Port::Ref)
+        .map(|c| node_of(c.from))
 }
 
 /// The part of the measurand range where every sensor that senses the
@@ -369,6 +416,9 @@ fn fit_conversions(plan: &mut Plan) -> Result<(), EvalError> {
     Ok(())
 }
 
+/// Halvings of the search for the end of a conversion's domain.
+const DOMAIN_HALVINGS: usize = 60;
+
 /// Where the conversion's domain reaches beyond its range and the nominal
 /// chain no longer evaluates, the domain ends at the last point that does
 /// (bisected); a range that does not evaluate, or over which the code does
@@ -396,20 +446,11 @@ fn narrow_domain(
     // The range itself must evaluate: that is a finding of its own.
     probe(conversion.range.0)?;
     probe(conversion.range.1)?;
-    let reach = |inside: f64, mut outside: f64| {
-        if probe(outside).is_err() {
-            let mut good = inside;
-            for _ in 0..60 {
-                let mid = (good + outside) / 2.0;
-                if probe(mid).is_ok() {
-                    good = mid;
-                } else {
-                    outside = mid;
-                }
-            }
-            outside = good;
+    let reach = |inside: f64, outside: f64| {
+        if probe(outside).is_ok() {
+            return outside;
         }
-        outside
+        bisect_at_most(DOMAIN_HALVINGS, inside, outside, |x| probe(x).is_ok()).0
     };
     conversion.domain.0 = reach(conversion.range.0, conversion.domain.0);
     conversion.domain.1 = reach(conversion.range.1, conversion.domain.1);

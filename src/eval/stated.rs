@@ -29,8 +29,12 @@ pub struct Stated {
     /// A filter's low-pass response.
     pub low_pass: Option<LowPass>,
     /// A converter's output data rate and digital notch, Hz.
+    /// Each channel's output rate.
     pub rate_hz: Option<f64>,
     pub notch_hz: Option<f64>,
+    /// The converter's conversion rate, Hz: its output rate over all the
+    /// channels it scans.
+    pub conversion_hz: Option<f64>,
     /// An amplifier's bandwidth, Hz.
     pub bandwidth_hz: Option<f64>,
     /// A sensor's thermal time constant, s.
@@ -109,8 +113,16 @@ impl Stated {
                     acquisition: p.acquisition_time,
                     switch: p.resistance.unwrap_or(0.0),
                 });
-                s.rate_hz = m.rate;
-                s.notch_hz = m.notch;
+                // A scanned converter gives each channel one conversion in
+                // `channels`: its rate falls, its conversion (the digital
+                // filter's notch, the noise bandwidth) stays the converter's.
+                s.conversion_hz = m.rate;
+                s.rate_hz = m.rate.map(|r| r / f64::from(m.channels.max(1)));
+                s.notch_hz = if m.channels > 1 {
+                    m.notch.or(m.rate)
+                } else {
+                    m.notch
+                };
                 s.noise = m.noise.as_ref().map(limit_noise);
             }
             StageModel::Convert(m) => s.average = m.average.map(f64::from),

@@ -126,6 +126,8 @@ pub struct Stage {
     pub params: Vec<ResolvedParam>,
     /// The model with its parameters typed, when every line was accepted.
     pub typed: Option<StageModel>,
+    /// Its price and power, where it states them.
+    pub bill: Bill,
     pub span: Span,
     /// Parameters written but rejected (already reported): present for
     /// the checks that ask whether something was given.
@@ -137,6 +139,16 @@ pub struct Stage {
     /// stage one typo away from it): what the graph checks say about this
     /// stage follows from it.
     pub misnamed: Option<Cause>,
+}
+
+/// What a stage (or its part) states for the bill of materials and the
+/// power budget, whatever its kind.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct Bill {
+    /// One unit's price, in the team's currency.
+    pub cost: Option<f64>,
+    /// What it draws from its supplies, W.
+    pub power: Option<f64>,
 }
 
 impl Stage {

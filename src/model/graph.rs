@@ -416,6 +416,16 @@ fn check_signal(wiring: &Wiring, c: &Connection, findings: &mut Findings) {
         );
         return;
     }
+    if target.kind == StageKind::Adc && spec.port == Port::Ref {
+        findings.push(super::channels::reference_not_voltage(
+            wiring.file,
+            source,
+            target,
+            signal,
+            c.span,
+        ));
+        return;
+    }
     findings.push(wrong_signal(
         wiring.file,
         source,

@@ -240,6 +240,13 @@ impl Reader<'_> {
                 }
                 _ => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
             },
+            Shape::StageName => match self.next().cloned() {
+                Some(Value::Word(w)) => Ok(ParamValue::StageRef {
+                    name: w.name,
+                    span: w.span,
+                }),
+                _ => Err(self.missing("the name of a converter stage", shape)),
+            },
         }
     }
 
@@ -730,6 +737,7 @@ fn usage(name: &str, shape: Shape) -> String {
         Shape::Method => format!("{name} exact | linear | table 16 | poly 3"),
         Shape::Calibrate => format!("{name} offset at <point> ± <uncertainty>` or `{name} two_point at <point>, <point> ± <uncertainty>"),
         Shape::LimitOrStage(e) => format!("{name} ± {}` or `{name} <stage name>", cx_free(e)),
+        Shape::StageName => format!("{name} <stage name>"),
         Shape::ThermocoupleType => format!("{name} type K"),
     }
 }

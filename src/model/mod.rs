@@ -2,6 +2,7 @@
 //! parts libraries, and the graph of typed ports.
 
 mod chain;
+mod channels;
 mod graph;
 mod interpret;
 pub mod parts;
@@ -19,7 +20,8 @@ use std::path::Path;
 use std::sync::Arc;
 
 pub use chain::{
-    Alarm, Chain, Connection, Measurand, Protects, Requirement, Stage, TrackGroup, TrackMember,
+    Alarm, Bill, Chain, Connection, Measurand, Protects, Requirement, Stage, TrackGroup,
+    TrackMember,
 };
 pub use graph::output_signals;
 pub use parts::PartsCache;
@@ -215,6 +217,7 @@ pub fn resolve_with(
         }
         graph::check_references(&stages, &mut findings);
         let connections = graph::connect(file, &mut stages, &decl.edges, &mut findings);
+        channels::resolve(file, &mut stages, &connections, &mut findings);
         let reference = settings
             .reference
             .or(defaults.reference)

@@ -143,7 +143,12 @@ pub fn inputs(
         Role::Filter => vec![input(Port::In, &[SignalKind::Voltage], true)],
         Role::Adc => vec![
             input(Port::In, &[SignalKind::Voltage], true),
-            input(Port::Ref, REFERENCES, param("vref").is_none()),
+            // A channel works against its converter's reference.
+            input(
+                Port::Ref,
+                REFERENCES,
+                param("vref").is_none() && param("channel_of").is_none(),
+            ),
         ],
         Role::Convert => vec![
             input(Port::In, &[SignalKind::Code], true),

@@ -2,6 +2,7 @@
 //! and dimension of each value, what is required and what is plausible.
 //! Adding a parameter is one line here (and its use in `physics`).
 
+use super::chain::Bill;
 use super::typed::{
     Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction,
     ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent, IcVoltage,
@@ -70,6 +71,8 @@ pub enum Shape {
     Calibrate,
     /// `± x K` or the name of another stage.
     LimitOrStage(Expect),
+    /// The name of another stage.
+    StageName,
     /// `type K`
     ThermocoupleType,
     /// A model line with no values.
@@ -214,6 +217,11 @@ const TIME_CONSTANT: ParamSpec = p("time_constant", plain(SECOND)).non_negative(
 const DISSIPATION: ParamSpec =
     p("dissipation", toleranced(Expect::Dim(Dim::DISSIPATION))).positive();
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
+/// One unit's price, in whatever currency the team prices parts in (a
+/// plain number), for the trade table of `catena compare`.
+const COST: ParamSpec = p("cost", plain(Expect::Dim(Dim::NONE))).non_negative();
+/// What the stage draws from its supplies, W.
+const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
 
 pub const RTD_CURVES: &[&str] = &[
     "pt100", "pt500", "pt1000", "ni100", "ni120", "ni1000", "cu10", "cu100", "custom",
@@ -230,6 +238,8 @@ static MODELS: &[ModelSpec] = &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
             p("noise", Shape::Limit(CURRENT_NOISE)),
             p("compliance", plain(VOLT)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -245,6 +255,8 @@ static MODELS: &[ModelSpec] = &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
             p("limit", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -266,6 +278,8 @@ static MODELS: &[ModelSpec] = &[
             DISSIPATION,
             TIME_CONSTANT,
             p("max_current", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
@@ -285,6 +299,8 @@ static MODELS: &[ModelSpec] = &[
             TIME_CONSTANT,
             p("bias_voltage", measure(VOLT)),
             p("bias_resistor", toleranced(OHM)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("class", "tolerance")],
         one_of: &[],
@@ -304,6 +320,8 @@ static MODELS: &[ModelSpec] = &[
             p("range", Shape::Range(Expect::Temperature)),
             TIME_CONSTANT,
             p("max_current", plain(AMP)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("beta", "steinhart")],
         one_of: &[&["beta", "steinhart"]],
@@ -332,6 +350,8 @@ static MODELS: &[ModelSpec] = &[
             p("output_resistance", plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -350,6 +370,8 @@ static MODELS: &[ModelSpec] = &[
             p("accuracy", Shape::Limit(Expect::TempDiff)),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -368,6 +390,8 @@ static MODELS: &[ModelSpec] = &[
                 .positive(),
             p("side", Shape::Words(&["tension", "compression"])),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -399,6 +423,8 @@ static MODELS: &[ModelSpec] = &[
             p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("r", toleranced(OHM)).positive(),
             TIME_CONSTANT,
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -410,7 +436,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("resistor"),
         role: Role::Resistive,
         model_shape: measure(OHM),
-        params: &[],
+        params: &[COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -424,6 +450,8 @@ static MODELS: &[ModelSpec] = &[
         params: &[
             p("r", measure(OHM)).required().positive(),
             p("sensor", Shape::Words(&["low", "high"])),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -435,7 +463,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("quarter"),
         role: Role::Bridge { arms: 1 },
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive()],
+        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -446,7 +474,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("half"),
         role: Role::Bridge { arms: 2 },
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive()],
+        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -457,7 +485,7 @@ static MODELS: &[ModelSpec] = &[
         model: Some("full"),
         role: Role::Bridge { arms: 4 },
         model_shape: Shape::Flag,
-        params: &[],
+        params: &[COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -486,6 +514,8 @@ static MODELS: &[ModelSpec] = &[
             p("output", Shape::Range(VOLT)),
             p("bandwidth", plain(HERTZ)).positive(),
             p("reference", measure(VOLT)),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -502,6 +532,8 @@ static MODELS: &[ModelSpec] = &[
             p("cutoff", toleranced(HERTZ)).positive(),
             p("r", toleranced(OHM)).positive(),
             p("c", toleranced(FARAD)).positive(),
+            COST,
+            POWER,
         ],
         exclusive: &[("cutoff", "r"), ("cutoff", "c")],
         one_of: &[&["cutoff", "r"]],
@@ -531,8 +563,29 @@ static MODELS: &[ModelSpec] = &[
             p("sampling_capacitance", plain(FARAD)).positive(),
             p("sampling_resistance", plain(OHM)).non_negative(),
             p("acquisition_time", plain(SECOND)).positive(),
+            COST,
+            POWER,
+            p("channel_of", Shape::StageName),
         ],
-        exclusive: &[],
+        // A channel shares its converter's part: only its gain is its own.
+        exclusive: &[
+            ("channel_of", "bits"),
+            ("channel_of", "input"),
+            ("channel_of", "polarity"),
+            ("channel_of", "vref"),
+            ("channel_of", "offset"),
+            ("channel_of", "gain_error"),
+            ("channel_of", "inl"),
+            ("channel_of", "noise"),
+            ("channel_of", "rate"),
+            ("channel_of", "notch"),
+            ("channel_of", "ref_range"),
+            ("channel_of", "rails"),
+            ("channel_of", "burnout"),
+            ("channel_of", "sampling_capacitance"),
+            ("channel_of", "sampling_resistance"),
+            ("channel_of", "acquisition_time"),
+        ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
         read: read_adc,
@@ -552,6 +605,8 @@ static MODELS: &[ModelSpec] = &[
                 },
             ),
             p("calibrate", Shape::Calibrate),
+            COST,
+            POWER,
         ],
         exclusive: &[],
         one_of: &[],
@@ -674,6 +729,15 @@ impl<'a> Reader<'a> {
             }) => Some((value.clone(), *value_dim, *at)),
             _ => None,
         }
+    }
+}
+
+/// What a stage of any kind states for the bill of materials and the
+/// power budget.
+pub fn read_bill(r: &Reader<'_>) -> Bill {
+    Bill {
+        cost: r.value("cost"),
+        power: r.value("power"),
     }
 }
 
@@ -928,8 +992,19 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         }),
         _ => None,
     };
+    let channel_of = match r.get("channel_of") {
+        Some(ParamValue::StageRef { name, .. }) => Some(name.clone()),
+        _ => None,
+    };
+    // A channel's bits are its converter's, filled in with the rest of
+    // its part once the converter is known (`model::channels`).
+    let bits = match (r.count("bits"), &channel_of) {
+        (Some(bits), _) => bits,
+        (None, Some(_)) => 0,
+        (None, None) => return None,
+    };
     Some(StageModel::Adc(Adc {
-        bits: r.count("bits")?,
+        bits,
         input,
         polarity: polarity.unwrap_or(match input {
             AdcInput::Differential => Polarity::Bipolar,
@@ -947,6 +1022,8 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         rails: r.range("rails"),
         burnout: r.value("burnout"),
         sampling,
+        channel_of,
+        channels: 1,
     }))
 }
 

@@ -34,6 +34,7 @@ pub fn resolve(
         model: None,
         params: Vec::new(),
         typed: None,
+        bill: Default::default(),
         span: decl.span,
         invalid: Vec::new(),
         incomplete: part_failed,
@@ -50,8 +51,10 @@ pub fn resolve(
     if !part_failed {
         check_presence(file, decl, model, &lines, findings);
     }
+    let reader = schema::Reader::new(&stage.params);
+    stage.bill = schema::read_bill(&reader);
     if stage.invalid.is_empty() {
-        stage.typed = (model.read)(&schema::Reader::new(&stage.params));
+        stage.typed = (model.read)(&reader);
     }
     stage
 }
@@ -307,6 +310,10 @@ fn check_presence(
         });
     if model.model == Some("rtd") && curve == Some("custom") {
         required.extend(["r0", "coefficients"]);
+    }
+    // A converter's channel states no part of its own.
+    if has("channel_of") {
+        required.retain(|n| *n != "bits");
     }
     if let (Some(curve), Some(line)) = (
         curve.filter(|c| *c != "custom" && model.model == Some("rtd")),

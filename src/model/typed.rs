@@ -339,6 +339,12 @@ pub struct Adc {
     /// The sampling input's capacitor, F, and acquisition time, s, given
     /// together; its switch resistance, Ω.
     pub sampling: Option<Sampling>,
+    /// On a channel, the converter whose part, reference and conversions
+    /// it shares (`channel_of`).
+    pub channel_of: Option<String>,
+    /// How many channels its converter scans in turn (1 without
+    /// channels): each one's output rate is the converter's over this.
+    pub channels: u32,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq)]

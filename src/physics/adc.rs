@@ -98,6 +98,34 @@ pub fn input_of_code(code: f64, bits: u32, polarity: Polarity) -> Res<f64> {
     Ok(code / codes_per_ref(bits, polarity)?)
 }
 
+/// The code span INL is a fraction of: 2^N codes, both halves of a
+/// bipolar input (`per_ref` is [`codes_per_ref`]).
+pub fn full_scale_codes(per_ref: f64, polarity: Polarity) -> f64 {
+    match polarity {
+        Polarity::Unipolar => per_ref,
+        Polarity::Bipolar => 2.0 * per_ref,
+    }
+}
+
+/// The exact (unrounded) code of input `v_in` (with any input offset
+/// already added) through gain `gain` against reference `v_ref`: the ideal
+/// transfer V_in G / V_ref × `per_ref`, plus an offset stated in codes and
+/// the integral nonlinearity at this input, in codes (IEEE Std 1241-2010:
+/// offset, gain and INL as deviations from the ideal transfer). Rounding
+/// and clamping to [`code_range`] are left to the caller, which needs the
+/// exact code too.
+#[inline(always)]
+pub fn exact_code(
+    v_in: f64,
+    gain: f64,
+    v_ref: f64,
+    per_ref: f64,
+    offset_codes: f64,
+    inl_codes: f64,
+) -> f64 {
+    v_in * gain / v_ref * per_ref + offset_codes + inl_codes
+}
+
 /// Peak-to-peak noise 6.6 σ (common practice), same unit as `noise_rms`.
 pub fn peak_to_peak_noise(noise_rms: f64) -> f64 {
     PEAK_TO_PEAK_PER_SIGMA * noise_rms
@@ -118,6 +146,11 @@ mod tests {
         assert_eq!(lsb_v(2.5, 1.0, 12, Unipolar).unwrap(), 2.5 / 4096.0);
         assert_eq!(lsb_v(2.5, 2.0, 12, Unipolar).unwrap(), 1.25 / 4096.0);
         assert_eq!(input_of_code(2048.0, 12, Unipolar).unwrap(), 0.5);
+        // Half the reference is code 2048; 2 codes of offset and an INL
+        // of 1/4096 of full scale (one code) add three.
+        let per_ref = codes_per_ref(12, Unipolar).unwrap();
+        let inl = full_scale_codes(per_ref, Unipolar) / 4096.0;
+        assert_eq!(exact_code(1.25, 1.0, 2.5, per_ref, 2.0, inl), 2051.0);
         assert_eq!(input_range(Unipolar), (0.0, 1.0));
     }
 

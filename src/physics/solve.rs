@@ -13,6 +13,11 @@
 //!   its root. A step landing on the bracket's end is kept: near the root
 //!   x − f/f' rounds to x itself, which has just become an end, and that
 //!   is convergence, not a reason to bisect.
+//! * Brent's method (R. P. Brent, "Algorithms for Minimization without
+//!   Derivatives", Prentice-Hall 1973, ch. 4, the `zero` procedure): inverse
+//!   quadratic interpolation and secant steps kept safe by bisection, for a
+//!   function known only by its values (a whole chain's code), given a
+//!   bracket with a sign change.
 
 use std::convert::Infallible;
 
@@ -20,6 +25,9 @@ use std::convert::Infallible;
 /// about 53; the cap ends a search closing on zero (a thousand binades
 /// below) or over a NaN end.
 const MAX_HALVINGS: usize = 200;
+/// Brent's method's evaluations at most: it needs at most about four
+/// times bisection's, and far fewer on a smooth function.
+const MAX_BRENT_EVALUATIONS: usize = 200;
 
 /// The final bracket `(lo, hi)` of `pred`, true at `lo` and false at
 /// `hi`: every midpoint where it holds becomes the new `lo`, every other
@@ -134,6 +142,86 @@ pub fn newton_bracketed<E>(
     Ok(Root::Exhausted(x))
 }
 
+/// The root of `f` between `a` and `b` by Brent's method, given `f(a)` and
+/// `f(b)` of opposite signs (neither zero): stops when the bracket is
+/// within `tolerance` (plus a few ulps of the root) or `f` is exactly
+/// zero, and after 200 evaluations at most. `f`'s first error ends it.
+pub fn brent<E>(
+    mut f: impl FnMut(f64) -> Result<f64, E>,
+    (mut a, mut b): (f64, f64),
+    (mut fa, mut fb): (f64, f64),
+    tolerance: f64,
+) -> Result<f64, E> {
+    let (mut c, mut fc) = (a, fa);
+    let mut d = b - a;
+    let mut e = d;
+    for _ in 0..MAX_BRENT_EVALUATIONS {
+        if fb.signum() == fc.signum() {
+            c = a;
+            fc = fa;
+            d = b - a;
+            e = d;
+        }
+        if fc.abs() < fb.abs() {
+            a = b;
+            b = c;
+            c = a;
+            fa = fb;
+            fb = fc;
+            fc = fa;
+        }
+        let tol = 2.0 * f64::EPSILON * b.abs() + 0.5 * tolerance;
+        let m = 0.5 * (c - b);
+        if m.abs() <= tol || fb == 0.0 {
+            return Ok(b);
+        }
+        (d, e) = if e.abs() >= tol && fa.abs() > fb.abs() {
+            interpolated_step((a, fa), (b, fb), (c, fc), m, tol, (d, e))
+        } else {
+            (m, m)
+        };
+        a = b;
+        fa = fb;
+        b += if d.abs() > tol { d } else { tol.copysign(m) };
+        fb = f(b)?;
+    }
+    Ok(b)
+}
+
+/// Brent's interpolation step (secant when only two points differ, else
+/// inverse quadratic) and the step before it, or a bisection step where
+/// the interpolation would not shrink the bracket fast enough.
+fn interpolated_step(
+    (a, fa): (f64, f64),
+    (b, fb): (f64, f64),
+    (c, fc): (f64, f64),
+    m: f64,
+    tol: f64,
+    (d, e): (f64, f64),
+) -> (f64, f64) {
+    let s = fb / fa;
+    let (mut p, mut q);
+    if a == c {
+        p = 2.0 * m * s;
+        q = 1.0 - s;
+    } else {
+        let qa = fa / fc;
+        let r = fb / fc;
+        p = s * (2.0 * m * qa * (qa - r) - (b - a) * (r - 1.0));
+        q = (qa - 1.0) * (r - 1.0) * (s - 1.0);
+    }
+    if p > 0.0 {
+        q = -q;
+    } else {
+        p = -p;
+    }
+    if 2.0 * p < (3.0 * m * q - (tol * q).abs()).min((e * q).abs()) {
+        (p / q, d)
+    } else {
+        (m, m)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -223,6 +311,33 @@ mod tests {
         assert!(good > 0.25 && bad <= 0.25 && good - bad <= f64::EPSILON);
         let (good, bad) = bisect_at_most(2, 1.0, 0.0, |x| x > 0.25);
         assert_eq!((good, bad), (0.5, 0.25));
+    }
+
+    /// Brent's method on a cubic, x³ − 2x − 5 (the example Brent and
+    /// Wallis use; root 2.0945514815423265, recalled from memory): to a
+    /// few ulps, in far fewer evaluations than bisection's fifty.
+    #[test]
+    fn brent_finds_the_classic_cubic_root() {
+        let f = |x: f64| x * x * x - 2.0 * x - 5.0;
+        let mut calls = 0;
+        let x = brent(
+            |x| {
+                calls += 1;
+                Ok::<_, ()>(f(x))
+            },
+            (2.0, 3.0),
+            (f(2.0), f(3.0)),
+            1e-15,
+        )
+        .unwrap();
+        assert!((x - 2.094_551_481_542_326_5).abs() < 1e-14, "{x}");
+        assert!(calls < 15, "{calls} evaluations");
+    }
+
+    #[test]
+    fn a_failing_function_ends_brent() {
+        let result = brent(Err::<f64, _>, (0.0, 1.0), (-1.0, 1.0), 1e-12);
+        assert!(result.is_err());
     }
 
     #[test]

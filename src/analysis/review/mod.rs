@@ -7,7 +7,9 @@ pub mod spec;
 
 use serde::Serialize;
 
-pub use outcome::{outcome, Outcome, RequirementOutcome};
+pub use outcome::{
+    outcome, BillOutcome, FaultOutcome, FaultsOutcome, Outcome, PowerBasis, RequirementOutcome,
+};
 pub use spec::{spec_changes, ChangeKind, SpecChange};
 
 /// Worst-case and GUM figures closer than this share of their magnitude
@@ -76,6 +78,20 @@ pub struct RequirementChange {
     pub regression: bool,
 }
 
+/// A fault whose verdict or firmware threshold moved, or that one side
+/// lacks.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct FaultChange {
+    pub stage: String,
+    pub fault: &'static str,
+    pub condition: &'static str,
+    pub old: Option<FaultOutcome>,
+    pub new: Option<FaultOutcome>,
+    pub direction: Direction,
+    /// It was detectable and is not, or it is new and not detectable.
+    pub regression: bool,
+}
+
 /// What a change did to one chain.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct OutcomeDiff {
@@ -93,6 +109,8 @@ pub struct OutcomeDiff {
     pub headroom: Vec<Moved>,
     /// Resolution, response, the converter window's ends, alarm trips.
     pub other: Vec<Moved>,
+    /// Faults that became silent or detectable, and thresholds that moved.
+    pub faults: Vec<FaultChange>,
 }
 
 impl OutcomeDiff {
@@ -102,6 +120,7 @@ impl OutcomeDiff {
             && self.contributors.is_empty()
             && self.headroom.is_empty()
             && self.other.is_empty()
+            && self.faults.is_empty()
     }
 }
 
@@ -122,6 +141,8 @@ pub fn diff_outcomes(old: &Outcome, new: &Outcome, threshold: f64) -> OutcomeDif
         .filter(|m| m.old.is_none_or(|h| h >= 0.0) && m.new.is_some_and(|h| h < 0.0))
         .collect();
     let crossed = !crossed_limits.is_empty();
+    let faults = fault_changes(old, new);
+    let faults_judged = |d: Direction| faults.iter().any(|f| f.direction == d);
     let mut reasons: Vec<String> = requirements
         .iter()
         .filter(|r| r.regression)
@@ -132,11 +153,12 @@ pub fn diff_outcomes(old: &Outcome, new: &Outcome, threshold: f64) -> OutcomeDif
             .iter()
             .map(|m| format!("`{}` goes beyond its limit", m.name)),
     );
+    reasons.extend(faults.iter().filter(|f| f.regression).map(fault_reason));
     // Worse wins over better: a reviewer must see any loss. Without
     // requirements, the GUM total speaks for accuracy.
-    let direction = if judged(Direction::Worse) || crossed {
+    let direction = if judged(Direction::Worse) || crossed || faults_judged(Direction::Worse) {
         Direction::Worse
-    } else if judged(Direction::Better) {
+    } else if judged(Direction::Better) || faults_judged(Direction::Better) {
         Direction::Better
     } else if old.requirements.is_empty() && new.requirements.is_empty() {
         worst
@@ -155,7 +177,81 @@ pub fn diff_outcomes(old: &Outcome, new: &Outcome, threshold: f64) -> OutcomeDif
         contributors: contributor_changes(old, new),
         headroom,
         other: other_changes(old, new),
+        faults,
     }
+}
+
+fn fault_reason(f: &FaultChange) -> String {
+    let verdict = f.new.as_ref().map_or("", |n| n.verdict.name());
+    if f.old.is_some() {
+        format!(
+            "`{}` {} is no longer detectable ({verdict})",
+            f.stage, f.condition
+        )
+    } else {
+        format!(
+            "`{}` {} is new and not detectable ({verdict})",
+            f.stage, f.condition
+        )
+    }
+}
+
+/// Faults by stage and kind: a verdict that moved (a fault made silent,
+/// undetermined or detectable), a detectable fault's threshold that moved,
+/// and faults one side lacks. A silent fault's codes moving inside the
+/// window is no change for the firmware.
+fn fault_changes(old: &Outcome, new: &Outcome) -> Vec<FaultChange> {
+    let (olds, news) = (fault_rows(old), fault_rows(new));
+    let same_fault = |a: &FaultOutcome, b: &FaultOutcome| a.stage == b.stage && a.fault == b.fault;
+    let mut out = Vec::new();
+    for n in news {
+        let o = olds.iter().find(|o| same_fault(o, n));
+        if let Some(change) = fault_change(o, n) {
+            out.push(change);
+        }
+    }
+    for o in olds
+        .iter()
+        .filter(|o| !news.iter().any(|n| same_fault(o, n)))
+    {
+        out.push(FaultChange {
+            stage: o.stage.clone(),
+            fault: o.fault,
+            condition: o.condition,
+            old: Some(o.clone()),
+            new: None,
+            direction: Direction::Neutral,
+            regression: false,
+        });
+    }
+    out
+}
+
+fn fault_rows(o: &Outcome) -> &[FaultOutcome] {
+    o.faults.as_ref().map_or(&[], |f| f.rows.as_slice())
+}
+
+fn fault_change(o: Option<&FaultOutcome>, n: &FaultOutcome) -> Option<FaultChange> {
+    let (direction, regression) = match o {
+        None if n.detectable() => (Direction::Neutral, false),
+        None => (Direction::Worse, true),
+        Some(o) if o.detectable() && !n.detectable() => (Direction::Worse, true),
+        Some(o) if !o.detectable() && n.detectable() => (Direction::Better, false),
+        // Silent and undetermined are both undetected: a move between
+        // them is told, not judged.
+        Some(o) if o.verdict != n.verdict => (Direction::Neutral, false),
+        Some(o) if o.threshold != n.threshold => (Direction::Neutral, false),
+        Some(_) => return None,
+    };
+    Some(FaultChange {
+        stage: n.stage.clone(),
+        fault: n.fault,
+        condition: n.condition,
+        old: o.cloned(),
+        new: Some(n.clone()),
+        direction,
+        regression,
+    })
 }
 
 fn regression_reason(r: &RequirementChange) -> String {
@@ -385,6 +481,23 @@ fn other_changes(old: &Outcome, new: &Outcome) -> Vec<Moved> {
     let end = |o: &Outcome, i: usize| o.window.map(|w| w[i] as f64);
     figure("code at range low", end(old, 0), end(new, 0), "code", None);
     figure("code at range high", end(old, 1), end(new, 1), "code", None);
+    figure("unit cost", old.bill.cost, new.bill.cost, "", Some(true));
+    figure("power", old.bill.power_w, new.bill.power_w, "W", Some(true));
+    let valid = |o: &Outcome, i: usize| o.faults.as_ref().map(|f| f.window[i] as f64);
+    figure(
+        "valid window low",
+        valid(old, 0),
+        valid(new, 0),
+        "code",
+        None,
+    );
+    figure(
+        "valid window high",
+        valid(old, 1),
+        valid(new, 1),
+        "code",
+        None,
+    );
     for n in &new.alarms {
         let o = old.alarms.iter().find(|o| o.side == n.side);
         let name = format!("{} alarm trip", n.side);
@@ -411,6 +524,7 @@ fn other_changes(old: &Outcome, new: &Outcome) -> Vec<Moved> {
 mod tests {
     use super::outcome::LimitOutcome;
     use super::*;
+    use crate::analysis::faults::{Threshold, Verdict};
 
     fn accuracy(achieved: f64, numerical: Option<f64>) -> RequirementOutcome {
         RequirementOutcome {
@@ -447,6 +561,14 @@ mod tests {
             response_s: None,
             window: None,
             alarms: Vec::new(),
+            faults: None,
+            bill: outcome::BillOutcome {
+                cost: None,
+                unpriced: Vec::new(),
+                power_w: None,
+                power: Vec::new(),
+                unpowered: Vec::new(),
+            },
             largest: None,
             trials: 0,
             floor: 3e-10,
@@ -511,5 +633,69 @@ mod tests {
         );
         assert!(crossed.regression);
         assert_eq!(crossed.direction, Direction::Worse);
+    }
+
+    fn open_tc(verdict: Verdict, threshold: Option<Threshold>) -> FaultOutcome {
+        FaultOutcome {
+            stage: "tc".into(),
+            fault: "open",
+            condition: "open circuit",
+            verdict,
+            codes: None,
+            threshold,
+        }
+    }
+
+    fn with_faults(rows: Vec<FaultOutcome>) -> Outcome {
+        let mut o = with(Vec::new(), 0.2);
+        o.faults = Some(FaultsOutcome {
+            window: [100, 900],
+            rows,
+        });
+        o
+    }
+
+    #[test]
+    fn a_fault_made_silent_is_a_regression_and_made_detectable_is_better() {
+        let detectable = with_faults(vec![open_tc(
+            Verdict::Detectable,
+            Some(Threshold::Above(950)),
+        )]);
+        let silent = with_faults(vec![open_tc(Verdict::Silent, None)]);
+        let worse = diff_outcomes(&detectable, &silent, DEFAULT_THRESHOLD);
+        assert_eq!(worse.direction, Direction::Worse);
+        assert!(worse.regression);
+        assert_eq!(
+            worse.reasons,
+            ["`tc` open circuit is no longer detectable (silent)"]
+        );
+        let better = diff_outcomes(&silent, &detectable, DEFAULT_THRESHOLD);
+        assert_eq!(better.direction, Direction::Better);
+        assert!(!better.regression);
+        // Silent to undetermined: told, neither better nor a regression.
+        let undetermined = with_faults(vec![open_tc(Verdict::Undetermined, None)]);
+        let told = diff_outcomes(&silent, &undetermined, DEFAULT_THRESHOLD);
+        assert_eq!((told.faults.len(), told.regression), (1, false));
+        assert_eq!(told.direction, Direction::Neutral);
+    }
+
+    #[test]
+    fn a_threshold_that_moved_is_told_and_a_new_silent_fault_is_a_regression() {
+        let at = |n| {
+            with_faults(vec![open_tc(
+                Verdict::Detectable,
+                Some(Threshold::Above(n)),
+            )])
+        };
+        let moved = diff_outcomes(&at(950), &at(960), DEFAULT_THRESHOLD);
+        assert_eq!(moved.faults.len(), 1);
+        assert!(!moved.regression);
+        assert!(diff_outcomes(&at(950), &at(950), DEFAULT_THRESHOLD).is_empty());
+        let new = diff_outcomes(
+            &with_faults(Vec::new()),
+            &with_faults(vec![open_tc(Verdict::Silent, None)]),
+            DEFAULT_THRESHOLD,
+        );
+        assert!(new.regression, "{new:?}");
     }
 }

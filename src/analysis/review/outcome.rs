@@ -7,9 +7,14 @@
 
 use serde::Serialize;
 
+use super::super::faults::{self, FaultReport, Threshold, Verdict};
+use super::super::ranges::Limit;
 use super::super::report::Analysis;
 use crate::eval::{Env, Plan};
-use crate::model::{Chain, RequirementKind};
+use crate::model::typed::StageModel;
+use crate::model::{Chain, RequirementKind, Stage};
+use crate::physics::filter::Response;
+use crate::syntax::ast::StageKind;
 use crate::units::format::from_si;
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -77,6 +82,189 @@ pub struct AlarmOutcome {
     pub guard_band: f64,
 }
 
+/// One fault's verdict against the valid code window.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct FaultOutcome {
+    pub stage: String,
+    /// The fault's stable name (`open`, `short`, ...).
+    pub fault: &'static str,
+    /// The fault in words.
+    pub condition: &'static str,
+    #[serde(serialize_with = "verdict_name")]
+    pub verdict: Verdict,
+    /// The lowest and highest code the converter gives with the fault.
+    pub codes: Option<[i64; 2]>,
+    /// The firmware's test, `code < N` or `code > N`, for a detectable one.
+    #[serde(serialize_with = "threshold_words")]
+    pub threshold: Option<Threshold>,
+}
+
+impl FaultOutcome {
+    pub fn detectable(&self) -> bool {
+        self.verdict == Verdict::Detectable
+    }
+}
+
+fn verdict_name<S: serde::Serializer>(v: &Verdict, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_str(v.name())
+}
+
+fn threshold_words<S: serde::Serializer>(t: &Option<Threshold>, s: S) -> Result<S::Ok, S::Error> {
+    match t {
+        Some(t) => s.serialize_str(&threshold_text(*t)),
+        None => s.serialize_none(),
+    }
+}
+
+/// A firmware threshold as the checklist writes it.
+pub fn threshold_text(t: Threshold) -> String {
+    match t {
+        Threshold::Below(n) => format!("code < {n}"),
+        Threshold::Above(n) => format!("code > {n}"),
+        Threshold::Outside(a, b) => format!("code < {a} or code > {b}"),
+    }
+}
+
+/// The valid code window and every fault judged against it.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct FaultsOutcome {
+    /// The healthy chain's codes over every range and tolerance, with
+    /// 3 σ of noise.
+    pub window: [i64; 2],
+    pub rows: Vec<FaultOutcome>,
+}
+
+impl FaultsOutcome {
+    fn of(report: &FaultReport) -> FaultsOutcome {
+        FaultsOutcome {
+            window: [report.window.low, report.window.high],
+            rows: report
+                .faults
+                .iter()
+                .map(|f| FaultOutcome {
+                    stage: f.stage.clone(),
+                    fault: f.fault.kind.name(),
+                    condition: f.fault.kind.describe(),
+                    verdict: f.verdict,
+                    codes: f.codes.map(|(lo, hi)| [lo, hi]),
+                    threshold: f.threshold,
+                })
+                .collect(),
+        }
+    }
+
+    /// The faults firmware cannot tell from a reading.
+    pub fn undetected(&self) -> impl Iterator<Item = &FaultOutcome> {
+        self.rows.iter().filter(|f| !f.detectable())
+    }
+}
+
+/// How a stage's power is known.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PowerBasis {
+    /// The stage or its part states `power`.
+    Stated,
+    /// An excitation that states none: the most it delivers into its load
+    /// over the ranges and tolerances, its nominal current times the
+    /// largest voltage across the load (or its nominal voltage times the
+    /// largest load current).
+    Delivered,
+}
+
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct StagePower {
+    pub stage: String,
+    pub watts: f64,
+    pub basis: PowerBasis,
+}
+
+/// A chain's unit cost and power: the sums over the stages that state
+/// them (or, for power, where the chain determines it), and the stages
+/// that do not. A conversion is firmware: it has neither.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct BillOutcome {
+    /// The sum of the stated costs; None when no stage states one.
+    pub cost: Option<f64>,
+    /// Stages that state no cost.
+    pub unpriced: Vec<String>,
+    /// The sum of the stages' powers, W; None when none is known.
+    pub power_w: Option<f64>,
+    pub power: Vec<StagePower>,
+    /// Stages that draw from a supply (excitations, IC sensors,
+    /// amplifiers, active filters, converters) whose power is neither
+    /// stated nor computable.
+    pub unpowered: Vec<String>,
+}
+
+impl BillOutcome {
+    fn of(chain: &Chain, a: &Analysis) -> BillOutcome {
+        let hardware = || chain.stages.iter().filter(|s| s.kind != StageKind::Convert);
+        let costs: Vec<f64> = hardware().filter_map(|s| s.bill.cost).collect();
+        let power: Vec<StagePower> = hardware().filter_map(|s| stage_power(s, a)).collect();
+        BillOutcome {
+            cost: (!costs.is_empty()).then(|| costs.iter().sum()),
+            unpriced: hardware()
+                .filter(|s| s.bill.cost.is_none())
+                .map(|s| s.name.clone())
+                .collect(),
+            power_w: (!power.is_empty()).then(|| power.iter().map(|p| p.watts).sum()),
+            unpowered: hardware()
+                .filter(|s| s.typed.as_ref().is_some_and(draws_supply))
+                .filter(|s| !power.iter().any(|p| p.stage == s.name))
+                .map(|s| s.name.clone())
+                .collect(),
+            power,
+        }
+    }
+}
+
+/// Whether a model draws from a supply of its own. A passive stage's
+/// dissipation is part of what its excitation delivers; a conversion is
+/// firmware.
+fn draws_supply(model: &StageModel) -> bool {
+    match model {
+        StageModel::Excitation(_)
+        | StageModel::IcVoltage(_)
+        | StageModel::IcCurrent(_)
+        | StageModel::Amplifier(_)
+        | StageModel::Adc(_) => true,
+        // An RC is passive; a Butterworth or Bessel of higher order is
+        // built around amplifiers.
+        StageModel::Filter(f) => f.response != Response::Rc,
+        StageModel::Rtd(_)
+        | StageModel::Thermocouple(_)
+        | StageModel::Thermistor(_)
+        | StageModel::StrainGauge(_)
+        | StageModel::Transducer(_)
+        | StageModel::Resistor(_)
+        | StageModel::Bridge(_)
+        | StageModel::Convert(_) => false,
+    }
+}
+
+/// A stage's stated power, or what an excitation delivers into its load
+/// where its compliance or current limit gives the load's envelope.
+fn stage_power(stage: &Stage, a: &Analysis) -> Option<StagePower> {
+    let (watts, basis) = match (stage.bill.power, &stage.typed) {
+        (Some(w), _) => (w, PowerBasis::Stated),
+        (None, Some(StageModel::Excitation(e))) => {
+            let load = a.envelopes.iter().find(|env| {
+                a.names.get(env.node) == Some(&stage.name)
+                    && matches!(env.limit, Limit::Compliance | Limit::CurrentLimit)
+            })?;
+            let most = load.reach.0.abs().max(load.reach.1.abs());
+            (e.value.nominal.abs() * most, PowerBasis::Delivered)
+        }
+        (None, _) => return None,
+    };
+    Some(StagePower {
+        stage: stage.name.clone(),
+        watts,
+        basis,
+    })
+}
+
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct Outcome {
     pub chain: String,
@@ -95,6 +283,11 @@ pub struct Outcome {
     /// reference temperature.
     pub window: Option<[i64; 2]>,
     pub alarms: Vec<AlarmOutcome>,
+    /// The faults and their verdicts; None where the fault analysis could
+    /// not evaluate the chain.
+    pub faults: Option<FaultsOutcome>,
+    /// Unit cost and power, where the stages state them.
+    pub bill: BillOutcome,
     /// The largest contributor at the worst GUM point and its share of
     /// the variance (0…1).
     pub largest: Option<(String, f64)>,
@@ -144,6 +337,10 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
                 guard_band: x.guard_band * f,
             })
             .collect(),
+        faults: faults::analyse(chain, plan)
+            .ok()
+            .map(|r| FaultsOutcome::of(&r)),
+        bill: BillOutcome::of(chain, a),
         largest: largest(a),
         trials: a.trials,
         floor: chain

@@ -3,8 +3,8 @@
 //! library beyond `<stdint.h>`, `<stdbool.h>` and `<stddef.h>`.
 
 use super::{
-    alarm_names, constants, conversion_words, named_curves, number, source_tag, ChainExport,
-    Constant, Curve, Export, Value, CAUTION,
+    alarm_names, constant_comment, constants, conversion_words, named_curves, number, source_tag,
+    undetected_words, wrap, ChainExport, Constant, Curve, Export, Value, CAUTION,
 };
 
 /// The header and the source; `header_name` is how the source includes
@@ -53,25 +53,12 @@ fn preamble(export: &Export, tag: &str) -> String {
     out
 }
 
-/// Text cut into comment lines of at most 78 characters.
+/// Comment lines of at most 78 characters.
 fn wrap_comment(text: &str, lead: &str) -> String {
-    let mut out = String::new();
-    let mut line = String::new();
-    for word in text.split_whitespace() {
-        if !line.is_empty() && lead.len() + line.len() + 1 + word.len() > 78 {
-            out.push_str(&format!("{lead}{line}\n"));
-            line.clear();
-        }
-        if !line.is_empty() {
-            line.push(' ');
-        }
-        line.push_str(word);
-    }
-    if !line.is_empty() {
-        out.push_str(&format!("{lead}{line}\n"));
-    }
-    out
+    wrap(text, lead, WIDTH)
 }
+
+const WIDTH: usize = 78;
 
 fn code_type(chain: &ChainExport) -> &'static str {
     if chain.bits <= 31 {
@@ -82,8 +69,7 @@ fn code_type(chain: &ChainExport) -> &'static str {
 }
 
 fn doc(c: &Constant, tag: &str) -> String {
-    let text = format!("{}. Unit: {}. From {tag}.", c.what, c.unit);
-    format!("/*\n{} */\n", wrap_comment(&text, " * "))
+    format!("/*\n{} */\n", constant_comment(c, tag, " * ", WIDTH))
 }
 
 fn header_part(chain: &ChainExport, tag: &str) -> String {
@@ -118,6 +104,9 @@ fn header_part(chain: &ChainExport, tag: &str) -> String {
                 v.len()
             )),
         }
+    }
+    if let Some(words) = undetected_words(chain) {
+        out.push_str(&format!("/*\n{} */\n\n", wrap_comment(&words, " * ")));
     }
     out.push_str(&format!(
         "/*\n{} */\n\n",

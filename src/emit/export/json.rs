@@ -3,7 +3,10 @@
 
 use serde::Serialize;
 
-use super::{alarm_names, conversion_words, ChainExport, Curve, Export, Origin, CAUTION};
+use super::{
+    alarm_names, conversion_words, fault_name, ChainExport, Curve, Export, Origin, CAUTION,
+};
+use crate::analysis::faults::{FaultVerdict, Threshold};
 
 #[derive(Serialize)]
 struct Document<'a> {
@@ -31,6 +34,7 @@ struct ChainJson<'a> {
     converter: Converter<'a>,
     average: u32,
     window: Window,
+    faults: Vec<FaultJson<'a>>,
     conversion: ConversionJson<'a>,
     alarms: Vec<AlarmJson<'a>>,
     calibration: Option<CalibrationJson<'a>>,
@@ -184,6 +188,42 @@ struct ConversionJson<'a> {
     description: String,
 }
 
+/// One fault: its verdict, its codes and, where detectable, the
+/// threshold (`below` or `above`) and the constant the C and Rust exports
+/// name it by.
+#[derive(Serialize)]
+struct FaultJson<'a> {
+    stage: &'a str,
+    fault: &'static str,
+    condition: &'static str,
+    verdict: &'static str,
+    codes: Option<[i64; 2]>,
+    below: Option<i64>,
+    above: Option<i64>,
+    constant: Option<String>,
+    reason: Option<&'a str>,
+}
+
+fn fault_json(f: &FaultVerdict) -> FaultJson<'_> {
+    let (below, above) = match f.threshold {
+        Some(Threshold::Below(n)) => (Some(n), None),
+        Some(Threshold::Above(n)) => (None, Some(n)),
+        Some(Threshold::Outside(a, b)) => (Some(a), Some(b)),
+        None => (None, None),
+    };
+    FaultJson {
+        stage: &f.stage,
+        fault: f.fault.kind.name(),
+        condition: f.fault.kind.describe(),
+        verdict: f.verdict.name(),
+        codes: f.codes.map(|(lo, hi)| [lo, hi]),
+        below,
+        above,
+        constant: fault_name(f),
+        reason: f.reason.as_deref(),
+    }
+}
+
 #[derive(Serialize)]
 struct AlarmJson<'a> {
     name: String,
@@ -194,6 +234,7 @@ struct AlarmJson<'a> {
     trip_code: i64,
     code_at_limit: i64,
     trips_upward: bool,
+    masked_by: &'a [String],
 }
 
 #[derive(Serialize)]
@@ -249,6 +290,7 @@ fn chain(c: &ChainExport) -> ChainJson<'_> {
             k: w.k,
             rails: [w.rails.0, w.rails.1],
         },
+        faults: c.faults.iter().map(fault_json).collect(),
         conversion: conversion(c),
         alarms: c
             .alarms
@@ -263,6 +305,7 @@ fn chain(c: &ChainExport) -> ChainJson<'_> {
                 trip_code: a.trip_code,
                 code_at_limit: a.code,
                 trips_upward: a.trips_upward,
+                masked_by: &a.masked_by,
             })
             .collect(),
         calibration: c.calibration.as_ref().map(|cal| CalibrationJson {

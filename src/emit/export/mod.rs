@@ -20,6 +20,7 @@ pub use model::{
 };
 pub use rust::render as render_rust;
 
+use crate::analysis::faults::{FaultVerdict, Threshold, Verdict};
 use crate::units::format::trimmed;
 
 /// Everything one run exports: the chains of one spec.
@@ -50,6 +51,37 @@ pub fn source_tag(source: &Provenance) -> String {
         Some(rev) => format!("spec {}, revision {rev}", source.path),
         None => format!("spec {}", source.path),
     }
+}
+
+/// Text cut into comment lines of at most `width` characters, each
+/// starting with `lead`.
+pub fn wrap(text: &str, lead: &str, width: usize) -> String {
+    let mut out = String::new();
+    let mut line = String::new();
+    for word in text.split_whitespace() {
+        if !line.is_empty() && lead.len() + line.len() + 1 + word.len() > width {
+            out.push_str(&format!("{lead}{line}\n"));
+            line.clear();
+        }
+        if !line.is_empty() {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    if !line.is_empty() {
+        out.push_str(&format!("{lead}{line}\n"));
+    }
+    out
+}
+
+/// A constant's comment, as lines of at most `width` characters each
+/// starting with `lead`: what it is, its unit and where it came from.
+pub fn constant_comment(c: &Constant, tag: &str, lead: &str, width: usize) -> String {
+    wrap(
+        &format!("{}. Unit: {}. From {tag}.", c.what, c.unit),
+        lead,
+        width,
+    )
 }
 
 /// A value of a constant.
@@ -159,6 +191,7 @@ pub fn constants(chain: &ChainExport) -> Vec<Constant> {
         constant("AVERAGE", "conversion results the firmware averages per reading (pass their mean as the code)".to_string(), "samples", Value::Count(i64::from(chain.average))),
         constant("CONVERSION_MAX_ERROR", "largest difference between this conversion (with the nominal calibration) and the exact inverse of the nominal chain, over the valid code window".to_string(), diff, Value::Real(chain.max_error)),
     ];
+    out.extend(fault_constants(chain));
     out.extend(curve_constants(chain));
     out.extend(alarm_constants(chain));
     out.extend(calibration_constants(chain));
@@ -309,6 +342,87 @@ fn curve_constants(chain: &ChainExport) -> Vec<Constant> {
     out
 }
 
+/// A detectable fault's threshold constants: `FAULT_<STAGE>_<FAULT>_BELOW`
+/// (the fault is present at codes below it), `_ABOVE`, or both for a fault
+/// that leaves the code at either end; each with its code and side.
+pub fn fault_constants_of(f: &FaultVerdict) -> Vec<(String, i64, &'static str)> {
+    let sides = match f.threshold {
+        Some(Threshold::Below(n)) => vec![(n, "BELOW")],
+        Some(Threshold::Above(n)) => vec![(n, "ABOVE")],
+        Some(Threshold::Outside(a, b)) => vec![(a, "BELOW"), (b, "ABOVE")],
+        None => Vec::new(),
+    };
+    sides
+        .into_iter()
+        .map(|(code, side)| {
+            let name = format!(
+                "FAULT_{}_{}_{side}",
+                f.stage.to_uppercase(),
+                f.fault.kind.name().to_uppercase()
+            );
+            (name, code, side)
+        })
+        .collect()
+}
+
+/// A detectable fault's threshold constant names, comma-separated.
+pub fn fault_name(f: &FaultVerdict) -> Option<String> {
+    let names: Vec<String> = fault_constants_of(f).into_iter().map(|c| c.0).collect();
+    (!names.is_empty()).then(|| names.join(", "))
+}
+
+fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
+    let mut out = Vec::new();
+    for f in &chain.faults {
+        let Some((lo, hi)) = f.codes else {
+            continue;
+        };
+        for (name, code, side) in fault_constants_of(f) {
+            let side = if side == "BELOW" { "below" } else { "above" };
+            out.push(constant(
+            &name,
+            format!(
+                "fault threshold for `{}` {} (fault `{}`): with it the converter gives codes {lo} .. {hi}, outside the valid window; a code {side} this means the fault (placed halfway between the window and the fault's codes)",
+                f.stage,
+                f.fault.kind.describe(),
+                f.fault.kind.name()
+            ),
+            "code",
+            Value::Code(code),
+        ));
+        }
+    }
+    out
+}
+
+/// The faults firmware cannot tell from the code, in words for a comment;
+/// None when every fault is detectable.
+pub fn undetected_words(chain: &ChainExport) -> Option<String> {
+    let list: Vec<String> = chain
+        .faults
+        .iter()
+        .filter(|f| f.verdict != Verdict::Detectable)
+        .map(|f| {
+            let codes = f
+                .codes
+                .map(|(lo, hi)| format!(", codes {lo} .. {hi} inside the window"))
+                .unwrap_or_default();
+            format!(
+                "`{}` {} ({}{codes})",
+                f.stage,
+                f.fault.kind.describe(),
+                f.verdict.name()
+            )
+        })
+        .collect();
+    (!list.is_empty()).then(|| {
+        format!(
+            "Faults the code cannot reveal (no threshold; detect them another way or change the design, see `catena checklist`): {}.",
+            list.join("; ")
+        )
+    })
+}
+
 fn alarm_constants(chain: &ChainExport) -> Vec<Constant> {
     let (unit, diff) = (chain.unit.as_str(), chain.difference_unit.as_str());
     let mut out = Vec::new();
@@ -330,6 +444,14 @@ fn alarm_constants(chain: &ChainExport) -> Vec<Constant> {
             "code of the trip reading on the nominal chain with the cold junction at the reference ambient; another junction temperature moves it, so the alarm compares the reading with the trip instead".to_string()
         } else {
             format!("code of the trip reading on the nominal chain at the reference ambient; the alarm trips at codes {dir} it")
+        };
+        let trip_code = if a.masked_by.is_empty() {
+            trip_code
+        } else {
+            format!(
+                "{trip_code}. Faults the code cannot reveal that could hold it on the safe side: {}",
+                a.masked_by.join(", ")
+            )
         };
         out.push(constant(
             &format!("{name}_TRIP_CODE"),

@@ -6,13 +6,15 @@
 //! nominal constants.
 //!
 //! Readings are in the measurand's unit as the spec writes it (`degC`,
-//! `kg`); errors in its difference unit (`K`). Fault thresholds join the
-//! window here once the fault analysis places each fault's code.
+//! `kg`); errors in its difference unit (`K`). The window, the fault
+//! verdicts with their thresholds and the faults that mask each alarm are
+//! the fault analysis's own result (`analysis::faults`), taken as it is.
 
 use super::junction::{junction, measuring_couple, Inputs, Junction};
 use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
-use crate::analysis::window::{code_window, CodeWindow};
+use crate::analysis::faults::{self, FaultReport, FaultVerdict};
+use crate::analysis::window::CodeWindow;
 use crate::eval::{Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan};
 use crate::model::requirement::RequirementKind;
 use crate::model::typed::ConversionMethod;
@@ -132,6 +134,9 @@ pub struct AlarmExport {
     pub trip_code: i64,
     /// The alarm trips at codes at or above `trip_code` (else at or below).
     pub trips_upward: bool,
+    /// The faults firmware cannot tell from a reading whose codes can lie
+    /// on the safe side of the trip (`stage fault`).
+    pub masked_by: Vec<String>,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -166,6 +171,9 @@ pub struct ChainExport {
     /// Codes the error was evaluated at.
     pub samples: usize,
     pub window: CodeWindow,
+    /// Every fault of the stages feeding the converter, with its verdict
+    /// and, where detectable, the firmware's threshold.
+    pub faults: Vec<FaultVerdict>,
     pub alarms: Vec<AlarmExport>,
     pub calibration: Option<CalibrationExport>,
     /// For a thermocouple chain: the conversion with the cold junction
@@ -240,7 +248,8 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         .ok_or_else(|| numeric(plan, "no measurand"))?;
     let unit = measurand.unit.clone();
     let to_unit = |x: f64| from_si(x, &unit);
-    let window = code_window(chain, plan)?;
+    let report = faults::analyse(chain, plan)?;
+    let window = report.window.clone();
     let exact = Exact::new(plan, conversion)?;
     let samples = sample_codes(&window);
     let truth = samples
@@ -295,7 +304,8 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         target_basis,
         samples: samples.len(),
         window: window.clone(),
-        alarms: alarms(chain, plan, true, &to_unit)?,
+        alarms: alarms(chain, plan, &report, &to_unit)?,
+        faults: report.faults,
         protective: chain.is_protective(),
         calibration,
         junction,
@@ -661,25 +671,39 @@ pub fn affine_from(points: &[f64], codes: &[f64], curve: &Curve) -> Option<Affin
     }
 }
 
-/// The alarms' trip codes, with the guard band the budget demands.
+/// The alarms' trip codes, with the guard band the budget demands and the
+/// faults that would mask them, as the fault analysis gives them.
 fn alarms(
     chain: &Chain,
     plan: &Plan,
-    rising: bool,
+    report: &FaultReport,
     to_unit: &dyn Fn(f64) -> f64,
 ) -> Result<Vec<AlarmExport>, EvalError> {
     let k = budget::Options::default().k;
     let (_, factor) = chain.difference_unit();
-    Ok(alarm_limits(chain, plan, k)?
+    let limits = alarm_limits(chain, plan, k)?;
+    Ok(faults::maskings(chain, plan, report, limits)?
         .into_iter()
-        .map(|a| AlarmExport {
-            trips_upward: (a.side == "high") == rising,
-            side: a.side,
-            at: to_unit(a.at),
-            trip_at: to_unit(a.trip_at),
-            guard_band: a.guard_band * factor,
-            code: a.code,
-            trip_code: a.trip_code,
+        .map(|m| {
+            let a = m.alarm;
+            AlarmExport {
+                // Set from the chain's direction once it is known.
+                trips_upward: true,
+                side: a.side,
+                at: to_unit(a.at),
+                trip_at: to_unit(a.trip_at),
+                guard_band: a.guard_band * factor,
+                code: a.code,
+                trip_code: a.trip_code,
+                masked_by: m
+                    .faults
+                    .iter()
+                    .map(|&i| {
+                        let f = &report.faults[i];
+                        format!("{} {}", f.stage, f.fault.kind.name())
+                    })
+                    .collect(),
+            }
         })
         .collect())
 }

@@ -2,8 +2,8 @@
 //! that use them; no allocation and no dependency (`no_std` friendly).
 
 use super::{
-    alarm_names, constants, conversion_words, named_curves, number, source_tag, ChainExport,
-    Constant, Curve, Export, Value, CAUTION,
+    alarm_names, constant_comment, constants, conversion_words, named_curves, number, source_tag,
+    undetected_words, ChainExport, Constant, Curve, Export, Value, CAUTION,
 };
 
 pub fn render(export: &Export) -> String {
@@ -21,29 +21,15 @@ pub fn render(export: &Export) -> String {
     out
 }
 
-/// Text cut into comment lines of at most 80 characters.
+/// Comment lines of at most 80 characters.
 fn wrap(text: &str, lead: &str) -> String {
-    let mut out = String::new();
-    let mut line = String::new();
-    for word in text.split_whitespace() {
-        if !line.is_empty() && lead.len() + line.len() + 1 + word.len() > 80 {
-            out.push_str(&format!("{lead}{line}\n"));
-            line.clear();
-        }
-        if !line.is_empty() {
-            line.push(' ');
-        }
-        line.push_str(word);
-    }
-    if !line.is_empty() {
-        out.push_str(&format!("{lead}{line}\n"));
-    }
-    out
+    super::wrap(text, lead, WIDTH)
 }
 
+const WIDTH: usize = 80;
+
 fn item(c: &Constant, tag: &str) -> String {
-    let text = format!("{}. Unit: {}. From {tag}.", c.what, c.unit);
-    let doc = wrap(&text, "    /// ");
+    let doc = constant_comment(c, tag, "    /// ", WIDTH);
     let value = match &c.value {
         Value::Code(v) => format!("pub const {}: i64 = {v};", c.name),
         Value::Count(v) => format!("pub const {}: usize = {v};", c.name),
@@ -86,6 +72,10 @@ fn module(chain: &ChainExport, tag: &str) -> String {
         out.push_str(&item(&c, tag));
     }
     out.push_str("    /// Whether a conversion result lies in the valid code window.\n    pub fn code_valid(code: i64) -> bool {\n        (CODE_MIN..=CODE_MAX).contains(&code)\n    }\n\n");
+    if let Some(words) = undetected_words(chain) {
+        out.push_str(&wrap(&words, "    // "));
+        out.push('\n');
+    }
     out.push_str(&wrap(&conversion_words(chain), "    /// "));
     out.push_str(&curve_functions(chain));
     out.push_str(&calibration_functions(chain));

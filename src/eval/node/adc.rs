@@ -2,7 +2,7 @@
 //! gain error and INL, and the code it gives.
 
 use super::{Cx, Run};
-use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::fault::{open_input, FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, AdcInput};
 use crate::model::value::Tolerance;
@@ -59,10 +59,13 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
         None => (None, None),
     };
     // Slots in the order the parameters are listed (it seeds Monte Carlo).
+    // A channel's gain is its own, whatever its converter shares.
+    let owner = std::mem::replace(&mut cx.owner, cx.name);
     let pga = m
         .pga
         .as_ref()
         .map(|g| cx.measure("pga", SourceKind::Tolerance, g));
+    cx.owner = owner;
     let offset = m.offset.as_ref().map(|t| {
         let slot = cx.limit("offset", SourceKind::Bound, t);
         if t.dim == Dim::CODE {
@@ -95,11 +98,16 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
     })
 }
 
-/// Its code stuck at either end, or its reference lost.
+/// Its code stuck at either end, its reference lost, or its input pin
+/// open (its own burnout current drives the pin to a rail; without one
+/// the pin floats). A differential input's two pins are one row: a
+/// burnout current sourced into the positive pin and sunk from the
+/// negative one drives either open pin the same way, upscale.
 pub(super) const FAULTS: &[FaultKind] = &[
     FaultKind::OverRange,
     FaultKind::UnderRange,
     FaultKind::ReferenceLost,
+    FaultKind::InputOpen,
 ];
 
 /// A converter's gain error or INL as a fraction of its full-scale span.
@@ -148,10 +156,18 @@ impl Adc {
                 code: x as i64,
             })
         };
-        let Signal::Voltage { v, .. } = run.s[self.input] else {
+        let Signal::Voltage { v, cm, .. } = run.s[self.input] else {
             return Err(run.numeric("no input voltage"));
         };
+        let v = match (kind, open_input(self.burnout, cm)) {
+            (Some(FaultKind::InputOpen), Faulted::Signal(Signal::Voltage { v, .. })) => v,
+            (Some(FaultKind::InputOpen), floating) => return Ok(floating),
+            _ => v,
+        };
         let vr = match kind {
+            Some(FaultKind::InputOpen) => {
+                self.reference_voltage(run.plan, run.values, run.env, run.s)
+            }
             Some(FaultKind::OverRange) => return Ok(rail(hi)),
             Some(FaultKind::UnderRange) => return Ok(rail(lo)),
             Some(FaultKind::ReferenceLost) => 0.0,
@@ -185,13 +201,9 @@ impl Adc {
         };
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
         // INL is a fraction of the full-scale code span.
-        let full_scale = match self.polarity {
-            Polarity::Unipolar => per_ref,
-            Polarity::Bipolar => 2.0 * per_ref,
-        };
-        let exact = (v + off) * gain / vr * per_ref
-            + off_codes
-            + self.inl.map(|s| values[s]).unwrap_or(0.0) * full_scale;
+        let inl = self.inl.map(|s| values[s]).unwrap_or(0.0)
+            * adc::full_scale_codes(per_ref, self.polarity);
+        let exact = adc::exact_code(v + off, gain, vr, per_ref, off_codes, inl);
         Signal::Code {
             exact,
             code: round_code(exact, lo, hi),

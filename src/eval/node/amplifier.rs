@@ -2,7 +2,7 @@
 //! swing; outside its common-mode range it rails.
 
 use super::{Cx, Run};
-use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::fault::{open_input, FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed;
 
@@ -91,21 +91,29 @@ pub(super) fn lower(m: &typed::Amplifier, cx: &mut Cx<'_>) -> Result<Amplifier, 
     })
 }
 
-/// Its output stuck at either swing (a latched-up or damaged part).
-pub(super) const FAULTS: &[FaultKind] = &[FaultKind::SaturatedHigh, FaultKind::SaturatedLow];
+/// Its output stuck at either swing (a latched-up or damaged part), or its
+/// input pin open.
+pub(super) const FAULTS: &[FaultKind] = &[
+    FaultKind::SaturatedHigh,
+    FaultKind::SaturatedLow,
+    FaultKind::InputOpen,
+];
 
 impl Amplifier {
-    /// The output at the stated swing's end; without a stated swing
-    /// nothing says where it saturates.
+    /// Saturated: the output at the stated swing's end; without a stated
+    /// swing nothing says where it saturates. Input open: its own burnout
+    /// current drives the pin to a rail, which it then amplifies as any
+    /// input; without one the pin floats.
     pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
-        let Some((lo, hi)) = self.output else {
-            return Ok(Faulted::Undetermined(
-                "the amplifier's output swing is not stated",
-            ));
-        };
-        let v = match kind {
-            FaultKind::SaturatedHigh => hi,
-            FaultKind::SaturatedLow => lo,
+        let v = match (kind, self.output) {
+            (FaultKind::InputOpen, _) => return self.input_open(run),
+            (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, None) => {
+                return Ok(Faulted::Undetermined(
+                    "the amplifier's output swing is not stated",
+                ))
+            }
+            (FaultKind::SaturatedHigh, Some((_, hi))) => hi,
+            (FaultKind::SaturatedLow, Some((lo, _))) => lo,
             _ => return Err(run.numeric(kind.describe())),
         };
         Ok(Faulted::Signal(Signal::Voltage {
@@ -113,6 +121,24 @@ impl Amplifier {
             cm: v / 2.0,
             rs: 0.0,
         }))
+    }
+
+    fn input_open(&self, run: &Run<'_>) -> Result<Faulted, EvalError> {
+        let cm = match run.s[self.input] {
+            Signal::Voltage { cm, .. } => cm,
+            _ => return Err(run.numeric("no input voltage")),
+        };
+        let open = match open_input(self.burnout, cm) {
+            Faulted::Signal(open) => open,
+            undetermined => return Ok(undetermined),
+        };
+        let mut signals = *run.s;
+        signals[self.input] = open;
+        let rerun = Run {
+            s: &signals,
+            ..*run
+        };
+        self.eval(&rerun).map(Faulted::Signal)
     }
 
     #[inline(always)]

@@ -5,7 +5,7 @@
 
 use super::{Cx, Run};
 use crate::eval::element::Supply;
-use crate::eval::fault::FaultKind;
+use crate::eval::fault::{FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, BridgeForm, DividerSide};
 use crate::physics::strain;
@@ -74,24 +74,72 @@ pub(super) fn lower(m: &typed::Bridge, cx: &mut Cx<'_>) -> Result<Bridge, EvalEr
     })
 }
 
-/// None of its own: its arms are elements of their own, each with its own
-/// faults; its completion resistors' faults are not modelled yet.
-pub(super) const FAULTS: &[FaultKind] = &[];
+/// Each completion resistor open or shorted (its arms are elements of
+/// their own, each with its own faults).
+const COMPLETION: [&[FaultKind]; 4] = [
+    &[],
+    &[FaultKind::CompletionOpen(1), FaultKind::CompletionShort(1)],
+    &[
+        FaultKind::CompletionOpen(1),
+        FaultKind::CompletionShort(1),
+        FaultKind::CompletionOpen(2),
+        FaultKind::CompletionShort(2),
+    ],
+    &[
+        FaultKind::CompletionOpen(1),
+        FaultKind::CompletionShort(1),
+        FaultKind::CompletionOpen(2),
+        FaultKind::CompletionShort(2),
+        FaultKind::CompletionOpen(3),
+        FaultKind::CompletionShort(3),
+    ],
+];
 
 impl Bridge {
+    /// One open and one short per completion resistor it has.
+    pub(super) fn faults(&self) -> &'static [FaultKind] {
+        let parts = usize::from(self.r.is_some()) + self.others.len();
+        COMPLETION[parts.min(COMPLETION.len() - 1)]
+    }
+
+    /// The circuit with one completion resistor open or shorted: the
+    /// solved bridge then gives what the converter sees.
+    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+        let replaced = match kind {
+            FaultKind::CompletionOpen(n) => (n, OPEN_OHMS),
+            FaultKind::CompletionShort(n) => (n, SHORT_OHMS),
+            _ => return Err(run.numeric(kind.describe())),
+        };
+        self.solve(run, Some(replaced)).map(Faulted::Signal)
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        self.solve(run, None)
+    }
+
+    /// The solved circuit, with completion resistor `n` (1-based) of
+    /// `ohms` in place of its part where `replaced` says so.
+    #[inline(always)]
+    fn solve(&self, run: &Run<'_>, replaced: Option<(u8, f64)>) -> Result<Signal, EvalError> {
         let (values, s) = (run.values, run.s);
-        let fixed = self
+        let part = |n: u8, value: f64| match replaced {
+            Some((k, ohms)) if k == n => ohms,
+            _ => value,
+        };
+        let nominal_fixed = self
             .r
             .map(|r| run.drifted(values[r], self.drift))
             .unwrap_or(0.0);
+        let fixed = part(1, nominal_fixed);
         // Each further completion resistor is its own part.
         let other = |k: usize| {
-            self.others
+            let value = self
+                .others
                 .get(k)
                 .map(|&(r, drift)| run.drifted(values[r], drift))
-                .unwrap_or(fixed)
+                .unwrap_or(nominal_fixed);
+            part(k as u8 + 2, value)
         };
         let arm = |k: usize| match self.arms.get(k).map(|&n| s[n]) {
             Some(Signal::Element(r)) => Ok(r),

@@ -11,10 +11,8 @@ use crate::physics::semiconductor;
 pub struct IcCurrent {
     pub slope: SlotId,
     pub senses: Senses,
-    /// The voltage excitation that powers it, when wired: where its
-    /// output rises to when its load opens (a current regulator with
-    /// nowhere to send its current saturates toward its supply).
-    pub supply: Option<NodeId>,
+    /// The excitation wired to it as its supply.
+    pub input: Option<NodeId>,
 }
 
 pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, EvalError> {
@@ -25,18 +23,38 @@ pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, 
     Ok(IcCurrent {
         slope,
         senses: cx.senses,
-        supply: cx.inputs.input,
+        input: cx.inputs.input,
     })
 }
 
-/// Its supply lost: no current.
-pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
+/// Its supply lost: no current. Stuck high: the two-terminal sensor fails
+/// short, and only its load limits the current its supply drives.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost, FaultKind::StuckHigh];
 
 impl IcCurrent {
     pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
         match kind {
             FaultKind::Lost => Ok(Faulted::Signal(Signal::Current(0.0))),
+            FaultKind::StuckHigh => {
+                let Some(Signal::Source(v)) = self.input.map(|n| run.s[n]) else {
+                    return Ok(Faulted::Undetermined(
+                        "the sensor's supply is not wired: nothing says what limits its current once it shorts",
+                    ));
+                };
+                let load = run
+                    .plan
+                    .load_resistance(run.i, run.values, run.env, run.s)?;
+                Ok(Faulted::Signal(Signal::Current(v / load)))
+            }
             _ => Err(run.numeric(kind.describe())),
+        }
+    }
+
+    /// Its output behind a fault upstream: a lost supply is its own loss.
+    pub(super) fn behind(&self, run: &Run<'_>) -> Result<Faulted, EvalError> {
+        match self.input.map(|n| run.s[n]) {
+            Some(Signal::Source(v)) if v <= 0.0 => self.faulted(run, FaultKind::Lost),
+            _ => self.eval(run).map(Faulted::Signal),
         }
     }
 

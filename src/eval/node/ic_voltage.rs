@@ -2,7 +2,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
-use crate::eval::plan::{EvalError, Senses, Signal, SlotId, SourceKind};
+use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::semiconductor;
 use crate::units::ZERO_CELSIUS_K;
@@ -14,6 +14,10 @@ pub struct IcVoltage {
     pub t0: f64,
     pub senses: Senses,
     pub rout: Option<SlotId>,
+    /// The supply range it runs from, V: where a stuck output goes.
+    pub supply: Option<(f64, f64)>,
+    /// The excitation wired to it as its supply.
+    pub input: Option<NodeId>,
 }
 
 pub(super) fn lower(m: &typed::IcVoltage, cx: &mut Cx<'_>) -> Result<IcVoltage, EvalError> {
@@ -32,22 +36,46 @@ pub(super) fn lower(m: &typed::IcVoltage, cx: &mut Cx<'_>) -> Result<IcVoltage, 
         t0: m.output_at,
         senses: cx.senses,
         rout,
+        supply: m.supply,
+        input: cx.inputs.input,
     })
 }
 
 /// Its supply lost: the output falls to 0 V behind its output
-/// resistance.
-pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
+/// resistance (the same as an output stuck low, so one row). Its output
+/// stuck high: at its supply.
+pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost, FaultKind::StuckHigh];
 
 impl IcVoltage {
+    /// A stuck-high output sits at the supply: the excitation wired to
+    /// it, else the low end of its stated `supply` range, the least the
+    /// output can be stuck at and so the nearest to a rising window
+    /// (common practice takes an output stage's high swing as its supply).
     pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
-        match kind {
-            FaultKind::Lost => Ok(Faulted::Signal(Signal::Voltage {
-                v: 0.0,
-                cm: 0.0,
-                rs: run.or_zero(self.rout),
-            })),
-            _ => Err(run.numeric(kind.describe())),
+        let rs = run.or_zero(self.rout);
+        let wired = match self.input.map(|n| run.s[n]) {
+            Some(Signal::Source(v)) => Some(v),
+            _ => None,
+        };
+        let v = match (kind, wired, self.supply) {
+            (FaultKind::Lost, _, _) => 0.0,
+            (FaultKind::StuckHigh, Some(v), _) => v,
+            (FaultKind::StuckHigh, None, Some((low, _))) => low,
+            (FaultKind::StuckHigh, None, None) => {
+                return Ok(Faulted::Undetermined(
+                    "the sensor's supply is neither wired nor stated: nothing says where its output sticks",
+                ))
+            }
+            _ => return Err(run.numeric(kind.describe())),
+        };
+        Ok(Faulted::Signal(Signal::Voltage { v, cm: v / 2.0, rs }))
+    }
+
+    /// Its output behind a fault upstream: a lost supply is its own loss.
+    pub(super) fn behind(&self, run: &Run<'_>) -> Result<Faulted, EvalError> {
+        match self.input.map(|n| run.s[n]) {
+            Some(Signal::Source(v)) if v <= 0.0 => self.faulted(run, FaultKind::Lost),
+            _ => self.eval(run).map(Faulted::Signal),
         }
     }
 

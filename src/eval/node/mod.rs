@@ -87,15 +87,15 @@ impl Node {
     pub fn faults(&self) -> &'static [FaultKind] {
         match self {
             Node::Excitation(_) => excitation::FAULTS,
-            Node::Rtd(_) => rtd::FAULTS,
+            Node::Rtd(n) => n.faults(),
             Node::Thermocouple(_) => thermocouple::FAULTS,
             Node::Thermistor(_) => thermistor::FAULTS,
             Node::IcVoltage(_) => ic_voltage::FAULTS,
             Node::IcCurrent(_) => ic_current::FAULTS,
             Node::StrainGauge(_) => strain_gauge::FAULTS,
-            Node::Transducer(_) => transducer::FAULTS,
+            Node::Transducer(n) => n.faults(),
             Node::Resistor(_) => resistor::FAULTS,
-            Node::Bridge(_) => bridge::FAULTS,
+            Node::Bridge(n) => n.faults(),
             Node::Amplifier(_) => amplifier::FAULTS,
             Node::Filter(_) => filter::FAULTS,
             Node::Adc(_) => adc::FAULTS,
@@ -110,10 +110,9 @@ impl Node {
             Some(AmpReference::Stated { .. }) | None => None,
         };
         match self {
-            Node::Excitation(_)
-            | Node::Thermocouple(_)
-            | Node::IcVoltage(_)
-            | Node::IcCurrent(_) => Vec::new(),
+            Node::Excitation(_) | Node::Thermocouple(_) => Vec::new(),
+            Node::IcVoltage(n) => n.input.into_iter().collect(),
+            Node::IcCurrent(n) => n.input.into_iter().collect(),
             Node::Rtd(n) => n.input.into_iter().collect(),
             Node::Thermistor(n) => n.input.into_iter().collect(),
             Node::Resistor(n) => n.input.into_iter().collect(),
@@ -177,6 +176,8 @@ impl Plan {
         let Some(fault) = here else {
             return match &self.nodes[i] {
                 Node::Adc(n) => n.faulted(&run, None),
+                Node::IcVoltage(n) => n.behind(&run),
+                Node::IcCurrent(n) => n.behind(&run),
                 _ => self
                     .node(i, values, env, s, mode, None)
                     .map(Faulted::Signal),
@@ -185,19 +186,47 @@ impl Plan {
         let kind = fault.kind;
         match &self.nodes[i] {
             Node::Excitation(n) => n.faulted(&run, kind),
-            Node::Rtd(n) => n.faulted(&run, kind),
+            Node::Rtd(n) => n.faulted(&run, fault),
             Node::Thermocouple(n) => n.faulted(&run, fault),
             Node::Thermistor(n) => n.faulted(&run, kind),
             Node::IcVoltage(n) => n.faulted(&run, kind),
             Node::IcCurrent(n) => n.faulted(&run, kind),
             Node::StrainGauge(n) => n.faulted(&run, kind),
             Node::Resistor(n) => n.faulted(&run, kind),
+            Node::Transducer(n) => n.faulted(&run, fault),
+            Node::Bridge(n) => n.faulted(&run, kind),
             Node::Amplifier(n) => n.faulted(&run, kind),
             Node::Adc(n) => n.faulted(&run, Some(kind)),
             // Kinds that declare no fault of their own.
-            Node::Transducer(_) | Node::Bridge(_) | Node::Filter(_) | Node::Convert(_) => {
-                Err(run.numeric(kind.describe()))
+            Node::Filter(_) | Node::Convert(_) => Err(run.numeric(kind.describe())),
+        }
+    }
+
+    /// The resistance, Ω, of the elements current source `i` drives, as
+    /// their own nodes give it at a test current small enough to heat
+    /// nothing (1 nA: picowatts in any element).
+    fn load_resistance(
+        &self,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+    ) -> Result<f64, EvalError> {
+        const TEST_AMPS: f64 = 1e-9;
+        let mut test = *s;
+        test[i] = Signal::Current(TEST_AMPS);
+        let mut volts = 0.0;
+        for j in (0..self.nodes.len()).filter(|&j| self.nodes[j].element_input() == Some(i)) {
+            if let Signal::Voltage { v, .. } =
+                self.node(j, values, env, &test, Mode::FAULT, None)?
+            {
+                volts += v;
             }
+        }
+        if volts > 0.0 {
+            Ok(volts / TEST_AMPS)
+        } else {
+            Err(self.numeric(i, "no load on the current source"))
         }
     }
 
@@ -208,7 +237,7 @@ impl Plan {
     fn compliance(&self, i: NodeId, s: &[Signal; MAX_NODES]) -> Option<f64> {
         match &self.nodes[i] {
             Node::Excitation(e) if e.current => e.compliance,
-            Node::IcCurrent(n) => match n.supply.map(|supply| s[supply]) {
+            Node::IcCurrent(n) => match n.input.map(|supply| s[supply]) {
                 Some(Signal::Source(v)) if v > 0.0 => Some(v),
                 _ => None,
             },
@@ -377,6 +406,13 @@ pub(super) struct Cx<'a> {
     /// couple.
     pub cj_error: Option<SlotId>,
     pub name: &'a str,
+    /// The stage whose name the slots' ids carry: the stage's own, or on
+    /// a channel its converter's, whose error sources every channel
+    /// shares.
+    pub owner: &'a str,
+    /// Lowering one member of a converter's scan: a slot whose id exists
+    /// already is the same source, not a second one.
+    pub shared: bool,
     pub inputs: Inputs,
     pub senses: Senses,
     /// A conversion that feeds another's `cj` input.
@@ -387,7 +423,7 @@ pub(super) struct Cx<'a> {
 
 impl Cx<'_> {
     fn id(&self, parameter: &str) -> String {
-        format!("{}.{parameter}", self.name)
+        format!("{}.{parameter}", self.owner)
     }
 
     pub(super) fn not_invertible(&self, what: &str) -> EvalError {
@@ -412,8 +448,14 @@ impl Cx<'_> {
         } else {
             kind
         };
+        let id = self.id(parameter);
+        if self.shared {
+            if let Some(existing) = self.slots.iter().position(|s| s.id == id) {
+                return existing;
+            }
+        }
         self.slots.push(Slot {
-            id: self.id(parameter),
+            id,
             kind,
             nominal,
             minus,

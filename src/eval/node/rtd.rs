@@ -3,7 +3,7 @@
 //! deviations, its leads and its self-heating (`eval/element.rs`).
 
 use super::{Cx, Run};
-use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, RtdCurveName};
 use crate::physics::rtd::{self, Wiring};
@@ -161,10 +161,52 @@ pub(super) fn lower(m: &typed::Rtd, cx: &mut Cx<'_>) -> Result<Rtd, EvalError> {
 }
 
 /// An element opens (a broken wire or element) or shorts (a crushed
-/// cable).
-pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Short];
+/// cable). On a current source its leads fail one by one too, by how the
+/// wiring is modelled (`physics::rtd::lead_series_resistance`):
+///
+/// - 2-wire: wires 1 and 2 carry the current and are measured with the
+///   element, so either open is the element open and the two shorted at
+///   the probe are the element shorted: no rows of their own.
+/// - 3-wire: wire 1 carries the excitation to one end; the compensation
+///   lead (wire 2) carries an equal compensating current to the other
+///   end, and a third wire returns both; the converter reads wire 1
+///   against wire 2, so the leads enter as L1 − L2. Wire 1 open is the
+///   element open (the source runs to its compliance); the compensation
+///   lead open is its own fault; the return wire shorted to wire 2 joins
+///   two wires that already meet at the element and changes nothing.
+/// - 4-wire: force leads carry the current in and back, sense leads read
+///   the element's ends and carry nothing. Each of the four open is its
+///   own fault, and so are the sense leads shorted together; a force lead
+///   shorted to the sense lead at its own end changes nothing, and one
+///   across the element is the element shorted.
+///
+/// In a bridge or divider arm the leads' own faults are not modelled.
+const TWO_WIRE: &[FaultKind] = &[FaultKind::Open, FaultKind::Short];
+const THREE_WIRE: &[FaultKind] = &[
+    FaultKind::Open,
+    FaultKind::Short,
+    FaultKind::CompensationLeadOpen,
+];
+const FOUR_WIRE: &[FaultKind] = &[
+    FaultKind::Open,
+    FaultKind::Short,
+    FaultKind::ForceLeadOpen,
+    FaultKind::ReturnLeadOpen,
+    FaultKind::SenseLeadOpen,
+    FaultKind::ReturnSenseLeadOpen,
+    FaultKind::SenseLeadsShorted,
+];
 
 impl Rtd {
+    /// Its faults, by its wiring and what drives it.
+    pub(super) fn faults(&self) -> &'static [FaultKind] {
+        match (self.wiring, self.input.is_some()) {
+            (_, false) | (Wiring::TwoWire, true) => TWO_WIRE,
+            (Wiring::ThreeWire, true) => THREE_WIRE,
+            (Wiring::FourWire, true) => FOUR_WIRE,
+        }
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let current = run.current_into(self.input);
@@ -181,8 +223,68 @@ impl Rtd {
             .unwrap_or(0.0)
     }
 
-    /// The element open or shorted at the probe; the leads stay.
-    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
-        run.element_fault(kind, self.input, self.lead(run))
+    /// Each lead's own resistance, Ω (0 where no lead is stated).
+    fn each_lead(&self, run: &Run<'_>) -> (f64, f64) {
+        self.leads
+            .map(|(a, b)| (run.values[a], run.values[b]))
+            .unwrap_or((0.0, 0.0))
+    }
+
+    /// The element or one of its leads failed. `fault.burnout` is the
+    /// current the stage reading the element sources into an open input.
+    pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
+        let kind = fault.kind;
+        let compliance = self.input.and_then(|n| run.plan.compliance(n, run.s));
+        let healthy = || match self.eval(run)? {
+            Signal::Voltage { v, cm, rs } => Ok((v, cm, rs)),
+            _ => Err(run.numeric("no voltage")),
+        };
+        let voltage = |v: f64, cm: f64, rs: f64| Faulted::Signal(Signal::Voltage { v, cm, rs });
+        let no_compliance = Faulted::Undetermined("the current source's compliance is not stated");
+        Ok(match kind {
+            FaultKind::Open | FaultKind::Short => {
+                return run.element_fault(kind, self.input, self.lead(run))
+            }
+            // The compensating current has no path: its source runs to its
+            // compliance, and so does the converter's input on that lead,
+            // while wire 1 still reads the element with the leads it
+            // crosses (wire 1 and the return, taken as wire 2's value).
+            FaultKind::CompensationLeadOpen => {
+                let Some(vc) = compliance else {
+                    return Ok(no_compliance);
+                };
+                let (_, cm, rs) = healthy()?;
+                let a = run.current_into(self.input).unwrap_or(0.0);
+                let (l1, l2) = self.each_lead(run);
+                let r = rs - self.lead(run);
+                let bottom = cm - a * rs / 2.0;
+                let high = bottom + a * (r + l1 + l2);
+                voltage(high - vc, (high + vc) / 2.0, r + l1 + l2)
+            }
+            // The loop is broken, so the element carries nothing (the
+            // source is starved): both sense leads sit at the end still
+            // joined to a force lead, the return or the source's
+            // compliance.
+            FaultKind::ForceLeadOpen => {
+                let (_, cm, rs) = healthy()?;
+                voltage(0.0, cm, rs)
+            }
+            FaultKind::ReturnLeadOpen => {
+                let Some(vc) = compliance else {
+                    return Ok(no_compliance);
+                };
+                let (_, _, rs) = healthy()?;
+                voltage(0.0, vc, rs)
+            }
+            FaultKind::SenseLeadOpen | FaultKind::ReturnSenseLeadOpen => {
+                let (_, cm, _) = healthy()?;
+                open_input(fault.burnout, cm)
+            }
+            FaultKind::SenseLeadsShorted => {
+                let (_, cm, rs) = healthy()?;
+                voltage(0.0, cm, rs)
+            }
+            _ => return Err(run.numeric(kind.describe())),
+        })
     }
 }

@@ -3,7 +3,7 @@
 //! couple's common mode.
 
 use super::{Cx, Run};
-use crate::eval::fault::{Fault, FaultKind, Faulted, OPEN_OHMS};
+use crate::eval::fault::{Fault, FaultKind, Faulted, FLOATING, OPEN_OHMS};
 use crate::eval::plan::SourceKind;
 use crate::eval::plan::{ClassTolerance, DriftSlot, Env, EvalError, Senses, Signal, SlotId};
 use crate::eval::run::within;
@@ -76,16 +76,17 @@ impl Thermocouple {
             FaultKind::Reversed => Faulted::Signal(Signal::Voltage { v: -v, cm, rs }),
             FaultKind::Open => match fault.burnout {
                 Some(current) => {
-                    let r = self.bias_resistor.map(|s| run.values[s]).unwrap_or(OPEN_OHMS);
+                    let r = self
+                        .bias_resistor
+                        .map(|s| run.values[s])
+                        .unwrap_or(OPEN_OHMS);
                     Faulted::Signal(Signal::Voltage {
                         v: current * r,
                         cm,
                         rs: r,
                     })
                 }
-                None => Faulted::Undetermined(
-                    "nothing gives the open input a path: its bias current charges it toward an unknown rail",
-                ),
+                None => Faulted::Undetermined(FLOATING),
             },
             _ => return Err(run.numeric(fault.kind.describe())),
         })

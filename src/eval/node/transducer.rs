@@ -2,7 +2,7 @@
 //! nonlinearity and hysteresis stated as fractions of full-scale output.
 
 use super::{Cx, Run};
-use crate::eval::fault::FaultKind;
+use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::transducer::{self, LinearityLine};
@@ -57,10 +57,48 @@ pub(super) fn lower(m: &typed::Transducer, cx: &mut Cx<'_>) -> Result<Transducer
     })
 }
 
-/// None yet: an open output or a broken arm inside it is not modelled.
-pub(super) const FAULTS: &[FaultKind] = &[];
+/// Its cable: each excitation lead of a ratiometric bridge open, and a
+/// signal lead open. (A broken arm inside the sealed body is not
+/// modelled.)
+const RATIOMETRIC: &[FaultKind] = &[
+    FaultKind::ExcitationLeadOpen,
+    FaultKind::ExcitationReturnOpen,
+    FaultKind::SignalLeadOpen,
+];
+const VOLTAGE_OUTPUT: &[FaultKind] = &[FaultKind::SignalLeadOpen];
 
 impl Transducer {
+    pub(super) fn faults(&self) -> &'static [FaultKind] {
+        if self.ratiometric {
+            RATIOMETRIC
+        } else {
+            VOLTAGE_OUTPUT
+        }
+    }
+
+    /// An excitation lead open: no current flows in the bridge, so both
+    /// signal leads sit at the excitation lead still connected, 0 V with
+    /// the positive one open, the excitation with the return open, and
+    /// the differential output is zero. A signal lead open: the input
+    /// reading it is cut off (`fault.burnout` is the current that input
+    /// sources).
+    pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
+        let Signal::Voltage { cm, rs, .. } = self.eval(run)? else {
+            return Err(run.numeric("no voltage"));
+        };
+        let exc = match self.input.map(|n| run.s[n]) {
+            Some(Signal::Source(v)) => v,
+            _ => 0.0,
+        };
+        let still_at = |cm: f64| Faulted::Signal(Signal::Voltage { v: 0.0, cm, rs });
+        Ok(match fault.kind {
+            FaultKind::ExcitationLeadOpen => still_at(0.0),
+            FaultKind::ExcitationReturnOpen => still_at(exc),
+            FaultKind::SignalLeadOpen => open_input(fault.burnout, cm),
+            kind => return Err(run.numeric(kind.describe())),
+        })
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let slot = |o: Option<SlotId>| run.or_zero(o);
@@ -69,17 +107,20 @@ impl Transducer {
         // Output as a ratio of excitation (or volts): span with its drift,
         // then the errors stated as fractions of full scale.
         let u = run.env.measurand / self.full_scale;
-        let bow = transducer::nonlinearity_shape(self.linearity, u);
-        // Hysteresis depends on the direction of approach: the
-        // calibration's is not the reading's, so it sees none.
-        let hysteresis = if run.mode.calibrating {
-            0.0
-        } else {
-            slot(self.hysteresis)
+        let errors = transducer::Errors {
+            zero: slot(self.zero),
+            nonlinearity: slot(self.nonlinearity),
+            // Hysteresis depends on the direction of approach: the
+            // calibration's is not the reading's, so it sees none.
+            hysteresis: if run.mode.calibrating {
+                0.0
+            } else {
+                slot(self.hysteresis)
+            },
+            zero_drift: slot(self.zero_drift),
+            span_drift: slot(self.span_drift),
         };
-        let fraction = s_fs * (1.0 + slot(self.span_drift) * dt) * u
-            + s_fs * (slot(self.nonlinearity) * bow + hysteresis + slot(self.zero_drift) * dt)
-            + slot(self.zero);
+        let fraction = transducer::output(s_fs, u, self.linearity, errors, dt);
         let (v, cm) = match (self.ratiometric, self.input.map(|n| run.s[n])) {
             (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
             (true, _) => {
