@@ -321,6 +321,15 @@ fn a_4_wire_rtd_with_a_sense_lead_open_is_undetermined_without_burnout() {
     for fault in ["force_lead_open", "return_lead_open", "sense_leads_shorted"] {
         assert_eq!(codes(row_of(&list, 0, "rtd", fault)), (0, 0), "{fault}");
     }
+    // The converter's own pin open: its own burnout current drives it up.
+    assert_eq!(
+        row_of(&list, 0, "conv", "input_open")["verdict"],
+        "undetermined"
+    );
+    assert_eq!(
+        codes(row_of(&list, 1, "conv", "input_open")),
+        (8388607, 8388607)
+    );
     // The element open: the source's 4 V compliance across the sense
     // leads, above the 2.5 V reference: the top code.
     assert_eq!(codes(row_of(&list, 0, "rtd", "open")), (8388607, 8388607));

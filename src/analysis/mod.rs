@@ -4,6 +4,7 @@
 pub mod accumulation;
 pub mod alarms;
 pub mod budget;
+pub mod checklist;
 pub mod draws;
 pub mod dynamics;
 pub mod faults;

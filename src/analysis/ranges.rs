@@ -99,6 +99,16 @@ pub struct Envelope {
     /// Measurand and ambient where it reaches furthest out.
     pub worst_at: (f64, f64),
     pub unit: LimitUnit,
+    /// Per measurand point, in order: the reach there over the ambients
+    /// (what a plot of headroom along the range draws).
+    pub by_measurand: Vec<PointReach>,
+}
+
+/// A signal's reach at one measurand point, over ambients and tolerances.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct PointReach {
+    pub measurand: f64,
+    pub reach: (f64, f64),
 }
 
 /// The unit a limit and its signal are stated in.
@@ -533,7 +543,7 @@ fn reach_at(
 }
 
 /// Each check's envelope over all conditions, gathered in order, so the
-/// worst point is the first of equals.
+/// worst point is the first of equals, and its reach per measurand point.
 fn gather(
     checks: &[Check],
     conditions: &[Env],
@@ -541,6 +551,7 @@ fn gather(
 ) -> Vec<Envelope> {
     let mut reach: Vec<(f64, f64, (f64, f64), f64)> =
         vec![(f64::INFINITY, f64::NEG_INFINITY, (0.0, 0.0), f64::INFINITY); checks.len()];
+    let mut by_measurand: Vec<Vec<PointReach>> = vec![Vec::new(); checks.len()];
     for (env, reaches) in conditions.iter().zip(per_condition) {
         for (k, c) in checks.iter().enumerate() {
             let (lo, hi) = reaches[k];
@@ -552,18 +563,28 @@ fn gather(
             }
             r.0 = r.0.min(lo);
             r.1 = r.1.max(hi);
+            let points = &mut by_measurand[k];
+            match points.iter_mut().find(|p| p.measurand == env.measurand) {
+                Some(p) => p.reach = (p.reach.0.min(lo), p.reach.1.max(hi)),
+                None => points.push(PointReach {
+                    measurand: env.measurand,
+                    reach: (lo, hi),
+                }),
+            }
         }
     }
     checks
         .iter()
         .zip(reach)
-        .map(|(c, (lo, hi, at, _))| Envelope {
+        .zip(by_measurand)
+        .map(|((c, (lo, hi, at, _)), by_measurand)| Envelope {
             node: c.node,
             limit: c.limit,
             allowed: c.allowed,
             reach: (lo, hi),
             worst_at: at,
             unit: c.unit,
+            by_measurand,
         })
         .collect()
 }
@@ -966,6 +987,70 @@ mod tests {
         assert_eq!(load.unit, LimitUnit::Ampere);
     }
 
+    /// The reach at each measurand point is the envelope of the range
+    /// shrunk to that point, to the bit (what the report's headroom plot
+    /// drew by running the envelopes once per point), and its bounds
+    /// hold the whole range's reach. By hand at the top point, 50 degC:
+    /// 1.0 V × 2 ± 1 % is 1.98 .. 2.02 V, widened by the gain's drift
+    /// at the ambient furthest from the 25 degC reference, 0 degC:
+    /// 2 V × 50 ppm/K × 25 K = 2.5 mV, so 1.9775 .. 2.0225 V.
+    #[test]
+    fn the_reach_per_point_is_the_envelope_at_that_point() {
+        let chain = chain(
+            "chain t \"T\" {
+                measurand temperature 0 degC .. 50 degC
+                ambient 0 degC .. 40 degC
+                sensor probe {
+                    ic_voltage
+                    slope 10 mV/K
+                    output 500 mV at 0 degC
+                }
+                amplifier front {
+                    gain 2 ± 1 %
+                    gain_drift 50 ppm/K
+                    output 0 V .. 2.5 V
+                }
+                adc conv {
+                    bits 16
+                    input single
+                    vref 2.5 V
+                }
+                convert reading { method exact }
+                probe -> front -> conv -> reading
+            }",
+        );
+        let plan = crate::eval::lower(&chain).expect("lowers");
+        let whole = envelopes(&chain, &plan, 5).expect("evaluates");
+        for e in &whole {
+            assert_eq!(e.by_measurand.len(), 5, "{e:?}");
+            let lo = e
+                .by_measurand
+                .iter()
+                .map(|p| p.reach.0)
+                .fold(f64::INFINITY, f64::min);
+            let hi = e
+                .by_measurand
+                .iter()
+                .map(|p| p.reach.1)
+                .fold(f64::NEG_INFINITY, f64::max);
+            assert_eq!((lo, hi), e.reach, "{e:?}");
+        }
+        for (k, point) in whole[0].by_measurand.iter().enumerate() {
+            let mut at = plan.clone();
+            at.range = (point.measurand, point.measurand);
+            let alone = envelopes(&chain, &at, 2).expect("evaluates");
+            for (e, a) in whole.iter().zip(&alone) {
+                assert_eq!(e.by_measurand[k].reach, a.reach, "{e:?}");
+            }
+        }
+        let top = whole[0].by_measurand.last().expect("points");
+        let near = |a: f64, b: f64| (a - b).abs() < 1e-9;
+        assert!(
+            near(top.reach.0, 1.9775) && near(top.reach.1, 2.0225),
+            "{top:?}"
+        );
+    }
+
     fn envelope(allowed: (f64, f64), reach: (f64, f64)) -> Envelope {
         Envelope {
             node: 0,
@@ -974,6 +1059,7 @@ mod tests {
             reach,
             worst_at: (0.0, 0.0),
             unit: LimitUnit::Volt,
+            by_measurand: Vec::new(),
         }
     }
 

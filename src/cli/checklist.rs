@@ -1,23 +1,26 @@
-//! `catena checklist SPEC`: the fault-and-alarm checklist a test engineer
-//! works through at bring-up and a firmware engineer implements: the valid
-//! code window, one row per fault with its codes, verdict and threshold,
-//! one per alarm with its trip code, guard band and the faults that would
-//! mask it, and the warnings `check` raised.
+//! `catena checklist SPEC`: the fault-and-limit checklist a test engineer
+//! works through at bring-up and a firmware engineer implements, rendered
+//! from its one model ([`crate::analysis::checklist`]): the valid code
+//! window, one row per fault with its codes, verdict and threshold, one
+//! per limit with its reach and headroom, one per alarm with its trip
+//! code, guard band and the faults that would mask it, and the review
+//! items (leads, self-heating, calibration, every warning `check` raised).
 
 use std::fmt::Write as _;
 use std::path::PathBuf;
 
 use clap::{Args, ValueEnum};
-use serde::Serialize;
 
 use super::files::check_one;
+use super::report::{about_faults, chain_checklist, warnings};
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::faults::{self, FaultReport, Masking, Verdict};
-use crate::analysis::review::outcome::threshold_text;
+use crate::analysis::checklist::{Checklist, LimitStatus};
+use crate::analysis::ranges::{envelopes, DEFAULT_MARGIN};
 use crate::analysis::Keep;
-use crate::diagnostics::{render_human, Code, Severity};
+use crate::diagnostics::{render_human, Severity};
+use crate::emit::report::fmt::{position, share, si, value};
 use crate::model::Chain;
-use crate::units::format::{from_si, trimmed};
+use crate::units::format::trimmed;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum ListFormat {
@@ -39,55 +42,9 @@ pub struct ChecklistArgs {
     output: Option<PathBuf>,
 }
 
-/// The JSON document's version: a field's meaning never changes within one.
-const SCHEMA_VERSION: u32 = 1;
-
-#[derive(Serialize)]
-struct ChainList {
-    chain: String,
-    window: WindowRow,
-    faults: Vec<FaultRow>,
-    alarms: Vec<AlarmRow>,
-    review: Vec<String>,
-    cautions: Vec<&'static str>,
-}
-
-#[derive(Serialize)]
-struct WindowRow {
-    low: i64,
-    high: i64,
-    rails: (i64, i64),
-    noise_sigma_codes: f64,
-    k: f64,
-}
-
-#[derive(Serialize)]
-struct FaultRow {
-    stage: String,
-    fault: &'static str,
-    condition: &'static str,
-    codes: Option<(i64, i64)>,
-    verdict: &'static str,
-    /// `code < N` or `code > N`.
-    threshold: Option<String>,
-    reason: Option<String>,
-    action: String,
-}
-
-#[derive(Serialize)]
-struct AlarmRow {
-    side: String,
-    limit: String,
-    trip_at: String,
-    guard_band: String,
-    unit: String,
-    code: i64,
-    trip_code: i64,
-    masked_by: Vec<String>,
-}
-
-/// What the checklist says where a chain trips or alarms.
-const CAUTION: &str = "This checklist is a design aid, not a safety assessment: an alarm or trip that protects people or property is designed and verified under the applicable functional-safety standard, local codes and licensed practice.";
+/// The JSON document's version: a field's meaning never changes within
+/// one (2: review items are objects with a kind, limits were added).
+const SCHEMA_VERSION: u32 = 2;
 
 pub fn run(args: ChecklistArgs) -> u8 {
     if let Some(out) = &args.output {
@@ -99,14 +56,11 @@ pub fn run(args: ChecklistArgs) -> u8 {
             return EXIT_USAGE;
         }
     }
-    let checked = match check_one(&args.spec, Keep::Plans) {
-        Ok((c, _)) => c,
+    let (checked, config) = match check_one(&args.spec, Keep::Plans) {
+        Ok(c) => c,
         Err(status) => return status,
     };
-    // The fault and trip findings are what the checklist is about: they
-    // are listed, not a reason to refuse it.
-    let about_faults =
-        |code: Code| matches!(code, Code::R670 | Code::R671 | Code::R672 | Code::R673);
+    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
     let blocking = checked
         .findings
         .iter()
@@ -135,29 +89,11 @@ pub fn run(args: ChecklistArgs) -> u8 {
         );
         return EXIT_USAGE;
     }
-    let warnings: Vec<String> = checked
-        .findings
-        .iter()
-        .filter(|f| f.severity() == Severity::Warning || about_faults(f.code))
-        .map(|f| format!("{} {}", f.code.as_str(), f.message))
-        .collect();
+    let warnings = warnings(&checked.findings);
     let mut lists = Vec::new();
     for chain in chains {
-        let plan = match checked.plan(chain) {
-            Ok(p) => p,
-            Err(e) => {
-                errln!("catena: chain `{}`: {e}", chain.name);
-                return EXIT_FINDINGS;
-            }
-        };
-        // The check judged the faults already; a chain it did not judge
-        // (none so far) is judged here.
-        let listed = match checked.faults(chain) {
-            Some(kept) => Ok(kept.clone()),
-            None => faults::check(chain, &plan, None),
-        };
-        match listed {
-            Ok(c) => lists.push(chain_list(chain, &c.report, &c.maskings, &warnings)),
+        match chain_list(&checked, chain, margin, &warnings) {
+            Ok(list) => lists.push(list),
             Err(e) => {
                 errln!("catena: chain `{}`: {e}", chain.name);
                 return EXIT_FINDINGS;
@@ -186,88 +122,37 @@ pub fn run(args: ChecklistArgs) -> u8 {
     }
 }
 
+/// One chain's checklist from the check's plan; its envelopes are the
+/// kept analysis's when it holds them, else computed once here.
 fn chain_list(
+    checked: &crate::check::CheckedFile,
     chain: &Chain,
-    report: &FaultReport,
-    maskings: &[Masking],
+    margin: f64,
     warnings: &[String],
-) -> ChainList {
-    let w = &report.window;
-    let faults = report
-        .faults
-        .iter()
-        .map(|f| FaultRow {
-            stage: f.stage.clone(),
-            fault: f.fault.kind.name(),
-            condition: f.fault.kind.describe(),
-            codes: f.codes,
-            verdict: f.verdict.name(),
-            threshold: f.threshold.map(threshold_text),
-            reason: f.reason.clone(),
-            action: match f.verdict {
-                Verdict::Detectable => {
-                    "flag the reading invalid and hold the output safe while the code is past the threshold".to_string()
-                }
-                Verdict::Silent | Verdict::Undetermined => f
-                    .fix
-                    .clone()
-                    .unwrap_or_else(|| "not detectable from the code: detect it another way".to_string()),
-            },
-        })
-        .collect();
-    let (unit, _) = chain.difference_unit();
-    let m_unit = measurand_unit(chain);
-    let shown = |x: f64| format!("{} {m_unit}", trimmed(from_si(x, m_unit), 3));
-    let delta = |x: f64| trimmed(from_si(x, &unit), 3);
-    let alarms = maskings
-        .iter()
-        .map(|m| AlarmRow {
-            side: m.alarm.side.clone(),
-            limit: shown(m.alarm.at),
-            trip_at: shown(m.alarm.trip_at),
-            guard_band: delta(m.alarm.guard_band),
-            unit: unit.clone(),
-            code: m.alarm.code,
-            trip_code: m.alarm.trip_code,
-            masked_by: m
-                .faults
-                .iter()
-                .map(|&i| {
-                    let f = &report.faults[i];
-                    format!("{} {}", f.stage, f.fault.kind.name())
-                })
-                .collect(),
-        })
-        .collect();
-    ChainList {
-        chain: chain.name.clone(),
-        window: WindowRow {
-            low: w.low,
-            high: w.high,
-            rails: w.rails,
-            noise_sigma_codes: w.sigma_codes,
-            k: w.k,
-        },
-        faults,
-        alarms,
-        review: warnings.to_vec(),
-        cautions: if chain.is_protective() {
-            vec![CAUTION]
-        } else {
-            Vec::new()
-        },
-    }
+) -> Result<Checklist, String> {
+    let plan = checked.plan(chain).map_err(|e| e.to_string())?;
+    let kept = checked.analysis(chain).filter(|a| a.options.detail);
+    let found = match kept {
+        Some(a) => a.envelopes,
+        None => envelopes(
+            chain,
+            &plan,
+            crate::analysis::budget::Options::default().points,
+        )
+        .map_err(|e| e.to_string())?,
+    };
+    chain_checklist(
+        chain,
+        &plan,
+        &found,
+        margin,
+        warnings,
+        checked.faults(chain),
+    )
+    .ok_or_else(|| "its faults could not be evaluated".to_string())
 }
 
-fn measurand_unit(chain: &Chain) -> &str {
-    chain
-        .measurand
-        .as_ref()
-        .map(|m| m.unit.as_str())
-        .unwrap_or("")
-}
-
-fn markdown(list: &ChainList) -> String {
+fn markdown(list: &Checklist) -> String {
     let mut s = String::new();
     let w = &list.window;
     let _ = writeln!(s, "# Checklist: {}\n", list.chain);
@@ -300,30 +185,66 @@ fn markdown(list: &ChainList) -> String {
             .unwrap_or_default();
         let _ = writeln!(
             s,
-            "- [ ] `{}` {}: {codes}, **{}**{threshold}. {}",
+            "- [ ] `{}` {}: {codes}, **{}**{threshold}; action: {}.",
             f.stage, f.condition, f.verdict, f.action
         );
     }
-    if !list.alarms.is_empty() {
-        let _ = writeln!(s, "\n## Alarms\n");
-        for a in &list.alarms {
-            let masked = if a.masked_by.is_empty() {
-                "no undetected fault masks it".to_string()
-            } else {
-                format!("masked by: {}", a.masked_by.join(", "))
-            };
-            let _ = writeln!(
-                s,
-                "- [ ] {} alarm at {}: trip at {} (code {}, guard band {} {}); {masked}.",
-                a.side, a.limit, a.trip_at, a.trip_code, a.guard_band, a.unit
-            );
-        }
-    }
+    limits(&mut s, list);
+    alarms(&mut s, list);
     if !list.review.is_empty() {
         let _ = writeln!(s, "\n## Review\n");
         for r in &list.review {
-            let _ = writeln!(s, "- [ ] {r}");
+            let _ = writeln!(s, "- [ ] {}", r.text);
         }
     }
     s
+}
+
+fn limits(s: &mut String, list: &Checklist) {
+    if list.limits.is_empty() {
+        return;
+    }
+    let _ = writeln!(s, "\n## Limits\n");
+    for l in &list.limits {
+        let end = |x: Option<f64>| x.map_or("—".to_string(), |v| si(v, &l.unit));
+        let status = match l.status {
+            LimitStatus::Inside => "inside",
+            LimitStatus::UnderMargin => "**under the margin**",
+            LimitStatus::Beyond => "**beyond the limit**",
+        };
+        let _ = writeln!(
+            s,
+            "- [ ] `{}` {}: allowed {} .. {}, reaches {} .. {}, headroom {} ({status}); check it at both ends of the range at bring-up",
+            l.stage,
+            l.limit,
+            end(l.allowed[0]),
+            end(l.allowed[1]),
+            si(l.reach[0], &l.unit),
+            si(l.reach[1], &l.unit),
+            share(l.headroom)
+        );
+    }
+}
+
+fn alarms(s: &mut String, list: &Checklist) {
+    if list.alarms.is_empty() {
+        return;
+    }
+    let _ = writeln!(s, "\n## Alarms\n");
+    for a in &list.alarms {
+        let masked = if a.masked_by.is_empty() {
+            "no undetected fault masks it".to_string()
+        } else {
+            format!("masked by: {}", a.masked_by.join(", "))
+        };
+        let _ = writeln!(
+            s,
+            "- [ ] {} alarm at {}: trip at {} (code {}, guard band {}); {masked}.",
+            a.side,
+            position(a.at, &a.measurand_unit),
+            position(a.trip_at, &a.measurand_unit),
+            a.trip_code,
+            value(a.guard_band, &a.unit)
+        );
+    }
 }

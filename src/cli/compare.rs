@@ -131,35 +131,12 @@ fn table(candidates: &[Candidate]) -> (Vec<String>, Vec<Vec<String>>) {
     };
     for name in names {
         row(format!("{name} achieved (margin)"), &|o| {
-            o.requirements
-                .iter()
-                .find(|r| r.name == name)
-                .map_or("—".into(), |r| {
-                    format!(
-                        "{} {} ({} {}){}",
-                        num(r.achieved),
-                        r.unit,
-                        num(r.margin),
-                        r.unit,
-                        if r.pass { "" } else { " FAIL" }
-                    )
-                })
+            requirement_cell(o, name)
         });
     }
     for method in ["worst_case", "gum", "monte_carlo"] {
         row(format!("worst {}", method.replace('_', " ")), &|o| {
-            o.worst
-                .iter()
-                .find(|w| w.method == method)
-                .map_or("—".into(), |w| {
-                    format!(
-                        "{} {} at {} {}",
-                        num(w.value),
-                        o.unit,
-                        num(w.measurand),
-                        o.measurand_unit
-                    )
-                })
+            worst_cell(o, method)
         });
     }
     row("resolution".into(), &|o| {
@@ -188,6 +165,39 @@ fn table(candidates: &[Candidate]) -> (Vec<String>, Vec<Vec<String>>) {
     row("unit cost".into(), &unit_cost);
     row("power".into(), &power);
     (header, rows)
+}
+
+/// A requirement's achieved value and margin.
+fn requirement_cell(o: &Outcome, name: &str) -> String {
+    o.requirements
+        .iter()
+        .find(|r| r.name == name)
+        .map_or("—".into(), |r| {
+            format!(
+                "{} {} ({} {}){}",
+                num(r.achieved),
+                r.unit,
+                num(r.margin),
+                r.unit,
+                if r.pass { "" } else { " FAIL" }
+            )
+        })
+}
+
+/// A method's worst error and where it lies.
+fn worst_cell(o: &Outcome, method: &str) -> String {
+    o.worst
+        .iter()
+        .find(|w| w.method == method)
+        .map_or("—".into(), |w| {
+            format!(
+                "{} {} at {} {}",
+                num(w.value),
+                o.unit,
+                num(w.measurand),
+                o.measurand_unit
+            )
+        })
 }
 
 /// The faults firmware cannot tell from a reading: how many, and which.

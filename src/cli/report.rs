@@ -10,17 +10,21 @@ use clap::Args;
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
+use crate::analysis::checklist::{checklist, Checklist, Sources};
+use crate::analysis::faults::{self, FaultCheck};
+use crate::analysis::ranges::Envelope;
 use crate::analysis::ranges::DEFAULT_MARGIN;
-use crate::analysis::report::{analyse, Options, DEFAULT_SEED, DEFAULT_TRIALS};
+use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS};
 use crate::analysis::soundness;
 use crate::diagnostics::did_you_mean;
-use crate::diagnostics::{render_human, Findings, Severity};
+use crate::diagnostics::{render_human, Code, Findings, Severity};
 use crate::emit::report::{
     chain_report, failed_report, render, summary_row, BuildOptions, Report, ReportFormat,
     SCHEMA_VERSION,
 };
 use crate::emit::write_atomic;
-use crate::eval::lower;
+use crate::eval::Plan;
+use crate::model::Chain;
 
 #[derive(Args, Debug)]
 pub struct ReportArgs {
@@ -140,8 +144,9 @@ pub fn write_rendered(
 /// Checks and analyses one spec into its report; errors that leave no
 /// chain to analyse are shown and end it.
 pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
-    // The report's own analysis runs with its trials and detail.
-    let (checked, config) = check_one(path, crate::analysis::Keep::Nothing)?;
+    // The check keeps each chain's plan and analysis, with the report's
+    // detail; the report adds only what they lack (its Monte Carlo).
+    let (checked, config) = check_one(path, crate::analysis::Keep::Reports)?;
     let errors: Findings = {
         let mut f = Findings::new();
         for x in checked
@@ -175,16 +180,26 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
         },
     };
     let (options, build) = options(args, &config);
+    let warnings = warnings(&checked.findings);
     let reports: Vec<_> = chains
         .into_iter()
         .map(|chain| {
-            let analysed = lower(chain).and_then(|plan| {
-                let a = analyse(chain, &plan, &options)?;
+            let analysed = checked.plan(chain).and_then(|plan| {
+                let earlier = checked.analysis(chain);
+                let a = analyse_reusing(chain, &plan, &options, earlier, &|_, _| {})?;
                 Ok((plan, a))
             });
             match analysed {
                 Ok((plan, a)) if soundness::non_finite(chain, &a).is_empty() => {
-                    chain_report(chain, &plan, &a, &build)
+                    let list = chain_checklist(
+                        chain,
+                        &plan,
+                        &a.envelopes,
+                        build.margin,
+                        &warnings,
+                        checked.faults(chain),
+                    );
+                    chain_report(chain, &plan, &a, list, &build)
                 }
                 Ok(_) => failed_report(
                     chain,
@@ -212,6 +227,56 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
         summary: reports.iter().map(summary_row).collect(),
         chains: reports,
     })
+}
+
+/// Whether a finding is one of the fault and trip findings the checklist
+/// is about (listed there, never a reason to refuse it).
+pub fn about_faults(code: Code) -> bool {
+    matches!(code, Code::R670 | Code::R671 | Code::R672 | Code::R673)
+}
+
+/// Every warning the check raised on the file, and its fault and trip
+/// findings, as `CODE message`: the checklist's review items.
+pub fn warnings(findings: &Findings) -> Vec<String> {
+    findings
+        .iter()
+        .filter(|f| f.severity() == Severity::Warning || about_faults(f.code))
+        .map(|f| {
+            let level = match f.severity() {
+                Severity::Warning => "warning",
+                Severity::Error => "error",
+            };
+            format!("{level} {}: {}", f.code.as_str(), f.message)
+        })
+        .collect()
+}
+
+/// A chain's fault-and-limit checklist from its envelopes; None when its
+/// faults cannot be evaluated.
+/// `kept` is the fault judgement the check made, when it kept one.
+pub fn chain_checklist(
+    chain: &Chain,
+    plan: &Plan,
+    envelopes: &[Envelope],
+    margin: f64,
+    warnings: &[String],
+    kept: Option<&FaultCheck>,
+) -> Option<Checklist> {
+    let judged = match kept {
+        Some(k) => k.clone(),
+        None => faults::check(chain, plan, None).ok()?,
+    };
+    Some(checklist(
+        chain,
+        plan,
+        &Sources {
+            faults: &judged.report,
+            maskings: &judged.maskings,
+            envelopes,
+            margin,
+            warnings,
+        },
+    ))
 }
 
 /// The analyses' options and the builder's: flags first, then

@@ -2,7 +2,9 @@
 //! the nominal chain, or a linear, table or polynomial approximation of it
 //! (whose own error the budget counts), then the declared calibration.
 
-use super::plan::{Env, EvalError, NodeId, Senses, SlotId};
+use super::env::{Env, Senses};
+use super::error::EvalError;
+use super::ids::{NodeId, SlotId};
 use crate::model::typed::ConversionMethod;
 use crate::physics::solve::{bisect_at_most, brent};
 use crate::physics::thermocouple::{self, ThermocoupleType};

@@ -180,8 +180,9 @@ pub struct Fault {
     pub node: NodeId,
     pub kind: FaultKind,
     /// The burnout current, A, that the input reading an open sensor
-    /// sources into it (from the amplifier's or converter's `burnout`);
-    /// None when nothing gives the open input a path.
+    /// sources into it (from the amplifier's or converter's `burnout`; for
+    /// an input pin open, that stage's own); None when nothing gives the
+    /// open input a path.
     pub burnout: Option<f64>,
 }
 
@@ -214,10 +215,14 @@ impl Plan {
         let mut out = Vec::new();
         for i in (0..self.nodes.len()).filter(|&i| feeds[i]) {
             for &kind in self.nodes[i].faults() {
+                let burnout = match kind {
+                    FaultKind::InputOpen => self.burnout_of(i),
+                    _ => self.burnout_into(i),
+                };
                 out.push(Fault {
                     node: i,
                     kind,
-                    burnout: self.burnout_into(i),
+                    burnout,
                 });
             }
         }
@@ -243,6 +248,16 @@ impl Plan {
             Node::Adc(a) if a.input == i => a.burnout,
             _ => None,
         })
+    }
+
+    /// The burnout current amplifier or converter `i` sources from its own
+    /// input.
+    pub fn burnout_of(&self, i: NodeId) -> Option<f64> {
+        match &self.nodes[i] {
+            Node::Amplifier(a) => a.burnout,
+            Node::Adc(a) => a.burnout,
+            _ => None,
+        }
     }
 
     /// The current source an open element would starve: a series string

@@ -9,7 +9,10 @@
 
 mod convert;
 mod element;
+mod env;
+mod error;
 pub mod fault;
+mod ids;
 mod lower;
 pub mod node;
 mod plan;

@@ -1,12 +1,8 @@
-use std::fmt;
-
+pub use super::env::{Env, Senses};
+pub use super::error::EvalError;
+pub use super::ids::{NodeId, SlotId};
 pub use super::node::Node;
 use crate::physics::thermocouple::ThermocoupleType;
-
-/// Index into the parameter values.
-pub type SlotId = usize;
-/// Index into the plan's nodes (and the signals of one evaluation).
-pub type NodeId = usize;
 
 /// One numeric parameter: its id (`stage.parameter`), nominal value (SI)
 /// and what the datasheet allows around it, for the analyses.
@@ -61,14 +57,6 @@ impl SourceKind {
             SourceKind::Exact => "exact",
         }
     }
-}
-
-/// Where a sensor is: at the measured point, or at the cold junction
-/// (the electronics' ambient).
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Senses {
-    Measurand,
-    ColdJunction,
 }
 
 /// A drift coefficient applied over (ambient − reference).
@@ -129,72 +117,6 @@ impl Signal {
             Signal::Reading(x) => (x, "SI"),
         }
     }
-}
-
-/// The conditions of one evaluation, SI.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Env {
-    pub measurand: f64,
-    /// The electronics' temperature, K; drifts act over ambient − reference.
-    pub ambient: f64,
-    /// The thermocouple cold junction's temperature, K.
-    pub cold_junction: f64,
-}
-
-#[derive(Clone, Debug, PartialEq)]
-pub enum EvalError {
-    /// A sensor model driven outside the range it is defined over.
-    OutOfRange {
-        stage: String,
-        what: String,
-        low: f64,
-        high: f64,
-        value: f64,
-        celsius: bool,
-    },
-    /// A value that is not a finite number, or a division by zero.
-    Numeric { stage: String, what: String },
-    /// The firmware conversion cannot be built (a flat or folded chain).
-    NotInvertible { stage: String, what: String },
-}
-
-impl fmt::Display for EvalError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let show = |x: f64, celsius: bool| {
-            if celsius {
-                format!("{} degC", trim(x - crate::units::ZERO_CELSIUS_K))
-            } else {
-                trim(x)
-            }
-        };
-        match self {
-            EvalError::OutOfRange {
-                stage,
-                what,
-                low,
-                high,
-                value,
-                celsius,
-            } => write!(
-                f,
-                "`{stage}` is driven outside its valid range: {what} {} is outside {} .. {}",
-                show(*value, *celsius),
-                show(*low, *celsius),
-                show(*high, *celsius)
-            ),
-            EvalError::Numeric { stage, what } => {
-                write!(f, "`{stage}` evaluates to no finite value: {what}")
-            }
-            EvalError::NotInvertible { stage, what } => {
-                write!(f, "`{stage}` cannot convert: {what}")
-            }
-        }
-    }
-}
-
-fn trim(x: f64) -> String {
-    let s = format!("{x:.6}");
-    s.trim_end_matches('0').trim_end_matches('.').to_string()
 }
 
 /// A chain ready to evaluate.

@@ -10,6 +10,7 @@ use petgraph::graph::DiGraph;
 
 use super::chain::{Connection, Stage};
 use super::ports::{self, InputSpec, Port, SignalKind};
+use super::schema;
 use super::value::ParamValue;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
@@ -494,7 +495,7 @@ fn check_reference_twice(wiring: &Wiring, i: usize, findings: &mut Findings) {
     }
     let (Some(wired), Some(stated)) = (
         wiring.edges_into(i, Port::Ref).first().copied(),
-        stage.params.iter().find(|p| p.name == "reference"),
+        stage.params.iter().find(|p| p.name == schema::REFERENCE),
     ) else {
         return;
     };
@@ -770,7 +771,7 @@ fn not_one_ending(
 fn cold_junctions(stages: &[Stage]) -> HashSet<&str> {
     stages
         .iter()
-        .filter_map(|s| match s.param("cold_junction") {
+        .filter_map(|s| match s.param(schema::COLD_JUNCTION) {
             Some(ParamValue::StageRef { name, .. }) => Some(name.as_str()),
             _ => None,
         })
@@ -780,7 +781,11 @@ fn cold_junctions(stages: &[Stage]) -> HashSet<&str> {
 /// A thermocouple's `cold_junction <stage>` must name a sensor.
 pub fn check_references(stages: &[Stage], findings: &mut Findings) {
     for stage in stages {
-        let Some(p) = stage.params.iter().find(|p| p.name == "cold_junction") else {
+        let Some(p) = stage
+            .params
+            .iter()
+            .find(|p| p.name == schema::COLD_JUNCTION)
+        else {
             continue;
         };
         let ParamValue::StageRef { name, span } = &p.value else {

@@ -119,16 +119,7 @@ impl Reader<'_> {
             }
             Shape::Limit(expect) => Ok(ParamValue::Limit(self.limit(expect, shape)?)),
             Shape::Range(expect) => self.range(expect, false, shape),
-            Shape::RangeOrPoint(expect) => match self.peek() {
-                Some(Value::Range(_)) => self.range(expect, true, shape),
-                _ => {
-                    let (m, _) = self.measure(expect, false, false, shape)?;
-                    Ok(ParamValue::Range {
-                        low: m.nominal,
-                        high: m.nominal,
-                    })
-                }
-            },
+            Shape::RangeOrPoint(expect) => self.range_or_point(expect, shape),
             Shape::Words(words) => Ok(ParamValue::Word(self.word(words, shape)?)),
             Shape::ThermocoupleType => {
                 if !self.peek_word("type") {
@@ -140,49 +131,9 @@ impl Reader<'_> {
                 ))
             }
             Shape::Count { min, max } => Ok(ParamValue::Count(self.count(min, max, shape)?)),
-            Shape::Numbers(n) => {
-                let mut numbers = Vec::with_capacity(n);
-                while let Some(Value::Quantity(q)) = self.peek().cloned() {
-                    if q.unit.is_some() {
-                        break;
-                    }
-                    self.next();
-                    numbers.push(q.number);
-                }
-                if numbers.len() != n {
-                    return Err(self.missing(&format!("exactly {n} plain numbers"), shape));
-                }
-                Ok(ParamValue::Numbers(numbers))
-            }
-            Shape::TolerancedNumbers(n) => {
-                let mut measures = Vec::with_capacity(n);
-                while let Some(Value::Quantity(q)) = self.peek().cloned() {
-                    if q.unit.is_some() || measures.len() == n {
-                        break;
-                    }
-                    measures.push(self.measure(Expect::Ratio, true, false, shape)?.0);
-                }
-                if measures.len() != n || matches!(self.peek(), Some(Value::Quantity(_))) {
-                    return Err(self.missing(
-                        &format!("exactly {n} plain numbers, each with an optional tolerance"),
-                        shape,
-                    ));
-                }
-                Ok(ParamValue::Measures(measures))
-            }
-            Shape::At { value, at } => {
-                let (value, value_dim) = self.measure(value, true, false, shape)?;
-                if !self.peek_word("at") {
-                    return Err(self.missing("`at` and the point it is stated at", shape));
-                }
-                self.next();
-                let point = self.quantity(at, true, shape)?;
-                Ok(ParamValue::At {
-                    value,
-                    value_dim,
-                    at: point,
-                })
-            }
+            Shape::Numbers(n) => self.numbers(n, shape),
+            Shape::TolerancedNumbers(n) => self.toleranced_numbers(n, shape),
+            Shape::At { value, at } => self.value_at(value, at, shape),
             Shape::Method => {
                 let method = self.word(&["exact", "linear", "table", "poly"], shape)?;
                 let points = match method.as_str() {
@@ -192,44 +143,7 @@ impl Reader<'_> {
                 };
                 Ok(ParamValue::Method { method, points })
             }
-            Shape::Calibrate => {
-                let method = self.word(&["offset", "two_point"], shape)?;
-                let wanted = if method == "offset" { 1 } else { 2 };
-                if !self.peek_word("at") {
-                    return Err(self.missing("`at` and the calibration points", shape));
-                }
-                self.next();
-                let mut points = Vec::new();
-                loop {
-                    points.push(self.quantity(Expect::Measurand, true, shape)?);
-                    if matches!(self.peek(), Some(Value::Comma(_))) {
-                        self.next();
-                    } else {
-                        break;
-                    }
-                }
-                if points.len() != wanted {
-                    return Err(self.missing(
-                        &format!(
-                            "{wanted} calibration point{}",
-                            if wanted == 1 { "" } else { "s" }
-                        ),
-                        shape,
-                    ));
-                }
-                let uncertainty = match self.peek() {
-                    Some(Value::Tolerance(_)) => {
-                        let t = self.share_or_limit(Expect::Measurand, shape)?;
-                        Some(self.fixed_share(t, "a calibration's uncertainty")?)
-                    }
-                    _ => None,
-                };
-                Ok(ParamValue::Calibrate {
-                    method,
-                    points,
-                    uncertainty,
-                })
-            }
+            Shape::Calibrate => self.calibrate(shape),
             Shape::LimitOrStage(expect) => match self.peek().cloned() {
                 Some(Value::Word(w)) => {
                     self.next();
@@ -248,6 +162,107 @@ impl Reader<'_> {
                 _ => Err(self.missing("the name of a converter stage", shape)),
             },
         }
+    }
+
+    /// `lo .. hi`, or one value standing for the point `v .. v`.
+    fn range_or_point(&mut self, expect: Expect, shape: Shape) -> Checked<ParamValue> {
+        if let Some(Value::Range(_)) = self.peek() {
+            return self.range(expect, true, shape);
+        }
+        let (m, _) = self.measure(expect, false, false, shape)?;
+        Ok(ParamValue::Range {
+            low: m.nominal,
+            high: m.nominal,
+        })
+    }
+
+    /// Exactly `n` plain numbers.
+    fn numbers(&mut self, n: usize, shape: Shape) -> Checked<ParamValue> {
+        let mut numbers = Vec::with_capacity(n);
+        while let Some(Value::Quantity(q)) = self.peek().cloned() {
+            if q.unit.is_some() {
+                break;
+            }
+            self.next();
+            numbers.push(q.number);
+        }
+        if numbers.len() != n {
+            return Err(self.missing(&format!("exactly {n} plain numbers"), shape));
+        }
+        Ok(ParamValue::Numbers(numbers))
+    }
+
+    /// Exactly `n` plain numbers, each with its optional tolerance.
+    fn toleranced_numbers(&mut self, n: usize, shape: Shape) -> Checked<ParamValue> {
+        let mut measures = Vec::with_capacity(n);
+        while let Some(Value::Quantity(q)) = self.peek().cloned() {
+            if q.unit.is_some() || measures.len() == n {
+                break;
+            }
+            measures.push(self.measure(Expect::Ratio, true, false, shape)?.0);
+        }
+        if measures.len() != n || matches!(self.peek(), Some(Value::Quantity(_))) {
+            return Err(self.missing(
+                &format!("exactly {n} plain numbers, each with an optional tolerance"),
+                shape,
+            ));
+        }
+        Ok(ParamValue::Measures(measures))
+    }
+
+    /// `value at point`.
+    fn value_at(&mut self, value: Expect, at: Expect, shape: Shape) -> Checked<ParamValue> {
+        let (value, value_dim) = self.measure(value, true, false, shape)?;
+        if !self.peek_word("at") {
+            return Err(self.missing("`at` and the point it is stated at", shape));
+        }
+        self.next();
+        let point = self.quantity(at, true, shape)?;
+        Ok(ParamValue::At {
+            value,
+            value_dim,
+            at: point,
+        })
+    }
+
+    /// `offset at T [± u]` or `two_point at T1, T2 [± u]`.
+    fn calibrate(&mut self, shape: Shape) -> Checked<ParamValue> {
+        let method = self.word(&["offset", "two_point"], shape)?;
+        let wanted = if method == "offset" { 1 } else { 2 };
+        if !self.peek_word("at") {
+            return Err(self.missing("`at` and the calibration points", shape));
+        }
+        self.next();
+        let mut points = Vec::new();
+        loop {
+            points.push(self.quantity(Expect::Measurand, true, shape)?);
+            if matches!(self.peek(), Some(Value::Comma(_))) {
+                self.next();
+            } else {
+                break;
+            }
+        }
+        if points.len() != wanted {
+            return Err(self.missing(
+                &format!(
+                    "{wanted} calibration point{}",
+                    if wanted == 1 { "" } else { "s" }
+                ),
+                shape,
+            ));
+        }
+        let uncertainty = match self.peek() {
+            Some(Value::Tolerance(_)) => {
+                let t = self.share_or_limit(Expect::Measurand, shape)?;
+                Some(self.fixed_share(t, "a calibration's uncertainty")?)
+            }
+            _ => None,
+        };
+        Ok(ParamValue::Calibrate {
+            method,
+            points,
+            uncertainty,
+        })
     }
 
     /// `lo .. hi`; with `point_ok` equal ends are a point, otherwise the

@@ -16,6 +16,7 @@ pub mod track;
 pub mod typed;
 pub mod value;
 
+use std::collections::HashMap;
 use std::path::Path;
 use std::sync::Arc;
 
@@ -29,6 +30,7 @@ pub use requirement::{AccuracyMethod, RequirementKind};
 pub use settings::DEFAULT_REFERENCE_K;
 
 use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile};
+use crate::syntax::ast::{ChainDecl, Ident, StageDecl, UseDecl};
 use crate::syntax::Ast;
 
 /// What a spec leaves unsaid and a configuration file supplies: the
@@ -69,66 +71,10 @@ pub fn resolve_with(
     defaults: &Defaults,
 ) -> (Vec<Chain>, Findings) {
     let mut findings = Findings::new();
-    let mut library: Vec<parts::Part> = Vec::new();
-    // A part missing from a library that failed to load is not a finding
-    // of its own: the library's finding says why.
-    let mut library_broken = false;
-    for u in &ast.uses {
-        let path = base.join(&u.path.value);
-        if let Some(root) = root {
-            if !confined(&path, root) {
-                findings.push(
-                    Finding::new(Code::L407, file, format!("`{}` is outside the spec's repository", u.path.value))
-                        .label(u.path.span, "outside")
-                        // No absolute path in the message: findings must read
-                        // the same in every checkout.
-                        .help("keep parts files inside the spec's repository (the folder that holds `.git`, or the spec's own folder outside one), or run with `--allow-outside-paths` if this file is meant"),
-                );
-                library_broken = true;
-                continue;
-            }
-        }
-        let shown = shown_path(file.name(), &u.path.value);
-        let loaded = parts.load(&path, &shown);
-        {
-            // Every spec that uses a broken library reports it; the run
-            // keeps one copy of each finding in a parts file.
-            for f in loaded.findings.iter() {
-                let mut f = f.clone();
-                if f.labels.is_empty() {
-                    // A file that could not be read has nothing to point at:
-                    // point at the `use` line instead.
-                    f = Finding {
-                        file: Arc::clone(file),
-                        ..f
-                    }
-                    .label(u.path.span, "used here");
-                }
-                findings.push(f);
-            }
-        }
-        library_broken |= loaded.findings.has_errors();
-        library.extend(loaded.parts.iter().cloned());
-    }
-    // The configured libraries come after the spec's own, so a part the
-    // spec's `use` names first wins.
-    for (path, shown) in &defaults.parts {
-        let loaded = parts.load(path, shown);
-        for f in loaded.findings.iter() {
-            findings.push(f.clone());
-        }
-        library_broken |= loaded.findings.has_errors();
-        library.extend(loaded.parts.iter().cloned());
-    }
-    // Parts by name (the first of a repeated name, as a scan finds it).
-    let mut part_index: std::collections::HashMap<&str, usize> = Default::default();
-    for (k, part) in library.iter().enumerate() {
-        part_index.entry(part.name.as_str()).or_insert(k);
-    }
-
+    let library = Library::load(file, ast, base, root, parts, defaults, &mut findings);
     let mut chains: Vec<Chain> = Vec::new();
     // Names seen so far, to their index: one lookup each, not a rescan.
-    let mut chain_names: std::collections::HashMap<String, usize> = Default::default();
+    let mut chain_names: HashMap<String, usize> = Default::default();
     for decl in &ast.chains {
         if let Some(first) = chain_names.get(&decl.name.name).map(|&k| &chains[k]) {
             findings.push(
@@ -142,111 +88,243 @@ pub fn resolve_with(
                 .help("give each chain of a file its own name"),
             );
         }
-        let settings = settings::resolve(file, decl, &mut findings);
-        let mut stages: Vec<Stage> = Vec::new();
-        let mut stage_names: std::collections::HashMap<String, usize> = Default::default();
-        for s in &decl.stages {
-            if let Some(first) = stage_names.get(&s.name.name).map(|&k| &stages[k]) {
-                findings.push(
-                    Finding::new(
-                        Code::M201,
-                        file,
-                        format!("two stages are named `{}`", s.name.name),
-                    )
-                    .label(s.name.span, "second stage")
-                    .label(first.name_span, "first stage")
-                    .help("stage names are unique within a chain; rename one"),
-                );
-                continue;
-            }
-            let mut part_failed = false;
-            let part = s.part.as_ref().and_then(|p| {
-                let found = part_index.get(p.name.as_str()).map(|&k| &library[k]);
-                if found.is_none() {
-                    part_failed = true;
-                    if !library_broken {
-                        findings.push(unknown_part(file, ast, &library, p));
-                    }
-                } else if let Some(part) = found.filter(|l| l.kind != s.kind) {
-                    findings.push(
-                        Finding::new(
-                            Code::L404,
-                            file,
-                            format!(
-                                "part `{}` is {} {}, not {} {}",
-                                p.name,
-                                article(part.kind.keyword()),
-                                part.kind.keyword(),
-                                article(s.kind.keyword()),
-                                s.kind.keyword()
-                            ),
-                        )
-                        .label(
-                            p.span,
-                            format!(
-                                "{} {} part",
-                                article(part.kind.keyword()),
-                                part.kind.keyword()
-                            ),
-                        )
-                        .label(
-                            s.kind_span,
-                            format!("{} {} stage", article(s.kind.keyword()), s.kind.keyword()),
-                        )
-                        .help(format!(
-                            "use {} {} part here, or change the part's `kind`",
-                            article(s.kind.keyword()),
-                            s.kind.keyword()
-                        )),
-                    );
-                    part_failed = true;
-                    return None;
-                }
-                part_failed |= found.is_some_and(|p| p.rejected);
-                found
-            });
-            stage_names.insert(s.name.name.clone(), stages.len());
-            stages.push(stage::resolve(
-                file,
-                s,
-                part,
-                part_failed,
-                settings.measurand.as_ref(),
-                &mut findings,
-            ));
-        }
-        graph::check_references(&stages, &mut findings);
-        let connections = graph::connect(file, &mut stages, &decl.edges, &mut findings);
-        channels::resolve(file, &mut stages, &connections, &mut findings);
-        let reference = settings
-            .reference
-            .or(defaults.reference)
-            .unwrap_or(DEFAULT_REFERENCE_K);
-        let groups = track::resolve(file, &decl.tracks, &stages, &mut findings);
+        let chain = resolve_chain(file, ast, decl, &library, defaults, &mut findings);
         chain_names
             .entry(decl.name.name.clone())
             .or_insert(chains.len());
-        chains.push(Chain {
-            name: decl.name.name.clone(),
-            name_span: decl.name.span,
-            label: decl.label.as_ref().map(|l| l.value.clone()),
-            title: settings.title,
-            file: Arc::clone(file),
-            measurand: settings.measurand,
-            ambient: settings
-                .ambient
-                .or(defaults.ambient)
-                .unwrap_or((reference, reference)),
-            reference,
-            requirements: settings.requirements,
-            alarms: settings.alarms,
-            protects: settings.protects,
-            stages,
-            connections,
-            groups,
-        });
+        chains.push(chain);
     }
     (chains, findings)
+}
+
+/// The parts every chain of a file may name: its `use` files', then the
+/// configured ones.
+struct Library {
+    parts: Vec<parts::Part>,
+    /// Parts by name (the first of a repeated name, as a scan finds it).
+    index: HashMap<String, usize>,
+    /// A part missing from a library that failed to load is not a
+    /// finding of its own: the library's finding says why.
+    broken: bool,
+}
+
+impl Library {
+    fn load(
+        file: &Arc<SourceFile>,
+        ast: &Ast,
+        base: &Path,
+        root: Option<&Path>,
+        cache: &mut PartsCache,
+        defaults: &Defaults,
+        findings: &mut Findings,
+    ) -> Library {
+        let mut library = Library {
+            parts: Vec::new(),
+            index: HashMap::new(),
+            broken: false,
+        };
+        for u in &ast.uses {
+            library.load_used(file, u, base, root, cache, findings);
+        }
+        // The configured libraries come after the spec's own, so a part the
+        // spec's `use` names first wins.
+        for (path, shown) in &defaults.parts {
+            let loaded = cache.load(path, shown);
+            for f in loaded.findings.iter() {
+                findings.push(f.clone());
+            }
+            library.add(&loaded);
+        }
+        for (k, part) in library.parts.iter().enumerate() {
+            library.index.entry(part.name.clone()).or_insert(k);
+        }
+        library
+    }
+
+    /// One `use` line's file, confined to `root` when given.
+    fn load_used(
+        &mut self,
+        file: &Arc<SourceFile>,
+        u: &UseDecl,
+        base: &Path,
+        root: Option<&Path>,
+        cache: &mut PartsCache,
+        findings: &mut Findings,
+    ) {
+        let path = base.join(&u.path.value);
+        if root.is_some_and(|root| !confined(&path, root)) {
+            findings.push(
+                Finding::new(Code::L407, file, format!("`{}` is outside the spec's repository", u.path.value))
+                    .label(u.path.span, "outside")
+                    // No absolute path in the message: findings must read
+                    // the same in every checkout.
+                    .help("keep parts files inside the spec's repository (the folder that holds `.git`, or the spec's own folder outside one), or run with `--allow-outside-paths` if this file is meant"),
+            );
+            self.broken = true;
+            return;
+        }
+        let shown = shown_path(file.name(), &u.path.value);
+        let loaded = cache.load(&path, &shown);
+        // Every spec that uses a broken library reports it; the run
+        // keeps one copy of each finding in a parts file.
+        for f in loaded.findings.iter() {
+            let mut f = f.clone();
+            if f.labels.is_empty() {
+                // A file that could not be read has nothing to point at:
+                // point at the `use` line instead.
+                f = Finding {
+                    file: Arc::clone(file),
+                    ..f
+                }
+                .label(u.path.span, "used here");
+            }
+            findings.push(f);
+        }
+        self.add(&loaded);
+    }
+
+    fn add(&mut self, loaded: &parts::Loaded) {
+        self.broken |= loaded.findings.has_errors();
+        self.parts.extend(loaded.parts.iter().cloned());
+    }
+
+    fn get(&self, name: &str) -> Option<&parts::Part> {
+        self.index.get(name).map(|&k| &self.parts[k])
+    }
+}
+
+fn resolve_chain(
+    file: &Arc<SourceFile>,
+    ast: &Ast,
+    decl: &ChainDecl,
+    library: &Library,
+    defaults: &Defaults,
+    findings: &mut Findings,
+) -> Chain {
+    let settings = settings::resolve(file, decl, findings);
+    let mut stages = resolve_stages(
+        file,
+        ast,
+        decl,
+        library,
+        settings.measurand.as_ref(),
+        findings,
+    );
+    graph::check_references(&stages, findings);
+    let connections = graph::connect(file, &mut stages, &decl.edges, findings);
+    channels::resolve(file, &mut stages, &connections, findings);
+    let reference = settings
+        .reference
+        .or(defaults.reference)
+        .unwrap_or(DEFAULT_REFERENCE_K);
+    let groups = track::resolve(file, &decl.tracks, &stages, findings);
+    Chain {
+        name: decl.name.name.clone(),
+        name_span: decl.name.span,
+        label: decl.label.as_ref().map(|l| l.value.clone()),
+        title: settings.title,
+        file: Arc::clone(file),
+        measurand: settings.measurand,
+        ambient: settings
+            .ambient
+            .or(defaults.ambient)
+            .unwrap_or((reference, reference)),
+        reference,
+        requirements: settings.requirements,
+        alarms: settings.alarms,
+        protects: settings.protects,
+        stages,
+        connections,
+        groups,
+    }
+}
+
+/// Each stage of a chain with its part; a repeated name is M201 and
+/// keeps only the first.
+fn resolve_stages(
+    file: &Arc<SourceFile>,
+    ast: &Ast,
+    decl: &ChainDecl,
+    library: &Library,
+    measurand: Option<&Measurand>,
+    findings: &mut Findings,
+) -> Vec<Stage> {
+    let mut stages: Vec<Stage> = Vec::new();
+    let mut stage_names: HashMap<String, usize> = Default::default();
+    for s in &decl.stages {
+        if let Some(first) = stage_names.get(&s.name.name).map(|&k| &stages[k]) {
+            findings.push(
+                Finding::new(
+                    Code::M201,
+                    file,
+                    format!("two stages are named `{}`", s.name.name),
+                )
+                .label(s.name.span, "second stage")
+                .label(first.name_span, "first stage")
+                .help("stage names are unique within a chain; rename one"),
+            );
+            continue;
+        }
+        let (part, part_failed) = stage_part(file, ast, library, s, findings);
+        stage_names.insert(s.name.name.clone(), stages.len());
+        stages.push(stage::resolve(
+            file,
+            s,
+            part,
+            part_failed,
+            measurand,
+            findings,
+        ));
+    }
+    stages
+}
+
+/// The part a stage names, and whether naming it failed (unknown, of
+/// another kind, or rejected itself).
+fn stage_part<'a>(
+    file: &Arc<SourceFile>,
+    ast: &Ast,
+    library: &'a Library,
+    s: &StageDecl,
+    findings: &mut Findings,
+) -> (Option<&'a parts::Part>, bool) {
+    let Some(p) = s.part.as_ref() else {
+        return (None, false);
+    };
+    match library.get(p.name.as_str()) {
+        None => {
+            if !library.broken {
+                findings.push(unknown_part(file, ast, &library.parts, p));
+            }
+            (None, true)
+        }
+        Some(part) if part.kind != s.kind => {
+            findings.push(wrong_kind(file, p, part, s));
+            (None, true)
+        }
+        Some(part) => (Some(part), part.rejected),
+    }
+}
+
+/// L404: a part of another kind than the stage naming it.
+fn wrong_kind(file: &Arc<SourceFile>, p: &Ident, part: &parts::Part, s: &StageDecl) -> Finding {
+    let (theirs, ours) = (part.kind.keyword(), s.kind.keyword());
+    Finding::new(
+        Code::L404,
+        file,
+        format!(
+            "part `{}` is {} {theirs}, not {} {ours}",
+            p.name,
+            article(theirs),
+            article(ours),
+        ),
+    )
+    .label(p.span, format!("{} {theirs} part", article(theirs)))
+    .label(s.kind_span, format!("{} {ours} stage", article(ours)))
+    .help(format!(
+        "use {} {ours} part here, or change the part's `kind`",
+        article(ours)
+    ))
 }
 
 /// Whether `path` (resolved through symbolic links where it exists) lies

@@ -18,7 +18,7 @@ use std::sync::Arc;
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{Ident, Param, StageKind};
 
-use super::parts_positions::positions;
+use super::parts_positions::{positions, KeyValue, PartPositions};
 
 /// Flow nesting (`[[[...` or `{{{...`) deeper than this is refused before
 /// the YAML parser sees it: the parser's own recursion limit bites only
@@ -164,31 +164,8 @@ fn load_file(path: &Path, shown: &str) -> Loaded {
 }
 
 fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
-    let doc: serde_yaml::Value = match serde_yaml::from_str(file.text()) {
-        Ok(v) => v,
-        Err(e) => {
-            let at = e
-                .location()
-                .map(|l| l.index())
-                .unwrap_or(0)
-                .min(file.text().len());
-            let message = e.to_string();
-            let message = message
-                .split(" at line ")
-                .next()
-                .unwrap_or(&message)
-                .to_string();
-            loaded.findings.push(
-                Finding::new(
-                    Code::L402,
-                    file,
-                    format!("parts file is not valid YAML: {}", message.to_lowercase()),
-                )
-                .label(Span::new(at, at), "here")
-                .help("a parts file is a YAML mapping `parts:` of part names to parameter maps"),
-            );
-            return;
-        }
+    let Some(doc) = parse_document(file, &mut loaded.findings) else {
+        return;
     };
     let Some(parts) = doc.get("parts").and_then(|p| p.as_mapping()) else {
         loaded.findings.push(
@@ -212,136 +189,207 @@ fn parse_library(file: &Arc<SourceFile>, loaded: &mut Loaded) {
             continue;
         };
         let placed = positions.parts.get(name).cloned().unwrap_or_default();
-        let name_span = placed.name;
-        if let serde_yaml::Value::Tagged(t) = body {
-            loaded
-                .findings
-                .push(tagged(file, name_span, name, &t.tag.to_string()));
-            continue;
+        if let Some(part) = read_part(file, name, body, &placed, &mut loaded.findings) {
+            loaded.parts.push(part);
         }
-        let Some(body) = body.as_mapping() else {
-            loaded.findings.push(
-                Finding::new(
-                    Code::L402,
-                    file,
-                    format!("part `{name}` is not a mapping of parameters"),
-                )
-                .label(name_span, "expected parameter lines under this name")
-                .help("indent `kind:` and the parameters under the part's name"),
-            );
+    }
+}
+
+/// The file as YAML, or L402 where the parser stopped.
+fn parse_document(file: &Arc<SourceFile>, findings: &mut Findings) -> Option<serde_yaml::Value> {
+    let e = match serde_yaml::from_str(file.text()) {
+        Ok(v) => return Some(v),
+        Err(e) => e,
+    };
+    let at = e
+        .location()
+        .map(|l| l.index())
+        .unwrap_or(0)
+        .min(file.text().len());
+    let message = e.to_string();
+    let message = message
+        .split(" at line ")
+        .next()
+        .unwrap_or(&message)
+        .to_string();
+    findings.push(
+        Finding::new(
+            Code::L402,
+            file,
+            format!("parts file is not valid YAML: {}", message.to_lowercase()),
+        )
+        .label(Span::new(at, at), "here")
+        .help("a parts file is a YAML mapping `parts:` of part names to parameter maps"),
+    );
+    None
+}
+
+/// One part: a mapping with its `kind` and parameter lines; None when it
+/// is not one (reported).
+fn read_part(
+    file: &Arc<SourceFile>,
+    name: &str,
+    body: &serde_yaml::Value,
+    placed: &PartPositions,
+    findings: &mut Findings,
+) -> Option<Part> {
+    let name_span = placed.name;
+    if let serde_yaml::Value::Tagged(t) = body {
+        findings.push(tagged(file, name_span, name, &t.tag.to_string()));
+        return None;
+    }
+    let Some(body) = body.as_mapping() else {
+        findings.push(
+            Finding::new(
+                Code::L402,
+                file,
+                format!("part `{name}` is not a mapping of parameters"),
+            )
+            .label(name_span, "expected parameter lines under this name")
+            .help("indent `kind:` and the parameters under the part's name"),
+        );
+        return None;
+    };
+    let kind = part_kind(file, name, body, placed, findings)?;
+    let mut params = Vec::new();
+    let mut rejected = false;
+    let mut odd_keys = placed.odd_keys.iter();
+    for (key, value) in body {
+        let Some(key) = key.as_str() else {
+            let at = odd_keys.next().copied().unwrap_or(name_span);
+            let finding = not_a_string_key(file, key, "parameter name");
+            findings.push(finding.label(at, "not a word"));
+            rejected = true;
             continue;
         };
-        let kind = body.get("kind").and_then(|k| k.as_str());
-        let Some(kind) = kind.and_then(StageKind::from_keyword) else {
-            let span = placed.keys.get("kind").map(|k| k.value);
-            let kinds = StageKind::ALL
-                .iter()
-                .map(|k| format!("`{}`", k.keyword()))
-                .collect::<Vec<_>>()
-                .join(", ");
-            loaded.findings.push(
-                Finding::new(
-                    Code::L402,
-                    file,
-                    format!("part `{name}` has no valid `kind`"),
-                )
-                .label(
-                    span.filter(|_| kind.is_some()).unwrap_or(name_span),
-                    "`kind` missing or unknown",
-                )
-                .help(format!("add `kind:` with one of {kinds}")),
-            );
+        if key == "kind" || key == "description" {
             continue;
-        };
-        let mut params = Vec::new();
-        let mut rejected = false;
-        let mut odd_keys = placed.odd_keys.iter();
-        for (key, value) in body {
-            let Some(key) = key.as_str() else {
-                let at = odd_keys.next().copied().unwrap_or(name_span);
-                let finding = not_a_string_key(file, key, "parameter name");
-                loaded.findings.push(finding.label(at, "not a word"));
-                rejected = true;
-                continue;
-            };
-            if key == "kind" || key == "description" {
-                continue;
-            }
-            let at = placed.keys.get(key).copied().unwrap_or_default();
-            let key_span = at.key;
-            if let Some(tag_at) = at.tag {
-                let tag = file.text()[tag_at..]
-                    .split_whitespace()
-                    .next()
-                    .unwrap_or("!");
-                let tag_span = Span::new(tag_at, tag_at + tag.len());
-                loaded.findings.push(tagged(file, tag_span, key, tag));
-                rejected = true;
-                continue;
-            }
-            let text = match value {
-                serde_yaml::Value::Null => String::new(),
-                serde_yaml::Value::String(s) => s.clone(),
-                serde_yaml::Value::Number(n) => {
-                    let written = file.text().get(at.value.start..at.value.end).unwrap_or("");
-                    if yaml_only_number(written) {
-                        loaded
-                            .findings
-                            .push(yaml_number(file, at.value, written, n));
-                        rejected = true;
-                        continue;
-                    }
-                    n.to_string()
-                }
-                serde_yaml::Value::Bool(b) => b.to_string(),
-                serde_yaml::Value::Tagged(t) => {
-                    loaded
-                        .findings
-                        .push(tagged(file, at.value, key, &t.tag.to_string()));
-                    rejected = true;
-                    continue;
-                }
-                _ => {
-                    loaded.findings.push(
-                        Finding::new(
-                            Code::L405,
-                            file,
-                            format!("`{key}` of part `{name}` is not a single value"),
-                        )
-                        .label(key_span, "a list or mapping")
-                        .help(format!(
-                            "write the value on one line, as in a spec: `{key}: 4 ± 1 %`"
-                        )),
-                    );
-                    rejected = true;
-                    continue;
-                }
-            };
-            let offset = at.text_at;
-            let (values, found) = crate::syntax::parse_values(file, key, &text, offset);
-            let failed = found.has_errors();
-            loaded.findings.extend(found);
-            if failed {
-                rejected = true;
-                continue;
-            }
-            params.push(Param {
-                name: Ident {
-                    name: key.to_string(),
-                    span: key_span,
-                },
-                values,
-                span: key_span.to(at.value),
-            });
         }
-        loaded.parts.push(Part {
-            name: name.to_string(),
-            kind,
-            params,
-            file: Arc::clone(file),
-            name_span,
-            rejected,
-        });
+        let at = placed.keys.get(key).copied().unwrap_or_default();
+        match read_param(file, name, key, value, &at, findings) {
+            Some(param) => params.push(param),
+            None => rejected = true,
+        }
+    }
+    Some(Part {
+        name: name.to_string(),
+        kind,
+        params,
+        file: Arc::clone(file),
+        name_span,
+        rejected,
+    })
+}
+
+/// The part's `kind`, or L402 where it is missing or unknown.
+fn part_kind(
+    file: &Arc<SourceFile>,
+    name: &str,
+    body: &serde_yaml::Mapping,
+    placed: &PartPositions,
+    findings: &mut Findings,
+) -> Option<StageKind> {
+    let kind = body.get("kind").and_then(|k| k.as_str());
+    if let Some(kind) = kind.and_then(StageKind::from_keyword) {
+        return Some(kind);
+    }
+    let span = placed.keys.get("kind").map(|k| k.value);
+    let kinds = StageKind::ALL
+        .iter()
+        .map(|k| format!("`{}`", k.keyword()))
+        .collect::<Vec<_>>()
+        .join(", ");
+    findings.push(
+        Finding::new(
+            Code::L402,
+            file,
+            format!("part `{name}` has no valid `kind`"),
+        )
+        .label(
+            span.filter(|_| kind.is_some()).unwrap_or(placed.name),
+            "`kind` missing or unknown",
+        )
+        .help(format!("add `kind:` with one of {kinds}")),
+    );
+    None
+}
+
+/// One parameter line of a part, parsed as a spec's; None when it is
+/// rejected (reported).
+fn read_param(
+    file: &Arc<SourceFile>,
+    name: &str,
+    key: &str,
+    value: &serde_yaml::Value,
+    at: &KeyValue,
+    findings: &mut Findings,
+) -> Option<Param> {
+    if let Some(tag_at) = at.tag {
+        let tag = file.text()[tag_at..]
+            .split_whitespace()
+            .next()
+            .unwrap_or("!");
+        let tag_span = Span::new(tag_at, tag_at + tag.len());
+        findings.push(tagged(file, tag_span, key, tag));
+        return None;
+    }
+    let text = value_text(file, name, key, value, at, findings)?;
+    let (values, found) = crate::syntax::parse_values(file, key, &text, at.text_at);
+    let failed = found.has_errors();
+    findings.extend(found);
+    if failed {
+        return None;
+    }
+    Some(Param {
+        name: Ident {
+            name: key.to_string(),
+            span: at.key,
+        },
+        values,
+        span: at.key.to(at.value),
+    })
+}
+
+/// A YAML value as the text a spec would write after the name; None for
+/// one that is not a single value (reported).
+fn value_text(
+    file: &Arc<SourceFile>,
+    name: &str,
+    key: &str,
+    value: &serde_yaml::Value,
+    at: &KeyValue,
+    findings: &mut Findings,
+) -> Option<String> {
+    match value {
+        serde_yaml::Value::Null => Some(String::new()),
+        serde_yaml::Value::String(s) => Some(s.clone()),
+        serde_yaml::Value::Number(n) => {
+            let written = file.text().get(at.value.start..at.value.end).unwrap_or("");
+            if yaml_only_number(written) {
+                findings.push(yaml_number(file, at.value, written, n));
+                return None;
+            }
+            Some(n.to_string())
+        }
+        serde_yaml::Value::Bool(b) => Some(b.to_string()),
+        serde_yaml::Value::Tagged(t) => {
+            findings.push(tagged(file, at.value, key, &t.tag.to_string()));
+            None
+        }
+        _ => {
+            findings.push(
+                Finding::new(
+                    Code::L405,
+                    file,
+                    format!("`{key}` of part `{name}` is not a single value"),
+                )
+                .label(at.key, "a list or mapping")
+                .help(format!(
+                    "write the value on one line, as in a spec: `{key}: 4 ± 1 %`"
+                )),
+            );
+            None
+        }
     }
 }
 

@@ -147,7 +147,7 @@ pub fn inputs(
             input(
                 Port::Ref,
                 REFERENCES,
-                param("vref").is_none() && param("channel_of").is_none(),
+                param(schema::VREF).is_none() && param(schema::CHANNEL_OF).is_none(),
             ),
         ],
         Role::Convert => vec![
@@ -159,7 +159,7 @@ pub fn inputs(
 
 /// A transducer rated in mV/V (a plain ratio) needs its excitation.
 fn transducer_is_ratiometric(param: &dyn Fn(&str) -> Option<ParamValue>) -> bool {
-    matches!(param("sensitivity"), Some(ParamValue::At { value_dim, .. }) if value_dim == Dim::NONE)
+    matches!(param(schema::SENSITIVITY), Some(ParamValue::At { value_dim, .. }) if value_dim == Dim::NONE)
 }
 
 /// What a stage's output carries. A resistive sensor driven by a current

@@ -223,6 +223,26 @@ const COST: ParamSpec = p("cost", plain(Expect::Dim(Dim::NONE))).non_negative();
 /// What the stage draws from its supplies, W.
 const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
 
+/// Lines the port rules and graph checks look up before a typed model
+/// exists (a stage with a rejected line has none), for the line's
+/// position: each name is written here once, for its row and its reader.
+pub const COLD_JUNCTION: &str = "cold_junction";
+/// An amplifier's stated reference voltage.
+pub const REFERENCE: &str = "reference";
+/// A converter's stated reference voltage.
+pub const VREF: &str = "vref";
+/// A transducer's rated output.
+pub const SENSITIVITY: &str = "sensitivity";
+/// A converter's channel: it names the converter whose part it shares.
+pub const CHANNEL_OF: &str = "channel_of";
+
+/// Required lines another line makes unnecessary, as (given, waived): a
+/// converter's channel states no part of its own.
+pub const WAIVED: &[(&str, &str)] = &[(CHANNEL_OF, "bits")];
+
+/// The thermocouple model's word.
+pub const THERMOCOUPLE: &str = "thermocouple";
+
 pub const RTD_CURVES: &[&str] = &[
     "pt100", "pt500", "pt1000", "ni100", "ni120", "ni1000", "cu10", "cu100", "custom",
 ];
@@ -288,13 +308,13 @@ static MODELS: &[ModelSpec] = &[
     },
     ModelSpec {
         kind: StageKind::Sensor,
-        model: Some("thermocouple"),
+        model: Some(THERMOCOUPLE),
         role: Role::Floating,
         model_shape: Shape::ThermocoupleType,
         params: &[
             p("class", Shape::Count { min: 1, max: 3 }),
             p("tolerance", Shape::Limit(Expect::TempDiff)),
-            p("cold_junction", Shape::LimitOrStage(Expect::TempDiff)),
+            p(COLD_JUNCTION, Shape::LimitOrStage(Expect::TempDiff)),
             LEAD,
             TIME_CONSTANT,
             p("bias_voltage", measure(VOLT)),
@@ -405,7 +425,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p(
-                "sensitivity",
+                SENSITIVITY,
                 Shape::At {
                     value: Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE]),
                     at: Expect::Measurand,
@@ -513,7 +533,7 @@ static MODELS: &[ModelSpec] = &[
             p("input", Shape::Range(VOLT)),
             p("output", Shape::Range(VOLT)),
             p("bandwidth", plain(HERTZ)).positive(),
-            p("reference", measure(VOLT)),
+            p(REFERENCE, measure(VOLT)),
             COST,
             POWER,
         ],
@@ -549,7 +569,7 @@ static MODELS: &[ModelSpec] = &[
             p("bits", Shape::Count { min: 1, max: 32 }).required(),
             p("input", Shape::Words(&["single", "differential"])),
             p("polarity", Shape::Words(&["unipolar", "bipolar"])),
-            p("vref", measure(VOLT)).positive(),
+            p(VREF, measure(VOLT)).positive(),
             p("pga", toleranced(Expect::Ratio)).positive(),
             p("offset", Shape::Limit(VOLTAGE_OR_CODES)),
             p("gain_error", Shape::Limit(RATIO_OR_CODES)),
@@ -565,26 +585,26 @@ static MODELS: &[ModelSpec] = &[
             p("acquisition_time", plain(SECOND)).positive(),
             COST,
             POWER,
-            p("channel_of", Shape::StageName),
+            p(CHANNEL_OF, Shape::StageName),
         ],
         // A channel shares its converter's part: only its gain is its own.
         exclusive: &[
-            ("channel_of", "bits"),
-            ("channel_of", "input"),
-            ("channel_of", "polarity"),
-            ("channel_of", "vref"),
-            ("channel_of", "offset"),
-            ("channel_of", "gain_error"),
-            ("channel_of", "inl"),
-            ("channel_of", "noise"),
-            ("channel_of", "rate"),
-            ("channel_of", "notch"),
-            ("channel_of", "ref_range"),
-            ("channel_of", "rails"),
-            ("channel_of", "burnout"),
-            ("channel_of", "sampling_capacitance"),
-            ("channel_of", "sampling_resistance"),
-            ("channel_of", "acquisition_time"),
+            (CHANNEL_OF, "bits"),
+            (CHANNEL_OF, "input"),
+            (CHANNEL_OF, "polarity"),
+            (CHANNEL_OF, "vref"),
+            (CHANNEL_OF, "offset"),
+            (CHANNEL_OF, "gain_error"),
+            (CHANNEL_OF, "inl"),
+            (CHANNEL_OF, "noise"),
+            (CHANNEL_OF, "rate"),
+            (CHANNEL_OF, "notch"),
+            (CHANNEL_OF, "ref_range"),
+            (CHANNEL_OF, "rails"),
+            (CHANNEL_OF, "burnout"),
+            (CHANNEL_OF, "sampling_capacitance"),
+            (CHANNEL_OF, "sampling_resistance"),
+            (CHANNEL_OF, "acquisition_time"),
         ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
@@ -614,6 +634,51 @@ static MODELS: &[ModelSpec] = &[
         read: read_convert,
     },
 ];
+
+/// The value a tracking group acts on in a typed model, with the name of
+/// the line that states it: a fixed resistor's value, a bridge's
+/// completion resistors, an excitation's output.
+pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
+    match model {
+        StageModel::Resistor(r) => Some(("resistor", &r.r)),
+        StageModel::Bridge(b) => Some(("r", b.r.as_ref()?)),
+        StageModel::Excitation(e) => Some((
+            match e.source {
+                Source::Current { .. } => "current",
+                Source::Voltage { .. } => "voltage",
+            },
+            &e.value,
+        )),
+        _ => None,
+    }
+}
+
+/// Lines a model needs beyond its table's, by the word of its model
+/// line: a custom RTD curve has no table values to fall back on.
+pub fn required_for_word(model: &ModelSpec, word: &str) -> &'static [&'static str] {
+    match (model.model, word) {
+        (Some("rtd"), "custom") => &["r0", "coefficients"],
+        _ => &[],
+    }
+}
+
+/// A line the model line's word leaves unused, and how to use it.
+pub struct Unused {
+    pub line: &'static str,
+    pub help: &'static str,
+}
+
+/// A standard RTD curve has its own coefficients, so stated ones would
+/// go unused.
+pub fn unused_for_word(model: &ModelSpec, word: &str) -> Option<Unused> {
+    match (model.model, word) {
+        (Some("rtd"), w) if w != "custom" => Some(Unused {
+            line: "coefficients",
+            help: "write `rtd custom` with `r0` to use these coefficients (a characterised probe), or remove the line",
+        }),
+        _ => None,
+    }
+}
 
 /// The models of a kind.
 pub fn models(kind: StageKind) -> impl Iterator<Item = &'static ModelSpec> {
@@ -804,9 +869,9 @@ fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
 
 fn read_thermocouple(r: &Reader<'_>) -> Option<StageModel> {
     let ty = r
-        .choice("thermocouple", ThermocoupleType::from_letter)
+        .choice(THERMOCOUPLE, ThermocoupleType::from_letter)
         .ok()??;
-    let cold_junction = match r.get("cold_junction") {
+    let cold_junction = match r.get(COLD_JUNCTION) {
         Some(ParamValue::Limit(t)) => Some(ColdJunction::Error(t.clone())),
         Some(ParamValue::StageRef { name, .. }) => Some(ColdJunction::Stage(name.clone())),
         _ => None,
@@ -878,7 +943,7 @@ fn read_strain_gauge(r: &Reader<'_>) -> Option<StageModel> {
 }
 
 fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
-    let (sensitivity, sensitivity_dim, full_scale) = r.at("sensitivity")?;
+    let (sensitivity, sensitivity_dim, full_scale) = r.at(SENSITIVITY)?;
     let linearity = r
         .choice("linearity", |w| match w {
             "terminal" => Some(LinearityLine::Terminal),
@@ -946,7 +1011,7 @@ fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
         input: r.range("input"),
         output: r.range("output"),
         bandwidth: r.value("bandwidth"),
-        reference: r.measure("reference"),
+        reference: r.measure(REFERENCE),
     }))
 }
 
@@ -992,7 +1057,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         }),
         _ => None,
     };
-    let channel_of = match r.get("channel_of") {
+    let channel_of = match r.get(CHANNEL_OF) {
         Some(ParamValue::StageRef { name, .. }) => Some(name.clone()),
         _ => None,
     };
@@ -1010,7 +1075,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
             AdcInput::Differential => Polarity::Bipolar,
             AdcInput::Single => Polarity::Unipolar,
         }),
-        vref: r.measure("vref"),
+        vref: r.measure(VREF),
         pga: r.measure("pga"),
         offset: r.limit("offset"),
         gain_error: r.limit("gain_error"),

@@ -38,92 +38,16 @@ pub struct Settings {
 
 pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Findings) -> Settings {
     let mut out = Settings::default();
-    let mut seen: Vec<(SettingKind, Option<&'static str>, Span)> = Vec::new();
+    let mut seen: Vec<Seen> = Vec::new();
     // The measurand first: other settings are in its unit.
     let mut ordered: Vec<&Setting> = chain.settings.iter().collect();
     ordered.sort_by_key(|s| s.kind != SettingKind::Measurand);
     for setting in ordered {
-        let sub = match setting.kind {
-            SettingKind::Require => first_word(&setting.values)
-                .and_then(RequirementKind::parse)
-                .map(RequirementKind::word),
-            _ => None,
-        };
-        let repeatable = setting.kind == SettingKind::Alarm
-            || (setting.kind == SettingKind::Require && sub.is_none());
-        if !repeatable {
-            if let Some((_, _, first)) = seen
-                .iter()
-                .find(|(k, s, _)| *k == setting.kind && *s == sub)
-            {
-                let what = match sub {
-                    Some(s) => format!("require {s}"),
-                    None => setting.kind.keyword().to_string(),
-                };
-                findings.push(
-                    Finding::new(Code::P312, file, format!("`{what}` is given twice"))
-                        .label(setting.span, "given again here")
-                        .label(*first, "first given here")
-                        .help("keep one line; a spec states each fact once"),
-                );
-                continue;
-            }
-            seen.push((setting.kind, sub, setting.span));
+        if let Some(again) = given_again(file, setting, &mut seen) {
+            findings.push(again);
+            continue;
         }
-        let known = out.measurand.clone();
-        let cx = Context {
-            file,
-            measurand: known.as_ref().map(|m| m.dim),
-            range: known.as_ref(),
-        };
-        let result = match setting.kind {
-            SettingKind::Title => match setting.values.as_slice() {
-                [Value::Text(t)] => {
-                    out.title = Some(t.value.clone());
-                    Ok(())
-                }
-                _ => Err(malformed(
-                    file,
-                    setting,
-                    "a string, such as `title \"Cold store return air\"`",
-                )),
-            },
-            SettingKind::Measurand => measurand(file, setting).map(|m| out.measurand = Some(m)),
-            SettingKind::Ambient => interpret(
-                "ambient",
-                Shape::RangeOrPoint(Expect::Temperature),
-                Plausible::Positive,
-                &setting.values,
-                setting.span,
-                &cx,
-            )
-            .map(|v| {
-                if let ParamValue::Range { low, high } = v {
-                    out.ambient = Some((low, high));
-                }
-            }),
-            SettingKind::Reference => interpret(
-                "reference",
-                Shape::Measure {
-                    expect: Expect::Temperature,
-                    tol: false,
-                    drift: false,
-                },
-                Plausible::Positive,
-                &setting.values,
-                setting.span,
-                &cx,
-            )
-            .map(|v| {
-                if let ParamValue::Measure(m) = v {
-                    out.reference = Some(m.nominal);
-                }
-            }),
-            SettingKind::Require => requirement(setting, &cx).map(|r| out.requirements.push(r)),
-            SettingKind::Alarm => alarm(setting, &cx).map(|a| out.alarms.push(a)),
-            SettingKind::Protects => protects(setting, file).map(|p| out.protects = Some(p)),
-        };
-        if let Err(f) = result {
+        if let Err(f) = out.read(file, setting) {
             findings.push(*f);
         }
     }
@@ -143,6 +67,108 @@ pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Finding
         );
     }
     out
+}
+
+/// A setting already given: its kind, its requirement kind, and where.
+type Seen = (SettingKind, Option<&'static str>, Span);
+
+/// P312 for a setting stated once per chain and given again; alarms and
+/// unknown requirements may repeat.
+fn given_again(file: &Arc<SourceFile>, setting: &Setting, seen: &mut Vec<Seen>) -> Option<Finding> {
+    let sub = match setting.kind {
+        SettingKind::Require => first_word(&setting.values)
+            .and_then(RequirementKind::parse)
+            .map(RequirementKind::word),
+        _ => None,
+    };
+    let repeatable = setting.kind == SettingKind::Alarm
+        || (setting.kind == SettingKind::Require && sub.is_none());
+    if repeatable {
+        return None;
+    }
+    if let Some((_, _, first)) = seen
+        .iter()
+        .find(|(k, s, _)| *k == setting.kind && *s == sub)
+    {
+        let what = match sub {
+            Some(s) => format!("require {s}"),
+            None => setting.kind.keyword().to_string(),
+        };
+        return Some(
+            Finding::new(Code::P312, file, format!("`{what}` is given twice"))
+                .label(setting.span, "given again here")
+                .label(*first, "first given here")
+                .help("keep one line; a spec states each fact once"),
+        );
+    }
+    seen.push((setting.kind, sub, setting.span));
+    None
+}
+
+impl Settings {
+    /// One setting line into its field, in the measurand's unit where it
+    /// is known.
+    fn read(&mut self, file: &Arc<SourceFile>, setting: &Setting) -> Result<(), Box<Finding>> {
+        let known = self.measurand.clone();
+        let cx = Context {
+            file,
+            measurand: known.as_ref().map(|m| m.dim),
+            range: known.as_ref(),
+        };
+        match setting.kind {
+            SettingKind::Title => match setting.values.as_slice() {
+                [Value::Text(t)] => {
+                    self.title = Some(t.value.clone());
+                    Ok(())
+                }
+                _ => Err(malformed(
+                    file,
+                    setting,
+                    "a string, such as `title \"Cold store return air\"`",
+                )),
+            },
+            SettingKind::Measurand => measurand(file, setting).map(|m| self.measurand = Some(m)),
+            SettingKind::Ambient => ambient(setting, &cx).map(|a| self.ambient = a),
+            SettingKind::Reference => reference(setting, &cx).map(|r| self.reference = r),
+            SettingKind::Require => requirement(setting, &cx).map(|r| self.requirements.push(r)),
+            SettingKind::Alarm => alarm(setting, &cx).map(|a| self.alarms.push(a)),
+            SettingKind::Protects => protects(setting, file).map(|p| self.protects = Some(p)),
+        }
+    }
+}
+
+fn ambient(setting: &Setting, cx: &Context<'_>) -> Result<Option<(f64, f64)>, Box<Finding>> {
+    let value = interpret(
+        "ambient",
+        Shape::RangeOrPoint(Expect::Temperature),
+        Plausible::Positive,
+        &setting.values,
+        setting.span,
+        cx,
+    )?;
+    Ok(match value {
+        ParamValue::Range { low, high } => Some((low, high)),
+        _ => None,
+    })
+}
+
+fn reference(setting: &Setting, cx: &Context<'_>) -> Result<Option<f64>, Box<Finding>> {
+    let value = interpret(
+        "reference",
+        Shape::Measure {
+            expect: Expect::Temperature,
+            tol: false,
+            drift: false,
+        },
+        Plausible::Positive,
+        &setting.values,
+        setting.span,
+        cx,
+    )?;
+    Ok(match value {
+        ParamValue::Measure(m) => Some(m.nominal),
+        _ => None,
+    })
 }
 
 fn first_word(values: &[Value]) -> Option<&str> {
@@ -235,68 +261,11 @@ fn measurand(file: &Arc<SourceFile>, setting: &Setting) -> Result<Measurand, Box
 
 fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<Finding>> {
     let file = cx.file;
-    let Some(Value::Word(kind)) = setting.values.first() else {
-        return Err(malformed(
-            file,
-            setting,
-            "a requirement, such as `require accuracy ± 0.3 K`",
-        ));
-    };
-    let Some(mut requirement) = RequirementKind::parse(&kind.name) else {
-        let near = did_you_mean(
-            &kind.name,
-            RequirementKind::ALL.map(|k| k.word()).into_iter(),
-        );
-        return Err(Box::new(
-            Finding::new(Code::P310, file, format!("`{}` is not a requirement", kind.name))
-                .label(kind.span, "unknown requirement")
-                .help(match near {
-                    Some(n) => format!("did you mean `{n}`? requirements: `accuracy`, `resolution`, `response`, `rejection`"),
-                    None => "requirements: `accuracy`, `resolution`, `response`, `rejection`".to_string(),
-                }),
-        ));
-    };
-    let name = requirement.word();
-    let mut values = &setting.values[1..];
-    // The last word is the method, unless it ends `of span` or `of reading`.
-    let ends_share = matches!(
-        values,
-        [.., Value::Word(of), Value::Word(_)] if of.name == "of"
-    );
-    if let (RequirementKind::Accuracy(_), false) = (requirement, ends_share) {
-        if let Some(Value::Word(w)) = values.last() {
-            let Some(method) = AccuracyMethod::parse(&w.name) else {
-                let near = did_you_mean(&w.name, AccuracyMethod::ALL.map(|m| m.word()).into_iter());
-                return Err(Box::new(
-                    Finding::new(Code::P304, file, format!("`{}` is not an accuracy method", w.name))
-                        .label(w.span, "unknown method")
-                        .help(match near {
-                            Some(n) => format!("did you mean `{n}`? methods: `worst_case`, `gum` (default), `monte_carlo`"),
-                            None => "methods: `worst_case`, `gum` (default), `monte_carlo`".to_string(),
-                        }),
-                ));
-            };
-            requirement = RequirementKind::Accuracy(Some(method));
-            values = &values[..values.len() - 1];
-        }
-    }
-    let shape = match requirement {
-        RequirementKind::Accuracy(_) | RequirementKind::Resolution => {
-            Shape::Limit(Expect::Measurand)
-        }
-        RequirementKind::Response => Shape::Measure {
-            expect: Expect::Dim(Dim::TIME),
-            tol: false,
-            drift: false,
-        },
-        RequirementKind::Rejection => Shape::At {
-            value: Expect::Decibel,
-            at: Expect::Dim(Dim::FREQUENCY),
-        },
-    };
+    let requirement = requirement_kind(file, setting)?;
+    let (requirement, values) = with_method(file, requirement, &setting.values[1..])?;
     let value = interpret(
-        &format!("require {name}"),
-        shape,
+        &format!("require {}", requirement.word()),
+        requirement_shape(requirement),
         Plausible::Positive,
         values,
         setting.span,
@@ -367,6 +336,91 @@ fn protects(setting: &Setting, file: &Arc<SourceFile>) -> Result<Protects, Box<F
         return Err(malformed(file, setting, example));
     }
     Ok(out)
+}
+
+/// The requirement a `require` line names (P306, P310 otherwise).
+fn requirement_kind(
+    file: &Arc<SourceFile>,
+    setting: &Setting,
+) -> Result<RequirementKind, Box<Finding>> {
+    let Some(Value::Word(kind)) = setting.values.first() else {
+        return Err(malformed(
+            file,
+            setting,
+            "a requirement, such as `require accuracy ± 0.3 K`",
+        ));
+    };
+    RequirementKind::parse(&kind.name).ok_or_else(|| {
+        let near = did_you_mean(
+            &kind.name,
+            RequirementKind::ALL.map(|k| k.word()).into_iter(),
+        );
+        Box::new(
+            Finding::new(Code::P310, file, format!("`{}` is not a requirement", kind.name))
+                .label(kind.span, "unknown requirement")
+                .help(match near {
+                    Some(n) => format!("did you mean `{n}`? requirements: `accuracy`, `resolution`, `response`, `rejection`"),
+                    None => "requirements: `accuracy`, `resolution`, `response`, `rejection`".to_string(),
+                }),
+        )
+    })
+}
+
+/// An accuracy's method, the line's last word unless it ends `of span`
+/// or `of reading` (P304 for an unknown one), and the values before it.
+fn with_method<'v>(
+    file: &Arc<SourceFile>,
+    requirement: RequirementKind,
+    values: &'v [Value],
+) -> Result<(RequirementKind, &'v [Value]), Box<Finding>> {
+    let ends_share = matches!(
+        values,
+        [.., Value::Word(of), Value::Word(_)] if of.name == "of"
+    );
+    let (RequirementKind::Accuracy(_), false, Some(Value::Word(w))) =
+        (requirement, ends_share, values.last())
+    else {
+        return Ok((requirement, values));
+    };
+    let Some(method) = AccuracyMethod::parse(&w.name) else {
+        let near = did_you_mean(&w.name, AccuracyMethod::ALL.map(|m| m.word()).into_iter());
+        return Err(Box::new(
+            Finding::new(
+                Code::P304,
+                file,
+                format!("`{}` is not an accuracy method", w.name),
+            )
+            .label(w.span, "unknown method")
+            .help(match near {
+                Some(n) => format!(
+                    "did you mean `{n}`? methods: `worst_case`, `gum` (default), `monte_carlo`"
+                ),
+                None => "methods: `worst_case`, `gum` (default), `monte_carlo`".to_string(),
+            }),
+        ));
+    };
+    Ok((
+        RequirementKind::Accuracy(Some(method)),
+        &values[..values.len() - 1],
+    ))
+}
+
+/// What a requirement's value is written as.
+fn requirement_shape(requirement: RequirementKind) -> Shape {
+    match requirement {
+        RequirementKind::Accuracy(_) | RequirementKind::Resolution => {
+            Shape::Limit(Expect::Measurand)
+        }
+        RequirementKind::Response => Shape::Measure {
+            expect: Expect::Dim(Dim::TIME),
+            tol: false,
+            drift: false,
+        },
+        RequirementKind::Rejection => Shape::At {
+            value: Expect::Decibel,
+            at: Expect::Dim(Dim::FREQUENCY),
+        },
+    }
 }
 
 fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {

@@ -230,7 +230,7 @@ fn find_model(
 fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Finding {
     let name = &line.param.name.name;
     if decl.kind == crate::syntax::ast::StageKind::Sensor && name.starts_with("bias_") {
-        if let Some(m) = model.model.filter(|m| *m != "thermocouple") {
+        if let Some(m) = model.model.filter(|m| *m != schema::THERMOCOUPLE) {
             return needless_bias(line, decl, m);
         }
     }
@@ -286,12 +286,11 @@ fn check_presence(
     lines: &[Line<'_>],
     findings: &mut Findings,
 ) {
-    let has = |n: &str| lines.iter().any(|l| l.param.name.name == n);
-    let span_of = |n: &str| {
-        lines
-            .iter()
-            .find(|l| l.param.name.name == n && l.file == file)
-            .map(|l| l.param.name.span)
+    let presence = Presence {
+        file,
+        decl,
+        model,
+        lines,
     };
     let mut required: Vec<&str> = model
         .params
@@ -299,44 +298,83 @@ fn check_presence(
         .filter(|p| p.required)
         .map(|p| p.name)
         .collect();
-    // A custom curve has no table values to fall back on; a standard one
-    // has its own coefficients, so stated ones would go unused.
-    let curve = lines
-        .iter()
-        .find(|l| l.param.name.name == "rtd")
-        .and_then(|l| match l.param.values.first() {
-            Some(crate::syntax::ast::Value::Word(w)) => Some(w.name.as_str()),
-            _ => None,
-        });
-    if model.model == Some("rtd") && curve == Some("custom") {
-        required.extend(["r0", "coefficients"]);
+    if let Some(word) = presence.model_word() {
+        required.extend(schema::required_for_word(model, word));
+        presence.unused_for_word(word, findings);
     }
-    // A converter's channel states no part of its own.
-    if has("channel_of") {
-        required.retain(|n| *n != "bits");
+    required.retain(|n| {
+        !schema::WAIVED
+            .iter()
+            .any(|(given, waived)| waived == n && presence.has(given))
+    });
+    presence.required(&required, findings);
+    presence.one_of(findings);
+    presence.together(findings);
+    presence.exclusive(findings);
+}
+
+/// A stage's lines against what its model needs together, apart, or at
+/// all.
+struct Presence<'a> {
+    file: &'a Arc<SourceFile>,
+    decl: &'a StageDecl,
+    model: &'a ModelSpec,
+    lines: &'a [Line<'a>],
+}
+
+impl Presence<'_> {
+    fn has(&self, name: &str) -> bool {
+        self.lines.iter().any(|l| l.param.name.name == name)
     }
-    if let (Some(curve), Some(line)) = (
-        curve.filter(|c| *c != "custom" && model.model == Some("rtd")),
-        lines.iter().find(|l| l.param.name.name == "coefficients"),
-    ) {
+
+    /// Where the spec itself (not a part) writes a line.
+    fn span_of(&self, name: &str) -> Option<crate::diagnostics::Span> {
+        self.lines
+            .iter()
+            .find(|l| l.param.name.name == name && l.file == self.file)
+            .map(|l| l.param.name.span)
+    }
+
+    /// The word of the model line (`custom` in `rtd custom`).
+    fn model_word(&self) -> Option<&str> {
+        let model = self.model.model?;
+        self.lines
+            .iter()
+            .find(|l| l.param.name.name == model)
+            .and_then(|l| match l.param.values.first() {
+                Some(crate::syntax::ast::Value::Word(w)) => Some(w.name.as_str()),
+                _ => None,
+            })
+    }
+
+    /// P335: a line the model line's word makes unused (coefficients
+    /// beside a standard curve, which has its own).
+    fn unused_for_word(&self, word: &str, findings: &mut Findings) {
+        let Some(unused) = schema::unused_for_word(self.model, word) else {
+            return;
+        };
+        let Some(line) = self.lines.iter().find(|l| l.param.name.name == unused.line) else {
+            return;
+        };
         findings.push(
             Finding::new(
                 Code::P335,
                 line.file,
                 format!(
-                    "`{}` uses the standard `{curve}` curve, so its `coefficients` are not used",
-                    decl.name.name
+                    "`{}` uses the standard `{word}` curve, so its `{}` are not used",
+                    self.decl.name.name, unused.line
                 ),
             )
             .label(line.param.name.span, "not used")
-            .help("write `rtd custom` with `r0` to use these coefficients (a characterised probe), or remove the line"),
+            .help(unused.help),
         );
     }
-    // A missing parameter is often one written with a typo (P301).
-    let misspelt = |wanted: &[&str], findings: &Findings| {
-        lines
+
+    /// A missing parameter is often one written with a typo (P301).
+    fn misspelt(&self, wanted: &[&str], findings: &Findings) -> Option<Cause> {
+        self.lines
             .iter()
-            .filter(|l| !model.names().any(|n| n == l.param.name.name))
+            .filter(|l| !self.model.names().any(|n| n == l.param.name.name))
             .find(|l| did_you_mean(&l.param.name.name, wanted.iter().copied()).is_some())
             .and_then(|l| {
                 findings.iter().find(|f| {
@@ -346,29 +384,37 @@ fn check_presence(
                 })
             })
             .map(Cause::of)
-    };
-    for name in required {
-        if !has(name) {
-            let cause = misspelt(&[name], findings);
-            let example = model
-                .param(name)
-                .map(|p| super::interpret::usage_of(p.name, p.shape))
-                .unwrap_or_default();
+    }
+
+    fn example(&self, name: &str) -> String {
+        self.model
+            .param(name)
+            .map(|p| super::interpret::usage_of(p.name, p.shape))
+            .unwrap_or_default()
+    }
+
+    fn required(&self, required: &[&str], findings: &mut Findings) {
+        for &name in required.iter().filter(|n| !self.has(n)) {
+            let cause = self.misspelt(&[name], findings);
             findings.push(
                 Finding::new(
                     Code::P302,
-                    file,
-                    format!("`{}` needs `{name}`", decl.name.name),
+                    self.file,
+                    format!("`{}` needs `{name}`", self.decl.name.name),
                 )
-                .label(decl.name.span, format!("`{name}` is missing"))
-                .help(format!("add a line such as `{example}`"))
+                .label(self.decl.name.span, format!("`{name}` is missing"))
+                .help(format!("add a line such as `{}`", self.example(name)))
                 .caused_by(cause),
             );
         }
     }
-    for group in model.one_of {
-        if !group.iter().any(|n| has(n)) {
-            let cause = misspelt(group, findings);
+
+    fn one_of(&self, findings: &mut Findings) {
+        for group in self.model.one_of {
+            if group.iter().any(|n| self.has(n)) {
+                continue;
+            }
+            let cause = self.misspelt(group, findings);
             let list = group
                 .iter()
                 .map(|n| format!("`{n}`"))
@@ -377,60 +423,67 @@ fn check_presence(
             findings.push(
                 Finding::new(
                     Code::P302,
-                    file,
-                    format!("`{}` needs {list}", decl.name.name),
+                    self.file,
+                    format!("`{}` needs {list}", self.decl.name.name),
                 )
-                .label(decl.name.span, "missing")
+                .label(self.decl.name.span, "missing")
                 .help(format!("add {list}"))
                 .caused_by(cause),
             );
         }
     }
-    for group in model.together {
-        let Some(given) = group.iter().find(|n| has(n)) else {
-            continue;
-        };
-        for name in group.iter().filter(|n| !has(n)) {
-            let example = model
-                .param(name)
-                .map(|p| super::interpret::usage_of(p.name, p.shape))
-                .unwrap_or_default();
-            let mut f = Finding::new(
-                Code::P302,
-                file,
-                format!("`{}` gives `{given}`, so it needs `{name}`", decl.name.name),
-            );
-            f = match span_of(given) {
-                Some(s) => f.label(s, format!("needs `{name}`")),
-                None => f.label(decl.name.span, format!("`{name}` is missing")),
+
+    fn together(&self, findings: &mut Findings) {
+        for group in self.model.together {
+            let Some(given) = group.iter().find(|n| self.has(n)) else {
+                continue;
             };
-            findings.push(f.help(format!(
-                "add a line such as `{example}`: {} are used together",
-                group
-                    .iter()
-                    .map(|n| format!("`{n}`"))
-                    .collect::<Vec<_>>()
-                    .join(" and ")
-            )));
+            let all = group
+                .iter()
+                .map(|n| format!("`{n}`"))
+                .collect::<Vec<_>>()
+                .join(" and ");
+            for name in group.iter().filter(|n| !self.has(n)) {
+                let mut f = Finding::new(
+                    Code::P302,
+                    self.file,
+                    format!(
+                        "`{}` gives `{given}`, so it needs `{name}`",
+                        self.decl.name.name
+                    ),
+                );
+                f = match self.span_of(given) {
+                    Some(s) => f.label(s, format!("needs `{name}`")),
+                    None => f.label(self.decl.name.span, format!("`{name}` is missing")),
+                };
+                findings.push(f.help(format!(
+                    "add a line such as `{}`: {all} are used together",
+                    self.example(name)
+                )));
+            }
         }
     }
-    for (a, b) in model.exclusive {
-        if has(a) && has(b) {
+
+    fn exclusive(&self, findings: &mut Findings) {
+        for (a, b) in self.model.exclusive {
+            if !(self.has(a) && self.has(b)) {
+                continue;
+            }
             let mut f = Finding::new(
                 Code::P308,
-                file,
+                self.file,
                 format!("`{a}` and `{b}` cannot both be given"),
             )
             .help(format!(
                 "keep `{a}` or `{b}`; they state the same thing two ways"
             ));
             for n in [b, a] {
-                if let Some(s) = span_of(n) {
+                if let Some(s) = self.span_of(n) {
                     f = f.label(s, format!("`{n}`"));
                 }
             }
             if f.labels.is_empty() {
-                f = f.label(decl.name.span, "both given");
+                f = f.label(self.decl.name.span, "both given");
             }
             findings.push(f);
         }

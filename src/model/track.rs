@@ -6,10 +6,12 @@
 use std::sync::Arc;
 
 use super::chain::{Stage, TrackGroup, TrackMember};
-use super::value::{Measure, ParamValue};
+use super::schema;
+use super::typed::{BridgeForm, Source, StageModel};
+use super::value::Measure;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
-use crate::syntax::ast::{StageKind, ToleranceForm, TrackDecl, Value};
+use crate::syntax::ast::{Ident, ToleranceForm, TrackDecl, Value};
 use crate::units::{parse_unit, Dim};
 
 /// What a member's tracked value is, so members of different kinds are
@@ -32,34 +34,41 @@ impl Tracked {
 }
 
 /// The parameter a stage's tracking acts on: a fixed resistor's value, a
-/// bridge's completion resistors, an excitation's output.
+/// bridge's completion resistors, an excitation's output; with the name
+/// of the line that states it.
 pub fn tracked_value(stage: &Stage) -> Option<(Tracked, &'static str, &Measure)> {
-    let (what, name) = match (stage.kind, stage.model) {
-        (StageKind::Sensor, Some("resistor")) => (Tracked::Resistance, "resistor"),
-        (StageKind::Bridge, _) => (Tracked::Resistance, "r"),
-        (StageKind::Excitation, Some("current")) => (Tracked::Current, "current"),
-        (StageKind::Excitation, _) => (Tracked::Voltage, "voltage"),
-        (
-            StageKind::Sensor
-            | StageKind::Amplifier
-            | StageKind::Filter
-            | StageKind::Adc
-            | StageKind::Convert,
-            _,
-        ) => return None,
+    let model = stage.typed.as_ref()?;
+    let what = match model {
+        StageModel::Resistor(_) | StageModel::Bridge(_) => Tracked::Resistance,
+        StageModel::Excitation(e) => match e.source {
+            Source::Current { .. } => Tracked::Current,
+            Source::Voltage { .. } => Tracked::Voltage,
+        },
+        StageModel::Rtd(_)
+        | StageModel::Thermocouple(_)
+        | StageModel::Thermistor(_)
+        | StageModel::IcVoltage(_)
+        | StageModel::IcCurrent(_)
+        | StageModel::StrainGauge(_)
+        | StageModel::Transducer(_)
+        | StageModel::Amplifier(_)
+        | StageModel::Filter(_)
+        | StageModel::Adc(_)
+        | StageModel::Convert(_) => return None,
     };
-    match stage.param(name) {
-        Some(ParamValue::Measure(m)) if !m.max => Some((what, name, m)),
-        _ => None,
-    }
+    let (name, m) = schema::tracked_line(model)?;
+    (!m.max).then_some((what, name, m))
 }
 
 /// How many parts a member's tracked value stands for: a quarter
 /// bridge's three completion resistors, a half bridge's two.
 fn parts_of(stage: &Stage) -> usize {
-    match (stage.kind, stage.model) {
-        (StageKind::Bridge, Some("quarter")) => 3,
-        (StageKind::Bridge, Some("half")) => 2,
+    match &stage.typed {
+        Some(StageModel::Bridge(b)) => match b.form {
+            BridgeForm::Quarter => 3,
+            BridgeForm::Half => 2,
+            BridgeForm::Divider(_) | BridgeForm::Full => 1,
+        },
         _ => 1,
     }
 }
@@ -165,30 +174,15 @@ fn members(
     let mut ok = true;
     for m in &decl.members {
         let Some(index) = stages.iter().position(|s| s.name == m.name) else {
-            let near = did_you_mean(&m.name, stages.iter().map(|s| s.name.as_str()));
-            findings.push(
-                Finding::new(Code::M202, file, format!("no stage is named `{}`", m.name))
-                    .label(m.span, "unknown stage")
-                    .help(match near {
-                        Some(n) => format!("did you mean `{n}`?"),
-                        None => "a tracking group names stages of its own chain".to_string(),
-                    }),
-            );
+            findings.push(unknown_member(file, m, stages));
             ok = false;
             continue;
         };
-        let twice = out
-            .iter()
-            .find(|x| x.stage == index)
-            .map(|x| x.span)
-            .or_else(|| {
-                earlier
-                    .iter()
-                    .flat_map(|g| &g.members)
-                    .find(|x| x.stage == index)
-                    .map(|x| x.span)
-            });
-        if let Some(first) = twice {
+        let member = TrackMember {
+            stage: index,
+            span: m.span,
+        };
+        if let Some(first) = tracked_before(index, &out, earlier) {
             findings.push(
                 Finding::new(
                     Code::M240,
@@ -203,43 +197,69 @@ fn members(
             continue;
         }
         let stage = &stages[index];
-        if stage.incomplete {
+        // A stage with a rejected line has its own finding and no model.
+        if stage.incomplete || stage.typed.is_none() {
             ok = false;
             continue;
         }
-        match tracked_value(stage) {
-            Some((_, _, measure)) if relative_tolerance(measure).is_some() => {}
-            found => {
-                let (label, help) = match found {
-                    Some((_, name, _)) => (
-                        format!("its `{name}` has no tolerance"),
-                        format!("state the part's own tolerance on `{name}` (as `± 0.1 %`); the group's ratio tolerance is tighter than it"),
-                    ),
-                    None => (
-                        format!("{} {} stage", super::article(stage.kind.keyword()), stage.kind.keyword()),
-                        "tracking groups hold fixed resistors (`sensor ... { resistor ... }`), bridges' completion resistors and excitations".to_string(),
-                    ),
-                };
-                findings.push(
-                    Finding::new(
-                        Code::M243,
-                        file,
-                        format!("stage `{}` has no toleranced value to track", m.name),
-                    )
-                    .label(m.span, "named here")
-                    .label(stage.name_span, label)
-                    .help(help),
-                );
-                ok = false;
-                continue;
-            }
+        if let Some(untracked) = untrackable(file, &member, stage) {
+            findings.push(untracked);
+            ok = false;
+            continue;
         }
-        out.push(TrackMember {
-            stage: index,
-            span: m.span,
-        });
+        out.push(member);
     }
     ok.then_some(out)
+}
+
+/// M202: a member that names no stage of the chain.
+fn unknown_member(file: &Arc<SourceFile>, m: &Ident, stages: &[Stage]) -> Finding {
+    let near = did_you_mean(&m.name, stages.iter().map(|s| s.name.as_str()));
+    Finding::new(Code::M202, file, format!("no stage is named `{}`", m.name))
+        .label(m.span, "unknown stage")
+        .help(match near {
+            Some(n) => format!("did you mean `{n}`?"),
+            None => "a tracking group names stages of its own chain".to_string(),
+        })
+}
+
+/// Where the stage was named before, in this group or an earlier one.
+fn tracked_before(index: usize, so_far: &[TrackMember], earlier: &[TrackGroup]) -> Option<Span> {
+    so_far
+        .iter()
+        .chain(earlier.iter().flat_map(|g| &g.members))
+        .find(|x| x.stage == index)
+        .map(|x| x.span)
+}
+
+/// M243: a member without a toleranced value to track.
+fn untrackable(file: &Arc<SourceFile>, member: &TrackMember, stage: &Stage) -> Option<Finding> {
+    let found = tracked_value(stage);
+    if let Some((_, _, measure)) = found {
+        if relative_tolerance(measure).is_some() {
+            return None;
+        }
+    }
+    let (label, help) = match found {
+        Some((_, name, _)) => (
+            format!("its `{name}` has no tolerance"),
+            format!("state the part's own tolerance on `{name}` (as `± 0.1 %`); the group's ratio tolerance is tighter than it"),
+        ),
+        None => (
+            format!("{} {} stage", super::article(stage.kind.keyword()), stage.kind.keyword()),
+            "tracking groups hold fixed resistors (`sensor ... { resistor ... }`), bridges' completion resistors and excitations".to_string(),
+        ),
+    };
+    Some(
+        Finding::new(
+            Code::M243,
+            file,
+            format!("stage `{}` has no toleranced value to track", stage.name),
+        )
+        .label(member.span, "named here")
+        .label(stage.name_span, label)
+        .help(help),
+    )
 }
 
 /// All members track the same kind of value.

@@ -10,7 +10,8 @@ The report itself has no script: the checks run in an instrumented copy
 (NAME.check.html) that adds one inline script writing its findings into
 the page, which the browser's --dump-dom then prints.
 
-Usage: python3 tests/browser/check_reports.py   (from the repository root)
+Usage: python3 tests/browser/check_reports.py [SPEC ...]   (from the repository root;
+       every demo spec in specs/ unless specs are named)
   CATENA_BIN  the catena binary (default: target/release/catena, else
               target/debug/catena, else `cargo build --release`)
   BROWSER     the browser (default: chromium-headless-shell or chromium,
@@ -28,6 +29,8 @@ import sys
 ROOT = os.path.dirname(os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 OUT = os.path.join(ROOT, "target", "report-check")
 LAPTOP = "1280,800"
+# The screenshot's height when the page could not be measured.
+FALLBACK_HEIGHT = 7000
 
 CHECK_SCRIPT = r"""
 <script>
@@ -67,7 +70,8 @@ CHECK_SCRIPT = r"""
   }
   var pre = document.createElement('pre');
   pre.id = 'catena-check';
-  pre.textContent = JSON.stringify({plots: document.querySelectorAll('svg.plot').length, problems: problems});
+  pre.textContent = JSON.stringify({plots: document.querySelectorAll('svg.plot').length, problems: problems,
+                                    height: document.documentElement.scrollHeight});
   document.body.appendChild(pre);
 })();
 </script>
@@ -153,17 +157,22 @@ def check(browser, catena, spec):
         f.write(html.replace("</body>", CHECK_SCRIPT + "</body>"))
     dumped = browse(browser, ["--dump-dom", "--virtual-time-budget=3000"], "file://" + check_path)
     found = re.search(r'<pre id="catena-check">(.*?)</pre>', dumped.stdout, re.S)
+    height = FALLBACK_HEIGHT
     if not found:
         problems.append("the browser did not run the checks: " + dumped.stderr[-400:])
     else:
         result = json.loads(found.group(1).replace("&quot;", '"').replace("&lt;", "<")
                             .replace("&gt;", ">").replace("&amp;", "&"))
         problems.extend(result["problems"])
+        height = max(800, int(result.get("height", FALLBACK_HEIGHT)))
         if result["plots"] == 0:
             problems.append("the report has no plot")
+    # The whole page in one screenshot: the window as tall as the page the
+    # instrumented copy measured (its check box adds a line at the end).
     # Console messages of the report itself (the instrumented copy logs none).
     plain = browse(browser, ["--screenshot=" + os.path.join(OUT, name + ".png"),
-                             "--hide-scrollbars"], "file://" + html_path, size="1280,7000")
+                             "--hide-scrollbars"], "file://" + html_path,
+                   size="1280,%d" % height)
     for line in plain.stderr.splitlines() + dumped.stderr.splitlines():
         if "CONSOLE" in line:
             problems.append("console: " + line.strip())
@@ -179,10 +188,10 @@ def main():
     os.makedirs(OUT, exist_ok=True)
     browser = find_browser()
     catena = find_catena()
-    specs = sorted(glob.glob(os.path.join(ROOT, "specs", "*.catena")))
+    specs = sys.argv[1:] or sorted(glob.glob(os.path.join(ROOT, "specs", "*.catena")))
     problems = []
     for spec in specs:
-        problems.extend(check(browser, catena, os.path.relpath(spec, ROOT)))
+        problems.extend(check(browser, catena, os.path.relpath(os.path.abspath(spec), ROOT)))
     for p in problems:
         print(p)
     print("check_reports: %d reports, %d problems; screenshots and PDFs in %s"

@@ -300,11 +300,7 @@ fn requirement_change(
     floor: f64,
 ) -> Option<RequirementChange> {
     // Only errors carry the rounding floor; seconds and decibels do not.
-    let floor = if o.name == "accuracy" || o.name == "resolution" {
-        floor
-    } else {
-        0.0
-    };
+    let floor = if o.is_error() { floor } else { 0.0 };
     let unchanged = o.method == n.method
         && same(o.limit, n.limit)
         && match (o.numerical, n.numerical) {
@@ -529,6 +525,7 @@ mod tests {
     fn accuracy(achieved: f64, numerical: Option<f64>) -> RequirementOutcome {
         RequirementOutcome {
             name: "accuracy",
+            kind: crate::model::RequirementKind::Accuracy(None),
             method: if numerical.is_some() {
                 "monte_carlo"
             } else {

@@ -21,6 +21,8 @@ use crate::units::format::from_si;
 pub struct RequirementOutcome {
     /// `accuracy`, `resolution`, `response`, `rejection`.
     pub name: &'static str,
+    #[serde(skip)]
+    pub kind: RequirementKind,
     pub method: String,
     /// In `unit`: the difference unit, `s`, or `dB` for a rejection.
     pub limit: f64,
@@ -35,6 +37,14 @@ pub struct RequirementOutcome {
 }
 
 impl RequirementOutcome {
+    /// An error in the measurand's unit (not seconds or decibels).
+    pub fn is_error(&self) -> bool {
+        match self.kind {
+            RequirementKind::Accuracy(_) | RequirementKind::Resolution => true,
+            RequirementKind::Response | RequirementKind::Rejection => false,
+        }
+    }
+
     /// The margin as a share of the limit's magnitude.
     pub fn margin_share(&self) -> f64 {
         self.margin / self.limit.abs().max(f64::MIN_POSITIVE)
@@ -371,6 +381,7 @@ fn requirement(v: &super::super::requirements::Verdict, unit: &str, f: f64) -> R
     };
     RequirementOutcome {
         name: v.kind.word(),
+        kind: v.kind,
         method: v.method.word(),
         limit,
         achieved,

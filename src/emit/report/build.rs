@@ -2,13 +2,14 @@
 
 use super::model::{
     AlarmRow, BudgetSection, CalibrationRow, CalibrationSection, ChainReport, ChainSummary,
-    Contributor, Diagram, DiagramEdge, DiagramNode, DynamicsSection, HeadroomPoint, LimitFlag,
-    LimitRow, MethodTotal, NoiseSection, NoiseTermRow, PathRow, PointRow, RequirementRow,
-    StageHeadroom, StageRow, SummaryRow, Verdict,
+    Checklist, Contributor, Diagram, DiagramEdge, DiagramNode, DynamicsSection, HeadroomPoint,
+    HiddenFault, LimitFlag, LimitRow, MethodTotal, NoiseSection, NoiseTermRow, PathRow, PointRow,
+    RequirementRow, StageHeadroom, StageRow, SummaryRow, Verdict,
 };
 use crate::analysis::budget::{ambients, measurand_points};
+use crate::analysis::checklist::{DESIGN_AID, PROTECTS};
 use crate::analysis::dynamics::Dynamics;
-use crate::analysis::ranges::{envelopes, Envelope};
+use crate::analysis::ranges::Envelope;
 use crate::analysis::report::Analysis;
 use crate::analysis::requirements::Verdict as RequirementVerdict;
 use crate::analysis::review::{outcome, Outcome};
@@ -57,17 +58,20 @@ impl Units {
     }
 }
 
-/// The report of a chain that could be analysed.
+/// The report of a chain that could be analysed, with its checklist when
+/// its faults could be evaluated.
 pub fn chain_report(
     chain: &Chain,
     plan: &Plan,
     a: &Analysis,
+    checklist: Option<Checklist>,
     options: &BuildOptions,
 ) -> ChainReport {
     let units = Units::of(chain);
-    let limits = limit_rows(chain, plan, a, options.points);
+    let limits = limit_rows(chain, a);
     let outcome = outcome(chain, plan, a);
-    let verdict = verdict(&outcome, a, &limits, options.margin, &units);
+    let mut verdict = verdict(&outcome, a, &limits, options.margin, &units);
+    verdict.faults = checklist.as_ref().map_or_else(Vec::new, hidden_faults);
     ChainReport {
         name: chain.name.clone(),
         title: chain.title.clone(),
@@ -83,7 +87,7 @@ pub fn chain_report(
         noise: noise(a, &units),
         dynamics: dynamics(&a.verdicts, &a.dynamics),
         calibration: calibration(plan, a, &units),
-        faults: None,
+        faults: checklist,
         limits,
         alarms: a
             .alarms
@@ -137,6 +141,7 @@ pub fn summary_row(c: &ChainReport) -> SummaryRow {
         requirements_met: c.verdict.requirements.iter().filter(|r| r.pass).count(),
         requirements: c.verdict.requirements.len(),
         limits_flagged: c.verdict.limits.len(),
+        hidden_faults: c.verdict.faults.len(),
         gum_expanded: c
             .budget
             .totals
@@ -178,7 +183,21 @@ fn verdict(o: &Outcome, a: &Analysis, limits: &[LimitRow], margin: f64, units: &
         pass: requirements.iter().all(|r| r.pass) && flagged.iter().all(|l| !l.beyond),
         requirements,
         limits: flagged,
+        faults: Vec::new(),
     }
+}
+
+/// The checklist's faults firmware cannot tell from a reading.
+fn hidden_faults(list: &Checklist) -> Vec<HiddenFault> {
+    list.faults
+        .iter()
+        .filter(|f| f.hidden())
+        .map(|f| HiddenFault {
+            stage: f.stage.clone(),
+            fault: f.fault.to_string(),
+            verdict: f.verdict.to_string(),
+        })
+        .collect()
 }
 
 fn summary_head(chain: &Chain, units: &Units) -> ChainSummary {
@@ -301,44 +320,28 @@ fn diagram_of(chain: &Chain, signal_of: &dyn Fn(&str) -> String) -> Diagram {
     }
 }
 
-/// Every envelope with its reach per measurand point.
-fn limit_rows(chain: &Chain, plan: &Plan, a: &Analysis, points: usize) -> Vec<LimitRow> {
+/// Every envelope with its reach per measurand point, as the envelope
+/// analysis gathered it.
+fn limit_rows(chain: &Chain, a: &Analysis) -> Vec<LimitRow> {
     let units = Units::of(chain);
-    let profiles = profiles(chain, plan, points);
     a.envelopes
         .iter()
-        .enumerate()
-        .map(|(k, e)| LimitRow {
+        .map(|e| LimitRow {
             stage: a.names.get(e.node).cloned().unwrap_or_default(),
             limit: e.limit.describe().to_string(),
             unit: e.unit.symbol().to_string(),
             allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
             reach: [e.reach.0, e.reach.1],
             headroom: e.headroom(),
-            profile: profiles
+            profile: e
+                .by_measurand
                 .iter()
-                .filter_map(|(m, envs)| {
-                    let p = envs.get(k)?;
-                    Some(HeadroomPoint {
-                        measurand: units.position(*m),
-                        low: normalised(e, p.reach.0),
-                        high: normalised(e, p.reach.1),
-                    })
+                .map(|p| HeadroomPoint {
+                    measurand: units.position(p.measurand),
+                    low: normalised(e, p.reach.0),
+                    high: normalised(e, p.reach.1),
                 })
                 .collect(),
-        })
-        .collect()
-}
-
-/// The envelopes at each measurand point alone: the same analysis over
-/// a range shrunk to that point.
-fn profiles(chain: &Chain, plan: &Plan, points: usize) -> Vec<(f64, Vec<Envelope>)> {
-    measurand_points(plan, points)
-        .into_iter()
-        .filter_map(|m| {
-            let mut at = plan.clone();
-            at.range = (m, m);
-            Some((m, envelopes(chain, &at, 2).ok()?))
         })
         .collect()
 }
@@ -662,21 +665,13 @@ fn calibration(plan: &Plan, a: &Analysis, units: &Units) -> Option<CalibrationSe
     })
 }
 
-/// A design aid's usual cautions; stronger where the chain raises
-/// alarms or trips, which usually protect people or property.
+/// A design aid's usual cautions (their text has one home, beside the
+/// checklist); stronger where the chain raises alarms or trips, which
+/// usually protect people or property.
 fn cautions(chain: &Chain, verdict: &Verdict) -> Vec<String> {
-    let mut out = vec![
-        "This report is a design aid computed from the values the spec states; it is not a safety assessment, and the installed chain must be verified by measurement.".to_string(),
-    ];
+    let mut out = vec![DESIGN_AID.to_string()];
     if chain.is_protective() {
-        let what = if chain.alarms.is_empty() {
-            "This chain protects people or property: the applicable"
-        } else {
-            "This chain raises alarms or trips. Where they protect people, property or a process, the applicable"
-        };
-        out.push(format!(
-            "{what} functional-safety standard, local codes and licensed practice govern its design, wiring and proof testing; set and verify trip points on the installed system."
-        ));
+        out.push(PROTECTS.to_string());
     }
     if verdict.limits.iter().any(|l| l.beyond) {
         out.push(

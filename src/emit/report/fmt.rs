@@ -19,7 +19,9 @@ pub fn value(x: f64, unit: &str) -> String {
 /// A value in a coherent SI unit (V, A, ohm), with its prefix.
 pub fn si(x: f64, unit: &str) -> String {
     match unit {
-        "" | "1" => trimmed(x, 4),
+        "" => trimmed(x, 4),
+        // A share of a converter's full scale.
+        "1" => format!("{} % FS", trimmed(x * 100.0, 4)),
         "code" => format!("{} codes", trimmed(x.round(), 12)),
         "ohm" => with_prefix(x, "Ω", 4),
         _ => with_prefix(x, unit, 4),
@@ -68,5 +70,6 @@ mod tests {
         assert_eq!(share(0.272), "27 %");
         assert_eq!(share(0.0123), "1.2 %");
         assert_eq!(si(6_250_772.4, "code"), "6250772 codes");
+        assert_eq!(si(0.7057, "1"), "70.57 % FS");
     }
 }

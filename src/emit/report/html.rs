@@ -19,10 +19,10 @@ h2{font-size:1.35em;border-bottom:2px solid #0072B2;padding-bottom:4px;margin-to
 h3{font-size:1.12em;margin-top:1.6em}\
 h4{font-size:1em;margin-top:1.2em}\
 table{border-collapse:collapse;margin:0.6em 0 1em;font-size:0.9em;max-width:100%}\
-th,td{border:1px solid #c8c8c8;padding:3px 7px;text-align:left;vertical-align:top;overflow-wrap:anywhere}\
+th,td{border:1px solid #c8c8c8;padding:3px 7px;text-align:left;vertical-align:top;overflow-wrap:break-word}\
 th{background:#eef3f8}\
 tr:nth-child(even) td{background:#fafafa}\
-code{font-family:ui-monospace,'DejaVu Sans Mono',Menlo,monospace;font-size:0.92em;overflow-wrap:anywhere}\
+code{font-family:ui-monospace,'DejaVu Sans Mono',Menlo,monospace;font-size:0.92em;overflow-wrap:break-word}\
 strong.fail{color:#b00020}\
 figure{margin:0.8em 0 1.2em;break-inside:avoid;page-break-inside:avoid}\
 figure svg{max-width:100%;height:auto;display:block}\
@@ -75,7 +75,7 @@ fn block(out: &mut String, line: &str, plots: &[(String, String)]) {
         // The long sections start a printed page; the short ones flow.
         let long = matches!(
             t,
-            "Stages" | "Error budget" | "Noise and resolution" | "Limits"
+            "Stages" | "Error budget" | "Noise and resolution" | "Faults and limits"
         );
         let class = if long { " class=\"part\"" } else { "" };
         let _ = writeln!(out, "<h3{class}>{}</h3>", inline(t));

@@ -5,10 +5,12 @@
 use std::fmt::Write;
 
 use super::fmt::{method, plain, position, share, si, value};
-use super::model::{ChainReport, Report};
+use super::model::{ChainReport, Checklist, Report};
+use crate::analysis::checklist::{LimitStatus, ReviewKind};
 
 /// A plot file beside the Markdown: its id (`error`, `contributors`,
-/// `headroom`, `path`, `step`, `frequency`, `diagram`), title and file name.
+/// `headroom`, `path`, `step`, `frequency`, `diagram`, `codes`), title and
+/// file name.
 pub struct PlotLink {
     pub id: &'static str,
     pub title: String,
@@ -32,13 +34,13 @@ pub fn render(report: &Report, links: &[Vec<PlotLink>]) -> String {
 
 fn summary_table(out: &mut String, report: &Report) {
     out.push_str(
-        "| chain | verdict | requirements met | limits flagged | largest GUM expanded |\n",
+        "| chain | verdict | requirements met | limits flagged | faults firmware cannot see | largest GUM expanded |\n",
     );
-    out.push_str("| --- | --- | --- | --- | --- |\n");
+    out.push_str("| --- | --- | --- | --- | --- | --- |\n");
     for r in &report.summary {
         let _ = writeln!(
             out,
-            "| `{}` | {} | {} of {} | {} | {} |",
+            "| `{}` | {} | {} of {} | {} | {} | {} |",
             r.chain,
             if r.error.is_some() {
                 "not analysed"
@@ -50,6 +52,7 @@ fn summary_table(out: &mut String, report: &Report) {
             r.requirements_met,
             r.requirements,
             r.limits_flagged,
+            r.hidden_faults,
             value(r.gum_expanded, &r.unit)
         );
     }
@@ -101,8 +104,7 @@ fn chain(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
     noise(out, c);
     dynamics(out, c, links);
     calibration(out, c);
-    faults(out, c);
-    limits(out, c, links);
+    faults_and_limits(out, c, links);
     alarms(out, c);
     cautions(out, c);
 }
@@ -112,7 +114,7 @@ fn verdict(out: &mut String, c: &ChainReport) {
     out.push_str("### Verdict\n\n");
     let _ = writeln!(
         out,
-        "**{}**: {} of {} requirements met; limits beyond an end or under the margin: {}.\n",
+        "**{}**: {} of {} requirements met; limits beyond an end or under the margin: {}; faults firmware cannot see: {}.\n",
         if c.error.is_some() {
             "NOT ANALYSED"
         } else if v.pass {
@@ -122,7 +124,8 @@ fn verdict(out: &mut String, c: &ChainReport) {
         },
         v.requirements.iter().filter(|r| r.pass).count(),
         v.requirements.len(),
-        v.limits.len()
+        v.limits.len(),
+        v.faults.len()
     );
     if !v.requirements.is_empty() {
         out.push_str("| requirement | method | required | achieved | margin | where | verdict |\n");
@@ -164,6 +167,13 @@ fn verdict(out: &mut String, c: &ChainReport) {
                     "under margin"
                 }
             );
+        }
+        out.push('\n');
+    }
+    if !v.faults.is_empty() {
+        out.push_str("| stage | fault | firmware sees it |\n| --- | --- | --- |\n");
+        for f in &v.faults {
+            let _ = writeln!(out, "| `{}` | {} | **{}** |", f.stage, f.fault, f.verdict);
         }
         out.push('\n');
     }
@@ -231,6 +241,11 @@ fn stages(out: &mut String, c: &ChainReport) {
 /// Text safe inside a table cell.
 fn cell(s: &str) -> String {
     s.replace('|', "\\|").replace('`', "'")
+}
+
+/// Our own sentences in a cell: their code spans are kept.
+fn prose(s: &str) -> String {
+    s.replace('|', "\\|")
 }
 
 fn budget(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
@@ -371,18 +386,30 @@ fn dynamics(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
     plot_links(out, links, "step");
     plot_links(out, links, "frequency");
     out.push_str("| | |\n| --- | --- |\n");
+    // Nothing that takes time is stated: the model answers at once,
+    // which says nothing of the real chain.
+    let timeless = d.sensor_time_constant_s <= 0.0 && d.rate_hz.is_none();
     let _ = writeln!(
         out,
         "| step response to 90 % | {}{} |",
-        d.response_90_s
-            .map_or("unbounded".to_string(), |t| value(t, "s")),
+        match d.response_90_s {
+            None => "unbounded".to_string(),
+            Some(t) if t <= 0.0 && timeless => {
+                "not modelled: no stage states a time constant or a conversion rate".to_string()
+            }
+            Some(t) => value(t, "s"),
+        },
         d.requirement_s
             .map_or(String::new(), |r| format!(" (required {})", value(r, "s")))
     );
     let _ = writeln!(
         out,
         "| sensor time constant | {} |",
-        value(d.sensor_time_constant_s, "s")
+        if d.sensor_time_constant_s > 0.0 {
+            value(d.sensor_time_constant_s, "s")
+        } else {
+            "not stated".to_string()
+        }
     );
     if let Some(r) = d.rate_hz {
         let _ = writeln!(out, "| conversion rate | {} |", si(r, "Hz"));
@@ -438,38 +465,96 @@ fn calibration(out: &mut String, c: &ChainReport) {
     out.push('\n');
 }
 
-fn faults(out: &mut String, c: &ChainReport) {
-    let Some(f) = &c.faults else {
+/// The checklist's rows: the valid code window and every fault's codes
+/// against it, every limit's reach and headroom, the review items.
+fn faults_and_limits(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
+    out.push_str("### Faults and limits\n\n");
+    if let Some(list) = &c.faults {
+        faults(out, list, links);
+    }
+    limits(out, c, links);
+    if let Some(list) = c.faults.as_ref().filter(|l| !l.review.is_empty()) {
+        out.push_str(
+            "#### To verify at review and bring-up\n\n| item | what to check |\n| --- | --- |\n",
+        );
+        for r in &list.review {
+            let kind = match r.kind {
+                ReviewKind::Leads => "leads",
+                ReviewKind::SelfHeating => "self-heating",
+                ReviewKind::Calibration => "calibration",
+                ReviewKind::Warning => "warning",
+            };
+            let _ = writeln!(out, "| {kind} | {} |", prose(&r.text));
+        }
+        out.push('\n');
+    }
+}
+
+fn faults(out: &mut String, list: &Checklist, links: &[PlotLink]) {
+    let w = &list.window;
+    let _ = writeln!(
+        out,
+        "The healthy chain's codes lie in {} .. {} (of {} .. {}, noise {}σ = {} codes included); a fault is detectable when all its codes lie outside that window.\n",
+        w.low,
+        w.high,
+        w.rails.0,
+        w.rails.1,
+        plain(w.k),
+        plain(w.k * w.noise_sigma_codes)
+    );
+    plot_links(out, links, "codes");
+    if list.faults.is_empty() {
+        out.push_str("No stage of this chain declares a fault.\n\n");
         return;
-    };
-    out.push_str("### Faults\n\n| fault | detected | note |\n| --- | --- | --- |\n");
-    for r in &f.rows {
+    }
+    out.push_str("| stage | fault | codes | firmware sees it | threshold | action |\n| --- | --- | --- | --- | --- | --- |\n");
+    for f in &list.faults {
+        let codes = match (f.codes, &f.reason) {
+            (Some((a, b)), _) if a == b => a.to_string(),
+            (Some((a, b)), _) => format!("{a} .. {b}"),
+            (None, Some(why)) => format!("none ({why})"),
+            (None, None) => "none".to_string(),
+        };
+        let verdict = if f.hidden() {
+            format!("**{}**", f.verdict)
+        } else {
+            f.verdict.to_string()
+        };
         let _ = writeln!(
             out,
-            "| {} | {} | {} |",
-            cell(&r.fault),
-            if r.detected { "yes" } else { "**no**" },
-            cell(&r.note)
+            "| `{}` | {} | {} | {verdict} | {} | {} |",
+            f.stage,
+            cell(f.condition),
+            cell(&codes),
+            f.threshold
+                .as_deref()
+                .map_or(String::new(), |t| format!("`{t}`")),
+            prose(&f.action)
         );
     }
     out.push('\n');
 }
 
 fn limits(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
-    out.push_str("### Limits\n\n");
     if c.limits.is_empty() {
         out.push_str("No stage of this chain states a limit.\n\n");
         return;
     }
     plot_links(out, links, "headroom");
     out.push_str(
-        "| stage | limit | allowed | reach | headroom |\n| --- | --- | --- | --- | --- |\n",
+        "| stage | limit | allowed | reach | headroom | |\n| --- | --- | --- | --- | --- | --- |\n",
     );
-    for l in &c.limits {
+    let margin = c.faults.as_ref().map(|l| &l.limits);
+    for (i, l) in c.limits.iter().enumerate() {
         let end = |x: Option<f64>| x.map_or("—".to_string(), |v| si(v, &l.unit));
+        let status = match margin.and_then(|m| m.get(i)).map(|r| r.status) {
+            Some(LimitStatus::Beyond) => "**beyond its limit**",
+            Some(LimitStatus::UnderMargin) => "under margin",
+            Some(LimitStatus::Inside) | None => "",
+        };
         let _ = writeln!(
             out,
-            "| `{}` | {} | {} .. {} | {} .. {} | {} |",
+            "| `{}` | {} | {} .. {} | {} .. {} | {} | {status} |",
             l.stage,
             l.limit,
             end(l.allowed[0]),
@@ -488,18 +573,25 @@ fn alarms(out: &mut String, c: &ChainReport) {
     }
     let m = &c.measurand_unit;
     out.push_str("### Alarms and trips\n\n");
-    out.push_str("| side | limit | code there | guard band | trip at | trip code |\n");
-    out.push_str("| --- | --- | --- | --- | --- | --- |\n");
-    for a in &c.alarms {
+    out.push_str("| side | limit | code there | guard band | trip at | trip code | undetected faults that mask it |\n");
+    out.push_str("| --- | --- | --- | --- | --- | --- | --- |\n");
+    let masks = c.faults.as_ref().map(|l| &l.alarms);
+    for (i, a) in c.alarms.iter().enumerate() {
+        let masked = match masks.and_then(|m| m.get(i)) {
+            Some(row) if row.masked_by.is_empty() => "none".to_string(),
+            Some(row) => format!("**{}**", row.masked_by.join(", ")),
+            None => "not evaluated".to_string(),
+        };
         let _ = writeln!(
             out,
-            "| {} | {} | {} | ± {} | {} | {} |",
+            "| {} | {} | {} | ± {} | {} | {} | {} |",
             a.side,
             position(a.at, m),
             a.code,
             value(a.guard_band, &c.unit),
             position(a.trip_at, m),
-            a.trip_code
+            a.trip_code,
+            cell(&masked)
         );
     }
     out.push('\n');

@@ -6,8 +6,10 @@
 
 use serde::Serialize;
 
-/// Bumped when a field changes meaning or goes away; new fields (the
-/// faults section among them) may appear without a bump.
+pub use crate::analysis::checklist::Checklist;
+
+/// Bumped when a field changes meaning or goes away; new fields may
+/// appear without a bump.
 pub const SCHEMA_VERSION: u32 = 1;
 
 /// One report: one spec file with one section per chain.
@@ -52,6 +54,8 @@ pub struct SummaryRow {
     pub requirements: usize,
     /// Limits beyond or under margin.
     pub limits_flagged: usize,
+    /// Faults firmware cannot tell from a reading (silent or undetermined).
+    pub hidden_faults: usize,
     /// The largest GUM expanded uncertainty, in `unit`.
     pub gum_expanded: f64,
     pub unit: String,
@@ -60,8 +64,7 @@ pub struct SummaryRow {
     pub error: Option<String>,
 }
 
-/// Sections in the order a reader meets them. `faults` is reserved: it
-/// appears once the faults analysis exists; renderers already place it.
+/// Sections in the order a reader meets them.
 #[derive(Clone, Debug, Serialize)]
 pub struct ChainReport {
     pub name: String,
@@ -81,8 +84,10 @@ pub struct ChainReport {
     pub dynamics: DynamicsSection,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub calibration: Option<CalibrationSection>,
+    /// The fault-and-limit checklist (absent when the faults could not
+    /// be evaluated).
     #[serde(skip_serializing_if = "Option::is_none")]
-    pub faults: Option<FaultsSection>,
+    pub faults: Option<Checklist>,
     pub limits: Vec<LimitRow>,
     pub alarms: Vec<AlarmRow>,
     pub cautions: Vec<String>,
@@ -95,6 +100,16 @@ pub struct Verdict {
     pub requirements: Vec<RequirementRow>,
     /// Limits beyond their end (`beyond`) or inside the margin.
     pub limits: Vec<LimitFlag>,
+    /// Faults firmware cannot tell from a reading.
+    pub faults: Vec<HiddenFault>,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct HiddenFault {
+    pub stage: String,
+    pub fault: String,
+    /// `silent` or `undetermined`.
+    pub verdict: String,
 }
 
 #[derive(Clone, Debug, Serialize)]
@@ -311,19 +326,6 @@ pub struct CalibrationRow {
     pub ambient: f64,
     pub before: f64,
     pub after: f64,
-}
-
-/// Reserved for the faults analysis: its checklist rows.
-#[derive(Clone, Debug, Serialize)]
-pub struct FaultsSection {
-    pub rows: Vec<FaultRow>,
-}
-
-#[derive(Clone, Debug, Serialize)]
-pub struct FaultRow {
-    pub fault: String,
-    pub detected: bool,
-    pub note: String,
 }
 
 #[derive(Clone, Debug, Serialize)]

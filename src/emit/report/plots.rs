@@ -4,7 +4,7 @@ use std::fmt::Write;
 
 use super::fmt::{share, value};
 use super::model::ChainReport;
-use super::svg::{bars, escape, open, Axis, Chart, Item, Style, PALETTE};
+use super::svg::{bars, escape, open, strips, Axis, Chart, Item, Strip, Style, PALETTE};
 
 /// One plot of a chain: an id (`error`, `contributors`, `headroom`,
 /// `path`, `step`, `frequency`, `diagram`), its title and its SVG.
@@ -28,6 +28,7 @@ pub fn chain_plots(c: &ChainReport, margin: f64) -> Vec<Plot> {
     out.extend(path(c, &key));
     out.extend(step(c, &key));
     out.extend(frequency(c, &key));
+    out.extend(codes(c, &key));
     out.extend(headroom(c, margin, &key));
     out
 }
@@ -263,6 +264,57 @@ fn frequency(c: &ChainReport, key: &str) -> Option<Plot> {
         items,
     };
     Some(plot("frequency", 0, title, chart.render()))
+}
+
+/// The valid code window and each fault's codes against it, along the
+/// code axis as a share of the converter's full scale.
+fn codes(c: &ChainReport, key: &str) -> Option<Plot> {
+    let list = c.faults.as_ref()?;
+    if list.faults.is_empty() {
+        return None;
+    }
+    let w = &list.window;
+    let full = (w.rails.0.unsigned_abs().max(w.rails.1.unsigned_abs()) as f64).max(1.0);
+    let pct = |code: i64| code as f64 / full * 100.0;
+    let rows: Vec<Strip> = list
+        .faults
+        .iter()
+        .map(|f| Strip {
+            label: format!("{} {}", f.stage, f.fault.replace('_', " ")),
+            span: f.codes.map(|(a, b)| (pct(a), pct(b))),
+            hidden: f.hidden(),
+            note: match (f.codes, f.hidden()) {
+                (None, _) => f.verdict.to_string(),
+                (Some((a, b)), hidden) => {
+                    let codes = if a == b {
+                        a.to_string()
+                    } else {
+                        format!("{a} .. {b}")
+                    };
+                    if hidden {
+                        format!("{codes}, {}", f.verdict)
+                    } else {
+                        codes
+                    }
+                }
+            },
+        })
+        .collect();
+    let title = "Each fault's codes against the valid code window".to_string();
+    let axis = Axis::nice(
+        "converter code",
+        "% of full scale",
+        pct(w.rails.0).min(0.0),
+        pct(w.rails.1),
+    );
+    let svg = strips(
+        &format!("{key}-codes"),
+        &title,
+        &axis,
+        (pct(w.low), pct(w.high)),
+        &rows,
+    );
+    Some(plot("codes", 0, title, svg))
 }
 
 /// Each limited node's reach over the range, as a share of its allowed

@@ -696,6 +696,171 @@ pub fn bars(
     s
 }
 
+/// One row of a strip chart: a labelled span along the axis (None: no
+/// span to draw), marked as hidden (drawn hatched and outlined, so it
+/// reads without colour), with a note beside the plot.
+pub struct Strip {
+    pub label: String,
+    pub span: Option<(f64, f64)>,
+    pub hidden: bool,
+    pub note: String,
+}
+
+/// A strip chart: one row per span along `axis`, over a shaded window
+/// (`window`, in axis units) drawn across every row.
+pub fn strips(id: &str, title: &str, axis: &Axis, window: (f64, f64), rows: &[Strip]) -> String {
+    let label_w = rows
+        .iter()
+        .map(|r| r.label.chars().count())
+        .max()
+        .unwrap_or(4) as f64
+        * CHAR_W
+        + 16.0;
+    let left = label_w.max(90.0);
+    let note_w = rows
+        .iter()
+        .map(|r| r.note.chars().count())
+        .max()
+        .unwrap_or(0) as f64
+        * CHAR_W
+        + 14.0;
+    let plot_w = (WIDTH - left - note_w.max(40.0)).max(160.0);
+    let width = (left + plot_w + note_w.max(40.0)).max(WIDTH);
+    let row_h = 18.0;
+    let top = 58.0;
+    let bottom = top + rows.len().max(1) as f64 * row_h;
+    let h = bottom + 50.0;
+    let px = |v: f64| left + axis.t(v).clamp(0.0, 1.0) * plot_w;
+    let mut s = open(id, title, width, h);
+    let hatch = format!("{id}-hatch");
+    let _ = write!(
+        s,
+        r##"<defs><pattern id="{hatch}" width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)"><rect width="6" height="6" fill="{}" fill-opacity="0.35"/><line x1="0" y1="0" x2="0" y2="6" stroke="#222222" stroke-width="2"/></pattern></defs><text x="{}" y="20" class="title">{}</text>"##,
+        PALETTE[1],
+        n(left),
+        escape(title)
+    );
+    strip_legend(&mut s, &hatch, left);
+    for (v, label) in axis.ticks() {
+        let x = px(v);
+        let _ = write!(
+            s,
+            r##"<line x1="{x}" y1="{}" x2="{x}" y2="{}" stroke="#dddddd"/><text x="{x}" y="{}" text-anchor="middle" class="tick">{}</text>"##,
+            n(top),
+            n(bottom),
+            n(bottom + 16.0),
+            escape(&label),
+            x = n(x)
+        );
+    }
+    let _ = write!(
+        s,
+        r##"<text x="{}" y="{}" text-anchor="middle" class="axis">{}</text><g class="plot-area" data-x="{}" data-y="{}" data-width="{}" data-height="{}"><rect class="data" x="{}" y="{}" width="{}" height="{}" fill="#999999" fill-opacity="0.3" stroke="#555555" stroke-dasharray="3 3"><title>valid code window</title></rect>"##,
+        n(left + plot_w / 2.0),
+        n(bottom + 38.0),
+        escape(&axis.title()),
+        n(left),
+        n(top),
+        n(plot_w),
+        n(bottom - top),
+        n(px(window.0)),
+        n(top),
+        n((px(window.1) - px(window.0)).max(1.0)),
+        n(bottom - top)
+    );
+    let frame = StripFrame {
+        left,
+        plot_w,
+        top,
+        row_h,
+        hatch: &hatch,
+    };
+    for (i, row) in rows.iter().enumerate() {
+        frame.row(&mut s, i, row, &px);
+    }
+    s.push_str("</g></svg>");
+    s
+}
+
+/// Where a strip chart's rows go.
+struct StripFrame<'a> {
+    left: f64,
+    plot_w: f64,
+    top: f64,
+    row_h: f64,
+    hatch: &'a str,
+}
+
+impl StripFrame<'_> {
+    /// Row `i`: its span (hatched and outlined when hidden), its label
+    /// left of the plot and its note right of it.
+    fn row(&self, s: &mut String, i: usize, row: &Strip, px: &dyn Fn(f64) -> f64) {
+        let (left, row_h) = (self.left, self.row_h);
+        let y = self.top + i as f64 * row_h;
+        if let Some((a, b)) = row.span {
+            // A single code still shows: at least 3 px, kept inside.
+            let w = (px(b) - px(a)).max(3.0);
+            let x = px(a).min(left + self.plot_w - w);
+            let (fill, stroke) = if row.hidden {
+                (
+                    format!("url(#{})", self.hatch),
+                    r##" stroke="#222222" stroke-dasharray="3 2""##,
+                )
+            } else {
+                (PALETTE[0].to_string(), r##" stroke="#222222""##)
+            };
+            let _ = write!(
+                s,
+                r#"<rect class="data" x="{}" y="{}" width="{}" height="{}" fill="{fill}"{stroke}><title>{}</title></rect>"#,
+                n(x),
+                n(y + 3.0),
+                n(w),
+                n(row_h - 6.0),
+                escape(&format!("{}: {}", row.label, row.note))
+            );
+        }
+        let _ = write!(
+            s,
+            r#"<text x="{}" y="{}" text-anchor="end">{}</text><text x="{}" y="{}">{}</text>"#,
+            n(left - 6.0),
+            n(y + row_h / 2.0 + 4.0),
+            escape(&row.label),
+            n(left + self.plot_w + 6.0),
+            n(y + row_h / 2.0 + 4.0),
+            escape(&row.note)
+        );
+    }
+}
+
+/// The strip chart's legend: the window, a detectable and a hidden span.
+fn strip_legend(s: &mut String, hatch: &str, left: f64) {
+    let entries = [
+        (
+            r##"fill="#999999" fill-opacity="0.3" stroke="#555555" stroke-dasharray="3 3""##
+                .to_string(),
+            "valid code window",
+        ),
+        (
+            format!(r##"fill="{}" stroke="#222222""##, PALETTE[0]),
+            "detectable fault",
+        ),
+        (
+            format!(r##"fill="url(#{hatch})" stroke="#222222" stroke-dasharray="3 2""##),
+            "fault firmware cannot see",
+        ),
+    ];
+    let mut x = left;
+    for (style, label) in entries {
+        let _ = write!(
+            s,
+            r#"<rect x="{}" y="31" width="24" height="10" {style}/><text x="{}" y="40" class="legend">{label}</text>"#,
+            n(x),
+            n(x + 30.0)
+        );
+        x += 30.0 + label.len() as f64 * CHAR_W + 16.0;
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -714,6 +879,31 @@ mod tests {
         assert_eq!(a.title(), "signal (mV)");
         let labels: Vec<String> = a.ticks().into_iter().map(|t| t.1).collect();
         assert!(labels.contains(&"1".to_string()), "{labels:?}");
+    }
+
+    #[test]
+    fn a_strip_chart_draws_each_span_and_the_window() {
+        let axis = Axis::nice("code", "%", 0.0, 100.0);
+        let rows = [
+            Strip {
+                label: "rtd open".to_string(),
+                span: Some((100.0, 100.0)),
+                hidden: false,
+                note: "65535".to_string(),
+            },
+            Strip {
+                label: "amp input open".to_string(),
+                span: None,
+                hidden: true,
+                note: "undetermined".to_string(),
+            },
+        ];
+        let svg = strips("t", "T", &axis, (4.0, 6.0), &rows);
+        // The window and one span; the undetermined row has only text.
+        assert_eq!(svg.matches(r#"class="data""#).count(), 2, "{svg}");
+        assert!(svg.contains(">undetermined</text>"), "{svg}");
+        // A single code at full scale stays inside the plotting area.
+        assert!(svg.contains("65535</title>"), "{svg}");
     }
 
     #[test]

@@ -2,7 +2,7 @@
 //! gain error and INL, and the code it gives.
 
 use super::{Cx, Run};
-use crate::eval::fault::{open_input, FaultKind, Faulted};
+use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, AdcInput};
 use crate::model::value::Tolerance;
@@ -147,8 +147,9 @@ impl Adc {
     pub(super) fn faulted(
         &self,
         run: &Run<'_>,
-        kind: Option<FaultKind>,
+        fault: Option<&Fault>,
     ) -> Result<Faulted, EvalError> {
+        let kind = fault.map(|f| f.kind);
         let (lo, hi) = self.codes;
         let rail = |x: f64| {
             Faulted::Signal(Signal::Code {
@@ -159,7 +160,8 @@ impl Adc {
         let Signal::Voltage { v, cm, .. } = run.s[self.input] else {
             return Err(run.numeric("no input voltage"));
         };
-        let v = match (kind, open_input(self.burnout, cm)) {
+        let burnout = fault.and_then(|f| f.burnout);
+        let v = match (kind, open_input(burnout, cm)) {
             (Some(FaultKind::InputOpen), Faulted::Signal(Signal::Voltage { v, .. })) => v,
             (Some(FaultKind::InputOpen), floating) => return Ok(floating),
             _ => v,

@@ -2,7 +2,7 @@
 //! swing; outside its common-mode range it rails.
 
 use super::{Cx, Run};
-use crate::eval::fault::{open_input, FaultKind, Faulted};
+use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed;
 
@@ -104,9 +104,10 @@ impl Amplifier {
     /// swing nothing says where it saturates. Input open: its own burnout
     /// current drives the pin to a rail, which it then amplifies as any
     /// input; without one the pin floats.
-    pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
+    pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
+        let kind = fault.kind;
         let v = match (kind, self.output) {
-            (FaultKind::InputOpen, _) => return self.input_open(run),
+            (FaultKind::InputOpen, _) => return self.input_open(run, fault.burnout),
             (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, None) => {
                 return Ok(Faulted::Undetermined(
                     "the amplifier's output swing is not stated",
@@ -123,12 +124,13 @@ impl Amplifier {
         }))
     }
 
-    fn input_open(&self, run: &Run<'_>) -> Result<Faulted, EvalError> {
+    /// Its input pin open, `burnout` the current the pin sources.
+    fn input_open(&self, run: &Run<'_>, burnout: Option<f64>) -> Result<Faulted, EvalError> {
         let cm = match run.s[self.input] {
             Signal::Voltage { cm, .. } => cm,
             _ => return Err(run.numeric("no input voltage")),
         };
-        let open = match open_input(self.burnout, cm) {
+        let open = match open_input(burnout, cm) {
             Faulted::Signal(open) => open,
             undetermined => return Ok(undetermined),
         };

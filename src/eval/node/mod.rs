@@ -195,8 +195,8 @@ impl Plan {
             Node::Resistor(n) => n.faulted(&run, kind),
             Node::Transducer(n) => n.faulted(&run, fault),
             Node::Bridge(n) => n.faulted(&run, kind),
-            Node::Amplifier(n) => n.faulted(&run, kind),
-            Node::Adc(n) => n.faulted(&run, Some(kind)),
+            Node::Amplifier(n) => n.faulted(&run, fault),
+            Node::Adc(n) => n.faulted(&run, Some(fault)),
             // Kinds that declare no fault of their own.
             Node::Filter(_) | Node::Convert(_) => Err(run.numeric(kind.describe())),
         }

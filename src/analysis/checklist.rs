@@ -1,0 +1,432 @@
+//! The fault-and-limit checklist of one chain, as one model: what a test
+//! engineer works through at bring-up and a firmware engineer implements.
+//! Every row comes from an analysis that already judged it (the fault
+//! verdicts, the range envelopes, the alarm limits, the check's
+//! warnings); nothing here is computed twice. `catena checklist` and the
+//! report's faults-and-limits section both render it.
+//!
+//! Values are in the units a reader sees: positions in the measurand's
+//! unit as written, differences in its difference unit, signals in
+//! coherent SI (the limit's `unit`).
+
+use serde::Serialize;
+
+use super::faults::{FaultReport, Masking, Verdict};
+use super::ranges::Envelope;
+use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal};
+use crate::model::Chain;
+use crate::physics::rtd::{self, Wiring};
+use crate::units::format::{from_si, trimmed, with_prefix};
+
+/// The caution every design aid carries.
+pub const DESIGN_AID: &str = "This is a design aid computed from the values the spec states; it is not a safety assessment, and the installed chain must be verified by measurement.";
+
+/// The caution where a chain raises alarms or trips, which usually
+/// protect people, property or a process.
+pub const PROTECTS: &str = "This chain raises alarms or trips. Where they protect people, property or a process, the applicable functional-safety standard, local codes and licensed practice govern its design, wiring and proof testing; set and verify trip points on the installed system.";
+
+/// One chain's checklist.
+#[derive(Clone, Debug, Serialize)]
+pub struct Checklist {
+    pub chain: String,
+    pub window: WindowRow,
+    pub faults: Vec<FaultRow>,
+    pub limits: Vec<LimitRow>,
+    pub alarms: Vec<AlarmRow>,
+    pub review: Vec<ReviewItem>,
+    pub cautions: Vec<&'static str>,
+}
+
+/// The codes the healthy chain gives.
+#[derive(Clone, Debug, Serialize)]
+pub struct WindowRow {
+    pub low: i64,
+    pub high: i64,
+    /// The converter's lowest and highest code.
+    pub rails: (i64, i64),
+    pub noise_sigma_codes: f64,
+    /// The noise's coverage factor in the window.
+    pub k: f64,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct FaultRow {
+    pub stage: String,
+    pub fault: &'static str,
+    pub condition: &'static str,
+    /// The lowest and highest code with the fault (absent: undetermined).
+    pub codes: Option<(i64, i64)>,
+    /// `detectable`, `silent` or `undetermined`.
+    pub verdict: &'static str,
+    /// `code < N` or `code > N`.
+    pub threshold: Option<String>,
+    /// Why the code is undetermined.
+    pub reason: Option<String>,
+    pub action: String,
+}
+
+impl FaultRow {
+    /// Whether firmware cannot tell the fault from a reading.
+    pub fn hidden(&self) -> bool {
+        self.verdict != Verdict::Detectable.name()
+    }
+}
+
+/// Where a limited signal stands against its limit.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum LimitStatus {
+    Inside,
+    UnderMargin,
+    Beyond,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct LimitRow {
+    pub stage: String,
+    /// What is limited (`output`, `input common mode`, ...).
+    pub limit: String,
+    /// Coherent SI, or `1` for a share of a converter's full scale.
+    pub unit: String,
+    /// Its allowed interval (an end not stated is absent).
+    pub allowed: [Option<f64>; 2],
+    /// How far the signal goes over ranges and tolerances.
+    pub reach: [f64; 2],
+    /// The least distance to an end, as a share of the limit's span.
+    pub headroom: f64,
+    pub status: LimitStatus,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct AlarmRow {
+    /// `high` or `low`.
+    pub side: String,
+    /// The limit, in the measurand's unit.
+    pub at: f64,
+    /// Where to trip so the true value never passes the limit unseen.
+    pub trip_at: f64,
+    /// The GUM expanded uncertainty there, in the difference unit.
+    pub guard_band: f64,
+    pub measurand_unit: String,
+    pub unit: String,
+    /// The nominal code at the limit and at the trip.
+    pub code: i64,
+    pub trip_code: i64,
+    /// `stage fault` of each undetected fault that would hide a crossing.
+    pub masked_by: Vec<String>,
+}
+
+/// What a review item asks to verify.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum ReviewKind {
+    Leads,
+    SelfHeating,
+    Calibration,
+    Warning,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct ReviewItem {
+    pub kind: ReviewKind,
+    pub text: String,
+}
+
+/// What the checklist is built from: analyses already made.
+pub struct Sources<'a> {
+    pub faults: &'a FaultReport,
+    pub maskings: &'a [Masking],
+    pub envelopes: &'a [Envelope],
+    /// Headroom below this share of a limit's span is flagged.
+    pub margin: f64,
+    /// Each warning `check` raised on the file, as `CODE message`.
+    pub warnings: &'a [String],
+}
+
+/// The checklist of a chain.
+pub fn checklist(chain: &Chain, plan: &Plan, from: &Sources<'_>) -> Checklist {
+    let w = &from.faults.window;
+    let mut review = leads(plan);
+    review.extend(self_heating(chain, plan));
+    review.extend(calibration(chain, plan));
+    review.extend(from.warnings.iter().map(|w| ReviewItem {
+        kind: ReviewKind::Warning,
+        text: w.clone(),
+    }));
+    let mut cautions = vec![DESIGN_AID];
+    if chain.is_protective() {
+        cautions.push(PROTECTS);
+    }
+    Checklist {
+        chain: chain.name.clone(),
+        window: WindowRow {
+            low: w.low,
+            high: w.high,
+            rails: w.rails,
+            noise_sigma_codes: w.sigma_codes,
+            k: w.k,
+        },
+        faults: from.faults.faults.iter().map(fault_row).collect(),
+        limits: from
+            .envelopes
+            .iter()
+            .map(|e| limit_row(plan, e, from.margin))
+            .collect(),
+        alarms: alarm_rows(chain, from),
+        review,
+        cautions,
+    }
+}
+
+fn fault_row(f: &super::faults::FaultVerdict) -> FaultRow {
+    FaultRow {
+        stage: f.stage.clone(),
+        fault: f.fault.kind.name(),
+        condition: f.fault.kind.describe(),
+        codes: f.codes,
+        verdict: f.verdict.name(),
+        threshold: f.threshold.map(super::review::outcome::threshold_text),
+        reason: f.reason.clone(),
+        action: match f.verdict {
+            Verdict::Detectable => "flag the reading invalid and hold the output safe while the code is past the threshold".to_string(),
+            Verdict::Silent | Verdict::Undetermined => f
+                .fix
+                .clone()
+                .unwrap_or_else(|| "not detectable from the code: detect it another way".to_string()),
+        },
+    }
+}
+
+fn limit_row(plan: &Plan, e: &Envelope, margin: f64) -> LimitRow {
+    let headroom = e.headroom();
+    LimitRow {
+        stage: plan.names.get(e.node).cloned().unwrap_or_default(),
+        limit: e.limit.describe().to_string(),
+        unit: e.unit.symbol().to_string(),
+        allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
+        reach: [e.reach.0, e.reach.1],
+        headroom,
+        status: if headroom < 0.0 {
+            LimitStatus::Beyond
+        } else if headroom < margin {
+            LimitStatus::UnderMargin
+        } else {
+            LimitStatus::Inside
+        },
+    }
+}
+
+fn alarm_rows(chain: &Chain, from: &Sources<'_>) -> Vec<AlarmRow> {
+    let (unit, f) = chain.difference_unit();
+    let m_unit = chain.measurand_unit();
+    from.maskings
+        .iter()
+        .map(|m| AlarmRow {
+            side: m.alarm.side.clone(),
+            at: from_si(m.alarm.at, &m_unit),
+            trip_at: from_si(m.alarm.trip_at, &m_unit),
+            guard_band: m.alarm.guard_band * f,
+            measurand_unit: m_unit.clone(),
+            unit: unit.clone(),
+            code: m.alarm.code,
+            trip_code: m.alarm.trip_code,
+            masked_by: m
+                .faults
+                .iter()
+                .filter_map(|&i| from.faults.faults.get(i))
+                .map(|f| format!("{} {}", f.stage, f.fault.kind.name()))
+                .collect(),
+        })
+        .collect()
+}
+
+/// Each wired element's leads to measure as installed: the budget holds
+/// the resistance the spec states, the installation decides the real one.
+fn leads(plan: &Plan) -> Vec<ReviewItem> {
+    (0..plan.nodes.len())
+        .filter_map(|n| lead_item(plan, n))
+        .map(|text| ReviewItem {
+            kind: ReviewKind::Leads,
+            text,
+        })
+        .collect()
+}
+
+/// What to measure of node `n`'s wiring, for the kinds wired to the
+/// field.
+fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
+    let ohms = |x: f64| with_prefix(x, "Ω", 3);
+    let name = &plan.names[n];
+    match &plan.nodes[n] {
+        Node::Rtd(node::Rtd {
+            wiring,
+            leads: Some((a, b)),
+            ..
+        }) => {
+            let (a, b) = (&plan.slots[*a], &plan.slots[*b]);
+            let seen = match wiring {
+                Wiring::TwoWire => "2-wire: the reading sees both leads in series",
+                Wiring::ThreeWire => {
+                    "3-wire: the reading sees the two leads' difference, so they must match"
+                }
+                Wiring::FourWire => {
+                    "4-wire: the reading sees no lead, but the excitation's compliance must cover their loop"
+                }
+            };
+            Some(format!(
+                "measure the installed lead resistance of `{name}`: the spec assumes {} (−{} +{}) and {} (−{} +{}), a loop of {}; {seen}",
+                ohms(a.nominal),
+                ohms(a.minus),
+                ohms(a.plus),
+                ohms(b.nominal),
+                ohms(b.minus),
+                ohms(b.plus),
+                ohms(rtd::lead_loop_resistance(a.nominal, b.nominal))
+            ))
+        }
+        Node::Rtd(node::Rtd { leads: None, .. }) => Some(format!(
+            "measure the installed lead resistance of `{name}`: the spec states none, so the budget holds no lead error"
+        )),
+        Node::Thermocouple(_) => Some(format!(
+            "measure the installed loop resistance of `{name}`: the spec states none, so any bias or burnout current's drop across it is not in the budget"
+        )),
+        Node::Thermistor(_)
+        | Node::Excitation(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
+    }
+}
+
+/// The slot of an element's dissipation constant, where it states one.
+fn dissipation(node: &Node) -> Option<usize> {
+    match node {
+        Node::Rtd(node::Rtd { dissipation, .. })
+        | Node::Thermistor(node::Thermistor { dissipation, .. }) => *dissipation,
+        Node::Excitation(_)
+        | Node::Thermocouple(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
+    }
+}
+
+/// The self-heating of each element that states a dissipation constant,
+/// at the chosen excitation: its resistance with and without heating at
+/// the range ends (reference ambient), as a temperature through its
+/// slope there, and the power that makes it (P = ΔT·δ, IEC 60751's
+/// self-heating coefficient read the other way).
+fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
+    plan.nodes
+        .iter()
+        .enumerate()
+        .filter_map(|(n, node)| {
+            let slot = dissipation(node)?;
+            let delta = plan.nominal[slot];
+            let ends = [plan.range.0, plan.range.1].map(|m| heating_at(plan, n, slot, m).map(|k| (m, k)));
+            let worst = ends
+                .iter()
+                .filter_map(|e| e.as_ref().ok())
+                .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()));
+            let Some(&(at, kelvin)) = worst else {
+                // Said, not dropped: the item still asks for the check.
+                let why = ends.iter().find_map(|e| e.as_ref().err()).map_or(String::new(), |e| format!(" ({e})"));
+                return Some(ReviewItem {
+                    kind: ReviewKind::SelfHeating,
+                    text: format!(
+                        "self-heating of `{}` could not be evaluated{why}; measure it at the chosen excitation in the installed mounting",
+                        plan.names[n]
+                    ),
+                });
+            };
+            let power = kelvin.abs() * delta;
+            let m_unit = chain.measurand_unit();
+            Some(ReviewItem {
+                kind: ReviewKind::SelfHeating,
+                text: format!(
+                    "self-heating of `{}` at the chosen excitation: {} K at {} {m_unit} ({} dissipated, δ = {}/K); confirm the dissipation constant in the installed mounting and medium, or lower the excitation",
+                    plan.names[n],
+                    trimmed(kelvin, 3),
+                    trimmed(from_si(at, &m_unit), 6),
+                    with_prefix(power, "W", 3),
+                    with_prefix(delta, "W", 3)
+                ),
+            })
+        })
+        .collect()
+}
+
+/// Element `n`'s self-heating in K at measurand `m`: its resistance as
+/// evaluated, less its resistance with no heating (a dissipation
+/// constant so large the rise underflows; the physics refuses an
+/// infinite one), over the slope of its unheated resistance.
+fn heating_at(plan: &Plan, n: NodeId, slot: usize, m: f64) -> Result<f64, EvalError> {
+    let resistance = |values: &[f64], m: f64| -> Result<f64, EvalError> {
+        let env = Env {
+            measurand: m,
+            ambient: plan.reference,
+            cold_junction: plan.reference,
+        };
+        let signals = plan.raw_signals(values, &env)?;
+        Ok(match signals[n] {
+            Signal::Element(r) => r,
+            other => other.value_unit().0,
+        })
+    };
+    let mut cold = plan.nominal.clone();
+    cold[slot] = f64::MAX;
+    let h = ((plan.range.1 - plan.range.0) * 1e-4).max(1e-6);
+    let slope = (resistance(&cold, m + h)? - resistance(&cold, m - h)?) / (2.0 * h);
+    let excess = resistance(&plan.nominal, m)? - resistance(&cold, m)?;
+    Ok(if slope != 0.0 { excess / slope } else { 0.0 })
+}
+
+/// The calibration points and the uncertainty of the reference each is
+/// taken against.
+fn calibration(chain: &Chain, plan: &Plan) -> Option<ReviewItem> {
+    let Node::Convert(node::Convert { conversion, .. }) = &plan.nodes[plan.reading] else {
+        return None;
+    };
+    let m_unit = chain.measurand_unit();
+    let (diff, f) = chain.difference_unit();
+    let point = |at: f64, error: Option<usize>| {
+        let reference = match error.map(|s| &plan.slots[s]) {
+            Some(s) => format!(
+                "against a reference good to −{} +{} {diff}",
+                trimmed(s.minus * f, 3),
+                trimmed(s.plus * f, 3)
+            ),
+            None => "against a reference whose uncertainty the spec does not state (the budget takes it as exact)".to_string(),
+        };
+        format!("{} {m_unit} {reference}", trimmed(from_si(at, &m_unit), 6))
+    };
+    let text = match conversion.calibration {
+        Calibration::None => return None,
+        Calibration::Offset { at, error } => {
+            format!("offset calibration at {}", point(at, error))
+        }
+        Calibration::TwoPoint { at, errors } => format!(
+            "two-point calibration at {} and at {}",
+            point(at.0, errors.0),
+            point(at.1, errors.1)
+        ),
+    };
+    Some(ReviewItem {
+        kind: ReviewKind::Calibration,
+        text: format!("{text}; record the reference's certificate with the calibration"),
+    })
+}

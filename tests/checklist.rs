@@ -1,0 +1,168 @@
+//! The checklist's one model: its review items against hand
+//! calculations, and the report's faults-and-limits section and verdict
+//! against `catena checklist` of the same spec.
+
+mod common;
+
+use common::{catena, json, root};
+use serde_json::Value;
+
+fn checklist(spec: &str) -> Value {
+    let run = catena(&root(), &["checklist", spec, "--format", "json"], None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    json(&run.stdout)
+}
+
+fn report(spec: &str) -> Value {
+    let run = catena(
+        &root(),
+        &["report", spec, "--format", "json", "--trials", "0"],
+        None,
+    );
+    assert!(run.status <= 1, "{}", run.stderr);
+    json(&run.stdout)
+}
+
+/// The review item of `kind` that names `stage`.
+fn review<'a>(list: &'a Value, kind: &str, stage: &str) -> &'a str {
+    list["chains"][0]["review"]
+        .as_array()
+        .expect("review items")
+        .iter()
+        .filter(|r| r["kind"] == kind)
+        .filter_map(|r| r["text"].as_str())
+        .find(|t| t.contains(&format!("`{stage}`")))
+        .unwrap_or_else(|| panic!("no {kind} item for {stage}: {list}"))
+}
+
+/// `x` to three significant digits, as the checklist writes it.
+fn three(x: f64) -> String {
+    let digits = 2 - x.abs().log10().floor() as i32;
+    format!("{:.*}", digits.max(0) as usize, x)
+}
+
+/// The cold store's Pt1000 (IEC 60751, A = 3.9083e-3, B = -5.775e-7) on
+/// a 250 uA source with a 2 mW/K dissipation constant, worst at the top
+/// of its range, 15 degC: R = 1000 (1 + 15 A + 225 B) = 1058.49 ohm,
+/// P = I^2 R = 66.2 uW, and the self-heating P / delta = 0.0331 K (worked
+/// by hand; the element's own heating raises R slightly, well inside
+/// the third digit).
+#[test]
+fn self_heating_is_i_squared_r_over_the_dissipation_constant() {
+    let list = checklist("specs/cold_store.catena");
+    let text = review(&list, "self_heating", "probe");
+    let r = 1000.0 * (1.0 + 15.0 * 3.9083e-3 + 225.0 * -5.775e-7);
+    let power = 250e-6_f64.powi(2) * r;
+    let kelvin = power / 2e-3;
+    assert!(
+        text.contains(&format!("{} K at 15 degC", three(kelvin))),
+        "{text}"
+    );
+    assert!(
+        text.contains(&format!("{} uW dissipated", three(power * 1e6))),
+        "{text}"
+    );
+}
+
+/// The leads the spec states, and what a 3-wire connection sees of them.
+#[test]
+fn the_leads_to_measure_are_the_stated_ones() {
+    let list = checklist("specs/cold_store.catena");
+    let text = review(&list, "leads", "probe");
+    assert!(text.contains("1.50 Ω (−200 mΩ +200 mΩ)"), "{text}");
+    assert!(text.contains("a loop of 3.00 Ω"), "{text}");
+    assert!(text.contains("3-wire"), "{text}");
+}
+
+/// The calibration point and its reference's stated uncertainty.
+#[test]
+fn the_calibration_reference_is_listed() {
+    let list = checklist("specs/cold_store.catena");
+    let item = list["chains"][0]["review"]
+        .as_array()
+        .expect("review items")
+        .iter()
+        .find(|r| r["kind"] == "calibration")
+        .expect("a calibration item");
+    let text = item["text"].as_str().expect("text");
+    assert!(
+        text.contains("offset calibration at 0 degC against a reference good to −0.05 +0.05 K"),
+        "{text}"
+    );
+}
+
+/// The report's section is the checklist, and its verdict lists exactly
+/// the faults the checklist finds firmware cannot see, for every demo.
+#[test]
+fn the_report_renders_the_checklist_model() {
+    for spec in common::demo_specs() {
+        let spec = spec.strip_prefix(root()).expect("under the root");
+        let spec = spec.to_string_lossy();
+        let list = checklist(&spec);
+        let doc = report(&spec);
+        for (chain, listed) in doc["chains"]
+            .as_array()
+            .expect("chains")
+            .iter()
+            .zip(list["chains"].as_array().expect("chains"))
+        {
+            let section = &chain["faults"];
+            for key in ["window", "faults", "limits", "alarms"] {
+                assert_eq!(section[key], listed[key], "{spec} {key}");
+            }
+            let hidden: Vec<(String, String)> = listed["faults"]
+                .as_array()
+                .expect("faults")
+                .iter()
+                .filter(|f| f["verdict"] != "detectable")
+                .map(|f| (f["stage"].to_string(), f["fault"].to_string()))
+                .collect();
+            let verdict: Vec<(String, String)> = chain["verdict"]["faults"]
+                .as_array()
+                .expect("verdict faults")
+                .iter()
+                .map(|f| (f["stage"].to_string(), f["fault"].to_string()))
+                .collect();
+            assert_eq!(hidden, verdict, "{spec}");
+            // Its limit rows are the report's own limits.
+            for (row, limit) in section["limits"]
+                .as_array()
+                .expect("limits")
+                .iter()
+                .zip(chain["limits"].as_array().expect("limits"))
+            {
+                assert_eq!(row["reach"], limit["reach"], "{spec}");
+                assert_eq!(row["headroom"], limit["headroom"], "{spec}");
+            }
+        }
+    }
+}
+
+/// A chain with an alarm carries the caution; the faults-and-limits
+/// section sits after calibration and before the alarms.
+#[test]
+fn the_section_order_and_the_caution() {
+    let list = checklist("specs/cold_store.catena");
+    let cautions = list["chains"][0]["cautions"].to_string();
+    assert!(
+        cautions.contains("functional-safety standard"),
+        "{cautions}"
+    );
+    let run = catena(
+        &root(),
+        &[
+            "report",
+            "specs/cold_store.catena",
+            "--format",
+            "md",
+            "--trials",
+            "0",
+        ],
+        None,
+    );
+    let md = run.stdout;
+    let at = |h: &str| md.find(h).unwrap_or_else(|| panic!("no {h}"));
+    assert!(at("### Calibration") < at("### Faults and limits"));
+    assert!(at("### Faults and limits") < at("### Alarms and trips"));
+    assert!(at("### Alarms and trips") < at("### Cautions"));
+}
