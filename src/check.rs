@@ -34,6 +34,8 @@ pub struct Analysed {
     pub plan: Option<Plan>,
     /// The analysis its requirements were judged on.
     pub analysis: Option<Analysis>,
+    /// The fault verdicts and maskings its fault findings came from.
+    pub faults: Option<analysis::faults::FaultCheck>,
 }
 
 impl CheckedFile {
@@ -49,6 +51,11 @@ impl CheckedFile {
             Some(plan) => Ok(Cow::Borrowed(plan)),
             None => eval::lower(chain).map(Cow::Owned),
         }
+    }
+
+    /// The fault verdicts the check judged `chain`'s faults on.
+    pub fn faults(&self, chain: &Chain) -> Option<&analysis::faults::FaultCheck> {
+        self.analysed(chain)?.faults.as_ref()
     }
 
     /// The analysis `chain`'s requirements were judged on, for a report to
@@ -146,6 +153,7 @@ pub fn check_bytes_configured(
                 analysed.push(Analysed {
                     plan: checked.plan,
                     analysis: checked.analysis,
+                    faults: checked.faults,
                 });
             }
         }

@@ -415,15 +415,27 @@ fn fault_thresholds_and_trip_codes_are_the_checklists() {
                         assert!(high < n && n < f["codes"][0].as_i64().unwrap(), "{what}");
                         Some(format!("code > {n}"))
                     }
+                    // A fault that leaves the code at either end.
+                    (Some(a), Some(b)) => {
+                        assert!(a < low && high < b, "{what}");
+                        Some(format!("code < {a} or code > {b}"))
+                    }
                     _ => None,
                 };
                 assert_eq!(threshold.as_deref(), r["threshold"].as_str(), "{what}");
-                if let Some(name) = f["constant"].as_str() {
-                    let n = f["below"].as_i64().or(f["above"].as_i64()).unwrap();
-                    assert!(
-                        rust.contains(&format!("pub const {name}: i64 = {n};")),
-                        "{what}"
-                    );
+                if let Some(names) = f["constant"].as_str() {
+                    for name in names.split(", ") {
+                        let n = if name.ends_with("_BELOW") {
+                            f["below"].as_i64()
+                        } else {
+                            f["above"].as_i64()
+                        }
+                        .unwrap();
+                        assert!(
+                            rust.contains(&format!("pub const {name}: i64 = {n};")),
+                            "{what}"
+                        );
+                    }
                 }
             }
             let alarms = c["alarms"].as_array().unwrap();

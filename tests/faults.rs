@@ -61,8 +61,18 @@ fn a_shorted_ntc_in_a_low_side_divider_reads_zero() {
     assert_eq!(codes(short), (0, 0));
     assert_eq!(short["verdict"], "detectable");
     assert_eq!(codes(row(&list, "ntc", "open")), (4095, 4095));
-    // The supply is also the reference: both at 0 V, nothing sets the code.
-    assert_eq!(row(&list, "rail", "lost")["verdict"], "undetermined");
+    // The supply is also the reference: both at 0 V, the converter runs
+    // to one end or the other (its own offset decides which), and both
+    // ends lie outside the window.
+    let lost = row(&list, "rail", "lost");
+    assert_eq!(codes(lost), (0, 4095));
+    assert_eq!(lost["verdict"], "detectable");
+    assert!(
+        lost["threshold"]
+            .as_str()
+            .is_some_and(|t| t.contains(" or code > ")),
+        "{lost}"
+    );
 }
 
 /// An open thermocouple with a 50 nA burnout current into its 1 MΩ ± 1 %
@@ -114,6 +124,140 @@ fn an_open_thermocouple_reading_inside_the_window_is_silent() {
     assert_eq!(list["chains"][0]["window"]["high"], 52368);
     let action = open["action"].as_str().expect("an action");
     assert!(action.contains("at least 1.58 uA"), "{action}");
+}
+
+/// An open load on a current-output sensor: with nowhere to send its
+/// current, the sensor's output rises to its 5 V ± 5 % supply, above the
+/// 4.096 V reference, so the 12-bit converter reads its top code, 4095.
+#[test]
+fn an_open_load_on_a_current_output_sensor_reads_its_supply() {
+    let list = checklist("check_open_load_on_ptat.catena");
+    let open = row(&list, "load", "open");
+    assert_eq!(codes(open), (4095, 4095));
+    assert_eq!(open["verdict"], "detectable");
+}
+
+/// `catena check --format json` on a fixture in `tests/fixtures/faults/`:
+/// its exit status and findings.
+fn check(name: &str) -> (i32, Vec<Value>) {
+    let spec = format!("tests/fixtures/faults/{name}");
+    let run = catena(
+        &root(),
+        &["check", "--deny", "warnings", "--format", "json", &spec],
+        None,
+    );
+    let doc = json(&run.stdout);
+    let findings = doc["findings"].as_array().expect("findings").clone();
+    (run.status, findings)
+}
+
+fn only<'a>(findings: &'a [Value], code: &str) -> Vec<&'a Value> {
+    findings.iter().filter(|f| f["code"] == code).collect()
+}
+
+/// The silent open couple (its checklist row above) is a `check` finding:
+/// a warning in a chain that guards nothing, on the couple, with a second
+/// label on the converter that would carry the burnout current and the
+/// computed least current (1.58 uA, worked out above) in its help.
+#[test]
+fn check_reports_a_silent_fault_with_its_fix() {
+    let (status, findings) = check("check_open_couple_silent.catena");
+    assert_eq!(status, 1);
+    assert_eq!(findings.len(), 1, "{findings:?}");
+    let f = &findings[0];
+    assert_eq!(f["code"], "R670");
+    assert_eq!(f["severity"], "warning");
+    assert_eq!(f["line"], 10);
+    assert_eq!(f["labels"][1]["line"], 16, "the converter: {f}");
+    let help = f["help"].as_str().expect("help");
+    assert!(help.contains("at least 1.58 uA on `conv`"), "{help}");
+}
+
+/// With no burnout current the open couple floats: R671 says why and what
+/// would define it.
+#[test]
+fn check_reports_an_undetermined_fault_with_what_defines_it() {
+    let (status, findings) = check("check_open_couple_undetermined.catena");
+    assert_eq!(status, 1);
+    let f = only(&findings, "R671");
+    assert_eq!(f.len(), 1, "{findings:?}");
+    assert_eq!(f[0]["severity"], "warning");
+    let message = f[0]["message"].as_str().expect("message");
+    assert!(
+        message.contains("nothing gives the open input a path"),
+        "{message}"
+    );
+    let help = f[0]["help"].as_str().expect("help");
+    assert!(help.contains("burnout current of at least"), "{help}");
+}
+
+/// The same silent fault under an over-temperature trip is an error, and
+/// because it reads near 12 degC with the furnace past its trip, it masks
+/// the trip: R672 names both, follows from the R670, and says which way a
+/// burnout must drive.
+#[test]
+fn a_silent_fault_under_a_trip_is_an_error_and_masks_it() {
+    let (status, findings) = check("check_open_couple_alarm.catena");
+    assert_eq!(status, 1);
+    let silent = only(&findings, "R670");
+    assert_eq!(silent.len(), 1, "{findings:?}");
+    assert_eq!(silent[0]["severity"], "error");
+    let masked = only(&findings, "R672");
+    assert_eq!(masked.len(), 1, "{findings:?}");
+    let m = masked[0];
+    assert_eq!(m["severity"], "error");
+    let message = m["message"].as_str().expect("message");
+    assert!(
+        message.contains("`alarm high 350 degC`") && message.contains("`tc` open circuit"),
+        "{message}"
+    );
+    assert_eq!(m["caused_by"]["code"], "R670");
+    assert_eq!(m["labels"][1]["line"], 8, "the alarm: {m}");
+    assert!(
+        m["help"].as_str().is_some_and(|h| h.contains("up-scale")),
+        "{m}"
+    );
+}
+
+/// `protects property` makes the same fault an error without any alarm.
+#[test]
+fn a_chain_that_protects_property_makes_a_silent_fault_an_error() {
+    let (_, findings) = check("check_open_couple_protects.catena");
+    let silent = only(&findings, "R670");
+    assert_eq!(silent.len(), 1, "{findings:?}");
+    assert_eq!(silent[0]["severity"], "error");
+    assert!(only(&findings, "R672").is_empty());
+}
+
+/// A high alarm at 0.5 degC whose guard band is the GUM expanded
+/// uncertainty (k = 2) at the limit: the sensor's ± 1 K (rectangular,
+/// u = 0.57735 K), the reference's ± 0.1 % of 0.505 V read at 10 mV/K
+/// (0.0505 K, u = 0.02916 K) and half a code of 2.5 V / 4096 at 10 mV/K
+/// (0.03052 K, u = 0.01762 K): 2 √(Σu²) = 1.1567 K, so the trip sits at
+/// −0.6567 degC, below the range, and the limit that keeps it inside is
+/// 1.157 degC.
+#[test]
+fn a_trip_pushed_past_the_range_is_an_error_with_the_number() {
+    let u = [
+        1.0 / 3f64.sqrt(),
+        0.0505 / 3f64.sqrt(),
+        (2.5 / 4096.0 / 0.01 / 2.0) / 3f64.sqrt(),
+    ];
+    let guard = 2.0 * u.iter().map(|x| x * x).sum::<f64>().sqrt();
+    let trip = format!("{:.4}", 0.5 - guard);
+    assert_eq!(trip, "-0.6567");
+    let (status, findings) = check("check_trip_below_range.catena");
+    assert_eq!(status, 1);
+    let f = only(&findings, "R673");
+    assert_eq!(f.len(), 1, "{findings:?}");
+    assert_eq!(f[0]["severity"], "error");
+    assert_eq!(f[0]["line"], 8);
+    let message = f[0]["message"].as_str().expect("message");
+    assert!(message.contains(&format!("{trip} degC")), "{message}");
+    let help = f[0]["help"].as_str().expect("help");
+    // The range starts at 0 degC: a limit of 0 + the guard band or above.
+    let limit = format!("{:.3} degC", guard);
+    assert!(help.contains(&limit), "{help} lacks {limit}");
 }
 
 /// The row of `stage`'s `fault` in chain `chain` (by position).

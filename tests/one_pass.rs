@@ -124,3 +124,28 @@ fn findings_are_the_same_with_or_without_a_report() {
         }
     }
 }
+
+/// The fault verdicts `check` keeps (judged against the window built from
+/// its own range envelopes) are the ones a fresh fault analysis gives, so
+/// `catena checklist` can list them without a second pass.
+#[test]
+fn the_checks_fault_verdicts_are_the_fresh_ones() {
+    let options = CheckOptions {
+        keep: Keep::Plans,
+        ..CheckOptions::default()
+    };
+    let mut compared = 0;
+    for spec in common::demo_specs() {
+        let checked = checked(&spec, &options);
+        for chain in &checked.chains {
+            let kept = checked
+                .faults(chain)
+                .expect("a clean chain's faults are kept");
+            let plan = lower(chain).expect("it lowers");
+            let fresh = catena::analysis::faults::check(chain, &plan, None).expect("it judges");
+            assert_eq!(kept, &fresh, "{} chain {}", spec.display(), chain.name);
+            compared += 1;
+        }
+    }
+    assert!(compared >= 10, "only {compared} chains compared");
+}

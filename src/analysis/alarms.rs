@@ -3,8 +3,10 @@
 //! the true value passes its limit (a low alarm, before it falls below).
 
 use super::budget;
+use crate::diagnostics::{Code, Finding, Span};
 use crate::eval::{Env, EvalError, Plan};
 use crate::model::Chain;
+use crate::units::format::{from_si, trimmed};
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct AlarmLimit {
@@ -61,4 +63,60 @@ pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit
         });
     }
     Ok(out)
+}
+
+/// R673: a trip point outside the measurand range, where the chain is
+/// neither specified nor checked (a high alarm's guard band taking its
+/// trip below the range's bottom, a limit beyond the range's end).
+pub fn outside_range(chain: &Chain, limit: &AlarmLimit, span: Span) -> Option<Finding> {
+    let measurand = chain.measurand.as_ref()?;
+    let (lo, hi) = (measurand.low, measurand.high);
+    if (lo..=hi).contains(&limit.trip_at) {
+        return None;
+    }
+    let unit = &measurand.unit;
+    let show = |x: f64| format!("{} {unit}", trimmed(from_si(x, unit), 4));
+    let (diff_unit, _) = chain.difference_unit();
+    let guard = format!(
+        "{} {diff_unit}",
+        trimmed(from_si(limit.guard_band, &diff_unit), 3)
+    );
+    let (end, inside) = if limit.trip_at < lo {
+        ("below", lo)
+    } else {
+        ("above", hi)
+    };
+    // The limit that puts the trip just inside the range.
+    let limit_inside = if limit.side == "high" {
+        inside + limit.guard_band
+    } else {
+        inside - limit.guard_band
+    };
+    let message = format!(
+        "the trip of `alarm {} {}` lies at {}, {end} the measurand range {} .. {}",
+        limit.side,
+        show(limit.at),
+        show(limit.trip_at),
+        show(lo),
+        show(hi)
+    );
+    let help = if (lo..=hi).contains(&limit_inside) {
+        format!(
+            "the guard band is {guard}: widen the measurand range to include {}, or set the limit at {} or {} so its trip stays inside the range",
+            show(limit.trip_at),
+            show(limit_inside),
+            if limit.side == "high" { "above" } else { "below" }
+        )
+    } else {
+        format!(
+            "the guard band is {guard}: widen the measurand range to include {}, or reduce the guard band with a more accurate chain",
+            show(limit.trip_at)
+        )
+    };
+    Some(
+        Finding::new(Code::R673, &chain.file, message)
+            .label(span, format!("trips at {}", show(limit.trip_at)))
+            .label(measurand.span, "the range the chain is checked over")
+            .help(help),
+    )
 }

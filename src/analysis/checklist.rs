@@ -11,7 +11,7 @@
 
 use serde::Serialize;
 
-use super::faults::{FaultReport, Masking, Threshold, Verdict};
+use super::faults::{FaultReport, Masking, Verdict};
 use super::ranges::Envelope;
 use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal};
 use crate::model::Chain;
@@ -154,7 +154,7 @@ pub fn checklist(chain: &Chain, plan: &Plan, from: &Sources<'_>) -> Checklist {
         text: w.clone(),
     }));
     let mut cautions = vec![DESIGN_AID];
-    if !chain.alarms.is_empty() {
+    if chain.is_protective() {
         cautions.push(PROTECTS);
     }
     Checklist {
@@ -185,10 +185,7 @@ fn fault_row(f: &super::faults::FaultVerdict) -> FaultRow {
         condition: f.fault.kind.describe(),
         codes: f.codes,
         verdict: f.verdict.name(),
-        threshold: f.threshold.map(|t| match t {
-            Threshold::Below(n) => format!("code < {n}"),
-            Threshold::Above(n) => format!("code > {n}"),
-        }),
+        threshold: f.threshold.map(super::review::outcome::threshold_text),
         reason: f.reason.clone(),
         action: match f.verdict {
             Verdict::Detectable => "flag the reading invalid and hold the output safe while the code is past the threshold".to_string(),

@@ -7,11 +7,13 @@
 
 use super::alarms::{alarm_limits, AlarmLimit};
 use super::budget;
-use super::window::{code_window, CodeWindow};
+use super::ranges::Envelope;
+use super::window::{code_window, code_window_from, CodeWindow};
+use crate::diagnostics::{Cause, Code, Finding, Findings, Severity};
 use crate::eval::fault::{Fault, FaultCode, FaultKind};
 use crate::eval::{grid, Env, EvalError, Node, NodeId, Plan, SourceKind};
 use crate::model::Chain;
-use crate::units::format::with_prefix;
+use crate::units::format::{from_si, trimmed, with_prefix};
 
 /// Measurand points a fault's codes are taken at, across the range.
 const POINTS: usize = 5;
@@ -35,11 +37,44 @@ impl Verdict {
 }
 
 /// The test firmware applies to a code: the fault is present when the
-/// code is below (or above) the value.
+/// code is below (or above) the value, or outside both.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Threshold {
     Below(i64),
     Above(i64),
+    Outside(i64, i64),
+}
+
+/// Whether a fault is a wiring mistake made at installation rather than a
+/// failure in service: it is there from the first power-up, so the
+/// bring-up test finds it, and `check` reports it only where it would
+/// hide a trip. A reversed couple reads near its cold junction's
+/// temperature whatever the design, so no code window can catch it.
+pub fn found_at_bring_up(kind: FaultKind) -> bool {
+    match kind {
+        FaultKind::Reversed => true,
+        FaultKind::Open
+        | FaultKind::Short
+        | FaultKind::Lost
+        | FaultKind::SaturatedHigh
+        | FaultKind::SaturatedLow
+        | FaultKind::OverRange
+        | FaultKind::UnderRange
+        | FaultKind::ReferenceLost
+        | FaultKind::CompensationLeadOpen
+        | FaultKind::ForceLeadOpen
+        | FaultKind::ReturnLeadOpen
+        | FaultKind::SenseLeadOpen
+        | FaultKind::ReturnSenseLeadOpen
+        | FaultKind::SenseLeadsShorted
+        | FaultKind::StuckHigh
+        | FaultKind::InputOpen
+        | FaultKind::CompletionOpen(_)
+        | FaultKind::CompletionShort(_)
+        | FaultKind::ExcitationLeadOpen
+        | FaultKind::ExcitationReturnOpen
+        | FaultKind::SignalLeadOpen => false,
+    }
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -54,6 +89,13 @@ pub struct FaultVerdict {
     pub reason: Option<String>,
     /// What would make a silent or undetermined fault detectable, computed.
     pub fix: Option<String>,
+    /// The stage that fix goes on (the amplifier or converter that would
+    /// carry a burnout current, the source that needs its compliance).
+    pub fix_at: Option<String>,
+    /// Undetermined only because the spec leaves out a limit it may leave
+    /// out (a source's compliance, an amplifier's swing): an unchecked
+    /// fault, as an unstated limit is an unchecked limit.
+    pub unstated: bool,
 }
 
 /// Every fault of a chain judged against its window.
@@ -65,7 +107,11 @@ pub struct FaultReport {
 
 /// The chain's faults and their verdicts.
 pub fn analyse(chain: &Chain, plan: &Plan) -> Result<FaultReport, EvalError> {
-    let window = code_window(chain, plan)?;
+    analyse_in(chain, plan, code_window(chain, plan)?)
+}
+
+/// [`analyse`] against a window already computed.
+fn analyse_in(chain: &Chain, plan: &Plan, window: CodeWindow) -> Result<FaultReport, EvalError> {
     let cases = Cases::of(chain, plan);
     let faults = plan
         .faults()
@@ -85,6 +131,11 @@ struct Cases {
 
 impl Cases {
     fn of(chain: &Chain, plan: &Plan) -> Cases {
+        Cases::at(chain, plan, &grid(plan.range, POINTS))
+    }
+
+    /// The cases at the given measurand points.
+    fn at(chain: &Chain, plan: &Plan, measurands: &[f64]) -> Cases {
         let mut limits = Vec::new();
         for (i, slot) in plan.slots.iter().enumerate() {
             if slot.kind == SourceKind::Exact {
@@ -98,7 +149,7 @@ impl Cases {
         }
         let mut envs = Vec::new();
         for &ambient in &budget::ambients(chain) {
-            for &measurand in &grid(plan.range, POINTS) {
+            for &measurand in measurands {
                 envs.push(Env {
                     measurand,
                     ambient,
@@ -110,38 +161,112 @@ impl Cases {
     }
 }
 
-/// A fault's code range, or why it has none: at each condition, the
-/// nominal code widened by every source's deviation at its limits, added
-/// up on each side (the worst case the window's envelope takes too).
+/// A fault's codes, or why it has none: at each condition, the nominal
+/// code widened by every source's deviation at its limits, added up on
+/// each side (the worst case the window's envelope takes too). A converter
+/// driven to its ends gives those ends, not the span between them: a code
+/// at an end is a clamp, not a value deviations add to; and one left at
+/// an end that nothing chooses gives both.
 fn code_range(
     plan: &Plan,
     cases: &Cases,
     window: &CodeWindow,
     fault: &Fault,
-) -> Result<(i64, i64), String> {
+) -> Result<Codes, String> {
+    let ends = (window.rails.0 as f64, window.rails.1 as f64);
     let code = |values: &[f64], env: &Env| match plan.faulted_code(values, env, fault) {
-        Ok(FaultCode::Code(exact)) => Ok(exact),
+        Ok(FaultCode::Code(exact)) => Ok(Some(exact)),
+        Ok(FaultCode::EitherEnd) => Ok(None),
         Ok(FaultCode::Undetermined(why)) => Err(why.to_string()),
         Err(e) => Err(e.to_string()),
     };
-    let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+    let at_end = |c: Option<f64>| c.is_none_or(|c| c <= ends.0 || c >= ends.1);
+    let mut codes = Codes::default();
     for env in &cases.envs {
         let nominal = code(&plan.nominal, env)?;
+        let at_limits = cases
+            .limits
+            .iter()
+            .map(|values| code(values, env))
+            .collect::<Result<Vec<_>, _>>()?;
+        // Without a nominal code to deviate from, each limit's own code.
+        if nominal.is_none() || at_end(nominal) && at_limits.iter().all(|&c| at_end(c)) {
+            for c in std::iter::once(nominal).chain(at_limits) {
+                match c {
+                    Some(c) => codes.add(c, c, window),
+                    None => {
+                        codes.add(ends.0, ends.0, window);
+                        codes.add(ends.1, ends.1, window);
+                    }
+                }
+            }
+            continue;
+        }
+        // Somewhere between the ends: the worst case of the deviations,
+        // a limit that rails either way adding both ends of its own.
+        let Some(nominal) = nominal else { continue };
         let (mut down, mut up) = (0.0_f64, 0.0_f64);
-        for pair in cases.limits.chunks(2) {
+        for pair in at_limits.chunks(2) {
             let mut worst = (0.0_f64, 0.0_f64);
-            for values in pair {
-                let d = code(values, env)? - nominal;
-                worst = (worst.0.min(d), worst.1.max(d));
+            for c in pair {
+                match c {
+                    Some(c) => worst = (worst.0.min(c - nominal), worst.1.max(c - nominal)),
+                    None => {
+                        codes.add(ends.0, ends.0, window);
+                        codes.add(ends.1, ends.1, window);
+                    }
+                }
             }
             down += worst.0;
             up += worst.1;
         }
-        lo = lo.min(nominal + down);
-        hi = hi.max(nominal + up);
+        codes.add(nominal + down, nominal + up, window);
     }
-    let clamp = |x: f64| (x.round() as i64).clamp(window.rails.0, window.rails.1);
-    Ok((clamp(lo), clamp(hi)))
+    codes.spans.sort_unstable();
+    codes.spans.dedup();
+    Ok(codes)
+}
+
+/// The codes a fault gives: one span per condition, inside the
+/// converter's code range.
+#[derive(Clone, Debug, Default, PartialEq)]
+struct Codes {
+    spans: Vec<(i64, i64)>,
+}
+
+impl Codes {
+    fn add(&mut self, lo: f64, hi: f64, window: &CodeWindow) {
+        let clamp = |x: f64| (x.round() as i64).clamp(window.rails.0, window.rails.1);
+        self.spans.push((clamp(lo), clamp(hi)));
+    }
+
+    /// The lowest and highest code.
+    fn hull(&self) -> (i64, i64) {
+        let lo = self.spans.iter().map(|s| s.0).min().unwrap_or(0);
+        let hi = self.spans.iter().map(|s| s.1).max().unwrap_or(0);
+        (lo, hi)
+    }
+
+    /// The firmware threshold between these codes and the window: at
+    /// least one code clear of both (the window already holds 3 σ of
+    /// noise), placed halfway; None when some code is not clear.
+    fn threshold(&self, window: &CodeWindow) -> Option<Threshold> {
+        let below = |s: &&(i64, i64)| s.1 < window.low - 1;
+        let above = |s: &&(i64, i64)| s.0 > window.high + 1;
+        if self.spans.is_empty() || !self.spans.iter().all(|s| below(&s) || above(&s)) {
+            return None;
+        }
+        let low_hi = self.spans.iter().filter(below).map(|s| s.1).max();
+        let high_lo = self.spans.iter().filter(above).map(|s| s.0).min();
+        let under = |hi: i64| hi + (window.low - hi).div_euclid(2);
+        let over = |lo: i64| window.high + (lo - window.high).div_euclid(2);
+        match (low_hi, high_lo) {
+            (Some(hi), None) => Some(Threshold::Below(under(hi))),
+            (None, Some(lo)) => Some(Threshold::Above(over(lo))),
+            (Some(hi), Some(lo)) => Some(Threshold::Outside(under(hi), over(lo))),
+            (None, None) => None,
+        }
+    }
 }
 
 fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> FaultVerdict {
@@ -154,11 +279,13 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         threshold: None,
         reason: None,
         fix: None,
+        fix_at: None,
+        unstated: false,
     };
     match code_range(plan, cases, window, &fault) {
         Ok(codes) => {
-            verdict.codes = Some(codes);
-            verdict.threshold = threshold(window, codes);
+            verdict.codes = Some(codes.hull());
+            verdict.threshold = codes.threshold(window);
             verdict.verdict = if verdict.threshold.is_some() {
                 Verdict::Detectable
             } else {
@@ -168,50 +295,117 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         Err(why) => verdict.reason = Some(why),
     }
     if verdict.verdict != Verdict::Detectable {
-        verdict.fix = fix(plan, cases, window, &fault, verdict.codes);
+        let (text, at) = fix(plan, cases, window, &fault, verdict.codes);
+        verdict.fix = text;
+        verdict.fix_at = at.map(|n| plan.names[n].clone());
+        verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
     }
     verdict
 }
 
-/// The firmware threshold between a fault's codes and the window: at least
-/// one code clear of both (the window already holds 3 σ of noise), placed
-/// halfway.
-pub fn threshold(window: &CodeWindow, (lo, hi): (i64, i64)) -> Option<Threshold> {
-    if hi < window.low - 1 {
-        Some(Threshold::Below(hi + (window.low - hi).div_euclid(2)))
-    } else if lo > window.high + 1 {
-        Some(Threshold::Above(
-            window.high + (lo - window.high).div_euclid(2),
-        ))
-    } else {
-        None
-    }
-}
-
-/// What would make the fault detectable, where it can be computed.
+/// What would make the fault detectable, where it can be computed, and
+/// the stage it goes on.
 fn fix(
     plan: &Plan,
     cases: &Cases,
     window: &CodeWindow,
     fault: &Fault,
     codes: Option<(i64, i64)>,
-) -> Option<String> {
+) -> (Option<String>, Option<NodeId>) {
+    let here = Some(fault.node);
     match (fault.kind, &plan.nodes[fault.node]) {
-        (FaultKind::Open, Node::Thermocouple(_)) => burnout_fix(plan, cases, window, fault),
-        (FaultKind::OverRange, _) => Some(format!(
+        (FaultKind::Open, Node::Thermocouple(_)) => {
+            let reader = reader_of(plan, fault.node);
+            (burnout_fix(plan, cases, window, fault), reader)
+        }
+        // The pin cut off from its source: only a current of the stage's
+        // own gives it a path, and any that outweighs the input's bias
+        // current takes it to a rail.
+        (FaultKind::InputOpen, _) if codes.is_none() => (
+            Some(format!(
+                "a burnout current on `{}` (`burnout`, larger than its input bias current) drives the open pin to a rail, outside the valid window {} .. {}",
+                plan.names[fault.node], window.low, window.high
+            )),
+            here,
+        ),
+        (_, _)
+            if codes.is_none()
+                && fault.burnout.is_none()
+                && !unstated_limit(plan, fault)
+                && reader_of(plan, fault.node).is_some() =>
+        (
+            Some(format!(
+                "a burnout current on `{}` (`burnout`, larger than its input bias current) drives the open input to a rail, outside the valid window {} .. {}",
+                plan.names[reader_of(plan, fault.node).unwrap_or(fault.node)], window.low, window.high
+            )),
+            reader_of(plan, fault.node),
+        ),
+        (FaultKind::Reversed, _) => (
+            Some("a wiring mistake the code cannot show near the cold junction's temperature: at bring-up, warm the junction and check that the reading rises".to_string()),
+            here,
+        ),
+        (FaultKind::OverRange, _) => (Some(format!(
             "keep the healthy chain off the top code: its codes reach {} of {}; lower the gain or raise the reference until they stop at least 2 codes short",
             window.high, window.rails.1
-        )),
-        (FaultKind::UnderRange, _) => Some(format!(
+        )), here),
+        (FaultKind::UnderRange, _) => (Some(format!(
             "keep the healthy chain off the bottom code: its codes reach {} of {}; add an offset or narrow the range until they stop at least 2 codes short",
             window.low, window.rails.0
-        )),
-        _ => codes.map(|(lo, hi)| {
-            format!(
-                "its codes {lo} .. {hi} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
-                window.low, window.high
-            )
-        }),
+        )), here),
+        (FaultKind::Open, _) if codes.is_none() => match unstated_compliance(plan, fault.node) {
+            Some(source) => (
+                Some(format!(
+                    "state the compliance of `{}` (`compliance`, the voltage its output runs to with no load), so the open element takes the code to a determined end",
+                    plan.names[source]
+                )),
+                Some(source),
+            ),
+            None => (None, None),
+        },
+        (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) if a.output.is_none() => (
+            Some("state the amplifier's output swing (`output`), so its saturated output gives a determined code".to_string()),
+            here,
+        ),
+        _ => (
+            codes.map(|(lo, hi)| {
+                format!(
+                    "its codes {lo} .. {hi} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
+                    window.low, window.high
+                )
+            }),
+            here,
+        ),
+    }
+}
+
+/// Whether the fault's code is undetermined only for want of a limit the
+/// spec may leave out.
+fn unstated_limit(plan: &Plan, fault: &Fault) -> bool {
+    match (fault.kind, &plan.nodes[fault.node]) {
+        // A pin's own open-input current (`burnout`) and an IC's supply
+        // are optional: without them the fault is unchecked.
+        (FaultKind::InputOpen | FaultKind::StuckHigh, _) => true,
+        (FaultKind::Open, _) => unstated_compliance(plan, fault.node).is_some(),
+        (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) => {
+            a.output.is_none()
+        }
+        _ => false,
+    }
+}
+
+/// The current source an open element on it leaves at an unstated
+/// voltage.
+fn unstated_compliance(plan: &Plan, i: NodeId) -> Option<NodeId> {
+    let input = match &plan.nodes[i] {
+        Node::Rtd(n) => n.input,
+        Node::Thermistor(n) => n.input,
+        Node::Resistor(n) => n.input,
+        Node::StrainGauge(n) => n.input,
+        _ => None,
+    }?;
+    match &plan.nodes[input] {
+        Node::Excitation(e) if e.current && e.compliance.is_none() => Some(input),
+        _ => None,
     }
 }
 
@@ -226,7 +420,7 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
         };
         code_range(plan, cases, window, &trial)
             .ok()
-            .and_then(|codes| threshold(window, codes))
+            .and_then(|codes| codes.threshold(window))
             .is_some()
     };
     let (mut low, mut high) = (1e-12_f64, 1e-3_f64);
@@ -284,38 +478,51 @@ pub struct Masking {
     pub faults: Vec<usize>,
 }
 
-/// For each alarm, the faults that mask it: an undetected fault whose
-/// codes can lie on the safe side of the trip code (a high trip's sensor
-/// failing low), so a real excursion would never trip.
+/// For each alarm, the faults that mask it: with the true value at or
+/// past the trip point, an undetected fault whose codes can lie inside the
+/// valid window on the safe side of the trip code (a high trip's sensor
+/// failing low), so a real excursion would never trip. A fault whose code
+/// there leaves the window is seen by the window test and masks nothing;
+/// one whose code nothing determines masks every trip.
 pub fn maskings(
     chain: &Chain,
     plan: &Plan,
     report: &FaultReport,
-    k: f64,
+    alarms: Vec<AlarmLimit>,
 ) -> Result<Vec<Masking>, EvalError> {
+    if alarms.is_empty() {
+        return Ok(Vec::new());
+    }
     let rises = code_rises(plan)?;
-    let alarms = alarm_limits(chain, plan, k)?;
+    let window = &report.window;
     Ok(alarms
         .into_iter()
         .map(|alarm| {
             // Codes on the safe side of a high trip are below it when the
             // code rises with the measurand.
             let safe_below = (alarm.side == "high") == rises;
+            let cases = Cases::at(chain, plan, &past_trip(plan, &alarm));
+            let masks = |f: &FaultVerdict| match f.verdict {
+                Verdict::Detectable => false,
+                Verdict::Undetermined => true,
+                Verdict::Silent => match code_range(plan, &cases, window, &f.fault) {
+                    Err(_) => true,
+                    Ok(codes) => codes.spans.iter().any(|&(lo, hi)| {
+                        let inside = (lo.max(window.low), hi.min(window.high));
+                        inside.0 <= inside.1
+                            && if safe_below {
+                                inside.0 < alarm.trip_code
+                            } else {
+                                inside.1 > alarm.trip_code
+                            }
+                    }),
+                },
+            };
             let faults = report
                 .faults
                 .iter()
                 .enumerate()
-                .filter(|(_, f)| match (f.verdict, f.codes) {
-                    (Verdict::Detectable, _) => false,
-                    (_, None) => true,
-                    (_, Some((lo, hi))) => {
-                        if safe_below {
-                            lo < alarm.trip_code
-                        } else {
-                            hi > alarm.trip_code
-                        }
-                    }
-                })
+                .filter(|(_, f)| masks(f))
                 .map(|(i, _)| i)
                 .collect();
             Masking { alarm, faults }
@@ -323,5 +530,196 @@ pub fn maskings(
         .collect())
 }
 
+/// Measurand points from the trip point to the range's end beyond it (the
+/// values the trip must catch), inside the range.
+fn past_trip(plan: &Plan, alarm: &AlarmLimit) -> Vec<f64> {
+    let (lo, hi) = plan.range;
+    let from = alarm.trip_at.clamp(lo, hi);
+    let to = if alarm.side == "high" { hi } else { lo };
+    grid((from, to), POINTS)
+}
+
 /// The coverage factor trips are guarded with, as the budget's default.
 pub const TRIP_K: f64 = 2.0;
+
+/// What `check` keeps of a chain's faults: the verdicts and, per alarm,
+/// the faults that mask it, so `catena checklist` needs no second pass.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FaultCheck {
+    pub report: FaultReport,
+    pub maskings: Vec<Masking>,
+}
+
+/// The chain's faults and trips judged once: the verdicts, the alarms'
+/// trip codes (guarded with [`TRIP_K`]) and what masks them.
+/// `envelopes`, when given, are the range envelopes the limit checks took
+/// at the window's points ([`super::window::POINTS`]), so they are not
+/// followed again.
+pub fn check(
+    chain: &Chain,
+    plan: &Plan,
+    envelopes: Option<&[Envelope]>,
+) -> Result<FaultCheck, EvalError> {
+    let window = match envelopes {
+        Some(e) => code_window_from(plan, e)?,
+        None => code_window(chain, plan)?,
+    };
+    let report = analyse_in(chain, plan, window)?;
+    let alarms = alarm_limits(chain, plan, TRIP_K)?;
+    let maskings = maskings(chain, plan, &report, alarms)?;
+    Ok(FaultCheck { report, maskings })
+}
+
+/// `check`'s findings on a chain's faults and trips: R670 for a silent
+/// fault, R671 for an undetermined one (errors in a chain that protects
+/// people or property), R672 for a fault that masks a trip, R673 for a
+/// trip outside the measurand range. A chain whose window or trips could
+/// not be evaluated gets none here: evaluating the chain is the other
+/// checks' business, and `catena checklist` names the error.
+pub fn findings(chain: &Chain, checked: &FaultCheck) -> Findings {
+    let mut out = Findings::new();
+    let report = &checked.report;
+    let mut causes: Vec<Option<Cause>> = Vec::with_capacity(report.faults.len());
+    for (i, f) in report.faults.iter().enumerate() {
+        // One finding for a stage's faults that share one reason (an
+        // amplifier's swing not stated leaves it high and low alike).
+        let earlier = report.faults[..i].iter().position(|e| same_reason(e, f));
+        if let Some(first) = earlier {
+            causes.push(causes[first].clone());
+            continue;
+        }
+        let also: Vec<&FaultVerdict> = report.faults[i + 1..]
+            .iter()
+            .filter(|later| same_reason(f, later))
+            .collect();
+        let finding = fault_finding(chain, report, f, &also);
+        causes.push(finding.as_ref().map(Cause::of));
+        out.extend(finding);
+    }
+    for (m, alarm) in checked.maskings.iter().zip(&chain.alarms) {
+        out.extend(super::alarms::outside_range(chain, &m.alarm, alarm.span));
+        for &i in &m.faults {
+            let f = &report.faults[i];
+            out.push(masking_finding(chain, &m.alarm, alarm.span, f).caused_by(causes[i].clone()));
+        }
+    }
+    out
+}
+
+/// The span of the stage named `name`, if the chain has it.
+fn stage_span(chain: &Chain, name: &str) -> Option<crate::diagnostics::Span> {
+    chain
+        .stages
+        .iter()
+        .find(|s| s.name == name)
+        .map(|s| s.name_span)
+}
+
+/// Whether two undetermined faults of one stage have one reason.
+fn same_reason(a: &FaultVerdict, b: &FaultVerdict) -> bool {
+    a.verdict == Verdict::Undetermined
+        && b.verdict == Verdict::Undetermined
+        && a.stage == b.stage
+        && a.reason == b.reason
+}
+
+/// R670 or R671 for one fault the firmware cannot see (and the faults of
+/// the same stage that share its reason).
+fn fault_finding(
+    chain: &Chain,
+    report: &FaultReport,
+    f: &FaultVerdict,
+    also: &[&FaultVerdict],
+) -> Option<Finding> {
+    let w = &report.window;
+    let what = std::iter::once(f)
+        .chain(also.iter().copied())
+        .map(|f| f.fault.kind.describe())
+        .collect::<Vec<_>>()
+        .join(" or ");
+    let (code, message, here) = match (f.verdict, f.codes) {
+        (Verdict::Detectable, _) => return None,
+        _ if found_at_bring_up(f.fault.kind) => return None,
+        // A limit left unstated is left unchecked (the checklist lists the
+        // fault, with the limit to state), except where the chain guards
+        // people or property.
+        _ if f.unstated && !chain.is_protective() => return None,
+        (Verdict::Silent, Some((lo, hi))) => (
+            Code::R670,
+            format!(
+                "`{}` {what} is silent: its codes {lo} .. {hi} overlap the valid window {} .. {}",
+                f.stage, w.low, w.high
+            ),
+            "reads inside the valid window with this fault".to_string(),
+        ),
+        _ => (
+            Code::R671,
+            format!(
+                "`{}` {what} gives no determined code: {}",
+                f.stage,
+                f.reason.as_deref().unwrap_or("nothing defines it")
+            ),
+            "nothing defines the code with this fault".to_string(),
+        ),
+    };
+    let mut finding = Finding::new(code, &chain.file, message);
+    if chain.is_protective() {
+        finding.severity_override = Some(Severity::Error);
+    }
+    finding = match stage_span(chain, &f.stage) {
+        Some(span) => finding.label(span, here),
+        None => finding.label(chain.name_span, here),
+    };
+    if let Some(at) = f.fix_at.as_deref().filter(|&n| n != f.stage) {
+        if let Some(span) = stage_span(chain, at) {
+            finding = finding.label(span, "the fix goes here");
+        }
+    }
+    let help = f.fix.clone().unwrap_or_else(|| {
+        "give the faulted node a defined path (a pull-up or pull-down to a rail) so the fault drives the code outside the valid window".to_string()
+    });
+    Some(finding.help(help))
+}
+
+/// R672: a fault that keeps an alarm from tripping.
+fn masking_finding(
+    chain: &Chain,
+    alarm: &AlarmLimit,
+    alarm_span: crate::diagnostics::Span,
+    f: &FaultVerdict,
+) -> Finding {
+    let unit = chain.measurand_unit();
+    let show = |x: f64| format!("{} {unit}", trimmed(from_si(x, &unit), 4));
+    let (safe, toward) = if alarm.side == "high" {
+        ("low", "up-scale")
+    } else {
+        ("high", "down-scale")
+    };
+    let how = if f.verdict == Verdict::Undetermined {
+        "nothing determines the fault's code, so it can read"
+    } else {
+        "the fault can read"
+    };
+    let message = format!(
+        "`alarm {} {}` is masked by `{}` {}: with the value at its trip point ({}, code {}) {how} {safe}, inside the valid window",
+        alarm.side,
+        show(alarm.at),
+        f.stage,
+        f.fault.kind.describe(),
+        show(alarm.trip_at),
+        alarm.trip_code
+    );
+    let mut finding = Finding::new(Code::R672, &chain.file, message);
+    finding = match stage_span(chain, &f.stage) {
+        Some(span) => finding.label(span, format!("can fail reading {safe}")),
+        None => finding.label(chain.name_span, format!("can fail reading {safe}")),
+    };
+    finding = finding.label(alarm_span, "this trip would never fire");
+    let fix = match &f.fix {
+        Some(fix) => format!("{fix}; "),
+        None => String::new(),
+    };
+    finding.help(format!(
+        "{fix}make the fault detectable and have the firmware trip on its threshold too (`catena checklist` gives it), or drive it {toward}, toward the trip"
+    ))
+}

@@ -22,7 +22,7 @@ pub mod step;
 pub mod validation;
 pub mod window;
 
-use crate::diagnostics::{Code, Finding, Findings, Span};
+use crate::diagnostics::{Code, Finding, Findings, Severity, Span};
 use crate::eval::{lower_stages, lower_unvalidated, valid_measurand_range, Env, EvalError, Plan};
 use crate::model::{AccuracyMethod, Chain};
 use crate::physics::solve::bisect_at_most;
@@ -265,6 +265,8 @@ impl Default for CheckOptions {
 pub struct ChainCheck {
     pub plan: Option<Plan>,
     pub analysis: Option<report::Analysis>,
+    /// The fault verdicts and maskings its findings came from.
+    pub faults: Option<faults::FaultCheck>,
     pub findings: Findings,
 }
 
@@ -299,9 +301,13 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         }
     };
     findings.extend(corner_error(chain, &plan, measurand));
+    let mut envelopes = None;
     if findings.is_empty() {
         match ranges::envelopes(chain, &plan, options.points) {
-            Ok(envelopes) => findings.extend(ranges::findings(chain, &plan, &envelopes, margin)),
+            Ok(e) => {
+                findings.extend(ranges::findings(chain, &plan, &e, margin));
+                envelopes = Some(e);
+            }
             Err(e) => findings.push(eval_finding(chain, &e, at_measurand.clone())),
         }
     }
@@ -311,13 +317,33 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         findings.extend(flat_code(chain, &plan, measurand, options.points));
     }
     let mut analysis = None;
-    if !findings.has_errors() && !chain.requirements.is_empty() {
+    // A chain that evaluates cleanly has its faults and trips judged (once:
+    // the checklist reuses them), whatever its requirements' verdicts.
+    let sound = !findings.has_errors();
+    if sound && !chain.requirements.is_empty() {
         analysis = judge(chain, &plan, options, &mut findings, at_measurand);
+    }
+    // A requirement missed leaves the chain as sound as before; any other
+    // error the judgement raised (a number that is not one) does not.
+    let sound = sound
+        && !findings.iter().any(|f| {
+            f.severity() == Severity::Error
+                && !matches!(f.code, Code::R611 | Code::R612 | Code::R613 | Code::R614)
+        });
+    // The window is taken at its own points, whatever `--points` says, so
+    // the verdicts are the checklist's.
+    let reuse = envelopes
+        .as_deref()
+        .filter(|_| options.points == window::POINTS);
+    let faults = sound.then(|| faults::check(chain, &plan, reuse));
+    if let Some(Ok(checked)) = &faults {
+        findings.extend(faults::findings(chain, checked));
     }
     let keep = options.keep != Keep::Nothing;
     ChainCheck {
         plan: keep.then_some(plan),
         analysis: analysis.filter(|_| keep),
+        faults: faults.and_then(Result::ok).filter(|_| keep),
         findings,
     }
 }

@@ -13,7 +13,6 @@ use super::budget;
 use super::noise::noise;
 use super::ranges::{self, Limit};
 use crate::eval::{Env, EvalError, Node, Plan};
-use crate::model::typed::CombineOp;
 use crate::model::Chain;
 use crate::physics::adc::{code_range, Polarity};
 
@@ -22,7 +21,7 @@ use crate::physics::adc::{code_range, Polarity};
 pub const NOISE_K: f64 = 3.0;
 
 /// Budget points across the measurand range, as the limit checks use.
-const POINTS: usize = 21;
+pub const POINTS: usize = 21;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct CodeWindow {
@@ -51,6 +50,15 @@ impl CodeWindow {
 
 /// The chain's valid code window at its main converter.
 pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> {
+    code_window_from(plan, &ranges::envelopes(chain, plan, POINTS)?)
+}
+
+/// [`code_window`] from the range envelopes the limit checks already
+/// computed (at the budget points), so `check` follows the signals once.
+pub fn code_window_from(
+    plan: &Plan,
+    envelopes: &[ranges::Envelope],
+) -> Result<CodeWindow, EvalError> {
     let Node::Adc(adc) = &plan.nodes[plan.adc] else {
         return Err(numeric(plan, "no converter"));
     };
@@ -58,38 +66,14 @@ pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> 
         Polarity::Unipolar => 2f64.powi(adc.bits as i32),
         Polarity::Bipolar => 2f64.powi(adc.bits as i32 - 1),
     };
-    let mut rails = code_range(adc.bits, adc.polarity)
+    let rails = code_range(adc.bits, adc.polarity)
         .map_err(|_| numeric(plan, "the converter has no code range"))?;
-    let envelopes = ranges::envelopes(chain, plan, POINTS)?;
-    let input_reach = |node: usize| {
-        envelopes
-            .iter()
-            .find(|e| e.node == node && e.limit == Limit::ConverterInput)
-            .map(|e| e.reach)
-            .ok_or_else(|| numeric(plan, "no converter input envelope"))
-    };
+    let envelope = envelopes
+        .iter()
+        .find(|e| e.node == plan.adc && e.limit == Limit::ConverterInput)
+        .ok_or_else(|| numeric(plan, "no converter input envelope"))?;
     // The envelope is in fractions of the reference: back to codes.
-    let own = input_reach(plan.adc)?;
-    let mut reach = (own.0 * per_ref, own.1 * per_ref);
-    match &adc.combine {
-        None => {}
-        // Added channels: each one's reach adds, a bound on the sum's
-        // (their extremes need not come together), and so do the rails.
-        Some((CombineOp::Sum, others)) => {
-            for &other in others {
-                let r = input_reach(other)?;
-                reach = (reach.0 + r.0 * per_ref, reach.1 + r.1 * per_ref);
-            }
-            let n = 1 + others.len() as i64;
-            rails = (rails.0 * n, rails.1 * n);
-        }
-        Some((CombineOp::Ratio, _)) => {
-            return Err(numeric(
-                plan,
-                "the code is a ratio of two channels: its valid window is not worked out",
-            ))
-        }
-    }
+    let reach = (envelope.reach.0 * per_ref, envelope.reach.1 * per_ref);
     let sigma_codes = noise_codes(plan)?;
     let widen = NOISE_K * sigma_codes;
     let code = |x: f64| (x.round() as i64).clamp(rails.0, rails.1);

@@ -12,12 +12,12 @@ use std::path::PathBuf;
 use clap::{Args, ValueEnum};
 
 use super::files::check_one;
-use super::report::{chain_checklist, warnings};
+use super::report::{about_faults, chain_checklist, warnings};
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::checklist::{Checklist, LimitStatus};
 use crate::analysis::ranges::{envelopes, DEFAULT_MARGIN};
 use crate::analysis::Keep;
-use crate::diagnostics::render_human;
+use crate::diagnostics::{render_human, Severity};
 use crate::emit::report::fmt::{position, share, si, value};
 use crate::model::Chain;
 use crate::units::format::trimmed;
@@ -61,7 +61,11 @@ pub fn run(args: ChecklistArgs) -> u8 {
         Err(status) => return status,
     };
     let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
-    if checked.findings.has_errors() {
+    let blocking = checked
+        .findings
+        .iter()
+        .any(|f| f.severity() == Severity::Error && !about_faults(f.code));
+    if blocking {
         err!(
             "{}",
             render_human(
@@ -137,8 +141,15 @@ fn chain_list(
         )
         .map_err(|e| e.to_string())?,
     };
-    chain_checklist(chain, &plan, &found, margin, warnings)
-        .ok_or_else(|| "its faults could not be evaluated".to_string())
+    chain_checklist(
+        chain,
+        &plan,
+        &found,
+        margin,
+        warnings,
+        checked.faults(chain),
+    )
+    .ok_or_else(|| "its faults could not be evaluated".to_string())
 }
 
 fn markdown(list: &Checklist) -> String {

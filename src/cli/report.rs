@@ -11,13 +11,13 @@ use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::checklist::{checklist, Checklist, Sources};
-use crate::analysis::faults::{self, TRIP_K};
+use crate::analysis::faults::{self, FaultCheck};
 use crate::analysis::ranges::Envelope;
 use crate::analysis::ranges::DEFAULT_MARGIN;
 use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS};
 use crate::analysis::soundness;
 use crate::diagnostics::did_you_mean;
-use crate::diagnostics::{render_human, Findings, Severity};
+use crate::diagnostics::{render_human, Code, Findings, Severity};
 use crate::emit::report::{
     chain_report, failed_report, render, summary_row, BuildOptions, Report, ReportFormat,
     SCHEMA_VERSION,
@@ -191,7 +191,14 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
             });
             match analysed {
                 Ok((plan, a)) if soundness::non_finite(chain, &a).is_empty() => {
-                    let list = chain_checklist(chain, &plan, &a.envelopes, build.margin, &warnings);
+                    let list = chain_checklist(
+                        chain,
+                        &plan,
+                        &a.envelopes,
+                        build.margin,
+                        &warnings,
+                        checked.faults(chain),
+                    );
                     chain_report(chain, &plan, &a, list, &build)
                 }
                 Ok(_) => failed_report(
@@ -222,33 +229,49 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
     })
 }
 
-/// Every warning the check raised on the file, as `CODE message`: the
-/// checklist's review items.
+/// Whether a finding is one of the fault and trip findings the checklist
+/// is about (listed there, never a reason to refuse it).
+pub fn about_faults(code: Code) -> bool {
+    matches!(code, Code::R670 | Code::R671 | Code::R672 | Code::R673)
+}
+
+/// Every warning the check raised on the file, and its fault and trip
+/// findings, as `CODE message`: the checklist's review items.
 pub fn warnings(findings: &Findings) -> Vec<String> {
     findings
         .iter()
-        .filter(|f| f.severity() == Severity::Warning)
-        .map(|f| format!("warning {}: {}", f.code.as_str(), f.message))
+        .filter(|f| f.severity() == Severity::Warning || about_faults(f.code))
+        .map(|f| {
+            let level = match f.severity() {
+                Severity::Warning => "warning",
+                Severity::Error => "error",
+            };
+            format!("{level} {}: {}", f.code.as_str(), f.message)
+        })
         .collect()
 }
 
 /// A chain's fault-and-limit checklist from its envelopes; None when its
 /// faults cannot be evaluated.
+/// `kept` is the fault judgement the check made, when it kept one.
 pub fn chain_checklist(
     chain: &Chain,
     plan: &Plan,
     envelopes: &[Envelope],
     margin: f64,
     warnings: &[String],
+    kept: Option<&FaultCheck>,
 ) -> Option<Checklist> {
-    let report = faults::analyse(chain, plan).ok()?;
-    let maskings = faults::maskings(chain, plan, &report, TRIP_K).ok()?;
+    let judged = match kept {
+        Some(k) => k.clone(),
+        None => faults::check(chain, plan, None).ok()?,
+    };
     Some(checklist(
         chain,
         plan,
         &Sources {
-            faults: &report,
-            maskings: &maskings,
+            faults: &judged.report,
+            maskings: &judged.maskings,
             envelopes,
             margin,
             warnings,

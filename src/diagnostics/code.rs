@@ -140,6 +140,7 @@ codes! {
     P311 => Error, "missing measurand";
     P312 => Error, "setting given twice";
     P313 => Error, "percentage without a basis";
+    P350 => Error, "unknown protected kind";
     P335 => Error, "coefficients for a standard curve";
 
     M201 => Error, "duplicate stage name";
@@ -202,6 +203,10 @@ codes! {
     R625 => Warning, "point outside the measurand range";
     R626 => Error, "reading clamped outside the range";
     R630 => Error, "converter input not settled";
+    R670 => Warning, "silent fault";
+    R671 => Warning, "undetermined fault";
+    R672 => Error, "trip masked by a fault";
+    R673 => Error, "trip outside the measurand range";
 
     C801 => Error, "malformed configuration file";
     C802 => Error, "unknown configuration key";

@@ -191,6 +191,9 @@ pub struct Fault {
 pub enum Faulted {
     Signal(Signal),
     Undetermined(&'static str),
+    /// A converter at one of its end codes, which one its own offset
+    /// decides (no reference and no input: it rails either way).
+    EitherEnd,
 }
 
 /// The converter's exact code under a fault, or why nothing determines it.
@@ -198,6 +201,8 @@ pub enum Faulted {
 pub enum FaultCode {
     Code(f64),
     Undetermined(&'static str),
+    /// At the bottom or the top code, which one is not determined.
+    EitherEnd,
 }
 
 impl Plan {
@@ -300,6 +305,7 @@ impl Plan {
             match s {
                 Faulted::Signal(s) => signals[i] = s,
                 Faulted::Undetermined(why) => return Ok(FaultCode::Undetermined(why)),
+                Faulted::EitherEnd => return Ok(FaultCode::EitherEnd),
             }
         }
         match signals[self.adc] {

@@ -24,6 +24,8 @@ pub struct Chain {
     pub reference: f64,
     pub requirements: Vec<Requirement>,
     pub alarms: Vec<Alarm>,
+    /// What the chain states it protects (`protects people`).
+    pub protects: Option<Protects>,
     pub stages: Vec<Stage>,
     pub connections: Vec<Connection>,
     /// Stages whose values track each other (`track` lines).
@@ -37,6 +39,13 @@ impl Chain {
             .as_ref()
             .map(|m| m.unit.clone())
             .unwrap_or_default()
+    }
+
+    /// Whether the chain guards people or property: it trips or alarms,
+    /// or says so (`protects`). Such a chain's outputs carry the cautions,
+    /// and a fault it cannot detect is an error rather than a warning.
+    pub fn is_protective(&self) -> bool {
+        !self.alarms.is_empty() || self.protects.is_some()
     }
 
     /// The unit errors are shown in (the measurand's difference unit: K
@@ -87,6 +96,14 @@ impl Measurand {
 pub struct Requirement {
     pub kind: super::RequirementKind,
     pub value: ParamValue,
+    pub span: Span,
+}
+
+/// A chain's statement that it protects people or property.
+#[derive(Clone, Debug)]
+pub struct Protects {
+    pub people: bool,
+    pub property: bool,
     pub span: Span,
 }
 

@@ -21,7 +21,8 @@ use std::path::Path;
 use std::sync::Arc;
 
 pub use chain::{
-    Alarm, Bill, Chain, Connection, Measurand, Requirement, Stage, TrackGroup, TrackMember,
+    Alarm, Bill, Chain, Connection, Measurand, Protects, Requirement, Stage, TrackGroup,
+    TrackMember,
 };
 pub use graph::output_signals;
 pub use parts::PartsCache;
@@ -232,6 +233,7 @@ fn resolve_chain(
         reference,
         requirements: settings.requirements,
         alarms: settings.alarms,
+        protects: settings.protects,
         stages,
         connections,
         groups,

@@ -3,7 +3,7 @@
 
 use std::sync::Arc;
 
-use super::chain::{Alarm, Measurand, Requirement};
+use super::chain::{Alarm, Measurand, Protects, Requirement};
 use super::interpret::{interpret, Context};
 use super::requirement::{AccuracyMethod, RequirementKind};
 use super::schema::{Expect, Plausible, Shape};
@@ -33,6 +33,7 @@ pub struct Settings {
     pub reference: Option<f64>,
     pub requirements: Vec<Requirement>,
     pub alarms: Vec<Alarm>,
+    pub protects: Option<Protects>,
 }
 
 pub fn resolve(file: &Arc<SourceFile>, chain: &ChainDecl, findings: &mut Findings) -> Settings {
@@ -131,6 +132,7 @@ impl Settings {
             SettingKind::Reference => reference(setting, &cx).map(|r| self.reference = r),
             SettingKind::Require => requirement(setting, &cx).map(|r| self.requirements.push(r)),
             SettingKind::Alarm => alarm(setting, &cx).map(|a| self.alarms.push(a)),
+            SettingKind::Protects => protects(setting, file).map(|p| self.protects = Some(p)),
         }
     }
 }
@@ -288,6 +290,52 @@ fn requirement(setting: &Setting, cx: &Context<'_>) -> Result<Requirement, Box<F
         value,
         span: setting.span,
     })
+}
+
+/// What a chain may say it protects.
+const PROTECTED: [&str; 2] = ["people", "property"];
+
+/// `protects people`, `protects property` or `protects people, property`.
+fn protects(setting: &Setting, file: &Arc<SourceFile>) -> Result<Protects, Box<Finding>> {
+    let example = "`protects people`, `protects property` or `protects people, property`";
+    let mut out = Protects {
+        people: false,
+        property: false,
+        span: setting.span,
+    };
+    let mut expect_word = true;
+    for value in &setting.values {
+        match (value, expect_word) {
+            (Value::Word(w), true) if PROTECTED.contains(&w.name.as_str()) => {
+                match w.name.as_str() {
+                    "people" => out.people = true,
+                    _ => out.property = true,
+                }
+                expect_word = false;
+            }
+            (Value::Word(w), true) => {
+                let near = did_you_mean(&w.name, PROTECTED.into_iter());
+                return Err(Box::new(
+                    Finding::new(
+                        Code::P350,
+                        file,
+                        format!("`{}` is not something a chain protects", w.name),
+                    )
+                    .label(w.span, "expected `people` or `property`")
+                    .help(match near {
+                        Some(n) => format!("did you mean `{n}`?"),
+                        None => format!("write {example}"),
+                    }),
+                ));
+            }
+            (Value::Comma(_), false) => expect_word = true,
+            _ => return Err(malformed(file, setting, example)),
+        }
+    }
+    if expect_word {
+        return Err(malformed(file, setting, example));
+    }
+    Ok(out)
 }
 
 /// The requirement a `require` line names (P306, P310 otherwise).

@@ -60,16 +60,18 @@ pub enum SettingKind {
     Reference,
     Require,
     Alarm,
+    Protects,
 }
 
 impl SettingKind {
-    pub const ALL: [SettingKind; 6] = [
+    pub const ALL: [SettingKind; 7] = [
         SettingKind::Title,
         SettingKind::Measurand,
         SettingKind::Ambient,
         SettingKind::Reference,
         SettingKind::Require,
         SettingKind::Alarm,
+        SettingKind::Protects,
     ];
 
     pub fn keyword(self) -> &'static str {
@@ -80,6 +82,7 @@ impl SettingKind {
             SettingKind::Reference => "reference",
             SettingKind::Require => "require",
             SettingKind::Alarm => "alarm",
+            SettingKind::Protects => "protects",
         }
     }
 

@@ -131,6 +131,7 @@ pub fn threshold_text(t: Threshold) -> String {
     match t {
         Threshold::Below(n) => format!("code < {n}"),
         Threshold::Above(n) => format!("code > {n}"),
+        Threshold::Outside(a, b) => format!("code < {a} or code > {b}"),
     }
 }
 

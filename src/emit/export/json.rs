@@ -208,6 +208,7 @@ fn fault_json(f: &FaultVerdict) -> FaultJson<'_> {
     let (below, above) = match f.threshold {
         Some(Threshold::Below(n)) => (Some(n), None),
         Some(Threshold::Above(n)) => (None, Some(n)),
+        Some(Threshold::Outside(a, b)) => (Some(a), Some(b)),
         None => (None, None),
     };
     FaultJson {

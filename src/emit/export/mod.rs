@@ -342,32 +342,44 @@ fn curve_constants(chain: &ChainExport) -> Vec<Constant> {
     out
 }
 
-/// A detectable fault's threshold constant: `FAULT_<STAGE>_<FAULT>_BELOW`
-/// (the fault is present at codes below it) or `_ABOVE`.
-pub fn fault_name(f: &FaultVerdict) -> Option<String> {
-    let side = match f.threshold? {
-        Threshold::Below(_) => "BELOW",
-        Threshold::Above(_) => "ABOVE",
+/// A detectable fault's threshold constants: `FAULT_<STAGE>_<FAULT>_BELOW`
+/// (the fault is present at codes below it), `_ABOVE`, or both for a fault
+/// that leaves the code at either end; each with its code and side.
+pub fn fault_constants_of(f: &FaultVerdict) -> Vec<(String, i64, &'static str)> {
+    let sides = match f.threshold {
+        Some(Threshold::Below(n)) => vec![(n, "BELOW")],
+        Some(Threshold::Above(n)) => vec![(n, "ABOVE")],
+        Some(Threshold::Outside(a, b)) => vec![(a, "BELOW"), (b, "ABOVE")],
+        None => Vec::new(),
     };
-    Some(format!(
-        "FAULT_{}_{}_{side}",
-        f.stage.to_uppercase(),
-        f.fault.kind.name().to_uppercase()
-    ))
+    sides
+        .into_iter()
+        .map(|(code, side)| {
+            let name = format!(
+                "FAULT_{}_{}_{side}",
+                f.stage.to_uppercase(),
+                f.fault.kind.name().to_uppercase()
+            );
+            (name, code, side)
+        })
+        .collect()
+}
+
+/// A detectable fault's threshold constant names, comma-separated.
+pub fn fault_name(f: &FaultVerdict) -> Option<String> {
+    let names: Vec<String> = fault_constants_of(f).into_iter().map(|c| c.0).collect();
+    (!names.is_empty()).then(|| names.join(", "))
 }
 
 fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
     let mut out = Vec::new();
     for f in &chain.faults {
-        let (Some(name), Some(threshold), Some((lo, hi))) = (fault_name(f), f.threshold, f.codes)
-        else {
+        let Some((lo, hi)) = f.codes else {
             continue;
         };
-        let (code, side) = match threshold {
-            Threshold::Below(n) => (n, "below"),
-            Threshold::Above(n) => (n, "above"),
-        };
-        out.push(constant(
+        for (name, code, side) in fault_constants_of(f) {
+            let side = if side == "BELOW" { "below" } else { "above" };
+            out.push(constant(
             &name,
             format!(
                 "fault threshold for `{}` {} (fault `{}`): with it the converter gives codes {lo} .. {hi}, outside the valid window; a code {side} this means the fault (placed halfway between the window and the fault's codes)",
@@ -378,6 +390,7 @@ fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
             "code",
             Value::Code(code),
         ));
+        }
     }
     out
 }

@@ -11,6 +11,7 @@
 //! the fault analysis's own result (`analysis::faults`), taken as it is.
 
 use super::junction::{junction, measuring_couple, Inputs, Junction};
+use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
 use crate::analysis::faults::{self, FaultReport, FaultVerdict};
 use crate::analysis::window::CodeWindow;
@@ -141,6 +142,8 @@ pub struct AlarmExport {
 #[derive(Clone, Debug, PartialEq)]
 pub struct ChainExport {
     pub chain: String,
+    /// It trips or alarms, or says it protects people or property.
+    pub protective: bool,
     pub title: Option<String>,
     pub quantity: String,
     /// The reading's unit (`degC`) and its difference unit (`K`).
@@ -190,9 +193,10 @@ impl ChainExport {
         }
     }
 
-    /// Whether the chain trips anything: its export carries the caution.
+    /// Whether the chain trips anything or protects people or property:
+    /// its export carries the caution.
     pub fn needs_caution(&self) -> bool {
-        !self.alarms.is_empty()
+        self.protective
     }
 }
 
@@ -302,6 +306,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         window: window.clone(),
         alarms: alarms(chain, plan, &report, &to_unit)?,
         faults: report.faults,
+        protective: chain.is_protective(),
         calibration,
         junction,
         max_error_junction: None,
@@ -676,7 +681,8 @@ fn alarms(
 ) -> Result<Vec<AlarmExport>, EvalError> {
     let k = budget::Options::default().k;
     let (_, factor) = chain.difference_unit();
-    Ok(faults::maskings(chain, plan, report, k)?
+    let limits = alarm_limits(chain, plan, k)?;
+    Ok(faults::maskings(chain, plan, report, limits)?
         .into_iter()
         .map(|m| {
             let a = m.alarm;

@@ -670,7 +670,7 @@ fn calibration(plan: &Plan, a: &Analysis, units: &Units) -> Option<CalibrationSe
 /// usually protect people or property.
 fn cautions(chain: &Chain, verdict: &Verdict) -> Vec<String> {
     let mut out = vec![DESIGN_AID.to_string()];
-    if !chain.alarms.is_empty() {
+    if chain.is_protective() {
         out.push(PROTECTS.to_string());
     }
     if verdict.limits.iter().any(|l| l.beyond) {

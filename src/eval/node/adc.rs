@@ -185,7 +185,8 @@ impl Adc {
 
     /// Its code behind a fault upstream, or with one of its own. Without a
     /// reference, an input above zero is beyond full scale and one below
-    /// beyond the bottom, as any converter clamps them.
+    /// beyond the bottom, as any converter clamps them; an input of zero
+    /// too still leaves it at an end, which one being its offset's sign.
     pub(super) fn faulted(
         &self,
         run: &Run<'_>,
@@ -229,7 +230,10 @@ impl Adc {
         } else if v < 0.0 {
             rail(lo)
         } else {
-            Faulted::Undetermined("the converter's input and reference are both zero")
+            // No reference to balance against: the modulator or the
+            // successive approximation runs to an end, on the side its own
+            // offset takes it.
+            Faulted::EitherEnd
         })
     }
 

@@ -237,11 +237,17 @@ impl Plan {
         }
     }
 
-    /// A current source's compliance, V; None for another node or one
-    /// that states none.
-    fn compliance(&self, i: NodeId) -> Option<f64> {
+    /// A current source's compliance, V: an excitation's stated one, or
+    /// for a current-output sensor the supply it is wired to (with no
+    /// load it saturates toward it); None for another node or one that
+    /// states none.
+    fn compliance(&self, i: NodeId, s: &[Signal; MAX_NODES]) -> Option<f64> {
         match &self.nodes[i] {
             Node::Excitation(e) if e.current => e.compliance,
+            Node::IcCurrent(n) => match n.input.map(|supply| s[supply]) {
+                Some(Signal::Source(v)) if v > 0.0 => Some(v),
+                _ => None,
+            },
             _ => None,
         }
     }
@@ -367,7 +373,8 @@ impl Run<'_> {
         Ok(match (kind, self.current_into(input)) {
             (FaultKind::Short, _) => Faulted::Signal(self.element(SHORT_OHMS + lead, input)),
             (FaultKind::Open, None) => Faulted::Signal(Signal::Element(OPEN_OHMS)),
-            (FaultKind::Open, Some(_)) => match input.and_then(|n| self.plan.compliance(n)) {
+            (FaultKind::Open, Some(_)) => match input.and_then(|n| self.plan.compliance(n, self.s))
+            {
                 // The saturated source holds the node: no source resistance.
                 Some(v) => Faulted::Signal(Signal::Voltage {
                     v,

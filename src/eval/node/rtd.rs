@@ -234,7 +234,7 @@ impl Rtd {
     /// current the stage reading the element sources into an open input.
     pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
         let kind = fault.kind;
-        let compliance = self.input.and_then(|n| run.plan.compliance(n));
+        let compliance = self.input.and_then(|n| run.plan.compliance(n, run.s));
         let healthy = || match self.eval(run)? {
             Signal::Voltage { v, cm, rs } => Ok((v, cm, rs)),
             _ => Err(run.numeric("no voltage")),
