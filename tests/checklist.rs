@@ -69,7 +69,7 @@ fn self_heating_is_i_squared_r_over_the_dissipation_constant() {
 fn the_leads_to_measure_are_the_stated_ones() {
     let list = checklist("specs/cold_store.catena");
     let text = review(&list, "leads", "probe");
-    assert!(text.contains("1.50 Ω (−200 mΩ +200 mΩ)"), "{text}");
+    assert!(text.contains("1.50 Ω ± 200 mΩ on one lead"), "{text}");
     assert!(text.contains("a loop of 3.00 Ω"), "{text}");
     assert!(text.contains("3-wire"), "{text}");
 }
@@ -86,7 +86,7 @@ fn the_calibration_reference_is_listed() {
         .expect("a calibration item");
     let text = item["text"].as_str().expect("text");
     assert!(
-        text.contains("offset calibration at 0 degC against a reference good to −0.05 +0.05 K"),
+        text.contains("offset calibration at 0 degC against a reference good to ± 0.05 K"),
         "{text}"
     );
 }

@@ -252,6 +252,16 @@ fn leads(plan: &Plan) -> Vec<ReviewItem> {
         .collect()
 }
 
+/// A tolerance as a reader writes it: `± x` when both sides agree,
+/// else `−a +b`.
+fn spread(minus: f64, plus: f64, show: impl Fn(f64) -> String) -> String {
+    if minus == plus {
+        format!("± {}", show(plus))
+    } else {
+        format!("−{} +{}", show(minus), show(plus))
+    }
+}
+
 /// What to measure of node `n`'s wiring, for the kinds wired to the
 /// field.
 fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
@@ -274,13 +284,11 @@ fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
                 }
             };
             Some(format!(
-                "measure the installed lead resistance of `{name}`: the spec assumes {} (−{} +{}) and {} (−{} +{}), a loop of {}; {seen}",
+                "measure the installed lead resistance of `{name}`: the spec assumes {} {} on one lead and {} {} on the other, a loop of {}; {seen}",
                 ohms(a.nominal),
-                ohms(a.minus),
-                ohms(a.plus),
+                spread(a.minus, a.plus, ohms),
                 ohms(b.nominal),
-                ohms(b.minus),
-                ohms(b.plus),
+                spread(b.minus, b.plus, ohms),
                 ohms(rtd::lead_loop_resistance(a.nominal, b.nominal))
             ))
         }
@@ -406,9 +414,8 @@ fn calibration(chain: &Chain, plan: &Plan) -> Option<ReviewItem> {
     let point = |at: f64, error: Option<usize>| {
         let reference = match error.map(|s| &plan.slots[s]) {
             Some(s) => format!(
-                "against a reference good to −{} +{} {diff}",
-                trimmed(s.minus * f, 3),
-                trimmed(s.plus * f, 3)
+                "against a reference good to {} {diff}",
+                spread(s.minus * f, s.plus * f, |x| trimmed(x, 3))
             ),
             None => "against a reference whose uncertainty the spec does not state (the budget takes it as exact)".to_string(),
         };

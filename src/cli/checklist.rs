@@ -105,7 +105,9 @@ pub fn run(args: ChecklistArgs) -> u8 {
             let doc = serde_json::json!({ "schema_version": SCHEMA_VERSION, "chains": lists });
             serde_json::to_string_pretty(&doc).unwrap_or_default() + "\n"
         }
-        ListFormat::Md => lists.iter().map(markdown).collect::<Vec<_>>().join("\n"),
+        ListFormat::Md => {
+            ends_with_newline(lists.iter().map(markdown).collect::<Vec<_>>().join("\n"))
+        }
     };
     match &args.output {
         Some(path) => match crate::emit::write_atomic(path, text.as_bytes()) {
@@ -120,6 +122,15 @@ pub fn run(args: ChecklistArgs) -> u8 {
             EXIT_OK
         }
     }
+}
+
+/// A text file's last line ends with a newline, so what follows it on a
+/// terminal, and a file's diff, starts on a line of its own.
+fn ends_with_newline(mut text: String) -> String {
+    if !text.ends_with('\n') {
+        text.push('\n');
+    }
+    text
 }
 
 /// One chain's checklist from the check's plan; its envelopes are the
