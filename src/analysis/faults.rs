@@ -303,6 +303,24 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     verdict
 }
 
+/// How large a burnout current on stage `n` must be: more than the input
+/// bias current it must outweigh, with that current's figure where the
+/// stage states one.
+fn outweighs_bias(plan: &Plan, n: NodeId) -> String {
+    if let Node::Amplifier(amp) = &plan.nodes[n] {
+        if let Some(slot) = amp.bias.map(|b| &plan.slots[b]) {
+            let most = slot.nominal.abs() + slot.plus.max(slot.minus);
+            if most > 0.0 {
+                return format!(
+                    "more than its input bias current of up to {}",
+                    with_prefix(most, "A", 3)
+                );
+            }
+        }
+    }
+    "more than its input bias current".to_string()
+}
+
 /// What would make the fault detectable, where it can be computed, and
 /// the stage it goes on.
 fn fix(
@@ -323,8 +341,8 @@ fn fix(
         // current takes it to a rail.
         (FaultKind::InputOpen, _) if codes.is_none() => (
             Some(format!(
-                "a burnout current on `{}` (`burnout`, larger than its input bias current) drives the open pin to a rail, outside the valid window {} .. {}",
-                plan.names[fault.node], window.low, window.high
+                "a burnout current on `{}` (`burnout`, {}) drives the open pin to a rail, outside the valid window {} .. {}",
+                plan.names[fault.node], outweighs_bias(plan, fault.node), window.low, window.high
             )),
             here,
         ),
@@ -335,8 +353,10 @@ fn fix(
                 && reader_of(plan, fault.node).is_some() =>
         (
             Some(format!(
-                "a burnout current on `{}` (`burnout`, larger than its input bias current) drives the open input to a rail, outside the valid window {} .. {}",
-                plan.names[reader_of(plan, fault.node).unwrap_or(fault.node)], window.low, window.high
+                "a burnout current on `{}` (`burnout`, {}) drives the open input to a rail, outside the valid window {} .. {}",
+                plan.names[reader_of(plan, fault.node).unwrap_or(fault.node)],
+                outweighs_bias(plan, reader_of(plan, fault.node).unwrap_or(fault.node)),
+                window.low, window.high
             )),
             reader_of(plan, fault.node),
         ),
