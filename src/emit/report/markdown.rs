@@ -7,6 +7,7 @@ use std::fmt::Write;
 use super::fmt::{method, plain, position, share, si, value};
 use super::model::{ChainReport, Checklist, Report};
 use crate::analysis::checklist::{LimitStatus, ReviewKind};
+use crate::units::format::attenuation_db;
 
 /// A plot file beside the Markdown: its id (`error`, `contributors`,
 /// `headroom`, `path`, `step`, `frequency`, `diagram`, `codes`), title and
@@ -421,16 +422,16 @@ fn dynamics(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
     for [hz, db] in &d.mains {
         let _ = writeln!(
             out,
-            "| attenuation at {} Hz | {} dB |",
+            "| attenuation at {} Hz | {} |",
             plain(*hz),
-            plain(*db)
+            attenuation_db(*db)
         );
     }
     if let Some(db) = d.at_rate_db {
         let _ = writeln!(
             out,
-            "| analog filter at the conversion rate | {} dB |",
-            plain(db)
+            "| analog filter at the conversion rate | {} |",
+            attenuation_db(db)
         );
     }
     out.push('\n');

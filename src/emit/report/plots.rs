@@ -122,7 +122,7 @@ fn error_plots(c: &ChainReport, key: &str) -> Vec<Plot> {
                 id: format!("{key}-error-{k}"),
                 title: title.clone(),
                 x: Axis::linear(&c.summary.quantity, &c.measurand_unit, lo, hi),
-                y: Axis::nice("error", &c.unit, -top * 1.05, top * 1.05),
+                y: Axis::linear("error", &c.unit, -top * 1.05, top * 1.05),
                 items,
             };
             plot("error", k, title, chart.render())
@@ -224,7 +224,7 @@ fn step(c: &ChainReport, key: &str) -> Option<Plot> {
         id: format!("{key}-step"),
         title: title.clone(),
         x: Axis::linear("time", "s", 0.0, last[0]),
-        y: Axis::nice("reading", "%", 0.0, 110.0),
+        y: Axis::linear("reading", "%", 0.0, 110.0),
         items,
     };
     Some(plot("step", 0, title, chart.render()))
@@ -260,7 +260,7 @@ fn frequency(c: &ChainReport, key: &str) -> Option<Plot> {
         id: format!("{key}-frequency"),
         title: title.clone(),
         x: Axis::logarithmic("frequency", "Hz", first[0], last[0]),
-        y: Axis::nice("gain", "dB", floor, 0.0),
+        y: Axis::linear("gain", "dB", floor, 0.0),
         items,
     };
     Some(plot("frequency", 0, title, chart.render()))
@@ -301,7 +301,7 @@ fn codes(c: &ChainReport, key: &str) -> Option<Plot> {
         })
         .collect();
     let title = "Each fault's codes against the valid code window".to_string();
-    let axis = Axis::nice(
+    let axis = Axis::linear(
         "converter code",
         "% of full scale",
         pct(w.rails.0).min(0.0),
@@ -381,7 +381,7 @@ fn headroom(c: &ChainReport, margin: f64, key: &str) -> Option<Plot> {
             c.summary.range[0],
             c.summary.range[1],
         ),
-        y: Axis::nice(
+        y: Axis::linear(
             "position in the allowed range",
             "%",
             lo.max(-100.0),
