@@ -389,3 +389,40 @@ fn compare_sums_cost_and_power() {
     // delivered power, not missing.
     assert_eq!(ntc["unpowered"], serde_json::json!([]));
 }
+
+/// Adding `protects` is a change a reviewer must see: the line itself,
+/// and the silent fault it turns from a warning into an error.
+#[test]
+fn a_protects_line_shows_with_the_severities_it_moves() {
+    let (old, new) = (
+        "tests/fixtures/faults/check_open_couple_silent.catena",
+        "tests/fixtures/faults/check_open_couple_protects.catena",
+    );
+    let run = diff(old, new, "0", &["--format", "json"]);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let doc = json(&run.stdout);
+    let chain = &doc["files"][0]["chains"][0];
+    let spec = chain["spec"].as_array().expect("spec changes");
+    let protects = spec
+        .iter()
+        .find(|c| c["subject"] == "protects")
+        .unwrap_or_else(|| panic!("protects is a change: {spec:?}"));
+    assert_eq!(protects["kind"], "added");
+    assert_eq!(protects["new"]["text"], "protects property");
+    assert_eq!(protects["new"]["line"], 7);
+    let faults = chain["outcome"]["faults"]
+        .as_array()
+        .expect("fault changes");
+    let open = faults
+        .iter()
+        .find(|f| f["stage"] == "tc" && f["fault"] == "open")
+        .unwrap_or_else(|| panic!("the open couple's severity moved: {faults:?}"));
+    assert_eq!(open["old"]["severity"], "warning");
+    assert_eq!(open["new"]["severity"], "error");
+
+    // And back: removing it is told the same way.
+    let human = diff(new, old, "0", &[]);
+    assert_eq!(human.status, 0, "{}", human.stderr);
+    assert!(human.stdout.contains("protects"), "{}", human.stdout);
+    assert!(human.stdout.contains("(error)"), "{}", human.stdout);
+}

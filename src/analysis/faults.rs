@@ -643,6 +643,24 @@ fn same_reason(a: &FaultVerdict, b: &FaultVerdict) -> bool {
         && a.reason == b.reason
 }
 
+/// The severity `check` reports a fault with (R670 or R671), or None when
+/// it reports nothing of it: a detectable fault, one found at bring-up,
+/// and one whose limit is left unstated in a chain that guards nobody.
+/// A chain that protects people or property makes them errors.
+pub fn reported_severity(chain: &Chain, f: &FaultVerdict) -> Option<Severity> {
+    if f.verdict == Verdict::Detectable
+        || found_at_bring_up(f.fault.kind)
+        || (f.unstated && !chain.is_protective())
+    {
+        return None;
+    }
+    Some(if chain.is_protective() {
+        Severity::Error
+    } else {
+        Severity::Warning
+    })
+}
+
 /// R670 or R671 for one fault the firmware cannot see (and the faults of
 /// the same stage that share its reason).
 fn fault_finding(
@@ -657,13 +675,11 @@ fn fault_finding(
         .map(|f| f.fault.kind.describe())
         .collect::<Vec<_>>()
         .join(" or ");
+    // A limit left unstated is left unchecked (the checklist lists the
+    // fault, with the limit to state), except where the chain guards
+    // people or property.
+    let severity = reported_severity(chain, f)?;
     let (code, message, here) = match (f.verdict, f.codes) {
-        (Verdict::Detectable, _) => return None,
-        _ if found_at_bring_up(f.fault.kind) => return None,
-        // A limit left unstated is left unchecked (the checklist lists the
-        // fault, with the limit to state), except where the chain guards
-        // people or property.
-        _ if f.unstated && !chain.is_protective() => return None,
         (Verdict::Silent, Some((lo, hi))) => (
             Code::R670,
             format!(
@@ -683,7 +699,7 @@ fn fault_finding(
         ),
     };
     let mut finding = Finding::new(code, &chain.file, message);
-    if chain.is_protective() {
+    if severity == Severity::Error {
         finding.severity_override = Some(Severity::Error);
     }
     finding = match stage_span(chain, &f.stage) {

@@ -10,6 +10,7 @@ use serde::Serialize;
 use super::super::faults::{self, FaultReport, Threshold, Verdict};
 use super::super::ranges::Limit;
 use super::super::report::Analysis;
+use crate::diagnostics::Severity;
 use crate::eval::{Env, Plan};
 use crate::model::typed::StageModel;
 use crate::model::{Chain, RequirementKind, Stage};
@@ -107,6 +108,10 @@ pub struct FaultOutcome {
     /// The firmware's test, `code < N` or `code > N`, for a detectable one.
     #[serde(serialize_with = "threshold_words")]
     pub threshold: Option<Threshold>,
+    /// How `check` reports it (`error`, `warning`); None when it does not
+    /// (a `protects` line turns warnings into errors).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub severity: Option<&'static str>,
 }
 
 impl FaultOutcome {
@@ -145,7 +150,7 @@ pub struct FaultsOutcome {
 }
 
 impl FaultsOutcome {
-    fn of(report: &FaultReport) -> FaultsOutcome {
+    fn of(chain: &Chain, report: &FaultReport) -> FaultsOutcome {
         FaultsOutcome {
             window: [report.window.low, report.window.high],
             rows: report
@@ -158,6 +163,10 @@ impl FaultsOutcome {
                     verdict: f.verdict,
                     codes: f.codes.map(|(lo, hi)| [lo, hi]),
                     threshold: f.threshold,
+                    severity: faults::reported_severity(chain, f).map(|s| match s {
+                        Severity::Error => "error",
+                        Severity::Warning => "warning",
+                    }),
                 })
                 .collect(),
         }
@@ -349,7 +358,7 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
             .collect(),
         faults: faults::analyse(chain, plan)
             .ok()
-            .map(|r| FaultsOutcome::of(&r)),
+            .map(|r| FaultsOutcome::of(chain, &r)),
         bill: BillOutcome::of(chain, a),
         largest: largest(a),
         trials: a.trials,
