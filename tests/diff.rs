@@ -426,3 +426,30 @@ fn a_protects_line_shows_with_the_severities_it_moves() {
     assert!(human.stdout.contains("protects"), "{}", human.stdout);
     assert!(human.stdout.contains("(error)"), "{}", human.stdout);
 }
+
+/// A cost takes a number alone and a power a power unit: `cost 5 %` is
+/// not a price of 0.05, nor `power 5 %` a power.
+#[test]
+fn a_cost_takes_no_unit_and_a_power_takes_watts() {
+    let dir = common::temp_dir("diff", "units");
+    let spec = std::fs::read_to_string(root().join(fixture("candidates.catena")))
+        .expect("the fixture reads");
+    std::fs::create_dir_all(dir.join("parts")).expect("parts folder");
+    std::fs::copy(
+        root().join(fixture("parts/priced.yaml")),
+        dir.join("parts/priced.yaml"),
+    )
+    .expect("parts copy");
+    for (line, code) in [("cost 5 %", "P375"), ("power 5 %", "U102")] {
+        let text = spec.replacen("cost 0.80", &format!("cost 0.80\n        {line}"), 1);
+        let text = if line.starts_with("cost") {
+            text.replacen("cost 0.80\n", "", 1)
+        } else {
+            text
+        };
+        std::fs::write(dir.join("c.catena"), text).expect("spec written");
+        let run = catena(&dir, &["check", "c.catena", "--format", "json"], None);
+        assert_eq!(run.status, 1, "{line}: {}", run.stdout);
+        assert!(run.stdout.contains(code), "{line}: {}", run.stdout);
+    }
+}

@@ -141,6 +141,7 @@ codes! {
     P312 => Error, "setting given twice";
     P313 => Error, "percentage without a basis";
     P350 => Error, "unknown protected kind";
+    P375 => Error, "unit on a plain number";
     P335 => Error, "coefficients for a standard curve";
 
     M201 => Error, "duplicate stage name";

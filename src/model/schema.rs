@@ -28,6 +28,8 @@ pub enum Expect {
     TempDiff,
     /// A plain number, `%` or `ppm`.
     Ratio,
+    /// A plain number with no unit at all (a price in the team's currency).
+    Number,
     /// `dB` (amplitude) or a plain ratio.
     Decibel,
     /// In the chain's measurand unit (`500 N`).
@@ -221,7 +223,7 @@ const DISSIPATION: ParamSpec =
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
 /// One unit's price, in whatever currency the team prices parts in (a
 /// plain number), for the trade table of `catena compare`.
-const COST: ParamSpec = p("cost", plain(Expect::Dim(Dim::NONE))).non_negative();
+const COST: ParamSpec = p("cost", plain(Expect::Number)).non_negative();
 /// What the stage draws from its supplies, W.
 const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
 
