@@ -453,3 +453,72 @@ fn a_cost_takes_no_unit_and_a_power_takes_watts() {
         assert!(run.stdout.contains(code), "{line}: {}", run.stdout);
     }
 }
+
+/// An IC sensor's power is its supply's high end times what it draws,
+/// where both are stated; a current-output sensor draws its own output,
+/// the most at the top of the range. Without them it is "not stated".
+#[test]
+fn compare_takes_an_ic_sensors_power_from_its_supply() {
+    let chain = |name: &str, sensor: &str| {
+        format!(
+            "chain {name} \"IC sensor\" {{\n    measurand temperature 0 degC .. 100 degC\n    ambient 20 degC .. 30 degC\n    sensor ic {{\n{sensor}\n    }}\n    {load}adc conv {{\n        bits 12\n        input single\n        vref 4.096 V\n        power 1 mW\n    }}\n    convert reading {{ method linear }}\n    {wiring}\n}}\n",
+            load = if sensor.contains("ic_current") {
+                "sensor load { resistor 4.7 kohm }\n    "
+            } else {
+                ""
+            },
+            wiring = if sensor.contains("ic_current") {
+                "ic -> load -> conv -> reading"
+            } else {
+                "ic -> conv -> reading"
+            },
+        )
+    };
+    let dir = common::temp_dir("diff", "ic-power");
+    let text = [
+        chain(
+            "voltage_out",
+            "        ic_voltage\n        slope 10 mV/K\n        output 500 mV at 0 degC\n        supply 2.7 V .. 5.5 V\n        supply_current 60 uA",
+        ),
+        chain(
+            "current_out",
+            "        ic_current\n        slope 1 uA/K\n        supply 3 V .. 5.5 V",
+        ),
+        chain(
+            "unstated",
+            "        ic_voltage\n        slope 10 mV/K\n        output 500 mV at 0 degC\n        supply 2.7 V .. 5.5 V",
+        ),
+    ]
+    .concat();
+    std::fs::write(dir.join("ic.catena"), text).expect("spec written");
+    let run = catena(
+        &dir,
+        &["compare", "ic.catena", "--trials", "0", "--format", "json"],
+        None,
+    );
+    let doc = json(&run.stdout);
+    let bill = |i: usize| doc["candidates"][i]["outcome"]["bill"].clone();
+    let ic_watts = |i: usize| {
+        bill(i)["power"]
+            .as_array()
+            .and_then(|p| p.iter().find(|p| p["stage"] == "ic").cloned())
+    };
+    // 5.5 V × 60 uA.
+    let v = ic_watts(0).unwrap_or_else(|| panic!("{}", run.stdout));
+    assert_eq!(v["basis"], "supply");
+    assert!(
+        (v["watts"].as_f64().unwrap() - 5.5 * 60e-6).abs() < 1e-12,
+        "{v}"
+    );
+    // 5.5 V × 1 uA/K × 373.15 K.
+    let c = ic_watts(1).unwrap_or_else(|| panic!("{}", run.stdout));
+    assert!(
+        (c["watts"].as_f64().unwrap() - 5.5 * 1e-6 * 373.15).abs() < 1e-12,
+        "{c}"
+    );
+    // No supply current: named, not guessed.
+    assert!(ic_watts(2).is_none(), "{}", bill(2));
+    assert_eq!(bill(2)["unpowered"], serde_json::json!(["ic"]));
+    let human = catena(&dir, &["compare", "ic.catena", "--trials", "0"], None);
+    assert!(human.stdout.contains("not stated: ic"), "{}", human.stdout);
+}

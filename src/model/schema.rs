@@ -373,6 +373,7 @@ static MODELS: &[ModelSpec] = &[
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
             p("output_resistance", plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
+            p("supply_current", plain(AMP)).non_negative(),
             TIME_CONSTANT,
             COST,
             POWER,
@@ -926,6 +927,7 @@ fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
         noise: r.limit("noise"),
         output_resistance: r.measure("output_resistance"),
         supply: r.range("supply"),
+        supply_current: r.value("supply_current"),
         time_constant: r.value("time_constant"),
     }))
 }

@@ -152,6 +152,8 @@ pub struct IcVoltage {
     /// A measure: `max` makes it a bound of nominal zero.
     pub output_resistance: Option<Measure>,
     pub supply: Option<(f64, f64)>,
+    /// What it draws from its supply (its quiescent current), A.
+    pub supply_current: Option<f64>,
     pub time_constant: Option<f64>,
 }
 

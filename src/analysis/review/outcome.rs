@@ -189,6 +189,10 @@ pub enum PowerBasis {
     /// largest voltage across the load (or its nominal voltage times the
     /// largest load current).
     Delivered,
+    /// An IC sensor that states none: the high end of its stated supply
+    /// range times what it draws (its `supply_current`; a current-output
+    /// sensor draws its own output, the most at the range's top).
+    Supply,
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -220,7 +224,9 @@ impl BillOutcome {
     fn of(chain: &Chain, a: &Analysis) -> BillOutcome {
         let hardware = || chain.stages.iter().filter(|s| s.kind != StageKind::Convert);
         let costs: Vec<f64> = hardware().filter_map(|s| s.bill.cost).collect();
-        let power: Vec<StagePower> = hardware().filter_map(|s| stage_power(s, a)).collect();
+        let power: Vec<StagePower> = hardware()
+            .filter_map(|s| stage_power(chain, s, a))
+            .collect();
         BillOutcome {
             cost: (!costs.is_empty()).then(|| costs.iter().sum()),
             unpriced: hardware()
@@ -262,9 +268,10 @@ fn draws_supply(model: &StageModel) -> bool {
     }
 }
 
-/// A stage's stated power, or what an excitation delivers into its load
-/// where its compliance or current limit gives the load's envelope.
-fn stage_power(stage: &Stage, a: &Analysis) -> Option<StagePower> {
+/// A stage's stated power, what an excitation delivers into its load
+/// where its compliance or current limit gives the load's envelope, or
+/// what an IC sensor draws where its supply (and current) are stated.
+fn stage_power(chain: &Chain, stage: &Stage, a: &Analysis) -> Option<StagePower> {
     let (watts, basis) = match (stage.bill.power, &stage.typed) {
         (Some(w), _) => (w, PowerBasis::Stated),
         (None, Some(StageModel::Excitation(e))) => {
@@ -274,6 +281,16 @@ fn stage_power(stage: &Stage, a: &Analysis) -> Option<StagePower> {
             })?;
             let most = load.reach.0.abs().max(load.reach.1.abs());
             (e.value.nominal.abs() * most, PowerBasis::Delivered)
+        }
+        (None, Some(StageModel::IcVoltage(ic))) => {
+            let (_, most) = ic.supply?;
+            (most * ic.supply_current?, PowerBasis::Supply)
+        }
+        (None, Some(StageModel::IcCurrent(ic))) => {
+            let (_, most) = ic.supply?;
+            // Proportional to absolute temperature: the most at the top.
+            let hottest = chain.measurand.as_ref()?.high;
+            (most * ic.slope.nominal * hottest, PowerBasis::Supply)
         }
         (None, _) => return None,
     };
