@@ -425,7 +425,10 @@ fn source_contributions(
             .slots
             .first()
             .map_or((1.0, 1.0), |&s| (plan.slots[s].minus, plan.slots[s].plus));
-        let (low, high) = (beyond_rounding(low, rounding), beyond_rounding(high, rounding));
+        let (low, high) = (
+            beyond_rounding(low, rounding),
+            beyond_rounding(high, rounding),
+        );
         let (standard, linear) = standard_uncertainty((low, high), (minus, plus), divisor, floor);
         contributions.push(Contribution {
             id: source.id.clone(),
