@@ -125,6 +125,9 @@ fn structure(html: &str) -> String {
 fn html_report_structure_of_the_cold_store() {
     let html = report("specs/cold_store.catena", "html", "1");
     assert!(!html.contains("<script") && !html.contains(" src=") && !html.contains("<link"));
+    // Every Markdown heading level the renderer writes becomes a heading,
+    // never a paragraph that shows its hashes.
+    assert!(!html.contains("<p>#"), "a Markdown heading leaked into the HTML");
     insta::assert_snapshot!("report-html-cold_store", structure(&html));
 }
 
