@@ -9,12 +9,11 @@ use clap::Args;
 
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::checklist::{checklist, Checklist, Sources};
 use crate::analysis::faults::{self, FaultCheck};
 use crate::analysis::ranges::Envelope;
 use crate::analysis::ranges::DEFAULT_MARGIN;
-use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS};
+use crate::analysis::report::{analyse_reusing, Options};
 use crate::analysis::soundness;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Code, Findings, Severity};
@@ -44,20 +43,12 @@ pub struct ReportArgs {
     /// the same bytes).
     #[arg(long)]
     timestamp: bool,
-    /// Monte Carlo trials per point (0: none) [default: catena.yaml's
-    /// `monte_carlo.trials`, else 10000].
-    #[arg(long)]
-    trials: Option<usize>,
-    /// The Monte Carlo seed [default: catena.yaml's `monte_carlo.seed`, else 1].
-    #[arg(long)]
-    seed: Option<u64>,
-    /// Points across the measurand range.
-    #[arg(long, default_value_t = 21)]
-    points: usize,
+    #[command(flatten)]
+    sampling: settings::SamplingArgs,
 }
 
 pub fn run(args: ReportArgs) -> u8 {
-    if !settings::sampling_flags_usable(args.trials, Some(args.points)) {
+    if !args.sampling.usable() {
         return EXIT_USAGE;
     }
     let format = args.format.unwrap_or_else(|| {
@@ -221,7 +212,7 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
             timestamp: args.timestamp.then(now_utc),
             trials: options.trials.unwrap_or(0),
             seed: options.seed,
-            points: args.points,
+            points: args.sampling.points,
             margin: build.margin,
         },
         summary: reports.iter().map(summary_row).collect(),
@@ -282,26 +273,10 @@ pub fn chain_checklist(
 /// The analyses' options and the builder's: flags first, then
 /// `catena.yaml`, then the defaults.
 fn options(args: &ReportArgs, config: &crate::config::Config) -> (Options, BuildOptions) {
-    let trials = args
-        .trials
-        .or(config.trials.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_TRIALS);
-    let seed = args
-        .seed
-        .or(config.seed.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_SEED);
     let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
-    let options = Options {
-        budget: BudgetOptions {
-            points: args.points,
-            ..BudgetOptions::default()
-        },
-        trials: (trials > 0).then_some(trials),
-        seed,
-        detail: true,
-    };
+    let options = args.sampling.options(config);
     let build = BuildOptions {
-        points: args.points,
+        points: args.sampling.points,
         margin,
     };
     (options, build)
