@@ -15,6 +15,7 @@ use crate::analysis::ranges::Envelope;
 use crate::analysis::ranges::DEFAULT_MARGIN;
 use crate::analysis::report::{analyse_reusing, Options};
 use crate::analysis::soundness;
+use crate::check::CheckedFile;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Code, Findings, Severity};
 use crate::emit::report::{
@@ -138,18 +139,7 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
     // The check keeps each chain's plan and analysis, with the report's
     // detail; the report adds only what they lack (its Monte Carlo).
     let (checked, config) = check_one(path, crate::analysis::Keep::Reports)?;
-    let errors: Findings = {
-        let mut f = Findings::new();
-        for x in checked
-            .findings
-            .iter()
-            .filter(|f| f.severity() == Severity::Error)
-        {
-            f.push(x.clone());
-        }
-        f
-    };
-    if !errors.is_empty() && !checked.resolved || checked.chains.is_empty() {
+    if checked.findings.has_errors() && !checked.resolved || checked.chains.is_empty() {
         show(&checked.findings);
         errln!(
             "catena: no report for {} until these are fixed",
@@ -157,19 +147,7 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
         );
         return Err(EXIT_FINDINGS);
     }
-    let chains: Vec<_> = match &args.chain {
-        None => checked.chains.iter().collect(),
-        Some(name) => match checked.chains.iter().find(|c| &c.name == name) {
-            Some(c) => vec![c],
-            None => {
-                match did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str())) {
-                    Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
-                    None => errln!("catena: no chain `{name}`"),
-                }
-                return Err(EXIT_USAGE);
-            }
-        },
-    };
+    let chains = selected(&checked, args.chain.as_deref())?;
     let (options, build) = options(args, &config);
     let warnings = warnings(&checked.findings);
     let reports: Vec<_> = chains
@@ -268,6 +246,24 @@ pub fn chain_checklist(
             warnings,
         },
     ))
+}
+
+/// The chains a report covers: all of them, or the one `--chain` names
+/// (a usage error, with a suggestion, when the file has none of that name).
+fn selected<'c>(checked: &'c CheckedFile, chain: Option<&str>) -> Result<Vec<&'c Chain>, u8> {
+    let Some(name) = chain else {
+        return Ok(checked.chains.iter().collect());
+    };
+    match checked.chains.iter().find(|c| c.name == name) {
+        Some(c) => Ok(vec![c]),
+        None => {
+            match did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str())) {
+                Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
+                None => errln!("catena: no chain `{name}`"),
+            }
+            Err(EXIT_USAGE)
+        }
+    }
 }
 
 /// The analyses' options and the builder's: flags first, then
