@@ -457,8 +457,7 @@ mod tests {
                 for _ in 0..1 + next(4) {
                     let from = nodes
                         .iter()
-                        .filter(|m| m.layer < n.layer)
-                        .nth(0)
+                        .find(|m| m.layer < n.layer)
                         .unwrap_or(&nodes[0]);
                     let from = if next(2) == 0 { from } else { &nodes[next(i)] };
                     edges.push(edge(&from.name, &n.name, ports[next(5)], signals[next(4)]));
