@@ -5,7 +5,6 @@ use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
-use crate::eval::run::LANES;
 use crate::model::typed::{self, AdcInput, CombineOp};
 use crate::model::value::Tolerance;
 use crate::physics::adc::{self, Polarity};
@@ -160,8 +159,8 @@ impl Adc {
             return Err(Lost);
         }
         let mut out = Column::default();
-        for k in 0..LANES {
-            let own = self.code_of(run.row(k), input.x[k], vr[k]);
+        for (k, &vr) in vr.iter().enumerate() {
+            let own = self.code_of(run.row(k), input.x[k], vr);
             let code = self.combine_with(own, |n| run.s[n].signal(k));
             out.set(k, code)?;
         }
