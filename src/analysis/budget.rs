@@ -8,8 +8,7 @@ use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
 use crate::eval::{
-    half_width, own_fraction, Calibrated, Env, EvalError, LaneSignals, Plan, Signal, SourceKind,
-    LANES, MAX_NODES,
+    half_width, own_fraction, Calibrated, Env, EvalError, LaneColumns, Plan, SourceKind, LANES,
 };
 use crate::model::Chain;
 
@@ -353,7 +352,7 @@ fn source_effects(
         })
         .collect();
     let mut values = plan.nominal.repeat(LANES);
-    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
+    let mut scratch = LaneColumns::default();
     let mut readings = [0.0; LANES];
     let mut changes = Vec::with_capacity(limits.len());
     for batch in limits.chunks(LANES) {

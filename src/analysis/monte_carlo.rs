@@ -13,8 +13,7 @@ use super::budget::Point;
 use super::draws::{condition_key, Stream};
 use super::noise::Noise;
 use crate::eval::{
-    half_width, own_fraction, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot, SourceKind,
-    LANES, MAX_NODES,
+    half_width, own_fraction, Env, EvalError, Group, LaneColumns, Plan, Slot, SourceKind, LANES,
 };
 
 /// Trials per task: large enough to amortise the split, small enough to
@@ -411,7 +410,7 @@ fn chunk_errors(
     // trial's, so the lane count changes no result.
     let mut values = plan.nominal.repeat(LANES);
     let mut readings = [0.0; LANES];
-    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
+    let mut scratch = LaneColumns::default();
     for (k, out) in out.chunks_mut(LANES).enumerate() {
         let t0 = (first + k * LANES) as u64;
         let lanes = out.len();

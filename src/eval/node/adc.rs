@@ -3,6 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, AdcInput, CombineOp};
 use crate::model::value::Tolerance;
@@ -143,11 +144,43 @@ impl Adc {
         Ok(self.combined(run, self.code(run, v, vr)))
     }
 
+    /// [`Adc::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let input = &run.s[self.input];
+        if input.tag != Tag::Voltage {
+            return Err(Lost);
+        }
+        let vr = match self.reference.map(|n| &run.s[n]) {
+            Some(r) if matches!(r.tag, Tag::Voltage | Tag::Source) => r.x,
+            _ => run.drifted(run.or_zero(self.vref), self.vref_drift),
+        };
+        if vr.iter().any(|&vr| vr <= 0.0 || !vr.is_finite()) {
+            return Err(Lost);
+        }
+        let mut out = Column::default();
+        for (k, &vr) in vr.iter().enumerate() {
+            let own = self.code_of(run.row(k), input.x[k], vr);
+            let code = self.combine_with(own, |n| run.s[n].signal(k));
+            out.set(k, code)?;
+        }
+        match out.tag {
+            Tag::Code => Ok(out),
+            _ => Err(Lost),
+        }
+    }
+
     /// Its code combined with the other channels' a conversion reads
     /// with it: added (`sum`), or as a ratio scaled to its own codes of
     /// full scale (`ratio`), rounded as a code.
     #[inline(always)]
     fn combined(&self, run: &Run<'_>, own: Signal) -> Signal {
+        self.combine_with(own, |n| run.s[n])
+    }
+
+    /// [`Adc::combined`] with the other channels' codes from `code_of`.
+    #[inline(always)]
+    fn combine_with(&self, own: Signal, code_of: impl Fn(NodeId) -> Signal) -> Signal {
         let Some((op, others)) = &self.combine else {
             return own;
         };
@@ -156,7 +189,7 @@ impl Adc {
         };
         let (mut exact, mut code_f) = (exact, code as f64);
         for &n in others {
-            let Signal::Code { exact: e, code: c } = run.s[n] else {
+            let Signal::Code { exact: e, code: c } = code_of(n) else {
                 return Signal::None;
             };
             match op {

@@ -35,6 +35,7 @@ pub use thermocouple::Thermocouple;
 pub use transducer::Transducer;
 
 use super::fault::{Fault, FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
+use super::lanes::{Column, LaneRun, Lost};
 use super::plan::{
     DriftSlot, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId, SourceKind,
 };
@@ -287,6 +288,30 @@ impl Plan {
             Node::Filter(n) => n.eval(&run),
             Node::Adc(n) => n.eval(&run),
             Node::Convert(n) => n.eval(&run),
+        }
+    }
+}
+
+impl Plan {
+    /// Node `i`'s column in a batch: one match per batch, then the kind's
+    /// loop over the lanes (or the single-run code lane by lane, for the
+    /// kinds that seldom sit in a Monte Carlo's hot path).
+    pub(in crate::eval) fn node_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        match &self.nodes[run.i] {
+            Node::Excitation(n) => Ok(n.eval_lanes(run)),
+            Node::Rtd(n) => n.eval_lanes(run),
+            Node::Thermocouple(n) => n.eval_lanes(run),
+            Node::Thermistor(n) => n.eval_lanes(run),
+            Node::Resistor(n) => Ok(n.eval_lanes(run)),
+            Node::Amplifier(n) => n.eval_lanes(run),
+            Node::Filter(n) => Ok(n.eval_lanes(run)),
+            Node::Adc(n) => n.eval_lanes(run),
+            Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Bridge(_)
+            | Node::Convert(_) => run.by_lane(),
         }
     }
 }
