@@ -568,6 +568,9 @@ pub const TRIP_K: f64 = 2.0;
 pub struct FaultCheck {
     pub report: FaultReport,
     pub maskings: Vec<Masking>,
+    /// Why the alarms' trips could not be judged (a trip point the chain
+    /// cannot evaluate), when they could not: the faults still are.
+    pub trips_unjudged: Option<EvalError>,
 }
 
 /// The chain's faults and trips judged once: the verdicts, the alarms'
@@ -585,19 +588,91 @@ pub fn check(
         None => code_window(chain, plan)?,
     };
     let report = analyse_in(chain, plan, window)?;
-    let alarms = alarm_limits(chain, plan, TRIP_K)?;
-    let maskings = maskings(chain, plan, &report, alarms)?;
-    Ok(FaultCheck { report, maskings })
+    let trips =
+        alarm_limits(chain, plan, TRIP_K).and_then(|alarms| maskings(chain, plan, &report, alarms));
+    let (maskings, trips_unjudged) = match trips {
+        Ok(m) => (m, None),
+        Err(e) => (Vec::new(), Some(e)),
+    };
+    Ok(FaultCheck {
+        report,
+        maskings,
+        trips_unjudged,
+    })
+}
+
+/// What a chain could not have judged.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Unjudged {
+    /// Its faults and trips: the valid code window could not be built.
+    Faults,
+    /// Its alarms' trips: a trip point could not be evaluated.
+    Trips,
+}
+
+/// R674: the chain's faults (or trips) were not judged, because
+/// evaluating them failed with `error`: the root cause leads, labelled on
+/// its stage as the evaluation finding is, and its help says how to get
+/// the chain evaluated. A chain that guards people or property makes it
+/// an error, as an unjudged fault there is as bad as a silent one.
+pub fn unjudged(chain: &Chain, error: &EvalError, what: Unjudged) -> Finding {
+    let (condition, consequence) = match what {
+        Unjudged::Faults => (
+            chain
+                .measurand
+                .as_ref()
+                .map(|m| (m.span, "the valid code window spans this range".to_string())),
+            "so the valid code window could not be built and no fault of the chain was judged",
+        ),
+        Unjudged::Trips => (
+            chain
+                .alarms
+                .iter()
+                .find(|a| error_at_trip(chain, a))
+                .or(chain.alarms.first())
+                .map(|a| (a.span, "this trip is evaluated".to_string())),
+            "so no alarm's trip code was computed, and no fault was judged against the trips",
+        ),
+    };
+    let cause = super::eval_finding(chain, error, condition);
+    let mut finding = Finding {
+        code: Code::R674,
+        message: format!("{}, {consequence}", cause.message),
+        ..cause
+    };
+    if chain.is_protective() {
+        finding.severity_override = Some(Severity::Error);
+    }
+    let help = finding.help.take().unwrap_or_default();
+    let help = match what {
+        Unjudged::Faults => help,
+        Unjudged::Trips => format!("a trip point is evaluated as the range is: {help}"),
+    };
+    finding.help(format!(
+        "{help}; then `catena checklist` lists every fault against the window"
+    ))
+}
+
+/// Whether the alarm's trip lies outside the measurand range, where an
+/// evaluation is most likely to fail.
+fn error_at_trip(chain: &Chain, alarm: &crate::model::Alarm) -> bool {
+    chain
+        .measurand
+        .as_ref()
+        .is_some_and(|m| alarm.at < m.low || alarm.at > m.high)
 }
 
 /// `check`'s findings on a chain's faults and trips: R670 for a silent
 /// fault, R671 for an undetermined one (errors in a chain that protects
 /// people or property), R672 for a fault that masks a trip, R673 for a
-/// trip outside the measurand range. A chain whose window or trips could
-/// not be evaluated gets none here: evaluating the chain is the other
-/// checks' business, and `catena checklist` names the error.
+/// trip outside the measurand range; R674 when the trips could not be
+/// evaluated (a chain whose window could not be built gets R674 from
+/// [`unjudged`] instead).
 pub fn findings(chain: &Chain, checked: &FaultCheck) -> Findings {
     let mut out = Findings::new();
+    if let Some(e) = &checked.trips_unjudged {
+        out.push(unjudged(chain, e, Unjudged::Trips));
+    }
     let report = &checked.report;
     let mut causes: Vec<Option<Cause>> = Vec::with_capacity(report.faults.len());
     for (i, f) in report.faults.iter().enumerate() {

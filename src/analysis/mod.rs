@@ -336,8 +336,11 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         .as_deref()
         .filter(|_| options.points == window::POINTS);
     let faults = sound.then(|| faults::check(chain, &plan, reuse));
-    if let Some(Ok(checked)) = &faults {
-        findings.extend(faults::findings(chain, checked));
+    match &faults {
+        Some(Ok(checked)) => findings.extend(faults::findings(chain, checked)),
+        // Never a chain passed whose faults were not judged, unsaid.
+        Some(Err(e)) => findings.push(faults::unjudged(chain, e, faults::Unjudged::Faults)),
+        None => {}
     }
     let keep = options.keep != Keep::Nothing;
     ChainCheck {

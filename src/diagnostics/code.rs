@@ -207,6 +207,7 @@ codes! {
     R671 => Warning, "undetermined fault";
     R672 => Error, "trip masked by a fault";
     R673 => Error, "trip outside the measurand range";
+    R674 => Warning, "faults or trips not judged";
 
     C801 => Error, "malformed configuration file";
     C802 => Error, "unknown configuration key";
