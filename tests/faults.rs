@@ -64,8 +64,17 @@ fn a_shorted_ntc_in_a_low_side_divider_reads_zero() {
     // The supply is also the reference: both at 0 V, the converter runs
     // to one end or the other (its own offset decides which), and both
     // ends lie outside the window.
+    // Shown as what they are, one end or the other: in JSON a shape of
+    // their own (a span would claim every code between), in Markdown
+    // "0 or 4095".
     let lost = row(&list, "rail", "lost");
-    assert_eq!(codes(lost), (0, 4095));
+    assert_eq!(lost["codes"], serde_json::json!({ "either": [0, 4095] }));
+    let spec = "tests/fixtures/faults/shorted_ntc_divider.catena";
+    let md = catena(&root(), &["checklist", spec], None).stdout;
+    assert!(
+        md.contains("`rail` supply or excitation lost: codes 0 or 4095,"),
+        "{md}"
+    );
     assert_eq!(lost["verdict"], "detectable");
     assert!(
         lost["threshold"]

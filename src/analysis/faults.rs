@@ -77,12 +77,58 @@ pub fn found_at_bring_up(kind: FaultKind) -> bool {
     }
 }
 
+/// The codes a converter gives with a fault.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FaultCodes {
+    /// Every code from the first to the second may occur.
+    Span(i64, i64),
+    /// One end code or the other (the bottom, the top), which one nothing
+    /// in the spec decides: a converter left with no reference rails
+    /// either way, and no code between the ends occurs.
+    EitherEnd(i64, i64),
+}
+
+impl FaultCodes {
+    /// The lowest and highest code.
+    pub fn bounds(self) -> (i64, i64) {
+        match self {
+            FaultCodes::Span(lo, hi) | FaultCodes::EitherEnd(lo, hi) => (lo, hi),
+        }
+    }
+
+    /// The codes in words: `17`, `0 .. 4095` or `0 or 4095`.
+    pub fn words(self) -> String {
+        match self {
+            FaultCodes::Span(lo, hi) if lo == hi => lo.to_string(),
+            FaultCodes::Span(lo, hi) => format!("{lo} .. {hi}"),
+            FaultCodes::EitherEnd(lo, hi) => format!("{lo} or {hi}"),
+        }
+    }
+}
+
+/// In JSON a span is `[low, high]` and the ends `{"either": [low, high]}`,
+/// so a reader that takes every pair for a span fails instead of reading
+/// the codes between the ends as possible.
+impl serde::Serialize for FaultCodes {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        match *self {
+            FaultCodes::Span(lo, hi) => [lo, hi].serialize(s),
+            FaultCodes::EitherEnd(lo, hi) => {
+                let mut map = s.serialize_map(Some(1))?;
+                map.serialize_entry("either", &[lo, hi])?;
+                map.end()
+            }
+        }
+    }
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub struct FaultVerdict {
     pub fault: Fault,
     pub stage: String,
-    /// The lowest and highest code the converter gives with the fault.
-    pub codes: Option<(i64, i64)>,
+    /// The codes the converter gives with the fault.
+    pub codes: Option<FaultCodes>,
     pub verdict: Verdict,
     pub threshold: Option<Threshold>,
     /// Why the code is undetermined.
@@ -240,11 +286,18 @@ impl Codes {
         self.spans.push((clamp(lo), clamp(hi)));
     }
 
-    /// The lowest and highest code.
-    fn hull(&self) -> (i64, i64) {
+    /// The lowest and highest code; the two end codes alone when the
+    /// fault gives nothing but the ends.
+    fn hull(&self, window: &CodeWindow) -> FaultCodes {
         let lo = self.spans.iter().map(|s| s.0).min().unwrap_or(0);
         let hi = self.spans.iter().map(|s| s.1).max().unwrap_or(0);
-        (lo, hi)
+        let (bottom, top) = window.rails;
+        let ends = [(bottom, bottom), (top, top)];
+        if bottom < top && self.spans == ends {
+            FaultCodes::EitherEnd(lo, hi)
+        } else {
+            FaultCodes::Span(lo, hi)
+        }
     }
 
     /// The firmware threshold between these codes and the window: at
@@ -284,7 +337,7 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     };
     match code_range(plan, cases, window, &fault) {
         Ok(codes) => {
-            verdict.codes = Some(codes.hull());
+            verdict.codes = Some(codes.hull(window));
             verdict.threshold = codes.threshold(window);
             verdict.verdict = if verdict.threshold.is_some() {
                 Verdict::Detectable
@@ -328,7 +381,7 @@ fn fix(
     cases: &Cases,
     window: &CodeWindow,
     fault: &Fault,
-    codes: Option<(i64, i64)>,
+    codes: Option<FaultCodes>,
 ) -> (Option<String>, Option<NodeId>) {
     let here = Some(fault.node);
     match (fault.kind, &plan.nodes[fault.node]) {
@@ -387,10 +440,10 @@ fn fix(
             here,
         ),
         _ => (
-            codes.map(|(lo, hi)| {
+            codes.map(|codes| {
                 format!(
-                    "its codes {lo} .. {hi} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
-                    window.low, window.high
+                    "its codes {} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
+                    codes.words(), window.low, window.high
                 )
             }),
             here,
@@ -739,11 +792,14 @@ fn fault_finding(
         // fault, with the limit to state), except where the chain guards
         // people or property.
         _ if f.unstated && !chain.is_protective() => return None,
-        (Verdict::Silent, Some((lo, hi))) => (
+        (Verdict::Silent, Some(codes)) => (
             Code::R670,
             format!(
-                "`{}` {what} is silent: its codes {lo} .. {hi} overlap the valid window {} .. {}",
-                f.stage, w.low, w.high
+                "`{}` {what} is silent: its codes {} overlap the valid window {} .. {}",
+                f.stage,
+                codes.words(),
+                w.low,
+                w.high
             ),
             "reads inside the valid window with this fault".to_string(),
         ),
