@@ -208,6 +208,7 @@ codes! {
     R672 => Error, "trip masked by a fault";
     R673 => Error, "trip outside the measurand range";
     R674 => Warning, "faults or trips not judged";
+    R675 => Warning, "configuration rule not applied to a safety finding";
 
     C801 => Error, "malformed configuration file";
     C802 => Error, "unknown configuration key";
