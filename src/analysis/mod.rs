@@ -4,6 +4,7 @@
 pub mod accumulation;
 pub mod alarms;
 pub mod budget;
+pub mod calibration;
 pub mod checklist;
 pub mod draws;
 pub mod dynamics;
@@ -342,6 +343,7 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         Some(Err(e)) => findings.push(faults::unjudged(chain, e, faults::Unjudged::Faults)),
         None => {}
     }
+    findings.extend(calibration::points_outside_range(chain));
     let keep = options.keep != Keep::Nothing;
     ChainCheck {
         plan: keep.then_some(plan),
