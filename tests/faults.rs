@@ -503,3 +503,18 @@ fn trips_that_cannot_be_evaluated_are_reported_not_skipped() {
         .expect("fault rows")
         .is_empty());
 }
+
+/// A converter's stated input bias current (200 nA) outweighs its 100 nA
+/// burnout current: the open pin's direction is undetermined, and the
+/// help names the figure a burnout current must exceed.
+#[test]
+fn a_burnout_current_below_the_converters_bias_current_leaves_its_input_undetermined() {
+    let list = checklist("kind_input_open_bias.catena");
+    let open = row(&list, "conv", "input_open");
+    assert_eq!(open["verdict"], "undetermined", "{open}");
+    let action = open["action"].as_str().expect("an action");
+    assert!(
+        action.contains("more than its input bias current of up to 200 nA"),
+        "{action}"
+    );
+}

@@ -360,18 +360,13 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
 /// bias current it must outweigh, with that current's figure where the
 /// stage states one.
 fn outweighs_bias(plan: &Plan, n: NodeId) -> String {
-    if let Node::Amplifier(amp) = &plan.nodes[n] {
-        if let Some(slot) = amp.bias.map(|b| &plan.slots[b]) {
-            let most = slot.nominal.abs() + slot.plus.max(slot.minus);
-            if most > 0.0 {
-                return format!(
-                    "more than its input bias current of up to {}",
-                    with_prefix(most, "A", 3)
-                );
-            }
-        }
+    match plan.input_bias(n) {
+        Some(most) => format!(
+            "more than its input bias current of up to {}",
+            with_prefix(most, "A", 3)
+        ),
+        None => "more than its input bias current".to_string(),
     }
-    "more than its input bias current".to_string()
 }
 
 /// What would make the fault detectable, where it can be computed, and
