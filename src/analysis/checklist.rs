@@ -11,7 +11,7 @@
 
 use serde::Serialize;
 
-use super::faults::{FaultReport, Masking, Verdict};
+use super::faults::{FaultCodes, FaultReport, Masking, Verdict};
 use super::ranges::Envelope;
 use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal};
 use crate::model::Chain;
@@ -54,8 +54,9 @@ pub struct FaultRow {
     pub stage: String,
     pub fault: &'static str,
     pub condition: &'static str,
-    /// The lowest and highest code with the fault (absent: undetermined).
-    pub codes: Option<(i64, i64)>,
+    /// The codes with the fault (absent: undetermined): a span, or one
+    /// end code or the other.
+    pub codes: Option<FaultCodes>,
     /// `detectable`, `silent` or `undetermined`.
     pub verdict: &'static str,
     /// `code < N` or `code > N`.

@@ -77,12 +77,58 @@ pub fn found_at_bring_up(kind: FaultKind) -> bool {
     }
 }
 
+/// The codes a converter gives with a fault.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FaultCodes {
+    /// Every code from the first to the second may occur.
+    Span(i64, i64),
+    /// One end code or the other (the bottom, the top), which one nothing
+    /// in the spec decides: a converter left with no reference rails
+    /// either way, and no code between the ends occurs.
+    EitherEnd(i64, i64),
+}
+
+impl FaultCodes {
+    /// The lowest and highest code.
+    pub fn bounds(self) -> (i64, i64) {
+        match self {
+            FaultCodes::Span(lo, hi) | FaultCodes::EitherEnd(lo, hi) => (lo, hi),
+        }
+    }
+
+    /// The codes in words: `17`, `0 .. 4095` or `0 or 4095`.
+    pub fn words(self) -> String {
+        match self {
+            FaultCodes::Span(lo, hi) if lo == hi => lo.to_string(),
+            FaultCodes::Span(lo, hi) => format!("{lo} .. {hi}"),
+            FaultCodes::EitherEnd(lo, hi) => format!("{lo} or {hi}"),
+        }
+    }
+}
+
+/// In JSON a span is `[low, high]` and the ends `{"either": [low, high]}`,
+/// so a reader that takes every pair for a span fails instead of reading
+/// the codes between the ends as possible.
+impl serde::Serialize for FaultCodes {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        match *self {
+            FaultCodes::Span(lo, hi) => [lo, hi].serialize(s),
+            FaultCodes::EitherEnd(lo, hi) => {
+                let mut map = s.serialize_map(Some(1))?;
+                map.serialize_entry("either", &[lo, hi])?;
+                map.end()
+            }
+        }
+    }
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub struct FaultVerdict {
     pub fault: Fault,
     pub stage: String,
-    /// The lowest and highest code the converter gives with the fault.
-    pub codes: Option<(i64, i64)>,
+    /// The codes the converter gives with the fault.
+    pub codes: Option<FaultCodes>,
     pub verdict: Verdict,
     pub threshold: Option<Threshold>,
     /// Why the code is undetermined.
@@ -240,11 +286,18 @@ impl Codes {
         self.spans.push((clamp(lo), clamp(hi)));
     }
 
-    /// The lowest and highest code.
-    fn hull(&self) -> (i64, i64) {
+    /// The lowest and highest code; the two end codes alone when the
+    /// fault gives nothing but the ends.
+    fn hull(&self, window: &CodeWindow) -> FaultCodes {
         let lo = self.spans.iter().map(|s| s.0).min().unwrap_or(0);
         let hi = self.spans.iter().map(|s| s.1).max().unwrap_or(0);
-        (lo, hi)
+        let (bottom, top) = window.rails;
+        let ends = [(bottom, bottom), (top, top)];
+        if bottom < top && self.spans == ends {
+            FaultCodes::EitherEnd(lo, hi)
+        } else {
+            FaultCodes::Span(lo, hi)
+        }
     }
 
     /// The firmware threshold between these codes and the window: at
@@ -284,7 +337,7 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     };
     match code_range(plan, cases, window, &fault) {
         Ok(codes) => {
-            verdict.codes = Some(codes.hull());
+            verdict.codes = Some(codes.hull(window));
             verdict.threshold = codes.threshold(window);
             verdict.verdict = if verdict.threshold.is_some() {
                 Verdict::Detectable
@@ -307,18 +360,13 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
 /// bias current it must outweigh, with that current's figure where the
 /// stage states one.
 fn outweighs_bias(plan: &Plan, n: NodeId) -> String {
-    if let Node::Amplifier(amp) = &plan.nodes[n] {
-        if let Some(slot) = amp.bias.map(|b| &plan.slots[b]) {
-            let most = slot.nominal.abs() + slot.plus.max(slot.minus);
-            if most > 0.0 {
-                return format!(
-                    "more than its input bias current of up to {}",
-                    with_prefix(most, "A", 3)
-                );
-            }
-        }
+    match plan.input_bias(n) {
+        Some(most) => format!(
+            "more than its input bias current of up to {}",
+            with_prefix(most, "A", 3)
+        ),
+        None => "more than its input bias current".to_string(),
     }
-    "more than its input bias current".to_string()
 }
 
 /// What would make the fault detectable, where it can be computed, and
@@ -328,7 +376,7 @@ fn fix(
     cases: &Cases,
     window: &CodeWindow,
     fault: &Fault,
-    codes: Option<(i64, i64)>,
+    codes: Option<FaultCodes>,
 ) -> (Option<String>, Option<NodeId>) {
     let here = Some(fault.node);
     match (fault.kind, &plan.nodes[fault.node]) {
@@ -387,10 +435,10 @@ fn fix(
             here,
         ),
         _ => (
-            codes.map(|(lo, hi)| {
+            codes.map(|codes| {
                 format!(
-                    "its codes {lo} .. {hi} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
-                    window.low, window.high
+                    "its codes {} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
+                    codes.words(), window.low, window.high
                 )
             }),
             here,
@@ -568,6 +616,9 @@ pub const TRIP_K: f64 = 2.0;
 pub struct FaultCheck {
     pub report: FaultReport,
     pub maskings: Vec<Masking>,
+    /// Why the alarms' trips could not be judged (a trip point the chain
+    /// cannot evaluate), when they could not: the faults still are.
+    pub trips_unjudged: Option<EvalError>,
 }
 
 /// The chain's faults and trips judged once: the verdicts, the alarms'
@@ -585,19 +636,91 @@ pub fn check(
         None => code_window(chain, plan)?,
     };
     let report = analyse_in(chain, plan, window)?;
-    let alarms = alarm_limits(chain, plan, TRIP_K)?;
-    let maskings = maskings(chain, plan, &report, alarms)?;
-    Ok(FaultCheck { report, maskings })
+    let trips =
+        alarm_limits(chain, plan, TRIP_K).and_then(|alarms| maskings(chain, plan, &report, alarms));
+    let (maskings, trips_unjudged) = match trips {
+        Ok(m) => (m, None),
+        Err(e) => (Vec::new(), Some(e)),
+    };
+    Ok(FaultCheck {
+        report,
+        maskings,
+        trips_unjudged,
+    })
+}
+
+/// What a chain could not have judged.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Unjudged {
+    /// Its faults and trips: the valid code window could not be built.
+    Faults,
+    /// Its alarms' trips: a trip point could not be evaluated.
+    Trips,
+}
+
+/// R674: the chain's faults (or trips) were not judged, because
+/// evaluating them failed with `error`: the root cause leads, labelled on
+/// its stage as the evaluation finding is, and its help says how to get
+/// the chain evaluated. A chain that guards people or property makes it
+/// an error, as an unjudged fault there is as bad as a silent one.
+pub fn unjudged(chain: &Chain, error: &EvalError, what: Unjudged) -> Finding {
+    let (condition, consequence) = match what {
+        Unjudged::Faults => (
+            chain
+                .measurand
+                .as_ref()
+                .map(|m| (m.span, "the valid code window spans this range".to_string())),
+            "so the valid code window could not be built and no fault of the chain was judged",
+        ),
+        Unjudged::Trips => (
+            chain
+                .alarms
+                .iter()
+                .find(|a| error_at_trip(chain, a))
+                .or(chain.alarms.first())
+                .map(|a| (a.span, "this trip is evaluated".to_string())),
+            "so no alarm's trip code was computed, and no fault was judged against the trips",
+        ),
+    };
+    let cause = super::eval_finding(chain, error, condition);
+    let mut finding = Finding {
+        code: Code::R674,
+        message: format!("{}, {consequence}", cause.message),
+        ..cause
+    };
+    if chain.is_protective() {
+        finding.severity_override = Some(Severity::Error);
+    }
+    let help = finding.help.take().unwrap_or_default();
+    let help = match what {
+        Unjudged::Faults => help,
+        Unjudged::Trips => format!("a trip point is evaluated as the range is: {help}"),
+    };
+    finding.help(format!(
+        "{help}; then `catena checklist` lists every fault against the window"
+    ))
+}
+
+/// Whether the alarm's trip lies outside the measurand range, where an
+/// evaluation is most likely to fail.
+fn error_at_trip(chain: &Chain, alarm: &crate::model::Alarm) -> bool {
+    chain
+        .measurand
+        .as_ref()
+        .is_some_and(|m| alarm.at < m.low || alarm.at > m.high)
 }
 
 /// `check`'s findings on a chain's faults and trips: R670 for a silent
 /// fault, R671 for an undetermined one (errors in a chain that protects
 /// people or property), R672 for a fault that masks a trip, R673 for a
-/// trip outside the measurand range. A chain whose window or trips could
-/// not be evaluated gets none here: evaluating the chain is the other
-/// checks' business, and `catena checklist` names the error.
+/// trip outside the measurand range; R674 when the trips could not be
+/// evaluated (a chain whose window could not be built gets R674 from
+/// [`unjudged`] instead).
 pub fn findings(chain: &Chain, checked: &FaultCheck) -> Findings {
     let mut out = Findings::new();
+    if let Some(e) = &checked.trips_unjudged {
+        out.push(unjudged(chain, e, Unjudged::Trips));
+    }
     let report = &checked.report;
     let mut causes: Vec<Option<Cause>> = Vec::with_capacity(report.faults.len());
     for (i, f) in report.faults.iter().enumerate() {
@@ -680,11 +803,14 @@ fn fault_finding(
     // people or property.
     let severity = reported_severity(chain, f)?;
     let (code, message, here) = match (f.verdict, f.codes) {
-        (Verdict::Silent, Some((lo, hi))) => (
+        (Verdict::Silent, Some(codes)) => (
             Code::R670,
             format!(
-                "`{}` {what} is silent: its codes {lo} .. {hi} overlap the valid window {} .. {}",
-                f.stage, w.low, w.high
+                "`{}` {what} is silent: its codes {} overlap the valid window {} .. {}",
+                f.stage,
+                codes.words(),
+                w.low,
+                w.high
             ),
             "reads inside the valid window with this fault".to_string(),
         ),

@@ -4,6 +4,7 @@
 pub mod accumulation;
 pub mod alarms;
 pub mod budget;
+pub mod calibration;
 pub mod checklist;
 pub mod draws;
 pub mod dynamics;
@@ -337,9 +338,13 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         .as_deref()
         .filter(|_| options.points == window::POINTS);
     let faults = sound.then(|| faults::check(chain, &plan, reuse));
-    if let Some(Ok(checked)) = &faults {
-        findings.extend(faults::findings(chain, checked));
+    match &faults {
+        Some(Ok(checked)) => findings.extend(faults::findings(chain, checked)),
+        // Never a chain passed whose faults were not judged, unsaid.
+        Some(Err(e)) => findings.push(faults::unjudged(chain, e, faults::Unjudged::Faults)),
+        None => {}
     }
+    findings.extend(calibration::points_outside_range(chain));
     let keep = options.keep != Keep::Nothing;
     ChainCheck {
         plan: keep.then_some(plan),

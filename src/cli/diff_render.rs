@@ -139,7 +139,7 @@ fn fault_state(f: &Option<FaultOutcome>) -> String {
     let Some(f) = f else { return "—".into() };
     let state = match (f.verdict, f.threshold, f.codes) {
         (Verdict::Detectable, Some(t), _) => format!("detectable, {}", threshold_text(t)),
-        (Verdict::Silent, _, Some([lo, hi])) => format!("silent, codes {lo} .. {hi}"),
+        (Verdict::Silent, _, Some(codes)) => format!("silent, codes {}", codes.words()),
         (v, _, _) => v.name().to_string(),
     };
     match f.severity {

@@ -201,7 +201,10 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
 /// Whether a finding is one of the fault and trip findings the checklist
 /// is about (listed there, never a reason to refuse it).
 pub fn about_faults(code: Code) -> bool {
-    matches!(code, Code::R670 | Code::R671 | Code::R672 | Code::R673)
+    matches!(
+        code,
+        Code::R670 | Code::R671 | Code::R672 | Code::R673 | Code::R674
+    )
 }
 
 /// Every warning the check raised on the file, and its fault and trip

@@ -241,23 +241,42 @@ impl Plan {
         feeds
     }
 
-    /// The burnout current the stage reading node `i` sources into it.
+    /// The burnout current the stage reading node `i` sources into it
+    /// (see [`Plan::burnout_of`]).
     pub fn burnout_into(&self, i: NodeId) -> Option<f64> {
-        self.nodes.iter().find_map(|n| match n {
-            Node::Amplifier(a) if a.input == i => a.burnout,
-            Node::Adc(a) if a.input == i => a.burnout,
-            _ => None,
-        })
+        let reader = self.nodes.iter().position(|n| match n {
+            Node::Amplifier(a) => a.input == i,
+            Node::Adc(a) => a.input == i,
+            _ => false,
+        })?;
+        self.burnout_of(reader)
     }
 
     /// The burnout current amplifier or converter `i` sources from its own
-    /// input.
+    /// input, when it outweighs the input's largest bias current: a bias
+    /// current as large or larger, with nowhere else to go, leaves the
+    /// open input's direction undetermined.
     pub fn burnout_of(&self, i: NodeId) -> Option<f64> {
-        match &self.nodes[i] {
+        let burnout = match &self.nodes[i] {
             Node::Amplifier(a) => a.burnout,
             Node::Adc(a) => a.burnout,
             _ => None,
+        }?;
+        (burnout > self.input_bias(i).unwrap_or(0.0)).then_some(burnout)
+    }
+
+    /// The largest input bias current amplifier or converter `i` states,
+    /// A: an amplifier's `bias` at its limit, a converter's `bias`.
+    pub fn input_bias(&self, i: NodeId) -> Option<f64> {
+        match &self.nodes[i] {
+            Node::Amplifier(amp) => amp.bias.map(|b| {
+                let slot = &self.slots[b];
+                slot.nominal.abs() + slot.plus.max(slot.minus)
+            }),
+            Node::Adc(adc) => adc.bias,
+            _ => None,
         }
+        .filter(|&most| most > 0.0)
     }
 
     /// The current source an open element would starve: a series string

@@ -338,6 +338,9 @@ pub struct Adc {
     /// A current its input sources into an open sensor (burnout
     /// detection), A.
     pub burnout: Option<f64>,
+    /// The largest input bias current its datasheet states, A: what a
+    /// burnout current must outweigh to drive an open input to a rail.
+    pub bias: Option<f64>,
     /// The sampling input's capacitor, F, and acquisition time, s, given
     /// together; its switch resistance, Ω.
     pub sampling: Option<Sampling>,

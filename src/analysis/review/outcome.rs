@@ -7,7 +7,7 @@
 
 use serde::Serialize;
 
-use super::super::faults::{self, FaultReport, Threshold, Verdict};
+use super::super::faults::{self, FaultCodes, FaultReport, Threshold, Verdict};
 use super::super::ranges::Limit;
 use super::super::report::Analysis;
 use crate::diagnostics::Severity;
@@ -103,8 +103,8 @@ pub struct FaultOutcome {
     pub condition: &'static str,
     #[serde(serialize_with = "verdict_name")]
     pub verdict: Verdict,
-    /// The lowest and highest code the converter gives with the fault.
-    pub codes: Option<[i64; 2]>,
+    /// The codes the converter gives with the fault.
+    pub codes: Option<FaultCodes>,
     /// The firmware's test, `code < N` or `code > N`, for a detectable one.
     #[serde(serialize_with = "threshold_words")]
     pub threshold: Option<Threshold>,
@@ -161,7 +161,7 @@ impl FaultsOutcome {
                     fault: f.fault.kind.name(),
                     condition: f.fault.kind.describe(),
                     verdict: f.verdict,
-                    codes: f.codes.map(|(lo, hi)| [lo, hi]),
+                    codes: f.codes,
                     threshold: f.threshold,
                     severity: faults::reported_severity(chain, f).map(|s| match s {
                         Severity::Error => "error",

@@ -6,7 +6,7 @@ use serde::Serialize;
 use super::{
     alarm_names, conversion_words, fault_name, ChainExport, Curve, Export, Origin, CAUTION,
 };
-use crate::analysis::faults::{FaultVerdict, Threshold};
+use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
 
 #[derive(Serialize)]
 struct Document<'a> {
@@ -197,7 +197,7 @@ struct FaultJson<'a> {
     fault: &'static str,
     condition: &'static str,
     verdict: &'static str,
-    codes: Option<[i64; 2]>,
+    codes: Option<FaultCodes>,
     below: Option<i64>,
     above: Option<i64>,
     constant: Option<String>,
@@ -216,7 +216,7 @@ fn fault_json(f: &FaultVerdict) -> FaultJson<'_> {
         fault: f.fault.kind.name(),
         condition: f.fault.kind.describe(),
         verdict: f.verdict.name(),
-        codes: f.codes.map(|(lo, hi)| [lo, hi]),
+        codes: f.codes,
         below,
         above,
         constant: fault_name(f),
@@ -249,7 +249,7 @@ struct CalibrationJson<'a> {
 
 pub fn render(export: &Export) -> String {
     let doc = Document {
-        schema_version: 1,
+        schema_version: 2,
         source: Source {
             path: &export.source.path,
             revision: export.source.revision.as_deref(),

@@ -20,7 +20,7 @@ pub use model::{
 };
 pub use rust::render as render_rust;
 
-use crate::analysis::faults::{FaultVerdict, Threshold, Verdict};
+use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold, Verdict};
 use crate::units::format::trimmed;
 
 /// Everything one run exports: the chains of one spec.
@@ -374,7 +374,7 @@ pub fn fault_name(f: &FaultVerdict) -> Option<String> {
 fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
     let mut out = Vec::new();
     for f in &chain.faults {
-        let Some((lo, hi)) = f.codes else {
+        let Some(codes) = f.codes.map(FaultCodes::words) else {
             continue;
         };
         for (name, code, side) in fault_constants_of(f) {
@@ -382,7 +382,7 @@ fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
             out.push(constant(
             &name,
             format!(
-                "fault threshold for `{}` {} (fault `{}`): with it the converter gives codes {lo} .. {hi}, outside the valid window; a code {side} this means the fault (placed halfway between the window and the fault's codes)",
+                "fault threshold for `{}` {} (fault `{}`): with it the converter gives codes {codes}, outside the valid window; a code {side} this means the fault (placed halfway between the window and the fault's codes)",
                 f.stage,
                 f.fault.kind.describe(),
                 f.fault.kind.name()
@@ -405,7 +405,7 @@ pub fn undetected_words(chain: &ChainExport) -> Option<String> {
         .map(|f| {
             let codes = f
                 .codes
-                .map(|(lo, hi)| format!(", codes {lo} .. {hi} inside the window"))
+                .map(|c| format!(", codes {} inside the window", c.words()))
                 .unwrap_or_default();
             format!(
                 "`{}` {} ({}{codes})",

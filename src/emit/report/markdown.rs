@@ -511,8 +511,7 @@ fn faults(out: &mut String, list: &Checklist, links: &[PlotLink]) {
     out.push_str("| stage | fault | codes | firmware sees it | threshold | action |\n| --- | --- | --- | --- | --- | --- |\n");
     for f in &list.faults {
         let codes = match (f.codes, &f.reason) {
-            (Some((a, b)), _) if a == b => a.to_string(),
-            (Some((a, b)), _) => format!("{a} .. {b}"),
+            (Some(codes), _) => codes.words(),
             (None, Some(why)) => format!("none ({why})"),
             (None, None) => "none".to_string(),
         };

@@ -1,5 +1,7 @@
 //! The report's plots, drawn from the report model alone.
 
+use crate::analysis::faults::FaultCodes;
+
 use super::fmt::{share, value};
 use super::model::ChainReport;
 use super::svg::{bars, strips, Axis, Chart, Item, Strip, Style};
@@ -279,16 +281,16 @@ fn codes(c: &ChainReport, key: &str) -> Option<Plot> {
         .iter()
         .map(|f| Strip {
             label: format!("{} {}", f.stage, f.fault.replace('_', " ")),
-            span: f.codes.map(|(a, b)| (pct(a), pct(b))),
+            spans: match f.codes {
+                None => Vec::new(),
+                Some(FaultCodes::Span(a, b)) => vec![(pct(a), pct(b))],
+                Some(FaultCodes::EitherEnd(a, b)) => vec![(pct(a), pct(a)), (pct(b), pct(b))],
+            },
             hidden: f.hidden(),
             note: match (f.codes, f.hidden()) {
                 (None, _) => f.verdict.to_string(),
-                (Some((a, b)), hidden) => {
-                    let codes = if a == b {
-                        a.to_string()
-                    } else {
-                        format!("{a} .. {b}")
-                    };
+                (Some(codes), hidden) => {
+                    let codes = codes.words();
                     if hidden {
                         format!("{codes}, {}", f.verdict)
                     } else {

@@ -746,7 +746,9 @@ pub fn bars(
 /// reads without colour), with a note beside the plot.
 pub struct Strip {
     pub label: String,
-    pub span: Option<(f64, f64)>,
+    /// The spans drawn on the row: none, one, or a mark at each end code
+    /// for a fault that gives one end or the other.
+    pub spans: Vec<(f64, f64)>,
     pub hidden: bool,
     pub note: String,
 }
@@ -842,7 +844,7 @@ impl StripFrame<'_> {
     fn row(&self, s: &mut String, i: usize, row: &Strip, px: &dyn Fn(f64) -> f64) {
         let (left, row_h) = (self.left, self.row_h);
         let y = self.top + i as f64 * row_h;
-        if let Some((a, b)) = row.span {
+        for &(a, b) in &row.spans {
             // A single code still shows: at least 3 px, kept inside.
             let w = (px(b) - px(a)).max(3.0);
             let x = px(a).min(left + self.plot_w - w);
@@ -932,13 +934,13 @@ mod tests {
         let rows = [
             Strip {
                 label: "rtd open".to_string(),
-                span: Some((100.0, 100.0)),
+                spans: vec![(100.0, 100.0)],
                 hidden: false,
                 note: "65535".to_string(),
             },
             Strip {
                 label: "amp input open".to_string(),
-                span: None,
+                spans: Vec::new(),
                 hidden: true,
                 note: "undetermined".to_string(),
             },

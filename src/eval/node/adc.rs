@@ -31,6 +31,8 @@ pub struct Adc {
     pub input: NodeId,
     /// The current its input sources into an open sensor, A.
     pub burnout: Option<f64>,
+    /// Its largest input bias current, A, where stated.
+    pub bias: Option<f64>,
     /// The other channels' codes a conversion combines with this one's.
     pub combine: Option<(CombineOp, Vec<NodeId>)>,
 }
@@ -98,6 +100,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             .input
             .ok_or_else(|| cx.not_invertible("no input"))?,
         burnout: m.burnout,
+        bias: m.bias,
         combine: cx.combine.take(),
     })
 }
