@@ -127,7 +127,10 @@ fn html_report_structure_of_the_cold_store() {
     assert!(!html.contains("<script") && !html.contains(" src=") && !html.contains("<link"));
     // Every Markdown heading level the renderer writes becomes a heading,
     // never a paragraph that shows its hashes.
-    assert!(!html.contains("<p>#"), "a Markdown heading leaked into the HTML");
+    assert!(
+        !html.contains("<p>#"),
+        "a Markdown heading leaked into the HTML"
+    );
     insta::assert_snapshot!("report-html-cold_store", structure(&html));
 }
 
