@@ -131,6 +131,10 @@ pub struct FaultVerdict {
     pub codes: Option<FaultCodes>,
     pub verdict: Verdict,
     pub threshold: Option<Threshold>,
+    /// The channel whose own code `codes` and `threshold` are (a summed
+    /// channel the fault takes out of its own window while the sum stays
+    /// inside the sum's); None for the code the conversion reads.
+    pub channel: Option<String>,
     /// Why the code is undetermined.
     pub reason: Option<String>,
     /// What would make a silent or undetermined fault detectable, computed.
@@ -219,8 +223,20 @@ fn code_range(
     window: &CodeWindow,
     fault: &Fault,
 ) -> Result<Codes, String> {
+    code_range_at(plan, cases, window, fault, None)
+}
+
+/// [`code_range`] of the code firmware sees at `channel` (that channel's
+/// own, `window` being its own window), or of the conversion's (None).
+fn code_range_at(
+    plan: &Plan,
+    cases: &Cases,
+    window: &CodeWindow,
+    fault: &Fault,
+    channel: Option<NodeId>,
+) -> Result<Codes, String> {
     let ends = (window.rails.0 as f64, window.rails.1 as f64);
-    let code = |values: &[f64], env: &Env| match plan.faulted_code(values, env, fault) {
+    let code = |values: &[f64], env: &Env| match plan.faulted_code_at(values, env, fault, channel) {
         Ok(FaultCode::Code(exact)) => Ok(Some(exact)),
         Ok(FaultCode::EitherEnd) => Ok(None),
         Ok(FaultCode::Undetermined(why)) => Err(why.to_string()),
@@ -330,6 +346,7 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         codes: None,
         verdict: Verdict::Undetermined,
         threshold: None,
+        channel: None,
         reason: None,
         fix: None,
         fix_at: None,
@@ -348,12 +365,36 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         Err(why) => verdict.reason = Some(why),
     }
     if verdict.verdict != Verdict::Detectable {
+        seen_on_a_channel(plan, cases, window, &mut verdict);
+    }
+    if verdict.verdict != Verdict::Detectable {
         let (text, at) = fix(plan, cases, window, &fault, verdict.codes);
         verdict.fix = text;
         verdict.fix_at = at.map(|n| plan.names[n].clone());
         verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
     }
     verdict
+}
+
+/// A fault the conversion's code does not show may still take one
+/// summed channel's own code clear of that channel's window, which
+/// firmware checks before adding: the first channel that shows it makes
+/// the fault detectable there, with its codes and threshold.
+fn seen_on_a_channel(plan: &Plan, cases: &Cases, window: &CodeWindow, verdict: &mut FaultVerdict) {
+    for ch in &window.channels {
+        let Ok(codes) = code_range_at(plan, cases, &ch.window, &verdict.fault, Some(ch.node))
+        else {
+            continue;
+        };
+        if let Some(threshold) = codes.threshold(&ch.window) {
+            verdict.codes = Some(codes.hull(&ch.window));
+            verdict.threshold = Some(threshold);
+            verdict.channel = Some(ch.name.clone());
+            verdict.verdict = Verdict::Detectable;
+            verdict.reason = None;
+            return;
+        }
+    }
 }
 
 /// How large a burnout current on stage `n` must be: more than the input

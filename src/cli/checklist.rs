@@ -180,6 +180,9 @@ fn markdown(list: &Checklist) -> String {
         trimmed(w.k, 1),
         trimmed(w.k * w.noise_sigma_codes, 2)
     );
+    if let Some(each) = w.channel_windows() {
+        let _ = writeln!(s, "{each}\n");
+    }
     let _ = writeln!(s, "## Faults\n");
     for f in &list.faults {
         let codes = f

@@ -299,37 +299,72 @@ impl Plan {
         env: &Env,
         fault: &Fault,
     ) -> Result<FaultCode, EvalError> {
+        self.faulted_code_at(values, env, fault, None)
+    }
+
+    /// With `fault` present, the code firmware sees at `channel`: that
+    /// converter channel's own code, before a conversion combines it with
+    /// others'; or, for None, the main converter's code as the conversion
+    /// reads it.
+    pub fn faulted_code_at(
+        &self,
+        values: &[f64],
+        env: &Env,
+        fault: &Fault,
+        channel: Option<NodeId>,
+    ) -> Result<FaultCode, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         let starved = self.starved_source(fault);
-        for i in 0..=self.adc {
+        let mode = Mode {
+            faulted: Some(fault.node),
+            ..Mode::FAULT
+        };
+        let here = |i: NodeId| if i == fault.node { Some(fault) } else { None };
+        // A channel read before the main converter needs nothing after it.
+        let last = channel.unwrap_or(self.adc);
+        for i in 0..=last {
             if matches!(self.nodes[i], Node::Convert(_)) {
                 continue;
             }
-            let here = if i == fault.node { Some(fault) } else { None };
             let s = if starved == Some(i) {
                 Faulted::Signal(Signal::Current(0.0))
+            } else if channel == Some(i) {
+                self.faulted_own_code(i, values, env, &signals, mode, here(i))?
             } else {
-                self.faulted_node(
-                    i,
-                    values,
-                    env,
-                    &signals,
-                    Mode {
-                        faulted: Some(fault.node),
-                        ..Mode::FAULT
-                    },
-                    here,
-                )?
+                self.faulted_node(i, values, env, &signals, mode, here(i))?
             };
             match s {
                 Faulted::Signal(s) => signals[i] = s,
                 Faulted::Undetermined(why) => return Ok(FaultCode::Undetermined(why)),
+                // One channel of a sum at an end nothing chooses leaves
+                // the sum anywhere among the ends' combinations: only the
+                // channel's own code is determined (at one end or the
+                // other).
+                Faulted::EitherEnd if channel.is_none() && self.summed(i) => {
+                    return Ok(FaultCode::Undetermined(
+                        "a summed channel is left at an end nothing chooses, so the sum is not determined",
+                    ))
+                }
                 Faulted::EitherEnd => return Ok(FaultCode::EitherEnd),
             }
         }
-        match signals[self.adc] {
+        match signals[last] {
             Signal::Code { exact, .. } => Ok(FaultCode::Code(exact)),
-            _ => Err(self.numeric(self.adc, "no code")),
+            _ => Err(self.numeric(last, "no code")),
+        }
+    }
+
+    /// Whether node `i` is a channel the main converter's conversion adds
+    /// (the main converter itself included).
+    fn summed(&self, i: NodeId) -> bool {
+        match &self.nodes[self.adc] {
+            Node::Adc(adc) => match &adc.combine {
+                Some((crate::model::typed::CombineOp::Sum, others)) => {
+                    i == self.adc || others.contains(&i)
+                }
+                _ => false,
+            },
+            _ => false,
         }
     }
 }

@@ -132,6 +132,15 @@ fn threshold_words<S: serde::Serializer>(t: &Option<Threshold>, s: S) -> Result<
 }
 
 /// A firmware threshold as the checklist writes it.
+/// [`threshold_text`] for the code a fault verdict's threshold is on: a
+/// summed channel's own code names the channel.
+pub fn threshold_text_on(t: Threshold, channel: Option<&str>) -> String {
+    match channel {
+        Some(ch) => threshold_text(t).replace("code", &format!("{ch} code")),
+        None => threshold_text(t),
+    }
+}
+
 pub fn threshold_text(t: Threshold) -> String {
     match t {
         Threshold::Below(n) => format!("code < {n}"),

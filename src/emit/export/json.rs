@@ -33,7 +33,7 @@ struct ChainJson<'a> {
     range: [f64; 2],
     converter: Converter<'a>,
     average: u32,
-    window: Window,
+    window: Window<'a>,
     faults: Vec<FaultJson<'a>>,
     conversion: ConversionJson<'a>,
     alarms: Vec<AlarmJson<'a>>,
@@ -155,13 +155,24 @@ struct Converter<'a> {
 }
 
 #[derive(Serialize)]
-struct Window {
+struct Window<'a> {
     low: i64,
     high: i64,
     reach: [f64; 2],
     sigma_codes: f64,
     k: f64,
     rails: [i64; 2],
+    /// Each summed channel's own window, checked before the sum.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    channels: Vec<ChannelWindowJson<'a>>,
+}
+
+#[derive(Serialize)]
+struct ChannelWindowJson<'a> {
+    channel: &'a str,
+    low: i64,
+    high: i64,
+    sigma_codes: f64,
 }
 
 #[derive(Serialize)]
@@ -198,6 +209,9 @@ struct FaultJson<'a> {
     condition: &'static str,
     verdict: &'static str,
     codes: Option<FaultCodes>,
+    /// The summed channel whose own code `codes` and the threshold are.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    channel: Option<&'a str>,
     below: Option<i64>,
     above: Option<i64>,
     constant: Option<String>,
@@ -217,6 +231,7 @@ fn fault_json(f: &FaultVerdict) -> FaultJson<'_> {
         condition: f.fault.kind.describe(),
         verdict: f.verdict.name(),
         codes: f.codes,
+        channel: f.channel.as_deref(),
         below,
         above,
         constant: fault_name(f),
@@ -289,6 +304,16 @@ fn chain(c: &ChainExport) -> ChainJson<'_> {
             sigma_codes: w.sigma_codes,
             k: w.k,
             rails: [w.rails.0, w.rails.1],
+            channels: w
+                .channels
+                .iter()
+                .map(|ch| ChannelWindowJson {
+                    channel: &ch.name,
+                    low: ch.window.low,
+                    high: ch.window.high,
+                    sigma_codes: ch.window.sigma_codes,
+                })
+                .collect(),
         },
         faults: c.faults.iter().map(fault_json).collect(),
         conversion: conversion(c),

@@ -503,6 +503,9 @@ fn faults(out: &mut String, list: &Checklist, links: &[PlotLink]) {
         plain(w.k),
         plain(w.k * w.noise_sigma_codes)
     );
+    if let Some(each) = w.channel_windows() {
+        let _ = writeln!(out, "{each}\n");
+    }
     plot_links(out, links, "codes");
     if list.faults.is_empty() {
         out.push_str("No stage of this chain declares a fault.\n\n");

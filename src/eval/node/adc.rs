@@ -190,14 +190,21 @@ impl Adc {
         let Signal::Code { exact, code } = own else {
             return own;
         };
-        let (mut exact, mut code_f) = (exact, code as f64);
+        // A channel driven past its range gives its end code, which is
+        // what the firmware adds (the channels share one part).
+        let (lo, hi) = self.codes;
+        let ended = |e: f64| match op {
+            CombineOp::Sum => e.clamp(lo, hi),
+            CombineOp::Ratio => e,
+        };
+        let (mut exact, mut code_f) = (ended(exact), code as f64);
         for &n in others {
             let Signal::Code { exact: e, code: c } = code_of(n) else {
                 return Signal::None;
             };
             match op {
                 CombineOp::Sum => {
-                    exact += e;
+                    exact += ended(e);
                     code_f += c as f64;
                 }
                 CombineOp::Ratio => {
@@ -219,26 +226,37 @@ impl Adc {
         }
     }
 
-    /// Its code behind a fault upstream, or with one of its own. Without a
-    /// reference, an input above zero is beyond full scale and one below
+    /// Its code behind a fault upstream, or with one of its own, combined
+    /// with the other channels' a conversion reads with it (a code stuck
+    /// at a rail still enters the combination).
+    pub(super) fn faulted(
+        &self,
+        run: &Run<'_>,
+        fault: Option<&Fault>,
+    ) -> Result<Faulted, EvalError> {
+        Ok(match self.faulted_own(run, fault)? {
+            Faulted::Signal(own) => Faulted::Signal(self.combined(run, own)),
+            other => other,
+        })
+    }
+
+    /// Its own code behind a fault upstream, or with one of its own,
+    /// before any combination: what firmware sees of this channel. Without
+    /// a reference, an input above zero is beyond full scale and one below
     /// beyond the bottom, as any converter clamps them; an input of zero
     /// too still leaves it at an end, which one being its offset's sign.
-    pub(super) fn faulted(
+    pub(super) fn faulted_own(
         &self,
         run: &Run<'_>,
         fault: Option<&Fault>,
     ) -> Result<Faulted, EvalError> {
         let kind = fault.map(|f| f.kind);
         let (lo, hi) = self.codes;
-        // A code stuck at a rail still enters a conversion's combination.
         let rail = |x: f64| {
-            Faulted::Signal(self.combined(
-                run,
-                Signal::Code {
-                    exact: x,
-                    code: x as i64,
-                },
-            ))
+            Faulted::Signal(Signal::Code {
+                exact: x,
+                code: x as i64,
+            })
         };
         let Signal::Voltage { v, cm, .. } = run.s[self.input] else {
             return Err(run.numeric("no input voltage"));
@@ -260,7 +278,7 @@ impl Adc {
             None => self.reference_voltage(run.plan, run.values, run.env, run.s),
         };
         Ok(if vr > 0.0 && vr.is_finite() {
-            Faulted::Signal(self.combined(run, self.code(run, v, vr)))
+            Faulted::Signal(self.code(run, v, vr))
         } else if v > 0.0 {
             rail(hi)
         } else if v < 0.0 {

@@ -210,6 +210,33 @@ impl Plan {
         }
     }
 
+    /// Converter `i`'s own code under `here` (its fault, if it is the
+    /// faulted node), before a conversion combines it with other
+    /// channels': `s` holds the faulted run's signals up to it.
+    pub(super) fn faulted_own_code(
+        &self,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+        mode: Mode,
+        here: Option<&Fault>,
+    ) -> Result<Faulted, EvalError> {
+        let run = Run {
+            plan: self,
+            i,
+            values,
+            env,
+            s,
+            mode,
+            junction_mv: None,
+        };
+        match &self.nodes[i] {
+            Node::Adc(n) => n.faulted_own(&run, here),
+            _ => Err(run.numeric("not a converter")),
+        }
+    }
+
     /// The resistance, Ω, of the elements current source `i` drives, as
     /// their own nodes give it at a test current small enough to heat
     /// nothing (1 nA: picowatts in any element).
