@@ -1,12 +1,16 @@
-//! Stable draws: each source's value in trial t at a condition is a pure
-//! function of (seed, the source's id, the condition, t), a counter-based
-//! generator rather than one stream shared by every source. Adding,
+//! Stable draws: each source's value in trial t is a pure function of
+//! (seed, the source's id, t), a counter-based generator rather than one
+//! stream shared by every source; the same at every condition, so a trial
+//! is one instance of the chain read at every point, and a calibration
+//! taken at the reference is worked out once a trial. Noise and
+//! quantization, which belong to one reading, are keyed by the
+//! condition's values too. Adding,
 //! removing or reordering sources, stages or chains therefore leaves
 //! every other source's draws bit-identical, and no result depends on how
 //! trials are split between threads.
 //!
 //! The key of a stream is FNV-1a (64-bit) of the source's id, mixed with
-//! the seed and the condition's values; the t-th draw is the SplitMix64
+//! the seed (and a reading's condition); the t-th draw is the SplitMix64
 //! output at counter t of that stream (Steele, Lea and Flood, "Fast
 //! splittable pseudorandom number generators", OOPSLA 2014). Normals come
 //! from Wichura's AS 241 inverse of the normal CDF (PPND16, accurate to
@@ -50,6 +54,12 @@ impl Stream {
     /// `condition`, under the user's `seed`.
     pub fn new(seed: u64, id: &str, condition: u64) -> Stream {
         Stream(mix(mix(seed ^ fnv1a(id.as_bytes())) ^ mix(condition)))
+    }
+
+    /// The stream of the source called `id` under the user's `seed`, the
+    /// same at every condition.
+    pub fn source(seed: u64, id: &str) -> Stream {
+        Stream(mix(mix(seed ^ fnv1a(id.as_bytes()))))
     }
 
     /// The 64 random bits of trial `t`.
@@ -221,6 +231,15 @@ mod tests {
                 0x17f8_39ed_9ad3_dbe2,
                 0xbd1d_7194_ba09_6f7f,
                 0xa80a_3a10_d960_d964
+            ]
+        );
+        let s = Stream::source(1, "drive.current");
+        assert_eq!(
+            [s.bits(0), s.bits(1), s.bits(2)],
+            [
+                0x0e6e_8a85_7c9e_77b1,
+                0xe741_02f2_5a3d_a1ee,
+                0xacb5_a637_0693_2545
             ]
         );
     }

@@ -3,9 +3,10 @@
 //! symmetric 95 % coverage interval of the error.
 //!
 //! Every source draws from its own stable stream (see [`super::draws`]):
-//! its value in trial t is a function of (seed, its id, the condition, t)
-//! alone, so the trials can be split among threads any way, and an edit
-//! to one source leaves every other source's draws bit-identical.
+//! its value in trial t is a function of (seed, its id, t) alone, the same
+//! at every condition. So a trial's calibration is worked out once for
+//! all of them, the trials can be split among threads any way, and an
+//! edit to one source leaves every other source's draws bit-identical.
 
 use rayon::prelude::*;
 
@@ -13,8 +14,8 @@ use super::budget::Point;
 use super::draws::{condition_key, Stream};
 use super::noise::Noise;
 use crate::eval::{
-    half_width, own_fraction, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot, SourceKind,
-    LANES, MAX_NODES,
+    half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot,
+    SourceKind, LANES, MAX_NODES,
 };
 
 /// Trials per task: large enough to amortise the split, small enough to
@@ -253,57 +254,115 @@ pub fn sample(
     Ok(out)
 }
 
-/// What a Monte Carlo draws at one condition: each source with its
-/// stream, and the streams of noise and quantization where they act.
-struct Streams {
-    sources: Vec<(Draw, Stream)>,
+/// The sources' draws, shared by every condition of a trial: each keyed by
+/// the seed and its id alone, so one trial is one instance of the chain
+/// at every point, and its calibration (taken at the reference, not at
+/// the point) is worked out once for all of them.
+struct Sources {
+    /// The sources that vary, each with its stream.
+    drawn: Vec<(Draw, Stream)>,
+    /// The sources whose limits are zero, at their one value.
+    fixed: Vec<(usize, f64)>,
     /// Tracking groups' common parts, each with its id's stream.
     groups: Vec<(Common, Stream)>,
-    noise: Option<Stream>,
-    quantization: Option<Stream>,
 }
 
-impl Streams {
-    /// Every drawn source's id and stream, noise and quantization last.
-    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Stream)> + 'a {
-        let sources = self
-            .sources
-            .iter()
-            .map(|(d, s)| (plan.slots[d.slot].id.as_str(), *s));
+impl Sources {
+    fn new(plan: &Plan, seed: u64) -> Sources {
+        let (mut drawn, mut fixed) = (Vec::new(), Vec::new());
+        for (s, slot) in plan.slots.iter().enumerate() {
+            if slot.kind == SourceKind::Exact {
+                continue;
+            }
+            let draw = Draw::of(s, slot, own_fraction(&plan.groups, s));
+            if draw.scale == 0.0 {
+                fixed.push((s, draw.origin));
+            } else {
+                drawn.push((draw, Stream::source(seed, &slot.id)));
+            }
+        }
         let groups = plan
             .groups
             .iter()
-            .zip(&self.groups)
-            .map(|(g, (_, s))| (g.id.as_str(), *s));
-        let noise = self.noise.map(|s| (NOISE_ID, s));
-        let quantization = self.quantization.map(|s| (QUANTIZATION_ID, s));
-        sources.chain(groups).chain(noise).chain(quantization)
+            .map(|g| (Common::of(g, plan), Stream::source(seed, &g.id)))
+            .collect();
+        Sources {
+            drawn,
+            fixed,
+            groups,
+        }
     }
 
-    fn new(plan: &Plan, condition: &Condition, noise: &Noise, seed: u64) -> Streams {
-        let key = condition_key(&condition.env);
-        let sources = plan
+    /// The values of trials `t0 .. t0 + lanes`, lane after lane, into
+    /// `values` (exact slots are left at their nominal).
+    fn fill(&self, values: &mut [f64], slots: usize, t0: u64, lanes: usize) {
+        for &(slot, value) in &self.fixed {
+            for lane in 0..lanes {
+                values[lane * slots + slot] = value;
+            }
+        }
+        for &(draw, stream) in &self.drawn {
+            for lane in 0..lanes {
+                values[lane * slots + draw.slot] = draw.value(stream, t0 + lane as u64);
+            }
+        }
+        for (common, stream) in &self.groups {
+            for lane in 0..lanes {
+                let x = common.unit(*stream, t0 + lane as u64);
+                for &(slot, scale) in &common.parts {
+                    values[lane * slots + slot] += scale * x;
+                }
+            }
+        }
+    }
+
+    /// Every source's id and stream in the shares' order (slots, then
+    /// groups); a fixed source has none.
+    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Option<Stream>)> + 'a {
+        let mut drawn = self.drawn.iter().peekable();
+        let slots = plan
             .slots
             .iter()
             .enumerate()
             .filter(|(_, slot)| slot.kind != SourceKind::Exact)
-            .map(|(s, slot)| {
-                let own = own_fraction(&plan.groups, s);
-                (Draw::of(s, slot, own), Stream::new(seed, &slot.id, key))
-            })
-            .collect();
+            .map(move |(s, slot)| {
+                let stream = drawn.next_if(|(d, _)| d.slot == s).map(|(_, st)| *st);
+                (slot.id.as_str(), stream)
+            });
         let groups = plan
             .groups
             .iter()
-            .map(|g| (Common::of(g, plan), Stream::new(seed, &g.id, key)))
-            .collect();
+            .zip(&self.groups)
+            .map(|(g, (_, s))| (g.id.as_str(), Some(*s)));
+        slots.chain(groups)
+    }
+}
+
+/// What each reading adds at one condition: the streams of noise and
+/// quantization where they act, keyed by the condition too (a reading's
+/// noise is its own, not the chain's).
+#[derive(Clone, Copy)]
+struct Reading {
+    noise: Option<Stream>,
+    quantization: Option<Stream>,
+}
+
+impl Reading {
+    fn new(condition: &Condition, noise: &Noise, seed: u64) -> Reading {
+        let key = condition_key(&condition.env);
         let acts = |on: bool, id| on.then(|| Stream::new(seed, id, key));
-        Streams {
-            sources,
-            groups,
+        Reading {
             noise: acts(noise.sigma_averaged != 0.0, NOISE_ID),
             quantization: acts(condition.quantization != (0.0, 0.0), QUANTIZATION_ID),
         }
+    }
+
+    fn named<'a>(self) -> impl Iterator<Item = (&'a str, Option<Stream>)> {
+        let noise = self.noise.map(|s| (NOISE_ID as &'a str, Some(s)));
+        let quantization = self
+            .quantization
+            .map(|s| (QUANTIZATION_ID as &'a str, Some(s)));
+        noise.into_iter().chain(quantization)
     }
 }
 
@@ -317,6 +376,12 @@ struct Run<'a> {
     trials: usize,
     seed: u64,
     shares: bool,
+}
+
+/// One condition of a run, with what its readings add.
+struct At<'a> {
+    condition: &'a Condition,
+    reading: Reading,
 }
 
 impl Run<'_> {
@@ -340,37 +405,52 @@ impl Run<'_> {
             };
             return Ok(vec![none; conditions.len()]);
         }
-        let streams: Vec<Streams> = conditions
+        let sources = Sources::new(plan, seed);
+        let at: Vec<At> = conditions
             .iter()
-            .map(|c| Streams::new(plan, c, noise, seed))
+            .map(|condition| At {
+                condition,
+                reading: Reading::new(condition, noise, seed),
+            })
             .collect();
-        // Each chunk writes its errors straight into its condition's buffer.
+        // Each chunk of trials runs every condition, writing straight into
+        // each condition's buffer.
         let mut errors: Vec<Vec<f64>> = conditions.iter().map(|_| vec![0.0; trials]).collect();
-        let tasks: Vec<(usize, usize, &mut [f64])> = errors
-            .iter_mut()
-            .enumerate()
-            .flat_map(|(c, all)| {
-                all.chunks_mut(CHUNK)
-                    .enumerate()
-                    .map(move |(chunk, out)| (c, chunk * CHUNK, out))
-            })
+        let mut tasks: Vec<Vec<&mut [f64]>> = (0..trials.div_ceil(CHUNK))
+            .map(|_| Vec::with_capacity(conditions.len()))
             .collect();
-        let outcomes: Vec<Result<(), EvalError>> = tasks
+        for all in &mut errors {
+            for (task, out) in tasks.iter_mut().zip(all.chunks_mut(CHUNK)) {
+                task.push(out);
+            }
+        }
+        let mut outcomes: Vec<Vec<Result<(), EvalError>>> = tasks
             .into_par_iter()
-            .map(|(c, first, out)| {
-                chunk_errors(plan, &streams[c], &conditions[c], noise, first, out)
+            .enumerate()
+            .map(|(chunk, mut outs)| {
+                let block = Block {
+                    plan,
+                    sources: &sources,
+                    noise,
+                };
+                block.errors(&at, chunk * CHUNK, &mut outs)
             })
             .collect();
-        // The first failure in order, whatever the thread count.
-        outcomes.into_iter().collect::<Result<(), _>>()?;
+        // The first failure of the first failing condition, in trial
+        // order, whatever the thread count.
+        for c in 0..conditions.len() {
+            for outcome in &mut outcomes {
+                std::mem::replace(&mut outcome[c], Ok(()))?;
+            }
+        }
         Ok(errors
             .par_iter_mut()
-            .zip(&streams)
-            .map(|(all, streams)| {
+            .zip(&at)
+            .map(|(all, at)| {
                 // The shares read the trials in their order, before the
                 // interval's selection reorders them.
                 let shares = if shares {
-                    variance_shares(plan, streams, all)
+                    variance_shares(plan, &sources, &at.reading, all)
                 } else {
                     Vec::new()
                 };
@@ -383,67 +463,129 @@ impl Run<'_> {
     }
 }
 
-/// Each drawn source's share of the variance of `errors`.
-fn variance_shares(plan: &Plan, streams: &Streams, errors: &[f64]) -> Vec<Share> {
+/// Each source's share of the variance of `errors`; a fixed one's is 0.
+fn variance_shares(
+    plan: &Plan,
+    sources: &Sources,
+    reading: &Reading,
+    errors: &[f64],
+) -> Vec<Share> {
     let cells = super::shares::cells(errors.len());
     let centered = super::shares::Centered::new(errors);
-    streams
+    sources
         .named(plan)
+        .chain(reading.named())
         .map(|(id, stream)| Share {
             id: id.to_string(),
-            share: super::shares::first_order(&centered, stream, cells),
+            share: stream.map_or(0.0, |s| super::shares::first_order(&centered, s, cells)),
         })
         .collect()
 }
 
-/// The errors of trials `first ..` into `out`.
-fn chunk_errors(
-    plan: &Plan,
-    streams: &Streams,
-    condition: &Condition,
-    noise: &Noise,
-    first: usize,
-    out: &mut [f64],
-) -> Result<(), EvalError> {
-    let env = &condition.env;
-    let slots = plan.nominal.len();
-    // Trials go through the evaluator LANES at a time; each value is its
-    // trial's, so the lane count changes no result.
-    let mut values = plan.nominal.repeat(LANES);
-    let mut readings = [0.0; LANES];
-    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
-    for (k, out) in out.chunks_mut(LANES).enumerate() {
-        let t0 = (first + k * LANES) as u64;
-        let lanes = out.len();
-        for &(draw, stream) in &streams.sources {
-            for lane in 0..lanes {
-                values[lane * slots + draw.slot] = draw.value(stream, t0 + lane as u64);
+/// What one chunk of trials needs besides its conditions.
+struct Block<'a> {
+    plan: &'a Plan,
+    sources: &'a Sources,
+    noise: &'a Noise,
+}
+
+impl Block<'_> {
+    /// The errors of trials `first ..` at every condition into `outs` (one
+    /// buffer a condition, all as long): each trial's values drawn and its
+    /// calibration worked out once, then read at every condition. A
+    /// condition stops at its first failure.
+    fn errors(
+        &self,
+        at: &[At],
+        first: usize,
+        outs: &mut [&mut [f64]],
+    ) -> Vec<Result<(), EvalError>> {
+        let plan = self.plan;
+        let slots = plan.nominal.len();
+        let len = outs.first().map_or(0, |o| o.len());
+        // Trials go through the evaluator LANES at a time; each value is its
+        // trial's, so the lane count changes no result.
+        let mut values = plan.nominal.repeat(LANES);
+        let mut calibrated = [Calibrated::None; LANES];
+        let mut lanes = Lanes {
+            readings: [0.0; LANES],
+            scratch: [[Signal::None; MAX_NODES]; LANES],
+        };
+        let mut outcome: Vec<Result<(), EvalError>> = at.iter().map(|_| Ok(())).collect();
+        for start in (0..len).step_by(LANES) {
+            let count = LANES.min(len - start);
+            let t0 = (first + start) as u64;
+            self.sources.fill(&mut values, slots, t0, count);
+            let calibration = (0..count).try_for_each(|lane| -> Result<(), EvalError> {
+                calibrated[lane] = plan.calibration(&values[lane * slots..(lane + 1) * slots])?;
+                Ok(())
+            });
+            for ((at, out), result) in at.iter().zip(outs.iter_mut()).zip(&mut outcome) {
+                if result.is_err() {
+                    continue;
+                }
+                let out = &mut out[start..start + count];
+                let known = calibration.as_ref().ok().map(|()| &calibrated);
+                *result = self.block(at, &values, known, t0, out, &mut lanes);
             }
         }
-        for (common, stream) in &streams.groups {
-            for lane in 0..lanes {
-                let x = common.unit(*stream, t0 + lane as u64);
-                for &(slot, scale) in &common.parts {
-                    values[lane * slots + slot] += scale * x;
+        outcome
+    }
+
+    /// One block of trials from `t0` at one condition into `out`. Without
+    /// a calibration (it failed in some lane) each lane runs whole, so the
+    /// error is the one a single run meets first.
+    fn block(
+        &self,
+        at: &At,
+        values: &[f64],
+        calibrated: Option<&[Calibrated; LANES]>,
+        t0: u64,
+        out: &mut [f64],
+        lanes: &mut Lanes,
+    ) -> Result<(), EvalError> {
+        let (plan, env) = (self.plan, &at.condition.env);
+        let slots = plan.nominal.len();
+        let lane_values = |lane: usize| &values[lane * slots..(lane + 1) * slots];
+        let readings = &mut lanes.readings;
+        match calibrated {
+            Some(known) if out.len() == LANES => {
+                plan.unquantized_readings_calibrated(
+                    values,
+                    env,
+                    known,
+                    readings,
+                    &mut lanes.scratch,
+                )?;
+            }
+            Some(known) => {
+                for (lane, reading) in readings.iter_mut().enumerate().take(out.len()) {
+                    *reading =
+                        plan.unquantized_reading_calibrated(lane_values(lane), env, &known[lane])?;
+                }
+            }
+            None => {
+                for (lane, reading) in readings.iter_mut().enumerate().take(out.len()) {
+                    *reading = plan.unquantized_reading(lane_values(lane), env)?;
                 }
             }
         }
-        if lanes == LANES {
-            plan.unquantized_readings(&values, env, &mut readings, &mut scratch)?;
-        } else {
-            for (lane, reading) in readings.iter_mut().enumerate().take(lanes) {
-                *reading =
-                    plan.unquantized_reading(&values[lane * slots..(lane + 1) * slots], env)?;
-            }
-        }
-        for (lane, (slot, &r)) in out.iter_mut().zip(&readings).enumerate() {
+        let (condition, reading) = (at.condition, at.reading);
+        for (lane, (slot, &r)) in out.iter_mut().zip(readings.iter()).enumerate() {
             let t = t0 + lane as u64;
-            let z = streams.noise.map_or(0.0, |s| s.normal(t));
-            let q = streams.quantization.map_or(0.0, |s| s.uniform(t) - 0.5);
-            *slot = r - env.measurand + z * noise.sigma_averaged + condition.quantization_at(q);
+            let z = reading.noise.map_or(0.0, |s| s.normal(t));
+            let q = reading.quantization.map_or(0.0, |s| s.uniform(t) - 0.5);
+            *slot =
+                r - env.measurand + z * self.noise.sigma_averaged + condition.quantization_at(q);
         }
+        Ok(())
     }
-    Ok(())
+}
+
+/// The evaluator's working space for one block of lanes.
+struct Lanes {
+    readings: [f64; LANES],
+    scratch: LaneSignals,
 }
 
 /// The probabilistically symmetric 95 % interval of `all` (not empty),
