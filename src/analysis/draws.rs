@@ -71,7 +71,7 @@ impl Stream {
     /// Trial `t`'s uniform on [0, 1), in steps of 2⁻⁵³.
     #[inline]
     pub fn uniform(self, t: u64) -> f64 {
-        (self.bits(t) >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+        uniform_of(self.bits(t))
     }
 
     /// Which of `cells` equal-probability cells trial `t`'s draw falls
@@ -79,16 +79,33 @@ impl Stream {
     /// same bits.
     #[inline]
     pub fn cell(self, t: u64, cells: usize) -> usize {
-        (((self.bits(t) >> 11) as u128 * cells as u128) >> 53) as usize
+        cell_of(self.bits(t), cells)
     }
 
     /// Trial `t`'s standard normal: the inverse CDF of a uniform on the
     /// open interval (0, 1), midway in its 2⁻⁵³ step, so never infinite.
     #[inline]
     pub fn normal(self, t: u64) -> f64 {
-        let u = ((self.bits(t) >> 11) as f64 + 0.5) * (1.0 / (1u64 << 53) as f64);
-        inverse_normal_cdf(u)
+        normal_of(self.bits(t))
     }
+}
+
+/// The uniform on [0, 1) of a draw's bits (see [`Stream::uniform`]).
+#[inline]
+pub fn uniform_of(bits: u64) -> f64 {
+    (bits >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+}
+
+/// The standard normal of a draw's bits (see [`Stream::normal`]).
+#[inline]
+pub fn normal_of(bits: u64) -> f64 {
+    inverse_normal_cdf(((bits >> 11) as f64 + 0.5) * (1.0 / (1u64 << 53) as f64))
+}
+
+/// The cell of a draw's bits among `cells` (see [`Stream::cell`]).
+#[inline]
+pub fn cell_of(bits: u64, cells: usize) -> usize {
+    (((bits >> 11) as u128 * cells as u128) >> 53) as usize
 }
 
 /// The standard normal quantile of `p` in (0, 1): Wichura, "Algorithm

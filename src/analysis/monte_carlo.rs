@@ -11,7 +11,7 @@
 use rayon::prelude::*;
 
 use super::budget::Point;
-use super::draws::{condition_key, Stream};
+use super::draws::{cell_of, condition_key, normal_of, uniform_of, Stream};
 use super::noise::Noise;
 use crate::eval::{
     half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot,
@@ -98,13 +98,13 @@ impl Draw {
         }
     }
 
-    /// The value of trial `t` from `stream`.
+    /// The value a draw's `bits` give.
     #[inline]
-    fn value(&self, stream: Stream, t: u64) -> f64 {
+    fn value(&self, bits: u64) -> f64 {
         let x = if self.normal {
-            stream.normal(t)
+            normal_of(bits)
         } else {
-            stream.uniform(t)
+            uniform_of(bits)
         };
         self.origin + self.scale * x
     }
@@ -131,13 +131,13 @@ impl Common {
         }
     }
 
-    /// Trial `t`'s draw on the unit half-width.
+    /// The draw on the unit half-width that `bits` give.
     #[inline]
-    fn unit(&self, stream: Stream, t: u64) -> f64 {
+    fn unit(&self, bits: u64) -> f64 {
         if self.normal {
-            stream.normal(t) / 3.0
+            normal_of(bits) / 3.0
         } else {
-            2.0 * stream.uniform(t) - 1.0
+            2.0 * uniform_of(bits) - 1.0
         }
     }
 }
@@ -293,48 +293,88 @@ impl Sources {
         }
     }
 
+    /// The streams that vary: the drawn sources, then the groups.
+    fn columns(&self) -> usize {
+        self.drawn.len() + self.groups.len()
+    }
+
     /// The values of trials `t0 .. t0 + lanes`, lane after lane, into
-    /// `values` (exact slots are left at their nominal).
-    fn fill(&self, values: &mut [f64], slots: usize, t0: u64, lanes: usize) {
+    /// `values` (exact slots are left at their nominal), and each drawn
+    /// stream's partition cell into `cells` from index `at` on.
+    fn fill(&self, values: &mut [f64], slots: usize, t0: u64, lanes: usize, cells: &mut Cells) {
         for &(slot, value) in &self.fixed {
             for lane in 0..lanes {
                 values[lane * slots + slot] = value;
             }
         }
-        for &(draw, stream) in &self.drawn {
+        for (k, &(draw, stream)) in self.drawn.iter().enumerate() {
             for lane in 0..lanes {
-                values[lane * slots + draw.slot] = draw.value(stream, t0 + lane as u64);
+                let bits = stream.bits(t0 + lane as u64);
+                values[lane * slots + draw.slot] = draw.value(bits);
+                cells.record(k, lane, bits);
             }
         }
-        for (common, stream) in &self.groups {
+        for (g, (common, stream)) in self.groups.iter().enumerate() {
             for lane in 0..lanes {
-                let x = common.unit(*stream, t0 + lane as u64);
+                let bits = stream.bits(t0 + lane as u64);
+                let x = common.unit(bits);
                 for &(slot, scale) in &common.parts {
                     values[lane * slots + slot] += scale * x;
                 }
+                cells.record(self.drawn.len() + g, lane, bits);
             }
         }
     }
 
-    /// Every source's id and stream in the shares' order (slots, then
-    /// groups); a fixed source has none.
-    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Option<Stream>)> + 'a {
-        let mut drawn = self.drawn.iter().peekable();
+    /// Every source's id and where its cells are in the shares' order
+    /// (slots, then groups): the index of its column, none if fixed.
+    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Varies)> + 'a {
+        let mut drawn = self.drawn.iter().enumerate().peekable();
         let slots = plan
             .slots
             .iter()
             .enumerate()
             .filter(|(_, slot)| slot.kind != SourceKind::Exact)
             .map(move |(s, slot)| {
-                let stream = drawn.next_if(|(d, _)| d.slot == s).map(|(_, st)| *st);
-                (slot.id.as_str(), stream)
+                let column = drawn.next_if(|(_, (d, _))| d.slot == s).map(|(k, _)| k);
+                (slot.id.as_str(), column.map_or(Varies::Not, Varies::Column))
             });
+        let first = self.drawn.len();
         let groups = plan
             .groups
             .iter()
-            .zip(&self.groups)
-            .map(|(g, (_, s))| (g.id.as_str(), Some(*s)));
+            .enumerate()
+            .map(move |(g, group)| (group.id.as_str(), Varies::Column(first + g)));
         slots.chain(groups)
+    }
+}
+
+/// Where a source's partition cells for the shares come from.
+#[derive(Clone, Copy)]
+enum Varies {
+    /// A fixed source: no cells, no share.
+    Not,
+    /// Recorded while drawing, in this column.
+    Column(usize),
+    /// Recomputed from the stream.
+    Stream(Stream),
+}
+
+/// A chunk's part of every recorded column of partition cells (none when
+/// no shares are asked for), from index `at` of the chunk.
+struct Cells<'a> {
+    columns: Vec<&'a mut [u8]>,
+    count: usize,
+    at: usize,
+}
+
+impl Cells<'_> {
+    #[inline]
+    fn record(&mut self, column: usize, lane: usize, bits: u64) {
+        if let Some(cells) = self.columns.get_mut(column) {
+            // At most MAX_CELLS (256) cells: the index fits a byte.
+            cells[self.at + lane] = cell_of(bits, self.count) as u8;
+        }
     }
 }
 
@@ -357,11 +397,11 @@ impl Reading {
         }
     }
 
-    fn named<'a>(self) -> impl Iterator<Item = (&'a str, Option<Stream>)> {
-        let noise = self.noise.map(|s| (NOISE_ID as &'a str, Some(s)));
+    fn named<'a>(self) -> impl Iterator<Item = (&'a str, Varies)> {
+        let noise = self.noise.map(|s| (NOISE_ID as &'a str, Varies::Stream(s)));
         let quantization = self
             .quantization
-            .map(|s| (QUANTIZATION_ID as &'a str, Some(s)));
+            .map(|s| (QUANTIZATION_ID as &'a str, Varies::Stream(s)));
         noise.into_iter().chain(quantization)
     }
 }
@@ -377,6 +417,10 @@ struct Run<'a> {
     seed: u64,
     shares: bool,
 }
+
+/// One chunk's part of every condition's errors and of every recorded
+/// column of partition cells.
+type Task<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>);
 
 /// One condition of a run, with what its readings add.
 struct At<'a> {
@@ -416,24 +460,45 @@ impl Run<'_> {
         // Each chunk of trials runs every condition, writing straight into
         // each condition's buffer.
         let mut errors: Vec<Vec<f64>> = conditions.iter().map(|_| vec![0.0; trials]).collect();
-        let mut tasks: Vec<Vec<&mut [f64]>> = (0..trials.div_ceil(CHUNK))
-            .map(|_| Vec::with_capacity(conditions.len()))
+        // The shares' partition cells of each varying source, recorded as
+        // the trials draw them, shared by every condition.
+        let count = super::shares::cells(trials);
+        let columns = if shares { sources.columns() } else { 0 };
+        let mut cells: Vec<Vec<u8>> = (0..columns).map(|_| vec![0; trials]).collect();
+        let chunks = trials.div_ceil(CHUNK);
+        let mut tasks: Vec<Task> = (0..chunks)
+            .map(|_| {
+                (
+                    Vec::with_capacity(conditions.len()),
+                    Vec::with_capacity(columns),
+                )
+            })
             .collect();
         for all in &mut errors {
             for (task, out) in tasks.iter_mut().zip(all.chunks_mut(CHUNK)) {
-                task.push(out);
+                task.0.push(out);
+            }
+        }
+        for column in &mut cells {
+            for (task, part) in tasks.iter_mut().zip(column.chunks_mut(CHUNK)) {
+                task.1.push(part);
             }
         }
         let mut outcomes: Vec<Vec<Result<(), EvalError>>> = tasks
             .into_par_iter()
             .enumerate()
-            .map(|(chunk, mut outs)| {
+            .map(|(chunk, (mut outs, columns))| {
                 let block = Block {
                     plan,
                     sources: &sources,
                     noise,
                 };
-                block.errors(&at, chunk * CHUNK, &mut outs)
+                let mut cells = Cells {
+                    columns,
+                    count,
+                    at: 0,
+                };
+                block.errors(&at, chunk * CHUNK, &mut outs, &mut cells)
             })
             .collect();
         // The first failure of the first failing condition, in trial
@@ -450,7 +515,7 @@ impl Run<'_> {
                 // The shares read the trials in their order, before the
                 // interval's selection reorders them.
                 let shares = if shares {
-                    variance_shares(plan, &sources, &at.reading, all)
+                    variance_shares(plan, &sources, &at.reading, &cells, all)
                 } else {
                     Vec::new()
                 };
@@ -463,21 +528,28 @@ impl Run<'_> {
     }
 }
 
-/// Each source's share of the variance of `errors`; a fixed one's is 0.
+/// Each source's share of the variance of `errors`, from the cells
+/// recorded in `columns`; a fixed one's is 0.
 fn variance_shares(
     plan: &Plan,
     sources: &Sources,
     reading: &Reading,
+    columns: &[Vec<u8>],
     errors: &[f64],
 ) -> Vec<Share> {
+    use super::shares::{first_order, first_order_of};
     let cells = super::shares::cells(errors.len());
     let centered = super::shares::Centered::new(errors);
     sources
         .named(plan)
         .chain(reading.named())
-        .map(|(id, stream)| Share {
+        .map(|(id, varies)| Share {
             id: id.to_string(),
-            share: stream.map_or(0.0, |s| super::shares::first_order(&centered, s, cells)),
+            share: match varies {
+                Varies::Not => 0.0,
+                Varies::Column(k) => first_order_of(&centered, &columns[k], cells),
+                Varies::Stream(s) => first_order(&centered, s, cells),
+            },
         })
         .collect()
 }
@@ -499,6 +571,7 @@ impl Block<'_> {
         at: &[At],
         first: usize,
         outs: &mut [&mut [f64]],
+        cells: &mut Cells,
     ) -> Vec<Result<(), EvalError>> {
         let plan = self.plan;
         let slots = plan.nominal.len();
@@ -515,7 +588,8 @@ impl Block<'_> {
         for start in (0..len).step_by(LANES) {
             let count = LANES.min(len - start);
             let t0 = (first + start) as u64;
-            self.sources.fill(&mut values, slots, t0, count);
+            cells.at = start;
+            self.sources.fill(&mut values, slots, t0, count, cells);
             let calibration = (0..count).try_for_each(|lane| -> Result<(), EvalError> {
                 calibrated[lane] = plan.calibration(&values[lane * slots..(lane + 1) * slots])?;
                 Ok(())
