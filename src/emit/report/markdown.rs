@@ -288,7 +288,7 @@ fn budget(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
             x.monte_carlo_share.map_or(String::new(), share)
         );
     }
-    out.push_str("\nError along the signal path (1σ, referred to the measurand):\n\n");
+    let _ = writeln!(out, "\n{}:\n", path_title(c));
     plot_links(out, links, "path");
     out.push_str("| stage | value | gain | error |\n| --- | --- | --- | --- |\n");
     for p in &b.path {
@@ -339,7 +339,17 @@ fn points(out: &mut String, c: &ChainReport) {
 fn noise(out: &mut String, c: &ChainReport) {
     let n = &c.noise;
     let u = &c.unit;
-    out.push_str("### Noise and resolution\n\n| | |\n| --- | --- |\n");
+    out.push_str("### Noise and resolution\n\n");
+    if n.terms.is_empty() {
+        // Zeros would read as a noiseless chain; the spec said nothing.
+        let _ = writeln!(
+            out,
+            "No stage states its noise, so none is counted; one code is {}.\n",
+            value(n.lsb, u)
+        );
+        return;
+    }
+    out.push_str("| | |\n| --- | --- |\n");
     let _ = writeln!(
         out,
         "| noise bandwidth | {} |",
@@ -637,4 +647,15 @@ fn provenance(out: &mut String, report: &Report) {
     if let Some(t) = &p.timestamp {
         let _ = writeln!(out, "| made | {t} |");
     }
+}
+
+/// The signal path's heading: its errors are the stages' own, before a
+/// calibration the firmware applies after the converter.
+pub fn path_title(c: &ChainReport) -> String {
+    let when = if c.calibration.is_some() {
+        ", before the firmware's calibration"
+    } else {
+        ""
+    };
+    format!("Error along the signal path (1σ, referred to the measurand{when})")
 }

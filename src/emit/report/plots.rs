@@ -178,7 +178,7 @@ fn path(c: &ChainReport, key: &str) -> Option<Plot> {
     if rows.iter().all(|r| r.1 <= 0.0) {
         return None;
     }
-    let title = "Error along the signal path (1σ, referred to the measurand)".to_string();
+    let title = super::markdown::path_title(c);
     let svg = bars(
         &format!("{key}-path"),
         &title,
