@@ -422,6 +422,47 @@ struct Run<'a> {
 /// column of partition cells.
 type Task<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>);
 
+/// Each chunk's slices of every condition's errors and every cell column.
+fn chunk_tasks<'a>(
+    errors: &'a mut [Vec<f64>],
+    cells: &'a mut [Vec<u8>],
+    trials: usize,
+) -> Vec<Task<'a>> {
+    let mut tasks: Vec<Task> = (0..trials.div_ceil(CHUNK))
+        .map(|_| {
+            (
+                Vec::with_capacity(errors.len()),
+                Vec::with_capacity(cells.len()),
+            )
+        })
+        .collect();
+    for all in errors {
+        for (task, out) in tasks.iter_mut().zip(all.chunks_mut(CHUNK)) {
+            task.0.push(out);
+        }
+    }
+    for column in cells {
+        for (task, part) in tasks.iter_mut().zip(column.chunks_mut(CHUNK)) {
+            task.1.push(part);
+        }
+    }
+    tasks
+}
+
+/// The first failure of the first failing condition, in trial order,
+/// whatever the thread count.
+fn first_failure(
+    mut outcomes: Vec<Vec<Result<(), EvalError>>>,
+    conditions: usize,
+) -> Result<(), EvalError> {
+    for c in 0..conditions {
+        for outcome in &mut outcomes {
+            std::mem::replace(&mut outcome[c], Ok(()))?;
+        }
+    }
+    Ok(())
+}
+
 /// One condition of a run, with what its readings add.
 struct At<'a> {
     condition: &'a Condition,
@@ -465,26 +506,8 @@ impl Run<'_> {
         let count = super::shares::cells(trials);
         let columns = if shares { sources.columns() } else { 0 };
         let mut cells: Vec<Vec<u8>> = (0..columns).map(|_| vec![0; trials]).collect();
-        let chunks = trials.div_ceil(CHUNK);
-        let mut tasks: Vec<Task> = (0..chunks)
-            .map(|_| {
-                (
-                    Vec::with_capacity(conditions.len()),
-                    Vec::with_capacity(columns),
-                )
-            })
-            .collect();
-        for all in &mut errors {
-            for (task, out) in tasks.iter_mut().zip(all.chunks_mut(CHUNK)) {
-                task.0.push(out);
-            }
-        }
-        for column in &mut cells {
-            for (task, part) in tasks.iter_mut().zip(column.chunks_mut(CHUNK)) {
-                task.1.push(part);
-            }
-        }
-        let mut outcomes: Vec<Vec<Result<(), EvalError>>> = tasks
+        let tasks = chunk_tasks(&mut errors, &mut cells, trials);
+        let outcomes: Vec<Vec<Result<(), EvalError>>> = tasks
             .into_par_iter()
             .enumerate()
             .map(|(chunk, (mut outs, columns))| {
@@ -501,13 +524,7 @@ impl Run<'_> {
                 block.errors(&at, chunk * CHUNK, &mut outs, &mut cells)
             })
             .collect();
-        // The first failure of the first failing condition, in trial
-        // order, whatever the thread count.
-        for c in 0..conditions.len() {
-            for outcome in &mut outcomes {
-                std::mem::replace(&mut outcome[c], Ok(()))?;
-            }
-        }
+        first_failure(outcomes, conditions.len())?;
         Ok(errors
             .par_iter_mut()
             .zip(&at)

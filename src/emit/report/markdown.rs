@@ -288,7 +288,7 @@ fn budget(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
             x.monte_carlo_share.map_or(String::new(), share)
         );
     }
-    let _ = writeln!(out, "\n{}:\n", path_title(c));
+    let _ = writeln!(out, "\n{}:\n", super::fmt::path_title(c));
     plot_links(out, links, "path");
     out.push_str("| stage | value | gain | error |\n| --- | --- | --- | --- |\n");
     for p in &b.path {
@@ -647,15 +647,4 @@ fn provenance(out: &mut String, report: &Report) {
     if let Some(t) = &p.timestamp {
         let _ = writeln!(out, "| made | {t} |");
     }
-}
-
-/// The signal path's heading: its errors are the stages' own, before a
-/// calibration the firmware applies after the converter.
-pub fn path_title(c: &ChainReport) -> String {
-    let when = if c.calibration.is_some() {
-        ", before the firmware's calibration"
-    } else {
-        ""
-    };
-    format!("Error along the signal path (1σ, referred to the measurand{when})")
 }

@@ -178,7 +178,7 @@ fn path(c: &ChainReport, key: &str) -> Option<Plot> {
     if rows.iter().all(|r| r.1 <= 0.0) {
         return None;
     }
-    let title = super::markdown::path_title(c);
+    let title = super::fmt::path_title(c);
     let svg = bars(
         &format!("{key}-path"),
         &title,
