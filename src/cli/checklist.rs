@@ -13,9 +13,10 @@ use clap::{Args, ValueEnum};
 
 use super::files::check_one;
 use super::report::{about_faults, chain_checklist, warnings};
+use super::settings;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::checklist::{Checklist, LimitStatus};
-use crate::analysis::ranges::{envelopes, DEFAULT_MARGIN};
+use crate::analysis::ranges::envelopes;
 use crate::analysis::Keep;
 use crate::diagnostics::{render_human, Severity};
 use crate::emit::report::fmt::{position, share, si, value};
@@ -60,7 +61,7 @@ pub fn run(args: ChecklistArgs) -> u8 {
         Ok(c) => c,
         Err(status) => return status,
     };
-    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
+    let margin = settings::margin(None, &config).value;
     let blocking = checked
         .findings
         .iter()

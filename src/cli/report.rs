@@ -12,11 +12,10 @@ use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::checklist::{checklist, Checklist, Sources};
 use crate::analysis::faults::{self, FaultCheck};
 use crate::analysis::ranges::Envelope;
-use crate::analysis::ranges::DEFAULT_MARGIN;
 use crate::analysis::report::{analyse_reusing, Options};
 use crate::analysis::soundness;
 use crate::check::CheckedFile;
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::unknown_word;
 use crate::diagnostics::{render_human, Code, Findings, Severity};
 use crate::emit::report::{
     chain_report, failed_report, render, summary_row, BuildOptions, Report, ReportFormat,
@@ -260,10 +259,8 @@ fn selected<'c>(checked: &'c CheckedFile, chain: Option<&str>) -> Result<Vec<&'c
     match checked.chains.iter().find(|c| c.name == name) {
         Some(c) => Ok(vec![c]),
         None => {
-            match did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str())) {
-                Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
-                None => errln!("catena: no chain `{name}`"),
-            }
+            let names = checked.chains.iter().map(|c| c.name.as_str());
+            errln!("catena: {}", unknown_word("chain", name, names, None));
             Err(EXIT_USAGE)
         }
     }
@@ -272,7 +269,7 @@ fn selected<'c>(checked: &'c CheckedFile, chain: Option<&str>) -> Result<Vec<&'c
 /// The analyses' options and the builder's: flags first, then
 /// `catena.yaml`, then the defaults.
 fn options(args: &ReportArgs, config: &crate::config::Config) -> (Options, BuildOptions) {
-    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
+    let margin = settings::margin(None, config).value;
     let options = args.sampling.options(config);
     let build = BuildOptions {
         points: args.sampling.points,
