@@ -189,9 +189,18 @@ pub struct SamplingArgs {
 }
 
 impl SamplingArgs {
-    /// Whether the flags are in range; the one that is not is reported.
+    /// Whether the flags are in range; the one that is not is reported
+    /// on standard error.
     pub fn usable(&self) -> bool {
-        sampling_flags_usable(self.trials, Some(self.points))
+        if self.trials.is_some_and(|t| t > MAX_TRIALS) {
+            errln!("catena: --trials is at most {MAX_TRIALS}");
+            return false;
+        }
+        if !(2..=1001).contains(&self.points) {
+            errln!("catena: --points takes 2 to 1001");
+            return false;
+        }
+        true
     }
 
     /// The analysis options, with the report's detail: flags first, then
@@ -209,18 +218,4 @@ impl SamplingArgs {
             detail: true,
         }
     }
-}
-
-/// Whether the sampling flags the analysing commands share are in range;
-/// the one that is not is reported on standard error.
-pub fn sampling_flags_usable(trials: Option<usize>, points: Option<usize>) -> bool {
-    if trials.is_some_and(|t| t > MAX_TRIALS) {
-        errln!("catena: --trials is at most {MAX_TRIALS}");
-        return false;
-    }
-    if points.is_some_and(|p| !(2..=1001).contains(&p)) {
-        errln!("catena: --points takes 2 to 1001");
-        return false;
-    }
-    true
 }
