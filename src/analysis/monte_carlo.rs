@@ -13,8 +13,8 @@ use super::budget::Point;
 use super::draws::{condition_key, Stream};
 use super::noise::Noise;
 use crate::eval::{
-    half_width, own_fraction, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot, SourceKind,
-    LANES, MAX_NODES,
+    half_width, own_fraction, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot, SlotId,
+    SourceKind, LANES, MAX_NODES,
 };
 
 /// Trials per task: large enough to amortise the split, small enough to
@@ -62,7 +62,7 @@ pub struct Sampled {
 /// uniform on [0, 1), worked out once rather than per trial.
 #[derive(Clone, Copy, Debug)]
 struct Draw {
-    slot: usize,
+    slot: SlotId,
     normal: bool,
     origin: f64,
     scale: f64,
@@ -72,7 +72,7 @@ impl Draw {
     /// A slot's draw; a member of a tracking group draws only its own
     /// part, `own` of its half-width about its middle (the group's common
     /// part is added by [`Common`]).
-    fn of(slot: usize, s: &Slot, own: f64) -> Draw {
+    fn of(slot: SlotId, s: &Slot, own: f64) -> Draw {
         let (origin, scale) = if own != 1.0 {
             let (h, mid) = half_width(s);
             if s.normal {
@@ -115,7 +115,7 @@ impl Draw {
 struct Common {
     normal: bool,
     /// Each member's slot and c_i h_i.
-    parts: Vec<(usize, f64)>,
+    parts: Vec<(SlotId, f64)>,
 }
 
 impl Common {
@@ -125,7 +125,7 @@ impl Common {
             parts: group
                 .parts
                 .iter()
-                .map(|p| (p.slot, p.common * half_width(&plan.slots[p.slot]).0))
+                .map(|p| (p.slot, p.common * half_width(&plan.slots[p.slot.index()]).0))
                 .collect(),
         }
     }
@@ -269,7 +269,7 @@ impl Streams {
         let sources = self
             .sources
             .iter()
-            .map(|(d, s)| (plan.slots[d.slot].id.as_str(), *s));
+            .map(|(d, s)| (plan.slots[d.slot.index()].id.as_str(), *s));
         let groups = plan
             .groups
             .iter()
@@ -282,10 +282,8 @@ impl Streams {
 
     fn new(plan: &Plan, condition: &Condition, noise: &Noise, seed: u64) -> Streams {
         let key = condition_key(&condition.env);
-        let sources = plan
-            .slots
-            .iter()
-            .enumerate()
+        let sources = SlotId::all(plan.slots.len())
+            .zip(&plan.slots)
             .filter(|(_, slot)| slot.kind != SourceKind::Exact)
             .map(|(s, slot)| {
                 let own = own_fraction(&plan.groups, s);
@@ -417,14 +415,14 @@ fn chunk_errors(
         let lanes = out.len();
         for &(draw, stream) in &streams.sources {
             for lane in 0..lanes {
-                values[lane * slots + draw.slot] = draw.value(stream, t0 + lane as u64);
+                values[lane * slots + draw.slot.index()] = draw.value(stream, t0 + lane as u64);
             }
         }
         for (common, stream) in &streams.groups {
             for lane in 0..lanes {
                 let x = common.unit(*stream, t0 + lane as u64);
                 for &(slot, scale) in &common.parts {
-                    values[lane * slots + slot] += scale * x;
+                    values[lane * slots + slot.index()] += scale * x;
                 }
             }
         }

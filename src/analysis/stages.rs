@@ -9,7 +9,7 @@ pub fn signal_path(plan: &Plan, adc: NodeId) -> Vec<NodeId> {
     let mut path = vec![adc];
     let mut at = adc;
     loop {
-        let next = match &plan.nodes[at] {
+        let next = match &plan.nodes[at.index()] {
             Node::Adc(node::Adc { input, .. })
             | Node::Amplifier(node::Amplifier { input, .. })
             | Node::Filter(node::Filter { input, .. }) => Some(*input),

@@ -59,7 +59,7 @@ pub fn code_window_from(
     plan: &Plan,
     envelopes: &[ranges::Envelope],
 ) -> Result<CodeWindow, EvalError> {
-    let Node::Adc(adc) = &plan.nodes[plan.adc] else {
+    let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
         return Err(numeric(plan, "no converter"));
     };
     let per_ref = match adc.polarity {
@@ -89,7 +89,7 @@ pub fn code_window_from(
 
 fn numeric(plan: &Plan, what: &str) -> EvalError {
     EvalError::Numeric {
-        stage: plan.names[plan.adc].clone(),
+        stage: plan.names[plan.adc.index()].clone(),
         what: what.to_string(),
     }
 }

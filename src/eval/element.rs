@@ -3,7 +3,7 @@
 //! wherever they sit (on a current source, in a divider or a bridge).
 
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
-use super::plan::{Env, EvalError, NodeId, Plan, Signal};
+use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::within;
 use crate::physics::{rtd, strain, thermistor};
 use crate::units::ZERO_CELSIUS_K;
@@ -21,7 +21,7 @@ pub(super) enum Supply {
 /// response is strongly curved (a thermistor), for [`self_heated`].
 #[derive(Clone, Copy, Debug)]
 pub(super) struct Heating {
-    pub dissipation: usize,
+    pub dissipation: SlotId,
     pub curved: bool,
 }
 
@@ -29,7 +29,7 @@ impl Plan {
     /// The element's self-heating, if it states a dissipation constant.
     #[inline]
     pub(super) fn heating(&self, n: NodeId) -> Option<Heating> {
-        match &self.nodes[n] {
+        match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 dissipation: Some(d),
                 ..
@@ -69,12 +69,12 @@ impl Plan {
     /// arm less this is the element itself, without evaluating its curve
     /// again.
     fn element_leads(&self, n: NodeId, values: &[f64]) -> f64 {
-        match &self.nodes[n] {
+        match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 wiring,
                 leads: Some((a, b)),
                 ..
-            }) => rtd::lead_series_resistance(*wiring, values[*a], values[*b]),
+            }) => rtd::lead_series_resistance(*wiring, values[a.index()], values[b.index()]),
             Node::Rtd(node::Rtd { leads: None, .. })
             | Node::Thermistor(_)
             | Node::Excitation(_)
@@ -107,7 +107,7 @@ impl Plan {
         let cold = curve.resistance(t).map_err(|_| self.no_resistance(n))?;
         match (current, self.heating(n)) {
             (Some(a), Some(heating)) => {
-                let delta = values[heating.dissipation];
+                let delta = values[heating.dissipation.index()];
                 self_heated(cold, heating.curved, |r| {
                     curve.heated_resistance(t, a * a * r, delta)
                 })
@@ -138,7 +138,7 @@ impl Plan {
         values: &[f64],
         env: &Env,
     ) -> Result<(ElementCurve, f64), EvalError> {
-        match &self.nodes[n] {
+        match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 curve,
                 coefficient_errors,
@@ -151,7 +151,11 @@ impl Plan {
                 let range = curve.range_c();
                 let t_c = within(t - ZERO_CELSIUS_K, range)
                     .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))?;
-                let error = |k: usize| coefficient_errors[k].map(|s| values[s]).unwrap_or(0.0);
+                let error = |k: usize| {
+                    coefficient_errors[k]
+                        .map(|s| values[s.index()])
+                        .unwrap_or(0.0)
+                };
                 let curve = match *curve {
                     RtdCurve::Cvd { a, b, c } => RtdCurve::Cvd {
                         a: a + error(0),
@@ -162,8 +166,8 @@ impl Plan {
                 };
                 let element = ElementCurve::Rtd {
                     curve,
-                    r0: values[*r0],
-                    deviation: deviation.map(|(d0, da)| (values[d0], values[da])),
+                    r0: values[r0.index()],
+                    deviation: deviation.map(|(d0, da)| (values[d0.index()], values[da.index()])),
                 };
                 Ok((element, t_c))
             }
@@ -172,8 +176,8 @@ impl Plan {
             }) => {
                 let element = match curve {
                     ThermistorCurve::Beta { beta } => ElementCurve::Beta {
-                        r25: values[*r25],
-                        beta: values[*beta],
+                        r25: values[r25.index()],
+                        beta: values[beta.index()],
                     },
                     ThermistorCurve::SteinhartHart { a, b, c } => {
                         ElementCurve::SteinhartHart(thermistor::SteinhartHart {
@@ -212,7 +216,7 @@ impl Plan {
         env: &Env,
         power: impl Fn(f64) -> f64,
     ) -> Result<f64, EvalError> {
-        let delta = values[heating.dissipation];
+        let delta = values[heating.dissipation.index()];
         let (curve, t) = self.element_curve(n, values, env)?;
         self_heated(cold, heating.curved, |r| {
             curve.heated_resistance(t, power(r), delta)

@@ -213,8 +213,8 @@ impl Plan {
     pub fn faults(&self) -> Vec<Fault> {
         let feeds = self.feeds(self.adc);
         let mut out = Vec::new();
-        for i in (0..self.nodes.len()).filter(|&i| feeds[i]) {
-            for &kind in self.nodes[i].faults() {
+        for i in NodeId::all(self.nodes.len()).filter(|&i| feeds[i.index()]) {
+            for &kind in self.nodes[i.index()].faults() {
                 let burnout = match kind {
                     FaultKind::InputOpen => self.burnout_of(i),
                     _ => self.burnout_into(i),
@@ -234,8 +234,8 @@ impl Plan {
         let mut feeds = vec![false; self.nodes.len()];
         let mut stack = vec![target];
         while let Some(n) = stack.pop() {
-            if !std::mem::replace(&mut feeds[n], true) {
-                stack.extend(self.nodes[n].inputs());
+            if !std::mem::replace(&mut feeds[n.index()], true) {
+                stack.extend(self.nodes[n.index()].inputs());
             }
         }
         feeds
@@ -253,7 +253,7 @@ impl Plan {
     /// The burnout current amplifier or converter `i` sources from its own
     /// input.
     pub fn burnout_of(&self, i: NodeId) -> Option<f64> {
-        match &self.nodes[i] {
+        match &self.nodes[i.index()] {
             Node::Amplifier(a) => a.burnout,
             Node::Adc(a) => a.burnout,
             _ => None,
@@ -266,8 +266,8 @@ impl Plan {
         if !fault.kind.breaks_loop() {
             return None;
         }
-        let input = self.nodes[fault.node].element_input()?;
-        match &self.nodes[input] {
+        let input = self.nodes[fault.node.index()].element_input()?;
+        match &self.nodes[input.index()] {
             Node::Excitation(e) if e.current => Some(input),
             _ => None,
         }
@@ -282,8 +282,8 @@ impl Plan {
     ) -> Result<FaultCode, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         let starved = self.starved_source(fault);
-        for i in 0..=self.adc {
-            if matches!(self.nodes[i], Node::Convert(_)) {
+        for i in NodeId::all(self.adc.index() + 1) {
+            if matches!(self.nodes[i.index()], Node::Convert(_)) {
                 continue;
             }
             let here = if i == fault.node { Some(fault) } else { None };
@@ -303,12 +303,12 @@ impl Plan {
                 )?
             };
             match s {
-                Faulted::Signal(s) => signals[i] = s,
+                Faulted::Signal(s) => signals[i.index()] = s,
                 Faulted::Undetermined(why) => return Ok(FaultCode::Undetermined(why)),
                 Faulted::EitherEnd => return Ok(FaultCode::EitherEnd),
             }
         }
-        match signals[self.adc] {
+        match signals[self.adc.index()] {
             Signal::Code { exact, .. } => Ok(FaultCode::Code(exact)),
             _ => Err(self.numeric(self.adc, "no code")),
         }

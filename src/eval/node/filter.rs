@@ -38,7 +38,7 @@ pub(super) const FAULTS: &[FaultKind] = &[];
 impl Filter {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        Ok(match run.s[self.input] {
+        Ok(match run.s[self.input.index()] {
             Signal::Voltage { v, cm, rs } => Signal::Voltage {
                 v,
                 cm,
