@@ -125,6 +125,12 @@ fn structure(html: &str) -> String {
 fn html_report_structure_of_the_cold_store() {
     let html = report("specs/cold_store.catena", "html", "1");
     assert!(!html.contains("<script") && !html.contains(" src=") && !html.contains("<link"));
+    // Every Markdown heading level the renderer writes becomes a heading,
+    // never a paragraph that shows its hashes.
+    assert!(
+        !html.contains("<p>#"),
+        "a Markdown heading leaked into the HTML"
+    );
     insta::assert_snapshot!("report-html-cold_store", structure(&html));
 }
 
@@ -182,4 +188,67 @@ fn a_missing_chain_is_a_usage_error() {
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("did you mean `cold_store`"));
+}
+
+fn json(args: &[&str]) -> serde_json::Value {
+    let out = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("catena runs");
+    serde_json::from_str(&String::from_utf8_lossy(&out.stdout)).expect("valid JSON")
+}
+
+/// The signal path's gain is per written measurand unit (per microstrain
+/// here, where SI is per unit strain: a factor of 10⁶ apart), and agrees
+/// with a central difference of `catena eval` at the worst point.
+#[test]
+fn the_signal_path_gain_is_per_written_unit_and_matches_eval() {
+    let spec = "specs/timber_hoist.catena";
+    let report = json(&["report", spec, "--format", "json", "--trials", "0"]);
+    let chain = &report["chains"][0];
+    let chain_name = chain["name"].as_str().unwrap();
+    let at = &chain["budget"]["worst_at"];
+    let (x, ambient) = (at[0].as_f64().unwrap(), at[1].as_f64().unwrap());
+    let node = |x: f64, stage: &str| -> f64 {
+        let eval = json(&[
+            "eval",
+            spec,
+            "--chain",
+            chain_name,
+            "--at",
+            &format!("{x} ue"),
+            "--ambient",
+            &format!("{ambient} degC"),
+            "--format",
+            "json",
+        ]);
+        eval["nodes"][stage]["value"].as_f64().unwrap()
+    };
+    let rows = chain["budget"]["path"].as_array().unwrap();
+    assert!(!rows.is_empty());
+    for row in rows {
+        let stage = row["stage"].as_str().unwrap();
+        if row["signal_unit"] == "code" {
+            continue; // whole codes: a 1 ue step is a few hundred codes, too coarse to difference
+        }
+        let by_eval = (node(x + 1.0, stage) - node(x - 1.0, stage)) / 2.0;
+        let gain = row["gain"].as_f64().unwrap();
+        assert!(
+            (gain - by_eval).abs() <= 1e-4 * by_eval.abs().max(1e-12),
+            "{stage}: report {gain} per ue, eval {by_eval} per ue"
+        );
+        let stage_row = chain["stages"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|s| s["stage"] == stage)
+            .unwrap();
+        if let Some(g) = stage_row["gain"].as_f64() {
+            assert!(
+                (g - gain).abs() <= 1e-9 * gain.abs(),
+                "{stage}: {g} against {gain}"
+            );
+        }
+    }
 }

@@ -414,6 +414,9 @@ fn source_contributions(
 ) -> Vec<Contribution> {
     // Below this an effect is the arithmetic's rounding, not the source's.
     let floor = 1e-9 * (plan.range.1 - plan.range.0);
+    // Below this an effect cannot be told from zero: a source a
+    // calibration cancels leaves about 1e-15 of the range.
+    let rounding = 1e-12 * (plan.range.1 - plan.range.0);
     let mut contributions = Vec::with_capacity(sources.sources.len() + 3);
     for (source, &(low, high)) in sources.sources.iter().zip(effects) {
         let divisor = if source.normal { 3.0 } else { SQRT3 };
@@ -422,6 +425,10 @@ fn source_contributions(
         let (minus, plus) = source.slots.first().map_or((1.0, 1.0), |&s| {
             (plan.slots[s.index()].minus, plan.slots[s.index()].plus)
         });
+        let (low, high) = (
+            beyond_rounding(low, rounding),
+            beyond_rounding(high, rounding),
+        );
         let (standard, linear) = standard_uncertainty((low, high), (minus, plus), divisor, floor);
         contributions.push(Contribution {
             id: source.id.clone(),
@@ -434,6 +441,16 @@ fn source_contributions(
         });
     }
     contributions
+}
+
+/// An effect at or below the floor is the arithmetic's rounding: zero, so
+/// it is neither printed nor summed as if the source moved the reading.
+fn beyond_rounding(effect: f64, floor: f64) -> f64 {
+    if effect.abs() <= floor {
+        0.0
+    } else {
+        effect
+    }
 }
 
 /// Noise as a 3σ bound in the worst case (common practice), σ in the GUM

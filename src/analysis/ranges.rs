@@ -738,7 +738,7 @@ fn finding(
             Code::R602
         },
         &chain.file,
-        message(e, &stage.name, side, headroom, unit),
+        message(e, &stage.name, side, (headroom, margin), unit),
     );
     let f = labels(chain, plan, e, stage, f);
     Some(match fix(plan, e, side, margin) {
@@ -749,7 +749,13 @@ fn finding(
 
 /// What the finding says: where the signal goes, and how near or beyond
 /// its limit.
-fn message(e: &Envelope, stage: &str, side: Side, headroom: f64, unit: &str) -> String {
+fn message(
+    e: &Envelope,
+    stage: &str,
+    side: Side,
+    (headroom, margin): (f64, f64),
+    unit: &str,
+) -> String {
     let at = format!(
         "at {} {unit}, ambient {} degC",
         trimmed(from_si(e.worst_at.0, unit), 6),
@@ -766,9 +772,15 @@ fn message(e: &Envelope, stage: &str, side: Side, headroom: f64, unit: &str) -> 
     if headroom < 0.0 {
         format!("the {what} of `{stage}` reaches {value} {at}, beyond {limit_text}")
     } else {
+        // Headroom is a share of the allowed span, not of full scale: say
+        // both the distance and the share, so a reader of "92.95 % of full
+        // scale" is not left to reconcile it with "3.52 %".
         format!(
-            "the {what} of `{stage}` reaches {value} {at}, within {} % of {limit_text}",
-            trimmed(headroom * 100.0, 3)
+            "the {what} of `{stage}` reaches {value} {at}, {} from {limit_text}: \
+             {} % of the allowed span, under the {} % margin",
+            show(e, (side.bound - side.value).abs()),
+            trimmed(headroom * 100.0, 3),
+            trimmed(margin * 100.0, 3)
         )
     }
 }

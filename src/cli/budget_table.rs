@@ -160,8 +160,16 @@ fn signal_path(a: &Analysis, unit: &str, f: f64, v: &dyn Fn(f64) -> String) -> S
         };
         t.add_row([name, value, gain, v(n.error)]);
     }
+    // The stages carry the raw error: a calibration acts in the firmware,
+    // after the converter, so the table would otherwise read as
+    // contradicting the calibrated totals above it.
+    let when = if a.uncalibrated.is_some() {
+        ", before the firmware's calibration"
+    } else {
+        ""
+    };
     format!(
-        "along the signal path, at the worst point\n\n{}\n\n",
+        "along the signal path, at the worst point{when}\n\n{}\n\n",
         lines(&t)
     )
 }

@@ -43,6 +43,12 @@ struct Units {
 }
 
 impl Units {
+    /// SI measurand units in one written unit, so a gain per SI unit
+    /// reads per the unit the spec writes (per bar, not per pascal).
+    fn per_written(&self) -> f64 {
+        to_si(1.0, &self.measurand) - to_si(0.0, &self.measurand)
+    }
+
     fn of(chain: &Chain) -> Units {
         let (diff, f) = chain.difference_unit();
         let measurand = chain
@@ -368,7 +374,7 @@ fn stage_rows(
     units: &Units,
 ) -> Vec<StageRow> {
     let ranges = signal_ranges(chain, plan, points);
-    let per_written = to_si(1.0, &units.measurand) - to_si(0.0, &units.measurand);
+    let per_written = units.per_written();
     chain
         .stages
         .iter()
@@ -493,7 +499,7 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
                 stage: a.names.get(n.node.index()).cloned().unwrap_or_default(),
                 value: n.value,
                 signal_unit: n.unit.to_string(),
-                gain: n.gain,
+                gain: n.gain * units.per_written(),
                 error: n.error * f,
                 dominant: n.dominant.clone(),
             })

@@ -79,6 +79,8 @@ fn block(out: &mut String, line: &str, plots: &[(String, String)]) {
         );
         let class = if long { " class=\"part\"" } else { "" };
         let _ = writeln!(out, "<h3{class}>{}</h3>", inline(t));
+    } else if let Some(t) = line.strip_prefix("#### ") {
+        let _ = writeln!(out, "<h4>{}</h4>", inline(t));
     } else if let Some(t) = line.strip_prefix("## ") {
         let _ = writeln!(out, "<h2>{}</h2>", inline(t));
     } else if let Some(t) = line.strip_prefix("# ") {
