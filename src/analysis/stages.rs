@@ -14,7 +14,18 @@ pub fn signal_path(plan: &Plan, adc: NodeId) -> Vec<NodeId> {
             | Node::Amplifier(node::Amplifier { input, .. })
             | Node::Filter(node::Filter { input, .. }) => Some(*input),
             Node::Bridge(node::Bridge { exc, .. }) => Some(*exc),
-            _ => None,
+            // A sensor, source or resistor starts the path; a conversion
+            // reads the converter, it does not feed it.
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Convert(_) => None,
         };
         match next {
             Some(n) if !path.contains(&n) => {
