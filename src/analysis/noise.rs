@@ -66,7 +66,20 @@ pub fn enbw(plan: &Plan) -> Option<f64> {
                     narrow(&mut bw, rate / 2.0);
                 }
             }
-            _ => {}
+            // An amplifier's bandwidth is its own noise term's; the rest
+            // set no bandwidth on the path.
+            Node::Amplifier(_)
+            | Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Convert(_) => {}
         }
     }
     if bw.is_none() {
@@ -261,7 +274,21 @@ fn branch_terms(
                     ));
                 }
             }
-            _ => {}
+            // Sensors and resistors show as the source resistance the
+            // next amplifier or converter sees; an excitation's noise is
+            // a term of its own (`excitation_noise`).
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => {}
         }
     }
     if scale != 1.0 {
