@@ -400,30 +400,21 @@ fn compliance_voltage(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) ->
     };
     NodeId::all(plan.nodes.len())
         .zip(&plan.nodes)
-        .filter_map(|(n, node)| {
-            let driven = match node {
-                Node::Rtd(node::Rtd { input, .. })
-                | Node::Thermistor(node::Thermistor { input, .. })
-                | Node::StrainGauge(node::StrainGauge { input, .. })
-                | Node::Resistor(node::Resistor { input, .. }) => *input == Some(exc),
-                _ => false,
+        .filter(|(_, node)| node.element_input() == Some(exc))
+        .map(|(n, node)| {
+            let leads = match node {
+                Node::Rtd(node::Rtd {
+                    leads: Some((a, b)),
+                    wiring,
+                    ..
+                }) => {
+                    let (a, b) = (values[a.index()], values[b.index()]);
+                    let unseen = lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
+                    unseen * current
+                }
+                _ => 0.0,
             };
-            driven.then(|| {
-                let leads = match node {
-                    Node::Rtd(node::Rtd {
-                        leads: Some((a, b)),
-                        wiring,
-                        ..
-                    }) => {
-                        let (a, b) = (values[a.index()], values[b.index()]);
-                        let unseen =
-                            lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
-                        unseen * current
-                    }
-                    _ => 0.0,
-                };
-                voltage_of(s, n) + leads
-            })
+            voltage_of(s, n) + leads
         })
         .sum()
 }

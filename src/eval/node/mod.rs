@@ -137,7 +137,7 @@ impl Node {
 
     /// What drives a resistive element (a current source, or nothing for
     /// an arm of a bridge or divider); None for another kind.
-    pub(super) fn element_input(&self) -> Option<NodeId> {
+    pub fn element_input(&self) -> Option<NodeId> {
         match self {
             Node::Rtd(n) => n.input,
             Node::Thermistor(n) => n.input,
