@@ -33,8 +33,23 @@ pub struct Dynamics {
 }
 
 impl Dynamics {
-    /// |H(f)| of the whole signal path.
+    /// |H(f)| of the whole signal path to the measurand: the sensing
+    /// element's lag, then the electrical path.
     pub fn magnitude(&self, f: f64) -> f64 {
+        let sensor = self.sensor_time_constant;
+        let lag = if sensor > 0.0 {
+            (1.0 + (2.0 * std::f64::consts::PI * f * sensor).powi(2)).sqrt()
+        } else {
+            1.0
+        };
+        self.electrical_magnitude(f) / lag
+    }
+
+    /// |H(f)| from the sensor's terminals on: the filter, the converter's
+    /// own averaging and the firmware's. Interference (mains pick-up on
+    /// the leads) enters here, after the sensing element, so the element's
+    /// thermal or mechanical lag rejects none of it.
+    pub fn electrical_magnitude(&self, f: f64) -> f64 {
         let sinc = |x: f64| {
             if x == 0.0 {
                 1.0
@@ -47,10 +62,6 @@ impl Dynamics {
             .as_ref()
             .map(|lp| lp.magnitude(f))
             .unwrap_or(1.0);
-        let sensor = self.sensor_time_constant;
-        if sensor > 0.0 {
-            h /= (1.0 + (2.0 * std::f64::consts::PI * f * sensor).powi(2)).sqrt();
-        }
         if let Some(notch) = self.notch_hz.or(self.rate_hz) {
             h *= sinc(f / notch).abs();
         }
@@ -81,9 +92,10 @@ impl Dynamics {
         StepModel::new(self.sensor_time_constant, self.filter.as_ref(), averaging).time_to(fraction)
     }
 
-    /// Attenuation at `f` as an amplitude ratio (1/|H|).
+    /// Attenuation of interference at `f` as an amplitude ratio (1/|H|
+    /// of the electrical path).
     pub fn attenuation(&self, f: f64) -> f64 {
-        1.0 / self.magnitude(f).max(1e-300)
+        1.0 / self.electrical_magnitude(f).max(1e-300)
     }
 }
 
@@ -156,5 +168,48 @@ fn sensor_senses_measurand(plan: &Plan, node: NodeId) -> bool {
         | Node::IcCurrent(node::IcCurrent { senses, .. }) => *senses == Senses::Measurand,
         Node::StrainGauge(_) | Node::Transducer(_) => true,
         _ => false,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn bare(sensor_time_constant: f64) -> Dynamics {
+        Dynamics {
+            sensor_time_constant,
+            filter: None,
+            rate_hz: None,
+            notch_hz: None,
+            average: 1,
+            response_90: None,
+            mains: Vec::new(),
+            at_rate: None,
+            filter_settling_half_lsb: None,
+        }
+    }
+
+    /// A 30 s probe lag slows the response to the measurand by 2π·50·30
+    /// at 50 Hz but leaves mains pick-up on its leads untouched.
+    #[test]
+    fn the_sensing_lag_rejects_no_interference() {
+        let d = bare(30.0);
+        assert_eq!(d.attenuation(50.0), 1.0);
+        let lag = (1.0 + (2.0 * std::f64::consts::PI * 50.0 * 30.0f64).powi(2)).sqrt();
+        assert!((1.0 / d.magnitude(50.0) - lag).abs() < 1e-9 * lag);
+    }
+
+    /// A converter averaging over one 50 Hz period (a sinc notch at
+    /// 50 Hz) nulls 50 Hz and passes 25 Hz at 2/π (sin(π/2)/(π/2)).
+    #[test]
+    fn a_sinc_notch_nulls_its_frequency() {
+        let d = Dynamics {
+            notch_hz: Some(50.0),
+            rate_hz: Some(50.0),
+            ..bare(0.0)
+        };
+        assert!(d.attenuation(50.0) > 1e12);
+        let at_25 = d.electrical_magnitude(25.0);
+        assert!((at_25 - 2.0 / std::f64::consts::PI).abs() < 1e-12);
     }
 }

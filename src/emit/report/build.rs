@@ -614,7 +614,7 @@ fn dynamics(verdicts: &[RequirementVerdict], d: &Dynamics) -> DynamicsSection {
     let frequency = (0..FREQUENCY_SAMPLES)
         .map(|i| {
             let hz = 10f64.powf(lo + (hi - lo) * i as f64 / (FREQUENCY_SAMPLES - 1) as f64);
-            [hz, 20.0 * d.magnitude(hz).max(1e-12).log10()]
+            [hz, 20.0 * d.electrical_magnitude(hz).max(1e-12).log10()]
         })
         .collect();
     DynamicsSection {

@@ -240,7 +240,7 @@ fn frequency(c: &ChainReport, key: &str) -> Option<Plot> {
         .fold(0.0, f64::min)
         .max(-160.0);
     let mut items = vec![Item::Line {
-        label: "gain of the signal path".to_string(),
+        label: "filter and converter averaging".to_string(),
         style: Style { index: 0 },
         points: d
             .frequency
