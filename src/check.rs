@@ -97,29 +97,49 @@ pub fn check_bytes_configured(
         Err(finding) => {
             let mut findings = Findings::new();
             findings.push(finding);
-            return CheckedFile {
-                file: None,
-                chains: Vec::new(),
-                findings,
-                resolved: false,
-                analysed: Vec::new(),
-            };
+            return unresolved(None, findings);
         }
     };
     let (ast, mut findings) = syntax::parse(&file);
     if ast.chains.is_empty() && !findings.has_errors() {
         findings.push(no_chain(&file));
     }
-    let syntax_failed = findings.has_errors();
-    if syntax_failed && ast.chains.is_empty() {
-        return CheckedFile {
-            file: Some(file),
-            chains: Vec::new(),
-            findings,
-            resolved: false,
-            analysed: Vec::new(),
-        };
+    if findings.has_errors() && ast.chains.is_empty() {
+        return unresolved(Some(file), findings);
     }
+    let root = (!options.allow_outside_paths).then(|| model::confinement_root(base));
+    let (chains, more) = model::resolve_with(&file, &ast, base, root.as_deref(), parts, defaults);
+    add_unechoed(&file, &mut findings, more);
+    let resolved = !findings.has_errors();
+    let analysed = if resolved {
+        analyse_chains(&chains, options, &mut findings)
+    } else {
+        Vec::new()
+    };
+    CheckedFile {
+        file: Some(file),
+        chains,
+        findings,
+        resolved,
+        analysed,
+    }
+}
+
+/// A file that stopped before its chains were resolved.
+fn unresolved(file: Option<Arc<SourceFile>>, findings: Findings) -> CheckedFile {
+    CheckedFile {
+        file,
+        chains: Vec::new(),
+        findings,
+        resolved: false,
+        analysed: Vec::new(),
+    }
+}
+
+/// Adds the model's findings (`more`) to the parser's, but for echoes of
+/// a syntax error.
+fn add_unechoed(file: &Arc<SourceFile>, findings: &mut Findings, more: Findings) {
+    let syntax_failed = findings.has_errors();
     // A line with a syntax finding gets only that finding: what the later
     // stages say about the same line (a number read as 0, a value missing)
     // would echo it.
@@ -128,43 +148,40 @@ pub fn check_bytes_configured(
         .filter(|f| f.severity() == Severity::Error)
         .map(|f| file.line_column(f.primary_offset()).0)
         .collect();
-    let root = (!options.allow_outside_paths).then(|| model::confinement_root(base));
-    let (chains, more) = model::resolve_with(&file, &ast, base, root.as_deref(), parts, defaults);
     for f in more {
         // A line the parser swallowed is missing from the graph, so graph
         // findings would be echoes of the syntax error; the other checks
         // are local to their line and still stand.
         let echo =
             f.code.category() == Category::Graph || matches!(f.code, Code::P302 | Code::P307);
-        let same_line = Arc::ptr_eq(&f.file, &file)
+        let same_line = Arc::ptr_eq(&f.file, file)
             && syntax_lines.contains(&file.line_column(f.primary_offset()).0);
         let suppressed = same_line || (syntax_failed && echo);
         if !suppressed {
             findings.push(f);
         }
     }
-    let resolved = !findings.has_errors();
+}
+
+/// Checks each chain, keeping what `options.keep` asks for.
+fn analyse_chains(
+    chains: &[model::Chain],
+    options: &analysis::CheckOptions,
+    findings: &mut Findings,
+) -> Vec<Analysed> {
     let mut analysed = Vec::new();
-    if resolved {
-        for chain in &chains {
-            let checked = analysis::check_chain(chain, options);
-            findings.extend(checked.findings);
-            if options.keep != analysis::Keep::Nothing {
-                analysed.push(Analysed {
-                    plan: checked.plan,
-                    analysis: checked.analysis,
-                    faults: checked.faults,
-                });
-            }
+    for chain in chains {
+        let checked = analysis::check_chain(chain, options);
+        findings.extend(checked.findings);
+        if options.keep != analysis::Keep::Nothing {
+            analysed.push(Analysed {
+                plan: checked.plan,
+                analysis: checked.analysis,
+                faults: checked.faults,
+            });
         }
     }
-    CheckedFile {
-        file: Some(file),
-        chains,
-        findings,
-        resolved,
-        analysed,
-    }
+    analysed
 }
 
 /// Checks spec text (tests, stdin).

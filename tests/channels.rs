@@ -307,3 +307,81 @@ fn rectangles_95(halves: &[f64]) -> f64 {
     }
     k as f64 * step
 }
+
+/// The feed silo (`specs/feed_silo.catena`) adds four cells' codes, each
+/// read on its own channel of one 24-bit converter (PGA 128, ratiometric
+/// on the 5 V supply), each cell carrying a quarter of 300 .. 1800 kg
+/// gross on a 2 mV/V, 500 kg cell. By hand:
+/// - one channel at the empty silo reads 75/500 × 2 mV/V × 128 × 2²³ =
+///   322 122.5 codes, inside its own window and a quarter of the sum's;
+/// - its noise is the converter's 0.4 µV rms × 128 / 5 V × 2²³ = 85.90
+///   codes (the cell's own thermal noise, a few nV over the 5 Hz noise
+///   bandwidth, adds under 1e-4 of it), and the four channels' add in
+///   quadrature in the sum (× 2);
+/// - a cell's excitation lead open leaves its bridge at 0 V: its own code
+///   is the converter's offset and INL alone, 5 µV × 128 / 5 V × 2²³ +
+///   15 ppm × 2²⁴ = 1325.4, far below its window, while the sum of the
+///   three others stays inside the sum's window; so it is seen on that
+///   channel, with the threshold halfway;
+/// - its signal lead open is driven by the 100 nA burnout current to the
+///   top code, 2²³ − 1, and the sum is that plus the three healthy
+///   channels at their lowest (each its window's low end plus 3 σ).
+#[test]
+fn a_summed_cell_failing_is_judged_on_its_own_channel() {
+    let dir = root().join("specs");
+    let out = catena(
+        &dir,
+        &["checklist", "feed_silo.catena", "--format", "json"],
+        None,
+    );
+    assert_eq!(out.status, 0, "{}{}", out.stdout, out.stderr);
+    let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+    let chain = &v["chains"][0];
+    let w = &chain["window"];
+    let (low, high) = (w["low"].as_i64().unwrap(), w["high"].as_i64().unwrap());
+    let sigma = 0.4e-6 * 128.0 / 5.0 * 2f64.powi(23);
+    let empty = 75.0 / 500.0 * 2e-3 * 128.0 * 2f64.powi(23);
+    let channels = w["channels"].as_array().unwrap();
+    assert_eq!(channels.len(), 4, "{w}");
+    let own = |name: &str| {
+        channels
+            .iter()
+            .find(|c| c["channel"] == name)
+            .unwrap_or_else(|| panic!("no window for {name}: {w}"))
+    };
+    for c in channels {
+        let s = c["noise_sigma_codes"].as_f64().unwrap();
+        assert!((s - sigma).abs() < 1e-4 * sigma, "{c}");
+        let (lo, hi) = (c["low"].as_i64().unwrap(), c["high"].as_i64().unwrap());
+        assert!((lo as f64) < empty && empty < hi as f64, "{c}");
+    }
+    let sum_sigma = w["noise_sigma_codes"].as_f64().unwrap();
+    assert!((sum_sigma - 2.0 * sigma).abs() < 2e-4 * sigma, "{w}");
+    assert!((low as f64) < 4.0 * empty && 4.0 * empty < high as f64);
+    let fault = |stage: &str, kind: &str| {
+        chain["faults"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|f| f["stage"] == stage && f["fault"] == kind)
+            .unwrap_or_else(|| panic!("no {kind} on {stage}"))
+            .clone()
+    };
+    let lead = fault("leg_2", "excitation_lead_open");
+    let floor = (5e-6 * 128.0 / 5.0 * 2f64.powi(23) + 15e-6 * 2f64.powi(24)).round() as i64;
+    assert_eq!(lead["verdict"], "detectable", "{lead}");
+    assert_eq!(lead["channel"], "leg_2_in", "{lead}");
+    assert_eq!(lead["codes"], serde_json::json!([-floor, floor]), "{lead}");
+    let own_low = own("leg_2_in")["low"].as_i64().unwrap();
+    let threshold = floor + (own_low - floor).div_euclid(2);
+    assert_eq!(lead["threshold"], format!("leg_2_in code < {threshold}"));
+    let signal = fault("leg_2", "signal_lead_open");
+    assert_eq!(signal["verdict"], "detectable", "{signal}");
+    let top = 2i64.pow(23) - 1;
+    let others = 3.0 * (own_low as f64 + 3.0 * sigma);
+    let lowest = signal["codes"][0].as_i64().unwrap();
+    assert!(
+        (lowest as f64 - (top as f64 + others)).abs() <= 3.0,
+        "{signal}: {lowest} against {top} + {others}"
+    );
+}

@@ -32,13 +32,14 @@ fn every_configuration_fixture_reports_its_expectation() {
         let spec = std::fs::read_to_string(dir.join("spec.catena")).unwrap();
         let header = spec.lines().next().unwrap();
         let words: Vec<&str> = header.split_whitespace().collect();
-        let [_, "expect:", "error", code, "line", line] = words.as_slice() else {
+        let [_, "expect:", severity, code, "line", line] = words.as_slice() else {
             panic!("{}: malformed header {header:?}", dir.display());
         };
         let (status, found) = findings(&dir, &["spec.catena"]);
         assert_eq!(status, 1, "{}", dir.display());
         let hit = found.as_array().unwrap().iter().any(|f| {
             f["code"] == *code
+                && f["severity"] == *severity
                 && f["file"] == "catena.yaml"
                 && f["line"].as_u64() == line.parse().ok()
         });
@@ -212,4 +213,60 @@ fn configured_parts_serve_every_spec() {
     let (status, found) = findings(&repo, &["specs"]);
     assert_eq!((status, found.as_array().unwrap().len()), (0, 0), "{found}");
     std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// A rule relaxes a fault finding in a chain that guards nothing, but not
+/// in one that says it protects property: there the silent open couple
+/// (R670) stays an error and R675 on the rule says it was not applied.
+/// `warn` is refused the same way; `deny` still applies.
+#[test]
+fn a_rule_cannot_weaken_a_safety_finding() {
+    let dir = common::temp_dir("config", "safety");
+    std::fs::create_dir_all(dir.join(".git")).unwrap();
+    for name in ["check_open_couple_silent", "check_open_couple_protects"] {
+        std::fs::copy(
+            root().join(format!("tests/fixtures/faults/{name}.catena")),
+            dir.join(format!("{name}.catena")),
+        )
+        .unwrap();
+    }
+    let codes = |found: &serde_json::Value, file: &str| -> Vec<(String, String)> {
+        found
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|f| f["file"] == file)
+            .map(|f| (f["code"].to_string(), f["severity"].to_string()))
+            .collect()
+    };
+    for level in ["allow", "warn"] {
+        std::fs::write(
+            dir.join("catena.yaml"),
+            format!("rules:\n  R670: {level}\n"),
+        )
+        .unwrap();
+        let (status, found) = findings(&dir, &["."]);
+        assert_eq!(status, 1, "{found}");
+        let protects = codes(&found, "check_open_couple_protects.catena");
+        assert_eq!(
+            protects,
+            [("\"R670\"".into(), "\"error\"".into())],
+            "{found}"
+        );
+        let plain = codes(&found, "check_open_couple_silent.catena");
+        let expected: Vec<(String, String)> = match level {
+            "allow" => Vec::new(),
+            _ => vec![("\"R670\"".into(), "\"warning\"".into())],
+        };
+        assert_eq!(plain, expected, "{found}");
+        let rule = codes(&found, "catena.yaml");
+        assert_eq!(rule, [("\"R675\"".into(), "\"warning\"".into())], "{found}");
+    }
+    std::fs::write(dir.join("catena.yaml"), "rules:\n  R670: deny\n").unwrap();
+    let (_, found) = findings(&dir, &["."]);
+    assert_eq!(
+        codes(&found, "check_open_couple_silent.catena"),
+        [("\"R670\"".into(), "\"error\"".into())]
+    );
+    assert!(codes(&found, "catena.yaml").is_empty(), "{found}");
 }

@@ -389,3 +389,136 @@ fn compare_sums_cost_and_power() {
     // delivered power, not missing.
     assert_eq!(ntc["unpowered"], serde_json::json!([]));
 }
+
+/// Adding `protects` is a change a reviewer must see: the line itself,
+/// and the silent fault it turns from a warning into an error.
+#[test]
+fn a_protects_line_shows_with_the_severities_it_moves() {
+    let (old, new) = (
+        "tests/fixtures/faults/check_open_couple_silent.catena",
+        "tests/fixtures/faults/check_open_couple_protects.catena",
+    );
+    let run = diff(old, new, "0", &["--format", "json"]);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let doc = json(&run.stdout);
+    let chain = &doc["files"][0]["chains"][0];
+    let spec = chain["spec"].as_array().expect("spec changes");
+    let protects = spec
+        .iter()
+        .find(|c| c["subject"] == "protects")
+        .unwrap_or_else(|| panic!("protects is a change: {spec:?}"));
+    assert_eq!(protects["kind"], "added");
+    assert_eq!(protects["new"]["text"], "protects property");
+    assert_eq!(protects["new"]["line"], 7);
+    let faults = chain["outcome"]["faults"]
+        .as_array()
+        .expect("fault changes");
+    let open = faults
+        .iter()
+        .find(|f| f["stage"] == "tc" && f["fault"] == "open")
+        .unwrap_or_else(|| panic!("the open couple's severity moved: {faults:?}"));
+    assert_eq!(open["old"]["severity"], "warning");
+    assert_eq!(open["new"]["severity"], "error");
+
+    // And back: removing it is told the same way.
+    let human = diff(new, old, "0", &[]);
+    assert_eq!(human.status, 0, "{}", human.stderr);
+    assert!(human.stdout.contains("protects"), "{}", human.stdout);
+    assert!(human.stdout.contains("(error)"), "{}", human.stdout);
+}
+
+/// A cost takes a number alone and a power a power unit: `cost 5 %` is
+/// not a price of 0.05, nor `power 5 %` a power.
+#[test]
+fn a_cost_takes_no_unit_and_a_power_takes_watts() {
+    let dir = common::temp_dir("diff", "units");
+    let spec = std::fs::read_to_string(root().join(fixture("candidates.catena")))
+        .expect("the fixture reads");
+    std::fs::create_dir_all(dir.join("parts")).expect("parts folder");
+    std::fs::copy(
+        root().join(fixture("parts/priced.yaml")),
+        dir.join("parts/priced.yaml"),
+    )
+    .expect("parts copy");
+    for (line, code) in [("cost 5 %", "P375"), ("power 5 %", "U102")] {
+        let text = spec.replacen("cost 0.80", &format!("cost 0.80\n        {line}"), 1);
+        let text = if line.starts_with("cost") {
+            text.replacen("cost 0.80\n", "", 1)
+        } else {
+            text
+        };
+        std::fs::write(dir.join("c.catena"), text).expect("spec written");
+        let run = catena(&dir, &["check", "c.catena", "--format", "json"], None);
+        assert_eq!(run.status, 1, "{line}: {}", run.stdout);
+        assert!(run.stdout.contains(code), "{line}: {}", run.stdout);
+    }
+}
+
+/// An IC sensor's power is its supply's high end times what it draws,
+/// where both are stated; a current-output sensor draws its own output,
+/// the most at the top of the range. Without them it is "not stated".
+#[test]
+fn compare_takes_an_ic_sensors_power_from_its_supply() {
+    let chain = |name: &str, sensor: &str| {
+        format!(
+            "chain {name} \"IC sensor\" {{\n    measurand temperature 0 degC .. 100 degC\n    ambient 20 degC .. 30 degC\n    sensor ic {{\n{sensor}\n    }}\n    {load}adc conv {{\n        bits 12\n        input single\n        vref 4.096 V\n        power 1 mW\n    }}\n    convert reading {{ method linear }}\n    {wiring}\n}}\n",
+            load = if sensor.contains("ic_current") {
+                "sensor load { resistor 4.7 kohm }\n    "
+            } else {
+                ""
+            },
+            wiring = if sensor.contains("ic_current") {
+                "ic -> load -> conv -> reading"
+            } else {
+                "ic -> conv -> reading"
+            },
+        )
+    };
+    let dir = common::temp_dir("diff", "ic-power");
+    let text = [
+        chain(
+            "voltage_out",
+            "        ic_voltage\n        slope 10 mV/K\n        output 500 mV at 0 degC\n        supply 2.7 V .. 5.5 V\n        supply_current 60 uA",
+        ),
+        chain(
+            "current_out",
+            "        ic_current\n        slope 1 uA/K\n        supply 3 V .. 5.5 V",
+        ),
+        chain(
+            "unstated",
+            "        ic_voltage\n        slope 10 mV/K\n        output 500 mV at 0 degC\n        supply 2.7 V .. 5.5 V",
+        ),
+    ]
+    .concat();
+    std::fs::write(dir.join("ic.catena"), text).expect("spec written");
+    let run = catena(
+        &dir,
+        &["compare", "ic.catena", "--trials", "0", "--format", "json"],
+        None,
+    );
+    let doc = json(&run.stdout);
+    let bill = |i: usize| doc["candidates"][i]["outcome"]["bill"].clone();
+    let ic_watts = |i: usize| {
+        bill(i)["power"]
+            .as_array()
+            .and_then(|p| p.iter().find(|p| p["stage"] == "ic").cloned())
+    };
+    // 5.5 V × 60 uA.
+    let v = ic_watts(0).unwrap_or_else(|| panic!("{}", run.stdout));
+    assert_eq!(v["basis"], "supply");
+    assert!(
+        (v["watts"].as_f64().unwrap() - 5.5 * 60e-6).abs() < 1e-12,
+        "{v}"
+    );
+    // 5.5 V × 1 uA/K × 373.15 K.
+    let c = ic_watts(1).unwrap_or_else(|| panic!("{}", run.stdout));
+    assert!(
+        (c["watts"].as_f64().unwrap() - 5.5 * 1e-6 * 373.15).abs() < 1e-12,
+        "{c}"
+    );
+    // No supply current: named, not guessed.
+    assert!(ic_watts(2).is_none(), "{}", bill(2));
+    assert_eq!(bill(2)["unpowered"], serde_json::json!(["ic"]));
+    let human = catena(&dir, &["compare", "ic.catena", "--trials", "0"], None);
+    assert!(human.stdout.contains("not stated: ic"), "{}", human.stdout);
+}

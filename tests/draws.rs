@@ -1,5 +1,5 @@
-//! Stable draws: each source's draws depend on the seed, its id, the
-//! condition and the trial alone, so an edit elsewhere in a spec leaves
+//! Stable draws: each source's draws depend on the seed, its id and the
+//! trial alone, so an edit elsewhere in a spec leaves
 //! them bit-identical; and the normals they are drawn through.
 
 mod common;

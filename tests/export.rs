@@ -406,19 +406,39 @@ fn fault_thresholds_and_trip_codes_are_the_checklists() {
                 );
                 assert_eq!(f["verdict"], r["verdict"], "{what}");
                 assert_eq!(f["codes"], r["codes"], "{what}");
+                assert_eq!(f["channel"], r["channel"], "{what}");
+                // A fault one summed channel's own code shows is judged
+                // against that channel's own window.
+                let channel = f["channel"].as_str();
+                let (low, high, code) = match channel {
+                    Some(ch) => {
+                        let w = c["window"]["channels"]
+                            .as_array()
+                            .unwrap()
+                            .iter()
+                            .find(|w| w["channel"] == ch)
+                            .unwrap_or_else(|| panic!("{what}: no window for {ch}"));
+                        (
+                            w["low"].as_i64().unwrap(),
+                            w["high"].as_i64().unwrap(),
+                            format!("{ch} code"),
+                        )
+                    }
+                    None => (low, high, "code".to_string()),
+                };
                 let threshold = match (f["below"].as_i64(), f["above"].as_i64()) {
                     (Some(n), None) => {
                         assert!(f["codes"][1].as_i64().unwrap() < n && n < low, "{what}");
-                        Some(format!("code < {n}"))
+                        Some(format!("{code} < {n}"))
                     }
                     (None, Some(n)) => {
                         assert!(high < n && n < f["codes"][0].as_i64().unwrap(), "{what}");
-                        Some(format!("code > {n}"))
+                        Some(format!("{code} > {n}"))
                     }
                     // A fault that leaves the code at either end.
                     (Some(a), Some(b)) => {
                         assert!(a < low && high < b, "{what}");
-                        Some(format!("code < {a} or code > {b}"))
+                        Some(format!("{code} < {a} or {code} > {b}"))
                     }
                     _ => None,
                 };

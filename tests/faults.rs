@@ -64,8 +64,17 @@ fn a_shorted_ntc_in_a_low_side_divider_reads_zero() {
     // The supply is also the reference: both at 0 V, the converter runs
     // to one end or the other (its own offset decides which), and both
     // ends lie outside the window.
+    // Shown as what they are, one end or the other: in JSON a shape of
+    // their own (a span would claim every code between), in Markdown
+    // "0 or 4095".
     let lost = row(&list, "rail", "lost");
-    assert_eq!(codes(lost), (0, 4095));
+    assert_eq!(lost["codes"], serde_json::json!({ "either": [0, 4095] }));
+    let spec = "tests/fixtures/faults/shorted_ntc_divider.catena";
+    let md = catena(&root(), &["checklist", spec], None).stdout;
+    assert!(
+        md.contains("`rail` supply or excitation lost: codes 0 or 4095,"),
+        "{md}"
+    );
     assert_eq!(lost["verdict"], "detectable");
     assert!(
         lost["threshold"]
@@ -454,4 +463,58 @@ fn the_checklist_refuses_to_overwrite_a_spec() {
     );
     assert_eq!(run.status, 2, "{}", run.stderr);
     assert!(run.stderr.contains("refusing"), "{}", run.stderr);
+}
+
+/// A Pt100 ranged down to -200 degC, the end of the IEC 60751 curve: the
+/// window's slope there is taken from the end inward, so the window is
+/// built and the faults are judged (its open sense leads undetermined,
+/// R671) rather than left unjudged (R674).
+#[test]
+fn a_range_ending_where_the_sensor_stops_still_has_its_faults_judged() {
+    let spec = "tests/fixtures/eval/pt100_four_wire.catena";
+    let run = catena(&root(), &["check", "--format", "json", spec], None);
+    let doc = json(&run.stdout);
+    let findings = doc["findings"].as_array().expect("findings");
+    assert!(only(findings, "R674").is_empty(), "{findings:?}");
+    assert_eq!(only(findings, "R671").len(), 1, "{findings:?}");
+}
+
+/// An alarm beyond what its couple can read (type T stops at 400 degC):
+/// its trip code cannot be evaluated, so `check` says the trips were not
+/// judged (R674, an error under an alarm), with the couple's range in the
+/// help, and still judges the faults.
+#[test]
+fn trips_that_cannot_be_evaluated_are_reported_not_skipped() {
+    let spec = "tests/fixtures/invalid/R674-alarm-beyond-sensor.catena";
+    let run = catena(&root(), &["check", "--format", "json", spec], None);
+    assert_eq!(run.status, 1, "{}", run.stdout);
+    let doc = json(&run.stdout);
+    let findings = doc["findings"].as_array().expect("findings");
+    let r674 = only(findings, "R674");
+    assert_eq!(r674.len(), 1, "{findings:?}");
+    assert_eq!(r674[0]["severity"], "error");
+    let help = r674[0]["help"].as_str().expect("help");
+    assert!(help.contains("-270 degC .. 400 degC"), "{help}");
+    // The window was built: the checklist lists the faults.
+    let run = catena(&root(), &["checklist", spec, "--format", "json"], None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    assert!(!json(&run.stdout)["chains"][0]["faults"]
+        .as_array()
+        .expect("fault rows")
+        .is_empty());
+}
+
+/// A converter's stated input bias current (200 nA) outweighs its 100 nA
+/// burnout current: the open pin's direction is undetermined, and the
+/// help names the figure a burnout current must exceed.
+#[test]
+fn a_burnout_current_below_the_converters_bias_current_leaves_its_input_undetermined() {
+    let list = checklist("kind_input_open_bias.catena");
+    let open = row(&list, "conv", "input_open");
+    assert_eq!(open["verdict"], "undetermined", "{open}");
+    let action = open["action"].as_str().expect("an action");
+    assert!(
+        action.contains("more than its input bias current of up to 200 nA"),
+        "{action}"
+    );
 }

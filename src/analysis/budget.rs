@@ -8,8 +8,8 @@ use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
 use crate::eval::{
-    half_width, own_fraction, Calibrated, Env, EvalError, LaneSignals, Plan, Signal, SlotId,
-    SourceKind, LANES, MAX_NODES,
+    half_width, own_fraction, Calibrated, Env, EvalError, LaneColumns, Plan, SlotId, SourceKind,
+    LANES,
 };
 use crate::model::Chain;
 
@@ -182,7 +182,10 @@ pub fn conditions(chain: &Chain, plan: &Plan, points: usize) -> Vec<Env> {
 }
 
 /// The slopes of the converter's input voltage and code with the
-/// measurand at `env`, by central difference.
+/// measurand at `env`, by central difference. At a range end where the
+/// sensor stops (a Pt100 ranged down to -200 degC, the end of its curve)
+/// the step past the end cannot be evaluated: there the difference is
+/// one-sided, from the end inward.
 pub fn slopes(plan: &Plan, env: &Env) -> Result<(f64, f64), EvalError> {
     let (lo, hi) = plan.range;
     let h = (hi - lo) * 1e-4;
@@ -195,11 +198,24 @@ pub fn slopes(plan: &Plan, env: &Env) -> Result<(f64, f64), EvalError> {
             },
         )
     };
-    let (m0, m1) = (
+    let (mut m0, mut m1) = (
         (env.measurand - h).max(lo - h),
         (env.measurand + h).min(hi + h),
     );
-    let (a, b) = (at(m0)?, at(m1)?);
+    let a = match at(m0) {
+        Err(_) if m0 < lo => {
+            m0 = env.measurand.max(lo);
+            at(m0)?
+        }
+        other => other?,
+    };
+    let b = match at(m1) {
+        Err(_) if m1 > hi => {
+            m1 = env.measurand.min(hi);
+            at(m1)?
+        }
+        other => other?,
+    };
     Ok(((b.0 - a.0) / (m1 - m0), (b.1 - a.1) / (m1 - m0)))
 }
 
@@ -354,7 +370,7 @@ fn source_effects(
         })
         .collect();
     let mut values = plan.nominal.repeat(LANES);
-    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
+    let mut scratch = LaneColumns::default();
     let mut readings = [0.0; LANES];
     let mut changes = Vec::with_capacity(limits.len());
     for batch in limits.chunks(LANES) {

@@ -11,7 +11,7 @@
 
 use serde::Serialize;
 
-use super::faults::{FaultReport, Masking, Verdict};
+use super::faults::{FaultCodes, FaultReport, Masking, Verdict};
 use super::ranges::Envelope;
 use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal, SlotId};
 use crate::model::Chain;
@@ -47,6 +47,38 @@ pub struct WindowRow {
     pub noise_sigma_codes: f64,
     /// The noise's coverage factor in the window.
     pub k: f64,
+    /// A conversion that adds channels: each channel's own window, which
+    /// firmware checks before adding.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub channels: Vec<ChannelWindowRow>,
+}
+
+impl WindowRow {
+    /// Each summed channel's own window, in one sentence (None without
+    /// summed channels).
+    pub fn channel_windows(&self) -> Option<String> {
+        if self.channels.is_empty() {
+            return None;
+        }
+        let each: Vec<String> = self
+            .channels
+            .iter()
+            .map(|c| format!("`{}` {} .. {}", c.channel, c.low, c.high))
+            .collect();
+        Some(format!(
+            "The firmware checks each channel's own code before adding them; each channel's valid window: {}.",
+            each.join(", ")
+        ))
+    }
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct ChannelWindowRow {
+    pub channel: String,
+    pub low: i64,
+    pub high: i64,
+    pub rails: (i64, i64),
+    pub noise_sigma_codes: f64,
 }
 
 #[derive(Clone, Debug, Serialize)]
@@ -54,12 +86,17 @@ pub struct FaultRow {
     pub stage: String,
     pub fault: &'static str,
     pub condition: &'static str,
-    /// The lowest and highest code with the fault (absent: undetermined).
-    pub codes: Option<(i64, i64)>,
+    /// The codes with the fault (absent: undetermined): a span, or one
+    /// end code or the other.
+    pub codes: Option<FaultCodes>,
     /// `detectable`, `silent` or `undetermined`.
     pub verdict: &'static str,
-    /// `code < N` or `code > N`.
+    /// `code < N` or `code > N` (`CHANNEL code < N` on a summed channel's
+    /// own code).
     pub threshold: Option<String>,
+    /// The summed channel whose own code `codes` and `threshold` are.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub channel: Option<String>,
     /// Why the code is undetermined.
     pub reason: Option<String>,
     pub action: String,
@@ -165,6 +202,17 @@ pub fn checklist(chain: &Chain, plan: &Plan, from: &Sources<'_>) -> Checklist {
             rails: w.rails,
             noise_sigma_codes: w.sigma_codes,
             k: w.k,
+            channels: w
+                .channels
+                .iter()
+                .map(|c| ChannelWindowRow {
+                    channel: c.name.clone(),
+                    low: c.window.low,
+                    high: c.window.high,
+                    rails: c.window.rails,
+                    noise_sigma_codes: c.window.sigma_codes,
+                })
+                .collect(),
         },
         faults: from.faults.faults.iter().map(fault_row).collect(),
         limits: from
@@ -185,7 +233,10 @@ fn fault_row(f: &super::faults::FaultVerdict) -> FaultRow {
         condition: f.fault.kind.describe(),
         codes: f.codes,
         verdict: f.verdict.name(),
-        threshold: f.threshold.map(super::review::outcome::threshold_text),
+        threshold: f
+            .threshold
+            .map(|t| super::review::outcome::threshold_text_on(t, f.channel.as_deref())),
+        channel: f.channel.clone(),
         reason: f.reason.clone(),
         action: match f.verdict {
             Verdict::Detectable => "flag the reading invalid and hold the output safe while the code is past the threshold".to_string(),

@@ -1,12 +1,16 @@
-//! Stable draws: each source's value in trial t at a condition is a pure
-//! function of (seed, the source's id, the condition, t), a counter-based
-//! generator rather than one stream shared by every source. Adding,
+//! Stable draws: each source's value in trial t is a pure function of
+//! (seed, the source's id, t), a counter-based generator rather than one
+//! stream shared by every source; the same at every condition, so a trial
+//! is one instance of the chain read at every point, and a calibration
+//! taken at the reference is worked out once a trial. Noise and
+//! quantization, which belong to one reading, are keyed by the
+//! condition's values too. Adding,
 //! removing or reordering sources, stages or chains therefore leaves
 //! every other source's draws bit-identical, and no result depends on how
 //! trials are split between threads.
 //!
 //! The key of a stream is FNV-1a (64-bit) of the source's id, mixed with
-//! the seed and the condition's values; the t-th draw is the SplitMix64
+//! the seed (and a reading's condition); the t-th draw is the SplitMix64
 //! output at counter t of that stream (Steele, Lea and Flood, "Fast
 //! splittable pseudorandom number generators", OOPSLA 2014). Normals come
 //! from Wichura's AS 241 inverse of the normal CDF (PPND16, accurate to
@@ -52,6 +56,12 @@ impl Stream {
         Stream(mix(mix(seed ^ fnv1a(id.as_bytes())) ^ mix(condition)))
     }
 
+    /// The stream of the source called `id` under the user's `seed`, the
+    /// same at every condition.
+    pub fn source(seed: u64, id: &str) -> Stream {
+        Stream(mix(mix(seed ^ fnv1a(id.as_bytes()))))
+    }
+
     /// The 64 random bits of trial `t`.
     #[inline]
     pub fn bits(self, t: u64) -> u64 {
@@ -61,7 +71,7 @@ impl Stream {
     /// Trial `t`'s uniform on [0, 1), in steps of 2⁻⁵³.
     #[inline]
     pub fn uniform(self, t: u64) -> f64 {
-        (self.bits(t) >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+        uniform_of(self.bits(t))
     }
 
     /// Which of `cells` equal-probability cells trial `t`'s draw falls
@@ -69,16 +79,33 @@ impl Stream {
     /// same bits.
     #[inline]
     pub fn cell(self, t: u64, cells: usize) -> usize {
-        (((self.bits(t) >> 11) as u128 * cells as u128) >> 53) as usize
+        cell_of(self.bits(t), cells)
     }
 
     /// Trial `t`'s standard normal: the inverse CDF of a uniform on the
     /// open interval (0, 1), midway in its 2⁻⁵³ step, so never infinite.
     #[inline]
     pub fn normal(self, t: u64) -> f64 {
-        let u = ((self.bits(t) >> 11) as f64 + 0.5) * (1.0 / (1u64 << 53) as f64);
-        inverse_normal_cdf(u)
+        normal_of(self.bits(t))
     }
+}
+
+/// The uniform on [0, 1) of a draw's bits (see [`Stream::uniform`]).
+#[inline]
+pub fn uniform_of(bits: u64) -> f64 {
+    (bits >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+}
+
+/// The standard normal of a draw's bits (see [`Stream::normal`]).
+#[inline]
+pub fn normal_of(bits: u64) -> f64 {
+    inverse_normal_cdf(((bits >> 11) as f64 + 0.5) * (1.0 / (1u64 << 53) as f64))
+}
+
+/// The cell of a draw's bits among `cells` (see [`Stream::cell`]).
+#[inline]
+pub fn cell_of(bits: u64, cells: usize) -> usize {
+    (((bits >> 11) as u128 * cells as u128) >> 53) as usize
 }
 
 /// The standard normal quantile of `p` in (0, 1): Wichura, "Algorithm
@@ -221,6 +248,15 @@ mod tests {
                 0x17f8_39ed_9ad3_dbe2,
                 0xbd1d_7194_ba09_6f7f,
                 0xa80a_3a10_d960_d964
+            ]
+        );
+        let s = Stream::source(1, "drive.current");
+        assert_eq!(
+            [s.bits(0), s.bits(1), s.bits(2)],
+            [
+                0x0e6e_8a85_7c9e_77b1,
+                0xe741_02f2_5a3d_a1ee,
+                0xacb5_a637_0693_2545
             ]
         );
     }

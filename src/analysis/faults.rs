@@ -77,14 +77,64 @@ pub fn found_at_bring_up(kind: FaultKind) -> bool {
     }
 }
 
+/// The codes a converter gives with a fault.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FaultCodes {
+    /// Every code from the first to the second may occur.
+    Span(i64, i64),
+    /// One end code or the other (the bottom, the top), which one nothing
+    /// in the spec decides: a converter left with no reference rails
+    /// either way, and no code between the ends occurs.
+    EitherEnd(i64, i64),
+}
+
+impl FaultCodes {
+    /// The lowest and highest code.
+    pub fn bounds(self) -> (i64, i64) {
+        match self {
+            FaultCodes::Span(lo, hi) | FaultCodes::EitherEnd(lo, hi) => (lo, hi),
+        }
+    }
+
+    /// The codes in words: `17`, `0 .. 4095` or `0 or 4095`.
+    pub fn words(self) -> String {
+        match self {
+            FaultCodes::Span(lo, hi) if lo == hi => lo.to_string(),
+            FaultCodes::Span(lo, hi) => format!("{lo} .. {hi}"),
+            FaultCodes::EitherEnd(lo, hi) => format!("{lo} or {hi}"),
+        }
+    }
+}
+
+/// In JSON a span is `[low, high]` and the ends `{"either": [low, high]}`,
+/// so a reader that takes every pair for a span fails instead of reading
+/// the codes between the ends as possible.
+impl serde::Serialize for FaultCodes {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        match *self {
+            FaultCodes::Span(lo, hi) => [lo, hi].serialize(s),
+            FaultCodes::EitherEnd(lo, hi) => {
+                let mut map = s.serialize_map(Some(1))?;
+                map.serialize_entry("either", &[lo, hi])?;
+                map.end()
+            }
+        }
+    }
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub struct FaultVerdict {
     pub fault: Fault,
     pub stage: String,
-    /// The lowest and highest code the converter gives with the fault.
-    pub codes: Option<(i64, i64)>,
+    /// The codes the converter gives with the fault.
+    pub codes: Option<FaultCodes>,
     pub verdict: Verdict,
     pub threshold: Option<Threshold>,
+    /// The channel whose own code `codes` and `threshold` are (a summed
+    /// channel the fault takes out of its own window while the sum stays
+    /// inside the sum's); None for the code the conversion reads.
+    pub channel: Option<String>,
     /// Why the code is undetermined.
     pub reason: Option<String>,
     /// What would make a silent or undetermined fault detectable, computed.
@@ -137,13 +187,13 @@ impl Cases {
     /// The cases at the given measurand points.
     fn at(chain: &Chain, plan: &Plan, measurands: &[f64]) -> Cases {
         let mut limits = Vec::new();
-        for (i, slot) in plan.slot_ids().zip(&plan.slots) {
+        for (i, slot) in plan.slots.iter().enumerate() {
             if slot.kind == SourceKind::Exact {
                 continue;
             }
             for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
                 let mut v = plan.nominal.clone();
-                v[i.index()] = x;
+                v[i] = x;
                 limits.push(v);
             }
         }
@@ -173,8 +223,20 @@ fn code_range(
     window: &CodeWindow,
     fault: &Fault,
 ) -> Result<Codes, String> {
+    code_range_at(plan, cases, window, fault, None)
+}
+
+/// [`code_range`] of the code firmware sees at `channel` (that channel's
+/// own, `window` being its own window), or of the conversion's (None).
+fn code_range_at(
+    plan: &Plan,
+    cases: &Cases,
+    window: &CodeWindow,
+    fault: &Fault,
+    channel: Option<NodeId>,
+) -> Result<Codes, String> {
     let ends = (window.rails.0 as f64, window.rails.1 as f64);
-    let code = |values: &[f64], env: &Env| match plan.faulted_code(values, env, fault) {
+    let code = |values: &[f64], env: &Env| match plan.faulted_code_at(values, env, fault, channel) {
         Ok(FaultCode::Code(exact)) => Ok(Some(exact)),
         Ok(FaultCode::EitherEnd) => Ok(None),
         Ok(FaultCode::Undetermined(why)) => Err(why.to_string()),
@@ -240,11 +302,18 @@ impl Codes {
         self.spans.push((clamp(lo), clamp(hi)));
     }
 
-    /// The lowest and highest code.
-    fn hull(&self) -> (i64, i64) {
+    /// The lowest and highest code; the two end codes alone when the
+    /// fault gives nothing but the ends.
+    fn hull(&self, window: &CodeWindow) -> FaultCodes {
         let lo = self.spans.iter().map(|s| s.0).min().unwrap_or(0);
         let hi = self.spans.iter().map(|s| s.1).max().unwrap_or(0);
-        (lo, hi)
+        let (bottom, top) = window.rails;
+        let ends = [(bottom, bottom), (top, top)];
+        if bottom < top && self.spans == ends {
+            FaultCodes::EitherEnd(lo, hi)
+        } else {
+            FaultCodes::Span(lo, hi)
+        }
     }
 
     /// The firmware threshold between these codes and the window: at
@@ -277,6 +346,7 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         codes: None,
         verdict: Verdict::Undetermined,
         threshold: None,
+        channel: None,
         reason: None,
         fix: None,
         fix_at: None,
@@ -284,7 +354,7 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     };
     match code_range(plan, cases, window, &fault) {
         Ok(codes) => {
-            verdict.codes = Some(codes.hull());
+            verdict.codes = Some(codes.hull(window));
             verdict.threshold = codes.threshold(window);
             verdict.verdict = if verdict.threshold.is_some() {
                 Verdict::Detectable
@@ -295,6 +365,9 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         Err(why) => verdict.reason = Some(why),
     }
     if verdict.verdict != Verdict::Detectable {
+        seen_on_a_channel(plan, cases, window, &mut verdict);
+    }
+    if verdict.verdict != Verdict::Detectable {
         let (text, at) = fix(plan, cases, window, &fault, verdict.codes);
         verdict.fix = text;
         verdict.fix_at = at.map(|n| plan.names[n.index()].clone());
@@ -303,22 +376,38 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     verdict
 }
 
+/// A fault the conversion's code does not show may still take one
+/// summed channel's own code clear of that channel's window, which
+/// firmware checks before adding: the first channel that shows it makes
+/// the fault detectable there, with its codes and threshold.
+fn seen_on_a_channel(plan: &Plan, cases: &Cases, window: &CodeWindow, verdict: &mut FaultVerdict) {
+    for ch in &window.channels {
+        let Ok(codes) = code_range_at(plan, cases, &ch.window, &verdict.fault, Some(ch.node))
+        else {
+            continue;
+        };
+        if let Some(threshold) = codes.threshold(&ch.window) {
+            verdict.codes = Some(codes.hull(&ch.window));
+            verdict.threshold = Some(threshold);
+            verdict.channel = Some(ch.name.clone());
+            verdict.verdict = Verdict::Detectable;
+            verdict.reason = None;
+            return;
+        }
+    }
+}
+
 /// How large a burnout current on stage `n` must be: more than the input
 /// bias current it must outweigh, with that current's figure where the
 /// stage states one.
 fn outweighs_bias(plan: &Plan, n: NodeId) -> String {
-    if let Node::Amplifier(amp) = &plan.nodes[n.index()] {
-        if let Some(slot) = amp.bias.map(|b| &plan.slots[b.index()]) {
-            let most = slot.nominal.abs() + slot.plus.max(slot.minus);
-            if most > 0.0 {
-                return format!(
-                    "more than its input bias current of up to {}",
-                    with_prefix(most, "A", 3)
-                );
-            }
-        }
+    match plan.input_bias(n) {
+        Some(most) => format!(
+            "more than its input bias current of up to {}",
+            with_prefix(most, "A", 3)
+        ),
+        None => "more than its input bias current".to_string(),
     }
-    "more than its input bias current".to_string()
 }
 
 /// What would make the fault detectable, where it can be computed, and
@@ -328,7 +417,7 @@ fn fix(
     cases: &Cases,
     window: &CodeWindow,
     fault: &Fault,
-    codes: Option<(i64, i64)>,
+    codes: Option<FaultCodes>,
 ) -> (Option<String>, Option<NodeId>) {
     let here = Some(fault.node);
     match (fault.kind, &plan.nodes[fault.node.index()]) {
@@ -354,7 +443,7 @@ fn fix(
         (
             Some(format!(
                 "a burnout current on `{}` (`burnout`, {}) drives the open input to a rail, outside the valid window {} .. {}",
-                plan.names[reader_of(plan, fault.node).unwrap_or(fault.node).index()],
+                plan.names[(reader_of(plan, fault.node).unwrap_or(fault.node)).index()],
                 outweighs_bias(plan, reader_of(plan, fault.node).unwrap_or(fault.node)),
                 window.low, window.high
             )),
@@ -387,10 +476,10 @@ fn fix(
             here,
         ),
         _ => (
-            codes.map(|(lo, hi)| {
+            codes.map(|codes| {
                 format!(
-                    "its codes {lo} .. {hi} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
-                    window.low, window.high
+                    "its codes {} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
+                    codes.words(), window.low, window.high
                 )
             }),
             here,
@@ -571,6 +660,9 @@ pub const TRIP_K: f64 = 2.0;
 pub struct FaultCheck {
     pub report: FaultReport,
     pub maskings: Vec<Masking>,
+    /// Why the alarms' trips could not be judged (a trip point the chain
+    /// cannot evaluate), when they could not: the faults still are.
+    pub trips_unjudged: Option<EvalError>,
 }
 
 /// The chain's faults and trips judged once: the verdicts, the alarms'
@@ -588,19 +680,91 @@ pub fn check(
         None => code_window(chain, plan)?,
     };
     let report = analyse_in(chain, plan, window)?;
-    let alarms = alarm_limits(chain, plan, TRIP_K)?;
-    let maskings = maskings(chain, plan, &report, alarms)?;
-    Ok(FaultCheck { report, maskings })
+    let trips =
+        alarm_limits(chain, plan, TRIP_K).and_then(|alarms| maskings(chain, plan, &report, alarms));
+    let (maskings, trips_unjudged) = match trips {
+        Ok(m) => (m, None),
+        Err(e) => (Vec::new(), Some(e)),
+    };
+    Ok(FaultCheck {
+        report,
+        maskings,
+        trips_unjudged,
+    })
+}
+
+/// What a chain could not have judged.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Unjudged {
+    /// Its faults and trips: the valid code window could not be built.
+    Faults,
+    /// Its alarms' trips: a trip point could not be evaluated.
+    Trips,
+}
+
+/// R674: the chain's faults (or trips) were not judged, because
+/// evaluating them failed with `error`: the root cause leads, labelled on
+/// its stage as the evaluation finding is, and its help says how to get
+/// the chain evaluated. A chain that guards people or property makes it
+/// an error, as an unjudged fault there is as bad as a silent one.
+pub fn unjudged(chain: &Chain, error: &EvalError, what: Unjudged) -> Finding {
+    let (condition, consequence) = match what {
+        Unjudged::Faults => (
+            chain
+                .measurand
+                .as_ref()
+                .map(|m| (m.span, "the valid code window spans this range".to_string())),
+            "so the valid code window could not be built and no fault of the chain was judged",
+        ),
+        Unjudged::Trips => (
+            chain
+                .alarms
+                .iter()
+                .find(|a| error_at_trip(chain, a))
+                .or(chain.alarms.first())
+                .map(|a| (a.span, "this trip is evaluated".to_string())),
+            "so no alarm's trip code was computed, and no fault was judged against the trips",
+        ),
+    };
+    let cause = super::eval_finding(chain, error, condition);
+    let mut finding = Finding {
+        code: Code::R674,
+        message: format!("{}, {consequence}", cause.message),
+        ..cause
+    };
+    if chain.is_protective() {
+        finding.severity_override = Some(Severity::Error);
+    }
+    let help = finding.help.take().unwrap_or_default();
+    let help = match what {
+        Unjudged::Faults => help,
+        Unjudged::Trips => format!("a trip point is evaluated as the range is: {help}"),
+    };
+    finding.help(format!(
+        "{help}; then `catena checklist` lists every fault against the window"
+    ))
+}
+
+/// Whether the alarm's trip lies outside the measurand range, where an
+/// evaluation is most likely to fail.
+fn error_at_trip(chain: &Chain, alarm: &crate::model::Alarm) -> bool {
+    chain
+        .measurand
+        .as_ref()
+        .is_some_and(|m| alarm.at < m.low || alarm.at > m.high)
 }
 
 /// `check`'s findings on a chain's faults and trips: R670 for a silent
 /// fault, R671 for an undetermined one (errors in a chain that protects
 /// people or property), R672 for a fault that masks a trip, R673 for a
-/// trip outside the measurand range. A chain whose window or trips could
-/// not be evaluated gets none here: evaluating the chain is the other
-/// checks' business, and `catena checklist` names the error.
+/// trip outside the measurand range; R674 when the trips could not be
+/// evaluated (a chain whose window could not be built gets R674 from
+/// [`unjudged`] instead).
 pub fn findings(chain: &Chain, checked: &FaultCheck) -> Findings {
     let mut out = Findings::new();
+    if let Some(e) = &checked.trips_unjudged {
+        out.push(unjudged(chain, e, Unjudged::Trips));
+    }
     let report = &checked.report;
     let mut causes: Vec<Option<Cause>> = Vec::with_capacity(report.faults.len());
     for (i, f) in report.faults.iter().enumerate() {
@@ -646,6 +810,24 @@ fn same_reason(a: &FaultVerdict, b: &FaultVerdict) -> bool {
         && a.reason == b.reason
 }
 
+/// The severity `check` reports a fault with (R670 or R671), or None when
+/// it reports nothing of it: a detectable fault, one found at bring-up,
+/// and one whose limit is left unstated in a chain that guards nobody.
+/// A chain that protects people or property makes them errors.
+pub fn reported_severity(chain: &Chain, f: &FaultVerdict) -> Option<Severity> {
+    if f.verdict == Verdict::Detectable
+        || found_at_bring_up(f.fault.kind)
+        || (f.unstated && !chain.is_protective())
+    {
+        return None;
+    }
+    Some(if chain.is_protective() {
+        Severity::Error
+    } else {
+        Severity::Warning
+    })
+}
+
 /// R670 or R671 for one fault the firmware cannot see (and the faults of
 /// the same stage that share its reason).
 fn fault_finding(
@@ -660,18 +842,19 @@ fn fault_finding(
         .map(|f| f.fault.kind.describe())
         .collect::<Vec<_>>()
         .join(" or ");
+    // A limit left unstated is left unchecked (the checklist lists the
+    // fault, with the limit to state), except where the chain guards
+    // people or property.
+    let severity = reported_severity(chain, f)?;
     let (code, message, here) = match (f.verdict, f.codes) {
-        (Verdict::Detectable, _) => return None,
-        _ if found_at_bring_up(f.fault.kind) => return None,
-        // A limit left unstated is left unchecked (the checklist lists the
-        // fault, with the limit to state), except where the chain guards
-        // people or property.
-        _ if f.unstated && !chain.is_protective() => return None,
-        (Verdict::Silent, Some((lo, hi))) => (
+        (Verdict::Silent, Some(codes)) => (
             Code::R670,
             format!(
-                "`{}` {what} is silent: its codes {lo} .. {hi} overlap the valid window {} .. {}",
-                f.stage, w.low, w.high
+                "`{}` {what} is silent: its codes {} overlap the valid window {} .. {}",
+                f.stage,
+                codes.words(),
+                w.low,
+                w.high
             ),
             "reads inside the valid window with this fault".to_string(),
         ),
@@ -686,7 +869,7 @@ fn fault_finding(
         ),
     };
     let mut finding = Finding::new(code, &chain.file, message);
-    if chain.is_protective() {
+    if severity == Severity::Error {
         finding.severity_override = Some(Severity::Error);
     }
     finding = match stage_span(chain, &f.stage) {

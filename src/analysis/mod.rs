@@ -4,6 +4,7 @@
 pub mod accumulation;
 pub mod alarms;
 pub mod budget;
+pub mod calibration;
 pub mod checklist;
 pub mod draws;
 pub mod dynamics;
@@ -321,7 +322,8 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
     // the checklist reuses them), whatever its requirements' verdicts.
     let sound = !findings.has_errors();
     if sound && !chain.requirements.is_empty() {
-        analysis = judge(chain, &plan, options, &mut findings, at_measurand);
+        let known = envelopes.as_deref();
+        analysis = judge(chain, &plan, options, known, &mut findings, at_measurand);
     }
     // A requirement missed leaves the chain as sound as before; any other
     // error the judgement raised (a number that is not one) does not.
@@ -336,9 +338,13 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         .as_deref()
         .filter(|_| options.points == window::POINTS);
     let faults = sound.then(|| faults::check(chain, &plan, reuse));
-    if let Some(Ok(checked)) = &faults {
-        findings.extend(faults::findings(chain, checked));
+    match &faults {
+        Some(Ok(checked)) => findings.extend(faults::findings(chain, checked)),
+        // Never a chain passed whose faults were not judged, unsaid.
+        Some(Err(e)) => findings.push(faults::unjudged(chain, e, faults::Unjudged::Faults)),
+        None => {}
     }
+    findings.extend(calibration::points_outside_range(chain));
     let keep = options.keep != Keep::Nothing;
     ChainCheck {
         plan: keep.then_some(plan),
@@ -382,6 +388,7 @@ fn judge(
     chain: &Chain,
     plan: &Plan,
     options: &CheckOptions,
+    envelopes: Option<&[ranges::Envelope]>,
     findings: &mut Findings,
     at_measurand: Option<(Span, String)>,
 ) -> Option<report::Analysis> {
@@ -401,7 +408,13 @@ fn judge(
         // Only a report shows the detail; `check` prints verdicts alone.
         detail: options.keep == Keep::Reports,
     };
-    match report::analyse(chain, plan, &report_options) {
+    // The envelopes were taken at the budget's points for the limit
+    // findings; the report's detail shows the same ones.
+    let analysed = match envelopes {
+        Some(known) => report::analyse_knowing_envelopes(chain, plan, &report_options, known),
+        None => report::analyse(chain, plan, &report_options),
+    };
+    match analysed {
         Ok(analysis) => {
             // A verdict on a number that is not one would only echo E505.
             let unsound = soundness::non_finite(chain, &analysis);
@@ -416,6 +429,49 @@ fn judge(
         Err(e) => {
             findings.push(eval_finding(chain, &e, at_measurand));
             None
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The chains of a demo spec, resolved against its parts files.
+    fn demo_chains(name: &str) -> Vec<Chain> {
+        let specs = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("specs");
+        let text = std::fs::read(specs.join(name)).expect("the demo reads");
+        let file = crate::syntax::decode(name, &text).expect("text");
+        let (ast, findings) = crate::syntax::parse(&file);
+        assert!(!findings.has_errors(), "{findings:?}");
+        let mut parts = crate::model::PartsCache::default();
+        let (chains, findings) = crate::model::resolve(&file, &ast, &specs, None, &mut parts);
+        assert!(!findings.has_errors(), "{findings:?}");
+        chains
+    }
+
+    /// A check that keeps the report's detail takes the range envelopes
+    /// once per chain: the limit findings, the report's limits and the
+    /// fault window share them.
+    #[test]
+    fn a_report_check_takes_the_envelopes_once() {
+        let options = CheckOptions {
+            points: window::POINTS,
+            keep: Keep::Reports,
+            ..CheckOptions::default()
+        };
+        let chains = demo_chains("cold_store.catena");
+        assert!(!chains.is_empty());
+        for chain in &chains {
+            ranges::ENVELOPE_RUNS.with(|runs| runs.set(0));
+            let checked = check_chain(chain, &options);
+            let analysis = checked.analysis.as_ref().expect("the chain is analysed");
+            assert!(
+                !analysis.envelopes.is_empty(),
+                "the detail holds the limits"
+            );
+            let runs = ranges::ENVELOPE_RUNS.with(std::cell::Cell::get);
+            assert_eq!(runs, 1, "chain {}", chain.name);
         }
     }
 }

@@ -3,18 +3,19 @@
 //! symmetric 95 % coverage interval of the error.
 //!
 //! Every source draws from its own stable stream (see [`super::draws`]):
-//! its value in trial t is a function of (seed, its id, the condition, t)
-//! alone, so the trials can be split among threads any way, and an edit
-//! to one source leaves every other source's draws bit-identical.
+//! its value in trial t is a function of (seed, its id, t) alone, the same
+//! at every condition. So a trial's calibration is worked out once for
+//! all of them, the trials can be split among threads any way, and an
+//! edit to one source leaves every other source's draws bit-identical.
 
 use rayon::prelude::*;
 
 use super::budget::Point;
-use super::draws::{condition_key, Stream};
+use super::draws::{cell_of, condition_key, normal_of, uniform_of, Stream};
 use super::noise::Noise;
 use crate::eval::{
-    half_width, own_fraction, Env, EvalError, Group, LaneSignals, Plan, Signal, Slot, SlotId,
-    SourceKind, LANES, MAX_NODES,
+    half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneColumns, Plan, Slot, SlotId,
+    SourceKind, LANES,
 };
 
 /// Trials per task: large enough to amortise the split, small enough to
@@ -97,13 +98,13 @@ impl Draw {
         }
     }
 
-    /// The value of trial `t` from `stream`.
+    /// The value a draw's `bits` give.
     #[inline]
-    fn value(&self, stream: Stream, t: u64) -> f64 {
+    fn value(&self, bits: u64) -> f64 {
         let x = if self.normal {
-            stream.normal(t)
+            normal_of(bits)
         } else {
-            stream.uniform(t)
+            uniform_of(bits)
         };
         self.origin + self.scale * x
     }
@@ -130,13 +131,13 @@ impl Common {
         }
     }
 
-    /// Trial `t`'s draw on the unit half-width.
+    /// The draw on the unit half-width that `bits` give.
     #[inline]
-    fn unit(&self, stream: Stream, t: u64) -> f64 {
+    fn unit(&self, bits: u64) -> f64 {
         if self.normal {
-            stream.normal(t) / 3.0
+            normal_of(bits) / 3.0
         } else {
-            2.0 * stream.uniform(t) - 1.0
+            2.0 * uniform_of(bits) - 1.0
         }
     }
 }
@@ -253,55 +254,153 @@ pub fn sample(
     Ok(out)
 }
 
-/// What a Monte Carlo draws at one condition: each source with its
-/// stream, and the streams of noise and quantization where they act.
-struct Streams {
-    sources: Vec<(Draw, Stream)>,
+/// The sources' draws, shared by every condition of a trial: each keyed by
+/// the seed and its id alone, so one trial is one instance of the chain
+/// at every point, and its calibration (taken at the reference, not at
+/// the point) is worked out once for all of them.
+struct Sources {
+    /// The sources that vary, each with its stream.
+    drawn: Vec<(Draw, Stream)>,
+    /// The sources whose limits are zero, at their one value.
+    fixed: Vec<(SlotId, f64)>,
     /// Tracking groups' common parts, each with its id's stream.
     groups: Vec<(Common, Stream)>,
+}
+
+impl Sources {
+    fn new(plan: &Plan, seed: u64) -> Sources {
+        let (mut drawn, mut fixed) = (Vec::new(), Vec::new());
+        for (s, slot) in SlotId::all(plan.slots.len()).zip(&plan.slots) {
+            if slot.kind == SourceKind::Exact {
+                continue;
+            }
+            let draw = Draw::of(s, slot, own_fraction(&plan.groups, s));
+            if draw.scale == 0.0 {
+                fixed.push((s, draw.origin));
+            } else {
+                drawn.push((draw, Stream::source(seed, &slot.id)));
+            }
+        }
+        let groups = plan
+            .groups
+            .iter()
+            .map(|g| (Common::of(g, plan), Stream::source(seed, &g.id)))
+            .collect();
+        Sources {
+            drawn,
+            fixed,
+            groups,
+        }
+    }
+
+    /// The streams that vary: the drawn sources, then the groups.
+    fn columns(&self) -> usize {
+        self.drawn.len() + self.groups.len()
+    }
+
+    /// The values of trials `t0 .. t0 + lanes`, lane after lane, into
+    /// `values` (exact slots are left at their nominal), and each drawn
+    /// stream's partition cell into `cells` from index `at` on.
+    fn fill(&self, values: &mut [f64], slots: usize, t0: u64, lanes: usize, cells: &mut Cells) {
+        for &(slot, value) in &self.fixed {
+            for lane in 0..lanes {
+                values[lane * slots + slot.index()] = value;
+            }
+        }
+        for (k, &(draw, stream)) in self.drawn.iter().enumerate() {
+            for lane in 0..lanes {
+                let bits = stream.bits(t0 + lane as u64);
+                values[lane * slots + draw.slot.index()] = draw.value(bits);
+                cells.record(k, lane, bits);
+            }
+        }
+        for (g, (common, stream)) in self.groups.iter().enumerate() {
+            for lane in 0..lanes {
+                let bits = stream.bits(t0 + lane as u64);
+                let x = common.unit(bits);
+                for &(slot, scale) in &common.parts {
+                    values[lane * slots + slot.index()] += scale * x;
+                }
+                cells.record(self.drawn.len() + g, lane, bits);
+            }
+        }
+    }
+
+    /// Every source's id and where its cells are in the shares' order
+    /// (slots, then groups): the index of its column, none if fixed.
+    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Varies)> + 'a {
+        let mut drawn = self.drawn.iter().enumerate().peekable();
+        let slots = SlotId::all(plan.slots.len())
+            .zip(&plan.slots)
+            .filter(|(_, slot)| slot.kind != SourceKind::Exact)
+            .map(move |(s, slot)| {
+                let column = drawn.next_if(|(_, (d, _))| d.slot == s).map(|(k, _)| k);
+                (slot.id.as_str(), column.map_or(Varies::Not, Varies::Column))
+            });
+        let first = self.drawn.len();
+        let groups = plan
+            .groups
+            .iter()
+            .enumerate()
+            .map(move |(g, group)| (group.id.as_str(), Varies::Column(first + g)));
+        slots.chain(groups)
+    }
+}
+
+/// Where a source's partition cells for the shares come from.
+#[derive(Clone, Copy)]
+enum Varies {
+    /// A fixed source: no cells, no share.
+    Not,
+    /// Recorded while drawing, in this column.
+    Column(usize),
+    /// Recomputed from the stream.
+    Stream(Stream),
+}
+
+/// A chunk's part of every recorded column of partition cells (none when
+/// no shares are asked for), from index `at` of the chunk.
+struct Cells<'a> {
+    columns: Vec<&'a mut [u8]>,
+    count: usize,
+    at: usize,
+}
+
+impl Cells<'_> {
+    #[inline]
+    fn record(&mut self, column: usize, lane: usize, bits: u64) {
+        if let Some(cells) = self.columns.get_mut(column) {
+            // At most MAX_CELLS (256) cells: the index fits a byte.
+            cells[self.at + lane] = cell_of(bits, self.count) as u8;
+        }
+    }
+}
+
+/// What each reading adds at one condition: the streams of noise and
+/// quantization where they act, keyed by the condition too (a reading's
+/// noise is its own, not the chain's).
+#[derive(Clone, Copy)]
+struct Reading {
     noise: Option<Stream>,
     quantization: Option<Stream>,
 }
 
-impl Streams {
-    /// Every drawn source's id and stream, noise and quantization last.
-    fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Stream)> + 'a {
-        let sources = self
-            .sources
-            .iter()
-            .map(|(d, s)| (plan.slots[d.slot.index()].id.as_str(), *s));
-        let groups = plan
-            .groups
-            .iter()
-            .zip(&self.groups)
-            .map(|(g, (_, s))| (g.id.as_str(), *s));
-        let noise = self.noise.map(|s| (NOISE_ID, s));
-        let quantization = self.quantization.map(|s| (QUANTIZATION_ID, s));
-        sources.chain(groups).chain(noise).chain(quantization)
-    }
-
-    fn new(plan: &Plan, condition: &Condition, noise: &Noise, seed: u64) -> Streams {
+impl Reading {
+    fn new(condition: &Condition, noise: &Noise, seed: u64) -> Reading {
         let key = condition_key(&condition.env);
-        let sources = SlotId::all(plan.slots.len())
-            .zip(&plan.slots)
-            .filter(|(_, slot)| slot.kind != SourceKind::Exact)
-            .map(|(s, slot)| {
-                let own = own_fraction(&plan.groups, s);
-                (Draw::of(s, slot, own), Stream::new(seed, &slot.id, key))
-            })
-            .collect();
-        let groups = plan
-            .groups
-            .iter()
-            .map(|g| (Common::of(g, plan), Stream::new(seed, &g.id, key)))
-            .collect();
         let acts = |on: bool, id| on.then(|| Stream::new(seed, id, key));
-        Streams {
-            sources,
-            groups,
+        Reading {
             noise: acts(noise.sigma_averaged != 0.0, NOISE_ID),
             quantization: acts(condition.quantization != (0.0, 0.0), QUANTIZATION_ID),
         }
+    }
+
+    fn named<'a>(self) -> impl Iterator<Item = (&'a str, Varies)> {
+        let noise = self.noise.map(|s| (NOISE_ID as &'a str, Varies::Stream(s)));
+        let quantization = self
+            .quantization
+            .map(|s| (QUANTIZATION_ID as &'a str, Varies::Stream(s)));
+        noise.into_iter().chain(quantization)
     }
 }
 
@@ -315,6 +414,57 @@ struct Run<'a> {
     trials: usize,
     seed: u64,
     shares: bool,
+}
+
+/// One chunk's part of every condition's errors and of every recorded
+/// column of partition cells.
+type Task<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>);
+
+/// Each chunk's slices of every condition's errors and every cell column.
+fn chunk_tasks<'a>(
+    errors: &'a mut [Vec<f64>],
+    cells: &'a mut [Vec<u8>],
+    trials: usize,
+) -> Vec<Task<'a>> {
+    let mut tasks: Vec<Task> = (0..trials.div_ceil(CHUNK))
+        .map(|_| {
+            (
+                Vec::with_capacity(errors.len()),
+                Vec::with_capacity(cells.len()),
+            )
+        })
+        .collect();
+    for all in errors {
+        for (task, out) in tasks.iter_mut().zip(all.chunks_mut(CHUNK)) {
+            task.0.push(out);
+        }
+    }
+    for column in cells {
+        for (task, part) in tasks.iter_mut().zip(column.chunks_mut(CHUNK)) {
+            task.1.push(part);
+        }
+    }
+    tasks
+}
+
+/// The first failure of the first failing condition, in trial order,
+/// whatever the thread count.
+fn first_failure(
+    mut outcomes: Vec<Vec<Result<(), EvalError>>>,
+    conditions: usize,
+) -> Result<(), EvalError> {
+    for c in 0..conditions {
+        for outcome in &mut outcomes {
+            std::mem::replace(&mut outcome[c], Ok(()))?;
+        }
+    }
+    Ok(())
+}
+
+/// One condition of a run, with what its readings add.
+struct At<'a> {
+    condition: &'a Condition,
+    reading: Reading,
 }
 
 impl Run<'_> {
@@ -338,37 +488,49 @@ impl Run<'_> {
             };
             return Ok(vec![none; conditions.len()]);
         }
-        let streams: Vec<Streams> = conditions
+        let sources = Sources::new(plan, seed);
+        let at: Vec<At> = conditions
             .iter()
-            .map(|c| Streams::new(plan, c, noise, seed))
+            .map(|condition| At {
+                condition,
+                reading: Reading::new(condition, noise, seed),
+            })
             .collect();
-        // Each chunk writes its errors straight into its condition's buffer.
+        // Each chunk of trials runs every condition, writing straight into
+        // each condition's buffer.
         let mut errors: Vec<Vec<f64>> = conditions.iter().map(|_| vec![0.0; trials]).collect();
-        let tasks: Vec<(usize, usize, &mut [f64])> = errors
-            .iter_mut()
-            .enumerate()
-            .flat_map(|(c, all)| {
-                all.chunks_mut(CHUNK)
-                    .enumerate()
-                    .map(move |(chunk, out)| (c, chunk * CHUNK, out))
-            })
-            .collect();
-        let outcomes: Vec<Result<(), EvalError>> = tasks
+        // The shares' partition cells of each varying source, recorded as
+        // the trials draw them, shared by every condition.
+        let count = super::shares::cells(trials);
+        let columns = if shares { sources.columns() } else { 0 };
+        let mut cells: Vec<Vec<u8>> = (0..columns).map(|_| vec![0; trials]).collect();
+        let tasks = chunk_tasks(&mut errors, &mut cells, trials);
+        let outcomes: Vec<Vec<Result<(), EvalError>>> = tasks
             .into_par_iter()
-            .map(|(c, first, out)| {
-                chunk_errors(plan, &streams[c], &conditions[c], noise, first, out)
+            .enumerate()
+            .map(|(chunk, (mut outs, columns))| {
+                let block = Block {
+                    plan,
+                    sources: &sources,
+                    noise,
+                };
+                let mut cells = Cells {
+                    columns,
+                    count,
+                    at: 0,
+                };
+                block.errors(&at, chunk * CHUNK, &mut outs, &mut cells)
             })
             .collect();
-        // The first failure in order, whatever the thread count.
-        outcomes.into_iter().collect::<Result<(), _>>()?;
+        first_failure(outcomes, conditions.len())?;
         Ok(errors
             .par_iter_mut()
-            .zip(&streams)
-            .map(|(all, streams)| {
+            .zip(&at)
+            .map(|(all, at)| {
                 // The shares read the trials in their order, before the
                 // interval's selection reorders them.
                 let shares = if shares {
-                    variance_shares(plan, streams, all)
+                    variance_shares(plan, &sources, &at.reading, &cells, all)
                 } else {
                     Vec::new()
                 };
@@ -381,67 +543,138 @@ impl Run<'_> {
     }
 }
 
-/// Each drawn source's share of the variance of `errors`.
-fn variance_shares(plan: &Plan, streams: &Streams, errors: &[f64]) -> Vec<Share> {
+/// Each source's share of the variance of `errors`, from the cells
+/// recorded in `columns`; a fixed one's is 0.
+fn variance_shares(
+    plan: &Plan,
+    sources: &Sources,
+    reading: &Reading,
+    columns: &[Vec<u8>],
+    errors: &[f64],
+) -> Vec<Share> {
+    use super::shares::{first_order, first_order_of};
     let cells = super::shares::cells(errors.len());
     let centered = super::shares::Centered::new(errors);
-    streams
+    sources
         .named(plan)
-        .map(|(id, stream)| Share {
+        .chain(reading.named())
+        .map(|(id, varies)| Share {
             id: id.to_string(),
-            share: super::shares::first_order(&centered, stream, cells),
+            share: match varies {
+                Varies::Not => 0.0,
+                Varies::Column(k) => first_order_of(&centered, &columns[k], cells),
+                Varies::Stream(s) => first_order(&centered, s, cells),
+            },
         })
         .collect()
 }
 
-/// The errors of trials `first ..` into `out`.
-fn chunk_errors(
-    plan: &Plan,
-    streams: &Streams,
-    condition: &Condition,
-    noise: &Noise,
-    first: usize,
-    out: &mut [f64],
-) -> Result<(), EvalError> {
-    let env = &condition.env;
-    let slots = plan.nominal.len();
-    // Trials go through the evaluator LANES at a time; each value is its
-    // trial's, so the lane count changes no result.
-    let mut values = plan.nominal.repeat(LANES);
-    let mut readings = [0.0; LANES];
-    let mut scratch: LaneSignals = [[Signal::None; MAX_NODES]; LANES];
-    for (k, out) in out.chunks_mut(LANES).enumerate() {
-        let t0 = (first + k * LANES) as u64;
-        let lanes = out.len();
-        for &(draw, stream) in &streams.sources {
-            for lane in 0..lanes {
-                values[lane * slots + draw.slot.index()] = draw.value(stream, t0 + lane as u64);
+/// What one chunk of trials needs besides its conditions.
+struct Block<'a> {
+    plan: &'a Plan,
+    sources: &'a Sources,
+    noise: &'a Noise,
+}
+
+impl Block<'_> {
+    /// The errors of trials `first ..` at every condition into `outs` (one
+    /// buffer a condition, all as long): each trial's values drawn and its
+    /// calibration worked out once, then read at every condition. A
+    /// condition stops at its first failure.
+    fn errors(
+        &self,
+        at: &[At],
+        first: usize,
+        outs: &mut [&mut [f64]],
+        cells: &mut Cells,
+    ) -> Vec<Result<(), EvalError>> {
+        let plan = self.plan;
+        let slots = plan.nominal.len();
+        let len = outs.first().map_or(0, |o| o.len());
+        // Trials go through the evaluator LANES at a time; each value is its
+        // trial's, so the lane count changes no result.
+        let mut values = plan.nominal.repeat(LANES);
+        let mut calibrated = [Calibrated::None; LANES];
+        let mut lanes = Lanes {
+            readings: [0.0; LANES],
+            scratch: LaneColumns::default(),
+        };
+        let mut outcome: Vec<Result<(), EvalError>> = at.iter().map(|_| Ok(())).collect();
+        for start in (0..len).step_by(LANES) {
+            let count = LANES.min(len - start);
+            let t0 = (first + start) as u64;
+            cells.at = start;
+            self.sources.fill(&mut values, slots, t0, count, cells);
+            let calibration = (0..count).try_for_each(|lane| -> Result<(), EvalError> {
+                calibrated[lane] = plan.calibration(&values[lane * slots..(lane + 1) * slots])?;
+                Ok(())
+            });
+            for ((at, out), result) in at.iter().zip(outs.iter_mut()).zip(&mut outcome) {
+                if result.is_err() {
+                    continue;
+                }
+                let out = &mut out[start..start + count];
+                let known = calibration.as_ref().ok().map(|()| &calibrated);
+                *result = self.block(at, &values, known, t0, out, &mut lanes);
             }
         }
-        for (common, stream) in &streams.groups {
-            for lane in 0..lanes {
-                let x = common.unit(*stream, t0 + lane as u64);
-                for &(slot, scale) in &common.parts {
-                    values[lane * slots + slot.index()] += scale * x;
+        outcome
+    }
+
+    /// One block of trials from `t0` at one condition into `out`. Without
+    /// a calibration (it failed in some lane) each lane runs whole, so the
+    /// error is the one a single run meets first.
+    fn block(
+        &self,
+        at: &At,
+        values: &[f64],
+        calibrated: Option<&[Calibrated; LANES]>,
+        t0: u64,
+        out: &mut [f64],
+        lanes: &mut Lanes,
+    ) -> Result<(), EvalError> {
+        let (plan, env) = (self.plan, &at.condition.env);
+        let slots = plan.nominal.len();
+        let lane_values = |lane: usize| &values[lane * slots..(lane + 1) * slots];
+        let readings = &mut lanes.readings;
+        match calibrated {
+            Some(known) if out.len() == LANES => {
+                plan.unquantized_readings_calibrated(
+                    values,
+                    env,
+                    known,
+                    readings,
+                    &mut lanes.scratch,
+                )?;
+            }
+            Some(known) => {
+                for (lane, reading) in readings.iter_mut().enumerate().take(out.len()) {
+                    *reading =
+                        plan.unquantized_reading_calibrated(lane_values(lane), env, &known[lane])?;
+                }
+            }
+            None => {
+                for (lane, reading) in readings.iter_mut().enumerate().take(out.len()) {
+                    *reading = plan.unquantized_reading(lane_values(lane), env)?;
                 }
             }
         }
-        if lanes == LANES {
-            plan.unquantized_readings(&values, env, &mut readings, &mut scratch)?;
-        } else {
-            for (lane, reading) in readings.iter_mut().enumerate().take(lanes) {
-                *reading =
-                    plan.unquantized_reading(&values[lane * slots..(lane + 1) * slots], env)?;
-            }
-        }
-        for (lane, (slot, &r)) in out.iter_mut().zip(&readings).enumerate() {
+        let (condition, reading) = (at.condition, at.reading);
+        for (lane, (slot, &r)) in out.iter_mut().zip(readings.iter()).enumerate() {
             let t = t0 + lane as u64;
-            let z = streams.noise.map_or(0.0, |s| s.normal(t));
-            let q = streams.quantization.map_or(0.0, |s| s.uniform(t) - 0.5);
-            *slot = r - env.measurand + z * noise.sigma_averaged + condition.quantization_at(q);
+            let z = reading.noise.map_or(0.0, |s| s.normal(t));
+            let q = reading.quantization.map_or(0.0, |s| s.uniform(t) - 0.5);
+            *slot =
+                r - env.measurand + z * self.noise.sigma_averaged + condition.quantization_at(q);
         }
+        Ok(())
     }
-    Ok(())
+}
+
+/// The evaluator's working space for one block of lanes.
+struct Lanes {
+    readings: [f64; LANES],
+    scratch: LaneColumns,
 }
 
 /// The probabilistically symmetric 95 % interval of `all` (not empty),

@@ -299,6 +299,36 @@ fn branch_terms(
     terms
 }
 
+/// One conversion's noise σ, in codes, of converter channel `adc` alone,
+/// as firmware sees its code before a conversion combines it: the terms
+/// of its own path (its amplifiers', the resistances driving them, the
+/// converter's). An excitation's own noise, which a ratiometric reading
+/// cancels, is left out here as it is in the main converter's terms.
+pub fn channel_sigma_codes(plan: &Plan, env: &Env, adc: NodeId) -> f64 {
+    let Some(Node::Adc(a)) = plan.nodes.get(adc.index()) else {
+        return 0.0;
+    };
+    let signals = plan
+        .evaluate(&plan.nominal, env)
+        .map(|o| o.signals)
+        .unwrap_or_default();
+    let Some(vr) = plan.converter_reference(adc, &plan.nominal, env, &signals) else {
+        return 0.0;
+    };
+    let gain = a.pga.map(|g| plan.nominal[g.index()]).unwrap_or(1.0);
+    // Volts at its input per code, with its own gain.
+    let per_code = vr / (gain * a.per_ref);
+    if !(per_code > 0.0 && per_code.is_finite()) {
+        return 0.0;
+    }
+    let terms = branch_terms(plan, adc, &signals, env, enbw(plan), per_code, 1.0);
+    terms
+        .iter()
+        .fold(0.0, |acc, t| acc + t.rms_v * t.rms_v)
+        .sqrt()
+        / per_code
+}
+
 /// Noise at `env`, from the nominal chain. `slope` is the converter-input
 /// voltage per measurand unit there (V per SI unit), `lsb` one code in
 /// measurand units.

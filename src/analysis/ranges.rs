@@ -469,6 +469,8 @@ fn bridge_load(kind: BridgeKind, fixed: f64, arms: &[NodeId], s: &[Signal]) -> f
 
 /// The reach of every limited signal.
 pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelope>, EvalError> {
+    #[cfg(test)]
+    ENVELOPE_RUNS.with(|runs| runs.set(runs.get() + 1));
     let checks = checks(plan);
     if checks.is_empty() {
         return Ok(Vec::new());
@@ -481,6 +483,13 @@ pub fn envelopes(chain: &Chain, plan: &Plan, points: usize) -> Result<Vec<Envelo
         .map(|env| reach_at(plan, &checks, &limits, env))
         .collect::<Result<Vec<_>, _>>()?;
     Ok(gather(&checks, &conditions, per_condition))
+}
+
+#[cfg(test)]
+thread_local! {
+    /// How many times this thread computed envelopes: the tests count
+    /// work a command should do once.
+    pub static ENVELOPE_RUNS: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
 }
 
 /// Every source at both limits, in order: low, high, low, high, ...

@@ -112,6 +112,29 @@ pub fn analyse_reusing(
     earlier: Option<Analysis>,
     progress: &dyn Fn(usize, usize),
 ) -> Result<Analysis, EvalError> {
+    analyse_from(chain, plan, options, earlier, None, progress)
+}
+
+/// [`analyse`] of a chain whose range envelopes at the budget's points
+/// are already known (the check computes them for its limit findings),
+/// so the detail does not compute them again.
+pub fn analyse_knowing_envelopes(
+    chain: &Chain,
+    plan: &Plan,
+    options: &Options,
+    envelopes: &[Envelope],
+) -> Result<Analysis, EvalError> {
+    analyse_from(chain, plan, options, None, Some(envelopes), &|_, _| {})
+}
+
+fn analyse_from(
+    chain: &Chain,
+    plan: &Plan,
+    options: &Options,
+    earlier: Option<Analysis>,
+    known_envelopes: Option<&[Envelope]>,
+    progress: &dyn Fn(usize, usize),
+) -> Result<Analysis, EvalError> {
     let mut analysis = match earlier {
         Some(a) if a.options.budget == options.budget => a,
         _ => deterministic(chain, plan, options)?,
@@ -139,7 +162,7 @@ pub fn analyse_reusing(
     if !options.detail {
         clear_detail(&mut analysis);
     } else if !asked.detail {
-        add_detail(chain, plan, options, &mut analysis)?;
+        add_detail(chain, plan, options, known_envelopes, &mut analysis)?;
     }
     analysis.options = *options;
     Ok(analysis)
@@ -216,14 +239,19 @@ fn clear_detail(analysis: &mut Analysis) {
 }
 
 /// What only a report shows: the limits, the error along the signal path
-/// at the worst point, the budget without calibration, the alarms.
+/// at the worst point, the budget without calibration, the alarms. The
+/// limits are `known` when the caller took them at the budget's points.
 fn add_detail(
     chain: &Chain,
     plan: &Plan,
     options: &Options,
+    known: Option<&[Envelope]>,
     analysis: &mut Analysis,
 ) -> Result<(), EvalError> {
-    analysis.envelopes = envelopes(chain, plan, options.budget.points)?;
+    analysis.envelopes = match known {
+        Some(known) => known.to_vec(),
+        None => envelopes(chain, plan, options.budget.points)?,
+    };
     let worst = analysis
         .budget
         .points

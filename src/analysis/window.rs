@@ -10,9 +10,10 @@
 //! disagree about where the code goes.
 
 use super::budget;
-use super::noise::noise;
+use super::noise::{channel_sigma_codes, noise};
 use super::ranges::{self, Limit};
-use crate::eval::{Env, EvalError, Node, Plan};
+use crate::eval::{Env, EvalError, Node, NodeId, Plan};
+use crate::model::typed::CombineOp;
 use crate::model::Chain;
 use crate::physics::adc::{code_range, Polarity};
 
@@ -36,8 +37,22 @@ pub struct CodeWindow {
     /// k σ, rounded as the converter rounds, inside its code range.
     pub low: i64,
     pub high: i64,
-    /// The converter's code range, inclusive.
+    /// The converter's code range, inclusive (for a sum of channels, the
+    /// sum of their ranges).
     pub rails: (i64, i64),
+    /// For a conversion that adds channels (`sum`), each channel's own
+    /// window, main converter first: firmware sees each channel's code
+    /// before it adds them, so a fault that takes one channel out of its
+    /// own window is seen even where the sum stays inside the sum's.
+    pub channels: Vec<ChannelWindow>,
+}
+
+/// One channel's own valid code window.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ChannelWindow {
+    pub node: NodeId,
+    pub name: String,
+    pub window: CodeWindow,
 }
 
 impl CodeWindow {
@@ -55,11 +70,60 @@ pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> 
 
 /// [`code_window`] from the range envelopes the limit checks already
 /// computed (at the budget points), so `check` follows the signals once.
+/// A conversion that adds channels has the sum's window: each channel's
+/// reach adds (a bound on the sum's, as their extremes need not come
+/// together), and so do the rails; with each channel's own window beside
+/// it.
 pub fn code_window_from(
     plan: &Plan,
     envelopes: &[ranges::Envelope],
 ) -> Result<CodeWindow, EvalError> {
     let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
+        return Err(numeric(plan, "no converter"));
+    };
+    let own = own_window(plan, envelopes, plan.adc, noise_codes(plan)?)?;
+    let others = match &adc.combine {
+        Some((CombineOp::Sum, others)) => others,
+        Some((CombineOp::Ratio, _)) | None => return Ok(own),
+    };
+    let mut channels = vec![ChannelWindow {
+        node: plan.adc,
+        name: plan.names[plan.adc.index()].clone(),
+        window: own_window(plan, envelopes, plan.adc, channel_noise(plan, plan.adc))?,
+    }];
+    for &n in others {
+        channels.push(ChannelWindow {
+            node: n,
+            name: plan.names[n.index()].clone(),
+            window: own_window(plan, envelopes, n, channel_noise(plan, n))?,
+        });
+    }
+    let add = |f: fn(&CodeWindow) -> (f64, f64)| {
+        channels
+            .iter()
+            .map(|c| f(&c.window))
+            .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1))
+    };
+    let reach = add(|w| w.reach);
+    let rails = add(|w| (w.rails.0 as f64, w.rails.1 as f64));
+    let rails = (rails.0 as i64, rails.1 as i64);
+    // The sum's noise is the main converter's, which holds every
+    // channel's path.
+    Ok(CodeWindow {
+        channels,
+        ..window_of(reach, own.sigma_codes, rails)
+    })
+}
+
+/// Converter `node`'s own window: its input's envelope in codes, widened
+/// by `sigma_codes` of noise.
+fn own_window(
+    plan: &Plan,
+    envelopes: &[ranges::Envelope],
+    node: NodeId,
+    sigma_codes: f64,
+) -> Result<CodeWindow, EvalError> {
+    let Node::Adc(adc) = &plan.nodes[node.index()] else {
         return Err(numeric(plan, "no converter"));
     };
     let per_ref = match adc.polarity {
@@ -70,21 +134,44 @@ pub fn code_window_from(
         .map_err(|_| numeric(plan, "the converter has no code range"))?;
     let envelope = envelopes
         .iter()
-        .find(|e| e.node == plan.adc && e.limit == Limit::ConverterInput)
+        .find(|e| e.node == node && e.limit == Limit::ConverterInput)
         .ok_or_else(|| numeric(plan, "no converter input envelope"))?;
     // The envelope is in fractions of the reference: back to codes.
     let reach = (envelope.reach.0 * per_ref, envelope.reach.1 * per_ref);
-    let sigma_codes = noise_codes(plan)?;
+    Ok(window_of(reach, sigma_codes, rails))
+}
+
+/// The window from a reach, widened by k σ and rounded as the converter
+/// rounds, inside `rails`.
+fn window_of(reach: (f64, f64), sigma_codes: f64, rails: (i64, i64)) -> CodeWindow {
     let widen = NOISE_K * sigma_codes;
     let code = |x: f64| (x.round() as i64).clamp(rails.0, rails.1);
-    Ok(CodeWindow {
+    CodeWindow {
         reach,
         sigma_codes,
         k: NOISE_K,
         low: code(reach.0 - widen),
         high: code(reach.1 + widen),
         rails,
-    })
+        channels: Vec::new(),
+    }
+}
+
+/// One channel's own noise σ in codes, the largest at the measurand
+/// range's ends and middle (at the reference).
+fn channel_noise(plan: &Plan, node: NodeId) -> f64 {
+    let (lo, hi) = plan.range;
+    [lo, 0.5 * (lo + hi), hi]
+        .into_iter()
+        .map(|m| {
+            let env = Env {
+                measurand: m,
+                ambient: plan.reference,
+                cold_junction: plan.reference,
+            };
+            channel_sigma_codes(plan, &env, node)
+        })
+        .fold(0.0, f64::max)
 }
 
 fn numeric(plan: &Plan, what: &str) -> EvalError {

@@ -10,8 +10,7 @@ use clap::Args;
 use super::budget_json::{json, BudgetJson};
 use super::files::{check_one, collect};
 use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::budget::Options as BudgetOptions;
-use crate::analysis::report::{analyse_reusing, Analysis, Options, DEFAULT_SEED, DEFAULT_TRIALS};
+use crate::analysis::report::{analyse_reusing, Analysis, Options};
 use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part, soundness};
 use crate::check::CheckedFile;
@@ -31,24 +30,15 @@ pub struct BudgetArgs {
     chain: Option<String>,
     #[arg(long, value_enum, default_value_t = Format::Human)]
     format: Format,
-    /// Monte Carlo trials per point (0: none) [default: catena.yaml's
-    /// `monte_carlo.trials`, else 10000].
-    #[arg(long)]
-    trials: Option<usize>,
-    /// The Monte Carlo seed: the same seed gives the same result
-    /// [default: catena.yaml's `monte_carlo.seed`, else 1].
-    #[arg(long)]
-    seed: Option<u64>,
-    /// Points across the measurand range.
-    #[arg(long, default_value_t = 21)]
-    points: usize,
+    #[command(flatten)]
+    sampling: settings::SamplingArgs,
     /// List the totals at every point, not only each ambient's worst.
     #[arg(long)]
     per_point: bool,
 }
 
 pub fn run(args: BudgetArgs) -> u8 {
-    if !settings::sampling_flags_usable(args.trials, Some(args.points)) {
+    if !args.sampling.usable() {
         return EXIT_USAGE;
     }
     let files = match collect(&args.paths) {
@@ -146,7 +136,7 @@ fn budget_file(
     let chains = select(&checked.chains, args.chain.as_deref(), several)?;
     let mut run = Run {
         args,
-        options: report_options(args, &config),
+        options: args.sampling.options(&config),
         checked: &checked,
         outputs: Vec::new(),
         notes: Vec::new(),
@@ -167,28 +157,6 @@ fn budget_file(
         }
     }
     Ok(run.finish())
-}
-
-/// The analyses' options: flags first, then the configuration, then the
-/// defaults.
-fn report_options(args: &BudgetArgs, config: &crate::config::Config) -> Options {
-    let trials = args
-        .trials
-        .or(config.trials.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_TRIALS);
-    let seed = args
-        .seed
-        .or(config.seed.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_SEED);
-    Options {
-        budget: BudgetOptions {
-            points: args.points,
-            ..BudgetOptions::default()
-        },
-        trials: (trials > 0).then_some(trials),
-        seed,
-        detail: true,
-    }
 }
 
 /// One file's budgets as they are made.

@@ -8,7 +8,7 @@ use crate::analysis::ranges::LimitUnit;
 use crate::analysis::report::Analysis;
 use crate::analysis::validation::GumCheck;
 use crate::model::{Chain, RequirementKind};
-use crate::units::format::{from_si, significant, trimmed};
+use crate::units::format::{attenuation_db, from_si, significant, trimmed};
 
 /// JCGM 101:2008 §7.2.2 asks for M of at least 10⁴/(1 − p) trials for a
 /// coverage interval of probability p: 200 000 at 95 % (recalled from
@@ -238,15 +238,11 @@ fn dynamics_line(a: &Analysis) -> String {
         .mains
         .iter()
         .map(|(hz, x)| {
-            // An ideal notch attenuates without bound; past 200 dB the
-            // number means nothing to a reader.
-            let db = 20.0 * x.log10();
-            let db = if db > 200.0 {
-                "> 200".to_string()
-            } else {
-                significant(db, 3)
-            };
-            format!("{db} dB at {} Hz", trimmed(*hz, 4))
+            format!(
+                "{} at {} Hz",
+                attenuation_db(20.0 * x.log10()),
+                trimmed(*hz, 4)
+            )
         })
         .collect::<Vec<_>>()
         .join(", ");

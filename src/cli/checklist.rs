@@ -44,7 +44,7 @@ pub struct ChecklistArgs {
 
 /// The JSON document's version: a field's meaning never changes within
 /// one (2: review items are objects with a kind, limits were added).
-const SCHEMA_VERSION: u32 = 2;
+const SCHEMA_VERSION: u32 = 3;
 
 pub fn run(args: ChecklistArgs) -> u8 {
     if let Some(out) = &args.output {
@@ -180,11 +180,14 @@ fn markdown(list: &Checklist) -> String {
         trimmed(w.k, 1),
         trimmed(w.k * w.noise_sigma_codes, 2)
     );
+    if let Some(each) = w.channel_windows() {
+        let _ = writeln!(s, "{each}\n");
+    }
     let _ = writeln!(s, "## Faults\n");
     for f in &list.faults {
         let codes = f
             .codes
-            .map(|(a, b)| format!("codes {a} .. {b}"))
+            .map(|c| format!("codes {}", c.words()))
             .unwrap_or_else(|| match &f.reason {
                 Some(why) => format!("no determined code ({why})"),
                 None => "no determined code".to_string(),

@@ -228,21 +228,26 @@ fn unit_cost(o: &Outcome) -> String {
 /// missing.
 fn power(o: &Outcome) -> String {
     let Some(total) = o.bill.power_w else {
-        return "—".into();
+        if o.bill.unpowered.is_empty() {
+            return "—".into();
+        }
+        return format!("not stated: {}", o.bill.unpowered.join(", "));
     };
-    let delivered: Vec<&str> = o
-        .bill
-        .power
-        .iter()
-        .filter(|p| p.basis == PowerBasis::Delivered)
-        .map(|p| p.stage.as_str())
-        .collect();
     let mut s = with_prefix(total, "W", 4);
-    if !delivered.is_empty() {
-        s.push_str(&format!(
-            " ({} as delivered into the load)",
-            delivered.join(", ")
-        ));
+    for (basis, how) in [
+        (PowerBasis::Delivered, "as delivered into the load"),
+        (PowerBasis::Supply, "from the supply and its current"),
+    ] {
+        let stages: Vec<&str> = o
+            .bill
+            .power
+            .iter()
+            .filter(|p| p.basis == basis)
+            .map(|p| p.stage.as_str())
+            .collect();
+        if !stages.is_empty() {
+            s.push_str(&format!(" ({} {how})", stages.join(", ")));
+        }
     }
     with_missing(s, &o.bill.unpowered)
 }

@@ -137,10 +137,14 @@ fn requirement_rows(d: &OutcomeDiff) -> Vec<Vec<String>> {
 /// or the codes that overlap the window.
 fn fault_state(f: &Option<FaultOutcome>) -> String {
     let Some(f) = f else { return "—".into() };
-    match (f.verdict, f.threshold, f.codes) {
+    let state = match (f.verdict, f.threshold, f.codes) {
         (Verdict::Detectable, Some(t), _) => format!("detectable, {}", threshold_text(t)),
-        (Verdict::Silent, _, Some([lo, hi])) => format!("silent, codes {lo} .. {hi}"),
+        (Verdict::Silent, _, Some(codes)) => format!("silent, codes {}", codes.words()),
         (v, _, _) => v.name().to_string(),
+    };
+    match f.severity {
+        Some(severity) => format!("{state} ({severity})"),
+        None => state,
     }
 }
 
@@ -158,6 +162,7 @@ fn fault_rows(faults: &[FaultChange]) -> Vec<Vec<String>> {
                     "now detectable".to_string()
                 }
                 (Some(o), Some(n)) if o.verdict != n.verdict => "still undetected".to_string(),
+                (Some(o), Some(n)) if o.severity != n.severity => "reported otherwise".to_string(),
                 _ => "threshold moved".to_string(),
             };
             let change = if f.regression && f.old.is_none() {

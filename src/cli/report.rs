@@ -9,13 +9,13 @@ use clap::Args;
 
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::budget::Options as BudgetOptions;
 use crate::analysis::checklist::{checklist, Checklist, Sources};
 use crate::analysis::faults::{self, FaultCheck};
 use crate::analysis::ranges::Envelope;
 use crate::analysis::ranges::DEFAULT_MARGIN;
-use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS};
+use crate::analysis::report::{analyse_reusing, Options};
 use crate::analysis::soundness;
+use crate::check::CheckedFile;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{render_human, Code, Findings, Severity};
 use crate::emit::report::{
@@ -44,20 +44,12 @@ pub struct ReportArgs {
     /// the same bytes).
     #[arg(long)]
     timestamp: bool,
-    /// Monte Carlo trials per point (0: none) [default: catena.yaml's
-    /// `monte_carlo.trials`, else 10000].
-    #[arg(long)]
-    trials: Option<usize>,
-    /// The Monte Carlo seed [default: catena.yaml's `monte_carlo.seed`, else 1].
-    #[arg(long)]
-    seed: Option<u64>,
-    /// Points across the measurand range.
-    #[arg(long, default_value_t = 21)]
-    points: usize,
+    #[command(flatten)]
+    sampling: settings::SamplingArgs,
 }
 
 pub fn run(args: ReportArgs) -> u8 {
-    if !settings::sampling_flags_usable(args.trials, Some(args.points)) {
+    if !args.sampling.usable() {
         return EXIT_USAGE;
     }
     let format = args.format.unwrap_or_else(|| {
@@ -147,18 +139,7 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
     // The check keeps each chain's plan and analysis, with the report's
     // detail; the report adds only what they lack (its Monte Carlo).
     let (checked, config) = check_one(path, crate::analysis::Keep::Reports)?;
-    let errors: Findings = {
-        let mut f = Findings::new();
-        for x in checked
-            .findings
-            .iter()
-            .filter(|f| f.severity() == Severity::Error)
-        {
-            f.push(x.clone());
-        }
-        f
-    };
-    if !errors.is_empty() && !checked.resolved || checked.chains.is_empty() {
+    if checked.findings.has_errors() && !checked.resolved || checked.chains.is_empty() {
         show(&checked.findings);
         errln!(
             "catena: no report for {} until these are fixed",
@@ -166,19 +147,7 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
         );
         return Err(EXIT_FINDINGS);
     }
-    let chains: Vec<_> = match &args.chain {
-        None => checked.chains.iter().collect(),
-        Some(name) => match checked.chains.iter().find(|c| &c.name == name) {
-            Some(c) => vec![c],
-            None => {
-                match did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str())) {
-                    Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
-                    None => errln!("catena: no chain `{name}`"),
-                }
-                return Err(EXIT_USAGE);
-            }
-        },
-    };
+    let chains = selected(&checked, args.chain.as_deref())?;
     let (options, build) = options(args, &config);
     let warnings = warnings(&checked.findings);
     let reports: Vec<_> = chains
@@ -221,7 +190,7 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
             timestamp: args.timestamp.then(now_utc),
             trials: options.trials.unwrap_or(0),
             seed: options.seed,
-            points: args.points,
+            points: args.sampling.points,
             margin: build.margin,
         },
         summary: reports.iter().map(summary_row).collect(),
@@ -232,7 +201,10 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
 /// Whether a finding is one of the fault and trip findings the checklist
 /// is about (listed there, never a reason to refuse it).
 pub fn about_faults(code: Code) -> bool {
-    matches!(code, Code::R670 | Code::R671 | Code::R672 | Code::R673)
+    matches!(
+        code,
+        Code::R670 | Code::R671 | Code::R672 | Code::R673 | Code::R674
+    )
 }
 
 /// Every warning the check raised on the file, and its fault and trip
@@ -279,29 +251,31 @@ pub fn chain_checklist(
     ))
 }
 
+/// The chains a report covers: all of them, or the one `--chain` names
+/// (a usage error, with a suggestion, when the file has none of that name).
+fn selected<'c>(checked: &'c CheckedFile, chain: Option<&str>) -> Result<Vec<&'c Chain>, u8> {
+    let Some(name) = chain else {
+        return Ok(checked.chains.iter().collect());
+    };
+    match checked.chains.iter().find(|c| c.name == name) {
+        Some(c) => Ok(vec![c]),
+        None => {
+            match did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str())) {
+                Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
+                None => errln!("catena: no chain `{name}`"),
+            }
+            Err(EXIT_USAGE)
+        }
+    }
+}
+
 /// The analyses' options and the builder's: flags first, then
 /// `catena.yaml`, then the defaults.
 fn options(args: &ReportArgs, config: &crate::config::Config) -> (Options, BuildOptions) {
-    let trials = args
-        .trials
-        .or(config.trials.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_TRIALS);
-    let seed = args
-        .seed
-        .or(config.seed.as_ref().map(|s| s.value))
-        .unwrap_or(DEFAULT_SEED);
     let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
-    let options = Options {
-        budget: BudgetOptions {
-            points: args.points,
-            ..BudgetOptions::default()
-        },
-        trials: (trials > 0).then_some(trials),
-        seed,
-        detail: true,
-    };
+    let options = args.sampling.options(config);
     let build = BuildOptions {
-        points: args.points,
+        points: args.sampling.points,
         margin,
     };
     (options, build)

@@ -144,6 +144,52 @@ pub fn describe(
 /// The built-in values, for flags and configurations that set none.
 pub const DEFAULTS: (f64, usize, u64) = (DEFAULT_MARGIN, DEFAULT_TRIALS, DEFAULT_SEED);
 
+/// The sampling flags of the commands that analyse a spec as its
+/// configuration says (`budget`, `report`).
+#[derive(clap::Args, Clone, Copy, Debug)]
+pub struct SamplingArgs {
+    /// Monte Carlo trials per point (0: none) [default: catena.yaml's
+    /// `monte_carlo.trials`, else 10000].
+    #[arg(long)]
+    pub trials: Option<usize>,
+    /// The Monte Carlo seed: the same seed gives the same result
+    /// [default: catena.yaml's `monte_carlo.seed`, else 1].
+    #[arg(long)]
+    pub seed: Option<u64>,
+    /// Points across the measurand range.
+    #[arg(long, default_value_t = 21)]
+    pub points: usize,
+}
+
+impl SamplingArgs {
+    /// Whether the flags are in range; the one that is not is reported.
+    pub fn usable(&self) -> bool {
+        sampling_flags_usable(self.trials, Some(self.points))
+    }
+
+    /// The analysis options, with the report's detail: flags first, then
+    /// `config`, then the defaults.
+    pub fn options(&self, config: &Config) -> crate::analysis::report::Options {
+        let trials = self
+            .trials
+            .or(config.trials.as_ref().map(|s| s.value))
+            .unwrap_or(DEFAULT_TRIALS);
+        let seed = self
+            .seed
+            .or(config.seed.as_ref().map(|s| s.value))
+            .unwrap_or(DEFAULT_SEED);
+        crate::analysis::report::Options {
+            budget: crate::analysis::budget::Options {
+                points: self.points,
+                ..crate::analysis::budget::Options::default()
+            },
+            trials: (trials > 0).then_some(trials),
+            seed,
+            detail: true,
+        }
+    }
+}
+
 /// Whether the sampling flags the analysing commands share are in range;
 /// the one that is not is reported on standard error.
 pub fn sampling_flags_usable(trials: Option<usize>, points: Option<usize>) -> bool {

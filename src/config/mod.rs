@@ -117,20 +117,67 @@ impl Config {
     }
 
     /// Applies the rules: allowed findings go, the others take the
-    /// severity their rule gives.
+    /// severity their rule gives. A rule never weakens a safety finding
+    /// ([`guards_safety`]): the finding stays an error, and R675 on the
+    /// rule says so.
     pub fn apply(&self, findings: Vec<Finding>) -> Vec<Finding> {
-        findings
-            .into_iter()
-            .filter_map(|mut f| {
-                match self.level(f.code) {
-                    Some(Level::Allow) => return None,
-                    Some(Level::Warn) => f.severity_override = Some(Severity::Warning),
-                    Some(Level::Deny) => f.severity_override = Some(Severity::Error),
-                    None => {}
+        let mut kept = Vec::with_capacity(findings.len());
+        // Per rule refused: the spec files whose findings it left alone.
+        let mut refused: Vec<(Code, Vec<String>)> = Vec::new();
+        for mut f in findings {
+            let level = self.level(f.code);
+            if level.is_some_and(|l| l != Level::Deny) && guards_safety(&f) {
+                let name = f.file.name().to_string();
+                match refused.iter_mut().find(|(c, _)| *c == f.code) {
+                    Some((_, files)) if files.contains(&name) => {}
+                    Some((_, files)) => files.push(name),
+                    None => refused.push((f.code, vec![name])),
                 }
-                Some(f)
-            })
-            .collect()
+                kept.push(f);
+                continue;
+            }
+            match level {
+                Some(Level::Allow) => continue,
+                Some(Level::Warn) => f.severity_override = Some(Severity::Warning),
+                Some(Level::Deny) => f.severity_override = Some(Severity::Error),
+                None => {}
+            }
+            kept.push(f);
+        }
+        kept.extend(
+            refused
+                .iter()
+                .filter_map(|(code, files)| self.refusal(*code, files)),
+        );
+        kept
+    }
+
+    /// R675 on the rule for `code`, which `files` kept as errors.
+    fn refusal(&self, code: Code, files: &[String]) -> Option<Finding> {
+        let file = self.file.as_ref()?;
+        let (_, rule) = self.rules.iter().find(|(c, _)| *c == code)?;
+        let specs = files
+            .iter()
+            .map(|f| format!("`{f}`"))
+            .collect::<Vec<_>>()
+            .join(", ");
+        Some(
+            Finding::new(
+                Code::R675,
+                file,
+                format!(
+                    "`{}: {}` does not weaken {} in a chain with an `alarm` or a `protects` line ({specs}): it stays an error",
+                    code.as_str(),
+                    rule.value.as_str(),
+                    code.as_str()
+                ),
+            )
+            .label(rule.span, "this rule is not applied there")
+            .help(format!(
+                "a chain that guards people or property is fixed in its design: follow the help of each {} (`catena checklist` lists the fault and its fix); the rule still applies to chains that guard nothing, and a rule may still `deny`",
+                code.as_str()
+            )),
+        )
     }
 
     /// `path:line` of a value this file set.
@@ -140,6 +187,17 @@ impl Config {
             None => String::new(),
         }
     }
+}
+
+/// Whether a finding is a safety verdict no configuration may weaken: a
+/// fault or trip finding (R670 to R674) that is an error because its
+/// chain has an `alarm` or says it protects people or property. A chain
+/// that says so is judged on its own spec, not on a file folders away.
+pub fn guards_safety(f: &Finding) -> bool {
+    matches!(
+        f.code,
+        Code::R670 | Code::R671 | Code::R672 | Code::R673 | Code::R674
+    ) && f.severity() == Severity::Error
 }
 
 /// Whether a rule may lower `code` below its built-in severity. A verdict

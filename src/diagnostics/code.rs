@@ -141,6 +141,7 @@ codes! {
     P312 => Error, "setting given twice";
     P313 => Error, "percentage without a basis";
     P350 => Error, "unknown protected kind";
+    P375 => Error, "unit on a plain number";
     P335 => Error, "coefficients for a standard curve";
 
     M201 => Error, "duplicate stage name";
@@ -207,6 +208,9 @@ codes! {
     R671 => Warning, "undetermined fault";
     R672 => Error, "trip masked by a fault";
     R673 => Error, "trip outside the measurand range";
+    R674 => Warning, "faults or trips not judged";
+    R675 => Warning, "configuration rule not applied to a safety finding";
+    R676 => Warning, "calibration point outside the measurand range";
 
     C801 => Error, "malformed configuration file";
     C802 => Error, "unknown configuration key";

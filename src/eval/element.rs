@@ -2,9 +2,10 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
+use super::lanes::{LaneRun, Lost};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
-use super::run::within;
+use super::run::{within, LANES};
 use crate::physics::{rtd, strain, thermistor};
 use crate::units::ZERO_CELSIUS_K;
 
@@ -373,6 +374,74 @@ impl ElementCurve {
     }
 }
 
+/// Aitken's Δ² extrapolation of the steps `cold`, `r1`, `r2` (the last
+/// step where the steps no longer curve).
+#[inline(always)]
+fn aitken(cold: f64, r1: f64, r2: f64) -> f64 {
+    let curvature = (r2 - r1) - (r1 - cold);
+    let extrapolated = r2 - (r2 - r1) * (r2 - r1) / curvature;
+    if extrapolated.is_finite() {
+        extrapolated
+    } else {
+        r2
+    }
+}
+
+impl Plan {
+    /// [`Plan::driven_element`] in every lane of a batch: each step of
+    /// [`self_heated`] taken across the lanes before the next, so the
+    /// lanes' curve evaluations run side by side.
+    #[inline(always)]
+    pub(super) fn driven_elements(
+        &self,
+        n: NodeId,
+        run: &LaneRun<'_>,
+        current: Option<&[f64; LANES]>,
+    ) -> Result<[f64; LANES], Lost> {
+        let curves: [Result<(ElementCurve, f64), EvalError>; LANES] =
+            std::array::from_fn(|k| self.element_curve(n, run.row(k), run.env));
+        let mut element = [(
+            ElementCurve::Beta {
+                r25: 0.0,
+                beta: 0.0,
+            },
+            0.0,
+        ); LANES];
+        for (element, curve) in element.iter_mut().zip(curves) {
+            *element = curve.map_err(|_| Lost)?;
+        }
+        let mut cold = [0.0; LANES];
+        for (cold, (curve, t)) in cold.iter_mut().zip(&element) {
+            *cold = curve.resistance(*t).map_err(|()| Lost)?;
+        }
+        let (Some(a), Some(heating)) = (current, self.heating(n)) else {
+            return Ok(cold);
+        };
+        let delta = run.slot(heating.dissipation);
+        let step = |from: &[f64; LANES]| -> Result<[f64; LANES], Lost> {
+            let mut to = [0.0; LANES];
+            for k in 0..LANES {
+                let (curve, t) = element[k];
+                to[k] = curve
+                    .heated_resistance(t, a[k] * a[k] * from[k], delta[k])
+                    .map_err(|_| Lost)?;
+            }
+            Ok(to)
+        };
+        let r1 = step(&cold)?;
+        let r2 = step(&r1)?;
+        let mut r = [0.0; LANES];
+        for k in 0..LANES {
+            r[k] = aitken(cold[k], r1[k], r2[k]);
+        }
+        if heating.curved {
+            step(&r)
+        } else {
+            Ok(r)
+        }
+    }
+}
+
 /// Resistance of an RTD curve at `t_c` °C.
 #[inline]
 fn rtd_resistance(curve: RtdCurve, r0: f64, t_c: f64) -> f64 {
@@ -399,13 +468,7 @@ pub(super) fn self_heated<E>(
 ) -> Result<f64, E> {
     let r1 = at(cold)?;
     let r2 = at(r1)?;
-    let curvature = (r2 - r1) - (r1 - cold);
-    let extrapolated = r2 - (r2 - r1) * (r2 - r1) / curvature;
-    let r = if extrapolated.is_finite() {
-        extrapolated
-    } else {
-        r2
-    };
+    let r = aitken(cold, r1, r2);
     if curved {
         at(r)
     } else {

@@ -241,23 +241,42 @@ impl Plan {
         feeds
     }
 
-    /// The burnout current the stage reading node `i` sources into it.
+    /// The burnout current the stage reading node `i` sources into it
+    /// (see [`Plan::burnout_of`]).
     pub fn burnout_into(&self, i: NodeId) -> Option<f64> {
-        self.nodes.iter().find_map(|n| match n {
-            Node::Amplifier(a) if a.input == i => a.burnout,
-            Node::Adc(a) if a.input == i => a.burnout,
-            _ => None,
-        })
+        let reader = NodeId::new(self.nodes.iter().position(|n| match n {
+            Node::Amplifier(a) => a.input == i,
+            Node::Adc(a) => a.input == i,
+            _ => false,
+        })?);
+        self.burnout_of(reader)
     }
 
     /// The burnout current amplifier or converter `i` sources from its own
-    /// input.
+    /// input, when it outweighs the input's largest bias current: a bias
+    /// current as large or larger, with nowhere else to go, leaves the
+    /// open input's direction undetermined.
     pub fn burnout_of(&self, i: NodeId) -> Option<f64> {
-        match &self.nodes[i.index()] {
+        let burnout = match &self.nodes[i.index()] {
             Node::Amplifier(a) => a.burnout,
             Node::Adc(a) => a.burnout,
             _ => None,
+        }?;
+        (burnout > self.input_bias(i).unwrap_or(0.0)).then_some(burnout)
+    }
+
+    /// The largest input bias current amplifier or converter `i` states,
+    /// A: an amplifier's `bias` at its limit, a converter's `bias`.
+    pub fn input_bias(&self, i: NodeId) -> Option<f64> {
+        match &self.nodes[i.index()] {
+            Node::Amplifier(amp) => amp.bias.map(|b| {
+                let slot = &self.slots[b.index()];
+                slot.nominal.abs() + slot.plus.max(slot.minus)
+            }),
+            Node::Adc(adc) => adc.bias,
+            _ => None,
         }
+        .filter(|&most| most > 0.0)
     }
 
     /// The current source an open element would starve: a series string
@@ -280,37 +299,72 @@ impl Plan {
         env: &Env,
         fault: &Fault,
     ) -> Result<FaultCode, EvalError> {
+        self.faulted_code_at(values, env, fault, None)
+    }
+
+    /// With `fault` present, the code firmware sees at `channel`: that
+    /// converter channel's own code, before a conversion combines it with
+    /// others'; or, for None, the main converter's code as the conversion
+    /// reads it.
+    pub fn faulted_code_at(
+        &self,
+        values: &[f64],
+        env: &Env,
+        fault: &Fault,
+        channel: Option<NodeId>,
+    ) -> Result<FaultCode, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         let starved = self.starved_source(fault);
-        for i in NodeId::all(self.adc.index() + 1) {
+        let mode = Mode {
+            faulted: Some(fault.node),
+            ..Mode::FAULT
+        };
+        let here = |i: NodeId| if i == fault.node { Some(fault) } else { None };
+        // A channel read before the main converter needs nothing after it.
+        let last = channel.unwrap_or(self.adc);
+        for i in NodeId::all(last.index() + 1) {
             if matches!(self.nodes[i.index()], Node::Convert(_)) {
                 continue;
             }
-            let here = if i == fault.node { Some(fault) } else { None };
             let s = if starved == Some(i) {
                 Faulted::Signal(Signal::Current(0.0))
+            } else if channel == Some(i) {
+                self.faulted_own_code(i, values, env, &signals, mode, here(i))?
             } else {
-                self.faulted_node(
-                    i,
-                    values,
-                    env,
-                    &signals,
-                    Mode {
-                        faulted: Some(fault.node),
-                        ..Mode::FAULT
-                    },
-                    here,
-                )?
+                self.faulted_node(i, values, env, &signals, mode, here(i))?
             };
             match s {
                 Faulted::Signal(s) => signals[i.index()] = s,
                 Faulted::Undetermined(why) => return Ok(FaultCode::Undetermined(why)),
+                // One channel of a sum at an end nothing chooses leaves
+                // the sum anywhere among the ends' combinations: only the
+                // channel's own code is determined (at one end or the
+                // other).
+                Faulted::EitherEnd if channel.is_none() && self.summed(i) => {
+                    return Ok(FaultCode::Undetermined(
+                        "a summed channel is left at an end nothing chooses, so the sum is not determined",
+                    ))
+                }
                 Faulted::EitherEnd => return Ok(FaultCode::EitherEnd),
             }
         }
-        match signals[self.adc.index()] {
+        match signals[last.index()] {
             Signal::Code { exact, .. } => Ok(FaultCode::Code(exact)),
-            _ => Err(self.numeric(self.adc, "no code")),
+            _ => Err(self.numeric(last, "no code")),
+        }
+    }
+
+    /// Whether node `i` is a channel the main converter's conversion adds
+    /// (the main converter itself included).
+    fn summed(&self, i: NodeId) -> bool {
+        match &self.nodes[self.adc.index()] {
+            Node::Adc(adc) => match &adc.combine {
+                Some((crate::model::typed::CombineOp::Sum, others)) => {
+                    i == self.adc || others.contains(&i)
+                }
+                _ => false,
+            },
+            _ => false,
         }
     }
 }

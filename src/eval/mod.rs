@@ -13,6 +13,7 @@ mod env;
 mod error;
 pub mod fault;
 mod ids;
+mod lanes;
 mod lower;
 pub mod node;
 mod plan;
@@ -21,6 +22,7 @@ mod stated;
 mod track;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, Method, TableUse};
+pub use lanes::LaneColumns;
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use node::{AmpReference, BridgeKind, Node};
 pub use plan::{

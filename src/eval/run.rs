@@ -2,6 +2,7 @@
 //! inputs' signals, the parameter values and the environment.
 
 use super::convert::{calibration_env, Calibrated, Conversion, Firmware};
+use super::lanes::{LaneColumns, LaneRun, Lost, Tag};
 use super::node;
 use super::plan::{ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal};
 use crate::model::typed::CombineOp;
@@ -63,7 +64,7 @@ impl Mode {
     };
 }
 
-/// Which nodes a run evaluates: the first so many nodes, in order.
+/// Which nodes a run evaluates: the first so many.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(super) enum Reach {
     /// Every node, conversions included.
@@ -449,11 +450,11 @@ impl Plan {
         values: &[f64],
         env: &Env,
         readings: &mut [f64; LANES],
-        scratch: &mut LaneSignals,
+        scratch: &mut LaneColumns,
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         if self
-            .lane_readings(values, env, None, readings, scratch)
+            .column_readings(values, env, None, readings, scratch)
             .is_err()
         {
             for (lane, reading) in readings.iter_mut().enumerate() {
@@ -471,11 +472,11 @@ impl Plan {
         env: &Env,
         calibrated: &[Calibrated; LANES],
         readings: &mut [f64; LANES],
-        scratch: &mut LaneSignals,
+        scratch: &mut LaneColumns,
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         if self
-            .lane_readings(values, env, Some(calibrated), readings, scratch)
+            .column_readings(values, env, Some(calibrated), readings, scratch)
             .is_err()
         {
             for (lane, reading) in readings.iter_mut().enumerate() {
@@ -512,63 +513,111 @@ impl Plan {
         Ok(())
     }
 
-    fn lane_readings(
+    /// The readings of a batch, column by column (see [`super::lanes`]):
+    /// the calibration's points and the chain node by node across the
+    /// lanes, then the conversion's inverse and correction lane by lane.
+    fn column_readings(
         &self,
         values: &[f64],
         env: &Env,
         known: Option<&[Calibrated; LANES]>,
         readings: &mut [f64; LANES],
-        signals: &mut LaneSignals,
-    ) -> Result<(), EvalError> {
+        columns: &mut LaneColumns,
+    ) -> Result<(), Lost> {
         let n = self.slots.len();
         let lane = |k: usize| &values[k * n..(k + 1) * n];
-        let conversion = self.main_conversion()?;
+        columns.load(values, n);
+        let conversion = self.main_conversion().map_err(|_| Lost)?;
         // The calibration's exact codes, lane by lane, point by point.
         let mut codes = [[0.0; 2]; LANES];
         let points = conversion
             .calibration_points()
             .take(if known.is_some() { 0 } else { 2 });
         for (j, p) in points.enumerate() {
-            self.run_lanes(
+            self.run_columns(
                 values,
                 &calibration_env(self, p),
-                signals,
+                columns,
                 Reach::Electronics(self.adc.index() + 1),
                 Mode::CALIBRATION,
             )?;
-            for (k, lane_codes) in codes.iter_mut().enumerate() {
-                let Signal::Code { exact, .. } = signals[k][self.adc.index()] else {
-                    return Err(self.numeric(self.adc, "no code"));
-                };
+            let exact = columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
+            for (lane_codes, &exact) in codes.iter_mut().zip(exact) {
                 lane_codes[j] = exact;
             }
         }
-        self.run_lanes(
+        self.run_columns(
             values,
             env,
-            signals,
+            columns,
             Reach::All(self.reading.index()),
             Mode::UNQUANTIZED,
         )?;
         let Node::Convert(node::Convert { cj, .. }) = &self.nodes[self.reading.index()] else {
-            return Err(self.numeric(self.reading, "no conversion"));
+            return Err(Lost);
         };
+        let exact = *columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
+        let cj = cj.and_then(|c| columns.nodes[c.index()].of(Tag::Reading));
         for (k, reading) in readings.iter_mut().enumerate() {
-            let Signal::Code { exact, .. } = signals[k][self.adc.index()] else {
-                return Err(self.numeric(self.adc, "no code"));
-            };
-            let cj = cj.and_then(|c| match signals[k][c.index()] {
-                Signal::Reading(t) => Some(t),
-                _ => None,
-            });
-            let x = conversion.invert(self, lane(k), env, exact, cj)?;
+            let cj = cj.map(|t| t[k]);
+            let x = conversion
+                .invert(self, lane(k), env, exact[k], cj)
+                .map_err(|_| Lost)?;
             let calibrated = match known {
                 Some(known) => known[k],
-                None => conversion.calibrated_from(self, lane(k), &codes[k])?,
+                None => conversion
+                    .calibrated_from(self, lane(k), &codes[k])
+                    .map_err(|_| Lost)?,
             };
-            *reading = conversion.correct(self, x, &calibrated)?;
+            *reading = conversion.correct(self, x, &calibrated).map_err(|_| Lost)?;
         }
         Ok(())
+    }
+
+    /// [`Plan::run`] for every lane, node by node, each node's signals a
+    /// column.
+    fn run_columns(
+        &self,
+        values: &[f64],
+        env: &Env,
+        columns: &mut LaneColumns,
+        reach: Reach,
+        mode: Mode,
+    ) -> Result<(), Lost> {
+        let LaneColumns {
+            nodes,
+            values: slots,
+        } = columns;
+        for i in self.reach(reach) {
+            let (before, after) = nodes.split_at_mut(i.index());
+            let run = LaneRun {
+                plan: self,
+                i,
+                rows: values,
+                values: slots,
+                env,
+                s: before,
+                mode,
+                junction_mv: self.junction_mv(i, env),
+            };
+            let column = self.node_lanes(&run)?;
+            if !column.finite() {
+                return Err(Lost);
+            }
+            after[0] = column;
+        }
+        Ok(())
+    }
+
+    /// What depends on the condition alone, worked out once for all
+    /// lanes: a thermocouple's EMF at the (actual) cold junction.
+    fn junction_mv(&self, i: NodeId, env: &Env) -> Option<f64> {
+        match self.nodes[i.index()] {
+            Node::Thermocouple(node::Thermocouple { ty, .. }) => {
+                thermocouple::emf_mv(ty, super::node::junction_c(ty, env)).ok()
+            }
+            _ => None,
+        }
     }
 
     /// [`Plan::run`] for every lane, node by node.
@@ -582,14 +631,7 @@ impl Plan {
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         for i in self.reach(reach) {
-            // What depends on the condition alone is worked out once for
-            // all lanes: the couple's EMF at the (actual) cold junction.
-            let junction_mv = match self.nodes[i.index()] {
-                Node::Thermocouple(node::Thermocouple { ty, .. }) => {
-                    thermocouple::emf_mv(ty, super::node::junction_c(ty, env)).ok()
-                }
-                _ => None,
-            };
+            let junction_mv = self.junction_mv(i, env);
             for (k, lane) in signals.iter_mut().enumerate() {
                 let s = self.node(i, &values[k * n..(k + 1) * n], env, lane, mode, junction_mv)?;
                 if !finite(s) {

@@ -694,7 +694,7 @@ fn accepted(expect: Expect, cx: &Context<'_>) -> Vec<Dim> {
     match expect {
         Expect::Dim(d) => vec![d],
         Expect::Temperature | Expect::TempDiff => vec![Dim::TEMPERATURE],
-        Expect::Ratio | Expect::Decibel => vec![Dim::NONE],
+        Expect::Ratio | Expect::Decibel | Expect::Number => vec![Dim::NONE],
         Expect::Measurand => cx.measurand.into_iter().collect(),
         Expect::PerKelvin(d) => vec![d / Dim::TEMPERATURE, Dim::NONE / Dim::TEMPERATURE],
         Expect::OneOf(ds) => ds.to_vec(),
@@ -706,6 +706,7 @@ fn noun(expect: Expect, cx: &Context<'_>) -> &'static str {
         Expect::Temperature => "a temperature",
         Expect::TempDiff => "a temperature difference",
         Expect::Ratio => "a plain number or a ratio",
+        Expect::Number => "a plain number",
         Expect::Decibel => "a ratio in `dB`",
         _ => accepted(expect, cx)
             .first()
@@ -726,6 +727,7 @@ fn example_text(expect: Expect, measurand: Option<Dim>) -> String {
         Expect::Temperature => "25 degC".into(),
         Expect::TempDiff => "0.5 K".into(),
         Expect::Ratio => "4".into(),
+        Expect::Number => "12.5".into(),
         Expect::Decibel => "100 dB".into(),
         Expect::Measurand => match measurand {
             Some(d) if !d.name().example.is_empty() => d.name().example.to_string(),
@@ -786,6 +788,9 @@ fn usage(name: &str, shape: Shape) -> String {
 /// Converts a written quantity to SI, checking its dimension. `point`
 /// says an absolute temperature is meant, so `degC` is offset.
 fn to_si(q: &QuantityLit, expect: Expect, point: bool, cx: &Context<'_>) -> Checked<(f64, Dim)> {
+    if let (Expect::Number, Some(u)) = (expect, &q.unit) {
+        return Err(Box::new(unit_on_a_number(q, u, cx)));
+    }
     let dims = accepted(expect, cx);
     let unit = match &q.unit {
         None => Unit::ONE,
@@ -843,6 +848,24 @@ fn to_si(q: &QuantityLit, expect: Expect, point: bool, cx: &Context<'_>) -> Chec
         }));
     }
     Ok((si_value(q.number, unit, point), unit.dim))
+}
+
+/// P375: a unit on a value that takes a plain number. `%` and `ppm` are
+/// units too: `cost 5 %` would otherwise read as a price of 0.05.
+fn unit_on_a_number(q: &QuantityLit, u: &crate::syntax::ast::UnitLit, cx: &Context<'_>) -> Finding {
+    let number = cx.file.slice(q.number_span).to_string();
+    Finding::new(
+        Code::P375,
+        cx.file,
+        format!(
+            "`{number} {}` has a unit, but a plain number is expected",
+            u.text
+        ),
+    )
+    .label(u.span, "no unit here")
+    .help(format!(
+        "write the number alone, in the currency every part's cost uses: `{number}`"
+    ))
 }
 
 fn si_value(number: f64, unit: Unit, point: bool) -> f64 {

@@ -28,6 +28,8 @@ pub enum Expect {
     TempDiff,
     /// A plain number, `%` or `ppm`.
     Ratio,
+    /// A plain number with no unit at all (a price in the team's currency).
+    Number,
     /// `dB` (amplitude) or a plain ratio.
     Decibel,
     /// In the chain's measurand unit (`500 N`).
@@ -221,7 +223,7 @@ const DISSIPATION: ParamSpec =
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
 /// One unit's price, in whatever currency the team prices parts in (a
 /// plain number), for the trade table of `catena compare`.
-const COST: ParamSpec = p("cost", plain(Expect::Dim(Dim::NONE))).non_negative();
+const COST: ParamSpec = p("cost", plain(Expect::Number)).non_negative();
 /// What the stage draws from its supplies, W.
 const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
 
@@ -375,6 +377,7 @@ static MODELS: &[ModelSpec] = &[
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
             p("output_resistance", plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
+            p("supply_current", plain(AMP)).non_negative(),
             TIME_CONSTANT,
             COST,
             POWER,
@@ -587,6 +590,7 @@ static MODELS: &[ModelSpec] = &[
             p("ref_range", Shape::Range(VOLT)),
             p("rails", Shape::Range(VOLT)),
             p("burnout", plain(AMP)).positive(),
+            p("bias", plain(AMP)).non_negative(),
             p("sampling_capacitance", plain(FARAD)).positive(),
             p("sampling_resistance", plain(OHM)).non_negative(),
             p("acquisition_time", plain(SECOND)).positive(),
@@ -609,6 +613,7 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "ref_range"),
             (CHANNEL_OF, "rails"),
             (CHANNEL_OF, "burnout"),
+            (CHANNEL_OF, "bias"),
             (CHANNEL_OF, "sampling_capacitance"),
             (CHANNEL_OF, "sampling_resistance"),
             (CHANNEL_OF, "acquisition_time"),
@@ -928,6 +933,7 @@ fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
         noise: r.limit("noise"),
         output_resistance: r.measure("output_resistance"),
         supply: r.range("supply"),
+        supply_current: r.value("supply_current"),
         time_constant: r.value("time_constant"),
     }))
 }
@@ -1098,6 +1104,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         ref_range: r.range("ref_range"),
         rails: r.range("rails"),
         burnout: r.value("burnout"),
+        bias: r.value("bias"),
         sampling,
         channel_of,
         channels: 1,

@@ -152,6 +152,8 @@ pub struct IcVoltage {
     /// A measure: `max` makes it a bound of nominal zero.
     pub output_resistance: Option<Measure>,
     pub supply: Option<(f64, f64)>,
+    /// What it draws from its supply (its quiescent current), A.
+    pub supply_current: Option<f64>,
     pub time_constant: Option<f64>,
 }
 
@@ -336,6 +338,9 @@ pub struct Adc {
     /// A current its input sources into an open sensor (burnout
     /// detection), A.
     pub burnout: Option<f64>,
+    /// The largest input bias current its datasheet states, A: what a
+    /// burnout current must outweigh to drive an open input to a rail.
+    pub bias: Option<f64>,
     /// The sampling input's capacitor, F, and acquisition time, s, given
     /// together; its switch resistance, Ω.
     pub sampling: Option<Sampling>,

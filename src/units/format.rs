@@ -66,6 +66,20 @@ pub fn trimmed(value: f64, digits: usize) -> String {
     }
 }
 
+/// Beyond this an attenuation in dB means nothing to a reader: an ideal
+/// notch attenuates without bound.
+const ATTENUATION_SHOWN_DB: f64 = 200.0;
+
+/// An attenuation in dB as every output writes it: three significant
+/// digits, and "> 200 dB" past what a reader can use.
+pub fn attenuation_db(db: f64) -> String {
+    if db > ATTENUATION_SHOWN_DB {
+        format!("> {ATTENUATION_SHOWN_DB} dB")
+    } else {
+        format!("{} dB", significant(db, 3))
+    }
+}
+
 /// Converts an SI value to the unit written in the spec (`degC`, `kg`).
 pub fn from_si(value: f64, unit: &str) -> f64 {
     match parse_unit(unit) {
@@ -86,7 +100,17 @@ pub fn to_si(value: f64, unit: &str) -> f64 {
 
 #[cfg(test)]
 mod tests {
-    use super::{from_si, significant, trimmed, with_prefix};
+    use super::{attenuation_db, from_si, significant, trimmed, with_prefix};
+
+    /// The budget and the report write an attenuation alike.
+    #[test]
+    fn an_attenuation_reads_the_same_everywhere() {
+        assert_eq!(attenuation_db(384.1), "> 200 dB");
+        assert_eq!(attenuation_db(f64::INFINITY), "> 200 dB");
+        assert_eq!(attenuation_db(38.42), "38.4 dB");
+        assert_eq!(attenuation_db(200.0), "200 dB");
+        assert_eq!(attenuation_db(-3.01), "-3.01 dB");
+    }
 
     /// A number beyond 10^15 is written in scientific notation, not as
     /// hundreds of digits; trimming keeps the exponent whole.

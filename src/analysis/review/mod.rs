@@ -241,6 +241,8 @@ fn fault_change(o: Option<&FaultOutcome>, n: &FaultOutcome) -> Option<FaultChang
         // them is told, not judged.
         Some(o) if o.verdict != n.verdict => (Direction::Neutral, false),
         Some(o) if o.threshold != n.threshold => (Direction::Neutral, false),
+        // `protects` added or removed: the same fault, another severity.
+        Some(o) if o.severity != n.severity => (Direction::Neutral, false),
         Some(_) => return None,
     };
     Some(FaultChange {
@@ -640,6 +642,7 @@ mod tests {
             verdict,
             codes: None,
             threshold,
+            severity: None,
         }
     }
 

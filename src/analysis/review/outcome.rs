@@ -7,9 +7,10 @@
 
 use serde::Serialize;
 
-use super::super::faults::{self, FaultReport, Threshold, Verdict};
+use super::super::faults::{self, FaultCodes, FaultReport, Threshold, Verdict};
 use super::super::ranges::Limit;
 use super::super::report::Analysis;
+use crate::diagnostics::Severity;
 use crate::eval::{Env, Plan};
 use crate::model::typed::StageModel;
 use crate::model::{Chain, RequirementKind, Stage};
@@ -102,11 +103,15 @@ pub struct FaultOutcome {
     pub condition: &'static str,
     #[serde(serialize_with = "verdict_name")]
     pub verdict: Verdict,
-    /// The lowest and highest code the converter gives with the fault.
-    pub codes: Option<[i64; 2]>,
+    /// The codes the converter gives with the fault.
+    pub codes: Option<FaultCodes>,
     /// The firmware's test, `code < N` or `code > N`, for a detectable one.
     #[serde(serialize_with = "threshold_words")]
     pub threshold: Option<Threshold>,
+    /// How `check` reports it (`error`, `warning`); None when it does not
+    /// (a `protects` line turns warnings into errors).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub severity: Option<&'static str>,
 }
 
 impl FaultOutcome {
@@ -127,6 +132,15 @@ fn threshold_words<S: serde::Serializer>(t: &Option<Threshold>, s: S) -> Result<
 }
 
 /// A firmware threshold as the checklist writes it.
+/// [`threshold_text`] for the code a fault verdict's threshold is on: a
+/// summed channel's own code names the channel.
+pub fn threshold_text_on(t: Threshold, channel: Option<&str>) -> String {
+    match channel {
+        Some(ch) => threshold_text(t).replace("code", &format!("{ch} code")),
+        None => threshold_text(t),
+    }
+}
+
 pub fn threshold_text(t: Threshold) -> String {
     match t {
         Threshold::Below(n) => format!("code < {n}"),
@@ -145,7 +159,7 @@ pub struct FaultsOutcome {
 }
 
 impl FaultsOutcome {
-    fn of(report: &FaultReport) -> FaultsOutcome {
+    fn of(chain: &Chain, report: &FaultReport) -> FaultsOutcome {
         FaultsOutcome {
             window: [report.window.low, report.window.high],
             rows: report
@@ -156,8 +170,12 @@ impl FaultsOutcome {
                     fault: f.fault.kind.name(),
                     condition: f.fault.kind.describe(),
                     verdict: f.verdict,
-                    codes: f.codes.map(|(lo, hi)| [lo, hi]),
+                    codes: f.codes,
                     threshold: f.threshold,
+                    severity: faults::reported_severity(chain, f).map(|s| match s {
+                        Severity::Error => "error",
+                        Severity::Warning => "warning",
+                    }),
                 })
                 .collect(),
         }
@@ -180,6 +198,10 @@ pub enum PowerBasis {
     /// largest voltage across the load (or its nominal voltage times the
     /// largest load current).
     Delivered,
+    /// An IC sensor that states none: the high end of its stated supply
+    /// range times what it draws (its `supply_current`; a current-output
+    /// sensor draws its own output, the most at the range's top).
+    Supply,
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -211,7 +233,9 @@ impl BillOutcome {
     fn of(chain: &Chain, a: &Analysis) -> BillOutcome {
         let hardware = || chain.stages.iter().filter(|s| s.kind != StageKind::Convert);
         let costs: Vec<f64> = hardware().filter_map(|s| s.bill.cost).collect();
-        let power: Vec<StagePower> = hardware().filter_map(|s| stage_power(s, a)).collect();
+        let power: Vec<StagePower> = hardware()
+            .filter_map(|s| stage_power(chain, s, a))
+            .collect();
         BillOutcome {
             cost: (!costs.is_empty()).then(|| costs.iter().sum()),
             unpriced: hardware()
@@ -253,9 +277,10 @@ fn draws_supply(model: &StageModel) -> bool {
     }
 }
 
-/// A stage's stated power, or what an excitation delivers into its load
-/// where its compliance or current limit gives the load's envelope.
-fn stage_power(stage: &Stage, a: &Analysis) -> Option<StagePower> {
+/// A stage's stated power, what an excitation delivers into its load
+/// where its compliance or current limit gives the load's envelope, or
+/// what an IC sensor draws where its supply (and current) are stated.
+fn stage_power(chain: &Chain, stage: &Stage, a: &Analysis) -> Option<StagePower> {
     let (watts, basis) = match (stage.bill.power, &stage.typed) {
         (Some(w), _) => (w, PowerBasis::Stated),
         (None, Some(StageModel::Excitation(e))) => {
@@ -265,6 +290,16 @@ fn stage_power(stage: &Stage, a: &Analysis) -> Option<StagePower> {
             })?;
             let most = load.reach.0.abs().max(load.reach.1.abs());
             (e.value.nominal.abs() * most, PowerBasis::Delivered)
+        }
+        (None, Some(StageModel::IcVoltage(ic))) => {
+            let (_, most) = ic.supply?;
+            (most * ic.supply_current?, PowerBasis::Supply)
+        }
+        (None, Some(StageModel::IcCurrent(ic))) => {
+            let (_, most) = ic.supply?;
+            // Proportional to absolute temperature: the most at the top.
+            let hottest = chain.measurand.as_ref()?.high;
+            (most * ic.slope.nominal * hottest, PowerBasis::Supply)
         }
         (None, _) => return None,
     };
@@ -349,7 +384,7 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
             .collect(),
         faults: faults::analyse(chain, plan)
             .ok()
-            .map(|r| FaultsOutcome::of(&r)),
+            .map(|r| FaultsOutcome::of(chain, &r)),
         bill: BillOutcome::of(chain, a),
         largest: largest(a),
         trials: a.trials,

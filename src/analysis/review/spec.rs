@@ -162,6 +162,15 @@ fn settings(old: &Chain, new: &Chain, out: &mut Vec<SpecChange>) {
             out.push(change("requirement", kind.word().into(), at(old), at(new)));
         }
     }
+    let guards = |c: &Chain| c.protects.as_ref().map(|p| (p.people, p.property));
+    if guards(old) != guards(new) {
+        let at = |c: &Chain| {
+            c.protects
+                .as_ref()
+                .map(|p| locate(&c.file, &c.file, p.span))
+        };
+        out.push(change("setting", "protects".into(), at(old), at(new)));
+    }
     for side in ["high", "low"] {
         fn find<'c>(c: &'c Chain, side: &str) -> Option<&'c crate::model::Alarm> {
             c.alarms.iter().find(|a| a.side == side)

@@ -6,7 +6,7 @@ use serde::Serialize;
 use super::{
     alarm_names, conversion_words, fault_name, ChainExport, Curve, Export, Origin, CAUTION,
 };
-use crate::analysis::faults::{FaultVerdict, Threshold};
+use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
 
 #[derive(Serialize)]
 struct Document<'a> {
@@ -33,7 +33,7 @@ struct ChainJson<'a> {
     range: [f64; 2],
     converter: Converter<'a>,
     average: u32,
-    window: Window,
+    window: Window<'a>,
     faults: Vec<FaultJson<'a>>,
     conversion: ConversionJson<'a>,
     alarms: Vec<AlarmJson<'a>>,
@@ -155,13 +155,24 @@ struct Converter<'a> {
 }
 
 #[derive(Serialize)]
-struct Window {
+struct Window<'a> {
     low: i64,
     high: i64,
     reach: [f64; 2],
     sigma_codes: f64,
     k: f64,
     rails: [i64; 2],
+    /// Each summed channel's own window, checked before the sum.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    channels: Vec<ChannelWindowJson<'a>>,
+}
+
+#[derive(Serialize)]
+struct ChannelWindowJson<'a> {
+    channel: &'a str,
+    low: i64,
+    high: i64,
+    sigma_codes: f64,
 }
 
 #[derive(Serialize)]
@@ -197,7 +208,10 @@ struct FaultJson<'a> {
     fault: &'static str,
     condition: &'static str,
     verdict: &'static str,
-    codes: Option<[i64; 2]>,
+    codes: Option<FaultCodes>,
+    /// The summed channel whose own code `codes` and the threshold are.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    channel: Option<&'a str>,
     below: Option<i64>,
     above: Option<i64>,
     constant: Option<String>,
@@ -216,7 +230,8 @@ fn fault_json(f: &FaultVerdict) -> FaultJson<'_> {
         fault: f.fault.kind.name(),
         condition: f.fault.kind.describe(),
         verdict: f.verdict.name(),
-        codes: f.codes.map(|(lo, hi)| [lo, hi]),
+        codes: f.codes,
+        channel: f.channel.as_deref(),
         below,
         above,
         constant: fault_name(f),
@@ -249,7 +264,7 @@ struct CalibrationJson<'a> {
 
 pub fn render(export: &Export) -> String {
     let doc = Document {
-        schema_version: 1,
+        schema_version: 2,
         source: Source {
             path: &export.source.path,
             revision: export.source.revision.as_deref(),
@@ -289,6 +304,16 @@ fn chain(c: &ChainExport) -> ChainJson<'_> {
             sigma_codes: w.sigma_codes,
             k: w.k,
             rails: [w.rails.0, w.rails.1],
+            channels: w
+                .channels
+                .iter()
+                .map(|ch| ChannelWindowJson {
+                    channel: &ch.name,
+                    low: ch.window.low,
+                    high: ch.window.high,
+                    sigma_codes: ch.window.sigma_codes,
+                })
+                .collect(),
         },
         faults: c.faults.iter().map(fault_json).collect(),
         conversion: conversion(c),

@@ -274,6 +274,7 @@ fn cold_junction_conversion(
         low: codes.0 as i64,
         high: codes.1 as i64,
         rails: (codes.0 as i64, codes.1 as i64),
+        channels: Vec::new(),
     };
     let exact = Exact::new(plan, conversion)?;
     let samples: Vec<f64> = (window.low..=window.high).map(|c| c as f64).collect();

@@ -20,7 +20,7 @@ pub use model::{
 };
 pub use rust::render as render_rust;
 
-use crate::analysis::faults::{FaultVerdict, Threshold, Verdict};
+use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold, Verdict};
 use crate::units::format::trimmed;
 
 /// Everything one run exports: the chains of one spec.
@@ -191,6 +191,7 @@ pub fn constants(chain: &ChainExport) -> Vec<Constant> {
         constant("AVERAGE", "conversion results the firmware averages per reading (pass their mean as the code)".to_string(), "samples", Value::Count(i64::from(chain.average))),
         constant("CONVERSION_MAX_ERROR", "largest difference between this conversion (with the nominal calibration) and the exact inverse of the nominal chain, over the valid code window".to_string(), diff, Value::Real(chain.max_error)),
     ];
+    out.extend(channel_window_constants(chain));
     out.extend(fault_constants(chain));
     out.extend(curve_constants(chain));
     out.extend(alarm_constants(chain));
@@ -371,18 +372,42 @@ pub fn fault_name(f: &FaultVerdict) -> Option<String> {
     (!names.is_empty()).then(|| names.join(", "))
 }
 
+/// Each summed channel's own window, `CODE_MIN_<CHANNEL>` and
+/// `CODE_MAX_<CHANNEL>`: firmware checks each channel's code against its
+/// own before adding them.
+fn channel_window_constants(chain: &ChainExport) -> Vec<Constant> {
+    let mut out = Vec::new();
+    for ch in &chain.window.channels {
+        let w = &ch.window;
+        let name = ch.name.to_uppercase();
+        out.push(constant(&format!("CODE_MIN_{name}"), format!("lowest code channel `{}` gives on its own, before the channels are added: over the measurand range, the ambient range and every tolerance at its limits, less {} sigma of its noise (sigma = {} codes); below it, that channel is faulty", ch.name, trimmed(w.k, 3), significant(w.sigma_codes)), "code", Value::Code(w.low)));
+        out.push(constant(&format!("CODE_MAX_{name}"), format!("highest code channel `{}` gives on its own, as CODE_MIN_{name} with {} sigma added; above it, that channel is faulty", ch.name, trimmed(w.k, 3)), "code", Value::Code(w.high)));
+    }
+    out
+}
+
 fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
     let mut out = Vec::new();
     for f in &chain.faults {
-        let Some((lo, hi)) = f.codes else {
+        let Some(codes) = f.codes.map(FaultCodes::words) else {
             continue;
+        };
+        let (gives, whose) = match &f.channel {
+            Some(ch) => (
+                format!("channel `{ch}` gives codes"),
+                format!("its own window, checked before the channels are added; a code of `{ch}`"),
+            ),
+            None => (
+                "the converter gives codes".to_string(),
+                "the valid window; a code".to_string(),
+            ),
         };
         for (name, code, side) in fault_constants_of(f) {
             let side = if side == "BELOW" { "below" } else { "above" };
             out.push(constant(
             &name,
             format!(
-                "fault threshold for `{}` {} (fault `{}`): with it the converter gives codes {lo} .. {hi}, outside the valid window; a code {side} this means the fault (placed halfway between the window and the fault's codes)",
+                "fault threshold for `{}` {} (fault `{}`): with it {gives} {codes}, outside {whose} {side} this means the fault (placed halfway between the window and the fault's codes)",
                 f.stage,
                 f.fault.kind.describe(),
                 f.fault.kind.name()
@@ -405,7 +430,7 @@ pub fn undetected_words(chain: &ChainExport) -> Option<String> {
         .map(|f| {
             let codes = f
                 .codes
-                .map(|(lo, hi)| format!(", codes {lo} .. {hi} inside the window"))
+                .map(|c| format!(", codes {} inside the window", c.words()))
                 .unwrap_or_default();
             format!(
                 "`{}` {} ({}{codes})",

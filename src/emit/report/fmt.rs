@@ -59,6 +59,18 @@ pub fn method(m: &str) -> &str {
     }
 }
 
+/// The signal path's heading, in every renderer: its errors are the
+/// stages' own, before a calibration the firmware applies after the
+/// converter.
+pub fn path_title(c: &super::model::ChainReport) -> String {
+    let when = if c.calibration.is_some() {
+        ", before the firmware's calibration"
+    } else {
+        ""
+    };
+    format!("Error along the signal path (1σ, referred to the measurand{when})")
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -7,6 +7,7 @@ use std::fmt::Write;
 use super::fmt::{method, plain, position, share, si, value};
 use super::model::{ChainReport, Checklist, Report};
 use crate::analysis::checklist::{LimitStatus, ReviewKind};
+use crate::units::format::attenuation_db;
 
 /// A plot file beside the Markdown: its id (`error`, `contributors`,
 /// `headroom`, `path`, `step`, `frequency`, `diagram`, `codes`), title and
@@ -287,7 +288,7 @@ fn budget(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
             x.monte_carlo_share.map_or(String::new(), share)
         );
     }
-    out.push_str("\nError along the signal path (1σ, referred to the measurand):\n\n");
+    let _ = writeln!(out, "\n{}:\n", super::fmt::path_title(c));
     plot_links(out, links, "path");
     out.push_str("| stage | value | gain | error |\n| --- | --- | --- | --- |\n");
     for p in &b.path {
@@ -338,7 +339,17 @@ fn points(out: &mut String, c: &ChainReport) {
 fn noise(out: &mut String, c: &ChainReport) {
     let n = &c.noise;
     let u = &c.unit;
-    out.push_str("### Noise and resolution\n\n| | |\n| --- | --- |\n");
+    out.push_str("### Noise and resolution\n\n");
+    if n.terms.is_empty() {
+        // Zeros would read as a noiseless chain; the spec said nothing.
+        let _ = writeln!(
+            out,
+            "No stage states its noise, so none is counted; one code is {}.\n",
+            value(n.lsb, u)
+        );
+        return;
+    }
+    out.push_str("| | |\n| --- | --- |\n");
     let _ = writeln!(
         out,
         "| noise bandwidth | {} |",
@@ -421,16 +432,16 @@ fn dynamics(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
     for [hz, db] in &d.mains {
         let _ = writeln!(
             out,
-            "| attenuation at {} Hz | {} dB |",
+            "| attenuation at {} Hz | {} |",
             plain(*hz),
-            plain(*db)
+            attenuation_db(*db)
         );
     }
     if let Some(db) = d.at_rate_db {
         let _ = writeln!(
             out,
-            "| analog filter at the conversion rate | {} dB |",
-            plain(db)
+            "| analog filter at the conversion rate | {} |",
+            attenuation_db(db)
         );
     }
     out.push('\n');
@@ -502,6 +513,9 @@ fn faults(out: &mut String, list: &Checklist, links: &[PlotLink]) {
         plain(w.k),
         plain(w.k * w.noise_sigma_codes)
     );
+    if let Some(each) = w.channel_windows() {
+        let _ = writeln!(out, "{each}\n");
+    }
     plot_links(out, links, "codes");
     if list.faults.is_empty() {
         out.push_str("No stage of this chain declares a fault.\n\n");
@@ -510,8 +524,7 @@ fn faults(out: &mut String, list: &Checklist, links: &[PlotLink]) {
     out.push_str("| stage | fault | codes | firmware sees it | threshold | action |\n| --- | --- | --- | --- | --- | --- |\n");
     for f in &list.faults {
         let codes = match (f.codes, &f.reason) {
-            (Some((a, b)), _) if a == b => a.to_string(),
-            (Some((a, b)), _) => format!("{a} .. {b}"),
+            (Some(codes), _) => codes.words(),
             (None, Some(why)) => format!("none ({why})"),
             (None, None) => "none".to_string(),
         };

@@ -2,6 +2,7 @@
 //! analyses, rendered as JSON, Markdown or self-contained HTML.
 
 pub mod build;
+pub mod diagram;
 pub mod fmt;
 pub mod html;
 pub mod index;

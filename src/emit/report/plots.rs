@@ -1,10 +1,10 @@
 //! The report's plots, drawn from the report model alone.
 
-use std::fmt::Write;
+use crate::analysis::faults::FaultCodes;
 
 use super::fmt::{share, value};
 use super::model::ChainReport;
-use super::svg::{bars, escape, open, strips, Axis, Chart, Item, Strip, Style, PALETTE};
+use super::svg::{bars, strips, Axis, Chart, Item, Strip, Style};
 
 /// One plot of a chain: an id (`error`, `contributors`, `headroom`,
 /// `path`, `step`, `frequency`, `diagram`), its title and its SVG.
@@ -122,7 +122,7 @@ fn error_plots(c: &ChainReport, key: &str) -> Vec<Plot> {
                 id: format!("{key}-error-{k}"),
                 title: title.clone(),
                 x: Axis::linear(&c.summary.quantity, &c.measurand_unit, lo, hi),
-                y: Axis::nice("error", &c.unit, -top * 1.05, top * 1.05),
+                y: Axis::linear("error", &c.unit, -top * 1.05, top * 1.05),
                 items,
             };
             plot("error", k, title, chart.render())
@@ -178,7 +178,7 @@ fn path(c: &ChainReport, key: &str) -> Option<Plot> {
     if rows.iter().all(|r| r.1 <= 0.0) {
         return None;
     }
-    let title = "Error along the signal path (1σ, referred to the measurand)".to_string();
+    let title = super::fmt::path_title(c);
     let svg = bars(
         &format!("{key}-path"),
         &title,
@@ -224,7 +224,7 @@ fn step(c: &ChainReport, key: &str) -> Option<Plot> {
         id: format!("{key}-step"),
         title: title.clone(),
         x: Axis::linear("time", "s", 0.0, last[0]),
-        y: Axis::nice("reading", "%", 0.0, 110.0),
+        y: Axis::linear("reading", "%", 0.0, 110.0),
         items,
     };
     Some(plot("step", 0, title, chart.render()))
@@ -260,7 +260,7 @@ fn frequency(c: &ChainReport, key: &str) -> Option<Plot> {
         id: format!("{key}-frequency"),
         title: title.clone(),
         x: Axis::logarithmic("frequency", "Hz", first[0], last[0]),
-        y: Axis::nice("gain", "dB", floor, 0.0),
+        y: Axis::linear("gain", "dB", floor, 0.0),
         items,
     };
     Some(plot("frequency", 0, title, chart.render()))
@@ -281,16 +281,16 @@ fn codes(c: &ChainReport, key: &str) -> Option<Plot> {
         .iter()
         .map(|f| Strip {
             label: format!("{} {}", f.stage, f.fault.replace('_', " ")),
-            span: f.codes.map(|(a, b)| (pct(a), pct(b))),
+            spans: match f.codes {
+                None => Vec::new(),
+                Some(FaultCodes::Span(a, b)) => vec![(pct(a), pct(b))],
+                Some(FaultCodes::EitherEnd(a, b)) => vec![(pct(a), pct(a)), (pct(b), pct(b))],
+            },
             hidden: f.hidden(),
             note: match (f.codes, f.hidden()) {
                 (None, _) => f.verdict.to_string(),
-                (Some((a, b)), hidden) => {
-                    let codes = if a == b {
-                        a.to_string()
-                    } else {
-                        format!("{a} .. {b}")
-                    };
+                (Some(codes), hidden) => {
+                    let codes = codes.words();
                     if hidden {
                         format!("{codes}, {}", f.verdict)
                     } else {
@@ -301,7 +301,7 @@ fn codes(c: &ChainReport, key: &str) -> Option<Plot> {
         })
         .collect();
     let title = "Each fault's codes against the valid code window".to_string();
-    let axis = Axis::nice(
+    let axis = Axis::linear(
         "converter code",
         "% of full scale",
         pct(w.rails.0).min(0.0),
@@ -381,7 +381,7 @@ fn headroom(c: &ChainReport, margin: f64, key: &str) -> Option<Plot> {
             c.summary.range[0],
             c.summary.range[1],
         ),
-        y: Axis::nice(
+        y: Axis::linear(
             "position in the allowed range",
             "%",
             lo.max(-100.0),
@@ -392,216 +392,9 @@ fn headroom(c: &ChainReport, margin: f64, key: &str) -> Option<Plot> {
     Some(plot("headroom", 0, title, chart.render()))
 }
 
-const BOX_W: f64 = 128.0;
-const BOX_H: f64 = 46.0;
-const COL_GAP: f64 = 64.0;
-const ROW_GAP: f64 = 52.0;
-
-/// The chain as boxes in columns by their depth in the graph, edges
-/// with their signal type.
+/// The chain as a block diagram.
 fn diagram(c: &ChainReport, key: &str) -> Plot {
-    let d = &c.diagram;
-    let longest = d
-        .nodes
-        .iter()
-        .map(|n| n.name.chars().count().max(kind_label(n).chars().count()))
-        .max()
-        .unwrap_or(8);
-    let box_w = BOX_W.max(longest as f64 * 7.4 + 18.0);
-    let columns = d.nodes.iter().map(|n| n.layer + 1).max().unwrap_or(1);
-    let rows_of = rows(d, columns);
-    let place: Vec<(f64, f64)> = d
-        .nodes
-        .iter()
-        .zip(&rows_of)
-        .map(|(node, &row)| {
-            (
-                20.0 + node.layer as f64 * (box_w + COL_GAP),
-                40.0 + row as f64 * (BOX_H + ROW_GAP),
-            )
-        })
-        .collect();
-    let rows = rows_of.iter().map(|r| r + 1).max().unwrap_or(1);
-    let w = 40.0 + columns as f64 * (box_w + COL_GAP) - COL_GAP;
-    let h = 50.0 + rows as f64 * (BOX_H + ROW_GAP);
     let title = format!("Block diagram of {}", c.name);
-    let id = format!("{key}-diagram");
-    let mut s = open(&id, &title, w, h);
-    let _ = write!(
-        s,
-        r##"<defs><marker id="{id}-arrow" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse"><path d="M0 0 L10 5 L0 10 Z" fill="#333333"/></marker></defs><text x="20" y="20" class="title">{}</text><g class="plot-area" data-x="0" data-y="0" data-width="{}" data-height="{}">"##,
-        escape(&title),
-        w,
-        h
-    );
-    let at = |name: &str| {
-        d.nodes
-            .iter()
-            .position(|n| n.name == name)
-            .map(|i| place[i])
-    };
-    // Labels under a box, one line each, so two never overlap.
-    let mut below: Vec<usize> = vec![0; d.nodes.len()];
-    for e in &d.edges {
-        let (Some(a), Some(b)) = (at(&e.from), at(&e.to)) else {
-            continue;
-        };
-        let target = d.nodes.iter().position(|n| n.name == e.to).unwrap_or(0);
-        let k = below[target];
-        if edge(&mut s, e, (a, b), box_w, &id, k) {
-            below[target] += 1;
-        }
-    }
-    for (node, &(x, y)) in d.nodes.iter().zip(&place) {
-        let colour = PALETTE[kind_index(&node.kind)];
-        let _ = write!(
-            s,
-            r##"<rect class="data" x="{}" y="{}" width="{}" height="{BOX_H}" rx="5" fill="#ffffff" stroke="{colour}" stroke-width="2"/><text x="{}" y="{}" text-anchor="middle" class="box">{}</text><text x="{}" y="{}" text-anchor="middle" class="kind">{}</text>"##,
-            r(x),
-            r(y),
-            r(box_w),
-            r(x + box_w / 2.0),
-            r(y + 19.0),
-            escape(&node.name),
-            r(x + box_w / 2.0),
-            r(y + 36.0),
-            escape(&kind_label(node))
-        );
-    }
-    s.push_str("</g></svg>");
-    plot("diagram", 0, title, s)
-}
-
-/// Each node's row in its column: columns left to right, each node
-/// placed by the mean row of the stages feeding it (fewer crossings),
-/// ties in the spec's order.
-fn rows(d: &super::model::Diagram, columns: usize) -> Vec<usize> {
-    let mut row = vec![0usize; d.nodes.len()];
-    let index = |name: &str| d.nodes.iter().position(|n| n.name == name);
-    for layer in 0..columns {
-        let mut members: Vec<(f64, usize)> = d
-            .nodes
-            .iter()
-            .enumerate()
-            .filter(|(_, n)| n.layer == layer)
-            .map(|(i, n)| {
-                let feeders: Vec<f64> = d
-                    .edges
-                    .iter()
-                    .filter(|e| e.to == n.name)
-                    .filter_map(|e| index(&e.from))
-                    .filter(|&f| d.nodes[f].layer < layer)
-                    .map(|f| row[f] as f64)
-                    .collect();
-                let mean = if feeders.is_empty() {
-                    i as f64
-                } else {
-                    feeders.iter().sum::<f64>() / feeders.len() as f64
-                };
-                (mean, i)
-            })
-            .collect();
-        members.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-        for (k, (_, i)) in members.into_iter().enumerate() {
-            row[i] = k;
-        }
-    }
-    row
-}
-
-/// Where an edge lands on the bottom of a box, by the input it feeds.
-fn port_share(port: &str) -> f64 {
-    match port {
-        "exc" => 0.2,
-        "arm" => 0.45,
-        "cj" => 0.6,
-        "ref" => 0.75,
-        _ => 0.5,
-    }
-}
-
-/// An edge's signal in a word.
-fn short(signal: &str) -> &str {
-    match signal {
-        "excitation voltage" => "excitation",
-        other => other,
-    }
-}
-
-/// Draws one edge from box `a` to box `b` with its label: beside the
-/// arrow on a box's left side, or under the box (line `k` there) for
-/// any other input. Returns whether it used a line under the box.
-fn edge(
-    s: &mut String,
-    e: &super::model::DiagramEdge,
-    (a, b): ((f64, f64), (f64, f64)),
-    box_w: f64,
-    id: &str,
-    k: usize,
-) -> bool {
-    let (x1, y1) = (a.0 + box_w, a.1 + BOX_H / 2.0);
-    let side = e.port == "in" && b.0 > a.0;
-    let (x2, y2) = if side {
-        (b.0, b.1 + BOX_H / 2.0)
-    } else {
-        (b.0 + box_w * port_share(&e.port), b.1 + BOX_H)
-    };
-    let (c1, c2) = if side {
-        let mx = r((x1 + x2) / 2.0);
-        (format!("{mx} {}", r(y1)), format!("{mx} {}", r(y2)))
-    } else {
-        (
-            format!("{} {}", r(x2), r(y1)),
-            format!("{} {}", r(x2), r(y2 + 30.0)),
-        )
-    };
-    let (tx, ty, anchor, text) = if side {
-        (x2 - 8.0, y2 - 6.0, "end", short(&e.signal).to_string())
-    } else {
-        (
-            x2 + 6.0,
-            y2 + 14.0 + 13.0 * k as f64,
-            "start",
-            format!("{}: {}", e.port, short(&e.signal)),
-        )
-    };
-    let _ = write!(
-        s,
-        r##"<path class="data" d="M{x1} {y1} C{c1} {c2} {x2} {y2}" fill="none" stroke="#333333" stroke-width="1.4" marker-end="url(#{id}-arrow)"><title>{} → {}.{}: {}</title></path><text x="{tx}" y="{ty}" text-anchor="{anchor}" class="edge">{}</text>"##,
-        escape(&e.from),
-        escape(&e.to),
-        escape(&e.port),
-        escape(&e.signal),
-        escape(&text),
-        x1 = r(x1),
-        y1 = r(y1),
-        x2 = r(x2),
-        y2 = r(y2),
-        tx = r(tx),
-        ty = r(ty),
-    );
-    !side
-}
-
-fn r(x: f64) -> String {
-    crate::units::format::trimmed((x * 100.0).round() / 100.0, 12)
-}
-
-fn kind_index(kind: &str) -> usize {
-    match kind {
-        "excitation" => 4,
-        "sensor" => 1,
-        "bridge" => 3,
-        "amplifier" => 0,
-        "filter" => 2,
-        "adc" => 5,
-        _ => 0,
-    }
-}
-
-fn kind_label(node: &super::model::DiagramNode) -> String {
-    match &node.model {
-        Some(m) => format!("{} · {m}", node.kind),
-        None => node.kind.clone(),
-    }
+    let svg = super::diagram::render(&c.diagram, &format!("{key}-diagram"), &title);
+    plot("diagram", 0, title, svg)
 }

@@ -48,44 +48,46 @@ fn n(x: f64) -> String {
 /// An axis: the quantity, its unit, its range, and whether it is
 /// logarithmic. `prefixable` units (V, s, Hz) get an SI prefix chosen
 /// for the whole axis; others (K, degC, %) are written as they are.
+/// Its ends always fall on ticks: the constructors widen the range to
+/// whole ticks, and the range cannot be set otherwise.
 #[derive(Clone, Debug)]
 pub struct Axis {
-    pub quantity: String,
-    pub unit: String,
-    pub lo: f64,
-    pub hi: f64,
-    pub log: bool,
-    pub prefixable: bool,
+    quantity: String,
+    unit: String,
+    lo: f64,
+    hi: f64,
+    /// The tick spacing of a linear axis (0 on a logarithmic one).
+    step: f64,
+    log: bool,
+    prefixable: bool,
 }
 
 impl Axis {
+    /// A linear axis over `lo..hi`, widened to whole 1-2-5 ticks.
     pub fn linear(quantity: &str, unit: &str, lo: f64, hi: f64) -> Axis {
         let (lo, hi) = padded(lo, hi);
+        let (lo, hi, step) = whole_ticks(lo, hi);
         Axis {
             quantity: quantity.to_string(),
             unit: unit.to_string(),
             lo,
             hi,
+            step,
             log: false,
             prefixable: matches!(unit, "V" | "A" | "s" | "Hz" | "Ω"),
         }
     }
 
-    /// A linear axis whose range is widened to whole ticks.
-    pub fn nice(quantity: &str, unit: &str, lo: f64, hi: f64) -> Axis {
-        let mut a = Axis::linear(quantity, unit, lo, hi);
-        let step = tick_step(a.hi - a.lo);
-        a.lo = (a.lo / step + 1e-9).floor() * step;
-        a.hi = (a.hi / step - 1e-9).ceil() * step;
-        a
-    }
-
+    /// A logarithmic axis over `lo..hi`, widened to 1-2-5 values.
     pub fn logarithmic(quantity: &str, unit: &str, lo: f64, hi: f64) -> Axis {
+        let lo = lo.max(1e-30);
+        let hi = hi.max(lo * 10.0);
         Axis {
             quantity: quantity.to_string(),
             unit: unit.to_string(),
-            lo: lo.max(1e-30),
-            hi: hi.max(lo * 10.0),
+            lo: one_two_five(lo, true),
+            hi: one_two_five(hi, false),
+            step: 0.0,
             log: true,
             prefixable: true,
         }
@@ -117,18 +119,17 @@ impl Axis {
         }
     }
 
-    /// Tick values and their labels.
+    /// Tick values and their labels, from one end to the other.
     fn ticks(&self) -> Vec<(f64, String)> {
         if self.log {
             return log_ticks(self.lo, self.hi);
         }
         let (scale, _) = self.prefix();
-        let step = tick_step(self.hi - self.lo);
-        let first = (self.lo / step - 1e-9).ceil() as i64;
-        let last = (self.hi / step + 1e-9).floor() as i64;
+        let first = (self.lo / self.step).round() as i64;
+        let last = (self.hi / self.step).round() as i64;
         (first..=last)
             .map(|i| {
-                let v = i as f64 * step;
+                let v = i as f64 * self.step;
                 (v, crate::units::format::trimmed(v / scale + 0.0, 6))
             })
             .collect()
@@ -168,8 +169,39 @@ fn padded(lo: f64, hi: f64) -> (f64, f64) {
     (lo, hi)
 }
 
+/// Fewest and most tick intervals an axis may have.
+const INTERVALS: (i64, i64) = (4, 10);
+
+/// `lo..hi` widened to whole multiples of a 1-2-5 step, with the step:
+/// of the steps giving four to ten intervals, the one that widens the
+/// range least (the larger step on a tie).
+fn whole_ticks(lo: f64, hi: f64) -> (f64, f64, f64) {
+    let top = (hi - lo).log10().floor() as i32;
+    let widened = |step: f64| {
+        let a = (lo / step + 1e-9).floor() * step;
+        let b = (hi / step - 1e-9).ceil() * step;
+        (a + 0.0, b + 0.0, step)
+    };
+    let candidates = (top - 2..=top + 1)
+        .rev()
+        .flat_map(|e| [5.0, 2.0, 1.0].map(|m| m * 10f64.powi(e)))
+        .map(widened)
+        .filter(|(a, b, step)| {
+            let n = ((b - a) / step).round() as i64;
+            (INTERVALS.0..=INTERVALS.1).contains(&n)
+        });
+    let mut best: Option<(f64, f64, f64)> = None;
+    for c in candidates {
+        // Ties keep the first candidate: the larger step.
+        if best.is_none_or(|b| c.1 - c.0 < (b.1 - b.0) * (1.0 - 1e-9)) {
+            best = Some(c);
+        }
+    }
+    best.unwrap_or_else(|| widened(tick_step(hi - lo)))
+}
+
 /// A 1-2-5 step giving four to ten ticks over `span`.
-pub fn tick_step(span: f64) -> f64 {
+fn tick_step(span: f64) -> f64 {
     let raw = span / 6.0;
     let decade = 10f64.powf(raw.log10().floor());
     [1.0, 2.0, 5.0, 10.0]
@@ -177,6 +209,19 @@ pub fn tick_step(span: f64) -> f64 {
         .map(|m| m * decade)
         .find(|s| span / s <= 8.0)
         .unwrap_or(10.0 * decade)
+}
+
+/// The 1-2-5 value nearest `x` at or below it (`down`) or at or above it.
+fn one_two_five(x: f64, down: bool) -> f64 {
+    let decade = 10f64.powf(x.log10().floor());
+    let m = x / decade;
+    let ladder = [1.0, 2.0, 5.0, 10.0];
+    let picked = if down {
+        ladder.into_iter().rev().find(|l| *l <= m * (1.0 + 1e-9))
+    } else {
+        ladder.into_iter().find(|l| *l >= m * (1.0 - 1e-9))
+    };
+    picked.unwrap_or(1.0) * decade
 }
 
 fn log_ticks(lo: f64, hi: f64) -> Vec<(f64, String)> {
@@ -629,7 +674,7 @@ pub fn bars(
     let top = 40.0;
     let h = top + rows.len().max(1) as f64 * row_h + 50.0;
     let max = rows.iter().map(|r| r.1).fold(0.0, f64::max);
-    let axis = Axis::nice(quantity, unit, 0.0, if max > 0.0 { max } else { 1.0 });
+    let axis = Axis::linear(quantity, unit, 0.0, if max > 0.0 { max } else { 1.0 });
     let note_w = rows.iter().map(|r| r.2.chars().count()).max().unwrap_or(0) as f64 * CHAR_W + 14.0;
     let plot_w = WIDTH - left - note_w.max(40.0);
     let px = |v: f64| left + axis.t(v) * plot_w;
@@ -701,7 +746,9 @@ pub fn bars(
 /// reads without colour), with a note beside the plot.
 pub struct Strip {
     pub label: String,
-    pub span: Option<(f64, f64)>,
+    /// The spans drawn on the row: none, one, or a mark at each end code
+    /// for a fault that gives one end or the other.
+    pub spans: Vec<(f64, f64)>,
     pub hidden: bool,
     pub note: String,
 }
@@ -797,7 +844,7 @@ impl StripFrame<'_> {
     fn row(&self, s: &mut String, i: usize, row: &Strip, px: &dyn Fn(f64) -> f64) {
         let (left, row_h) = (self.left, self.row_h);
         let y = self.top + i as f64 * row_h;
-        if let Some((a, b)) = row.span {
+        for &(a, b) in &row.spans {
             // A single code still shows: at least 3 px, kept inside.
             let w = (px(b) - px(a)).max(3.0);
             let x = px(a).min(left + self.plot_w - w);
@@ -875,7 +922,7 @@ mod tests {
 
     #[test]
     fn an_axis_in_volts_takes_a_prefix() {
-        let a = Axis::nice("signal", "V", 0.0, 0.0042);
+        let a = Axis::linear("signal", "V", 0.0, 0.0042);
         assert_eq!(a.title(), "signal (mV)");
         let labels: Vec<String> = a.ticks().into_iter().map(|t| t.1).collect();
         assert!(labels.contains(&"1".to_string()), "{labels:?}");
@@ -883,17 +930,17 @@ mod tests {
 
     #[test]
     fn a_strip_chart_draws_each_span_and_the_window() {
-        let axis = Axis::nice("code", "%", 0.0, 100.0);
+        let axis = Axis::linear("code", "%", 0.0, 100.0);
         let rows = [
             Strip {
                 label: "rtd open".to_string(),
-                span: Some((100.0, 100.0)),
+                spans: vec![(100.0, 100.0)],
                 hidden: false,
                 note: "65535".to_string(),
             },
             Strip {
                 label: "amp input open".to_string(),
-                span: None,
+                spans: Vec::new(),
                 hidden: true,
                 note: "undetermined".to_string(),
             },
@@ -904,6 +951,50 @@ mod tests {
         assert!(svg.contains(">undetermined</text>"), "{svg}");
         // A single code at full scale stays inside the plotting area.
         assert!(svg.contains("65535</title>"), "{svg}");
+    }
+
+    /// Every axis a plot can ask for begins and ends on a labelled tick,
+    /// with four to ten intervals on a linear one.
+    #[test]
+    fn every_axis_ends_on_a_tick() {
+        let ends = [
+            (0.0, 0.0042),
+            (0.0, 110.0),
+            (-30.0, 10.0),
+            (0.0, 850.0),
+            (-0.0809, 0.0809),
+            (-160.0, 0.0),
+            (0.0, 7.9),
+            (0.13, 9.1),
+            (0.0, 2.37e-3),
+            (-200.0, 850.0),
+            (1.5, 1.5),
+            (0.0, 1.0e7),
+        ];
+        let mut spans = ends.to_vec();
+        // A sweep of awkward spans: 1.00 .. 99.9 in steps of 0.37.
+        spans.extend((0..270).map(|i| (0.0, 1.0 + 0.37 * f64::from(i))));
+        spans.extend((0..270).map(|i| (-3.3 - 0.11 * f64::from(i), 0.7 * f64::from(i))));
+        for (lo, hi) in spans {
+            let a = Axis::linear("q", "V", lo, hi);
+            let ticks = a.ticks();
+            let (first, last) = (ticks[0].0, ticks[ticks.len() - 1].0);
+            let tol = 1e-9 * (a.hi - a.lo);
+            assert!((first - a.lo).abs() <= tol, "{lo}..{hi}: {a:?} {ticks:?}");
+            assert!((last - a.hi).abs() <= tol, "{lo}..{hi}: {a:?} {ticks:?}");
+            assert!(
+                a.lo <= lo.min(hi) && a.hi >= lo.max(hi),
+                "{lo}..{hi}: {a:?}"
+            );
+            assert!((5..=11).contains(&ticks.len()), "{lo}..{hi}: {ticks:?}");
+        }
+        for (lo, hi) in [(0.01, 1000.0), (0.3, 4.7e4), (1.0, 50.0), (7.0, 7.0)] {
+            let a = Axis::logarithmic("f", "Hz", lo, hi);
+            let ticks = a.ticks();
+            assert_eq!(ticks[0].0, a.lo, "{lo}..{hi}: {ticks:?}");
+            assert_eq!(ticks[ticks.len() - 1].0, a.hi, "{lo}..{hi}: {ticks:?}");
+            assert!(a.lo <= lo && a.hi >= hi, "{lo}..{hi}: {a:?}");
+        }
     }
 
     #[test]

@@ -3,6 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, AdcInput, CombineOp};
 use crate::model::value::Tolerance;
@@ -30,6 +31,8 @@ pub struct Adc {
     pub input: NodeId,
     /// The current its input sources into an open sensor, A.
     pub burnout: Option<f64>,
+    /// Its largest input bias current, A, where stated.
+    pub bias: Option<f64>,
     /// The other channels' codes a conversion combines with this one's.
     pub combine: Option<(CombineOp, Vec<NodeId>)>,
 }
@@ -97,6 +100,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             .input
             .ok_or_else(|| cx.not_invertible("no input"))?,
         burnout: m.burnout,
+        bias: m.bias,
         combine: cx.combine.take(),
     })
 }
@@ -143,25 +147,64 @@ impl Adc {
         Ok(self.combined(run, self.code(run, v, vr)))
     }
 
+    /// [`Adc::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let input = &run.s[self.input.index()];
+        if input.tag != Tag::Voltage {
+            return Err(Lost);
+        }
+        let vr = match self.reference.map(|n| &run.s[n.index()]) {
+            Some(r) if matches!(r.tag, Tag::Voltage | Tag::Source) => r.x,
+            _ => run.drifted(run.or_zero(self.vref), self.vref_drift),
+        };
+        if vr.iter().any(|&vr| vr <= 0.0 || !vr.is_finite()) {
+            return Err(Lost);
+        }
+        let mut out = Column::default();
+        for (k, &vr) in vr.iter().enumerate() {
+            let own = self.code_of(run.row(k), input.x[k], vr);
+            let code = self.combine_with(own, |n| run.s[n.index()].signal(k));
+            out.set(k, code)?;
+        }
+        match out.tag {
+            Tag::Code => Ok(out),
+            _ => Err(Lost),
+        }
+    }
+
     /// Its code combined with the other channels' a conversion reads
     /// with it: added (`sum`), or as a ratio scaled to its own codes of
     /// full scale (`ratio`), rounded as a code.
     #[inline(always)]
     fn combined(&self, run: &Run<'_>, own: Signal) -> Signal {
+        self.combine_with(own, |n| run.s[n.index()])
+    }
+
+    /// [`Adc::combined`] with the other channels' codes from `code_of`.
+    #[inline(always)]
+    fn combine_with(&self, own: Signal, code_of: impl Fn(NodeId) -> Signal) -> Signal {
         let Some((op, others)) = &self.combine else {
             return own;
         };
         let Signal::Code { exact, code } = own else {
             return own;
         };
-        let (mut exact, mut code_f) = (exact, code as f64);
+        // A channel driven past its range gives its end code, which is
+        // what the firmware adds (the channels share one part).
+        let (lo, hi) = self.codes;
+        let ended = |e: f64| match op {
+            CombineOp::Sum => e.clamp(lo, hi),
+            CombineOp::Ratio => e,
+        };
+        let (mut exact, mut code_f) = (ended(exact), code as f64);
         for &n in others {
-            let Signal::Code { exact: e, code: c } = run.s[n.index()] else {
+            let Signal::Code { exact: e, code: c } = code_of(n) else {
                 return Signal::None;
             };
             match op {
                 CombineOp::Sum => {
-                    exact += e;
+                    exact += ended(e);
                     code_f += c as f64;
                 }
                 CombineOp::Ratio => {
@@ -183,26 +226,37 @@ impl Adc {
         }
     }
 
-    /// Its code behind a fault upstream, or with one of its own. Without a
-    /// reference, an input above zero is beyond full scale and one below
+    /// Its code behind a fault upstream, or with one of its own, combined
+    /// with the other channels' a conversion reads with it (a code stuck
+    /// at a rail still enters the combination).
+    pub(super) fn faulted(
+        &self,
+        run: &Run<'_>,
+        fault: Option<&Fault>,
+    ) -> Result<Faulted, EvalError> {
+        Ok(match self.faulted_own(run, fault)? {
+            Faulted::Signal(own) => Faulted::Signal(self.combined(run, own)),
+            other => other,
+        })
+    }
+
+    /// Its own code behind a fault upstream, or with one of its own,
+    /// before any combination: what firmware sees of this channel. Without
+    /// a reference, an input above zero is beyond full scale and one below
     /// beyond the bottom, as any converter clamps them; an input of zero
     /// too still leaves it at an end, which one being its offset's sign.
-    pub(super) fn faulted(
+    pub(super) fn faulted_own(
         &self,
         run: &Run<'_>,
         fault: Option<&Fault>,
     ) -> Result<Faulted, EvalError> {
         let kind = fault.map(|f| f.kind);
         let (lo, hi) = self.codes;
-        // A code stuck at a rail still enters a conversion's combination.
         let rail = |x: f64| {
-            Faulted::Signal(self.combined(
-                run,
-                Signal::Code {
-                    exact: x,
-                    code: x as i64,
-                },
-            ))
+            Faulted::Signal(Signal::Code {
+                exact: x,
+                code: x as i64,
+            })
         };
         let Signal::Voltage { v, cm, .. } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
@@ -224,7 +278,7 @@ impl Adc {
             None => self.reference_voltage(run.plan, run.values, run.env, run.s),
         };
         Ok(if vr > 0.0 && vr.is_finite() {
-            Faulted::Signal(self.combined(run, self.code(run, v, vr)))
+            Faulted::Signal(self.code(run, v, vr))
         } else if v > 0.0 {
             rail(hi)
         } else if v < 0.0 {

@@ -3,7 +3,9 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
+use crate::eval::run::LANES;
 use crate::model::typed;
 
 #[derive(Clone, Debug, PartialEq)]
@@ -180,6 +182,52 @@ impl Amplifier {
             cm: out / 2.0,
             rs: 0.0,
         })
+    }
+}
+
+impl Amplifier {
+    /// [`Amplifier::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let input = &run.s[self.input.index()];
+        if input.tag != Tag::Voltage {
+            return Err(Lost);
+        }
+        let shift = match self.reference {
+            Some(AmpReference::Stated { value, drift }) => run.drifted(run.slot(value), drift),
+            Some(AmpReference::Stage(n)) => match run.s[n.index()].tag {
+                Tag::Voltage | Tag::Source => run.s[n.index()].x,
+                _ => return Err(Lost),
+            },
+            None => [0.0; LANES],
+        };
+        let dt = run.env.ambient - run.plan.reference;
+        let (offset, offset_drift) = (run.or_zero(self.offset), run.or_zero(self.offset_drift));
+        let (bias, cmrr) = (run.or_zero(self.bias), run.or_zero(self.cmrr));
+        let (gain, gain_drift) = (run.slot(self.gain), run.or_zero(self.gain_drift));
+        let (lo, hi) = self.output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
+        let mut out = [0.0; LANES];
+        for k in 0..LANES {
+            let error =
+                offset[k] + offset_drift[k] * dt + bias[k] * input.rs[k] + cmrr[k] * input.cm[k];
+            let gain = gain[k] * (1.0 + gain_drift[k] * dt);
+            out[k] = gain * (input.x[k] + error) + shift[k];
+        }
+        if run.mode.clip {
+            if let Some((cm_lo, cm_hi)) = self.input_range {
+                for (out, &cm) in out.iter_mut().zip(&input.cm) {
+                    if cm < cm_lo {
+                        *out = if lo.is_finite() { lo } else { 0.0 };
+                    } else if cm > cm_hi {
+                        *out = if hi.is_finite() { hi } else { 0.0 };
+                    }
+                }
+            }
+            for out in &mut out {
+                *out = out.clamp(lo, hi);
+            }
+        }
+        Ok(Column::voltage(out, out.map(|v| v / 2.0), [0.0; LANES]))
     }
 }
 

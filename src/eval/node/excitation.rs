@@ -2,6 +2,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun, Tag};
 use crate::eval::plan::{DriftSlot, EvalError, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, Source};
 
@@ -42,6 +43,18 @@ impl Excitation {
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let v = run.drifted(run.values[self.value.index()], self.drift);
         Ok(self.output(v))
+    }
+
+    /// [`Excitation::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
+        let v = run.drifted(run.slot(self.value), self.drift);
+        let tag = if self.current {
+            Tag::Current
+        } else {
+            Tag::Source
+        };
+        Column::scalar(tag, v)
     }
 
     fn output(&self, v: f64) -> Signal {

@@ -3,6 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::FaultKind;
+use crate::eval::lanes::{Column, LaneRun, Tag};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed;
 use crate::physics::filter::Response;
@@ -46,5 +47,18 @@ impl Filter {
             },
             other => other,
         })
+    }
+
+    /// [`Filter::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
+        let mut out = run.s[self.input.index()];
+        if out.tag == Tag::Voltage {
+            let series = run.or_zero(self.series);
+            for (rs, series) in out.rs.iter_mut().zip(series) {
+                *rs += series;
+            }
+        }
+        out
     }
 }

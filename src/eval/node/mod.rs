@@ -35,6 +35,7 @@ pub use thermocouple::Thermocouple;
 pub use transducer::Transducer;
 
 use super::fault::{Fault, FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
+use super::lanes::{Column, LaneRun, Lost};
 use super::plan::{
     DriftSlot, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId, SourceKind,
 };
@@ -209,6 +210,33 @@ impl Plan {
         }
     }
 
+    /// Converter `i`'s own code under `here` (its fault, if it is the
+    /// faulted node), before a conversion combines it with other
+    /// channels': `s` holds the faulted run's signals up to it.
+    pub(super) fn faulted_own_code(
+        &self,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        s: &[Signal; MAX_NODES],
+        mode: Mode,
+        here: Option<&Fault>,
+    ) -> Result<Faulted, EvalError> {
+        let run = Run {
+            plan: self,
+            i,
+            values,
+            env,
+            s,
+            mode,
+            junction_mv: None,
+        };
+        match &self.nodes[i.index()] {
+            Node::Adc(n) => n.faulted_own(&run, here),
+            _ => Err(run.numeric("not a converter")),
+        }
+    }
+
     /// The resistance, Ω, of the elements current source `i` drives, as
     /// their own nodes give it at a test current small enough to heat
     /// nothing (1 nA: picowatts in any element).
@@ -289,6 +317,30 @@ impl Plan {
             Node::Filter(n) => n.eval(&run),
             Node::Adc(n) => n.eval(&run),
             Node::Convert(n) => n.eval(&run),
+        }
+    }
+}
+
+impl Plan {
+    /// Node `i`'s column in a batch: one match per batch, then the kind's
+    /// loop over the lanes (or the single-run code lane by lane, for the
+    /// kinds that seldom sit in a Monte Carlo's hot path).
+    pub(in crate::eval) fn node_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        match &self.nodes[run.i.index()] {
+            Node::Excitation(n) => Ok(n.eval_lanes(run)),
+            Node::Rtd(n) => n.eval_lanes(run),
+            Node::Thermocouple(n) => n.eval_lanes(run),
+            Node::Thermistor(n) => n.eval_lanes(run),
+            Node::Resistor(n) => Ok(n.eval_lanes(run)),
+            Node::Amplifier(n) => n.eval_lanes(run),
+            Node::Filter(n) => Ok(n.eval_lanes(run)),
+            Node::Adc(n) => n.eval_lanes(run),
+            Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Bridge(_)
+            | Node::Convert(_) => run.by_lane(),
         }
     }
 }

@@ -2,6 +2,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::typed;
 
@@ -35,5 +36,11 @@ impl Resistor {
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let r = run.drifted(run.values[self.r.index()], self.drift);
         Ok(run.element(r, self.input))
+    }
+
+    /// [`Resistor::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
+        run.element(run.drifted(run.slot(self.r), self.drift), self.input)
     }
 }

@@ -4,6 +4,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun, Lost};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, RtdCurveName};
 use crate::physics::rtd::{self, Wiring};
@@ -216,15 +217,28 @@ impl Rtd {
         Ok(run.element(r + self.lead(run), self.input))
     }
 
+    /// [`Rtd::eval`] in every lane of a batch: the element's curve and
+    /// self-heating through the single-run code, lane by lane.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let current = run.current_into(self.input);
+        let mut r = run.plan.driven_elements(run.i, run, current)?;
+        for (k, r) in r.iter_mut().enumerate() {
+            *r += self.lead_of(run.row(k));
+        }
+        Ok(run.element(r, self.input))
+    }
+
     /// The leads' resistance in the measurement, by the wiring.
     fn lead(&self, run: &Run<'_>) -> f64 {
+        self.lead_of(run.values)
+    }
+
+    #[inline(always)]
+    fn lead_of(&self, values: &[f64]) -> f64 {
         self.leads
             .map(|(a, b)| {
-                rtd::lead_series_resistance(
-                    self.wiring,
-                    run.values[a.index()],
-                    run.values[b.index()],
-                )
+                rtd::lead_series_resistance(self.wiring, values[a.index()], values[b.index()])
             })
             .unwrap_or(0.0)
     }

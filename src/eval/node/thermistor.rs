@@ -3,6 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun, Lost};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::model::typed::{self, ThermistorLaw};
 
@@ -63,6 +64,14 @@ impl Thermistor {
         let r = run
             .plan
             .driven_element(run.i, run.values, run.env, current)?;
+        Ok(run.element(r, self.input))
+    }
+
+    /// [`Thermistor::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let current = run.current_into(self.input);
+        let r = run.plan.driven_elements(run.i, run, current)?;
         Ok(run.element(r, self.input))
     }
 }

@@ -4,9 +4,13 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{Fault, FaultKind, Faulted, FLOATING, OPEN_OHMS};
+use crate::eval::lanes::{Column, LaneRun, Lost};
 use crate::eval::plan::SourceKind;
-use crate::eval::plan::{ClassTolerance, DriftSlot, Env, EvalError, Senses, Signal, SlotId};
+use crate::eval::plan::{
+    ClassTolerance, DriftSlot, Env, EvalError, NodeId, Plan, Senses, Signal, SlotId,
+};
 use crate::eval::run::within;
+use crate::eval::run::LANES;
 use crate::model::typed::{self, ColdJunction};
 use crate::physics::thermocouple::{self, ThermocoupleType};
 use crate::units::ZERO_CELSIUS_K;
@@ -94,23 +98,7 @@ impl Thermocouple {
 
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let (plan, i, ty) = (run.plan, run.i, self.ty);
-        let range = ty.range_c();
-        let t = run.sensed(self.senses) - ZERO_CELSIUS_K;
-        // Messages are built only on the way out: this runs in every
-        // Monte Carlo trial.
-        let kind = || format!("type {} thermocouple", ty.letter());
-        let t = within(t, range)
-            .ok_or_else(|| plan.out_of_range(i, &kind(), t + ZERO_CELSIUS_K, range))?;
-        let e = |t_c: f64| {
-            thermocouple::emf_mv(ty, t_c)
-                .map_err(|e| plan.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high)))
-        };
-        let at_junction = match run.junction_mv {
-            Some(e) => e,
-            None => e(junction_c(ty, run.env))?,
-        };
-        let v = (e(t)? - at_junction) * 1e-3;
+        let v = self.emf_v(run.plan, run.i, run.values, run.env, run.junction_mv)?;
         // A couple floats: its common mode is where a bias holds it, else
         // 0 V.
         let cm = self
@@ -122,6 +110,52 @@ impl Thermocouple {
             cm,
             rs: run.or_zero(self.bias_resistor),
         })
+    }
+
+    /// [`Thermocouple::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let mut v = [0.0; LANES];
+        for (k, v) in v.iter_mut().enumerate() {
+            *v = self
+                .emf_v(run.plan, run.i, run.row(k), run.env, run.junction_mv)
+                .map_err(|_| Lost)?;
+        }
+        let cm = match self.bias {
+            Some((b, drift)) => run.drifted(run.slot(b), drift),
+            None => [0.0; LANES],
+        };
+        Ok(Column::voltage(v, cm, run.or_zero(self.bias_resistor)))
+    }
+
+    /// The couple's EMF, V, against its cold junction (`junction_mv`
+    /// when the caller worked it out once for many runs).
+    #[inline(always)]
+    fn emf_v(
+        &self,
+        plan: &Plan,
+        i: NodeId,
+        values: &[f64],
+        env: &Env,
+        junction_mv: Option<f64>,
+    ) -> Result<f64, EvalError> {
+        let ty = self.ty;
+        let range = ty.range_c();
+        let t = plan.sensed(i, self.senses, env, values) - ZERO_CELSIUS_K;
+        // Messages are built only on the way out: this runs in every
+        // Monte Carlo trial.
+        let kind = || format!("type {} thermocouple", ty.letter());
+        let t = within(t, range)
+            .ok_or_else(|| plan.out_of_range(i, &kind(), t + ZERO_CELSIUS_K, range))?;
+        let e = |t_c: f64| {
+            thermocouple::emf_mv(ty, t_c)
+                .map_err(|e| plan.out_of_range(i, &kind(), t_c + ZERO_CELSIUS_K, (e.low, e.high)))
+        };
+        let at_junction = match junction_mv {
+            Some(e) => e,
+            None => e(junction_c(ty, env))?,
+        };
+        Ok((e(t)? - at_junction) * 1e-3)
     }
 }
 

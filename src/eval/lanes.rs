@@ -1,0 +1,268 @@
+//! [`LANES`] evaluations side by side as structure of arrays: each node's
+//! signal is a column of values, one per lane, so a node's kind is matched
+//! once per batch and its arithmetic is one loop over the lanes, which the
+//! compiler vectorises. Errors and non-finite values are not reported lane
+//! by lane: a batch that meets one is redone by the single-run evaluator,
+//! which names the error a single run meets first.
+
+use super::plan::{DriftSlot, Env, NodeId, Plan, Signal, SlotId};
+use super::run::{Mode, LANES, MAX_NODES};
+
+/// Which [`Signal`] a node gives: the same in every lane of a batch (it
+/// follows from the node's kind and wiring), so one tag per column.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub(super) enum Tag {
+    #[default]
+    None,
+    Current,
+    Source,
+    Element,
+    Voltage,
+    Code,
+    Reading,
+}
+
+/// A node's signal in every lane. `x` is the main value (a voltage's
+/// differential value, a code's exact value); `cm` and `rs` belong to a
+/// voltage, `code` to a code.
+#[derive(Clone, Copy, Debug, Default)]
+pub(super) struct Column {
+    pub tag: Tag,
+    pub x: [f64; LANES],
+    pub cm: [f64; LANES],
+    pub rs: [f64; LANES],
+    pub code: [i64; LANES],
+}
+
+/// Some lane met an error or a value that is not finite: the batch is
+/// redone one lane at a time.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) struct Lost;
+
+impl Column {
+    #[inline(always)]
+    pub fn scalar(tag: Tag, x: [f64; LANES]) -> Column {
+        Column {
+            tag,
+            x,
+            ..Column::default()
+        }
+    }
+
+    #[inline(always)]
+    pub fn voltage(v: [f64; LANES], cm: [f64; LANES], rs: [f64; LANES]) -> Column {
+        Column {
+            tag: Tag::Voltage,
+            x: v,
+            cm,
+            rs,
+            code: [0; LANES],
+        }
+    }
+
+    /// Lane `k`'s signal, for the nodes evaluated lane by lane.
+    #[inline(always)]
+    pub fn signal(&self, k: usize) -> Signal {
+        let x = self.x[k];
+        match self.tag {
+            Tag::None => Signal::None,
+            Tag::Current => Signal::Current(x),
+            Tag::Source => Signal::Source(x),
+            Tag::Element => Signal::Element(x),
+            Tag::Voltage => Signal::Voltage {
+                v: x,
+                cm: self.cm[k],
+                rs: self.rs[k],
+            },
+            Tag::Code => Signal::Code {
+                exact: x,
+                code: self.code[k],
+            },
+            Tag::Reading => Signal::Reading(x),
+        }
+    }
+
+    /// Sets lane `k` to `s`; a signal of another kind than lane 0's loses
+    /// the batch.
+    #[inline(always)]
+    pub fn set(&mut self, k: usize, s: Signal) -> Result<(), Lost> {
+        let (tag, x) = match s {
+            Signal::None => (Tag::None, 0.0),
+            Signal::Current(x) => (Tag::Current, x),
+            Signal::Source(x) => (Tag::Source, x),
+            Signal::Element(x) => (Tag::Element, x),
+            Signal::Voltage { v, cm, rs } => {
+                self.cm[k] = cm;
+                self.rs[k] = rs;
+                (Tag::Voltage, v)
+            }
+            Signal::Code { exact, code } => {
+                self.code[k] = code;
+                (Tag::Code, exact)
+            }
+            Signal::Reading(x) => (Tag::Reading, x),
+        };
+        if k == 0 {
+            self.tag = tag;
+        } else if tag != self.tag {
+            return Err(Lost);
+        }
+        self.x[k] = x;
+        Ok(())
+    }
+
+    /// Every value the signal carries is finite in every lane.
+    #[inline(always)]
+    pub fn finite(&self) -> bool {
+        let all = |c: &[f64; LANES]| c.iter().fold(true, |ok, x| ok & x.is_finite());
+        match self.tag {
+            Tag::None => true,
+            Tag::Current | Tag::Source | Tag::Element | Tag::Reading | Tag::Code => all(&self.x),
+            Tag::Voltage => all(&self.x) & all(&self.cm) & all(&self.rs),
+        }
+    }
+
+    /// The values, where the signal is `tag`.
+    #[inline(always)]
+    pub fn of(&self, tag: Tag) -> Option<&[f64; LANES]> {
+        (self.tag == tag).then_some(&self.x)
+    }
+}
+
+/// The columns of a batch: every node's signals and every slot's values,
+/// reused from batch to batch (every node is written before it is read).
+#[derive(Clone, Debug)]
+pub struct LaneColumns {
+    pub(super) nodes: [Column; MAX_NODES],
+    /// Slot by slot, each lane's value.
+    pub(super) values: Vec<[f64; LANES]>,
+}
+
+impl Default for LaneColumns {
+    fn default() -> LaneColumns {
+        LaneColumns {
+            nodes: [Column::default(); MAX_NODES],
+            values: Vec::new(),
+        }
+    }
+}
+
+impl LaneColumns {
+    /// The values of the lanes (`rows` holds them one lane after another,
+    /// `n` each) as columns.
+    pub(super) fn load(&mut self, rows: &[f64], n: usize) {
+        self.values.resize(n, [0.0; LANES]);
+        for (s, column) in self.values.iter_mut().enumerate() {
+            for (k, x) in column.iter_mut().enumerate() {
+                *x = rows[k * n + s];
+            }
+        }
+    }
+}
+
+/// One node's view of a batch: the plan, the values as rows (for the
+/// single-run functions a lane calls) and as columns, the conditions and
+/// the columns of the nodes before it.
+pub(in crate::eval) struct LaneRun<'a> {
+    pub plan: &'a Plan,
+    pub i: NodeId,
+    pub rows: &'a [f64],
+    pub values: &'a [[f64; LANES]],
+    pub env: &'a Env,
+    pub s: &'a [Column],
+    pub mode: Mode,
+    pub junction_mv: Option<f64>,
+}
+
+impl LaneRun<'_> {
+    /// Lane `k`'s values.
+    #[inline(always)]
+    pub fn row(&self, k: usize) -> &[f64] {
+        let n = self.values.len();
+        &self.rows[k * n..(k + 1) * n]
+    }
+
+    #[inline(always)]
+    pub fn slot(&self, s: SlotId) -> [f64; LANES] {
+        self.values[s.index()]
+    }
+
+    #[inline(always)]
+    pub fn or_zero(&self, s: Option<SlotId>) -> [f64; LANES] {
+        s.map(|s| self.values[s.index()]).unwrap_or([0.0; LANES])
+    }
+
+    /// [`Plan::drifted`] in every lane.
+    #[inline(always)]
+    pub fn drifted(&self, value: [f64; LANES], drift: Option<DriftSlot>) -> [f64; LANES] {
+        let dt = self.env.ambient - self.plan.reference;
+        match drift {
+            None => value,
+            Some(d) => {
+                let c = &self.values[d.slot.index()];
+                let mut out = [0.0; LANES];
+                for k in 0..LANES {
+                    out[k] = if d.relative {
+                        value[k] * (1.0 + c[k] * dt)
+                    } else {
+                        value[k] + c[k] * dt
+                    };
+                }
+                out
+            }
+        }
+    }
+
+    /// The current a current source drives into `input`, if it is one.
+    #[inline(always)]
+    pub fn current_into(&self, input: Option<NodeId>) -> Option<&[f64; LANES]> {
+        input.and_then(|n| self.s[n.index()].of(Tag::Current))
+    }
+
+    /// `Run::element` in every lane: a resistive element of `r` Ω.
+    #[inline(always)]
+    pub fn element(&self, r: [f64; LANES], input: Option<NodeId>) -> Column {
+        let Some(a) = self.current_into(input) else {
+            return Column::scalar(Tag::Element, r);
+        };
+        let below = &self.plan.series_below[self.i.index()];
+        let (mut v, mut cm) = ([0.0; LANES], [0.0; LANES]);
+        for k in 0..LANES {
+            let lift: f64 = below
+                .iter()
+                .map(|&n| match self.s[n.index()].tag {
+                    Tag::Voltage => self.s[n.index()].x[k],
+                    _ => 0.0,
+                })
+                .sum();
+            v[k] = a[k] * r[k];
+            cm[k] = lift + a[k] * r[k] / 2.0;
+        }
+        Column::voltage(v, cm, r)
+    }
+
+    /// The node evaluated lane by lane through the single-run code, for
+    /// the kinds without a column kernel of their own.
+    pub fn by_lane(&self) -> Result<Column, Lost> {
+        let mut out = Column::default();
+        let mut s = [Signal::None; MAX_NODES];
+        for k in 0..LANES {
+            for (signal, column) in s.iter_mut().zip(self.s) {
+                *signal = column.signal(k);
+            }
+            let signal = self
+                .plan
+                .node(
+                    self.i,
+                    self.row(k),
+                    self.env,
+                    &s,
+                    self.mode,
+                    self.junction_mv,
+                )
+                .map_err(|_| Lost)?;
+            out.set(k, signal)?;
+        }
+        Ok(out)
+    }
+}
