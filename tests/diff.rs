@@ -560,12 +560,21 @@ fn diff_trials_reach_the_analysis() {
         (doc["trials"].clone(), monte_carlo_worst(worst).cloned())
     };
     let compare_worst = |trials: &str| {
-        let args = ["compare", "old.catena", "--trials", trials, "--format", "json"];
+        let args = [
+            "compare",
+            "old.catena",
+            "--trials",
+            trials,
+            "--format",
+            "json",
+        ];
         let run = catena(&dir, &args, None);
         assert_eq!(run.status, 0, "{}", run.stderr);
         let doc = json(&run.stdout);
         let worst = &doc["candidates"][0]["outcome"]["worst"];
-        monte_carlo_worst(worst).cloned().expect("a Monte Carlo worst")
+        monte_carlo_worst(worst)
+            .cloned()
+            .expect("a Monte Carlo worst")
     };
     let (few, many) = (compare_worst("500"), compare_worst("2000"));
     assert_ne!(few["value"], many["value"]);
@@ -576,9 +585,16 @@ fn diff_trials_reach_the_analysis() {
     let moved = moved.expect("class B moves the Monte Carlo worst");
     assert_eq!(moved["old"], few["value"]);
     assert!(moved["new"].as_f64().unwrap() > moved["old"].as_f64().unwrap());
-    assert_eq!(diff_worst(&["--trials", "2000"]).1.unwrap()["old"], many["value"]);
+    assert_eq!(
+        diff_worst(&["--trials", "2000"]).1.unwrap()["old"],
+        many["value"]
+    );
     assert_eq!(diff_worst(&["--trials", "0"]).1, None);
-    let bad = catena(&dir, &["diff", "old.catena", "new.catena", "--points", "1"], None);
+    let bad = catena(
+        &dir,
+        &["diff", "old.catena", "new.catena", "--points", "1"],
+        None,
+    );
     assert_eq!(bad.status, 2, "{}", bad.stderr);
 
     std::fs::write(dir.join("catena.yaml"), "monte_carlo:\n  trials: 500\n").unwrap();

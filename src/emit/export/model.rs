@@ -16,7 +16,9 @@ use crate::analysis::budget;
 use crate::analysis::faults::{self, FaultReport, FaultVerdict};
 use crate::analysis::window::CodeWindow;
 use crate::eval::node::Convert;
-use crate::eval::{Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan};
+use crate::eval::{
+    Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan, SlotId,
+};
 use crate::model::requirement::RequirementKind;
 use crate::model::typed::ConversionMethod;
 use crate::model::value::{Basis, ParamValue};
@@ -224,7 +226,7 @@ impl From<EvalError> for ExportError {
 pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportError> {
     let (convert, couple, with_junction) = exportable_conversion(plan)?;
     let conversion = &convert.conversion;
-    let Node::Adc(adc) = &plan.nodes[plan.adc] else {
+    let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
         return Err(numeric(plan, "no converter").into());
     };
     let measurand = chain
@@ -275,7 +277,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         difference_unit: chain.difference_unit().0,
         range: (to_unit(measurand.low), to_unit(measurand.high)),
         unit: unit.clone(),
-        converter: plan.names[plan.adc].clone(),
+        converter: plan.names[plan.adc.index()].clone(),
         bits: adc.bits,
         signed: adc.polarity == Polarity::Bipolar,
         rising: exact.code_at(plan.range.1)? > exact.code_at(plan.range.0)?,
@@ -308,7 +310,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
 fn exportable_conversion(
     plan: &Plan,
 ) -> Result<(&Convert, Option<ThermocoupleType>, bool), ExportError> {
-    let Node::Convert(convert) = &plan.nodes[plan.reading] else {
+    let Node::Convert(convert) = &plan.nodes[plan.reading.index()] else {
         return Err(numeric(plan, "no conversion").into());
     };
     let couple = measuring_couple(plan);
@@ -317,7 +319,7 @@ fn exportable_conversion(
     let with_junction =
         conversion.method == Method::Exact && (convert.cj.is_some() || couple.is_some());
     let refused = |input: &str| ExportError::Unsupported {
-        stage: plan.names[plan.reading].clone(),
+        stage: plan.names[plan.reading.index()].clone(),
         input: input.to_string(),
     };
     match (with_junction, couple) {
@@ -361,7 +363,8 @@ pub fn exact_readings(
     codes: &[f64],
     junction: Option<f64>,
 ) -> Result<Vec<f64>, ExportError> {
-    let Node::Convert(crate::eval::node::Convert { conversion, .. }) = &plan.nodes[plan.reading]
+    let Node::Convert(crate::eval::node::Convert { conversion, .. }) =
+        &plan.nodes[plan.reading.index()]
     else {
         return Err(numeric(plan, "no conversion").into());
     };
@@ -386,7 +389,7 @@ pub fn exact_readings(
 
 fn numeric(plan: &Plan, what: &str) -> EvalError {
     EvalError::Numeric {
-        stage: plan.names[plan.reading].clone(),
+        stage: plan.names[plan.reading.index()].clone(),
         what: what.to_string(),
     }
 }
@@ -408,7 +411,7 @@ impl<'a> Exact<'a> {
             conversion
                 .fit(plan, &env, ConversionMethod::Exact, true, None)
                 .map_err(|what| EvalError::NotInvertible {
-                    stage: plan.names[plan.reading].clone(),
+                    stage: plan.names[plan.reading.index()].clone(),
                     what,
                 })?;
         }
@@ -649,7 +652,10 @@ fn calibration(
     curve: &Curve,
     to_unit: &dyn Fn(f64) -> f64,
 ) -> Result<Option<CalibrationExport>, EvalError> {
-    let slot = |s: Option<usize>| s.map(|s| plan.slots[s].plus.max(plan.slots[s].minus));
+    let slot = |s: Option<SlotId>| {
+        s.map(|s| &plan.slots[s.index()])
+            .map(|s| s.plus.max(s.minus))
+    };
     let (kind, uncertainty) = match conversion.calibration {
         Calibration::None => return Ok(None),
         Calibration::Offset { error, .. } => ("offset", vec![slot(error)]),
@@ -735,7 +741,7 @@ fn average(chain: &Chain, plan: &Plan) -> u32 {
     chain
         .stages
         .iter()
-        .find(|s| s.name == plan.names[plan.reading])
+        .find(|s| s.name == plan.names[plan.reading.index()])
         .and_then(|s| match s.param("average") {
             Some(ParamValue::Count(n)) => Some(*n),
             Some(ParamValue::Measure(m)) => Some(m.nominal as u32),
