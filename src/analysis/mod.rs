@@ -268,6 +268,9 @@ pub struct ChainCheck {
     pub analysis: Option<report::Analysis>,
     /// The fault verdicts and maskings its findings came from.
     pub faults: Option<faults::FaultCheck>,
+    /// The range envelopes its limit findings came from, at
+    /// [`CheckOptions::points`].
+    pub envelopes: Option<Vec<ranges::Envelope>>,
     pub findings: Findings,
 }
 
@@ -342,6 +345,7 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         plan: keep.then_some(plan),
         analysis: analysis.filter(|_| keep),
         faults: faults.filter(|_| keep),
+        envelopes: envelopes.filter(|_| keep),
         findings,
     }
 }

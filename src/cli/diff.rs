@@ -12,6 +12,7 @@ use clap::{Args, ValueEnum};
 
 use super::diff_render::{human, markdown, ChainDiff, DiffReport, FileDiff};
 use super::files::{check_configured, check_one, collect, plain_io};
+use super::report::judged_faults;
 use super::revision::{self, Snapshot};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::{analyse_reusing, Options};
@@ -120,7 +121,13 @@ pub(super) fn evaluate(
     let plan = checked.plan(chain).map_err(not_evaluated)?;
     let earlier = checked.analysis(chain);
     let a = analyse_reusing(chain, &plan, options, earlier, &|_, _| {}).map_err(not_evaluated)?;
-    Ok(outcome(chain, &plan, &a))
+    let judged = judged_faults(checked, chain, &plan);
+    Ok(outcome(
+        chain,
+        &plan,
+        &a,
+        judged.as_ref().map(|j| &j.report),
+    ))
 }
 
 pub fn run(args: DiffArgs) -> u8 {
@@ -464,5 +471,34 @@ fn chain_diff(
         spec: spec_changes(o, n),
         outcome,
         notes,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::faults::FAULT_RUNS;
+    use crate::analysis::review::FaultsOutcome;
+
+    /// A chain's outcome carries the fault verdicts the check judged, not
+    /// a second judgement.
+    #[test]
+    fn an_outcome_reuses_the_checks_fault_verdicts() {
+        let spec = Path::new(env!("CARGO_MANIFEST_DIR")).join("specs/pottery_kiln.catena");
+        let side = load(&spec.to_string_lossy()).expect("the demo reads");
+        let options = Options {
+            trials: None,
+            ..Options::default()
+        };
+        for chain in &side.checked.chains {
+            FAULT_RUNS.with(|runs| runs.set(0));
+            let outcome = evaluate(&side.checked, chain, &options).expect("an outcome");
+            assert_eq!(FAULT_RUNS.with(std::cell::Cell::get), 0);
+            // The same verdicts a fresh judgement gives.
+            let plan = side.checked.plan(chain).expect("a plan");
+            let fresh = crate::analysis::faults::analyse(chain, &plan).expect("judged");
+            let judged = outcome.faults.expect("the faults were judged");
+            assert_eq!(judged, FaultsOutcome::of(chain, &fresh));
+        }
     }
 }

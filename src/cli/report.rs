@@ -2,6 +2,7 @@
 //! Markdown or self-contained HTML, one model rendered three ways.
 
 use super::settings;
+use std::borrow::Cow;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -159,15 +160,12 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
             });
             match analysed {
                 Ok((plan, a)) if soundness::non_finite(chain, &a).is_empty() => {
-                    let list = chain_checklist(
-                        chain,
-                        &plan,
-                        &a.envelopes,
-                        build.margin,
-                        &warnings,
-                        checked.faults(chain),
-                    );
-                    chain_report(chain, &plan, &a, list, &build)
+                    let judged = judged_faults(&checked, chain, &plan);
+                    let list = judged.as_deref().map(|judged| {
+                        chain_checklist(chain, &plan, &a.envelopes, build.margin, &warnings, judged)
+                    });
+                    let faults = judged.as_ref().map(|j| &j.report);
+                    chain_report(chain, &plan, &a, list, faults, &build)
                 }
                 Ok(_) => failed_report(
                     chain,
@@ -222,22 +220,30 @@ pub fn warnings(findings: &Findings) -> Vec<String> {
         .collect()
 }
 
-/// A chain's fault-and-limit checklist from its envelopes; None when its
-/// faults cannot be evaluated.
-/// `kept` is the fault judgement the check made, when it kept one.
+/// A chain's faults and trips as the check judged them, kept; judged here
+/// only where the check kept none. None when they cannot be evaluated.
+pub fn judged_faults<'a>(
+    checked: &'a CheckedFile,
+    chain: &Chain,
+    plan: &Plan,
+) -> Option<Cow<'a, FaultCheck>> {
+    match checked.faults(chain) {
+        Some(kept) => Some(Cow::Borrowed(kept)),
+        None => faults::check(chain, plan, None).ok().map(Cow::Owned),
+    }
+}
+
+/// A chain's fault-and-limit checklist from its envelopes and its judged
+/// faults.
 pub fn chain_checklist(
     chain: &Chain,
     plan: &Plan,
     envelopes: &[Envelope],
     margin: f64,
     warnings: &[String],
-    kept: Option<&FaultCheck>,
-) -> Option<Checklist> {
-    let judged = match kept {
-        Some(k) => k.clone(),
-        None => faults::check(chain, plan, None).ok()?,
-    };
-    Some(checklist(
+    judged: &FaultCheck,
+) -> Checklist {
+    checklist(
         chain,
         plan,
         &Sources {
@@ -247,7 +253,7 @@ pub fn chain_checklist(
             margin,
             warnings,
         },
-    ))
+    )
 }
 
 /// The chains a report covers: all of them, or the one `--chain` names
