@@ -25,7 +25,7 @@ struct Long {
 /// The name of the function a line declares, if it does (`pub(crate)
 /// const fn name<..>(` and the like).
 fn declared_fn(line: &str) -> Option<&str> {
-    let mut words = line.trim_start().split_whitespace();
+    let mut words = line.split_whitespace();
     let mut word = words.next()?;
     while word != "fn" {
         let qualifier = word.starts_with("pub")
