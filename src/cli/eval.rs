@@ -11,7 +11,7 @@ use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part_of};
 use crate::check::CheckedFile;
-use crate::diagnostics::unknown_word;
+use crate::diagnostics::{backticked, unknown_word};
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
 use crate::eval::{lower, lower_unvalidated, node, Env, EvalError, Node, Plan, Signal};
 use crate::model::Chain;
@@ -289,13 +289,7 @@ fn report_one(
 }
 
 fn pick_chain<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<&'a Chain, String> {
-    let names = || {
-        chains
-            .iter()
-            .map(|c| format!("`{}`", c.name))
-            .collect::<Vec<_>>()
-            .join(", ")
-    };
+    let names = || backticked(chains.iter().map(|c| c.name.as_str()));
     match (name, chains) {
         (None, [one]) => Ok(one),
         (None, []) => Err("the file has no chain".into()),

@@ -9,7 +9,7 @@ use clap::{Args, ValueEnum};
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::eval_finding;
-use crate::diagnostics::{render_human, unknown_word, Findings};
+use crate::diagnostics::{backticked, render_human, unknown_word, Findings};
 use crate::emit::export::{
     chain_export, render_c, render_json, render_rust, Export, ExportError, Provenance,
 };
@@ -213,10 +213,9 @@ fn pick<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<Vec<&'a Chain>, S
     match chains.iter().find(|c| c.name == name) {
         Some(c) => Ok(vec![c]),
         None => {
-            let names: Vec<String> = chains.iter().map(|c| format!("`{}`", c.name)).collect();
-            let otherwise = format!("the chains are {}", names.join(", "));
-            let candidates = chains.iter().map(|c| c.name.as_str());
-            Err(unknown_word("chain", name, candidates, Some(&otherwise)))
+            let names = || chains.iter().map(|c| c.name.as_str());
+            let otherwise = format!("the chains are {}", backticked(names()));
+            Err(unknown_word("chain", name, names(), Some(&otherwise)))
         }
     }
 }

@@ -19,6 +19,28 @@ pub fn did_you_mean<'a>(word: &str, candidates: impl Iterator<Item = &'a str>) -
         .map(|(_, c)| c)
 }
 
+/// The help for `word`, which is none of `candidates`: ``did you mean
+/// `near`?`` where one is near, else `otherwise()`.
+pub fn did_you_mean_or<'a>(
+    word: &str,
+    candidates: impl Iterator<Item = &'a str>,
+    otherwise: impl FnOnce() -> String,
+) -> String {
+    match did_you_mean(word, candidates) {
+        Some(near) => format!("did you mean `{near}`?"),
+        None => otherwise(),
+    }
+}
+
+/// Names as a help line lists them: `` `a`, `b` ``.
+pub fn backticked<'a>(names: impl IntoIterator<Item = &'a str>) -> String {
+    names
+        .into_iter()
+        .map(|n| format!("`{n}`"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
 /// What to say of `word`, which names no `what` among `candidates`:
 /// ``no chain `x`; did you mean `y`?`` where one is near, else
 /// ``no chain `x` `` followed by `; ` and `otherwise` when given.
@@ -37,7 +59,17 @@ pub fn unknown_word<'a>(
 
 #[cfg(test)]
 mod tests {
-    use super::{did_you_mean, unknown_word};
+    use super::{backticked, did_you_mean, did_you_mean_or, unknown_word};
+
+    #[test]
+    fn a_help_suggests_or_says_otherwise() {
+        let sides = ["high", "low"];
+        let help = |word| did_you_mean_or(word, sides.into_iter(), || format!("not {word}"));
+        assert_eq!(help("hihg"), "did you mean `high`?");
+        assert_eq!(help("middle"), "not middle");
+        assert_eq!(backticked(sides), "`high`, `low`");
+        assert_eq!(backticked([]), "");
+    }
 
     #[test]
     fn unknown_words_said_one_way() {
