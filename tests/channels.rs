@@ -385,3 +385,52 @@ fn a_summed_cell_failing_is_judged_on_its_own_channel() {
         "{signal}: {lowest} against {top} + {others}"
     );
 }
+
+/// A channel's own `burnout` (`sum_cells.catena` with 100 nA on
+/// `cell_b_in` alone): an open signal lead of cell b is driven by it to
+/// the top code, 2²³ − 1, which the sum adds to the two other channels'
+/// codes, so it is seen above the sum's window with the threshold
+/// halfway; cell c's channel has no current of its own nor its
+/// converter's, so its open lead stays undetermined, and the help names
+/// that channel.
+#[test]
+fn a_channel_states_its_own_burnout() {
+    let spec = std::fs::read_to_string(root().join("tests/fixtures/channels/sum_cells.catena"))
+        .expect("the fixture");
+    let own = spec.replacen(
+        "channel_of conv\n",
+        "channel_of conv\n        burnout 100 nA\n",
+        1,
+    );
+    assert_ne!(own, spec);
+    let dir = common::temp_dir("channels", "burnout");
+    std::fs::write(dir.join("sum_cells.catena"), own).expect("written");
+    let out = catena(
+        &dir,
+        &["checklist", "sum_cells.catena", "--format", "json"],
+        None,
+    );
+    assert_eq!(out.status, 0, "{}{}", out.stdout, out.stderr);
+    let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+    let chain = &v["chains"][0];
+    let fault = |stage: &str| {
+        chain["faults"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|f| f["stage"] == stage && f["fault"] == "signal_lead_open")
+            .unwrap_or_else(|| panic!("no signal lead open on {stage}"))
+            .clone()
+    };
+    let b = fault("cell_b");
+    let top = 2i64.pow(23) - 1;
+    assert_eq!(b["verdict"], "detectable", "{b}");
+    assert_eq!(b["codes"][0].as_i64(), Some(top), "{b}");
+    let high = chain["window"]["high"].as_i64().unwrap();
+    let threshold = high + (top - high).div_euclid(2);
+    assert_eq!(b["threshold"], format!("code > {threshold}"), "{b}");
+    let c = fault("cell_c");
+    assert_eq!(c["verdict"], "undetermined", "{c}");
+    let action = c["action"].as_str().unwrap();
+    assert!(action.contains("on `cell_c_in` (`burnout`"), "{action}");
+}

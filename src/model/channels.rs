@@ -2,7 +2,8 @@
 //! conv` is another input of converter `conv`, scanned in turn with it.
 //! It shares the converter's part (bits, reference, offset, gain error,
 //! INL, noise, timing) and each of its error sources, and keeps its own
-//! input, its own `pga` gain and its own code. Each channel's output rate
+//! input, its own `pga` gain, its own `burnout` current (else the
+//! converter's) and its own code. Each channel's output rate
 //! is the converter's `rate` over the number of channels it scans.
 
 use std::collections::HashMap;
@@ -203,7 +204,8 @@ fn same_signal_twice(
     }
 }
 
-/// Each channel takes its converter's part, keeping its own `pga`; every
+/// Each channel takes its converter's part, keeping its own `pga` and
+/// `burnout`; every
 /// member of the scan gets the channel count.
 fn complete(stages: &mut [Stage], conv: usize, channels: &[usize]) {
     let count = channels.len() as u32;
@@ -225,6 +227,9 @@ fn complete(stages: &mut [Stage], conv: usize, channels: &[usize]) {
         };
         let adc = super::typed::Adc {
             pga: own.pga.clone(),
+            // A burnout current is switched per input on a scanning
+            // converter: a channel's own replaces the converter's there.
+            burnout: own.burnout.or(part.burnout),
             channel_of: own.channel_of.clone(),
             channels: count,
             // The reference's range is the converter's to check, once.

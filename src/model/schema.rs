@@ -594,7 +594,8 @@ static MODELS: &[ModelSpec] = &[
             POWER,
             p(CHANNEL_OF, Shape::StageName),
         ],
-        // A channel shares its converter's part: only its gain is its own.
+        // A channel shares its converter's part: only its gain and its
+        // burnout current (a per-input current source) are its own.
         exclusive: &[
             (CHANNEL_OF, "bits"),
             (CHANNEL_OF, "input"),
@@ -608,7 +609,6 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "notch"),
             (CHANNEL_OF, "ref_range"),
             (CHANNEL_OF, "rails"),
-            (CHANNEL_OF, "burnout"),
             (CHANNEL_OF, "bias"),
             (CHANNEL_OF, "sampling_capacitance"),
             (CHANNEL_OF, "sampling_resistance"),
