@@ -434,3 +434,84 @@ fn a_channel_states_its_own_burnout() {
     let action = c["action"].as_str().unwrap();
     assert!(action.contains("on `cell_c_in` (`burnout`"), "{action}");
 }
+
+/// The ratio chain's window is in the code the firmware computes, the
+/// ratio of the Pt100's code to the reference resistor's times 2²³
+/// (`ratio_rtd.catena`, no noise stated): R_t / R_ref × 2²³, whatever
+/// the current, the reference and the gain error. By hand, with the
+/// IEC 60751 curve: lowest at 0 °C with R_ref at + 0.1 %,
+/// 100 / 100.1 × 2²³ = 8 380 227.8; highest at 200 °C with R_ref at
+/// − 0.1 %, 175.856 / 99.9 × 2²³. The converter's reference lost sends
+/// both channels to the top code, 2²³ − 1, so the ratio reads exactly
+/// 2²³ (R_t = R_ref, about 0 °C): inside the window, silent. The
+/// reference resistor's channel at its top code leaves the ratio at the
+/// Pt100's own code, at most R_t × 1 mA × 8 / 2.5 V × 2²³ ≈ 0.57 × 2²³
+/// with the tolerances, below the window: detectable, with the threshold
+/// halfway below it.
+#[test]
+fn a_ratio_chain_is_judged_in_the_ratio_it_converts() {
+    let (a, b) = (3.9083e-3, -5.775e-7);
+    let full = 2f64.powi(23);
+    let r_top = 100.0 * (1.0 + a * 200.0 + b * 200.0 * 200.0);
+    let out = catena(
+        &root().join("tests/fixtures/channels"),
+        &["checklist", "ratio_rtd.catena", "--format", "json"],
+        None,
+    );
+    assert_eq!(out.status, 0, "{}{}", out.stdout, out.stderr);
+    let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+    let chain = &v["chains"][0];
+    let w = &chain["window"];
+    let low = (100.0 / 100.1 * full).round() as i64;
+    let high = (r_top / 99.9 * full).round() as i64;
+    assert_eq!(w["low"].as_i64(), Some(low), "{w}");
+    assert_eq!(w["high"].as_i64(), Some(high), "{w}");
+    let fault = |stage: &str, kind: &str| {
+        chain["faults"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|f| f["stage"] == stage && f["fault"] == kind)
+            .unwrap_or_else(|| panic!("no {kind} on {stage}"))
+            .clone()
+    };
+    let lost = fault("conv", "reference_lost");
+    assert_eq!(lost["verdict"], "silent", "{lost}");
+    assert_eq!(lost["codes"], serde_json::json!([1i64 << 23, 1i64 << 23]));
+    let top = fault("rref_in", "over_range");
+    assert_eq!(top["verdict"], "detectable", "{top}");
+    let most = top["codes"][1].as_i64().unwrap();
+    let own = r_top * 1e-3 * 8.0 / 2.5 * full;
+    assert!(
+        (most as f64 - own).abs() < 0.03 * own,
+        "{top}: against {own}"
+    );
+    let threshold = most + (low - most).div_euclid(2);
+    assert_eq!(top["threshold"], format!("code < {threshold}"), "{top}");
+    let help = lost["action"].as_str().unwrap();
+    assert!(help.contains("ratios 0.999 .. 1.76:"), "{help}");
+    // The help's fix: a 400 Ω reference resistor (each channel's gain
+    // halved to keep 400 Ω × 1 mA × 4 = 1.6 V inside 2.5 V) keeps the
+    // healthy ratio below 0.45, so a ratio of one is seen.
+    let spec = std::fs::read_to_string(root().join("tests/fixtures/channels/ratio_rtd.catena"))
+        .expect("the fixture")
+        .replace("resistor 100 ohm", "resistor 400 ohm")
+        .replace("pga 8", "pga 4");
+    let dir = common::temp_dir("channels", "ratio");
+    std::fs::write(dir.join("ratio_rtd.catena"), spec).expect("written");
+    let out = catena(
+        &dir,
+        &["checklist", "ratio_rtd.catena", "--format", "json"],
+        None,
+    );
+    let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+    let f = v["chains"][0]["faults"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["stage"] == "conv" && f["fault"] == "reference_lost")
+        .expect("the fault")
+        .clone();
+    assert_eq!(f["verdict"], "detectable", "{f}");
+    assert_eq!(f["codes"], serde_json::json!([1i64 << 23, 1i64 << 23]));
+}

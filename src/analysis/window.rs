@@ -12,7 +12,8 @@
 use super::budget;
 use super::noise::{channel_sigma_codes, noise};
 use super::ranges::{self, Limit};
-use crate::eval::{Env, EvalError, Node, NodeId, Plan};
+use crate::eval::node::Adc;
+use crate::eval::{Env, EvalError, Node, NodeId, Plan, SourceKind};
 use crate::model::typed::CombineOp;
 use crate::model::Chain;
 use crate::physics::adc::{code_range, Polarity};
@@ -65,7 +66,7 @@ impl CodeWindow {
 
 /// The chain's valid code window at its main converter.
 pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> {
-    code_window_from(plan, &ranges::envelopes(chain, plan, POINTS)?)
+    code_window_from(chain, plan, &ranges::envelopes(chain, plan, POINTS)?)
 }
 
 /// [`code_window`] from the range envelopes the limit checks already
@@ -73,19 +74,22 @@ pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> 
 /// A conversion that adds channels has the sum's window: each channel's
 /// reach adds (a bound on the sum's, as their extremes need not come
 /// together), and so do the rails; with each channel's own window beside
-/// it.
+/// it. A conversion that takes a ratio of two channels has the window of
+/// that ratio, the code the firmware computes ([`ratio_window`]).
 pub fn code_window_from(
+    chain: &Chain,
     plan: &Plan,
     envelopes: &[ranges::Envelope],
 ) -> Result<CodeWindow, EvalError> {
     let Node::Adc(adc) = &plan.nodes[plan.adc] else {
         return Err(numeric(plan, "no converter"));
     };
-    let own = own_window(plan, envelopes, plan.adc, noise_codes(plan)?)?;
     let others = match &adc.combine {
         Some((CombineOp::Sum, others)) => others,
-        Some((CombineOp::Ratio, _)) | None => return Ok(own),
+        Some((CombineOp::Ratio, _)) => return ratio_window(chain, plan, adc),
+        None => return own_window(plan, envelopes, plan.adc, noise_codes(plan)?),
     };
+    let own = own_window(plan, envelopes, plan.adc, noise_codes(plan)?)?;
     let mut channels = vec![ChannelWindow {
         node: plan.adc,
         name: plan.names[plan.adc].clone(),
@@ -113,6 +117,54 @@ pub fn code_window_from(
         channels,
         ..window_of(reach, own.sigma_codes, rails)
     })
+}
+
+/// The window of a conversion that takes the ratio of its input's code
+/// to another channel's (`ratio`), in the ratio's codes (ratio × codes
+/// of full scale), which is what the firmware computes and every fault
+/// code of the chain is: at each condition (measurand points × ambients),
+/// the nominal ratio plus the sum of every source's downward and upward
+/// changes apart, each at its two limits (the same worst case the range
+/// envelopes take), widened by k σ of the ratio's noise. Its code range
+/// is the ratio of integer codes over a denominator of at least one code
+/// in magnitude: the numerator's range times the codes of full scale
+/// (both signs on a bipolar converter, whose denominator may be negative).
+fn ratio_window(chain: &Chain, plan: &Plan, adc: &Adc) -> Result<CodeWindow, EvalError> {
+    let mut reach = (f64::INFINITY, f64::NEG_INFINITY);
+    let code = |values: &[f64], env: &Env| plan.exact_code(values, env, plan.adc);
+    for env in budget::conditions(chain, plan, POINTS) {
+        let nominal = code(&plan.nominal, &env)?;
+        let (mut down, mut up) = (0.0_f64, 0.0_f64);
+        let mut values = plan.nominal.clone();
+        for (s, slot) in plan.slots.iter().enumerate() {
+            if slot.kind == SourceKind::Exact {
+                continue;
+            }
+            let (mut lo, mut hi) = (0.0_f64, 0.0_f64);
+            for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
+                values[s] = x;
+                let change = code(&values, &env)? - nominal;
+                (lo, hi) = (lo.min(change), hi.max(change));
+            }
+            values[s] = slot.nominal;
+            down += lo;
+            up += hi;
+        }
+        reach = (reach.0.min(nominal + down), reach.1.max(nominal + up));
+    }
+    let (lo, hi) = adc.codes;
+    let rails = match adc.polarity {
+        Polarity::Unipolar => (lo * adc.per_ref, hi * adc.per_ref),
+        Polarity::Bipolar => {
+            let most = lo.abs().max(hi.abs()) * adc.per_ref;
+            (-most, most)
+        }
+    };
+    Ok(window_of(
+        reach,
+        noise_codes(plan)?,
+        (rails.0 as i64, rails.1 as i64),
+    ))
 }
 
 /// Converter `node`'s own window: its input's envelope in codes, widened
