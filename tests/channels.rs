@@ -515,3 +515,52 @@ fn a_ratio_chain_is_judged_in_the_ratio_it_converts() {
     assert_eq!(f["verdict"], "detectable", "{f}");
     assert_eq!(f["codes"], serde_json::json!([1i64 << 23, 1i64 << 23]));
 }
+
+/// Shares that do not make a whole (M270): `sum_cells.catena`'s three
+/// cells at 33.333 % each make one within the 0.1 % allowance; with
+/// cell c's `share` left out it carries all of the load, the set adds to
+/// 33.333 + 33.333 + 100 = 166.666 %, and the share that completes it is
+/// 100 − 66.666 = 33.334 %.
+#[test]
+fn summed_shares_make_a_whole() {
+    let dir = root().join("tests/fixtures/channels");
+    let check = |text: &str| {
+        let out = catena(
+            &dir,
+            &[
+                "check",
+                "-",
+                "--stdin-filename",
+                "sum_cells.catena",
+                "--format",
+                "json",
+            ],
+            Some(text.as_bytes()),
+        );
+        let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+        v["findings"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|f| f["code"] == "M270")
+            .cloned()
+            .collect::<Vec<_>>()
+    };
+    let spec = std::fs::read_to_string(dir.join("sum_cells.catena")).expect("the fixture");
+    assert!(check(&spec).is_empty());
+    let last = spec.rfind("        share 33.333 %\n").expect("a share");
+    let mut without = spec.clone();
+    without.replace_range(last..last + "        share 33.333 %\n".len(), "");
+    let found = check(&without);
+    assert_eq!(found.len(), 1, "{found:?}");
+    assert!(
+        found[0]["message"].as_str().unwrap().contains("166.67 %"),
+        "{}",
+        found[0]
+    );
+    let help = found[0]["help"].as_str().unwrap();
+    assert!(
+        help.contains("`cell_c` with `share 33.334 %` completes them"),
+        "{help}"
+    );
+}

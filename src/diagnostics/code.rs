@@ -174,6 +174,7 @@ codes! {
     M264 => Error, "sum of channels of different quantities";
     M265 => Error, "channel used twice";
     M266 => Error, "combination of a stage that is not a channel";
+    M270 => Warning, "summed shares that do not make a whole";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";

@@ -16,6 +16,7 @@ use super::typed::StageModel;
 use super::value::ParamValue;
 use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::StageKind;
+use crate::units::format::trimmed;
 
 /// Each channel's converter checked (M260) and its typed model completed
 /// from the converter's; each converter's channel count set; a reference
@@ -300,9 +301,9 @@ pub fn check_combinations(
             }
         }
         if stage.param(schema::SUM).is_some() && members.len() == named.len() + 1 {
-            if let Some(f) = mixed_quantities(file, stages, connections, stage, &members) {
-                findings.push(f);
-            }
+            let finding = mixed_quantities(file, stages, connections, stage, &members)
+                .or_else(|| shares_not_whole(file, stages, connections, stage, &members));
+            findings.extend(finding);
         }
     }
 }
@@ -460,4 +461,80 @@ fn mixed_quantities(
         .label(stages[odd.0].name_span, what(odd.1).to_string())
         .help("a sum adds channels that each carry part of the measurand (load cells under one hopper); convert another quantity in a chain of its own, or feed a cold junction's reading into `reading.cj`"),
     )
+}
+
+/// How far the shares of summed cells may add up from the whole: 0.1 %
+/// of it, so three cells stated at 33.333 % each make a whole (a rounding
+/// allowance of our own).
+pub const SHARE_TOLERANCE: f64 = 1e-3;
+
+/// M270: the cells a sum adds carry shares of the measurand that do not
+/// add up to all of it (within [`SHARE_TOLERANCE`]). A cell that states
+/// no share carries all of it.
+fn shares_not_whole(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    convert: &Stage,
+    members: &[usize],
+) -> Option<Finding> {
+    let mut cells: Vec<usize> = members
+        .iter()
+        .flat_map(|&m| sensors_upstream(stages, connections, m))
+        .collect();
+    cells.sort_unstable();
+    cells.dedup();
+    let shares = cells
+        .iter()
+        .map(|&c| match &stages[c].typed {
+            Some(StageModel::Transducer(t)) => Some((c, t.share)),
+            _ => None,
+        })
+        .collect::<Option<Vec<_>>>()?;
+    let total: f64 = shares.iter().map(|(_, s)| s.unwrap_or(1.0)).sum();
+    if (total - 1.0).abs() <= SHARE_TOLERANCE {
+        return None;
+    }
+    // The share to mend: a cell that states none, else the last.
+    let &(odd, own) = shares.iter().find(|(_, s)| s.is_none()).or(shares.last())?;
+    let others = total - own.unwrap_or(1.0);
+    let pct = |x: f64| format!("{} %", trimmed(100.0 * x, 5));
+    let cell = &stages[odd].name;
+    let help = if others < 1.0 - SHARE_TOLERANCE {
+        format!(
+            "the shares add to {}; `{cell}` with `share {}` completes them (the other cells carry {}), or state each cell's part of the load so they add to 100 %",
+            pct(total),
+            pct(1.0 - others),
+            pct(others)
+        )
+    } else {
+        format!(
+            "the shares add to {}, and the other cells alone carry {}: state each cell's part of the load (its `share`) so they add to 100 %",
+            pct(total),
+            pct(others)
+        )
+    };
+    let mut finding = Finding::new(
+        Code::M270,
+        file,
+        format!(
+            "the cells `{}` sums carry {} of the measurand, not all of it",
+            convert.name,
+            pct(total)
+        ),
+    )
+    .label(convert.name_span, "the sum");
+    for &(c, share) in &shares {
+        let what = match share {
+            Some(s) => format!("carries {}", pct(s)),
+            None => "states no `share`: carries all of it".to_string(),
+        };
+        let span = stages[c]
+            .params
+            .iter()
+            .find(|p| p.name == schema::SHARE && Arc::ptr_eq(&p.file, file))
+            .map_or(stages[c].name_span, |p| p.span);
+        finding = finding.label(span, what);
+    }
+    Some(finding.help(help))
 }

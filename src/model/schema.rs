@@ -241,6 +241,8 @@ pub const SENSITIVITY: &str = "sensitivity";
 pub const CHANNEL_OF: &str = "channel_of";
 /// A conversion's channels added to its input.
 pub const SUM: &str = "sum";
+/// The part of the measurand a load cell carries.
+pub const SHARE: &str = "share";
 /// A conversion's channel its input is divided by.
 pub const RATIO: &str = "ratio";
 
@@ -451,7 +453,7 @@ static MODELS: &[ModelSpec] = &[
             p("zero_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("r", toleranced(OHM)).positive(),
-            p("share", plain(Expect::Ratio)).positive(),
+            p(SHARE, plain(Expect::Ratio)).positive(),
             TIME_CONSTANT,
             COST,
             POWER,
@@ -961,7 +963,8 @@ fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
     let (sensitivity, sensitivity_dim, rated) = r.at(SENSITIVITY)?;
     // A cell carrying a share of the measurand reaches its rated load at
     // the measurand's rated / share.
-    let full_scale = rated / r.value("share").unwrap_or(1.0);
+    let share = r.value(SHARE);
+    let full_scale = rated / share.unwrap_or(1.0);
     let linearity = r
         .choice("linearity", |w| match w {
             "terminal" => Some(LinearityLine::Terminal),
@@ -973,6 +976,7 @@ fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
         sensitivity,
         sensitivity_dim,
         full_scale,
+        share,
         zero: r.limit("zero"),
         nonlinearity: r.limit("nonlinearity"),
         linearity: linearity.unwrap_or(LinearityLine::Terminal),

@@ -200,6 +200,9 @@ pub struct Transducer {
     pub sensitivity_dim: Dim,
     /// The load it is stated at, in the measurand's unit (SI).
     pub full_scale: f64,
+    /// The part of the measurand it carries (`share`), where stated: the
+    /// cells a conversion sums share the load between them.
+    pub share: Option<f64>,
     pub zero: Option<Tolerance>,
     pub nonlinearity: Option<Tolerance>,
     /// Terminal-based unless stated: common practice for load cells.
