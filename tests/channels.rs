@@ -564,3 +564,25 @@ fn summed_shares_make_a_whole() {
         "{help}"
     );
 }
+
+/// An explicit scan (`couple_scan.catena`: `scan conv, conv, cj_in` on a
+/// 20 Hz converter): the couple's channel gets two of every three
+/// conversions, 20 × 2 / 3 = 13.33 Hz, where an even split of two
+/// channels gives 10 Hz (`couple_pair.catena`); the conversion itself,
+/// its notch and its noise bandwidth, stays at 20 Hz.
+#[test]
+fn a_scan_sets_each_channels_rate() {
+    let report = run(&[
+        "report",
+        "couple_scan.catena",
+        "--format",
+        "json",
+        "--trials",
+        "100",
+    ]);
+    let d = &report["chains"][0]["dynamics"];
+    let rate = d["rate_hz"].as_f64().unwrap();
+    assert!((rate - 20.0 * 2.0 / 3.0).abs() < 1e-12, "{d}");
+    assert_eq!(d["notch_hz"], 20.0);
+    assert_eq!(report["chains"][0]["noise"]["enbw_hz"], 10.0);
+}

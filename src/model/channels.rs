@@ -11,6 +11,7 @@ use std::sync::Arc;
 
 use super::chain::{Connection, Stage};
 use super::ports::{Port, SignalKind};
+use super::scan::Scan;
 use super::schema;
 use super::typed::StageModel;
 use super::value::ParamValue;
@@ -44,6 +45,8 @@ pub fn resolve(
     }
     let mut convs: Vec<_> = members.into_iter().collect();
     convs.sort();
+    let scanning: Vec<usize> = convs.iter().map(|(conv, _)| *conv).collect();
+    super::scan::without_channels(file, stages, &scanning, findings);
     for (conv, channels) in convs {
         for &ch in &channels[1..] {
             if let Some(c) = connections
@@ -54,7 +57,8 @@ pub fn resolve(
             }
         }
         same_signal_twice(file, stages, connections, &channels, findings);
-        complete(stages, conv, &channels);
+        let scan = super::scan::of(file, stages, conv, &channels, findings);
+        complete(stages, conv, &channels, &scan);
     }
 }
 
@@ -207,10 +211,10 @@ fn same_signal_twice(
 }
 
 /// Each channel takes its converter's part, keeping its own `pga` and
-/// `burnout`; every
-/// member of the scan gets the channel count.
-fn complete(stages: &mut [Stage], conv: usize, channels: &[usize]) {
-    let count = channels.len() as u32;
+/// `burnout`; every member of the scan gets the scan's length and its own
+/// reads per scan.
+fn complete(stages: &mut [Stage], conv: usize, channels: &[usize], scan: &Scan) {
+    let count = scan.length;
     let Some(StageModel::Adc(part)) = stages[conv].typed.clone() else {
         // The converter was not accepted (already reported): its channels
         // cannot be evaluated either.
@@ -222,8 +226,9 @@ fn complete(stages: &mut [Stage], conv: usize, channels: &[usize]) {
     };
     if let Some(StageModel::Adc(m)) = &mut stages[conv].typed {
         m.channels = count;
+        m.reads = scan.reads[0];
     }
-    for &ch in &channels[1..] {
+    for (&ch, &reads) in channels[1..].iter().zip(&scan.reads[1..]) {
         let Some(StageModel::Adc(own)) = &stages[ch].typed else {
             continue;
         };
@@ -234,6 +239,7 @@ fn complete(stages: &mut [Stage], conv: usize, channels: &[usize]) {
             burnout: own.burnout.or(part.burnout),
             channel_of: own.channel_of.clone(),
             channels: count,
+            reads,
             // The reference's range is the converter's to check, once.
             ref_range: None,
             ..part.clone()

@@ -241,6 +241,8 @@ pub const SENSITIVITY: &str = "sensitivity";
 pub const CHANNEL_OF: &str = "channel_of";
 /// A conversion's channels added to its input.
 pub const SUM: &str = "sum";
+/// A converter's scan sequence: the order it converts its inputs in.
+pub const SCAN: &str = "scan";
 /// The part of the measurand a load cell carries.
 pub const SHARE: &str = "share";
 /// A conversion's channel its input is divided by.
@@ -599,6 +601,7 @@ static MODELS: &[ModelSpec] = &[
             COST,
             POWER,
             p(CHANNEL_OF, Shape::StageName),
+            p(SCAN, Shape::StageNames),
         ],
         // A channel shares its converter's part: only its gain and its
         // burnout current (a per-input current source) are its own.
@@ -619,6 +622,7 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "sampling_capacitance"),
             (CHANNEL_OF, "sampling_resistance"),
             (CHANNEL_OF, "acquisition_time"),
+            (CHANNEL_OF, SCAN),
         ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
@@ -1112,6 +1116,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         sampling,
         channel_of,
         channels: 1,
+        reads: 1,
     }))
 }
 

@@ -350,9 +350,13 @@ pub struct Adc {
     /// On a channel, the converter whose part, reference and conversions
     /// it shares (`channel_of`).
     pub channel_of: Option<String>,
-    /// How many channels its converter scans in turn (1 without
-    /// channels): each one's output rate is the converter's over this.
+    /// How many conversions one scan of its converter holds (1 without
+    /// channels; its channels' count without a `scan`).
     pub channels: u32,
+    /// How many of them read this input (`scan` lists it that often; 1
+    /// without a `scan`): its output rate is the converter's `rate` ×
+    /// `reads` / `channels`.
+    pub reads: u32,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq)]
