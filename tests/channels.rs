@@ -443,11 +443,13 @@ fn a_channel_states_its_own_burnout() {
 /// 100 / 100.1 × 2²³ = 8 380 227.8; highest at 200 °C with R_ref at
 /// − 0.1 %, 175.856 / 99.9 × 2²³. The converter's reference lost sends
 /// both channels to the top code, 2²³ − 1, so the ratio reads exactly
-/// 2²³ (R_t = R_ref, about 0 °C): inside the window, silent. The
-/// reference resistor's channel at its top code leaves the ratio at the
-/// Pt100's own code, at most R_t × 1 mA × 8 / 2.5 V × 2²³ ≈ 0.57 × 2²³
-/// with the tolerances, below the window: detectable, with the threshold
-/// halfway below it.
+/// 2²³ (R_t = R_ref, about 0 °C), inside the ratio's window; but the
+/// firmware checks each channel's own code before it divides, and the
+/// Pt100's channel at the top code is far above its own window (at most
+/// R_t × 1 mA × 8 / 2.5 V × 2²³ ≈ 0.57 × 2²³ with the tolerances), so it
+/// is seen there, with the threshold halfway. The reference resistor's
+/// channel at its top code leaves the ratio at the Pt100's own code,
+/// below the ratio's window: seen on the ratio itself.
 #[test]
 fn a_ratio_chain_is_judged_in_the_ratio_it_converts() {
     let (a, b) = (3.9083e-3, -5.775e-7);
@@ -476,8 +478,19 @@ fn a_ratio_chain_is_judged_in_the_ratio_it_converts() {
             .clone()
     };
     let lost = fault("conv", "reference_lost");
-    assert_eq!(lost["verdict"], "silent", "{lost}");
-    assert_eq!(lost["codes"], serde_json::json!([1i64 << 23, 1i64 << 23]));
+    assert_eq!(lost["verdict"], "detectable", "{lost}");
+    assert_eq!(lost["channel"], "conv", "{lost}");
+    let top_code = (1i64 << 23) - 1;
+    assert_eq!(lost["codes"], serde_json::json!([top_code, top_code]));
+    let own = w["channels"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|c| c["channel"] == "conv")
+        .expect("the Pt100 channel's own window");
+    let own_high = own["high"].as_i64().unwrap();
+    let over = own_high + (top_code - own_high).div_euclid(2);
+    assert_eq!(lost["threshold"], format!("conv code > {over}"), "{lost}");
     let top = fault("rref_in", "over_range");
     assert_eq!(top["verdict"], "detectable", "{top}");
     let most = top["codes"][1].as_i64().unwrap();
@@ -488,32 +501,6 @@ fn a_ratio_chain_is_judged_in_the_ratio_it_converts() {
     );
     let threshold = most + (low - most).div_euclid(2);
     assert_eq!(top["threshold"], format!("code < {threshold}"), "{top}");
-    let help = lost["action"].as_str().unwrap();
-    assert!(help.contains("ratios 0.999 .. 1.76:"), "{help}");
-    // The help's fix: a 400 Ω reference resistor (each channel's gain
-    // halved to keep 400 Ω × 1 mA × 4 = 1.6 V inside 2.5 V) keeps the
-    // healthy ratio below 0.45, so a ratio of one is seen.
-    let spec = std::fs::read_to_string(root().join("tests/fixtures/channels/ratio_rtd.catena"))
-        .expect("the fixture")
-        .replace("resistor 100 ohm", "resistor 400 ohm")
-        .replace("pga 8", "pga 4");
-    let dir = common::temp_dir("channels", "ratio");
-    std::fs::write(dir.join("ratio_rtd.catena"), spec).expect("written");
-    let out = catena(
-        &dir,
-        &["checklist", "ratio_rtd.catena", "--format", "json"],
-        None,
-    );
-    let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
-    let f = v["chains"][0]["faults"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .find(|f| f["stage"] == "conv" && f["fault"] == "reference_lost")
-        .expect("the fault")
-        .clone();
-    assert_eq!(f["verdict"], "detectable", "{f}");
-    assert_eq!(f["codes"], serde_json::json!([1i64 << 23, 1i64 << 23]));
 }
 
 /// Shares that do not make a whole (M270): `sum_cells.catena`'s three
@@ -585,4 +572,34 @@ fn a_scan_sets_each_channels_rate() {
     assert!((rate - 20.0 * 2.0 / 3.0).abs() < 1e-12, "{d}");
     assert_eq!(d["notch_hz"], 20.0);
     assert_eq!(report["chains"][0]["noise"]["enbw_hz"], 10.0);
+}
+
+/// The bath as a board would be built (`ratio_bath.catena`): a 400 Ω
+/// reference resistor above the Pt100's largest resistance, a stated
+/// compliance and a burnout current on each channel. It checks clean with
+/// warnings denied: every fault is seen, some only on one channel's own
+/// code, which firmware checks before it divides. The current lost leaves
+/// both channels at 0 V, a ratio of nothing over nothing, and is seen as
+/// the Pt100 channel's own code below its window.
+#[test]
+fn a_ratio_bath_built_as_a_board_checks_clean() {
+    let dir = root().join("tests/fixtures/channels");
+    let out = catena(
+        &dir,
+        &["check", "--deny", "warnings", "ratio_bath.catena"],
+        None,
+    );
+    assert_eq!(out.status, 0, "{}{}", out.stdout, out.stderr);
+    let v = run(&["checklist", "ratio_bath.catena", "--format", "json"]);
+    let chain = &v["chains"][0];
+    let lost = chain["faults"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["stage"] == "drive")
+        .expect("the excitation's fault")
+        .clone();
+    assert_eq!(lost["verdict"], "detectable", "{lost}");
+    assert_eq!(lost["channel"], "conv", "{lost}");
+    assert_eq!(chain["window"]["channels"].as_array().unwrap().len(), 2);
 }

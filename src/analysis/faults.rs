@@ -12,7 +12,6 @@ use super::window::{code_window, code_window_from, CodeWindow};
 use crate::diagnostics::{Cause, Code, Finding, Findings, Severity};
 use crate::eval::fault::{Fault, FaultCode, FaultKind};
 use crate::eval::{grid, Env, EvalError, Node, NodeId, Plan, SourceKind};
-use crate::model::typed::CombineOp;
 use crate::model::Chain;
 use crate::units::format::{from_si, trimmed, with_prefix};
 
@@ -450,9 +449,6 @@ fn fix(
             )),
             reader_of(plan, fault.node),
         ),
-        (FaultKind::ReferenceLost, _) if codes.is_some() && in_ratio(plan, fault.node) => {
-            (ratio_of_one(plan, window), Some(plan.adc))
-        }
         (FaultKind::Reversed, _) => (
             Some("a wiring mistake the code cannot show near the cold junction's temperature: at bring-up, warm the junction and check that the reading rises".to_string()),
             here,
@@ -489,34 +485,6 @@ fn fix(
             here,
         ),
     }
-}
-
-/// Whether node `i` is a channel of a conversion that takes a ratio (the
-/// main converter included).
-fn in_ratio(plan: &Plan, i: NodeId) -> bool {
-    match &plan.nodes[plan.adc.index()] {
-        Node::Adc(adc) => match &adc.combine {
-            Some((CombineOp::Ratio, others)) => i == plan.adc || others.contains(&i),
-            _ => false,
-        },
-        _ => false,
-    }
-}
-
-/// A ratio's channels left without their shared reference all go to the
-/// same end code, so the ratio reads one: silent where the healthy ratios
-/// reach one.
-fn ratio_of_one(plan: &Plan, window: &CodeWindow) -> Option<String> {
-    let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
-        return None;
-    };
-    let of_one = |code: i64| trimmed(code as f64 / adc.per_ref, 4);
-    Some(format!(
-        "both channels go to the same end code and the ratio reads one (code {}), inside the healthy ratios {} .. {}: make the denominator's signal exceed the numerator's over the whole range (a reference resistor above the sensor's largest resistance), so a ratio of one falls outside the window",
-        adc.per_ref,
-        of_one(window.low),
-        of_one(window.high)
-    ))
 }
 
 /// Whether the fault's code is undetermined only for want of a limit the

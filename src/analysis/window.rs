@@ -41,10 +41,11 @@ pub struct CodeWindow {
     /// The converter's code range, inclusive (for a sum of channels, the
     /// sum of their ranges).
     pub rails: (i64, i64),
-    /// For a conversion that adds channels (`sum`), each channel's own
-    /// window, main converter first: firmware sees each channel's code
-    /// before it adds them, so a fault that takes one channel out of its
-    /// own window is seen even where the sum stays inside the sum's.
+    /// For a conversion that combines channels (`sum`, `ratio`), each
+    /// channel's own window, main converter first: firmware sees each
+    /// channel's code before it adds or divides them, so a fault that
+    /// takes one channel out of its own window is seen even where the
+    /// combination stays inside its window.
     pub channels: Vec<ChannelWindow>,
 }
 
@@ -86,22 +87,16 @@ pub fn code_window_from(
     };
     let others = match &adc.combine {
         Some((CombineOp::Sum, others)) => others,
-        Some((CombineOp::Ratio, _)) => return ratio_window(chain, plan, adc),
+        Some((CombineOp::Ratio, others)) => {
+            return Ok(CodeWindow {
+                channels: channel_windows(plan, envelopes, others)?,
+                ..ratio_window(chain, plan, adc)?
+            })
+        }
         None => return own_window(plan, envelopes, plan.adc, noise_codes(plan)?),
     };
     let own = own_window(plan, envelopes, plan.adc, noise_codes(plan)?)?;
-    let mut channels = vec![ChannelWindow {
-        node: plan.adc,
-        name: plan.names[plan.adc.index()].clone(),
-        window: own_window(plan, envelopes, plan.adc, channel_noise(plan, plan.adc))?,
-    }];
-    for &n in others {
-        channels.push(ChannelWindow {
-            node: n,
-            name: plan.names[n.index()].clone(),
-            window: own_window(plan, envelopes, n, channel_noise(plan, n))?,
-        });
-    }
+    let channels = channel_windows(plan, envelopes, others)?;
     let add = |f: fn(&CodeWindow) -> (f64, f64)| {
         channels
             .iter()
@@ -117,6 +112,25 @@ pub fn code_window_from(
         channels,
         ..window_of(reach, own.sigma_codes, rails)
     })
+}
+
+/// Each combined channel's own window, the main converter first:
+/// firmware sees each channel's code before it adds or divides them.
+fn channel_windows(
+    plan: &Plan,
+    envelopes: &[ranges::Envelope],
+    others: &[NodeId],
+) -> Result<Vec<ChannelWindow>, EvalError> {
+    std::iter::once(&plan.adc)
+        .chain(others)
+        .map(|&n| {
+            Ok(ChannelWindow {
+                node: n,
+                name: plan.names[n.index()].clone(),
+                window: own_window(plan, envelopes, n, channel_noise(plan, n))?,
+            })
+        })
+        .collect()
 }
 
 /// The window of a conversion that takes the ratio of its input's code
