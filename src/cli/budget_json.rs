@@ -6,6 +6,7 @@ use std::collections::BTreeMap;
 use serde::Serialize;
 
 use crate::analysis::report::Analysis;
+use crate::eval::NodeId;
 use crate::model::{Chain, RequirementKind};
 use crate::units::format::{from_si, trimmed};
 
@@ -80,6 +81,16 @@ struct StageJson {
     unit: &'static str,
     gain: f64,
     error: f64,
+    /// The source this stage cancels most of, where the error falls here.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    cancels: Option<CancelJson>,
+}
+
+#[derive(Serialize)]
+struct CancelJson {
+    source: String,
+    before: f64,
+    after: f64,
 }
 
 #[derive(Serialize)]
@@ -130,8 +141,8 @@ pub(super) struct BudgetJson {
     requirements: Vec<RequirementJson>,
 }
 
-fn plan_name(a: &Analysis, node: usize) -> String {
-    a.names.get(node).cloned().unwrap_or_default()
+fn plan_name(a: &Analysis, node: NodeId) -> String {
+    a.names.get(node.index()).cloned().unwrap_or_default()
 }
 
 /// One chain's budget as its JSON document, in the report's units.
@@ -273,6 +284,11 @@ fn stages(a: &Analysis, f: f64) -> Vec<StageJson> {
             unit: n.unit,
             gain: n.gain,
             error: n.error * f,
+            cancels: n.cancels.as_ref().map(|x| CancelJson {
+                source: x.source.clone(),
+                before: x.before * f,
+                after: x.after * f,
+            }),
         })
         .collect()
 }

@@ -229,12 +229,12 @@ impl LaneRun<'_> {
 
     #[inline(always)]
     pub fn slot(&self, s: SlotId) -> [f64; LANES] {
-        self.values[s]
+        self.values[s.index()]
     }
 
     #[inline(always)]
     pub fn or_zero(&self, s: Option<SlotId>) -> [f64; LANES] {
-        s.map(|s| self.values[s]).unwrap_or([0.0; LANES])
+        s.map(|s| self.values[s.index()]).unwrap_or([0.0; LANES])
     }
 
     /// [`Plan::drifted`] in every lane.
@@ -244,7 +244,7 @@ impl LaneRun<'_> {
         match drift {
             None => value,
             Some(d) => {
-                let c = &self.values[d.slot];
+                let c = &self.values[d.slot.index()];
                 let mut out = [0.0; LANES];
                 for k in 0..LANES {
                     out[k] = if d.relative {
@@ -261,7 +261,7 @@ impl LaneRun<'_> {
     /// The current a current source drives into `input`, if it is one.
     #[inline(always)]
     pub fn current_into(&self, input: Option<NodeId>) -> Option<&[f64; LANES]> {
-        input.and_then(|n| self.s[n].of(Tag::Current))
+        input.and_then(|n| self.s[n.index()].of(Tag::Current))
     }
 
     /// `Run::element` in every lane: a resistive element of `r` Ω.
@@ -270,13 +270,13 @@ impl LaneRun<'_> {
         let Some(a) = self.current_into(input) else {
             return Column::scalar(Tag::Element, r);
         };
-        let below = &self.plan.series_below[self.i];
+        let below = &self.plan.series_below[self.i.index()];
         let (mut v, mut cm) = ([0.0; LANES], [0.0; LANES]);
         for k in 0..LANES {
             let lift: f64 = below
                 .iter()
-                .map(|&n| match self.s[n].tag {
-                    Tag::Voltage => self.s[n].x[k],
+                .map(|&n| match self.s[n.index()].tag {
+                    Tag::Voltage => self.s[n.index()].x[k],
                     _ => 0.0,
                 })
                 .sum();
@@ -294,11 +294,11 @@ impl LaneRun<'_> {
     pub fn by_lane(&self) -> Result<Column, Lost> {
         let mut out = Column::default();
         let mut s = [Signal::None; MAX_NODES];
-        let mut reads = self.plan.nodes[self.i].inputs();
-        reads.extend_from_slice(&self.plan.series_below[self.i]);
+        let mut reads = self.plan.nodes[self.i.index()].inputs();
+        reads.extend_from_slice(&self.plan.series_below[self.i.index()]);
         for k in 0..LANES {
             for &n in &reads {
-                s[n] = self.s[n].signal(k);
+                s[n.index()] = self.s[n.index()].signal(k);
             }
             let signal = self
                 .plan

@@ -41,7 +41,7 @@ pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
 impl Excitation {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let v = run.drifted(run.values[self.value], self.drift);
+        let v = run.drifted(run.values[self.value.index()], self.drift);
         Ok(self.output(v))
     }
 
