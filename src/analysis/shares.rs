@@ -55,13 +55,25 @@ pub fn first_order(y: &Centered, stream: Stream, cells: usize) -> f64 {
 /// [`first_order`] with each trial's cell read from `cell_of` (as the
 /// Monte Carlo stores them while drawing), the same sums in the same order.
 pub fn first_order_of(y: &Centered, cell_of: &[u8], cells: usize) -> f64 {
-    first_order_by(y, cells, |t| usize::from(cell_of[t]))
+    // A byte indexes tables of MAX_CELLS entries: no bounds check, no
+    // allocation, in the loop every source and point runs.
+    if cells > MAX_CELLS {
+        return first_order_by(y, cells, |t| usize::from(cell_of[t]));
+    }
+    if !usable(y, cells) {
+        return 0.0;
+    }
+    let mut count = [0u32; MAX_CELLS];
+    let mut sum = [0.0; MAX_CELLS];
+    for (&cell, &d) in cell_of.iter().zip(&y.deviations) {
+        count[usize::from(cell)] += 1;
+        sum[usize::from(cell)] += d;
+    }
+    index_of(y, &count[..cells], &sum[..cells])
 }
 
 fn first_order_by(y: &Centered, cells: usize, cell: impl Fn(usize) -> usize) -> f64 {
-    let n = y.deviations.len();
-    let total = y.total;
-    if n <= cells || cells < 2 || total <= 0.0 || !total.is_finite() {
+    if !usable(y, cells) {
         return 0.0;
     }
     let mut count = vec![0u32; cells];
@@ -71,9 +83,22 @@ fn first_order_by(y: &Centered, cells: usize, cell: impl Fn(usize) -> usize) -> 
         count[cell] += 1;
         sum[cell] += d;
     }
+    index_of(y, &count, &sum)
+}
+
+/// Whether `cells` cells can partition the outputs: more trials than
+/// cells, at least 2, and a variance to share.
+fn usable(y: &Centered, cells: usize) -> bool {
+    let total = y.total;
+    y.deviations.len() > cells && cells >= 2 && total > 0.0 && total.is_finite()
+}
+
+/// The index from each cell's count and sum of deviations.
+fn index_of(y: &Centered, count: &[u32], sum: &[f64]) -> f64 {
+    let (n, cells, total) = (y.deviations.len(), count.len(), y.total);
     let between: f64 = count
         .iter()
-        .zip(&sum)
+        .zip(sum)
         .filter(|(&c, _)| c > 0)
         .map(|(&c, &s)| s * s / f64::from(c))
         .sum();

@@ -6,7 +6,7 @@
 //! which names the error a single run meets first.
 
 use super::plan::{DriftSlot, Env, NodeId, Plan, Signal, SlotId};
-use super::run::{Mode, LANES, MAX_NODES};
+use super::run::{Mode, Reach, LANES, MAX_NODES};
 
 /// Which [`Signal`] a node gives: the same in every lane of a batch (it
 /// follows from the node's kind and wiring), so one tag per column.
@@ -136,6 +136,33 @@ pub struct LaneColumns {
     pub(super) nodes: [Column; MAX_NODES],
     /// Slot by slot, each lane's value.
     pub(super) values: Vec<[f64; LANES]>,
+    /// The same values lane by lane, as loaded.
+    rows: Vec<f64>,
+    /// The run the columns hold, complete, with the values now loaded:
+    /// the next run with the same key keeps the columns of the nodes the
+    /// measurand does not reach.
+    pub(super) last: Option<RunKey>,
+}
+
+/// What a node's column depends on besides the values and the measurand:
+/// the rest of the condition, the nodes run and how.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) struct RunKey {
+    pub ambient: u64,
+    pub cold_junction: u64,
+    pub reach: Reach,
+    pub mode: Mode,
+}
+
+impl RunKey {
+    pub fn of(env: &Env, reach: Reach, mode: Mode) -> RunKey {
+        RunKey {
+            ambient: env.ambient.to_bits(),
+            cold_junction: env.cold_junction.to_bits(),
+            reach,
+            mode,
+        }
+    }
 }
 
 impl Default for LaneColumns {
@@ -143,14 +170,32 @@ impl Default for LaneColumns {
         LaneColumns {
             nodes: [Column::default(); MAX_NODES],
             values: Vec::new(),
+            rows: Vec::new(),
+            last: None,
         }
     }
 }
 
 impl LaneColumns {
     /// The values of the lanes (`rows` holds them one lane after another,
-    /// `n` each) as columns.
+    /// `n` each) as columns. Values as loaded last (to the bit, as when a
+    /// batch is read at several points) are kept; new ones void the last
+    /// run.
     pub(super) fn load(&mut self, rows: &[f64], n: usize) {
+        // One pass the compiler vectorises, no early exit.
+        let differs = self.rows.len() != rows.len()
+            || self
+                .rows
+                .iter()
+                .zip(rows)
+                .fold(0, |acc, (a, b)| acc | (a.to_bits() ^ b.to_bits()))
+                != 0;
+        if !differs {
+            return;
+        }
+        self.last = None;
+        self.rows.clear();
+        self.rows.extend_from_slice(rows);
         self.values.resize(n, [0.0; LANES]);
         for (s, column) in self.values.iter_mut().enumerate() {
             for (k, x) in column.iter_mut().enumerate() {
@@ -242,13 +287,18 @@ impl LaneRun<'_> {
     }
 
     /// The node evaluated lane by lane through the single-run code, for
-    /// the kinds without a column kernel of their own.
+    /// the kinds without a column kernel of their own. Each lane rebuilds
+    /// only the signals the node reads: its inputs (every port, as
+    /// [`Node::inputs`](super::node::Node::inputs) lists them) and the
+    /// elements below it in a series string.
     pub fn by_lane(&self) -> Result<Column, Lost> {
         let mut out = Column::default();
         let mut s = [Signal::None; MAX_NODES];
+        let mut reads = self.plan.nodes[self.i.index()].inputs();
+        reads.extend_from_slice(&self.plan.series_below[self.i.index()]);
         for k in 0..LANES {
-            for (signal, column) in s.iter_mut().zip(self.s) {
-                *signal = column.signal(k);
+            for &n in &reads {
+                s[n.index()] = self.s[n.index()].signal(k);
             }
             let signal = self
                 .plan

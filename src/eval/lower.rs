@@ -71,6 +71,7 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
                 string[k + 1..].iter().map(|&s| node_of(s)).collect();
         }
     }
+    let measurand_free = super::run::measurand_free(&nodes, &series_below);
     let mut plan = Plan {
         chain: chain.name.clone(),
         names: order
@@ -85,6 +86,7 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
         reading,
         adc,
         series_below,
+        measurand_free,
         sense_error,
         groups: Vec::new(),
         stated: order
@@ -620,5 +622,100 @@ chain beam "q" {
         gauge.expect("the gauge").typed = None;
         let e = lower(&chain).expect_err("no plan");
         assert!(e.to_string().contains("`gauge`"), "{e}");
+    }
+
+    /// A couple read against an NTC at its cold junction: the junction's
+    /// sensor, divider, converter and conversion do not see the measurand.
+    const COUPLE_WITH_NTC: &str = r#"
+chain kiln "k" {
+    measurand temperature 20 degC .. 1200 degC
+    ambient 10 degC .. 45 degC
+    sensor tc {
+        thermocouple type K
+        cold_junction cjs
+    }
+    excitation vref { voltage 2.5 V ± 0.05 % drift 3 ppm/K }
+    amplifier front {
+        gain 20 ± 0.1 %
+        offset 20 uV max
+    }
+    adc conv {
+        bits 24
+        input differential
+        gain_error ± 0.01 %
+    }
+    convert reading { method exact }
+    sensor cjs {
+        thermistor
+        r25 10 kohm ± 1 %
+        beta 3435 K ± 1 %
+        dissipation 1.5 mW/K
+    }
+    bridge cj_div {
+        divider
+        r 10 kohm ± 0.1 % drift 25 ppm/K
+    }
+    adc cj_conv {
+        bits 12
+        input single
+        offset ± 2 LSB
+    }
+    convert cj_reading { method table 32 }
+    tc -> front -> conv -> reading
+    vref -> conv.ref
+    vref -> cj_div -> cj_conv -> cj_reading -> reading.cj
+    vref -> cj_conv.ref
+    cjs -> cj_div.arm
+}
+"#;
+
+    #[test]
+    fn the_measurand_reaches_only_what_reads_it() {
+        let plan = plan(COUPLE_WITH_NTC);
+        let free = |name: &str| {
+            let n = plan.names.iter().position(|s| s == name).expect(name);
+            plan.measurand_free[n]
+        };
+        for stage in ["vref", "cjs", "cj_div", "cj_conv"] {
+            assert!(free(stage), "{stage}");
+        }
+        for stage in ["tc", "front", "conv", "reading", "cj_reading"] {
+            assert!(!free(stage), "{stage}");
+        }
+    }
+
+    /// A batch read at a second point keeps the columns the measurand does
+    /// not reach: the readings are those of a batch read there afresh, to
+    /// the bit.
+    #[test]
+    fn a_second_point_reads_as_if_alone() {
+        use crate::eval::{Calibrated, Env, LaneColumns, LANES};
+        let plan = plan(COUPLE_WITH_NTC);
+        let n = plan.slots.len();
+        let mut values = plan.nominal.repeat(LANES);
+        for (k, v) in values.iter_mut().enumerate() {
+            let slot = &plan.slots[k % n];
+            // Each lane its own values, inside the limits.
+            *v += (slot.plus - slot.minus) * ((k / n) as f64 / LANES as f64 - 0.4);
+        }
+        let calibrated: [Calibrated; LANES] = std::array::from_fn(|k| {
+            plan.calibration(&values[k * n..(k + 1) * n])
+                .expect("calibrates")
+        });
+        let at = |c: f64| Env {
+            measurand: c + 273.15,
+            ambient: 300.15,
+            cold_junction: 300.15,
+        };
+        let read = |scratch: &mut LaneColumns, env: &Env| {
+            let mut readings = [0.0; LANES];
+            plan.unquantized_readings_calibrated(&values, env, &calibrated, &mut readings, scratch)
+                .expect("reads");
+            readings.map(f64::to_bits)
+        };
+        let mut kept = LaneColumns::default();
+        read(&mut kept, &at(100.0));
+        let second = read(&mut kept, &at(900.0));
+        assert_eq!(second, read(&mut LaneColumns::default(), &at(900.0)));
     }
 }

@@ -141,6 +141,10 @@ pub struct Plan {
     /// elements below it (towards ground), whose voltages lift its common
     /// mode.
     pub series_below: Vec<Vec<NodeId>>,
+    /// By node: whether its signal is the same at every value of the
+    /// measurand (it neither senses it nor reads a node that does), so a
+    /// batch read at several points with one ambient works it out once.
+    pub measurand_free: Vec<bool>,
     /// For each sensor node, the error of the temperature it senses.
     pub sense_error: Vec<SenseError>,
     /// The common components of tracking groups, each moving several

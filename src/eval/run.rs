@@ -2,7 +2,7 @@
 //! inputs' signals, the parameter values and the environment.
 
 use super::convert::{calibration_env, Calibrated, Conversion, Firmware};
-use super::lanes::{LaneColumns, LaneRun, Lost, Tag};
+use super::lanes::{LaneColumns, LaneRun, Lost, RunKey, Tag};
 use super::node;
 use super::plan::{ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal};
 use crate::model::typed::CombineOp;
@@ -301,6 +301,23 @@ impl Plan {
     }
 }
 
+/// By node, whether the measurand reaches it (see `Plan::measurand_free`):
+/// not if it does not read the measurand itself, nor any node it reads.
+pub(super) fn measurand_free(nodes: &[Node], series_below: &[Vec<NodeId>]) -> Vec<bool> {
+    let mut free: Vec<bool> = Vec::with_capacity(nodes.len());
+    for (i, node) in nodes.iter().enumerate() {
+        let mut reads = node
+            .inputs()
+            .into_iter()
+            .chain(series_below[i].iter().copied());
+        // Inputs come first in the plan's order; one that does not would
+        // be a plan this cannot vouch for.
+        let inputs_free = reads.all(|n| n.index() < i && free[n.index()]);
+        free.push(inputs_free && !node.reads_measurand());
+    }
+    free
+}
+
 /// Range ends written in °C come back through kelvin a few ulps off;
 /// within a nanokelvin of an end counts as the end.
 pub(super) fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
@@ -584,11 +601,18 @@ impl Plan {
         reach: Reach,
         mode: Mode,
     ) -> Result<(), Lost> {
+        let key = RunKey::of(env, reach, mode);
+        let keep = columns.last.take() == Some(key);
         let LaneColumns {
             nodes,
             values: slots,
+            last,
+            ..
         } = columns;
         for i in self.reach(reach) {
+            if keep && self.measurand_free[i.index()] {
+                continue;
+            }
             let (before, after) = nodes.split_at_mut(i.index());
             let run = LaneRun {
                 plan: self,
@@ -606,6 +630,7 @@ impl Plan {
             }
             after[0] = column;
         }
+        *last = Some(key);
         Ok(())
     }
 

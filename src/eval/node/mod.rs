@@ -136,6 +136,29 @@ impl Node {
         }
     }
 
+    /// Whether the node's own signal depends on the measured quantity
+    /// (not through its inputs): a sensor of it, or a conversion, whose
+    /// firmware model is read at the condition.
+    pub(super) fn reads_measurand(&self) -> bool {
+        let senses = |s: Senses| s == Senses::Measurand;
+        match self {
+            Node::Rtd(n) => senses(n.senses),
+            Node::Thermistor(n) => senses(n.senses),
+            Node::IcVoltage(n) => senses(n.senses),
+            Node::IcCurrent(n) => senses(n.senses),
+            Node::Thermocouple(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Convert(_) => true,
+            Node::Excitation(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_) => false,
+        }
+    }
+
     /// What drives a resistive element (a current source, or nothing for
     /// an arm of a bridge or divider); None for another kind.
     pub fn element_input(&self) -> Option<NodeId> {
