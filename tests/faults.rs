@@ -76,6 +76,17 @@ fn a_shorted_ntc_in_a_low_side_divider_reads_zero() {
         "{md}"
     );
     assert_eq!(lost["verdict"], "detectable");
+    // Shorted at its output, the supply sits at 0 V whatever its current
+    // limit: the same codes as lost, a row of its own. So does the
+    // converter's reference pin shorted, which holds the supply wired to
+    // it at 0 V too: no input, no reference.
+    for (stage, fault) in [("rail", "at_current_limit"), ("conv", "reference_shorted")] {
+        assert_eq!(
+            row(&list, stage, fault)["codes"],
+            lost["codes"],
+            "{stage} {fault}"
+        );
+    }
     assert!(
         lost["threshold"]
             .as_str()
@@ -517,4 +528,64 @@ fn a_burnout_current_below_the_converters_bias_current_leaves_its_input_undeterm
         action.contains("more than its input bias current of up to 200 nA"),
         "{action}"
     );
+}
+
+/// A current source at its compliance drives its string as a voltage
+/// source of the compliance: here 4 V across the Pt100 and a fixed
+/// 1.9 kΩ, so I = 4 V / (R + 1900 Ω) instead of the set 1 mA. At 0 °C
+/// (R = 100 Ω) that is 2 mA and 0.2 V across the Pt100; at 100 °C
+/// (R = 138.5055 Ω, IEC 60751) 1.96222 mA and 0.271779 V. On the
+/// 2.5 V ± 0.1 % reference the codes run from 0.2 / 2.5025 × 65536 =
+/// 5237.6 to 0.271779 / 2.4975 × 65536 = 7131.7: high, clear of the
+/// healthy 2616 .. 3638, but not the open element's top code. The source
+/// current's own tolerance no longer matters: the compliance sets it.
+#[test]
+fn a_current_source_at_its_compliance_drives_the_string_as_a_voltage_source() {
+    let list = checklist("kind_excitation_limits.catena");
+    let at = row(&list, "drive", "at_compliance");
+    let code = |r: f64, vref: f64| 4.0 * r / (r + 1900.0) / vref * 65536.0;
+    let (low, high) = (code(100.0, 2.5025), code(138.5055, 2.4975));
+    assert_eq!(
+        codes(at),
+        (low.round() as i64, high.round() as i64),
+        "{low} {high}"
+    );
+    assert_eq!(at["verdict"], "detectable");
+    // The element open instead: the source at 4 V holds the converter's
+    // input above its 2.5 V reference, the top code.
+    assert_eq!(codes(row(&list, "rtd", "open")), (65535, 65535));
+    // A shorted reference pin on a stated reference: 0 V against the
+    // Pt100's 0.1 V or more, so the converter runs to its top code, as it
+    // does with the reference lost.
+    assert_eq!(
+        codes(row(&list, "conv", "reference_shorted")),
+        (65535, 65535)
+    );
+    assert_eq!(codes(row(&list, "conv", "reference_lost")), (65535, 65535));
+}
+
+/// Ratiometric, the same fault changes the current and not the ratio:
+/// I·R / (I·2 kΩ) × 2^23 = R / 2000 × 2^23, 419430 at 0 °C whatever I
+/// is. The fault reads within the healthy chain's own tolerances, so it
+/// is tolerated, not silent, and `check` says nothing of it. A shorted
+/// reference resistor leaves the Pt100's voltage against 0 V: the top
+/// code.
+#[test]
+fn a_ratiometric_current_source_at_its_compliance_is_tolerated() {
+    let name = "kind_excitation_ratiometric.catena";
+    let list = checklist(name);
+    let at = row(&list, "drive", "at_compliance");
+    assert_eq!(at["verdict"], "tolerated");
+    let window = &list["chains"][0]["window"];
+    let (low, high) = codes(at);
+    assert!(window["low"].as_i64() <= Some(low) && Some(high) <= window["high"].as_i64());
+    let nominal = (100.0 / 2000.0 * 2f64.powi(23)) as i64;
+    assert!(low <= nominal && nominal <= high, "{low} {high}");
+    assert_eq!(
+        codes(row(&list, "conv", "reference_shorted")),
+        (8388607, 8388607)
+    );
+    let spec = format!("tests/fixtures/faults/{name}");
+    let run = catena(&root(), &["check", &spec], None);
+    assert!(!run.stderr.contains("compliance voltage"), "{}", run.stderr);
 }

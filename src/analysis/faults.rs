@@ -24,6 +24,11 @@ pub enum Verdict {
     Detectable,
     Silent,
     Undetermined,
+    /// Inside the window, but reading as a healthy chain does: at every
+    /// condition the fault moves the code less than the healthy chain's
+    /// own tolerances already may (a ratiometric reading whose current
+    /// source runs to its compliance). Nothing to detect, nothing hidden.
+    Tolerated,
 }
 
 impl Verdict {
@@ -32,6 +37,15 @@ impl Verdict {
             Verdict::Detectable => "detectable",
             Verdict::Silent => "silent",
             Verdict::Undetermined => "undetermined",
+            Verdict::Tolerated => "tolerated",
+        }
+    }
+
+    /// Whether firmware cannot see the fault and its reading is wrong.
+    pub fn hidden(self) -> bool {
+        match self {
+            Verdict::Silent | Verdict::Undetermined => true,
+            Verdict::Detectable | Verdict::Tolerated => false,
         }
     }
 }
@@ -61,6 +75,9 @@ pub fn found_at_bring_up(kind: FaultKind) -> bool {
         | FaultKind::OverRange
         | FaultKind::UnderRange
         | FaultKind::ReferenceLost
+        | FaultKind::ReferenceShorted
+        | FaultKind::AtCompliance
+        | FaultKind::AtCurrentLimit
         | FaultKind::CompensationLeadOpen
         | FaultKind::ForceLeadOpen
         | FaultKind::ReturnLeadOpen
@@ -367,13 +384,45 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     if verdict.verdict != Verdict::Detectable {
         seen_on_a_channel(plan, cases, window, &mut verdict);
     }
-    if verdict.verdict != Verdict::Detectable {
+    if verdict.verdict == Verdict::Silent && reads_as_healthy(plan, cases, window, &fault) {
+        verdict.verdict = Verdict::Tolerated;
+    }
+    if verdict.verdict.hidden() {
         let (text, at) = fix(plan, cases, window, &fault, verdict.codes);
         verdict.fix = text;
         verdict.fix_at = at.map(|n| plan.names[n].clone());
         verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
     }
     verdict
+}
+
+/// Whether, at every condition, the fault's nominal code lies within the
+/// spread the healthy chain's own tolerances give there (each source's
+/// worst deviation from the healthy nominal, added up on each side),
+/// widened by what the window allows every code (its noise, and half a
+/// code of rounding): the fault then reads no worse than a healthy chain
+/// at its limits.
+fn reads_as_healthy(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> bool {
+    let slack = window.k * window.sigma_codes + 0.5;
+    let within = |env: &Env| -> Result<bool, EvalError> {
+        let healthy = |values: &[f64]| plan.exact_code(values, env, plan.adc);
+        let nominal = healthy(&plan.nominal)?;
+        let (mut down, mut up) = (0.0_f64, 0.0_f64);
+        for pair in cases.limits.chunks(2) {
+            let (mut lo, mut hi) = (0.0_f64, 0.0_f64);
+            for values in pair {
+                let d = healthy(values)? - nominal;
+                (lo, hi) = (lo.min(d), hi.max(d));
+            }
+            down += lo;
+            up += hi;
+        }
+        Ok(match plan.faulted_code(&plan.nominal, env, fault)? {
+            FaultCode::Code(c) => nominal + down - slack <= c && c <= nominal + up + slack,
+            FaultCode::EitherEnd | FaultCode::Undetermined(_) => false,
+        })
+    };
+    cases.envs.iter().all(|env| within(env).unwrap_or(false))
 }
 
 /// A fault the conversion's code does not show may still take one
@@ -471,6 +520,10 @@ fn fix(
             ),
             None => (None, None),
         },
+        (FaultKind::AtCompliance, _) if codes.is_none() => (
+            Some("state the source's compliance (`compliance`, the voltage its output can reach), so the code at it is determined".to_string()),
+            here,
+        ),
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) if a.output.is_none() => (
             Some("state the amplifier's output swing (`output`), so its saturated output gives a determined code".to_string()),
             here,
@@ -495,6 +548,7 @@ fn unstated_limit(plan: &Plan, fault: &Fault) -> bool {
         // are optional: without them the fault is unchecked.
         (FaultKind::InputOpen | FaultKind::StuckHigh, _) => true,
         (FaultKind::Open, _) => unstated_compliance(plan, fault.node).is_some(),
+        (FaultKind::AtCompliance, Node::Excitation(e)) => e.compliance.is_none(),
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) => {
             a.output.is_none()
         }
@@ -612,7 +666,7 @@ pub fn maskings(
             let safe_below = (alarm.side == "high") == rises;
             let cases = Cases::at(chain, plan, &past_trip(plan, &alarm));
             let masks = |f: &FaultVerdict| match f.verdict {
-                Verdict::Detectable => false,
+                Verdict::Detectable | Verdict::Tolerated => false,
                 Verdict::Undetermined => true,
                 Verdict::Silent => match code_range(plan, &cases, window, &f.fault) {
                     Err(_) => true,
@@ -812,7 +866,7 @@ fn same_reason(a: &FaultVerdict, b: &FaultVerdict) -> bool {
 /// and one whose limit is left unstated in a chain that guards nobody.
 /// A chain that protects people or property makes them errors.
 pub fn reported_severity(chain: &Chain, f: &FaultVerdict) -> Option<Severity> {
-    if f.verdict == Verdict::Detectable
+    if !f.verdict.hidden()
         || found_at_bring_up(f.fault.kind)
         || (f.unstated && !chain.is_protective())
     {

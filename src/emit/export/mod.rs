@@ -20,7 +20,7 @@ pub use model::{
 };
 pub use rust::render as render_rust;
 
-use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold, Verdict};
+use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
 use crate::units::format::trimmed;
 
 /// Everything one run exports: the chains of one spec.
@@ -426,7 +426,7 @@ pub fn undetected_words(chain: &ChainExport) -> Option<String> {
     let list: Vec<String> = chain
         .faults
         .iter()
-        .filter(|f| f.verdict != Verdict::Detectable)
+        .filter(|f| f.verdict.hidden())
         .map(|f| {
             let codes = f
                 .codes

@@ -105,7 +105,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
     })
 }
 
-/// Its code stuck at either end, its reference lost, or its input pin
+/// Its code stuck at either end, its reference lost or shorted, or its input pin
 /// open (its own burnout current drives the pin to a rail; without one
 /// the pin floats). A differential input's two pins are one row: a
 /// burnout current sourced into the positive pin and sunk from the
@@ -114,6 +114,7 @@ pub(super) const FAULTS: &[FaultKind] = &[
     FaultKind::OverRange,
     FaultKind::UnderRange,
     FaultKind::ReferenceLost,
+    FaultKind::ReferenceShorted,
     FaultKind::InputOpen,
 ];
 
@@ -273,7 +274,9 @@ impl Adc {
             }
             Some(FaultKind::OverRange) => return Ok(rail(hi)),
             Some(FaultKind::UnderRange) => return Ok(rail(lo)),
-            Some(FaultKind::ReferenceLost) => 0.0,
+            // Lost or shorted, nothing balances the input: a shorted pin
+            // also holds the node wired to it at 0 V (`Plan::faulted_code_at`).
+            Some(FaultKind::ReferenceLost | FaultKind::ReferenceShorted) => 0.0,
             Some(other) => return Err(run.numeric(other.describe())),
             None => self.reference_voltage(run.plan, run.values, run.env, run.s),
         };
