@@ -4,7 +4,7 @@
 //! a reader sees where the error grows.
 
 use super::stages::signal_path;
-use crate::eval::{Env, EvalError, NodeId, Plan, Signal, SourceKind};
+use crate::eval::{Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct NodeError {
@@ -53,20 +53,20 @@ pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError>
         )?
         .signals;
     let mut variance = vec![0.0; path.len()];
-    let mut dominant: Vec<Option<(usize, f64)>> = vec![None; path.len()];
+    let mut dominant: Vec<Option<(SlotId, f64)>> = vec![None; path.len()];
     let mut values = plan.nominal.clone();
-    for (s, slot) in plan.slots.iter().enumerate() {
+    for (s, slot) in plan.slot_ids().zip(&plan.slots) {
         if slot.kind == SourceKind::Exact {
             continue;
         }
-        values[s] = slot.nominal + slot.plus;
+        values[s.index()] = slot.nominal + slot.plus;
         let high = plan.raw_signals(&values, env)?;
-        values[s] = slot.nominal - slot.minus;
+        values[s.index()] = slot.nominal - slot.minus;
         let low = plan.raw_signals(&values, env)?;
-        values[s] = slot.nominal;
+        values[s.index()] = slot.nominal;
         let divisor = if slot.normal { 3.0 } else { 3f64.sqrt() };
         for (k, &n) in path.iter().enumerate() {
-            let u = (primary(high[n]) - primary(low[n])) / 2.0 / divisor;
+            let u = (primary(high[n.index()]) - primary(low[n.index()])) / 2.0 / divisor;
             variance[k] += u * u;
             let weight = if u.is_finite() {
                 u.abs()
@@ -83,9 +83,9 @@ pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError>
         .zip(variance)
         .zip(dominant)
         .map(|((&n, var), dominant)| {
-            let gain = (primary(up[n]) - primary(down[n])) / (2.0 * h);
-            let (value, unit) = nominal[n].value_unit();
-            let value = match nominal[n] {
+            let gain = (primary(up[n.index()]) - primary(down[n.index()])) / (2.0 * h);
+            let (value, unit) = nominal[n.index()].value_unit();
+            let value = match nominal[n.index()] {
                 Signal::Code { exact, .. } => exact,
                 _ => value,
             };
@@ -99,7 +99,7 @@ pub fn accumulation(plan: &Plan, env: &Env) -> Result<Vec<NodeError>, EvalError>
                 } else {
                     0.0
                 },
-                dominant: dominant.map(|(s, _)| plan.slots[s].id.clone()),
+                dominant: dominant.map(|(s, _)| plan.slots[s.index()].id.clone()),
             }
         })
         .collect())

@@ -8,7 +8,8 @@ use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
 use crate::eval::{
-    half_width, own_fraction, Calibrated, Env, EvalError, LaneColumns, Plan, SourceKind, LANES,
+    half_width, own_fraction, Calibrated, Env, EvalError, LaneColumns, Plan, SlotId, SourceKind,
+    LANES,
 };
 use crate::model::Chain;
 
@@ -261,25 +262,26 @@ struct Perturbation {
     kind: &'static str,
     normal: bool,
     /// The slots it moves and their values at its lower and upper limit.
-    slots: Vec<usize>,
+    slots: Vec<SlotId>,
     limits: [(Vec<f64>, Calibrated); 2],
 }
 
 impl Perturbations {
     pub fn of(plan: &Plan) -> Result<Perturbations, EvalError> {
         let mut values = plan.nominal.clone();
-        let mut at = |slots: &[usize], xs: Vec<f64>| -> Result<(Vec<f64>, Calibrated), EvalError> {
-            for (&s, &x) in slots.iter().zip(&xs) {
-                values[s] = x;
-            }
-            let calibrated = plan.calibration(&values);
-            for &s in slots {
-                values[s] = plan.nominal[s];
-            }
-            Ok((xs, calibrated?))
-        };
+        let mut at =
+            |slots: &[SlotId], xs: Vec<f64>| -> Result<(Vec<f64>, Calibrated), EvalError> {
+                for (&s, &x) in slots.iter().zip(&xs) {
+                    values[s.index()] = x;
+                }
+                let calibrated = plan.calibration(&values);
+                for &s in slots {
+                    values[s.index()] = plan.nominal[s.index()];
+                }
+                Ok((xs, calibrated?))
+            };
         let mut sources = Vec::new();
-        for (s, slot) in plan.slots.iter().enumerate() {
+        for (s, slot) in SlotId::all(plan.slots.len()).zip(&plan.slots) {
             if slot.kind == SourceKind::Exact {
                 continue;
             }
@@ -299,13 +301,13 @@ impl Perturbations {
             });
         }
         for group in &plan.groups {
-            let slots: Vec<usize> = group.parts.iter().map(|p| p.slot).collect();
+            let slots: Vec<SlotId> = group.parts.iter().map(|p| p.slot).collect();
             let side = |sign: f64| -> Vec<f64> {
                 group
                     .parts
                     .iter()
                     .map(|p| {
-                        let (h, mid) = half_width(&plan.slots[p.slot]);
+                        let (h, mid) = half_width(&plan.slots[p.slot.index()]);
                         mid + sign * p.common * h
                     })
                     .collect()
@@ -358,7 +360,7 @@ fn source_effects(
     r0: f64,
 ) -> Result<Vec<(f64, f64)>, EvalError> {
     let n = plan.nominal.len();
-    let limits: Vec<(&[usize], &[f64], Calibrated)> = sources
+    let limits: Vec<(&[SlotId], &[f64], Calibrated)> = sources
         .sources
         .iter()
         .flat_map(|p| {
@@ -375,7 +377,7 @@ fn source_effects(
         let mut calibrated = [sources.nominal; LANES];
         for (lane, &(slots, xs, c)) in batch.iter().enumerate() {
             for (&slot, &x) in slots.iter().zip(xs) {
-                values[lane * n + slot] = x;
+                values[lane * n + slot.index()] = x;
             }
             calibrated[lane] = c;
         }
@@ -388,7 +390,7 @@ fn source_effects(
         )?;
         for (lane, &(slots, ..)) in batch.iter().enumerate() {
             for &slot in slots {
-                values[lane * n + slot] = plan.nominal[slot];
+                values[lane * n + slot.index()] = plan.nominal[slot.index()];
             }
             changes.push(readings[lane] - r0);
         }
@@ -436,10 +438,9 @@ fn source_contributions(
         let divisor = if source.normal { 3.0 } else { SQRT3 };
         // A tracking group moves its slots together, each to its limit: the
         // first slot's limits place the source's two ends.
-        let (minus, plus) = source
-            .slots
-            .first()
-            .map_or((1.0, 1.0), |&s| (plan.slots[s].minus, plan.slots[s].plus));
+        let (minus, plus) = source.slots.first().map_or((1.0, 1.0), |&s| {
+            (plan.slots[s.index()].minus, plan.slots[s.index()].plus)
+        });
         let (low, high) = (
             beyond_rounding(low, rounding),
             beyond_rounding(high, rounding),

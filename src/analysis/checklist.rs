@@ -13,7 +13,7 @@ use serde::Serialize;
 
 use super::faults::{FaultCodes, FaultReport, Masking, Verdict};
 use super::ranges::Envelope;
-use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal};
+use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal, SlotId};
 use crate::model::Chain;
 use crate::physics::rtd::{self, Wiring};
 use crate::units::format::{from_si, trimmed, with_prefix};
@@ -254,7 +254,7 @@ fn fault_row(f: &super::faults::FaultVerdict) -> FaultRow {
 fn limit_row(plan: &Plan, e: &Envelope, margin: f64) -> LimitRow {
     let headroom = e.headroom();
     LimitRow {
-        stage: plan.names.get(e.node).cloned().unwrap_or_default(),
+        stage: plan.names.get(e.node.index()).cloned().unwrap_or_default(),
         limit: e.limit.describe().to_string(),
         unit: e.unit.symbol().to_string(),
         allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
@@ -297,7 +297,7 @@ fn alarm_rows(chain: &Chain, from: &Sources<'_>) -> Vec<AlarmRow> {
 /// Each wired element's leads to measure as installed: the budget holds
 /// the resistance the spec states, the installation decides the real one.
 fn leads(plan: &Plan) -> Vec<ReviewItem> {
-    (0..plan.nodes.len())
+    NodeId::all(plan.nodes.len())
         .filter_map(|n| lead_item(plan, n))
         .map(|text| ReviewItem {
             kind: ReviewKind::Leads,
@@ -320,14 +320,14 @@ fn spread(minus: f64, plus: f64, show: impl Fn(f64) -> String) -> String {
 /// field.
 fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
     let ohms = |x: f64| with_prefix(x, "Ω", 3);
-    let name = &plan.names[n];
-    match &plan.nodes[n] {
+    let name = &plan.names[n.index()];
+    match &plan.nodes[n.index()] {
         Node::Rtd(node::Rtd {
             wiring,
             leads: Some((a, b)),
             ..
         }) => {
-            let (a, b) = (&plan.slots[*a], &plan.slots[*b]);
+            let (a, b) = (&plan.slots[a.index()], &plan.slots[b.index()]);
             let seen = match wiring {
                 Wiring::TwoWire => "2-wire: the reading sees both leads in series",
                 Wiring::ThreeWire => {
@@ -368,7 +368,7 @@ fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
 }
 
 /// The slot of an element's dissipation constant, where it states one.
-fn dissipation(node: &Node) -> Option<usize> {
+fn dissipation(node: &Node) -> Option<SlotId> {
     match node {
         Node::Rtd(node::Rtd { dissipation, .. })
         | Node::Thermistor(node::Thermistor { dissipation, .. }) => *dissipation,
@@ -393,12 +393,11 @@ fn dissipation(node: &Node) -> Option<usize> {
 /// slope there, and the power that makes it (P = ΔT·δ, IEC 60751's
 /// self-heating coefficient read the other way).
 fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
-    plan.nodes
-        .iter()
-        .enumerate()
+    NodeId::all(plan.nodes.len())
+        .zip(&plan.nodes)
         .filter_map(|(n, node)| {
             let slot = dissipation(node)?;
-            let delta = plan.nominal[slot];
+            let delta = plan.nominal[slot.index()];
             let ends = [plan.range.0, plan.range.1].map(|m| heating_at(plan, n, slot, m).map(|k| (m, k)));
             let worst = ends
                 .iter()
@@ -411,7 +410,7 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
                     kind: ReviewKind::SelfHeating,
                     text: format!(
                         "self-heating of `{}` could not be evaluated{why}; measure it at the chosen excitation in the installed mounting",
-                        plan.names[n]
+                        plan.names[n.index()]
                     ),
                 });
             };
@@ -421,7 +420,7 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
                 kind: ReviewKind::SelfHeating,
                 text: format!(
                     "self-heating of `{}` at the chosen excitation: {} K at {} {m_unit} ({} dissipated, δ = {}/K); confirm the dissipation constant in the installed mounting and medium, or lower the excitation",
-                    plan.names[n],
+                    plan.names[n.index()],
                     trimmed(kelvin, 3),
                     trimmed(from_si(at, &m_unit), 6),
                     with_prefix(power, "W", 3),
@@ -436,7 +435,7 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
 /// evaluated, less its resistance with no heating (a dissipation
 /// constant so large the rise underflows; the physics refuses an
 /// infinite one), over the slope of its unheated resistance.
-fn heating_at(plan: &Plan, n: NodeId, slot: usize, m: f64) -> Result<f64, EvalError> {
+fn heating_at(plan: &Plan, n: NodeId, slot: SlotId, m: f64) -> Result<f64, EvalError> {
     let resistance = |values: &[f64], m: f64| -> Result<f64, EvalError> {
         let env = Env {
             measurand: m,
@@ -444,13 +443,13 @@ fn heating_at(plan: &Plan, n: NodeId, slot: usize, m: f64) -> Result<f64, EvalEr
             cold_junction: plan.reference,
         };
         let signals = plan.raw_signals(values, &env)?;
-        Ok(match signals[n] {
+        Ok(match signals[n.index()] {
             Signal::Element(r) => r,
             other => other.value_unit().0,
         })
     };
     let mut cold = plan.nominal.clone();
-    cold[slot] = f64::MAX;
+    cold[slot.index()] = f64::MAX;
     let h = ((plan.range.1 - plan.range.0) * 1e-4).max(1e-6);
     let slope = (resistance(&cold, m + h)? - resistance(&cold, m - h)?) / (2.0 * h);
     let excess = resistance(&plan.nominal, m)? - resistance(&cold, m)?;
@@ -460,13 +459,13 @@ fn heating_at(plan: &Plan, n: NodeId, slot: usize, m: f64) -> Result<f64, EvalEr
 /// The calibration points and the uncertainty of the reference each is
 /// taken against.
 fn calibration(chain: &Chain, plan: &Plan) -> Option<ReviewItem> {
-    let Node::Convert(node::Convert { conversion, .. }) = &plan.nodes[plan.reading] else {
+    let Node::Convert(node::Convert { conversion, .. }) = &plan.nodes[plan.reading.index()] else {
         return None;
     };
     let m_unit = chain.measurand_unit();
     let (diff, f) = chain.difference_unit();
-    let point = |at: f64, error: Option<usize>| {
-        let reference = match error.map(|s| &plan.slots[s]) {
+    let point = |at: f64, error: Option<SlotId>| {
+        let reference = match error.map(|s| &plan.slots[s.index()]) {
             Some(s) => format!(
                 "against a reference good to {} {diff}",
                 spread(s.minus * f, s.plus * f, |x| trimmed(x, 3))

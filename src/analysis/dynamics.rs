@@ -6,7 +6,7 @@
 
 use super::stages::signal_path;
 use super::step::{Averaging, StepModel};
-use crate::eval::{node, Node, Plan, Senses};
+use crate::eval::{node, Node, NodeId, Plan, Senses};
 use crate::physics::filter::LowPass;
 
 /// Mains frequencies every report states attenuation at, Hz.
@@ -105,8 +105,8 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
     let mut rate_hz = None;
     let mut notch_hz = None;
     for &n in &path {
-        let stated = &plan.stated[n];
-        match &plan.nodes[n] {
+        let stated = &plan.stated[n.index()];
+        match &plan.nodes[n.index()] {
             Node::Filter(_) => filter = filter.or(stated.low_pass),
             Node::Adc(_) => {
                 rate_hz = stated.rate_hz;
@@ -118,11 +118,15 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
     // The sensing element: the measurand's sensor on the path (a series
     // string's element is driven by the excitation, so look at all
     // measurand sensors and take the slowest).
-    let sensor_time_constant = (0..plan.nodes.len())
+    let sensor_time_constant = plan
+        .node_ids()
         .filter(|&i| sensor_senses_measurand(plan, i))
-        .filter_map(|i| plan.stated[i].time_constant_s)
+        .filter_map(|i| plan.stated[i.index()].time_constant_s)
         .fold(0.0, f64::max);
-    let average = plan.stated[plan.reading].average.unwrap_or(1.0).max(1.0) as u32;
+    let average = plan.stated[plan.reading.index()]
+        .average
+        .unwrap_or(1.0)
+        .max(1.0) as u32;
     let mut d = Dynamics {
         sensor_time_constant,
         filter,
@@ -136,7 +140,7 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
     };
     d.response_90 = d.time_to_fraction(0.9);
     d.mains = MAINS_HZ.iter().map(|&f| (f, d.attenuation(f))).collect();
-    let bits = match &plan.nodes[plan.adc] {
+    let bits = match &plan.nodes[plan.adc.index()] {
         Node::Adc(node::Adc { bits, .. }) => *bits,
         _ => 16,
     };
@@ -155,8 +159,8 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
     d
 }
 
-fn sensor_senses_measurand(plan: &Plan, node: usize) -> bool {
-    match &plan.nodes[node] {
+fn sensor_senses_measurand(plan: &Plan, node: NodeId) -> bool {
+    match &plan.nodes[node.index()] {
         Node::Rtd(node::Rtd { senses, .. })
         | Node::Thermocouple(node::Thermocouple { senses, .. })
         | Node::Thermistor(node::Thermistor { senses, .. })

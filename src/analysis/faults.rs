@@ -356,7 +356,7 @@ impl Codes {
 }
 
 fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> FaultVerdict {
-    let stage = plan.names[fault.node].clone();
+    let stage = plan.names[fault.node.index()].clone();
     let mut verdict = FaultVerdict {
         fault,
         stage,
@@ -390,7 +390,7 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     if verdict.verdict.hidden() {
         let (text, at) = fix(plan, cases, window, &fault, verdict.codes);
         verdict.fix = text;
-        verdict.fix_at = at.map(|n| plan.names[n].clone());
+        verdict.fix_at = at.map(|n| plan.names[n.index()].clone());
         verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
     }
     verdict
@@ -469,7 +469,7 @@ fn fix(
     codes: Option<FaultCodes>,
 ) -> (Option<String>, Option<NodeId>) {
     let here = Some(fault.node);
-    match (fault.kind, &plan.nodes[fault.node]) {
+    match (fault.kind, &plan.nodes[fault.node.index()]) {
         (FaultKind::Open, Node::Thermocouple(_)) => {
             let reader = reader_of(plan, fault.node);
             (burnout_fix(plan, cases, window, fault), reader)
@@ -480,7 +480,7 @@ fn fix(
         (FaultKind::InputOpen, _) if codes.is_none() => (
             Some(format!(
                 "a burnout current on `{}` (`burnout`, {}) drives the open pin to a rail, outside the valid window {} .. {}",
-                plan.names[fault.node], outweighs_bias(plan, fault.node), window.low, window.high
+                plan.names[fault.node.index()], outweighs_bias(plan, fault.node), window.low, window.high
             )),
             here,
         ),
@@ -492,7 +492,7 @@ fn fix(
         (
             Some(format!(
                 "a burnout current on `{}` (`burnout`, {}) drives the open input to a rail, outside the valid window {} .. {}",
-                plan.names[reader_of(plan, fault.node).unwrap_or(fault.node)],
+                plan.names[(reader_of(plan, fault.node).unwrap_or(fault.node)).index()],
                 outweighs_bias(plan, reader_of(plan, fault.node).unwrap_or(fault.node)),
                 window.low, window.high
             )),
@@ -514,7 +514,7 @@ fn fix(
             Some(source) => (
                 Some(format!(
                     "state the compliance of `{}` (`compliance`, the voltage its output runs to with no load), so the open element takes the code to a determined end",
-                    plan.names[source]
+                    plan.names[source.index()]
                 )),
                 Some(source),
             ),
@@ -543,7 +543,7 @@ fn fix(
 /// Whether the fault's code is undetermined only for want of a limit the
 /// spec may leave out.
 fn unstated_limit(plan: &Plan, fault: &Fault) -> bool {
-    match (fault.kind, &plan.nodes[fault.node]) {
+    match (fault.kind, &plan.nodes[fault.node.index()]) {
         // A pin's own open-input current (`burnout`) and an IC's supply
         // are optional: without them the fault is unchecked.
         (FaultKind::InputOpen | FaultKind::StuckHigh, _) => true,
@@ -559,14 +559,14 @@ fn unstated_limit(plan: &Plan, fault: &Fault) -> bool {
 /// The current source an open element on it leaves at an unstated
 /// voltage.
 fn unstated_compliance(plan: &Plan, i: NodeId) -> Option<NodeId> {
-    let input = match &plan.nodes[i] {
+    let input = match &plan.nodes[i.index()] {
         Node::Rtd(n) => n.input,
         Node::Thermistor(n) => n.input,
         Node::Resistor(n) => n.input,
         Node::StrainGauge(n) => n.input,
         _ => None,
     }?;
-    match &plan.nodes[input] {
+    match &plan.nodes[input.index()] {
         Node::Excitation(e) if e.current && e.compliance.is_none() => Some(input),
         _ => None,
     }
@@ -604,7 +604,7 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
     let amps = with_prefix((high / step).ceil() * step, "A", 3);
     Some(format!(
         "a burnout current of at least {amps} on `{}` (`burnout {amps}`) drives the open input clear of the valid window {} .. {}",
-        plan.names[reader],
+        plan.names[reader.index()],
         window.low,
         window.high
     ))
@@ -612,11 +612,14 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
 
 /// The amplifier or converter that reads node `i`.
 fn reader_of(plan: &Plan, i: NodeId) -> Option<NodeId> {
-    plan.nodes.iter().position(|n| match n {
-        Node::Amplifier(a) => a.input == i,
-        Node::Adc(a) => a.input == i,
-        _ => false,
-    })
+    plan.nodes
+        .iter()
+        .position(|n| match n {
+            Node::Amplifier(a) => a.input == i,
+            Node::Adc(a) => a.input == i,
+            _ => false,
+        })
+        .map(NodeId::new)
 }
 
 /// Whether the code rises with the measurand (at the reference, nominal).

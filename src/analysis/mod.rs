@@ -85,11 +85,11 @@ pub fn evaluable_part_of(chain: &Chain, plan: &Plan, fitted: bool) -> Option<Cha
     let ambients = budget::ambients(chain);
     // Every source at each of its limits, as the budget will put it.
     let mut cases = vec![plan.nominal.clone()];
-    for (i, slot) in plan.slots.iter().enumerate() {
+    for (i, slot) in plan.slot_ids().zip(&plan.slots) {
         if slot.kind != crate::eval::SourceKind::Exact {
             for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
                 let mut values = plan.nominal.clone();
-                values[i] = x;
+                values[i.index()] = x;
                 cases.push(values);
             }
         }

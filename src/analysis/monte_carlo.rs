@@ -14,7 +14,7 @@ use super::budget::Point;
 use super::draws::{cell_of, condition_key, normal_of, uniform_of, Stream};
 use super::noise::Noise;
 use crate::eval::{
-    half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneColumns, Plan, Slot,
+    half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneColumns, Plan, Slot, SlotId,
     SourceKind, LANES,
 };
 
@@ -63,7 +63,7 @@ pub struct Sampled {
 /// uniform on [0, 1), worked out once rather than per trial.
 #[derive(Clone, Copy, Debug)]
 struct Draw {
-    slot: usize,
+    slot: SlotId,
     normal: bool,
     origin: f64,
     scale: f64,
@@ -73,7 +73,7 @@ impl Draw {
     /// A slot's draw; a member of a tracking group draws only its own
     /// part, `own` of its half-width about its middle (the group's common
     /// part is added by [`Common`]).
-    fn of(slot: usize, s: &Slot, own: f64) -> Draw {
+    fn of(slot: SlotId, s: &Slot, own: f64) -> Draw {
         let (origin, scale) = if own != 1.0 {
             let (h, mid) = half_width(s);
             if s.normal {
@@ -116,7 +116,7 @@ impl Draw {
 struct Common {
     normal: bool,
     /// Each member's slot and c_i h_i.
-    parts: Vec<(usize, f64)>,
+    parts: Vec<(SlotId, f64)>,
 }
 
 impl Common {
@@ -126,7 +126,7 @@ impl Common {
             parts: group
                 .parts
                 .iter()
-                .map(|p| (p.slot, p.common * half_width(&plan.slots[p.slot]).0))
+                .map(|p| (p.slot, p.common * half_width(&plan.slots[p.slot.index()]).0))
                 .collect(),
         }
     }
@@ -262,7 +262,7 @@ struct Sources {
     /// The sources that vary, each with its stream.
     drawn: Vec<(Draw, Stream)>,
     /// The sources whose limits are zero, at their one value.
-    fixed: Vec<(usize, f64)>,
+    fixed: Vec<(SlotId, f64)>,
     /// Tracking groups' common parts, each with its id's stream.
     groups: Vec<(Common, Stream)>,
 }
@@ -270,7 +270,7 @@ struct Sources {
 impl Sources {
     fn new(plan: &Plan, seed: u64) -> Sources {
         let (mut drawn, mut fixed) = (Vec::new(), Vec::new());
-        for (s, slot) in plan.slots.iter().enumerate() {
+        for (s, slot) in SlotId::all(plan.slots.len()).zip(&plan.slots) {
             if slot.kind == SourceKind::Exact {
                 continue;
             }
@@ -304,13 +304,13 @@ impl Sources {
     fn fill(&self, values: &mut [f64], slots: usize, t0: u64, lanes: usize, cells: &mut Cells) {
         for &(slot, value) in &self.fixed {
             for lane in 0..lanes {
-                values[lane * slots + slot] = value;
+                values[lane * slots + slot.index()] = value;
             }
         }
         for (k, &(draw, stream)) in self.drawn.iter().enumerate() {
             for lane in 0..lanes {
                 let bits = stream.bits(t0 + lane as u64);
-                values[lane * slots + draw.slot] = draw.value(bits);
+                values[lane * slots + draw.slot.index()] = draw.value(bits);
                 cells.record(k, lane, bits);
             }
         }
@@ -319,7 +319,7 @@ impl Sources {
                 let bits = stream.bits(t0 + lane as u64);
                 let x = common.unit(bits);
                 for &(slot, scale) in &common.parts {
-                    values[lane * slots + slot] += scale * x;
+                    values[lane * slots + slot.index()] += scale * x;
                 }
                 cells.record(self.drawn.len() + g, lane, bits);
             }
@@ -330,10 +330,8 @@ impl Sources {
     /// (slots, then groups): the index of its column, none if fixed.
     fn named<'a>(&'a self, plan: &'a Plan) -> impl Iterator<Item = (&'a str, Varies)> + 'a {
         let mut drawn = self.drawn.iter().enumerate().peekable();
-        let slots = plan
-            .slots
-            .iter()
-            .enumerate()
+        let slots = SlotId::all(plan.slots.len())
+            .zip(&plan.slots)
             .filter(|(_, slot)| slot.kind != SourceKind::Exact)
             .map(move |(s, slot)| {
                 let column = drawn.next_if(|(_, (d, _))| d.slot == s).map(|(k, _)| k);

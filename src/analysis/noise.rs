@@ -5,7 +5,7 @@
 //! converter's own noise, over the chain's equivalent noise bandwidth.
 
 use super::stages::signal_path;
-use crate::eval::{node, Env, Node, NoiseBasis, Plan, Signal};
+use crate::eval::{node, Env, Node, NodeId, NoiseBasis, Plan, Signal};
 use crate::model::typed::CombineOp;
 use crate::physics::adc::peak_to_peak_noise;
 use crate::physics::noise::{johnson_voltage_density, rms_over_bandwidth, rms_with_flicker};
@@ -54,8 +54,8 @@ pub fn enbw(plan: &Plan) -> Option<f64> {
     let mut bw: Option<f64> = None;
     let narrow = |bw: &mut Option<f64>, b: f64| *bw = Some(bw.map_or(b, |x: f64| x.min(b)));
     for &n in &path {
-        let stated = &plan.stated[n];
-        match &plan.nodes[n] {
+        let stated = &plan.stated[n.index()];
+        match &plan.nodes[n.index()] {
             Node::Filter(_) => {
                 if let Some(lp) = stated.low_pass {
                     narrow(&mut bw, lp.enbw_hz());
@@ -66,12 +66,27 @@ pub fn enbw(plan: &Plan) -> Option<f64> {
                     narrow(&mut bw, rate / 2.0);
                 }
             }
-            _ => {}
+            // An amplifier's bandwidth is its own noise term's; the rest
+            // set no bandwidth on the path.
+            Node::Amplifier(_)
+            | Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Convert(_) => {}
         }
     }
     if bw.is_none() {
         for &n in &path {
-            if let (Node::Amplifier(_), Some(b)) = (&plan.nodes[n], plan.stated[n].bandwidth_hz) {
+            if let (Node::Amplifier(_), Some(b)) =
+                (&plan.nodes[n.index()], plan.stated[n.index()].bandwidth_hz)
+            {
                 narrow(&mut bw, std::f64::consts::FRAC_PI_2 * b);
             }
         }
@@ -80,8 +95,8 @@ pub fn enbw(plan: &Plan) -> Option<f64> {
 }
 
 /// The resistance behind a node's voltage, Ω (zero for other signals).
-fn source_resistance(signals: &[Signal], node: usize) -> f64 {
-    match signals.get(node) {
+fn source_resistance(signals: &[Signal], node: NodeId) -> f64 {
+    match signals.get(node.index()) {
         Some(Signal::Voltage { rs, .. }) => *rs,
         _ => 0.0,
     }
@@ -98,7 +113,7 @@ fn source_resistance(signals: &[Signal], node: usize) -> f64 {
 fn thermal_term(
     stage: &str,
     signals: &[Signal],
-    input: usize,
+    input: NodeId,
     env: &Env,
     enbw_hz: Option<f64>,
     gain: f64,
@@ -122,11 +137,11 @@ fn thermal_term(
 /// tolerance. `rms_v` here holds measurand units.
 fn excitation_noise(plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTerm> {
     let mut out = Vec::new();
-    for (i, node) in plan.nodes.iter().enumerate() {
+    for (i, node) in plan.node_ids().zip(&plan.nodes) {
         let Node::Excitation(node::Excitation { value, .. }) = node else {
             continue;
         };
-        let Some(noise) = plan.stated[i].noise else {
+        let Some(noise) = plan.stated[i.index()].noise else {
             continue;
         };
         // A density (per root hertz) integrates over the bandwidth.
@@ -140,17 +155,17 @@ fn excitation_noise(plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTe
         };
         let mut values = plan.nominal.clone();
         let mut at = |x: f64| {
-            values[*value] = x;
+            values[value.index()] = x;
             plan.unquantized_reading(&values, env)
         };
         let (Ok(up), Ok(down)) = (
-            at(plan.nominal[*value] + rms),
-            at(plan.nominal[*value] - rms),
+            at(plan.nominal[value.index()] + rms),
+            at(plan.nominal[value.index()] - rms),
         ) else {
             continue;
         };
         out.push(NoiseTerm {
-            id: format!("{}.noise", plan.names[i]),
+            id: format!("{}.noise", plan.names[i.index()]),
             rms_v: (up - down).abs() / 2.0,
         });
     }
@@ -160,16 +175,16 @@ fn excitation_noise(plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTe
 /// A converter's own noise and the thermal noise of what drives it.
 fn converter_terms(
     plan: &Plan,
-    n: usize,
-    input: usize,
+    n: NodeId,
+    input: NodeId,
     signals: &[Signal],
     env: &Env,
     enbw_hz: Option<f64>,
     volts_per_code: f64,
 ) -> Vec<NoiseTerm> {
-    let name = &plan.names[n];
+    let name = &plan.names[n.index()];
     let mut terms = Vec::new();
-    if let Some(noise) = plan.stated[n].noise {
+    if let Some(noise) = plan.stated[n.index()].noise {
         // In `LSB`: one code at the input is `volts_per_code`.
         let per_unit = match noise.basis {
             NoiseBasis::Codes => volts_per_code,
@@ -189,15 +204,15 @@ fn converter_terms(
 /// each `gain_after` to the converter's input, over `bw` Hz.
 fn amplifier_terms(
     plan: &Plan,
-    n: usize,
-    input: usize,
+    n: NodeId,
+    input: NodeId,
     signals: &[Signal],
     env: &Env,
     bw: f64,
     gain_after: f64,
 ) -> Vec<NoiseTerm> {
-    let name = &plan.names[n];
-    let stated = &plan.stated[n];
+    let name = &plan.names[n.index()];
+    let stated = &plan.stated[n.index()];
     let mut terms = Vec::new();
     let rs = source_resistance(signals, input);
     let e_n = stated.noise.map_or(0.0, |noise| noise.amount);
@@ -233,7 +248,7 @@ fn amplifier_terms(
 #[allow(clippy::too_many_arguments)]
 fn branch_terms(
     plan: &Plan,
-    adc: usize,
+    adc: NodeId,
     signals: &[Signal],
     env: &Env,
     enbw_hz: Option<f64>,
@@ -244,7 +259,7 @@ fn branch_terms(
     // Gain from each amplifier's input to the converter's input.
     let mut gain_after = 1.0;
     for n in signal_path(plan, adc) {
-        match &plan.nodes[n] {
+        match &plan.nodes[n.index()] {
             Node::Adc(node::Adc { input, .. }) => {
                 // One code at the input is `per_code` volts.
                 terms.extend(converter_terms(
@@ -252,14 +267,28 @@ fn branch_terms(
                 ));
             }
             Node::Amplifier(node::Amplifier { gain, input, .. }) => {
-                gain_after *= plan.nominal[*gain];
+                gain_after *= plan.nominal[gain.index()];
                 if let Some(bw) = enbw_hz {
                     terms.extend(amplifier_terms(
                         plan, n, *input, signals, env, bw, gain_after,
                     ));
                 }
             }
-            _ => {}
+            // Sensors and resistors show as the source resistance the
+            // next amplifier or converter sees; an excitation's noise is
+            // a term of its own (`excitation_noise`).
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => {}
         }
     }
     if scale != 1.0 {
@@ -275,8 +304,8 @@ fn branch_terms(
 /// of its own path (its amplifiers', the resistances driving them, the
 /// converter's). An excitation's own noise, which a ratiometric reading
 /// cancels, is left out here as it is in the main converter's terms.
-pub fn channel_sigma_codes(plan: &Plan, env: &Env, adc: usize) -> f64 {
-    let Some(Node::Adc(a)) = plan.nodes.get(adc) else {
+pub fn channel_sigma_codes(plan: &Plan, env: &Env, adc: NodeId) -> f64 {
+    let Some(Node::Adc(a)) = plan.nodes.get(adc.index()) else {
         return 0.0;
     };
     let signals = plan
@@ -286,7 +315,7 @@ pub fn channel_sigma_codes(plan: &Plan, env: &Env, adc: usize) -> f64 {
     let Some(vr) = plan.converter_reference(adc, &plan.nominal, env, &signals) else {
         return 0.0;
     };
-    let gain = a.pga.map(|g| plan.nominal[g]).unwrap_or(1.0);
+    let gain = a.pga.map(|g| plan.nominal[g.index()]).unwrap_or(1.0);
     // Volts at its input per code, with its own gain.
     let per_code = vr / (gain * a.per_ref);
     if !(per_code > 0.0 && per_code.is_finite()) {
@@ -319,14 +348,14 @@ pub fn noise(plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
         combine: Some((op, others)),
         input,
         ..
-    })) = plan.nodes.get(plan.adc)
+    })) = plan.nodes.get(plan.adc.index())
     {
-        let volts = |n: usize| match signals.get(n) {
+        let volts = |n: NodeId| match signals.get(n.index()) {
             Some(Signal::Voltage { v, .. }) => *v,
             _ => 0.0,
         };
         for &other in others {
-            let scale = match (op, &plan.nodes[other]) {
+            let scale = match (op, &plan.nodes[other.index()]) {
                 (CombineOp::Sum, _) => 1.0,
                 (CombineOp::Ratio, Node::Adc(o)) if volts(o.input) != 0.0 => {
                     (volts(*input) / volts(o.input)).abs()
@@ -343,7 +372,10 @@ pub fn noise(plan: &Plan, env: &Env, slope: f64, lsb: f64) -> Noise {
         .iter()
         .fold(0.0, |acc, t| acc + t.rms_v * t.rms_v)
         .sqrt();
-    let average = plan.stated[plan.reading].average.unwrap_or(1.0).max(1.0) as u32;
+    let average = plan.stated[plan.reading.index()]
+        .average
+        .unwrap_or(1.0)
+        .max(1.0) as u32;
     let at_converter = if slope != 0.0 {
         total_v / slope.abs()
     } else {

@@ -14,8 +14,8 @@ use rayon::prelude::*;
 use super::budget::conditions;
 use crate::diagnostics::{Code, Finding, Findings};
 use crate::eval::{
-    node, BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SourceKind, LANES,
-    MAX_NODES,
+    node, BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SlotId, SourceKind,
+    LANES, MAX_NODES,
 };
 use crate::model::{Chain, Stage};
 use crate::physics::adc;
@@ -189,7 +189,7 @@ struct Check {
 
 /// Every limited quantity of the plan, node by node.
 fn checks(plan: &Plan) -> Vec<Check> {
-    (0..plan.nodes.len())
+    NodeId::all(plan.nodes.len())
         .flat_map(|node| node_checks(plan, node))
         .collect()
 }
@@ -204,8 +204,8 @@ fn node_checks(plan: &Plan, node: NodeId) -> Vec<Check> {
             unit,
         })
     };
-    let stated = &plan.stated[node];
-    match &plan.nodes[node] {
+    let stated = &plan.stated[node.index()];
+    match &plan.nodes[node.index()] {
         Node::Amplifier(node::Amplifier {
             input_range,
             output,
@@ -269,7 +269,7 @@ fn converter_checks(
     input: NodeId,
     differential: bool,
 ) -> Vec<Check> {
-    let stated = &plan.stated[node];
+    let stated = &plan.stated[node.index()];
     let volts = |limit, allowed: Option<(f64, f64)>| {
         allowed.map(|allowed| Check {
             node,
@@ -309,7 +309,7 @@ fn converter_checks(
 /// The voltage a node gives (a source's or a divider's), zero for other
 /// signals.
 fn voltage_of(s: &[Signal], n: NodeId) -> f64 {
-    match s[n] {
+    match s[n.index()] {
         Signal::Voltage { v, .. } => v,
         Signal::Source(v) => v,
         _ => 0.0,
@@ -319,9 +319,9 @@ fn voltage_of(s: &[Signal], n: NodeId) -> f64 {
 /// The value a check watches, in one raw evaluation.
 fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) -> f64 {
     let node = check.node;
-    match (&plan.nodes[node], check.limit) {
+    match (&plan.nodes[node.index()], check.limit) {
         (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) => {
-            match s[*input] {
+            match s[input.index()] {
                 Signal::Voltage { cm, .. } => cm,
                 _ => 0.0,
             }
@@ -337,8 +337,8 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
                 ..
             }),
             Limit::ConverterPin(pin),
-        ) => pin_voltage(s[*input], *differential, pin),
-        (Node::Adc(node::Adc { input, .. }), Limit::ConverterSettling) => match s[*input] {
+        ) => pin_voltage(s[input.index()], *differential, pin),
+        (Node::Adc(node::Adc { input, .. }), Limit::ConverterSettling) => match s[input.index()] {
             Signal::Voltage { rs, .. } => rs,
             _ => 0.0,
         },
@@ -356,7 +356,7 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
             .converter_own_code(node, values, env, s)
             .and_then(|exact| adc::input_of_code(exact, *bits, *polarity).ok())
             .unwrap_or(0.0),
-        (Node::Adc(node::Adc { bits, polarity, .. }), _) => match s[node] {
+        (Node::Adc(node::Adc { bits, polarity, .. }), _) => match s[node.index()] {
             Signal::Code { exact, .. } => {
                 adc::input_of_code(exact, *bits, *polarity).unwrap_or(0.0)
             }
@@ -368,7 +368,7 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
             Node::Rtd(node::Rtd { input: Some(i), .. })
             | Node::Thermistor(node::Thermistor { input: Some(i), .. }),
             _,
-        ) => match s[*i] {
+        ) => match s[i.index()] {
             Signal::Current(a) => a,
             _ => 0.0,
         },
@@ -394,37 +394,27 @@ fn pin_voltage(input: Signal, differential: bool, pin: Pin) -> f64 {
 /// plus the current-carrying leads of 3- and 4-wire elements, which the
 /// measurement does not see.
 fn compliance_voltage(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
-    let current = match s[exc] {
+    let current = match s[exc.index()] {
         Signal::Current(a) => a,
         _ => 0.0,
     };
-    plan.nodes
-        .iter()
-        .enumerate()
-        .filter_map(|(n, node)| {
-            let driven = match node {
-                Node::Rtd(node::Rtd { input, .. })
-                | Node::Thermistor(node::Thermistor { input, .. })
-                | Node::StrainGauge(node::StrainGauge { input, .. })
-                | Node::Resistor(node::Resistor { input, .. }) => *input == Some(exc),
-                _ => false,
+    NodeId::all(plan.nodes.len())
+        .zip(&plan.nodes)
+        .filter(|(_, node)| node.element_input() == Some(exc))
+        .map(|(n, node)| {
+            let leads = match node {
+                Node::Rtd(node::Rtd {
+                    leads: Some((a, b)),
+                    wiring,
+                    ..
+                }) => {
+                    let (a, b) = (values[a.index()], values[b.index()]);
+                    let unseen = lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
+                    unseen * current
+                }
+                _ => 0.0,
             };
-            driven.then(|| {
-                let leads = match node {
-                    Node::Rtd(node::Rtd {
-                        leads: Some((a, b)),
-                        wiring,
-                        ..
-                    }) => {
-                        let (a, b) = (values[*a], values[*b]);
-                        let unseen =
-                            lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
-                        unseen * current
-                    }
-                    _ => 0.0,
-                };
-                voltage_of(s, n) + leads
-            })
+            voltage_of(s, n) + leads
         })
         .sum()
 }
@@ -443,7 +433,7 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
                 arms,
                 ..
             }) if *e == exc => {
-                let fixed = r.map(|r| values[r]).unwrap_or(0.0);
+                let fixed = r.map(|r| values[r.index()]).unwrap_or(0.0);
                 let load = bridge_load(*kind, fixed, arms, s);
                 if load > 0.0 {
                     v / load
@@ -455,7 +445,7 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
                 input: Some(i),
                 r: Some(r),
                 ..
-            }) if *i == exc => v / values[*r],
+            }) if *i == exc => v / values[r.index()],
             _ => 0.0,
         })
         .sum()
@@ -465,7 +455,7 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
 /// completion resistors all `fixed`. Arm positions as in the evaluator:
 /// r1 r2 | r3 r4.
 fn bridge_load(kind: BridgeKind, fixed: f64, arms: &[NodeId], s: &[Signal]) -> f64 {
-    let arm = |k: usize| match arms.get(k).map(|&a| s[a]) {
+    let arm = |k: usize| match arms.get(k).map(|&a| s[a.index()]) {
         Some(Signal::Element(r)) => r,
         _ => fixed,
     };
@@ -503,11 +493,11 @@ thread_local! {
 }
 
 /// Every source at both limits, in order: low, high, low, high, ...
-fn source_limits(plan: &Plan) -> Vec<(usize, f64)> {
-    (0..plan.slots.len())
-        .filter(|&s| plan.slots[s].kind != SourceKind::Exact)
+fn source_limits(plan: &Plan) -> Vec<(SlotId, f64)> {
+    SlotId::all(plan.slots.len())
+        .filter(|&s| plan.slots[s.index()].kind != SourceKind::Exact)
         .flat_map(|s| {
-            let slot = &plan.slots[s];
+            let slot = &plan.slots[s.index()];
             [
                 (s, slot.nominal - slot.minus),
                 (s, slot.nominal + slot.plus),
@@ -523,7 +513,7 @@ fn source_limits(plan: &Plan) -> Vec<(usize, f64)> {
 fn reach_at(
     plan: &Plan,
     checks: &[Check],
-    limits: &[(usize, f64)],
+    limits: &[(SlotId, f64)],
     env: &Env,
 ) -> Result<Vec<(f64, f64)>, EvalError> {
     let nominal = plan.raw_signals(&plan.nominal, env)?;
@@ -538,7 +528,7 @@ fn reach_at(
     let mut changes = Vec::with_capacity(limits.len() * checks.len());
     for batch in limits.chunks(LANES) {
         for (lane, &(s, x)) in batch.iter().enumerate() {
-            values[lane * n + s] = x;
+            values[lane * n + s.index()] = x;
         }
         plan.raw_signals_lanes(&values, env, &mut scratch)?;
         for (lane, &(s, _)) in batch.iter().enumerate() {
@@ -548,7 +538,7 @@ fn reach_at(
             for (k, c) in checks.iter().enumerate() {
                 changes.push(value(plan, lane_values, env, &scratch[lane], c) - q0[k]);
             }
-            values[lane * n + s] = plan.nominal[s];
+            values[lane * n + s.index()] = plan.nominal[s.index()];
         }
     }
     // Summed apart, then added to the nominal.
@@ -615,12 +605,12 @@ fn gather(
 /// The thermocouple right at amplifier `node`'s input, by name, when it
 /// has no bias: the one floating source a `bias_voltage` moves.
 fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
-    let Node::Amplifier(node::Amplifier { input, .. }) = plan.nodes[node] else {
+    let Node::Amplifier(node::Amplifier { input, .. }) = plan.nodes[node.index()] else {
         return None;
     };
-    match plan.nodes[input] {
+    match plan.nodes[input.index()] {
         Node::Thermocouple(node::Thermocouple { bias: None, .. }) => {
-            Some(plan.names[input].as_str())
+            Some(plan.names[input.index()].as_str())
         }
         _ => None,
     }
@@ -736,7 +726,10 @@ fn finding(
     if headroom >= needed || a_worse_pin(envelopes, e) {
         return None;
     }
-    let stage = chain.stages.iter().find(|s| s.name == plan.names[e.node])?;
+    let stage = chain
+        .stages
+        .iter()
+        .find(|s| s.name == plan.names[e.node.index()])?;
     let side = Side::of(e, margin);
     let f = Finding::new(
         if headroom < 0.0 {
@@ -806,8 +799,13 @@ fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -
             }
         }
     }
-    let stage_of = |node: NodeId| chain.stages.iter().find(|s| s.name == plan.names[node]);
-    match (&plan.nodes[e.node], e.limit) {
+    let stage_of = |node: NodeId| {
+        chain
+            .stages
+            .iter()
+            .find(|s| s.name == plan.names[node.index()])
+    };
+    match (&plan.nodes[e.node.index()], e.limit) {
         (Node::Amplifier(node::Amplifier { input, .. }), Limit::AmplifierInput) => {
             if let Some(driver) = stage_of(*input) {
                 f = f.label(driver.name_span, "sets its input common mode");
@@ -830,7 +828,7 @@ fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -
 
 /// The nominal value of the envelope's stage's parameter `name`.
 fn nominal_of(plan: &Plan, node: NodeId, name: &str) -> Option<f64> {
-    let id = format!("{}.{name}", plan.names[node]);
+    let id = format!("{}.{name}", plan.names[node.index()]);
     plan.slots
         .iter()
         .position(|s| s.id == id)
@@ -1088,7 +1086,7 @@ mod tests {
 
     fn envelope(allowed: (f64, f64), reach: (f64, f64)) -> Envelope {
         Envelope {
-            node: 0,
+            node: NodeId::new(0),
             limit: Limit::AmplifierOutput,
             allowed,
             reach,
@@ -1136,9 +1134,14 @@ mod tests {
     fn bridge_loads() {
         let mut s = [Signal::None; MAX_NODES];
         s[1] = Signal::Element(351.0);
-        let quarter = bridge_load(BridgeKind::Quarter, 350.0, &[1], &s);
+        let quarter = bridge_load(BridgeKind::Quarter, 350.0, &[NodeId::new(1)], &s);
         assert!(close(quarter, 701.0 * 700.0 / 1401.0), "{quarter}");
-        let divider = bridge_load(BridgeKind::Divider { sensor_high: false }, 1e4, &[1], &s);
+        let divider = bridge_load(
+            BridgeKind::Divider { sensor_high: false },
+            1e4,
+            &[NodeId::new(1)],
+            &s,
+        );
         assert_eq!(divider, 10_351.0);
     }
 }

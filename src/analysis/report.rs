@@ -268,12 +268,14 @@ fn add_detail(
             cold_junction: plan.reference,
         });
     analysis.accumulation = accumulation(plan, &worst)?;
-    analysis.uncalibrated = match &plan.nodes[plan.reading] {
+    analysis.uncalibrated = match &plan.nodes[plan.reading.index()] {
         Node::Convert(node::Convert { conversion, .. })
             if conversion.calibration != Calibration::None =>
         {
             let mut bare = plan.clone();
-            if let Node::Convert(node::Convert { conversion, .. }) = &mut bare.nodes[bare.reading] {
+            if let Node::Convert(node::Convert { conversion, .. }) =
+                &mut bare.nodes[bare.reading.index()]
+            {
                 conversion.calibration = Calibration::None;
             }
             let b = budget::budget(chain, &bare, &options.budget)?;

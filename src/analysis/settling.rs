@@ -32,10 +32,10 @@ impl Sampling {
     /// its own (or drives it from an output this model does not know), so
     /// there the check does not apply.
     pub fn of(plan: &Plan, node: NodeId, bits: u32, input: NodeId) -> Option<Self> {
-        if matches!(plan.nodes[input], Node::Filter(_)) {
+        if matches!(plan.nodes[input.index()], Node::Filter(_)) {
             return None;
         }
-        let stated = plan.stated[node].sampling?;
+        let stated = plan.stated[node.index()].sampling?;
         Some(Sampling {
             bits,
             capacitance: stated.capacitance,
@@ -69,7 +69,7 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
         .iter()
         .filter(|e| e.limit == Limit::ConverterSettling)
     {
-        let Node::Adc(node::Adc { bits, input, .. }) = plan.nodes[e.node] else {
+        let Node::Adc(node::Adc { bits, input, .. }) = plan.nodes[e.node.index()] else {
             continue;
         };
         let Some(sampling) = Sampling::of(plan, e.node, bits, input) else {
@@ -80,7 +80,11 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
         if error <= SETTLED_LSB {
             continue;
         }
-        let Some(stage) = chain.stages.iter().find(|s| s.name == plan.names[e.node]) else {
+        let Some(stage) = chain
+            .stages
+            .iter()
+            .find(|s| s.name == plan.names[e.node.index()])
+        else {
             continue;
         };
         let unit = chain.measurand_unit();
@@ -124,7 +128,11 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
                 }
             }
         }
-        if let Some(source_stage) = chain.stages.iter().find(|s| s.name == plan.names[input]) {
+        if let Some(source_stage) = chain
+            .stages
+            .iter()
+            .find(|s| s.name == plan.names[input.index()])
+        {
             f = f.label(source_stage.name_span, "the source behind its input");
         }
         out.push(f.help(help));

@@ -68,13 +68,21 @@ pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
     }
     for n in &analysis.accumulation {
         if !all_finite(&[n.value, n.gain, n.error]) {
-            let stage = analysis.names.get(n.node).cloned().unwrap_or_default();
+            let stage = analysis
+                .names
+                .get(n.node.index())
+                .cloned()
+                .unwrap_or_default();
             blame(n.dominant.as_deref().unwrap_or(&stage), "signal path");
         }
     }
     for e in &analysis.envelopes {
         if !all_finite(&[e.reach.0, e.reach.1]) {
-            let stage = analysis.names.get(e.node).cloned().unwrap_or_default();
+            let stage = analysis
+                .names
+                .get(e.node.index())
+                .cloned()
+                .unwrap_or_default();
             blame(&stage, "signal's reach");
         }
     }

@@ -78,7 +78,7 @@ pub fn code_window_from(
     plan: &Plan,
     envelopes: &[ranges::Envelope],
 ) -> Result<CodeWindow, EvalError> {
-    let Node::Adc(adc) = &plan.nodes[plan.adc] else {
+    let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
         return Err(numeric(plan, "no converter"));
     };
     let own = own_window(plan, envelopes, plan.adc, noise_codes(plan)?)?;
@@ -88,13 +88,13 @@ pub fn code_window_from(
     };
     let mut channels = vec![ChannelWindow {
         node: plan.adc,
-        name: plan.names[plan.adc].clone(),
+        name: plan.names[plan.adc.index()].clone(),
         window: own_window(plan, envelopes, plan.adc, channel_noise(plan, plan.adc))?,
     }];
     for &n in others {
         channels.push(ChannelWindow {
             node: n,
-            name: plan.names[n].clone(),
+            name: plan.names[n.index()].clone(),
             window: own_window(plan, envelopes, n, channel_noise(plan, n))?,
         });
     }
@@ -123,7 +123,7 @@ fn own_window(
     node: NodeId,
     sigma_codes: f64,
 ) -> Result<CodeWindow, EvalError> {
-    let Node::Adc(adc) = &plan.nodes[node] else {
+    let Node::Adc(adc) = &plan.nodes[node.index()] else {
         return Err(numeric(plan, "no converter"));
     };
     let per_ref = match adc.polarity {
@@ -176,7 +176,7 @@ fn channel_noise(plan: &Plan, node: NodeId) -> f64 {
 
 fn numeric(plan: &Plan, what: &str) -> EvalError {
     EvalError::Numeric {
-        stage: plan.names[plan.adc].clone(),
+        stage: plan.names[plan.adc.index()].clone(),
         what: what.to_string(),
     }
 }

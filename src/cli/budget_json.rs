@@ -6,6 +6,7 @@ use std::collections::BTreeMap;
 use serde::Serialize;
 
 use crate::analysis::report::Analysis;
+use crate::eval::NodeId;
 use crate::model::{Chain, RequirementKind};
 use crate::units::format::{from_si, trimmed};
 
@@ -130,8 +131,8 @@ pub(super) struct BudgetJson {
     requirements: Vec<RequirementJson>,
 }
 
-fn plan_name(a: &Analysis, node: usize) -> String {
-    a.names.get(node).cloned().unwrap_or_default()
+fn plan_name(a: &Analysis, node: NodeId) -> String {
+    a.names.get(node.index()).cloned().unwrap_or_default()
 }
 
 /// One chain's budget as its JSON document, in the report's units.

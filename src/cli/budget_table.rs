@@ -147,7 +147,7 @@ fn signal_path(a: &Analysis, unit: &str, f: f64, v: &dyn Fn(f64) -> String) -> S
         format!("error ({unit}, 1 σ)"),
     ]);
     for n in &a.accumulation {
-        let name = a.names.get(n.node).cloned().unwrap_or_default();
+        let name = a.names.get(n.node.index()).cloned().unwrap_or_default();
         let value = if n.unit == "code" {
             format!("{} (code)", significant(n.value, 7))
         } else {
@@ -182,7 +182,7 @@ fn limits(a: &Analysis) -> String {
     let mut t = table();
     t.set_header(["stage", "signal", "reaches", "allowed", "headroom"]);
     for e in &a.envelopes {
-        let name = a.names.get(e.node).cloned().unwrap_or_default();
+        let name = a.names.get(e.node.index()).cloned().unwrap_or_default();
         let show = |x: f64| {
             if !x.is_finite() {
                 "—".to_string()

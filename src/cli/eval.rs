@@ -173,7 +173,8 @@ fn plan_at<'a>(
 /// clamped and not the measurand.
 fn outside_range(chain: &Chain, plan: &Plan, signals: &[Signal], env: &Env) -> Findings {
     let mut out = Findings::new();
-    let (Some(m), Signal::Reading(reading)) = (&chain.measurand, signals[plan.reading]) else {
+    let (Some(m), Signal::Reading(reading)) = (&chain.measurand, signals[plan.reading.index()])
+    else {
         return out;
     };
     let (lo, hi) = plan.range;
@@ -182,7 +183,7 @@ fn outside_range(chain: &Chain, plan: &Plan, signals: &[Signal], env: &Env) -> F
     }
     let show = |x: f64| format!("{} {}", trimmed(from_si(x, &m.unit), 6), m.unit);
     let range = format!("{} .. {}", trimmed(from_si(lo, &m.unit), 6), show(hi));
-    let code = match signals[plan.adc] {
+    let code = match signals[plan.adc.index()] {
         Signal::Code { code, .. } => code,
         _ => return out,
     };
@@ -223,7 +224,7 @@ fn outside_range(chain: &Chain, plan: &Plan, signals: &[Signal], env: &Env) -> F
 /// the converter's rail, or the exact code standing still (a stage
 /// saturated before the converter). None where it still moves.
 fn stopped(plan: &Plan, env: &Env, code: i64) -> Option<String> {
-    if let Node::Adc(node::Adc { bits, polarity, .. }) = &plan.nodes[plan.adc] {
+    if let Node::Adc(node::Adc { bits, polarity, .. }) = &plan.nodes[plan.adc.index()] {
         if let Ok((low, high)) = crate::physics::adc::code_range(*bits, *polarity) {
             if code <= low || code >= high {
                 return Some(format!("the code is at the converter's rail ({code})"));
@@ -436,7 +437,7 @@ impl View<'_> {
     }
 
     fn reading(&self) -> Option<f64> {
-        match self.signals[self.plan.reading] {
+        match self.signals[self.plan.reading.index()] {
             Signal::Reading(x) => Some(x),
             _ => None,
         }
@@ -466,7 +467,7 @@ impl View<'_> {
     }
 
     fn code(&self) -> i64 {
-        match self.signals[self.plan.adc] {
+        match self.signals[self.plan.adc.index()] {
             Signal::Code { code, .. } => code,
             _ => 0,
         }

@@ -362,7 +362,7 @@ impl Conversion {
         x: f64,
         cj: Option<f64>,
     ) -> Env {
-        let cj_error = self.cj_error.map(|s| values[s]).unwrap_or(0.0);
+        let cj_error = self.cj_error.map(|s| values[s.index()]).unwrap_or(0.0);
         match self.variable {
             Senses::Measurand => Env {
                 measurand: x,
@@ -496,7 +496,7 @@ impl Conversion {
     ) -> Result<Calibrated, EvalError> {
         let at =
             |p: f64, code: f64| self.invert(chain, values, &calibration_env(chain, p), code, None);
-        let err = |s: Option<SlotId>| s.map(|s| values[s]).unwrap_or(0.0);
+        let err = |s: Option<SlotId>| s.map(|s| values[s.index()]).unwrap_or(0.0);
         Ok(match self.calibration {
             Calibration::None => Calibrated::None,
             // A reference that reads δ high makes the chain read δ high.

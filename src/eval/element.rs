@@ -4,7 +4,7 @@
 
 use super::lanes::{LaneRun, Lost};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
-use super::plan::{Env, EvalError, NodeId, Plan, Signal};
+use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::{within, LANES};
 use crate::physics::{rtd, strain, thermistor};
 use crate::units::ZERO_CELSIUS_K;
@@ -22,7 +22,7 @@ pub(super) enum Supply {
 /// response is strongly curved (a thermistor), for [`self_heated`].
 #[derive(Clone, Copy, Debug)]
 pub(super) struct Heating {
-    pub dissipation: usize,
+    pub dissipation: SlotId,
     pub curved: bool,
 }
 
@@ -30,7 +30,7 @@ impl Plan {
     /// The element's self-heating, if it states a dissipation constant.
     #[inline]
     pub(super) fn heating(&self, n: NodeId) -> Option<Heating> {
-        match &self.nodes[n] {
+        match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 dissipation: Some(d),
                 ..
@@ -70,12 +70,12 @@ impl Plan {
     /// arm less this is the element itself, without evaluating its curve
     /// again.
     fn element_leads(&self, n: NodeId, values: &[f64]) -> f64 {
-        match &self.nodes[n] {
+        match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 wiring,
                 leads: Some((a, b)),
                 ..
-            }) => rtd::lead_series_resistance(*wiring, values[*a], values[*b]),
+            }) => rtd::lead_series_resistance(*wiring, values[a.index()], values[b.index()]),
             Node::Rtd(node::Rtd { leads: None, .. })
             | Node::Thermistor(_)
             | Node::Excitation(_)
@@ -108,7 +108,7 @@ impl Plan {
         let cold = curve.resistance(t).map_err(|_| self.no_resistance(n))?;
         match (current, self.heating(n)) {
             (Some(a), Some(heating)) => {
-                let delta = values[heating.dissipation];
+                let delta = values[heating.dissipation.index()];
                 self_heated(cold, heating.curved, |r| {
                     curve.heated_resistance(t, a * a * r, delta)
                 })
@@ -139,7 +139,7 @@ impl Plan {
         values: &[f64],
         env: &Env,
     ) -> Result<(ElementCurve, f64), EvalError> {
-        match &self.nodes[n] {
+        match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 curve,
                 coefficient_errors,
@@ -152,7 +152,11 @@ impl Plan {
                 let range = curve.range_c();
                 let t_c = within(t - ZERO_CELSIUS_K, range)
                     .ok_or_else(|| self.out_of_range(n, "the element's curve", t, range))?;
-                let error = |k: usize| coefficient_errors[k].map(|s| values[s]).unwrap_or(0.0);
+                let error = |k: usize| {
+                    coefficient_errors[k]
+                        .map(|s| values[s.index()])
+                        .unwrap_or(0.0)
+                };
                 let curve = match *curve {
                     RtdCurve::Cvd { a, b, c } => RtdCurve::Cvd {
                         a: a + error(0),
@@ -163,8 +167,8 @@ impl Plan {
                 };
                 let element = ElementCurve::Rtd {
                     curve,
-                    r0: values[*r0],
-                    deviation: deviation.map(|(d0, da)| (values[d0], values[da])),
+                    r0: values[r0.index()],
+                    deviation: deviation.map(|(d0, da)| (values[d0.index()], values[da.index()])),
                 };
                 Ok((element, t_c))
             }
@@ -173,8 +177,8 @@ impl Plan {
             }) => {
                 let element = match curve {
                     ThermistorCurve::Beta { beta } => ElementCurve::Beta {
-                        r25: values[*r25],
-                        beta: values[*beta],
+                        r25: values[r25.index()],
+                        beta: values[beta.index()],
                     },
                     ThermistorCurve::SteinhartHart { a, b, c } => {
                         ElementCurve::SteinhartHart(thermistor::SteinhartHart {
@@ -213,7 +217,7 @@ impl Plan {
         env: &Env,
         power: impl Fn(f64) -> f64,
     ) -> Result<f64, EvalError> {
-        let delta = values[heating.dissipation];
+        let delta = values[heating.dissipation.index()];
         let (curve, t) = self.element_curve(n, values, env)?;
         self_heated(cold, heating.curved, |r| {
             curve.heated_resistance(t, power(r), delta)

@@ -244,8 +244,8 @@ impl Plan {
     pub fn faults(&self) -> Vec<Fault> {
         let feeds = self.feeds(self.adc);
         let mut out = Vec::new();
-        for i in (0..self.nodes.len()).filter(|&i| feeds[i]) {
-            for &kind in self.nodes[i].faults() {
+        for i in NodeId::all(self.nodes.len()).filter(|&i| feeds[i.index()]) {
+            for &kind in self.nodes[i.index()].faults() {
                 let burnout = match kind {
                     FaultKind::InputOpen => self.burnout_of(i),
                     _ => self.burnout_into(i),
@@ -265,8 +265,8 @@ impl Plan {
         let mut feeds = vec![false; self.nodes.len()];
         let mut stack = vec![target];
         while let Some(n) = stack.pop() {
-            if !std::mem::replace(&mut feeds[n], true) {
-                stack.extend(self.nodes[n].inputs());
+            if !std::mem::replace(&mut feeds[n.index()], true) {
+                stack.extend(self.nodes[n.index()].inputs());
             }
         }
         feeds
@@ -275,11 +275,11 @@ impl Plan {
     /// The burnout current the stage reading node `i` sources into it
     /// (see [`Plan::burnout_of`]).
     pub fn burnout_into(&self, i: NodeId) -> Option<f64> {
-        let reader = self.nodes.iter().position(|n| match n {
+        let reader = NodeId::new(self.nodes.iter().position(|n| match n {
             Node::Amplifier(a) => a.input == i,
             Node::Adc(a) => a.input == i,
             _ => false,
-        })?;
+        })?);
         self.burnout_of(reader)
     }
 
@@ -288,7 +288,7 @@ impl Plan {
     /// current as large or larger, with nowhere else to go, leaves the
     /// open input's direction undetermined.
     pub fn burnout_of(&self, i: NodeId) -> Option<f64> {
-        let burnout = match &self.nodes[i] {
+        let burnout = match &self.nodes[i.index()] {
             Node::Amplifier(a) => a.burnout,
             Node::Adc(a) => a.burnout,
             _ => None,
@@ -299,9 +299,9 @@ impl Plan {
     /// The largest input bias current amplifier or converter `i` states,
     /// A: an amplifier's `bias` at its limit, a converter's `bias`.
     pub fn input_bias(&self, i: NodeId) -> Option<f64> {
-        match &self.nodes[i] {
+        match &self.nodes[i.index()] {
             Node::Amplifier(amp) => amp.bias.map(|b| {
-                let slot = &self.slots[b];
+                let slot = &self.slots[b.index()];
                 slot.nominal.abs() + slot.plus.max(slot.minus)
             }),
             Node::Adc(adc) => adc.bias,
@@ -316,8 +316,8 @@ impl Plan {
         if !fault.kind.breaks_loop() {
             return None;
         }
-        let input = self.nodes[fault.node].element_input()?;
-        match &self.nodes[input] {
+        let input = self.nodes[fault.node.index()].element_input()?;
+        match &self.nodes[input.index()] {
             Node::Excitation(e) if e.current => Some(input),
             _ => None,
         }
@@ -364,8 +364,8 @@ impl Plan {
         let here = |i: NodeId| if i == fault.node { Some(fault) } else { None };
         // A channel read before the main converter needs nothing after it.
         let last = channel.unwrap_or(self.adc);
-        for i in 0..=last {
-            if matches!(self.nodes[i], Node::Convert(_)) {
+        for i in NodeId::all(last.index() + 1) {
+            if matches!(self.nodes[i.index()], Node::Convert(_)) {
                 continue;
             }
             let s = if starved == Some(i) {
@@ -381,7 +381,7 @@ impl Plan {
                 self.faulted_node(i, values, env, &signals, mode, here(i))?
             };
             match s {
-                Faulted::Signal(s) => signals[i] = s,
+                Faulted::Signal(s) => signals[i.index()] = s,
                 Faulted::Undetermined(why) => return Ok(FaultCode::Undetermined(why)),
                 // One channel of a sum at an end nothing chooses leaves
                 // the sum anywhere among the ends' combinations: only the
@@ -395,7 +395,7 @@ impl Plan {
                 Faulted::EitherEnd => return Ok(FaultCode::EitherEnd),
             }
         }
-        match signals[last] {
+        match signals[last.index()] {
             Signal::Code { exact, .. } => Ok(FaultCode::Code(exact)),
             _ => Err(self.numeric(last, "no code")),
         }
@@ -404,7 +404,7 @@ impl Plan {
     /// Whether node `i` is a channel the main converter's conversion adds
     /// (the main converter itself included).
     fn summed(&self, i: NodeId) -> bool {
-        match &self.nodes[self.adc] {
+        match &self.nodes[self.adc.index()] {
             Node::Adc(adc) => match &adc.combine {
                 Some((crate::model::typed::CombineOp::Sum, others)) => {
                     i == self.adc || others.contains(&i)

@@ -184,12 +184,12 @@ impl LaneRun<'_> {
 
     #[inline(always)]
     pub fn slot(&self, s: SlotId) -> [f64; LANES] {
-        self.values[s]
+        self.values[s.index()]
     }
 
     #[inline(always)]
     pub fn or_zero(&self, s: Option<SlotId>) -> [f64; LANES] {
-        s.map(|s| self.values[s]).unwrap_or([0.0; LANES])
+        s.map(|s| self.values[s.index()]).unwrap_or([0.0; LANES])
     }
 
     /// [`Plan::drifted`] in every lane.
@@ -199,7 +199,7 @@ impl LaneRun<'_> {
         match drift {
             None => value,
             Some(d) => {
-                let c = &self.values[d.slot];
+                let c = &self.values[d.slot.index()];
                 let mut out = [0.0; LANES];
                 for k in 0..LANES {
                     out[k] = if d.relative {
@@ -216,7 +216,7 @@ impl LaneRun<'_> {
     /// The current a current source drives into `input`, if it is one.
     #[inline(always)]
     pub fn current_into(&self, input: Option<NodeId>) -> Option<&[f64; LANES]> {
-        input.and_then(|n| self.s[n].of(Tag::Current))
+        input.and_then(|n| self.s[n.index()].of(Tag::Current))
     }
 
     /// `Run::element` in every lane: a resistive element of `r` Ω.
@@ -225,13 +225,13 @@ impl LaneRun<'_> {
         let Some(a) = self.current_into(input) else {
             return Column::scalar(Tag::Element, r);
         };
-        let below = &self.plan.series_below[self.i];
+        let below = &self.plan.series_below[self.i.index()];
         let (mut v, mut cm) = ([0.0; LANES], [0.0; LANES]);
         for k in 0..LANES {
             let lift: f64 = below
                 .iter()
-                .map(|&n| match self.s[n].tag {
-                    Tag::Voltage => self.s[n].x[k],
+                .map(|&n| match self.s[n.index()].tag {
+                    Tag::Voltage => self.s[n.index()].x[k],
                     _ => 0.0,
                 })
                 .sum();

@@ -54,10 +54,10 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
     }
     let strings = series_strings(chain);
     let order = evaluation_order(chain, &strings)?;
-    let node_of = |stage: usize| order.iter().position(|&s| s == stage).unwrap_or(0);
+    let node_of = |stage: usize| NodeId::new(order.iter().position(|&s| s == stage).unwrap_or(0));
     let (nodes, cx, sense_error) = lower_nodes(chain, measurand, &order, &node_of)?;
     let reading = node_of(reading_stage(chain)?);
-    let Node::Convert(node::Convert { input: adc, .. }) = &nodes[reading] else {
+    let Node::Convert(node::Convert { input: adc, .. }) = &nodes[reading.index()] else {
         return Err(not_invertible(
             &chain.name,
             "the reading is not a conversion",
@@ -67,7 +67,8 @@ pub fn lower_unvalidated(chain: &Chain) -> Result<(Plan, Result<(), EvalError>),
     let mut series_below = vec![Vec::new(); order.len()];
     for string in &strings {
         for (k, &stage) in string.iter().enumerate() {
-            series_below[node_of(stage)] = string[k + 1..].iter().map(|&s| node_of(s)).collect();
+            series_below[node_of(stage).index()] =
+                string[k + 1..].iter().map(|&s| node_of(s)).collect();
         }
     }
     let mut plan = Plan {
@@ -320,7 +321,7 @@ fn check_validity(plan: &Plan, ambient: (f64, f64)) -> Result<(), EvalError> {
         for (what, range_c) in ranges.into_iter().flatten() {
             for t in [low, high] {
                 if within(t - ZERO_CELSIUS_K, range_c).is_none() {
-                    return Err(plan.out_of_range(i, &what, t, range_c));
+                    return Err(plan.out_of_range(NodeId::new(i), &what, t, range_c));
                 }
             }
         }
@@ -426,19 +427,19 @@ fn fit_conversions(plan: &mut Plan) -> Result<(), EvalError> {
         [(ty, Senses::Measurand)] => Some(ty),
         _ => None,
     };
-    for node in 0..plan.nodes.len() {
-        let Node::Convert(convert) = &plan.nodes[node] else {
+    for node in NodeId::all(plan.nodes.len()) {
+        let Node::Convert(convert) = &plan.nodes[node.index()] else {
             continue;
         };
         let method = convert.method;
         let mut conversion = (*convert.conversion).clone();
-        let stage = plan.names[node].clone();
+        let stage = plan.names[node.index()].clone();
         narrow_domain(plan, &env, &mut conversion, &stage)?;
         let complete = conversion.variable == Senses::ColdJunction || !has_thermocouple;
         conversion
             .fit(plan, &env, method, complete, measuring_couple)
             .map_err(|what| not_invertible(&stage, what))?;
-        if let Node::Convert(c) = &mut plan.nodes[node] {
+        if let Node::Convert(c) = &mut plan.nodes[node.index()] {
             *c.conversion = conversion;
         }
     }

@@ -150,3 +150,20 @@ pub struct Plan {
     /// noise, timing), by node.
     pub stated: Vec<super::stated::Stated>,
 }
+
+impl Plan {
+    /// Every node's id, in evaluation order.
+    pub fn node_ids(&self) -> impl DoubleEndedIterator<Item = NodeId> + ExactSizeIterator {
+        NodeId::all(self.nodes.len())
+    }
+
+    /// Every slot's id, in order.
+    pub fn slot_ids(&self) -> impl DoubleEndedIterator<Item = SlotId> + ExactSizeIterator {
+        SlotId::all(self.slots.len())
+    }
+
+    /// The node of the stage named `name`.
+    pub fn node_named(&self, name: &str) -> Option<NodeId> {
+        self.names.iter().position(|n| n == name).map(NodeId::new)
+    }
+}

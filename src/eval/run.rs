@@ -64,15 +64,15 @@ impl Mode {
     };
 }
 
-/// Which nodes a run evaluates, up to (not including) a node.
+/// Which nodes a run evaluates: the first so many.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub(super) enum Reach {
     /// Every node, conversions included.
-    All(NodeId),
+    All(usize),
     /// The chain's electronics, up to a converter's code: what the
     /// firmware models, so conversions (which invert that model) are left
     /// out.
-    Electronics(NodeId),
+    Electronics(usize),
 }
 
 impl Plan {
@@ -83,8 +83,8 @@ impl Plan {
             Reach::All(until) => (until, true),
             Reach::Electronics(until) => (until, false),
         };
-        (0..until.min(self.nodes.len()))
-            .filter(move |&i| conversions || !matches!(self.nodes[i], Node::Convert(_)))
+        NodeId::all(until.min(self.nodes.len()))
+            .filter(move |&i| conversions || !matches!(self.nodes[i.index()], Node::Convert(_)))
     }
 }
 
@@ -167,10 +167,10 @@ impl Plan {
             values,
             env,
             &mut signals,
-            Reach::All(self.reading + 1),
+            Reach::All(self.reading.index() + 1),
             Mode::FULL,
         )?;
-        match signals[self.reading] {
+        match signals[self.reading.index()] {
             Signal::Reading(x) => Ok(x),
             _ => Err(self.numeric(self.reading, "no reading")),
         }
@@ -184,10 +184,10 @@ impl Plan {
             values,
             env,
             &mut signals,
-            Reach::Electronics(adc + 1),
+            Reach::Electronics(adc.index() + 1),
             Mode::CODES,
         )?;
-        match signals[adc] {
+        match signals[adc.index()] {
             Signal::Code { exact, .. } => Ok(exact),
             _ => Err(self.numeric(adc, "no code")),
         }
@@ -205,10 +205,10 @@ impl Plan {
             values,
             env,
             &mut signals,
-            Reach::Electronics(adc + 1),
+            Reach::Electronics(adc.index() + 1),
             Mode::CALIBRATION,
         )?;
-        match signals[adc] {
+        match signals[adc.index()] {
             Signal::Code { exact, .. } => Ok(exact),
             _ => Err(self.numeric(adc, "no code")),
         }
@@ -228,14 +228,14 @@ impl Plan {
             if !finite(s) {
                 return Err(self.numeric(i, "a signal is not a finite number"));
             }
-            signals[i] = s;
+            signals[i.index()] = s;
         }
         Ok(())
     }
 
     pub(super) fn numeric(&self, node: NodeId, what: &str) -> EvalError {
         EvalError::Numeric {
-            stage: self.names[node].clone(),
+            stage: self.names[node.index()].clone(),
             what: what.to_string(),
         }
     }
@@ -251,19 +251,19 @@ impl Plan {
             Senses::Measurand => env.measurand,
             Senses::ColdJunction => env.cold_junction,
         };
-        let error = &self.sense_error[i];
+        let error = &self.sense_error[i.index()];
         let class = error.class.map(|(class, slot)| {
             let t_c = t - ZERO_CELSIUS_K;
             let half_width = match class {
                 ClassTolerance::Thermocouple(ty, c) => thermocouple::class_tolerance_k(ty, c, t_c),
             };
-            values[slot] * half_width.unwrap_or(0.0)
+            values[slot.index()] * half_width.unwrap_or(0.0)
         });
         let of_reading = error
             .of_reading
-            .map(|(s, zero)| values[s] * (t - zero).abs());
+            .map(|(s, zero)| values[s.index()] * (t - zero).abs());
         t + class.unwrap_or(0.0)
-            + error.absolute.map(|s| values[s]).unwrap_or(0.0)
+            + error.absolute.map(|s| values[s.index()]).unwrap_or(0.0)
             + of_reading.unwrap_or(0.0)
     }
 
@@ -277,9 +277,9 @@ impl Plan {
         match drift {
             None => value,
             Some(d) if d.relative => {
-                value * (1.0 + values[d.slot] * (env.ambient - self.reference))
+                value * (1.0 + values[d.slot.index()] * (env.ambient - self.reference))
             }
-            Some(d) => value + values[d.slot] * (env.ambient - self.reference),
+            Some(d) => value + values[d.slot.index()] * (env.ambient - self.reference),
         }
     }
 
@@ -291,7 +291,7 @@ impl Plan {
         range_c: (f64, f64),
     ) -> EvalError {
         EvalError::OutOfRange {
-            stage: self.names[node].clone(),
+            stage: self.names[node.index()].clone(),
             what: what.to_string(),
             low: range_c.0 + ZERO_CELSIUS_K,
             high: range_c.1 + ZERO_CELSIUS_K,
@@ -334,14 +334,14 @@ impl Plan {
             values,
             env,
             &mut signals,
-            Reach::Electronics(self.adc + 1),
+            Reach::Electronics(self.adc.index() + 1),
             Mode::CODES,
         )?;
-        let volts = |n: NodeId| match signals[n] {
+        let volts = |n: NodeId| match signals[n.index()] {
             Signal::Voltage { v, .. } => v,
             _ => 0.0,
         };
-        let v = match &self.nodes[self.adc] {
+        let v = match &self.nodes[self.adc.index()] {
             // Channels added in the conversion: their inputs add as well.
             Node::Adc(node::Adc {
                 input,
@@ -349,14 +349,14 @@ impl Plan {
                 ..
             }) => others
                 .iter()
-                .fold(volts(*input), |acc, &o| match &self.nodes[o] {
+                .fold(volts(*input), |acc, &o| match &self.nodes[o.index()] {
                     Node::Adc(node::Adc { input, .. }) => acc + volts(*input),
                     _ => acc,
                 }),
             Node::Adc(node::Adc { input, .. }) => volts(*input),
             _ => 0.0,
         };
-        match signals[self.adc] {
+        match signals[self.adc.index()] {
             Signal::Code { exact, .. } => Ok((v, exact)),
             _ => Err(self.numeric(self.adc, "no code")),
         }
@@ -415,16 +415,17 @@ impl Plan {
             values,
             env,
             &mut signals,
-            Reach::All(self.reading),
+            Reach::All(self.reading.index()),
             Mode::UNQUANTIZED,
         )?;
-        let Signal::Code { exact, .. } = signals[self.adc] else {
+        let Signal::Code { exact, .. } = signals[self.adc.index()] else {
             return Err(self.numeric(self.adc, "no code"));
         };
-        let Node::Convert(node::Convert { cj, conversion, .. }) = &self.nodes[self.reading] else {
+        let Node::Convert(node::Convert { cj, conversion, .. }) = &self.nodes[self.reading.index()]
+        else {
             return Err(self.numeric(self.reading, "no conversion"));
         };
-        let cj = cj.and_then(|n| match signals[n] {
+        let cj = cj.and_then(|n| match signals[n.index()] {
             Signal::Reading(t) => Some(t),
             _ => None,
         });
@@ -537,10 +538,10 @@ impl Plan {
                 values,
                 &calibration_env(self, p),
                 columns,
-                Reach::Electronics(self.adc + 1),
+                Reach::Electronics(self.adc.index() + 1),
                 Mode::CALIBRATION,
             )?;
-            let exact = columns.nodes[self.adc].of(Tag::Code).ok_or(Lost)?;
+            let exact = columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
             for (lane_codes, &exact) in codes.iter_mut().zip(exact) {
                 lane_codes[j] = exact;
             }
@@ -549,14 +550,14 @@ impl Plan {
             values,
             env,
             columns,
-            Reach::All(self.reading),
+            Reach::All(self.reading.index()),
             Mode::UNQUANTIZED,
         )?;
-        let Node::Convert(node::Convert { cj, .. }) = &self.nodes[self.reading] else {
+        let Node::Convert(node::Convert { cj, .. }) = &self.nodes[self.reading.index()] else {
             return Err(Lost);
         };
-        let exact = *columns.nodes[self.adc].of(Tag::Code).ok_or(Lost)?;
-        let cj = cj.and_then(|c| columns.nodes[c].of(Tag::Reading));
+        let exact = *columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
+        let cj = cj.and_then(|c| columns.nodes[c.index()].of(Tag::Reading));
         for (k, reading) in readings.iter_mut().enumerate() {
             let cj = cj.map(|t| t[k]);
             let x = conversion
@@ -588,7 +589,7 @@ impl Plan {
             values: slots,
         } = columns;
         for i in self.reach(reach) {
-            let (before, after) = nodes.split_at_mut(i);
+            let (before, after) = nodes.split_at_mut(i.index());
             let run = LaneRun {
                 plan: self,
                 i,
@@ -611,7 +612,7 @@ impl Plan {
     /// What depends on the condition alone, worked out once for all
     /// lanes: a thermocouple's EMF at the (actual) cold junction.
     fn junction_mv(&self, i: NodeId, env: &Env) -> Option<f64> {
-        match self.nodes[i] {
+        match self.nodes[i.index()] {
             Node::Thermocouple(node::Thermocouple { ty, .. }) => {
                 thermocouple::emf_mv(ty, super::node::junction_c(ty, env)).ok()
             }
@@ -636,14 +637,14 @@ impl Plan {
                 if !finite(s) {
                     return Err(self.numeric(i, "a signal is not a finite number"));
                 }
-                lane[i] = s;
+                lane[i.index()] = s;
             }
         }
         Ok(())
     }
 
     fn main_conversion(&self) -> Result<&Conversion, EvalError> {
-        match &self.nodes[self.reading] {
+        match &self.nodes[self.reading.index()] {
             Node::Convert(node::Convert { conversion, .. }) => Ok(conversion),
             _ => Err(self.numeric(self.reading, "no conversion")),
         }

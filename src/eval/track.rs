@@ -15,7 +15,7 @@
 //! drift.
 
 use super::node::{self, Node};
-use super::plan::{DriftSlot, Slot, SlotId};
+use super::plan::{DriftSlot, NodeId, Slot, SlotId};
 use crate::model::{Chain, TrackGroup};
 
 /// One group's common component: the slots it moves and how much of each
@@ -78,14 +78,14 @@ pub fn lower_groups(
     chain: &Chain,
     nodes: &[Node],
     slots: &[Slot],
-    node_of: impl Fn(usize) -> usize,
+    node_of: impl Fn(usize) -> NodeId,
 ) -> Vec<Group> {
     let mut out = Vec::new();
     for group in &chain.groups {
         let members: Vec<(SlotId, Option<DriftSlot>)> = group
             .members
             .iter()
-            .flat_map(|m| tracked_slots(&nodes[node_of(m.stage)]))
+            .flat_map(|m| tracked_slots(&nodes[node_of(m.stage).index()]))
             .collect();
         out.extend(value_group(group, &members, slots));
         out.extend(drift_group(group, &members, slots));
@@ -101,8 +101,8 @@ fn value_group(
     let parts = members
         .iter()
         .filter_map(|&(s, _)| {
-            let (h, _) = half_width(&slots[s]);
-            let own = group.ratio / 2.0 * slots[s].nominal.abs();
+            let (h, _) = half_width(&slots[s.index()]);
+            let own = group.ratio / 2.0 * slots[s.index()].nominal.abs();
             part(s, h, own)
         })
         .collect();
@@ -119,11 +119,11 @@ fn drift_group(
         .iter()
         .filter_map(|&(value, drift)| {
             let d = drift?;
-            let (h, _) = half_width(&slots[d.slot]);
+            let (h, _) = half_width(&slots[d.slot.index()]);
             let scale = if d.relative {
                 1.0
             } else {
-                slots[value].nominal.abs()
+                slots[value.index()].nominal.abs()
             };
             part(d.slot, h, tracking / 2.0 * scale)
         })
@@ -144,7 +144,7 @@ fn make(id: String, parts: Vec<GroupPart>, slots: &[Slot]) -> Option<Group> {
     if parts.len() < 2 {
         return None;
     }
-    let normal = parts.iter().all(|p| slots[p.slot].normal);
+    let normal = parts.iter().all(|p| slots[p.slot.index()].normal);
     Some(Group { id, parts, normal })
 }
 

@@ -10,6 +10,7 @@ use std::sync::Arc;
 
 use super::chain::{Connection, Stage};
 use super::ports::{Port, SignalKind};
+use super::schema;
 use super::typed::StageModel;
 use super::value::ParamValue;
 use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile, Span};
@@ -57,7 +58,7 @@ pub fn resolve(
 
 /// The converter a channel names, and where the `channel_of` line is.
 fn channel_of(stage: &Stage) -> Option<(String, Span)> {
-    match stage.param("channel_of") {
+    match stage.param(schema::CHANNEL_OF) {
         Some(ParamValue::StageRef { name, span }) if stage.kind == StageKind::Adc => {
             Some((name.clone(), *span))
         }
@@ -293,7 +294,7 @@ pub fn check_combinations(
                 Err(finding) => findings.push(finding(file, stage, name, *span)),
             }
         }
-        if stage.param("sum").is_some() && members.len() == named.len() + 1 {
+        if stage.param(schema::SUM).is_some() && members.len() == named.len() + 1 {
             if let Some(f) = mixed_quantities(file, stages, connections, stage, &members) {
                 findings.push(f);
             }
@@ -303,7 +304,7 @@ pub fn check_combinations(
 
 /// The stages a `sum` or `ratio` line names, with where.
 pub fn combined_names(stage: &Stage) -> Vec<(String, Span)> {
-    match (stage.param("sum"), stage.param("ratio")) {
+    match (stage.param(schema::SUM), stage.param(schema::RATIO)) {
         (Some(ParamValue::StageRefs(names)), _) => names.clone(),
         (_, Some(ParamValue::StageRef { name, span })) => vec![(name.clone(), *span)],
         _ => Vec::new(),
@@ -384,7 +385,7 @@ fn quantity(stage: &Stage) -> Option<&'static str> {
 fn sensors_upstream(stages: &[Stage], connections: &[Connection], start: usize) -> Vec<usize> {
     let junctions: Vec<&str> = stages
         .iter()
-        .filter_map(|s| match s.param("cold_junction") {
+        .filter_map(|s| match s.param(schema::COLD_JUNCTION) {
             Some(ParamValue::StageRef { name, .. }) => Some(name.as_str()),
             _ => None,
         })

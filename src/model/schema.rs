@@ -239,6 +239,10 @@ pub const VREF: &str = "vref";
 pub const SENSITIVITY: &str = "sensitivity";
 /// A converter's channel: it names the converter whose part it shares.
 pub const CHANNEL_OF: &str = "channel_of";
+/// A conversion's channels added to its input.
+pub const SUM: &str = "sum";
+/// A conversion's channel its input is divided by.
+pub const RATIO: &str = "ratio";
 
 /// Required lines another line makes unnecessary, as (given, waived): a
 /// converter's channel states no part of its own.
@@ -633,12 +637,12 @@ static MODELS: &[ModelSpec] = &[
                 },
             ),
             p("calibrate", Shape::Calibrate),
-            p("sum", Shape::StageNames),
-            p("ratio", Shape::StageName),
+            p(SUM, Shape::StageNames),
+            p(RATIO, Shape::StageName),
             COST,
             POWER,
         ],
-        exclusive: &[("sum", "ratio")],
+        exclusive: &[(SUM, RATIO)],
         one_of: &[],
         together: &[],
         read: read_convert,
@@ -1138,7 +1142,7 @@ fn read_convert(r: &Reader<'_>) -> Option<StageModel> {
         Some(_) => return None,
         None => None,
     };
-    let combine = match (r.get("sum"), r.get("ratio")) {
+    let combine = match (r.get(SUM), r.get(RATIO)) {
         (Some(ParamValue::StageRefs(names)), _) => Some(Combine {
             op: CombineOp::Sum,
             channels: names.iter().map(|(n, _)| n.clone()).collect(),

@@ -287,7 +287,7 @@ fn stage_power(chain: &Chain, stage: &Stage, a: &Analysis) -> Option<StagePower>
         (Some(w), _) => (w, PowerBasis::Stated),
         (None, Some(StageModel::Excitation(e))) => {
             let load = a.envelopes.iter().find(|env| {
-                a.names.get(env.node) == Some(&stage.name)
+                a.names.get(env.node.index()) == Some(&stage.name)
                     && matches!(env.limit, Limit::Compliance | Limit::CurrentLimit)
             })?;
             let most = load.reach.0.abs().max(load.reach.1.abs());
@@ -365,7 +365,7 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
             .envelopes
             .iter()
             .map(|e| LimitOutcome {
-                stage: a.names.get(e.node).cloned().unwrap_or_default(),
+                stage: a.names.get(e.node.index()).cloned().unwrap_or_default(),
                 limit: e.limit.describe(),
                 headroom: e.headroom(),
             })

@@ -85,7 +85,7 @@ pub struct Inputs<'a> {
 
 fn out_of_range(plan: &Plan, what: &str) -> EvalError {
     EvalError::Numeric {
-        stage: plan.names[plan.reading].clone(),
+        stage: plan.names[plan.reading.index()].clone(),
         what: what.to_string(),
     }
 }
@@ -244,13 +244,14 @@ fn cold_junction_conversion(
     target: f64,
     to_unit: &dyn Fn(f64) -> f64,
 ) -> Result<ColdJunctionConversion, EvalError> {
-    let Node::Convert(crate::eval::node::Convert { conversion, .. }) = &plan.nodes[node] else {
+    let Node::Convert(crate::eval::node::Convert { conversion, .. }) = &plan.nodes[node.index()]
+    else {
         return Err(out_of_range(
             plan,
             "the cold junction's reading is no conversion",
         ));
     };
-    let Node::Adc(adc) = &plan.nodes[conversion.adc] else {
+    let Node::Adc(adc) = &plan.nodes[conversion.adc.index()] else {
         return Err(out_of_range(
             plan,
             "the cold junction's conversion has no converter",
@@ -298,8 +299,8 @@ fn cold_junction_conversion(
     };
     let max_error = largest_error(&samples, &truth, |c| curve.at(c)).0;
     Ok(ColdJunctionConversion {
-        stage: plan.names[node].clone(),
-        converter: plan.names[conversion.adc].clone(),
+        stage: plan.names[node.index()].clone(),
+        converter: plan.names[conversion.adc.index()].clone(),
         bits: adc.bits,
         signed: adc.polarity == Polarity::Bipolar,
         curve,

@@ -15,7 +15,9 @@ use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
 use crate::analysis::faults::{self, FaultReport, FaultVerdict};
 use crate::analysis::window::CodeWindow;
-use crate::eval::{Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan};
+use crate::eval::{
+    Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan, SlotId,
+};
 use crate::model::requirement::RequirementKind;
 use crate::model::typed::ConversionMethod;
 use crate::model::value::{Basis, ParamValue};
@@ -221,7 +223,7 @@ impl From<EvalError> for ExportError {
 /// The export of `chain`, whose plan has its conversion fitted.
 pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportError> {
     let Node::Convert(crate::eval::node::Convert { cj, conversion, .. }) =
-        &plan.nodes[plan.reading]
+        &plan.nodes[plan.reading.index()]
     else {
         return Err(numeric(plan, "no conversion").into());
     };
@@ -229,7 +231,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
     // An approximation (`table`, `linear`, `poly`) reads the code alone.
     let with_junction = conversion.method == Method::Exact && (cj.is_some() || couple.is_some());
     let refused = |input: &str| ExportError::Unsupported {
-        stage: plan.names[plan.reading].clone(),
+        stage: plan.names[plan.reading.index()].clone(),
         input: input.to_string(),
     };
     match (with_junction, couple) {
@@ -239,7 +241,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         }
         _ => {}
     }
-    let Node::Adc(adc) = &plan.nodes[plan.adc] else {
+    let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
         return Err(numeric(plan, "no converter").into());
     };
     let measurand = chain
@@ -291,7 +293,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         difference_unit: chain.difference_unit().0,
         range: (to_unit(measurand.low), to_unit(measurand.high)),
         unit: unit.clone(),
-        converter: plan.names[plan.adc].clone(),
+        converter: plan.names[plan.adc.index()].clone(),
         bits: adc.bits,
         signed: adc.polarity == Polarity::Bipolar,
         rising: exact.code_at(plan.range.1)? > exact.code_at(plan.range.0)?,
@@ -339,7 +341,8 @@ pub fn exact_readings(
     codes: &[f64],
     junction: Option<f64>,
 ) -> Result<Vec<f64>, ExportError> {
-    let Node::Convert(crate::eval::node::Convert { conversion, .. }) = &plan.nodes[plan.reading]
+    let Node::Convert(crate::eval::node::Convert { conversion, .. }) =
+        &plan.nodes[plan.reading.index()]
     else {
         return Err(numeric(plan, "no conversion").into());
     };
@@ -364,7 +367,7 @@ pub fn exact_readings(
 
 fn numeric(plan: &Plan, what: &str) -> EvalError {
     EvalError::Numeric {
-        stage: plan.names[plan.reading].clone(),
+        stage: plan.names[plan.reading.index()].clone(),
         what: what.to_string(),
     }
 }
@@ -386,7 +389,7 @@ impl<'a> Exact<'a> {
             conversion
                 .fit(plan, &env, ConversionMethod::Exact, true, None)
                 .map_err(|what| EvalError::NotInvertible {
-                    stage: plan.names[plan.reading].clone(),
+                    stage: plan.names[plan.reading.index()].clone(),
                     what,
                 })?;
         }
@@ -627,7 +630,10 @@ fn calibration(
     curve: &Curve,
     to_unit: &dyn Fn(f64) -> f64,
 ) -> Result<Option<CalibrationExport>, EvalError> {
-    let slot = |s: Option<usize>| s.map(|s| plan.slots[s].plus.max(plan.slots[s].minus));
+    let slot = |s: Option<SlotId>| {
+        s.map(|s| &plan.slots[s.index()])
+            .map(|s| s.plus.max(s.minus))
+    };
     let (kind, uncertainty) = match conversion.calibration {
         Calibration::None => return Ok(None),
         Calibration::Offset { error, .. } => ("offset", vec![slot(error)]),
@@ -713,7 +719,7 @@ fn average(chain: &Chain, plan: &Plan) -> u32 {
     chain
         .stages
         .iter()
-        .find(|s| s.name == plan.names[plan.reading])
+        .find(|s| s.name == plan.names[plan.reading.index()])
         .and_then(|s| match s.param("average") {
             Some(ParamValue::Count(n)) => Some(*n),
             Some(ParamValue::Measure(m)) => Some(m.nominal as u32),

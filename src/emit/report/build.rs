@@ -241,9 +241,9 @@ fn signal_path(plan: &Plan, a: &Analysis) -> Vec<String> {
     let mut path: Vec<String> = a
         .accumulation
         .iter()
-        .filter_map(|n| plan.names.get(n.node).cloned())
+        .filter_map(|n| plan.names.get(n.node.index()).cloned())
         .collect();
-    if let Some(reading) = plan.names.get(plan.reading) {
+    if let Some(reading) = plan.names.get(plan.reading.index()) {
         if !path.contains(reading) {
             path.push(reading.clone());
         }
@@ -274,11 +274,12 @@ fn signal_noun(s: Signal) -> &'static str {
 fn diagram(chain: &Chain, plan: &Plan) -> Diagram {
     let signals = plan.raw_signals(&plan.nominal, &mid_env(plan)).ok();
     diagram_of(chain, &|name| {
-        let node = plan.names.iter().position(|n| n == name);
-        match (node, &signals) {
+        match (plan.node_named(name), &signals) {
             // A conversion's output exists only once the plan reads it.
-            (Some(n), _) if matches!(plan.nodes[n], Node::Convert(_)) => "reading".to_string(),
-            (Some(n), Some(s)) => signal_noun(s[n]).to_string(),
+            (Some(n), _) if matches!(plan.nodes[n.index()], Node::Convert(_)) => {
+                "reading".to_string()
+            }
+            (Some(n), Some(s)) => signal_noun(s[n.index()]).to_string(),
             _ => "signal".to_string(),
         }
     })
@@ -333,7 +334,7 @@ fn limit_rows(chain: &Chain, a: &Analysis) -> Vec<LimitRow> {
     a.envelopes
         .iter()
         .map(|e| LimitRow {
-            stage: a.names.get(e.node).cloned().unwrap_or_default(),
+            stage: a.names.get(e.node.index()).cloned().unwrap_or_default(),
             limit: e.limit.describe().to_string(),
             unit: e.unit.symbol().to_string(),
             allowed: [e.allowed.0, e.allowed.1].map(|x| x.is_finite().then_some(x)),
@@ -378,7 +379,7 @@ fn stage_rows(
         .stages
         .iter()
         .map(|s| {
-            let node = plan.names.iter().position(|n| *n == s.name);
+            let node = plan.node_named(&s.name);
             StageRow {
                 stage: s.name.clone(),
                 kind: s.kind.keyword().to_string(),
@@ -396,10 +397,10 @@ fn stage_rows(
                     })
                     .collect(),
                 signal: node
-                    .and_then(|n| ranges.get(n).copied().flatten())
+                    .and_then(|n| ranges.get(n.index()).copied().flatten())
                     .map(|r| r.0),
                 signal_unit: node
-                    .and_then(|n| ranges.get(n).copied().flatten())
+                    .and_then(|n| ranges.get(n.index()).copied().flatten())
                     .map_or("", |r| r.1)
                     .to_string(),
                 gain: node.and_then(|n| {
@@ -495,7 +496,7 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
             .accumulation
             .iter()
             .map(|n| PathRow {
-                stage: a.names.get(n.node).cloned().unwrap_or_default(),
+                stage: a.names.get(n.node.index()).cloned().unwrap_or_default(),
                 value: n.value,
                 signal_unit: n.unit.to_string(),
                 gain: n.gain * units.per_written(),
@@ -635,7 +636,7 @@ fn dynamics(verdicts: &[RequirementVerdict], d: &Dynamics) -> DynamicsSection {
 }
 
 fn calibration(plan: &Plan, a: &Analysis, units: &Units) -> Option<CalibrationSection> {
-    let Node::Convert(node::Convert { conversion, .. }) = &plan.nodes[plan.reading] else {
+    let Node::Convert(node::Convert { conversion, .. }) = &plan.nodes[plan.reading.index()] else {
         return None;
     };
     let (kind, at) = match conversion.calibration {

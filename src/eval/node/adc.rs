@@ -138,7 +138,7 @@ impl Adc {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let values = run.values;
-        let Signal::Voltage { v, .. } = run.s[self.input] else {
+        let Signal::Voltage { v, .. } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
         let vr = self.reference_voltage(run.plan, values, run.env, run.s);
@@ -151,11 +151,11 @@ impl Adc {
     /// [`Adc::eval`] in every lane of a batch.
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
-        let input = &run.s[self.input];
+        let input = &run.s[self.input.index()];
         if input.tag != Tag::Voltage {
             return Err(Lost);
         }
-        let vr = match self.reference.map(|n| &run.s[n]) {
+        let vr = match self.reference.map(|n| &run.s[n.index()]) {
             Some(r) if matches!(r.tag, Tag::Voltage | Tag::Source) => r.x,
             _ => run.drifted(run.or_zero(self.vref), self.vref_drift),
         };
@@ -165,7 +165,7 @@ impl Adc {
         let mut out = Column::default();
         for (k, &vr) in vr.iter().enumerate() {
             let own = self.code_of(run.row(k), input.x[k], vr);
-            let code = self.combine_with(own, |n| run.s[n].signal(k));
+            let code = self.combine_with(own, |n| run.s[n.index()].signal(k));
             out.set(k, code)?;
         }
         match out.tag {
@@ -179,7 +179,7 @@ impl Adc {
     /// full scale (`ratio`), rounded as a code.
     #[inline(always)]
     fn combined(&self, run: &Run<'_>, own: Signal) -> Signal {
-        self.combine_with(own, |n| run.s[n])
+        self.combine_with(own, |n| run.s[n.index()])
     }
 
     /// [`Adc::combined`] with the other channels' codes from `code_of`.
@@ -259,7 +259,7 @@ impl Adc {
                 code: x as i64,
             })
         };
-        let Signal::Voltage { v, cm, .. } = run.s[self.input] else {
+        let Signal::Voltage { v, cm, .. } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
         let burnout = fault.and_then(|f| f.burnout);
@@ -302,16 +302,16 @@ impl Adc {
 
     #[inline(always)]
     fn code_of(&self, values: &[f64], v: f64, vr: f64) -> Signal {
-        let gain = self.pga.map(|g| values[g]).unwrap_or(1.0)
-            * (1.0 + self.gain_error.map(|g| values[g]).unwrap_or(0.0));
+        let gain = self.pga.map(|g| values[g.index()]).unwrap_or(1.0)
+            * (1.0 + self.gain_error.map(|g| values[g.index()]).unwrap_or(0.0));
         let (off, off_codes) = match self.offset {
-            Some(AdcOffset::Input(o)) => (values[o], 0.0),
-            Some(AdcOffset::Codes(o)) => (0.0, values[o]),
+            Some(AdcOffset::Input(o)) => (values[o.index()], 0.0),
+            Some(AdcOffset::Codes(o)) => (0.0, values[o.index()]),
             None => (0.0, 0.0),
         };
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
         // INL is a fraction of the full-scale code span.
-        let inl = self.inl.map(|s| values[s]).unwrap_or(0.0)
+        let inl = self.inl.map(|s| values[s.index()]).unwrap_or(0.0)
             * adc::full_scale_codes(per_ref, self.polarity);
         let exact = adc::exact_code(v + off, gain, vr, per_ref, off_codes, inl);
         Signal::Code {
@@ -324,10 +324,10 @@ impl Adc {
     /// with drift.
     #[inline(always)]
     fn reference_voltage(&self, plan: &Plan, values: &[f64], env: &Env, s: &[Signal]) -> f64 {
-        match self.reference.map(|n| s[n]) {
+        match self.reference.map(|n| s[n.index()]) {
             Some(Signal::Voltage { v, .. }) | Some(Signal::Source(v)) => v,
             _ => plan.drifted(
-                self.vref.map(|r| values[r]).unwrap_or(0.0),
+                self.vref.map(|r| values[r.index()]).unwrap_or(0.0),
                 self.vref_drift,
                 values,
                 env,
@@ -347,7 +347,7 @@ impl Plan {
         env: &Env,
         signals: &[Signal],
     ) -> Option<f64> {
-        let super::Node::Adc(adc) = &self.nodes[node] else {
+        let super::Node::Adc(adc) = &self.nodes[node.index()] else {
             return None;
         };
         Some(adc.reference_voltage(self, values, env, signals))
@@ -357,7 +357,7 @@ impl Plan {
     /// combines, else 1. Each rounds on its own, so the sum's
     /// quantization is that many independent half-codes.
     pub fn summed_codes(&self) -> usize {
-        match &self.nodes[self.adc] {
+        match &self.nodes[self.adc.index()] {
             super::Node::Adc(Adc {
                 combine: Some((CombineOp::Sum, others)),
                 ..
@@ -376,10 +376,10 @@ impl Plan {
         env: &Env,
         signals: &[Signal],
     ) -> Option<f64> {
-        let super::Node::Adc(adc) = &self.nodes[node] else {
+        let super::Node::Adc(adc) = &self.nodes[node.index()] else {
             return None;
         };
-        let Signal::Voltage { v, .. } = signals[adc.input] else {
+        let Signal::Voltage { v, .. } = signals[adc.input.index()] else {
             return None;
         };
         let vr = adc.reference_voltage(self, values, env, signals);

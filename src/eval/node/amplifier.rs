@@ -128,7 +128,7 @@ impl Amplifier {
 
     /// Its input pin open, `burnout` the current the pin sources.
     fn input_open(&self, run: &Run<'_>, burnout: Option<f64>) -> Result<Faulted, EvalError> {
-        let cm = match run.s[self.input] {
+        let cm = match run.s[self.input.index()] {
             Signal::Voltage { cm, .. } => cm,
             _ => return Err(run.numeric("no input voltage")),
         };
@@ -137,7 +137,7 @@ impl Amplifier {
             undetermined => return Ok(undetermined),
         };
         let mut signals = *run.s;
-        signals[self.input] = open;
+        signals[self.input.index()] = open;
         let rerun = Run {
             s: &signals,
             ..*run
@@ -147,7 +147,7 @@ impl Amplifier {
 
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let Signal::Voltage { v, cm, rs } = run.s[self.input] else {
+        let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
         let shift = shift_of(run.plan, self.reference, run.values, run.env, run.s)
@@ -160,7 +160,7 @@ impl Amplifier {
             + slot(self.bias) * rs
             + slot(self.cmrr) * cm;
         // Output = gain × input + reference.
-        let gain = run.values[self.gain] * (1.0 + slot(self.gain_drift) * dt);
+        let gain = run.values[self.gain.index()] * (1.0 + slot(self.gain_drift) * dt);
         let mut out = gain * (v + error) + shift;
         let (lo, hi) = self.output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
         // Outside its common-mode range an amplifier no longer amplifies:
@@ -189,14 +189,14 @@ impl Amplifier {
     /// [`Amplifier::eval`] in every lane of a batch.
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
-        let input = &run.s[self.input];
+        let input = &run.s[self.input.index()];
         if input.tag != Tag::Voltage {
             return Err(Lost);
         }
         let shift = match self.reference {
             Some(AmpReference::Stated { value, drift }) => run.drifted(run.slot(value), drift),
-            Some(AmpReference::Stage(n)) => match run.s[n].tag {
-                Tag::Voltage | Tag::Source => run.s[n].x,
+            Some(AmpReference::Stage(n)) => match run.s[n.index()].tag {
+                Tag::Voltage | Tag::Source => run.s[n.index()].x,
                 _ => return Err(Lost),
             },
             None => [0.0; LANES],
@@ -243,9 +243,9 @@ fn shift_of(
 ) -> Option<f64> {
     match reference {
         Some(AmpReference::Stated { value, drift }) => {
-            Some(plan.drifted(values[value], drift, values, env))
+            Some(plan.drifted(values[value.index()], drift, values, env))
         }
-        Some(AmpReference::Stage(n)) => match s[n] {
+        Some(AmpReference::Stage(n)) => match s[n.index()] {
             Signal::Voltage { v, .. } | Signal::Source(v) => Some(v),
             _ => None,
         },
@@ -263,7 +263,7 @@ impl Plan {
         env: &Env,
         signals: &[Signal],
     ) -> Option<f64> {
-        let super::Node::Amplifier(a) = &self.nodes[node] else {
+        let super::Node::Amplifier(a) = &self.nodes[node.index()] else {
             return None;
         };
         shift_of(self, a.reference, values, env, signals)

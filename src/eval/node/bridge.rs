@@ -129,7 +129,7 @@ impl Bridge {
         };
         let nominal_fixed = self
             .r
-            .map(|r| run.drifted(values[r], self.drift))
+            .map(|r| run.drifted(values[r.index()], self.drift))
             .unwrap_or(0.0);
         let fixed = part(1, nominal_fixed);
         // Each further completion resistor is its own part.
@@ -137,11 +137,11 @@ impl Bridge {
             let value = self
                 .others
                 .get(k)
-                .map(|&(r, drift)| run.drifted(values[r], drift))
+                .map(|&(r, drift)| run.drifted(values[r.index()], drift))
                 .unwrap_or(nominal_fixed);
             part(k as u8 + 2, value)
         };
-        let arm = |k: usize| match self.arms.get(k).map(|&n| s[n]) {
+        let arm = |k: usize| match self.arms.get(k).map(|&n| s[n.index()]) {
             Some(Signal::Element(r)) => Ok(r),
             _ => Err(run.numeric("a bridge arm has no element")),
         };
@@ -168,7 +168,7 @@ impl Bridge {
             BridgeKind::Half => [None, at(0), at(1), None],
             BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
         };
-        let exc = s[self.exc];
+        let exc = s[self.exc.index()];
         let [r1, r2, r3, r4] =
             run.plan
                 .heated_bridge_arms([r1, r2, r3, r4], placed, exc, values, run.env)?;
@@ -193,7 +193,7 @@ impl Bridge {
         fixed: f64,
         arm: f64,
     ) -> Result<Signal, EvalError> {
-        let exc = run.s[self.exc];
+        let exc = run.s[self.exc.index()];
         // A current source's current flows through the lower resistor.
         let supply = match exc {
             Signal::Source(v) => Supply::Voltage { v, other: fixed },

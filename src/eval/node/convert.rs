@@ -91,7 +91,7 @@ pub(super) const FAULTS: &[FaultKind] = &[];
 impl Convert {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let Signal::Code { code, exact } = run.s[self.input] else {
+        let Signal::Code { code, exact } = run.s[self.input.index()] else {
             return Err(run.numeric("no code"));
         };
         let code = if run.mode.quantized {
@@ -99,7 +99,7 @@ impl Convert {
         } else {
             exact
         };
-        let cj_reading = self.cj.and_then(|n| match run.s[n] {
+        let cj_reading = self.cj.and_then(|n| match run.s[n.index()] {
             Signal::Reading(t) => Some(t),
             _ => None,
         });

@@ -52,7 +52,7 @@ impl Excitation {
 
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let v = run.drifted(run.values[self.value], self.drift);
+        let v = run.drifted(run.values[self.value.index()], self.drift);
         Ok(self.output(v))
     }
 

@@ -39,7 +39,7 @@ pub(super) const FAULTS: &[FaultKind] = &[];
 impl Filter {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        Ok(match run.s[self.input] {
+        Ok(match run.s[self.input.index()] {
             Signal::Voltage { v, cm, rs } => Signal::Voltage {
                 v,
                 cm,
@@ -52,7 +52,7 @@ impl Filter {
     /// [`Filter::eval`] in every lane of a batch.
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
-        let mut out = run.s[self.input];
+        let mut out = run.s[self.input.index()];
         if out.tag == Tag::Voltage {
             let series = run.or_zero(self.series);
             for (rs, series) in out.rs.iter_mut().zip(series) {

@@ -36,7 +36,7 @@ impl IcCurrent {
         match kind {
             FaultKind::Lost => Ok(Faulted::Signal(Signal::Current(0.0))),
             FaultKind::StuckHigh => {
-                let Some(Signal::Source(v)) = self.input.map(|n| run.s[n]) else {
+                let Some(Signal::Source(v)) = self.input.map(|n| run.s[n.index()]) else {
                     return Ok(Faulted::Undetermined(
                         "the sensor's supply is not wired: nothing says what limits its current once it shorts",
                     ));
@@ -52,7 +52,7 @@ impl IcCurrent {
 
     /// Its output behind a fault upstream: a lost supply is its own loss.
     pub(super) fn behind(&self, run: &Run<'_>) -> Result<Faulted, EvalError> {
-        match self.input.map(|n| run.s[n]) {
+        match self.input.map(|n| run.s[n.index()]) {
             Some(Signal::Source(v)) if v <= 0.0 => self.faulted(run, FaultKind::Lost),
             _ => self.eval(run).map(Faulted::Signal),
         }
@@ -61,7 +61,7 @@ impl IcCurrent {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let t = run.sensed(self.senses);
-        let a = semiconductor::ptat_current_a(run.values[self.slope], t)
+        let a = semiconductor::ptat_current_a(run.values[self.slope.index()], t)
             .map_err(|_| run.numeric("no PTAT current at this temperature"))?;
         Ok(Signal::Current(a))
     }

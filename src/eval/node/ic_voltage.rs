@@ -53,7 +53,7 @@ impl IcVoltage {
     /// (common practice takes an output stage's high swing as its supply).
     pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
         let rs = run.or_zero(self.rout);
-        let wired = match self.input.map(|n| run.s[n]) {
+        let wired = match self.input.map(|n| run.s[n.index()]) {
             Some(Signal::Source(v)) => Some(v),
             _ => None,
         };
@@ -73,7 +73,7 @@ impl IcVoltage {
 
     /// Its output behind a fault upstream: a lost supply is its own loss.
     pub(super) fn behind(&self, run: &Run<'_>) -> Result<Faulted, EvalError> {
-        match self.input.map(|n| run.s[n]) {
+        match self.input.map(|n| run.s[n.index()]) {
             Some(Signal::Source(v)) if v <= 0.0 => self.faulted(run, FaultKind::Lost),
             _ => self.eval(run).map(Faulted::Signal),
         }
@@ -83,8 +83,8 @@ impl IcVoltage {
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let t = run.sensed(self.senses);
         let v = semiconductor::linear_voltage_v(
-            run.values[self.v0],
-            run.values[self.slope],
+            run.values[self.v0.index()],
+            run.values[self.slope.index()],
             self.t0 - ZERO_CELSIUS_K,
             t - ZERO_CELSIUS_K,
         );

@@ -138,7 +138,7 @@ impl Node {
 
     /// What drives a resistive element (a current source, or nothing for
     /// an arm of a bridge or divider); None for another kind.
-    pub(super) fn element_input(&self) -> Option<NodeId> {
+    pub fn element_input(&self) -> Option<NodeId> {
         match self {
             Node::Rtd(n) => n.input,
             Node::Thermistor(n) => n.input,
@@ -182,7 +182,7 @@ impl Plan {
             junction_mv: None,
         };
         let Some(fault) = here else {
-            return match &self.nodes[i] {
+            return match &self.nodes[i.index()] {
                 Node::Adc(n) => n.faulted(&run, None),
                 Node::IcVoltage(n) => n.behind(&run),
                 Node::IcCurrent(n) => n.behind(&run),
@@ -192,7 +192,7 @@ impl Plan {
             };
         };
         let kind = fault.kind;
-        match &self.nodes[i] {
+        match &self.nodes[i.index()] {
             Node::Excitation(n) => n.faulted(&run, kind),
             Node::Rtd(n) => n.faulted(&run, fault),
             Node::Thermocouple(n) => n.faulted(&run, fault),
@@ -231,7 +231,7 @@ impl Plan {
             mode,
             junction_mv: None,
         };
-        match &self.nodes[i] {
+        match &self.nodes[i.index()] {
             Node::Adc(n) => n.faulted_own(&run, here),
             _ => Err(run.numeric("not a converter")),
         }
@@ -249,9 +249,11 @@ impl Plan {
     ) -> Result<f64, EvalError> {
         const TEST_AMPS: f64 = 1e-9;
         let mut test = *s;
-        test[i] = Signal::Current(TEST_AMPS);
+        test[i.index()] = Signal::Current(TEST_AMPS);
         let mut volts = 0.0;
-        for j in (0..self.nodes.len()).filter(|&j| self.nodes[j].element_input() == Some(i)) {
+        for j in NodeId::all(self.nodes.len())
+            .filter(|&j| self.nodes[j.index()].element_input() == Some(i))
+        {
             if let Signal::Voltage { v, .. } =
                 self.node(j, values, env, &test, Mode::FAULT, None)?
             {
@@ -270,9 +272,9 @@ impl Plan {
     /// load it saturates toward it); None for another node or one that
     /// states none.
     fn compliance(&self, i: NodeId, s: &[Signal; MAX_NODES]) -> Option<f64> {
-        match &self.nodes[i] {
+        match &self.nodes[i.index()] {
             Node::Excitation(e) if e.current => e.compliance,
-            Node::IcCurrent(n) => match n.input.map(|supply| s[supply]) {
+            Node::IcCurrent(n) => match n.input.map(|supply| s[supply.index()]) {
                 Some(Signal::Source(v)) if v > 0.0 => Some(v),
                 _ => None,
             },
@@ -300,7 +302,7 @@ impl Plan {
             mode,
             junction_mv,
         };
-        match &self.nodes[i] {
+        match &self.nodes[i.index()] {
             Node::Excitation(n) => n.eval(&run),
             Node::Rtd(n) => n.eval(&run),
             Node::Thermocouple(n) => n.eval(&run),
@@ -324,7 +326,7 @@ impl Plan {
     /// loop over the lanes (or the single-run code lane by lane, for the
     /// kinds that seldom sit in a Monte Carlo's hot path).
     pub(in crate::eval) fn node_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
-        match &self.nodes[run.i] {
+        match &self.nodes[run.i.index()] {
             Node::Excitation(n) => Ok(n.eval_lanes(run)),
             Node::Rtd(n) => n.eval_lanes(run),
             Node::Thermocouple(n) => n.eval_lanes(run),
@@ -360,7 +362,7 @@ pub(super) struct Run<'a> {
 impl Run<'_> {
     #[inline(always)]
     fn or_zero(&self, slot: Option<SlotId>) -> f64 {
-        slot.map(|s| self.values[s]).unwrap_or(0.0)
+        slot.map(|s| self.values[s.index()]).unwrap_or(0.0)
     }
 
     #[inline(always)]
@@ -380,7 +382,7 @@ impl Run<'_> {
     /// The current a current source drives into `input`, if it is one.
     #[inline(always)]
     fn current_into(&self, input: Option<NodeId>) -> Option<f64> {
-        match input.map(|n| self.s[n]) {
+        match input.map(|n| self.s[n.index()]) {
             Some(Signal::Current(a)) => Some(a),
             _ => None,
         }
@@ -393,9 +395,9 @@ impl Run<'_> {
     fn element(&self, r: f64, input: Option<NodeId>) -> Signal {
         match self.current_into(input) {
             Some(a) => {
-                let lift: f64 = self.plan.series_below[self.i]
+                let lift: f64 = self.plan.series_below[self.i.index()]
                     .iter()
-                    .map(|&n| match self.s[n] {
+                    .map(|&n| match self.s[n.index()] {
                         Signal::Voltage { v, .. } => v,
                         _ => 0.0,
                     })
@@ -513,7 +515,7 @@ impl Cx<'_> {
         let id = self.id(parameter);
         if self.shared {
             if let Some(existing) = self.slots.iter().position(|s| s.id == id) {
-                return existing;
+                return SlotId::new(existing);
             }
         }
         self.slots.push(Slot {
@@ -524,7 +526,7 @@ impl Cx<'_> {
             plus,
             normal,
         });
-        self.slots.len() - 1
+        SlotId::new(self.slots.len() - 1)
     }
 
     fn exact(&mut self, parameter: &str, nominal: f64) -> SlotId {

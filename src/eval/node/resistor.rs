@@ -34,7 +34,7 @@ impl Resistor {
 
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let r = run.drifted(run.values[self.r], self.drift);
+        let r = run.drifted(run.values[self.r.index()], self.drift);
         Ok(run.element(r, self.input))
     }
 

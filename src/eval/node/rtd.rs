@@ -237,14 +237,16 @@ impl Rtd {
     #[inline(always)]
     fn lead_of(&self, values: &[f64]) -> f64 {
         self.leads
-            .map(|(a, b)| rtd::lead_series_resistance(self.wiring, values[a], values[b]))
+            .map(|(a, b)| {
+                rtd::lead_series_resistance(self.wiring, values[a.index()], values[b.index()])
+            })
             .unwrap_or(0.0)
     }
 
     /// Each lead's own resistance, Ω (0 where no lead is stated).
     fn each_lead(&self, run: &Run<'_>) -> (f64, f64) {
         self.leads
-            .map(|(a, b)| (run.values[a], run.values[b]))
+            .map(|(a, b)| (run.values[a.index()], run.values[b.index()]))
             .unwrap_or((0.0, 0.0))
     }
 

@@ -47,8 +47,8 @@ impl StrainGauge {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let r = strain::gauge_resistance(
-            run.values[self.r],
-            run.values[self.gauge_factor],
+            run.values[self.r.index()],
+            run.values[self.gauge_factor.index()],
             self.sign * run.env.measurand,
         );
         Ok(run.element(r, self.input))

@@ -82,7 +82,7 @@ impl Thermocouple {
                 Some(current) => {
                     let r = self
                         .bias_resistor
-                        .map(|s| run.values[s])
+                        .map(|s| run.values[s.index()])
                         .unwrap_or(OPEN_OHMS);
                     Faulted::Signal(Signal::Voltage {
                         v: current * r,
@@ -103,7 +103,7 @@ impl Thermocouple {
         // 0 V.
         let cm = self
             .bias
-            .map(|(b, drift)| run.drifted(run.values[b], drift))
+            .map(|(b, drift)| run.drifted(run.values[b.index()], drift))
             .unwrap_or(0.0);
         Ok(Signal::Voltage {
             v,

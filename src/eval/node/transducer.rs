@@ -86,7 +86,7 @@ impl Transducer {
         let Signal::Voltage { cm, rs, .. } = self.eval(run)? else {
             return Err(run.numeric("no voltage"));
         };
-        let exc = match self.input.map(|n| run.s[n]) {
+        let exc = match self.input.map(|n| run.s[n.index()]) {
             Some(Signal::Source(v)) => v,
             _ => 0.0,
         };
@@ -103,7 +103,7 @@ impl Transducer {
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let slot = |o: Option<SlotId>| run.or_zero(o);
         let dt = run.env.ambient - run.plan.reference;
-        let s_fs = run.values[self.sensitivity];
+        let s_fs = run.values[self.sensitivity.index()];
         // Output as a ratio of excitation (or volts): span with its drift,
         // then the errors stated as fractions of full scale.
         let u = run.env.measurand / self.full_scale;
@@ -121,7 +121,7 @@ impl Transducer {
             span_drift: slot(self.span_drift),
         };
         let fraction = transducer::output(s_fs, u, self.linearity, errors, dt);
-        let (v, cm) = match (self.ratiometric, self.input.map(|n| run.s[n])) {
+        let (v, cm) = match (self.ratiometric, self.input.map(|n| run.s[n.index()])) {
             (true, Some(Signal::Source(exc))) => (fraction * exc, exc / 2.0),
             (true, _) => {
                 return Err(run.numeric("a transducer rated in mV/V needs a voltage excitation"))
@@ -131,7 +131,7 @@ impl Transducer {
         Ok(Signal::Voltage {
             v,
             cm,
-            rs: self.r.map(|r| run.values[r] / 2.0).unwrap_or(0.0),
+            rs: self.r.map(|r| run.values[r.index()] / 2.0).unwrap_or(0.0),
         })
     }
 }
