@@ -121,6 +121,28 @@ impl FaultCodes {
             FaultCodes::EitherEnd(lo, hi) => format!("{lo} or {hi}"),
         }
     }
+
+    /// Whether the converter gives a single code: one span of one code,
+    /// or one end or the other.
+    pub fn single(self) -> bool {
+        match self {
+            FaultCodes::Span(lo, hi) => lo == hi,
+            FaultCodes::EitherEnd(..) => true,
+        }
+    }
+
+    /// The codes with their noun: `code 17`, `codes 0 .. 4095`, `code 0
+    /// or 4095`.
+    pub fn phrase(self) -> String {
+        let noun = if self.single() { "code" } else { "codes" };
+        format!("{noun} {}", self.words())
+    }
+
+    /// "its codes … overlap" or "its code … overlaps".
+    pub fn overlap(self) -> String {
+        let verb = if self.single() { "overlaps" } else { "overlap" };
+        format!("its {} {verb}", self.phrase())
+    }
 }
 
 /// In JSON a span is `[low, high]` and the ends `{"either": [low, high]}`,
@@ -531,8 +553,8 @@ fn fix(
         _ => (
             codes.map(|codes| {
                 format!(
-                    "its codes {} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
-                    codes.words(), window.low, window.high
+                    "{} the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
+                    codes.overlap(), window.low, window.high
                 )
             }),
             here,
@@ -574,8 +596,13 @@ fn unstated_compliance(plan: &Plan, i: NodeId) -> Option<NodeId> {
 
 /// The least burnout current that drives an open couple's code clear of
 /// the window, found by bisection over the current (the code grows with
-/// it, to the rail).
+/// it, to the rail) from the reading stage's input bias current, which it
+/// must outweigh, to 1 mA. Where the bias current itself (or 1 pA, when
+/// none is stated) already suffices, any current that outweighs it does:
+/// the help says so rather than quote the search's floor. Where 1 mA does
+/// not, it says that no current in the range does.
 fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> Option<String> {
+    let reader = reader_of(plan, fault.node)?;
     let detectable = |amps: f64| {
         let trial = Fault {
             burnout: Some(amps),
@@ -586,10 +613,29 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
             .and_then(|codes| codes.threshold(window))
             .is_some()
     };
-    let (mut low, mut high) = (1e-12_f64, 1e-3_f64);
-    if !detectable(high) {
-        return None;
+    const MOST: f64 = 1e-3;
+    let floor = plan.input_bias(reader).unwrap_or(0.0).max(1e-12);
+    let (name, lo, hi) = (&plan.names[reader.index()], window.low, window.high);
+    if floor >= MOST || !detectable(MOST) {
+        let from = match plan.input_bias(reader) {
+            Some(bias) => format!(
+                " from its input bias current of {}",
+                with_prefix(bias, "A", 3)
+            ),
+            None => String::new(),
+        };
+        return Some(format!(
+            "no burnout current on `{name}`{from} up to {} takes the open input clear of the valid window {lo} .. {hi}: give the open input a larger resistance to develop it across (`bias_resistor`), or a pull-up to a rail",
+            with_prefix(MOST, "A", 3)
+        ));
     }
+    if detectable(floor) {
+        return Some(format!(
+            "any burnout current on `{name}` ({}) drives the open input clear of the valid window {lo} .. {hi}",
+            outweighs_bias(plan, reader)
+        ));
+    }
+    let (mut low, mut high) = (floor, MOST);
     for _ in 0..60 {
         let mid = (low * high).sqrt();
         if detectable(mid) {
@@ -598,15 +644,11 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
             low = mid;
         }
     }
-    let reader = reader_of(plan, fault.node)?;
     // Three significant digits, rounded up: "at least".
     let step = 10f64.powi(high.log10().floor() as i32 - 2);
     let amps = with_prefix((high / step).ceil() * step, "A", 3);
     Some(format!(
-        "a burnout current of at least {amps} on `{}` (`burnout {amps}`) drives the open input clear of the valid window {} .. {}",
-        plan.names[reader.index()],
-        window.low,
-        window.high
+        "a burnout current of at least {amps} on `{name}` (`burnout {amps}`) drives the open input clear of the valid window {lo} .. {hi}"
     ))
 }
 
@@ -799,6 +841,34 @@ pub fn unjudged(chain: &Chain, error: &EvalError, what: Unjudged) -> Finding {
     ))
 }
 
+/// R674 for a chain whose faults were not judged because an error that a
+/// `catena.yaml` rule may relax (a limit beyond its range, R601) stopped
+/// the evaluation first: relaxed, that error no longer fails the check,
+/// and without this the chain would pass with its faults unjudged,
+/// unsaid. It follows from that error and is labelled where it is.
+pub fn blocked(chain: &Chain, blocker: &Finding) -> Finding {
+    let mut finding = Finding::new(
+        Code::R674,
+        &chain.file,
+        format!(
+            "no fault of the chain was judged: {} stops the fault analysis before its code window",
+            blocker.code.as_str()
+        ),
+    );
+    finding = match blocker.primary_span() {
+        Some(span) => finding.label(span, "the window stops here"),
+        None => finding.label(chain.name_span, "the window stops in this chain"),
+    };
+    finding.cause = Some(Box::new(Cause::of(blocker)));
+    if chain.is_protective() {
+        finding.severity_override = Some(Severity::Error);
+    }
+    finding.help(format!(
+        "fix {} (a rule that relaxes it does not judge the faults); then `catena checklist` lists every fault against the window",
+        blocker.code.as_str()
+    ))
+}
+
 /// Whether the alarm's trip lies outside the measurand range, where an
 /// evaluation is most likely to fail.
 fn error_at_trip(chain: &Chain, alarm: &crate::model::Alarm) -> bool {
@@ -904,9 +974,9 @@ fn fault_finding(
         (Verdict::Silent, Some(codes)) => (
             Code::R670,
             format!(
-                "`{}` {what} is silent: its codes {} overlap the valid window {} .. {}",
+                "`{}` {what} is silent: {} the valid window {} .. {}",
                 f.stage,
-                codes.words(),
+                codes.overlap(),
                 w.low,
                 w.high
             ),

@@ -342,7 +342,18 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
         Some(Ok(checked)) => findings.extend(faults::findings(chain, checked)),
         // Never a chain passed whose faults were not judged, unsaid.
         Some(Err(e)) => findings.push(faults::unjudged(chain, e, faults::Unjudged::Faults)),
-        None => {}
+        // Stopped by an error a rule may relax: said here, so a relaxed
+        // check does not pass the chain with its faults unjudged.
+        None => {
+            let blocker = findings.iter().find(|f| {
+                f.severity() == Severity::Error
+                    && f.code.category() == crate::diagnostics::Category::Design
+                    && !matches!(f.code, Code::R611 | Code::R612 | Code::R613 | Code::R614)
+            });
+            if let Some(blocker) = blocker.cloned() {
+                findings.push(faults::blocked(chain, &blocker));
+            }
+        }
     }
     findings.extend(calibration::points_outside_range(chain));
     let keep = options.keep != Keep::Nothing;

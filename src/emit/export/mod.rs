@@ -389,16 +389,16 @@ fn channel_window_constants(chain: &ChainExport) -> Vec<Constant> {
 fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
     let mut out = Vec::new();
     for f in &chain.faults {
-        let Some(codes) = f.codes.map(FaultCodes::words) else {
+        let Some(codes) = f.codes.map(FaultCodes::phrase) else {
             continue;
         };
         let (gives, whose) = match &f.channel {
             Some(ch) => (
-                format!("channel `{ch}` gives codes"),
+                format!("channel `{ch}` gives"),
                 format!("its own window, checked before the channels are added; a code of `{ch}`"),
             ),
             None => (
-                "the converter gives codes".to_string(),
+                "the converter gives".to_string(),
                 "the valid window; a code".to_string(),
             ),
         };
@@ -430,7 +430,7 @@ pub fn undetected_words(chain: &ChainExport) -> Option<String> {
         .map(|f| {
             let codes = f
                 .codes
-                .map(|c| format!(", codes {} inside the window", c.words()))
+                .map(|c| format!(", {} inside the window", c.phrase()))
                 .unwrap_or_default();
             format!(
                 "`{}` {} ({}{codes})",
