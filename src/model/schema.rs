@@ -40,6 +40,9 @@ pub enum Expect {
     OneOf(&'static [Dim]),
 }
 
+/// The word of a value's drift clause (`10 kohm ± 0.1 % drift 25 ppm/K`).
+pub const DRIFT_CLAUSE: &str = "drift";
+
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Shape {
     /// `nominal [± tol] [normal] [max] [drift d]`; `tol`/`drift` say
@@ -241,6 +244,10 @@ pub const SENSITIVITY: &str = "sensitivity";
 pub const CHANNEL_OF: &str = "channel_of";
 /// A conversion's channels added to its input.
 pub const SUM: &str = "sum";
+/// A converter's scan sequence: the order it converts its inputs in.
+pub const SCAN: &str = "scan";
+/// The part of the measurand a load cell carries.
+pub const SHARE: &str = "share";
 /// A conversion's channel its input is divided by.
 pub const RATIO: &str = "ratio";
 
@@ -451,7 +458,7 @@ static MODELS: &[ModelSpec] = &[
             p("zero_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
             p("r", toleranced(OHM)).positive(),
-            p("share", plain(Expect::Ratio)).positive(),
+            p(SHARE, plain(Expect::Ratio)).positive(),
             TIME_CONSTANT,
             COST,
             POWER,
@@ -597,8 +604,10 @@ static MODELS: &[ModelSpec] = &[
             COST,
             POWER,
             p(CHANNEL_OF, Shape::StageName),
+            p(SCAN, Shape::StageNames),
         ],
-        // A channel shares its converter's part: only its gain is its own.
+        // A channel shares its converter's part: only its gain and its
+        // burnout current (a per-input current source) are its own.
         exclusive: &[
             (CHANNEL_OF, "bits"),
             (CHANNEL_OF, "input"),
@@ -612,11 +621,11 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "notch"),
             (CHANNEL_OF, "ref_range"),
             (CHANNEL_OF, "rails"),
-            (CHANNEL_OF, "burnout"),
             (CHANNEL_OF, "bias"),
             (CHANNEL_OF, "sampling_capacitance"),
             (CHANNEL_OF, "sampling_resistance"),
             (CHANNEL_OF, "acquisition_time"),
+            (CHANNEL_OF, SCAN),
         ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
@@ -961,7 +970,8 @@ fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
     let (sensitivity, sensitivity_dim, rated) = r.at(SENSITIVITY)?;
     // A cell carrying a share of the measurand reaches its rated load at
     // the measurand's rated / share.
-    let full_scale = rated / r.value("share").unwrap_or(1.0);
+    let share = r.value(SHARE);
+    let full_scale = rated / share.unwrap_or(1.0);
     let linearity = r
         .choice("linearity", |w| match w {
             "terminal" => Some(LinearityLine::Terminal),
@@ -973,6 +983,7 @@ fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
         sensitivity,
         sensitivity_dim,
         full_scale,
+        share,
         zero: r.limit("zero"),
         nonlinearity: r.limit("nonlinearity"),
         linearity: linearity.unwrap_or(LinearityLine::Terminal),
@@ -1108,6 +1119,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         sampling,
         channel_of,
         channels: 1,
+        reads: 1,
     }))
 }
 
