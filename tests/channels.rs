@@ -368,7 +368,10 @@ fn a_summed_cell_failing_is_judged_on_its_own_channel() {
             .clone()
     };
     let lead = fault("leg_2", "excitation_lead_open");
-    let floor = (5e-6 * 128.0 / 5.0 * 2f64.powi(23) + 15e-6 * 2f64.powi(24)).round() as i64;
+    // The converter's offset, its 1 nA input bias current through the
+    // cell's half-bridge (350 Ω / 2) and its INL, each at its limit.
+    let input = (5e-6 + 1e-9 * 175.0) * 128.0 / 5.0 * 2f64.powi(23);
+    let floor = (input + 15e-6 * 2f64.powi(24)).round() as i64;
     assert_eq!(lead["verdict"], "detectable", "{lead}");
     assert_eq!(lead["channel"], "leg_2_in", "{lead}");
     assert_eq!(lead["codes"], serde_json::json!([-floor, floor]), "{lead}");

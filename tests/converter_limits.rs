@@ -106,8 +106,11 @@ fn settling_error_is_the_closed_form() {
 #[test]
 fn reference_out_of_range_is_r601_with_its_fix() {
     let found = findings("invalid/R601-vref-outside-its-range.catena");
-    assert_eq!(found.len(), 1, "{found:?}");
+    // The R601, then the R674 that follows from it: no fault was judged.
+    assert_eq!(found.len(), 2, "{found:?}");
     assert_eq!(found[0]["code"], "R601");
+    assert_eq!(found[1]["code"], "R674");
+    assert_eq!(found[1]["caused_by"]["code"], "R601");
     let message = found[0]["message"].as_str().expect("message");
     assert!(
         message.contains("reference of `conv` reaches 10.01 V"),

@@ -72,10 +72,21 @@ fn a_shorted_ntc_in_a_low_side_divider_reads_zero() {
     let spec = "tests/fixtures/faults/shorted_ntc_divider.catena";
     let md = catena(&root(), &["checklist", spec], None).stdout;
     assert!(
-        md.contains("`rail` supply or excitation lost: codes 0 or 4095,"),
+        md.contains("`rail` supply or excitation lost: code 0 or 4095,"),
         "{md}"
     );
     assert_eq!(lost["verdict"], "detectable");
+    // Shorted at its output, the supply sits at 0 V whatever its current
+    // limit: the same codes as lost, a row of its own. So does the
+    // converter's reference pin shorted, which holds the supply wired to
+    // it at 0 V too: no input, no reference.
+    for (stage, fault) in [("rail", "at_current_limit"), ("conv", "reference_shorted")] {
+        assert_eq!(
+            row(&list, stage, fault)["codes"],
+            lost["codes"],
+            "{stage} {fault}"
+        );
+    }
     assert!(
         lost["threshold"]
             .as_str()
@@ -517,4 +528,210 @@ fn a_burnout_current_below_the_converters_bias_current_leaves_its_input_undeterm
         action.contains("more than its input bias current of up to 200 nA"),
         "{action}"
     );
+}
+
+/// A current source at its compliance drives its string as a voltage
+/// source of the compliance: here 4 V across the Pt100 and a fixed
+/// 1.9 kΩ, so I = 4 V / (R + 1900 Ω) instead of the set 1 mA. At 0 °C
+/// (R = 100 Ω) that is 2 mA and 0.2 V across the Pt100; at 100 °C
+/// (R = 138.5055 Ω, IEC 60751) 1.96222 mA and 0.271779 V. On the
+/// 2.5 V ± 0.1 % reference the codes run from 0.2 / 2.5025 × 65536 =
+/// 5237.6 to 0.271779 / 2.4975 × 65536 = 7131.7: high, clear of the
+/// healthy 2616 .. 3638, but not the open element's top code. The source
+/// current's own tolerance no longer matters: the compliance sets it.
+#[test]
+fn a_current_source_at_its_compliance_drives_the_string_as_a_voltage_source() {
+    let list = checklist("kind_excitation_limits.catena");
+    let at = row(&list, "drive", "at_compliance");
+    let code = |r: f64, vref: f64| 4.0 * r / (r + 1900.0) / vref * 65536.0;
+    let (low, high) = (code(100.0, 2.5025), code(138.5055, 2.4975));
+    assert_eq!(
+        codes(at),
+        (low.round() as i64, high.round() as i64),
+        "{low} {high}"
+    );
+    assert_eq!(at["verdict"], "detectable");
+    // The element open instead: the source at 4 V holds the converter's
+    // input above its 2.5 V reference, the top code.
+    assert_eq!(codes(row(&list, "rtd", "open")), (65535, 65535));
+    // A shorted reference pin on a stated reference: 0 V against the
+    // Pt100's 0.1 V or more, so the converter runs to its top code, as it
+    // does with the reference lost.
+    assert_eq!(
+        codes(row(&list, "conv", "reference_shorted")),
+        (65535, 65535)
+    );
+    assert_eq!(codes(row(&list, "conv", "reference_lost")), (65535, 65535));
+}
+
+/// Ratiometric, the same fault changes the current and not the ratio:
+/// I·R / (I·2 kΩ) × 2^23 = R / 2000 × 2^23, 419430 at 0 °C whatever I
+/// is. The fault reads within the healthy chain's own tolerances, so it
+/// is tolerated, not silent, and `check` says nothing of it. A shorted
+/// reference resistor leaves the Pt100's voltage against 0 V: the top
+/// code.
+#[test]
+fn a_ratiometric_current_source_at_its_compliance_is_tolerated() {
+    let name = "kind_excitation_ratiometric.catena";
+    let list = checklist(name);
+    let at = row(&list, "drive", "at_compliance");
+    assert_eq!(at["verdict"], "tolerated");
+    let window = &list["chains"][0]["window"];
+    let (low, high) = codes(at);
+    assert!(window["low"].as_i64() <= Some(low) && Some(high) <= window["high"].as_i64());
+    let nominal = (100.0 / 2000.0 * 2f64.powi(23)) as i64;
+    assert!(low <= nominal && nominal <= high, "{low} {high}");
+    assert_eq!(
+        codes(row(&list, "conv", "reference_shorted")),
+        (8388607, 8388607)
+    );
+    let spec = format!("tests/fixtures/faults/{name}");
+    let run = catena(&root(), &["check", &spec], None);
+    assert!(!run.stderr.contains("compliance voltage"), "{}", run.stderr);
+}
+
+/// A converter's input bias current is an error source as an
+/// amplifier's is: up to 50 nA through the sensor's 10 kΩ output
+/// resistance is 0.5 mV at the input, 0.5 mV / (10 mV/K) = 0.05 K either
+/// way, at every point.
+#[test]
+fn a_converters_bias_current_through_the_source_is_an_offset_in_the_budget() {
+    let spec = "tests/fixtures/faults/converter_bias_offset.catena";
+    let run = catena(
+        &root(),
+        &["budget", "--format", "json", "--trials", "0", spec],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let doc = json(&run.stdout);
+    for point in doc["points"].as_array().expect("points") {
+        let bias = point["sources"]
+            .as_array()
+            .expect("sources")
+            .iter()
+            .find(|s| s["id"] == "conv.bias")
+            .unwrap_or_else(|| panic!("no conv.bias: {point}"));
+        let k = bias["contribution"].as_f64().expect("contribution");
+        assert!((k - 50e-9 * 10e3 / 10e-3).abs() < 1e-9, "{k}");
+    }
+}
+
+/// The burnout current that makes an open couple detectable must also
+/// outweigh the converter's 200 nA input bias current, which flows the
+/// other way through the 10 kΩ bias resistor at its limit. The least
+/// current I has the fault's lowest code clear of the window's top by
+/// two codes, each source at the limit that lowers it (the resistor at
+/// 9.9 kΩ, the reference at 2.50125 V, the bias current at −200 nA):
+/// I × (9.9 kΩ / 2.5 + 10 kΩ / 2.50125 − 10 kΩ / 2.5) − 200 nA × 10 kΩ /
+/// 2.5 = (top + 2) / 2^23 V/V. The window's top moves too: the bias
+/// current through the same resistor is an offset of the healthy couple.
+#[test]
+fn the_burnout_help_outweighs_the_converters_bias_current() {
+    let list = checklist("open_thermocouple_bias.catena");
+    let top = list["chains"][0]["window"]["high"]
+        .as_f64()
+        .expect("window top");
+    let per_amp = 9.9e3 / 2.5 + 10e3 / 2.50125 - 10e3 / 2.5;
+    let least = ((top + 2.0) / 2f64.powi(23) + 200e-9 * 10e3 / 2.5) / per_amp;
+    // Three significant digits, rounded up.
+    let shown = (least * 1e8).ceil() / 1e2;
+    let action = row(&list, "tc", "open")["action"]
+        .as_str()
+        .expect("an action")
+        .to_string();
+    assert!(
+        action.contains(&format!("at least {shown:.2} uA")),
+        "{least} {action}"
+    );
+    // Without the bias current the same couple needs 1.58 uA.
+    assert!(shown > 1.58 + 0.2 * 10.0 / 9.9 - 0.01, "{shown}");
+}
+
+/// Where no current helps, or any does, the help says so instead of
+/// quoting the search's ends: through only 10 Ω even 1 mA is 10 mV, a
+/// healthy code; with no bias resistor the open couple is loaded by
+/// nothing but leakage, so any current outweighing the input's bias
+/// current rails it.
+#[test]
+fn the_burnout_help_says_when_no_current_or_any_current_works() {
+    let list = checklist("open_thermocouple_small_bias_resistor.catena");
+    let action = row(&list, "tc", "open")["action"].as_str().expect("action");
+    assert!(
+        action.starts_with("no burnout current on `conv` up to 1.00 mA"),
+        "{action}"
+    );
+    assert!(!action.contains("pA"), "{action}");
+    let run = catena(
+        &root(),
+        &[
+            "checklist",
+            "tests/fixtures/channels/couple_pair.catena",
+            "--format",
+            "json",
+        ],
+        None,
+    );
+    let list = json(&run.stdout);
+    let action = row(&list, "tc", "open")["action"].as_str().expect("action");
+    assert!(
+        action.starts_with("any burnout current on `conv` (more than its input bias current)"),
+        "{action}"
+    );
+}
+
+/// One code is "code", several "codes": a fault that gives one end or
+/// the other gives a single code.
+#[test]
+fn a_single_fault_code_is_worded_in_the_singular() {
+    let spec = "tests/fixtures/faults/open_rtd_current_source.catena";
+    let md = catena(&root(), &["checklist", spec], None).stdout;
+    assert!(md.contains("open circuit: code 65535, "), "{md}");
+    assert!(!md.contains("codes 65535"), "{md}");
+    let spec = "tests/fixtures/faults/check_open_couple_silent.catena";
+    let run = catena(&root(), &["check", "--format", "json", spec], None);
+    assert!(
+        run.stdout.contains("its codes 1660 .. 1695 overlap"),
+        "{}",
+        run.stdout
+    );
+}
+
+/// A chain stopped by R601 has no window and no fault judged. A
+/// `catena.yaml` that relaxes R601 lets the check pass, so R674 says the
+/// faults were not judged, following from the R601, and stays after the
+/// relaxing.
+#[test]
+fn a_relaxed_limit_still_says_the_faults_were_not_judged() {
+    let dir = common::temp_dir("faults", "relaxed_r601");
+    std::fs::create_dir_all(dir.join(".git")).unwrap();
+    std::fs::copy(
+        root().join("tests/fixtures/invalid/R601-over-gained-amplifier.catena"),
+        dir.join("amp.catena"),
+    )
+    .unwrap();
+    let codes = |dir: &std::path::Path| {
+        let run = catena(dir, &["check", "--format", "json", "amp.catena"], None);
+        let doc = json(&run.stdout);
+        let found: Vec<(String, String)> = doc["findings"]
+            .as_array()
+            .expect("findings")
+            .iter()
+            .map(|f| {
+                let s = |k: &str| f[k].as_str().unwrap_or_default().to_string();
+                (s("code"), s("severity"))
+            })
+            .collect();
+        (run.status, found)
+    };
+    let (status, found) = codes(&dir);
+    assert_eq!(status, 1);
+    assert!(
+        found.contains(&("R674".into(), "warning".into())),
+        "{found:?}"
+    );
+    std::fs::write(dir.join("catena.yaml"), "rules:\n  R601: allow\n").unwrap();
+    let (status, found) = codes(&dir);
+    assert_eq!(status, 0, "{found:?}");
+    assert_eq!(found, vec![("R674".to_string(), "warning".to_string())]);
+    std::fs::remove_dir_all(&dir).unwrap();
 }

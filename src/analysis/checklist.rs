@@ -105,7 +105,9 @@ pub struct FaultRow {
 impl FaultRow {
     /// Whether firmware cannot tell the fault from a reading.
     pub fn hidden(&self) -> bool {
-        self.verdict != Verdict::Detectable.name()
+        [Verdict::Silent, Verdict::Undetermined]
+            .iter()
+            .any(|v| self.verdict == v.name())
     }
 }
 
@@ -240,6 +242,7 @@ fn fault_row(f: &super::faults::FaultVerdict) -> FaultRow {
         reason: f.reason.clone(),
         action: match f.verdict {
             Verdict::Detectable => "flag the reading invalid and hold the output safe while the code is past the threshold".to_string(),
+            Verdict::Tolerated => "none in firmware: it reads within the healthy chain's own tolerances; check it at bring-up".to_string(),
             Verdict::Silent | Verdict::Undetermined => f
                 .fix
                 .clone()

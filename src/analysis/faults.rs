@@ -24,6 +24,11 @@ pub enum Verdict {
     Detectable,
     Silent,
     Undetermined,
+    /// Inside the window, but reading as a healthy chain does: at every
+    /// condition the fault moves the code less than the healthy chain's
+    /// own tolerances already may (a ratiometric reading whose current
+    /// source runs to its compliance). Nothing to detect, nothing hidden.
+    Tolerated,
 }
 
 impl Verdict {
@@ -32,6 +37,15 @@ impl Verdict {
             Verdict::Detectable => "detectable",
             Verdict::Silent => "silent",
             Verdict::Undetermined => "undetermined",
+            Verdict::Tolerated => "tolerated",
+        }
+    }
+
+    /// Whether firmware cannot see the fault and its reading is wrong.
+    pub fn hidden(self) -> bool {
+        match self {
+            Verdict::Silent | Verdict::Undetermined => true,
+            Verdict::Detectable | Verdict::Tolerated => false,
         }
     }
 }
@@ -61,6 +75,9 @@ pub fn found_at_bring_up(kind: FaultKind) -> bool {
         | FaultKind::OverRange
         | FaultKind::UnderRange
         | FaultKind::ReferenceLost
+        | FaultKind::ReferenceShorted
+        | FaultKind::AtCompliance
+        | FaultKind::AtCurrentLimit
         | FaultKind::CompensationLeadOpen
         | FaultKind::ForceLeadOpen
         | FaultKind::ReturnLeadOpen
@@ -103,6 +120,28 @@ impl FaultCodes {
             FaultCodes::Span(lo, hi) => format!("{lo} .. {hi}"),
             FaultCodes::EitherEnd(lo, hi) => format!("{lo} or {hi}"),
         }
+    }
+
+    /// Whether the converter gives a single code: one span of one code,
+    /// or one end or the other.
+    pub fn single(self) -> bool {
+        match self {
+            FaultCodes::Span(lo, hi) => lo == hi,
+            FaultCodes::EitherEnd(..) => true,
+        }
+    }
+
+    /// The codes with their noun: `code 17`, `codes 0 .. 4095`, `code 0
+    /// or 4095`.
+    pub fn phrase(self) -> String {
+        let noun = if self.single() { "code" } else { "codes" };
+        format!("{noun} {}", self.words())
+    }
+
+    /// "its codes … overlap" or "its code … overlaps".
+    pub fn overlap(self) -> String {
+        let verb = if self.single() { "overlaps" } else { "overlap" };
+        format!("its {} {verb}", self.phrase())
     }
 }
 
@@ -376,13 +415,45 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
     if verdict.verdict != Verdict::Detectable {
         seen_on_a_channel(plan, cases, window, &mut verdict);
     }
-    if verdict.verdict != Verdict::Detectable {
+    if verdict.verdict == Verdict::Silent && reads_as_healthy(plan, cases, window, &fault) {
+        verdict.verdict = Verdict::Tolerated;
+    }
+    if verdict.verdict.hidden() {
         let (text, at) = fix(plan, cases, window, &fault, verdict.codes);
         verdict.fix = text;
         verdict.fix_at = at.map(|n| plan.names[n.index()].clone());
         verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
     }
     verdict
+}
+
+/// Whether, at every condition, the fault's nominal code lies within the
+/// spread the healthy chain's own tolerances give there (each source's
+/// worst deviation from the healthy nominal, added up on each side),
+/// widened by what the window allows every code (its noise, and half a
+/// code of rounding): the fault then reads no worse than a healthy chain
+/// at its limits.
+fn reads_as_healthy(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> bool {
+    let slack = window.k * window.sigma_codes + 0.5;
+    let within = |env: &Env| -> Result<bool, EvalError> {
+        let healthy = |values: &[f64]| plan.exact_code(values, env, plan.adc);
+        let nominal = healthy(&plan.nominal)?;
+        let (mut down, mut up) = (0.0_f64, 0.0_f64);
+        for pair in cases.limits.chunks(2) {
+            let (mut lo, mut hi) = (0.0_f64, 0.0_f64);
+            for values in pair {
+                let d = healthy(values)? - nominal;
+                (lo, hi) = (lo.min(d), hi.max(d));
+            }
+            down += lo;
+            up += hi;
+        }
+        Ok(match plan.faulted_code(&plan.nominal, env, fault)? {
+            FaultCode::Code(c) => nominal + down - slack <= c && c <= nominal + up + slack,
+            FaultCode::EitherEnd | FaultCode::Undetermined(_) => false,
+        })
+    };
+    cases.envs.iter().all(|env| within(env).unwrap_or(false))
 }
 
 /// A fault the conversion's code does not show may still take one
@@ -480,6 +551,10 @@ fn fix(
             ),
             None => (None, None),
         },
+        (FaultKind::AtCompliance, _) if codes.is_none() => (
+            Some("state the source's compliance (`compliance`, the voltage its output can reach), so the code at it is determined".to_string()),
+            here,
+        ),
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) if a.output.is_none() => (
             Some("state the amplifier's output swing (`output`), so its saturated output gives a determined code".to_string()),
             here,
@@ -487,8 +562,8 @@ fn fix(
         _ => (
             codes.map(|codes| {
                 format!(
-                    "its codes {} overlap the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
-                    codes.words(), window.low, window.high
+                    "{} the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
+                    codes.overlap(), window.low, window.high
                 )
             }),
             here,
@@ -504,6 +579,7 @@ fn unstated_limit(plan: &Plan, fault: &Fault) -> bool {
         // are optional: without them the fault is unchecked.
         (FaultKind::InputOpen | FaultKind::StuckHigh, _) => true,
         (FaultKind::Open, _) => unstated_compliance(plan, fault.node).is_some(),
+        (FaultKind::AtCompliance, Node::Excitation(e)) => e.compliance.is_none(),
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) => {
             a.output.is_none()
         }
@@ -529,8 +605,13 @@ fn unstated_compliance(plan: &Plan, i: NodeId) -> Option<NodeId> {
 
 /// The least burnout current that drives an open couple's code clear of
 /// the window, found by bisection over the current (the code grows with
-/// it, to the rail).
+/// it, to the rail) from the reading stage's input bias current, which it
+/// must outweigh, to 1 mA. Where the bias current itself (or 1 pA, when
+/// none is stated) already suffices, any current that outweighs it does:
+/// the help says so rather than quote the search's floor. Where 1 mA does
+/// not, it says that no current in the range does.
 fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> Option<String> {
+    let reader = reader_of(plan, fault.node)?;
     let detectable = |amps: f64| {
         let trial = Fault {
             burnout: Some(amps),
@@ -541,10 +622,29 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
             .and_then(|codes| codes.threshold(window))
             .is_some()
     };
-    let (mut low, mut high) = (1e-12_f64, 1e-3_f64);
-    if !detectable(high) {
-        return None;
+    const MOST: f64 = 1e-3;
+    let floor = plan.input_bias(reader).unwrap_or(0.0).max(1e-12);
+    let (name, lo, hi) = (&plan.names[reader.index()], window.low, window.high);
+    if floor >= MOST || !detectable(MOST) {
+        let from = match plan.input_bias(reader) {
+            Some(bias) => format!(
+                " from its input bias current of {}",
+                with_prefix(bias, "A", 3)
+            ),
+            None => String::new(),
+        };
+        return Some(format!(
+            "no burnout current on `{name}`{from} up to {} takes the open input clear of the valid window {lo} .. {hi}: give the open input a larger resistance to develop it across (`bias_resistor`), or a pull-up to a rail",
+            with_prefix(MOST, "A", 3)
+        ));
     }
+    if detectable(floor) {
+        return Some(format!(
+            "any burnout current on `{name}` ({}) drives the open input clear of the valid window {lo} .. {hi}",
+            outweighs_bias(plan, reader)
+        ));
+    }
+    let (mut low, mut high) = (floor, MOST);
     for _ in 0..60 {
         let mid = (low * high).sqrt();
         if detectable(mid) {
@@ -553,15 +653,11 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
             low = mid;
         }
     }
-    let reader = reader_of(plan, fault.node)?;
     // Three significant digits, rounded up: "at least".
     let step = 10f64.powi(high.log10().floor() as i32 - 2);
     let amps = with_prefix((high / step).ceil() * step, "A", 3);
     Some(format!(
-        "a burnout current of at least {amps} on `{}` (`burnout {amps}`) drives the open input clear of the valid window {} .. {}",
-        plan.names[reader.index()],
-        window.low,
-        window.high
+        "a burnout current of at least {amps} on `{name}` (`burnout {amps}`) drives the open input clear of the valid window {lo} .. {hi}"
     ))
 }
 
@@ -624,7 +720,7 @@ pub fn maskings(
             let safe_below = (alarm.side == "high") == rises;
             let cases = Cases::at(chain, plan, &past_trip(plan, &alarm));
             let masks = |f: &FaultVerdict| match f.verdict {
-                Verdict::Detectable => false,
+                Verdict::Detectable | Verdict::Tolerated => false,
                 Verdict::Undetermined => true,
                 Verdict::Silent => match code_range(plan, &cases, window, &f.fault) {
                     Err(_) => true,
@@ -754,6 +850,34 @@ pub fn unjudged(chain: &Chain, error: &EvalError, what: Unjudged) -> Finding {
     ))
 }
 
+/// R674 for a chain whose faults were not judged because an error that a
+/// `catena.yaml` rule may relax (a limit beyond its range, R601) stopped
+/// the evaluation first: relaxed, that error no longer fails the check,
+/// and without this the chain would pass with its faults unjudged,
+/// unsaid. It follows from that error and is labelled where it is.
+pub fn blocked(chain: &Chain, blocker: &Finding) -> Finding {
+    let mut finding = Finding::new(
+        Code::R674,
+        &chain.file,
+        format!(
+            "no fault of the chain was judged: {} stops the fault analysis before its code window",
+            blocker.code.as_str()
+        ),
+    );
+    finding = match blocker.primary_span() {
+        Some(span) => finding.label(span, "the window stops here"),
+        None => finding.label(chain.name_span, "the window stops in this chain"),
+    };
+    finding.cause = Some(Box::new(Cause::of(blocker)));
+    if chain.is_protective() {
+        finding.severity_override = Some(Severity::Error);
+    }
+    finding.help(format!(
+        "fix {} (a rule that relaxes it does not judge the faults); then `catena checklist` lists every fault against the window",
+        blocker.code.as_str()
+    ))
+}
+
 /// Whether the alarm's trip lies outside the measurand range, where an
 /// evaluation is most likely to fail.
 fn error_at_trip(chain: &Chain, alarm: &crate::model::Alarm) -> bool {
@@ -824,7 +948,7 @@ fn same_reason(a: &FaultVerdict, b: &FaultVerdict) -> bool {
 /// and one whose limit is left unstated in a chain that guards nobody.
 /// A chain that protects people or property makes them errors.
 pub fn reported_severity(chain: &Chain, f: &FaultVerdict) -> Option<Severity> {
-    if f.verdict == Verdict::Detectable
+    if !f.verdict.hidden()
         || found_at_bring_up(f.fault.kind)
         || (f.unstated && !chain.is_protective())
     {
@@ -859,9 +983,9 @@ fn fault_finding(
         (Verdict::Silent, Some(codes)) => (
             Code::R670,
             format!(
-                "`{}` {what} is silent: its codes {} overlap the valid window {} .. {}",
+                "`{}` {what} is silent: {} the valid window {} .. {}",
                 f.stage,
-                codes.words(),
+                codes.overlap(),
                 w.low,
                 w.high
             ),

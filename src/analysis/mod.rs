@@ -336,9 +336,14 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
             f.severity() == Severity::Error
                 && !matches!(f.code, Code::R611 | Code::R612 | Code::R613 | Code::R614)
         });
-    let faults = sound
-        .then(|| check_faults(chain, &plan, envelopes.as_deref(), options, &mut findings))
-        .flatten();
+    let faults = if sound {
+        check_faults(chain, &plan, envelopes.as_deref(), options, &mut findings)
+    } else {
+        // Stopped by an error a rule may relax: said here, so a relaxed
+        // check does not pass the chain with its faults unjudged.
+        findings.extend(fault_blocker(&findings).map(|b| faults::blocked(chain, &b)));
+        None
+    };
     findings.extend(calibration::points_outside_range(chain));
     let keep = options.keep != Keep::Nothing;
     ChainCheck {
@@ -373,6 +378,19 @@ fn check_faults(
             None
         }
     }
+}
+
+/// The error that kept the faults from being judged, if a design rule
+/// (one `catena.yaml` may relax) raised it.
+fn fault_blocker(findings: &Findings) -> Option<Finding> {
+    findings
+        .iter()
+        .find(|f| {
+            f.severity() == Severity::Error
+                && f.code.category() == crate::diagnostics::Category::Design
+                && !matches!(f.code, Code::R611 | Code::R612 | Code::R613 | Code::R614)
+        })
+        .cloned()
 }
 
 /// E501..E503 at the first nominal corner (a measurand end at an ambient

@@ -184,7 +184,7 @@ fn markdown(list: &Checklist) -> String {
     for f in &list.faults {
         let codes = f
             .codes
-            .map(|c| format!("codes {}", c.words()))
+            .map(|c| c.phrase())
             .unwrap_or_else(|| match &f.reason {
                 Some(why) => format!("no determined code ({why})"),
                 None => "no determined code".to_string(),

@@ -139,7 +139,7 @@ fn fault_state(f: &Option<FaultOutcome>) -> String {
     let Some(f) = f else { return "—".into() };
     let state = match (f.verdict, f.threshold, f.codes) {
         (Verdict::Detectable, Some(t), _) => format!("detectable, {}", threshold_text(t)),
-        (Verdict::Silent, _, Some(codes)) => format!("silent, codes {}", codes.words()),
+        (Verdict::Silent, _, Some(codes)) => format!("silent, {}", codes.phrase()),
         (v, _, _) => v.name().to_string(),
     };
     match f.severity {

@@ -34,6 +34,16 @@ pub enum FaultKind {
     UnderRange,
     /// A converter's reference lost.
     ReferenceLost,
+    /// A converter's reference pin shorted to ground: the reference, and
+    /// any stage wired to the same node, at 0 V.
+    ReferenceShorted,
+    /// A current source at its compliance: its output stands at the
+    /// compliance voltage, so the load draws what that voltage drives
+    /// through it instead of the set current (its regulation lost).
+    AtCompliance,
+    /// A voltage source at its current limit with its output shorted: it
+    /// sags to the limit current times the short.
+    AtCurrentLimit,
     /// A 3-wire RTD's compensation lead open.
     CompensationLeadOpen,
     /// A 4-wire RTD's force lead open: the one carrying the excitation
@@ -102,6 +112,9 @@ impl FaultKind {
             FaultKind::OverRange => "over_range",
             FaultKind::UnderRange => "under_range",
             FaultKind::ReferenceLost => "reference_lost",
+            FaultKind::ReferenceShorted => "reference_shorted",
+            FaultKind::AtCompliance => "at_compliance",
+            FaultKind::AtCurrentLimit => "at_current_limit",
             FaultKind::CompensationLeadOpen => "compensation_lead_open",
             FaultKind::ForceLeadOpen => "force_lead_open",
             FaultKind::ReturnLeadOpen => "return_lead_open",
@@ -130,6 +143,9 @@ impl FaultKind {
             FaultKind::OverRange => "converter over-range (top code)",
             FaultKind::UnderRange => "converter under-range (bottom code)",
             FaultKind::ReferenceLost => "reference lost",
+            FaultKind::ReferenceShorted => "reference shorted to ground",
+            FaultKind::AtCompliance => "output at its compliance voltage (regulation lost)",
+            FaultKind::AtCurrentLimit => "output shorted, held at its current limit",
             FaultKind::CompensationLeadOpen => "compensation lead open",
             FaultKind::ForceLeadOpen => "force lead open (current in)",
             FaultKind::ReturnLeadOpen => "force lead open (current return)",
@@ -171,6 +187,21 @@ pub fn open_input(burnout: Option<f64>, cm: f64) -> Faulted {
             rs: OPEN_OHMS,
         }),
         None => Faulted::Undetermined(FLOATING),
+    }
+}
+
+/// A node's signal with its output shorted to ground: a source gives
+/// nothing, a voltage across an element is gone (the short carries the
+/// current; the element's foot stays where it was).
+fn grounded_signal(s: Signal) -> Signal {
+    match s {
+        Signal::Source(_) => Signal::Source(0.0),
+        Signal::Voltage { v, cm, .. } => Signal::Voltage {
+            v: 0.0,
+            cm: cm - v / 2.0,
+            rs: SHORT_OHMS,
+        },
+        other => other,
     }
 }
 
@@ -292,6 +323,16 @@ impl Plan {
         }
     }
 
+    /// The node a converter's shorted reference pin holds at 0 V: the
+    /// stage wired to its `ref` input, which every other stage on that
+    /// node then sees at 0 V too (a ratiometric excitation goes with it).
+    fn shorted_reference(&self, fault: &Fault) -> Option<NodeId> {
+        match (fault.kind, &self.nodes[fault.node.index()]) {
+            (FaultKind::ReferenceShorted, Node::Adc(adc)) => adc.reference,
+            _ => None,
+        }
+    }
+
     /// The main converter's exact code with `fault` present.
     pub fn faulted_code(
         &self,
@@ -315,6 +356,7 @@ impl Plan {
     ) -> Result<FaultCode, EvalError> {
         let mut signals = [Signal::None; MAX_NODES];
         let starved = self.starved_source(fault);
+        let grounded = self.shorted_reference(fault);
         let mode = Mode {
             faulted: Some(fault.node),
             ..Mode::FAULT
@@ -333,6 +375,11 @@ impl Plan {
             }
             let s = if starved == Some(i) {
                 Faulted::Signal(Signal::Current(0.0))
+            } else if grounded == Some(i) {
+                match self.faulted_node(i, values, env, &signals, mode, None)? {
+                    Faulted::Signal(s) => Faulted::Signal(grounded_signal(s)),
+                    other => other,
+                }
             } else if channel == Some(i) {
                 self.faulted_own_code(i, values, env, &signals, mode, here(i))?
             } else {

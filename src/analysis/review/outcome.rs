@@ -115,8 +115,10 @@ pub struct FaultOutcome {
 }
 
 impl FaultOutcome {
+    /// Whether firmware sees the fault, or needs not (it reads within
+    /// the healthy chain's tolerances).
     pub fn detectable(&self) -> bool {
-        self.verdict == Verdict::Detectable
+        !self.verdict.hidden()
     }
 }
 

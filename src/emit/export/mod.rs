@@ -20,7 +20,7 @@ pub use model::{
 };
 pub use rust::render as render_rust;
 
-use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold, Verdict};
+use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
 use crate::units::format::trimmed;
 
 /// Everything one run exports: the chains of one spec.
@@ -420,16 +420,16 @@ fn channel_window_constants(chain: &ChainExport) -> Vec<Constant> {
 fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
     let mut out = Vec::new();
     for f in &chain.faults {
-        let Some(codes) = f.codes.map(FaultCodes::words) else {
+        let Some(codes) = f.codes.map(FaultCodes::phrase) else {
             continue;
         };
         let (gives, whose) = match &f.channel {
             Some(ch) => (
-                format!("channel `{ch}` gives codes"),
+                format!("channel `{ch}` gives"),
                 format!("its own window, checked before the channels are added; a code of `{ch}`"),
             ),
             None => (
-                "the converter gives codes".to_string(),
+                "the converter gives".to_string(),
                 "the valid window; a code".to_string(),
             ),
         };
@@ -457,11 +457,11 @@ pub fn undetected_words(chain: &ChainExport) -> Option<String> {
     let list: Vec<String> = chain
         .faults
         .iter()
-        .filter(|f| f.verdict != Verdict::Detectable)
+        .filter(|f| f.verdict.hidden())
         .map(|f| {
             let codes = f
                 .codes
-                .map(|c| format!(", codes {} inside the window", c.words()))
+                .map(|c| format!(", {} inside the window", c.phrase()))
                 .unwrap_or_default();
             format!(
                 "`{}` {} ({}{codes})",

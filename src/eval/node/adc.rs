@@ -33,6 +33,9 @@ pub struct Adc {
     pub burnout: Option<f64>,
     /// Its largest input bias current, A, where stated.
     pub bias: Option<f64>,
+    /// The same current as an error source, nominal 0 (its sign is not
+    /// stated): times the source resistance, an offset at its input.
+    pub bias_slot: Option<SlotId>,
     /// The other channels' codes a conversion combines with this one's.
     pub combine: Option<(CombineOp, Vec<NodeId>)>,
 }
@@ -81,7 +84,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
     });
     let (lo, hi) =
         adc::code_range(m.bits, m.polarity).map_err(|e| cx.not_invertible(&e.to_string()))?;
-    Ok(Adc {
+    let mut adc = Adc {
         bits: m.bits,
         polarity: m.polarity,
         codes: (lo as f64, hi as f64),
@@ -101,11 +104,17 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             .ok_or_else(|| cx.not_invertible("no input"))?,
         burnout: m.burnout,
         bias: m.bias,
+        bias_slot: None,
         combine: cx.combine.take(),
-    })
+    };
+    // After INL: the order the parameters are listed.
+    adc.bias_slot = m
+        .bias
+        .map(|most| cx.add("bias", SourceKind::Bias, 0.0, most, most, false));
+    Ok(adc)
 }
 
-/// Its code stuck at either end, its reference lost, or its input pin
+/// Its code stuck at either end, its reference lost or shorted, or its input pin
 /// open (its own burnout current drives the pin to a rail; without one
 /// the pin floats). A differential input's two pins are one row: a
 /// burnout current sourced into the positive pin and sunk from the
@@ -114,6 +123,7 @@ pub(super) const FAULTS: &[FaultKind] = &[
     FaultKind::OverRange,
     FaultKind::UnderRange,
     FaultKind::ReferenceLost,
+    FaultKind::ReferenceShorted,
     FaultKind::InputOpen,
 ];
 
@@ -137,14 +147,14 @@ impl Adc {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let values = run.values;
-        let Signal::Voltage { v, .. } = run.s[self.input.index()] else {
+        let Signal::Voltage { v, rs, .. } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
         let vr = self.reference_voltage(run.plan, values, run.env, run.s);
         if vr <= 0.0 || !vr.is_finite() {
             return Err(run.numeric("the reference voltage is zero or negative"));
         }
-        Ok(self.combined(run, self.code(run, v, vr)))
+        Ok(self.combined(run, self.code(run, v, rs, vr)))
     }
 
     /// [`Adc::eval`] in every lane of a batch.
@@ -163,7 +173,7 @@ impl Adc {
         }
         let mut out = Column::default();
         for (k, &vr) in vr.iter().enumerate() {
-            let own = self.code_of(run.row(k), input.x[k], vr);
+            let own = self.code_of(run.row(k), input.x[k], input.rs[k], vr);
             let code = self.combine_with(own, |n| run.s[n.index()].signal(k));
             out.set(k, code)?;
         }
@@ -255,14 +265,14 @@ impl Adc {
                 code: x as i64,
             })
         };
-        let Signal::Voltage { v, cm, .. } = run.s[self.input.index()] else {
+        let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
         let burnout = fault.and_then(|f| f.burnout);
-        let v = match (kind, open_input(burnout, cm)) {
-            (Some(FaultKind::InputOpen), Faulted::Signal(Signal::Voltage { v, .. })) => v,
+        let (v, rs) = match (kind, open_input(burnout, cm)) {
+            (Some(FaultKind::InputOpen), Faulted::Signal(Signal::Voltage { v, rs, .. })) => (v, rs),
             (Some(FaultKind::InputOpen), floating) => return Ok(floating),
-            _ => v,
+            _ => (v, rs),
         };
         let vr = match kind {
             Some(FaultKind::InputOpen) => {
@@ -270,12 +280,14 @@ impl Adc {
             }
             Some(FaultKind::OverRange) => return Ok(rail(hi)),
             Some(FaultKind::UnderRange) => return Ok(rail(lo)),
-            Some(FaultKind::ReferenceLost) => 0.0,
+            // Lost or shorted, nothing balances the input: a shorted pin
+            // also holds the node wired to it at 0 V (`Plan::faulted_code_at`).
+            Some(FaultKind::ReferenceLost | FaultKind::ReferenceShorted) => 0.0,
             Some(other) => return Err(run.numeric(other.describe())),
             None => self.reference_voltage(run.plan, run.values, run.env, run.s),
         };
         Ok(if vr > 0.0 && vr.is_finite() {
-            Faulted::Signal(self.code(run, v, vr))
+            Faulted::Signal(self.code(run, v, rs, vr))
         } else if v > 0.0 {
             rail(hi)
         } else if v < 0.0 {
@@ -288,14 +300,15 @@ impl Adc {
         })
     }
 
-    /// The code for input `v` against reference `vr`.
+    /// The code for input `v` from source resistance `rs` against
+    /// reference `vr`.
     #[inline(always)]
-    fn code(&self, run: &Run<'_>, v: f64, vr: f64) -> Signal {
-        self.code_of(run.values, v, vr)
+    fn code(&self, run: &Run<'_>, v: f64, rs: f64, vr: f64) -> Signal {
+        self.code_of(run.values, v, rs, vr)
     }
 
     #[inline(always)]
-    fn code_of(&self, values: &[f64], v: f64, vr: f64) -> Signal {
+    fn code_of(&self, values: &[f64], v: f64, rs: f64, vr: f64) -> Signal {
         let gain = self.pga.map(|g| values[g.index()]).unwrap_or(1.0)
             * (1.0 + self.gain_error.map(|g| values[g.index()]).unwrap_or(0.0));
         let (off, off_codes) = match self.offset {
@@ -303,6 +316,9 @@ impl Adc {
             Some(AdcOffset::Codes(o)) => (0.0, values[o.index()]),
             None => (0.0, 0.0),
         };
+        // Its input current through the source's resistance, as an
+        // amplifier's: an offset at its input.
+        let off = off + self.bias_slot.map_or(0.0, |b| values[b.index()] * rs);
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
         // INL is a fraction of the full-scale code span.
         let inl = self.inl.map(|s| values[s.index()]).unwrap_or(0.0)
@@ -373,11 +389,11 @@ impl Plan {
         let super::Node::Adc(adc) = &self.nodes[node.index()] else {
             return None;
         };
-        let Signal::Voltage { v, .. } = signals[adc.input.index()] else {
+        let Signal::Voltage { v, rs, .. } = signals[adc.input.index()] else {
             return None;
         };
         let vr = adc.reference_voltage(self, values, env, signals);
-        match adc.code_of(values, v, vr) {
+        match adc.code_of(values, v, rs, vr) {
             Signal::Code { exact, .. } => Some(exact),
             _ => None,
         }

@@ -35,10 +35,21 @@ pub(super) fn lower(m: &typed::Excitation, cx: &mut Cx<'_>) -> Result<Excitation
     })
 }
 
-/// A source can be lost (a blown fuse, a dead regulator).
-pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Lost];
+/// A source can be lost (a blown fuse, a dead regulator) or driven to
+/// its limit: a current source to its compliance, a voltage source to its
+/// current limit.
+const CURRENT_FAULTS: &[FaultKind] = &[FaultKind::Lost, FaultKind::AtCompliance];
+const VOLTAGE_FAULTS: &[FaultKind] = &[FaultKind::Lost, FaultKind::AtCurrentLimit];
 
 impl Excitation {
+    pub(super) fn faults(&self) -> &'static [FaultKind] {
+        if self.current {
+            CURRENT_FAULTS
+        } else {
+            VOLTAGE_FAULTS
+        }
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let v = run.drifted(run.values[self.value.index()], self.drift);
@@ -65,10 +76,23 @@ impl Excitation {
         }
     }
 
-    /// A lost source gives nothing.
+    /// A lost source gives nothing. A voltage source shorted at its
+    /// output gives the same: its current limit only keeps it alive, the
+    /// node is the short. A current source whose output stands at its
+    /// compliance drives its load as a voltage source would: the current
+    /// is the compliance over the load's own resistance.
     pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
         Ok(match kind {
-            FaultKind::Lost => Faulted::Signal(self.output(0.0)),
+            FaultKind::Lost | FaultKind::AtCurrentLimit => Faulted::Signal(self.output(0.0)),
+            FaultKind::AtCompliance => match self.compliance {
+                Some(vc) => {
+                    let load = run
+                        .plan
+                        .load_resistance(run.i, run.values, run.env, run.s)?;
+                    Faulted::Signal(self.output(vc / load))
+                }
+                None => Faulted::Undetermined("the current source's compliance is not stated"),
+            },
             _ => return Err(run.numeric(kind.describe())),
         })
     }

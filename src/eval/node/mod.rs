@@ -87,7 +87,7 @@ impl Node {
     /// The faults this kind of node can have, as its own file declares.
     pub fn faults(&self) -> &'static [FaultKind] {
         match self {
-            Node::Excitation(_) => excitation::FAULTS,
+            Node::Excitation(n) => n.faults(),
             Node::Rtd(n) => n.faults(),
             Node::Thermocouple(_) => thermocouple::FAULTS,
             Node::Thermistor(_) => thermistor::FAULTS,
