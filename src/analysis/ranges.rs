@@ -372,7 +372,21 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
             Signal::Current(a) => a,
             _ => 0.0,
         },
-        _ => 0.0,
+        // Kinds that state no limit: `node_checks` makes no check of them.
+        (
+            Node::Rtd(_)
+            | Node::Thermistor(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_),
+            _,
+        ) => 0.0,
     }
 }
 
@@ -412,7 +426,20 @@ fn compliance_voltage(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) ->
                     let unseen = lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
                     unseen * current
                 }
-                _ => 0.0,
+                Node::Excitation(_)
+                | Node::Rtd(_)
+                | Node::Thermocouple(_)
+                | Node::Thermistor(_)
+                | Node::IcVoltage(_)
+                | Node::IcCurrent(_)
+                | Node::StrainGauge(_)
+                | Node::Transducer(_)
+                | Node::Resistor(_)
+                | Node::Bridge(_)
+                | Node::Amplifier(_)
+                | Node::Filter(_)
+                | Node::Adc(_)
+                | Node::Convert(_) => 0.0,
             };
             voltage_of(s, n) + leads
         })
@@ -446,7 +473,20 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
                 r: Some(r),
                 ..
             }) if *i == exc => v / values[r.index()],
-            _ => 0.0,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => 0.0,
         })
         .sum()
 }
@@ -612,7 +652,20 @@ fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
         Node::Thermocouple(node::Thermocouple { bias: None, .. }) => {
             Some(plan.names[input.index()].as_str())
         }
-        _ => None,
+        Node::Excitation(_)
+        | Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
     }
 }
 
@@ -821,7 +874,23 @@ fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -
                 f = f.label(driver.name_span, "drives its `ref`");
             }
         }
-        _ => {}
+        (
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_),
+            _,
+        ) => {}
     }
     f
 }

@@ -171,7 +171,22 @@ fn lower_nodes<'a>(
                 Some(ColdJunction::Stage(name)) => Some(name.as_str()),
                 Some(ColdJunction::Error(_)) | None => None,
             },
-            _ => None,
+            Some(
+                StageModel::Excitation(_)
+                | StageModel::Rtd(_)
+                | StageModel::Thermistor(_)
+                | StageModel::IcVoltage(_)
+                | StageModel::IcCurrent(_)
+                | StageModel::StrainGauge(_)
+                | StageModel::Transducer(_)
+                | StageModel::Resistor(_)
+                | StageModel::Bridge(_)
+                | StageModel::Amplifier(_)
+                | StageModel::Filter(_)
+                | StageModel::Adc(_)
+                | StageModel::Convert(_),
+            )
+            | None => None,
         })
         .collect();
     let mut cx = Cx {
@@ -202,7 +217,20 @@ fn lower_nodes<'a>(
                 adc.channel_of.as_deref().unwrap_or(stage.name.as_str()),
                 true,
             ),
-            _ => (stage.name.as_str(), false),
+            StageModel::Excitation(_)
+            | StageModel::Rtd(_)
+            | StageModel::Thermocouple(_)
+            | StageModel::Thermistor(_)
+            | StageModel::IcVoltage(_)
+            | StageModel::IcCurrent(_)
+            | StageModel::StrainGauge(_)
+            | StageModel::Transducer(_)
+            | StageModel::Resistor(_)
+            | StageModel::Bridge(_)
+            | StageModel::Amplifier(_)
+            | StageModel::Filter(_)
+            | StageModel::Adc(_)
+            | StageModel::Convert(_) => (stage.name.as_str(), false),
         };
         cx.inputs = inputs(chain, si, node_of);
         cx.combine = combination(chain, si)
@@ -419,7 +447,19 @@ fn fit_conversions(plan: &mut Plan) -> Result<(), EvalError> {
         .iter()
         .filter_map(|n| match n {
             Node::Thermocouple(t) => Some((t.ty, t.senses)),
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         })
         .collect();
     let has_thermocouple = !couples.is_empty();
@@ -594,7 +634,19 @@ chain beam "q" {
         let p = plan(QUARTER);
         let bridge = p.nodes.iter().find_map(|n| match n {
             Node::Bridge(b) => Some(b),
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         });
         let bridge = bridge.expect("a bridge node");
         assert_eq!(bridge.kind, BridgeKind::Quarter);
@@ -602,7 +654,19 @@ chain beam "q" {
         assert!(bridge.others.iter().all(|(_, drift)| drift.is_some()));
         let gauge = p.nodes.iter().find_map(|n| match n {
             Node::StrainGauge(g) => Some(g),
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         });
         assert_eq!(gauge.expect("a gauge").sign, -1.0);
         let gain_error = slot(&p, "conv.gain_error");

@@ -373,11 +373,7 @@ fn used_twice(file: &Arc<SourceFile>, convert: &Stage, name: &str, span: Span) -
 
 /// What a sensor measures, as far as adding its channel to another's goes.
 fn quantity(stage: &Stage) -> Option<&'static str> {
-    match stage.model? {
-        "rtd" | "thermocouple" | "thermistor" | "ic_voltage" | "ic_current" => Some("temperature"),
-        "strain_gauge" | "transducer" => Some("a load or strain"),
-        _ => None,
-    }
+    schema::model(stage.kind, stage.model?)?.measures.words()
 }
 
 /// The sensors of the measurand upstream of `start` (a cold junction's

@@ -111,6 +111,27 @@ pub enum Role {
     Convert,
 }
 
+/// The quantity a model senses.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Measures {
+    Temperature,
+    LoadOrStrain,
+    /// Not a sensor of the measurand (a source, a fixed resistor, a
+    /// stage that conditions a signal).
+    Nothing,
+}
+
+impl Measures {
+    /// The quantity in words, None for `Nothing`.
+    pub fn words(self) -> Option<&'static str> {
+        match self {
+            Measures::Temperature => Some("temperature"),
+            Measures::LoadOrStrain => Some("a load or strain"),
+            Measures::Nothing => None,
+        }
+    }
+}
+
 /// The smallest and largest plausible value (SI), checked after units.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Plausible {
@@ -136,6 +157,8 @@ pub struct ModelSpec {
     pub model: Option<&'static str>,
     /// What it takes and gives, for the port rules (`ports.rs`).
     pub role: Role,
+    /// The quantity it senses, which the channels of one sum must share.
+    pub measures: Measures,
     /// The model line itself (`rtd pt1000`, `current 250 uA ± 0.5 %`).
     pub model_shape: Shape,
     pub params: &'static [ParamSpec],
@@ -261,6 +284,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Excitation,
         model: Some("current"),
         role: Role::CurrentSource,
+        measures: Measures::Nothing,
         model_shape: measure(AMP),
         params: &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
@@ -278,6 +302,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Excitation,
         model: Some("voltage"),
         role: Role::VoltageSource,
+        measures: Measures::Nothing,
         model_shape: measure(VOLT),
         params: &[
             p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
@@ -295,6 +320,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("rtd"),
         role: Role::Resistive,
+        measures: Measures::Temperature,
         model_shape: Shape::Words(RTD_CURVES),
         params: &[
             p("r0", toleranced(OHM)).positive(),
@@ -318,6 +344,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some(THERMOCOUPLE),
         role: Role::Floating,
+        measures: Measures::Temperature,
         model_shape: Shape::ThermocoupleType,
         params: &[
             p("class", Shape::Count { min: 1, max: 3 }),
@@ -339,6 +366,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("thermistor"),
         role: Role::Resistive,
+        measures: Measures::Temperature,
         model_shape: Shape::Flag,
         params: &[
             p("r25", toleranced(OHM)).required().positive(),
@@ -360,6 +388,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("ic_voltage"),
         role: Role::Powered,
+        measures: Measures::Temperature,
         model_shape: Shape::Flag,
         params: &[
             p("slope", toleranced(Expect::PerKelvin(Dim::VOLTAGE)))
@@ -391,6 +420,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("ic_current"),
         role: Role::PoweredCurrent,
+        measures: Measures::Temperature,
         model_shape: Shape::Flag,
         params: &[
             p("slope", toleranced(Expect::PerKelvin(Dim::CURRENT)))
@@ -411,6 +441,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("strain_gauge"),
         role: Role::Resistive,
+        measures: Measures::LoadOrStrain,
         model_shape: Shape::Flag,
         params: &[
             p("r", measure(OHM)).required().positive(),
@@ -431,6 +462,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("transducer"),
         role: Role::Transducer,
+        measures: Measures::LoadOrStrain,
         model_shape: Shape::Flag,
         params: &[
             p(
@@ -465,6 +497,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("resistor"),
         role: Role::Resistive,
+        measures: Measures::Nothing,
         model_shape: measure(OHM),
         params: &[COST, POWER],
         exclusive: &[],
@@ -476,6 +509,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("divider"),
         role: Role::Bridge { arms: 1 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
             p("r", measure(OHM)).required().positive(),
@@ -492,6 +526,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("quarter"),
         role: Role::Bridge { arms: 1 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
@@ -503,6 +538,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("half"),
         role: Role::Bridge { arms: 2 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
@@ -514,6 +550,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("full"),
         role: Role::Bridge { arms: 4 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[COST, POWER],
         exclusive: &[],
@@ -525,6 +562,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Amplifier,
         model: None,
         role: Role::Amplifier,
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
             p("gain", toleranced(Expect::Ratio)).required().positive(),
@@ -556,6 +594,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Filter,
         model: Some("lowpass"),
         role: Role::Filter,
+        measures: Measures::Nothing,
         model_shape: Shape::Words(&["rc", "butterworth", "bessel"]),
         params: &[
             p("order", Shape::Count { min: 1, max: 8 }),
@@ -574,6 +613,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Adc,
         model: None,
         role: Role::Adc,
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
             p("bits", Shape::Count { min: 1, max: 32 }).required(),
@@ -626,6 +666,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Convert,
         model: None,
         role: Role::Convert,
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
             p("method", Shape::Method),
@@ -663,7 +704,17 @@ pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
             },
             &e.value,
         )),
-        _ => None,
+        StageModel::Rtd(_)
+        | StageModel::Thermocouple(_)
+        | StageModel::Thermistor(_)
+        | StageModel::IcVoltage(_)
+        | StageModel::IcCurrent(_)
+        | StageModel::StrainGauge(_)
+        | StageModel::Transducer(_)
+        | StageModel::Amplifier(_)
+        | StageModel::Filter(_)
+        | StageModel::Adc(_)
+        | StageModel::Convert(_) => None,
     }
 }
 

@@ -354,12 +354,26 @@ impl Plan {
     /// combines, else 1. Each rounds on its own, so the sum's
     /// quantization is that many independent half-codes.
     pub fn summed_codes(&self) -> usize {
+        use super::Node;
         match &self.nodes[self.adc.index()] {
-            super::Node::Adc(Adc {
+            Node::Adc(Adc {
                 combine: Some((CombineOp::Sum, others)),
                 ..
             }) => 1 + others.len(),
-            _ => 1,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => 1,
         }
     }
 
