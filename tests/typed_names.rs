@@ -417,3 +417,272 @@ fn char_literal_len(text: &str) -> Option<usize> {
         _ => None,
     }
 }
+
+/// String literals that spell a parameter's name but are another word,
+/// as (file, literal, why).
+const NAME_ALLOWED: &[(&str, &str, &str)] = &[
+    (
+        "src/eval/plan.rs",
+        "tolerance",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "drift",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "offset",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "gain",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "bias",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "sensor",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "lead",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "cold_junction",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "nonlinearity",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/plan.rs",
+        "inl",
+        "a source kind's word in the budget",
+    ),
+    (
+        "src/eval/node/rtd.rs",
+        "c",
+        "the Callendar-Van Dusen coefficient C's slot, not a filter's `c`",
+    ),
+    (
+        "src/analysis/budget.rs",
+        "noise",
+        "the noise source's id and kind in the budget",
+    ),
+    (
+        "src/analysis/monte_carlo.rs",
+        "noise",
+        "the noise source's id in the draws",
+    ),
+    (
+        "src/analysis/soundness.rs",
+        "noise",
+        "the noise source's id in the budget",
+    ),
+    (
+        "src/analysis/review/mod.rs",
+        "power",
+        "the bill's figure in the comparison, a word for people",
+    ),
+    (
+        "src/cli/compare.rs",
+        "power",
+        "the bill's row in the comparison table, a word for people",
+    ),
+    (
+        "src/cli/budget_json.rs",
+        "rate",
+        "a JSON key of the dynamics",
+    ),
+    ("src/cli/budget_table.rs", "limit", "a table heading"),
+    ("src/cli/budget_table.rs", "method", "a table heading"),
+    ("src/cli/eval.rs", "output", "a table heading"),
+    ("src/cli/export.rs", "c", "a file extension"),
+    (
+        "src/cli/report.rs",
+        "output",
+        "the command's `--output` flag",
+    ),
+    (
+        "src/cli/settings.rs",
+        "reference",
+        "the `reference` setting of catena.yaml",
+    ),
+    (
+        "src/config/values.rs",
+        "reference",
+        "the `reference` key of catena.yaml",
+    ),
+    (
+        "src/model/settings.rs",
+        "reference",
+        "the chain's `reference` setting",
+    ),
+    (
+        "src/syntax/ast.rs",
+        "reference",
+        "the keyword of the chain's `reference` setting",
+    ),
+    ("src/syntax/ast.rs", "sensor", "the `sensor` stage keyword"),
+    (
+        "src/emit/report/diagram.rs",
+        "sensor",
+        "the `sensor` stage keyword",
+    ),
+    (
+        "src/emit/export/mod.rs",
+        "cold_junction",
+        "an exported curve's name",
+    ),
+    (
+        "src/emit/export/model.rs",
+        "offset",
+        "the `offset` calibration method",
+    ),
+    (
+        "src/emit/report/build.rs",
+        "offset",
+        "the `offset` calibration method",
+    ),
+    (
+        "src/emit/report/markdown.rs",
+        "offset",
+        "the `offset` calibration method",
+    ),
+    (
+        "src/model/interpret.rs",
+        "offset",
+        "the `offset` calibration method",
+    ),
+    (
+        "src/model/interpret.rs",
+        "drift",
+        "the `drift` clause of a measure",
+    ),
+    ("src/model/interpret.rs", "bits", "the unit `bits`"),
+    ("src/units/table.rs", "bits", "the unit `bits`"),
+    ("src/units/table.rs", "c", "a unit's alias"),
+    (
+        "src/model/requirement.rs",
+        "accuracy",
+        "the `require accuracy` kind",
+    ),
+    (
+        "src/model/track.rs",
+        "ratio",
+        "the `ratio` clause of a tracking group",
+    ),
+    ("src/emit/report/plots.rs", "gain", "a plot's axis label"),
+    ("src/emit/report/plots.rs", "limit", "a plot's legend label"),
+    (
+        "src/analysis/ranges.rs",
+        "output",
+        "the limited quantity in a finding's words",
+    ),
+    (
+        "src/analysis/ranges.rs",
+        "input",
+        "the limited quantity in a finding's words",
+    ),
+    (
+        "src/analysis/ranges.rs",
+        "reference",
+        "the limited quantity in a finding's words",
+    ),
+];
+
+/// Every parameter name the schema declares.
+fn parameter_names() -> std::collections::BTreeSet<&'static str> {
+    use catena::model::schema;
+    use catena::syntax::ast::StageKind;
+    StageKind::ALL
+        .iter()
+        .flat_map(|&kind| schema::models(kind))
+        .flat_map(|model| model.params.iter().map(|p| p.name))
+        .collect()
+}
+
+#[test]
+fn no_parameter_name_is_written_outside_the_schema() {
+    let names = parameter_names();
+    assert!(names.len() > 50, "read only {} names", names.len());
+    let mut found = Vec::new();
+    let mut allowed_used = vec![false; NAME_ALLOWED.len()];
+    for (path, text) in sources() {
+        if path == "src/model/schema.rs" {
+            continue;
+        }
+        // Unit tests write specs and slot ids as a user reads them.
+        let product = text
+            .find("#[cfg(test)]\nmod tests")
+            .map_or(text.as_str(), |end| &text[..end]);
+        for (at, literal) in string_literals(product) {
+            if !names.contains(literal) {
+                continue;
+            }
+            match NAME_ALLOWED
+                .iter()
+                .position(|(file, word, _)| *file == path && *word == literal)
+            {
+                Some(k) => allowed_used[k] = true,
+                None => found.push(format!("{path}:{}: \"{literal}\"", line_of(&text, at))),
+            }
+        }
+    }
+    assert!(
+        found.is_empty(),
+        "a parameter's name outside the schema; read the typed field, or name the \
+         parameter by its constant in `schema::param`:\n  {}",
+        found.join("\n  ")
+    );
+    for ((file, word, _), used) in NAME_ALLOWED.iter().zip(allowed_used) {
+        assert!(
+            used,
+            "the allowance for \"{word}\" in {file} matches nothing: remove it"
+        );
+    }
+}
+
+/// Plain string literals of one word (no escapes), with their offsets.
+fn string_literals(text: &str) -> Vec<(usize, &str)> {
+    let code = blank_comments_and_strings(text);
+    let bytes = code.as_bytes();
+    let mut out = Vec::new();
+    let mut k = 0;
+    while k < bytes.len() {
+        if bytes[k] == b'"' {
+            let end = code[k + 1..].find('"').map_or(bytes.len(), |e| k + 1 + e);
+            let literal = &text[k + 1..end.min(text.len())];
+            if !literal.is_empty()
+                && literal
+                    .bytes()
+                    .all(|b| b.is_ascii_lowercase() || b.is_ascii_digit() || b == b'_')
+            {
+                out.push((k, literal));
+            }
+            k = end + 1;
+        } else {
+            k += 1;
+        }
+    }
+    out
+}
+
+#[test]
+fn string_literals_are_read_whole_and_outside_comments() {
+    let text = "let a = \"gain\"; // \"offset\"\nlet b = \"two words\"; let c = 'x'; f(\"r\")";
+    let words: Vec<&str> = string_literals(text).into_iter().map(|(_, w)| w).collect();
+    assert_eq!(words, ["gain", "r"]);
+}

@@ -17,6 +17,7 @@ use crate::eval::{
     node, BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SlotId, SourceKind,
     LANES, MAX_NODES,
 };
+use crate::model::schema;
 use crate::model::{Chain, Stage};
 use crate::physics::adc;
 use crate::physics::rtd::{lead_loop_resistance, lead_series_resistance};
@@ -75,15 +76,18 @@ impl Limit {
     /// it, which the finding labels instead of a parameter).
     pub fn params(self) -> (&'static str, &'static str) {
         match self {
-            Limit::AmplifierInput => ("input", "input"),
-            Limit::AmplifierOutput => ("output", "gain"),
-            Limit::ConverterInput => ("vref", "vref"),
-            Limit::Compliance => ("compliance", "current"),
-            Limit::CurrentLimit => ("limit", "voltage"),
-            Limit::MaxCurrent => ("max_current", "max_current"),
-            Limit::ConverterReference => ("ref_range", "vref"),
-            Limit::ConverterPin(_) => ("rails", "rails"),
-            Limit::ConverterSettling => ("acquisition_time", "sampling_capacitance"),
+            Limit::AmplifierInput => (schema::param::INPUT, schema::param::INPUT),
+            Limit::AmplifierOutput => (schema::param::OUTPUT, schema::param::GAIN),
+            Limit::ConverterInput => (schema::VREF, schema::VREF),
+            Limit::Compliance => (schema::param::COMPLIANCE, "current"),
+            Limit::CurrentLimit => (schema::param::LIMIT, "voltage"),
+            Limit::MaxCurrent => (schema::param::MAX_CURRENT, schema::param::MAX_CURRENT),
+            Limit::ConverterReference => (schema::param::REF_RANGE, schema::VREF),
+            Limit::ConverterPin(_) => (schema::param::RAILS, schema::param::RAILS),
+            Limit::ConverterSettling => (
+                schema::param::ACQUISITION_TIME,
+                schema::param::SAMPLING_CAPACITANCE,
+            ),
         }
     }
 }
@@ -921,7 +925,7 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
             Some(tc) => format!("hold the couple's common mode inside {} .. {} with a `bias_voltage` on `{tc}` (mid-range: {}), or choose an amplifier whose input range includes {}", show(e, e.allowed.0), show(e, e.allowed.1), show(e, (e.allowed.0 + e.allowed.1) / 2.0), show(e, value)),
             None => format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e, e.allowed.0), show(e, e.allowed.1), show(e, value)),
         }),
-        Limit::ConverterInput if high => match slot("vref") {
+        Limit::ConverterInput if high => match slot(schema::VREF) {
             Some(vref) => Some(format!("a reference of at least {} keeps {pct} % headroom", with_prefix(vref * value / target, "V", 4))),
             None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
         },
@@ -929,7 +933,7 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
         Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {pct} % headroom is {}", with_prefix(i * target / value, "A", 4))),
         Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {pct} % headroom", with_prefix(value / (1.0 - margin), "A", 4))),
         Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
-        Limit::ConverterReference => Some(reference_fix(slot("vref").is_some(), high, value, target, margin)),
+        Limit::ConverterReference => Some(reference_fix(slot(schema::VREF).is_some(), high, value, target, margin)),
         Limit::ConverterPin(_) => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e, e.allowed.0), show(e, e.allowed.1), show(e, value))),
         Limit::ConverterSettling => None,
     }
@@ -953,7 +957,7 @@ fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> O
         .unwrap_or(0.0);
     let pct = trimmed(margin * 100.0, 3);
     if value != shift && (target - shift) / (value - shift) > 0.0 {
-        return nominal_of(plan, e.node, "gain").map(|g| {
+        return nominal_of(plan, e.node, schema::param::GAIN).map(|g| {
             let fits = g * (target - shift) / (value - shift);
             let word = if fits < g { "at most" } else { "at least" };
             format!(

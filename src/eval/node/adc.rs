@@ -5,6 +5,7 @@ use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed::{self, AdcInput, CombineOp};
 use crate::model::value::Tolerance;
 use crate::physics::adc::{self, Polarity};
@@ -56,7 +57,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
     };
     let (vref, vref_drift) = match &m.vref {
         Some(v) => (
-            Some(cx.measure("vref", SourceKind::Tolerance, v)),
+            Some(cx.measure(schema::VREF, SourceKind::Tolerance, v)),
             v.drift
                 .as_ref()
                 .map(|d| cx.drift("vref_drift", d.per_kelvin, d.relative)),
@@ -69,10 +70,10 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
     let pga = m
         .pga
         .as_ref()
-        .map(|g| cx.measure("pga", SourceKind::Tolerance, g));
+        .map(|g| cx.measure(schema::param::PGA, SourceKind::Tolerance, g));
     cx.owner = owner;
     let offset = m.offset.as_ref().map(|t| {
-        let slot = cx.limit("offset", SourceKind::Bound, t);
+        let slot = cx.limit(schema::param::OFFSET, SourceKind::Bound, t);
         if t.dim == Dim::CODE {
             AdcOffset::Codes(slot)
         } else {
@@ -93,8 +94,13 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
         vref_drift,
         reference: cx.inputs.reference,
         offset,
-        gain_error: fraction(cx, "gain_error", SourceKind::Gain, &m.gain_error),
-        inl: fraction(cx, "inl", SourceKind::Inl, &m.inl),
+        gain_error: fraction(
+            cx,
+            schema::param::GAIN_ERROR,
+            SourceKind::Gain,
+            &m.gain_error,
+        ),
+        inl: fraction(cx, schema::param::INL, SourceKind::Inl, &m.inl),
         input: cx
             .inputs
             .input
