@@ -209,6 +209,41 @@ fn ratiometric_excitation_cancels() {
         // 880 … 1060 Ω over this range at about 3.9 Ω/K (IEC 60751): 1.1 … 1.4 K.
         assert!(f(&source(p, "drive.current")["contribution"]) < 1e-4, "{p}");
     }
+    // The signal path says where it cancels: the probe's voltage carries
+    // the current's ± 0.5 % (rectangular: 1σ = 0.5 % / √3 of the value,
+    // referred through the gain), the converter reading against `rref`
+    // carries next to none of it.
+    let stages = v["stages"].as_array().unwrap();
+    let probe = &stages[0];
+    let conv = stages.iter().find(|s| s["stage"] == "conv").expect("conv");
+    let cancels = &conv["cancels"];
+    assert_eq!(cancels["source"], "drive.current", "{conv}");
+    let by_hand = 0.005 / 3f64.sqrt() * f(&probe["value"]) / f(&probe["gain"]);
+    let before = f(&cancels["before"]);
+    assert!(
+        (before / by_hand - 1.0).abs() < 1e-3,
+        "{before} vs {by_hand}"
+    );
+    assert!(f(&cancels["after"]) < 1e-3 * before, "{cancels}");
+    assert!(stages[..stages.len() - 1]
+        .iter()
+        .all(|s| s.get("cancels").is_none()));
+}
+
+/// Summed load cells: each cell's own error is diluted in the sum, not
+/// cancelled, so the note names only the shared excitation the converter
+/// reads against.
+#[test]
+fn a_sum_dilutes_what_a_ratio_cancels() {
+    let v = budget_in(
+        ".",
+        "specs/feed_silo.catena",
+        &["--trials", "0", "--points", "3"],
+    );
+    let stages = v["stages"].as_array().unwrap();
+    let notes: Vec<&serde_json::Value> = stages.iter().filter_map(|s| s.get("cancels")).collect();
+    assert_eq!(notes.len(), 1, "{stages:?}");
+    assert_eq!(notes[0]["source"], "supply.voltage");
 }
 
 /// Every demo chain gets a budget and a verdict on each of its requirements.

@@ -461,7 +461,7 @@ fn source_contributions(
 
 /// An effect at or below the floor is the arithmetic's rounding: zero, so
 /// it is neither printed nor summed as if the source moved the reading.
-fn beyond_rounding(effect: f64, floor: f64) -> f64 {
+pub(super) fn beyond_rounding(effect: f64, floor: f64) -> f64 {
     if effect.abs() <= floor {
         0.0
     } else {

@@ -81,6 +81,16 @@ struct StageJson {
     unit: &'static str,
     gain: f64,
     error: f64,
+    /// The source this stage cancels most of, where the error falls here.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    cancels: Option<CancelJson>,
+}
+
+#[derive(Serialize)]
+struct CancelJson {
+    source: String,
+    before: f64,
+    after: f64,
 }
 
 #[derive(Serialize)]
@@ -274,6 +284,11 @@ fn stages(a: &Analysis, f: f64) -> Vec<StageJson> {
             unit: n.unit,
             gain: n.gain,
             error: n.error * f,
+            cancels: n.cancels.as_ref().map(|x| CancelJson {
+                source: x.source.clone(),
+                before: x.before * f,
+                after: x.after * f,
+            }),
         })
         .collect()
 }

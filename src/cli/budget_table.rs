@@ -7,6 +7,8 @@ use crate::analysis::budget::Point;
 use crate::analysis::ranges::LimitUnit;
 use crate::analysis::report::Analysis;
 use crate::analysis::validation::GumCheck;
+use crate::emit::report::fmt::cancel_note;
+use crate::eval::NodeId;
 use crate::model::{Chain, RequirementKind};
 use crate::units::format::{attenuation_db, from_si, significant, trimmed};
 
@@ -168,8 +170,23 @@ fn signal_path(a: &Analysis, unit: &str, f: f64, v: &dyn Fn(f64) -> String) -> S
     } else {
         ""
     };
+    let name = |n: NodeId| a.names.get(n.index()).cloned().unwrap_or_default();
+    let notes: String = a
+        .accumulation
+        .windows(2)
+        .filter_map(|pair| {
+            let x = pair[1].cancels.as_ref()?;
+            let stages = [name(pair[0].node), name(pair[1].node)];
+            let (before, after) = (
+                format!("{} {unit}", v(x.before)),
+                format!("{} {unit}", v(x.after)),
+            );
+            let note = cancel_note([&stages[0], &stages[1]], &x.source, &before, &after);
+            Some(format!("{note}\n"))
+        })
+        .collect();
     format!(
-        "along the signal path, at the worst point{when}\n\n{}\n\n",
+        "along the signal path, at the worst point{when}\n\n{}\n{notes}\n",
         lines(&t)
     )
 }

@@ -395,7 +395,7 @@ impl Reader<'_> {
             m.max = true;
             m.span = m.span.to(span);
         }
-        if self.peek_word("drift") {
+        if self.peek_word(super::schema::DRIFT_CLAUSE) {
             let word = self.next().map(Value::span).unwrap_or_default();
             if !drift {
                 return Err(self.malformed(

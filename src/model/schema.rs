@@ -40,6 +40,9 @@ pub enum Expect {
     OneOf(&'static [Dim]),
 }
 
+/// The word of a value's drift clause (`10 kohm ± 0.1 % drift 25 ppm/K`).
+pub const DRIFT_CLAUSE: &str = "drift";
+
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Shape {
     /// `nominal [± tol] [normal] [max] [drift d]`; `tol`/`drift` say

@@ -241,18 +241,22 @@ fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Findin
     let elsewhere = schema::models(decl.kind)
         .find(|m| m.model.is_some() && m.param(name).is_some())
         .and_then(|m| m.model);
-    let help = match (did_you_mean(name, model.names()), elsewhere) {
-        (Some(n), _) => format!("did you mean `{n}`?"),
-        (None, Some(other)) => format!("`{name}` belongs to a {} `{other}`", decl.kind.keyword()),
-        (None, None) => format!(
-            "a {what} takes {}",
-            model
-                .names()
-                .map(|n| format!("`{n}`"))
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
-    };
+    let help = drift_clause_help(line, decl, model).unwrap_or_else(|| {
+        match (did_you_mean(name, model.names()), elsewhere) {
+            (Some(n), _) => format!("did you mean `{n}`?"),
+            (None, Some(other)) => {
+                format!("`{name}` belongs to a {} `{other}`", decl.kind.keyword())
+            }
+            (None, None) => format!(
+                "a {what} takes {}",
+                model
+                    .names()
+                    .map(|n| format!("`{n}`"))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ),
+        }
+    });
     Finding::new(
         Code::P301,
         line.file,
@@ -260,6 +264,35 @@ fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Findin
     )
     .label(line.param.name.span, "unknown parameter")
     .help(help)
+}
+
+/// A `drift` written as a line of its own, where the model takes a drift
+/// only as a clause of a value: the line it belongs on, rewritten.
+fn drift_clause_help(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Option<String> {
+    if line.param.name.name != schema::DRIFT_CLAUSE {
+        return None;
+    }
+    let drifts = |name: &str| {
+        let shape = if model.model == Some(name) {
+            Some(model.model_shape)
+        } else {
+            model.param(name).map(|p| p.shape)
+        };
+        matches!(shape, Some(Shape::Measure { drift: true, .. }))
+    };
+    let coefficient = value_text(line.file, line.param)?;
+    let host = decl.params.iter().find(|p| drifts(&p.name.name))?;
+    Some(format!(
+        "a drift is a clause of the value it belongs to, written after its tolerance: `{} drift {coefficient}`",
+        line.file.slice(host.span).trim_end()
+    ))
+}
+
+/// The values of a line as written.
+fn value_text<'a>(file: &'a SourceFile, param: &Param) -> Option<&'a str> {
+    let first = param.values.first()?.span();
+    let last = param.values.last()?.span();
+    Some(file.slice(first.to(last)))
 }
 
 /// M229: a bias on a sensor whose common mode its circuit already sets.

@@ -1,10 +1,10 @@
 //! The report model of one chain, built from its analyses.
 
 use super::model::{
-    AlarmRow, BudgetSection, CalibrationRow, CalibrationSection, ChainReport, ChainSummary,
-    Checklist, Contributor, Diagram, DiagramEdge, DiagramNode, DynamicsSection, HeadroomPoint,
-    HiddenFault, LimitFlag, LimitRow, MethodTotal, NoiseSection, NoiseTermRow, PathRow, PointRow,
-    RequirementRow, StageHeadroom, StageRow, SummaryRow, Verdict,
+    AlarmRow, BudgetSection, CalibrationRow, CalibrationSection, CancelRow, ChainReport,
+    ChainSummary, Checklist, Contributor, Diagram, DiagramEdge, DiagramNode, DynamicsSection,
+    HeadroomPoint, HiddenFault, LimitFlag, LimitRow, MethodTotal, NoiseSection, NoiseTermRow,
+    PathRow, PointRow, RequirementRow, StageHeadroom, StageRow, SummaryRow, Verdict,
 };
 use crate::analysis::budget::{ambients, measurand_points};
 use crate::analysis::checklist::{DESIGN_AID, PROTECTS};
@@ -502,6 +502,11 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
                 gain: n.gain * units.per_written(),
                 error: n.error * f,
                 dominant: n.dominant.clone(),
+                cancels: n.cancels.as_ref().map(|x| CancelRow {
+                    source: x.source.clone(),
+                    before: x.before * f,
+                    after: x.after * f,
+                }),
             })
             .collect(),
         requirement: a

@@ -71,6 +71,17 @@ pub fn path_title(c: &super::model::ChainReport) -> String {
     format!("Error along the signal path (1σ, referred to the measurand{when})")
 }
 
+/// Under the signal path, where a stage cancels most of a source an
+/// earlier stage carried (a ratiometric converter reading out its
+/// excitation's error), so a large error early on does not read as the
+/// chain's.
+pub fn cancel_note(stages: [&str; 2], source: &str, before: &str, after: &str) -> String {
+    let [earlier, stage] = stages;
+    format!(
+        "`{stage}` cancels most of `{source}`: {before} at `{earlier}`, {after} from `{stage}` on"
+    )
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

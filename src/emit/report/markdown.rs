@@ -302,36 +302,65 @@ fn budget(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
             value(p.error, u)
         );
     }
+    for pair in b.path.windows(2) {
+        if let Some(x) = &pair[1].cancels {
+            let stages = [pair[0].stage.as_str(), pair[1].stage.as_str()];
+            let note =
+                super::fmt::cancel_note(stages, &x.source, &value(x.before, u), &value(x.after, u));
+            let _ = writeln!(out, "\n{note}.");
+        }
+    }
     points(out, c);
 }
 
 fn points(out: &mut String, c: &ChainReport) {
     let b = &c.budget;
     let u = &c.unit;
+    // A column no point fills (no Monte Carlo, no calibration) is left
+    // out rather than shown empty.
+    let monte_carlo = b.points.iter().any(|p| p.monte_carlo_95.is_some());
+    let validated = b.points.iter().any(|p| p.gum_validated.is_some());
+    let calibrated = b
+        .points
+        .iter()
+        .any(|p| p.gum_expanded_uncalibrated.is_some());
+    let mut heads = vec![c.summary.quantity.to_string(), "ambient".into()];
+    heads.extend(["worst case".to_string(), "GUM expanded".into()]);
+    for (shown, head) in [
+        (monte_carlo, "Monte Carlo 95 %"),
+        (validated, "GUM validated"),
+        (calibrated, "without calibration"),
+    ] {
+        if shown {
+            heads.push(head.into());
+        }
+    }
     out.push_str("\n<details><summary>Every point</summary>\n\n");
-    let _ = writeln!(
-        out,
-        "| {} | ambient | worst case | GUM expanded | Monte Carlo 95 % | GUM validated | without calibration |",
-        c.summary.quantity
-    );
-    out.push_str("| --- | --- | --- | --- | --- | --- | --- |\n");
+    let _ = writeln!(out, "| {} |", heads.join(" | "));
+    let _ = writeln!(out, "|{}", " --- |".repeat(heads.len()));
     for p in &b.points {
-        let _ = writeln!(
-            out,
-            "| {} | {} | ± {} | ± {} | {} | {} | {} |",
+        let mut cells = vec![
             position(p.measurand, &c.measurand_unit),
             position(p.ambient, "degC"),
-            value(p.worst_case, u),
-            value(p.gum_expanded, u),
-            p.monte_carlo_95.map_or(String::new(), |[lo, hi]| format!(
-                "{} .. {}",
-                value(lo, ""),
-                value(hi, u)
-            )),
-            p.gum_validated.map_or("", |v| if v { "yes" } else { "no" }),
-            p.gum_expanded_uncalibrated
-                .map_or(String::new(), |x| format!("± {}", value(x, u)))
-        );
+            format!("± {}", value(p.worst_case, u)),
+            format!("± {}", value(p.gum_expanded, u)),
+        ];
+        if monte_carlo {
+            cells.push(p.monte_carlo_95.map_or(String::new(), |[lo, hi]| {
+                format!("{} .. {}", value(lo, ""), value(hi, u))
+            }));
+        }
+        if validated {
+            let word = p.gum_validated.map_or("", |v| if v { "yes" } else { "no" });
+            cells.push(word.to_string());
+        }
+        if calibrated {
+            cells.push(
+                p.gum_expanded_uncalibrated
+                    .map_or(String::new(), |x| format!("± {}", value(x, u))),
+            );
+        }
+        let _ = writeln!(out, "| {} |", cells.join(" | "));
     }
     out.push_str("\n</details>\n\n");
 }

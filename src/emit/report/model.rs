@@ -261,6 +261,18 @@ pub struct PathRow {
     pub error: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub dominant: Option<String>,
+    /// The source this stage cancels most of, where the error falls here.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cancels: Option<CancelRow>,
+}
+
+/// A source's 1σ error referred to the measurand at the stage before and
+/// at the stage that cancels it.
+#[derive(Clone, Debug, Serialize)]
+pub struct CancelRow {
+    pub source: String,
+    pub before: f64,
+    pub after: f64,
 }
 
 #[derive(Clone, Debug, Default, Serialize)]
