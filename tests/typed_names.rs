@@ -566,11 +566,6 @@ const NAME_ALLOWED: &[(&str, &str, &str)] = &[
         "offset",
         "the `offset` calibration method",
     ),
-    (
-        "src/model/interpret.rs",
-        "drift",
-        "the `drift` clause of a measure",
-    ),
     ("src/model/interpret.rs", "bits", "the unit `bits`"),
     ("src/units/table.rs", "bits", "the unit `bits`"),
     ("src/units/table.rs", "c", "a unit's alias"),
