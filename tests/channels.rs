@@ -385,3 +385,221 @@ fn a_summed_cell_failing_is_judged_on_its_own_channel() {
         "{signal}: {lowest} against {top} + {others}"
     );
 }
+
+/// A channel's own `burnout` (`sum_cells.catena` with 100 nA on
+/// `cell_b_in` alone): an open signal lead of cell b is driven by it to
+/// the top code, 2²³ − 1, which the sum adds to the two other channels'
+/// codes, so it is seen above the sum's window with the threshold
+/// halfway; cell c's channel has no current of its own nor its
+/// converter's, so its open lead stays undetermined, and the help names
+/// that channel.
+#[test]
+fn a_channel_states_its_own_burnout() {
+    let spec = std::fs::read_to_string(root().join("tests/fixtures/channels/sum_cells.catena"))
+        .expect("the fixture");
+    let own = spec.replacen(
+        "channel_of conv\n",
+        "channel_of conv\n        burnout 100 nA\n",
+        1,
+    );
+    assert_ne!(own, spec);
+    let dir = common::temp_dir("channels", "burnout");
+    std::fs::write(dir.join("sum_cells.catena"), own).expect("written");
+    let out = catena(
+        &dir,
+        &["checklist", "sum_cells.catena", "--format", "json"],
+        None,
+    );
+    assert_eq!(out.status, 0, "{}{}", out.stdout, out.stderr);
+    let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+    let chain = &v["chains"][0];
+    let fault = |stage: &str| {
+        chain["faults"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|f| f["stage"] == stage && f["fault"] == "signal_lead_open")
+            .unwrap_or_else(|| panic!("no signal lead open on {stage}"))
+            .clone()
+    };
+    let b = fault("cell_b");
+    let top = 2i64.pow(23) - 1;
+    assert_eq!(b["verdict"], "detectable", "{b}");
+    assert_eq!(b["codes"][0].as_i64(), Some(top), "{b}");
+    let high = chain["window"]["high"].as_i64().unwrap();
+    let threshold = high + (top - high).div_euclid(2);
+    assert_eq!(b["threshold"], format!("code > {threshold}"), "{b}");
+    let c = fault("cell_c");
+    assert_eq!(c["verdict"], "undetermined", "{c}");
+    let action = c["action"].as_str().unwrap();
+    assert!(action.contains("on `cell_c_in` (`burnout`"), "{action}");
+}
+
+/// The ratio chain's window is in the code the firmware computes, the
+/// ratio of the Pt100's code to the reference resistor's times 2²³
+/// (`ratio_rtd.catena`, no noise stated): R_t / R_ref × 2²³, whatever
+/// the current, the reference and the gain error. By hand, with the
+/// IEC 60751 curve: lowest at 0 °C with R_ref at + 0.1 %,
+/// 100 / 100.1 × 2²³ = 8 380 227.8; highest at 200 °C with R_ref at
+/// − 0.1 %, 175.856 / 99.9 × 2²³. The converter's reference lost sends
+/// both channels to the top code, 2²³ − 1, so the ratio reads exactly
+/// 2²³ (R_t = R_ref, about 0 °C), inside the ratio's window; but the
+/// firmware checks each channel's own code before it divides, and the
+/// Pt100's channel at the top code is far above its own window (at most
+/// R_t × 1 mA × 8 / 2.5 V × 2²³ ≈ 0.57 × 2²³ with the tolerances), so it
+/// is seen there, with the threshold halfway. The reference resistor's
+/// channel at its top code leaves the ratio at the Pt100's own code,
+/// below the ratio's window: seen on the ratio itself.
+#[test]
+fn a_ratio_chain_is_judged_in_the_ratio_it_converts() {
+    let (a, b) = (3.9083e-3, -5.775e-7);
+    let full = 2f64.powi(23);
+    let r_top = 100.0 * (1.0 + a * 200.0 + b * 200.0 * 200.0);
+    let out = catena(
+        &root().join("tests/fixtures/channels"),
+        &["checklist", "ratio_rtd.catena", "--format", "json"],
+        None,
+    );
+    assert_eq!(out.status, 0, "{}{}", out.stdout, out.stderr);
+    let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+    let chain = &v["chains"][0];
+    let w = &chain["window"];
+    let low = (100.0 / 100.1 * full).round() as i64;
+    let high = (r_top / 99.9 * full).round() as i64;
+    assert_eq!(w["low"].as_i64(), Some(low), "{w}");
+    assert_eq!(w["high"].as_i64(), Some(high), "{w}");
+    let fault = |stage: &str, kind: &str| {
+        chain["faults"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|f| f["stage"] == stage && f["fault"] == kind)
+            .unwrap_or_else(|| panic!("no {kind} on {stage}"))
+            .clone()
+    };
+    let lost = fault("conv", "reference_lost");
+    assert_eq!(lost["verdict"], "detectable", "{lost}");
+    assert_eq!(lost["channel"], "conv", "{lost}");
+    let top_code = (1i64 << 23) - 1;
+    assert_eq!(lost["codes"], serde_json::json!([top_code, top_code]));
+    let own = w["channels"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|c| c["channel"] == "conv")
+        .expect("the Pt100 channel's own window");
+    let own_high = own["high"].as_i64().unwrap();
+    let over = own_high + (top_code - own_high).div_euclid(2);
+    assert_eq!(lost["threshold"], format!("conv code > {over}"), "{lost}");
+    let top = fault("rref_in", "over_range");
+    assert_eq!(top["verdict"], "detectable", "{top}");
+    let most = top["codes"][1].as_i64().unwrap();
+    let own = r_top * 1e-3 * 8.0 / 2.5 * full;
+    assert!(
+        (most as f64 - own).abs() < 0.03 * own,
+        "{top}: against {own}"
+    );
+    let threshold = most + (low - most).div_euclid(2);
+    assert_eq!(top["threshold"], format!("code < {threshold}"), "{top}");
+}
+
+/// Shares that do not make a whole (M270): `sum_cells.catena`'s three
+/// cells at 33.333 % each make one within the 0.1 % allowance; with
+/// cell c's `share` left out it carries all of the load, the set adds to
+/// 33.333 + 33.333 + 100 = 166.666 %, and the share that completes it is
+/// 100 − 66.666 = 33.334 %.
+#[test]
+fn summed_shares_make_a_whole() {
+    let dir = root().join("tests/fixtures/channels");
+    let check = |text: &str| {
+        let out = catena(
+            &dir,
+            &[
+                "check",
+                "-",
+                "--stdin-filename",
+                "sum_cells.catena",
+                "--format",
+                "json",
+            ],
+            Some(text.as_bytes()),
+        );
+        let v: Value = serde_json::from_str(&out.stdout).expect("JSON");
+        v["findings"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|f| f["code"] == "M270")
+            .cloned()
+            .collect::<Vec<_>>()
+    };
+    let spec = std::fs::read_to_string(dir.join("sum_cells.catena")).expect("the fixture");
+    assert!(check(&spec).is_empty());
+    let last = spec.rfind("        share 33.333 %\n").expect("a share");
+    let mut without = spec.clone();
+    without.replace_range(last..last + "        share 33.333 %\n".len(), "");
+    let found = check(&without);
+    assert_eq!(found.len(), 1, "{found:?}");
+    assert!(
+        found[0]["message"].as_str().unwrap().contains("166.67 %"),
+        "{}",
+        found[0]
+    );
+    let help = found[0]["help"].as_str().unwrap();
+    assert!(
+        help.contains("`cell_c` with `share 33.334 %` completes them"),
+        "{help}"
+    );
+}
+
+/// An explicit scan (`couple_scan.catena`: `scan conv, conv, cj_in` on a
+/// 20 Hz converter): the couple's channel gets two of every three
+/// conversions, 20 × 2 / 3 = 13.33 Hz, where an even split of two
+/// channels gives 10 Hz (`couple_pair.catena`); the conversion itself,
+/// its notch and its noise bandwidth, stays at 20 Hz.
+#[test]
+fn a_scan_sets_each_channels_rate() {
+    let report = run(&[
+        "report",
+        "couple_scan.catena",
+        "--format",
+        "json",
+        "--trials",
+        "100",
+    ]);
+    let d = &report["chains"][0]["dynamics"];
+    let rate = d["rate_hz"].as_f64().unwrap();
+    assert!((rate - 20.0 * 2.0 / 3.0).abs() < 1e-12, "{d}");
+    assert_eq!(d["notch_hz"], 20.0);
+    assert_eq!(report["chains"][0]["noise"]["enbw_hz"], 10.0);
+}
+
+/// The bath as a board would be built (`ratio_bath.catena`): a 400 Ω
+/// reference resistor above the Pt100's largest resistance, a stated
+/// compliance and a burnout current on each channel. It checks clean with
+/// warnings denied: every fault is seen, some only on one channel's own
+/// code, which firmware checks before it divides. The current lost leaves
+/// both channels at 0 V, a ratio of nothing over nothing, and is seen as
+/// the Pt100 channel's own code below its window.
+#[test]
+fn a_ratio_bath_built_as_a_board_checks_clean() {
+    let dir = root().join("tests/fixtures/channels");
+    let out = catena(
+        &dir,
+        &["check", "--deny", "warnings", "ratio_bath.catena"],
+        None,
+    );
+    assert_eq!(out.status, 0, "{}{}", out.stdout, out.stderr);
+    let v = run(&["checklist", "ratio_bath.catena", "--format", "json"]);
+    let chain = &v["chains"][0];
+    let lost = chain["faults"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["stage"] == "drive")
+        .expect("the excitation's fault")
+        .clone();
+    assert_eq!(lost["verdict"], "detectable", "{lost}");
+    assert_eq!(lost["channel"], "conv", "{lost}");
+    assert_eq!(chain["window"]["channels"].as_array().unwrap().len(), 2);
+}

@@ -513,6 +513,55 @@ fn the_c_fault_thresholds_lie_outside_the_window() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// Every code constant of a C export survives its type: a ratio of two
+/// channels' codes, scaled, runs past 32 bits (a shorted reference
+/// resistor's threshold in the bath is 4.2e11), and a cast to `int32_t`
+/// would wrap it.
+#[test]
+fn the_c_code_type_holds_every_code() {
+    let dir = scratch("ratio-bath-types");
+    let out = dir.join("bath").to_string_lossy().to_string();
+    let spec = "tests/fixtures/channels/ratio_bath.catena";
+    let run = export(&["export", spec, "--lang", "c", "-o", &out]);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let header = std::fs::read_to_string(dir.join("bath.h")).expect("header");
+    let codes: Vec<(&str, &str)> = header
+        .lines()
+        .filter_map(|l| l.strip_prefix("#define "))
+        .filter_map(|l| l.split_once(" ((int"))
+        .filter_map(|(name, rest)| Some((name, rest.split_once(")")?.1.trim_end_matches(')'))))
+        .collect();
+    assert!(
+        codes
+            .iter()
+            .any(|(_, v)| v.parse::<i64>().is_ok_and(|v| i32::try_from(v).is_err())),
+        "the bath has a code past 32 bits: {codes:?}"
+    );
+    let prints: String = codes
+        .iter()
+        .map(|(n, _)| format!("    printf(\"%lld\\n\", (long long){n});\n"))
+        .collect();
+    let main = format!(
+        "#include <stdio.h>\n#include \"bath.h\"\nint main(void)\n{{\n{prints}    return 0;\n}}\n"
+    );
+    std::fs::write(dir.join("main.c"), main).expect("main.c");
+    let program = dir.join("types_c");
+    let status = Command::new("cc")
+        .args(["-std=c99", "-Wall", "-Wextra", "-Werror", "-pedantic"])
+        .arg(dir.join("main.c"))
+        .arg(dir.join("bath.c"))
+        .arg("-o")
+        .arg(&program)
+        .status()
+        .expect("a C compiler (cc) runs");
+    assert!(status.success(), "the C export compiles");
+    let printed = Command::new(&program).output().expect("the program runs");
+    let printed = String::from_utf8_lossy(&printed.stdout);
+    let written: Vec<&str> = codes.iter().map(|(_, v)| *v).collect();
+    assert_eq!(printed.lines().collect::<Vec<_>>(), written);
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
 #[test]
 fn every_export_of_every_demo_spec() {
     for spec in demo_specs() {

@@ -709,7 +709,7 @@ pub fn check(
     envelopes: Option<&[Envelope]>,
 ) -> Result<FaultCheck, EvalError> {
     let window = match envelopes {
-        Some(e) => code_window_from(plan, e)?,
+        Some(e) => code_window_from(chain, plan, e)?,
         None => code_window(chain, plan)?,
     };
     let report = analyse_in(chain, plan, window)?;

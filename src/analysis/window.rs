@@ -12,7 +12,8 @@
 use super::budget;
 use super::noise::{channel_sigma_codes, noise};
 use super::ranges::{self, Limit};
-use crate::eval::{Env, EvalError, Node, NodeId, Plan};
+use crate::eval::node::Adc;
+use crate::eval::{Env, EvalError, Node, NodeId, Plan, SourceKind};
 use crate::model::typed::CombineOp;
 use crate::model::Chain;
 use crate::physics::adc::{code_range, Polarity};
@@ -40,10 +41,11 @@ pub struct CodeWindow {
     /// The converter's code range, inclusive (for a sum of channels, the
     /// sum of their ranges).
     pub rails: (i64, i64),
-    /// For a conversion that adds channels (`sum`), each channel's own
-    /// window, main converter first: firmware sees each channel's code
-    /// before it adds them, so a fault that takes one channel out of its
-    /// own window is seen even where the sum stays inside the sum's.
+    /// For a conversion that combines channels (`sum`, `ratio`), each
+    /// channel's own window, main converter first: firmware sees each
+    /// channel's code before it adds or divides them, so a fault that
+    /// takes one channel out of its own window is seen even where the
+    /// combination stays inside its window.
     pub channels: Vec<ChannelWindow>,
 }
 
@@ -65,7 +67,7 @@ impl CodeWindow {
 
 /// The chain's valid code window at its main converter.
 pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> {
-    code_window_from(plan, &ranges::envelopes(chain, plan, POINTS)?)
+    code_window_from(chain, plan, &ranges::envelopes(chain, plan, POINTS)?)
 }
 
 /// [`code_window`] from the range envelopes the limit checks already
@@ -73,31 +75,28 @@ pub fn code_window(chain: &Chain, plan: &Plan) -> Result<CodeWindow, EvalError> 
 /// A conversion that adds channels has the sum's window: each channel's
 /// reach adds (a bound on the sum's, as their extremes need not come
 /// together), and so do the rails; with each channel's own window beside
-/// it.
+/// it. A conversion that takes a ratio of two channels has the window of
+/// that ratio, the code the firmware computes ([`ratio_window`]).
 pub fn code_window_from(
+    chain: &Chain,
     plan: &Plan,
     envelopes: &[ranges::Envelope],
 ) -> Result<CodeWindow, EvalError> {
     let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
         return Err(numeric(plan, "no converter"));
     };
-    let own = own_window(plan, envelopes, plan.adc, noise_codes(plan)?)?;
     let others = match &adc.combine {
         Some((CombineOp::Sum, others)) => others,
-        Some((CombineOp::Ratio, _)) | None => return Ok(own),
+        Some((CombineOp::Ratio, others)) => {
+            return Ok(CodeWindow {
+                channels: channel_windows(plan, envelopes, others)?,
+                ..ratio_window(chain, plan, adc)?
+            })
+        }
+        None => return own_window(plan, envelopes, plan.adc, noise_codes(plan)?),
     };
-    let mut channels = vec![ChannelWindow {
-        node: plan.adc,
-        name: plan.names[plan.adc.index()].clone(),
-        window: own_window(plan, envelopes, plan.adc, channel_noise(plan, plan.adc))?,
-    }];
-    for &n in others {
-        channels.push(ChannelWindow {
-            node: n,
-            name: plan.names[n.index()].clone(),
-            window: own_window(plan, envelopes, n, channel_noise(plan, n))?,
-        });
-    }
+    let own = own_window(plan, envelopes, plan.adc, noise_codes(plan)?)?;
+    let channels = channel_windows(plan, envelopes, others)?;
     let add = |f: fn(&CodeWindow) -> (f64, f64)| {
         channels
             .iter()
@@ -113,6 +112,73 @@ pub fn code_window_from(
         channels,
         ..window_of(reach, own.sigma_codes, rails)
     })
+}
+
+/// Each combined channel's own window, the main converter first:
+/// firmware sees each channel's code before it adds or divides them.
+fn channel_windows(
+    plan: &Plan,
+    envelopes: &[ranges::Envelope],
+    others: &[NodeId],
+) -> Result<Vec<ChannelWindow>, EvalError> {
+    std::iter::once(&plan.adc)
+        .chain(others)
+        .map(|&n| {
+            Ok(ChannelWindow {
+                node: n,
+                name: plan.names[n.index()].clone(),
+                window: own_window(plan, envelopes, n, channel_noise(plan, n))?,
+            })
+        })
+        .collect()
+}
+
+/// The window of a conversion that takes the ratio of its input's code
+/// to another channel's (`ratio`), in the ratio's codes (ratio × codes
+/// of full scale), which is what the firmware computes and every fault
+/// code of the chain is: at each condition (measurand points × ambients),
+/// the nominal ratio plus the sum of every source's downward and upward
+/// changes apart, each at its two limits (the same worst case the range
+/// envelopes take), widened by k σ of the ratio's noise. Its code range
+/// is the ratio of integer codes over a denominator of at least one code
+/// in magnitude: the numerator's range times the codes of full scale
+/// (both signs on a bipolar converter, whose denominator may be negative).
+fn ratio_window(chain: &Chain, plan: &Plan, adc: &Adc) -> Result<CodeWindow, EvalError> {
+    let mut reach = (f64::INFINITY, f64::NEG_INFINITY);
+    let code = |values: &[f64], env: &Env| plan.exact_code(values, env, plan.adc);
+    for env in budget::conditions(chain, plan, POINTS) {
+        let nominal = code(&plan.nominal, &env)?;
+        let (mut down, mut up) = (0.0_f64, 0.0_f64);
+        let mut values = plan.nominal.clone();
+        for (s, slot) in plan.slots.iter().enumerate() {
+            if slot.kind == SourceKind::Exact {
+                continue;
+            }
+            let (mut lo, mut hi) = (0.0_f64, 0.0_f64);
+            for x in [slot.nominal - slot.minus, slot.nominal + slot.plus] {
+                values[s] = x;
+                let change = code(&values, &env)? - nominal;
+                (lo, hi) = (lo.min(change), hi.max(change));
+            }
+            values[s] = slot.nominal;
+            down += lo;
+            up += hi;
+        }
+        reach = (reach.0.min(nominal + down), reach.1.max(nominal + up));
+    }
+    let (lo, hi) = adc.codes;
+    let rails = match adc.polarity {
+        Polarity::Unipolar => (lo * adc.per_ref, hi * adc.per_ref),
+        Polarity::Bipolar => {
+            let most = lo.abs().max(hi.abs()) * adc.per_ref;
+            (-most, most)
+        }
+    };
+    Ok(window_of(
+        reach,
+        noise_codes(plan)?,
+        (rails.0 as i64, rails.1 as i64),
+    ))
 }
 
 /// Converter `node`'s own window: its input's envelope in codes, widened

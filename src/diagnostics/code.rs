@@ -174,6 +174,10 @@ codes! {
     M264 => Error, "sum of channels of different quantities";
     M265 => Error, "channel used twice";
     M266 => Error, "combination of a stage that is not a channel";
+    M270 => Warning, "summed shares that do not make a whole";
+    M271 => Error, "channel its converter's scan never reads";
+    M272 => Error, "unknown name in a scan";
+    M273 => Warning, "scan on a converter without channels";
 
     L401 => Error, "parts file not readable";
     L402 => Error, "malformed parts file";

@@ -365,7 +365,12 @@ impl Plan {
             faulted: Some(fault.node),
             ..Mode::FAULT
         };
-        let here = |i: NodeId| if i == fault.node { Some(fault) } else { None };
+        // The channels one conversion combines share their converter's
+        // reference: losing it leaves every one of them without it.
+        let shared = |i: NodeId| {
+            fault.kind == FaultKind::ReferenceLost && self.combined(i) && self.combined(fault.node)
+        };
+        let here = |i: NodeId| (i == fault.node || shared(i)).then_some(fault);
         // A channel read before the main converter needs nothing after it.
         let last = channel.unwrap_or(self.adc);
         for i in NodeId::all(last.index() + 1) {
@@ -382,13 +387,13 @@ impl Plan {
             match s {
                 Faulted::Signal(s) => signals[i.index()] = s,
                 Faulted::Undetermined(why) => return Ok(FaultCode::Undetermined(why)),
-                // One channel of a sum at an end nothing chooses leaves
-                // the sum anywhere among the ends' combinations: only the
-                // channel's own code is determined (at one end or the
-                // other).
-                Faulted::EitherEnd if channel.is_none() && self.summed(i) => {
+                // One channel of a sum or a ratio at an end nothing
+                // chooses leaves the combination anywhere among the ends'
+                // combinations: only the channel's own code is determined
+                // (at one end or the other).
+                Faulted::EitherEnd if channel.is_none() && self.combined(i) => {
                     return Ok(FaultCode::Undetermined(
-                        "a summed channel is left at an end nothing chooses, so the sum is not determined",
+                        "a combined channel is left at an end nothing chooses, so the conversion's code is not determined",
                     ))
                 }
                 Faulted::EitherEnd => return Ok(FaultCode::EitherEnd),
@@ -400,15 +405,13 @@ impl Plan {
         }
     }
 
-    /// Whether node `i` is a channel the main converter's conversion adds
-    /// (the main converter itself included).
-    fn summed(&self, i: NodeId) -> bool {
+    /// Whether node `i` is a channel the main converter's conversion
+    /// combines (`sum` or `ratio`; the main converter itself included).
+    fn combined(&self, i: NodeId) -> bool {
         match &self.nodes[self.adc.index()] {
             Node::Adc(adc) => match &adc.combine {
-                Some((crate::model::typed::CombineOp::Sum, others)) => {
-                    i == self.adc || others.contains(&i)
-                }
-                _ => false,
+                Some((_, others)) => i == self.adc || others.contains(&i),
+                None => false,
             },
             Node::Excitation(_)
             | Node::Rtd(_)

@@ -113,11 +113,14 @@ impl Stated {
                     acquisition: p.acquisition_time,
                     switch: p.resistance.unwrap_or(0.0),
                 });
-                // A scanned converter gives each channel one conversion in
-                // `channels`: its rate falls, its conversion (the digital
-                // filter's notch, the noise bandwidth) stays the converter's.
+                // A scanned converter gives each channel `reads` of the
+                // `channels` conversions of one scan: its rate falls, its
+                // conversion (the digital filter's notch, the noise
+                // bandwidth) stays the converter's.
                 s.conversion_hz = m.rate;
-                s.rate_hz = m.rate.map(|r| r / f64::from(m.channels.max(1)));
+                s.rate_hz = m
+                    .rate
+                    .map(|r| r * f64::from(m.reads) / f64::from(m.channels.max(1)));
                 s.notch_hz = if m.channels > 1 {
                     m.notch.or(m.rate)
                 } else {

@@ -2,7 +2,8 @@
 //! conv` is another input of converter `conv`, scanned in turn with it.
 //! It shares the converter's part (bits, reference, offset, gain error,
 //! INL, noise, timing) and each of its error sources, and keeps its own
-//! input, its own `pga` gain and its own code. Each channel's output rate
+//! input, its own `pga` gain, its own `burnout` current (else the
+//! converter's) and its own code. Each channel's output rate
 //! is the converter's `rate` over the number of channels it scans.
 
 use std::collections::HashMap;
@@ -10,11 +11,13 @@ use std::sync::Arc;
 
 use super::chain::{Connection, Stage};
 use super::ports::{Port, SignalKind};
+use super::scan::Scan;
 use super::schema;
 use super::typed::StageModel;
 use super::value::ParamValue;
 use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::StageKind;
+use crate::units::format::trimmed;
 
 /// Each channel's converter checked (M260) and its typed model completed
 /// from the converter's; each converter's channel count set; a reference
@@ -42,6 +45,8 @@ pub fn resolve(
     }
     let mut convs: Vec<_> = members.into_iter().collect();
     convs.sort();
+    let scanning: Vec<usize> = convs.iter().map(|(conv, _)| *conv).collect();
+    super::scan::without_channels(file, stages, &scanning, findings);
     for (conv, channels) in convs {
         for &ch in &channels[1..] {
             if let Some(c) = connections
@@ -52,7 +57,8 @@ pub fn resolve(
             }
         }
         same_signal_twice(file, stages, connections, &channels, findings);
-        complete(stages, conv, &channels);
+        let scan = super::scan::of(file, stages, conv, &channels, findings);
+        complete(stages, conv, &channels, &scan);
     }
 }
 
@@ -204,10 +210,11 @@ fn same_signal_twice(
     }
 }
 
-/// Each channel takes its converter's part, keeping its own `pga`; every
-/// member of the scan gets the channel count.
-fn complete(stages: &mut [Stage], conv: usize, channels: &[usize]) {
-    let count = channels.len() as u32;
+/// Each channel takes its converter's part, keeping its own `pga` and
+/// `burnout`; every member of the scan gets the scan's length and its own
+/// reads per scan.
+fn complete(stages: &mut [Stage], conv: usize, channels: &[usize], scan: &Scan) {
+    let count = scan.length;
     let Some(StageModel::Adc(part)) = stages[conv].typed.clone() else {
         // The converter was not accepted (already reported): its channels
         // cannot be evaluated either.
@@ -219,15 +226,20 @@ fn complete(stages: &mut [Stage], conv: usize, channels: &[usize]) {
     };
     if let Some(StageModel::Adc(m)) = &mut stages[conv].typed {
         m.channels = count;
+        m.reads = scan.reads[0];
     }
-    for &ch in &channels[1..] {
+    for (&ch, &reads) in channels[1..].iter().zip(&scan.reads[1..]) {
         let Some(StageModel::Adc(own)) = &stages[ch].typed else {
             continue;
         };
         let adc = super::typed::Adc {
             pga: own.pga.clone(),
+            // A burnout current is switched per input on a scanning
+            // converter: a channel's own replaces the converter's there.
+            burnout: own.burnout.or(part.burnout),
             channel_of: own.channel_of.clone(),
             channels: count,
+            reads,
             // The reference's range is the converter's to check, once.
             ref_range: None,
             ..part.clone()
@@ -295,9 +307,9 @@ pub fn check_combinations(
             }
         }
         if stage.param(schema::SUM).is_some() && members.len() == named.len() + 1 {
-            if let Some(f) = mixed_quantities(file, stages, connections, stage, &members) {
-                findings.push(f);
-            }
+            let finding = mixed_quantities(file, stages, connections, stage, &members)
+                .or_else(|| shares_not_whole(file, stages, connections, stage, &members));
+            findings.extend(finding);
         }
     }
 }
@@ -451,4 +463,95 @@ fn mixed_quantities(
         .label(stages[odd.0].name_span, what(odd.1).to_string())
         .help("a sum adds channels that each carry part of the measurand (load cells under one hopper); convert another quantity in a chain of its own, or feed a cold junction's reading into `reading.cj`"),
     )
+}
+
+/// How far the shares of summed cells may add up from the whole: 0.1 %
+/// of it, so three cells stated at 33.333 % each make a whole (a rounding
+/// allowance of our own).
+pub const SHARE_TOLERANCE: f64 = 1e-3;
+
+/// M270: the cells a sum adds carry shares of the measurand that do not
+/// add up to all of it (within [`SHARE_TOLERANCE`]). A cell that states
+/// no share carries all of it.
+fn shares_not_whole(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    convert: &Stage,
+    members: &[usize],
+) -> Option<Finding> {
+    let mut cells: Vec<usize> = members
+        .iter()
+        .flat_map(|&m| sensors_upstream(stages, connections, m))
+        .collect();
+    cells.sort_unstable();
+    cells.dedup();
+    let shares = cells
+        .iter()
+        .map(|&c| match &stages[c].typed {
+            Some(StageModel::Transducer(t)) => Some((c, t.share)),
+            Some(
+                StageModel::Excitation(_)
+                | StageModel::Rtd(_)
+                | StageModel::Thermocouple(_)
+                | StageModel::Thermistor(_)
+                | StageModel::IcVoltage(_)
+                | StageModel::IcCurrent(_)
+                | StageModel::StrainGauge(_)
+                | StageModel::Resistor(_)
+                | StageModel::Bridge(_)
+                | StageModel::Amplifier(_)
+                | StageModel::Filter(_)
+                | StageModel::Adc(_)
+                | StageModel::Convert(_),
+            )
+            | None => None,
+        })
+        .collect::<Option<Vec<_>>>()?;
+    let total: f64 = shares.iter().map(|(_, s)| s.unwrap_or(1.0)).sum();
+    if (total - 1.0).abs() <= SHARE_TOLERANCE {
+        return None;
+    }
+    // The share to mend: a cell that states none, else the last.
+    let &(odd, own) = shares.iter().find(|(_, s)| s.is_none()).or(shares.last())?;
+    let others = total - own.unwrap_or(1.0);
+    let pct = |x: f64| format!("{} %", trimmed(100.0 * x, 5));
+    let cell = &stages[odd].name;
+    let help = if others < 1.0 - SHARE_TOLERANCE {
+        format!(
+            "the shares add to {}; `{cell}` with `share {}` completes them (the other cells carry {}), or state each cell's part of the load so they add to 100 %",
+            pct(total),
+            pct(1.0 - others),
+            pct(others)
+        )
+    } else {
+        format!(
+            "the shares add to {}, and the other cells alone carry {}: state each cell's part of the load (its `share`) so they add to 100 %",
+            pct(total),
+            pct(others)
+        )
+    };
+    let mut finding = Finding::new(
+        Code::M270,
+        file,
+        format!(
+            "the cells `{}` sums carry {} of the measurand, not all of it",
+            convert.name,
+            pct(total)
+        ),
+    )
+    .label(convert.name_span, "the sum");
+    for &(c, share) in &shares {
+        let what = match share {
+            Some(s) => format!("carries {}", pct(s)),
+            None => "states no `share`: carries all of it".to_string(),
+        };
+        let span = stages[c]
+            .params
+            .iter()
+            .find(|p| p.name == schema::SHARE && Arc::ptr_eq(&p.file, file))
+            .map_or(stages[c].name_span, |p| p.span);
+        finding = finding.label(span, what);
+    }
+    Some(finding.help(help))
 }

@@ -9,6 +9,7 @@ pub mod parts;
 mod parts_positions;
 pub mod ports;
 pub mod requirement;
+mod scan;
 pub mod schema;
 mod settings;
 mod stage;

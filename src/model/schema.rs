@@ -314,6 +314,10 @@ pub const SENSITIVITY: &str = "sensitivity";
 pub const CHANNEL_OF: &str = "channel_of";
 /// A conversion's channels added to its input.
 pub const SUM: &str = "sum";
+/// A converter's scan sequence: the order it converts its inputs in.
+pub const SCAN: &str = "scan";
+/// The part of the measurand a load cell carries.
+pub const SHARE: &str = "share";
 /// A conversion's channel its input is divided by.
 pub const RATIO: &str = "ratio";
 
@@ -539,7 +543,7 @@ static MODELS: &[ModelSpec] = &[
                 Shape::Limit(Expect::PerKelvin(Dim::NONE)),
             ),
             p(param::R, toleranced(OHM)).positive(),
-            p("share", plain(Expect::Ratio)).positive(),
+            p(SHARE, plain(Expect::Ratio)).positive(),
             TIME_CONSTANT,
             COST,
             POWER,
@@ -698,8 +702,10 @@ static MODELS: &[ModelSpec] = &[
             COST,
             POWER,
             p(CHANNEL_OF, Shape::StageName),
+            p(SCAN, Shape::StageNames),
         ],
-        // A channel shares its converter's part: only its gain is its own.
+        // A channel shares its converter's part: only its gain and its
+        // burnout current (a per-input current source) are its own.
         exclusive: &[
             (CHANNEL_OF, "bits"),
             (CHANNEL_OF, "input"),
@@ -713,11 +719,11 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "notch"),
             (CHANNEL_OF, "ref_range"),
             (CHANNEL_OF, "rails"),
-            (CHANNEL_OF, "burnout"),
             (CHANNEL_OF, "bias"),
             (CHANNEL_OF, "sampling_capacitance"),
             (CHANNEL_OF, "sampling_resistance"),
             (CHANNEL_OF, "acquisition_time"),
+            (CHANNEL_OF, SCAN),
         ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
@@ -1073,7 +1079,8 @@ fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
     let (sensitivity, sensitivity_dim, rated) = r.at(SENSITIVITY)?;
     // A cell carrying a share of the measurand reaches its rated load at
     // the measurand's rated / share.
-    let full_scale = rated / r.value("share").unwrap_or(1.0);
+    let share = r.value(SHARE);
+    let full_scale = rated / share.unwrap_or(1.0);
     let linearity = r
         .choice("linearity", |w| match w {
             "terminal" => Some(LinearityLine::Terminal),
@@ -1085,6 +1092,7 @@ fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
         sensitivity,
         sensitivity_dim,
         full_scale,
+        share,
         zero: r.limit(param::ZERO),
         nonlinearity: r.limit(param::NONLINEARITY),
         linearity: linearity.unwrap_or(LinearityLine::Terminal),
@@ -1223,6 +1231,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         sampling,
         channel_of,
         channels: 1,
+        reads: 1,
     }))
 }
 

@@ -200,6 +200,9 @@ pub struct Transducer {
     pub sensitivity_dim: Dim,
     /// The load it is stated at, in the measurand's unit (SI).
     pub full_scale: f64,
+    /// The part of the measurand it carries (`share`), where stated: the
+    /// cells a conversion sums share the load between them.
+    pub share: Option<f64>,
     pub zero: Option<Tolerance>,
     pub nonlinearity: Option<Tolerance>,
     /// Terminal-based unless stated: common practice for load cells.
@@ -347,9 +350,13 @@ pub struct Adc {
     /// On a channel, the converter whose part, reference and conversions
     /// it shares (`channel_of`).
     pub channel_of: Option<String>,
-    /// How many channels its converter scans in turn (1 without
-    /// channels): each one's output rate is the converter's over this.
+    /// How many conversions one scan of its converter holds (1 without
+    /// channels; its channels' count without a `scan`).
     pub channels: u32,
+    /// How many of them read this input (`scan` lists it that often; 1
+    /// without a `scan`): its output rate is the converter's `rate` ×
+    /// `reads` / `channels`.
+    pub reads: u32,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq)]

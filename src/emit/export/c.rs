@@ -60,8 +60,16 @@ fn wrap_comment(text: &str, lead: &str) -> String {
 
 const WIDTH: usize = 78;
 
+/// The type codes are written in: 32 bits while the converter's codes and
+/// every code constant fit (a ratio of two channels' codes, scaled, and
+/// its thresholds may not), else 64.
 fn code_type(chain: &ChainExport) -> &'static str {
-    if chain.bits <= 31 {
+    let fits = |v: i64| i32::try_from(v).is_ok();
+    let all_fit = super::constants(chain).iter().all(|c| match c.value {
+        Value::Code(v) => fits(v),
+        Value::Count(_) | Value::Real(_) | Value::Reals(_) => true,
+    });
+    if chain.bits <= 31 && all_fit {
         "int32_t"
     } else {
         "int64_t"

@@ -197,12 +197,9 @@ impl Adc {
             return own;
         };
         // A channel driven past its range gives its end code, which is
-        // what the firmware adds (the channels share one part).
+        // what the firmware adds or divides (the channels share one part).
         let (lo, hi) = self.codes;
-        let ended = |e: f64| match op {
-            CombineOp::Sum => e.clamp(lo, hi),
-            CombineOp::Ratio => e,
-        };
+        let ended = |e: f64| e.clamp(lo, hi);
         let (mut exact, mut code_f) = (ended(exact), code as f64);
         for &n in others {
             let Signal::Code { exact: e, code: c } = code_of(n) else {
@@ -214,7 +211,7 @@ impl Adc {
                     code_f += c as f64;
                 }
                 CombineOp::Ratio => {
-                    exact = exact / e * self.per_ref;
+                    exact = exact / ended(e) * self.per_ref;
                     code_f = code_f / c as f64 * self.per_ref;
                 }
             }
