@@ -36,6 +36,9 @@ pub struct Analysed {
     pub analysis: Option<Analysis>,
     /// The fault verdicts and maskings its fault findings came from.
     pub faults: Option<analysis::faults::FaultCheck>,
+    /// The range envelopes its limit findings came from, at the check's
+    /// points.
+    pub envelopes: Option<Vec<analysis::ranges::Envelope>>,
 }
 
 impl CheckedFile {
@@ -56,6 +59,12 @@ impl CheckedFile {
     /// The fault verdicts the check judged `chain`'s faults on.
     pub fn faults(&self, chain: &Chain) -> Option<&analysis::faults::FaultCheck> {
         self.analysed(chain)?.faults.as_ref()
+    }
+
+    /// The range envelopes the check followed for `chain`'s limits, at
+    /// the check's points.
+    pub fn envelopes(&self, chain: &Chain) -> Option<&[analysis::ranges::Envelope]> {
+        self.analysed(chain)?.envelopes.as_deref()
     }
 
     /// The analysis `chain`'s requirements were judged on, for a report to
@@ -178,6 +187,7 @@ fn analyse_chains(
                 plan: checked.plan,
                 analysis: checked.analysis,
                 faults: checked.faults,
+                envelopes: checked.envelopes,
             });
         }
     }

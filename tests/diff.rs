@@ -522,3 +522,84 @@ fn compare_takes_an_ic_sensors_power_from_its_supply() {
     let human = catena(&dir, &["compare", "ic.catena", "--trials", "0"], None);
     assert!(human.stdout.contains("not stated: ic"), "{}", human.stdout);
 }
+
+/// The Monte Carlo worst of a diff's or a compare's outcome: (old, new) of
+/// a diff's chain, or a compare candidate's value with its numerical width.
+fn monte_carlo_worst(worst: &serde_json::Value) -> Option<&serde_json::Value> {
+    worst
+        .as_array()
+        .expect("worst")
+        .iter()
+        .find(|w| w["name"] == "monte_carlo" || w["method"] == "monte_carlo")
+}
+
+/// `diff` and `compare` take the sampling flags `budget` and `report` take
+/// (`--trials`, `--seed`, `--points`, with `catena.yaml` under them), and
+/// the trials reach the analysis: a class A element made class B moves
+/// the Monte Carlo worst at 500 trials to the value `compare` gives at
+/// 500, not at 2000; none at 0 trials; `monte_carlo.trials` in
+/// `catena.yaml` stands where the flag is not given.
+#[test]
+fn diff_trials_reach_the_analysis() {
+    let dir = common::temp_dir("diff", "trials");
+    let old = std::fs::read_to_string(fixture("cold_store.catena")).unwrap();
+    assert!(old.contains("        class A\n"));
+    std::fs::write(dir.join("old.catena"), &old).unwrap();
+    std::fs::write(
+        dir.join("new.catena"),
+        old.replace("        class A\n", "        class B\n"),
+    )
+    .unwrap();
+    let diff_worst = |more: &[&str]| {
+        let mut args = vec!["diff", "old.catena", "new.catena", "--format", "json"];
+        args.extend_from_slice(more);
+        let run = catena(&dir, &args, None);
+        assert_eq!(run.status, 0, "{}", run.stderr);
+        let doc = json(&run.stdout);
+        let worst = &doc["files"][0]["chains"][0]["outcome"]["worst"];
+        (doc["trials"].clone(), monte_carlo_worst(worst).cloned())
+    };
+    let compare_worst = |trials: &str| {
+        let args = [
+            "compare",
+            "old.catena",
+            "--trials",
+            trials,
+            "--format",
+            "json",
+        ];
+        let run = catena(&dir, &args, None);
+        assert_eq!(run.status, 0, "{}", run.stderr);
+        let doc = json(&run.stdout);
+        let worst = &doc["candidates"][0]["outcome"]["worst"];
+        monte_carlo_worst(worst)
+            .cloned()
+            .expect("a Monte Carlo worst")
+    };
+    let (few, many) = (compare_worst("500"), compare_worst("2000"));
+    assert_ne!(few["value"], many["value"]);
+    assert!(few["numerical"].as_f64().unwrap() > many["numerical"].as_f64().unwrap());
+
+    let (trials, moved) = diff_worst(&["--trials", "500"]);
+    assert_eq!(trials, 500);
+    let moved = moved.expect("class B moves the Monte Carlo worst");
+    assert_eq!(moved["old"], few["value"]);
+    assert!(moved["new"].as_f64().unwrap() > moved["old"].as_f64().unwrap());
+    assert_eq!(
+        diff_worst(&["--trials", "2000"]).1.unwrap()["old"],
+        many["value"]
+    );
+    assert_eq!(diff_worst(&["--trials", "0"]).1, None);
+    let bad = catena(
+        &dir,
+        &["diff", "old.catena", "new.catena", "--points", "1"],
+        None,
+    );
+    assert_eq!(bad.status, 2, "{}", bad.stderr);
+
+    std::fs::write(dir.join("catena.yaml"), "monte_carlo:\n  trials: 500\n").unwrap();
+    let (trials, configured) = diff_worst(&[]);
+    assert_eq!(trials, 500);
+    assert_eq!(configured.unwrap()["old"], few["value"]);
+    assert_eq!(diff_worst(&["--trials", "0"]).1, None, "the flag wins");
+}

@@ -364,26 +364,6 @@ fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
     }
 }
 
-/// The slot of an element's dissipation constant, where it states one.
-fn dissipation(node: &Node) -> Option<SlotId> {
-    match node {
-        Node::Rtd(node::Rtd { dissipation, .. })
-        | Node::Thermistor(node::Thermistor { dissipation, .. }) => *dissipation,
-        Node::Excitation(_)
-        | Node::Thermocouple(_)
-        | Node::IcVoltage(_)
-        | Node::IcCurrent(_)
-        | Node::StrainGauge(_)
-        | Node::Transducer(_)
-        | Node::Resistor(_)
-        | Node::Bridge(_)
-        | Node::Amplifier(_)
-        | Node::Filter(_)
-        | Node::Adc(_)
-        | Node::Convert(_) => None,
-    }
-}
-
 /// The self-heating of each element that states a dissipation constant,
 /// at the chosen excitation: its resistance with and without heating at
 /// the range ends (reference ambient), as a temperature through its
@@ -391,9 +371,8 @@ fn dissipation(node: &Node) -> Option<SlotId> {
 /// self-heating coefficient read the other way).
 fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
     NodeId::all(plan.nodes.len())
-        .zip(&plan.nodes)
-        .filter_map(|(n, node)| {
-            let slot = dissipation(node)?;
+        .filter_map(|n| {
+            let slot = plan.heating(n)?.dissipation;
             let delta = plan.nominal[slot.index()];
             let ends = [plan.range.0, plan.range.1].map(|m| heating_at(plan, n, slot, m).map(|k| (m, k)));
             let worst = ends
@@ -411,7 +390,7 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
                     ),
                 });
             };
-            let power = kelvin.abs() * delta;
+            let power = rtd::self_heating_power_w(kelvin.abs(), delta);
             let m_unit = chain.measurand_unit();
             Some(ReviewItem {
                 kind: ReviewKind::SelfHeating,

@@ -162,6 +162,8 @@ pub fn analyse(chain: &Chain, plan: &Plan) -> Result<FaultReport, EvalError> {
 
 /// [`analyse`] against a window already computed.
 fn analyse_in(chain: &Chain, plan: &Plan, window: CodeWindow) -> Result<FaultReport, EvalError> {
+    #[cfg(test)]
+    FAULT_RUNS.with(|runs| runs.set(runs.get() + 1));
     let cases = Cases::of(chain, plan);
     let faults = plan
         .faults()
@@ -169,6 +171,13 @@ fn analyse_in(chain: &Chain, plan: &Plan, window: CodeWindow) -> Result<FaultRep
         .map(|fault| judge(plan, &cases, &window, fault))
         .collect();
     Ok(FaultReport { window, faults })
+}
+
+#[cfg(test)]
+thread_local! {
+    /// How many times this thread judged a chain's faults: the tests count
+    /// work a command should do once.
+    pub static FAULT_RUNS: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
 }
 
 /// The conditions and value sets a fault is evaluated at: every source at

@@ -268,13 +268,15 @@ pub struct ChainCheck {
     pub analysis: Option<report::Analysis>,
     /// The fault verdicts and maskings its findings came from.
     pub faults: Option<faults::FaultCheck>,
+    /// The range envelopes its limit findings came from, at
+    /// [`CheckOptions::points`].
+    pub envelopes: Option<Vec<ranges::Envelope>>,
     pub findings: Findings,
 }
 
 /// Lowers a chain, evaluates its nominal corners (measurand ends at the
 /// ambient ends and the reference), then judges its requirements.
 pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
-    let mut findings = Findings::new();
     let Some(measurand) = &chain.measurand else {
         return ChainCheck::default();
     };
@@ -294,6 +296,7 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
             };
         }
         Err(e) => {
+            let mut findings = Findings::new();
             findings.push(eval_finding(chain, &e, at_measurand));
             return ChainCheck {
                 findings,
@@ -301,6 +304,7 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
             };
         }
     };
+    let mut findings = Findings::new();
     findings.extend(corner_error(chain, &plan, measurand));
     let mut envelopes = None;
     if findings.is_empty() {
@@ -332,25 +336,42 @@ pub fn check_chain(chain: &Chain, options: &CheckOptions) -> ChainCheck {
             f.severity() == Severity::Error
                 && !matches!(f.code, Code::R611 | Code::R612 | Code::R613 | Code::R614)
         });
-    // The window is taken at its own points, whatever `--points` says, so
-    // the verdicts are the checklist's.
-    let reuse = envelopes
-        .as_deref()
-        .filter(|_| options.points == window::POINTS);
-    let faults = sound.then(|| faults::check(chain, &plan, reuse));
-    match &faults {
-        Some(Ok(checked)) => findings.extend(faults::findings(chain, checked)),
-        // Never a chain passed whose faults were not judged, unsaid.
-        Some(Err(e)) => findings.push(faults::unjudged(chain, e, faults::Unjudged::Faults)),
-        None => {}
-    }
+    let faults = sound
+        .then(|| check_faults(chain, &plan, envelopes.as_deref(), options, &mut findings))
+        .flatten();
     findings.extend(calibration::points_outside_range(chain));
     let keep = options.keep != Keep::Nothing;
     ChainCheck {
         plan: keep.then_some(plan),
         analysis: analysis.filter(|_| keep),
-        faults: faults.and_then(Result::ok).filter(|_| keep),
+        faults: faults.filter(|_| keep),
+        envelopes: envelopes.filter(|_| keep),
         findings,
+    }
+}
+
+/// Judges a sound chain's faults and trips into `findings`; the verdicts,
+/// where they could be judged.
+fn check_faults(
+    chain: &Chain,
+    plan: &Plan,
+    envelopes: Option<&[ranges::Envelope]>,
+    options: &CheckOptions,
+    findings: &mut Findings,
+) -> Option<faults::FaultCheck> {
+    // The window is taken at its own points, whatever `--points` says, so
+    // the verdicts are the checklist's.
+    let reuse = envelopes.filter(|_| options.points == window::POINTS);
+    match faults::check(chain, plan, reuse) {
+        Ok(checked) => {
+            findings.extend(faults::findings(chain, &checked));
+            Some(checked)
+        }
+        // Never a chain passed whose faults were not judged, unsaid.
+        Err(e) => {
+            findings.push(faults::unjudged(chain, &e, faults::Unjudged::Faults));
+            None
+        }
     }
 }
 

@@ -14,7 +14,7 @@ use crate::analysis::report::{analyse_reusing, Analysis, Options};
 use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part, soundness};
 use crate::check::CheckedFile;
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::unknown_word;
 use crate::diagnostics::{render_human, Finding, Findings, Severity};
 use crate::eval::{lower, Plan};
 use crate::model::Chain;
@@ -99,10 +99,8 @@ fn select<'a>(
         return Ok(vec![c]);
     }
     if !several {
-        match did_you_mean(name, chains.iter().map(|c| c.name.as_str())) {
-            Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
-            None => errln!("catena: no chain `{name}`"),
-        }
+        let names = chains.iter().map(|c| c.name.as_str());
+        errln!("catena: {}", unknown_word("chain", name, names, None));
     }
     Err(ChainAbsent)
 }

@@ -3,7 +3,7 @@ use std::path::{Path, PathBuf};
 use clap::{Args, ValueEnum};
 
 use super::files::{collect_reporting, plain_io, read_spec};
-use super::settings::{describe, pick, Configs, DEFAULTS};
+use super::settings::{self, describe, Configs};
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::report::MAX_TRIALS;
 use crate::analysis::CheckOptions;
@@ -193,23 +193,11 @@ type Settings = (
 );
 
 fn settings_for(args: &CheckArgs, config: &Config) -> Settings {
-    let (margin, trials, seed) = DEFAULTS;
     (
-        pick(
-            args.margin.map(|m| m / 100.0),
-            "--margin",
-            config.margin.as_ref(),
-            config,
-            margin,
-        ),
-        pick(
-            args.trials.map(|t| t as usize),
-            "--trials",
-            config.trials.as_ref(),
-            config,
-            trials,
-        ),
-        pick(None, "", config.seed.as_ref(), config, seed),
+        settings::margin(args.margin, config),
+        settings::trials(args.trials.map(|t| t as usize), config),
+        // `check` takes no seed flag.
+        settings::seed(None, config),
     )
 }
 

@@ -6,17 +6,19 @@
 //! code, guard band and the faults that would mask it, and the review
 //! items (leads, self-heating, calibration, every warning `check` raised).
 
+use std::borrow::Cow;
 use std::fmt::Write as _;
 use std::path::PathBuf;
 
 use clap::{Args, ValueEnum};
 
 use super::files::check_one;
-use super::report::{about_faults, chain_checklist, warnings};
+use super::report::{about_faults, chain_checklist, judged_faults, warnings};
+use super::settings;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::checklist::{Checklist, LimitStatus};
-use crate::analysis::ranges::{envelopes, DEFAULT_MARGIN};
-use crate::analysis::Keep;
+use crate::analysis::ranges::envelopes;
+use crate::analysis::{CheckOptions, Keep};
 use crate::diagnostics::{render_human, Severity};
 use crate::emit::report::fmt::{position, share, si, value};
 use crate::model::Chain;
@@ -60,7 +62,7 @@ pub fn run(args: ChecklistArgs) -> u8 {
         Ok(c) => c,
         Err(status) => return status,
     };
-    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
+    let margin = settings::margin(None, &config).value;
     let blocking = checked
         .findings
         .iter()
@@ -133,8 +135,9 @@ fn ends_with_newline(mut text: String) -> String {
     text
 }
 
-/// One chain's checklist from the check's plan; its envelopes are the
-/// kept analysis's when it holds them, else computed once here.
+/// One chain's checklist from the check's plan, fault verdicts and range
+/// envelopes (the kept analysis's, else the check's own); each is
+/// computed here only where the check kept none.
 fn chain_list(
     checked: &crate::check::CheckedFile,
     chain: &Chain,
@@ -143,24 +146,18 @@ fn chain_list(
 ) -> Result<Checklist, String> {
     let plan = checked.plan(chain).map_err(|e| e.to_string())?;
     let kept = checked.analysis(chain).filter(|a| a.options.detail);
-    let found = match kept {
-        Some(a) => a.envelopes,
-        None => envelopes(
-            chain,
-            &plan,
-            crate::analysis::budget::Options::default().points,
-        )
-        .map_err(|e| e.to_string())?,
+    let found = match (kept, checked.envelopes(chain)) {
+        (Some(a), _) => Cow::Owned(a.envelopes),
+        (None, Some(e)) => Cow::Borrowed(e),
+        (None, None) => Cow::Owned(
+            envelopes(chain, &plan, CheckOptions::default().points).map_err(|e| e.to_string())?,
+        ),
     };
-    chain_checklist(
-        chain,
-        &plan,
-        &found,
-        margin,
-        warnings,
-        checked.faults(chain),
-    )
-    .ok_or_else(|| "its faults could not be evaluated".to_string())
+    let judged = judged_faults(checked, chain, &plan)
+        .ok_or_else(|| "its faults could not be evaluated".to_string())?;
+    Ok(chain_checklist(
+        chain, &plan, &found, margin, warnings, &judged,
+    ))
 }
 
 fn markdown(list: &Checklist) -> String {
@@ -260,5 +257,30 @@ fn alarms(s: &mut String, list: &Checklist) {
             a.trip_code,
             value(a.guard_band, &a.unit)
         );
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::{faults::FAULT_RUNS, ranges::ENVELOPE_RUNS};
+
+    /// The checklist lists what the check judged: after the check, its
+    /// chains' lists judge no fault and follow no envelope again.
+    #[test]
+    fn the_checklist_reuses_the_checks_work() {
+        let spec =
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("specs/pottery_kiln.catena");
+        let (checked, _) = check_one(&spec, Keep::Plans).expect("the demo reads");
+        assert!(!checked.chains.is_empty());
+        let warnings = warnings(&checked.findings);
+        ENVELOPE_RUNS.with(|runs| runs.set(0));
+        FAULT_RUNS.with(|runs| runs.set(0));
+        for chain in &checked.chains {
+            let list = chain_list(&checked, chain, 0.05, &warnings).expect("a checklist");
+            assert!(!list.faults.is_empty(), "chain {}", chain.name);
+        }
+        assert_eq!(ENVELOPE_RUNS.with(std::cell::Cell::get), 0);
+        assert_eq!(FAULT_RUNS.with(std::cell::Cell::get), 0);
     }
 }

@@ -10,7 +10,6 @@ use serde::Serialize;
 use super::diff::{evaluate, load, options, ReviewFormat};
 use super::diff_render::{markdown_table, num, plain_table};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::report::{DEFAULT_SEED, DEFAULT_TRIALS};
 use crate::analysis::review::{Outcome, PowerBasis};
 use crate::units::format::with_prefix;
 
@@ -21,12 +20,10 @@ pub struct CompareArgs {
     specs: Vec<String>,
     #[arg(long, value_enum, default_value_t = ReviewFormat::Human)]
     format: ReviewFormat,
-    /// Monte Carlo trials per point (0: none).
-    #[arg(long, default_value_t = DEFAULT_TRIALS)]
-    trials: usize,
-    /// The Monte Carlo seed, the same for every candidate.
-    #[arg(long, default_value_t = DEFAULT_SEED)]
-    seed: u64,
+    /// The same for every candidate; unset, from the `catena.yaml` of the
+    /// first spec's folder.
+    #[command(flatten)]
+    sampling: settings::SamplingArgs,
 }
 
 #[derive(Serialize)]
@@ -48,16 +45,19 @@ struct CompareReport {
 }
 
 pub fn run(args: CompareArgs) -> u8 {
-    if !settings::sampling_flags_usable(Some(args.trials), None) {
+    if !args.sampling.usable() {
         return EXIT_USAGE;
     }
-    let options = options(args.trials, args.seed);
-    let mut candidates = Vec::new();
+    let mut sides = Vec::new();
     for spec in &args.specs {
-        let side = match load(spec) {
-            Ok(s) => s,
+        match load(spec) {
+            Ok(side) => sides.push(side),
             Err(status) => return status,
-        };
+        }
+    }
+    let options = options(&args.sampling, sides.iter());
+    let mut candidates = Vec::new();
+    for (spec, side) in args.specs.iter().zip(&sides) {
         let file = spec.rsplit_once('#').map_or(spec.as_str(), |(f, _)| f);
         let chains: Vec<_> = side
             .checked
@@ -83,8 +83,8 @@ pub fn run(args: CompareArgs) -> u8 {
     }
     let report = CompareReport {
         schema_version: 1,
-        trials: args.trials,
-        seed: args.seed,
+        trials: options.trials.unwrap_or(0),
+        seed: options.seed,
         candidates,
     };
     let (header, rows) = table(&report.candidates);

@@ -6,19 +6,22 @@
 
 use super::settings;
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 
 use clap::{Args, ValueEnum};
 
 use super::diff_render::{human, markdown, ChainDiff, DiffReport, FileDiff};
 use super::files::{check_configured, check_one, collect, plain_io};
+use super::report::judged_faults;
 use super::revision::{self, Snapshot};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
-use crate::analysis::report::{analyse_reusing, Options, DEFAULT_SEED, DEFAULT_TRIALS};
+use crate::analysis::report::{analyse_reusing, Options};
 use crate::analysis::review::{
     diff_outcomes, outcome, spec_changes, Direction, Outcome, DEFAULT_THRESHOLD,
 };
 use crate::analysis::Keep;
 use crate::check::CheckedFile;
+use crate::config::Config;
 use crate::model::Chain;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
@@ -54,12 +57,10 @@ pub struct DiffArgs {
     /// counts as a regression.
     #[arg(long, default_value_t = DEFAULT_THRESHOLD * 100.0)]
     threshold: f64,
-    /// Monte Carlo trials per point on each side (0: none).
-    #[arg(long, default_value_t = DEFAULT_TRIALS)]
-    trials: usize,
-    /// The Monte Carlo seed, the same on both sides.
-    #[arg(long, default_value_t = DEFAULT_SEED)]
-    seed: u64,
+    /// The same on both sides; unset, from the `catena.yaml` of the first
+    /// new spec's folder.
+    #[command(flatten)]
+    sampling: settings::SamplingArgs,
 }
 
 /// One side of a comparison: a checked file and, when named, one chain.
@@ -67,6 +68,8 @@ pub(super) struct Side {
     pub label: String,
     pub checked: CheckedFile,
     pub chain: Option<String>,
+    /// The configuration that applies to the spec's folder.
+    pub config: Arc<Config>,
 }
 
 /// `FILE` or `FILE#chain`, checked.
@@ -75,21 +78,27 @@ pub(super) fn load(arg: &str) -> Result<Side, u8> {
         Some((p, c)) if !c.is_empty() => (p, Some(c.to_string())),
         _ => (arg, None),
     };
-    let (checked, _) = check_one(Path::new(path), Keep::Reports)?;
+    let (checked, config) = check_one(Path::new(path), Keep::Reports)?;
     Ok(Side {
         label: arg.to_string(),
         checked,
         chain,
+        config,
     })
 }
 
-/// The analysis options both sides share.
-pub(super) fn options(trials: usize, seed: u64) -> Options {
-    Options {
-        trials: (trials > 0).then_some(trials),
-        seed,
-        ..Options::default()
-    }
+/// The analysis options every side shares: the sampling flags, else the
+/// configuration of the first side given (`sides` in order, the new side
+/// of a pair first), else the defaults.
+pub(super) fn options<'a>(
+    sampling: &settings::SamplingArgs,
+    mut sides: impl Iterator<Item = &'a Side>,
+) -> Options {
+    let config = sides
+        .next()
+        .map(|s| Arc::clone(&s.config))
+        .unwrap_or_default();
+    sampling.options(&config)
 }
 
 /// What a chain achieves, or why it cannot be said.
@@ -112,18 +121,23 @@ pub(super) fn evaluate(
     let plan = checked.plan(chain).map_err(not_evaluated)?;
     let earlier = checked.analysis(chain);
     let a = analyse_reusing(chain, &plan, options, earlier, &|_, _| {}).map_err(not_evaluated)?;
-    Ok(outcome(chain, &plan, &a))
+    let judged = judged_faults(checked, chain, &plan);
+    Ok(outcome(
+        chain,
+        &plan,
+        &a,
+        judged.as_ref().map(|j| &j.report),
+    ))
 }
 
 pub fn run(args: DiffArgs) -> u8 {
-    if !settings::sampling_flags_usable(Some(args.trials), None) {
+    if !args.sampling.usable() {
         return EXIT_USAGE;
     }
     if !(args.threshold.is_finite() && args.threshold >= 0.0) {
         errln!("catena: --threshold takes a percentage of zero or more");
         return EXIT_USAGE;
     }
-    let options = options(args.trials, args.seed);
     let threshold = args.threshold / 100.0;
     let files = match &args.rev {
         Some(rev) => match rev_pairs(rev, &args.paths) {
@@ -149,6 +163,10 @@ pub fn run(args: DiffArgs) -> u8 {
             vec![(Some(old), Some(new))]
         }
     };
+    let options = options(
+        &args.sampling,
+        files.iter().flat_map(|(o, n)| n.iter().chain(o.iter())),
+    );
     let files: Vec<FileDiff> = files
         .iter()
         .map(|(o, n)| file_diff(o.as_ref(), n.as_ref(), &options, threshold))
@@ -161,8 +179,8 @@ pub fn run(args: DiffArgs) -> u8 {
             .fold(Direction::Neutral, headline),
         regression: chains().any(|c| c.regression),
         threshold_percent: args.threshold,
-        trials: args.trials,
-        seed: args.seed,
+        trials: options.trials.unwrap_or(0),
+        seed: options.seed,
         files,
     };
     match args.format {
@@ -351,11 +369,12 @@ fn old_side(root: &Path, rev: &str, path: &str) -> Result<Option<Side>, String> 
     }
     let base = spec.parent().map(Path::to_path_buf).unwrap_or_default();
     let label = format!("{rev}:{path}");
-    let (checked, _) = check_configured(&label, &bytes, &base, Keep::Reports);
+    let (checked, config) = check_configured(&label, &bytes, &base, Keep::Reports);
     Ok(Some(Side {
         label,
         checked,
         chain: None,
+        config,
     }))
 }
 
@@ -452,5 +471,34 @@ fn chain_diff(
         spec: spec_changes(o, n),
         outcome,
         notes,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::faults::FAULT_RUNS;
+    use crate::analysis::review::FaultsOutcome;
+
+    /// A chain's outcome carries the fault verdicts the check judged, not
+    /// a second judgement.
+    #[test]
+    fn an_outcome_reuses_the_checks_fault_verdicts() {
+        let spec = Path::new(env!("CARGO_MANIFEST_DIR")).join("specs/pottery_kiln.catena");
+        let side = load(&spec.to_string_lossy()).expect("the demo reads");
+        let options = Options {
+            trials: None,
+            ..Options::default()
+        };
+        for chain in &side.checked.chains {
+            FAULT_RUNS.with(|runs| runs.set(0));
+            let outcome = evaluate(&side.checked, chain, &options).expect("an outcome");
+            assert_eq!(FAULT_RUNS.with(std::cell::Cell::get), 0);
+            // The same verdicts a fresh judgement gives.
+            let plan = side.checked.plan(chain).expect("a plan");
+            let fresh = crate::analysis::faults::analyse(chain, &plan).expect("judged");
+            let judged = outcome.faults.expect("the faults were judged");
+            assert_eq!(judged, FaultsOutcome::of(chain, &fresh));
+        }
     }
 }

@@ -11,7 +11,7 @@ use super::{terminal, Format, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::Keep;
 use crate::analysis::{eval_finding, evaluable_part_of};
 use crate::check::CheckedFile;
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::{backticked, unknown_word};
 use crate::diagnostics::{render_human, Code, Finding, Findings, JsonFinding, Severity};
 use crate::eval::{lower, lower_unvalidated, node, Env, EvalError, Node, Plan, Signal};
 use crate::model::Chain;
@@ -289,13 +289,7 @@ fn report_one(
 }
 
 fn pick_chain<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<&'a Chain, String> {
-    let names = || {
-        chains
-            .iter()
-            .map(|c| format!("`{}`", c.name))
-            .collect::<Vec<_>>()
-            .join(", ")
-    };
+    let names = || backticked(chains.iter().map(|c| c.name.as_str()));
     match (name, chains) {
         (None, [one]) => Ok(one),
         (None, []) => Err("the file has no chain".into()),
@@ -304,10 +298,13 @@ fn pick_chain<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<&'a Chain, 
             names()
         )),
         (Some(n), _) => chains.iter().find(|c| c.name == n).ok_or_else(|| {
-            match did_you_mean(n, chains.iter().map(|c| c.name.as_str())) {
-                Some(near) => format!("no chain `{n}`; did you mean `{near}`?"),
-                None => format!("no chain `{n}`; the chains are {}", names()),
-            }
+            let otherwise = format!("the chains are {}", names());
+            unknown_word(
+                "chain",
+                n,
+                chains.iter().map(|c| c.name.as_str()),
+                Some(&otherwise),
+            )
         }),
     }
 }

@@ -1,7 +1,7 @@
 use clap::Args;
 
 use super::{EXIT_OK, EXIT_USAGE};
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::unknown_word;
 use crate::diagnostics::Code;
 
 #[derive(Args, Debug)]
@@ -27,13 +27,12 @@ pub fn run(args: ExplainArgs) -> u8 {
             EXIT_OK
         }
         None => {
-            let near = did_you_mean(&text, Code::ALL.iter().map(|c| c.as_str()));
-            match near {
-                Some(n) => errln!("catena: no diagnostic code `{text}`; did you mean `{n}`?"),
-                None => {
-                    errln!("catena: no diagnostic code `{text}`; `catena explain` lists them")
-                }
-            }
+            let codes = Code::ALL.iter().map(|c| c.as_str());
+            let otherwise = Some("`catena explain` lists them");
+            errln!(
+                "catena: {}",
+                unknown_word("diagnostic code", &text, codes, otherwise)
+            );
             EXIT_USAGE
         }
     }

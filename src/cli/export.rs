@@ -9,7 +9,7 @@ use clap::{Args, ValueEnum};
 use super::files::check_one;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::eval_finding;
-use crate::diagnostics::{did_you_mean, render_human, Findings};
+use crate::diagnostics::{backticked, render_human, unknown_word, Findings};
 use crate::emit::export::{
     chain_export, render_c, render_json, render_rust, Export, ExportError, Provenance,
 };
@@ -212,16 +212,11 @@ fn pick<'a>(chains: &'a [Chain], name: Option<&str>) -> Result<Vec<&'a Chain>, S
     };
     match chains.iter().find(|c| c.name == name) {
         Some(c) => Ok(vec![c]),
-        None => Err(
-            match did_you_mean(name, chains.iter().map(|c| c.name.as_str())) {
-                Some(near) => format!("no chain `{name}`; did you mean `{near}`?"),
-                None => {
-                    let names: Vec<String> =
-                        chains.iter().map(|c| format!("`{}`", c.name)).collect();
-                    format!("no chain `{name}`; the chains are {}", names.join(", "))
-                }
-            },
-        ),
+        None => {
+            let names = || chains.iter().map(|c| c.name.as_str());
+            let otherwise = format!("the chains are {}", backticked(names()));
+            Err(unknown_word("chain", name, names(), Some(&otherwise)))
+        }
     }
 }
 

@@ -2,6 +2,7 @@
 //! Markdown or self-contained HTML, one model rendered three ways.
 
 use super::settings;
+use std::borrow::Cow;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -12,11 +13,10 @@ use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::checklist::{checklist, Checklist, Sources};
 use crate::analysis::faults::{self, FaultCheck};
 use crate::analysis::ranges::Envelope;
-use crate::analysis::ranges::DEFAULT_MARGIN;
 use crate::analysis::report::{analyse_reusing, Options};
 use crate::analysis::soundness;
 use crate::check::CheckedFile;
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::unknown_word;
 use crate::diagnostics::{render_human, Code, Findings, Severity};
 use crate::emit::report::{
     chain_report, failed_report, render, summary_row, BuildOptions, Report, ReportFormat,
@@ -160,15 +160,12 @@ pub fn build(path: &Path, args: &ReportArgs) -> Result<Report, u8> {
             });
             match analysed {
                 Ok((plan, a)) if soundness::non_finite(chain, &a).is_empty() => {
-                    let list = chain_checklist(
-                        chain,
-                        &plan,
-                        &a.envelopes,
-                        build.margin,
-                        &warnings,
-                        checked.faults(chain),
-                    );
-                    chain_report(chain, &plan, &a, list, &build)
+                    let judged = judged_faults(&checked, chain, &plan);
+                    let list = judged.as_deref().map(|judged| {
+                        chain_checklist(chain, &plan, &a.envelopes, build.margin, &warnings, judged)
+                    });
+                    let faults = judged.as_ref().map(|j| &j.report);
+                    chain_report(chain, &plan, &a, list, faults, &build)
                 }
                 Ok(_) => failed_report(
                     chain,
@@ -223,22 +220,30 @@ pub fn warnings(findings: &Findings) -> Vec<String> {
         .collect()
 }
 
-/// A chain's fault-and-limit checklist from its envelopes; None when its
-/// faults cannot be evaluated.
-/// `kept` is the fault judgement the check made, when it kept one.
+/// A chain's faults and trips as the check judged them, kept; judged here
+/// only where the check kept none. None when they cannot be evaluated.
+pub fn judged_faults<'a>(
+    checked: &'a CheckedFile,
+    chain: &Chain,
+    plan: &Plan,
+) -> Option<Cow<'a, FaultCheck>> {
+    match checked.faults(chain) {
+        Some(kept) => Some(Cow::Borrowed(kept)),
+        None => faults::check(chain, plan, None).ok().map(Cow::Owned),
+    }
+}
+
+/// A chain's fault-and-limit checklist from its envelopes and its judged
+/// faults.
 pub fn chain_checklist(
     chain: &Chain,
     plan: &Plan,
     envelopes: &[Envelope],
     margin: f64,
     warnings: &[String],
-    kept: Option<&FaultCheck>,
-) -> Option<Checklist> {
-    let judged = match kept {
-        Some(k) => k.clone(),
-        None => faults::check(chain, plan, None).ok()?,
-    };
-    Some(checklist(
+    judged: &FaultCheck,
+) -> Checklist {
+    checklist(
         chain,
         plan,
         &Sources {
@@ -248,7 +253,7 @@ pub fn chain_checklist(
             margin,
             warnings,
         },
-    ))
+    )
 }
 
 /// The chains a report covers: all of them, or the one `--chain` names
@@ -260,10 +265,8 @@ fn selected<'c>(checked: &'c CheckedFile, chain: Option<&str>) -> Result<Vec<&'c
     match checked.chains.iter().find(|c| c.name == name) {
         Some(c) => Ok(vec![c]),
         None => {
-            match did_you_mean(name, checked.chains.iter().map(|c| c.name.as_str())) {
-                Some(n) => errln!("catena: no chain `{name}`; did you mean `{n}`?"),
-                None => errln!("catena: no chain `{name}`"),
-            }
+            let names = checked.chains.iter().map(|c| c.name.as_str());
+            errln!("catena: {}", unknown_word("chain", name, names, None));
             Err(EXIT_USAGE)
         }
     }
@@ -272,7 +275,7 @@ fn selected<'c>(checked: &'c CheckedFile, chain: Option<&str>) -> Result<Vec<&'c
 /// The analyses' options and the builder's: flags first, then
 /// `catena.yaml`, then the defaults.
 fn options(args: &ReportArgs, config: &crate::config::Config) -> (Options, BuildOptions) {
-    let margin = config.margin.as_ref().map_or(DEFAULT_MARGIN, |s| s.value);
+    let margin = settings::margin(None, config).value;
     let options = args.sampling.options(config);
     let build = BuildOptions {
         points: args.sampling.points,

@@ -61,7 +61,7 @@ pub struct Applied<T> {
 }
 
 /// The flag if given, else the configuration's value, else the default.
-pub fn pick<T: Clone>(
+fn pick<T: Clone>(
     flag: Option<T>,
     flag_name: &str,
     set: Option<&Set<T>>,
@@ -82,6 +82,36 @@ pub fn pick<T: Clone>(
             from: "default".into(),
         },
     }
+}
+
+/// The limit margin, as a fraction of each limit's span: `--margin`
+/// (given in %), else `catena.yaml`'s `margin`, else the default.
+pub fn margin(flag_percent: Option<f64>, config: &Config) -> Applied<f64> {
+    pick(
+        flag_percent.map(|m| m / 100.0),
+        "--margin",
+        config.margin.as_ref(),
+        config,
+        DEFAULT_MARGIN,
+    )
+}
+
+/// Monte Carlo trials per point: `--trials`, else `catena.yaml`'s
+/// `monte_carlo.trials`, else the default.
+pub fn trials(flag: Option<usize>, config: &Config) -> Applied<usize> {
+    pick(
+        flag,
+        "--trials",
+        config.trials.as_ref(),
+        config,
+        DEFAULT_TRIALS,
+    )
+}
+
+/// The Monte Carlo seed: `--seed`, else `catena.yaml`'s
+/// `monte_carlo.seed`, else the default.
+pub fn seed(flag: Option<u64>, config: &Config) -> Applied<u64> {
+    pick(flag, "--seed", config.seed.as_ref(), config, DEFAULT_SEED)
 }
 
 /// `--print-config`: what applies under one configuration, one line each.
@@ -141,9 +171,6 @@ pub fn describe(
     out
 }
 
-/// The built-in values, for flags and configurations that set none.
-pub const DEFAULTS: (f64, usize, u64) = (DEFAULT_MARGIN, DEFAULT_TRIALS, DEFAULT_SEED);
-
 /// The sampling flags of the commands that analyse a spec as its
 /// configuration says (`budget`, `report`).
 #[derive(clap::Args, Clone, Copy, Debug)]
@@ -162,22 +189,25 @@ pub struct SamplingArgs {
 }
 
 impl SamplingArgs {
-    /// Whether the flags are in range; the one that is not is reported.
+    /// Whether the flags are in range; the one that is not is reported
+    /// on standard error.
     pub fn usable(&self) -> bool {
-        sampling_flags_usable(self.trials, Some(self.points))
+        if self.trials.is_some_and(|t| t > MAX_TRIALS) {
+            errln!("catena: --trials is at most {MAX_TRIALS}");
+            return false;
+        }
+        if !(2..=1001).contains(&self.points) {
+            errln!("catena: --points takes 2 to 1001");
+            return false;
+        }
+        true
     }
 
     /// The analysis options, with the report's detail: flags first, then
     /// `config`, then the defaults.
     pub fn options(&self, config: &Config) -> crate::analysis::report::Options {
-        let trials = self
-            .trials
-            .or(config.trials.as_ref().map(|s| s.value))
-            .unwrap_or(DEFAULT_TRIALS);
-        let seed = self
-            .seed
-            .or(config.seed.as_ref().map(|s| s.value))
-            .unwrap_or(DEFAULT_SEED);
+        let trials = trials(self.trials, config).value;
+        let seed = seed(self.seed, config).value;
         crate::analysis::report::Options {
             budget: crate::analysis::budget::Options {
                 points: self.points,
@@ -188,18 +218,4 @@ impl SamplingArgs {
             detail: true,
         }
     }
-}
-
-/// Whether the sampling flags the analysing commands share are in range;
-/// the one that is not is reported on standard error.
-pub fn sampling_flags_usable(trials: Option<usize>, points: Option<usize>) -> bool {
-    if trials.is_some_and(|t| t > MAX_TRIALS) {
-        errln!("catena: --trials is at most {MAX_TRIALS}");
-        return false;
-    }
-    if points.is_some_and(|p| !(2..=1001).contains(&p)) {
-        errln!("catena: --points takes 2 to 1001");
-        return false;
-    }
-    true
 }

@@ -9,7 +9,7 @@ use serde_yaml::Value;
 use super::place::locate;
 use super::{relaxable, Config, Level, Set};
 use crate::analysis::report::MAX_TRIALS;
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::{backticked, did_you_mean, did_you_mean_or};
 use crate::diagnostics::{Code, Finding, SourceFile, Span};
 use crate::units::format::to_si;
 use crate::units::{parse_unit, Dim};
@@ -120,10 +120,9 @@ impl Reader<'_> {
     fn unknown(&mut self, path: &[&str], known: &[&str]) {
         let name = path.last().copied().unwrap_or_default();
         let span = locate(self.file, path, true);
-        let help = match did_you_mean(name, known.iter().copied()) {
-            Some(near) => format!("did you mean `{near}`?"),
-            None => format!("the keys here are {}", list(known)),
-        };
+        let help = did_you_mean_or(name, known.iter().copied(), || {
+            format!("the keys here are {}", backticked(known.iter().copied()))
+        });
         let f = Finding::new(
             Code::C802,
             self.file,
@@ -171,7 +170,7 @@ impl Reader<'_> {
             };
             let path = ["rules", name.as_str()];
             let Some(level) = parse_level(level) else {
-                let help = format!("a rule is one of {}", list(LEVELS));
+                let help = format!("a rule is one of {}", backticked(LEVELS.iter().copied()));
                 self.bad(
                     &path,
                     format!("`{}` is not a rule for `{name}`", scalar_text(level)),
@@ -349,14 +348,6 @@ fn scalar_text(v: &Value) -> String {
         Value::Mapping(_) => "(a mapping)".into(),
         Value::Tagged(t) => scalar_text(&t.value),
     }
-}
-
-fn list(words: &[&str]) -> String {
-    words
-        .iter()
-        .map(|w| format!("`{w}`"))
-        .collect::<Vec<_>>()
-        .join(", ")
 }
 
 /// A parts file's name as findings show it: beside the configuration's.

@@ -17,7 +17,7 @@ pub use lines::{escape_data, escape_property, render_github, render_short};
 pub use render::{render_human, render_json, JsonFinding, FINDINGS_SCHEMA_VERSION};
 pub use sarif::render_sarif;
 pub use source::{SourceFile, Span};
-pub use suggest::did_you_mean;
+pub use suggest::{backticked, did_you_mean, did_you_mean_or, unknown_word};
 
 /// Findings of one run, kept in the order they were found; `sorted` gives
 /// the stable report order (file, offset, code).

@@ -21,15 +21,16 @@ pub(super) enum Supply {
 /// How an element heats: its dissipation constant's slot and whether its
 /// response is strongly curved (a thermistor), for [`self_heated`].
 #[derive(Clone, Copy, Debug)]
-pub(super) struct Heating {
+pub struct Heating {
     pub dissipation: SlotId,
     pub curved: bool,
 }
 
 impl Plan {
-    /// The element's self-heating, if it states a dissipation constant.
+    /// The element's self-heating, if it states a dissipation constant:
+    /// the one answer the evaluator and the checklist's review item share.
     #[inline]
-    pub(super) fn heating(&self, n: NodeId) -> Option<Heating> {
+    pub fn heating(&self, n: NodeId) -> Option<Heating> {
         match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 dissipation: Some(d),

@@ -12,7 +12,7 @@ use super::chain::{Connection, Stage};
 use super::ports::{self, InputSpec, Port, SignalKind};
 use super::schema;
 use super::value::ParamValue;
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::{backticked, did_you_mean, did_you_mean_or};
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{EdgeDecl, Endpoint, StageKind};
 
@@ -219,7 +219,7 @@ fn lookup(
                 .iter()
                 .any(|f| f.code == Code::M202 && f.primary_span() == Some(end.stage.span))
         {
-            let near = did_you_mean(&end.stage.name, stages.iter().map(|s| s.name.as_str()));
+            let names = || stages.iter().map(|s| s.name.as_str());
             findings.push(
                 Finding::new(
                     Code::M202,
@@ -227,17 +227,9 @@ fn lookup(
                     format!("no stage is named `{}`", end.stage.name),
                 )
                 .label(end.stage.span, "unknown stage")
-                .help(match near {
-                    Some(n) => format!("did you mean `{n}`?"),
-                    None => format!(
-                        "stages of this chain: {}",
-                        stages
-                            .iter()
-                            .map(|s| format!("`{}`", s.name))
-                            .collect::<Vec<_>>()
-                            .join(", ")
-                    ),
-                }),
+                .help(did_you_mean_or(&end.stage.name, names(), || {
+                    format!("stages of this chain: {}", backticked(names()))
+                })),
             );
         }
         return None;
@@ -804,14 +796,13 @@ pub fn check_references(stages: &[Stage], findings: &mut Findings) {
         };
         match stages.iter().find(|s| &s.name == name) {
             None => {
-                let near = did_you_mean(name, stages.iter().map(|s| s.name.as_str()));
+                let names = stages.iter().map(|s| s.name.as_str());
                 findings.push(
                     Finding::new(Code::M202, &p.file, format!("no stage is named `{name}`"))
                         .label(*span, "unknown stage")
-                        .help(match near {
-                            Some(n) => format!("did you mean `{n}`?"),
-                            None => "name the sensor that measures the cold junction, or give its error: `cold_junction ± 0.5 K`".to_string(),
-                        }),
+                        .help(did_you_mean_or(name, names, || {
+                            "name the sensor that measures the cold junction, or give its error: `cold_junction ± 0.5 K`".to_string()
+                        })),
                 );
             }
             Some(s) if s.kind != StageKind::Sensor => findings.push(

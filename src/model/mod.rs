@@ -30,7 +30,7 @@ pub use parts::PartsCache;
 pub use requirement::{AccuracyMethod, RequirementKind};
 pub use settings::DEFAULT_REFERENCE_K;
 
-use crate::diagnostics::{did_you_mean, Code, Finding, Findings, SourceFile};
+use crate::diagnostics::{backticked, did_you_mean_or, Code, Finding, Findings, SourceFile};
 use crate::syntax::ast::{ChainDecl, Ident, StageDecl, UseDecl};
 use crate::syntax::Ast;
 
@@ -395,20 +395,12 @@ fn unknown_part(
         .label(p.span, "from which library?")
         .help("add `use \"parts.yaml\"` at the top of the file");
     }
-    let near = did_you_mean(&p.name, library.iter().map(|l| l.name.as_str()));
+    let names = || library.iter().map(|l| l.name.as_str());
     Finding::new(Code::L403, file, format!("no part is named `{}`", p.name))
         .label(p.span, "unknown part")
-        .help(match near {
-            Some(n) => format!("did you mean `{n}`?"),
-            None => format!(
-                "the loaded parts are {}",
-                library
-                    .iter()
-                    .map(|l| format!("`{}`", l.name))
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            ),
-        })
+        .help(did_you_mean_or(&p.name, names(), || {
+            format!("the loaded parts are {}", backticked(names()))
+        }))
 }
 
 /// A parts file's name as shown in findings: beside the spec's own name.

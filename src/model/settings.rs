@@ -8,7 +8,7 @@ use super::interpret::{interpret, Context};
 use super::requirement::{AccuracyMethod, RequirementKind};
 use super::schema::{Expect, Plausible, Shape};
 use super::value::{Basis, ParamValue};
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::{did_you_mean, did_you_mean_or};
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{ChainDecl, Setting, SettingKind, Value};
 use crate::units::{parse_unit, Dim, ZERO_CELSIUS_K};
@@ -314,7 +314,6 @@ fn protects(setting: &Setting, file: &Arc<SourceFile>) -> Result<Protects, Box<F
                 expect_word = false;
             }
             (Value::Word(w), true) => {
-                let near = did_you_mean(&w.name, PROTECTED.into_iter());
                 return Err(Box::new(
                     Finding::new(
                         Code::P350,
@@ -322,10 +321,11 @@ fn protects(setting: &Setting, file: &Arc<SourceFile>) -> Result<Protects, Box<F
                         format!("`{}` is not something a chain protects", w.name),
                     )
                     .label(w.span, "expected `people` or `property`")
-                    .help(match near {
-                        Some(n) => format!("did you mean `{n}`?"),
-                        None => format!("write {example}"),
-                    }),
+                    .help(did_you_mean_or(
+                        &w.name,
+                        PROTECTED.into_iter(),
+                        || format!("write {example}"),
+                    )),
                 ));
             }
             (Value::Comma(_), false) => expect_word = true,
@@ -433,7 +433,6 @@ fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {
         ));
     };
     if side.name != "high" && side.name != "low" {
-        let near = did_you_mean(&side.name, ["high", "low"].into_iter());
         return Err(Box::new(
             Finding::new(
                 Code::P310,
@@ -441,10 +440,11 @@ fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {
                 format!("`{}` is not an alarm side", side.name),
             )
             .label(side.span, "expected `high` or `low`")
-            .help(match near {
-                Some(n) => format!("did you mean `{n}`?"),
-                None => "write `alarm high <limit>` or `alarm low <limit>`".to_string(),
-            }),
+            .help(did_you_mean_or(
+                &side.name,
+                ["high", "low"].into_iter(),
+                || "write `alarm high <limit>` or `alarm low <limit>`".to_string(),
+            )),
         ));
     }
     let value = interpret(

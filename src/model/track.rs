@@ -9,7 +9,7 @@ use super::chain::{Stage, TrackGroup, TrackMember};
 use super::schema;
 use super::typed::{BridgeForm, Source, StageModel};
 use super::value::Measure;
-use crate::diagnostics::did_you_mean;
+use crate::diagnostics::did_you_mean_or;
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
 use crate::syntax::ast::{Ident, ToleranceForm, TrackDecl, Value};
 use crate::units::{parse_unit, Dim};
@@ -229,13 +229,12 @@ fn members(
 
 /// M202: a member that names no stage of the chain.
 fn unknown_member(file: &Arc<SourceFile>, m: &Ident, stages: &[Stage]) -> Finding {
-    let near = did_you_mean(&m.name, stages.iter().map(|s| s.name.as_str()));
+    let names = stages.iter().map(|s| s.name.as_str());
     Finding::new(Code::M202, file, format!("no stage is named `{}`", m.name))
         .label(m.span, "unknown stage")
-        .help(match near {
-            Some(n) => format!("did you mean `{n}`?"),
-            None => "a tracking group names stages of its own chain".to_string(),
-        })
+        .help(did_you_mean_or(&m.name, names, || {
+            "a tracking group names stages of its own chain".to_string()
+        }))
 }
 
 /// Where the stage was named before, in this group or an earlier one.

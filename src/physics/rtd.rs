@@ -346,6 +346,12 @@ pub fn self_heating_k(power_w: f64, dissipation_w_per_k: f64) -> Result<f64, Rtd
     Ok(power_w / dissipation_w_per_k)
 }
 
+/// The power in W that heats an element by `rise_k` K with dissipation
+/// constant δ in W/K: P = ΔT·δ, [`self_heating_k`] read the other way.
+pub fn self_heating_power_w(rise_k: f64, dissipation_w_per_k: f64) -> f64 {
+    rise_k * dissipation_w_per_k
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -547,6 +553,7 @@ mod tests {
     fn self_heating() {
         let p = 1e-3 * 1e-3 * 100.0;
         assert!((self_heating_k(p, 2e-3).unwrap() - 0.05).abs() < 1e-15);
+        assert!((self_heating_power_w(0.05, 2e-3) - p).abs() < 1e-18);
         assert_eq!(self_heating_k(p, 0.0), Err(RtdError::NonPositive));
         assert_eq!(self_heating_k(f64::NAN, 1.0), Err(RtdError::NonFinite));
     }

@@ -181,14 +181,18 @@ pub fn refine(finding: Finding, anchored: Rule, head: &str, base: usize) -> Find
             if anchored == Rule::top_line {
                 candidates = vec!["chain", "use"];
             }
-            let near = crate::diagnostics::did_you_mean(first, candidates.iter().copied());
-            let help = match near {
-                Some(near) => format!("did you mean `{near}`?"),
-                None if anchored == Rule::chain_line => {
-                    "a chain holds settings (`measurand`, `require`, ...), stages (`sensor name { ... }`) and edges (`a -> b`); parameter lines go inside a stage".to_string()
-                }
-                None => "a file holds `use \"parts.yaml\"` lines and `chain name { ... }` blocks".to_string(),
-            };
+            let help = crate::diagnostics::did_you_mean_or(
+                first,
+                candidates.iter().copied(),
+                || {
+                    if anchored == Rule::chain_line {
+                        "a chain holds settings (`measurand`, `require`, ...), stages (`sensor name { ... }`) and edges (`a -> b`); parameter lines go inside a stage".to_string()
+                    } else {
+                        "a file holds `use \"parts.yaml\"` lines and `chain name { ... }` blocks"
+                            .to_string()
+                    }
+                },
+            );
             Finding::new(
                 Code::S001,
                 &finding.file,

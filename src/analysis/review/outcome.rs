@@ -159,7 +159,7 @@ pub struct FaultsOutcome {
 }
 
 impl FaultsOutcome {
-    fn of(chain: &Chain, report: &FaultReport) -> FaultsOutcome {
+    pub fn of(chain: &Chain, report: &FaultReport) -> FaultsOutcome {
         FaultsOutcome {
             window: [report.window.low, report.window.high],
             rows: report
@@ -347,7 +347,10 @@ pub struct Outcome {
 /// rounding: about 5000 ulps, far below any physical effect.
 const FLOOR_SHARE: f64 = 1e-12;
 
-pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
+/// What `chain` achieves by analysis `a`; `faults` is its fault verdicts
+/// where they could be judged (the check's, kept: they are not judged
+/// again here).
+pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis, faults: Option<&FaultReport>) -> Outcome {
     let (unit, f) = chain.difference_unit();
     let m_unit = chain.measurand_unit();
     Outcome {
@@ -382,9 +385,7 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis) -> Outcome {
                 guard_band: x.guard_band * f,
             })
             .collect(),
-        faults: faults::analyse(chain, plan)
-            .ok()
-            .map(|r| FaultsOutcome::of(chain, &r)),
+        faults: faults.map(|r| FaultsOutcome::of(chain, r)),
         bill: BillOutcome::of(chain, a),
         largest: largest(a),
         trials: a.trials,

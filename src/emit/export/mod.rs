@@ -263,82 +263,113 @@ pub fn named_curves(chain: &ChainExport) -> Vec<NamedCurve<'_>> {
 }
 
 fn curve_constants(chain: &ChainExport) -> Vec<Constant> {
-    let mut out = Vec::new();
-    for n in named_curves(chain) {
-        let p = n.prefix;
-        match n.curve {
-            Curve::Table { codes, values } => out.extend([
-                constant(
-                    &format!("{p}TABLE_POINTS"),
-                    format!("breakpoints of the table of {}", n.what),
-                    "count",
-                    Value::Count(codes.len() as i64),
-                ),
-                constant(
-                    &format!("{p}TABLE_{}", n.input),
-                    format!("table of {}: breakpoints, rising", n.what),
-                    &n.in_unit,
-                    Value::Reals(codes.clone()),
-                ),
-                constant(
-                    &format!("{p}TABLE_VALUE"),
-                    format!(
-                        "table of {}: the value at each breakpoint, linear between them",
-                        n.what
-                    ),
-                    &n.out_unit,
-                    Value::Reals(values.clone()),
-                ),
-            ]),
+    let mut out: Vec<Constant> = named_curves(chain)
+        .iter()
+        .flat_map(|n| match n.curve {
+            Curve::Table { codes, values } => table_constants(n, codes, values),
             Curve::Polynomial {
                 mid,
                 half,
                 coefficients,
-            } => out.extend([
-                constant(
-                    &format!("{p}POLY_MID"),
-                    format!("polynomial of {}: the input u = 0 stands for", n.what),
-                    &n.in_unit,
-                    Value::Real(*mid),
-                ),
-                constant(
-                    &format!("{p}POLY_HALF"),
-                    format!("polynomial of {}: input per unit of u", n.what),
-                    &n.in_unit,
-                    Value::Real(*half),
-                ),
-                constant(
-                    &format!("{p}POLY_TERMS"),
-                    format!("polynomial of {}: number of coefficients", n.what),
-                    "count",
-                    Value::Count(coefficients.len() as i64),
-                ),
-                constant(
-                    &format!("{p}POLY_COEFFICIENTS"),
-                    format!("polynomial of {}: the sum of c[k] u^k, c[0] first", n.what),
-                    &n.out_unit,
-                    Value::Reals(coefficients.clone()),
-                ),
-            ]),
-        }
-    }
+            } => polynomial_constants(n, *mid, *half, coefficients),
+        })
+        .collect();
     if let Some(j) = &chain.junction {
-        out.push(constant(
+        out.extend(junction_constants(chain, j));
+    }
+    out
+}
+
+fn table_constants(n: &NamedCurve, codes: &[f64], values: &[f64]) -> Vec<Constant> {
+    let p = n.prefix;
+    vec![
+        constant(
+            &format!("{p}TABLE_POINTS"),
+            format!("breakpoints of the table of {}", n.what),
+            "count",
+            Value::Count(codes.len() as i64),
+        ),
+        constant(
+            &format!("{p}TABLE_{}", n.input),
+            format!("table of {}: breakpoints, rising", n.what),
+            &n.in_unit,
+            Value::Reals(codes.to_vec()),
+        ),
+        constant(
+            &format!("{p}TABLE_VALUE"),
+            format!(
+                "table of {}: the value at each breakpoint, linear between them",
+                n.what
+            ),
+            &n.out_unit,
+            Value::Reals(values.to_vec()),
+        ),
+    ]
+}
+
+fn polynomial_constants(
+    n: &NamedCurve,
+    mid: f64,
+    half: f64,
+    coefficients: &[f64],
+) -> Vec<Constant> {
+    let p = n.prefix;
+    vec![
+        constant(
+            &format!("{p}POLY_MID"),
+            format!("polynomial of {}: the input u = 0 stands for", n.what),
+            &n.in_unit,
+            Value::Real(mid),
+        ),
+        constant(
+            &format!("{p}POLY_HALF"),
+            format!("polynomial of {}: input per unit of u", n.what),
+            &n.in_unit,
+            Value::Real(half),
+        ),
+        constant(
+            &format!("{p}POLY_TERMS"),
+            format!("polynomial of {}: number of coefficients", n.what),
+            "count",
+            Value::Count(coefficients.len() as i64),
+        ),
+        constant(
+            &format!("{p}POLY_COEFFICIENTS"),
+            format!("polynomial of {}: the sum of c[k] u^k, c[0] first", n.what),
+            &n.out_unit,
+            Value::Reals(coefficients.to_vec()),
+        ),
+    ]
+}
+
+/// The cold-junction range the tables cover and the junction conversion's
+/// own error.
+fn junction_constants(chain: &ChainExport, j: &Junction) -> Vec<Constant> {
+    let mut out = vec![
+        constant(
             "JUNCTION_LOW",
             "lowest cold-junction temperature the tables cover (the ambient range widened by 10 K)"
                 .to_string(),
             &chain.unit,
             Value::Real(j.junction_range.0),
-        ));
-        out.push(constant(
+        ),
+        constant(
             "JUNCTION_HIGH",
             "highest cold-junction temperature the tables cover".to_string(),
             &chain.unit,
             Value::Real(j.junction_range.1),
+        ),
+    ];
+    if let Some(cj) = &j.cj {
+        out.push(constant(
+            "CJ_CONVERSION_MAX_ERROR",
+            format!(
+                "largest difference between the cold junction's conversion and its exact inverse, over codes {} .. {} (the ambient range)",
+                cj.codes.0, cj.codes.1
+            ),
+            &chain.difference_unit,
+            Value::Real(cj.max_error),
         ));
-        if let Some(cj) = &j.cj {
-            out.push(constant("CJ_CONVERSION_MAX_ERROR", format!("largest difference between the cold junction's conversion and its exact inverse, over codes {} .. {} (the ambient range)", cj.codes.0, cj.codes.1), &chain.difference_unit, Value::Real(cj.max_error)));
-        }
     }
     out
 }

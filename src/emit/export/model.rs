@@ -10,11 +10,12 @@
 //! verdicts with their thresholds and the faults that mask each alarm are
 //! the fault analysis's own result (`analysis::faults`), taken as it is.
 
-use super::junction::{junction, measuring_couple, Inputs, Junction};
+use super::junction::{junction, measuring_couple, Inputs, Junction, Worst};
 use crate::analysis::alarms::alarm_limits;
 use crate::analysis::budget;
 use crate::analysis::faults::{self, FaultReport, FaultVerdict};
 use crate::analysis::window::CodeWindow;
+use crate::eval::node::Convert;
 use crate::eval::{
     Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan, SlotId,
 };
@@ -24,6 +25,7 @@ use crate::model::typed::ConversionMethod;
 use crate::model::value::{Basis, ParamValue};
 use crate::model::Chain;
 use crate::physics::adc::Polarity;
+use crate::physics::thermocouple::ThermocoupleType;
 use crate::units::format::from_si;
 
 /// The conversion error an exported table is held to: this fraction of
@@ -223,25 +225,8 @@ impl From<EvalError> for ExportError {
 
 /// The export of `chain`, whose plan has its conversion fitted.
 pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportError> {
-    let Node::Convert(crate::eval::node::Convert { cj, conversion, .. }) =
-        &plan.nodes[plan.reading.index()]
-    else {
-        return Err(numeric(plan, "no conversion").into());
-    };
-    let couple = measuring_couple(plan);
-    // An approximation (`table`, `linear`, `poly`) reads the code alone.
-    let with_junction = conversion.method == Method::Exact && (cj.is_some() || couple.is_some());
-    let refused = |input: &str| ExportError::Unsupported {
-        stage: plan.names[plan.reading.index()].clone(),
-        input: input.to_string(),
-    };
-    match (with_junction, couple) {
-        (true, None) => return Err(refused("a cold junction but no thermocouple")),
-        (true, Some(_)) if conversion.calibration != Calibration::None => {
-            return Err(refused("the cold junction's temperature and a calibration"))
-        }
-        _ => {}
-    }
+    let (convert, couple, with_junction) = exportable_conversion(plan)?;
+    let conversion = &convert.conversion;
     let Node::Adc(adc) = &plan.nodes[plan.adc.index()] else {
         return Err(numeric(plan, "no converter").into());
     };
@@ -260,20 +245,19 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         .map(|&c| exact.reading(c).map(to_unit))
         .collect::<Result<Vec<_>, _>>()?;
     let (target, target_basis) = target(chain, &samples, &truth);
-    let inputs = couple.map(|couple| Inputs {
-        plan,
-        conversion,
-        cj: *cj,
-        couple,
-        window: &window,
-        samples: &samples,
-        target,
-        to_unit: &to_unit,
-        ambient: chain.ambient,
-    });
-    let (junction, worst) = match &inputs {
-        Some(i) if with_junction => {
-            let (j, worst) = junction(i)?;
+    let (junction, worst) = match couple {
+        Some(couple) if with_junction => {
+            let (j, worst) = junction(&Inputs {
+                plan,
+                conversion,
+                cj: convert.cj,
+                couple,
+                window: &window,
+                samples: &samples,
+                target,
+                to_unit: &to_unit,
+                ambient: chain.ambient,
+            })?;
             (Some(j), Some(worst))
         }
         _ => (None, None),
@@ -317,6 +301,45 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
     for a in &mut export.alarms {
         a.trips_upward = (a.side == "high") == export.rising;
     }
+    set_largest_error(&mut export, worst, &samples, &truth);
+    Ok(export)
+}
+
+/// The plan's conversion, the thermocouple it measures with (if any) and
+/// whether the export converts with the cold junction; an error for a
+/// conversion the export does not write.
+fn exportable_conversion(
+    plan: &Plan,
+) -> Result<(&Convert, Option<ThermocoupleType>, bool), ExportError> {
+    let Node::Convert(convert) = &plan.nodes[plan.reading.index()] else {
+        return Err(numeric(plan, "no conversion").into());
+    };
+    let couple = measuring_couple(plan);
+    let conversion = &convert.conversion;
+    // An approximation (`table`, `linear`, `poly`) reads the code alone.
+    let with_junction =
+        conversion.method == Method::Exact && (convert.cj.is_some() || couple.is_some());
+    let refused = |input: &str| ExportError::Unsupported {
+        stage: plan.names[plan.reading.index()].clone(),
+        input: input.to_string(),
+    };
+    match (with_junction, couple) {
+        (true, None) => Err(refused("a cold junction but no thermocouple")),
+        (true, Some(_)) if conversion.calibration != Calibration::None => {
+            Err(refused("the cold junction's temperature and a calibration"))
+        }
+        _ => Ok((convert, couple, with_junction)),
+    }
+}
+
+/// The export's largest error and where it is: the junction conversion's
+/// own search where there is one, otherwise over the sampled codes.
+fn set_largest_error(
+    export: &mut ChainExport,
+    worst: Option<Worst>,
+    samples: &[f64],
+    truth: &[f64],
+) {
     match worst {
         Some(w) => {
             (export.max_error, export.max_error_at) = (w.error, w.code);
@@ -325,10 +348,9 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         }
         None => {
             (export.max_error, export.max_error_at) =
-                largest_error(&samples, &truth, |c| export.reading(c));
+                largest_error(samples, truth, |c| export.reading(c));
         }
     }
-    Ok(export)
 }
 
 /// Catena's exact inverse of the nominal chain with the calibration it

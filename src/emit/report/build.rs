@@ -9,6 +9,7 @@ use super::model::{
 use crate::analysis::budget::{ambients, measurand_points};
 use crate::analysis::checklist::{DESIGN_AID, PROTECTS};
 use crate::analysis::dynamics::Dynamics;
+use crate::analysis::faults::FaultReport;
 use crate::analysis::ranges::Envelope;
 use crate::analysis::report::Analysis;
 use crate::analysis::requirements::Verdict as RequirementVerdict;
@@ -64,18 +65,19 @@ impl Units {
     }
 }
 
-/// The report of a chain that could be analysed, with its checklist when
-/// its faults could be evaluated.
+/// The report of a chain that could be analysed, with its checklist and
+/// fault verdicts when its faults could be evaluated.
 pub fn chain_report(
     chain: &Chain,
     plan: &Plan,
     a: &Analysis,
     checklist: Option<Checklist>,
+    faults: Option<&FaultReport>,
     options: &BuildOptions,
 ) -> ChainReport {
     let units = Units::of(chain);
     let limits = limit_rows(chain, a);
-    let outcome = outcome(chain, plan, a);
+    let outcome = outcome(chain, plan, a, faults);
     let mut verdict = verdict(&outcome, a, &limits, options.margin, &units);
     verdict.faults = checklist.as_ref().map_or_else(Vec::new, hidden_faults);
     ChainReport {

@@ -667,15 +667,13 @@ pub fn bars(
     unit: &str,
     rows: &[(String, f64, String)],
 ) -> String {
-    let label_w =
-        rows.iter().map(|r| r.0.chars().count()).max().unwrap_or(4) as f64 * CHAR_W + 16.0;
-    let left = label_w.max(90.0);
+    let left = label_margin(rows.iter().map(|r| r.0.as_str()));
     let row_h = 22.0;
     let top = 40.0;
     let h = top + rows.len().max(1) as f64 * row_h + 50.0;
     let max = rows.iter().map(|r| r.1).fold(0.0, f64::max);
     let axis = Axis::linear(quantity, unit, 0.0, if max > 0.0 { max } else { 1.0 });
-    let note_w = rows.iter().map(|r| r.2.chars().count()).max().unwrap_or(0) as f64 * CHAR_W + 14.0;
+    let note_w = note_width(rows.iter().map(|r| r.2.as_str()));
     let plot_w = WIDTH - left - note_w.max(40.0);
     let px = |v: f64| left + axis.t(v) * plot_w;
     let mut s = open(id, title, WIDTH, h);
@@ -686,33 +684,13 @@ pub fn bars(
         escape(title)
     );
     let bottom = top + rows.len() as f64 * row_h;
-    for (v, label) in axis.ticks() {
-        let x = px(v);
-        let _ = write!(
-            s,
-            r##"<line x1="{x}" y1="{}" x2="{x}" y2="{}" stroke="#dddddd"/><text x="{x}" y="{}" text-anchor="middle" class="tick">{}</text>"##,
-            n(top),
-            n(bottom),
-            n(bottom + 16.0),
-            escape(&label),
-            x = n(x)
-        );
-    }
-    let _ = write!(
-        s,
-        r#"<text x="{}" y="{}" text-anchor="middle" class="axis">{}</text>"#,
-        n(left + plot_w / 2.0),
-        n(bottom + 38.0),
-        escape(&axis.title())
-    );
-    let _ = write!(
-        s,
-        r#"<g class="plot-area" data-x="{}" data-y="{}" data-width="{}" data-height="{}">"#,
-        n(left),
-        n(top),
-        n(plot_w),
-        n(bottom - top)
-    );
+    let frame = RowFrame {
+        left,
+        plot_w,
+        top,
+        bottom,
+    };
+    frame.axis_and_area(&mut s, &axis, &px);
     for (i, (label, v, note)) in rows.iter().enumerate() {
         let y = top + i as f64 * row_h;
         let w = (px(*v) - left).max(0.5);
@@ -741,6 +719,57 @@ pub fn bars(
     s
 }
 
+/// The left margin of a chart of labelled rows: the longest label fits.
+fn label_margin<'a>(labels: impl Iterator<Item = &'a str>) -> f64 {
+    let label_w = labels.map(|l| l.chars().count()).max().unwrap_or(4) as f64 * CHAR_W + 16.0;
+    label_w.max(90.0)
+}
+
+/// The width the longest note written beside a chart's rows takes.
+fn note_width<'a>(notes: impl Iterator<Item = &'a str>) -> f64 {
+    notes.map(|l| l.chars().count()).max().unwrap_or(0) as f64 * CHAR_W + 14.0
+}
+
+/// The plotting area of a chart of rows (bars, strips) along one
+/// horizontal axis.
+struct RowFrame {
+    left: f64,
+    plot_w: f64,
+    top: f64,
+    bottom: f64,
+}
+
+impl RowFrame {
+    /// The axis's grid lines and tick labels across the rows, its title
+    /// below, and the opening of the plot area the rows are drawn in.
+    fn axis_and_area(&self, s: &mut String, axis: &Axis, px: &dyn Fn(f64) -> f64) {
+        let (top, bottom) = (self.top, self.bottom);
+        for (v, label) in axis.ticks() {
+            let x = px(v);
+            let _ = write!(
+                s,
+                r##"<line x1="{x}" y1="{}" x2="{x}" y2="{}" stroke="#dddddd"/><text x="{x}" y="{}" text-anchor="middle" class="tick">{}</text>"##,
+                n(top),
+                n(bottom),
+                n(bottom + 16.0),
+                escape(&label),
+                x = n(x)
+            );
+        }
+        let _ = write!(
+            s,
+            r#"<text x="{}" y="{}" text-anchor="middle" class="axis">{}</text><g class="plot-area" data-x="{}" data-y="{}" data-width="{}" data-height="{}">"#,
+            n(self.left + self.plot_w / 2.0),
+            n(bottom + 38.0),
+            escape(&axis.title()),
+            n(self.left),
+            n(top),
+            n(self.plot_w),
+            n(bottom - top)
+        );
+    }
+}
+
 /// One row of a strip chart: a labelled span along the axis (None: no
 /// span to draw), marked as hidden (drawn hatched and outlined, so it
 /// reads without colour), with a note beside the plot.
@@ -756,21 +785,8 @@ pub struct Strip {
 /// A strip chart: one row per span along `axis`, over a shaded window
 /// (`window`, in axis units) drawn across every row.
 pub fn strips(id: &str, title: &str, axis: &Axis, window: (f64, f64), rows: &[Strip]) -> String {
-    let label_w = rows
-        .iter()
-        .map(|r| r.label.chars().count())
-        .max()
-        .unwrap_or(4) as f64
-        * CHAR_W
-        + 16.0;
-    let left = label_w.max(90.0);
-    let note_w = rows
-        .iter()
-        .map(|r| r.note.chars().count())
-        .max()
-        .unwrap_or(0) as f64
-        * CHAR_W
-        + 14.0;
+    let left = label_margin(rows.iter().map(|r| r.label.as_str()));
+    let note_w = note_width(rows.iter().map(|r| r.note.as_str()));
     let plot_w = (WIDTH - left - note_w.max(40.0)).max(160.0);
     let width = (left + plot_w + note_w.max(40.0)).max(WIDTH);
     let row_h = 18.0;
@@ -788,28 +804,16 @@ pub fn strips(id: &str, title: &str, axis: &Axis, window: (f64, f64), rows: &[St
         escape(title)
     );
     strip_legend(&mut s, &hatch, left);
-    for (v, label) in axis.ticks() {
-        let x = px(v);
-        let _ = write!(
-            s,
-            r##"<line x1="{x}" y1="{}" x2="{x}" y2="{}" stroke="#dddddd"/><text x="{x}" y="{}" text-anchor="middle" class="tick">{}</text>"##,
-            n(top),
-            n(bottom),
-            n(bottom + 16.0),
-            escape(&label),
-            x = n(x)
-        );
+    RowFrame {
+        left,
+        plot_w,
+        top,
+        bottom,
     }
+    .axis_and_area(&mut s, axis, &px);
     let _ = write!(
         s,
-        r##"<text x="{}" y="{}" text-anchor="middle" class="axis">{}</text><g class="plot-area" data-x="{}" data-y="{}" data-width="{}" data-height="{}"><rect class="data" x="{}" y="{}" width="{}" height="{}" fill="#999999" fill-opacity="0.3" stroke="#555555" stroke-dasharray="3 3"><title>valid code window</title></rect>"##,
-        n(left + plot_w / 2.0),
-        n(bottom + 38.0),
-        escape(&axis.title()),
-        n(left),
-        n(top),
-        n(plot_w),
-        n(bottom - top),
+        r##"<rect class="data" x="{}" y="{}" width="{}" height="{}" fill="#999999" fill-opacity="0.3" stroke="#555555" stroke-dasharray="3 3"><title>valid code window</title></rect>"##,
         n(px(window.0)),
         n(top),
         n((px(window.1) - px(window.0)).max(1.0)),
