@@ -12,7 +12,7 @@ use super::run::{within, MAX_NODES};
 use super::stated::Stated;
 use crate::model::ports::Port;
 use crate::model::typed::{ColdJunction, CombineOp, StageModel};
-use crate::model::{Chain, Measurand};
+use crate::model::{Chain, Measurand, Stage};
 use crate::physics::solve::bisect_at_most;
 use crate::units::ZERO_CELSIUS_K;
 
@@ -154,16 +154,9 @@ fn reading_stage(chain: &Chain) -> Result<usize, EvalError> {
         .ok_or_else(|| not_invertible(&chain.name, "no conversion ends the chain"))
 }
 
-/// Every stage's node, in `order`, with the slots they fill and the error
-/// of what each senses.
-fn lower_nodes<'a>(
-    chain: &'a Chain,
-    measurand: &'a Measurand,
-    order: &[usize],
-    node_of: &impl Fn(usize) -> NodeId,
-) -> Result<(Vec<Node>, Cx<'a>, Vec<SenseError>), EvalError> {
-    // The stages a thermocouple names as its cold junction's sensor.
-    let cold_junction_sensors: Vec<&str> = chain
+/// The stages a thermocouple names as its cold junction's sensor.
+fn cold_junction_sensors(chain: &Chain) -> Vec<&str> {
+    chain
         .stages
         .iter()
         .filter_map(|s| match &s.typed {
@@ -188,7 +181,43 @@ fn lower_nodes<'a>(
             )
             | None => None,
         })
-        .collect();
+        .collect()
+}
+
+/// The stage whose name a stage's slots carry, and whether they are
+/// shared: a converter's channel shares its converter's sources.
+fn slot_owner<'a>(stage: &'a Stage, model: &'a StageModel) -> (&'a str, bool) {
+    match model {
+        StageModel::Adc(adc) if adc.channels > 1 => (
+            adc.channel_of.as_deref().unwrap_or(stage.name.as_str()),
+            true,
+        ),
+        StageModel::Excitation(_)
+        | StageModel::Rtd(_)
+        | StageModel::Thermocouple(_)
+        | StageModel::Thermistor(_)
+        | StageModel::IcVoltage(_)
+        | StageModel::IcCurrent(_)
+        | StageModel::StrainGauge(_)
+        | StageModel::Transducer(_)
+        | StageModel::Resistor(_)
+        | StageModel::Bridge(_)
+        | StageModel::Amplifier(_)
+        | StageModel::Filter(_)
+        | StageModel::Adc(_)
+        | StageModel::Convert(_) => (stage.name.as_str(), false),
+    }
+}
+
+/// Every stage's node, in `order`, with the slots they fill and the error
+/// of what each senses.
+fn lower_nodes<'a>(
+    chain: &'a Chain,
+    measurand: &'a Measurand,
+    order: &[usize],
+    node_of: &impl Fn(usize) -> NodeId,
+) -> Result<(Vec<Node>, Cx<'a>, Vec<SenseError>), EvalError> {
+    let cold_junction_sensors = cold_junction_sensors(chain);
     let mut cx = Cx {
         slots: Vec::new(),
         measurand,
@@ -212,26 +241,7 @@ fn lower_nodes<'a>(
             return Err(not_invertible(&stage.name, "its model was not accepted"));
         };
         cx.name = &stage.name;
-        (cx.owner, cx.shared) = match model {
-            StageModel::Adc(adc) if adc.channels > 1 => (
-                adc.channel_of.as_deref().unwrap_or(stage.name.as_str()),
-                true,
-            ),
-            StageModel::Excitation(_)
-            | StageModel::Rtd(_)
-            | StageModel::Thermocouple(_)
-            | StageModel::Thermistor(_)
-            | StageModel::IcVoltage(_)
-            | StageModel::IcCurrent(_)
-            | StageModel::StrainGauge(_)
-            | StageModel::Transducer(_)
-            | StageModel::Resistor(_)
-            | StageModel::Bridge(_)
-            | StageModel::Amplifier(_)
-            | StageModel::Filter(_)
-            | StageModel::Adc(_)
-            | StageModel::Convert(_) => (stage.name.as_str(), false),
-        };
+        (cx.owner, cx.shared) = slot_owner(stage, model);
         cx.inputs = inputs(chain, si, node_of);
         cx.combine = combination(chain, si)
             .map(|(op, others)| (op, others.into_iter().map(node_of).collect()));
