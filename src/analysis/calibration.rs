@@ -4,6 +4,7 @@
 //! used, from a condition the installed chain may not be able to reach.
 
 use crate::diagnostics::{Code, Finding, Findings};
+use crate::model::schema;
 use crate::model::typed::{CalibrationMethod, StageModel};
 use crate::model::Chain;
 use crate::units::format::{from_si, trimmed};
@@ -30,7 +31,7 @@ pub fn points_outside_range(chain: &Chain) -> Findings {
         let span = stage
             .params
             .iter()
-            .find(|p| p.name == "calibrate")
+            .find(|p| p.name == schema::param::CALIBRATE)
             .map_or(stage.name_span, |p| p.span);
         for at in points.into_iter().filter(|x| !(lo..=hi).contains(x)) {
             let nearest = at.clamp(lo, hi);

@@ -112,7 +112,18 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
                 rate_hz = stated.rate_hz;
                 notch_hz = stated.notch_hz;
             }
-            _ => {}
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Convert(_) => {}
         }
     }
     // The sensing element: the measurand's sensor on the path (a series
@@ -142,7 +153,19 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
     d.mains = MAINS_HZ.iter().map(|&f| (f, d.attenuation(f))).collect();
     let bits = match &plan.nodes[plan.adc.index()] {
         Node::Adc(node::Adc { bits, .. }) => *bits,
-        _ => 16,
+        Node::Excitation(_)
+        | Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Convert(_) => 16,
     };
     d.filter_settling_half_lsb = d
         .filter
@@ -167,7 +190,13 @@ fn sensor_senses_measurand(plan: &Plan, node: NodeId) -> bool {
         | Node::IcVoltage(node::IcVoltage { senses, .. })
         | Node::IcCurrent(node::IcCurrent { senses, .. }) => *senses == Senses::Measurand,
         Node::StrainGauge(_) | Node::Transducer(_) => true,
-        _ => false,
+        Node::Excitation(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => false,
     }
 }
 

@@ -595,11 +595,33 @@ fn unstated_compliance(plan: &Plan, i: NodeId) -> Option<NodeId> {
         Node::Thermistor(n) => n.input,
         Node::Resistor(n) => n.input,
         Node::StrainGauge(n) => n.input,
-        _ => None,
+        Node::Excitation(_)
+        | Node::Thermocouple(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::Transducer(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
     }?;
     match &plan.nodes[input.index()] {
         Node::Excitation(e) if e.current && e.compliance.is_none() => Some(input),
-        _ => None,
+        Node::Excitation(_)
+        | Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
     }
 }
 
@@ -668,7 +690,18 @@ fn reader_of(plan: &Plan, i: NodeId) -> Option<NodeId> {
         .position(|n| match n {
             Node::Amplifier(a) => a.input == i,
             Node::Adc(a) => a.input == i,
-            _ => false,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => false,
         })
         .map(NodeId::new)
 }

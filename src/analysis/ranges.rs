@@ -17,6 +17,7 @@ use crate::eval::{
     node, BridgeKind, Env, EvalError, LaneSignals, Node, NodeId, Plan, Signal, SlotId, SourceKind,
     LANES, MAX_NODES,
 };
+use crate::model::schema;
 use crate::model::{Chain, Stage};
 use crate::physics::adc;
 use crate::physics::rtd::{lead_loop_resistance, lead_series_resistance};
@@ -75,15 +76,18 @@ impl Limit {
     /// it, which the finding labels instead of a parameter).
     pub fn params(self) -> (&'static str, &'static str) {
         match self {
-            Limit::AmplifierInput => ("input", "input"),
-            Limit::AmplifierOutput => ("output", "gain"),
-            Limit::ConverterInput => ("vref", "vref"),
-            Limit::Compliance => ("compliance", "current"),
-            Limit::CurrentLimit => ("limit", "voltage"),
-            Limit::MaxCurrent => ("max_current", "max_current"),
-            Limit::ConverterReference => ("ref_range", "vref"),
-            Limit::ConverterPin(_) => ("rails", "rails"),
-            Limit::ConverterSettling => ("acquisition_time", "sampling_capacitance"),
+            Limit::AmplifierInput => (schema::param::INPUT, schema::param::INPUT),
+            Limit::AmplifierOutput => (schema::param::OUTPUT, schema::param::GAIN),
+            Limit::ConverterInput => (schema::VREF, schema::VREF),
+            Limit::Compliance => (schema::param::COMPLIANCE, "current"),
+            Limit::CurrentLimit => (schema::param::LIMIT, "voltage"),
+            Limit::MaxCurrent => (schema::param::MAX_CURRENT, schema::param::MAX_CURRENT),
+            Limit::ConverterReference => (schema::param::REF_RANGE, schema::VREF),
+            Limit::ConverterPin(_) => (schema::param::RAILS, schema::param::RAILS),
+            Limit::ConverterSettling => (
+                schema::param::ACQUISITION_TIME,
+                schema::param::SAMPLING_CAPACITANCE,
+            ),
         }
     }
 }
@@ -372,7 +376,21 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
             Signal::Current(a) => a,
             _ => 0.0,
         },
-        _ => 0.0,
+        // Kinds that state no limit: `node_checks` makes no check of them.
+        (
+            Node::Rtd(_)
+            | Node::Thermistor(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_),
+            _,
+        ) => 0.0,
     }
 }
 
@@ -412,7 +430,20 @@ fn compliance_voltage(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) ->
                     let unseen = lead_loop_resistance(a, b) - lead_series_resistance(*wiring, a, b);
                     unseen * current
                 }
-                _ => 0.0,
+                Node::Excitation(_)
+                | Node::Rtd(_)
+                | Node::Thermocouple(_)
+                | Node::Thermistor(_)
+                | Node::IcVoltage(_)
+                | Node::IcCurrent(_)
+                | Node::StrainGauge(_)
+                | Node::Transducer(_)
+                | Node::Resistor(_)
+                | Node::Bridge(_)
+                | Node::Amplifier(_)
+                | Node::Filter(_)
+                | Node::Adc(_)
+                | Node::Convert(_) => 0.0,
             };
             voltage_of(s, n) + leads
         })
@@ -446,7 +477,20 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
                 r: Some(r),
                 ..
             }) if *i == exc => v / values[r.index()],
-            _ => 0.0,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => 0.0,
         })
         .sum()
 }
@@ -612,7 +656,20 @@ fn floating_couple(plan: &Plan, node: NodeId) -> Option<&str> {
         Node::Thermocouple(node::Thermocouple { bias: None, .. }) => {
             Some(plan.names[input.index()].as_str())
         }
-        _ => None,
+        Node::Excitation(_)
+        | Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
     }
 }
 
@@ -821,7 +878,23 @@ fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -
                 f = f.label(driver.name_span, "drives its `ref`");
             }
         }
-        _ => {}
+        (
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_),
+            _,
+        ) => {}
     }
     f
 }
@@ -852,7 +925,7 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
             Some(tc) => format!("hold the couple's common mode inside {} .. {} with a `bias_voltage` on `{tc}` (mid-range: {}), or choose an amplifier whose input range includes {}", show(e, e.allowed.0), show(e, e.allowed.1), show(e, (e.allowed.0 + e.allowed.1) / 2.0), show(e, value)),
             None => format!("bias the input common mode into {} .. {}, or choose an amplifier whose input range includes {}", show(e, e.allowed.0), show(e, e.allowed.1), show(e, value)),
         }),
-        Limit::ConverterInput if high => match slot("vref") {
+        Limit::ConverterInput if high => match slot(schema::VREF) {
             Some(vref) => Some(format!("a reference of at least {} keeps {pct} % headroom", with_prefix(vref * value / target, "V", 4))),
             None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
         },
@@ -860,7 +933,7 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
         Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {pct} % headroom is {}", with_prefix(i * target / value, "A", 4))),
         Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {pct} % headroom", with_prefix(value / (1.0 - margin), "A", 4))),
         Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
-        Limit::ConverterReference => Some(reference_fix(slot("vref").is_some(), high, value, target, margin)),
+        Limit::ConverterReference => Some(reference_fix(slot(schema::VREF).is_some(), high, value, target, margin)),
         Limit::ConverterPin(_) => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e, e.allowed.0), show(e, e.allowed.1), show(e, value))),
         Limit::ConverterSettling => None,
     }
@@ -884,7 +957,7 @@ fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> O
         .unwrap_or(0.0);
     let pct = trimmed(margin * 100.0, 3);
     if value != shift && (target - shift) / (value - shift) > 0.0 {
-        return nominal_of(plan, e.node, "gain").map(|g| {
+        return nominal_of(plan, e.node, schema::param::GAIN).map(|g| {
             let fits = g * (target - shift) / (value - shift);
             let word = if fits < g { "at most" } else { "at least" };
             format!(

@@ -281,7 +281,20 @@ fn add_detail(
             let b = budget::budget(chain, &bare, &options.budget)?;
             Some(b.points.iter().map(|p| p.gum_expanded).collect())
         }
-        _ => None,
+        Node::Excitation(_)
+        | Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
     };
     analysis.alarms = alarm_limits(chain, plan, options.budget.k)?;
     Ok(())

@@ -7,6 +7,7 @@
 use super::ranges::{Envelope, Limit};
 use crate::diagnostics::{Code, Finding, Findings};
 use crate::eval::{node, Node, NodeId, Plan};
+use crate::model::schema;
 use crate::model::Chain;
 use crate::physics::sampling::{
     largest_resistance, settling_error_lsb, shortest_acquisition, SETTLED_LSB,
@@ -119,8 +120,11 @@ pub fn findings(chain: &Chain, plan: &Plan, envelopes: &[Envelope]) -> Findings 
         let mut f =
             Finding::new(Code::R630, &chain.file, message).label(stage.name_span, "this converter");
         for (name, text) in [
-            ("acquisition_time", "acquisition time"),
-            ("sampling_capacitance", "charged through the source"),
+            (schema::param::ACQUISITION_TIME, "acquisition time"),
+            (
+                schema::param::SAMPLING_CAPACITANCE,
+                "charged through the source",
+            ),
         ] {
             if let Some(p) = stage.params.iter().find(|p| p.name == name) {
                 if std::sync::Arc::ptr_eq(&p.file, &chain.file) {

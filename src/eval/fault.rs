@@ -278,7 +278,18 @@ impl Plan {
         let reader = NodeId::new(self.nodes.iter().position(|n| match n {
             Node::Amplifier(a) => a.input == i,
             Node::Adc(a) => a.input == i,
-            _ => false,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => false,
         })?);
         self.burnout_of(reader)
     }
@@ -291,7 +302,18 @@ impl Plan {
         let burnout = match &self.nodes[i.index()] {
             Node::Amplifier(a) => a.burnout,
             Node::Adc(a) => a.burnout,
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => None,
         }?;
         (burnout > self.input_bias(i).unwrap_or(0.0)).then_some(burnout)
     }
@@ -305,7 +327,18 @@ impl Plan {
                 slot.nominal.abs() + slot.plus.max(slot.minus)
             }),
             Node::Adc(adc) => adc.bias,
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => None,
         }
         .filter(|&most| most > 0.0)
     }
@@ -319,7 +352,20 @@ impl Plan {
         let input = self.nodes[fault.node.index()].element_input()?;
         match &self.nodes[input.index()] {
             Node::Excitation(e) if e.current => Some(input),
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         }
     }
 
@@ -414,7 +460,19 @@ impl Plan {
                 Some((_, others)) => i == self.adc || others.contains(&i),
                 None => false,
             },
-            _ => false,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => false,
         }
     }
 }

@@ -12,7 +12,7 @@ use super::run::{within, MAX_NODES};
 use super::stated::Stated;
 use crate::model::ports::Port;
 use crate::model::typed::{ColdJunction, CombineOp, StageModel};
-use crate::model::{Chain, Measurand};
+use crate::model::{Chain, Measurand, Stage};
 use crate::physics::solve::bisect_at_most;
 use crate::units::ZERO_CELSIUS_K;
 
@@ -156,6 +156,61 @@ fn reading_stage(chain: &Chain) -> Result<usize, EvalError> {
         .ok_or_else(|| not_invertible(&chain.name, "no conversion ends the chain"))
 }
 
+/// The stages a thermocouple names as its cold junction's sensor.
+fn cold_junction_sensors(chain: &Chain) -> Vec<&str> {
+    chain
+        .stages
+        .iter()
+        .filter_map(|s| match &s.typed {
+            Some(StageModel::Thermocouple(t)) => match &t.cold_junction {
+                Some(ColdJunction::Stage(name)) => Some(name.as_str()),
+                Some(ColdJunction::Error(_)) | None => None,
+            },
+            Some(
+                StageModel::Excitation(_)
+                | StageModel::Rtd(_)
+                | StageModel::Thermistor(_)
+                | StageModel::IcVoltage(_)
+                | StageModel::IcCurrent(_)
+                | StageModel::StrainGauge(_)
+                | StageModel::Transducer(_)
+                | StageModel::Resistor(_)
+                | StageModel::Bridge(_)
+                | StageModel::Amplifier(_)
+                | StageModel::Filter(_)
+                | StageModel::Adc(_)
+                | StageModel::Convert(_),
+            )
+            | None => None,
+        })
+        .collect()
+}
+
+/// The stage whose name a stage's slots carry, and whether they are
+/// shared: a converter's channel shares its converter's sources.
+fn slot_owner<'a>(stage: &'a Stage, model: &'a StageModel) -> (&'a str, bool) {
+    match model {
+        StageModel::Adc(adc) if adc.channels > 1 => (
+            adc.channel_of.as_deref().unwrap_or(stage.name.as_str()),
+            true,
+        ),
+        StageModel::Excitation(_)
+        | StageModel::Rtd(_)
+        | StageModel::Thermocouple(_)
+        | StageModel::Thermistor(_)
+        | StageModel::IcVoltage(_)
+        | StageModel::IcCurrent(_)
+        | StageModel::StrainGauge(_)
+        | StageModel::Transducer(_)
+        | StageModel::Resistor(_)
+        | StageModel::Bridge(_)
+        | StageModel::Amplifier(_)
+        | StageModel::Filter(_)
+        | StageModel::Adc(_)
+        | StageModel::Convert(_) => (stage.name.as_str(), false),
+    }
+}
+
 /// Every stage's node, in `order`, with the slots they fill and the error
 /// of what each senses.
 fn lower_nodes<'a>(
@@ -164,18 +219,7 @@ fn lower_nodes<'a>(
     order: &[usize],
     node_of: &impl Fn(usize) -> NodeId,
 ) -> Result<(Vec<Node>, Cx<'a>, Vec<SenseError>), EvalError> {
-    // The stages a thermocouple names as its cold junction's sensor.
-    let cold_junction_sensors: Vec<&str> = chain
-        .stages
-        .iter()
-        .filter_map(|s| match &s.typed {
-            Some(StageModel::Thermocouple(t)) => match &t.cold_junction {
-                Some(ColdJunction::Stage(name)) => Some(name.as_str()),
-                Some(ColdJunction::Error(_)) | None => None,
-            },
-            _ => None,
-        })
-        .collect();
+    let cold_junction_sensors = cold_junction_sensors(chain);
     let mut cx = Cx {
         slots: Vec::new(),
         measurand,
@@ -199,13 +243,7 @@ fn lower_nodes<'a>(
             return Err(not_invertible(&stage.name, "its model was not accepted"));
         };
         cx.name = &stage.name;
-        (cx.owner, cx.shared) = match model {
-            StageModel::Adc(adc) if adc.channels > 1 => (
-                adc.channel_of.as_deref().unwrap_or(stage.name.as_str()),
-                true,
-            ),
-            _ => (stage.name.as_str(), false),
-        };
+        (cx.owner, cx.shared) = slot_owner(stage, model);
         cx.inputs = inputs(chain, si, node_of);
         cx.combine = combination(chain, si)
             .map(|(op, others)| (op, others.into_iter().map(node_of).collect()));
@@ -421,7 +459,19 @@ fn fit_conversions(plan: &mut Plan) -> Result<(), EvalError> {
         .iter()
         .filter_map(|n| match n {
             Node::Thermocouple(t) => Some((t.ty, t.senses)),
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         })
         .collect();
     let has_thermocouple = !couples.is_empty();
@@ -596,7 +646,19 @@ chain beam "q" {
         let p = plan(QUARTER);
         let bridge = p.nodes.iter().find_map(|n| match n {
             Node::Bridge(b) => Some(b),
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         });
         let bridge = bridge.expect("a bridge node");
         assert_eq!(bridge.kind, BridgeKind::Quarter);
@@ -604,7 +666,19 @@ chain beam "q" {
         assert!(bridge.others.iter().all(|(_, drift)| drift.is_some()));
         let gauge = p.nodes.iter().find_map(|n| match n {
             Node::StrainGauge(g) => Some(g),
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         });
         assert_eq!(gauge.expect("a gauge").sign, -1.0);
         let gain_error = slot(&p, "conv.gain_error");

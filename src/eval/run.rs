@@ -368,10 +368,34 @@ impl Plan {
                 .iter()
                 .fold(volts(*input), |acc, &o| match &self.nodes[o.index()] {
                     Node::Adc(node::Adc { input, .. }) => acc + volts(*input),
-                    _ => acc,
+                    Node::Excitation(_)
+                    | Node::Rtd(_)
+                    | Node::Thermocouple(_)
+                    | Node::Thermistor(_)
+                    | Node::IcVoltage(_)
+                    | Node::IcCurrent(_)
+                    | Node::StrainGauge(_)
+                    | Node::Transducer(_)
+                    | Node::Resistor(_)
+                    | Node::Bridge(_)
+                    | Node::Amplifier(_)
+                    | Node::Filter(_)
+                    | Node::Convert(_) => acc,
                 }),
             Node::Adc(node::Adc { input, .. }) => volts(*input),
-            _ => 0.0,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => 0.0,
         };
         match signals[self.adc.index()] {
             Signal::Code { exact, .. } => Ok((v, exact)),
@@ -641,7 +665,19 @@ impl Plan {
             Node::Thermocouple(node::Thermocouple { ty, .. }) => {
                 thermocouple::emf_mv(ty, super::node::junction_c(ty, env)).ok()
             }
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         }
     }
 
@@ -671,7 +707,19 @@ impl Plan {
     fn main_conversion(&self) -> Result<&Conversion, EvalError> {
         match &self.nodes[self.reading.index()] {
             Node::Convert(node::Convert { conversion, .. }) => Ok(conversion),
-            _ => Err(self.numeric(self.reading, "no conversion")),
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_) => Err(self.numeric(self.reading, "no conversion")),
         }
     }
 }

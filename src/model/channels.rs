@@ -385,11 +385,7 @@ fn used_twice(file: &Arc<SourceFile>, convert: &Stage, name: &str, span: Span) -
 
 /// What a sensor measures, as far as adding its channel to another's goes.
 fn quantity(stage: &Stage) -> Option<&'static str> {
-    match stage.model? {
-        "rtd" | "thermocouple" | "thermistor" | "ic_voltage" | "ic_current" => Some("temperature"),
-        "strain_gauge" | "transducer" => Some("a load or strain"),
-        _ => None,
-    }
+    schema::model(stage.kind, stage.model?)?.measures.words()
 }
 
 /// The sensors of the measurand upstream of `start` (a cold junction's
@@ -494,7 +490,22 @@ fn shares_not_whole(
         .iter()
         .map(|&c| match &stages[c].typed {
             Some(StageModel::Transducer(t)) => Some((c, t.share)),
-            _ => None,
+            Some(
+                StageModel::Excitation(_)
+                | StageModel::Rtd(_)
+                | StageModel::Thermocouple(_)
+                | StageModel::Thermistor(_)
+                | StageModel::IcVoltage(_)
+                | StageModel::IcCurrent(_)
+                | StageModel::StrainGauge(_)
+                | StageModel::Resistor(_)
+                | StageModel::Bridge(_)
+                | StageModel::Amplifier(_)
+                | StageModel::Filter(_)
+                | StageModel::Adc(_)
+                | StageModel::Convert(_),
+            )
+            | None => None,
         })
         .collect::<Option<Vec<_>>>()?;
     let total: f64 = shares.iter().map(|(_, s)| s.unwrap_or(1.0)).sum();

@@ -114,6 +114,27 @@ pub enum Role {
     Convert,
 }
 
+/// The quantity a model senses.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Measures {
+    Temperature,
+    LoadOrStrain,
+    /// Not a sensor of the measurand (a source, a fixed resistor, a
+    /// stage that conditions a signal).
+    Nothing,
+}
+
+impl Measures {
+    /// The quantity in words, None for `Nothing`.
+    pub fn words(self) -> Option<&'static str> {
+        match self {
+            Measures::Temperature => Some("temperature"),
+            Measures::LoadOrStrain => Some("a load or strain"),
+            Measures::Nothing => None,
+        }
+    }
+}
+
 /// The smallest and largest plausible value (SI), checked after units.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Plausible {
@@ -139,6 +160,8 @@ pub struct ModelSpec {
     pub model: Option<&'static str>,
     /// What it takes and gives, for the port rules (`ports.rs`).
     pub role: Role,
+    /// The quantity it senses, which the channels of one sum must share.
+    pub measures: Measures,
     /// The model line itself (`rtd pt1000`, `current 250 uA ± 0.5 %`).
     pub model_shape: Shape,
     pub params: &'static [ParamSpec],
@@ -221,14 +244,61 @@ const RATIO_OR_CODES: Expect = Expect::OneOf(&[Dim::NONE, Dim::CODE]);
 const CURRENT_NOISE: Expect = Expect::OneOf(&[Dim::CURRENT, Dim::CURRENT_DENSITY]);
 
 const TIME_CONSTANT: ParamSpec = p("time_constant", plain(SECOND)).non_negative();
-const DISSIPATION: ParamSpec =
-    p("dissipation", toleranced(Expect::Dim(Dim::DISSIPATION))).positive();
+const DISSIPATION: ParamSpec = p(
+    param::DISSIPATION,
+    toleranced(Expect::Dim(Dim::DISSIPATION)),
+)
+.positive();
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
 /// One unit's price, in whatever currency the team prices parts in (a
 /// plain number), for the trade table of `catena compare`.
 const COST: ParamSpec = p("cost", plain(Expect::Number)).non_negative();
 /// What the stage draws from its supplies, W.
 const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
+
+/// Parameter names other layers name a line or an error source by
+/// (a slot's id is `stage.parameter`): each is written here once.
+pub mod param {
+    pub const ACCURACY: &str = "accuracy";
+    pub const ACQUISITION_TIME: &str = "acquisition_time";
+    pub const AVERAGE: &str = "average";
+    pub const BETA: &str = "beta";
+    pub const BIAS: &str = "bias";
+    pub const BIAS_RESISTOR: &str = "bias_resistor";
+    pub const BIAS_VOLTAGE: &str = "bias_voltage";
+    pub const CALIBRATE: &str = "calibrate";
+    pub const CLASS: &str = "class";
+    pub const CMRR: &str = "cmrr";
+    pub const COMPLIANCE: &str = "compliance";
+    pub const DISSIPATION: &str = "dissipation";
+    pub const DRIFT: &str = "drift";
+    pub const GAIN: &str = "gain";
+    pub const GAIN_DRIFT: &str = "gain_drift";
+    pub const GAIN_ERROR: &str = "gain_error";
+    pub const GAUGE_FACTOR: &str = "gauge_factor";
+    pub const HYSTERESIS: &str = "hysteresis";
+    pub const INL: &str = "inl";
+    pub const INPUT: &str = "input";
+    pub const LIMIT: &str = "limit";
+    pub const MAX_CURRENT: &str = "max_current";
+    pub const NONLINEARITY: &str = "nonlinearity";
+    pub const OFFSET: &str = "offset";
+    pub const OFFSET_DRIFT: &str = "offset_drift";
+    pub const OUTPUT: &str = "output";
+    pub const OUTPUT_RESISTANCE: &str = "output_resistance";
+    pub const PGA: &str = "pga";
+    pub const R: &str = "r";
+    pub const R0: &str = "r0";
+    pub const R25: &str = "r25";
+    pub const RAILS: &str = "rails";
+    pub const REF_RANGE: &str = "ref_range";
+    pub const SAMPLING_CAPACITANCE: &str = "sampling_capacitance";
+    pub const SLOPE: &str = "slope";
+    pub const SPAN_DRIFT: &str = "span_drift";
+    pub const TOLERANCE: &str = "tolerance";
+    pub const ZERO: &str = "zero";
+    pub const ZERO_DRIFT: &str = "zero_drift";
+}
 
 /// Lines the port rules and graph checks look up before a typed model
 /// exists (a stage with a rejected line has none), for the line's
@@ -268,11 +338,12 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Excitation,
         model: Some("current"),
         role: Role::CurrentSource,
+        measures: Measures::Nothing,
         model_shape: measure(AMP),
         params: &[
-            p("drift", Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
+            p(param::DRIFT, Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
             p("noise", Shape::Limit(CURRENT_NOISE)),
-            p("compliance", plain(VOLT)).positive(),
+            p(param::COMPLIANCE, plain(VOLT)).positive(),
             COST,
             POWER,
         ],
@@ -285,11 +356,12 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Excitation,
         model: Some("voltage"),
         role: Role::VoltageSource,
+        measures: Measures::Nothing,
         model_shape: measure(VOLT),
         params: &[
-            p("drift", Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
+            p(param::DRIFT, Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
-            p("limit", plain(AMP)).positive(),
+            p(param::LIMIT, plain(AMP)).positive(),
             COST,
             POWER,
         ],
@@ -302,17 +374,18 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("rtd"),
         role: Role::Resistive,
+        measures: Measures::Temperature,
         model_shape: Shape::Words(RTD_CURVES),
         params: &[
-            p("r0", toleranced(OHM)).positive(),
+            p(param::R0, toleranced(OHM)).positive(),
             p("coefficients", Shape::TolerancedNumbers(3)),
-            p("class", Shape::Words(&["AA", "A", "B", "C"])),
-            p("tolerance", Shape::Limit(Expect::TempDiff)),
+            p(param::CLASS, Shape::Words(&["AA", "A", "B", "C"])),
+            p(param::TOLERANCE, Shape::Limit(Expect::TempDiff)),
             p("wires", Shape::Count { min: 2, max: 4 }),
             LEAD,
             DISSIPATION,
             TIME_CONSTANT,
-            p("max_current", plain(AMP)).positive(),
+            p(param::MAX_CURRENT, plain(AMP)).positive(),
             COST,
             POWER,
         ],
@@ -325,15 +398,16 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some(THERMOCOUPLE),
         role: Role::Floating,
+        measures: Measures::Temperature,
         model_shape: Shape::ThermocoupleType,
         params: &[
-            p("class", Shape::Count { min: 1, max: 3 }),
-            p("tolerance", Shape::Limit(Expect::TempDiff)),
+            p(param::CLASS, Shape::Count { min: 1, max: 3 }),
+            p(param::TOLERANCE, Shape::Limit(Expect::TempDiff)),
             p(COLD_JUNCTION, Shape::LimitOrStage(Expect::TempDiff)),
             LEAD,
             TIME_CONSTANT,
-            p("bias_voltage", measure(VOLT)),
-            p("bias_resistor", toleranced(OHM)).positive(),
+            p(param::BIAS_VOLTAGE, measure(VOLT)),
+            p(param::BIAS_RESISTOR, toleranced(OHM)).positive(),
             COST,
             POWER,
         ],
@@ -346,15 +420,16 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("thermistor"),
         role: Role::Resistive,
+        measures: Measures::Temperature,
         model_shape: Shape::Flag,
         params: &[
-            p("r25", toleranced(OHM)).required().positive(),
-            p("beta", toleranced(Expect::TempDiff)).positive(),
+            p(param::R25, toleranced(OHM)).required().positive(),
+            p(param::BETA, toleranced(Expect::TempDiff)).positive(),
             p("steinhart", Shape::Numbers(3)),
             DISSIPATION,
             p("range", Shape::Range(Expect::Temperature)),
             TIME_CONSTANT,
-            p("max_current", plain(AMP)).positive(),
+            p(param::MAX_CURRENT, plain(AMP)).positive(),
             COST,
             POWER,
         ],
@@ -367,22 +442,23 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("ic_voltage"),
         role: Role::Powered,
+        measures: Measures::Temperature,
         model_shape: Shape::Flag,
         params: &[
-            p("slope", toleranced(Expect::PerKelvin(Dim::VOLTAGE)))
+            p(param::SLOPE, toleranced(Expect::PerKelvin(Dim::VOLTAGE)))
                 .required()
                 .non_zero(),
             p(
-                "output",
+                param::OUTPUT,
                 Shape::At {
                     value: VOLT,
                     at: Expect::Temperature,
                 },
             )
             .required(),
-            p("accuracy", Shape::Limit(Expect::TempDiff)),
+            p(param::ACCURACY, Shape::Limit(Expect::TempDiff)),
             p("noise", Shape::Limit(VOLTAGE_NOISE)),
-            p("output_resistance", plain(OHM)).non_negative(),
+            p(param::OUTPUT_RESISTANCE, plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
             p("supply_current", plain(AMP)).non_negative(),
             TIME_CONSTANT,
@@ -398,12 +474,13 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("ic_current"),
         role: Role::PoweredCurrent,
+        measures: Measures::Temperature,
         model_shape: Shape::Flag,
         params: &[
-            p("slope", toleranced(Expect::PerKelvin(Dim::CURRENT)))
+            p(param::SLOPE, toleranced(Expect::PerKelvin(Dim::CURRENT)))
                 .required()
                 .positive(),
-            p("accuracy", Shape::Limit(Expect::TempDiff)),
+            p(param::ACCURACY, Shape::Limit(Expect::TempDiff)),
             p("supply", Shape::Range(VOLT)),
             TIME_CONSTANT,
             COST,
@@ -418,10 +495,11 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("strain_gauge"),
         role: Role::Resistive,
+        measures: Measures::LoadOrStrain,
         model_shape: Shape::Flag,
         params: &[
-            p("r", measure(OHM)).required().positive(),
-            p("gauge_factor", toleranced(Expect::Ratio))
+            p(param::R, measure(OHM)).required().positive(),
+            p(param::GAUGE_FACTOR, toleranced(Expect::Ratio))
                 .required()
                 .positive(),
             p("side", Shape::Words(&["tension", "compression"])),
@@ -438,6 +516,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("transducer"),
         role: Role::Transducer,
+        measures: Measures::LoadOrStrain,
         model_shape: Shape::Flag,
         params: &[
             p(
@@ -449,15 +528,21 @@ static MODELS: &[ModelSpec] = &[
             )
             .required(),
             p(
-                "zero",
+                param::ZERO,
                 Shape::Limit(Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE])),
             ),
-            p("nonlinearity", Shape::Limit(Expect::Ratio)),
+            p(param::NONLINEARITY, Shape::Limit(Expect::Ratio)),
             p("linearity", Shape::Words(&["terminal", "best_fit"])),
-            p("hysteresis", Shape::Limit(Expect::Ratio)),
-            p("zero_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
-            p("span_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
-            p("r", toleranced(OHM)).positive(),
+            p(param::HYSTERESIS, Shape::Limit(Expect::Ratio)),
+            p(
+                param::ZERO_DRIFT,
+                Shape::Limit(Expect::PerKelvin(Dim::NONE)),
+            ),
+            p(
+                param::SPAN_DRIFT,
+                Shape::Limit(Expect::PerKelvin(Dim::NONE)),
+            ),
+            p(param::R, toleranced(OHM)).positive(),
             p(SHARE, plain(Expect::Ratio)).positive(),
             TIME_CONSTANT,
             COST,
@@ -472,6 +557,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Sensor,
         model: Some("resistor"),
         role: Role::Resistive,
+        measures: Measures::Nothing,
         model_shape: measure(OHM),
         params: &[COST, POWER],
         exclusive: &[],
@@ -483,9 +569,10 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("divider"),
         role: Role::Bridge { arms: 1 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
-            p("r", measure(OHM)).required().positive(),
+            p(param::R, measure(OHM)).required().positive(),
             p("sensor", Shape::Words(&["low", "high"])),
             COST,
             POWER,
@@ -499,8 +586,9 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("quarter"),
         role: Role::Bridge { arms: 1 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
+        params: &[p(param::R, measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -510,8 +598,9 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("half"),
         role: Role::Bridge { arms: 2 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
-        params: &[p("r", measure(OHM)).required().positive(), COST, POWER],
+        params: &[p(param::R, measure(OHM)).required().positive(), COST, POWER],
         exclusive: &[],
         one_of: &[],
         together: &[],
@@ -521,6 +610,7 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Bridge,
         model: Some("full"),
         role: Role::Bridge { arms: 4 },
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[COST, POWER],
         exclusive: &[],
@@ -532,23 +622,29 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Amplifier,
         model: None,
         role: Role::Amplifier,
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
-            p("gain", toleranced(Expect::Ratio)).required().positive(),
-            p("offset", Shape::Limit(VOLT)),
+            p(param::GAIN, toleranced(Expect::Ratio))
+                .required()
+                .positive(),
+            p(param::OFFSET, Shape::Limit(VOLT)),
             p(
-                "offset_drift",
+                param::OFFSET_DRIFT,
                 Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE)),
             ),
-            p("gain_drift", Shape::Limit(Expect::PerKelvin(Dim::NONE))),
+            p(
+                param::GAIN_DRIFT,
+                Shape::Limit(Expect::PerKelvin(Dim::NONE)),
+            ),
             p("noise", plain(Expect::Dim(Dim::VOLTAGE_DENSITY))).non_negative(),
             p("noise_corner", plain(HERTZ)).non_negative(),
             p("current_noise", plain(Expect::Dim(Dim::CURRENT_DENSITY))).non_negative(),
-            p("bias", Shape::Limit(AMP)),
+            p(param::BIAS, Shape::Limit(AMP)),
             p("burnout", plain(AMP)).positive(),
-            p("cmrr", plain(Expect::Decibel)).positive(),
-            p("input", Shape::Range(VOLT)),
-            p("output", Shape::Range(VOLT)),
+            p(param::CMRR, plain(Expect::Decibel)).positive(),
+            p(param::INPUT, Shape::Range(VOLT)),
+            p(param::OUTPUT, Shape::Range(VOLT)),
             p("bandwidth", plain(HERTZ)).positive(),
             p(REFERENCE, measure(VOLT)),
             COST,
@@ -563,11 +659,12 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Filter,
         model: Some("lowpass"),
         role: Role::Filter,
+        measures: Measures::Nothing,
         model_shape: Shape::Words(&["rc", "butterworth", "bessel"]),
         params: &[
             p("order", Shape::Count { min: 1, max: 8 }),
             p("cutoff", toleranced(HERTZ)).positive(),
-            p("r", toleranced(OHM)).positive(),
+            p(param::R, toleranced(OHM)).positive(),
             p("c", toleranced(FARAD)).positive(),
             COST,
             POWER,
@@ -581,26 +678,27 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Adc,
         model: None,
         role: Role::Adc,
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
             p("bits", Shape::Count { min: 1, max: 32 }).required(),
-            p("input", Shape::Words(&["single", "differential"])),
+            p(param::INPUT, Shape::Words(&["single", "differential"])),
             p("polarity", Shape::Words(&["unipolar", "bipolar"])),
             p(VREF, measure(VOLT)).positive(),
-            p("pga", toleranced(Expect::Ratio)).positive(),
-            p("offset", Shape::Limit(VOLTAGE_OR_CODES)),
-            p("gain_error", Shape::Limit(RATIO_OR_CODES)),
-            p("inl", Shape::Limit(RATIO_OR_CODES)),
+            p(param::PGA, toleranced(Expect::Ratio)).positive(),
+            p(param::OFFSET, Shape::Limit(VOLTAGE_OR_CODES)),
+            p(param::GAIN_ERROR, Shape::Limit(RATIO_OR_CODES)),
+            p(param::INL, Shape::Limit(RATIO_OR_CODES)),
             p("noise", Shape::Limit(VOLTAGE_OR_CODES)),
             p("rate", plain(HERTZ)).positive(),
             p("notch", plain(HERTZ)).positive(),
-            p("ref_range", Shape::Range(VOLT)),
-            p("rails", Shape::Range(VOLT)),
+            p(param::REF_RANGE, Shape::Range(VOLT)),
+            p(param::RAILS, Shape::Range(VOLT)),
             p("burnout", plain(AMP)).positive(),
-            p("bias", plain(AMP)).non_negative(),
-            p("sampling_capacitance", plain(FARAD)).positive(),
+            p(param::BIAS, plain(AMP)).non_negative(),
+            p(param::SAMPLING_CAPACITANCE, plain(FARAD)).positive(),
             p("sampling_resistance", plain(OHM)).non_negative(),
-            p("acquisition_time", plain(SECOND)).positive(),
+            p(param::ACQUISITION_TIME, plain(SECOND)).positive(),
             COST,
             POWER,
             p(CHANNEL_OF, Shape::StageName),
@@ -635,17 +733,18 @@ static MODELS: &[ModelSpec] = &[
         kind: StageKind::Convert,
         model: None,
         role: Role::Convert,
+        measures: Measures::Nothing,
         model_shape: Shape::Flag,
         params: &[
             p("method", Shape::Method),
             p(
-                "average",
+                param::AVERAGE,
                 Shape::Count {
                     min: 1,
                     max: 1_000_000,
                 },
             ),
-            p("calibrate", Shape::Calibrate),
+            p(param::CALIBRATE, Shape::Calibrate),
             p(SUM, Shape::StageNames),
             p(RATIO, Shape::StageName),
             COST,
@@ -672,7 +771,17 @@ pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
             },
             &e.value,
         )),
-        _ => None,
+        StageModel::Rtd(_)
+        | StageModel::Thermocouple(_)
+        | StageModel::Thermistor(_)
+        | StageModel::IcVoltage(_)
+        | StageModel::IcCurrent(_)
+        | StageModel::StrainGauge(_)
+        | StageModel::Transducer(_)
+        | StageModel::Amplifier(_)
+        | StageModel::Filter(_)
+        | StageModel::Adc(_)
+        | StageModel::Convert(_) => None,
     }
 }
 
@@ -833,21 +942,21 @@ fn read_excitation(r: &Reader<'_>, source: Source, name: &str) -> Option<StageMo
     Some(StageModel::Excitation(Excitation {
         source,
         value: r.measure(name)?,
-        drift: r.limit("drift"),
+        drift: r.limit(param::DRIFT),
         noise: r.limit("noise"),
     }))
 }
 
 fn read_current(r: &Reader<'_>) -> Option<StageModel> {
     let source = Source::Current {
-        compliance: r.value("compliance"),
+        compliance: r.value(param::COMPLIANCE),
     };
     read_excitation(r, source, "current")
 }
 
 fn read_voltage(r: &Reader<'_>) -> Option<StageModel> {
     let source = Source::Voltage {
-        limit: r.value("limit"),
+        limit: r.value(param::LIMIT),
     };
     read_excitation(r, source, "voltage")
 }
@@ -858,7 +967,7 @@ fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
         Some(ParamValue::Measures(m)) => Some(Box::new(<[Measure; 3]>::try_from(m.clone()).ok()?)),
         _ => None,
     };
-    if curve == RtdCurveName::Custom && (coefficients.is_none() || r.get("r0").is_none()) {
+    if curve == RtdCurveName::Custom && (coefficients.is_none() || r.get(param::R0).is_none()) {
         return None;
     }
     let class = r
@@ -878,15 +987,15 @@ fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
     };
     Some(StageModel::Rtd(Rtd {
         curve,
-        r0: r.measure("r0"),
+        r0: r.measure(param::R0),
         coefficients,
         class,
-        tolerance: r.limit("tolerance"),
+        tolerance: r.limit(param::TOLERANCE),
         wiring,
         lead: r.measure("lead"),
-        dissipation: r.measure("dissipation"),
+        dissipation: r.measure(param::DISSIPATION),
         time_constant: r.value("time_constant"),
-        max_current: r.value("max_current"),
+        max_current: r.value(param::MAX_CURRENT),
     }))
 }
 
@@ -901,21 +1010,21 @@ fn read_thermocouple(r: &Reader<'_>) -> Option<StageModel> {
     };
     Some(StageModel::Thermocouple(Thermocouple {
         ty,
-        class: match r.count("class") {
+        class: match r.count(param::CLASS) {
             Some(c) => Some(u8::try_from(c).ok()?),
             None => None,
         },
-        tolerance: r.limit("tolerance"),
+        tolerance: r.limit(param::TOLERANCE),
         cold_junction,
         lead: r.measure("lead"),
         time_constant: r.value("time_constant"),
-        bias_voltage: r.measure("bias_voltage"),
-        bias_resistor: r.measure("bias_resistor"),
+        bias_voltage: r.measure(param::BIAS_VOLTAGE),
+        bias_resistor: r.measure(param::BIAS_RESISTOR),
     }))
 }
 
 fn read_thermistor(r: &Reader<'_>) -> Option<StageModel> {
-    let law = match (r.measure("beta"), r.get("steinhart")) {
+    let law = match (r.measure(param::BETA), r.get("steinhart")) {
         (Some(beta), _) => ThermistorLaw::Beta(beta),
         (None, Some(ParamValue::Numbers(n))) => {
             ThermistorLaw::SteinhartHart(<[f64; 3]>::try_from(n.as_slice()).ok()?)
@@ -923,24 +1032,24 @@ fn read_thermistor(r: &Reader<'_>) -> Option<StageModel> {
         _ => return None,
     };
     Some(StageModel::Thermistor(Thermistor {
-        r25: r.measure("r25")?,
+        r25: r.measure(param::R25)?,
         law,
-        dissipation: r.measure("dissipation"),
+        dissipation: r.measure(param::DISSIPATION),
         range: r.range("range"),
         time_constant: r.value("time_constant"),
-        max_current: r.value("max_current"),
+        max_current: r.value(param::MAX_CURRENT),
     }))
 }
 
 fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
-    let (output, _, output_at) = r.at("output")?;
+    let (output, _, output_at) = r.at(param::OUTPUT)?;
     Some(StageModel::IcVoltage(IcVoltage {
-        slope: r.measure("slope")?,
+        slope: r.measure(param::SLOPE)?,
         output,
         output_at,
-        accuracy: r.limit("accuracy"),
+        accuracy: r.limit(param::ACCURACY),
         noise: r.limit("noise"),
-        output_resistance: r.measure("output_resistance"),
+        output_resistance: r.measure(param::OUTPUT_RESISTANCE),
         supply: r.range("supply"),
         supply_current: r.value("supply_current"),
         time_constant: r.value("time_constant"),
@@ -949,8 +1058,8 @@ fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
 
 fn read_ic_current(r: &Reader<'_>) -> Option<StageModel> {
     Some(StageModel::IcCurrent(IcCurrent {
-        slope: r.measure("slope")?,
-        accuracy: r.limit("accuracy"),
+        slope: r.measure(param::SLOPE)?,
+        accuracy: r.limit(param::ACCURACY),
         supply: r.range("supply"),
         time_constant: r.value("time_constant"),
     }))
@@ -959,8 +1068,8 @@ fn read_ic_current(r: &Reader<'_>) -> Option<StageModel> {
 fn read_strain_gauge(r: &Reader<'_>) -> Option<StageModel> {
     let side = r.choice("side", GaugeSide::from_word).ok()?;
     Some(StageModel::StrainGauge(StrainGauge {
-        r: r.measure("r")?,
-        gauge_factor: r.measure("gauge_factor")?,
+        r: r.measure(param::R)?,
+        gauge_factor: r.measure(param::GAUGE_FACTOR)?,
         side: side.unwrap_or(GaugeSide::Tension),
         time_constant: r.value("time_constant"),
     }))
@@ -984,13 +1093,13 @@ fn read_transducer(r: &Reader<'_>) -> Option<StageModel> {
         sensitivity_dim,
         full_scale,
         share,
-        zero: r.limit("zero"),
-        nonlinearity: r.limit("nonlinearity"),
+        zero: r.limit(param::ZERO),
+        nonlinearity: r.limit(param::NONLINEARITY),
         linearity: linearity.unwrap_or(LinearityLine::Terminal),
-        hysteresis: r.limit("hysteresis"),
-        zero_drift: r.limit("zero_drift"),
-        span_drift: r.limit("span_drift"),
-        r: r.measure("r"),
+        hysteresis: r.limit(param::HYSTERESIS),
+        zero_drift: r.limit(param::ZERO_DRIFT),
+        span_drift: r.limit(param::SPAN_DRIFT),
+        r: r.measure(param::R),
         time_constant: r.value("time_constant"),
     }))
 }
@@ -1004,7 +1113,7 @@ fn read_resistor(r: &Reader<'_>) -> Option<StageModel> {
 fn read_bridge(r: &Reader<'_>, form: BridgeForm) -> Option<StageModel> {
     Some(StageModel::Bridge(Bridge {
         form,
-        r: r.measure("r"),
+        r: r.measure(param::R),
     }))
 }
 
@@ -1027,18 +1136,18 @@ fn read_full(r: &Reader<'_>) -> Option<StageModel> {
 
 fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
     Some(StageModel::Amplifier(Amplifier {
-        gain: r.measure("gain")?,
-        offset: r.limit("offset"),
-        offset_drift: r.limit("offset_drift"),
-        gain_drift: r.limit("gain_drift"),
+        gain: r.measure(param::GAIN)?,
+        offset: r.limit(param::OFFSET),
+        offset_drift: r.limit(param::OFFSET_DRIFT),
+        gain_drift: r.limit(param::GAIN_DRIFT),
         noise: r.value("noise"),
         noise_corner: r.value("noise_corner"),
         current_noise: r.value("current_noise"),
-        bias: r.limit("bias"),
+        bias: r.limit(param::BIAS),
         burnout: r.value("burnout"),
-        cmrr: r.value("cmrr"),
-        input: r.range("input"),
-        output: r.range("output"),
+        cmrr: r.value(param::CMRR),
+        input: r.range(param::INPUT),
+        output: r.range(param::OUTPUT),
         bandwidth: r.value("bandwidth"),
         reference: r.measure(REFERENCE),
     }))
@@ -1057,7 +1166,7 @@ fn read_filter(r: &Reader<'_>) -> Option<StageModel> {
         response,
         order: r.count("order"),
         cutoff: r.measure("cutoff"),
-        r: r.measure("r"),
+        r: r.measure(param::R),
         c: r.measure("c"),
     }))
 }
@@ -1078,7 +1187,10 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
             _ => None,
         })
         .ok()?;
-    let sampling = match (r.value("sampling_capacitance"), r.value("acquisition_time")) {
+    let sampling = match (
+        r.value(param::SAMPLING_CAPACITANCE),
+        r.value(param::ACQUISITION_TIME),
+    ) {
         (Some(capacitance), Some(acquisition_time)) => Some(Sampling {
             capacitance,
             acquisition_time,
@@ -1105,17 +1217,17 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
             AdcInput::Single => Polarity::Unipolar,
         }),
         vref: r.measure(VREF),
-        pga: r.measure("pga"),
-        offset: r.limit("offset"),
-        gain_error: r.limit("gain_error"),
-        inl: r.limit("inl"),
+        pga: r.measure(param::PGA),
+        offset: r.limit(param::OFFSET),
+        gain_error: r.limit(param::GAIN_ERROR),
+        inl: r.limit(param::INL),
         noise: r.limit("noise"),
         rate: r.value("rate"),
         notch: r.value("notch"),
-        ref_range: r.range("ref_range"),
-        rails: r.range("rails"),
+        ref_range: r.range(param::REF_RANGE),
+        rails: r.range(param::RAILS),
         burnout: r.value("burnout"),
-        bias: r.value("bias"),
+        bias: r.value(param::BIAS),
         sampling,
         channel_of,
         channels: 1,
@@ -1135,7 +1247,7 @@ fn read_convert(r: &Reader<'_>) -> Option<StageModel> {
         Some(_) => return None,
         None => ConversionMethod::Exact,
     };
-    let calibrate = match r.get("calibrate") {
+    let calibrate = match r.get(param::CALIBRATE) {
         Some(ParamValue::Calibrate {
             method,
             points,
@@ -1167,7 +1279,7 @@ fn read_convert(r: &Reader<'_>) -> Option<StageModel> {
     };
     Some(StageModel::Convert(Convert {
         method,
-        average: r.count("average"),
+        average: r.count(param::AVERAGE),
         calibrate,
         combine,
     }))

@@ -69,7 +69,22 @@ fn parts_of(stage: &Stage) -> usize {
             BridgeForm::Half => 2,
             BridgeForm::Divider(_) | BridgeForm::Full => 1,
         },
-        _ => 1,
+        Some(
+            StageModel::Excitation(_)
+            | StageModel::Rtd(_)
+            | StageModel::Thermocouple(_)
+            | StageModel::Thermistor(_)
+            | StageModel::IcVoltage(_)
+            | StageModel::IcCurrent(_)
+            | StageModel::StrainGauge(_)
+            | StageModel::Transducer(_)
+            | StageModel::Resistor(_)
+            | StageModel::Amplifier(_)
+            | StageModel::Filter(_)
+            | StageModel::Adc(_)
+            | StageModel::Convert(_),
+        )
+        | None => 1,
     }
 }
 

@@ -66,7 +66,20 @@ pub struct ColdJunctionConversion {
 pub fn measuring_couple(plan: &Plan) -> Option<ThermocoupleType> {
     plan.nodes.iter().find_map(|n| match n {
         Node::Thermocouple(t) if t.senses == crate::eval::Senses::Measurand => Some(t.ty),
-        _ => None,
+        Node::Excitation(_)
+        | Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
     })
 }
 

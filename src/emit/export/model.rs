@@ -20,6 +20,7 @@ use crate::eval::{
     Calibrated, Calibration, Conversion, Env, EvalError, Method, Node, Plan, SlotId,
 };
 use crate::model::requirement::RequirementKind;
+use crate::model::schema;
 use crate::model::typed::ConversionMethod;
 use crate::model::value::{Basis, ParamValue};
 use crate::model::Chain;
@@ -742,7 +743,7 @@ fn average(chain: &Chain, plan: &Plan) -> u32 {
         .stages
         .iter()
         .find(|s| s.name == plan.names[plan.reading.index()])
-        .and_then(|s| match s.param("average") {
+        .and_then(|s| match s.param(schema::param::AVERAGE) {
             Some(ParamValue::Count(n)) => Some(*n),
             Some(ParamValue::Measure(m)) => Some(m.nominal as u32),
             _ => None,

@@ -5,6 +5,7 @@ use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed::{self, AdcInput, CombineOp};
 use crate::model::value::Tolerance;
 use crate::physics::adc::{self, Polarity};
@@ -59,7 +60,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
     };
     let (vref, vref_drift) = match &m.vref {
         Some(v) => (
-            Some(cx.measure("vref", SourceKind::Tolerance, v)),
+            Some(cx.measure(schema::VREF, SourceKind::Tolerance, v)),
             v.drift
                 .as_ref()
                 .map(|d| cx.drift("vref_drift", d.per_kelvin, d.relative)),
@@ -72,10 +73,10 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
     let pga = m
         .pga
         .as_ref()
-        .map(|g| cx.measure("pga", SourceKind::Tolerance, g));
+        .map(|g| cx.measure(schema::param::PGA, SourceKind::Tolerance, g));
     cx.owner = owner;
     let offset = m.offset.as_ref().map(|t| {
-        let slot = cx.limit("offset", SourceKind::Bound, t);
+        let slot = cx.limit(schema::param::OFFSET, SourceKind::Bound, t);
         if t.dim == Dim::CODE {
             AdcOffset::Codes(slot)
         } else {
@@ -96,8 +97,13 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
         vref_drift,
         reference: cx.inputs.reference,
         offset,
-        gain_error: fraction(cx, "gain_error", SourceKind::Gain, &m.gain_error),
-        inl: fraction(cx, "inl", SourceKind::Inl, &m.inl),
+        gain_error: fraction(
+            cx,
+            schema::param::GAIN_ERROR,
+            SourceKind::Gain,
+            &m.gain_error,
+        ),
+        inl: fraction(cx, schema::param::INL, SourceKind::Inl, &m.inl),
         input: cx
             .inputs
             .input
@@ -367,12 +373,26 @@ impl Plan {
     /// combines, else 1. Each rounds on its own, so the sum's
     /// quantization is that many independent half-codes.
     pub fn summed_codes(&self) -> usize {
+        use super::Node;
         match &self.nodes[self.adc.index()] {
-            super::Node::Adc(Adc {
+            Node::Adc(Adc {
                 combine: Some((CombineOp::Sum, others)),
                 ..
             }) => 1 + others.len(),
-            _ => 1,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => 1,
         }
     }
 

@@ -6,6 +6,7 @@ use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
+use crate::model::schema;
 use crate::model::typed;
 
 #[derive(Clone, Debug, PartialEq)]
@@ -43,20 +44,27 @@ pub enum AmpReference {
 }
 
 pub(super) fn lower(m: &typed::Amplifier, cx: &mut Cx<'_>) -> Result<Amplifier, EvalError> {
-    let gain = cx.measure("gain", SourceKind::Tolerance, &m.gain);
+    let gain = cx.measure(schema::param::GAIN, SourceKind::Tolerance, &m.gain);
     let offset = m
         .offset
         .as_ref()
-        .map(|t| cx.limit("offset", SourceKind::Bound, t));
+        .map(|t| cx.limit(schema::param::OFFSET, SourceKind::Bound, t));
     let bias = m
         .bias
         .as_ref()
-        .map(|t| cx.limit("bias", SourceKind::Bias, t));
+        .map(|t| cx.limit(schema::param::BIAS, SourceKind::Bias, t));
     // CMRR is a ratio whose sign is unknown: nominal zero error, ±1/CMRR
     // per volt of common mode.
     let cmrr = m.cmrr.map(|ratio| {
         let e = 1.0 / ratio;
-        cx.add("cmrr", SourceKind::CommonMode, 0.0, e, e, false)
+        cx.add(
+            schema::param::CMRR,
+            SourceKind::CommonMode,
+            0.0,
+            e,
+            e,
+            false,
+        )
     });
     let input = cx
         .inputs
@@ -65,19 +73,19 @@ pub(super) fn lower(m: &typed::Amplifier, cx: &mut Cx<'_>) -> Result<Amplifier, 
     let reference = match (cx.inputs.reference, &m.reference) {
         (Some(node), _) => Some(AmpReference::Stage(node)),
         (None, Some(r)) => Some(AmpReference::Stated {
-            value: cx.measure("reference", SourceKind::Tolerance, r),
-            drift: cx.drift_of("reference", r),
+            value: cx.measure(schema::REFERENCE, SourceKind::Tolerance, r),
+            drift: cx.drift_of(schema::REFERENCE, r),
         }),
         (None, None) => None,
     };
     let offset_drift = m
         .offset_drift
         .as_ref()
-        .map(|t| cx.limit("offset_drift", SourceKind::Drift, t));
+        .map(|t| cx.limit(schema::param::OFFSET_DRIFT, SourceKind::Drift, t));
     let gain_drift = m
         .gain_drift
         .as_ref()
-        .map(|t| cx.limit("gain_drift", SourceKind::Drift, t));
+        .map(|t| cx.limit(schema::param::GAIN_DRIFT, SourceKind::Drift, t));
     Ok(Amplifier {
         gain,
         offset,

@@ -7,6 +7,7 @@ use super::{Cx, Run};
 use crate::eval::element::Supply;
 use crate::eval::fault::{FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed::{self, BridgeForm, DividerSide};
 use crate::physics::strain;
 
@@ -47,7 +48,7 @@ pub(super) fn lower(m: &typed::Bridge, cx: &mut Cx<'_>) -> Result<Bridge, EvalEr
     if let Some(r) = &m.r {
         for k in 1..=parts {
             let name = if parts == 1 {
-                "r".to_string()
+                schema::param::R.to_string()
             } else {
                 format!("r_{k}")
             };

@@ -4,6 +4,7 @@ use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Tag};
 use crate::eval::plan::{DriftSlot, EvalError, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed::{self, Source};
 
 #[derive(Clone, Debug, PartialEq)]
@@ -24,7 +25,7 @@ pub(super) fn lower(m: &typed::Excitation, cx: &mut Cx<'_>) -> Result<Excitation
     let value = cx.measure(name, SourceKind::Tolerance, &m.value);
     // A drift on its own line takes the place of one on the value.
     let drift = match &m.drift {
-        Some(t) => Some(cx.drift("drift", t.plus, t.relative)),
+        Some(t) => Some(cx.drift(schema::param::DRIFT, t.plus, t.relative)),
         None => cx.drift_of(name, &m.value),
     };
     Ok(Excitation {

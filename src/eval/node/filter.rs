@@ -5,6 +5,7 @@ use super::{Cx, Run};
 use crate::eval::fault::FaultKind;
 use crate::eval::lanes::{Column, LaneRun, Tag};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed;
 use crate::physics::filter::Response;
 
@@ -18,7 +19,7 @@ pub(super) fn lower(m: &typed::Filter, cx: &mut Cx<'_>) -> Result<Filter, EvalEr
     let series = match m.response {
         Response::Rc => {
             m.r.as_ref()
-                .map(|r| cx.measure("r", SourceKind::Tolerance, r))
+                .map(|r| cx.measure(schema::param::R, SourceKind::Tolerance, r))
         }
         // An active filter's input is its buffer's.
         Response::Butterworth | Response::Bessel => None,

@@ -4,6 +4,7 @@
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed;
 use crate::physics::semiconductor;
 
@@ -16,9 +17,9 @@ pub struct IcCurrent {
 }
 
 pub(super) fn lower(m: &typed::IcCurrent, cx: &mut Cx<'_>) -> Result<IcCurrent, EvalError> {
-    let slope = cx.measure("slope", SourceKind::Tolerance, &m.slope);
+    let slope = cx.measure(schema::param::SLOPE, SourceKind::Tolerance, &m.slope);
     if let Some(t) = &m.accuracy {
-        cx.stated_error("accuracy", t);
+        cx.stated_error(schema::param::ACCURACY, t);
     }
     Ok(IcCurrent {
         slope,

@@ -3,6 +3,7 @@
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed;
 use crate::physics::semiconductor;
 use crate::units::ZERO_CELSIUS_K;
@@ -21,14 +22,14 @@ pub struct IcVoltage {
 }
 
 pub(super) fn lower(m: &typed::IcVoltage, cx: &mut Cx<'_>) -> Result<IcVoltage, EvalError> {
-    let slope = cx.measure("slope", SourceKind::Tolerance, &m.slope);
-    let v0 = cx.measure("output", SourceKind::Tolerance, &m.output);
+    let slope = cx.measure(schema::param::SLOPE, SourceKind::Tolerance, &m.slope);
+    let v0 = cx.measure(schema::param::OUTPUT, SourceKind::Tolerance, &m.output);
     let rout = m
         .output_resistance
         .as_ref()
-        .map(|r| cx.measure("output_resistance", SourceKind::Tolerance, r));
+        .map(|r| cx.measure(schema::param::OUTPUT_RESISTANCE, SourceKind::Tolerance, r));
     if let Some(t) = &m.accuracy {
-        cx.stated_error("accuracy", t);
+        cx.stated_error(schema::param::ACCURACY, t);
     }
     Ok(IcVoltage {
         slope,

@@ -209,7 +209,17 @@ impl Plan {
                 Node::Adc(n) => n.faulted(&run, None),
                 Node::IcVoltage(n) => n.behind(&run),
                 Node::IcCurrent(n) => n.behind(&run),
-                _ => self
+                Node::Excitation(_)
+                | Node::Rtd(_)
+                | Node::Thermocouple(_)
+                | Node::Thermistor(_)
+                | Node::StrainGauge(_)
+                | Node::Transducer(_)
+                | Node::Resistor(_)
+                | Node::Bridge(_)
+                | Node::Amplifier(_)
+                | Node::Filter(_)
+                | Node::Convert(_) => self
                     .node(i, values, env, s, mode, None)
                     .map(Faulted::Signal),
             };
@@ -256,7 +266,19 @@ impl Plan {
         };
         match &self.nodes[i.index()] {
             Node::Adc(n) => n.faulted_own(&run, here),
-            _ => Err(run.numeric("not a converter")),
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => Err(run.numeric("not a converter")),
         }
     }
 
@@ -301,7 +323,19 @@ impl Plan {
                 Some(Signal::Source(v)) if v > 0.0 => Some(v),
                 _ => None,
             },
-            _ => None,
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         }
     }
 

@@ -4,6 +4,7 @@ use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed;
 
 #[derive(Clone, Debug, PartialEq)]
@@ -14,8 +15,8 @@ pub struct Resistor {
 }
 
 pub(super) fn lower(m: &typed::Resistor, cx: &mut Cx<'_>) -> Result<Resistor, EvalError> {
-    let r = cx.measure("r", SourceKind::Tolerance, &m.r);
-    let drift = cx.drift_of("r", &m.r);
+    let r = cx.measure(schema::param::R, SourceKind::Tolerance, &m.r);
+    let drift = cx.drift_of(schema::param::R, &m.r);
     Ok(Resistor {
         r,
         drift,

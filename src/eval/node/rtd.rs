@@ -6,6 +6,7 @@ use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed::{self, RtdCurveName};
 use crate::physics::rtd::{self, Wiring};
 use crate::units::ZERO_CELSIUS_K;
@@ -97,8 +98,8 @@ pub(super) fn lower(m: &typed::Rtd, cx: &mut Cx<'_>) -> Result<Rtd, EvalError> {
         (None, None) => return Err(cx.not_invertible("a custom curve needs `coefficients`")),
     };
     let r0 = match &m.r0 {
-        Some(r0) => cx.measure("r0", SourceKind::Tolerance, r0),
-        None => cx.exact("r0", default_r0),
+        Some(r0) => cx.measure(schema::param::R0, SourceKind::Tolerance, r0),
+        None => cx.exact(schema::param::R0, default_r0),
     };
     // A characterised probe's coefficients, each its own source: a
     // deviation of nominal 0 within its tolerance.
@@ -123,7 +124,7 @@ pub(super) fn lower(m: &typed::Rtd, cx: &mut Cx<'_>) -> Result<Rtd, EvalError> {
     let dissipation = m
         .dissipation
         .as_ref()
-        .map(|d| cx.measure("dissipation", SourceKind::Tolerance, d));
+        .map(|d| cx.measure(schema::param::DISSIPATION, SourceKind::Tolerance, d));
     let valid = m.class.map(|class| {
         let (lo, hi) = class.wire_wound_range_c();
         (lo + ZERO_CELSIUS_K, hi + ZERO_CELSIUS_K)
@@ -145,7 +146,7 @@ pub(super) fn lower(m: &typed::Rtd, cx: &mut Cx<'_>) -> Result<Rtd, EvalError> {
         )
     });
     if let Some(t) = &m.tolerance {
-        cx.stated_error("tolerance", t);
+        cx.stated_error(schema::param::TOLERANCE, t);
     }
     Ok(Rtd {
         curve,

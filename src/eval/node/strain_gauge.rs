@@ -3,6 +3,7 @@
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed::{self, GaugeSide};
 use crate::physics::strain;
 use crate::units::Dim;
@@ -20,8 +21,12 @@ pub(super) fn lower(m: &typed::StrainGauge, cx: &mut Cx<'_>) -> Result<StrainGau
     if cx.measurand.dim != Dim::NONE {
         return Err(cx.not_invertible("a strain gauge needs a `strain` measurand"));
     }
-    let r = cx.measure("r", SourceKind::Tolerance, &m.r);
-    let gauge_factor = cx.measure("gauge_factor", SourceKind::Tolerance, &m.gauge_factor);
+    let r = cx.measure(schema::param::R, SourceKind::Tolerance, &m.r);
+    let gauge_factor = cx.measure(
+        schema::param::GAUGE_FACTOR,
+        SourceKind::Tolerance,
+        &m.gauge_factor,
+    );
     // A gauge on the compression side sees the strain reversed.
     let sign = match m.side {
         GaugeSide::Tension => 1.0,

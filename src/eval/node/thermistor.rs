@@ -5,6 +5,7 @@ use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed::{self, ThermistorLaw};
 
 #[derive(Clone, Debug, PartialEq)]
@@ -24,10 +25,10 @@ pub enum ThermistorCurve {
 }
 
 pub(super) fn lower(m: &typed::Thermistor, cx: &mut Cx<'_>) -> Result<Thermistor, EvalError> {
-    let r25 = cx.measure("r25", SourceKind::Tolerance, &m.r25);
+    let r25 = cx.measure(schema::param::R25, SourceKind::Tolerance, &m.r25);
     let curve = match &m.law {
         ThermistorLaw::Beta(beta) => ThermistorCurve::Beta {
-            beta: cx.measure("beta", SourceKind::Tolerance, beta),
+            beta: cx.measure(schema::param::BETA, SourceKind::Tolerance, beta),
         },
         ThermistorLaw::SteinhartHart([a, b, c]) => ThermistorCurve::SteinhartHart {
             a: *a,
@@ -38,7 +39,7 @@ pub(super) fn lower(m: &typed::Thermistor, cx: &mut Cx<'_>) -> Result<Thermistor
     let dissipation = m
         .dissipation
         .as_ref()
-        .map(|d| cx.measure("dissipation", SourceKind::Tolerance, d));
+        .map(|d| cx.measure(schema::param::DISSIPATION, SourceKind::Tolerance, d));
     Ok(Thermistor {
         r25,
         curve,

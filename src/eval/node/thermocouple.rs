@@ -11,6 +11,7 @@ use crate::eval::plan::{
 };
 use crate::eval::run::within;
 use crate::eval::run::LANES;
+use crate::model::schema;
 use crate::model::typed::{self, ColdJunction};
 use crate::physics::thermocouple::{self, ThermocoupleType};
 use crate::units::ZERO_CELSIUS_K;
@@ -31,29 +32,36 @@ pub struct Thermocouple {
 
 pub(super) fn lower(m: &typed::Thermocouple, cx: &mut Cx<'_>) -> Result<Thermocouple, EvalError> {
     if let Some(c) = m.class {
-        let slot = cx.add("class", SourceKind::Sensor, 0.0, 1.0, 1.0, false);
+        let slot = cx.add(
+            schema::param::CLASS,
+            SourceKind::Sensor,
+            0.0,
+            1.0,
+            1.0,
+            false,
+        );
         cx.sense_error.class = Some((ClassTolerance::Thermocouple(m.ty, c), slot));
     }
     if let Some(t) = &m.tolerance {
-        cx.stated_error("tolerance", t);
+        cx.stated_error(schema::param::TOLERANCE, t);
     }
     match &m.cold_junction {
         Some(ColdJunction::Error(t)) => {
-            cx.cj_error = Some(cx.limit("cold_junction", SourceKind::ColdJunction, t));
+            cx.cj_error = Some(cx.limit(schema::COLD_JUNCTION, SourceKind::ColdJunction, t));
         }
         // The sensing stage is wired to the conversion's `cj` input.
         Some(ColdJunction::Stage(_)) | None => {}
     }
     let bias = m.bias_voltage.as_ref().map(|b| {
         (
-            cx.measure("bias_voltage", SourceKind::CommonMode, b),
-            cx.drift_of("bias_voltage", b),
+            cx.measure(schema::param::BIAS_VOLTAGE, SourceKind::CommonMode, b),
+            cx.drift_of(schema::param::BIAS_VOLTAGE, b),
         )
     });
     let bias_resistor = m
         .bias_resistor
         .as_ref()
-        .map(|r| cx.measure("bias_resistor", SourceKind::Tolerance, r));
+        .map(|r| cx.measure(schema::param::BIAS_RESISTOR, SourceKind::Tolerance, r));
     Ok(Thermocouple {
         ty: m.ty,
         senses: cx.senses,

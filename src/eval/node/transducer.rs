@@ -4,6 +4,7 @@
 use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::model::schema;
 use crate::model::typed;
 use crate::physics::transducer::{self, LinearityLine};
 
@@ -31,14 +32,14 @@ pub(super) fn lower(m: &typed::Transducer, cx: &mut Cx<'_>) -> Result<Transducer
     if m.full_scale == 0.0 {
         return Err(cx.not_invertible("the sensitivity is stated at zero load"));
     }
-    let sensitivity = cx.measure("sensitivity", SourceKind::Tolerance, &m.sensitivity);
+    let sensitivity = cx.measure(schema::SENSITIVITY, SourceKind::Tolerance, &m.sensitivity);
     let zero = m
         .zero
         .as_ref()
-        .map(|t| cx.limit("zero", SourceKind::Bound, t));
+        .map(|t| cx.limit(schema::param::ZERO, SourceKind::Bound, t));
     let r =
         m.r.as_ref()
-            .map(|r| cx.measure("r", SourceKind::Tolerance, r));
+            .map(|r| cx.measure(schema::param::R, SourceKind::Tolerance, r));
     let mut limit = |name: &str, kind: SourceKind, t: &Option<crate::model::value::Tolerance>| {
         t.as_ref().map(|t| cx.limit(name, kind, t))
     };
@@ -47,11 +48,19 @@ pub(super) fn lower(m: &typed::Transducer, cx: &mut Cx<'_>) -> Result<Transducer
         ratiometric: m.ratiometric(),
         full_scale: m.full_scale,
         zero,
-        nonlinearity: limit("nonlinearity", SourceKind::Nonlinearity, &m.nonlinearity),
+        nonlinearity: limit(
+            schema::param::NONLINEARITY,
+            SourceKind::Nonlinearity,
+            &m.nonlinearity,
+        ),
         linearity: m.linearity,
-        hysteresis: limit("hysteresis", SourceKind::Nonlinearity, &m.hysteresis),
-        zero_drift: limit("zero_drift", SourceKind::Drift, &m.zero_drift),
-        span_drift: limit("span_drift", SourceKind::Drift, &m.span_drift),
+        hysteresis: limit(
+            schema::param::HYSTERESIS,
+            SourceKind::Nonlinearity,
+            &m.hysteresis,
+        ),
+        zero_drift: limit(schema::param::ZERO_DRIFT, SourceKind::Drift, &m.zero_drift),
+        span_drift: limit(schema::param::SPAN_DRIFT, SourceKind::Drift, &m.span_drift),
         input: cx.inputs.input,
         r,
     })
