@@ -373,10 +373,12 @@ impl Plan {
     /// stage wired to its `ref` input, which every other stage on that
     /// node then sees at 0 V too (a ratiometric excitation goes with it).
     fn shorted_reference(&self, fault: &Fault) -> Option<NodeId> {
-        match (fault.kind, &self.nodes[fault.node.index()]) {
-            (FaultKind::ReferenceShorted, Node::Adc(adc)) => adc.reference,
-            _ => None,
-        }
+        let Node::Adc(adc) = &self.nodes[fault.node.index()] else {
+            return None;
+        };
+        (fault.kind == FaultKind::ReferenceShorted)
+            .then_some(adc.reference)
+            .flatten()
     }
 
     /// The main converter's exact code with `fault` present.

@@ -114,9 +114,16 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
         combine: cx.combine.take(),
     };
     // After INL: the order the parameters are listed.
-    adc.bias_slot = m
-        .bias
-        .map(|most| cx.add("bias", SourceKind::Bias, 0.0, most, most, false));
+    adc.bias_slot = m.bias.map(|most| {
+        cx.add(
+            schema::param::BIAS,
+            SourceKind::Bias,
+            0.0,
+            most,
+            most,
+            false,
+        )
+    });
     Ok(adc)
 }
 
