@@ -281,23 +281,12 @@ fn codes(c: &ChainReport, key: &str) -> Option<Plot> {
         .iter()
         .map(|f| Strip {
             label: format!("{} {}", f.stage, f.fault.replace('_', " ")),
-            spans: match f.codes {
-                None => Vec::new(),
-                Some(FaultCodes::Span(a, b)) => vec![(pct(a), pct(b))],
-                Some(FaultCodes::EitherEnd(a, b)) => vec![(pct(a), pct(a)), (pct(b), pct(b))],
-            },
+            // A summed channel's fault is judged on that channel's own
+            // code, which this axis (the sum's) does not show: its codes
+            // are named in the note, not drawn against the sum's window.
+            spans: strip_spans(f, &pct),
             hidden: f.hidden(),
-            note: match (f.codes, f.hidden()) {
-                (None, _) => f.verdict.to_string(),
-                (Some(codes), hidden) => {
-                    let codes = codes.words();
-                    if hidden {
-                        format!("{codes}, {}", f.verdict)
-                    } else {
-                        codes
-                    }
-                }
-            },
+            note: strip_note(f),
         })
         .collect();
     let title = "Each fault's codes against the valid code window".to_string();
@@ -315,6 +304,37 @@ fn codes(c: &ChainReport, key: &str) -> Option<Plot> {
         &rows,
     );
     Some(plot("codes", 0, title, svg))
+}
+
+/// Where a fault's codes lie on the sum's axis: nowhere for a summed
+/// channel's own code, which that axis does not show.
+fn strip_spans(
+    f: &crate::analysis::checklist::FaultRow,
+    pct: &dyn Fn(i64) -> f64,
+) -> Vec<(f64, f64)> {
+    match (f.codes, &f.channel) {
+        (None, _) | (Some(_), Some(_)) => Vec::new(),
+        (Some(FaultCodes::Span(a, b)), None) => vec![(pct(a), pct(b))],
+        (Some(FaultCodes::EitherEnd(a, b)), None) => vec![(pct(a), pct(a)), (pct(b), pct(b))],
+    }
+}
+
+/// What a fault's strip says beside it: its codes (on its channel's own
+/// code where it is a summed channel's), and its verdict when firmware
+/// cannot see it.
+fn strip_note(f: &crate::analysis::checklist::FaultRow) -> String {
+    let Some(codes) = f.codes else {
+        return f.verdict.to_string();
+    };
+    let codes = match &f.channel {
+        Some(channel) => format!("on {channel}: {}", codes.words()),
+        None => codes.words(),
+    };
+    if f.hidden() {
+        format!("{codes}, {}", f.verdict)
+    } else {
+        codes
+    }
 }
 
 /// Each limited node's reach over the range, as a share of its allowed
@@ -397,4 +417,37 @@ fn diagram(c: &ChainReport, key: &str) -> Plot {
     let title = format!("Block diagram of {}", c.name);
     let svg = super::diagram::render(&c.diagram, &format!("{key}-diagram"), &title);
     plot("diagram", 0, title, svg)
+}
+
+#[cfg(test)]
+mod strip_tests {
+    use super::*;
+    use crate::analysis::checklist::FaultRow;
+
+    fn row(channel: Option<&str>) -> FaultRow {
+        FaultRow {
+            stage: "leg_2".into(),
+            fault: "excitation_lead_open",
+            condition: "excitation lead open",
+            codes: Some(FaultCodes::Span(-1363, 1363)),
+            verdict: "detectable",
+            threshold: None,
+            channel: channel.map(str::to_string),
+            reason: None,
+            action: String::new(),
+        }
+    }
+
+    /// A summed channel's own codes are named, not drawn on the sum's axis.
+    #[test]
+    fn a_channels_codes_are_not_drawn_on_the_sums_axis() {
+        let pct = |code: i64| code as f64 / 100.0;
+        assert!(strip_spans(&row(Some("leg_2_in")), &pct).is_empty());
+        assert_eq!(
+            strip_note(&row(Some("leg_2_in"))),
+            "on leg_2_in: -1363 .. 1363"
+        );
+        assert_eq!(strip_spans(&row(None), &pct), vec![(-13.63, 13.63)]);
+        assert_eq!(strip_note(&row(None)), "-1363 .. 1363");
+    }
 }
