@@ -166,3 +166,60 @@ fn the_section_order_and_the_caution() {
     assert!(at("### Faults and limits") < at("### Alarms and trips"));
     assert!(at("### Alarms and trips") < at("### Cautions"));
 }
+
+/// The fault names `FaultKind::name` gives, read from its source (the
+/// completion resistors' from their tables), so a kind added there is
+/// seen here.
+fn declared_fault_names() -> std::collections::BTreeSet<String> {
+    let source = std::fs::read_to_string(root().join("src/eval/fault.rs")).expect("fault.rs");
+    let body = source
+        .split("pub fn name(self)")
+        .nth(1)
+        .and_then(|s| s.split("pub fn describe").next())
+        .expect("FaultKind::name");
+    let mut names: std::collections::BTreeSet<String> = body
+        .lines()
+        .filter_map(|l| l.split("=> \"").nth(1))
+        .filter_map(|l| l.split('"').next())
+        .map(str::to_string)
+        .collect();
+    for table in ["COMPLETION_OPEN: [&str; 3]", "COMPLETION_SHORT: [&str; 3]"] {
+        let rows = source.split(table).nth(1).expect("a completion table");
+        let rows = rows.split("];").next().expect("its end");
+        names.extend(rows.split('"').skip(1).step_by(2).map(str::to_string));
+    }
+    names
+}
+
+/// Every fault a stage kind declares shows on the checklist of a demo or
+/// of a fault fixture, so each has a row a reviewer has seen rendered.
+#[test]
+fn every_declared_fault_is_on_some_checklist() {
+    let declared = declared_fault_names();
+    assert!(declared.len() >= 25, "{declared:?}");
+    let mut specs: Vec<String> = Vec::new();
+    for dir in ["specs", "tests/fixtures/faults"] {
+        let mut found: Vec<String> = std::fs::read_dir(root().join(dir))
+            .expect("a folder")
+            .filter_map(|e| e.ok()?.file_name().into_string().ok())
+            .filter(|n| n.ends_with(".catena"))
+            .map(|n| format!("{dir}/{n}"))
+            .collect();
+        found.sort();
+        specs.extend(found);
+    }
+    let mut seen = std::collections::BTreeSet::new();
+    for spec in &specs {
+        let run = catena(&root(), &["checklist", spec, "--format", "json"], None);
+        let Ok(list) = serde_json::from_str::<Value>(&run.stdout) else {
+            continue;
+        };
+        for chain in list["chains"].as_array().into_iter().flatten() {
+            for f in chain["faults"].as_array().into_iter().flatten() {
+                seen.insert(f["fault"].as_str().unwrap_or_default().to_string());
+            }
+        }
+    }
+    let missing: Vec<&String> = declared.difference(&seen).collect();
+    assert!(missing.is_empty(), "no checklist shows {missing:?}");
+}
