@@ -537,11 +537,6 @@ const NAME_ALLOWED: &[(&str, &str, &str)] = &[
     ),
     ("src/syntax/ast.rs", "sensor", "the `sensor` stage keyword"),
     (
-        "src/emit/report/diagram.rs",
-        "sensor",
-        "the `sensor` stage keyword",
-    ),
-    (
         "src/emit/export/mod.rs",
         "cold_junction",
         "an exported curve's name",

@@ -7,6 +7,7 @@ use std::fmt::Write;
 
 use super::model::{Diagram, DiagramEdge, DiagramNode};
 use super::svg::{escape, open, PALETTE};
+use crate::syntax::ast::StageKind;
 
 const BOX_W: f64 = 128.0;
 const BOX_H: f64 = 46.0;
@@ -334,15 +335,17 @@ fn r(x: f64) -> String {
     crate::units::format::trimmed((x * 100.0).round() / 100.0, 12)
 }
 
-fn kind_index(kind: &str) -> usize {
+/// A stage kind's colour in the palette, by the keyword the report model
+/// carries (a conversion shares the amplifier's).
+fn kind_index(keyword: &str) -> usize {
+    let kind = StageKind::ALL.into_iter().find(|k| k.keyword() == keyword);
     match kind {
-        "excitation" => 4,
-        "sensor" => 1,
-        "bridge" => 3,
-        "amplifier" => 0,
-        "filter" => 2,
-        "adc" => 5,
-        _ => 0,
+        Some(StageKind::Excitation) => 4,
+        Some(StageKind::Sensor) => 1,
+        Some(StageKind::Bridge) => 3,
+        Some(StageKind::Amplifier | StageKind::Convert) | None => 0,
+        Some(StageKind::Filter) => 2,
+        Some(StageKind::Adc) => 5,
     }
 }
 
