@@ -99,7 +99,9 @@ impl Dynamics {
     }
 }
 
-pub fn dynamics(plan: &Plan) -> Dynamics {
+/// What the signal path states of its timing: the first low-pass filter,
+/// the converter's rate and its notch.
+fn path_timing(plan: &Plan) -> (Option<LowPass>, Option<f64>, Option<f64>) {
     let path = signal_path(plan, plan.adc);
     let mut filter = None;
     let mut rate_hz = None;
@@ -126,6 +128,11 @@ pub fn dynamics(plan: &Plan) -> Dynamics {
             | Node::Convert(_) => {}
         }
     }
+    (filter, rate_hz, notch_hz)
+}
+
+pub fn dynamics(plan: &Plan) -> Dynamics {
+    let (filter, rate_hz, notch_hz) = path_timing(plan);
     // The sensing element: the measurand's sensor on the path (a series
     // string's element is driven by the excitation, so look at all
     // measurand sensors and take the slowest).

@@ -470,23 +470,21 @@ fn mixed_quantities(
 /// allowance of our own).
 pub const SHARE_TOLERANCE: f64 = 1e-3;
 
-/// M270: the cells a sum adds carry shares of the measurand that do not
-/// add up to all of it (within [`SHARE_TOLERANCE`]). A cell that states
-/// no share carries all of it.
-fn shares_not_whole(
-    file: &Arc<SourceFile>,
+/// Each load cell upstream of a sum's members with its stated share;
+/// None when anything upstream is not a transducer (the check is for
+/// cells alone).
+fn cell_shares(
     stages: &[Stage],
     connections: &[Connection],
-    convert: &Stage,
     members: &[usize],
-) -> Option<Finding> {
+) -> Option<Vec<(usize, Option<f64>)>> {
     let mut cells: Vec<usize> = members
         .iter()
         .flat_map(|&m| sensors_upstream(stages, connections, m))
         .collect();
     cells.sort_unstable();
     cells.dedup();
-    let shares = cells
+    cells
         .iter()
         .map(|&c| match &stages[c].typed {
             Some(StageModel::Transducer(t)) => Some((c, t.share)),
@@ -507,7 +505,20 @@ fn shares_not_whole(
             )
             | None => None,
         })
-        .collect::<Option<Vec<_>>>()?;
+        .collect()
+}
+
+/// M270: the cells a sum adds carry shares of the measurand that do not
+/// add up to all of it (within [`SHARE_TOLERANCE`]). A cell that states
+/// no share carries all of it.
+fn shares_not_whole(
+    file: &Arc<SourceFile>,
+    stages: &[Stage],
+    connections: &[Connection],
+    convert: &Stage,
+    members: &[usize],
+) -> Option<Finding> {
+    let shares = cell_shares(stages, connections, members)?;
     let total: f64 = shares.iter().map(|(_, s)| s.unwrap_or(1.0)).sum();
     if (total - 1.0).abs() <= SHARE_TOLERANCE {
         return None;
