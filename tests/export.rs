@@ -697,3 +697,45 @@ fn the_revision_is_named_in_a_repository() {
     );
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// `-o DIR/` creates the folder and names the files after the spec, as
+/// `catena report` and `catena checklist` do; a file in a missing folder
+/// is refused, naming the folder, and nothing is written.
+#[test]
+fn a_new_folder_is_made_on_request_and_a_missing_one_refused() {
+    let dir = scratch("folders");
+    let new = dir.join("fw/");
+    let run = export(&[
+        "export",
+        "specs/cold_store.catena",
+        "--lang",
+        "c",
+        "-o",
+        &new.to_string_lossy(),
+    ]);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    for name in ["cold_store.h", "cold_store.c"] {
+        assert!(
+            new.join(name).is_file(),
+            "{name} written into the new folder"
+        );
+    }
+    let missing = dir.join("nowhere/out.rs");
+    for command in [
+        vec!["export", "specs/cold_store.catena", "--lang", "rust", "-o"],
+        vec!["checklist", "specs/cold_store.catena", "-o"],
+        vec!["report", "specs/cold_store.catena", "-o"],
+    ] {
+        let mut args = command.clone();
+        let path = missing.to_string_lossy();
+        args.push(&path);
+        let run = export(&args);
+        assert_eq!(run.status, 2, "{command:?}: {}", run.stderr);
+        assert!(
+            run.stderr.contains("the folder") && run.stderr.contains("does not exist"),
+            "{command:?}: {}",
+            run.stderr
+        );
+        assert!(!dir.join("nowhere").exists(), "{command:?} made the folder");
+    }
+}

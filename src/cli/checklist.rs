@@ -8,11 +8,11 @@
 
 use std::borrow::Cow;
 use std::fmt::Write as _;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use clap::{Args, ValueEnum};
 
-use super::files::check_one;
+use super::files::{check_one, destination, Destination};
 use super::report::{about_faults, chain_checklist, judged_faults, warnings};
 use super::settings;
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
@@ -22,7 +22,7 @@ use crate::analysis::{CheckOptions, Keep};
 use crate::diagnostics::{render_human, Severity};
 use crate::emit::report::fmt::{position, share, si, value};
 use crate::model::Chain;
-use crate::units::format::trimmed;
+use crate::units::format::{codes, trimmed};
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum ListFormat {
@@ -49,15 +49,13 @@ pub struct ChecklistArgs {
 const SCHEMA_VERSION: u32 = 3;
 
 pub fn run(args: ChecklistArgs) -> u8 {
-    if let Some(out) = &args.output {
-        if out.extension().is_some_and(|e| e == "catena") {
-            errln!(
-                "catena: refusing to write the checklist over a spec: {}",
-                out.display()
-            );
+    let place = match args.output.as_deref().map(|out| place(out, &args)) {
+        Some(Err(e)) => {
+            errln!("catena: {e}");
             return EXIT_USAGE;
         }
-    }
+        other => other.and_then(Result::ok),
+    };
     let (checked, config) = match check_one(&args.spec, Keep::Plans) {
         Ok(c) => c,
         Err(status) => return status,
@@ -111,8 +109,10 @@ pub fn run(args: ChecklistArgs) -> u8 {
             ends_with_newline(lists.iter().map(markdown).collect::<Vec<_>>().join("\n"))
         }
     };
-    match &args.output {
-        Some(path) => match crate::emit::write_atomic(path, text.as_bytes()) {
+    match &place {
+        Some(place) => match place.prepare().and_then(|()| {
+            crate::emit::write_atomic(&place.file, text.as_bytes()).map_err(|e| e.to_string())
+        }) {
             Ok(()) => EXIT_OK,
             Err(e) => {
                 errln!("catena: {e}");
@@ -124,6 +124,25 @@ pub fn run(args: ChecklistArgs) -> u8 {
             EXIT_OK
         }
     }
+}
+
+/// Where `-o` puts the checklist: never over a spec; a folder takes the
+/// spec's name.
+fn place(out: &Path, args: &ChecklistArgs) -> Result<Destination, String> {
+    if out.extension().is_some_and(|e| e == "catena") {
+        return Err(format!(
+            "refusing to write the checklist over a spec: {}",
+            out.display()
+        ));
+    }
+    let stem = args.spec.file_stem().map_or("checklist".to_string(), |s| {
+        s.to_string_lossy().into_owned()
+    });
+    let ext = match args.format {
+        ListFormat::Json => "json",
+        ListFormat::Md => "md",
+    };
+    destination(out, &format!("{stem}-checklist"), ext)
 }
 
 /// A text file's last line ends with a newline, so what follows it on a
@@ -169,13 +188,13 @@ fn markdown(list: &Checklist) -> String {
     }
     let _ = writeln!(
         s,
-        "Valid code window: {} .. {} (converter codes {} .. {}; noise {}σ = {} codes).\n",
+        "Valid code window: {} .. {} (converter codes {} .. {}; noise {}σ = {}).\n",
         w.low,
         w.high,
         w.rails.0,
         w.rails.1,
         trimmed(w.k, 1),
-        trimmed(w.k * w.noise_sigma_codes, 2)
+        codes(trimmed(w.k * w.noise_sigma_codes, 2))
     );
     if let Some(each) = w.channel_windows() {
         let _ = writeln!(s, "{each}\n");

@@ -6,7 +6,7 @@ use std::process::Command;
 
 use clap::{Args, ValueEnum};
 
-use super::files::check_one;
+use super::files::{check_one, destination, Destination};
 use super::{terminal, EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::eval_finding;
 use crate::diagnostics::{backticked, render_human, unknown_word, Findings};
@@ -37,7 +37,9 @@ pub struct ExportArgs {
     chain: Option<String>,
     /// Where to write. For C, required: the header's path, the source
     /// written beside it with `.c` (`-o fw/cold_store` writes
-    /// `fw/cold_store.h` and `fw/cold_store.c`). Otherwise standard output.
+    /// `fw/cold_store.h` and `fw/cold_store.c`). A folder (`-o fw/`,
+    /// created if missing) takes files named after the spec. Otherwise
+    /// standard output.
     #[arg(short, long)]
     output: Option<PathBuf>,
 }
@@ -100,8 +102,15 @@ fn export_chain(
     })
 }
 
-/// Where each file goes: (header or only file, source for C).
-type Outputs = Option<(PathBuf, Option<PathBuf>)>;
+/// Where each file goes: the header or only file, the source for C, and
+/// the folder they go into (created if `-o` named a new one).
+struct Files {
+    first: PathBuf,
+    second: Option<PathBuf>,
+    place: Destination,
+}
+
+type Outputs = Option<Files>;
 
 fn outputs(args: &ExportArgs) -> Result<Outputs, String> {
     let Some(path) = &args.output else {
@@ -111,6 +120,17 @@ fn outputs(args: &ExportArgs) -> Result<Outputs, String> {
         return Ok(None);
     };
     refuse_spec(path, &args.spec)?;
+    let spec_stem = args
+        .spec
+        .file_stem()
+        .map_or("export".to_string(), |s| s.to_string_lossy().into_owned());
+    let ext = match args.lang {
+        Lang::C => "h",
+        Lang::Rust => "rs",
+        Lang::Json => "json",
+    };
+    let place = destination(path, &spec_stem, ext)?;
+    let path = &place.file;
     let (first, second) = match args.lang {
         Lang::C => {
             let stem = match path.extension().and_then(|e| e.to_str()) {
@@ -125,7 +145,11 @@ fn outputs(args: &ExportArgs) -> Result<Outputs, String> {
     for p in std::iter::once(&first).chain(second.as_ref()) {
         refuse_spec(p, &args.spec)?;
     }
-    Ok(Some((first, second)))
+    Ok(Some(Files {
+        first,
+        second,
+        place,
+    }))
 }
 
 /// A spec is never overwritten by an export: not the one exported, nor
@@ -146,7 +170,14 @@ fn refuse_spec(path: &Path, spec: &Path) -> Result<(), String> {
 
 fn write(export: &Export, lang: Lang, outputs: &Outputs) -> u8 {
     let files: Vec<(Option<&PathBuf>, String)> = match (lang, outputs) {
-        (Lang::C, Some((header, Some(source)))) => {
+        (
+            Lang::C,
+            Some(Files {
+                first: header,
+                second: Some(source),
+                ..
+            }),
+        ) => {
             let name = header
                 .file_name()
                 .map(|n| n.to_string_lossy().to_string())
@@ -154,9 +185,13 @@ fn write(export: &Export, lang: Lang, outputs: &Outputs) -> u8 {
             let (h, s) = render_c(export, &name);
             vec![(Some(header), h), (Some(source), s)]
         }
-        (Lang::Rust, o) => vec![(o.as_ref().map(|o| &o.0), render_rust(export))],
-        (_, o) => vec![(o.as_ref().map(|o| &o.0), render_json(export))],
+        (Lang::Rust, o) => vec![(o.as_ref().map(|o| &o.first), render_rust(export))],
+        (_, o) => vec![(o.as_ref().map(|o| &o.first), render_json(export))],
     };
+    if let Some(Err(e)) = outputs.as_ref().map(|o| o.place.prepare()) {
+        errln!("catena: {e}");
+        return EXIT_USAGE;
+    }
     // A header and a source are replaced together or not at all: what
     // would refuse one is found before either is written.
     for path in files.iter().filter_map(|f| f.0) {

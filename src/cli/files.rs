@@ -226,3 +226,88 @@ pub fn check_configured(
     checked.findings = findings;
     (checked, config)
 }
+
+/// Where a command writes its file given `-o PATH`: a folder (one that
+/// exists, or a path ending in `/`, created if missing) takes `stem.ext`
+/// inside it; any other path is the file itself, in a folder that must
+/// exist, so a mistyped folder is refused rather than created.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Destination {
+    pub file: PathBuf,
+    pub folder: PathBuf,
+    /// The folder is to be created before writing.
+    pub create: bool,
+}
+
+pub fn destination(output: &Path, stem: &str, ext: &str) -> Result<Destination, String> {
+    if output.is_dir() || output.to_string_lossy().ends_with('/') {
+        return Ok(Destination {
+            file: output.join(format!("{stem}.{ext}")),
+            folder: output.to_path_buf(),
+            create: !output.is_dir(),
+        });
+    }
+    let folder = output
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    if !folder.is_dir() {
+        return Err(format!(
+            "cannot write `{}`: the folder `{}` does not exist (end the path with `/` to write into a new folder)",
+            output.display(),
+            folder.display()
+        ));
+    }
+    Ok(Destination {
+        file: output.to_path_buf(),
+        folder: folder.to_path_buf(),
+        create: false,
+    })
+}
+
+impl Destination {
+    /// Creates the folder if it is to be created.
+    pub fn prepare(&self) -> Result<(), String> {
+        if self.create {
+            std::fs::create_dir_all(&self.folder).map_err(|e| {
+                format!(
+                    "cannot create `{}`: {}",
+                    self.folder.display(),
+                    plain_io(&e)
+                )
+            })?;
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod destination_tests {
+    use super::*;
+
+    #[test]
+    fn a_trailing_slash_names_a_folder_to_create() {
+        let d = destination(Path::new("no_such_folder_here/"), "cold_store", "h").unwrap();
+        assert_eq!(d.file, Path::new("no_such_folder_here/cold_store.h"));
+        assert!(d.create);
+    }
+
+    #[test]
+    fn a_file_in_a_missing_folder_is_refused() {
+        let e = destination(Path::new("no_such_folder_here/x.h"), "s", "h").unwrap_err();
+        assert!(
+            e.contains("the folder `no_such_folder_here` does not exist"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn a_file_in_the_current_folder_is_itself() {
+        let d = destination(Path::new("x.md"), "s", "md").unwrap();
+        assert_eq!(
+            (d.file.as_path(), d.folder.as_path()),
+            (Path::new("x.md"), Path::new("."))
+        );
+        assert!(!d.create);
+    }
+}

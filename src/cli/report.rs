@@ -98,19 +98,9 @@ fn deliver(report: &Report, format: ReportFormat, output: Option<&Path>) -> Resu
         out!("{}", rendered.text);
         return Ok(());
     };
-    let (file, folder) = if output.is_dir() || output.to_string_lossy().ends_with('/') {
-        std::fs::create_dir_all(output).map_err(|e| format!("{}: {e}", output.display()))?;
-        (
-            output.join(format!("{stem}.{}", format.extension())),
-            output.to_path_buf(),
-        )
-    } else {
-        let parent = output
-            .parent()
-            .filter(|p| !p.as_os_str().is_empty())
-            .unwrap_or(Path::new("."));
-        (output.to_path_buf(), parent.to_path_buf())
-    };
+    let place = super::files::destination(output, &stem, format.extension())?;
+    place.prepare()?;
+    let (file, folder) = (place.file, place.folder);
     let plot_stem = file
         .file_stem()
         .map_or(stem.clone(), |s| s.to_string_lossy().into_owned());
