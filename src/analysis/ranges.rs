@@ -61,7 +61,7 @@ impl Limit {
             Limit::AmplifierInput => "input common mode",
             Limit::AmplifierOutput => "output",
             Limit::ConverterInput => "input",
-            Limit::Compliance => "voltage across its load",
+            Limit::Compliance => "load voltage",
             Limit::CurrentLimit => "load current",
             Limit::MaxCurrent => "current",
             Limit::ConverterReference => "reference",

@@ -10,7 +10,7 @@ use crate::analysis::validation::GumCheck;
 use crate::emit::report::fmt::cancel_note;
 use crate::eval::NodeId;
 use crate::model::{Chain, RequirementKind};
-use crate::units::format::{attenuation_db, from_si, significant, trimmed};
+use crate::units::format::{attenuation_db, codes, from_si, significant, trimmed};
 
 /// JCGM 101:2008 §7.2.2 asks for M of at least 10⁴/(1 − p) trials for a
 /// coverage interval of probability p: 200 000 at 95 % (recalled from
@@ -156,7 +156,7 @@ fn signal_path(a: &Analysis, unit: &str, f: f64, v: &dyn Fn(f64) -> String) -> S
             crate::units::format::with_prefix(n.value, n.unit, 5)
         };
         let gain = if n.unit == "code" {
-            format!("{} codes", significant(n.gain / f, 4))
+            codes(significant(n.gain / f, 4))
         } else {
             crate::units::format::with_prefix(n.gain / f, n.unit, 4)
         };

@@ -66,6 +66,16 @@ pub fn trimmed(value: f64, digits: usize) -> String {
     }
 }
 
+/// A number of converter codes as written text: "1 code", "2.1 codes".
+pub fn codes(number: String) -> String {
+    let noun = if number == "1" || number == "-1" {
+        "code"
+    } else {
+        "codes"
+    };
+    format!("{number} {noun}")
+}
+
 /// Beyond this an attenuation in dB means nothing to a reader: an ideal
 /// notch attenuates without bound.
 const ATTENUATION_SHOWN_DB: f64 = 200.0;
@@ -100,7 +110,15 @@ pub fn to_si(value: f64, unit: &str) -> f64 {
 
 #[cfg(test)]
 mod tests {
-    use super::{attenuation_db, from_si, significant, trimmed, with_prefix};
+    use super::{attenuation_db, codes, from_si, significant, trimmed, with_prefix};
+
+    #[test]
+    fn one_code_is_singular() {
+        assert_eq!(codes(trimmed(1.0, 2)), "1 code");
+        assert_eq!(codes(trimmed(0.996, 2)), "1 code");
+        assert_eq!(codes(trimmed(2.1, 2)), "2.1 codes");
+        assert_eq!(codes("0".into()), "0 codes");
+    }
 
     /// The budget and the report write an attenuation alike.
     #[test]

@@ -21,7 +21,7 @@ pub use model::{
 pub use rust::render as render_rust;
 
 use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
-use crate::units::format::trimmed;
+use crate::units::format::{codes, trimmed};
 
 /// Everything one run exports: the chains of one spec.
 #[derive(Clone, Debug, PartialEq)]
@@ -184,7 +184,7 @@ pub fn constants(chain: &ChainExport) -> Vec<Constant> {
     let diff = chain.difference_unit.as_str();
     let w = &chain.window;
     let mut out = vec![
-        constant("CODE_MIN", format!("lowest code the healthy chain gives: over the measurand range, the ambient range and every tolerance at its limits, less {} sigma of one conversion's noise (sigma = {} codes); below it, the chain is faulty", trimmed(w.k, 3), significant(w.sigma_codes)), "code", Value::Code(w.low)),
+        constant("CODE_MIN", format!("lowest code the healthy chain gives: over the measurand range, the ambient range and every tolerance at its limits, less {} sigma of one conversion's noise (sigma = {}); below it, the chain is faulty", trimmed(w.k, 3), codes(significant(w.sigma_codes))), "code", Value::Code(w.low)),
         constant("CODE_MAX", format!("highest code the healthy chain gives, as CODE_MIN with {} sigma added; above it, the chain is faulty", trimmed(w.k, 3)), "code", Value::Code(w.high)),
         constant("RANGE_LOW", format!("low end of the measurand range ({})", chain.quantity), unit, Value::Real(chain.range.0)),
         constant("RANGE_HIGH", format!("high end of the measurand range ({})", chain.quantity), unit, Value::Real(chain.range.1)),
@@ -411,7 +411,7 @@ fn channel_window_constants(chain: &ChainExport) -> Vec<Constant> {
     for ch in &chain.window.channels {
         let w = &ch.window;
         let name = ch.name.to_uppercase();
-        out.push(constant(&format!("CODE_MIN_{name}"), format!("lowest code channel `{}` gives on its own, before the channels are added: over the measurand range, the ambient range and every tolerance at its limits, less {} sigma of its noise (sigma = {} codes); below it, that channel is faulty", ch.name, trimmed(w.k, 3), significant(w.sigma_codes)), "code", Value::Code(w.low)));
+        out.push(constant(&format!("CODE_MIN_{name}"), format!("lowest code channel `{}` gives on its own, before the channels are added: over the measurand range, the ambient range and every tolerance at its limits, less {} sigma of its noise (sigma = {}); below it, that channel is faulty", ch.name, trimmed(w.k, 3), codes(significant(w.sigma_codes))), "code", Value::Code(w.low)));
         out.push(constant(&format!("CODE_MAX_{name}"), format!("highest code channel `{}` gives on its own, as CODE_MIN_{name} with {} sigma added; above it, that channel is faulty", ch.name, trimmed(w.k, 3)), "code", Value::Code(w.high)));
     }
     out

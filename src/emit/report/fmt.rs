@@ -1,6 +1,6 @@
 //! Numbers for the report, formatted in one place for every renderer.
 
-use crate::units::format::{trimmed, with_prefix};
+use crate::units::format::{codes, trimmed, with_prefix};
 
 /// Significant digits of an error or a margin.
 const DIGITS: usize = 3;
@@ -22,7 +22,7 @@ pub fn si(x: f64, unit: &str) -> String {
         "" => trimmed(x, 4),
         // A share of a converter's full scale.
         "1" => format!("{} % FS", trimmed(x * 100.0, 4)),
-        "code" => format!("{} codes", trimmed(x.round(), 12)),
+        "code" => codes(trimmed(x.round(), 12)),
         "ohm" => with_prefix(x, "Ω", 4),
         _ => with_prefix(x, unit, 4),
     }

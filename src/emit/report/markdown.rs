@@ -7,7 +7,7 @@ use std::fmt::Write;
 use super::fmt::{method, plain, position, share, si, value};
 use super::model::{ChainReport, Checklist, Report};
 use crate::analysis::checklist::{LimitStatus, ReviewKind};
-use crate::units::format::attenuation_db;
+use crate::units::format::{attenuation_db, codes};
 
 /// A plot file beside the Markdown: its id (`error`, `contributors`,
 /// `headroom`, `path`, `step`, `frequency`, `diagram`, `codes`), title and
@@ -534,13 +534,13 @@ fn faults(out: &mut String, list: &Checklist, links: &[PlotLink]) {
     let w = &list.window;
     let _ = writeln!(
         out,
-        "The healthy chain's codes lie in {} .. {} (of {} .. {}, noise {}σ = {} codes included); a fault is detectable when all its codes lie outside that window.\n",
+        "The healthy chain's codes lie in {} .. {} (of {} .. {}, noise {}σ = {} included); a fault is detectable when all its codes lie outside that window.\n",
         w.low,
         w.high,
         w.rails.0,
         w.rails.1,
         plain(w.k),
-        plain(w.k * w.noise_sigma_codes)
+        codes(plain(w.k * w.noise_sigma_codes))
     );
     if let Some(each) = w.channel_windows() {
         let _ = writeln!(out, "{each}\n");
