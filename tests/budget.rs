@@ -720,3 +720,20 @@ fn envelopes_see_each_sources_own_value() {
         reach(1)
     );
 }
+
+/// A trip code past the converter's last code is never read: the budget
+/// names that end (here 2²³ − 1 of a 24-bit bipolar converter, the gain
+/// of 4 taking the 71.75 degC trip to about twice full scale), and says
+/// nothing of a trip code inside the codes (the cold store's).
+#[test]
+fn a_trip_code_beyond_the_last_code_is_marked() {
+    let json = budget("alarm_beyond_codes.catena", &[]);
+    let alarm = &json["alarms"][0];
+    let last = (1_i64 << 23) - 1;
+    assert!(alarm["trip_code"].as_i64().unwrap() > last, "{alarm}");
+    assert_eq!(alarm["trip_code_beyond"].as_i64(), Some(last), "{alarm}");
+    let cold = budget_in("specs", "cold_store.catena", &[]);
+    let alarm = &cold["alarms"][0];
+    assert!(alarm["trip_code"].as_i64().unwrap() < last, "{alarm}");
+    assert!(alarm.get("trip_code_beyond").is_none(), "{alarm}");
+}

@@ -22,6 +22,23 @@ pub struct AlarmLimit {
     /// unseen (k = the budget's coverage factor), and its code.
     pub trip_at: f64,
     pub trip_code: i64,
+    /// The codes the conversion can be handed (the converter's, or its
+    /// channels' sum or ratio): a trip code beyond them is never read.
+    pub rails: (i64, i64),
+}
+
+impl AlarmLimit {
+    /// The end of the converter's codes the trip code lies beyond, if it
+    /// does: a high alarm there never trips, a low one always does.
+    pub fn trip_beyond(&self) -> Option<i64> {
+        if self.trip_code > self.rails.1 {
+            Some(self.rails.1)
+        } else if self.trip_code < self.rails.0 {
+            Some(self.rails.0)
+        } else {
+            None
+        }
+    }
 }
 
 pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit>, EvalError> {
@@ -30,6 +47,7 @@ pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit
         return Ok(out);
     }
     let sources = budget::Perturbations::of(plan)?;
+    let rails = super::window::code_rails(plan)?;
     for alarm in &chain.alarms {
         let mut guard: f64 = 0.0;
         for &ambient in &budget::ambients(chain) {
@@ -60,6 +78,7 @@ pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit
             guard_band: guard,
             trip_at,
             trip_code: code_at(trip_at)?,
+            rails,
         });
     }
     Ok(out)

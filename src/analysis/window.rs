@@ -104,8 +104,7 @@ pub fn code_window_from(
             .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1))
     };
     let reach = add(|w| w.reach);
-    let rails = add(|w| (w.rails.0 as f64, w.rails.1 as f64));
-    let rails = (rails.0 as i64, rails.1 as i64);
+    let rails = code_rails(plan)?;
     // The sum's noise is the main converter's, which holds every
     // channel's path.
     Ok(CodeWindow {
@@ -166,6 +165,40 @@ fn ratio_window(chain: &Chain, plan: &Plan, adc: &Adc) -> Result<CodeWindow, Eva
         }
         reach = (reach.0.min(nominal + down), reach.1.max(nominal + up));
     }
+    Ok(window_of(reach, noise_codes(plan)?, ratio_rails(adc)))
+}
+
+/// The codes the chain's conversion can be handed at all: the
+/// converter's code range; for channels that add, the sum of theirs; for
+/// a ratio, the ratio's ([`ratio_rails`]).
+pub fn code_rails(plan: &Plan) -> Result<(i64, i64), EvalError> {
+    let adc_of = |n: NodeId| match &plan.nodes[n.index()] {
+        Node::Adc(adc) => Ok(adc),
+        _ => Err(numeric(plan, "no converter")),
+    };
+    let own = |adc: &Adc| {
+        code_range(adc.bits, adc.polarity)
+            .map_err(|_| numeric(plan, "the converter has no code range"))
+    };
+    let adc = adc_of(plan.adc)?;
+    match &adc.combine {
+        None => own(adc),
+        Some((CombineOp::Ratio, _)) => Ok(ratio_rails(adc)),
+        Some((CombineOp::Sum, others)) => {
+            let mut rails = own(adc)?;
+            for &n in others {
+                let (lo, hi) = own(adc_of(n)?)?;
+                rails = (rails.0 + lo, rails.1 + hi);
+            }
+            Ok(rails)
+        }
+    }
+}
+
+/// A ratio's code range: the numerator's codes over a denominator of at
+/// least one code, times the codes of full scale (both signs on a
+/// bipolar converter, whose denominator may be negative).
+fn ratio_rails(adc: &Adc) -> (i64, i64) {
     let (lo, hi) = adc.codes;
     let rails = match adc.polarity {
         Polarity::Unipolar => (lo * adc.per_ref, hi * adc.per_ref),
@@ -174,11 +207,7 @@ fn ratio_window(chain: &Chain, plan: &Plan, adc: &Adc) -> Result<CodeWindow, Eva
             (-most, most)
         }
     };
-    Ok(window_of(
-        reach,
-        noise_codes(plan)?,
-        (rails.0 as i64, rails.1 as i64),
-    ))
+    (rails.0 as i64, rails.1 as i64)
 }
 
 /// Converter `node`'s own window: its input's envelope in codes, widened

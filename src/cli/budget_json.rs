@@ -72,6 +72,9 @@ struct AlarmJson {
     guard_band: f64,
     trip_at: f64,
     trip_code: i64,
+    /// The converter's end code the trip code lies beyond, when it does.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    trip_code_beyond: Option<i64>,
 }
 
 #[derive(Serialize)]
@@ -271,6 +274,7 @@ fn alarms(a: &Analysis, m_unit: &str, f: f64) -> Vec<AlarmJson> {
             guard_band: x.guard_band * f,
             trip_at: from_si(x.trip_at, m_unit),
             trip_code: x.trip_code,
+            trip_code_beyond: x.trip_beyond(),
         })
         .collect()
 }

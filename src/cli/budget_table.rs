@@ -7,7 +7,7 @@ use crate::analysis::budget::Point;
 use crate::analysis::ranges::LimitUnit;
 use crate::analysis::report::Analysis;
 use crate::analysis::validation::GumCheck;
-use crate::emit::report::fmt::cancel_note;
+use crate::emit::report::fmt::{cancel_note, trip_code};
 use crate::eval::NodeId;
 use crate::model::{Chain, RequirementKind};
 use crate::units::format::{attenuation_db, codes, from_si, significant, trimmed};
@@ -295,7 +295,7 @@ fn alarms(a: &Analysis, unit: &str, m_unit: &str, v: &dyn Fn(f64) -> String) -> 
             x.code.to_string(),
             format!("± {} {unit}", v(x.guard_band)),
             format!("{} {m_unit}", trimmed(from_si(x.trip_at, m_unit), 6)),
-            x.trip_code.to_string(),
+            trip_code(x.trip_code, x.trip_beyond()),
         ]);
     }
     format!(

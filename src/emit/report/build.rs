@@ -107,6 +107,7 @@ pub fn chain_report(
                 guard_band: x.guard_band * units.f,
                 trip_at: units.position(x.trip_at),
                 trip_code: x.trip_code,
+                trip_code_beyond: x.trip_beyond(),
             })
             .collect(),
     }

@@ -28,6 +28,16 @@ pub fn si(x: f64, unit: &str) -> String {
     }
 }
 
+/// An alarm's trip code, marked when it lies beyond the converter's end
+/// code `beyond`, where the firmware never reads it.
+pub fn trip_code(code: i64, beyond: Option<i64>) -> String {
+    match beyond {
+        Some(end) if code > end => format!("{code} (beyond the last code, {end}: never read)"),
+        Some(end) => format!("{code} (below the first code, {end}: never read)"),
+        None => code.to_string(),
+    }
+}
+
 /// A share (0…1) as a percentage.
 pub fn share(x: f64) -> String {
     let p = x * 100.0;
@@ -85,6 +95,19 @@ pub fn cancel_note(stages: [&str; 2], source: &str, before: &str, after: &str) -
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_trip_code_beyond_either_end_is_marked() {
+        assert_eq!(trip_code(5, None), "5");
+        assert_eq!(
+            trip_code(9, Some(7)),
+            "9 (beyond the last code, 7: never read)"
+        );
+        assert_eq!(
+            trip_code(-9, Some(-8)),
+            "-9 (below the first code, -8: never read)"
+        );
+    }
 
     #[test]
     fn numbers_read_well() {

@@ -4,7 +4,7 @@
 
 use std::fmt::Write;
 
-use super::fmt::{method, plain, position, share, si, value};
+use super::fmt::{method, plain, position, share, si, trip_code, value};
 use super::model::{ChainReport, Checklist, Report};
 use crate::analysis::checklist::{LimitStatus, ReviewKind};
 use crate::units::format::{attenuation_db, codes};
@@ -632,7 +632,7 @@ fn alarms(out: &mut String, c: &ChainReport) {
             a.code,
             value(a.guard_band, &c.unit),
             position(a.trip_at, m),
-            a.trip_code,
+            trip_code(a.trip_code, a.trip_code_beyond),
             cell(&masked)
         );
     }

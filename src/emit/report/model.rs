@@ -369,4 +369,7 @@ pub struct AlarmRow {
     pub guard_band: f64,
     pub trip_at: f64,
     pub trip_code: i64,
+    /// The converter's end code the trip code lies beyond, when it does.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub trip_code_beyond: Option<i64>,
 }
