@@ -223,3 +223,33 @@ fn every_declared_fault_is_on_some_checklist() {
     let missing: Vec<&String> = declared.difference(&seen).collect();
     assert!(missing.is_empty(), "no checklist shows {missing:?}");
 }
+
+/// A ratio's window is in codes of the ratio: the checklist says what a
+/// ratio of one reads (2²³ for the bath's 24-bit bipolar converter) rather
+/// than the ratio's code range, and that each channel is checked before
+/// the division; a sum says it adds them.
+#[test]
+fn a_ratio_window_says_it_is_a_ratio() {
+    let list = checklist("tests/fixtures/channels/ratio_bath.catena");
+    let window = &list["chains"][0]["window"];
+    assert_eq!(window["ratio_of_one"].as_i64(), Some(1 << 23), "{window}");
+    let md = |spec: &str| {
+        let run = catena(&root(), &["checklist", spec], None);
+        assert_eq!(run.status, 0, "{}", run.stderr);
+        run.stdout
+    };
+    let ratio = md("tests/fixtures/channels/ratio_bath.catena");
+    assert!(
+        ratio.contains("codes of the ratio, 8388608 for a ratio of one"),
+        "{ratio}"
+    );
+    assert!(
+        ratio.contains("before dividing one by the other"),
+        "{ratio}"
+    );
+    let sum = md("tests/fixtures/channels/sum_cells.catena");
+    assert!(sum.contains("before adding them"), "{sum}");
+    assert!(sum.contains("codes of the sum"), "{sum}");
+    let summed = checklist("tests/fixtures/channels/sum_cells.catena");
+    assert!(summed["chains"][0]["window"].get("ratio_of_one").is_none());
+}

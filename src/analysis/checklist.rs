@@ -14,6 +14,7 @@ use serde::Serialize;
 use super::faults::{FaultCodes, FaultReport, Masking, Verdict};
 use super::ranges::Envelope;
 use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal, SlotId};
+use crate::model::typed::CombineOp;
 use crate::model::Chain;
 use crate::physics::rtd::{self, Wiring};
 use crate::units::format::{from_si, trimmed, with_prefix};
@@ -47,10 +48,14 @@ pub struct WindowRow {
     pub noise_sigma_codes: f64,
     /// The noise's coverage factor in the window.
     pub k: f64,
-    /// A conversion that adds channels: each channel's own window, which
-    /// firmware checks before adding.
+    /// A conversion that combines channels: each channel's own window,
+    /// which firmware checks before adding or dividing them.
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub channels: Vec<ChannelWindowRow>,
+    /// A conversion that takes a ratio of channels: the codes a ratio of
+    /// one reads (its codes are the ratio times this).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub ratio_of_one: Option<i64>,
 }
 
 impl WindowRow {
@@ -65,10 +70,28 @@ impl WindowRow {
             .iter()
             .map(|c| format!("`{}` {} .. {}", c.channel, c.low, c.high))
             .collect();
+        let how = if self.ratio_of_one.is_some() {
+            "dividing one by the other"
+        } else {
+            "adding them"
+        };
         Some(format!(
-            "The firmware checks each channel's own code before adding them; each channel's valid window: {}.",
+            "The firmware checks each channel's own code before {how}; each channel's valid window: {}.",
             each.join(", ")
         ))
+    }
+
+    /// What the window's codes are, with their range: the converter's
+    /// codes, or a ratio's (whose range, a numerator over a denominator of
+    /// one code, means nothing to a reader).
+    pub fn code_kind(&self) -> String {
+        match self.ratio_of_one {
+            Some(one) => format!("codes of the ratio, {one} for a ratio of one"),
+            None if !self.channels.is_empty() => {
+                format!("codes of the sum {} .. {}", self.rails.0, self.rails.1)
+            }
+            None => format!("converter codes {} .. {}", self.rails.0, self.rails.1),
+        }
     }
 }
 
@@ -182,6 +205,16 @@ pub struct Sources<'a> {
     pub warnings: &'a [String],
 }
 
+/// The codes a ratio of one reads, for a conversion that takes a ratio.
+fn ratio_of_one(plan: &Plan) -> Option<i64> {
+    match &plan.nodes[plan.adc.index()] {
+        Node::Adc(adc) if matches!(adc.combine, Some((CombineOp::Ratio, _))) => {
+            Some(adc.per_ref as i64)
+        }
+        _ => None,
+    }
+}
+
 /// The checklist of a chain.
 pub fn checklist(chain: &Chain, plan: &Plan, from: &Sources<'_>) -> Checklist {
     let w = &from.faults.window;
@@ -215,6 +248,7 @@ pub fn checklist(chain: &Chain, plan: &Plan, from: &Sources<'_>) -> Checklist {
                     noise_sigma_codes: c.window.sigma_codes,
                 })
                 .collect(),
+            ratio_of_one: ratio_of_one(plan),
         },
         faults: from.faults.faults.iter().map(fault_row).collect(),
         limits: from

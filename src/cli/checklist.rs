@@ -188,11 +188,10 @@ fn markdown(list: &Checklist) -> String {
     }
     let _ = writeln!(
         s,
-        "Valid code window: {} .. {} (converter codes {} .. {}; noise {}σ = {}).\n",
+        "Valid code window: {} .. {} ({}; noise {}σ = {}).\n",
         w.low,
         w.high,
-        w.rails.0,
-        w.rails.1,
+        w.code_kind(),
         trimmed(w.k, 1),
         codes(trimmed(w.k * w.noise_sigma_codes, 2))
     );

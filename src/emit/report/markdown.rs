@@ -534,11 +534,10 @@ fn faults(out: &mut String, list: &Checklist, links: &[PlotLink]) {
     let w = &list.window;
     let _ = writeln!(
         out,
-        "The healthy chain's codes lie in {} .. {} (of {} .. {}, noise {}σ = {} included); a fault is detectable when all its codes lie outside that window.\n",
+        "The healthy chain's codes lie in {} .. {} ({}, noise {}σ = {} included); a fault is detectable when all its codes lie outside that window.\n",
         w.low,
         w.high,
-        w.rails.0,
-        w.rails.1,
+        w.code_kind(),
         plain(w.k),
         codes(plain(w.k * w.noise_sigma_codes))
     );
