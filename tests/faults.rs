@@ -735,3 +735,37 @@ fn a_relaxed_limit_still_says_the_faults_were_not_judged() {
     assert_eq!(found, vec![("R674".to_string(), "warning".to_string())]);
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// Two channels of one converter share its reference: the bath's
+/// reference lost or shorted is one fault of `conv`, listed once (not again
+/// under the channel `rref_in`), and either way both channels read past
+/// full scale alike, so the ratio the firmware computes is one: 2²³ codes
+/// of the ratio on this 24-bit bipolar converter.
+#[test]
+fn a_shared_reference_fails_once_for_every_channel() {
+    let run = catena(
+        &root(),
+        &[
+            "checklist",
+            "tests/fixtures/channels/ratio_bath.catena",
+            "--format",
+            "json",
+        ],
+        None,
+    );
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let list = json(&run.stdout);
+    for fault in ["reference_lost", "reference_shorted"] {
+        assert_eq!(
+            codes(row(&list, "conv", fault)),
+            (1 << 23, 1 << 23),
+            "{fault}"
+        );
+        let again = list["chains"][0]["faults"]
+            .as_array()
+            .expect("fault rows")
+            .iter()
+            .any(|r| r["stage"] == "rref_in" && r["fault"] == fault);
+        assert!(!again, "{fault} listed under the channel too");
+    }
+}

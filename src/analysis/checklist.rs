@@ -207,12 +207,8 @@ pub struct Sources<'a> {
 
 /// The codes a ratio of one reads, for a conversion that takes a ratio.
 fn ratio_of_one(plan: &Plan) -> Option<i64> {
-    match &plan.nodes[plan.adc.index()] {
-        Node::Adc(adc) if matches!(adc.combine, Some((CombineOp::Ratio, _))) => {
-            Some(adc.per_ref as i64)
-        }
-        _ => None,
-    }
+    let adc = plan.nodes[plan.adc.index()].as_adc()?;
+    matches!(adc.combine, Some((CombineOp::Ratio, _))).then_some(adc.per_ref as i64)
 }
 
 /// The checklist of a chain.

@@ -172,9 +172,10 @@ fn ratio_window(chain: &Chain, plan: &Plan, adc: &Adc) -> Result<CodeWindow, Eva
 /// converter's code range; for channels that add, the sum of theirs; for
 /// a ratio, the ratio's ([`ratio_rails`]).
 pub fn code_rails(plan: &Plan) -> Result<(i64, i64), EvalError> {
-    let adc_of = |n: NodeId| match &plan.nodes[n.index()] {
-        Node::Adc(adc) => Ok(adc),
-        _ => Err(numeric(plan, "no converter")),
+    let adc_of = |n: NodeId| {
+        plan.nodes[n.index()]
+            .as_adc()
+            .ok_or_else(|| numeric(plan, "no converter"))
     };
     let own = |adc: &Adc| {
         code_range(adc.bits, adc.polarity)

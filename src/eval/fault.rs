@@ -410,9 +410,15 @@ impl Plan {
             ..Mode::FAULT
         };
         // The channels one conversion combines share their converter's
-        // reference: losing it leaves every one of them without it.
+        // reference: losing it, or shorting it, leaves every one of them
+        // without it.
         let shared = |i: NodeId| {
-            fault.kind == FaultKind::ReferenceLost && self.combined(i) && self.combined(fault.node)
+            matches!(
+                fault.kind,
+                FaultKind::ReferenceLost | FaultKind::ReferenceShorted
+            ) && self.combined(i)
+                && self.combined(fault.node)
+                && (self.is_channel(i) || self.is_channel(fault.node))
         };
         let here = |i: NodeId| (i == fault.node || shared(i)).then_some(fault);
         // A channel read before the main converter needs nothing after it.
@@ -456,6 +462,11 @@ impl Plan {
 
     /// Whether node `i` is a channel the main converter's conversion
     /// combines (`sum` or `ratio`; the main converter itself included).
+    /// Whether node `i` is a channel of another stage's converter.
+    fn is_channel(&self, i: NodeId) -> bool {
+        self.nodes[i.index()].as_adc().is_some_and(|adc| adc.channel)
+    }
+
     fn combined(&self, i: NodeId) -> bool {
         match &self.nodes[self.adc.index()] {
             Node::Adc(adc) => match &adc.combine {

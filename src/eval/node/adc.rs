@@ -39,6 +39,9 @@ pub struct Adc {
     pub bias_slot: Option<SlotId>,
     /// The other channels' codes a conversion combines with this one's.
     pub combine: Option<(CombineOp, Vec<NodeId>)>,
+    /// A channel of another stage's converter (`channel_of`): its
+    /// reference and the faults of it are that converter's.
+    pub channel: bool,
 }
 
 /// A converter's offset as it was stated: a voltage at its input, or a
@@ -112,6 +115,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
         bias: m.bias,
         bias_slot: None,
         combine: cx.combine.take(),
+        channel: cx.owner != cx.name,
     };
     // After INL: the order the parameters are listed.
     adc.bias_slot = m.bias.map(|most| {
@@ -140,6 +144,14 @@ pub(super) const FAULTS: &[FaultKind] = &[
     FaultKind::InputOpen,
 ];
 
+/// A channel's faults: its converter's reference is listed, and fails,
+/// with the converter, once for every channel of it.
+const CHANNEL_FAULTS: &[FaultKind] = &[
+    FaultKind::OverRange,
+    FaultKind::UnderRange,
+    FaultKind::InputOpen,
+];
+
 /// A converter's gain error or INL as a fraction of its full-scale span.
 /// Written in `LSB`, one code is 1/2^bits of the whole span (of both
 /// halves for a bipolar input): the converter's own definition of an LSB.
@@ -157,6 +169,15 @@ fn fraction_of_span(t: &Tolerance, bits: u32) -> Tolerance {
 }
 
 impl Adc {
+    /// The faults this converter or channel can have.
+    pub fn faults(&self) -> &'static [FaultKind] {
+        if self.channel {
+            CHANNEL_FAULTS
+        } else {
+            FAULTS
+        }
+    }
+
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let values = run.values;

@@ -99,7 +99,7 @@ impl Node {
             Node::Bridge(n) => n.faults(),
             Node::Amplifier(_) => amplifier::FAULTS,
             Node::Filter(_) => filter::FAULTS,
-            Node::Adc(_) => adc::FAULTS,
+            Node::Adc(n) => n.faults(),
             Node::Convert(_) => convert::FAULTS,
         }
     }
@@ -156,6 +156,26 @@ impl Node {
             | Node::Amplifier(_)
             | Node::Filter(_)
             | Node::Adc(_) => false,
+        }
+    }
+
+    /// The converter this node is, if it is one.
+    pub fn as_adc(&self) -> Option<&Adc> {
+        match self {
+            Node::Adc(n) => Some(n),
+            Node::Excitation(_)
+            | Node::Rtd(_)
+            | Node::Thermocouple(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Convert(_) => None,
         }
     }
 
