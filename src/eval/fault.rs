@@ -460,13 +460,15 @@ impl Plan {
         }
     }
 
-    /// Whether node `i` is a channel the main converter's conversion
-    /// combines (`sum` or `ratio`; the main converter itself included).
     /// Whether node `i` is a channel of another stage's converter.
     fn is_channel(&self, i: NodeId) -> bool {
-        self.nodes[i.index()].as_adc().is_some_and(|adc| adc.channel)
+        self.nodes[i.index()]
+            .as_adc()
+            .is_some_and(|adc| adc.channel)
     }
 
+    /// Whether node `i` is a channel the main converter's conversion
+    /// combines (`sum` or `ratio`; the main converter itself included).
     fn combined(&self, i: NodeId) -> bool {
         match &self.nodes[self.adc.index()] {
             Node::Adc(adc) => match &adc.combine {

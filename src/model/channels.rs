@@ -56,8 +56,8 @@ pub fn resolve(
                 findings.push(reference_on_channel(file, stages, ch, conv, c.span));
             }
         }
-        same_signal_twice(file, stages, connections, &channels, findings);
         let scan = super::scan::of(file, stages, conv, &channels, findings);
+        same_signal_twice(file, stages, connections, &channels, &scan, findings);
         complete(stages, conv, &channels, &scan);
     }
 }
@@ -169,12 +169,14 @@ fn reference_on_channel(
     ))
 }
 
-/// M262: one signal wired into two channels of one converter.
+/// M262: one signal wired into two channels of one converter. The help
+/// says what the second channel costs in the converter's scan.
 fn same_signal_twice(
     file: &Arc<SourceFile>,
     stages: &[Stage],
     connections: &[Connection],
     channels: &[usize],
+    scan: &Scan,
     findings: &mut Findings,
 ) {
     let input = |ch: usize| {
@@ -184,7 +186,7 @@ fn same_signal_twice(
     };
     for (k, &a) in channels.iter().enumerate() {
         let Some(first) = input(a) else { continue };
-        for &b in &channels[k + 1..] {
+        for (j, &b) in channels.iter().enumerate().skip(k + 1) {
             let Some(second) = input(b) else { continue };
             if second.from != first.from {
                 continue;
@@ -201,13 +203,29 @@ fn same_signal_twice(
                 )
                 .label(second.span, "read again here")
                 .label(first.span, "first read here")
-                .help(format!(
-                    "read `{source}` on one channel and average in the conversion (`average`); each extra channel lowers every channel's rate to the converter's over {}",
-                    channels.len()
+                .help(second_read_help(
+                    source,
+                    &stages[a].name,
+                    &stages[b].name,
+                    scan.reads.get(j).copied().unwrap_or(1),
+                    scan.length,
                 )),
             );
         }
     }
+}
+
+/// What reading one signal on a second channel costs, and the ways to
+/// read it more often that cost nothing.
+fn second_read_help(source: &str, first: &str, second: &str, reads: u32, length: u32) -> String {
+    let share = if reads == 1 {
+        format!("1 of every {length} conversions")
+    } else {
+        format!("{reads} of every {length} conversions")
+    };
+    format!(
+        "read `{source}` on `{first}` alone: `{second}` takes {share} from the other channels; to read it more often, name `{first}` more than once in the converter's `scan`, or average in the conversion (`average`)"
+    )
 }
 
 /// Each channel takes its converter's part, keeping its own `pga` and
