@@ -555,6 +555,14 @@ fn fix(
             Some("state the source's compliance (`compliance`, the voltage its output can reach), so the code at it is determined".to_string()),
             here,
         ),
+        // Where a stuck output goes is the supply's business: say which.
+        (FaultKind::StuckHigh, Node::IcVoltage(n)) if codes.is_none() && n.supply.is_none() => (
+            Some(format!(
+                "state the supply of `{}` (`supply 3.0 V .. 3.6 V`, for example: the range it runs from), or wire its supply from a source stage, so its output stuck at the supply gives a determined code",
+                plan.names[fault.node.index()]
+            )),
+            here,
+        ),
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) if a.output.is_none() => (
             Some("state the amplifier's output swing (`output`), so its saturated output gives a determined code".to_string()),
             here,
