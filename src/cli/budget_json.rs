@@ -66,7 +66,7 @@ struct LimitJson {
 
 #[derive(Serialize)]
 struct AlarmJson {
-    side: String,
+    side: crate::model::Side,
     at: f64,
     code: i64,
     guard_band: f64,
@@ -265,7 +265,7 @@ fn alarms(a: &Analysis, m_unit: &str, f: f64) -> Vec<AlarmJson> {
     a.alarms
         .iter()
         .map(|x| AlarmJson {
-            side: x.side.clone(),
+            side: x.side,
             at: from_si(x.at, m_unit),
             code: x.code,
             guard_band: x.guard_band * f,

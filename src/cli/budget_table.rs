@@ -290,7 +290,7 @@ fn alarms(a: &Analysis, unit: &str, m_unit: &str, v: &dyn Fn(f64) -> String) -> 
     ]);
     for x in &a.alarms {
         t.add_row([
-            x.side.clone(),
+            x.side.to_string(),
             format!("{} {m_unit}", trimmed(from_si(x.at, m_unit), 6)),
             x.code.to_string(),
             format!("± {} {unit}", v(x.guard_band)),

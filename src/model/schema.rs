@@ -5,8 +5,8 @@
 use super::chain::Bill;
 use super::typed::{
     Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction, Combine,
-    CombineOp, ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent,
-    IcVoltage, Resistor, Rtd, RtdCurveName, Sampling, Source, StageModel, StrainGauge, Thermistor,
+    CombineOp, ConversionMethod, Convert, Excitation, Filter, GaugeSide, IcCurrent, IcVoltage,
+    Resistor, Rtd, RtdCurveName, Sampling, Side, Source, StageModel, StrainGauge, Thermistor,
     ThermistorLaw, Thermocouple, Transducer,
 };
 use super::value::{Measure, ParamValue, ResolvedParam, Tolerance};
@@ -573,7 +573,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p(param::R, measure(OHM)).required().positive(),
-            p("sensor", Shape::Words(&["low", "high"])),
+            p("sensor", Shape::Words(&Side::WORDS)),
             COST,
             POWER,
         ],
@@ -1118,8 +1118,8 @@ fn read_bridge(r: &Reader<'_>, form: BridgeForm) -> Option<StageModel> {
 }
 
 fn read_divider(r: &Reader<'_>) -> Option<StageModel> {
-    let side = r.choice("sensor", DividerSide::from_word).ok()?;
-    read_bridge(r, BridgeForm::Divider(side.unwrap_or(DividerSide::Low)))
+    let side = r.choice("sensor", Side::from_word).ok()?;
+    read_bridge(r, BridgeForm::Divider(side.unwrap_or(Side::Low)))
 }
 
 fn read_quarter(r: &Reader<'_>) -> Option<StageModel> {

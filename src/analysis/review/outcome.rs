@@ -86,7 +86,7 @@ pub struct LimitOutcome {
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct AlarmOutcome {
-    pub side: String,
+    pub side: crate::model::Side,
     pub at: f64,
     pub trip_at: f64,
     pub trip_code: i64,
@@ -380,7 +380,7 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis, faults: Option<&FaultRe
             .alarms
             .iter()
             .map(|x| AlarmOutcome {
-                side: x.side.clone(),
+                side: x.side,
                 at: from_si(x.at, &m_unit),
                 trip_at: from_si(x.trip_at, &m_unit),
                 trip_code: x.trip_code,

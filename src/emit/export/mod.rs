@@ -21,6 +21,7 @@ pub use model::{
 pub use rust::render as render_rust;
 
 use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
+use crate::model::Side;
 use crate::units::format::trimmed;
 
 /// Everything one run exports: the chains of one spec.
@@ -115,14 +116,14 @@ fn constant(name: &str, what: String, unit: &str, value: Value) -> Constant {
 /// The alarms' names: `ALARM_HIGH`, `ALARM_LOW`, and `ALARM_HIGH_2` for
 /// a second of one side.
 pub fn alarm_names(chain: &ChainExport) -> Vec<String> {
-    let mut seen: Vec<&str> = Vec::new();
+    let mut seen: Vec<Side> = Vec::new();
     chain
         .alarms
         .iter()
         .map(|a| {
-            seen.push(&a.side);
+            seen.push(a.side);
             let n = seen.iter().filter(|s| **s == a.side).count();
-            let side = a.side.to_uppercase();
+            let side = a.side.word().to_uppercase();
             if n == 1 {
                 format!("ALARM_{side}")
             } else {

@@ -101,7 +101,7 @@ pub fn chain_report(
             .alarms
             .iter()
             .map(|x| AlarmRow {
-                side: x.side.clone(),
+                side: x.side,
                 at: units.position(x.at),
                 code: x.code,
                 guard_band: x.guard_band * units.f,
