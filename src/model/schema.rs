@@ -270,6 +270,9 @@ pub mod param {
     pub const CLASS: &str = "class";
     pub const CMRR: &str = "cmrr";
     pub const COMPLIANCE: &str = "compliance";
+    /// A current source's model line, which states its value.
+    pub const CURRENT: &str = "current";
+    pub const CURRENT_NOISE: &str = "current_noise";
     pub const DISSIPATION: &str = "dissipation";
     pub const DRIFT: &str = "drift";
     pub const GAIN: &str = "gain";
@@ -295,6 +298,8 @@ pub mod param {
     pub const SAMPLING_CAPACITANCE: &str = "sampling_capacitance";
     pub const SLOPE: &str = "slope";
     pub const SPAN_DRIFT: &str = "span_drift";
+    /// A voltage source's model line, which states its value.
+    pub const VOLTAGE: &str = "voltage";
     pub const TOLERANCE: &str = "tolerance";
     pub const ZERO: &str = "zero";
     pub const ZERO_DRIFT: &str = "zero_drift";
@@ -336,7 +341,7 @@ pub const THERMOCOUPLE_TYPES: &[&str] = &["B", "E", "J", "K", "N", "R", "S", "T"
 static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Excitation,
-        model: Some("current"),
+        model: Some(param::CURRENT),
         role: Role::CurrentSource,
         measures: Measures::Nothing,
         model_shape: measure(AMP),
@@ -354,7 +359,7 @@ static MODELS: &[ModelSpec] = &[
     },
     ModelSpec {
         kind: StageKind::Excitation,
-        model: Some("voltage"),
+        model: Some(param::VOLTAGE),
         role: Role::VoltageSource,
         measures: Measures::Nothing,
         model_shape: measure(VOLT),
@@ -766,8 +771,8 @@ pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
         StageModel::Bridge(b) => Some(("r", b.r.as_ref()?)),
         StageModel::Excitation(e) => Some((
             match e.source {
-                Source::Current { .. } => "current",
-                Source::Voltage { .. } => "voltage",
+                Source::Current { .. } => param::CURRENT,
+                Source::Voltage { .. } => param::VOLTAGE,
             },
             &e.value,
         )),
@@ -951,14 +956,14 @@ fn read_current(r: &Reader<'_>) -> Option<StageModel> {
     let source = Source::Current {
         compliance: r.value(param::COMPLIANCE),
     };
-    read_excitation(r, source, "current")
+    read_excitation(r, source, param::CURRENT)
 }
 
 fn read_voltage(r: &Reader<'_>) -> Option<StageModel> {
     let source = Source::Voltage {
         limit: r.value(param::LIMIT),
     };
-    read_excitation(r, source, "voltage")
+    read_excitation(r, source, param::VOLTAGE)
 }
 
 fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
