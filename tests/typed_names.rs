@@ -489,7 +489,7 @@ const NAME_ALLOWED: &[(&str, &str, &str)] = &[
     (
         "src/analysis/soundness.rs",
         "noise",
-        "the noise source's id in the budget",
+        "what a source drives beyond any number, in a finding's words",
     ),
     (
         "src/analysis/review/mod.rs",

@@ -901,11 +901,7 @@ fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -
 
 /// The nominal value of the envelope's stage's parameter `name`.
 fn nominal_of(plan: &Plan, node: NodeId, name: &str) -> Option<f64> {
-    let id = format!("{}.{name}", plan.names[node.index()]);
-    plan.slots
-        .iter()
-        .position(|s| s.id == id)
-        .map(|i| plan.nominal[i])
+    plan.slot_of(node, name).map(|s| plan.nominal[s.index()])
 }
 
 /// The help line: what brings the signal back inside with `margin` to

@@ -197,13 +197,13 @@ fn point(a: &Analysis, i: usize, m_unit: &str, f: f64) -> PointJson {
             .contributions
             .iter()
             .map(|c| SourceJson {
-                id: c.id.clone(),
+                id: c.id.to_string(),
                 kind: c.kind,
                 contribution: c.worst * f,
                 standard_uncertainty: c.standard * f,
                 linear: c.linear,
                 gum_share: p.gum_share(c),
-                monte_carlo_share: a.monte_carlo_share(i, &c.id),
+                monte_carlo_share: a.monte_carlo_share(i, c.id.as_str()),
             })
             .collect(),
     }
@@ -220,11 +220,15 @@ fn noise(a: &Analysis, f: f64) -> NoiseJson {
         noise_free: n.noise_free * f,
         noise_free_averaged: n.noise_free_averaged * f,
         lsb: n.lsb * f,
-        terms: n.terms.iter().map(|t| (t.id.clone(), t.rms_v)).collect(),
+        terms: n
+            .terms
+            .iter()
+            .map(|t| (t.id.to_string(), t.rms_v))
+            .collect(),
         referred: n
             .referred
             .iter()
-            .map(|t| (t.id.clone(), t.rms_v * f))
+            .map(|t| (t.id.to_string(), t.rms_v * f))
             .collect(),
     }
 }

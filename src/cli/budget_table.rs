@@ -326,7 +326,7 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
     let percent = |x: f64| format!("{:.1} %", x * 100.0);
     for c in worst.contributions.iter().take(TOP_SOURCES) {
         let mut row = vec![
-            c.id.clone(),
+            c.id.to_string(),
             c.kind.to_string(),
             format!("± {}", v(c.worst)),
             v(c.standard),
@@ -334,7 +334,7 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
         ];
         if with_mc {
             row.push(
-                a.monte_carlo_share(index, &c.id)
+                a.monte_carlo_share(index, c.id.as_str())
                     .map_or("—".into(), percent),
             );
         }

@@ -284,6 +284,7 @@ pub mod param {
     pub const INPUT: &str = "input";
     pub const LIMIT: &str = "limit";
     pub const MAX_CURRENT: &str = "max_current";
+    pub const NOISE: &str = "noise";
     pub const NONLINEARITY: &str = "nonlinearity";
     pub const OFFSET: &str = "offset";
     pub const OFFSET_DRIFT: &str = "offset_drift";
@@ -347,7 +348,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: measure(AMP),
         params: &[
             p(param::DRIFT, Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
-            p("noise", Shape::Limit(CURRENT_NOISE)),
+            p(param::NOISE, Shape::Limit(CURRENT_NOISE)),
             p(param::COMPLIANCE, plain(VOLT)).positive(),
             COST,
             POWER,
@@ -365,7 +366,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: measure(VOLT),
         params: &[
             p(param::DRIFT, Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
-            p("noise", Shape::Limit(VOLTAGE_NOISE)),
+            p(param::NOISE, Shape::Limit(VOLTAGE_NOISE)),
             p(param::LIMIT, plain(AMP)).positive(),
             COST,
             POWER,
@@ -462,7 +463,7 @@ static MODELS: &[ModelSpec] = &[
             )
             .required(),
             p(param::ACCURACY, Shape::Limit(Expect::TempDiff)),
-            p("noise", Shape::Limit(VOLTAGE_NOISE)),
+            p(param::NOISE, Shape::Limit(VOLTAGE_NOISE)),
             p(param::OUTPUT_RESISTANCE, plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
             p("supply_current", plain(AMP)).non_negative(),
@@ -642,9 +643,13 @@ static MODELS: &[ModelSpec] = &[
                 param::GAIN_DRIFT,
                 Shape::Limit(Expect::PerKelvin(Dim::NONE)),
             ),
-            p("noise", plain(Expect::Dim(Dim::VOLTAGE_DENSITY))).non_negative(),
+            p(param::NOISE, plain(Expect::Dim(Dim::VOLTAGE_DENSITY))).non_negative(),
             p("noise_corner", plain(HERTZ)).non_negative(),
-            p("current_noise", plain(Expect::Dim(Dim::CURRENT_DENSITY))).non_negative(),
+            p(
+                param::CURRENT_NOISE,
+                plain(Expect::Dim(Dim::CURRENT_DENSITY)),
+            )
+            .non_negative(),
             p(param::BIAS, Shape::Limit(AMP)),
             p("burnout", plain(AMP)).positive(),
             p(param::CMRR, plain(Expect::Decibel)).positive(),
@@ -694,7 +699,7 @@ static MODELS: &[ModelSpec] = &[
             p(param::OFFSET, Shape::Limit(VOLTAGE_OR_CODES)),
             p(param::GAIN_ERROR, Shape::Limit(RATIO_OR_CODES)),
             p(param::INL, Shape::Limit(RATIO_OR_CODES)),
-            p("noise", Shape::Limit(VOLTAGE_OR_CODES)),
+            p(param::NOISE, Shape::Limit(VOLTAGE_OR_CODES)),
             p("rate", plain(HERTZ)).positive(),
             p("notch", plain(HERTZ)).positive(),
             p(param::REF_RANGE, Shape::Range(VOLT)),
@@ -719,7 +724,7 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "offset"),
             (CHANNEL_OF, "gain_error"),
             (CHANNEL_OF, "inl"),
-            (CHANNEL_OF, "noise"),
+            (CHANNEL_OF, param::NOISE),
             (CHANNEL_OF, "rate"),
             (CHANNEL_OF, "notch"),
             (CHANNEL_OF, "ref_range"),
@@ -948,7 +953,7 @@ fn read_excitation(r: &Reader<'_>, source: Source, name: &str) -> Option<StageMo
         source,
         value: r.measure(name)?,
         drift: r.limit(param::DRIFT),
-        noise: r.limit("noise"),
+        noise: r.limit(param::NOISE),
     }))
 }
 
@@ -1053,7 +1058,7 @@ fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
         output,
         output_at,
         accuracy: r.limit(param::ACCURACY),
-        noise: r.limit("noise"),
+        noise: r.limit(param::NOISE),
         output_resistance: r.measure(param::OUTPUT_RESISTANCE),
         supply: r.range("supply"),
         supply_current: r.value("supply_current"),
@@ -1145,9 +1150,9 @@ fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
         offset: r.limit(param::OFFSET),
         offset_drift: r.limit(param::OFFSET_DRIFT),
         gain_drift: r.limit(param::GAIN_DRIFT),
-        noise: r.value("noise"),
+        noise: r.value(param::NOISE),
         noise_corner: r.value("noise_corner"),
-        current_noise: r.value("current_noise"),
+        current_noise: r.value(param::CURRENT_NOISE),
         bias: r.limit(param::BIAS),
         burnout: r.value("burnout"),
         cmrr: r.value(param::CMRR),
@@ -1226,7 +1231,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         offset: r.limit(param::OFFSET),
         gain_error: r.limit(param::GAIN_ERROR),
         inl: r.limit(param::INL),
-        noise: r.limit("noise"),
+        noise: r.limit(param::NOISE),
         rate: r.value("rate"),
         notch: r.value("notch"),
         ref_range: r.range(param::REF_RANGE),
