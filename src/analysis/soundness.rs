@@ -84,29 +84,8 @@ pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
             }
         }
     }
-    for n in &analysis.accumulation {
-        if !all_finite(&[n.value, n.gain, n.error]) {
-            let stage = analysis
-                .names
-                .get(n.node.index())
-                .cloned()
-                .unwrap_or_default();
-            let culprit = n
-                .dominant
-                .clone()
-                .map_or(Culprit::Stage(stage), Culprit::Source);
-            blame(culprit, "signal path");
-        }
-    }
-    for e in &analysis.envelopes {
-        if !all_finite(&[e.reach.0, e.reach.1]) {
-            let stage = analysis
-                .names
-                .get(e.node.index())
-                .cloned()
-                .unwrap_or_default();
-            blame(Culprit::Stage(stage), "signal's reach");
-        }
+    for (culprit, what) in path_culprits(analysis) {
+        blame(culprit, what);
     }
     let mut findings = Findings::new();
     for (culprit, what) in culprits {
@@ -118,6 +97,37 @@ pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
         findings.push(label_source(chain, finding, stage, param, "this value"));
     }
     findings
+}
+
+/// Non-finite values along the signal path and in the range envelopes,
+/// with the source (or, where none is known, the stage) behind each.
+fn path_culprits(analysis: &Analysis) -> Vec<(Culprit, &'static str)> {
+    let stage = |node: crate::eval::NodeId| {
+        Culprit::Stage(
+            analysis
+                .names
+                .get(node.index())
+                .cloned()
+                .unwrap_or_default(),
+        )
+    };
+    let path = analysis
+        .accumulation
+        .iter()
+        .filter(|n| !all_finite(&[n.value, n.gain, n.error]))
+        .map(|n| {
+            let culprit = n
+                .dominant
+                .clone()
+                .map_or_else(|| stage(n.node), Culprit::Source);
+            (culprit, "signal path")
+        });
+    let reach = analysis
+        .envelopes
+        .iter()
+        .filter(|e| !all_finite(&[e.reach.0, e.reach.1]))
+        .map(|e| (stage(e.node), "signal's reach"));
+    path.chain(reach).collect()
 }
 
 fn magnitude(x: f64) -> f64 {
