@@ -378,24 +378,33 @@ fn junction_constants(chain: &ChainExport, j: &Junction) -> Vec<Constant> {
 /// A detectable fault's threshold constants: `FAULT_<STAGE>_<FAULT>_BELOW`
 /// (the fault is present at codes below it), `_ABOVE`, or both for a fault
 /// that leaves the code at either end; each with its code and side.
-pub fn fault_constants_of(f: &FaultVerdict) -> Vec<(String, i64, &'static str)> {
+pub fn fault_constants_of(f: &FaultVerdict) -> Vec<(String, i64, Side)> {
     let sides = match f.threshold {
-        Some(Threshold::Below(n)) => vec![(n, "BELOW")],
-        Some(Threshold::Above(n)) => vec![(n, "ABOVE")],
-        Some(Threshold::Outside(a, b)) => vec![(a, "BELOW"), (b, "ABOVE")],
+        Some(Threshold::Below(n)) => vec![(n, Side::Low)],
+        Some(Threshold::Above(n)) => vec![(n, Side::High)],
+        Some(Threshold::Outside(a, b)) => vec![(a, Side::Low), (b, Side::High)],
         None => Vec::new(),
     };
     sides
         .into_iter()
         .map(|(code, side)| {
             let name = format!(
-                "FAULT_{}_{}_{side}",
+                "FAULT_{}_{}_{}",
                 f.stage.to_uppercase(),
-                f.fault.kind.name().to_uppercase()
+                f.fault.kind.name().to_uppercase(),
+                beyond(side).to_uppercase()
             );
             (name, code, side)
         })
         .collect()
+}
+
+/// Where a fault's codes lie from its threshold, in words.
+fn beyond(side: Side) -> &'static str {
+    match side {
+        Side::Low => "below",
+        Side::High => "above",
+    }
 }
 
 /// A detectable fault's threshold constant names, comma-separated.
@@ -435,7 +444,7 @@ fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
             ),
         };
         for (name, code, side) in fault_constants_of(f) {
-            let side = if side == "BELOW" { "below" } else { "above" };
+            let side = beyond(side);
             out.push(constant(
             &name,
             format!(
