@@ -489,7 +489,7 @@ const NAME_ALLOWED: &[(&str, &str, &str)] = &[
     (
         "src/analysis/soundness.rs",
         "noise",
-        "the noise source's id in the budget",
+        "what a source drives beyond any number, in a finding's words",
     ),
     (
         "src/analysis/review/mod.rs",
@@ -591,16 +591,37 @@ const NAME_ALLOWED: &[(&str, &str, &str)] = &[
         "reference",
         "the limited quantity in a finding's words",
     ),
+    (
+        "src/analysis/ranges.rs",
+        "current",
+        "the limited quantity in a finding's words",
+    ),
+    (
+        "src/emit/report/build.rs",
+        "current",
+        "a signal's kind in the report's words",
+    ),
+    (
+        "src/emit/report/build.rs",
+        "voltage",
+        "a signal's kind in the report's words",
+    ),
 ];
 
-/// Every parameter name the schema declares.
+/// Every parameter name the schema declares, with the model words whose
+/// line states the stage's value (an excitation's `current`), which a
+/// slot is named by too.
 fn parameter_names() -> std::collections::BTreeSet<&'static str> {
-    use catena::model::schema;
+    use catena::model::schema::{self, Shape};
     use catena::syntax::ast::StageKind;
     StageKind::ALL
         .iter()
         .flat_map(|&kind| schema::models(kind))
-        .flat_map(|model| model.params.iter().map(|p| p.name))
+        .flat_map(|model| {
+            let valued = matches!(model.model_shape, Shape::Measure { .. });
+            let word = model.model.filter(|_| valued);
+            model.params.iter().map(|p| p.name).chain(word)
+        })
         .collect()
 }
 

@@ -5,7 +5,7 @@
 
 use super::budget::beyond_rounding;
 use super::stages::signal_path;
-use crate::eval::{Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
+use crate::eval::{Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind, SourceName};
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct NodeError {
@@ -19,7 +19,7 @@ pub struct NodeError {
     pub error: f64,
     /// The source that puts the most on it (the first without a finite
     /// effect, if any): the parameter to name when `error` is not finite.
-    pub dominant: Option<String>,
+    pub dominant: Option<SourceName>,
     /// Where the error falls from the stage before to this one, the source
     /// this stage cancels most of: a ratiometric converter reading its
     /// excitation's error out, a compensation taken from the same source.
@@ -182,7 +182,7 @@ fn cancelled(plan: &Plan, effects: &[Effects], gains: &[f64], k: usize) -> Optio
         .max_by(|a, b| fall(a).total_cmp(&fall(b)))?;
     let floor = (plan.range.1 - plan.range.0).abs() * 1e-12;
     Some(Cancelled {
-        source: plan.slots[most.source.index()].id.clone(),
+        source: plan.slots[most.source.index()].id.to_string(),
         before: referred(most, k - 1),
         after: beyond_rounding(referred(most, k), floor),
     })

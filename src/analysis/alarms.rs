@@ -5,13 +5,12 @@
 use super::budget;
 use crate::diagnostics::{Code, Finding, Span};
 use crate::eval::{Env, EvalError, Plan};
-use crate::model::Chain;
+use crate::model::{Chain, Side};
 use crate::units::format::{from_si, trimmed};
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct AlarmLimit {
-    /// `high` or `low`.
-    pub side: String,
+    pub side: Side,
     /// The limit, SI.
     pub at: f64,
     /// The nominal chain's code at the limit, at the reference temperature.
@@ -58,10 +57,9 @@ pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit
             };
             guard = guard.max(budget::gum_expanded_at(plan, &env, &sources, k)?);
         }
-        let trip_at = if alarm.side == "high" {
-            alarm.at - guard
-        } else {
-            alarm.at + guard
+        let trip_at = match alarm.side {
+            Side::High => alarm.at - guard,
+            Side::Low => alarm.at + guard,
         };
         let code_at = |m: f64| -> Result<i64, EvalError> {
             let env = Env {
@@ -72,7 +70,7 @@ pub fn alarm_limits(chain: &Chain, plan: &Plan, k: f64) -> Result<Vec<AlarmLimit
             Ok(plan.exact_code(&plan.nominal, &env, plan.adc)?.round() as i64)
         };
         out.push(AlarmLimit {
-            side: alarm.side.clone(),
+            side: alarm.side,
             at: alarm.at,
             code: code_at(alarm.at)?,
             guard_band: guard,
@@ -106,10 +104,9 @@ pub fn outside_range(chain: &Chain, limit: &AlarmLimit, span: Span) -> Option<Fi
         ("above", hi)
     };
     // The limit that puts the trip just inside the range.
-    let limit_inside = if limit.side == "high" {
-        inside + limit.guard_band
-    } else {
-        inside - limit.guard_band
+    let limit_inside = match limit.side {
+        Side::High => inside + limit.guard_band,
+        Side::Low => inside - limit.guard_band,
     };
     let message = format!(
         "the trip of `alarm {} {}` lies at {}, {end} the measurand range {} .. {}",
@@ -124,7 +121,10 @@ pub fn outside_range(chain: &Chain, limit: &AlarmLimit, span: Span) -> Option<Fi
             "the guard band is {guard}: widen the measurand range to include {}, or set the limit at {} or {} so its trip stays inside the range",
             show(limit.trip_at),
             show(limit_inside),
-            if limit.side == "high" { "above" } else { "below" }
+            match limit.side {
+                Side::High => "above",
+                Side::Low => "below",
+            }
         )
     } else {
         format!(

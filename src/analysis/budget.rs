@@ -9,7 +9,7 @@ use rayon::prelude::*;
 use super::noise::{noise, Noise};
 use crate::eval::{
     half_width, own_fraction, Calibrated, Env, EvalError, LaneColumns, Plan, SlotId, SourceKind,
-    LANES,
+    SourceName, LANES,
 };
 use crate::model::Chain;
 
@@ -30,7 +30,7 @@ impl Default for Options {
 /// One source's part at one point, in measurand units (SI differences).
 #[derive(Clone, Debug, PartialEq)]
 pub struct Contribution {
-    pub id: String,
+    pub id: SourceName,
     pub kind: &'static str,
     /// Reading change with the source at its lower and upper limit.
     pub low: f64,
@@ -258,7 +258,7 @@ pub struct Perturbations {
 }
 
 struct Perturbation {
-    id: String,
+    id: SourceName,
     kind: &'static str,
     normal: bool,
     /// The slots it moves and their values at its lower and upper limit.
@@ -475,7 +475,7 @@ fn noise_contribution(noise: &Noise) -> Option<Contribution> {
     (noise.sigma_averaged > 0.0).then(|| {
         let three = 3.0 * noise.sigma_averaged;
         Contribution {
-            id: "noise".into(),
+            id: SourceName::whole("noise"),
             kind: "noise",
             low: -three,
             high: three,
@@ -504,7 +504,7 @@ fn point(
     // on the safe side).
     let n = plan.summed_codes() as f64;
     contributions.push(Contribution {
-        id: "quantization".into(),
+        id: SourceName::whole("quantization"),
         kind: "quantization",
         low: low * n,
         high: high * n,
@@ -518,7 +518,7 @@ fn point(
         // A known error the firmware leaves uncorrected: in the totals as a
         // bound of its size (rectangular in the GUM sum).
         contributions.push(Contribution {
-            id: "conversion".into(),
+            id: SourceName::whole("conversion"),
             kind: "linearisation",
             low: linearisation,
             high: linearisation,

@@ -161,8 +161,7 @@ pub struct LimitRow {
 
 #[derive(Clone, Debug, Serialize)]
 pub struct AlarmRow {
-    /// `high` or `low`.
-    pub side: String,
+    pub side: crate::model::Side,
     /// The limit, in the measurand's unit.
     pub at: f64,
     /// Where to trip so the true value never passes the limit unseen.
@@ -306,7 +305,7 @@ fn alarm_rows(chain: &Chain, from: &Sources<'_>) -> Vec<AlarmRow> {
     from.maskings
         .iter()
         .map(|m| AlarmRow {
-            side: m.alarm.side.clone(),
+            side: m.alarm.side,
             at: from_si(m.alarm.at, &m_unit),
             trip_at: from_si(m.alarm.trip_at, &m_unit),
             guard_band: m.alarm.guard_band * f,

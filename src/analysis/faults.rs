@@ -12,7 +12,7 @@ use super::window::{code_window, code_window_from, CodeWindow};
 use crate::diagnostics::{Cause, Code, Finding, Findings, Severity};
 use crate::eval::fault::{Fault, FaultCode, FaultKind};
 use crate::eval::{grid, Env, EvalError, Node, NodeId, Plan, SourceKind};
-use crate::model::Chain;
+use crate::model::{Chain, Side};
 use crate::units::format::{from_si, trimmed, with_prefix};
 
 /// Measurand points a fault's codes are taken at, across the range.
@@ -758,7 +758,7 @@ pub fn maskings(
         .map(|alarm| {
             // Codes on the safe side of a high trip are below it when the
             // code rises with the measurand.
-            let safe_below = (alarm.side == "high") == rises;
+            let safe_below = (alarm.side == Side::High) == rises;
             let cases = Cases::at(chain, plan, &past_trip(plan, &alarm));
             let masks = |f: &FaultVerdict| match f.verdict {
                 Verdict::Detectable | Verdict::Tolerated => false,
@@ -793,7 +793,10 @@ pub fn maskings(
 fn past_trip(plan: &Plan, alarm: &AlarmLimit) -> Vec<f64> {
     let (lo, hi) = plan.range;
     let from = alarm.trip_at.clamp(lo, hi);
-    let to = if alarm.side == "high" { hi } else { lo };
+    let to = match alarm.side {
+        Side::High => hi,
+        Side::Low => lo,
+    };
     grid((from, to), POINTS)
 }
 
@@ -1070,10 +1073,10 @@ fn masking_finding(
 ) -> Finding {
     let unit = chain.measurand_unit();
     let show = |x: f64| format!("{} {unit}", trimmed(from_si(x, &unit), 4));
-    let (safe, toward) = if alarm.side == "high" {
-        ("low", "up-scale")
-    } else {
-        ("high", "down-scale")
+    // What the fault reads on the trip's safe side, in words.
+    let (safe, toward) = match alarm.side {
+        Side::High => ("low", "up-scale"),
+        Side::Low => ("high", "down-scale"),
     };
     let how = if f.verdict == Verdict::Undetermined {
         "nothing determines the fault's code, so it can read"

@@ -278,13 +278,13 @@ impl Sources {
             if draw.scale == 0.0 {
                 fixed.push((s, draw.origin));
             } else {
-                drawn.push((draw, Stream::source(seed, &slot.id)));
+                drawn.push((draw, Stream::source(seed, slot.id.as_str())));
             }
         }
         let groups = plan
             .groups
             .iter()
-            .map(|g| (Common::of(g, plan), Stream::source(seed, &g.id)))
+            .map(|g| (Common::of(g, plan), Stream::source(seed, g.id.as_str())))
             .collect();
         Sources {
             drawn,

@@ -5,7 +5,8 @@
 //! converter's own noise, over the chain's equivalent noise bandwidth.
 
 use super::stages::signal_path;
-use crate::eval::{node, Env, Node, NodeId, NoiseBasis, Plan, Signal};
+use crate::eval::{node, Env, Node, NodeId, NoiseBasis, Plan, Signal, SourceName};
+use crate::model::schema::param;
 use crate::model::typed::CombineOp;
 use crate::physics::adc::peak_to_peak_noise;
 use crate::physics::noise::{johnson_voltage_density, rms_over_bandwidth, rms_with_flicker};
@@ -16,8 +17,8 @@ pub const FLICKER_LOW_HZ: f64 = 0.1;
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct NoiseTerm {
-    /// `stage.what`, e.g. `front.voltage_noise`.
-    pub id: String,
+    /// Whose noise (`front.noise`).
+    pub id: SourceName,
     /// rms at the converter's input, V.
     pub rms_v: f64,
 }
@@ -125,7 +126,7 @@ fn thermal_term(
     }
     let density = johnson_voltage_density(rs, env.ambient).ok()?;
     Some(NoiseTerm {
-        id: format!("{stage}.source_resistance"),
+        id: SourceName::param(stage, "source_resistance"),
         rms_v: gain * density * bw.sqrt(),
     })
 }
@@ -165,7 +166,7 @@ fn excitation_noise(plan: &Plan, env: &Env, enbw_hz: Option<f64>) -> Vec<NoiseTe
             continue;
         };
         out.push(NoiseTerm {
-            id: format!("{}.noise", plan.names[i.index()]),
+            id: SourceName::param(&plan.names[i.index()], param::NOISE),
             rms_v: (up - down).abs() / 2.0,
         });
     }
@@ -191,7 +192,7 @@ fn converter_terms(
             NoiseBasis::Rms | NoiseBasis::Density => 1.0,
         };
         terms.push(NoiseTerm {
-            id: format!("{name}.noise"),
+            id: SourceName::param(name, param::NOISE),
             rms_v: noise.amount * per_unit,
         });
     }
@@ -221,13 +222,13 @@ fn amplifier_terms(
         let rms = rms_with_flicker(e_n, corner, FLICKER_LOW_HZ, FLICKER_LOW_HZ + bw)
             .unwrap_or(e_n * bw.sqrt());
         terms.push(NoiseTerm {
-            id: format!("{name}.noise"),
+            id: SourceName::param(name, param::NOISE),
             rms_v: gain_after * rms,
         });
     }
     if let Some(i_n) = stated.current_noise {
         terms.push(NoiseTerm {
-            id: format!("{name}.current_noise"),
+            id: SourceName::param(name, param::CURRENT_NOISE),
             rms_v: gain_after * i_n * rs * bw.sqrt(),
         });
     }

@@ -79,8 +79,8 @@ impl Limit {
             Limit::AmplifierInput => (schema::param::INPUT, schema::param::INPUT),
             Limit::AmplifierOutput => (schema::param::OUTPUT, schema::param::GAIN),
             Limit::ConverterInput => (schema::VREF, schema::VREF),
-            Limit::Compliance => (schema::param::COMPLIANCE, "current"),
-            Limit::CurrentLimit => (schema::param::LIMIT, "voltage"),
+            Limit::Compliance => (schema::param::COMPLIANCE, schema::param::CURRENT),
+            Limit::CurrentLimit => (schema::param::LIMIT, schema::param::VOLTAGE),
             Limit::MaxCurrent => (schema::param::MAX_CURRENT, schema::param::MAX_CURRENT),
             Limit::ConverterReference => (schema::param::REF_RANGE, schema::VREF),
             Limit::ConverterPin(_) => (schema::param::RAILS, schema::param::RAILS),
@@ -901,11 +901,7 @@ fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -
 
 /// The nominal value of the envelope's stage's parameter `name`.
 fn nominal_of(plan: &Plan, node: NodeId, name: &str) -> Option<f64> {
-    let id = format!("{}.{name}", plan.names[node.index()]);
-    plan.slots
-        .iter()
-        .position(|s| s.id == id)
-        .map(|i| plan.nominal[i])
+    plan.slot_of(node, name).map(|s| plan.nominal[s.index()])
 }
 
 /// The help line: what brings the signal back inside with `margin` to
@@ -930,7 +926,7 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
             None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
         },
         Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)".to_string()),
-        Limit::Compliance => slot("current").map(|i| format!("the largest current that fits with {pct} % headroom is {}", with_prefix(i * target / value, "A", 4))),
+        Limit::Compliance => slot(schema::param::CURRENT).map(|i| format!("the largest current that fits with {pct} % headroom is {}", with_prefix(i * target / value, "A", 4))),
         Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {pct} % headroom", with_prefix(value / (1.0 - margin), "A", 4))),
         Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
         Limit::ConverterReference => Some(reference_fix(slot(schema::VREF).is_some(), high, value, target, margin)),

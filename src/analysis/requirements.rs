@@ -115,7 +115,12 @@ fn accuracy_verdict(
     let top = if method == AccuracyMethod::WorstCase {
         p.contributions
             .iter()
-            .map(|c| (c.id.clone(), c.worst / p.worst_case.max(f64::MIN_POSITIVE)))
+            .map(|c| {
+                (
+                    c.id.to_string(),
+                    c.worst / p.worst_case.max(f64::MIN_POSITIVE),
+                )
+            })
             .collect::<Vec<_>>()
     } else {
         let total = p.gum_standard * p.gum_standard;
@@ -124,7 +129,7 @@ fn accuracy_verdict(
             .iter()
             .map(|c| {
                 (
-                    c.id.clone(),
+                    c.id.to_string(),
                     c.standard * c.standard / total.max(f64::MIN_POSITIVE),
                 )
             })

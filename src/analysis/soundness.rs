@@ -3,20 +3,39 @@
 //! the GUM sum honest about sources its linearisation cannot represent
 //! (R616).
 
+use super::monte_carlo::NOISE_ID;
 use super::report::Analysis;
 use crate::diagnostics::{Code, Finding, Findings};
+use crate::eval::SourceName;
 use crate::model::Chain;
 use crate::units::format::{from_si, trimmed};
+
+/// What an E505 names: a source, or the stage where no source is known.
+#[derive(Clone, Debug, PartialEq)]
+enum Culprit {
+    Source(SourceName),
+    Stage(String),
+}
+
+impl std::fmt::Display for Culprit {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Culprit::Source(id) => id.fmt(f),
+            Culprit::Stage(name) => f.write_str(name),
+        }
+    }
+}
 
 /// E505 for each parameter behind a non-finite number anywhere in the
 /// analysis, first occurrence only, in order of discovery.
 pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
-    let mut culprits: Vec<(String, &'static str)> = Vec::new();
-    let mut blame = |id: &str, what: &'static str| {
-        if !culprits.iter().any(|(c, _)| c == id) {
-            culprits.push((id.to_string(), what));
+    let mut culprits: Vec<(Culprit, &'static str)> = Vec::new();
+    let mut blame = |culprit: Culprit, what: &'static str| {
+        if !culprits.iter().any(|(c, _)| *c == culprit) {
+            culprits.push((culprit, what));
         }
     };
+    let whole_noise = SourceName::whole(NOISE_ID);
     let noise = &analysis.budget.noise;
     let noise_culprit = || {
         noise
@@ -24,8 +43,7 @@ pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
             .iter()
             .chain(&noise.referred)
             .max_by(|a, b| magnitude(a.rms_v).total_cmp(&magnitude(b.rms_v)))
-            .map(|t| t.id.clone())
-            .unwrap_or_else(|| "noise".into())
+            .map_or_else(|| whole_noise.clone(), |t| t.id.clone())
     };
     let noise_values = [
         noise.total_v,
@@ -36,20 +54,20 @@ pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
         noise.lsb,
     ];
     if !all_finite(&noise_values) || noise.terms.iter().any(|t| !t.rms_v.is_finite()) {
-        blame(&noise_culprit(), "noise");
+        blame(Culprit::Source(noise_culprit()), "noise");
     }
     for (i, p) in analysis.budget.points.iter().enumerate() {
         // Noise enters the budget as one source; its terms say whose it is.
         let source = |c: &super::budget::Contribution| {
-            if c.kind == "noise" {
+            Culprit::Source(if c.id == whole_noise {
                 noise_culprit()
             } else {
                 c.id.clone()
-            }
+            })
         };
         for c in &p.contributions {
             if !all_finite(&[c.low, c.high, c.worst, c.standard]) {
-                blame(&source(c), "error budget");
+                blame(source(c), "error budget");
             }
         }
         let interval = analysis.monte_carlo.as_ref().and_then(|m| m.get(i));
@@ -62,35 +80,54 @@ pub fn non_finite(chain: &Chain, analysis: &Analysis) -> Findings {
         ];
         if !all_finite(&totals) || !all_finite(&mc) {
             if let Some(c) = p.contributions.first() {
-                blame(&source(c), "error budget");
+                blame(source(c), "error budget");
             }
         }
     }
-    for n in &analysis.accumulation {
-        if !all_finite(&[n.value, n.gain, n.error]) {
-            let stage = analysis
-                .names
-                .get(n.node.index())
-                .cloned()
-                .unwrap_or_default();
-            blame(n.dominant.as_deref().unwrap_or(&stage), "signal path");
-        }
-    }
-    for e in &analysis.envelopes {
-        if !all_finite(&[e.reach.0, e.reach.1]) {
-            let stage = analysis
-                .names
-                .get(e.node.index())
-                .cloned()
-                .unwrap_or_default();
-            blame(&stage, "signal's reach");
-        }
+    for (culprit, what) in path_culprits(analysis) {
+        blame(culprit, what);
     }
     let mut findings = Findings::new();
-    for (id, what) in culprits {
-        findings.push(non_finite_finding(chain, &id, what));
+    for (culprit, what) in culprits {
+        let (stage, param) = match &culprit {
+            Culprit::Source(id) => id.stage_param().unzip(),
+            Culprit::Stage(name) => (Some(name.as_str()), None),
+        };
+        let finding = non_finite_finding(chain, &culprit.to_string(), what);
+        findings.push(label_source(chain, finding, stage, param, "this value"));
     }
     findings
+}
+
+/// Non-finite values along the signal path and in the range envelopes,
+/// with the source (or, where none is known, the stage) behind each.
+fn path_culprits(analysis: &Analysis) -> Vec<(Culprit, &'static str)> {
+    let stage = |node: crate::eval::NodeId| {
+        Culprit::Stage(
+            analysis
+                .names
+                .get(node.index())
+                .cloned()
+                .unwrap_or_default(),
+        )
+    };
+    let path = analysis
+        .accumulation
+        .iter()
+        .filter(|n| !all_finite(&[n.value, n.gain, n.error]))
+        .map(|n| {
+            let culprit = n
+                .dominant
+                .clone()
+                .map_or_else(|| stage(n.node), Culprit::Source);
+            (culprit, "signal path")
+        });
+    let reach = analysis
+        .envelopes
+        .iter()
+        .filter(|e| !all_finite(&[e.reach.0, e.reach.1]))
+        .map(|e| (stage(e.node), "signal's reach"));
+    path.chain(reach).collect()
 }
 
 fn magnitude(x: f64) -> f64 {
@@ -105,13 +142,20 @@ fn all_finite(values: &[f64]) -> bool {
     values.iter().all(|x| x.is_finite())
 }
 
-/// The stage a source or term id (`stage.parameter`) belongs to, labelled.
-fn label_source(chain: &Chain, finding: Finding, id: &str, text: &str) -> Finding {
-    let stage_name = id.split('.').next().unwrap_or(id);
-    match chain.stages.iter().find(|s| s.name == stage_name) {
+/// The stage a source belongs to, labelled at its parameter's line where
+/// the spec writes one; the chain where the source is no stage's.
+fn label_source(
+    chain: &Chain,
+    finding: Finding,
+    stage: Option<&str>,
+    param: Option<&str>,
+    text: &str,
+) -> Finding {
+    match chain.stages.iter().find(|s| Some(s.name.as_str()) == stage) {
         Some(stage) => {
-            let param = id.split_once('.').map(|(_, p)| p).unwrap_or("");
-            // The parameter's own line when the spec writes it (not a part).
+            let param = param.unwrap_or("");
+            // The parameter's own line when the spec writes it; for one of
+            // a line's parts (`r_2`, `offset_drift`), the line it is of.
             let written = |p: &&crate::model::value::ResolvedParam| {
                 std::sync::Arc::ptr_eq(&p.file, &chain.file) && !param.is_empty()
             };
@@ -136,15 +180,14 @@ fn label_source(chain: &Chain, finding: Finding, id: &str, text: &str) -> Findin
 }
 
 fn non_finite_finding(chain: &Chain, id: &str, what: &str) -> Finding {
-    let finding = Finding::new(
+    Finding::new(
         Code::E505,
         &chain.file,
         format!("`{id}` drives the {what} beyond any finite number, so no budget can be shown"),
     )
     .help(format!(
         "check `{id}` for a misplaced exponent or unit: a value this extreme is not a part's"
-    ));
-    label_source(chain, finding, id, "this value")
+    ))
 }
 
 /// R616 where the GUM sum had to leave its linearisation for some source:
@@ -177,5 +220,6 @@ pub fn nonlinear(chain: &Chain, analysis: &Analysis) -> Option<Finding> {
         ),
     )
     .help("a stage is clipping or folding at one of the source's limits: bring the signal back inside its range (see R601), or judge accuracy by `monte_carlo`, which follows the chain as it is");
-    Some(label_source(chain, finding, &source.id, "this source"))
+    let (stage, param) = source.id.stage_param().unzip();
+    Some(label_source(chain, finding, stage, param, "this source"))
 }

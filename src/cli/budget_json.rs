@@ -66,7 +66,7 @@ struct LimitJson {
 
 #[derive(Serialize)]
 struct AlarmJson {
-    side: String,
+    side: crate::model::Side,
     at: f64,
     code: i64,
     guard_band: f64,
@@ -200,13 +200,13 @@ fn point(a: &Analysis, i: usize, m_unit: &str, f: f64) -> PointJson {
             .contributions
             .iter()
             .map(|c| SourceJson {
-                id: c.id.clone(),
+                id: c.id.to_string(),
                 kind: c.kind,
                 contribution: c.worst * f,
                 standard_uncertainty: c.standard * f,
                 linear: c.linear,
                 gum_share: p.gum_share(c),
-                monte_carlo_share: a.monte_carlo_share(i, &c.id),
+                monte_carlo_share: a.monte_carlo_share(i, c.id.as_str()),
             })
             .collect(),
     }
@@ -223,11 +223,15 @@ fn noise(a: &Analysis, f: f64) -> NoiseJson {
         noise_free: n.noise_free * f,
         noise_free_averaged: n.noise_free_averaged * f,
         lsb: n.lsb * f,
-        terms: n.terms.iter().map(|t| (t.id.clone(), t.rms_v)).collect(),
+        terms: n
+            .terms
+            .iter()
+            .map(|t| (t.id.to_string(), t.rms_v))
+            .collect(),
         referred: n
             .referred
             .iter()
-            .map(|t| (t.id.clone(), t.rms_v * f))
+            .map(|t| (t.id.to_string(), t.rms_v * f))
             .collect(),
     }
 }
@@ -268,7 +272,7 @@ fn alarms(a: &Analysis, m_unit: &str, f: f64) -> Vec<AlarmJson> {
     a.alarms
         .iter()
         .map(|x| AlarmJson {
-            side: x.side.clone(),
+            side: x.side,
             at: from_si(x.at, m_unit),
             code: x.code,
             guard_band: x.guard_band * f,

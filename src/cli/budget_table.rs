@@ -290,7 +290,7 @@ fn alarms(a: &Analysis, unit: &str, m_unit: &str, v: &dyn Fn(f64) -> String) -> 
     ]);
     for x in &a.alarms {
         t.add_row([
-            x.side.clone(),
+            x.side.to_string(),
             format!("{} {m_unit}", trimmed(from_si(x.at, m_unit), 6)),
             x.code.to_string(),
             format!("± {} {unit}", v(x.guard_band)),
@@ -326,7 +326,7 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
     let percent = |x: f64| format!("{:.1} %", x * 100.0);
     for c in worst.contributions.iter().take(TOP_SOURCES) {
         let mut row = vec![
-            c.id.clone(),
+            c.id.to_string(),
             c.kind.to_string(),
             format!("± {}", v(c.worst)),
             v(c.standard),
@@ -334,7 +334,7 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
         ];
         if with_mc {
             row.push(
-                a.monte_carlo_share(index, &c.id)
+                a.monte_carlo_share(index, c.id.as_str())
                     .map_or("—".into(), percent),
             );
         }

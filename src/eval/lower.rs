@@ -574,7 +574,7 @@ mod tests {
     fn slot<'a>(plan: &'a Plan, id: &str) -> &'a crate::eval::Slot {
         plan.slots
             .iter()
-            .find(|s| s.id == id)
+            .find(|s| s.id.as_str() == id)
             .unwrap_or_else(|| panic!("no slot `{id}` in {:?}", plan.slots))
     }
 

@@ -26,8 +26,8 @@ pub use lanes::LaneColumns;
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use node::{AmpReference, BridgeKind, Node};
 pub use plan::{
-    ClassTolerance, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId,
-    SourceKind,
+    ClassTolerance, Env, EvalError, Named, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId,
+    SourceKind, SourceName,
 };
 pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};
 pub use stated::{Noise, NoiseBasis, SamplingInput, Stated};

@@ -1,6 +1,6 @@
 pub use super::env::{Env, Senses};
 pub use super::error::EvalError;
-pub use super::ids::{NodeId, SlotId};
+pub use super::ids::{Named, NodeId, SlotId, SourceName};
 pub use super::node::Node;
 use crate::physics::thermocouple::ThermocoupleType;
 
@@ -8,7 +8,7 @@ use crate::physics::thermocouple::ThermocoupleType;
 /// and what the datasheet allows around it, for the analyses.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Slot {
-    pub id: String,
+    pub id: SourceName,
     pub kind: SourceKind,
     pub nominal: f64,
     /// Limits below and above the nominal, absolute SI (relative
@@ -169,5 +169,14 @@ impl Plan {
     /// The node of the stage named `name`.
     pub fn node_named(&self, name: &str) -> Option<NodeId> {
         self.names.iter().position(|n| n == name).map(NodeId::new)
+    }
+
+    /// The slot of parameter `param` of the stage at `node`.
+    pub fn slot_of(&self, node: NodeId, param: &str) -> Option<SlotId> {
+        let stage = &self.names[node.index()];
+        self.slots
+            .iter()
+            .position(|s| s.id.is(stage, param))
+            .map(SlotId::new)
     }
 }

@@ -15,7 +15,7 @@
 //! drift.
 
 use super::node::{self, Node};
-use super::plan::{DriftSlot, NodeId, Slot, SlotId};
+use super::plan::{DriftSlot, NodeId, Slot, SlotId, SourceName};
 use crate::model::{Chain, TrackGroup};
 
 /// One group's common component: the slots it moves and how much of each
@@ -24,7 +24,7 @@ use crate::model::{Chain, TrackGroup};
 pub struct Group {
     /// The component's source id (`track:NAME`, `track:NAME:drift`): no
     /// parameter id has a colon, so it cannot clash with one.
-    pub id: String,
+    pub id: SourceName,
     pub parts: Vec<GroupPart>,
     /// Drawn as a 3σ normal rather than rectangular (every member's
     /// limit is `normal`).
@@ -106,7 +106,7 @@ fn value_group(
             part(s, h, own)
         })
         .collect();
-    make(format!("track:{}", group.name), parts, slots)
+    make(SourceName::track(&group.name, false), parts, slots)
 }
 
 fn drift_group(
@@ -128,7 +128,7 @@ fn drift_group(
             part(d.slot, h, tracking / 2.0 * scale)
         })
         .collect();
-    make(format!("track:{}:drift", group.name), parts, slots)
+    make(SourceName::track(&group.name, true), parts, slots)
 }
 
 /// A slot of half-width `h` whose own part is `own` wide; none when it
@@ -140,7 +140,7 @@ fn part(slot: SlotId, h: f64, own: f64) -> Option<GroupPart> {
     })
 }
 
-fn make(id: String, parts: Vec<GroupPart>, slots: &[Slot]) -> Option<Group> {
+fn make(id: SourceName, parts: Vec<GroupPart>, slots: &[Slot]) -> Option<Group> {
     if parts.len() < 2 {
         return None;
     }

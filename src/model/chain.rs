@@ -4,7 +4,7 @@
 use std::sync::Arc;
 
 use super::ports::Port;
-use super::typed::StageModel;
+use super::typed::{Side, StageModel};
 use super::value::{ParamValue, ResolvedParam};
 use crate::diagnostics::{Cause, SourceFile, Span};
 use crate::syntax::ast::StageKind;
@@ -109,8 +109,7 @@ pub struct Protects {
 
 #[derive(Clone, Debug)]
 pub struct Alarm {
-    /// `high` or `low`.
-    pub side: String,
+    pub side: Side,
     /// SI (kelvin for temperatures).
     pub at: f64,
     pub span: Span,

@@ -29,6 +29,7 @@ pub use graph::output_signals;
 pub use parts::PartsCache;
 pub use requirement::{AccuracyMethod, RequirementKind};
 pub use settings::DEFAULT_REFERENCE_K;
+pub use typed::Side;
 
 use crate::diagnostics::{backticked, did_you_mean_or, Code, Finding, Findings, SourceFile};
 use crate::syntax::ast::{ChainDecl, Ident, StageDecl, UseDecl};

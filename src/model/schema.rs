@@ -5,8 +5,8 @@
 use super::chain::Bill;
 use super::typed::{
     Adc, AdcInput, Amplifier, Bridge, BridgeForm, CalibrationMethod, ColdJunction, Combine,
-    CombineOp, ConversionMethod, Convert, DividerSide, Excitation, Filter, GaugeSide, IcCurrent,
-    IcVoltage, Resistor, Rtd, RtdCurveName, Sampling, Source, StageModel, StrainGauge, Thermistor,
+    CombineOp, ConversionMethod, Convert, Excitation, Filter, GaugeSide, IcCurrent, IcVoltage,
+    Resistor, Rtd, RtdCurveName, Sampling, Side, Source, StageModel, StrainGauge, Thermistor,
     ThermistorLaw, Thermocouple, Transducer,
 };
 use super::value::{Measure, ParamValue, ResolvedParam, Tolerance};
@@ -270,6 +270,9 @@ pub mod param {
     pub const CLASS: &str = "class";
     pub const CMRR: &str = "cmrr";
     pub const COMPLIANCE: &str = "compliance";
+    /// A current source's model line, which states its value.
+    pub const CURRENT: &str = "current";
+    pub const CURRENT_NOISE: &str = "current_noise";
     pub const DISSIPATION: &str = "dissipation";
     pub const DRIFT: &str = "drift";
     pub const GAIN: &str = "gain";
@@ -281,6 +284,7 @@ pub mod param {
     pub const INPUT: &str = "input";
     pub const LIMIT: &str = "limit";
     pub const MAX_CURRENT: &str = "max_current";
+    pub const NOISE: &str = "noise";
     pub const NONLINEARITY: &str = "nonlinearity";
     pub const OFFSET: &str = "offset";
     pub const OFFSET_DRIFT: &str = "offset_drift";
@@ -295,6 +299,8 @@ pub mod param {
     pub const SAMPLING_CAPACITANCE: &str = "sampling_capacitance";
     pub const SLOPE: &str = "slope";
     pub const SPAN_DRIFT: &str = "span_drift";
+    /// A voltage source's model line, which states its value.
+    pub const VOLTAGE: &str = "voltage";
     pub const TOLERANCE: &str = "tolerance";
     pub const ZERO: &str = "zero";
     pub const ZERO_DRIFT: &str = "zero_drift";
@@ -336,13 +342,13 @@ pub const THERMOCOUPLE_TYPES: &[&str] = &["B", "E", "J", "K", "N", "R", "S", "T"
 static MODELS: &[ModelSpec] = &[
     ModelSpec {
         kind: StageKind::Excitation,
-        model: Some("current"),
+        model: Some(param::CURRENT),
         role: Role::CurrentSource,
         measures: Measures::Nothing,
         model_shape: measure(AMP),
         params: &[
             p(param::DRIFT, Shape::Limit(Expect::PerKelvin(Dim::CURRENT))),
-            p("noise", Shape::Limit(CURRENT_NOISE)),
+            p(param::NOISE, Shape::Limit(CURRENT_NOISE)),
             p(param::COMPLIANCE, plain(VOLT)).positive(),
             COST,
             POWER,
@@ -354,13 +360,13 @@ static MODELS: &[ModelSpec] = &[
     },
     ModelSpec {
         kind: StageKind::Excitation,
-        model: Some("voltage"),
+        model: Some(param::VOLTAGE),
         role: Role::VoltageSource,
         measures: Measures::Nothing,
         model_shape: measure(VOLT),
         params: &[
             p(param::DRIFT, Shape::Limit(Expect::PerKelvin(Dim::VOLTAGE))),
-            p("noise", Shape::Limit(VOLTAGE_NOISE)),
+            p(param::NOISE, Shape::Limit(VOLTAGE_NOISE)),
             p(param::LIMIT, plain(AMP)).positive(),
             COST,
             POWER,
@@ -457,7 +463,7 @@ static MODELS: &[ModelSpec] = &[
             )
             .required(),
             p(param::ACCURACY, Shape::Limit(Expect::TempDiff)),
-            p("noise", Shape::Limit(VOLTAGE_NOISE)),
+            p(param::NOISE, Shape::Limit(VOLTAGE_NOISE)),
             p(param::OUTPUT_RESISTANCE, plain(OHM)).non_negative(),
             p("supply", Shape::Range(VOLT)),
             p("supply_current", plain(AMP)).non_negative(),
@@ -573,7 +579,7 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p(param::R, measure(OHM)).required().positive(),
-            p("sensor", Shape::Words(&["low", "high"])),
+            p("sensor", Shape::Words(&Side::WORDS)),
             COST,
             POWER,
         ],
@@ -637,9 +643,13 @@ static MODELS: &[ModelSpec] = &[
                 param::GAIN_DRIFT,
                 Shape::Limit(Expect::PerKelvin(Dim::NONE)),
             ),
-            p("noise", plain(Expect::Dim(Dim::VOLTAGE_DENSITY))).non_negative(),
+            p(param::NOISE, plain(Expect::Dim(Dim::VOLTAGE_DENSITY))).non_negative(),
             p("noise_corner", plain(HERTZ)).non_negative(),
-            p("current_noise", plain(Expect::Dim(Dim::CURRENT_DENSITY))).non_negative(),
+            p(
+                param::CURRENT_NOISE,
+                plain(Expect::Dim(Dim::CURRENT_DENSITY)),
+            )
+            .non_negative(),
             p(param::BIAS, Shape::Limit(AMP)),
             p("burnout", plain(AMP)).positive(),
             p(param::CMRR, plain(Expect::Decibel)).positive(),
@@ -689,7 +699,7 @@ static MODELS: &[ModelSpec] = &[
             p(param::OFFSET, Shape::Limit(VOLTAGE_OR_CODES)),
             p(param::GAIN_ERROR, Shape::Limit(RATIO_OR_CODES)),
             p(param::INL, Shape::Limit(RATIO_OR_CODES)),
-            p("noise", Shape::Limit(VOLTAGE_OR_CODES)),
+            p(param::NOISE, Shape::Limit(VOLTAGE_OR_CODES)),
             p("rate", plain(HERTZ)).positive(),
             p("notch", plain(HERTZ)).positive(),
             p(param::REF_RANGE, Shape::Range(VOLT)),
@@ -714,7 +724,7 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "offset"),
             (CHANNEL_OF, "gain_error"),
             (CHANNEL_OF, "inl"),
-            (CHANNEL_OF, "noise"),
+            (CHANNEL_OF, param::NOISE),
             (CHANNEL_OF, "rate"),
             (CHANNEL_OF, "notch"),
             (CHANNEL_OF, "ref_range"),
@@ -766,8 +776,8 @@ pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
         StageModel::Bridge(b) => Some(("r", b.r.as_ref()?)),
         StageModel::Excitation(e) => Some((
             match e.source {
-                Source::Current { .. } => "current",
-                Source::Voltage { .. } => "voltage",
+                Source::Current { .. } => param::CURRENT,
+                Source::Voltage { .. } => param::VOLTAGE,
             },
             &e.value,
         )),
@@ -943,7 +953,7 @@ fn read_excitation(r: &Reader<'_>, source: Source, name: &str) -> Option<StageMo
         source,
         value: r.measure(name)?,
         drift: r.limit(param::DRIFT),
-        noise: r.limit("noise"),
+        noise: r.limit(param::NOISE),
     }))
 }
 
@@ -951,14 +961,14 @@ fn read_current(r: &Reader<'_>) -> Option<StageModel> {
     let source = Source::Current {
         compliance: r.value(param::COMPLIANCE),
     };
-    read_excitation(r, source, "current")
+    read_excitation(r, source, param::CURRENT)
 }
 
 fn read_voltage(r: &Reader<'_>) -> Option<StageModel> {
     let source = Source::Voltage {
         limit: r.value(param::LIMIT),
     };
-    read_excitation(r, source, "voltage")
+    read_excitation(r, source, param::VOLTAGE)
 }
 
 fn read_rtd(r: &Reader<'_>) -> Option<StageModel> {
@@ -1048,7 +1058,7 @@ fn read_ic_voltage(r: &Reader<'_>) -> Option<StageModel> {
         output,
         output_at,
         accuracy: r.limit(param::ACCURACY),
-        noise: r.limit("noise"),
+        noise: r.limit(param::NOISE),
         output_resistance: r.measure(param::OUTPUT_RESISTANCE),
         supply: r.range("supply"),
         supply_current: r.value("supply_current"),
@@ -1118,8 +1128,8 @@ fn read_bridge(r: &Reader<'_>, form: BridgeForm) -> Option<StageModel> {
 }
 
 fn read_divider(r: &Reader<'_>) -> Option<StageModel> {
-    let side = r.choice("sensor", DividerSide::from_word).ok()?;
-    read_bridge(r, BridgeForm::Divider(side.unwrap_or(DividerSide::Low)))
+    let side = r.choice("sensor", Side::from_word).ok()?;
+    read_bridge(r, BridgeForm::Divider(side.unwrap_or(Side::Low)))
 }
 
 fn read_quarter(r: &Reader<'_>) -> Option<StageModel> {
@@ -1140,9 +1150,9 @@ fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
         offset: r.limit(param::OFFSET),
         offset_drift: r.limit(param::OFFSET_DRIFT),
         gain_drift: r.limit(param::GAIN_DRIFT),
-        noise: r.value("noise"),
+        noise: r.value(param::NOISE),
         noise_corner: r.value("noise_corner"),
-        current_noise: r.value("current_noise"),
+        current_noise: r.value(param::CURRENT_NOISE),
         bias: r.limit(param::BIAS),
         burnout: r.value("burnout"),
         cmrr: r.value(param::CMRR),
@@ -1221,7 +1231,7 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         offset: r.limit(param::OFFSET),
         gain_error: r.limit(param::GAIN_ERROR),
         inl: r.limit(param::INL),
-        noise: r.limit("noise"),
+        noise: r.limit(param::NOISE),
         rate: r.value("rate"),
         notch: r.value("notch"),
         ref_range: r.range(param::REF_RANGE),

@@ -7,6 +7,7 @@ use super::chain::{Alarm, Measurand, Protects, Requirement};
 use super::interpret::{interpret, Context};
 use super::requirement::{AccuracyMethod, RequirementKind};
 use super::schema::{Expect, Plausible, Shape};
+use super::typed::Side;
 use super::value::{Basis, ParamValue};
 use crate::diagnostics::{did_you_mean, did_you_mean_or};
 use crate::diagnostics::{Code, Finding, Findings, SourceFile, Span};
@@ -432,7 +433,7 @@ fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {
             "a side and a limit, such as `alarm high 8 degC`",
         ));
     };
-    if side.name != "high" && side.name != "low" {
+    let Some(which) = Side::from_word(&side.name) else {
         return Err(Box::new(
             Finding::new(
                 Code::P310,
@@ -442,11 +443,11 @@ fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {
             .label(side.span, "expected `high` or `low`")
             .help(did_you_mean_or(
                 &side.name,
-                ["high", "low"].into_iter(),
+                [Side::High, Side::Low].map(Side::word).into_iter(),
                 || "write `alarm high <limit>` or `alarm low <limit>`".to_string(),
             )),
         ));
-    }
+    };
     let value = interpret(
         "alarm",
         Shape::Measure {
@@ -463,7 +464,7 @@ fn alarm(setting: &Setting, cx: &Context<'_>) -> Result<Alarm, Box<Finding>> {
         unreachable!("a measure shape gives a measure")
     };
     Ok(Alarm {
-        side: side.name.clone(),
+        side: which,
         at: m.nominal,
         span: setting.span,
     })

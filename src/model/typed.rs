@@ -226,27 +226,48 @@ pub struct Resistor {
     pub r: Measure,
 }
 
-/// Where a divider's sensing element sits.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum DividerSide {
+/// One end of a range: where a divider's sensing element sits, or which
+/// side of the measurand an alarm guards. Its words are the grammar's.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub enum Side {
     Low,
     High,
 }
 
-impl DividerSide {
+impl Side {
+    /// The grammar's words.
+    pub const WORDS: [&'static str; 2] = [Self::Low.word(), Self::High.word()];
+
     pub fn from_word(word: &str) -> Option<Self> {
-        match word {
-            "low" => Some(Self::Low),
-            "high" => Some(Self::High),
-            _ => None,
+        [Self::Low, Self::High]
+            .into_iter()
+            .find(|s| s.word() == word)
+    }
+
+    pub const fn word(self) -> &'static str {
+        match self {
+            Self::Low => "low",
+            Self::High => "high",
         }
+    }
+}
+
+impl std::fmt::Display for Side {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.pad(self.word())
+    }
+}
+
+impl serde::Serialize for Side {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.serialize_str(self.word())
     }
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum BridgeForm {
     /// The element low unless stated.
-    Divider(DividerSide),
+    Divider(Side),
     Quarter,
     Half,
     Full,

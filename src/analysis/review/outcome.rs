@@ -86,7 +86,7 @@ pub struct LimitOutcome {
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct AlarmOutcome {
-    pub side: String,
+    pub side: crate::model::Side,
     pub at: f64,
     pub trip_at: f64,
     pub trip_code: i64,
@@ -380,7 +380,7 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis, faults: Option<&FaultRe
             .alarms
             .iter()
             .map(|x| AlarmOutcome {
-                side: x.side.clone(),
+                side: x.side,
                 at: from_si(x.at, &m_unit),
                 trip_at: from_si(x.trip_at, &m_unit),
                 trip_code: x.trip_code,
@@ -462,13 +462,13 @@ fn sources(a: &Analysis, f: f64) -> Vec<SourceOutcome> {
     let mut out: Vec<SourceOutcome> = Vec::new();
     for p in &a.budget.points {
         for c in &p.contributions {
-            match out.iter_mut().find(|s| s.id == c.id) {
+            match out.iter_mut().find(|s| s.id == c.id.as_str()) {
                 Some(s) => {
                     s.contribution = s.contribution.max(c.worst * f);
                     s.standard_uncertainty = s.standard_uncertainty.max(c.standard * f);
                 }
                 None => out.push(SourceOutcome {
-                    id: c.id.clone(),
+                    id: c.id.to_string(),
                     kind: c.kind,
                     contribution: c.worst * f,
                     standard_uncertainty: c.standard * f,
@@ -501,7 +501,7 @@ fn largest(a: &Analysis) -> Option<(String, f64)> {
     p.contributions
         .iter()
         .max_by(|x, y| x.standard.total_cmp(&y.standard))
-        .map(|c| (c.id.clone(), c.standard * c.standard / total))
+        .map(|c| (c.id.to_string(), c.standard * c.standard / total))
 }
 
 fn window(plan: &Plan) -> Option<[i64; 2]> {

@@ -7,7 +7,7 @@ use serde::Serialize;
 
 use crate::diagnostics::{SourceFile, Span};
 use crate::model::value::{Measure, ParamValue, Tolerance};
-use crate::model::{Chain, Connection, RequirementKind, Stage};
+use crate::model::{Chain, Connection, RequirementKind, Side, Stage};
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "snake_case")]
@@ -171,13 +171,13 @@ fn settings(old: &Chain, new: &Chain, out: &mut Vec<SpecChange>) {
         };
         out.push(change("setting", "protects".into(), at(old), at(new)));
     }
-    for side in ["high", "low"] {
-        fn find<'c>(c: &'c Chain, side: &str) -> Option<&'c crate::model::Alarm> {
+    for side in [Side::High, Side::Low] {
+        fn find(c: &Chain, side: Side) -> Option<&crate::model::Alarm> {
             c.alarms.iter().find(|a| a.side == side)
         }
         if find(old, side).map(|a| a.at) != find(new, side).map(|a| a.at) {
             let at = |c: &Chain| find(c, side).map(|a| locate(&c.file, &c.file, a.span));
-            out.push(change("alarm", side.into(), at(old), at(new)));
+            out.push(change("alarm", side.to_string(), at(old), at(new)));
         }
     }
 }

@@ -6,6 +6,7 @@ use super::{
     alarm_names, constant_comment, constants, conversion_words, named_curves, number, source_tag,
     undetected_words, wrap, ChainExport, Constant, Curve, Export, Value, CAUTION,
 };
+use crate::model::Side;
 
 /// The header and the source; `header_name` is how the source includes
 /// the header (`"cold_store.h"`).
@@ -165,9 +166,9 @@ fn source_part(chain: &ChainExport, tag: &str) -> String {
         let args = alarm_args(chain);
         // With a cold junction the code alone does not say the temperature:
         // compare the reading.
-        let test = match (chain.junction.is_some(), a.side == "high", a.trips_upward) {
-            (true, true, _) => format!("{l}_reading(code, cold_junction) >= {p}_{name}_TRIP"),
-            (true, false, _) => format!("{l}_reading(code, cold_junction) <= {p}_{name}_TRIP"),
+        let test = match (chain.junction.is_some(), a.side, a.trips_upward) {
+            (true, Side::High, _) => format!("{l}_reading(code, cold_junction) >= {p}_{name}_TRIP"),
+            (true, Side::Low, _) => format!("{l}_reading(code, cold_junction) <= {p}_{name}_TRIP"),
             (false, _, true) => format!("code >= {p}_{name}_TRIP_CODE"),
             (false, _, false) => format!("code <= {p}_{name}_TRIP_CODE"),
         };

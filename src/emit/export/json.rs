@@ -7,6 +7,7 @@ use super::{
     alarm_names, conversion_words, fault_name, ChainExport, Curve, Export, Origin, CAUTION,
 };
 use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
+use crate::model::Side;
 
 #[derive(Serialize)]
 struct Document<'a> {
@@ -242,7 +243,7 @@ fn fault_json(f: &FaultVerdict) -> FaultJson<'_> {
 #[derive(Serialize)]
 struct AlarmJson<'a> {
     name: String,
-    side: &'a str,
+    side: Side,
     limit: f64,
     guard_band: f64,
     trip: f64,
@@ -323,7 +324,7 @@ fn chain(c: &ChainExport) -> ChainJson<'_> {
             .zip(alarm_names(c))
             .map(|(a, name)| AlarmJson {
                 name,
-                side: &a.side,
+                side: a.side,
                 limit: a.at,
                 guard_band: a.guard_band,
                 trip: a.trip_at,

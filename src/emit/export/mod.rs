@@ -21,6 +21,7 @@ pub use model::{
 pub use rust::render as render_rust;
 
 use crate::analysis::faults::{FaultCodes, FaultVerdict, Threshold};
+use crate::model::Side;
 use crate::units::format::{codes, trimmed};
 
 /// Everything one run exports: the chains of one spec.
@@ -115,14 +116,14 @@ fn constant(name: &str, what: String, unit: &str, value: Value) -> Constant {
 /// The alarms' names: `ALARM_HIGH`, `ALARM_LOW`, and `ALARM_HIGH_2` for
 /// a second of one side.
 pub fn alarm_names(chain: &ChainExport) -> Vec<String> {
-    let mut seen: Vec<&str> = Vec::new();
+    let mut seen: Vec<Side> = Vec::new();
     chain
         .alarms
         .iter()
         .map(|a| {
-            seen.push(&a.side);
+            seen.push(a.side);
             let n = seen.iter().filter(|s| **s == a.side).count();
-            let side = a.side.to_uppercase();
+            let side = a.side.word().to_uppercase();
             if n == 1 {
                 format!("ALARM_{side}")
             } else {
@@ -377,24 +378,33 @@ fn junction_constants(chain: &ChainExport, j: &Junction) -> Vec<Constant> {
 /// A detectable fault's threshold constants: `FAULT_<STAGE>_<FAULT>_BELOW`
 /// (the fault is present at codes below it), `_ABOVE`, or both for a fault
 /// that leaves the code at either end; each with its code and side.
-pub fn fault_constants_of(f: &FaultVerdict) -> Vec<(String, i64, &'static str)> {
+pub fn fault_constants_of(f: &FaultVerdict) -> Vec<(String, i64, Side)> {
     let sides = match f.threshold {
-        Some(Threshold::Below(n)) => vec![(n, "BELOW")],
-        Some(Threshold::Above(n)) => vec![(n, "ABOVE")],
-        Some(Threshold::Outside(a, b)) => vec![(a, "BELOW"), (b, "ABOVE")],
+        Some(Threshold::Below(n)) => vec![(n, Side::Low)],
+        Some(Threshold::Above(n)) => vec![(n, Side::High)],
+        Some(Threshold::Outside(a, b)) => vec![(a, Side::Low), (b, Side::High)],
         None => Vec::new(),
     };
     sides
         .into_iter()
         .map(|(code, side)| {
             let name = format!(
-                "FAULT_{}_{}_{side}",
+                "FAULT_{}_{}_{}",
                 f.stage.to_uppercase(),
-                f.fault.kind.name().to_uppercase()
+                f.fault.kind.name().to_uppercase(),
+                beyond(side).to_uppercase()
             );
             (name, code, side)
         })
         .collect()
+}
+
+/// Where a fault's codes lie from its threshold, in words.
+fn beyond(side: Side) -> &'static str {
+    match side {
+        Side::Low => "below",
+        Side::High => "above",
+    }
 }
 
 /// A detectable fault's threshold constant names, comma-separated.
@@ -434,7 +444,7 @@ fn fault_constants(chain: &ChainExport) -> Vec<Constant> {
             ),
         };
         for (name, code, side) in fault_constants_of(f) {
-            let side = if side == "BELOW" { "below" } else { "above" };
+            let side = beyond(side);
             out.push(constant(
             &name,
             format!(

@@ -23,7 +23,7 @@ use crate::model::requirement::RequirementKind;
 use crate::model::schema;
 use crate::model::typed::ConversionMethod;
 use crate::model::value::{Basis, ParamValue};
-use crate::model::Chain;
+use crate::model::{Chain, Side};
 use crate::physics::adc::Polarity;
 use crate::physics::thermocouple::ThermocoupleType;
 use crate::units::format::from_si;
@@ -127,8 +127,7 @@ pub struct CalibrationExport {
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct AlarmExport {
-    /// `high` or `low`.
-    pub side: String,
+    pub side: Side,
     /// The limit and where the trip is set, in the reading's unit.
     pub at: f64,
     pub trip_at: f64,
@@ -299,7 +298,7 @@ pub fn chain_export(chain: &Chain, plan: &Plan) -> Result<ChainExport, ExportErr
         max_error_junction: None,
     };
     for a in &mut export.alarms {
-        a.trips_upward = (a.side == "high") == export.rising;
+        a.trips_upward = (a.side == Side::High) == export.rising;
     }
     set_largest_error(&mut export, worst, &samples, &truth);
     Ok(export)

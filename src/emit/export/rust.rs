@@ -5,6 +5,7 @@ use super::{
     alarm_names, constant_comment, constants, conversion_words, named_curves, number, source_tag,
     undetected_words, ChainExport, Constant, Curve, Export, Value, CAUTION,
 };
+use crate::model::Side;
 
 pub fn render(export: &Export) -> String {
     let tag = source_tag(&export.source);
@@ -82,12 +83,12 @@ fn module(chain: &ChainExport, tag: &str) -> String {
     for (a, name) in chain.alarms.iter().zip(alarm_names(chain)) {
         // With a cold junction the code alone does not say the temperature:
         // compare the reading.
-        let (args, test) = match (chain.junction.is_some(), a.side == "high", a.trips_upward) {
-            (true, true, _) => (
+        let (args, test) = match (chain.junction.is_some(), a.side, a.trips_upward) {
+            (true, Side::High, _) => (
                 "code: f64, cold_junction: f64",
                 format!("reading_mean(code, cold_junction) >= {name}_TRIP"),
             ),
-            (true, false, _) => (
+            (true, Side::Low, _) => (
                 "code: f64, cold_junction: f64",
                 format!("reading_mean(code, cold_junction) <= {name}_TRIP"),
             ),

@@ -101,7 +101,7 @@ pub fn chain_report(
             .alarms
             .iter()
             .map(|x| AlarmRow {
-                side: x.side.clone(),
+                side: x.side,
                 at: units.position(x.at),
                 code: x.code,
                 guard_band: x.guard_band * units.f,
@@ -504,7 +504,7 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
                 signal_unit: n.unit.to_string(),
                 gain: n.gain * units.per_written(),
                 error: n.error * f,
-                dominant: n.dominant.clone(),
+                dominant: n.dominant.as_ref().map(ToString::to_string),
                 cancels: n.cancels.as_ref().map(|x| CancelRow {
                     source: x.source.clone(),
                     before: x.before * f,
@@ -534,12 +534,12 @@ fn contributors(a: &Analysis, i: usize, f: f64) -> Vec<Contributor> {
         .contributions
         .iter()
         .map(|c| Contributor {
-            id: c.id.clone(),
+            id: c.id.to_string(),
             kind: c.kind.to_string(),
             contribution: c.worst * f,
             standard_uncertainty: c.standard * f,
             gum_share: p.gum_share(c),
-            monte_carlo_share: a.monte_carlo_share(i, &c.id),
+            monte_carlo_share: a.monte_carlo_share(i, c.id.as_str()),
         })
         .collect();
     out.sort_by(|x, y| {
@@ -567,12 +567,12 @@ fn noise(a: &Analysis, units: &Units) -> NoiseSection {
         .terms
         .iter()
         .map(|t| NoiseTermRow {
-            id: t.id.clone(),
+            id: t.id.to_string(),
             v_rms: Some(t.rms_v),
             referred: t.rms_v * per_volt * f,
         })
         .chain(n.referred.iter().map(|t| NoiseTermRow {
-            id: t.id.clone(),
+            id: t.id.to_string(),
             v_rms: None,
             referred: t.rms_v * f,
         }))

@@ -363,7 +363,7 @@ pub struct HeadroomPoint {
 
 #[derive(Clone, Debug, Serialize)]
 pub struct AlarmRow {
-    pub side: String,
+    pub side: crate::model::Side,
     pub at: f64,
     pub code: i64,
     pub guard_band: f64,

@@ -8,7 +8,7 @@ use crate::eval::element::Supply;
 use crate::eval::fault::{FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::model::schema;
-use crate::model::typed::{self, BridgeForm, DividerSide};
+use crate::model::typed::{self, BridgeForm, Side};
 use crate::physics::strain;
 
 #[derive(Clone, Debug, PartialEq)]
@@ -35,7 +35,7 @@ pub enum BridgeKind {
 pub(super) fn lower(m: &typed::Bridge, cx: &mut Cx<'_>) -> Result<Bridge, EvalError> {
     let kind = match m.form {
         BridgeForm::Divider(side) => BridgeKind::Divider {
-            sensor_high: side == DividerSide::High,
+            sensor_high: side == Side::High,
         },
         BridgeForm::Quarter => BridgeKind::Quarter,
         BridgeForm::Half => BridgeKind::Half,

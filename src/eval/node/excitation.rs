@@ -19,8 +19,8 @@ pub struct Excitation {
 
 pub(super) fn lower(m: &typed::Excitation, cx: &mut Cx<'_>) -> Result<Excitation, EvalError> {
     let (current, name, compliance) = match m.source {
-        Source::Current { compliance } => (true, "current", compliance),
-        Source::Voltage { .. } => (false, "voltage", None),
+        Source::Current { compliance } => (true, schema::param::CURRENT, compliance),
+        Source::Voltage { .. } => (false, schema::param::VOLTAGE, None),
     };
     let value = cx.measure(name, SourceKind::Tolerance, &m.value);
     // A drift on its own line takes the place of one on the value.

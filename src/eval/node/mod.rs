@@ -38,6 +38,7 @@ use super::fault::{Fault, FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
 use super::lanes::{Column, LaneRun, Lost};
 use super::plan::{
     DriftSlot, Env, EvalError, NodeId, Plan, SenseError, Senses, Signal, Slot, SlotId, SourceKind,
+    SourceName,
 };
 use super::run::{Mode, MAX_NODES};
 use crate::model::typed::{CombineOp, StageModel};
@@ -563,8 +564,8 @@ pub(super) struct Cx<'a> {
 }
 
 impl Cx<'_> {
-    fn id(&self, parameter: &str) -> String {
-        format!("{}.{parameter}", self.owner)
+    fn id(&self, parameter: &str) -> SourceName {
+        SourceName::param(self.owner, parameter)
     }
 
     pub(super) fn not_invertible(&self, what: &str) -> EvalError {
