@@ -56,39 +56,57 @@ pub fn first_order(y: &Centered, stream: Stream, cells: usize) -> f64 {
 /// source's recorded cells sums at once.
 pub const GROUP: usize = 8;
 
-/// Up to [`GROUP`] runs' outputs about their means, trial by trial side by
-/// side (a missing run's deviations are zero), with each run's sum of
-/// squares: the same numbers [`Centered`] holds for each run alone.
-pub struct CenteredGroup {
-    rows: Vec<[f64; GROUP]>,
+/// Up to [`GROUP`] runs' outputs with their means and sums of squares
+/// about them: the same numbers [`Centered`] holds for each run alone.
+/// The deviations are laid side by side a block of trials at a time, so
+/// no copy of the whole runs is made.
+pub struct CenteredGroup<'a> {
+    runs: Vec<&'a [f64]>,
+    means: [f64; GROUP],
     totals: [f64; GROUP],
-    runs: usize,
+    n: usize,
 }
 
-impl CenteredGroup {
+impl<'a> CenteredGroup<'a> {
     /// `runs` (1 to [`GROUP`], all of one length).
-    pub fn new(runs: &[&[f64]]) -> CenteredGroup {
-        let n = runs.first().map_or(0, |y| y.len());
-        let mut rows = vec![[0.0; GROUP]; n];
-        let mut totals = [0.0; GROUP];
-        for (g, y) in runs.iter().enumerate().take(GROUP) {
+    pub fn new(runs: &[&'a [f64]]) -> CenteredGroup<'a> {
+        let runs: Vec<&[f64]> = runs.iter().take(GROUP).copied().collect();
+        let (mut means, mut totals) = ([0.0; GROUP], [0.0; GROUP]);
+        for (g, y) in runs.iter().enumerate() {
             let mean = y.iter().sum::<f64>() / y.len().max(1) as f64;
-            for (row, v) in rows.iter_mut().zip(y.iter()) {
-                row[g] = v - mean;
-            }
-            totals[g] = rows.iter().map(|r| r[g] * r[g]).sum();
+            means[g] = mean;
+            totals[g] = y.iter().map(|v| v - mean).map(|d| d * d).sum();
         }
         CenteredGroup {
-            rows,
+            n: runs.first().map_or(0, |y| y.len()),
+            runs,
+            means,
             totals,
-            runs: runs.len().min(GROUP),
         }
+    }
+
+    /// Trial `t`'s deviation in run `g`.
+    #[inline]
+    fn deviation(&self, g: usize, t: usize) -> f64 {
+        self.runs[g][t] - self.means[g]
+    }
+
+    /// The deviations of trials `start ..` side by side into `rows` (a
+    /// missing run's are zero); how many trials that was.
+    fn rows(&self, start: usize, rows: &mut [[f64; GROUP]]) -> usize {
+        let len = rows.len().min(self.n - start);
+        for (g, y) in self.runs.iter().enumerate() {
+            for (row, v) in rows.iter_mut().zip(&y[start..start + len]) {
+                row[g] = v - self.means[g];
+            }
+        }
+        len
     }
 
     /// Run `g` alone.
     fn run(&self, g: usize) -> Centered {
         Centered {
-            deviations: self.rows.iter().map(|r| r[g]).collect(),
+            deviations: (0..self.n).map(|t| self.deviation(g, t)).collect(),
             total: self.totals[g],
         }
     }
@@ -96,16 +114,16 @@ impl CenteredGroup {
 
 /// [`first_order`] of run `g` of `y` for the source drawn from `stream`.
 pub fn first_order_in(y: &CenteredGroup, g: usize, stream: Stream, cells: usize) -> f64 {
-    let (n, total) = (y.rows.len(), y.totals[g]);
-    if !usable_of(n, total, cells) {
+    let (n, total) = (y.n, y.totals[g]);
+    if g >= y.runs.len() || !usable_of(n, total, cells) {
         return 0.0;
     }
     let mut count = vec![0u32; cells];
     let mut sum = vec![0.0; cells];
-    for (t, row) in y.rows.iter().enumerate() {
+    for t in 0..n {
         let cell = stream.cell(t as u64, cells);
         count[cell] += 1;
-        sum[cell] += row[g];
+        sum[cell] += y.deviation(g, t);
     }
     index_from(n, total, &count, &sum)
 }
@@ -135,8 +153,10 @@ pub fn first_order_columns(
     const BLOCK: usize = 1024;
     let mut count = vec![[0u32; MAX_CELLS]; columns.len()];
     let mut sum = vec![[[0.0; GROUP]; MAX_CELLS]; columns.len()];
-    for start in (0..y.rows.len()).step_by(BLOCK) {
-        let rows = &y.rows[start..(start + BLOCK).min(y.rows.len())];
+    let mut block = vec![[0.0; GROUP]; BLOCK];
+    for start in (0..y.n).step_by(BLOCK) {
+        let len = y.rows(start, &mut block);
+        let rows = &block[..len];
         for ((column, count), sum) in columns.iter().zip(&mut count).zip(&mut sum) {
             for (&cell, row) in column[start..start + rows.len()].iter().zip(rows) {
                 // A byte indexes tables of MAX_CELLS entries: no bounds check.
@@ -153,12 +173,12 @@ pub fn first_order_columns(
         .zip(&sum)
         .map(|(count, sum)| {
             std::array::from_fn(|g| {
-                let usable = g < y.runs && usable_of(y.rows.len(), y.totals[g], cells);
+                let usable = g < y.runs.len() && usable_of(y.n, y.totals[g], cells);
                 if !usable {
                     return 0.0;
                 }
                 let run: [f64; MAX_CELLS] = std::array::from_fn(|c| sum[c][g]);
-                index_from(y.rows.len(), y.totals[g], &count[..cells], &run[..cells])
+                index_from(y.n, y.totals[g], &count[..cells], &run[..cells])
             })
         })
         .collect()
