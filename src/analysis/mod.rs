@@ -20,6 +20,7 @@ pub mod shares;
 pub mod soundness;
 mod stages;
 pub mod step;
+pub mod tails;
 pub mod validation;
 pub mod window;
 

@@ -13,6 +13,8 @@ use rayon::prelude::*;
 use super::budget::Point;
 use super::draws::{cell_of, condition_key, normal_of, uniform_of, Stream};
 use super::noise::Noise;
+use super::shares::GROUP;
+use super::tails::{order_statistics, Ranks};
 use crate::eval::{
     half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneColumns, Plan, Slot, SlotId,
     SourceKind, LANES,
@@ -523,50 +525,61 @@ impl Run<'_> {
             })
             .collect();
         first_failure(outcomes, conditions.len())?;
-        Ok(errors
-            .par_iter_mut()
-            .zip(&at)
-            .map(|(all, at)| {
-                // The shares read the trials in their order, before the
-                // interval's selection reorders them.
-                let shares = if shares {
-                    variance_shares(plan, &sources, &at.reading, &cells, all)
-                } else {
-                    Vec::new()
-                };
-                Sampled {
-                    interval: coverage(all),
-                    shares,
-                }
-            })
+        let intervals: Vec<Interval> = errors.par_iter().map(|all| coverage(all)).collect();
+        let mut shared = if shares {
+            variance_shares(plan, &sources, &at, &cells, &errors)
+        } else {
+            Vec::new()
+        };
+        shared.resize(intervals.len(), Vec::new());
+        Ok(intervals
+            .into_iter()
+            .zip(shared)
+            .map(|(interval, shares)| Sampled { interval, shares })
             .collect())
     }
 }
 
-/// Each source's share of the variance of `errors`, from the cells
-/// recorded in `columns`; a fixed one's is 0.
+/// Each source's share of the variance of each condition's `errors`, from
+/// the cells recorded in `columns`; a fixed one's is 0. Conditions go
+/// [`GROUP`] at a time through one pass over each column.
 fn variance_shares(
     plan: &Plan,
     sources: &Sources,
-    reading: &Reading,
+    at: &[At],
     columns: &[Vec<u8>],
-    errors: &[f64],
-) -> Vec<Share> {
-    use super::shares::{first_order, first_order_of};
-    let cells = super::shares::cells(errors.len());
-    let centered = super::shares::Centered::new(errors);
-    sources
-        .named(plan)
-        .chain(reading.named())
-        .map(|(id, varies)| Share {
-            id: id.to_string(),
-            share: match varies {
-                Varies::Not => 0.0,
-                Varies::Column(k) => first_order_of(&centered, &columns[k], cells),
-                Varies::Stream(s) => first_order(&centered, s, cells),
-            },
+    errors: &[Vec<f64>],
+) -> Vec<Vec<Share>> {
+    use super::shares::{first_order_columns, first_order_in, CenteredGroup};
+    let columns: Vec<&[u8]> = columns.iter().map(Vec::as_slice).collect();
+    let groups: Vec<Vec<Vec<Share>>> = errors
+        .par_chunks(GROUP)
+        .zip(at.par_chunks(GROUP))
+        .map(|(errors, at)| {
+            let runs: Vec<&[f64]> = errors.iter().map(Vec::as_slice).collect();
+            let cells = super::shares::cells(runs.first().map_or(0, |r| r.len()));
+            let centered = CenteredGroup::new(&runs);
+            let by_column = first_order_columns(&centered, &columns, cells);
+            at.iter()
+                .enumerate()
+                .map(|(g, at)| {
+                    sources
+                        .named(plan)
+                        .chain(at.reading.named())
+                        .map(|(id, varies)| Share {
+                            id: id.to_string(),
+                            share: match varies {
+                                Varies::Not => 0.0,
+                                Varies::Column(k) => by_column[k][g],
+                                Varies::Stream(s) => first_order_in(&centered, g, s, cells),
+                            },
+                        })
+                        .collect()
+                })
+                .collect()
         })
-        .collect()
+        .collect();
+    groups.into_iter().flatten().collect()
 }
 
 /// What one chunk of trials needs besides its conditions.
@@ -677,48 +690,45 @@ struct Lanes {
     scratch: LaneColumns,
 }
 
-/// The probabilistically symmetric 95 % interval of `all` (not empty),
-/// which it reorders.
-fn coverage(all: &mut [f64]) -> Interval {
-    // Two order statistics, found by selection in linear time rather than
-    // by sorting a million errors.
+/// The probabilistically symmetric 95 % interval of `all` (not empty).
+fn coverage(all: &[f64]) -> Interval {
+    // Four order statistics, found in the two tails rather than by
+    // sorting a million errors.
     let tail = (1.0 - COVERAGE) / 2.0;
-    let rank = |p: f64| ((p * all.len() as f64).floor() as usize).min(all.len() - 1);
+    let n = all.len();
+    let rank = |p: f64| ((p * n as f64).floor() as usize).min(n - 1);
     let (low_rank, high_rank) = (rank(tail), rank(1.0 - tail));
     // The count of trials below a p-quantile is binomial: ±1.96 of its
-    // standard deviation in rank brackets the end at 95 %.
-    let m = all.len() as f64;
+    // standard deviation in rank brackets the end at 95 %, read on the
+    // end's outer side.
+    let m = n as f64;
     let reach = (1.96 * (m * tail * (1.0 - tail)).sqrt()).ceil() as usize;
-    let (_, high, above) = all.select_nth_unstable_by(high_rank, f64::total_cmp);
-    let high = *high;
-    let high_spread = match above.len() {
-        0 => 0.0,
-        n => {
-            *above
-                .select_nth_unstable_by(reach.clamp(1, n) - 1, f64::total_cmp)
-                .1
-                - high
-        }
-    };
-    let (low, low_spread) = if low_rank < high_rank {
-        let (below, low, _) = all[..high_rank].select_nth_unstable_by(low_rank, f64::total_cmp);
-        let low = *low;
-        let spread = match below.len() {
-            0 => 0.0,
-            n => {
-                low - *below
-                    .select_nth_unstable_by(n - reach.clamp(1, n), f64::total_cmp)
-                    .1
-            }
+    let above = n - 1 - high_rank;
+    let beyond_high = high_rank + if above == 0 { 0 } else { reach.clamp(1, above) };
+    let (low, beyond_low) = if low_rank < high_rank {
+        let below = if low_rank == 0 {
+            0
+        } else {
+            reach.clamp(1, low_rank)
         };
-        (low, spread)
+        (low_rank, low_rank - below)
     } else {
-        (high, 0.0)
+        (high_rank, high_rank)
     };
+    let ranks = Ranks {
+        low: (beyond_low, low),
+        high: (high_rank, beyond_high),
+    };
+    let [outer_low, low, high, outer_high] = order_statistics(all, ranks);
+    let spread = |outer: usize, end: usize, width: f64| if outer == end { 0.0 } else { width };
     Interval {
         low,
         high,
-        numerical: high_spread.max(low_spread),
+        numerical: spread(beyond_high, ranks.high.0, outer_high - high).max(spread(
+            beyond_low,
+            ranks.low.1,
+            low - outer_low,
+        )),
     }
 }
 
@@ -747,7 +757,7 @@ mod tests {
         let expected = 1.96 * (0.025f64 * 0.975 / M as f64).sqrt() / phi;
         let (mut highs, mut widths) = (Vec::new(), Vec::new());
         for seed in 0..300 {
-            let i = coverage(&mut normal_sample(seed, M));
+            let i = coverage(&normal_sample(seed, M));
             highs.push(i.high);
             widths.push(i.numerical);
             assert!(i.low < 0.0 && i.high > 0.0);

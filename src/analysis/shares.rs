@@ -52,24 +52,136 @@ pub fn first_order(y: &Centered, stream: Stream, cells: usize) -> f64 {
     first_order_by(y, cells, |t| stream.cell(t as u64, cells))
 }
 
-/// [`first_order`] with each trial's cell read from `cell_of` (as the
-/// Monte Carlo stores them while drawing), the same sums in the same order.
-pub fn first_order_of(y: &Centered, cell_of: &[u8], cells: usize) -> f64 {
-    // A byte indexes tables of MAX_CELLS entries: no bounds check, no
-    // allocation, in the loop every source and point runs.
-    if cells > MAX_CELLS {
-        return first_order_by(y, cells, |t| usize::from(cell_of[t]));
+/// Runs read side by side: how many conditions' outputs one pass over a
+/// source's recorded cells sums at once.
+pub const GROUP: usize = 8;
+
+/// Up to [`GROUP`] runs' outputs with their means and sums of squares
+/// about them: the same numbers [`Centered`] holds for each run alone.
+/// The deviations are laid side by side a block of trials at a time, so
+/// no copy of the whole runs is made.
+pub struct CenteredGroup<'a> {
+    runs: Vec<&'a [f64]>,
+    means: [f64; GROUP],
+    totals: [f64; GROUP],
+    n: usize,
+}
+
+impl<'a> CenteredGroup<'a> {
+    /// `runs` (1 to [`GROUP`], all of one length).
+    pub fn new(runs: &[&'a [f64]]) -> CenteredGroup<'a> {
+        let runs: Vec<&[f64]> = runs.iter().take(GROUP).copied().collect();
+        let (mut means, mut totals) = ([0.0; GROUP], [0.0; GROUP]);
+        for (g, y) in runs.iter().enumerate() {
+            let mean = y.iter().sum::<f64>() / y.len().max(1) as f64;
+            means[g] = mean;
+            totals[g] = y.iter().map(|v| v - mean).map(|d| d * d).sum();
+        }
+        CenteredGroup {
+            n: runs.first().map_or(0, |y| y.len()),
+            runs,
+            means,
+            totals,
+        }
     }
-    if !usable(y, cells) {
+
+    /// Trial `t`'s deviation in run `g`.
+    #[inline]
+    fn deviation(&self, g: usize, t: usize) -> f64 {
+        self.runs[g][t] - self.means[g]
+    }
+
+    /// The deviations of trials `start ..` side by side into `rows` (a
+    /// missing run's are zero); how many trials that was.
+    fn rows(&self, start: usize, rows: &mut [[f64; GROUP]]) -> usize {
+        let len = rows.len().min(self.n - start);
+        for (g, y) in self.runs.iter().enumerate() {
+            for (row, v) in rows.iter_mut().zip(&y[start..start + len]) {
+                row[g] = v - self.means[g];
+            }
+        }
+        len
+    }
+
+    /// Run `g` alone.
+    fn run(&self, g: usize) -> Centered {
+        Centered {
+            deviations: (0..self.n).map(|t| self.deviation(g, t)).collect(),
+            total: self.totals[g],
+        }
+    }
+}
+
+/// [`first_order`] of run `g` of `y` for the source drawn from `stream`.
+pub fn first_order_in(y: &CenteredGroup, g: usize, stream: Stream, cells: usize) -> f64 {
+    let (n, total) = (y.n, y.totals[g]);
+    if g >= y.runs.len() || !usable_of(n, total, cells) {
         return 0.0;
     }
-    let mut count = [0u32; MAX_CELLS];
-    let mut sum = [0.0; MAX_CELLS];
-    for (&cell, &d) in cell_of.iter().zip(&y.deviations) {
-        count[usize::from(cell)] += 1;
-        sum[usize::from(cell)] += d;
+    let mut count = vec![0u32; cells];
+    let mut sum = vec![0.0; cells];
+    for t in 0..n {
+        let cell = stream.cell(t as u64, cells);
+        count[cell] += 1;
+        sum[cell] += y.deviation(g, t);
     }
-    index_of(y, &count[..cells], &sum[..cells])
+    index_from(n, total, &count, &sum)
+}
+
+/// [`first_order`] of every run of `y` for each source whose cells the
+/// Monte Carlo recorded while drawing (`columns[k][t]`, trial t's cell):
+/// the same sums in the same order, each cell's sum of every run's
+/// deviations gathered in one pass over the trials (a cell's count is
+/// the same for every run).
+pub fn first_order_columns(
+    y: &CenteredGroup,
+    columns: &[&[u8]],
+    cells: usize,
+) -> Vec<[f64; GROUP]> {
+    if cells > MAX_CELLS {
+        return columns
+            .iter()
+            .map(|column| {
+                std::array::from_fn(|g| {
+                    first_order_by(&y.run(g), cells, |t| usize::from(column[t]))
+                })
+            })
+            .collect();
+    }
+    // Trials a block: each column's sums stay in cache while the block's
+    // rows are read once a column.
+    const BLOCK: usize = 1024;
+    let mut count = vec![[0u32; MAX_CELLS]; columns.len()];
+    let mut sum = vec![[[0.0; GROUP]; MAX_CELLS]; columns.len()];
+    let mut block = vec![[0.0; GROUP]; BLOCK];
+    for start in (0..y.n).step_by(BLOCK) {
+        let len = y.rows(start, &mut block);
+        let rows = &block[..len];
+        for ((column, count), sum) in columns.iter().zip(&mut count).zip(&mut sum) {
+            for (&cell, row) in column[start..start + rows.len()].iter().zip(rows) {
+                // A byte indexes tables of MAX_CELLS entries: no bounds check.
+                let cell = usize::from(cell);
+                count[cell] += 1;
+                // Written whole, so the additions go two to an instruction.
+                let s = &mut sum[cell];
+                *s = std::array::from_fn(|g| s[g] + row[g]);
+            }
+        }
+    }
+    count
+        .iter()
+        .zip(&sum)
+        .map(|(count, sum)| {
+            std::array::from_fn(|g| {
+                let usable = g < y.runs.len() && usable_of(y.n, y.totals[g], cells);
+                if !usable {
+                    return 0.0;
+                }
+                let run: [f64; MAX_CELLS] = std::array::from_fn(|c| sum[c][g]);
+                index_from(y.n, y.totals[g], &count[..cells], &run[..cells])
+            })
+        })
+        .collect()
 }
 
 fn first_order_by(y: &Centered, cells: usize, cell: impl Fn(usize) -> usize) -> f64 {
@@ -89,13 +201,21 @@ fn first_order_by(y: &Centered, cells: usize, cell: impl Fn(usize) -> usize) -> 
 /// Whether `cells` cells can partition the outputs: more trials than
 /// cells, at least 2, and a variance to share.
 fn usable(y: &Centered, cells: usize) -> bool {
-    let total = y.total;
-    y.deviations.len() > cells && cells >= 2 && total > 0.0 && total.is_finite()
+    usable_of(y.deviations.len(), y.total, cells)
+}
+
+fn usable_of(n: usize, total: f64, cells: usize) -> bool {
+    n > cells && cells >= 2 && total > 0.0 && total.is_finite()
 }
 
 /// The index from each cell's count and sum of deviations.
 fn index_of(y: &Centered, count: &[u32], sum: &[f64]) -> f64 {
-    let (n, cells, total) = (y.deviations.len(), count.len(), y.total);
+    index_from(y.deviations.len(), y.total, count, sum)
+}
+
+/// [`index_of`] of `n` outputs whose sum of squares is `total`.
+fn index_from(n: usize, total: f64, count: &[u32], sum: &[f64]) -> f64 {
+    let cells = count.len();
     let between: f64 = count
         .iter()
         .zip(sum)
@@ -137,6 +257,48 @@ mod tests {
         assert!((got[0] - 0.3139).abs() < 0.01, "{got:?}");
         assert!((got[1] - 0.4424).abs() < 0.01, "{got:?}");
         assert!(got[2] < 0.01, "{got:?}");
+    }
+
+    /// Runs side by side give each run's own indices to the bit: three
+    /// runs (a group not full) of different mixes of three sources, over
+    /// more trials than one block.
+    #[test]
+    fn grouped_runs_match_each_run_alone() {
+        let s: Vec<Stream> = ["a", "b", "c"]
+            .iter()
+            .map(|id| Stream::new(2, id, 0))
+            .collect();
+        let n = 10_001;
+        let cells = cells(n);
+        let runs: Vec<Vec<f64>> = (0..3)
+            .map(|r| {
+                let w = [1.0 + r as f64, 0.5, (r * r) as f64];
+                (0..n as u64)
+                    .map(|t| {
+                        (0..3)
+                            .map(|i| w[i] * s[i].uniform(t).powi(i as i32 + 1))
+                            .sum()
+                    })
+                    .collect()
+            })
+            .collect();
+        let columns: Vec<Vec<u8>> = s
+            .iter()
+            .map(|st| (0..n as u64).map(|t| st.cell(t, cells) as u8).collect())
+            .collect();
+        let slices: Vec<&[f64]> = runs.iter().map(Vec::as_slice).collect();
+        let group = CenteredGroup::new(&slices);
+        let columns: Vec<&[u8]> = columns.iter().map(Vec::as_slice).collect();
+        let grouped = first_order_columns(&group, &columns, cells);
+        for (g, run) in runs.iter().enumerate() {
+            let alone = Centered::new(run);
+            for (k, &st) in s.iter().enumerate() {
+                let want = first_order(&alone, st, cells).to_bits();
+                assert_eq!(grouped[k][g].to_bits(), want, "run {g} source {k}");
+                assert_eq!(first_order_in(&group, g, st, cells).to_bits(), want);
+            }
+        }
+        assert!(grouped.iter().all(|k| k[3..].iter().all(|&x| x == 0.0)));
     }
 
     /// A linear sum of two equal uniforms: each holds half the variance.
