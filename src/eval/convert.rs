@@ -5,6 +5,7 @@
 use super::env::{Env, Senses};
 use super::error::EvalError;
 use super::ids::{NodeId, SlotId};
+use super::run::within;
 use crate::model::typed::ConversionMethod;
 use crate::physics::solve::{bisect_at_most, brent};
 use crate::physics::thermocouple::{self, ThermocoupleType};
@@ -113,7 +114,13 @@ const JUNCTION_REACH_K: f64 = 150.0;
 
 impl JunctionTables {
     fn new(table: &InverseTable, ty: ThermocoupleType, domain: (f64, f64)) -> Option<Self> {
-        let emf_c = |t_k: f64| thermocouple::emf_mv(ty, t_k - ZERO_CELSIUS_K).ok();
+        // The couple's node reads a temperature within a nanokelvin of
+        // its type's range as the end itself, and a domain bisected to
+        // where the chain evaluates ends there: so must the table.
+        let emf_c = |t_k: f64| {
+            let t_c = within(t_k - ZERO_CELSIUS_K, ty.range_c())?;
+            thermocouple::emf_mv(ty, t_c).ok()
+        };
         let emfs = table
             .xs
             .iter()
@@ -901,8 +908,32 @@ pub fn solve(
 
 #[cfg(test)]
 mod tests {
+    use super::{grid, InverseTable, JunctionTables, TableUse};
     use super::{interpolate, least_squares, segment, solve, solve_beyond, Buckets};
     use crate::eval::EvalError;
+    use crate::physics::thermocouple::{self, ThermocoupleType};
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// A domain bisected to where a type K chain still evaluates ends a
+    /// hair past the type's range (the node reads within a nanokelvin of
+    /// an end as the end): the junction tables are made all the same,
+    /// at both ends.
+    #[test]
+    fn junction_tables_reach_the_ends_of_the_range() {
+        let ty = ThermocoupleType::K;
+        let (lo, hi) = ty.range_c();
+        let domain = (lo + ZERO_CELSIUS_K - 5e-10, hi + ZERO_CELSIUS_K + 5e-10);
+        let xs = grid(domain, 513);
+        let codes: Vec<f64> = xs
+            .iter()
+            .map(|&x| {
+                let t_c = (x - ZERO_CELSIUS_K).clamp(lo, hi);
+                1e3 * thermocouple::emf_mv(ty, t_c).unwrap()
+            })
+            .collect();
+        let table = InverseTable::new(xs, codes, TableUse::Complete);
+        assert!(JunctionTables::new(&table, ty, domain).is_some());
+    }
 
     /// Beyond the domain the search follows a monotone function outward
     /// (x³ = 1000 from a domain of 0 .. 2: x = 10), saturates where it
