@@ -5,7 +5,7 @@
 use super::env::{Env, Senses};
 use super::error::EvalError;
 use super::ids::{NodeId, SlotId};
-use super::run::within;
+use super::run::{within, LANES};
 use crate::model::typed::ConversionMethod;
 use crate::physics::solve::{bisect_at_most, brent};
 use crate::physics::thermocouple::{self, ThermocoupleType};
@@ -234,6 +234,7 @@ impl InverseTable {
     }
 
     /// Monotone cubic Hermite interpolation of x at `code` (None outside).
+    #[inline(always)]
     fn x_at(&self, code: f64) -> Option<f64> {
         let n = self.codes.len();
         let k = self.buckets.segment(&self.codes, code);
@@ -270,6 +271,12 @@ pub struct Buckets {
     first: f64,
     per_code: f64,
     start: Vec<u32>,
+    /// 1 where the codes rise, −1 where they fall.
+    sign: f64,
+    /// −∞, `sign` × each code, +∞: rising whichever way the codes run,
+    /// and with no end to test (negation is exact, so each comparison is
+    /// the codes' own).
+    keys: Vec<f64>,
 }
 
 impl Buckets {
@@ -281,28 +288,51 @@ impl Buckets {
         let start = (0..count)
             .map(|j| segment(codes, first + j as f64 / per_code) as u32)
             .collect();
+        let sign = if last > first { 1.0 } else { -1.0 };
+        let keys = std::iter::once(f64::NEG_INFINITY)
+            .chain(codes.iter().map(|c| sign * c))
+            .chain(std::iter::once(f64::INFINITY))
+            .collect();
         Buckets {
             first,
             per_code,
             start,
+            sign,
+            keys,
         }
     }
 
     /// [`segment`]`(codes, code)` for the `codes` these buckets were made of.
+    #[inline(always)]
     fn segment(&self, codes: &[f64], code: f64) -> usize {
-        let n = codes.len();
-        let up = codes[n - 1] > codes[0];
-        let before = |c: f64| if up { c < code } else { c > code };
+        let key = self.sign * code;
+        let keys = &self.keys;
+        // `k` codes lie before `code`: code k − 1 before it, code k not.
+        let is = |k: usize| keys[k] < key && keys[k + 1] >= key;
         let position = (code - self.first) * self.per_code;
         if !(position >= 0.0 && position < self.start.len() as f64) {
             return segment(codes, code);
         }
-        // Rounding may put a code a bucket off: step back, then forward.
-        let mut k = self.start[position as usize] as usize;
+        // A bucket rarely spans more than one table step: the answer is
+        // its first point's or the next, taken without a branch.
+        let k = self.start[position as usize] as usize;
+        let k = k + usize::from(keys[k + 1] < key);
+        if is(k) {
+            return k;
+        }
+        self.segment_near(codes, code, k)
+    }
+
+    /// From `k`, a step or a few off (rounding may put a code a bucket
+    /// off, and a bucket may span steps where the codes crowd): step back,
+    /// then forward.
+    #[cold]
+    fn segment_near(&self, codes: &[f64], code: f64, mut k: usize) -> usize {
+        let (key, keys, n) = (self.sign * code, &self.keys, codes.len());
         for _ in 0..8 {
-            if k > 0 && !before(codes[k - 1]) {
+            if k > 0 && keys[k] >= key {
                 k -= 1;
-            } else if k < n && before(codes[k]) {
+            } else if k < n && keys[k + 1] < key {
                 k += 1;
             } else {
                 return k;
@@ -395,6 +425,23 @@ impl Conversion {
     ) -> Result<f64, EvalError> {
         let env = self.firmware_env(chain, values, env, x, cj);
         chain.code(chain.nominal(), &env, self.adc)
+    }
+
+    /// [`Conversion::invert`] of a batch's codes where the exact
+    /// inverse's table is the inverse itself ([`TableUse::Complete`]), the
+    /// lanes' lookups side by side; `None` in a lane (or every lane, for
+    /// another method) leaves it to [`Conversion::invert`].
+    #[inline(always)]
+    pub(super) fn table_lanes(&self, codes: &[f64; LANES]) -> [Option<f64>; LANES] {
+        let mut out = [None; LANES];
+        if let (Method::Exact, Some(table)) = (&self.method, &self.inverse) {
+            if table.stands_for == TableUse::Complete {
+                for (x, &code) in out.iter_mut().zip(codes) {
+                    *x = table.x_at(code);
+                }
+            }
+        }
+        out
     }
 
     /// Reading for `code`, before calibration.
