@@ -428,18 +428,41 @@ impl Conversion {
     }
 
     /// [`Conversion::invert`] of a batch's codes where the exact
-    /// inverse's table is the inverse itself ([`TableUse::Complete`]), the
-    /// lanes' lookups side by side; `None` in a lane (or every lane, for
-    /// another method) leaves it to [`Conversion::invert`].
+    /// inverse's table answers directly (the whole inverse, or shifted for
+    /// each lane's cold junction), the lanes' lookups side by side; `None`
+    /// in a lane (or every lane, for another method) leaves it to
+    /// [`Conversion::invert`], which would look up the same first.
     #[inline(always)]
-    pub(super) fn table_lanes(&self, codes: &[f64; LANES]) -> [Option<f64>; LANES] {
+    pub(super) fn table_lanes<'v>(
+        &self,
+        chain: &impl Firmware,
+        lane: impl Fn(usize) -> &'v [f64],
+        env: &Env,
+        codes: &[f64; LANES],
+        cj: Option<&[f64; LANES]>,
+    ) -> [Option<f64>; LANES] {
         let mut out = [None; LANES];
-        if let (Method::Exact, Some(table)) = (&self.method, &self.inverse) {
-            if table.stands_for == TableUse::Complete {
+        let (Method::Exact, Some(table)) = (&self.method, &self.inverse) else {
+            return out;
+        };
+        match table.stands_for {
+            TableUse::Complete => {
                 for (x, &code) in out.iter_mut().zip(codes) {
                     *x = table.x_at(code);
                 }
             }
+            TableUse::Junction { ty, reference_mv } => {
+                for (k, x) in out.iter_mut().enumerate() {
+                    let cj = cj.map(|t| t[k]);
+                    let junction = self
+                        .firmware_env(chain, lane(k), env, 0.0, cj)
+                        .cold_junction;
+                    *x = table
+                        .x_at_junction(codes[k], junction, ty, reference_mv)
+                        .filter(|x| (self.domain.0..=self.domain.1).contains(x));
+                }
+            }
+            TableUse::Start => {}
         }
         out
     }
