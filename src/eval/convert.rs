@@ -5,6 +5,7 @@
 use super::env::{Env, Senses};
 use super::error::EvalError;
 use super::ids::{NodeId, SlotId};
+use super::run::{within, LANES};
 use crate::model::typed::ConversionMethod;
 use crate::physics::solve::{bisect_at_most, brent};
 use crate::physics::thermocouple::{self, ThermocoupleType};
@@ -113,7 +114,13 @@ const JUNCTION_REACH_K: f64 = 150.0;
 
 impl JunctionTables {
     fn new(table: &InverseTable, ty: ThermocoupleType, domain: (f64, f64)) -> Option<Self> {
-        let emf_c = |t_k: f64| thermocouple::emf_mv(ty, t_k - ZERO_CELSIUS_K).ok();
+        // The couple's node reads a temperature within a nanokelvin of
+        // its type's range as the end itself, and a domain bisected to
+        // where the chain evaluates ends there: so must the table.
+        let emf_c = |t_k: f64| {
+            let t_c = within(t_k - ZERO_CELSIUS_K, ty.range_c())?;
+            thermocouple::emf_mv(ty, t_c).ok()
+        };
         let emfs = table
             .xs
             .iter()
@@ -227,6 +234,7 @@ impl InverseTable {
     }
 
     /// Monotone cubic Hermite interpolation of x at `code` (None outside).
+    #[inline(always)]
     fn x_at(&self, code: f64) -> Option<f64> {
         let n = self.codes.len();
         let k = self.buckets.segment(&self.codes, code);
@@ -263,6 +271,12 @@ pub struct Buckets {
     first: f64,
     per_code: f64,
     start: Vec<u32>,
+    /// 1 where the codes rise, −1 where they fall.
+    sign: f64,
+    /// −∞, `sign` × each code, +∞: rising whichever way the codes run,
+    /// and with no end to test (negation is exact, so each comparison is
+    /// the codes' own).
+    keys: Vec<f64>,
 }
 
 impl Buckets {
@@ -274,28 +288,51 @@ impl Buckets {
         let start = (0..count)
             .map(|j| segment(codes, first + j as f64 / per_code) as u32)
             .collect();
+        let sign = if last > first { 1.0 } else { -1.0 };
+        let keys = std::iter::once(f64::NEG_INFINITY)
+            .chain(codes.iter().map(|c| sign * c))
+            .chain(std::iter::once(f64::INFINITY))
+            .collect();
         Buckets {
             first,
             per_code,
             start,
+            sign,
+            keys,
         }
     }
 
     /// [`segment`]`(codes, code)` for the `codes` these buckets were made of.
+    #[inline(always)]
     fn segment(&self, codes: &[f64], code: f64) -> usize {
-        let n = codes.len();
-        let up = codes[n - 1] > codes[0];
-        let before = |c: f64| if up { c < code } else { c > code };
+        let key = self.sign * code;
+        let keys = &self.keys;
+        // `k` codes lie before `code`: code k − 1 before it, code k not.
+        let is = |k: usize| keys[k] < key && keys[k + 1] >= key;
         let position = (code - self.first) * self.per_code;
         if !(position >= 0.0 && position < self.start.len() as f64) {
             return segment(codes, code);
         }
-        // Rounding may put a code a bucket off: step back, then forward.
-        let mut k = self.start[position as usize] as usize;
+        // A bucket rarely spans more than one table step: the answer is
+        // its first point's or the next, taken without a branch.
+        let k = self.start[position as usize] as usize;
+        let k = k + usize::from(keys[k + 1] < key);
+        if is(k) {
+            return k;
+        }
+        self.segment_near(codes, code, k)
+    }
+
+    /// From `k`, a step or a few off (rounding may put a code a bucket
+    /// off, and a bucket may span steps where the codes crowd): step back,
+    /// then forward.
+    #[cold]
+    fn segment_near(&self, codes: &[f64], code: f64, mut k: usize) -> usize {
+        let (key, keys, n) = (self.sign * code, &self.keys, codes.len());
         for _ in 0..8 {
-            if k > 0 && !before(codes[k - 1]) {
+            if k > 0 && keys[k] >= key {
                 k -= 1;
-            } else if k < n && before(codes[k]) {
+            } else if k < n && keys[k + 1] < key {
                 k += 1;
             } else {
                 return k;
@@ -388,6 +425,46 @@ impl Conversion {
     ) -> Result<f64, EvalError> {
         let env = self.firmware_env(chain, values, env, x, cj);
         chain.code(chain.nominal(), &env, self.adc)
+    }
+
+    /// [`Conversion::invert`] of a batch's codes where the exact
+    /// inverse's table answers directly (the whole inverse, or shifted for
+    /// each lane's cold junction), the lanes' lookups side by side; `None`
+    /// in a lane (or every lane, for another method) leaves it to
+    /// [`Conversion::invert`], which would look up the same first.
+    #[inline(always)]
+    pub(super) fn table_lanes<'v>(
+        &self,
+        chain: &impl Firmware,
+        lane: impl Fn(usize) -> &'v [f64],
+        env: &Env,
+        codes: &[f64; LANES],
+        cj: Option<&[f64; LANES]>,
+    ) -> [Option<f64>; LANES] {
+        let mut out = [None; LANES];
+        let (Method::Exact, Some(table)) = (&self.method, &self.inverse) else {
+            return out;
+        };
+        match table.stands_for {
+            TableUse::Complete => {
+                for (x, &code) in out.iter_mut().zip(codes) {
+                    *x = table.x_at(code);
+                }
+            }
+            TableUse::Junction { ty, reference_mv } => {
+                for (k, x) in out.iter_mut().enumerate() {
+                    let cj = cj.map(|t| t[k]);
+                    let junction = self
+                        .firmware_env(chain, lane(k), env, 0.0, cj)
+                        .cold_junction;
+                    *x = table
+                        .x_at_junction(codes[k], junction, ty, reference_mv)
+                        .filter(|x| (self.domain.0..=self.domain.1).contains(x));
+                }
+            }
+            TableUse::Start => {}
+        }
+        out
     }
 
     /// Reading for `code`, before calibration.
@@ -901,8 +978,32 @@ pub fn solve(
 
 #[cfg(test)]
 mod tests {
+    use super::{grid, InverseTable, JunctionTables, TableUse};
     use super::{interpolate, least_squares, segment, solve, solve_beyond, Buckets};
     use crate::eval::EvalError;
+    use crate::physics::thermocouple::{self, ThermocoupleType};
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// A domain bisected to where a type K chain still evaluates ends a
+    /// hair past the type's range (the node reads within a nanokelvin of
+    /// an end as the end): the junction tables are made all the same,
+    /// at both ends.
+    #[test]
+    fn junction_tables_reach_the_ends_of_the_range() {
+        let ty = ThermocoupleType::K;
+        let (lo, hi) = ty.range_c();
+        let domain = (lo + ZERO_CELSIUS_K - 5e-10, hi + ZERO_CELSIUS_K + 5e-10);
+        let xs = grid(domain, 513);
+        let codes: Vec<f64> = xs
+            .iter()
+            .map(|&x| {
+                let t_c = (x - ZERO_CELSIUS_K).clamp(lo, hi);
+                1e3 * thermocouple::emf_mv(ty, t_c).unwrap()
+            })
+            .collect();
+        let table = InverseTable::new(xs, codes, TableUse::Complete);
+        assert!(JunctionTables::new(&table, ty, domain).is_some());
+    }
 
     /// Beyond the domain the search follows a monotone function outward
     /// (x³ = 1000 from a domain of 0 .. 2: x = 10), saturates where it

@@ -399,8 +399,8 @@ impl Plan {
         run: &LaneRun<'_>,
         current: Option<&[f64; LANES]>,
     ) -> Result<[f64; LANES], Lost> {
-        let curves: [Result<(ElementCurve, f64), EvalError>; LANES] =
-            std::array::from_fn(|k| self.element_curve(n, run.row(k), run.env));
+        // Each lane's curve straight into place: an array of the results
+        // would carry (and copy) an error's room in every lane.
         let mut element = [(
             ElementCurve::Beta {
                 r25: 0.0,
@@ -408,8 +408,10 @@ impl Plan {
             },
             0.0,
         ); LANES];
-        for (element, curve) in element.iter_mut().zip(curves) {
-            *element = curve.map_err(|_| Lost)?;
+        for (k, element) in element.iter_mut().enumerate() {
+            *element = self
+                .element_curve(n, run.row(k), run.env)
+                .map_err(|_| Lost)?;
         }
         let mut cold = [0.0; LANES];
         for (cold, (curve, t)) in cold.iter_mut().zip(&element) {

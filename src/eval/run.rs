@@ -599,11 +599,15 @@ impl Plan {
         };
         let exact = *columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
         let cj = cj.and_then(|c| columns.nodes[c.index()].of(Tag::Reading));
+        let direct = conversion.table_lanes(self, lane, env, &exact, cj);
         for (k, reading) in readings.iter_mut().enumerate() {
             let cj = cj.map(|t| t[k]);
-            let x = conversion
-                .invert(self, lane(k), env, exact[k], cj)
-                .map_err(|_| Lost)?;
+            let x = match direct[k] {
+                Some(x) => x,
+                None => conversion
+                    .invert(self, lane(k), env, exact[k], cj)
+                    .map_err(|_| Lost)?,
+            };
             let calibrated = match known {
                 Some(known) => known[k],
                 None => conversion
