@@ -737,3 +737,21 @@ fn a_trip_code_beyond_the_last_code_is_marked() {
     assert!(alarm["trip_code"].as_i64().unwrap() < last, "{alarm}");
     assert!(alarm.get("trip_code_beyond").is_none(), "{alarm}");
 }
+
+/// INL depends on the code, so a one-point calibration removes none of
+/// it (common practice in converter error budgets): its contribution
+/// stays INL × full scale / sensitivity, 2 × 2 V / 4096 / (10 mV/K) =
+/// 0.09766 K by hand, at every point, while the offset is removed.
+#[test]
+fn offset_calibration_leaves_the_inl() {
+    let v = budget("calibrated_inl.catena", &["--points", "3", "--trials", "0"]);
+    let by_hand = 2.0 * 2.0 / 4096.0 / 0.010;
+    for p in v["points"].as_array().unwrap() {
+        let inl = f(&source(p, "conv.inl")["contribution"]);
+        assert!(
+            (inl - by_hand).abs() < 1e-3 * by_hand,
+            "{inl} against {by_hand}: {p}"
+        );
+        assert!(f(&source(p, "conv.offset")["contribution"]) < 1e-9, "{p}");
+    }
+}

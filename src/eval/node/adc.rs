@@ -207,7 +207,13 @@ impl Adc {
         }
         let mut out = Column::default();
         for (k, &vr) in vr.iter().enumerate() {
-            let own = self.code_of(run.row(k), input.x[k], input.rs[k], vr);
+            let own = self.code_of(
+                run.row(k),
+                input.x[k],
+                input.rs[k],
+                vr,
+                !run.mode.calibrating,
+            );
             let code = self.combine_with(own, |n| run.s[n.index()].signal(k));
             out.set(k, code)?;
         }
@@ -338,11 +344,16 @@ impl Adc {
     /// reference `vr`.
     #[inline(always)]
     fn code(&self, run: &Run<'_>, v: f64, rs: f64, vr: f64) -> Signal {
-        self.code_of(run.values, v, rs, vr)
+        self.code_of(run.values, v, rs, vr, !run.mode.calibrating)
     }
 
     #[inline(always)]
-    fn code_of(&self, values: &[f64], v: f64, rs: f64, vr: f64) -> Signal {
+    /// `with_inl`: off for a calibration's reading. INL depends on the
+    /// code, so what the calibration point shows of it is not what
+    /// another code has: a calibration removes none of it (common
+    /// practice in converter error budgets), rather than the whole of it
+    /// as a constant offset would be.
+    fn code_of(&self, values: &[f64], v: f64, rs: f64, vr: f64, with_inl: bool) -> Signal {
         let gain = self.pga.map(|g| values[g.index()]).unwrap_or(1.0)
             * (1.0 + self.gain_error.map(|g| values[g.index()]).unwrap_or(0.0));
         let (off, off_codes) = match self.offset {
@@ -355,8 +366,10 @@ impl Adc {
         let off = off + self.bias_slot.map_or(0.0, |b| values[b.index()] * rs);
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
         // INL is a fraction of the full-scale code span.
-        let inl = self.inl.map(|s| values[s.index()]).unwrap_or(0.0)
-            * adc::full_scale_codes(per_ref, self.polarity);
+        let inl = match self.inl.filter(|_| with_inl) {
+            Some(s) => values[s.index()] * adc::full_scale_codes(per_ref, self.polarity),
+            None => 0.0,
+        };
         let exact = adc::exact_code(v + off, gain, vr, per_ref, off_codes, inl);
         Signal::Code {
             exact,
@@ -441,7 +454,7 @@ impl Plan {
             return None;
         };
         let vr = adc.reference_voltage(self, values, env, signals);
-        match adc.code_of(values, v, rs, vr) {
+        match adc.code_of(values, v, rs, vr, true) {
             Signal::Code { exact, .. } => Some(exact),
             _ => None,
         }
