@@ -344,7 +344,7 @@ fn point(text: &str, dim: Dim, default_unit: &str) -> Result<(f64, f64), String>
     }
     let si = match unit.kind {
         UnitKind::Celsius => number + ZERO_CELSIUS_K,
-        _ => number * unit.scale,
+        _ => unit.to_si(number),
     };
     if !number.is_finite() || !si.is_finite() {
         return Err("the number is beyond any finite value".to_string());

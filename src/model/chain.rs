@@ -86,7 +86,7 @@ impl Measurand {
             return ("K".into(), 1.0);
         }
         match crate::units::parse_unit(&unit) {
-            Ok(u) if u.scale != 0.0 => (unit, 1.0 / u.scale),
+            Ok(u) if u.scale != 0.0 => (unit, u.per_si()),
             _ => (unit, 1.0),
         }
     }

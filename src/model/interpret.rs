@@ -515,7 +515,7 @@ impl Reader<'_> {
         let span = self.peek().map(Value::span).unwrap_or(q.span);
         let text = self.cx.file.slice(span).to_string();
         let unit = q.unit.as_ref().map(|u| u.text.as_str()).unwrap_or("%");
-        let fraction = parse_unit(unit).map(|u| u.scale).unwrap_or(0.01) * q.number.abs();
+        let fraction = parse_unit(unit).map_or(q.number.abs() / 100.0, |u| u.to_si(q.number.abs()));
         let help = match self.cx.range {
             Some(m) => {
                 let (diff, factor) = m.difference_unit();
@@ -871,7 +871,7 @@ fn unit_on_a_number(q: &QuantityLit, u: &crate::syntax::ast::UnitLit, cx: &Conte
 fn si_value(number: f64, unit: Unit, point: bool) -> f64 {
     match unit.kind {
         UnitKind::Celsius if point => number + ZERO_CELSIUS_K,
-        _ => number * unit.scale,
+        _ => unit.to_si(number),
     }
 }
 

@@ -461,5 +461,5 @@ fn tracking_value(v: Option<&Value>) -> Result<(f64, Span), &'static str> {
 /// A quantity's magnitude in SI when its unit has dimension `dim`.
 fn scaled(q: &crate::syntax::ast::QuantityLit, dim: Dim) -> Option<f64> {
     let unit = parse_unit(&q.unit.as_ref()?.text).ok()?;
-    (unit.dim == dim).then_some(q.number.abs() * unit.scale)
+    (unit.dim == dim).then_some(unit.to_si(q.number.abs()))
 }

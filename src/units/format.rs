@@ -94,7 +94,7 @@ pub fn attenuation_db(db: f64) -> String {
 pub fn from_si(value: f64, unit: &str) -> f64 {
     match parse_unit(unit) {
         Ok(u) if u.kind == UnitKind::Celsius => value - ZERO_CELSIUS_K,
-        Ok(u) if u.kind == UnitKind::Linear && u.scale != 0.0 => value / u.scale,
+        Ok(u) if u.kind == UnitKind::Linear && u.scale != 0.0 => u.of_si(value),
         _ => value,
     }
 }
@@ -103,14 +103,29 @@ pub fn from_si(value: f64, unit: &str) -> f64 {
 pub fn to_si(value: f64, unit: &str) -> f64 {
     match parse_unit(unit) {
         Ok(u) if u.kind == UnitKind::Celsius => value + ZERO_CELSIUS_K,
-        Ok(u) if u.kind == UnitKind::Linear => value * u.scale,
+        Ok(u) if u.kind == UnitKind::Linear => u.to_si(value),
         _ => value,
     }
 }
 
 #[cfg(test)]
 mod tests {
-    use super::{attenuation_db, codes, from_si, significant, trimmed, with_prefix};
+    use super::{attenuation_db, codes, from_si, significant, to_si, trimmed, with_prefix};
+
+    /// A submultiple reads back whole: its scale is not exact in binary,
+    /// its reciprocal is.
+    #[test]
+    fn a_submultiple_reads_back_whole() {
+        assert_eq!(from_si(0.002, "ue"), 2000.0);
+        assert_eq!(from_si(0.0125, "mV"), 12.5);
+        assert_eq!(from_si(2500.0, "kohm"), 2.5);
+        assert_eq!(from_si(298.15, "degC"), 25.0);
+        // Written, read in, written again: the same number.
+        for (x, unit) in [(-200.0, "ue"), (0.1, "%"), (25.0, "ppm/K"), (2.2, "kohm")] {
+            assert_eq!(from_si(to_si(x, unit), unit), x, "{x} {unit}");
+        }
+        assert_eq!(to_si(500.0, "uA"), 0.0005);
+    }
 
     #[test]
     fn one_code_is_singular() {

@@ -29,6 +29,68 @@ impl Unit {
         dim: Dim::NONE,
         kind: UnitKind::Linear,
     };
+
+    /// The factor from SI to this unit, `1 / scale`, exact where that is
+    /// a whole number: a submultiple's scale (1e-6 for `ue`) is not
+    /// exact in binary, but its reciprocal (1e6) is, so 0.002 (strain)
+    /// reads back as 2000 ue rather than 2000.0000000000002.
+    pub fn per_si(&self) -> f64 {
+        let per = 1.0 / self.scale;
+        let whole = per.round();
+        if whole != 0.0 && (per - whole).abs() <= whole.abs() * 4.0 * f64::EPSILON {
+            whole
+        } else {
+            per
+        }
+    }
+
+    /// `value`, written in this unit, in SI. A decimal prefix moves the
+    /// decimal point, not a binary product: `0.1 uV` is the double
+    /// nearest 1e-7 and `-200 ue` the one nearest -0.0002, where
+    /// multiplying by the inexact 1e-6 can land one step off, so the
+    /// number would not read back as written.
+    pub fn to_si(&self, value: f64) -> f64 {
+        match self.decimal_exponent() {
+            Some(e) => shift_decimal(value, e),
+            None => value * self.scale,
+        }
+    }
+
+    /// `value` (SI) in this unit, the inverse of [`Unit::to_si`]: a value
+    /// read in and written out again is the number written.
+    pub fn of_si(&self, value: f64) -> f64 {
+        match self.decimal_exponent() {
+            Some(e) => shift_decimal(value, -e),
+            None => value / self.scale,
+        }
+    }
+
+    /// The power of ten the scale is (-6 for `uA`, 3 for `kohm`, -6 for
+    /// `mm²`, whose product of prefixes is a step off 1e-6), if it is one.
+    fn decimal_exponent(&self) -> Option<i32> {
+        if !(self.scale.is_finite() && self.scale > 0.0) {
+            return None;
+        }
+        let e = self.scale.log10().round();
+        let power = 10f64.powf(e);
+        ((self.scale - power).abs() <= power * 4.0 * f64::EPSILON).then_some(e as i32)
+    }
+}
+
+/// `value` × 10^`e` computed in decimal: the shortest digits that read
+/// back as `value`, the exponent moved, read again (correctly rounded).
+fn shift_decimal(value: f64, e: i32) -> f64 {
+    if e == 0 || value == 0.0 || !value.is_finite() {
+        return value;
+    }
+    let written = format!("{value:e}");
+    let Some((digits, exponent)) = written.split_once('e') else {
+        return value;
+    };
+    let exponent: i32 = exponent.parse().unwrap_or(0);
+    format!("{digits}e{}", exponent.saturating_add(e))
+        .parse()
+        .unwrap_or(value)
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -321,6 +383,29 @@ mod tests {
 
     fn close(a: f64, b: f64) -> bool {
         (a - b).abs() <= 1e-12 * b.abs()
+    }
+
+    /// A prefix moves the decimal point: the SI value is the double
+    /// nearest the decimal number, and it reads back as written.
+    #[test]
+    fn prefixed_values_are_the_nearest_doubles_and_read_back() {
+        let unit = |t: &str| parse_unit(t).unwrap();
+        assert_eq!(unit("uV").to_si(0.1), 1e-7);
+        assert_eq!(unit("ue").to_si(-200.0), -2e-4);
+        assert_eq!(unit("kohm").to_si(4.7), 4700.0);
+        assert_eq!(unit("mm^2").to_si(0.5), 5e-7);
+        assert_eq!(unit("ue").of_si(0.002), 2000.0);
+        for (x, t) in [
+            (-200.0, "ue"),
+            (0.1, "uV"),
+            (25.0, "ppm/K"),
+            (1.1, "nA"),
+            (3.3, "kohm"),
+        ] {
+            assert_eq!(unit(t).of_si(unit(t).to_si(x)), x, "{x} {t}");
+        }
+        assert_eq!(unit("uV").to_si(f64::INFINITY), f64::INFINITY);
+        assert_eq!(unit("uV").to_si(0.0), 0.0);
     }
 
     #[test]
