@@ -2,7 +2,7 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
-use super::lanes::{LaneRun, Lost};
+use super::lanes::{Column, LaneRun, Lost};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::{within, LANES};
@@ -16,6 +16,31 @@ pub(super) enum Supply {
     Voltage { v: f64, other: f64 },
     Current(f64),
     None,
+}
+
+impl Supply {
+    /// The power, W, an element of `r` Ω dissipates on this supply, with
+    /// `leads` Ω of its leads in series.
+    #[inline(always)]
+    fn power_w(self, r: f64, leads: f64) -> f64 {
+        match self {
+            Supply::Voltage { v, other } => strain::series_element_power_w(v, r, leads + other),
+            Supply::Current(a) => a * a * r,
+            Supply::None => 0.0,
+        }
+    }
+
+    /// What a divider's excitation `exc` puts through its element, the
+    /// other resistor `fixed` Ω: a current source's current flows through
+    /// the lower resistor only.
+    #[inline(always)]
+    pub(super) fn of_divider(exc: Signal, fixed: f64, sensor_high: bool) -> Supply {
+        match exc {
+            Signal::Source(v) => Supply::Voltage { v, other: fixed },
+            Signal::Current(a) if !sensor_high => Supply::Current(a),
+            _ => Supply::None,
+        }
+    }
 }
 
 /// How an element heats: its dissipation constant's slot and whether its
@@ -255,11 +280,7 @@ impl Plan {
         };
         let leads = self.element_leads(node, values);
         let cold = element - leads;
-        let power = |r: f64| match supply {
-            Supply::Voltage { v, other } => strain::series_element_power_w(v, r, leads + other),
-            Supply::Current(a) => a * a * r,
-            Supply::None => 0.0,
-        };
+        let power = |r: f64| supply.power_w(r, leads);
         Ok(self.heated(node, heating, cold, values, env, power)? + leads)
     }
 
@@ -295,26 +316,31 @@ impl Plan {
                 let Some((n, h)) = *heated else {
                     continue;
                 };
-                let partner = k ^ 1;
-                let power = |r: f64| {
-                    let mut with = arms;
-                    with[k] = r + leads[k];
-                    let v = match exc {
-                        Signal::Source(v) => v,
-                        Signal::Current(a) => {
-                            let (top, bottom) = (with[0] + with[1], with[2] + with[3]);
-                            a * top * bottom / (top + bottom)
-                        }
-                        _ => 0.0,
-                    };
-                    strain::series_element_power_w(v, r, leads[k] + with[partner])
-                };
+                let power = |r: f64| arm_power_w(arms, k, r, leads[k], exc);
                 let start = arms[k] - leads[k];
                 arms[k] = self.heated(n, h, start, values, env, power)? + leads[k];
             }
         }
         Ok(arms)
     }
+}
+
+/// The power, W, the element in arm `k` of a bridge (arms as in
+/// [`Plan::heated_bridge_arms`]) dissipates at `r` Ω, `leads` Ω of its
+/// leads in series, the other arms held.
+#[inline(always)]
+fn arm_power_w(arms: [f64; 4], k: usize, r: f64, leads: f64, exc: Signal) -> f64 {
+    let mut with = arms;
+    with[k] = r + leads;
+    let v = match exc {
+        Signal::Source(v) => v,
+        Signal::Current(a) => {
+            let (top, bottom) = (with[0] + with[1], with[2] + with[3]);
+            a * top * bottom / (top + bottom)
+        }
+        _ => 0.0,
+    };
+    strain::series_element_power_w(v, r, leads + with[k ^ 1])
 }
 
 /// A temperature element's curve with one run's values.
@@ -389,9 +415,7 @@ fn aitken(cold: f64, r1: f64, r2: f64) -> f64 {
 }
 
 impl Plan {
-    /// [`Plan::driven_element`] in every lane of a batch: each step of
-    /// [`self_heated`] taken across the lanes before the next, so the
-    /// lanes' curve evaluations run side by side.
+    /// [`Plan::driven_element`] in every lane of a batch.
     #[inline(always)]
     pub(super) fn driven_elements(
         &self,
@@ -399,49 +423,146 @@ impl Plan {
         run: &LaneRun<'_>,
         current: Option<&[f64; LANES]>,
     ) -> Result<[f64; LANES], Lost> {
-        // Each lane's curve straight into place: an array of the results
-        // would carry (and copy) an error's room in every lane.
-        let mut element = [(
-            ElementCurve::Beta {
-                r25: 0.0,
-                beta: 0.0,
-            },
-            0.0,
-        ); LANES];
-        for (k, element) in element.iter_mut().enumerate() {
-            *element = self
-                .element_curve(n, run.row(k), run.env)
-                .map_err(|_| Lost)?;
-        }
+        let curves = self.element_curves(n, run)?;
         let mut cold = [0.0; LANES];
-        for (cold, (curve, t)) in cold.iter_mut().zip(&element) {
+        for (cold, (curve, t)) in cold.iter_mut().zip(&curves) {
             *cold = curve.resistance(*t).map_err(|()| Lost)?;
         }
         let (Some(a), Some(heating)) = (current, self.heating(n)) else {
             return Ok(cold);
         };
         let delta = run.slot(heating.dissipation);
-        let step = |from: &[f64; LANES]| -> Result<[f64; LANES], Lost> {
-            let mut to = [0.0; LANES];
-            for k in 0..LANES {
-                let (curve, t) = element[k];
-                to[k] = curve
-                    .heated_resistance(t, a[k] * a[k] * from[k], delta[k])
-                    .map_err(|_| Lost)?;
-            }
-            Ok(to)
+        self_heated_lanes(&curves, &cold, heating.curved, &delta, |k, r| {
+            a[k] * a[k] * r
+        })
+    }
+
+    /// Each lane's [`Plan::element_curve`].
+    #[inline(always)]
+    fn element_curves(&self, n: NodeId, run: &LaneRun<'_>) -> Result<ElementCurves, Lost> {
+        // Each lane's curve straight into place: an array of the results
+        // would carry (and copy) an error's room in every lane.
+        let mut curves = [(
+            ElementCurve::Beta {
+                r25: 0.0,
+                beta: 0.0,
+            },
+            0.0,
+        ); LANES];
+        for (k, curve) in curves.iter_mut().enumerate() {
+            *curve = self
+                .element_curve(n, run.row(k), run.env)
+                .map_err(|_| Lost)?;
+        }
+        Ok(curves)
+    }
+
+    /// [`Plan::heated_divider_element`] in every lane of a batch, each
+    /// lane on its own supply.
+    #[inline(always)]
+    pub(super) fn heated_divider_elements(
+        &self,
+        node: NodeId,
+        element: &[f64; LANES],
+        supply: &[Supply; LANES],
+        run: &LaneRun<'_>,
+    ) -> Result<[f64; LANES], Lost> {
+        let Some(heating) = self.heating(node) else {
+            return Ok(*element);
         };
-        let r1 = step(&cold)?;
-        let r2 = step(&r1)?;
-        let mut r = [0.0; LANES];
+        let leads: [f64; LANES] = std::array::from_fn(|k| self.element_leads(node, run.row(k)));
+        let cold = std::array::from_fn(|k| element[k] - leads[k]);
+        let curves = self.element_curves(node, run)?;
+        let delta = run.slot(heating.dissipation);
+        let heated = self_heated_lanes(&curves, &cold, heating.curved, &delta, |k, r| {
+            supply[k].power_w(r, leads[k])
+        })?;
+        Ok(std::array::from_fn(|k| heated[k] + leads[k]))
+    }
+
+    /// [`Plan::heated_bridge_arms`] in every lane of a batch: `arms` lane
+    /// by lane, `exc` the excitation's column. Each lane takes the single
+    /// run's passes and steps in their order.
+    pub(super) fn heated_bridge_arm_lanes(
+        &self,
+        mut arms: [[f64; 4]; LANES],
+        nodes: [Option<NodeId>; 4],
+        exc: &Column,
+        run: &LaneRun<'_>,
+    ) -> Result<[[f64; 4]; LANES], Lost> {
+        let heating: [Option<(NodeId, Heating)>; 4] =
+            std::array::from_fn(|k| nodes[k].and_then(|n| self.heating(n).map(|h| (n, h))));
+        let count = heating.iter().flatten().count();
+        if count == 0 {
+            return Ok(arms);
+        }
+        let passes = if count > 1 { 2 } else { 1 };
+        let excitation: [Signal; LANES] = std::array::from_fn(|j| exc.signal(j));
+        let mut leads = [[0.0; LANES]; 4];
+        let mut curves = [None; 4];
+        for (k, heated) in heating.iter().enumerate() {
+            if let Some((n, _)) = heated {
+                leads[k] = std::array::from_fn(|j| self.element_leads(*n, run.row(j)));
+                curves[k] = Some(self.element_curves(*n, run)?);
+            }
+        }
+        for _ in 0..passes {
+            for (k, heated) in heating.iter().enumerate() {
+                let (Some((_, h)), Some(curves)) = (heated, &curves[k]) else {
+                    continue;
+                };
+                let leads = &leads[k];
+                let start = std::array::from_fn(|j| arms[j][k] - leads[j]);
+                let delta = run.slot(h.dissipation);
+                let heated = self_heated_lanes(curves, &start, h.curved, &delta, |j, r| {
+                    arm_power_w(arms[j], k, r, leads[j], excitation[j])
+                })?;
+                for (j, arms) in arms.iter_mut().enumerate() {
+                    arms[k] = heated[j] + leads[j];
+                }
+            }
+        }
+        Ok(arms)
+    }
+}
+
+/// Each lane's element curve and the temperature it senses.
+type ElementCurves = [(ElementCurve, f64); LANES];
+
+/// [`self_heated`] in every lane of a batch: each step taken across the
+/// lanes before the next, so the lanes' curve evaluations run side by
+/// side. Every lane takes the same steps (none settles early), so each
+/// does the single run's operations in their order. `power(k, r)` is
+/// lane `k`'s dissipation at `r` Ω, `delta` each lane's dissipation
+/// constant.
+#[inline(always)]
+fn self_heated_lanes(
+    curves: &ElementCurves,
+    cold: &[f64; LANES],
+    curved: bool,
+    delta: &[f64; LANES],
+    power: impl Fn(usize, f64) -> f64,
+) -> Result<[f64; LANES], Lost> {
+    let step = |from: &[f64; LANES]| -> Result<[f64; LANES], Lost> {
+        let mut to = [0.0; LANES];
         for k in 0..LANES {
-            r[k] = aitken(cold[k], r1[k], r2[k]);
+            let (curve, t) = curves[k];
+            to[k] = curve
+                .heated_resistance(t, power(k, from[k]), delta[k])
+                .map_err(|_| Lost)?;
         }
-        if heating.curved {
-            step(&r)
-        } else {
-            Ok(r)
-        }
+        Ok(to)
+    };
+    let r1 = step(cold)?;
+    let r2 = step(&r1)?;
+    let mut r = [0.0; LANES];
+    for k in 0..LANES {
+        r[k] = aitken(cold[k], r1[k], r2[k]);
+    }
+    if curved {
+        step(&r)
+    } else {
+        Ok(r)
     }
 }
 

@@ -316,3 +316,204 @@ impl LaneRun<'_> {
         Ok(out)
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use std::path::Path;
+
+    use super::{LaneColumns, Lost};
+    use crate::diagnostics::SourceFile;
+    use crate::eval::plan::{Env, Plan, Signal};
+    use crate::eval::run::{Mode, Reach, LANES, MAX_NODES};
+    use crate::model::PartsCache;
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// The plan of the first chain of `spec`, up to its converter (a
+    /// conversion need not fit: a divider's element above a current
+    /// source changes no code).
+    fn plan(spec: &str) -> Plan {
+        let file = SourceFile::new("t.catena", spec);
+        let (ast, mut findings) = crate::syntax::parse(&file);
+        let mut parts = PartsCache::default();
+        let (chains, more) = crate::model::resolve(&file, &ast, Path::new("."), None, &mut parts);
+        findings.extend(more);
+        assert!(!findings.has_errors(), "{findings:?}");
+        crate::eval::lower_stages(&chains[0]).expect("lowers").0
+    }
+
+    /// Each lane's values, one lane after another: every slot moved from
+    /// its nominal by its own fraction of its limit, up to half again
+    /// beyond it, different in every lane and every `batch`.
+    fn rows(plan: &Plan, batch: usize) -> Vec<f64> {
+        let n = plan.slots.len();
+        let mut rows = Vec::with_capacity(n * LANES);
+        for k in 0..LANES {
+            for (s, slot) in plan.slots.iter().enumerate() {
+                let mix = (k * 7919 + s * 104_729 + batch * 1_299_709) % 1001;
+                let u = mix as f64 / 1000.0 * 3.0 - 1.5;
+                let limit = if u < 0.0 { slot.minus } else { slot.plus };
+                rows.push(slot.nominal + u * limit);
+            }
+        }
+        rows
+    }
+
+    const MODE: Mode = Mode {
+        quantized: true,
+        clip: true,
+        calibrating: false,
+        faulted: None,
+    };
+
+    /// A signal's values, to the bit.
+    fn bits(s: Signal) -> (u8, [u64; 3], i64) {
+        let b = |x: f64| x.to_bits();
+        match s {
+            Signal::None => (0, [0; 3], 0),
+            Signal::Current(x) => (1, [b(x), 0, 0], 0),
+            Signal::Source(x) => (2, [b(x), 0, 0], 0),
+            Signal::Element(x) => (3, [b(x), 0, 0], 0),
+            Signal::Voltage { v, cm, rs } => (4, [b(v), b(cm), b(rs)], 0),
+            Signal::Code { exact, code } => (5, [b(exact), 0, 0], code),
+            Signal::Reading(x) => (6, [b(x), 0, 0], 0),
+        }
+    }
+
+    /// Runs the chain's electronics over a batch of `rows` both ways: one
+    /// lane at a time and as columns. Where every lane evaluates, the
+    /// columns hold each lane's signals to the bit; where one fails, the
+    /// batch is lost. Returns how many lanes failed.
+    fn compare(plan: &Plan, rows: &[f64], env: &Env) -> usize {
+        let n = plan.slots.len();
+        let reach = Reach::Electronics(plan.adc.index() + 1);
+        let single: Vec<_> = (0..LANES)
+            .map(|k| {
+                let mut s = [Signal::None; MAX_NODES];
+                plan.run(&rows[k * n..(k + 1) * n], env, &mut s, reach, MODE)
+                    .map(|()| s)
+            })
+            .collect();
+        let mut columns = LaneColumns::default();
+        columns.load(rows, n);
+        let lanes = plan.run_columns(rows, env, &mut columns, reach, MODE);
+        let failed = single.iter().filter(|s| s.is_err()).count();
+        if failed > 0 {
+            assert_eq!(lanes, Err(Lost), "a failing lane loses the batch");
+            return failed;
+        }
+        assert_eq!(lanes, Ok(()), "every lane evaluates, so the batch does");
+        for (k, single) in single.iter().enumerate() {
+            let single = single.as_ref().expect("evaluates");
+            for i in plan.node_ids().take(plan.adc.index() + 1) {
+                let lane = columns.nodes[i.index()].signal(k);
+                assert_eq!(
+                    bits(lane),
+                    bits(single[i.index()]),
+                    "lane {k}, node {}: {lane:?} vs {:?}",
+                    plan.names[i.index()],
+                    single[i.index()]
+                );
+            }
+        }
+        0
+    }
+
+    /// [`compare`] over many batches and conditions across the range.
+    fn compare_over_range(spec: &str) {
+        let plan = plan(spec);
+        let (lo, hi) = plan.range;
+        for batch in 0..40 {
+            let x = batch as f64 / 39.0;
+            let env = Env {
+                measurand: lo + (hi - lo) * x,
+                ambient: ZERO_CELSIUS_K + 5.0 + 35.0 * (1.0 - x),
+                cold_junction: ZERO_CELSIUS_K + 25.0,
+            };
+            assert_eq!(compare(&plan, &rows(&plan, batch), &env), 0);
+        }
+    }
+
+    fn chain(stages: &str, wiring: &str) -> String {
+        format!(
+            "chain t {{\n    measurand temperature -20 degC .. 80 degC\n{stages}\n    amplifier front {{ gain 10 ± 0.1 % }}\n    adc conv {{\n        bits 24\n        input differential\n        vref 2.5 V\n    }}\n    convert reading {{ method exact }}\n{wiring}\n}}\n"
+        )
+    }
+
+    const NTC: &str = "    sensor ntc {\n        thermistor\n        r25 10 kohm ± 1 %\n        beta 3435 K ± 1 %\n        dissipation 1.5 mW/K ± 20 %\n    }";
+
+    fn pt100(name: &str) -> String {
+        format!("    sensor {name} {{\n        rtd pt100\n        class A\n        wires 3\n        lead 1 ohm ± 0.3 ohm\n        dissipation 5 mW/K ± 20 %\n    }}")
+    }
+
+    #[test]
+    fn a_heated_thermistor_divider_on_a_voltage_matches_the_single_run() {
+        let stages = format!("    excitation rail {{ voltage 2.5 V ± 0.5 % }}\n{NTC}\n    bridge div {{\n        divider\n        r 10 kohm ± 0.1 % drift 25 ppm/K\n    }}");
+        compare_over_range(&chain(
+            &stages,
+            "    rail -> div -> front -> conv -> reading\n    ntc -> div.arm",
+        ));
+    }
+
+    #[test]
+    fn a_heated_rtd_divider_on_a_current_matches_the_single_run() {
+        for side in ["low", "high"] {
+            let stages = format!("    excitation drive {{ current 1 mA ± 0.5 % }}\n{}\n    bridge div {{\n        divider\n        sensor {side}\n        r 100 ohm ± 0.1 %\n    }}", pt100("probe"));
+            compare_over_range(&chain(
+                &stages,
+                "    drive -> div -> front -> conv -> reading\n    probe -> div.arm",
+            ));
+        }
+    }
+
+    #[test]
+    fn heated_bridges_match_the_single_run() {
+        let quarter = format!("    excitation supply {{ voltage 2 V ± 0.5 % }}\n{}\n    bridge b {{\n        quarter\n        r 100 ohm ± 0.1 % drift 10 ppm/K\n    }}", pt100("probe"));
+        compare_over_range(&chain(
+            &quarter,
+            "    supply -> b -> front -> conv -> reading\n    probe -> b.arm",
+        ));
+        let half = format!("    excitation drive {{ current 2 mA ± 0.5 % }}\n{}\n{}\n    bridge b {{\n        half\n        r 100 ohm ± 0.1 %\n    }}", pt100("p1"), pt100("p2"));
+        compare_over_range(&chain(
+            &half,
+            "    drive -> b -> front -> conv -> reading\n    p1 -> b.arm\n    p2 -> b.arm",
+        ));
+        let full = format!("    excitation supply {{ voltage 2 V ± 0.5 % }}\n{}\n{}\n{}\n{NTC}\n    bridge b {{ full }}", pt100("p1"), pt100("p2"), pt100("p3"));
+        compare_over_range(&chain(&full, "    supply -> b -> front -> conv -> reading\n    p1 -> b.arm\n    p2 -> b.arm\n    p3 -> b.arm\n    ntc -> b.arm"));
+    }
+
+    /// A lane whose dissipation constant is not positive has no
+    /// self-heating: the single run fails there, and the batch is lost,
+    /// in a divider and in a bridge.
+    #[test]
+    fn a_lane_without_self_heating_loses_the_batch() {
+        let divider = format!("    excitation rail {{ voltage 2.5 V }}\n{NTC}\n    bridge div {{\n        divider\n        r 10 kohm\n    }}");
+        let quarter = format!("    excitation supply {{ voltage 2 V }}\n{}\n    bridge b {{\n        quarter\n        r 100 ohm\n    }}", pt100("probe"));
+        let specs = [
+            chain(
+                &divider,
+                "    rail -> div -> front -> conv -> reading\n    ntc -> div.arm",
+            ),
+            chain(
+                &quarter,
+                "    supply -> b -> front -> conv -> reading\n    probe -> b.arm",
+            ),
+        ];
+        for spec in &specs {
+            let plan = plan(spec);
+            let n = plan.slots.len();
+            let dissipation = plan
+                .slots
+                .iter()
+                .position(|s| s.id.as_str().ends_with("dissipation"))
+                .expect("a dissipation constant");
+            let mut rows = rows(&plan, 0);
+            rows[3 * n + dissipation] = -1e-3;
+            let env = Env {
+                measurand: ZERO_CELSIUS_K + 20.0,
+                ambient: ZERO_CELSIUS_K + 25.0,
+                cold_junction: ZERO_CELSIUS_K + 25.0,
+            };
+            assert_eq!(compare(&plan, &rows, &env), 1);
+        }
+    }
+}

@@ -621,7 +621,7 @@ impl Plan {
 
     /// [`Plan::run`] for every lane, node by node, each node's signals a
     /// column.
-    fn run_columns(
+    pub(super) fn run_columns(
         &self,
         values: &[f64],
         env: &Env,

@@ -6,7 +6,9 @@
 use super::{Cx, Run};
 use crate::eval::element::Supply;
 use crate::eval::fault::{FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
+use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::eval::run::{Mode, LANES};
 use crate::model::schema;
 use crate::model::typed::{self, BridgeForm, Side};
 use crate::physics::strain;
@@ -157,19 +159,8 @@ impl Bridge {
             BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
-        // A faulted arm is what the fault made it, not heated again.
-        let at = |k: usize| {
-            self.arms
-                .get(k)
-                .copied()
-                .filter(|&n| run.mode.faulted != Some(n))
-        };
-        let placed = match self.kind {
-            BridgeKind::Quarter => [None, at(0), None, None],
-            BridgeKind::Half => [None, at(0), at(1), None],
-            BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
-        };
         let exc = s[self.exc.index()];
+        let placed = self.placed(run.mode);
         let [r1, r2, r3, r4] =
             run.plan
                 .heated_bridge_arms([r1, r2, r3, r4], placed, exc, values, run.env)?;
@@ -195,14 +186,9 @@ impl Bridge {
         arm: f64,
     ) -> Result<Signal, EvalError> {
         let exc = run.s[self.exc.index()];
-        // A current source's current flows through the lower resistor.
-        let supply = match exc {
-            Signal::Source(v) => Supply::Voltage { v, other: fixed },
-            Signal::Current(a) if !sensor_high => Supply::Current(a),
-            _ => Supply::None,
-        };
-        let element = match self.arms.first().filter(|&&n| run.mode.faulted != Some(n)) {
-            Some(&n) => run
+        let supply = Supply::of_divider(exc, fixed, sensor_high);
+        let element = match self.heated_arm(run.mode) {
+            Some(n) => run
                 .plan
                 .heated_divider_element(n, arm, supply, run.values, run.env)?,
             None => arm,
@@ -223,5 +209,115 @@ impl Bridge {
             cm: v / 2.0,
             rs: strain::divider_output_resistance(low, high),
         })
+    }
+
+    /// Which element sits in each arm by position (r1 r2 | r3 r4), for
+    /// its self-heating: a faulted arm is what the fault made it, not
+    /// heated again.
+    #[inline(always)]
+    fn placed(&self, mode: Mode) -> [Option<NodeId>; 4] {
+        let at = |k: usize| {
+            self.arms
+                .get(k)
+                .copied()
+                .filter(|&n| mode.faulted != Some(n))
+        };
+        match self.kind {
+            BridgeKind::Quarter => [None, at(0), None, None],
+            BridgeKind::Half => [None, at(0), at(1), None],
+            BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
+        }
+    }
+
+    /// A divider's element, for its self-heating, unless it is faulted.
+    #[inline(always)]
+    fn heated_arm(&self, mode: Mode) -> Option<NodeId> {
+        self.arms
+            .first()
+            .copied()
+            .filter(|&n| mode.faulted != Some(n))
+    }
+}
+
+impl Bridge {
+    /// [`Bridge::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let exc = &run.s[self.exc.index()];
+        if !matches!(exc.tag, Tag::Source | Tag::Current) {
+            return Err(Lost);
+        }
+        let fixed = self
+            .r
+            .map(|r| run.drifted(run.slot(r), self.drift))
+            .unwrap_or([0.0; LANES]);
+        // Each further completion resistor is its own part.
+        let other = |k: usize| {
+            self.others
+                .get(k)
+                .map(|&(r, drift)| run.drifted(run.slot(r), drift))
+                .unwrap_or(fixed)
+        };
+        let arm = |k: usize| {
+            let n = self.arms.get(k).ok_or(Lost)?;
+            run.s[n.index()].of(Tag::Element).copied().ok_or(Lost)
+        };
+        // Arms by position, as in `Bridge::solve`.
+        let (r1, r2, r3, r4) = match self.kind {
+            BridgeKind::Divider { sensor_high } => {
+                return self.divider_lanes(run, sensor_high, &fixed, &arm(0)?)
+            }
+            BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
+            BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
+            BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
+        };
+        let arms = std::array::from_fn(|j| [r1[j], r2[j], r3[j], r4[j]]);
+        let arms = run
+            .plan
+            .heated_bridge_arm_lanes(arms, self.placed(run.mode), exc, run)?;
+        let mut out = Column::voltage([0.0; LANES], [0.0; LANES], [0.0; LANES]);
+        for (j, &[r1, r2, r3, r4]) in arms.iter().enumerate() {
+            let v_exc = match exc.tag {
+                Tag::Current => strain::bridge_excitation_v(exc.x[j], r1, r2, r3, r4),
+                _ => exc.x[j],
+            };
+            let lost = |_| Lost;
+            out.x[j] = strain::bridge_output(v_exc, r1, r2, r3, r4).map_err(lost)?;
+            out.cm[j] = strain::bridge_common_mode(v_exc, r1, r2, r3, r4).map_err(lost)?;
+            out.rs[j] = strain::bridge_output_resistance(r1, r2, r3, r4).map_err(lost)?;
+        }
+        Ok(out)
+    }
+
+    /// [`Bridge::divider`] in every lane of a batch.
+    #[inline(always)]
+    fn divider_lanes(
+        &self,
+        run: &LaneRun<'_>,
+        sensor_high: bool,
+        fixed: &[f64; LANES],
+        arm: &[f64; LANES],
+    ) -> Result<Column, Lost> {
+        let exc = &run.s[self.exc.index()];
+        let supply =
+            std::array::from_fn(|j| Supply::of_divider(exc.signal(j), fixed[j], sensor_high));
+        let element = match self.heated_arm(run.mode) {
+            Some(n) => run.plan.heated_divider_elements(n, arm, &supply, run)?,
+            None => *arm,
+        };
+        let (mut v, mut rs) = ([0.0; LANES], [0.0; LANES]);
+        for j in 0..LANES {
+            let (low, high) = if sensor_high {
+                (fixed[j], element[j])
+            } else {
+                (element[j], fixed[j])
+            };
+            v[j] = match exc.tag {
+                Tag::Current => exc.x[j] * low,
+                _ => strain::divider_output(exc.x[j], low, high).map_err(|_| Lost)?,
+            };
+            rs[j] = strain::divider_output_resistance(low, high);
+        }
+        Ok(Column::voltage(v, v.map(|v| v / 2.0), rs))
     }
 }

@@ -413,11 +413,11 @@ impl Plan {
             Node::Amplifier(n) => n.eval_lanes(run),
             Node::Filter(n) => Ok(n.eval_lanes(run)),
             Node::Adc(n) => n.eval_lanes(run),
+            Node::Bridge(n) => n.eval_lanes(run),
             Node::IcVoltage(_)
             | Node::IcCurrent(_)
             | Node::StrainGauge(_)
             | Node::Transducer(_)
-            | Node::Bridge(_)
             | Node::Convert(_) => run.by_lane(),
         }
     }
