@@ -111,8 +111,8 @@ impl Convert {
         Ok(Signal::Reading(reading))
     }
 
-    /// [`Convert::eval`] in every lane of a batch: the inverse's table
-    /// looked up side by side where it answers directly, the rest of the
+    /// [`Convert::eval`] in every lane of a batch: the inverse side by
+    /// side where it answers from the code directly, the rest of the
     /// conversion lane by lane.
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
@@ -125,7 +125,7 @@ impl Convert {
         };
         let cj = self.cj.and_then(|n| run.s[n.index()].of(Tag::Reading));
         let conversion = &self.conversion;
-        let direct = conversion.table_lanes(run.plan, |k| run.row(k), run.env, &codes, cj);
+        let direct = conversion.direct_lanes(run.plan, |k| run.row(k), run.env, &codes, cj);
         let mut readings = [0.0; LANES];
         for (k, reading) in readings.iter_mut().enumerate() {
             let values = run.row(k);
@@ -164,6 +164,26 @@ mod tests {
                     let env = oven_env(t, ambient);
                     let mode = check::mode(quantized, false);
                     check::matches_single_runs(&plan, node, &rows, &env, mode)
+                        .expect("every lane runs");
+                }
+            }
+        }
+    }
+
+    /// The methods fitted to the code alone, each answered side by side,
+    /// with the calibration lane by lane.
+    #[test]
+    fn lanes_match_single_runs_for_fitted_methods() {
+        for method in ["linear", "table 32", "poly 3"] {
+            let spec = BUSBAR.replace("method exact", &format!("method {method}"));
+            let plan = check::plan(&spec);
+            let reading = check::node(&plan, "reading");
+            let rows = check::spread(&plan);
+            for (t, ambient) in [(-20.0, -20.0), (40.0, 25.0), (100.0, 60.0)] {
+                for quantized in [true, false] {
+                    let env = busbar_env(t, ambient);
+                    let mode = check::mode(quantized, false);
+                    check::matches_single_runs(&plan, reading, &rows, &env, mode)
                         .expect("every lane runs");
                 }
             }
