@@ -427,13 +427,13 @@ impl Conversion {
         chain.code(chain.nominal(), &env, self.adc)
     }
 
-    /// [`Conversion::invert`] of a batch's codes where the exact
-    /// inverse's table answers directly (the whole inverse, or shifted for
-    /// each lane's cold junction), the lanes' lookups side by side; `None`
-    /// in a lane (or every lane, for another method) leaves it to
+    /// [`Conversion::invert`] of a batch's codes where it answers from the
+    /// code directly (a method fitted to the code, or the exact inverse's
+    /// table, whole or shifted for each lane's cold junction), the lanes'
+    /// lookups side by side; `None` in a lane leaves it to
     /// [`Conversion::invert`], which would look up the same first.
     #[inline(always)]
-    pub(super) fn table_lanes<'v>(
+    pub(super) fn direct_lanes<'v>(
         &self,
         chain: &impl Firmware,
         lane: impl Fn(usize) -> &'v [f64],
@@ -443,6 +443,9 @@ impl Conversion {
     ) -> [Option<f64>; LANES] {
         let mut out = [None; LANES];
         let (Method::Exact, Some(table)) = (&self.method, &self.inverse) else {
+            for (x, &code) in out.iter_mut().zip(codes) {
+                *x = self.fitted(code);
+            }
             return out;
         };
         match table.stands_for {
@@ -476,50 +479,60 @@ impl Conversion {
         code: f64,
         cj: Option<f64>,
     ) -> Result<f64, EvalError> {
-        match &self.method {
-            Method::Exact => {
-                let f = |x: f64| {
-                    self.nominal_code(chain, values, env, x, cj)
-                        .map(|c| c - code)
-                };
-                let Some(table) = &self.inverse else {
-                    return solve_beyond(f, self.domain);
-                };
-                let direct = match table.stands_for {
-                    TableUse::Complete => table.x_at(code),
-                    TableUse::Junction {
-                        ty, reference_mv, ..
-                    } => {
-                        let junction = self.firmware_env(chain, values, env, 0.0, cj).cold_junction;
-                        table
-                            .x_at_junction(code, junction, ty, reference_mv)
-                            .filter(|x| (self.domain.0..=self.domain.1).contains(x))
-                    }
-                    TableUse::Start => None,
-                };
-                if let Some(x) = direct {
-                    return Ok(x);
-                }
-                if table.stands_for != TableUse::Complete {
-                    if let Some(x) = newton_from_table(&f, table, code, self.domain)? {
-                        return Ok(x);
-                    }
-                }
-                solve_beyond(f, self.domain)
+        if let Some(x) = self.fitted(code) {
+            return Ok(x);
+        }
+        let f = |x: f64| {
+            self.nominal_code(chain, values, env, x, cj)
+                .map(|c| c - code)
+        };
+        let Some(table) = &self.inverse else {
+            return solve_beyond(f, self.domain);
+        };
+        let direct = match table.stands_for {
+            TableUse::Complete => table.x_at(code),
+            TableUse::Junction {
+                ty, reference_mv, ..
+            } => {
+                let junction = self.firmware_env(chain, values, env, 0.0, cj).cold_junction;
+                table
+                    .x_at_junction(code, junction, ty, reference_mv)
+                    .filter(|x| (self.domain.0..=self.domain.1).contains(x))
             }
+            TableUse::Start => None,
+        };
+        if let Some(x) = direct {
+            return Ok(x);
+        }
+        if table.stands_for != TableUse::Complete {
+            if let Some(x) = newton_from_table(&f, table, code, self.domain)? {
+                return Ok(x);
+            }
+        }
+        solve_beyond(f, self.domain)
+    }
+
+    /// The reading for `code` of a method fitted to the code alone; None
+    /// for the exact method, which solves the chain.
+    #[inline(always)]
+    fn fitted(&self, code: f64) -> Option<f64> {
+        match &self.method {
+            Method::Exact => None,
             Method::Linear {
                 code_low,
                 code_high,
-            } => Ok(self.range.0
-                + (code - code_low) * (self.range.1 - self.range.0) / (code_high - code_low)),
-            Method::Table { codes, xs } => Ok(interpolate(codes, xs, code)),
+            } => Some(
+                self.range.0
+                    + (code - code_low) * (self.range.1 - self.range.0) / (code_high - code_low),
+            ),
+            Method::Table { codes, xs } => Some(interpolate(codes, xs, code)),
             Method::Poly {
                 coefficients,
                 mid,
                 half,
             } => {
                 let u = (code - mid) / half;
-                Ok(coefficients.iter().rev().fold(0.0, |acc, c| acc * u + c))
+                Some(coefficients.iter().rev().fold(0.0, |acc, c| acc * u + c))
             }
         }
     }
@@ -545,6 +558,10 @@ impl Conversion {
         chain: &impl Firmware,
         values: &[f64],
     ) -> Result<Calibrated, EvalError> {
+        // Nothing calibrated: no point to read the chain at.
+        if self.calibration == Calibration::None {
+            return Ok(Calibrated::None);
+        }
         // The chain as built (its actual values), averaged to its exact code.
         let mut codes = [0.0; 2];
         for (code, p) in codes.iter_mut().zip(self.calibration_points()) {

@@ -5,7 +5,7 @@
 //! by lane: a batch that meets one is redone by the single-run evaluator,
 //! which names the error a single run meets first.
 
-use super::plan::{DriftSlot, Env, NodeId, Plan, Signal, SlotId};
+use super::plan::{DriftSlot, Env, NodeId, Plan, Senses, Signal, SlotId};
 use super::run::{Mode, Reach, LANES, MAX_NODES};
 
 /// Which [`Signal`] a node gives: the same in every lane of a batch (it
@@ -258,6 +258,12 @@ impl LaneRun<'_> {
         }
     }
 
+    /// [`Plan::sensed`] in every lane: the temperature the node senses.
+    #[inline(always)]
+    pub fn sensed(&self, senses: Senses) -> [f64; LANES] {
+        std::array::from_fn(|k| self.plan.sensed(self.i, senses, self.env, self.row(k)))
+    }
+
     /// The current a current source drives into `input`, if it is one.
     #[inline(always)]
     pub fn current_into(&self, input: Option<NodeId>) -> Option<&[f64; LANES]> {
@@ -284,36 +290,6 @@ impl LaneRun<'_> {
             cm[k] = lift + a[k] * r[k] / 2.0;
         }
         Column::voltage(v, cm, r)
-    }
-
-    /// The node evaluated lane by lane through the single-run code, for
-    /// the kinds without a column kernel of their own. Each lane rebuilds
-    /// only the signals the node reads: its inputs (every port, as
-    /// [`Node::inputs`](super::node::Node::inputs) lists them) and the
-    /// elements below it in a series string.
-    pub fn by_lane(&self) -> Result<Column, Lost> {
-        let mut out = Column::default();
-        let mut s = [Signal::None; MAX_NODES];
-        let mut reads = self.plan.nodes[self.i.index()].inputs();
-        reads.extend_from_slice(&self.plan.series_below[self.i.index()]);
-        for k in 0..LANES {
-            for &n in &reads {
-                s[n.index()] = self.s[n.index()].signal(k);
-            }
-            let signal = self
-                .plan
-                .node(
-                    self.i,
-                    self.row(k),
-                    self.env,
-                    &s,
-                    self.mode,
-                    self.junction_mv,
-                )
-                .map_err(|_| Lost)?;
-            out.set(k, signal)?;
-        }
-        Ok(out)
     }
 }
 
@@ -515,5 +491,126 @@ mod tests {
             };
             assert_eq!(compare(&plan, &rows, &env), 1);
         }
+    }
+}
+
+/// What the column kernels' tests share: a plan from a spec, values spread
+/// over the slots' limits, and a node's column checked against the
+/// single-run evaluator lane by lane.
+#[cfg(test)]
+pub(super) mod check {
+    use std::path::Path;
+
+    use super::{Column, LaneRun, Lost};
+    use crate::diagnostics::SourceFile;
+    use crate::eval::plan::{Env, NodeId, Plan, Signal};
+    use crate::eval::run::{Mode, LANES, MAX_NODES};
+    use crate::model::PartsCache;
+
+    /// The plan of the first chain of `spec`.
+    pub fn plan(spec: &str) -> Plan {
+        let file = SourceFile::new("t.catena", spec);
+        let (ast, mut findings) = crate::syntax::parse(&file);
+        let mut parts = PartsCache::default();
+        let (chains, more) = crate::model::resolve(&file, &ast, Path::new("."), None, &mut parts);
+        findings.extend(more);
+        assert!(!findings.has_errors(), "{findings:?}");
+        let chain = chains.into_iter().next().expect("a chain");
+        crate::eval::lower(&chain).expect("lowers")
+    }
+
+    /// The node of stage `name`.
+    pub fn node(plan: &Plan, name: &str) -> NodeId {
+        let index = plan.names.iter().position(|n| n == name);
+        NodeId::new(index.unwrap_or_else(|| panic!("no stage `{name}`")))
+    }
+
+    /// A run reading the exact code or the rounded one, as a calibration
+    /// or not.
+    pub fn mode(quantized: bool, calibrating: bool) -> Mode {
+        Mode {
+            quantized,
+            clip: true,
+            calibrating,
+            faulted: None,
+        }
+    }
+
+    /// Values for every lane, one lane after another: each slot's nominal
+    /// moved by a share of its limits that differs from lane to lane and
+    /// from slot to slot.
+    pub fn spread(plan: &Plan) -> Vec<f64> {
+        const SHARES: [f64; LANES] = [0.0, 1.0, -1.0, 0.5, -0.3, 0.9, -0.7, 0.2];
+        let mut rows = Vec::with_capacity(LANES * plan.slots.len());
+        for k in 0..LANES {
+            for (s, slot) in plan.slots.iter().enumerate() {
+                let share = SHARES[(k + s) % LANES];
+                let limit = if share < 0.0 { slot.minus } else { slot.plus };
+                rows.push(plan.nominal[s] + share * limit);
+            }
+        }
+        rows
+    }
+
+    /// `rows` with slot `slot` set to `value` in lane `lane`.
+    pub fn with(plan: &Plan, mut rows: Vec<f64>, lane: usize, slot: &str, value: f64) -> Vec<f64> {
+        let s = plan.slots.iter().position(|s| s.id.as_str() == slot);
+        let s = s.unwrap_or_else(|| panic!("no slot `{slot}`"));
+        rows[lane * plan.slots.len() + s] = value;
+        rows
+    }
+
+    /// Node `i`'s column for the lanes' values `rows`, checked against the
+    /// single-run evaluator: in every lane the same signal to the bit
+    /// (Debug prints an f64 so that it reads back to the same bits), or
+    /// `Lost` where some lane's run fails. The nodes before it are run one
+    /// lane at a time and must not fail.
+    pub fn matches_single_runs(
+        plan: &Plan,
+        i: NodeId,
+        rows: &[f64],
+        env: &Env,
+        mode: Mode,
+    ) -> Result<Column, Lost> {
+        let n = plan.slots.len();
+        let mut columns = [Column::default(); MAX_NODES];
+        let mut single = Vec::with_capacity(LANES);
+        for k in 0..LANES {
+            let row = &rows[k * n..(k + 1) * n];
+            let mut s = [Signal::None; MAX_NODES];
+            for j in NodeId::all(i.index()) {
+                let signal = plan.node(j, row, env, &s, mode, None);
+                s[j.index()] = signal.expect("the nodes before it run");
+                columns[j.index()]
+                    .set(k, s[j.index()])
+                    .expect("one kind of signal per node");
+            }
+            single.push(plan.node(i, row, env, &s, mode, None));
+        }
+        let values: Vec<[f64; LANES]> = (0..n)
+            .map(|s| std::array::from_fn(|k| rows[k * n + s]))
+            .collect();
+        let run = LaneRun {
+            plan,
+            i,
+            rows,
+            values: &values,
+            env,
+            s: &columns[..i.index()],
+            mode,
+            junction_mv: None,
+        };
+        let got = plan.node_lanes(&run);
+        if single.iter().any(Result::is_err) {
+            assert_eq!(got.err(), Some(Lost), "a lane fails: the batch is lost");
+            return Err(Lost);
+        }
+        let column = got.expect("every lane runs");
+        for (k, want) in single.into_iter().enumerate() {
+            let want = want.expect("checked above");
+            let got = column.signal(k);
+            assert_eq!(format!("{got:?}"), format!("{want:?}"), "lane {k}");
+        }
+        Ok(column)
     }
 }

@@ -5,7 +5,9 @@
 use super::{Cx, Run};
 use crate::eval::convert::{Calibration, Conversion, Method};
 use crate::eval::fault::FaultKind;
+use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::eval::run::LANES;
 use crate::model::typed::{self, CalibrationMethod, ConversionMethod};
 use crate::model::value::Tolerance;
 
@@ -107,5 +109,111 @@ impl Convert {
             .conversion
             .apply(run.plan, run.values, run.env, code, cj_reading)?;
         Ok(Signal::Reading(reading))
+    }
+
+    /// [`Convert::eval`] in every lane of a batch: the inverse side by
+    /// side where it answers from the code directly, the rest of the
+    /// conversion lane by lane.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let input = &run.s[self.input.index()];
+        let exact = input.of(Tag::Code).ok_or(Lost)?;
+        let codes = if run.mode.quantized {
+            input.code.map(|code| code as f64)
+        } else {
+            *exact
+        };
+        let cj = self.cj.and_then(|n| run.s[n.index()].of(Tag::Reading));
+        let conversion = &self.conversion;
+        let direct = conversion.direct_lanes(run.plan, |k| run.row(k), run.env, &codes, cj);
+        let mut readings = [0.0; LANES];
+        for (k, reading) in readings.iter_mut().enumerate() {
+            let values = run.row(k);
+            let x = match direct[k] {
+                Some(x) => x,
+                None => conversion
+                    .invert(run.plan, values, run.env, codes[k], cj.map(|t| t[k]))
+                    .map_err(|_| Lost)?,
+            };
+            let calibrated = conversion.calibrate(run.plan, values).map_err(|_| Lost)?;
+            *reading = conversion
+                .correct(run.plan, x, &calibrated)
+                .map_err(|_| Lost)?;
+        }
+        Ok(Column::scalar(Tag::Reading, readings))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::eval::lanes::{check, Lost};
+    use crate::eval::node::ic_current::tests::{busbar_env, BUSBAR};
+    use crate::eval::node::ic_voltage::tests::{oven_env, OVEN};
+
+    /// Both conversions of a couple read with its cold junction's: the
+    /// junction's own (a complete inverse table) and the couple's, whose
+    /// table is shifted for each lane's junction reading.
+    #[test]
+    fn lanes_match_single_runs_through_tables() {
+        let plan = check::plan(OVEN);
+        let rows = check::spread(&plan);
+        for name in ["cj_reading", "reading"] {
+            let node = check::node(&plan, name);
+            for (t, ambient) in [(80.0, 10.0), (200.0, 25.0), (320.0, 40.0), (500.0, 25.0)] {
+                for quantized in [true, false] {
+                    let env = oven_env(t, ambient);
+                    let mode = check::mode(quantized, false);
+                    check::matches_single_runs(&plan, node, &rows, &env, mode)
+                        .expect("every lane runs");
+                }
+            }
+        }
+    }
+
+    /// The methods fitted to the code alone, each answered side by side,
+    /// with the calibration lane by lane.
+    #[test]
+    fn lanes_match_single_runs_for_fitted_methods() {
+        for method in ["linear", "table 32", "poly 3"] {
+            let spec = BUSBAR.replace("method exact", &format!("method {method}"));
+            let plan = check::plan(&spec);
+            let reading = check::node(&plan, "reading");
+            let rows = check::spread(&plan);
+            for (t, ambient) in [(-20.0, -20.0), (40.0, 25.0), (100.0, 60.0)] {
+                for quantized in [true, false] {
+                    let env = busbar_env(t, ambient);
+                    let mode = check::mode(quantized, false);
+                    check::matches_single_runs(&plan, reading, &rows, &env, mode)
+                        .expect("every lane runs");
+                }
+            }
+        }
+    }
+
+    /// A calibrated conversion solved from the chain, and a lane whose
+    /// calibration cannot read the chain (a value that is not a number
+    /// gives a code that is not one), which loses the batch.
+    #[test]
+    fn lanes_match_single_runs_with_a_calibration() {
+        let plan = check::plan(BUSBAR);
+        let reading = check::node(&plan, "reading");
+        let rows = check::spread(&plan);
+        for (t, ambient) in [(-20.0, -20.0), (40.0, 25.0), (100.0, 60.0)] {
+            for quantized in [true, false] {
+                let env = busbar_env(t, ambient);
+                check::matches_single_runs(
+                    &plan,
+                    reading,
+                    &rows,
+                    &env,
+                    check::mode(quantized, false),
+                )
+                .expect("every lane runs");
+            }
+        }
+        let rows = check::with(&plan, rows, 2, "load.r", f64::NAN);
+        let env = busbar_env(40.0, 25.0);
+        let got = check::matches_single_runs(&plan, reading, &rows, &env, check::mode(true, false));
+        assert_eq!(got.err(), Some(Lost));
     }
 }

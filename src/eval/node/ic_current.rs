@@ -3,7 +3,9 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::eval::run::LANES;
 use crate::model::schema;
 use crate::model::typed;
 use crate::physics::semiconductor;
@@ -65,5 +67,78 @@ impl IcCurrent {
         let a = semiconductor::ptat_current_a(run.values[self.slope.index()], t)
             .map_err(|_| run.numeric("no PTAT current at this temperature"))?;
         Ok(Signal::Current(a))
+    }
+
+    /// [`IcCurrent::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+        let t = run.sensed(self.senses);
+        let slope = run.slot(self.slope);
+        let mut a = [0.0; LANES];
+        for k in 0..LANES {
+            a[k] = semiconductor::ptat_current_a(slope[k], t[k]).map_err(|_| Lost)?;
+        }
+        Ok(Column::scalar(Tag::Current, a))
+    }
+}
+
+#[cfg(test)]
+pub(super) mod tests {
+    use crate::eval::lanes::{check, Lost};
+    use crate::eval::plan::Env;
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// A PTAT current into a load resistor, converted with an offset
+    /// calibration.
+    pub const BUSBAR: &str = r#"
+chain busbar "b" {
+    measurand temperature -20 degC .. 100 degC
+    ambient -20 degC .. 60 degC
+    excitation supply { voltage 5 V ± 5 % }
+    sensor ptat {
+        ic_current
+        slope 1 uA/K ± 0.5 %
+        accuracy ± 0.5 K
+    }
+    sensor load { resistor 8.2 kohm ± 0.1 % drift 25 ppm/K }
+    adc conv {
+        bits 12
+        input single
+        vref 4.096 V ± 0.1 % drift 20 ppm/K
+        offset 1 mV max
+        gain_error ± 0.1 %
+    }
+    convert reading {
+        method exact
+        calibrate offset at 25 degC ± 0.2 K
+    }
+    supply -> ptat -> load -> conv -> reading
+}
+"#;
+
+    pub fn busbar_env(measurand_c: f64, ambient_c: f64) -> Env {
+        Env {
+            measurand: measurand_c + ZERO_CELSIUS_K,
+            ambient: ambient_c + ZERO_CELSIUS_K,
+            cold_junction: ambient_c + ZERO_CELSIUS_K,
+        }
+    }
+
+    #[test]
+    fn lanes_match_single_runs() {
+        let plan = check::plan(BUSBAR);
+        let ptat = check::node(&plan, "ptat");
+        let rows = check::spread(&plan);
+        for (t, ambient) in [(-20.0, -20.0), (40.0, 25.0), (100.0, 60.0)] {
+            let env = busbar_env(t, ambient);
+            check::matches_single_runs(&plan, ptat, &rows, &env, check::mode(true, false))
+                .expect("every lane runs");
+        }
+        // A sensed temperature below absolute zero in one lane: no PTAT
+        // current there, so the batch is lost.
+        let rows = check::with(&plan, rows, 3, "ptat.accuracy", -1000.0);
+        let env = busbar_env(40.0, 25.0);
+        let got = check::matches_single_runs(&plan, ptat, &rows, &env, check::mode(true, false));
+        assert_eq!(got.err(), Some(Lost));
     }
 }

@@ -2,7 +2,9 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{FaultKind, Faulted};
+use crate::eval::lanes::{Column, LaneRun};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::eval::run::LANES;
 use crate::model::schema;
 use crate::model::typed;
 use crate::physics::semiconductor;
@@ -94,5 +96,106 @@ impl IcVoltage {
             cm: v / 2.0,
             rs: run.or_zero(self.rout),
         })
+    }
+
+    /// [`IcVoltage::eval`] in every lane of a batch.
+    #[inline(always)]
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
+        let t = run.sensed(self.senses);
+        let (v0, slope) = (run.slot(self.v0), run.slot(self.slope));
+        let (mut v, mut cm) = ([0.0; LANES], [0.0; LANES]);
+        for k in 0..LANES {
+            v[k] = semiconductor::linear_voltage_v(
+                v0[k],
+                slope[k],
+                self.t0 - ZERO_CELSIUS_K,
+                t[k] - ZERO_CELSIUS_K,
+            );
+            cm[k] = v[k] / 2.0;
+        }
+        Column::voltage(v, cm, run.or_zero(self.rout))
+    }
+}
+
+#[cfg(test)]
+pub(super) mod tests {
+    use crate::eval::lanes::check;
+    use crate::eval::plan::Env;
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// A couple read against a voltage-output sensor at its cold junction,
+    /// each through its own converter and conversion.
+    pub const OVEN: &str = r#"
+chain oven "o" {
+    measurand temperature 80 degC .. 320 degC
+    ambient 10 degC .. 40 degC
+    sensor tc {
+        thermocouple type K
+        class 1
+        cold_junction cjs
+    }
+    sensor cjs {
+        ic_voltage
+        slope 10 mV/K ± 0.5 %
+        output 750 mV at 25 degC
+        accuracy ± 0.5 K
+        output_resistance 100 ohm
+    }
+    amplifier front {
+        gain 200 ± 0.1 %
+        offset 10 uV max
+        input -0.3 V .. 3.5 V
+        output 0.05 V .. 4.95 V
+    }
+    adc conv {
+        bits 16
+        input single
+        vref 4.096 V ± 0.04 % drift 5 ppm/K
+        offset 0.5 mV max
+        gain_error ± 0.05 %
+    }
+    adc cj_conv {
+        bits 12
+        input single
+        vref 2.5 V ± 0.04 % drift 5 ppm/K
+        offset 1 mV max
+        gain_error ± 0.1 %
+    }
+    convert cj_reading { method exact }
+    convert reading { method exact }
+    tc -> front -> conv -> reading
+    cjs -> cj_conv -> cj_reading -> reading.cj
+}
+"#;
+
+    /// The oven's conditions: the measurand and the ambient (where the
+    /// cold junction sits), °C.
+    pub fn oven_env(measurand_c: f64, ambient_c: f64) -> Env {
+        Env {
+            measurand: measurand_c + ZERO_CELSIUS_K,
+            ambient: ambient_c + ZERO_CELSIUS_K,
+            cold_junction: ambient_c + ZERO_CELSIUS_K,
+        }
+    }
+
+    #[test]
+    fn lanes_match_single_runs() {
+        let plan = check::plan(OVEN);
+        let cjs = check::node(&plan, "cjs");
+        let rows = check::spread(&plan);
+        for (t, ambient) in [(80.0, 10.0), (200.0, 25.0), (320.0, 40.0)] {
+            for calibrating in [false, true] {
+                let mode = check::mode(true, calibrating);
+                check::matches_single_runs(&plan, cjs, &rows, &oven_env(t, ambient), mode)
+                    .expect("every lane runs");
+            }
+        }
+        // Its output fails in no lane: a value that is not a number gives
+        // a signal that is not one, which loses the batch in its run.
+        let rows = check::with(&plan, rows, 5, "cjs.slope", f64::NAN);
+        let env = oven_env(200.0, 25.0);
+        let column = check::matches_single_runs(&plan, cjs, &rows, &env, check::mode(true, false))
+            .expect("every lane runs");
+        assert!(!column.finite());
     }
 }

@@ -414,11 +414,11 @@ impl Plan {
             Node::Filter(n) => Ok(n.eval_lanes(run)),
             Node::Adc(n) => n.eval_lanes(run),
             Node::Bridge(n) => n.eval_lanes(run),
-            Node::IcVoltage(_)
-            | Node::IcCurrent(_)
-            | Node::StrainGauge(_)
-            | Node::Transducer(_)
-            | Node::Convert(_) => run.by_lane(),
+            Node::IcVoltage(n) => Ok(n.eval_lanes(run)),
+            Node::IcCurrent(n) => n.eval_lanes(run),
+            Node::StrainGauge(n) => Ok(n.eval_lanes(run)),
+            Node::Transducer(n) => n.eval_lanes(run),
+            Node::Convert(n) => n.eval_lanes(run),
         }
     }
 }
