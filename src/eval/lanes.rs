@@ -60,7 +60,7 @@ impl Column {
         }
     }
 
-    /// Lane `k`'s signal, for the nodes evaluated lane by lane.
+    /// Lane `k`'s signal, for the code a kernel shares with single runs.
     #[inline(always)]
     pub fn signal(&self, k: usize) -> Signal {
         let x = self.x[k];

@@ -401,8 +401,7 @@ impl Plan {
 
 impl Plan {
     /// Node `i`'s column in a batch: one match per batch, then the kind's
-    /// loop over the lanes (or the single-run code lane by lane, for the
-    /// kinds that seldom sit in a Monte Carlo's hot path).
+    /// loop over the lanes.
     pub(in crate::eval) fn node_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
         match &self.nodes[run.i.index()] {
             Node::Excitation(n) => Ok(n.eval_lanes(run)),

@@ -219,7 +219,7 @@ impl Rtd {
     }
 
     /// [`Rtd::eval`] in every lane of a batch: the element's curve and
-    /// self-heating through the single-run code, lane by lane.
+    /// self-heating over the column, then each lane's leads.
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
         let current = run.current_into(self.input);
