@@ -211,22 +211,22 @@ impl InverseTable {
     }
 
     /// The temperature (K) the junction-shifted table gives for `code`
-    /// with the junction at `cj` (K); None where it does not reach.
+    /// with the junction's EMF `junction_mv` ([`junction_emf_mv`]); None
+    /// where it does not reach.
     fn x_at_junction(
         &self,
         code: f64,
-        cj: f64,
+        junction_mv: Option<f64>,
         ty: ThermocoupleType,
         reference_mv: f64,
     ) -> Option<f64> {
-        let shift = |cj: f64| thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok();
         if let Some(tables) = &self.junction {
-            let emf = tables.emf.x_at(code)? - reference_mv + shift(cj)?;
+            let emf = tables.emf.x_at(code)? - reference_mv + junction_mv?;
             return tables.temperature.x_at(emf);
         }
         let at_reference = self.x_at(code)? - ZERO_CELSIUS_K;
         let (e, seebeck) = thermocouple::emf_and_seebeck_mv(ty, at_reference).ok()?;
-        let shift = thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok()? - reference_mv;
+        let shift = junction_mv? - reference_mv;
         // First order from the table's temperature, then Newton.
         let t = thermocouple::temperature_near_c(ty, e + shift, at_reference + shift / seebeck)
             .or_else(|| thermocouple::temperature_c(ty, e + shift).ok())?;
@@ -244,6 +244,34 @@ impl InverseTable {
         let u = code - self.codes[k - 1];
         let [a0, a1, a2, a3] = self.cubics[k - 1];
         Some(a0 + u * (a1 + u * (a2 + u * a3)))
+    }
+}
+
+/// A couple's EMF (mV) with its junction at `cj` (K), which shifts the
+/// junction table: None where the type does not reach.
+fn junction_emf_mv(ty: ThermocoupleType, cj: f64) -> Option<f64> {
+    thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok()
+}
+
+/// Each lane's junction EMF ([`junction_emf_mv`]), kept while the lanes'
+/// junction temperatures repeat: a thermocouple chain's cold-junction
+/// branch reads the same at every point of one ambient
+/// ([`Plan::measurand_free`](super::plan::Plan)), and the EMF is a
+/// polynomial and an exponential a lane.
+#[derive(Clone, Debug, Default)]
+pub struct JunctionEmfs {
+    key: Option<(ThermocoupleType, [u64; LANES])>,
+    emf_mv: [Option<f64>; LANES],
+}
+
+impl JunctionEmfs {
+    fn at(&mut self, ty: ThermocoupleType, junctions: &[f64; LANES]) -> [Option<f64>; LANES] {
+        let key = Some((ty, junctions.map(f64::to_bits)));
+        if self.key != key {
+            self.emf_mv = junctions.map(|cj| junction_emf_mv(ty, cj));
+            self.key = key;
+        }
+        self.emf_mv
     }
 }
 
@@ -440,6 +468,7 @@ impl Conversion {
         env: &Env,
         codes: &[f64; LANES],
         cj: Option<&[f64; LANES]>,
+        junction_emfs: &mut JunctionEmfs,
     ) -> [Option<f64>; LANES] {
         let mut out = [None; LANES];
         let (Method::Exact, Some(table)) = (&self.method, &self.inverse) else {
@@ -455,13 +484,15 @@ impl Conversion {
                 }
             }
             TableUse::Junction { ty, reference_mv } => {
-                for (k, x) in out.iter_mut().enumerate() {
+                let junctions: [f64; LANES] = std::array::from_fn(|k| {
                     let cj = cj.map(|t| t[k]);
-                    let junction = self
-                        .firmware_env(chain, lane(k), env, 0.0, cj)
-                        .cold_junction;
+                    self.firmware_env(chain, lane(k), env, 0.0, cj)
+                        .cold_junction
+                });
+                let junction_mv = junction_emfs.at(ty, &junctions);
+                for (k, x) in out.iter_mut().enumerate() {
                     *x = table
-                        .x_at_junction(codes[k], junction, ty, reference_mv)
+                        .x_at_junction(codes[k], junction_mv[k], ty, reference_mv)
                         .filter(|x| (self.domain.0..=self.domain.1).contains(x));
                 }
             }
@@ -496,7 +527,7 @@ impl Conversion {
             } => {
                 let junction = self.firmware_env(chain, values, env, 0.0, cj).cold_junction;
                 table
-                    .x_at_junction(code, junction, ty, reference_mv)
+                    .x_at_junction(code, junction_emf_mv(ty, junction), ty, reference_mv)
                     .filter(|x| (self.domain.0..=self.domain.1).contains(x))
             }
             TableUse::Start => None,
@@ -997,9 +1028,32 @@ pub fn solve(
 mod tests {
     use super::{grid, InverseTable, JunctionTables, TableUse};
     use super::{interpolate, least_squares, segment, solve, solve_beyond, Buckets};
+    use super::{junction_emf_mv, JunctionEmfs};
+    use crate::eval::run::LANES;
     use crate::eval::EvalError;
     use crate::physics::thermocouple::{self, ThermocoupleType};
     use crate::units::ZERO_CELSIUS_K;
+
+    /// The kept junction EMFs are those of the junctions asked for: a
+    /// change of one lane's junction or of the type is worked out anew.
+    #[test]
+    fn junction_emfs_follow_their_junctions() {
+        use ThermocoupleType::{J, K};
+        let fresh = |ty, t: &[f64; LANES]| t.map(|cj| junction_emf_mv(ty, cj));
+        let at_25 = [ZERO_CELSIUS_K + 25.0; LANES];
+        let mut one_warmer = at_25;
+        one_warmer[3] += 1.0;
+        let mut kept = JunctionEmfs::default();
+        for (ty, junctions) in [(K, at_25), (K, at_25), (K, one_warmer), (J, one_warmer)] {
+            assert_eq!(kept.at(ty, &junctions), fresh(ty, &junctions));
+        }
+        // Type K at 25 °C: 1.000 mV (IEC 60584-1 table, recalled).
+        assert!((kept.at(K, &at_25)[0].unwrap() - 1.000).abs() < 0.001);
+        assert!(
+            kept.at(K, &[0.0; LANES])[0].is_none(),
+            "0 K is below type K"
+        );
+    }
 
     /// A domain bisected to where a type K chain still evaluates ends a
     /// hair past the type's range (the node reads within a nanokelvin of

@@ -5,6 +5,7 @@
 //! by lane: a batch that meets one is redone by the single-run evaluator,
 //! which names the error a single run meets first.
 
+use super::convert::JunctionEmfs;
 use super::plan::{DriftSlot, Env, NodeId, Plan, Senses, Signal, SlotId};
 use super::run::{Mode, Reach, LANES, MAX_NODES};
 
@@ -142,6 +143,8 @@ pub struct LaneColumns {
     /// the next run with the same key keeps the columns of the nodes the
     /// measurand does not reach.
     pub(super) last: Option<RunKey>,
+    /// The main conversion's junction EMFs, kept from point to point.
+    pub(super) junction_emfs: JunctionEmfs,
 }
 
 /// What a node's column depends on besides the values and the measurand:
@@ -172,6 +175,7 @@ impl Default for LaneColumns {
             values: Vec::new(),
             rows: Vec::new(),
             last: None,
+            junction_emfs: JunctionEmfs::default(),
         }
     }
 }

@@ -599,7 +599,8 @@ impl Plan {
         };
         let exact = *columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
         let cj = cj.and_then(|c| columns.nodes[c.index()].of(Tag::Reading));
-        let direct = conversion.direct_lanes(self, lane, env, &exact, cj);
+        let direct =
+            conversion.direct_lanes(self, lane, env, &exact, cj, &mut columns.junction_emfs);
         for (k, reading) in readings.iter_mut().enumerate() {
             let cj = cj.map(|t| t[k]);
             let x = match direct[k] {

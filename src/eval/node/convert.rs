@@ -3,7 +3,7 @@
 //! range it is fitted over and its calibration.
 
 use super::{Cx, Run};
-use crate::eval::convert::{Calibration, Conversion, Method};
+use crate::eval::convert::{Calibration, Conversion, JunctionEmfs, Method};
 use crate::eval::fault::FaultKind;
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
@@ -125,7 +125,14 @@ impl Convert {
         };
         let cj = self.cj.and_then(|n| run.s[n.index()].of(Tag::Reading));
         let conversion = &self.conversion;
-        let direct = conversion.direct_lanes(run.plan, |k| run.row(k), run.env, &codes, cj);
+        let direct = conversion.direct_lanes(
+            run.plan,
+            |k| run.row(k),
+            run.env,
+            &codes,
+            cj,
+            &mut JunctionEmfs::default(),
+        );
         let mut readings = [0.0; LANES];
         for (k, reading) in readings.iter_mut().enumerate() {
             let values = run.row(k);
