@@ -43,6 +43,9 @@ impl Supply {
     }
 }
 
+/// The heated element in each arm of a bridge, if any.
+type ArmHeating = [Option<(NodeId, Heating)>; 4];
+
 /// How an element heats: its dissipation constant's slot and whether its
 /// response is strongly curved (a thermistor), for [`self_heated`].
 #[derive(Clone, Copy, Debug)]
@@ -284,6 +287,19 @@ impl Plan {
         Ok(self.heated(node, heating, cold, values, env, power)? + leads)
     }
 
+    /// Each arm's heated element and the passes they take (one for a
+    /// single heated element, two where several heat); None where no arm
+    /// heats.
+    fn arm_heating(&self, nodes: [Option<NodeId>; 4]) -> Option<(ArmHeating, usize)> {
+        let heating: ArmHeating =
+            std::array::from_fn(|k| nodes[k].and_then(|n| self.heating(n).map(|h| (n, h))));
+        match heating.iter().flatten().count() {
+            0 => None,
+            1 => Some((heating, 1)),
+            _ => Some((heating, 2)),
+        }
+    }
+
     /// The arms of a Wheatstone bridge (r1 r2 | r3 r4, as in
     /// `physics::strain`) with each heated element's self-heating, from
     /// the power the solved bridge puts in it. `nodes` says which element
@@ -298,13 +314,9 @@ impl Plan {
         values: &[f64],
         env: &Env,
     ) -> Result<[f64; 4], EvalError> {
-        let heating: [Option<(NodeId, Heating)>; 4] =
-            std::array::from_fn(|k| nodes[k].and_then(|n| self.heating(n).map(|h| (n, h))));
-        let count = heating.iter().flatten().count();
-        if count == 0 {
+        let Some((heating, passes)) = self.arm_heating(nodes) else {
             return Ok(arms);
-        }
-        let passes = if count > 1 { 2 } else { 1 };
+        };
         let mut leads = [0.0; 4];
         for (k, heated) in heating.iter().enumerate() {
             if let Some((n, _)) = heated {
@@ -490,13 +502,9 @@ impl Plan {
         exc: &Column,
         run: &LaneRun<'_>,
     ) -> Result<[[f64; 4]; LANES], Lost> {
-        let heating: [Option<(NodeId, Heating)>; 4] =
-            std::array::from_fn(|k| nodes[k].and_then(|n| self.heating(n).map(|h| (n, h))));
-        let count = heating.iter().flatten().count();
-        if count == 0 {
+        let Some((heating, passes)) = self.arm_heating(nodes) else {
             return Ok(arms);
-        }
-        let passes = if count > 1 { 2 } else { 1 };
+        };
         let excitation: [Signal; LANES] = std::array::from_fn(|j| exc.signal(j));
         let mut leads = [[0.0; LANES]; 4];
         let mut curves = [None; 4];

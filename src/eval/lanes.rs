@@ -299,26 +299,19 @@ impl LaneRun<'_> {
 
 #[cfg(test)]
 mod tests {
-    use std::path::Path;
 
     use super::{LaneColumns, Lost};
-    use crate::diagnostics::SourceFile;
     use crate::eval::plan::{Env, Plan, Signal};
     use crate::eval::run::{Mode, Reach, LANES, MAX_NODES};
-    use crate::model::PartsCache;
     use crate::units::ZERO_CELSIUS_K;
 
     /// The plan of the first chain of `spec`, up to its converter (a
     /// conversion need not fit: a divider's element above a current
     /// source changes no code).
     fn plan(spec: &str) -> Plan {
-        let file = SourceFile::new("t.catena", spec);
-        let (ast, mut findings) = crate::syntax::parse(&file);
-        let mut parts = PartsCache::default();
-        let (chains, more) = crate::model::resolve(&file, &ast, Path::new("."), None, &mut parts);
-        findings.extend(more);
-        assert!(!findings.has_errors(), "{findings:?}");
-        crate::eval::lower_stages(&chains[0]).expect("lowers").0
+        crate::eval::lower_stages(&super::check::chain(spec))
+            .expect("lowers")
+            .0
     }
 
     /// Each lane's values, one lane after another: every slot moved from
@@ -509,18 +502,33 @@ pub(super) mod check {
     use crate::diagnostics::SourceFile;
     use crate::eval::plan::{Env, NodeId, Plan, Signal};
     use crate::eval::run::{Mode, LANES, MAX_NODES};
-    use crate::model::PartsCache;
+    use crate::model::{Chain, PartsCache};
+    use crate::units::ZERO_CELSIUS_K;
 
-    /// The plan of the first chain of `spec`.
-    pub fn plan(spec: &str) -> Plan {
+    /// The first chain of `spec`, parsed and resolved without errors.
+    pub fn chain(spec: &str) -> Chain {
         let file = SourceFile::new("t.catena", spec);
         let (ast, mut findings) = crate::syntax::parse(&file);
         let mut parts = PartsCache::default();
         let (chains, more) = crate::model::resolve(&file, &ast, Path::new("."), None, &mut parts);
         findings.extend(more);
         assert!(!findings.has_errors(), "{findings:?}");
-        let chain = chains.into_iter().next().expect("a chain");
-        crate::eval::lower(&chain).expect("lowers")
+        chains.into_iter().next().expect("a chain")
+    }
+
+    /// The plan of the first chain of `spec`.
+    pub fn plan(spec: &str) -> Plan {
+        crate::eval::lower(&chain(spec)).expect("lowers")
+    }
+
+    /// The conditions at `measurand_c` °C with the ambient, and the cold
+    /// junction in it, at `ambient_c` °C.
+    pub fn env_c(measurand_c: f64, ambient_c: f64) -> Env {
+        Env {
+            measurand: measurand_c + ZERO_CELSIUS_K,
+            ambient: ambient_c + ZERO_CELSIUS_K,
+            cold_junction: ambient_c + ZERO_CELSIUS_K,
+        }
     }
 
     /// The node of stage `name`.

@@ -548,24 +548,10 @@ fn narrow_domain(
 
 #[cfg(test)]
 mod tests {
-    use std::path::Path;
-
     use super::lower;
-    use crate::diagnostics::SourceFile;
+    use crate::eval::lanes::check::chain;
     use crate::eval::node::{BridgeKind, Node};
     use crate::eval::{Plan, SourceKind};
-    use crate::model::{Chain, PartsCache};
-
-    /// The first chain of `spec`, parsed and resolved without errors.
-    fn chain(spec: &str) -> Chain {
-        let file = SourceFile::new("t.catena", spec);
-        let (ast, mut findings) = crate::syntax::parse(&file);
-        let mut parts = PartsCache::default();
-        let (chains, more) = crate::model::resolve(&file, &ast, Path::new("."), None, &mut parts);
-        findings.extend(more);
-        assert!(!findings.has_errors(), "{findings:?}");
-        chains.into_iter().next().expect("a chain")
-    }
 
     fn plan(spec: &str) -> Plan {
         lower(&chain(spec)).expect("lowers")

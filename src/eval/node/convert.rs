@@ -154,8 +154,8 @@ impl Convert {
 #[cfg(test)]
 mod tests {
     use crate::eval::lanes::{check, Lost};
-    use crate::eval::node::ic_current::tests::{busbar_env, BUSBAR};
-    use crate::eval::node::ic_voltage::tests::{oven_env, OVEN};
+    use crate::eval::node::ic_current::tests::BUSBAR;
+    use crate::eval::node::ic_voltage::tests::OVEN;
 
     /// Both conversions of a couple read with its cold junction's: the
     /// junction's own (a complete inverse table) and the couple's, whose
@@ -168,7 +168,7 @@ mod tests {
             let node = check::node(&plan, name);
             for (t, ambient) in [(80.0, 10.0), (200.0, 25.0), (320.0, 40.0), (500.0, 25.0)] {
                 for quantized in [true, false] {
-                    let env = oven_env(t, ambient);
+                    let env = check::env_c(t, ambient);
                     let mode = check::mode(quantized, false);
                     check::matches_single_runs(&plan, node, &rows, &env, mode)
                         .expect("every lane runs");
@@ -188,7 +188,7 @@ mod tests {
             let rows = check::spread(&plan);
             for (t, ambient) in [(-20.0, -20.0), (40.0, 25.0), (100.0, 60.0)] {
                 for quantized in [true, false] {
-                    let env = busbar_env(t, ambient);
+                    let env = check::env_c(t, ambient);
                     let mode = check::mode(quantized, false);
                     check::matches_single_runs(&plan, reading, &rows, &env, mode)
                         .expect("every lane runs");
@@ -207,7 +207,7 @@ mod tests {
         let rows = check::spread(&plan);
         for (t, ambient) in [(-20.0, -20.0), (40.0, 25.0), (100.0, 60.0)] {
             for quantized in [true, false] {
-                let env = busbar_env(t, ambient);
+                let env = check::env_c(t, ambient);
                 check::matches_single_runs(
                     &plan,
                     reading,
@@ -219,7 +219,7 @@ mod tests {
             }
         }
         let rows = check::with(&plan, rows, 2, "load.r", f64::NAN);
-        let env = busbar_env(40.0, 25.0);
+        let env = check::env_c(40.0, 25.0);
         let got = check::matches_single_runs(&plan, reading, &rows, &env, check::mode(true, false));
         assert_eq!(got.err(), Some(Lost));
     }

@@ -85,8 +85,6 @@ impl IcCurrent {
 #[cfg(test)]
 pub(super) mod tests {
     use crate::eval::lanes::{check, Lost};
-    use crate::eval::plan::Env;
-    use crate::units::ZERO_CELSIUS_K;
 
     /// A PTAT current into a load resistor, converted with an offset
     /// calibration.
@@ -116,28 +114,20 @@ chain busbar "b" {
 }
 "#;
 
-    pub fn busbar_env(measurand_c: f64, ambient_c: f64) -> Env {
-        Env {
-            measurand: measurand_c + ZERO_CELSIUS_K,
-            ambient: ambient_c + ZERO_CELSIUS_K,
-            cold_junction: ambient_c + ZERO_CELSIUS_K,
-        }
-    }
-
     #[test]
     fn lanes_match_single_runs() {
         let plan = check::plan(BUSBAR);
         let ptat = check::node(&plan, "ptat");
         let rows = check::spread(&plan);
         for (t, ambient) in [(-20.0, -20.0), (40.0, 25.0), (100.0, 60.0)] {
-            let env = busbar_env(t, ambient);
+            let env = check::env_c(t, ambient);
             check::matches_single_runs(&plan, ptat, &rows, &env, check::mode(true, false))
                 .expect("every lane runs");
         }
         // A sensed temperature below absolute zero in one lane: no PTAT
         // current there, so the batch is lost.
         let rows = check::with(&plan, rows, 3, "ptat.accuracy", -1000.0);
-        let env = busbar_env(40.0, 25.0);
+        let env = check::env_c(40.0, 25.0);
         let got = check::matches_single_runs(&plan, ptat, &rows, &env, check::mode(true, false));
         assert_eq!(got.err(), Some(Lost));
     }

@@ -120,8 +120,6 @@ impl IcVoltage {
 #[cfg(test)]
 pub(super) mod tests {
     use crate::eval::lanes::check;
-    use crate::eval::plan::Env;
-    use crate::units::ZERO_CELSIUS_K;
 
     /// A couple read against a voltage-output sensor at its cold junction,
     /// each through its own converter and conversion.
@@ -168,16 +166,6 @@ chain oven "o" {
 }
 "#;
 
-    /// The oven's conditions: the measurand and the ambient (where the
-    /// cold junction sits), °C.
-    pub fn oven_env(measurand_c: f64, ambient_c: f64) -> Env {
-        Env {
-            measurand: measurand_c + ZERO_CELSIUS_K,
-            ambient: ambient_c + ZERO_CELSIUS_K,
-            cold_junction: ambient_c + ZERO_CELSIUS_K,
-        }
-    }
-
     #[test]
     fn lanes_match_single_runs() {
         let plan = check::plan(OVEN);
@@ -186,14 +174,14 @@ chain oven "o" {
         for (t, ambient) in [(80.0, 10.0), (200.0, 25.0), (320.0, 40.0)] {
             for calibrating in [false, true] {
                 let mode = check::mode(true, calibrating);
-                check::matches_single_runs(&plan, cjs, &rows, &oven_env(t, ambient), mode)
+                check::matches_single_runs(&plan, cjs, &rows, &check::env_c(t, ambient), mode)
                     .expect("every lane runs");
             }
         }
         // Its output fails in no lane: a value that is not a number gives
         // a signal that is not one, which loses the batch in its run.
         let rows = check::with(&plan, rows, 5, "cjs.slope", f64::NAN);
-        let env = oven_env(200.0, 25.0);
+        let env = check::env_c(200.0, 25.0);
         let column = check::matches_single_runs(&plan, cjs, &rows, &env, check::mode(true, false))
             .expect("every lane runs");
         assert!(!column.finite());
