@@ -299,7 +299,6 @@ impl LaneRun<'_> {
 
 #[cfg(test)]
 mod tests {
-
     use super::{LaneColumns, Lost};
     use crate::eval::plan::{Env, Plan, Signal};
     use crate::eval::run::{Mode, Reach, LANES, MAX_NODES};
