@@ -937,8 +937,11 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
 
 /// What brings an amplifier's output back inside its swing: the gain
 /// scales the output about its reference, so a smaller (or larger) gain
-/// where that helps (nothing to say if the gain is not a stated value),
-/// else a reference that shifts it.
+/// where the measurand drives the output there (nothing to say if the
+/// gain is not a stated value), else a reference that shifts it. Where
+/// the nominal output sits near its reference and the tolerances alone
+/// carry it toward the end (a bridge's zero, an offset), a gain small
+/// enough would also give up the span, so the reference is the fix.
 fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
     let Side { value, target, .. } = side;
     let worst = Env {
@@ -946,13 +949,19 @@ fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> O
         ambient: e.worst_at.1,
         cold_junction: e.worst_at.1,
     };
-    let shift = plan
-        .raw_signals(&plan.nominal, &worst)
-        .ok()
-        .and_then(|s| plan.amplifier_reference(e.node, &plan.nominal, &worst, &s))
+    let signals = plan.raw_signals(&plan.nominal, &worst).ok();
+    let shift = signals
+        .as_ref()
+        .and_then(|s| plan.amplifier_reference(e.node, &plan.nominal, &worst, s))
         .unwrap_or(0.0);
+    let driven = match signals.map(|s| s[e.node.index()]) {
+        Some(Signal::Voltage { v: nominal, .. }) => {
+            2.0 * (nominal - shift).abs() >= (value - shift).abs()
+        }
+        _ => true,
+    };
     let pct = trimmed(margin * 100.0, 3);
-    if value != shift && (target - shift) / (value - shift) > 0.0 {
+    if driven && value != shift && (target - shift) / (value - shift) > 0.0 {
         return nominal_of(plan, e.node, schema::param::GAIN).map(|g| {
             let fits = g * (target - shift) / (value - shift);
             let word = if fits < g { "at most" } else { "at least" };
@@ -962,7 +971,7 @@ fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> O
             )
         });
     }
-    Some(format!("the output must reach {}: a `reference` of {} keeps {pct} % headroom (it shifts the output), or choose an amplifier that swings there", show(e, value), with_prefix(shift + target - value, "V", 4)))
+    Some(format!("the output reaches {}: a `reference` of {} keeps {pct} % headroom (it shifts the output), or choose an amplifier that swings there", show(e, value), with_prefix(shift + target - value, "V", 4)))
 }
 
 #[cfg(test)]

@@ -592,8 +592,7 @@ impl Reader<'_> {
             Some(v) => {
                 let text = match &v {
                     Value::Word(w) => w.name.clone(),
-                    Value::Quantity(q) => self.cx.file.slice(q.span).to_string(),
-                    other => other.describe().to_string(),
+                    other => self.cx.file.slice(other.span()).to_string(),
                 };
                 let near = did_you_mean(&text, words.iter().copied());
                 let list = words

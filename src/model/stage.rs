@@ -245,10 +245,15 @@ fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Findin
         match (did_you_mean(name, model.names()), elsewhere) {
             (Some(n), _) => format!("did you mean `{n}`?"),
             (None, Some(other)) => {
-                format!("`{name}` belongs to a {} `{other}`", decl.kind.keyword())
+                let kind = decl.kind.keyword();
+                format!(
+                    "`{name}` belongs to {} {kind} `{other}`",
+                    super::article(kind)
+                )
             }
             (None, None) => format!(
-                "a {what} takes {}",
+                "{} {what} takes {}",
+                super::article(&what),
                 model
                     .names()
                     .map(|n| format!("`{n}`"))
