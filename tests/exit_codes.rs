@@ -128,6 +128,44 @@ const CASES: &[(&str, i32, &[&str])] = &[
         &["compare", "specs/cold_store.catena#no_such_chain"],
     ),
     (
+        "catena checklist",
+        0,
+        &["checklist", "specs/cold_store.catena"],
+    ),
+    (
+        "catena checklist",
+        1,
+        &[
+            "checklist",
+            "tests/fixtures/invalid/R601-over-gained-amplifier.catena",
+        ],
+    ),
+    (
+        "catena checklist",
+        2,
+        &["checklist", "specs/cold_store.catena", "--format", "xml"],
+    ),
+    (
+        "catena report",
+        0,
+        &["report", "specs/cold_store.catena", "--format", "json"],
+    ),
+    (
+        "catena report",
+        1,
+        &[
+            "report",
+            "tests/fixtures/invalid/R601-over-gained-amplifier.catena",
+            "--format",
+            "json",
+        ],
+    ),
+    (
+        "catena report",
+        2,
+        &["report", "specs/cold_store.catena", "--format", "xml"],
+    ),
+    (
         "catena export",
         0,
         &["export", "specs/cold_store.catena", "--lang", "json"],

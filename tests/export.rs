@@ -739,3 +739,28 @@ fn a_new_folder_is_made_on_request_and_a_missing_one_refused() {
         assert!(!dir.join("nowhere").exists(), "{command:?} made the folder");
     }
 }
+
+/// A spec with errors gets its findings, a closing line saying that no
+/// constants were written and why, status 1, and no file.
+#[test]
+fn a_spec_with_errors_writes_nothing_and_says_so() {
+    let dir = scratch("errors");
+    let out = dir.join("fw.h");
+    let out_arg = out.to_string_lossy().into_owned();
+    let run = export(&[
+        "export",
+        "tests/fixtures/invalid/R601-over-gained-amplifier.catena",
+        "--lang",
+        "c",
+        "-o",
+        &out_arg,
+    ]);
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    assert!(run.stderr.contains("R601"), "{}", run.stderr);
+    let last = run.stderr.trim_end().lines().last().unwrap_or_default();
+    assert!(
+        last.starts_with("catena: no constants written:") && last.contains("1 error (above)"),
+        "{last}"
+    );
+    assert!(!out.exists() && !dir.join("fw.c").exists());
+}

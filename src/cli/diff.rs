@@ -108,11 +108,7 @@ pub(super) fn evaluate(
     options: &Options,
 ) -> Result<Outcome, String> {
     if !checked.resolved {
-        let n = checked
-            .findings
-            .iter()
-            .filter(|f| f.severity() == crate::diagnostics::Severity::Error)
-            .count();
+        let n = checked.findings.error_count();
         return Err(format!("not evaluated: {n} error(s) found by check"));
     }
     let not_evaluated = |e: crate::eval::EvalError| format!("not evaluated: {e}");

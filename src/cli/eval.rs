@@ -616,10 +616,7 @@ impl View<'_> {
 
 /// "1 error", "2 errors, 1 warning".
 fn count(findings: &Findings) -> String {
-    let errors = findings
-        .iter()
-        .filter(|f| f.severity() == Severity::Error)
-        .count();
+    let errors = findings.error_count();
     let warnings = findings.len() - errors;
     let plural = |n: usize, what: &str| match n {
         1 => format!("1 {what}"),

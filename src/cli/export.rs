@@ -57,7 +57,14 @@ pub fn run(args: ExportArgs) -> u8 {
         Err(status) => return status,
     };
     if checked.findings.has_errors() {
-        return report(checked.findings);
+        let errors = checked.findings.error_count();
+        let status = report(checked.findings);
+        errln!(
+            "catena: no constants written: {} has {errors} error{} (above); the firmware's constants come from a spec that passes `catena check`",
+            args.spec.display(),
+            if errors == 1 { "" } else { "s" }
+        );
+        return status;
     }
     let chains = match pick(&checked.chains, args.chain.as_deref()) {
         Ok(c) => c,

@@ -48,7 +48,14 @@ impl Findings {
     }
 
     pub fn has_errors(&self) -> bool {
-        self.items.iter().any(|f| f.severity() == Severity::Error)
+        self.error_count() > 0
+    }
+
+    pub fn error_count(&self) -> usize {
+        self.items
+            .iter()
+            .filter(|f| f.severity() == Severity::Error)
+            .count()
     }
 
     pub fn iter(&self) -> impl Iterator<Item = &Finding> {
