@@ -39,7 +39,8 @@ fn a_gain_change_moves_the_budget_and_the_headroom() {
 
     let run = diff(&old, &new, TRIALS, &["--format", "json"]);
     let doc = json(&run.stdout);
-    assert_eq!(doc["schema_version"], 1);
+    assert_eq!(doc["schema_version"], 2);
+    // Past the converter's end: worse, whatever the gain bought.
     assert_eq!(doc["direction"], "worse");
     let chain = &doc["files"][0]["chains"][0];
     let spec = chain["spec"].as_array().expect("spec changes");

@@ -169,10 +169,10 @@ pub fn run(args: DiffArgs) -> u8 {
         .collect();
     let chains = || files.iter().flat_map(|f| f.chains.iter());
     let report = DiffReport {
-        schema_version: 1,
+        schema_version: 2,
         direction: chains()
             .map(|c| c.direction)
-            .fold(Direction::Neutral, headline),
+            .fold(Direction::Neutral, Direction::and),
         regression: chains().any(|c| c.regression),
         threshold_percent: args.threshold,
         trials: options.trials.unwrap_or(0),
@@ -193,15 +193,6 @@ pub fn run(args: DiffArgs) -> u8 {
         EXIT_FINDINGS
     } else {
         EXIT_OK
-    }
-}
-
-/// Worse wins over better, better over neutral.
-fn headline(a: Direction, b: Direction) -> Direction {
-    match (a, b) {
-        (Direction::Worse, _) | (_, Direction::Worse) => Direction::Worse,
-        (Direction::Better, _) | (_, Direction::Better) => Direction::Better,
-        _ => Direction::Neutral,
     }
 }
 

@@ -27,6 +27,9 @@ pub enum Direction {
     Better,
     Neutral,
     Worse,
+    /// A change's or a chain's whole: something better and something
+    /// worse (never a single figure's).
+    Mixed,
 }
 
 impl Direction {
@@ -35,6 +38,19 @@ impl Direction {
             Direction::Better => "better",
             Direction::Neutral => "neutral",
             Direction::Worse => "worse",
+            Direction::Mixed => "mixed",
+        }
+    }
+
+    /// Two wholes as one: a loss and a gain together are mixed, either
+    /// alone wins over neutral.
+    pub fn and(self, other: Direction) -> Direction {
+        use Direction::{Better, Mixed, Neutral, Worse};
+        match (self, other) {
+            (Mixed, _) | (_, Mixed) | (Worse, Better) | (Better, Worse) => Mixed,
+            (Worse, _) | (_, Worse) => Worse,
+            (Better, _) | (_, Better) => Better,
+            (Neutral, Neutral) => Neutral,
         }
     }
 }
@@ -154,12 +170,19 @@ pub fn diff_outcomes(old: &Outcome, new: &Outcome, threshold: f64) -> OutcomeDif
             .map(|m| format!("`{}` goes beyond its limit", m.name)),
     );
     reasons.extend(faults.iter().filter(|f| f.regression).map(fault_reason));
-    // Worse wins over better: a reviewer must see any loss. Without
-    // requirements, the GUM total speaks for accuracy.
-    let direction = if judged(Direction::Worse) || crossed || faults_judged(Direction::Worse) {
-        Direction::Worse
-    } else if judged(Direction::Better) || faults_judged(Direction::Better) {
-        Direction::Better
+    // A reviewer must see any loss. A chain that now fails a requirement
+    // or leaves a limit is worse whatever else it gained; a smaller loss
+    // beside a gain is mixed. Without requirements, the GUM total speaks
+    // for accuracy.
+    let broke = crossed || requirements.iter().any(newly_fails);
+    let lost = judged(Direction::Worse) || faults_judged(Direction::Worse);
+    let gained = judged(Direction::Better) || faults_judged(Direction::Better);
+    let direction = if broke || lost || gained {
+        match (broke, lost, gained) {
+            (false, true, true) => Direction::Mixed,
+            (false, false, true) => Direction::Better,
+            _ => Direction::Worse,
+        }
     } else if old.requirements.is_empty() && new.requirements.is_empty() {
         worst
             .iter()
@@ -254,6 +277,15 @@ fn fault_change(o: Option<&FaultOutcome>, n: &FaultOutcome) -> Option<FaultChang
         direction,
         regression,
     })
+}
+
+/// A requirement failed after and met (or not stated) before.
+fn newly_fails(r: &RequirementChange) -> bool {
+    match (&r.old, &r.new) {
+        (Some(o), Some(n)) => o.pass && !n.pass,
+        (None, Some(n)) => !n.pass,
+        (_, None) => false,
+    }
 }
 
 fn regression_reason(r: &RequirementChange) -> String {
@@ -677,6 +709,40 @@ mod tests {
         let told = diff_outcomes(&silent, &undetermined, DEFAULT_THRESHOLD);
         assert_eq!((told.faults.len(), told.regression), (1, false));
         assert_eq!(told.direction, Direction::Neutral);
+    }
+
+    /// A fault made detectable while a margin shrank: mixed, not worse,
+    /// and the margin's regression is still one.
+    #[test]
+    fn a_gain_beside_a_loss_is_mixed() {
+        let mut old = with_faults(vec![open_tc(Verdict::Silent, None)]);
+        old.requirements = vec![accuracy(0.10, None)];
+        let mut new = with_faults(vec![open_tc(
+            Verdict::Detectable,
+            Some(Threshold::Above(950)),
+        )]);
+        new.requirements = vec![accuracy(0.104, None)];
+        let d = diff_outcomes(&old, &new, DEFAULT_THRESHOLD);
+        assert_eq!(d.direction, Direction::Mixed);
+        assert!(d.regression);
+    }
+
+    /// Chains' directions as the file's and the change's: a loss and a
+    /// gain make mixed, either alone wins over neutral.
+    #[test]
+    fn directions_combine() {
+        use Direction::{Better, Mixed, Neutral, Worse};
+        let all = [Better, Neutral, Worse, Mixed];
+        for a in all {
+            assert_eq!(a.and(Neutral), a);
+            assert_eq!(Mixed.and(a), Mixed);
+            for b in all {
+                assert_eq!(a.and(b), b.and(a));
+            }
+        }
+        assert_eq!(Worse.and(Better), Mixed);
+        assert_eq!(Worse.and(Worse), Worse);
+        assert_eq!(Better.and(Better), Better);
     }
 
     #[test]
