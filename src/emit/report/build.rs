@@ -204,6 +204,7 @@ fn hidden_faults(list: &Checklist) -> Vec<HiddenFault> {
         .map(|f| HiddenFault {
             stage: f.stage.clone(),
             fault: f.fault.to_string(),
+            condition: f.condition.to_string(),
             verdict: f.verdict.to_string(),
         })
         .collect()

@@ -174,7 +174,13 @@ fn verdict(out: &mut String, c: &ChainReport) {
     if !v.faults.is_empty() {
         out.push_str("| stage | fault | firmware sees it |\n| --- | --- | --- |\n");
         for f in &v.faults {
-            let _ = writeln!(out, "| `{}` | {} | **{}** |", f.stage, f.fault, f.verdict);
+            let _ = writeln!(
+                out,
+                "| `{}` | {} | **{}** |",
+                f.stage,
+                cell(&f.condition),
+                f.verdict
+            );
         }
         out.push('\n');
     }

@@ -108,6 +108,8 @@ pub struct Verdict {
 pub struct HiddenFault {
     pub stage: String,
     pub fault: String,
+    /// The fault in words, as the checklist names it.
+    pub condition: String,
     /// `silent` or `undetermined`.
     pub verdict: String,
 }
