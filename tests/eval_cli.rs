@@ -403,3 +403,24 @@ fn budget_and_eval_show_the_part_that_evaluates() {
     assert!((reading - 100.0).abs() < 0.01, "{reading}");
     assert_eq!(v["findings"][0]["code"], "E501");
 }
+
+/// A stage two findings of one code point at shows the code once, with
+/// how many: the supply's loss and its short are both silent and both
+/// mask the alarm.
+#[test]
+fn a_stage_shows_each_finding_code_once_with_its_count() {
+    let dir = root().join("tests/fixtures/eval");
+    let run = catena(
+        &dir,
+        &["eval", "press_transducer.catena", "--at", "125"],
+        None,
+    );
+    assert_eq!(run.status, 1, "{}", run.stderr);
+    let supply = run
+        .stdout
+        .lines()
+        .find(|l| l.trim_start().starts_with("bridge_supply"))
+        .expect("the supply's row");
+    assert!(supply.ends_with("R670 ×2, R672 ×2"), "{supply}");
+    assert_eq!(run.stderr.matches("R670\n").count(), 3, "{}", run.stderr);
+}

@@ -452,15 +452,31 @@ impl View<'_> {
             .map(|s| s.name.as_str())
     }
 
-    /// The codes of the findings that point at `stage`.
+    /// The codes of the findings that point at `stage`, each once with
+    /// how many there are ("R670 ×2, R672").
     fn marks(&self, stage: &str) -> String {
-        let codes: Vec<&str> = self
+        let mut counted: Vec<(&str, usize)> = Vec::new();
+        for f in self
             .findings
             .iter()
             .filter(|f| self.stage_of(f) == Some(stage))
-            .map(|f| f.code.as_str())
+        {
+            match counted
+                .iter_mut()
+                .find(|(code, _)| *code == f.code.as_str())
+            {
+                Some((_, n)) => *n += 1,
+                None => counted.push((f.code.as_str(), 1)),
+            }
+        }
+        let shown: Vec<String> = counted
+            .into_iter()
+            .map(|(code, n)| match n {
+                1 => code.to_string(),
+                _ => format!("{code} ×{n}"),
+            })
             .collect();
-        codes.join(", ")
+        shown.join(", ")
     }
 
     fn code(&self) -> i64 {
