@@ -251,3 +251,38 @@ fn suggestions_are_read_from_the_help() {
         "    adc conv { burnout 2 uA; bits 12 }\n"
     );
 }
+
+/// The help for a lost or shorted supply the converter does not read
+/// against names the edge that makes it ratiometric; with that edge
+/// written in, both faults leave the window (R670 and the alarm's R672
+/// clear for the supply).
+#[test]
+fn the_ratiometric_help_clears_the_supply_faults() {
+    let path = root().join("tests/fixtures/eval/press_transducer.catena");
+    let on_supply = |fs: &[Value]| -> Vec<String> {
+        fs.iter()
+            .filter(|f| is_fault_finding(f) && f["line"] == 9)
+            .map(|f| format!("{} {}", f["code"], f["message"]))
+            .collect()
+    };
+    let before = findings(&path, None);
+    let edge = "bridge_supply -> conv.ref";
+    let helps: Vec<&str> = before
+        .iter()
+        .filter(|f| f["code"] == "R670" && f["line"] == 9)
+        .filter_map(|f| f["help"].as_str())
+        .collect();
+    assert_eq!(helps.len(), 2, "{before:?}");
+    assert!(helps
+        .iter()
+        .all(|h| h.contains(&format!("(`{edge}`, ratiometric)"))));
+    let text = std::fs::read_to_string(&path).expect("the fixture");
+    let wired = text.replace(
+        "    bridge_supply -> cell -> front -> conv -> reading\n",
+        &format!("    bridge_supply -> cell -> front -> conv -> reading\n    {edge}\n"),
+    );
+    assert_ne!(wired, text);
+    let after = findings(&path, Some(&wired));
+    assert!(!on_supply(&before).is_empty());
+    assert_eq!(on_supply(&after), Vec::<String>::new(), "{after:?}");
+}

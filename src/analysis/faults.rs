@@ -563,20 +563,46 @@ fn fix(
             )),
             here,
         ),
+        // A voltage excitation the converter does not read against: read
+        // against it (ratiometric) and its loss or short takes the
+        // converter's reference, so the code, with it.
+        (FaultKind::Lost | FaultKind::AtCurrentLimit, Node::Excitation(e))
+            if !e.current && !reads_against(plan, fault.node) =>
+        {
+            (codes.map(|codes| ratiometric_fix(plan, window, fault.node, codes)), here)
+        }
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) if a.output.is_none() => (
             Some("state the amplifier's output swing (`output`), so its saturated output gives a determined code".to_string()),
             here,
         ),
-        _ => (
-            codes.map(|codes| {
-                format!(
-                    "{} the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
-                    codes.overlap(), window.low, window.high
-                )
-            }),
-            here,
-        ),
+        _ => (codes.map(|codes| pull_to_rail_fix(window, codes)), here),
     }
+}
+
+/// The help for a fault reading inside the window with nothing more
+/// particular to say: drive the node to a rail.
+fn pull_to_rail_fix(window: &CodeWindow, codes: FaultCodes) -> String {
+    format!(
+        "{} the valid window {} .. {}: pull the node to a rail through a resistor (or use a burnout current) so the fault drives the code outside the window",
+        codes.overlap(),
+        window.low,
+        window.high
+    )
+}
+
+/// Whether the chain's converter works against `source`'s output.
+fn reads_against(plan: &Plan, source: NodeId) -> bool {
+    matches!(&plan.nodes[plan.adc.index()], Node::Adc(adc) if adc.reference == Some(source))
+}
+
+/// The help for a voltage `source` whose loss reads inside the window:
+/// the edge that makes the converter read against it.
+fn ratiometric_fix(plan: &Plan, window: &CodeWindow, source: NodeId, codes: FaultCodes) -> String {
+    let (source, adc) = (&plan.names[source.index()], &plan.names[plan.adc.index()]);
+    format!(
+        "{} the valid window {} .. {}: read the converter against `{source}` (`{source} -> {adc}.ref`, ratiometric), so its loss takes the converter's reference with it and the code to an end, or monitor `{source}` on a channel of its own",
+        codes.overlap(), window.low, window.high
+    )
 }
 
 /// Whether the fault's code is undetermined only for want of a limit the
