@@ -847,7 +847,12 @@ fn message(
 fn labels(chain: &Chain, plan: &Plan, e: &Envelope, stage: &Stage, f: Finding) -> Finding {
     let mut f = f.label(stage.name_span, "this stage");
     let (limit_param, drive_param) = e.limit.params();
-    for (name, text) in [(limit_param, "the limit"), (drive_param, "drives it")] {
+    let mut involved = vec![(limit_param, "the limit"), (drive_param, "drives it")];
+    // An amplifier's stated reference shifts its output: the other fix.
+    if e.limit == Limit::AmplifierOutput {
+        involved.push((schema::REFERENCE, "shifts it"));
+    }
+    for (name, text) in involved {
         if let Some(p) = stage.params.iter().find(|p| p.name == name) {
             if std::sync::Arc::ptr_eq(&p.file, &chain.file)
                 && !f.labels.iter().any(|l| l.span == p.span)
