@@ -33,6 +33,13 @@ pub struct Dynamics {
 }
 
 impl Dynamics {
+    /// Whether the spec states anything the response depends on: a
+    /// sensing time constant, a filter or a conversion rate. Without one
+    /// the modelled response is instantaneous, which says nothing.
+    pub fn stated(&self) -> bool {
+        self.sensor_time_constant > 0.0 || self.filter.is_some() || self.rate_hz.is_some()
+    }
+
     /// |H(f)| of the whole signal path to the measurand: the sensing
     /// element's lag, then the electrical path.
     pub fn magnitude(&self, f: f64) -> f64 {

@@ -247,8 +247,7 @@ fn noise_line(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> String {
 
 fn dynamics_line(a: &Analysis) -> String {
     let d = &a.dynamics;
-    let stated = d.sensor_time_constant > 0.0 || d.filter.is_some() || d.rate_hz.is_some();
-    if !stated {
+    if !d.stated() {
         return "dynamics: no time constant, filter or rate stated\n".to_string();
     }
     let mains = d

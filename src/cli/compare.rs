@@ -143,7 +143,8 @@ fn table(candidates: &[Candidate]) -> (Vec<String>, Vec<Vec<String>>) {
         format!("{} {}", num(o.resolution), o.unit)
     });
     row("response (90 %)".into(), &|o| {
-        o.response_s.map_or("—".into(), |t| format!("{} s", num(t)))
+        o.response_s
+            .map_or("— (nothing stated)".into(), |t| format!("{} s", num(t)))
     });
     row("largest contributor".into(), &|o| {
         o.largest.as_ref().map_or("—".into(), |(id, share)| {
@@ -207,7 +208,7 @@ fn undetected_faults(o: &Outcome) -> String {
     };
     let names: Vec<String> = faults
         .undetected()
-        .map(|f| format!("{} {} ({})", f.stage, f.fault, f.verdict.name()))
+        .map(|f| format!("{} {} ({})", f.stage, f.condition, f.verdict.name()))
         .collect();
     if names.is_empty() {
         "none".into()

@@ -374,7 +374,8 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis, faults: Option<&FaultRe
             })
             .collect(),
         resolution: resolution(a) * f,
-        response_s: a.dynamics.response_90,
+        // A response of nothing stated is not one of 0 s.
+        response_s: a.dynamics.response_90.filter(|_| a.dynamics.stated()),
         window: window(plan),
         alarms: a
             .alarms
