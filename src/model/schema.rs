@@ -1295,6 +1295,33 @@ fn read_convert(r: &Reader<'_>) -> Option<StageModel> {
     }))
 }
 
+/// Names datasheets and other habits give to what the language states
+/// another way, with the way it does.
+const SAID_OTHERWISE: [(StageKind, &[&str], &str); 3] = [
+    (
+        StageKind::Adc,
+        &["range", "span", "full_scale", "input_range"],
+        "a converter's span follows from its reference (`vref`, or a source wired to its `ref`) and its `polarity`",
+    ),
+    (
+        StageKind::Adc,
+        &["resolution"],
+        "a converter's resolution is its `bits`",
+    ),
+    (
+        StageKind::Amplifier,
+        &["vref", "ref"],
+        "an amplifier's output is lifted by its `reference`",
+    ),
+];
+
+pub fn said_otherwise(kind: StageKind, name: &str) -> Option<&'static str> {
+    SAID_OTHERWISE
+        .iter()
+        .find(|(k, names, _)| *k == kind && names.contains(&name))
+        .map(|(_, _, hint)| *hint)
+}
+
 #[cfg(test)]
 mod tests {
     use super::{model, ParamValue, Reader, ResolvedParam, StageModel};

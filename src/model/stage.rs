@@ -10,7 +10,7 @@ use super::schema::{self, ModelSpec, Shape};
 use super::value::ResolvedParam;
 use crate::diagnostics::did_you_mean;
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile};
-use crate::syntax::ast::{Param, StageDecl};
+use crate::syntax::ast::{Param, StageDecl, StageKind};
 
 /// A parameter line and the file it was written in.
 struct Line<'a> {
@@ -229,7 +229,7 @@ fn find_model(
 
 fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Finding {
     let name = &line.param.name.name;
-    if decl.kind == crate::syntax::ast::StageKind::Sensor && name.starts_with("bias_") {
+    if decl.kind == StageKind::Sensor && name.starts_with("bias_") {
         if let Some(m) = model.model.filter(|m| *m != schema::THERMOCOUPLE) {
             return needless_bias(line, decl, m);
         }
@@ -251,15 +251,21 @@ fn unknown_param(line: &Line<'_>, decl: &StageDecl, model: &ModelSpec) -> Findin
                     super::article(kind)
                 )
             }
-            (None, None) => format!(
-                "{} {what} takes {}",
-                super::article(&what),
-                model
-                    .names()
-                    .map(|n| format!("`{n}`"))
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            ),
+            (None, None) => {
+                let takes = format!(
+                    "{} {what} takes {}",
+                    super::article(&what),
+                    model
+                        .names()
+                        .map(|n| format!("`{n}`"))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                );
+                match schema::said_otherwise(decl.kind, name) {
+                    Some(hint) => format!("{hint}; {takes}"),
+                    None => takes,
+                }
+            }
         }
     });
     Finding::new(
