@@ -444,7 +444,7 @@ impl Plan {
             return Ok(cold);
         };
         let delta = run.slot(heating.dissipation);
-        self_heated_lanes(&curves, &cold, heating.curved, &delta, |k, r| {
+        self_heated_lanes(&curves, &cold, heating.curved, delta, |k, r| {
             a[k] * a[k] * r
         })
     }
@@ -486,7 +486,7 @@ impl Plan {
         let cold = std::array::from_fn(|k| element[k] - leads[k]);
         let curves = self.element_curves(node, run)?;
         let delta = run.slot(heating.dissipation);
-        let heated = self_heated_lanes(&curves, &cold, heating.curved, &delta, |k, r| {
+        let heated = self_heated_lanes(&curves, &cold, heating.curved, delta, |k, r| {
             supply[k].power_w(r, leads[k])
         })?;
         Ok(std::array::from_fn(|k| heated[k] + leads[k]))
@@ -522,7 +522,7 @@ impl Plan {
                 let leads = &leads[k];
                 let start = std::array::from_fn(|j| arms[j][k] - leads[j]);
                 let delta = run.slot(h.dissipation);
-                let heated = self_heated_lanes(curves, &start, h.curved, &delta, |j, r| {
+                let heated = self_heated_lanes(curves, &start, h.curved, delta, |j, r| {
                     arm_power_w(arms[j], k, r, leads[j], excitation[j])
                 })?;
                 for (j, arms) in arms.iter_mut().enumerate() {

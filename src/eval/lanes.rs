@@ -209,6 +209,9 @@ impl LaneColumns {
     }
 }
 
+/// The column of a slot a stage does not have.
+static ZEROS: [f64; LANES] = [0.0; LANES];
+
 /// One node's view of a batch: the plan, the values as rows (for the
 /// single-run functions a lane calls) and as columns, the conditions and
 /// the columns of the nodes before it.
@@ -231,22 +234,24 @@ impl LaneRun<'_> {
         &self.rows[k * n..(k + 1) * n]
     }
 
+    /// Slot `s`'s column, borrowed: a column is 256 bytes at 32 lanes,
+    /// and a copy of it is a call to `memcpy`.
     #[inline(always)]
-    pub fn slot(&self, s: SlotId) -> [f64; LANES] {
-        self.values[s.index()]
+    pub fn slot(&self, s: SlotId) -> &[f64; LANES] {
+        &self.values[s.index()]
     }
 
     #[inline(always)]
-    pub fn or_zero(&self, s: Option<SlotId>) -> [f64; LANES] {
-        s.map(|s| self.values[s.index()]).unwrap_or([0.0; LANES])
+    pub fn or_zero(&self, s: Option<SlotId>) -> &[f64; LANES] {
+        s.map_or(&ZEROS, |s| &self.values[s.index()])
     }
 
     /// [`Plan::drifted`] in every lane.
     #[inline(always)]
-    pub fn drifted(&self, value: [f64; LANES], drift: Option<DriftSlot>) -> [f64; LANES] {
+    pub fn drifted(&self, value: &[f64; LANES], drift: Option<DriftSlot>) -> [f64; LANES] {
         let dt = self.env.ambient - self.plan.reference;
         match drift {
-            None => value,
+            None => *value,
             Some(d) => {
                 let c = &self.values[d.slot.index()];
                 let mut out = [0.0; LANES];
@@ -551,11 +556,11 @@ pub(super) mod check {
     /// moved by a share of its limits that differs from lane to lane and
     /// from slot to slot.
     pub fn spread(plan: &Plan) -> Vec<f64> {
-        const SHARES: [f64; LANES] = [0.0, 1.0, -1.0, 0.5, -0.3, 0.9, -0.7, 0.2];
+        const SHARES: [f64; 8] = [0.0, 1.0, -1.0, 0.5, -0.3, 0.9, -0.7, 0.2];
         let mut rows = Vec::with_capacity(LANES * plan.slots.len());
         for k in 0..LANES {
             for (s, slot) in plan.slots.iter().enumerate() {
-                let share = SHARES[(k + s) % LANES];
+                let share = SHARES[(k + s) % SHARES.len()];
                 let limit = if share < 0.0 { slot.minus } else { slot.plus };
                 rows.push(plan.nominal[s] + share * limit);
             }

@@ -114,7 +114,7 @@ impl Firmware for Plan {
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
 pub const MAX_NODES: usize = 32;
 /// Evaluations [`Plan::unquantized_readings`] runs side by side.
-pub const LANES: usize = 8;
+pub const LANES: usize = 32;
 /// The signals of [`LANES`] evaluations.
 pub type LaneSignals = [[Signal; MAX_NODES]; LANES];
 

@@ -5,6 +5,7 @@ use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
+use crate::eval::run::LANES;
 use crate::model::schema;
 use crate::model::typed::{self, AdcInput, CombineOp};
 use crate::model::value::Tolerance;
@@ -202,8 +203,15 @@ impl Adc {
             Some(r) if matches!(r.tag, Tag::Voltage | Tag::Source) => r.x,
             _ => run.drifted(run.or_zero(self.vref), self.vref_drift),
         };
-        if vr.iter().any(|&vr| vr <= 0.0 || !vr.is_finite()) {
+        // One pass the compiler vectorises, no early exit.
+        let bad = vr
+            .iter()
+            .fold(false, |bad, &vr| bad | !(vr > 0.0 && vr.is_finite()));
+        if bad {
             return Err(Lost);
+        }
+        if self.combine.is_none() {
+            return Ok(self.codes_lanes(run, input, &vr));
         }
         let mut out = Column::default();
         for (k, &vr) in vr.iter().enumerate() {
@@ -221,6 +229,39 @@ impl Adc {
             Tag::Code => Ok(out),
             _ => Err(Lost),
         }
+    }
+
+    /// [`Adc::code_of`] over a whole column, for a converter that
+    /// combines no other channel: the same arithmetic, lane by lane.
+    #[inline(always)]
+    fn codes_lanes(&self, run: &LaneRun<'_>, input: &Column, vr: &[f64; LANES]) -> Column {
+        let pga = self.pga.map(|g| run.slot(g));
+        let gain_error = run.or_zero(self.gain_error);
+        let (off, off_codes) = match self.offset {
+            Some(AdcOffset::Input(o)) => (run.slot(o), run.or_zero(None)),
+            Some(AdcOffset::Codes(o)) => (run.or_zero(None), run.slot(o)),
+            None => (run.or_zero(None), run.or_zero(None)),
+        };
+        let bias = self.bias_slot.map(|b| run.slot(b));
+        let inl = self
+            .inl
+            .filter(|_| !run.mode.calibrating)
+            .map(|s| run.slot(s));
+        let full_scale = adc::full_scale_codes(self.per_ref, self.polarity);
+        let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
+        let mut out = Column {
+            tag: Tag::Code,
+            ..Column::default()
+        };
+        for k in 0..LANES {
+            let gain = pga.map_or(1.0, |g| g[k]) * (1.0 + gain_error[k]);
+            let off = off[k] + bias.map_or(0.0, |b| b[k] * input.rs[k]);
+            let inl = inl.map_or(0.0, |s| s[k] * full_scale);
+            let exact = adc::exact_code(input.x[k] + off, gain, vr[k], per_ref, off_codes[k], inl);
+            out.x[k] = exact;
+            out.code[k] = round_code(exact, lo, hi);
+        }
+        out
     }
 
     /// Its code combined with the other channels' a conversion reads

@@ -113,7 +113,7 @@ impl IcVoltage {
             );
             cm[k] = v[k] / 2.0;
         }
-        Column::voltage(v, cm, run.or_zero(self.rout))
+        Column::voltage(v, cm, *run.or_zero(self.rout))
     }
 }
 

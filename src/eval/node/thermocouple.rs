@@ -133,7 +133,7 @@ impl Thermocouple {
             Some((b, drift)) => run.drifted(run.slot(b), drift),
             None => [0.0; LANES],
         };
-        Ok(Column::voltage(v, cm, run.or_zero(self.bias_resistor)))
+        Ok(Column::voltage(v, cm, *run.or_zero(self.bias_resistor)))
     }
 
     /// The couple's EMF, V, against its cold junction (`junction_mv`

@@ -155,11 +155,7 @@ impl Transducer {
         let zero = run.or_zero(self.zero);
         let nonlinearity = run.or_zero(self.nonlinearity);
         // As in a single run: the calibration sees no hysteresis.
-        let hysteresis = if run.mode.calibrating {
-            [0.0; LANES]
-        } else {
-            run.or_zero(self.hysteresis)
-        };
+        let hysteresis = run.or_zero(self.hysteresis.filter(|_| !run.mode.calibrating));
         let zero_drift = run.or_zero(self.zero_drift);
         let span_drift = run.or_zero(self.span_drift);
         let excitation = match (self.ratiometric, self.input) {
