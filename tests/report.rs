@@ -252,3 +252,50 @@ fn the_signal_path_gain_is_per_written_unit_and_matches_eval() {
         }
     }
 }
+
+/// A trip that a fault firmware cannot see can mask fails the verdict
+/// though every requirement passes (there are none here), names the
+/// alarm and each masking fault in words, and exits 1 as `check` does.
+#[test]
+fn a_masked_trip_fails_the_verdict() {
+    let spec = "tests/fixtures/eval/press_transducer.catena";
+    let out = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(["report", spec, "--format", "json", "--trials", "0"])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("catena runs");
+    assert_eq!(out.status.code(), Some(1));
+    let report: serde_json::Value =
+        serde_json::from_str(&String::from_utf8_lossy(&out.stdout)).expect("valid JSON");
+    let verdict = &report["chains"][0]["verdict"];
+    assert_eq!(verdict["pass"], false);
+    assert_eq!(verdict["requirements"].as_array().map(Vec::len), Some(0));
+    let trip = &verdict["masked_trips"][0];
+    assert_eq!(
+        (trip["side"].as_str(), trip["at"].as_f64()),
+        (Some("high"), Some(230.0))
+    );
+    let conditions: Vec<&str> = trip["masked_by"]
+        .as_array()
+        .expect("masking faults")
+        .iter()
+        .filter_map(|f| f["condition"].as_str())
+        .collect();
+    assert!(
+        conditions.contains(&"excitation lead open"),
+        "{conditions:?}"
+    );
+    assert_eq!(report["summary"][0]["pass"], false);
+    let md = report_md(spec);
+    assert!(md.contains("**FAIL**"), "{md}");
+    assert!(md.contains("| `alarm high 230 bar` |"), "{md}");
+}
+
+fn report_md(spec: &str) -> String {
+    let out = Command::new(env!("CARGO_BIN_EXE_catena"))
+        .args(["report", spec, "--format", "md", "--trials", "0"])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("catena runs");
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}

@@ -3,8 +3,9 @@
 use super::model::{
     AlarmRow, BudgetSection, CalibrationRow, CalibrationSection, CancelRow, ChainReport,
     ChainSummary, Checklist, Contributor, Diagram, DiagramEdge, DiagramNode, DynamicsSection,
-    HeadroomPoint, HiddenFault, LimitFlag, LimitRow, MethodTotal, NoiseSection, NoiseTermRow,
-    PathRow, PointRow, RequirementRow, StageHeadroom, StageRow, SummaryRow, Verdict,
+    HeadroomPoint, HiddenFault, LimitFlag, LimitRow, MaskedTrip, MaskingFault, MethodTotal,
+    NoiseSection, NoiseTermRow, PathRow, PointRow, RequirementRow, StageHeadroom, StageRow,
+    SummaryRow, Verdict,
 };
 use crate::analysis::budget::{ambients, measurand_points};
 use crate::analysis::checklist::{DESIGN_AID, PROTECTS};
@@ -79,7 +80,11 @@ pub fn chain_report(
     let limits = limit_rows(chain, a);
     let outcome = outcome(chain, plan, a, faults);
     let mut verdict = verdict(&outcome, a, &limits, options.margin, &units);
-    verdict.faults = checklist.as_ref().map_or_else(Vec::new, hidden_faults);
+    if let Some(list) = &checklist {
+        verdict.faults = hidden_faults(list);
+        verdict.masked_trips = masked_trips(list);
+        verdict.pass &= verdict.masked_trips.is_empty();
+    }
     ChainReport {
         name: chain.name.clone(),
         title: chain.title.clone(),
@@ -193,7 +198,34 @@ fn verdict(o: &Outcome, a: &Analysis, limits: &[LimitRow], margin: f64, units: &
         requirements,
         limits: flagged,
         faults: Vec::new(),
+        masked_trips: Vec::new(),
     }
+}
+
+/// The checklist's alarms that a fault firmware cannot see can mask, each
+/// with its masking faults in words.
+fn masked_trips(list: &Checklist) -> Vec<MaskedTrip> {
+    let in_words = |named: &String| {
+        let fault = list
+            .faults
+            .iter()
+            .find(|f| format!("{} {}", f.stage, f.fault) == *named);
+        MaskingFault {
+            stage: fault.map_or_else(String::new, |f| f.stage.clone()),
+            fault: fault.map_or_else(|| named.clone(), |f| f.fault.to_string()),
+            condition: fault.map_or_else(|| named.clone(), |f| f.condition.to_string()),
+        }
+    };
+    list.alarms
+        .iter()
+        .filter(|a| !a.masked_by.is_empty())
+        .map(|a| MaskedTrip {
+            side: a.side.to_string(),
+            at: a.at,
+            measurand_unit: a.measurand_unit.clone(),
+            masked_by: a.masked_by.iter().map(in_words).collect(),
+        })
+        .collect()
 }
 
 /// The checklist's faults firmware cannot tell from a reading.

@@ -5,7 +5,7 @@
 use std::fmt::Write;
 
 use super::fmt::{method, plain, position, share, si, trip_code, value};
-use super::model::{ChainReport, Checklist, Report};
+use super::model::{ChainReport, Checklist, Report, Verdict};
 use crate::analysis::checklist::{LimitStatus, ReviewKind};
 use crate::units::format::{attenuation_db, codes};
 
@@ -128,6 +128,7 @@ fn verdict(out: &mut String, c: &ChainReport) {
         v.limits.len(),
         v.faults.len()
     );
+    masked_trips(out, v);
     if !v.requirements.is_empty() {
         out.push_str("| requirement | method | required | achieved | margin | where | verdict |\n");
         out.push_str("| --- | --- | --- | --- | --- | --- | --- |\n");
@@ -184,6 +185,31 @@ fn verdict(out: &mut String, c: &ChainReport) {
         }
         out.push('\n');
     }
+}
+
+/// The trips a hidden fault can mask, first after the verdict line: each
+/// is why a chain whose requirements all pass still fails.
+fn masked_trips(out: &mut String, v: &Verdict) {
+    if v.masked_trips.is_empty() {
+        return;
+    }
+    out.push_str("A fault firmware cannot see can keep a trip from ever firing (R672):\n\n");
+    out.push_str("| alarm | masked by |\n| --- | --- |\n");
+    for t in &v.masked_trips {
+        let by: Vec<String> = t
+            .masked_by
+            .iter()
+            .map(|f| format!("`{}` {}", f.stage, cell(&f.condition)))
+            .collect();
+        let _ = writeln!(
+            out,
+            "| `alarm {} {}` | {} |",
+            t.side,
+            position(t.at, &t.measurand_unit),
+            by.join("; ")
+        );
+    }
+    out.push('\n');
 }
 
 fn summary(out: &mut String, c: &ChainReport) {

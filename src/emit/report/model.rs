@@ -95,13 +95,35 @@ pub struct ChainReport {
 
 #[derive(Clone, Debug, Default, Serialize)]
 pub struct Verdict {
-    /// Every requirement met and no limit beyond its end.
+    /// Every requirement met, no limit beyond its end and no trip a
+    /// fault can mask.
     pub pass: bool,
     pub requirements: Vec<RequirementRow>,
     /// Limits beyond their end (`beyond`) or inside the margin.
     pub limits: Vec<LimitFlag>,
     /// Faults firmware cannot tell from a reading.
     pub faults: Vec<HiddenFault>,
+    /// Trips that a fault firmware cannot see would keep from firing
+    /// (R672): the chain's protective function fails, so the verdict does.
+    pub masked_trips: Vec<MaskedTrip>,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct MaskedTrip {
+    /// `high` or `low`.
+    pub side: String,
+    /// The alarm's limit, in the measurand's unit.
+    pub at: f64,
+    pub measurand_unit: String,
+    /// Each masking fault as its stage and the fault in words.
+    pub masked_by: Vec<MaskingFault>,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct MaskingFault {
+    pub stage: String,
+    pub fault: String,
+    pub condition: String,
 }
 
 #[derive(Clone, Debug, Serialize)]
