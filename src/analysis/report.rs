@@ -84,6 +84,14 @@ impl Analysis {
             .find(|s| s.id == id)
             .map(|s| s.share)
     }
+
+    /// The Monte Carlo share below which a source cannot be told from one
+    /// with no effect at this many trials, when shares were estimated.
+    pub fn monte_carlo_share_floor(&self) -> Option<f64> {
+        self.shares
+            .as_ref()
+            .map(|_| super::shares::floor(self.trials))
+    }
 }
 
 pub fn analyse(chain: &Chain, plan: &Plan, options: &Options) -> Result<Analysis, EvalError> {

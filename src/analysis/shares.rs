@@ -26,6 +26,21 @@ pub fn cells(trials: usize) -> usize {
     ((trials as f64).sqrt().floor() as usize).clamp(2, MAX_CELLS)
 }
 
+/// The share below which a source cannot be told from one with no effect
+/// at `trials` trials: twice the standard deviation of the estimate for a
+/// source with none. With no effect, the between-cell sum of squares over
+/// the output variance is χ² with B − 1 degrees of freedom (one-way
+/// ANOVA), variance 2(B − 1), and the estimate is that less its mean,
+/// over N: standard deviation √(2(B − 1)) / N, 0.14 % at 10⁴ trials.
+/// About 2 % of such sources' estimates land above twice that.
+pub fn floor(trials: usize) -> f64 {
+    let b = cells(trials);
+    if trials <= b {
+        return 1.0;
+    }
+    2.0 * (2.0 * (b - 1) as f64).sqrt() / trials as f64
+}
+
 /// The outputs of a run about their mean, and their sum of squares:
 /// worked out once for every source's index.
 pub struct Centered {
@@ -313,5 +328,29 @@ mod tests {
         }
         let unrelated = first_order(&y, Stream::new(1, "c", 0), n);
         assert!(unrelated < 0.005, "{unrelated}");
+    }
+
+    /// Sources with no effect at 10⁴ trials: about 2.3 % of their
+    /// estimates above the floor (a normal's tail beyond 2 σ), about 16 %
+    /// above half of it (beyond 1 σ), so the floor is twice the scatter,
+    /// not some other multiple of it.
+    #[test]
+    fn the_floor_is_twice_the_scatter_of_a_source_with_no_effect() {
+        let (n, sources) = (10_000, 400);
+        let out = Stream::new(5, "y", 0);
+        let y: Vec<f64> = (0..n as u64).map(|t| out.normal(t)).collect();
+        let (b, y) = (cells(n), Centered::new(&y));
+        let floor = floor(n);
+        assert!((floor - 0.0028).abs() < 0.0001, "{floor}");
+        let estimates: Vec<f64> = (0..sources)
+            .map(|k| first_order(&y, Stream::new(5, &format!("x{k}"), 0), b))
+            .collect();
+        let above = |x: f64| estimates.iter().filter(|&&s| s > x).count() as f64 / sources as f64;
+        assert!(above(floor) < 0.05, "{}", above(floor));
+        assert!(
+            (0.08..0.26).contains(&above(floor / 2.0)),
+            "{}",
+            above(floor / 2.0)
+        );
     }
 }

@@ -135,6 +135,9 @@ pub(super) struct BudgetJson {
     measurand_unit: String,
     trials: usize,
     seed: u64,
+    /// Monte Carlo shares under this cannot be told from none.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    monte_carlo_share_floor: Option<f64>,
     points: Vec<PointJson>,
     noise: NoiseJson,
     dynamics: DynamicsJson,
@@ -160,6 +163,7 @@ pub(super) fn json(file: &str, chain: &Chain, a: &Analysis) -> BudgetJson {
         measurand_unit: m_unit.clone(),
         trials: a.trials,
         seed: a.seed,
+        monte_carlo_share_floor: a.monte_carlo_share_floor(),
         points: (0..a.budget.points.len())
             .map(|i| point(a, i, &m_unit, f))
             .collect(),

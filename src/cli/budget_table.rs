@@ -323,6 +323,11 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
     }
     sources.set_header(header);
     let percent = |x: f64| format!("{:.1} %", x * 100.0);
+    let floor = a.monte_carlo_share_floor();
+    let mc_percent = |x: f64| match floor {
+        Some(f) if x < f => format!("< {}", percent(tenth_of_percent_up(f))),
+        _ => percent(x),
+    };
     for c in worst.contributions.iter().take(TOP_SOURCES) {
         let mut row = vec![
             c.id.to_string(),
@@ -334,7 +339,7 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
         if with_mc {
             row.push(
                 a.monte_carlo_share(index, c.id.as_str())
-                    .map_or("—".into(), percent),
+                    .map_or("—".into(), mc_percent),
             );
         }
         sources.add_row(row);
@@ -349,8 +354,21 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
             percent(sum)
         ));
     }
+    if let Some(f) = floor {
+        out.push_str(&format!(
+            ";\na share under {} (twice the scatter of a source with no effect at {} trials)\n\
+             cannot be told from none",
+            percent(tenth_of_percent_up(f)),
+            a.trials
+        ));
+    }
     out.push_str("\n\n");
     out
+}
+
+/// `x` rounded up to a tenth of a percent: a bound stays a bound as shown.
+fn tenth_of_percent_up(x: f64) -> f64 {
+    (x * 1000.0).ceil() / 1000.0
 }
 
 /// Whether Monte Carlo validates GUM's interval (JCGM 101 §8), over all

@@ -506,6 +506,7 @@ fn budget(chain: &Chain, o: &Outcome, a: &Analysis, units: &Units) -> BudgetSect
             })
             .collect(),
         contributors,
+        monte_carlo_share_floor: a.monte_carlo_share_floor(),
         worst_at: worst.map_or([0.0, 0.0], |i| {
             [
                 units.position(points[i].measurand),

@@ -48,6 +48,15 @@ pub fn share(x: f64) -> String {
     }
 }
 
+/// A Monte Carlo share, or "< floor" where it cannot be told from none
+/// (the floor rounded up to a tenth of a percent, so it stays a bound).
+pub fn share_or_floor(x: f64, floor: Option<f64>) -> String {
+    match floor {
+        Some(f) if x < f => format!("< {}", share((f * 1000.0).ceil() / 1000.0)),
+        _ => share(x),
+    }
+}
+
 /// A position in the measurand's range.
 pub fn position(x: f64, unit: &str) -> String {
     format!("{} {unit}", trimmed(x, 6))

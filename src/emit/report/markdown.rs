@@ -4,8 +4,8 @@
 
 use std::fmt::Write;
 
-use super::fmt::{method, plain, position, share, si, trip_code, value};
-use super::model::{ChainReport, Checklist, Report, Verdict};
+use super::fmt::{method, plain, position, share, share_or_floor, si, trip_code, value};
+use super::model::{BudgetSection, ChainReport, Checklist, Contributor, Report, Verdict};
 use crate::analysis::checklist::{LimitStatus, ReviewKind};
 use crate::units::format::{attenuation_db, codes};
 
@@ -281,6 +281,21 @@ fn prose(s: &str) -> String {
     s.replace('|', "\\|")
 }
 
+/// What a "< floor" share means, where one is shown.
+fn share_floor_note(out: &mut String, b: &BudgetSection) {
+    let Some(floor) = b.monte_carlo_share_floor else {
+        return;
+    };
+    let under = |x: &Contributor| x.monte_carlo_share.is_some_and(|s| s < floor);
+    if b.contributors.iter().any(under) {
+        let _ = writeln!(
+            out,
+            "\nA Monte Carlo share shown as {} cannot be told from none at these trials: under twice the scatter of a source with no effect.",
+            share_or_floor(0.0, Some(floor))
+        );
+    }
+}
+
 fn budget(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
     let b = &c.budget;
     let u = &c.unit;
@@ -317,9 +332,14 @@ fn budget(out: &mut String, c: &ChainReport, links: &[PlotLink]) {
             value(x.contribution, u),
             value(x.standard_uncertainty, u),
             share(x.gum_share),
-            x.monte_carlo_share.map_or(String::new(), share)
+            x.monte_carlo_share
+                .map_or(String::new(), |x| share_or_floor(
+                    x,
+                    b.monte_carlo_share_floor
+                ))
         );
     }
+    share_floor_note(out, b);
     let _ = writeln!(out, "\n{}:\n", super::fmt::path_title(c));
     plot_links(out, links, "path");
     out.push_str("| stage | value | gain | error |\n| --- | --- | --- | --- |\n");

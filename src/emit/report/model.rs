@@ -236,6 +236,10 @@ pub struct BudgetSection {
     /// The accuracy requirement, in `unit`, when stated.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub requirement: Option<f64>,
+    /// The Monte Carlo share below which a source cannot be told from one
+    /// with no effect at the trials run, when shares were estimated.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub monte_carlo_share_floor: Option<f64>,
 }
 
 #[derive(Clone, Debug, Serialize)]
