@@ -286,3 +286,32 @@ fn the_ratiometric_help_clears_the_supply_faults() {
     assert!(!on_supply(&before).is_empty());
     assert_eq!(on_supply(&after), Vec::<String>::new(), "{after:?}");
 }
+
+/// A transducer's open excitation lead leaves its bridge unpowered, so it
+/// reads its zero whatever pulls on the output: the help asks for the
+/// excitation sensed at its terminals, and neither R670 nor the alarm's
+/// R672 suggests a pull or driving the fault toward the trip.
+#[test]
+fn an_open_excitation_lead_asks_for_sensing_not_a_pull() {
+    let path = root().join("tests/fixtures/eval/press_transducer.catena");
+    let all = findings(&path, None);
+    let on_cell: Vec<&str> = all
+        .iter()
+        .filter(|f| f["line"] == 14 && (f["code"] == "R670" || f["code"] == "R672"))
+        .filter(|f| {
+            f["message"]
+                .as_str()
+                .is_some_and(|m| m.contains("excitation lead open"))
+        })
+        .filter_map(|f| f["help"].as_str())
+        .collect();
+    assert_eq!(on_cell.len(), 2, "{all:?}");
+    for help in on_cell {
+        assert!(
+            help.contains("sense the excitation at its terminals"),
+            "{help}"
+        );
+        assert!(!help.contains("pull the node"), "{help}");
+        assert!(!help.contains("up-scale"), "{help}");
+    }
+}

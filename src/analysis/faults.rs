@@ -541,16 +541,7 @@ fn fix(
             "keep the healthy chain off the bottom code: its codes reach {} of {}; add an offset or narrow the range until they stop at least 2 codes short",
             window.low, window.rails.0
         )), here),
-        (FaultKind::Open, _) if codes.is_none() => match unstated_compliance(plan, fault.node) {
-            Some(source) => (
-                Some(format!(
-                    "state the compliance of `{}` (`compliance`, the voltage its output runs to with no load), so the open element takes the code to a determined end",
-                    plan.names[source.index()]
-                )),
-                Some(source),
-            ),
-            None => (None, None),
-        },
+        (FaultKind::Open, _) if codes.is_none() => compliance_fix(plan, fault.node),
         (FaultKind::AtCompliance, _) if codes.is_none() => (
             Some("state the source's compliance (`compliance`, the voltage its output can reach), so the code at it is determined".to_string()),
             here,
@@ -571,6 +562,9 @@ fn fix(
         {
             (codes.map(|codes| ratiometric_fix(plan, window, fault.node, codes)), here)
         }
+        (FaultKind::ExcitationLeadOpen | FaultKind::ExcitationReturnOpen, Node::Transducer(_)) => {
+            (codes.map(|c| excitation_sense_fix(plan, window, fault.node, c)), here)
+        }
         (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, Node::Amplifier(a)) if a.output.is_none() => (
             Some("state the amplifier's output swing (`output`), so its saturated output gives a determined code".to_string()),
             here,
@@ -587,6 +581,41 @@ fn pull_to_rail_fix(window: &CodeWindow, codes: FaultCodes) -> String {
         codes.overlap(),
         window.low,
         window.high
+    )
+}
+
+/// The help for an open element whose current source states no
+/// compliance, at that source: where its output runs is what decides the
+/// code.
+fn compliance_fix(plan: &Plan, element: NodeId) -> (Option<String>, Option<NodeId>) {
+    match unstated_compliance(plan, element) {
+        Some(source) => (
+            Some(format!(
+                "state the compliance of `{}` (`compliance`, the voltage its output runs to with no load), so the open element takes the code to a determined end",
+                plan.names[source.index()]
+            )),
+            Some(source),
+        ),
+        None => (None, None),
+    }
+}
+
+/// The help for a transducer's open excitation lead: it leaves the bridge
+/// unpowered, so the output is the zero a true zero gives and no code
+/// window can tell them apart; what can is the excitation sensed at the
+/// transducer's own terminals.
+fn excitation_sense_fix(
+    plan: &Plan,
+    window: &CodeWindow,
+    transducer: NodeId,
+    codes: FaultCodes,
+) -> String {
+    format!(
+        "{} the valid window {} .. {}: with no excitation `{}` gives its zero output, as at a true zero, and a pull on a bridge's output would shift every reading; sense the excitation at its terminals (six-wire: sense leads beside the excitation leads) on a converter channel of its own, and have the firmware reject readings when it falls",
+        codes.overlap(),
+        window.low,
+        window.high,
+        plan.names[transducer.index()]
     )
 }
 
@@ -1128,7 +1157,12 @@ fn masking_finding(
         Some(fix) => format!("{fix}; "),
         None => String::new(),
     };
+    // A bridge with no excitation gives its zero whatever pulls on it.
+    let drive = match f.fault.kind {
+        FaultKind::ExcitationLeadOpen | FaultKind::ExcitationReturnOpen => String::new(),
+        _ => format!(", or drive it {toward}, toward the trip"),
+    };
     finding.help(format!(
-        "{fix}make the fault detectable and have the firmware trip on its threshold too (`catena checklist` gives it), or drive it {toward}, toward the trip"
+        "{fix}make the fault detectable and have the firmware trip on its threshold too (`catena checklist` gives it){drive}"
     ))
 }
