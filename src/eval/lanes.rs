@@ -616,7 +616,8 @@ pub(super) mod check {
             mode,
             junction_mv: None,
         };
-        let got = plan.node_lanes(&run);
+        let mut column = Column::default();
+        let got = plan.node_lanes(&run, &mut column).map(|()| column);
         if single.iter().any(Result::is_err) {
             assert_eq!(got.err(), Some(Lost), "a lane fails: the batch is lost");
             return Err(Lost);

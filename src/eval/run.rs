@@ -653,11 +653,10 @@ impl Plan {
                 mode,
                 junction_mv: self.junction_mv(i, env),
             };
-            let column = self.node_lanes(&run)?;
-            if !column.finite() {
+            self.node_lanes(&run, &mut after[0])?;
+            if !after[0].finite() {
                 return Err(Lost);
             }
-            after[0] = column;
         }
         *last = Some(key);
         Ok(())

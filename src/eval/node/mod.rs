@@ -400,25 +400,31 @@ impl Plan {
 }
 
 impl Plan {
-    /// Node `i`'s column in a batch: one match per batch, then the kind's
-    /// loop over the lanes.
-    pub(in crate::eval) fn node_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
-        match &self.nodes[run.i.index()] {
-            Node::Excitation(n) => Ok(n.eval_lanes(run)),
-            Node::Rtd(n) => n.eval_lanes(run),
-            Node::Thermocouple(n) => n.eval_lanes(run),
-            Node::Thermistor(n) => n.eval_lanes(run),
-            Node::Resistor(n) => Ok(n.eval_lanes(run)),
-            Node::Amplifier(n) => n.eval_lanes(run),
-            Node::Filter(n) => Ok(n.eval_lanes(run)),
-            Node::Adc(n) => n.eval_lanes(run),
-            Node::Bridge(n) => n.eval_lanes(run),
-            Node::IcVoltage(n) => Ok(n.eval_lanes(run)),
-            Node::IcCurrent(n) => n.eval_lanes(run),
-            Node::StrainGauge(n) => Ok(n.eval_lanes(run)),
-            Node::Transducer(n) => n.eval_lanes(run),
-            Node::Convert(n) => n.eval_lanes(run),
-        }
+    /// Node `i`'s column in a batch, into `out`: one match per batch, then
+    /// the kind's loop over the lanes. Written in place, as a column is a
+    /// kilobyte at 32 lanes and each move of one a call to `memcpy`.
+    pub(in crate::eval) fn node_lanes(
+        &self,
+        run: &LaneRun<'_>,
+        out: &mut Column,
+    ) -> Result<(), Lost> {
+        *out = match &self.nodes[run.i.index()] {
+            Node::Excitation(n) => n.eval_lanes(run),
+            Node::Rtd(n) => n.eval_lanes(run)?,
+            Node::Thermocouple(n) => n.eval_lanes(run)?,
+            Node::Thermistor(n) => n.eval_lanes(run)?,
+            Node::Resistor(n) => n.eval_lanes(run),
+            Node::Amplifier(n) => n.eval_lanes(run)?,
+            Node::Filter(n) => n.eval_lanes(run),
+            Node::Adc(n) => n.eval_lanes(run)?,
+            Node::Bridge(n) => n.eval_lanes(run)?,
+            Node::IcVoltage(n) => n.eval_lanes(run),
+            Node::IcCurrent(n) => n.eval_lanes(run)?,
+            Node::StrainGauge(n) => n.eval_lanes(run),
+            Node::Transducer(n) => n.eval_lanes(run)?,
+            Node::Convert(n) => n.eval_lanes(run)?,
+        };
+        Ok(())
     }
 }
 
