@@ -175,6 +175,9 @@ pub struct AlarmRow {
     pub trip_code: i64,
     /// `stage fault` of each undetected fault that would hide a crossing.
     pub masked_by: Vec<String>,
+    /// The same faults as indices into the checklist's `faults`.
+    #[serde(skip)]
+    pub masking: Vec<usize>,
 }
 
 /// What a review item asks to verify.
@@ -319,6 +322,7 @@ fn alarm_rows(chain: &Chain, from: &Sources<'_>) -> Vec<AlarmRow> {
                 .filter_map(|&i| from.faults.faults.get(i))
                 .map(|f| format!("{} {}", f.stage, f.fault.kind.name()))
                 .collect(),
+            masking: m.faults.clone(),
         })
         .collect()
 }

@@ -41,6 +41,12 @@ pub fn floor(trials: usize) -> f64 {
     2.0 * (2.0 * (b - 1) as f64).sqrt() / trials as f64
 }
 
+/// The floor as printed: rounded up to a tenth of a percent, so a share
+/// shown under it is under the floor itself.
+pub fn floor_shown(floor: f64) -> f64 {
+    (floor * 1000.0).ceil() / 1000.0
+}
+
 /// The outputs of a run about their mean, and their sum of squares:
 /// worked out once for every source's index.
 pub struct Centered {
@@ -332,8 +338,10 @@ mod tests {
 
     /// Sources with no effect at 10⁴ trials: about 2.3 % of their
     /// estimates above the floor (a normal's tail beyond 2 σ), about 16 %
-    /// above half of it (beyond 1 σ), so the floor is twice the scatter,
-    /// not some other multiple of it.
+    /// above half of it (beyond 1 σ; both tails from any standard normal
+    /// table, recalled from memory), so the floor is twice the scatter,
+    /// not some other multiple of it. The floor itself is the doc's
+    /// formula worked by hand: B = 100, 2 √198 / 10⁴ = 0.00281.
     #[test]
     fn the_floor_is_twice_the_scatter_of_a_source_with_no_effect() {
         let (n, sources) = (10_000, 400);

@@ -325,7 +325,7 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
     let percent = |x: f64| format!("{:.1} %", x * 100.0);
     let floor = a.monte_carlo_share_floor();
     let mc_percent = |x: f64| match floor {
-        Some(f) if x < f => format!("< {}", percent(tenth_of_percent_up(f))),
+        Some(f) if x < f => format!("< {}", percent(crate::analysis::shares::floor_shown(f))),
         _ => percent(x),
     };
     for c in worst.contributions.iter().take(TOP_SOURCES) {
@@ -358,17 +358,12 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
         out.push_str(&format!(
             ";\na share under {} (twice the scatter of a source with no effect at {} trials)\n\
              cannot be told from none",
-            percent(tenth_of_percent_up(f)),
+            percent(crate::analysis::shares::floor_shown(f)),
             a.trials
         ));
     }
     out.push_str("\n\n");
     out
-}
-
-/// `x` rounded up to a tenth of a percent: a bound stays a bound as shown.
-fn tenth_of_percent_up(x: f64) -> f64 {
-    (x * 1000.0).ceil() / 1000.0
 }
 
 /// Whether Monte Carlo validates GUM's interval (JCGM 101 §8), over all

@@ -8,7 +8,7 @@ use super::model::{
     SummaryRow, Verdict,
 };
 use crate::analysis::budget::{ambients, measurand_points};
-use crate::analysis::checklist::{DESIGN_AID, PROTECTS};
+use crate::analysis::checklist::{FaultRow, DESIGN_AID, PROTECTS};
 use crate::analysis::dynamics::Dynamics;
 use crate::analysis::faults::FaultReport;
 use crate::analysis::ranges::Envelope;
@@ -205,25 +205,24 @@ fn verdict(o: &Outcome, a: &Analysis, limits: &[LimitRow], margin: f64, units: &
 /// The checklist's alarms that a fault firmware cannot see can mask, each
 /// with its masking faults in words.
 fn masked_trips(list: &Checklist) -> Vec<MaskedTrip> {
-    let in_words = |named: &String| {
-        let fault = list
-            .faults
-            .iter()
-            .find(|f| format!("{} {}", f.stage, f.fault) == *named);
-        MaskingFault {
-            stage: fault.map_or_else(String::new, |f| f.stage.clone()),
-            fault: fault.map_or_else(|| named.clone(), |f| f.fault.to_string()),
-            condition: fault.map_or_else(|| named.clone(), |f| f.condition.to_string()),
-        }
+    let in_words = |f: &FaultRow| MaskingFault {
+        stage: f.stage.clone(),
+        fault: f.fault.to_string(),
+        condition: f.condition.to_string(),
     };
     list.alarms
         .iter()
-        .filter(|a| !a.masked_by.is_empty())
+        .filter(|a| !a.masking.is_empty())
         .map(|a| MaskedTrip {
             side: a.side.to_string(),
             at: a.at,
             measurand_unit: a.measurand_unit.clone(),
-            masked_by: a.masked_by.iter().map(in_words).collect(),
+            masked_by: a
+                .masking
+                .iter()
+                .filter_map(|&i| list.faults.get(i))
+                .map(in_words)
+                .collect(),
         })
         .collect()
 }

@@ -48,11 +48,10 @@ pub fn share(x: f64) -> String {
     }
 }
 
-/// A Monte Carlo share, or "< floor" where it cannot be told from none
-/// (the floor rounded up to a tenth of a percent, so it stays a bound).
+/// A Monte Carlo share, or "< floor" where it cannot be told from none.
 pub fn share_or_floor(x: f64, floor: Option<f64>) -> String {
     match floor {
-        Some(f) if x < f => format!("< {}", share((f * 1000.0).ceil() / 1000.0)),
+        Some(f) if x < f => format!("< {}", share(crate::analysis::shares::floor_shown(f))),
         _ => share(x),
     }
 }

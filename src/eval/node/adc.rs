@@ -237,10 +237,11 @@ impl Adc {
     fn codes_lanes(&self, run: &LaneRun<'_>, input: &Column, vr: &[f64; LANES]) -> Column {
         let pga = self.pga.map(|g| run.slot(g));
         let gain_error = run.or_zero(self.gain_error);
+        let none = run.or_zero(None);
         let (off, off_codes) = match self.offset {
-            Some(AdcOffset::Input(o)) => (run.slot(o), run.or_zero(None)),
-            Some(AdcOffset::Codes(o)) => (run.or_zero(None), run.slot(o)),
-            None => (run.or_zero(None), run.or_zero(None)),
+            Some(AdcOffset::Input(o)) => (run.slot(o), none),
+            Some(AdcOffset::Codes(o)) => (none, run.slot(o)),
+            None => (none, none),
         };
         let bias = self.bias_slot.map(|b| run.slot(b));
         let inl = self
