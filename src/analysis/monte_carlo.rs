@@ -15,6 +15,7 @@ use super::draws::{cell_of, condition_key, normal_of, uniform_of, Stream};
 use super::noise::Noise;
 use super::shares::GROUP;
 use super::tails::{order_statistics, Ranks};
+use crate::eval::wide;
 use crate::eval::{
     half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneColumns, Plan, Slot, SlotId,
     SourceKind, LANES,
@@ -307,6 +308,21 @@ impl Sources {
     /// `values` (exact slots are left at their nominal), and each drawn
     /// stream's partition cell into `cells` from index `at` on.
     fn fill(&self, values: &mut [f64], slots: usize, t0: u64, lanes: usize, cells: &mut Cells) {
+        wide::run(
+            #[inline(always)]
+            || self.fill_kernel(values, slots, t0, lanes, cells),
+        )
+    }
+
+    #[inline(always)]
+    fn fill_kernel(
+        &self,
+        values: &mut [f64],
+        slots: usize,
+        t0: u64,
+        lanes: usize,
+        cells: &mut Cells,
+    ) {
         for &(slot, value) in &self.fixed {
             for lane in 0..lanes {
                 values[lane * slots + slot.index()] = value;
@@ -675,15 +691,36 @@ impl Block<'_> {
                 }
             }
         }
+        wide::run(
+            #[inline(always)]
+            || self.add_reading_errors(at, env, t0, readings, out),
+        );
+        Ok(())
+    }
+
+    /// Each lane's error at the condition into `out`: its reading less the
+    /// true value, with the noise and quantization of that one reading.
+    #[inline(always)]
+    fn add_reading_errors(
+        &self,
+        at: &At,
+        env: &Env,
+        t0: u64,
+        readings: &[f64; LANES],
+        out: &mut [f64],
+    ) {
         let (condition, reading) = (at.condition, at.reading);
+        let mut z = [0.0; LANES];
+        if let Some(s) = reading.noise {
+            s.normals(t0, &mut z);
+        }
         for (lane, (slot, &r)) in out.iter_mut().zip(readings.iter()).enumerate() {
             let t = t0 + lane as u64;
-            let z = reading.noise.map_or(0.0, |s| s.normal(t));
             let q = reading.quantization.map_or(0.0, |s| s.uniform(t) - 0.5);
-            *slot =
-                r - env.measurand + z * self.noise.sigma_averaged + condition.quantization_at(q);
+            *slot = r - env.measurand
+                + z[lane] * self.noise.sigma_averaged
+                + condition.quantization_at(q);
         }
-        Ok(())
     }
 }
 

@@ -12,6 +12,7 @@
 //! u_i² / u_c²; where the two disagree, the linear model does not hold.
 
 use super::draws::Stream;
+use crate::eval::wide;
 
 /// Most cells a partition uses (a cell's index fits a byte). A cell keeps the variance of E[Y | X_i]
 /// between cells and loses what lies inside one: for a linear effect of
@@ -135,6 +136,14 @@ impl<'a> CenteredGroup<'a> {
 
 /// [`first_order`] of run `g` of `y` for the source drawn from `stream`.
 pub fn first_order_in(y: &CenteredGroup, g: usize, stream: Stream, cells: usize) -> f64 {
+    wide::run(
+        #[inline(always)]
+        || first_order_in_kernel(y, g, stream, cells),
+    )
+}
+
+#[inline(always)]
+fn first_order_in_kernel(y: &CenteredGroup, g: usize, stream: Stream, cells: usize) -> f64 {
     let (n, total) = (y.n, y.totals[g]);
     if g >= y.runs.len() || !usable_of(n, total, cells) {
         return 0.0;
@@ -155,6 +164,18 @@ pub fn first_order_in(y: &CenteredGroup, g: usize, stream: Stream, cells: usize)
 /// deviations gathered in one pass over the trials (a cell's count is
 /// the same for every run).
 pub fn first_order_columns(
+    y: &CenteredGroup,
+    columns: &[&[u8]],
+    cells: usize,
+) -> Vec<[f64; GROUP]> {
+    wide::run(
+        #[inline(always)]
+        || first_order_columns_kernel(y, columns, cells),
+    )
+}
+
+#[inline(always)]
+fn first_order_columns_kernel(
     y: &CenteredGroup,
     columns: &[&[u8]],
     cells: usize,

@@ -5,6 +5,7 @@
 //! statistics are values, not positions, so the result is the full
 //! selection's to the bit; when a threshold lands short of the ranks
 //! asked (few trials, many ties) the full selection runs instead.
+use crate::eval::wide;
 
 /// Fewer trials than this go straight to the full selection: the sample
 /// would be too thin to place a threshold and the saving is nil.
@@ -26,6 +27,14 @@ pub struct Ranks {
 /// it was. `all` must be longer than `ranks.high.1`, and the low ranks
 /// must not exceed the high ones.
 pub fn order_statistics(all: &[f64], ranks: Ranks) -> [f64; 4] {
+    wide::run(
+        #[inline(always)]
+        || order_statistics_kernel(all, ranks),
+    )
+}
+
+#[inline(always)]
+fn order_statistics_kernel(all: &[f64], ranks: Ranks) -> [f64; 4] {
     tails(all, ranks).unwrap_or_else(|| by_full_selection(all, ranks))
 }
 

@@ -435,38 +435,89 @@ impl Plan {
         run: &LaneRun<'_>,
         current: Option<&[f64; LANES]>,
     ) -> Result<[f64; LANES], Lost> {
-        let curves = self.element_curves(n, run)?;
+        let mut t = [0.0; LANES];
+        let curves = self.element_curves(n, run, &mut t)?;
         let mut cold = [0.0; LANES];
-        for (cold, (curve, t)) in cold.iter_mut().zip(&curves) {
-            *cold = curve.resistance(*t).map_err(|()| Lost)?;
+        for (k, cold) in cold.iter_mut().enumerate() {
+            *cold = curves.lane(k).resistance(t[k]).map_err(|()| Lost)?;
         }
         let (Some(a), Some(heating)) = (current, self.heating(n)) else {
             return Ok(cold);
         };
         let delta = run.slot(heating.dissipation);
-        self_heated_lanes(&curves, &cold, heating.curved, delta, |k, r| {
+        self_heated_lanes(&curves, &t, &cold, heating.curved, delta, |k, r| {
             a[k] * a[k] * r
         })
     }
 
-    /// Each lane's [`Plan::element_curve`].
+    /// Each lane's [`Plan::element_curve`]: the curves, borrowed from the
+    /// batch's columns, and into `t` the temperatures they sense, checked
+    /// against the curve's range across the lanes (no early exit).
     #[inline(always)]
-    fn element_curves(&self, n: NodeId, run: &LaneRun<'_>) -> Result<ElementCurves, Lost> {
-        // Each lane's curve straight into place: an array of the results
-        // would carry (and copy) an error's room in every lane.
-        let mut curves = [(
-            ElementCurve::Beta {
-                r25: 0.0,
-                beta: 0.0,
-            },
-            0.0,
-        ); LANES];
-        for (k, curve) in curves.iter_mut().enumerate() {
-            *curve = self
-                .element_curve(n, run.row(k), run.env)
-                .map_err(|_| Lost)?;
+    fn element_curves<'r>(
+        &self,
+        n: NodeId,
+        run: &'r LaneRun<'_>,
+        t: &mut [f64; LANES],
+    ) -> Result<CurveLanes<'r>, Lost> {
+        match &self.nodes[n.index()] {
+            Node::Rtd(node::Rtd {
+                curve,
+                coefficient_errors,
+                r0,
+                deviation,
+                senses,
+                ..
+            }) => {
+                run.sensed_into(n, *senses, t);
+                let range = curve.range_c();
+                let mut outside = false;
+                for t in t.iter_mut() {
+                    let within = within(*t - ZERO_CELSIUS_K, range);
+                    outside |= within.is_none();
+                    *t = within.unwrap_or(0.0);
+                }
+                if outside {
+                    return Err(Lost);
+                }
+                Ok(CurveLanes::Rtd {
+                    curve: *curve,
+                    errors: coefficient_errors.map(|e| run.or_zero(e)),
+                    r0: run.slot(*r0),
+                    deviation: deviation.map(|(d0, da)| (run.slot(d0), run.slot(da))),
+                })
+            }
+            Node::Thermistor(node::Thermistor {
+                r25, curve, senses, ..
+            }) => {
+                run.sensed_into(n, *senses, t);
+                Ok(match curve {
+                    ThermistorCurve::Beta { beta } => CurveLanes::Beta {
+                        r25: run.slot(*r25),
+                        beta: run.slot(*beta),
+                    },
+                    ThermistorCurve::SteinhartHart { a, b, c } => {
+                        CurveLanes::SteinhartHart(thermistor::SteinhartHart {
+                            a: *a,
+                            b: *b,
+                            c: *c,
+                        })
+                    }
+                })
+            }
+            Node::Excitation(_)
+            | Node::Thermocouple(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => Err(Lost),
         }
-        Ok(curves)
     }
 
     /// [`Plan::heated_divider_element`] in every lane of a batch, each
@@ -484,9 +535,10 @@ impl Plan {
         };
         let leads: [f64; LANES] = std::array::from_fn(|k| self.element_leads(node, run.row(k)));
         let cold = std::array::from_fn(|k| element[k] - leads[k]);
-        let curves = self.element_curves(node, run)?;
+        let mut t = [0.0; LANES];
+        let curves = self.element_curves(node, run, &mut t)?;
         let delta = run.slot(heating.dissipation);
-        let heated = self_heated_lanes(&curves, &cold, heating.curved, delta, |k, r| {
+        let heated = self_heated_lanes(&curves, &t, &cold, heating.curved, delta, |k, r| {
             supply[k].power_w(r, leads[k])
         })?;
         Ok(std::array::from_fn(|k| heated[k] + leads[k]))
@@ -507,11 +559,11 @@ impl Plan {
         };
         let excitation: [Signal; LANES] = std::array::from_fn(|j| exc.signal(j));
         let mut leads = [[0.0; LANES]; 4];
-        let mut curves = [None; 4];
+        let (mut curves, mut t) = ([None; 4], [[0.0; LANES]; 4]);
         for (k, heated) in heating.iter().enumerate() {
             if let Some((n, _)) = heated {
                 leads[k] = std::array::from_fn(|j| self.element_leads(*n, run.row(j)));
-                curves[k] = Some(self.element_curves(*n, run)?);
+                curves[k] = Some(self.element_curves(*n, run, &mut t[k])?);
             }
         }
         for _ in 0..passes {
@@ -522,7 +574,7 @@ impl Plan {
                 let leads = &leads[k];
                 let start = std::array::from_fn(|j| arms[j][k] - leads[j]);
                 let delta = run.slot(h.dissipation);
-                let heated = self_heated_lanes(curves, &start, h.curved, delta, |j, r| {
+                let heated = self_heated_lanes(curves, &t[k], &start, h.curved, delta, |j, r| {
                     arm_power_w(arms[j], k, r, leads[j], excitation[j])
                 })?;
                 for (j, arms) in arms.iter_mut().enumerate() {
@@ -534,8 +586,55 @@ impl Plan {
     }
 }
 
-/// Each lane's element curve and the temperature it senses.
-type ElementCurves = [(ElementCurve, f64); LANES];
+/// Every lane's element curve: the node's kind of curve with each lane's
+/// values, borrowed from the batch's columns.
+#[derive(Clone, Copy)]
+enum CurveLanes<'a> {
+    Rtd {
+        curve: RtdCurve,
+        /// The Callendar–Van Dusen coefficients' errors (zero for another
+        /// curve or where none is stated).
+        errors: [&'a [f64; LANES]; 3],
+        r0: &'a [f64; LANES],
+        deviation: Option<(&'a [f64; LANES], &'a [f64; LANES])>,
+    },
+    Beta {
+        r25: &'a [f64; LANES],
+        beta: &'a [f64; LANES],
+    },
+    SteinhartHart(thermistor::SteinhartHart),
+}
+
+impl CurveLanes<'_> {
+    /// Lane `k`'s curve, as [`Plan::element_curve`] gives it in a single run.
+    #[inline(always)]
+    fn lane(&self, k: usize) -> ElementCurve {
+        match *self {
+            CurveLanes::Rtd {
+                curve,
+                errors,
+                r0,
+                deviation,
+            } => ElementCurve::Rtd {
+                curve: match curve {
+                    RtdCurve::Cvd { a, b, c } => RtdCurve::Cvd {
+                        a: a + errors[0][k],
+                        b: b + errors[1][k],
+                        c: c + errors[2][k],
+                    },
+                    other => other,
+                },
+                r0: r0[k],
+                deviation: deviation.map(|(d0, da)| (d0[k], da[k])),
+            },
+            CurveLanes::Beta { r25, beta } => ElementCurve::Beta {
+                r25: r25[k],
+                beta: beta[k],
+            },
+            CurveLanes::SteinhartHart(sh) => ElementCurve::SteinhartHart(sh),
+        }
+    }
+}
 
 /// [`self_heated`] in every lane of a batch: each step taken across the
 /// lanes before the next, so the lanes' curve evaluations run side by
@@ -545,18 +644,20 @@ type ElementCurves = [(ElementCurve, f64); LANES];
 /// constant.
 #[inline(always)]
 fn self_heated_lanes(
-    curves: &ElementCurves,
+    curves: &CurveLanes<'_>,
+    t: &[f64; LANES],
     cold: &[f64; LANES],
     curved: bool,
     delta: &[f64; LANES],
     power: impl Fn(usize, f64) -> f64,
 ) -> Result<[f64; LANES], Lost> {
+    // Each lane's curve put together once for its two or three steps.
+    let lanes: [ElementCurve; LANES] = std::array::from_fn(|k| curves.lane(k));
     let step = |from: &[f64; LANES]| -> Result<[f64; LANES], Lost> {
         let mut to = [0.0; LANES];
         for k in 0..LANES {
-            let (curve, t) = curves[k];
-            to[k] = curve
-                .heated_resistance(t, power(k, from[k]), delta[k])
+            to[k] = lanes[k]
+                .heated_resistance(t[k], power(k, from[k]), delta[k])
                 .map_err(|_| Lost)?;
         }
         Ok(to)

@@ -41,26 +41,6 @@ pub(super) struct Column {
 pub(super) struct Lost;
 
 impl Column {
-    #[inline(always)]
-    pub fn scalar(tag: Tag, x: [f64; LANES]) -> Column {
-        Column {
-            tag,
-            x,
-            ..Column::default()
-        }
-    }
-
-    #[inline(always)]
-    pub fn voltage(v: [f64; LANES], cm: [f64; LANES], rs: [f64; LANES]) -> Column {
-        Column {
-            tag: Tag::Voltage,
-            x: v,
-            cm,
-            rs,
-            code: [0; LANES],
-        }
-    }
-
     /// Lane `k`'s signal, for the code a kernel shares with single runs.
     #[inline(always)]
     pub fn signal(&self, k: usize) -> Signal {
@@ -246,15 +226,19 @@ impl LaneRun<'_> {
         s.map_or(&ZEROS, |s| &self.values[s.index()])
     }
 
-    /// [`Plan::drifted`] in every lane.
+    /// [`Plan::drifted`] in every lane, into `out`.
     #[inline(always)]
-    pub fn drifted(&self, value: &[f64; LANES], drift: Option<DriftSlot>) -> [f64; LANES] {
+    pub fn drifted_into(
+        &self,
+        value: &[f64; LANES],
+        drift: Option<DriftSlot>,
+        out: &mut [f64; LANES],
+    ) {
         let dt = self.env.ambient - self.plan.reference;
         match drift {
-            None => *value,
+            None => *out = *value,
             Some(d) => {
                 let c = &self.values[d.slot.index()];
-                let mut out = [0.0; LANES];
                 for k in 0..LANES {
                     out[k] = if d.relative {
                         value[k] * (1.0 + c[k] * dt)
@@ -262,15 +246,41 @@ impl LaneRun<'_> {
                         value[k] + c[k] * dt
                     };
                 }
-                out
             }
         }
+    }
+
+    /// [`Plan::drifted`] in every lane.
+    #[inline(always)]
+    pub fn drifted(&self, value: &[f64; LANES], drift: Option<DriftSlot>) -> [f64; LANES] {
+        let mut out = [0.0; LANES];
+        self.drifted_into(value, drift, &mut out);
+        out
     }
 
     /// [`Plan::sensed`] in every lane: the temperature the node senses.
     #[inline(always)]
     pub fn sensed(&self, senses: Senses) -> [f64; LANES] {
-        std::array::from_fn(|k| self.plan.sensed(self.i, senses, self.env, self.row(k)))
+        let mut t = [0.0; LANES];
+        self.sensed_into(self.i, senses, &mut t);
+        t
+    }
+
+    /// [`Plan::sensed`] of node `n` in every lane, into `out`, term by
+    /// term as a single run adds them (a term it lacks adds zero there
+    /// too).
+    #[inline(always)]
+    pub fn sensed_into(&self, n: NodeId, senses: Senses, out: &mut [f64; LANES]) {
+        let terms = self.plan.sense_terms(n, senses, self.env);
+        let column = |s: SlotId| &self.values[s.index()];
+        let (class, half_width) = terms.class.map_or((&ZEROS, 0.0), |(w, s)| (column(s), w));
+        let absolute = self.or_zero(terms.absolute);
+        let (of_reading, distance) = terms
+            .of_reading
+            .map_or((&ZEROS, 0.0), |(s, d)| (column(s), d));
+        for (k, out) in out.iter_mut().enumerate() {
+            *out = terms.t + class[k] * half_width + absolute[k] + of_reading[k] * distance;
+        }
     }
 
     /// The current a current source drives into `input`, if it is one.
@@ -279,14 +289,17 @@ impl LaneRun<'_> {
         input.and_then(|n| self.s[n.index()].of(Tag::Current))
     }
 
-    /// `Run::element` in every lane: a resistive element of `r` Ω.
+    /// `Run::element` in every lane, into `out`: a resistive element of
+    /// `r` Ω.
     #[inline(always)]
-    pub fn element(&self, r: [f64; LANES], input: Option<NodeId>) -> Column {
+    pub fn element_into(&self, r: &[f64; LANES], input: Option<NodeId>, out: &mut Column) {
         let Some(a) = self.current_into(input) else {
-            return Column::scalar(Tag::Element, r);
+            out.tag = Tag::Element;
+            out.x = *r;
+            return;
         };
         let below = &self.plan.series_below[self.i.index()];
-        let (mut v, mut cm) = ([0.0; LANES], [0.0; LANES]);
+        out.tag = Tag::Voltage;
         for k in 0..LANES {
             let lift: f64 = below
                 .iter()
@@ -295,10 +308,10 @@ impl LaneRun<'_> {
                     _ => 0.0,
                 })
                 .sum();
-            v[k] = a[k] * r[k];
-            cm[k] = lift + a[k] * r[k] / 2.0;
+            out.x[k] = a[k] * r[k];
+            out.cm[k] = lift + a[k] * r[k] / 2.0;
         }
-        Column::voltage(v, cm, r)
+        out.rs = *r;
     }
 }
 

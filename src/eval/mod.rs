@@ -20,6 +20,7 @@ mod plan;
 mod run;
 mod stated;
 mod track;
+pub mod wide;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, Method, TableUse};
 pub use lanes::LaneColumns;

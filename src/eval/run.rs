@@ -4,7 +4,9 @@
 use super::convert::{calibration_env, Calibrated, Conversion, Firmware};
 use super::lanes::{LaneColumns, LaneRun, Lost, RunKey, Tag};
 use super::node;
-use super::plan::{ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal};
+use super::plan::{
+    ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal, SlotId,
+};
 use crate::model::typed::CombineOp;
 use crate::physics::thermocouple;
 use crate::units::ZERO_CELSIUS_K;
@@ -247,6 +249,24 @@ impl Plan {
     /// once of the whole range (`lower::check_validity`), not of each
     /// shifted reading.
     pub(super) fn sensed(&self, i: NodeId, senses: Senses, env: &Env, values: &[f64]) -> f64 {
+        let terms = self.sense_terms(i, senses, env);
+        let class = terms
+            .class
+            .map(|(half_width, slot)| values[slot.index()] * half_width);
+        let of_reading = terms
+            .of_reading
+            .map(|(s, distance)| values[s.index()] * distance);
+        terms.t
+            + class.unwrap_or(0.0)
+            + terms.absolute.map(|s| values[s.index()]).unwrap_or(0.0)
+            + of_reading.unwrap_or(0.0)
+    }
+
+    /// What node `i`'s sensed temperature is made of at a condition, the
+    /// same in every run: the condition's temperature, and the slots of
+    /// its stated errors with what scales each.
+    #[inline(always)]
+    pub(super) fn sense_terms(&self, i: NodeId, senses: Senses, env: &Env) -> SenseTerms {
         let t = match senses {
             Senses::Measurand => env.measurand,
             Senses::ColdJunction => env.cold_junction,
@@ -257,14 +277,14 @@ impl Plan {
             let half_width = match class {
                 ClassTolerance::Thermocouple(ty, c) => thermocouple::class_tolerance_k(ty, c, t_c),
             };
-            values[slot.index()] * half_width.unwrap_or(0.0)
+            (half_width.unwrap_or(0.0), slot)
         });
-        let of_reading = error
-            .of_reading
-            .map(|(s, zero)| values[s.index()] * (t - zero).abs());
-        t + class.unwrap_or(0.0)
-            + error.absolute.map(|s| values[s.index()]).unwrap_or(0.0)
-            + of_reading.unwrap_or(0.0)
+        SenseTerms {
+            t,
+            class,
+            absolute: error.absolute,
+            of_reading: error.of_reading.map(|(s, zero)| (s, (t - zero).abs())),
+        }
     }
 
     pub(super) fn drifted(
@@ -320,6 +340,22 @@ pub(super) fn measurand_free(nodes: &[Node], series_below: &[Vec<NodeId>]) -> Ve
 
 /// Range ends written in °C come back through kelvin a few ulps off;
 /// within a nanokelvin of an end counts as the end.
+/// A sensed temperature's parts at one condition (see
+/// [`Plan::sense_terms`]).
+#[derive(Clone, Copy, Debug)]
+pub(super) struct SenseTerms {
+    /// The condition's temperature, K.
+    pub t: f64,
+    /// The class tolerance's half-width at `t`, K, and the slot of the
+    /// share of it taken.
+    pub class: Option<(f64, SlotId)>,
+    /// An absolute error's slot.
+    pub absolute: Option<SlotId>,
+    /// A share-of-reading error's slot and the distance, K, from the
+    /// reading's zero it is a share of.
+    pub of_reading: Option<(SlotId, f64)>,
+}
+
 pub(super) fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
     const SLACK: f64 = 1e-9;
     (lo - SLACK..=hi + SLACK)
@@ -558,6 +594,21 @@ impl Plan {
     /// the calibration's points and the chain node by node across the
     /// lanes, then the conversion's inverse and correction lane by lane.
     fn column_readings(
+        &self,
+        values: &[f64],
+        env: &Env,
+        known: Option<&[Calibrated; LANES]>,
+        readings: &mut [f64; LANES],
+        columns: &mut LaneColumns,
+    ) -> Result<(), Lost> {
+        super::wide::run(
+            #[inline(always)]
+            || self.column_readings_kernel(values, env, known, readings, columns),
+        )
+    }
+
+    #[inline(always)]
+    fn column_readings_kernel(
         &self,
         values: &[f64],
         env: &Env,

@@ -194,7 +194,7 @@ impl Adc {
 
     /// [`Adc::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let input = &run.s[self.input.index()];
         if input.tag != Tag::Voltage {
             return Err(Lost);
@@ -211,9 +211,9 @@ impl Adc {
             return Err(Lost);
         }
         if self.combine.is_none() {
-            return Ok(self.codes_lanes(run, input, &vr));
+            self.codes_lanes(run, input, &vr, out);
+            return Ok(());
         }
-        let mut out = Column::default();
         for (k, &vr) in vr.iter().enumerate() {
             let own = self.code_of(
                 run.row(k),
@@ -226,7 +226,7 @@ impl Adc {
             out.set(k, code)?;
         }
         match out.tag {
-            Tag::Code => Ok(out),
+            Tag::Code => Ok(()),
             _ => Err(Lost),
         }
     }
@@ -234,7 +234,7 @@ impl Adc {
     /// [`Adc::code_of`] over a whole column, for a converter that
     /// combines no other channel: the same arithmetic, lane by lane.
     #[inline(always)]
-    fn codes_lanes(&self, run: &LaneRun<'_>, input: &Column, vr: &[f64; LANES]) -> Column {
+    fn codes_lanes(&self, run: &LaneRun<'_>, input: &Column, vr: &[f64; LANES], out: &mut Column) {
         let pga = self.pga.map(|g| run.slot(g));
         let gain_error = run.or_zero(self.gain_error);
         let none = run.or_zero(None);
@@ -250,10 +250,7 @@ impl Adc {
             .map(|s| run.slot(s));
         let full_scale = adc::full_scale_codes(self.per_ref, self.polarity);
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
-        let mut out = Column {
-            tag: Tag::Code,
-            ..Column::default()
-        };
+        out.tag = Tag::Code;
         for k in 0..LANES {
             let gain = pga.map_or(1.0, |g| g[k]) * (1.0 + gain_error[k]);
             let off = off[k] + bias.map_or(0.0, |b| b[k] * input.rs[k]);
@@ -262,7 +259,6 @@ impl Adc {
             out.x[k] = exact;
             out.code[k] = round_code(exact, lo, hi);
         }
-        out
     }
 
     /// Its code combined with the other channels' a conversion reads

@@ -196,7 +196,7 @@ impl Amplifier {
 impl Amplifier {
     /// [`Amplifier::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, column: &mut Column) -> Result<(), Lost> {
         let input = &run.s[self.input.index()];
         if input.tag != Tag::Voltage {
             return Err(Lost);
@@ -214,7 +214,8 @@ impl Amplifier {
         let (bias, cmrr) = (run.or_zero(self.bias), run.or_zero(self.cmrr));
         let (gain, gain_drift) = (run.slot(self.gain), run.or_zero(self.gain_drift));
         let (lo, hi) = self.output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
-        let mut out = [0.0; LANES];
+        column.tag = Tag::Voltage;
+        let out = &mut column.x;
         for k in 0..LANES {
             let error =
                 offset[k] + offset_drift[k] * dt + bias[k] * input.rs[k] + cmrr[k] * input.cm[k];
@@ -231,11 +232,15 @@ impl Amplifier {
                     }
                 }
             }
-            for out in &mut out {
+            for out in out.iter_mut() {
                 *out = out.clamp(lo, hi);
             }
         }
-        Ok(Column::voltage(out, out.map(|v| v / 2.0), [0.0; LANES]))
+        for (cm, v) in column.cm.iter_mut().zip(&column.x) {
+            *cm = v / 2.0;
+        }
+        column.rs = [0.0; LANES];
+        Ok(())
     }
 }
 

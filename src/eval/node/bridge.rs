@@ -242,7 +242,7 @@ impl Bridge {
 impl Bridge {
     /// [`Bridge::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let exc = &run.s[self.exc.index()];
         if !matches!(exc.tag, Tag::Source | Tag::Current) {
             return Err(Lost);
@@ -265,7 +265,7 @@ impl Bridge {
         // Arms by position, as in `Bridge::solve`.
         let (r1, r2, r3, r4) = match self.kind {
             BridgeKind::Divider { sensor_high } => {
-                return self.divider_lanes(run, sensor_high, &fixed, &arm(0)?)
+                return self.divider_lanes(run, sensor_high, &fixed, &arm(0)?, out)
             }
             BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
             BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
@@ -275,7 +275,7 @@ impl Bridge {
         let arms = run
             .plan
             .heated_bridge_arm_lanes(arms, self.placed(run.mode), exc, run)?;
-        let mut out = Column::voltage([0.0; LANES], [0.0; LANES], [0.0; LANES]);
+        out.tag = Tag::Voltage;
         for (j, &[r1, r2, r3, r4]) in arms.iter().enumerate() {
             let v_exc = match exc.tag {
                 Tag::Current => strain::bridge_excitation_v(exc.x[j], r1, r2, r3, r4),
@@ -286,7 +286,7 @@ impl Bridge {
             out.cm[j] = strain::bridge_common_mode(v_exc, r1, r2, r3, r4).map_err(lost)?;
             out.rs[j] = strain::bridge_output_resistance(r1, r2, r3, r4).map_err(lost)?;
         }
-        Ok(out)
+        Ok(())
     }
 
     /// [`Bridge::divider`] in every lane of a batch.
@@ -297,7 +297,8 @@ impl Bridge {
         sensor_high: bool,
         fixed: &[f64; LANES],
         arm: &[f64; LANES],
-    ) -> Result<Column, Lost> {
+        out: &mut Column,
+    ) -> Result<(), Lost> {
         let exc = &run.s[self.exc.index()];
         let supply =
             std::array::from_fn(|j| Supply::of_divider(exc.signal(j), fixed[j], sensor_high));
@@ -305,19 +306,21 @@ impl Bridge {
             Some(n) => run.plan.heated_divider_elements(n, arm, &supply, run)?,
             None => *arm,
         };
-        let (mut v, mut rs) = ([0.0; LANES], [0.0; LANES]);
+        out.tag = Tag::Voltage;
         for j in 0..LANES {
             let (low, high) = if sensor_high {
                 (fixed[j], element[j])
             } else {
                 (element[j], fixed[j])
             };
-            v[j] = match exc.tag {
+            let v = match exc.tag {
                 Tag::Current => exc.x[j] * low,
                 _ => strain::divider_output(exc.x[j], low, high).map_err(|_| Lost)?,
             };
-            rs[j] = strain::divider_output_resistance(low, high);
+            out.x[j] = v;
+            out.cm[j] = v / 2.0;
+            out.rs[j] = strain::divider_output_resistance(low, high);
         }
-        Ok(Column::voltage(v, v.map(|v| v / 2.0), rs))
+        Ok(())
     }
 }

@@ -7,7 +7,6 @@ use crate::eval::convert::{Calibration, Conversion, JunctionEmfs, Method};
 use crate::eval::fault::FaultKind;
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
-use crate::eval::run::LANES;
 use crate::model::typed::{self, CalibrationMethod, ConversionMethod};
 use crate::model::value::Tolerance;
 
@@ -115,7 +114,7 @@ impl Convert {
     /// side where it answers from the code directly, the rest of the
     /// conversion lane by lane.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let input = &run.s[self.input.index()];
         let exact = input.of(Tag::Code).ok_or(Lost)?;
         let codes = if run.mode.quantized {
@@ -133,8 +132,8 @@ impl Convert {
             cj,
             &mut JunctionEmfs::default(),
         );
-        let mut readings = [0.0; LANES];
-        for (k, reading) in readings.iter_mut().enumerate() {
+        out.tag = Tag::Reading;
+        for (k, reading) in out.x.iter_mut().enumerate() {
             let values = run.row(k);
             let x = match direct[k] {
                 Some(x) => x,
@@ -147,7 +146,7 @@ impl Convert {
                 .correct(run.plan, x, &calibrated)
                 .map_err(|_| Lost)?;
         }
-        Ok(Column::scalar(Tag::Reading, readings))
+        Ok(())
     }
 }
 

@@ -1,6 +1,6 @@
 //! A current or voltage source: its value with tolerance and drift.
 
-use super::{Cx, Run};
+use super::{Cx, Lost, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Tag};
 use crate::eval::plan::{DriftSlot, EvalError, Signal, SlotId, SourceKind};
@@ -59,14 +59,14 @@ impl Excitation {
 
     /// [`Excitation::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
-        let v = run.drifted(run.slot(self.value), self.drift);
-        let tag = if self.current {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
+        out.tag = if self.current {
             Tag::Current
         } else {
             Tag::Source
         };
-        Column::scalar(tag, v)
+        run.drifted_into(run.slot(self.value), self.drift, &mut out.x);
+        Ok(())
     }
 
     fn output(&self, v: f64) -> Signal {

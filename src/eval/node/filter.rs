@@ -1,7 +1,7 @@
 //! A low-pass filter: it passes DC; a passive RC adds its series
 //! resistance to the source resistance. Its response is the dynamics'.
 
-use super::{Cx, Run};
+use super::{Cx, Lost, Run};
 use crate::eval::fault::FaultKind;
 use crate::eval::lanes::{Column, LaneRun, Tag};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
@@ -52,14 +52,14 @@ impl Filter {
 
     /// [`Filter::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
-        let mut out = run.s[self.input.index()];
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
+        *out = run.s[self.input.index()];
         if out.tag == Tag::Voltage {
             let series = run.or_zero(self.series);
             for (rs, series) in out.rs.iter_mut().zip(series) {
                 *rs += series;
             }
         }
-        out
+        Ok(())
     }
 }

@@ -71,14 +71,14 @@ impl IcCurrent {
 
     /// [`IcCurrent::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let t = run.sensed(self.senses);
         let slope = run.slot(self.slope);
-        let mut a = [0.0; LANES];
+        out.tag = Tag::Current;
         for k in 0..LANES {
-            a[k] = semiconductor::ptat_current_a(slope[k], t[k]).map_err(|_| Lost)?;
+            out.x[k] = semiconductor::ptat_current_a(slope[k], t[k]).map_err(|_| Lost)?;
         }
-        Ok(Column::scalar(Tag::Current, a))
+        Ok(())
     }
 }
 

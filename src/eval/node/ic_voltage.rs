@@ -1,8 +1,8 @@
 //! A semiconductor temperature sensor with a linear voltage output.
 
-use super::{Cx, Run};
+use super::{Cx, Lost, Run};
 use crate::eval::fault::{FaultKind, Faulted};
-use crate::eval::lanes::{Column, LaneRun};
+use crate::eval::lanes::{Column, LaneRun, Tag};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
 use crate::model::schema;
@@ -100,20 +100,22 @@ impl IcVoltage {
 
     /// [`IcVoltage::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let t = run.sensed(self.senses);
         let (v0, slope) = (run.slot(self.v0), run.slot(self.slope));
-        let (mut v, mut cm) = ([0.0; LANES], [0.0; LANES]);
+        out.tag = Tag::Voltage;
         for k in 0..LANES {
-            v[k] = semiconductor::linear_voltage_v(
+            let v = semiconductor::linear_voltage_v(
                 v0[k],
                 slope[k],
                 self.t0 - ZERO_CELSIUS_K,
                 t[k] - ZERO_CELSIUS_K,
             );
-            cm[k] = v[k] / 2.0;
+            out.x[k] = v;
+            out.cm[k] = v / 2.0;
         }
-        Column::voltage(v, cm, *run.or_zero(self.rout))
+        out.rs = *run.or_zero(self.rout);
+        Ok(())
     }
 }
 

@@ -408,23 +408,31 @@ impl Plan {
         run: &LaneRun<'_>,
         out: &mut Column,
     ) -> Result<(), Lost> {
-        *out = match &self.nodes[run.i.index()] {
-            Node::Excitation(n) => n.eval_lanes(run),
-            Node::Rtd(n) => n.eval_lanes(run)?,
-            Node::Thermocouple(n) => n.eval_lanes(run)?,
-            Node::Thermistor(n) => n.eval_lanes(run)?,
-            Node::Resistor(n) => n.eval_lanes(run),
-            Node::Amplifier(n) => n.eval_lanes(run)?,
-            Node::Filter(n) => n.eval_lanes(run),
-            Node::Adc(n) => n.eval_lanes(run)?,
-            Node::Bridge(n) => n.eval_lanes(run)?,
-            Node::IcVoltage(n) => n.eval_lanes(run),
-            Node::IcCurrent(n) => n.eval_lanes(run)?,
-            Node::StrainGauge(n) => n.eval_lanes(run),
-            Node::Transducer(n) => n.eval_lanes(run)?,
-            Node::Convert(n) => n.eval_lanes(run)?,
-        };
-        Ok(())
+        super::wide::run(
+            #[inline(always)]
+            || self.kernel_lanes(run, out),
+        )
+    }
+
+    /// [`Plan::node_lanes`], built for each vector width.
+    #[inline(always)]
+    fn kernel_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
+        match &self.nodes[run.i.index()] {
+            Node::Excitation(n) => n.eval_lanes(run, out),
+            Node::Rtd(n) => n.eval_lanes(run, out),
+            Node::Thermocouple(n) => n.eval_lanes(run, out),
+            Node::Thermistor(n) => n.eval_lanes(run, out),
+            Node::Resistor(n) => n.eval_lanes(run, out),
+            Node::Amplifier(n) => n.eval_lanes(run, out),
+            Node::Filter(n) => n.eval_lanes(run, out),
+            Node::Adc(n) => n.eval_lanes(run, out),
+            Node::Bridge(n) => n.eval_lanes(run, out),
+            Node::IcVoltage(n) => n.eval_lanes(run, out),
+            Node::IcCurrent(n) => n.eval_lanes(run, out),
+            Node::StrainGauge(n) => n.eval_lanes(run, out),
+            Node::Transducer(n) => n.eval_lanes(run, out),
+            Node::Convert(n) => n.eval_lanes(run, out),
+        }
     }
 }
 

@@ -1,6 +1,6 @@
 //! A fixed resistor with its tolerance and drift.
 
-use super::{Cx, Run};
+use super::{Cx, Lost, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
@@ -41,7 +41,9 @@ impl Resistor {
 
     /// [`Resistor::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
-        run.element(run.drifted(run.slot(self.r), self.drift), self.input)
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
+        let r = run.drifted(run.slot(self.r), self.drift);
+        run.element_into(&r, self.input, out);
+        Ok(())
     }
 }

@@ -221,13 +221,14 @@ impl Rtd {
     /// [`Rtd::eval`] in every lane of a batch: the element's curve and
     /// self-heating over the column, then each lane's leads.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let current = run.current_into(self.input);
         let mut r = run.plan.driven_elements(run.i, run, current)?;
         for (k, r) in r.iter_mut().enumerate() {
             *r += self.lead_of(run.row(k));
         }
-        Ok(run.element(r, self.input))
+        run.element_into(&r, self.input, out);
+        Ok(())
     }
 
     /// The leads' resistance in the measurement, by the wiring.

@@ -1,6 +1,6 @@
 //! A strain gauge: ΔR/R = GF · ε, on the tension or compression side.
 
-use super::{Cx, Run};
+use super::{Cx, Lost, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun};
 use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
@@ -63,14 +63,15 @@ impl StrainGauge {
 
     /// [`StrainGauge::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Column {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let (r0, gauge_factor) = (run.slot(self.r), run.slot(self.gauge_factor));
         let strain = self.sign * run.env.measurand;
         let mut r = [0.0; LANES];
         for k in 0..LANES {
             r[k] = strain::gauge_resistance(r0[k], gauge_factor[k], strain);
         }
-        run.element(r, self.input)
+        run.element_into(&r, self.input, out);
+        Ok(())
     }
 }
 

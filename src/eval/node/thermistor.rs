@@ -70,9 +70,10 @@ impl Thermistor {
 
     /// [`Thermistor::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let current = run.current_into(self.input);
         let r = run.plan.driven_elements(run.i, run, current)?;
-        Ok(run.element(r, self.input))
+        run.element_into(&r, self.input, out);
+        Ok(())
     }
 }

@@ -4,7 +4,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{Fault, FaultKind, Faulted, FLOATING, OPEN_OHMS};
-use crate::eval::lanes::{Column, LaneRun, Lost};
+use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::SourceKind;
 use crate::eval::plan::{
     ClassTolerance, DriftSlot, Env, EvalError, NodeId, Plan, Senses, Signal, SlotId,
@@ -122,18 +122,19 @@ impl Thermocouple {
 
     /// [`Thermocouple::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
-        let mut v = [0.0; LANES];
-        for (k, v) in v.iter_mut().enumerate() {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
+        out.tag = Tag::Voltage;
+        for (k, v) in out.x.iter_mut().enumerate() {
             *v = self
                 .emf_v(run.plan, run.i, run.row(k), run.env, run.junction_mv)
                 .map_err(|_| Lost)?;
         }
-        let cm = match self.bias {
-            Some((b, drift)) => run.drifted(run.slot(b), drift),
-            None => [0.0; LANES],
-        };
-        Ok(Column::voltage(v, cm, *run.or_zero(self.bias_resistor)))
+        match self.bias {
+            Some((b, drift)) => run.drifted_into(run.slot(b), drift, &mut out.cm),
+            None => out.cm = [0.0; LANES],
+        }
+        out.rs = *run.or_zero(self.bias_resistor);
+        Ok(())
     }
 
     /// The couple's EMF, V, against its cold junction (`junction_mv`

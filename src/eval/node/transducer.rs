@@ -148,7 +148,7 @@ impl Transducer {
 
     /// [`Transducer::eval`] in every lane of a batch.
     #[inline(always)]
-    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>) -> Result<Column, Lost> {
+    pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let dt = run.env.ambient - run.plan.reference;
         let s_fs = run.slot(self.sensitivity);
         let u = run.env.measurand / self.full_scale;
@@ -163,7 +163,7 @@ impl Transducer {
             (true, None) => return Err(Lost),
             (false, _) => None,
         };
-        let (mut v, mut cm) = ([0.0; LANES], [0.0; LANES]);
+        out.tag = Tag::Voltage;
         for k in 0..LANES {
             let errors = transducer::Errors {
                 zero: zero[k],
@@ -173,16 +173,20 @@ impl Transducer {
                 span_drift: span_drift[k],
             };
             let fraction = transducer::output(s_fs[k], u, self.linearity, errors, dt);
-            (v[k], cm[k]) = match excitation {
+            (out.x[k], out.cm[k]) = match excitation {
                 Some(exc) => (fraction * exc[k], exc[k] / 2.0),
                 None => (fraction, fraction / 2.0),
             };
         }
-        let rs = match self.r {
-            Some(r) => run.slot(r).map(|r| r / 2.0),
-            None => [0.0; LANES],
-        };
-        Ok(Column::voltage(v, cm, rs))
+        match self.r {
+            Some(r) => {
+                for (rs, r) in out.rs.iter_mut().zip(run.slot(r)) {
+                    *rs = r / 2.0;
+                }
+            }
+            None => out.rs = [0.0; LANES],
+        }
+        Ok(())
     }
 }
 
