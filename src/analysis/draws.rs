@@ -133,9 +133,15 @@ fn open_uniform_of(bits: u64) -> f64 {
 }
 
 /// The cell of a draw's bits among `cells` (see [`Stream::cell`]).
-#[inline]
+#[inline(always)]
 pub fn cell_of(bits: u64, cells: usize) -> usize {
-    (((bits >> 11) as u128 * cells as u128) >> 53) as usize
+    let top = bits >> 11;
+    // Below 2¹¹ cells the product of a 53-bit draw fits 64 bits: one
+    // multiply, not a 128-bit one, and the same cell.
+    match u64::try_from(cells) {
+        Ok(few) if few <= 1 << 11 => ((top * few) >> 53) as usize,
+        _ => ((u128::from(top) * cells as u128) >> 53) as usize,
+    }
 }
 
 /// The standard normal quantile of `p` in (0, 1): Wichura, "Algorithm

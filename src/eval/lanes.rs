@@ -165,18 +165,29 @@ impl LaneColumns {
     /// `n` each) as columns. Values as loaded last (to the bit, as when a
     /// batch is read at several points) are kept; new ones void the last
     /// run.
+    #[inline(always)]
     pub(super) fn load(&mut self, rows: &[f64], n: usize) {
-        // One pass the compiler vectorises, no early exit.
-        let differs = self.rows.len() != rows.len()
-            || self
+        if !self.holds(rows) {
+            self.reload(rows, n);
+        }
+    }
+
+    /// Whether the columns hold `rows` to the bit: one pass the compiler
+    /// vectorises, no early exit (inlined into the wide kernels, four
+    /// words an instruction).
+    #[inline(always)]
+    fn holds(&self, rows: &[f64]) -> bool {
+        self.rows.len() == rows.len()
+            && self
                 .rows
                 .iter()
                 .zip(rows)
                 .fold(0, |acc, (a, b)| acc | (a.to_bits() ^ b.to_bits()))
-                != 0;
-        if !differs {
-            return;
-        }
+                == 0
+    }
+
+    /// New values: the last run is void.
+    fn reload(&mut self, rows: &[f64], n: usize) {
         self.last = None;
         self.rows.clear();
         self.rows.extend_from_slice(rows);
