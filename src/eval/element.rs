@@ -438,9 +438,7 @@ impl Plan {
         let mut t = [0.0; LANES];
         let curves = self.element_curves(n, run, &mut t)?;
         let mut cold = [0.0; LANES];
-        for (k, cold) in cold.iter_mut().enumerate() {
-            *cold = curves.lane(k).resistance(t[k]).map_err(|()| Lost)?;
-        }
+        curves.resistances(&t, &mut cold)?;
         let (Some(a), Some(heating)) = (current, self.heating(n)) else {
             return Ok(cold);
         };
@@ -633,6 +631,53 @@ impl CurveLanes<'_> {
             },
             CurveLanes::SteinhartHart(sh) => ElementCurve::SteinhartHart(sh),
         }
+    }
+
+    /// Every lane's [`ElementCurve::resistance`] at its temperature `t`,
+    /// into `out`: one match on the curve, then a loop over the lanes the
+    /// compiler vectorises (each lane the single run's arithmetic). A lane
+    /// with no resistance loses the batch.
+    #[inline(always)]
+    fn resistances(&self, t: &[f64; LANES], out: &mut [f64; LANES]) -> Result<(), Lost> {
+        let CurveLanes::Rtd {
+            curve,
+            errors,
+            r0,
+            deviation,
+        } = *self
+        else {
+            let mut none = false;
+            for (k, out) in out.iter_mut().enumerate() {
+                match self.lane(k).resistance(t[k]) {
+                    Ok(r) => *out = r,
+                    Err(()) => none = true,
+                }
+            }
+            return if none { Err(Lost) } else { Ok(()) };
+        };
+        match curve {
+            RtdCurve::Cvd { a, b, c } => {
+                for k in 0..LANES {
+                    let coefficients = rtd::CvdCoefficients {
+                        a: a + errors[0][k],
+                        b: b + errors[1][k],
+                        c: c + errors[2][k],
+                    };
+                    out[k] = rtd::resistance(r0[k], coefficients, t[k]);
+                }
+            }
+            RtdCurve::Nickel | RtdCurve::Copper => {
+                for k in 0..LANES {
+                    out[k] = rtd_resistance(curve, r0[k], t[k]);
+                }
+            }
+        }
+        if let Some((d0, da)) = deviation {
+            for k in 0..LANES {
+                out[k] = rtd::deviated_resistance(out[k], r0[k], d0[k], da[k]);
+            }
+        }
+        Ok(())
     }
 }
 
