@@ -482,6 +482,19 @@ mod tests {
         compare_over_range(&chain(&full, "    supply -> b -> front -> conv -> reading\n    p1 -> b.arm\n    p2 -> b.arm\n    p3 -> b.arm\n    ntc -> b.arm"));
     }
 
+    /// A thermocouple's class tolerance, an RTD's stated tolerance and a
+    /// semiconductor sensor's share of reading enter the sensed
+    /// temperature column by column as in a single run.
+    #[test]
+    fn sensed_temperatures_match_the_single_run() {
+        let couple = "    sensor tc {\n        thermocouple type K\n        class 2\n        bias_voltage 1.25 V ± 2 %\n        bias_resistor 10 kohm ± 1 %\n    }";
+        compare_over_range(&chain(couple, "    tc -> front -> conv -> reading"));
+        let pt = "    excitation drive { current 1 mA ± 0.5 % }\n    sensor probe {\n        rtd pt100\n        wires 4\n        tolerance ± 0.3 K\n    }";
+        compare_over_range(&chain(pt, "    drive -> probe -> front -> conv -> reading"));
+        let ic = "    sensor ic {\n        ic_voltage\n        slope 10 mV/K ± 0.5 %\n        output 750 mV at 25 degC\n        accuracy ± 1 % of reading\n    }";
+        compare_over_range(&chain(ic, "    ic -> front -> conv -> reading"));
+    }
+
     /// A lane whose dissipation constant is not positive has no
     /// self-heating: the single run fails there, and the batch is lost,
     /// in a divider and in a bridge.

@@ -106,7 +106,8 @@ impl Thermocouple {
 
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
-        let v = self.emf_v(run.plan, run.i, run.values, run.env, run.junction_mv)?;
+        let sensed = run.plan.sensed(run.i, self.senses, run.env, run.values);
+        let v = self.emf_v(run.plan, run.i, sensed, run.env, run.junction_mv)?;
         // A couple floats: its common mode is where a bias holds it, else
         // 0 V.
         let cm = self
@@ -124,9 +125,11 @@ impl Thermocouple {
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         out.tag = Tag::Voltage;
-        for (k, v) in out.x.iter_mut().enumerate() {
+        let mut sensed = [0.0; LANES];
+        run.sensed_into(run.i, self.senses, &mut sensed);
+        for (v, &sensed) in out.x.iter_mut().zip(&sensed) {
             *v = self
-                .emf_v(run.plan, run.i, run.row(k), run.env, run.junction_mv)
+                .emf_v(run.plan, run.i, sensed, run.env, run.junction_mv)
                 .map_err(|_| Lost)?;
         }
         match self.bias {
@@ -137,20 +140,21 @@ impl Thermocouple {
         Ok(())
     }
 
-    /// The couple's EMF, V, against its cold junction (`junction_mv`
-    /// when the caller worked it out once for many runs).
+    /// The couple's EMF, V, at the temperature it senses (`sensed`, K)
+    /// against its cold junction (`junction_mv` when the caller worked it
+    /// out once for many runs).
     #[inline(always)]
     fn emf_v(
         &self,
         plan: &Plan,
         i: NodeId,
-        values: &[f64],
+        sensed: f64,
         env: &Env,
         junction_mv: Option<f64>,
     ) -> Result<f64, EvalError> {
         let ty = self.ty;
         let range = ty.range_c();
-        let t = plan.sensed(i, self.senses, env, values) - ZERO_CELSIUS_K;
+        let t = sensed - ZERO_CELSIUS_K;
         // Messages are built only on the way out: this runs in every
         // Monte Carlo trial.
         let kind = || format!("type {} thermocouple", ty.letter());
