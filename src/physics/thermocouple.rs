@@ -207,6 +207,43 @@ pub fn emf_mv(ty: ThermocoupleType, t_c: f64) -> Result<f64, OutOfRange> {
     Ok(e)
 }
 
+/// [`emf_mv`] of each of `t_c`, into `e`, to the bit: where every
+/// temperature lies in one sub-range (as the temperatures of one point's
+/// trials do), one Horner pass over all of them coefficient by
+/// coefficient, which vectorises; else each alone. An error is the first
+/// temperature's out of range.
+#[inline(always)]
+pub fn emf_mv_each<const N: usize>(
+    ty: ThermocoupleType,
+    t_c: &[f64; N],
+    e: &mut [f64; N],
+) -> Result<(), OutOfRange> {
+    let first = t_c.first().and_then(|&t| forward_range(ty, t));
+    let shared = first.filter(|r| {
+        t_c.iter()
+            .all(|&t| forward_range(ty, t).is_some_and(|own| std::ptr::eq(own, *r)))
+    });
+    let Some(r) = shared else {
+        for (e, &t) in e.iter_mut().zip(t_c) {
+            *e = emf_mv(ty, t)?;
+        }
+        return Ok(());
+    };
+    *e = [0.0; N];
+    for &c in r.coeffs.iter().rev() {
+        for (e, &t) in e.iter_mut().zip(t_c) {
+            *e = *e * t + c;
+        }
+    }
+    if let Some((a0, a1, a2)) = r.exponential {
+        for (e, &t) in e.iter_mut().zip(t_c) {
+            let x = t - a2;
+            *e += a0 * (a1 * x * x).exp();
+        }
+    }
+    Ok(())
+}
+
 /// E(t) and dE/dt together, for the price of one.
 pub fn emf_and_seebeck_mv(ty: ThermocoupleType, t_c: f64) -> Result<(f64, f64), OutOfRange> {
     eval(ty, t_c)
@@ -554,7 +591,32 @@ mod near_inverse_tests {
 
 #[cfg(test)]
 mod horner_tests {
-    use super::{poly, poly_and_derivative, ThermocoupleType};
+    use super::{emf_mv, emf_mv_each, poly, poly_and_derivative, ThermocoupleType};
+
+    /// Many temperatures at once give each one's EMF to the bit, inside
+    /// one sub-range (the column pass) and across two (each alone), and
+    /// one out of range is the call's error.
+    #[test]
+    fn each_temperature_gets_its_own_emf() {
+        for ty in ThermocoupleType::ALL {
+            let (low, high) = ty.range_c();
+            for centre in [low + 1.0, (low + high) / 2.0, high - 1.0, 0.0] {
+                let t: [f64; 8] = std::array::from_fn(|k| centre + (k as f64 - 3.5) * 0.3);
+                let mut e = [0.0; 8];
+                let whole = emf_mv_each(ty, &t, &mut e);
+                let alone: Result<Vec<f64>, _> = t.iter().map(|&t| emf_mv(ty, t)).collect();
+                match alone {
+                    Ok(alone) => {
+                        assert!(whole.is_ok(), "{ty:?} at {centre}");
+                        for (got, want) in e.iter().zip(&alone) {
+                            assert_eq!(got.to_bits(), want.to_bits(), "{ty:?} at {centre}");
+                        }
+                    }
+                    Err(_) => assert!(whole.is_err(), "{ty:?} at {centre}"),
+                }
+            }
+        }
+    }
 
     /// The fused pass gives, to the bit, the value and the derivative
     /// each Horner fold gives alone, for every sub-range of every type.

@@ -125,12 +125,28 @@ impl Thermocouple {
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         out.tag = Tag::Voltage;
-        let mut sensed = [0.0; LANES];
-        run.sensed_into(run.i, self.senses, &mut sensed);
-        for (v, &sensed) in out.x.iter_mut().zip(&sensed) {
-            *v = self
-                .emf_v(run.plan, run.i, sensed, run.env, run.junction_mv)
-                .map_err(|_| Lost)?;
+        let ty = self.ty;
+        let mut t = [0.0; LANES];
+        run.sensed_into(run.i, self.senses, &mut t);
+        // As `emf_v` lane by lane: the range, the junction, the couple.
+        let range = ty.range_c();
+        let mut outside = false;
+        for t in &mut t {
+            let within = within(*t - ZERO_CELSIUS_K, range);
+            outside |= within.is_none();
+            *t = within.unwrap_or(0.0);
+        }
+        if outside {
+            return Err(Lost);
+        }
+        let at_junction = match run.junction_mv {
+            Some(e) => e,
+            None => thermocouple::emf_mv(ty, junction_c(ty, run.env)).map_err(|_| Lost)?,
+        };
+        let mut e = [0.0; LANES];
+        thermocouple::emf_mv_each(ty, &t, &mut e).map_err(|_| Lost)?;
+        for (v, e) in out.x.iter_mut().zip(e) {
+            *v = (e - at_junction) * 1e-3;
         }
         match self.bias {
             Some((b, drift)) => run.drifted_into(run.slot(b), drift, &mut out.cm),
