@@ -331,6 +331,7 @@ mod tests {
     use super::{LaneColumns, Lost};
     use crate::eval::plan::{Env, Plan, Signal};
     use crate::eval::run::{Mode, Reach, LANES, MAX_NODES};
+    use crate::eval::wide;
     use crate::units::ZERO_CELSIUS_K;
 
     /// The plan of the first chain of `spec`, up to its converter (a
@@ -394,29 +395,34 @@ mod tests {
                     .map(|()| s)
             })
             .collect();
-        let mut columns = LaneColumns::default();
-        columns.load(rows, n);
-        let lanes = plan.run_columns(rows, env, &mut columns, reach, MODE);
         let failed = single.iter().filter(|s| s.is_err()).count();
-        if failed > 0 {
-            assert_eq!(lanes, Err(Lost), "a failing lane loses the batch");
-            return failed;
-        }
-        assert_eq!(lanes, Ok(()), "every lane evaluates, so the batch does");
-        for (k, single) in single.iter().enumerate() {
-            let single = single.as_ref().expect("evaluates");
-            for i in plan.node_ids().take(plan.adc.index() + 1) {
-                let lane = columns.nodes[i.index()].signal(k);
-                assert_eq!(
-                    bits(lane),
-                    bits(single[i.index()]),
-                    "lane {k}, node {}: {lane:?} vs {:?}",
-                    plan.names[i.index()],
-                    single[i.index()]
-                );
+        // The kernels as this CPU runs them, then as built for the
+        // baseline.
+        for portable in [false, true] {
+            let mut columns = LaneColumns::default();
+            columns.load(rows, n);
+            let mut run = || plan.run_columns(rows, env, &mut columns, reach, MODE);
+            let lanes = if portable { wide::portable(run) } else { run() };
+            if failed > 0 {
+                assert_eq!(lanes, Err(Lost), "a failing lane loses the batch");
+                continue;
+            }
+            assert_eq!(lanes, Ok(()), "every lane evaluates, so the batch does");
+            for (k, single) in single.iter().enumerate() {
+                let single = single.as_ref().expect("evaluates");
+                for i in plan.node_ids().take(plan.adc.index() + 1) {
+                    let lane = columns.nodes[i.index()].signal(k);
+                    assert_eq!(
+                        bits(lane),
+                        bits(single[i.index()]),
+                        "lane {k}, node {}: {lane:?} vs {:?}",
+                        plan.names[i.index()],
+                        single[i.index()]
+                    );
+                }
             }
         }
-        0
+        failed
     }
 
     /// [`compare`] over many batches and conditions across the range.
