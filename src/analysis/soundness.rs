@@ -190,6 +190,23 @@ fn non_finite_finding(chain: &Chain, id: &str, what: &str) -> Finding {
     ))
 }
 
+/// Why the reading does not follow a source in a straight line, read from
+/// its effects at the source's two limits, and what to do about it.
+fn nonlinear_help(low: f64, high: f64) -> &'static str {
+    let (small, large) = if low.abs() < high.abs() {
+        (low, high)
+    } else {
+        (high, low)
+    };
+    if small.abs() <= 0.1 * large.abs() {
+        "a stage clips at one of the source's limits, so that limit barely moves the reading: bring the signal back inside its range (see R601), or judge accuracy by `monte_carlo`, which follows the chain as it is"
+    } else if small.signum() == large.signum() {
+        "both limits move the reading the same way: it turns back within the source's range (a stage folding, or a peak): bring the signal back inside every stage's range (see R601), or judge accuracy by `monte_carlo`, which follows the chain as it is"
+    } else {
+        "the limits move the reading opposite ways by different amounts: it curves with the source (self-heating goes as 1/δ, a ratio with its denominator), or a stage clips part of one limit's effect (see R601); judge accuracy by `monte_carlo`, which follows the chain as it is"
+    }
+}
+
 /// R616 where the GUM sum had to leave its linearisation for some source:
 /// the chain does not follow the source in a straight line there (a stage
 /// clipping at one of its limits), so the evaluated limits stand in for
@@ -219,7 +236,27 @@ pub fn nonlinear(chain: &Chain, analysis: &Analysis) -> Option<Finding> {
             trimmed(source.worst * factor, 3),
         ),
     )
-    .help("a stage is clipping or folding at one of the source's limits: bring the signal back inside its range (see R601), or judge accuracy by `monte_carlo`, which follows the chain as it is");
+    .help(nonlinear_help(source.low, source.high));
     let (stage, param) = source.id.stage_param().unzip();
     Some(label_source(chain, finding, stage, param, "this source"))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::nonlinear_help;
+
+    /// The shapes R616 meets, told apart by the reading's changes at the
+    /// source's two limits: one limit barely moving it (a clip), both
+    /// moving it the same way (a fold), and the two moving it opposite
+    /// ways by different amounts (a curve: an element's self-heating with
+    /// its dissipation constant at ± 20 % is 1/0.8 = 1.25 and 1/1.2 = 0.83
+    /// of the nominal, +25 % and −17 %).
+    #[test]
+    fn the_help_names_the_shape_the_limits_show() {
+        assert!(nonlinear_help(0.0, 0.5).starts_with("a stage clips"));
+        assert!(nonlinear_help(-0.5, -0.01).starts_with("a stage clips"));
+        assert!(nonlinear_help(0.3, 0.3).starts_with("both limits"));
+        assert!(nonlinear_help(-0.2, -0.6).starts_with("both limits"));
+        assert!(nonlinear_help(0.138, -0.0919).starts_with("the limits move"));
+    }
 }
