@@ -2,7 +2,7 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
-use super::lanes::{Column, LaneRun, Lost};
+use super::lanes::{celsius_within, Column, LaneRun, Lost};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::{within, LANES};
@@ -468,16 +468,7 @@ impl Plan {
                 ..
             }) => {
                 run.sensed_into(n, *senses, t);
-                let range = curve.range_c();
-                let mut outside = false;
-                for t in t.iter_mut() {
-                    let within = within(*t - ZERO_CELSIUS_K, range);
-                    outside |= within.is_none();
-                    *t = within.unwrap_or(0.0);
-                }
-                if outside {
-                    return Err(Lost);
-                }
+                celsius_within(t, curve.range_c())?;
                 Ok(CurveLanes::Rtd {
                     curve: *curve,
                     errors: coefficient_errors.map(|e| run.or_zero(e)),

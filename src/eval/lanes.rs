@@ -7,7 +7,8 @@
 
 use super::convert::JunctionEmfs;
 use super::plan::{DriftSlot, Env, NodeId, Plan, Senses, Signal, SlotId};
-use super::run::{Mode, Reach, LANES, MAX_NODES};
+use super::run::{within, Mode, Reach, LANES, MAX_NODES};
+use crate::units::ZERO_CELSIUS_K;
 
 /// Which [`Signal`] a node gives: the same in every lane of a batch (it
 /// follows from the node's kind and wiring), so one tag per column.
@@ -197,6 +198,24 @@ impl LaneColumns {
                 *x = rows[k * n + s];
             }
         }
+    }
+}
+
+/// Each lane's temperature `t`, K, as °C held to `range` as a single run's
+/// [`within`] holds it; a lane beyond it loses the batch. One pass, no
+/// early exit.
+#[inline(always)]
+pub(super) fn celsius_within(t: &mut [f64; LANES], range: (f64, f64)) -> Result<(), Lost> {
+    let mut outside = false;
+    for t in t.iter_mut() {
+        let within = within(*t - ZERO_CELSIUS_K, range);
+        outside |= within.is_none();
+        *t = within.unwrap_or(0.0);
+    }
+    if outside {
+        Err(Lost)
+    } else {
+        Ok(())
     }
 }
 

@@ -4,7 +4,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{Fault, FaultKind, Faulted, FLOATING, OPEN_OHMS};
-use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
+use crate::eval::lanes::{celsius_within, Column, LaneRun, Lost, Tag};
 use crate::eval::plan::SourceKind;
 use crate::eval::plan::{
     ClassTolerance, DriftSlot, Env, EvalError, NodeId, Plan, Senses, Signal, SlotId,
@@ -129,16 +129,7 @@ impl Thermocouple {
         let mut t = [0.0; LANES];
         run.sensed_into(run.i, self.senses, &mut t);
         // As `emf_v` lane by lane: the range, the junction, the couple.
-        let range = ty.range_c();
-        let mut outside = false;
-        for t in &mut t {
-            let within = within(*t - ZERO_CELSIUS_K, range);
-            outside |= within.is_none();
-            *t = within.unwrap_or(0.0);
-        }
-        if outside {
-            return Err(Lost);
-        }
+        celsius_within(&mut t, ty.range_c())?;
         let at_junction = match run.junction_mv {
             Some(e) => e,
             None => thermocouple::emf_mv(ty, junction_c(ty, run.env)).map_err(|_| Lost)?,
