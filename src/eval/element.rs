@@ -605,14 +605,7 @@ impl CurveLanes<'_> {
                 r0,
                 deviation,
             } => ElementCurve::Rtd {
-                curve: match curve {
-                    RtdCurve::Cvd { a, b, c } => RtdCurve::Cvd {
-                        a: a + errors[0][k],
-                        b: b + errors[1][k],
-                        c: c + errors[2][k],
-                    },
-                    other => other,
-                },
+                curve: rtd_curve_at(curve, &errors, k),
                 r0: r0[k],
                 deviation: deviation.map(|(d0, da)| (d0[k], da[k])),
             },
@@ -646,22 +639,13 @@ impl CurveLanes<'_> {
             }
             return if none { Err(Lost) } else { Ok(()) };
         };
+        // A loop for each kind of curve, so that the kind is known inside
+        // it and the lanes' arithmetic has no branch.
+        let lane = |k: usize| rtd_resistance(rtd_curve_at(curve, &errors, k), r0[k], t[k]);
         match curve {
-            RtdCurve::Cvd { a, b, c } => {
-                for k in 0..LANES {
-                    let coefficients = rtd::CvdCoefficients {
-                        a: a + errors[0][k],
-                        b: b + errors[1][k],
-                        c: c + errors[2][k],
-                    };
-                    out[k] = rtd::resistance(r0[k], coefficients, t[k]);
-                }
-            }
-            RtdCurve::Nickel | RtdCurve::Copper => {
-                for k in 0..LANES {
-                    out[k] = rtd_resistance(curve, r0[k], t[k]);
-                }
-            }
+            RtdCurve::Cvd { .. } => out.iter_mut().enumerate().for_each(|(k, r)| *r = lane(k)),
+            RtdCurve::Nickel => out.iter_mut().enumerate().for_each(|(k, r)| *r = lane(k)),
+            RtdCurve::Copper => out.iter_mut().enumerate().for_each(|(k, r)| *r = lane(k)),
         }
         if let Some((d0, da)) = deviation {
             for k in 0..LANES {
@@ -669,6 +653,20 @@ impl CurveLanes<'_> {
             }
         }
         Ok(())
+    }
+}
+
+/// Lane `k`'s RTD curve: a Callendar–Van Dusen curve's coefficients with
+/// that lane's errors added, another curve as it is.
+#[inline(always)]
+fn rtd_curve_at(curve: RtdCurve, errors: &[&[f64; LANES]; 3], k: usize) -> RtdCurve {
+    match curve {
+        RtdCurve::Cvd { a, b, c } => RtdCurve::Cvd {
+            a: a + errors[0][k],
+            b: b + errors[1][k],
+            c: c + errors[2][k],
+        },
+        other => other,
     }
 }
 

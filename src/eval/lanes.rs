@@ -173,9 +173,8 @@ impl LaneColumns {
         }
     }
 
-    /// Whether the columns hold `rows` to the bit: one pass the compiler
-    /// vectorises, no early exit (inlined into the wide kernels, four
-    /// words an instruction).
+    /// Whether the columns hold `rows` to the bit: one pass with no early
+    /// exit, inlined into the wide kernels.
     #[inline(always)]
     fn holds(&self, rows: &[f64]) -> bool {
         self.rows.len() == rows.len()

@@ -203,7 +203,7 @@ impl Adc {
             Some(r) if matches!(r.tag, Tag::Voltage | Tag::Source) => r.x,
             _ => run.drifted(run.or_zero(self.vref), self.vref_drift),
         };
-        // One pass the compiler vectorises, no early exit.
+        // One pass, no early exit.
         let bad = vr
             .iter()
             .fold(false, |bad, &vr| bad | !(vr > 0.0 && vr.is_finite()));
