@@ -148,14 +148,30 @@ fn first_order_in_kernel(y: &CenteredGroup, g: usize, stream: Stream, cells: usi
     if g >= y.runs.len() || !usable_of(n, total, cells) {
         return 0.0;
     }
-    let mut count = vec![0u32; cells];
-    let mut sum = vec![0.0; cells];
-    for t in 0..n {
-        let cell = stream.cell(t as u64, cells);
-        count[cell] += 1;
-        sum[cell] += y.deviation(g, t);
+    if cells > MAX_CELLS {
+        return first_order_by(&y.run(g), cells, |t| stream.cell(t as u64, cells));
     }
-    index_from(n, total, &count, &sum)
+    // A block's cells first, in a loop of hashes alone that vectorises,
+    // then the sums, whose scattered additions do not.
+    const BLOCK: usize = 1024;
+    let (mut count, mut sum) = ([0u32; MAX_CELLS], [0.0; MAX_CELLS]);
+    let mut block = [0u8; BLOCK];
+    let run = &y.runs[g][..n];
+    let mean = y.means[g];
+    for start in (0..n).step_by(BLOCK) {
+        let rows = &run[start..n.min(start + BLOCK)];
+        let block = &mut block[..rows.len()];
+        for (i, cell) in block.iter_mut().enumerate() {
+            // Below MAX_CELLS: a byte.
+            *cell = stream.cell((start + i) as u64, cells) as u8;
+        }
+        for (&cell, &v) in block.iter().zip(rows) {
+            let cell = usize::from(cell);
+            count[cell] += 1;
+            sum[cell] += v - mean;
+        }
+    }
+    index_from(n, total, &count[..cells], &sum[..cells])
 }
 
 /// [`first_order`] of every run of `y` for each source whose cells the

@@ -96,7 +96,7 @@ impl Column {
     /// Every value the signal carries is finite in every lane.
     #[inline(always)]
     pub fn finite(&self) -> bool {
-        let all = |c: &[f64; LANES]| c.iter().fold(true, |ok, x| ok & x.is_finite());
+        let all = all_finite;
         match self.tag {
             Tag::None => true,
             Tag::Current | Tag::Source | Tag::Element | Tag::Reading | Tag::Code => all(&self.x),
@@ -109,6 +109,34 @@ impl Column {
     pub fn of(&self, tag: Tag) -> Option<&[f64; LANES]> {
         (self.tag == tag).then_some(&self.x)
     }
+}
+
+/// Every value of `c` is finite. x × 0 is zero for a finite x and NaN
+/// for an infinite one or NaN, and a sum is NaN once any term is: four
+/// running sums of those are vector instructions, where a test of each
+/// value's class is compiled to integer tests one value at a time.
+#[inline(always)]
+pub fn all_finite(c: &[f64; LANES]) -> bool {
+    let mut sums = [0.0; 4];
+    for four in c.chunks_exact(4) {
+        for (sum, x) in sums.iter_mut().zip(four) {
+            *sum += x * 0.0;
+        }
+    }
+    sums.iter().sum::<f64>() == 0.0
+}
+
+/// Every value of `c` is finite and above zero.
+#[inline(always)]
+pub fn all_positive(c: &[f64; LANES]) -> bool {
+    let mut lowest = [f64::INFINITY; 4];
+    for four in c.chunks_exact(4) {
+        for (low, &x) in lowest.iter_mut().zip(four) {
+            // Not `min`, which passes over a NaN: all_finite finds it.
+            *low = if x < *low { x } else { *low };
+        }
+    }
+    all_finite(c) && lowest.iter().all(|&low| low > 0.0)
 }
 
 /// The columns of a batch: every node's signals and every slot's values,
@@ -351,6 +379,35 @@ mod tests {
     use crate::eval::run::{Mode, Reach, LANES, MAX_NODES};
     use crate::eval::wide;
     use crate::units::ZERO_CELSIUS_K;
+
+    /// Each odd value alone in a column of ones, in every lane, against
+    /// the class tests the checks stand for.
+    #[test]
+    fn column_checks_find_each_odd_value_in_any_lane() {
+        let odd = [
+            f64::NAN,
+            -f64::NAN,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            0.0,
+            -0.0,
+            -1.0,
+            f64::MIN_POSITIVE / 4.0,
+            f64::MAX,
+            -f64::MAX,
+        ];
+        for value in odd {
+            for k in 0..LANES {
+                let mut c = [1.0; LANES];
+                c[k] = value;
+                let finite = value.is_finite();
+                assert_eq!(super::all_finite(&c), finite, "{value} in lane {k}");
+                let positive = finite && value > 0.0;
+                assert_eq!(super::all_positive(&c), positive, "{value} in lane {k}");
+            }
+        }
+        assert!(super::all_finite(&[-3.0; LANES]) && super::all_positive(&[3.0; LANES]));
+    }
 
     /// The plan of the first chain of `spec`, up to its converter (a
     /// conversion need not fit: a divider's element above a current

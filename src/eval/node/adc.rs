@@ -3,7 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
-use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
+use crate::eval::lanes::{self, Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
 use crate::model::schema;
@@ -203,11 +203,7 @@ impl Adc {
             Some(r) if matches!(r.tag, Tag::Voltage | Tag::Source) => r.x,
             _ => run.drifted(run.or_zero(self.vref), self.vref_drift),
         };
-        // One pass, no early exit.
-        let bad = vr
-            .iter()
-            .fold(false, |bad, &vr| bad | !(vr > 0.0 && vr.is_finite()));
-        if bad {
+        if !lanes::all_positive(&vr) {
             return Err(Lost);
         }
         if self.combine.is_none() {
@@ -235,30 +231,62 @@ impl Adc {
     /// combines no other channel: the same arithmetic, lane by lane.
     #[inline(always)]
     fn codes_lanes(&self, run: &LaneRun<'_>, input: &Column, vr: &[f64; LANES], out: &mut Column) {
-        let pga = self.pga.map(|g| run.slot(g));
-        let gain_error = run.or_zero(self.gain_error);
+        let gain = self.gains_lanes(run);
         let none = run.or_zero(None);
         let (off, off_codes) = match self.offset {
             Some(AdcOffset::Input(o)) => (run.slot(o), none),
             Some(AdcOffset::Codes(o)) => (none, run.slot(o)),
             None => (none, none),
         };
-        let bias = self.bias_slot.map(|b| run.slot(b));
-        let inl = self
-            .inl
-            .filter(|_| !run.mode.calibrating)
-            .map(|s| run.slot(s));
-        let full_scale = adc::full_scale_codes(self.per_ref, self.polarity);
+        // Each term a column of its own (zeros where it is absent, added
+        // as the single run adds its 0.0), so the loop below has no branch.
+        let mut bias = [0.0; LANES];
+        if let Some(b) = self.bias_slot.map(|b| run.slot(b)) {
+            for k in 0..LANES {
+                bias[k] = b[k] * input.rs[k];
+            }
+        }
+        let mut inl = [0.0; LANES];
+        if let Some(s) = self.inl.filter(|_| !run.mode.calibrating) {
+            let (s, full_scale) = (
+                run.slot(s),
+                adc::full_scale_codes(self.per_ref, self.polarity),
+            );
+            for k in 0..LANES {
+                inl[k] = s[k] * full_scale;
+            }
+        }
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
         out.tag = Tag::Code;
         for k in 0..LANES {
-            let gain = pga.map_or(1.0, |g| g[k]) * (1.0 + gain_error[k]);
-            let off = off[k] + bias.map_or(0.0, |b| b[k] * input.rs[k]);
-            let inl = inl.map_or(0.0, |s| s[k] * full_scale);
-            let exact = adc::exact_code(input.x[k] + off, gain, vr[k], per_ref, off_codes[k], inl);
+            let off = off[k] + bias[k];
+            let exact = adc::exact_code(
+                input.x[k] + off,
+                gain[k],
+                vr[k],
+                per_ref,
+                off_codes[k],
+                inl[k],
+            );
             out.x[k] = exact;
             out.code[k] = round_code(exact, lo, hi);
         }
+    }
+
+    /// Each lane's gain, its PGA's (1 without) times 1 + its gain error.
+    #[inline(always)]
+    fn gains_lanes(&self, run: &LaneRun<'_>) -> [f64; LANES] {
+        let gain_error = run.or_zero(self.gain_error);
+        let mut gain = [0.0; LANES];
+        for k in 0..LANES {
+            gain[k] = 1.0 + gain_error[k];
+        }
+        if let Some(pga) = self.pga.map(|g| run.slot(g)) {
+            for k in 0..LANES {
+                gain[k] *= pga[k];
+            }
+        }
+        gain
     }
 
     /// Its code combined with the other channels' a conversion reads
@@ -500,13 +528,23 @@ impl Plan {
 }
 
 /// The nearest code (halves away from zero) within `lo ..= hi`, both
-/// whole: `f64::round` is a library call on baseline x86-64, and every
-/// evaluation rounds.
+/// whole and within ±2⁵¹ (a converter has at most 32 bits); 0 for NaN.
+/// Adding 1.5 × 2⁵² rounds a number of that size to a whole one (ties to
+/// even) in the low bits of the sum, so the code is plain arithmetic,
+/// which vectorises, rather than a truncation to i64 (a library call or a
+/// scalar conversion) and back; a tie the sum rounded towards zero is then
+/// moved away from it.
+#[inline(always)]
 fn round_code(exact: f64, lo: f64, hi: f64) -> i64 {
+    const SHIFTER: f64 = 6_755_399_441_055_744.0;
+    debug_assert!(lo.abs() <= 2f64.powi(51) && hi.abs() <= 2f64.powi(51));
     let x = exact.clamp(lo, hi);
-    let whole = x as i64;
-    let fraction = x - whole as f64;
-    whole + i64::from(fraction >= 0.5) - i64::from(fraction <= -0.5)
+    let x = if x.is_nan() { 0.0 } else { x };
+    let shifted = x + SHIFTER;
+    let nearest = shifted - SHIFTER;
+    let off = x - nearest;
+    let nearest = shifted.to_bits() as i64 - SHIFTER.to_bits() as i64;
+    nearest + i64::from(off == 0.5 && x > 0.0) - i64::from(off == -0.5 && x < 0.0)
 }
 
 #[cfg(test)]
@@ -524,6 +562,20 @@ mod tests {
         for x in halves.chain(near).chain([f64::MAX, f64::MIN, 1e300]) {
             let want = x.round().clamp(-8.0, 7.0) as i64;
             assert_eq!(round_code(x, -8.0, 7.0), want, "{x}");
+        }
+        assert_eq!(round_code(f64::NAN, -8.0, 7.0), 0);
+    }
+
+    /// At a 32-bit converter's ends, and every half between two codes
+    /// near them, as `f64::round` gives them.
+    #[test]
+    fn codes_round_at_thirty_two_bits() {
+        let (lo, hi) = (-(2f64.powi(31)), 2f64.powi(31) - 1.0);
+        let near_ends = (0..64).flat_map(|k| [lo + k as f64 * 0.5, hi - k as f64 * 0.5]);
+        let beyond = [lo - 0.5, hi + 0.5, 2f64.powi(40), -(2f64.powi(40))];
+        for x in near_ends.chain(beyond) {
+            let want = x.round().clamp(lo, hi) as i64;
+            assert_eq!(round_code(x, lo, hi), want, "{x}");
         }
     }
 }
