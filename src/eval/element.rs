@@ -99,12 +99,30 @@ impl Plan {
     /// arm less this is the element itself, without evaluating its curve
     /// again.
     fn element_leads(&self, n: NodeId, values: &[f64]) -> f64 {
+        self.lead_slots(n).map_or(0.0, |(wiring, a, b)| {
+            rtd::lead_series_resistance(wiring, values[a.index()], values[b.index()])
+        })
+    }
+
+    /// [`Plan::element_leads`] in every lane, from the leads' columns.
+    #[inline(always)]
+    fn element_leads_lanes(&self, n: NodeId, run: &LaneRun<'_>) -> [f64; LANES] {
+        let Some((wiring, a, b)) = self.lead_slots(n) else {
+            return [0.0; LANES];
+        };
+        let (a, b) = (run.slot(a), run.slot(b));
+        std::array::from_fn(|k| rtd::lead_series_resistance(wiring, a[k], b[k]))
+    }
+
+    /// The wiring and the two leads' slots of element node `n`, if it has
+    /// leads.
+    fn lead_slots(&self, n: NodeId) -> Option<(rtd::Wiring, SlotId, SlotId)> {
         match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 wiring,
                 leads: Some((a, b)),
                 ..
-            }) => rtd::lead_series_resistance(*wiring, values[a.index()], values[b.index()]),
+            }) => Some((*wiring, *a, *b)),
             Node::Rtd(node::Rtd { leads: None, .. })
             | Node::Thermistor(_)
             | Node::Excitation(_)
@@ -118,7 +136,7 @@ impl Plan {
             | Node::Amplifier(_)
             | Node::Filter(_)
             | Node::Adc(_)
-            | Node::Convert(_) => 0.0,
+            | Node::Convert(_) => None,
         }
     }
 
@@ -522,7 +540,7 @@ impl Plan {
         let Some(heating) = self.heating(node) else {
             return Ok(*element);
         };
-        let leads: [f64; LANES] = std::array::from_fn(|k| self.element_leads(node, run.row(k)));
+        let leads = self.element_leads_lanes(node, run);
         let cold = std::array::from_fn(|k| element[k] - leads[k]);
         let mut t = [0.0; LANES];
         let curves = self.element_curves(node, run, &mut t)?;
@@ -551,7 +569,7 @@ impl Plan {
         let (mut curves, mut t) = ([None; 4], [[0.0; LANES]; 4]);
         for (k, heated) in heating.iter().enumerate() {
             if let Some((n, _)) = heated {
-                leads[k] = std::array::from_fn(|j| self.element_leads(*n, run.row(j)));
+                leads[k] = self.element_leads_lanes(*n, run);
                 curves[k] = Some(self.element_curves(*n, run, &mut t[k])?);
             }
         }

@@ -7,7 +7,7 @@
 
 use super::convert::JunctionEmfs;
 use super::plan::{DriftSlot, Env, NodeId, Plan, Senses, Signal, SlotId};
-use super::run::{within, Mode, Reach, LANES, MAX_NODES};
+use super::run::{Mode, Reach, LANES, MAX_NODES, WITHIN_SLACK};
 use crate::units::ZERO_CELSIUS_K;
 
 /// Which [`Signal`] a node gives: the same in every lane of a batch (it
@@ -229,17 +229,21 @@ impl LaneColumns {
 }
 
 /// Each lane's temperature `t`, K, as °C held to `range` as a single run's
-/// [`within`] holds it; a lane beyond it loses the batch. One pass, no
+/// [`within`](super::run::within) holds it; a lane beyond it loses the batch. One pass, no
 /// early exit.
 #[inline(always)]
 pub(super) fn celsius_within(t: &mut [f64; LANES], range: (f64, f64)) -> Result<(), Lost> {
-    let mut outside = false;
+    // `within`'s test and clamp, as selects over the column.
+    let (lo, hi) = range;
+    let (lowest, highest) = (lo - WITHIN_SLACK, hi + WITHIN_SLACK);
+    let mut outside = 0usize;
     for t in t.iter_mut() {
-        let within = within(*t - ZERO_CELSIUS_K, range);
-        outside |= within.is_none();
-        *t = within.unwrap_or(0.0);
+        let c = *t - ZERO_CELSIUS_K;
+        let inside = lowest <= c && c <= highest;
+        outside += usize::from(!inside);
+        *t = if inside { c.clamp(lo, hi) } else { 0.0 };
     }
-    if outside {
+    if outside > 0 {
         Err(Lost)
     } else {
         Ok(())
@@ -355,18 +359,20 @@ impl LaneRun<'_> {
             out.x = *r;
             return;
         };
-        let below = &self.plan.series_below[self.i.index()];
+        // Each lane's sum of the drops below it, term by term in the single
+        // run's order and from the value an empty sum starts at.
+        let mut lift = [std::iter::empty::<f64>().sum::<f64>(); LANES];
+        for &n in &self.plan.series_below[self.i.index()] {
+            let below = &self.s[n.index()];
+            let voltage = below.tag == Tag::Voltage;
+            for (lift, &v) in lift.iter_mut().zip(&below.x) {
+                *lift += if voltage { v } else { 0.0 };
+            }
+        }
         out.tag = Tag::Voltage;
         for k in 0..LANES {
-            let lift: f64 = below
-                .iter()
-                .map(|&n| match self.s[n.index()].tag {
-                    Tag::Voltage => self.s[n.index()].x[k],
-                    _ => 0.0,
-                })
-                .sum();
             out.x[k] = a[k] * r[k];
-            out.cm[k] = lift + a[k] * r[k] / 2.0;
+            out.cm[k] = lift[k] + a[k] * r[k] / 2.0;
         }
         out.rs = *r;
     }

@@ -356,9 +356,12 @@ pub(super) struct SenseTerms {
     pub of_reading: Option<(SlotId, f64)>,
 }
 
+/// How far (°C) a temperature may lie beyond a curve's range and count as
+/// at its end: rounding in the sums that lead to it.
+pub(super) const WITHIN_SLACK: f64 = 1e-9;
+
 pub(super) fn within(t_c: f64, (lo, hi): (f64, f64)) -> Option<f64> {
-    const SLACK: f64 = 1e-9;
-    (lo - SLACK..=hi + SLACK)
+    (lo - WITHIN_SLACK..=hi + WITHIN_SLACK)
         .contains(&t_c)
         .then(|| t_c.clamp(lo, hi))
 }

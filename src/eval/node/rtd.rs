@@ -224,8 +224,13 @@ impl Rtd {
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         let current = run.current_into(self.input);
         let mut r = run.plan.driven_elements(run.i, run, current)?;
+        // Lead by lead from the slots' columns; + 0.0 without leads, as
+        // the single run adds.
+        let leads = self.leads.map(|(a, b)| (run.slot(a), run.slot(b)));
         for (k, r) in r.iter_mut().enumerate() {
-            *r += self.lead_of(run.row(k));
+            *r += leads.map_or(0.0, |(a, b)| {
+                rtd::lead_series_resistance(self.wiring, a[k], b[k])
+            });
         }
         run.element_into(&r, self.input, out);
         Ok(())
