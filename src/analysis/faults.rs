@@ -14,6 +14,7 @@ use crate::eval::fault::{Fault, FaultCode, FaultKind};
 use crate::eval::{grid, Env, EvalError, Node, NodeId, Plan, SourceKind};
 use crate::model::{Chain, Side};
 use crate::units::format::{from_si, trimmed, with_prefix};
+use rayon::prelude::*;
 
 /// Measurand points a fault's codes are taken at, across the range.
 const POINTS: usize = 5;
@@ -204,9 +205,11 @@ fn analyse_in(chain: &Chain, plan: &Plan, window: CodeWindow) -> Result<FaultRep
     #[cfg(test)]
     FAULT_RUNS.with(|runs| runs.set(runs.get() + 1));
     let cases = Cases::of(chain, plan);
+    // Each fault is judged alone, over every case: the faults share the
+    // cores, and the list keeps the plan's order.
     let faults = plan
         .faults()
-        .into_iter()
+        .into_par_iter()
         .map(|fault| judge(plan, &cases, &window, fault))
         .collect();
     Ok(FaultReport { window, faults })
