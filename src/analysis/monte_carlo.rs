@@ -11,7 +11,7 @@
 use rayon::prelude::*;
 
 use super::budget::Point;
-use super::draws::{cell_of, condition_key, normal_of, uniform_of, Stream};
+use super::draws::{cell_of, condition_key, normals_of, uniforms_of, Stream};
 use super::noise::Noise;
 use super::shares::GROUP;
 use super::tails::{order_statistics, Ranks};
@@ -104,15 +104,15 @@ impl Draw {
         }
     }
 
-    /// The value a draw's `bits` give.
-    #[inline]
-    fn value(&self, bits: u64) -> f64 {
-        let x = if self.normal {
-            normal_of(bits)
+    /// The standard draws (normal, or uniform on [0, 1)) a batch's `bits`
+    /// give, which `origin + scale · x` makes its values.
+    #[inline(always)]
+    fn standard(&self, bits: &[u64; LANES], x: &mut [f64; LANES]) {
+        if self.normal {
+            normals_of(bits, x);
         } else {
-            uniform_of(bits)
-        };
-        self.origin + self.scale * x
+            uniforms_of(bits, x);
+        }
     }
 }
 
@@ -137,13 +137,19 @@ impl Common {
         }
     }
 
-    /// The draw on the unit half-width that `bits` give.
-    #[inline]
-    fn unit(&self, bits: u64) -> f64 {
+    /// The draws on the unit half-width that a batch's `bits` give.
+    #[inline(always)]
+    fn units(&self, bits: &[u64; LANES], x: &mut [f64; LANES]) {
         if self.normal {
-            normal_of(bits) / 3.0
+            normals_of(bits, x);
+            for x in x.iter_mut() {
+                *x /= 3.0;
+            }
         } else {
-            2.0 * uniform_of(bits) - 1.0
+            uniforms_of(bits, x);
+            for x in x.iter_mut() {
+                *x = 2.0 * *x - 1.0;
+            }
         }
     }
 }
@@ -328,22 +334,26 @@ impl Sources {
                 values[lane * slots + slot.index()] = value;
             }
         }
+        // Each stream a batch at a time: its bits, its standard draws, then
+        // the lanes' values.
+        let (mut bits, mut x) = ([0; LANES], [0.0; LANES]);
         for (k, &(draw, stream)) in self.drawn.iter().enumerate() {
+            stream.bits_each(t0, &mut bits);
+            draw.standard(&bits, &mut x);
             for lane in 0..lanes {
-                let bits = stream.bits(t0 + lane as u64);
-                values[lane * slots + draw.slot.index()] = draw.value(bits);
-                cells.record(k, lane, bits);
+                values[lane * slots + draw.slot.index()] = draw.origin + draw.scale * x[lane];
             }
+            cells.record_each(k, &bits[..lanes]);
         }
         for (g, (common, stream)) in self.groups.iter().enumerate() {
+            stream.bits_each(t0, &mut bits);
+            common.units(&bits, &mut x);
             for lane in 0..lanes {
-                let bits = stream.bits(t0 + lane as u64);
-                let x = common.unit(bits);
                 for &(slot, scale) in &common.parts {
-                    values[lane * slots + slot.index()] += scale * x;
+                    values[lane * slots + slot.index()] += scale * x[lane];
                 }
-                cells.record(self.drawn.len() + g, lane, bits);
             }
+            cells.record_each(self.drawn.len() + g, &bits[..lanes]);
         }
     }
 
@@ -388,11 +398,15 @@ struct Cells<'a> {
 }
 
 impl Cells<'_> {
-    #[inline]
-    fn record(&mut self, column: usize, lane: usize, bits: u64) {
+    /// Each lane's cell in `column`, from its draw's bits.
+    #[inline(always)]
+    fn record_each(&mut self, column: usize, bits: &[u64]) {
+        let (at, count) = (self.at, self.count);
         if let Some(cells) = self.columns.get_mut(column) {
-            // At most MAX_CELLS (256) cells: the index fits a byte.
-            cells[self.at + lane] = cell_of(bits, self.count) as u8;
+            for (cell, &bits) in cells[at..at + bits.len()].iter_mut().zip(bits) {
+                // At most MAX_CELLS (256) cells: the index fits a byte.
+                *cell = cell_of(bits, count) as u8;
+            }
         }
     }
 }
@@ -637,10 +651,8 @@ impl Block<'_> {
             let t0 = (first + start) as u64;
             cells.at = start;
             self.sources.fill(&mut values, slots, t0, count, cells);
-            let calibration = (0..count).try_for_each(|lane| -> Result<(), EvalError> {
-                calibrated[lane] = plan.calibration(&values[lane * slots..(lane + 1) * slots])?;
-                Ok(())
-            });
+            let calibration =
+                plan.calibrations(&values, count, &mut calibrated, &mut lanes.scratch);
             for ((at, out), result) in at.iter().zip(outs.iter_mut()).zip(&mut outcome) {
                 if result.is_err() {
                     continue;

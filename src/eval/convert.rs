@@ -17,8 +17,13 @@ pub enum Method {
     Exact,
     /// The line through the nominal chain's codes at the range ends.
     Linear { code_low: f64, code_high: f64 },
-    /// Linear interpolation between `n` points of the nominal chain.
-    Table { codes: Vec<f64>, xs: Vec<f64> },
+    /// Linear interpolation between `n` points of the nominal chain, its
+    /// segments found through `buckets`.
+    Table {
+        codes: Vec<f64>,
+        xs: Vec<f64>,
+        buckets: Buckets,
+    },
     /// A least-squares polynomial in the normalised code.
     Poly {
         coefficients: Vec<f64>,
@@ -556,7 +561,12 @@ impl Conversion {
                 self.range.0
                     + (code - code_low) * (self.range.1 - self.range.0) / (code_high - code_low),
             ),
-            Method::Table { codes, xs } => Some(interpolate(codes, xs, code)),
+            Method::Table { codes, xs, buckets } => Some(linear_between(
+                codes,
+                xs,
+                code,
+                buckets.segment(codes, code),
+            )),
             Method::Poly {
                 coefficients,
                 mid,
@@ -701,7 +711,8 @@ impl Conversion {
                 if !strictly_monotonic(&codes) {
                     return Err("the code is not monotonic over the measurand range".into());
                 }
-                Method::Table { codes, xs }
+                let buckets = Buckets::new(&codes);
+                Method::Table { codes, xs, buckets }
             }
             ConversionMethod::Poly(degree) => {
                 let terms = degree as usize + 1;
@@ -888,8 +899,15 @@ fn strictly_monotonic(v: &[f64]) -> bool {
 
 /// Piecewise-linear through (codes, xs), extrapolating the end segments.
 fn interpolate(codes: &[f64], xs: &[f64], code: f64) -> f64 {
+    linear_between(codes, xs, code, segment(codes, code))
+}
+
+/// [`interpolate`] where `before` codes lie before `code` (as [`segment`]
+/// counts them).
+#[inline]
+fn linear_between(codes: &[f64], xs: &[f64], code: f64, before: usize) -> f64 {
     let n = codes.len();
-    let k = segment(codes, code).clamp(1, n - 1);
+    let k = before.clamp(1, n - 1);
     let (c0, c1, x0, x1) = (codes[k - 1], codes[k], xs[k - 1], xs[k]);
     x0 + (code - c0) * (x1 - x0) / (c1 - c0)
 }

@@ -744,6 +744,84 @@ chain kiln "k" {
         }
     }
 
+    /// A two-point calibration of a Pt100 whose current, R0, gain and
+    /// reference all vary: what each lane's calibration saw.
+    const CALIBRATED_PT100: &str = r#"
+chain bath "Pt100" {
+    measurand temperature -50 degC .. 100 degC
+    excitation drive { current 1 mA ± 0.5 % }
+    sensor probe {
+        rtd pt100
+        wires 4
+        r0 100 ohm ± 0.1 %
+    }
+    amplifier front { gain 10 ± 0.5 % }
+    adc conv {
+        bits 16
+        input differential
+        vref 2.5 V ± 0.2 %
+    }
+    convert reading {
+        method exact
+        calibrate two_point at -50 degC, 100 degC
+    }
+    drive -> probe -> front -> conv -> reading
+}
+"#;
+
+    /// A batch's calibrations through the columns are each lane's own, to
+    /// the bit, on both builds of the kernels; a batch with a lane that
+    /// cannot calibrate gives that lane's error, as the lanes one by one
+    /// do; a part batch goes lane by lane.
+    #[test]
+    fn a_batch_calibrates_as_each_lane_alone() {
+        use crate::eval::{wide, Calibrated, LaneColumns, LANES};
+        let plan = plan(CALIBRATED_PT100);
+        let n = plan.slots.len();
+        let mut values = plan.nominal.repeat(LANES);
+        for (k, v) in values.iter_mut().enumerate() {
+            let slot = &plan.slots[k % n];
+            *v += (slot.plus + slot.minus) * (((k * 7 + k / n) % 11) as f64 / 10.0 - 0.5);
+        }
+        let alone: Vec<Calibrated> = (0..LANES)
+            .map(|k| {
+                plan.calibration(&values[k * n..(k + 1) * n])
+                    .expect("calibrates")
+            })
+            .collect();
+        assert!(alone
+            .iter()
+            .all(|c| matches!(c, Calibrated::TwoPoint { .. })));
+        let batch = |values: &[f64], count: usize| {
+            let mut out = [Calibrated::None; LANES];
+            let result = plan.calibrations(values, count, &mut out, &mut LaneColumns::default());
+            (result.map_err(|e| e.to_string()), out)
+        };
+        for count in [LANES, 5] {
+            let (wide_result, wide) = batch(&values, count);
+            let (portable_result, portable) = wide::portable(|| batch(&values, count));
+            assert_eq!(wide_result, Ok(()));
+            assert_eq!(portable_result, Ok(()));
+            for k in 0..count {
+                assert_eq!(
+                    format!("{:?}", wide[k]),
+                    format!("{:?}", alone[k]),
+                    "lane {k}"
+                );
+                assert_eq!(format!("{:?}", portable[k]), format!("{:?}", alone[k]));
+            }
+        }
+        // No reference in lane 9: its converter gives no code.
+        let slots: Vec<&str> = plan.slots.iter().map(|s| s.id.as_str()).collect();
+        let vref = slots.iter().position(|s| s.ends_with("vref"));
+        values[9 * n + vref.unwrap_or_else(|| panic!("{slots:?}"))] = 0.0;
+        let want = plan
+            .calibration(&values[9 * n..10 * n])
+            .map_err(|e| e.to_string());
+        assert!(want.is_err());
+        assert_eq!(batch(&values, LANES).0, want.map(|_| ()));
+    }
+
     /// A batch read at a second point keeps the columns the measurand does
     /// not reach: the readings are those of a batch read there afresh, to
     /// the bit.

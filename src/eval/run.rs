@@ -1,7 +1,7 @@
 //! One evaluation: every node in order, each a pure function of its
 //! inputs' signals, the parameter values and the environment.
 
-use super::convert::{calibration_env, Calibrated, Conversion, Firmware};
+use super::convert::{calibration_env, Calibrated, Calibration, Conversion, Firmware};
 use super::lanes::{LaneColumns, LaneRun, Lost, RunKey, Tag};
 use super::node;
 use super::plan::{
@@ -623,24 +623,10 @@ impl Plan {
         let lane = |k: usize| &values[k * n..(k + 1) * n];
         columns.load(values, n);
         let conversion = self.main_conversion().map_err(|_| Lost)?;
-        // The calibration's exact codes, lane by lane, point by point.
-        let mut codes = [[0.0; 2]; LANES];
-        let points = conversion
-            .calibration_points()
-            .take(if known.is_some() { 0 } else { 2 });
-        for (j, p) in points.enumerate() {
-            self.run_columns(
-                values,
-                &calibration_env(self, p),
-                columns,
-                Reach::Electronics(self.adc.index() + 1),
-                Mode::CALIBRATION,
-            )?;
-            let exact = columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
-            for (lane_codes, &exact) in codes.iter_mut().zip(exact) {
-                lane_codes[j] = exact;
-            }
-        }
+        let codes = match known {
+            Some(_) => [[0.0; 2]; LANES],
+            None => self.calibration_codes_lanes(conversion, values, columns)?,
+        };
         self.run_columns(
             values,
             env,
@@ -670,6 +656,79 @@ impl Plan {
                     .map_err(|_| Lost)?,
             };
             *reading = conversion.correct(self, x, &calibrated).map_err(|_| Lost)?;
+        }
+        Ok(())
+    }
+
+    /// The calibration's exact codes, lane by lane, point by point (none
+    /// without a calibration). `columns` holds the batch's values.
+    #[inline(always)]
+    fn calibration_codes_lanes(
+        &self,
+        conversion: &Conversion,
+        values: &[f64],
+        columns: &mut LaneColumns,
+    ) -> Result<[[f64; 2]; LANES], Lost> {
+        let mut codes = [[0.0; 2]; LANES];
+        for (j, p) in conversion.calibration_points().enumerate() {
+            self.run_columns(
+                values,
+                &calibration_env(self, p),
+                columns,
+                Reach::Electronics(self.adc.index() + 1),
+                Mode::CALIBRATION,
+            )?;
+            let exact = columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
+            for (lane_codes, &exact) in codes.iter_mut().zip(exact) {
+                lane_codes[j] = exact;
+            }
+        }
+        Ok(codes)
+    }
+
+    /// [`Plan::calibration`] of each of the first `count` lanes of a
+    /// batch (`values` lane after lane) into `out`: a full batch through
+    /// the columns, else, or where a lane fails there, lane by lane, so
+    /// the error is the one a single run meets first.
+    pub fn calibrations(
+        &self,
+        values: &[f64],
+        count: usize,
+        out: &mut [Calibrated; LANES],
+        scratch: &mut LaneColumns,
+    ) -> Result<(), EvalError> {
+        if count == LANES && self.column_calibrations(values, out, scratch).is_ok() {
+            return Ok(());
+        }
+        let n = self.slots.len();
+        for (lane, out) in out.iter_mut().enumerate().take(count) {
+            *out = self.calibration(&values[lane * n..(lane + 1) * n])?;
+        }
+        Ok(())
+    }
+
+    fn column_calibrations(
+        &self,
+        values: &[f64],
+        out: &mut [Calibrated; LANES],
+        columns: &mut LaneColumns,
+    ) -> Result<(), Lost> {
+        let conversion = self.main_conversion().map_err(|_| Lost)?;
+        if conversion.calibration == Calibration::None {
+            *out = [Calibrated::None; LANES];
+            return Ok(());
+        }
+        let n = self.slots.len();
+        columns.load(values, n);
+        let codes = super::wide::run(
+            #[inline(always)]
+            || self.calibration_codes_lanes(conversion, values, columns),
+        )?;
+        for (lane, (out, codes)) in out.iter_mut().zip(&codes).enumerate() {
+            let values = &values[lane * n..(lane + 1) * n];
+            *out = conversion
+                .calibrated_from(self, values, codes)
+                .map_err(|_| Lost)?;
         }
         Ok(())
     }

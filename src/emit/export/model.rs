@@ -536,7 +536,7 @@ pub(super) fn spec_curve(
     let b = to_unit(1.0) - a;
     match &conversion.method {
         Method::Exact => None,
-        Method::Table { codes, xs } => {
+        Method::Table { codes, xs, .. } => {
             let mut pairs: Vec<(f64, f64)> = codes
                 .iter()
                 .zip(xs)
