@@ -347,8 +347,10 @@ impl Buckets {
             return segment(codes, code);
         }
         // A bucket rarely spans more than one table step: the answer is
-        // its first point's or the next, taken without a branch.
-        let k = self.start[position as usize] as usize;
+        // its first point's or the next, taken without a branch. (The
+        // position is below the bucket count: a u32, whose conversion
+        // costs half a usize's.)
+        let k = self.start[position as u32 as usize] as usize;
         let k = k + usize::from(keys[k + 1] < key);
         if is(k) {
             return k;
