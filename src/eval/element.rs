@@ -703,15 +703,22 @@ fn self_heated_lanes(
     delta: &[f64; LANES],
     power: impl Fn(usize, f64) -> f64,
 ) -> Result<[f64; LANES], Lost> {
-    // Each lane's curve put together once for its two or three steps.
-    let lanes: [ElementCurve; LANES] = std::array::from_fn(|k| curves.lane(k));
+    // A step is ElementCurve::heated_resistance over the column: each
+    // lane's rise (rtd::self_heating_k's checks counted, not returned),
+    // then the curve's resistances, one kind of curve a loop.
     let step = |from: &[f64; LANES]| -> Result<[f64; LANES], Lost> {
-        let mut to = [0.0; LANES];
+        let (mut heated, mut refused) = ([0.0; LANES], 0usize);
         for k in 0..LANES {
-            to[k] = lanes[k]
-                .heated_resistance(t[k], power(k, from[k]), delta[k])
-                .map_err(|_| Lost)?;
+            let (p, d) = (power(k, from[k]), delta[k]);
+            let heats = p >= 0.0 && p < f64::INFINITY && d > 0.0 && d < f64::INFINITY;
+            refused += usize::from(!heats);
+            heated[k] = t[k] + p / d;
         }
+        if refused > 0 {
+            return Err(Lost);
+        }
+        let mut to = [0.0; LANES];
+        curves.resistances(&heated, &mut to)?;
         Ok(to)
     };
     let r1 = step(cold)?;
