@@ -641,6 +641,9 @@ impl CurveLanes<'_> {
     /// with no resistance loses the batch.
     #[inline(always)]
     fn resistances(&self, t: &[f64; LANES], out: &mut [f64; LANES]) -> Result<(), Lost> {
+        if let CurveLanes::Beta { r25, beta } = *self {
+            return beta_resistances(r25, beta, t, out);
+        }
         let CurveLanes::Rtd {
             curve,
             errors,
@@ -674,6 +677,39 @@ impl CurveLanes<'_> {
     }
 }
 
+/// [`thermistor::beta_resistance`] of every lane: its checks counted over
+/// the column (a lane that fails one loses the batch), the exponents side
+/// by side, then the exponentials.
+#[inline(always)]
+fn beta_resistances(
+    r25: &[f64; LANES],
+    beta: &[f64; LANES],
+    t: &[f64; LANES],
+    out: &mut [f64; LANES],
+) -> Result<(), Lost> {
+    let t_ref = 25.0 + ZERO_CELSIUS_K;
+    let positive_finite = |x: f64| x > 0.0 && x < f64::INFINITY;
+    let mut refused = 0usize;
+    for k in 0..LANES {
+        let takes =
+            positive_finite(r25[k]) && beta[k].abs() < f64::INFINITY && positive_finite(t[k]);
+        refused += usize::from(!takes);
+        out[k] = thermistor::beta_exponent(t_ref, beta[k], t[k]);
+    }
+    for x in out.iter_mut() {
+        *x = x.exp();
+    }
+    for k in 0..LANES {
+        out[k] *= r25[k];
+        refused += usize::from(out[k].abs() == f64::INFINITY || out[k].is_nan());
+    }
+    if refused > 0 {
+        Err(Lost)
+    } else {
+        Ok(())
+    }
+}
+
 /// Lane `k`'s RTD curve: a Callendar–Van Dusen curve's coefficients with
 /// that lane's errors added, another curve as it is.
 #[inline(always)]
@@ -703,24 +739,7 @@ fn self_heated_lanes(
     delta: &[f64; LANES],
     power: impl Fn(usize, f64) -> f64,
 ) -> Result<[f64; LANES], Lost> {
-    // A step is ElementCurve::heated_resistance over the column: each
-    // lane's rise (rtd::self_heating_k's checks counted, not returned),
-    // then the curve's resistances, one kind of curve a loop.
-    let step = |from: &[f64; LANES]| -> Result<[f64; LANES], Lost> {
-        let (mut heated, mut refused) = ([0.0; LANES], 0usize);
-        for k in 0..LANES {
-            let (p, d) = (power(k, from[k]), delta[k]);
-            let heats = p >= 0.0 && p < f64::INFINITY && d > 0.0 && d < f64::INFINITY;
-            refused += usize::from(!heats);
-            heated[k] = t[k] + p / d;
-        }
-        if refused > 0 {
-            return Err(Lost);
-        }
-        let mut to = [0.0; LANES];
-        curves.resistances(&heated, &mut to)?;
-        Ok(to)
-    };
+    let step = |from: &[f64; LANES]| heating_step(curves, t, delta, &power, from);
     let r1 = step(cold)?;
     let r2 = step(&r1)?;
     let mut r = [0.0; LANES];
@@ -732,6 +751,34 @@ fn self_heated_lanes(
     } else {
         Ok(r)
     }
+}
+
+/// One step of [`self_heated_lanes`]: [`ElementCurve::heated_resistance`]
+/// over the column, each lane's rise (`rtd::self_heating_k`'s checks
+/// counted, not returned), then the curve's resistances, one kind of
+/// curve a loop. Inlined, so a kernel built for a wider vector unit
+/// builds it so too.
+#[inline(always)]
+fn heating_step(
+    curves: &CurveLanes<'_>,
+    t: &[f64; LANES],
+    delta: &[f64; LANES],
+    power: &impl Fn(usize, f64) -> f64,
+    from: &[f64; LANES],
+) -> Result<[f64; LANES], Lost> {
+    let (mut heated, mut refused) = ([0.0; LANES], 0usize);
+    for k in 0..LANES {
+        let (p, d) = (power(k, from[k]), delta[k]);
+        let heats = (0.0..f64::INFINITY).contains(&p) && d > 0.0 && d < f64::INFINITY;
+        refused += usize::from(!heats);
+        heated[k] = t[k] + p / d;
+    }
+    if refused > 0 {
+        return Err(Lost);
+    }
+    let mut to = [0.0; LANES];
+    curves.resistances(&heated, &mut to)?;
+    Ok(to)
 }
 
 /// Resistance of an RTD curve at `t_c` °C.
@@ -765,5 +812,46 @@ pub(super) fn self_heated<E>(
         at(r)
     } else {
         Ok(r)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{beta_resistances, thermistor, LANES};
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// Every lane's resistance is `thermistor::beta_resistance`'s, to the
+    /// bit, from −70 °C to 240 °C; a lane that function refuses (a
+    /// resistance or temperature not above zero, a value not finite, an
+    /// exponential that overflows) refuses the batch.
+    #[test]
+    fn beta_resistances_are_each_lanes_own() {
+        let r25: [f64; LANES] = std::array::from_fn(|k| 1e4 * (1.0 + k as f64 / 100.0));
+        let beta: [f64; LANES] = std::array::from_fn(|k| 3000.0 + 30.0 * k as f64);
+        let t: [f64; LANES] = std::array::from_fn(|k| 203.15 + 10.0 * k as f64);
+        let t_ref = 25.0 + ZERO_CELSIUS_K;
+        let alone = |r: f64, b: f64, t: f64| thermistor::beta_resistance(r, t_ref, b, t);
+        let mut out = [0.0; LANES];
+        assert!(beta_resistances(&r25, &beta, &t, &mut out).is_ok());
+        for k in 0..LANES {
+            let want = alone(r25[k], beta[k], t[k]).expect("a resistance");
+            assert_eq!(out[k].to_bits(), want.to_bits(), "lane {k}");
+        }
+        let refused = [
+            (0.0, 3435.0, 300.0),
+            (-1e4, 3435.0, 300.0),
+            (1e4, f64::NAN, 300.0),
+            (1e4, 3435.0, 0.0),
+            (1e4, 3435.0, -5.0),
+            (f64::INFINITY, 3435.0, 300.0),
+            (1e4, 1e6, 1.0),
+        ];
+        for (r, b, temperature) in refused {
+            assert!(alone(r, b, temperature).is_err(), "{r} {b} {temperature}");
+            let (mut r25, mut beta, mut t) = (r25, beta, t);
+            (r25[7], beta[7], t[7]) = (r, b, temperature);
+            let batch = beta_resistances(&r25, &beta, &t, &mut out);
+            assert!(batch.is_err(), "{r} {b} {temperature}");
+        }
     }
 }

@@ -75,7 +75,15 @@ pub fn beta_resistance(r_ref: f64, t_ref_k: f64, beta_k: f64, t_k: f64) -> Res<f
     positive_r(r_ref)?;
     positive_t(t_ref_k)?;
     positive_t(t_k)?;
-    finite_out(r_ref * (beta_k * (1.0 / t_k - 1.0 / t_ref_k)).exp())
+    finite_out(r_ref * beta_exponent(t_ref_k, beta_k, t_k).exp())
+}
+
+/// The beta model's exponent, ln(R/R_ref) = β (1/T − 1/T_ref): the
+/// arithmetic [`beta_resistance`] does before its exponential, for
+/// callers that take the exponentials of many at once.
+#[inline(always)]
+pub fn beta_exponent(t_ref_k: f64, beta_k: f64, t_k: f64) -> f64 {
+    beta_k * (1.0 / t_k - 1.0 / t_ref_k)
 }
 
 /// Beta model temperature in K at which the thermistor reads `r` Ω.
