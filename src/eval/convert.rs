@@ -217,7 +217,9 @@ impl InverseTable {
 
     /// The temperature (K) the junction-shifted table gives for `code`
     /// with the junction's EMF `junction_mv` ([`junction_emf_mv`]); None
-    /// where it does not reach.
+    /// where it does not reach. Inlined into the kernels that read a
+    /// batch's codes, so it is built for their vector unit.
+    #[inline(always)]
     fn x_at_junction(
         &self,
         code: f64,

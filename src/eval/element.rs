@@ -662,11 +662,34 @@ impl CurveLanes<'_> {
         };
         // A loop for each kind of curve, so that the kind is known inside
         // it and the lanes' arithmetic has no branch.
-        let lane = |k: usize| rtd_resistance(rtd_curve_at(curve, &errors, k), r0[k], t[k]);
+        // A function, not a closure: a closure used three times may be
+        // left out of line, built for the baseline CPU.
+        #[inline(always)]
+        fn lane(
+            curve: RtdCurve,
+            errors: &[&[f64; LANES]; 3],
+            r0: &[f64; LANES],
+            t: &[f64; LANES],
+            k: usize,
+        ) -> f64 {
+            rtd_resistance(rtd_curve_at(curve, errors, k), r0[k], t[k])
+        }
         match curve {
-            RtdCurve::Cvd { .. } => out.iter_mut().enumerate().for_each(|(k, r)| *r = lane(k)),
-            RtdCurve::Nickel => out.iter_mut().enumerate().for_each(|(k, r)| *r = lane(k)),
-            RtdCurve::Copper => out.iter_mut().enumerate().for_each(|(k, r)| *r = lane(k)),
+            RtdCurve::Cvd { .. } => {
+                for (k, r) in out.iter_mut().enumerate() {
+                    *r = lane(curve, &errors, r0, t, k);
+                }
+            }
+            RtdCurve::Nickel => {
+                for (k, r) in out.iter_mut().enumerate() {
+                    *r = lane(curve, &errors, r0, t, k);
+                }
+            }
+            RtdCurve::Copper => {
+                for (k, r) in out.iter_mut().enumerate() {
+                    *r = lane(curve, &errors, r0, t, k);
+                }
+            }
         }
         if let Some((d0, da)) = deviation {
             for k in 0..LANES {
@@ -782,7 +805,7 @@ fn heating_step(
 }
 
 /// Resistance of an RTD curve at `t_c` °C.
-#[inline]
+#[inline(always)]
 fn rtd_resistance(curve: RtdCurve, r0: f64, t_c: f64) -> f64 {
     match curve {
         RtdCurve::Cvd { a, b, c } => rtd::resistance(r0, rtd::CvdCoefficients { a, b, c }, t_c),
