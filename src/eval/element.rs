@@ -461,9 +461,15 @@ impl Plan {
             return Ok(cold);
         };
         let delta = run.slot(heating.dissipation);
-        self_heated_lanes(&curves, &t, &cold, heating.curved, delta, |k, r| {
-            a[k] * a[k] * r
-        })
+        self_heated_lanes(
+            &curves,
+            &t,
+            &cold,
+            heating.curved,
+            delta,
+            #[inline(always)]
+            |k, r| a[k] * a[k] * r,
+        )
     }
 
     /// Each lane's [`Plan::element_curve`]: the curves, borrowed from the
@@ -545,9 +551,15 @@ impl Plan {
         let mut t = [0.0; LANES];
         let curves = self.element_curves(node, run, &mut t)?;
         let delta = run.slot(heating.dissipation);
-        let heated = self_heated_lanes(&curves, &t, &cold, heating.curved, delta, |k, r| {
-            supply[k].power_w(r, leads[k])
-        })?;
+        let heated = self_heated_lanes(
+            &curves,
+            &t,
+            &cold,
+            heating.curved,
+            delta,
+            #[inline(always)]
+            |k, r| supply[k].power_w(r, leads[k]),
+        )?;
         Ok(std::array::from_fn(|k| heated[k] + leads[k]))
     }
 
@@ -581,9 +593,15 @@ impl Plan {
                 let leads = &leads[k];
                 let start = std::array::from_fn(|j| arms[j][k] - leads[j]);
                 let delta = run.slot(h.dissipation);
-                let heated = self_heated_lanes(curves, &t[k], &start, h.curved, delta, |j, r| {
-                    arm_power_w(arms[j], k, r, leads[j], excitation[j])
-                })?;
+                let heated = self_heated_lanes(
+                    curves,
+                    &t[k],
+                    &start,
+                    h.curved,
+                    delta,
+                    #[inline(always)]
+                    |j, r| arm_power_w(arms[j], k, r, leads[j], excitation[j]),
+                )?;
                 for (j, arms) in arms.iter_mut().enumerate() {
                     arms[k] = heated[j] + leads[j];
                 }
