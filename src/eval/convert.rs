@@ -908,7 +908,7 @@ fn interpolate(codes: &[f64], xs: &[f64], code: f64) -> f64 {
 
 /// [`interpolate`] where `before` codes lie before `code` (as [`segment`]
 /// counts them).
-#[inline]
+#[inline(always)]
 fn linear_between(codes: &[f64], xs: &[f64], code: f64, before: usize) -> f64 {
     let n = codes.len();
     let k = before.clamp(1, n - 1);
