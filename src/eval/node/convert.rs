@@ -3,7 +3,7 @@
 //! range it is fitted over and its calibration.
 
 use super::{Cx, Run};
-use crate::eval::convert::{Calibration, Conversion, JunctionEmfs, Method};
+use crate::eval::convert::{Calibrated, Calibration, Conversion, JunctionEmfs, Method};
 use crate::eval::fault::FaultKind;
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
@@ -132,6 +132,8 @@ impl Convert {
             cj,
             &mut JunctionEmfs::default(),
         );
+        // What `calibrate` answers without a calibration, known once.
+        let uncalibrated = conversion.calibration == Calibration::None;
         out.tag = Tag::Reading;
         for (k, reading) in out.x.iter_mut().enumerate() {
             let values = run.row(k);
@@ -141,7 +143,11 @@ impl Convert {
                     .invert(run.plan, values, run.env, codes[k], cj.map(|t| t[k]))
                     .map_err(|_| Lost)?,
             };
-            let calibrated = conversion.calibrate(run.plan, values).map_err(|_| Lost)?;
+            let calibrated = if uncalibrated {
+                Calibrated::None
+            } else {
+                conversion.calibrate(run.plan, values).map_err(|_| Lost)?
+            };
             *reading = conversion
                 .correct(run.plan, x, &calibrated)
                 .map_err(|_| Lost)?;
