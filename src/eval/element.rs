@@ -2,7 +2,7 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
-use super::lanes::{celsius_within, Column, LaneRun, Lost};
+use super::lanes::{all_finite, all_positive, celsius_within, Column, LaneRun, Lost};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::{within, LANES};
@@ -718,8 +718,8 @@ impl CurveLanes<'_> {
     }
 }
 
-/// [`thermistor::beta_resistance`] of every lane: its checks counted over
-/// the column (a lane that fails one loses the batch), the exponents side
+/// [`thermistor::beta_resistance`] of every lane: its checks made on the
+/// columns (a lane that fails one loses the batch), the exponents side
 /// by side, then the exponentials.
 #[inline(always)]
 fn beta_resistances(
@@ -729,12 +729,8 @@ fn beta_resistances(
     out: &mut [f64; LANES],
 ) -> Result<(), Lost> {
     let t_ref = 25.0 + ZERO_CELSIUS_K;
-    let positive_finite = |x: f64| x > 0.0 && x < f64::INFINITY;
-    let mut refused = 0usize;
+    let takes = all_positive(r25) && all_finite(beta) && all_positive(t);
     for k in 0..LANES {
-        let takes =
-            positive_finite(r25[k]) && beta[k].abs() < f64::INFINITY && positive_finite(t[k]);
-        refused += usize::from(!takes);
         out[k] = thermistor::beta_exponent(t_ref, beta[k], t[k]);
     }
     for x in out.iter_mut() {
@@ -742,12 +738,11 @@ fn beta_resistances(
     }
     for k in 0..LANES {
         out[k] *= r25[k];
-        refused += usize::from(out[k].abs() == f64::INFINITY || out[k].is_nan());
     }
-    if refused > 0 {
-        Err(Lost)
-    } else {
+    if takes && all_finite(out) {
         Ok(())
+    } else {
+        Err(Lost)
     }
 }
 
@@ -780,6 +775,11 @@ fn self_heated_lanes(
     delta: &[f64; LANES],
     power: impl Fn(usize, f64) -> f64,
 ) -> Result<[f64; LANES], Lost> {
+    // rtd::self_heating_k's check of the dissipation constants, once for
+    // every step.
+    if !all_positive(delta) {
+        return Err(Lost);
+    }
     let step = |from: &[f64; LANES]| heating_step(curves, t, delta, &power, from);
     let r1 = step(cold)?;
     let r2 = step(&r1)?;
@@ -795,9 +795,9 @@ fn self_heated_lanes(
 }
 
 /// One step of [`self_heated_lanes`]: [`ElementCurve::heated_resistance`]
-/// over the column, each lane's rise (`rtd::self_heating_k`'s checks
-/// counted, not returned), then the curve's resistances, one kind of
-/// curve a loop. Inlined, so a kernel built for a wider vector unit
+/// over the column, each lane's rise (`rtd::self_heating_k`'s check of
+/// the power counted, not returned; `delta` already checked), then the
+/// curve's resistances, one kind of curve a loop. Inlined, so a kernel built for a wider vector unit
 /// builds it so too.
 #[inline(always)]
 fn heating_step(
@@ -809,10 +809,9 @@ fn heating_step(
 ) -> Result<[f64; LANES], Lost> {
     let (mut heated, mut refused) = ([0.0; LANES], 0usize);
     for k in 0..LANES {
-        let (p, d) = (power(k, from[k]), delta[k]);
-        let heats = (0.0..f64::INFINITY).contains(&p) && d > 0.0 && d < f64::INFINITY;
-        refused += usize::from(!heats);
-        heated[k] = t[k] + p / d;
+        let p = power(k, from[k]);
+        refused += usize::from(!(0.0..f64::INFINITY).contains(&p));
+        heated[k] = t[k] + p / delta[k];
     }
     if refused > 0 {
         return Err(Lost);
