@@ -236,14 +236,17 @@ pub(super) fn celsius_within(t: &mut [f64; LANES], range: (f64, f64)) -> Result<
     // `within`'s test and clamp, as selects over the column.
     let (lo, hi) = range;
     let (lowest, highest) = (lo - WITHIN_SLACK, hi + WITHIN_SLACK);
-    let mut outside = 0usize;
+    let mut outside = false;
     for t in t.iter_mut() {
         let c = *t - ZERO_CELSIUS_K;
-        let inside = lowest <= c && c <= highest;
-        outside += usize::from(!inside);
-        *t = if inside { c.clamp(lo, hi) } else { 0.0 };
+        let inside = (lowest <= c) & (c <= highest);
+        outside |= !inside;
+        // `clamp` as selects (c is a number where it is inside).
+        let c = if c < lo { lo } else { c };
+        let c = if c > hi { hi } else { c };
+        *t = if inside { c } else { 0.0 };
     }
-    if outside > 0 {
+    if outside {
         Err(Lost)
     } else {
         Ok(())
