@@ -807,13 +807,14 @@ fn heating_step(
     power: &impl Fn(usize, f64) -> f64,
     from: &[f64; LANES],
 ) -> Result<[f64; LANES], Lost> {
-    let (mut heated, mut refused) = ([0.0; LANES], 0usize);
+    let (mut heated, mut refused) = ([0.0; LANES], false);
     for k in 0..LANES {
         let p = power(k, from[k]);
-        refused += usize::from(!(0.0..f64::INFINITY).contains(&p));
+        // A boolean or, not a count, keeps the loop in vector registers.
+        refused |= !((0.0 <= p) & (p < f64::INFINITY));
         heated[k] = t[k] + p / delta[k];
     }
-    if refused > 0 {
+    if refused {
         return Err(Lost);
     }
     let mut to = [0.0; LANES];
