@@ -11,7 +11,7 @@ use crate::eval::wide;
 /// would be too thin to place a threshold and the saving is nil.
 const SMALLEST: usize = 4096;
 /// One trial in `STRIDE` goes into the sample.
-const STRIDE: usize = 8;
+const STRIDE: usize = 32;
 
 /// The ranks (0-based, in ascending order under `f64::total_cmp`) of the
 /// order statistics wanted from each tail: `low.0 ..= low.1` from the
