@@ -100,6 +100,15 @@ impl Stream {
         normals_of(&bits, out);
     }
 
+    /// [`Stream::uniform`] of trials `t0 ..` into `out`, a batch at a
+    /// time.
+    #[inline(always)]
+    pub fn uniforms(self, t0: u64, out: &mut [f64; LANES]) {
+        let mut bits = [0; LANES];
+        self.bits_each(t0, &mut bits);
+        uniforms_of(&bits, out);
+    }
+
     /// The random bits of trials `t0 ..`, a batch's worth.
     #[inline(always)]
     pub fn bits_each(self, t0: u64, out: &mut [u64; LANES]) {
@@ -142,7 +151,21 @@ pub fn uniforms_of(bits: &[u64; LANES], out: &mut [f64; LANES]) {
 /// The uniform on [0, 1) of a draw's bits (see [`Stream::uniform`]).
 #[inline]
 pub fn uniform_of(bits: u64) -> f64 {
-    (bits >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
+    top_bits(bits) * (1.0 / (1u64 << 53) as f64)
+}
+
+/// The top 53 of a draw's 64 bits as a number, exactly: as `(bits >> 11)
+/// as f64`, but through two 26- and 27-bit halves each set into the
+/// mantissa of 2⁵² and taken off it again, which vector units do a lane
+/// at a time where they have no conversion from 64-bit integers.
+#[inline(always)]
+fn top_bits(bits: u64) -> f64 {
+    const TWO_52: f64 = 4_503_599_627_370_496.0;
+    let top = bits >> 11;
+    let (high, low) = (top >> 26, top & ((1 << 26) - 1));
+    let as_number = |k: u64| f64::from_bits(TWO_52.to_bits() | k) - TWO_52;
+    // Both parts and the sum are whole numbers below 2⁵³: exact.
+    as_number(high) * (1u64 << 26) as f64 + as_number(low)
 }
 
 /// The standard normal of a draw's bits (see [`Stream::normal`]).
@@ -155,7 +178,7 @@ pub fn normal_of(bits: u64) -> f64 {
 /// its 2⁻⁵³ step, that [`normal_of`] inverts.
 #[inline(always)]
 fn open_uniform_of(bits: u64) -> f64 {
-    ((bits >> 11) as f64 + 0.5) * (1.0 / (1u64 << 53) as f64)
+    (top_bits(bits) + 0.5) * (1.0 / (1u64 << 53) as f64)
 }
 
 /// The cell of a draw's bits among `cells` (see [`Stream::cell`]).
@@ -330,6 +353,17 @@ mod tests {
                 0xacb5_a637_0693_2545
             ]
         );
+    }
+
+    /// The halves' conversion is the plain one to the bit: at both ends,
+    /// at each half's edge and over a stream of draws.
+    #[test]
+    fn the_top_bits_convert_exactly() {
+        let s = Stream::new(3, "top", 0);
+        let edges = [0, 1 << 11, (1 << 37) - 1, 1 << 37, (1 << 37) + (1 << 11), u64::MAX];
+        for bits in edges.into_iter().chain((0..100_000).map(|t| s.bits(t))) {
+            assert_eq!(top_bits(bits).to_bits(), ((bits >> 11) as f64).to_bits(), "{bits:#x}");
+        }
     }
 
     /// A batch's normals are each trial's own to the bit, as built for

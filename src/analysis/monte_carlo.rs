@@ -164,15 +164,13 @@ pub struct Condition {
 }
 
 impl Condition {
-    /// The reading's change with the code moved by `q` (−½ … ½): each
-    /// side of the budget's quantization scaled to it.
-    fn quantization_at(&self, q: f64) -> f64 {
+    /// The reading's change per move of the code by q (−½ … ½) below and
+    /// above the code: each side of the budget's quantization over ½.
+    /// (The change, q times a slope, is 2q times the side to the bit: a
+    /// product with 2 is exact.)
+    fn quantization_slopes(&self) -> (f64, f64) {
         let (low, high) = self.quantization;
-        if q < 0.0 {
-            -2.0 * q * low
-        } else {
-            2.0 * q * high
-        }
+        (-2.0 * low, 2.0 * high)
     }
 }
 
@@ -722,17 +720,26 @@ impl Block<'_> {
         out: &mut [f64],
     ) {
         let (condition, reading) = (at.condition, at.reading);
-        let mut z = [0.0; LANES];
+        let (mut z, mut q) = ([0.0; LANES], [0.0; LANES]);
         if let Some(s) = reading.noise {
             s.normals(t0, &mut z);
         }
-        for (lane, (slot, &r)) in out.iter_mut().zip(readings.iter()).enumerate() {
-            let t = t0 + lane as u64;
-            let q = reading.quantization.map_or(0.0, |s| s.uniform(t) - 0.5);
-            *slot = r - env.measurand
-                + z[lane] * self.noise.sigma_averaged
-                + condition.quantization_at(q);
+        if let Some(s) = reading.quantization {
+            s.uniforms(t0, &mut q);
+            for q in q.iter_mut() {
+                *q -= 0.5;
+            }
         }
+        // Every lane (a fixed count, which vectorises), then the ones used.
+        let (below, above) = condition.quantization_slopes();
+        let mut errors = [0.0; LANES];
+        for lane in 0..LANES {
+            let q = q[lane];
+            errors[lane] = readings[lane] - env.measurand
+                + z[lane] * self.noise.sigma_averaged
+                + q * if q < 0.0 { below } else { above };
+        }
+        out.copy_from_slice(&errors[..out.len()]);
     }
 }
 
