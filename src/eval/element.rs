@@ -811,7 +811,7 @@ fn heating_step(
     for k in 0..LANES {
         let p = power(k, from[k]);
         // A boolean or, not a count, keeps the loop in vector registers.
-        refused |= !((0.0 <= p) & (p < f64::INFINITY));
+        refused |= !(0.0..f64::INFINITY).contains(&p);
         heated[k] = t[k] + p / delta[k];
     }
     if refused {
