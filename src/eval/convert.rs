@@ -245,7 +245,8 @@ impl InverseTable {
     fn x_at(&self, code: f64) -> Option<f64> {
         let n = self.codes.len();
         let k = self.buckets.segment(&self.codes, code);
-        if k == 0 || k >= n {
+        // k is 0 or n and beyond, in one test.
+        if k.wrapping_sub(1) >= n - 1 {
             return (code == self.codes[0]).then_some(self.xs[0]);
         }
         let u = code - self.codes[k - 1];
@@ -342,8 +343,6 @@ impl Buckets {
     fn segment(&self, codes: &[f64], code: f64) -> usize {
         let key = self.sign * code;
         let keys = &self.keys;
-        // `k` codes lie before `code`: code k − 1 before it, code k not.
-        let is = |k: usize| keys[k] < key && keys[k + 1] >= key;
         let position = (code - self.first) * self.per_code;
         if !(position >= 0.0 && position < self.start.len() as f64) {
             return segment(codes, code);
@@ -352,9 +351,16 @@ impl Buckets {
         // its first point's or the next, taken without a branch. (The
         // position is below the bucket count: a u32, whose conversion
         // costs half a usize's.)
-        let k = self.start[position as u32 as usize] as usize;
-        let k = k + usize::from(keys[k + 1] < key);
-        if is(k) {
+        let start = self.start[position as u32 as usize] as usize;
+        let up = keys[start + 1] < key;
+        let k = start + usize::from(up);
+        // `k` codes lie before `code` where key k lies below it and key
+        // k + 1 not. The key between `start` and the next is one of the
+        // two, on its side: one more key tells, the one above the next
+        // if it was below, else the one below `start`. (Past the last
+        // code the next key is +∞, never below.)
+        let other = keys[start + 2 * usize::from(up)];
+        if (other >= key) == up {
             return k;
         }
         self.segment_near(codes, code, k)
