@@ -8,8 +8,8 @@ use rayon::prelude::*;
 
 use super::noise::{noise, Noise};
 use crate::eval::{
-    half_width, own_fraction, Calibrated, Env, EvalError, LaneColumns, Plan, SlotId, SourceKind,
-    SourceName, LANES,
+    half_width, own_fraction, Batch, Calibrated, Env, EvalError, LaneColumns, Plan, SlotId,
+    SourceKind, SourceName, LANES,
 };
 use crate::model::Chain;
 
@@ -369,15 +369,16 @@ fn source_effects(
                 .map(move |(xs, c)| (p.slots.as_slice(), xs.as_slice(), *c))
         })
         .collect();
-    let mut values = plan.nominal.repeat(LANES);
+    let mut values = Batch::new(plan.nominal.repeat(LANES));
     let mut scratch = LaneColumns::default();
     let mut readings = [0.0; LANES];
     let mut changes = Vec::with_capacity(limits.len());
     for batch in limits.chunks(LANES) {
         let mut calibrated = [sources.nominal; LANES];
+        let rows = values.rows_mut();
         for (lane, &(slots, xs, c)) in batch.iter().enumerate() {
             for (&slot, &x) in slots.iter().zip(xs) {
-                values[lane * n + slot.index()] = x;
+                rows[lane * n + slot.index()] = x;
             }
             calibrated[lane] = c;
         }
@@ -388,9 +389,10 @@ fn source_effects(
             &mut readings,
             &mut scratch,
         )?;
+        let rows = values.rows_mut();
         for (lane, &(slots, ..)) in batch.iter().enumerate() {
             for &slot in slots {
-                values[lane * n + slot.index()] = plan.nominal[slot.index()];
+                rows[lane * n + slot.index()] = plan.nominal[slot.index()];
             }
             changes.push(readings[lane] - r0);
         }

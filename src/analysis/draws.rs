@@ -360,9 +360,20 @@ mod tests {
     #[test]
     fn the_top_bits_convert_exactly() {
         let s = Stream::new(3, "top", 0);
-        let edges = [0, 1 << 11, (1 << 37) - 1, 1 << 37, (1 << 37) + (1 << 11), u64::MAX];
+        let edges = [
+            0,
+            1 << 11,
+            (1 << 37) - 1,
+            1 << 37,
+            (1 << 37) + (1 << 11),
+            u64::MAX,
+        ];
         for bits in edges.into_iter().chain((0..100_000).map(|t| s.bits(t))) {
-            assert_eq!(top_bits(bits).to_bits(), ((bits >> 11) as f64).to_bits(), "{bits:#x}");
+            assert_eq!(
+                top_bits(bits).to_bits(),
+                ((bits >> 11) as f64).to_bits(),
+                "{bits:#x}"
+            );
         }
     }
 

@@ -17,8 +17,8 @@ use super::shares::GROUP;
 use super::tails::{order_statistics, Ranks};
 use crate::eval::wide;
 use crate::eval::{
-    half_width, own_fraction, Calibrated, Env, EvalError, Group, LaneColumns, Plan, Slot, SlotId,
-    SourceKind, LANES,
+    half_width, own_fraction, Batch, Calibrated, Env, EvalError, Group, LaneColumns, Plan, Slot,
+    SlotId, SourceKind, LANES,
 };
 
 /// Trials per task: large enough to amortise the split, small enough to
@@ -637,7 +637,7 @@ impl Block<'_> {
         let len = outs.first().map_or(0, |o| o.len());
         // Trials go through the evaluator LANES at a time; each value is its
         // trial's, so the lane count changes no result.
-        let mut values = plan.nominal.repeat(LANES);
+        let mut values = Batch::new(plan.nominal.repeat(LANES));
         let mut calibrated = [Calibrated::None; LANES];
         let mut lanes = Lanes {
             readings: [0.0; LANES],
@@ -648,7 +648,8 @@ impl Block<'_> {
             let count = LANES.min(len - start);
             let t0 = (first + start) as u64;
             cells.at = start;
-            self.sources.fill(&mut values, slots, t0, count, cells);
+            self.sources
+                .fill(values.rows_mut(), slots, t0, count, cells);
             let calibration =
                 plan.calibrations(&values, count, &mut calibrated, &mut lanes.scratch);
             for ((at, out), result) in at.iter().zip(outs.iter_mut()).zip(&mut outcome) {
@@ -669,20 +670,20 @@ impl Block<'_> {
     fn block(
         &self,
         at: &At,
-        values: &[f64],
+        batch: &Batch,
         calibrated: Option<&[Calibrated; LANES]>,
         t0: u64,
         out: &mut [f64],
         lanes: &mut Lanes,
     ) -> Result<(), EvalError> {
         let (plan, env) = (self.plan, &at.condition.env);
-        let slots = plan.nominal.len();
+        let (slots, values) = (plan.nominal.len(), batch.rows());
         let lane_values = |lane: usize| &values[lane * slots..(lane + 1) * slots];
         let readings = &mut lanes.readings;
         match calibrated {
             Some(known) if out.len() == LANES => {
                 plan.unquantized_readings_calibrated(
-                    values,
+                    batch,
                     env,
                     known,
                     readings,

@@ -9,6 +9,7 @@ use super::convert::JunctionEmfs;
 use super::plan::{DriftSlot, Env, NodeId, Plan, Senses, Signal, SlotId};
 use super::run::{Mode, Reach, LANES, MAX_NODES, WITHIN_SLACK};
 use crate::units::ZERO_CELSIUS_K;
+use std::sync::atomic::{AtomicU64, Ordering};
 
 /// Which [`Signal`] a node gives: the same in every lane of a batch (it
 /// follows from the node's kind and wiring), so one tag per column.
@@ -139,6 +140,42 @@ pub fn all_positive(c: &[f64; LANES]) -> bool {
     all_finite(c) && lowest.iter().all(|&low| low > 0.0)
 }
 
+/// A batch's values, lane after lane, each lane a plan's slots, stamped
+/// anew whenever they may change: columns loaded from a batch are kept
+/// while its stamp holds, with no need to compare the values (a batch is
+/// read at every point of a run, and a chain has dozens of slots).
+#[derive(Debug)]
+pub struct Batch {
+    rows: Vec<f64>,
+    stamp: u64,
+}
+
+/// No two batches of a process, nor two states of one, share a stamp.
+static STAMPS: AtomicU64 = AtomicU64::new(0);
+
+fn fresh_stamp() -> u64 {
+    STAMPS.fetch_add(1, Ordering::Relaxed)
+}
+
+impl Batch {
+    pub fn new(rows: Vec<f64>) -> Batch {
+        Batch {
+            rows,
+            stamp: fresh_stamp(),
+        }
+    }
+
+    pub fn rows(&self) -> &[f64] {
+        &self.rows
+    }
+
+    /// The values, to change: the batch takes a new stamp.
+    pub fn rows_mut(&mut self) -> &mut [f64] {
+        self.stamp = fresh_stamp();
+        &mut self.rows
+    }
+}
+
 /// The columns of a batch: every node's signals and every slot's values,
 /// reused from batch to batch (every node is written before it is read).
 #[derive(Clone, Debug)]
@@ -146,8 +183,8 @@ pub struct LaneColumns {
     pub(super) nodes: [Column; MAX_NODES],
     /// Slot by slot, each lane's value.
     pub(super) values: Vec<[f64; LANES]>,
-    /// The same values lane by lane, as loaded.
-    rows: Vec<f64>,
+    /// The stamp of the batch the values were loaded from.
+    loaded: Option<u64>,
     /// The run the columns hold, complete, with the values now loaded:
     /// the next run with the same key keeps the columns of the nodes the
     /// measurand does not reach.
@@ -182,7 +219,7 @@ impl Default for LaneColumns {
         LaneColumns {
             nodes: [Column::default(); MAX_NODES],
             values: Vec::new(),
-            rows: Vec::new(),
+            loaded: None,
             last: None,
             junction_emfs: JunctionEmfs::default(),
         }
@@ -190,35 +227,20 @@ impl Default for LaneColumns {
 }
 
 impl LaneColumns {
-    /// The values of the lanes (`rows` holds them one lane after another,
-    /// `n` each) as columns. Values as loaded last (to the bit, as when a
-    /// batch is read at several points) are kept; new ones void the last
-    /// run.
+    /// The values of `batch` (`n` slots a lane) as columns. Values as
+    /// loaded last (the same batch with the same stamp, as when a batch
+    /// is read at several points) are kept; new ones void the last run.
     #[inline(always)]
-    pub(super) fn load(&mut self, rows: &[f64], n: usize) {
-        if !self.holds(rows) {
-            self.reload(rows, n);
+    pub(super) fn load(&mut self, batch: &Batch, n: usize) {
+        if self.loaded != Some(batch.stamp) {
+            self.reload(batch.rows(), n);
+            self.loaded = Some(batch.stamp);
         }
-    }
-
-    /// Whether the columns hold `rows` to the bit: one pass with no early
-    /// exit, inlined into the wide kernels.
-    #[inline(always)]
-    fn holds(&self, rows: &[f64]) -> bool {
-        self.rows.len() == rows.len()
-            && self
-                .rows
-                .iter()
-                .zip(rows)
-                .fold(0, |acc, (a, b)| acc | (a.to_bits() ^ b.to_bits()))
-                == 0
     }
 
     /// New values: the last run is void.
     fn reload(&mut self, rows: &[f64], n: usize) {
         self.last = None;
-        self.rows.clear();
-        self.rows.extend_from_slice(rows);
         self.values.resize(n, [0.0; LANES]);
         for (s, column) in self.values.iter_mut().enumerate() {
             for (k, x) in column.iter_mut().enumerate() {
@@ -383,7 +405,7 @@ impl LaneRun<'_> {
 
 #[cfg(test)]
 mod tests {
-    use super::{LaneColumns, Lost};
+    use super::{Batch, LaneColumns, Lost};
     use crate::eval::plan::{Env, Plan, Signal};
     use crate::eval::run::{Mode, Reach, LANES, MAX_NODES};
     use crate::eval::wide;
@@ -484,7 +506,7 @@ mod tests {
         // baseline.
         for portable in [false, true] {
             let mut columns = LaneColumns::default();
-            columns.load(rows, n);
+            columns.load(&Batch::new(rows.to_vec()), n);
             let mut run = || plan.run_columns(rows, env, &mut columns, reach, MODE);
             let lanes = if portable { wide::portable(run) } else { run() };
             if failed > 0 {

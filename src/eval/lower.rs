@@ -775,7 +775,7 @@ chain bath "Pt100" {
     /// do; a part batch goes lane by lane.
     #[test]
     fn a_batch_calibrates_as_each_lane_alone() {
-        use crate::eval::{wide, Calibrated, LaneColumns, LANES};
+        use crate::eval::{wide, Batch, Calibrated, LaneColumns, LANES};
         let plan = plan(CALIBRATED_PT100);
         let n = plan.slots.len();
         let mut values = plan.nominal.repeat(LANES);
@@ -794,7 +794,8 @@ chain bath "Pt100" {
             .all(|c| matches!(c, Calibrated::TwoPoint { .. })));
         let batch = |values: &[f64], count: usize| {
             let mut out = [Calibrated::None; LANES];
-            let result = plan.calibrations(values, count, &mut out, &mut LaneColumns::default());
+            let values = Batch::new(values.to_vec());
+            let result = plan.calibrations(&values, count, &mut out, &mut LaneColumns::default());
             (result.map_err(|e| e.to_string()), out)
         };
         for count in [LANES, 5] {
@@ -824,17 +825,17 @@ chain bath "Pt100" {
 
     /// A batch read at a second point keeps the columns the measurand does
     /// not reach: the readings are those of a batch read there afresh, to
-    /// the bit.
+    /// the bit. Changed values, in the same batch, are read afresh.
     #[test]
     fn a_second_point_reads_as_if_alone() {
-        use crate::eval::{Calibrated, Env, LaneColumns, LANES};
+        use crate::eval::{Batch, Calibrated, Env, LaneColumns, LANES};
         let plan = plan(COUPLE_WITH_NTC);
         let n = plan.slots.len();
         let mut values = plan.nominal.repeat(LANES);
         for (k, v) in values.iter_mut().enumerate() {
             let slot = &plan.slots[k % n];
             // Each lane its own values, inside the limits.
-            *v += (slot.plus - slot.minus) * ((k / n) as f64 / LANES as f64 - 0.4);
+            *v += (slot.plus + slot.minus) * ((k / n) as f64 / LANES as f64 - 0.4);
         }
         let calibrated: [Calibrated; LANES] = std::array::from_fn(|k| {
             plan.calibration(&values[k * n..(k + 1) * n])
@@ -845,15 +846,33 @@ chain bath "Pt100" {
             ambient: 300.15,
             cold_junction: 300.15,
         };
-        let read = |scratch: &mut LaneColumns, env: &Env| {
+        let read = |values: &Batch, scratch: &mut LaneColumns, env: &Env| {
             let mut readings = [0.0; LANES];
-            plan.unquantized_readings_calibrated(&values, env, &calibrated, &mut readings, scratch)
+            plan.unquantized_readings_calibrated(values, env, &calibrated, &mut readings, scratch)
                 .expect("reads");
             readings.map(f64::to_bits)
         };
+        let mut values = Batch::new(values);
         let mut kept = LaneColumns::default();
-        read(&mut kept, &at(100.0));
-        let second = read(&mut kept, &at(900.0));
-        assert_eq!(second, read(&mut LaneColumns::default(), &at(900.0)));
+        read(&values, &mut kept, &at(100.0));
+        let second = read(&values, &mut kept, &at(900.0));
+        assert_eq!(
+            second,
+            read(&values, &mut LaneColumns::default(), &at(900.0))
+        );
+        // Every lane given the first lane's values: the kept columns are
+        // not read again; the first lane reads as before, the others anew.
+        let rows = values.rows_mut();
+        let (lane, rest) = rows.split_at_mut(n);
+        for other in rest.chunks_mut(n) {
+            other.copy_from_slice(lane);
+        }
+        let moved = read(&values, &mut kept, &at(900.0));
+        assert_eq!(
+            moved,
+            read(&values, &mut LaneColumns::default(), &at(900.0))
+        );
+        assert_eq!(moved[0], second[0]);
+        assert_ne!(moved, second);
     }
 }

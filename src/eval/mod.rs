@@ -23,7 +23,7 @@ mod track;
 pub mod wide;
 
 pub use convert::{grid, Calibrated, Calibration, Conversion, Firmware, Method, TableUse};
-pub use lanes::LaneColumns;
+pub use lanes::{Batch, LaneColumns};
 pub use lower::{lower, lower_stages, lower_unvalidated, valid_measurand_range};
 pub use node::{AmpReference, BridgeKind, Node};
 pub use plan::{

@@ -2,7 +2,7 @@
 //! inputs' signals, the parameter values and the environment.
 
 use super::convert::{calibration_env, Calibrated, Calibration, Conversion, Firmware};
-use super::lanes::{LaneColumns, LaneRun, Lost, RunKey, Tag};
+use super::lanes::{Batch, LaneColumns, LaneRun, Lost, RunKey, Tag};
 use super::node;
 use super::plan::{
     ClassTolerance, DriftSlot, Env, EvalError, Node, NodeId, Plan, Senses, Signal, SlotId,
@@ -527,16 +527,17 @@ impl Plan {
     /// calls (every node is written before it is read).
     pub fn unquantized_readings(
         &self,
-        values: &[f64],
+        batch: &Batch,
         env: &Env,
         readings: &mut [f64; LANES],
         scratch: &mut LaneColumns,
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         if self
-            .column_readings(values, env, None, readings, scratch)
+            .column_readings(batch, env, None, readings, scratch)
             .is_err()
         {
+            let values = batch.rows();
             for (lane, reading) in readings.iter_mut().enumerate() {
                 *reading = self.unquantized_reading(&values[lane * n..(lane + 1) * n], env)?;
             }
@@ -548,7 +549,7 @@ impl Plan {
     /// (as [`Plan::unquantized_reading_calibrated`]).
     pub fn unquantized_readings_calibrated(
         &self,
-        values: &[f64],
+        batch: &Batch,
         env: &Env,
         calibrated: &[Calibrated; LANES],
         readings: &mut [f64; LANES],
@@ -556,11 +557,11 @@ impl Plan {
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         if self
-            .column_readings(values, env, Some(calibrated), readings, scratch)
+            .column_readings(batch, env, Some(calibrated), readings, scratch)
             .is_err()
         {
             for (lane, reading) in readings.iter_mut().enumerate() {
-                let values = &values[lane * n..(lane + 1) * n];
+                let values = &batch.rows()[lane * n..(lane + 1) * n];
                 *reading = self.unquantized_reading_calibrated(values, env, &calibrated[lane])?;
             }
         }
@@ -598,7 +599,7 @@ impl Plan {
     /// lanes, then the conversion's inverse and correction lane by lane.
     fn column_readings(
         &self,
-        values: &[f64],
+        batch: &Batch,
         env: &Env,
         known: Option<&[Calibrated; LANES]>,
         readings: &mut [f64; LANES],
@@ -606,22 +607,23 @@ impl Plan {
     ) -> Result<(), Lost> {
         super::wide::run(
             #[inline(always)]
-            || self.column_readings_kernel(values, env, known, readings, columns),
+            || self.column_readings_kernel(batch, env, known, readings, columns),
         )
     }
 
     #[inline(always)]
     fn column_readings_kernel(
         &self,
-        values: &[f64],
+        batch: &Batch,
         env: &Env,
         known: Option<&[Calibrated; LANES]>,
         readings: &mut [f64; LANES],
         columns: &mut LaneColumns,
     ) -> Result<(), Lost> {
         let n = self.slots.len();
+        columns.load(batch, n);
+        let values = batch.rows();
         let lane = |k: usize| &values[k * n..(k + 1) * n];
-        columns.load(values, n);
         let conversion = self.main_conversion().map_err(|_| Lost)?;
         let codes = match known {
             Some(_) => [[0.0; 2]; LANES],
@@ -692,15 +694,15 @@ impl Plan {
     /// the error is the one a single run meets first.
     pub fn calibrations(
         &self,
-        values: &[f64],
+        batch: &Batch,
         count: usize,
         out: &mut [Calibrated; LANES],
         scratch: &mut LaneColumns,
     ) -> Result<(), EvalError> {
-        if count == LANES && self.column_calibrations(values, out, scratch).is_ok() {
+        if count == LANES && self.column_calibrations(batch, out, scratch).is_ok() {
             return Ok(());
         }
-        let n = self.slots.len();
+        let (n, values) = (self.slots.len(), batch.rows());
         for (lane, out) in out.iter_mut().enumerate().take(count) {
             *out = self.calibration(&values[lane * n..(lane + 1) * n])?;
         }
@@ -709,7 +711,7 @@ impl Plan {
 
     fn column_calibrations(
         &self,
-        values: &[f64],
+        batch: &Batch,
         out: &mut [Calibrated; LANES],
         columns: &mut LaneColumns,
     ) -> Result<(), Lost> {
@@ -719,7 +721,8 @@ impl Plan {
             return Ok(());
         }
         let n = self.slots.len();
-        columns.load(values, n);
+        columns.load(batch, n);
+        let values = batch.rows();
         let codes = super::wide::run(
             #[inline(always)]
             || self.calibration_codes_lanes(conversion, values, columns),
