@@ -2,7 +2,7 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
-use super::lanes::{all_finite, all_positive, celsius_within, Column, LaneRun, Lost};
+use super::lanes::{all_finite, all_positive, celsius_within, Column, LaneRun, Lost, Tag};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::{within, LANES};
@@ -39,6 +39,41 @@ impl Supply {
             Signal::Source(v) => Supply::Voltage { v, other: fixed },
             Signal::Current(a) if !sensor_high => Supply::Current(a),
             _ => Supply::None,
+        }
+    }
+}
+
+/// [`Supply`] in every lane of a batch: its kind follows from the
+/// excitation's, the same in every lane, so it is matched once a batch
+/// and the lanes' powers computed side by side.
+#[derive(Clone, Copy, Debug)]
+pub(super) enum SupplyLanes<'a> {
+    Voltage {
+        v: &'a [f64; LANES],
+        other: &'a [f64; LANES],
+    },
+    Current(&'a [f64; LANES]),
+    None,
+}
+
+impl<'a> SupplyLanes<'a> {
+    /// [`Supply::of_divider`] of every lane: `exc` the excitation's
+    /// column.
+    #[inline(always)]
+    pub(super) fn of_divider(
+        exc: &'a Column,
+        fixed: &'a [f64; LANES],
+        sensor_high: bool,
+    ) -> SupplyLanes<'a> {
+        match exc.tag {
+            Tag::Source => SupplyLanes::Voltage {
+                v: &exc.x,
+                other: fixed,
+            },
+            Tag::Current if !sensor_high => SupplyLanes::Current(&exc.x),
+            Tag::None | Tag::Current | Tag::Element | Tag::Voltage | Tag::Code | Tag::Reading => {
+                SupplyLanes::None
+            }
         }
     }
 }
@@ -540,7 +575,7 @@ impl Plan {
         &self,
         node: NodeId,
         element: &[f64; LANES],
-        supply: &[Supply; LANES],
+        supply: SupplyLanes<'_>,
         run: &LaneRun<'_>,
     ) -> Result<[f64; LANES], Lost> {
         let Some(heating) = self.heating(node) else {
@@ -551,15 +586,36 @@ impl Plan {
         let mut t = [0.0; LANES];
         let curves = self.element_curves(node, run, &mut t)?;
         let delta = run.slot(heating.dissipation);
-        let heated = self_heated_lanes(
-            &curves,
-            &t,
-            &cold,
-            heating.curved,
-            delta,
-            #[inline(always)]
-            |k, r| supply[k].power_w(r, leads[k]),
-        )?;
+        // Supply::power_w, one kind of supply a loop.
+        let heated = match supply {
+            SupplyLanes::Voltage { v, other } => self_heated_lanes(
+                &curves,
+                &t,
+                &cold,
+                heating.curved,
+                delta,
+                #[inline(always)]
+                |k, r| strain::series_element_power_w(v[k], r, leads[k] + other[k]),
+            ),
+            SupplyLanes::Current(a) => self_heated_lanes(
+                &curves,
+                &t,
+                &cold,
+                heating.curved,
+                delta,
+                #[inline(always)]
+                |k, r| a[k] * a[k] * r,
+            ),
+            SupplyLanes::None => self_heated_lanes(
+                &curves,
+                &t,
+                &cold,
+                heating.curved,
+                delta,
+                #[inline(always)]
+                |_, _| 0.0,
+            ),
+        }?;
         Ok(std::array::from_fn(|k| heated[k] + leads[k]))
     }
 

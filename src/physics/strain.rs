@@ -60,6 +60,7 @@ pub fn divider_output(v: f64, r_low: f64, r_high: f64) -> Res<f64> {
 /// across `v` V (one side of a divider or of a bridge):
 /// P = I² r = v² r / (r + r_series)² (Ohm's and Joule's laws). Zero when
 /// both are zero (no current path).
+#[inline]
 pub fn series_element_power_w(v: f64, r: f64, r_series: f64) -> f64 {
     let total = r + r_series;
     if total == 0.0 {

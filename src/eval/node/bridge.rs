@@ -4,7 +4,7 @@
 //! self-heating of the elements in its arms (`eval/element.rs`).
 
 use super::{Cx, Run};
-use crate::eval::element::Supply;
+use crate::eval::element::{Supply, SupplyLanes};
 use crate::eval::fault::{FaultKind, Faulted, OPEN_OHMS, SHORT_OHMS};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
@@ -300,10 +300,9 @@ impl Bridge {
         out: &mut Column,
     ) -> Result<(), Lost> {
         let exc = &run.s[self.exc.index()];
-        let supply =
-            std::array::from_fn(|j| Supply::of_divider(exc.signal(j), fixed[j], sensor_high));
+        let supply = SupplyLanes::of_divider(exc, fixed, sensor_high);
         let element = match self.heated_arm(run.mode) {
-            Some(n) => run.plan.heated_divider_elements(n, arm, &supply, run)?,
+            Some(n) => run.plan.heated_divider_elements(n, arm, supply, run)?,
             None => *arm,
         };
         out.tag = Tag::Voltage;
