@@ -5,6 +5,7 @@
 use super::env::{Env, Senses};
 use super::error::EvalError;
 use super::ids::{NodeId, SlotId};
+use super::lanes::Lost;
 use super::run::{within, LANES};
 use crate::model::typed::ConversionMethod;
 use crate::physics::solve::{bisect_at_most, brent};
@@ -82,6 +83,48 @@ pub enum Calibrated {
     None,
     Offset(f64),
     TwoPoint { read: (f64, f64) },
+}
+
+/// A batch's calibrations when every lane took the same kind, as
+/// columns. (A value on the stack, matched at once: its variants' sizes
+/// do not matter.)
+#[allow(clippy::large_enum_variant)]
+enum Alike {
+    None,
+    Offset([f64; LANES]),
+    TwoPoint([f64; LANES], [f64; LANES]),
+}
+
+/// The lanes' calibrations as [`Alike`] columns; None if they differ in
+/// kind.
+#[inline(always)]
+fn lanes_alike(calibrated: &[Calibrated; LANES]) -> Option<Alike> {
+    match calibrated[0] {
+        Calibrated::None => calibrated
+            .iter()
+            .all(|c| *c == Calibrated::None)
+            .then_some(Alike::None),
+        Calibrated::Offset(_) => {
+            let mut shift = [0.0; LANES];
+            for (s, c) in shift.iter_mut().zip(calibrated) {
+                let Calibrated::Offset(c) = *c else {
+                    return None;
+                };
+                *s = c;
+            }
+            Some(Alike::Offset(shift))
+        }
+        Calibrated::TwoPoint { .. } => {
+            let (mut r1, mut r2) = ([0.0; LANES], [0.0; LANES]);
+            for (k, c) in calibrated.iter().enumerate() {
+                let Calibrated::TwoPoint { read } = *c else {
+                    return None;
+                };
+                (r1[k], r2[k]) = read;
+            }
+            Some(Alike::TwoPoint(r1, r2))
+        }
+    }
 }
 
 /// The nominal code at evenly spaced points of the domain, interpolated by
@@ -487,8 +530,10 @@ impl Conversion {
     ) -> [Option<f64>; LANES] {
         let mut out = [None; LANES];
         let (Method::Exact, Some(table)) = (&self.method, &self.inverse) else {
-            for (x, &code) in out.iter_mut().zip(codes) {
-                *x = self.fitted(code);
+            if !matches!(self.method, Method::Exact) {
+                let mut x = [0.0; LANES];
+                self.fitted_lanes(codes, &mut x);
+                out = x.map(Some);
             }
             return out;
         };
@@ -556,6 +601,79 @@ impl Conversion {
             }
         }
         solve_beyond(f, self.domain)
+    }
+
+    /// [`Conversion::fitted`] of each lane's code, for a fitted method
+    /// (the exact one leaves `out` as it is): the method matched once,
+    /// then a loop over the lanes.
+    #[inline(always)]
+    fn fitted_lanes(&self, codes: &[f64; LANES], out: &mut [f64; LANES]) {
+        match &self.method {
+            Method::Exact => {}
+            Method::Linear {
+                code_low,
+                code_high,
+            } => {
+                let (low, span) = (self.range.0, self.range.1 - self.range.0);
+                for (x, &code) in out.iter_mut().zip(codes) {
+                    *x = low + (code - code_low) * span / (code_high - code_low);
+                }
+            }
+            Method::Table {
+                codes: at,
+                xs,
+                buckets,
+            } => {
+                for (x, &code) in out.iter_mut().zip(codes) {
+                    *x = linear_between(at, xs, code, buckets.segment(at, code));
+                }
+            }
+            Method::Poly {
+                coefficients,
+                mid,
+                half,
+            } => {
+                for (x, &code) in out.iter_mut().zip(codes) {
+                    let u = (code - mid) / half;
+                    *x = coefficients.iter().rev().fold(0.0, |acc, c| acc * u + c);
+                }
+            }
+        }
+    }
+
+    /// [`Conversion::correct`] of every lane's reading `x` in place: a
+    /// batch whose lanes all took the calibration this conversion makes
+    /// side by side, any other lane by lane. A lane that cannot be
+    /// corrected loses the batch.
+    #[inline(always)]
+    pub(super) fn correct_lanes(
+        &self,
+        chain: &impl Firmware,
+        x: &mut [f64; LANES],
+        calibrated: &[Calibrated; LANES],
+    ) -> Result<(), Lost> {
+        match (self.calibration, lanes_alike(calibrated)) {
+            (Calibration::None, Some(Alike::None)) => return Ok(()),
+            (Calibration::Offset { .. }, Some(Alike::Offset(shift))) => {
+                for k in 0..LANES {
+                    x[k] += shift[k];
+                }
+                return Ok(());
+            }
+            (Calibration::TwoPoint { at: (p1, p2), .. }, Some(Alike::TwoPoint(r1, r2))) => {
+                let mut same = false;
+                for k in 0..LANES {
+                    same |= r2[k] == r1[k];
+                    x[k] = p1 + (x[k] - r1[k]) * (p2 - p1) / (r2[k] - r1[k]);
+                }
+                return if same { Err(Lost) } else { Ok(()) };
+            }
+            _ => {}
+        }
+        for (x, c) in x.iter_mut().zip(calibrated) {
+            *x = self.correct(chain, *x, c).map_err(|_| Lost)?;
+        }
+        Ok(())
     }
 
     /// The reading for `code` of a method fitted to the code alone; None

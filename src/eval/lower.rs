@@ -875,4 +875,50 @@ chain bath "Pt100" {
         assert_eq!(moved[0], second[0]);
         assert_ne!(moved, second);
     }
+
+    /// A batch's readings, corrected through the columns when every lane
+    /// took the same kind of calibration and lane by lane when not, are
+    /// each lane's single run, to the bit.
+    #[test]
+    fn a_batch_corrects_as_each_lane_alone() {
+        use crate::eval::{Batch, Calibrated, Env, LaneColumns, LANES};
+        let plan = plan(CALIBRATED_PT100);
+        let n = plan.slots.len();
+        let mut rows = plan.nominal.repeat(LANES);
+        for (k, v) in rows.iter_mut().enumerate() {
+            let slot = &plan.slots[k % n];
+            *v += (slot.plus + slot.minus) * (((k * 5 + k / n) % 9) as f64 / 8.0 - 0.5);
+        }
+        let lane = |k: usize| &rows[k * n..(k + 1) * n];
+        let env = Env {
+            measurand: 60.0 + 273.15,
+            ambient: 300.15,
+            cold_junction: 300.15,
+        };
+        let mut calibrated: [Calibrated; LANES] =
+            std::array::from_fn(|k| plan.calibration(lane(k)).expect("calibrates"));
+        for mixed in [false, true] {
+            if mixed {
+                calibrated[3] = Calibrated::Offset(0.01);
+            }
+            let alone: Vec<u64> = (0..LANES)
+                .map(|k| {
+                    let r = plan.unquantized_reading_calibrated(lane(k), &env, &calibrated[k]);
+                    r.expect("reads").to_bits()
+                })
+                .collect();
+            let mut readings = [0.0; LANES];
+            let batch = Batch::new(rows.clone());
+            plan.unquantized_readings_calibrated(
+                &batch,
+                &env,
+                &calibrated,
+                &mut readings,
+                &mut LaneColumns::default(),
+            )
+            .expect("reads");
+            assert_eq!(readings.map(f64::to_bits).to_vec(), alone, "mixed {mixed}");
+            assert!(alone.iter().any(|&r| r != alone[0]));
+        }
+    }
 }

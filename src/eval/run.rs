@@ -643,23 +643,28 @@ impl Plan {
         let cj = cj.and_then(|c| columns.nodes[c.index()].of(Tag::Reading));
         let direct =
             conversion.direct_lanes(self, lane, env, &exact, cj, &mut columns.junction_emfs);
-        for (k, reading) in readings.iter_mut().enumerate() {
+        for (k, x) in readings.iter_mut().enumerate() {
             let cj = cj.map(|t| t[k]);
-            let x = match direct[k] {
+            *x = match direct[k] {
                 Some(x) => x,
                 None => conversion
                     .invert(self, lane(k), env, exact[k], cj)
                     .map_err(|_| Lost)?,
             };
-            let calibrated = match known {
-                Some(known) => known[k],
-                None => conversion
-                    .calibrated_from(self, lane(k), &codes[k])
-                    .map_err(|_| Lost)?,
-            };
-            *reading = conversion.correct(self, x, &calibrated).map_err(|_| Lost)?;
         }
-        Ok(())
+        let mut each = [Calibrated::None; LANES];
+        let calibrated = match known {
+            Some(known) => known,
+            None => {
+                for (k, c) in each.iter_mut().enumerate() {
+                    *c = conversion
+                        .calibrated_from(self, lane(k), &codes[k])
+                        .map_err(|_| Lost)?;
+                }
+                &each
+            }
+        };
+        conversion.correct_lanes(self, readings, calibrated)
     }
 
     /// The calibration's exact codes, lane by lane, point by point (none
