@@ -513,34 +513,43 @@ impl Conversion {
         chain.code(chain.nominal(), &env, self.adc)
     }
 
-    /// [`Conversion::invert`] of a batch's codes where it answers from the
+    /// [`Conversion::invert`] of a batch's codes, each lane's code in
+    /// `x` replaced by its reading where the conversion answers from the
     /// code directly (a method fitted to the code, or the exact inverse's
     /// table, whole or shifted for each lane's cold junction), the lanes'
-    /// lookups side by side; `None` in a lane leaves it to
-    /// [`Conversion::invert`], which would look up the same first.
+    /// lookups side by side; which lanes it answered. A lane it did not
+    /// keeps its code, for [`Conversion::invert`], which would look up
+    /// the same first.
     #[inline(always)]
     pub(super) fn direct_lanes<'v>(
         &self,
         chain: &impl Firmware,
         lane: impl Fn(usize) -> &'v [f64],
         env: &Env,
-        codes: &[f64; LANES],
+        x: &mut [f64; LANES],
         cj: Option<&[f64; LANES]>,
         junction_emfs: &mut JunctionEmfs,
-    ) -> [Option<f64>; LANES] {
-        let mut out = [None; LANES];
+    ) -> [bool; LANES] {
+        let (codes, out) = (*x, x);
+        let codes = &codes;
+        let mut answered = [false; LANES];
+        let mut answer = |k: usize, x: Option<f64>| {
+            if let Some(x) = x {
+                out[k] = x;
+                answered[k] = true;
+            }
+        };
         let (Method::Exact, Some(table)) = (&self.method, &self.inverse) else {
             if !matches!(self.method, Method::Exact) {
-                let mut x = [0.0; LANES];
-                self.fitted_lanes(codes, &mut x);
-                out = x.map(Some);
+                self.fitted_lanes(codes, out);
+                return [true; LANES];
             }
-            return out;
+            return answered;
         };
         match table.stands_for {
             TableUse::Complete => {
-                for (x, &code) in out.iter_mut().zip(codes) {
-                    *x = table.x_at(code);
+                for (k, &code) in codes.iter().enumerate() {
+                    answer(k, table.x_at(code));
                 }
             }
             TableUse::Junction { ty, reference_mv } => {
@@ -550,15 +559,16 @@ impl Conversion {
                         .cold_junction
                 });
                 let junction_mv = junction_emfs.at(ty, &junctions);
-                for (k, x) in out.iter_mut().enumerate() {
-                    *x = table
-                        .x_at_junction(codes[k], junction_mv[k], ty, reference_mv)
+                for (k, &code) in codes.iter().enumerate() {
+                    let x = table
+                        .x_at_junction(code, junction_mv[k], ty, reference_mv)
                         .filter(|x| (self.domain.0..=self.domain.1).contains(x));
+                    answer(k, x);
                 }
             }
             TableUse::Start => {}
         }
-        out
+        answered
     }
 
     /// Reading for `code`, before calibration.

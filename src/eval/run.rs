@@ -641,16 +641,18 @@ impl Plan {
         };
         let exact = *columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
         let cj = cj.and_then(|c| columns.nodes[c.index()].of(Tag::Reading));
-        let direct =
-            conversion.direct_lanes(self, lane, env, &exact, cj, &mut columns.junction_emfs);
-        for (k, x) in readings.iter_mut().enumerate() {
-            let cj = cj.map(|t| t[k]);
-            *x = match direct[k] {
-                Some(x) => x,
-                None => conversion
-                    .invert(self, lane(k), env, exact[k], cj)
-                    .map_err(|_| Lost)?,
-            };
+        *readings = exact;
+        let answered =
+            conversion.direct_lanes(self, lane, env, readings, cj, &mut columns.junction_emfs);
+        if answered.contains(&false) {
+            for (k, x) in readings.iter_mut().enumerate() {
+                if !answered[k] {
+                    let cj = cj.map(|t| t[k]);
+                    *x = conversion
+                        .invert(self, lane(k), env, exact[k], cj)
+                        .map_err(|_| Lost)?;
+                }
+            }
         }
         let mut each = [Calibrated::None; LANES];
         let calibrated = match known {

@@ -124,11 +124,12 @@ impl Convert {
         };
         let cj = self.cj.and_then(|n| run.s[n.index()].of(Tag::Reading));
         let conversion = &self.conversion;
-        let direct = conversion.direct_lanes(
+        let mut direct = codes;
+        let answered = conversion.direct_lanes(
             run.plan,
             |k| run.row(k),
             run.env,
-            &codes,
+            &mut direct,
             cj,
             &mut JunctionEmfs::default(),
         );
@@ -137,11 +138,12 @@ impl Convert {
         out.tag = Tag::Reading;
         for (k, reading) in out.x.iter_mut().enumerate() {
             let values = run.row(k);
-            let x = match direct[k] {
-                Some(x) => x,
-                None => conversion
+            let x = if answered[k] {
+                direct[k]
+            } else {
+                conversion
                     .invert(run.plan, values, run.env, codes[k], cj.map(|t| t[k]))
-                    .map_err(|_| Lost)?,
+                    .map_err(|_| Lost)?
             };
             let calibrated = if uncalibrated {
                 Calibrated::None
