@@ -495,13 +495,8 @@ impl Plan {
         let (Some(a), Some(heating)) = (current, self.heating(n)) else {
             return Ok(cold);
         };
-        let delta = run.slot(heating.dissipation);
-        self_heated_lanes(
-            &curves,
-            &t,
-            &cold,
-            heating.curved,
-            delta,
+        let cold = ColdLanes::of(&curves, &t, &cold, heating, run);
+        cold.heated(
             #[inline(always)]
             |k, r| a[k] * a[k] * r,
         )
@@ -585,33 +580,18 @@ impl Plan {
         let cold = std::array::from_fn(|k| element[k] - leads[k]);
         let mut t = [0.0; LANES];
         let curves = self.element_curves(node, run, &mut t)?;
-        let delta = run.slot(heating.dissipation);
+        let cold = ColdLanes::of(&curves, &t, &cold, heating, run);
         // Supply::power_w, one kind of supply a loop.
         let heated = match supply {
-            SupplyLanes::Voltage { v, other } => self_heated_lanes(
-                &curves,
-                &t,
-                &cold,
-                heating.curved,
-                delta,
+            SupplyLanes::Voltage { v, other } => cold.heated(
                 #[inline(always)]
                 |k, r| strain::series_element_power_w(v[k], r, leads[k] + other[k]),
             ),
-            SupplyLanes::Current(a) => self_heated_lanes(
-                &curves,
-                &t,
-                &cold,
-                heating.curved,
-                delta,
+            SupplyLanes::Current(a) => cold.heated(
                 #[inline(always)]
                 |k, r| a[k] * a[k] * r,
             ),
-            SupplyLanes::None => self_heated_lanes(
-                &curves,
-                &t,
-                &cold,
-                heating.curved,
-                delta,
+            SupplyLanes::None => cold.heated(
                 #[inline(always)]
                 |_, _| 0.0,
             ),
@@ -648,13 +628,8 @@ impl Plan {
                 };
                 let leads = &leads[k];
                 let start = std::array::from_fn(|j| arms[j][k] - leads[j]);
-                let delta = run.slot(h.dissipation);
-                let heated = self_heated_lanes(
-                    curves,
-                    &t[k],
-                    &start,
-                    h.curved,
-                    delta,
+                let cold = ColdLanes::of(curves, &t[k], &start, *h, run);
+                let heated = cold.heated(
                     #[inline(always)]
                     |j, r| arm_power_w(arms[j], k, r, leads[j], excitation[j]),
                 )?;
@@ -816,41 +791,73 @@ fn rtd_curve_at(curve: RtdCurve, errors: &[&[f64; LANES]; 3], k: usize) -> RtdCu
     }
 }
 
-/// [`self_heated`] in every lane of a batch: each step taken across the
-/// lanes before the next, so the lanes' curve evaluations run side by
-/// side. Every lane takes the same steps (none settles early), so each
-/// does the single run's operations in their order. `power(k, r)` is
-/// lane `k`'s dissipation at `r` Ω, `delta` each lane's dissipation
-/// constant.
-#[inline(always)]
-fn self_heated_lanes(
-    curves: &CurveLanes<'_>,
-    t: &[f64; LANES],
-    cold: &[f64; LANES],
+/// A column of elements before they heat: their curves, each lane's
+/// sensed temperature `t` (as the curves take it) and cold resistance,
+/// whether the response is strongly curved, and each lane's dissipation
+/// constant `delta`.
+struct ColdLanes<'a, 'c> {
+    curves: &'a CurveLanes<'c>,
+    t: &'a [f64; LANES],
+    cold: &'a [f64; LANES],
     curved: bool,
-    delta: &[f64; LANES],
-    power: impl Fn(usize, f64) -> f64,
-) -> Result<[f64; LANES], Lost> {
-    // rtd::self_heating_k's check of the dissipation constants, once for
-    // every step.
-    if !all_positive(delta) {
-        return Err(Lost);
+    delta: &'a [f64; LANES],
+}
+
+impl<'a, 'c> ColdLanes<'a, 'c> {
+    /// The column of elements at `t` with cold resistances `cold` that
+    /// heat as `heating` says, their dissipation constants from `run`.
+    #[inline(always)]
+    fn of(
+        curves: &'a CurveLanes<'c>,
+        t: &'a [f64; LANES],
+        cold: &'a [f64; LANES],
+        heating: Heating,
+        run: &'a LaneRun<'_>,
+    ) -> ColdLanes<'a, 'c> {
+        ColdLanes {
+            curves,
+            t,
+            cold,
+            curved: heating.curved,
+            delta: run.slot(heating.dissipation),
+        }
     }
-    let step = |from: &[f64; LANES]| heating_step(curves, t, delta, &power, from);
-    let r1 = step(cold)?;
-    let r2 = step(&r1)?;
-    let mut r = [0.0; LANES];
-    for k in 0..LANES {
-        r[k] = aitken(cold[k], r1[k], r2[k]);
-    }
-    if curved {
-        step(&r)
-    } else {
-        Ok(r)
+
+    /// [`self_heated`] in every lane of a batch: each step taken across
+    /// the lanes before the next, so the lanes' curve evaluations run
+    /// side by side. Every lane takes the same steps (none settles
+    /// early), so each does the single run's operations in their order.
+    /// `power(k, r)` is lane `k`'s dissipation at `r` Ω.
+    #[inline(always)]
+    fn heated(&self, power: impl Fn(usize, f64) -> f64) -> Result<[f64; LANES], Lost> {
+        let ColdLanes {
+            curves,
+            t,
+            cold,
+            curved,
+            delta,
+        } = *self;
+        // rtd::self_heating_k's check of the dissipation constants, once
+        // for every step.
+        if !all_positive(delta) {
+            return Err(Lost);
+        }
+        let step = |from: &[f64; LANES]| heating_step(curves, t, delta, &power, from);
+        let r1 = step(cold)?;
+        let r2 = step(&r1)?;
+        let mut r = [0.0; LANES];
+        for k in 0..LANES {
+            r[k] = aitken(cold[k], r1[k], r2[k]);
+        }
+        if curved {
+            step(&r)
+        } else {
+            Ok(r)
+        }
     }
 }
 
-/// One step of [`self_heated_lanes`]: [`ElementCurve::heated_resistance`]
+/// One step of [`ColdLanes::heated`]: [`ElementCurve::heated_resistance`]
 /// over the column, each lane's rise (`rtd::self_heating_k`'s check of
 /// the power counted, not returned; `delta` already checked), then the
 /// curve's resistances, one kind of curve a loop. Inlined, so a kernel built for a wider vector unit
