@@ -620,13 +620,12 @@ impl Conversion {
     fn fitted_lanes(&self, codes: &[f64; LANES], out: &mut [f64; LANES]) {
         match &self.method {
             Method::Exact => {}
-            Method::Linear {
+            &Method::Linear {
                 code_low,
                 code_high,
             } => {
-                let (low, span) = (self.range.0, self.range.1 - self.range.0);
                 for (x, &code) in out.iter_mut().zip(codes) {
-                    *x = low + (code - code_low) * span / (code_high - code_low);
+                    *x = on_line(self.range, (code_low, code_high), code);
                 }
             }
             Method::Table {
@@ -638,14 +637,13 @@ impl Conversion {
                     *x = linear_between(at, xs, code, buckets.segment(at, code));
                 }
             }
-            Method::Poly {
-                coefficients,
+            &Method::Poly {
+                ref coefficients,
                 mid,
                 half,
             } => {
                 for (x, &code) in out.iter_mut().zip(codes) {
-                    let u = (code - mid) / half;
-                    *x = coefficients.iter().rev().fold(0.0, |acc, c| acc * u + c);
+                    *x = on_poly(coefficients, mid, half, code);
                 }
             }
         }
@@ -692,27 +690,21 @@ impl Conversion {
     fn fitted(&self, code: f64) -> Option<f64> {
         match &self.method {
             Method::Exact => None,
-            Method::Linear {
+            &Method::Linear {
                 code_low,
                 code_high,
-            } => Some(
-                self.range.0
-                    + (code - code_low) * (self.range.1 - self.range.0) / (code_high - code_low),
-            ),
+            } => Some(on_line(self.range, (code_low, code_high), code)),
             Method::Table { codes, xs, buckets } => Some(linear_between(
                 codes,
                 xs,
                 code,
                 buckets.segment(codes, code),
             )),
-            Method::Poly {
-                coefficients,
+            &Method::Poly {
+                ref coefficients,
                 mid,
                 half,
-            } => {
-                let u = (code - mid) / half;
-                Some(coefficients.iter().rev().fold(0.0, |acc, c| acc * u + c))
-            }
+            } => Some(on_poly(coefficients, mid, half, code)),
         }
     }
 
@@ -1048,6 +1040,22 @@ fn linear_between(codes: &[f64], xs: &[f64], code: f64, before: usize) -> f64 {
     let k = before.clamp(1, n - 1);
     let (c0, c1, x0, x1) = (codes[k - 1], codes[k], xs[k - 1], xs[k]);
     x0 + (code - c0) * (x1 - x0) / (c1 - c0)
+}
+
+/// The linear method's reading for `code`: the line through the range's
+/// ends at the codes `ends`.
+#[inline(always)]
+fn on_line(range: (f64, f64), ends: (f64, f64), code: f64) -> f64 {
+    let (code_low, code_high) = ends;
+    range.0 + (code - code_low) * (range.1 - range.0) / (code_high - code_low)
+}
+
+/// The polynomial method's reading for `code`: Σ a_k u^k in the code
+/// normalised about `mid` by `half`.
+#[inline(always)]
+fn on_poly(coefficients: &[f64], mid: f64, half: f64, code: f64) -> f64 {
+    let u = (code - mid) / half;
+    coefficients.iter().rev().fold(0.0, |acc, c| acc * u + c)
 }
 
 /// Least squares for x ≈ Σ a_k u^k by the normal equations (u in [−1, 1]

@@ -2,7 +2,7 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
-use super::lanes::{all_finite, all_positive, celsius_within, Column, LaneRun, Lost, Tag};
+use super::lanes::{all_finite, all_positive, celsius_within, Column, LaneRun, Lost};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::{within, LANES};
@@ -65,15 +65,14 @@ impl<'a> SupplyLanes<'a> {
         fixed: &'a [f64; LANES],
         sensor_high: bool,
     ) -> SupplyLanes<'a> {
-        match exc.tag {
-            Tag::Source => SupplyLanes::Voltage {
+        // The kind is the first lane's, as a single run takes it.
+        match Supply::of_divider(exc.signal(0), fixed[0], sensor_high) {
+            Supply::Voltage { .. } => SupplyLanes::Voltage {
                 v: &exc.x,
                 other: fixed,
             },
-            Tag::Current if !sensor_high => SupplyLanes::Current(&exc.x),
-            Tag::None | Tag::Current | Tag::Element | Tag::Voltage | Tag::Code | Tag::Reading => {
-                SupplyLanes::None
-            }
+            Supply::Current(_) => SupplyLanes::Current(&exc.x),
+            Supply::None => SupplyLanes::None,
         }
     }
 }
@@ -581,19 +580,26 @@ impl Plan {
         let mut t = [0.0; LANES];
         let curves = self.element_curves(node, run, &mut t)?;
         let cold = ColdLanes::of(&curves, &t, &cold, heating, run);
-        // Supply::power_w, one kind of supply a loop.
+        // One kind of supply a loop: each lane's Supply is built where its
+        // kind is known, so its power_w compiles to that kind's formula.
         let heated = match supply {
             SupplyLanes::Voltage { v, other } => cold.heated(
                 #[inline(always)]
-                |k, r| strain::series_element_power_w(v[k], r, leads[k] + other[k]),
+                |k, r| {
+                    Supply::Voltage {
+                        v: v[k],
+                        other: other[k],
+                    }
+                    .power_w(r, leads[k])
+                },
             ),
             SupplyLanes::Current(a) => cold.heated(
                 #[inline(always)]
-                |k, r| a[k] * a[k] * r,
+                |k, r| Supply::Current(a[k]).power_w(r, leads[k]),
             ),
             SupplyLanes::None => cold.heated(
                 #[inline(always)]
-                |_, _| 0.0,
+                |k, r| Supply::None.power_w(r, leads[k]),
             ),
         }?;
         Ok(std::array::from_fn(|k| heated[k] + leads[k]))
@@ -859,9 +865,9 @@ impl<'a, 'c> ColdLanes<'a, 'c> {
 
 /// One step of [`ColdLanes::heated`]: [`ElementCurve::heated_resistance`]
 /// over the column, each lane's rise (`rtd::self_heating_k`'s check of
-/// the power counted, not returned; `delta` already checked), then the
-/// curve's resistances, one kind of curve a loop. Inlined, so a kernel built for a wider vector unit
-/// builds it so too.
+/// the power made over the lanes, not returned; `delta` already
+/// checked), then the curve's resistances, one kind of curve a loop.
+/// Inlined, so a kernel built for a wider vector unit builds it so too.
 #[inline(always)]
 fn heating_step(
     curves: &CurveLanes<'_>,

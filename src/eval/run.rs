@@ -115,7 +115,7 @@ impl Firmware for Plan {
 
 /// Plans are small; a fixed bound keeps every evaluation on the stack.
 pub const MAX_NODES: usize = 32;
-/// Evaluations [`Plan::unquantized_readings`] runs side by side.
+/// Evaluations [`Plan::unquantized_readings_calibrated`] runs side by side.
 pub const LANES: usize = 32;
 /// The signals of [`LANES`] evaluations.
 pub type LaneSignals = [[Signal; MAX_NODES]; LANES];
@@ -513,8 +513,9 @@ impl Plan {
         conversion.correct(self, x, calibrated)
     }
 
-    /// [`Plan::unquantized_reading`] for [`LANES`] sets of values at once
-    /// (`values` holds them one after another), into `readings`.
+    /// [`Plan::unquantized_reading_calibrated`] for [`LANES`] sets of
+    /// values at once (`batch` holds them one after another), each lane's
+    /// calibration known, into `readings`.
     ///
     /// The nodes run one at a time across every lane rather than one lane
     /// through every node: each run is a long chain of dependent arithmetic
@@ -525,28 +526,6 @@ impl Plan {
     ///
     /// `scratch` holds the lanes' signals; it needs no clearing between
     /// calls (every node is written before it is read).
-    pub fn unquantized_readings(
-        &self,
-        batch: &Batch,
-        env: &Env,
-        readings: &mut [f64; LANES],
-        scratch: &mut LaneColumns,
-    ) -> Result<(), EvalError> {
-        let n = self.slots.len();
-        if self
-            .column_readings(batch, env, None, readings, scratch)
-            .is_err()
-        {
-            let values = batch.rows();
-            for (lane, reading) in readings.iter_mut().enumerate() {
-                *reading = self.unquantized_reading(&values[lane * n..(lane + 1) * n], env)?;
-            }
-        }
-        Ok(())
-    }
-
-    /// [`Plan::unquantized_readings`] with each lane's calibration known
-    /// (as [`Plan::unquantized_reading_calibrated`]).
     pub fn unquantized_readings_calibrated(
         &self,
         batch: &Batch,
@@ -557,7 +536,7 @@ impl Plan {
     ) -> Result<(), EvalError> {
         let n = self.slots.len();
         if self
-            .column_readings(batch, env, Some(calibrated), readings, scratch)
+            .column_readings(batch, env, calibrated, readings, scratch)
             .is_err()
         {
             for (lane, reading) in readings.iter_mut().enumerate() {
@@ -594,14 +573,14 @@ impl Plan {
         Ok(())
     }
 
-    /// The readings of a batch, column by column (see [`super::lanes`]):
-    /// the calibration's points and the chain node by node across the
-    /// lanes, then the conversion's inverse and correction lane by lane.
+    /// The readings of a batch, column by column (see [`super::lanes`]),
+    /// each lane's calibration `known`: the chain node by node across the
+    /// lanes, then the conversion's inverse and correction.
     fn column_readings(
         &self,
         batch: &Batch,
         env: &Env,
-        known: Option<&[Calibrated; LANES]>,
+        known: &[Calibrated; LANES],
         readings: &mut [f64; LANES],
         columns: &mut LaneColumns,
     ) -> Result<(), Lost> {
@@ -616,7 +595,7 @@ impl Plan {
         &self,
         batch: &Batch,
         env: &Env,
-        known: Option<&[Calibrated; LANES]>,
+        known: &[Calibrated; LANES],
         readings: &mut [f64; LANES],
         columns: &mut LaneColumns,
     ) -> Result<(), Lost> {
@@ -625,10 +604,6 @@ impl Plan {
         let values = batch.rows();
         let lane = |k: usize| &values[k * n..(k + 1) * n];
         let conversion = self.main_conversion().map_err(|_| Lost)?;
-        let codes = match known {
-            Some(_) => [[0.0; 2]; LANES],
-            None => self.calibration_codes_lanes(conversion, values, columns)?,
-        };
         self.run_columns(
             values,
             env,
@@ -654,19 +629,7 @@ impl Plan {
                 }
             }
         }
-        let mut each = [Calibrated::None; LANES];
-        let calibrated = match known {
-            Some(known) => known,
-            None => {
-                for (k, c) in each.iter_mut().enumerate() {
-                    *c = conversion
-                        .calibrated_from(self, lane(k), &codes[k])
-                        .map_err(|_| Lost)?;
-                }
-                &each
-            }
-        };
-        conversion.correct_lanes(self, readings, calibrated)
+        conversion.correct_lanes(self, readings, known)
     }
 
     /// The calibration's exact codes, lane by lane, point by point (none
@@ -696,7 +659,7 @@ impl Plan {
     }
 
     /// [`Plan::calibration`] of each of the first `count` lanes of a
-    /// batch (`values` lane after lane) into `out`: a full batch through
+    /// batch (`batch`, lane after lane) into `out`: a full batch through
     /// the columns, else, or where a lane fails there, lane by lane, so
     /// the error is the one a single run meets first.
     pub fn calibrations(

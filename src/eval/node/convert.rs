@@ -7,6 +7,7 @@ use crate::eval::convert::{Calibrated, Calibration, Conversion, JunctionEmfs, Me
 use crate::eval::fault::FaultKind;
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{EvalError, NodeId, Senses, Signal, SlotId, SourceKind};
+use crate::eval::run::LANES;
 use crate::model::typed::{self, CalibrationMethod, ConversionMethod};
 use crate::model::value::Tolerance;
 
@@ -124,36 +125,34 @@ impl Convert {
         };
         let cj = self.cj.and_then(|n| run.s[n.index()].of(Tag::Reading));
         let conversion = &self.conversion;
-        let mut direct = codes;
+        let mut readings = codes;
         let answered = conversion.direct_lanes(
             run.plan,
             |k| run.row(k),
             run.env,
-            &mut direct,
+            &mut readings,
             cj,
             &mut JunctionEmfs::default(),
         );
-        // What `calibrate` answers without a calibration, known once.
-        let uncalibrated = conversion.calibration == Calibration::None;
-        out.tag = Tag::Reading;
-        for (k, reading) in out.x.iter_mut().enumerate() {
-            let values = run.row(k);
-            let x = if answered[k] {
-                direct[k]
-            } else {
-                conversion
-                    .invert(run.plan, values, run.env, codes[k], cj.map(|t| t[k]))
-                    .map_err(|_| Lost)?
-            };
-            let calibrated = if uncalibrated {
-                Calibrated::None
-            } else {
-                conversion.calibrate(run.plan, values).map_err(|_| Lost)?
-            };
-            *reading = conversion
-                .correct(run.plan, x, &calibrated)
-                .map_err(|_| Lost)?;
+        for (k, x) in readings.iter_mut().enumerate() {
+            if !answered[k] {
+                *x = conversion
+                    .invert(run.plan, run.row(k), run.env, codes[k], cj.map(|t| t[k]))
+                    .map_err(|_| Lost)?;
+            }
         }
+        // Without a calibration every lane's is None, known once.
+        let mut calibrated = [Calibrated::None; LANES];
+        if conversion.calibration != Calibration::None {
+            for (k, c) in calibrated.iter_mut().enumerate() {
+                *c = conversion
+                    .calibrate(run.plan, run.row(k))
+                    .map_err(|_| Lost)?;
+            }
+        }
+        conversion.correct_lanes(run.plan, &mut readings, &calibrated)?;
+        out.tag = Tag::Reading;
+        out.x = readings;
         Ok(())
     }
 }
