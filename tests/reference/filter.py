@@ -12,7 +12,8 @@ the -3 dB frequency of the whole cascade, as in the Rust model.
 All frequencies are normalised to the cutoff (fc = 1 Hz, wc = 2*pi rad/s).
 Output: fixtures/ beside this file, fixed %.10e formatting (eleven digits: the last ones of scipy's
 matrix exponential and root finding move with the CPU's vector paths), so a rerun with
-the pinned versions (requirements.txt) is byte-identical.
+the pinned versions (requirements.txt) on the same CPU is byte-identical, and on
+another agrees to 1e-9 (check/same_as_committed.py, as CI runs it).
 
 Run:  python3 -m venv .venv && .venv/bin/pip install -r requirements.txt
       .venv/bin/python filter.py
