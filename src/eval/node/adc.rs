@@ -206,9 +206,16 @@ impl Adc {
         if !lanes::all_positive(&vr) {
             return Err(Lost);
         }
-        if self.combine.is_none() {
-            self.codes_lanes(run, input, &vr, out);
-            return Ok(());
+        match &self.combine {
+            None => {
+                self.codes_lanes(run, input, &vr, out);
+                return Ok(());
+            }
+            Some((CombineOp::Sum, others)) => {
+                self.codes_lanes(run, input, &vr, out);
+                return self.summed_lanes(run, others, out);
+            }
+            Some((CombineOp::Ratio, _)) => {}
         }
         for (k, &vr) in vr.iter().enumerate() {
             let own = self.code_of(
@@ -271,6 +278,39 @@ impl Adc {
             out.x[k] = exact;
             out.code[k] = round_code(exact, lo, hi);
         }
+    }
+
+    /// [`Adc::combine_with`] for a sum, over whole columns: `out` holds
+    /// this channel's own codes and takes the sum's. The codes add as
+    /// integers, which is what the single run's sum of whole numbers
+    /// rounds to (each code is within ±2³², so the sum is exact).
+    #[inline(always)]
+    fn summed_lanes(
+        &self,
+        run: &LaneRun<'_>,
+        others: &[NodeId],
+        out: &mut Column,
+    ) -> Result<(), Lost> {
+        let (lo, hi) = self.codes;
+        let mut exact = out.x;
+        ended_lanes(&mut exact, lo, hi);
+        for &n in others {
+            let other = &run.s[n.index()];
+            if other.tag != Tag::Code {
+                return Err(Lost);
+            }
+            let mut e = other.x;
+            ended_lanes(&mut e, lo, hi);
+            for k in 0..LANES {
+                exact[k] += e[k];
+                out.code[k] += other.code[k];
+            }
+        }
+        if !lanes::all_finite(&exact) {
+            return Err(Lost);
+        }
+        out.x = exact;
+        Ok(())
     }
 
     /// Each lane's gain, its PGA's (1 without) times 1 + its gain error.
@@ -527,6 +567,15 @@ impl Plan {
     }
 }
 
+/// `f64::clamp` of each lane, as selects (NaN stays NaN).
+#[inline(always)]
+fn ended_lanes(x: &mut [f64; LANES], lo: f64, hi: f64) {
+    for x in x.iter_mut() {
+        let low = if *x < lo { lo } else { *x };
+        *x = if low > hi { hi } else { low };
+    }
+}
+
 /// The nearest code (halves away from zero) within `lo ..= hi`, both
 /// whole and within ±2⁵¹ (a converter has at most 32 bits); 0 for NaN.
 /// Adding 1.5 × 2⁵² rounds a number of that size to a whole one (ties to
@@ -550,6 +599,69 @@ fn round_code(exact: f64, lo: f64, hi: f64) -> i64 {
 #[cfg(test)]
 mod tests {
     use super::round_code;
+    use crate::eval::lanes::check;
+    use crate::eval::plan::Env;
+    use crate::units::ZERO_CELSIUS_K;
+
+    /// Two load cells on channels of one converter, the codes added: a
+    /// cell of each lane's own tolerances, and a range wide enough that
+    /// the heaviest loads drive each channel past its full scale.
+    const SUMMED: &str = r#"
+chain pair "p" {
+    measurand mass 0 kg .. 8000 kg
+    excitation supply { voltage 5 V ± 0.2 % }
+    sensor leg_1 {
+        transducer
+        sensitivity 2 mV/V ± 0.1 % at 1000 kg
+        zero ± 0.05 mV/V
+        share 50 %
+    }
+    sensor leg_2 {
+        transducer
+        sensitivity 2 mV/V ± 0.1 % at 1000 kg
+        zero ± 0.05 mV/V
+        share 50 %
+    }
+    adc conv {
+        bits 24
+        input differential
+        pga 128
+        offset 2 uV max
+        gain_error ± 0.01 %
+        inl ± 2 LSB
+    }
+    adc leg_2_in {
+        channel_of conv
+        pga 128
+    }
+    convert reading {
+        method linear
+        sum leg_2_in
+    }
+    supply -> leg_1 -> conv -> reading
+    supply -> leg_2 -> leg_2_in
+    supply -> conv.ref
+}
+"#;
+
+    #[test]
+    fn summed_codes_in_lanes_match_single_runs() {
+        let plan = check::plan(SUMMED);
+        let conv = check::node(&plan, "conv");
+        let rows = check::spread(&plan);
+        for kg in [0.0, 2000.0, 7000.0, 8000.0] {
+            let env = Env {
+                measurand: kg,
+                ambient: ZERO_CELSIUS_K + 25.0,
+                cold_junction: ZERO_CELSIUS_K + 25.0,
+            };
+            for calibrating in [false, true] {
+                let mode = check::mode(true, calibrating);
+                check::matches_single_runs(&plan, conv, &rows, &env, mode)
+                    .expect("every lane runs");
+            }
+        }
+    }
 
     #[test]
     fn codes_round_as_f64_round_then_clamp() {
