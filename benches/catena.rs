@@ -4,7 +4,7 @@
 use std::path::Path;
 
 use catena::analysis::budget::{self, Options as BudgetOptions};
-use catena::analysis::monte_carlo::{interval, intervals, Condition};
+use catena::analysis::monte_carlo::{interval, intervals, sample, Condition};
 use catena::analysis::report::{analyse, Options, DEFAULT_TRIALS};
 use catena::check::check_bytes;
 use catena::eval::{lower, Env};
@@ -156,6 +156,59 @@ fn budget_default(bencher: divan::Bencher, name: &str) {
             .sum::<usize>()
     });
 }
+
+/// The Monte Carlo of each demo spec as `catena budget` runs it by
+/// default: every chain, 21 points at each ambient, 10 000 trials a point,
+/// each source's variance share. Run on one thread
+/// (`RAYON_NUM_THREADS=1 cargo bench --bench catena -- monte_carlo_each_demo`)
+/// the time over chains × points × trials is the CPU per trial and point.
+#[divan::bench(sample_count = 5, sample_size = 1, args = DEMOS)]
+fn monte_carlo_each_demo(bencher: divan::Bencher, name: &str) {
+    let checked = check_bytes(name, &spec(name), &specs_dir(), &mut PartsCache::default());
+    let runs: Vec<_> = checked
+        .chains
+        .iter()
+        .map(|c| {
+            let plan = lower(c).expect("lowers");
+            let b = budget::budget(c, &plan, &BudgetOptions::default()).expect("budget");
+            (plan, Condition::of_points(&b.points), b.noise)
+        })
+        .collect();
+    let trial_points: usize = runs.iter().map(|(_, c, _)| c.len() * DEFAULT_TRIALS).sum();
+    bencher
+        .counter(divan::counter::ItemsCount::new(trial_points))
+        .bench(|| {
+            runs.iter()
+                .map(|(plan, conditions, noise)| {
+                    let seed = catena::analysis::report::DEFAULT_SEED;
+                    sample(
+                        plan,
+                        conditions,
+                        noise,
+                        DEFAULT_TRIALS,
+                        seed,
+                        true,
+                        &|_, _| {},
+                    )
+                    .expect("runs")
+                    .len()
+                })
+                .sum::<usize>()
+        });
+}
+
+/// Every demo spec.
+const DEMOS: [&str; 9] = [
+    "bakery_oven.catena",
+    "battery_pack.catena",
+    "cold_store.catena",
+    "creamery.catena",
+    "feed_silo.catena",
+    "greenhouse_soil.catena",
+    "pottery_kiln.catena",
+    "timber_hoist.catena",
+    "weighing_hopper.catena",
+];
 
 /// The chain `benches/numpy_mc.py` implements in vectorised NumPy, for the
 /// ratio in the README: 10^6 trials at each of 21 points.

@@ -6,7 +6,7 @@ use super::lanes::{all_finite, all_positive, celsius_within, Column, LaneRun, Lo
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
 use super::run::{within, LANES};
-use crate::physics::{rtd, strain, thermistor};
+use crate::physics::{exp, rtd, strain, thermistor};
 use crate::units::ZERO_CELSIUS_K;
 
 /// What drives a divider's element: a voltage across it in series with
@@ -770,9 +770,7 @@ fn beta_resistances(
     for k in 0..LANES {
         out[k] = thermistor::beta_exponent(t_ref, beta[k], t[k]);
     }
-    for x in out.iter_mut() {
-        *x = x.exp();
-    }
+    exp::exp_each(out);
     for k in 0..LANES {
         out[k] *= r25[k];
     }

@@ -3,6 +3,7 @@
 
 pub mod adc;
 pub mod constants;
+pub mod exp;
 pub mod filter;
 pub mod noise;
 pub mod rtd;

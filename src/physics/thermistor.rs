@@ -9,6 +9,8 @@
 //! three-point fit of a single Beta curve returns C = 0 exactly; a real
 //! curve (e.g. one rated with different β(25/50) and β(25/85)) gives C > 0.
 
+use super::exp::exp;
+
 /// Why a thermistor computation has no answer.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, thiserror::Error)]
 pub enum ThermistorError {
@@ -75,7 +77,7 @@ pub fn beta_resistance(r_ref: f64, t_ref_k: f64, beta_k: f64, t_k: f64) -> Res<f
     positive_r(r_ref)?;
     positive_t(t_ref_k)?;
     positive_t(t_k)?;
-    finite_out(r_ref * beta_exponent(t_ref_k, beta_k, t_k).exp())
+    finite_out(r_ref * exp(beta_exponent(t_ref_k, beta_k, t_k)))
 }
 
 /// The beta model's exponent, ln(R/R_ref) = β (1/T − 1/T_ref): the
@@ -173,7 +175,7 @@ pub fn sh_resistance(k: SteinhartHart, t_k: f64) -> Res<f64> {
     let f = k.c * x * x * x + k.b * x + e;
     let df = 3.0 * k.c * x * x + k.b;
     let x = if df > 0.0 { x - f / df } else { x };
-    finite_out(x.exp())
+    finite_out(exp(x))
 }
 
 /// Three-point Steinhart–Hart fit: `points` are (T in K, R in Ω). Solves

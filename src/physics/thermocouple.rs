@@ -27,6 +27,7 @@
 
 use std::fmt;
 
+use super::exp::{exp, exp_each};
 use super::solve::{newton_bracketed, try_bisect, Root, Stop};
 
 use super::thermocouple_coefficients::{
@@ -171,7 +172,7 @@ fn eval_range(r: &ForwardRange, t_c: f64) -> (f64, f64) {
     let (mut e, mut s) = poly_and_derivative(r.coeffs, t_c);
     if let Some((a0, a1, a2)) = r.exponential {
         let x = t_c - a2;
-        let g = a0 * (a1 * x * x).exp();
+        let g = a0 * exp(a1 * x * x);
         e += g;
         s += g * 2.0 * a1 * x;
     }
@@ -202,7 +203,7 @@ pub fn emf_mv(ty: ThermocoupleType, t_c: f64) -> Result<f64, OutOfRange> {
     let mut e = poly(r.coeffs, t_c);
     if let Some((a0, a1, a2)) = r.exponential {
         let x = t_c - a2;
-        e += a0 * (a1 * x * x).exp();
+        e += a0 * exp(a1 * x * x);
     }
     Ok(e)
 }
@@ -236,9 +237,14 @@ pub fn emf_mv_each<const N: usize>(
         }
     }
     if let Some((a0, a1, a2)) = r.exponential {
-        for (e, &t) in e.iter_mut().zip(t_c) {
+        let mut g = [0.0; N];
+        for (g, &t) in g.iter_mut().zip(t_c) {
             let x = t - a2;
-            *e += a0 * (a1 * x * x).exp();
+            *g = a1 * x * x;
+        }
+        exp_each(&mut g);
+        for (e, g) in e.iter_mut().zip(g) {
+            *e += a0 * g;
         }
     }
     Ok(())
