@@ -383,14 +383,22 @@ enum Varies {
     Not,
     /// Recorded while drawing, in this column.
     Column(usize),
-    /// Recomputed from the stream.
-    Stream(Stream),
+    /// Recorded while drawing, in this one of the condition's own columns
+    /// ([`OWN_COLUMNS`]).
+    Own(usize),
 }
 
+/// Each condition's own streams whose cells are recorded: its reading's
+/// noise, then its quantization.
+const OWN_COLUMNS: usize = 2;
+
 /// A chunk's part of every recorded column of partition cells (none when
-/// no shares are asked for), from index `at` of the chunk.
+/// no shares are asked for), from index `at` of the chunk: the sources'
+/// shared by every condition, and each condition's own
+/// ([`OWN_COLUMNS`] a condition, empty where its stream does not act).
 struct Cells<'a> {
     columns: Vec<&'a mut [u8]>,
+    own: Vec<&'a mut [u8]>,
     count: usize,
     at: usize,
 }
@@ -404,6 +412,19 @@ impl Cells<'_> {
             for (cell, &bits) in cells[at..at + bits.len()].iter_mut().zip(bits) {
                 // At most MAX_CELLS (256) cells: the index fits a byte.
                 *cell = cell_of(bits, count) as u8;
+            }
+        }
+    }
+
+    /// Each lane's cell in condition `c`'s own column `which`, if recorded.
+    #[inline(always)]
+    fn record_own(&mut self, c: usize, which: usize, bits: &[u64]) {
+        let (at, count) = (self.at, self.count);
+        if let Some(cells) = self.own.get_mut(c * OWN_COLUMNS + which) {
+            if let Some(cells) = cells.get_mut(at..at + bits.len()) {
+                for (cell, &bits) in cells.iter_mut().zip(bits) {
+                    *cell = cell_of(bits, count) as u8;
+                }
             }
         }
     }
@@ -429,10 +450,10 @@ impl Reading {
     }
 
     fn named<'a>(self) -> impl Iterator<Item = (&'a str, Varies)> {
-        let noise = self.noise.map(|s| (NOISE_ID as &'a str, Varies::Stream(s)));
+        let noise = self.noise.map(|_| (NOISE_ID as &'a str, Varies::Own(0)));
         let quantization = self
             .quantization
-            .map(|s| (QUANTIZATION_ID as &'a str, Varies::Stream(s)));
+            .map(|_| (QUANTIZATION_ID as &'a str, Varies::Own(1)));
         noise.into_iter().chain(quantization)
     }
 }
@@ -449,14 +470,16 @@ struct Run<'a> {
     shares: bool,
 }
 
-/// One chunk's part of every condition's errors and of every recorded
-/// column of partition cells.
-type Task<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>);
+/// One chunk's part of every condition's errors, of every recorded column
+/// of the sources' partition cells, and of every condition's own.
+type Task<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>, Vec<&'a mut [u8]>);
 
-/// Each chunk's slices of every condition's errors and every cell column.
+/// Each chunk's slices of every condition's errors and every cell column
+/// (an empty column an empty slice in every chunk).
 fn chunk_tasks<'a>(
     errors: &'a mut [Vec<f64>],
     cells: &'a mut [Vec<u8>],
+    own: &'a mut [Vec<u8>],
     trials: usize,
 ) -> Vec<Task<'a>> {
     let mut tasks: Vec<Task> = (0..trials.div_ceil(CHUNK))
@@ -464,6 +487,7 @@ fn chunk_tasks<'a>(
             (
                 Vec::with_capacity(errors.len()),
                 Vec::with_capacity(cells.len()),
+                Vec::with_capacity(own.len()),
             )
         })
         .collect();
@@ -475,6 +499,12 @@ fn chunk_tasks<'a>(
     for column in cells {
         for (task, part) in tasks.iter_mut().zip(column.chunks_mut(CHUNK)) {
             task.1.push(part);
+        }
+    }
+    for column in own {
+        let mut parts = column.chunks_mut(CHUNK);
+        for task in &mut tasks {
+            task.2.push(parts.next().unwrap_or_default());
         }
     }
     tasks
@@ -537,11 +567,17 @@ impl Run<'_> {
         let count = super::shares::cells(trials);
         let columns = if shares { sources.columns() } else { 0 };
         let mut cells: Vec<Vec<u8>> = (0..columns).map(|_| vec![0; trials]).collect();
-        let tasks = chunk_tasks(&mut errors, &mut cells, trials);
+        let mut own: Vec<Vec<u8>> = at
+            .iter()
+            .filter(|_| shares)
+            .flat_map(|at| [at.reading.noise, at.reading.quantization])
+            .map(|acts| acts.map_or(Vec::new(), |_| vec![0; trials]))
+            .collect();
+        let tasks = chunk_tasks(&mut errors, &mut cells, &mut own, trials);
         let outcomes: Vec<Vec<Result<(), EvalError>>> = tasks
             .into_par_iter()
             .enumerate()
-            .map(|(chunk, (mut outs, columns))| {
+            .map(|(chunk, (mut outs, columns, own))| {
                 let block = Block {
                     plan,
                     sources: &sources,
@@ -549,6 +585,7 @@ impl Run<'_> {
                 };
                 let mut cells = Cells {
                     columns,
+                    own,
                     count,
                     at: 0,
                 };
@@ -558,7 +595,7 @@ impl Run<'_> {
         first_failure(outcomes, conditions.len())?;
         let intervals: Vec<Interval> = errors.par_iter().map(|all| coverage(all)).collect();
         let mut shared = if shares {
-            variance_shares(plan, &sources, &at, &cells, &errors)
+            variance_shares(plan, &sources, &at, (&cells, &own), &errors)
         } else {
             Vec::new()
         };
@@ -578,15 +615,16 @@ fn variance_shares(
     plan: &Plan,
     sources: &Sources,
     at: &[At],
-    columns: &[Vec<u8>],
+    (columns, own): (&[Vec<u8>], &[Vec<u8>]),
     errors: &[Vec<f64>],
 ) -> Vec<Vec<Share>> {
-    use super::shares::{first_order_columns, first_order_in, CenteredGroup};
+    use super::shares::{first_order_columns, first_order_recorded, CenteredGroup};
     let columns: Vec<&[u8]> = columns.iter().map(Vec::as_slice).collect();
     let groups: Vec<Vec<Vec<Share>>> = errors
         .par_chunks(GROUP)
         .zip(at.par_chunks(GROUP))
-        .map(|(errors, at)| {
+        .zip(own.par_chunks(GROUP * OWN_COLUMNS))
+        .map(|((errors, at), own)| {
             let runs: Vec<&[f64]> = errors.iter().map(Vec::as_slice).collect();
             let cells = super::shares::cells(runs.first().map_or(0, |r| r.len()));
             let centered = CenteredGroup::new(&runs);
@@ -602,7 +640,12 @@ fn variance_shares(
                             share: match varies {
                                 Varies::Not => 0.0,
                                 Varies::Column(k) => by_column[k][g],
-                                Varies::Stream(s) => first_order_in(&centered, g, s, cells),
+                                Varies::Own(k) => first_order_recorded(
+                                    &centered,
+                                    g,
+                                    &own[g * OWN_COLUMNS + k],
+                                    cells,
+                                ),
                             },
                         })
                         .collect()
@@ -652,13 +695,14 @@ impl Block<'_> {
                 .fill(values.rows_mut(), slots, t0, count, cells);
             let calibration =
                 plan.calibrations(&values, count, &mut calibrated, &mut lanes.scratch);
-            for ((at, out), result) in at.iter().zip(outs.iter_mut()).zip(&mut outcome) {
+            let conditions = at.iter().enumerate().zip(outs.iter_mut());
+            for ((at, out), result) in conditions.zip(&mut outcome) {
                 if result.is_err() {
                     continue;
                 }
                 let out = &mut out[start..start + count];
                 let known = calibration.as_ref().ok().map(|()| &calibrated);
-                *result = self.block(at, &values, known, t0, out, &mut lanes);
+                *result = self.block(at, &values, known, t0, out, &mut lanes, cells);
             }
         }
         outcome
@@ -667,14 +711,16 @@ impl Block<'_> {
     /// One block of trials from `t0` at one condition into `out`. Without
     /// a calibration (it failed in some lane) each lane runs whole, so the
     /// error is the one a single run meets first.
+    #[allow(clippy::too_many_arguments)]
     fn block(
         &self,
-        at: &At,
+        (c, at): (usize, &At),
         batch: &Batch,
         calibrated: Option<&[Calibrated; LANES]>,
         t0: u64,
         out: &mut [f64],
         lanes: &mut Lanes,
+        cells: &mut Cells,
     ) -> Result<(), EvalError> {
         let (plan, env) = (self.plan, &at.condition.env);
         let (slots, values) = (plan.nominal.len(), batch.rows());
@@ -704,7 +750,7 @@ impl Block<'_> {
         }
         wide::run(
             #[inline(always)]
-            || self.add_reading_errors(at, env, t0, readings, out),
+            || self.add_reading_errors((c, at), env, t0, readings, out, cells),
         );
         Ok(())
     }
@@ -714,19 +760,25 @@ impl Block<'_> {
     #[inline(always)]
     fn add_reading_errors(
         &self,
-        at: &At,
+        (c, at): (usize, &At),
         env: &Env,
         t0: u64,
         readings: &[f64; LANES],
         out: &mut [f64],
+        cells: &mut Cells,
     ) {
         let (condition, reading) = (at.condition, at.reading);
         let (mut z, mut q) = ([0.0; LANES], [0.0; LANES]);
+        let mut bits = [0; LANES];
         if let Some(s) = reading.noise {
-            s.normals(t0, &mut z);
+            s.bits_each(t0, &mut bits);
+            normals_of(&bits, &mut z);
+            cells.record_own(c, 0, &bits[..out.len()]);
         }
         if let Some(s) = reading.quantization {
-            s.uniforms(t0, &mut q);
+            s.bits_each(t0, &mut bits);
+            uniforms_of(&bits, &mut q);
+            cells.record_own(c, 1, &bits[..out.len()]);
             for q in q.iter_mut() {
                 *q -= 0.5;
             }

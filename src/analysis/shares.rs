@@ -134,42 +134,31 @@ impl<'a> CenteredGroup<'a> {
     }
 }
 
-/// [`first_order`] of run `g` of `y` for the source drawn from `stream`.
-pub fn first_order_in(y: &CenteredGroup, g: usize, stream: Stream, cells: usize) -> f64 {
+/// [`first_order`] of run `g` of `y` for a source whose cells were
+/// recorded while drawing (`column[t]`, trial t's cell): the same sums
+/// in the same order.
+pub fn first_order_recorded(y: &CenteredGroup, g: usize, column: &[u8], cells: usize) -> f64 {
     wide::run(
         #[inline(always)]
-        || first_order_in_kernel(y, g, stream, cells),
+        || first_order_recorded_kernel(y, g, column, cells),
     )
 }
 
 #[inline(always)]
-fn first_order_in_kernel(y: &CenteredGroup, g: usize, stream: Stream, cells: usize) -> f64 {
+fn first_order_recorded_kernel(y: &CenteredGroup, g: usize, column: &[u8], cells: usize) -> f64 {
     let (n, total) = (y.n, y.totals[g]);
     if g >= y.runs.len() || !usable_of(n, total, cells) {
         return 0.0;
     }
     if cells > MAX_CELLS {
-        return first_order_by(&y.run(g), cells, |t| stream.cell(t as u64, cells));
+        return first_order_by(&y.run(g), cells, |t| usize::from(column[t]));
     }
-    // A block's cells first, in a loop of hashes alone that vectorises,
-    // then the sums, whose scattered additions do not.
-    const BLOCK: usize = 1024;
     let (mut count, mut sum) = ([0u32; MAX_CELLS], [0.0; MAX_CELLS]);
-    let mut block = [0u8; BLOCK];
-    let run = &y.runs[g][..n];
     let mean = y.means[g];
-    for start in (0..n).step_by(BLOCK) {
-        let rows = &run[start..n.min(start + BLOCK)];
-        let block = &mut block[..rows.len()];
-        for (i, cell) in block.iter_mut().enumerate() {
-            // Below MAX_CELLS: a byte.
-            *cell = stream.cell((start + i) as u64, cells) as u8;
-        }
-        for (&cell, &v) in block.iter().zip(rows) {
-            let cell = usize::from(cell);
-            count[cell] += 1;
-            sum[cell] += v - mean;
-        }
+    for (&cell, &v) in column[..n].iter().zip(&y.runs[g][..n]) {
+        let cell = usize::from(cell);
+        count[cell] += 1;
+        sum[cell] += v - mean;
     }
     index_from(n, total, &count[..cells], &sum[..cells])
 }
@@ -353,7 +342,8 @@ mod tests {
             for (k, &st) in s.iter().enumerate() {
                 let want = first_order(&alone, st, cells).to_bits();
                 assert_eq!(grouped[k][g].to_bits(), want, "run {g} source {k}");
-                assert_eq!(first_order_in(&group, g, st, cells).to_bits(), want);
+                let recorded = first_order_recorded(&group, g, columns[k], cells);
+                assert_eq!(recorded.to_bits(), want);
             }
         }
         assert!(grouped.iter().all(|k| k[3..].iter().all(|&x| x == 0.0)));
