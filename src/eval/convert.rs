@@ -311,18 +311,32 @@ fn junction_emf_mv(ty: ThermocoupleType, cj: f64) -> Option<f64> {
 /// polynomial and an exponential a lane.
 #[derive(Clone, Debug, Default)]
 pub struct JunctionEmfs {
-    key: Option<(ThermocoupleType, [u64; LANES])>,
+    ty: Option<ThermocoupleType>,
+    junctions: [f64; LANES],
     emf_mv: [Option<f64>; LANES],
 }
 
 impl JunctionEmfs {
-    fn at(&mut self, ty: ThermocoupleType, junctions: &[f64; LANES]) -> [Option<f64>; LANES] {
-        let key = Some((ty, junctions.map(f64::to_bits)));
-        if self.key != key {
-            self.emf_mv = junctions.map(|cj| junction_emf_mv(ty, cj));
-            self.key = key;
+    /// The EMFs of `junctions`, lent rather than copied: the batch's
+    /// lookups read them in place, and the test that they still hold is a
+    /// comparison of bits over the lanes, which vectorises.
+    #[inline(always)]
+    fn at(&mut self, ty: ThermocoupleType, junctions: &[f64; LANES]) -> &[Option<f64>; LANES] {
+        let same = self
+            .junctions
+            .iter()
+            .zip(junctions)
+            .fold(self.ty == Some(ty), |same, (a, b)| same & (a.to_bits() == b.to_bits()));
+        if !same {
+            self.refresh(ty, junctions);
         }
-        self.emf_mv
+        &self.emf_mv
+    }
+
+    fn refresh(&mut self, ty: ThermocoupleType, junctions: &[f64; LANES]) {
+        self.emf_mv = junctions.map(|cj| junction_emf_mv(ty, cj));
+        self.junctions = *junctions;
+        self.ty = Some(ty);
     }
 }
 
