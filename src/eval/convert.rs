@@ -326,7 +326,9 @@ impl JunctionEmfs {
             .junctions
             .iter()
             .zip(junctions)
-            .fold(self.ty == Some(ty), |same, (a, b)| same & (a.to_bits() == b.to_bits()));
+            .fold(self.ty == Some(ty), |same, (a, b)| {
+                same & (a.to_bits() == b.to_bits())
+            });
         if !same {
             self.refresh(ty, junctions);
         }
@@ -1223,7 +1225,7 @@ mod tests {
         one_warmer[3] += 1.0;
         let mut kept = JunctionEmfs::default();
         for (ty, junctions) in [(K, at_25), (K, at_25), (K, one_warmer), (J, one_warmer)] {
-            assert_eq!(kept.at(ty, &junctions), fresh(ty, &junctions));
+            assert_eq!(*kept.at(ty, &junctions), fresh(ty, &junctions));
         }
         // Type K at 25 °C: 1.000 mV (IEC 60584-1 table, recalled).
         assert!((kept.at(K, &at_25)[0].unwrap() - 1.000).abs() < 0.001);

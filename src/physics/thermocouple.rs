@@ -219,12 +219,11 @@ pub fn emf_mv_each<const N: usize>(
     t_c: &[f64; N],
     e: &mut [f64; N],
 ) -> Result<(), OutOfRange> {
-    let first = t_c.first().and_then(|&t| forward_range(ty, t));
-    let shared = first.filter(|r| {
-        t_c.iter()
-            .all(|&t| forward_range(ty, t).is_some_and(|own| std::ptr::eq(own, *r)))
-    });
-    let Some(r) = shared else {
+    let Some(r) = t_c
+        .first()
+        .and_then(|&t| forward_range(ty, t))
+        .filter(|r| holds_all(ty, r, t_c))
+    else {
         for (e, &t) in e.iter_mut().zip(t_c) {
             *e = emf_mv(ty, t)?;
         }
@@ -248,6 +247,25 @@ pub fn emf_mv_each<const N: usize>(
         }
     }
     Ok(())
+}
+
+/// Whether [`forward_range`] gives `r` for every one of `t_c`: each lies
+/// within it and within none of the sub-ranges before it (the lower one
+/// is taken at a shared end). Tested lane by lane without a branch,
+/// which vectorises, where a search a lane does not.
+#[inline(always)]
+fn holds_all<const N: usize>(ty: ThermocoupleType, r: &ForwardRange, t_c: &[f64; N]) -> bool {
+    let within = |r: &ForwardRange, t: f64| (r.t_min_c <= t) & (t <= r.t_max_c);
+    let mut all = t_c.iter().fold(true, |all, &t| all & within(r, t));
+    for before in ty
+        .coefficients()
+        .forward
+        .iter()
+        .take_while(|b| !std::ptr::eq(*b, r))
+    {
+        all = t_c.iter().fold(all, |all, &t| all & !within(before, t));
+    }
+    all
 }
 
 /// E(t) and dE/dt together, for the price of one.
@@ -619,6 +637,27 @@ mod horner_tests {
                         }
                     }
                     Err(_) => assert!(whole.is_err(), "{ty:?} at {centre}"),
+                }
+            }
+        }
+    }
+
+    /// At the end two sub-ranges share, a temperature belongs to the
+    /// lower one: a batch led by one above it, with one at the end, is
+    /// not one sub-range's, and each gets its own EMF to the bit.
+    #[test]
+    fn a_shared_end_belongs_to_the_lower_sub_range() {
+        for ty in ThermocoupleType::ALL {
+            for pair in ty.coefficients().forward.windows(2) {
+                let end = pair[0].t_max_c;
+                assert_eq!(end, pair[1].t_min_c, "{ty:?}: sub-ranges meet");
+                for t in [[end + 0.5, end, end + 0.25, end + 1.0], [end; 4]] {
+                    let mut e = [0.0; 4];
+                    emf_mv_each(ty, &t, &mut e).expect("in range");
+                    for (got, &t) in e.iter().zip(&t) {
+                        let want = emf_mv(ty, t).expect("in range");
+                        assert_eq!(got.to_bits(), want.to_bits(), "{ty:?} at {t}");
+                    }
                 }
             }
         }
