@@ -335,8 +335,16 @@ impl JunctionEmfs {
         &self.emf_mv
     }
 
+    /// Every lane's EMF at once where all are in range (the batch's
+    /// vector unit then does the exponentials), else each alone.
+    #[inline(always)]
     fn refresh(&mut self, ty: ThermocoupleType, junctions: &[f64; LANES]) {
-        self.emf_mv = junctions.map(|cj| junction_emf_mv(ty, cj));
+        let celsius = junctions.map(|cj| cj - ZERO_CELSIUS_K);
+        let mut emf_mv = [0.0; LANES];
+        self.emf_mv = match thermocouple::emf_mv_each(ty, &celsius, &mut emf_mv) {
+            Ok(()) => emf_mv.map(Some),
+            Err(_) => junctions.map(|cj| junction_emf_mv(ty, cj)),
+        };
         self.junctions = *junctions;
         self.ty = Some(ty);
     }
