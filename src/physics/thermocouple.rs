@@ -219,10 +219,13 @@ pub fn emf_mv_each<const N: usize>(
     t_c: &[f64; N],
     e: &mut [f64; N],
 ) -> Result<(), OutOfRange> {
-    let Some(r) = t_c
+    let ranges = ty.coefficients().forward;
+    let first = t_c
         .first()
-        .and_then(|&t| forward_range(ty, t))
-        .filter(|r| holds_all(ty, r, t_c))
+        .and_then(|&t| ranges.iter().position(|r| within(r, t)));
+    let Some(r) = first
+        .filter(|&i| holds_all(&ranges[..=i], t_c))
+        .map(|i| &ranges[i])
     else {
         for (e, &t) in e.iter_mut().zip(t_c) {
             *e = emf_mv(ty, t)?;
@@ -249,23 +252,28 @@ pub fn emf_mv_each<const N: usize>(
     Ok(())
 }
 
-/// Whether [`forward_range`] gives `r` for every one of `t_c`: each lies
-/// within it and within none of the sub-ranges before it (the lower one
-/// is taken at a shared end). Tested lane by lane without a branch,
-/// which vectorises, where a search a lane does not.
+/// Whether [`forward_range`] gives the last of `ranges` (a type's
+/// sub-ranges up to it) for every one of `t_c`: each lies within it and
+/// within none before it (the lower one is taken at a shared end).
+/// Tested lane by lane without a branch, which vectorises, where a search
+/// a lane does not. (By position, not by address: a constant's address
+/// may differ from one use to another.)
 #[inline(always)]
-fn holds_all<const N: usize>(ty: ThermocoupleType, r: &ForwardRange, t_c: &[f64; N]) -> bool {
-    let within = |r: &ForwardRange, t: f64| (r.t_min_c <= t) & (t <= r.t_max_c);
+fn holds_all<const N: usize>(ranges: &[ForwardRange], t_c: &[f64; N]) -> bool {
+    let Some((r, before)) = ranges.split_last() else {
+        return false;
+    };
     let mut all = t_c.iter().fold(true, |all, &t| all & within(r, t));
-    for before in ty
-        .coefficients()
-        .forward
-        .iter()
-        .take_while(|b| !std::ptr::eq(*b, r))
-    {
-        all = t_c.iter().fold(all, |all, &t| all & !within(before, t));
+    for b in before {
+        all = t_c.iter().fold(all, |all, &t| all & !within(b, t));
     }
     all
+}
+
+/// Whether `t` (°C) lies within sub-range `r`, ends included.
+#[inline(always)]
+fn within(r: &ForwardRange, t: f64) -> bool {
+    (r.t_min_c <= t) & (t <= r.t_max_c)
 }
 
 /// E(t) and dE/dt together, for the price of one.
@@ -615,7 +623,7 @@ mod near_inverse_tests {
 
 #[cfg(test)]
 mod horner_tests {
-    use super::{emf_mv, emf_mv_each, poly, poly_and_derivative, ThermocoupleType};
+    use super::{emf_mv, emf_mv_each, holds_all, poly, poly_and_derivative, ThermocoupleType};
 
     /// Many temperatures at once give each one's EMF to the bit, inside
     /// one sub-range (the column pass) and across two (each alone), and
@@ -658,6 +666,25 @@ mod horner_tests {
                         let want = emf_mv(ty, t).expect("in range");
                         assert_eq!(got.to_bits(), want.to_bits(), "{ty:?} at {t}");
                     }
+                }
+            }
+        }
+    }
+
+    /// A batch inside one sub-range is that sub-range's, so it takes the
+    /// column pass; one with a temperature at the shared end below is
+    /// not (that end is the lower sub-range's).
+    #[test]
+    fn a_batch_inside_a_sub_range_is_held_by_it() {
+        for ty in ThermocoupleType::ALL {
+            let ranges = ty.coefficients().forward;
+            for i in 0..ranges.len() {
+                let r = &ranges[i];
+                let middle = (r.t_min_c + r.t_max_c) / 2.0;
+                assert!(holds_all(&ranges[..=i], &[middle; 4]), "{ty:?} {i}");
+                if i > 0 {
+                    let at_end = [middle, r.t_min_c, middle, middle];
+                    assert!(!holds_all(&ranges[..=i], &at_end), "{ty:?} {i}");
                 }
             }
         }
