@@ -36,6 +36,25 @@ const TOP_SPAN: u64 = 0x408 - 0x3c9;
 /// The exponential of `x`.
 #[inline]
 pub fn exp(x: f64) -> f64 {
+    // Built for a CPU without FMA, as code outside the wide kernels is, a
+    // fused multiply-add is a call into software (fifty-odd instructions):
+    // on a CPU with FMA, the CPU's own instruction is taken instead.
+    #[cfg(target_arch = "x86_64")]
+    if std::arch::is_x86_feature_detected!("fma") {
+        // SAFETY: the CPU has FMA, checked just above.
+        return unsafe { exp_fused(x) };
+    }
+    exp_inline(x)
+}
+
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "fma")]
+unsafe fn exp_fused(x: f64) -> f64 {
+    exp_inline(x)
+}
+
+#[inline(always)]
+fn exp_inline(x: f64) -> f64 {
     if on_table(x) {
         table_path(x)
     } else {
