@@ -89,26 +89,6 @@ impl Stream {
         normal_of(self.bits(t))
     }
 
-    /// Trials `t0 ..`'s standard normals into `out`, each [`Stream::normal`]
-    /// to the bit: the central region's rational function over every lane
-    /// at once, which vectorises, then the few lanes in the tails (15 %)
-    /// one at a time.
-    #[inline(always)]
-    pub fn normals(self, t0: u64, out: &mut [f64; LANES]) {
-        let mut bits = [0; LANES];
-        self.bits_each(t0, &mut bits);
-        normals_of(&bits, out);
-    }
-
-    /// [`Stream::uniform`] of trials `t0 ..` into `out`, a batch at a
-    /// time.
-    #[inline(always)]
-    pub fn uniforms(self, t0: u64, out: &mut [f64; LANES]) {
-        let mut bits = [0; LANES];
-        self.bits_each(t0, &mut bits);
-        uniforms_of(&bits, out);
-    }
-
     /// The random bits of trials `t0 ..`, a batch's worth.
     #[inline(always)]
     pub fn bits_each(self, t0: u64, out: &mut [u64; LANES]) {
@@ -388,11 +368,13 @@ mod tests {
         for batch in 0..10_000u64 {
             let t0 = batch * LANES as u64;
             let (mut wide_z, mut portable_z) = ([0.0; LANES], [0.0; LANES]);
+            let mut bits = [0; LANES];
+            s.bits_each(t0, &mut bits);
             wide::run(
                 #[inline(always)]
-                || s.normals(t0, &mut wide_z),
+                || normals_of(&bits, &mut wide_z),
             );
-            wide::portable(|| s.normals(t0, &mut portable_z));
+            wide::portable(|| normals_of(&bits, &mut portable_z));
             for (k, (w, p)) in wide_z.iter().zip(&portable_z).enumerate() {
                 let one = s.normal(t0 + k as u64);
                 assert_eq!(w.to_bits(), one.to_bits(), "trial {}", t0 + k as u64);

@@ -140,6 +140,18 @@ pub fn all_positive(c: &[f64; LANES]) -> bool {
     all_finite(c) && lowest.iter().all(|&low| low > 0.0)
 }
 
+/// `f64::clamp`, as selects, which keep a lane loop in vector registers
+/// where `clamp`'s own form does not (NaN stays NaN).
+#[inline(always)]
+pub(super) fn clamped(x: f64, lo: f64, hi: f64) -> f64 {
+    let x = if x < lo { lo } else { x };
+    if x > hi {
+        hi
+    } else {
+        x
+    }
+}
+
 /// A batch's values, lane after lane, each lane a plan's slots, stamped
 /// anew whenever they may change: columns loaded from a batch are kept
 /// while its stamp holds, with no need to compare the values (a batch is
@@ -263,9 +275,9 @@ pub(super) fn celsius_within(t: &mut [f64; LANES], range: (f64, f64)) -> Result<
         let c = *t - ZERO_CELSIUS_K;
         let inside = (lowest <= c) & (c <= highest);
         outside |= !inside;
-        // `clamp` as selects (c is a number where it is inside).
-        let c = if c < lo { lo } else { c };
-        let c = if c > hi { hi } else { c };
+        // Clamped in every lane, then chosen (c is a number where it is
+        // inside): a clamp within the choice would be a branch.
+        let c = clamped(c, lo, hi);
         *t = if inside { c } else { 0.0 };
     }
     if outside {

@@ -549,7 +549,7 @@ fn narrow_domain(
 #[cfg(test)]
 mod tests {
     use super::lower;
-    use crate::eval::lanes::check::chain;
+    use crate::eval::lanes::check::{self, chain};
     use crate::eval::node::{BridgeKind, Node};
     use crate::eval::{Plan, SourceKind};
 
@@ -769,18 +769,6 @@ chain bath "Pt100" {
 }
 "#;
 
-    /// A batch of `plan`'s values, lane after lane: value k (of the whole
-    /// batch) moved from its nominal by `fraction(k)` of its limits' span.
-    fn spread(plan: &crate::eval::Plan, fraction: impl Fn(usize) -> f64) -> Vec<f64> {
-        let n = plan.slots.len();
-        let mut values = plan.nominal.repeat(crate::eval::LANES);
-        for (k, v) in values.iter_mut().enumerate() {
-            let slot = &plan.slots[k % n];
-            *v += (slot.plus + slot.minus) * fraction(k);
-        }
-        values
-    }
-
     /// A batch's calibrations through the columns are each lane's own, to
     /// the bit, on both builds of the kernels; a batch with a lane that
     /// cannot calibrate gives that lane's error, as the lanes one by one
@@ -790,7 +778,7 @@ chain bath "Pt100" {
         use crate::eval::{wide, Batch, Calibrated, LaneColumns, LANES};
         let plan = plan(CALIBRATED_PT100);
         let n = plan.slots.len();
-        let mut values = spread(&plan, |k| ((k * 7 + k / n) % 11) as f64 / 10.0 - 0.5);
+        let mut values = check::spread(&plan);
         let alone: Vec<Calibrated> = (0..LANES)
             .map(|k| {
                 plan.calibration(&values[k * n..(k + 1) * n])
@@ -840,7 +828,7 @@ chain bath "Pt100" {
         let plan = plan(COUPLE_WITH_NTC);
         let n = plan.slots.len();
         // Each lane its own values, inside the limits.
-        let values = spread(&plan, |k| (k / n) as f64 / LANES as f64 - 0.4);
+        let values = check::spread(&plan);
         let calibrated: [Calibrated; LANES] = std::array::from_fn(|k| {
             plan.calibration(&values[k * n..(k + 1) * n])
                 .expect("calibrates")
@@ -888,7 +876,7 @@ chain bath "Pt100" {
         use crate::eval::{Batch, Calibrated, Env, LaneColumns, LANES};
         let plan = plan(CALIBRATED_PT100);
         let n = plan.slots.len();
-        let rows = spread(&plan, |k| ((k * 5 + k / n) % 9) as f64 / 8.0 - 0.5);
+        let rows = check::spread(&plan);
         let lane = |k: usize| &rows[k * n..(k + 1) * n];
         let env = Env {
             measurand: 60.0 + 273.15,

@@ -221,6 +221,9 @@ mod tests {
         );
     }
 
+    /// Beyond ln(f64::MAX) ≈ 709.78 the result overflows; below
+    /// ln(2⁻¹⁰⁷⁵) ≈ −745.13, half the least subnormal, it rounds to zero
+    /// (IEEE 754 binary64's limits); exp(1) rounds to `f64::consts::E`.
     #[test]
     fn the_edges() {
         assert_eq!(exp(0.0), 1.0);

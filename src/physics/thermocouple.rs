@@ -144,10 +144,7 @@ fn poly(c: &[f64], x: f64) -> f64 {
 /// Sub-range holding t. At a shared end point the lower sub-range is taken;
 /// the published functions agree there to better than 1e-7 mV.
 fn forward_range(ty: ThermocoupleType, t_c: f64) -> Option<&'static ForwardRange> {
-    ty.coefficients()
-        .forward
-        .iter()
-        .find(|r| r.t_min_c <= t_c && t_c <= r.t_max_c)
+    ty.coefficients().forward.iter().find(|r| within(r, t_c))
 }
 
 /// [`poly`] and its derivative by Horner in one pass: the two independent

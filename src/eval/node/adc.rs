@@ -567,12 +567,11 @@ impl Plan {
     }
 }
 
-/// `f64::clamp` of each lane, as selects (NaN stays NaN).
+/// Each lane clamped to `lo ..= hi` ([`lanes::clamped`]).
 #[inline(always)]
 fn ended_lanes(x: &mut [f64; LANES], lo: f64, hi: f64) {
     for x in x.iter_mut() {
-        let low = if *x < lo { lo } else { *x };
-        *x = if low > hi { hi } else { low };
+        *x = lanes::clamped(*x, lo, hi);
     }
 }
 
