@@ -93,18 +93,36 @@ impl<'a> CenteredGroup<'a> {
     /// `runs` (1 to [`GROUP`], all of one length).
     pub fn new(runs: &[&'a [f64]]) -> CenteredGroup<'a> {
         let runs: Vec<&[f64]> = runs.iter().take(GROUP).copied().collect();
-        let (mut means, mut totals) = ([0.0; GROUP], [0.0; GROUP]);
-        for (g, y) in runs.iter().enumerate() {
-            let mean = y.iter().sum::<f64>() / y.len().max(1) as f64;
-            means[g] = mean;
-            totals[g] = y.iter().map(|v| v - mean).map(|d| d * d).sum();
-        }
-        CenteredGroup {
-            n: runs.first().map_or(0, |y| y.len()),
+        let n = runs.first().map_or(0, |y| y.len());
+        let mut group = CenteredGroup {
             runs,
-            means,
-            totals,
+            means: [0.0; GROUP],
+            totals: [0.0; GROUP],
+            n,
+        };
+        if n == 0 {
+            return group;
         }
+        // Less zero, a value is itself.
+        let sums = group.summed([0.0; GROUP], |v| v);
+        group.means = sums.map(|sum| sum / n as f64);
+        group.totals = group.summed(group.means, |d| d * d);
+        group
+    }
+
+    /// Each run's sum of `f` of its values less `about`, trial after trial
+    /// as a run alone sums them (from −0.0, as `f64`'s `Sum` does); the
+    /// runs' additions are independent, so a trial's go side by side.
+    fn summed(&self, about: [f64; GROUP], f: impl Fn(f64) -> f64) -> [f64; GROUP] {
+        // A missing run reads the first again; its sum is not used.
+        let ys: [&[f64]; GROUP] =
+            std::array::from_fn(|g| &self.runs.get(g).unwrap_or(&self.runs[0])[..self.n]);
+        let mut sums = [-0.0; GROUP];
+        #[allow(clippy::needless_range_loop)] // t indexes every run at once
+        for t in 0..self.n {
+            sums = std::array::from_fn(|g| sums[g] + f(ys[g][t] - about[g]));
+        }
+        sums
     }
 
     /// Trial `t`'s deviation in run `g`.
@@ -339,6 +357,7 @@ mod tests {
         let grouped = first_order_columns(&group, &columns, cells);
         for (g, run) in runs.iter().enumerate() {
             let alone = Centered::new(run);
+            assert_eq!(group.totals[g].to_bits(), alone.total.to_bits());
             for (k, &st) in s.iter().enumerate() {
                 let want = first_order(&alone, st, cells).to_bits();
                 assert_eq!(grouped[k][g].to_bits(), want, "run {g} source {k}");

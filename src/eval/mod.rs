@@ -33,3 +33,9 @@ pub use plan::{
 pub use run::{LaneSignals, Outcome, LANES, MAX_NODES};
 pub use stated::{Noise, NoiseBasis, SamplingInput, Stated};
 pub use track::{half_width, own_fraction, Group, GroupPart};
+
+/// Plans and conditions from spec text, for the tests of every layer.
+#[cfg(test)]
+pub(crate) mod testing {
+    pub(crate) use super::lanes::check::{env_c, plan};
+}
