@@ -103,10 +103,13 @@ impl<'a> CenteredGroup<'a> {
         if n == 0 {
             return group;
         }
-        // Less zero, a value is itself.
+        // Less zero, a value is itself. A missing run's mean and sum of
+        // squares stay zero.
+        let runs = group.runs.len();
         let sums = group.summed([0.0; GROUP], |v| v);
-        group.means = sums.map(|sum| sum / n as f64);
-        group.totals = group.summed(group.means, |d| d * d);
+        group.means = std::array::from_fn(|g| if g < runs { sums[g] / n as f64 } else { 0.0 });
+        let totals = group.summed(group.means, |d| d * d);
+        group.totals = std::array::from_fn(|g| if g < runs { totals[g] } else { 0.0 });
         group
     }
 
@@ -366,6 +369,10 @@ mod tests {
             }
         }
         assert!(grouped.iter().all(|k| k[3..].iter().all(|&x| x == 0.0)));
+        assert!(group.means[3..]
+            .iter()
+            .chain(&group.totals[3..])
+            .all(|&x| x == 0.0));
     }
 
     /// A linear sum of two equal uniforms: each holds half the variance.
