@@ -16,7 +16,7 @@
 //! values at a few delays: exact, with no time grid in the answer. A grid
 //! only brackets the first crossing, which bisection then pins down.
 
-use crate::physics::filter::LowPass;
+use crate::physics::filter::{LowPass, MAX_ORDER};
 
 /// Grid points that bracket a crossing, at most and at least; fewer when
 /// the mean of many conversions makes each point dear.
@@ -24,6 +24,17 @@ const GRID_MAX: usize = 4000;
 const GRID_MIN: usize = 200;
 /// Matrix-vector products one bracketing pass may spend.
 const GRID_WORK: usize = 20_000_000;
+
+/// States at most: the step, the sensor, a pole each of the highest
+/// filter order, the integral. The matrices live on the stack: a settling
+/// time takes thousands of products, and allocating each cost more than
+/// the arithmetic.
+const MAX_DIM: usize = 3 + MAX_ORDER as usize;
+
+/// A dim × dim matrix, row-major with stride dim.
+type Square = [f64; MAX_DIM * MAX_DIM];
+/// A state vector's first dim entries.
+type State = [f64; MAX_DIM];
 
 /// How the converter and firmware average the analog signal.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -39,8 +50,7 @@ pub struct Averaging {
 /// The chain's response to a unit step of the measurand at t = 0.
 pub struct StepModel {
     dim: usize,
-    /// Row-major dim × dim.
-    m: Vec<f64>,
+    m: Square,
     /// State read at each delay, and the (delay, weight) pairs summed.
     component: usize,
     taps: Vec<(f64, f64)>,
@@ -67,7 +77,7 @@ impl StepModel {
                 .sum::<usize>();
         let mut model = StepModel {
             dim,
-            m: vec![0.0; dim * dim],
+            m: [0.0; MAX_DIM * MAX_DIM],
             component: 0,
             taps: Vec::new(),
             horizon: 0.0,
@@ -147,12 +157,15 @@ impl StepModel {
     }
 
     /// x(t), zero before the step.
-    fn state_at(&self, t: f64) -> Vec<f64> {
-        if t <= 0.0 {
-            return vec![0.0; self.dim];
+    fn state_at(&self, t: f64) -> State {
+        let mut x = [0.0; MAX_DIM];
+        if t > 0.0 {
+            let e = expm(&self.m, self.dim, t);
+            for (r, x) in x.iter_mut().enumerate().take(self.dim) {
+                *x = e[r * self.dim];
+            }
         }
-        let e = expm(&self.m, self.dim, t);
-        (0..self.dim).map(|r| e[r * self.dim]).collect()
+        x
     }
 
     /// The first time the response reaches `fraction` of the step, s
@@ -179,7 +192,7 @@ impl StepModel {
     fn bracket(&self, fraction: f64, horizon: f64, points: usize) -> Option<(f64, f64)> {
         let h = horizon / points as f64;
         let step = expm(&self.m, self.dim, h);
-        let mut states: Vec<Option<Vec<f64>>> = vec![None; self.taps.len()];
+        let mut states: Vec<Option<State>> = vec![None; self.taps.len()];
         for i in 1..=points {
             let t = i as f64 * h;
             let mut sum = 0.0;
@@ -203,7 +216,7 @@ impl StepModel {
     /// Bisects [lo, hi] (response below `fraction` at lo, not at hi) to
     /// the last bit that matters.
     fn bisect(&self, fraction: f64, mut lo: f64, mut hi: f64) -> f64 {
-        let base: Vec<Vec<f64>> = self
+        let base: Vec<State> = self
             .taps
             .iter()
             .map(|&(delay, _)| self.state_at(lo - delay))
@@ -222,7 +235,7 @@ impl StepModel {
                 .zip(&base)
                 .map(|(&(delay, weight), x)| {
                     let at = if start > delay {
-                        row.iter().zip(x).map(|(a, b)| a * b).sum()
+                        row.iter().zip(&x[..self.dim]).map(|(a, b)| a * b).sum()
                     } else {
                         self.state_at(mid - delay)[self.component]
                     };
@@ -258,20 +271,20 @@ fn sections(filter: Option<&LowPass>) -> Vec<(f64, f64)> {
         .collect()
 }
 
-fn mul_vec(a: &[f64], dim: usize, x: &[f64]) -> Vec<f64> {
-    (0..dim)
-        .map(|r| {
-            a[r * dim..(r + 1) * dim]
-                .iter()
-                .zip(x)
-                .map(|(p, q)| p * q)
-                .sum()
-        })
-        .collect()
+fn mul_vec(a: &Square, dim: usize, x: &State) -> State {
+    let mut out = [0.0; MAX_DIM];
+    for (r, out) in out.iter_mut().enumerate().take(dim) {
+        *out = a[r * dim..(r + 1) * dim]
+            .iter()
+            .zip(x)
+            .map(|(p, q)| p * q)
+            .sum();
+    }
+    out
 }
 
-fn mul(a: &[f64], b: &[f64], dim: usize) -> Vec<f64> {
-    let mut out = vec![0.0; dim * dim];
+fn mul(a: &Square, b: &Square, dim: usize) -> Square {
+    let mut out = [0.0; MAX_DIM * MAX_DIM];
     for r in 0..dim {
         for k in 0..dim {
             let x = a[r * dim + k];
@@ -288,7 +301,7 @@ fn mul(a: &[f64], b: &[f64], dim: usize) -> Vec<f64> {
 /// e^{A·t} by scaling and squaring: A·t/2ˢ has a 1-norm at most ½, where
 /// its Taylor series is summed until the terms no longer count, then the
 /// result is squared s times.
-fn expm(a: &[f64], dim: usize, t: f64) -> Vec<f64> {
+fn expm(a: &Square, dim: usize, t: f64) -> Square {
     let norm = (0..dim)
         .map(|c| (0..dim).map(|r| (a[r * dim + c] * t).abs()).sum::<f64>())
         .fold(0.0, f64::max);
@@ -298,16 +311,19 @@ fn expm(a: &[f64], dim: usize, t: f64) -> Vec<f64> {
         0
     };
     let scale = t * 0.5f64.powi(squarings);
-    let b: Vec<f64> = a.iter().map(|x| x * scale).collect();
-    let identity = |r: usize, c: usize| if r == c { 1.0 } else { 0.0 };
-    let mut sum: Vec<f64> = (0..dim * dim).map(|i| identity(i / dim, i % dim)).collect();
-    let mut term = sum.clone();
+    let b = a.map(|x| x * scale);
+    let mut sum = [0.0; MAX_DIM * MAX_DIM];
+    for r in 0..dim {
+        sum[r * dim + r] = 1.0;
+    }
+    let mut term = sum;
+    let used = dim * dim;
     for k in 1..=30 {
         term = mul(&term, &b, dim);
         let inverse = 1.0 / f64::from(k);
-        term.iter_mut().for_each(|x| *x *= inverse);
-        sum.iter_mut().zip(&term).for_each(|(s, x)| *s += x);
-        if term.iter().all(|x| x.abs() <= 1e-18) {
+        term[..used].iter_mut().for_each(|x| *x *= inverse);
+        sum[..used].iter_mut().zip(&term).for_each(|(s, x)| *s += x);
+        if term[..used].iter().all(|x| x.abs() <= 1e-18) {
             break;
         }
     }
