@@ -22,10 +22,9 @@ const ASCENT: f64 = 12.0;
 const DESCENT: f64 = 4.0;
 /// Room a label keeps from a box and from the arrow it names.
 const PAD: f64 = 8.0;
-/// The first label under a box sits this far below its bottom edge
-/// (baseline), the next ones a line further each.
+/// A port's name under a box sits this far below its bottom edge
+/// (baseline).
 const FIRST_LINE: f64 = 14.0;
-const LINE_H: f64 = 13.0;
 
 /// A rectangle of the drawing: a box, or the extent of a label's text.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -71,13 +70,47 @@ impl Label {
     }
 }
 
-/// One edge drawn: a cubic curve and its label.
+/// How an edge is drawn.
+enum Route {
+    /// Into the next column's left side: a cubic curve across the gap.
+    Curve([(f64, f64); 2]),
+    /// Anywhere else: straight runs through the gaps between boxes (out
+    /// into the gap after the source's column, along the gap under the
+    /// target's row, then up into the target), so no edge passes behind
+    /// a box and seems to feed it. The corners between `from` and `to`.
+    Runs(Vec<(f64, f64)>),
+}
+
+/// One edge drawn: its route and its label.
 struct EdgeDrawing<'a> {
     edge: &'a DiagramEdge,
     from: (f64, f64),
-    controls: [(f64, f64); 2],
+    route: Route,
     to: (f64, f64),
     label: Label,
+}
+
+impl EdgeDrawing<'_> {
+    /// The straight runs of a routed edge, as thin rectangles.
+    #[cfg(test)]
+    fn runs(&self) -> Vec<Rect> {
+        let Route::Runs(corners) = &self.route else {
+            return Vec::new();
+        };
+        let points: Vec<(f64, f64)> = std::iter::once(self.from)
+            .chain(corners.iter().copied())
+            .chain(std::iter::once(self.to))
+            .collect();
+        points
+            .windows(2)
+            .map(|w| Rect {
+                x: w[0].0.min(w[1].0),
+                y: w[0].1.min(w[1].1),
+                w: (w[0].0 - w[1].0).abs(),
+                h: (w[0].1 - w[1].1).abs(),
+            })
+            .collect()
+    }
 }
 
 /// Where everything goes.
@@ -118,8 +151,106 @@ pub fn render(d: &Diagram, id: &str, title: &str) -> String {
     s
 }
 
+/// How an edge runs, by where its ends sit.
+#[derive(Clone, Copy, PartialEq)]
+enum Kind {
+    /// Into `in`, one column on: beside, across one gap.
+    Beside,
+    /// Into `in`, columns on: around the boxes between, into the side.
+    Around,
+    /// Into another input, or back: around, up into the box's bottom.
+    Under,
+}
+
+fn kind_of(e: &DiagramEdge, (a, b): (&DiagramNode, &DiagramNode)) -> Kind {
+    match (e.port == "in", b.layer) {
+        (true, l) if l == a.layer + 1 => Kind::Beside,
+        (true, l) if l > a.layer + 1 => Kind::Around,
+        _ => Kind::Under,
+    }
+}
+
+/// Room between parallel runs in one gap, and before the first.
+const LANE: f64 = 6.0;
+const LANE_START: f64 = 8.0;
+
+/// The lanes (vertical runs) of each column gap and the channels
+/// (horizontal runs) of each row gap, handed out edge by edge.
+struct Lanes {
+    /// Per edge: its lane in the gap after its source's column, its lane
+    /// in the gap before its target's (an edge going around), and its
+    /// channel in the gap under its target's row.
+    of_edge: Vec<Option<(usize, Option<usize>, usize)>>,
+    /// Most departing lanes in one column gap, most arriving ones, most
+    /// channels in one row gap.
+    most: (usize, usize, usize),
+}
+
+fn lanes(d: &Diagram, ends: &[Ends], kinds: &[Kind], row_of: &[usize]) -> Lanes {
+    let columns = d.nodes.iter().map(|n| n.layer + 1).max().unwrap_or(1);
+    let rows = row_of.iter().map(|r| r + 1).max().unwrap_or(1);
+    let (mut out_of, mut into) = (vec![0usize; columns + 1], vec![0usize; columns + 1]);
+    let mut in_row = vec![0usize; rows];
+    let take = |count: &mut usize| {
+        *count += 1;
+        *count - 1
+    };
+    let of_edge = ends
+        .iter()
+        .zip(kinds)
+        .map(|(ends, &kind)| {
+            let (a, b) = (*ends)?;
+            if kind == Kind::Beside {
+                return None;
+            }
+            let out = take(&mut out_of[d.nodes[a].layer]);
+            let before = (kind == Kind::Around).then(|| take(&mut into[d.nodes[b].layer]));
+            Some((out, before, take(&mut in_row[row_of[b]])))
+        })
+        .collect();
+    let most = (
+        out_of.into_iter().max().unwrap_or(0),
+        into.into_iter().max().unwrap_or(0),
+        in_row.into_iter().max().unwrap_or(0),
+    );
+    Lanes { of_edge, most }
+}
+
+/// The room `count` runs take across a gap.
+fn runs_room(count: usize) -> f64 {
+    if count == 0 {
+        0.0
+    } else {
+        LANE_START + LANE * (count - 1) as f64 + PAD
+    }
+}
+
+/// An edge's two nodes, by index (None when a name is not a node's).
+type Ends = Option<(usize, usize)>;
+
+/// Each edge's two nodes and how it runs.
+fn ends_and_kinds(d: &Diagram) -> (Vec<Ends>, Vec<Kind>) {
+    let index = |name: &str| d.nodes.iter().position(|n| n.name == name);
+    let ends: Vec<Ends> = d
+        .edges
+        .iter()
+        .map(|e| Some((index(&e.from)?, index(&e.to)?)))
+        .collect();
+    let kinds = d
+        .edges
+        .iter()
+        .zip(&ends)
+        .map(|(e, ends)| match ends {
+            Some((a, b)) => kind_of(e, (&d.nodes[*a], &d.nodes[*b])),
+            None => Kind::Under,
+        })
+        .collect();
+    (ends, kinds)
+}
+
 /// Columns by depth, rows by [`rows`]; the column gap holds the widest
-/// label beside an arrow, the row gap the most label lines under a box.
+/// label beside an arrow and the lanes of the edges that go around, the
+/// row gap the port names under a box and the channels under them.
 pub fn layout(d: &Diagram) -> Layout<'_> {
     let longest = d
         .nodes
@@ -130,49 +261,37 @@ pub fn layout(d: &Diagram) -> Layout<'_> {
     let box_w = BOX_W.max(longest as f64 * TEXT_CHAR_W + 18.0);
     let columns = d.nodes.iter().map(|n| n.layer + 1).max().unwrap_or(1);
     let row_of = rows(d, columns);
-    let index = |name: &str| d.nodes.iter().position(|n| n.name == name);
-    let ends: Vec<Option<(usize, usize)>> = d
+    let (ends, kinds) = ends_and_kinds(d);
+    let widest_beside = d
         .edges
         .iter()
-        .map(|e| Some((index(&e.from)?, index(&e.to)?)))
-        .collect();
-    let beside = |e: &DiagramEdge, (a, b): (usize, usize)| {
-        e.port == "in" && d.nodes[b].layer > d.nodes[a].layer
+        .zip(&kinds)
+        .filter(|(_, kind)| **kind != Kind::Under)
+        .map(|(e, _)| label_text(e).chars().count() as f64 * TEXT_CHAR_W)
+        .fold(0.0, f64::max);
+    let lanes = lanes(d, &ends, &kinds, &row_of);
+    let (departing, arriving, channels) = lanes.most;
+    let col_gap =
+        COL_GAP.max(runs_room(departing) + runs_room(arriving) + widest_beside + 2.0 * PAD);
+    let labels_room = if kinds.contains(&Kind::Under) {
+        FIRST_LINE + DESCENT
+    } else {
+        0.0
     };
-    let mut under = vec![0usize; d.nodes.len()];
-    let mut widest_beside = 0.0f64;
-    for (e, ends) in d.edges.iter().zip(&ends) {
-        let Some(ends) = *ends else { continue };
-        if beside(e, ends) {
-            widest_beside = widest_beside.max(label_text(e, true).chars().count() as f64);
-        } else {
-            under[ends.1] += 1;
-        }
-    }
-    let col_gap = COL_GAP.max(widest_beside * TEXT_CHAR_W + 2.0 * PAD);
-    let lines = under.iter().copied().max().unwrap_or(0);
-    let row_gap = ROW_GAP.max(FIRST_LINE + LINE_H * lines.saturating_sub(1) as f64 + DESCENT + PAD);
+    let grid = Grid {
+        box_w,
+        col_gap,
+        row_gap: ROW_GAP.max(labels_room + runs_room(channels) + PAD),
+        labels_room,
+        arrivals_end: widest_beside + PAD,
+    };
     let boxes: Vec<Rect> = d
         .nodes
         .iter()
         .zip(&row_of)
-        .map(|(node, &row)| Rect {
-            x: 20.0 + node.layer as f64 * (box_w + col_gap),
-            y: 40.0 + row as f64 * (BOX_H + row_gap),
-            w: box_w,
-            h: BOX_H,
-        })
+        .map(|(node, &row)| grid.cell(node.layer, row))
         .collect();
-    let mut line = vec![0usize; d.nodes.len()];
-    let mut edges = Vec::new();
-    for (e, ends) in d.edges.iter().zip(&ends) {
-        let Some((a, b)) = *ends else { continue };
-        let side = beside(e, (a, b));
-        edges.push(place_edge(e, (&boxes[a], &boxes[b]), side, line[b]));
-        if !side {
-            line[b] += 1;
-        }
-    }
+    let edges = place_edges(d, (&ends, &kinds), &lanes, &boxes, &grid);
     let rows = row_of.iter().map(|r| r + 1).max().unwrap_or(1);
     let right = edges
         .iter()
@@ -180,52 +299,156 @@ pub fn layout(d: &Diagram) -> Layout<'_> {
         .map(|r| r.x + r.w + PAD)
         .fold(0.0, f64::max);
     Layout {
-        width: (40.0 + columns as f64 * (box_w + col_gap) - col_gap).max(right),
-        height: 50.0 + rows as f64 * (BOX_H + row_gap),
+        width: (40.0 + columns as f64 * (box_w + col_gap) - col_gap)
+            .max(right)
+            .max(grid.gap_left(columns - 1) + runs_room(departing) + PAD),
+        height: 50.0 + rows as f64 * (BOX_H + grid.row_gap),
         box_w,
         boxes,
         edges,
     }
 }
 
-/// An edge from box `a` to box `b`: into the left side of `b` with its
-/// label in the gap before it (`side`), or into `b`'s bottom edge with
-/// its label on line `k` under it.
-fn place_edge<'a>(
-    e: &'a DiagramEdge,
-    (a, b): (&Rect, &Rect),
-    side: bool,
-    k: usize,
-) -> EdgeDrawing<'a> {
-    let from = (a.x + a.w, a.y + a.h / 2.0);
-    if side {
-        let to = (b.x, b.y + b.h / 2.0);
-        let mx = (from.0 + to.0) / 2.0;
-        return EdgeDrawing {
-            edge: e,
-            from,
-            controls: [(mx, from.1), (mx, to.1)],
-            to,
-            label: Label {
-                text: label_text(e, true),
-                x: to.0 - PAD,
-                y: to.1 - 6.0,
-                anchor: "end",
-            },
+/// Every edge drawn, each port named once under its box however many
+/// edges feed it.
+fn place_edges<'a>(
+    d: &'a Diagram,
+    (ends, kinds): (&[Ends], &[Kind]),
+    lanes: &Lanes,
+    boxes: &[Rect],
+    grid: &Grid,
+) -> Vec<EdgeDrawing<'a>> {
+    let mut labelled: Vec<(usize, &str)> = Vec::new();
+    let mut edges = Vec::new();
+    for (i, (e, ends)) in d.edges.iter().zip(ends).enumerate() {
+        let Some((a, b)) = *ends else { continue };
+        let mut placed = match lanes.of_edge[i] {
+            None => beside(e, (&boxes[a], &boxes[b])),
+            Some(runs) => routed(e, (&boxes[a], &boxes[b]), grid, runs),
         };
+        if kinds[i] == Kind::Under {
+            if labelled.contains(&(b, e.port.as_str())) {
+                placed.label.text.clear();
+            }
+            labelled.push((b, &e.port));
+        }
+        edges.push(placed);
     }
-    let to = (b.x + b.w * port_share(&e.port), b.y + b.h);
+    edges
+}
+
+/// The spacing of the columns and rows.
+struct Grid {
+    box_w: f64,
+    col_gap: f64,
+    row_gap: f64,
+    /// Under a box, the port names' room before the channels.
+    labels_room: f64,
+    /// Arriving lanes end this far before the next column: the labels
+    /// beside arrows sit there.
+    arrivals_end: f64,
+}
+
+impl Grid {
+    fn cell(&self, column: usize, row: usize) -> Rect {
+        Rect {
+            x: 20.0 + column as f64 * (self.box_w + self.col_gap),
+            y: 40.0 + row as f64 * (BOX_H + self.row_gap),
+            w: self.box_w,
+            h: BOX_H,
+        }
+    }
+
+    /// The left side of the gap after `column`.
+    fn gap_left(&self, column: usize) -> f64 {
+        20.0 + column as f64 * (self.box_w + self.col_gap) + self.box_w
+    }
+
+    /// Departing lane `k`'s x in the gap after `column`: from its left.
+    fn lane(&self, column: usize, k: usize) -> f64 {
+        self.gap_left(column) + LANE_START + LANE * k as f64
+    }
+
+    /// Arriving lane `k`'s x in the gap before the box at `x`: from the
+    /// labels beside its arrows leftwards.
+    fn arriving_lane(&self, x: f64, k: usize) -> f64 {
+        x - self.arrivals_end - LANE_START - LANE * k as f64
+    }
+
+    /// Channel `k`'s y under the row whose boxes end at `bottom`.
+    fn channel(&self, bottom: f64, k: usize) -> f64 {
+        bottom + self.labels_room + LANE_START + LANE * k as f64
+    }
+
+    /// The column of a box.
+    fn column(&self, b: &Rect) -> usize {
+        ((b.x - 20.0) / (self.box_w + self.col_gap)).round() as usize
+    }
+}
+
+/// An edge into the left side of the next column's box `b`, its label in
+/// the gap before it.
+fn beside<'a>(e: &'a DiagramEdge, (a, b): (&Rect, &Rect)) -> EdgeDrawing<'a> {
+    let from = (a.x + a.w, a.y + a.h / 2.0);
+    let to = (b.x, b.y + b.h / 2.0);
+    let mx = (from.0 + to.0) / 2.0;
     EdgeDrawing {
         edge: e,
         from,
-        controls: [(to.0, from.1), (to.0, to.1 + 30.0)],
+        route: Route::Curve([(mx, from.1), (mx, to.1)]),
         to,
-        label: Label {
-            text: label_text(e, false),
-            x: to.0 + 6.0,
-            y: to.1 + FIRST_LINE + LINE_H * k as f64,
-            anchor: "start",
-        },
+        label: side_label(e, to),
+    }
+}
+
+fn side_label(e: &DiagramEdge, to: (f64, f64)) -> Label {
+    Label {
+        text: label_text(e),
+        x: to.0 - PAD,
+        y: to.1 - 6.0,
+        anchor: "end",
+    }
+}
+
+/// An edge from box `a` around the boxes to box `b`: out along lane
+/// `out` of the gap after `a`'s column, along channel `channel` under
+/// `b`'s row, then into `b`'s side up lane `before` of the gap before it,
+/// or up into its bottom edge at its port, named beside the arrowhead.
+fn routed<'a>(
+    e: &'a DiagramEdge,
+    (a, b): (&Rect, &Rect),
+    grid: &Grid,
+    (out, before, channel): (usize, Option<usize>, usize),
+) -> EdgeDrawing<'a> {
+    let from = (a.x + a.w, a.y + a.h / 2.0);
+    let x_out = grid.lane(grid.column(a), out);
+    let y = grid.channel(b.y + b.h, channel);
+    let mut corners = vec![(x_out, from.1), (x_out, y)];
+    let (to, label) = match before {
+        Some(k) => {
+            let to = (b.x, b.y + b.h / 2.0);
+            let x_in = grid.arriving_lane(b.x, k);
+            corners.extend([(x_in, y), (x_in, to.1)]);
+            (to, side_label(e, to))
+        }
+        None => {
+            let to = (b.x + b.w * port_share(&e.port), b.y + b.h);
+            corners.push((to.0, y));
+            let label = Label {
+                text: e.port.clone(),
+                x: to.0 + 6.0,
+                y: to.1 + FIRST_LINE,
+                anchor: "start",
+            };
+            (to, label)
+        }
+    };
+    EdgeDrawing {
+        edge: e,
+        from,
+        route: Route::Runs(corners),
+        to,
+        label,
     }
 }
 
@@ -277,33 +500,41 @@ fn port_share(port: &str) -> f64 {
     }
 }
 
-/// An edge's label: its signal in a word, with the input it feeds when
-/// it lands under the box.
-fn label_text(e: &DiagramEdge, side: bool) -> String {
-    let signal = match e.signal.as_str() {
+/// An edge's label beside its arrow: its signal in a word. (Under a box
+/// an edge is named by its port alone; the edge table beside the
+/// diagram gives the signal, and the arrow's title both.)
+fn label_text(e: &DiagramEdge) -> String {
+    match e.signal.as_str() {
         "excitation voltage" => "excitation",
         other => other,
-    };
-    if side {
-        signal.to_string()
-    } else {
-        format!("{}: {signal}", e.port)
     }
+    .to_string()
 }
 
 fn draw_edge(s: &mut String, e: &EdgeDrawing, id: &str) {
-    let [c1, c2] = e.controls;
+    let path = match &e.route {
+        Route::Curve([c1, c2]) => format!(
+            "M{} {} C{} {} {} {} {} {}",
+            r(e.from.0),
+            r(e.from.1),
+            r(c1.0),
+            r(c1.1),
+            r(c2.0),
+            r(c2.1),
+            r(e.to.0),
+            r(e.to.1)
+        ),
+        Route::Runs(corners) => {
+            let mut d = format!("M{} {}", r(e.from.0), r(e.from.1));
+            for &(x, y) in corners.iter().chain(std::iter::once(&e.to)) {
+                let _ = write!(d, " L{} {}", r(x), r(y));
+            }
+            d
+        }
+    };
     let _ = write!(
         s,
-        r##"<path class="data" d="M{} {} C{} {} {} {} {} {}" fill="none" stroke="#333333" stroke-width="1.4" marker-end="url(#{id}-arrow)"><title>{} → {}.{}: {}</title></path><text x="{}" y="{}" text-anchor="{}" class="edge">{}</text>"##,
-        r(e.from.0),
-        r(e.from.1),
-        r(c1.0),
-        r(c1.1),
-        r(c2.0),
-        r(c2.1),
-        r(e.to.0),
-        r(e.to.1),
+        r##"<path class="data" d="{path}" fill="none" stroke="#333333" stroke-width="1.4" stroke-linejoin="round" marker-end="url(#{id}-arrow)"><title>{} → {}.{}: {}</title></path><text x="{}" y="{}" text-anchor="{}" class="edge">{}</text>"##,
         escape(&e.edge.from),
         escape(&e.edge.to),
         escape(&e.edge.port),
@@ -378,10 +609,33 @@ mod tests {
         }
     }
 
-    /// No label's text touches a box, and every label lies inside the
-    /// drawing.
+    /// No label's text touches a box, no routed edge runs through a box
+    /// (it may end on its own two), and every label and run lies inside
+    /// the drawing.
     fn assert_clear(d: &Diagram) {
         let l = layout(d);
+        let inside = |b: &Rect| Rect {
+            x: b.x + 0.5,
+            y: b.y + 0.5,
+            w: b.w - 1.0,
+            h: b.h - 1.0,
+        };
+        for e in &l.edges {
+            for run in e.runs() {
+                for (b, n) in l.boxes.iter().zip(&d.nodes) {
+                    assert!(
+                        !run.overlaps(&inside(b)),
+                        "edge {} → {}.{} runs {run:?} through box {} {b:?}",
+                        e.edge.from,
+                        e.edge.to,
+                        e.edge.port,
+                        n.name
+                    );
+                }
+                assert!(run.x >= 0.0 && run.x + run.w <= l.width, "{run:?}");
+                assert!(run.y >= 0.0 && run.y + run.h <= l.height, "{run:?}");
+            }
+        }
         for (label, e) in l.labels().iter().zip(&l.edges) {
             for (b, n) in l.boxes.iter().zip(&d.nodes) {
                 assert!(
