@@ -436,6 +436,16 @@ pub enum CombineOp {
     Ratio,
 }
 
+impl CombineOp {
+    /// The setting that states it.
+    pub const fn word(self) -> &'static str {
+        match self {
+            Self::Sum => super::schema::SUM,
+            Self::Ratio => super::schema::RATIO,
+        }
+    }
+}
+
 impl StageModel {
     /// Drives a current through what it feeds: the elements on it are in
     /// series.

@@ -18,6 +18,7 @@ use crate::analysis::review::{outcome, Outcome};
 use crate::analysis::step::{Averaging, StepModel};
 use crate::eval::{node, Calibration, Env, Node, Plan, Signal};
 use crate::model::requirement::RequirementKind;
+use crate::model::typed::StageModel;
 use crate::model::Chain;
 use crate::units::format::{from_si, to_si};
 
@@ -358,8 +359,35 @@ fn diagram_of(chain: &Chain, signal_of: &dyn Fn(&str) -> String) -> Diagram {
                 port: c.to_port.name().to_string(),
                 signal: signal_of(&chain.stages[c.from].name),
             })
+            .chain(combined(chain, signal_of))
             .collect(),
     }
+}
+
+/// The channels a conversion combines (`sum`, `ratio`), as edges into it
+/// named by the setting: no connection states them, yet they feed it.
+fn combined<'a>(
+    chain: &'a Chain,
+    signal_of: &'a dyn Fn(&str) -> String,
+) -> impl Iterator<Item = DiagramEdge> + 'a {
+    chain.stages.iter().flat_map(move |stage| {
+        let combine = if let Some(StageModel::Convert(convert)) = &stage.typed {
+            convert.combine.as_ref()
+        } else {
+            None
+        };
+        combine.into_iter().flat_map(move |c| {
+            c.channels
+                .iter()
+                .filter(|name| chain.stages.iter().any(|s| &s.name == *name))
+                .map(move |name| DiagramEdge {
+                    from: name.clone(),
+                    to: stage.name.clone(),
+                    port: c.op.word().to_string(),
+                    signal: signal_of(name),
+                })
+        })
+    })
 }
 
 /// Every envelope with its reach per measurand point, as the envelope
