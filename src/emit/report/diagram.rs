@@ -1,7 +1,11 @@
 //! The chain as a block diagram: boxes in columns by their depth in the
-//! graph, edges with their signal type. The layout is worked out first,
-//! as rectangles, and the gaps between boxes are sized to the labels
-//! they hold, so no label can land on a box; the SVG is drawn from it.
+//! graph. A signal into the next column's box is a curve named by its
+//! signal type; any other edge runs in straight lines through the gaps
+//! between boxes and enters its box from below at the port it names (or
+//! from the side, past the columns between), so no edge passes behind a
+//! box. The layout is worked out first, as rectangles, and the gaps are
+//! sized to the labels and runs they hold, so no label can land on a
+//! box; the SVG is drawn from it.
 
 use std::fmt::Write;
 
