@@ -322,6 +322,30 @@ fn a_3_wire_rtd_with_its_compensation_lead_open_reads_below_the_window() {
         .is_some_and(|t| t.starts_with("code < ")));
 }
 
+/// A shorted 3-wire Pt100 in a quarter bridge of 100 Ω from 2.5 V, its
+/// leads 0.5 Ω ± 0.2 Ω. Where wire 2 is the longer the net lead is
+/// negative; the element's arm keeps the short (1 mΩ) itself rather than
+/// going below zero, which the bridge cannot evaluate (the fault read
+/// "undetermined", and a trip above it masked). Nominal: 2.5 V ×
+/// (1 mΩ / 100.001 Ω − 1/2); each lead at the limit that lengthens wire 1
+/// over wire 2 raises the arm to 0.201 Ω, and the two deviations add up.
+#[test]
+fn a_shorted_3_wire_rtd_in_a_bridge_reads_half_scale_below_zero() {
+    let list = checklist("kind_rtd_3wire_short_bridge.catena");
+    let short = row(&list, "probe", "short");
+    let v = |r: f64| 2.5 * (r / (100.0 + r) - 0.5);
+    let nominal = v(1e-3) / 2.5 * 2f64.powi(23);
+    let rise = (v(0.201) - v(1e-3)) / 2.5 * 2f64.powi(23);
+    assert_eq!(
+        codes(short),
+        (
+            nominal.round() as i64,
+            (nominal + 2.0 * rise).round() as i64
+        )
+    );
+    assert_eq!(short["verdict"], "detectable");
+}
+
 /// A 4-wire Pt100's sense lead open cuts the converter's input off the
 /// element: with no bias path nothing sets its code; a 100 nA burnout
 /// current into the open input (1e12 Ω of insulation) drives it to the
