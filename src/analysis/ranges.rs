@@ -928,7 +928,7 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
         }),
         Limit::ConverterInput if high => match slot(schema::VREF) {
             Some(vref) => Some(format!("a reference of at least {} keeps {pct} % headroom", with_prefix(vref * value / target, "V", 4))),
-            None => Some(format!("reduce the gain ahead of the converter by a factor of at least {}", trimmed(value / target, 4))),
+            None => Some(converter_gain_fix(plan, e, value, target)),
         },
         Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)".to_string()),
         Limit::Compliance => slot(schema::param::CURRENT).map(|i| format!("the largest current that fits with {pct} % headroom is {}", with_prefix(i * target / value, "A", 4))),
@@ -938,6 +938,63 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
         Limit::ConverterPin(_) => Some(format!("shift the input's common mode {} by at least {} so every pin stays inside {} .. {}, or power the converter from rails that include {}", if high { "down" } else { "up" }, with_prefix((value - bound).abs(), "V", 4), show(e, e.allowed.0), show(e, e.allowed.1), show(e, value))),
         Limit::ConverterSettling => None,
     }
+}
+
+/// What brings a converter's input back under its top with the margin
+/// to spare: the gain ahead of it scales the amplifier's output about the
+/// amplifier's reference, not the whole input, so the factor divides
+/// that part alone (its share of the input at the worst point, in the
+/// nominal chain).
+fn converter_gain_fix(plan: &Plan, e: &Envelope, value: f64, target: f64) -> String {
+    let share = gained_share(plan, e).unwrap_or(1.0);
+    let fixed = value * (1.0 - share);
+    if target <= fixed {
+        return format!(
+            "the amplifier's `reference` alone puts the input at {}: lower it",
+            show(e, fixed)
+        );
+    }
+    format!(
+        "reduce the gain ahead of the converter by a factor of at least {}",
+        trimmed(up_to_digits(value * share / (target - fixed), 4), 4)
+    )
+}
+
+/// `x` > 0 rounded up to `digits` significant digits, so a factor shown
+/// "at least" is one that suffices.
+fn up_to_digits(x: f64, digits: i32) -> f64 {
+    let scale = 10f64.powi(digits - 1 - x.log10().floor() as i32);
+    (x * scale * (1.0 - 1e-12)).ceil() / scale
+}
+
+/// Of a converter's input at the envelope's worst point, the share the
+/// gain ahead of it scales: the nearest amplifier upstream (through
+/// filters), its output less its reference over the converter's input,
+/// in the nominal chain. None without such an amplifier.
+fn gained_share(plan: &Plan, e: &Envelope) -> Option<f64> {
+    let Node::Adc(adc) = &plan.nodes[e.node.index()] else {
+        return None;
+    };
+    let mut ahead = adc.input;
+    while let Node::Filter(f) = &plan.nodes[ahead.index()] {
+        ahead = f.input;
+    }
+    if !matches!(plan.nodes[ahead.index()], Node::Amplifier(_)) {
+        return None;
+    }
+    let worst = Env {
+        measurand: e.worst_at.0,
+        ambient: e.worst_at.1,
+        cold_junction: e.worst_at.1,
+    };
+    let signals = plan.raw_signals(&plan.nominal, &worst).ok()?;
+    let reference = plan.amplifier_reference(ahead, &plan.nominal, &worst, &signals)?;
+    let (Signal::Voltage { v: out, .. }, Signal::Voltage { v: input, .. }) =
+        (signals[ahead.index()], signals[adc.input.index()])
+    else {
+        return None;
+    };
+    (input != 0.0).then(|| ((out - reference) / input).clamp(0.0, 1.0))
 }
 
 /// What brings an amplifier's output back inside its swing: the gain
@@ -1053,6 +1110,49 @@ mod tests {
         );
         assert_eq!(conv.allowed, (0.0, 1.0));
         assert!(close(conv.reach.0, 0.99 / 2.5) && close(conv.reach.1, 2.02 / 2.5));
+    }
+
+    /// A converter's input lifted by its amplifier's reference: 500 mV +
+    /// 10 mV/K × 50 K = 1.0 V at the top, times a gain of 2 on a 1 V
+    /// reference is 3.0 V, 120 % of a 2.5 V reference. The gain scales
+    /// the 2.0 V above the reference alone: to reach 95 % (2.375 V) it
+    /// must shrink by 2.0 / 1.375 = 1.4545…, shown rounded up, 1.455
+    /// (the whole input's 120 / 95 = 1.263 would leave 2.58 V, still over).
+    #[test]
+    fn the_converters_gain_help_divides_only_what_the_gain_scales() {
+        let text = "chain t \"T\" {
+                measurand temperature 0 degC .. 50 degC
+                sensor probe {
+                    ic_voltage
+                    slope 10 mV/K
+                    output 500 mV at 0 degC
+                }
+                amplifier front {
+                    gain 2
+                    reference 1 V
+                }
+                adc conv {
+                    bits 16
+                    input single
+                    vref 2.5 V
+                }
+                convert reading { method exact }
+                probe -> front -> conv -> reading
+            }";
+        let chain = chain(text);
+        let plan = crate::eval::lower(&chain).expect("lowers");
+        let e = envelopes(&chain, &plan, 21).expect("evaluates");
+        let conv = e
+            .iter()
+            .find(|e| e.limit == Limit::ConverterInput)
+            .expect("the converter's input");
+        assert!(close(conv.reach.1, 1.2), "{conv:?}");
+        let share = gained_share(&plan, conv).expect("an amplifier ahead");
+        assert!(close(share, 2.0 / 3.0), "{share}");
+        assert_eq!(
+            converter_gain_fix(&plan, conv, conv.reach.1, 0.95),
+            "reduce the gain ahead of the converter by a factor of at least 1.455"
+        );
     }
 
     /// A divider's load on its source: 3.3 V across the NTC (Beta 3435 K,
