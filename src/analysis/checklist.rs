@@ -294,7 +294,7 @@ fn limit_row(plan: &Plan, e: &Envelope, margin: f64) -> LimitRow {
         headroom,
         status: if headroom < 0.0 {
             LimitStatus::Beyond
-        } else if headroom < margin {
+        } else if headroom < e.limit.margin_needed(margin) {
             LimitStatus::UnderMargin
         } else {
             LimitStatus::Inside

@@ -56,6 +56,23 @@ pub enum Pin {
 }
 
 impl Limit {
+    /// The headroom this limit must keep when `margin` is asked: a
+    /// converter's pin may sit on a rail (a pseudo-differential input's
+    /// low side on ground), so rails get none.
+    pub fn margin_needed(self, margin: f64) -> f64 {
+        match self {
+            Limit::ConverterPin(_) => 0.0,
+            Limit::AmplifierInput
+            | Limit::AmplifierOutput
+            | Limit::ConverterInput
+            | Limit::Compliance
+            | Limit::CurrentLimit
+            | Limit::MaxCurrent
+            | Limit::ConverterReference
+            | Limit::ConverterSettling => margin,
+        }
+    }
+
     pub fn describe(self) -> &'static str {
         match self {
             Limit::AmplifierInput => "input common mode",
@@ -772,15 +789,11 @@ fn finding(
     unit: &str,
 ) -> Option<Finding> {
     let headroom = e.headroom();
-    // Settling is judged on its own terms (R630), not as a range; a pin
-    // may sit on a rail (a pseudo-differential input's low side on
-    // ground), so rails get no margin.
-    let needed = match e.limit {
-        Limit::ConverterSettling => return None,
-        Limit::ConverterPin(_) => 0.0,
-        _ => margin,
-    };
-    if headroom >= needed || a_worse_pin(envelopes, e) {
+    // Settling is judged on its own terms (R630), not as a range.
+    if e.limit == Limit::ConverterSettling {
+        return None;
+    }
+    if headroom >= e.limit.margin_needed(margin) || a_worse_pin(envelopes, e) {
         return None;
     }
     let stage = chain

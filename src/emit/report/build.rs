@@ -184,10 +184,13 @@ fn verdict(o: &Outcome, a: &Analysis, limits: &[LimitRow], margin: f64, units: &
             at: v.at.map(|(m, t)| [units.position(m), from_si(t, "degC")]),
         })
         .collect();
+    // The rows are the envelopes', in order; each keeps the margin its
+    // kind of limit needs, as `check` asks it.
     let flagged: Vec<LimitFlag> = limits
         .iter()
-        .filter(|l| l.headroom < margin)
-        .map(|l| LimitFlag {
+        .zip(&a.envelopes)
+        .filter(|(l, e)| l.headroom < e.limit.margin_needed(margin))
+        .map(|(l, _)| LimitFlag {
             stage: l.stage.clone(),
             limit: l.limit.clone(),
             headroom: l.headroom,
