@@ -3,6 +3,7 @@
 //! the GUM sum honest about sources its linearisation cannot represent
 //! (R616).
 
+use super::budget::{Contribution, Point};
 use super::monte_carlo::NOISE_ID;
 use super::report::Analysis;
 use crate::diagnostics::{Code, Finding, Findings};
@@ -207,16 +208,47 @@ fn nonlinear_help(low: f64, high: f64) -> &'static str {
     }
 }
 
-/// R616 where the GUM sum had to leave its linearisation for some source:
-/// the chain does not follow the source in a straight line there (a stage
-/// clipping at one of its limits), so the evaluated limits stand in for
-/// the slope. One finding per chain, naming the source with the largest
-/// effect and where.
+/// How much taking the larger evaluated effects rather than the slopes
+/// must move a point's combined standard uncertainty for R616: less
+/// (a calibration's second-order residual, a source far down the list)
+/// turns no verdict and is not worth a warning `--deny warnings` fails on.
+pub const NONLINEAR_EFFECT: f64 = 0.01;
+
+/// A nonlinear source's standard uncertainty by its slope, as a linear
+/// source's is taken: half the spread of its limits over the divisor its
+/// larger effect was divided by.
+fn by_slope(c: &Contribution) -> f64 {
+    if c.worst > 0.0 {
+        c.standard * (c.high - c.low).abs() / (2.0 * c.worst)
+    } else {
+        c.standard
+    }
+}
+
+/// Whether the sources off their straight line move the point's combined
+/// standard uncertainty by [`NONLINEAR_EFFECT`] or more.
+fn leaves_linearisation(p: &Point) -> bool {
+    let moved: f64 = p
+        .contributions
+        .iter()
+        .filter(|c| !c.linear)
+        .map(|c| c.standard * c.standard - by_slope(c) * by_slope(c))
+        .sum();
+    let total = p.gum_standard * p.gum_standard;
+    moved > 0.0 && total > moved && (total / (total - moved)).sqrt() - 1.0 >= NONLINEAR_EFFECT
+}
+
+/// R616 where the GUM sum had to leave its linearisation for some source
+/// and that moved the combined uncertainty: the chain does not follow
+/// the source in a straight line there (a stage clipping at one of its
+/// limits), so the evaluated limits stand in for the slope. One finding
+/// per chain, naming the source with the largest effect and where.
 pub fn nonlinear(chain: &Chain, analysis: &Analysis) -> Option<Finding> {
     let points = &analysis.budget.points;
-    let flagged = points.iter().filter(|p| !p.linear).count();
+    let flagged = points.iter().filter(|p| leaves_linearisation(p)).count();
     let (point, source) = points
         .iter()
+        .filter(|p| leaves_linearisation(p))
         .flat_map(|p| p.contributions.iter().map(move |c| (p, c)))
         .filter(|(_, c)| !c.linear)
         .max_by(|a, b| a.1.worst.total_cmp(&b.1.worst))?;
@@ -243,7 +275,68 @@ pub fn nonlinear(chain: &Chain, analysis: &Analysis) -> Option<Finding> {
 
 #[cfg(test)]
 mod tests {
-    use super::nonlinear_help;
+    use super::{leaves_linearisation, nonlinear_help};
+    use crate::analysis::budget::{Contribution, Point};
+    use crate::eval::SourceName;
+
+    /// A source with limit effects `low`, `high` and rectangular divisor
+    /// √3, linear or not as the budget would judge it.
+    fn source(name: &str, (low, high): (f64, f64), linear: bool) -> Contribution {
+        let worst = low.abs().max(high.abs());
+        let standard = if linear {
+            (high - low).abs() / 2.0 / 3f64.sqrt()
+        } else {
+            worst / 3f64.sqrt()
+        };
+        Contribution {
+            id: SourceName::param("s", name),
+            kind: "tolerance",
+            low,
+            high,
+            worst,
+            standard,
+            linear,
+        }
+    }
+
+    fn point(contributions: Vec<Contribution>) -> Point {
+        let gum_standard = contributions
+            .iter()
+            .map(|c| c.standard * c.standard)
+            .sum::<f64>()
+            .sqrt();
+        Point {
+            measurand: 300.0,
+            ambient: 298.15,
+            linearisation: 0.0,
+            contributions,
+            worst_case: 0.0,
+            gum_standard,
+            gum_expanded: 2.0 * gum_standard,
+            linear: false,
+            volts_per_unit: 1.0,
+            codes_per_unit: 1.0,
+        }
+    }
+
+    /// The brooder's shape: a calibrated NTC's r25 leaves −0.0332 and
+    /// +0.0264 K beside a ± 0.2 K source. Its larger effect over √3 rather
+    /// than its slope moves u_c from 0.11674 to 0.11705 K, 0.26 %: no
+    /// warning. Alone, a source of −8.88 and +14.6 K (the R616 fixture's
+    /// NTC at ± 40 %) moves u_c from 6.78 to 8.43 K, 24 %: a warning.
+    #[test]
+    fn only_a_move_of_a_percent_in_u_c_is_a_departure_worth_a_warning() {
+        let calibrated = point(vec![
+            source("beta", (-0.2, 0.2), true),
+            source("r25", (-0.0332, 0.0264), false),
+        ]);
+        assert!(!leaves_linearisation(&calibrated));
+        assert!(leaves_linearisation(&point(vec![source(
+            "r25",
+            (14.6, -8.88),
+            false
+        )])));
+    }
 
     /// The shapes R616 meets, told apart by the reading's changes at the
     /// source's two limits: one limit barely moving it (a clip), both
