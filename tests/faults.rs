@@ -326,9 +326,11 @@ fn a_3_wire_rtd_with_its_compensation_lead_open_reads_below_the_window() {
 /// leads 0.5 Ω ± 0.2 Ω. Where wire 2 is the longer the net lead is
 /// negative; the element's arm keeps the short (1 mΩ) itself rather than
 /// going below zero, which the bridge cannot evaluate (the fault read
-/// "undetermined", and a trip above it masked). Nominal: 2.5 V ×
-/// (1 mΩ / 100.001 Ω − 1/2); each lead at the limit that lengthens wire 1
-/// over wire 2 raises the arm to 0.201 Ω, and the two deviations add up.
+/// "undetermined", and a trip above it masked). The figures follow the
+/// model's net lead (wire 1 less wire 2 in the element's arm, not wire 2
+/// in the next arm as wired): nominal 2.5 V × (1 mΩ / 100.001 Ω − 1/2);
+/// each lead at the limit that lengthens wire 1 over wire 2 raises the
+/// arm to 0.201 Ω, and the two deviations add up.
 #[test]
 fn a_shorted_3_wire_rtd_in_a_bridge_reads_half_scale_below_zero() {
     let list = checklist("kind_rtd_3wire_short_bridge.catena");

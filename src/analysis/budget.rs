@@ -46,6 +46,20 @@ pub struct Contribution {
     pub linear: bool,
 }
 
+impl Contribution {
+    /// Its standard uncertainty as the slope gives it, half the spread of
+    /// its limits over its divisor ([`standard_uncertainty`]'s), whether
+    /// or not the budget took the slope: a source off its straight line
+    /// holds its larger effect over that divisor instead.
+    pub fn by_slope(&self) -> f64 {
+        if self.linear || self.worst == 0.0 {
+            self.standard
+        } else {
+            self.standard * (self.high - self.low).abs() / (2.0 * self.worst)
+        }
+    }
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub struct Point {
     /// SI.

@@ -155,6 +155,16 @@ impl LimitUnit {
 }
 
 impl Envelope {
+    /// The condition where the signal comes closest to (or goes furthest
+    /// past) its limit, the cold junction at the ambient.
+    pub fn worst_env(&self) -> Env {
+        Env {
+            measurand: self.worst_at.0,
+            ambient: self.worst_at.1,
+            cold_junction: self.worst_at.1,
+        }
+    }
+
     /// The limit's span: the interval's width, or the one finite end's
     /// magnitude for a one-sided limit.
     pub fn span(&self) -> f64 {
@@ -995,11 +1005,7 @@ fn gained_share(plan: &Plan, e: &Envelope) -> Option<f64> {
     if !matches!(plan.nodes[ahead.index()], Node::Amplifier(_)) {
         return None;
     }
-    let worst = Env {
-        measurand: e.worst_at.0,
-        ambient: e.worst_at.1,
-        cold_junction: e.worst_at.1,
-    };
+    let worst = e.worst_env();
     let signals = plan.raw_signals(&plan.nominal, &worst).ok()?;
     let reference = plan.amplifier_reference(ahead, &plan.nominal, &worst, &signals)?;
     let (Signal::Voltage { v: out, .. }, Signal::Voltage { v: input, .. }) =
@@ -1019,11 +1025,7 @@ fn gained_share(plan: &Plan, e: &Envelope) -> Option<f64> {
 /// enough would also give up the span, so the reference is the fix.
 fn amplifier_output_fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
     let Side { value, target, .. } = side;
-    let worst = Env {
-        measurand: e.worst_at.0,
-        ambient: e.worst_at.1,
-        cold_junction: e.worst_at.1,
-    };
+    let worst = e.worst_env();
     let signals = plan.raw_signals(&plan.nominal, &worst).ok();
     let shift = signals
         .as_ref()

@@ -3,7 +3,7 @@
 //! the GUM sum honest about sources its linearisation cannot represent
 //! (R616).
 
-use super::budget::{Contribution, Point};
+use super::budget::Point;
 use super::monte_carlo::NOISE_ID;
 use super::report::Analysis;
 use crate::diagnostics::{Code, Finding, Findings};
@@ -214,17 +214,6 @@ fn nonlinear_help(low: f64, high: f64) -> &'static str {
 /// turns no verdict and is not worth a warning `--deny warnings` fails on.
 pub const NONLINEAR_EFFECT: f64 = 0.01;
 
-/// A nonlinear source's standard uncertainty by its slope, as a linear
-/// source's is taken: half the spread of its limits over the divisor its
-/// larger effect was divided by.
-fn by_slope(c: &Contribution) -> f64 {
-    if c.worst > 0.0 {
-        c.standard * (c.high - c.low).abs() / (2.0 * c.worst)
-    } else {
-        c.standard
-    }
-}
-
 /// Whether the sources off their straight line move the point's combined
 /// standard uncertainty by [`NONLINEAR_EFFECT`] or more.
 fn leaves_linearisation(p: &Point) -> bool {
@@ -232,7 +221,7 @@ fn leaves_linearisation(p: &Point) -> bool {
         .contributions
         .iter()
         .filter(|c| !c.linear)
-        .map(|c| c.standard * c.standard - by_slope(c) * by_slope(c))
+        .map(|c| c.standard * c.standard - c.by_slope() * c.by_slope())
         .sum();
     let total = p.gum_standard * p.gum_standard;
     moved > 0.0 && total > moved && (total / (total - moved)).sqrt() - 1.0 >= NONLINEAR_EFFECT

@@ -178,13 +178,21 @@ fn kind_of(e: &DiagramEdge, (a, b): (&DiagramNode, &DiagramNode)) -> Kind {
 const LANE: f64 = 6.0;
 const LANE_START: f64 = 8.0;
 
+/// Where one routed edge runs: its lane in the gap after its source's
+/// column, its lane in the gap before its target's (an edge going
+/// around), and its channel in the gap under its target's row.
+#[derive(Clone, Copy)]
+struct Runs {
+    out: usize,
+    before: Option<usize>,
+    channel: usize,
+}
+
 /// The lanes (vertical runs) of each column gap and the channels
 /// (horizontal runs) of each row gap, handed out edge by edge.
 struct Lanes {
-    /// Per edge: its lane in the gap after its source's column, its lane
-    /// in the gap before its target's (an edge going around), and its
-    /// channel in the gap under its target's row.
-    of_edge: Vec<Option<(usize, Option<usize>, usize)>>,
+    /// Per edge; None for one beside its target.
+    of_edge: Vec<Option<Runs>>,
     /// Most departing lanes in one column gap, most arriving ones, most
     /// channels in one row gap.
     most: (usize, usize, usize),
@@ -207,9 +215,11 @@ fn lanes(d: &Diagram, ends: &[Ends], kinds: &[Kind], row_of: &[usize]) -> Lanes 
             if kind == Kind::Beside {
                 return None;
             }
-            let out = take(&mut out_of[d.nodes[a].layer]);
-            let before = (kind == Kind::Around).then(|| take(&mut into[d.nodes[b].layer]));
-            Some((out, before, take(&mut in_row[row_of[b]])))
+            Some(Runs {
+                out: take(&mut out_of[d.nodes[a].layer]),
+                before: (kind == Kind::Around).then(|| take(&mut into[d.nodes[b].layer])),
+                channel: take(&mut in_row[row_of[b]]),
+            })
         })
         .collect();
     let most = (
@@ -368,9 +378,10 @@ impl Grid {
         20.0 + column as f64 * (self.box_w + self.col_gap) + self.box_w
     }
 
-    /// Departing lane `k`'s x in the gap after `column`: from its left.
-    fn lane(&self, column: usize, k: usize) -> f64 {
-        self.gap_left(column) + LANE_START + LANE * k as f64
+    /// Departing lane `k`'s x in the gap after the box `a`: from its
+    /// left.
+    fn departing_lane(&self, a: &Rect, k: usize) -> f64 {
+        a.x + a.w + LANE_START + LANE * k as f64
     }
 
     /// Arriving lane `k`'s x in the gap before the box at `x`: from the
@@ -382,11 +393,6 @@ impl Grid {
     /// Channel `k`'s y under the row whose boxes end at `bottom`.
     fn channel(&self, bottom: f64, k: usize) -> f64 {
         bottom + self.labels_room + LANE_START + LANE * k as f64
-    }
-
-    /// The column of a box.
-    fn column(&self, b: &Rect) -> usize {
-        ((b.x - 20.0) / (self.box_w + self.col_gap)).round() as usize
     }
 }
 
@@ -422,10 +428,14 @@ fn routed<'a>(
     e: &'a DiagramEdge,
     (a, b): (&Rect, &Rect),
     grid: &Grid,
-    (out, before, channel): (usize, Option<usize>, usize),
+    Runs {
+        out,
+        before,
+        channel,
+    }: Runs,
 ) -> EdgeDrawing<'a> {
     let from = (a.x + a.w, a.y + a.h / 2.0);
-    let x_out = grid.lane(grid.column(a), out);
+    let x_out = grid.departing_lane(a, out);
     let y = grid.channel(b.y + b.h, channel);
     let mut corners = vec![(x_out, from.1), (x_out, y)];
     let (to, label) = match before {
