@@ -323,29 +323,37 @@ fn a_3_wire_rtd_with_its_compensation_lead_open_reads_below_the_window() {
 }
 
 /// A shorted 3-wire Pt100 in a quarter bridge of 100 Ω from 2.5 V, its
-/// leads 0.5 Ω ± 0.2 Ω. Where wire 2 is the longer the net lead is
-/// negative; the element's arm keeps the short (1 mΩ) itself rather than
-/// going below zero, which the bridge cannot evaluate (the fault read
-/// "undetermined", and a trip above it masked). The figures follow the
-/// model's net lead (wire 1 less wire 2 in the element's arm, not wire 2
-/// in the next arm as wired): nominal 2.5 V × (1 mΩ / 100.001 Ω − 1/2);
-/// each lead at the limit that lengthens wire 1 over wire 2 raises the
-/// arm to 0.201 Ω, and the two deviations add up.
+/// leads 0.5 Ω ± 0.2 Ω. Wire 1 stays in the element's arm with the short
+/// (1 mΩ) and wire 2 in the next arm, with the completion resistor:
+/// V = 2.5 V × ((1 mΩ + L1) / (1 mΩ + L1 + 100 Ω + L2) − 1/2), about half
+/// of full scale below zero, far outside the window. The range adds each
+/// lead's own move at its limit to the nominal, as every fault range
+/// does: lowest with wire 1 short (0.3 Ω) and wire 2 long (0.7 Ω),
+/// highest the other way round. (A net lead L1 − L2 in the element's own
+/// arm went below zero there, and the fault read "undetermined".)
 #[test]
 fn a_shorted_3_wire_rtd_in_a_bridge_reads_half_scale_below_zero() {
     let list = checklist("kind_rtd_3wire_short_bridge.catena");
     let short = row(&list, "probe", "short");
-    let v = |r: f64| 2.5 * (r / (100.0 + r) - 0.5);
-    let nominal = v(1e-3) / 2.5 * 2f64.powi(23);
-    let rise = (v(0.201) - v(1e-3)) / 2.5 * 2f64.powi(23);
-    assert_eq!(
-        codes(short),
-        (
-            nominal.round() as i64,
-            (nominal + 2.0 * rise).round() as i64
-        )
-    );
+    let code = |l1: f64, l2: f64| {
+        let arm = 1e-3 + l1;
+        let v = 2.5 * (arm / (arm + 100.0 + l2) - 0.5);
+        v / 2.5 * 2f64.powi(23)
+    };
+    let nominal = code(0.5, 0.5);
+    let moved = |l1: f64, l2: f64| code(l1, 0.5) + code(0.5, l2) - nominal;
+    let (low, high) = (moved(0.3, 0.7), moved(0.7, 0.3));
+    assert_eq!(codes(short), (low.round() as i64, high.round() as i64));
     assert_eq!(short["verdict"], "detectable");
+    // The review item says where each lead sits.
+    let leads = list["chains"][0]["review"]
+        .as_array()
+        .expect("review items")
+        .iter()
+        .find(|r| r["kind"] == "leads")
+        .expect("a leads item");
+    let text = leads["text"].as_str().expect("text");
+    assert!(text.contains("3-wire in a bridge"), "{text}");
 }
 
 /// A 4-wire Pt100's sense lead open cuts the converter's input off the

@@ -83,13 +83,84 @@ fn three_wire_leads_are_two_independent_sources() {
 
 /// `catena eval --format json` of a spec in `tests/fixtures/sensors`.
 fn eval(spec: &str, at: &str) -> serde_json::Value {
-    let run = catena(
-        &dir(),
-        &["eval", spec, "--format", "json", "--at", at],
-        None,
-    );
+    eval_chain(spec, at, &[])
+}
+
+/// [`eval`] with further arguments, such as `--chain`.
+fn eval_chain(spec: &str, at: &str, args: &[&str]) -> serde_json::Value {
+    let mut all = vec!["eval", spec, "--format", "json", "--at", at];
+    all.extend_from_slice(args);
+    let run = catena(&dir(), &all, None);
     assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
     serde_json::from_str(&run.stdout).unwrap_or_else(|e| panic!("{e}: {}", run.stdout))
+}
+
+/// Pt100 resistance at `t` °C, t ≥ 0, Ω (IEC 60751 A and B).
+fn pt100(t: f64) -> f64 {
+    100.0 * (1.0 + 3.9083e-3 * t - 5.775e-7 * t * t)
+}
+
+/// A 3-wire Pt100 in a quarter bridge (100 Ω arms, 2.5 V, leads L1 and
+/// L2 of 0.5 Ω ± 0.2 Ω) by Kirchhoff: wire 1 is in the element's arm and
+/// wire 2 in the next arm, so V = 2.5 (R + L1) / (R + L1 + 100 + L2) − 1.25.
+/// At 100 °C (R = 138.5055 Ω) that is 200.964 mV, where a net lead
+/// L1 − L2 in the element's arm alone gives 201.806 mV, 0.5 K high. The
+/// leads' sensitivities differ off balance: ∂V/∂L1 = 2.5 (100 + L2)/S²
+/// and ∂V/∂L2 = −2.5 (R + L1)/S², S the sum of the two arms, against
+/// ∂V/∂t = 2.5 (100 + L2)/S² × dR/dt; each lead is rectangular,
+/// u = 0.2 Ω/√3.
+#[test]
+fn a_three_wire_element_in_a_bridge_puts_wire_2_in_the_next_arm() {
+    let (l1, l2, r3) = (0.5, 0.5, 100.0);
+    let r = pt100(100.0);
+    let v = eval_chain(
+        "three_wire_bridge.catena",
+        "100 degC",
+        &["--chain", "leads"],
+    );
+    let got = f(&v["nodes"]["arms"]["value"]);
+    let want = 2.5 * (r + l1) / (r + l1 + r3 + l2) - 1.25;
+    assert!((got - want).abs() < 1e-12, "{got} vs {want}");
+    let b = budget(
+        "three_wire_bridge.catena",
+        &["--chain", "leads", "--points", "3", "--trials", "0"],
+    );
+    let p = &b["points"][2];
+    assert_eq!(f(&p["measurand"]), 100.0);
+    let s = r + l1 + r3 + l2;
+    let per_kelvin = 2.5 * (r3 + l2) / (s * s) * pt100_slope(100.0);
+    let u = 0.2 / 3f64.sqrt();
+    let lead_u = |id: &str| f(&source(p, id)["standard_uncertainty"]);
+    let want_1 = 2.5 * (r3 + l2) / (s * s) * u / per_kelvin;
+    let want_2 = 2.5 * (r + l1) / (s * s) * u / per_kelvin;
+    for (id, want) in [("probe.lead_1", want_1), ("probe.lead_2", want_2)] {
+        let got = lead_u(id);
+        assert!((got - want).abs() < 1e-3 * want, "{id}: {got} vs {want}");
+    }
+}
+
+/// The same bridge self-heats its element by the current through its arm,
+/// both leads in that current's path: I = 2.5 V / (R + L1 + 100 Ω + L2),
+/// P = I² R, ΔT = P/δ with δ = 2 mW/K, solved here by fixed-point
+/// iteration (about 7.5 K at 100 °C).
+#[test]
+fn a_three_wire_element_in_a_bridge_heats_with_both_leads_in_its_path() {
+    let (lead, r3, delta) = (0.5, 100.0, 2e-3);
+    let mut t = 100.0;
+    for _ in 0..100 {
+        let r = pt100(t);
+        let i = 2.5 / (r + lead + r3 + lead);
+        t = 100.0 + i * i * r / delta;
+    }
+    let r = pt100(t);
+    let want = 2.5 * (r + lead) / (r + lead + r3 + lead) - 1.25;
+    let v = eval_chain(
+        "three_wire_bridge.catena",
+        "100 degC",
+        &["--chain", "heated"],
+    );
+    let got = f(&v["nodes"]["arms"]["value"]);
+    assert!((got - want).abs() < 1e-7 * want, "{got} vs {want}");
 }
 
 /// A thermistor's self-heating in a divider, by hand: a 10 kΩ NTC

@@ -358,15 +358,19 @@ fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
         Node::Rtd(node::Rtd {
             wiring,
             leads: Some((a, b)),
+            input,
             ..
         }) => {
             let (a, b) = (&plan.slots[a.index()], &plan.slots[b.index()]);
-            let seen = match wiring {
-                Wiring::TwoWire => "2-wire: the reading sees both leads in series",
-                Wiring::ThreeWire => {
+            let seen = match (wiring, input) {
+                (Wiring::TwoWire, _) => "2-wire: the reading sees both leads in series",
+                (Wiring::ThreeWire, Some(_)) => {
                     "3-wire: the reading sees the two leads' difference, so they must match"
                 }
-                Wiring::FourWire => {
+                (Wiring::ThreeWire, None) => {
+                    "3-wire in a bridge: one lead sits in the element's arm and the other in the next, so they cancel only at balance and must match"
+                }
+                (Wiring::FourWire, _) => {
                     "4-wire: the reading sees no lead, but the excitation's compliance must cover their loop"
                 }
             };

@@ -484,15 +484,9 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
     plan.nodes
         .iter()
         .map(|node| match node {
-            Node::Bridge(node::Bridge {
-                exc: e,
-                kind,
-                r,
-                arms,
-                ..
-            }) if *e == exc => {
-                let fixed = r.map(|r| values[r.index()]).unwrap_or(0.0);
-                let load = bridge_load(*kind, fixed, arms, s);
+            Node::Bridge(bridge) if bridge.exc == exc => {
+                let fixed = bridge.r.map(|r| values[r.index()]).unwrap_or(0.0);
+                let load = bridge_load(plan, bridge, fixed, values, s);
                 if load > 0.0 {
                     v / load
                 } else {
@@ -523,18 +517,30 @@ fn load_current(plan: &Plan, values: &[f64], s: &[Signal], exc: NodeId) -> f64 {
 }
 
 /// The resistance a bridge or divider puts across its excitation, its
-/// completion resistors all `fixed`. Arm positions as in the evaluator:
-/// r1 r2 | r3 r4.
-fn bridge_load(kind: BridgeKind, fixed: f64, arms: &[NodeId], s: &[Signal]) -> f64 {
-    let arm = |k: usize| match arms.get(k).map(|&a| s[a.index()]) {
+/// completion resistors all `fixed`, a three-wire element's wire 2 in
+/// the next arm. Arm positions as in the evaluator: r1 r2 | r3 r4, a
+/// divider's element at r2 and its fixed part at r1.
+fn bridge_load(
+    plan: &Plan,
+    bridge: &node::Bridge,
+    fixed: f64,
+    values: &[f64],
+    s: &[Signal],
+) -> f64 {
+    let mut arms = bridge.positions().map(|n| match n.map(|n| s[n.index()]) {
         Some(Signal::Element(r)) => r,
         _ => fixed,
-    };
-    match kind {
-        BridgeKind::Divider { .. } => arm(0) + fixed,
-        BridgeKind::Quarter => bridge_input_resistance(fixed, arm(0), fixed, fixed),
-        BridgeKind::Half => bridge_input_resistance(fixed, arm(0), arm(1), fixed),
-        BridgeKind::Full => bridge_input_resistance(arm(2), arm(0), arm(1), arm(3)),
+    });
+    for (k, n) in bridge.positions().into_iter().enumerate() {
+        if let Some(n) = n {
+            arms[k ^ 1] += plan.next_arm_lead(n, values);
+        }
+    }
+    match bridge.kind {
+        BridgeKind::Divider { .. } => arms[0] + arms[1],
+        BridgeKind::Quarter | BridgeKind::Half | BridgeKind::Full => {
+            bridge_input_resistance(arms[0], arms[1], arms[2], arms[3])
+        }
     }
 }
 
@@ -1325,21 +1331,51 @@ mod tests {
         assert_eq!(pin_voltage(Signal::None, true, Pin::Positive), 0.0);
     }
 
-    /// A bridge loads its source with its two sides in parallel: a
-    /// quarter bridge of 350 Ω parts with the gauge at 351 Ω gives
-    /// 701 ∥ 700 Ω; a divider its two parts in series.
+    /// The load bridge `text`'s bridge puts on its excitation at 0 °C, with
+    /// every part nominal.
+    fn bridge_load_of(text: &str) -> f64 {
+        let plan = crate::eval::lower(&chain(text)).expect("lowers");
+        let env = Env {
+            measurand: ZERO_CELSIUS_K,
+            ambient: plan.reference,
+            cold_junction: plan.reference,
+        };
+        let s = plan.raw_signals(&plan.nominal, &env).expect("evaluates");
+        let bridge = plan.nodes.iter().find_map(|n| {
+            let Node::Bridge(b) = n else { return None };
+            Some(b)
+        });
+        let bridge = bridge.expect("a bridge");
+        let fixed = plan.nominal[bridge.r.expect("completion").index()];
+        bridge_load(&plan, bridge, fixed, &plan.nominal, &s)
+    }
+
+    fn probe_in(wires: u8, bridge: &str) -> String {
+        format!(
+            "chain c {{\n    measurand temperature 0 degC .. 100 degC\n    \
+             excitation supply {{ voltage 2.5 V }}\n    \
+             sensor probe {{\n        rtd pt100\n        wires {wires}\n        \
+             lead 0.5 ohm ± 0.2 ohm\n    }}\n    \
+             bridge arms {{\n        {bridge}\n    }}\n    \
+             adc conv {{\n        bits 24\n        input differential\n        \
+             vref 2.5 V\n    }}\n    convert reading {{ method exact }}\n    \
+             supply -> arms -> conv -> reading\n    probe -> arms.arm\n}}\n"
+        )
+    }
+
+    /// A bridge loads its source with its two sides in parallel, a
+    /// divider with its two parts in series. A Pt100 at 0 °C (100 Ω) with
+    /// 0.5 Ω leads: 2-wire in a quarter bridge of 100 Ω, its arm is 101 Ω,
+    /// so 201 ∥ 200 Ω; 3-wire, wire 2 moves to the next arm, 201 ∥ 200 Ω
+    /// still; 3-wire below 1 kΩ in a divider, 100.5 + 1000.5 Ω.
     #[test]
     fn bridge_loads() {
-        let mut s = [Signal::None; MAX_NODES];
-        s[1] = Signal::Element(351.0);
-        let quarter = bridge_load(BridgeKind::Quarter, 350.0, &[NodeId::new(1)], &s);
-        assert!(close(quarter, 701.0 * 700.0 / 1401.0), "{quarter}");
-        let divider = bridge_load(
-            BridgeKind::Divider { sensor_high: false },
-            1e4,
-            &[NodeId::new(1)],
-            &s,
-        );
-        assert_eq!(divider, 10_351.0);
+        let quarter = 201.0 * 200.0 / 401.0;
+        let two = bridge_load_of(&probe_in(2, "quarter\n        r 100 ohm"));
+        assert!(close(two, quarter), "{two}");
+        let three = bridge_load_of(&probe_in(3, "quarter\n        r 100 ohm"));
+        assert!(close(three, quarter), "{three}");
+        let divider = bridge_load_of(&probe_in(3, "divider\n        r 1 kohm"));
+        assert!(close(divider, 1101.0), "{divider}");
     }
 }

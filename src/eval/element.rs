@@ -129,12 +129,12 @@ impl Plan {
         }
     }
 
-    /// The lead resistance element node `n` adds to its arm value: the
-    /// arm less this is the element itself, without evaluating its curve
-    /// again.
+    /// The lead resistance element node `n` adds to its arm value in a
+    /// bridge or divider: the arm less this is the element itself,
+    /// without evaluating its curve again.
     fn element_leads(&self, n: NodeId, values: &[f64]) -> f64 {
         self.lead_slots(n).map_or(0.0, |(wiring, a, b)| {
-            rtd::lead_series_resistance(wiring, values[a.index()], values[b.index()])
+            rtd::arm_lead_resistance(wiring, values[a.index()], values[b.index()])
         })
     }
 
@@ -145,7 +145,25 @@ impl Plan {
             return [0.0; LANES];
         };
         let (a, b) = (run.slot(a), run.slot(b));
-        std::array::from_fn(|k| rtd::lead_series_resistance(wiring, a[k], b[k]))
+        std::array::from_fn(|k| rtd::arm_lead_resistance(wiring, a[k], b[k]))
+    }
+
+    /// The lead resistance, Ω, element node `n` puts in the next arm on
+    /// its side of a bridge or divider: a three-wire element's wire 2.
+    pub(crate) fn next_arm_lead(&self, n: NodeId, values: &[f64]) -> f64 {
+        self.lead_slots(n).map_or(0.0, |(wiring, _, b)| {
+            rtd::next_arm_lead_resistance(wiring, values[b.index()])
+        })
+    }
+
+    /// [`Plan::next_arm_lead`] in every lane, from the lead's column.
+    #[inline(always)]
+    pub(super) fn next_arm_lead_lanes(&self, n: NodeId, run: &LaneRun<'_>) -> [f64; LANES] {
+        let Some((wiring, _, b)) = self.lead_slots(n) else {
+            return [0.0; LANES];
+        };
+        let b = run.slot(b);
+        std::array::from_fn(|k| rtd::next_arm_lead_resistance(wiring, b[k]))
     }
 
     /// The wiring and the two leads' slots of element node `n`, if it has

@@ -318,14 +318,43 @@ pub enum Wiring {
 /// wires 1 + 2; three-wire subtracts wire 2 (sensed in the compensating
 /// path) from wire 1 and keeps their difference, which for two independent
 /// leads within ±t is triangular over ±2t (JCGM 100:2008 §4.3.9), not
-/// rectangular; four-wire senses at the element and sees no lead. The
-/// leads still carry the excitation: see [`lead_loop_resistance`] for
-/// compliance.
+/// rectangular; four-wire senses at the element and sees no lead. This is
+/// the element on a current source; in a bridge or divider arm see
+/// [`arm_lead_resistance`]. The leads still carry the excitation: see
+/// [`lead_loop_resistance`] for compliance.
 pub fn lead_series_resistance(wiring: Wiring, lead_1: f64, lead_2: f64) -> f64 {
     match wiring {
         Wiring::TwoWire => lead_1 + lead_2,
         Wiring::ThreeWire => lead_1 - lead_2,
         Wiring::FourWire => 0.0,
+    }
+}
+
+/// Lead resistance in Ω in the element's own arm where it sits in a
+/// bridge or a divider: both wires for two-wire; for three-wire, wire 1
+/// only, since wire 2 runs in the next arm on the element's side of the
+/// bridge (the arm sharing its output node, [`next_arm_lead_resistance`])
+/// and wire 3 senses that node, carrying no current (the three-wire
+/// bridge connection, common practice). Equal leads cancel at balance
+/// only: to first order, from the bridge's two dividers, a quarter
+/// bridge of arms R from V moves by V (L1 − L2) / 4R at balance, and with
+/// equal leads L by −V L ΔR / 4R² where the element is ΔR off balance.
+/// Four-wire senses at the element.
+pub fn arm_lead_resistance(wiring: Wiring, lead_1: f64, lead_2: f64) -> f64 {
+    match wiring {
+        Wiring::TwoWire => lead_1 + lead_2,
+        Wiring::ThreeWire => lead_1,
+        Wiring::FourWire => 0.0,
+    }
+}
+
+/// Lead resistance in Ω an element in a bridge or divider arm puts in the
+/// next arm on its side: a three-wire element's wire 2; none otherwise
+/// (see [`arm_lead_resistance`]).
+pub fn next_arm_lead_resistance(wiring: Wiring, lead_2: f64) -> f64 {
+    match wiring {
+        Wiring::ThreeWire => lead_2,
+        Wiring::TwoWire | Wiring::FourWire => 0.0,
     }
 }
 
@@ -545,6 +574,14 @@ mod tests {
         assert!((lead_series_resistance(Wiring::ThreeWire, r1, r2) - 0.02).abs() < 1e-15);
         assert_eq!(lead_series_resistance(Wiring::FourWire, r1, r2), 0.0);
         assert!((lead_loop_resistance(r1, r2) - 1.02).abs() < 1e-15);
+        // In a bridge arm the two wires part: wire 1 in the element's
+        // arm, wire 2 in the next; two-wire keeps both, four-wire none.
+        assert_eq!(arm_lead_resistance(Wiring::ThreeWire, r1, r2), r1);
+        assert_eq!(next_arm_lead_resistance(Wiring::ThreeWire, r2), r2);
+        assert!((arm_lead_resistance(Wiring::TwoWire, r1, r2) - 1.02).abs() < 1e-15);
+        assert_eq!(next_arm_lead_resistance(Wiring::TwoWire, r2), 0.0);
+        assert_eq!(arm_lead_resistance(Wiring::FourWire, r1, r2), 0.0);
+        assert_eq!(next_arm_lead_resistance(Wiring::FourWire, r2), 0.0);
     }
 
     /// Worked by hand: 1 mA in 100 Ω dissipates (1e-3 A)² × 100 Ω = 100 µW;

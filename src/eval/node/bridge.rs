@@ -151,19 +151,27 @@ impl Bridge {
         // Arms by position, as drawn in `physics::strain`: r1 r2 on the
         // positive side, r3 r4 on the negative; active elements in edge
         // order go to r2, r3, r1, r4.
+        let next_lead = |n: NodeId| run.plan.next_arm_lead(n, values);
         let (r1, r2, r3, r4) = match self.kind {
             BridgeKind::Divider { sensor_high } => {
-                return self.divider(run, sensor_high, fixed, arm(0)?)
+                let fixed = fixed + self.arms.first().map_or(0.0, |&n| next_lead(n));
+                return self.divider(run, sensor_high, fixed, arm(0)?);
             }
             BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
             BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
+        let mut arms = [r1, r2, r3, r4];
+        for (k, n) in self.positions().into_iter().enumerate() {
+            if let Some(n) = n {
+                arms[k ^ 1] += next_lead(n);
+            }
+        }
         let exc = s[self.exc.index()];
         let placed = self.placed(run.mode);
-        let [r1, r2, r3, r4] =
-            run.plan
-                .heated_bridge_arms([r1, r2, r3, r4], placed, exc, values, run.env)?;
+        let [r1, r2, r3, r4] = run
+            .plan
+            .heated_bridge_arms(arms, placed, exc, values, run.env)?;
         let v_exc = match exc {
             Signal::Source(v) => v,
             Signal::Current(a) => strain::bridge_excitation_v(a, r1, r2, r3, r4),
@@ -211,22 +219,26 @@ impl Bridge {
         })
     }
 
-    /// Which element sits in each arm by position (r1 r2 | r3 r4), for
-    /// its self-heating: a faulted arm is what the fault made it, not
-    /// heated again.
+    /// Which element sits in each arm by position (r1 r2 | r3 r4), as
+    /// `Bridge::solve` places them; a divider's element is its first.
+    /// The next arm on an element's side, the one sharing its output node,
+    /// is at position k ^ 1: a three-wire element's wire 2 runs there.
     #[inline(always)]
-    fn placed(&self, mode: Mode) -> [Option<NodeId>; 4] {
-        let at = |k: usize| {
-            self.arms
-                .get(k)
-                .copied()
-                .filter(|&n| mode.faulted != Some(n))
-        };
+    pub(crate) fn positions(&self) -> [Option<NodeId>; 4] {
+        let at = |k: usize| self.arms.get(k).copied();
         match self.kind {
             BridgeKind::Quarter => [None, at(0), None, None],
             BridgeKind::Half => [None, at(0), at(1), None],
             BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
         }
+    }
+
+    /// [`Bridge::positions`] for self-heating: a faulted arm is what the
+    /// fault made it, not heated again.
+    #[inline(always)]
+    fn placed(&self, mode: Mode) -> [Option<NodeId>; 4] {
+        self.positions()
+            .map(|n| n.filter(|&n| mode.faulted != Some(n)))
     }
 
     /// A divider's element, for its self-heating, unless it is faulted.
@@ -263,15 +275,26 @@ impl Bridge {
             run.s[n.index()].of(Tag::Element).copied().ok_or(Lost)
         };
         // Arms by position, as in `Bridge::solve`.
+        let next_lead = |n: NodeId| run.plan.next_arm_lead_lanes(n, run);
         let (r1, r2, r3, r4) = match self.kind {
             BridgeKind::Divider { sensor_high } => {
-                return self.divider_lanes(run, sensor_high, &fixed, &arm(0)?, out)
+                let lead = self.arms.first().map_or([0.0; LANES], |&n| next_lead(n));
+                let fixed = std::array::from_fn(|j| fixed[j] + lead[j]);
+                return self.divider_lanes(run, sensor_high, &fixed, &arm(0)?, out);
             }
             BridgeKind::Quarter => (fixed, arm(0)?, other(0), other(1)),
             BridgeKind::Half => (fixed, arm(0)?, arm(1)?, other(0)),
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
-        let arms = std::array::from_fn(|j| [r1[j], r2[j], r3[j], r4[j]]);
+        let mut arms: [[f64; 4]; LANES] = std::array::from_fn(|j| [r1[j], r2[j], r3[j], r4[j]]);
+        for (k, n) in self.positions().into_iter().enumerate() {
+            if let Some(n) = n {
+                let lead = next_lead(n);
+                for (arms, lead) in arms.iter_mut().zip(lead) {
+                    arms[k ^ 1] += lead;
+                }
+            }
+        }
         let arms = run
             .plan
             .heated_bridge_arm_lanes(arms, self.placed(run.mode), exc, run)?;

@@ -516,15 +516,7 @@ impl Run<'_> {
         lead: f64,
     ) -> Result<Faulted, EvalError> {
         Ok(match (kind, self.current_into(input)) {
-            // A three-wire element's net lead (wire 1 less wire 2) is
-            // negative where wire 2 is the longer; in a bridge or divider
-            // it stands for wire 2 in the next arm, and the shorted
-            // element's own arm still holds the short and wire 1: never
-            // less than the short itself.
-            (FaultKind::Short, None) => {
-                Faulted::Signal(self.element((SHORT_OHMS + lead).max(SHORT_OHMS), input))
-            }
-            (FaultKind::Short, Some(_)) => Faulted::Signal(self.element(SHORT_OHMS + lead, input)),
+            (FaultKind::Short, _) => Faulted::Signal(self.element(SHORT_OHMS + lead, input)),
             (FaultKind::Open, None) => Faulted::Signal(Signal::Element(OPEN_OHMS)),
             (FaultKind::Open, Some(_)) => match input.and_then(|n| self.plan.compliance(n, self.s))
             {

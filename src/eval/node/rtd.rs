@@ -228,9 +228,7 @@ impl Rtd {
         // the single run adds.
         let leads = self.leads.map(|(a, b)| (run.slot(a), run.slot(b)));
         for (k, r) in r.iter_mut().enumerate() {
-            *r += leads.map_or(0.0, |(a, b)| {
-                rtd::lead_series_resistance(self.wiring, a[k], b[k])
-            });
+            *r += leads.map_or(0.0, |(a, b)| self.measured_lead(a[k], b[k]));
         }
         run.element_into(&r, self.input, out);
         Ok(())
@@ -244,10 +242,20 @@ impl Rtd {
     #[inline(always)]
     fn lead_of(&self, values: &[f64]) -> f64 {
         self.leads
-            .map(|(a, b)| {
-                rtd::lead_series_resistance(self.wiring, values[a.index()], values[b.index()])
-            })
+            .map(|(a, b)| self.measured_lead(values[a.index()], values[b.index()]))
             .unwrap_or(0.0)
+    }
+
+    /// The leads' resistance the element's value carries, wires 1 and 2
+    /// of `lead_1` and `lead_2` Ω: on a current source, as the wiring
+    /// compensates; in a bridge or divider arm, what is in its own arm
+    /// (the bridge puts a three-wire element's wire 2 in the next arm).
+    #[inline(always)]
+    fn measured_lead(&self, lead_1: f64, lead_2: f64) -> f64 {
+        match self.input {
+            Some(_) => rtd::lead_series_resistance(self.wiring, lead_1, lead_2),
+            None => rtd::arm_lead_resistance(self.wiring, lead_1, lead_2),
+        }
     }
 
     /// Each lead's own resistance, Ω (0 where no lead is stated).
