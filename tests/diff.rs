@@ -215,6 +215,39 @@ fn an_unknown_revision_is_a_usage_error() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// A converter's pin may sit on its rail (a grounded low side), so
+/// `check` gives it no margin; the least headroom `compare` names is the
+/// least of the limits that keep one. The kiln's negative input pin sits
+/// 1.9 % of its span above its rail; its converter input keeps 6.3 %,
+/// the least of the rest (`budget --format json`'s limits).
+#[test]
+fn compare_names_the_least_headroom_that_must_keep_a_margin() {
+    let kiln = "specs/pottery_kiln.catena";
+    let run = catena(
+        &root(),
+        &["budget", kiln, "--trials", "0", "--format", "json"],
+        None,
+    );
+    let limits = json(&run.stdout)["limits"].as_array().unwrap().clone();
+    let headroom = |l: &serde_json::Value| l["headroom"].as_f64().unwrap();
+    let is_pin = |l: &serde_json::Value| l["limit"].as_str().unwrap().contains("pin");
+    let pins = limits.iter().filter(|l| is_pin(l)).map(headroom);
+    let least_pin = pins.fold(f64::INFINITY, f64::min);
+    let least = limits.iter().filter(|l| !is_pin(l)).map(headroom);
+    let least = least.fold(f64::INFINITY, f64::min);
+    assert!(least_pin < least, "{least_pin} {least}");
+    let args = ["compare", kiln, "--trials", "0", "--format", "markdown"];
+    let run = catena(&root(), &args, None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    let row = run
+        .stdout
+        .lines()
+        .find(|l| l.starts_with("| least headroom"));
+    let row = row.expect("a least headroom row");
+    let want = format!("| least headroom | {:.3} % (conv input) |", least * 100.0);
+    assert_eq!(row, want);
+}
+
 #[test]
 fn compare_lines_candidates_up() {
     let run = catena(

@@ -60,8 +60,18 @@ impl Limit {
     /// converter's pin may sit on a rail (a pseudo-differential input's
     /// low side on ground), so rails get none.
     pub fn margin_needed(self, margin: f64) -> f64 {
+        if self.keeps_margin() {
+            margin
+        } else {
+            0.0
+        }
+    }
+
+    /// Whether the signal must keep a margin from this limit, rather than
+    /// only stay within it (see [`Limit::margin_needed`]).
+    pub fn keeps_margin(self) -> bool {
         match self {
-            Limit::ConverterPin(_) => 0.0,
+            Limit::ConverterPin(_) => false,
             Limit::AmplifierInput
             | Limit::AmplifierOutput
             | Limit::ConverterInput
@@ -69,7 +79,7 @@ impl Limit {
             | Limit::CurrentLimit
             | Limit::MaxCurrent
             | Limit::ConverterReference
-            | Limit::ConverterSettling => margin,
+            | Limit::ConverterSettling => true,
         }
     }
 

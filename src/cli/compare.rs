@@ -151,9 +151,12 @@ fn table(candidates: &[Candidate]) -> (Vec<String>, Vec<Vec<String>>) {
             format!("{id} ({:.0} %)", share * 100.0)
         })
     });
+    // A converter's pin may sit on its rail by design: it counts here
+    // only beyond it, as `check` judges it.
     row("least headroom".into(), &|o| {
         o.limits
             .iter()
+            .filter(|l| l.keeps_margin || l.headroom < 0.0)
             .min_by(|a, b| a.headroom.total_cmp(&b.headroom))
             .map_or("—".into(), |l| {
                 format!("{} % ({} {})", num(l.headroom * 100.0), l.stage, l.limit)

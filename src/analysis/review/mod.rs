@@ -587,6 +587,7 @@ mod tests {
                 stage: "conv".into(),
                 limit: "input",
                 headroom,
+                keeps_margin: true,
             }],
             resolution: 0.01,
             response_s: None,

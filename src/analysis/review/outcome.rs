@@ -82,6 +82,10 @@ pub struct LimitOutcome {
     pub limit: &'static str,
     /// The share of the limit's span left (negative: beyond it).
     pub headroom: f64,
+    /// Whether `check` asks the signal to keep a margin from the limit
+    /// (a converter's pin may sit on its rail).
+    #[serde(skip)]
+    pub keeps_margin: bool,
 }
 
 #[derive(Clone, Debug, PartialEq, Serialize)]
@@ -371,6 +375,7 @@ pub fn outcome(chain: &Chain, plan: &Plan, a: &Analysis, faults: Option<&FaultRe
                 stage: a.names.get(e.node.index()).cloned().unwrap_or_default(),
                 limit: e.limit.describe(),
                 headroom: e.headroom(),
+                keeps_margin: e.limit.keeps_margin(),
             })
             .collect(),
         resolution: resolution(a) * f,
