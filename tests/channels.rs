@@ -319,10 +319,14 @@ fn rectangles_95(halves: &[f64]) -> f64 {
 ///   bandwidth, adds under 1e-4 of it), and the four channels' add in
 ///   quadrature in the sum (× 2);
 /// - a cell's excitation lead open leaves its bridge at 0 V: its own code
-///   is the converter's offset and INL alone, 5 µV × 128 / 5 V × 2²³ +
-///   15 ppm × 2²⁴ = 1325.4, far below its window, while the sum of the
-///   three others stays inside the sum's window; so it is seen on that
-///   channel, with the threshold halfway;
+///   is the 100 nA burnout current through the cell's 175 Ω output
+///   resistance, 100 nA × 175 Ω × 128 / 5 V × 2²³ = 3758.1 codes, moved
+///   by the converter's offset, bias current and INL (5 µV and 1 nA ×
+///   175 Ω × 128 / 5 V × 2²³ + 15 ppm × 2²⁴ = 1363.0) and by what scales
+///   the shift (the cell's ± 1 %, the 5 V supply's ± 0.2 % as the
+///   reference, the gain error's ± 0.01 %): far below its window, while
+///   the sum of the three others stays inside the sum's window; so it is
+///   seen on that channel, with the threshold halfway;
 /// - its signal lead open is driven by the 100 nA burnout current to the
 ///   top code, 2²³ − 1, and the sum is that plus the three healthy
 ///   channels at their lowest (each its window's low end plus 3 σ).
@@ -368,15 +372,22 @@ fn a_summed_cell_failing_is_judged_on_its_own_channel() {
             .clone()
     };
     let lead = fault("leg_2", "excitation_lead_open");
-    // The converter's offset, its 1 nA input bias current through the
-    // cell's half-bridge (350 Ω / 2) and its INL, each at its limit.
-    let input = (5e-6 + 1e-9 * 175.0) * 128.0 / 5.0 * 2f64.powi(23);
-    let floor = (input + 15e-6 * 2f64.powi(24)).round() as i64;
+    // The burnout current through the cell's half-bridge (350 Ω / 2);
+    // the converter's offset, its 1 nA input bias current through the
+    // same and its INL, each at its limit; and what scales the shift.
+    let per_volt = 128.0 / 5.0 * 2f64.powi(23);
+    let shift = 100e-9 * 175.0 * per_volt;
+    let moved = (5e-6 + 1e-9 * 175.0) * per_volt + 15e-6 * 2f64.powi(24);
+    let down = shift * (0.01 + (1.0 - 1.0 / 1.002) + 1e-4);
+    let up = shift * (0.01 + (1.0 / 0.998 - 1.0) + 1e-4);
+    let (lead_low, lead_high) = (shift - moved - down, shift + moved + up);
+    let lead_high = lead_high.round() as i64;
     assert_eq!(lead["verdict"], "detectable", "{lead}");
     assert_eq!(lead["channel"], "leg_2_in", "{lead}");
-    assert_eq!(lead["codes"], serde_json::json!([-floor, floor]), "{lead}");
+    let codes = serde_json::json!([lead_low.round() as i64, lead_high]);
+    assert_eq!(lead["codes"], codes, "{lead}");
     let own_low = own("leg_2_in")["low"].as_i64().unwrap();
-    let threshold = floor + (own_low - floor).div_euclid(2);
+    let threshold = lead_high + (own_low - lead_high).div_euclid(2);
     assert_eq!(lead["threshold"], format!("leg_2_in code < {threshold}"));
     let signal = fault("leg_2", "signal_lead_open");
     assert_eq!(signal["verdict"], "detectable", "{signal}");

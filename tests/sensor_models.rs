@@ -415,3 +415,46 @@ fn custom_rtd_coefficients_with_tolerances() {
         }
     }
 }
+
+/// A couple's loop (`lead`, 20 Ω ± 5 Ω) carries the burnout current of
+/// the in-amp reading it (2 µA) in the healthy chain too, so the input
+/// sits I × (20 Ω ∥ 1 MΩ) above the EMF (Ohm's law; the bias resistor
+/// runs from the positive input to the bias point, shunted by the
+/// loop). The chain without the current reads that much × the gain of
+/// 50 lower. Off its nominal, the loop moves the input by up to
+/// 2 µA × 5 Ω = 10 µV: a rectangular source one fifth of the amplifier's
+/// 50 µV offset, in kelvin as in volts.
+#[test]
+fn a_burnout_current_flows_round_a_healthy_couple_loop() {
+    let at = |chain: &str| {
+        let v = eval_chain("couple_loop.catena", "400 degC", &["--chain", chain]);
+        f(&v["nodes"]["front"]["value"])
+    };
+    let (current, gain) = (2e-6, 50.0);
+    let rs = 20.0 * 1e6 / (20.0 + 1e6);
+    let shift = at("burnout") - at("quiet");
+    let want = gain * current * rs;
+    assert!((shift - want).abs() < 1e-9 * want, "{shift} vs {want}");
+    let b = budget(
+        "couple_loop.catena",
+        &["--chain", "burnout", "--points", "3", "--trials", "0"],
+    );
+    for p in b["points"].as_array().unwrap() {
+        let u = |id: &str| f(&source(p, id)["standard_uncertainty"]);
+        let ratio = u("tc.lead") / u("front.offset");
+        // d(rs)/d(loop) = (1 MΩ / (1 MΩ + 20 Ω))², 4e-5 short of one.
+        let want = current * 5.0 / 50e-6 * (1e6 / (1e6 + 20.0f64)).powi(2);
+        assert!((ratio - want).abs() < 1e-3 * want, "{ratio} vs {want}");
+    }
+}
+
+/// A converter's burnout current flows out through a healthy divider's
+/// source resistance as well: a 10 kΩ NTC under 10 kΩ from 2.5 V gives
+/// 1.25 V from 5 kΩ at 25 °C, and 1 µA raises the pin by 5 mV, so a
+/// 24-bit converter on the same 2.5 V reads (1.255 / 2.5) × 2²⁴.
+#[test]
+fn a_converters_burnout_current_flows_through_a_healthy_divider() {
+    let v = eval("divider_burnout.catena", "25 degC");
+    let want = (1.255f64 / 2.5 * 2f64.powi(24)).round();
+    assert_eq!(f(&v["code"]), want, "{v}");
+}

@@ -386,7 +386,15 @@ fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
         Node::Rtd(node::Rtd { leads: None, .. }) => Some(format!(
             "measure the installed lead resistance of `{name}`: the spec states none, so the budget holds no lead error"
         )),
-        Node::Thermocouple(_) => Some(format!(
+        Node::Thermocouple(node::Thermocouple { lead: Some(l), .. }) => {
+            let l = &plan.slots[l.index()];
+            Some(format!(
+                "measure the installed loop resistance of `{name}`: the spec assumes {} {}, and a bias or burnout current's drop across it is in the budget at that value",
+                ohms(l.nominal),
+                spread(l.minus, l.plus, ohms)
+            ))
+        }
+        Node::Thermocouple(node::Thermocouple { lead: None, .. }) => Some(format!(
             "measure the installed loop resistance of `{name}`: the spec states none, so any bias or burnout current's drop across it is not in the budget"
         )),
         Node::Thermistor(_)

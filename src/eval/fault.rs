@@ -176,17 +176,44 @@ impl FaultKind {
 pub const FLOATING: &str =
     "nothing gives the open input a path: its bias current charges it toward an unknown rail";
 
+impl Mode {
+    /// The burnout current a stage reading node `input` sources, its own
+    /// `burnout` unless the fault at that node states the current.
+    #[inline(always)]
+    pub(super) fn burnout_into(&self, input: NodeId, own: Option<f64>) -> Option<f64> {
+        match self.faulted {
+            Some(n) if n == input => self.fault_burnout.or(own),
+            _ => own,
+        }
+    }
+}
+
 /// An input pin cut off from its source: a burnout current (`burnout`
 /// on the stage that reads it) has only the open circuit to flow into,
-/// so it drives the pin to a rail; without one the pin floats.
+/// so it drives the pin to a rail ([`with_burnout`] across the open
+/// circuit's resistance); without one the pin floats.
 pub fn open_input(burnout: Option<f64>, cm: f64) -> Faulted {
     match burnout {
-        Some(current) => Faulted::Signal(Signal::Voltage {
-            v: current * OPEN_OHMS,
+        Some(_) => Faulted::Signal(Signal::Voltage {
+            v: 0.0,
             cm,
             rs: OPEN_OHMS,
         }),
         None => Faulted::Undetermined(FLOATING),
+    }
+}
+
+/// The voltage at a stage's input, V, where the stage sources `burnout`
+/// A out of its positive pin: the current flows back through the source
+/// (resistance `rs` Ω), so the pin sits I × rs above the source's own
+/// voltage `v` (Ohm's law). Healthy, that is a small offset across the
+/// sensor's resistance; with the source open, `rs` is the open circuit's
+/// and the pin runs to a rail.
+#[inline(always)]
+pub(super) fn with_burnout(burnout: Option<f64>, v: f64, rs: f64) -> f64 {
+    match burnout {
+        Some(current) => v + current * rs,
+        None => v,
     }
 }
 
@@ -407,6 +434,7 @@ impl Plan {
         let grounded = self.shorted_reference(fault);
         let mode = Mode {
             faulted: Some(fault.node),
+            fault_burnout: fault.burnout,
             ..Mode::FAULT
         };
         // The channels one conversion combines share their converter's

@@ -13,7 +13,7 @@ use crate::units::ZERO_CELSIUS_K;
 
 /// How a run's nodes evaluate: whether conversions see the rounded code or
 /// the exact one, amplifiers clip, and a calibration reads the chain.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[derive(Clone, Copy, Debug, PartialEq)]
 pub(super) struct Mode {
     pub(super) quantized: bool,
     /// Amplifiers clip at their swing and rail outside their common-mode
@@ -25,7 +25,14 @@ pub(super) struct Mode {
     /// A node under a fault: what it outputs is the fault's, so a bridge
     /// does not work its arm's self-heating out again from the curve.
     pub(super) faulted: Option<NodeId>,
+    /// The burnout current the fault says the stage reading the faulted
+    /// node sources (a trial current, when a help searches for one).
+    pub(super) fault_burnout: Option<f64>,
 }
+
+// The fault's burnout current is a stated or searched current, never
+// NaN, so equality on the mode is an equivalence.
+impl Eq for Mode {}
 
 impl Mode {
     const FULL: Mode = Mode {
@@ -33,36 +40,42 @@ impl Mode {
         clip: true,
         calibrating: false,
         faulted: None,
+        fault_burnout: None,
     };
     const CODES: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: false,
         faulted: None,
+        fault_burnout: None,
     };
     const RAW: Mode = Mode {
         quantized: true,
         clip: false,
         calibrating: false,
         faulted: None,
+        fault_burnout: None,
     };
     const CALIBRATION: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: true,
         faulted: None,
+        fault_burnout: None,
     };
     pub(super) const FAULT: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: false,
         faulted: None,
+        fault_burnout: None,
     };
     const UNQUANTIZED: Mode = Mode {
         quantized: false,
         clip: true,
         calibrating: false,
         faulted: None,
+        fault_burnout: None,
     };
 }
 

@@ -264,6 +264,7 @@ pub mod param {
     pub const AVERAGE: &str = "average";
     pub const BETA: &str = "beta";
     pub const BIAS: &str = "bias";
+    pub const LEAD: &str = "lead";
     pub const BIAS_RESISTOR: &str = "bias_resistor";
     pub const BIAS_VOLTAGE: &str = "bias_voltage";
     pub const CALIBRATE: &str = "calibrate";

@@ -2,7 +2,7 @@
 //! gain error and INL, and the code it gives.
 
 use super::{Cx, Run};
-use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
+use crate::eval::fault::{open_input, with_burnout, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{self, Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
@@ -189,6 +189,7 @@ impl Adc {
         if vr <= 0.0 || !vr.is_finite() {
             return Err(run.numeric("the reference voltage is zero or negative"));
         }
+        let v = with_burnout(run.mode.burnout_into(self.input, self.burnout), v, rs);
         Ok(self.combined(run, self.code(run, v, rs, vr)))
     }
 
@@ -217,10 +218,11 @@ impl Adc {
             }
             Some((CombineOp::Ratio, _)) => {}
         }
+        let burnout = run.mode.burnout_into(self.input, self.burnout);
         for (k, &vr) in vr.iter().enumerate() {
             let own = self.code_of(
                 run.row(k),
-                input.x[k],
+                with_burnout(burnout, input.x[k], input.rs[k]),
                 input.rs[k],
                 vr,
                 !run.mode.calibrating,
@@ -264,17 +266,14 @@ impl Adc {
             }
         }
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
+        let x = match run.mode.burnout_into(self.input, self.burnout) {
+            Some(i) => std::array::from_fn(|k| with_burnout(Some(i), input.x[k], input.rs[k])),
+            None => input.x,
+        };
         out.tag = Tag::Code;
         for k in 0..LANES {
             let off = off[k] + bias[k];
-            let exact = adc::exact_code(
-                input.x[k] + off,
-                gain[k],
-                vr[k],
-                per_ref,
-                off_codes[k],
-                inl[k],
-            );
+            let exact = adc::exact_code(x[k] + off, gain[k], vr[k], per_ref, off_codes[k], inl[k]);
             out.x[k] = exact;
             out.code[k] = round_code(exact, lo, hi);
         }
@@ -420,6 +419,7 @@ impl Adc {
             (Some(FaultKind::InputOpen), floating) => return Ok(floating),
             _ => (v, rs),
         };
+        let v = with_burnout(run.mode.burnout_into(self.input, self.burnout), v, rs);
         let vr = match kind {
             Some(FaultKind::InputOpen) => {
                 self.reference_voltage(run.plan, run.values, run.env, run.s)

@@ -2,7 +2,7 @@
 //! swing; outside its common-mode range it rails.
 
 use super::{Cx, Run};
-use crate::eval::fault::{open_input, Fault, FaultKind, Faulted};
+use crate::eval::fault::{open_input, with_burnout, Fault, FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
@@ -158,6 +158,7 @@ impl Amplifier {
         let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
+        let v = with_burnout(run.mode.burnout_into(self.input, self.burnout), v, rs);
         let shift = shift_of(run.plan, self.reference, run.values, run.env, run.s)
             .ok_or_else(|| run.numeric("no reference voltage"))?;
         let slot = |o: Option<SlotId>| run.or_zero(o);
@@ -216,11 +217,15 @@ impl Amplifier {
         let (lo, hi) = self.output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
         column.tag = Tag::Voltage;
         let out = &mut column.x;
+        let x = match run.mode.burnout_into(self.input, self.burnout) {
+            Some(i) => std::array::from_fn(|k| with_burnout(Some(i), input.x[k], input.rs[k])),
+            None => input.x,
+        };
         for k in 0..LANES {
             let error =
                 offset[k] + offset_drift[k] * dt + bias[k] * input.rs[k] + cmrr[k] * input.cm[k];
             let gain = gain[k] * (1.0 + gain_drift[k] * dt);
-            out[k] = gain * (input.x[k] + error) + shift[k];
+            out[k] = gain * (x[k] + error) + shift[k];
         }
         if run.mode.clip {
             if let Some((cm_lo, cm_hi)) = self.input_range {

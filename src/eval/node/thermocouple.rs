@@ -13,6 +13,7 @@ use crate::eval::run::within;
 use crate::eval::run::LANES;
 use crate::model::schema;
 use crate::model::typed::{self, ColdJunction};
+use crate::physics::strain;
 use crate::physics::thermocouple::{self, ThermocoupleType};
 use crate::units::ZERO_CELSIUS_K;
 
@@ -26,8 +27,12 @@ pub struct Thermocouple {
     /// The voltage its common mode is biased to (0 V when not), with
     /// its drift.
     pub bias: Option<(SlotId, Option<DriftSlot>)>,
-    /// The resistor that biases it, in its source resistance, Ω.
+    /// The resistor from its positive input to the bias point, Ω: with
+    /// the couple whole its loop shunts it; open, it is all the input
+    /// sees.
     pub bias_resistor: Option<SlotId>,
+    /// The loop's resistance, both legs and their extension, Ω.
+    pub lead: Option<SlotId>,
 }
 
 pub(super) fn lower(m: &typed::Thermocouple, cx: &mut Cx<'_>) -> Result<Thermocouple, EvalError> {
@@ -62,12 +67,17 @@ pub(super) fn lower(m: &typed::Thermocouple, cx: &mut Cx<'_>) -> Result<Thermoco
         .bias_resistor
         .as_ref()
         .map(|r| cx.measure(schema::param::BIAS_RESISTOR, SourceKind::Tolerance, r));
+    let lead = m
+        .lead
+        .as_ref()
+        .map(|l| cx.measure(schema::param::LEAD, SourceKind::Lead, l));
     Ok(Thermocouple {
         ty: m.ty,
         senses: cx.senses,
         class: m.class,
         bias,
         bias_resistor,
+        lead,
     })
 }
 
@@ -75,10 +85,11 @@ pub(super) fn lower(m: &typed::Thermocouple, cx: &mut Cx<'_>) -> Result<Thermoco
 pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Reversed];
 
 impl Thermocouple {
-    /// Open: the input's burnout current has only the bias resistor (else
-    /// the open input's insulation) to flow through, so the input reads
-    /// I × R; without a burnout current the open input floats and nothing
-    /// determines its code. Reversed: the EMF with its sign turned.
+    /// Open: no EMF, and the input's burnout current has only the bias
+    /// resistor (else the open input's insulation) to flow through, so the
+    /// stage reading it sees I × R (`fault::with_burnout`); without a
+    /// burnout current the open input floats and nothing determines its
+    /// code. Reversed: the EMF with its sign turned.
     pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
         let healthy = self.eval(run)?;
         let Signal::Voltage { v, cm, rs } = healthy else {
@@ -87,16 +98,12 @@ impl Thermocouple {
         Ok(match fault.kind {
             FaultKind::Reversed => Faulted::Signal(Signal::Voltage { v: -v, cm, rs }),
             FaultKind::Open => match fault.burnout {
-                Some(current) => {
+                Some(_) => {
                     let r = self
                         .bias_resistor
                         .map(|s| run.values[s.index()])
                         .unwrap_or(OPEN_OHMS);
-                    Faulted::Signal(Signal::Voltage {
-                        v: current * r,
-                        cm,
-                        rs: r,
-                    })
+                    Faulted::Signal(Signal::Voltage { v: 0.0, cm, rs: r })
                 }
                 None => Faulted::Undetermined(FLOATING),
             },
@@ -114,11 +121,22 @@ impl Thermocouple {
             .bias
             .map(|(b, drift)| run.drifted(run.values[b.index()], drift))
             .unwrap_or(0.0);
-        Ok(Signal::Voltage {
-            v,
-            cm,
-            rs: run.or_zero(self.bias_resistor),
-        })
+        let rs = self.source_resistance(
+            self.lead.map(|s| run.values[s.index()]),
+            self.bias_resistor.map(|s| run.values[s.index()]),
+        );
+        Ok(Signal::Voltage { v, cm, rs })
+    }
+
+    /// The resistance, Ω, the input sees across the whole couple: its
+    /// loop (`lead`, none where unstated) shunting the bias resistor.
+    #[inline(always)]
+    fn source_resistance(&self, lead: Option<f64>, bias_resistor: Option<f64>) -> f64 {
+        match (lead, bias_resistor) {
+            (Some(l), Some(r)) => strain::parallel(l, r),
+            (Some(l), None) => l,
+            (None, _) => 0.0,
+        }
     }
 
     /// [`Thermocouple::eval`] in every lane of a batch.
@@ -143,7 +161,11 @@ impl Thermocouple {
             Some((b, drift)) => run.drifted_into(run.slot(b), drift, &mut out.cm),
             None => out.cm = [0.0; LANES],
         }
-        out.rs = *run.or_zero(self.bias_resistor);
+        let lead = self.lead.map(|s| run.slot(s));
+        let bias_resistor = self.bias_resistor.map(|s| run.slot(s));
+        for (k, rs) in out.rs.iter_mut().enumerate() {
+            *rs = self.source_resistance(lead.map(|l| l[k]), bias_resistor.map(|r| r[k]));
+        }
         Ok(())
     }
 
