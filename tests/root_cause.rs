@@ -37,6 +37,30 @@ fn missing_parameter_follows_its_misspelling() {
     assert_eq!(found[1].2.as_deref(), Some("P301"));
 }
 
+/// A value written on the model line (`strain_gauge 350 ohm`, P306 on
+/// line 7) is why its parameter is missing (P302 on the stage, line 6),
+/// and the help writes the line it was meant for.
+#[test]
+fn missing_parameter_follows_a_value_on_the_model_line() {
+    let found = findings("P302-value-on-model-line.catena");
+    assert_eq!(codes(&found), ["P306", "P302"], "{found:?}");
+    assert_eq!(found[1].2.as_deref(), Some("P306"));
+    let dir = root().join("tests/fixtures/invalid");
+    let args = [
+        "check",
+        "--format",
+        "json",
+        "P302-value-on-model-line.catena",
+    ];
+    let run = catena(&dir, &args, None);
+    let v: serde_json::Value = serde_json::from_str(&run.stdout).expect("JSON findings");
+    let help = v["findings"][1]["help"].as_str().unwrap_or_default();
+    assert_eq!(
+        help,
+        "move the value off the `strain_gauge` line: `r 350 ohm ± 0.3 %` on a line of its own"
+    );
+}
+
 /// An edge naming `cnov` (M202, line 20) leaves `conv` unconnected: its
 /// M206 and M213 (line 15) come after the M202 and name it.
 #[test]

@@ -438,8 +438,27 @@ impl Presence<'_> {
     }
 
     fn required(&self, required: &[&str], findings: &mut Findings) {
-        for &name in required.iter().filter(|n| !self.has(n)) {
-            let cause = self.misspelt(&[name], findings);
+        let missing: Vec<&str> = required.iter().copied().filter(|n| !self.has(n)).collect();
+        // One value written on the model line, where the one missing
+        // parameter was meant (`strain_gauge 350 ohm` for `r 350 ohm`).
+        let stray = match missing.as_slice() {
+            [_] => self.stray_on_model_line(findings),
+            _ => None,
+        };
+        for &name in &missing {
+            let (cause, help) = match &stray {
+                Some((cause, text)) => (
+                    Some(cause.clone()),
+                    format!(
+                        "move the value off the `{}` line: `{name} {text}` on a line of its own",
+                        self.model.model.unwrap_or_default()
+                    ),
+                ),
+                None => (
+                    self.misspelt(&[name], findings),
+                    format!("add a line such as `{}`", self.example(name)),
+                ),
+            };
             findings.push(
                 Finding::new(
                     Code::P302,
@@ -447,10 +466,27 @@ impl Presence<'_> {
                     format!("`{}` needs `{name}`", self.decl.name.name),
                 )
                 .label(self.decl.name.span, format!("`{name}` is missing"))
-                .help(format!("add a line such as `{}`", self.example(name)))
+                .help(help)
                 .caused_by(cause),
             );
         }
+    }
+
+    /// The model line's values beyond what it takes (its P306) and their
+    /// text, if it has any.
+    fn stray_on_model_line(&self, findings: &Findings) -> Option<(Cause, String)> {
+        let model = self.model.model?;
+        let line = self.lines.iter().find(|l| l.param.name.name == model)?;
+        let end = line.param.values.last()?.span().end;
+        let finding = findings.iter().find(|f| {
+            f.code == Code::P306
+                && f.file == *line.file
+                && f.primary_span()
+                    .is_some_and(|s| s.start > line.param.name.span.end && s.start < end)
+        })?;
+        let start = finding.primary_offset();
+        let text = line.file.text().get(start..end)?;
+        Some((Cause::of(finding), text.to_string()))
     }
 
     fn one_of(&self, findings: &mut Findings) {
