@@ -803,3 +803,24 @@ fn a_shared_reference_fails_once_for_every_channel() {
         assert!(!again, "{fault} listed under the channel too");
     }
 }
+
+/// A current source at its compliance drives a bridge as a voltage source
+/// of that compliance: a quarter bridge of 350 Ω with a gauge of factor 2
+/// at 0 .. 1000 µε, at 5 V, gives 5 V × (R / (350 Ω + R) − 1/2), codes
+/// 0 .. 8380 of a 24-bit converter on 2.5 V, where healthy (1 mA into
+/// 350 Ω, 0.35 V) it gives 0 .. 587. (The source's load had been sought
+/// among elements wired to it alone, so a bridge on it left the fault
+/// undetermined and its help asked for the compliance already stated.)
+#[test]
+fn a_current_source_at_its_compliance_drives_a_bridge_at_that_voltage() {
+    let list = checklist("kind_current_bridge_compliance.catena");
+    let code = |volts: f64, strain: f64| {
+        let r = 350.0 * (1.0 + 2.0 * strain);
+        let v = volts * (r / (350.0 + r) - 0.5);
+        (v / 2.5 * 2f64.powi(23)).round() as i64
+    };
+    let at = row(&list, "drive", "at_compliance");
+    assert_eq!(codes(at), (code(5.0, 0.0), code(5.0, 1000e-6)));
+    let window = &list["chains"][0]["window"];
+    assert_eq!(window["high"].as_i64(), Some(code(0.35, 1000e-6)));
+}

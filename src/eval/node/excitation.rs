@@ -80,12 +80,16 @@ impl Excitation {
     /// A lost source gives nothing. A voltage source shorted at its
     /// output gives the same: its current limit only keeps it alive, the
     /// node is the short. A current source whose output stands at its
-    /// compliance drives its load as a voltage source would: the current
-    /// is the compliance over the load's own resistance.
+    /// compliance drives its load as a voltage source would: a string of
+    /// elements takes the compliance over its own resistance; a bridge
+    /// or divider, which takes either, is driven at the compliance.
     pub(super) fn faulted(&self, run: &Run<'_>, kind: FaultKind) -> Result<Faulted, EvalError> {
         Ok(match kind {
             FaultKind::Lost | FaultKind::AtCurrentLimit => Faulted::Signal(self.output(0.0)),
             FaultKind::AtCompliance => match self.compliance {
+                Some(vc) if !run.plan.drives_elements(run.i) && run.plan.excites_bridge(run.i) => {
+                    Faulted::Signal(Signal::Source(vc))
+                }
                 Some(vc) => {
                     let load = run
                         .plan

@@ -303,6 +303,20 @@ impl Plan {
         }
     }
 
+    /// Whether source `i` drives elements in a string of its own (each
+    /// wired to it as its `in`).
+    fn drives_elements(&self, i: NodeId) -> bool {
+        self.nodes.iter().any(|n| n.element_input() == Some(i))
+    }
+
+    /// Whether source `i` excites a bridge or divider.
+    fn excites_bridge(&self, i: NodeId) -> bool {
+        self.nodes.iter().any(|n| {
+            let Node::Bridge(b) = n else { return false };
+            b.exc == i
+        })
+    }
+
     /// The resistance, Ω, of the elements current source `i` drives, as
     /// their own nodes give it at a test current small enough to heat
     /// nothing (1 nA: picowatts in any element).
