@@ -167,6 +167,7 @@ codes! {
     M244 => Error, "ratio tolerance wider than the parts' own";
     M245 => Error, "malformed tracking group";
     M246 => Error, "duplicate tracking group name";
+    M247 => Warning, "half bridge whose gauges cancel";
     M260 => Error, "channel of something that is not a converter";
     M261 => Error, "reference wired to a channel";
     M262 => Warning, "one signal read by two channels";

@@ -11,6 +11,7 @@ use petgraph::graph::DiGraph;
 use super::chain::{Connection, Stage};
 use super::ports::{self, InputSpec, Port, SignalKind};
 use super::schema;
+use super::typed::StageModel;
 use super::value::ParamValue;
 use crate::diagnostics::{backticked, did_you_mean, did_you_mean_or};
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
@@ -358,6 +359,7 @@ fn check_ports(
             let into = wiring.edges_into(i, spec.port);
             if spec.multi {
                 findings.extend(arm_count(&wiring, i, &into));
+                findings.extend(half_bridge_sides(&wiring, i, &into));
                 continue;
             }
             if into.len() > 1 {
@@ -540,6 +542,45 @@ fn arm_count(wiring: &Wiring, i: usize, into: &[&Connection]) -> Option<Finding>
         "wire {elements} with `sensor_name -> {}.arm`",
         stage.name
     )))
+}
+
+/// M247: a half bridge's two gauges on opposite sides of the beam. The
+/// two elements of a half bridge sit in opposite arms, where equal and
+/// opposite strains cancel.
+fn half_bridge_sides(wiring: &Wiring, i: usize, into: &[&Connection]) -> Option<Finding> {
+    let stage = &wiring.stages[i];
+    if stage.model != Some("half") {
+        return None;
+    }
+    let side = |c: &Connection| {
+        let Some(StageModel::StrainGauge(gauge)) = &wiring.stages[c.from].typed else {
+            return None;
+        };
+        Some(gauge.side)
+    };
+    let [a, b] = into else { return None };
+    if side(a)? == side(b)? {
+        return None;
+    }
+    let name = |c: &Connection| wiring.stages[c.from].name.as_str();
+    Some(
+        Finding::new(
+            Code::M247,
+            wiring.file,
+            format!(
+                "half bridge `{}` has `{}` and `{}` on opposite sides: in its opposite arms their strains cancel",
+                stage.name,
+                name(a),
+                name(b)
+            ),
+        )
+        .label(b.span, "this gauge's strain cancels the other's")
+        .label(a.span, "in the opposite arm")
+        .help(format!(
+            "to add them, give both the same `side` (opposite arms add equal strains, as adjacent arms add opposite ones); `{}` then reads twice one gauge's output",
+            stage.name
+        )),
+    )
 }
 
 /// M205: an input with more than one edge.
