@@ -371,14 +371,11 @@ fn value(plan: &Plan, values: &[f64], env: &Env, s: &[Signal], check: &Check) ->
         (Node::Adc(_), Limit::ConverterReference) => plan
             .converter_reference(node, values, env, s)
             .unwrap_or(0.0),
-        (
-            Node::Adc(node::Adc {
-                input,
-                differential,
-                ..
-            }),
-            Limit::ConverterPin(pin),
-        ) => pin_voltage(s[input.index()], *differential, pin),
+        (Node::Adc(adc), Limit::ConverterPin(pin)) => pin_voltage(
+            adc.input_at_pins(s[adc.input.index()]),
+            adc.differential,
+            pin,
+        ),
         (Node::Adc(node::Adc { input, .. }), Limit::ConverterSettling) => match s[input.index()] {
             Signal::Voltage { rs, .. } => rs,
             _ => 0.0,
@@ -1339,6 +1336,67 @@ mod tests {
         assert_eq!(pin_voltage(input, true, Pin::Negative), 1.4);
         assert_eq!(pin_voltage(input, false, Pin::Positive), 0.2);
         assert_eq!(pin_voltage(Signal::None, true, Pin::Positive), 0.0);
+    }
+
+    /// A converter's burnout current flows out of its pin and back
+    /// through the divider's Thevenin resistance, R_ntc ∥ 10 kohm, so the
+    /// pin sits I × that above the divider's voltage at each end of the
+    /// range (Ohm's law).
+    #[test]
+    fn a_burnout_current_lifts_the_pin_by_its_drop() {
+        let text = |burnout: &str| {
+            format!(
+                "chain t \"T\" {{
+                    measurand temperature 0 degC .. 40 degC
+                    excitation rail {{ voltage 2.5 V }}
+                    sensor ntc {{
+                        thermistor
+                        r25 10 kohm
+                        beta 3380 K
+                    }}
+                    bridge div {{
+                        divider
+                        r 10 kohm
+                    }}
+                    adc conv {{
+                        bits 24
+                        input single
+                        rails 0 V .. 2.5 V
+                        {burnout}
+                    }}
+                    convert reading {{ method exact }}
+                    rail -> div -> conv -> reading
+                    ntc -> div.arm
+                    rail -> conv.ref
+                }}"
+            )
+        };
+        let pin = |text: &str| {
+            let e = envelopes_of(text);
+            let pin = e
+                .iter()
+                .find(|e| e.limit == Limit::ConverterPin(Pin::Positive));
+            pin.expect("the pin is checked").reach
+        };
+        let (healthy, lifted) = (pin(&text("")), pin(&text("burnout 10 uA")));
+        let t25 = 25.0 + ZERO_CELSIUS_K;
+        let drop = |t: f64| {
+            let r =
+                crate::physics::thermistor::beta_resistance(1e4, t25, 3380.0, t + ZERO_CELSIUS_K);
+            let r = r.unwrap();
+            10e-6 * r * 1e4 / (r + 1e4)
+        };
+        let (cold, hot) = (drop(0.0), drop(40.0));
+        let near = |a: f64, b: f64| (a - b).abs() <= 1e-9 * b.abs();
+        let lifted_by = |d: f64| near(d, cold) || near(d, hot);
+        assert!(
+            cold > 1e-2 && hot > 1e-3,
+            "a drop the limits notice: {cold}, {hot}"
+        );
+        assert!(
+            lifted_by(lifted.0 - healthy.0) && lifted_by(lifted.1 - healthy.1),
+            "{healthy:?} -> {lifted:?}, drops {cold} and {hot}"
+        );
     }
 
     /// The load bridge `text`'s bridge puts on its excitation at 0 °C, with

@@ -170,6 +170,20 @@ fn fraction_of_span(t: &Tolerance, bits: u32) -> Tolerance {
 }
 
 impl Adc {
+    /// Its input as the pins see it, healthy: the burnout current it
+    /// sources lifts the source's voltage by I × rs
+    /// ([`with_burnout`]), what its pins' limits must allow for.
+    pub fn input_at_pins(&self, input: Signal) -> Signal {
+        match input {
+            Signal::Voltage { v, cm, rs } => Signal::Voltage {
+                v: with_burnout(self.burnout, v, rs),
+                cm,
+                rs,
+            },
+            other => other,
+        }
+    }
+
     /// The faults this converter or channel can have.
     pub fn faults(&self) -> &'static [FaultKind] {
         if self.channel {
