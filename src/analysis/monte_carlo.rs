@@ -485,7 +485,26 @@ struct Buffers {
 /// conditions or a chunk's part of each.
 type Parts<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>, Vec<&'a mut [u8]>);
 
+/// Buffers a finished run left, for the next: a budget runs each chain
+/// in turn, and memory already mapped costs the next run no faults.
+static SPARE: std::sync::Mutex<Option<Buffers>> = std::sync::Mutex::new(None);
+
 impl Buffers {
+    /// The buffers a run left, or none yet (runs at once take their own).
+    fn spare() -> Buffers {
+        let spare = SPARE.lock().map(|mut s| s.take());
+        spare.ok().flatten().unwrap_or_default()
+    }
+
+    /// Keeps these for the next run, the larger where two runs ended.
+    fn put_back(self) {
+        let Ok(mut spare) = SPARE.lock() else { return };
+        let size = |b: &Buffers| b.errors.len() * 8 + b.cells.len() + b.own.len();
+        if spare.as_ref().is_none_or(|kept| size(kept) < size(&self)) {
+            *spare = Some(self);
+        }
+    }
+
     /// `trials` of each condition of `at`, and, when `columns` sources
     /// vary and shares are asked for, their cells and the cells of each
     /// condition's own streams that act (empty where one does not).
@@ -509,14 +528,18 @@ fn split<T: Copy + Default>(
     block: &mut Vec<T>,
     lens: impl Iterator<Item = usize> + Clone,
 ) -> Vec<&mut [T]> {
-    let total = lens.clone().sum();
-    if block.len() < total {
+    let total: usize = lens.clone().sum();
+    // The slices start on a huge page's boundary, so every whole huge
+    // page of them can be one.
+    let skip = |block: &Vec<T>| block.as_ptr().align_offset(HUGE_PAGE).min(block.len());
+    if block.len() < skip(block) + total {
         // Fresh zeroed memory is mapped, not written: the trials touch it
         // first, on every core.
-        *block = vec![T::default(); total];
+        *block = vec![T::default(); total + HUGE_PAGE / std::mem::size_of::<T>()];
         advise_huge_pages(block);
     }
-    let mut rest = block.as_mut_slice();
+    let skip = skip(block);
+    let mut rest = &mut block[skip..];
     lens.map(|len| {
         let (part, after) = std::mem::take(&mut rest).split_at_mut(len);
         rest = after;
@@ -524,6 +547,9 @@ fn split<T: Copy + Default>(
     })
     .collect()
 }
+
+/// The size of a huge page (x86-64's and AArch64's usual 2 MiB).
+const HUGE_PAGE: usize = 2 << 20;
 
 /// Asks the kernel to map `block` in huge pages where it can: a run's
 /// buffers reach tens of megabytes, and with a fault a small page a
@@ -614,12 +640,17 @@ impl Run<'_> {
     ) -> Result<Vec<Sampled>, EvalError> {
         let group = (in_flight / self.trials.max(1)).max(1);
         let mut out = Vec::with_capacity(conditions.len());
-        let mut buffers = Buffers::default();
-        for batch in conditions.chunks(group) {
-            progress(out.len(), conditions.len());
-            out.extend(self.at(batch, &mut buffers)?);
-        }
-        Ok(out)
+        let mut buffers = Buffers::spare();
+        let mut groups = || {
+            for batch in conditions.chunks(group) {
+                progress(out.len(), conditions.len());
+                out.extend(self.at(batch, &mut buffers)?);
+            }
+            Ok(())
+        };
+        let done = groups();
+        buffers.put_back();
+        done.map(|()| out)
     }
 
     /// The intervals of `conditions`, their trials on every core together,
