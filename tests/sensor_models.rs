@@ -295,6 +295,25 @@ fn transducer_nonlinearity_has_a_shape_and_hysteresis_stays() {
     }
 }
 
+/// A zero balance in `%` or `ppm` is a share of the rated output, as
+/// load cell datasheets state it, whether the cell is rated in mV/V
+/// (0.05 % of 2 mV/V, 0.001 mV/V) or in volts (500 ppm of 2 V, 1 mV):
+/// either way 2.5 kg of the 5000 kg rating at every load. (Read as a
+/// ratio of the excitation, 0.05 % would be 0.5 mV/V, 1250 kg.)
+#[test]
+fn a_zero_in_percent_is_a_share_of_the_rated_output() {
+    for spec in [
+        "load_cell_zero_share.catena",
+        "amplified_cell_zero_share.catena",
+    ] {
+        let v = budget(spec, &["--points", "5", "--trials", "0"]);
+        for p in v["points"].as_array().unwrap() {
+            let got = f(&source(p, "cell.zero")["contribution"]);
+            assert!((got - 2.5).abs() < 1e-9, "{spec} {}: {got}", p["measurand"]);
+        }
+    }
+}
+
 /// An RTD's self-heating in a quarter bridge, by hand: a Pt100 among three
 /// 100 Ω resistors from 1 V is balanced at 0 °C, where its side of the
 /// bridge passes 1 V / 200 Ω and it dissipates V² / (4 R) = 2.5 mW; at

@@ -557,7 +557,10 @@ impl Reader<'_> {
             Some(Value::Quantity(q)) => {
                 let (v, relative) = match expect {
                     Expect::PerKelvin(d) => per_kelvin(&q, d, self.cx)?,
-                    _ => (to_si(&q, expect, false, self.cx)?.0, false),
+                    _ => (
+                        to_si(&q, expect, false, self.cx)?.0,
+                        share_of_rated(expect, &q),
+                    ),
                 };
                 let mut span = q.span;
                 if self.peek_word("max") {
@@ -697,6 +700,7 @@ fn accepted(expect: Expect, cx: &Context<'_>) -> Vec<Dim> {
         Expect::Measurand => cx.measurand.into_iter().collect(),
         Expect::PerKelvin(d) => vec![d / Dim::TEMPERATURE, Dim::NONE / Dim::TEMPERATURE],
         Expect::OneOf(ds) => ds.to_vec(),
+        Expect::RatedOutput => vec![Dim::NONE, Dim::VOLTAGE],
     }
 }
 
@@ -707,6 +711,9 @@ fn noun(expect: Expect, cx: &Context<'_>) -> &'static str {
         Expect::Ratio => "a plain number or a ratio",
         Expect::Number => "a plain number",
         Expect::Decibel => "a ratio in `dB`",
+        Expect::RatedOutput => {
+            "a ratio of the excitation, a voltage, or a share of the rated output"
+        }
         _ => accepted(expect, cx)
             .first()
             .map(|d| d.name().noun)
@@ -741,6 +748,7 @@ fn example_text(expect: Expect, measurand: Option<Dim>) -> String {
             }
         }
         Expect::OneOf(ds) => ds[0].name().example.to_string(),
+        Expect::RatedOutput => "0.02 mV/V".into(),
     }
 }
 
@@ -934,6 +942,12 @@ fn is_relative_unit(q: &QuantityLit) -> bool {
         .is_some_and(|u| matches!(u.text.as_str(), "%" | "ppm" | "ppb"))
 }
 
+/// A transducer output written in `%` or `ppm`: a share of the rated
+/// output (`relative`), not a ratio of the excitation.
+fn share_of_rated(expect: Expect, q: &QuantityLit) -> bool {
+    expect == Expect::RatedOutput && is_relative_unit(q)
+}
+
 /// A tolerance of a value of dimension `nominal_dim` (None for a bare
 /// limit): relative with `%`/`ppm`, else absolute in the value's dimension.
 fn tolerance(
@@ -945,7 +959,7 @@ fn tolerance(
     let half = |q: &QuantityLit| -> Checked<(f64, bool)> {
         // `%` or `ppm` after a nominal value is relative to it (`gain 4 ±
         // 0.05 %`); a bare limit in `%` is the ratio itself (`inl 15 ppm`).
-        if is_relative_unit(q) && nominal_dim.is_some() {
+        if is_relative_unit(q) && (nominal_dim.is_some() || share_of_rated(expect, q)) {
             let (v, _) = to_si(q, Expect::Ratio, false, cx)?;
             return Ok((v, true));
         }

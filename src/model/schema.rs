@@ -38,6 +38,10 @@ pub enum Expect {
     PerKelvin(Dim),
     /// Any of these dimensions (noise as rms or as a density).
     OneOf(&'static [Dim]),
+    /// A transducer's output: a ratio of its excitation (`mV/V`), a
+    /// voltage, or in `%` or `ppm` a share of its rated output, as load
+    /// cell datasheets state a zero balance (`± 1 %` of rated output).
+    RatedOutput,
 }
 
 /// The word of a value's drift clause (`10 kohm ± 0.1 % drift 25 ppm/K`).
@@ -534,10 +538,7 @@ static MODELS: &[ModelSpec] = &[
                 },
             )
             .required(),
-            p(
-                param::ZERO,
-                Shape::Limit(Expect::OneOf(&[Dim::NONE, Dim::VOLTAGE])),
-            ),
+            p(param::ZERO, Shape::Limit(Expect::RatedOutput)),
             p(param::NONLINEARITY, Shape::Limit(Expect::Ratio)),
             p("linearity", Shape::Words(&["terminal", "best_fit"])),
             p(param::HYSTERESIS, Shape::Limit(Expect::Ratio)),

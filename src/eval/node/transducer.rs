@@ -8,6 +8,7 @@ use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
 use crate::model::schema;
 use crate::model::typed;
+use crate::model::value::Tolerance;
 use crate::physics::transducer::{self, LinearityLine};
 
 #[derive(Clone, Debug, PartialEq)]
@@ -30,15 +31,35 @@ pub struct Transducer {
     pub r: Option<SlotId>,
 }
 
+/// The zero offset in the output's own terms (a ratio of the excitation,
+/// or volts): one stated as a share of the rated output (`± 1 %`) is that
+/// share of the nominal full-scale output.
+fn zero_in_output(m: &typed::Transducer, zero: &Tolerance) -> Tolerance {
+    if !zero.relative {
+        return zero.clone();
+    }
+    let rated = m.sensitivity.nominal.abs();
+    Tolerance {
+        plus: zero.plus * rated,
+        minus: zero.minus * rated,
+        relative: false,
+        dim: m.sensitivity_dim,
+        ..zero.clone()
+    }
+}
+
 pub(super) fn lower(m: &typed::Transducer, cx: &mut Cx<'_>) -> Result<Transducer, EvalError> {
     if m.full_scale == 0.0 {
         return Err(cx.not_invertible("the sensitivity is stated at zero load"));
     }
     let sensitivity = cx.measure(schema::SENSITIVITY, SourceKind::Tolerance, &m.sensitivity);
-    let zero = m
-        .zero
-        .as_ref()
-        .map(|t| cx.limit(schema::param::ZERO, SourceKind::Bound, t));
+    let zero = m.zero.as_ref().map(|t| {
+        cx.limit(
+            schema::param::ZERO,
+            SourceKind::Bound,
+            &zero_in_output(m, t),
+        )
+    });
     let r =
         m.r.as_ref()
             .map(|r| cx.measure(schema::param::R, SourceKind::Tolerance, r));
