@@ -966,7 +966,7 @@ fn fix(plan: &Plan, e: &Envelope, side: Side, margin: f64) -> Option<String> {
             Some(vref) => Some(format!("a reference of at least {} keeps {pct} % headroom", with_prefix(vref * value / target, "V", 4))),
             None => Some(converter_gain_fix(plan, e, value, target)),
         },
-        Limit::ConverterInput => Some("the input goes below the converter's range: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)".to_string()),
+        Limit::ConverterInput => Some(converter_low_fix(plan, e, side)),
         Limit::Compliance => slot(schema::param::CURRENT).map(|i| format!("the largest current that fits with {pct} % headroom is {}", with_prefix(i * target / value, "A", 4))),
         Limit::CurrentLimit => Some(format!("a current limit of at least {} covers the load with {pct} % headroom", with_prefix(value / (1.0 - margin), "A", 4))),
         Limit::MaxCurrent => Some(format!("keep the excitation below {}", with_prefix(target, "A", 4))),
@@ -996,6 +996,57 @@ fn converter_gain_fix(plan: &Plan, e: &Envelope, value: f64, target: f64) -> Str
     )
 }
 
+/// What lifts a converter's input off the bottom of its range with the
+/// margin to spare: the rise in volts (the shortfall times V_ref / G),
+/// which the nearest amplifier ahead adds as its `reference` (a filter
+/// passes it at DC).
+fn converter_low_fix(plan: &Plan, e: &Envelope, side: Side) -> String {
+    let where_ = if side.value < side.bound {
+        "the input goes below the converter's range"
+    } else {
+        "the input comes within the margin of the bottom of the converter's range"
+    };
+    let worst = e.worst_env();
+    let signals = plan.raw_signals(&plan.nominal, &worst).ok();
+    let full_scale = signals
+        .as_ref()
+        .and_then(|s| converter_full_scale(plan, e.node, &worst, s));
+    let (Some(signals), Some(full_scale)) = (signals, full_scale) else {
+        return format!("{where_}: use a bipolar or differential input, or lift the signal (an amplifier's `reference` shifts its output)");
+    };
+    let rise = (side.target - side.value) * full_scale;
+    let lift = format!("lift it by at least {}", with_prefix(rise, "V", 4));
+    let ahead = amplifier_ahead(plan, e.node);
+    let reference = ahead.and_then(|a| {
+        let r = plan.amplifier_reference(a, &plan.nominal, &worst, &signals)?;
+        Some((plan.names[a.index()].as_str(), r))
+    });
+    match reference {
+        Some((amp, r)) => format!("{where_}: {lift}, as a `reference` of {} on `{amp}` does (it shifts the output), or use a bipolar or differential input", with_prefix(r + rise, "V", 4)),
+        None => format!("{where_}: {lift}, or use a bipolar or differential input"),
+    }
+}
+
+/// A converter's full scale in volts at its input, V_ref / G, in the
+/// nominal chain at `env`.
+fn converter_full_scale(plan: &Plan, node: NodeId, env: &Env, s: &[Signal]) -> Option<f64> {
+    let vref = plan.converter_reference(node, &plan.nominal, env, s)?;
+    let pga = nominal_of(plan, node, schema::param::PGA).unwrap_or(1.0);
+    (vref > 0.0 && pga > 0.0).then_some(vref / pga)
+}
+
+/// The nearest amplifier ahead of converter `node`, through filters.
+fn amplifier_ahead(plan: &Plan, node: NodeId) -> Option<NodeId> {
+    let Node::Adc(adc) = &plan.nodes[node.index()] else {
+        return None;
+    };
+    let mut ahead = adc.input;
+    while let Node::Filter(f) = &plan.nodes[ahead.index()] {
+        ahead = f.input;
+    }
+    matches!(plan.nodes[ahead.index()], Node::Amplifier(_)).then_some(ahead)
+}
+
 /// `x` > 0 rounded up to `digits` significant digits, so a factor shown
 /// "at least" is one that suffices.
 fn up_to_digits(x: f64, digits: i32) -> f64 {
@@ -1011,13 +1062,7 @@ fn gained_share(plan: &Plan, e: &Envelope) -> Option<f64> {
     let Node::Adc(adc) = &plan.nodes[e.node.index()] else {
         return None;
     };
-    let mut ahead = adc.input;
-    while let Node::Filter(f) = &plan.nodes[ahead.index()] {
-        ahead = f.input;
-    }
-    if !matches!(plan.nodes[ahead.index()], Node::Amplifier(_)) {
-        return None;
-    }
+    let ahead = amplifier_ahead(plan, e.node)?;
     let worst = e.worst_env();
     let signals = plan.raw_signals(&plan.nominal, &worst).ok()?;
     let reference = plan.amplifier_reference(ahead, &plan.nominal, &worst, &signals)?;
