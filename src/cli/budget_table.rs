@@ -7,7 +7,7 @@ use crate::analysis::budget::Point;
 use crate::analysis::ranges::LimitUnit;
 use crate::analysis::report::Analysis;
 use crate::analysis::validation::GumCheck;
-use crate::emit::report::fmt::{cancel_note, trip_code};
+use crate::emit::report::fmt::{cancel_note, method, trip_code};
 use crate::eval::NodeId;
 use crate::model::{Chain, RequirementKind};
 use crate::units::format::{attenuation_db, codes, from_si, significant, trimmed};
@@ -509,14 +509,14 @@ fn verdict_table(a: &Analysis, unit: &str, v: &dyn Fn(f64) -> String) -> Table {
             ),
             RequirementKind::Rejection => (
                 format!("{} dB", significant(20.0 * r.limit.log10(), 3)),
-                format!("{} dB", significant(20.0 * r.achieved.log10(), 3)),
+                attenuation_db(20.0 * r.achieved.log10()),
             ),
         };
         verdicts.add_row([
             r.kind.word().to_string(),
             req,
             got,
-            r.method.word().replace('_', " "),
+            method(&r.method.word()),
             if r.pass { "pass".into() } else { "FAIL".into() },
         ]);
     }

@@ -107,7 +107,7 @@ fn requirement_rows(d: &OutcomeDiff) -> Vec<Vec<String>> {
                             "{} {} ({}, {})",
                             num(v.achieved),
                             v.unit,
-                            v.method.replace('_', " "),
+                            crate::emit::report::fmt::method(&v.method),
                             if v.pass { "pass" } else { "FAIL" }
                         ),
                         format!("{} {}", num(v.margin), v.unit),

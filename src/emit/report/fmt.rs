@@ -8,6 +8,9 @@ const DIGITS: usize = 3;
 /// A value in a unit a reader knows (K, degC, s): three significant
 /// digits, trailing zeros dropped.
 pub fn value(x: f64, unit: &str) -> String {
+    if unit == "dB" {
+        return crate::units::format::attenuation_db(x);
+    }
     let v = trimmed(x, DIGITS);
     if unit.is_empty() {
         v
@@ -66,15 +69,25 @@ pub fn plain(x: f64) -> String {
     trimmed(x, 4)
 }
 
-/// The name of an accuracy method as a reader says it.
-pub fn method(m: &str) -> &str {
+/// The name of a requirement's method (`Judged::word`) as a reader
+/// says it, in every table that shows one.
+pub fn method(m: &str) -> String {
+    let hz = m
+        .strip_prefix("attenuation_at_")
+        .and_then(|m| m.strip_suffix("_hz"));
+    if let Some(hz) = hz {
+        return format!("attenuation at {hz} Hz");
+    }
     match m {
         "worst_case" => "worst case",
         "monte_carlo" => "Monte Carlo 95 %",
         "gum" => "GUM, k = 2",
         "noise_free" => "noise-free",
+        "lsb" => "one code",
+        "step_90" => "0 to 90 % step",
         other => other,
     }
+    .to_string()
 }
 
 /// The signal path's heading, in every renderer: its errors are the
