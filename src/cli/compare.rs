@@ -8,7 +8,7 @@ use clap::Args;
 use serde::Serialize;
 
 use super::diff::{evaluate, load, options, ReviewFormat};
-use super::diff_render::{markdown_table, num, plain_table};
+use super::diff_render::{markdown_table, num, plain_table, with_unit};
 use super::{EXIT_FINDINGS, EXIT_OK, EXIT_USAGE};
 use crate::analysis::review::{Outcome, PowerBasis};
 use crate::units::format::with_prefix;
@@ -135,9 +135,13 @@ fn table(candidates: &[Candidate]) -> (Vec<String>, Vec<Vec<String>>) {
         });
     }
     for method in ["worst_case", "gum", "monte_carlo"] {
-        row(format!("worst {}", method.replace('_', " ")), &|o| {
-            worst_cell(o, method)
-        });
+        row(
+            format!(
+                "largest error, {}",
+                crate::emit::report::fmt::method(method)
+            ),
+            &|o| worst_cell(o, method),
+        );
     }
     row("resolution".into(), &|o| {
         format!("{} {}", num(o.resolution), o.unit)
@@ -178,11 +182,9 @@ fn requirement_cell(o: &Outcome, name: &str) -> String {
         .find(|r| r.name == name)
         .map_or("—".into(), |r| {
             format!(
-                "{} {} ({} {}){}",
-                num(r.achieved),
-                r.unit,
-                num(r.margin),
-                r.unit,
+                "{} ({}){}",
+                with_unit(r.achieved, &r.unit),
+                with_unit(r.margin, &r.unit),
                 if r.pass { "" } else { " FAIL" }
             )
         })

@@ -55,6 +55,16 @@ pub(super) fn num(x: f64) -> String {
     }
 }
 
+/// A figure with its unit: [`num`], or an attenuation past use as
+/// `> 200 dB`, as every table shows it.
+pub(super) fn with_unit(x: f64, unit: &str) -> String {
+    match unit {
+        "dB" => crate::units::format::attenuation_db(x),
+        "" => num(x),
+        unit => format!("{} {unit}", num(x)),
+    }
+}
+
 fn signed(x: f64) -> String {
     if x > 0.0 {
         format!("+{}", num(x))
@@ -104,13 +114,12 @@ fn requirement_rows(d: &OutcomeDiff) -> Vec<Vec<String>> {
                 x.as_ref().map_or(("—".to_string(), "—".to_string()), |v| {
                     (
                         format!(
-                            "{} {} ({}, {})",
-                            num(v.achieved),
-                            v.unit,
+                            "{} ({}, {})",
+                            with_unit(v.achieved, &v.unit),
                             crate::emit::report::fmt::method(&v.method),
                             if v.pass { "pass" } else { "FAIL" }
                         ),
-                        format!("{} {}", num(v.margin), v.unit),
+                        with_unit(v.margin, &v.unit),
                     )
                 })
             };
@@ -240,7 +249,14 @@ fn sections(c: &ChainDiff) -> Vec<Section> {
         out.push((
             "Worst point per method",
             h,
-            d.worst.iter().map(|m| moved_row(m, false)).collect(),
+            d.worst
+                .iter()
+                .map(|m| {
+                    let mut row = moved_row(m, false);
+                    row[0] = crate::emit::report::fmt::method(&m.name);
+                    row
+                })
+                .collect(),
         ));
     }
     if !d.contributors.is_empty() {
