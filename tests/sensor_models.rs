@@ -477,3 +477,42 @@ fn a_converters_burnout_current_flows_through_a_healthy_divider() {
     let want = (1.255f64 / 2.5 * 2f64.powi(24)).round();
     assert_eq!(f(&v["code"]), want, "{v}");
 }
+
+/// A resistor from the converter's pin to a voltage divides with the
+/// source (Thévenin): a 10 kΩ NTC under 10 kΩ from 2.5 V gives 1.25 V
+/// from 5 kΩ at 25 °C, so 1 MΩ to 0 V leaves 1.25 V × 1 MΩ / 1.005 MΩ at
+/// the pin, and 1 MΩ to 2.5 V lifts it by 1.25 V × 5 kΩ / 1.005 MΩ; a
+/// 24-bit converter on the same 2.5 V reads those over 2.5 V × 2²⁴. With
+/// the pin cut off the resistor alone holds it: code 0 with the pull-down,
+/// the top code with the pull-up, so `check` finds the alarm unmasked.
+#[test]
+fn a_pull_resistor_divides_with_the_source_and_holds_an_open_pin() {
+    let full = 2f64.powi(24);
+    let down = eval("divider_pull.catena", "25 degC");
+    let want = (1.25 * 1e6 / 1.005e6 / 2.5 * full).round();
+    assert_eq!(f(&down["code"]), want, "{down}");
+    let up = eval("divider_pull_up.catena", "25 degC");
+    let want = ((1.25 + 1.25 * 5e3 / 1.005e6) / 2.5 * full).round();
+    assert_eq!(f(&up["code"]), want, "{up}");
+    for (spec, code) in [
+        ("divider_pull.catena", 0.0),
+        ("divider_pull_up.catena", full - 1.0),
+    ] {
+        let run = catena(&dir(), &["checklist", spec, "--format", "json"], None);
+        assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
+        let v: serde_json::Value = serde_json::from_str(&run.stdout).unwrap();
+        let faults = v["chains"][0]["faults"].as_array().unwrap();
+        let pin = faults
+            .iter()
+            .find(|x| x["stage"] == "conv" && x["fault"] == "input_open")
+            .unwrap_or_else(|| panic!("{spec}: {v}"));
+        assert_eq!(pin["verdict"], "detectable", "{spec}: {pin}");
+        let codes = pin["codes"].as_array().unwrap_or_else(|| panic!("{pin}"));
+        // Within 2 ppm of full scale: the model's open circuit is a
+        // finite resistance (10¹² Ω), which the 1 MΩ divides with.
+        assert!(
+            codes.iter().all(|c| (f(c) - code).abs() <= 2e-6 * full),
+            "{spec}: {pin}"
+        );
+    }
+}

@@ -10,7 +10,7 @@ use super::budget;
 use super::ranges::Envelope;
 use super::window::{code_window, code_window_from, CodeWindow};
 use crate::diagnostics::{Cause, Code, Finding, Findings, Severity};
-use crate::eval::fault::{Fault, FaultCode, FaultKind};
+use crate::eval::fault::{Fault, FaultCode, FaultKind, Pull};
 use crate::eval::{grid, Env, EvalError, Node, NodeId, Plan, SourceKind};
 use crate::model::{Chain, Side};
 use crate::units::format::{from_si, trimmed, with_prefix};
@@ -513,8 +513,8 @@ fn fix(
         // current takes it to a rail.
         (FaultKind::InputOpen, _) if codes.is_none() => (
             Some(format!(
-                "a burnout current on `{}` (`burnout`, {}) drives the open pin to a rail, outside the valid window {} .. {}",
-                plan.names[fault.node.index()], outweighs_bias(plan, fault.node), window.low, window.high
+                "a burnout current on `{}` (`burnout`, {}){} drives the open pin to a rail, outside the valid window {} .. {}",
+                plan.names[fault.node.index()], outweighs_bias(plan, fault.node), pull_down_fix(plan, cases, window, fault), window.low, window.high
             )),
             here,
         ),
@@ -702,7 +702,7 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
     let reader = reader_of(plan, fault.node)?;
     let detectable = |amps: f64| {
         let trial = Fault {
-            burnout: Some(amps),
+            burnout: Some(Pull::Current(amps)),
             ..*fault
         };
         code_range(plan, cases, window, &trial)
@@ -747,6 +747,31 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
     Some(format!(
         "a burnout current of at least {amps} on `{name}` (`burnout {amps}`) drives the open input clear of the valid window {lo} .. {hi}"
     ))
+}
+
+/// The pull-down a converter or amplifier pin could take instead of a
+/// burnout current, where one to 0 V takes the open pin outside the
+/// window: `, or a resistor to 0 V (`pull 1 Mohm to 0 V`)`, else nothing.
+/// 1 MΩ is common practice: far below a pin's leakage resistance, far
+/// above a sensor's source resistance (its loading is in the budget).
+fn pull_down_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> String {
+    const PULL: Pull = Pull::Resistor {
+        ohms: 1e6,
+        volts: 0.0,
+    };
+    let trial = Fault {
+        burnout: Some(PULL),
+        ..*fault
+    };
+    let detectable = code_range(plan, cases, window, &trial)
+        .ok()
+        .and_then(|codes| codes.threshold(window))
+        .is_some();
+    if detectable {
+        ", or a resistor from the pin to 0 V (`pull 1 Mohm to 0 V`),".to_string()
+    } else {
+        String::new()
+    }
 }
 
 /// The amplifier or converter that reads node `i`.

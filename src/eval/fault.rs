@@ -180,7 +180,7 @@ impl Mode {
     /// The burnout current a stage reading node `input` sources, its own
     /// `burnout` unless the fault at that node states the current.
     #[inline(always)]
-    pub(super) fn burnout_into(&self, input: NodeId, own: Option<f64>) -> Option<f64> {
+    pub(super) fn burnout_into(&self, input: NodeId, own: Option<Pull>) -> Option<Pull> {
         match self.faulted {
             Some(n) if n == input => self.fault_burnout.or(own),
             _ => own,
@@ -192,7 +192,7 @@ impl Mode {
 /// on the stage that reads it) has only the open circuit to flow into,
 /// so it drives the pin to a rail ([`with_burnout`] across the open
 /// circuit's resistance); without one the pin floats.
-pub fn open_input(burnout: Option<f64>, cm: f64) -> Faulted {
+pub fn open_input(burnout: Option<Pull>, cm: f64) -> Faulted {
     match burnout {
         Some(_) => Faulted::Signal(Signal::Voltage {
             v: 0.0,
@@ -203,17 +203,67 @@ pub fn open_input(burnout: Option<f64>, cm: f64) -> Faulted {
     }
 }
 
-/// The voltage at a stage's input, V, where the stage sources `burnout`
-/// A out of its positive pin: the current flows back through the source
-/// (resistance `rs` Ω), so the pin sits I × rs above the source's own
-/// voltage `v` (Ohm's law). Healthy, that is a small offset across the
-/// sensor's resistance; with the source open, `rs` is the open circuit's
-/// and the pin runs to a rail.
+/// What an amplifier's or converter's input does to an open source: a
+/// burnout current it sources, or a resistor from the pin to a voltage.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Pull {
+    /// `burnout`: a current out of the positive pin, A.
+    Current(f64),
+    /// `pull R to V`: a resistor of `ohms` from the pin to `volts`.
+    Resistor { ohms: f64, volts: f64 },
+}
+
+impl Pull {
+    /// The pin's voltage where the source gives `v` behind `rs` Ω. A
+    /// current I flows back through the source, so the pin sits I × rs
+    /// above `v`; a resistor R to V_p divides with the source, so the
+    /// pin sits (V_p − v) rs / (R + rs) above it (Ohm's law, Thévenin).
+    /// Healthy, a small offset or loading; with the source open, `rs` is
+    /// the open circuit's and the pin runs to a rail, or to V_p.
+    /// With it, the source's resistance seen from the pin: a current
+    /// source's own is infinite, so a burnout current leaves `rs` as it
+    /// is; a resistor sits in parallel (what a bias current then flows
+    /// through).
+    #[inline(always)]
+    pub fn lift(self, v: f64, rs: f64) -> (f64, f64) {
+        match self {
+            Pull::Current(current) => (v + current * rs, rs),
+            Pull::Resistor { ohms, volts } => {
+                let share = rs / (ohms + rs);
+                (v + (volts - v) * share, ohms * share)
+            }
+        }
+    }
+}
+
+/// [`with_pull`] in every lane of a column: the pins' voltages and the
+/// resistances behind them.
 #[inline(always)]
-pub(super) fn with_burnout(burnout: Option<f64>, v: f64, rs: f64) -> f64 {
-    match burnout {
-        Some(current) => v + current * rs,
-        None => v,
+pub(super) fn pulled_lanes(
+    pull: Pull,
+    input: &super::lanes::Column,
+) -> ([f64; super::run::LANES], [f64; super::run::LANES]) {
+    let mut out = (input.x, input.rs);
+    for k in 0..super::run::LANES {
+        (out.0[k], out.1[k]) = pull.lift(input.x[k], input.rs[k]);
+    }
+    out
+}
+
+/// A stage's stated `burnout` current or `pull` resistor (never both).
+pub(super) fn input_pull(burnout: Option<f64>, pull: Option<(f64, f64)>) -> Option<Pull> {
+    burnout
+        .map(Pull::Current)
+        .or(pull.map(|(ohms, volts)| Pull::Resistor { ohms, volts }))
+}
+
+/// The voltage at a stage's input, V, and the resistance behind it, Ω,
+/// with its pull ([`Pull::lift`]).
+#[inline(always)]
+pub(super) fn with_pull(pull: Option<Pull>, v: f64, rs: f64) -> (f64, f64) {
+    match pull {
+        Some(pull) => pull.lift(v, rs),
+        None => (v, rs),
     }
 }
 
@@ -237,11 +287,11 @@ fn grounded_signal(s: Signal) -> Signal {
 pub struct Fault {
     pub node: NodeId,
     pub kind: FaultKind,
-    /// The burnout current, A, that the input reading an open sensor
-    /// sources into it (from the amplifier's or converter's `burnout`; for
-    /// an input pin open, that stage's own); None when nothing gives the
-    /// open input a path.
-    pub burnout: Option<f64>,
+    /// What the input reading an open sensor drives it with (the
+    /// amplifier's or converter's `burnout` or `pull`; for an input pin
+    /// open, that stage's own); None when nothing gives the open input a
+    /// path.
+    pub burnout: Option<Pull>,
 }
 
 /// A node's signal under a fault, or why nothing determines it.
@@ -301,7 +351,7 @@ impl Plan {
 
     /// The burnout current the stage reading node `i` sources into it
     /// (see [`Plan::burnout_of`]).
-    pub fn burnout_into(&self, i: NodeId) -> Option<f64> {
+    pub fn burnout_into(&self, i: NodeId) -> Option<Pull> {
         let reader = NodeId::new(self.nodes.iter().position(|n| match n {
             Node::Amplifier(a) => a.input == i,
             Node::Adc(a) => a.input == i,
@@ -325,8 +375,8 @@ impl Plan {
     /// input, when it outweighs the input's largest bias current: a bias
     /// current as large or larger, with nowhere else to go, leaves the
     /// open input's direction undetermined.
-    pub fn burnout_of(&self, i: NodeId) -> Option<f64> {
-        let burnout = match &self.nodes[i.index()] {
+    pub fn burnout_of(&self, i: NodeId) -> Option<Pull> {
+        let pull = match &self.nodes[i.index()] {
             Node::Amplifier(a) => a.burnout,
             Node::Adc(a) => a.burnout,
             Node::Excitation(_)
@@ -342,7 +392,13 @@ impl Plan {
             | Node::Filter(_)
             | Node::Convert(_) => None,
         }?;
-        (burnout > self.input_bias(i).unwrap_or(0.0)).then_some(burnout)
+        match pull {
+            Pull::Current(current) => (current > self.input_bias(i).unwrap_or(0.0)).then_some(pull),
+            // Its current into an open pin, V_p / R at 0 V, is the pin's
+            // path whatever the bias (common practice: a resistor far
+            // below the pin's leakage resistance).
+            Pull::Resistor { .. } => Some(pull),
+        }
     }
 
     /// The largest input bias current amplifier or converter `i` states,

@@ -27,7 +27,7 @@ pub(super) struct Mode {
     pub(super) faulted: Option<NodeId>,
     /// The burnout current the fault says the stage reading the faulted
     /// node sources (a trial current, when a help searches for one).
-    pub(super) fault_burnout: Option<f64>,
+    pub(super) fault_burnout: Option<super::fault::Pull>,
 }
 
 // The fault's burnout current is a stated or searched current, never

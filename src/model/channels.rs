@@ -250,11 +250,17 @@ fn complete(stages: &mut [Stage], conv: usize, channels: &[usize], scan: &Scan) 
         let Some(StageModel::Adc(own)) = &stages[ch].typed else {
             continue;
         };
+        // A burnout current is switched per input on a scanning
+        // converter, and a pull resistor sits on each input: a channel's
+        // own replaces the converter's there.
+        let (burnout, pull) = match (own.burnout, own.pull) {
+            (None, None) => (part.burnout, part.pull),
+            own => own,
+        };
         let adc = super::typed::Adc {
             pga: own.pga.clone(),
-            // A burnout current is switched per input on a scanning
-            // converter: a channel's own replaces the converter's there.
-            burnout: own.burnout.or(part.burnout),
+            burnout,
+            pull,
             channel_of: own.channel_of.clone(),
             channels: count,
             reads,

@@ -450,6 +450,10 @@ fn wrong_signal(
             "`{}` works on voltages, so it belongs before the converter: wire the signal into it first and its output into the `adc`",
             target.name
         ),
+        (SignalKind::CurrentExcitation, StageKind::Amplifier | StageKind::Filter | StageKind::Adc) => format!(
+            "a current becomes a voltage across a resistor: add one, such as `sensor load {{ resistor 10 kohm ± 0.1 % }}`, and wire `{} -> load -> {}`; its value times the largest current should stay inside `{}`'s range",
+            source.name, target.name, target.name
+        ),
         (SignalKind::Element, _) => format!(
             "`{}` is a bare element here; drive it with a current excitation or wire it into a bridge arm: `{} -> bridge_name.arm`",
             source.name, source.name

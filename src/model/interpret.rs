@@ -134,6 +134,7 @@ impl Reader<'_> {
             Shape::Numbers(n) => self.numbers(n, shape),
             Shape::TolerancedNumbers(n) => self.toleranced_numbers(n, shape),
             Shape::At { value, at } => self.value_at(value, at, shape),
+            Shape::To { value, to } => self.value_to(value, to, shape),
             Shape::Method => {
                 let method = self.word(&["exact", "linear", "table", "poly"], shape)?;
                 let points = match method.as_str() {
@@ -243,6 +244,21 @@ impl Reader<'_> {
         }
         self.next();
         let point = self.quantity(at, true, shape)?;
+        Ok(ParamValue::At {
+            value,
+            value_dim,
+            at: point,
+        })
+    }
+
+    /// `value to point`: a plain value, then the point it goes to.
+    fn value_to(&mut self, value: Expect, to: Expect, shape: Shape) -> Checked<ParamValue> {
+        let (value, value_dim) = self.measure(value, false, false, shape)?;
+        if !self.peek_word("to") {
+            return Err(self.missing("`to` and the voltage it goes to", shape));
+        }
+        self.next();
+        let point = self.quantity(to, false, shape)?;
         Ok(ParamValue::At {
             value,
             value_dim,
@@ -783,6 +799,7 @@ fn usage(name: &str, shape: Shape) -> String {
             format!("{name} {}", vec!["<number> [± <tolerance>]"; n].join(" "))
         }
         Shape::At { value, at } => format!("{name} {} at {}", cx_free(value), cx_free(at)),
+        Shape::To { value, to } => format!("{name} {} to {}", cx_free(value), cx_free(to)),
         Shape::Method => format!("{name} exact | linear | table 16 | poly 3"),
         Shape::Calibrate => format!("{name} offset at <point> ± <uncertainty>` or `{name} two_point at <point>, <point> ± <uncertainty>"),
         Shape::LimitOrStage(e) => format!("{name} ± {}` or `{name} <stage name>", cx_free(e)),

@@ -74,6 +74,8 @@ pub enum Shape {
     TolerancedNumbers(usize),
     /// `value at point`.
     At { value: Expect, at: Expect },
+    /// `value to point`, with no tolerance (`pull 10 Mohm to 0 V`).
+    To { value: Expect, to: Expect },
     /// `exact | linear | table n | poly n`
     Method,
     /// `offset at T ± u` or `two_point at T1, T2 ± u`
@@ -256,6 +258,15 @@ const DISSIPATION: ParamSpec = p(
 const LEAD: ParamSpec = p("lead", toleranced(OHM)).non_negative();
 /// One unit's price, in whatever currency the team prices parts in (a
 /// plain number), for the trade table of `catena compare`.
+/// A resistor from an input pin to a voltage (`pull 10 Mohm to 0 V`):
+/// what drives an open input, in place of a burnout current.
+const PULL: ParamSpec = p(
+    param::PULL,
+    Shape::To {
+        value: OHM,
+        to: VOLT,
+    },
+);
 const COST: ParamSpec = p("cost", plain(Expect::Number)).non_negative();
 /// What the stage draws from its supplies, W.
 const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative();
@@ -265,6 +276,8 @@ const POWER: ParamSpec = p("power", plain(Expect::Dim(Dim::POWER))).non_negative
 pub mod param {
     pub const ACCURACY: &str = "accuracy";
     pub const ACQUISITION_TIME: &str = "acquisition_time";
+    pub const BURNOUT: &str = "burnout";
+    pub const PULL: &str = "pull";
     pub const AVERAGE: &str = "average";
     pub const BETA: &str = "beta";
     pub const BIAS: &str = "bias";
@@ -653,7 +666,8 @@ static MODELS: &[ModelSpec] = &[
             )
             .non_negative(),
             p(param::BIAS, Shape::Limit(AMP)),
-            p("burnout", plain(AMP)).positive(),
+            p(param::BURNOUT, plain(AMP)).positive(),
+            PULL,
             p(param::CMRR, plain(Expect::Decibel)).positive(),
             p(param::INPUT, Shape::Range(VOLT)),
             p(param::OUTPUT, Shape::Range(VOLT)),
@@ -662,7 +676,7 @@ static MODELS: &[ModelSpec] = &[
             COST,
             POWER,
         ],
-        exclusive: &[],
+        exclusive: &[(param::BURNOUT, param::PULL)],
         one_of: &[],
         together: &[],
         read: read_amplifier,
@@ -706,7 +720,8 @@ static MODELS: &[ModelSpec] = &[
             p("notch", plain(HERTZ)).positive(),
             p(param::REF_RANGE, Shape::Range(VOLT)),
             p(param::RAILS, Shape::Range(VOLT)),
-            p("burnout", plain(AMP)).positive(),
+            p(param::BURNOUT, plain(AMP)).positive(),
+            PULL,
             p(param::BIAS, plain(AMP)).non_negative(),
             p(param::SAMPLING_CAPACITANCE, plain(FARAD)).positive(),
             p("sampling_resistance", plain(OHM)).non_negative(),
@@ -736,6 +751,7 @@ static MODELS: &[ModelSpec] = &[
             (CHANNEL_OF, "sampling_resistance"),
             (CHANNEL_OF, "acquisition_time"),
             (CHANNEL_OF, SCAN),
+            (param::BURNOUT, param::PULL),
         ],
         one_of: &[],
         together: &[&["sampling_capacitance", "acquisition_time"]],
@@ -929,6 +945,14 @@ impl<'a> Reader<'a> {
     }
 
     /// `value at point`: the value, its dimension and the point.
+    /// `value to point` as (value, point).
+    fn to(&self, name: &str) -> Option<(f64, f64)> {
+        match self.get(name) {
+            Some(ParamValue::At { value, at, .. }) => Some((value.nominal, *at)),
+            _ => None,
+        }
+    }
+
     fn at(&self, name: &str) -> Option<(Measure, Dim, f64)> {
         match self.get(name) {
             Some(ParamValue::At {
@@ -1156,7 +1180,8 @@ fn read_amplifier(r: &Reader<'_>) -> Option<StageModel> {
         noise_corner: r.value("noise_corner"),
         current_noise: r.value(param::CURRENT_NOISE),
         bias: r.limit(param::BIAS),
-        burnout: r.value("burnout"),
+        burnout: r.value(param::BURNOUT),
+        pull: r.to(param::PULL),
         cmrr: r.value(param::CMRR),
         input: r.range(param::INPUT),
         output: r.range(param::OUTPUT),
@@ -1238,7 +1263,8 @@ fn read_adc(r: &Reader<'_>) -> Option<StageModel> {
         notch: r.value("notch"),
         ref_range: r.range(param::REF_RANGE),
         rails: r.range(param::RAILS),
-        burnout: r.value("burnout"),
+        burnout: r.value(param::BURNOUT),
+        pull: r.to(param::PULL),
         bias: r.value(param::BIAS),
         sampling,
         channel_of,

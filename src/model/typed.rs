@@ -315,6 +315,8 @@ pub struct Amplifier {
     /// A current its input sources into an open sensor (burnout
     /// detection), A.
     pub burnout: Option<f64>,
+    /// A resistor from its input to a voltage (`pull R to V`): Ω, V.
+    pub pull: Option<(f64, f64)>,
     /// As a plain ratio (not dB).
     pub cmrr: Option<f64>,
     /// Common-mode input range and output swing, V.
@@ -362,6 +364,8 @@ pub struct Adc {
     /// A current its input sources into an open sensor (burnout
     /// detection), A.
     pub burnout: Option<f64>,
+    /// A resistor from its input to a voltage (`pull R to V`): Ω, V.
+    pub pull: Option<(f64, f64)>,
     /// The largest input bias current its datasheet states, A: what a
     /// burnout current must outweigh to drive an open input to a rail.
     pub bias: Option<f64>,

@@ -2,7 +2,9 @@
 //! gain error and INL, and the code it gives.
 
 use super::{Cx, Run};
-use crate::eval::fault::{open_input, with_burnout, Fault, FaultKind, Faulted};
+use crate::eval::fault::{
+    input_pull, open_input, pulled_lanes, with_pull, Fault, FaultKind, Faulted, Pull,
+};
 use crate::eval::lanes::{self, Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
@@ -32,7 +34,7 @@ pub struct Adc {
     pub inl: Option<SlotId>,
     pub input: NodeId,
     /// The current its input sources into an open sensor, A.
-    pub burnout: Option<f64>,
+    pub burnout: Option<Pull>,
     /// Its largest input bias current, A, where stated.
     pub bias: Option<f64>,
     /// The same current as an error source, nominal 0 (its sign is not
@@ -112,7 +114,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             .inputs
             .input
             .ok_or_else(|| cx.not_invertible("no input"))?,
-        burnout: m.burnout,
+        burnout: input_pull(m.burnout, m.pull),
         bias: m.bias,
         bias_slot: None,
         combine: cx.combine.take(),
@@ -172,14 +174,13 @@ fn fraction_of_span(t: &Tolerance, bits: u32) -> Tolerance {
 impl Adc {
     /// Its input as the pins see it, healthy: the burnout current it
     /// sources lifts the source's voltage by I × rs
-    /// ([`with_burnout`]), what its pins' limits must allow for.
+    /// ([`with_pull`]), what its pins' limits must allow for.
     pub fn input_at_pins(&self, input: Signal) -> Signal {
         match input {
-            Signal::Voltage { v, cm, rs } => Signal::Voltage {
-                v: with_burnout(self.burnout, v, rs),
-                cm,
-                rs,
-            },
+            Signal::Voltage { v, cm, rs } => {
+                let (v, rs) = with_pull(self.burnout, v, rs);
+                Signal::Voltage { v, cm, rs }
+            }
             other => other,
         }
     }
@@ -203,7 +204,7 @@ impl Adc {
         if vr <= 0.0 || !vr.is_finite() {
             return Err(run.numeric("the reference voltage is zero or negative"));
         }
-        let v = with_burnout(run.mode.burnout_into(self.input, self.burnout), v, rs);
+        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, rs);
         Ok(self.combined(run, self.code(run, v, rs, vr)))
     }
 
@@ -234,13 +235,8 @@ impl Adc {
         }
         let burnout = run.mode.burnout_into(self.input, self.burnout);
         for (k, &vr) in vr.iter().enumerate() {
-            let own = self.code_of(
-                run.row(k),
-                with_burnout(burnout, input.x[k], input.rs[k]),
-                input.rs[k],
-                vr,
-                !run.mode.calibrating,
-            );
+            let (v, rs) = with_pull(burnout, input.x[k], input.rs[k]);
+            let own = self.code_of(run.row(k), v, rs, vr, !run.mode.calibrating);
             let code = self.combine_with(own, |n| run.s[n.index()].signal(k));
             out.set(k, code)?;
         }
@@ -263,10 +259,14 @@ impl Adc {
         };
         // Each term a column of its own (zeros where it is absent, added
         // as the single run adds its 0.0), so the loop below has no branch.
+        let (x, rs) = match run.mode.burnout_into(self.input, self.burnout) {
+            Some(pull) => pulled_lanes(pull, input),
+            None => (input.x, input.rs),
+        };
         let mut bias = [0.0; LANES];
         if let Some(b) = self.bias_slot.map(|b| run.slot(b)) {
             for k in 0..LANES {
-                bias[k] = b[k] * input.rs[k];
+                bias[k] = b[k] * rs[k];
             }
         }
         let mut inl = [0.0; LANES];
@@ -280,10 +280,6 @@ impl Adc {
             }
         }
         let (per_ref, (lo, hi)) = (self.per_ref, self.codes);
-        let x = match run.mode.burnout_into(self.input, self.burnout) {
-            Some(i) => std::array::from_fn(|k| with_burnout(Some(i), input.x[k], input.rs[k])),
-            None => input.x,
-        };
         out.tag = Tag::Code;
         for k in 0..LANES {
             let off = off[k] + bias[k];
@@ -433,7 +429,7 @@ impl Adc {
             (Some(FaultKind::InputOpen), floating) => return Ok(floating),
             _ => (v, rs),
         };
-        let v = with_burnout(run.mode.burnout_into(self.input, self.burnout), v, rs);
+        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, rs);
         let vr = match kind {
             Some(FaultKind::InputOpen) => {
                 self.reference_voltage(run.plan, run.values, run.env, run.s)

@@ -2,7 +2,9 @@
 //! swing; outside its common-mode range it rails.
 
 use super::{Cx, Run};
-use crate::eval::fault::{open_input, with_burnout, Fault, FaultKind, Faulted};
+use crate::eval::fault::{
+    input_pull, open_input, pulled_lanes, with_pull, Fault, FaultKind, Faulted, Pull,
+};
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
@@ -27,7 +29,7 @@ pub struct Amplifier {
     pub input_range: Option<(f64, f64)>,
     pub output: Option<(f64, f64)>,
     /// The current its input sources into an open sensor, A.
-    pub burnout: Option<f64>,
+    pub burnout: Option<Pull>,
 }
 
 /// An amplifier's reference (its REF pin, or an output level shift).
@@ -97,7 +99,7 @@ pub(super) fn lower(m: &typed::Amplifier, cx: &mut Cx<'_>) -> Result<Amplifier, 
         reference,
         input_range: m.input,
         output: m.output,
-        burnout: m.burnout,
+        burnout: input_pull(m.burnout, m.pull),
     })
 }
 
@@ -135,7 +137,7 @@ impl Amplifier {
     }
 
     /// Its input pin open, `burnout` the current the pin sources.
-    fn input_open(&self, run: &Run<'_>, burnout: Option<f64>) -> Result<Faulted, EvalError> {
+    fn input_open(&self, run: &Run<'_>, burnout: Option<Pull>) -> Result<Faulted, EvalError> {
         let cm = match run.s[self.input.index()] {
             Signal::Voltage { cm, .. } => cm,
             _ => return Err(run.numeric("no input voltage")),
@@ -158,7 +160,7 @@ impl Amplifier {
         let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
-        let v = with_burnout(run.mode.burnout_into(self.input, self.burnout), v, rs);
+        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, rs);
         let shift = shift_of(run.plan, self.reference, run.values, run.env, run.s)
             .ok_or_else(|| run.numeric("no reference voltage"))?;
         let slot = |o: Option<SlotId>| run.or_zero(o);
@@ -217,13 +219,12 @@ impl Amplifier {
         let (lo, hi) = self.output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
         column.tag = Tag::Voltage;
         let out = &mut column.x;
-        let x = match run.mode.burnout_into(self.input, self.burnout) {
-            Some(i) => std::array::from_fn(|k| with_burnout(Some(i), input.x[k], input.rs[k])),
-            None => input.x,
+        let (x, rs) = match run.mode.burnout_into(self.input, self.burnout) {
+            Some(pull) => pulled_lanes(pull, input),
+            None => (input.x, input.rs),
         };
         for k in 0..LANES {
-            let error =
-                offset[k] + offset_drift[k] * dt + bias[k] * input.rs[k] + cmrr[k] * input.cm[k];
+            let error = offset[k] + offset_drift[k] * dt + bias[k] * rs[k] + cmrr[k] * input.cm[k];
             let gain = gain[k] * (1.0 + gain_drift[k] * dt);
             out[k] = gain * (x[k] + error) + shift[k];
         }
