@@ -554,9 +554,7 @@ impl Presence<'_> {
                 self.file,
                 format!("`{a}` and `{b}` cannot both be given"),
             )
-            .help(format!(
-                "keep `{a}` or `{b}`; they state the same thing two ways"
-            ));
+            .help(exclusive_help(a, b));
             for n in [b, a] {
                 if let Some(s) = self.span_of(n) {
                     f = f.label(s, format!("`{n}`"));
@@ -567,5 +565,18 @@ impl Presence<'_> {
             }
             findings.push(f);
         }
+    }
+}
+
+/// P308's help: why the two do not go together.
+fn exclusive_help(a: &str, b: &str) -> String {
+    match (a, b) {
+        (schema::CHANNEL_OF, _) => format!(
+            "a channel shares its converter's part: state `{b}` on the converter it names and drop it here"
+        ),
+        (schema::param::BURNOUT, schema::param::PULL) => {
+            "keep `burnout` or `pull`: each is what drives an open input, a current or a resistor to a voltage".to_string()
+        }
+        _ => format!("keep `{a}` or `{b}`; they state the same thing two ways"),
     }
 }
