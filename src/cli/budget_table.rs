@@ -347,10 +347,16 @@ fn sources_table(a: &Analysis, worst: &Point, v: &dyn Fn(f64) -> String) -> Stri
     let mut out = lines(&sources);
     if let Some(shares) = a.shares.as_ref().and_then(|s| s.get(index)) {
         let sum: f64 = shares.iter().map(|s| s.share).sum();
+        // Interaction between sources only takes the sum under 100 %;
+        // over it, the estimates' scatter is all there is to say.
+        let why = if sum > 1.0 {
+            "over 100 % by estimation scatter,\nwhich shrinks as 1/√N (interaction between sources takes it under)"
+        } else {
+            "short of 100 % by the interaction between sources, off it either way\nby estimation scatter, which shrinks as 1/√N"
+        };
         out.push_str(&format!(
             "\n\nMonte Carlo shares: first-order indices from the same trials (correlation ratio),\n\
-             summing to {}: short of 100 % by the interaction between sources, off it either way\n\
-             by estimation scatter, which shrinks as 1/√N",
+             summing to {}: {why}",
             percent(sum)
         ));
     }
