@@ -565,6 +565,12 @@ fn fix(
         {
             (codes.map(|codes| ratiometric_fix(plan, window, fault.node, codes)), here)
         }
+        // A current source lost, or out of regulation, still leaves the
+        // bridge or element reading like a measurand: what tells is the
+        // excitation itself.
+        (FaultKind::Lost | FaultKind::AtCompliance, Node::Excitation(e)) if e.current => {
+            (codes.map(|codes| current_monitor_fix(plan, window, fault, codes)), here)
+        }
         (FaultKind::ExcitationLeadOpen | FaultKind::ExcitationReturnOpen, Node::Transducer(_)) => {
             (codes.map(|c| excitation_sense_fix(plan, window, fault.node, c)), here)
         }
@@ -619,6 +625,25 @@ fn excitation_sense_fix(
         window.low,
         window.high,
         plan.names[transducer.index()]
+    )
+}
+
+/// The help for a current source whose loss, or loss of regulation,
+/// reads inside the window: monitor the current where it flows.
+fn current_monitor_fix(
+    plan: &Plan,
+    window: &CodeWindow,
+    fault: &Fault,
+    codes: FaultCodes,
+) -> String {
+    let source = &plan.names[fault.node.index()];
+    let what = match fault.kind {
+        FaultKind::AtCompliance => "out of regulation",
+        _ => "lost",
+    };
+    format!(
+        "{} the valid window {} .. {}: with `{source}` {what} the chain still reads like a measurand; monitor the current on a channel of its own (the voltage across a reference resistor it flows through, or across what it drives) and have the firmware reject readings when it is off",
+        codes.overlap(), window.low, window.high
     )
 }
 
