@@ -133,8 +133,12 @@ impl Reader<'_> {
             Shape::Count { min, max } => Ok(ParamValue::Count(self.count(min, max, shape)?)),
             Shape::Numbers(n) => self.numbers(n, shape),
             Shape::TolerancedNumbers(n) => self.toleranced_numbers(n, shape),
-            Shape::At { value, at } => self.value_at(value, at, shape),
-            Shape::To { value, to } => self.value_to(value, to, shape),
+            Shape::At { value, at } => {
+                self.value_then((value, at), ("at", "the point it is stated at"), shape)
+            }
+            Shape::To { value, to } => {
+                self.value_then((value, to), ("to", "the voltage it goes to"), shape)
+            }
             Shape::Method => {
                 let method = self.word(&["exact", "linear", "table", "poly"], shape)?;
                 let points = match method.as_str() {
@@ -236,33 +240,25 @@ impl Reader<'_> {
         Ok(ParamValue::Measures(measures))
     }
 
-    /// `value at point`.
-    fn value_at(&mut self, value: Expect, at: Expect, shape: Shape) -> Checked<ParamValue> {
-        let (value, value_dim) = self.measure(value, true, false, shape)?;
-        if !self.peek_word("at") {
-            return Err(self.missing("`at` and the point it is stated at", shape));
+    /// `value at point` (the value may carry a tolerance) or `value to
+    /// point` (it may not): the value, `word`, then the point.
+    fn value_then(
+        &mut self,
+        (value, point): (Expect, Expect),
+        (word, after): (&str, &str),
+        shape: Shape,
+    ) -> Checked<ParamValue> {
+        let tolerance = word == "at";
+        let (value, value_dim) = self.measure(value, tolerance, false, shape)?;
+        if !self.peek_word(word) {
+            return Err(self.missing(&format!("`{word}` and {after}"), shape));
         }
         self.next();
-        let point = self.quantity(at, true, shape)?;
+        let at = self.quantity(point, tolerance, shape)?;
         Ok(ParamValue::At {
             value,
             value_dim,
-            at: point,
-        })
-    }
-
-    /// `value to point`: a plain value, then the point it goes to.
-    fn value_to(&mut self, value: Expect, to: Expect, shape: Shape) -> Checked<ParamValue> {
-        let (value, value_dim) = self.measure(value, false, false, shape)?;
-        if !self.peek_word("to") {
-            return Err(self.missing("`to` and the voltage it goes to", shape));
-        }
-        self.next();
-        let point = self.quantity(to, false, shape)?;
-        Ok(ParamValue::At {
-            value,
-            value_dim,
-            at: point,
+            at,
         })
     }
 
