@@ -516,3 +516,16 @@ fn a_pull_resistor_divides_with_the_source_and_holds_an_open_pin() {
         );
     }
 }
+
+/// On a differential input the resistor pulls the positive pin, not the
+/// difference: a 350 Ω load cell on 5 V has its outputs at 2.5 V behind
+/// 175 Ω each, so 1 MΩ to 0 V moves the positive one by
+/// −2.5 V × 175 / 1 000 175 at no load, and a gain of 100 gives that
+/// times 100 (Thévenin).
+#[test]
+fn a_pull_resistor_on_a_differential_input_pulls_its_positive_pin() {
+    let v = eval("load_cell_pull.catena", "0 kg");
+    let got = f(&v["nodes"]["front"]["value"]);
+    let want = -2.5 * 175.0 / 1_000_175.0 * 100.0;
+    assert!((got - want).abs() < 1e-12, "{got} vs {want}");
+}

@@ -214,25 +214,39 @@ pub enum Pull {
 }
 
 impl Pull {
-    /// The pin's voltage where the source gives `v` behind `rs` Ω. A
+    /// The input's voltage where the source gives `v` behind `rs` Ω and
+    /// the positive pin stands at `pin` (`v` on a single-ended input,
+    /// the common mode plus half of `v` on a differential one). A
     /// current I flows back through the source, so the pin sits I × rs
-    /// above `v`; a resistor R to V_p divides with the source, so the
-    /// pin sits (V_p − v) rs / (R + rs) above it (Ohm's law, Thévenin).
-    /// Healthy, a small offset or loading; with the source open, `rs` is
-    /// the open circuit's and the pin runs to a rail, or to V_p.
+    /// above the source; a resistor R to V_p divides with the source, so
+    /// the pin moves (V_p − pin) rs / (R + rs) toward V_p (Ohm's law,
+    /// Thévenin), and the input with it. Healthy, a small offset or
+    /// loading; with the source open, `rs` is the open circuit's and the
+    /// pin runs to a rail, or to V_p.
     /// With it, the source's resistance seen from the pin: a current
     /// source's own is infinite, so a burnout current leaves `rs` as it
     /// is; a resistor sits in parallel (what a bias current then flows
     /// through).
     #[inline(always)]
-    pub fn lift(self, v: f64, rs: f64) -> (f64, f64) {
+    pub fn lift(self, v: f64, pin: f64, rs: f64) -> (f64, f64) {
         match self {
             Pull::Current(current) => (v + current * rs, rs),
             Pull::Resistor { ohms, volts } => {
                 let share = rs / (ohms + rs);
-                (v + (volts - v) * share, ohms * share)
+                (v + (volts - pin) * share, ohms * share)
             }
         }
+    }
+}
+
+/// The positive pin's voltage of an input that reads `v` about common
+/// mode `cm`: `v` itself on a single-ended input.
+#[inline(always)]
+pub(super) fn positive_pin(v: f64, cm: f64, differential: bool) -> f64 {
+    if differential {
+        cm + v / 2.0
+    } else {
+        v
     }
 }
 
@@ -242,10 +256,12 @@ impl Pull {
 pub(super) fn pulled_lanes(
     pull: Pull,
     input: &super::lanes::Column,
+    differential: bool,
 ) -> ([f64; super::run::LANES], [f64; super::run::LANES]) {
     let mut out = (input.x, input.rs);
     for k in 0..super::run::LANES {
-        (out.0[k], out.1[k]) = pull.lift(input.x[k], input.rs[k]);
+        let pin = positive_pin(input.x[k], input.cm[k], differential);
+        (out.0[k], out.1[k]) = pull.lift(input.x[k], pin, input.rs[k]);
     }
     out
 }
@@ -258,11 +274,11 @@ pub(super) fn input_pull(burnout: Option<f64>, pull: Option<(f64, f64)>) -> Opti
 }
 
 /// The voltage at a stage's input, V, and the resistance behind it, Ω,
-/// with its pull ([`Pull::lift`]).
+/// with its pull ([`Pull::lift`]); `pin` is its positive pin's voltage.
 #[inline(always)]
-pub(super) fn with_pull(pull: Option<Pull>, v: f64, rs: f64) -> (f64, f64) {
+pub(super) fn with_pull(pull: Option<Pull>, v: f64, pin: f64, rs: f64) -> (f64, f64) {
     match pull {
-        Some(pull) => pull.lift(v, rs),
+        Some(pull) => pull.lift(v, pin, rs),
         None => (v, rs),
     }
 }

@@ -3,7 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{
-    input_pull, open_input, pulled_lanes, with_pull, Fault, FaultKind, Faulted, Pull,
+    input_pull, open_input, positive_pin, pulled_lanes, with_pull, Fault, FaultKind, Faulted, Pull,
 };
 use crate::eval::lanes::{self, Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
@@ -178,7 +178,8 @@ impl Adc {
     pub fn input_at_pins(&self, input: Signal) -> Signal {
         match input {
             Signal::Voltage { v, cm, rs } => {
-                let (v, rs) = with_pull(self.burnout, v, rs);
+                let pin = positive_pin(v, cm, self.differential);
+                let (v, rs) = with_pull(self.burnout, v, pin, rs);
                 Signal::Voltage { v, cm, rs }
             }
             other => other,
@@ -197,14 +198,15 @@ impl Adc {
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
         let values = run.values;
-        let Signal::Voltage { v, rs, .. } = run.s[self.input.index()] else {
+        let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
         let vr = self.reference_voltage(run.plan, values, run.env, run.s);
         if vr <= 0.0 || !vr.is_finite() {
             return Err(run.numeric("the reference voltage is zero or negative"));
         }
-        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, rs);
+        let pin = positive_pin(v, cm, self.differential);
+        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, pin, rs);
         Ok(self.combined(run, self.code(run, v, rs, vr)))
     }
 
@@ -235,7 +237,8 @@ impl Adc {
         }
         let burnout = run.mode.burnout_into(self.input, self.burnout);
         for (k, &vr) in vr.iter().enumerate() {
-            let (v, rs) = with_pull(burnout, input.x[k], input.rs[k]);
+            let pin = positive_pin(input.x[k], input.cm[k], self.differential);
+            let (v, rs) = with_pull(burnout, input.x[k], pin, input.rs[k]);
             let own = self.code_of(run.row(k), v, rs, vr, !run.mode.calibrating);
             let code = self.combine_with(own, |n| run.s[n.index()].signal(k));
             out.set(k, code)?;
@@ -260,7 +263,7 @@ impl Adc {
         // Each term a column of its own (zeros where it is absent, added
         // as the single run adds its 0.0), so the loop below has no branch.
         let (x, rs) = match run.mode.burnout_into(self.input, self.burnout) {
-            Some(pull) => pulled_lanes(pull, input),
+            Some(pull) => pulled_lanes(pull, input, self.differential),
             None => (input.x, input.rs),
         };
         let mut bias = [0.0; LANES];
@@ -429,7 +432,8 @@ impl Adc {
             (Some(FaultKind::InputOpen), floating) => return Ok(floating),
             _ => (v, rs),
         };
-        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, rs);
+        let pin = positive_pin(v, cm, self.differential);
+        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, pin, rs);
         let vr = match kind {
             Some(FaultKind::InputOpen) => {
                 self.reference_voltage(run.plan, run.values, run.env, run.s)

@@ -3,7 +3,7 @@
 
 use super::{Cx, Run};
 use crate::eval::fault::{
-    input_pull, open_input, pulled_lanes, with_pull, Fault, FaultKind, Faulted, Pull,
+    input_pull, open_input, positive_pin, pulled_lanes, with_pull, Fault, FaultKind, Faulted, Pull,
 };
 use crate::eval::lanes::{Column, LaneRun, Lost, Tag};
 use crate::eval::plan::{DriftSlot, Env, EvalError, NodeId, Plan, Signal, SlotId, SourceKind};
@@ -160,7 +160,9 @@ impl Amplifier {
         let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
-        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, rs);
+        // An amplifier's inputs are differential.
+        let pin = positive_pin(v, cm, true);
+        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, pin, rs);
         let shift = shift_of(run.plan, self.reference, run.values, run.env, run.s)
             .ok_or_else(|| run.numeric("no reference voltage"))?;
         let slot = |o: Option<SlotId>| run.or_zero(o);
@@ -220,7 +222,7 @@ impl Amplifier {
         column.tag = Tag::Voltage;
         let out = &mut column.x;
         let (x, rs) = match run.mode.burnout_into(self.input, self.burnout) {
-            Some(pull) => pulled_lanes(pull, input),
+            Some(pull) => pulled_lanes(pull, input, true),
             None => (input.x, input.rs),
         };
         for k in 0..LANES {
