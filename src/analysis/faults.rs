@@ -520,7 +520,7 @@ fn fix(
         ),
         (_, _)
             if codes.is_none()
-                && fault.burnout.is_none()
+                && fault.pull.is_none()
                 && !unstated_limit(plan, fault)
                 && reader_of(plan, fault.node).is_some() =>
         (
@@ -727,7 +727,7 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
     let reader = reader_of(plan, fault.node)?;
     let detectable = |amps: f64| {
         let trial = Fault {
-            burnout: Some(Pull::Current(amps)),
+            pull: Some(Pull::Current(amps)),
             ..*fault
         };
         code_range(plan, cases, window, &trial)
@@ -785,7 +785,7 @@ fn pull_down_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault)
         volts: 0.0,
     };
     let trial = Fault {
-        burnout: Some(PULL),
+        pull: Some(PULL),
         ..*fault
     };
     let detectable = code_range(plan, cases, window, &trial)

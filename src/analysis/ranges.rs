@@ -538,10 +538,8 @@ fn bridge_load(
         Some(Signal::Element(r)) => r,
         _ => fixed,
     });
-    for (k, n) in bridge.positions().into_iter().enumerate() {
-        if let Some(n) = n {
-            arms[k ^ 1] += plan.next_arm_lead(n, values);
-        }
+    for (k, n) in bridge.next_arms() {
+        arms[k] += plan.next_arm_lead(n, values);
     }
     match bridge.kind {
         BridgeKind::Divider { .. } => arms[0] + arms[1],

@@ -177,12 +177,12 @@ pub const FLOATING: &str =
     "nothing gives the open input a path: its bias current charges it toward an unknown rail";
 
 impl Mode {
-    /// The burnout current a stage reading node `input` sources, its own
-    /// `burnout` unless the fault at that node states the current.
+    /// What drives node `input` from the stage reading it: that stage's
+    /// own `burnout` or `pull` unless the fault at that node states one.
     #[inline(always)]
-    pub(super) fn burnout_into(&self, input: NodeId, own: Option<Pull>) -> Option<Pull> {
+    pub(super) fn pull_into(&self, input: NodeId, own: Option<Pull>) -> Option<Pull> {
         match self.faulted {
-            Some(n) if n == input => self.fault_burnout.or(own),
+            Some(n) if n == input => self.fault_pull.or(own),
             _ => own,
         }
     }
@@ -190,10 +190,11 @@ impl Mode {
 
 /// An input pin cut off from its source: a burnout current (`burnout`
 /// on the stage that reads it) has only the open circuit to flow into,
-/// so it drives the pin to a rail ([`with_burnout`] across the open
-/// circuit's resistance); without one the pin floats.
-pub fn open_input(burnout: Option<Pull>, cm: f64) -> Faulted {
-    match burnout {
+/// so it drives the pin to a rail, and a pull resistor holds it at its
+/// voltage ([`Pull::lift`] across the open circuit's resistance);
+/// without either the pin floats.
+pub fn open_input(pull: Option<Pull>, cm: f64) -> Faulted {
+    match pull {
         Some(_) => Faulted::Signal(Signal::Voltage {
             v: 0.0,
             cm,
@@ -223,6 +224,7 @@ impl Pull {
     /// Thévenin), and the input with it. Healthy, a small offset or
     /// loading; with the source open, `rs` is the open circuit's and the
     /// pin runs to a rail, or to V_p.
+    ///
     /// With it, the source's resistance seen from the pin: a current
     /// source's own is infinite, so a burnout current leaves `rs` as it
     /// is; a resistor sits in parallel (what a bias current then flows
@@ -307,7 +309,7 @@ pub struct Fault {
     /// amplifier's or converter's `burnout` or `pull`; for an input pin
     /// open, that stage's own); None when nothing gives the open input a
     /// path.
-    pub burnout: Option<Pull>,
+    pub pull: Option<Pull>,
 }
 
 /// A node's signal under a fault, or why nothing determines it.
@@ -339,14 +341,14 @@ impl Plan {
         let mut out = Vec::new();
         for i in NodeId::all(self.nodes.len()).filter(|&i| feeds[i.index()]) {
             for &kind in self.nodes[i.index()].faults() {
-                let burnout = match kind {
-                    FaultKind::InputOpen => self.burnout_of(i),
-                    _ => self.burnout_into(i),
+                let pull = match kind {
+                    FaultKind::InputOpen => self.pull_of(i),
+                    _ => self.pull_into(i),
                 };
                 out.push(Fault {
                     node: i,
                     kind,
-                    burnout,
+                    pull,
                 });
             }
         }
@@ -365,9 +367,9 @@ impl Plan {
         feeds
     }
 
-    /// The burnout current the stage reading node `i` sources into it
-    /// (see [`Plan::burnout_of`]).
-    pub fn burnout_into(&self, i: NodeId) -> Option<Pull> {
+    /// What the stage reading node `i` drives it with when it opens
+    /// (see [`Plan::pull_of`]).
+    pub fn pull_into(&self, i: NodeId) -> Option<Pull> {
         let reader = NodeId::new(self.nodes.iter().position(|n| match n {
             Node::Amplifier(a) => a.input == i,
             Node::Adc(a) => a.input == i,
@@ -384,17 +386,18 @@ impl Plan {
             | Node::Filter(_)
             | Node::Convert(_) => false,
         })?);
-        self.burnout_of(reader)
+        self.pull_of(reader)
     }
 
-    /// The burnout current amplifier or converter `i` sources from its own
-    /// input, when it outweighs the input's largest bias current: a bias
-    /// current as large or larger, with nowhere else to go, leaves the
-    /// open input's direction undetermined.
-    pub fn burnout_of(&self, i: NodeId) -> Option<Pull> {
+    /// What amplifier or converter `i` drives its own open input with: a
+    /// pull resistor, or a burnout current when it outweighs the input's
+    /// largest bias current (a bias current as large or larger, with
+    /// nowhere else to go, leaves the open input's direction
+    /// undetermined).
+    pub fn pull_of(&self, i: NodeId) -> Option<Pull> {
         let pull = match &self.nodes[i.index()] {
-            Node::Amplifier(a) => a.burnout,
-            Node::Adc(a) => a.burnout,
+            Node::Amplifier(a) => a.pull,
+            Node::Adc(a) => a.pull,
             Node::Excitation(_)
             | Node::Rtd(_)
             | Node::Thermocouple(_)
@@ -506,7 +509,7 @@ impl Plan {
         let grounded = self.shorted_reference(fault);
         let mode = Mode {
             faulted: Some(fault.node),
-            fault_burnout: fault.burnout,
+            fault_pull: fault.pull,
             ..Mode::FAULT
         };
         // The channels one conversion combines share their converter's

@@ -483,7 +483,7 @@ mod tests {
         clip: true,
         calibrating: false,
         faulted: None,
-        fault_burnout: None,
+        fault_pull: None,
     };
 
     /// A signal's values, to the bit.
@@ -711,7 +711,7 @@ pub(super) mod check {
             clip: true,
             calibrating,
             faulted: None,
-            fault_burnout: None,
+            fault_pull: None,
         }
     }
 

@@ -25,12 +25,13 @@ pub(super) struct Mode {
     /// A node under a fault: what it outputs is the fault's, so a bridge
     /// does not work its arm's self-heating out again from the curve.
     pub(super) faulted: Option<NodeId>,
-    /// The burnout current the fault says the stage reading the faulted
-    /// node sources (a trial current, when a help searches for one).
-    pub(super) fault_burnout: Option<super::fault::Pull>,
+    /// What the fault says drives the faulted node from the stage
+    /// reading it (a trial current or resistor, when a help searches for
+    /// one).
+    pub(super) fault_pull: Option<super::fault::Pull>,
 }
 
-// The fault's burnout current is a stated or searched current, never
+// The fault's pull is a stated or searched current or resistor, never
 // NaN, so equality on the mode is an equivalence.
 impl Eq for Mode {}
 
@@ -40,42 +41,42 @@ impl Mode {
         clip: true,
         calibrating: false,
         faulted: None,
-        fault_burnout: None,
+        fault_pull: None,
     };
     const CODES: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: false,
         faulted: None,
-        fault_burnout: None,
+        fault_pull: None,
     };
     const RAW: Mode = Mode {
         quantized: true,
         clip: false,
         calibrating: false,
         faulted: None,
-        fault_burnout: None,
+        fault_pull: None,
     };
     const CALIBRATION: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: true,
         faulted: None,
-        fault_burnout: None,
+        fault_pull: None,
     };
     pub(super) const FAULT: Mode = Mode {
         quantized: true,
         clip: true,
         calibrating: false,
         faulted: None,
-        fault_burnout: None,
+        fault_pull: None,
     };
     const UNQUANTIZED: Mode = Mode {
         quantized: false,
         clip: true,
         calibrating: false,
         faulted: None,
-        fault_burnout: None,
+        fault_pull: None,
     };
 }
 

@@ -11,7 +11,7 @@ use petgraph::graph::DiGraph;
 use super::chain::{Connection, Stage};
 use super::ports::{self, InputSpec, Port, SignalKind};
 use super::schema;
-use super::typed::StageModel;
+use super::typed::{Bridge, BridgeForm, StageModel};
 use super::value::ParamValue;
 use crate::diagnostics::{backticked, did_you_mean, did_you_mean_or};
 use crate::diagnostics::{Cause, Code, Finding, Findings, SourceFile, Span};
@@ -553,9 +553,13 @@ fn arm_count(wiring: &Wiring, i: usize, into: &[&Connection]) -> Option<Finding>
 /// opposite strains cancel.
 fn half_bridge_sides(wiring: &Wiring, i: usize, into: &[&Connection]) -> Option<Finding> {
     let stage = &wiring.stages[i];
-    if stage.model != Some("half") {
+    let Some(StageModel::Bridge(Bridge {
+        form: BridgeForm::Half,
+        ..
+    })) = &stage.typed
+    else {
         return None;
-    }
+    };
     let side = |c: &Connection| {
         let Some(StageModel::StrainGauge(gauge)) = &wiring.stages[c.from].typed else {
             return None;

@@ -33,8 +33,9 @@ pub struct Adc {
     /// Integral nonlinearity, a fraction of full scale, nominal 0.
     pub inl: Option<SlotId>,
     pub input: NodeId,
-    /// The current its input sources into an open sensor, A.
-    pub burnout: Option<Pull>,
+    /// What drives its input when the source opens: a burnout current
+    /// or a pull resistor.
+    pub pull: Option<Pull>,
     /// Its largest input bias current, A, where stated.
     pub bias: Option<f64>,
     /// The same current as an error source, nominal 0 (its sign is not
@@ -114,7 +115,7 @@ pub(super) fn lower(m: &typed::Adc, cx: &mut Cx<'_>) -> Result<Adc, EvalError> {
             .inputs
             .input
             .ok_or_else(|| cx.not_invertible("no input"))?,
-        burnout: input_pull(m.burnout, m.pull),
+        pull: input_pull(m.burnout, m.pull),
         bias: m.bias,
         bias_slot: None,
         combine: cx.combine.take(),
@@ -172,14 +173,14 @@ fn fraction_of_span(t: &Tolerance, bits: u32) -> Tolerance {
 }
 
 impl Adc {
-    /// Its input as the pins see it, healthy: the burnout current it
-    /// sources lifts the source's voltage by I × rs
-    /// ([`with_pull`]), what its pins' limits must allow for.
+    /// Its input as the pins see it, healthy: its burnout current or
+    /// pull resistor moves the source's voltage ([`Pull::lift`]), what
+    /// its pins' limits must allow for.
     pub fn input_at_pins(&self, input: Signal) -> Signal {
         match input {
             Signal::Voltage { v, cm, rs } => {
                 let pin = positive_pin(v, cm, self.differential);
-                let (v, rs) = with_pull(self.burnout, v, pin, rs);
+                let (v, rs) = with_pull(self.pull, v, pin, rs);
                 Signal::Voltage { v, cm, rs }
             }
             other => other,
@@ -206,7 +207,7 @@ impl Adc {
             return Err(run.numeric("the reference voltage is zero or negative"));
         }
         let pin = positive_pin(v, cm, self.differential);
-        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, pin, rs);
+        let (v, rs) = with_pull(run.mode.pull_into(self.input, self.pull), v, pin, rs);
         Ok(self.combined(run, self.code(run, v, rs, vr)))
     }
 
@@ -235,10 +236,10 @@ impl Adc {
             }
             Some((CombineOp::Ratio, _)) => {}
         }
-        let burnout = run.mode.burnout_into(self.input, self.burnout);
+        let pull = run.mode.pull_into(self.input, self.pull);
         for (k, &vr) in vr.iter().enumerate() {
             let pin = positive_pin(input.x[k], input.cm[k], self.differential);
-            let (v, rs) = with_pull(burnout, input.x[k], pin, input.rs[k]);
+            let (v, rs) = with_pull(pull, input.x[k], pin, input.rs[k]);
             let own = self.code_of(run.row(k), v, rs, vr, !run.mode.calibrating);
             let code = self.combine_with(own, |n| run.s[n.index()].signal(k));
             out.set(k, code)?;
@@ -262,7 +263,7 @@ impl Adc {
         };
         // Each term a column of its own (zeros where it is absent, added
         // as the single run adds its 0.0), so the loop below has no branch.
-        let (x, rs) = match run.mode.burnout_into(self.input, self.burnout) {
+        let (x, rs) = match run.mode.pull_into(self.input, self.pull) {
             Some(pull) => pulled_lanes(pull, input, self.differential),
             None => (input.x, input.rs),
         };
@@ -426,14 +427,14 @@ impl Adc {
         let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
-        let burnout = fault.and_then(|f| f.burnout);
-        let (v, rs) = match (kind, open_input(burnout, cm)) {
+        let open = fault.and_then(|f| f.pull);
+        let (v, rs) = match (kind, open_input(open, cm)) {
             (Some(FaultKind::InputOpen), Faulted::Signal(Signal::Voltage { v, rs, .. })) => (v, rs),
             (Some(FaultKind::InputOpen), floating) => return Ok(floating),
             _ => (v, rs),
         };
         let pin = positive_pin(v, cm, self.differential);
-        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, pin, rs);
+        let (v, rs) = with_pull(run.mode.pull_into(self.input, self.pull), v, pin, rs);
         let vr = match kind {
             Some(FaultKind::InputOpen) => {
                 self.reference_voltage(run.plan, run.values, run.env, run.s)

@@ -28,8 +28,9 @@ pub struct Amplifier {
     /// Common-mode input range and output swing, V.
     pub input_range: Option<(f64, f64)>,
     pub output: Option<(f64, f64)>,
-    /// The current its input sources into an open sensor, A.
-    pub burnout: Option<Pull>,
+    /// What drives its input when the source opens: a burnout current
+    /// or a pull resistor.
+    pub pull: Option<Pull>,
 }
 
 /// An amplifier's reference (its REF pin, or an output level shift).
@@ -99,7 +100,7 @@ pub(super) fn lower(m: &typed::Amplifier, cx: &mut Cx<'_>) -> Result<Amplifier, 
         reference,
         input_range: m.input,
         output: m.output,
-        burnout: input_pull(m.burnout, m.pull),
+        pull: input_pull(m.burnout, m.pull),
     })
 }
 
@@ -119,7 +120,7 @@ impl Amplifier {
     pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
         let kind = fault.kind;
         let v = match (kind, self.output) {
-            (FaultKind::InputOpen, _) => return self.input_open(run, fault.burnout),
+            (FaultKind::InputOpen, _) => return self.input_open(run, fault.pull),
             (FaultKind::SaturatedHigh | FaultKind::SaturatedLow, None) => {
                 return Ok(Faulted::Undetermined(
                     "the amplifier's output swing is not stated",
@@ -136,13 +137,13 @@ impl Amplifier {
         }))
     }
 
-    /// Its input pin open, `burnout` the current the pin sources.
-    fn input_open(&self, run: &Run<'_>, burnout: Option<Pull>) -> Result<Faulted, EvalError> {
+    /// Its input pin open, `pull` what drives the pin.
+    fn input_open(&self, run: &Run<'_>, pull: Option<Pull>) -> Result<Faulted, EvalError> {
         let cm = match run.s[self.input.index()] {
             Signal::Voltage { cm, .. } => cm,
             _ => return Err(run.numeric("no input voltage")),
         };
-        let open = match open_input(burnout, cm) {
+        let open = match open_input(pull, cm) {
             Faulted::Signal(open) => open,
             undetermined => return Ok(undetermined),
         };
@@ -162,7 +163,7 @@ impl Amplifier {
         };
         // An amplifier's inputs are differential.
         let pin = positive_pin(v, cm, true);
-        let (v, rs) = with_pull(run.mode.burnout_into(self.input, self.burnout), v, pin, rs);
+        let (v, rs) = with_pull(run.mode.pull_into(self.input, self.pull), v, pin, rs);
         let shift = shift_of(run.plan, self.reference, run.values, run.env, run.s)
             .ok_or_else(|| run.numeric("no reference voltage"))?;
         let slot = |o: Option<SlotId>| run.or_zero(o);
@@ -221,7 +222,7 @@ impl Amplifier {
         let (lo, hi) = self.output.unwrap_or((f64::NEG_INFINITY, f64::INFINITY));
         column.tag = Tag::Voltage;
         let out = &mut column.x;
-        let (x, rs) = match run.mode.burnout_into(self.input, self.burnout) {
+        let (x, rs) = match run.mode.pull_into(self.input, self.pull) {
             Some(pull) => pulled_lanes(pull, input, true),
             None => (input.x, input.rs),
         };

@@ -162,10 +162,8 @@ impl Bridge {
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
         let mut arms = [r1, r2, r3, r4];
-        for (k, n) in self.positions().into_iter().enumerate() {
-            if let Some(n) = n {
-                arms[k ^ 1] += next_lead(n);
-            }
+        for (k, n) in self.next_arms() {
+            arms[k] += next_lead(n);
         }
         let exc = s[self.exc.index()];
         let placed = self.placed(run.mode);
@@ -221,8 +219,6 @@ impl Bridge {
 
     /// Which element sits in each arm by position (r1 r2 | r3 r4), as
     /// `Bridge::solve` places them; a divider's element is its first.
-    /// The next arm on an element's side, the one sharing its output node,
-    /// is at position k ^ 1: a three-wire element's wire 2 runs there.
     #[inline(always)]
     pub(crate) fn positions(&self) -> [Option<NodeId>; 4] {
         let at = |k: usize| self.arms.get(k).copied();
@@ -231,6 +227,14 @@ impl Bridge {
             BridgeKind::Half => [None, at(0), at(1), None],
             BridgeKind::Full | BridgeKind::Divider { .. } => [at(2), at(0), at(1), at(3)],
         }
+    }
+
+    /// Each element with the position of the next arm on its side, the
+    /// one sharing its output node (k ^ 1), where a three-wire element's
+    /// wire 2 runs.
+    pub(crate) fn next_arms(&self) -> impl Iterator<Item = (usize, NodeId)> {
+        let positions = self.positions().into_iter().enumerate();
+        positions.filter_map(|(k, n)| Some((k ^ 1, n?)))
     }
 
     /// [`Bridge::positions`] for self-heating: a faulted arm is what the
@@ -287,12 +291,9 @@ impl Bridge {
             BridgeKind::Full => (arm(2)?, arm(0)?, arm(1)?, arm(3)?),
         };
         let mut arms: [[f64; 4]; LANES] = std::array::from_fn(|j| [r1[j], r2[j], r3[j], r4[j]]);
-        for (k, n) in self.positions().into_iter().enumerate() {
-            if let Some(n) = n {
-                let lead = next_lead(n);
-                for (arms, lead) in arms.iter_mut().zip(lead) {
-                    arms[k ^ 1] += lead;
-                }
+        for (k, n) in self.next_arms() {
+            for (arms, lead) in arms.iter_mut().zip(next_lead(n)) {
+                arms[k] += lead;
             }
         }
         let arms = run

@@ -313,7 +313,7 @@ impl Rtd {
             }
             FaultKind::SenseLeadOpen | FaultKind::ReturnSenseLeadOpen => {
                 let (_, cm, _) = healthy()?;
-                open_input(fault.burnout, cm)
+                open_input(fault.pull, cm)
             }
             FaultKind::SenseLeadsShorted => {
                 let (_, cm, rs) = healthy()?;

@@ -87,7 +87,7 @@ pub(super) const FAULTS: &[FaultKind] = &[FaultKind::Open, FaultKind::Reversed];
 impl Thermocouple {
     /// Open: no EMF, and the input's burnout current has only the bias
     /// resistor (else the open input's insulation) to flow through, so the
-    /// stage reading it sees I × R (`fault::with_burnout`); without a
+    /// stage reading it sees I × R (`fault::Pull::lift`); without a
     /// burnout current the open input floats and nothing determines its
     /// code. Reversed: the EMF with its sign turned.
     pub(super) fn faulted(&self, run: &Run<'_>, fault: &Fault) -> Result<Faulted, EvalError> {
@@ -97,7 +97,7 @@ impl Thermocouple {
         };
         Ok(match fault.kind {
             FaultKind::Reversed => Faulted::Signal(Signal::Voltage { v: -v, cm, rs }),
-            FaultKind::Open => match fault.burnout {
+            FaultKind::Open => match fault.pull {
                 Some(_) => {
                     let r = self
                         .bias_resistor

@@ -126,7 +126,7 @@ impl Transducer {
         Ok(match fault.kind {
             FaultKind::ExcitationLeadOpen => still_at(0.0),
             FaultKind::ExcitationReturnOpen => still_at(exc),
-            FaultKind::SignalLeadOpen => open_input(fault.burnout, cm),
+            FaultKind::SignalLeadOpen => open_input(fault.pull, cm),
             kind => return Err(run.numeric(kind.describe())),
         })
     }
