@@ -138,8 +138,10 @@ impl Node {
     }
 
     /// Whether the node's own signal depends on the measured quantity
-    /// (not through its inputs): a sensor of it, or a conversion, whose
-    /// firmware model is read at the condition.
+    /// (not through its inputs): a sensor of it, or the conversion of it.
+    /// A cold junction's conversion reads its firmware model at the
+    /// condition's measurand, but that model's code comes from the stages
+    /// before its converter, which its input already answers for.
     pub(super) fn reads_measurand(&self) -> bool {
         let senses = |s: Senses| s == Senses::Measurand;
         match self {
@@ -147,10 +149,8 @@ impl Node {
             Node::Thermistor(n) => senses(n.senses),
             Node::IcVoltage(n) => senses(n.senses),
             Node::IcCurrent(n) => senses(n.senses),
-            Node::Thermocouple(_)
-            | Node::StrainGauge(_)
-            | Node::Transducer(_)
-            | Node::Convert(_) => true,
+            Node::Convert(n) => senses(n.conversion.variable),
+            Node::Thermocouple(_) | Node::StrainGauge(_) | Node::Transducer(_) => true,
             Node::Excitation(_)
             | Node::Resistor(_)
             | Node::Bridge(_)
