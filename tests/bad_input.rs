@@ -3,11 +3,9 @@
 
 mod common;
 
-use std::path::PathBuf;
+use common::{catena, TempDir};
 
-use common::catena;
-
-fn temp(name: &str, bytes: &[u8]) -> (PathBuf, String) {
+fn temp(name: &str, bytes: &[u8]) -> (TempDir, String) {
     let dir = common::temp_dir("bad", name);
     std::fs::write(dir.join(name), bytes).unwrap();
     (dir, name.to_string())
@@ -29,7 +27,6 @@ fn check(name: &str, bytes: &[u8]) -> Vec<String> {
     assert_eq!(run.status, 1, "{name}: {}{}", run.stdout, run.stderr);
     let codes = codes_of(&run.stdout);
     assert!(!codes.is_empty());
-    std::fs::remove_dir_all(&dir).unwrap();
     codes
 }
 

@@ -57,7 +57,7 @@ fn every_configuration_fixture_reports_its_expectation() {
 
 /// A throwaway repository with a spec that misses its accuracy
 /// requirement (R611, an error).
-fn repo(name: &str) -> PathBuf {
+fn repo(name: &str) -> common::TempDir {
     let dir = common::temp_dir("config", name);
     std::fs::create_dir_all(dir.join("repo/.git")).unwrap();
     std::fs::create_dir_all(dir.join("repo/specs")).unwrap();

@@ -5,8 +5,6 @@
 
 mod common;
 
-use std::path::PathBuf;
-
 use common::{catena, git, json, root};
 
 const FIXTURES: &str = "tests/fixtures/diff";
@@ -111,7 +109,7 @@ fn diff_takes_two_specs_or_a_revision() {
     assert!(run.stderr.contains("OLD and NEW"), "{}", run.stderr);
 }
 
-fn throwaway_repository(name: &str) -> PathBuf {
+fn throwaway_repository(name: &str) -> common::TempDir {
     let dir = common::temp_dir("diff", name);
     std::fs::create_dir_all(dir.join("specs/parts")).expect("temp folder");
     git(&dir, &["init", "-q"]);

@@ -32,11 +32,8 @@ fn export(args: &[&str]) -> common::Run {
     }
 }
 
-fn scratch(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("catena-export-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).expect("scratch folder");
-    dir
+fn scratch(name: &str) -> common::TempDir {
+    common::temp_dir("export", name)
 }
 
 /// A spec's chains, checked and lowered.

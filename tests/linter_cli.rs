@@ -4,12 +4,11 @@
 
 mod common;
 
-use std::path::PathBuf;
 use std::process::{Command, Stdio};
 
 use common::{catena, root};
 
-fn temp_dir(name: &str) -> PathBuf {
+fn temp_dir(name: &str) -> common::TempDir {
     common::temp_dir("linter", name)
 }
 

@@ -3,11 +3,9 @@
 
 mod common;
 
-use std::path::PathBuf;
-
 use common::catena;
 
-fn temp_dir(name: &str) -> PathBuf {
+fn temp_dir(name: &str) -> common::TempDir {
     common::temp_dir("robust", name)
 }
 

@@ -12,8 +12,7 @@ fn fixture(name: &str) -> String {
 
 /// Runs `catena args.. spec` on `text`, written to a scratch file.
 fn run_on(text: &str, name: &str, args: &[&str]) -> common::Run {
-    let dir = std::env::temp_dir().join(format!("catena-units-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).expect("a scratch folder");
+    let dir = common::temp_dir("units", name);
     let path = dir.join(name);
     std::fs::write(&path, text).expect("the scratch spec is written");
     let mut all: Vec<&str> = args.to_vec();

@@ -47,12 +47,36 @@ pub fn catena(dir: &Path, args: &[&str], stdin: Option<&[u8]>) -> Run {
 }
 
 /// A fresh, empty folder under the system's temporary folder, its name
-/// made of `prefix`, this test binary's process id and `name`.
-pub fn temp_dir(prefix: &str, name: &str) -> PathBuf {
+/// made of `prefix`, this test binary's process id and `name`; removed
+/// with everything in it when the test is done with it.
+pub fn temp_dir(prefix: &str, name: &str) -> TempDir {
     let dir = std::env::temp_dir().join(format!("catena-{prefix}-{}-{name}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).expect("a temporary folder can be made");
-    dir
+    TempDir(dir)
+}
+
+/// A test's scratch folder ([`temp_dir`]), removed when dropped.
+pub struct TempDir(PathBuf);
+
+impl std::ops::Deref for TempDir {
+    type Target = Path;
+
+    fn deref(&self) -> &Path {
+        &self.0
+    }
+}
+
+impl AsRef<Path> for TempDir {
+    fn as_ref(&self) -> &Path {
+        &self.0
+    }
+}
+
+impl Drop for TempDir {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
 }
 
 /// Runs `git` in `dir` with a throwaway identity; fails the test if it
