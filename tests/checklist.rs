@@ -64,6 +64,51 @@ fn self_heating_is_i_squared_r_over_the_dissipation_constant() {
     );
 }
 
+/// The battery pack's 10 kohm NTC (B = 3950 K, delta = 1.5 mW/K) under a
+/// 10 kohm resistor from 3.3 V: a divider puts V^2 R / (R + Rf)^2 into
+/// its element, most where R = Rf, 25 degC, inside the -20 .. 60 degC
+/// range: V^2 / (4 Rf) = 272 uW and 0.181 K (by hand). Read at the
+/// range's ends only, it was 0 K: the heat shows in the divider's output,
+/// not in the element's own resistance.
+#[test]
+fn a_divider_heats_its_element_most_where_the_two_match() {
+    let list = checklist("specs/battery_pack.catena");
+    let text = review(&list, "self_heating", "ntc");
+    let power = 3.3_f64.powi(2) / (4.0 * 10e3);
+    assert!(
+        text.contains(&format!("{} uW dissipated", three(power * 1e6))),
+        "{text}"
+    );
+    assert!(
+        text.contains(&format!("{} K at", three(power / 1.5e-3))),
+        "{text}"
+    );
+}
+
+/// The pottery kiln's cold-junction NTC (10 kohm, B = 3435 K) under
+/// 10 kohm from its 2.5 V reference: at most V^2 / (4 Rf) = 156 uW and
+/// 0.104 K at 1.5 mW/K (by hand), near 25 degC of its 10 .. 45 degC
+/// ambient. It senses the junction, not the kiln: named at a cold
+/// junction's temperature, not at the measurand's (where it was 0 K at
+/// 1200 degC).
+#[test]
+fn a_cold_junction_sensor_heats_at_the_ambient() {
+    let list = checklist("specs/pottery_kiln.catena");
+    let text = review(&list, "self_heating", "cjs");
+    let power = 2.5_f64.powi(2) / (4.0 * 10e3);
+    assert!(
+        text.contains(&format!("{} uW dissipated", three(power * 1e6))),
+        "{text}"
+    );
+    assert!(
+        text.contains(&format!(
+            "{} K at a cold junction of",
+            three(power / 1.5e-3)
+        )),
+        "{text}"
+    );
+}
+
 /// The leads the spec states, and what a 3-wire connection sees of them.
 #[test]
 fn the_leads_to_measure_are_the_stated_ones() {

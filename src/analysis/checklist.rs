@@ -13,7 +13,9 @@ use serde::Serialize;
 
 use super::faults::{FaultCodes, FaultReport, Masking, Verdict};
 use super::ranges::Envelope;
-use crate::eval::{node, Calibration, Env, EvalError, Node, NodeId, Plan, Signal, SlotId};
+use crate::eval::{
+    node, Calibration, Env, EvalError, Node, NodeId, Plan, Senses, Signal, SlotId, MAX_NODES,
+};
 use crate::model::typed::CombineOp;
 use crate::model::Chain;
 use crate::physics::rtd::{self, Wiring};
@@ -413,40 +415,43 @@ fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
 }
 
 /// The self-heating of each element that states a dissipation constant,
-/// at the chosen excitation: its resistance with and without heating at
-/// the range ends (reference ambient), as a temperature through its
-/// slope there, and the power that makes it (P = ΔT·δ, IEC 60751's
+/// at the chosen excitation, the most it reaches across what it senses
+/// (the measurand range at the reference ambient, or a cold junction's
+/// ambient range), and the power that makes it (P = ΔT·δ, IEC 60751's
 /// self-heating coefficient read the other way).
 fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
     NodeId::all(plan.nodes.len())
         .filter_map(|n| {
-            let slot = plan.heating(n)?.dissipation;
+            let heating = plan.heating(n)?;
+            let slot = heating.dissipation;
             let delta = plan.nominal[slot.index()];
-            let ends = [plan.range.0, plan.range.1].map(|m| heating_at(plan, n, slot, m).map(|k| (m, k)));
+            let sensed = Sensed::of(chain, plan, heating.senses);
+            let ends: Vec<_> = crate::eval::grid((sensed.ends[0], sensed.ends[1]), HEATING_POINTS)
+                .into_iter()
+                .map(|t| heating_at(plan, n, slot, &sensed, t).map(|k| (t, k)))
+                .collect();
             let worst = ends
                 .iter()
                 .filter_map(|e| e.as_ref().ok())
                 .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()));
+            let name = &plan.names[n.index()];
             let Some(&(at, kelvin)) = worst else {
                 // Said, not dropped: the item still asks for the check.
                 let why = ends.iter().find_map(|e| e.as_ref().err()).map_or(String::new(), |e| format!(" ({e})"));
                 return Some(ReviewItem {
                     kind: ReviewKind::SelfHeating,
                     text: format!(
-                        "self-heating of `{}` could not be evaluated{why}; measure it at the chosen excitation in the installed mounting",
-                        plan.names[n.index()]
+                        "self-heating of `{name}` could not be evaluated{why}; measure it at the chosen excitation in the installed mounting"
                     ),
                 });
             };
             let power = rtd::self_heating_power_w(kelvin.abs(), delta);
-            let m_unit = chain.measurand_unit();
             Some(ReviewItem {
                 kind: ReviewKind::SelfHeating,
                 text: format!(
-                    "self-heating of `{}` at the chosen excitation: {} K at {} {m_unit} ({} dissipated, δ = {}/K); confirm the dissipation constant in the installed mounting and medium, or lower the excitation",
-                    plan.names[n.index()],
+                    "self-heating of `{name}` at the chosen excitation: {} K at {} ({} dissipated, δ = {}/K); confirm the dissipation constant in the installed mounting and medium, or lower the excitation",
                     trimmed(kelvin, 3),
-                    trimmed(from_si(at, &m_unit), 6),
+                    (sensed.at)(at),
                     with_prefix(power, "W", 3),
                     with_prefix(delta, "W", 3)
                 ),
@@ -455,29 +460,120 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
         .collect()
 }
 
-/// Element `n`'s self-heating in K at measurand `m`: its resistance as
-/// evaluated, less its resistance with no heating (a dissipation
-/// constant so large the rise underflows; the physics refuses an
-/// infinite one), over the slope of its unheated resistance.
-fn heating_at(plan: &Plan, n: NodeId, slot: SlotId, m: f64) -> Result<f64, EvalError> {
-    let resistance = |values: &[f64], m: f64| -> Result<f64, EvalError> {
-        let env = Env {
-            measurand: m,
-            ambient: plan.reference,
-            cold_junction: plan.reference,
-        };
-        let signals = plan.raw_signals(values, &env)?;
-        Ok(match signals[n.index()] {
-            Signal::Element(r) => r,
-            other => other.value_unit().0,
-        })
-    };
+/// Temperatures the self-heating is worked out at, ends included: a
+/// divider puts the most power into its element where the element's
+/// resistance matches the fixed one, which may lie inside the range.
+const HEATING_POINTS: usize = 21;
+
+/// What an element's temperature is, for its self-heating: the two ends
+/// it is read at, the condition at a temperature t there (SI), and how
+/// the text names t.
+struct Sensed {
+    ends: [f64; 2],
+    env: Box<dyn Fn(f64) -> Env>,
+    at: Box<dyn Fn(f64) -> String>,
+}
+
+impl Sensed {
+    fn of(chain: &Chain, plan: &Plan, senses: Senses) -> Sensed {
+        let (low, reference) = (plan.range.0, plan.reference);
+        match senses {
+            Senses::Measurand => {
+                let m_unit = chain.measurand_unit();
+                Sensed {
+                    ends: [plan.range.0, plan.range.1],
+                    env: Box::new(move |m| Env {
+                        measurand: m,
+                        ambient: reference,
+                        cold_junction: reference,
+                    }),
+                    at: Box::new(move |m| format!("{} {m_unit}", trimmed(from_si(m, &m_unit), 6))),
+                }
+            }
+            // A cold junction sits at the ambient, which the measurand
+            // does not move.
+            Senses::ColdJunction => Sensed {
+                ends: [chain.ambient.0, chain.ambient.1],
+                env: Box::new(move |t| Env {
+                    measurand: low,
+                    ambient: t,
+                    cold_junction: t,
+                }),
+                at: Box::new(|t| {
+                    format!("a cold junction of {} degC", trimmed(from_si(t, "degC"), 6))
+                }),
+            },
+        }
+    }
+}
+
+/// Element `n`'s self-heating in K at the temperature `t` it senses. The
+/// heat shows where the element is driven: in its own resistance on a
+/// current source, in the output of the divider or bridge it is an arm
+/// of. That signal with the element heated, less the same with no
+/// heating (a dissipation constant so large the rise underflows; the
+/// physics refuses an infinite one), over the signal's slope against the
+/// element's temperature, is the rise.
+fn heating_at(
+    plan: &Plan,
+    n: NodeId,
+    slot: SlotId,
+    sensed: &Sensed,
+    t: f64,
+) -> Result<f64, EvalError> {
     let mut cold = plan.nominal.clone();
     cold[slot.index()] = f64::MAX;
-    let h = ((plan.range.1 - plan.range.0) * 1e-4).max(1e-6);
-    let slope = (resistance(&cold, m + h)? - resistance(&cold, m - h)?) / (2.0 * h);
-    let excess = resistance(&plan.nominal, m)? - resistance(&cold, m)?;
-    Ok(if slope != 0.0 { excess / slope } else { 0.0 })
+    let signals = |values: &[f64], t: f64| plan.raw_signals(values, &(sensed.env)(t));
+    let (heated_run, cold_run) = (signals(&plan.nominal, t)?, signals(&cold, t)?);
+    let value = |run: &[Signal; MAX_NODES], c: NodeId| run[c.index()].value_unit().0;
+    let readers =
+        NodeId::all(plan.nodes.len()).filter(|c| plan.nodes[c.index()].inputs().contains(&n));
+    let Some(shown) = std::iter::once(n)
+        .chain(readers)
+        .find(|&c| value(&heated_run, c) != value(&cold_run, c))
+    else {
+        return Ok(0.0);
+    };
+    if shown != n && shares_its_temperature(plan, n, shown) {
+        return Err(plan.numeric(
+            n,
+            "another element beside it senses the same temperature, so its own rise cannot be told apart",
+        ));
+    }
+    let span = (sensed.ends[1] - sensed.ends[0]).abs();
+    let h = (span * 1e-4).max(1e-6);
+    let slope =
+        (value(&signals(&cold, t + h)?, shown) - value(&signals(&cold, t - h)?, shown)) / (2.0 * h);
+    if slope == 0.0 || !slope.is_finite() {
+        return Err(plan.numeric(n, "what drives it does not move with its temperature"));
+    }
+    Ok((value(&heated_run, shown) - value(&cold_run, shown)) / slope)
+}
+
+/// Whether stage `reader` reads another temperature element that senses
+/// what element `n` senses: its signal's slope is then theirs together.
+fn shares_its_temperature(plan: &Plan, n: NodeId, reader: NodeId) -> bool {
+    let senses = |m: NodeId| match &plan.nodes[m.index()] {
+        Node::Rtd(node::Rtd { senses, .. }) | Node::Thermistor(node::Thermistor { senses, .. }) => {
+            Some(*senses)
+        }
+        Node::Excitation(_)
+        | Node::Thermocouple(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Amplifier(_)
+        | Node::Filter(_)
+        | Node::Adc(_)
+        | Node::Convert(_) => None,
+    };
+    plan.nodes[reader.index()]
+        .inputs()
+        .into_iter()
+        .any(|m| m != n && senses(m).is_some() && senses(m) == senses(n))
 }
 
 /// The calibration points and the uncertainty of the reference each is

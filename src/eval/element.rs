@@ -2,6 +2,7 @@
 //! they sense plus any self-heating, and the self-heating fixed point
 //! wherever they sit (on a current source, in a divider or a bridge).
 
+use super::env::Senses;
 use super::lanes::{all_finite, all_positive, celsius_within, Column, LaneRun, Lost};
 use super::node::{self, Node, RtdCurve, ThermistorCurve};
 use super::plan::{Env, EvalError, NodeId, Plan, Signal, SlotId};
@@ -86,6 +87,9 @@ type ArmHeating = [Option<(NodeId, Heating)>; 4];
 pub struct Heating {
     pub dissipation: SlotId,
     pub curved: bool,
+    /// What the element's temperature is: the measurand, or a cold
+    /// junction (which the measurand does not move).
+    pub senses: Senses,
 }
 
 impl Plan {
@@ -96,17 +100,21 @@ impl Plan {
         match &self.nodes[n.index()] {
             Node::Rtd(node::Rtd {
                 dissipation: Some(d),
+                senses,
                 ..
             }) => Some(Heating {
                 dissipation: *d,
                 curved: false,
+                senses: *senses,
             }),
             Node::Thermistor(node::Thermistor {
                 dissipation: Some(d),
+                senses,
                 ..
             }) => Some(Heating {
                 dissipation: *d,
                 curved: true,
+                senses: *senses,
             }),
             Node::Rtd(node::Rtd {
                 dissipation: None, ..

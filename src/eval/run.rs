@@ -249,7 +249,8 @@ impl Plan {
         Ok(())
     }
 
-    pub(super) fn numeric(&self, node: NodeId, what: &str) -> EvalError {
+    /// A numerical failure at stage `node`: `what` went wrong there.
+    pub fn numeric(&self, node: NodeId, what: &str) -> EvalError {
         EvalError::Numeric {
             stage: self.names[node.index()].clone(),
             what: what.to_string(),
