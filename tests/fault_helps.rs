@@ -315,3 +315,49 @@ fn an_open_excitation_lead_asks_for_sensing_not_a_pull() {
         assert!(!help.contains("up-scale"), "{help}");
     }
 }
+
+/// A converter pin that opens with nothing to drive it, under a high
+/// alarm: R672's help names the pull to the converter's top rail, which
+/// reads up-scale, toward the trip. Written in, the open pin sits at 5 V,
+/// past the 2.5 V reference: the top code (65535), and R671 and R672
+/// clear. Under a low alarm the same help names the pull to 0 V.
+#[test]
+fn an_alarm_asks_for_the_pull_toward_its_trip() {
+    let path = root().join("tests/fixtures/faults/open_pin_high_alarm.catena");
+    let help_of = |fs: &[Value]| -> String {
+        fs.iter()
+            .find(|f| f["code"] == "R672")
+            .and_then(|f| f["help"].as_str())
+            .unwrap_or_else(|| panic!("no R672: {fs:?}"))
+            .to_string()
+    };
+    let help = help_of(&findings(&path, None));
+    assert!(
+        help.contains("up-scale (`pull 1 Mohm to 5 V` on `conv`)"),
+        "{help}"
+    );
+    let text = std::fs::read_to_string(&path).expect("the fixture");
+    let pulled = text.replace(
+        "        rails 0 V .. 5 V\n",
+        "        rails 0 V .. 5 V\n        pull 1 Mohm to 5 V\n",
+    );
+    assert_ne!(pulled, text);
+    let after = findings(&path, Some(&pulled));
+    assert!(!after.iter().any(is_fault_finding), "{after:?}");
+    let dir = common::temp_dir("helps", "pull-up");
+    std::fs::write(dir.join("kettle.catena"), &pulled).expect("written");
+    let run = catena(&dir, &["checklist", "kettle.catena"], None);
+    assert_eq!(run.status, 0, "{}", run.stderr);
+    assert!(
+        run.stdout
+            .contains("`conv` input pin open: code 65535, **detectable**"),
+        "{}",
+        run.stdout
+    );
+    let low = text.replace("alarm high 80 degC", "alarm low 5 degC");
+    let help = help_of(&findings(&path, Some(&low)));
+    assert!(
+        help.contains("down-scale (`pull 1 Mohm to 0 V` on `conv`)"),
+        "{help}"
+    );
+}

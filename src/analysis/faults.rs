@@ -186,6 +186,18 @@ pub struct FaultVerdict {
     /// out (a source's compliance, an amplifier's swing): an unchecked
     /// fault, as an unstated limit is an unchecked limit.
     pub unstated: bool,
+    /// For an open input nothing drives: the pull resistors that would
+    /// take its reading clear of the range, above it and below.
+    pub pulls: ScalePulls,
+}
+
+/// A pull resistor's spec text (`pull 1 Mohm to 5 V`) that takes an open
+/// input's reading above the range (`up`, up-scale) and one that takes it
+/// below (`down`), where one does.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct ScalePulls {
+    pub up: Option<String>,
+    pub down: Option<String>,
 }
 
 /// Every fault of a chain judged against its window.
@@ -402,6 +414,7 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         fix: None,
         fix_at: None,
         unstated: false,
+        pulls: ScalePulls::default(),
     };
     match code_range(plan, cases, window, &fault) {
         Ok(codes) => {
@@ -426,6 +439,9 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         verdict.fix = text;
         verdict.fix_at = at.map(|n| plan.names[n.index()].clone());
         verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
+        if fault.kind == FaultKind::InputOpen && verdict.codes.is_none() {
+            verdict.pulls = scale_pulls(plan, cases, window, &fault);
+        }
     }
     verdict
 }
@@ -797,6 +813,54 @@ fn pull_down_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault)
     } else {
         String::new()
     }
+}
+
+/// [`ScalePulls`] of an open input: 1 MΩ (as [`pull_down_fix`]) to 0 V
+/// and to the top of what the stage states its pins may take (a
+/// converter's `rails`, an amplifier's `input` range), each kept where
+/// every code it gives lies on one side of the valid window.
+fn scale_pulls(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> ScalePulls {
+    let top = match &plan.nodes[fault.node.index()] {
+        Node::Adc(_) => plan.stated[fault.node.index()].rails.map(|r| r.1),
+        Node::Amplifier(a) => a.input_range.map(|r| r.1),
+        Node::Excitation(_)
+        | Node::Rtd(_)
+        | Node::Thermocouple(_)
+        | Node::Thermistor(_)
+        | Node::IcVoltage(_)
+        | Node::IcCurrent(_)
+        | Node::StrainGauge(_)
+        | Node::Transducer(_)
+        | Node::Resistor(_)
+        | Node::Bridge(_)
+        | Node::Filter(_)
+        | Node::Convert(_) => None,
+    };
+    let mut pulls = ScalePulls::default();
+    let Ok(rises) = code_rises(plan) else {
+        return pulls;
+    };
+    for volts in std::iter::once(0.0).chain(top.filter(|&v| v > 0.0)) {
+        let trial = Fault {
+            pull: Some(Pull::Resistor { ohms: 1e6, volts }),
+            ..*fault
+        };
+        let codes_high = match code_range(plan, cases, window, &trial)
+            .ok()
+            .and_then(|c| c.threshold(window))
+        {
+            Some(Threshold::Above(_)) => true,
+            Some(Threshold::Below(_)) => false,
+            Some(Threshold::Outside(..)) | None => continue,
+        };
+        let text = Some(format!("`pull 1 Mohm to {} V`", trimmed(volts, 4)));
+        if codes_high == rises {
+            pulls.up = pulls.up.or(text);
+        } else {
+            pulls.down = pulls.down.or(text);
+        }
+    }
+    pulls
 }
 
 /// The amplifier or converter that reads node `i`.
@@ -1211,9 +1275,17 @@ fn masking_finding(
         None => String::new(),
     };
     // A bridge with no excitation gives its zero whatever pulls on it.
+    let pull = match alarm.side {
+        Side::High => &f.pulls.up,
+        Side::Low => &f.pulls.down,
+    };
+    let on = match pull {
+        Some(pull) => format!(" ({pull} on `{}`)", f.stage),
+        None => String::new(),
+    };
     let drive = match f.fault.kind {
         FaultKind::ExcitationLeadOpen | FaultKind::ExcitationReturnOpen => String::new(),
-        _ => format!(", or drive it {toward}, toward the trip"),
+        _ => format!(", or drive it {toward}{on}, toward the trip"),
     };
     finding.help(format!(
         "{fix}make the fault detectable and have the firmware trip on its threshold too (`catena checklist` gives it){drive}"

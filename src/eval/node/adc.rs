@@ -434,7 +434,13 @@ impl Adc {
             _ => (v, rs),
         };
         let pin = positive_pin(v, cm, self.differential);
-        let (v, rs) = with_pull(run.mode.pull_into(self.input, self.pull), v, pin, rs);
+        // Its own pin open, what the fault states drives it (the stage's
+        // own pull, or one a fix tries in its place).
+        let pull = match kind {
+            Some(FaultKind::InputOpen) => open,
+            _ => run.mode.pull_into(self.input, self.pull),
+        };
+        let (v, rs) = with_pull(pull, v, pin, rs);
         let vr = match kind {
             Some(FaultKind::InputOpen) => {
                 self.reference_voltage(run.plan, run.values, run.env, run.s)

@@ -153,17 +153,25 @@ impl Amplifier {
             s: &signals,
             ..*run
         };
-        self.eval(&rerun).map(Faulted::Signal)
+        // The fault's pull drives the open pin (the stage's own, or one a
+        // fix tries in its place).
+        self.eval_pulled(&rerun, pull).map(Faulted::Signal)
     }
 
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        self.eval_pulled(run, run.mode.pull_into(self.input, self.pull))
+    }
+
+    /// [`Amplifier::eval`] with `pull` on its input pin.
+    #[inline(always)]
+    fn eval_pulled(&self, run: &Run<'_>, pull: Option<Pull>) -> Result<Signal, EvalError> {
         let Signal::Voltage { v, cm, rs } = run.s[self.input.index()] else {
             return Err(run.numeric("no input voltage"));
         };
         // An amplifier's inputs are differential.
         let pin = positive_pin(v, cm, true);
-        let (v, rs) = with_pull(run.mode.pull_into(self.input, self.pull), v, pin, rs);
+        let (v, rs) = with_pull(pull, v, pin, rs);
         let shift = shift_of(run.plan, self.reference, run.values, run.env, run.s)
             .ok_or_else(|| run.numeric("no reference voltage"))?;
         let slot = |o: Option<SlotId>| run.or_zero(o);
