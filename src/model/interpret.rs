@@ -84,8 +84,37 @@ impl Reader<'_> {
         Box::new(
             Finding::new(Code::P306, self.cx.file, message)
                 .label(span, "not expected here")
-                .help(format!("write it as `{}`", usage(self.name, shape))),
+                .help(format!("write it as `{}`", self.usage_here(shape))),
         )
+    }
+
+    /// How the parameter is written, for a help line on this line: a
+    /// value stated at a point keeps the value as written (`2 mV/V`) and
+    /// takes the top of the chain's measurand range as its point; every
+    /// other form as [`usage`] gives it.
+    fn usage_here(&self, shape: Shape) -> String {
+        let Shape::At { value, .. } = shape else {
+            return usage(self.name, shape);
+        };
+        let is_at = |v: &Value| matches!(v, Value::Word(w) if w.name == "at");
+        let written: Vec<&Value> = self.values.iter().take_while(|v| !is_at(v)).collect();
+        let value = match (written.first(), written.last()) {
+            (Some(first), Some(last)) => self
+                .cx
+                .file
+                .slice(Span::new(first.span().start, last.span().end))
+                .to_string(),
+            _ => example(value, self.cx),
+        };
+        let point = match self.cx.range {
+            Some(m) => format!(
+                "{} {}",
+                crate::units::format::trimmed(crate::units::format::from_si(m.high, &m.unit), 6),
+                m.unit
+            ),
+            None => example(Expect::Measurand, self.cx),
+        };
+        format!("{} {value} at {point}", self.name)
     }
 
     fn missing(&self, what: &str, shape: Shape) -> Box<Finding> {
@@ -104,7 +133,7 @@ impl Reader<'_> {
                 Span::new(self.line.start, end),
                 format!("{what} is missing"),
             )
-            .help(format!("write it as `{}`", usage(self.name, shape))),
+            .help(format!("write it as `{}`", self.usage_here(shape))),
         )
     }
 
@@ -758,6 +787,10 @@ fn example_text(expect: Expect, measurand: Option<Dim>) -> String {
             } else {
                 n.example.into()
             }
+        }
+        // An output as a ratio of the excitation, or in volts.
+        Expect::OneOf([none, volts]) if *none == Dim::NONE && *volts == Dim::VOLTAGE => {
+            "2 mV/V".into()
         }
         Expect::OneOf(ds) => ds[0].name().example.to_string(),
         Expect::RatedOutput => "0.02 mV/V".into(),
