@@ -364,6 +364,40 @@ fn completion_resistors_are_independent_parts() {
     );
 }
 
+/// A strain gauge away from the reference temperature: its thermal output
+/// reads as strain, whichever side it is on, and its gauge factor
+/// drifts. One active gauge in a quarter bridge, 20 K above the 25 degC
+/// reference, through the exact inverse (by hand): ± 2 ue/K of thermal
+/// output reads ± 2 × 20 = 40 ue at every strain; a gauge factor drift of
+/// 100 ppm/K (a share of the gauge factor, as `± 1 %` after it is) makes
+/// GF (1 ± 0.002), read as GF, so ε reads ε (1 ± 0.002): 1 ue at 500 ue,
+/// 2 ue at 1000 ue. At the reference both are nothing.
+#[test]
+fn a_gauge_reads_its_temperature_as_strain() {
+    let v = budget(
+        "gauge_thermal_output.catena",
+        &["--points", "3", "--trials", "0"],
+    );
+    let points = v["points"].as_array().expect("points");
+    let at = |measurand: f64, ambient: f64| {
+        points
+            .iter()
+            .find(|p| f(&p["measurand"]) == measurand && f(&p["ambient"]) == ambient)
+            .unwrap_or_else(|| panic!("no point {measurand} at {ambient}: {v}"))
+    };
+    for (strain, drift) in [(0.0, 0.0), (500.0, 1.0), (1000.0, 2.0)] {
+        let warm = at(strain, 45.0);
+        let c = f(&source(warm, "gauge.thermal_output")["contribution"]);
+        assert!((c - 40.0).abs() < 1e-6 * 40.0, "{strain}: {c}");
+        let d = f(&source(warm, "gauge.gauge_factor_drift")["contribution"]);
+        assert!((d - drift).abs() < 1e-4, "{strain}: {d}");
+        let reference = at(strain, 25.0);
+        for id in ["gauge.thermal_output", "gauge.gauge_factor_drift"] {
+            assert_eq!(f(&source(reference, id)["contribution"]), 0.0, "{id}");
+        }
+    }
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

@@ -452,6 +452,9 @@ impl Reader<'_> {
                 ));
             };
             let (per_kelvin, relative) = per_kelvin(&d, dim, self.cx)?;
+            // On a plain number (a gauge factor), `ppm/K` or `%/K` is a
+            // share of the value, as `± 1 %` after it is.
+            let relative = relative || (dim == Dim::NONE && is_relative_per_kelvin(&d));
             m.drift = Some(Drift {
                 per_kelvin,
                 relative,
@@ -980,6 +983,13 @@ fn unit_error(e: UnitError, span: Span, cx: &Context<'_>) -> Box<Finding> {
 fn per_kelvin(q: &QuantityLit, of: Dim, cx: &Context<'_>) -> Checked<(f64, bool)> {
     let (v, dim) = to_si(q, Expect::PerKelvin(of), false, cx)?;
     Ok((v, dim == Dim::NONE / Dim::TEMPERATURE && of != Dim::NONE))
+}
+
+/// `ppm/K`, `%/K` or `ppb/K`: a share per kelvin.
+fn is_relative_per_kelvin(q: &QuantityLit) -> bool {
+    q.unit
+        .as_ref()
+        .is_some_and(|u| ["%/", "ppm/", "ppb/"].iter().any(|p| u.text.starts_with(p)))
 }
 
 fn is_relative_unit(q: &QuantityLit) -> bool {

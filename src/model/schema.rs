@@ -317,6 +317,8 @@ pub mod param {
     pub const SAMPLING_CAPACITANCE: &str = "sampling_capacitance";
     pub const SLOPE: &str = "slope";
     pub const SPAN_DRIFT: &str = "span_drift";
+    /// A strain gauge's apparent strain per kelvin of its temperature.
+    pub const THERMAL_OUTPUT: &str = "thermal_output";
     /// A voltage source's model line, which states its value.
     pub const VOLTAGE: &str = "voltage";
     pub const TOLERANCE: &str = "tolerance";
@@ -523,9 +525,13 @@ static MODELS: &[ModelSpec] = &[
         model_shape: Shape::Flag,
         params: &[
             p(param::R, measure(OHM)).required().positive(),
-            p(param::GAUGE_FACTOR, toleranced(Expect::Ratio))
+            p(param::GAUGE_FACTOR, measure(Expect::Ratio))
                 .required()
                 .positive(),
+            p(
+                param::THERMAL_OUTPUT,
+                Shape::Limit(Expect::PerKelvin(Dim::NONE)),
+            ),
             p("side", Shape::Words(&["tension", "compression"])),
             TIME_CONSTANT,
             COST,
@@ -1106,6 +1112,7 @@ fn read_strain_gauge(r: &Reader<'_>) -> Option<StageModel> {
     Some(StageModel::StrainGauge(StrainGauge {
         r: r.measure(param::R)?,
         gauge_factor: r.measure(param::GAUGE_FACTOR)?,
+        thermal_output: r.limit(param::THERMAL_OUTPUT),
         side: side.unwrap_or(GaugeSide::Tension),
         time_constant: r.value("time_constant"),
     }))

@@ -186,7 +186,11 @@ impl GaugeSide {
 #[derive(Clone, Debug, PartialEq)]
 pub struct StrainGauge {
     pub r: Measure,
+    /// With its temperature coefficient as its `drift`.
     pub gauge_factor: Measure,
+    /// The apparent strain per kelvin of the gauge's temperature from the
+    /// reference: a bound around zero.
+    pub thermal_output: Option<Tolerance>,
     /// In tension when not stated.
     pub side: GaugeSide,
     pub time_constant: Option<f64>,

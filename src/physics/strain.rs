@@ -46,6 +46,18 @@ pub fn gauge_resistance(r0: f64, gauge_factor: f64, strain: f64) -> f64 {
     r0 * (1.0 + gauge_factor * strain)
 }
 
+/// The apparent strain (m/m) of a gauge `dt` K from the temperature its
+/// thermal output is stated about, `per_kelvin` its slope: what a
+/// temperature change alone reads as, from the mismatch of the grid's
+/// and the specimen's expansion and the grid's own resistance
+/// coefficient. Gauge makers state it as a curve against temperature for
+/// a gauge on its matched material; a slope bound about the reference
+/// is its linear reading (common practice for an error budget, stated
+/// here from memory, not from a standard).
+pub fn thermal_output_strain(per_kelvin: f64, dt: f64) -> f64 {
+    per_kelvin * dt
+}
+
 /// Output in V of a divider: `v` V across `r_high` (top) in series with
 /// `r_low` (bottom), measured across `r_low`.
 pub fn divider_output(v: f64, r_low: f64, r_high: f64) -> Res<f64> {

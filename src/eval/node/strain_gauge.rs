@@ -1,9 +1,12 @@
-//! A strain gauge: ΔR/R = GF · ε, on the tension or compression side.
+//! A strain gauge: ΔR/R = GF · ε, on the tension or compression side,
+//! with its gauge factor's temperature coefficient and its thermal output
+//! (the apparent strain of its temperature) at the ambient, which the
+//! gauge on its structure shares.
 
 use super::{Cx, Lost, Run};
 use crate::eval::fault::{FaultKind, Faulted};
 use crate::eval::lanes::{Column, LaneRun};
-use crate::eval::plan::{EvalError, NodeId, Signal, SlotId, SourceKind};
+use crate::eval::plan::{DriftSlot, EvalError, NodeId, Signal, SlotId, SourceKind};
 use crate::eval::run::LANES;
 use crate::model::schema;
 use crate::model::typed::{self, GaugeSide};
@@ -14,6 +17,9 @@ use crate::units::Dim;
 pub struct StrainGauge {
     pub r: SlotId,
     pub gauge_factor: SlotId,
+    pub gauge_factor_drift: Option<DriftSlot>,
+    /// Apparent strain per kelvin, about zero.
+    pub thermal_output: Option<SlotId>,
     /// +1 in tension, −1 on the compression side.
     pub sign: f64,
     pub input: Option<NodeId>,
@@ -29,6 +35,11 @@ pub(super) fn lower(m: &typed::StrainGauge, cx: &mut Cx<'_>) -> Result<StrainGau
         SourceKind::Tolerance,
         &m.gauge_factor,
     );
+    let gauge_factor_drift = cx.drift_of(schema::param::GAUGE_FACTOR, &m.gauge_factor);
+    let thermal_output = m
+        .thermal_output
+        .as_ref()
+        .map(|t| cx.limit(schema::param::THERMAL_OUTPUT, SourceKind::Drift, t));
     // A gauge on the compression side sees the strain reversed.
     let sign = match m.side {
         GaugeSide::Tension => 1.0,
@@ -37,6 +48,8 @@ pub(super) fn lower(m: &typed::StrainGauge, cx: &mut Cx<'_>) -> Result<StrainGau
     Ok(StrainGauge {
         r,
         gauge_factor,
+        gauge_factor_drift,
+        thermal_output,
         sign,
         input: cx.inputs.input,
     })
@@ -53,10 +66,17 @@ impl StrainGauge {
 
     #[inline(always)]
     pub(super) fn eval(&self, run: &Run<'_>) -> Result<Signal, EvalError> {
+        let dt = run.env.ambient - run.plan.reference;
+        let gauge_factor = run.drifted(
+            run.values[self.gauge_factor.index()],
+            self.gauge_factor_drift,
+        );
+        // The apparent strain is the gauge's own, whichever side it is on.
+        let apparent = strain::thermal_output_strain(run.or_zero(self.thermal_output), dt);
         let r = strain::gauge_resistance(
             run.values[self.r.index()],
-            run.values[self.gauge_factor.index()],
-            self.sign * run.env.measurand,
+            gauge_factor,
+            self.sign * run.env.measurand + apparent,
         );
         Ok(run.element(r, self.input))
     }
@@ -64,11 +84,15 @@ impl StrainGauge {
     /// [`StrainGauge::eval`] in every lane of a batch.
     #[inline(always)]
     pub(super) fn eval_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
-        let (r0, gauge_factor) = (run.slot(self.r), run.slot(self.gauge_factor));
+        let dt = run.env.ambient - run.plan.reference;
+        let r0 = run.slot(self.r);
+        let gauge_factor = run.drifted(run.slot(self.gauge_factor), self.gauge_factor_drift);
+        let thermal_output = run.or_zero(self.thermal_output);
         let strain = self.sign * run.env.measurand;
         let mut r = [0.0; LANES];
         for k in 0..LANES {
-            r[k] = strain::gauge_resistance(r0[k], gauge_factor[k], strain);
+            let apparent = strain::thermal_output_strain(thermal_output[k], dt);
+            r[k] = strain::gauge_resistance(r0[k], gauge_factor[k], strain + apparent);
         }
         run.element_into(&r, self.input, out);
         Ok(())
@@ -89,7 +113,8 @@ chain beam "q" {
     sensor gauge {
         strain_gauge
         r 350 ohm ± 0.3 %
-        gauge_factor 2.0 ± 1 %
+        gauge_factor 2.0 ± 1 % drift 90 ppm/K
+        thermal_output ± 1.8 ue/K
         side compression
     }
     bridge completion {
