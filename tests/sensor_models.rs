@@ -398,6 +398,38 @@ fn a_gauge_reads_its_temperature_as_strain() {
     }
 }
 
+/// Gauges of one chain share their gauge factor drift (the grid alloy's):
+/// two active gauges of a half bridge, 100 ppm/K each, 20 K above the
+/// reference, read ε (1 ± 0.002) together: one source of 2 ue at 1000 ue
+/// (by hand), and GUM's standard uncertainty its full 2/√3 ue (with
+/// quantization, 0.034 ue, in quadrature), where two independent halves
+/// would give 2/√6. Each gauge's own part is nothing.
+#[test]
+fn gauges_share_their_gauge_factor_drift() {
+    let v = budget(
+        "gauges_share_their_drift.catena",
+        &["--points", "3", "--trials", "0"],
+    );
+    let p = v["points"]
+        .as_array()
+        .expect("points")
+        .iter()
+        .find(|p| f(&p["measurand"]) == 1000.0 && f(&p["ambient"]) == 45.0)
+        .expect("the warm top point");
+    let shared = source(p, "shared:gauge_factor_drift");
+    assert!((f(&shared["contribution"]) - 2.0).abs() < 1e-4, "{shared}");
+    assert_eq!(shared["kind"], "drift");
+    for id in [
+        "front_face.gauge_factor_drift",
+        "back_face.gauge_factor_drift",
+    ] {
+        assert_eq!(f(&source(p, id)["contribution"]), 0.0, "{id}");
+    }
+    let quantization = f(&source(p, "quantization")["standard_uncertainty"]);
+    let want = ((2.0 / 3f64.sqrt()).powi(2) + quantization.powi(2)).sqrt();
+    assert!((f(&p["gum_standard"]) - want).abs() < 1e-4, "{p}");
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

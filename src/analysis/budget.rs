@@ -328,7 +328,7 @@ impl Perturbations {
             };
             sources.push(Perturbation {
                 id: group.id.clone(),
-                kind: "tracking",
+                kind: group.kind,
                 normal: group.normal,
                 limits: [at(&slots, side(-1.0))?, at(&slots, side(1.0))?],
                 slots,

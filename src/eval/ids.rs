@@ -63,6 +63,9 @@ pub enum Named {
     /// A source the budget computes from the whole chain rather than from
     /// a slot (its noise, quantization, the conversion's own error).
     Whole(&'static str),
+    /// A part several stages' values share by their physics, with no
+    /// `track` line: the gauge factor drift of a chain's strain gauges.
+    Shared(&'static str),
 }
 
 impl SourceName {
@@ -92,6 +95,16 @@ impl SourceName {
         }
     }
 
+    /// A part several stages share ([`Named::Shared`]); the colon keeps
+    /// it apart from any parameter's name, and no group's name is written
+    /// before it.
+    pub fn shared(what: &'static str) -> Self {
+        SourceName {
+            text: format!("shared:{what}"),
+            of: Named::Shared(what),
+        }
+    }
+
     pub fn whole(what: &'static str) -> Self {
         SourceName {
             text: what.to_string(),
@@ -107,7 +120,7 @@ impl SourceName {
     pub fn stage_param(&self) -> Option<(&str, &str)> {
         match &self.of {
             Named::Param { stage, param } => Some((stage, param)),
-            Named::Track { .. } | Named::Whole(_) => None,
+            Named::Track { .. } | Named::Whole(_) | Named::Shared(_) => None,
         }
     }
 

@@ -15,7 +15,7 @@
 //! drift.
 
 use super::node::{self, Node};
-use super::plan::{DriftSlot, NodeId, Slot, SlotId, SourceName};
+use super::plan::{DriftSlot, NodeId, Slot, SlotId, SourceKind, SourceName};
 use crate::model::{Chain, TrackGroup};
 
 /// One group's common component: the slots it moves and how much of each
@@ -29,6 +29,9 @@ pub struct Group {
     /// Drawn as a 3σ normal rather than rectangular (every member's
     /// limit is `normal`).
     pub normal: bool,
+    /// The budget's kind for it: `tracking` for a `track` line's, the
+    /// members' own kind for a part their physics shares.
+    pub kind: &'static str,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -90,7 +93,30 @@ pub fn lower_groups(
         out.extend(value_group(group, &members, slots));
         out.extend(drift_group(group, &members, slots));
     }
+    out.extend(shared_gauge_factor_drift(nodes, slots));
     out
+}
+
+/// The gauge factor drifts of a chain's strain gauges as one part common
+/// to all: the temperature coefficient is the grid alloy's, which gauges
+/// of one type share, and it scales every gauge's strain alike, so it
+/// cancels in no bridge. None with fewer than two gauges stating one.
+fn shared_gauge_factor_drift(nodes: &[Node], slots: &[Slot]) -> Option<Group> {
+    let parts = nodes
+        .iter()
+        .filter_map(|n| {
+            let Node::StrainGauge(gauge) = n else {
+                return None;
+            };
+            let d = gauge.gauge_factor_drift?;
+            part(d.slot, half_width(&slots[d.slot.index()]).0, 0.0)
+        })
+        .collect();
+    let shared = make(SourceName::shared("gauge_factor_drift"), parts, slots)?;
+    Some(Group {
+        kind: SourceKind::Drift.name(),
+        ..shared
+    })
 }
 
 fn value_group(
@@ -145,7 +171,12 @@ fn make(id: SourceName, parts: Vec<GroupPart>, slots: &[Slot]) -> Option<Group> 
         return None;
     }
     let normal = parts.iter().all(|p| slots[p.slot.index()].normal);
-    Some(Group { id, parts, normal })
+    Some(Group {
+        id,
+        parts,
+        normal,
+        kind: "tracking",
+    })
 }
 
 /// The fraction of `slot`'s half-width that is its own (independent)
