@@ -553,23 +553,7 @@ fn heating_at(
 /// Whether stage `reader` reads another temperature element that senses
 /// what element `n` senses: its signal's slope is then theirs together.
 fn shares_its_temperature(plan: &Plan, n: NodeId, reader: NodeId) -> bool {
-    let senses = |m: NodeId| match &plan.nodes[m.index()] {
-        Node::Rtd(node::Rtd { senses, .. }) | Node::Thermistor(node::Thermistor { senses, .. }) => {
-            Some(*senses)
-        }
-        Node::Excitation(_)
-        | Node::Thermocouple(_)
-        | Node::IcVoltage(_)
-        | Node::IcCurrent(_)
-        | Node::StrainGauge(_)
-        | Node::Transducer(_)
-        | Node::Resistor(_)
-        | Node::Bridge(_)
-        | Node::Amplifier(_)
-        | Node::Filter(_)
-        | Node::Adc(_)
-        | Node::Convert(_) => None,
-    };
+    let senses = |m: NodeId| plan.nodes[m.index()].senses();
     plan.nodes[reader.index()]
         .inputs()
         .into_iter()

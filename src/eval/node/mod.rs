@@ -143,20 +143,40 @@ impl Node {
     /// condition's measurand, but that model's code comes from the stages
     /// before its converter, which its input already answers for.
     pub(super) fn reads_measurand(&self) -> bool {
-        let senses = |s: Senses| s == Senses::Measurand;
         match self {
-            Node::Rtd(n) => senses(n.senses),
-            Node::Thermistor(n) => senses(n.senses),
-            Node::IcVoltage(n) => senses(n.senses),
-            Node::IcCurrent(n) => senses(n.senses),
-            Node::Convert(n) => senses(n.conversion.variable),
+            Node::Convert(n) => n.conversion.variable == Senses::Measurand,
             Node::Thermocouple(_) | Node::StrainGauge(_) | Node::Transducer(_) => true,
-            Node::Excitation(_)
+            Node::Rtd(_)
+            | Node::Thermistor(_)
+            | Node::IcVoltage(_)
+            | Node::IcCurrent(_)
+            | Node::Excitation(_)
             | Node::Resistor(_)
             | Node::Bridge(_)
             | Node::Amplifier(_)
             | Node::Filter(_)
-            | Node::Adc(_) => false,
+            | Node::Adc(_) => self.senses() == Some(Senses::Measurand),
+        }
+    }
+
+    /// The temperature a temperature sensor's own signal follows (the
+    /// measurand, or a cold junction); None for any other stage.
+    pub fn senses(&self) -> Option<Senses> {
+        match self {
+            Node::Rtd(n) => Some(n.senses),
+            Node::Thermistor(n) => Some(n.senses),
+            Node::IcVoltage(n) => Some(n.senses),
+            Node::IcCurrent(n) => Some(n.senses),
+            Node::Excitation(_)
+            | Node::Thermocouple(_)
+            | Node::StrainGauge(_)
+            | Node::Transducer(_)
+            | Node::Resistor(_)
+            | Node::Bridge(_)
+            | Node::Amplifier(_)
+            | Node::Filter(_)
+            | Node::Adc(_)
+            | Node::Convert(_) => None,
         }
     }
 
