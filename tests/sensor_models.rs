@@ -430,6 +430,32 @@ fn gauges_share_their_gauge_factor_drift() {
     assert!((f(&p["gum_standard"]) - want).abs() < 1e-4, "{p}");
 }
 
+/// Gauges of one lot in a tracking group: their thermal outputs (± 2 ue/K
+/// each) hold within the group's 0.4 ue/K of each other, so each is a
+/// common part of 2 − 0.4/2 = 1.8 ue/K and an own part of 0.2 ue/K
+/// (the group model of the language reference). Both active in opposite
+/// arms of a half bridge, 20 K above the reference, the reading is the
+/// mean of their apparent strains (by hand): the common part 1.8 × 20 =
+/// 36 ue, each own part 0.2 × 20 / 2 = 2 ue.
+#[test]
+fn gauges_of_one_lot_track_their_thermal_output() {
+    let v = budget(
+        "gauges_track_their_thermal_output.catena",
+        &["--points", "3", "--trials", "0"],
+    );
+    for p in v["points"].as_array().expect("points") {
+        if f(&p["ambient"]) != 45.0 {
+            continue;
+        }
+        let common = f(&source(p, "track:lot:drift")["contribution"]);
+        assert!((common - 36.0).abs() < 1e-4, "{common}");
+        for id in ["front_face.thermal_output", "back_face.thermal_output"] {
+            let own = f(&source(p, id)["contribution"]);
+            assert!((own - 2.0).abs() < 1e-4, "{id}: {own}");
+        }
+    }
+}
+
 /// A class's range of validity is judged at the true temperature, not at
 /// the one the class tolerance shifts the reading to. IEC 60584-1:2013
 /// gives type S class 1 over 0 … 1600 °C (±1 K up to 1100 °C), so a kiln

@@ -61,12 +61,23 @@ fn tracked_slots(node: &Node) -> Vec<(SlotId, Option<DriftSlot>)> {
             .into_iter()
             .chain(others.iter().copied())
             .collect(),
+        // A gauge's thermal output is its drift: apparent strain per
+        // kelvin, which the tracking drift bounds as written (as a
+        // relative drift's is), not as a share of the resistance.
+        Node::StrainGauge(node::StrainGauge {
+            r, thermal_output, ..
+        }) => vec![(
+            *r,
+            thermal_output.map(|slot| DriftSlot {
+                slot,
+                relative: true,
+            }),
+        )],
         Node::Rtd(_)
         | Node::Thermocouple(_)
         | Node::Thermistor(_)
         | Node::IcVoltage(_)
         | Node::IcCurrent(_)
-        | Node::StrainGauge(_)
         | Node::Transducer(_)
         | Node::Amplifier(_)
         | Node::Filter(_)

@@ -805,12 +805,12 @@ pub fn tracked_line(model: &StageModel) -> Option<(&'static str, &Measure)> {
             },
             &e.value,
         )),
+        StageModel::StrainGauge(g) => Some((param::R, &g.r)),
         StageModel::Rtd(_)
         | StageModel::Thermocouple(_)
         | StageModel::Thermistor(_)
         | StageModel::IcVoltage(_)
         | StageModel::IcCurrent(_)
-        | StageModel::StrainGauge(_)
         | StageModel::Transducer(_)
         | StageModel::Amplifier(_)
         | StageModel::Filter(_)

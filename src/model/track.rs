@@ -21,6 +21,9 @@ pub enum Tracked {
     Resistance,
     Current,
     Voltage,
+    /// A strain gauge: its resistance, and its thermal output as its
+    /// drift.
+    Gauge,
 }
 
 impl Tracked {
@@ -29,6 +32,7 @@ impl Tracked {
             Tracked::Resistance => "a resistance",
             Tracked::Current => "a current",
             Tracked::Voltage => "a voltage",
+            Tracked::Gauge => "a strain gauge",
         }
     }
 }
@@ -44,12 +48,12 @@ pub fn tracked_value(stage: &Stage) -> Option<(Tracked, &'static str, &Measure)>
             Source::Current { .. } => Tracked::Current,
             Source::Voltage { .. } => Tracked::Voltage,
         },
+        StageModel::StrainGauge(_) => Tracked::Gauge,
         StageModel::Rtd(_)
         | StageModel::Thermocouple(_)
         | StageModel::Thermistor(_)
         | StageModel::IcVoltage(_)
         | StageModel::IcCurrent(_)
-        | StageModel::StrainGauge(_)
         | StageModel::Transducer(_)
         | StageModel::Amplifier(_)
         | StageModel::Filter(_)
@@ -99,6 +103,17 @@ fn relative_tolerance(m: &Measure) -> Option<f64> {
     } else {
         None
     }
+}
+
+/// What a member's tracking drift is held against, per kelvin: a strain
+/// gauge's thermal output (apparent strain), else its value's drift as a
+/// fraction of its nominal.
+fn tracked_drift(stage: &Stage, m: &Measure) -> Option<f64> {
+    let Some(StageModel::StrainGauge(g)) = &stage.typed else {
+        return relative_drift(m);
+    };
+    let t = g.thermal_output.as_ref()?;
+    Some(t.plus.max(t.minus))
 }
 
 /// A measure's drift as a fraction of its nominal per kelvin.
@@ -261,7 +276,7 @@ fn untrackable(file: &Arc<SourceFile>, member: &TrackMember, stage: &Stage) -> O
         ),
         None => (
             format!("{} {} stage", super::article(stage.kind.keyword()), stage.kind.keyword()),
-            "tracking groups hold fixed resistors (`sensor ... { resistor ... }`), bridges' completion resistors and excitations".to_string(),
+            "tracking groups hold fixed resistors (`sensor ... { resistor ... }`), bridges' completion resistors, excitations and strain gauges".to_string(),
         ),
     };
     Some(
@@ -327,7 +342,7 @@ fn check_widths(
             continue;
         };
         let own = relative_tolerance(measure).unwrap_or(0.0);
-        let drift = relative_drift(measure);
+        let drift = tracked_drift(&stages[m.stage], measure);
         let member = &stages[m.stage].name;
         let wider = |what: &str, group: String, own: String, at: Span, param: String| {
             Finding::new(
@@ -352,13 +367,20 @@ fn check_widths(
             ok = false;
         }
         if let (Some((t, at)), Some(d)) = (tracking, drift) {
+            // A gauge's drift is its thermal output, an apparent strain.
+            let (unit, what) = match tracked_value(&stages[m.stage]) {
+                Some((Tracked::Gauge, ..)) => {
+                    ("ue/K", format!("its `{}`", schema::param::THERMAL_OUTPUT))
+                }
+                _ => ("ppm/K", format!("its `{name}` drift")),
+            };
             if t > d * (1.0 + 1e-12) {
                 findings.push(wider(
                     "tracking drift",
-                    format!("{} ppm/K", trim(t * 1e6)),
-                    format!("{} ppm/K", trim(d * 1e6)),
+                    format!("{} {unit}", trim(t * 1e6)),
+                    format!("{} {unit}", trim(d * 1e6)),
                     at,
-                    format!("its `{name}` drift"),
+                    what,
                 ));
                 ok = false;
             }
