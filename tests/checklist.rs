@@ -74,15 +74,7 @@ fn self_heating_is_i_squared_r_over_the_dissipation_constant() {
 fn a_divider_heats_its_element_most_where_the_two_match() {
     let list = checklist("specs/battery_pack.catena");
     let text = review(&list, "self_heating", "ntc");
-    let power = 3.3_f64.powi(2) / (4.0 * 10e3);
-    assert!(
-        text.contains(&format!("{} uW dissipated", three(power * 1e6))),
-        "{text}"
-    );
-    assert!(
-        text.contains(&format!("{} K at", three(power / 1.5e-3))),
-        "{text}"
-    );
+    assert_heats(text, 3.3_f64.powi(2) / (4.0 * 10e3), 1.5e-3, "K at");
 }
 
 /// The pottery kiln's cold-junction NTC (10 kohm, B = 3435 K) under
@@ -96,15 +88,18 @@ fn a_cold_junction_sensor_heats_at_the_ambient() {
     let list = checklist("specs/pottery_kiln.catena");
     let text = review(&list, "self_heating", "cjs");
     let power = 2.5_f64.powi(2) / (4.0 * 10e3);
+    assert_heats(text, power, 1.5e-3, "K at a cold junction of");
+}
+
+/// `text` names the power and the rise (power / delta, followed by
+/// `then`) to the checklist's three digits.
+fn assert_heats(text: &str, power: f64, delta: f64, then: &str) {
     assert!(
         text.contains(&format!("{} uW dissipated", three(power * 1e6))),
         "{text}"
     );
     assert!(
-        text.contains(&format!(
-            "{} K at a cold junction of",
-            three(power / 1.5e-3)
-        )),
+        text.contains(&format!("{} {then}", three(power / delta))),
         "{text}"
     );
 }

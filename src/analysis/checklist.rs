@@ -451,7 +451,7 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
                 text: format!(
                     "self-heating of `{name}` at the chosen excitation: {} K at {} ({} dissipated, δ = {}/K); confirm the dissipation constant in the installed mounting and medium, or lower the excitation",
                     trimmed(kelvin, 3),
-                    (sensed.at)(at),
+                    sensed.at(at),
                     with_prefix(power, "W", 3),
                     with_prefix(delta, "W", 3)
                 ),
@@ -465,44 +465,56 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
 /// resistance matches the fixed one, which may lie inside the range.
 const HEATING_POINTS: usize = 21;
 
-/// What an element's temperature is, for its self-heating: the two ends
-/// it is read at, the condition at a temperature t there (SI), and how
-/// the text names t.
-struct Sensed {
+/// What an element's temperature is, for its self-heating: the measurand
+/// across its range (at the reference ambient), or a cold junction across
+/// the ambient range, which the measurand does not move. The rest of the
+/// chain stays at the reference, so only the element's own temperature
+/// moves what drives it.
+struct Sensed<'a> {
+    plan: &'a Plan,
+    senses: Senses,
     ends: [f64; 2],
-    env: Box<dyn Fn(f64) -> Env>,
-    at: Box<dyn Fn(f64) -> String>,
+    /// The unit the text names a temperature in.
+    unit: String,
 }
 
-impl Sensed {
-    fn of(chain: &Chain, plan: &Plan, senses: Senses) -> Sensed {
-        let (low, reference) = (plan.range.0, plan.reference);
-        match senses {
-            Senses::Measurand => {
-                let m_unit = chain.measurand_unit();
-                Sensed {
-                    ends: [plan.range.0, plan.range.1],
-                    env: Box::new(move |m| Env {
-                        measurand: m,
-                        ambient: reference,
-                        cold_junction: reference,
-                    }),
-                    at: Box::new(move |m| format!("{} {m_unit}", trimmed(from_si(m, &m_unit), 6))),
-                }
-            }
-            // A cold junction sits at the ambient, which the measurand
-            // does not move.
-            Senses::ColdJunction => Sensed {
-                ends: [chain.ambient.0, chain.ambient.1],
-                env: Box::new(move |t| Env {
-                    measurand: low,
-                    ambient: t,
-                    cold_junction: t,
-                }),
-                at: Box::new(|t| {
-                    format!("a cold junction of {} degC", trimmed(from_si(t, "degC"), 6))
-                }),
+impl<'a> Sensed<'a> {
+    fn of(chain: &Chain, plan: &'a Plan, senses: Senses) -> Sensed<'a> {
+        let (ends, unit) = match senses {
+            Senses::Measurand => ([plan.range.0, plan.range.1], chain.measurand_unit()),
+            Senses::ColdJunction => ([chain.ambient.0, chain.ambient.1], "degC".to_string()),
+        };
+        Sensed {
+            plan,
+            senses,
+            ends,
+            unit,
+        }
+    }
+
+    /// The condition with the element at `t` (SI).
+    fn env(&self, t: f64) -> Env {
+        let reference = self.plan.reference;
+        match self.senses {
+            Senses::Measurand => Env {
+                measurand: t,
+                ambient: reference,
+                cold_junction: reference,
             },
+            Senses::ColdJunction => Env {
+                measurand: self.plan.range.0,
+                ambient: reference,
+                cold_junction: t,
+            },
+        }
+    }
+
+    /// `t` as the text names it.
+    fn at(&self, t: f64) -> String {
+        let value = format!("{} {}", trimmed(from_si(t, &self.unit), 6), self.unit);
+        match self.senses {
+            Senses::Measurand => value,
+            Senses::ColdJunction => format!("a cold junction of {value}"),
         }
     }
 }
@@ -523,7 +535,7 @@ fn heating_at(
 ) -> Result<f64, EvalError> {
     let mut cold = plan.nominal.clone();
     cold[slot.index()] = f64::MAX;
-    let signals = |values: &[f64], t: f64| plan.raw_signals(values, &(sensed.env)(t));
+    let signals = |values: &[f64], t: f64| plan.raw_signals(values, &sensed.env(t));
     let (heated_run, cold_run) = (signals(&plan.nominal, t)?, signals(&cold, t)?);
     let value = |run: &[Signal; MAX_NODES], c: NodeId| run[c.index()].value_unit().0;
     let readers =

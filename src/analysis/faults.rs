@@ -191,13 +191,30 @@ pub struct FaultVerdict {
     pub pulls: ScalePulls,
 }
 
-/// A pull resistor's spec text (`pull 1 Mohm to 5 V`) that takes an open
+/// The voltage a pull resistor of [`PULL_OHMS`] goes to that takes an open
 /// input's reading above the range (`up`, up-scale) and one that takes it
 /// below (`down`), where one does.
-#[derive(Clone, Debug, Default, PartialEq)]
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct ScalePulls {
-    pub up: Option<String>,
-    pub down: Option<String>,
+    pub up: Option<f64>,
+    pub down: Option<f64>,
+}
+
+/// The pull resistor fixes suggest: 1 MΩ is common practice, far below a
+/// pin's leakage resistance, far above a sensor's source resistance (its
+/// loading is in the budget).
+const PULL_OHMS: f64 = 1e6;
+
+impl ScalePulls {
+    /// Whether a pull to 0 V takes the reading out of the range.
+    fn grounds(self) -> bool {
+        self.up == Some(0.0) || self.down == Some(0.0)
+    }
+}
+
+/// How a pull to `volts` is written in a spec.
+fn pull_text(volts: f64) -> String {
+    format!("`pull 1 Mohm to {} V`", trimmed(volts, 4))
 }
 
 /// Every fault of a chain judged against its window.
@@ -435,13 +452,13 @@ fn judge(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: Fault) -> Fault
         verdict.verdict = Verdict::Tolerated;
     }
     if verdict.verdict.hidden() {
-        let (text, at) = fix(plan, cases, window, &fault, verdict.codes);
-        verdict.fix = text;
-        verdict.fix_at = at.map(|n| plan.names[n.index()].clone());
-        verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
         if fault.kind == FaultKind::InputOpen && verdict.codes.is_none() {
             verdict.pulls = scale_pulls(plan, cases, window, &fault);
         }
+        let (text, at) = fix(plan, cases, window, &fault, (verdict.codes, verdict.pulls));
+        verdict.fix = text;
+        verdict.fix_at = at.map(|n| plan.names[n.index()].clone());
+        verdict.unstated = verdict.verdict == Verdict::Undetermined && unstated_limit(plan, &fault);
     }
     verdict
 }
@@ -511,12 +528,13 @@ fn outweighs_bias(plan: &Plan, n: NodeId) -> String {
 
 /// What would make the fault detectable, where it can be computed, and
 /// the stage it goes on.
+/// `pulls` are the open input's ([`scale_pulls`]), none for other faults.
 fn fix(
     plan: &Plan,
     cases: &Cases,
     window: &CodeWindow,
     fault: &Fault,
-    codes: Option<FaultCodes>,
+    (codes, pulls): (Option<FaultCodes>, ScalePulls),
 ) -> (Option<String>, Option<NodeId>) {
     let here = Some(fault.node);
     match (fault.kind, &plan.nodes[fault.node.index()]) {
@@ -530,7 +548,7 @@ fn fix(
         (FaultKind::InputOpen, _) if codes.is_none() => (
             Some(format!(
                 "a burnout current on `{}` (`burnout`, {}){} drives the open pin to a rail, outside the valid window {} .. {}",
-                plan.names[fault.node.index()], outweighs_bias(plan, fault.node), pull_down_fix(plan, cases, window, fault), window.low, window.high
+                plan.names[fault.node.index()], outweighs_bias(plan, fault.node), pull_down_fix(pulls), window.low, window.high
             )),
             here,
         ),
@@ -793,32 +811,18 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
 /// The pull-down a converter or amplifier pin could take instead of a
 /// burnout current, where one to 0 V takes the open pin outside the
 /// window: `, or a resistor to 0 V (`pull 1 Mohm to 0 V`)`, else nothing.
-/// 1 MΩ is common practice: far below a pin's leakage resistance, far
-/// above a sensor's source resistance (its loading is in the budget).
-fn pull_down_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> String {
-    const PULL: Pull = Pull::Resistor {
-        ohms: 1e6,
-        volts: 0.0,
-    };
-    let trial = Fault {
-        pull: Some(PULL),
-        ..*fault
-    };
-    let detectable = code_range(plan, cases, window, &trial)
-        .ok()
-        .and_then(|codes| codes.threshold(window))
-        .is_some();
-    if detectable {
-        ", or a resistor from the pin to 0 V (`pull 1 Mohm to 0 V`),".to_string()
+fn pull_down_fix(pulls: ScalePulls) -> String {
+    if pulls.grounds() {
+        format!(", or a resistor from the pin to 0 V ({}),", pull_text(0.0))
     } else {
         String::new()
     }
 }
 
-/// [`ScalePulls`] of an open input: 1 MΩ (as [`pull_down_fix`]) to 0 V
-/// and to the top of what the stage states its pins may take (a
-/// converter's `rails`, an amplifier's `input` range), each kept where
-/// every code it gives lies on one side of the valid window.
+/// [`ScalePulls`] of an open input: [`PULL_OHMS`] to 0 V and to the top of
+/// what the stage states its pins may take (a converter's `rails`, an
+/// amplifier's `input` range), each kept where every code it gives lies
+/// on one side of the valid window.
 fn scale_pulls(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -> ScalePulls {
     let top = match &plan.nodes[fault.node.index()] {
         Node::Adc(_) => plan.stated[fault.node.index()].rails.map(|r| r.1),
@@ -842,7 +846,10 @@ fn scale_pulls(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
     };
     for volts in std::iter::once(0.0).chain(top.filter(|&v| v > 0.0)) {
         let trial = Fault {
-            pull: Some(Pull::Resistor { ohms: 1e6, volts }),
+            pull: Some(Pull::Resistor {
+                ohms: PULL_OHMS,
+                volts,
+            }),
             ..*fault
         };
         let codes_high = match code_range(plan, cases, window, &trial)
@@ -853,11 +860,10 @@ fn scale_pulls(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
             Some(Threshold::Below(_)) => false,
             Some(Threshold::Outside(..)) | None => continue,
         };
-        let text = Some(format!("`pull 1 Mohm to {} V`", trimmed(volts, 4)));
         if codes_high == rises {
-            pulls.up = pulls.up.or(text);
+            pulls.up = pulls.up.or(Some(volts));
         } else {
-            pulls.down = pulls.down.or(text);
+            pulls.down = pulls.down.or(Some(volts));
         }
     }
     pulls
@@ -1280,7 +1286,7 @@ fn masking_finding(
         Side::Low => &f.pulls.down,
     };
     let on = match pull {
-        Some(pull) => format!(" ({pull} on `{}`)", f.stage),
+        Some(volts) => format!(" ({} on `{}`)", pull_text(*volts), f.stage),
         None => String::new(),
     };
     let drive = match f.fault.kind {

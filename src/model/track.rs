@@ -338,11 +338,18 @@ fn check_widths(
 ) -> bool {
     let mut ok = true;
     for m in members {
-        let Some((_, name, measure)) = tracked_value(&stages[m.stage]) else {
+        let Some((kind, name, measure)) = tracked_value(&stages[m.stage]) else {
             continue;
         };
         let own = relative_tolerance(measure).unwrap_or(0.0);
         let drift = tracked_drift(&stages[m.stage], measure);
+        // A gauge's drift is its thermal output, an apparent strain.
+        let (unit, drift_of) = match kind {
+            Tracked::Gauge => ("ue/K", format!("its `{}`", schema::param::THERMAL_OUTPUT)),
+            Tracked::Resistance | Tracked::Current | Tracked::Voltage => {
+                ("ppm/K", format!("its `{name}` drift"))
+            }
+        };
         let member = &stages[m.stage].name;
         let wider = |what: &str, group: String, own: String, at: Span, param: String| {
             Finding::new(
@@ -367,20 +374,13 @@ fn check_widths(
             ok = false;
         }
         if let (Some((t, at)), Some(d)) = (tracking, drift) {
-            // A gauge's drift is its thermal output, an apparent strain.
-            let (unit, what) = match tracked_value(&stages[m.stage]) {
-                Some((Tracked::Gauge, ..)) => {
-                    ("ue/K", format!("its `{}`", schema::param::THERMAL_OUTPUT))
-                }
-                _ => ("ppm/K", format!("its `{name}` drift")),
-            };
             if t > d * (1.0 + 1e-12) {
                 findings.push(wider(
                     "tracking drift",
                     format!("{} {unit}", trim(t * 1e6)),
                     format!("{} {unit}", trim(d * 1e6)),
                     at,
-                    what,
+                    drift_of,
                 ));
                 ok = false;
             }
