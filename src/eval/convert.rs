@@ -143,6 +143,64 @@ pub struct InverseTable {
     /// Each segment's Hermite cubic as a polynomial in (code − its first
     /// code), so a lookup costs three multiply-adds and no division.
     cubics: Vec<[f64; 4]>,
+    /// The stretch of codes over which the points lie on one straight
+    /// line: the line, which a lookup there reads with no search.
+    line: Option<Line>,
+}
+
+/// x as a straight line in the code, over the codes from `low` to `high`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct Line {
+    first_code: f64,
+    first_x: f64,
+    per_code: f64,
+    low: f64,
+    high: f64,
+}
+
+/// How far, as a share of the table's span of x, a point may lie off a
+/// straight line to be read as on it: a few thousand times an f64's
+/// rounding, the scatter a chain's arithmetic leaves on a line (an
+/// amplifier and a converter in front of a thermocouple's EMF), and far
+/// below what any curvature of a sensor or a stage gives.
+const ON_LINE: f64 = 1e-12;
+
+impl Line {
+    /// The line through the points a quarter and three quarters along,
+    /// over the run of points around the middle that lie on it to within
+    /// [`ON_LINE`]: a chain that is straight but for a stage clipping at
+    /// an end of the table is read as the line up to the last point
+    /// before the clip, and by the cubics beyond.
+    fn around_middle(xs: &[f64], codes: &[f64]) -> Option<Line> {
+        let n = codes.len();
+        let (i, j) = (n / 4, 3 * n / 4);
+        if j <= i {
+            return None;
+        }
+        let (c0, x0) = (codes[i], xs[i]);
+        let per_code = (xs[j] - x0) / (codes[j] - c0);
+        let tolerance = ON_LINE * (xs[n - 1] - xs[0]).abs();
+        let on = |k: usize| (x0 + (codes[k] - c0) * per_code - xs[k]).abs() <= tolerance;
+        if !per_code.is_finite() || !(i..=j).all(on) {
+            return None;
+        }
+        let first = (0..i).rev().take_while(|&k| on(k)).last().unwrap_or(i);
+        let last = (j + 1..n).take_while(|&k| on(k)).last().unwrap_or(j);
+        Some(Line {
+            first_code: c0,
+            first_x: x0,
+            per_code,
+            low: codes[first].min(codes[last]),
+            high: codes[first].max(codes[last]),
+        })
+    }
+
+    /// x at `code`, None beyond the stretch.
+    #[inline(always)]
+    fn x_at(&self, code: f64) -> Option<f64> {
+        let inside = code >= self.low && code <= self.high;
+        inside.then_some(self.first_x + (code - self.first_code) * self.per_code)
+    }
 }
 
 /// A thermocouple chain's inverse as tables: the couple's EMF (at the
@@ -249,6 +307,7 @@ impl InverseTable {
             })
             .collect();
         InverseTable {
+            line: Line::around_middle(&xs, &codes),
             xs,
             codes,
             stands_for,
@@ -286,6 +345,9 @@ impl InverseTable {
     /// Monotone cubic Hermite interpolation of x at `code` (None outside).
     #[inline(always)]
     fn x_at(&self, code: f64) -> Option<f64> {
+        if let Some(x) = self.line.and_then(|line| line.x_at(code)) {
+            return Some(x);
+        }
         let n = self.codes.len();
         let k = self.buckets.segment(&self.codes, code);
         // k is 0 or n and beyond, in one test.
@@ -1312,6 +1374,44 @@ mod tests {
                 }
             }
         }
+    }
+
+    /// A table whose points lie on a line is read as the line: where a
+    /// stage clips the first point, from the second on, and by the cubic
+    /// below it; a curve (a Pt100's resistance across its range) has no
+    /// line at all.
+    #[test]
+    fn a_straight_table_reads_as_its_line() {
+        let codes: Vec<f64> = (0..101).map(|k| 800.0 + 650.0 * k as f64).collect();
+        let xs: Vec<f64> = codes.iter().map(|c| (c - 800.0) / 3.0e3 + 1.25).collect();
+        let straight = InverseTable::new(xs.clone(), codes.clone(), TableUse::Complete);
+        let line = straight.line.expect("a line");
+        assert_eq!((line.low, line.high), (800.0, 65800.0));
+        let x = straight.x_at(33_000.0).expect("inside");
+        assert!(
+            (x - ((33_000.0 - 800.0) / 3.0e3 + 1.25)).abs() < 1e-14,
+            "{x}"
+        );
+        assert_eq!(straight.x_at(799.0), None);
+        assert_eq!(straight.x_at(65_800.5), None);
+
+        let mut clipped_xs = xs.clone();
+        clipped_xs[0] = 1.2;
+        let clipped = InverseTable::new(clipped_xs, codes.clone(), TableUse::Complete);
+        let line = clipped.line.expect("a line past the clip");
+        assert_eq!((line.low, line.high), (1450.0, 65800.0));
+        let below = clipped.x_at(1000.0).expect("the cubic below");
+        assert!(below > 1.2 && below < xs[1], "{below}");
+
+        let curve: Vec<f64> = (0..101)
+            .map(|k| {
+                100.0 * (1.0 + 3.9083e-3 * k as f64 * 8.0 - 5.775e-7 * (k as f64 * 8.0).powi(2))
+            })
+            .collect();
+        assert_eq!(
+            InverseTable::new(curve, codes, TableUse::Complete).line,
+            None
+        );
     }
 
     #[test]
