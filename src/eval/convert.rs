@@ -571,19 +571,51 @@ impl Conversion {
         x: f64,
         cj: Option<f64>,
     ) -> Env {
-        let cj_error = self.cj_error.map(|s| values[s.index()]).unwrap_or(0.0);
+        let cold_junction = self.firmware_junction(values, env, x, cj);
         match self.variable {
             Senses::Measurand => Env {
                 measurand: x,
                 ambient: chain.reference(),
-                cold_junction: cj.unwrap_or(env.cold_junction + cj_error),
+                cold_junction,
             },
             Senses::ColdJunction => Env {
                 measurand: env.measurand,
                 ambient: chain.reference(),
-                cold_junction: x,
+                cold_junction,
             },
         }
+    }
+
+    /// [`Conversion::firmware_env`]'s cold junction.
+    #[inline(always)]
+    fn firmware_junction(&self, values: &[f64], env: &Env, x: f64, cj: Option<f64>) -> f64 {
+        match self.variable {
+            Senses::Measurand => {
+                let cj_error = self.cj_error.map(|s| values[s.index()]).unwrap_or(0.0);
+                cj.unwrap_or(env.cold_junction + cj_error)
+            }
+            Senses::ColdJunction => x,
+        }
+    }
+
+    /// [`Conversion::firmware_junction`] of each lane of a batch at x = 0
+    /// (`lane(k)` lane k's values, `cj` the lanes' junction readings):
+    /// where the readings are the answer, the column itself.
+    #[inline(always)]
+    fn firmware_junctions<'v>(
+        &self,
+        lane: impl Fn(usize) -> &'v [f64],
+        env: &Env,
+        cj: Option<&[f64; LANES]>,
+    ) -> [f64; LANES] {
+        if let (Senses::Measurand, Some(read)) = (self.variable, cj) {
+            return *read;
+        }
+        let mut junctions = [0.0; LANES];
+        for (k, junction) in junctions.iter_mut().enumerate() {
+            *junction = self.firmware_junction(lane(k), env, 0.0, cj.map(|t| t[k]));
+        }
+        junctions
     }
 
     /// The firmware model's code for `x`.
@@ -609,7 +641,6 @@ impl Conversion {
     #[inline(always)]
     pub(super) fn direct_lanes<'v>(
         &self,
-        chain: &impl Firmware,
         lane: impl Fn(usize) -> &'v [f64],
         env: &Env,
         x: &mut [f64; LANES],
@@ -639,11 +670,7 @@ impl Conversion {
                 }
             }
             TableUse::Junction { ty, reference_mv } => {
-                let junctions: [f64; LANES] = std::array::from_fn(|k| {
-                    let cj = cj.map(|t| t[k]);
-                    self.firmware_env(chain, lane(k), env, 0.0, cj)
-                        .cold_junction
-                });
+                let junctions = self.firmware_junctions(lane, env, cj);
                 let junction_mv = junction_emfs.at(ty, &junctions);
                 for (k, &code) in codes.iter().enumerate() {
                     let x = table

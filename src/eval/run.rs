@@ -632,8 +632,7 @@ impl Plan {
         let exact = *columns.nodes[self.adc.index()].of(Tag::Code).ok_or(Lost)?;
         let cj = cj.and_then(|c| columns.nodes[c.index()].of(Tag::Reading));
         *readings = exact;
-        let answered =
-            conversion.direct_lanes(self, lane, env, readings, cj, &mut columns.junction_emfs);
+        let answered = conversion.direct_lanes(lane, env, readings, cj, &mut columns.junction_emfs);
         if answered.contains(&false) {
             for (k, x) in readings.iter_mut().enumerate() {
                 if !answered[k] {
@@ -754,10 +753,7 @@ impl Plan {
                 mode,
                 junction_mv: self.junction_mv(i, env),
             };
-            self.node_lanes(&run, &mut after[0])?;
-            if !after[0].finite() {
-                return Err(Lost);
-            }
+            self.finite_node_lanes(&run, &mut after[0])?;
         }
         *last = Some(key);
         Ok(())

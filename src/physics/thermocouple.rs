@@ -220,10 +220,14 @@ pub fn emf_mv_each<const N: usize>(
     let first = t_c
         .first()
         .and_then(|&t| ranges.iter().position(|r| within(r, t)));
-    let Some(r) = first
-        .filter(|&i| holds_all(&ranges[..=i], t_c))
-        .map(|i| &ranges[i])
-    else {
+    // Tested without a closure: `Option::filter` is not always inlined,
+    // and out of line the test is built for the baseline instruction set
+    // rather than the caller's vector unit.
+    let held = match first {
+        Some(i) if holds_all(&ranges[..=i], t_c) => Some(&ranges[i]),
+        _ => None,
+    };
+    let Some(r) = held else {
         for (e, &t) in e.iter_mut().zip(t_c) {
             *e = emf_mv(ty, t)?;
         }

@@ -127,7 +127,6 @@ impl Convert {
         let conversion = &self.conversion;
         let mut readings = codes;
         let answered = conversion.direct_lanes(
-            run.plan,
             |k| run.row(k),
             run.env,
             &mut readings,

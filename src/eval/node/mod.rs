@@ -434,9 +434,10 @@ impl Plan {
 }
 
 impl Plan {
-    /// Node `i`'s column in a batch, into `out`: one match per batch, then
-    /// the kind's loop over the lanes. Written in place, as a column is a
-    /// kilobyte at 32 lanes and each move of one a call to `memcpy`.
+    /// [`Plan::finite_node_lanes`] without the test of finiteness: what
+    /// the lane tests hold to the single-run evaluator's node, which
+    /// makes no such test.
+    #[cfg(test)]
     pub(in crate::eval) fn node_lanes(
         &self,
         run: &LaneRun<'_>,
@@ -448,7 +449,31 @@ impl Plan {
         )
     }
 
-    /// [`Plan::node_lanes`], built for each vector width.
+    /// Node `i`'s column in a batch, into `out`: one match per batch, then
+    /// the kind's loop over the lanes. Written in place, as a column is a
+    /// kilobyte at 32 lanes and each move of one a call to `memcpy`. Lost
+    /// where a lane's signal is not a finite number, as a run of the chain
+    /// needs: tested in the kernel's build for the vector unit, not after
+    /// it in the baseline's.
+    pub(in crate::eval) fn finite_node_lanes(
+        &self,
+        run: &LaneRun<'_>,
+        out: &mut Column,
+    ) -> Result<(), Lost> {
+        super::wide::run(
+            #[inline(always)]
+            || {
+                self.kernel_lanes(run, out)?;
+                if out.finite() {
+                    Ok(())
+                } else {
+                    Err(Lost)
+                }
+            },
+        )
+    }
+
+    /// The match and the kind's loop, built for each vector width.
     #[inline(always)]
     fn kernel_lanes(&self, run: &LaneRun<'_>, out: &mut Column) -> Result<(), Lost> {
         match &self.nodes[run.i.index()] {
