@@ -45,6 +45,8 @@ fn a_gain_change_moves_the_budget_and_the_headroom() {
     assert_eq!(spec.len(), 1, "only the gain changed: {spec:?}");
     assert_eq!(spec[0]["subject"], "front.gain");
     assert_eq!(spec[0]["new"]["line"], 34);
+    // What the model reads, without the line's comment.
+    assert_eq!(spec[0]["new"]["text"], "gain 5 ± 0.05 %");
     // 5/4 the gain: the converter input passes its end (headroom < 0).
     let headroom = chain["outcome"]["headroom"].as_array().expect("headroom");
     let conv = headroom

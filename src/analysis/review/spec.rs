@@ -44,7 +44,9 @@ fn locate(file: &SourceFile, spec: &SourceFile, span: Span) -> Located {
         .text()
         .get(span.start..span.end)
         .unwrap_or_default()
-        .split_whitespace()
+        .lines()
+        .map(without_comment)
+        .flat_map(str::split_whitespace)
         .collect::<Vec<_>>()
         .join(" ");
     Located {
@@ -52,6 +54,22 @@ fn locate(file: &SourceFile, spec: &SourceFile, span: Span) -> Located {
         file: (file.name() != spec.name()).then(|| file.name().to_string()),
         line: file.line_column(span.start).0,
     }
+}
+
+/// A line of spec text up to its comment (a `#` outside a string): the
+/// text a change shows is what the model reads.
+fn without_comment(line: &str) -> &str {
+    let (mut in_string, mut escaped) = (false, false);
+    for (i, c) in line.char_indices() {
+        match c {
+            _ if escaped => escaped = false,
+            '\\' if in_string => escaped = true,
+            '"' => in_string = !in_string,
+            '#' if !in_string => return &line[..i],
+            _ => {}
+        }
+    }
+    line
 }
 
 /// Every change from `old` to `new`, in the order of the new text.
@@ -314,5 +332,28 @@ fn tolerance(t: &Tolerance) -> Tolerance {
     Tolerance {
         span: Span::default(),
         ..t.clone()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::without_comment;
+
+    /// A change shows what the model reads: a trailing comment goes, a
+    /// `#` inside a string (escaped quotes and all) stays.
+    #[test]
+    fn a_comment_is_not_part_of_a_change() {
+        assert_eq!(
+            without_comment("gain 4 ± 0.02 %  # tighter part"),
+            "gain 4 ± 0.02 %  "
+        );
+        assert_eq!(without_comment("gain 4 ± 0.02 %"), "gain 4 ± 0.02 %");
+        assert_eq!(
+            without_comment(r#"title "Line #2" # a note"#),
+            r#"title "Line #2" "#
+        );
+        let escaped = r##"title "a \"#\" b""##;
+        assert_eq!(without_comment(escaped), escaped);
+        assert_eq!(without_comment("# all comment"), "");
     }
 }
