@@ -417,8 +417,9 @@ fn lead_item(plan: &Plan, n: NodeId) -> Option<String> {
 /// The self-heating of each element that states a dissipation constant,
 /// at the chosen excitation, the most it reaches across what it senses
 /// (the measurand range at the reference ambient, or a cold junction's
-/// ambient range), and the power that makes it (P = ΔT·δ, IEC 60751's
-/// self-heating coefficient read the other way).
+/// ambient range: over a grid, then searched about its worst point), and
+/// the power that makes it (P = ΔT·δ, IEC 60751's self-heating
+/// coefficient read the other way).
 fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
     NodeId::all(plan.nodes.len())
         .filter_map(|n| {
@@ -426,16 +427,17 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
             let slot = heating.dissipation;
             let delta = plan.nominal[slot.index()];
             let sensed = Sensed::of(chain, plan, heating.senses);
-            let ends: Vec<_> = crate::eval::grid((sensed.ends[0], sensed.ends[1]), HEATING_POINTS)
-                .into_iter()
-                .map(|t| heating_at(plan, n, slot, &sensed, t).map(|k| (t, k)))
-                .collect();
+            let rise = |t: f64| heating_at(plan, n, slot, &sensed, t);
+            let points = crate::eval::grid((sensed.ends[0], sensed.ends[1]), HEATING_POINTS);
+            let ends: Vec<_> = points.iter().map(|&t| rise(t).map(|k| (t, k))).collect();
             let worst = ends
                 .iter()
-                .filter_map(|e| e.as_ref().ok())
-                .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()));
+                .enumerate()
+                .filter_map(|(i, e)| Some((i, *e.as_ref().ok()?)))
+                .max_by(|a, b| a.1 .1.abs().total_cmp(&b.1 .1.abs()))
+                .map(|(i, found)| most_near(|t| rise(t).ok(), &points, i, found));
             let name = &plan.names[n.index()];
-            let Some(&(at, kelvin)) = worst else {
+            let Some((at, kelvin)) = worst else {
                 // Said, not dropped: the item still asks for the check.
                 let why = ends.iter().find_map(|e| e.as_ref().err()).map_or(String::new(), |e| format!(" ({e})"));
                 return Some(ReviewItem {
@@ -464,6 +466,47 @@ fn self_heating(chain: &Chain, plan: &Plan) -> Vec<ReviewItem> {
 /// divider puts the most power into its element where the element's
 /// resistance matches the fixed one, which may lie inside the range.
 const HEATING_POINTS: usize = 21;
+
+/// Steps of the golden-section search about the grid's worst point: the
+/// bracket shrinks to 0.618³⁰, about 5·10⁻⁷ of two grid steps.
+const REFINING_STEPS: usize = 30;
+
+/// The largest |rise| between the neighbours of grid point `i` (`found`
+/// its temperature and rise): a golden-section search for the maximum of
+/// a smooth rise, as a divider's element peaks where its resistance
+/// matches the fixed one, between two points of the grid; `found` where
+/// the search finds no more.
+fn most_near(
+    rise: impl Fn(f64) -> Option<f64>,
+    points: &[f64],
+    i: usize,
+    found: (f64, f64),
+) -> (f64, f64) {
+    let size = |t: f64| rise(t).map_or(f64::NEG_INFINITY, f64::abs);
+    let (mut a, mut b) = (
+        points[i.saturating_sub(1)],
+        points[(i + 1).min(points.len() - 1)],
+    );
+    let ratio = (5f64.sqrt() - 1.0) / 2.0;
+    let (mut c, mut d) = (b - ratio * (b - a), a + ratio * (b - a));
+    let (mut fc, mut fd) = (size(c), size(d));
+    for _ in 0..REFINING_STEPS {
+        if fc >= fd {
+            (b, d, fd) = (d, c, fc);
+            c = b - ratio * (b - a);
+            fc = size(c);
+        } else {
+            (a, c, fc) = (c, d, fd);
+            d = a + ratio * (b - a);
+            fd = size(d);
+        }
+    }
+    let t = if fc >= fd { c } else { d };
+    match rise(t) {
+        Some(k) if k.abs() > found.1.abs() => (t, k),
+        _ => found,
+    }
+}
 
 /// What an element's temperature is, for its self-heating: the measurand
 /// across its range (at the reference ambient), or a cold junction across
@@ -511,7 +554,8 @@ impl<'a> Sensed<'a> {
 
     /// `t` as the text names it.
     fn at(&self, t: f64) -> String {
-        let value = format!("{} {}", trimmed(from_si(t, &self.unit), 6), self.unit);
+        // Three digits: the worst lies between grid points, found by a search.
+        let value = format!("{} {}", trimmed(from_si(t, &self.unit), 3), self.unit);
         match self.senses {
             Senses::Measurand => value,
             Senses::ColdJunction => format!("a cold junction of {value}"),
