@@ -650,3 +650,26 @@ fn calibration(chain: &Chain, plan: &Plan) -> Option<ReviewItem> {
         text: format!("{text}; record the reference's certificate with the calibration"),
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::most_near;
+
+    /// A divider's element heats most where its resistance matches the
+    /// fixed one: P = V²R/(R + R_f)² peaks at R = R_f. A 10 kΩ fixed
+    /// resistor and an element of 10 kΩ at 23.3 (a grid of 0 … 50 in
+    /// steps of 2.5 misses it): the search finds the peak, V²/4R_f.
+    #[test]
+    fn the_worst_is_searched_between_grid_points() {
+        let (v, fixed) = (3.3, 10e3);
+        let element = |t: f64| 10e3 * (1.0 - 0.04 * (t - 23.3));
+        let power = |t: f64| Some(v * v * element(t) / (element(t) + fixed).powi(2));
+        let points: Vec<f64> = (0..21).map(|k| 2.5 * k as f64).collect();
+        let found = (22.5, power(22.5).unwrap());
+        let (at, most) = most_near(power, &points, 9, found);
+        assert!((at - 23.3).abs() < 1e-3, "{at}");
+        assert!((most - v * v / (4.0 * fixed)).abs() < 1e-12, "{most}");
+        // Where the search finds no more, the grid's point stands.
+        assert_eq!(most_near(|_| Some(0.0), &points, 9, found), found);
+    }
+}
