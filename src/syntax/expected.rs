@@ -108,7 +108,25 @@ pub fn explain_parse_error(
         _ => "not expected here".to_string(),
     };
     let at = base + pos;
-    Finding::new(Code::S001, file, message).label(Span::new(at, at + found_len), label)
+    let finding =
+        Finding::new(Code::S001, file, message).label(Span::new(at, at + found_len), label);
+    match unit_split_by_space(&input[..pos], &found) {
+        Some(whole) => finding.help(format!("a unit is written without spaces: `{whole}`")),
+        None => finding,
+    }
+}
+
+/// The unit `before` and `found` spell together, where a space split it
+/// before a `/` (`% /K`, `uV /K`): the value then ends at the space.
+fn unit_split_by_space(before: &str, found: &str) -> Option<String> {
+    if !found.starts_with('/') || !before.ends_with(char::is_whitespace) {
+        return None;
+    }
+    let unit = before.split_whitespace().last()?;
+    let is_unit = unit
+        .chars()
+        .all(|c| c.is_alphabetic() || c == '%' || c == '°');
+    is_unit.then(|| format!("{unit}{found}"))
 }
 
 fn expected_list(positives: &[Rule]) -> String {

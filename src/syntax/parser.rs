@@ -535,6 +535,21 @@ mod tests {
 
     const HEAD: &str = "chain a {\n    measurand temperature 0 degC .. 50 degC\n";
 
+    /// A unit split by a space before its `/` is S001 at the `/`, and
+    /// the help spells the unit whole.
+    #[test]
+    fn a_unit_split_by_a_space_is_spelt_whole() {
+        let marked = format!("{HEAD}    amplifier front {{ offset_drift 0.3 uV «/K» }}\n}}\n");
+        assert_span(&marked, Code::S001);
+        let file = SourceFile::new("t.catena", marked.replace(['«', '»'], ""));
+        let (_, findings) = crate::syntax::parse(&file);
+        let help = findings.iter().find_map(|f| f.help.clone());
+        assert_eq!(
+            help.as_deref(),
+            Some("a unit is written without spaces: `uV/K`")
+        );
+    }
+
     #[test]
     fn the_markers_give_byte_offsets() {
         let marked = format!("{HEAD}    «ambeint» 0 degC .. 45 degC\n}}\n");
