@@ -860,8 +860,30 @@ fn message(
     };
     let what = e.limit.describe();
     let value = show(e, side.value);
+    let margin_text = trimmed(margin * 100.0, 3);
     if headroom < 0.0 {
         format!("the {what} of `{stage}` reaches {value} {at}, beyond {limit_text}")
+    } else if e.unit == LimitUnit::FullScale && (e.allowed.1 - e.allowed.0 - 1.0).abs() < 1e-12 {
+        // The whole of full scale allowed: the distance is the share of
+        // the span, and from the bottom the value itself; said once.
+        let end = if side.high { "top" } else { "bottom" };
+        if side.value == side.bound {
+            format!(
+                "the {what} of `{stage}` reaches the {end} of its range, {value}, {at}: \
+                 no headroom, under the {margin_text} % margin"
+            )
+        } else if side.bound == 0.0 {
+            format!(
+                "the {what} of `{stage}` comes within {value} of the {end} of its range {at}, \
+                 under the {margin_text} % margin"
+            )
+        } else {
+            format!(
+                "the {what} of `{stage}` reaches {value} {at}, {} from the {end} of its range, \
+                 under the {margin_text} % margin",
+                show(e, (side.bound - side.value).abs()),
+            )
+        }
     } else {
         // Headroom is a share of the allowed span, not of full scale: say
         // both the distance and the share, so a reader of "92.95 % of full
@@ -871,7 +893,7 @@ fn message(
              {} % of the allowed span, under the {} % margin",
             show(e, (side.bound - side.value).abs()),
             trimmed(headroom * 100.0, 3),
-            trimmed(margin * 100.0, 3)
+            margin_text
         )
     }
 }
