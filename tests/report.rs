@@ -72,6 +72,14 @@ fn markdown_reports_of_every_demo_spec() {
             md.chars().count()
         );
         insta::assert_snapshot!(format!("report-md-{}", name(&spec)), md);
+        // A chain that trips leads its verdict with the caution it
+        // closes with.
+        let trips = "This chain raises alarms or trips";
+        let leading = md.matches(&format!("**Caution.** {trips}")).count();
+        assert_eq!(leading, md.matches(&format!("- {trips}")).count(), "{spec}");
+        if spec.contains("pottery_kiln") {
+            assert_eq!(leading, 1, "the kiln's high alarm");
+        }
     }
 }
 

@@ -6,6 +6,7 @@ use std::fmt::Write;
 
 use super::fmt::{method, plain, position, share, share_or_floor, si, trip_code, value};
 use super::model::{BudgetSection, ChainReport, Checklist, Contributor, Report, Verdict};
+use crate::analysis::checklist::PROTECTS;
 use crate::analysis::checklist::{LimitStatus, ReviewKind};
 use crate::units::format::{attenuation_db, codes};
 
@@ -128,6 +129,11 @@ fn verdict(out: &mut String, c: &ChainReport) {
         v.limits.len(),
         v.faults.len()
     );
+    // A chain that trips is read for its safety first: its caution leads
+    // the verdict as well as closing the chain.
+    if c.cautions.iter().any(|x| x == PROTECTS) {
+        let _ = writeln!(out, "**Caution.** {PROTECTS}\n");
+    }
     masked_trips(out, v);
     if !v.requirements.is_empty() {
         out.push_str("| requirement | method | required | achieved | margin | where | verdict |\n");
