@@ -316,6 +316,41 @@ fn an_open_excitation_lead_asks_for_sensing_not_a_pull() {
     }
 }
 
+/// An amplifier input drawing up to 2 µA: through 1 MΩ its open pin
+/// would sit anywhere within 2 V of the pull's voltage, inside the valid
+/// window, so R671's help names the largest resistor that works, 100 kΩ
+/// (0.2 V). Written in, the open pin reads below the window and R671 and
+/// R672 clear.
+#[test]
+fn a_pin_drawing_a_large_bias_current_takes_a_smaller_pull() {
+    let path = root().join("tests/fixtures/faults/open_pin_large_bias.catena");
+    let before = findings(&path, None);
+    let help = before
+        .iter()
+        .find(|f| f["code"] == "R671")
+        .and_then(|f| f["help"].as_str())
+        .unwrap_or_else(|| panic!("no R671: {before:?}"));
+    assert!(help.contains("(`pull 100 kohm to 0 V`)"), "{help}");
+    let text = std::fs::read_to_string(&path).expect("the fixture");
+    let pulled = text.replace(
+        "        bias 2 uA max\n",
+        "        bias 2 uA max\n        pull 100 kohm to 0 V\n",
+    );
+    assert_ne!(pulled, text);
+    let after = findings(&path, Some(&pulled));
+    assert!(!after.iter().any(is_fault_finding), "{after:?}");
+    // The common 1 MΩ is not enough: the fault stays silent.
+    let common = text.replace(
+        "        bias 2 uA max\n",
+        "        bias 2 uA max\n        pull 1 Mohm to 0 V\n",
+    );
+    let with_common = findings(&path, Some(&common));
+    assert!(
+        with_common.iter().any(|f| f["code"] == "R670"),
+        "{with_common:?}"
+    );
+}
+
 /// A converter pin that opens with nothing to drive it, under a high
 /// alarm: R672's help names the pull to the converter's top rail, which
 /// reads up-scale, toward the trip. Written in, the open pin sits at 5 V,

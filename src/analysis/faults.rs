@@ -191,30 +191,45 @@ pub struct FaultVerdict {
     pub pulls: ScalePulls,
 }
 
-/// The voltage a pull resistor of [`PULL_OHMS`] goes to that takes an open
-/// input's reading above the range (`up`, up-scale) and one that takes it
-/// below (`down`), where one does.
+/// The pull resistor (of [`PULL_OHMS`]) that takes an open input's reading
+/// above the range (`up`, up-scale) and one that takes it below (`down`),
+/// where one does.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct ScalePulls {
-    pub up: Option<f64>,
-    pub down: Option<f64>,
+    pub up: Option<Pulled>,
+    pub down: Option<Pulled>,
 }
 
-/// The pull resistor fixes suggest: 1 MΩ is common practice, far below a
-/// pin's leakage resistance, far above a sensor's source resistance (its
-/// loading is in the budget).
-const PULL_OHMS: f64 = 1e6;
+/// A resistor from a pin to a voltage, as `pull R to V` writes it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Pulled {
+    pub ohms: f64,
+    pub volts: f64,
+}
+
+/// The pull resistors fixes try, largest first: 1 MΩ is common practice,
+/// far below a pin's leakage resistance, far above a sensor's source
+/// resistance (its loading is in the budget); a pin whose bias current
+/// moves it far through 1 MΩ (a microamp: a volt) takes a smaller one.
+const PULL_OHMS: [f64; 3] = [1e6, 1e5, 1e4];
 
 impl ScalePulls {
-    /// Whether a pull to 0 V takes the reading out of the range.
-    fn grounds(self) -> bool {
-        self.up == Some(0.0) || self.down == Some(0.0)
+    /// The pull to 0 V that takes the reading out of the range, if one does.
+    fn ground(self) -> Option<Pulled> {
+        [self.up, self.down]
+            .into_iter()
+            .flatten()
+            .find(|p| p.volts == 0.0)
     }
 }
 
-/// How a pull to `volts` is written in a spec.
-fn pull_text(volts: f64) -> String {
-    format!("`pull 1 Mohm to {} V`", trimmed(volts, 4))
+/// How a pull is written in a spec.
+fn pull_text(pull: Pulled) -> String {
+    format!(
+        "`pull {} to {} V`",
+        with_prefix(pull.ohms, "ohm", 1),
+        trimmed(pull.volts, 4)
+    )
 }
 
 /// Every fault of a chain judged against its window.
@@ -812,14 +827,13 @@ fn burnout_fix(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
 /// burnout current, where one to 0 V takes the open pin outside the
 /// window: `, or a resistor to 0 V (`pull 1 Mohm to 0 V`)`, else nothing.
 fn pull_down_fix(pulls: ScalePulls) -> String {
-    if pulls.grounds() {
-        format!(", or a resistor from the pin to 0 V ({}),", pull_text(0.0))
-    } else {
-        String::new()
+    match pulls.ground() {
+        Some(pull) => format!(", or a resistor from the pin to 0 V ({}),", pull_text(pull)),
+        None => String::new(),
     }
 }
 
-/// [`ScalePulls`] of an open input: [`PULL_OHMS`] to 0 V and to the top of
+/// [`ScalePulls`] of an open input: each of [`PULL_OHMS`] to 0 V and to the top of
 /// what the stage states its pins may take (a converter's `rails`, an
 /// amplifier's `input` range), each kept where every code it gives lies
 /// on one side of the valid window.
@@ -845,28 +859,48 @@ fn scale_pulls(plan: &Plan, cases: &Cases, window: &CodeWindow, fault: &Fault) -
         return pulls;
     };
     for volts in std::iter::once(0.0).chain(top.filter(|&v| v > 0.0)) {
-        let trial = Fault {
-            pull: Some(Pull::Resistor {
-                ohms: PULL_OHMS,
-                volts,
-            }),
-            ..*fault
-        };
-        let codes_high = match code_range(plan, cases, window, &trial)
-            .ok()
-            .and_then(|c| c.threshold(window))
-        {
-            Some(Threshold::Above(_)) => true,
-            Some(Threshold::Below(_)) => false,
-            Some(Threshold::Outside(..)) | None => continue,
+        // The largest resistor that takes every code to one side.
+        let side = PULL_OHMS.iter().find_map(|&ohms| {
+            let pull = Pulled { ohms, volts };
+            pulled_high(plan, cases, window, fault, pull).map(|high| (pull, high))
+        });
+        let Some((pull, codes_high)) = side else {
+            continue;
         };
         if codes_high == rises {
-            pulls.up = pulls.up.or(Some(volts));
+            pulls.up = pulls.up.or(Some(pull));
         } else {
-            pulls.down = pulls.down.or(Some(volts));
+            pulls.down = pulls.down.or(Some(pull));
         }
     }
     pulls
+}
+
+/// Whether `fault` with `pull` on its pin gives codes all above the
+/// valid window (true) or all below (false); None where they are not on
+/// one side.
+fn pulled_high(
+    plan: &Plan,
+    cases: &Cases,
+    window: &CodeWindow,
+    fault: &Fault,
+    pull: Pulled,
+) -> Option<bool> {
+    let trial = Fault {
+        pull: Some(Pull::Resistor {
+            ohms: pull.ohms,
+            volts: pull.volts,
+        }),
+        ..*fault
+    };
+    match code_range(plan, cases, window, &trial)
+        .ok()?
+        .threshold(window)?
+    {
+        Threshold::Above(_) => Some(true),
+        Threshold::Below(_) => Some(false),
+        Threshold::Outside(..) => None,
+    }
 }
 
 /// The amplifier or converter that reads node `i`.
@@ -1286,7 +1320,7 @@ fn masking_finding(
         Side::Low => &f.pulls.down,
     };
     let on = match pull {
-        Some(volts) => format!(" ({} on `{}`)", pull_text(*volts), f.stage),
+        Some(pull) => format!(" ({} on `{}`)", pull_text(*pull), f.stage),
         None => String::new(),
     };
     let drive = match f.fault.kind {
