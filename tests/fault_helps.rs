@@ -149,6 +149,15 @@ fn same(a: &Value, b: &Value) -> bool {
         .all(|k| a[k] == b[k])
 }
 
+/// The help of the first finding coded `code`.
+fn help_of(fs: &[Value], code: &str) -> String {
+    fs.iter()
+        .find(|f| f["code"] == code)
+        .and_then(|f| f["help"].as_str())
+        .unwrap_or_else(|| panic!("no {code}: {fs:?}"))
+        .to_string()
+}
+
 fn is_fault_finding(f: &Value) -> bool {
     f["code"].as_str().is_some_and(|c| c.starts_with("R67"))
 }
@@ -324,12 +333,7 @@ fn an_open_excitation_lead_asks_for_sensing_not_a_pull() {
 #[test]
 fn a_pin_drawing_a_large_bias_current_takes_a_smaller_pull() {
     let path = root().join("tests/fixtures/faults/open_pin_large_bias.catena");
-    let before = findings(&path, None);
-    let help = before
-        .iter()
-        .find(|f| f["code"] == "R671")
-        .and_then(|f| f["help"].as_str())
-        .unwrap_or_else(|| panic!("no R671: {before:?}"));
+    let help = help_of(&findings(&path, None), "R671");
     assert!(help.contains("(`pull 100 kohm to 0 V`)"), "{help}");
     let text = std::fs::read_to_string(&path).expect("the fixture");
     let pulled = text.replace(
@@ -359,14 +363,7 @@ fn a_pin_drawing_a_large_bias_current_takes_a_smaller_pull() {
 #[test]
 fn an_alarm_asks_for_the_pull_toward_its_trip() {
     let path = root().join("tests/fixtures/faults/open_pin_high_alarm.catena");
-    let help_of = |fs: &[Value]| -> String {
-        fs.iter()
-            .find(|f| f["code"] == "R672")
-            .and_then(|f| f["help"].as_str())
-            .unwrap_or_else(|| panic!("no R672: {fs:?}"))
-            .to_string()
-    };
-    let help = help_of(&findings(&path, None));
+    let help = help_of(&findings(&path, None), "R672");
     assert!(
         help.contains("up-scale (`pull 1 Mohm to 5 V` on `conv`)"),
         "{help}"
@@ -390,7 +387,7 @@ fn an_alarm_asks_for_the_pull_toward_its_trip() {
         run.stdout
     );
     let low = text.replace("alarm high 80 degC", "alarm low 5 degC");
-    let help = help_of(&findings(&path, Some(&low)));
+    let help = help_of(&findings(&path, Some(&low)), "R672");
     assert!(
         help.contains("down-scale (`pull 1 Mohm to 0 V` on `conv`)"),
         "{help}"

@@ -833,7 +833,7 @@ fn pull_down_fix(pulls: ScalePulls) -> String {
     }
 }
 
-/// [`ScalePulls`] of an open input: each of [`PULL_OHMS`] to 0 V and to the top of
+/// [`ScalePulls`] of an open input: the largest of [`PULL_OHMS`] to 0 V and to the top of
 /// what the stage states its pins may take (a converter's `rails`, an
 /// amplifier's `input` range), each kept where every code it gives lies
 /// on one side of the valid window.

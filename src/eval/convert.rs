@@ -571,18 +571,14 @@ impl Conversion {
         x: f64,
         cj: Option<f64>,
     ) -> Env {
-        let cold_junction = self.firmware_junction(values, env, x, cj);
-        match self.variable {
-            Senses::Measurand => Env {
-                measurand: x,
-                ambient: chain.reference(),
-                cold_junction,
-            },
-            Senses::ColdJunction => Env {
-                measurand: env.measurand,
-                ambient: chain.reference(),
-                cold_junction,
-            },
+        let measurand = match self.variable {
+            Senses::Measurand => x,
+            Senses::ColdJunction => env.measurand,
+        };
+        Env {
+            measurand,
+            ambient: chain.reference(),
+            cold_junction: self.firmware_junction(values, env, x, cj),
         }
     }
 
@@ -1430,6 +1426,7 @@ mod tests {
         let below = clipped.x_at(1000.0).expect("the cubic below");
         assert!(below > 1.2 && below < xs[1], "{below}");
 
+        // IEC 60751's A and B over 0 … 800 °C.
         let curve: Vec<f64> = (0..101)
             .map(|k| {
                 100.0 * (1.0 + 3.9083e-3 * k as f64 * 8.0 - 5.775e-7 * (k as f64 * 8.0).powi(2))

@@ -64,7 +64,7 @@ pub fn format_source(text: &str) -> String {
 }
 
 /// Splits off a `#` comment that is not inside a string.
-fn split_comment(line: &str) -> (&str, Option<&str>) {
+pub fn split_comment(line: &str) -> (&str, Option<&str>) {
     let mut in_string = false;
     let mut escaped = false;
     for (i, c) in line.char_indices() {

@@ -8,6 +8,7 @@ use serde::Serialize;
 use crate::diagnostics::{SourceFile, Span};
 use crate::model::value::{Measure, ParamValue, Tolerance};
 use crate::model::{Chain, Connection, RequirementKind, Side, Stage};
+use crate::syntax::format::split_comment;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "snake_case")]
@@ -45,7 +46,8 @@ fn locate(file: &SourceFile, spec: &SourceFile, span: Span) -> Located {
         .get(span.start..span.end)
         .unwrap_or_default()
         .lines()
-        .map(without_comment)
+        // What the model reads: a line's comment is no part of a change.
+        .map(|line| split_comment(line).0)
         .flat_map(str::split_whitespace)
         .collect::<Vec<_>>()
         .join(" ");
@@ -54,22 +56,6 @@ fn locate(file: &SourceFile, spec: &SourceFile, span: Span) -> Located {
         file: (file.name() != spec.name()).then(|| file.name().to_string()),
         line: file.line_column(span.start).0,
     }
-}
-
-/// A line of spec text up to its comment (a `#` outside a string): the
-/// text a change shows is what the model reads.
-fn without_comment(line: &str) -> &str {
-    let (mut in_string, mut escaped) = (false, false);
-    for (i, c) in line.char_indices() {
-        match c {
-            _ if escaped => escaped = false,
-            '\\' if in_string => escaped = true,
-            '"' => in_string = !in_string,
-            '#' if !in_string => return &line[..i],
-            _ => {}
-        }
-    }
-    line
 }
 
 /// Every change from `old` to `new`, in the order of the new text.
@@ -337,7 +323,11 @@ fn tolerance(t: &Tolerance) -> Tolerance {
 
 #[cfg(test)]
 mod tests {
-    use super::without_comment;
+    use crate::syntax::format::split_comment;
+
+    fn without_comment(line: &str) -> &str {
+        split_comment(line).0
+    }
 
     /// A change shows what the model reads: a trailing comment goes, a
     /// `#` inside a string (escaped quotes and all) stays.

@@ -129,11 +129,7 @@ fn verdict(out: &mut String, c: &ChainReport) {
         v.limits.len(),
         v.faults.len()
     );
-    // A chain that trips is read for its safety first: its caution leads
-    // the verdict as well as closing the chain.
-    if c.cautions.iter().any(|x| x == PROTECTS) {
-        let _ = writeln!(out, "**Caution.** {PROTECTS}\n");
-    }
+    leading_caution(out, c);
     masked_trips(out, v);
     if !v.requirements.is_empty() {
         out.push_str("| requirement | method | required | achieved | margin | where | verdict |\n");
@@ -195,6 +191,14 @@ fn verdict(out: &mut String, c: &ChainReport) {
 
 /// The trips a hidden fault can mask, first after the verdict line: each
 /// is why a chain whose requirements all pass still fails.
+/// A chain that trips is read for its safety first: its caution leads
+/// the verdict as well as closing the chain.
+fn leading_caution(out: &mut String, c: &ChainReport) {
+    if c.cautions.iter().any(|x| x == PROTECTS) {
+        let _ = writeln!(out, "**Caution.** {PROTECTS}\n");
+    }
+}
+
 fn masked_trips(out: &mut String, v: &Verdict) {
     if v.masked_trips.is_empty() {
         return;

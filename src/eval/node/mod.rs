@@ -464,11 +464,7 @@ impl Plan {
             #[inline(always)]
             || {
                 self.kernel_lanes(run, out)?;
-                if out.finite() {
-                    Ok(())
-                } else {
-                    Err(Lost)
-                }
+                out.finite().then_some(()).ok_or(Lost)
             },
         )
     }
