@@ -14,9 +14,13 @@
 //! output at counter t of that stream (Steele, Lea and Flood, "Fast
 //! splittable pseudorandom number generators", OOPSLA 2014). Normals come
 //! from Wichura's AS 241 inverse of the normal CDF (PPND16, accurate to
-//! about 1e-16), so one draw is one uniform.
+//! about 1e-16), so one draw is one uniform; its tails take the
+//! logarithm of `physics::log`, the C library's algorithm to the bit in
+//! plain arithmetic, so a batch's tails vectorise and no draw depends on
+//! which build of the library a machine runs.
 
 use crate::eval::{Env, LANES};
+use crate::physics::log;
 
 /// The SplitMix64 increment (2⁶⁴ over the golden ratio, odd).
 const GOLDEN: u64 = 0x9E37_79B9_7F4A_7C15;
@@ -100,7 +104,8 @@ impl Stream {
 
 /// [`normal_of`] of each of a batch's bits, to the bit: the central
 /// region's rational function over every lane at once, which vectorises,
-/// then the few lanes in the tails (15 %) one at a time.
+/// then the lanes in the tails (15 %) gathered together and taken
+/// [`TAIL_GROUP`] at a time, which vectorises too.
 #[inline(always)]
 pub fn normals_of(bits: &[u64; LANES], out: &mut [f64; LANES]) {
     let mut p = [0.0; LANES];
@@ -112,10 +117,56 @@ pub fn normals_of(bits: &[u64; LANES], out: &mut [f64; LANES]) {
         *z = central_quantile(q);
     }
     if tail {
-        for (z, &p) in out.iter_mut().zip(&p) {
-            if (p - 0.5).abs() > CENTRAL {
-                *z = inverse_normal_cdf(p);
-            }
+        tails_of(&p, out);
+    }
+}
+
+/// Tail lanes a group: a batch's few (about five of 32) in one group
+/// nearly always.
+const TAIL_GROUP: usize = 8;
+
+/// [`inverse_normal_cdf`] of the lanes of `p` in the tails, into `out`:
+/// their indices gathered without a branch, their quantiles worked out a
+/// group at a time (a group not full is filled with a tail value whose
+/// answers are dropped), and put back.
+#[inline(always)]
+fn tails_of(p: &[f64; LANES], out: &mut [f64; LANES]) {
+    let mut lanes = [0; LANES];
+    let mut count = 0;
+    for (k, &p) in p.iter().enumerate() {
+        lanes[count] = k;
+        count += usize::from((p - 0.5).abs() > CENTRAL);
+    }
+    for group in lanes[..count].chunks(TAIL_GROUP) {
+        let mut at = [0.01; TAIL_GROUP];
+        for (at, &k) in at.iter_mut().zip(group) {
+            *at = p[k];
+        }
+        let mut z = [0.0; TAIL_GROUP];
+        tail_quantiles(&at, &mut z);
+        for (&z, &k) in z.iter().zip(group) {
+            out[k] = z;
+        }
+    }
+}
+
+/// [`inverse_normal_cdf`] of each of `p`, all in the tails, lane by lane
+/// alike: the logarithm's table path and the intermediate region's
+/// rational function over every lane, then the rare lanes beyond either
+/// (below about 10⁻¹¹ from an end) alone.
+#[inline(always)]
+fn tail_quantiles(p: &[f64; TAIL_GROUP], out: &mut [f64; TAIL_GROUP]) {
+    let mut rare = false;
+    for (z, &p) in out.iter_mut().zip(p) {
+        let end = p.min(1.0 - p);
+        let r = (-log::table_path(end)).sqrt();
+        rare |= !log::on_table(end) | (r > 5.0);
+        let x = rational(r - 1.6, &as241::INTERMEDIATE_NUM, &as241::INTERMEDIATE_DEN);
+        *z = if p - 0.5 < 0.0 { -x } else { x };
+    }
+    if rare {
+        for (z, &p) in out.iter_mut().zip(p) {
+            *z = inverse_normal_cdf(p);
         }
     }
 }
@@ -181,7 +232,7 @@ pub fn inverse_normal_cdf(p: f64) -> f64 {
     if q.abs() <= CENTRAL {
         return central_quantile(q);
     }
-    let r = (-(p.min(1.0 - p)).ln()).sqrt();
+    let r = (-log::ln(p.min(1.0 - p))).sqrt();
     let x = if r <= 5.0 {
         rational(r - 1.6, &as241::INTERMEDIATE_NUM, &as241::INTERMEDIATE_DEN)
     } else {
@@ -385,6 +436,46 @@ mod tests {
         // |z| > 1.439 is |p − ½| > 0.425: Φ(1.4395) = 0.925, from a
         // standard normal table (recalled from memory); 15 % of 3.2·10⁵.
         assert!(tails > 40_000, "{tails} draws in the tails");
+    }
+
+    /// Lanes at the draws' extremes (p = 2⁻⁵⁴ and 1 − 2⁻⁵⁴, and about
+    /// 10⁻¹², beyond AS 241's intermediate region), and more tail lanes
+    /// than one group holds: each lane's own normal, on both builds.
+    #[test]
+    fn a_batch_of_extreme_and_many_tail_lanes_is_each_lanes_normal() {
+        use crate::eval::wide;
+        let at = |p: f64| ((p * (1u64 << 53) as f64) as u64) << 11;
+        let mut bits = [0; LANES];
+        for (k, b) in bits.iter_mut().enumerate() {
+            *b = match k % 6 {
+                0 => 0,
+                1 => u64::MAX,
+                2 => at(1e-12),
+                3 => at(1.0 - 1e-12),
+                4 => at(0.01 + k as f64 * 1e-3),
+                _ => at(0.5 + k as f64 * 1e-3),
+            };
+        }
+        let (mut wide_z, mut portable_z) = ([0.0; LANES], [0.0; LANES]);
+        wide::run(
+            #[inline(always)]
+            || normals_of(&bits, &mut wide_z),
+        );
+        wide::portable(|| normals_of(&bits, &mut portable_z));
+        for (k, &b) in bits.iter().enumerate() {
+            let one = normal_of(b).to_bits();
+            assert_eq!(wide_z[k].to_bits(), one, "lane {k}");
+            assert_eq!(portable_z[k].to_bits(), one, "lane {k}");
+        }
+        // Φ⁻¹(2⁻⁵⁴) = −8.292361075813595 and Φ⁻¹(10⁻¹²) = −7.034483825301132
+        // (Python's `statistics.NormalDist().inv_cdf`, also AS 241); the
+        // second lane's p is 10⁻¹² to the draws' step of 2⁻⁵³.
+        assert!((wide_z[0] + 8.292_361_075_813_595).abs() < 1e-12);
+        assert!(
+            (wide_z[2] + 7.034_483_825_301_132).abs() < 1e-4,
+            "{}",
+            wide_z[2]
+        );
     }
 
     /// Uniform moments over 10⁵ draws: mean ½ and variance 1/12 to

@@ -5,6 +5,7 @@ pub mod adc;
 pub mod constants;
 pub mod exp;
 pub mod filter;
+pub mod log;
 pub mod noise;
 pub mod rtd;
 pub mod sampling;
