@@ -342,6 +342,22 @@ impl InverseTable {
         Some(t + ZERO_CELSIUS_K)
     }
 
+    /// [`InverseTable::x_at`] of each lane's code into `out`; which lanes
+    /// it answered (a lane it did not keeps its value). A batch's lookups
+    /// are independent: a loop of them alone overlaps their loads, where
+    /// each lane's use of its answer in the same loop would wait on it.
+    #[inline(always)]
+    fn x_at_lanes(&self, codes: &[f64; LANES], out: &mut [f64; LANES]) -> [bool; LANES] {
+        let mut answered = [false; LANES];
+        for (k, &code) in codes.iter().enumerate() {
+            if let Some(x) = self.x_at(code) {
+                out[k] = x;
+                answered[k] = true;
+            }
+        }
+        answered
+    }
+
     /// Monotone cubic Hermite interpolation of x at `code` (None outside).
     #[inline(always)]
     fn x_at(&self, code: f64) -> Option<f64> {
@@ -660,14 +676,13 @@ impl Conversion {
             return answered;
         };
         match table.stands_for {
-            TableUse::Complete => {
-                for (k, &code) in codes.iter().enumerate() {
-                    answer(k, table.x_at(code));
-                }
-            }
+            TableUse::Complete => return table.x_at_lanes(codes, out),
             TableUse::Junction { ty, reference_mv } => {
                 let junctions = self.firmware_junctions(lane, env, cj);
                 let junction_mv = junction_emfs.at(ty, &junctions);
+                if let Some(tables) = &table.junction {
+                    return self.junction_lanes(tables, codes, junction_mv, reference_mv, out);
+                }
                 for (k, &code) in codes.iter().enumerate() {
                     let x = table
                         .x_at_junction(code, junction_mv[k], ty, reference_mv)
@@ -676,6 +691,38 @@ impl Conversion {
                 }
             }
             TableUse::Start => {}
+        }
+        answered
+    }
+
+    /// [`InverseTable::x_at_junction`] of each lane through the junction
+    /// tables, within the domain, into `out`; which lanes it answered. A
+    /// lane whose EMF table or junction does not answer looks up NaN,
+    /// which the temperature table does not answer either.
+    #[inline(always)]
+    fn junction_lanes(
+        &self,
+        tables: &JunctionTables,
+        codes: &[f64; LANES],
+        junction_mv: &[Option<f64>; LANES],
+        reference_mv: f64,
+        out: &mut [f64; LANES],
+    ) -> [bool; LANES] {
+        let mut emfs = [0.0; LANES];
+        let found = tables.emf.x_at_lanes(codes, &mut emfs);
+        for (k, emf) in emfs.iter_mut().enumerate() {
+            *emf = match (found[k], junction_mv[k]) {
+                (true, Some(junction)) => *emf - reference_mv + junction,
+                _ => f64::NAN,
+            };
+        }
+        let mut temperatures = [0.0; LANES];
+        let mut answered = tables.temperature.x_at_lanes(&emfs, &mut temperatures);
+        for (k, &t) in temperatures.iter().enumerate() {
+            answered[k] &= (self.domain.0..=self.domain.1).contains(&t);
+            if answered[k] {
+                out[k] = t;
+            }
         }
         answered
     }
