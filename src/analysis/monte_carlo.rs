@@ -743,10 +743,14 @@ fn variance_shares(
     (columns, own): (&[&mut [u8]], &[&mut [u8]]),
     errors: &[&mut [f64]],
 ) -> Vec<Vec<Share>> {
-    use super::shares::{first_order_columns, first_order_recorded, CenteredGroup};
-    let columns: Vec<&[u8]> = columns.iter().map(|c| &**c).collect();
+    use super::shares::{first_order_columns, first_order_recorded, CellColumn, CenteredGroup};
     let runs: Vec<&[f64]> = errors.iter().map(|e| &**e).collect();
-    let cells = super::shares::cells(runs.first().map_or(0, |r| r.len()));
+    let trials = runs.first().map_or(0, |r| r.len());
+    let cells = super::shares::cells(trials);
+    let columns: Vec<CellColumn> = columns
+        .par_iter()
+        .map(|c| CellColumn::new(c, trials))
+        .collect();
     let groups: Vec<CenteredGroup> = runs.par_chunks(GROUP).map(CenteredGroup::new).collect();
     let own_passes: Vec<usize> = (0..own.len()).filter(|&o| !own[o].is_empty()).collect();
     let (by_group, by_own): (Vec<Vec<[f64; GROUP]>>, Vec<f64>) = rayon::join(

@@ -184,14 +184,33 @@ fn first_order_recorded_kernel(y: &CenteredGroup, g: usize, column: &[u8], cells
     index_from(n, total, &count[..cells], &sum[..cells])
 }
 
+/// A source's recorded cells (trial t's at `cells[t]`) and how many
+/// trials each cell holds: the same for every run, so counted once for
+/// all of them rather than in each group's pass.
+pub struct CellColumn<'a> {
+    cells: &'a [u8],
+    count: [u32; MAX_CELLS],
+}
+
+impl<'a> CellColumn<'a> {
+    /// The column of the first `n` trials of `cells`.
+    pub fn new(cells: &'a [u8], n: usize) -> CellColumn<'a> {
+        let cells = &cells[..n.min(cells.len())];
+        let mut count = [0; MAX_CELLS];
+        for &cell in cells {
+            count[usize::from(cell)] += 1;
+        }
+        CellColumn { cells, count }
+    }
+}
+
 /// [`first_order`] of every run of `y` for each source whose cells the
-/// Monte Carlo recorded while drawing (`columns[k][t]`, trial t's cell):
-/// the same sums in the same order, each cell's sum of every run's
-/// deviations gathered in one pass over the trials (a cell's count is
-/// the same for every run).
+/// Monte Carlo recorded while drawing (`columns[k]`): the same sums in
+/// the same order, each cell's sum of every run's deviations gathered in
+/// one pass over the trials.
 pub fn first_order_columns(
     y: &CenteredGroup,
-    columns: &[&[u8]],
+    columns: &[CellColumn],
     cells: usize,
 ) -> Vec<[f64; GROUP]> {
     wide::run(
@@ -203,15 +222,15 @@ pub fn first_order_columns(
 #[inline(always)]
 fn first_order_columns_kernel(
     y: &CenteredGroup,
-    columns: &[&[u8]],
+    columns: &[CellColumn],
     cells: usize,
 ) -> Vec<[f64; GROUP]> {
-    if cells > MAX_CELLS {
+    if cells > MAX_CELLS || columns.iter().any(|c| c.cells.len() < y.n) {
         return columns
             .iter()
             .map(|column| {
                 std::array::from_fn(|g| {
-                    first_order_by(&y.run(g), cells, |t| usize::from(column[t]))
+                    first_order_by(&y.run(g), cells, |t| usize::from(column.cells[t]))
                 })
             })
             .collect();
@@ -219,25 +238,24 @@ fn first_order_columns_kernel(
     // Trials a block: each column's sums stay in cache while the block's
     // rows are read once a column.
     const BLOCK: usize = 1024;
-    let mut count = vec![[0u32; MAX_CELLS]; columns.len()];
     let mut sum = vec![[[0.0; GROUP]; MAX_CELLS]; columns.len()];
     let mut block = vec![[0.0; GROUP]; BLOCK];
     for start in (0..y.n).step_by(BLOCK) {
         let len = y.rows(start, &mut block);
         let rows = &block[..len];
-        for ((column, count), sum) in columns.iter().zip(&mut count).zip(&mut sum) {
-            for (&cell, row) in column[start..start + rows.len()].iter().zip(rows) {
-                // A byte indexes tables of MAX_CELLS entries: no bounds check.
-                let cell = usize::from(cell);
-                count[cell] += 1;
-                // Written whole, so the additions go two to an instruction.
-                let s = &mut sum[cell];
+        for (column, sum) in columns.iter().zip(&mut sum) {
+            for (&cell, row) in column.cells[start..start + rows.len()].iter().zip(rows) {
+                // A byte indexes tables of MAX_CELLS entries: no bounds
+                // check. Written whole, so the additions go four to an
+                // instruction.
+                let s = &mut sum[usize::from(cell)];
                 *s = std::array::from_fn(|g| s[g] + row[g]);
             }
         }
     }
-    count
+    columns
         .iter()
+        .map(|column| &column.count)
         .zip(&sum)
         .map(|(count, sum)| {
             std::array::from_fn(|g| {
@@ -356,15 +374,15 @@ mod tests {
             .collect();
         let slices: Vec<&[f64]> = runs.iter().map(Vec::as_slice).collect();
         let group = CenteredGroup::new(&slices);
-        let columns: Vec<&[u8]> = columns.iter().map(Vec::as_slice).collect();
-        let grouped = first_order_columns(&group, &columns, cells);
+        let counted: Vec<CellColumn> = columns.iter().map(|c| CellColumn::new(c, n)).collect();
+        let grouped = first_order_columns(&group, &counted, cells);
         for (g, run) in runs.iter().enumerate() {
             let alone = Centered::new(run);
             assert_eq!(group.totals[g].to_bits(), alone.total.to_bits());
             for (k, &st) in s.iter().enumerate() {
                 let want = first_order(&alone, st, cells).to_bits();
                 assert_eq!(grouped[k][g].to_bits(), want, "run {g} source {k}");
-                let recorded = first_order_recorded(&group, g, columns[k], cells);
+                let recorded = first_order_recorded(&group, g, &columns[k], cells);
                 assert_eq!(recorded.to_bits(), want);
             }
         }
