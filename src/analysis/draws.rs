@@ -104,38 +104,42 @@ impl Stream {
 
 /// [`normal_of`] of each of a batch's bits, to the bit: the central
 /// region's rational function over every lane at once, which vectorises,
-/// then the lanes in the tails (15 %) gathered together and taken
-/// [`TAIL_GROUP`] at a time, which vectorises too.
+/// then the lanes in the tails (15 %), marked a bit a lane, gathered
+/// together and taken [`TAIL_GROUP`] at a time, which vectorises too.
 #[inline(always)]
 pub fn normals_of(bits: &[u64; LANES], out: &mut [f64; LANES]) {
     let mut p = [0.0; LANES];
-    let mut tail = false;
-    for ((z, p), &bits) in out.iter_mut().zip(&mut p).zip(bits) {
+    let mut tails = 0u64;
+    for (k, ((z, p), &bits)) in out.iter_mut().zip(&mut p).zip(bits).enumerate() {
         *p = open_uniform_of(bits);
         let q = *p - 0.5;
-        tail |= q.abs() > CENTRAL;
+        tails |= u64::from(q.abs() > CENTRAL) << k;
         *z = central_quantile(q);
     }
-    if tail {
-        tails_of(&p, out);
+    if tails != 0 {
+        tails_of(&p, tails, out);
     }
 }
+
+// A batch's tail lanes are the bits of a u64.
+const _: () = assert!(LANES <= 64);
 
 /// Tail lanes a group: a batch's few (about five of 32) in one group
 /// nearly always.
 const TAIL_GROUP: usize = 8;
 
-/// [`inverse_normal_cdf`] of the lanes of `p` in the tails, into `out`:
-/// their indices gathered without a branch, their quantiles worked out a
-/// group at a time (a group not full is filled with a tail value whose
-/// answers are dropped), and put back.
+/// [`inverse_normal_cdf`] of the lanes of `p` in the tails (bit k of
+/// `tails` set for lane k), into `out`: their indices read off the bits,
+/// their quantiles worked out a group at a time (a group not full is
+/// filled with a tail value whose answers are dropped), and put back.
 #[inline(always)]
-fn tails_of(p: &[f64; LANES], out: &mut [f64; LANES]) {
+fn tails_of(p: &[f64; LANES], mut tails: u64, out: &mut [f64; LANES]) {
     let mut lanes = [0; LANES];
     let mut count = 0;
-    for (k, &p) in p.iter().enumerate() {
-        lanes[count] = k;
-        count += usize::from((p - 0.5).abs() > CENTRAL);
+    while tails != 0 {
+        lanes[count] = tails.trailing_zeros() as usize;
+        tails &= tails - 1;
+        count += 1;
     }
     for group in lanes[..count].chunks(TAIL_GROUP) {
         let mut at = [0.01; TAIL_GROUP];
