@@ -202,6 +202,11 @@ impl<'a> CellColumn<'a> {
         }
         CellColumn { cells, count }
     }
+
+    /// The cells of trials `start .. start + len`.
+    fn span(&self, start: usize, len: usize) -> &'a [u8] {
+        &self.cells[start..start + len]
+    }
 }
 
 /// [`first_order`] of every run of `y` for each source whose cells the
@@ -243,13 +248,21 @@ fn first_order_columns_kernel(
     for start in (0..y.n).step_by(BLOCK) {
         let len = y.rows(start, &mut block);
         let rows = &block[..len];
-        for (column, sum) in columns.iter().zip(&mut sum) {
-            for (&cell, row) in column.cells[start..start + rows.len()].iter().zip(rows) {
-                // A byte indexes tables of MAX_CELLS entries: no bounds
-                // check. Written whole, so the additions go four to an
-                // instruction.
-                let s = &mut sum[usize::from(cell)];
-                *s = std::array::from_fn(|g| s[g] + row[g]);
+        // Two columns a pass: their sums are independent, so each row's
+        // additions into the two overlap.
+        let mut pairs = columns.chunks_exact(2).zip(sum.chunks_exact_mut(2));
+        for (pair, sums) in &mut pairs {
+            let [first, second] = sums else { continue };
+            let (a, b) = (pair[0].span(start, len), pair[1].span(start, len));
+            for ((&a, &b), row) in a.iter().zip(b).zip(rows) {
+                add_row(&mut first[usize::from(a)], row);
+                add_row(&mut second[usize::from(b)], row);
+            }
+        }
+        let paired = columns.len() / 2 * 2;
+        for (column, sum) in columns[paired..].iter().zip(&mut sum[paired..]) {
+            for (&cell, row) in column.span(start, len).iter().zip(rows) {
+                add_row(&mut sum[usize::from(cell)], row);
             }
         }
     }
@@ -268,6 +281,14 @@ fn first_order_columns_kernel(
             })
         })
         .collect()
+}
+
+/// A row of deviations added into a cell's sums, written whole so the
+/// additions go four to an instruction. (A cell is a byte, and the
+/// tables hold MAX_CELLS cells: no bounds check.)
+#[inline(always)]
+fn add_row(sum: &mut [f64; GROUP], row: &[f64; GROUP]) {
+    *sum = std::array::from_fn(|g| sum[g] + row[g]);
 }
 
 fn first_order_by(y: &Centered, cells: usize, cell: impl Fn(usize) -> usize) -> f64 {
