@@ -203,6 +203,10 @@ pub struct LaneColumns {
     pub(super) last: Option<RunKey>,
     /// The main conversion's junction EMFs, kept from point to point.
     pub(super) junction_emfs: JunctionEmfs,
+    /// The last thermocouple EMF at a condition's cold junction: the
+    /// couple's node, the junction temperature's bits, the EMF. Points of
+    /// one ambient share it.
+    pub(super) junction_mv: Option<(NodeId, u64, Option<f64>)>,
 }
 
 /// What a node's column depends on besides the values and the measurand:
@@ -234,6 +238,7 @@ impl Default for LaneColumns {
             loaded: None,
             last: None,
             junction_emfs: JunctionEmfs::default(),
+            junction_mv: None,
         }
     }
 }

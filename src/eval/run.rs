@@ -736,6 +736,7 @@ impl Plan {
             nodes,
             values: slots,
             last,
+            junction_mv: kept_junction,
             ..
         } = columns;
         for i in self.reach(reach) {
@@ -751,12 +752,34 @@ impl Plan {
                 env,
                 s: before,
                 mode,
-                junction_mv: self.junction_mv(i, env),
+                junction_mv: self.junction_mv_kept(i, env, kept_junction),
             };
             self.finite_node_lanes(&run, &mut after[0])?;
         }
         *last = Some(key);
         Ok(())
+    }
+
+    /// [`Plan::junction_mv`], kept in `kept` from one condition to the
+    /// next with the same cold junction (a polynomial and an exponential
+    /// a batch and point otherwise).
+    fn junction_mv_kept(
+        &self,
+        i: NodeId,
+        env: &Env,
+        kept: &mut Option<(NodeId, u64, Option<f64>)>,
+    ) -> Option<f64> {
+        let junction = env.cold_junction.to_bits();
+        if let Some((node, bits, mv)) = *kept {
+            if node == i && bits == junction {
+                return mv;
+            }
+        }
+        let mv = self.junction_mv(i, env);
+        if mv.is_some() {
+            *kept = Some((i, junction, mv));
+        }
+        mv
     }
 
     /// What depends on the condition alone, worked out once for all
