@@ -193,9 +193,10 @@ pub struct CellColumn<'a> {
 }
 
 impl<'a> CellColumn<'a> {
-    /// The column of the first `n` trials of `cells`.
+    /// The column of the first `n` trials of `cells` (which records at
+    /// least that many).
     pub fn new(cells: &'a [u8], n: usize) -> CellColumn<'a> {
-        let cells = &cells[..n.min(cells.len())];
+        let cells = &cells[..n];
         let mut count = [0; MAX_CELLS];
         for &cell in cells {
             count[usize::from(cell)] += 1;
@@ -230,7 +231,7 @@ fn first_order_columns_kernel(
     columns: &[CellColumn],
     cells: usize,
 ) -> Vec<[f64; GROUP]> {
-    if cells > MAX_CELLS || columns.iter().any(|c| c.cells.len() < y.n) {
+    if cells > MAX_CELLS {
         return columns
             .iter()
             .map(|column| {

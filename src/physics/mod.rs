@@ -7,6 +7,8 @@ pub mod exp;
 pub mod filter;
 pub mod log;
 pub mod noise;
+#[cfg(test)]
+mod reference_bits;
 pub mod rtd;
 pub mod sampling;
 pub mod semiconductor;
