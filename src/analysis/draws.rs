@@ -100,6 +100,14 @@ impl Stream {
             *bits = self.bits(t0 + k as u64);
         }
     }
+
+    /// The random bits of trials `t0 ..`, as many as `out` holds.
+    #[inline(always)]
+    pub fn bits_from(self, t0: u64, out: &mut [u64]) {
+        for (k, bits) in out.iter_mut().enumerate() {
+            *bits = self.bits(t0 + k as u64);
+        }
+    }
 }
 
 /// [`normal_of`] of each of a batch's bits, to the bit: the central
@@ -109,47 +117,86 @@ impl Stream {
 #[inline(always)]
 pub fn normals_of(bits: &[u64; LANES], out: &mut [f64; LANES]) {
     let mut p = [0.0; LANES];
+    let mut tails = central_of(bits, &mut p, out);
+    let mut lanes = [0; LANES];
+    let mut count = 0;
+    while tails != 0 {
+        lanes[count] = tails.trailing_zeros() as u16;
+        tails &= tails - 1;
+        count += 1;
+    }
+    tails_of(&p, &lanes[..count], out);
+}
+
+/// Draws a span: what [`normals_each`] takes at once.
+pub const SPAN: usize = 256;
+
+/// [`normal_of`] of each of `bits` (at most [`SPAN`]) into `out`, as
+/// long, to the bit: the central region a batch at a time, then the tail
+/// lanes of the whole span together, so their groups of [`TAIL_GROUP`]
+/// are full but for the last (a batch's five or so fill one group by
+/// half).
+#[inline(always)]
+pub fn normals_each(bits: &[u64], out: &mut [f64]) {
+    assert!(bits.len() <= SPAN && out.len() == bits.len());
+    let mut p = [0.0; SPAN];
+    let mut lanes = [0; SPAN];
+    let mut count = 0;
+    let batches = bits.chunks(LANES).zip(out.chunks_mut(LANES));
+    for (b, (bits, out)) in batches.enumerate() {
+        // A short batch is filled with draws at the centre, dropped after.
+        let (mut batch, mut z) = ([1 << 63; LANES], [0.0; LANES]);
+        batch[..bits.len()].copy_from_slice(bits);
+        let p = (&mut p[b * LANES..(b + 1) * LANES]).try_into();
+        let mut tails = central_of(&batch, p.expect("a whole batch"), &mut z);
+        out.copy_from_slice(&z[..out.len()]);
+        while tails != 0 {
+            lanes[count] = (b * LANES) as u16 + tails.trailing_zeros() as u16;
+            tails &= tails - 1;
+            count += 1;
+        }
+    }
+    tails_of(&p, &lanes[..count], out);
+}
+
+// A span's lanes fit a u16, a batch's tail lanes the bits of a u64, and
+// a span is whole batches.
+const _: () = assert!(SPAN <= 1 << 16 && LANES <= 64 && SPAN.is_multiple_of(LANES));
+
+/// Each lane's open uniform into `p` and its quantile into `out` where
+/// it lies in AS 241's central region; the lanes beyond it (the tails),
+/// a bit a lane.
+#[inline(always)]
+fn central_of(bits: &[u64; LANES], p: &mut [f64; LANES], out: &mut [f64; LANES]) -> u64 {
     let mut tails = 0u64;
-    for (k, ((z, p), &bits)) in out.iter_mut().zip(&mut p).zip(bits).enumerate() {
+    for (k, ((z, p), &bits)) in out.iter_mut().zip(p).zip(bits).enumerate() {
         *p = open_uniform_of(bits);
         let q = *p - 0.5;
         tails |= u64::from(q.abs() > CENTRAL) << k;
         *z = central_quantile(q);
     }
-    if tails != 0 {
-        tails_of(&p, tails, out);
-    }
+    tails
 }
 
-// A batch's tail lanes are the bits of a u64.
-const _: () = assert!(LANES <= 64);
-
-/// Tail lanes a group: a batch's few (about five of 32) in one group
-/// nearly always.
+/// Tail lanes a group: a span's 38 or so in five groups, a batch's five
+/// or so in one.
 const TAIL_GROUP: usize = 8;
 
-/// [`inverse_normal_cdf`] of the lanes of `p` in the tails (bit k of
-/// `tails` set for lane k), into `out`: their indices read off the bits,
-/// their quantiles worked out a group at a time (a group not full is
-/// filled with a tail value whose answers are dropped), and put back.
+/// [`inverse_normal_cdf`] of the lanes `lanes` of `p` (all in the tails)
+/// into the same lanes of `out`: their quantiles worked out a group at a
+/// time (a group not full is filled with a tail value whose answers are
+/// dropped).
 #[inline(always)]
-fn tails_of(p: &[f64; LANES], mut tails: u64, out: &mut [f64; LANES]) {
-    let mut lanes = [0; LANES];
-    let mut count = 0;
-    while tails != 0 {
-        lanes[count] = tails.trailing_zeros() as usize;
-        tails &= tails - 1;
-        count += 1;
-    }
-    for group in lanes[..count].chunks(TAIL_GROUP) {
+fn tails_of(p: &[f64], lanes: &[u16], out: &mut [f64]) {
+    for group in lanes.chunks(TAIL_GROUP) {
         let mut at = [0.01; TAIL_GROUP];
         for (at, &k) in at.iter_mut().zip(group) {
-            *at = p[k];
+            *at = p[usize::from(k)];
         }
         let mut z = [0.0; TAIL_GROUP];
         tail_quantiles(&at, &mut z);
         for (&z, &k) in z.iter().zip(group) {
-            out[k] = z;
+            out[usize::from(k)] = z;
         }
     }
 }
@@ -225,6 +272,19 @@ pub fn cell_of(bits: u64, cells: usize) -> usize {
     match u64::try_from(cells) {
         Ok(few) if few <= 1 << 11 => ((top * few) >> 53) as usize,
         _ => ((u128::from(top) * cells as u128) >> 53) as usize,
+    }
+}
+
+/// [`cell_of`] of each of `bits` among `cells` into `out`, a byte a cell
+/// (so at most 256 cells): the bound tested once, not in the loop, which
+/// then vectorises.
+#[inline(always)]
+pub fn cells_of(bits: &[u64], cells: usize, out: &mut [u8]) {
+    assert!(cells <= 256);
+    let few = cells as u64;
+    for (cell, &bits) in out.iter_mut().zip(bits) {
+        // cell_of's one-multiply form, to the same cell.
+        *cell = (((bits >> 11) * few) >> 53) as u8;
     }
 }
 
@@ -440,6 +500,54 @@ mod tests {
         // |z| > 1.439 is |p − ½| > 0.425: Φ(1.4395) = 0.925, from a
         // standard normal table (recalled from memory); 15 % of 3.2·10⁵.
         assert!(tails > 40_000, "{tails} draws in the tails");
+    }
+
+    /// A span of normals is each trial's own, on both builds, at every
+    /// length from none to a whole span (short batches filled and their
+    /// fill dropped), and where every lane lies in a tail (more groups
+    /// than a batch ever fills, the last one not full).
+    #[test]
+    fn a_span_of_normals_is_each_trials_normal() {
+        use crate::eval::wide;
+        let s = Stream::new(5, "conv.noise", 2);
+        let mut bits = [0; SPAN];
+        s.bits_from(1_000, &mut bits);
+        let tail_bits: Vec<u64> = (0..1_000_000)
+            .map(|t| s.bits(t))
+            .filter(|&b| (open_uniform_of(b) - 0.5).abs() > CENTRAL)
+            .take(SPAN - 3)
+            .collect();
+        let spans = (0..=SPAN).map(|n| bits[..n].to_vec()).chain([tail_bits]);
+        for bits in spans {
+            let n = bits.len();
+            let (mut wide_z, mut portable_z) = (vec![f64::NAN; n], vec![f64::NAN; n]);
+            wide::run(
+                #[inline(always)]
+                || normals_each(&bits, &mut wide_z),
+            );
+            wide::portable(|| normals_each(&bits, &mut portable_z));
+            for (k, &b) in bits.iter().enumerate() {
+                let one = normal_of(b).to_bits();
+                assert_eq!(wide_z[k].to_bits(), one, "lane {k} of {n}");
+                assert_eq!(portable_z[k].to_bits(), one, "lane {k} of {n}");
+            }
+        }
+    }
+
+    /// Each lane's cell is [`cell_of`]'s, at every count of cells a byte
+    /// holds, the draws' extremes included.
+    #[test]
+    fn a_run_of_cells_is_each_draws_cell() {
+        let s = Stream::source(9, "r1.r");
+        let mut bits: Vec<u64> = (0..4_000).map(|t| s.bits(t)).collect();
+        bits.extend([0, u64::MAX, 1 << 63, (1 << 63) - 1]);
+        let mut cells = vec![0; bits.len()];
+        for count in 1..=256 {
+            cells_of(&bits, count, &mut cells);
+            for (&c, &b) in cells.iter().zip(&bits) {
+                assert_eq!(usize::from(c), cell_of(b, count), "{b:#x} of {count}");
+            }
+        }
     }
 
     /// Lanes at the draws' extremes (p = 2⁻⁵⁴ and 1 − 2⁻⁵⁴, and about

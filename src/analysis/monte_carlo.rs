@@ -11,7 +11,9 @@
 use rayon::prelude::*;
 
 use super::budget::Point;
-use super::draws::{cell_of, condition_key, normals_of, uniforms_of, Stream};
+use super::draws::{
+    cells_of, condition_key, normals_each, normals_of, uniform_of, uniforms_of, Stream, SPAN,
+};
 use super::noise::Noise;
 use super::shares::GROUP;
 use super::tails::{order_statistics, Ranks};
@@ -406,10 +408,7 @@ impl Cells<'_> {
     fn record_each(&mut self, column: usize, bits: &[u64]) {
         let (at, count) = (self.at, self.count);
         if let Some(cells) = self.columns.get_mut(column) {
-            for (cell, &bits) in cells[at..at + bits.len()].iter_mut().zip(bits) {
-                // At most MAX_CELLS (256) cells: the index fits a byte.
-                *cell = cell_of(bits, count) as u8;
-            }
+            cells_of(bits, count, &mut cells[at..at + bits.len()]);
         }
     }
 
@@ -419,9 +418,7 @@ impl Cells<'_> {
         let (at, count) = (self.at, self.count);
         if let Some(cells) = self.own.get_mut(c * OWN_COLUMNS + which) {
             if let Some(cells) = cells.get_mut(at..at + bits.len()) {
-                for (cell, &bits) in cells.iter_mut().zip(bits) {
-                    *cell = cell_of(bits, count) as u8;
-                }
+                cells_of(bits, count, cells);
             }
         }
     }
@@ -803,7 +800,8 @@ struct Block<'a> {
 impl Block<'_> {
     /// The errors of trials `first ..` at every condition into `outs` (one
     /// buffer a condition, all as long): each trial's values drawn and its
-    /// calibration worked out once, then read at every condition. A
+    /// calibration worked out once, then read at every condition; then
+    /// each condition's noise and quantization over all its trials. A
     /// condition stops at its first failure.
     fn errors(
         &self,
@@ -839,25 +837,34 @@ impl Block<'_> {
                 }
                 let out = &mut out[start..start + count];
                 let known = calibration.as_ref().ok().map(|()| &calibrated);
-                *result = self.block(at, &values, known, t0, out, &mut lanes, cells);
+                *result = self.block(at, &values, known, out, &mut lanes);
             }
+        }
+        let conditions = at.iter().enumerate().zip(outs.iter_mut());
+        for (at, out) in conditions
+            .zip(&outcome)
+            .filter(|(_, r)| r.is_ok())
+            .map(|(c, _)| c)
+        {
+            wide::run(
+                #[inline(always)]
+                || self.add_reading_errors(at, first as u64, out, cells),
+            );
         }
         outcome
     }
 
-    /// One block of trials from `t0` at one condition into `out`. Without
-    /// a calibration (it failed in some lane) each lane runs whole, so the
-    /// error is the one a single run meets first.
-    #[allow(clippy::too_many_arguments)]
+    /// One block of trials at one condition into `out`: each reading less
+    /// the true value. Without a calibration (it failed in some lane)
+    /// each lane runs whole, so the error is the one a single run meets
+    /// first.
     fn block(
         &self,
-        (c, at): (usize, &At),
+        (_, at): (usize, &At),
         batch: &Batch,
         calibrated: Option<&[Calibrated; LANES]>,
-        t0: u64,
         out: &mut [f64],
         lanes: &mut Lanes,
-        cells: &mut Cells,
     ) -> Result<(), EvalError> {
         let (plan, env) = (self.plan, &at.condition.env);
         let (slots, values) = (plan.nominal.len(), batch.rows());
@@ -885,51 +892,55 @@ impl Block<'_> {
                 }
             }
         }
-        wide::run(
-            #[inline(always)]
-            || self.add_reading_errors((c, at), env, t0, readings, out, cells),
-        );
+        for (error, reading) in out.iter_mut().zip(readings) {
+            *error = *reading - env.measurand;
+        }
         Ok(())
     }
 
-    /// Each lane's error at the condition into `out`: its reading less the
-    /// true value, with the noise and quantization of that one reading.
+    /// What noise and quantization add to the errors `out` of trials `t0
+    /// ..` at one condition, a span of trials at a time: their draws in
+    /// bulk (the normals' tails gathered over the span) and their cells
+    /// recorded. Each error gains its noise, then its quantization, as
+    /// `reading − true + noise + quantization` adds them.
     #[inline(always)]
     fn add_reading_errors(
         &self,
         (c, at): (usize, &At),
-        env: &Env,
         t0: u64,
-        readings: &[f64; LANES],
         out: &mut [f64],
         cells: &mut Cells,
     ) {
-        let (condition, reading) = (at.condition, at.reading);
-        let (mut z, mut q) = ([0.0; LANES], [0.0; LANES]);
-        let mut bits = [0; LANES];
-        if let Some(s) = reading.noise {
-            s.bits_each(t0, &mut bits);
-            normals_of(&bits, &mut z);
-            cells.record_own(c, 0, &bits[..out.len()]);
-        }
-        if let Some(s) = reading.quantization {
-            s.bits_each(t0, &mut bits);
-            uniforms_of(&bits, &mut q);
-            cells.record_own(c, 1, &bits[..out.len()]);
-            for q in q.iter_mut() {
-                *q -= 0.5;
+        let reading = at.reading;
+        let (below, above) = at.condition.quantization_slopes();
+        let sigma = self.noise.sigma_averaged;
+        let (mut bits, mut x) = ([0; SPAN], [0.0; SPAN]);
+        for (s, out) in out.chunks_mut(SPAN).enumerate() {
+            let (n, first) = (out.len(), s * SPAN);
+            let t = t0 + first as u64;
+            cells.at = first;
+            // Absent, a stream adds zero, as it always has.
+            x[..n].fill(0.0);
+            if let Some(stream) = reading.noise {
+                stream.bits_from(t, &mut bits[..n]);
+                normals_each(&bits[..n], &mut x[..n]);
+                cells.record_own(c, 0, &bits[..n]);
+            }
+            for (error, z) in out.iter_mut().zip(&x) {
+                *error += z * sigma;
+            }
+            x[..n].fill(0.0);
+            if let Some(stream) = reading.quantization {
+                stream.bits_from(t, &mut bits[..n]);
+                cells.record_own(c, 1, &bits[..n]);
+                for (q, &bits) in x.iter_mut().zip(&bits[..n]) {
+                    *q = uniform_of(bits) - 0.5;
+                }
+            }
+            for (error, &q) in out.iter_mut().zip(&x) {
+                *error += q * if q < 0.0 { below } else { above };
             }
         }
-        // Every lane (a fixed count, which vectorises), then the ones used.
-        let (below, above) = condition.quantization_slopes();
-        let mut errors = [0.0; LANES];
-        for lane in 0..LANES {
-            let q = q[lane];
-            errors[lane] = readings[lane] - env.measurand
-                + z[lane] * self.noise.sigma_averaged
-                + q * if q < 0.0 { below } else { above };
-        }
-        out.copy_from_slice(&errors[..out.len()]);
     }
 }
 
