@@ -27,7 +27,9 @@ pub(super) enum Tag {
 
 /// A node's signal in every lane. `x` is the main value (a voltage's
 /// differential value, a code's exact value); `cm` and `rs` belong to a
-/// voltage, `code` to a code.
+/// voltage, `code` to a code, rounded only in a run that quantizes
+/// ([`Mode`]'s `quantized`; an unquantized run reads the exact code and
+/// leaves `code` as it was).
 #[derive(Clone, Copy, Debug, Default)]
 pub(super) struct Column {
     pub tag: Tag,

@@ -251,7 +251,10 @@ impl Adc {
     }
 
     /// [`Adc::code_of`] over a whole column, for a converter that
-    /// combines no other channel: the same arithmetic, lane by lane.
+    /// combines no other channel: the same arithmetic, lane by lane. The
+    /// rounded codes only where the run reads them (quantized): a Monte
+    /// Carlo trial's reading takes the exact code and draws the
+    /// quantization apart, and rounding is a third of the loop.
     #[inline(always)]
     fn codes_lanes(&self, run: &LaneRun<'_>, input: &Column, vr: &[f64; LANES], out: &mut Column) {
         let gain = self.gains_lanes(run);
@@ -287,16 +290,20 @@ impl Adc {
         out.tag = Tag::Code;
         for k in 0..LANES {
             let off = off[k] + bias[k];
-            let exact = adc::exact_code(x[k] + off, gain[k], vr[k], per_ref, off_codes[k], inl[k]);
-            out.x[k] = exact;
-            out.code[k] = round_code(exact, lo, hi);
+            out.x[k] = adc::exact_code(x[k] + off, gain[k], vr[k], per_ref, off_codes[k], inl[k]);
+        }
+        if run.mode.quantized {
+            for k in 0..LANES {
+                out.code[k] = round_code(out.x[k], lo, hi);
+            }
         }
     }
 
     /// [`Adc::combine_with`] for a sum, over whole columns: `out` holds
     /// this channel's own codes and takes the sum's. The codes add as
     /// integers, which is what the single run's sum of whole numbers
-    /// rounds to (each code is within ±2³², so the sum is exact).
+    /// rounds to (each code is within ±2³², so the sum is exact), where
+    /// the run rounds them at all.
     #[inline(always)]
     fn summed_lanes(
         &self,
@@ -316,7 +323,11 @@ impl Adc {
             ended_lanes(&mut e, lo, hi);
             for k in 0..LANES {
                 exact[k] += e[k];
-                out.code[k] += other.code[k];
+            }
+            if run.mode.quantized {
+                for k in 0..LANES {
+                    out.code[k] += other.code[k];
+                }
             }
         }
         if !lanes::all_finite(&exact) {
