@@ -745,7 +745,9 @@ fn variance_shares(
     (columns, own): (&[&mut [u8]], &[&mut [u8]]),
     errors: &[&mut [f64]],
 ) -> Vec<Vec<Share>> {
-    use super::shares::{first_order_columns, first_order_recorded, CellColumn, CenteredGroup};
+    use super::shares::{
+        first_order_columns, first_order_recorded, CellColumn, CenteredGroup, ColumnSpace,
+    };
     let runs: Vec<&[f64]> = errors.iter().map(|e| &**e).collect();
     let trials = runs.first().map_or(0, |r| r.len());
     let cells = super::shares::cells(trials);
@@ -759,7 +761,9 @@ fn variance_shares(
         || {
             groups
                 .par_iter()
-                .map(|group| first_order_columns(group, &columns, cells))
+                .map_init(ColumnSpace::default, |space, group| {
+                    first_order_columns(group, &columns, cells, space)
+                })
                 .collect()
         },
         || {

@@ -218,11 +218,26 @@ pub fn first_order_columns(
     y: &CenteredGroup,
     columns: &[CellColumn],
     cells: usize,
+    space: &mut ColumnSpace,
 ) -> Vec<[f64; GROUP]> {
     wide::run(
         #[inline(always)]
-        || first_order_columns_kernel(y, columns, cells),
+        || first_order_columns_kernel(y, columns, cells, space),
     )
+}
+
+/// The working space of [`first_order_columns`]: each column's sums by
+/// cell and a block of rows, kept from one group of runs to the next.
+/// The sums' table has room for [`MAX_CELLS`] cells a column, so a cell's
+/// byte indexes it with no bounds check; only the cells in use are
+/// written, so only their pages are ever mapped (written whole, the
+/// table's 16 KiB a column were a fault a small page: 290 of the feed
+/// silo's 1 600).
+#[derive(Default)]
+pub struct ColumnSpace {
+    /// Each column's table, `MAX_CELLS` rows of `GROUP`, one after another.
+    sum: Vec<f64>,
+    block: Vec<[f64; GROUP]>,
 }
 
 #[inline(always)]
@@ -230,6 +245,7 @@ fn first_order_columns_kernel(
     y: &CenteredGroup,
     columns: &[CellColumn],
     cells: usize,
+    space: &mut ColumnSpace,
 ) -> Vec<[f64; GROUP]> {
     if cells > MAX_CELLS {
         return columns
@@ -244,10 +260,21 @@ fn first_order_columns_kernel(
     // Trials a block: each column's sums stay in cache while the block's
     // rows are read once a column.
     const BLOCK: usize = 1024;
-    let mut sum = vec![[[0.0; GROUP]; MAX_CELLS]; columns.len()];
-    let mut block = vec![[0.0; GROUP]; BLOCK];
+    let ColumnSpace { sum, block } = space;
+    let table = MAX_CELLS * GROUP;
+    if sum.len() < columns.len() * table {
+        // Zeroed by mapping (a vector of zeros of a plain number is), not
+        // written: only the cells in use are ever touched.
+        *sum = vec![0.0; columns.len() * table];
+    }
+    let (sum, _) = sum[..columns.len() * table].as_chunks_mut::<GROUP>();
+    let (sum, _) = sum.as_chunks_mut::<MAX_CELLS>();
+    for sum in sum.iter_mut() {
+        sum[..cells].fill([0.0; GROUP]);
+    }
+    block.resize(BLOCK, [0.0; GROUP]);
     for start in (0..y.n).step_by(BLOCK) {
-        let len = y.rows(start, &mut block);
+        let len = y.rows(start, block);
         let rows = &block[..len];
         // Two columns a pass: their sums are independent, so each row's
         // additions into the two overlap.
@@ -270,14 +297,15 @@ fn first_order_columns_kernel(
     columns
         .iter()
         .map(|column| &column.count)
-        .zip(&sum)
+        .zip(sum.iter())
         .map(|(count, sum)| {
             std::array::from_fn(|g| {
                 let usable = g < y.runs.len() && usable_of(y.n, y.totals[g], cells);
                 if !usable {
                     return 0.0;
                 }
-                let run: [f64; MAX_CELLS] = std::array::from_fn(|c| sum[c][g]);
+                let run: [f64; MAX_CELLS] =
+                    std::array::from_fn(|c| if c < cells { sum[c][g] } else { 0.0 });
                 index_from(y.n, y.totals[g], &count[..cells], &run[..cells])
             })
         })
@@ -397,7 +425,7 @@ mod tests {
         let slices: Vec<&[f64]> = runs.iter().map(Vec::as_slice).collect();
         let group = CenteredGroup::new(&slices);
         let counted: Vec<CellColumn> = columns.iter().map(|c| CellColumn::new(c, n)).collect();
-        let grouped = first_order_columns(&group, &counted, cells);
+        let grouped = first_order_columns(&group, &counted, cells, &mut ColumnSpace::default());
         for (g, run) in runs.iter().enumerate() {
             let alone = Centered::new(run);
             assert_eq!(group.totals[g].to_bits(), alone.total.to_bits());
