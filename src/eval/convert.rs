@@ -382,16 +382,24 @@ fn junction_emf_mv(ty: ThermocoupleType, cj: f64) -> Option<f64> {
     thermocouple::emf_mv(ty, cj - ZERO_CELSIUS_K).ok()
 }
 
+/// A number, None for NaN.
+fn number(x: f64) -> Option<f64> {
+    (!x.is_nan()).then_some(x)
+}
+
 /// Each lane's junction EMF ([`junction_emf_mv`]), kept while the lanes'
 /// junction temperatures repeat: a thermocouple chain's cold-junction
 /// branch reads the same at every point of one ambient
 /// ([`Plan::measurand_free`](super::plan::Plan)), and the EMF is a
-/// polynomial and an exponential a lane.
+/// polynomial and an exponential a lane. NaN stands for none (a junction
+/// the type does not reach): a column of plain numbers, which the
+/// lookups' arithmetic takes four at a time, and a NaN shifts an EMF to
+/// NaN, which no table answers.
 #[derive(Clone, Debug, Default)]
 pub struct JunctionEmfs {
     ty: Option<ThermocoupleType>,
     junctions: [f64; LANES],
-    emf_mv: [Option<f64>; LANES],
+    emf_mv: [f64; LANES],
 }
 
 impl JunctionEmfs {
@@ -399,7 +407,7 @@ impl JunctionEmfs {
     /// lookups read them in place, and the test that they still hold is a
     /// comparison of bits over the lanes, which vectorises.
     #[inline(always)]
-    fn at(&mut self, ty: ThermocoupleType, junctions: &[f64; LANES]) -> &[Option<f64>; LANES] {
+    fn at(&mut self, ty: ThermocoupleType, junctions: &[f64; LANES]) -> &[f64; LANES] {
         let same = self
             .junctions
             .iter()
@@ -420,8 +428,8 @@ impl JunctionEmfs {
         let celsius = junctions.map(|cj| cj - ZERO_CELSIUS_K);
         let mut emf_mv = [0.0; LANES];
         self.emf_mv = match thermocouple::emf_mv_each(ty, &celsius, &mut emf_mv) {
-            Ok(()) => emf_mv.map(Some),
-            Err(_) => junctions.map(|cj| junction_emf_mv(ty, cj)),
+            Ok(()) => emf_mv,
+            Err(_) => junctions.map(|cj| junction_emf_mv(ty, cj).unwrap_or(f64::NAN)),
         };
         self.junctions = *junctions;
         self.ty = Some(ty);
@@ -685,7 +693,7 @@ impl Conversion {
                 }
                 for (k, &code) in codes.iter().enumerate() {
                     let x = table
-                        .x_at_junction(code, junction_mv[k], ty, reference_mv)
+                        .x_at_junction(code, number(junction_mv[k]), ty, reference_mv)
                         .filter(|x| (self.domain.0..=self.domain.1).contains(x));
                     answer(k, x);
                 }
@@ -704,17 +712,16 @@ impl Conversion {
         &self,
         tables: &JunctionTables,
         codes: &[f64; LANES],
-        junction_mv: &[Option<f64>; LANES],
+        junction_mv: &[f64; LANES],
         reference_mv: f64,
         out: &mut [f64; LANES],
     ) -> [bool; LANES] {
         let mut emfs = [0.0; LANES];
         let found = tables.emf.x_at_lanes(codes, &mut emfs);
         for (k, emf) in emfs.iter_mut().enumerate() {
-            *emf = match (found[k], junction_mv[k]) {
-                (true, Some(junction)) => *emf - reference_mv + junction,
-                _ => f64::NAN,
-            };
+            // A junction's NaN (none) shifts the EMF to NaN too.
+            let shifted = *emf - reference_mv + junction_mv[k];
+            *emf = if found[k] { shifted } else { f64::NAN };
         }
         let mut temperatures = [0.0; LANES];
         let mut answered = tables.temperature.x_at_lanes(&emfs, &mut temperatures);
@@ -1359,20 +1366,20 @@ mod tests {
     #[test]
     fn junction_emfs_follow_their_junctions() {
         use ThermocoupleType::{J, K};
-        let fresh = |ty, t: &[f64; LANES]| t.map(|cj| junction_emf_mv(ty, cj));
+        let fresh = |ty, t: &[f64; LANES]| t.map(|cj| junction_emf_mv(ty, cj).map(f64::to_bits));
         let at_25 = [ZERO_CELSIUS_K + 25.0; LANES];
         let mut one_warmer = at_25;
         one_warmer[3] += 1.0;
         let mut kept = JunctionEmfs::default();
         for (ty, junctions) in [(K, at_25), (K, at_25), (K, one_warmer), (J, one_warmer)] {
-            assert_eq!(*kept.at(ty, &junctions), fresh(ty, &junctions));
+            let at = kept
+                .at(ty, &junctions)
+                .map(|e| super::number(e).map(f64::to_bits));
+            assert_eq!(at, fresh(ty, &junctions));
         }
         // Type K at 25 °C: 1.000 mV (IEC 60584-1 table, recalled).
-        assert!((kept.at(K, &at_25)[0].unwrap() - 1.000).abs() < 0.001);
-        assert!(
-            kept.at(K, &[0.0; LANES])[0].is_none(),
-            "0 K is below type K"
-        );
+        assert!((kept.at(K, &at_25)[0] - 1.000).abs() < 0.001);
+        assert!(kept.at(K, &[0.0; LANES])[0].is_nan(), "0 K is below type K");
     }
 
     /// A domain bisected to where a type K chain still evaluates ends a
