@@ -226,12 +226,13 @@ pub struct EvenTable {
 }
 
 impl EvenTable {
-    /// The temperature (K) of a couple's EMF (mV) over `span` (K) at
-    /// evenly spaced EMFs, one of them 0 mV (0 °C, where the reference
-    /// functions change polynomial, so no step straddles the join); None
-    /// where it reads further than [`EVEN_ACCURACY_K`] from the couple's
-    /// inverse (type B's flat start, type N's join at 0 °C) or cannot be
-    /// made.
+    /// The temperature (K) of a couple's EMF (mV) at evenly spaced EMFs
+    /// over the longest stretch of `span` (K) where it reads the couple's
+    /// inverse to within [`EVEN_ACCURACY_K`] (short of the cold end's
+    /// steepest curve, or type B's flat start), one of them 0 mV where
+    /// the span holds it (0 °C, where the reference functions change
+    /// polynomial, so no step straddles the join); None where that
+    /// stretch is not most of the span, or the table cannot be made.
     fn of_couple(
         ty: ThermocoupleType,
         span: (f64, f64),
@@ -291,19 +292,7 @@ impl EvenTable {
     /// The table of `xs` at `ys` (evenly spaced, rising), dx/dy `slopes`.
     fn new(ys: &[f64], xs: &[f64], slopes: &[f64]) -> EvenTable {
         let n = ys.len();
-        let cubics = (1..n)
-            .map(|k| {
-                let h = ys[k] - ys[k - 1];
-                let (x0, x1, m0, m1) = (xs[k - 1], xs[k], slopes[k - 1], slopes[k]);
-                let secant = (x1 - x0) / h;
-                [
-                    x0,
-                    m0,
-                    (3.0 * secant - 2.0 * m0 - m1) / h,
-                    (m0 + m1 - 2.0 * secant) / (h * h),
-                ]
-            })
-            .collect();
+        let cubics = hermite_cubics(ys, xs, slopes);
         EvenTable {
             first: ys[0],
             per_step: (n - 1) as f64 / (ys[n - 1] - ys[0]),
@@ -343,9 +332,9 @@ impl EvenTable {
 const EVEN_POINTS: usize = 2049;
 /// Points of the one at evenly spaced temperatures, searched.
 const SEARCHED_POINTS: usize = 1025;
-/// How far the even table may read from the couple's inverse, K, at any
-/// of three points inside each step: no further than the searched table
-/// reads for the common types (about 1.3 µK for type K over its range).
+/// How far the even table may read from the couple's inverse, K, halfway
+/// along each step: no further than the searched table reads for the
+/// common types (about 1.3 µK for type K over its range).
 const EVEN_ACCURACY_K: f64 = 1e-6;
 /// How far beyond the domain it reaches, K: the shift a cold junction
 /// away from the reference makes.
@@ -423,6 +412,24 @@ impl TemperatureTable {
     }
 }
 
+/// Each segment's cubic Hermite polynomial of x in (y − its first y),
+/// through both ends with their slopes dx/dy, lowest order first.
+fn hermite_cubics(ys: &[f64], xs: &[f64], slopes: &[f64]) -> Vec<[f64; 4]> {
+    (1..ys.len())
+        .map(|k| {
+            let h = ys[k] - ys[k - 1];
+            let (x0, x1, m0, m1) = (xs[k - 1], xs[k], slopes[k - 1], slopes[k]);
+            let secant = (x1 - x0) / h;
+            [
+                x0,
+                m0,
+                (3.0 * secant - 2.0 * m0 - m1) / h,
+                (m0 + m1 - 2.0 * secant) / (h * h),
+            ]
+        })
+        .collect()
+}
+
 /// Where the longest run of `true` in `v` starts, and how long it is.
 fn longest_run(v: &[bool]) -> (usize, usize) {
     let (mut best, mut start) = ((0, 0), 0);
@@ -489,19 +496,7 @@ impl InverseTable {
         stands_for: TableUse,
     ) -> InverseTable {
         let buckets = Buckets::new(&codes);
-        let cubics = (1..codes.len())
-            .map(|k| {
-                let h = codes[k] - codes[k - 1];
-                let (x0, x1, m0, m1) = (xs[k - 1], xs[k], slopes[k - 1], slopes[k]);
-                let secant = (x1 - x0) / h;
-                [
-                    x0,
-                    m0,
-                    (3.0 * secant - 2.0 * m0 - m1) / h,
-                    (m0 + m1 - 2.0 * secant) / (h * h),
-                ]
-            })
-            .collect();
+        let cubics = hermite_cubics(&codes, &xs, &slopes);
         InverseTable {
             line: Line::around_middle(&xs, &codes),
             xs,
