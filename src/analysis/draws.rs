@@ -96,9 +96,7 @@ impl Stream {
     /// The random bits of trials `t0 ..`, a batch's worth.
     #[inline(always)]
     pub fn bits_each(self, t0: u64, out: &mut [u64; LANES]) {
-        for (k, bits) in out.iter_mut().enumerate() {
-            *bits = self.bits(t0 + k as u64);
-        }
+        self.bits_from(t0, out);
     }
 
     /// The random bits of trials `t0 ..`, as many as `out` holds.
@@ -117,14 +115,9 @@ impl Stream {
 #[inline(always)]
 pub fn normals_of(bits: &[u64; LANES], out: &mut [f64; LANES]) {
     let mut p = [0.0; LANES];
-    let mut tails = central_of(bits, &mut p, out);
-    let mut lanes = [0; LANES];
-    let mut count = 0;
-    while tails != 0 {
-        lanes[count] = tails.trailing_zeros() as u16;
-        tails &= tails - 1;
-        count += 1;
-    }
+    let tails = central_of(bits, &mut p, out);
+    let (mut lanes, mut count) = ([0; LANES], 0);
+    mark_lanes(tails, 0, &mut lanes, &mut count);
     tails_of(&p, &lanes[..count], out);
 }
 
@@ -148,15 +141,22 @@ pub fn normals_each(bits: &[u64], out: &mut [f64]) {
         let (mut batch, mut z) = ([1 << 63; LANES], [0.0; LANES]);
         batch[..bits.len()].copy_from_slice(bits);
         let p = (&mut p[b * LANES..(b + 1) * LANES]).try_into();
-        let mut tails = central_of(&batch, p.expect("a whole batch"), &mut z);
+        let tails = central_of(&batch, p.expect("a whole batch"), &mut z);
         out.copy_from_slice(&z[..out.len()]);
-        while tails != 0 {
-            lanes[count] = (b * LANES) as u16 + tails.trailing_zeros() as u16;
-            tails &= tails - 1;
-            count += 1;
-        }
+        mark_lanes(tails, (b * LANES) as u16, &mut lanes, &mut count);
     }
     tails_of(&p, &lanes[..count], out);
+}
+
+/// The lanes whose bits are set in `tails`, each `first` on, appended to
+/// `lanes` from `count`.
+#[inline(always)]
+fn mark_lanes(mut tails: u64, first: u16, lanes: &mut [u16], count: &mut usize) {
+    while tails != 0 {
+        lanes[*count] = first + tails.trailing_zeros() as u16;
+        tails &= tails - 1;
+        *count += 1;
+    }
 }
 
 // A span's lanes fit a u16, a batch's tail lanes the bits of a u64, and

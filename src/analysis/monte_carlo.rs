@@ -846,7 +846,7 @@ impl Block<'_> {
                 }
                 let out = &mut out[start..start + count];
                 let known = calibration.as_ref().ok().map(|()| &calibrated);
-                *result = self.block(at, &values, known, out, &mut lanes);
+                *result = self.block(at.1, &values, known, out, &mut lanes);
             }
         }
         let conditions = at.iter().enumerate().zip(outs.iter_mut());
@@ -869,7 +869,7 @@ impl Block<'_> {
     /// first.
     fn block(
         &self,
-        (_, at): (usize, &At),
+        at: &At,
         batch: &Batch,
         calibrated: Option<&[Calibrated; LANES]>,
         out: &mut [f64],

@@ -304,6 +304,8 @@ fn first_order_columns_kernel(
                 if !usable {
                     return 0.0;
                 }
+                // Cells past those in use are never written, nor read:
+                // their pages stay unmapped.
                 let run: [f64; MAX_CELLS] =
                     std::array::from_fn(|c| if c < cells { sum[c][g] } else { 0.0 });
                 index_from(y.n, y.totals[g], &count[..cells], &run[..cells])

@@ -269,9 +269,9 @@ impl EvenTable {
         // The longest run of steps that read the couple, if it is most of
         // the span (the rest is left to the search).
         let reads: Vec<bool> = (0..n - 1).map(|k| whole.step_reads(k, ty)).collect();
-        let (first, len) = longest_run(&reads);
+        let (from, len) = longest_run(&reads);
         (2 * len >= n - 1).then(|| {
-            let points = first..first + len + 1;
+            let points = from..from + len + 1;
             EvenTable::new(&es[points.clone()], &ts[points.clone()], &per_mv[points])
         })
     }
@@ -317,15 +317,32 @@ impl EvenTable {
 
     #[inline(always)]
     fn x_at_lanes(&self, ys: &[f64; LANES], out: &mut [f64; LANES]) -> [bool; LANES] {
-        let mut answered = [false; LANES];
-        for (k, &y) in ys.iter().enumerate() {
-            if let Some(x) = self.x_at(y) {
-                out[k] = x;
-                answered[k] = true;
-            }
-        }
-        answered
+        answer_lanes(
+            ys,
+            out,
+            #[inline(always)]
+            |y| self.x_at(y),
+        )
     }
+}
+
+/// `x_at` of each lane into `out`; which lanes it answered (a lane it did
+/// not keeps its value). `x_at` must be inlined (`#[inline(always)]` on
+/// the closure), or it is built for the baseline, out of the kernel.
+#[inline(always)]
+fn answer_lanes(
+    ys: &[f64; LANES],
+    out: &mut [f64; LANES],
+    x_at: impl Fn(f64) -> Option<f64>,
+) -> [bool; LANES] {
+    let mut answered = [false; LANES];
+    for (k, &y) in ys.iter().enumerate() {
+        if let Some(x) = x_at(y) {
+            out[k] = x;
+            answered[k] = true;
+        }
+    }
+    answered
 }
 
 /// Points of the EMF-to-temperature table at evenly spaced EMFs.
@@ -539,14 +556,12 @@ impl InverseTable {
     /// each lane's use of its answer in the same loop would wait on it.
     #[inline(always)]
     fn x_at_lanes(&self, codes: &[f64; LANES], out: &mut [f64; LANES]) -> [bool; LANES] {
-        let mut answered = [false; LANES];
-        for (k, &code) in codes.iter().enumerate() {
-            if let Some(x) = self.x_at(code) {
-                out[k] = x;
-                answered[k] = true;
-            }
-        }
-        answered
+        answer_lanes(
+            codes,
+            out,
+            #[inline(always)]
+            |code| self.x_at(code),
+        )
     }
 
     /// Monotone cubic Hermite interpolation of x at `code` (None outside).

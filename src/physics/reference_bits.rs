@@ -8,6 +8,21 @@ pub fn bits(cell: &str) -> u64 {
     u64::from_str_radix(cell.trim_start_matches("0x"), 16).expect("hex")
 }
 
+/// A table of 128 pairs of bits (`table[2i]`, `table[2i + 1]`) against
+/// a fixture whose row i after the header is `i,first,second` in
+/// hexadecimal; `names` says which is which in a failure.
+pub fn assert_table_is(csv: &str, table: &[u64], names: [&str; 2]) {
+    let rows: Vec<&str> = csv.lines().skip(1).collect();
+    assert_eq!(rows.len(), 128);
+    assert_eq!(table.len(), 2 * rows.len());
+    for (i, row) in rows.iter().enumerate() {
+        let cells: Vec<&str> = row.split(',').collect();
+        assert_eq!(cells[0], i.to_string());
+        assert_eq!(table[2 * i], bits(cells[1]), "{} {i}", names[0]);
+        assert_eq!(table[2 * i + 1], bits(cells[2]), "{} {i}", names[1]);
+    }
+}
+
 /// `f` of each row's x against its correctly rounded value (a fixture of
 /// two hexadecimal cells, after a header): within one ulp everywhere, the
 /// rounded value in 995 rows of 1 000 at least, over more than
