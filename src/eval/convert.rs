@@ -653,19 +653,19 @@ fn segment(codes: &[f64], code: f64) -> usize {
 }
 
 /// Buckets per table point in [`Buckets`]: enough that a bucket rarely
-/// spans more than one table step where the code is densest.
+/// holds more than one table point where the code is densest.
 const BUCKETS_PER_POINT: usize = 4;
 
 /// [`segment`] in constant time for one table: the code span cut into
-/// equal buckets, each knowing the first table point it may start at.
-/// Every reading of every Monte Carlo trial looks up its code here, and a
-/// binary search over hundreds of points costs more than the arithmetic
-/// around it.
+/// equal buckets, each knowing how many table points lie before it and
+/// the one point inside it, if any. Every reading of every Monte Carlo
+/// trial looks up its code here, and a binary search over hundreds of
+/// points costs more than the arithmetic around it.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Buckets {
     first: f64,
     per_code: f64,
-    start: Vec<u32>,
+    buckets: Vec<Bucket>,
     /// 1 where the codes rise, −1 where they fall.
     sign: f64,
     /// −∞, `sign` × each code, +∞: rising whichever way the codes run,
@@ -674,60 +674,87 @@ pub struct Buckets {
     keys: Vec<f64>,
 }
 
+/// One bucket of [`Buckets`]: a code in it has `before` table points
+/// before it, one more if it lies past `inside`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct Bucket {
+    /// `sign` × the one table code in the bucket; +∞ for none, NaN for
+    /// more than one (the lookup then steps from `before`).
+    inside: f64,
+    before: u32,
+}
+
 impl Buckets {
     fn new(codes: &[f64]) -> Buckets {
         let n = codes.len();
         let count = BUCKETS_PER_POINT * n;
         let (first, last) = (codes[0], codes[n - 1]);
         let per_code = count as f64 / (last - first);
-        let start = (0..count)
-            .map(|j| segment(codes, first + j as f64 / per_code) as u32)
-            .collect();
         let sign = if last > first { 1.0 } else { -1.0 };
-        let keys = std::iter::once(f64::NEG_INFINITY)
+        let keys: Vec<f64> = std::iter::once(f64::NEG_INFINITY)
             .chain(codes.iter().map(|c| sign * c))
             .chain(std::iter::once(f64::INFINITY))
             .collect();
+        let mut buckets = vec![
+            Bucket {
+                inside: f64::INFINITY,
+                before: 0,
+            };
+            count
+        ];
+        // A code's bucket is its position rounded down, and the position
+        // (the same arithmetic as the lookup's) never decreases along the
+        // keys: a table point in an earlier bucket lies before every code
+        // of a later one, and only the points in a code's own bucket need
+        // comparing with it.
+        let mut placed = 0;
+        for (j, bucket) in buckets.iter_mut().enumerate() {
+            bucket.before = placed as u32;
+            while placed < n && Self::position(first, per_code, codes[placed]) < j as f64 + 1.0 {
+                let alone = bucket.inside == f64::INFINITY;
+                bucket.inside = if alone {
+                    sign * codes[placed]
+                } else {
+                    f64::NAN
+                };
+                placed += 1;
+            }
+        }
         Buckets {
             first,
             per_code,
-            start,
+            buckets,
             sign,
             keys,
         }
+    }
+
+    /// Where `code` lies in the buckets, in buckets from the first code.
+    #[inline(always)]
+    fn position(first: f64, per_code: f64, code: f64) -> f64 {
+        (code - first) * per_code
     }
 
     /// [`segment`]`(codes, code)` for the `codes` these buckets were made of.
     #[inline(always)]
     fn segment(&self, codes: &[f64], code: f64) -> usize {
         let key = self.sign * code;
-        let keys = &self.keys;
-        let position = (code - self.first) * self.per_code;
-        if !(position >= 0.0 && position < self.start.len() as f64) {
+        let position = Self::position(self.first, self.per_code, code);
+        if !(position >= 0.0 && position < self.buckets.len() as f64) {
             return segment(codes, code);
         }
-        // A bucket rarely spans more than one table step: the answer is
-        // its first point's or the next, taken without a branch. (The
-        // position is below the bucket count: a u32, whose conversion
-        // costs half a usize's.)
-        let start = self.start[position as u32 as usize] as usize;
-        let up = keys[start + 1] < key;
-        let k = start + usize::from(up);
-        // `k` codes lie before `code` where key k lies below it and key
-        // k + 1 not. The key between `start` and the next is one of the
-        // two, on its side: one more key tells, the one above the next
-        // if it was below, else the one below `start`. (Past the last
-        // code the next key is +∞, never below.)
-        let other = keys[start + 2 * usize::from(up)];
-        if (other >= key) == up {
-            return k;
+        // (The position is below the bucket count: a u32, whose
+        // conversion costs half a usize's.)
+        let bucket = self.buckets[position as u32 as usize];
+        let k = bucket.before as usize + usize::from(bucket.inside < key);
+        if bucket.inside.is_nan() {
+            return self.segment_near(codes, code, k);
         }
-        self.segment_near(codes, code, k)
+        k
     }
 
-    /// From `k`, a step or a few off (rounding may put a code a bucket
-    /// off, and a bucket may span steps where the codes crowd): step back,
-    /// then forward.
+    /// From `k`, a step or a few off (a bucket may hold several points
+    /// where the codes crowd): step back, then forward.
     #[cold]
     fn segment_near(&self, codes: &[f64], code: f64, mut k: usize) -> usize {
         let (key, keys, n) = (self.sign * code, &self.keys, codes.len());
@@ -1710,6 +1737,14 @@ mod tests {
             let buckets = Buckets::new(codes);
             for probe in (-12_000..=30_000).step_by(37).map(|p| p as f64) {
                 for code in [probe, codes[(probe.abs() as usize) % 50]] {
+                    assert_eq!(buckets.segment(codes, code), segment(codes, code), "{code}");
+                }
+            }
+            // Each code and its neighbouring numbers: a bucket's table
+            // point, or the edge between two buckets, decides by one bit.
+            let edges = (0..=buckets.buckets.len()).map(|j| codes[0] + j as f64 / buckets.per_code);
+            for c in codes.iter().copied().chain(edges) {
+                for code in [c.next_down(), c, c.next_up()] {
                     assert_eq!(buckets.segment(codes, code), segment(codes, code), "{code}");
                 }
             }
