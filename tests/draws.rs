@@ -58,6 +58,35 @@ fn adding_a_source_leaves_the_other_draws_alone() {
     assert_eq!(moved, 10, "the drift acts away from the reference");
 }
 
+/// A point keeps its draws, its reading's noise and quantization
+/// included, whatever other points a budget asks for: the points of a
+/// three-point budget (the range's ends and middle) read as they do in
+/// a five-point one.
+#[test]
+fn a_point_keeps_its_draws_whatever_the_other_points() {
+    let at_points = |points: &str| {
+        let dir = root().join("tests/fixtures/budget");
+        let args = [
+            "budget",
+            "stable_draws.catena",
+            "--format",
+            "json",
+            "--points",
+            points,
+            "--trials",
+            "4000",
+        ];
+        let run = catena(&dir, &args, None);
+        assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
+        let v = serde_json::from_str(&run.stdout).expect("json");
+        intervals(&v)
+    };
+    let (three, five) = (at_points("3"), at_points("5"));
+    let shared: Vec<_> = three.iter().filter(|p| five.contains(p)).collect();
+    assert_eq!(shared.len(), three.len(), "{three:?}\n{five:?}");
+    assert!(three.iter().all(|(_, mc)| !mc.starts_with("[0.0, 0.0]")));
+}
+
 /// Stating the stages and parameters in another order draws the same.
 #[test]
 fn reordering_a_spec_draws_the_same() {

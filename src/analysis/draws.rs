@@ -2,15 +2,14 @@
 //! (seed, the source's id, t), a counter-based generator rather than one
 //! stream shared by every source; the same at every condition, so a trial
 //! is one instance of the chain read at every point, and a calibration
-//! taken at the reference is worked out once a trial. Noise and
-//! quantization, which belong to one reading, are keyed by the
-//! condition's values too. Adding,
-//! removing or reordering sources, stages or chains therefore leaves
-//! every other source's draws bit-identical, and no result depends on how
-//! trials are split between threads.
+//! taken at the reference is worked out once a trial. A reading's noise
+//! and quantization draw so too, from streams of their own, scaled at
+//! each condition. Adding, removing or reordering sources, stages or
+//! chains therefore leaves every other source's draws bit-identical, and
+//! no result depends on how trials are split between threads.
 //!
 //! The key of a stream is FNV-1a (64-bit) of the source's id, mixed with
-//! the seed (and a reading's condition); the t-th draw is the SplitMix64
+//! the seed; the t-th draw is the SplitMix64
 //! output at counter t of that stream (Steele, Lea and Flood, "Fast
 //! splittable pseudorandom number generators", OOPSLA 2014). Normals come
 //! from Wichura's AS 241 inverse of the normal CDF (PPND16, accurate to
@@ -19,7 +18,7 @@
 //! plain arithmetic, so a batch's tails vectorise and no draw depends on
 //! which build of the library a machine runs.
 
-use crate::eval::{Env, LANES};
+use crate::eval::LANES;
 use crate::physics::log;
 
 /// The SplitMix64 increment (2⁶⁴ over the golden ratio, odd).
@@ -41,23 +40,16 @@ pub fn fnv1a(bytes: &[u8]) -> u64 {
     })
 }
 
-/// The key of a condition: its values, so a condition keeps its draws
-/// whatever other points a budget adds around it.
-pub fn condition_key(env: &Env) -> u64 {
-    [env.measurand, env.ambient, env.cold_junction]
-        .iter()
-        .fold(0x4D43_u64, |h, v| mix(h ^ v.to_bits()))
-}
-
-/// One source's stream at one condition.
+/// One source's stream.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Stream(u64);
 
 impl Stream {
-    /// The stream of the source called `id` at the condition keyed
-    /// `condition`, under the user's `seed`.
-    pub fn new(seed: u64, id: &str, condition: u64) -> Stream {
-        Stream(mix(mix(seed ^ fnv1a(id.as_bytes())) ^ mix(condition)))
+    /// The stream called `id` under `seed`, keyed by `key` too: tests'
+    /// streams, each apart.
+    #[cfg(test)]
+    pub fn new(seed: u64, id: &str, key: u64) -> Stream {
+        Stream(mix(mix(seed ^ fnv1a(id.as_bytes())) ^ mix(key)))
     }
 
     /// The stream of the source called `id` under the user's `seed`, the
@@ -595,12 +587,7 @@ mod tests {
     /// 2.5 % tail holding 2.5 %.
     #[test]
     fn draws_have_the_moments_of_their_distributions() {
-        let env = Env {
-            measurand: 300.0,
-            ambient: 298.15,
-            cold_junction: 298.15,
-        };
-        let s = Stream::new(1, "probe.r0", condition_key(&env));
+        let s = Stream::new(1, "probe.r0", 300);
         let n = 100_000;
         let u: Vec<f64> = (0..n).map(|t| s.uniform(t)).collect();
         let mean = u.iter().sum::<f64>() / n as f64;

@@ -11,9 +11,7 @@
 use rayon::prelude::*;
 
 use super::budget::Point;
-use super::draws::{
-    cells_of, condition_key, normals_each, normals_of, uniform_of, uniforms_of, Stream, SPAN,
-};
+use super::draws::{cells_of, normals_each, normals_of, uniform_of, uniforms_of, Stream, SPAN};
 use super::noise::Noise;
 use super::shares::GROUP;
 use super::tails::{order_statistics, Ranks};
@@ -173,6 +171,11 @@ impl Condition {
     fn quantization_slopes(&self) -> (f64, f64) {
         let (low, high) = self.quantization;
         (-2.0 * low, 2.0 * high)
+    }
+
+    /// Whether the code's steps move the reading here.
+    fn quantizes(&self) -> bool {
+        self.quantization != (0.0, 0.0)
     }
 }
 
@@ -382,22 +385,14 @@ enum Varies {
     Not,
     /// Recorded while drawing, in this column.
     Column(usize),
-    /// Recorded while drawing, in this one of the condition's own columns
-    /// ([`OWN_COLUMNS`]).
-    Own(usize),
 }
 
-/// Each condition's own streams whose cells are recorded: its reading's
-/// noise, then its quantization.
-const OWN_COLUMNS: usize = 2;
-
 /// A chunk's part of every recorded column of partition cells (none when
-/// no shares are asked for), from index `at` of the chunk: the sources'
-/// shared by every condition, and each condition's own
-/// ([`OWN_COLUMNS`] a condition, empty where its stream does not act).
+/// no shares are asked for), from index `at` of the chunk: the sources',
+/// then the reading's noise and quantization, each shared by every
+/// condition.
 struct Cells<'a> {
     columns: Vec<&'a mut [u8]>,
-    own: Vec<&'a mut [u8]>,
     count: usize,
     at: usize,
 }
@@ -411,43 +406,53 @@ impl Cells<'_> {
             cells_of(bits, count, &mut cells[at..at + bits.len()]);
         }
     }
-
-    /// Each lane's cell in condition `c`'s own column `which`, if recorded.
-    #[inline(always)]
-    fn record_own(&mut self, c: usize, which: usize, bits: &[u64]) {
-        let (at, count) = (self.at, self.count);
-        if let Some(cells) = self.own.get_mut(c * OWN_COLUMNS + which) {
-            if let Some(cells) = cells.get_mut(at..at + bits.len()) {
-                cells_of(bits, count, cells);
-            }
-        }
-    }
 }
 
-/// What each reading adds at one condition: the streams of noise and
-/// quantization where they act, keyed by the condition too (a reading's
-/// noise is its own, not the chain's).
+/// What each reading adds: its noise and its quantization, where they
+/// act, each drawn once a trial from a stream keyed by the seed and its
+/// id alone, like a source's, and scaled at each condition (by the
+/// chain's noise, and by the condition's code step either side). A
+/// condition's results come from its own trials alone, so drawing its
+/// readings' noise apart from another condition's would change no
+/// result's distribution; drawn alike, the draws cost one trial, not one
+/// a condition, and the intervals move smoothly from point to point
+/// (common random numbers).
 #[derive(Clone, Copy)]
 struct Reading {
     noise: Option<Stream>,
     quantization: Option<Stream>,
+    /// The first of their cell columns, after the sources'.
+    first_column: usize,
 }
 
 impl Reading {
-    fn new(condition: &Condition, noise: &Noise, seed: u64) -> Reading {
-        let key = condition_key(&condition.env);
-        let acts = |on: bool, id| on.then(|| Stream::new(seed, id, key));
+    fn new(conditions: &[Condition], noise: &Noise, sources: &Sources, seed: u64) -> Reading {
+        let acts = |on: bool, id| on.then(|| Stream::source(seed, id));
         Reading {
             noise: acts(noise.sigma_averaged != 0.0, NOISE_ID),
-            quantization: acts(condition.quantization != (0.0, 0.0), QUANTIZATION_ID),
+            quantization: acts(conditions.iter().any(Condition::quantizes), QUANTIZATION_ID),
+            first_column: sources.columns(),
         }
     }
 
-    fn named<'a>(self) -> impl Iterator<Item = (&'a str, Varies)> {
-        let noise = self.noise.map(|_| (NOISE_ID as &'a str, Varies::Own(0)));
-        let quantization = self
-            .quantization
-            .map(|_| (QUANTIZATION_ID as &'a str, Varies::Own(1)));
+    /// The streams that act, each a cell column.
+    fn columns(&self) -> usize {
+        usize::from(self.noise.is_some()) + usize::from(self.quantization.is_some())
+    }
+
+    /// The cell columns of the noise and the quantization, where they act.
+    fn column_of(&self) -> (Option<usize>, Option<usize>) {
+        let noise = self.noise.map(|_| self.first_column);
+        let after = self.first_column + usize::from(noise.is_some());
+        (noise, self.quantization.map(|_| after))
+    }
+
+    /// The streams acting at `condition`, each with its cell column.
+    fn named<'a>(self, condition: &Condition) -> impl Iterator<Item = (&'a str, Varies)> {
+        let (noise, quantization) = self.column_of();
+        let quantization = quantization.filter(|_| condition.quantizes());
+        let noise = noise.map(|k| (NOISE_ID as &'a str, Varies::Column(k)));
+        let quantization = quantization.map(|k| (QUANTIZATION_ID as &'a str, Varies::Column(k)));
         noise.into_iter().chain(quantization)
     }
 }
@@ -465,22 +470,19 @@ struct Run<'a> {
 }
 
 /// What a run's trials are written into: each condition's errors, and the
-/// shares' partition cells of each varying source (shared by every
-/// condition) and of each condition's own streams, each kind in one
-/// block of memory. Kept from one group of conditions to the next, so a
-/// long run maps its memory once; every cell in use is written before it
-/// is read.
+/// shares' partition cells of each varying source and reading stream
+/// (shared by every condition), each kind in one block of memory. Kept
+/// from one group of conditions to the next, so a long run maps its
+/// memory once; every cell in use is written before it is read.
 #[derive(Default)]
 struct Buffers {
     errors: Vec<f64>,
     cells: Vec<u8>,
-    own: Vec<u8>,
 }
 
-/// Slices of the buffers: one a condition's errors, one a source's
-/// cells and one a condition's own stream's cells, whole for a group of
-/// conditions or a chunk's part of each.
-type Parts<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>, Vec<&'a mut [u8]>);
+/// Slices of the buffers: one a condition's errors and one a source's
+/// cells, whole for a group of conditions or a chunk's part of each.
+type Parts<'a> = (Vec<&'a mut [f64]>, Vec<&'a mut [u8]>);
 
 /// Buffers a finished run left, for the next: a budget runs each chain
 /// in turn, and memory already mapped costs the next run no faults.
@@ -496,26 +498,18 @@ impl Buffers {
     /// Keeps these for the next run, the larger where two runs ended.
     fn put_back(self) {
         let Ok(mut spare) = SPARE.lock() else { return };
-        let size = |b: &Buffers| b.errors.len() * 8 + b.cells.len() + b.own.len();
+        let size = |b: &Buffers| b.errors.len() * 8 + b.cells.len();
         if spare.as_ref().is_none_or(|kept| size(kept) < size(&self)) {
             *spare = Some(self);
         }
     }
 
-    /// `trials` of each condition of `at`, and, when `columns` sources
-    /// vary and shares are asked for, their cells and the cells of each
-    /// condition's own streams that act (empty where one does not).
-    fn shaped(&mut self, at: &[At], trials: usize, columns: Option<usize>) -> Parts<'_> {
-        let acting = |on: Option<Stream>| if on.is_some() { trials } else { 0 };
-        let own: Vec<usize> = at
-            .iter()
-            .filter(|_| columns.is_some())
-            .flat_map(|at| [acting(at.reading.noise), acting(at.reading.quantization)])
-            .collect();
+    /// `trials` of each of `conditions`, and, when `columns` streams vary
+    /// and shares are asked for, their cells.
+    fn shaped(&mut self, conditions: usize, trials: usize, columns: Option<usize>) -> Parts<'_> {
         (
-            split(&mut self.errors, at.iter().map(|_| trials)),
+            split(&mut self.errors, (0..conditions).map(|_| trials)),
             split(&mut self.cells, (0..columns.unwrap_or(0)).map(|_| trials)),
-            split(&mut self.own, own.into_iter()),
         )
     }
 }
@@ -579,7 +573,6 @@ fn advise_huge_pages<T>(_: &mut [T]) {}
 fn chunk_tasks<'a>(
     errors: &'a mut [&mut [f64]],
     cells: &'a mut [&mut [u8]],
-    own: &'a mut [&mut [u8]],
     trials: usize,
 ) -> Vec<Parts<'a>> {
     let mut tasks: Vec<Parts> = (0..trials.div_ceil(CHUNK))
@@ -587,7 +580,6 @@ fn chunk_tasks<'a>(
             (
                 Vec::with_capacity(errors.len()),
                 Vec::with_capacity(cells.len()),
-                Vec::with_capacity(own.len()),
             )
         })
         .collect();
@@ -599,12 +591,6 @@ fn chunk_tasks<'a>(
     for column in cells {
         for (task, part) in tasks.iter_mut().zip(column.chunks_mut(CHUNK)) {
             task.1.push(part);
-        }
-    }
-    for column in own {
-        let mut parts = column.chunks_mut(CHUNK);
-        for task in &mut tasks {
-            task.2.push(parts.next().unwrap_or_default());
         }
     }
     tasks
@@ -622,12 +608,6 @@ fn first_failure(
         }
     }
     Ok(())
-}
-
-/// One condition of a run, with what its readings add.
-struct At<'a> {
-    condition: &'a Condition,
-    reading: Reading,
 }
 
 impl Run<'_> {
@@ -681,33 +661,28 @@ impl Run<'_> {
             return Ok(vec![none; conditions.len()]);
         }
         let sources = Sources::new(plan, seed);
-        let at: Vec<At> = conditions
-            .iter()
-            .map(|condition| At {
-                condition,
-                reading: Reading::new(condition, noise, seed),
-            })
-            .collect();
-        let (mut errors, mut cells, mut own) =
-            buffers.shaped(&at, trials, shares.then(|| sources.columns()));
+        let reading = Reading::new(conditions, noise, &sources, seed);
+        let columns = sources.columns() + reading.columns();
+        let (mut errors, mut cells) =
+            buffers.shaped(conditions.len(), trials, shares.then_some(columns));
         let count = super::shares::cells(trials);
-        let tasks = chunk_tasks(&mut errors, &mut cells, &mut own, trials);
+        let tasks = chunk_tasks(&mut errors, &mut cells, trials);
         let outcomes: Vec<Vec<Result<(), EvalError>>> = tasks
             .into_par_iter()
             .enumerate()
-            .map(|(chunk, (mut outs, columns, own))| {
+            .map(|(chunk, (mut outs, columns))| {
                 let block = Block {
                     plan,
                     sources: &sources,
+                    reading,
                     noise,
                 };
                 let mut cells = Cells {
                     columns,
-                    own,
                     count,
                     at: 0,
                 };
-                block.errors(&at, chunk * CHUNK, &mut outs, &mut cells)
+                block.errors(conditions, chunk * CHUNK, &mut outs, &mut cells)
             })
             .collect();
         first_failure(outcomes, conditions.len())?;
@@ -717,7 +692,8 @@ impl Run<'_> {
             || errors.par_iter().map(|all| coverage(all)).collect(),
             || {
                 if shares {
-                    variance_shares(plan, &sources, &at, (&cells, &own), &errors)
+                    let streams = (&sources, reading);
+                    variance_shares(plan, streams, conditions, &cells, &errors)
                 } else {
                     Vec::new()
                 }
@@ -734,20 +710,17 @@ impl Run<'_> {
 
 /// Each source's share of the variance of each condition's `errors`, from
 /// the cells recorded in `columns`; a fixed one's is 0. Conditions go
-/// [`GROUP`] at a time through one pass over each column; the passes are
-/// spread over the cores (each group's, and each condition's own
-/// recorded columns one at a time), and every sum still runs in trial
+/// [`GROUP`] at a time through one pass over each column; the groups'
+/// passes are spread over the cores, and every sum still runs in trial
 /// order, whichever thread takes it.
 fn variance_shares(
     plan: &Plan,
-    sources: &Sources,
-    at: &[At],
-    (columns, own): (&[&mut [u8]], &[&mut [u8]]),
+    (sources, reading): (&Sources, Reading),
+    conditions: &[Condition],
+    columns: &[&mut [u8]],
     errors: &[&mut [f64]],
 ) -> Vec<Vec<Share>> {
-    use super::shares::{
-        first_order_columns, first_order_recorded, CellColumn, CenteredGroup, ColumnSpace,
-    };
+    use super::shares::{first_order_columns, CellColumn, CenteredGroup, ColumnSpace};
     let runs: Vec<&[f64]> = errors.iter().map(|e| &**e).collect();
     let trials = runs.first().map_or(0, |r| r.len());
     let cells = super::shares::cells(trials);
@@ -756,42 +729,24 @@ fn variance_shares(
         .map(|c| CellColumn::new(c, trials))
         .collect();
     let groups: Vec<CenteredGroup> = runs.par_chunks(GROUP).map(CenteredGroup::new).collect();
-    let own_passes: Vec<usize> = (0..own.len()).filter(|&o| !own[o].is_empty()).collect();
-    let (by_group, by_own): (Vec<Vec<[f64; GROUP]>>, Vec<f64>) = rayon::join(
-        || {
-            groups
-                .par_iter()
-                .map_init(ColumnSpace::default, |space, group| {
-                    first_order_columns(group, &columns, cells, space)
-                })
-                .collect()
-        },
-        || {
-            own_passes
-                .par_iter()
-                .map(|&o| {
-                    let c = o / OWN_COLUMNS;
-                    first_order_recorded(&groups[c / GROUP], c % GROUP, own[o], cells)
-                })
-                .collect()
-        },
-    );
-    let mut own_shares = vec![0.0; own.len()];
-    for (&o, share) in own_passes.iter().zip(by_own) {
-        own_shares[o] = share;
-    }
-    at.iter()
+    let by_group: Vec<Vec<[f64; GROUP]>> = groups
+        .par_iter()
+        .map_init(ColumnSpace::default, |space, group| {
+            first_order_columns(group, &columns, cells, space)
+        })
+        .collect();
+    conditions
+        .iter()
         .enumerate()
-        .map(|(c, at)| {
+        .map(|(c, condition)| {
             sources
                 .named(plan)
-                .chain(at.reading.named())
+                .chain(reading.named(condition))
                 .map(|(id, varies)| Share {
                     id: id.to_string(),
                     share: match varies {
                         Varies::Not => 0.0,
                         Varies::Column(k) => by_group[c / GROUP][k][c % GROUP],
-                        Varies::Own(k) => own_shares[c * OWN_COLUMNS + k],
                     },
                 })
                 .collect()
@@ -803,6 +758,7 @@ fn variance_shares(
 struct Block<'a> {
     plan: &'a Plan,
     sources: &'a Sources,
+    reading: Reading,
     noise: &'a Noise,
 }
 
@@ -810,11 +766,11 @@ impl Block<'_> {
     /// The errors of trials `first ..` at every condition into `outs` (one
     /// buffer a condition, all as long): each trial's values drawn and its
     /// calibration worked out once, then read at every condition; then
-    /// each condition's noise and quantization over all its trials. A
+    /// the readings' noise and quantization, drawn once a trial. A
     /// condition stops at its first failure.
     fn errors(
         &self,
-        at: &[At],
+        at: &[Condition],
         first: usize,
         outs: &mut [&mut [f64]],
         cells: &mut Cells,
@@ -839,27 +795,20 @@ impl Block<'_> {
                 .fill(values.rows_mut(), slots, t0, count, cells);
             let calibration =
                 plan.calibrations(&values, count, &mut calibrated, &mut lanes.scratch);
-            let conditions = at.iter().enumerate().zip(outs.iter_mut());
+            let conditions = at.iter().zip(outs.iter_mut());
             for ((at, out), result) in conditions.zip(&mut outcome) {
                 if result.is_err() {
                     continue;
                 }
                 let out = &mut out[start..start + count];
                 let known = calibration.as_ref().ok().map(|()| &calibrated);
-                *result = self.block(at.1, &values, known, out, &mut lanes);
+                *result = self.block(at, &values, known, out, &mut lanes);
             }
         }
-        let conditions = at.iter().enumerate().zip(outs.iter_mut());
-        for (at, out) in conditions
-            .zip(&outcome)
-            .filter(|(_, r)| r.is_ok())
-            .map(|(c, _)| c)
-        {
-            wide::run(
-                #[inline(always)]
-                || self.add_reading_errors(at, first as u64, out, cells),
-            );
-        }
+        wide::run(
+            #[inline(always)]
+            || self.add_reading_errors(at, first as u64, outs, &outcome, cells),
+        );
         outcome
     }
 
@@ -869,13 +818,13 @@ impl Block<'_> {
     /// first.
     fn block(
         &self,
-        at: &At,
+        at: &Condition,
         batch: &Batch,
         calibrated: Option<&[Calibrated; LANES]>,
         out: &mut [f64],
         lanes: &mut Lanes,
     ) -> Result<(), EvalError> {
-        let (plan, env) = (self.plan, &at.condition.env);
+        let (plan, env) = (self.plan, &at.env);
         let (slots, values) = (plan.nominal.len(), batch.rows());
         let lane_values = |lane: usize| &values[lane * slots..(lane + 1) * slots];
         let readings = &mut lanes.readings;
@@ -907,47 +856,49 @@ impl Block<'_> {
         Ok(())
     }
 
-    /// What noise and quantization add to the errors `out` of trials `t0
-    /// ..` at one condition, a span of trials at a time: their draws in
-    /// bulk (the normals' tails gathered over the span) and their cells
-    /// recorded. Each error gains its noise, then its quantization, as
-    /// `reading − true + noise + quantization` adds them.
+    /// What noise and quantization add to the errors `outs` of trials
+    /// `t0 ..` at `conditions` (those whose `outcome` is a failure left
+    /// alone), a span of trials at a time: each stream's draws and cells
+    /// once, then each condition's errors. Each error gains its noise,
+    /// then its quantization, as `reading − true + noise + quantization`
+    /// adds them.
     #[inline(always)]
     fn add_reading_errors(
         &self,
-        (c, at): (usize, &At),
+        conditions: &[Condition],
         t0: u64,
-        out: &mut [f64],
+        outs: &mut [&mut [f64]],
+        outcome: &[Result<(), EvalError>],
         cells: &mut Cells,
     ) {
-        let reading = at.reading;
-        let (below, above) = at.condition.quantization_slopes();
         let sigma = self.noise.sigma_averaged;
-        let (mut bits, mut x) = ([0; SPAN], [0.0; SPAN]);
-        for (s, out) in out.chunks_mut(SPAN).enumerate() {
-            let (n, first) = (out.len(), s * SPAN);
+        let (noise_column, quantization_column) = self.reading.column_of();
+        let len = outs.first().map_or(0, |o| o.len());
+        let (mut bits, mut z, mut q) = ([0; SPAN], [0.0; SPAN], [0.0; SPAN]);
+        for first in (0..len).step_by(SPAN) {
+            let n = SPAN.min(len - first);
             let t = t0 + first as u64;
             cells.at = first;
             // Absent, a stream adds zero, as it always has.
-            x[..n].fill(0.0);
-            if let Some(stream) = reading.noise {
+            if let (Some(stream), Some(k)) = (self.reading.noise, noise_column) {
                 stream.bits_from(t, &mut bits[..n]);
-                normals_each(&bits[..n], &mut x[..n]);
-                cells.record_own(c, 0, &bits[..n]);
+                normals_each(&bits[..n], &mut z[..n]);
+                cells.record_each(k, &bits[..n]);
             }
-            for (error, z) in out.iter_mut().zip(&x) {
-                *error += z * sigma;
-            }
-            x[..n].fill(0.0);
-            if let Some(stream) = reading.quantization {
+            if let (Some(stream), Some(k)) = (self.reading.quantization, quantization_column) {
                 stream.bits_from(t, &mut bits[..n]);
-                cells.record_own(c, 1, &bits[..n]);
-                for (q, &bits) in x.iter_mut().zip(&bits[..n]) {
+                cells.record_each(k, &bits[..n]);
+                for (q, &bits) in q.iter_mut().zip(&bits[..n]) {
                     *q = uniform_of(bits) - 0.5;
                 }
             }
-            for (error, &q) in out.iter_mut().zip(&x) {
-                *error += q * if q < 0.0 { below } else { above };
+            let at = conditions.iter().zip(outs.iter_mut()).zip(outcome);
+            for ((condition, out), _) in at.filter(|(_, r)| r.is_ok()) {
+                let (below, above) = condition.quantization_slopes();
+                for ((error, z), &q) in out[first..first + n].iter_mut().zip(&z).zip(&q) {
+                    *error += z * sigma;
+                    *error += q * if q < 0.0 { below } else { above };
+                }
             }
         }
     }

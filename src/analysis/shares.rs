@@ -155,35 +155,6 @@ impl<'a> CenteredGroup<'a> {
     }
 }
 
-/// [`first_order`] of run `g` of `y` for a source whose cells were
-/// recorded while drawing (`column[t]`, trial t's cell): the same sums
-/// in the same order.
-pub fn first_order_recorded(y: &CenteredGroup, g: usize, column: &[u8], cells: usize) -> f64 {
-    wide::run(
-        #[inline(always)]
-        || first_order_recorded_kernel(y, g, column, cells),
-    )
-}
-
-#[inline(always)]
-fn first_order_recorded_kernel(y: &CenteredGroup, g: usize, column: &[u8], cells: usize) -> f64 {
-    let (n, total) = (y.n, y.totals[g]);
-    if g >= y.runs.len() || !usable_of(n, total, cells) {
-        return 0.0;
-    }
-    if cells > MAX_CELLS {
-        return first_order_by(&y.run(g), cells, |t| usize::from(column[t]));
-    }
-    let (mut count, mut sum) = ([0u32; MAX_CELLS], [0.0; MAX_CELLS]);
-    let mean = y.means[g];
-    for (&cell, &v) in column[..n].iter().zip(&y.runs[g][..n]) {
-        let cell = usize::from(cell);
-        count[cell] += 1;
-        sum[cell] += v - mean;
-    }
-    index_from(n, total, &count[..cells], &sum[..cells])
-}
-
 /// A source's recorded cells (trial t's at `cells[t]`) and how many
 /// trials each cell holds: the same for every run, so counted once for
 /// all of them rather than in each group's pass.
@@ -434,8 +405,6 @@ mod tests {
             for (k, &st) in s.iter().enumerate() {
                 let want = first_order(&alone, st, cells).to_bits();
                 assert_eq!(grouped[k][g].to_bits(), want, "run {g} source {k}");
-                let recorded = first_order_recorded(&group, g, &columns[k], cells);
-                assert_eq!(recorded.to_bits(), want);
             }
         }
         assert!(grouped.iter().all(|k| k[3..].iter().all(|&x| x == 0.0)));
