@@ -334,7 +334,7 @@ pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
             RequirementKind::Resolution => (
                 Code::R612,
                 format!("resolution {} {diff_unit} ({}) misses the required {} {diff_unit}", trimmed(diff(v.achieved), 3), v.method.word().replace('_', "-"), trimmed(diff(v.limit), 6)),
-                "average more conversions, narrow the noise bandwidth or lower the noise; a finer converter helps only when one code is the limit".to_string(),
+                resolution_help(&analysis.budget, v.limit, &diff_unit, &diff),
             ),
             RequirementKind::Response => (
                 Code::R613,
@@ -360,6 +360,35 @@ pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
         }
     }
     findings
+}
+
+/// R612's help, with the number that meets `limit` (SI): where one code
+/// is finer than it, the conversions to average (the noise falls as
+/// 1/√N); where it is not, the bits a converter needs more (averaging
+/// goes no finer than a code here).
+fn resolution_help(budget: &Budget, limit: f64, unit: &str, diff: &dyn Fn(f64) -> f64) -> String {
+    let noise = &budget.noise;
+    let code = budget
+        .points
+        .iter()
+        .map(|p| p.code_step())
+        .fold(0.0, f64::max);
+    if code > limit {
+        let bits = (code / limit).log2().ceil().max(1.0);
+        return format!(
+            "one code is {} {unit}: {bits} bits more (a finer converter, or more gain before it) make a code finer than the requirement; averaging goes no finer than one code",
+            trimmed(diff(code), 3)
+        );
+    }
+    let mut average = (noise.noise_free / limit).powi(2).ceil().max(1.0);
+    if noise.noise_free / average.sqrt() > limit {
+        average += 1.0;
+    }
+    format!(
+        "average {average} conversions a reading (`average {average}` in the conversion; now {}) for a noise-free resolution of {} {unit}; or narrow the noise bandwidth or lower the noise",
+        noise.average,
+        trimmed(diff(noise.noise_free / average.sqrt()), 3)
+    )
 }
 
 /// R615 when a Monte Carlo verdict's margin is inside the interval's
