@@ -256,27 +256,25 @@ impl EvenTable {
         let es: Vec<f64> = (0..n).map(|k| first + k as f64 * h).collect();
         // Each point's temperature: the searched table's (within a few
         // µK), then a Newton step, which leaves an error of the order of
-        // that squared; its slope at the temperature the step started
-        // from, a few µK off, which moves it by a part in 10⁹ or so.
-        let (mut ts, mut per_mv) = (Vec::with_capacity(n), Vec::with_capacity(n));
+        // that squared.
+        let mut ts = Vec::with_capacity(n);
         for &e in &es {
             let start = search.x_at(e)? - ZERO_CELSIUS_K;
             let (at, seebeck) = thermocouple::emf_and_seebeck_mv(ty, start).ok()?;
             ts.push(start - (at - e) / seebeck + ZERO_CELSIUS_K);
-            per_mv.push(1.0 / seebeck);
         }
-        let finite_slopes = per_mv.iter().all(|m| m.is_finite() && *m > 0.0);
-        if n < 2 || !finite_slopes || !strictly_monotonic(&ts) {
+        if n < 2 || !strictly_monotonic(&ts) {
             return None;
         }
-        let whole = EvenTable::new(&es, &ts, &per_mv);
+        let ends = step_slopes_of_couple(ty, &ts)?;
+        let whole = EvenTable::by_steps(&es, &ts, &ends);
         // The longest run of steps that read the couple, if it is most of
         // the span (the rest is left to the search).
         let reads: Vec<bool> = (0..n - 1).map(|k| whole.step_reads(k, ty)).collect();
         let (from, len) = longest_run(&reads);
         (2 * len >= n - 1).then(|| {
             let points = from..from + len + 1;
-            EvenTable::new(&es[points.clone()], &ts[points.clone()], &per_mv[points])
+            EvenTable::by_steps(&es[points.clone()], &ts[points], &ends[from..from + len])
         })
     }
 
@@ -356,8 +354,14 @@ impl EvenTable {
 
     /// The table of `xs` at `ys` (evenly spaced, rising), dx/dy `slopes`.
     fn new(ys: &[f64], xs: &[f64], slopes: &[f64]) -> EvenTable {
+        let ends: Vec<(f64, f64)> = slopes.windows(2).map(|m| (m[0], m[1])).collect();
+        EvenTable::by_steps(ys, xs, &ends)
+    }
+
+    /// [`EvenTable::new`] with each step's dx/dy at its two ends its own.
+    fn by_steps(ys: &[f64], xs: &[f64], ends: &[(f64, f64)]) -> EvenTable {
         let n = ys.len();
-        let cubics = hermite_cubics(ys, xs, slopes);
+        let cubics = hermite_cubics_by_step(ys, xs, ends);
         EvenTable {
             first: ys[0],
             per_step: (n - 1) as f64 / (ys[n - 1] - ys[0]),
@@ -506,13 +510,38 @@ impl TemperatureTable {
     }
 }
 
+/// Each step's dT/dE (K/mV) at its two ends, each from the couple's
+/// reference function a millionth of the step inside it: where two
+/// functions meet at a point of the table (type N's at 0 °C, a point of
+/// every table that spans it), each step beside it takes its own side's
+/// slope, and elsewhere each end its own function's. None where a slope
+/// is not a positive number.
+fn step_slopes_of_couple(ty: ThermocoupleType, ts: &[f64]) -> Option<Vec<(f64, f64)>> {
+    let celsius = |t: f64| t - ZERO_CELSIUS_K;
+    let per_mv = |t: f64, toward: f64| {
+        let inside = celsius(t + 1e-6 * (toward - t));
+        let s = thermocouple::seebeck_on_mv_per_c(ty, inside, celsius(t)).ok()?;
+        let m = 1.0 / s;
+        (m.is_finite() && m > 0.0).then_some(m)
+    };
+    ts.windows(2)
+        .map(|w| Some((per_mv(w[0], w[1])?, per_mv(w[1], w[0])?)))
+        .collect()
+}
+
 /// Each segment's cubic Hermite polynomial of x in (y − its first y),
 /// through both ends with their slopes dx/dy, lowest order first.
 fn hermite_cubics(ys: &[f64], xs: &[f64], slopes: &[f64]) -> Vec<[f64; 4]> {
+    let ends: Vec<(f64, f64)> = slopes.windows(2).map(|m| (m[0], m[1])).collect();
+    hermite_cubics_by_step(ys, xs, &ends)
+}
+
+/// [`hermite_cubics`] with each segment's slopes at its two ends its own.
+fn hermite_cubics_by_step(ys: &[f64], xs: &[f64], ends: &[(f64, f64)]) -> Vec<[f64; 4]> {
     (1..ys.len())
         .map(|k| {
             let h = ys[k] - ys[k - 1];
-            let (x0, x1, m0, m1) = (xs[k - 1], xs[k], slopes[k - 1], slopes[k]);
+            let (x0, x1, (m0, m1)) = (xs[k - 1], xs[k], ends[k - 1]);
             let secant = (x1 - x0) / h;
             [
                 x0,
@@ -1820,7 +1849,9 @@ mod tests {
     /// function): to within 1 µK wherever the even table answers, over
     /// all but the cold end of the span for the common types, and within
     /// a few µK where the searched table takes over (that cold end, type
-    /// B's flat start); 20 000 EMFs a type.
+    /// B's flat start); 20 000 EMFs a type. Type N's two functions meet at
+    /// 0 °C with slopes 0.9 % apart: each step beside that point takes its
+    /// own side's (without, a step across it read 0.69 mK off).
     #[test]
     fn junction_temperatures_are_the_exact_inverse() {
         use ThermocoupleType::*;
@@ -1829,6 +1860,7 @@ mod tests {
             (E, true),
             (J, true),
             (K, true),
+            (N, true),
             (R, true),
             (S, true),
             (T, true),
@@ -1860,9 +1892,9 @@ mod tests {
                 *w = w.max((t - exact).abs());
             }
             // All but the cold end's steepest curve (type E's lowest
-            // 0.3 %), or for type B its flat start.
+            // 0.3 %, type N's 0.7 %), or for type B its flat start.
             assert_eq!(
-                beyond <= 100,
+                beyond <= 150,
                 most,
                 "{ty:?}: {beyond} EMFs beyond the even table"
             );
