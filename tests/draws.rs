@@ -11,9 +11,14 @@ use catena::model::PartsCache;
 use common::{catena, demo_specs, root};
 
 fn budget(spec: &str) -> serde_json::Value {
+    budget_at(spec, "5")
+}
+
+/// `budget` of `spec` at `points` points, 4 000 trials each.
+fn budget_at(spec: &str, points: &str) -> serde_json::Value {
     let dir = root().join("tests/fixtures/budget");
     let args = [
-        "budget", spec, "--format", "json", "--points", "5", "--trials", "4000",
+        "budget", spec, "--format", "json", "--points", points, "--trials", "4000",
     ];
     let run = catena(&dir, &args, None);
     assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
@@ -64,23 +69,7 @@ fn adding_a_source_leaves_the_other_draws_alone() {
 /// a five-point one.
 #[test]
 fn a_point_keeps_its_draws_whatever_the_other_points() {
-    let at_points = |points: &str| {
-        let dir = root().join("tests/fixtures/budget");
-        let args = [
-            "budget",
-            "stable_draws.catena",
-            "--format",
-            "json",
-            "--points",
-            points,
-            "--trials",
-            "4000",
-        ];
-        let run = catena(&dir, &args, None);
-        assert_eq!(run.status, 0, "{}{}", run.stdout, run.stderr);
-        let v = serde_json::from_str(&run.stdout).expect("json");
-        intervals(&v)
-    };
+    let at_points = |points: &str| intervals(&budget_at("stable_draws.catena", points));
     let (three, five) = (at_points("3"), at_points("5"));
     let shared: Vec<_> = three.iter().filter(|p| five.contains(p)).collect();
     assert_eq!(shared.len(), three.len(), "{three:?}\n{five:?}");
