@@ -124,6 +124,14 @@ pub struct Budget {
     pub noise: Noise,
 }
 
+impl Budget {
+    /// One code in measurand units where it is coarsest over the points
+    /// (0 without any): what the resolution verdict holds the noise to.
+    pub fn coarsest_code_step(&self) -> f64 {
+        self.points.iter().map(Point::code_step).fold(0.0, f64::max)
+    }
+}
+
 const SQRT3: f64 = 1.732_050_807_568_877_2;
 
 /// How far (as a fraction of the larger effect) a source's evaluated

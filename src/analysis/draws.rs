@@ -500,7 +500,6 @@ mod tests {
     /// than a batch ever fills, the last one not full).
     #[test]
     fn a_span_of_normals_is_each_trials_normal() {
-        use crate::eval::wide;
         let s = Stream::new(5, "conv.noise", 2);
         let mut bits = [0; SPAN];
         s.bits_from(1_000, &mut bits);
@@ -511,19 +510,32 @@ mod tests {
             .collect();
         let spans = (0..=SPAN).map(|n| bits[..n].to_vec()).chain([tail_bits]);
         for bits in spans {
-            let n = bits.len();
-            let (mut wide_z, mut portable_z) = (vec![f64::NAN; n], vec![f64::NAN; n]);
-            wide::run(
-                #[inline(always)]
-                || normals_each(&bits, &mut wide_z),
-            );
-            wide::portable(|| normals_each(&bits, &mut portable_z));
-            for (k, &b) in bits.iter().enumerate() {
-                let one = normal_of(b).to_bits();
-                assert_eq!(wide_z[k].to_bits(), one, "lane {k} of {n}");
-                assert_eq!(portable_z[k].to_bits(), one, "lane {k} of {n}");
-            }
+            each_lanes_normal_on_both_builds(&bits, normals_each);
         }
+    }
+
+    /// Asserts that `normals` of `bits` gives each lane's [`normal_of`],
+    /// in the kernels' build and in the portable one; the kernels' draws.
+    /// `normals` must be inlined (an `#[inline(always)]` function or
+    /// closure), or it is built for the baseline, not the kernel.
+    fn each_lanes_normal_on_both_builds(
+        bits: &[u64],
+        normals: impl Fn(&[u64], &mut [f64]) + Copy,
+    ) -> Vec<f64> {
+        use crate::eval::wide;
+        let n = bits.len();
+        let (mut wide_z, mut portable_z) = (vec![f64::NAN; n], vec![f64::NAN; n]);
+        wide::run(
+            #[inline(always)]
+            || normals(bits, &mut wide_z),
+        );
+        wide::portable(|| normals(bits, &mut portable_z));
+        for (k, &b) in bits.iter().enumerate() {
+            let one = normal_of(b).to_bits();
+            assert_eq!(wide_z[k].to_bits(), one, "lane {k} of {n}");
+            assert_eq!(portable_z[k].to_bits(), one, "lane {k} of {n}");
+        }
+        wide_z
     }
 
     /// Each lane's cell is [`cell_of`]'s, at every count of cells a byte
@@ -547,7 +559,6 @@ mod tests {
     /// than one group holds: each lane's own normal, on both builds.
     #[test]
     fn a_batch_of_extreme_and_many_tail_lanes_is_each_lanes_normal() {
-        use crate::eval::wide;
         let at = |p: f64| ((p * (1u64 << 53) as f64) as u64) << 11;
         let mut bits = [0; LANES];
         for (k, b) in bits.iter_mut().enumerate() {
@@ -560,17 +571,17 @@ mod tests {
                 _ => at(0.5 + k as f64 * 1e-3),
             };
         }
-        let (mut wide_z, mut portable_z) = ([0.0; LANES], [0.0; LANES]);
-        wide::run(
+        let wide_z = each_lanes_normal_on_both_builds(
+            &bits,
             #[inline(always)]
-            || normals_of(&bits, &mut wide_z),
+            |bits, z| {
+                let (bits, z): (&[u64; LANES], &mut [f64; LANES]) = (
+                    bits.try_into().expect("a batch"),
+                    z.try_into().expect("a batch"),
+                );
+                normals_of(bits, z);
+            },
         );
-        wide::portable(|| normals_of(&bits, &mut portable_z));
-        for (k, &b) in bits.iter().enumerate() {
-            let one = normal_of(b).to_bits();
-            assert_eq!(wide_z[k].to_bits(), one, "lane {k}");
-            assert_eq!(portable_z[k].to_bits(), one, "lane {k}");
-        }
         // Φ⁻¹(2⁻⁵⁴) = −8.292361075813595 and Φ⁻¹(10⁻¹²) = −7.034483825301132
         // (Python's `statistics.NormalDist().inv_cdf`, also AS 241); the
         // second lane's p is 10⁻¹² to the draws' step of 2⁻⁵³.

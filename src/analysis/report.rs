@@ -368,11 +368,7 @@ pub fn verdict_findings(chain: &Chain, analysis: &Analysis) -> Findings {
 /// goes no finer than a code here).
 fn resolution_help(budget: &Budget, limit: f64, unit: &str, diff: &dyn Fn(f64) -> f64) -> String {
     let noise = &budget.noise;
-    let code = budget
-        .points
-        .iter()
-        .map(|p| p.code_step())
-        .fold(0.0, f64::max);
+    let code = budget.coarsest_code_step();
     if code > limit {
         let bits = (code / limit).log2().ceil().max(1.0);
         return format!(

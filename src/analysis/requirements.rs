@@ -211,11 +211,7 @@ fn plain_verdict(
 /// Resolution: the noise-free resolution after averaging, or one code
 /// where that is coarser.
 fn resolution_verdict(r: &Requirement, limit: f64, budget: &Budget) -> Verdict {
-    let lsb = budget
-        .points
-        .iter()
-        .map(|p| p.code_step())
-        .fold(0.0, f64::max);
+    let lsb = budget.coarsest_code_step();
     let achieved = budget.noise.noise_free_averaged.max(lsb);
     let method = if budget.noise.noise_free_averaged >= lsb {
         Judged::NoiseFree

@@ -212,7 +212,10 @@ impl Line {
 #[derive(Clone, Debug, PartialEq)]
 pub struct JunctionTables {
     emf: InverseTable,
-    temperature: TemperatureTable,
+    /// Searched at evenly spaced temperatures, and read at evenly spaced
+    /// EMFs ([`EvenTable::of_couple`]) over the stretch where that reads
+    /// the couple's inverse to within [`EVEN_ACCURACY_K`].
+    temperature: InverseTable,
 }
 
 /// x as a function of y at evenly spaced y, interpolated by cubic
@@ -354,14 +357,17 @@ impl EvenTable {
 
     /// The table of `xs` at `ys` (evenly spaced, rising), dx/dy `slopes`.
     fn new(ys: &[f64], xs: &[f64], slopes: &[f64]) -> EvenTable {
-        let ends: Vec<(f64, f64)> = slopes.windows(2).map(|m| (m[0], m[1])).collect();
-        EvenTable::by_steps(ys, xs, &ends)
+        EvenTable::with_cubics(ys, hermite_cubics(ys, xs, slopes))
     }
 
     /// [`EvenTable::new`] with each step's dx/dy at its two ends its own.
     fn by_steps(ys: &[f64], xs: &[f64], ends: &[(f64, f64)]) -> EvenTable {
+        EvenTable::with_cubics(ys, hermite_cubics_by_step(ys, xs, ends))
+    }
+
+    /// The table of each step's cubic from `ys` (evenly spaced, rising).
+    fn with_cubics(ys: &[f64], cubics: Vec<[f64; 4]>) -> EvenTable {
         let n = ys.len();
-        let cubics = hermite_cubics_by_step(ys, xs, ends);
         EvenTable {
             first: ys[0],
             per_step: (n - 1) as f64 / (ys[n - 1] - ys[0]),
@@ -460,53 +466,12 @@ impl JunctionTables {
         if !strictly_monotonic(&emfs) {
             return None;
         }
-        let search = temperatures_by_search(ty, span)?;
-        let temperature = TemperatureTable {
-            even: EvenTable::of_couple(ty, span, &search),
-            search,
-        };
+        let mut temperature = temperatures_by_search(ty, span)?;
+        temperature.even = EvenTable::of_couple(ty, span, &temperature);
         Some(JunctionTables {
             emf: InverseTable::new(emfs, table.codes.clone(), TableUse::Complete).read_evenly(),
             temperature,
         })
-    }
-}
-
-/// The temperature (K) of a couple's EMF (mV) as tables: at evenly
-/// spaced EMFs over the stretch where that reads the couple's inverse to
-/// within [`EVEN_ACCURACY_K`] (its segment found by arithmetic), and at
-/// evenly spaced temperatures over the whole span (searched), for the
-/// EMFs beyond the stretch.
-#[derive(Clone, Debug, PartialEq)]
-struct TemperatureTable {
-    even: Option<EvenTable>,
-    search: InverseTable,
-}
-
-impl TemperatureTable {
-    #[inline(always)]
-    fn x_at(&self, emf: f64) -> Option<f64> {
-        let even = self.even.as_ref().and_then(|t| t.x_at(emf));
-        even.or_else(|| self.search.x_at(emf))
-    }
-
-    /// [`TemperatureTable::x_at`] of each lane: the even table over every
-    /// lane, then the search for the few it does not answer.
-    #[inline(always)]
-    fn x_at_lanes(&self, emfs: &[f64; LANES], out: &mut [f64; LANES]) -> [bool; LANES] {
-        let Some(even) = &self.even else {
-            return self.search.x_at_lanes(emfs, out);
-        };
-        let mut answered = even.x_at_lanes(emfs, out);
-        if answered.contains(&false) {
-            for (k, &emf) in emfs.iter().enumerate() {
-                if let (false, Some(t)) = (answered[k], self.search.x_at(emf)) {
-                    out[k] = t;
-                    answered[k] = true;
-                }
-            }
-        }
-        answered
     }
 }
 
@@ -1850,7 +1815,8 @@ mod tests {
     /// all but the cold end of the span for the common types, and within
     /// a few µK where the searched table takes over (that cold end, type
     /// B's flat start); 20 000 EMFs a type. Type N's two functions meet at
-    /// 0 °C with slopes 0.9 % apart: each step beside that point takes its
+    /// 0 °C with slopes 0.9 % apart (their first coefficients, NIST
+    /// Monograph 175): each step beside that point takes its
     /// own side's (without, a step across it read 0.69 mK off).
     #[test]
     fn junction_temperatures_are_the_exact_inverse() {

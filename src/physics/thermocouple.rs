@@ -291,8 +291,8 @@ pub fn seebeck_mv_per_c(ty: ThermocoupleType, t_c: f64) -> Result<f64, OutOfRang
 /// dE/dt in mV/degC at `t_c` by the reference function of the sub-range
 /// holding `on_c`. Either side of a shared end the two functions' slopes
 /// may differ (type N's meet at 0 degC at 0.026159 and 0.025929 mV/degC,
-/// their first coefficients), so a table step lying on one side takes
-/// that side's slope at its ends.
+/// their first coefficients in NIST Monograph 175), so a table step lying
+/// on one side takes that side's slope at its ends.
 pub fn seebeck_on_mv_per_c(ty: ThermocoupleType, on_c: f64, t_c: f64) -> Result<f64, OutOfRange> {
     let (low, high) = ty.range_c();
     forward_range(ty, on_c)

@@ -488,12 +488,7 @@ fn sources(a: &Analysis, f: f64) -> Vec<SourceOutcome> {
 /// As the resolution verdict finds it: the averaged noise-free
 /// resolution, or one code where that is coarser.
 fn resolution(a: &Analysis) -> f64 {
-    let lsb = a
-        .budget
-        .points
-        .iter()
-        .map(|p| p.code_step())
-        .fold(0.0, f64::max);
+    let lsb = a.budget.coarsest_code_step();
     a.budget.noise.noise_free_averaged.max(lsb)
 }
 
